@@ -1,0 +1,47 @@
+// `npm start`: private durable PostgreSQL, migrations, demo data once, client build, then the app on 127.0.0.1.
+import { spawnSync } from 'node:child_process'
+import { join } from 'node:path'
+import { loadConfig } from '../server/config'
+import { createDb } from '../server/db/client'
+import { runMigrations } from '../server/db/migrate'
+import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../server/db/seed'
+import { startServer } from '../server/index'
+import { app, root, sessionSecret } from './env'
+import { databaseUrl, ensureDatabase, startCluster, stopCluster } from './pg'
+
+await startCluster({ dataDir: app.pgDir, port: app.pgPort, durable: true })
+console.log(`[db] PostgreSQL on 127.0.0.1:${app.pgPort} (data in ${app.pgDir})`)
+ensureDatabase(app.pgPort, app.dbName)
+const url = databaseUrl(app.pgPort, app.dbName)
+{
+  const { db, pool } = createDb(url, 2)
+  await runMigrations(db)
+  const seeded = await seedDemo(db)
+  console.log(seeded ? '[db] demo workshop seeded' : '[db] existing data kept (no re-seed)')
+  await pool.end()
+}
+if (!process.env.SKIP_BUILD) {
+  console.log('[build] building the client…')
+  const r = spawnSync(join(root, 'node_modules/.bin/vite'), ['build', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit' })
+  if (r.status !== 0) throw new Error('client build failed')
+}
+const server = await startServer(
+  loadConfig({ ...process.env, DATABASE_URL: url, PORT: String(app.port), SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production' }),
+)
+console.log(`\nMillgrain is running at ${server.url}\n`)
+console.log(`Demo sign-ins (password "${DEMO_PASSWORD}"):`)
+for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(8)} ${u.email.padEnd(26)} ${u.name}`)
+console.log('\nPress Ctrl-C to stop the app and the database.')
+
+let stopping = false
+async function stop() {
+  if (stopping) return
+  stopping = true
+  console.log('\n[stop] closing the app…')
+  await server.close().catch(() => {})
+  console.log('[stop] stopping PostgreSQL…')
+  stopCluster(app.pgDir)
+  process.exit(0)
+}
+process.on('SIGINT', stop)
+process.on('SIGTERM', stop)

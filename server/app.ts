@@ -1,0 +1,96 @@
+// createApp: the Express application (security, sessions, API routes, static client) without listening.
+import { existsSync } from 'node:fs'
+import { join, resolve } from 'node:path'
+import { randomUUID } from 'node:crypto'
+import express, { type RequestHandler } from 'express'
+import rateLimit from 'express-rate-limit'
+import helmet from 'helmet'
+import type pg from 'pg'
+import type { Config } from './config'
+import type { Db } from './db/client'
+import { AppError } from './errors/app-error'
+import { errorHandler } from './errors/handler'
+import { actorOf, authorize, configurePassport, createSessionMiddleware } from './middleware/auth'
+import { requireCsrf } from './middleware/csrf'
+import type { Deps, RouteSpec } from './lib/route'
+import { Realtime } from './realtime/hub'
+import { allRoutes } from './routes/index'
+import type { SessionUser } from '../shared/schemas/session'
+
+export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime }
+
+export function createApp({ db, pool, config, realtime = new Realtime() }: AppDeps) {
+  const app = express()
+  app.disable('x-powered-by')
+  app.set('trust proxy', 'loopback')
+  app.use((req, res, next) => {
+    ;(req as { id?: string }).id = randomUUID()
+    next()
+  })
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          connectSrc: ["'self'", 'ws:', 'wss:'],
+          upgradeInsecureRequests: null,
+        },
+      },
+      // Served over plain http on loopback by default; HSTS belongs to the TLS proxy in front.
+      strictTransportSecurity: false,
+    }),
+  )
+  const sessionMiddleware = createSessionMiddleware(pool, config)
+  const passport = configurePassport(db)
+  const deps: Deps = { db, realtime, passport }
+
+  const api = express.Router()
+  api.use(express.json({ limit: '1mb' }))
+  api.use(sessionMiddleware)
+  api.use(passport.session())
+  api.use(requireCsrf)
+  const loginLimiter = rateLimit({
+    windowMs: 15 * 60_000,
+    limit: config.LOGIN_ATTEMPTS_PER_15_MIN,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, _res, next) =>
+      next(new AppError({ code: 'rate-limited', message: 'Too many sign-in attempts; wait 15 minutes and try again.' })),
+  })
+  api.post('/session', loginLimiter)
+
+  for (const spec of allRoutes) register(api, spec, deps)
+  api.use((req, _res, next) => next(new AppError({ code: 'not-found', message: `No such API route: ${req.method} ${req.baseUrl}${req.path}` })))
+  app.use('/api', api)
+
+  const clientDir = config.CLIENT_DIR ? resolve(config.CLIENT_DIR) : null
+  if (clientDir && existsSync(join(clientDir, 'index.html'))) {
+    app.use(express.static(clientDir, { index: false, maxAge: '1h' }))
+    // History-mode routing: any other GET gets the app shell.
+    app.get(/^(?!\/api\/|\/socket\.io\/).*/, (_req, res) => res.sendFile(join(clientDir, 'index.html')))
+  }
+  app.use(errorHandler)
+  return { app, sessionMiddleware, passport, realtime }
+}
+
+function register(router: express.Router, spec: RouteSpec, deps: Deps) {
+  const handler: RequestHandler = async (req, res, next) => {
+    try {
+      const params = spec.params ? spec.params.parse(req.params) : req.params
+      const query = spec.query ? spec.query.parse(req.query) : req.query
+      const body = spec.body ? spec.body.parse(req.body ?? {}) : req.body
+      const actor = actorOf(req.user as SessionUser | undefined)
+      const result = await spec.handler({ req, res, actor: actor!, body, query, params, deps })
+      if (result === undefined) {
+        if (!res.headersSent) res.status(204).end()
+        return
+      }
+      res.status(spec.status ?? 200).json(result)
+    } catch (err) {
+      next(err)
+    }
+  }
+  router[spec.method](spec.path, authorize(spec.roles), handler)
+}

@@ -1,0 +1,27 @@
+// Configuration read once from the environment at start; a bad value stops the process with a clear message.
+import { z } from 'zod'
+
+const schema = z.object({
+  DATABASE_URL: z.string().url('must be a postgres:// URL'),
+  PORT: z.coerce.number().int().min(0).max(65535).default(8080),
+  HOST: z.string().default('127.0.0.1'),
+  SESSION_SECRET: z.string().min(16, 'must be at least 16 characters'),
+  /** Idle sessions expire after this many minutes. */
+  SESSION_IDLE_MINUTES: z.coerce.number().int().min(1).default(12 * 60),
+  /** Bench tablets stay signed in this long. */
+  BENCH_SESSION_DAYS: z.coerce.number().int().min(1).default(30),
+  LOGIN_ATTEMPTS_PER_15_MIN: z.coerce.number().int().min(1).default(20),
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
+  /** Built client to serve (omitted in API-only tests). */
+  CLIENT_DIR: z.string().optional(),
+})
+export type Config = z.infer<typeof schema>
+
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const r = schema.safeParse(env)
+  if (!r.success) {
+    const lines = r.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`).join('\n')
+    throw new Error(`Invalid configuration:\n${lines}`)
+  }
+  return r.data
+}

@@ -1,0 +1,4 @@
+// Every table of the database, for drizzle-kit and the typed client.
+export * from './workshop'
+export * from './resources'
+export * from './work'

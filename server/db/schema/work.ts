@@ -1,0 +1,126 @@
+// The work itself: customers, orders, routing templates, job bags, operations, time records, plan versions.
+import { boolean, date, index, integer, jsonb, pgTable, real, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core'
+import type { PieceParams } from '../../../shared/schemas/order'
+import { createdAt, pk, updatedAt, version } from './common'
+import { benches, operationKinds, people } from './resources'
+import { users, workshops } from './workshop'
+
+export const customers = pgTable('customers', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  reference: text().notNull(),
+  name: text().notNull(),
+  email: text().notNull().default(''),
+  phone: text().notNull().default(''),
+  notes: text().notNull().default(''),
+  version: version(),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex().on(t.workshopId, t.reference)])
+
+export const routingTemplates = pgTable('routing_templates', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  code: text().notNull(),
+  name: text().notNull(),
+  description: text().notNull().default(''),
+  version: version(),
+}, (t) => [uniqueIndex().on(t.workshopId, t.code)])
+
+export const templateSteps = pgTable('template_steps', {
+  id: pk(),
+  templateId: integer().notNull().references(() => routingTemplates.id, { onDelete: 'cascade' }),
+  seq: integer().notNull(),
+  key: text().notNull(),
+  kindId: integer().notNull().references(() => operationKinds.id),
+  name: text().notNull(),
+  baseMinutes: real().notNull(),
+  perStoneMinutes: real().notNull().default(0),
+  requiredLevel: integer().notNull().default(1),
+  waitAfterMinutes: integer().notNull().default(0),
+  leadDays: integer().notNull().default(0),
+  after: text().array().notNull().default([]),
+}, (t) => [uniqueIndex().on(t.templateId, t.key)])
+
+export const orders = pgTable('orders', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  number: text().notNull(),
+  customerId: integer().notNull().references(() => customers.id),
+  title: text().notNull(),
+  dueDate: date({ mode: 'string' }).notNull(),
+  promisedDate: date({ mode: 'string' }),
+  priority: integer().notNull().default(3),
+  status: text().notNull().default('open'),
+  priceQuoted: real().notNull().default(0),
+  notes: text().notNull().default(''),
+  version: version(),
+  createdAt: createdAt(),
+  updatedAt: updatedAt(),
+}, (t) => [uniqueIndex().on(t.workshopId, t.number), index().on(t.customerId)])
+
+export const jobBags = pgTable('job_bags', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  orderId: integer().notNull().references(() => orders.id, { onDelete: 'cascade' }),
+  number: text().notNull(),
+  piece: text().notNull(),
+  templateId: integer().references(() => routingTemplates.id, { onDelete: 'set null' }),
+  params: jsonb().$type<PieceParams>().notNull(),
+  status: text().notNull().default('waiting'),
+  releaseAt: timestamp({ withTimezone: true, mode: 'string' }),
+  version: version(),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex().on(t.workshopId, t.number), index().on(t.orderId)])
+
+export const operations = pgTable('operations', {
+  id: pk(),
+  jobBagId: integer().notNull().references(() => jobBags.id, { onDelete: 'cascade' }),
+  seq: integer().notNull(),
+  key: text().notNull(),
+  kindId: integer().notNull().references(() => operationKinds.id),
+  name: text().notNull(),
+  status: text().notNull().default('pending'),
+  estimateMinutes: real().notNull(),
+  estimateSource: text().notNull().default('template'),
+  requiredLevel: integer().notNull().default(1),
+  waitAfterMinutes: integer().notNull().default(0),
+  leadDays: integer().notNull().default(0),
+  after: text().array().notNull().default([]),
+  plannedBenchId: integer().references(() => benches.id, { onDelete: 'set null' }),
+  plannedPersonId: integer().references(() => people.id, { onDelete: 'set null' }),
+  plannedStart: timestamp({ withTimezone: true, mode: 'string' }),
+  plannedEnd: timestamp({ withTimezone: true, mode: 'string' }),
+  pinned: boolean().notNull().default(false),
+  claimedBy: integer().references(() => people.id, { onDelete: 'set null' }),
+  finishedAt: timestamp({ withTimezone: true, mode: 'string' }),
+  version: version(),
+}, (t) => [uniqueIndex().on(t.jobBagId, t.key), index().on(t.status)])
+
+export const timeRecords = pgTable('time_records', {
+  id: pk(),
+  operationId: integer().notNull().references(() => operations.id, { onDelete: 'cascade' }),
+  personId: integer().notNull().references(() => people.id),
+  benchId: integer().references(() => benches.id, { onDelete: 'set null' }),
+  startedAt: timestamp({ withTimezone: true, mode: 'string' }).notNull(),
+  endedAt: timestamp({ withTimezone: true, mode: 'string' }),
+  endReason: text(),
+  note: text().notNull().default(''),
+  /** Client-generated id: a replayed request finds its earlier record instead of writing a second. */
+  clientId: text(),
+  createdAt: createdAt(),
+}, (t) => [index().on(t.operationId), index().on(t.personId), uniqueIndex().on(t.clientId)])
+
+export const planVersions = pgTable('plan_versions', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  number: integer().notNull(),
+  status: text().notNull().default('draft'),
+  createdBy: integer().references(() => users.id),
+  createdAt: createdAt(),
+  publishedBy: integer().references(() => users.id),
+  publishedAt: timestamp({ withTimezone: true, mode: 'string' }),
+  score: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+  /** operationId → { benchId, personId, start, end, reason } at the time of the plan. */
+  assignments: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+}, (t) => [uniqueIndex().on(t.workshopId, t.number)])
+

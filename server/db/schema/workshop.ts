@@ -1,0 +1,47 @@
+// The workshop, its calendar (weekly hours, closures), users and the audit log.
+import { boolean, date, index, integer, jsonb, pgTable, real, text, uniqueIndex } from 'drizzle-orm/pg-core'
+import type { WorkSpan } from '../../../shared/schemas/common'
+import { createdAt, pk, updatedAt, version } from './common'
+import { timestamp } from 'drizzle-orm/pg-core'
+
+export const workshops = pgTable('workshops', {
+  id: pk(),
+  name: text().notNull(),
+  timeZone: text().notNull().default('Europe/London'),
+  weekPattern: jsonb().$type<WorkSpan[]>().notNull(),
+  planningLoad: real().notNull().default(0.85),
+  version: version(),
+  createdAt: createdAt(),
+})
+
+export const closures = pgTable('closures', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  startsOn: date({ mode: 'string' }).notNull(),
+  endsOn: date({ mode: 'string' }).notNull(),
+}, (t) => [index().on(t.workshopId)])
+
+export const users = pgTable('users', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  email: text().notNull(),
+  name: text().notNull(),
+  role: text().$type<'owner' | 'manager' | 'bench' | 'sales'>().notNull(),
+  passwordHash: text().notNull(),
+  active: boolean().notNull().default(true),
+  version: version(),
+  createdAt: createdAt(),
+  updatedAt: updatedAt(),
+}, (t) => [uniqueIndex().on(t.email)])
+
+export const auditLog = pgTable('audit_log', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  userId: integer().references(() => users.id),
+  at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  action: text().notNull(),
+  entity: text().notNull(),
+  entityId: integer(),
+  details: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+}, (t) => [index().on(t.workshopId, t.at)])

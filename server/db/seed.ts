@@ -1,0 +1,286 @@
+// The demo workshop (an invented scenario): benches, people, routings, open orders and a history of actual times.
+import { count, eq } from 'drizzle-orm'
+import { templateEstimate } from '../../shared/domain/estimate'
+import type { PieceParams } from '../../shared/schemas/order'
+import type { WorkSpan } from '../../shared/schemas/common'
+import type { Db } from './client'
+import * as s from './schema/index'
+import { hashPassword } from '../services/users'
+
+export const DEMO_PASSWORD = 'millgrain-demo'
+export const DEMO_USERS = [
+  { email: 'owner@wrenfield.test', name: 'Margit Saale', role: 'owner' },
+  { email: 'manager@wrenfield.test', name: 'Sam Ottery', role: 'manager' },
+  { email: 'setter@wrenfield.test', name: 'Ines Harrowby', role: 'bench' },
+  { email: 'trainee@wrenfield.test', name: 'Theo Brae', role: 'bench' },
+  { email: 'priya@wrenfield.test', name: 'Priya Oduya', role: 'bench' },
+  { email: 'jonah@wrenfield.test', name: 'Jonah Vell', role: 'bench' },
+  { email: 'ruth@wrenfield.test', name: 'Ruth Calder', role: 'bench' },
+  { email: 'sales@wrenfield.test', name: 'Lorna Pike', role: 'sales' },
+] as const
+
+/** Small seeded generator so the demo is the same on every machine. */
+function rng(seed: number) {
+  let a = seed >>> 0
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0
+    let t = a
+    t = Math.imul(t ^ (t >>> 15), t | 1)
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
+  }
+}
+
+const WEEK: WorkSpan[] = [1, 2, 3, 4, 5].flatMap((weekday) => [
+  { weekday, start: '08:30', end: '12:30' },
+  { weekday, start: '13:15', end: '17:00' },
+])
+
+const KINDS = [
+  { code: 'forging', name: 'Forging & laminating', hazards: ['torch'], color: '#b5653a' },
+  { code: 'sawing', name: 'Sawing & piercing', hazards: [], color: '#8a7f5a' },
+  { code: 'filing', name: 'Filing & fitting', hazards: [], color: '#7b8b6f' },
+  { code: 'soldering', name: 'Soldering & pickling', hazards: ['torch', 'pickle'], color: '#c9772b' },
+  { code: 'drilling', name: 'Drilling & seat cutting', hazards: [], color: '#5b7f95' },
+  { code: 'setting', name: 'Stone setting', hazards: [], color: '#4f5fa8' },
+  { code: 'polishing', name: 'Polishing', hazards: ['lathe'], color: '#a0578a' },
+  { code: 'etching', name: 'Etching & oxidising', hazards: ['acid'], color: '#3f8f7a' },
+  { code: 'inspection', name: 'Inspection & packing', hazards: [], color: '#6d6d6d' },
+  { code: 'casting', name: 'Casting (outside)', hazards: ['investment'], color: '#9c8c3c', outside: true },
+  { code: 'hallmarking', name: 'Hallmarking (assay office)', hazards: [], color: '#8c6d3c', outside: true },
+] as const
+type KindCode = (typeof KINDS)[number]['code']
+
+const BENCHES: { name: string; kind: string; kinds: KindCode[]; notes?: string }[] = [
+  { name: 'Fabrication bench 1', kind: 'fabrication', kinds: ['sawing', 'filing', 'drilling', 'inspection'] },
+  { name: 'Fabrication bench 2', kind: 'fabrication', kinds: ['sawing', 'filing', 'drilling', 'inspection'] },
+  { name: 'Forge & soldering station', kind: 'hearth', kinds: ['forging', 'soldering'], notes: 'Torch, rolling mill, pickle pot' },
+  { name: 'Drilling station', kind: 'drilling', kinds: ['drilling'], notes: 'Pillar drill and pendant motor' },
+  { name: 'Setting bench A', kind: 'setting', kinds: ['setting', 'inspection'], notes: 'Stereo microscope, GRS-style vice' },
+  { name: 'Setting bench B', kind: 'setting', kinds: ['setting', 'inspection'], notes: 'Stereo microscope' },
+  { name: 'Polishing station', kind: 'polishing', kinds: ['polishing'], notes: 'Two-spindle lathe with extraction' },
+  { name: 'Acid & etch station', kind: 'wet', kinds: ['etching'], notes: 'Fume cupboard, eyewash' },
+]
+
+const PEOPLE: { user: string; name: string; rate: number; skills: [KindCode, number, number][] ; pattern?: WorkSpan[] }[] = [
+  { user: 'setter@wrenfield.test', name: 'Ines Harrowby', rate: 38, skills: [['setting', 3, 1.15], ['drilling', 2, 1], ['inspection', 3, 1]] },
+  { user: 'trainee@wrenfield.test', name: 'Theo Brae', rate: 18, skills: [['setting', 1, 0.6], ['drilling', 2, 0.8], ['filing', 2, 0.9], ['polishing', 1, 0.8]] },
+  { user: 'priya@wrenfield.test', name: 'Priya Oduya', rate: 32, skills: [['forging', 3, 1.1], ['sawing', 3, 1], ['filing', 3, 1], ['soldering', 3, 1.1], ['drilling', 2, 1], ['etching', 2, 1]] },
+  { user: 'jonah@wrenfield.test', name: 'Jonah Vell', rate: 30, skills: [['forging', 2, 0.9], ['sawing', 3, 1.05], ['filing', 3, 1], ['soldering', 2, 0.95], ['drilling', 3, 1.1], ['polishing', 1, 0.8]] },
+  { user: 'ruth@wrenfield.test', name: 'Ruth Calder', rate: 26, skills: [['polishing', 3, 1.1], ['etching', 2, 1], ['inspection', 2, 1], ['filing', 1, 0.8]],
+    // Four days a week.
+    pattern: WEEK.filter((w) => w.weekday !== 5) },
+  { user: 'manager@wrenfield.test', name: 'Sam Ottery', rate: 35, skills: [['filing', 2, 0.9], ['sawing', 2, 0.9], ['polishing', 2, 0.9], ['inspection', 3, 1], ['soldering', 1, 0.8]],
+    // Mornings at the bench; afternoons planning.
+    pattern: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, start: '08:30', end: '12:30' })) },
+]
+
+type Step = { key: string; kind: KindCode; name: string; base: number; perStone?: number; level?: number; wait?: number; lead?: number; after?: string[] }
+const TEMPLATES: { code: string; name: string; description: string; steps: Step[] }[] = [
+  { code: 'pave-pendant', name: 'Pavé pendant in laminated metal', description: 'Laminated silver/copper disc, bail soldered, pavé of small diamonds.',
+    steps: [
+      { key: 'laminate', kind: 'forging', name: 'Laminate and roll sheet', base: 90, level: 2 },
+      { key: 'bail', kind: 'sawing', name: 'Saw and form bail', base: 25 },
+      { key: 'pierce', kind: 'sawing', name: 'Saw outline', base: 40, after: ['laminate'] },
+      { key: 'solder', kind: 'soldering', name: 'Solder bail', base: 30, wait: 20, level: 2, after: ['pierce', 'bail'] },
+      { key: 'file', kind: 'filing', name: 'File and emery', base: 40, after: ['solder'] },
+      { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark at assay office', base: 0, lead: 4, after: ['file'] },
+      { key: 'drill', kind: 'drilling', name: 'Drill and cut seats', base: 10, perStone: 1.5, after: ['hallmark'] },
+      { key: 'set', kind: 'setting', name: 'Set pavé', base: 30, perStone: 7, level: 2, after: ['drill'] },
+      { key: 'polish', kind: 'polishing', name: 'Final polish', base: 35, after: ['set'] },
+      { key: 'inspect', kind: 'inspection', name: 'Inspect and bag', base: 10, after: ['polish'] },
+    ] },
+  { code: 'bezel-ring', name: 'Bezel-set solitaire ring', description: 'Forged band with a soldered bezel cup.',
+    steps: [
+      { key: 'band', kind: 'forging', name: 'Forge band', base: 45 },
+      { key: 'bezel', kind: 'soldering', name: 'Make and solder bezel', base: 40, wait: 20, level: 2, after: ['band'] },
+      { key: 'file', kind: 'filing', name: 'File and clean up', base: 30, after: ['bezel'] },
+      { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['file'] },
+      { key: 'set', kind: 'setting', name: 'Set stone in bezel', base: 45, perStone: 0, level: 2, after: ['hallmark'] },
+      { key: 'polish', kind: 'polishing', name: 'Polish', base: 30, after: ['set'] },
+      { key: 'inspect', kind: 'inspection', name: 'Inspect and bag', base: 10, after: ['polish'] },
+    ] },
+  { code: 'wedding-pair', name: 'Wedding band pair', description: 'Two cast bands, matched finish.',
+    steps: [
+      { key: 'cast', kind: 'casting', name: 'Cast bands (caster)', base: 0, lead: 5 },
+      { key: 'file', kind: 'filing', name: 'Clean castings and size', base: 60, after: ['cast'] },
+      { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['file'] },
+      { key: 'polish', kind: 'polishing', name: 'Polish and finish pair', base: 50, after: ['hallmark'] },
+      { key: 'inspect', kind: 'inspection', name: 'Inspect and box', base: 10, after: ['polish'] },
+    ] },
+  { code: 'retip-claws', name: 'Repair: retip claws', description: 'Rebuild worn claws on a customer ring; check stones first.',
+    steps: [
+      { key: 'assess', kind: 'inspection', name: 'Assess and record stones', base: 15, level: 2 },
+      { key: 'retip', kind: 'soldering', name: 'Retip claws', base: 15, perStone: 0, level: 3, wait: 15, after: ['assess'] },
+      { key: 'file', kind: 'filing', name: 'Shape tips', base: 20, after: ['retip'] },
+      { key: 'tighten', kind: 'setting', name: 'Tighten and check stones', base: 20, level: 2, after: ['file'] },
+      { key: 'polish', kind: 'polishing', name: 'Polish', base: 20, after: ['tighten'] },
+    ] },
+  { code: 'stud-run', name: 'Production run: stud earrings', description: 'Cast studs with soldered posts, per pair minutes.',
+    steps: [
+      { key: 'cast', kind: 'casting', name: 'Cast tree (caster)', base: 0, lead: 5 },
+      { key: 'clean', kind: 'filing', name: 'Cut off and clean', base: 5 },
+      { key: 'post', kind: 'soldering', name: 'Solder posts', base: 4, wait: 20, after: ['clean'] },
+      { key: 'polish', kind: 'polishing', name: 'Barrel and polish', base: 4, after: ['post'] },
+      { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['polish'] },
+      { key: 'pack', kind: 'inspection', name: 'Pair and pack', base: 1.5, after: ['hallmark'] },
+    ] },
+  { code: 'ring-resize', name: 'Repair: ring resize', description: 'Cut, add or remove metal, solder, clean up.',
+    steps: [
+      { key: 'cut', kind: 'sawing', name: 'Cut shank', base: 10 },
+      { key: 'solder', kind: 'soldering', name: 'Solder shank', base: 20, wait: 15, level: 2, after: ['cut'] },
+      { key: 'file', kind: 'filing', name: 'True up and file', base: 15, after: ['solder'] },
+      { key: 'polish', kind: 'polishing', name: 'Polish', base: 20, after: ['file'] },
+    ] },
+  { code: 'etched-cuff', name: 'Etched cuff', description: 'Sheet cuff with an etched pattern, oxidised recesses.',
+    steps: [
+      { key: 'blank', kind: 'sawing', name: 'Saw blank', base: 25 },
+      { key: 'resist', kind: 'filing', name: 'Clean and apply resist', base: 30, after: ['blank'] },
+      { key: 'etch', kind: 'etching', name: 'Etch pattern', base: 30, wait: 90, level: 2, after: ['resist'] },
+      { key: 'form', kind: 'forging', name: 'Form cuff on mandrel', base: 35, after: ['etch'] },
+      { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['form'] },
+      { key: 'oxidise', kind: 'etching', name: 'Oxidise and relieve', base: 25, after: ['hallmark'] },
+      { key: 'polish', kind: 'polishing', name: 'Polish highlights', base: 30, after: ['oxidise'] },
+    ] },
+  { code: 'signet-ring', name: 'Signet ring', description: 'Cast signet, hand finished.',
+    steps: [
+      { key: 'cast', kind: 'casting', name: 'Cast (caster)', base: 0, lead: 5 },
+      { key: 'file', kind: 'filing', name: 'Clean up and size', base: 50, after: ['cast'] },
+      { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['file'] },
+      { key: 'polish', kind: 'polishing', name: 'Polish', base: 40, after: ['hallmark'] },
+      { key: 'inspect', kind: 'inspection', name: 'Inspect and box', base: 10, after: ['polish'] },
+    ] },
+  { code: 'halo-ring', name: 'Halo engagement ring', description: 'Cast head and fabricated shank joined, centre and halo set.',
+    steps: [
+      { key: 'head', kind: 'casting', name: 'Cast halo head (caster)', base: 0, lead: 5 },
+      { key: 'shank', kind: 'forging', name: 'Forge shank', base: 50, level: 2 },
+      { key: 'join', kind: 'soldering', name: 'Solder head to shank', base: 40, wait: 20, level: 3, after: ['head', 'shank'] },
+      { key: 'file', kind: 'filing', name: 'File and pre-polish', base: 45, after: ['join'] },
+      { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['file'] },
+      { key: 'set', kind: 'setting', name: 'Set centre and halo', base: 40, perStone: 8, level: 3, after: ['hallmark'] },
+      { key: 'polish', kind: 'polishing', name: 'Final polish', base: 40, after: ['set'] },
+      { key: 'inspect', kind: 'inspection', name: 'Inspect and box', base: 15, after: ['polish'] },
+    ] },
+  { code: 'chain-repair', name: 'Repair: chain link', description: 'Solder a broken link, clean up.',
+    steps: [
+      { key: 'solder', kind: 'soldering', name: 'Solder link', base: 20, wait: 15 },
+      { key: 'polish', kind: 'polishing', name: 'Clean and polish', base: 15, after: ['solder'] },
+    ] },
+]
+
+const CUSTOMERS = ['Aldous Fenwright', 'Bea Tamsworth', 'Corin Oakhill', 'Delphine Marsh-Idle', 'Emrys Calloway', 'Farah Quillon', 'Gideon Pellow', 'Hana Brightwater',
+  'Ivo Stannard', 'Juno Halvergate', 'Kasimir Dunlow', 'Leonie Ashgrove', 'Milo Trevenna', 'Nell Wetherby', 'Orla Finchcombe', 'Pascal Rooke']
+
+const PIECES: Record<string, { piece: string; params: Partial<PieceParams> }[]> = {
+  'pave-pendant': [{ piece: 'Laminated disc pendant, 18 pavé', params: { metal: 'mixed', stoneCount: 18, stoneSizeMm: 1.5, sizeMm: 22 } }, { piece: 'Pavé moon pendant', params: { metal: 'silver-925', stoneCount: 12, stoneSizeMm: 1.3, sizeMm: 18 } }],
+  'bezel-ring': [{ piece: 'Sapphire bezel ring, size N', params: { metal: 'gold-18ct', stoneCount: 1, stoneSizeMm: 6 } }, { piece: 'Moonstone bezel ring', params: { metal: 'silver-925', stoneCount: 1, stoneSizeMm: 8 } }],
+  'wedding-pair': [{ piece: 'Court bands 3 mm and 5 mm', params: { metal: 'platinum-950', quantity: 1 } }, { piece: 'D-shape bands, brushed', params: { metal: 'gold-18ct', finish: 'brushed' } }],
+  'retip-claws': [{ piece: 'Six-claw solitaire: retip', params: { metal: 'gold-18ct', stoneCount: 6 } }, { piece: 'Trilogy ring: retip four claws', params: { metal: 'platinum-950', stoneCount: 4 } }],
+  'stud-run': [{ piece: 'Seed studs, 40 pairs', params: { metal: 'silver-925', quantity: 40 } }, { piece: 'Knot studs, 25 pairs', params: { metal: 'gold-9ct', quantity: 25 } }],
+  'ring-resize': [{ piece: 'Resize L to N', params: { metal: 'gold-9ct' } }, { piece: 'Resize Q to O', params: { metal: 'silver-925' } }],
+  'etched-cuff': [{ piece: 'Fern-etched cuff', params: { metal: 'silver-925', sizeMm: 160, finish: 'oxidised' } }],
+  'signet-ring': [{ piece: 'Oval signet, plain face', params: { metal: 'gold-9ct' } }],
+  'halo-ring': [{ piece: 'Oval halo, 14 stones', params: { metal: 'platinum-950', stoneCount: 15, stoneSizeMm: 1.5 } }, { piece: 'Round halo, 18 stones', params: { metal: 'gold-18ct', stoneCount: 19, stoneSizeMm: 1.3 } }],
+  'chain-repair': [{ piece: 'Belcher chain, broken link', params: { metal: 'gold-9ct' } }],
+}
+
+const DEFAULT_PARAMS: PieceParams = { metal: 'silver-925', stoneCount: 0, stoneSizeMm: 0, sizeMm: 0, finish: 'polished', quantity: 1 }
+const dayStr = (d: Date) => d.toISOString().slice(0, 10)
+const addDays = (d: Date, n: number) => new Date(d.getTime() + n * 86_400_000)
+
+export async function isSeeded(db: Db) {
+  const [r] = await db.select({ n: count() }).from(s.workshops)
+  return (r?.n ?? 0) > 0
+}
+
+/** Seeds the demo workshop once; returns false when data exists already. */
+export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean> {
+  if (await isSeeded(db)) return false
+  const now = o.now ?? new Date()
+  const rand = rng(20261202)
+  const hash = await hashPassword(DEMO_PASSWORD)
+  await db.transaction(async (tx) => {
+    const [w] = await tx.insert(s.workshops).values({ name: 'Wrenfield Street Workshop', timeZone: 'Europe/London', weekPattern: WEEK }).returning()
+    const workshopId = w!.id
+    const kinds = await tx.insert(s.operationKinds).values(KINDS.map((k) => ({ workshopId, code: k.code, name: k.name, hazards: [...k.hazards], color: k.color, outside: 'outside' in k ? k.outside : false }))).returning()
+    const kindId = (c: KindCode) => kinds.find((k) => k.code === c)!.id
+    const users = await tx.insert(s.users).values(DEMO_USERS.map((u) => ({ workshopId, email: u.email, name: u.name, role: u.role, passwordHash: hash }))).returning()
+    const benches = await tx.insert(s.benches).values(BENCHES.map((b) => ({ workshopId, name: b.name, kind: b.kind, notes: b.notes ?? '' }))).returning()
+    await tx.insert(s.benchCapabilities).values(BENCHES.flatMap((b, i) => b.kinds.map((k) => ({ benchId: benches[i]!.id, kindId: kindId(k) }))))
+    const polishing = benches.find((b) => b.kind === 'polishing')!
+    const downStart = addDays(now, 9)
+    downStart.setUTCHours(8, 30, 0, 0)
+    await tx.insert(s.benchDowntime).values({ benchId: polishing.id, startsAt: downStart.toISOString(), endsAt: new Date(downStart.getTime() + 4 * 3600_000).toISOString(), reason: 'Lathe service and extraction filter change' })
+    const people = await tx.insert(s.people).values(PEOPLE.map((p) => ({ workshopId, name: p.name, userId: users.find((u) => u.email === p.user)!.id, hourlyRate: p.rate, weekPattern: p.pattern ?? null }))).returning()
+    await tx.insert(s.personSkills).values(PEOPLE.flatMap((p, i) => p.skills.map(([k, level, speed]) => ({ personId: people[i]!.id, kindId: kindId(k), level, speed }))))
+    const l1 = addDays(now, 12)
+    await tx.insert(s.leave).values({ personId: people[2]!.id, startsOn: dayStr(l1), endsOn: dayStr(addDays(l1, 2)), reason: 'Holiday' })
+    await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: stocktake', startsOn: dayStr(addDays(now, 17)), endsOn: dayStr(addDays(now, 17)) })
+
+    const templates: { row: typeof s.routingTemplates.$inferSelect; steps: (typeof s.templateSteps.$inferSelect)[] }[] = []
+    for (const t of TEMPLATES) {
+      const [row] = await tx.insert(s.routingTemplates).values({ workshopId, code: t.code, name: t.name, description: t.description }).returning()
+      const steps = await tx.insert(s.templateSteps).values(t.steps.map((st, seq) => ({ templateId: row!.id, seq, key: st.key, kindId: kindId(st.kind), name: st.name, baseMinutes: st.base, perStoneMinutes: st.perStone ?? 0, requiredLevel: st.level ?? 1, waitAfterMinutes: st.wait ?? 0, leadDays: st.lead ?? 0, after: st.after ?? [] }))).returning()
+      templates.push({ row: row!, steps })
+    }
+    const customers = await tx.insert(s.customers).values(CUSTOMERS.map((name, i) => ({ workshopId, reference: `C-${String(i + 1).padStart(4, '0')}`, name, email: `${name.split(' ')[0]!.toLowerCase()}@example.com`, phone: `01632 960${String(100 + i).slice(-3)}` }))).returning()
+
+    let orderNo = 0
+    const makeOrder = async (opts: { due: Date; status: string; created: Date; tIndex: number }) => {
+      orderNo++
+      const t = templates[opts.tIndex % templates.length]!
+      const choices = PIECES[t.row.code]!
+      const choice = choices[Math.floor(rand() * choices.length)]!
+      const params = { ...DEFAULT_PARAMS, ...choice.params }
+      const number = `MG${String(opts.due.getUTCFullYear()).slice(2)}-${String(orderNo).padStart(4, '0')}`
+      const [order] = await tx.insert(s.orders).values({ workshopId, number, customerId: customers[Math.floor(rand() * customers.length)]!.id, title: choice.piece, dueDate: dayStr(opts.due), priority: 1 + Math.floor(rand() * 5), status: opts.status, priceQuoted: Math.round(150 + rand() * 2400), createdAt: opts.created }).returning()
+      const [bag] = await tx.insert(s.jobBags).values({ workshopId, orderId: order!.id, number: `${number}-1`, piece: choice.piece, templateId: t.row.id, params, status: opts.status === 'collected' ? 'complete' : 'waiting', createdAt: opts.created }).returning()
+      const ops = await tx.insert(s.operations).values(t.steps.map((st) => ({
+        jobBagId: bag!.id, seq: st.seq, key: st.key, kindId: st.kindId, name: st.name, requiredLevel: st.requiredLevel, waitAfterMinutes: st.waitAfterMinutes, leadDays: st.leadDays, after: st.after,
+        estimateMinutes: st.leadDays > 0 ? 0 : templateEstimate(st, params), estimateSource: 'template',
+        status: opts.status === 'collected' ? 'done' : st.after.length ? 'pending' : 'ready',
+      }))).returning()
+      return { order: order!, bag: bag!, ops, template: t }
+    }
+
+    // History: finished orders over the past twelve weeks, with time records for estimating.
+    const skilled = (kind: number, level: number) => PEOPLE.map((p, i) => ({ p, id: people[i]!.id, skill: p.skills.find(([k]) => kindId(k) === kind) })).filter((x) => x.skill && x.skill[1] >= level)
+    const benchFor = (kind: number) => BENCHES.map((b, i) => ({ b, id: benches[i]!.id })).filter((x) => x.b.kinds.some((k) => kindId(k) === kind))
+    let historyOps = 0
+    for (let i = 0; historyOps < 300; i++) {
+      const created = addDays(now, -84 + i * 1.3)
+      const { ops } = await makeOrder({ due: addDays(created, 21), status: 'collected', created, tIndex: i })
+      let t = new Date(created.getTime() + 9 * 3600_000)
+      for (const op of ops) {
+        if (op.leadDays > 0) { t = addDays(t, op.leadDays + 1); await tx.update(s.operations).set({ finishedAt: t.toISOString() }).where(eqId(op.id)); continue }
+        const who = skilled(op.kindId, op.requiredLevel)
+        const where = benchFor(op.kindId)
+        const person = who[Math.floor(rand() * who.length)]
+        const bench = where[Math.floor(rand() * where.length)]
+        if (!person || !bench) continue
+        // Actual = estimate ÷ speed × noise (log-normal-ish), with an occasional job left on the bench overnight.
+        const noise = Math.exp((rand() + rand() + rand() - 1.5) * 0.35) * 1.08
+        let actual = (op.estimateMinutes / person.skill![2]) * noise
+        if (rand() < 0.03) actual += 300 + rand() * 400
+        actual = Math.max(3, Math.round(actual))
+        const start = new Date(t)
+        const records = actual > 120 && rand() < 0.5
+          ? [{ s: start, e: new Date(start.getTime() + Math.round(actual * 0.6) * 60_000), reason: 'end-of-day' }, { s: addDays(start, 1), e: new Date(addDays(start, 1).getTime() + Math.round(actual * 0.4) * 60_000), reason: 'finished' }]
+          : [{ s: start, e: new Date(start.getTime() + actual * 60_000), reason: 'finished' }]
+        await tx.insert(s.timeRecords).values(records.map((r) => ({ operationId: op.id, personId: person.id, benchId: bench.id, startedAt: r.s.toISOString(), endedAt: r.e.toISOString(), endReason: r.reason })))
+        const end = records[records.length - 1]!.e
+        await tx.update(s.operations).set({ finishedAt: end.toISOString(), plannedBenchId: bench.id, plannedPersonId: person.id }).where(eqId(op.id))
+        t = new Date(end.getTime() + 30 * 60_000)
+        historyOps++
+      }
+    }
+    // Open work: 30 orders due over the next four weeks.
+    for (let i = 0; i < 30; i++) {
+      const due = addDays(now, 5 + Math.floor((i * 23) / 30) + Math.floor(rand() * 4))
+      await makeOrder({ due, status: 'open', created: addDays(now, -Math.floor(rand() * 10)), tIndex: i * 7 + 3 })
+    }
+  })
+  return true
+}
+
+const eqId = (id: number) => eq(s.operations.id, id)

@@ -1,0 +1,45 @@
+// The server process: HTTP + Socket.IO on one port, closed cleanly on SIGINT/SIGTERM.
+import { createServer } from 'node:http'
+import { Server } from 'socket.io'
+import { createApp } from './app'
+import { loadConfig, type Config } from './config'
+import { createDb } from './db/client'
+import { attachSockets } from './realtime/sockets'
+import { Realtime } from './realtime/hub'
+
+export async function startServer(config: Config) {
+  const { db, pool } = createDb(config.DATABASE_URL)
+  const realtime = new Realtime()
+  const { app, sessionMiddleware, passport } = createApp({ db, pool, config, realtime })
+  const http = createServer(app)
+  const io = new Server(http, { serveClient: false })
+  attachSockets(io, { sessionMiddleware, passport, realtime })
+  await new Promise<void>((resolve, reject) => {
+    http.once('error', reject)
+    http.listen(config.PORT, config.HOST, () => resolve())
+  })
+  const address = http.address()
+  const port = typeof address === 'object' && address ? address.port : config.PORT
+  return {
+    port,
+    url: `http://${config.HOST}:${port}`,
+    db,
+    async close() {
+      io.close()
+      await new Promise<void>((r) => http.close(() => r()))
+      await pool.end()
+    },
+  }
+}
+
+const isMain = import.meta.url === `file://${process.argv[1]}`
+if (isMain) {
+  const server = await startServer(loadConfig())
+  console.log(`Millgrain listening on ${server.url}`)
+  const stop = async () => {
+    await server.close()
+    process.exit(0)
+  }
+  process.on('SIGINT', stop)
+  process.on('SIGTERM', stop)
+}

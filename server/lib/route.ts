@@ -1,0 +1,44 @@
+// Route declarations: every API route names the roles it allows (deny by default) and the schemas of its input.
+import type { Request, Response } from 'express'
+import type { ZodType } from 'zod'
+import type { Role } from '../../shared/domain/roles'
+import type { Db } from '../db/client'
+import type { Realtime } from '../realtime/hub'
+
+export interface Actor { userId: number; workshopId: number; role: Role; personId: number | null; name: string }
+
+import type { PassportStatic } from 'passport'
+type Authenticator = InstanceType<PassportStatic['Passport']>
+
+export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string }
+
+export interface RouteContext<B, Q, P> {
+  req: Request
+  res: Response
+  actor: Actor
+  body: B
+  query: Q
+  params: P
+  deps: Deps
+}
+
+export type Access = Role[] | 'public'
+
+export interface RouteSpec<B = any, Q = any, P = any> {
+  method: 'get' | 'post' | 'put' | 'patch' | 'delete'
+  /** Express path under /api. */
+  path: string
+  roles: Access
+  summary: string
+  body?: ZodType<B>
+  query?: ZodType<Q>
+  params?: ZodType<P>
+  /** Status for a successful answer (default 200; 201 for creations). */
+  status?: number
+  /** Returns the JSON body, or undefined when the handler answered itself (files, PDFs). */
+  handler: (ctx: RouteContext<B, Q, P>) => Promise<unknown>
+}
+
+export function route<B = unknown, Q = unknown, P = unknown>(spec: RouteSpec<B, Q, P>): RouteSpec<B, Q, P> {
+  return spec
+}

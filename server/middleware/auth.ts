@@ -1,0 +1,85 @@
+// Sign-in with passport-local, sessions in PostgreSQL, and the per-route role check.
+import { verify } from '@node-rs/argon2'
+import connectPgSimple from 'connect-pg-simple'
+import { eq } from 'drizzle-orm'
+import type { RequestHandler } from 'express'
+import session from 'express-session'
+import passport from 'passport'
+import { Strategy as LocalStrategy } from 'passport-local'
+import type pg from 'pg'
+import type { Config } from '../config'
+import type { Db } from '../db/client'
+import { people, users, workshops } from '../db/schema/index'
+import { AppError } from '../errors/app-error'
+import type { Access, Actor } from '../lib/route'
+import type { SessionUser } from '../../shared/schemas/session'
+
+// A hash to verify against when the e-mail is unknown, so timing does not reveal which addresses exist.
+const DUMMY_HASH = '$argon2id$v=19$m=19456,t=2,p=1$c29tZXNhbHRzb21lc2FsdA$W5CGbW6oN9cFs9Rz1b1N0VqC0n3FJQ7m8pQmYb3dZ2k'
+
+export async function loadSessionUser(db: Db, userId: number): Promise<SessionUser | null> {
+  const rows = await db
+    .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active, workshopId: users.workshopId, workshopName: workshops.name, personId: people.id })
+    .from(users)
+    .innerJoin(workshops, eq(workshops.id, users.workshopId))
+    .leftJoin(people, eq(people.userId, users.id))
+    .where(eq(users.id, userId))
+  const u = rows[0]
+  if (!u || !u.active) return null
+  return { id: u.id, email: u.email, name: u.name, role: u.role, workshopId: u.workshopId, workshopName: u.workshopName, personId: u.personId ?? null }
+}
+
+export function configurePassport(db: Db) {
+  const p = new passport.Passport()
+  p.use(
+    new LocalStrategy({ usernameField: 'email', passwordField: 'password' }, async (email, password, done) => {
+      try {
+        const [u] = await db.select().from(users).where(eq(users.email, email.trim().toLowerCase()))
+        const ok = await verify(u?.passwordHash ?? DUMMY_HASH, password).catch(() => false)
+        if (!u || !ok) return done(null, false, { message: 'The e-mail or password is not right.' })
+        if (!u.active) return done(null, false, { message: 'This account has been switched off; ask the workshop owner.' })
+        return done(null, (await loadSessionUser(db, u.id)) ?? false)
+      } catch (err) {
+        return done(err)
+      }
+    }),
+  )
+  p.serializeUser((user, done) => done(null, (user as SessionUser).id))
+  p.deserializeUser(async (id: number, done) => {
+    try {
+      done(null, (await loadSessionUser(db, id)) ?? false)
+    } catch (err) {
+      done(err)
+    }
+  })
+  return p
+}
+
+export function createSessionMiddleware(pool: pg.Pool, config: Config): RequestHandler {
+  const PgStore = connectPgSimple(session)
+  return session({
+    store: new PgStore({ pool, tableName: 'user_sessions', createTableIfMissing: true, pruneSessionInterval: 15 * 60 }),
+    name: 'millgrain.sid',
+    secret: config.SESSION_SECRET,
+    resave: false,
+    saveUninitialized: false,
+    rolling: true,
+    cookie: { httpOnly: true, sameSite: 'lax', secure: false, maxAge: config.SESSION_IDLE_MINUTES * 60_000 },
+  })
+}
+
+export function actorOf(user: SessionUser | undefined): Actor | null {
+  if (!user) return null
+  return { userId: user.id, workshopId: user.workshopId, role: user.role, personId: user.personId, name: user.name }
+}
+
+/** Deny by default: a route that does not list the user's role answers 403. */
+export function authorize(access: Access): RequestHandler {
+  return (req, _res, next) => {
+    if (access === 'public') return next()
+    const actor = actorOf(req.user as SessionUser | undefined)
+    if (!actor) return next(new AppError({ code: 'unauthenticated', message: 'Please sign in first.' }))
+    if (!access.includes(actor.role)) return next(new AppError({ code: 'forbidden', message: `The ${actor.role} role may not do this.` }))
+    next()
+  }
+}

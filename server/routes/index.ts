@@ -1,0 +1,7 @@
+// Every API route, in one list: the app mounts it and the access test walks it.
+import type { RouteSpec } from '../lib/route'
+import { masterDataRoutes } from './masterdata'
+import { orderRoutes } from './orders'
+import { sessionRoutes } from './session'
+
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes] as RouteSpec[]

@@ -1,0 +1,363 @@
+// Index a Problem once, then turn (priority keys, resource choices) into a timed plan by serial schedule generation on calendars.
+import type { Interval, Job, Objective, Operation, Plan, PlannedOperation, Problem, Score, StartReason } from './model.ts'
+import { SchedulingInputError } from './model.ts'
+import { clipToWindows, formatMinute, intersect, outsideWorkEnd, walkWorkingTime, weekdayOf } from './calendar.ts'
+
+/** One resource option of an operation, with indices and its joint working windows. */
+export interface CompiledOption { bench: number; person: number; minutes: number; windows: Interval[] }
+
+/** The problem indexed for fast decoding: only operations that are not done. */
+export interface Compiled {
+  problem: Problem
+  n: number
+  ops: Operation[]
+  opIndex: Map<string, number>
+  jobs: Job[]
+  jobOf: Int32Array
+  preds: number[][]
+  succs: number[][]
+  options: CompiledOption[][]
+  earliest: Float64Array
+  waitAfter: Float64Array
+  outsideDays: Int32Array
+  fixedAt: (null | { option: CompiledOption; start: number; end?: number; benchId: string | null; personId: string | null })[]
+  /** Option index matching the previous plan's resources, -1 when none. */
+  previousOption: Int32Array
+  benchCount: number
+  personCount: number
+  originWeekday: number
+}
+
+const ALWAYS: Interval[] = [{ start: -1e15, end: 1e15 }]
+
+/** Indexes a problem (assumed to have passed checkProblem). */
+export function compile(problem: Problem): Compiled {
+  const benchIdx = new Map(problem.benches.map((b, i) => [b.id, i]))
+  const personIdx = new Map(problem.people.map((p, i) => [p.id, i]))
+  const jobIdx = new Map(problem.jobs.map((j, i) => [j.id, i]))
+  const doneIds = new Set(problem.operations.filter((o) => o.done).map((o) => o.id))
+  const ops = problem.operations.filter((o) => !o.done)
+  const n = ops.length
+  const opIndex = new Map(ops.map((o, i) => [o.id, i]))
+  const horizonCap = (list: Interval[]): Interval[] => list.filter((w) => w.start < problem.horizon).map((w) => ({ start: w.start, end: Math.min(w.end, problem.horizon) }))
+  const windowCache = new Map<string, Interval[]>()
+  const windowsFor = (bench: number, person: number): Interval[] => {
+    const key = `${bench}/${person}`
+    let w = windowCache.get(key)
+    if (!w) {
+      const bw = bench >= 0 ? problem.benches[bench]!.available : null
+      const pw = person >= 0 ? problem.people[person]!.available : null
+      w = bw && pw ? intersect(bw, pw) : bw ?? pw ?? ALWAYS
+      w = horizonCap(w)
+      windowCache.set(key, w)
+    }
+    return w
+  }
+  const jobOf = new Int32Array(n)
+  const preds: number[][] = []
+  const succs: number[][] = ops.map(() => [])
+  const options: CompiledOption[][] = []
+  const earliest = new Float64Array(n)
+  const waitAfter = new Float64Array(n)
+  const outsideDays = new Int32Array(n).fill(-1)
+  const fixedAt: Compiled['fixedAt'] = []
+  const previousOption = new Int32Array(n).fill(-1)
+  ops.forEach((op, i) => {
+    const j = jobIdx.get(op.jobId) ?? 0
+    jobOf[i] = j
+    const job = problem.jobs[j]!
+    earliest[i] = Math.max(problem.now, job.release)
+    waitAfter[i] = op.waitAfter ?? 0
+    preds.push(op.predecessors.filter((p) => !doneIds.has(p)).map((p) => opIndex.get(p)!).filter((p) => p !== undefined))
+    for (const p of preds[i]!) succs[p]!.push(i)
+    if (op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0) outsideDays[i] = op.outsideWorkingDays
+    const opts = op.options.map((o) => {
+      const b = o.benchId === null ? -1 : benchIdx.get(o.benchId) ?? -1
+      const p = o.personId === null ? -1 : personIdx.get(o.personId) ?? -1
+      return { bench: b, person: p, minutes: o.minutes, windows: windowsFor(b, p) }
+    })
+    options.push(opts)
+    if (op.fixed) {
+      const f = op.fixed
+      const b = f.benchId === null ? -1 : benchIdx.get(f.benchId) ?? -1
+      const p = f.personId === null ? -1 : personIdx.get(f.personId) ?? -1
+      const match = opts.find((o) => o.bench === b && o.person === p)
+      const option = match ?? { bench: b, person: p, minutes: opts[0]?.minutes ?? 0, windows: windowsFor(b, p) }
+      fixedAt.push({ option, start: f.start, ...(f.end !== undefined ? { end: f.end } : {}), benchId: f.benchId, personId: f.personId })
+    } else fixedAt.push(null)
+    const prev = problem.previous?.[op.id]
+    if (prev) previousOption[i] = op.options.findIndex((o) => o.benchId === prev.benchId && o.personId === prev.personId)
+  })
+  return {
+    problem, n, ops, opIndex, jobs: problem.jobs, jobOf, preds, succs, options, earliest, waitAfter, outsideDays, fixedAt, previousOption,
+    benchCount: problem.benches.length, personCount: problem.people.length, originWeekday: weekdayOf(problem.origin),
+  }
+}
+
+/** Busy time of one bench or person: sorted disjoint segments with their owning operation. */
+class Timeline {
+  starts: number[] = []
+  ends: number[] = []
+  owners: number[] = []
+  /** First busy segment overlapping [s, e), or -1. */
+  overlap(s: number, e: number): number {
+    const ends = this.ends
+    let lo = 0, hi = ends.length
+    while (lo < hi) { const mid = (lo + hi) >> 1; if (ends[mid]! > s) hi = mid; else lo = mid + 1 }
+    return lo < ends.length && this.starts[lo]! < e ? lo : -1
+  }
+  add(s: number, e: number, owner: number): void {
+    const ends = this.ends
+    let lo = 0, hi = ends.length
+    while (lo < hi) { const mid = (lo + hi) >> 1; if (ends[mid]! > s) hi = mid; else lo = mid + 1 }
+    this.starts.splice(lo, 0, s); this.ends.splice(lo, 0, e); this.owners.splice(lo, 0, owner)
+  }
+}
+
+/** Reason codes kept compactly during decoding. */
+export enum Why { Now = 0, Release = 1, Predecessor = 2, Bench = 3, Person = 4, WorkingTime = 5, Fixed = 6 }
+
+/** The timed result of one decode. */
+export interface Decoded {
+  start: Float64Array
+  end: Float64Array
+  option: Int32Array
+  segments: Interval[][]
+  why: Uint8Array
+  blocker: Int32Array
+  /** Index of the first operation that could not be planned before the horizon, -1 when all fit. */
+  overflow: number
+  completion: Float64Array
+  weightedTardiness: number
+  makespan: number
+  moves: number
+}
+
+/** Earliest start at or after t on option `o` that avoids busy bench and person time; null past the horizon. */
+function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline[]): { segs: Interval[]; blockedBy: number; blockedOn: Why } | null {
+  let blockedBy = -1
+  let blockedOn: Why = Why.WorkingTime
+  const bt = o.bench >= 0 ? benches[o.bench]! : null
+  const pt = o.person >= 0 ? people[o.person]! : null
+  for (;;) {
+    const segs = walkWorkingTime(o.windows, t, o.minutes)
+    if (!segs) return null
+    let pushTo = -Infinity
+    for (const s of segs) {
+      if (s.end <= s.start) continue
+      if (bt) { const k = bt.overlap(s.start, s.end); if (k >= 0) { pushTo = bt.ends[k]!; blockedBy = bt.owners[k]!; blockedOn = Why.Bench; break } }
+      if (pt) { const k = pt.overlap(s.start, s.end); if (k >= 0) { pushTo = pt.ends[k]!; blockedBy = pt.owners[k]!; blockedOn = Why.Person; break } }
+    }
+    if (pushTo === -Infinity) return { segs, blockedBy, blockedOn }
+    t = pushTo
+  }
+}
+
+/** Min-heap of operation indices ordered by key. */
+class KeyHeap {
+  private items: number[] = []
+  constructor(private key: Float64Array) {}
+  get size(): number { return this.items.length }
+  push(x: number): void {
+    const a = this.items, k = this.key
+    a.push(x)
+    let i = a.length - 1
+    while (i > 0) { const p = (i - 1) >> 1; if (k[a[p]!]! <= k[x]!) break; a[i] = a[p]!; i = p }
+    a[i] = x
+  }
+  pop(): number {
+    const a = this.items, k = this.key
+    const top = a[0]!, last = a.pop()!
+    if (a.length > 0) {
+      let i = 0
+      for (;;) {
+        const l = 2 * i + 1, r = l + 1
+        let m = i, mv = k[last]!
+        if (l < a.length && k[a[l]!]! < mv) { m = l; mv = k[a[l]!]! }
+        if (r < a.length && k[a[r]!]! < mv) { m = r }
+        if (m === i) break
+        a[i] = a[m]!; i = m
+      }
+      a[i] = last
+    }
+    return top
+  }
+}
+
+/**
+ * Serial schedule generation: repeatedly takes the eligible operation with the lowest key and places it at its earliest
+ * feasible time; choice[i] >= 0 forces that option, -1 picks the option that finishes first (ties: previous plan's).
+ */
+export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Decoded {
+  const n = c.n
+  const start = new Float64Array(n), end = new Float64Array(n)
+  const option = new Int32Array(n).fill(-1)
+  const segments: Interval[][] = new Array(n)
+  const why = new Uint8Array(n), blocker = new Int32Array(n).fill(-1)
+  const benches: Timeline[] = Array.from({ length: c.benchCount }, () => new Timeline())
+  const people: Timeline[] = Array.from({ length: c.personCount }, () => new Timeline())
+  const placed = new Uint8Array(n)
+  const waiting = new Int32Array(n)
+  let overflow = -1
+  const heap = new KeyHeap(key)
+
+  for (let i = 0; i < n; i++) {
+    const f = c.fixedAt[i]
+    if (!f) continue
+    const segs = f.end !== undefined ? clipToWindows(f.option.windows, f.start, f.end) : walkWorkingTime(f.option.windows, f.start, f.option.minutes)
+    const s = segs && segs.length > 0 ? segs : [{ start: f.start, end: f.end ?? f.start + f.option.minutes }]
+    segments[i] = s
+    start[i] = f.start
+    end[i] = f.end ?? s[s.length - 1]!.end
+    for (const g of s) {
+      if (g.end <= g.start) continue
+      if (f.option.bench >= 0) benches[f.option.bench]!.add(g.start, g.end, i)
+      if (f.option.person >= 0) people[f.option.person]!.add(g.start, g.end, i)
+    }
+    option[i] = c.options[i]!.indexOf(f.option)
+    why[i] = Why.Fixed
+    placed[i] = 1
+  }
+  for (let i = 0; i < n; i++) {
+    if (placed[i]) continue
+    let w = 0
+    for (const p of c.preds[i]!) if (!placed[p]) w++
+    waiting[i] = w
+    if (w === 0) heap.push(i)
+  }
+  const release = (i: number): void => {
+    for (const s of c.succs[i]!) if (!placed[s] && --waiting[s] === 0) heap.push(s)
+  }
+  for (let i = 0; i < n; i++) if (placed[i]) release(i)
+
+  while (heap.size > 0) {
+    const i = heap.pop()
+    // Earliest start from now, release and predecessors (with their wait-after).
+    let est = c.problem.now, w: Why = Why.Now, blk = -1
+    const rel = c.jobs[c.jobOf[i]!]!.release
+    if (rel > est) { est = rel; w = Why.Release }
+    for (const p of c.preds[i]!) {
+      const e = end[p]! + c.waitAfter[p]!
+      if (e > est) { est = e; w = Why.Predecessor; blk = p }
+    }
+    if (c.outsideDays[i]! > 0) {
+      const e = outsideWorkEnd(c.problem.workshopDays, est, c.outsideDays[i]!)
+      if (e === null) { if (overflow < 0) overflow = i }
+      const fin = e ?? est + c.outsideDays[i]! * 1440
+      start[i] = est; end[i] = fin; segments[i] = [{ start: est, end: fin }]
+      why[i] = w; blocker[i] = blk
+    } else {
+      const opts = c.options[i]!
+      const forced = choice[i]!
+      let best: ReturnType<typeof fit> = null, bestK = -1, bestEnd = Infinity
+      for (let k = 0; k < opts.length; k++) {
+        if (forced >= 0 && k !== forced) continue
+        const r = fit(opts[k]!, est, benches, people)
+        if (!r) continue
+        const e = r.segs[r.segs.length - 1]!.end
+        const better = e < bestEnd || (e === bestEnd && (k === c.previousOption[i] || (bestK !== c.previousOption[i] && opts[k]!.minutes < opts[bestK]!.minutes)))
+        if (better) { best = r; bestK = k; bestEnd = e }
+      }
+      if (!best) {
+        if (overflow < 0) overflow = i
+        const d = opts[0]?.minutes ?? 0
+        start[i] = est; end[i] = est + d; segments[i] = [{ start: est, end: est + d }]; option[i] = opts.length > 0 ? 0 : -1
+        why[i] = w; blocker[i] = blk
+      } else {
+        const o = opts[bestK]!
+        const segs = best.segs
+        const s0 = segs[0]!.start
+        start[i] = s0; end[i] = bestEnd; segments[i] = segs; option[i] = bestK
+        for (const g of segs) {
+          if (g.end <= g.start) continue
+          if (o.bench >= 0) benches[o.bench]!.add(g.start, g.end, i)
+          if (o.person >= 0) people[o.person]!.add(g.start, g.end, i)
+        }
+        if (s0 > est) { why[i] = best.blockedBy >= 0 ? best.blockedOn : Why.WorkingTime; blocker[i] = best.blockedBy }
+        else { why[i] = w; blocker[i] = blk }
+      }
+    }
+    placed[i] = 1
+    release(i)
+  }
+  // Operations left unplaced sit on a cycle; checkProblem rules that out, so this is defensive.
+  for (let i = 0; i < n; i++) if (!placed[i]) { if (overflow < 0) overflow = i; start[i] = end[i] = c.problem.now; segments[i] = [] }
+
+  const completion = new Float64Array(c.jobs.length).fill(-Infinity)
+  let makespan = 0, moves = 0
+  for (let i = 0; i < n; i++) {
+    const j = c.jobOf[i]!
+    if (end[i]! > completion[j]!) completion[j] = end[i]!
+    if (end[i]! > makespan) makespan = end[i]!
+    if (c.problem.previous?.[c.ops[i]!.id] && option[i] !== c.previousOption[i] && !c.fixedAt[i]) moves++
+  }
+  let weightedTardiness = 0
+  c.jobs.forEach((job, j) => {
+    if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
+  })
+  return { start, end, option, segments, why, blocker, overflow, completion, weightedTardiness, makespan, moves }
+}
+
+/** Lexicographic comparison of two decodes: negative when a is better; overflowing decodes are always worse. */
+export function compareDecoded(a: Decoded, b: Decoded, objective: Objective[]): number {
+  const ao = a.overflow >= 0 ? 1 : 0, bo = b.overflow >= 0 ? 1 : 0
+  if (ao !== bo) return ao - bo
+  for (const k of objective) {
+    const d = a[k] - b[k]
+    if (d !== 0) return d
+  }
+  return 0
+}
+
+const WHY_KIND: StartReason['kind'][] = ['now', 'release', 'predecessor', 'bench', 'person', 'working-time', 'fixed']
+
+/** Builds the public Plan, with human-readable reasons, from a decode. */
+export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
+  const p = c.problem
+  const at = (t: number): string => formatMinute(t, c.originWeekday)
+  const operations: PlannedOperation[] = []
+  for (let i = 0; i < c.n; i++) {
+    const op = c.ops[i]!
+    const opt = d.option[i]! >= 0 ? c.options[i]![d.option[i]!]! : null
+    const fixed = c.fixedAt[i]
+    const benchId = fixed ? fixed.benchId : c.outsideDays[i]! > 0 || !opt || opt.bench < 0 ? null : p.benches[opt.bench]!.id
+    const personId = fixed ? fixed.personId : c.outsideDays[i]! > 0 || !opt || opt.person < 0 ? null : p.people[opt.person]!.id
+    const kind = WHY_KIND[d.why[i]!]!
+    const b = d.blocker[i]!
+    const bop = b >= 0 ? c.ops[b]! : null
+    let detail: string
+    switch (kind) {
+      case 'fixed': detail = `pinned at ${at(d.start[i]!)}`; break
+      case 'now': detail = `starts as soon as planning allows (${at(d.start[i]!)})`; break
+      case 'release': detail = `job ${c.jobs[c.jobOf[i]!]!.name} is released at ${at(c.jobs[c.jobOf[i]!]!.release)}`; break
+      case 'predecessor': detail = bop ? `waiting for ${bop.name} to finish${c.waitAfter[b]! > 0 ? ` and ${c.waitAfter[b]} min wait` : ''} until ${at(d.start[i]!)}` : `waiting for a predecessor until ${at(d.start[i]!)}`; break
+      case 'bench': detail = `waiting for ${benchId ? p.benches.find((x) => x.id === benchId)?.name ?? benchId : 'the bench'} (${bop?.name ?? 'busy'}) until ${at(d.start[i]!)}`; break
+      case 'person': detail = `waiting for ${personId ? p.people.find((x) => x.id === personId)?.name ?? personId : 'the person'} (${bop?.kind ?? 'busy'}) until ${at(d.start[i]!)}`; break
+      default: detail = `outside working time of ${[benchId && p.benches.find((x) => x.id === benchId)?.name, personId && p.people.find((x) => x.id === personId)?.name].filter(Boolean).join(' and ') || 'the workshop'} until ${at(d.start[i]!)}`
+    }
+    const reason: StartReason = { kind, detail, ...(bop ? { blockerId: bop.id } : {}) }
+    operations.push({ operationId: op.id, jobId: op.jobId, benchId, personId, start: d.start[i]!, end: d.end[i]!, segments: d.segments[i]!, reason })
+  }
+  const jobs: Plan['jobs'] = []
+  c.jobs.forEach((job, j) => {
+    const completion = d.completion[j]!
+    if (completion === -Infinity) return
+    const lateness = job.due === null ? 0 : completion - job.due
+    jobs.push({ jobId: job.id, completion, lateness, tardiness: Math.max(0, lateness) })
+  })
+  const score: Score = { weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, feasible: true, violations: [] }
+  return { operations, jobs, score, stats }
+}
+
+/** Throws when a decode could not fit everything before the horizon. */
+export function assertWithinHorizon(c: Compiled, d: Decoded): void {
+  if (d.overflow < 0) return
+  const op = c.ops[d.overflow]!
+  const job = c.jobs[c.jobOf[d.overflow]!]!
+  throw new SchedulingInputError({
+    code: 'beyond-horizon',
+    jobId: job.id,
+    operationId: op.id,
+    message: `Job ${job.name}: operation ${op.name} cannot be planned before the end of the calendars (minute ${c.problem.horizon}); extend the horizon or free capacity`,
+  })
+}

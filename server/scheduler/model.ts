@@ -1,0 +1,146 @@
+// The engine's contract: problem facts, planning results, scores and the input error, in integer minutes from problem.origin.
+
+/** Half-open time interval [start, end) in minutes from the problem origin. */
+export type Interval = { start: number; end: number }
+
+/** A bench (workstation); `available` is working time minus downtime and closures, sorted and disjoint. */
+export interface Bench { id: string; name: string; available: Interval[] }
+
+/** A person at the bench; `available` is the weekly pattern minus leave and closures, sorted and disjoint. */
+export interface Person { id: string; name: string; available: Interval[] }
+
+/** One way to carry out an operation: a bench, a person (either may be null) and the minutes it takes that pair. */
+export interface OperationOption { benchId: string | null; personId: string | null; minutes: number }
+
+/** A pinned or running operation: it keeps its bench, person and start. */
+export interface FixedPlacement { benchId: string | null; personId: string | null; start: number; end?: number }
+
+/** One step of a job bag's routing. */
+export interface Operation {
+  id: string
+  jobId: string
+  name: string
+  /** Operation kind code, e.g. 'setting'. */
+  kind: string
+  /** Operation ids in the same job; the graph may branch and join. */
+  predecessors: string[]
+  /** Feasible (bench, person) pairs with the duration for that pair. */
+  options: OperationOption[]
+  /** Outside work (casting, hallmarking): no bench, no person, lasts this many workshop working days. */
+  outsideWorkingDays?: number
+  /** Elapsed minutes after finishing that hold nothing but delay successors (pickle, glue cure). */
+  waitAfter?: number
+  /** Running or pinned by the manager. */
+  fixed?: FixedPlacement
+  /** Finished: ignored except as a satisfied predecessor. */
+  done?: boolean
+}
+
+/** A job bag; weight is its priority, due null means no due date. */
+export interface Job { id: string; name: string; release: number; due: number | null; weight: number }
+
+/** Everything the engine needs to plan a workshop. */
+export interface Problem {
+  /** ISO date of minute 0 (informational; used for human-readable day names). */
+  origin: string
+  /** Nothing new may start before this minute. */
+  now: number
+  /** End of the calendars; planning past it is reported as an error. */
+  horizon: number
+  /** The workshop's open days, for counting outside-work working days. */
+  workshopDays: Interval[]
+  benches: Bench[]
+  people: Person[]
+  jobs: Job[]
+  operations: Operation[]
+  /** Last published plan, for stability. */
+  previous?: Record<string, { benchId: string | null; personId: string | null; start: number }>
+}
+
+/** Why an operation starts when it does. */
+export type StartReason = {
+  kind: 'release' | 'predecessor' | 'bench' | 'person' | 'working-time' | 'fixed' | 'now'
+  /** Human-readable, e.g. "waiting for Ada (setting) until Thu 14:00". */
+  detail: string
+  /** The operation (or resource) that holds this one back, if any. */
+  blockerId?: string
+}
+
+export interface PlannedOperation {
+  operationId: string
+  jobId: string
+  benchId: string | null
+  personId: string | null
+  start: number
+  end: number
+  /** The worked stretches; more than one when working time interrupts the work. */
+  segments: Interval[]
+  reason: StartReason
+}
+
+export interface Score {
+  weightedTardiness: number
+  makespan: number
+  /** Previously planned operations now on another bench or with another person. */
+  moves: number
+  feasible: boolean
+  violations: string[]
+}
+
+export interface Plan {
+  operations: PlannedOperation[]
+  jobs: { jobId: string; completion: number; lateness: number; tardiness: number }[]
+  score: Score
+  stats: { iterations: number; elapsedMs: number; firstPlanMs: number }
+}
+
+export type Objective = 'weightedTardiness' | 'makespan' | 'moves'
+
+export interface SolveOptions {
+  seed: number
+  timeLimitMs: number
+  /** Lexicographic order; default ['weightedTardiness', 'makespan', 'moves']. */
+  objective?: Objective[]
+  maxIterations?: number
+}
+
+/** Progress report during a solve. */
+export interface SolveProgress { iteration: number; best: Score; elapsedMs: number }
+
+/** Caller-supplied hooks: progress, cancellation and the clock (milliseconds). */
+export interface SolveHooks {
+  onProgress?(p: SolveProgress): void
+  shouldStop?(): boolean
+  /** Milliseconds; defaults to performance.now. */
+  clock?(): number
+}
+
+/** One broken rule in a plan, with a message the UI can show. */
+export interface Violation { rule: string; operationId?: string; jobId?: string; message: string }
+
+export type SchedulingInputErrorCode =
+  | 'no-option'
+  | 'routing-cycle'
+  | 'unknown-predecessor'
+  | 'foreign-predecessor'
+  | 'unknown-job'
+  | 'unknown-resource'
+  | 'duplicate-id'
+  | 'fixed-outside-working-time'
+  | 'bad-duration'
+  | 'beyond-horizon'
+  | 'bad-calendar'
+
+/** Bad input to the engine: names the job and operation concerned. */
+export class SchedulingInputError extends Error {
+  readonly code: SchedulingInputErrorCode
+  readonly jobId: string | undefined
+  readonly operationId: string | undefined
+  constructor(opts: { code: SchedulingInputErrorCode; message: string; jobId?: string; operationId?: string }) {
+    super(opts.message)
+    this.name = 'SchedulingInputError'
+    this.code = opts.code
+    this.jobId = opts.jobId
+    this.operationId = opts.operationId
+  }
+}

@@ -1,0 +1,183 @@
+// Workshop planning search: due-date-aware dispatching rules for a first plan, then late-acceptance local search along the chains that make jobs late.
+import type { Objective, SolveHooks } from './model.ts'
+import { compareDecoded, decode, type Compiled, type Decoded, Why } from './decode.ts'
+import { createRng } from './random.ts'
+
+export interface GeneralResult { decoded: Decoded; iterations: number; firstPlanMs: number }
+
+/** Remaining work from each operation's start to its job's end, in working minutes (shortest options), plus waits. */
+function tails(c: Compiled): Float64Array {
+  const tail = new Float64Array(c.n)
+  const order = topologicalOrder(c)
+  for (let k = order.length - 1; k >= 0; k--) {
+    const i = order[k]!
+    let own = c.outsideDays[i]! > 0 ? c.outsideDays[i]! * 480 : Math.min(...c.options[i]!.map((o) => o.minutes), Infinity)
+    if (!Number.isFinite(own)) own = 0
+    let after = 0
+    for (const s of c.succs[i]!) after = Math.max(after, tail[s]!)
+    tail[i] = own + c.waitAfter[i]! + after
+  }
+  return tail
+}
+
+/** Kahn order over the routing graph (cycles were rejected by checkProblem). */
+export function topologicalOrder(c: Compiled): number[] {
+  const indeg = c.preds.map((p) => p.length)
+  const out: number[] = []
+  for (let i = 0; i < c.n; i++) if (indeg[i] === 0) out.push(i)
+  for (let h = 0; h < out.length; h++) for (const s of c.succs[out[h]!]!) if (--indeg[s]! === 0) out.push(s)
+  return out
+}
+
+/** Calendar minutes per working minute, from how much of the planning window the people (or benches) are available. */
+function calendarFactor(c: Compiled): number {
+  const p = c.problem
+  const span = Math.max(1, p.horizon - p.now)
+  const pool = p.people.length > 0 ? p.people : p.benches
+  if (pool.length === 0) return 1
+  let avail = 0
+  for (const r of pool) for (const w of r.available) avail += Math.max(0, Math.min(w.end, p.horizon) - Math.max(w.start, p.now))
+  const mean = avail / pool.length
+  return mean > 0 ? Math.min(10, Math.max(1, span / mean)) : 1
+}
+
+/** Priority keys of the dispatching rules tried for the first plan (lower = earlier). */
+function dispatchKeys(c: Compiled): Float64Array[] {
+  const tail = tails(c)
+  const f = calendarFactor(c)
+  const far = c.problem.horizon * 2
+  const dueOf = (i: number): number => c.jobs[c.jobOf[i]!]!.due ?? far
+  const weightOf = (i: number): number => Math.max(1e-6, c.jobs[c.jobOf[i]!]!.weight)
+  const rules: ((i: number) => number)[] = [
+    (i) => dueOf(i) - f * tail[i]!, // minimum slack
+    (i) => dueOf(i) * 1e3 - tail[i]!, // earliest due date, longest remaining work first within a job bag
+    (i) => { const s = dueOf(i) - f * tail[i]! - c.problem.now; return s >= 0 ? s / weightOf(i) : s * weightOf(i) }, // weighted slack
+    (i) => -tail[i]!, // most work remaining (makespan)
+  ]
+  return rules.map((rule) => {
+    const k = new Float64Array(c.n)
+    for (let i = 0; i < c.n; i++) k[i] = rule(i) + i * 1e-9
+    return k
+  })
+}
+
+/** The first-plan rule set and the earliest-due-date baseline a manager would use by hand. */
+export function earliestDueDateKeys(c: Compiled): Float64Array { return dispatchKeys(c)[1]! }
+
+/** Operations on the chain that fixes job j's completion: predecessors and resource blockers traced back from its last operation. */
+function criticalChain(c: Compiled, d: Decoded, j: number, lastOf: Int32Array): number[] {
+  const chain: number[] = []
+  let x = lastOf[j]!
+  const seen = new Set<number>()
+  while (x >= 0 && !seen.has(x)) {
+    seen.add(x)
+    chain.push(x)
+    const w = d.why[x]!
+    x = w === Why.Predecessor || w === Why.Bench || w === Why.Person ? d.blocker[x]! : -1
+  }
+  return chain
+}
+
+/** Constructive first plan and late-acceptance improvement within the time limit. */
+export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number; maxIterations?: number; objective: Objective[] }, hooks: SolveHooks, clock: () => number, t0: number): GeneralResult {
+  const rng = createRng(opts.seed)
+  const obj = opts.objective
+  const n = c.n
+  const greedy = new Int32Array(n).fill(-1)
+  let bestKey = new Float64Array(n), bestChoice = greedy.slice(), best: Decoded | null = null
+  for (const key of dispatchKeys(c)) {
+    const d = decode(c, key, greedy)
+    if (!best || compareDecoded(d, best, obj) < 0) { best = d; bestKey = key }
+  }
+  const firstPlanMs = clock() - t0
+  let iterations = 0
+  if (!best) throw new Error('no dispatching rule produced a plan')
+  hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: firstPlanMs })
+  if (n === 0) return { decoded: best, iterations, firstPlanMs }
+
+  let curKey = bestKey.slice(), curChoice = bestChoice.slice(), cur = best
+  const historyLen = 40
+  const history: Decoded[] = new Array(historyLen).fill(cur)
+  const maxIt = opts.maxIterations ?? Infinity
+  const movable: number[] = []
+  for (let i = 0; i < n; i++) if (!c.fixedAt[i] && c.outsideDays[i]! < 0) movable.push(i)
+  if (movable.length === 0) return { decoded: best, iterations, firstPlanMs }
+  const lastOf = new Int32Array(c.jobs.length)
+  let lastReport = clock()
+
+  while (iterations < maxIt) {
+    if ((iterations & 3) === 0 && (clock() >= opts.deadline || hooks.shouldStop?.())) break
+    iterations++
+    const key = curKey.slice(), choice = curChoice.slice()
+    // Pick the job to help: a tardy one weighted by its weighted tardiness, else the one that ends last.
+    lastOf.fill(-1)
+    for (let i = 0; i < n; i++) { const j = c.jobOf[i]!; if (lastOf[j]! < 0 || cur.end[i]! > cur.end[lastOf[j]!]!) lastOf[j] = i }
+    let target = -1
+    const tardinessFirst = obj[0] === 'weightedTardiness' && cur.weightedTardiness > 0
+    if (tardinessFirst) {
+      let total = 0
+      c.jobs.forEach((job, j) => { if (job.due !== null && cur.completion[j]! > job.due) total += job.weight * (cur.completion[j]! - job.due) })
+      let pick = rng.next() * total
+      c.jobs.forEach((job, j) => {
+        if (target >= 0 || job.due === null || cur.completion[j]! <= job.due) return
+        pick -= job.weight * (cur.completion[j]! - job.due)
+        if (pick <= 0) target = j
+      })
+    }
+    if (target < 0) {
+      let bestEnd = -Infinity, ties = 0
+      c.jobs.forEach((_, j) => {
+        if (lastOf[j]! < 0) return
+        const e = cur.completion[j]!
+        if (e > bestEnd) { bestEnd = e; target = j; ties = 1 } else if (e === bestEnd && rng.int(++ties) === 0) target = j
+      })
+    }
+    const chain = target >= 0 ? criticalChain(c, cur, target, lastOf).filter((x) => !c.fixedAt[x] && c.outsideDays[x]! < 0) : []
+    const r = rng.next()
+    if (chain.length > 0 && r < 0.55) {
+      // Jump ahead of the operation that holds a chain member back on its bench or person.
+      const blocked = chain.filter((x) => (cur.why[x] === Why.Bench || cur.why[x] === Why.Person) && cur.blocker[x]! >= 0)
+      const x = blocked.length > 0 ? blocked[rng.int(blocked.length)]! : chain[rng.int(chain.length)]!
+      const b = cur.blocker[x]!
+      if (b >= 0 && blocked.length > 0) key[x] = key[b]! - 1e-6 - rng.next() * 1e-3
+      else key[x] = key[x]! - Math.abs(key[x]!) * 0.05 - 1
+    } else if (chain.length > 0 && r < 0.8) {
+      // Change the bench/person choice of a chain member (or hand it back to the earliest-finish rule).
+      const withChoice = chain.filter((x) => c.options[x]!.length > 1)
+      if (withChoice.length > 0) {
+        const x = withChoice[rng.int(withChoice.length)]!
+        const k = rng.int(c.options[x]!.length + 1) - 1
+        choice[x] = k
+      } else {
+        const x = chain[rng.int(chain.length)]!
+        key[x] = key[x]! - Math.abs(key[x]!) * 0.05 - 1
+      }
+    } else if (r < 0.92 && target >= 0) {
+      // Move the whole job bag forward in priority.
+      const shift = (rng.next() * 0.2 + 0.02)
+      let span = 1
+      for (let i = 0; i < n; i++) span = Math.max(span, Math.abs(key[i]!))
+      for (let i = 0; i < n; i++) if (c.jobOf[i] === target) key[i] = key[i]! - shift * span
+    } else {
+      // Diversify: swap the priorities of two operations.
+      const a = movable[rng.int(movable.length)]!, b = movable[rng.int(movable.length)]!
+      const t = key[a]!; key[a] = key[b]!; key[b] = t
+    }
+    const cand = decode(c, key, choice)
+    const slot = iterations % historyLen
+    if (compareDecoded(cand, cur, obj) <= 0 || compareDecoded(cand, history[slot]!, obj) <= 0) {
+      cur = cand; curKey = key; curChoice = choice
+      if (compareDecoded(cand, best, obj) < 0) {
+        best = cand; bestKey = key; bestChoice = choice
+        hooks.onProgress?.({ iteration: iterations, best: scoreOf(best), elapsedMs: clock() - t0 })
+        lastReport = clock()
+      }
+    }
+    if (compareDecoded(cur, history[slot]!, obj) < 0) history[slot] = cur
+    if (clock() - lastReport > 500) { lastReport = clock(); hooks.onProgress?.({ iteration: iterations, best: scoreOf(best), elapsedMs: lastReport - t0 }) }
+  }
+  void bestKey; void bestChoice
+  return { decoded: best, iterations, firstPlanMs }
+}
+
+const scoreOf = (d: Decoded) => ({ weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, feasible: d.overflow < 0, violations: [] as string[] })

@@ -1,0 +1,82 @@
+// Orders and their job bags: numbering, routings copied from templates into operations, and the order list.
+import { and, asc, count, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
+import type { ListQuery } from '../../shared/schemas/common'
+import type { OrderInput, OrderUpdate } from '../../shared/schemas/order'
+import { templateEstimate } from '../../shared/domain/estimate'
+import type { Db, Trx } from '../db/client'
+import { customers, jobBags, operations, orders, templateSteps, routingTemplates } from '../db/schema/index'
+import { invalid, notFound } from '../errors/app-error'
+import type { Actor, Deps } from '../lib/route'
+import { audit } from './audit'
+import { requireOwned, updateVersioned } from './versioned'
+
+const bagCount = sql<number>`(select count(*)::int from ${jobBags} where ${jobBags.orderId} = ${orders.id})`
+
+export async function listOrders(db: Db, workshopId: number, q: ListQuery & { status?: string }) {
+  const where = and(
+    eq(orders.workshopId, workshopId),
+    q.status ? eq(orders.status, q.status) : undefined,
+    q.q ? or(ilike(orders.number, `%${q.q}%`), ilike(orders.title, `%${q.q}%`), ilike(customers.name, `%${q.q}%`)) : undefined,
+  )
+  const sortCol = q.sort === 'number' ? orders.number : q.sort === 'priority' ? orders.priority : q.sort === 'customer' ? customers.name : orders.dueDate
+  const [total] = await db.select({ n: count() }).from(orders).innerJoin(customers, eq(customers.id, orders.customerId)).where(where)
+  const items = await db
+    .select({ id: orders.id, number: orders.number, customerId: orders.customerId, customerName: customers.name, title: orders.title, dueDate: orders.dueDate, promisedDate: orders.promisedDate, priority: orders.priority, status: orders.status, priceQuoted: orders.priceQuoted, jobBags: bagCount, version: orders.version })
+    .from(orders).innerJoin(customers, eq(customers.id, orders.customerId)).where(where)
+    .orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(orders.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
+  return { items, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
+}
+
+export async function getOrder(db: Db, workshopId: number, id: number) {
+  const o = await requireOwned(db, orders, 'Order', id, workshopId)
+  const [c] = await db.select({ name: customers.name, reference: customers.reference }).from(customers).where(eq(customers.id, o.customerId))
+  const bags = await db.select().from(jobBags).where(eq(jobBags.orderId, id)).orderBy(asc(jobBags.number))
+  const ops = bags.length ? await db.select().from(operations).where(inArray(operations.jobBagId, bags.map((b) => b.id))).orderBy(asc(operations.seq)) : []
+  return { ...o, customerName: c?.name ?? '', customerReference: c?.reference ?? '', jobBags: bags.map((b) => ({ ...b, operations: ops.filter((op) => op.jobBagId === b.id) })) }
+}
+
+/** Adds one job bag with the template's routing as operations (inside the caller's transaction). */
+export async function addJobBag(tx: Trx, workshopId: number, orderId: number, orderNumber: string, index: number, piece: OrderInput['pieces'][number]) {
+  const [t] = await tx.select().from(routingTemplates).where(and(eq(routingTemplates.id, piece.templateId), eq(routingTemplates.workshopId, workshopId)))
+  if (!t) throw invalid(`pieces.${index}.templateId`, 'is not a routing template of this workshop')
+  const steps = await tx.select().from(templateSteps).where(eq(templateSteps.templateId, t.id)).orderBy(asc(templateSteps.seq))
+  const [bag] = await tx.insert(jobBags).values({ workshopId, orderId, number: `${orderNumber}-${index + 1}`, piece: piece.piece, templateId: t.id, params: piece.params }).returning()
+  await tx.insert(operations).values(
+    steps.map((s) => ({
+      jobBagId: bag!.id, seq: s.seq, key: s.key, kindId: s.kindId, name: s.name, requiredLevel: s.requiredLevel,
+      estimateMinutes: s.leadDays > 0 ? 0 : templateEstimate(s, piece.params), estimateSource: 'template',
+      waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after, status: s.after.length ? 'pending' : 'ready',
+    })),
+  )
+  return bag!
+}
+
+export async function createOrder({ db, realtime }: Deps, actor: Actor, input: OrderInput) {
+  const id = await db.transaction(async (tx) => {
+    const [c] = await tx.select({ id: customers.id }).from(customers).where(and(eq(customers.id, input.customerId), eq(customers.workshopId, actor.workshopId)))
+    if (!c) throw invalid('customerId', 'is not a customer of this workshop')
+    await tx.execute(sql`select pg_advisory_xact_lock(1002, ${actor.workshopId})`)
+    const year = input.dueDate.slice(2, 4)
+    const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(orders).where(eq(orders.workshopId, actor.workshopId))
+    const number = `MG${year}-${String(n + 1).padStart(4, '0')}`
+    const { pieces, ...values } = input
+    const [o] = await tx.insert(orders).values({ workshopId: actor.workshopId, number, ...values }).returning()
+    for (const [i, p] of pieces.entries()) await addJobBag(tx, actor.workshopId, o!.id, number, i, p)
+    await audit(tx, actor, 'create', 'order', o!.id, { number, pieces: pieces.length })
+    return o!.id
+  })
+  realtime.emit(actor.workshopId, 'order:created', { id })
+  return getOrder(db, actor.workshopId, id)
+}
+
+export async function updateOrder({ db, realtime }: Deps, actor: Actor, id: number, input: OrderUpdate) {
+  const { version, ...values } = input
+  const o = await db.transaction(async (tx) => {
+    const o = await updateVersioned(tx, orders, 'Order', { id, workshopId: actor.workshopId, version, values: { ...values, updatedAt: new Date() } })
+    await audit(tx, actor, 'update', 'order', id, values)
+    return o
+  })
+  realtime.emit(actor.workshopId, 'order:updated', { id, version: o.version })
+  return getOrder(db, actor.workshopId, id)
+}
+

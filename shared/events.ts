@@ -1,0 +1,17 @@
+// Typed Socket.IO events (domain:pastTense), sent to the room of one workshop. Payloads stay small: ids and versions.
+export interface ChangePayload { id: number; version?: number; seq: number }
+
+export interface ServerToClientEvents {
+  'order:created': (p: ChangePayload) => void
+  'order:updated': (p: ChangePayload) => void
+  'operation:changed': (p: ChangePayload & { status?: string }) => void
+  'plan:drafted': (p: ChangePayload) => void
+  'plan:published': (p: ChangePayload) => void
+  'plan:discarded': (p: ChangePayload) => void
+  'plan:progress': (p: { runId: string; iteration: number; weightedTardiness: number; makespan: number; elapsedMs: number }) => void
+  'masterdata:changed': (p: ChangePayload & { entity: string }) => void
+}
+export interface ClientToServerEvents {
+  'changes:since': (seq: number, ack: (events: { seq: number; event: string; payload: unknown }[]) => void) => void
+}
+export type EventName = keyof ServerToClientEvents

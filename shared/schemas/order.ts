@@ -1,0 +1,42 @@
+// Orders and the pieces (job bags) they are made of.
+import { z } from 'zod'
+import { ORDER_STATUSES } from '../domain/status'
+import { id, isoDate, name, notes, version } from './common'
+
+export const METALS = ['silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950', 'brass', 'copper', 'mixed'] as const
+export const pieceParams = z.object({
+  metal: z.enum(METALS, { error: 'must be one of the listed metals' }).default('silver-925'),
+  stoneCount: z.number().int().min(0, 'must not be negative').max(2000, 'must be at most 2000').default(0),
+  stoneSizeMm: z.number().min(0, 'must not be negative').max(30, 'must be at most 30 mm').default(0),
+  sizeMm: z.number().min(0).max(300, 'must be at most 300 mm').default(0),
+  finish: z.string().trim().max(60).default('polished'),
+  quantity: z.number().int().min(1, 'must be at least 1').max(500).default(1),
+})
+export const pieceInput = z.object({ templateId: id, piece: name, params: pieceParams.default(pieceParams.parse({})) })
+export const orderInput = z.object({
+  customerId: id,
+  title: name,
+  dueDate: isoDate,
+  promisedDate: isoDate.nullable().default(null),
+  priority: z.number({ error: 'must be 1 to 5' }).int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').default(3),
+  priceQuoted: z.number().min(0, 'must not be negative').max(10_000_000).default(0),
+  notes,
+  pieces: z.array(pieceInput).max(50, 'has too many pieces').default([]),
+})
+export const orderUpdate = z.object({
+  title: name.optional(),
+  dueDate: isoDate.optional(),
+  promisedDate: isoDate.nullable().optional(),
+  priority: z.number().int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').optional(),
+  status: z.enum(ORDER_STATUSES).optional(),
+  priceQuoted: z.number().min(0).max(10_000_000).optional(),
+  notes: z.string().max(2000).optional(),
+  version,
+})
+export type PieceParams = z.infer<typeof pieceParams>
+export type OrderInput = z.infer<typeof orderInput>
+export type OrderUpdate = z.infer<typeof orderUpdate>
+export interface OrderSummary {
+  id: number; number: string; customerId: number; customerName: string; title: string; dueDate: string; promisedDate: string | null
+  priority: number; status: string; priceQuoted: number; jobBags: number; version: number
+}

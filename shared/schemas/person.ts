@@ -1,0 +1,33 @@
+// People at the benches: skills per operation kind (level 1–3, speed), weekly pattern and leave.
+import { z } from 'zod'
+import { id, isoDate, name, version, weekPattern } from './common'
+
+export const skillInput = z.object({
+  kindId: id,
+  level: z.number({ error: 'must be 1, 2 or 3' }).int().min(1, 'must be 1, 2 or 3').max(3, 'must be 1, 2 or 3'),
+  /** Speed factor: planned minutes = estimate ÷ speed (a trainee at 0.6 takes longer). */
+  speed: z.number({ error: 'must be a number' }).min(0.3, 'must be between 0.3 and 3').max(3, 'must be between 0.3 and 3').default(1),
+})
+export const personInput = z.object({
+  name,
+  userId: id.nullable().default(null),
+  /** null: follows the workshop's hours. */
+  weekPattern: weekPattern.nullable().default(null),
+  hourlyRate: z.number().min(0, 'must not be negative').max(10000).default(0),
+  active: z.boolean().default(true),
+  skills: z
+    .array(skillInput)
+    .max(50)
+    .default([])
+    .refine((s) => new Set(s.map((x) => x.kindId)).size === s.length, 'each operation kind may appear once'),
+})
+export const personUpdate = personInput.partial().extend({ version })
+export const leaveInput = z
+  .object({ startsOn: isoDate, endsOn: isoDate, reason: z.string().trim().max(200).default('leave') })
+  .refine((l) => l.endsOn >= l.startsOn, { message: 'must not be before the first day', path: ['endsOn'] })
+export type PersonInput = z.infer<typeof personInput>
+export type PersonUpdate = z.infer<typeof personUpdate>
+export type SkillInput = z.infer<typeof skillInput>
+export type LeaveInput = z.infer<typeof leaveInput>
+export interface Leave { id: number; personId: number; startsOn: string; endsOn: string; reason: string }
+export interface Person extends PersonInput { id: number; version: number; leave: Leave[]; userEmail: string | null }

@@ -1,0 +1,22 @@
+// Sign-in and the signed-in user as the client sees them.
+import { z } from 'zod'
+import { ROLES } from '../domain/roles'
+
+export const signIn = z.object({
+  email: z.string({ error: 'is required' }).trim().toLowerCase().email('must be an e-mail address').max(200),
+  password: z.string({ error: 'is required' }).min(1, 'is required').max(200),
+})
+export type SignIn = z.infer<typeof signIn>
+
+export const sessionUser = z.object({
+  id: z.number(),
+  email: z.string(),
+  name: z.string(),
+  role: z.enum(ROLES),
+  workshopId: z.number(),
+  workshopName: z.string(),
+  personId: z.number().nullable(),
+})
+export type SessionUser = z.infer<typeof sessionUser>
+export const sessionInfo = z.object({ user: sessionUser.nullable(), csrfToken: z.string() })
+export type SessionInfo = z.infer<typeof sessionInfo>

@@ -1,0 +1,47 @@
+// Routing templates: the usual steps of a kind of piece, with estimate inputs and a step graph.
+import { z } from 'zod'
+import { code, id, name, notes, version } from './common'
+
+export const stepInput = z.object({
+  key: z.string().trim().min(1, 'is required').max(20).regex(/^[a-z0-9-]+$/, 'use lower-case letters, digits and dashes'),
+  kindId: id,
+  name,
+  /** Fixed minutes, plus per-stone minutes × stone count (setting). */
+  baseMinutes: z.number({ error: 'must be a number' }).min(0, 'must not be negative').max(10000, 'must be at most 10000'),
+  perStoneMinutes: z.number().min(0, 'must not be negative').max(240).default(0),
+  requiredLevel: z.number().int().min(1, 'must be 1, 2 or 3').max(3, 'must be 1, 2 or 3').default(1),
+  waitAfterMinutes: z.number().int().min(0, 'must not be negative').max(10080, 'must be at most a week').default(0),
+  /** Outside work (casting, hallmarking): working days away, no bench. */
+  leadDays: z.number().int().min(0, 'must not be negative').max(60, 'must be at most 60').default(0),
+  after: z.array(z.string()).max(20).default([]),
+})
+export const templateInput = z
+  .object({ code, name, description: notes, steps: z.array(stepInput).min(1, 'needs at least one step').max(40, 'has too many steps') })
+  .superRefine((t, ctx) => {
+    const keys = new Set<string>()
+    t.steps.forEach((s, i) => {
+      if (keys.has(s.key)) ctx.addIssue({ code: 'custom', path: ['steps', i, 'key'], message: `step key "${s.key}" is used twice` })
+      keys.add(s.key)
+    })
+    t.steps.forEach((s, i) =>
+      s.after.forEach((a) => {
+        if (!keys.has(a)) ctx.addIssue({ code: 'custom', path: ['steps', i, 'after'], message: `follows unknown step "${a}"` })
+        if (a === s.key) ctx.addIssue({ code: 'custom', path: ['steps', i, 'after'], message: 'a step cannot follow itself' })
+      }),
+    )
+    // Cycle check (Kahn): the steps must form a graph that can be worked through.
+    const indeg = new Map(t.steps.map((s) => [s.key, s.after.filter((a) => keys.has(a)).length]))
+    const queue = [...indeg].filter(([, d]) => d === 0).map(([k]) => k)
+    let seen = 0
+    while (queue.length) {
+      const k = queue.shift()!
+      seen++
+      for (const s of t.steps) if (s.after.includes(k)) { indeg.set(s.key, indeg.get(s.key)! - 1); if (indeg.get(s.key) === 0) queue.push(s.key) }
+    }
+    if (seen < t.steps.length) ctx.addIssue({ code: 'custom', path: ['steps'], message: 'the steps follow each other in a circle' })
+  })
+export const templateUpdate = z.object({ version }).and(templateInput)
+export type StepInput = z.infer<typeof stepInput>
+export type TemplateInput = z.infer<typeof templateInput>
+export interface TemplateStep extends StepInput { id: number }
+export interface Template { id: number; code: string; name: string; description: string; steps: TemplateStep[]; version: number }

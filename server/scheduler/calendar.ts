@@ -42,7 +42,9 @@ export function walkWorkingTime(windows: Interval[], t: number, minutes: number)
     if (!w) return null
     const s = Math.max(t, w.start)
     const e = Math.min(w.end, s + left)
-    segs.push({ start: s, end: e })
+    const last = segs[segs.length - 1]
+    if (last && last.end === s) last.end = e // touching windows are one stretch of work
+    else segs.push({ start: s, end: e })
     left -= e - s
     t = e
     i++

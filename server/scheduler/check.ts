@@ -1,0 +1,162 @@
+// Input checks run before planning: each bad input throws a SchedulingInputError naming the job and operation.
+import type { Interval, Operation, Problem } from './model.ts'
+import { SchedulingInputError } from './model.ts'
+import { intersect, outsideWorkEnd, walkWorkingTime } from './calendar.ts'
+
+/** Longest single operation we accept: 60 working days of 8 hours. Anything longer is a data-entry mistake. */
+export const MAX_OPERATION_MINUTES = 60 * 8 * 60
+/** Longest outside work we accept, in working days. */
+export const MAX_OUTSIDE_DAYS = 250
+
+const label = (op: Operation): string => `operation "${op.name}" (${op.id})`
+
+/** Throws SchedulingInputError for the first problem found in the input; returns quietly when the input can be planned. */
+export function checkProblem(problem: Problem): void {
+  const jobs = new Map(problem.jobs.map((j) => [j.id, j]))
+  const benches = new Map(problem.benches.map((b) => [b.id, b]))
+  const people = new Map(problem.people.map((p) => [p.id, p]))
+  const ops = new Map<string, Operation>()
+  const jobName = (id: string): string => jobs.get(id)?.name ?? id
+
+  const unique = (ids: string[], what: string): void => {
+    const seen = new Set<string>()
+    for (const id of ids) {
+      if (seen.has(id)) throw new SchedulingInputError({ code: 'duplicate-id', message: `Two ${what} share the id "${id}"` })
+      seen.add(id)
+    }
+  }
+  unique(problem.jobs.map((j) => j.id), 'jobs')
+  unique(problem.benches.map((b) => b.id), 'benches')
+  unique(problem.people.map((p) => p.id), 'people')
+  unique(problem.operations.map((o) => o.id), 'operations')
+  if (!Number.isFinite(problem.now) || !Number.isFinite(problem.horizon) || problem.horizon <= problem.now) {
+    throw new SchedulingInputError({ code: 'bad-calendar', message: `The horizon (${problem.horizon}) must be a number after now (${problem.now})` })
+  }
+  const sortedDisjoint = (list: Interval[], what: string): void => {
+    for (let i = 0; i < list.length; i++) {
+      const w = list[i]!
+      if (!Number.isFinite(w.start) || !Number.isFinite(w.end) || w.end <= w.start || (i > 0 && w.start < list[i - 1]!.end)) {
+        throw new SchedulingInputError({ code: 'bad-calendar', message: `The calendar of ${what} must be sorted, disjoint, non-empty intervals (problem at entry ${i})` })
+      }
+    }
+  }
+  for (const b of problem.benches) sortedDisjoint(b.available, `bench ${b.name}`)
+  for (const p of problem.people) sortedDisjoint(p.available, `${p.name}`)
+  sortedDisjoint(problem.workshopDays, 'the workshop days')
+
+  for (const op of problem.operations) {
+    ops.set(op.id, op)
+    const job = jobs.get(op.jobId)
+    if (!job) throw new SchedulingInputError({ code: 'unknown-job', operationId: op.id, jobId: op.jobId, message: `${label(op)} belongs to unknown job ${op.jobId}` })
+  }
+  for (const op of problem.operations) {
+    const where = { jobId: op.jobId, operationId: op.id }
+    const jn = jobName(op.jobId)
+    for (const p of op.predecessors) {
+      const pred = ops.get(p)
+      if (!pred) throw new SchedulingInputError({ code: 'unknown-predecessor', ...where, message: `Job ${jn}: ${label(op)} waits for unknown operation ${p}` })
+      if (pred.jobId !== op.jobId) throw new SchedulingInputError({ code: 'foreign-predecessor', ...where, message: `Job ${jn}: ${label(op)} waits for ${label(pred)} of another job (${jobName(pred.jobId)}); routings stay within one job bag` })
+    }
+    if (op.done) continue
+    const outside = op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0
+    if (op.outsideWorkingDays !== undefined && (!Number.isInteger(op.outsideWorkingDays) || op.outsideWorkingDays < 0 || op.outsideWorkingDays > MAX_OUTSIDE_DAYS)) {
+      throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: ${label(op)} has outside work of ${op.outsideWorkingDays} working days; expected a whole number from 0 to ${MAX_OUTSIDE_DAYS}` })
+    }
+    if (op.waitAfter !== undefined && (!Number.isFinite(op.waitAfter) || op.waitAfter < 0 || op.waitAfter > MAX_OPERATION_MINUTES)) {
+      throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: ${label(op)} has a wait-after of ${op.waitAfter} minutes` })
+    }
+    if (!outside && op.options.length === 0) {
+      throw new SchedulingInputError({ code: 'no-option', ...where, message: `Job ${jn}: no bench and person can do ${label(op)} (kind ${op.kind}); add the skill to someone or a suitable bench` })
+    }
+    for (const o of op.options) {
+      if (o.benchId !== null && !benches.has(o.benchId)) throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: ${label(op)} names unknown bench ${o.benchId}` })
+      if (o.personId !== null && !people.has(o.personId)) throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: ${label(op)} names unknown person ${o.personId}` })
+      if (!outside && (!Number.isFinite(o.minutes) || o.minutes <= 0 || o.minutes > MAX_OPERATION_MINUTES)) {
+        throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: ${label(op)} has a duration of ${o.minutes} minutes; expected more than 0 and at most ${MAX_OPERATION_MINUTES}` })
+      }
+    }
+    if (op.fixed) {
+      const f = op.fixed
+      if (!Number.isFinite(f.start) || (f.end !== undefined && !(f.end >= f.start))) {
+        throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: pinned ${label(op)} has start ${f.start} and end ${f.end}` })
+      }
+      const inside = (list: Interval[]): boolean => list.some((w) => w.start <= f.start && f.start < w.end)
+      if (f.benchId !== null) {
+        const b = benches.get(f.benchId)
+        if (!b) throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: pinned ${label(op)} names unknown bench ${f.benchId}` })
+        if (!outside && !inside(b.available)) throw new SchedulingInputError({ code: 'fixed-outside-working-time', ...where, message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}, outside the working time of bench ${b.name}` })
+      }
+      if (f.personId !== null) {
+        const p = people.get(f.personId)
+        if (!p) throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: pinned ${label(op)} names unknown person ${f.personId}` })
+        if (!outside && !inside(p.available)) throw new SchedulingInputError({ code: 'fixed-outside-working-time', ...where, message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}, outside the working time of ${p.name}` })
+      }
+    }
+  }
+  for (const job of problem.jobs) {
+    if (!Number.isFinite(job.release) || (job.due !== null && !Number.isFinite(job.due)) || !Number.isFinite(job.weight) || job.weight < 0) {
+      throw new SchedulingInputError({ code: 'bad-duration', jobId: job.id, message: `Job ${job.name}: release, due date and weight must be numbers (weight not negative)` })
+    }
+  }
+
+  // Cycles in a routing, by depth-first search; the message lists the operations on the cycle.
+  const state = new Map<string, 1 | 2>()
+  const stack: string[] = []
+  const visit = (id: string): void => {
+    state.set(id, 1)
+    stack.push(id)
+    for (const p of ops.get(id)!.predecessors) {
+      const s = state.get(p)
+      if (s === 1) {
+        const cycle = stack.slice(stack.indexOf(p)).map((x) => ops.get(x)!)
+        const op = ops.get(id)!
+        throw new SchedulingInputError({ code: 'routing-cycle', jobId: op.jobId, operationId: id, message: `Job ${jobName(op.jobId)}: the routing has a cycle through ${cycle.map((o) => `"${o.name}" (${o.id})`).join(' → ')}` })
+      }
+      if (s === undefined) visit(p)
+    }
+    stack.pop()
+    state.set(id, 2)
+  }
+  for (const op of problem.operations) if (!state.has(op.id)) visit(op.id)
+
+  // Work that cannot fit before the horizon even with the whole workshop to itself.
+  const finish = new Map<string, number>()
+  const order: Operation[] = []
+  {
+    const indeg = new Map(problem.operations.map((o) => [o.id, o.predecessors.length]))
+    const succ = new Map<string, string[]>()
+    for (const o of problem.operations) for (const p of o.predecessors) (succ.get(p) ?? succ.set(p, []).get(p)!).push(o.id)
+    const queue = problem.operations.filter((o) => o.predecessors.length === 0)
+    for (let h = 0; h < queue.length; h++) {
+      const o = queue[h]!
+      order.push(o)
+      for (const s of succ.get(o.id) ?? []) { const d = indeg.get(s)! - 1; indeg.set(s, d); if (d === 0) queue.push(ops.get(s)!) }
+    }
+  }
+  const windowsOf = (benchId: string | null, personId: string | null): Interval[] => {
+    const b = benchId !== null ? benches.get(benchId)!.available : null
+    const p = personId !== null ? people.get(personId)!.available : null
+    return b && p ? intersect(b, p) : b ?? p ?? [{ start: -1e15, end: 1e15 }]
+  }
+  for (const op of order) {
+    if (op.done) { finish.set(op.id, -Infinity); continue }
+    const job = jobs.get(op.jobId)!
+    let est = Math.max(problem.now, job.release)
+    for (const p of op.predecessors) est = Math.max(est, finish.get(p)! + (ops.get(p)!.waitAfter ?? 0))
+    let end: number | null
+    if (op.fixed) end = op.fixed.end ?? op.fixed.start + (op.options[0]?.minutes ?? 0)
+    else if (op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0) end = outsideWorkEnd(problem.workshopDays, est, op.outsideWorkingDays)
+    else {
+      end = null
+      for (const o of op.options) {
+        const segs = walkWorkingTime(windowsOf(o.benchId, o.personId), est, o.minutes)
+        const e = segs ? segs[segs.length - 1]!.end : null
+        if (e !== null && (end === null || e < end)) end = e
+      }
+    }
+    if (end === null || end > problem.horizon) {
+      throw new SchedulingInputError({ code: 'beyond-horizon', jobId: op.jobId, operationId: op.id, message: `Job ${job.name}: ${label(op)} cannot finish before the end of the calendars (minute ${problem.horizon}) even with its bench and person free; extend the horizon` })
+    }
+    finish.set(op.id, end)
+  }
+}

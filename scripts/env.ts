@@ -13,7 +13,7 @@ export const app = {
   port: Number(process.env.PORT ?? 8080),
 }
 export const test = {
-  pgDir: join(dataRoot, 'pg-test'),
+  pgDir: resolve(process.env.TEST_PG_DIR ?? join(dataRoot, 'pg-test')),
   pgPort: Number(process.env.TEST_PG_PORT ?? 54339),
   dbName: 'millgrain_template',
 }

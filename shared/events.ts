@@ -5,9 +5,12 @@ export interface ServerToClientEvents {
   'order:created': (p: ChangePayload) => void
   'order:updated': (p: ChangePayload) => void
   'operation:changed': (p: ChangePayload & { status?: string }) => void
+  'jobBag:changed': (p: ChangePayload & { status?: string }) => void
   'plan:drafted': (p: ChangePayload) => void
   'plan:published': (p: ChangePayload) => void
   'plan:discarded': (p: ChangePayload) => void
+  /** A bar moved or pinned by hand on the live plan. */
+  'plan:changed': (p: ChangePayload & { operationId: number }) => void
   'plan:progress': (p: { runId: string; iteration: number; weightedTardiness: number; makespan: number; elapsedMs: number }) => void
   'masterdata:changed': (p: ChangePayload & { entity: string }) => void
 }

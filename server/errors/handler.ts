@@ -21,6 +21,13 @@ function isDatabaseDown(err: unknown): boolean {
   return e?.cause ? isDatabaseDown(e.cause) : false
 }
 
+/** PostgreSQL class 22 (data exception: out of range, malformed, NUL in text…), also when Drizzle wraps it in `cause`: user input, not a server fault. */
+function isDataException(err: unknown): boolean {
+  const e = err as { code?: unknown; cause?: unknown }
+  if (typeof e?.code === 'string' && /^22[0-9A-Z]{3}$/.test(e.code)) return true
+  return e?.cause ? isDataException(e.cause) : false
+}
+
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   const requestId = (req as { id?: string }).id
   let status = 500
@@ -45,7 +52,7 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     status = 503
     body = { error: 'The database is not reachable just now; nothing was saved. Try again in a moment.', code: 'unavailable' }
     res.setHeader('Retry-After', '5')
-  } else if (err?.code === '22P02' || err?.code === '22003' || err?.code === '22007' || err?.code === '22008') {
+  } else if (isDataException(err)) {
     status = 400
     body = { error: 'A value is out of range or malformed', code: 'validation', fields: { _: 'is out of range or malformed' } }
   } else {

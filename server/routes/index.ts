@@ -2,6 +2,7 @@
 import type { RouteSpec } from '../lib/route'
 import { masterDataRoutes } from './masterdata'
 import { orderRoutes } from './orders'
+import { planRoutes } from './plans'
 import { sessionRoutes } from './session'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes] as RouteSpec[]

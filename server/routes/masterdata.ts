@@ -17,24 +17,41 @@ import * as people from '../services/people'
 import * as templates from '../services/templates'
 import * as users from '../services/users'
 import { childParam, idParam } from './params'
+import { z, type ZodType } from 'zod'
 
 const OWNER: Role[] = ['owner']
 const FRONT: Role[] = ['owner', 'manager', 'sales']
 
+/**
+ * Partial changes keep only the fields the client sent: zod 4 still fills `.default()` values inside `.partial()`,
+ * which would silently reset capacity, skills, linked user, e-mail… on every PATCH.
+ */
+function sentOnly<T extends Record<string, unknown>>(schema: ZodType<T>): ZodType<T> {
+  return z.unknown().transform((raw, ctx) => {
+    const r = schema.safeParse(raw)
+    if (!r.success) {
+      for (const issue of r.error.issues) ctx.addIssue({ ...issue } as Parameters<typeof ctx.addIssue>[0])
+      return z.NEVER
+    }
+    const sent = raw !== null && typeof raw === 'object' ? (raw as Record<string, unknown>) : {}
+    return Object.fromEntries(Object.entries(r.data).filter(([k]) => sent[k] !== undefined)) as T
+  }) as unknown as ZodType<T>
+}
+
 export const masterDataRoutes = [
   route({ method: 'get', path: '/operation-kinds', roles: EVERYONE, summary: 'Operation kinds', handler: ({ deps, actor }) => kinds.listKinds(deps.db, actor.workshopId) }),
   route({ method: 'post', path: '/operation-kinds', roles: STAFF, status: 201, summary: 'Add an operation kind', body: operationKindInput, handler: ({ deps, actor, body }) => kinds.createKind(deps, actor, body) }),
-  route({ method: 'patch', path: '/operation-kinds/:id', roles: STAFF, summary: 'Change an operation kind', params: idParam, body: operationKindUpdate, handler: ({ deps, actor, params, body }) => kinds.updateKind(deps, actor, params.id, body) }),
+  route({ method: 'patch', path: '/operation-kinds/:id', roles: STAFF, summary: 'Change an operation kind', params: idParam, body: sentOnly(operationKindUpdate), handler: ({ deps, actor, params, body }) => kinds.updateKind(deps, actor, params.id, body) }),
 
   route({ method: 'get', path: '/benches', roles: EVERYONE, summary: 'Benches with capabilities and downtime', handler: ({ deps, actor }) => benches.listBenches(deps.db, actor.workshopId) }),
   route({ method: 'post', path: '/benches', roles: STAFF, status: 201, summary: 'Add a bench', body: benchInput, handler: ({ deps, actor, body }) => benches.createBench(deps, actor, body) }),
-  route({ method: 'patch', path: '/benches/:id', roles: STAFF, summary: 'Change a bench', params: idParam, body: benchUpdate, handler: ({ deps, actor, params, body }) => benches.updateBench(deps, actor, params.id, body) }),
+  route({ method: 'patch', path: '/benches/:id', roles: STAFF, summary: 'Change a bench', params: idParam, body: sentOnly(benchUpdate), handler: ({ deps, actor, params, body }) => benches.updateBench(deps, actor, params.id, body) }),
   route({ method: 'post', path: '/benches/:id/downtime', roles: STAFF, status: 201, summary: 'Add bench downtime', params: idParam, body: downtimeInput, handler: ({ deps, actor, params, body }) => benches.addDowntime(deps, actor, params.id, body) }),
   route({ method: 'delete', path: '/benches/:id/downtime/:childId', roles: STAFF, summary: 'Remove bench downtime', params: childParam, handler: ({ deps, actor, params }) => benches.removeDowntime(deps, actor, params.id, params.childId) }),
 
   route({ method: 'get', path: '/people', roles: EVERYONE, summary: 'People with skills and leave', handler: ({ deps, actor }) => people.listPeople(deps.db, actor.workshopId) }),
   route({ method: 'post', path: '/people', roles: STAFF, status: 201, summary: 'Add a person', body: personInput, handler: ({ deps, actor, body }) => people.createPerson(deps, actor, body) }),
-  route({ method: 'patch', path: '/people/:id', roles: STAFF, summary: 'Change a person and their skills', params: idParam, body: personUpdate, handler: ({ deps, actor, params, body }) => people.updatePerson(deps, actor, params.id, body) }),
+  route({ method: 'patch', path: '/people/:id', roles: STAFF, summary: 'Change a person and their skills', params: idParam, body: sentOnly(personUpdate), handler: ({ deps, actor, params, body }) => people.updatePerson(deps, actor, params.id, body) }),
   route({ method: 'post', path: '/people/:id/leave', roles: STAFF, status: 201, summary: 'Add leave', params: idParam, body: leaveInput, handler: ({ deps, actor, params, body }) => people.addLeave(deps, actor, params.id, body) }),
   route({ method: 'delete', path: '/people/:id/leave/:childId', roles: STAFF, summary: 'Remove leave', params: childParam, handler: ({ deps, actor, params }) => people.removeLeave(deps, actor, params.id, params.childId) }),
 
@@ -52,7 +69,7 @@ export const masterDataRoutes = [
   route({ method: 'get', path: '/customers', roles: FRONT, summary: 'Customers (search, sort, pages)', query: listQuery, handler: ({ deps, actor, query }) => customers.listCustomers(deps.db, actor.workshopId, query) }),
   route({ method: 'get', path: '/customers/:id', roles: FRONT, summary: 'One customer', params: idParam, handler: ({ deps, actor, params }) => customers.getCustomer(deps.db, actor.workshopId, params.id) }),
   route({ method: 'post', path: '/customers', roles: FRONT, status: 201, summary: 'Add a customer', body: customerInput, handler: ({ deps, actor, body }) => customers.createCustomer(deps, actor, body) }),
-  route({ method: 'patch', path: '/customers/:id', roles: FRONT, summary: 'Change a customer', params: idParam, body: customerUpdate, handler: ({ deps, actor, params, body }) => customers.updateCustomer(deps, actor, params.id, body) }),
+  route({ method: 'patch', path: '/customers/:id', roles: FRONT, summary: 'Change a customer', params: idParam, body: sentOnly(customerUpdate), handler: ({ deps, actor, params, body }) => customers.updateCustomer(deps, actor, params.id, body) }),
 
   route({ method: 'get', path: '/users', roles: OWNER, summary: 'Users (owner)', handler: ({ deps, actor }) => users.listUsers(deps.db, actor.workshopId) }),
   route({ method: 'post', path: '/users', roles: OWNER, status: 201, summary: 'Create a user (owner)', body: userCreate, handler: ({ deps, actor, body }) => users.createUser(deps, actor, body) }),

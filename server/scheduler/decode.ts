@@ -1,7 +1,7 @@
 // Index a Problem once, then turn (priority keys, resource choices) into a timed plan by serial schedule generation on calendars.
 import type { Interval, Job, Objective, Operation, Plan, PlannedOperation, Problem, Score, StartReason } from './model.ts'
 import { SchedulingInputError } from './model.ts'
-import { clipToWindows, formatMinute, intersect, outsideWorkEnd, walkWorkingTime, weekdayOf } from './calendar.ts'
+import { clipToWindows, firstEndingAfter, formatMinute, intersect, outsideWorkEnd, walkWorkingTime, weekdayOf } from './calendar.ts'
 
 /** One resource option of an operation, with indices and its joint working windows. */
 export interface CompiledOption { bench: number; person: number; minutes: number; windows: Interval[] }
@@ -99,6 +99,20 @@ class Timeline {
   starts: number[] = []
   ends: number[] = []
   owners: number[] = []
+  /** The resource's own working time: busy blocks separated only by its time off are joined. */
+  constructor(private available: Interval[]) {}
+  private idleBetween(a: number, b: number): boolean {
+    if (a >= b) return false
+    const w = this.available[firstEndingAfter(this.available, a)]
+    return w !== undefined && w.start < b
+  }
+  /** Index of the busy block containing t, or -1. */
+  containing(t: number): number {
+    const ends = this.ends
+    let lo = 0, hi = ends.length
+    while (lo < hi) { const mid = (lo + hi) >> 1; if (ends[mid]! > t) hi = mid; else lo = mid + 1 }
+    return lo < ends.length && this.starts[lo]! <= t ? lo : -1
+  }
   /** First busy segment overlapping [s, e), or -1. */
   overlap(s: number, e: number): number {
     const ends = this.ends
@@ -110,7 +124,15 @@ class Timeline {
     const ends = this.ends
     let lo = 0, hi = ends.length
     while (lo < hi) { const mid = (lo + hi) >> 1; if (ends[mid]! > s) hi = mid; else lo = mid + 1 }
-    this.starts.splice(lo, 0, s); this.ends.splice(lo, 0, e); this.owners.splice(lo, 0, owner)
+    // Touching busy stretches are kept as one block (owned by the operation that ends it), so searches jump whole blocks.
+    const joinPrev = lo > 0 && !this.idleBetween(ends[lo - 1]!, s)
+    const joinNext = lo < ends.length && !this.idleBetween(e, this.starts[lo]!)
+    if (joinPrev && joinNext) {
+      ends[lo - 1] = ends[lo]!; this.owners[lo - 1] = this.owners[lo]!
+      this.starts.splice(lo, 1); ends.splice(lo, 1); this.owners.splice(lo, 1)
+    } else if (joinPrev) { ends[lo - 1] = e; this.owners[lo - 1] = owner }
+    else if (joinNext) { this.starts[lo] = s }
+    else { this.starts.splice(lo, 0, s); ends.splice(lo, 0, e); this.owners.splice(lo, 0, owner) }
   }
 }
 
@@ -139,8 +161,20 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
   let blockedOn: Why = Why.WorkingTime
   const bt = o.bench >= 0 ? benches[o.bench]! : null
   const pt = o.person >= 0 ? people[o.person]! : null
+  const win = o.windows
   for (;;) {
-    const segs = walkWorkingTime(o.windows, t, o.minutes)
+    // Skip to a moment when the pair works and neither is busy, then check the whole stretch of work.
+    for (;;) {
+      const w = win[firstEndingAfter(win, t)]
+      if (!w) return null
+      if (w.start > t) t = w.start
+      const kb = bt ? bt.containing(t) : -1
+      if (kb >= 0) { t = bt!.ends[kb]!; blockedBy = bt!.owners[kb]!; blockedOn = Why.Bench; continue }
+      const kp = pt ? pt.containing(t) : -1
+      if (kp >= 0) { t = pt!.ends[kp]!; blockedBy = pt!.owners[kp]!; blockedOn = Why.Person; continue }
+      break
+    }
+    const segs = walkWorkingTime(win, t, o.minutes)
     if (!segs) return null
     let pushTo = -Infinity
     for (const s of segs) {
@@ -194,8 +228,8 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
   const option = new Int32Array(n).fill(-1)
   const segments: Interval[][] = new Array(n)
   const why = new Uint8Array(n), blocker = new Int32Array(n).fill(-1)
-  const benches: Timeline[] = Array.from({ length: c.benchCount }, () => new Timeline())
-  const people: Timeline[] = Array.from({ length: c.personCount }, () => new Timeline())
+  const benches: Timeline[] = c.problem.benches.map((b) => new Timeline(b.available))
+  const people: Timeline[] = c.problem.people.map((p) => new Timeline(p.available))
   const placed = new Uint8Array(n)
   const waiting = new Int32Array(n)
   let overflow = -1
@@ -226,7 +260,7 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
     if (w === 0) heap.push(i)
   }
   const release = (i: number): void => {
-    for (const s of c.succs[i]!) if (!placed[s] && --waiting[s] === 0) heap.push(s)
+    for (const s of c.succs[i]!) if (!placed[s]) { waiting[s] = waiting[s]! - 1; if (waiting[s] === 0) heap.push(s) }
   }
   for (let i = 0; i < n; i++) if (placed[i]) release(i)
 

@@ -3,7 +3,7 @@ import type { Job, Operation, Plan, Problem, SolveHooks, SolveOptions } from './
 import { checkProblem } from './check.ts'
 import { compile, decode } from './decode.ts'
 import { topologicalOrder } from './search.ts'
-import { solve } from './index.ts'
+import { solve } from './solve.ts'
 
 /** A job bag the customer is asking about, with its routing. */
 export interface ProspectiveJob { job: Job; operations: Operation[] }

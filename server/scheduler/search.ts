@@ -84,7 +84,7 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   const obj = opts.objective
   const n = c.n
   const greedy = new Int32Array(n).fill(-1)
-  let bestKey = new Float64Array(n), bestChoice = greedy.slice(), best: Decoded | null = null
+  let bestKey: Float64Array = new Float64Array(n), bestChoice: Int32Array = greedy.slice(), best: Decoded | null = null
   for (const key of dispatchKeys(c)) {
     const d = decode(c, key, greedy)
     if (!best || compareDecoded(d, best, obj) < 0) { best = d; bestKey = key }
@@ -95,7 +95,7 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: firstPlanMs })
   if (n === 0) return { decoded: best, iterations, firstPlanMs }
 
-  let curKey = bestKey.slice(), curChoice = bestChoice.slice(), cur = best
+  let curKey: Float64Array = bestKey.slice(), curChoice: Int32Array = bestChoice.slice(), cur = best
   const historyLen = 40
   const history: Decoded[] = new Array(historyLen).fill(cur)
   const maxIt = opts.maxIterations ?? Infinity

@@ -159,8 +159,8 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       if (mp >= 0) { const e = r[mp]! + p[mp]!; if (e > rx) rx = e }
       r[x] = rx
       const js = jobSucc[x]!, ms = mSucc[x]!
-      if (js >= 0 && --indeg[js] === 0) topo[qt++] = js
-      if (ms >= 0 && --indeg[ms] === 0) topo[qt++] = ms
+      if (js >= 0) { const d = indeg[js]! - 1; indeg[js] = d; if (d === 0) topo[qt++] = js }
+      if (ms >= 0) { const d = indeg[ms]! - 1; indeg[ms] = d; if (d === 0) topo[qt++] = ms }
     }
     return qt === n
   }

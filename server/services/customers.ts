@@ -8,14 +8,18 @@ import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { requireOwned, updateVersioned } from './versioned'
 
+/** ILIKE pattern for "contains", with the user's % and _ taken literally. */
+const containing = (text: string) => `%${text.replace(/[\\%_]/g, '\\$&')}%`
+
 const openCount = sql<number>`(select count(*)::int from ${orders} where ${orders.customerId} = ${customers.id} and ${orders.status} not in ('collected','cancelled'))`
 
 export async function listCustomers(db: Db, workshopId: number, q: ListQuery) {
-  const where = and(eq(customers.workshopId, workshopId), q.q ? or(ilike(customers.name, `%${q.q}%`), ilike(customers.email, `%${q.q}%`), ilike(customers.reference, `%${q.q}%`)) : undefined)
+  const like = q.q ? containing(q.q) : null
+  const where = and(eq(customers.workshopId, workshopId), like ? or(ilike(customers.name, like), ilike(customers.email, like), ilike(customers.reference, like)) : undefined)
   const sortCol = q.sort === 'reference' ? customers.reference : q.sort === 'email' ? customers.email : customers.name
   const [total] = await db.select({ n: count() }).from(customers).where(where)
   const items = await db.select({ id: customers.id, reference: customers.reference, name: customers.name, email: customers.email, phone: customers.phone, notes: customers.notes, version: customers.version, openOrders: openCount })
-    .from(customers).where(where).orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
+    .from(customers).where(where).orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(customers.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
   return { items, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
 }
 

@@ -10,13 +10,17 @@ import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { requireOwned, updateVersioned } from './versioned'
 
+/** ILIKE pattern for "contains", with the user's % and _ taken literally. */
+const containing = (text: string) => `%${text.replace(/[\\%_]/g, '\\$&')}%`
+
 const bagCount = sql<number>`(select count(*)::int from ${jobBags} where ${jobBags.orderId} = ${orders.id})`
 
 export async function listOrders(db: Db, workshopId: number, q: ListQuery & { status?: string }) {
+  const like = q.q ? containing(q.q) : null
   const where = and(
     eq(orders.workshopId, workshopId),
     q.status ? eq(orders.status, q.status) : undefined,
-    q.q ? or(ilike(orders.number, `%${q.q}%`), ilike(orders.title, `%${q.q}%`), ilike(customers.name, `%${q.q}%`)) : undefined,
+    like ? or(ilike(orders.number, like), ilike(orders.title, like), ilike(customers.name, like)) : undefined,
   )
   const sortCol = q.sort === 'number' ? orders.number : q.sort === 'priority' ? orders.priority : q.sort === 'customer' ? customers.name : orders.dueDate
   const [total] = await db.select({ n: count() }).from(orders).innerJoin(customers, eq(customers.id, orders.customerId)).where(where)

@@ -36,8 +36,10 @@ export async function createUser({ db }: Deps, actor: Actor, input: UserCreate) 
 
 export async function updateUser({ db }: Deps, actor: Actor, id: number, input: UserUpdate) {
   const { version, password, ...values } = input
-  if (id === actor.userId && (values.active === false || (values.role && values.role !== 'owner')))
-    throw new AppError({ code: 'unprocessable', message: 'You cannot switch off or demote your own owner account', fields: { role: 'cannot demote yourself' } })
+  if (id === actor.userId && values.active === false)
+    throw new AppError({ code: 'unprocessable', message: 'You cannot switch off your own owner account; another owner must do it', fields: { active: 'cannot switch yourself off' } })
+  if (id === actor.userId && values.role && values.role !== 'owner')
+    throw new AppError({ code: 'unprocessable', message: 'You cannot demote your own owner account; another owner must do it', fields: { role: 'cannot demote yourself' } })
   const set: Record<string, unknown> = { ...values, updatedAt: new Date() }
   if (password) set.passwordHash = await hashPassword(password)
   await db.transaction(async (tx) => {

@@ -55,3 +55,24 @@ export async function signedIn(app: TestApp['app'], role: Role): Promise<Agent> 
   if (r.status !== 200) throw new Error(`sign-in as ${role} failed: ${r.status} ${JSON.stringify(r.body)}`)
   return a
 }
+
+/** The real server (HTTP + Socket.IO) on a free loopback port, on a private database. */
+export async function startTestServer(overrides: Record<string, string> = {}) {
+  const { startServer } = await import('../../server/index')
+  const tdb = await createTestDb()
+  await tdb.pool.end()
+  const server = await startServer(loadConfig({ DATABASE_URL: tdb.url, PORT: '0', SESSION_SECRET: 'test-secret-test-secret', NODE_ENV: 'test', LOGIN_ATTEMPTS_PER_15_MIN: '1000', ...overrides }))
+  return { ...server, async stop() { await server.close(); await tdb.drop().catch(() => {}) } }
+}
+
+/** Signs in over real HTTP and returns the session cookie and CSRF token (for socket.io-client and fetch). */
+export async function httpSignIn(baseUrl: string, role: Role) {
+  let cookie = ''
+  const keep = (r: Response) => { const c = r.headers.get('set-cookie'); if (c) cookie = c.split(';')[0]! }
+  const s1 = await fetch(`${baseUrl}/api/session`); keep(s1)
+  const { csrfToken } = (await s1.json()) as { csrfToken: string }
+  const s2 = await fetch(`${baseUrl}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie }, body: JSON.stringify({ email: DEMO_EMAIL[role], password: DEMO_PASSWORD }) })
+  keep(s2)
+  const body = (await s2.json()) as { csrfToken: string }
+  return { cookie, csrf: body.csrfToken }
+}

@@ -2,3 +2,4 @@
 export * from './workshop'
 export * from './resources'
 export * from './work'
+export * from './bench'

@@ -1,0 +1,76 @@
+// Benchmark: every kit instance at a time limit, checked twice (our validator and the kit's checker), beside the HiGHS MIP on small ones.
+// usage: npm run bench:engine -- [--time-limit S] [--only ft06,mk01] [--seed N]
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { spawnSync } from 'node:child_process'
+import { dirname, join, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { parseShopFile, shopToProblem } from '../server/scheduler/formats.ts'
+import { solve, validatePlan } from '../server/scheduler/index.ts'
+import { solveMip } from '../server/scheduler/reference/mip.ts'
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
+const benchDir = resolve(root, process.env.MILLGRAIN_BENCH_DIR ?? '../shared/bench')
+const checker = resolve(benchDir, '../tools/check-schedule.mjs')
+
+interface Bound { name: string; kind: string; file: string; jobs: number; machines: number; optimum: number | null; lower_bound: number; upper_bound: number }
+
+const args = process.argv.slice(2)
+let timeLimit = 10, seed = 1, only: string[] | null = null
+for (let i = 0; i < args.length; i++) {
+  if (args[i] === '--time-limit') timeLimit = Number(args[++i])
+  else if (args[i] === '--seed') seed = Number(args[++i])
+  else if (args[i] === '--only') only = args[++i]!.split(',')
+}
+if (!existsSync(join(benchDir, 'bounds.json'))) {
+  console.error(`No benchmark kit at ${benchDir} (set MILLGRAIN_BENCH_DIR).`)
+  process.exit(1)
+}
+const bounds: Bound[] = JSON.parse(readFileSync(join(benchDir, 'bounds.json'), 'utf8'))
+const outDir = join(root, 'tests/bench/out')
+mkdirSync(outDir, { recursive: true })
+
+const rows: Record<string, unknown>[] = []
+const pad = (s: unknown, n: number) => String(s).padEnd(n)
+console.log(`time limit ${timeLimit}s per instance, seed ${seed}, kit ${benchDir}`)
+console.log([pad('instance', 9), pad('size', 7), pad('best', 6), pad('lb', 6), pad('ours', 6), pad('gap%', 7), pad('to best s', 10), pad('valid', 6), pad('MIP', 14), pad('MIP gap%', 8)].join(' '))
+for (const b of bounds) {
+  if (only && !only.includes(b.name)) continue
+  const path = join(benchDir, b.file)
+  const file = parseShopFile(b.file, readFileSync(path, 'utf8'))
+  const problem = shopToProblem(file)
+  let bestAt = 0
+  const t0 = performance.now()
+  const plan = solve(problem, { seed, timeLimitMs: timeLimit * 1000, objective: ['makespan'] }, { clock: () => performance.now(), onProgress: (p) => { bestAt = p.elapsedMs } })
+  const seconds = (performance.now() - t0) / 1000
+  const ours = plan.score.makespan
+  const violations = validatePlan(problem, plan)
+  // The kit's own checker on the CLI's JSON shape.
+  const schedule = {
+    makespan: ours,
+    operations: plan.operations.map((p) => { const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!; return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), start: p.start, end: p.end } }),
+  }
+  const schedPath = join(outDir, `${b.name}.schedule.json`)
+  writeFileSync(schedPath, JSON.stringify(schedule))
+  const kit = existsSync(checker) ? spawnSync(process.execPath, [checker, path, schedPath, String(b.upper_bound)], { encoding: 'utf8' }) : null
+  const kitValid = kit ? kit.status === 0 : null
+  const valid = violations.length === 0 && kitValid !== false && ours >= b.lower_bound
+  const gap = ((ours - b.upper_bound) / b.upper_bound) * 100
+  let mip: Awaited<ReturnType<typeof solveMip>> | null = null
+  if (b.jobs <= 10 && b.machines <= 10) mip = await solveMip(file, timeLimit)
+  const mipText = mip ? `${mip.makespan ?? '-'}${mip.optimal ? ' (opt)' : ' (tl)'}` : ''
+  const mipGap = mip?.makespan ? (((mip.makespan - b.upper_bound) / b.upper_bound) * 100).toFixed(2) : ''
+  console.log([pad(b.name, 9), pad(`${b.jobs}x${b.machines}`, 7), pad(b.upper_bound, 6), pad(b.lower_bound, 6), pad(ours, 6), pad(gap.toFixed(2), 7), pad((bestAt / 1000).toFixed(2), 10), pad(valid ? 'yes' : 'NO', 6), pad(mipText, 14), pad(mipGap, 8)].join(' '))
+  if (!valid) console.log(`  ! ${violations.slice(0, 3).map((v) => v.message).join('; ')} ${kit?.stdout.trim() ?? ''}`)
+  rows.push({ instance: b.name, family: b.name.replace(/\d+$/, ''), kind: b.kind, jobs: b.jobs, machines: b.machines, best: b.upper_bound, lowerBound: b.lower_bound, ours, gapPercent: gap, secondsToBest: bestAt / 1000, seconds, iterations: plan.stats.iterations, valid, kitChecker: kit?.stdout.trim() ?? null, mip })
+}
+const families = [...new Set(rows.map((r) => r.family as string))]
+const means: Record<string, number> = {}
+console.log('\nmean gap per family:')
+for (const f of families) {
+  const list = rows.filter((r) => r.family === f)
+  means[f] = list.reduce((a, r) => a + (r.gapPercent as number), 0) / list.length
+  console.log(`  ${pad(f, 6)} ${means[f]!.toFixed(2)} % over ${list.length} instance(s)`)
+}
+const outFile = join(outDir, `engine-${timeLimit}s.json`)
+writeFileSync(outFile, JSON.stringify({ timeLimitSeconds: timeLimit, seed, benchDir, rows, meanGapPercentByFamily: means }, null, 2))
+console.log(`\nwrote ${outFile}`)

@@ -1,0 +1,118 @@
+// solve(): routes a problem to the fast shop core or the general calendar search, then validates the plan.
+import type { Objective, Plan, Problem, SolveHooks, SolveOptions } from './model.ts'
+import { checkProblem } from './check.ts'
+import { compile, toPlan, assertWithinHorizon, type Compiled, type Decoded, Why } from './decode.ts'
+import { solveGeneral } from './search.ts'
+import { solveShop, type ShopInstance } from './shop-core.ts'
+import { validatePlan } from './validate.ts'
+
+const DEFAULT_OBJECTIVE: Objective[] = ['weightedTardiness', 'makespan', 'moves']
+
+/** A performance-like clock when the caller does not inject one. */
+const defaultClock = (): number => globalThis.performance.now()
+
+/**
+ * Plans the workshop: a due-date-aware dispatching rule builds the first plan, then a local search improves it until the time
+ * limit, maxIterations or hooks.shouldStop(). Deterministic for a given problem, seed and iteration count.
+ * Throws SchedulingInputError on bad input (see checkProblem) or when the work cannot fit before the horizon.
+ * The returned plan has been checked by validatePlan; its findings are in score.violations.
+ */
+export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks = {}): Plan {
+  checkProblem(problem)
+  const clock = hooks.clock ?? defaultClock
+  const t0 = clock()
+  const objective = options.objective && options.objective.length > 0 ? options.objective : DEFAULT_OBJECTIVE
+  const c = compile(problem)
+  const deadline = t0 + Math.max(0, options.timeLimitMs)
+  const shop = asShop(c)
+  let decoded: Decoded, iterations: number, firstPlanMs: number
+  if (shop) {
+    const r = solveShop(shop, {
+      seed: options.seed,
+      deadline,
+      clock,
+      ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}),
+      ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
+      onImprove: (makespan, iteration) => hooks.onProgress?.({ iteration, best: { weightedTardiness: 0, makespan: makespan + problem.now, moves: 0, feasible: true, violations: [] }, elapsedMs: clock() - t0 }),
+    })
+    decoded = fromShop(c, r.machine, r.start, r.duration)
+    iterations = r.iterations
+    firstPlanMs = r.firstMs
+  } else {
+    const r = solveGeneral(c, { seed: options.seed, deadline, objective, ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}) }, hooks, clock, t0)
+    decoded = r.decoded
+    iterations = r.iterations
+    firstPlanMs = r.firstPlanMs
+  }
+  assertWithinHorizon(c, decoded)
+  const plan = toPlan(c, decoded, { iterations, elapsedMs: clock() - t0, firstPlanMs })
+  const violations = validatePlan(problem, plan)
+  plan.score.violations = violations.map((v) => `${v.rule}: ${v.message}`)
+  plan.score.feasible = violations.length === 0
+  plan.stats.elapsedMs = clock() - t0
+  return plan
+}
+
+/**
+ * The calendar-free, person-free case (benchmarks, or a shop of machines): every operation needs only a bench that is open
+ * through the whole planning window, routings are chains, nothing is pinned, waiting or outside, and no due dates apply.
+ * Returns the flattened instance for the fast tabu core, or null when the general engine must be used.
+ */
+function asShop(c: Compiled): ShopInstance | null {
+  const p = c.problem
+  if (p.previous && Object.keys(p.previous).length > 0) return null
+  if (p.jobs.some((j) => j.due !== null || j.release > p.now)) return null
+  if (p.operations.some((o) => o.done)) return null
+  const openBench = p.benches.map((b) => b.available.some((w) => w.start <= p.now && w.end >= p.horizon))
+  const n = c.n
+  const jobPred = new Int32Array(n).fill(-1), jobSucc = new Int32Array(n).fill(-1)
+  const optStart = new Int32Array(n + 1)
+  const machines: number[] = [], durs: number[] = []
+  for (let i = 0; i < n; i++) {
+    if (c.fixedAt[i] || c.outsideDays[i]! > 0 || c.waitAfter[i]! > 0) return null
+    if (c.preds[i]!.length > 1 || c.succs[i]!.length > 1) return null
+    if (c.preds[i]!.length === 1) { jobPred[i] = c.preds[i]![0]!; jobSucc[c.preds[i]![0]!] = i }
+    optStart[i] = machines.length
+    for (const o of c.options[i]!) {
+      if (o.person >= 0 || o.bench < 0 || !openBench[o.bench] || !Number.isInteger(o.minutes)) return null
+      machines.push(o.bench); durs.push(o.minutes)
+    }
+  }
+  optStart[n] = machines.length
+  return { n, m: p.benches.length, jobs: p.jobs.length, jobPred, jobSucc, optStart, optMachine: Int32Array.from(machines), optDur: Int32Array.from(durs) }
+}
+
+/** Turns the core's machine and start arrays into a decode (times shifted to start at now), with start reasons. */
+function fromShop(c: Compiled, machine: Int32Array, start0: Int32Array, duration: Int32Array): Decoded {
+  const n = c.n, now = c.problem.now
+  const start = new Float64Array(n), end = new Float64Array(n)
+  const option = new Int32Array(n), why = new Uint8Array(n), blocker = new Int32Array(n).fill(-1)
+  const segments = new Array(n)
+  const byMachine = new Map<number, number[]>()
+  for (let i = 0; i < n; i++) {
+    start[i] = start0[i]! + now
+    end[i] = start[i]! + duration[i]!
+    option[i] = c.options[i]!.findIndex((o) => o.bench === machine[i] && o.minutes === duration[i])
+    segments[i] = [{ start: start[i]!, end: end[i]! }]
+    ;(byMachine.get(machine[i]!) ?? byMachine.set(machine[i]!, []).get(machine[i]!)!).push(i)
+  }
+  const machinePred = new Int32Array(n).fill(-1)
+  for (const list of byMachine.values()) {
+    list.sort((a, b) => start[a]! - start[b]!)
+    for (let k = 1; k < list.length; k++) machinePred[list[k]!] = list[k - 1]!
+  }
+  let makespan = 0
+  const completion = new Float64Array(c.jobs.length).fill(-Infinity)
+  for (let i = 0; i < n; i++) {
+    const jp = c.preds[i]![0]
+    const mp = machinePred[i]!
+    if (start[i] === now) why[i] = Why.Now
+    else if (jp !== undefined && end[jp] === start[i]) { why[i] = Why.Predecessor; blocker[i] = jp }
+    else if (mp >= 0 && end[mp] === start[i]) { why[i] = Why.Bench; blocker[i] = mp }
+    else why[i] = Why.WorkingTime
+    makespan = Math.max(makespan, end[i]!)
+    const j = c.jobOf[i]!
+    completion[j] = Math.max(completion[j]!, end[i]!)
+  }
+  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, completion, weightedTardiness: 0, makespan, moves: 0 }
+}

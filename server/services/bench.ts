@@ -1,0 +1,335 @@
+// Work at the bench: what is next for me, my work, and claim / start / pause / resume / finish — each replay-safe and pushed live.
+import { and, asc, desc, eq, inArray, isNull, ne, sql } from 'drizzle-orm'
+import { alias } from 'drizzle-orm/pg-core'
+import { STAFF } from '../../shared/domain/roles'
+import { HELD_OPERATION, PAUSE_REASON_LABELS, canMoveOperation, cautionsFor, type OperationStatus } from '../../shared/domain/status'
+import type { BenchOperation, ClaimInput, FinishInput, OutsideInput, PauseInput, ReleaseInput, StartInput, TransitionResult } from '../../shared/schemas/bench-work'
+import type { Db, Trx, Tx } from '../db/client'
+import { benchCapabilities, benchRequests, benches, jobBags, operationKinds, operations, orders, people, personSkills, timeRecords } from '../db/schema/index'
+import { AppError, notFound } from '../errors/app-error'
+import type { Actor, Deps } from '../lib/route'
+import { audit } from './audit'
+import { lockJobBag, refreshReadiness, syncJobBagStatus, type BagChange } from './job-bags'
+import { closeRecord, effectiveRecords, actualMinutesByOperation, openRecord } from './time-records'
+
+const claimer = alias(people, 'claimer')
+const opFields = {
+  id: operations.id, version: operations.version, status: operations.status, key: operations.key, name: operations.name, seq: operations.seq,
+  kindId: operations.kindId, kindCode: operationKinds.code, kindName: operationKinds.name, hazards: operationKinds.hazards, outside: operationKinds.outside,
+  requiredLevel: operations.requiredLevel, estimateMinutes: operations.estimateMinutes, plannedStart: operations.plannedStart, claimedBy: operations.claimedBy,
+  claimedByName: claimer.name, jobBagId: operations.jobBagId, jobBagNumber: jobBags.number, jobBagStatus: jobBags.status, piece: jobBags.piece,
+  orderNumber: orders.number, dueDate: orders.dueDate, priority: orders.priority, after: operations.after,
+}
+const baseQuery = (tx: Tx) =>
+  tx.select(opFields).from(operations)
+    .innerJoin(jobBags, eq(jobBags.id, operations.jobBagId)).innerJoin(orders, eq(orders.id, jobBags.orderId))
+    .innerJoin(operationKinds, eq(operationKinds.id, operations.kindId)).leftJoin(claimer, eq(claimer.id, operations.claimedBy))
+type OpRow = Awaited<ReturnType<ReturnType<typeof baseQuery>['where']>>[number]
+
+/** Rows → what the bench shows, with actual minutes and the open record's start. */
+export async function toBenchOperations(tx: Tx, rows: OpRow[]): Promise<BenchOperation[]> {
+  const records = await effectiveRecords(tx, rows.map((r) => r.id))
+  const actual = actualMinutesByOperation(records)
+  return rows.map((r) => ({
+    id: r.id, version: r.version, status: r.status, key: r.key, name: r.name, seq: r.seq, kindId: r.kindId, kindCode: r.kindCode, kindName: r.kindName,
+    hazards: r.hazards, cautions: cautionsFor(r.hazards), requiredLevel: r.requiredLevel, estimateMinutes: r.estimateMinutes, actualMinutes: actual.get(r.id) ?? 0,
+    runningSince: records.find((x) => x.operationId === r.id && !x.endedAt && !x.voided)?.startedAt ?? null,
+    plannedStart: r.plannedStart ? new Date(r.plannedStart).toISOString() : null, claimedBy: r.claimedBy, claimedByName: r.claimedByName ?? null,
+    jobBagId: r.jobBagId, jobBagNumber: r.jobBagNumber, piece: r.piece, orderNumber: r.orderNumber, dueDate: r.dueDate, priority: r.priority,
+  }))
+}
+
+/** The bench-facing rows of some operations. */
+export const benchRowsById = (tx: Tx, ids: number[]) => baseQuery(tx).where(inArray(operations.id, ids))
+
+export async function benchOperation(tx: Tx, workshopId: number, id: number): Promise<BenchOperation> {
+  const rows = await baseQuery(tx).where(and(eq(operations.id, id), eq(jobBags.workshopId, workshopId)))
+  if (!rows[0]) throw notFound('Operation')
+  return (await toBenchOperations(tx, rows))[0]!
+}
+
+interface Person { id: number; name: string }
+
+/** The person the actor works for: themselves, or (owner/manager only) the person they name. */
+async function personFor(tx: Tx, actor: Actor, personId: number | undefined): Promise<Person | null> {
+  if (personId !== undefined && personId !== actor.personId) {
+    if (!STAFF.includes(actor.role)) throw new AppError({ code: 'forbidden', message: 'At the bench you act for yourself only; a manager can act on behalf of someone else' })
+    const [p] = await tx.select({ id: people.id, name: people.name, active: people.active }).from(people).where(and(eq(people.id, personId), eq(people.workshopId, actor.workshopId)))
+    if (!p) throw new AppError({ code: 'validation', message: 'personId: is not a person of this workshop', fields: { personId: 'is not a person of this workshop' } })
+    if (!p.active) throw new AppError({ code: 'unprocessable', message: `${p.name} is switched off and cannot take work` })
+    return p
+  }
+  if (actor.personId === null) return null
+  const [p] = await tx.select({ id: people.id, name: people.name }).from(people).where(eq(people.id, actor.personId))
+  return p ?? null
+}
+const notLinked = () => new AppError({ code: 'unprocessable', message: 'Your account is not linked to a person at a bench; ask the owner to link it, or name the person you act for' })
+
+async function requirePerson(tx: Tx, actor: Actor, personId: number | undefined) {
+  const p = await personFor(tx, actor, personId)
+  if (!p) throw notLinked()
+  return p
+}
+
+async function requireBench(tx: Tx, workshopId: number, benchId: number, kindId: number, kindName: string) {
+  const [b] = await tx.select({ id: benches.id, name: benches.name, active: benches.active }).from(benches).where(and(eq(benches.id, benchId), eq(benches.workshopId, workshopId)))
+  if (!b) throw new AppError({ code: 'validation', message: 'benchId: is not a bench of this workshop', fields: { benchId: 'is not a bench of this workshop' } })
+  if (!b.active) throw new AppError({ code: 'unprocessable', message: `${b.name} is switched off`, fields: { benchId: 'is switched off' } })
+  const [cap] = await tx.select().from(benchCapabilities).where(and(eq(benchCapabilities.benchId, benchId), eq(benchCapabilities.kindId, kindId)))
+  if (!cap) throw new AppError({ code: 'unprocessable', message: `${b.name} is not equipped for ${kindName}; take it at a bench that is`, fields: { benchId: `cannot do ${kindName}` } })
+  return b
+}
+
+const label = (op: Pick<OpRow, 'name' | 'jobBagNumber'>) => `“${op.name}” (job bag ${op.jobBagNumber})`
+
+function refuseMove(op: OpRow, to: OperationStatus, person: Person | null): never {
+  const held = (HELD_OPERATION as readonly string[]).includes(op.status)
+  if (to === 'claimed' && held) {
+    const who = op.claimedBy === person?.id ? 'you' : op.claimedByName ?? 'someone else'
+    throw new AppError({ code: 'conflict', message: `${label(op)} has been taken already by ${who}`, details: { claimedBy: op.claimedBy, claimedByName: op.claimedByName, status: op.status } })
+  }
+  if (op.status === 'done' || op.status === 'skipped') throw new AppError({ code: 'conflict', message: `${label(op)} is ${op.status === 'done' ? 'finished' : 'removed from the routing'} already`, details: { status: op.status } })
+  const need: Partial<Record<OperationStatus, string>> = { running: 'claimed (or paused)', paused: 'running', done: 'running or paused', ready: 'claimed' }
+  throw new AppError({ code: 'conflict', message: `${label(op)} is ${op.status}; it must be ${need[to] ?? 'ready'} to do this`, details: { status: op.status } })
+}
+
+async function pendingReason(tx: Tx, op: OpRow) {
+  const preds = op.after.length ? await tx.select({ key: operations.key, name: operations.name, status: operations.status }).from(operations).where(and(eq(operations.jobBagId, op.jobBagId), inArray(operations.key, op.after))) : []
+  const open = preds.filter((p) => p.status !== 'done' && p.status !== 'skipped')
+  const names = open.map((p) => `“${p.name}”`).join(', ')
+  return new AppError({ code: 'unprocessable', message: `${label(op)} is not ready: ${names || 'an earlier step'} must be finished first`, details: { waitingFor: open.map((p) => p.key) } })
+}
+
+/** The one who holds the operation must be the one acting (a manager may act on their behalf). */
+async function holderFor(tx: Tx, actor: Actor, op: OpRow, personId: number | undefined): Promise<Person> {
+  if (STAFF.includes(actor.role) && personId === undefined && op.claimedBy !== null && op.claimedBy !== actor.personId) return { id: op.claimedBy, name: op.claimedByName ?? '' }
+  const p = await requirePerson(tx, actor, personId)
+  if (op.claimedBy !== p.id) {
+    throw new AppError({ code: 'conflict', message: op.claimedBy ? `${label(op)} is held by ${op.claimedByName}, not by ${p.id === actor.personId ? 'you' : p.name}` : `${label(op)} is not claimed; claim it first`, details: { claimedBy: op.claimedBy, claimedByName: op.claimedByName } })
+  }
+  return p
+}
+
+/** Refuses a second running operation for one person (409 naming the running one). Call with the person lock held. */
+async function requireNothingElseRunning(tx: Tx, person: Person, operationId: number, isSelf: boolean) {
+  await tx.execute(sql`select pg_advisory_xact_lock(3001, ${person.id})`)
+  const [other] = await tx
+    .select({ id: operations.id, name: operations.name, number: jobBags.number })
+    .from(timeRecords).innerJoin(operations, eq(operations.id, timeRecords.operationId)).innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
+    .where(and(eq(timeRecords.personId, person.id), isNull(timeRecords.endedAt), eq(operations.status, 'running'), ne(operations.id, operationId)))
+  if (other) throw new AppError({ code: 'conflict', message: `${isSelf ? 'You are' : `${person.name} is`} working on “${other.name}” (job bag ${other.number}) already; pause or finish it first`, details: { runningOperationId: other.id } })
+}
+
+interface Work { tx: Trx; op: OpRow; now: Date }
+interface WorkResult { status: OperationStatus; readied?: number[]; bag?: BagChange }
+
+type ReplayStored = { status: number; body: unknown }
+
+/**
+ * Runs one transition exactly once per requestId: the request row is written first (a concurrent replay waits on it),
+ * the work runs in a savepoint with the job bag and the operation locked, and its answer — success or refusal — is kept for replays.
+ */
+async function transition(deps: Deps, actor: Actor, o: { requestId: string; action: string; operationId: number }, work: (w: Work) => Promise<WorkResult>): Promise<TransitionResult> {
+  const { db, realtime } = deps
+  const outcome = await db.transaction(async (tx) => {
+    const mine = await tx.insert(benchRequests).values({ requestId: o.requestId, workshopId: actor.workshopId, userId: actor.userId, action: o.action, operationId: null })
+      .onConflictDoNothing().returning({ requestId: benchRequests.requestId })
+    if (!mine.length) {
+      const [prev] = await tx.select().from(benchRequests).where(eq(benchRequests.requestId, o.requestId))
+      if (!prev || prev.userId !== actor.userId || prev.action !== o.action || (prev.operationId !== null && prev.operationId !== o.operationId))
+        throw new AppError({ code: 'conflict', message: 'This request id was used for a different request; the tablet must send a new id for each tap' })
+      return { replay: { status: prev.status, body: prev.response } as ReplayStored }
+    }
+    try {
+      const r = await tx.transaction(async (sp) => {
+        const [found] = await sp.select({ jobBagId: operations.jobBagId }).from(operations).innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
+          .where(and(eq(operations.id, o.operationId), eq(jobBags.workshopId, actor.workshopId)))
+        if (!found) throw notFound('Operation')
+        // Every transition of one job bag runs one at a time, so successors see all their predecessors' finishes.
+        await lockJobBag(sp, found.jobBagId)
+        const [op] = await baseQuery(sp).where(eq(operations.id, o.operationId)).for('update', { of: operations })
+        const result = await work({ tx: sp, op: op!, now: new Date() })
+        const bag = result.bag ?? (await syncJobBagStatus(sp, actor, op!.jobBagId))
+        const operation = await benchOperation(sp, actor.workshopId, o.operationId)
+        const body: TransitionResult = { operation, jobBag: bag.jobBag, readied: result.readied ?? [], cautions: operation.cautions }
+        return { body, bag }
+      })
+      await tx.update(benchRequests).set({ status: 200, response: r.body as unknown as Record<string, unknown>, operationId: o.operationId }).where(eq(benchRequests.requestId, o.requestId))
+      return { done: r }
+    } catch (err) {
+      if (!(err instanceof AppError) || err.status >= 500) throw err
+      const stored = { error: err.message, code: err.code, fields: err.fields, details: err.details }
+      await tx.update(benchRequests).set({ status: err.status, response: stored as Record<string, unknown>, operationId: err.code === 'not-found' ? null : o.operationId }).where(eq(benchRequests.requestId, o.requestId))
+      return { refused: err }
+    }
+  })
+  if ('replay' in outcome) {
+    const { status, body } = outcome.replay!
+    if (status >= 400) {
+      const b = body as { error: string; code: AppError['code']; fields?: Record<string, string>; details?: unknown }
+      throw new AppError({ code: b.code, status, message: b.error, fields: b.fields, details: b.details })
+    }
+    return body as TransitionResult
+  }
+  if ('refused' in outcome) throw outcome.refused
+  const { body, bag } = outcome.done!
+  realtime.emit(actor.workshopId, 'operation:changed', { id: body.operation.id, version: body.operation.version, status: body.operation.status })
+  for (const r of bag.readied) realtime.emit(actor.workshopId, 'operation:changed', { id: r.id, version: r.version, status: 'ready' })
+  if (bag.statusChanged) realtime.emit(actor.workshopId, 'jobBag:changed', { id: bag.jobBag.id, version: bag.jobBag.version, status: bag.jobBag.status })
+  return body
+}
+
+async function move(tx: Tx, op: OpRow, to: OperationStatus, set: Record<string, unknown> = {}) {
+  const [u] = await tx.update(operations).set({ ...set, status: to, version: sql`${operations.version} + 1` })
+    .where(and(eq(operations.id, op.id), eq(operations.status, op.status))).returning({ id: operations.id })
+  if (!u) throw new AppError({ code: 'conflict', message: `${label(op)} changed meanwhile; reload and try again` })
+}
+
+function requireWorkable(op: OpRow) {
+  if (op.jobBagStatus === 'on-hold') throw new AppError({ code: 'unprocessable', message: `Job bag ${op.jobBagNumber} is on hold; ask the manager`, details: { jobBagStatus: op.jobBagStatus } })
+  if (op.jobBagStatus === 'cancelled') throw new AppError({ code: 'unprocessable', message: `Job bag ${op.jobBagNumber} is cancelled`, details: { jobBagStatus: op.jobBagStatus } })
+}
+
+export function claim(deps: Deps, actor: Actor, operationId: number, input: ClaimInput) {
+  return transition(deps, actor, { requestId: input.requestId, action: 'claim', operationId }, async ({ tx, op }) => {
+    const person = await requirePerson(tx, actor, input.personId)
+    if (op.status === 'pending') throw await pendingReason(tx, op)
+    if (!canMoveOperation(op.status, 'claimed')) refuseMove(op, 'claimed', person)
+    requireWorkable(op)
+    if (op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is outside work; the manager sends it out and books it back` })
+    const [skill] = await tx.select({ level: personSkills.level }).from(personSkills).where(and(eq(personSkills.personId, person.id), eq(personSkills.kindId, op.kindId)))
+    const who = person.id === actor.personId ? 'You' : person.name
+    if (!skill) throw new AppError({ code: 'unprocessable', message: `${who} ${who === 'You' ? 'have' : 'has'} no ${op.kindName} skill recorded; ${label(op)} needs level ${op.requiredLevel}`, details: { requiredLevel: op.requiredLevel, level: 0 } })
+    if (skill.level < op.requiredLevel) throw new AppError({ code: 'unprocessable', message: `${label(op)} needs ${op.kindName} at level ${op.requiredLevel}; ${who === 'You' ? 'your' : `${person.name}’s`} level is ${skill.level}`, details: { requiredLevel: op.requiredLevel, level: skill.level } })
+    const bench = await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName)
+    // The conditional update is the last guard: only a still unclaimed, ready operation is taken.
+    const [won] = await tx.update(operations).set({ status: 'claimed', claimedBy: person.id, version: sql`${operations.version} + 1` })
+      .where(and(eq(operations.id, op.id), eq(operations.status, 'ready'), isNull(operations.claimedBy))).returning({ id: operations.id })
+    if (!won) refuseMove({ ...op, status: 'claimed' }, 'claimed', person)
+    await audit(tx, actor, 'claim', 'operation', op.id, { from: op.status, to: 'claimed', personId: person.id, personName: person.name, benchId: bench.id, benchName: bench.name, jobBagId: op.jobBagId })
+    return { status: 'claimed' }
+  })
+}
+
+export function release(deps: Deps, actor: Actor, operationId: number, input: ReleaseInput) {
+  return transition(deps, actor, { requestId: input.requestId, action: 'release', operationId }, async ({ tx, op }) => {
+    if (!canMoveOperation(op.status, 'ready') || op.status !== 'claimed') refuseMove(op, 'ready', null)
+    const person = await holderFor(tx, actor, op, input.personId)
+    await move(tx, op, 'ready', { claimedBy: null })
+    await audit(tx, actor, 'release', 'operation', op.id, { from: op.status, to: 'ready', personId: person.id, jobBagId: op.jobBagId })
+    return { status: 'ready' }
+  })
+}
+
+export function start(deps: Deps, actor: Actor, operationId: number, input: StartInput) {
+  return transition(deps, actor, { requestId: input.requestId, action: 'start', operationId }, async ({ tx, op, now }) => {
+    if (op.status === 'ready') throw new AppError({ code: 'conflict', message: `${label(op)} is not claimed yet; claim it first`, details: { status: op.status } })
+    if (op.status !== 'claimed') refuseMove(op, 'running', null)
+    requireWorkable(op)
+    const person = await holderFor(tx, actor, op, input.personId)
+    const cautions = cautionsFor(op.hazards)
+    if (cautions.length && !input.acknowledgeHazards)
+      throw new AppError({ code: 'unprocessable', message: `${label(op)} is hazardous: read and confirm the cautions before starting`, details: { needsAcknowledgement: true, hazards: op.hazards, cautions } })
+    const bench = input.benchId ? await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName) : null
+    await requireNothingElseRunning(tx, person, op.id, person.id === actor.personId)
+    await openRecord(tx, { operationId: op.id, personId: person.id, benchId: bench?.id ?? null, at: now, clientId: input.requestId })
+    await move(tx, op, 'running')
+    await audit(tx, actor, 'start', 'operation', op.id, { from: op.status, to: 'running', personId: person.id, benchId: bench?.id ?? null, acknowledgedHazards: cautions.length ? op.hazards : [], jobBagId: op.jobBagId })
+    return { status: 'running' }
+  })
+}
+
+export function pause(deps: Deps, actor: Actor, operationId: number, input: PauseInput) {
+  return transition(deps, actor, { requestId: input.requestId, action: 'pause', operationId }, async ({ tx, op, now }) => {
+    if (op.status !== 'running' || !canMoveOperation(op.status, 'paused')) refuseMove(op, 'paused', null)
+    const person = await holderFor(tx, actor, op, input.personId)
+    const r = await closeRecord(tx, op.id, now, input.reason, input.note)
+    await move(tx, op, 'paused')
+    await audit(tx, actor, 'pause', 'operation', op.id, { from: op.status, to: 'paused', personId: person.id, reason: input.reason, reasonLabel: PAUSE_REASON_LABELS[input.reason], note: input.note, timeRecordId: r?.id ?? null, jobBagId: op.jobBagId })
+    return { status: 'paused' }
+  })
+}
+
+export function resume(deps: Deps, actor: Actor, operationId: number, input: StartInput) {
+  return transition(deps, actor, { requestId: input.requestId, action: 'resume', operationId }, async ({ tx, op, now }) => {
+    if (op.status !== 'paused') refuseMove(op, 'running', null)
+    requireWorkable(op)
+    const person = await holderFor(tx, actor, op, input.personId)
+    const bench = input.benchId ? await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName) : null
+    await requireNothingElseRunning(tx, person, op.id, person.id === actor.personId)
+    await openRecord(tx, { operationId: op.id, personId: person.id, benchId: bench?.id ?? null, at: now, clientId: input.requestId })
+    await move(tx, op, 'running')
+    await audit(tx, actor, 'resume', 'operation', op.id, { from: op.status, to: 'running', personId: person.id, benchId: bench?.id ?? null, jobBagId: op.jobBagId })
+    return { status: 'running' }
+  })
+}
+
+export function finish(deps: Deps, actor: Actor, operationId: number, input: FinishInput) {
+  return transition(deps, actor, { requestId: input.requestId, action: 'finish', operationId }, async ({ tx, op, now }) => {
+    if (!canMoveOperation(op.status, 'done') || op.outside) refuseMove(op, 'done', null)
+    const person = await holderFor(tx, actor, op, input.personId)
+    const r = op.status === 'running' ? await closeRecord(tx, op.id, now, 'finished', input.note) : null
+    await move(tx, op, 'done', { finishedAt: now.toISOString() })
+    await audit(tx, actor, 'finish', 'operation', op.id, { from: op.status, to: 'done', personId: person.id, note: input.note, timeRecordId: r?.id ?? null, jobBagId: op.jobBagId })
+    const readied = await refreshReadiness(tx, actor, op.jobBagId)
+    const bag = await syncJobBagStatus(tx, actor, op.jobBagId, readied)
+    return { status: 'done', readied: readied.map((x) => x.id), bag }
+  })
+}
+
+/** Outside work (casting, hallmarking): a manager sends it out… */
+export function sendOut(deps: Deps, actor: Actor, operationId: number, input: OutsideInput) {
+  return transition(deps, actor, { requestId: input.requestId, action: 'send-out', operationId }, async ({ tx, op }) => {
+    if (!op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is bench work; it is claimed at a bench` })
+    if (op.status === 'pending') throw await pendingReason(tx, op)
+    if (op.status !== 'ready') refuseMove(op, 'running', null)
+    requireWorkable(op)
+    await move(tx, op, 'running')
+    await audit(tx, actor, 'send-out', 'operation', op.id, { from: op.status, to: 'running', note: input.note, jobBagId: op.jobBagId })
+    return { status: 'running' }
+  })
+}
+
+/** …and books it back, which readies the next steps. */
+export function receive(deps: Deps, actor: Actor, operationId: number, input: OutsideInput) {
+  return transition(deps, actor, { requestId: input.requestId, action: 'receive', operationId }, async ({ tx, op, now }) => {
+    if (!op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is bench work; it is finished at a bench` })
+    if (op.status !== 'running') refuseMove(op, 'done', null)
+    await move(tx, op, 'done', { finishedAt: now.toISOString() })
+    await audit(tx, actor, 'receive', 'operation', op.id, { from: op.status, to: 'done', note: input.note, jobBagId: op.jobBagId })
+    const readied = await refreshReadiness(tx, actor, op.jobBagId)
+    const bag = await syncJobBagStatus(tx, actor, op.jobBagId, readied)
+    return { status: 'done', readied: readied.map((x) => x.id), bag }
+  })
+}
+
+/**
+ * Ready operations this person can do at this bench (skill level at or above the step's, bench equipped for the kind),
+ * in the plan's order: planned start if set, else the order's due date, then priority (5 = most urgent), then job bag number.
+ */
+export async function nextForMe(db: Db, actor: Actor, q: { benchId: number; personId?: number }) {
+  const person = await personFor(db, actor, q.personId)
+  if (!person) throw notLinked()
+  const [b] = await db.select({ id: benches.id }).from(benches).where(and(eq(benches.id, q.benchId), eq(benches.workshopId, actor.workshopId)))
+  if (!b) throw new AppError({ code: 'validation', message: 'benchId: is not a bench of this workshop', fields: { benchId: 'is not a bench of this workshop' } })
+  const rows = await baseQuery(db)
+    .innerJoin(benchCapabilities, and(eq(benchCapabilities.kindId, operations.kindId), eq(benchCapabilities.benchId, q.benchId)))
+    .innerJoin(personSkills, and(eq(personSkills.kindId, operations.kindId), eq(personSkills.personId, person.id), sql`${personSkills.level} >= ${operations.requiredLevel}`))
+    .where(and(
+      eq(jobBags.workshopId, actor.workshopId), eq(operations.status, 'ready'), eq(operationKinds.outside, false),
+      sql`${jobBags.status} not in ('on-hold', 'cancelled', 'complete')`, sql`${orders.status} not in ('cancelled', 'collected', 'quoted')`,
+    ))
+    .orderBy(sql`${operations.plannedStart} asc nulls last`, asc(orders.dueDate), desc(orders.priority), asc(jobBags.number), asc(operations.seq))
+    .limit(50)
+  return { person, items: await toBenchOperations(db, rows) }
+}
+
+/** What this person holds: running first, then paused, then claimed. */
+export async function myWork(db: Db, actor: Actor, q: { personId?: number }) {
+  const person = await personFor(db, actor, q.personId)
+  if (!person) throw notLinked()
+  const rows = await baseQuery(db)
+    .where(and(eq(jobBags.workshopId, actor.workshopId), eq(operations.claimedBy, person.id), inArray(operations.status, [...HELD_OPERATION])))
+    .orderBy(sql`case ${operations.status} when 'running' then 0 when 'paused' then 1 else 2 end`, asc(orders.dueDate), asc(jobBags.number))
+  return { person, items: await toBenchOperations(db, rows) }
+}

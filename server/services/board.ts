@@ -1,0 +1,176 @@
+// The planning board: bars for a window (live plan or a draft), job risk with its reason, calendars, and the week load.
+import { and, eq } from 'drizzle-orm'
+import type { Db } from '../db/client'
+import * as s from '../db/schema/index'
+import { dayjs, type Interval } from '../lib/time'
+import { intersect, clipToWindows } from '../scheduler/calendar.ts'
+import type { StartReason } from '../scheduler/model.ts'
+import type { Realtime } from '../realtime/hub'
+import { currentAssignments, type Assignment } from './planning/assignments'
+import { loadPlanningData, type PlanningData } from './planning/problem'
+import { getPlan } from './plans'
+
+export interface BoardItem {
+  id: number; jobBagId: number; jobBagNumber: string; piece: string; orderId: number; orderNumber: string; name: string
+  kind: string; kindName: string; color: string; hazards: string[]; outside: boolean; status: string
+  benchId: number | null; personId: number | null; start: string; end: string; pinned: boolean; version: number
+  estimateMinutes: number; reason: StartReason | null; late: boolean
+}
+export interface BoardJob {
+  jobBagId: number; number: string; piece: string; orderNumber: string; due: string; expectedCompletion: string | null
+  latenessMinutes: number; state: 'late' | 'at-risk' | 'on-time' | 'unplanned'; reason: string | null
+}
+
+const AT_RISK_MINUTES = 8 * 60
+
+/** Loads data once per change: the board is read far more often than the workshop changes. */
+export class BoardCache {
+  private readonly entries = new Map<string, { at: number; value: unknown }>()
+  constructor(realtime: Realtime) {
+    realtime.onChange((workshopId) => {
+      for (const k of this.entries.keys()) if (k.startsWith(`${workshopId}|`)) this.entries.delete(k)
+    })
+  }
+  async get<T>(key: string, load: () => Promise<T>): Promise<T> {
+    const hit = this.entries.get(key)
+    // Also expire with the clock: "now" moves and with it lateness.
+    if (hit && Date.now() - hit.at < 60_000) return hit.value as T
+    const value = await load()
+    this.entries.set(key, { at: Date.now(), value })
+    if (this.entries.size > 200) this.entries.delete(this.entries.keys().next().value!)
+    return value
+  }
+}
+
+function windowsFor(data: PlanningData, benchId: string | null, personId: string | null): Interval[] | null {
+  const b = benchId ? data.problem.benches.find((x) => x.id === benchId)?.available : null
+  const p = personId ? data.problem.people.find((x) => x.id === personId)?.available : null
+  return b && p ? intersect(b, p) : b ?? p ?? null
+}
+
+export async function boardData(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
+  const data = await loadPlanningData(db, workshopId, o.now ?? new Date())
+  const c = data.clock
+  let assignments: Record<string, Assignment>
+  let plan: { id: number; number: number; status: string; publishedAt: string | null } | null = null
+  const [live] = await db.select().from(s.planVersions).where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
+  if (o.planId) {
+    const p = await getPlan(db, workshopId, o.planId)
+    assignments = p.assignments as Record<string, Assignment>
+    plan = { id: p.id, number: p.number, status: p.status, publishedAt: p.publishedAt }
+  } else {
+    assignments = await currentAssignments(db, workshopId)
+    const reasons = (live?.assignments ?? {}) as Record<string, Assignment>
+    for (const [id, a] of Object.entries(assignments)) a.reason = reasons[id]?.reason ?? null
+    if (live) plan = { id: live.id, number: live.number, status: live.status, publishedAt: live.publishedAt }
+  }
+  const winStart = new Date(dayjs.tz(`${o.from} 00:00`, c.timeZone).valueOf())
+  const winEnd = new Date(dayjs.tz(`${o.to} 00:00`, c.timeZone).add(1, 'day').valueOf())
+
+  // Per job bag: expected completion = the end of its last planned operation.
+  const jobs = new Map<number, BoardJob>()
+  const completion = new Map<number, { end: number; reason: string | null }>()
+  for (const [id, m] of data.meta.operations) {
+    const a = assignments[id]
+    if (!a || m.op.status === 'done') continue
+    const end = new Date(a.end).getTime()
+    const cur = completion.get(m.bag.id)
+    if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: a.reason?.detail ?? null })
+  }
+  const items: BoardItem[] = []
+  for (const [id, m] of data.meta.operations) {
+    const due = dayjs.tz(`${m.order.promisedDate ?? m.order.dueDate} 00:00`, c.timeZone).add(1, 'day').valueOf()
+    if (!jobs.has(m.bag.id)) {
+      const comp = completion.get(m.bag.id)
+      const lateness = comp ? Math.round((comp.end - due) / 60_000) : 0
+      jobs.set(m.bag.id, {
+        jobBagId: m.bag.id, number: m.bag.number, piece: m.bag.piece, orderNumber: m.order.number, due: m.order.promisedDate ?? m.order.dueDate,
+        expectedCompletion: comp ? new Date(comp.end).toISOString() : null, latenessMinutes: lateness,
+        state: !comp ? 'unplanned' : lateness > 0 ? 'late' : lateness > -AT_RISK_MINUTES ? 'at-risk' : 'on-time',
+        reason: comp?.reason ?? null,
+      })
+    }
+    const a = assignments[id]
+    if (!a) continue
+    if (new Date(a.end) <= winStart || new Date(a.start) >= winEnd) continue
+    items.push({
+      id: m.op.id, jobBagId: m.bag.id, jobBagNumber: m.bag.number, piece: m.bag.piece, orderId: m.order.id, orderNumber: m.order.number, name: m.op.name,
+      kind: m.kind.code, kindName: m.kind.name, color: m.kind.color, hazards: m.kind.hazards, outside: m.kind.outside || m.op.leadDays > 0, status: m.op.status,
+      benchId: a.benchId === null ? null : Number(a.benchId), personId: a.personId === null ? null : Number(a.personId), start: a.start, end: a.end,
+      pinned: m.op.pinned, version: m.op.version, estimateMinutes: m.op.estimateMinutes, reason: a.reason, late: new Date(a.end).getTime() > due,
+    })
+  }
+  // Time records of running work show where it really is.
+  const toIso = (m: number) => c.toDate(m).toISOString()
+  const ws = c.toMinute(winStart), we = c.toMinute(winEnd)
+  return {
+    window: { from: o.from, to: o.to, timeZone: c.timeZone },
+    now: (o.now ?? new Date()).toISOString(),
+    plan,
+    benches: [...data.meta.benches.values()].map((b) => ({ id: b.id, name: b.name, kind: b.kind })),
+    people: [...data.meta.people.values()].map((p) => ({ id: p.id, name: p.name })),
+    items,
+    jobs: [...jobs.values()].sort((a, b) => a.due.localeCompare(b.due)),
+    nonWorking: data.meta.nonWorking.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
+    closures: data.meta.closures.map((x) => ({ name: x.name, startsOn: x.startsOn, endsOn: x.endsOn })),
+    leave: data.meta.leave.map((l) => ({ personId: l.personId, startsOn: l.startsOn, endsOn: l.endsOn, reason: l.reason })),
+    downtime: data.meta.downtime.map((d) => ({ benchId: d.benchId, startsAt: d.startsAt, endsAt: d.endsAt, reason: d.reason })),
+  }
+}
+
+/** Hours planned against hours available, per bench and per skill, per day and ISO week. */
+export async function weekLoad(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
+  const data = await loadPlanningData(db, workshopId, o.now ?? new Date())
+  const c = data.clock
+  const assignments = o.planId ? ((await getPlan(db, workshopId, o.planId)).assignments as Record<string, Assignment>) : await currentAssignments(db, workshopId)
+  const days: string[] = []
+  for (let d = dayjs(o.from); !d.isAfter(dayjs(o.to)); d = d.add(1, 'day')) days.push(d.format('YYYY-MM-DD'))
+  const dayIv = days.map((d) => ({ day: d, week: `${dayjs(d).isoWeekYear()}-W${String(dayjs(d).isoWeek()).padStart(2, '0')}`, start: c.at(d), end: c.at(dayjs(d).add(1, 'day').format('YYYY-MM-DD')) }))
+  const minutesIn = (list: Interval[], iv: { start: number; end: number }) => clipToWindows(list, iv.start, iv.end).reduce((t, x) => t + x.end - x.start, 0)
+
+  type Row = { type: 'bench' | 'skill'; id: number; name: string; cells: { day: string; week: string; plannedMinutes: number; availableMinutes: number; operationIds: number[] }[] }
+  const rows: Row[] = []
+  const worked = new Map<string, Interval[]>()
+  for (const [id, a] of Object.entries(assignments)) {
+    const m = data.meta.operations.get(id)
+    if (!m || m.op.status === 'done' || m.kind.outside || m.op.leadDays > 0) continue
+    const w = windowsFor(data, a.benchId, a.personId)
+    const s0 = c.toMinute(a.start), e0 = c.toMinute(a.end)
+    worked.set(id, w ? clipToWindows(w, s0, e0) : [{ start: s0, end: e0 }])
+  }
+  for (const b of data.problem.benches) {
+    const row: Row = { type: 'bench', id: Number(b.id), name: b.name, cells: [] }
+    for (const iv of dayIv) {
+      let planned = 0
+      const ids: number[] = []
+      for (const [id, a] of Object.entries(assignments)) {
+        if (a.benchId !== b.id || !worked.has(id)) continue
+        const m = minutesIn(worked.get(id)!, iv)
+        if (m > 0) { planned += m; ids.push(Number(id)) }
+      }
+      row.cells.push({ day: iv.day, week: iv.week, plannedMinutes: planned, availableMinutes: minutesIn(b.available, iv), operationIds: ids })
+    }
+    rows.push(row)
+  }
+  for (const k of data.meta.kinds.values()) {
+    if (k.outside) continue
+    const holders = data.meta.skills.filter((x) => x.kindId === k.id).map((x) => String(x.personId))
+    const row: Row = { type: 'skill', id: k.id, name: k.name, cells: [] }
+    for (const iv of dayIv) {
+      let planned = 0
+      const ids: number[] = []
+      for (const [id, a] of Object.entries(assignments)) {
+        const m = data.meta.operations.get(id)
+        if (!m || m.op.kindId !== k.id || !worked.has(id)) continue
+        const mins = minutesIn(worked.get(id)!, iv)
+        if (mins > 0) { planned += mins; ids.push(Number(id)) }
+      }
+      // Available: the working time of everyone holding the skill (a person with several skills counts in each row).
+      const available = data.problem.people.filter((p) => holders.includes(p.id)).reduce((t, p) => t + minutesIn(p.available, iv), 0)
+      row.cells.push({ day: iv.day, week: iv.week, plannedMinutes: planned, availableMinutes: available, operationIds: ids })
+    }
+    rows.push(row)
+  }
+  const weeks = [...new Set(dayIv.map((d) => d.week))].map((week) => ({ week, days: dayIv.filter((d) => d.week === week).map((d) => d.day) }))
+  return { from: o.from, to: o.to, days, weeks, rows, planningLoad: (await db.select({ l: s.workshops.planningLoad }).from(s.workshops).where(eq(s.workshops.id, workshopId)))[0]?.l ?? 0.85 }
+}

@@ -1,0 +1,150 @@
+// Builds the engine's problem from the workshop's data: calendars as minute intervals, job bags as jobs, operations with options.
+import { and, eq, inArray, notInArray } from 'drizzle-orm'
+import type { Db } from '../../db/client'
+import * as s from '../../db/schema/index'
+import { dayjs, expandPattern, MinuteClock, subtract, dayRange, type Interval } from '../../lib/time'
+import type { Operation as EngineOperation, Problem } from '../../scheduler/model.ts'
+import { intersect } from '../../scheduler/calendar.ts'
+
+export const HORIZON_DAYS = 84
+
+/** Everything loaded for one planning round; `meta` lets the server turn engine ids back into rows and labels. */
+export interface PlanningData {
+  problem: Problem
+  clock: MinuteClock
+  meta: {
+    operations: Map<string, { op: typeof s.operations.$inferSelect; bag: typeof s.jobBags.$inferSelect; order: typeof s.orders.$inferSelect; kind: typeof s.operationKinds.$inferSelect }>
+    benches: Map<string, typeof s.benches.$inferSelect>
+    people: Map<string, typeof s.people.$inferSelect>
+    kinds: Map<number, typeof s.operationKinds.$inferSelect>
+    nonWorking: Interval[]
+    closures: (typeof s.closures.$inferSelect)[]
+    leave: (typeof s.leave.$inferSelect)[]
+    downtime: (typeof s.benchDowntime.$inferSelect)[]
+    skills: (typeof s.personSkills.$inferSelect)[]
+    capabilities: (typeof s.benchCapabilities.$inferSelect)[]
+  }
+}
+
+/** Order priority 1 (most urgent) … 5 becomes a lateness weight 5 … 1. */
+export const weightOfPriority = (priority: number) => 6 - Math.min(5, Math.max(1, priority))
+
+export async function loadPlanningData(db: Db, workshopId: number, now: Date): Promise<PlanningData> {
+  const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
+  if (!w) throw new Error('workshop missing')
+  // Minute 0 is the Monday of this ISO week, so the whole week shows on the board.
+  const originDay = dayjs(now).tz(w.timeZone).startOf('isoWeek').format('YYYY-MM-DD')
+  const clock = new MinuteClock(w.timeZone, originDay)
+  const days = clock.days(HORIZON_DAYS)
+  const lastDay = days[days.length - 1]!
+
+  const [closures, benches, caps, downtime, people, skills, leave, kinds] = await Promise.all([
+    db.select().from(s.closures).where(eq(s.closures.workshopId, workshopId)),
+    db.select().from(s.benches).where(and(eq(s.benches.workshopId, workshopId), eq(s.benches.active, true))),
+    db.select({ benchId: s.benchCapabilities.benchId, kindId: s.benchCapabilities.kindId }).from(s.benchCapabilities).innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId)).where(eq(s.benches.workshopId, workshopId)),
+    db.select({ d: s.benchDowntime }).from(s.benchDowntime).innerJoin(s.benches, eq(s.benches.id, s.benchDowntime.benchId)).where(eq(s.benches.workshopId, workshopId)).then((r) => r.map((x) => x.d)),
+    db.select().from(s.people).where(and(eq(s.people.workshopId, workshopId), eq(s.people.active, true))),
+    db.select({ k: s.personSkills }).from(s.personSkills).innerJoin(s.people, eq(s.people.id, s.personSkills.personId)).where(eq(s.people.workshopId, workshopId)).then((r) => r.map((x) => x.k)),
+    db.select({ l: s.leave }).from(s.leave).innerJoin(s.people, eq(s.people.id, s.leave.personId)).where(eq(s.people.workshopId, workshopId)).then((r) => r.map((x) => x.l)),
+    db.select().from(s.operationKinds).where(eq(s.operationKinds.workshopId, workshopId)),
+  ])
+  const closed = closures.map((c) => dayRange(clock, c.startsOn, c.endsOn))
+  const workshopHours = subtract(expandPattern(clock, w.weekPattern, days), closed)
+  const nonWorking = subtract([{ start: 0, end: clock.at(lastDay, '23:59') }], workshopHours)
+  const workshopDays = subtract(
+    days.filter((d) => w.weekPattern.some((p) => p.weekday === dayjs(d).isoWeekday())).map((d) => dayRange(clock, d, d)),
+    closed,
+  )
+
+  const benchModels = benches.map((b) => ({
+    id: String(b.id), name: b.name,
+    available: subtract(workshopHours, downtime.filter((d) => d.benchId === b.id).map((d) => ({ start: clock.toMinute(d.startsAt), end: clock.toMinute(d.endsAt) }))),
+  }))
+  const personModels = people.map((p) => ({
+    id: String(p.id), name: p.name,
+    available: subtract(
+      subtract(expandPattern(clock, p.weekPattern ?? w.weekPattern, days), closed),
+      leave.filter((l) => l.personId === p.id).map((l) => dayRange(clock, l.startsOn, l.endsOn)),
+    ),
+  }))
+
+  // Open work: job bags of orders still to make.
+  const orders = await db.select().from(s.orders).where(and(eq(s.orders.workshopId, workshopId), notInArray(s.orders.status, ['collected', 'cancelled', 'ready', 'quoted'])))
+  const bags = orders.length
+    ? await db.select().from(s.jobBags).where(and(inArray(s.jobBags.orderId, orders.map((o) => o.id)), notInArray(s.jobBags.status, ['complete', 'cancelled'])))
+    : []
+  const ops = bags.length ? await db.select().from(s.operations).where(inArray(s.operations.jobBagId, bags.map((b) => b.id))) : []
+  const openRecords = ops.length
+    ? await db.select().from(s.timeRecords).where(inArray(s.timeRecords.operationId, ops.map((o) => o.id)))
+    : []
+
+  const nowMin = clock.toMinute(now)
+  const kindMap = new Map(kinds.map((k) => [k.id, k]))
+  const orderMap = new Map(orders.map((o) => [o.id, o]))
+  const bagMap = new Map(bags.map((b) => [b.id, b]))
+  const meta: PlanningData['meta'] = {
+    operations: new Map(), benches: new Map(benches.map((b) => [String(b.id), b])), people: new Map(people.map((p) => [String(p.id), p])),
+    kinds: kindMap, nonWorking, closures, leave, downtime, skills, capabilities: caps,
+  }
+  const keyToId = new Map(ops.map((o) => [`${o.jobBagId}:${o.key}`, String(o.id)]))
+  const engineOps: EngineOperation[] = []
+  for (const op of ops) {
+    const bag = bagMap.get(op.jobBagId)!
+    const kind = kindMap.get(op.kindId)!
+    meta.operations.set(String(op.id), { op, bag, order: orderMap.get(bag.orderId)!, kind })
+    const base: EngineOperation = {
+      id: String(op.id), jobId: String(bag.id), name: op.name, kind: kind.code,
+      predecessors: op.after.map((k) => keyToId.get(`${bag.id}:${k}`)).filter((x): x is string => !!x),
+      options: [],
+      ...(op.waitAfterMinutes > 0 ? { waitAfter: op.waitAfterMinutes } : {}),
+    }
+    if (op.status === 'done' || op.status === 'skipped') {
+      engineOps.push({ ...base, done: true })
+      continue
+    }
+    if (op.leadDays > 0 || kind.outside) {
+      engineOps.push({ ...base, outsideWorkingDays: Math.max(1, op.leadDays), ...(op.pinned && op.plannedStart ? { fixed: { benchId: null, personId: null, start: clock.toMinute(op.plannedStart) } } : {}) })
+      continue
+    }
+    const records = openRecords.filter((r) => r.operationId === op.id)
+    const workedMin = records.reduce((t, r) => t + ((r.endedAt ? new Date(r.endedAt).getTime() : now.getTime()) - new Date(r.startedAt).getTime()) / 60_000, 0)
+    const remaining = (speed: number) => Math.max(5, Math.ceil(op.estimateMinutes / speed - workedMin))
+    const benchIds = caps.filter((c) => c.kindId === op.kindId).map((c) => c.benchId).filter((id) => meta.benches.has(String(id)))
+    const able = skills.filter((k) => k.kindId === op.kindId && k.level >= op.requiredLevel && meta.people.has(String(k.personId)))
+    let options = benchIds.flatMap((b) => able.map((k) => ({ benchId: String(b), personId: String(k.personId), minutes: remaining(k.speed) })))
+    // Claimed, running or paused work stays with its person (and, when running, its bench).
+    if (op.claimedBy && ['claimed', 'running', 'paused'].includes(op.status)) options = options.filter((o) => o.personId === String(op.claimedBy))
+    const running = op.status === 'running' ? records.find((r) => !r.endedAt) : undefined
+    if (running?.benchId) options = options.filter((o) => o.benchId === String(running.benchId))
+    let fixed: EngineOperation['fixed']
+    const pinAt = op.pinned && op.plannedStart && op.plannedBenchId && op.plannedPersonId ? clock.toMinute(op.plannedStart) : null
+    if (running && options[0]) {
+      const o = options[0]
+      const windows = intersect(benchModels.find((b) => b.id === o.benchId)!.available, personModels.find((p) => p.id === o.personId)!.available)
+      const next = windows.find((x) => x.end > nowMin)
+      if (next) fixed = { benchId: o.benchId, personId: o.personId, start: Math.max(next.start, nowMin) }
+    } else if (pinAt !== null && pinAt >= nowMin) {
+      const pinned = options.filter((o) => o.benchId === String(op.plannedBenchId) && o.personId === String(op.plannedPersonId))
+      if (pinned.length) {
+        options = pinned
+        fixed = { benchId: pinned[0]!.benchId, personId: pinned[0]!.personId, start: pinAt }
+      }
+    }
+    engineOps.push({ ...base, options, ...(fixed ? { fixed } : {}) })
+  }
+
+  const jobs = bags.map((b) => {
+    const order = orderMap.get(b.orderId)!
+    return {
+      id: String(b.id), name: `${b.number} ${b.piece}`,
+      release: Math.max(nowMin, b.releaseAt ? clock.toMinute(b.releaseAt) : nowMin),
+      due: clock.at(dayjs(order.promisedDate ?? order.dueDate).add(1, 'day').format('YYYY-MM-DD')),
+      weight: weightOfPriority(order.priority),
+    }
+  })
+  const problem: Problem = {
+    origin: originDay, now: nowMin, horizon: clock.at(lastDay, '23:59'), workshopDays,
+    benches: benchModels, people: personModels, jobs, operations: engineOps,
+  }
+  return { problem, clock, meta }
+}

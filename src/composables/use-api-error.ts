@@ -1,0 +1,88 @@
+// Shows API and validation errors: a toast for the whole, reasons next to the form fields they belong to.
+import { reactive, ref } from 'vue'
+import type { ZodType, z } from 'zod'
+import { ApiError } from '@/api/client'
+
+/** "is required" → "Is required": field reasons read as short sentences under the field. */
+const sentence = (s: string) => (s ? s.charAt(0).toUpperCase() + s.slice(1) : s)
+
+/** Field path → reason, from zod issues (same keys the server uses: `steps.0.key`). */
+export function zodFieldErrors(error: z.ZodError): Record<string, string> {
+  const out: Record<string, string> = {}
+  for (const issue of error.issues) {
+    const key = issue.path.length ? issue.path.map(String).join('.') : '_'
+    if (!out[key]) out[key] = issue.message
+  }
+  return out
+}
+
+export function messageOf(err: unknown): string {
+  if (err instanceof ApiError) return err.message
+  if (err instanceof Error) return err.message
+  return 'Something went wrong.'
+}
+
+export function useApiError() {
+  /** Reasons by field path; bind with `<el-form-item :error="fields.name">`. */
+  const fields = reactive<Record<string, string>>({})
+  const busy = ref(false)
+
+  function clear() {
+    for (const k of Object.keys(fields)) delete fields[k]
+  }
+  function setFields(f: Record<string, string>) {
+    clear()
+    for (const [k, v] of Object.entries(f)) fields[k] = sentence(v)
+  }
+
+  /** Shows any error; an ApiError's field reasons go next to the fields. */
+  function show(err: unknown) {
+    if (err instanceof ApiError && Object.keys(err.fields).length) setFields(err.fields)
+    ElMessage({ type: 'error', message: messageOf(err), grouping: true, showClose: true, duration: 6000 })
+  }
+
+  /** Client-side check with the shared schema before sending: the parsed value, or null with reasons shown. */
+  function check<S extends ZodType>(schema: S, value: unknown): z.output<S> | null {
+    const r = schema.safeParse(value)
+    if (r.success) {
+      clear()
+      return r.data as z.output<S>
+    }
+    setFields(zodFieldErrors(r.error))
+    ElMessage({ type: 'warning', message: 'Please correct the marked fields.', grouping: true })
+    return null
+  }
+
+  /** Runs a call with `busy` set; errors are shown and undefined returned. */
+  async function run<T>(fn: () => Promise<T>): Promise<T | undefined> {
+    busy.value = true
+    try {
+      return await fn()
+    } catch (err) {
+      show(err)
+      return undefined
+    } finally {
+      busy.value = false
+    }
+  }
+
+  /** Reasons for a list row, e.g. rowFields('steps', 2) → { key: '…' } from `steps.2.key`. */
+  function rowFields(prefix: string, index: number): Record<string, string> {
+    const p = `${prefix}.${index}.`
+    const out: Record<string, string> = {}
+    for (const [k, v] of Object.entries(fields)) if (k.startsWith(p)) out[k.slice(p.length)] = v
+    return out
+  }
+
+  /** Reasons below a path, keys relative to it, e.g. under('weekPattern') → { '3.end': '…', '': '…' }. */
+  function under(prefix: string): Record<string, string> {
+    const out: Record<string, string> = {}
+    for (const [k, v] of Object.entries(fields)) {
+      if (k === prefix) out[''] = v
+      else if (k.startsWith(`${prefix}.`)) out[k.slice(prefix.length + 1)] = v
+    }
+    return out
+  }
+
+  return { fields, busy, clear, setFields, show, check, run, rowFields, under }
+}

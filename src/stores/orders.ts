@@ -1,0 +1,38 @@
+// Orders: the current page of the server-side search, and taking or changing an order.
+import { defineStore } from 'pinia'
+import { reactive, ref } from 'vue'
+import type { OrderInput, OrderSummary, OrderUpdate } from '@shared/schemas/order'
+import type { OrderStatus } from '@shared/domain/status'
+import * as ordersApi from '@/api/orders'
+import { useLoading } from '@/composables/use-loading'
+
+export const useOrdersStore = defineStore('orders', () => {
+  /** Rows of the current page. */
+  const items = ref<OrderSummary[]>([])
+  /** Matches over all pages. */
+  const total = ref(0)
+  /** Search, status filter, sort and page sent to the server. */
+  const query = reactive<{ q: string; status: OrderStatus | ''; page: number; pageSize: number; sort: string; order: 'asc' | 'desc' }>({
+    q: '', status: '', page: 1, pageSize: 20, sort: 'due', order: 'asc',
+  })
+  const { loading, error, track } = useLoading()
+
+  async function load() {
+    const page = await track(() => ordersApi.listOrders({ ...query, status: query.status || undefined }))
+    items.value = page.items
+    total.value = page.total
+  }
+  async function create(input: OrderInput) {
+    const o = await ordersApi.createOrder(input)
+    await load()
+    return o
+  }
+  async function update(id: number, input: OrderUpdate) {
+    const o = await ordersApi.updateOrder(id, input)
+    const i = items.value.findIndex((x) => x.id === id)
+    if (i >= 0) items.value.splice(i, 1, { ...items.value[i]!, title: o.title, dueDate: o.dueDate, promisedDate: o.promisedDate, priority: o.priority, status: o.status, priceQuoted: o.priceQuoted, version: o.version })
+    return o
+  }
+
+  return { items, total, query, loading, error, load, create, update, get: ordersApi.getOrder }
+})

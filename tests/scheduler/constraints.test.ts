@@ -1,0 +1,193 @@
+// One focused test per scheduling rule, each plan also checked by the independent validator.
+import { describe, it, expect } from 'vitest'
+import { solve, validatePlan, type Plan, type Problem } from '../../server/scheduler/index.ts'
+import { at, makeBench, makeJob, makeOperation, makePerson, makeProblem, weekdays } from './builders.ts'
+
+const plan = (problem: Problem, timeLimitMs = 200): Plan => {
+  const p = solve(problem, { seed: 1, timeLimitMs, maxIterations: 300 }, { clock: () => performance.now() })
+  expect(validatePlan(problem, p)).toEqual([])
+  expect(p.score.feasible).toBe(true)
+  return p
+}
+const placed = (p: Plan, id: string) => {
+  const x = p.operations.find((o) => o.operationId === id)
+  if (!x) throw new Error(`operation ${id} not planned`)
+  return x
+}
+
+describe('engine constraints', () => {
+  it('when the bench opens at 8 and the person at 10, then the work starts at 10 with both, for working-time reasons', () => {
+    const problem = makeProblem({
+      benches: [makeBench({ id: 'b1', available: [{ start: at(0, 8), end: at(0, 12) }, { start: at(1, 8), end: at(1, 12) }] })],
+      people: [makePerson({ id: 'p1', name: 'Ada', available: [{ start: at(0, 10), end: at(0, 16) }, { start: at(1, 8), end: at(1, 16) }] })],
+      operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 60] })],
+    })
+    const a = placed(plan(problem), 'a')
+    expect(a.start).toBe(at(0, 10))
+    expect(a.segments).toEqual([{ start: at(0, 10), end: at(0, 11) }])
+    expect(a.reason.kind).toBe('working-time')
+  })
+
+  it('when work runs past closing time, then it resumes next working morning on the same bench with the same person', () => {
+    const problem = makeProblem({
+      benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
+      people: [makePerson({ id: 'p1' }), makePerson({ id: 'p2' })],
+      jobs: [makeJob({ id: 'j', release: at(0, 13) })],
+      operations: [makeOperation({ id: 'a', jobId: 'j', options: [{ benchId: 'b1', personId: 'p1', minutes: 300 }, { benchId: 'b2', personId: 'p2', minutes: 300 }] })],
+    })
+    const a = placed(plan(problem), 'a')
+    expect(a.segments).toEqual([{ start: at(0, 13), end: at(0, 16) }, { start: at(1, 8), end: at(1, 10) }])
+    expect(a.end).toBe(at(1, 10))
+  })
+
+  it('when a routing branches and joins, then the join starts after both branches end', () => {
+    const problem = makeProblem({
+      benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
+      people: [makePerson({ id: 'p1' }), makePerson({ id: 'p2' })],
+      operations: [
+        makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30] }),
+        makeOperation({ id: 'b', jobId: 'j', predecessors: ['a'], on: ['b1', 'p1', 60] }),
+        makeOperation({ id: 'c', jobId: 'j', predecessors: ['a'], on: ['b2', 'p2', 90] }),
+        makeOperation({ id: 'd', jobId: 'j', predecessors: ['b', 'c'], on: ['b1', 'p1', 10] }),
+      ],
+    })
+    const p = plan(problem)
+    const [a, b, c, d] = ['a', 'b', 'c', 'd'].map((id) => placed(p, id))
+    expect(b!.start).toBeGreaterThanOrEqual(a!.end)
+    expect(c!.start).toBeGreaterThanOrEqual(a!.end)
+    expect(b!.start).toBe(c!.start) // the branches run side by side
+    expect(d!.start).toBe(Math.max(b!.end, c!.end))
+    expect(d!.reason).toMatchObject({ kind: 'predecessor', blockerId: 'c' })
+  })
+
+  it('when an operation has a pickle wait after it, then its successor starts only after the wait', () => {
+    const problem = makeProblem({
+      operations: [
+        makeOperation({ id: 'solder', jobId: 'j', on: ['b1', 'p1', 30], waitAfter: 20 }),
+        makeOperation({ id: 'file', jobId: 'j', predecessors: ['solder'], on: ['b1', 'p1', 30] }),
+      ],
+    })
+    const p = plan(problem)
+    expect(placed(p, 'file').start).toBe(placed(p, 'solder').end + 20)
+  })
+
+  it('when casting takes two working days over a closure day, then the closure is not counted', () => {
+    const problem = makeProblem({
+      workshopDays: weekdays({ closed: [2] }), // Wednesday closed
+      jobs: [makeJob({ id: 'j', release: at(0, 10) })],
+      operations: [
+        makeOperation({ id: 'cast', jobId: 'j', outsideWorkingDays: 2 }),
+        makeOperation({ id: 'clean', jobId: 'j', predecessors: ['cast'], on: ['b1', 'p1', 30] }),
+      ],
+    })
+    const p = plan(problem)
+    const cast = placed(p, 'cast')
+    expect(cast).toMatchObject({ start: at(0, 10), end: at(3, 16), benchId: null, personId: null }) // Tuesday and Thursday
+    expect(placed(p, 'clean').start).toBe(at(4, 8))
+  })
+
+  it('when a job is released on Tuesday morning, then none of its work starts earlier', () => {
+    const problem = makeProblem({
+      jobs: [makeJob({ id: 'j', release: at(1, 9) })],
+      operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30] })],
+    })
+    const a = placed(plan(problem), 'a')
+    expect(a.start).toBe(at(1, 9))
+    expect(a.reason.kind).toBe('release')
+  })
+
+  it('when an operation is pinned, then it keeps its bench, person and start and others plan around it', () => {
+    const problem = makeProblem({
+      operations: [
+        makeOperation({ id: 'pinned', jobId: 'j1', on: ['b1', 'p1', 60], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 9) } }),
+        makeOperation({ id: 'free', jobId: 'j2', on: ['b1', 'p1', 90] }),
+      ],
+    })
+    const p = plan(problem)
+    expect(placed(p, 'pinned')).toMatchObject({ start: at(0, 9), end: at(0, 10), benchId: 'b1', personId: 'p1', reason: { kind: 'fixed' } })
+    expect(placed(p, 'free').start).toBe(at(0, 10))
+  })
+
+  it('when an operation is done, then it is left out and its successor may start at once', () => {
+    const problem = makeProblem({
+      operations: [
+        makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 60], done: true }),
+        makeOperation({ id: 'b', jobId: 'j', predecessors: ['a'], on: ['b1', 'p1', 30] }),
+      ],
+    })
+    const p = plan(problem)
+    expect(p.operations.map((o) => o.operationId)).toEqual(['b'])
+    expect(placed(p, 'b').start).toBe(at(0, 8))
+  })
+
+  it('when it is already 11:00, then nothing new starts before 11:00', () => {
+    const problem = makeProblem({ now: at(0, 11), operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30] })] })
+    const a = placed(plan(problem), 'a')
+    expect(a.start).toBe(at(0, 11))
+    expect(a.reason.kind).toBe('now')
+  })
+
+  it('when two job bags compete for one bench, then the urgent one goes first and lateness becomes tardiness', () => {
+    const problem = makeProblem({
+      jobs: [makeJob({ id: 'late', due: at(3, 16) }), makeJob({ id: 'urgent', due: at(0, 10), weight: 3 })],
+      operations: [makeOperation({ id: 'l', jobId: 'late', on: ['b1', 'p1', 120] }), makeOperation({ id: 'u', jobId: 'urgent', on: ['b1', 'p1', 180] })],
+    })
+    const p = plan(problem)
+    expect(placed(p, 'u').start).toBe(at(0, 8))
+    const urgent = p.jobs.find((j) => j.jobId === 'urgent')!
+    expect(urgent).toMatchObject({ completion: at(0, 11), lateness: 60, tardiness: 60 })
+    expect(p.jobs.find((j) => j.jobId === 'late')!.tardiness).toBe(0)
+    expect(p.score.weightedTardiness).toBe(180)
+  })
+
+  it('when two benches are equally good, then the one of the previous plan is kept', () => {
+    const base = {
+      benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
+      operations: [makeOperation({ id: 'a', jobId: 'j', options: [{ benchId: 'b1', personId: 'p1', minutes: 30 }, { benchId: 'b2', personId: 'p1', minutes: 30 }] })],
+    }
+    expect(placed(plan(makeProblem(base)), 'a').benchId).toBe('b1')
+    const stable = plan(makeProblem({ ...base, previous: { a: { benchId: 'b2', personId: 'p1', start: at(0, 8) } } }))
+    expect(placed(stable, 'a').benchId).toBe('b2')
+    expect(stable.score.moves).toBe(0)
+  })
+
+  it('when a person is busy with other work, then the reason names the person, the blocking work and the time', () => {
+    const problem = makeProblem({
+      benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
+      people: [makePerson({ id: 'p1', name: 'Ada' })],
+      jobs: [makeJob({ id: 'j1', due: at(0, 9) }), makeJob({ id: 'j2', due: at(5, 9) })],
+      operations: [
+        makeOperation({ id: 'first', jobId: 'j1', kind: 'setting', on: ['b1', 'p1', 360] }),
+        makeOperation({ id: 'second', jobId: 'j2', on: ['b2', 'p1', 60] }),
+      ],
+    })
+    const second = placed(plan(problem), 'second')
+    expect(second.start).toBe(at(0, 14))
+    expect(second.reason).toMatchObject({ kind: 'person', blockerId: 'first' })
+    expect(second.reason.detail).toBe('waiting for Ada (setting) until Mon 14:00')
+  })
+
+  it('when a bench is taken by another job, then the reason is the bench with the blocking operation', () => {
+    const problem = makeProblem({
+      people: [makePerson({ id: 'p1' }), makePerson({ id: 'p2' })],
+      jobs: [makeJob({ id: 'j1', due: at(0, 9) }), makeJob({ id: 'j2', due: at(5, 9) })],
+      operations: [makeOperation({ id: 'first', jobId: 'j1', on: ['b1', 'p1', 60] }), makeOperation({ id: 'second', jobId: 'j2', on: ['b1', 'p2', 60] })],
+    })
+    const second = placed(plan(problem), 'second')
+    expect(second.reason).toMatchObject({ kind: 'bench', blockerId: 'first' })
+    expect(second.reason.detail).toContain('until Mon 09:00')
+  })
+
+  it('when the same problem and seed are solved twice with an iteration cap, then the plans are identical', () => {
+    const problem = makeProblem({
+      benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
+      jobs: [makeJob({ id: 'j1', due: at(0, 12) }), makeJob({ id: 'j2', due: at(0, 12) }), makeJob({ id: 'j3', due: at(0, 12) })],
+      operations: ['j1', 'j2', 'j3'].flatMap((j) => [
+        makeOperation({ id: `${j}a`, jobId: j, options: [{ benchId: 'b1', personId: 'p1', minutes: 40 }, { benchId: 'b2', personId: 'p1', minutes: 50 }] }),
+        makeOperation({ id: `${j}b`, jobId: j, predecessors: [`${j}a`], options: [{ benchId: 'b2', personId: 'p1', minutes: 30 }] }),
+      ]),
+    })
+    const run = () => solve(problem, { seed: 42, timeLimitMs: 60_000, maxIterations: 200 }, { clock: () => performance.now() })
+    expect(run().operations).toEqual(run().operations)
+  })
+})

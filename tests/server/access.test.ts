@@ -1,0 +1,182 @@
+// The route × role matrix: every declared route has an agreed access entry, and each role is let in or kept out accordingly.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { ROLES, type Role } from '../../shared/domain/roles'
+import type { Access, RouteSpec } from '../../server/lib/route'
+import { allRoutes } from '../../server/routes/index'
+import { Agent, DEMO_EMAIL, createTestApp, signedIn, type TestApp } from '../setup/app'
+
+// Who may do what, from the product's roles: owner everything; manager planning, orders, people, benches;
+// bench its own queue and time records; sales customers, orders, promise dates and a read-only plan.
+const ALL: Role[] = ['owner', 'manager', 'bench', 'sales']
+const STAFF: Role[] = ['owner', 'manager']
+const FRONT: Role[] = ['owner', 'manager', 'sales']
+const OWNER: Role[] = ['owner']
+
+/**
+ * The agreed access of every API route: "METHOD /path" → roles allowed, or 'public'.
+ * A new route needs an entry here; a change of a route's roles must be made here too, on purpose.
+ */
+export const EXPECTED_ACCESS: Record<string, Access> = {
+  // session
+  'GET /health': 'public',
+  'GET /session': 'public',
+  'POST /session': 'public',
+  'DELETE /session': ALL,
+  // operation kinds
+  'GET /operation-kinds': ALL,
+  'POST /operation-kinds': STAFF,
+  'PATCH /operation-kinds/:id': STAFF,
+  // benches
+  'GET /benches': ALL,
+  'POST /benches': STAFF,
+  'PATCH /benches/:id': STAFF,
+  'POST /benches/:id/downtime': STAFF,
+  'DELETE /benches/:id/downtime/:childId': STAFF,
+  // people
+  'GET /people': ALL,
+  'POST /people': STAFF,
+  'PATCH /people/:id': STAFF,
+  'POST /people/:id/leave': STAFF,
+  'DELETE /people/:id/leave/:childId': STAFF,
+  // calendar
+  'GET /workshop': ALL,
+  'PUT /workshop': OWNER,
+  'GET /closures': ALL,
+  'POST /closures': STAFF,
+  'DELETE /closures/:id': STAFF,
+  // routing templates
+  'GET /templates': ALL,
+  'GET /templates/:id': ALL,
+  'POST /templates': STAFF,
+  'PUT /templates/:id': STAFF,
+  // customers
+  'GET /customers': FRONT,
+  'GET /customers/:id': FRONT,
+  'POST /customers': FRONT,
+  'PATCH /customers/:id': FRONT,
+  // users
+  'GET /users': OWNER,
+  'POST /users': OWNER,
+  'PATCH /users/:id': OWNER,
+  // orders
+  'GET /orders': FRONT,
+  'GET /orders/:id': FRONT,
+  'POST /orders': FRONT,
+  'PATCH /orders/:id': FRONT,
+}
+
+const keyOf = (r: Pick<RouteSpec, 'method' | 'path'>) => `${r.method.toUpperCase()} ${r.path}`
+const norm = (a: Access) => (a === 'public' ? 'public' : [...a].sort())
+
+/** Real ids from the seeded database, found by the path segment before the parameter; 999999 otherwise. */
+const ID_SOURCES: Record<string, string> = {
+  benches: 'select min(id) as id from benches',
+  downtime: 'select min(id) as id from bench_downtime',
+  people: 'select min(id) as id from people',
+  leave: 'select min(id) as id from leave',
+  'operation-kinds': 'select min(id) as id from operation_kinds',
+  closures: 'select min(id) as id from closures',
+  templates: 'select min(id) as id from routing_templates',
+  customers: 'select min(id) as id from customers',
+  users: "select max(id) as id from users where role = 'bench'",
+  orders: "select min(id) as id from orders where status = 'open'",
+  'job-bags': "select min(id) as id from job_bags where status = 'waiting'",
+  bags: "select min(id) as id from job_bags where status = 'waiting'",
+  operations: "select min(id) as id from operations where status = 'ready'",
+  'time-records': 'select min(id) as id from time_records',
+  plans: 'select min(id) as id from plan_versions',
+}
+const ids: Record<string, number> = {}
+
+function concretePath(path: string): string {
+  const segs = path.split('/')
+  return segs.map((s, i) => (s.startsWith(':') ? String(ids[segs[i - 1] ?? ''] ?? 999999) : s)).join('/')
+}
+
+function call(a: Agent, r: RouteSpec) {
+  const url = `/api${concretePath(r.path)}`
+  if (r.method === 'get') return a.get(url)
+  if (r.method === 'delete') return a.delete(url)
+  return a[r.method](url, {})
+}
+
+let t: TestApp
+const agents = {} as Record<Role, Agent>
+let anonymous: Agent
+
+beforeAll(async () => {
+  t = await createTestApp()
+  for (const [segment, q] of Object.entries(ID_SOURCES)) {
+    try {
+      const { rows } = await t.pool.query(q)
+      if (rows[0]?.id != null) ids[segment] = Number(rows[0].id)
+    } catch {
+      // The table does not exist (yet): the placeholder id is used.
+    }
+  }
+  for (const role of ROLES) agents[role] = await signedIn(t.app, role)
+  anonymous = new Agent(t.app)
+  await anonymous.refreshCsrf()
+})
+afterAll(async () => { await t?.close() })
+
+describe('access table', () => {
+  it('when a route is declared, then it has an entry in the expected-access table', () => {
+    const missing = allRoutes.filter((r) => !(keyOf(r) in EXPECTED_ACCESS))
+    expect(
+      missing.map((r) => `'${keyOf(r)}': ${JSON.stringify(r.roles)}`),
+      'Routes without an entry: add each to EXPECTED_ACCESS in tests/server/access.test.ts with the roles the product intends',
+    ).toEqual([])
+  })
+
+  it('when an entry is in the table, then the route still exists', () => {
+    const declared = new Set(allRoutes.map(keyOf))
+    expect(Object.keys(EXPECTED_ACCESS).filter((k) => !declared.has(k)), 'Entries for routes that no longer exist: remove them from EXPECTED_ACCESS').toEqual([])
+  })
+
+  it('when a route declares its roles, then they equal the agreed access', () => {
+    const differ = allRoutes
+      .filter((r) => keyOf(r) in EXPECTED_ACCESS)
+      .filter((r) => JSON.stringify(norm(r.roles)) !== JSON.stringify(norm(EXPECTED_ACCESS[keyOf(r)]!)))
+      .map((r) => `${keyOf(r)}: declared ${JSON.stringify(r.roles)}, agreed ${JSON.stringify(EXPECTED_ACCESS[keyOf(r)])}`)
+    expect(differ).toEqual([])
+  })
+
+  it('when routes are declared, then no two share a method and path, and none is public except health and session', () => {
+    const keys = allRoutes.map(keyOf)
+    expect(keys.filter((k, i) => keys.indexOf(k) !== i)).toEqual([])
+    expect(allRoutes.filter((r) => r.roles === 'public').map((r) => r.path).filter((p) => p !== '/health' && p !== '/session')).toEqual([])
+    for (const r of allRoutes) if (r.roles !== 'public') expect(r.roles.length, `${keyOf(r)} lists no role`).toBeGreaterThan(0)
+  })
+})
+
+// Sign-out ends the session: it runs last for each role so the rest of the walk stays signed in.
+const walkOrder = [...allRoutes].sort((a, b) => Number(keyOf(a) === 'DELETE /session') - Number(keyOf(b) === 'DELETE /session'))
+
+describe.each([...ROLES, 'not signed in'] as const)('as %s', (who) => {
+  it.each(walkOrder.map((r) => [keyOf(r), r] as const))('when calling %s, then access follows the declared roles', async (_k, r) => {
+    const agent = who === 'not signed in' ? anonymous : agents[who]
+    const res = await call(agent, r)
+    const detail = `${who} ${keyOf(r)} → ${res.status} ${JSON.stringify(res.body)}`
+    expect(res.status, `no 500 for placeholder input: ${detail}`).not.toBe(500)
+    if (r.roles === 'public') {
+      expect(res.status, detail).not.toBe(401)
+      expect(res.status, detail).not.toBe(403)
+    } else if (who === 'not signed in') {
+      expect(res.status, detail).toBe(401)
+      expect(res.body.code).toBe('unauthenticated')
+    } else if (!r.roles.includes(who)) {
+      expect(res.status, detail).toBe(403)
+      expect(res.body.code).toBe('forbidden')
+    } else {
+      expect(res.status, detail).not.toBe(401)
+      expect(res.status, detail).not.toBe(403)
+    }
+    // A write may have ended or changed the session (sign-out): sign in again for the rest of the walk.
+    if (who !== 'not signed in' && r.method !== 'get') {
+      const s = await agent.get('/api/session')
+      if (!s.body.user) agents[who] = await signedIn(t.app, who)
+      else if (s.body.user.email !== DEMO_EMAIL[who]) throw new Error(`session of ${who} changed to ${s.body.user.email}`)
+    }
+  })
+})

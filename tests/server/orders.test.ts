@@ -1,0 +1,194 @@
+// Orders API against real PostgreSQL: taking an order with pieces (job bags, routings copied as operations), the list, changes.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from './helpers'
+
+let t: TestApp
+let sales: Agent
+let manager: Agent
+let tpl: Record<string, { id: number; steps: { key: string; kindId: number; requiredLevel: number; waitAfterMinutes: number; leadDays: number; after: string[] }[] }>
+let customerId: number
+
+interface Op { key: string; seq: number; kindId: number; status: string; estimateMinutes: number; estimateSource: string; after: string[]; requiredLevel: number; waitAfterMinutes: number; leadDays: number }
+const byKey = (ops: Op[]) => Object.fromEntries(ops.map((o) => [o.key, o]))
+const estimates = (ops: Op[]) => Object.fromEntries(ops.map((o) => [o.key, o.estimateMinutes]))
+const statuses = (ops: Op[]) => Object.fromEntries(ops.map((o) => [o.key, o.status]))
+
+beforeAll(async () => {
+  t = await createTestApp()
+  sales = await signedIn(t.app, 'sales')
+  manager = await signedIn(t.app, 'manager')
+  tpl = Object.fromEntries((await manager.get('/api/templates')).body.map((x: { code: string }) => [x.code, x]))
+  customerId = (await sales.get('/api/customers?q=Emrys')).body.items[0].id
+})
+afterAll(async () => { await t?.close() })
+
+const orderCount = async () => (await t.pool.query('select count(*)::int as n from orders')).rows[0].n as number
+
+describe('taking an order', () => {
+  it('when an order with two pieces is taken, then it is numbered, each piece gets a numbered job bag, and it is audited', async () => {
+    const n = await orderCount()
+    const r = await sales.post('/api/orders', {
+      customerId, title: 'Pendant and ring set', dueDate: '2031-06-20', promisedDate: '2031-06-18', priority: 2, priceQuoted: 1850,
+      pieces: [
+        { templateId: tpl['pave-pendant']!.id, piece: 'Pavé wave pendant', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, quantity: 2 } },
+        { templateId: tpl['bezel-ring']!.id, piece: 'Garnet bezel ring', params: { stoneCount: 1, stoneSizeMm: 7 } },
+      ],
+    })
+    expect(r.status).toBe(201)
+    // Order number: MG + two-digit year of the due date + running count in the workshop (our own scheme).
+    const number = `MG31-${String(n + 1).padStart(4, '0')}`
+    expect(r.body).toMatchObject({ number, customerId, customerName: 'Emrys Calloway', title: 'Pendant and ring set', dueDate: '2031-06-20', promisedDate: '2031-06-18', priority: 2, priceQuoted: 1850, status: 'open', version: 0 })
+    expect(r.body.jobBags.map((b: { number: string; piece: string }) => [b.number, b.piece])).toEqual([[`${number}-1`, 'Pavé wave pendant'], [`${number}-2`, 'Garnet bezel ring']])
+    expect(r.body.jobBags[0]).toMatchObject({ templateId: tpl['pave-pendant']!.id, status: 'waiting', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, sizeMm: 0, finish: 'polished', quantity: 2 } })
+    expect(r.body.jobBags[1].params).toMatchObject({ metal: 'silver-925', quantity: 1, stoneCount: 1 })
+
+    const got = await sales.get(`/api/orders/${r.body.id}`)
+    expect(got.body).toEqual(r.body)
+    expect((await auditRows(t, 'order', r.body.id))[0]).toMatchObject({ action: 'create', details: { number, pieces: 2 } })
+    const next = await sales.post('/api/orders', { customerId, title: 'Next one', dueDate: '2032-01-05' })
+    expect(next.body.number).toBe(`MG32-${String(n + 2).padStart(4, '0')}`)
+    expect(next.body.jobBags).toEqual([])
+  })
+
+  it('when a pavé pendant with 18 stones is ordered twice over, then each step is (base + per-stone × 18) × 2 minutes', async () => {
+    const r = await sales.post('/api/orders', { customerId, title: 'Two pendants', dueDate: '2031-07-01', pieces: [{ templateId: tpl['pave-pendant']!.id, piece: 'Pavé pendant', params: { stoneCount: 18, quantity: 2 } }] })
+    const ops: Op[] = r.body.jobBags[0].operations
+    // Hand-computed from the seeded pavé-pendant routing (server/db/seed.ts); estimate rule: common practice, no source.
+    expect(estimates(ops)).toEqual({
+      laminate: 90 * 2, bail: 25 * 2, pierce: 40 * 2, solder: 30 * 2, file: 40 * 2,
+      hallmark: 0, // outside work: lead days, no bench minutes
+      drill: (10 + 1.5 * 18) * 2, // 74
+      set: (30 + 7 * 18) * 2, // 312
+      polish: 35 * 2, inspect: 10 * 2,
+    })
+    expect(statuses(ops)).toEqual({ laminate: 'ready', bail: 'ready', pierce: 'pending', solder: 'pending', file: 'pending', hallmark: 'pending', drill: 'pending', set: 'pending', polish: 'pending', inspect: 'pending' })
+    expect(ops.map((o) => o.seq)).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8, 9])
+    expect(ops.every((o) => o.estimateSource === 'template')).toBe(true)
+  })
+
+  it('when operations are copied, then kind, level, wait, lead days and predecessors are those of the template steps', async () => {
+    const r = await sales.post('/api/orders', { customerId, title: 'Halo ring', dueDate: '2031-07-02', pieces: [{ templateId: tpl['halo-ring']!.id, piece: 'Halo ring', params: { metal: 'platinum-950', stoneCount: 15 } }] })
+    const ops = byKey(r.body.jobBags[0].operations)
+    for (const s of tpl['halo-ring']!.steps) {
+      expect(ops[s.key], s.key).toMatchObject({ kindId: s.kindId, requiredLevel: s.requiredLevel, waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after })
+    }
+    // Halo ring, 15 stones, one piece (seed.ts): set = 40 + 8 × 15.
+    expect(estimates(r.body.jobBags[0].operations)).toEqual({ head: 0, shank: 50, join: 40, file: 45, hallmark: 0, set: 160, polish: 40, inspect: 15 })
+    // Two steps without predecessors (cast head outside, forge shank at the bench) both start ready; the join waits for both.
+    expect(statuses(r.body.jobBags[0].operations)).toMatchObject({ head: 'ready', shank: 'ready', join: 'pending' })
+    expect(ops.join!.after).toEqual(['head', 'shank'])
+  })
+
+  it('when a production run of 40 stud pairs is ordered, then per-pair minutes are multiplied by 40', async () => {
+    const r = await sales.post('/api/orders', { customerId, title: 'Studs', dueDate: '2031-07-03', pieces: [{ templateId: tpl['stud-run']!.id, piece: 'Seed studs, 40 pairs', params: { quantity: 40 } }] })
+    // Stud run (seed.ts): clean 5, post 4, polish 4, pack 1.5 minutes per pair; casting and hallmarking are outside.
+    expect(estimates(r.body.jobBags[0].operations)).toEqual({ cast: 0, clean: 200, post: 160, polish: 160, hallmark: 0, pack: 60 })
+    expect(statuses(r.body.jobBags[0].operations)).toMatchObject({ cast: 'ready', clean: 'ready', post: 'pending', pack: 'pending' })
+  })
+
+  it('when the customer or a template is not the workshop\'s, then 400 naming the field and nothing is saved', async () => {
+    const n = await orderCount()
+    const good = { templateId: tpl['ring-resize']!.id, piece: 'Resize' }
+    expectFieldError(await sales.post('/api/orders', { customerId: 999999, title: 'x', dueDate: '2031-01-01', pieces: [good] }), 'customerId', /not a customer/)
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: 999999, piece: 'x' }] }), 'pieces.0.templateId', /not a routing template/)
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [good, { templateId: 999999, piece: 'x' }] }), 'pieces.1.templateId', /not a routing template/)
+    const other = await secondWorkshop(t, 'orders')
+    const kind = (await other.agent.post('/api/operation-kinds', { code: 'filing', name: 'Filing' })).body
+    const foreign = (await other.agent.post('/api/templates', { code: 'own', name: 'Own', steps: [{ key: 'a', kindId: kind.id, name: 'A', baseMinutes: 5 }] })).body
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: foreign.id, piece: 'x' }] }), 'pieces.0.templateId')
+    expect(await orderCount()).toBe(n)
+  })
+
+  it('when order input is wrong, then 400 naming each field', async () => {
+    const piece = (params: Record<string, unknown>) => ({ customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: tpl['ring-resize']!.id, piece: 'x', params }] })
+    expectFieldError(await sales.post('/api/orders', { customerId, dueDate: '2031-01-01' }), 'title', /required/)
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-02-30' }), 'dueDate', /real date/)
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priority: 9 }), 'priority', /1 to 5/)
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuoted: -1 }), 'priceQuoted', /negative/)
+    expectFieldError(await sales.post('/api/orders', piece({ stoneCount: -1 })), 'pieces.0.params.stoneCount', /negative/)
+    expectFieldError(await sales.post('/api/orders', piece({ quantity: 0 })), 'pieces.0.params.quantity', /at least 1/)
+    expectFieldError(await sales.post('/api/orders', piece({ metal: 'tin' })), 'pieces.0.params.metal', /listed metals/)
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: tpl['ring-resize']!.id }] }), 'pieces.0.piece', /required/)
+  })
+})
+
+describe('order list', () => {
+  it('when listing open orders, then the 30 seeded ones are there, sorted by due date by default', async () => {
+    const r = await sales.get('/api/orders?status=open&pageSize=500')
+    expect(r.status).toBe(200)
+    expect(r.body.total).toBeGreaterThanOrEqual(30)
+    const seeded = r.body.items.filter((o: { number: string; dueDate: string }) => o.dueDate < '2031-01-01')
+    expect(seeded).toHaveLength(30)
+    const due = r.body.items.map((o: { dueDate: string }) => o.dueDate)
+    expect(due).toEqual([...due].sort())
+    expect(r.body.items[0]).toMatchObject({ customerName: expect.any(String), jobBags: expect.any(Number), version: expect.any(Number) })
+  })
+
+  it('when searching, then number, title and customer name match', async () => {
+    const all = (await sales.get('/api/orders?pageSize=500')).body.items as { number: string; title: string; customerName: string }[]
+    const one = all[0]!
+    expect((await sales.get(`/api/orders?q=${one.number}`)).body.items.map((o: { number: string }) => o.number)).toEqual([one.number])
+    const byCustomer = (await sales.get(`/api/orders?q=${encodeURIComponent(one.customerName.toUpperCase())}&pageSize=500`)).body
+    expect(byCustomer.total).toBe(all.filter((o) => o.customerName === one.customerName).length)
+    const word = 'bezel'
+    const byTitle = (await sales.get(`/api/orders?q=${word}&pageSize=500`)).body
+    expect(byTitle.total).toBe(all.filter((o) => o.title.toLowerCase().includes(word) || o.customerName.toLowerCase().includes(word) || o.number.toLowerCase().includes(word)).length)
+    expect(byTitle.total).toBeGreaterThan(0)
+    expect((await sales.get('/api/orders?q=%25')).body.total).toBe(0)
+  })
+
+  it('when sorting by priority, number or customer, then the order follows that column', async () => {
+    const pr = (await sales.get('/api/orders?sort=priority&order=desc&pageSize=500')).body.items.map((o: { priority: number }) => o.priority)
+    expect(pr).toEqual([...pr].sort((a: number, b: number) => b - a))
+    const nums = (await sales.get('/api/orders?sort=number&pageSize=500')).body.items.map((o: { number: string }) => o.number)
+    expect(nums).toEqual([...nums].sort())
+    const cust = (await sales.get('/api/orders?sort=customer&pageSize=500')).body.items.map((o: { customerName: string }) => o.customerName)
+    expect(cust).toEqual([...cust].sort((a: string, b: string) => a.localeCompare(b, 'en')))
+  })
+
+  it('when paging, then pages do not overlap and together give the total', async () => {
+    const total = (await sales.get('/api/orders?pageSize=1')).body.total as number
+    const seen: number[] = []
+    for (let page = 1; page <= Math.ceil(total / 25); page++) {
+      const r = (await sales.get(`/api/orders?sort=priority&pageSize=25&page=${page}`)).body
+      expect(r).toMatchObject({ page, pageSize: 25, total })
+      seen.push(...r.items.map((o: { id: number }) => o.id))
+    }
+    expect(seen).toHaveLength(total)
+    expect(new Set(seen).size).toBe(total)
+    expect((await sales.get(`/api/orders?pageSize=25&page=${Math.ceil(total / 25) + 1}`)).body.items).toEqual([])
+  })
+
+  it('when the list query is wrong, then 400 naming the parameter', async () => {
+    expectFieldError(await sales.get('/api/orders?status=lost'), 'status', /one of/)
+    expectFieldError(await sales.get('/api/orders?pageSize=501'), 'pageSize')
+    expectFieldError(await sales.get('/api/orders?page=0'), 'page')
+    expectFieldError(await sales.get('/api/orders?order=up'), 'order')
+  })
+})
+
+describe('changing an order', () => {
+  it('when an order is changed with its version, then it is saved and audited; an old version gets 409 and an unknown id 404', async () => {
+    const o = (await sales.post('/api/orders', { customerId, title: 'Resize', dueDate: '2031-08-01', pieces: [{ templateId: tpl['ring-resize']!.id, piece: 'Resize M to O' }] })).body
+    const u = await sales.patch(`/api/orders/${o.id}`, { promisedDate: '2031-07-30', priority: 1, version: 0 })
+    expect(u.status).toBe(200)
+    expect(u.body).toMatchObject({ promisedDate: '2031-07-30', priority: 1, title: 'Resize', dueDate: '2031-08-01', version: 1 })
+    expect(u.body.jobBags).toHaveLength(1)
+    const stale = await sales.patch(`/api/orders/${o.id}`, { title: 'Someone else', version: 0 })
+    expectCleanError(stale, 409)
+    expect(stale.body.error).toMatch(/changed by someone else/)
+    expect((await sales.get(`/api/orders/${o.id}`)).body.title).toBe('Resize')
+    expect((await auditRows(t, 'order', o.id)).map((x) => x.action)).toEqual(['update', 'create'])
+    expectCleanError(await sales.patch('/api/orders/999999', { title: 'x', version: 0 }), 404)
+    expectCleanError(await sales.get('/api/orders/999999'), 404)
+  })
+
+  it('when an order change is wrong, then 400 naming the field', async () => {
+    const o = (await sales.get('/api/orders?pageSize=1')).body.items[0]
+    expectFieldError(await sales.patch(`/api/orders/${o.id}`, { title: 'x' }), 'version', /required/)
+    expectFieldError(await sales.patch(`/api/orders/${o.id}`, { status: 'lost', version: o.version }), 'status', /one of/)
+    expectFieldError(await sales.patch(`/api/orders/${o.id}`, { dueDate: 'soon', version: o.version }), 'dueDate')
+    expectFieldError(await sales.patch(`/api/orders/${o.id}`, { title: 't'.repeat(500), version: o.version }), 'title', /at most 120/)
+  })
+})

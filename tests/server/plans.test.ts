@@ -1,0 +1,187 @@
+// Planning API: planner runs become drafts, publish/discard, the board, moves by hand with their refusals, live events.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { io as connect } from 'socket.io-client'
+import { eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
+import { waitForRun } from '../../server/services/planning/runs'
+import { dayjs } from '../../server/lib/time'
+import { createTestApp, httpSignIn, signedIn, startTestServer, type Agent, type TestApp } from '../setup/app'
+
+let t: TestApp
+let manager: Agent
+const from = dayjs().tz('Europe/London').startOf('isoWeek').format('YYYY-MM-DD')
+const to = dayjs(from).add(27, 'day').format('YYYY-MM-DD')
+
+async function runPlanner(a: Agent, seconds = 1) {
+  const r = await a.post('/api/plans/runs', { timeLimitSeconds: seconds })
+  expect(r.status, JSON.stringify(r.body)).toBe(202)
+  const done = await waitForRun(r.body.id)
+  expect(done?.status, JSON.stringify(done)).toBe('done')
+  return done!.planId!
+}
+
+beforeAll(async () => {
+  t = await createTestApp()
+  manager = await signedIn(t.app, 'manager')
+})
+afterAll(async () => { await t.close() })
+
+describe('planner runs and versions', () => {
+  it('when the manager runs the planner, then a draft appears with its figures and publishing makes it live', async () => {
+    const planId = await runPlanner(manager)
+    const list = (await manager.get('/api/plans')).body
+    expect(list[0]).toMatchObject({ id: planId, status: 'draft', createdByName: 'Sam Ottery' })
+    expect(list[0].score).toMatchObject({ feasible: true, violations: [] })
+    const cmp = await manager.get(`/api/plans/${planId}/compare`)
+    expect(cmp.status).toBe(200)
+    expect(cmp.body.counts.new).toBeGreaterThan(0)
+    const pub = await manager.post(`/api/plans/${planId}/publish`)
+    expect(pub.status).toBe(200)
+    expect(pub.body).toMatchObject({ status: 'published', publishedBy: expect.any(Number) })
+    const planned = await t.db.select().from(s.operations).where(eq(s.operations.status, 'ready'))
+    expect(planned.some((o) => o.plannedStart !== null)).toBe(true)
+    // Publishing twice is refused.
+    expect((await manager.post(`/api/plans/${planId}/publish`)).status).toBe(409)
+  })
+
+  it('when a draft was made before another plan was published, then publishing it is refused as stale', async () => {
+    const a = await runPlanner(manager)
+    const b = await runPlanner(manager)
+    expect((await manager.post(`/api/plans/${b}/publish`)).status).toBe(200)
+    const stale = await manager.post(`/api/plans/${a}/publish`)
+    expect(stale.status).toBe(409)
+    expect(stale.body.error).toMatch(/published after this draft/)
+    expect((await manager.post(`/api/plans/${a}/discard`)).body.status).toBe('discarded')
+  })
+
+  it('when sales or bench users try to plan, then they are refused; sales may read the board', async () => {
+    const sales = await signedIn(t.app, 'sales')
+    expect((await sales.post('/api/plans/runs', {})).status).toBe(403)
+    expect((await sales.get(`/api/board?from=${from}&to=${to}`)).status).toBe(200)
+    const bench = await signedIn(t.app, 'bench')
+    expect((await bench.get(`/api/board?from=${from}&to=${to}`)).status).toBe(403)
+  })
+
+  it('when the time limit is out of range, then the run is refused naming the field', async () => {
+    const r = await manager.post('/api/plans/runs', { timeLimitSeconds: 0 })
+    expect(r.status).toBe(400)
+    expect(r.body.fields.timeLimitSeconds).toMatch(/at least 1/)
+  })
+
+  it('when a run is stopped, then the live plan is untouched', async () => {
+    const before = await t.db.select({ id: s.operations.id, start: s.operations.plannedStart }).from(s.operations)
+    const r = await manager.post('/api/plans/runs', { timeLimitSeconds: 30 })
+    await new Promise((res) => setTimeout(res, 600))
+    expect((await manager.delete(`/api/plans/runs/${r.body.id}`)).status).toBe(200)
+    const end = await waitForRun(r.body.id)
+    expect(end?.status).toBe('cancelled')
+    const after = await t.db.select({ id: s.operations.id, start: s.operations.plannedStart }).from(s.operations)
+    expect(after).toEqual(before)
+  })
+})
+
+describe('board and moves by hand', () => {
+  it('when the board is read, then bars carry job bag, piece, operation, reason, and jobs carry their risk', async () => {
+    const r = await manager.get(`/api/board?from=${from}&to=${to}`)
+    expect(r.status).toBe(200)
+    expect(r.body.items.length).toBeGreaterThan(20)
+    const bar = r.body.items.find((i: { outside: boolean }) => !i.outside)
+    expect(bar).toMatchObject({ jobBagNumber: expect.stringMatching(/^MG/), piece: expect.any(String), name: expect.any(String), benchId: expect.any(Number), personId: expect.any(Number) })
+    expect(r.body.items.some((i: { reason: unknown }) => i.reason !== null)).toBe(true)
+    expect(r.body.jobs.every((j: { state: string }) => ['late', 'at-risk', 'on-time', 'unplanned'].includes(j.state))).toBe(true)
+    expect(r.body.nonWorking.length).toBeGreaterThan(0)
+  })
+
+  async function pickBar(pred: (i: any) => boolean = () => true) {
+    const r = await manager.get(`/api/board?from=${from}&to=${to}`)
+    return r.body.items.find((i: any) => !i.outside && i.status !== 'running' && pred(i))
+  }
+
+  it('when a bar is dropped on a bench that cannot host it, then the move is refused with the reason', async () => {
+    const bar = await pickBar((i) => i.kind === 'polishing')
+    const benches = (await manager.get('/api/benches')).body
+    const setting = benches.find((b: any) => b.kind === 'setting')
+    const r = await manager.patch(`/api/board/operations/${bar.id}`, { benchId: setting.id, version: bar.version })
+    expect(r.status).toBe(422)
+    expect(r.body.error).toMatch(/cannot host polishing/)
+    expect(r.body.details.rule).toBe('bench capability')
+  })
+
+  it('when a bar goes to a person without the skill, then the move is refused naming the person', async () => {
+    const bar = await pickBar((i) => i.kind === 'setting')
+    const people = (await manager.get('/api/people')).body
+    const ruth = people.find((p: any) => p.name === 'Ruth Calder')
+    const r = await manager.patch(`/api/board/operations/${bar.id}`, { personId: ruth.id, version: bar.version })
+    expect(r.status).toBe(422)
+    expect(r.body.error).toMatch(/Ruth Calder is not skilled/)
+  })
+
+  it('when a bar is moved before its predecessor ends, then the move is refused naming the predecessor', async () => {
+    const board = (await manager.get(`/api/board?from=${from}&to=${to}`)).body
+    const ops = await t.db.select().from(s.operations)
+    const bar = board.items.find((i: any) => !i.outside && ops.find((o) => o.id === i.id)!.after.length > 0 && ops.filter((o) => o.jobBagId === i.jobBagId && ops.find((x) => x.id === i.id)!.after.includes(o.key)).every((p) => p.status !== 'done' && board.items.some((b: any) => b.id === p.id)))
+    const pred = ops.find((o) => o.jobBagId === bar.jobBagId && ops.find((x) => x.id === bar.id)!.after.includes(o.key))!
+    const predBar = board.items.find((b: any) => b.id === pred.id)
+    const early = new Date(new Date(predBar.start).getTime()).toISOString()
+    const r = await manager.patch(`/api/board/operations/${bar.id}`, { start: early, version: bar.version })
+    expect(r.status).toBe(422)
+    expect(r.body.details.rule).toMatch(/routing order|double booking/)
+  })
+
+  it('when a valid move is saved and pinned, then it is accepted; a second save with the old version is refused', async () => {
+    const board = (await manager.get(`/api/board?from=${from}&to=${to}`)).body
+    const ops = await t.db.select().from(s.operations)
+    // A bar with no successors planned, moved a week later keeps the routing order.
+    const bar = board.items.find((i: any) => !i.outside && i.status !== 'running' && !ops.some((o) => o.jobBagId === i.jobBagId && o.after.includes(ops.find((x) => x.id === i.id)!.key)))
+    const later = dayjs(bar.start).add(14, 'day').toISOString()
+    const ok = await manager.patch(`/api/board/operations/${bar.id}`, { start: later, pinned: true, version: bar.version })
+    if (ok.status !== 200) {
+      // Another bar may hold the slot; the refusal must then say which.
+      expect(ok.status).toBe(422)
+      expect(ok.body.error).toMatch(/booked for/)
+      return
+    }
+    expect(ok.body).toMatchObject({ pinned: true, version: bar.version + 1 })
+    const stale = await manager.patch(`/api/board/operations/${bar.id}`, { start: later, version: bar.version })
+    expect(stale.status).toBe(409)
+    expect(stale.body.error).toMatch(/changed by someone else/)
+  })
+
+  it('when the week load is read, then every bench and skill has planned and available minutes per day', async () => {
+    const r = await manager.get(`/api/load?from=${from}&to=${to}`)
+    expect(r.status).toBe(200)
+    expect(r.body.days).toHaveLength(28)
+    const setting = r.body.rows.find((x: any) => x.type === 'skill' && x.name === 'Stone setting')
+    expect(setting.cells.some((c: any) => c.plannedMinutes > 0)).toBe(true)
+    // ISO 8601 weeks start on Monday (ISO 8601; the window starts on a Monday).
+    expect(r.body.weeks[0].days).toHaveLength(7)
+    expect(dayjs(r.body.weeks[0].days[0]).isoWeekday()).toBe(1)
+  })
+})
+
+describe('live updates', () => {
+  it('when a plan is published, then a second connected client receives the event', async () => {
+    const srv = await startTestServer()
+    try {
+      const a = await httpSignIn(srv.url, 'manager')
+      const b = await httpSignIn(srv.url, 'sales')
+      const sock = connect(srv.url, { extraHeaders: { cookie: b.cookie }, transports: ['websocket'] })
+      await new Promise<void>((res, rej) => { sock.on('connect', () => res()); sock.on('connect_error', rej) })
+      const got = new Promise<any>((res) => sock.on('plan:drafted', res))
+      const r = await fetch(`${srv.url}/api/plans/runs`, { method: 'POST', headers: { 'content-type': 'application/json', cookie: a.cookie, 'x-csrf-token': a.csrf }, body: JSON.stringify({ timeLimitSeconds: 1 }) })
+      expect(r.status).toBe(202)
+      const ev = await got
+      expect(ev).toMatchObject({ id: expect.any(Number), seq: expect.any(Number) })
+      // Catch-up after a dropped connection: everything since a sequence number.
+      const missed = await new Promise<any[]>((res) => sock.emit('changes:since', 0, res))
+      expect(missed.some((e) => e.event === 'plan:drafted')).toBe(true)
+      sock.close()
+      const anon = connect(srv.url, { transports: ['websocket'] })
+      const err = await new Promise<Error>((res) => anon.on('connect_error', res))
+      expect(err.message).toMatch(/not signed in/)
+      anon.close()
+    } finally {
+      await srv.stop()
+    }
+  })
+})

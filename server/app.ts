@@ -15,11 +15,12 @@ import { requireCsrf } from './middleware/csrf'
 import type { Deps, RouteSpec } from './lib/route'
 import { Realtime } from './realtime/hub'
 import { allRoutes } from './routes/index'
+import { createMailer, type Mailer } from './mail/transport'
 import type { SessionUser } from '../shared/schemas/session'
 
-export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime }
+export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime; mailer?: Mailer }
 
-export function createApp({ db, pool, config, realtime = new Realtime() }: AppDeps) {
+export function createApp({ db, pool, config, realtime = new Realtime(), mailer = createMailer(config) }: AppDeps) {
   const app = express()
   app.disable('x-powered-by')
   app.set('trust proxy', 'loopback')
@@ -44,7 +45,7 @@ export function createApp({ db, pool, config, realtime = new Realtime() }: AppDe
   )
   const sessionMiddleware = createSessionMiddleware(pool, config)
   const passport = configurePassport(db)
-  const deps: Deps = { db, realtime, passport }
+  const deps: Deps = { db, realtime, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES }
 
   const api = express.Router()
   api.use(express.json({ limit: '1mb' }))
@@ -72,7 +73,7 @@ export function createApp({ db, pool, config, realtime = new Realtime() }: AppDe
     app.get(/^(?!\/api\/|\/socket\.io\/).*/, (_req, res) => res.sendFile(join(clientDir, 'index.html')))
   }
   app.use(errorHandler)
-  return { app, sessionMiddleware, passport, realtime }
+  return { app, sessionMiddleware, passport, realtime, deps }
 }
 
 function register(router: express.Router, spec: RouteSpec, deps: Deps) {

@@ -14,6 +14,13 @@ const schema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
   /** Built client to serve (omitted in API-only tests). */
   CLIENT_DIR: z.string().optional(),
+  /** Outgoing mail: smtp(s):// URL of the provider; unset → the local test mailbox on MAIL_PORT (tests: nothing leaves the process). */
+  SMTP_URL: z.string().url('must be an smtp:// or smtps:// URL').optional(),
+  MAIL_PORT: z.coerce.number().int().min(0).max(65535).default(2525),
+  MAIL_FROM: z.string().default('Millgrain <no-reply@millgrain.invalid>'),
+  /** Uploaded sketches and photos live here, outside the web root. */
+  UPLOAD_DIR: z.string().default('.data/uploads'),
+  UPLOAD_MAX_BYTES: z.coerce.number().int().min(1).default(10 * 1024 * 1024),
 })
 export type Config = z.infer<typeof schema>
 

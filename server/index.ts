@@ -6,11 +6,14 @@ import { loadConfig, type Config } from './config'
 import { createDb } from './db/client'
 import { attachSockets } from './realtime/sockets'
 import { Realtime } from './realtime/hub'
+import { startDigestTimer } from './mail/digest-timer'
 
 export async function startServer(config: Config) {
   const { db, pool } = createDb(config.DATABASE_URL)
   const realtime = new Realtime()
-  const { app, sessionMiddleware, passport } = createApp({ db, pool, config, realtime })
+  const { app, sessionMiddleware, passport, deps } = createApp({ db, pool, config, realtime })
+  // Tests drive the digest by hand; a timer firing into a test database being dropped would only make noise.
+  const digest = config.NODE_ENV === 'test' ? { stop() {} } : startDigestTimer(deps)
   const http = createServer(app)
   const io = new Server(http, { serveClient: false })
   attachSockets(io, { sessionMiddleware, passport, realtime })
@@ -25,6 +28,8 @@ export async function startServer(config: Config) {
     url: `http://${config.HOST}:${port}`,
     db,
     async close() {
+      digest.stop()
+      deps.mailer?.close()
       io.close()
       await new Promise<void>((r) => http.close(() => r()))
       await pool.end()

@@ -4,13 +4,14 @@ import type { ZodType } from 'zod'
 import type { Role } from '../../shared/domain/roles'
 import type { Db } from '../db/client'
 import type { Realtime } from '../realtime/hub'
+import type { Mailer } from '../mail/transport'
 
 export interface Actor { userId: number; workshopId: number; role: Role; personId: number | null; name: string }
 
 import type { PassportStatic } from 'passport'
 type Authenticator = InstanceType<PassportStatic['Passport']>
 
-export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string }
+export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer }
 
 export interface RouteContext<B, Q, P> {
   req: Request

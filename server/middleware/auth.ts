@@ -17,6 +17,32 @@ import type { SessionUser } from '../../shared/schemas/session'
 // A hash to verify against when the e-mail is unknown, so timing does not reveal which addresses exist.
 const DUMMY_HASH = '$argon2id$v=19$m=19456,t=2,p=1$c29tZXNhbHRzb21lc2FsdA$W5CGbW6oN9cFs9Rz1b1N0VqC0n3FJQ7m8pQmYb3dZ2k'
 
+// Signed-in users are looked up on every request; a short cache spares the database, and changes to a user drop their entry.
+const caches = new Set<Map<number, { at: number; user: SessionUser | null }>>()
+const cacheByDb = new WeakMap<Db, Map<number, { at: number; user: SessionUser | null }>>()
+const USER_CACHE_MS = 2000
+export function forgetSessionUser(userId?: number) {
+  for (const c of caches) {
+    if (userId === undefined) c.clear()
+    else c.delete(userId)
+  }
+}
+
+async function cachedSessionUser(db: Db, userId: number): Promise<SessionUser | null> {
+  let recentUsers = cacheByDb.get(db)
+  if (!recentUsers) {
+    recentUsers = new Map()
+    cacheByDb.set(db, recentUsers)
+    caches.add(recentUsers)
+  }
+  const hit = recentUsers.get(userId)
+  if (hit && Date.now() - hit.at < USER_CACHE_MS) return hit.user
+  const user = await loadSessionUser(db, userId)
+  recentUsers.set(userId, { at: Date.now(), user })
+  if (recentUsers.size > 1000) recentUsers.delete(recentUsers.keys().next().value!)
+  return user
+}
+
 export async function loadSessionUser(db: Db, userId: number): Promise<SessionUser | null> {
   const rows = await db
     .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active, workshopId: users.workshopId, workshopName: workshops.name, personId: people.id })
@@ -47,7 +73,7 @@ export function configurePassport(db: Db) {
   p.serializeUser((user, done) => done(null, (user as SessionUser).id))
   p.deserializeUser(async (id: number, done) => {
     try {
-      done(null, (await loadSessionUser(db, id)) ?? false)
+      done(null, (await cachedSessionUser(db, id)) ?? false)
     } catch (err) {
       done(err)
     }

@@ -1,4 +1,5 @@
 // Planning routes: run the planner, drafts and published versions, the board, moves by hand, and the week load.
+import type { Request, Response } from 'express'
 import { z } from 'zod'
 import type { Role } from '../../shared/domain/roles'
 import { boardQuery, moveInput, planRunInput } from '../../shared/schemas/plan'
@@ -19,6 +20,21 @@ const runParam = z.object({ runId: z.string().uuid('must be a run id') })
 const caches = new WeakMap<Realtime, BoardCache>()
 const cacheOf = (r: Realtime) => caches.get(r) ?? caches.set(r, new BoardCache(r)).get(r)!
 
+/** Answers from the cache, with an ETag so an unchanged board costs a 304. */
+async function sendCached(req: Request, res: Response, realtime: Realtime, key: string, load: () => Promise<unknown>) {
+  const { json, gzip, etag } = await cacheOf(realtime).get(key, load)
+  res.setHeader('ETag', etag)
+  res.setHeader('Cache-Control', 'private, no-cache')
+  res.setHeader('Vary', 'Accept-Encoding')
+  if (req.get('if-none-match') === etag) return void res.status(304).end()
+  res.type('application/json')
+  if (req.acceptsEncodings('gzip')) {
+    res.setHeader('Content-Encoding', 'gzip')
+    return void res.end(gzip)
+  }
+  res.send(json)
+}
+
 export const planRoutes = [
   route({ method: 'post', path: '/plans/runs', roles: PLANNER, status: 202, summary: 'Start the planner (worker thread); the result becomes a draft', body: planRunInput, handler: ({ deps, actor, body }) => startRun(deps, actor, body) }),
   route({ method: 'get', path: '/plans/runs/:runId', roles: PLANNER, summary: 'A planner run: progress, result or error', params: runParam, handler: async ({ actor, params }) => getRun(actor, params.runId) }),
@@ -29,11 +45,11 @@ export const planRoutes = [
   route({ method: 'post', path: '/plans/:id/discard', roles: PLANNER, summary: 'Throw a draft away', params: idParam, handler: ({ deps, actor, params }) => plans.discardPlan(deps, actor, params.id) }),
   route({
     method: 'get', path: '/board', roles: VIEWERS, summary: 'Board data for a window (live plan, or ?planId= a draft)', query: boardQuery,
-    handler: ({ deps, actor, query }) => cacheOf(deps.realtime).get(`${actor.workshopId}|board|${query.from}|${query.to}|${query.planId ?? ''}`, () => boardData(deps.db, actor.workshopId, query)),
+    handler: ({ req, res, deps, actor, query }) => sendCached(req, res, deps.realtime, `${actor.workshopId}|board|${query.from}|${query.to}|${query.planId ?? ''}`, () => boardData(deps.db, actor.workshopId, query)),
   }),
   route({ method: 'patch', path: '/board/operations/:id', roles: PLANNER, summary: 'Move or pin one bar on the live plan', params: idParam, body: moveInput, handler: ({ deps, actor, params, body }) => moveOperation(deps, actor, params.id, body) }),
   route({
     method: 'get', path: '/load', roles: VIEWERS, summary: 'Planned against available hours per bench and skill, per day and ISO week', query: boardQuery,
-    handler: ({ deps, actor, query }) => cacheOf(deps.realtime).get(`${actor.workshopId}|load|${query.from}|${query.to}|${query.planId ?? ''}`, () => weekLoad(deps.db, actor.workshopId, query)),
+    handler: ({ req, res, deps, actor, query }) => sendCached(req, res, deps.realtime, `${actor.workshopId}|load|${query.from}|${query.to}|${query.planId ?? ''}`, () => weekLoad(deps.db, actor.workshopId, query)),
   }),
 ]

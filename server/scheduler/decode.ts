@@ -156,7 +156,7 @@ export interface Decoded {
 }
 
 /** Earliest start at or after t on option `o` that avoids busy bench and person time; null past the horizon. */
-function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline[]): { segs: Interval[]; blockedBy: number; blockedOn: Why } | null {
+function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline[], limit = Infinity): { segs: Interval[]; blockedBy: number; blockedOn: Why } | null | undefined {
   let blockedBy = -1
   let blockedOn: Why = Why.WorkingTime
   const bt = o.bench >= 0 ? benches[o.bench]! : null
@@ -165,6 +165,8 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
   for (;;) {
     // Skip to a moment when the pair works and neither is busy, then check the whole stretch of work.
     for (;;) {
+      // Cannot finish by `limit` any more: another option is already at least as good.
+      if (t + o.minutes > limit) return undefined
       const w = win[firstEndingAfter(win, t)]
       if (!w) return null
       if (w.start > t) t = w.start
@@ -286,7 +288,7 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
       let best: ReturnType<typeof fit> = null, bestK = -1, bestEnd = Infinity
       for (let k = 0; k < opts.length; k++) {
         if (forced >= 0 && k !== forced) continue
-        const r = fit(opts[k]!, est, benches, people)
+        const r = fit(opts[k]!, est, benches, people, bestEnd)
         if (!r) continue
         const e = r.segs[r.segs.length - 1]!.end
         const better = e < bestEnd || (e === bestEnd && (k === c.previousOption[i] || (bestK !== c.previousOption[i] && opts[k]!.minutes < opts[bestK]!.minutes)))

@@ -85,11 +85,13 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   const n = c.n
   const greedy = new Int32Array(n).fill(-1)
   let bestKey: Float64Array = new Float64Array(n), bestChoice: Int32Array = greedy.slice(), best: Decoded | null = null
+  let firstPlanMs = -1
   for (const key of dispatchKeys(c)) {
     const d = decode(c, key, greedy)
+    if (firstPlanMs < 0) firstPlanMs = clock() - t0 // the first rule's plan is already a valid plan
     if (!best || compareDecoded(d, best, obj) < 0) { best = d; bestKey = key }
+    if (hooks.shouldStop?.()) break
   }
-  const firstPlanMs = clock() - t0
   let iterations = 0
   if (!best) throw new Error('no dispatching rule produced a plan')
   hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: firstPlanMs })

@@ -378,8 +378,19 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       }
     }
 
+    if (mvOp < 0 && fbOp < 0) {
+      // No move at all. A critical path of one job chain at its shortest durations proves optimality; otherwise shake.
+      let chainOnly = true
+      for (let t = 0; t + 1 < len; t++) if (mSucc[path[t]!] === path[t + 1] && jobSucc[path[t]!] !== path[t + 1]) chainOnly = false
+      for (let t = 0; t < len && chainOnly; t++) {
+        const v = path[t]!
+        for (let o = optStart[v]!; o < optStart[v + 1]!; o++) if (optDur[o]! < p[v]!) chainOnly = false
+      }
+      if (chainOnly && cmax === bestCmax) break
+      kick()
+      continue
+    }
     if (mvOp < 0) {
-      if (fbOp < 0) break // no move at all: the critical path is one job chain at its shortest, so this is optimal
       mvOp = fbOp; mvMach = fbMach; mvAfter = fbAfter; mvDur = fbDur; mvKind = fbKind; mvFrom = fbFrom; mvTo = fbTo; mvBlockStart = fbBlockStart
     }
 
@@ -413,7 +424,12 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       lastImprove = iter
       settings.onImprove?.(bestCmax, iter)
     } else if (iter - lastImprove > maxStall) {
-      // Stagnation: go back to the best schedule and shake it with a few random critical swaps.
+      kick()
+    }
+  }
+
+  /** Stagnation: go back to the best schedule and shake it with a few random critical swaps and machine changes. */
+  function kick(): void {
       restoreBest()
       orderTabu?.fill(0); orderTabuMap?.clear(); machTabu.fill(0)
       const kicks = 2 + rng.int(4)
@@ -436,9 +452,24 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
         if (!computeHeads()) { unlink(u); linkAfter(u, om, oa); computeHeads() }
         cmax = computeTails()
       }
+      // A random operation with alternatives moves to another machine (kept only if the graph stays acyclic).
+      for (let tries = 0; tries < 3; tries++) {
+        const v = rng.int(n)
+        const o0 = optStart[v]!, o1 = optStart[v + 1]!
+        if (o1 - o0 < 2) continue
+        const o = o0 + rng.int(o1 - o0)
+        const k = optMachine[o]!
+        if (k === mach[v]) continue
+        const om = mach[v]!, oa = mPred[v]!, od = p[v]!
+        let after = -1
+        for (let x = mHead[k]!; x >= 0; x = mSucc[x]!) { if (r[x]! >= r[v]!) break; after = x }
+        unlink(v); p[v] = optDur[o]!; linkAfter(v, k, after)
+        if (!computeHeads()) { unlink(v); p[v] = od; linkAfter(v, om, oa); computeHeads() }
+        cmax = computeTails()
+        break
+      }
       lastImprove = iter
       if (cmax < bestCmax) { saveBest(); settings.onImprove?.(bestCmax, iter) }
-    }
   }
 
   restoreBest()

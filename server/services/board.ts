@@ -1,4 +1,6 @@
 // The planning board: bars for a window (live plan or a draft), job risk with its reason, calendars, and the week load.
+import { createHash } from 'node:crypto'
+import { gzipSync } from 'node:zlib'
 import { and, eq } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
@@ -23,22 +25,26 @@ export interface BoardJob {
 
 const AT_RISK_MINUTES = 8 * 60
 
-/** Loads data once per change: the board is read far more often than the workshop changes. */
+/**
+ * Serialised answers kept until the workshop changes: the board is read far more often than the workshop changes.
+ * Entries also expire after a minute, because "now" moves and lateness with it.
+ */
 export class BoardCache {
-  private readonly entries = new Map<string, { at: number; value: unknown }>()
+  private readonly entries = new Map<string, { at: number; json: string; gzip: Buffer; etag: string }>()
   constructor(realtime: Realtime) {
     realtime.onChange((workshopId) => {
       for (const k of this.entries.keys()) if (k.startsWith(`${workshopId}|`)) this.entries.delete(k)
     })
   }
-  async get<T>(key: string, load: () => Promise<T>): Promise<T> {
+  async get(key: string, load: () => Promise<unknown>): Promise<{ json: string; gzip: Buffer; etag: string }> {
     const hit = this.entries.get(key)
-    // Also expire with the clock: "now" moves and with it lateness.
-    if (hit && Date.now() - hit.at < 60_000) return hit.value as T
-    const value = await load()
-    this.entries.set(key, { at: Date.now(), value })
+    if (hit && Date.now() - hit.at < 60_000) return hit
+    const json = JSON.stringify(await load())
+    // Compressed once here rather than on every answer.
+    const entry = { at: Date.now(), json, gzip: gzipSync(json, { level: 6 }), etag: `"${createHash('sha1').update(json).digest('base64url')}"` }
+    this.entries.set(key, entry)
     if (this.entries.size > 200) this.entries.delete(this.entries.keys().next().value!)
-    return value
+    return entry
   }
 }
 

@@ -8,6 +8,7 @@ import { customers, jobBags, operations, orders, templateSteps, routingTemplates
 import { invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
+import { sendReadyNotice } from './mail'
 import { requireOwned, updateVersioned } from './versioned'
 
 /** ILIKE pattern for "contains", with the user's % and _ taken literally. */
@@ -73,14 +74,20 @@ export async function createOrder({ db, realtime }: Deps, actor: Actor, input: O
   return getOrder(db, actor.workshopId, id)
 }
 
-export async function updateOrder({ db, realtime }: Deps, actor: Actor, id: number, input: OrderUpdate) {
+export async function updateOrder(deps: Deps, actor: Actor, id: number, input: OrderUpdate) {
+  const { db, realtime } = deps
   const { version, ...values } = input
+  let becameReady = false
   const o = await db.transaction(async (tx) => {
+    const [before] = values.status === 'ready' ? await tx.select({ status: orders.status }).from(orders).where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId))) : []
     const o = await updateVersioned(tx, orders, 'Order', { id, workshopId: actor.workshopId, version, values: { ...values, updatedAt: new Date() } })
     await audit(tx, actor, 'update', 'order', id, values)
+    becameReady = !!before && before.status !== 'ready'
     return o
   })
   realtime.emit(actor.workshopId, 'order:updated', { id, version: o.version })
+  // After commit: the notice's outcome is kept in the outbox and never undoes the change.
+  if (becameReady) await sendReadyNotice(deps, actor.workshopId, id).catch((err) => console.error('[mail] ready notice:', (err as Error).message))
   return getOrder(db, actor.workshopId, id)
 }
 

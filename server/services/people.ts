@@ -6,6 +6,7 @@ import { leave, operationKinds, people, personSkills, users } from '../db/schema
 import { AppError, invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
+import { forgetSessionUser } from '../middleware/auth'
 import { isUniqueViolation, requireOwned, updateVersioned } from './versioned'
 
 export async function listPeople(db: Db, workshopId: number): Promise<Person[]> {
@@ -50,6 +51,7 @@ export async function createPerson({ db, realtime }: Deps, actor: Actor, input: 
     await audit(tx, actor, 'create', 'person', p!.id, { name: input.name })
     return p!.id
   }).catch((e) => { throw userTaken(e) })
+  forgetSessionUser()
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'person', id })
   return getPerson(db, actor.workshopId, id)
 }
@@ -65,6 +67,7 @@ export async function updatePerson({ db, realtime }: Deps, actor: Actor, id: num
     }
     await audit(tx, actor, 'update', 'person', id, input as Record<string, unknown>)
   }).catch((e) => { throw userTaken(e) })
+  forgetSessionUser()
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'person', id })
   return getPerson(db, actor.workshopId, id)
 }

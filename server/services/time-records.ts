@@ -35,7 +35,7 @@ export async function effectiveRecords(tx: Tx, operationIds: number[], now = new
     return {
       id: r.id, operationId: r.operationId, personId: r.personId, personName, benchId: r.benchId, startedAt, endedAt,
       endReason: r.endReason, note: r.note, minutes, voided, recordedStartedAt: iso(r.startedAt)!, recordedEndedAt: iso(r.endedAt),
-      corrections: mine.map(({ c, by }) => ({ id: c.id, kind: c.kind, startedAt: iso(c.startedAt), endedAt: iso(c.endedAt), reason: c.reason, by, at: iso(c.createdAt)! })),
+      corrections: mine.map(({ c, by }) => ({ id: c.id, kind: c.kind, startedAt: iso(c.startedAt), endedAt: iso(c.endedAt), reason: c.reason, by, at: new Date(c.createdAt).toISOString() })),
     }
   })
 }

@@ -7,6 +7,7 @@ import { people, users } from '../db/schema/index'
 import { AppError } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
+import { forgetSessionUser } from '../middleware/auth'
 import { isUniqueViolation, updateVersioned } from './versioned'
 
 /** argon2id with the OWASP-recommended minimum (19 MiB, 2 passes). */
@@ -46,5 +47,6 @@ export async function updateUser({ db }: Deps, actor: Actor, id: number, input: 
     await updateVersioned(tx, users, 'User', { id, workshopId: actor.workshopId, version, values: set })
     await audit(tx, actor, 'update', 'user', id, { ...values, password: password ? 'changed' : undefined })
   })
+  forgetSessionUser(id)
   return getUser(db, actor.workshopId, id)
 }

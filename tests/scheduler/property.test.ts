@@ -34,7 +34,9 @@ const workshop = fc.record({
   closed: fc.integer({ min: 0, max: 12 }),
 })
 
-function build(w: fc.infer<typeof workshop>): Problem {
+type Workshop = typeof workshop extends fc.Arbitrary<infer T> ? T : never
+
+function build(w: Workshop): Problem {
   const days = 60
   const benches = Array.from({ length: w.benches }, (_, k) => makeBench({ id: `b${k}`, available: weekdays({ days, from: 7 * 60 + 30 * k, to: 17 * 60 }) }))
   const people = Array.from({ length: w.people }, (_, k) => makePerson({

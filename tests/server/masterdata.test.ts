@@ -498,6 +498,15 @@ describe('error hygiene', () => {
     }
   })
 
+  it('when list parameters are repeated, absurd or not numbers, then 400, never 500', async () => {
+    expectFieldError(await manager.get('/api/customers?q=a&q=b'), 'q')
+    expectFieldError(await manager.get('/api/customers?pageSize=abc'), 'pageSize')
+    const far = await manager.get('/api/customers?page=100000000000000000000')
+    expect([200, 400], `${far.status} ${JSON.stringify(far.body)}`).toContain(far.status)
+    const farOrders = await manager.get('/api/orders?page=100000000000000000000&pageSize=500')
+    expect([200, 400], `${farOrders.status} ${JSON.stringify(farOrders.body)}`).toContain(farOrders.status)
+  })
+
   it('when strings are far too long, then 400 naming the field', async () => {
     expectFieldError(await manager.post('/api/benches', { name: 'n'.repeat(10_000), kind: 'x' }), 'name', /at most 120/)
     expectFieldError(await manager.post('/api/benches', { name: 'Long notes', kind: 'x', notes: 'n'.repeat(3000) }), 'notes', /at most 2000/)

@@ -29,6 +29,13 @@ export interface PlanningData {
 /** Order priority 1 (most urgent) … 5 becomes a lateness weight 5 … 1. */
 export const weightOfPriority = (priority: number) => 6 - Math.min(5, Math.max(1, priority))
 
+/** Bench × person pairs that can do work of this kind at this level (active benches and people), with each person's minutes. */
+export function operationOptions(meta: Pick<PlanningData['meta'], 'benches' | 'people' | 'skills' | 'capabilities'>, kindId: number, requiredLevel: number, minutes: (speed: number) => number) {
+  const benchIds = meta.capabilities.filter((c) => c.kindId === kindId).map((c) => c.benchId).filter((id) => meta.benches.has(String(id)))
+  const able = meta.skills.filter((k) => k.kindId === kindId && k.level >= requiredLevel && meta.people.has(String(k.personId)))
+  return benchIds.flatMap((b) => able.map((k) => ({ benchId: String(b), personId: String(k.personId), minutes: minutes(k.speed) })))
+}
+
 export async function loadPlanningData(db: Db, workshopId: number, now: Date): Promise<PlanningData> {
   const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   if (!w) throw new Error('workshop missing')
@@ -109,9 +116,7 @@ export async function loadPlanningData(db: Db, workshopId: number, now: Date): P
     const records = openRecords.filter((r) => r.operationId === op.id)
     const workedMin = records.reduce((t, r) => t + ((r.endedAt ? new Date(r.endedAt).getTime() : now.getTime()) - new Date(r.startedAt).getTime()) / 60_000, 0)
     const remaining = (speed: number) => Math.max(5, Math.ceil(op.estimateMinutes / speed - workedMin))
-    const benchIds = caps.filter((c) => c.kindId === op.kindId).map((c) => c.benchId).filter((id) => meta.benches.has(String(id)))
-    const able = skills.filter((k) => k.kindId === op.kindId && k.level >= op.requiredLevel && meta.people.has(String(k.personId)))
-    let options = benchIds.flatMap((b) => able.map((k) => ({ benchId: String(b), personId: String(k.personId), minutes: remaining(k.speed) })))
+    let options = operationOptions(meta, op.kindId, op.requiredLevel, remaining)
     // Claimed, running or paused work stays with its person (and, when running, its bench).
     if (op.claimedBy && ['claimed', 'running', 'paused'].includes(op.status)) options = options.filter((o) => o.personId === String(op.claimedBy))
     const running = op.status === 'running' ? records.find((r) => !r.endedAt) : undefined

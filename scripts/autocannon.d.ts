@@ -1,0 +1,2 @@
+// Type stub for autocannon (it ships no types).
+declare module 'autocannon'

@@ -1,0 +1,79 @@
+// Benchmark at workshop scale on generated workshops: time to a first valid plan, tardiness after 2 s, memory, and the EDD baseline.
+// usage: npm run bench:workshop
+import { mkdirSync, writeFileSync } from 'node:fs'
+import { dirname, join, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { generateWorkshop } from '../server/scheduler/generate.ts'
+import { checkProblem, solve, validatePlan, type Problem } from '../server/scheduler/index.ts'
+import { compile, decode, toPlan } from '../server/scheduler/decode.ts'
+import { earliestDueDateKeys } from '../server/scheduler/search.ts'
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
+const clock = () => performance.now()
+let peakRss = 0, peakHeap = 0
+const sample = (): void => { const m = process.memoryUsage(); peakRss = Math.max(peakRss, m.rss); peakHeap = Math.max(peakHeap, m.heapUsed) }
+const mb = (b: number) => Math.round(b / 2 ** 20)
+
+/** What a manager does by hand: job bags in order of due date, each step on whichever bench and person frees up first. */
+function earliestDueDate(problem: Problem) {
+  const t0 = clock()
+  checkProblem(problem)
+  const c = compile(problem)
+  const d = decode(c, earliestDueDateKeys(c), new Int32Array(c.n).fill(-1))
+  const plan = toPlan(c, d, { iterations: 0, elapsedMs: clock() - t0, firstPlanMs: clock() - t0 })
+  return { plan, ms: clock() - t0, violations: validatePlan(problem, plan).length }
+}
+
+const results: Record<string, unknown> = {}
+
+// 200 job bags × 6 operations, 2 s budget.
+{
+  const problem = generateWorkshop({ seed: 2025, jobs: 200 })
+  const base = earliestDueDate(problem)
+  const t0 = clock()
+  const trace: { ms: number; weightedTardiness: number }[] = []
+  const plan = solve(problem, { seed: 1, timeLimitMs: 2000 }, { clock, onProgress: (p) => { sample(); trace.push({ ms: Math.round(p.elapsedMs), weightedTardiness: p.best.weightedTardiness }) } })
+  const wall = clock() - t0
+  sample()
+  const violations = validatePlan(problem, plan).length
+  const ratio = base.plan.score.weightedTardiness > 0 ? plan.score.weightedTardiness / base.plan.score.weightedTardiness : 1
+  results.workshop200 = {
+    jobs: 200, operations: problem.operations.length, firstValidPlanMs: plan.stats.firstPlanMs, budgetMs: 2000, wallMs: wall, iterations: plan.stats.iterations,
+    weightedTardiness: plan.score.weightedTardiness, makespan: plan.score.makespan, violations,
+    baselineEdd: { weightedTardiness: base.plan.score.weightedTardiness, ms: base.ms, violations: base.violations }, ratioToBaseline: ratio, trace,
+  }
+  console.log('200 job bags × 6 ops (8 benches, 6 people)')
+  console.log(`  first valid plan        ${plan.stats.firstPlanMs.toFixed(0)} ms (target < 300 ms)`)
+  console.log(`  weighted tardiness 2 s  ${plan.score.weightedTardiness} min·weight after ${plan.stats.iterations} iterations, ${violations} violations`)
+  console.log(`  EDD baseline            ${base.plan.score.weightedTardiness} min·weight (${base.ms.toFixed(0)} ms, ${base.violations} violations)`)
+  console.log(`  ours / baseline         ${ratio.toFixed(3)}`)
+}
+
+// 1,000 job bags: time to a valid plan and peak memory.
+{
+  const problem = generateWorkshop({ seed: 2026, jobs: 1000 })
+  sample()
+  const t0 = clock()
+  const plan = solve(problem, { seed: 1, timeLimitMs: 0, maxIterations: 0 }, { clock, onProgress: sample })
+  const wall = clock() - t0
+  sample()
+  const violations = validatePlan(problem, plan).length
+  const base = earliestDueDate(problem)
+  sample()
+  const ratio = base.plan.score.weightedTardiness > 0 ? plan.score.weightedTardiness / base.plan.score.weightedTardiness : 1
+  results.workshop1000 = {
+    jobs: 1000, operations: problem.operations.length, firstValidPlanMs: plan.stats.firstPlanMs, validPlanWallMs: wall, violations,
+    weightedTardiness: plan.score.weightedTardiness, baselineEdd: { weightedTardiness: base.plan.score.weightedTardiness, ms: base.ms }, ratioToBaseline: ratio,
+    peakRssMb: mb(peakRss), peakHeapUsedMb: mb(peakHeap),
+  }
+  console.log('1,000 job bags × 6 ops')
+  console.log(`  first valid plan        ${plan.stats.firstPlanMs.toFixed(0)} ms; solve() incl. all rules and validation ${wall.toFixed(0)} ms (target < 3 s), ${violations} violations`)
+  console.log(`  ours / EDD baseline     ${ratio.toFixed(3)} (${plan.score.weightedTardiness} vs ${base.plan.score.weightedTardiness})`)
+  console.log(`  peak memory             rss ${mb(peakRss)} MB, heap used ${mb(peakHeap)} MB (target < 300 MB)`)
+}
+
+const outDir = join(root, 'tests/bench/out')
+mkdirSync(outDir, { recursive: true })
+const out = join(outDir, 'workshop.json')
+writeFileSync(out, JSON.stringify(results, null, 2))
+console.log(`wrote ${out}`)

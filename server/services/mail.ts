@@ -1,0 +1,111 @@
+// E-mail use-cases: every message is written to the outbox first, then sent after the business change committed;
+// a failed send is recorded on its row and never undoes the change.
+import { and, count, desc, eq } from 'drizzle-orm'
+import type { Db } from '../db/client'
+import * as s from '../db/schema/index'
+import { notFound } from '../errors/app-error'
+import type { Deps } from '../lib/route'
+import { dayjs } from '../lib/time'
+import * as t from '../mail/templates'
+import { OUTBOX_HEADER } from '../mail/transport'
+import { boardData } from './board'
+
+export interface MailRequest { workshopId: number; to: string; kind: string; orderId?: number | null; meta?: Record<string, unknown>; content: t.MailContent }
+
+/** Records the message as queued, sends it, and stores the outcome. Never throws: the outcome is returned. */
+export async function sendRecorded(deps: Pick<Deps, 'db' | 'mailer'>, m: MailRequest) {
+  const [row] = await deps.db.insert(s.outbox).values({
+    workshopId: m.workshopId, to: m.to, subject: m.content.subject, text: m.content.text, html: m.content.html, kind: m.kind, orderId: m.orderId ?? null, meta: m.meta ?? {},
+  }).returning({ id: s.outbox.id })
+  const id = row!.id
+  const fail = async (error: string) => {
+    await deps.db.update(s.outbox).set({ status: 'failed', error: error.slice(0, 500) }).where(eq(s.outbox.id, id))
+    return { id, status: 'failed' as const, error }
+  }
+  if (!m.to.trim()) return fail('no e-mail address on file')
+  if (!deps.mailer) return fail('no mail transport configured')
+  try {
+    await deps.mailer.send({ to: m.to, subject: m.content.subject, text: m.content.text, html: m.content.html, headers: { [OUTBOX_HEADER]: String(id) } })
+  } catch (err) {
+    console.warn(`[mail] sending "${m.kind}" #${id} failed:`, (err as Error).message)
+    return fail((err as Error).message || String(err))
+  }
+  // The local test mailbox may already have marked it delivered.
+  await deps.db.update(s.outbox).set({ status: 'sent', sentAt: new Date().toISOString() }).where(and(eq(s.outbox.id, id), eq(s.outbox.status, 'queued')))
+  const [after] = await deps.db.select({ status: s.outbox.status }).from(s.outbox).where(eq(s.outbox.id, id))
+  return { id, status: after?.status ?? 'sent', error: null }
+}
+
+async function orderFacts(db: Db, workshopId: number, orderId: number) {
+  const [r] = await db.select({ order: s.orders, customerName: s.customers.name, customerEmail: s.customers.email, workshopName: s.workshops.name })
+    .from(s.orders).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId)).innerJoin(s.workshops, eq(s.workshops.id, s.orders.workshopId))
+    .where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
+  if (!r) throw notFound('Order')
+  return r
+}
+
+export async function sendPromiseConfirmation(deps: Pick<Deps, 'db' | 'mailer'>, workshopId: number, orderId: number) {
+  const f = await orderFacts(deps.db, workshopId, orderId)
+  const promised = f.order.promisedDate ?? f.order.dueDate
+  return sendRecorded(deps, {
+    workshopId, to: f.customerEmail, kind: 'promise-confirmation', orderId, meta: { promisedDate: promised },
+    content: t.promiseConfirmation({ workshopName: f.workshopName, customerName: f.customerName, orderNumber: f.order.number, title: f.order.title, promisedDate: promised, priceQuoted: f.order.priceQuoted }),
+  })
+}
+
+export async function sendReadyNotice(deps: Pick<Deps, 'db' | 'mailer'>, workshopId: number, orderId: number) {
+  const f = await orderFacts(deps.db, workshopId, orderId)
+  return sendRecorded(deps, {
+    workshopId, to: f.customerEmail, kind: 'ready-for-collection', orderId,
+    content: t.readyForCollection({ workshopName: f.workshopName, customerName: f.customerName, orderNumber: f.order.number, title: f.order.title }),
+  })
+}
+
+/**
+ * The managers' digest of job bags at risk or late on the live plan; those not in the previous digest are marked new.
+ * Sends nothing when no job bag is at risk. Managers receive it; owners when the workshop has no manager.
+ */
+export async function sendAtRiskDigest(deps: Pick<Deps, 'db' | 'mailer'>, workshopId: number, now = new Date()) {
+  const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
+  if (!w) throw notFound('Workshop')
+  const day = dayjs(now).tz(w.timeZone).format('YYYY-MM-DD')
+  const board = await boardData(deps.db, workshopId, { from: day, to: day, now })
+  const risky = board.jobs.filter((j) => j.state === 'at-risk' || j.state === 'late')
+  const [last] = await deps.db.select({ meta: s.outbox.meta }).from(s.outbox).where(and(eq(s.outbox.workshopId, workshopId), eq(s.outbox.kind, 'at-risk-digest'))).orderBy(desc(s.outbox.id)).limit(1)
+  const before = new Set(((last?.meta?.jobBagIds as number[] | undefined) ?? []))
+  const jobs: t.DigestLine[] = risky.map((j) => ({
+    number: j.number, piece: j.piece, orderNumber: j.orderNumber, due: j.due, state: j.state, reason: j.reason, isNew: !before.has(j.jobBagId),
+    expected: j.expectedCompletion ? dayjs(j.expectedCompletion).tz(w.timeZone).format('ddd D MMM HH:mm') : null,
+  }))
+  if (!jobs.length) return { day, jobs: [], messages: [] }
+  let to = await deps.db.select({ email: s.users.email }).from(s.users).where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'manager'), eq(s.users.active, true)))
+  if (!to.length) to = await deps.db.select({ email: s.users.email }).from(s.users).where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'owner'), eq(s.users.active, true)))
+  const content = t.atRiskDigest({ workshopName: w.name, day, jobs })
+  const meta = { day, jobBagIds: risky.map((j) => j.jobBagId) }
+  const messages = []
+  for (const u of to) messages.push(await sendRecorded(deps, { workshopId, to: u.email, kind: 'at-risk-digest', meta, content }))
+  return { day, jobs, messages }
+}
+
+/** Whether today's digest went out already (the daily timer asks before sending). */
+export async function digestSentOn(db: Db, workshopId: number, day: string) {
+  const rows = await db.select({ meta: s.outbox.meta }).from(s.outbox).where(and(eq(s.outbox.workshopId, workshopId), eq(s.outbox.kind, 'at-risk-digest'))).orderBy(desc(s.outbox.id)).limit(1)
+  return rows[0]?.meta?.day === day
+}
+
+export async function listOutbox(db: Db, workshopId: number, q: { page: number; pageSize: number; kind?: string; orderId?: number }) {
+  const where = and(eq(s.outbox.workshopId, workshopId), q.kind ? eq(s.outbox.kind, q.kind) : undefined, q.orderId ? eq(s.outbox.orderId, q.orderId) : undefined)
+  const [total] = await db.select({ n: count() }).from(s.outbox).where(where)
+  const items = await db.select({
+    id: s.outbox.id, to: s.outbox.to, subject: s.outbox.subject, kind: s.outbox.kind, orderId: s.outbox.orderId, orderNumber: s.orders.number,
+    status: s.outbox.status, error: s.outbox.error, createdAt: s.outbox.createdAt, sentAt: s.outbox.sentAt,
+  }).from(s.outbox).leftJoin(s.orders, eq(s.orders.id, s.outbox.orderId)).where(where).orderBy(desc(s.outbox.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
+  return { items, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
+}
+
+export async function getOutboxMessage(db: Db, workshopId: number, id: number) {
+  const [m] = await db.select().from(s.outbox).where(and(eq(s.outbox.id, id), eq(s.outbox.workshopId, workshopId)))
+  if (!m) throw notFound('Message')
+  return m
+}
+

@@ -1,0 +1,101 @@
+// The printable job ticket: a PDF (A6 or A5) with the bag's number, piece, customer reference, due date, routing checklist, cautions and a QR link.
+import PDFDocument from 'pdfkit'
+import QRCode from 'qrcode'
+import { HAZARD_FOOTER, cautionsFor } from '../../shared/domain/status'
+import type { Db } from '../db/client'
+import { getJobBag } from './job-bags'
+
+/** The link a ticket's QR code opens: the job bag's page in the app. */
+export const jobBagLink = (origin: string, jobBagId: number) => `${origin.replace(/\/+$/, '')}/job-bags/${jobBagId}`
+
+/** The QR code image printed on the ticket (PNG). */
+export function ticketQrPng(link: string): Promise<Buffer> {
+  return QRCode.toBuffer(link, { type: 'png', errorCorrectionLevel: 'M', margin: 2, width: 300 })
+}
+
+const SIZES = { A6: [297.64, 419.53], A5: [419.53, 595.28] } as const
+const fmtDate = (d: string) => new Date(`${d}T00:00:00Z`).toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' })
+
+/** Renders the ticket; the customer appears by reference only (no name or contact data leaves on paper). */
+export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number, o: { origin: string; size: 'A5' | 'A6' }): Promise<{ pdf: Buffer; number: string }> {
+  const bag = await getJobBag(db, workshopId, jobBagId)
+  const link = jobBagLink(o.origin, bag.id)
+  const qr = await ticketQrPng(link)
+  const [w, h] = SIZES[o.size]
+  const big = o.size === 'A5'
+  const m = big ? 28 : 18
+  const doc = new PDFDocument({ size: [w, h], margins: { top: m, bottom: m, left: m, right: m }, info: { Title: `Job ticket ${bag.number}`, Subject: bag.piece, Creator: 'Millgrain' } })
+  const chunks: Buffer[] = []
+  doc.on('data', (c: Buffer) => chunks.push(c))
+  const done = new Promise<Buffer>((resolve, reject) => { doc.on('end', () => resolve(Buffer.concat(chunks))); doc.on('error', reject) })
+
+  const fs = (n: number) => (big ? n * 1.3 : n)
+  const qrSize = big ? 110 : 78
+  const textW = w - 2 * m - qrSize - 8
+  doc.image(qr, w - m - qrSize, m - 4, { width: qrSize })
+  doc.font('Helvetica').fontSize(fs(7)).fillColor('#555').text('JOB TICKET', m, m, { width: textW, characterSpacing: 1 })
+  doc.font('Helvetica-Bold').fontSize(fs(18)).fillColor('#000').text(bag.number, { width: textW })
+  doc.font('Helvetica').fontSize(fs(9)).text(bag.piece, { width: textW })
+  doc.moveDown(0.3)
+  const facts: [string, string][] = [
+    ['Order', `${bag.order.number}`],
+    ['Customer ref.', bag.order.customerReference],
+    ['Due', fmtDate(bag.order.promisedDate ?? bag.order.dueDate)],
+  ]
+  const p = bag.params as { metal?: string; quantity?: number; stoneCount?: number }
+  facts.push(['Metal / qty', `${p.metal ?? '—'} · ${p.quantity ?? 1}${p.stoneCount ? ` · ${p.stoneCount} stones` : ''}`])
+  for (const [k, v] of facts) {
+    const y = doc.y
+    doc.font('Helvetica').fontSize(fs(7)).fillColor('#555').text(k, m, y, { width: 56 })
+    doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text(v, m + fs(56), y, { width: textW - fs(56) })
+  }
+  doc.y = Math.max(doc.y, m + qrSize + 2)
+  doc.font('Helvetica').fontSize(fs(6)).fillColor('#555').text('Scan to open this job bag', w - m - qrSize, m + qrSize - 6, { width: qrSize, align: 'center' })
+  doc.y = Math.max(doc.y, m + qrSize + 8)
+
+  // Routing checklist.
+  doc.moveTo(m, doc.y).lineTo(w - m, doc.y).lineWidth(0.7).strokeColor('#000').stroke()
+  doc.moveDown(0.3)
+  doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text('Routing', m, doc.y)
+  doc.moveDown(0.2)
+  const box = fs(8)
+  const estW = fs(44)
+  const hazardous: { name: string; cautions: string[] }[] = []
+  for (const [i, op] of bag.operations.entries()) {
+    if (op.status === 'skipped') continue
+    const cautions = cautionsFor(op.hazards).filter((c) => c !== HAZARD_FOOTER)
+    if (cautions.length) hazardous.push({ name: op.name, cautions })
+    const lineH = fs(9) * 1.25 + fs(6.5) * 1.2 + 4
+    if (doc.y + lineH > h - m - 10) doc.addPage()
+    const y = doc.y
+    doc.rect(m, y + 1, box, box).lineWidth(0.8).strokeColor('#000').stroke()
+    if (op.status === 'done') doc.moveTo(m + 1.5, y + box / 2 + 1).lineTo(m + box / 2.5, y + box - 0.5).lineTo(m + box - 1, y + 2.5).stroke()
+    const x = m + box + 6
+    const nameW = w - m - x - estW
+    doc.font('Helvetica-Bold').fontSize(fs(8.5)).fillColor('#000').text(`${i + 1}. ${op.name}${cautions.length ? '  (!)' : ''}`, x, y, { width: nameW })
+    const yAfter = doc.y
+    doc.font('Helvetica').fontSize(fs(6.5)).fillColor('#444').text(`${op.kindName}${op.requiredLevel > 1 ? ` · level ${op.requiredLevel}` : ''}`, x, yAfter, { width: nameW })
+    const est = op.outside || op.leadDays > 0 ? `${op.leadDays} working day${op.leadDays === 1 ? '' : 's'}` : `${Math.round(op.estimateMinutes)} min`
+    doc.font('Helvetica').fontSize(fs(8)).fillColor('#000').text(est, w - m - estW, y, { width: estW, align: 'right' })
+    doc.y = Math.max(doc.y, yAfter + fs(6.5) * 1.2) + 3
+    doc.x = m
+  }
+
+  if (hazardous.length) {
+    doc.moveDown(0.4)
+    if (doc.y > h - m - 60) doc.addPage()
+    doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text('Safety cautions', m, doc.y, { width: w - 2 * m })
+    const seen = new Set<string>()
+    for (const hz of hazardous) {
+      for (const c of hz.cautions) {
+        if (seen.has(c)) continue
+        seen.add(c)
+        doc.font('Helvetica').fontSize(fs(6.5)).fillColor('#000').text(`• ${c}`, m, doc.y, { width: w - 2 * m })
+      }
+    }
+    doc.font('Helvetica-Oblique').fontSize(fs(6.5)).text(HAZARD_FOOTER, m, doc.y, { width: w - 2 * m })
+  }
+  doc.font('Helvetica').fontSize(fs(5.5)).fillColor('#777').text(`Printed ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC · ${link}`, m, doc.y + 6, { width: w - 2 * m })
+  doc.end()
+  return { pdf: await done, number: bag.number }
+}

@@ -1,0 +1,260 @@
+// Pure mapping from board data to timeline rows and bars: groups, bar colours by kind or state, backgrounds, windows, move requests.
+import dayjs from 'dayjs'
+import isoWeek from 'dayjs/plugin/isoWeek'
+import timezone from 'dayjs/plugin/timezone'
+import utc from 'dayjs/plugin/utc'
+import type { MoveInput } from '@shared/schemas/plan'
+import type { BoardData, BoardItem, JobState, PlanMove } from '@/api/plans'
+
+dayjs.extend(utc)
+dayjs.extend(timezone)
+dayjs.extend(isoWeek)
+
+export type RowsBy = 'bench' | 'person'
+export type ColourBy = 'kind' | 'state'
+export type Zoom = 'day' | 'week' | 'month'
+export type BarState = 'planned' | 'claimed' | 'running' | 'paused' | 'late'
+
+export const OUTSIDE_GROUP = 'outside'
+export const UNASSIGNED_GROUP = 'unassigned'
+
+/** Our own palette for "colour by state": calm greys and blues for the plan, warm for work in hand, oxide red for late. */
+export const STATE_COLOURS: Record<BarState, { bg: string; label: string }> = {
+  planned: { bg: '#7d8794', label: 'Planned' },
+  claimed: { bg: '#3f7f8c', label: 'Claimed' },
+  running: { bg: '#4d7a5a', label: 'Running' },
+  paused: { bg: '#b58a2f', label: 'Paused' },
+  late: { bg: '#a8473a', label: 'Late' },
+}
+
+export interface TimelineGroup {
+  id: string
+  content: string
+  className?: string
+  order: number
+}
+
+export interface TimelineBar {
+  id: number
+  group: string
+  start: Date
+  end: Date
+  content: string
+  className: string
+  style: string
+  type: 'range'
+  editable: { updateTime: boolean; updateGroup: boolean; remove: false }
+  bar: BoardItem
+}
+
+export interface TimelineBackground {
+  id: string
+  group?: string
+  start: Date
+  end: Date
+  content: string
+  className: string
+  type: 'background'
+  editable: false
+  selectable: false
+}
+
+/** Timestamps from the API: ISO 8601, or PostgreSQL's "2026-12-11 08:30:00+00". */
+export function parseInstant(s: string): Date {
+  let t = s.trim().replace(' ', 'T')
+  if (/[+-]\d{2}$/.test(t)) t += ':00'
+  return new Date(t)
+}
+
+/** Midnight of a local calendar day in the workshop's zone. */
+export function dayStart(day: string, tz: string): Date {
+  return dayjs.tz(`${day} 00:00`, tz).toDate()
+}
+
+/** The local calendar day of an instant in the workshop's zone. */
+export function localDay(at: Date | string | number, tz: string): string {
+  return dayjs(at).tz(tz).format('YYYY-MM-DD')
+}
+
+/** Monday of the ISO week that holds the day. */
+export function weekMonday(day: string): string {
+  return dayjs(day).startOf('isoWeek').format('YYYY-MM-DD')
+}
+
+/** The data window loaded around an anchor day: four ISO weeks from the anchor's Monday. */
+export function dataWindowFor(anchorDay: string): { from: string; to: string } {
+  const from = weekMonday(anchorDay)
+  return { from, to: dayjs(from).add(27, 'day').format('YYYY-MM-DD') }
+}
+
+/** What the board shows at each zoom: one working day, Monday to Friday, or four weeks. */
+export function visibleWindow(zoom: Zoom, anchorDay: string, tz: string): { start: Date; end: Date } {
+  if (zoom === 'day') return { start: dayjs.tz(`${anchorDay} 07:30`, tz).toDate(), end: dayjs.tz(`${anchorDay} 17:30`, tz).toDate() }
+  const monday = weekMonday(anchorDay)
+  if (zoom === 'week') return { start: dayjs.tz(`${monday} 06:00`, tz).toDate(), end: dayjs.tz(`${dayjs(monday).add(4, 'day').format('YYYY-MM-DD')} 19:00`, tz).toDate() }
+  return { start: dayStart(monday, tz), end: dayStart(dayjs(monday).add(28, 'day').format('YYYY-MM-DD'), tz) }
+}
+
+/** The anchor one step back or forward at the zoom. */
+export function shiftAnchor(anchorDay: string, zoom: Zoom, direction: -1 | 1): string {
+  const step = zoom === 'day' ? 1 : zoom === 'week' ? 7 : 28
+  let d = dayjs(anchorDay).add(direction * step, 'day')
+  // Day by day, skip the weekend.
+  if (zoom === 'day') while (d.isoWeekday() > 5) d = d.add(direction, 'day')
+  return d.format('YYYY-MM-DD')
+}
+
+/** Whether a visible range reaches beyond the loaded data window. */
+export function outsideWindow(range: { start: Date; end: Date }, window: { from: string; to: string }, tz: string): boolean {
+  const from = dayStart(window.from, tz).getTime()
+  const to = dayStart(dayjs(window.to).add(1, 'day').format('YYYY-MM-DD'), tz).getTime()
+  return range.start.getTime() < from || range.end.getTime() > to
+}
+
+export function groupOf(item: Pick<BoardItem, 'outside' | 'benchId' | 'personId'>, rowsBy: RowsBy): string {
+  if (item.outside) return OUTSIDE_GROUP
+  const id = rowsBy === 'bench' ? item.benchId : item.personId
+  return id === null ? UNASSIGNED_GROUP : `${rowsBy === 'bench' ? 'b' : 'p'}:${id}`
+}
+
+/** Rows: every bench (or person), then outside work and anything without a row, when there is some. */
+export function groupsFor(data: Pick<BoardData, 'benches' | 'people' | 'items'>, rowsBy: RowsBy): TimelineGroup[] {
+  const rows: TimelineGroup[] =
+    rowsBy === 'bench'
+      ? data.benches.map((b, i) => ({ id: `b:${b.id}`, content: b.name, order: i }))
+      : data.people.map((p, i) => ({ id: `p:${p.id}`, content: p.name, order: i }))
+  const used = new Set(data.items.map((i) => groupOf(i, rowsBy)))
+  if (used.has(UNASSIGNED_GROUP)) rows.push({ id: UNASSIGNED_GROUP, content: rowsBy === 'bench' ? 'No bench yet' : 'No one yet', className: 'board-row--muted', order: 998 })
+  // Outside work (casting, hallmarking) takes days away from the workshop: its own row, always last.
+  rows.push({ id: OUTSIDE_GROUP, content: 'Outside work', className: 'board-row--outside', order: 999 })
+  return rows
+}
+
+export function barState(item: Pick<BoardItem, 'status' | 'late'>): BarState {
+  if (item.status === 'running') return 'running'
+  if (item.status === 'paused') return 'paused'
+  if (item.late) return 'late'
+  if (item.status === 'claimed') return 'claimed'
+  return 'planned'
+}
+
+/** Relative luminance (WCAG 2.x definition) of a #rrggbb colour. */
+export function luminance(hex: string): number {
+  const m = /^#?([0-9a-f]{6})$/i.exec(hex.trim())
+  if (!m) return 0.2
+  const n = parseInt(m[1]!, 16)
+  const ch = [(n >> 16) & 255, (n >> 8) & 255, n & 255].map((v) => {
+    const c = v / 255
+    return c <= 0.03928 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4
+  })
+  return 0.2126 * ch[0]! + 0.7152 * ch[1]! + 0.0722 * ch[2]!
+}
+
+/** WCAG contrast ratio between two colours. */
+export function contrast(a: string, b: string): number {
+  const [hi, lo] = [luminance(a), luminance(b)].sort((x, y) => y - x) as [number, number]
+  return (hi + 0.05) / (lo + 0.05)
+}
+
+/** White or dark ink, whichever reads better on the bar. */
+export function inkOn(bg: string): string {
+  return contrast(bg, '#ffffff') >= contrast(bg, '#2a2521') ? '#ffffff' : '#2a2521'
+}
+
+export interface BarOptions {
+  rowsBy: RowsBy
+  colourBy: ColourBy
+  /** The manager may drag on the live plan. */
+  canEdit: boolean
+  /** What a draft moves against the live plan (shown when viewing a draft). */
+  moved?: Map<number, PlanMove['change']>
+  /** Job risk by job bag, to outline the bars of jobs at risk. */
+  jobStates?: Map<number, JobState>
+}
+
+/** A bar may be dragged by the manager on the live plan unless it is being worked on or finished. */
+export function isDraggable(item: Pick<BoardItem, 'status'>, canEdit: boolean): boolean {
+  return canEdit && !['running', 'done', 'skipped'].includes(item.status)
+}
+
+export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
+  const state = barState(item)
+  const bg = o.colourBy === 'kind' ? item.color : STATE_COLOURS[state].bg
+  const classes = ['board-bar', `board-bar--${state}`]
+  if (item.late) classes.push('board-bar--late-job')
+  else if (o.jobStates?.get(item.jobBagId) === 'at-risk') classes.push('board-bar--at-risk')
+  if (item.pinned) classes.push('board-bar--pinned')
+  if (item.outside) classes.push('board-bar--outside')
+  if (item.hazards.length) classes.push('board-bar--hazard')
+  const change = o.moved?.get(item.id)
+  if (change) classes.push('board-bar--moved', `board-bar--moved-${change.includes('new') ? 'new' : 'shift'}`)
+  const drag = isDraggable(item, o.canEdit)
+  if (!drag) classes.push('board-bar--fixed')
+  return {
+    id: item.id,
+    group: groupOf(item, o.rowsBy),
+    start: parseInstant(item.start),
+    end: parseInstant(item.end),
+    content: `${item.jobBagNumber} ${item.name}`,
+    className: classes.join(' '),
+    style: `background-color: ${bg}; color: ${inkOn(bg)};`,
+    type: 'range',
+    editable: { updateTime: drag, updateGroup: drag && !item.outside, remove: false },
+    bar: item,
+  }
+}
+
+/** Shading: closed hours across all rows, closures named, leave on the person's row, downtime on the bench's row. */
+export function backgroundsFor(data: Pick<BoardData, 'nonWorking' | 'closures' | 'leave' | 'downtime' | 'window'>, rowsBy: RowsBy): TimelineBackground[] {
+  const tz = data.window.timeZone
+  const bg = (id: string, start: Date, end: Date, className: string, content = '', group?: string): TimelineBackground => ({ id, start, end, className, content, type: 'background', editable: false, selectable: false, ...(group ? { group } : {}) })
+  const nextDay = (d: string) => dayjs(d).add(1, 'day').format('YYYY-MM-DD')
+  const out: TimelineBackground[] = data.nonWorking.map((x, i) => bg(`off:${i}`, parseInstant(x.start), parseInstant(x.end), 'board-bg-off'))
+  data.closures.forEach((c, i) => out.push(bg(`closure:${i}`, dayStart(c.startsOn, tz), dayStart(nextDay(c.endsOn), tz), 'board-bg-closure', c.name)))
+  if (rowsBy === 'person') data.leave.forEach((l, i) => out.push(bg(`leave:${i}`, dayStart(l.startsOn, tz), dayStart(nextDay(l.endsOn), tz), 'board-bg-leave', l.reason || 'Leave', `p:${l.personId}`)))
+  if (rowsBy === 'bench') data.downtime.forEach((d, i) => out.push(bg(`down:${i}`, parseInstant(d.startsAt), parseInstant(d.endsAt), 'board-bg-down', d.reason || 'Downtime', `b:${d.benchId}`)))
+  return out
+}
+
+/** Long closed stretches (nights, weekends, closures) that "working hours only" folds away; short breaks stay shaded. */
+export function foldedStretches(data: Pick<BoardData, 'nonWorking'>, minHours = 4): { start: Date; end: Date }[] {
+  return data.nonWorking
+    .map((x) => ({ start: parseInstant(x.start), end: parseInstant(x.end) }))
+    .filter((x) => x.end.getTime() - x.start.getTime() >= minHours * 3_600_000)
+}
+
+export interface DropTarget {
+  group: string | number | null | undefined
+  start: Date
+}
+
+/** The PATCH body for a bar dropped on a row and time; null when nothing changed. */
+export function moveRequest(item: BoardItem, to: DropTarget, rowsBy: RowsBy): MoveInput | null {
+  const body: MoveInput = { version: item.version }
+  const group = String(to.group ?? '')
+  if (group && group !== groupOf(item, rowsBy)) {
+    const id = /^[bp]:(\d+)$/.exec(group)?.[1]
+    const value = group === OUTSIDE_GROUP || group === UNASSIGNED_GROUP || !id ? null : Number(id)
+    if (rowsBy === 'bench') body.benchId = value
+    else body.personId = value
+  }
+  if (Math.abs(to.start.getTime() - parseInstant(item.start).getTime()) >= 60_000) body.start = to.start.toISOString()
+  return Object.keys(body).length > 1 ? body : null
+}
+
+/** Minutes as "1 h 35 min" / "20 min" / "3 d" (working minutes of an estimate). */
+export function formatMinutes(min: number): string {
+  if (min < 60) return `${Math.round(min)} min`
+  const h = Math.floor(min / 60)
+  const m = Math.round(min % 60)
+  return m ? `${h} h ${m} min` : `${h} h`
+}
+
+/** The engine's completion (minutes from the Monday 00:00 of the current ISO week, workshop time) as an instant. */
+export function completionFromMakespan(makespanMinutes: number, now: Date | string, tz: string): Date {
+  const monday = dayjs(now).tz(tz).startOf('day').subtract(dayjs(now).tz(tz).isoWeekday() - 1, 'day').format('YYYY-MM-DD')
+  return new Date(dayStart(monday, tz).getTime() + makespanMinutes * 60_000)
+}
+
+/** Weighted lateness in hours, one decimal. */
+export const lateHours = (weightedTardinessMinutes: number) => Math.round((weightedTardinessMinutes / 60) * 10) / 10

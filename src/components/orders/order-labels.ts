@@ -1,0 +1,25 @@
+// Words and tag colours for order, job bag and operation states, and for metals.
+import type { OrderStatus } from '@shared/domain/status'
+import type { METALS } from '@shared/schemas/order'
+
+type TagType = 'primary' | 'success' | 'warning' | 'danger' | 'info'
+
+export const ORDER_STATUS_LABELS: Record<OrderStatus, string> = {
+  quoted: 'Quoted', open: 'Open', 'in-work': 'In work', ready: 'Ready to collect', collected: 'Collected', cancelled: 'Cancelled',
+}
+export const ORDER_STATUS_TAGS: Record<OrderStatus, TagType> = {
+  quoted: 'info', open: 'primary', 'in-work': 'warning', ready: 'success', collected: 'info', cancelled: 'danger',
+}
+const WORK_TAGS: Record<string, TagType> = {
+  waiting: 'info', pending: 'info', ready: 'primary', claimed: 'primary', running: 'warning', 'in-work': 'warning', paused: 'warning', 'on-hold': 'warning',
+  done: 'success', complete: 'success', skipped: 'info', cancelled: 'danger',
+}
+export const workTag = (status: string): TagType => WORK_TAGS[status] ?? 'info'
+export const workLabel = (status: string) => status.replace('-', ' ')
+
+export const METAL_LABELS: Record<(typeof METALS)[number], string> = {
+  'silver-925': 'Sterling silver 925', 'gold-9ct': '9 ct gold', 'gold-14k': '14 k gold', 'gold-18ct': '18 ct gold',
+  'platinum-950': 'Platinum 950', 'palladium-950': 'Palladium 950', brass: 'Brass', copper: 'Copper', mixed: 'Mixed metals',
+}
+
+export const PRIORITY_LABELS: Record<number, string> = { 1: '1 · when there is time', 2: '2 · low', 3: '3 · usual', 4: '4 · high', 5: '5 · urgent' }

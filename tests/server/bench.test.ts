@@ -1,0 +1,408 @@
+// Bench floor API against real PostgreSQL: next for me, claim / start / pause / resume / finish, refusals, replays, 50 claims at once, time corrections.
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
+import { HAZARD_CAUTIONS, HAZARD_FOOTER } from '../../shared/domain/status'
+import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { auditRows, expectCleanError, expectFieldError } from './helpers'
+import { benchId, extraSetters, freshReady, makeReady, openOps, personIdOf, rid } from './bench-fixtures'
+
+let t: TestApp
+let setter: Agent
+let trainee: Agent
+let manager: Agent
+let sales: Agent
+let setA: number
+let polishing: number
+let fab1: number
+let setterPerson: number
+
+beforeAll(async () => {
+  t = await createTestApp()
+  setter = await signedIn(t.app, 'bench')
+  manager = await signedIn(t.app, 'manager')
+  sales = await signedIn(t.app, 'sales')
+  trainee = new (setter.constructor as typeof Agent)(t.app)
+  await trainee.signIn('trainee@wrenfield.test')
+  setA = await benchId(t, 'Setting bench A')
+  polishing = await benchId(t, 'Polishing station')
+  fab1 = await benchId(t, 'Fabrication bench 1')
+  setterPerson = await personIdOf(t, 'setter@wrenfield.test')
+})
+afterAll(async () => { await t?.close() })
+
+const records = async (operationId: number) =>
+  (await t.pool.query('select * from time_records where operation_id = $1 order by id', [operationId])).rows as { id: number; started_at: Date; ended_at: Date | null; end_reason: string | null; note: string; person_id: number; client_id: string | null }[]
+const opRow = async (id: number) => (await t.pool.query('select * from operations where id = $1', [id])).rows[0]
+
+describe('next for me', () => {
+  it('when setting steps are ready, then the setter sees them at a setting bench in plan order (due date, then priority, then number), the trainee does not see level-2 steps', async () => {
+    const sets = (await openOps(t, 'setting', { key: 'set' })).slice(0, 3)
+    for (const s of sets) await makeReady(t, s.id)
+    const r = await setter.get(`/api/bench/next?benchId=${setA}`)
+    expect(r.status).toBe(200)
+    expect(r.body.person.id).toBe(setterPerson)
+    const ids = r.body.items.map((x: { id: number }) => x.id)
+    for (const s of sets) expect(ids).toContain(s.id)
+    // The plan's order without planned starts: due date ascending, then priority (5 = most urgent first), then job bag number.
+    const items = r.body.items as { dueDate: string; priority: number; jobBagNumber: string; plannedStart: string | null; kindCode: string; status: string }[]
+    for (let i = 1; i < items.length; i++) {
+      const a = items[i - 1]!, b = items[i]!
+      if (a.plannedStart || b.plannedStart) continue
+      expect(a.dueDate <= b.dueDate).toBe(true)
+      if (a.dueDate === b.dueDate) expect(a.priority > b.priority || (a.priority === b.priority && a.jobBagNumber <= b.jobBagNumber)).toBe(true)
+    }
+    expect(items.every((x) => x.status === 'ready' && ['setting', 'inspection'].includes(x.kindCode))).toBe(true)
+    const tr = await trainee.get(`/api/bench/next?benchId=${setA}`)
+    expect(tr.status).toBe(200)
+    expect(tr.body.items.filter((x: { id: number }) => sets.some((s) => s.id === x.id))).toEqual([])
+  })
+
+  it('when a planned start is set, then that step comes first', async () => {
+    const [, second] = await openOps(t, 'setting', { key: 'set', status: 'ready' })
+    await t.pool.query(`update operations set planned_start = now() + interval '1 hour' where id = $1`, [second!.id])
+    const r = await setter.get(`/api/bench/next?benchId=${setA}`)
+    expect(r.body.items[0].id).toBe(second!.id)
+    await t.pool.query('update operations set planned_start = null where id = $1', [second!.id])
+  })
+
+  it('when the bench is unknown or missing, then 400 names benchId', async () => {
+    expectFieldError(await setter.get('/api/bench/next?benchId=999999'), 'benchId')
+    expectFieldError(await setter.get('/api/bench/next'), 'benchId')
+  })
+
+  it('when a sales user asks for a queue, then 403', async () => {
+    expectCleanError(await sales.get(`/api/bench/next?benchId=${setA}`), 403)
+  })
+})
+
+describe('claim → start → pause → resume → finish', () => {
+  let op: { id: number; job_bag_id: number; key: string }
+  it('when the setter claims a ready step, then it is hers, audited and pushed live', async () => {
+    op = await freshReady(t, 'setting', 'set')
+    const emit = vi.spyOn(t.realtime, 'emit')
+    const r = await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect(r.body.operation).toMatchObject({ id: op.id, status: 'claimed', claimedBy: setterPerson, claimedByName: 'Ines Harrowby' })
+    expect(r.body.jobBag.status).toBe('in-work')
+    expect(emit).toHaveBeenCalledWith(expect.any(Number), 'operation:changed', { id: op.id, version: r.body.operation.version, status: 'claimed' })
+    expect(emit).toHaveBeenCalledWith(expect.any(Number), 'jobBag:changed', expect.objectContaining({ id: op.job_bag_id, status: 'in-work' }))
+    emit.mockRestore()
+    const a = await auditRows(t, 'operation', op.id)
+    expect(a[0]).toMatchObject({ action: 'claim', details: expect.objectContaining({ from: 'ready', to: 'claimed', personId: setterPerson, benchId: setA }) })
+    expect(await records(op.id)).toEqual([])
+    const mine = await setter.get('/api/bench/mine')
+    expect(mine.body.items.map((x: { id: number }) => x.id)).toContain(op.id)
+  })
+
+  it('when someone else claims the same step, then 409 names who has it', async () => {
+    const [other] = await extraSetters(t, 1, 'late')
+    const r = await other!.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
+    expectCleanError(r, 409)
+    expect(r.body.error).toMatch(/Ines Harrowby/)
+    expect(r.body.details).toMatchObject({ claimedByName: 'Ines Harrowby' })
+  })
+
+  it('when pausing before starting, then 409 says it must be running', async () => {
+    const r = await setter.post(`/api/bench/operations/${op.id}/pause`, { requestId: rid(), reason: 'end-of-day' })
+    expectCleanError(r, 409)
+    expect(r.body.error).toMatch(/claimed; it must be running/)
+  })
+
+  it('when the setter starts, then a time record opens at this bench and the step runs', async () => {
+    const r = await setter.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect(r.body.operation.status).toBe('running')
+    expect(r.body.operation.runningSince).toEqual(expect.any(String))
+    const recs = await records(op.id)
+    expect(recs).toHaveLength(1)
+    expect(recs[0]).toMatchObject({ person_id: setterPerson, ended_at: null })
+  })
+
+  it('when she starts a second step while one runs, then 409 names the running one', async () => {
+    const other = await freshReady(t, 'setting', 'tighten')
+    expect((await setter.post(`/api/bench/operations/${other.id}/claim`, { requestId: rid(), benchId: setA })).status).toBe(200)
+    const r = await setter.post(`/api/bench/operations/${other.id}/start`, { requestId: rid(), benchId: setA })
+    expectCleanError(r, 409)
+    expect(r.body.error).toMatch(/working on “.+” \(job bag .+\) already/)
+    expect(r.body.details.runningOperationId).toBe(op.id)
+    // Give it back so it stays in the queue for others.
+    const back = await setter.post(`/api/bench/operations/${other.id}/release`, { requestId: rid() })
+    expect(back.status).toBe(200)
+    expect(back.body.operation).toMatchObject({ status: 'ready', claimedBy: null })
+  })
+
+  it('when pausing with reason "other" and no note, then 400 asks for the note; an unknown reason is refused', async () => {
+    expectFieldError(await setter.post(`/api/bench/operations/${op.id}/pause`, { requestId: rid(), reason: 'other' }), 'note')
+    expectFieldError(await setter.post(`/api/bench/operations/${op.id}/pause`, { requestId: rid(), reason: 'tea' }), 'reason')
+    expectFieldError(await setter.post(`/api/bench/operations/${op.id}/pause`, { requestId: 'not-a-uuid', reason: 'end-of-day' }), 'requestId')
+  })
+
+  it('when she pauses waiting for parts, then the record closes with that reason', async () => {
+    const r = await setter.post(`/api/bench/operations/${op.id}/pause`, { requestId: rid(), reason: 'waiting-for-parts', note: 'stones not matched' })
+    expect(r.status).toBe(200)
+    expect(r.body.operation.status).toBe('paused')
+    const recs = await records(op.id)
+    expect(recs[0]).toMatchObject({ end_reason: 'waiting-for-parts', note: 'stones not matched' })
+    expect(recs[0]!.ended_at).not.toBeNull()
+  })
+
+  it('when she resumes and finishes, then a second record opens and closes, actual minutes are their sum, and the next step becomes ready in the same step', async () => {
+    expect((await setter.post(`/api/bench/operations/${op.id}/resume`, { requestId: rid(), benchId: setA })).body.operation.status).toBe('running')
+    expect(await records(op.id)).toHaveLength(2)
+    // Back-date both records a little so minutes are measurable.
+    const recs = await records(op.id)
+    await t.pool.query(`update time_records set started_at = now() - interval '50 minutes', ended_at = now() - interval '30 minutes' where id = $1`, [recs[0]!.id])
+    await t.pool.query(`update time_records set started_at = now() - interval '15 minutes' where id = $1`, [recs[1]!.id])
+    const emit = vi.spyOn(t.realtime, 'emit')
+    const r = await setter.post(`/api/bench/operations/${op.id}/finish`, { requestId: rid(), note: 'all stones tight' })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect(r.body.operation.status).toBe('done')
+    // 20 min + ~15 min.
+    expect(r.body.operation.actualMinutes).toBeGreaterThanOrEqual(34.9)
+    expect(r.body.operation.actualMinutes).toBeLessThan(36)
+    const after = await records(op.id)
+    expect(after[1]).toMatchObject({ end_reason: 'finished', note: 'all stones tight' })
+    const successor = (await t.pool.query(`select id, status from operations where job_bag_id = $1 and $2 = any(after)`, [op.job_bag_id, op.key])).rows
+    expect(successor.length).toBeGreaterThan(0)
+    for (const s of successor) expect(s.status).toBe('ready')
+    expect(r.body.readied.sort()).toEqual(successor.map((s: { id: number }) => s.id).sort())
+    for (const s of successor) expect(emit).toHaveBeenCalledWith(expect.any(Number), 'operation:changed', expect.objectContaining({ id: s.id, status: 'ready' }))
+    emit.mockRestore()
+    const actions = (await auditRows(t, 'operation', op.id)).map((a) => a.action).reverse()
+    expect(actions).toEqual(['claim', 'start', 'pause', 'resume', 'finish'])
+    expect((await auditRows(t, 'operation', successor[0].id))[0]).toMatchObject({ action: 'ready', details: expect.objectContaining({ from: 'pending', to: 'ready' }) })
+  })
+
+  it('when finishing twice (new request id), then 409 says it is finished already', async () => {
+    const r = await setter.post(`/api/bench/operations/${op.id}/finish`, { requestId: rid() })
+    expectCleanError(r, 409)
+    expect(r.body.error).toMatch(/finished already/)
+  })
+})
+
+describe('refusals', () => {
+  it('when a step waits for an unfinished one, then claiming it is refused with 422 naming that step', async () => {
+    const pending = (await openOps(t, 'setting', { key: 'set', status: 'pending' }))[0]!
+    const r = await setter.post(`/api/bench/operations/${pending.id}/claim`, { requestId: rid(), benchId: setA })
+    expectCleanError(r, 422)
+    expect(r.body.error).toMatch(/not ready: “Drill and cut seats”|not ready: “.+” must be finished first/)
+    expect(r.body.details.waitingFor.length).toBeGreaterThan(0)
+  })
+
+  it('when the person’s skill level is below the step’s, then 422 gives both levels', async () => {
+    const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
+    expect(op.required_level).toBeGreaterThan(1)
+    const r = await trainee.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
+    expectCleanError(r, 422)
+    expect(r.body.error).toMatch(/needs Stone setting at level \d; your level is 1/)
+  })
+
+  it('when the person has no skill for the kind at all, then 422 says so', async () => {
+    const polish = await freshReady(t, 'polishing')
+    const r = await setter.post(`/api/bench/operations/${polish.id}/claim`, { requestId: rid(), benchId: polishing })
+    expectCleanError(r, 422)
+    expect(r.body.error).toMatch(/no Polishing skill/)
+  })
+
+  it('when the bench is not equipped for the kind, then 422 names the bench', async () => {
+    const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
+    const r = await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: fab1 })
+    expectCleanError(r, 422)
+    expect(r.body.error).toMatch(/Fabrication bench 1 is not equipped for Stone setting/)
+  })
+
+  it('when a bench user tries to act for someone else, then 403', async () => {
+    const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
+    const other = await personIdOf(t, 'trainee@wrenfield.test')
+    expectCleanError(await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA, personId: other }), 403)
+  })
+
+  it('when the job bag is on hold, then claiming is refused with 422', async () => {
+    const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
+    await t.pool.query(`update job_bags set status = 'on-hold' where id = $1`, [op.job_bag_id])
+    const r = await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
+    expectCleanError(r, 422)
+    expect(r.body.error).toMatch(/on hold/)
+    await t.pool.query(`update job_bags set status = 'waiting' where id = $1`, [op.job_bag_id])
+  })
+
+  it('when the operation does not exist or belongs to nobody here, then 404', async () => {
+    expectCleanError(await setter.post('/api/bench/operations/999999/claim', { requestId: rid(), benchId: setA }), 404)
+  })
+
+  it('when the account has no person, then 422 explains that', async () => {
+    const owner = await signedIn(t.app, 'owner')
+    const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
+    const r = await owner.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
+    expectCleanError(r, 422)
+    expect(r.body.error).toMatch(/not linked to a person/)
+  })
+})
+
+describe('hazardous steps', () => {
+  it('when a polishing step (lathe) is started without acknowledging, then 422 carries the cautions; acknowledged, it starts', async () => {
+    const ruth = new (setter.constructor as typeof Agent)(t.app)
+    await ruth.signIn('ruth@wrenfield.test')
+    const polish = await freshReady(t, 'polishing')
+    const c = await ruth.post(`/api/bench/operations/${polish.id}/claim`, { requestId: rid(), benchId: polishing })
+    expect(c.status, JSON.stringify(c.body)).toBe(200)
+    // The caution text is the project's own (shared/domain/status.ts), from the sources in TRADE.md (WorkSafe WA, lathe entanglement).
+    expect(c.body.cautions).toEqual([HAZARD_CAUTIONS.lathe, HAZARD_FOOTER])
+    const r = await ruth.post(`/api/bench/operations/${polish.id}/start`, { requestId: rid(), benchId: polishing })
+    expectCleanError(r, 422)
+    expect(r.body.details).toMatchObject({ needsAcknowledgement: true, hazards: ['lathe'], cautions: [HAZARD_CAUTIONS.lathe, HAZARD_FOOTER] })
+    expect(await records(polish.id)).toEqual([])
+    const ok = await ruth.post(`/api/bench/operations/${polish.id}/start`, { requestId: rid(), benchId: polishing, acknowledgeHazards: true })
+    expect(ok.status).toBe(200)
+    expect((await auditRows(t, 'operation', polish.id))[0]).toMatchObject({ action: 'start', details: expect.objectContaining({ acknowledgedHazards: ['lathe'] }) })
+  })
+})
+
+describe('replays', () => {
+  it('when a tablet replays the same finish (same requestId), then the first answer comes back and only one record is closed', async () => {
+    const op = await freshReady(t, 'setting', 'set')
+    expect((await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })).status).toBe(200)
+    const startId = rid()
+    const s1 = await setter.post(`/api/bench/operations/${op.id}/start`, { requestId: startId, benchId: setA })
+    const s2 = await setter.post(`/api/bench/operations/${op.id}/start`, { requestId: startId, benchId: setA })
+    expect(s2.status).toBe(200)
+    expect(s2.body).toEqual(s1.body)
+    expect(await records(op.id)).toHaveLength(1)
+    const finishId = rid()
+    const [f1, f2] = await Promise.all([
+      setter.post(`/api/bench/operations/${op.id}/finish`, { requestId: finishId, note: 'done' }),
+      setter.post(`/api/bench/operations/${op.id}/finish`, { requestId: finishId, note: 'done' }),
+    ])
+    expect(f1.status).toBe(200)
+    expect(f2.status).toBe(200)
+    expect(f2.body).toEqual(f1.body)
+    const f3 = await setter.post(`/api/bench/operations/${op.id}/finish`, { requestId: finishId, note: 'done' })
+    expect(f3.body).toEqual(f1.body)
+    const recs = await records(op.id)
+    expect(recs).toHaveLength(1)
+    expect(recs[0]!.end_reason).toBe('finished')
+    expect((await auditRows(t, 'operation', op.id)).filter((a) => a.action === 'finish')).toHaveLength(1)
+  })
+
+  it('when a refused request is replayed, then the same refusal comes back', async () => {
+    const pending = (await openOps(t, 'setting', { key: 'set', status: 'pending' }))[0]!
+    const id = rid()
+    const a = await setter.post(`/api/bench/operations/${pending.id}/claim`, { requestId: id, benchId: setA })
+    const b = await setter.post(`/api/bench/operations/${pending.id}/claim`, { requestId: id, benchId: setA })
+    expect(a.status).toBe(422)
+    expect(b.status).toBe(422)
+    expect(b.body.error).toBe(a.body.error)
+  })
+
+  it('when a request id is reused for a different action, then 409', async () => {
+    const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
+    const id = rid()
+    expect((await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: id, benchId: setA })).status).toBe(200)
+    const r = await setter.post(`/api/bench/operations/${op.id}/release`, { requestId: id })
+    expectCleanError(r, 409)
+    expect(r.body.error).toMatch(/different request/)
+    expect((await setter.post(`/api/bench/operations/${op.id}/release`, { requestId: rid() })).status).toBe(200)
+  })
+})
+
+describe('50 claims at once', () => {
+  it('when 50 signed-in setters claim the same ready step at the same moment, then exactly one gets it and 49 are told who has it', async () => {
+    const crowd = await extraSetters(t, 50, 'crowd')
+    const op = await freshReady(t, 'setting', 'set')
+    const claimsBefore = (await auditRows(t, 'operation', op.id)).filter((a) => a.action === 'claim').length
+    const requestIds = crowd.map(() => rid())
+    const answers = await Promise.all(crowd.map((c, i) => c.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: requestIds[i], benchId: setA })))
+    const ok = answers.filter((r) => r.status === 200)
+    const refused = answers.filter((r) => r.status === 409)
+    expect(ok).toHaveLength(1)
+    expect(refused).toHaveLength(49)
+    const winner = crowd.find((c) => c.personId === ok[0]!.body.operation.claimedBy)!
+    for (const r of refused) expect(r.body.error).toContain(winner.name)
+    const row = await opRow(op.id)
+    expect(row).toMatchObject({ status: 'claimed', claimed_by: winner.personId })
+    expect((await auditRows(t, 'operation', op.id)).filter((a) => a.action === 'claim')).toHaveLength(claimsBefore + 1)
+    expect(await records(op.id)).toEqual([])
+    const stored = (await t.pool.query(`select status, count(*)::int as n from bench_requests where request_id = any($1::text[]) group by status order by status`, [requestIds])).rows
+    expect(stored, JSON.stringify(stored)).toEqual([{ status: 200, n: 1 }, { status: 409, n: 49 }])
+  })
+})
+
+describe('time record corrections', () => {
+  let opId: number
+  let recordId: number
+  beforeAll(async () => {
+    const op = await freshReady(t, 'setting', 'tighten')
+    opId = op.id
+    await setter.post(`/api/bench/operations/${opId}/claim`, { requestId: rid(), benchId: setA })
+    await setter.post(`/api/bench/operations/${opId}/start`, { requestId: rid(), benchId: setA })
+    await setter.post(`/api/bench/operations/${opId}/pause`, { requestId: rid(), reason: 'end-of-day' })
+    recordId = (await records(opId))[0]!.id
+    await t.pool.query(`update time_records set started_at = '2025-01-07T09:00:00Z', ended_at = '2025-01-07T09:10:00Z' where id = $1`, [recordId])
+  })
+
+  it('when a manager corrects the end of a record, then the actual minutes use it, the record itself is unchanged, and who and why are kept', async () => {
+    const r = await manager.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2025-01-07T10:30:00Z', reason: 'forgot to pause at lunch; worked till half ten' })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    // 09:00 → 10:30 = 90 minutes.
+    expect(r.body).toMatchObject({ minutes: 90, recordedEndedAt: '2025-01-07T09:10:00.000Z', endedAt: '2025-01-07T10:30:00.000Z' })
+    expect(r.body.corrections[0]).toMatchObject({ kind: 'change', by: 'Sam Ottery', reason: expect.stringMatching(/lunch/) })
+    const raw = await records(opId)
+    expect(raw[0]!.ended_at!.toISOString()).toBe('2025-01-07T09:10:00.000Z')
+    const bag = await manager.get(`/api/job-bags/${(await opRow(opId)).job_bag_id}`)
+    expect(bag.body.operations.find((o: { id: number }) => o.id === opId).actualMinutes).toBe(90)
+    expect((await auditRows(t, 'operation', opId))[0]).toMatchObject({ action: 'correct-time' })
+  })
+
+  it('when a second correction is made, then the newest wins and both are listed', async () => {
+    const r = await manager.post(`/api/time-records/${recordId}/corrections`, { startedAt: '2025-01-07T09:30:00Z', reason: 'started after the briefing' })
+    expect(r.body.minutes).toBe(60)
+    expect(r.body.corrections).toHaveLength(2)
+  })
+
+  it('when a manager adds a missing record, then it counts and is marked as added with the reason', async () => {
+    const r = await manager.post(`/api/operations/${opId}/time-records`, { personId: setterPerson, benchId: setA, startedAt: '2025-01-08T09:00:00Z', endedAt: '2025-01-08T09:45:00Z', endReason: 'end-of-day', reason: 'tablet was flat' })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    expect(r.body.minutes).toBe(45)
+    expect(r.body.corrections[0]).toMatchObject({ kind: 'add', reason: 'tablet was flat' })
+    const bag = await manager.get(`/api/job-bags/${(await opRow(opId)).job_bag_id}`)
+    expect(bag.body.operations.find((o: { id: number }) => o.id === opId).actualMinutes).toBe(105)
+  })
+
+  it('when a record is voided, then it no longer counts', async () => {
+    const r = await manager.post(`/api/time-records/${recordId}/corrections`, { void: true, reason: 'booked on the wrong bag' })
+    expect(r.body).toMatchObject({ voided: true, minutes: 0 })
+  })
+
+  it('when a correction has no reason or ends before it starts, then 400 names the field; a bench user may not correct', async () => {
+    expectFieldError(await manager.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2025-01-07T10:30:00Z' }), 'reason')
+    expectFieldError(await manager.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2025-01-07T08:00:00Z', startedAt: '2025-01-07T09:00:00Z', reason: 'typo fix' }), 'endedAt')
+    expectFieldError(await manager.post(`/api/operations/${opId}/time-records`, { personId: setterPerson, startedAt: '2025-01-08T09:00:00Z', endedAt: '2025-01-08T08:00:00Z', reason: 'x-y-z' }), 'endedAt')
+    expectCleanError(await setter.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2025-01-07T10:30:00Z', reason: 'my own fix' }), 403)
+  })
+})
+
+describe('acting on behalf and outside work', () => {
+  it('when the manager claims and starts for the setter, then the records are hers and the audit names the manager', async () => {
+    const op = await freshReady(t, 'setting', 'tighten')
+    const c = await manager.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA, personId: setterPerson })
+    expect(c.status, JSON.stringify(c.body)).toBe(200)
+    expect(c.body.operation.claimedByName).toBe('Ines Harrowby')
+    const s = await manager.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
+    // The setter has a paused step only (from the correction tests), so nothing else is running.
+    expect(s.status, JSON.stringify(s.body)).toBe(200)
+    expect((await records(op.id))[0]!.person_id).toBe(setterPerson)
+    const a = await auditRows(t, 'operation', op.id)
+    expect(a[0]!.user_id).not.toBe(a[0]!.details.personId)
+  })
+
+  it('when hallmarking is sent out and booked back, then the next step is ready; a bench user cannot send out', async () => {
+    const hm = await freshReady(t, 'hallmarking')
+    expectCleanError(await setter.post(`/api/operations/${hm.id}/send-out`, { requestId: rid() }), 403)
+    expectCleanError(await manager.post(`/api/bench/operations/${hm.id}/claim`, { requestId: rid(), benchId: setA, personId: setterPerson }), 422)
+    const out = await manager.post(`/api/operations/${hm.id}/send-out`, { requestId: rid(), note: 'to the assay office' })
+    expect(out.status, JSON.stringify(out.body)).toBe(200)
+    expect(out.body.operation.status).toBe('running')
+    const back = await manager.post(`/api/operations/${hm.id}/receive`, { requestId: rid() })
+    expect(back.body.operation.status).toBe('done')
+    expect(back.body.readied.length).toBeGreaterThan(0)
+  })
+})

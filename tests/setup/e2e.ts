@@ -1,0 +1,91 @@
+// Browser tests: the real server on a private database serving the built client, and Debian's Chromium via playwright-core.
+import { mkdirSync } from 'node:fs'
+import { join } from 'node:path'
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
+import type { Role } from '../../shared/domain/roles'
+import { loadConfig } from '../../server/config'
+import { startServer } from '../../server/index'
+import { DEMO_PASSWORD } from '../../server/db/seed'
+import { DEMO_EMAIL } from './app'
+import { createTestDb, type TestDb } from './db'
+
+export { DEMO_EMAIL, DEMO_PASSWORD }
+
+const ROOT = join(import.meta.dirname, '..', '..')
+export const SCREENSHOT_DIR = join(ROOT, 'test-results')
+
+export interface E2E {
+  /** Base URL of the running server, e.g. http://127.0.0.1:39211 */
+  url: string
+  browser: Browser
+  db: TestDb
+  /** A fresh browser context (own cookies) pointed at the server. */
+  newContext(): Promise<BrowserContext>
+  close(): Promise<void>
+}
+
+export function launchChromium(): Promise<Browser> {
+  return chromium.launch({
+    executablePath: '/usr/bin/chromium',
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  })
+}
+
+/** Starts the server (port 0) on a copy of the seeded database, with the built client from dist/, and Chromium. */
+export async function startE2E(): Promise<E2E> {
+  const db = await createTestDb()
+  const server = await startServer(
+    loadConfig({
+      DATABASE_URL: db.url,
+      PORT: '0',
+      SESSION_SECRET: 'e2e-secret-e2e-secret-e2e',
+      CLIENT_DIR: join(ROOT, 'dist'),
+      NODE_ENV: 'test',
+      LOGIN_ATTEMPTS_PER_15_MIN: '1000',
+    }),
+  )
+  const browser = await launchChromium()
+  return {
+    url: server.url,
+    browser,
+    db,
+    newContext: () => browser.newContext({ baseURL: server.url, viewport: { width: 1440, height: 900 }, locale: 'en-GB', timezoneId: 'Europe/London' }),
+    async close() {
+      await browser.close().catch(() => undefined)
+      await server.close().catch(() => undefined)
+      await db.drop().catch(() => undefined)
+    },
+  }
+}
+
+/** Fills the sign-in form and waits until the app has left the sign-in page. */
+export async function signInWith(page: Page, email: string, password: string) {
+  await page.goto('/sign-in')
+  await page.locator('input[name=email]').fill(email)
+  await page.locator('input[name=password]').fill(password)
+  await page.locator('[data-test=sign-in-submit]').click()
+}
+
+/** A new page in `context`, signed in as the demo user of `role`, on that role's start page. */
+export async function signInPage(context: BrowserContext, role: Role): Promise<Page> {
+  const page = await context.newPage()
+  await signInWith(page, DEMO_EMAIL[role], DEMO_PASSWORD)
+  await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 15_000 })
+  await page.locator('[data-test=user-name]').waitFor()
+  return page
+}
+
+/** Saves a full-page screenshot as test-results/<name>.png and returns its path. */
+export async function screenshot(page: Page, name: string): Promise<string> {
+  mkdirSync(SCREENSHOT_DIR, { recursive: true })
+  const path = join(SCREENSHOT_DIR, `${name}.png`)
+  await page.waitForLoadState('networkidle').catch(() => undefined)
+  await page.screenshot({ path, fullPage: true })
+  return path
+}
+
+/** The hrefs of the navigation links the page shows. */
+export async function navTargets(page: Page): Promise<string[]> {
+  return page.locator('nav[aria-label=Main] [data-nav]').evaluateAll((els) => els.map((e) => e.getAttribute('data-nav') ?? ''))
+}

@@ -1,10 +1,11 @@
 // Every API route, in one list: the app mounts it and the access test walks it.
 import type { RouteSpec } from '../lib/route'
 import { benchRoutes } from './bench'
+import { insightRoutes } from './insights'
 import { jobBagRoutes } from './job-bags'
 import { masterDataRoutes } from './masterdata'
 import { orderRoutes } from './orders'
 import { planRoutes } from './plans'
 import { sessionRoutes } from './session'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes] as RouteSpec[]

@@ -25,7 +25,8 @@ beforeEach(() => {
   vi.stubGlobal('fetch', vi.fn(async () => new Response('{}', { status: 200 })))
 })
 
-describe('router guard', () => {
+// The first navigation loads the lazy screens (and Element Plus) through the transformer: allow it time.
+describe('router guard', { timeout: 60_000 }, () => {
   it('when a bench user opens /settings, then they are sent to the not-allowed page that names where they came from', async () => {
     signedInAs('bench')
     const router = makeRouter()

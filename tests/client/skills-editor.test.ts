@@ -34,8 +34,10 @@ describe('PeopleSkillsEditor', () => {
     expect(skills).toHaveLength(2)
   })
 
-  it('when reasons are given for a row, then they show next to that row', () => {
+  it('when reasons are given for a row, then they show next to that row', async () => {
     const w = mount(PeopleSkillsEditor, { props: { modelValue: [{ kindId: 2, level: 1, speed: 5 }], kinds: KINDS, errors: { '0.speed': 'Must be between 0.3 and 3' } }, global: { plugins: [ElementPlus] } })
+    // Element Plus shows a form item's error after a short debounce.
+    await new Promise((r) => setTimeout(r, 200))
     expect(w.find('[data-test=skill-row]').text()).toContain('Must be between 0.3 and 3')
   })
 })

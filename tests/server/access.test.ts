@@ -98,6 +98,19 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   // outside work (casting, hallmarking) sent and booked back by the manager
   'POST /operations/:id/send-out': STAFF,
   'POST /operations/:id/receive': STAFF,
+  // insights and estimating: the owner's figures (people, orders, money); managers read accuracy by kind and use three-point estimates when editing steps
+  'GET /insights/comparison': OWNER,
+  'GET /insights/kind-accuracy': STAFF,
+  'GET /insights/records': OWNER,
+  'GET /insights/scatter': OWNER,
+  'GET /insights/bias-trend': OWNER,
+  'GET /insights/costing': OWNER,
+  'PUT /insights/templates/:id/outside-cost': OWNER,
+  'PUT /insights/operations/:id/outside-cost': OWNER,
+  'GET /estimates/learned': OWNER,
+  'POST /estimates/accept': OWNER,
+  'GET /estimates/changes': OWNER,
+  'POST /estimates/three-point': STAFF,
 }
 
 /** Bodies for routes where an empty body would start long work; every other write gets {}. */

@@ -2,14 +2,20 @@
 import { z } from 'zod'
 import { listQuery } from '../../shared/schemas/common'
 import { orderInput, orderUpdate } from '../../shared/schemas/order'
-import { ORDER_STATUSES } from '../../shared/domain/status'
+import { ORDER_STATUSES, type OrderStatus } from '../../shared/domain/status'
 import type { Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
 import * as orders from '../services/orders'
 import { idParam } from './params'
 
 const FRONT: Role[] = ['owner', 'manager', 'sales']
-const orderListQuery = listQuery.extend({ status: z.enum(ORDER_STATUSES).optional() })
+// One status or several separated by commas (e.g. "quoted,open,in-work,ready" for the work still in the workshop).
+const statusList = z
+  .string()
+  .max(200)
+  .transform((s) => s.split(',').filter(Boolean) as OrderStatus[])
+  .refine((list) => list.length > 0 && list.every((s) => (ORDER_STATUSES as readonly string[]).includes(s)), `must be one of: ${ORDER_STATUSES.join(', ')} (several separated by commas)`)
+const orderListQuery = listQuery.extend({ status: statusList.optional() })
 
 export const orderRoutes = [
   route({ method: 'get', path: '/orders', roles: FRONT, summary: 'Orders (search, sort, pages)', query: orderListQuery, handler: ({ deps, actor, query }) => orders.listOrders(deps.db, actor.workshopId, query) }),

@@ -16,11 +16,12 @@ const containing = (text: string) => `%${text.replace(/[\\%_]/g, '\\$&')}%`
 
 const bagCount = sql<number>`(select count(*)::int from ${jobBags} where ${jobBags.orderId} = ${orders.id})`
 
-export async function listOrders(db: Db, workshopId: number, q: ListQuery & { status?: string }) {
+export async function listOrders(db: Db, workshopId: number, q: ListQuery & { status?: string | string[] }) {
+  const statuses = q.status === undefined ? [] : Array.isArray(q.status) ? q.status : [q.status]
   const like = q.q ? containing(q.q) : null
   const where = and(
     eq(orders.workshopId, workshopId),
-    q.status ? eq(orders.status, q.status) : undefined,
+    statuses.length ? inArray(orders.status, statuses) : undefined,
     like ? or(ilike(orders.number, like), ilike(orders.title, like), ilike(customers.name, like)) : undefined,
   )
   const sortCol = q.sort === 'number' ? orders.number : q.sort === 'priority' ? orders.priority : q.sort === 'customer' ? customers.name : orders.dueDate

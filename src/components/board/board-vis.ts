@@ -30,6 +30,8 @@ export const STATE_COLOURS: Record<BarState, { bg: string; label: string }> = {
 export interface TimelineGroup {
   id: string
   content: string
+  /** A second line under the row name (the bench's kind). */
+  sub?: string
   className?: string
   order: number
 }
@@ -121,12 +123,12 @@ export function groupOf(item: Pick<BoardItem, 'outside' | 'benchId' | 'personId'
 export function groupsFor(data: Pick<BoardData, 'benches' | 'people' | 'items'>, rowsBy: RowsBy): TimelineGroup[] {
   const rows: TimelineGroup[] =
     rowsBy === 'bench'
-      ? data.benches.map((b, i) => ({ id: `b:${b.id}`, content: b.name, order: i }))
+      ? data.benches.map((b, i) => ({ id: `b:${b.id}`, content: b.name, sub: b.kind, order: i }))
       : data.people.map((p, i) => ({ id: `p:${p.id}`, content: p.name, order: i }))
   const used = new Set(data.items.map((i) => groupOf(i, rowsBy)))
   if (used.has(UNASSIGNED_GROUP)) rows.push({ id: UNASSIGNED_GROUP, content: rowsBy === 'bench' ? 'No bench yet' : 'No one yet', className: 'board-row--muted', order: 998 })
   // Outside work (casting, hallmarking) takes days away from the workshop: its own row, always last.
-  rows.push({ id: OUTSIDE_GROUP, content: 'Outside work', className: 'board-row--outside', order: 999 })
+  rows.push({ id: OUTSIDE_GROUP, content: 'Outside work', sub: 'away from the workshop', className: 'board-row--outside', order: 999 })
   return rows
 }
 
@@ -258,3 +260,15 @@ export function completionFromMakespan(makespanMinutes: number, now: Date | stri
 
 /** Weighted lateness in hours, one decimal. */
 export const lateHours = (weightedTardinessMinutes: number) => Math.round((weightedTardinessMinutes / 60) * 10) / 10
+
+/** An instant on the workshop's clock: "Thu 3 Dec 15:48". */
+export function formatWhen(at: string | Date | null | undefined, tz: string): string {
+  return at ? dayjs(typeof at === 'string' ? parseInstant(at) : at).tz(tz).format('ddd D MMM HH:mm') : '—'
+}
+
+/** A stretch on the workshop's clock: "Thu 3 Dec 15:48–16:02", or with both days when it spans more than one. */
+export function formatSpan(start: string, end: string, tz: string): string {
+  const a = dayjs(parseInstant(start)).tz(tz)
+  const b = dayjs(parseInstant(end)).tz(tz)
+  return a.format('YYYY-MM-DD') === b.format('YYYY-MM-DD') ? `${a.format('ddd D MMM HH:mm')}–${b.format('HH:mm')}` : `${a.format('ddd D MMM HH:mm')} – ${b.format('ddd D MMM HH:mm')}`
+}

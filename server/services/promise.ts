@@ -1,0 +1,223 @@
+// Promise dates for sales: the earliest completion of a prospective piece on the live plan (and re-planned), its
+// confidence range, turning it into an order with the promised date, and the forecast of an existing order.
+import { and, asc, eq } from 'drizzle-orm'
+import { quantileSorted } from 'simple-statistics'
+import type { JobBagForecast, OrderForecast, PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
+import { templateEstimate } from '../../shared/domain/estimate'
+import * as s from '../db/schema/index'
+import { invalid } from '../errors/app-error'
+import type { Actor, Deps } from '../lib/route'
+import type { Realtime } from '../realtime/hub'
+import { dayjs } from '../lib/time'
+import { clipToWindows, intersect } from '../scheduler/calendar.ts'
+import { promise, solve, type Job, type Operation, type Plan, type PlannedOperation } from '../scheduler/index.ts'
+import { boardData } from './board'
+import { sendPromiseConfirmation } from './mail'
+import { createOrder } from './orders'
+import { currentAssignments, type Assignment } from './planning/assignments'
+import { loadPlanningData, operationOptions, weightOfPriority, type PlanningData } from './planning/problem'
+import { planningError } from './planning/runs'
+import { DEFAULT_RUNS, kindSpreads, simulateCompletions, type KindSpread } from './promise-range'
+import { requireOwned } from './versioned'
+
+/** Search budget of the "everything re-planned" answer; the fixed answer is one decode. */
+export const REPLAN_MS = 120
+const QUICK_PLAN_MS = 120
+const CACHE_MS = 5 * 60_000
+export const PROSPECTIVE_JOB = 'prospective'
+
+// Per app (realtime hub) and workshop: the quick plan used when nothing is published, and the duration spreads.
+// Dropped on any change in the workshop, and after CACHE_MS.
+const caches = new WeakMap<Realtime, Map<string, { at: number; value: unknown }>>()
+async function cached<T>(realtime: Realtime, key: string, load: () => Promise<T> | T): Promise<T> {
+  let m = caches.get(realtime)
+  if (!m) {
+    const fresh = new Map<string, { at: number; value: unknown }>()
+    realtime.onChange((ws) => { for (const k of fresh.keys()) if (k.startsWith(`${ws}|`)) fresh.delete(k) })
+    caches.set(realtime, fresh)
+    m = fresh
+  }
+  const hit = m.get(key)
+  if (hit && Date.now() - hit.at < CACHE_MS) return hit.value as T
+  const value = await load()
+  m.set(key, { at: Date.now(), value })
+  return value
+}
+
+const local = (data: PlanningData, minute: number) => {
+  const at = data.clock.toDate(minute)
+  return { at: at.toISOString(), date: dayjs(at).tz(data.clock.timeZone).format('YYYY-MM-DD') }
+}
+
+/** The live plan (operations' planned fields) as an engine plan; assignments that no longer fit the calendars are left free. */
+export function planFromAssignments(data: PlanningData, live: Record<string, Assignment>): Plan {
+  const c = data.clock
+  const p = data.problem
+  const engineOps = new Map(p.operations.map((o) => [o.id, o]))
+  const benches = new Map(p.benches.map((b) => [b.id, b.available]))
+  const people = new Map(p.people.map((x) => [x.id, x.available]))
+  const operations: PlannedOperation[] = []
+  for (const [id, a] of Object.entries(live)) {
+    const op = engineOps.get(id)
+    if (!op || op.done) continue
+    const start = c.toMinute(a.start), end = Math.max(start, c.toMinute(a.end))
+    const outside = !!op.outsideWorkingDays
+    let segments = [{ start, end }]
+    if (!outside) {
+      const b = a.benchId ? benches.get(a.benchId) : undefined, pe = a.personId ? people.get(a.personId) : undefined
+      if (!b || !pe) continue
+      const w = intersect(b, pe)
+      if (!w.some((x) => x.start <= start && start < x.end)) continue
+      segments = clipToWindows(w, start, end)
+    }
+    operations.push({ operationId: id, jobId: op.jobId, benchId: outside ? null : a.benchId, personId: outside ? null : a.personId, start, end, segments, reason: { kind: 'fixed', detail: 'on the live plan' } })
+  }
+  const jobs = p.jobs.map((j) => {
+    const completion = operations.filter((o) => o.jobId === j.id).reduce((m, o) => Math.max(m, o.end), p.now)
+    const lateness = j.due === null ? 0 : completion - j.due
+    return { jobId: j.id, completion, lateness, tardiness: Math.max(0, lateness) }
+  })
+  const weight = new Map(p.jobs.map((j) => [j.id, j.weight]))
+  return {
+    operations, jobs,
+    score: { weightedTardiness: jobs.reduce((t, j) => t + j.tardiness * (weight.get(j.jobId) ?? 1), 0), makespan: operations.reduce((m, o) => Math.max(m, o.end), p.now), moves: 0, feasible: true, violations: [] },
+    stats: { iterations: 0, elapsedMs: 0, firstPlanMs: 0 },
+  }
+}
+
+/** The plan a promise is measured against: the live plan, or a quick plan of the open work when nothing is planned. */
+async function basePlan(deps: Deps, workshopId: number, data: PlanningData) {
+  const live = await currentAssignments(deps.db, workshopId)
+  const plan = planFromAssignments(data, live)
+  if (plan.operations.length > 0) return { plan, basis: 'live-plan' as const, basisNote: 'Measured against the live plan; current work keeps its times.' }
+  const quick = data.problem.operations.some((o) => !o.done)
+    ? await cached(deps.realtime, `${workshopId}|quick-plan`, () => { try { return solve(data.problem, { seed: 1, timeLimitMs: QUICK_PLAN_MS }) } catch (err) { throw planningError(err, data) } })
+    : plan
+  // Only operations still open in this problem (the cached plan may be a few minutes old).
+  const ids = new Set(data.problem.operations.filter((o) => !o.done).map((o) => o.id))
+  const kept = { ...quick, operations: quick.operations.filter((o) => ids.has(o.operationId) && o.start >= data.problem.now) }
+  return { plan: kept, basis: 'quick-plan' as const, basisNote: 'No plan is published yet: measured against a quick plan of the open work.' }
+}
+
+/** The prospective job bag from a routing template: operations with estimates and the bench × person options. */
+async function prospectiveJob(deps: Deps, workshopId: number, data: PlanningData, input: Pick<PromiseCheckInput, 'templateId' | 'params' | 'priority' | 'wantedDate'>) {
+  const [t] = await deps.db.select().from(s.routingTemplates).where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, workshopId)))
+  if (!t) throw invalid('templateId', 'is not a routing template of this workshop')
+  const steps = await deps.db.select().from(s.templateSteps).where(eq(s.templateSteps.templateId, t.id)).orderBy(asc(s.templateSteps.seq))
+  if (!steps.length) throw invalid('templateId', 'has no steps')
+  const idOf = (key: string) => `${PROSPECTIVE_JOB}:${key}`
+  const keys = new Set(steps.map((x) => x.key))
+  const summary: PromiseCheckResult['operations'] = []
+  const operations: Operation[] = steps.map((st) => {
+    const kind = data.meta.kinds.get(st.kindId)!
+    const outside = kind.outside || st.leadDays > 0
+    const minutes = outside ? 0 : templateEstimate(st, input.params)
+    summary.push({ key: st.key, name: st.name, kind: kind.code, minutes, outsideDays: outside ? Math.max(1, st.leadDays) : 0 })
+    const base: Operation = {
+      id: idOf(st.key), jobId: PROSPECTIVE_JOB, name: st.name, kind: kind.code, options: [],
+      predecessors: st.after.filter((k) => keys.has(k)).map(idOf),
+      ...(st.waitAfterMinutes > 0 ? { waitAfter: st.waitAfterMinutes } : {}),
+    }
+    if (outside) return { ...base, outsideWorkingDays: Math.max(1, st.leadDays) }
+    return { ...base, options: operationOptions(data.meta, st.kindId, st.requiredLevel, (speed) => Math.max(1, Math.ceil(minutes / speed))) }
+  })
+  const c = data.clock
+  // Without a wanted date the re-plan still treats it as wanted now, weighed by its priority against the other work.
+  const due = input.wantedDate ? c.at(dayjs(input.wantedDate).add(1, 'day').format('YYYY-MM-DD')) : data.problem.now
+  const job: Job = { id: PROSPECTIVE_JOB, name: `Enquiry: ${t.name}`, release: data.problem.now, due, weight: weightOfPriority(input.priority) }
+  return { template: t, job, operations, summary }
+}
+
+export async function checkPromise(deps: Deps, actor: Actor, input: PromiseCheckInput, now = new Date()): Promise<PromiseCheckResult> {
+  const t0 = performance.now()
+  const data = await loadPlanningData(deps.db, actor.workshopId, now)
+  const [pj, base] = await Promise.all([prospectiveJob(deps, actor.workshopId, data, input), basePlan(deps, actor.workshopId, data)])
+  let result
+  try {
+    result = promise(data.problem, base.plan, { job: pj.job, operations: pj.operations }, { seed: input.seed, timeLimitMs: REPLAN_MS })
+  } catch (err) {
+    throw planningError(err, data)
+  }
+  const before = new Map(base.plan.jobs.map((j) => [j.jobId, j.tardiness]))
+  const delayed = result.withReplan.plan.jobs.filter((j) => j.jobId !== PROSPECTIVE_JOB && j.tardiness > (before.get(j.jobId) ?? 0)).length
+  const fixedPlan = { ...local(data, result.withPlanFixed.completion), feasible: result.withPlanFixed.feasible }
+  const replanned = { ...local(data, result.withReplan.completion), delayedJobBags: delayed }
+
+  let range: PromiseCheckResult['range'] = null
+  if (input.range) {
+    const spreads = await cached(deps.realtime, `${actor.workshopId}|spreads`, () => kindSpreads(deps.db, actor.workshopId))
+    range = confidenceRange(data, base.plan, pj.operations, spreads, input.runs ?? DEFAULT_RUNS, input.seed, input.sample)
+  }
+  return {
+    now: now.toISOString(), timeZone: data.clock.timeZone, basis: base.basis, basisNote: base.basisNote,
+    template: { id: pj.template.id, name: pj.template.name }, operations: pj.summary, fixedPlan, replanned,
+    wanted: input.wantedDate ? { date: input.wantedDate, fixedPlanMeets: fixedPlan.date <= input.wantedDate, replannedMeets: replanned.date <= input.wantedDate } : null,
+    range, elapsedMs: Math.round(performance.now() - t0),
+  }
+}
+
+function confidenceRange(data: PlanningData, plan: Plan, operations: Operation[], spreads: Map<string, KindSpread>, runs: number, seed: number, withSample: boolean): NonNullable<PromiseCheckResult['range']> {
+  const now = data.problem.now
+  const sample = simulateCompletions({ problem: data.problem, plan, operations, spreads, runs, seed }).map((m) => m - now)
+  const sorted = [...sample].sort((a, b) => a - b)
+  const q = { p50: quantileSorted(sorted, 0.5), p80: quantileSorted(sorted, 0.8), p95: quantileSorted(sorted, 0.95) }
+  const at = (m: number) => local(data, now + Math.round(m))
+  const used = new Set(operations.map((o) => o.kind))
+  return {
+    runs, seed,
+    method: 'The current plan stays as it is; the new job bag is walked through its gaps in each run with durations drawn from how long each kind of work really took against its estimate.',
+    p50: at(q.p50), p80: at(q.p80), p95: at(q.p95), quantileMinutes: q,
+    kinds: [...spreads.values()].filter((k) => used.has(k.kind)).map(({ ratios: _r, ...k }) => ({ ...k, p10: round2(k.p10), p50: round2(k.p50), p90: round2(k.p90) })),
+    ...(withSample ? { sampleMinutes: sample } : {}),
+  }
+}
+const round2 = (n: number) => Math.round(n * 100) / 100
+
+/** Creates the order with the promised date (one job bag from the template), then sends the customer's confirmation. */
+export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcceptInput) {
+  const [t] = await deps.db.select({ name: s.routingTemplates.name }).from(s.routingTemplates).where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, actor.workshopId)))
+  if (!t) throw invalid('templateId', 'is not a routing template of this workshop')
+  if (input.dueDate && input.dueDate < input.promisedDate) throw invalid('dueDate', 'must not be before the promised date')
+  const order = await createOrder(deps, actor, {
+    customerId: input.customerId, title: input.title, dueDate: input.dueDate ?? input.promisedDate, promisedDate: input.promisedDate,
+    priority: input.priority, priceQuoted: input.priceQuoted, notes: input.notes,
+    pieces: [{ templateId: input.templateId, piece: input.piece ?? input.title, params: input.params }],
+  })
+  const confirmation = await sendPromiseConfirmation(deps, actor.workshopId, order.id)
+  return { order, confirmation }
+}
+
+const hoursText = (min: number) => (Math.abs(min) >= 1440 ? `${Math.round(Math.abs(min) / 144) / 10} days` : `${Math.round(Math.abs(min) / 6) / 10} h`)
+
+/** Expected completion of each job bag of an order on the live plan, whether it is at risk or late, and why. */
+export async function orderForecast(deps: Deps, actor: Actor, orderId: number, now = new Date()): Promise<OrderForecast> {
+  const order = await requireOwned(deps.db, s.orders, 'Order', orderId, actor.workshopId)
+  const [w] = await deps.db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
+  const tz = w!.timeZone
+  const day = dayjs(now).tz(tz).format('YYYY-MM-DD')
+  const board = await boardData(deps.db, actor.workshopId, { from: day, to: day, now })
+  const bags = await deps.db.select().from(s.jobBags).where(eq(s.jobBags.orderId, orderId)).orderBy(asc(s.jobBags.number))
+  const due = order.promisedDate ?? order.dueDate
+  const when = (iso: string) => dayjs(iso).tz(tz).format('ddd D MMM HH:mm')
+  const jobBags: JobBagForecast[] = bags.map((b) => {
+    const j = board.jobs.find((x) => x.jobBagId === b.id)
+    const base = { jobBagId: b.id, number: b.number, piece: b.piece, status: b.status }
+    if (!j) {
+      const finished = b.status === 'complete' || ['ready', 'collected'].includes(order.status)
+      return { ...base, expectedCompletion: null, expectedDate: null, state: finished ? 'finished' : 'unplanned', latenessMinutes: 0, why: finished ? 'Finished.' : `Not on the plan (order ${order.status}, job bag ${b.status}).` }
+    }
+    const expectedDate = j.expectedCompletion ? dayjs(j.expectedCompletion).tz(tz).format('YYYY-MM-DD') : null
+    const because = j.reason ? ` Last step: ${j.reason}.` : ''
+    const why = j.state === 'unplanned' ? 'Not on the live plan yet: publish a plan to get a date.'
+      : j.state === 'late' ? `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} after the end of ${due}.${because}`
+      : j.state === 'at-risk' ? `Expected ${when(j.expectedCompletion!)}, only ${hoursText(j.latenessMinutes)} before the end of ${due}.${because}`
+      : `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} to spare.`
+    return { ...base, expectedCompletion: j.expectedCompletion, expectedDate, state: j.state, latenessMinutes: j.latenessMinutes, why }
+  })
+  const rank: JobBagForecast['state'][] = ['late', 'at-risk', 'unplanned', 'on-time', 'finished']
+  const state = jobBags.map((x) => x.state).sort((a, b) => rank.indexOf(a) - rank.indexOf(b))[0] ?? 'unplanned'
+  return {
+    orderId: order.id, number: order.number, status: order.status, due: order.dueDate, promisedDate: order.promisedDate, timeZone: tz,
+    plan: board.plan ? { id: board.plan.id, number: board.plan.number, publishedAt: board.plan.publishedAt } : null, state, jobBags,
+  }
+}

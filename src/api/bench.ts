@@ -1,0 +1,22 @@
+// Bench API: next for me, my work, and the transitions (each carries a requestId so a replay gets the first answer).
+import type { BenchOperation, TransitionResult } from '@shared/schemas/bench-work'
+import type { PauseReason } from '@shared/domain/status'
+import { api } from './client'
+
+export interface BenchList { person: { id: number; name: string }; items: BenchOperation[] }
+export type BenchAction = 'claim' | 'release' | 'start' | 'pause' | 'resume' | 'finish'
+export interface TransitionBody { requestId: string; benchId?: number; acknowledgeHazards?: boolean; reason?: PauseReason; note?: string; personId?: number }
+
+export const nextForMe = (benchId: number) => api.get<BenchList>('/bench/next', { benchId })
+export const myWork = () => api.get<BenchList>('/bench/mine')
+export const transition = (operationId: number, action: BenchAction, body: TransitionBody) => api.post<TransitionResult>(`/bench/operations/${operationId}/${action}`, body)
+
+/** A v4 UUID; also on plain-http tablets, where crypto.randomUUID is missing. */
+export function newRequestId(): string {
+  if (typeof crypto.randomUUID === 'function' && window.isSecureContext) return crypto.randomUUID()
+  const b = crypto.getRandomValues(new Uint8Array(16))
+  b[6] = (b[6]! & 0x0f) | 0x40
+  b[8] = (b[8]! & 0x3f) | 0x80
+  const h = [...b].map((x) => x.toString(16).padStart(2, '0')).join('')
+  return `${h.slice(0, 8)}-${h.slice(8, 12)}-${h.slice(12, 16)}-${h.slice(16, 20)}-${h.slice(20)}`
+}

@@ -1,0 +1,139 @@
+// Faults: the app killed mid-write and PostgreSQL killed under load lose nothing acknowledged, and the app answers 503 meanwhile.
+import { spawn, type ChildProcess } from 'node:child_process'
+import { randomBytes } from 'node:crypto'
+import { readFileSync, rmSync } from 'node:fs'
+import { join, resolve } from 'node:path'
+import pg from 'pg'
+import { afterAll, describe, expect, it } from 'vitest'
+import { DEMO_PASSWORD } from '../../server/db/seed'
+import { startCluster, stopCluster } from '../../scripts/pg'
+
+const root = resolve(import.meta.dirname, '../..')
+const dataDir = join(root, '.data', `fault-${randomBytes(4).toString('hex')}`)
+const pgPort = 55900 + Math.floor(Math.random() * 90)
+const appPort = 56900 + Math.floor(Math.random() * 90)
+const base = `http://127.0.0.1:${appPort}`
+const env = { ...process.env, MILLGRAIN_DATA_DIR: dataDir, PG_PORT: String(pgPort), PORT: String(appPort), SKIP_BUILD: '1', NODE_ENV: 'production' }
+
+/** `npm start` without the bootstrap (dependencies are there) and without the client build. */
+function startApp(): Promise<ChildProcess> {
+  const child = spawn(join(root, 'node_modules/.bin/tsx'), ['scripts/start.ts'], { cwd: root, env, detached: true, stdio: ['ignore', 'pipe', 'pipe'] })
+  let out = ''
+  return new Promise((res, rej) => {
+    const t = setTimeout(() => rej(new Error(`app did not start:\n${out}`)), 60_000)
+    const onData = (d: Buffer) => {
+      out += d.toString()
+      if (out.includes('Millgrain is running at')) { clearTimeout(t); res(child) }
+    }
+    child.stdout!.on('data', onData)
+    child.stderr!.on('data', onData)
+    child.on('exit', (code) => { clearTimeout(t); rej(new Error(`app exited (${code}):\n${out}`)) })
+  })
+}
+const killGroup = (c: ChildProcess, sig: NodeJS.Signals) => { try { process.kill(-c.pid!, sig) } catch { /* gone */ } }
+
+async function session(email: string) {
+  let cookie = ''
+  const keep = (r: Response) => { const c = r.headers.get('set-cookie'); if (c) cookie = c.split(';')[0]! }
+  const a = await fetch(`${base}/api/session`); keep(a)
+  const { csrfToken } = (await a.json()) as { csrfToken: string }
+  const b = await fetch(`${base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) })
+  keep(b)
+  const body = (await b.json()) as { csrfToken: string }
+  return { cookie, csrf: body.csrfToken }
+}
+
+/** 20 writers taking orders (each with a job bag and its operations) until stopped; returns what was acknowledged. */
+function writers(sessions: { cookie: string; csrf: string }[], customerId: number, templateId: number, tag: string) {
+  let running = true
+  const acked: string[] = []
+  const work = sessions.map(async (s, i) => {
+    for (let n = 0; running; n++) {
+      const title = `${tag}-${i}-${n}`
+      try {
+        const r = await fetch(`${base}/api/orders`, { method: 'POST', headers: { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf },
+          body: JSON.stringify({ customerId, title, dueDate: '2030-06-01', pieces: [{ templateId, piece: title }] }) })
+        if (r.status === 201) acked.push(title)
+        else await r.text()
+      } catch { await new Promise((r) => setTimeout(r, 20)) }
+    }
+  })
+  return { acked, stop: async () => { running = false; await Promise.all(work) } }
+}
+
+async function dbCheck(tag: string) {
+  const c = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${pgPort}/millgrain` })
+  await c.connect()
+  const orders = await c.query(`select o.title, (select count(*)::int from job_bags b where b.order_id = o.id) as bags,
+    (select count(*)::int from operations op join job_bags b on b.id = op.job_bag_id where b.order_id = o.id) as ops from orders o where o.title like $1`, [`${tag}-%`])
+  await c.end()
+  return orders.rows as { title: string; bags: number; ops: number }[]
+}
+
+let app: ChildProcess | null = null
+afterAll(async () => {
+  if (app) killGroup(app, 'SIGKILL')
+  stopCluster(join(dataDir, 'pg'))
+  rmSync(dataDir, { recursive: true, force: true })
+})
+
+describe('faults', () => {
+  it('when the app is killed while 20 clients write, then after a restart every acknowledged write is there once, whole, and sessions survive', async () => {
+    app = await startApp()
+    const sessions = await Promise.all(Array.from({ length: 20 }, () => session('manager@wrenfield.test')))
+    const customers = (await (await fetch(`${base}/api/customers`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { items: { id: number }[] }
+    const templates = (await (await fetch(`${base}/api/templates`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { id: number; steps: unknown[] }[]
+    const tpl = templates[0]!
+    const w = writers(sessions, customers.items[0]!.id, tpl.id, 'kill-app')
+    await new Promise((r) => setTimeout(r, 2500))
+    killGroup(app, 'SIGKILL')
+    await w.stop()
+    app = await startApp()
+    const rows = await dbCheck('kill-app')
+    expect(w.acked.length).toBeGreaterThan(10)
+    const titles = rows.map((r) => r.title)
+    for (const t of w.acked) expect(titles.filter((x) => x === t)).toHaveLength(1)
+    // No half-written order: each has its job bag and all its operations (one transaction).
+    for (const r of rows) expect(r).toMatchObject({ bags: 1, ops: tpl.steps.length })
+    const me = (await (await fetch(`${base}/api/session`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { user: { role: string } | null }
+    expect(me.user?.role).toBe('manager')
+  })
+
+  it('when PostgreSQL is killed under load, then the app answers 503 with a message, reconnects when it is back, and loses nothing acknowledged', async () => {
+    expect(app).not.toBeNull()
+    const sessions = await Promise.all(Array.from({ length: 20 }, () => session('manager@wrenfield.test')))
+    const customers = (await (await fetch(`${base}/api/customers`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { items: { id: number }[] }
+    const templates = (await (await fetch(`${base}/api/templates`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { id: number; steps: unknown[] }[]
+    const w = writers(sessions, customers.items[0]!.id, templates[0]!.id, 'kill-db')
+    await new Promise((r) => setTimeout(r, 1500))
+    const pid = Number(readFileSync(join(dataDir, 'pg', 'postmaster.pid'), 'utf8').split('\n')[0])
+    process.kill(pid, 'SIGKILL')
+    await new Promise((r) => setTimeout(r, 1000))
+    const down = await fetch(`${base}/api/orders`, { headers: { cookie: sessions[0]!.cookie } })
+    expect(down.status).toBe(503)
+    expect(((await down.json()) as { error: string }).error).toMatch(/database is not reachable/)
+    expect((await fetch(`${base}/api/health`)).status).toBe(503)
+    await w.stop()
+    // Back up (as the start script would on its next start); the running app reconnects by itself.
+    await startCluster({ dataDir: join(dataDir, 'pg'), port: pgPort, durable: true })
+    let ok = 0
+    for (let i = 0; i < 50 && ok === 0; i++) {
+      const r = await fetch(`${base}/api/orders`, { headers: { cookie: sessions[0]!.cookie } })
+      if (r.status === 200) ok++
+      else await new Promise((res) => setTimeout(res, 200))
+    }
+    expect(ok).toBe(1)
+    const rows = await dbCheck('kill-db')
+    const titles = rows.map((r) => r.title)
+    for (const t of w.acked) expect(titles.filter((x) => x === t)).toHaveLength(1)
+    for (const r of rows) expect(r.bags).toBe(1)
+    // Ctrl-C: app and database stop.
+    const exited = new Promise((r) => app!.once('exit', r))
+    killGroup(app!, 'SIGINT')
+    await exited
+    app = null
+    await new Promise((r) => setTimeout(r, 500))
+    const c = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${pgPort}/millgrain` })
+    await expect(c.connect()).rejects.toThrow()
+  })
+})

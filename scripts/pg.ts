@@ -51,20 +51,28 @@ export function isReady(port: number): boolean {
   return spawnSync(join(pgBin(), 'pg_isready'), ['-q', '-h', '127.0.0.1', '-p', String(port), '-U', 'postgres']).status === 0
 }
 
-/** PID of this data dir's running postmaster, or null (a stale pid file is removed). */
+/** Is `pid` a live (not zombie) postgres process of this data dir? */
+function isOurPostmaster(pid: number, dataDir: string): boolean {
+  try {
+    const state = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]?.[0]
+    if (state === 'Z' || state === 'X') return false
+    const cmdline = readFileSync(`/proc/${pid}/cmdline`, 'utf8').replace(/\0/g, ' ')
+    return cmdline.includes('postgres') && cmdline.includes(resolve(dataDir))
+  } catch {
+    return false
+  }
+}
+
+/** PID of this data dir's running postmaster, or null (stale lock files left by a crash are removed). */
 function runningPostmaster(dataDir: string): number | null {
   const pidFile = join(dataDir, 'postmaster.pid')
   if (!existsSync(pidFile)) return null
   const pid = Number(readFileSync(pidFile, 'utf8').split('\n')[0])
-  let cmdline = ''
-  try {
-    cmdline = readFileSync(`/proc/${pid}/cmdline`, 'utf8').replace(/\0/g, ' ')
-  } catch {
-    /* no such process */
-  }
-  if (cmdline.includes('postgres') && cmdline.includes(resolve(dataDir))) return pid
-  console.log('[db] removing a stale postmaster.pid left by a crash')
+  if (isOurPostmaster(pid, dataDir)) return pid
+  console.log('[db] removing stale lock files left by a crash')
   rmSync(pidFile, { force: true })
+  // The socket lock names the dead postmaster too; a killed one may linger as a zombie that nobody reaps.
+  for (const f of readdirSync(dataDir)) if (/^\.s\.PGSQL\.\d+\.lock$/.test(f)) rmSync(join(dataDir, f), { force: true })
   return null
 }
 

@@ -13,6 +13,9 @@ export interface ServerToClientEvents {
   'plan:changed': (p: ChangePayload & { operationId: number }) => void
   'plan:progress': (p: { runId: string; iteration: number; weightedTardiness: number; makespan: number; elapsedMs: number }) => void
   'masterdata:changed': (p: ChangePayload & { entity: string }) => void
+  /** A file uploaded to (or removed from) an order or a job bag. */
+  'file:added': (p: ChangePayload & { orderId: number | null; jobBagId: number | null }) => void
+  'file:removed': (p: ChangePayload & { orderId: number | null; jobBagId: number | null }) => void
 }
 export interface ClientToServerEvents {
   'changes:since': (seq: number, ack: (events: { seq: number; event: string; payload: unknown }[]) => void) => void

@@ -21,6 +21,8 @@ export interface FakeSmtp {
   port: number
   url: string
   messages: ReceivedMessage[]
+  /** Marks outbox rows delivered in this database from now on (when it is created after the mailbox). */
+  useDb(db: Db): void
   /** Resolves with the first message matching `test` (already received or arriving within timeoutMs). */
   waitFor(test: (m: ReceivedMessage) => boolean, timeoutMs?: number): Promise<ReceivedMessage>
   close(): Promise<void>
@@ -39,6 +41,7 @@ export interface FakeSmtpOptions {
 
 export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> {
   const host = o.host ?? '127.0.0.1'
+  let db = o.db
   const messages: ReceivedMessage[] = []
   const waiters: { test: (m: ReceivedMessage) => boolean; resolve: (m: ReceivedMessage) => void }[] = []
   const server = new SMTPServer({
@@ -63,8 +66,8 @@ export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> 
           }
           messages.push(msg)
           if (messages.length > (o.keep ?? 1000)) messages.shift()
-          if (o.db && msg.outboxId) {
-            await o.db.update(outbox).set({ status: 'delivered', sentAt: sql`coalesce(${outbox.sentAt}, now())` })
+          if (db && msg.outboxId) {
+            await db.update(outbox).set({ status: 'delivered', sentAt: sql`coalesce(${outbox.sentAt}, now())` })
               .where(and(eq(outbox.id, msg.outboxId), eq(outbox.subject, msg.subject), inArray(outbox.status, ['queued', 'sent'])))
               .catch((err: Error) => console.error('[mail] test mailbox could not mark the outbox row:', err.message))
           }
@@ -96,6 +99,7 @@ export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> 
     port,
     url: `smtp://${host}:${port}`,
     messages,
+    useDb(d) { db = d },
     waitFor(test, timeoutMs = 5_000) {
       const hit = messages.find(test)
       if (hit) return Promise.resolve(hit)

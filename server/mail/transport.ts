@@ -1,5 +1,6 @@
 // Outgoing mail transport from configuration: an SMTP provider by URL, the local test mailbox by default; swapping is configuration only.
 import nodemailer from 'nodemailer'
+import type SMTPTransport from 'nodemailer/lib/smtp-transport'
 import type { Config } from '../config'
 
 export interface OutgoingMessage { to: string; subject: string; text: string; html: string; headers?: Record<string, string> }
@@ -27,7 +28,7 @@ export function createMailer(config: Pick<Config, 'SMTP_URL' | 'MAIL_PORT' | 'MA
   const url = smtpUrlFor(config)
   const transport = inProcess
     ? nodemailer.createTransport({ jsonTransport: true })
-    : nodemailer.createTransport(url, { connectionTimeout: 5_000, greetingTimeout: 5_000, socketTimeout: 10_000 })
+    : nodemailer.createTransport({ url, connectionTimeout: 5_000, greetingTimeout: 5_000, socketTimeout: 10_000 } as SMTPTransport.Options)
   return {
     target: inProcess ? 'in-process (test)' : withoutCredentials(url),
     async send(msg) {

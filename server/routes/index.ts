@@ -7,5 +7,8 @@ import { masterDataRoutes } from './masterdata'
 import { orderRoutes } from './orders'
 import { planRoutes } from './plans'
 import { sessionRoutes } from './session'
+import { promiseRoutes } from './promise'
+import { mailRoutes } from './mail'
+import { fileRoutes } from './files'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes] as RouteSpec[]

@@ -23,13 +23,12 @@ function authenticate(req: Request, passport: NonNullable<import('../lib/route')
 export const sessionRoutes = [
   route({
     method: 'get', path: '/health', roles: 'public', summary: 'Liveness with a database check',
-    handler: async ({ deps, res }) => {
+    handler: async ({ deps }) => {
       try {
         await deps.db.execute(sql`select 1`)
         return { ok: true }
       } catch {
-        res.status(503)
-        return { ok: false, error: 'database not reachable' }
+        throw new AppError({ code: 'unavailable', message: 'The database is not reachable just now.' })
       }
     },
   }),

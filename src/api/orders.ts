@@ -17,7 +17,8 @@ export interface OrderDetail {
   jobBags: OrderJobBag[]
 }
 
-export const listOrders = (p: ListParams & { status?: OrderStatus } = {}) => api.get<Page<OrderSummary>>('/orders', { ...p })
+/** `status`: one status or several separated by commas. */
+export const listOrders = (p: ListParams & { status?: string } = {}) => api.get<Page<OrderSummary>>('/orders', { ...p })
 export const getOrder = (id: number) => api.get<OrderDetail>(`/orders/${id}`)
 export const createOrder = (body: OrderInput) => api.post<OrderDetail>('/orders', body)
 export const updateOrder = (id: number, body: OrderUpdate) => api.patch<OrderDetail>(`/orders/${id}`, body)

@@ -1,5 +1,5 @@
 // Shows API and validation errors: a toast for the whole, reasons next to the form fields they belong to.
-import { reactive, ref } from 'vue'
+import { reactive, ref, watch } from 'vue'
 import type { ZodType, z } from 'zod'
 import { ApiError } from '@/api/client'
 
@@ -22,10 +22,35 @@ export function messageOf(err: unknown): string {
   return 'Something went wrong.'
 }
 
-export function useApiError() {
+/** Leaf values by path ("pieces.0.params.metal" → "gold-9ct"), to see which fields an edit touched. */
+export function flatten(value: unknown, prefix = '', out: Record<string, unknown> = {}): Record<string, unknown> {
+  if (value !== null && typeof value === 'object') {
+    const entries = Object.entries(value as Record<string, unknown>)
+    if (!entries.length) out[prefix] = Array.isArray(value) ? '[]' : '{}'
+    for (const [k, v] of entries) flatten(v, prefix ? `${prefix}.${k}` : k, out)
+  } else out[prefix] = value
+  return out
+}
+
+/**
+ * Field errors for one form. With `model`, a reason disappears as soon as the user edits that field
+ * (or anything below it), so old reasons do not linger until the next save.
+ */
+export function useApiError(o: { model?: () => unknown } = {}) {
   /** Reasons by field path; bind with `<el-form-item :error="fields.name">`. */
   const fields = reactive<Record<string, string>>({})
   const busy = ref(false)
+
+  if (o.model) {
+    const model = o.model
+    let before = flatten(model())
+    watch(model, () => {
+      const after = flatten(model())
+      const changed = Object.keys({ ...before, ...after }).filter((p) => before[p] !== after[p])
+      for (const key of Object.keys(fields)) if (changed.some((p) => p === key || p.startsWith(`${key}.`) || key.startsWith(`${p}.`))) delete fields[key]
+      before = after
+    }, { deep: true })
+  }
 
   function clear() {
     for (const k of Object.keys(fields)) delete fields[k]

@@ -36,6 +36,9 @@ export function createDebounce(fn: () => void, wait: number, maxWait = wait * 8)
   return d
 }
 
+/** Events that change what the board shows (files on orders do not). */
+export const BOARD_EVENTS = new Set(['order:created', 'order:updated', 'operation:changed', 'jobBag:changed', 'plan:drafted', 'plan:published', 'plan:discarded', 'plan:changed', 'masterdata:changed'])
+
 export interface LiveBoardHooks {
   /** Reload what the board shows (board window, versions, load). */
   reload: () => void | Promise<void>
@@ -54,6 +57,7 @@ export function useLiveBoard(h: LiveBoardHooks): { state: ShallowRef<ConnectionS
   const reload = createDebounce(() => void h.reload(), h.debounceMs ?? 150, 1000)
   const offs = [
     channel.onAnyChange((payload, event) => {
+      if (!BOARD_EVENTS.has(event)) return
       h.onChange?.(event, payload)
       reload()
     }),

@@ -16,8 +16,9 @@ export const routes: RouteRecordRaw[] = [
     component: () => import('@/components/shell/ShellLayout.vue'),
     children: [
       { path: '', name: 'home', component: comingSoon },
-      { path: 'plan', name: 'plan', component: laterOr('PlanView'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Plan board' } },
+      { path: 'plan', name: 'plan', component: () => import('@/views/PlanBoardView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Plan board' } },
       { path: 'bench', name: 'bench', component: laterOr('BenchView'), meta: { roles: ['owner', 'manager', 'bench'], title: 'My bench queue' } },
+      { path: 'job-bags/:id(\\d+)', name: 'job-bag', component: () => import('@/views/JobBagView.vue'), meta: { roles: ['owner', 'manager', 'bench', 'sales'], title: 'Job bag' } },
       { path: 'orders/:id(\\d+)?', name: 'orders', component: () => import('@/views/OrdersView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Orders' } },
       { path: 'promise', name: 'promise', component: laterOr('PromiseView'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Promise check' } },
       { path: 'customers', name: 'customers', component: () => import('@/views/CustomersView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Customers' } },

@@ -1,7 +1,6 @@
 // The planning board: the window shown, board data (live plan or a draft), plan versions, planner runs, moves by hand and the week load.
 import { defineStore } from 'pinia'
 import { computed, ref, shallowRef } from 'vue'
-import dayjs from 'dayjs'
 import * as plansApi from '@/api/plans'
 import type { BoardData, BoardItem, JobState, PlanComparison, PlanMove, PlanRun, PlanVersion, RunProgress, WeekLoad } from '@/api/plans'
 import type { MoveInput } from '@shared/schemas/plan'
@@ -23,7 +22,7 @@ export const useBoardStore = defineStore('board', () => {
   const rowsBy = ref<RowsBy>('bench')
   const colourBy = ref<ColourBy>('kind')
   /** Fold nights and weekends away so working hours get the width. */
-  const workingHoursOnly = ref(false)
+  const workingHoursOnly = ref(true)
   const tab = ref<BoardTab>('timeline')
 
   /** The board window as loaded (shallow: replaced whole on every reload). */
@@ -39,8 +38,6 @@ export const useBoardStore = defineStore('board', () => {
   /** The planner run started from this board, and its latest figures. */
   const run = ref<PlanRun | null>(null)
   const progress = ref<RunProgress | null>(null)
-  /** Operations that changed from elsewhere since the last reload (flash on the board). */
-  const recentlyChanged = ref<Set<number>>(new Set())
 
   const dataWindow = computed(() => dataWindowFor(anchorDay.value))
   const livePlan = computed(() => versions.value.find((v) => v.status === 'published') ?? null)
@@ -107,7 +104,6 @@ export const useBoardStore = defineStore('board', () => {
     if (tab.value === 'load') tasks.push(loadWeekLoad().catch(() => undefined))
     if (viewPlanId.value) tasks.push(loadComparison(viewPlanId.value).catch(() => undefined))
     await Promise.all(tasks)
-    recentlyChanged.value = new Set()
   }
 
   async function loadComparison(planId: number, against?: number) {
@@ -197,40 +193,35 @@ export const useBoardStore = defineStore('board', () => {
     progress.value = null
   }
 
-  /** Saves a move (or pin) of one bar on the live plan; a refusal carries the rule's reason, a stale version reloads. */
-  async function move(item: BoardItem, body: MoveInput): Promise<MoveOutcome> {
+  /**
+   * Saves a move (or pin) of one bar on the live plan; a refusal carries the rule's reason, a stale version reloads.
+   * `settle` runs before the reload so the timeline can accept or revert the drag first.
+   */
+  async function move(item: BoardItem, body: MoveInput, settle?: (ok: boolean) => void): Promise<MoveOutcome> {
+    let outcome: MoveOutcome
     try {
       await plansApi.moveOperation(item.id, body)
-      await loadBoard()
-      return { ok: true }
+      outcome = { ok: true }
     } catch (err) {
-      if (err instanceof ApiError && err.status === 422) return { ok: false, kind: 'refused', message: err.message, rule: (err.details as { rule?: string } | undefined)?.rule }
-      if (err instanceof ApiError && err.status === 409) {
-        await loadBoard()
-        return { ok: false, kind: 'stale', message: `Someone else changed “${item.name}” of ${item.jobBagNumber} a moment ago; the board now shows the latest plan.` }
-      }
-      if (err instanceof ApiError && err.status === 400) return { ok: false, kind: 'refused', message: Object.values(err.fields)[0] ? `${Object.keys(err.fields)[0]}: ${Object.values(err.fields)[0]}` : err.message }
-      return { ok: false, kind: 'error', message: messageOf(err) }
+      if (err instanceof ApiError && err.status === 422) outcome = { ok: false, kind: 'refused', message: err.message, rule: (err.details as { rule?: string } | undefined)?.rule }
+      else if (err instanceof ApiError && err.status === 409) outcome = { ok: false, kind: 'stale', message: `Someone else changed “${item.name}” of ${item.jobBagNumber} a moment ago; the board now shows the latest plan.` }
+      else if (err instanceof ApiError && err.status === 400) {
+        const [field, reason] = Object.entries(err.fields)[0] ?? []
+        outcome = { ok: false, kind: 'refused', message: field ? `${field}: ${reason}` : err.message }
+      } else outcome = { ok: false, kind: 'error', message: messageOf(err) }
     }
+    settle?.(outcome.ok)
+    if (outcome.ok || (!outcome.ok && outcome.kind === 'stale')) await loadBoard()
+    return outcome
   }
 
   const setPinned = (item: BoardItem, pinned: boolean) => move(item, { pinned, version: item.version })
 
-  function noteChange(operationId: unknown) {
-    if (typeof operationId !== 'number') return
-    const s = new Set(recentlyChanged.value)
-    s.add(operationId)
-    recentlyChanged.value = s
-  }
-
-  /** The board window's day for a calendar day label (the anchor week's days, for tests and the load table). */
-  const windowDays = computed(() => Array.from({ length: 28 }, (_, i) => dayjs(dataWindow.value.from).add(i, 'day').format('YYYY-MM-DD')))
-
   return {
     timeZone, anchorDay, zoom, rowsBy, colourBy, workingHoursOnly, tab,
-    data, loading, error, viewPlanId, comparison, versions, weekLoad, loadLoading, run, progress, recentlyChanged,
-    dataWindow, livePlan, pendingDraft, viewedPlan, itemsById, jobStates, moved, benchName, personName, running, windowDays,
+    data, loading, error, viewPlanId, comparison, versions, weekLoad, loadLoading, run, progress,
+    dataWindow, livePlan, pendingDraft, viewedPlan, itemsById, jobStates, moved, benchName, personName, running,
     loadBoard, loadVersions, loadWeekLoad, refresh, loadComparison, setAnchor, step, today, showPlan, publish, discard,
-    startPlanner, stopPlanner, onProgress, onDrafted, clearRun, move, setPinned, noteChange,
+    startPlanner, stopPlanner, onProgress, onDrafted, clearRun, move, setPinned,
   }
 })

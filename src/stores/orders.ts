@@ -2,18 +2,20 @@
 import { defineStore } from 'pinia'
 import { reactive, ref } from 'vue'
 import type { OrderInput, OrderSummary, OrderUpdate } from '@shared/schemas/order'
-import type { OrderStatus } from '@shared/domain/status'
 import * as ordersApi from '@/api/orders'
 import { useLoading } from '@/composables/use-loading'
+
+/** Orders still in the workshop's hands. */
+export const IN_WORKSHOP = 'quoted,open,in-work,ready'
 
 export const useOrdersStore = defineStore('orders', () => {
   /** Rows of the current page. */
   const items = ref<OrderSummary[]>([])
   /** Matches over all pages. */
   const total = ref(0)
-  /** Search, status filter, sort and page sent to the server. */
-  const query = reactive<{ q: string; status: OrderStatus | ''; page: number; pageSize: number; sort: string; order: 'asc' | 'desc' }>({
-    q: '', status: '', page: 1, pageSize: 20, sort: 'due', order: 'asc',
+  /** Search, status filter (statuses separated by commas, '' for all), sort and page sent to the server. */
+  const query = reactive<{ q: string; status: string; page: number; pageSize: number; sort: string; order: 'asc' | 'desc' }>({
+    q: '', status: IN_WORKSHOP, page: 1, pageSize: 20, sort: 'due', order: 'asc',
   })
   const { loading, error, track } = useLoading()
 

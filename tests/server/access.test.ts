@@ -111,6 +111,21 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   'POST /estimates/accept': OWNER,
   'GET /estimates/changes': OWNER,
   'POST /estimates/three-point': STAFF,
+  // promise dates for sales; the outbox; the managers' at-risk digest
+  'POST /promise/check': FRONT,
+  'POST /promise/accept': FRONT,
+  'GET /orders/:id/forecast': FRONT,
+  'GET /outbox': FRONT,
+  'GET /outbox/:id': FRONT,
+  'POST /mail/at-risk-digest': STAFF,
+  // files: orders' files front office only; job bags' files everyone (bench: progress photos); removing is for managers
+  'POST /orders/:id/files': FRONT,
+  'POST /job-bags/:id/files': ALL,
+  'GET /orders/:id/files': FRONT,
+  'GET /job-bags/:id/files': ALL,
+  'GET /files/:id': ALL,
+  'GET /files/:id/thumbnail': ALL,
+  'DELETE /files/:id': STAFF,
 }
 
 /** Bodies for routes where an empty body would start long work; every other write gets {}. */

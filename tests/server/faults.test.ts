@@ -27,7 +27,7 @@ function startApp(): Promise<ChildProcess> {
     }
     child.stdout!.on('data', onData)
     child.stderr!.on('data', onData)
-    child.on('exit', (code) => { clearTimeout(t); rej(new Error(`app exited (${code}):\n${out}`)) })
+    child.on('exit', (code) => { clearTimeout(t); if (code !== null && code !== 0) console.error(`app exited (${code}):\n${out.slice(-4000)}`); rej(new Error(`app exited (${code}):\n${out}`)) })
   })
 }
 const killGroup = (c: ChildProcess, sig: NodeJS.Signals) => { try { process.kill(-c.pid!, sig) } catch { /* gone */ } }
@@ -108,8 +108,12 @@ describe('faults', () => {
     await new Promise((r) => setTimeout(r, 1500))
     const pid = Number(readFileSync(join(dataDir, 'pg', 'postmaster.pid'), 'utf8').split('\n')[0])
     process.kill(pid, 'SIGKILL')
-    await new Promise((r) => setTimeout(r, 1000))
-    const down = await fetch(`${base}/api/orders`, { headers: { cookie: sessions[0]!.cookie } })
+    // Backends notice the postmaster's death within moments; from then on every answer is a 503.
+    let down = await fetch(`${base}/api/orders`, { headers: { cookie: sessions[0]!.cookie } })
+    for (let i = 0; i < 50 && down.status !== 503; i++) {
+      await new Promise((r) => setTimeout(r, 100))
+      down = await fetch(`${base}/api/orders`, { headers: { cookie: sessions[0]!.cookie } })
+    }
     expect(down.status).toBe(503)
     expect(((await down.json()) as { error: string }).error).toMatch(/database is not reachable/)
     expect((await fetch(`${base}/api/health`)).status).toBe(503)

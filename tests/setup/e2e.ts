@@ -76,12 +76,12 @@ export async function signInPage(context: BrowserContext, role: Role): Promise<P
   return page
 }
 
-/** Saves a full-page screenshot as test-results/<name>.png and returns its path. */
-export async function screenshot(page: Page, name: string): Promise<string> {
+/** Saves a screenshot as test-results/<name>.png (the whole page unless `fullPage: false`, e.g. for dialogs) and returns its path. */
+export async function screenshot(page: Page, name: string, o: { fullPage?: boolean } = {}): Promise<string> {
   mkdirSync(SCREENSHOT_DIR, { recursive: true })
   const path = join(SCREENSHOT_DIR, `${name}.png`)
   await page.waitForLoadState('networkidle').catch(() => undefined)
-  await page.screenshot({ path, fullPage: true })
+  await page.screenshot({ path, fullPage: o.fullPage ?? true, animations: 'disabled' })
   return path
 }
 

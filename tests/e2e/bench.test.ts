@@ -1,0 +1,147 @@
+// The bench tablet in Chromium at 10-inch sizes: the setter picks a bench, takes, starts, pauses, resumes and finishes a setting job while the manager's job bag page follows live.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { BrowserContext, Page } from 'playwright-core'
+import { DEMO_PASSWORD, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+
+let e2e: E2E
+const TABLET_LANDSCAPE = { width: 1280, height: 800 }
+const TABLET_PORTRAIT = { width: 800, height: 1280 }
+
+beforeAll(async () => { e2e = await startE2E() })
+afterAll(async () => { await e2e?.close() })
+
+const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
+
+/** Marks every predecessor done and the step ready, straight in the test database. */
+async function makeReady(operationId: number) {
+  const [op] = await q('select job_bag_id from operations where id = $1', [operationId])
+  const ops = await q('select id, key, after from operations where job_bag_id = $1', [op.job_bag_id])
+  const byKey = new Map(ops.map((o) => [o.key, o]))
+  const seen = new Set<number>()
+  const stack = [...ops.find((o) => o.id === operationId).after]
+  while (stack.length) {
+    const p = byKey.get(stack.pop())
+    if (!p || seen.has(p.id)) continue
+    seen.add(p.id)
+    stack.push(...p.after)
+  }
+  await q(`update operations set status = 'done', finished_at = now() where id = any($1::int[])`, [[...seen]])
+  await q(`update operations set status = 'ready' where id = $1`, [operationId])
+}
+
+async function firstPending(kind: string, key?: string) {
+  const [op] = await q(`select o.id, o.job_bag_id, o.name from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
+    where k.code = $1 and ($2::text is null or o.key = $2) and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`, [kind, key ?? null])
+  return op as { id: number; job_bag_id: number; name: string }
+}
+
+async function tablet(email: string, viewport = TABLET_LANDSCAPE): Promise<{ context: BrowserContext; page: Page }> {
+  const context = await e2e.browser.newContext({ baseURL: e2e.url, viewport, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
+  const page = await context.newPage()
+  await signInWith(page, email, DEMO_PASSWORD)
+  await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 15_000 }).catch(async (err) => {
+    await screenshot(page, `bench-sign-in-failed-${email.split('@')[0]}`)
+    throw err
+  })
+  return { context, page }
+}
+
+const card = (page: Page, section: 'next-for-me' | 'my-work', opId: number) => page.locator(`[data-test=${section}] [data-op="${opId}"]`)
+
+describe('the bench tablet', () => {
+  it('when the setter works a setting job through, then each tap moves it and the manager’s job bag page follows live', async () => {
+    const op = await firstPending('setting', 'set')
+    await makeReady(op.id)
+    const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
+
+    const manager = await tablet('manager@wrenfield.test')
+    await manager.page.goto(`/job-bags/${op.job_bag_id}`)
+    const managerStatus = manager.page.locator(`[data-test="status-${op.id}"]`)
+    await expect(managerStatus.textContent()).resolves.toMatch(/Ready/)
+
+    const { context, page } = await tablet('setter@wrenfield.test')
+    await page.goto('/bench')
+    await page.locator('[data-test=bench-picker]').waitFor()
+    await screenshot(page, 'bench-01-pick-bench-landscape')
+    await page.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+    await expect(page.locator('[data-test=bench-name]').textContent()).resolves.toBe('Setting bench A')
+
+    const next = card(page, 'next-for-me', op.id)
+    await next.waitFor()
+    const claimButton = next.locator('[data-test=claim]')
+    const box = await claimButton.boundingBox()
+    // Touch targets at least 48 px (WCAG 2.5.5 target size, 44 px minimum; Material guidance 48 dp).
+    expect(box!.height).toBeGreaterThanOrEqual(48)
+    await screenshot(page, 'bench-02-next-for-me-landscape')
+    await claimButton.click()
+    const mine = card(page, 'my-work', op.id)
+    await mine.waitFor()
+    await expect(mine.getAttribute('data-status')).resolves.toBe('claimed')
+    await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Taken'), op.id, { timeout: 10_000 })
+
+    await mine.locator('[data-test=start]').click()
+    // Setting carries no hazard; a hazardous step would open the caution dialog here (covered below).
+    await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
+    await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Working'), op.id, { timeout: 10_000 })
+    await screenshot(page, 'bench-03-running-landscape')
+
+    await mine.locator('[data-test=pause]').click()
+    await page.locator('[data-test=reason-end-of-day]').waitFor()
+    await page.locator('[data-test=reason-end-of-day]').click()
+    await screenshot(page, 'bench-04-pause-dialog-landscape')
+    await page.locator('[data-test=confirm-pause]').click()
+    await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=paused]`).waitFor()
+    await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Paused'), op.id, { timeout: 10_000 })
+
+    await page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=resume]`).click()
+    await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
+    await page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=finish]`).click()
+    await page.locator('[data-test=finish-note]').fill('All stones tight, checked under the scope')
+    await page.locator('[data-test=confirm-finish]').click()
+    await card(page, 'my-work', op.id).waitFor({ state: 'detached' })
+    await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Done'), op.id, { timeout: 10_000 })
+    await manager.page.waitForFunction(() => document.querySelector('[data-test=history]')?.textContent?.includes('finished'), null, { timeout: 10_000 })
+    await screenshot(manager.page, 'bench-05-manager-job-bag-live')
+
+    const records = await q('select end_reason, note from time_records where operation_id = $1 order by id', [op.id])
+    expect(records).toEqual([{ end_reason: 'end-of-day', note: '' }, { end_reason: 'finished', note: 'All stones tight, checked under the scope' }])
+
+    // Portrait: the same screen stacks its two lists.
+    await page.setViewportSize(TABLET_PORTRAIT)
+    await page.reload()
+    await page.locator('[data-test=next-for-me]').waitFor()
+    await screenshot(page, 'bench-06-portrait')
+    const [a, b] = [await page.locator('[data-test=my-work]').boundingBox(), await page.locator('[data-test=next-for-me]').boundingBox()]
+    expect(b!.y).toBeGreaterThan(a!.y)
+    await context.close()
+    await manager.context.close()
+  })
+
+  it('when a polisher starts a lathe step, then the cautions are shown and must be acknowledged first; a scanned ticket opens the bag with its next step', async () => {
+    const op = await firstPending('polishing')
+    await makeReady(op.id)
+    const [bench] = await q(`select id from benches where name = 'Polishing station'`)
+    const { context, page } = await tablet('ruth@wrenfield.test')
+    await page.goto('/bench')
+    await page.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+    await card(page, 'next-for-me', op.id).locator('[data-test=claim]').click()
+    const mine = card(page, 'my-work', op.id)
+    await mine.waitFor()
+    await mine.locator('[data-test=start]').click()
+    const dialog = page.locator('.el-dialog', { hasText: 'safety cautions' })
+    await dialog.waitFor()
+    await expect(dialog.textContent()).resolves.toMatch(/Polishing lathe: no gloves/)
+    expect(await page.locator('[data-test=confirm-start]').isDisabled()).toBe(true)
+    await screenshot(page, 'bench-07-caution-dialog')
+    await page.locator('[data-test=acknowledge]').click()
+    await page.locator('[data-test=confirm-start]').click()
+    await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
+
+    // What a scan leads to: the job bag page offering the bag's next step.
+    await page.goto(`/job-bags/${op.job_bag_id}?from=scan`)
+    await page.locator('[data-test=next-step]').waitFor()
+    await expect(page.locator('[data-test=next-step]').textContent()).resolves.toContain(op.name)
+    await screenshot(page, 'bench-08-scanned-job-bag')
+    await context.close()
+  })
+})

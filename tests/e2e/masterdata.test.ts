@@ -1,0 +1,133 @@
+// The master-data screens in Chromium: each opens with the demo workshop's data, forms show reasons next to fields, saving works.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { BrowserContext, Page } from 'playwright-core'
+import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+
+let e2e: E2E
+let context: BrowserContext
+let page: Page
+beforeAll(async () => {
+  e2e = await startE2E()
+  context = await e2e.newContext()
+  page = await signInPage(context, 'owner')
+})
+afterAll(async () => {
+  await context?.close()
+  await e2e?.close()
+})
+
+const heading = (p: Page) => p.locator('.mg-page-head h1').textContent()
+
+describe('master-data screens as the owner', () => {
+  it('when the benches open, then the demo benches are listed with what they host, and a bench opens for editing', async () => {
+    await page.goto('/benches')
+    expect(await heading(page)).toBe('Benches')
+    await page.getByText('Setting bench A').waitFor()
+    expect(await page.locator('.el-table__row').count()).toBe(8)
+    await page.getByText('Polishing station').click()
+    await page.locator('.el-dialog').getByText('Downtime', { exact: true }).waitFor()
+    await screenshot(page, 'benches-edit', { fullPage: false })
+    await page.locator('.el-dialog').getByRole('button', { name: 'Cancel' }).click()
+  })
+
+  it('when a bench is saved without a name, then the reason shows next to the name field and nothing is sent', async () => {
+    await page.goto('/benches')
+    await page.locator('[data-test=bench-add]').click()
+    await page.locator('[data-test=bench-save]').click()
+    const item = page.locator('.el-dialog .el-form-item', { has: page.locator('[data-test=bench-name]') })
+    await item.locator('.el-form-item__error').waitFor()
+    expect(await item.locator('.el-form-item__error').textContent()).toMatch(/is required/i)
+    await page.locator('.el-dialog').getByRole('button', { name: 'Cancel' }).click()
+  })
+
+  it('when people & skills open, then skills are listed and a person’s skills editor shows levels and speed', async () => {
+    await page.goto('/people')
+    expect(await heading(page)).toBe('People & skills')
+    await page.getByText('Ines Harrowby').first().click()
+    await page.locator('.el-dialog .el-tabs__item', { hasText: 'Skills' }).click()
+    await page.locator('[data-test=skill-row]').first().waitFor()
+    expect(await page.locator('[data-test=skill-row]').count()).toBe(3)
+    await screenshot(page, 'people-skills', { fullPage: false })
+    await page.locator('.el-dialog').getByRole('button', { name: 'Cancel' }).click()
+  })
+
+  it('when the calendar opens, then the working week shows the lunch break as a gap', async () => {
+    await page.goto('/calendar')
+    await page.locator('[data-weekday="1"]').getByText('break 12:30–13:15').waitFor()
+    await screenshot(page, 'calendar')
+  })
+
+  it('when a routing opens, then each step says what it follows and hazardous steps carry their cautions', async () => {
+    await page.goto('/routings')
+    await page.getByText('Pavé pendant in laminated metal').click()
+    const solder = page.locator('[data-step=solder]')
+    await solder.waitFor()
+    expect(await solder.textContent()).toContain('follows pierce, bail')
+    expect(await solder.locator('[data-test=hazard-note]').textContent()).toMatch(/flashback arrestors[\s\S]*Pickle[\s\S]*local codes/)
+    await screenshot(page, 'routing-editor', { fullPage: false })
+    await page.locator('.el-drawer').getByRole('button', { name: 'Cancel' }).click()
+  })
+
+  it('when a customer with a bad e-mail is saved, then the server-side rule shows next to the field; fixed, the customer is added', async () => {
+    await page.goto('/customers')
+    await page.locator('[data-test=customer-add]').click()
+    await page.locator('.el-dialog input[data-test=customer-name]').fill('Wilhelmina Sparrowgate')
+    await page.locator('.el-dialog input[data-test=customer-email]').fill('not-an-address')
+    await page.locator('[data-test=customer-save]').click()
+    const item = page.locator('.el-dialog .el-form-item', { has: page.locator('[data-test=customer-email]') })
+    await item.locator('.el-form-item__error').waitFor()
+    expect(await item.locator('.el-form-item__error').textContent()).toMatch(/e-mail address/i)
+    await page.locator('.el-dialog input[data-test=customer-email]').fill('wilhelmina@example.test')
+    await page.locator('[data-test=customer-save]').click()
+    await page.locator('.el-dialog').waitFor({ state: 'hidden' })
+    await page.locator('input[data-test=customer-search]').fill('Sparrowgate')
+    await page.locator('.el-table__row', { hasText: 'wilhelmina@example.test' }).waitFor()
+    await screenshot(page, 'customers')
+  })
+
+  it('when an order is opened from the list, then its job bags and operations are shown', async () => {
+    await page.goto('/orders')
+    await page.locator('[data-test=orders-table] .el-table__row').first().click()
+    await page.locator('.el-drawer [data-bag]').first().waitFor()
+    expect(page.url()).toMatch(/\/orders\/\d+$/)
+    await screenshot(page, 'order-detail', { fullPage: false })
+  })
+
+  it('when an order is taken with one piece, then it gets a number and opens with its job bag', async () => {
+    await page.goto('/orders')
+    await page.locator('[data-test=order-take]').click()
+    const dialog = page.locator('.el-dialog', { hasText: 'Take an order' })
+    await dialog.locator('[data-test=order-save]').click()
+    await dialog.locator('.el-form-item__error').first().waitFor()
+    expect(await dialog.locator('.el-form-item__error').allTextContents()).toEqual(expect.arrayContaining([expect.stringMatching(/is required|must be/i)]))
+    await dialog.locator('[data-test=order-customer]').click()
+    await page.locator('.el-select-dropdown__item:visible').first().click()
+    await dialog.locator('input[data-test=order-title]').fill('Bezel ring for an anniversary')
+    const due = dialog.locator('.el-form-item', { hasText: 'Due (the customer' }).locator('input')
+    await due.fill('Thu 14 Mar 2030')
+    await due.press('Enter')
+    await dialog.locator('.el-dialog__title').click()
+    await page.locator('.el-picker__popper:visible').waitFor({ state: 'detached' })
+    const piece = dialog.locator('[data-test=order-piece]').first()
+    await piece.locator('.el-select').first().click()
+    await page.locator('.el-select-dropdown__item:visible', { hasText: 'Bezel-set solitaire ring' }).click()
+    await piece.getByText(/Estimate from the routing/).waitFor()
+    await screenshot(page, 'order-take', { fullPage: false })
+    await dialog.locator('[data-test=order-save]').click()
+    await page.locator('.el-drawer [data-bag]').first().waitFor()
+    expect(await page.locator('.el-drawer').textContent()).toContain('Bezel ring for an anniversary')
+  })
+
+  it('when team access opens, then every demo user is listed with a role', async () => {
+    await page.goto('/team')
+    await page.getByText('setter@wrenfield.test').waitFor()
+    expect(await page.locator('.el-table__row').count()).toBe(8)
+    await screenshot(page, 'team')
+  })
+
+  it('when workshop settings open, then the operation kinds with their hazards are listed', async () => {
+    await page.goto('/settings')
+    await page.getByText('Etching & oxidising').waitFor()
+    await screenshot(page, 'settings')
+  })
+})

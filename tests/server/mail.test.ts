@@ -1,0 +1,116 @@
+// E-mail: the local test mailbox receives what we send, the ready-for-collection notice, the at-risk digest, and failures kept apart from the order.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { createServer } from 'node:net'
+import { format, parseISO } from 'date-fns'
+import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
+import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
+import { loadPlanningData } from '../../server/services/planning/problem'
+import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+
+let t: TestApp
+let fake: FakeSmtp
+let manager: Agent
+
+async function openOrder(app: TestApp, offset = 0) {
+  const { rows } = await app.pool.query(`select r.id, r.number, r.version, c.email, c.name from orders r join customers c on c.id = r.customer_id where r.status = 'open' order by r.id offset $1 limit 1`, [offset])
+  return rows[0] as { id: number; number: string; version: number; email: string; name: string }
+}
+
+beforeAll(async () => {
+  fake = await startFakeSmtp()
+  t = await createTestApp({ SMTP_URL: fake.url })
+  fake.useDb(t.db)
+  manager = await signedIn(t.app, 'manager')
+})
+afterAll(async () => { await t?.close(); await fake?.close() })
+
+describe('mail', () => {
+  it('when a promise is accepted, then the test mailbox receives it with recipient, subject and the promised date', async () => {
+    const sales = await signedIn(t.app, 'sales')
+    const { rows: [c] } = await t.pool.query(`select id, email from customers where workshop_id = 1 order by id desc limit 1`)
+    const { rows: [tpl] } = await t.pool.query(`select id from routing_templates order by id limit 1`)
+    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Signet ring', templateId: tpl.id, promisedDate: '2031-03-14', priority: 3, priceQuoted: 300 })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    const m = await fake.waitFor((x) => x.subject.includes(r.body.order.number))
+    expect(m.to).toEqual([c.email])
+    expect(m.subject).toContain('Wrenfield Street Workshop')
+    // Reference: date-fns long date of 2031-03-14 (a Friday).
+    expect(format(parseISO('2031-03-14'), 'EEEE d MMMM yyyy')).toBe('Friday 14 March 2031')
+    expect(m.text).toContain('Friday 14 March 2031')
+    expect(m.html).toContain('Friday 14 March 2031')
+  })
+
+  it('when an order becomes ready, then the customer gets a ready-for-collection notice once', async () => {
+    const o = await openOrder(t)
+    const r = await manager.patch(`/api/orders/${o.id}`, { status: 'ready', version: o.version })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    const m = await fake.waitFor((x) => x.subject.includes(o.number) && /ready to collect/.test(x.subject))
+    expect(m.to).toEqual([o.email])
+    expect(m.text).toContain(o.name)
+    // Saving again with status ready sends nothing more.
+    const again = await manager.patch(`/api/orders/${o.id}`, { status: 'ready', version: r.body.version })
+    expect(again.status).toBe(200)
+    const { rows } = await t.pool.query(`select status from outbox where order_id = $1 and kind = 'ready-for-collection'`, [o.id])
+    expect(rows).toHaveLength(1)
+    expect(rows[0].status).toBe('delivered')
+  })
+
+  it('when a job bag on the live plan ends after its promised date, then the at-risk digest lists it to the managers', async () => {
+    const o = await openOrder(t, 1)
+    const { rows: [bag] } = await t.pool.query(`select id, number from job_bags where order_id = $1`, [o.id])
+    const data = await loadPlanningData(t.db, 1, new Date())
+    const b = data.problem.benches[0]!, p = data.problem.people[0]!
+    const segs = walkWorkingTime(intersect(b.available, p.available), data.problem.now + 3 * 1440, 60)!
+    const end = data.clock.toDate(segs.at(-1)!.end)
+    await t.pool.query(`update orders set promised_date = $1 where id = $2`, [new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10), o.id])
+    const { rows: [op] } = await t.pool.query(`select id from operations where job_bag_id = $1 and lead_days = 0 order by seq desc limit 1`, [bag.id])
+    await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`, [Number(b.id), Number(p.id), data.clock.toDate(segs[0]!.start).toISOString(), end.toISOString(), op.id])
+    const r = await manager.post('/api/mail/at-risk-digest')
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect(r.body.jobs.map((j: { number: string }) => j.number)).toContain(bag.number)
+    expect(r.body.jobs.find((j: { number: string }) => j.number === bag.number).isNew).toBe(true)
+    const m = await fake.waitFor((x) => x.to.includes('manager@wrenfield.test') && x.subject.includes('at risk'))
+    expect(m.text).toContain(bag.number)
+    expect(m.text).toContain('LATE')
+    // The second digest no longer marks it new.
+    const second = await manager.post('/api/mail/at-risk-digest')
+    expect(second.body.jobs.find((j: { number: string }) => j.number === bag.number).isNew).toBe(false)
+    const sales = await signedIn(t.app, 'sales')
+    expect((await sales.post('/api/mail/at-risk-digest')).status).toBe(403)
+  })
+
+  it('when the outbox is listed, then sales sees the messages and one with its text', async () => {
+    const sales = await signedIn(t.app, 'sales')
+    const list = await sales.get('/api/outbox')
+    expect(list.status).toBe(200)
+    expect(list.body.items.length).toBeGreaterThanOrEqual(3)
+    const one = await sales.get(`/api/outbox/${list.body.items[0].id}`)
+    expect(one.status).toBe(200)
+    expect(one.body.text.length).toBeGreaterThan(10)
+    const bench = await signedIn(t.app, 'bench')
+    expect((await bench.get('/api/outbox')).status).toBe(403)
+  })
+})
+
+describe('mail failures', () => {
+  it('when the mail server cannot be reached, then the order change still commits and the message is recorded as failed', async () => {
+    // A port nobody listens on: taken and released again.
+    const port = await new Promise<number>((resolve) => { const s = createServer().listen(0, '127.0.0.1', () => { const a = s.address() as { port: number }; s.close(() => resolve(a.port)) }) })
+    const broken = await createTestApp({ SMTP_URL: `smtp://127.0.0.1:${port}` })
+    try {
+      const m = await signedIn(broken.app, 'manager')
+      const o = await openOrder(broken)
+      const r = await m.patch(`/api/orders/${o.id}`, { status: 'ready', version: o.version })
+      expect(r.status, JSON.stringify(r.body)).toBe(200)
+      expect(r.body.status).toBe('ready')
+      const { rows: [row] } = await broken.pool.query(`select status from orders where id = $1`, [o.id])
+      expect(row.status).toBe('ready')
+      const { rows: [mail] } = await broken.pool.query(`select status, error, sent_at from outbox where order_id = $1 and kind = 'ready-for-collection'`, [o.id])
+      expect(mail.status).toBe('failed')
+      expect(mail.error).toMatch(/ECONNREFUSED|connect/i)
+      expect(mail.sent_at).toBeNull()
+    } finally {
+      await broken.close()
+    }
+  })
+})

@@ -6,6 +6,7 @@ import { createDb } from '../server/db/client'
 import { runMigrations } from '../server/db/migrate'
 import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../server/db/seed'
 import { startServer } from '../server/index'
+import { startFakeSmtp } from '../server/mail/fake-smtp'
 import { app, root, sessionSecret } from './env'
 import { databaseUrl, ensureDatabase, startCluster, stopCluster } from './pg'
 
@@ -25,8 +26,12 @@ if (!process.env.SKIP_BUILD) {
   const r = spawnSync(join(root, 'node_modules/.bin/vite'), ['build', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit' })
   if (r.status !== 0) throw new Error('client build failed')
 }
+// Outgoing mail: a provider when SMTP_URL is set; otherwise the local test mailbox (nothing leaves this machine; see the outbox page).
+const mailDb = process.env.SMTP_URL ? null : createDb(url, 2)
+const mailbox = mailDb ? await startFakeSmtp({ port: Number(process.env.MAIL_PORT ?? 2525), db: mailDb.db, anyPortIfTaken: true }) : null
+if (mailbox) console.log(`[mail] local test mailbox on 127.0.0.1:${mailbox.port}`)
 const server = await startServer(
-  loadConfig({ ...process.env, DATABASE_URL: url, PORT: String(app.port), SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production' }),
+  loadConfig({ ...process.env, DATABASE_URL: url, PORT: String(app.port), SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production', ...(mailbox ? { SMTP_URL: mailbox.url } : {}) }),
 )
 console.log(`\nMillgrain is running at ${server.url}\n`)
 console.log(`Demo sign-ins (password "${DEMO_PASSWORD}"):`)
@@ -39,6 +44,8 @@ async function stop() {
   stopping = true
   console.log('\n[stop] closing the app…')
   await server.close().catch(() => {})
+  await mailbox?.close().catch(() => {})
+  await mailDb?.pool.end().catch(() => {})
   console.log('[stop] stopping PostgreSQL…')
   stopCluster(app.pgDir)
   process.exit(0)

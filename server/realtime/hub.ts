@@ -4,6 +4,10 @@ import type { ClientToServerEvents, EventName, ServerToClientEvents } from '../.
 
 export interface RecordedEvent { seq: number; event: EventName; payload: unknown }
 
+/** Events only the planners (owner, manager) receive: drafts and planner progress are theirs until published. */
+export const PLANNER_EVENTS = new Set<EventName>(['plan:progress', 'plan:drafted', 'plan:discarded'])
+export const roomOf = (workshopId: number, event: EventName) => (PLANNER_EVENTS.has(event) ? `workshop:${workshopId}:planners` : `workshop:${workshopId}`)
+
 export class Realtime {
   private io: Server<ClientToServerEvents, ServerToClientEvents> | null = null
   private seq = 0
@@ -23,12 +27,12 @@ export class Realtime {
     if (list.length > 5000) list.splice(0, list.length - 5000)
     this.recent.set(workshopId, list)
     for (const fn of this.listeners) fn(workshopId, event)
-    ;(this.io?.to(`workshop:${workshopId}`) as any)?.emit(event, full)
+    ;(this.io?.to(roomOf(workshopId, event)) as any)?.emit(event, full)
   }
 
   /** Progress-style events: sent live, not kept for catch-up. */
   emitTransient(workshopId: number, event: EventName, payload: Record<string, unknown>) {
-    ;(this.io?.to(`workshop:${workshopId}`) as any)?.emit(event, payload)
+    ;(this.io?.to(roomOf(workshopId, event)) as any)?.emit(event, payload)
   }
 
   /** Called after every recorded event (caches listen to drop stale data). */
@@ -36,8 +40,9 @@ export class Realtime {
     this.listeners.push(fn)
   }
 
-  since(workshopId: number, seq: number): RecordedEvent[] {
-    return (this.recent.get(workshopId) ?? []).filter((e) => e.seq > seq)
+  /** Events after `seq` for a client that reconnects; planner-only events only for planners. */
+  since(workshopId: number, seq: number, planner = false): RecordedEvent[] {
+    return (this.recent.get(workshopId) ?? []).filter((e) => e.seq > seq && (planner || !PLANNER_EVENTS.has(e.event)))
   }
 
   get currentSeq() {

@@ -20,11 +20,14 @@ export function attachSockets(
   })
   io.on('connection', (socket) => {
     const user = (socket.request as unknown as { user: SessionUser }).user
+    // Rooms are decided here from the session; clients cannot ask to join any room.
     socket.join(`workshop:${user.workshopId}`)
+    const planner = user.role === 'owner' || user.role === 'manager'
+    if (planner) socket.join(`workshop:${user.workshopId}:planners`)
     socket.on('changes:since', (seq, ack) => {
       if (typeof ack !== 'function') return
       const n = Number(seq)
-      ack(Number.isFinite(n) ? o.realtime.since(user.workshopId, n) : [])
+      ack(Number.isFinite(n) ? o.realtime.since(user.workshopId, n, planner) : [])
     })
   })
   o.realtime.attach(io)

@@ -39,7 +39,7 @@ async function tablet(email: string, viewport = TABLET_LANDSCAPE): Promise<{ con
   const context = await e2e.browser.newContext({ baseURL: e2e.url, viewport, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
   const page = await context.newPage()
   await signInWith(page, email, DEMO_PASSWORD)
-  await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 15_000 }).catch(async (err) => {
+  await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 }).catch(async (err) => {
     await screenshot(page, `bench-sign-in-failed-${email.split('@')[0]}`)
     throw err
   })

@@ -160,13 +160,18 @@ describe('board and moves by hand', () => {
 })
 
 describe('live updates', () => {
-  it('when a plan is published, then a second connected client receives the event', async () => {
+  it('when a plan is drafted and published, then a second manager receives both, sales only the publication', async () => {
     const srv = await startTestServer()
     try {
       const a = await httpSignIn(srv.url, 'manager')
-      const b = await httpSignIn(srv.url, 'sales')
+      const b = await httpSignIn(srv.url, 'manager')
+      const c = await httpSignIn(srv.url, 'sales')
       const sock = connect(srv.url, { extraHeaders: { cookie: b.cookie }, transports: ['websocket'] })
+      const salesSock = connect(srv.url, { extraHeaders: { cookie: c.cookie }, transports: ['websocket'] })
       await new Promise<void>((res, rej) => { sock.on('connect', () => res()); sock.on('connect_error', rej) })
+      await new Promise<void>((res, rej) => { salesSock.on('connect', () => res()); salesSock.on('connect_error', rej) })
+      const salesGot: string[] = []
+      salesSock.onAny((event) => salesGot.push(event))
       const got = new Promise<any>((res) => sock.on('plan:drafted', res))
       const r = await fetch(`${srv.url}/api/plans/runs`, { method: 'POST', headers: { 'content-type': 'application/json', cookie: a.cookie, 'x-csrf-token': a.csrf }, body: JSON.stringify({ timeLimitSeconds: 1 }) })
       expect(r.status).toBe(202)
@@ -175,7 +180,17 @@ describe('live updates', () => {
       // Catch-up after a dropped connection: everything since a sequence number.
       const missed = await new Promise<any[]>((res) => sock.emit('changes:since', 0, res))
       expect(missed.some((e) => e.event === 'plan:drafted')).toBe(true)
+      const published = new Promise<any>((res) => salesSock.on('plan:published', res))
+      const p = await fetch(`${srv.url}/api/plans/${ev.id}/publish`, { method: 'POST', headers: { cookie: a.cookie, 'x-csrf-token': a.csrf } })
+      expect(p.status).toBe(200)
+      expect(await published).toMatchObject({ id: ev.id })
+      // Drafts and planner progress are for planners only, live and on catch-up.
+      expect(salesGot).not.toContain('plan:drafted')
+      expect(salesGot).not.toContain('plan:progress')
+      const salesMissed = await new Promise<any[]>((res) => salesSock.emit('changes:since', 0, res))
+      expect(salesMissed.map((e) => e.event)).toEqual(['plan:published'])
       sock.close()
+      salesSock.close()
       const anon = connect(srv.url, { transports: ['websocket'] })
       const err = await new Promise<Error>((res) => anon.on('connect_error', res))
       expect(err.message).toMatch(/not signed in/)

@@ -235,7 +235,11 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
         const before = s.baseMinutes + s.perStoneMinutes * x
         const after = next.baseMinutes + next.perStoneMinutes * x
         const changePct = before > 0 ? r2(((after - before) / before) * 100) : 0
-        if (Math.abs(changePct) >= 5 && (next.baseMinutes !== s.baseMinutes || next.perStoneMinutes !== s.perStoneMinutes)) {
+        // Offered only when the middle half of the history sits on one side of the template (not just noise) and the change is worth it.
+        const q1 = quantile(ratios, 0.25)
+        const q3 = quantile(ratios, 0.75)
+        const oneSided = q1 > 1 || q3 < 1
+        if (oneSided && Math.abs(changePct) >= 5 && (next.baseMinutes !== s.baseMinutes || next.perStoneMinutes !== s.perStoneMinutes)) {
           suggested = { ...next, method: fit.method, changePct }
         }
       }

@@ -21,7 +21,7 @@ import { DEFAULT_RUNS, kindSpreads, simulateCompletions, type KindSpread } from 
 import { requireOwned } from './versioned'
 
 /** Search budget of the "everything re-planned" answer; the fixed answer is one decode. */
-export const REPLAN_MS = 120
+export const REPLAN_MS = 80
 const QUICK_PLAN_MS = 120
 const CACHE_MS = 5 * 60_000
 export const PROSPECTIVE_JOB = 'prospective'
@@ -29,7 +29,7 @@ export const PROSPECTIVE_JOB = 'prospective'
 // Per app (realtime hub) and workshop: the quick plan used when nothing is published, and the duration spreads.
 // Dropped on any change in the workshop, and after CACHE_MS.
 const caches = new WeakMap<Realtime, Map<string, { at: number; value: unknown }>>()
-async function cached<T>(realtime: Realtime, key: string, load: () => Promise<T> | T): Promise<T> {
+async function cached<T>(realtime: Realtime, key: string, load: () => Promise<T> | T, replace = false): Promise<T> {
   let m = caches.get(realtime)
   if (!m) {
     const fresh = new Map<string, { at: number; value: unknown }>()
@@ -38,7 +38,7 @@ async function cached<T>(realtime: Realtime, key: string, load: () => Promise<T>
     m = fresh
   }
   const hit = m.get(key)
-  if (hit && Date.now() - hit.at < CACHE_MS) return hit.value as T
+  if (hit && !replace && Date.now() - hit.at < CACHE_MS) return hit.value as T
   const value = await load()
   m.set(key, { at: Date.now(), value })
   return value
@@ -128,9 +128,25 @@ async function prospectiveJob(deps: Deps, workshopId: number, data: PlanningData
   return { template: t, job, operations, summary }
 }
 
+/**
+ * The workshop's planning data, reused for up to a minute between promise checks (any change event in the workshop drops
+ * it): sales try several variants in a row, and loading is most of the cost. `now` is moved to the current minute.
+ */
+async function planningData(deps: Deps, workshopId: number, now: Date): Promise<PlanningData> {
+  const key = `${workshopId}|planning-data`
+  const hit = await cached(deps.realtime, key, async () => ({ at: Date.now(), data: await loadPlanningData(deps.db, workshopId, now) }))
+  const nowMin = hit.data.clock.toMinute(now)
+  if (Date.now() - hit.at > 60_000 || nowMin < hit.data.problem.now || nowMin >= hit.data.problem.horizon - 7 * 1440) {
+    const fresh = { at: Date.now(), data: await loadPlanningData(deps.db, workshopId, now) }
+    await cached(deps.realtime, key, () => fresh, true)
+    return fresh.data
+  }
+  return { ...hit.data, problem: { ...hit.data.problem, now: nowMin } }
+}
+
 export async function checkPromise(deps: Deps, actor: Actor, input: PromiseCheckInput, now = new Date()): Promise<PromiseCheckResult> {
   const t0 = performance.now()
-  const data = await loadPlanningData(deps.db, actor.workshopId, now)
+  const data = await planningData(deps, actor.workshopId, now)
   const [pj, base] = await Promise.all([prospectiveJob(deps, actor.workshopId, data, input), basePlan(deps, actor.workshopId, data)])
   let result
   try {

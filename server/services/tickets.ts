@@ -59,7 +59,7 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
   doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text('Routing', m, doc.y)
   doc.moveDown(0.2)
   const box = fs(8)
-  const estW = fs(44)
+  const estW = fs(62)
   const hazardous: { name: string; cautions: string[] }[] = []
   for (const [i, op] of bag.operations.entries()) {
     if (op.status === 'skipped') continue

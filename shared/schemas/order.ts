@@ -18,6 +18,7 @@ export const orderInput = z.object({
   title: name,
   dueDate: isoDate,
   promisedDate: isoDate.nullable().default(null),
+  /** 1 = when there is time … 5 = urgent; the planner weighs lateness by it. */
   priority: z.number({ error: 'must be 1 to 5' }).int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').default(3),
   priceQuoted: z.number().min(0, 'must not be negative').max(10_000_000).default(0),
   notes,

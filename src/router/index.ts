@@ -21,6 +21,7 @@ export const routes: RouteRecordRaw[] = [
       { path: 'job-bags/:id(\\d+)', name: 'job-bag', component: () => import('@/views/JobBagView.vue'), meta: { roles: ['owner', 'manager', 'bench', 'sales'], title: 'Job bag' } },
       { path: 'orders/:id(\\d+)?', name: 'orders', component: () => import('@/views/OrdersView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Orders' } },
       { path: 'promise', name: 'promise', component: laterOr('PromiseView'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Promise check' } },
+      { path: 'outbox', name: 'outbox', component: () => import('@/views/OutboxView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Sent e-mail' } },
       { path: 'customers', name: 'customers', component: () => import('@/views/CustomersView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Customers' } },
       { path: 'benches', name: 'benches', component: () => import('@/views/BenchesView.vue'), meta: { roles: ['owner', 'manager'], title: 'Benches' } },
       { path: 'people', name: 'people', component: () => import('@/views/PeopleView.vue'), meta: { roles: ['owner', 'manager'], title: 'People & skills' } },

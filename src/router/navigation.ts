@@ -1,7 +1,7 @@
 // What each role sees in the navigation, and where each role lands after signing in.
 import type { Role } from '@shared/domain/roles'
 
-export type NavIcon = 'plan' | 'orders' | 'promise' | 'customers' | 'benches' | 'people' | 'calendar' | 'routings' | 'queue' | 'insights' | 'team' | 'settings'
+export type NavIcon = 'plan' | 'orders' | 'promise' | 'customers' | 'benches' | 'people' | 'calendar' | 'routings' | 'queue' | 'insights' | 'team' | 'settings' | 'outbox'
 
 export interface NavItem { to: string; label: string; icon: NavIcon; roles: Role[]; /** Label for a role that only reads here. */ readOnlyFor?: Role[] }
 export interface NavSection { title: string; items: NavItem[] }
@@ -18,7 +18,10 @@ export const NAV: NavSection[] = [
   },
   {
     title: 'Clients',
-    items: [{ to: '/customers', label: 'Customers', icon: 'customers', roles: ['owner', 'manager', 'sales'] }],
+    items: [
+      { to: '/customers', label: 'Customers', icon: 'customers', roles: ['owner', 'manager', 'sales'] },
+      { to: '/outbox', label: 'Sent e-mail', icon: 'outbox', roles: ['owner', 'manager', 'sales'] },
+    ],
   },
   {
     title: 'Workshop',

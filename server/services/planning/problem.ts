@@ -26,8 +26,8 @@ export interface PlanningData {
   }
 }
 
-/** Order priority 1 (most urgent) … 5 becomes a lateness weight 5 … 1. */
-export const weightOfPriority = (priority: number) => 6 - Math.min(5, Math.max(1, priority))
+/** Order priority 1 (when there is time) … 5 (urgent) is the weight of each minute late. */
+export const weightOfPriority = (priority: number) => Math.min(5, Math.max(1, priority))
 
 /** Bench × person pairs that can do work of this kind at this level (active benches and people), with each person's minutes. */
 export function operationOptions(meta: Pick<PlanningData['meta'], 'benches' | 'people' | 'skills' | 'capabilities'>, kindId: number, requiredLevel: number, minutes: (speed: number) => number) {

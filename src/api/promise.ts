@@ -1,0 +1,13 @@
+// Promise API: check a date for a prospective piece, turn it into an order, and an order's forecast.
+import type { OrderForecast, PromiseAcceptInput, PromiseCheckResult } from '@shared/schemas/promise'
+import type { z } from 'zod'
+import type { promiseCheckInput } from '@shared/schemas/promise'
+import { api } from './client'
+import type { OrderDetail } from './orders'
+
+export type PromiseCheckRequest = z.input<typeof promiseCheckInput>
+export interface PromiseAcceptResult { order: OrderDetail; confirmation: { id: number; status: string; error: string | null } }
+
+export const checkPromise = (body: PromiseCheckRequest) => api.post<PromiseCheckResult>('/promise/check', body)
+export const acceptPromise = (body: PromiseAcceptInput) => api.post<PromiseAcceptResult>('/promise/accept', body)
+export const orderForecast = (orderId: number) => api.get<OrderForecast>(`/orders/${orderId}/forecast`)

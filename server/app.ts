@@ -8,13 +8,14 @@ import helmet from 'helmet'
 import type pg from 'pg'
 import type { Config } from './config'
 import type { Db } from './db/client'
-import { AppError } from './errors/app-error'
+import { AppError, invalid } from './errors/app-error'
 import { errorHandler } from './errors/handler'
 import { actorOf, authorize, configurePassport, createSessionMiddleware } from './middleware/auth'
 import { requireCsrf } from './middleware/csrf'
 import type { Deps, RouteSpec } from './lib/route'
 import { Realtime } from './realtime/hub'
 import { allRoutes } from './routes/index'
+import { UNSTORABLE_REASON, unstorableText } from './lib/text-guard'
 import { createMailer, type Mailer } from './mail/transport'
 import type { SessionUser } from '../shared/schemas/session'
 
@@ -79,6 +80,8 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
 function register(router: express.Router, spec: RouteSpec, deps: Deps) {
   const handler: RequestHandler = async (req, res, next) => {
     try {
+      const unstorable = unstorableText(req.params) ?? unstorableText(req.query) ?? unstorableText(req.body)
+      if (unstorable) throw invalid(unstorable, UNSTORABLE_REASON)
       const params = spec.params ? spec.params.parse(req.params) : req.params
       const query = spec.query ? spec.query.parse(req.query) : req.query
       const body = spec.body ? spec.body.parse(req.body ?? {}) : req.body

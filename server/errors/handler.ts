@@ -45,6 +45,10 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   } else if (err?.type === 'entity.too.large') {
     status = 413
     body = { error: 'The request body is too large', code: 'validation', fields: { _: 'is too large' } }
+  } else if (err instanceof URIError) {
+    // The router could not percent-decode a path parameter (e.g. "/orders/%"): the client's URL, not a server fault.
+    status = 400
+    body = { error: 'The address is not valid URL encoding', code: 'validation', fields: { path: 'is not valid URL encoding' } }
   } else if (err?.code === 'EBADCSRFTOKEN') {
     status = 403
     body = { error: err.message, code: 'forbidden' }

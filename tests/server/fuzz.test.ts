@@ -50,7 +50,7 @@ function printPlanQuiet() {
 }
 
 describe('injection strings are data', () => {
-  const hostile = [...INJECTIONS, ...UNICODE.filter((s) => s.trim() && !s.includes('\u0000') && s.isWellFormed())]
+  const hostile = [...INJECTIONS, ...UNICODE.filter((s) => s.trim() && !s.includes('\u0000') && (s as unknown as { isWellFormed(): boolean }).isWellFormed())]
 
   it('when customers and orders are named with SQL, HTML and Unicode tricks, then they are stored and returned literally, and searching for them finds them', async () => {
     const sales = await signedIn(t.app, 'sales')

@@ -140,12 +140,12 @@ const RAW_BODIES = ['', '{', '{"a":', '{"a":NaN}', '[1,2', 'null', 'true', '"tex
 function queryArb(t: Target, pools: IdPools): fc.Arbitrary<string> {
   const base: fc.Arbitrary<Json> = t.query ? arbOf(t.query, pools) : fc.constant({})
   const encode = (v: Json) => {
-    if (!isObj(v)) return `v=${encodeURIComponent(String(v)).slice(0, 200)}`
+    if (!isObj(v)) return new URLSearchParams({ v: String(isRaw(v) ? writeJson(v) : JSON.stringify(v) ?? '').slice(0, 200) }).toString()
     const sp = new URLSearchParams()
     for (const [k, x] of Object.entries(v)) {
       if (x === undefined) continue
       if (Array.isArray(x)) for (const y of x) sp.append(k, typeof y === 'string' ? y : JSON.stringify(y) ?? '')
-      else sp.append(k, isRaw(x) ? writeJson(x) : typeof x === 'string' ? x : JSON.stringify(x) ?? '')
+      else sp.append(k, (isRaw(x) ? writeJson(x) : typeof x === 'string' ? x : JSON.stringify(x) ?? '').slice(0, 3000))
     }
     return sp.toString()
   }
@@ -199,7 +199,8 @@ export async function send(agent: Agent, method: RouteSpec['method'], c: Case): 
 export function problemsOf(a: Answer): string[] {
   const out: string[] = []
   if (a.status >= 500) out.push(`${a.status} server error: ${JSON.stringify(a.body).slice(0, 300)}`)
-  if (a.status >= 400 && a.status < 500) {
+  // 431: Node's HTTP parser refuses a request line over 16 KiB before the app sees it; there is no app answer to check.
+  if (a.status >= 400 && a.status < 500 && a.status !== 431) {
     if (!/json/.test(a.type) || typeof a.body?.error !== 'string' || !a.body.error) out.push(`${a.status} without an error message (${a.type}): ${JSON.stringify(a.body).slice(0, 200)}`)
     if (a.status === 400 && (!isObj(a.body?.fields) || Object.keys(a.body.fields).length === 0)) out.push(`400 without fields: ${JSON.stringify(a.body).slice(0, 200)}`)
   }

@@ -1,0 +1,76 @@
+// Sales in Chromium: checks a date for a prospective piece, sees the range, makes it an order, finds the confirmation in the outbox.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { BrowserContext, Page } from 'playwright-core'
+import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+
+let e2e: E2E
+let context: BrowserContext
+let page: Page
+beforeAll(async () => {
+  e2e = await startE2E()
+  context = await e2e.newContext()
+  page = await signInPage(context, 'sales')
+})
+afterAll(async () => {
+  await context?.close()
+  await e2e?.close()
+})
+
+/** An Element Plus field's input, whether the data-test attribute lands on the input itself or on its wrapper. */
+const field = (scope: Page | ReturnType<Page['locator']>, name: string) => scope.locator(`input[data-test=${name}], [data-test=${name}] input`).first()
+
+describe('promise check as sales', () => {
+  let orderNumber = ''
+  let promised = ''
+
+  it('when sales checks a ring with stones, then the fixed-plan and re-planned dates and the P50/P80/P95 band show', async () => {
+    await page.goto('/promise')
+    expect(await page.locator('.mg-page-head h1').textContent()).toBe('Promise check')
+    await page.locator('[data-test=promise-template]').click()
+    await page.locator('.el-select-dropdown__item:visible').first().click()
+    await field(page, 'promise-stones').fill('5')
+    await page.locator('[data-test=promise-check]').click()
+    await page.locator('[data-test=promise-band]').waitFor({ timeout: 20_000 })
+    const fixed = await page.locator('[data-test=promise-fixed] .big').textContent()
+    expect(fixed).toMatch(/\w{3} \d{1,2} \w{3} \d{4}/)
+    const q = await page.locator('[data-test=promise-quantiles]').textContent()
+    expect(q).toContain('P50')
+    expect(q).toContain('P95')
+    await screenshot(page, 'promise-check')
+  })
+
+  it('when sales makes it an order for a customer, then the order keeps the promised date', async () => {
+    await page.locator('[data-test=promise-make-order]').click()
+    const dialog = page.locator('.el-dialog', { hasText: 'Make it an order' })
+    await dialog.waitFor()
+    promised = (await field(dialog, 'promise-date').inputValue()).trim()
+    await dialog.locator('[data-test=promise-customer]').click()
+    await page.locator('.el-select-dropdown__item:visible').first().click()
+    await field(dialog, 'promise-title').fill('Cluster ring, five stones')
+    await field(dialog, 'promise-price').fill('780')
+    await screenshot(page, 'promise-order-dialog', { fullPage: false })
+    await dialog.locator('[data-test=promise-accept]').click()
+    const done = page.locator('[data-test=promise-accepted]')
+    await done.waitFor({ timeout: 15_000 })
+    const text = (await done.textContent()) ?? ''
+    orderNumber = /Order (\S+) taken/.exec(text)?.[1] ?? ''
+    expect(orderNumber).toMatch(/^MG\d\d-\d{4}$/)
+    const { rows: [o] } = await e2e.db.pool.query(`select promised_date::text as d from orders where number = $1`, [orderNumber])
+    expect(o.d).toBeTruthy()
+    // The picker shows the day as "ddd D MMM YYYY"; the stored date is the same day.
+    expect(promised).toContain(String(Number(o.d.slice(8, 10))))
+  })
+
+  it('when sales opens the outbox, then the confirmation to the customer is listed and its text names the promised date', async () => {
+    await page.goto('/outbox')
+    const row = page.locator('[data-test=outbox-table] .el-table__row', { hasText: orderNumber })
+    await row.first().waitFor()
+    await row.first().click()
+    await page.locator('.el-drawer').getByText('Plain text').click()
+    const text = (await page.locator('[data-test=outbox-text]').textContent()) ?? ''
+    const { rows: [o] } = await e2e.db.pool.query(`select promised_date::text as d from orders where number = $1`, [orderNumber])
+    expect(text).toContain(o.d)
+    await page.locator('.el-drawer').getByText('As the customer sees it').click()
+    await screenshot(page, 'promise-outbox', { fullPage: false })
+  })
+})

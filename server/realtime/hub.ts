@@ -3,6 +3,7 @@ import type { Server } from 'socket.io'
 import type { ClientToServerEvents, EventName, ServerToClientEvents } from '../../shared/events'
 
 export interface RecordedEvent { seq: number; event: EventName; payload: unknown }
+export interface SessionEnd { userId?: number; sessionId?: string }
 
 /** Events only the planners (owner, manager) receive: drafts and planner progress are theirs until published. */
 export const PLANNER_EVENTS = new Set<EventName>(['plan:progress', 'plan:drafted', 'plan:discarded'])
@@ -13,6 +14,7 @@ export class Realtime {
   private seq = 0
   private readonly recent = new Map<number, RecordedEvent[]>()
   private readonly listeners: ((workshopId: number, event: EventName) => void)[] = []
+  private readonly enders: ((who: SessionEnd) => void)[] = []
 
   attach(io: Server<ClientToServerEvents, ServerToClientEvents>) {
     this.io = io
@@ -43,6 +45,15 @@ export class Realtime {
   /** Events after `seq` for a client that reconnects; planner-only events only for planners. */
   since(workshopId: number, seq: number, planner = false): RecordedEvent[] {
     return (this.recent.get(workshopId) ?? []).filter((e) => e.seq > seq && (planner || !PLANNER_EVENTS.has(e.event)))
+  }
+
+  /** Disconnects the live connections of a session that ended (sign-out) or of a user who was switched off or changed role. */
+  endSessions(who: SessionEnd) {
+    for (const fn of this.enders) fn(who)
+  }
+
+  onEndSessions(fn: (who: SessionEnd) => void) {
+    this.enders.push(fn)
   }
 
   get currentSeq() {

@@ -1,11 +1,14 @@
-// Socket.IO: authenticated by the same session cookie; each user joins only their workshop's room.
+// Socket.IO: authenticated by the same session cookie; each user joins only their workshop's room; connections end with their session.
 import type { RequestHandler } from 'express'
+import type { Store } from 'express-session'
 import type { PassportStatic } from 'passport'
 type Authenticator = InstanceType<PassportStatic['Passport']>
-import type { Server } from 'socket.io'
+import type { Server, Socket } from 'socket.io'
 import type { ClientToServerEvents, ServerToClientEvents } from '../../shared/events'
 import type { SessionUser } from '../../shared/schemas/session'
 import type { Realtime } from './hub'
+
+interface SocketRequest { user?: SessionUser; sessionID?: string; sessionStore?: Store }
 
 export function attachSockets(
   io: Server<ClientToServerEvents, ServerToClientEvents>,
@@ -14,12 +17,15 @@ export function attachSockets(
   io.engine.use(o.sessionMiddleware)
   io.engine.use(o.passport.session())
   io.use((socket, next) => {
-    const user = (socket.request as { user?: SessionUser }).user
+    const user = (socket.request as SocketRequest).user
     if (!user) return next(new Error('not signed in'))
     next()
   })
   io.on('connection', (socket) => {
-    const user = (socket.request as unknown as { user: SessionUser }).user
+    const req = socket.request as SocketRequest
+    const user = req.user!
+    socket.data.userId = user.id
+    socket.data.sessionId = req.sessionID
     // Rooms are decided here from the session; clients cannot ask to join any room.
     socket.join(`workshop:${user.workshopId}`)
     const planner = user.role === 'owner' || user.role === 'manager'
@@ -30,5 +36,22 @@ export function attachSockets(
       ack(Number.isFinite(n) ? o.realtime.since(user.workshopId, n, planner) : [])
     })
   })
+  const matching = (pred: (s: Socket) => boolean) => [...io.of('/').sockets.values()].filter(pred)
+  o.realtime.onEndSessions(({ userId, sessionId }) => {
+    for (const s of matching((s) => (userId !== undefined && s.data.userId === userId) || (sessionId !== undefined && s.data.sessionId === sessionId))) s.disconnect(true)
+  })
+  // Sessions also end without a request here (idle expiry, another process): connections whose session is gone are closed.
+  const sweepMs = Number(process.env.SOCKET_SESSION_SWEEP_MS ?? 30_000)
+  const sweep = setInterval(() => {
+    for (const s of io.of('/').sockets.values()) {
+      const req = s.request as SocketRequest
+      if (!req.sessionStore || !req.sessionID) continue
+      req.sessionStore.get(req.sessionID, (err, sess) => {
+        if (!err && !(sess as { passport?: { user?: unknown } } | null | undefined)?.passport?.user) s.disconnect(true)
+      })
+    }
+  }, sweepMs)
+  sweep.unref()
+  io.httpServer?.once('close', () => clearInterval(sweep))
   o.realtime.attach(io)
 }

@@ -54,9 +54,12 @@ export const sessionRoutes = [
   }),
   route({
     method: 'delete', path: '/session', roles: EVERYONE, summary: 'Sign out (the session is destroyed on the server)',
-    handler: async ({ req, res }) => {
+    handler: async ({ req, res, deps }) => {
+      const sessionId = req.sessionID
       await new Promise<void>((r, j) => req.logout((e) => (e ? j(e) : r())))
       await new Promise<void>((r) => req.session.destroy(() => r()))
+      // Live connections opened with this session stop receiving the workshop's events.
+      deps.realtime.endSessions({ sessionId })
       res.clearCookie('millgrain.sid')
       return { ok: true }
     },

@@ -35,7 +35,7 @@ export async function createUser({ db }: Deps, actor: Actor, input: UserCreate) 
   return getUser(db, actor.workshopId, id)
 }
 
-export async function updateUser({ db }: Deps, actor: Actor, id: number, input: UserUpdate) {
+export async function updateUser({ db, realtime }: Deps, actor: Actor, id: number, input: UserUpdate) {
   const { version, password, ...values } = input
   if (id === actor.userId && values.active === false)
     throw new AppError({ code: 'unprocessable', message: 'You cannot switch off your own owner account; another owner must do it', fields: { active: 'cannot switch yourself off' } })
@@ -48,5 +48,7 @@ export async function updateUser({ db }: Deps, actor: Actor, id: number, input: 
     await audit(tx, actor, 'update', 'user', id, { ...values, password: password ? 'changed' : undefined })
   })
   forgetSessionUser(id)
+  // Switched off, new role or new password: their live connections end (a client still signed in reconnects with its new rooms).
+  if (values.active === false || values.role || password) realtime.endSessions({ userId: id })
   return getUser(db, actor.workshopId, id)
 }

@@ -1,6 +1,9 @@
 // Sales in Chromium: checks a date for a prospective piece, sees the range, makes it an order, finds the confirmation in the outbox.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { BrowserContext, Page } from 'playwright-core'
+import { rmSync } from 'node:fs'
+import { basename, resolve } from 'node:path'
+import { PNG } from 'pngjs'
 import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
 
 let e2e: E2E
@@ -12,6 +15,9 @@ beforeAll(async () => {
   page = await signInPage(context, 'sales')
 })
 afterAll(async () => {
+  // The server stores uploads in the default directory; remove what this test added.
+  const { rows } = await e2e.db.pool.query(`select stored_name, thumbnail_name from files`).catch(() => ({ rows: [] as { stored_name: string; thumbnail_name: string | null }[] }))
+  for (const r of rows) for (const n of [r.stored_name, r.thumbnail_name]) if (n) rmSync(resolve('.data/uploads', basename(n)), { force: true })
   await context?.close()
   await e2e?.close()
 })
@@ -57,7 +63,7 @@ describe('promise check as sales', () => {
     expect(orderNumber).toMatch(/^MG\d\d-\d{4}$/)
     const { rows: [o] } = await e2e.db.pool.query(`select promised_date::text as d from orders where number = $1`, [orderNumber])
     expect(o.d).toBeTruthy()
-    // The picker shows the day as "ddd D MMM YYYY"; the stored date is the same day.
+    // The picker shows the day as "D MMM YYYY"; the stored date is the same day.
     expect(promised).toContain(String(Number(o.d.slice(8, 10))))
   })
 
@@ -72,5 +78,19 @@ describe('promise check as sales', () => {
     expect(text).toContain(o.d)
     await page.locator('.el-drawer').getByText('As the customer sees it').click()
     await screenshot(page, 'promise-outbox', { fullPage: false })
+  })
+
+  it('when sales adds a sketch to the new order, then the gallery shows its thumbnail', async () => {
+    const { rows: [o] } = await e2e.db.pool.query(`select id from orders where number = $1`, [orderNumber])
+    await page.goto(`/orders/${o.id}`)
+    const gallery = page.locator('[data-test=file-gallery]')
+    await gallery.waitFor()
+    const img = new PNG({ width: 60, height: 40 })
+    for (let i = 0; i < 60 * 40; i++) img.data.set([180, 140 + (i % 60), 60, 255], i * 4)
+    await gallery.locator('[data-test=file-input]').setInputFiles({ name: 'cluster-sketch.png', mimeType: 'image/png', buffer: PNG.sync.write(img) })
+    await gallery.locator('.tile img').first().waitFor({ timeout: 15_000 })
+    expect(await gallery.locator('.tile').count()).toBe(1)
+    await gallery.scrollIntoViewIfNeeded()
+    await screenshot(page, 'promise-order-files', { fullPage: false })
   })
 })

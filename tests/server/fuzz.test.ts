@@ -38,6 +38,7 @@ describe('fuzzing every route', () => {
     const pools = await loadIdPools(t.pool)
     const stats: FuzzStats = await fuzzRoutes({ routes: allRoutes, sessions, pools, runsPerRoute: RUNS_PER_ROUTE, seed: SEED }, plan)
     console.log(`fuzz: ${stats.requests} requests, statuses ${JSON.stringify(stats.byStatus)}, ${stats.readBacks} read-backs, ${stats.runsStopped} planner runs stopped`)
+    if (process.env.FUZZ_VERBOSE) for (const [k, v] of Object.entries(stats.byRoute)) console.log(`${k.padEnd(50)} ${JSON.stringify(v)}`)
     expect(stats.failures, JSON.stringify(stats.failures.slice(0, 15), null, 1)).toEqual([])
     expect(stats.sessionsRenewed, 'no fuzzed request may end a fuzzing agent\'s session').toEqual([])
     // The sample reaches past validation on most routes: at least one 2xx overall per method family.

@@ -40,7 +40,8 @@ export async function startE2E(): Promise<E2E> {
       DATABASE_URL: db.url,
       PORT: '0',
       SESSION_SECRET: 'e2e-secret-e2e-secret-e2e',
-      CLIENT_DIR: join(ROOT, 'dist'),
+      // E2E_CLIENT_DIR lets one engineer test a private build while others rebuild dist/ on the same machine.
+      CLIENT_DIR: process.env.E2E_CLIENT_DIR ?? join(ROOT, 'dist'),
       NODE_ENV: 'test',
       LOGIN_ATTEMPTS_PER_15_MIN: '1000',
     }),

@@ -38,7 +38,12 @@ export function jsonSchemaOf(schema: ZodType): Js {
 export const isOpaque = (js: Js) => !js.type && !js.anyOf && !js.allOf && !js.oneOf && !js.enum && js.const === undefined && !js.$ref
 
 const ISO_DATE = '^\\d{4}-\\d{2}-\\d{2}$'
-const day = fc.date({ min: new Date('2020-01-01T00:00:00Z'), max: new Date('2030-12-31T00:00:00Z'), noInvalidDate: true })
+// Mostly near today (board windows span at most 62 days, so from/to drawn close together often pass), sometimes anywhere in range.
+const now = Date.now()
+const day = fc.oneof(
+  { weight: 3, arbitrary: fc.date({ min: new Date(now - 20 * 86_400_000), max: new Date(now + 40 * 86_400_000), noInvalidDate: true }) },
+  { weight: 1, arbitrary: fc.date({ min: new Date('2000-01-01T00:00:00Z'), max: new Date('2100-12-31T00:00:00Z'), noInvalidDate: true }) },
+)
 
 /** An arbitrary of values meant to pass the schema (refinements aside). `field` is the property name, for id pools. */
 export function arbOf(js: Js, pools: IdPools, field = '', root: Js = js): fc.Arbitrary<unknown> {

@@ -1,0 +1,49 @@
+// Board store: a move settles the drag before reloading; refusals carry the rule's reason, a stale version reloads and says so.
+import { beforeEach, describe, expect, it, vi } from 'vitest'
+import { createPinia, setActivePinia } from 'pinia'
+import { ApiError } from '@/api/client'
+import type { BoardItem } from '@/api/plans'
+
+const api = vi.hoisted(() => ({ moveOperation: vi.fn(), getBoard: vi.fn() }))
+vi.mock('@/api/plans', () => api)
+const { useBoardStore } = await import('@/stores/board')
+
+const item = { id: 9, name: 'Barrel and polish', jobBagNumber: 'MG26-0066-1', version: 2 } as BoardItem
+const emptyBoard = { window: { from: '2026-11-30', to: '2026-12-27', timeZone: 'Europe/London' }, items: [], jobs: [], benches: [], people: [] }
+
+beforeEach(() => {
+  setActivePinia(createPinia())
+  api.moveOperation.mockReset()
+  api.getBoard.mockReset().mockResolvedValue(emptyBoard)
+})
+
+describe('moving a bar', () => {
+  it('when the server accepts, then the drag is accepted before the board reloads', async () => {
+    const order: string[] = []
+    api.moveOperation.mockResolvedValue({ id: 9, version: 3 })
+    api.getBoard.mockImplementation(async () => { order.push('reload'); return emptyBoard })
+    const r = await useBoardStore().move(item, { benchId: 7, version: 2 }, (ok) => order.push(`settle:${ok}`))
+    expect(r).toEqual({ ok: true })
+    expect(order).toEqual(['settle:true', 'reload'])
+    expect(api.moveOperation).toHaveBeenCalledWith(9, { benchId: 7, version: 2 })
+  })
+
+  it('when the server refuses (422), then the bar goes back and the reason and rule are kept for the board', async () => {
+    api.moveOperation.mockRejectedValue(new ApiError({ status: 422, code: 'unprocessable', message: 'Setting bench A cannot host polishing ("Barrel and polish").', details: { rule: 'bench capability' } }))
+    const settle = vi.fn()
+    const r = await useBoardStore().move(item, { benchId: 5, version: 2 }, settle)
+    expect(r).toEqual({ ok: false, kind: 'refused', message: 'Setting bench A cannot host polishing ("Barrel and polish").', rule: 'bench capability' })
+    expect(settle).toHaveBeenCalledWith(false)
+    expect(api.getBoard).not.toHaveBeenCalled()
+  })
+
+  it('when someone else changed the bar first (409), then the bar goes back, the board reloads and the message says so', async () => {
+    api.moveOperation.mockRejectedValue(new ApiError({ status: 409, code: 'conflict', message: 'changed by someone else' }))
+    const settle = vi.fn()
+    const r = await useBoardStore().move(item, { start: '2026-12-04T09:00:00.000Z', version: 2 }, settle)
+    expect(r).toMatchObject({ ok: false, kind: 'stale' })
+    expect((r as { message: string }).message).toMatch(/Someone else changed “Barrel and polish” of MG26-0066-1/)
+    expect(settle).toHaveBeenCalledWith(false)
+    expect(api.getBoard).toHaveBeenCalledTimes(1)
+  })
+})

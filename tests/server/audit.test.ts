@@ -1,0 +1,141 @@
+// The audit trail: who drafted, published, discarded and moved plans; who claimed, started, finished, added and corrected
+// time; who changed estimates and users — and no API route can edit or delete it.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { allRoutes } from '../../server/routes/index'
+import { waitForRun } from '../../server/services/planning/runs'
+import { createTestApp, DEMO_EMAIL, signedIn, type Agent, type TestApp } from '../setup/app'
+import { benchId, makeReady, openOps, personIdOf, rid } from './bench-fixtures'
+import { userIdOf } from './helpers'
+
+let t: TestApp
+let owner: Agent
+let manager: Agent
+let setter: Agent
+const who = {} as Record<'owner' | 'manager' | 'bench', number>
+
+beforeAll(async () => {
+  t = await createTestApp()
+  owner = await signedIn(t.app, 'owner')
+  manager = await signedIn(t.app, 'manager')
+  setter = await signedIn(t.app, 'bench')
+  for (const r of ['owner', 'manager', 'bench'] as const) who[r] = await userIdOf(t, DEMO_EMAIL[r])
+})
+afterAll(async () => { await t?.close() })
+
+interface Row { action: string; entity: string; entity_id: number | null; user_id: number | null; details: Record<string, any>; at: Date }
+async function rows(entity: string, entityId: number, action?: string): Promise<Row[]> {
+  const { rows } = await t.pool.query(`select action, entity, entity_id, user_id, details, at from audit_log where entity = $1 and entity_id = $2 and ($3::text is null or action = $3) order by id desc`, [entity, entityId, action ?? null])
+  return rows
+}
+
+async function draft(): Promise<number> {
+  const r = await manager.post('/api/plans/runs', { timeLimitSeconds: 1 })
+  expect(r.status, JSON.stringify(r.body)).toBe(202)
+  const done = await waitForRun(r.body.id)
+  expect(done?.status).toBe('done')
+  return done!.planId!
+}
+
+describe('plans', () => {
+  it('when the manager drafts, publishes, discards and pins or moves, then each is in the audit log with the manager as the one who did it', async () => {
+    const first = await draft()
+    expect(await rows('plan', first, 'draft')).toMatchObject([{ user_id: who.manager, details: { weightedTardiness: expect.any(Number) } }])
+    expect((await manager.post(`/api/plans/${first}/publish`)).status).toBe(200)
+    expect(await rows('plan', first, 'publish')).toMatchObject([{ user_id: who.manager }])
+    const second = await draft()
+    expect((await manager.post(`/api/plans/${second}/discard`)).status).toBe(200)
+    expect(await rows('plan', second, 'discard')).toMatchObject([{ user_id: who.manager }])
+
+    const { rows: [op] } = await t.pool.query(`select id, version, planned_start, planned_bench_id from operations where planned_start is not null and status in ('pending', 'ready') order by id limit 1`)
+    const pin = await manager.patch(`/api/board/operations/${op.id}`, { pinned: true, version: op.version })
+    expect(pin.status, JSON.stringify(pin.body)).toBe(200)
+    expect((await rows('operation', op.id, 'pin'))[0]).toMatchObject({ user_id: who.manager, details: { pinned: true } })
+    const move = await manager.patch(`/api/board/operations/${op.id}`, { start: new Date(op.planned_start).toISOString(), benchId: op.planned_bench_id, version: pin.body.version })
+    expect(move.status, JSON.stringify(move.body)).toBe(200)
+    expect((await rows('operation', op.id, 'move'))[0]).toMatchObject({ user_id: who.manager, details: { benchId: op.planned_bench_id, start: expect.any(String) } })
+  })
+})
+
+describe('time records', () => {
+  it('when the setter claims, starts and finishes a step, and the manager adds and corrects time, then each is audited with who did it', async () => {
+    const setA = await benchId(t, 'Setting bench A')
+    const setterPerson = await personIdOf(t, DEMO_EMAIL.bench)
+    const [op] = await openOps(t, 'setting', { key: 'set' })
+    await makeReady(t, op!.id)
+    for (const step of ['claim', 'start', 'finish'] as const) {
+      const r = await setter.post(`/api/bench/operations/${op!.id}/${step}`, { requestId: rid(), benchId: setA, acknowledgeHazards: true })
+      expect(r.status, `${step}: ${JSON.stringify(r.body)}`).toBe(200)
+      expect((await rows('operation', op!.id, step))[0], step).toMatchObject({ user_id: who.bench })
+    }
+    const add = await manager.post(`/api/operations/${op!.id}/time-records`, {
+      personId: setterPerson, benchId: setA, startedAt: '2026-01-05T09:00:00Z', endedAt: '2026-01-05T09:40:00Z', reason: 'forgot to tap start on Monday',
+    })
+    expect(add.status, JSON.stringify(add.body)).toBe(201)
+    const added = (await rows('operation', op!.id, 'add-time'))[0]!
+    expect(added).toMatchObject({ user_id: who.manager, details: { personId: setterPerson, reason: 'forgot to tap start on Monday' } })
+    const recordId = added.details.timeRecordId as number
+    const fix = await manager.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2026-01-05T09:30:00Z', reason: 'left for lunch at half past' })
+    expect(fix.status, JSON.stringify(fix.body)).toBe(201)
+    expect((await rows('operation', op!.id, 'correct-time'))[0]).toMatchObject({ user_id: who.manager, details: { timeRecordId: recordId, reason: 'left for lunch at half past' } })
+    const voided = await manager.post(`/api/time-records/${recordId}/corrections`, { void: true, reason: 'double booking' })
+    expect(voided.status).toBe(201)
+    expect((await rows('operation', op!.id, 'void-time'))[0]).toMatchObject({ user_id: who.manager, details: { to: 'void' } })
+  })
+})
+
+describe('estimates', () => {
+  it('when a step estimate is changed on a job bag and the owner accepts new template minutes, then both are audited with from, to and why', async () => {
+    const { rows: [op] } = await t.pool.query(`select o.id, o.version, o.job_bag_id, o.estimate_minutes from operations o join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id where ord.status = 'open' and o.status = 'pending' order by o.id limit 1`)
+    const r = await manager.patch(`/api/job-bags/${op.job_bag_id}/operations/${op.id}`, { estimateMinutes: Number(op.estimate_minutes) + 30, reason: 'heavier casting than usual', version: op.version })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    const step = (await rows('operation', op.id, 'update-step'))[0]
+    expect(step).toMatchObject({ user_id: who.manager })
+    expect(JSON.stringify(step!.details)).toContain('heavier casting than usual')
+    expect(JSON.stringify(step!.details)).toContain(String(Number(op.estimate_minutes) + 30))
+
+    const tpl = (await owner.get('/api/templates')).body[0]
+    const s0 = tpl.steps[0]
+    const acc = await owner.post('/api/estimates/accept', { templateId: tpl.id, stepKey: s0.key, baseMinutes: s0.baseMinutes + 5, perStoneMinutes: s0.perStoneMinutes, templateVersion: tpl.version, reason: 'our own times say so' })
+    expect(acc.status, JSON.stringify(acc.body)).toBe(200)
+    const a = (await rows('routing-template', tpl.id, 'accept-estimate'))[0]
+    expect(a).toMatchObject({ user_id: who.owner })
+    expect(JSON.stringify(a!.details)).toContain(s0.key)
+  })
+})
+
+describe('users', () => {
+  it('when the owner creates a user, changes the role and resets the password, then it is audited without the password itself', async () => {
+    const password = 'a-long-enough-secret-42'
+    const c = await owner.post('/api/users', { email: 'polisher@wrenfield.test', name: 'New Polisher', role: 'bench', password })
+    expect(c.status, JSON.stringify(c.body)).toBe(201)
+    expect(await rows('user', c.body.id, 'create')).toMatchObject([{ user_id: who.owner, details: { email: 'polisher@wrenfield.test', role: 'bench' } }])
+    const u = await owner.patch(`/api/users/${c.body.id}`, { role: 'sales', password: 'another-long-secret-43', version: c.body.version })
+    expect(u.status, JSON.stringify(u.body)).toBe(200)
+    const [upd] = await rows('user', c.body.id, 'update')
+    expect(upd).toMatchObject({ user_id: who.owner, details: { role: 'sales', password: 'changed' } })
+    const { rows: all } = await t.pool.query(`select details::text as d from audit_log where entity = 'user'`)
+    for (const r of all) {
+      expect(r.d).not.toContain(password)
+      expect(r.d).not.toContain('another-long-secret-43')
+      expect(r.d).not.toMatch(/\$argon2/)
+    }
+  })
+})
+
+describe('the audit log itself', () => {
+  it('when the route list is read, then no route writes, edits or deletes audit rows, and any route that reads them is the owner\'s', () => {
+    const auditRoutes = allRoutes.filter((r) => /audit/i.test(r.path))
+    expect(auditRoutes.filter((r) => r.method !== 'get').map((r) => `${r.method} ${r.path}`)).toEqual([])
+    for (const r of auditRoutes) expect(r.roles, `${r.method} ${r.path}`).toEqual(['owner'])
+  })
+
+  it('when every write route is called by the owner with placeholder input, then the rows already in the audit log are unchanged', async () => {
+    const before = (await t.pool.query('select id, action, entity, entity_id, user_id, details::text as d, at from audit_log order by id')).rows
+    for (const r of allRoutes.filter((x) => x.method !== 'get' && x.path !== '/session')) {
+      const path = `/api${r.path.replace(/:[a-zA-Z]+/g, '1')}`
+      await (r.method === 'delete' ? owner.delete(path) : owner[r.method](path, { id: before[0]?.id ?? 1, auditId: 1, action: 'nothing happened' }))
+    }
+    const after = (await t.pool.query('select id, action, entity, entity_id, user_id, details::text as d, at from audit_log where id <= $1 order by id', [before[before.length - 1]?.id ?? 0])).rows
+    expect(after).toEqual(before)
+  })
+})

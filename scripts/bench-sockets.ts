@@ -62,7 +62,7 @@ if (allRoutes.some((r) => r.path === '/bench/operations/:id/claim')) {
   const { rows: [bench] } = (await b.server.db.execute(sql`select id from benches where name = 'Setting bench A'`)) as any
   const { rows: [step] } = (await b.server.db.execute(sql`select o.id, o.job_bag_id, o.after from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
     where k.code = 'setting' and ord.status = 'open' and o.status in ('pending', 'ready') order by ord.due_date, o.seq limit 1`)) as any
-  await b.server.db.execute(sql`update operations set status = 'done', finished_at = now() where job_bag_id = ${step.job_bag_id} and key = any(${step.after}::text[])`)
+  await b.server.db.execute(sql`update operations set status = 'done', finished_at = now() where job_bag_id = ${step.job_bag_id} and key in (select jsonb_array_elements_text(${JSON.stringify(step.after)}::jsonb))`)
   await b.server.db.execute(sql`update operations set status = 'ready', claimed_by = null where id = ${step.id}`)
   for (let k = 0; k < TRANSITIONS; k++) {
     const action = k % 2 === 0 ? 'claim' : 'release'

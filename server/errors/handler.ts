@@ -30,6 +30,13 @@ function isDataException(err: unknown): boolean {
 
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   const requestId = (req as { id?: string }).id
+  // A late error after the answer went out (e.g. the session store failing to save while the database is down):
+  // the answer stands and the keep-alive connection stays usable; only an unfinished answer goes to Express's handler.
+  if (res.headersSent) {
+    if (!res.writableEnded) return _next(err)
+    if (!isDatabaseDown(err)) console.error(`[error] ${requestId ?? ''} ${req.method} ${req.originalUrl} after the answer was sent:`, err)
+    return
+  }
   let status = 500
   let body: ErrorBody
   if (err instanceof AppError) {

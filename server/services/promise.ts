@@ -144,7 +144,21 @@ async function planningData(deps: Deps, workshopId: number, now: Date): Promise<
   return { ...hit.data, problem: { ...hit.data.problem, now: nowMin } }
 }
 
+/**
+ * The same question about the same workshop state gets the same answer: repeated checks (and identical checks arriving
+ * together) share one computation until the workshop changes or the minute turns.
+ */
+const inFlight = new Map<string, Promise<PromiseCheckResult>>()
 export async function checkPromise(deps: Deps, actor: Actor, input: PromiseCheckInput, now = new Date()): Promise<PromiseCheckResult> {
+  const key = `${actor.workshopId}|answer|${Math.floor(now.getTime() / 60_000)}|${JSON.stringify(input)}`
+  const running = inFlight.get(key)
+  if (running) return running
+  const work = cached(deps.realtime, key, () => computePromise(deps, actor, input, now)).finally(() => inFlight.delete(key))
+  inFlight.set(key, work)
+  return work
+}
+
+async function computePromise(deps: Deps, actor: Actor, input: PromiseCheckInput, now: Date): Promise<PromiseCheckResult> {
   const t0 = performance.now()
   const data = await planningData(deps, actor.workshopId, now)
   const [pj, base] = await Promise.all([prospectiveJob(deps, actor.workshopId, data, input), basePlan(deps, actor.workshopId, data)])

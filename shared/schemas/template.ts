@@ -30,7 +30,7 @@ export const templateInput = z
       }),
     )
     // Cycle check (Kahn): the steps must form a graph that can be worked through.
-    const indeg = new Map(t.steps.map((s) => [s.key, s.after.filter((a) => keys.has(a)).length]))
+    const indeg = new Map(t.steps.map((s) => [s.key, new Set(s.after.filter((a) => keys.has(a))).size]))
     const queue = [...indeg].filter(([, d]) => d === 0).map(([k]) => k)
     let seen = 0
     while (queue.length) {

@@ -30,13 +30,26 @@ describe('master-data screens as the owner', () => {
     await page.locator('.el-dialog').getByRole('button', { name: 'Cancel' }).click()
   })
 
-  it('when a bench is saved without a name, then the reason shows next to the name field and nothing is sent', async () => {
+  it('when a bench is saved without a name, then the shared rule shows next to the name field before anything is sent', async () => {
     await page.goto('/benches')
     await page.locator('[data-test=bench-add]').click()
     await page.locator('[data-test=bench-save]').click()
     const item = page.locator('.el-dialog .el-form-item', { has: page.locator('[data-test=bench-name]') })
     await item.locator('.el-form-item__error').waitFor()
     expect(await item.locator('.el-form-item__error').textContent()).toMatch(/is required/i)
+    await page.locator('.el-dialog').getByRole('button', { name: 'Cancel' }).click()
+  })
+
+  it('when a bench takes a name already used, then the server’s reason shows next to the name field', async () => {
+    await page.goto('/benches')
+    await page.locator('[data-test=bench-add]').click()
+    await page.locator('.el-dialog input[data-test=bench-name]').fill('Polishing station')
+    await page.locator('.el-dialog .el-form-item', { hasText: 'Kind of bench' }).locator('input').fill('polishing')
+    await page.locator('[data-test=bench-save]').click()
+    const item = page.locator('.el-dialog .el-form-item', { has: page.locator('[data-test=bench-name]') })
+    await item.locator('.el-form-item__error').waitFor()
+    expect(await item.locator('.el-form-item__error').textContent()).toMatch(/already used by another bench/i)
+    await screenshot(page, 'benches-name-taken', { fullPage: false })
     await page.locator('.el-dialog').getByRole('button', { name: 'Cancel' }).click()
   })
 
@@ -68,7 +81,7 @@ describe('master-data screens as the owner', () => {
     await page.locator('.el-drawer').getByRole('button', { name: 'Cancel' }).click()
   })
 
-  it('when a customer with a bad e-mail is saved, then the server-side rule shows next to the field; fixed, the customer is added', async () => {
+  it('when a customer with a bad e-mail is saved, then the shared rule shows next to the field; fixed, the customer is added and found by search', async () => {
     await page.goto('/customers')
     await page.locator('[data-test=customer-add]').click()
     await page.locator('.el-dialog input[data-test=customer-name]').fill('Wilhelmina Sparrowgate')
@@ -81,7 +94,8 @@ describe('master-data screens as the owner', () => {
     await page.locator('[data-test=customer-save]').click()
     await page.locator('.el-dialog').waitFor({ state: 'hidden' })
     await page.locator('input[data-test=customer-search]').fill('Sparrowgate')
-    await page.locator('.el-table__row', { hasText: 'wilhelmina@example.test' }).waitFor()
+    await page.waitForFunction(() => document.querySelectorAll('.el-table__row').length === 1)
+    expect(await page.locator('.el-table__row').textContent()).toContain('wilhelmina@example.test')
     await screenshot(page, 'customers')
   })
 

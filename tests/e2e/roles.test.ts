@@ -36,6 +36,21 @@ describe('roles in the browser', () => {
     })
   }
 
+  it('when a bench user signs in on a tablet, then the navigation folds into a rail of icons that still leads to their queue', async () => {
+    const context = await e2e.newContext({ viewport: { width: 820, height: 1180 } })
+    try {
+      const page = await signInPage(context, 'bench')
+      await page.waitForURL((u) => u.pathname === '/bench')
+      const side = await page.locator('aside').boundingBox()
+      expect(side?.width).toBeLessThan(100)
+      expect(await navTargets(page)).toEqual(['/bench'])
+      expect(await page.locator('[data-nav="/bench"]').getAttribute('title')).toBe('My bench queue')
+      await screenshot(page, 'home-bench-tablet')
+    } finally {
+      await context.close()
+    }
+  })
+
   it('when a bench user opens /settings, then the page says it is not for their role and the API refuses the change', async () => {
     const context = await e2e.newContext()
     try {

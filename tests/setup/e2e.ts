@@ -19,8 +19,8 @@ export interface E2E {
   url: string
   browser: Browser
   db: TestDb
-  /** A fresh browser context (own cookies) pointed at the server. */
-  newContext(): Promise<BrowserContext>
+  /** A fresh browser context (own cookies) pointed at the server; desktop size unless a viewport is given. */
+  newContext(o?: { viewport?: { width: number; height: number } }): Promise<BrowserContext>
   close(): Promise<void>
 }
 
@@ -51,7 +51,7 @@ export async function startE2E(): Promise<E2E> {
     url: server.url,
     browser,
     db,
-    newContext: () => browser.newContext({ baseURL: server.url, viewport: { width: 1440, height: 900 }, locale: 'en-GB', timezoneId: 'Europe/London' }),
+    newContext: (o = {}) => browser.newContext({ baseURL: server.url, viewport: o.viewport ?? { width: 1440, height: 900 }, locale: 'en-GB', timezoneId: 'Europe/London' }),
     async close() {
       await browser.close().catch(() => undefined)
       await server.close().catch(() => undefined)

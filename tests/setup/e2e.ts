@@ -73,7 +73,7 @@ export async function signInPage(context: BrowserContext, role: Role): Promise<P
   const page = await context.newPage()
   await signInWith(page, DEMO_EMAIL[role], DEMO_PASSWORD)
   await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 15_000 })
-  await page.locator('[data-test=user-name]').waitFor()
+  await page.locator('[data-test=user-name]').waitFor({ state: 'attached' })
   return page
 }
 

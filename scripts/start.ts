@@ -5,6 +5,7 @@ import { loadConfig } from '../server/config'
 import { createDb } from '../server/db/client'
 import { runMigrations } from '../server/db/migrate'
 import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../server/db/seed'
+import { publishFirstPlans } from '../server/services/planning/first-plan'
 import { startServer } from '../server/index'
 import { startFakeSmtp } from '../server/mail/fake-smtp'
 import { app, root, sessionSecret } from './env'
@@ -19,6 +20,11 @@ const url = databaseUrl(app.pgPort, app.dbName)
   await runMigrations(db)
   const seeded = await seedDemo(db)
   console.log(seeded ? '[db] demo workshop seeded' : '[db] existing data kept (no re-seed)')
+  if (seeded) {
+    console.log('[plan] planning the demo week (5 s)…')
+    const plans = await publishFirstPlans(db, 5)
+    if (plans.length) console.log('[plan] first plan published')
+  }
   await pool.end()
 }
 if (!process.env.SKIP_BUILD) {

@@ -56,7 +56,7 @@ const BENCHES: { name: string; kind: string; kinds: KindCode[]; notes?: string }
   { name: 'Fabrication bench 2', kind: 'fabrication', kinds: ['sawing', 'filing', 'drilling', 'inspection'] },
   { name: 'Forge & soldering station', kind: 'hearth', kinds: ['forging', 'soldering'], notes: 'Torch, rolling mill, pickle pot' },
   { name: 'Drilling station', kind: 'drilling', kinds: ['drilling'], notes: 'Pillar drill and pendant motor' },
-  { name: 'Setting bench A', kind: 'setting', kinds: ['setting', 'inspection'], notes: 'Stereo microscope, GRS-style vice' },
+  { name: 'Setting bench A', kind: 'setting', kinds: ['setting', 'inspection'], notes: 'Stereo microscope, ball vice' },
   { name: 'Setting bench B', kind: 'setting', kinds: ['setting', 'inspection'], notes: 'Stereo microscope' },
   { name: 'Polishing station', kind: 'polishing', kinds: ['polishing'], notes: 'Two-spindle lathe with extraction' },
   { name: 'Acid & etch station', kind: 'wet', kinds: ['etching'], notes: 'Fume cupboard, eyewash' },
@@ -276,7 +276,9 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     }
     // Open work: 30 orders due over the next four weeks.
     for (let i = 0; i < 30; i++) {
-      const due = addDays(now, 5 + Math.floor((i * 23) / 30) + Math.floor(rand() * 4))
+      let due = addDays(now, 5 + Math.floor((i * 23) / 30) + Math.floor(rand() * 4))
+      // Customers collect on working days: a due date on a weekend moves to the Friday before.
+      while (due.getUTCDay() === 0 || due.getUTCDay() === 6) due = addDays(due, -1)
       await makeOrder({ due, status: 'open', created: addDays(now, -Math.floor(rand() * 10)), tIndex: i * 7 + 3 })
     }
   })

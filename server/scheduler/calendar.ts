@@ -91,8 +91,24 @@ export function weekdayOf(isoDate: string): number {
   return new Date(Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3]))).getUTCDay()
 }
 
-/** "Thu 14:00" for minute t, with the week's day counted from the origin's weekday; later weeks add "+Nw". */
-export function formatMinute(t: number, originWeekday: number): string {
+const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec']
+
+/**
+ * "Thu 3 Dec 14:00" for minute t when the origin is a readable ISO date (calendar arithmetic only, no clock), else
+ * "Thu 14:00" counted from the origin's weekday with "+Nw" for later weeks. Minutes are wall-clock minutes of the origin's zone.
+ */
+export function formatMinute(t: number, originWeekday: number, originIso?: string): string {
+  const m = originIso ? /^(\d{4})-(\d{2})-(\d{2})/.exec(originIso) : null
+  if (m) {
+    const day = Math.floor(t / 1440)
+    const mins = t - day * 1440
+    const d = new Date(Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3]) + day))
+    return `${WEEKDAYS[d.getUTCDay()]} ${d.getUTCDate()} ${MONTHS[d.getUTCMonth()]} ${String(Math.floor(mins / 60)).padStart(2, '0')}:${String(mins % 60).padStart(2, '0')}`
+  }
+  return weekdayTime(t, originWeekday)
+}
+
+function weekdayTime(t: number, originWeekday: number): string {
   const day = Math.floor(t / 1440)
   const mins = t - day * 1440
   const hh = String(Math.floor(mins / 60)).padStart(2, '0')

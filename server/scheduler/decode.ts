@@ -350,7 +350,7 @@ const WHY_KIND: StartReason['kind'][] = ['now', 'release', 'predecessor', 'bench
 /** Builds the public Plan, with human-readable reasons, from a decode. */
 export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
   const p = c.problem
-  const at = (t: number): string => formatMinute(t, c.originWeekday)
+  const at = (t: number): string => formatMinute(t, c.originWeekday, p.origin)
   const operations: PlannedOperation[] = []
   for (let i = 0; i < c.n; i++) {
     const op = c.ops[i]!

@@ -164,7 +164,8 @@ describe('engine constraints', () => {
     const second = placed(plan(problem), 'second')
     expect(second.start).toBe(at(0, 14))
     expect(second.reason).toMatchObject({ kind: 'person', blockerId: 'first' })
-    expect(second.reason.detail).toBe('waiting for Ada (setting) until Mon 14:00')
+    // 2025-03-03, the builders' origin, is a Monday (Gregorian calendar; ISO 8601 weekday 1).
+    expect(second.reason.detail).toBe('waiting for Ada (setting) until Mon 3 Mar 14:00')
   })
 
   it('when a bench is taken by another job, then the reason is the bench with the blocking operation', () => {
@@ -175,7 +176,7 @@ describe('engine constraints', () => {
     })
     const second = placed(plan(problem), 'second')
     expect(second.reason).toMatchObject({ kind: 'bench', blockerId: 'first' })
-    expect(second.reason.detail).toContain('until Mon 09:00')
+    expect(second.reason.detail).toContain('until Mon 3 Mar 09:00')
   })
 
   it('when the same problem and seed are solved twice with an iteration cap, then the plans are identical', () => {

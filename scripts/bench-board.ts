@@ -6,42 +6,15 @@ import { and, eq, sql } from 'drizzle-orm'
 import { createDb } from '../server/db/client'
 import * as s from '../server/db/schema/index'
 import { dayjs } from '../server/lib/time'
-import { benchServer } from './bench-common'
+import { addPlannedLoad, benchServer } from './bench-common'
 
 const TARGET_OPS = Number(process.env.BOARD_OPS ?? 1400)
 const bench = await benchServer('millgrain_bench_board')
 const { url, server } = bench
 
-// Grow the demo workshop to TARGET_OPS planned operations spread over four working weeks.
-const { db, pool } = createDb(url, 4)
 const from = dayjs().tz('Europe/London').startOf('isoWeek')
 const to = from.add(27, 'day')
-{
-  const [w] = await db.select().from(s.workshops)
-  const benches = await db.select().from(s.benches)
-  const people = await db.select().from(s.people)
-  const [tpl] = await db.select().from(s.routingTemplates).where(eq(s.routingTemplates.code, 'pave-pendant'))
-  const steps = await db.select().from(s.templateSteps).where(eq(s.templateSteps.templateId, tpl!.id))
-  const [cust] = await db.select().from(s.customers)
-  let have = (await db.execute(sql`select count(*)::int n from operations where status not in ('done','skipped')`)).rows[0]!.n as number
-  let i = 0
-  let rnd = 7
-  const r = () => ((rnd = (rnd * 48271) % 2147483647) / 2147483647)
-  while (have < TARGET_OPS) {
-    i++
-    const [o] = await db.insert(s.orders).values({ workshopId: w!.id, number: `BB-${i}`, customerId: cust!.id, title: `Bench load ${i}`, dueDate: to.format('YYYY-MM-DD'), priority: 3 }).returning()
-    const [b] = await db.insert(s.jobBags).values({ workshopId: w!.id, orderId: o!.id, number: `BB-${i}-1`, piece: 'Load piece', templateId: tpl!.id, params: { metal: 'silver-925', stoneCount: 10, stoneSizeMm: 1.5, sizeMm: 20, finish: 'polished', quantity: 1 } }).returning()
-    await db.insert(s.operations).values(steps.map((st) => {
-      const day = Math.floor(r() * 20)
-      const start = from.add(Math.floor(day / 5) * 7 + (day % 5), 'day').hour(9).minute(Math.floor(r() * 420))
-      return { jobBagId: b!.id, seq: st.seq, key: st.key, kindId: st.kindId, name: st.name, estimateMinutes: 45, after: st.after, status: 'pending',
-        plannedBenchId: benches[Math.floor(r() * benches.length)]!.id, plannedPersonId: people[Math.floor(r() * people.length)]!.id,
-        plannedStart: start.toISOString(), plannedEnd: start.add(45, 'minute').toISOString() }
-    }))
-    have += steps.length
-  }
-}
-await pool.end()
+await addPlannedLoad(url, TARGET_OPS, from)
 
 const manager = await bench.signIn('manager@wrenfield.test')
 const sales = await bench.signIn('sales@wrenfield.test')

@@ -1,14 +1,18 @@
 // Shared set-up for the load benchmarks: the demo data on a scratch cluster with a published plan, the real server, signed-in sessions.
+import { eq, sql } from 'drizzle-orm'
 import { loadConfig } from '../server/config'
+import { createDb } from '../server/db/client'
+import * as schema from '../server/db/schema/index'
+import type { Dayjs } from '../server/lib/time'
 import { DEMO_PASSWORD } from '../server/db/seed'
 import { startServer } from '../server/index'
 import { scratchDatabase } from './scratch-db'
 
 export interface HttpSession { cookie: string; csrf: string; userId: number }
 
-export async function benchServer(dbName: string) {
+export async function benchServer(dbName: string, o: { clientDir?: string } = {}) {
   const { url, stop } = await scratchDatabase(dbName)
-  const server = await startServer(loadConfig({ DATABASE_URL: url, PORT: '0', SESSION_SECRET: 'bench-secret-bench-secret', NODE_ENV: 'production', LOGIN_ATTEMPTS_PER_15_MIN: '100000' }))
+  const server = await startServer(loadConfig({ DATABASE_URL: url, PORT: '0', SESSION_SECRET: 'bench-secret-bench-secret', NODE_ENV: 'production', LOGIN_ATTEMPTS_PER_15_MIN: '100000', ...(o.clientDir ? { CLIENT_DIR: o.clientDir } : {}) }))
   const signIn = async (email: string): Promise<HttpSession> => {
     let cookie = ''
     const keep = (r: Response) => { const c = r.headers.get('set-cookie'); if (c) cookie = c.split(';')[0]! }
@@ -42,3 +46,33 @@ export async function benchServer(dbName: string) {
 }
 
 export const pct = (sorted: number[], p: number) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))]! : NaN)
+
+/** Grows the demo workshop to `target` open operations with planned times spread over the four working weeks from `from`. */
+export async function addPlannedLoad(url: string, target: number, from: Dayjs) {
+  const { db, pool } = createDb(url, 4)
+  const to = from.add(27, 'day')
+  const [w] = await db.select().from(schema.workshops)
+  const benches = await db.select().from(schema.benches)
+  const people = await db.select().from(schema.people)
+  const [tpl] = await db.select().from(schema.routingTemplates).where(eq(schema.routingTemplates.code, 'pave-pendant'))
+  const steps = await db.select().from(schema.templateSteps).where(eq(schema.templateSteps.templateId, tpl!.id))
+  const [cust] = await db.select().from(schema.customers)
+  let have = (await db.execute(sql`select count(*)::int n from operations where status not in ('done','skipped')`)).rows[0]!.n as number
+  let i = 0
+  let rnd = 7
+  const r = () => ((rnd = (rnd * 48271) % 2147483647) / 2147483647)
+  while (have < target) {
+    i++
+    const [o] = await db.insert(schema.orders).values({ workshopId: w!.id, number: `BB-${i}`, customerId: cust!.id, title: `Bench load ${i}`, dueDate: to.format('YYYY-MM-DD'), priority: 3 }).returning()
+    const [b] = await db.insert(schema.jobBags).values({ workshopId: w!.id, orderId: o!.id, number: `BB-${i}-1`, piece: 'Load piece', templateId: tpl!.id, params: { metal: 'silver-925', stoneCount: 10, stoneSizeMm: 1.5, sizeMm: 20, finish: 'polished', quantity: 1 } }).returning()
+    await db.insert(schema.operations).values(steps.map((st) => {
+      const day = Math.floor(r() * 20)
+      const start = from.add(Math.floor(day / 5) * 7 + (day % 5), 'day').hour(9).minute(Math.floor(r() * 420))
+      return { jobBagId: b!.id, seq: st.seq, key: st.key, kindId: st.kindId, name: st.name, estimateMinutes: 45, after: st.after, status: 'pending',
+        plannedBenchId: benches[Math.floor(r() * benches.length)]!.id, plannedPersonId: people[Math.floor(r() * people.length)]!.id,
+        plannedStart: start.toISOString(), plannedEnd: start.add(45, 'minute').toISOString() }
+    }))
+    have += steps.length
+  }
+  await pool.end()
+}

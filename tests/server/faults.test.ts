@@ -1,4 +1,4 @@
-// Faults: the app killed mid-write and PostgreSQL killed under load lose nothing acknowledged, and the app answers 503 meanwhile.
+// Faults: the app killed mid-write and PostgreSQL killed under load lose nothing acknowledged (orders, time records), and the app answers 503 meanwhile.
 import { spawn, type ChildProcess } from 'node:child_process'
 import { randomBytes } from 'node:crypto'
 import { readFileSync, rmSync } from 'node:fs'
@@ -43,22 +43,42 @@ async function session(email: string) {
   return { cookie, csrf: body.csrfToken }
 }
 
-/** 20 writers taking orders (each with a job bag and its operations) until stopped; returns what was acknowledged. */
-function writers(sessions: { cookie: string; csrf: string }[], customerId: number, templateId: number, tag: string) {
+/** Ids the writers need: a customer, a routing, and an operation with a person to book time to. */
+async function writeTargets(cookie: string) {
+  const get = async (path: string) => (await fetch(`${base}/api${path}`, { headers: { cookie } })).json() as Promise<any>
+  const customers = await get('/customers')
+  const templates = await get('/templates')
+  const people = await get('/people')
+  const orders = await get('/orders?status=open')
+  const order = await get(`/orders/${orders.items[0].id}`)
+  return { customerId: customers.items[0].id as number, template: templates[0] as { id: number; steps: unknown[] }, personId: people[0].id as number, operationId: order.jobBags[0].operations[0].id as number }
+}
+
+/** 20 writers, each alternating an order (with its job bag and operations) and a time record, until stopped. */
+function writers(sessions: { cookie: string; csrf: string }[], t: Awaited<ReturnType<typeof writeTargets>>, tag: string) {
   let running = true
   const acked: string[] = []
+  const ackedRecords: string[] = []
   const work = sessions.map(async (s, i) => {
     for (let n = 0; running; n++) {
       const title = `${tag}-${i}-${n}`
+      const headers = { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf }
       try {
-        const r = await fetch(`${base}/api/orders`, { method: 'POST', headers: { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf },
-          body: JSON.stringify({ customerId, title, dueDate: '2030-06-01', pieces: [{ templateId, piece: title }] }) })
-        if (r.status === 201) acked.push(title)
-        else await r.text()
+        if (n % 2 === 0) {
+          const r = await fetch(`${base}/api/orders`, { method: 'POST', headers, body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ templateId: t.template.id, piece: title }] }) })
+          if (r.status === 201) acked.push(title)
+          else await r.text()
+        } else {
+          const startedAt = new Date(Date.now() - 3_600_000 - n * 60_000).toISOString()
+          const r = await fetch(`${base}/api/operations/${t.operationId}/time-records`, { method: 'POST', headers,
+            body: JSON.stringify({ personId: t.personId, startedAt, endedAt: new Date(Date.parse(startedAt) + 30 * 60_000).toISOString(), reason: title }) })
+          if (r.status === 201) ackedRecords.push(title)
+          else await r.text()
+        }
       } catch { await new Promise((r) => setTimeout(r, 20)) }
     }
   })
-  return { acked, stop: async () => { running = false; await Promise.all(work) } }
+  return { acked, ackedRecords, stop: async () => { running = false; await Promise.all(work) } }
 }
 
 async function dbCheck(tag: string) {
@@ -66,8 +86,10 @@ async function dbCheck(tag: string) {
   await c.connect()
   const orders = await c.query(`select o.title, (select count(*)::int from job_bags b where b.order_id = o.id) as bags,
     (select count(*)::int from operations op join job_bags b on b.id = op.job_bag_id where b.order_id = o.id) as ops from orders o where o.title like $1`, [`${tag}-%`])
+  // A time record and its "added by hand" entry are written together or not at all.
+  const records = await c.query(`select k.reason, count(r.id)::int as records from time_record_corrections k left join time_records r on r.id = k.time_record_id where k.reason like $1 group by k.id, k.reason`, [`${tag}-%`])
   await c.end()
-  return orders.rows as { title: string; bags: number; ops: number }[]
+  return Object.assign(orders.rows as { title: string; bags: number; ops: number }[], { records: records.rows as { reason: string; records: number }[] })
 }
 
 let app: ChildProcess | null = null
@@ -81,10 +103,9 @@ describe('faults', () => {
   it('when the app is killed while 20 clients write, then after a restart every acknowledged write is there once, whole, and sessions survive', async () => {
     app = await startApp()
     const sessions = await Promise.all(Array.from({ length: 20 }, () => session('manager@wrenfield.test')))
-    const customers = (await (await fetch(`${base}/api/customers`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { items: { id: number }[] }
-    const templates = (await (await fetch(`${base}/api/templates`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { id: number; steps: unknown[] }[]
-    const tpl = templates[0]!
-    const w = writers(sessions, customers.items[0]!.id, tpl.id, 'kill-app')
+    const targets = await writeTargets(sessions[0]!.cookie)
+    const tpl = targets.template
+    const w = writers(sessions, targets, 'kill-app')
     await new Promise((r) => setTimeout(r, 2500))
     killGroup(app, 'SIGKILL')
     await w.stop()
@@ -95,6 +116,10 @@ describe('faults', () => {
     for (const t of w.acked) expect(titles.filter((x) => x === t)).toHaveLength(1)
     // No half-written order: each has its job bag and all its operations (one transaction).
     for (const r of rows) expect(r).toMatchObject({ bags: 1, ops: tpl.steps.length })
+    expect(w.ackedRecords.length).toBeGreaterThan(5)
+    const reasons = rows.records.map((r) => r.reason)
+    for (const t of w.ackedRecords) expect(reasons.filter((x) => x === t)).toHaveLength(1)
+    for (const r of rows.records) expect(r.records).toBe(1)
     const me = (await (await fetch(`${base}/api/session`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { user: { role: string } | null }
     expect(me.user?.role).toBe('manager')
   })
@@ -102,9 +127,7 @@ describe('faults', () => {
   it('when PostgreSQL is killed under load, then the app answers 503 with a message, reconnects when it is back, and loses nothing acknowledged', async () => {
     expect(app).not.toBeNull()
     const sessions = await Promise.all(Array.from({ length: 20 }, () => session('manager@wrenfield.test')))
-    const customers = (await (await fetch(`${base}/api/customers`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { items: { id: number }[] }
-    const templates = (await (await fetch(`${base}/api/templates`, { headers: { cookie: sessions[0]!.cookie } })).json()) as { id: number; steps: unknown[] }[]
-    const w = writers(sessions, customers.items[0]!.id, templates[0]!.id, 'kill-db')
+    const w = writers(sessions, await writeTargets(sessions[0]!.cookie), 'kill-db')
     await new Promise((r) => setTimeout(r, 1500))
     const pid = Number(readFileSync(join(dataDir, 'pg', 'postmaster.pid'), 'utf8').split('\n')[0])
     process.kill(pid, 'SIGKILL')
@@ -138,6 +161,9 @@ describe('faults', () => {
     const titles = rows.map((r) => r.title)
     for (const t of w.acked) expect(titles.filter((x) => x === t)).toHaveLength(1)
     for (const r of rows) expect(r.bags).toBe(1)
+    const reasons = rows.records.map((r) => r.reason)
+    for (const t of w.ackedRecords) expect(reasons.filter((x) => x === t)).toHaveLength(1)
+    for (const r of rows.records) expect(r.records).toBe(1)
     // Ctrl-C: app and database stop.
     const exited = new Promise((r) => app!.once('exit', r))
     killGroup(app!, 'SIGINT')

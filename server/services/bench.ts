@@ -100,6 +100,18 @@ async function pendingReason(tx: Tx, op: OpRow) {
   return new AppError({ code: 'unprocessable', message: `${label(op)} is not ready: ${names || 'an earlier step'} must be finished first`, details: { waitingFor: open.map((p) => p.key) } })
 }
 
+/** A step waits out its predecessors' wait-after (pickle, glue cure) before anyone takes it up. */
+async function requireRested(tx: Tx, op: OpRow, now: Date) {
+  if (!op.after.length) return
+  const preds = await tx.select({ name: operations.name, finishedAt: operations.finishedAt, waitAfter: operations.waitAfterMinutes }).from(operations)
+    .where(and(eq(operations.jobBagId, op.jobBagId), inArray(operations.key, op.after)))
+  for (const p of preds) {
+    if (!p.finishedAt || p.waitAfter <= 0) continue
+    const left = Math.ceil((new Date(p.finishedAt).getTime() + p.waitAfter * 60_000 - now.getTime()) / 60_000)
+    if (left > 0) throw new AppError({ code: 'unprocessable', message: `${label(op)} can start in ${left} min: “${p.name}” has a ${p.waitAfter} min wait after it`, details: { waitMinutesLeft: left } })
+  }
+}
+
 /** The one who holds the operation must be the one acting (a manager may act on their behalf). */
 async function holderFor(tx: Tx, actor: Actor, op: OpRow, personId: number | undefined): Promise<Person> {
   if (STAFF.includes(actor.role) && personId === undefined && op.claimedBy !== null && op.claimedBy !== actor.personId) return { id: op.claimedBy, name: op.claimedByName ?? '' }
@@ -191,9 +203,10 @@ function requireWorkable(op: OpRow) {
 }
 
 export function claim(deps: Deps, actor: Actor, operationId: number, input: ClaimInput) {
-  return transition(deps, actor, { requestId: input.requestId, action: 'claim', operationId }, async ({ tx, op }) => {
+  return transition(deps, actor, { requestId: input.requestId, action: 'claim', operationId }, async ({ tx, op, now }) => {
     const person = await requirePerson(tx, actor, input.personId)
     if (op.status === 'pending') throw await pendingReason(tx, op)
+    await requireRested(tx, op, now)
     if (!canMoveOperation(op.status, 'claimed')) refuseMove(op, 'claimed', person)
     requireWorkable(op)
     if (op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is outside work; the manager sends it out and books it back` })
@@ -318,6 +331,8 @@ export async function nextForMe(db: Db, actor: Actor, q: { benchId: number; pers
     .where(and(
       eq(jobBags.workshopId, actor.workshopId), eq(operations.status, 'ready'), eq(operationKinds.outside, false),
       sql`${jobBags.status} not in ('on-hold', 'cancelled', 'complete')`, sql`${orders.status} not in ('cancelled', 'collected', 'quoted')`,
+      // Not while a predecessor's wait-after (pickle, cure) is still running.
+      sql`not exists (select 1 from operations p where p.job_bag_id = ${operations.jobBagId} and p.key = any(${operations.after}) and p.finished_at is not null and p.finished_at + p.wait_after_minutes * interval '1 minute' > now())`,
     ))
     .orderBy(sql`${operations.plannedStart} asc nulls last`, asc(orders.dueDate), desc(orders.priority), asc(jobBags.number), asc(operations.seq))
     .limit(50)

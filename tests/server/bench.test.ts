@@ -34,6 +34,25 @@ const records = async (operationId: number) =>
 const opRow = async (id: number) => (await t.pool.query('select * from operations where id = $1', [id])).rows[0]
 
 describe('next for me', () => {
+  it('when a predecessor has just finished and its wait-after is still running, then the step is not offered and cannot be taken yet', async () => {
+    // Pavé pendant: "File and emery" follows "Solder bail", which has a 20 min pickle wait after it (seeded routing).
+    const file = (await openOps(t, 'filing', { key: 'file', status: 'pending' })).find(Boolean)!
+    await makeReady(t, file.id)
+    const { rows: [solder] } = await t.pool.query(`select id, wait_after_minutes from operations where job_bag_id = $1 and key = 'solder'`, [file.job_bag_id])
+    expect(solder.wait_after_minutes).toBeGreaterThan(0)
+    await t.pool.query(`update operations set finished_at = now() where id = $1`, [solder.id])
+    const next = await trainee.get(`/api/bench/next?benchId=${fab1}`)
+    expect(next.status).toBe(200)
+    expect(next.body.items.map((i: { id: number }) => i.id)).not.toContain(file.id)
+    const r = await trainee.post(`/api/bench/operations/${file.id}/claim`, { requestId: rid(), benchId: fab1 })
+    expect(r.status).toBe(422)
+    expect(r.body.error).toMatch(/can start in \d+ min: “Solder bail” has a 20 min wait after it/)
+    // Once the wait is over, it is offered again.
+    await t.pool.query(`update operations set finished_at = now() - interval '1 hour' where id = $1`, [solder.id])
+    const later = await trainee.get(`/api/bench/next?benchId=${fab1}`)
+    expect(later.body.items.map((i: { id: number }) => i.id)).toContain(file.id)
+  })
+
   it('when setting steps are ready, then the setter sees them at a setting bench in plan order (due date, then priority, then number), the trainee does not see level-2 steps', async () => {
     const sets = (await openOps(t, 'setting', { key: 'set' })).slice(0, 3)
     for (const s of sets) await makeReady(t, s.id)

@@ -5,7 +5,7 @@ import { readFileSync, rmSync } from 'node:fs'
 import { join, resolve } from 'node:path'
 import pg from 'pg'
 import { afterAll, describe, expect, it } from 'vitest'
-import { DEMO_PASSWORD } from '../../server/db/seed'
+import { httpSignIn } from '../setup/app'
 import { startCluster, stopCluster } from '../../scripts/pg'
 
 const root = resolve(import.meta.dirname, '../..')
@@ -31,17 +31,6 @@ function startApp(): Promise<ChildProcess> {
   })
 }
 const killGroup = (c: ChildProcess, sig: NodeJS.Signals) => { try { process.kill(-c.pid!, sig) } catch { /* gone */ } }
-
-async function session(email: string) {
-  let cookie = ''
-  const keep = (r: Response) => { const c = r.headers.get('set-cookie'); if (c) cookie = c.split(';')[0]! }
-  const a = await fetch(`${base}/api/session`); keep(a)
-  const { csrfToken } = (await a.json()) as { csrfToken: string }
-  const b = await fetch(`${base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) })
-  keep(b)
-  const body = (await b.json()) as { csrfToken: string }
-  return { cookie, csrf: body.csrfToken }
-}
 
 /** Ids the writers need: a customer, a routing, and an operation with a person to book time to. */
 async function writeTargets(cookie: string) {
@@ -102,7 +91,7 @@ afterAll(async () => {
 describe('faults', () => {
   it('when the app is killed while 20 clients write, then after a restart every acknowledged write is there once, whole, and sessions survive', async () => {
     app = await startApp()
-    const sessions = await Promise.all(Array.from({ length: 20 }, () => session('manager@wrenfield.test')))
+    const sessions = await Promise.all(Array.from({ length: 20 }, () => httpSignIn(base, 'manager')))
     const targets = await writeTargets(sessions[0]!.cookie)
     const tpl = targets.template
     const w = writers(sessions, targets, 'kill-app')
@@ -126,7 +115,7 @@ describe('faults', () => {
 
   it('when PostgreSQL is killed under load, then the app answers 503 with a message, reconnects when it is back, and loses nothing acknowledged', async () => {
     expect(app).not.toBeNull()
-    const sessions = await Promise.all(Array.from({ length: 20 }, () => session('manager@wrenfield.test')))
+    const sessions = await Promise.all(Array.from({ length: 20 }, () => httpSignIn(base, 'manager')))
     const w = writers(sessions, await writeTargets(sessions[0]!.cookie), 'kill-db')
     await new Promise((r) => setTimeout(r, 1500))
     const pid = Number(readFileSync(join(dataDir, 'pg', 'postmaster.pid'), 'utf8').split('\n')[0])

@@ -292,12 +292,13 @@ export function finish(deps: Deps, actor: Actor, operationId: number, input: Fin
 
 /** Outside work (casting, hallmarking): a manager sends it out… */
 export function sendOut(deps: Deps, actor: Actor, operationId: number, input: OutsideInput) {
-  return transition(deps, actor, { requestId: input.requestId, action: 'send-out', operationId }, async ({ tx, op }) => {
+  return transition(deps, actor, { requestId: input.requestId, action: 'send-out', operationId }, async ({ tx, op, now }) => {
     if (!op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is bench work; it is claimed at a bench` })
     if (op.status === 'pending') throw await pendingReason(tx, op)
     if (op.status !== 'ready') refuseMove(op, 'running', null)
     requireWorkable(op)
-    await move(tx, op, 'running')
+    // The day it left counts for the planner: its working days away run from here.
+    await move(tx, op, 'running', { plannedStart: now.toISOString(), plannedBenchId: null, plannedPersonId: null })
     await audit(tx, actor, 'send-out', 'operation', op.id, { from: op.status, to: 'running', note: input.note, jobBagId: op.jobBagId })
     return { status: 'running' }
   })

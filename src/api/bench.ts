@@ -20,3 +20,7 @@ export function newRequestId(): string {
   const h = [...b].map((x) => x.toString(16).padStart(2, '0')).join('')
   return `${h.slice(0, 8)}-${h.slice(8, 12)}-${h.slice(12, 16)}-${h.slice(16, 20)}-${h.slice(20)}`
 }
+
+/** Outside work (casting, hallmarking): the office sends it out and books it back. */
+export const sendOut = (operationId: number, note = '') => api.post<TransitionResult>(`/operations/${operationId}/send-out`, { requestId: newRequestId(), note })
+export const bookBack = (operationId: number, note = '') => api.post<TransitionResult>(`/operations/${operationId}/receive`, { requestId: newRequestId(), note })

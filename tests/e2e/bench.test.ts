@@ -25,7 +25,7 @@ async function makeReady(operationId: number) {
     seen.add(p.id)
     stack.push(...p.after)
   }
-  await q(`update operations set status = 'done', finished_at = now() where id = any($1::int[])`, [[...seen]])
+  await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where id = any($1::int[])`, [[...seen]])
   await q(`update operations set status = 'ready' where id = $1`, [operationId])
 }
 

@@ -420,6 +420,14 @@ describe('acting on behalf and outside work', () => {
     const out = await manager.post(`/api/operations/${hm.id}/send-out`, { requestId: rid(), note: 'to the assay office' })
     expect(out.status, JSON.stringify(out.body)).toBe(200)
     expect(out.body.operation.status).toBe('running')
+    // The planner keeps it away from the moment it left, for its working days.
+    const sent = await opRow(hm.id)
+    expect(Math.abs(new Date(sent.planned_start).getTime() - Date.now())).toBeLessThan(60_000)
+    const { loadPlanningData } = await import('../../server/services/planning/problem')
+    const data = await loadPlanningData(t.db, 1, new Date())
+    const away = data.problem.operations.find((o) => o.id === String(hm.id))!
+    expect(away.fixed?.start).toBe(data.clock.toMinute(sent.planned_start))
+    expect(away.outsideWorkingDays).toBeGreaterThan(0)
     const back = await manager.post(`/api/operations/${hm.id}/receive`, { requestId: rid() })
     expect(back.body.operation.status).toBe('done')
     expect(back.body.readied.length).toBeGreaterThan(0)

@@ -110,7 +110,9 @@ export async function loadPlanningData(db: Db, workshopId: number, now: Date): P
       continue
     }
     if (op.leadDays > 0 || kind.outside) {
-      engineOps.push({ ...base, outsideWorkingDays: Math.max(1, op.leadDays), ...(op.pinned && op.plannedStart ? { fixed: { benchId: null, personId: null, start: clock.toMinute(op.plannedStart) } } : {}) })
+      // Sent out (running) or pinned: away from the day it left (or is pinned to leave).
+      const away = (op.status === 'running' || op.pinned) && op.plannedStart ? { fixed: { benchId: null, personId: null, start: clock.toMinute(op.plannedStart) } } : {}
+      engineOps.push({ ...base, outsideWorkingDays: Math.max(1, op.leadDays), ...away })
       continue
     }
     const records = openRecords.filter((r) => r.operationId === op.id)

@@ -43,6 +43,7 @@ export const insightRoutes = [
       return query.format === 'csv' ? insights.sendCsv(res, 'job-costing', insights.costingCsv(t)) : t
     },
   }),
+  route({ method: 'get', path: '/insights/outside-costs', roles: OWNER, summary: 'Outside-work steps of the routings with their expected cost per unit (owner)', handler: ({ deps, actor }) => insights.listStepCosts(deps.db, actor.workshopId) }),
   route({ method: 'put', path: '/insights/templates/:id/outside-cost', roles: OWNER, summary: 'Expected outside cost per unit of a template step (owner)', params: idParam, body: stepCostInput, handler: ({ deps, actor, params, body }) => insights.setStepCost(deps, actor, params.id, body.stepKey, body.outsideCost) }),
   route({ method: 'put', path: '/insights/operations/:id/outside-cost', roles: OWNER, summary: 'Invoiced outside cost of an operation (owner)', params: idParam, body: operationCostInput, handler: ({ deps, actor, params, body }) => insights.setOperationCost(deps, actor, params.id, body.outsideCost) }),
 

@@ -1,10 +1,10 @@
 // The owner's figures: estimated against actual hours by kind, person, routing, order and month; drill-down; job costing; CSV.
-import { and, eq, inArray } from 'drizzle-orm'
+import { and, asc, eq, inArray, sql } from 'drizzle-orm'
 import type {
   BiasTrend, ComparisonRow, ComparisonTable, CostingRow, CostingTable, DrillDown, Grouping, InsightFilter, ScatterPoint,
 } from '../../shared/schemas/insights'
 import type { Db } from '../db/client'
-import { customers, jobBags, operationCosts, operationKinds, operations, orders, people, routingTemplates, templateStepCosts } from '../db/schema/index'
+import { customers, jobBags, operationCosts, operationKinds, operations, orders, people, routingTemplates, templateStepCosts, templateSteps } from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
@@ -175,6 +175,19 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
       marginPctAtEstimate: price > 0 ? r1(((price - costEst) / price) * 100) : null, marginPctAtActual: price > 0 ? r1(((price - costAct) / price) * 100) : null,
     },
   }
+}
+
+/** Every outside-work step of the workshop's routings with its expected cost per unit (null: not set). */
+export async function listStepCosts(db: Db, workshopId: number) {
+  const rows = await db
+    .select({ templateId: routingTemplates.id, templateName: routingTemplates.name, stepKey: templateSteps.key, stepName: templateSteps.name, leadDays: templateSteps.leadDays, outsideCost: templateStepCosts.outsideCost })
+    .from(templateSteps)
+    .innerJoin(routingTemplates, eq(routingTemplates.id, templateSteps.templateId))
+    .innerJoin(operationKinds, eq(operationKinds.id, templateSteps.kindId))
+    .leftJoin(templateStepCosts, and(eq(templateStepCosts.templateId, templateSteps.templateId), eq(templateStepCosts.stepKey, templateSteps.key)))
+    .where(and(eq(routingTemplates.workshopId, workshopId), sql`(${templateSteps.leadDays} > 0 or ${operationKinds.outside})`))
+    .orderBy(asc(routingTemplates.name), asc(templateSteps.seq))
+  return rows.map((r) => ({ ...r, outsideCost: r.outsideCost ?? null }))
 }
 
 /** The owner sets the expected outside cost (per unit) of a template step. */

@@ -26,3 +26,7 @@ export function csvUrl(path: '/insights/comparison' | '/insights/costing' | '/in
 export const comparisonCsvUrl = (groupBy: Grouping, f: InsightFilter) => csvUrl('/insights/comparison', { groupBy, ...q(f) })
 export const costingCsvUrl = (f: InsightFilter) => csvUrl('/insights/costing', q(f))
 export const drillCsvUrl = (groupBy: Grouping, key: string, f: InsightFilter) => csvUrl('/insights/records', { groupBy, key, ...q(f) })
+
+export interface StepCost { templateId: number; templateName: string; stepKey: string; stepName: string; leadDays: number; outsideCost: number | null }
+export const getStepCosts = () => api.get<StepCost[]>('/insights/outside-costs')
+export const setStepCost = (templateId: number, stepKey: string, outsideCost: number | null) => api.put<{ templateId: number; stepKey: string; outsideCost: number | null }>(`/insights/templates/${templateId}/outside-cost`, { stepKey, outsideCost })

@@ -105,6 +105,7 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   'GET /insights/scatter': OWNER,
   'GET /insights/bias-trend': OWNER,
   'GET /insights/costing': OWNER,
+  'GET /insights/outside-costs': OWNER,
   'PUT /insights/templates/:id/outside-cost': OWNER,
   'PUT /insights/operations/:id/outside-cost': OWNER,
   'GET /estimates/learned': OWNER,

@@ -274,3 +274,19 @@ describe('access', () => {
     expect(m.body.total).toMatchObject({ n: 4, estimateHours: 4, actualHours: 4.07 })
   })
 })
+
+describe('outside work costs', () => {
+  it('when the owner lists and sets an outside step cost, then it is kept per routing step and audited; others are refused', async () => {
+    const owner = await signedIn(t.app, 'owner')
+    const list = await owner.get('/api/insights/outside-costs')
+    expect(list.status).toBe(200)
+    const hallmark = list.body.find((r: { stepName: string }) => /Hallmark/.test(r.stepName))
+    expect(hallmark).toMatchObject({ leadDays: expect.any(Number), outsideCost: null })
+    const put = await owner.put(`/api/insights/templates/${hallmark.templateId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCost: 12.5 })
+    expect(put.status).toBe(200)
+    const again = (await owner.get('/api/insights/outside-costs')).body.find((r: { templateId: number; stepKey: string }) => r.templateId === hallmark.templateId && r.stepKey === hallmark.stepKey)
+    expect(again.outsideCost).toBe(12.5)
+    const manager = await signedIn(t.app, 'manager')
+    expect((await manager.get('/api/insights/outside-costs')).status).toBe(403)
+  })
+})

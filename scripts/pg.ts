@@ -109,9 +109,17 @@ export async function startCluster(o: ClusterOptions): Promise<void> {
       `-k ${socketDir}`,
       ...(o.durable ? ['-c fsync=on', '-c synchronous_commit=on'] : ['-c fsync=off', '-c synchronous_commit=off', '-c full_page_writes=off']),
     ].join(' ')
-    const r = pg('pg_ctl', ['-D', dataDir, '-l', join(dataDir, 'server.log'), '-w', '-t', '60', '-o', settings, 'start'], { allowFail: true })
-    if (!r.ok) {
+    // After a crash the old server's processes may take a moment to go (they hold its shared memory): try again a few times.
+    for (let attempt = 1; ; attempt++) {
+      const r = pg('pg_ctl', ['-D', dataDir, '-l', join(dataDir, 'server.log'), '-w', '-t', '60', '-o', settings, 'start'], { allowFail: true })
+      if (r.ok) break
       const log = existsSync(join(dataDir, 'server.log')) ? readFileSync(join(dataDir, 'server.log'), 'utf8').split('\n').slice(-15).join('\n') : ''
+      if (attempt < 10 && /shared memory block is still in use|lock file .* already exists/.test(log)) {
+        console.log('[db] the previous server is still going away; trying again shortly')
+        runningPostmaster(dataDir)
+        await new Promise((res) => setTimeout(res, 1000))
+        continue
+      }
       throw new Error(`PostgreSQL did not start:\n${r.out}\n${log}`)
     }
   }

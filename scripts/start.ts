@@ -49,7 +49,8 @@ async function stop() {
   if (stopping) return
   stopping = true
   console.log('\n[stop] closing the app…')
-  await server.close().catch(() => {})
+  // Whatever happens, the database is stopped cleanly within a few seconds.
+  await Promise.race([server.close().catch(() => {}), new Promise((r) => setTimeout(r, 8000))])
   await mailbox?.close().catch(() => {})
   await mailDb?.pool.end().catch(() => {})
   console.log('[stop] stopping PostgreSQL…')

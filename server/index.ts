@@ -31,8 +31,11 @@ export async function startServer(config: Config) {
       digest.stop()
       deps.mailer?.close()
       io.close()
+      // Requests in flight get a few seconds to finish; then remaining connections are cut so shutdown never hangs.
+      const cut = setTimeout(() => http.closeAllConnections(), 3000)
       await new Promise<void>((r) => http.close(() => r()))
-      await pool.end()
+      clearTimeout(cut)
+      await Promise.race([pool.end(), new Promise((r) => setTimeout(r, 3000))])
     },
   }
 }

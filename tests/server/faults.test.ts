@@ -54,12 +54,12 @@ function writers(sessions: { cookie: string; csrf: string }[], t: Awaited<Return
       const headers = { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf }
       try {
         if (n % 2 === 0) {
-          const r = await fetch(`${base}/api/orders`, { method: 'POST', headers, body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ templateId: t.template.id, piece: title }] }) })
+          const r = await fetch(`${base}/api/orders`, { method: 'POST', headers, signal: AbortSignal.timeout(15_000), body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ templateId: t.template.id, piece: title }] }) })
           if (r.status === 201) acked.push(title)
           else await r.text()
         } else {
           const startedAt = new Date(Date.now() - 3_600_000 - n * 60_000).toISOString()
-          const r = await fetch(`${base}/api/operations/${t.operationId}/time-records`, { method: 'POST', headers,
+          const r = await fetch(`${base}/api/operations/${t.operationId}/time-records`, { method: 'POST', headers, signal: AbortSignal.timeout(15_000),
             body: JSON.stringify({ personId: t.personId, startedAt, endedAt: new Date(Date.parse(startedAt) + 30 * 60_000).toISOString(), reason: title }) })
           if (r.status === 201) ackedRecords.push(title)
           else await r.text()
@@ -88,7 +88,8 @@ afterAll(async () => {
   rmSync(dataDir, { recursive: true, force: true })
 })
 
-describe('faults', () => {
+// Whole-process tests: each starts the app and PostgreSQL, so they get more time than API tests on a busy machine.
+describe('faults', { timeout: 180_000 }, () => {
   it('when the app is killed while 20 clients write, then after a restart every acknowledged write is there once, whole, and sessions survive', async () => {
     app = await startApp()
     const sessions = await Promise.all(Array.from({ length: 20 }, () => httpSignIn(base, 'manager')))
@@ -115,16 +116,20 @@ describe('faults', () => {
 
   it('when PostgreSQL is killed under load, then the app answers 503 with a message, reconnects when it is back, and loses nothing acknowledged', async () => {
     expect(app).not.toBeNull()
+    const t0 = Date.now()
+    const step = (what: string) => console.error(`[faults] ${((Date.now() - t0) / 1000).toFixed(1)} s ${what}`)
     const sessions = await Promise.all(Array.from({ length: 20 }, () => httpSignIn(base, 'manager')))
+    step('signed in')
     const w = writers(sessions, await writeTargets(sessions[0]!.cookie), 'kill-db')
     await new Promise((r) => setTimeout(r, 1500))
     const pid = Number(readFileSync(join(dataDir, 'pg', 'postmaster.pid'), 'utf8').split('\n')[0])
     process.kill(pid, 'SIGKILL')
+    step('postmaster killed')
     // Backends notice the postmaster's death within moments; from then on every answer is a 503.
     // (A keep-alive connection the server closes while it notices may reset once: ask again.)
     const ask = async (path: string) => {
       for (let i = 0; i < 5; i++) {
-        try { return await fetch(`${base}${path}`, { headers: { cookie: sessions[0]!.cookie } }) } catch { await new Promise((r) => setTimeout(r, 100)) }
+        try { return await fetch(`${base}${path}`, { headers: { cookie: sessions[0]!.cookie }, signal: AbortSignal.timeout(15_000) }) } catch { await new Promise((r) => setTimeout(r, 100)) }
       }
       throw new Error(`no answer from ${path}`)
     }
@@ -136,16 +141,20 @@ describe('faults', () => {
     expect(down.status).toBe(503)
     expect(((await down.json()) as { error: string }).error).toMatch(/database is not reachable/)
     expect((await ask('/api/health')).status).toBe(503)
+    step('503 seen')
     await w.stop()
+    step('writers stopped')
     // Back up (as the start script would on its next start); the running app reconnects by itself.
     await startCluster({ dataDir: join(dataDir, 'pg'), port: pgPort, durable: true })
+    step('database back')
     let ok = 0
     for (let i = 0; i < 50 && ok === 0; i++) {
-      const r = await fetch(`${base}/api/orders`, { headers: { cookie: sessions[0]!.cookie } })
-      if (r.status === 200) ok++
+      const r = await fetch(`${base}/api/orders`, { headers: { cookie: sessions[0]!.cookie }, signal: AbortSignal.timeout(15_000) }).catch(() => null)
+      if (r?.status === 200) ok++
       else await new Promise((res) => setTimeout(res, 200))
     }
     expect(ok).toBe(1)
+    step('app answers again')
     const rows = await dbCheck('kill-db')
     const titles = rows.map((r) => r.title)
     for (const t of w.acked) expect(titles.filter((x) => x === t)).toHaveLength(1)
@@ -156,7 +165,9 @@ describe('faults', () => {
     // Ctrl-C: app and database stop.
     const exited = new Promise((r) => app!.once('exit', r))
     killGroup(app!, 'SIGINT')
+    step('stopping')
     await exited
+    step('stopped')
     app = null
     await new Promise((r) => setTimeout(r, 500))
     const c = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${pgPort}/millgrain` })

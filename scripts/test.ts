@@ -26,10 +26,11 @@ if (!process.env.SKIP_BUILD) {
 }
 
 const args = process.argv.slice(2)
-const r = spawnSync(join(root, 'node_modules/.bin/vitest'), ['run', ...args], {
-  cwd: root,
-  stdio: 'inherit',
-  env: { ...process.env, TEST_PG_PORT: String(test.pgPort), TEST_DATABASE_TEMPLATE: test.dbName, NODE_ENV: 'test' },
-})
+const env = { ...process.env, TEST_PG_PORT: String(test.pgPort), TEST_DATABASE_TEMPLATE: test.dbName, NODE_ENV: 'test' }
+const vitest = (a: string[]) => spawnSync(join(root, 'node_modules/.bin/vitest'), ['run', ...a], { cwd: root, stdio: 'inherit', env }).status ?? 1
+// With no arguments: everything, the browser flows after the rest so they do not compete for the two cores.
+const status = args.length
+  ? vitest(args)
+  : Math.max(vitest(['--project', 'unit', '--project', 'server', '--project', 'client']), vitest(['--project', 'e2e']))
 if (!process.env.KEEP_TEST_DB) stopCluster(test.pgDir)
-process.exit(r.status ?? 1)
+process.exit(status)

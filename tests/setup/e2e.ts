@@ -82,7 +82,7 @@ export async function screenshot(page: Page, name: string, o: { fullPage?: boole
   mkdirSync(SCREENSHOT_DIR, { recursive: true })
   const path = join(SCREENSHOT_DIR, `${name}.png`)
   await page.waitForLoadState('networkidle').catch(() => undefined)
-  await page.screenshot({ path, fullPage: o.fullPage ?? true, animations: 'disabled' })
+  await page.screenshot({ path, fullPage: o.fullPage ?? true, animations: 'disabled', timeout: 90_000 })
   return path
 }
 

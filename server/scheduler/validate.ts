@@ -6,6 +6,8 @@ interface Context {
   plan: Plan
   ops: Map<string, Operation>
   planned: Map<string, PlannedOperation>
+  benches: Map<string, Problem['benches'][number]>
+  people: Map<string, Problem['people'][number]>
 }
 
 type Rule = (ctx: Context) => Violation[]
@@ -91,10 +93,8 @@ const segmentsAddUp: Rule = ({ plan, ops }) => {
 }
 
 /** Bench and person are both at work during every segment (same time, same bench, same person). */
-const benchAndPersonAvailableTogether: Rule = ({ problem, plan, ops }) => {
+const benchAndPersonAvailableTogether: Rule = ({ plan, ops, benches, people }) => {
   const out: Violation[] = []
-  const benches = new Map(problem.benches.map((b) => [b.id, b]))
-  const people = new Map(problem.people.map((x) => [x.id, x]))
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
     if (!op || isOutside(op) || op.fixed) continue
@@ -110,10 +110,8 @@ const benchAndPersonAvailableTogether: Rule = ({ problem, plan, ops }) => {
 }
 
 /** Work stops only when working time ends: between two segments, bench and person are not both available. */
-const resumesAtNextWorkingTime: Rule = ({ problem, plan, ops }) => {
+const resumesAtNextWorkingTime: Rule = ({ plan, ops, benches, people }) => {
   const out: Violation[] = []
-  const benches = new Map(problem.benches.map((b) => [b.id, b]))
-  const people = new Map(problem.people.map((x) => [x.id, x]))
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
     if (!op || isOutside(op) || op.fixed) continue
@@ -256,6 +254,8 @@ export function validatePlan(problem: Problem, plan: Plan): Violation[] {
     plan,
     ops: new Map(problem.operations.map((o) => [o.id, o])),
     planned: new Map(plan.operations.map((p) => [p.operationId, p])),
+    benches: new Map(problem.benches.map((b) => [b.id, b])),
+    people: new Map(problem.people.map((x) => [x.id, x])),
   }
   return PLAN_RULES.flatMap((r) => r.check(ctx))
 }

@@ -31,19 +31,27 @@ const AT_RISK_MINUTES = 8 * 60
  */
 export class BoardCache {
   private readonly entries = new Map<string, { at: number; json: string; gzip: Buffer; etag: string }>()
+  /** Bumped on every change of a workshop: a load that began before the change must not fill the cache after it. */
+  private readonly generation = new Map<string, number>()
   constructor(realtime: Realtime) {
     realtime.onChange((workshopId) => {
+      const w = String(workshopId)
+      this.generation.set(w, (this.generation.get(w) ?? 0) + 1)
       for (const k of this.entries.keys()) if (k.startsWith(`${workshopId}|`)) this.entries.delete(k)
     })
   }
   async get(key: string, load: () => Promise<unknown>): Promise<{ json: string; gzip: Buffer; etag: string }> {
     const hit = this.entries.get(key)
     if (hit && Date.now() - hit.at < 60_000) return hit
+    const w = key.slice(0, key.indexOf('|'))
+    const before = this.generation.get(w) ?? 0
     const json = JSON.stringify(await load())
     // Compressed once here rather than on every answer.
     const entry = { at: Date.now(), json, gzip: gzipSync(json, { level: 6 }), etag: `"${createHash('sha1').update(json).digest('base64url')}"` }
-    this.entries.set(key, entry)
-    if (this.entries.size > 200) this.entries.delete(this.entries.keys().next().value!)
+    if ((this.generation.get(w) ?? 0) === before) {
+      this.entries.set(key, entry)
+      if (this.entries.size > 200) this.entries.delete(this.entries.keys().next().value!)
+    }
     return entry
   }
 }

@@ -28,19 +28,25 @@ export const PROSPECTIVE_JOB = 'prospective'
 
 // Per app (realtime hub) and workshop: the quick plan used when nothing is published, and the duration spreads.
 // Dropped on any change in the workshop, and after CACHE_MS.
-const caches = new WeakMap<Realtime, Map<string, { at: number; value: unknown }>>()
+const caches = new WeakMap<Realtime, { entries: Map<string, { at: number; value: unknown }>; generation: Map<string, number> }>()
 async function cached<T>(realtime: Realtime, key: string, load: () => Promise<T> | T, replace = false): Promise<T> {
-  let m = caches.get(realtime)
-  if (!m) {
-    const fresh = new Map<string, { at: number; value: unknown }>()
-    realtime.onChange((ws) => { for (const k of fresh.keys()) if (k.startsWith(`${ws}|`)) fresh.delete(k) })
+  let c = caches.get(realtime)
+  if (!c) {
+    const fresh = { entries: new Map<string, { at: number; value: unknown }>(), generation: new Map<string, number>() }
+    realtime.onChange((ws) => {
+      fresh.generation.set(String(ws), (fresh.generation.get(String(ws)) ?? 0) + 1)
+      for (const k of fresh.entries.keys()) if (k.startsWith(`${ws}|`)) fresh.entries.delete(k)
+    })
     caches.set(realtime, fresh)
-    m = fresh
+    c = fresh
   }
-  const hit = m.get(key)
+  const hit = c.entries.get(key)
   if (hit && !replace && Date.now() - hit.at < CACHE_MS) return hit.value as T
+  // A load that began before a change must not fill the cache after it.
+  const w = key.slice(0, key.indexOf('|'))
+  const before = c.generation.get(w) ?? 0
   const value = await load()
-  m.set(key, { at: Date.now(), value })
+  if ((c.generation.get(w) ?? 0) === before) c.entries.set(key, { at: Date.now(), value })
   return value
 }
 

@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest'
 import type { BoardData, BoardItem } from '@/api/plans'
 import {
-  OUTSIDE_GROUP, STATE_COLOURS, backgroundsFor, barFor, barState, completionFromMakespan, contrast, dataWindowFor, dayStart, foldedStretches,
+  ORDER_TONES, OUTSIDE_GROUP, STATE_COLOURS, backgroundsFor, orderTone, barFor, barState, completionFromMakespan, contrast, dataWindowFor, dayStart, foldedStretches,
   groupOf, groupsFor, inkOn, isDraggable, moveRequest, outsideWindow, parseInstant, shiftAnchor, visibleWindow,
 } from '@/components/board/board-vis'
 
@@ -48,6 +48,14 @@ describe('bars', () => {
     expect(barState(makeItem({ late: true }))).toBe('late')
     expect(barState(makeItem({ status: 'claimed' }))).toBe('claimed')
     expect(barFor(makeItem({ late: true }), { ...opts, colourBy: 'state' }).style).toContain(STATE_COLOURS.late.bg)
+  })
+  it('when coloured by order, then all steps of one order share a tone and neighbouring orders differ', () => {
+    const a = barFor(makeItem({ id: 1, orderId: 41 }), { ...opts, colourBy: 'order' }).style
+    const b = barFor(makeItem({ id: 2, orderId: 41, kind: 'polishing' }), { ...opts, colourBy: 'order' }).style
+    expect(a).toContain(orderTone(41))
+    expect(b).toContain(orderTone(41))
+    expect(orderTone(42)).not.toBe(orderTone(41))
+    expect(new Set(Array.from({ length: ORDER_TONES.length }, (_, i) => orderTone(100 + i))).size).toBe(ORDER_TONES.length)
   })
   it('when a job is late or at risk, then its bars are outlined', () => {
     expect(barFor(makeItem({ late: true }), opts).className).toContain('board-bar--late-job')

@@ -11,7 +11,7 @@ dayjs.extend(timezone)
 dayjs.extend(isoWeek)
 
 export type RowsBy = 'bench' | 'person'
-export type ColourBy = 'kind' | 'state'
+export type ColourBy = 'kind' | 'state' | 'order'
 export type Zoom = 'day' | 'week' | 'month'
 export type BarState = 'planned' | 'claimed' | 'running' | 'paused' | 'late'
 
@@ -158,6 +158,10 @@ export function contrast(a: string, b: string): number {
   return (hi + 0.05) / (lo + 0.05)
 }
 
+/** Twelve muted tones; every piece of one order shares its order's tone, neighbouring order numbers differ. */
+export const ORDER_TONES = ['#8c5a3c', '#4f6d8a', '#7a8a3e', '#9a4f6b', '#3f7f78', '#a0782c', '#5d5a9a', '#b0613f', '#527a4f', '#7d4f8c', '#3e6f9c', '#8a6b4f']
+export const orderTone = (orderId: number) => ORDER_TONES[((orderId * 7) % ORDER_TONES.length + ORDER_TONES.length) % ORDER_TONES.length]!
+
 /** White or dark ink, whichever reads better on the bar. */
 export function inkOn(bg: string): string {
   return contrast(bg, '#ffffff') >= contrast(bg, '#2a2521') ? '#ffffff' : '#2a2521'
@@ -181,7 +185,7 @@ export function isDraggable(item: Pick<BoardItem, 'status'>, canEdit: boolean): 
 
 export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
   const state = barState(item)
-  const bg = o.colourBy === 'kind' ? item.color : STATE_COLOURS[state].bg
+  const bg = o.colourBy === 'kind' ? item.color : o.colourBy === 'order' ? orderTone(item.orderId) : STATE_COLOURS[state].bg
   const classes = ['board-bar', `board-bar--${state}`]
   if (item.late) classes.push('board-bar--late-job')
   else if (o.jobStates?.get(item.jobBagId) === 'at-risk') classes.push('board-bar--at-risk')

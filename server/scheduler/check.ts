@@ -57,7 +57,10 @@ export function checkProblem(problem: Problem): void {
       if (!pred) throw new SchedulingInputError({ code: 'unknown-predecessor', ...where, message: `Job ${jn}: ${label(op)} waits for unknown operation ${p}` })
       if (pred.jobId !== op.jobId) throw new SchedulingInputError({ code: 'foreign-predecessor', ...where, message: `Job ${jn}: ${label(op)} waits for ${label(pred)} of another job (${jobName(pred.jobId)}); routings stay within one job bag` })
     }
-    if (op.done) continue
+    if (op.done) {
+      if (op.finishedAt !== undefined && !Number.isFinite(op.finishedAt)) throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: finished ${label(op)} has finishedAt ${op.finishedAt}; expected a minute` })
+      continue
+    }
     const outside = op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0
     if (op.outsideWorkingDays !== undefined && (!Number.isInteger(op.outsideWorkingDays) || op.outsideWorkingDays < 0 || op.outsideWorkingDays > MAX_OUTSIDE_DAYS)) {
       throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: ${label(op)} has outside work of ${op.outsideWorkingDays} working days; expected a whole number from 0 to ${MAX_OUTSIDE_DAYS}` })
@@ -139,13 +142,15 @@ export function checkProblem(problem: Problem): void {
     return b && p ? intersect(b, p) : b ?? p ?? [{ start: -1e15, end: 1e15 }]
   }
   for (const op of order) {
-    if (op.done) { finish.set(op.id, -Infinity); continue }
+    if (op.done) { finish.set(op.id, op.finishedAt ?? op.fixed?.end ?? -Infinity); continue }
     const job = jobs.get(op.jobId)!
     let est = Math.max(problem.now, job.release)
     for (const p of op.predecessors) est = Math.max(est, finish.get(p)! + (ops.get(p)!.waitAfter ?? 0))
     let end: number | null
-    if (op.fixed) end = op.fixed.end ?? op.fixed.start + (op.options[0]?.minutes ?? 0)
-    else if (op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0) end = outsideWorkEnd(problem.workshopDays, est, op.outsideWorkingDays)
+    const away = op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0
+    if (op.fixed && away) end = outsideWorkEnd(problem.workshopDays, op.fixed.start, op.outsideWorkingDays!)
+    else if (op.fixed) end = op.fixed.end ?? op.fixed.start + (op.options[0]?.minutes ?? 0)
+    else if (away) end = outsideWorkEnd(problem.workshopDays, est, op.outsideWorkingDays!)
     else {
       end = null
       for (const o of op.options) {

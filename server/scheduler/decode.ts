@@ -18,11 +18,15 @@ export interface Compiled {
   succs: number[][]
   options: CompiledOption[][]
   earliest: Float64Array
+  /** Earliest start allowed by finished predecessors: their finishedAt + waitAfter (-Infinity when none is known). */
+  doneReady: Float64Array
   waitAfter: Float64Array
   outsideDays: Int32Array
   fixedAt: (null | { option: CompiledOption; start: number; end?: number; benchId: string | null; personId: string | null })[]
   /** Option index matching the previous plan's resources, -1 when none. */
   previousOption: Int32Array
+  /** For steps that must finish before a pinned or running step of their job (transitively): that step's start; else Infinity. */
+  pinDeadline: Float64Array
   benchCount: number
   personCount: number
   originWeekday: number
@@ -36,6 +40,7 @@ export function compile(problem: Problem): Compiled {
   const personIdx = new Map(problem.people.map((p, i) => [p.id, i]))
   const jobIdx = new Map(problem.jobs.map((j, i) => [j.id, i]))
   const doneIds = new Set(problem.operations.filter((o) => o.done).map((o) => o.id))
+  const doneFinish = new Map(problem.operations.filter((o) => o.done).map((o) => [o.id, (o.finishedAt ?? o.fixed?.end ?? -Infinity) + (o.waitAfter ?? 0)]))
   const ops = problem.operations.filter((o) => !o.done)
   const n = ops.length
   const opIndex = new Map(ops.map((o, i) => [o.id, i]))
@@ -58,6 +63,7 @@ export function compile(problem: Problem): Compiled {
   const succs: number[][] = ops.map(() => [])
   const options: CompiledOption[][] = []
   const earliest = new Float64Array(n)
+  const doneReady = new Float64Array(n).fill(-Infinity)
   const waitAfter = new Float64Array(n)
   const outsideDays = new Int32Array(n).fill(-1)
   const fixedAt: Compiled['fixedAt'] = []
@@ -68,6 +74,8 @@ export function compile(problem: Problem): Compiled {
     const job = problem.jobs[j]!
     earliest[i] = Math.max(problem.now, job.release)
     waitAfter[i] = op.waitAfter ?? 0
+    for (const p of op.predecessors) { const r = doneFinish.get(p); if (r !== undefined && r > doneReady[i]!) doneReady[i] = r }
+    if (doneReady[i]! > earliest[i]!) earliest[i] = doneReady[i]!
     preds.push(op.predecessors.filter((p) => !doneIds.has(p)).map((p) => opIndex.get(p)!).filter((p) => p !== undefined))
     for (const p of preds[i]!) succs[p]!.push(i)
     if (op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0) outsideDays[i] = op.outsideWorkingDays
@@ -88,8 +96,23 @@ export function compile(problem: Problem): Compiled {
     const prev = problem.previous?.[op.id]
     if (prev) previousOption[i] = op.options.findIndex((o) => o.benchId === prev.benchId && o.personId === prev.personId)
   })
+  // Deadlines from pins: every unfinished step before a pinned one must be done (with its wait) by the pin's start.
+  const pinDeadline = new Float64Array(n).fill(Infinity)
+  const stack: number[] = []
+  for (let i = 0; i < n; i++) {
+    const f = fixedAt[i]
+    if (!f) continue
+    for (const p of preds[i]!) stack.push(p, f.start)
+    while (stack.length > 0) {
+      const by = stack.pop()!, x = stack.pop()!
+      if (fixedAt[x]) continue
+      if (pinDeadline[x]! <= by) continue
+      pinDeadline[x] = by
+      for (const p of preds[x]!) stack.push(p, by)
+    }
+  }
   return {
-    problem, n, ops, opIndex, jobs: problem.jobs, jobOf, preds, succs, options, earliest, waitAfter, outsideDays, fixedAt, previousOption,
+    problem, n, ops, opIndex, jobs: problem.jobs, jobOf, preds, succs, options, earliest, doneReady, waitAfter, outsideDays, fixedAt, previousOption, pinDeadline,
     benchCount: problem.benches.length, personCount: problem.people.length, originWeekday: weekdayOf(problem.origin),
   }
 }
@@ -149,6 +172,8 @@ export interface Decoded {
   blocker: Int32Array
   /** Index of the first operation that could not be planned before the horizon, -1 when all fit. */
   overflow: number
+  /** Pinned or running steps that start before an unfinished predecessor (with its wait) is ready: such a plan breaks a rule. */
+  brokenPins: number
   completion: Float64Array
   weightedTardiness: number
   makespan: number
@@ -240,6 +265,15 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
   for (let i = 0; i < n; i++) {
     const f = c.fixedAt[i]
     if (!f) continue
+    if (c.outsideDays[i]! > 0) {
+      // Sent out (or pinned to leave): away for its working days from the day it left, whatever the plan does.
+      const back = outsideWorkEnd(c.problem.workshopDays, f.start, c.outsideDays[i]!)
+      if (back === null && overflow < 0) overflow = i
+      start[i] = f.start; end[i] = back ?? f.start + c.outsideDays[i]! * 1440
+      segments[i] = [{ start: f.start, end: end[i]! }]
+      option[i] = -1; why[i] = Why.Fixed; placed[i] = 1
+      continue
+    }
     const segs = f.end !== undefined ? clipToWindows(f.option.windows, f.start, f.end) : walkWorkingTime(f.option.windows, f.start, f.option.minutes)
     const s = segs && segs.length > 0 ? segs : [{ start: f.start, end: f.end ?? f.start + f.option.minutes }]
     segments[i] = s
@@ -272,6 +306,7 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
     let est = c.problem.now, w: Why = Why.Now, blk = -1
     const rel = c.jobs[c.jobOf[i]!]!.release
     if (rel > est) { est = rel; w = Why.Release }
+    if (c.doneReady[i]! > est) { est = c.doneReady[i]!; w = Why.Predecessor }
     for (const p of c.preds[i]!) {
       const e = end[p]! + c.waitAfter[p]!
       if (e > est) { est = e; w = Why.Predecessor; blk = p }
@@ -319,6 +354,11 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
   // Operations left unplaced sit on a cycle; checkProblem rules that out, so this is defensive.
   for (let i = 0; i < n; i++) if (!placed[i]) { if (overflow < 0) overflow = i; start[i] = end[i] = c.problem.now; segments[i] = [] }
 
+  let brokenPins = 0
+  for (let i = 0; i < n; i++) {
+    if (!c.fixedAt[i]) continue
+    for (const p of c.preds[i]!) if (end[p]! + c.waitAfter[p]! > start[i]!) { brokenPins++; break }
+  }
   const completion = new Float64Array(c.jobs.length).fill(-Infinity)
   let makespan = 0, moves = 0
   for (let i = 0; i < n; i++) {
@@ -331,13 +371,14 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
   c.jobs.forEach((job, j) => {
     if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
   })
-  return { start, end, option, segments, why, blocker, overflow, completion, weightedTardiness, makespan, moves }
+  return { start, end, option, segments, why, blocker, overflow, brokenPins, completion, weightedTardiness, makespan, moves }
 }
 
 /** Lexicographic comparison of two decodes: negative when a is better; overflowing decodes are always worse. */
 export function compareDecoded(a: Decoded, b: Decoded, objective: Objective[]): number {
   const ao = a.overflow >= 0 ? 1 : 0, bo = b.overflow >= 0 ? 1 : 0
   if (ao !== bo) return ao - bo
+  if (a.brokenPins !== b.brokenPins) return a.brokenPins - b.brokenPins
   for (const k of objective) {
     const d = a[k] - b[k]
     if (d !== 0) return d

@@ -34,6 +34,8 @@ export interface Operation {
   fixed?: FixedPlacement
   /** Finished: ignored except as a satisfied predecessor. */
   done?: boolean
+  /** When done work finished (minutes from origin); its waitAfter still holds successors until finishedAt + waitAfter. */
+  finishedAt?: number
 }
 
 /** A job bag; weight is its priority, due null means no due date. */

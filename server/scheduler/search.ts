@@ -56,7 +56,10 @@ function dispatchKeys(c: Compiled): Float64Array[] {
   ]
   return rules.map((rule) => {
     const k = new Float64Array(c.n)
-    for (let i = 0; i < c.n; i++) k[i] = rule(i) + i * 1e-9
+    let low = Infinity
+    for (let i = 0; i < c.n; i++) { k[i] = rule(i) + i * 1e-9; if (k[i]! < low) low = k[i]! }
+    // Work that must be done before a pinned step goes first, earliest pin first, so the pin can hold.
+    for (let i = 0; i < c.n; i++) if (Number.isFinite(c.pinDeadline[i]!)) k[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3 - tail[i]! * 1e-6
     return k
   })
 }

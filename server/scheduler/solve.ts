@@ -114,5 +114,5 @@ function fromShop(c: Compiled, machine: Int32Array, start0: Int32Array, duration
     const j = c.jobOf[i]!
     completion[j] = Math.max(completion[j]!, end[i]!)
   }
-  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, completion, weightedTardiness: 0, makespan, moves: 0 }
+  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, brokenPins: 0, completion, weightedTardiness: 0, makespan, moves: 0 }
 }

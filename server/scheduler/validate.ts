@@ -97,7 +97,7 @@ const benchAndPersonAvailableTogether: Rule = ({ plan, ops, benches, people }) =
   const out: Violation[] = []
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
-    if (!op || isOutside(op) || op.fixed) continue
+    if (!op || isOutside(op)) continue
     for (const s of p.segments) {
       if (s.end <= s.start) continue
       const b = p.benchId !== null ? benches.get(p.benchId) : undefined
@@ -109,18 +109,61 @@ const benchAndPersonAvailableTogether: Rule = ({ plan, ops, benches, people }) =
   return out
 }
 
-/** Work stops only when working time ends: between two segments, bench and person are not both available. */
-const resumesAtNextWorkingTime: Rule = ({ plan, ops, benches, people }) => {
+/** Working time of the list inside [s, e), as merged pieces. */
+const within = (list: Interval[] | undefined, s: number, e: number): Interval[] => {
+  if (!list) return [{ start: s, end: e }]
+  const out: Interval[] = []
+  for (const w of merged(list)) {
+    if (w.end <= s) continue
+    if (w.start >= e) break
+    out.push({ start: Math.max(s, w.start), end: Math.min(e, w.end) })
+  }
+  return out
+}
+
+/**
+ * Work stops only when joint working time ends and comes back at the next joint working time: inside every gap between two
+ * segments the bench and the person have no common working time — neither free (a late resume) nor given to other work (preempted).
+ */
+const resumesAtNextWorkingTime: Rule = ({ problem, plan, ops, benches, people }) => {
   const out: Violation[] = []
+  const busy = { benchId: new Map<string, { s: number; e: number; id: string }[]>(), personId: new Map<string, { s: number; e: number; id: string }[]>() }
+  for (const p of plan.operations) {
+    for (const which of ['benchId', 'personId'] as const) {
+      const r = p[which]
+      if (r === null) continue
+      const list = busy[which].get(r) ?? busy[which].set(r, []).get(r)!
+      for (const g of p.segments) if (g.end > g.start) list.push({ s: g.start, e: g.end, id: p.operationId })
+    }
+  }
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
-    if (!op || isOutside(op) || op.fixed) continue
+    if (!op || isOutside(op) || p.segments.length < 2) continue
+    const b = p.benchId !== null ? benches.get(p.benchId)?.available : undefined
+    const w = p.personId !== null ? people.get(p.personId)?.available : undefined
     for (let i = 1; i < p.segments.length; i++) {
-      const gapStart = p.segments[i - 1]!.end
-      const b = p.benchId !== null ? benches.get(p.benchId)?.available : undefined
-      const w = p.personId !== null ? people.get(p.personId)?.available : undefined
-      const bothAt = (t: number): boolean => (!b || covered(b, t, t + 1)) && (!w || covered(w, t, t + 1))
-      if (bothAt(gapStart)) out.push({ rule: 'work resumes only at next working time', operationId: op.id, jobId: op.jobId, message: `${op.name} pauses at ${gapStart} although bench and person are both at work` })
+      const gapStart = p.segments[i - 1]!.end, gapEnd = Math.min(p.segments[i]!.start, problem.horizon)
+      if (gapEnd <= gapStart) continue
+      const joint: Interval[] = []
+      for (const x of within(b, gapStart, gapEnd)) for (const y of within(w, x.start, x.end)) joint.push(y)
+      if (joint.length === 0) continue
+      const others = [
+        ...(p.benchId !== null ? busy.benchId.get(p.benchId) ?? [] : []),
+        ...(p.personId !== null ? busy.personId.get(p.personId) ?? [] : []),
+      ].filter((x) => x.id !== op.id && x.s < gapEnd && x.e > gapStart)
+      let free = 0
+      for (const j of joint) {
+        // Joint working time minus the other work booked on this bench or person.
+        let t = j.start
+        for (const x of [...others].sort((a, c) => a.s - c.s)) {
+          if (x.e <= t || x.s >= j.end) continue
+          if (x.s > t) free += x.s - t
+          t = Math.max(t, x.e)
+        }
+        if (t < j.end) free += j.end - t
+      }
+      if (free > 0) out.push({ rule: 'work resumes only at next working time', operationId: op.id, jobId: op.jobId, message: `${op.name} pauses ${gapStart}–${p.segments[i]!.start} although bench and person are both at work and free for ${free} min of it` })
+      else out.push({ rule: 'work is interrupted only by the end of working time', operationId: op.id, jobId: op.jobId, message: `${op.name} pauses ${gapStart}–${p.segments[i]!.start} while its bench and person work on other steps in their joint working time` })
     }
   }
   return out
@@ -150,7 +193,7 @@ const noDoubleBooking = (which: 'benchId' | 'personId', rule: string, noun: (id:
   return out
 }
 
-/** Successors start after their predecessors end plus any wait-after (done predecessors are satisfied). */
+/** Successors start after their predecessors end plus any wait-after (a done predecessor from when it finished, when known). */
 const routingOrder: Rule = ({ plan, ops, planned }) => {
   const out: Violation[] = []
   for (const p of plan.operations) {
@@ -158,7 +201,14 @@ const routingOrder: Rule = ({ plan, ops, planned }) => {
     if (!op) continue
     for (const predId of op.predecessors) {
       const pred = ops.get(predId)
-      if (!pred || pred.done) continue
+      if (!pred) continue
+      if (pred.done) {
+        const finished = pred.finishedAt ?? pred.fixed?.end
+        if (finished === undefined) continue
+        const ready = finished + (pred.waitAfter ?? 0)
+        if (p.start < ready) out.push({ rule: 'routing order and wait-after', operationId: op.id, jobId: op.jobId, message: `${op.name} starts at ${p.start} but ${pred.name} finished at ${finished} and is only ready at ${ready}` })
+        continue
+      }
       const pp = planned.get(predId)
       if (!pp) continue
       const ready = pp.end + (pred.waitAfter ?? 0)
@@ -201,7 +251,7 @@ const outsideWorkingDays: Rule = ({ problem, plan, ops }) => {
   const out: Violation[] = []
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
-    if (!op || !isOutside(op) || op.fixed) continue
+    if (!op || !isOutside(op)) continue
     const days = problem.workshopDays.filter((d) => d.start >= p.start)
     const back = days[op.outsideWorkingDays! - 1]?.end
     if (back === undefined || p.end !== back) out.push({ rule: 'outside work takes its working days', operationId: op.id, jobId: op.jobId, message: `${op.name} is away ${p.start}–${p.end}, but ${op.outsideWorkingDays} workshop days from ${p.start} end at ${back ?? 'beyond the calendar'}` })
@@ -215,18 +265,48 @@ const withinHorizon: Rule = ({ problem, plan, ops }) =>
     .filter((p) => p.end > problem.horizon)
     .map((p) => ({ rule: 'within the horizon', operationId: p.operationId, jobId: ops.get(p.operationId)?.jobId, message: `${ops.get(p.operationId)?.name ?? p.operationId} ends at ${p.end}, after the horizon ${problem.horizon}` }))
 
-/** Job completion, lateness and tardiness match the planned operations. */
+/** Job completion, lateness and tardiness match the planned operations; every job with planned work has one summary. */
 const jobSummariesMatch: Rule = ({ problem, plan }) => {
   const out: Violation[] = []
   const ends = new Map<string, number>()
   for (const p of plan.operations) ends.set(p.jobId, Math.max(ends.get(p.jobId) ?? -Infinity, p.end))
+  const listed = new Set(plan.jobs.map((j) => j.jobId))
+  for (const id of ends.keys()) if (!listed.has(id)) out.push({ rule: 'job summary matches', jobId: id, message: `job ${problem.jobs.find((x) => x.id === id)?.name ?? id} has planned work but no summary` })
   for (const j of plan.jobs) {
+    if (!ends.has(j.jobId)) out.push({ rule: 'job summary matches', jobId: j.jobId, message: `job ${j.jobId} has a summary but nothing planned` })
     const job = problem.jobs.find((x) => x.id === j.jobId)
     const c = ends.get(j.jobId)
     if (!job || c === undefined) continue
     const lateness = job.due === null ? 0 : c - job.due
     if (j.completion !== c || j.lateness !== lateness || j.tardiness !== Math.max(0, lateness)) out.push({ rule: 'job summary matches', jobId: j.jobId, message: `job ${job.name}: summary says completion ${j.completion}, but its work ends at ${c}` })
   }
+  return out
+}
+
+/** The score's totals are what the planned operations give: weighted tardiness, makespan and moves from the previous plan. */
+const scoreTotalsMatch: Rule = ({ problem, plan, ops }) => {
+  const completion = new Map<string, number>()
+  let makespan = 0
+  for (const p of plan.operations) {
+    completion.set(p.jobId, Math.max(completion.get(p.jobId) ?? -Infinity, p.end))
+    makespan = Math.max(makespan, p.end)
+  }
+  let wt = 0
+  for (const job of problem.jobs) {
+    const c = completion.get(job.id)
+    if (c !== undefined && job.due !== null && c > job.due) wt += job.weight * (c - job.due)
+  }
+  let moves = 0
+  for (const p of plan.operations) {
+    const prev = problem.previous?.[p.operationId]
+    if (prev && !ops.get(p.operationId)?.fixed && (prev.benchId !== p.benchId || prev.personId !== p.personId)) moves++
+  }
+  const out: Violation[] = []
+  const sc = plan.score
+  const say = (what: string, claimed: number, actual: number): void => { out.push({ rule: 'score matches the plan', message: `the score says ${what} ${claimed}, the planned work gives ${actual}` }) }
+  if (Math.abs(sc.weightedTardiness - wt) > 1e-6 * Math.max(1, wt)) say('weighted tardiness', sc.weightedTardiness, wt)
+  if (sc.makespan !== makespan) say('makespan', sc.makespan, makespan)
+  if (sc.moves !== moves) say('moves', sc.moves, moves)
   return out
 }
 
@@ -245,6 +325,7 @@ export const PLAN_RULES: { name: string; check: Rule }[] = [
   { name: 'outside work takes its working days', check: outsideWorkingDays },
   { name: 'within the horizon', check: withinHorizon },
   { name: 'job summary matches', check: jobSummariesMatch },
+  { name: 'score matches the plan', check: scoreTotalsMatch },
 ]
 
 /** Checks a plan against every rule; an empty list means the plan is valid. */

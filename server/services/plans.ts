@@ -54,6 +54,8 @@ export async function publishPlan({ db, realtime }: Deps, actor: Actor, id: numb
     const [p] = await tx.select().from(s.planVersions).where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, actor.workshopId))).for('update')
     if (!p) throw notFound('Plan')
     if (p.status !== 'draft') throw new AppError({ code: 'conflict', message: `Plan ${p.number} is ${p.status}, not a draft; only drafts can be published` })
+    if ((p.score as { feasible?: boolean }).feasible === false)
+      throw new AppError({ code: 'unprocessable', message: `Plan ${p.number} breaks a planning rule (${((p.score as { violations?: string[] }).violations ?? [])[0] ?? 'see the draft'}); it cannot become the live plan.` })
     const [live] = await tx.select().from(s.planVersions).where(and(eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'published')))
     const basedOn = (p.score as { basedOnPlanId?: number | null }).basedOnPlanId ?? null
     if ((live?.id ?? null) !== basedOn)

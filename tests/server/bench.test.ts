@@ -191,6 +191,19 @@ describe('claim → start → pause → resume → finish', () => {
     expect((await auditRows(t, 'operation', successor[0].id))[0]).toMatchObject({ action: 'ready', details: expect.objectContaining({ from: 'pending', to: 'ready' }) })
   })
 
+  it('when the planner reads a finished step, then it knows when the step finished (its last record), so a wait after it still holds', async () => {
+    const { loadPlanningData } = await import('../../server/services/planning/problem')
+    const data = await loadPlanningData(t.db, 1, new Date())
+    const done = data.problem.operations.find((o) => o.id === String(op.id))
+    expect(done?.done).toBe(true)
+    const recs = await records(op.id)
+    const last = recs.map((r) => new Date(r.ended_at!).getTime()).sort((a, b) => b - a)[0]!
+    const row = await opRow(op.id)
+    // The step's own finish time, or the end of its last record; either is within a minute of the last record.
+    expect(done!.finishedAt).toBe(data.clock.toMinute(row.finished_at ?? new Date(last).toISOString()))
+    expect(Math.abs(done!.finishedAt! - data.clock.toMinute(new Date(last).toISOString()))).toBeLessThanOrEqual(1)
+  })
+
   it('when finishing twice (new request id), then 409 says it is finished already', async () => {
     const r = await setter.post(`/api/bench/operations/${op.id}/finish`, { requestId: rid() })
     expectCleanError(r, 409)

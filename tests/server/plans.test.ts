@@ -147,6 +147,22 @@ describe('board and moves by hand', () => {
     expect(stale.body.error).toMatch(/changed by someone else/)
   })
 
+  it('when a step is pinned in place while its predecessor is planned to end after it starts, then the pin is refused naming the predecessor', async () => {
+    const board = (await manager.get(`/api/board?from=${from}&to=${to}`)).body
+    const ops = await t.db.select().from(s.operations)
+    const bar = board.items.find((i: any) => !i.outside && i.status !== 'running' && ops.some((o) => o.jobBagId === i.jobBagId && ops.find((x) => x.id === i.id)!.after.includes(o.key) && o.status !== 'done' && o.status !== 'skipped' && board.items.some((b: any) => b.id === o.id)))
+    expect(bar, 'the demo board has a bar with a planned predecessor').toBeTruthy()
+    const pred = ops.find((o) => o.jobBagId === bar.jobBagId && ops.find((x) => x.id === bar.id)!.after.includes(o.key) && o.status !== 'done' && o.status !== 'skipped')!
+    // The predecessor ran late: the live plan now has it ending an hour after the bar starts.
+    await t.db.update(s.operations).set({ plannedEnd: dayjs(bar.start).add(1, 'hour').toISOString() }).where(eq(s.operations.id, pred.id))
+    const r = await manager.patch(`/api/board/operations/${bar.id}`, { pinned: true, version: bar.version })
+    expect(r.status, JSON.stringify(r.body)).toBe(422)
+    expect(r.body.details.rule).toBe('routing order')
+    expect(r.body.error).toContain(pred.name)
+    const [after] = await t.db.select().from(s.operations).where(eq(s.operations.id, bar.id))
+    expect(after!.pinned).toBe(false)
+  })
+
   it('when the week load is read, then every bench and skill has planned and available minutes per day', async () => {
     const r = await manager.get(`/api/load?from=${from}&to=${to}`)
     expect(r.status).toBe(200)

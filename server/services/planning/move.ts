@@ -78,9 +78,19 @@ export async function moveOperation({ db, realtime }: Deps, actor: Actor, opId: 
         }
       }
     }
-    // Routing order: after every predecessor (and its wait), before every successor.
+  }
+  if (moving || input.pinned === true) {
+    // Routing order, for a move and for a pin alike: after every predecessor (and its wait), before every successor.
+    if (start === null || end === null) throw refuse(`"${op.name}" is not planned yet; place it on the board before pinning it.`, 'not planned')
     const live = await currentAssignments(db, actor.workshopId)
     const siblings = [...data.meta.operations.values()].filter((x) => x.bag.id === bag.id)
+    const doneBefore = data.problem.operations.filter((o) => o.done && o.jobId === String(bag.id) && o.finishedAt !== undefined && o.waitAfter)
+    for (const d of doneBefore) {
+      const self = data.problem.operations.find((o) => o.id === String(opId))
+      if (!self?.predecessors.includes(d.id)) continue
+      const ready = d.finishedAt! + d.waitAfter!
+      if (start < ready) throw refuse(`"${op.name}" must wait for "${d.name}" (finished) and its ${d.waitAfter} min wait, ready ${when(ready)}.`, 'routing order')
+    }
     for (const p of siblings.filter((x) => op.after.includes(x.op.key))) {
       if (p.op.status === 'done' || p.op.status === 'skipped') continue
       const pa = live[String(p.op.id)]

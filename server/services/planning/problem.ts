@@ -106,7 +106,10 @@ export async function loadPlanningData(db: Db, workshopId: number, now: Date): P
       ...(op.waitAfterMinutes > 0 ? { waitAfter: op.waitAfterMinutes } : {}),
     }
     if (op.status === 'done' || op.status === 'skipped') {
-      engineOps.push({ ...base, done: true })
+      // When it finished: the step's own finish, else the end of its last time record; its wait (pickle, cure) runs from there.
+      const lastRecord = openRecords.filter((r) => r.operationId === op.id && r.endedAt).reduce<string | null>((m, r) => (m === null || new Date(r.endedAt!).getTime() > new Date(m).getTime() ? r.endedAt! : m), null)
+      const finished = op.status === 'done' ? op.finishedAt ?? lastRecord : null
+      engineOps.push({ ...base, done: true, ...(finished ? { finishedAt: clock.toMinute(finished) } : {}) })
       continue
     }
     if (op.leadDays > 0 || kind.outside) {

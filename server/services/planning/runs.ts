@@ -72,6 +72,8 @@ export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: 
   })
     .then(async (plan) => {
       if (run.controller.signal.aborted) { run.status = 'cancelled'; return }
+      // A plan that breaks a rule (say, a pin its earlier steps cannot reach) is never offered as a draft.
+      if (!plan.score.feasible) throw new AppError({ code: 'unprocessable', message: `The planner found no plan that keeps every rule: ${plan.score.violations.slice(0, 3).join('; ')}. Unpin or move the step concerned and run again.` })
       run.planId = await saveDraft(deps, actor, data, plan)
       run.status = 'done'
       deps.realtime.emit(actor.workshopId, 'plan:drafted', { id: run.planId, runId: run.id })

@@ -37,6 +37,8 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
           imgSrc: ["'self'", 'data:', 'blob:'],
           styleSrc: ["'self'", "'unsafe-inline'"],
           connectSrc: ["'self'", 'ws:', 'wss:'],
+          // The ticket scanner (qr-scanner) decodes in a worker it builds from a blob: URL; nothing else may start workers.
+          workerSrc: ["'self'", 'blob:'],
           upgradeInsecureRequests: null,
         },
       },

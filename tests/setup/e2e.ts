@@ -24,11 +24,12 @@ export interface E2E {
   close(): Promise<void>
 }
 
-export function launchChromium(): Promise<Browser> {
+/** Debian's Chromium, headless; `extraArgs` add flags (e.g. a fake camera fed from a file). */
+export function launchChromium(extraArgs: string[] = []): Promise<Browser> {
   return chromium.launch({
     executablePath: '/usr/bin/chromium',
     headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync', ...extraArgs],
   })
 }
 

@@ -1,0 +1,109 @@
+// Scanning a job ticket at the bench in Chromium: a fake camera shows a printed ticket's QR code and the job bag opens; typing the number works too.
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import QRCode from 'qrcode'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Browser, Page } from 'playwright-core'
+import { jobBagLink } from '../../server/services/tickets'
+import { DEMO_PASSWORD, launchChromium, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+
+let e2e: E2E
+let cameraBrowser: Browser | null = null
+const dir = mkdtempSync(join(tmpdir(), 'mg-scan-'))
+const TABLET = { width: 1280, height: 800 }
+
+beforeAll(async () => { e2e = await startE2E() })
+afterAll(async () => {
+  await cameraBrowser?.close().catch(() => undefined)
+  await e2e?.close()
+  rmSync(dir, { recursive: true, force: true })
+})
+
+const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
+
+/**
+ * A Y4M video (YUV4MPEG2, 4:2:0, full-range "C420jpeg") of a white sheet with the QR code centred on it, as a camera
+ * would see a printed ticket held in front of it. Y = 0 black / 255 white, U = V = 128 (no colour).
+ * Frame layout after the header: "FRAME\n", then the Y plane (W×H bytes), the U and the V planes (W/2×H/2 each).
+ */
+function qrVideo(text: string, o: { width: number; height: number; modulePx: number; frames: number }): Buffer {
+  // Same error correction as the printed ticket (server/services/tickets.ts ticketQrPng: level M).
+  const qr = QRCode.create(text, { errorCorrectionLevel: 'M' })
+  const n = qr.modules.size
+  const side = n * o.modulePx
+  const x0 = Math.floor((o.width - side) / 2)
+  const y0 = Math.floor((o.height - side) / 2)
+  const y = Buffer.alloc(o.width * o.height, 255)
+  for (let r = 0; r < n; r++) {
+    for (let c = 0; c < n; c++) {
+      if (!qr.modules.get(r, c)) continue
+      for (let dy = 0; dy < o.modulePx; dy++) y.fill(0, (y0 + r * o.modulePx + dy) * o.width + x0 + c * o.modulePx, (y0 + r * o.modulePx + dy) * o.width + x0 + (c + 1) * o.modulePx)
+    }
+  }
+  const chroma = Buffer.alloc((o.width / 2) * (o.height / 2), 128)
+  const frame = Buffer.concat([Buffer.from('FRAME\n'), y, chroma, chroma])
+  const header = Buffer.from(`YUV4MPEG2 W${o.width} H${o.height} F25:1 Ip A1:1 C420jpeg\n`)
+  return Buffer.concat([header, ...Array.from({ length: o.frames }, () => frame)])
+}
+
+async function benchTablet(browser: Browser): Promise<Page> {
+  const context = await browser.newContext({ baseURL: e2e.url, viewport: TABLET, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true, permissions: ['camera'] })
+  const page = await context.newPage()
+  await signInWith(page, 'setter@wrenfield.test', DEMO_PASSWORD)
+  await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
+  await page.goto('/bench')
+  await page.locator('[data-test=scan]').waitFor()
+  return page
+}
+
+/** A job bag whose next step is ready, so its page offers that step to the bench. */
+async function bagWithReadyStep(offset: number) {
+  // The job bag page offers its first ready step in routing order (server/services/job-bags.ts: next = first 'ready').
+  const [op] = await q(`select * from (select distinct on (jb.number) o.id, o.job_bag_id, o.name, jb.number, k.outside from operations o join job_bags jb on jb.id = o.job_bag_id
+    join orders ord on ord.id = jb.order_id join operation_kinds k on k.id = o.kind_id where o.status = 'ready' and ord.status = 'open' and jb.status not in ('on-hold', 'cancelled') order by jb.number, o.seq) x
+    where not x.outside order by number offset $1 limit 1`, [offset])
+  return op as { id: number; job_bag_id: number; name: string; number: string }
+}
+
+describe('scanning a job ticket at the bench', () => {
+  it('when the camera sees a printed ticket’s QR code, then the job bag opens with its next step, and the page raised no policy violation', async () => {
+    const op = await bagWithReadyStep(0)
+    expect(op, 'the seeded demo has a ready bench step').toBeTruthy()
+    // The QR holds what the printed ticket holds: the job bag's link (server/services/tickets.ts jobBagLink).
+    const link = jobBagLink(e2e.url, op.job_bag_id)
+    const video = join(dir, 'ticket.y4m')
+    writeFileSync(video, qrVideo(link, { width: 640, height: 480, modulePx: 8, frames: 10 }))
+    cameraBrowser = await launchChromium(['--use-fake-ui-for-media-stream', '--use-fake-device-for-media-stream', `--use-file-for-fake-video-capture=${video}`])
+    const page = await benchTablet(cameraBrowser)
+    const violations: string[] = []
+    page.on('console', (m) => { if (/Content Security Policy|Refused to/i.test(m.text())) violations.push(m.text()) })
+    page.on('pageerror', (e) => violations.push(String(e)))
+
+    await page.locator('[data-test=scan]').click()
+    await page.locator('[data-test=scan-dialog] video').waitFor()
+    await page.waitForURL((u) => u.pathname === `/job-bags/${op.job_bag_id}` && u.searchParams.get('from') === 'scan', { timeout: 20_000 }).catch(async (err) => {
+      await screenshot(page, 'bench-scan-failed', { fullPage: false })
+      throw new Error(`${(err as Error).message}\nwhat the scan dialog said: ${await page.locator('[data-test=scan-dialog]').textContent().catch(() => '?')}\nconsole: ${violations.join(' | ')}`)
+    })
+    await page.locator('[data-test=next-step]').waitFor()
+    await expect(page.locator('[data-test=next-step]').textContent()).resolves.toContain(op.name)
+    await screenshot(page, 'bench-scan-01-opened-by-camera')
+    expect(violations).toEqual([])
+    await page.context().close()
+  })
+
+  it('when there is no camera and the setter types the job bag number, then the same job bag opens', async () => {
+    const op = await bagWithReadyStep(1)
+    const page = await benchTablet(e2e.browser)
+    await page.locator('[data-test=scan]').click()
+    await page.locator('[data-test=bag-number]').waitFor()
+    await page.locator('[data-test=bag-number]').fill(op.number)
+    await screenshot(page, 'bench-scan-02-typed-number', { fullPage: false })
+    await page.locator('[data-test=bag-number-go]').click()
+    await page.waitForURL((u) => u.pathname === `/job-bags/${op.job_bag_id}`, { timeout: 15_000 })
+    await page.locator('[data-test=next-step]').waitFor()
+    await expect(page.locator('[data-test=next-step]').textContent()).resolves.toContain(op.name)
+    await page.context().close()
+  })
+})

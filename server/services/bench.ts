@@ -3,7 +3,8 @@ import { and, asc, desc, eq, inArray, isNull, ne, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/pg-core'
 import { STAFF } from '../../shared/domain/roles'
 import { HELD_OPERATION, PAUSE_REASON_LABELS, canMoveOperation, cautionsFor, type OperationStatus } from '../../shared/domain/status'
-import type { BenchOperation, ClaimInput, FinishInput, OutsideInput, PauseInput, ReleaseInput, StartInput, TransitionResult } from '../../shared/schemas/bench-work'
+import type { BenchOperation, BenchStones, ClaimInput, FinishInput, OutsideInput, PauseInput, ReleaseInput, StartInput, TransitionResult } from '../../shared/schemas/bench-work'
+import type { PieceParams } from '../../shared/schemas/order'
 import type { Db, Trx, Tx } from '../db/client'
 import { benchCapabilities, benchRequests, benches, jobBags, operationKinds, operations, orders, people, personSkills, timeRecords } from '../db/schema/index'
 import { AppError, notFound } from '../errors/app-error'
@@ -18,7 +19,7 @@ const opFields = {
   kindId: operations.kindId, kindCode: operationKinds.code, kindName: operationKinds.name, hazards: operationKinds.hazards, outside: operationKinds.outside,
   requiredLevel: operations.requiredLevel, estimateMinutes: operations.estimateMinutes, plannedStart: operations.plannedStart, claimedBy: operations.claimedBy,
   claimedByName: claimer.name, jobBagId: operations.jobBagId, jobBagNumber: jobBags.number, jobBagStatus: jobBags.status, piece: jobBags.piece,
-  orderNumber: orders.number, dueDate: orders.dueDate, priority: orders.priority, after: operations.after,
+  orderNumber: orders.number, dueDate: orders.dueDate, priority: orders.priority, after: operations.after, params: jobBags.params,
 }
 const baseQuery = (tx: Tx) =>
   tx.select(opFields).from(operations)
@@ -36,7 +37,16 @@ export async function toBenchOperations(tx: Tx, rows: OpRow[]): Promise<BenchOpe
     runningSince: records.find((x) => x.operationId === r.id && !x.endedAt && !x.voided)?.startedAt ?? null,
     plannedStart: r.plannedStart ? new Date(r.plannedStart).toISOString() : null, claimedBy: r.claimedBy, claimedByName: r.claimedByName ?? null,
     jobBagId: r.jobBagId, jobBagNumber: r.jobBagNumber, piece: r.piece, orderNumber: r.orderNumber, dueDate: r.dueDate, priority: r.priority,
+    stones: stonesOf(r.params), metal: r.params?.metal ?? null,
   }))
+}
+
+/** The stones the job bag's piece parameters describe: per piece, their size, and over all pieces of the bag. */
+export function stonesOf(params: Partial<PieceParams> | null | undefined): BenchStones {
+  const perPiece = Math.max(0, Math.round(params?.stoneCount ?? 0))
+  const pieces = Math.max(1, Math.round(params?.quantity ?? 1))
+  const sizeMm = params?.stoneSizeMm && params.stoneSizeMm > 0 ? params.stoneSizeMm : null
+  return { perPiece, pieces, total: perPiece * pieces, sizeMm }
 }
 
 /** The bench-facing rows of some operations. */

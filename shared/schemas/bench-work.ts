@@ -71,6 +71,18 @@ export interface BenchOperation {
   orderNumber: string
   dueDate: string
   priority: number
+  /** The stones to set, from the job bag's piece parameters. */
+  stones: BenchStones
+  /** The piece's metal code (see METALS), or null when the bag has none recorded. */
+  metal: string | null
+}
+
+/** Stones of a job bag: count per piece, how many pieces, the total, and the stone size in mm (null when not given). */
+export interface BenchStones {
+  perPiece: number
+  pieces: number
+  total: number
+  sizeMm: number | null
 }
 
 /** The answer to every transition. */

@@ -52,6 +52,7 @@ describe('the bench tablet', () => {
   it('when the setter works a setting job through, then each tap moves it and the manager’s job bag page follows live', async () => {
     const op = await firstPending('setting', 'set')
     await makeReady(op.id)
+    await q(`update job_bags set params = params || '{"stoneCount": 12, "stoneSizeMm": 1.3, "quantity": 2}'::jsonb where id = $1`, [op.job_bag_id])
     const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
 
     const manager = await tablet('manager@wrenfield.test')
@@ -83,6 +84,12 @@ describe('the bench tablet', () => {
     // Setting carries no hazard; a hazardous step would open the caution dialog here (covered below).
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
     await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Working'), op.id, { timeout: 10_000 })
+    // What to set, on the running card: hand-worked from the bag's parameters set above (12 stones a piece × 2 pieces = 24, 1.3 mm, under 1.5 mm).
+    const facts = page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=work-facts]`)
+    await expect(facts.locator('[data-test=stone-count]').innerText()).resolves.toMatch(/Stones\s+24\s+12 a piece × 2 pieces/i)
+    await expect(facts.locator('[data-test=stone-size]').innerText()).resolves.toMatch(/Stone size\s+1\.3 mm\s+under 1\.5 mm/i)
+    const [{ estimate_minutes: planned }] = await q('select estimate_minutes from operations where id = $1', [op.id])
+    await expect(facts.locator('[data-test=planned-minutes]').innerText()).resolves.toMatch(new RegExp(`Planned\\s+${Math.round(planned)} min`, "i"))
     await screenshot(page, 'bench-03-running-landscape')
 
     await mine.locator('[data-test=pause]').click()

@@ -446,3 +446,29 @@ describe('acting on behalf and outside work', () => {
     expect(back.body.readied.length).toBeGreaterThan(0)
   })
 })
+
+describe('what a running card shows', () => {
+  it('when a setter starts setting a bag of 3 pieces with 14 stones of 1.25 mm each, then the operation carries 14 a piece × 3 = 42 stones, their size and the step’s planned minutes', async () => {
+    const op = await freshReady(t, 'setting', 'set')
+    await t.pool.query(`update job_bags set params = params || '{"stoneCount": 14, "stoneSizeMm": 1.25, "quantity": 3}'::jsonb where id = $1`, [op.job_bag_id])
+    const { rows: [row] } = await t.pool.query('select o.estimate_minutes, jb.params from operations o join job_bags jb on jb.id = o.job_bag_id where o.id = $1', [op.id])
+    const [s] = await extraSetters(t, 1, 'card')
+    expect((await s!.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })).status).toBe(200)
+    const r = await s!.agent.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    // Hand-worked: 14 stones per piece × 3 pieces = 42; the size is the bag's stoneSizeMm as recorded.
+    expect(r.body.operation.stones).toEqual({ perPiece: 14, pieces: 3, total: 42, sizeMm: 1.25 })
+    // Planned minutes are the operation's own estimate, as stored (not recomputed for the card).
+    expect(r.body.operation.estimateMinutes).toBe(row.estimate_minutes)
+    expect(r.body.operation.metal).toBe(row.params.metal)
+    const mine = await s!.agent.get('/api/bench/mine')
+    expect(mine.body.items.find((x: { id: number }) => x.id === op.id).stones).toEqual({ perPiece: 14, pieces: 3, total: 42, sizeMm: 1.25 })
+  })
+
+  it('when a bag records no stone size, then the size is null rather than 0 mm', async () => {
+    const op = await freshReady(t, 'setting', 'set')
+    await t.pool.query(`update job_bags set params = params || '{"stoneCount": 6, "stoneSizeMm": 0, "quantity": 1}'::jsonb where id = $1`, [op.job_bag_id])
+    const r = await setter.get(`/api/bench/next?benchId=${setA}`)
+    expect(r.body.items.find((x: { id: number }) => x.id === op.id).stones).toEqual({ perPiece: 6, pieces: 1, total: 6, sizeMm: null })
+  })
+})

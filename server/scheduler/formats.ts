@@ -123,3 +123,62 @@ export function shopToProblem(file: ShopFile): Problem {
   })
   return { origin: '2025-01-06', now: 0, horizon, workshopDays: always, benches, people: [], jobs, operations }
 }
+
+/** A due-date job shop (.twt): the .jss text followed by one `release due weight` line per job. */
+export function parseTwt(text: string): Problem {
+  const rows = numbersOf(text)
+  const [n, m] = (rows[0] ?? fail('empty file')) as [number, number]
+  if (!Number.isInteger(n) || !Number.isInteger(m) || n <= 0 || m <= 0) fail('bad header')
+  const tail = rows.slice(rows.length - n)
+  if (tail.some((r) => r.length !== 3)) fail(`expected ${n} lines of "release due weight" after the jobs`)
+  const shop = parseJobShop(rows.slice(0, rows.length - n).map((r) => r.join(' ')).join('\n'))
+  const problem = shopToProblem(shop)
+  problem.jobs = problem.jobs.map((j, k) => ({ ...j, release: tail[k]![0]!, due: tail[k]![1]!, weight: tail[k]![2]! }))
+  // Room for a very late schedule: all work in a row after the latest release.
+  problem.horizon += Math.max(0, ...tail.map((r) => r[0]!))
+  problem.benches = problem.benches.map((b) => ({ ...b, available: [{ start: 0, end: problem.horizon }] }))
+  problem.workshopDays = [{ start: 0, end: problem.horizon }]
+  return problem
+}
+
+/** Worker id used for a worker of a .fjw file. */
+export const shopWorkerId = (w: number): string => `w${w}`
+
+/** A flexible job shop with workers (.fjw): `jobs machines workers`, then per job nOps and per op k `machine worker duration` triples. */
+export function parseFjw(text: string): Problem {
+  const rows = numbersOf(text)
+  const [n, m, w] = (rows[0] ?? fail('empty file')) as [number, number, number]
+  if (![n, m, w].every((x) => Number.isInteger(x) && x > 0)) fail('bad header, expected "jobs machines workers"')
+  const stream = rows.slice(1).flat()
+  let k = 0
+  const next = (what: string): number => {
+    const v = stream[k++]
+    if (v === undefined || !Number.isFinite(v)) fail(`ran out of numbers reading ${what}`)
+    return v!
+  }
+  const jobs: Job[] = []
+  const operations: Operation[] = []
+  let horizon = 1
+  for (let j = 0; j < n; j++) {
+    jobs.push({ id: `j${j}`, name: `job ${j}`, release: 0, due: null, weight: 1 })
+    const nOps = next(`job ${j}`)
+    for (let o = 0; o < nOps; o++) {
+      const alts = next(`job ${j} op ${o}`)
+      const options = []
+      let longest = 0
+      for (let a = 0; a < alts; a++) {
+        const machine = next(`job ${j} op ${o}`), worker = next(`job ${j} op ${o}`), duration = next(`job ${j} op ${o}`)
+        if (machine < 0 || machine >= m || worker < 0 || worker >= w) fail(`job ${j} op ${o}: machine ${machine} or worker ${worker} out of range`)
+        options.push({ benchId: shopBenchId(machine), personId: shopWorkerId(worker), minutes: duration })
+        longest = Math.max(longest, duration)
+      }
+      if (options.length === 0) fail(`job ${j} op ${o} has no option`)
+      horizon += longest
+      operations.push({ id: shopOperationId(j, o), jobId: `j${j}`, name: `job ${j} op ${o}`, kind: 'machine', predecessors: o > 0 ? [shopOperationId(j, o - 1)] : [], options })
+    }
+  }
+  const always = [{ start: 0, end: horizon }]
+  const benches: Bench[] = Array.from({ length: m }, (_, i) => ({ id: shopBenchId(i), name: `machine ${i}`, available: always }))
+  const people = Array.from({ length: w }, (_, i) => ({ id: shopWorkerId(i), name: `worker ${i}`, available: always }))
+  return { origin: '2025-01-06', now: 0, horizon, workshopDays: always, benches, people, jobs, operations }
+}

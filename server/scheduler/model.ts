@@ -93,7 +93,8 @@ export interface Plan {
   operations: PlannedOperation[]
   jobs: { jobId: string; completion: number; lateness: number; tardiness: number }[]
   score: Score
-  stats: { iterations: number; elapsedMs: number; firstPlanMs: number }
+  /** evaluations: candidate schedules evaluated exactly, where the search counts them. */
+  stats: { iterations: number; elapsedMs: number; firstPlanMs: number; evaluations?: number }
 }
 
 export type Objective = 'weightedTardiness' | 'makespan' | 'moves'

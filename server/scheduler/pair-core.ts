@@ -1,0 +1,461 @@
+// Tabu search on the disjunctive graph for calendar-free shops where each operation takes a machine and (optionally) a worker,
+// with a duration per (machine, worker) pair: minimises total weighted tardiness or makespan. Moves are evaluated exactly.
+import { createRng, type Rng } from './random.ts'
+
+/** A flattened shop: job chains of operations, each with (machine, worker, duration) options; worker -1 = none needed. */
+export interface PairShop {
+  n: number
+  machines: number
+  workers: number
+  jobs: number
+  jobOf: Int32Array
+  jobPred: Int32Array
+  jobSucc: Int32Array
+  optStart: Int32Array
+  optMachine: Int32Array
+  optWorker: Int32Array
+  optDur: Int32Array
+  /** Earliest start per operation. */
+  release: Int32Array
+  /** Per job; Infinity when the job has no due date. */
+  due: Float64Array
+  weight: Float64Array
+}
+
+export type PairObjective = 'weightedTardiness' | 'makespan'
+
+export interface PairSettings {
+  seed: number
+  objective: PairObjective
+  /** Absolute clock value (ms) at which to stop. */
+  deadline: number
+  clock: () => number
+  maxIterations?: number
+  shouldStop?: () => boolean
+  onImprove?: (value: number, iteration: number) => void
+}
+
+export interface PairSolution {
+  option: Int32Array
+  start: Int32Array
+  end: Int32Array
+  weightedTardiness: number
+  makespan: number
+  iterations: number
+  /** Candidate schedules evaluated (each an exact longest-path computation). */
+  evaluations: number
+  firstMs: number
+}
+
+const M = 0, W = 1 // resource types: machine, worker
+/** Tardy jobs whose critical paths feed one iteration's moves (chosen by weighted tardiness). */
+const TARGETS = 6
+/** On stagnation: share of restarts from a fresh shaken dispatch, from the best, else from where the walk is. */
+const RESTART_FRESH = 0.3, RESTART_BEST = 0.5
+
+/** Lower bound on the makespan: the longest job chain at its shortest durations (from its release). */
+export function pairLowerBound(s: PairShop): number {
+  let lb = 0
+  for (let i = 0; i < s.n; i++) {
+    if (s.jobPred[i]! >= 0) continue
+    let t = 0
+    for (let x = i; x >= 0; x = s.jobSucc[x]!) {
+      let d = Infinity
+      for (let o = s.optStart[x]!; o < s.optStart[x + 1]!; o++) d = Math.min(d, s.optDur[o]!)
+      t = Math.max(t, s.release[x]!) + d
+    }
+    lb = Math.max(lb, t)
+  }
+  return lb
+}
+
+export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution {
+  const t0 = settings.clock()
+  const { n, jobs, jobOf, jobPred, jobSucc, optStart, optMachine, optWorker, optDur, release, due, weight } = s
+  const rng: Rng = createRng(settings.seed)
+  const twtMode = settings.objective === 'weightedTardiness'
+  const lastOf = new Int32Array(jobs).fill(-1)
+  for (let i = 0; i < n; i++) if (jobSucc[i]! < 0) lastOf[jobOf[i]!] = i
+
+  // Current solution: option, duration, resources, and the two kinds of sequences as linked lists.
+  const opt = new Int32Array(n), p = new Int32Array(n)
+  const res = [new Int32Array(n), new Int32Array(n)]
+  const pred = [new Int32Array(n).fill(-1), new Int32Array(n).fill(-1)]
+  const succ = [new Int32Array(n).fill(-1), new Int32Array(n).fill(-1)]
+  const head = [new Int32Array(s.machines).fill(-1), new Int32Array(Math.max(1, s.workers)).fill(-1)]
+
+  const unlink = (t: number, x: number): void => {
+    const k = res[t]![x]!
+    if (k < 0) return
+    const a = pred[t]![x]!, b = succ[t]![x]!
+    if (a >= 0) succ[t]![a] = b; else head[t]![k] = b
+    if (b >= 0) pred[t]![b] = a
+    pred[t]![x] = -1; succ[t]![x] = -1
+  }
+  const linkAfter = (t: number, x: number, k: number, a: number): void => {
+    res[t]![x] = k
+    if (k < 0) return
+    const b = a >= 0 ? succ[t]![a]! : head[t]![k]!
+    pred[t]![x] = a; succ[t]![x] = b
+    if (a >= 0) succ[t]![a] = x; else head[t]![k] = x
+    if (b >= 0) pred[t]![b] = x
+  }
+  // Undo log of relocations: type, op, old resource, old predecessor, old option.
+  const undo: number[] = []
+  const relocate = (t: number, x: number, k: number, after: number): void => {
+    undo.push(t, x, res[t]![x]!, pred[t]![x]!, opt[x]!)
+    unlink(t, x)
+    linkAfter(t, x, k, after)
+  }
+  const rollback = (mark: number): void => {
+    while (undo.length > mark) {
+      const o = undo.pop()!, a = undo.pop()!, k = undo.pop()!, x = undo.pop()!, t = undo.pop()!
+      unlink(t, x)
+      linkAfter(t, x, k, a)
+      opt[x] = o; p[x] = optDur[o]!
+    }
+  }
+
+  // Longest paths (heads) by Kahn's order into r; returns the objective or Infinity on a cycle.
+  const indeg = new Int32Array(n), topo = new Int32Array(n)
+  const rCur = new Int32Array(n), rTmp = new Int32Array(n)
+  const comp = new Float64Array(jobs)
+  let evaluations = 0
+  let lastMakespan = 0, lastTwt = 0
+  const evaluate = (r: Int32Array): number => {
+    evaluations++
+    let qt = 0
+    for (let i = 0; i < n; i++) {
+      const d = (jobPred[i]! >= 0 ? 1 : 0) + (pred[M]![i]! >= 0 ? 1 : 0) + (pred[W]![i]! >= 0 ? 1 : 0)
+      indeg[i] = d
+      if (d === 0) topo[qt++] = i
+    }
+    const pm = pred[M]!, pw = pred[W]!, sm = succ[M]!, sw = succ[W]!
+    let qh = 0, cmax = 0
+    while (qh < qt) {
+      const x = topo[qh++]!
+      let rx = release[x]!
+      const a = jobPred[x]!, b = pm[x]!, c = pw[x]!
+      if (a >= 0) { const e = r[a]! + p[a]!; if (e > rx) rx = e }
+      if (b >= 0) { const e = r[b]! + p[b]!; if (e > rx) rx = e }
+      if (c >= 0) { const e = r[c]! + p[c]!; if (e > rx) rx = e }
+      r[x] = rx
+      if (rx + p[x]! > cmax) cmax = rx + p[x]!
+      const js = jobSucc[x]!, ms = sm[x]!, ws = sw[x]!
+      if (js >= 0 && --indeg[js]! === 0) topo[qt++] = js
+      if (ms >= 0 && --indeg[ms]! === 0) topo[qt++] = ms
+      if (ws >= 0 && --indeg[ws]! === 0) topo[qt++] = ws
+    }
+    if (qt !== n) return Infinity
+    let twt = 0
+    for (let j = 0; j < jobs; j++) {
+      const l = lastOf[j]!
+      const c = l >= 0 ? r[l]! + p[l]! : 0
+      comp[j] = c
+      if (c > due[j]!) twt += weight[j]! * (c - due[j]!)
+    }
+    lastMakespan = cmax; lastTwt = twt
+    // Makespan breaks ties between equal weighted tardiness, so plateaus still lead somewhere.
+    return twtMode ? twt + cmax * 1e-7 : cmax
+  }
+
+  // ---------- first schedule: the best of a few dispatching rules ----------
+  const minDur = new Float64Array(n)
+  for (let i = 0; i < n; i++) { let d = Infinity; for (let o = optStart[i]!; o < optStart[i + 1]!; o++) d = Math.min(d, optDur[o]!); minDur[i] = d }
+  const remaining = new Float64Array(n)
+  for (let j = 0; j < jobs; j++) { let acc = 0; for (let x = lastOf[j]!; x >= 0; x = jobPred[x]!) { acc += minDur[x]!; remaining[x] = acc } }
+  const build = (rule: number): void => {
+    undo.length = 0
+    for (const t of [M, W]) { pred[t]!.fill(-1); succ[t]!.fill(-1); head[t]!.fill(-1); res[t]!.fill(-1) }
+    const ready = new Float64Array(n)
+    const mReady = new Float64Array(s.machines), wReady = new Float64Array(Math.max(1, s.workers))
+    const mLast = new Int32Array(s.machines).fill(-1), wLast = new Int32Array(Math.max(1, s.workers)).fill(-1)
+    const heads: number[] = []
+    for (let i = 0; i < n; i++) if (jobPred[i]! < 0) heads.push(i)
+    const bestOpt = new Int32Array(n), bestEst = new Float64Array(n), bestFin = new Float64Array(n)
+    for (let left = n; left > 0; left--) {
+      let fStar = Infinity
+      for (const x of heads) {
+        if (x < 0) continue
+        const e0 = Math.max(ready[x]!, release[x]!)
+        let bf = Infinity, bo = -1, be = 0
+        for (let o = optStart[x]!; o < optStart[x + 1]!; o++) {
+          const w = optWorker[o]!
+          const e = Math.max(e0, mReady[optMachine[o]!]!, w >= 0 ? wReady[w]! : 0)
+          const f = e + optDur[o]!
+          if (f < bf) { bf = f; bo = o; be = e }
+        }
+        bestOpt[x] = bo; bestEst[x] = be; bestFin[x] = bf
+        if (bf < fStar) fStar = bf
+      }
+      // Among the operations that could start before the earliest finish, take the one the rule ranks first.
+      let pick = -1, pickKey = Infinity
+      for (let h = 0; h < heads.length; h++) {
+        const x = heads[h]!
+        if (x < 0 || bestEst[x]! >= fStar) continue
+        const j = jobOf[x]!
+        const slack = (Number.isFinite(due[j]!) ? due[j]! : 1e12) - bestEst[x]! - remaining[x]!
+        let key: number
+        if (!twtMode) key = rule === 0 ? -remaining[x]! : rule === 1 ? bestFin[x]! - remaining[x]! * 1e-3 : bestEst[x]! + rng.next()
+        else if (rule === 0) key = slack > 0 ? slack / weight[j]! : slack * weight[j]! // weighted slack
+        else if (rule === 1) key = Math.max(due[j]!, bestEst[x]! + remaining[x]!) // modified due date
+        else if (rule === 2) key = -weight[j]! / minDur[x]! * Math.exp(-Math.max(0, slack) / (2 * Math.max(1, minDur[x]!))) // apparent tardiness cost
+        else if (rule === 3) key = due[j]! + rng.next() * 20
+        else key = (slack > 0 ? slack / weight[j]! : slack * weight[j]!) + (rng.next() - 0.5) * 2 * Math.max(10, Math.abs(slack)) // weighted slack, shaken
+        if (key < pickKey) { pickKey = key; pick = h }
+      }
+      const x = heads[pick]!
+      const o = bestOpt[x]!
+      const k = optMachine[o]!, w = optWorker[o]!
+      opt[x] = o; p[x] = optDur[o]!
+      linkAfter(M, x, k, mLast[k]!); mLast[k] = x; mReady[k] = bestFin[x]!
+      if (w >= 0) { linkAfter(W, x, w, wLast[w]!); wLast[w] = x; wReady[w] = bestFin[x]! } else res[W]![x] = -1
+      const js = jobSucc[x]!
+      if (js >= 0) ready[js] = bestFin[x]!
+      heads[pick] = js
+    }
+  }
+  const saved = { opt: new Int32Array(n), order: [[], []] as number[][][] }
+  const snapshot = (into: typeof saved): void => {
+    into.opt.set(opt)
+    for (const t of [M, W]) {
+      into.order[t] = []
+      for (let k = 0; k < head[t]!.length; k++) { const seq: number[] = []; for (let x = head[t]![k]!; x >= 0; x = succ[t]![x]!) seq.push(x); into.order[t]!.push(seq) }
+    }
+  }
+  const restore = (from: typeof saved): void => {
+    undo.length = 0
+    opt.set(from.opt)
+    for (let i = 0; i < n; i++) p[i] = optDur[opt[i]!]!
+    for (const t of [M, W]) {
+      pred[t]!.fill(-1); succ[t]!.fill(-1); head[t]!.fill(-1); res[t]!.fill(-1)
+      from.order[t]!.forEach((seq, k) => { let last = -1; for (const x of seq) { linkAfter(t, x, k, last); last = x } })
+    }
+  }
+  const best = { opt: new Int32Array(n), order: [[], []] as number[][][] }
+  let bestVal = Infinity
+  for (let rule = 0; rule < (twtMode ? 4 : 3); rule++) {
+    build(rule)
+    const v = evaluate(rCur)
+    if (v < bestVal) { bestVal = v; snapshot(best) }
+  }
+  restore(best)
+  let cur = evaluate(rCur)
+  let bestTwt = lastTwt, bestCmax = lastMakespan
+  const firstMs = settings.clock() - t0
+  settings.onImprove?.(twtMode ? lastTwt : lastMakespan, 0)
+  const lowerBound = twtMode ? 0 : pairLowerBound(s)
+
+  // ---------- tabu search ----------
+  const bigTabu = n <= 3000
+  const tabuBefore = bigTabu ? new Int32Array(n * n) : null
+  const tabuMap = bigTabu ? null : new Map<number, number>()
+  const getTabu = (a: number, b: number): number => (tabuBefore ? tabuBefore[a * n + b]! : tabuMap!.get(a * n + b) ?? 0)
+  const setTabu = (a: number, b: number, v: number): void => { if (tabuBefore) tabuBefore[a * n + b] = v; else tabuMap!.set(a * n + b, v) }
+  const tabuOpt = new Int32Array(optDur.length)
+  const baseTenure = 8 + Math.floor(Math.sqrt(n) / 2)
+  const tenure = (): number => baseTenure + rng.int(baseTenure + 1)
+  let iter = 0, lastImprove = 0
+  const maxIter = settings.maxIterations ?? Infinity
+  const maxStall = Math.max(300, 12 * n)
+  const path: number[] = []
+  const arcType: number[] = [] // for path[i] (i > 0): the resource type of the arc from path[i-1], -1 for a job arc
+
+  /** A critical path ending at op `end`: tight arcs traced back, ties at random. */
+  const tracePath = (end: number): void => {
+    path.length = 0; arcType.length = 0
+    const back: number[] = [], types: number[] = []
+    for (let x = end; x >= 0;) {
+      back.push(x)
+      const a = jobPred[x]!, b = pred[M]![x]!, c = pred[W]![x]!
+      const cand: number[] = [], ct: number[] = []
+      if (b >= 0 && rCur[b]! + p[b]! === rCur[x]!) { cand.push(b); ct.push(M) }
+      if (c >= 0 && rCur[c]! + p[c]! === rCur[x]!) { cand.push(c); ct.push(W) }
+      if (a >= 0 && rCur[a]! + p[a]! === rCur[x]!) { cand.push(a); ct.push(-1) }
+      if (cand.length === 0) { types.push(-2); break }
+      const k = rng.int(cand.length)
+      types.push(ct[k]!)
+      x = cand[k]!
+    }
+    // types[i] is the arc into back[i]; arcType[k] is the arc path[k-1] -> path[k].
+    for (let k = 0; k < back.length; k++) { path.push(back[back.length - 1 - k]!); arcType.push(k === 0 ? -2 : types[back.length - 1 - k]!) }
+  }
+
+  // Candidate moves: kind 0 = swap u before... (u, v adjacent on resource t: v goes before u); kind 1 = u after v (insertion);
+  // kind 2 = v before u (insertion); kind 3 = op u to option v.
+  const cKind: number[] = [], cT: number[] = [], cU: number[] = [], cV: number[] = []
+  const seen = new Set<number>()
+  const addMove = (kind: number, t: number, u: number, v: number): void => {
+    const key = ((kind * 2 + Math.max(0, t)) * n + u) * (optDur.length + n) + v
+    if (seen.has(key)) return
+    seen.add(key)
+    cKind.push(kind); cT.push(t); cU.push(u); cV.push(v)
+  }
+  /** Applies a move; returns false when it cannot be made. */
+  const apply = (kind: number, t: number, u: number, v: number): boolean => {
+    if (kind === 0) {
+      // v directly follows u on resource t: put u right after v, and order them the same way on the other shared resource.
+      relocate(t, u, res[t]![u]!, v)
+      const o = 1 - t
+      if (res[o]![u]! >= 0 && res[o]![u]! === res[o]![v]!) {
+        if (succ[o]![u] === v) relocate(o, u, res[o]![u]!, v)
+        else {
+          // Only reorder when u is before v there; then v goes right before u.
+          let before = false
+          for (let x = succ[o]![u]!; x >= 0; x = succ[o]![x]!) if (x === v) { before = true; break }
+          if (before) relocate(o, v, res[o]![v]!, pred[o]![u]!)
+        }
+      }
+      return true
+    }
+    if (kind === 1) { relocate(t, u, res[t]![u]!, v); return true }
+    if (kind === 2) { relocate(t, v, res[t]![v]!, pred[t]![u]!); return true }
+    // Reassignment: op u takes option v, placed on the new machine and worker by its current start.
+    const o = v
+    const k = optMachine[o]!, w = optWorker[o]!
+    const placeAfter = (tt: number, kk: number): number => {
+      let a = -1
+      for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) { if (x === u) continue; if (rCur[x]! < rCur[u]! || (rCur[x]! === rCur[u]! && x < u)) a = x; else break }
+      return a
+    }
+    const oldOpt = opt[u]!
+    undo.push(M, u, res[M]![u]!, pred[M]![u]!, oldOpt)
+    unlink(M, u)
+    opt[u] = o; p[u] = optDur[o]!
+    linkAfter(M, u, k, placeAfter(M, k))
+    undo.push(W, u, res[W]![u]!, pred[W]![u]!, oldOpt)
+    unlink(W, u)
+    if (w >= 0) linkAfter(W, u, w, placeAfter(W, w)); else res[W]![u] = -1
+    return true
+  }
+  /** Would the move recreate an order the tabu list forbids? */
+  const isTabu = (kind: number, t: number, u: number, v: number): boolean => {
+    if (kind === 0) return getTabu(v, u) > iter
+    if (kind === 1) { for (let x = succ[t]![u]!; x >= 0; x = succ[t]![x]!) { if (getTabu(x, u) > iter) return true; if (x === v) break } return false }
+    if (kind === 2) { for (let x = pred[t]![v]!; x >= 0; x = pred[t]![x]!) { if (getTabu(v, x) > iter) return true; if (x === u) break } return false }
+    return tabuOpt[v]! > iter
+  }
+  /** Before a move is made: forbid undoing it for a while (the orders it reverses, or the option it leaves). */
+  const remember = (kind: number, t: number, u: number, v: number): void => {
+    const ten = iter + tenure()
+    if (kind === 0) setTabu(u, v, ten)
+    else if (kind === 1) { for (let x = succ[t]![u]!; x >= 0; x = succ[t]![x]!) { setTabu(u, x, ten); if (x === v) break } }
+    else if (kind === 2) { for (let x = pred[t]![v]!; x >= 0; x = pred[t]![x]!) { setTabu(x, v, ten); if (x === u) break } }
+    else tabuOpt[opt[u]!] = ten
+  }
+
+  const stopNow = (): boolean => {
+    if (iter >= maxIter) return true
+    if ((iter & 7) === 0) { if (settings.clock() >= settings.deadline) return true; if (settings.shouldStop?.()) return true }
+    return false
+  }
+  const targets: number[] = []
+  let failedKicks = 0, kickBase = Infinity, episodeBest = cur
+  while ((twtMode ? bestTwt > 0 : bestCmax > lowerBound) && !stopNow()) {
+    iter++
+    // Jobs whose completion the objective sees: tardy jobs (at most a handful, by weighted tardiness), or the last to finish.
+    targets.length = 0
+    if (twtMode) {
+      const tardy: number[] = []
+      for (let j = 0; j < jobs; j++) if (comp[j]! > due[j]!) tardy.push(j)
+      for (let pick = 0; pick < Math.min(TARGETS, tardy.length); pick++) {
+        let tot = 0
+        for (const j of tardy) tot += weight[j]! * (comp[j]! - due[j]!)
+        let r = rng.next() * tot, chosen = tardy.length - 1
+        for (let q = 0; q < tardy.length; q++) { r -= weight[tardy[q]!]! * (comp[tardy[q]!]! - due[tardy[q]!]!); if (r <= 0) { chosen = q; break } }
+        targets.push(tardy[chosen]!)
+        tardy.splice(chosen, 1)
+      }
+    }
+    if (targets.length === 0) {
+      let c = 0
+      for (let j = 0; j < jobs; j++) if (comp[j] === lastMakespan) { c++; if (rng.int(c) === 0) { targets.length = 0; targets.push(j) } }
+    }
+    cKind.length = 0; cT.length = 0; cU.length = 0; cV.length = 0; seen.clear()
+    for (const j of targets) {
+      tracePath(lastOf[j]!)
+      // Blocks: runs of the path joined by arcs of one resource.
+      let bs = 0
+      while (bs < path.length) {
+        let be = bs
+        const t = be + 1 < path.length ? arcType[be + 1]! : -1
+        if (t >= 0) while (be + 1 < path.length && arcType[be + 1] === t) be++
+        if (be > bs) {
+          for (let i = bs; i < be; i++) addMove(0, t, path[i]!, path[i + 1]!)
+          // Any operation of the block to its front or its back (the first and last pairs are the swaps above).
+          for (let i = bs; i <= be; i++) {
+            if (i < be - 1) addMove(1, t, path[i]!, path[be]!)
+            if (i > bs + 1) addMove(2, t, path[bs]!, path[i]!)
+          }
+        }
+        bs = be > bs ? be : bs + 1
+      }
+      for (const x of path) {
+        if (optStart[x + 1]! - optStart[x]! < 2) continue
+        for (let o = optStart[x]!; o < optStart[x + 1]!; o++) if (o !== opt[x]) addMove(3, -1, x, o)
+      }
+    }
+    let bestMove = -1, bestMoveVal = Infinity, ties = 0
+    let fallback = -1, fallbackVal = Infinity
+    for (let c = 0; c < cKind.length; c++) {
+      const mark = undo.length
+      const tabu = isTabu(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
+      apply(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
+      const v = evaluate(rTmp)
+      rollback(mark)
+      if (!Number.isFinite(v)) continue
+      if (!tabu || v < bestVal) {
+        if (v < bestMoveVal) { bestMoveVal = v; bestMove = c; ties = 1 } else if (v === bestMoveVal && rng.int(++ties) === 0) bestMove = c
+      } else if (v < fallbackVal) { fallbackVal = v; fallback = c }
+    }
+    if (bestMove < 0) bestMove = fallback
+    if (bestMove < 0) { perturb(); continue }
+    const k = cKind[bestMove]!, t = cT[bestMove]!, u = cU[bestMove]!, v = cV[bestMove]!
+    remember(k, t, u, v)
+    undo.length = 0
+    apply(k, t, u, v)
+    undo.length = 0
+    cur = evaluate(rCur)
+    if (cur < episodeBest - 1e-12) { episodeBest = cur; lastImprove = iter }
+    if (cur < bestVal - 1e-12) {
+      bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best)
+      settings.onImprove?.(twtMode ? lastTwt : lastMakespan, iter)
+    } else if (iter - lastImprove > maxStall) perturb()
+  }
+
+
+  /** Stagnation: back to the best, then a few random critical swaps. */
+  function perturb(): void {
+    // Each failed round shakes harder; now and then the walk goes on from where it is instead of from the best.
+    failedKicks = bestVal < kickBase ? 0 : failedKicks + 1
+    kickBase = bestVal
+    const from = rng.next()
+    if (from < RESTART_FRESH) { build(4); undo.length = 0 }
+    else if (from < RESTART_FRESH + RESTART_BEST) restore(best)
+    cur = evaluate(rCur)
+    tabuBefore?.fill(0); tabuMap?.clear(); tabuOpt.fill(0)
+    const kicks = 2 + rng.int(4) + Math.min(failedKicks, Math.max(4, n >> 3))
+    for (let q = 0; q < kicks; q++) {
+      const j = rng.int(jobs)
+      tracePath(lastOf[j]!)
+      const arcs: number[] = []
+      for (let i = 1; i < path.length; i++) if (arcType[i]! >= 0) arcs.push(i)
+      if (arcs.length === 0) continue
+      const i = arcs[rng.int(arcs.length)]!
+      const mark = undo.length
+      apply(0, arcType[i]!, path[i - 1]!, path[i]!)
+      if (!Number.isFinite(evaluate(rCur))) { rollback(mark); evaluate(rCur) }
+      undo.length = 0
+    }
+    cur = evaluate(rCur)
+    lastImprove = iter
+    episodeBest = cur
+    if (cur < bestVal) { bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best); settings.onImprove?.(twtMode ? lastTwt : lastMakespan, iter) }
+  }
+
+  restore(best)
+  evaluate(rCur)
+  const end = new Int32Array(n)
+  for (let i = 0; i < n; i++) end[i] = rCur[i]! + p[i]!
+  return { option: new Int32Array(opt), start: new Int32Array(rCur), end, weightedTardiness: lastTwt, makespan: lastMakespan, iterations: iter, evaluations, firstMs }
+}

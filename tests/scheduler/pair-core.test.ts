@@ -1,0 +1,159 @@
+// Due-date job shops and shops with a machine and a worker per step: tiny cases against exhaustive enumeration, kit cases
+// through the kit's independent checkers, and the solve CLI for every format.
+import { describe, it, expect } from 'vitest'
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs'
+import { spawnSync } from 'node:child_process'
+import { tmpdir } from 'node:os'
+import { dirname, join, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { solve, validatePlan, type Problem } from '../../server/scheduler/index.ts'
+import { parseFjw, parseTwt } from '../../server/scheduler/formats.ts'
+import { createRng } from '../../server/scheduler/random.ts'
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
+const benchDir = resolve(root, process.env.MILLGRAIN_BENCH_DIR ?? '../shared/bench')
+const tools = resolve(benchDir, '../tools')
+const haveKit = existsSync(join(benchDir, 'twt/bounds.json')) && existsSync(join(benchDir, 'fjw/bounds.json')) && existsSync(join(tools, 'check-twt.mjs'))
+if (!haveKit) console.warn(`BENCHMARK KIT MISSING at ${benchDir}: the .twt/.fjw kit tests are skipped (set MILLGRAIN_BENCH_DIR).`)
+const clock = () => performance.now()
+
+/** A tiny shop: per job a chain of steps, each with (machine, worker, duration) options; worker -1 = none. */
+interface Tiny { jobs: { due: number; weight: number; steps: [number, number, number][][] }[]; machines: number; workers: number }
+
+/**
+ * Exhaustive optimum, written apart from the engine: every assignment of options × every interleaving of the job chains,
+ * each step appended to its machine and worker at the earliest time (this reaches every semi-active schedule, among which
+ * a regular objective such as makespan or weighted tardiness has an optimum).
+ */
+function bruteForce(t: Tiny, objective: 'twt' | 'makespan'): number {
+  const steps = t.jobs.flatMap((j, jj) => j.steps.map((opts, k) => ({ jj, k, opts })))
+  let best = Infinity
+  const choice = new Array(steps.length).fill(0)
+  const assign = (i: number): void => {
+    if (i === steps.length) { interleave(); return }
+    for (let o = 0; o < steps[i]!.opts.length; o++) { choice[i] = o; assign(i + 1) }
+  }
+  const index = (jj: number, k: number) => steps.findIndex((s) => s.jj === jj && s.k === k)
+  const interleave = (): void => {
+    const next = t.jobs.map(() => 0), jobEnd = t.jobs.map(() => 0)
+    const mFree = new Array(t.machines).fill(0), wFree = new Array(t.workers).fill(0)
+    const rec = (placed: number): void => {
+      if (placed === steps.length) {
+        const v = objective === 'makespan' ? Math.max(...jobEnd) : t.jobs.reduce((a, j, jj) => a + j.weight * Math.max(0, jobEnd[jj]! - j.due), 0)
+        if (v < best) best = v
+        return
+      }
+      for (let jj = 0; jj < t.jobs.length; jj++) {
+        if (next[jj]! >= t.jobs[jj]!.steps.length) continue
+        const i = index(jj, next[jj]!)
+        const [m, w, d] = steps[i]!.opts[choice[i]!]!
+        const s = Math.max(jobEnd[jj]!, mFree[m]!, w >= 0 ? wFree[w]! : 0)
+        const saved = [jobEnd[jj]!, mFree[m]!, w >= 0 ? wFree[w]! : 0]
+        jobEnd[jj] = s + d; mFree[m] = s + d; if (w >= 0) wFree[w] = s + d; next[jj]!++
+        rec(placed + 1)
+        next[jj]!--; jobEnd[jj] = saved[0]!; mFree[m] = saved[1]!; if (w >= 0) wFree[w] = saved[2]!
+      }
+    }
+    rec(0)
+  }
+  assign(0)
+  return best
+}
+
+/** The tiny shop as an engine Problem (always-open machines and workers). */
+function toProblem(t: Tiny): Problem {
+  const horizon = 10_000
+  const always = [{ start: 0, end: horizon }]
+  return {
+    origin: '2025-01-06', now: 0, horizon, workshopDays: always,
+    benches: Array.from({ length: t.machines }, (_, k) => ({ id: `m${k}`, name: `m${k}`, available: always })),
+    people: Array.from({ length: t.workers }, (_, k) => ({ id: `w${k}`, name: `w${k}`, available: always })),
+    jobs: t.jobs.map((j, jj) => ({ id: `j${jj}`, name: `j${jj}`, release: 0, due: j.due, weight: j.weight })),
+    operations: t.jobs.flatMap((j, jj) => j.steps.map((opts, k) => ({
+      id: `j${jj}o${k}`, jobId: `j${jj}`, name: `j${jj}o${k}`, kind: 'x', predecessors: k > 0 ? [`j${jj}o${k - 1}`] : [],
+      options: opts.map(([m, w, d]) => ({ benchId: `m${m}`, personId: w >= 0 ? `w${w}` : null, minutes: d })),
+    }))),
+  }
+}
+
+function randomTwt(seed: number): Tiny {
+  const rng = createRng(seed)
+  const machines = 3
+  const jobs = Array.from({ length: 3 }, (_, jj) => {
+    const order = [0, 1, 2].sort(() => rng.next() - 0.5)
+    const steps = order.map((m) => [[m, -1, 1 + rng.int(9)]] as [number, number, number][])
+    const total = steps.reduce((a, s) => a + s[0]![2], 0)
+    return { due: Math.floor(total * (1 + rng.next() * 0.6)), weight: [4, 2, 1][jj]!, steps }
+  })
+  return { jobs, machines, workers: 0 }
+}
+
+function randomFjw(seed: number): Tiny {
+  const rng = createRng(seed)
+  const jobs = Array.from({ length: 3 }, () => ({
+    due: 0, weight: 1,
+    steps: Array.from({ length: 2 }, () => {
+      const opts: [number, number, number][] = []
+      for (let m = 0; m < 2; m++) for (let w = 0; w < 2; w++) if (rng.next() < 0.6 || opts.length === 0 && m === 1 && w === 1) opts.push([m, w, 2 + rng.int(7)])
+      return opts
+    }),
+  }))
+  return { jobs, machines: 2, workers: 2 }
+}
+
+describe('due dates and workers on tiny shops (against exhaustive enumeration)', () => {
+  for (let seed = 1; seed <= 6; seed++) {
+    it(`when tiny due-date job shop #${seed} is solved, then its weighted tardiness is the enumerated optimum`, () => {
+      const t = randomTwt(seed)
+      const problem = toProblem(t)
+      const plan = solve(problem, { seed: 1, timeLimitMs: 20_000, maxIterations: 3000, objective: ['weightedTardiness', 'makespan'] }, { clock })
+      expect(validatePlan(problem, plan)).toEqual([])
+      const optimum = bruteForce(t, 'twt')
+      expect(plan.score.weightedTardiness).toBe(optimum)
+    })
+    it(`when tiny machine-and-worker shop #${seed} is solved, then its makespan is the enumerated optimum`, () => {
+      const t = randomFjw(seed)
+      const problem = toProblem(t)
+      const plan = solve(problem, { seed: 1, timeLimitMs: 20_000, maxIterations: 3000, objective: ['makespan'] }, { clock })
+      expect(validatePlan(problem, plan)).toEqual([])
+      expect(plan.score.makespan).toBe(bruteForce(t, 'makespan'))
+    })
+  }
+})
+
+describe.skipIf(!haveKit)('kit due-date and worker shops (skipped when the kit is absent)', () => {
+  it('when la01 (f = 1.3) is solved for a fixed number of iterations, then its TWT is within 3 % of the published best known', () => {
+    const problem = parseTwt(readFileSync(join(benchDir, 'twt/la01-f13.twt'), 'utf8'))
+    const plan = solve(problem, { seed: 1, timeLimitMs: 60_000, maxIterations: 20_000, objective: ['weightedTardiness', 'makespan'] }, { clock })
+    // Best known TWT la01 f=1.3: 2299 (bounds.json, values reported with Kuhpfahl 2015).
+    expect(plan.score.weightedTardiness).toBeLessThanOrEqual(Math.floor(2299 * 1.03))
+    expect(validatePlan(problem, plan)).toEqual([])
+  })
+
+  it('when kacem1 with workers is solved, then it reaches the published best known makespan 11', () => {
+    const problem = parseFjw(readFileSync(join(benchDir, 'fjw/kacem1.fjw'), 'utf8'))
+    const plan = solve(problem, { seed: 1, timeLimitMs: 60_000, maxIterations: 5_000, objective: ['makespan'] }, { clock })
+    // kacem1 upper bound 11 (bounds.json, Hutter et al. 2025 FJSSP-W set).
+    expect(plan.score.makespan).toBeLessThanOrEqual(11)
+  })
+
+  it('when the solve CLI runs on one file of each format, then each output passes the kit\'s checker for it', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'millgrain-cli-'))
+    const tsx = join(root, 'node_modules/.bin/tsx')
+    const cases: [string, string, string[]][] = [
+      [join(benchDir, 'twt/la02-f13.twt'), 'check-twt.mjs', []],
+      [join(benchDir, 'fjw/mk01.fjw'), 'check-fjw.mjs', []],
+      [join(benchDir, 'workshop/ws-a.json'), 'check-workshop.mjs', []],
+    ]
+    for (const [file, checker] of cases) {
+      const out = spawnSync(tsx, [join(root, 'scripts/solve.ts'), '--time-limit', '1', file], { encoding: 'utf8' })
+      expect(out.status, out.stderr).toBe(0)
+      expect(out.stdout.trim().split('\n')).toHaveLength(1)
+      const plan = join(dir, `${file.split('/').pop()}.out.json`)
+      writeFileSync(plan, out.stdout)
+      const check = spawnSync(process.execPath, [join(tools, checker), file, plan], { encoding: 'utf8' })
+      expect(check.stdout, `${file}: ${check.stdout}${check.stderr}`).toMatch(/ valid /)
+      expect(check.status).toBe(0)
+    }
+  })
+})

@@ -10,5 +10,6 @@ import { sessionRoutes } from './session'
 import { promiseRoutes } from './promise'
 import { mailRoutes } from './mail'
 import { fileRoutes } from './files'
+import { pauseReasonRoutes } from './pause-reasons'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes] as RouteSpec[]

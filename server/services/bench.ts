@@ -2,7 +2,7 @@
 import { and, asc, desc, eq, inArray, isNull, ne, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/pg-core'
 import { STAFF } from '../../shared/domain/roles'
-import { HELD_OPERATION, PAUSE_REASON_LABELS, canMoveOperation, cautionsFor, type OperationStatus } from '../../shared/domain/status'
+import { HELD_OPERATION, canMoveOperation, cautionsFor, type OperationStatus } from '../../shared/domain/status'
 import type { BenchOperation, BenchStones, ClaimInput, FinishInput, OutsideInput, PauseInput, ReleaseInput, StartInput, TransitionResult } from '../../shared/schemas/bench-work'
 import type { PieceParams } from '../../shared/schemas/order'
 import type { Db, Trx, Tx } from '../db/client'
@@ -11,6 +11,7 @@ import { AppError, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { lockJobBag, refreshReadiness, syncJobBagStatus, type BagChange } from './job-bags'
+import { requirePauseReason } from './pause-reasons'
 import { closeRecord, effectiveRecords, actualMinutesByOperation, openRecord } from './time-records'
 
 const claimer = alias(people, 'claimer')
@@ -266,9 +267,10 @@ export function pause(deps: Deps, actor: Actor, operationId: number, input: Paus
   return transition(deps, actor, { requestId: input.requestId, action: 'pause', operationId }, async ({ tx, op, now }) => {
     if (op.status !== 'running' || !canMoveOperation(op.status, 'paused')) refuseMove(op, 'paused', null)
     const person = await holderFor(tx, actor, op, input.personId)
-    const r = await closeRecord(tx, op.id, now, input.reason, input.note)
+    const reason = await requirePauseReason(tx, actor.workshopId, input.reason, input.note)
+    const r = await closeRecord(tx, op.id, now, reason.code, input.note)
     await move(tx, op, 'paused')
-    await audit(tx, actor, 'pause', 'operation', op.id, { from: op.status, to: 'paused', personId: person.id, reason: input.reason, reasonLabel: PAUSE_REASON_LABELS[input.reason], note: input.note, timeRecordId: r?.id ?? null, jobBagId: op.jobBagId })
+    await audit(tx, actor, 'pause', 'operation', op.id, { from: op.status, to: 'paused', personId: person.id, reason: reason.code, reasonLabel: reason.label, note: input.note, timeRecordId: r?.id ?? null, jobBagId: op.jobBagId })
     return { status: 'paused' }
   })
 }

@@ -7,6 +7,7 @@ import { benches, jobBags, operations, people, timeRecordCorrections, timeRecord
 import { AppError, invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
+import { requireEndReason } from './pause-reasons'
 
 const minutesBetween = (a: string, b: string) => Math.max(0, (Date.parse(b) - Date.parse(a)) / 60_000)
 const round1 = (n: number) => Math.round(n * 10) / 10
@@ -113,6 +114,7 @@ export async function addTimeRecord({ db, realtime }: Deps, actor: Actor, operat
       if (!b) throw invalid('benchId', 'is not a bench of this workshop')
     }
     if (Date.parse(input.endedAt) > Date.now() + 60_000) throw invalid('endedAt', 'must not be in the future')
+    await requireEndReason(tx, actor.workshopId, input.endReason)
     const [r] = await tx.insert(timeRecords).values({ operationId, personId: input.personId, benchId: input.benchId, startedAt: input.startedAt, endedAt: input.endedAt, endReason: input.endReason, note: '' }).returning()
     await tx.insert(timeRecordCorrections).values({ workshopId: actor.workshopId, timeRecordId: r!.id, kind: 'add', startedAt: input.startedAt, endedAt: input.endedAt, reason: input.reason, correctedBy: actor.userId })
     const bumped = await bumpOperation(tx, operationId)

@@ -67,19 +67,6 @@ export function deriveJobBagStatus(current: string, operationStatuses: readonly 
   return started ? 'in-work' : 'waiting'
 }
 
-/** Why a person stops work for now. */
-export const PAUSE_REASONS = ['waiting-for-parts', 'end-of-day', 'question-for-manager', 'other'] as const
-export type PauseReason = (typeof PAUSE_REASONS)[number]
-export const PAUSE_REASON_LABELS: Record<PauseReason, string> = {
-  'waiting-for-parts': 'Waiting for parts',
-  'end-of-day': 'End of day',
-  'question-for-manager': 'Question for the manager',
-  other: 'Other',
-}
-/** How a time record ends: one of the pause reasons, or finished. */
-export const END_REASONS = [...PAUSE_REASONS, 'finished'] as const
-export type EndReason = (typeof END_REASONS)[number]
-
 /** The cautions to show and print for a list of hazards (unknown ones are ignored), footer last. */
 export function cautionsFor(hazards: readonly string[]): string[] {
   const list = hazards.filter((h): h is Hazard => (HAZARDS as readonly string[]).includes(h)).map((h) => HAZARD_CAUTIONS[h])

@@ -1,11 +1,10 @@
 // Bench API: next for me, my work, and the transitions (each carries a requestId so a replay gets the first answer).
 import type { BenchOperation, TransitionResult } from '@shared/schemas/bench-work'
-import type { PauseReason } from '@shared/domain/status'
 import { api } from './client'
 
 export interface BenchList { person: { id: number; name: string }; items: BenchOperation[] }
 export type BenchAction = 'claim' | 'release' | 'start' | 'pause' | 'resume' | 'finish'
-export interface TransitionBody { requestId: string; benchId?: number; acknowledgeHazards?: boolean; reason?: PauseReason; note?: string; personId?: number }
+export interface TransitionBody { requestId: string; benchId?: number; acknowledgeHazards?: boolean; reason?: string; note?: string; personId?: number }
 
 export const nextForMe = (benchId: number) => api.get<BenchList>('/bench/next', { benchId })
 export const myWork = () => api.get<BenchList>('/bench/mine')

@@ -95,6 +95,10 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   'POST /bench/operations/:id/pause': WORKERS,
   'POST /bench/operations/:id/resume': WORKERS,
   'POST /bench/operations/:id/finish': WORKERS,
+  // pause reasons: everyone reads them (bench dialog, job bag history); the owner keeps the list
+  'GET /pause-reasons': ALL,
+  'POST /pause-reasons': OWNER,
+  'PATCH /pause-reasons/:id': OWNER,
   // outside work (casting, hallmarking) sent and booked back by the manager
   'POST /operations/:id/send-out': STAFF,
   'POST /operations/:id/receive': STAFF,

@@ -1,6 +1,6 @@
-// Bench floor records: replay-safe transition requests, time record corrections, estimate changes with their reasons.
-import { index, integer, jsonb, pgTable, real, text, timestamp } from 'drizzle-orm/pg-core'
-import { createdAt, pk } from './common'
+// Bench floor records: replay-safe transition requests, time record corrections, estimate changes with their reasons, the workshop's pause reasons.
+import { boolean, index, integer, jsonb, pgTable, real, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core'
+import { createdAt, pk, version } from './common'
 import { operations, timeRecords } from './work'
 import { users, workshops } from './workshop'
 
@@ -47,3 +47,19 @@ export const estimateChanges = pgTable('estimate_changes', {
   changedBy: integer().notNull().references(() => users.id),
   createdAt: createdAt(),
 }, (t) => [index().on(t.operationId)])
+
+/**
+ * The workshop's own reasons for pausing work (break, waiting for stones…). Time records keep the code; a reason is
+ * switched off rather than deleted, so past records keep their name.
+ */
+export const pauseReasons = pgTable('pause_reasons', {
+  id: pk(),
+  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
+  code: text().notNull(),
+  label: text().notNull(),
+  needsNote: boolean().notNull().default(false),
+  active: boolean().notNull().default(true),
+  sort: integer().notNull().default(0),
+  version: version(),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex().on(t.workshopId, t.code)])

@@ -1,10 +1,10 @@
 // Benchmark: every kit instance at a time limit, checked twice (our validator and the kit's checker), beside the HiGHS MIP on small ones.
-// usage: npm run bench:engine -- [--time-limit S] [--only ft06,mk01] [--seed N]
+// usage: npm run bench:engine -- [--time-limit S] [--only ft06,mk01,la01-f13] [--seed N] [--sets shop,twt,fjw]
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { spawnSync } from 'node:child_process'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
-import { parseShopFile, shopToProblem } from '../server/scheduler/formats.ts'
+import { parseFjw, parseShopFile, parseTwt, shopToProblem } from '../server/scheduler/formats.ts'
 import { solve, validatePlan } from '../server/scheduler/index.ts'
 import { solveMip } from '../server/scheduler/reference/mip.ts'
 
@@ -15,11 +15,12 @@ const checker = resolve(benchDir, '../tools/check-schedule.mjs')
 interface Bound { name: string; kind: string; file: string; jobs: number; machines: number; optimum: number | null; lower_bound: number; upper_bound: number }
 
 const args = process.argv.slice(2)
-let timeLimit = 10, seed = 1, only: string[] | null = null
+let timeLimit = 10, seed = 1, only: string[] | null = null, sets = ['shop', 'twt', 'fjw']
 for (let i = 0; i < args.length; i++) {
   if (args[i] === '--time-limit') timeLimit = Number(args[++i])
   else if (args[i] === '--seed') seed = Number(args[++i])
   else if (args[i] === '--only') only = args[++i]!.split(',')
+  else if (args[i] === '--sets') sets = args[++i]!.split(',')
 }
 if (!existsSync(join(benchDir, 'bounds.json'))) {
   console.error(`No benchmark kit at ${benchDir} (set MILLGRAIN_BENCH_DIR).`)
@@ -33,7 +34,7 @@ const rows: Record<string, unknown>[] = []
 const pad = (s: unknown, n: number) => String(s).padEnd(n)
 console.log(`time limit ${timeLimit}s per instance, seed ${seed}, kit ${benchDir}`)
 console.log([pad('instance', 9), pad('size', 7), pad('best', 6), pad('lb', 6), pad('ours', 6), pad('gap%', 7), pad('to best s', 10), pad('valid', 6), pad('MIP', 14), pad('MIP gap%', 8)].join(' '))
-for (const b of bounds) {
+for (const b of sets.includes('shop') ? bounds : []) {
   if (only && !only.includes(b.name)) continue
   const path = join(benchDir, b.file)
   const file = parseShopFile(b.file, readFileSync(path, 'utf8'))
@@ -71,6 +72,40 @@ for (const f of families) {
   means[f] = list.reduce((a, r) => a + (r.gapPercent as number), 0) / list.length
   console.log(`  ${pad(f, 6)} ${means[f]!.toFixed(2)} % over ${list.length} instance(s)`)
 }
+
+// Due dates and weights (.twt, total weighted tardiness) and machine + worker shops (.fjw, makespan): engine validator and kit checker.
+const extra: Record<string, unknown>[] = []
+for (const set of (['twt', 'fjw'] as const).filter((x) => sets.includes(x))) {
+  const dir = join(benchDir, set)
+  if (!existsSync(join(dir, 'bounds.json'))) { console.log(`\n(no ${set} set in the kit)`); continue }
+  const list: { name: string; file: string; best_known_twt?: number; upper_bound?: number }[] = JSON.parse(readFileSync(join(dir, 'bounds.json'), 'utf8'))
+  const tool = resolve(benchDir, `../tools/check-${set}.mjs`)
+  console.log(`\n${set === 'twt' ? 'total weighted tardiness (.twt, f = 1.3)' : 'flexible shop with workers (.fjw, makespan)'}, ${timeLimit}s per instance`)
+  console.log([pad('instance', 9), pad('best', 7), pad('ours', 7), pad('gap%', 7), pad('to best s', 10), pad('evaluated/s', 12), pad('valid', 6)].join(' '))
+  const gaps: number[] = []
+  for (const b of list) {
+    if (only && !only.includes(b.name)) continue
+    const path = join(dir, b.file)
+    const text = readFileSync(path, 'utf8')
+    const problem = set === 'twt' ? parseTwt(text) : parseFjw(text)
+    let bestAt = 0
+    const plan = solve(problem, { seed, timeLimitMs: timeLimit * 1000, objective: set === 'twt' ? ['weightedTardiness', 'makespan'] : ['makespan'] }, { clock: () => performance.now(), onProgress: (p) => { bestAt = p.elapsedMs } })
+    const ours = set === 'twt' ? plan.score.weightedTardiness : plan.score.makespan
+    const best = (set === 'twt' ? b.best_known_twt : b.upper_bound)!
+    const operations = plan.operations.map((p) => { const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!; return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), ...(set === 'fjw' ? { worker: Number(p.personId!.slice(1)) } : {}), start: p.start, end: p.end } })
+    const schedPath = join(outDir, `${b.name}.schedule.json`)
+    writeFileSync(schedPath, JSON.stringify(set === 'twt' ? { objective: ours, operations } : { makespan: ours, operations }))
+    const kit = existsSync(tool) ? spawnSync(process.execPath, [tool, path, schedPath, String(best)], { encoding: 'utf8' }) : null
+    const valid = validatePlan(problem, plan).length === 0 && (kit ? kit.status === 0 : true)
+    const gap = best > 0 ? ((ours - best) / best) * 100 : 0
+    gaps.push(gap)
+    const rate = plan.stats.evaluations ? Math.round(plan.stats.evaluations / (plan.stats.elapsedMs / 1000)) : ''
+    console.log([pad(b.name, 9), pad(best, 7), pad(ours, 7), pad(gap.toFixed(2), 7), pad((bestAt / 1000).toFixed(2), 10), pad(rate, 12), pad(valid ? 'yes' : 'NO', 6)].join(' '))
+    if (!valid) console.log(`  ! ${kit?.stdout.trim() ?? ''}`)
+    extra.push({ set, instance: b.name, best, ours, gapPercent: gap, secondsToBest: bestAt / 1000, evaluations: plan.stats.evaluations, iterations: plan.stats.iterations, valid })
+  }
+  if (gaps.length) { means[set] = gaps.reduce((a, g) => a + g, 0) / gaps.length; console.log(`  mean gap ${means[set]!.toFixed(2)} % over ${gaps.length} instance(s)`) }
+}
 const outFile = join(outDir, `engine-${timeLimit}s.json`)
-writeFileSync(outFile, JSON.stringify({ timeLimitSeconds: timeLimit, seed, benchDir, rows, meanGapPercentByFamily: means }, null, 2))
+writeFileSync(outFile, JSON.stringify({ timeLimitSeconds: timeLimit, seed, benchDir, rows, extra, meanGapPercentByFamily: means }, null, 2))
 console.log(`\nwrote ${outFile}`)

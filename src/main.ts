@@ -5,6 +5,8 @@ import '@fontsource/fira-sans/600.css'
 import '@fontsource/fira-sans/700.css'
 import './styles/theme.css'
 import './styles/app.css'
+// First, before any module that builds or parses a schema at import time.
+import './zod-config'
 import { createApp } from 'vue'
 import { createPinia } from 'pinia'
 import App from './App.vue'

@@ -1,0 +1,27 @@
+// Our own Content-Security-Policy must not break our own screens: every page each role can reach loads without a policy violation.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { ROLES } from '../../shared/domain/roles'
+import { navTargets, signInPage, startE2E, type E2E } from '../setup/e2e'
+
+let e2e: E2E
+beforeAll(async () => { e2e = await startE2E() })
+afterAll(async () => { await e2e?.close() })
+
+describe('content security policy in the browser', () => {
+  it.each(ROLES)('when the %s opens every page of their navigation, then Chromium reports no Content-Security-Policy violation', async (role) => {
+    const context = await e2e.newContext()
+    const page = await signInPage(context, role)
+    const violations: string[] = []
+    page.on('console', (m) => { if (/Content Security Policy|Refused to (load|execute|create|connect|apply|frame)/i.test(m.text())) violations.push(`${page.url()}: ${m.text()}`) })
+    // securitypolicyviolation events catch what the console may word differently.
+    await context.addInitScript(() => document.addEventListener('securitypolicyviolation', (e) => console.error(`Content Security Policy violation: ${e.violatedDirective} ${e.blockedURI} at ${e.sourceFile}:${e.lineNumber}:${e.columnNumber}`)))
+    const targets = await navTargets(page)
+    expect(targets.length).toBeGreaterThan(0)
+    for (const to of targets) {
+      await page.goto(to)
+      await page.waitForLoadState('networkidle').catch(() => undefined)
+    }
+    expect(violations).toEqual([])
+    await context.close()
+  })
+})

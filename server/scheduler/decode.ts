@@ -178,6 +178,7 @@ export interface Decoded {
   weightedTardiness: number
   makespan: number
   moves: number
+  shifted: number
 }
 
 /** Earliest start at or after t on option `o` that avoids busy bench and person time; null past the horizon. */
@@ -360,18 +361,22 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
     for (const p of c.preds[i]!) if (end[p]! + c.waitAfter[p]! > start[i]!) { brokenPins++; break }
   }
   const completion = new Float64Array(c.jobs.length).fill(-Infinity)
-  let makespan = 0, moves = 0
+  let makespan = 0, moves = 0, shifted = 0
   for (let i = 0; i < n; i++) {
     const j = c.jobOf[i]!
     if (end[i]! > completion[j]!) completion[j] = end[i]!
     if (end[i]! > makespan) makespan = end[i]!
-    if (c.problem.previous?.[c.ops[i]!.id] && option[i] !== c.previousOption[i] && !c.fixedAt[i]) moves++
+    const prev = c.problem.previous?.[c.ops[i]!.id]
+    if (prev && !c.fixedAt[i]) {
+      if (option[i] !== c.previousOption[i]) moves++
+      else if (Math.abs(start[i]! - prev.start) >= 1) shifted++
+    }
   }
   let weightedTardiness = 0
   c.jobs.forEach((job, j) => {
     if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
   })
-  return { start, end, option, segments, why, blocker, overflow, brokenPins, completion, weightedTardiness, makespan, moves }
+  return { start, end, option, segments, why, blocker, overflow, brokenPins, completion, weightedTardiness, makespan, moves, shifted }
 }
 
 /** Lexicographic comparison of two decodes: negative when a is better; overflowing decodes are always worse. */
@@ -422,7 +427,7 @@ export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
     const lateness = job.due === null ? 0 : completion - job.due
     jobs.push({ jobId: job.id, completion, lateness, tardiness: Math.max(0, lateness) })
   })
-  const score: Score = { weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, feasible: true, violations: [] }
+  const score: Score = { weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, shifted: d.shifted, feasible: true, violations: [] }
   return { operations, jobs, score, stats }
 }
 

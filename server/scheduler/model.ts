@@ -85,6 +85,8 @@ export interface Score {
   makespan: number
   /** Previously planned operations now on another bench or with another person. */
   moves: number
+  /** Previously planned operations kept on their bench and person but starting at another minute. */
+  shifted?: number
   feasible: boolean
   violations: string[]
 }
@@ -94,16 +96,27 @@ export interface Plan {
   jobs: { jobId: string; completion: number; lateness: number; tardiness: number }[]
   score: Score
   /** evaluations: candidate schedules evaluated exactly, where the search counts them. */
-  stats: { iterations: number; elapsedMs: number; firstPlanMs: number; evaluations?: number }
+  stats: {
+    iterations: number; elapsedMs: number; firstPlanMs: number; evaluations?: number
+    /** The previous plan kept as it is (re-timed from now): what a new plan must beat to be worth its changes. */
+    previous?: { weightedTardiness: number; makespan: number }
+  }
 }
 
-export type Objective = 'weightedTardiness' | 'makespan' | 'moves'
+export type Objective = 'weightedTardiness' | 'makespan' | 'moves' | 'shifted'
+
+/** With a previous plan: 'small-changes' buys a change only with less lateness; 'best-dates' also with an earlier finish. */
+export type Stability = 'small-changes' | 'best-dates'
 
 export interface SolveOptions {
   seed: number
   timeLimitMs: number
-  /** Lexicographic order; default ['weightedTardiness', 'makespan', 'moves']. */
+  /**
+   * Lexicographic order; default ['weightedTardiness', 'makespan', 'moves'], and with a previous plan by `stability`:
+   * small-changes ['weightedTardiness', 'moves', 'shifted', 'makespan'], best-dates ['weightedTardiness', 'makespan', 'moves', 'shifted'].
+   */
   objective?: Objective[]
+  stability?: Stability
   maxIterations?: number
 }
 

@@ -48,6 +48,8 @@ export interface PairSolution {
 }
 
 const M = 0, W = 1 // resource types: machine, worker
+/** Reassignments evaluated exactly per iteration (the best by estimate). */
+const REASSIGN_EVALUATED = 6
 /** Tardy jobs whose critical paths feed one iteration's moves (chosen by weighted tardiness). */
 const TARGETS = 6
 /** On stagnation: share of restarts from a fresh shaken dispatch, from the best, else from where the walk is. */
@@ -84,10 +86,15 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const succ = [new Int32Array(n).fill(-1), new Int32Array(n).fill(-1)]
   const head = [new Int32Array(s.machines).fill(-1), new Int32Array(Math.max(1, s.workers)).fill(-1)]
 
+  // Order positions of the current schedule; a move only changes heads from the first position whose in-arcs it touches.
+  const pos = new Int32Array(n), topoCur = new Int32Array(n), prefMax = new Int32Array(n + 1)
+  let touched = n
+  const touch = (x: number): void => { if (x >= 0 && pos[x]! < touched) touched = pos[x]! }
   const unlink = (t: number, x: number): void => {
     const k = res[t]![x]!
     if (k < 0) return
     const a = pred[t]![x]!, b = succ[t]![x]!
+    touch(x); touch(b)
     if (a >= 0) succ[t]![a] = b; else head[t]![k] = b
     if (b >= 0) pred[t]![b] = a
     pred[t]![x] = -1; succ[t]![x] = -1
@@ -96,6 +103,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     res[t]![x] = k
     if (k < 0) return
     const b = a >= 0 ? succ[t]![a]! : head[t]![k]!
+    touch(x); touch(b)
     pred[t]![x] = a; succ[t]![x] = b
     if (a >= 0) succ[t]![a] = x; else head[t]![k] = x
     if (b >= 0) pred[t]![b] = x
@@ -147,6 +155,15 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       if (ws >= 0 && --indeg[ws]! === 0) topo[qt++] = ws
     }
     if (qt !== n) return Infinity
+    if (r === rCur) {
+      topoCur.set(topo)
+      let mx = 0
+      for (let k = 0; k < n; k++) { const x = topo[k]!; pos[x] = k; prefMax[k] = mx; if (r[x]! + p[x]! > mx) mx = r[x]! + p[x]! }
+      prefMax[n] = mx
+    }
+    return finish(r, cmax)
+  }
+  const finish = (r: Int32Array, cmax: number): number => {
     let twt = 0
     for (let j = 0; j < jobs; j++) {
       const l = lastOf[j]!
@@ -157,6 +174,41 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     lastMakespan = cmax; lastTwt = twt
     // Makespan breaks ties between equal weighted tardiness, so plateaus still lead somewhere.
     return twtMode ? twt + cmax * 1e-7 : cmax
+  }
+
+  /** Heads after a move, into rTmp: positions before the first touched one keep the current heads; the rest by Kahn's order. */
+  const evaluateMove = (): number => {
+    const from = touched
+    if (from >= n) { rTmp.set(rCur); return finish(rTmp, prefMax[n]!) }
+    evaluations++
+    rTmp.set(rCur)
+    const pm = pred[M]!, pw = pred[W]!, sm = succ[M]!, sw = succ[W]!
+    let qt = 0
+    for (let k = from; k < n; k++) {
+      const x = topoCur[k]!
+      const a = jobPred[x]!, b = pm[x]!, c = pw[x]!
+      const d = (a >= 0 && pos[a]! >= from ? 1 : 0) + (b >= 0 && pos[b]! >= from ? 1 : 0) + (c >= 0 && pos[c]! >= from ? 1 : 0)
+      indeg[x] = d
+      if (d === 0) topo[qt++] = x
+    }
+    let qh = 0, cmax = prefMax[from]!
+    const r = rTmp
+    while (qh < qt) {
+      const x = topo[qh++]!
+      let rx = release[x]!
+      const a = jobPred[x]!, b = pm[x]!, c = pw[x]!
+      if (a >= 0) { const e = r[a]! + p[a]!; if (e > rx) rx = e }
+      if (b >= 0) { const e = r[b]! + p[b]!; if (e > rx) rx = e }
+      if (c >= 0) { const e = r[c]! + p[c]!; if (e > rx) rx = e }
+      r[x] = rx
+      if (rx + p[x]! > cmax) cmax = rx + p[x]!
+      const js = jobSucc[x]!, ms = sm[x]!, ws = sw[x]!
+      if (js >= 0 && --indeg[js]! === 0) topo[qt++] = js
+      if (ms >= 0 && --indeg[ms]! === 0) topo[qt++] = ms
+      if (ws >= 0 && --indeg[ws]! === 0) topo[qt++] = ws
+    }
+    if (qt !== n - from) return Infinity
+    return finish(r, cmax)
   }
 
   // ---------- first schedule: the best of a few dispatching rules ----------
@@ -335,6 +387,40 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     if (kind === 2) { for (let x = pred[t]![v]!; x >= 0; x = pred[t]![x]!) { if (getTabu(v, x) > iter) return true; if (x === u) break } return false }
     return tabuOpt[v]! > iter
   }
+  // Tails of the current schedule (longest path after each step, excluding it), from the order of its last evaluation.
+  const qCur = new Int32Array(n)
+  const computeTails = (): void => {
+    const sm = succ[M]!, sw = succ[W]!
+    for (let k = n - 1; k >= 0; k--) {
+      const x = topoCur[k]!
+      let qx = 0
+      const a = jobSucc[x]!, b = sm[x]!, c = sw[x]!
+      if (a >= 0) { const e = p[a]! + qCur[a]!; if (e > qx) qx = e }
+      if (b >= 0) { const e = p[b]! + qCur[b]!; if (e > qx) qx = e }
+      if (c >= 0) { const e = p[c]! + qCur[c]!; if (e > qx) qx = e }
+      qCur[x] = qx
+    }
+  }
+  const skip: number[] = []
+  const estimateOf: number[] = []
+  /** Longest path through step u once it takes option o at the place the move would give it. */
+  const reassignEstimate = (u: number, o: number): number => {
+    const k = optMachine[o]!, w = optWorker[o]!
+    const jp = jobPred[u]!, js = jobSucc[u]!
+    let h = Math.max(release[u]!, jp >= 0 ? rCur[jp]! + p[jp]! : 0)
+    let t = js >= 0 ? p[js]! + qCur[js]! : 0
+    const around = (tt: number, kk: number): void => {
+      let a = -1, b = head[tt]![kk]!
+      for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) { if (x === u) { b = succ[tt]![x]!; continue } if (rCur[x]! < rCur[u]! || (rCur[x]! === rCur[u]! && x < u)) { a = x; b = succ[tt]![x]! } else break }
+      if (b === u) b = succ[tt]![u]!
+      if (a >= 0) h = Math.max(h, rCur[a]! + p[a]!)
+      if (b >= 0) t = Math.max(t, p[b]! + qCur[b]!)
+    }
+    around(M, k)
+    if (w >= 0) around(W, w)
+    return h + optDur[o]! + t
+  }
+
   /** Before a move is made: forbid undoing it for a while (the orders it reverses, or the option it leaves). */
   const remember = (kind: number, t: number, u: number, v: number): void => {
     const ten = iter + tenure()
@@ -353,6 +439,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   let failedKicks = 0, kickBase = Infinity, episodeBest = cur
   while ((twtMode ? bestTwt > 0 : bestCmax > lowerBound) && !stopNow()) {
     iter++
+    computeTails()
     // Jobs whose completion the objective sees: tardy jobs (at most a handful, by weighted tardiness), or the last to finish.
     targets.length = 0
     if (twtMode) {
@@ -395,13 +482,23 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
         for (let o = optStart[x]!; o < optStart[x + 1]!; o++) if (o !== opt[x]) addMove(3, -1, x, o)
       }
     }
+    // Reassignments are many: rank them by the longest path through the step afterwards and evaluate only the most promising.
+    skip.length = 0
+    const ranked: number[] = []
+    for (let c = 0; c < cKind.length; c++) if (cKind[c] === 3) { ranked.push(c); estimateOf[c] = reassignEstimate(cU[c]!, cV[c]!) }
+    if (ranked.length > REASSIGN_EVALUATED) {
+      ranked.sort((a, b) => estimateOf[a]! - estimateOf[b]!)
+      for (let q = REASSIGN_EVALUATED; q < ranked.length; q++) skip[ranked[q]!] = 1
+    }
     let bestMove = -1, bestMoveVal = Infinity, ties = 0
     let fallback = -1, fallbackVal = Infinity
     for (let c = 0; c < cKind.length; c++) {
+      if (skip[c]) continue
       const mark = undo.length
       const tabu = isTabu(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
+      touched = n
       apply(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
-      const v = evaluate(rTmp)
+      const v = evaluateMove()
       rollback(mark)
       if (!Number.isFinite(v)) continue
       if (!tabu || v < bestVal) {

@@ -3,7 +3,7 @@ import type { Objective, SolveHooks } from './model.ts'
 import { compareDecoded, decode, type Compiled, type Decoded, Why } from './decode.ts'
 import { createRng } from './random.ts'
 
-export interface GeneralResult { decoded: Decoded; iterations: number; firstPlanMs: number }
+export interface GeneralResult { decoded: Decoded; iterations: number; firstPlanMs: number; previous?: { weightedTardiness: number; makespan: number } }
 
 /** Remaining work from each operation's start to its job's end, in working minutes (shortest options), plus waits. */
 function tails(c: Compiled): Float64Array {
@@ -95,10 +95,27 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
     if (!best || compareDecoded(d, best, obj) < 0) { best = d; bestKey = key }
     if (hooks.shouldStop?.()) break
   }
+  // The previous plan as it stands: its operations in their old order on their old bench and person, new work after them
+  // (filling the gaps), so an unchanged workshop gets its plan back and a new order moves nobody unless that buys something.
+  let previous: GeneralResult['previous']
+  const prev = c.problem.previous
+  if (prev && Object.keys(prev).length > 0 && !hooks.shouldStop?.()) {
+    const key = new Float64Array(n), choice = new Int32Array(n).fill(-1)
+    const tail = tails(c)
+    for (let i = 0; i < n; i++) {
+      const at = prev[c.ops[i]!.id]
+      key[i] = at ? at.start + i * 1e-9 : c.problem.horizon * 4 + (c.jobs[c.jobOf[i]!]!.due ?? c.problem.horizon * 2) - tail[i]! + i * 1e-9
+      if (at && c.previousOption[i]! >= 0) choice[i] = c.previousOption[i]!
+    }
+    const d = decode(c, key, choice)
+    previous = { weightedTardiness: d.weightedTardiness, makespan: d.makespan }
+    if (!best || compareDecoded(d, best, obj) <= 0) { best = d; bestKey = key; bestChoice = choice }
+  }
   let iterations = 0
   if (!best) throw new Error('no dispatching rule produced a plan')
   hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: firstPlanMs })
-  if (n === 0) return { decoded: best, iterations, firstPlanMs }
+  const done = (): GeneralResult => ({ decoded: best!, iterations, firstPlanMs, ...(previous ? { previous } : {}) })
+  if (n === 0) return done()
 
   let curKey: Float64Array = bestKey.slice(), curChoice: Int32Array = bestChoice.slice(), cur = best
   const historyLen = 40
@@ -106,7 +123,7 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   const maxIt = opts.maxIterations ?? Infinity
   const movable: number[] = []
   for (let i = 0; i < n; i++) if (!c.fixedAt[i] && c.outsideDays[i]! < 0) movable.push(i)
-  if (movable.length === 0) return { decoded: best, iterations, firstPlanMs }
+  if (movable.length === 0) return done()
   const lastOf = new Int32Array(c.jobs.length)
   let lastReport = clock()
 
@@ -182,7 +199,7 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
     if (clock() - lastReport > 500) { lastReport = clock(); hooks.onProgress?.({ iteration: iterations, best: scoreOf(best), elapsedMs: lastReport - t0 }) }
   }
   void bestKey; void bestChoice
-  return { decoded: best, iterations, firstPlanMs }
+  return done()
 }
 
-const scoreOf = (d: Decoded) => ({ weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, feasible: d.overflow < 0, violations: [] as string[] })
+const scoreOf = (d: Decoded) => ({ weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, shifted: d.shifted, feasible: d.overflow < 0, violations: [] as string[] })

@@ -22,12 +22,17 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
   checkProblem(problem)
   const clock = hooks.clock ?? defaultClock
   const t0 = clock()
-  const objective = options.objective && options.objective.length > 0 ? options.objective : DEFAULT_OBJECTIVE
+  const hasPrevious = !!problem.previous && Object.keys(problem.previous).length > 0
+  const objective = options.objective && options.objective.length > 0 ? options.objective
+    : !hasPrevious ? DEFAULT_OBJECTIVE
+    : options.stability === 'best-dates' ? ['weightedTardiness', 'makespan', 'moves', 'shifted'] as Objective[]
+    : ['weightedTardiness', 'moves', 'shifted', 'makespan'] as Objective[]
   const c = compile(problem)
   const deadline = t0 + Math.max(0, options.timeLimitMs)
   const shop = asShop(c)
   let decoded: Decoded, iterations: number, firstPlanMs: number, evaluations: number | undefined
   let pair: PairShop | null = null
+  let previousScore: { weightedTardiness: number; makespan: number } | undefined
   if (shop) {
     const r = solveShop(shop, {
       seed: options.seed,
@@ -57,9 +62,10 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
     decoded = r.decoded
     iterations = r.iterations
     firstPlanMs = r.firstPlanMs
+    previousScore = r.previous
   }
   assertWithinHorizon(c, decoded)
-  const plan = toPlan(c, decoded, { iterations, elapsedMs: clock() - t0, firstPlanMs, ...(evaluations !== undefined ? { evaluations } : {}) })
+  const plan = toPlan(c, decoded, { iterations, elapsedMs: clock() - t0, firstPlanMs, ...(evaluations !== undefined ? { evaluations } : {}), ...(previousScore ? { previous: previousScore } : {}) })
   const violations = validatePlan(problem, plan)
   plan.score.violations = violations.map((v) => `${v.rule}: ${v.message}`)
   plan.score.feasible = violations.length === 0
@@ -128,7 +134,7 @@ function fromShop(c: Compiled, machine: Int32Array, start0: Int32Array, duration
     const j = c.jobOf[i]!
     completion[j] = Math.max(completion[j]!, end[i]!)
   }
-  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, brokenPins: 0, completion, weightedTardiness: 0, makespan, moves: 0 }
+  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, brokenPins: 0, completion, weightedTardiness: 0, makespan, moves: 0, shifted: 0 }
 }
 
 /**
@@ -208,5 +214,5 @@ function fromPair(c: Compiled, opt: Int32Array, start0: Int32Array, end0: Int32A
   }
   let weightedTardiness = 0
   c.jobs.forEach((job, j) => { if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due) })
-  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, brokenPins: 0, completion, weightedTardiness, makespan, moves: 0 }
+  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, brokenPins: 0, completion, weightedTardiness, makespan, moves: 0, shifted: 0 }
 }

@@ -5,6 +5,8 @@ import { id, isoDate, isoDateTime, version } from './common'
 export const planRunInput = z.object({
   timeLimitSeconds: z.number({ error: 'must be a number of seconds' }).int().min(1, 'must be at least 1 second').max(120, 'must be at most 120 seconds').default(10),
   seed: z.number().int().min(0).max(2 ** 31).default(1),
+  /** small-changes: a change to the live plan must buy less lateness; best-dates: an earlier finish is worth changes too. */
+  stability: z.enum(['small-changes', 'best-dates'], { error: 'must be small-changes or best-dates' }).default('small-changes'),
 })
 export const boardQuery = z
   .object({ from: isoDate, to: isoDate, planId: id.optional() })

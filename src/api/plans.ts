@@ -113,6 +113,8 @@ export interface PlanRun {
   progress: RunProgress | null
   planId: number | null
   error: string | null
+  note: string | null
+  stability: 'small-changes' | 'best-dates'
 }
 
 export interface Assignment {

@@ -149,9 +149,9 @@ export const useBoardStore = defineStore('board', () => {
   }
 
   /** Starts the planner with a time budget; progress comes by socket events and by polling the run as a fallback. */
-  async function startPlanner(timeLimitSeconds: number, seed = Math.floor(Math.random() * 1_000_000)) {
+  async function startPlanner(timeLimitSeconds: number, stability: PlanRun['stability'] = 'small-changes', seed = Math.floor(Math.random() * 1_000_000)) {
     progress.value = null
-    run.value = await plansApi.startRun({ timeLimitSeconds, seed })
+    run.value = await plansApi.startRun({ timeLimitSeconds, seed, stability })
     void followRun(run.value.id)
     return run.value
   }

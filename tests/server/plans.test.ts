@@ -1,7 +1,7 @@
 // Planning API: planner runs become drafts, publish/discard, the board, moves by hand with their refusals, live events.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { io as connect } from 'socket.io-client'
-import { eq } from 'drizzle-orm'
+import { eq, notInArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { waitForRun } from '../../server/services/planning/runs'
 import { dayjs } from '../../server/lib/time'
@@ -44,7 +44,19 @@ describe('planner runs and versions', () => {
     expect((await manager.post(`/api/plans/${planId}/publish`)).status).toBe(409)
   })
 
+  it('when the planner finds nothing better than the live plan, then no draft is offered and the run says so', async () => {
+    const before = (await manager.get('/api/plans')).body.length
+    const r = await manager.post('/api/plans/runs', { timeLimitSeconds: 1 })
+    expect(r.status, JSON.stringify(r.body)).toBe(202)
+    const done = await waitForRun(r.body.id)
+    // Just published from the same workshop: re-planning it cannot make any piece less late.
+    expect(done).toMatchObject({ status: 'done', planId: null, note: expect.stringMatching(/No better plan found/) })
+    expect((await manager.get('/api/plans')).body.length).toBe(before)
+  })
+
   it('when a draft was made before another plan was published, then publishing it is refused as stale', async () => {
+    // An emptied live plan (nothing planned): every planner run has something to offer.
+    await t.db.update(s.operations).set({ plannedStart: null, plannedEnd: null, plannedBenchId: null, plannedPersonId: null }).where(notInArray(s.operations.status, ['running', 'done', 'skipped']))
     const a = await runPlanner(manager)
     const b = await runPlanner(manager)
     expect((await manager.post(`/api/plans/${b}/publish`)).status).toBe(200)

@@ -22,6 +22,9 @@ export interface RunState {
   progress: { iteration: number; weightedTardiness: number; makespan: number; elapsedMs: number } | null
   planId: number | null
   error: string | null
+  /** Why a finished run left no draft (nothing better than the live plan). */
+  note: string | null
+  stability: 'small-changes' | 'best-dates'
   controller: AbortController
 }
 
@@ -48,7 +51,7 @@ export async function problemWithPrevious(db: Db, workshopId: number, now: Date)
   return data
 }
 
-export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: number; seed: number; now?: Date }) {
+export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: number; seed: number; stability?: 'small-changes' | 'best-dates'; now?: Date }) {
   for (const r of runs.values()) if (r.workshopId === actor.workshopId && r.status === 'running')
     throw new AppError({ code: 'conflict', message: 'The planner is already running for this workshop; wait for it or stop it.', details: { runId: r.id } })
   const data = await problemWithPrevious(deps.db, actor.workshopId, o.now ?? new Date())
@@ -57,10 +60,10 @@ export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: 
   } catch (err) {
     throw planningError(err, data)
   }
-  const run: RunState = { id: randomUUID(), workshopId: actor.workshopId, status: 'running', startedAt: new Date().toISOString(), timeLimitSeconds: o.timeLimitSeconds, progress: null, planId: null, error: null, controller: new AbortController() }
+  const run: RunState = { id: randomUUID(), workshopId: actor.workshopId, status: 'running', startedAt: new Date().toISOString(), timeLimitSeconds: o.timeLimitSeconds, progress: null, planId: null, error: null, note: null, stability: o.stability ?? 'small-changes', controller: new AbortController() }
   runs.set(run.id, run)
   let lastEmit = 0
-  void runInWorker(data.problem, { seed: o.seed, timeLimitMs: o.timeLimitSeconds * 1000 }, {
+  void runInWorker(data.problem, { seed: o.seed, timeLimitMs: o.timeLimitSeconds * 1000, stability: run.stability }, {
     signal: run.controller.signal,
     onProgress: (p) => {
       run.progress = { iteration: p.iteration, weightedTardiness: p.best.weightedTardiness, makespan: p.best.makespan, elapsedMs: p.elapsedMs }
@@ -74,6 +77,13 @@ export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: 
       if (run.controller.signal.aborted) { run.status = 'cancelled'; return }
       // A plan that breaks a rule (say, a pin its earlier steps cannot reach) is never offered as a draft.
       if (!plan.score.feasible) throw new AppError({ code: 'unprocessable', message: `The planner found no plan that keeps every rule: ${plan.score.violations.slice(0, 3).join('; ')}. Unpin or move the step concerned and run again.` })
+      // A draft is offered only when it beats the live plan kept as it is (re-timed from now).
+      const live = plan.stats.previous
+      if (live && !betterThanLive(plan.score, live, run.stability)) {
+        run.status = 'done'
+        run.note = `No better plan found in ${o.timeLimitSeconds} s: the live plan stays as it is.`
+        return
+      }
       run.planId = await saveDraft(deps, actor, data, plan)
       run.status = 'done'
       deps.realtime.emit(actor.workshopId, 'plan:drafted', { id: run.planId, runId: run.id })
@@ -84,6 +94,12 @@ export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: 
       if (run.status === 'failed') console.error('[planner] run failed:', err)
     })
   return publicRun(run)
+}
+
+/** Less weighted lateness always counts; an earlier finish at equal lateness only when the manager asked for best dates. */
+export function betterThanLive(score: { weightedTardiness: number; makespan: number }, live: { weightedTardiness: number; makespan: number }, stability: 'small-changes' | 'best-dates') {
+  if (score.weightedTardiness !== live.weightedTardiness) return score.weightedTardiness < live.weightedTardiness
+  return stability === 'best-dates' && score.makespan < live.makespan
 }
 
 export function getRun(actor: Actor, id: string) {

@@ -1,0 +1,44 @@
+// Stability: the published plan is the starting point; re-planning an unchanged workshop changes nothing, a new order moves
+// nobody that does not have to move, and "best dates" may trade changes for an earlier finish.
+import { describe, it, expect } from 'vitest'
+import { solve, validatePlan, type Plan, type Problem } from '../../server/scheduler/index.ts'
+import { generateWorkshop } from '../../server/scheduler/generate.ts'
+
+const clock = () => performance.now()
+const asPrevious = (plan: Plan): Problem['previous'] => Object.fromEntries(plan.operations.map((o) => [o.operationId, { benchId: o.benchId, personId: o.personId, start: o.start }]))
+/** Operations whose bench, person or start differ between two plans (counted here, apart from the engine's score). */
+function changes(a: Plan, b: Plan): number {
+  const before = new Map(a.operations.map((o) => [o.operationId, o]))
+  return b.operations.filter((o) => { const x = before.get(o.operationId); return x && (x.benchId !== o.benchId || x.personId !== o.personId || x.start !== o.start) }).length
+}
+
+describe('stability against the published plan', () => {
+  const problem = generateWorkshop({ seed: 11, jobs: 40 })
+  const first = solve(problem, { seed: 1, timeLimitMs: 30_000, maxIterations: 400 }, { clock })
+
+  it('when an unchanged workshop is planned again, then nothing changes and the score is not worse', () => {
+    const again: Problem = { ...problem, previous: asPrevious(first) }
+    const plan = solve(again, { seed: 2, timeLimitMs: 30_000, maxIterations: 400 }, { clock })
+    expect(validatePlan(again, plan)).toEqual([])
+    expect(plan.score.weightedTardiness).toBeLessThanOrEqual(first.score.weightedTardiness)
+    if (plan.score.weightedTardiness === first.score.weightedTardiness) expect(changes(first, plan)).toBe(0)
+    expect(plan.stats.previous?.weightedTardiness).toBe(first.score.weightedTardiness)
+  })
+
+  it('when one order with a loose due date is added, then no planned step moves', () => {
+    const job = { id: 'new', name: 'New ring', release: problem.now, due: problem.horizon - 1, weight: 1 }
+    const bench = problem.benches.find((b) => problem.operations.some((o) => o.options.some((x) => x.benchId === b.id)))!
+    const option = problem.operations.flatMap((o) => o.options).find((x) => x.benchId === bench.id)!
+    const withOrder: Problem = {
+      ...problem,
+      previous: asPrevious(first),
+      jobs: [...problem.jobs, job],
+      operations: [...problem.operations, { id: 'new-1', jobId: 'new', name: 'make', kind: 'assembly', predecessors: [], options: [{ ...option, minutes: 45 }] }],
+    }
+    const plan = solve(withOrder, { seed: 3, timeLimitMs: 30_000, maxIterations: 400 }, { clock })
+    expect(validatePlan(withOrder, plan)).toEqual([])
+    expect(plan.score.weightedTardiness).toBeLessThanOrEqual(first.score.weightedTardiness)
+    if (plan.score.weightedTardiness === first.score.weightedTardiness) expect(changes(first, plan)).toBe(0)
+    expect(plan.operations.some((o) => o.operationId === 'new-1')).toBe(true)
+  })
+})

@@ -7,6 +7,7 @@ import * as s from '../db/schema/index'
 import { dayjs, type Interval } from '../lib/time'
 import { intersect, clipToWindows } from '../scheduler/calendar.ts'
 import type { StartReason } from '../scheduler/model.ts'
+import { explainStarts } from '../scheduler/explain.ts'
 import type { Realtime } from '../realtime/hub'
 import { currentAssignments, type Assignment } from './planning/assignments'
 import { loadPlanningData, type PlanningData } from './planning/problem'
@@ -74,9 +75,14 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     plan = { id: p.id, number: p.number, status: p.status, publishedAt: p.publishedAt }
   } else {
     assignments = await currentAssignments(db, workshopId)
-    const reasons = (live?.assignments ?? {}) as Record<string, Assignment>
-    for (const [id, a] of Object.entries(assignments)) a.reason = reasons[id]?.reason ?? null
     if (live) plan = { id: live.id, number: live.number, status: live.status, publishedAt: live.publishedAt }
+  }
+  // Reasons come from the plan shown, as it is now (after moves by hand), never from when it was made.
+  const steps = Object.entries(assignments).filter(([id]) => data.meta.operations.has(id)).map(([id, a]) => ({ operationId: id, benchId: a.benchId, personId: a.personId, start: c.toMinute(a.start), end: c.toMinute(a.end) }))
+  const why = explainStarts(data.problem, steps)
+  for (const [id, a] of Object.entries(assignments)) {
+    const m = data.meta.operations.get(id)
+    a.reason = m?.op.status === 'running' ? { kind: 'fixed', detail: 'being worked on at the bench now' } : why.get(id) ?? null
   }
   const winStart = new Date(dayjs.tz(`${o.from} 00:00`, c.timeZone).valueOf())
   const winEnd = new Date(dayjs.tz(`${o.to} 00:00`, c.timeZone).add(1, 'day').valueOf())

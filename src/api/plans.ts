@@ -4,7 +4,7 @@ import { api } from './client'
 
 /** Why the engine started an operation when it did, e.g. "waiting for Ines Harrowby (setting) until Thu 14:00". */
 export interface StartReason {
-  kind: 'release' | 'predecessor' | 'bench' | 'person' | 'working-time' | 'fixed' | 'now'
+  kind: 'release' | 'predecessor' | 'bench' | 'person' | 'working-time' | 'fixed' | 'now' | 'by-hand'
   detail: string
   blockerId?: string
 }

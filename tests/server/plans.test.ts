@@ -175,6 +175,24 @@ describe('board and moves by hand', () => {
     expect(after!.pinned).toBe(false)
   })
 
+  it('when bars have been moved by hand, then every bar\'s reason names a blocker that really is before it on its bench, person or routing', async () => {
+    const board = (await manager.get(`/api/board?from=${from}&to=${to}`)).body
+    const byId = new Map(board.items.map((i: any) => [i.id, i]))
+    let checked = 0
+    for (const i of board.items) {
+      const r = i.reason
+      if (!r?.blockerId || !['bench', 'person', 'predecessor'].includes(r.kind)) continue
+      const blocker: any = byId.get(Number(r.blockerId))
+      if (!blocker) continue
+      checked++
+      expect(new Date(blocker.end).getTime(), `${i.name}: ${r.detail}`).toBeLessThanOrEqual(new Date(i.start).getTime())
+      if (r.kind === 'bench') expect(blocker.benchId, r.detail).toBe(i.benchId)
+      if (r.kind === 'person') expect(blocker.personId, r.detail).toBe(i.personId)
+      if (r.kind === 'predecessor') expect(blocker.jobBagId, r.detail).toBe(i.jobBagId)
+    }
+    expect(checked).toBeGreaterThan(5)
+  })
+
   it('when the week load is read, then every bench and skill has planned and available minutes per day', async () => {
     const r = await manager.get(`/api/load?from=${from}&to=${to}`)
     expect(r.status).toBe(200)

@@ -51,7 +51,7 @@ const M = 0, W = 1 // resource types: machine, worker
 /** Reassignments evaluated exactly per iteration (the best by estimate). */
 const REASSIGN_EVALUATED = 6
 /** Tardy jobs whose critical paths feed one iteration's moves (chosen by weighted tardiness). */
-const TARGETS = 6
+const TARGETS = 2
 /** On stagnation: share of restarts from a fresh shaken dispatch, from the best, else from where the walk is. */
 const RESTART_FRESH = 0.3, RESTART_BEST = 0.5
 

@@ -8,6 +8,7 @@ import { dayjs, type Interval } from '../lib/time'
 import { intersect, clipToWindows } from '../scheduler/calendar.ts'
 import type { StartReason } from '../scheduler/model.ts'
 import { explainStarts } from '../scheduler/explain.ts'
+import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
 import type { Realtime } from '../realtime/hub'
 import { currentAssignments, type Assignment } from './planning/assignments'
 import { loadPlanningData, type PlanningData } from './planning/problem'
@@ -21,7 +22,7 @@ export interface BoardItem {
 }
 export interface BoardJob {
   jobBagId: number; number: string; piece: string; orderNumber: string; due: string; expectedCompletion: string | null
-  latenessMinutes: number; state: 'late' | 'at-risk' | 'on-time' | 'unplanned'; reason: string | null
+  latenessMinutes: number; lateWorkingMinutes: number; state: 'late' | 'at-risk' | 'on-time' | 'unplanned'; reason: string | null
 }
 
 const AT_RISK_MINUTES = 8 * 60
@@ -106,6 +107,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       jobs.set(m.bag.id, {
         jobBagId: m.bag.id, number: m.bag.number, piece: m.bag.piece, orderNumber: m.order.number, due: m.order.promisedDate ?? m.order.dueDate,
         expectedCompletion: comp ? new Date(comp.end).toISOString() : null, latenessMinutes: lateness,
+        lateWorkingMinutes: comp ? workingMinutesBetween(data.meta.open, c.toMinute(new Date(due)), c.toMinute(new Date(comp.end))) : 0,
         state: !comp ? 'unplanned' : lateness > 0 ? 'late' : lateness > -AT_RISK_MINUTES ? 'at-risk' : 'on-time',
         reason: comp?.reason ?? null,
       })
@@ -132,6 +134,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     items,
     jobs: [...jobs.values()].sort((a, b) => a.due.localeCompare(b.due)),
     nonWorking: data.meta.nonWorking.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
+    dayMinutes: typicalDayMinutes(data.meta.open),
     closures: data.meta.closures.map((x) => ({ name: x.name, startsOn: x.startsOn, endsOn: x.endsOn })),
     leave: data.meta.leave.map((l) => ({ personId: l.personId, startsOn: l.startsOn, endsOn: l.endsOn, reason: l.reason })),
     downtime: data.meta.downtime.map((d) => ({ benchId: d.benchId, startsAt: d.startsAt, endsAt: d.endsAt, reason: d.reason })),

@@ -45,6 +45,8 @@ export interface BoardJob {
   due: string
   expectedCompletion: string | null
   latenessMinutes: number
+  /** Working minutes late (negative: to spare) in the workshop's open hours. */
+  lateWorkingMinutes: number
   state: JobState
   reason: string | null
 }
@@ -65,6 +67,8 @@ export interface BoardData {
   items: BoardItem[]
   jobs: BoardJob[]
   nonWorking: { start: string; end: string }[]
+  /** Open minutes of a typical working day, for "2 working days 3 h". */
+  dayMinutes: number
   closures: { name: string; startsOn: string; endsOn: string }[]
   leave: { personId: number; startsOn: string; endsOn: string; reason: string | null }[]
   downtime: { benchId: number; startsAt: string; endsAt: string; reason: string | null }[]
@@ -78,6 +82,10 @@ export interface PlanScore {
   feasible?: boolean
   violations?: string[]
   lateJobs?: number
+  /** Working minutes late, summed over the late pieces, and the latest piece's; a working day is dayMinutes. */
+  lateWorkingMinutes?: number
+  worstLateWorkingMinutes?: number
+  dayMinutes?: number
   jobs?: number
   operations?: number
   iterations?: number

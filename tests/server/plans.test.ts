@@ -102,6 +102,13 @@ describe('board and moves by hand', () => {
     expect(r.body.items.some((i: { reason: unknown }) => i.reason !== null)).toBe(true)
     expect(r.body.jobs.every((j: { state: string }) => ['late', 'at-risk', 'on-time', 'unplanned'].includes(j.state))).toBe(true)
     expect(r.body.nonWorking.length).toBeGreaterThan(0)
+    // Working time late never exceeds clock time late, and a late piece is late in working time too (work ends in open hours).
+    for (const j of r.body.jobs.filter((x: any) => x.state !== 'unplanned')) {
+      if (j.latenessMinutes > 0) expect(j.lateWorkingMinutes, j.number).toBeGreaterThan(0)
+      expect(Math.abs(j.lateWorkingMinutes), j.number).toBeLessThanOrEqual(Math.abs(j.latenessMinutes))
+    }
+    // The demo workshop opens 08:30–12:30 and 13:15–17:00 on its usual days: 240 + 225 = 465 working minutes (hand-worked from the seed).
+    expect(r.body.dayMinutes).toBe(465)
   })
 
   async function pickBar(pred: (i: any) => boolean = () => true) {

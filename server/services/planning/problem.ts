@@ -18,6 +18,8 @@ export interface PlanningData {
     people: Map<string, typeof s.people.$inferSelect>
     kinds: Map<number, typeof s.operationKinds.$inferSelect>
     nonWorking: Interval[]
+    /** The workshop's open hours (minutes), for lateness in working time. */
+    open: Interval[]
     closures: (typeof s.closures.$inferSelect)[]
     leave: (typeof s.leave.$inferSelect)[]
     downtime: (typeof s.benchDowntime.$inferSelect)[]
@@ -91,7 +93,7 @@ export async function loadPlanningData(db: Db, workshopId: number, now: Date): P
   const bagMap = new Map(bags.map((b) => [b.id, b]))
   const meta: PlanningData['meta'] = {
     operations: new Map(), benches: new Map(benches.map((b) => [String(b.id), b])), people: new Map(people.map((p) => [String(p.id), p])),
-    kinds: kindMap, nonWorking, closures, leave, downtime, skills, capabilities: caps,
+    kinds: kindMap, nonWorking, open: workshopHours, closures, leave, downtime, skills, capabilities: caps,
   }
   const keyToId = new Map(ops.map((o) => [`${o.jobBagId}:${o.key}`, String(o.id)]))
   const engineOps: EngineOperation[] = []

@@ -10,6 +10,7 @@ import { SchedulingInputError } from '../../scheduler/model.ts'
 import { checkProblem } from '../../scheduler/check.ts'
 import { runInWorker } from '../../scheduler/run-in-worker.ts'
 import { audit } from '../audit'
+import { typicalDayMinutes, workingMinutesBetween } from '../../../shared/domain/working-time'
 import { loadPlanningData, type PlanningData } from './problem'
 import { currentAssignments, toAssignments } from './assignments'
 
@@ -144,6 +145,9 @@ async function saveDraft(deps: Deps, actor: Actor, data: PlanningData, plan: Pla
 function summarise(data: PlanningData, plan: Plan) {
   const c = data.clock
   const late = plan.jobs.filter((j) => j.tardiness > 0).length
+  // Lateness as the workshop counts it: working time between the promised moment and the expected finish.
+  const dues = new Map(data.problem.jobs.map((j) => [j.id, j.due]))
+  const lateWorking = plan.jobs.filter((j) => j.tardiness > 0).map((j) => workingMinutesBetween(data.meta.open, dues.get(j.jobId)!, j.completion))
   return {
     weightedTardiness: plan.score.weightedTardiness,
     weightedTardinessHours: Math.round((plan.score.weightedTardiness / 60) * 10) / 10,
@@ -152,6 +156,9 @@ function summarise(data: PlanningData, plan: Plan) {
     feasible: plan.score.feasible,
     violations: plan.score.violations.slice(0, 20),
     lateJobs: late,
+    lateWorkingMinutes: lateWorking.reduce((a, m) => a + m, 0),
+    worstLateWorkingMinutes: lateWorking.reduce((a, m) => Math.max(a, m), 0),
+    dayMinutes: typicalDayMinutes(data.meta.open),
     jobs: plan.jobs.length,
     operations: plan.operations.length,
     iterations: plan.stats.iterations,

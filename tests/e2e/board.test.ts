@@ -108,6 +108,12 @@ describe('the planning board', () => {
     await screenshot(manager, 'board-03-draft')
 
     await banner.locator('[data-test=draft-publish]').click()
+    // Publishing asks first and says what moves.
+    const confirm = manager.locator('.el-message-box')
+    await confirm.waitFor()
+    await expect(confirm.textContent()).resolves.toMatch(/Publish plan 1\?.*\d+ bars change: \d+ newly planned/s)
+    await screenshot(manager, 'board-03b-publish-confirm')
+    await confirm.locator('button', { hasText: 'Publish' }).click()
     await banner.waitFor({ state: 'detached', timeout: 10_000 })
     await expect(manager.locator('[data-test=board-plan-line]').textContent()).resolves.toMatch(/Live plan 1, published by Sam Ottery .* of \d+ jobs late/)
 

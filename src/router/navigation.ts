@@ -13,7 +13,7 @@ export const NAV: NavSection[] = [
       { to: '/plan', label: 'Plan board', icon: 'plan', roles: ['owner', 'manager', 'sales'], readOnlyFor: ['sales'] },
       { to: '/bench', label: 'My bench queue', icon: 'queue', roles: ['owner', 'bench'] },
       { to: '/orders', label: 'Orders', icon: 'orders', roles: ['owner', 'manager', 'sales'] },
-      { to: '/promise', label: 'Promise check', icon: 'promise', roles: ['owner', 'sales'] },
+      { to: '/promise', label: 'Promise check', icon: 'promise', roles: ['owner', 'manager', 'sales'] },
     ],
   },
   {

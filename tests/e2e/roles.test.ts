@@ -14,7 +14,7 @@ afterAll(async () => {
 // The navigation each role is meant to have (product decision in the team brief).
 const EXPECTED: Record<Role, { home: string; nav: string[] }> = {
   owner: { home: '/orders', nav: ['/plan', '/bench', '/orders', '/promise', '/customers', '/outbox', '/benches', '/people', '/calendar', '/routings', '/insights', '/team', '/settings'] },
-  manager: { home: '/plan', nav: ['/plan', '/orders', '/customers', '/outbox', '/benches', '/people', '/calendar', '/routings'] },
+  manager: { home: '/plan', nav: ['/plan', '/orders', '/promise', '/customers', '/outbox', '/benches', '/people', '/calendar', '/routings'] },
   bench: { home: '/bench', nav: ['/bench'] },
   sales: { home: '/orders', nav: ['/plan', '/orders', '/promise', '/customers', '/outbox'] },
 }

@@ -309,7 +309,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const tenure = (): number => baseTenure + rng.int(baseTenure + 1)
   let iter = 0, lastImprove = 0
   const maxIter = settings.maxIterations ?? Infinity
-  const maxStall = Math.max(300, 12 * n)
+  const maxStall = Math.max(300, 4 * n)
   const path: number[] = []
   const arcType: number[] = [] // for path[i] (i > 0): the resource type of the arc from path[i-1], -1 for a job arc
 

@@ -2,6 +2,57 @@
 import type { Objective, SolveHooks } from './model.ts'
 import { compareDecoded, decode, type Compiled, type Decoded, Why } from './decode.ts'
 import { createRng } from './random.ts'
+import { solvePairShop, type PairShop } from './pair-core.ts'
+
+/** Share of the remaining budget given to the calendar-free sketch before the calendar search. */
+const SKETCH_SHARE = 0.3
+
+/**
+ * The workshop without calendars: durations stretched by the calendar factor (calendar minutes per working minute), outside work
+ * in calendar days, each job bag's steps as one chain in routing order, a step without a bench on a machine of its own.
+ */
+function sketchShop(c: Compiled): { shop: PairShop; real: Uint8Array } {
+  const n = c.n
+  const f = calendarFactor(c)
+  const order = topologicalOrder(c)
+  const jobPred = new Int32Array(n).fill(-1), jobSucc = new Int32Array(n).fill(-1)
+  const lastInJob = new Int32Array(c.jobs.length).fill(-1)
+  for (const i of order) {
+    const j = c.jobOf[i]!
+    const p = lastInJob[j]!
+    if (p >= 0) { jobPred[i] = p; jobSucc[p] = i }
+    lastInJob[j] = i
+  }
+  const optStart = new Int32Array(n + 1)
+  const machine: number[] = [], worker: number[] = [], dur: number[] = []
+  const real = new Uint8Array(n)
+  let extra = c.benchCount
+  for (let i = 0; i < n; i++) {
+    optStart[i] = machine.length
+    const opts = c.options[i]!
+    const away = c.outsideDays[i]! > 0
+    if (away || opts.length === 0 || opts.some((o) => o.bench < 0)) {
+      const m = opts.find((o) => o.minutes > 0)
+      machine.push(extra++); worker.push(-1)
+      dur.push(Math.max(1, Math.round(away ? c.outsideDays[i]! * 1440 * 1.4 : (m?.minutes ?? 1) * f)))
+      continue
+    }
+    real[i] = 1
+    for (const o of opts) { machine.push(o.bench); worker.push(o.person); dur.push(Math.max(1, Math.round(o.minutes * f + c.waitAfter[i]!))) }
+  }
+  optStart[n] = machine.length
+  const now = c.problem.now
+  const release = new Int32Array(n)
+  for (let i = 0; i < n; i++) release[i] = Math.max(0, Math.round(c.earliest[i]! - now))
+  return {
+    real,
+    shop: {
+      n, machines: extra, workers: c.personCount, jobs: c.jobs.length, jobOf: Int32Array.from(c.jobOf), jobPred, jobSucc,
+      optStart, optMachine: Int32Array.from(machine), optWorker: Int32Array.from(worker), optDur: Int32Array.from(dur), release,
+      due: Float64Array.from(c.jobs, (j) => (j.due === null ? Infinity : j.due - now)), weight: Float64Array.from(c.jobs, (j) => j.weight),
+    },
+  }
+}
 
 export interface GeneralResult { decoded: Decoded; iterations: number; firstPlanMs: number; previous?: { weightedTardiness: number; makespan: number } }
 
@@ -116,6 +167,35 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: firstPlanMs })
   const done = (): GeneralResult => ({ decoded: best!, iterations, firstPlanMs, ...(previous ? { previous } : {}) })
   if (n === 0) return done()
+
+  // A calendar-free sketch of the workshop, searched on the disjunctive graph for part of the budget; its order and its bench and
+  // person choices seed the calendar search when they decode to a better plan.
+  const sketchMs = Math.max(0, (opts.deadline - clock()) * SKETCH_SHARE)
+  if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && sketchMs >= 50 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
+    const now = clock()
+    const share = sketchMs
+    const sketch = sketchShop(c)
+    const r = solvePairShop(sketch.shop, {
+      seed: opts.seed, objective: 'weightedTardiness', deadline: now + share, clock,
+      maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
+      ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
+    })
+    const key = new Float64Array(n), choice = new Int32Array(n).fill(-1)
+    for (let i = 0; i < n; i++) {
+      key[i] = r.start[i]! + i * 1e-9
+      const k = r.option[i]! - sketch.shop.optStart[i]!
+      if (sketch.real[i] && k >= 0 && k < c.options[i]!.length) choice[i] = k
+    }
+    // Keep what must go first for pins in front.
+    let low = Infinity
+    for (let i = 0; i < n; i++) if (key[i]! < low) low = key[i]!
+    for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
+    for (const ch of [choice, new Int32Array(n).fill(-1)]) {
+      const d = decode(c, key, ch)
+      if (compareDecoded(d, best, obj) < 0) { best = d; bestKey = key; bestChoice = ch.slice() }
+    }
+    hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: clock() - t0 })
+  }
 
   let curKey: Float64Array = bestKey.slice(), curChoice: Int32Array = bestChoice.slice(), cur = best
   const historyLen = 40

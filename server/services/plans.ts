@@ -5,6 +5,7 @@ import * as s from '../db/schema/index'
 import { AppError, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
+import { dayjs } from '../lib/time'
 import { currentAssignments, type Assignment } from './planning/assignments'
 
 export async function listPlans(db: Db, workshopId: number) {
@@ -40,12 +41,44 @@ export function diffAssignments(from: Record<string, Assignment>, to: Record<str
   return moved
 }
 
+/**
+ * What the changes buy, per job bag planned in both: pieces that finish earlier or later, and those among them whose lateness
+ * (after the promised day) shrinks or grows.
+ */
+async function whatItBuys(db: Db, workshopId: number, base: Record<string, Assignment>, draft: Record<string, Assignment>) {
+  const [w] = await db.select({ tz: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, workshopId))
+  const ids = [...new Set([...Object.keys(base), ...Object.keys(draft)])].map(Number)
+  const rows = ids.length
+    ? await db.select({ id: s.operations.id, bag: s.operations.jobBagId, promised: s.orders.promisedDate, due: s.orders.dueDate })
+      .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .where(and(inArray(s.operations.id, ids), eq(s.jobBags.workshopId, workshopId)))
+    : []
+  const finish = (a: Record<string, Assignment>) => {
+    const m = new Map<number, number>()
+    for (const r of rows) { const x = a[String(r.id)]; if (x) m.set(r.bag, Math.max(m.get(r.bag) ?? -Infinity, new Date(x.end).getTime())) }
+    return m
+  }
+  const before = finish(base), after = finish(draft)
+  const dueOf = new Map(rows.map((r) => [r.bag, dayjs.tz(`${r.promised ?? r.due} 00:00`, w?.tz ?? 'UTC').add(1, 'day').valueOf()]))
+  let earlier = 0, later = 0, lessLate = 0, moreLate = 0
+  for (const [bag, b] of before) {
+    const a = after.get(bag)
+    if (a === undefined || a === b) continue
+    if (a < b) earlier++; else later++
+    const due = dueOf.get(bag)!
+    const lb = Math.max(0, b - due), la = Math.max(0, a - due)
+    if (la < lb) lessLate++; else if (la > lb) moreLate++
+  }
+  return { earlier, later, lessLate, moreLate }
+}
+
 /** A draft against the live plan (or any two versions). */
 export async function comparePlan(db: Db, workshopId: number, id: number, againstId?: number) {
   const p = await getPlan(db, workshopId, id)
   const base = againstId ? ((await getPlan(db, workshopId, againstId)).assignments as Record<string, Assignment>) : await currentAssignments(db, workshopId)
-  const moves = diffAssignments(base, p.assignments as Record<string, Assignment>)
-  return { planId: id, against: againstId ?? 'live', moves, counts: { bench: moves.filter((m) => m.change.includes('bench')).length, person: moves.filter((m) => m.change.includes('person')).length, time: moves.filter((m) => m.change.includes('time')).length, new: moves.filter((m) => m.change.includes('new')).length } }
+  const draft = p.assignments as Record<string, Assignment>
+  const moves = diffAssignments(base, draft)
+  return { planId: id, against: againstId ?? 'live', moves, gains: await whatItBuys(db, workshopId, base, draft), counts: { bench: moves.filter((m) => m.change.includes('bench')).length, person: moves.filter((m) => m.change.includes('person')).length, time: moves.filter((m) => m.change.includes('time')).length, new: moves.filter((m) => m.change.includes('new')).length } }
 }
 
 export async function publishPlan({ db, realtime }: Deps, actor: Actor, id: number) {

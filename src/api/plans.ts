@@ -145,6 +145,8 @@ export interface PlanComparison {
   against: number | 'live'
   moves: PlanMove[]
   counts: { bench: number; person: number; time: number; new: number }
+  /** Job bags planned in both: finishing earlier / later, and less / more late than promised. */
+  gains: { earlier: number; later: number; lessLate: number; moreLate: number }
 }
 
 export interface MoveResult {

@@ -59,6 +59,23 @@ describe('planner runs and versions', () => {
     await t.db.update(s.operations).set({ plannedStart: null, plannedEnd: null, plannedBenchId: null, plannedPersonId: null }).where(notInArray(s.operations.status, ['running', 'done', 'skipped']))
     const a = await runPlanner(manager)
     const b = await runPlanner(manager)
+    // What b buys against a, counted here from the two drafts' own assignments (job bag finish = its last step's end).
+    const cmp = (await manager.get(`/api/plans/${b}/compare?against=${a}`)).body
+    const ops = await t.db.select({ id: s.operations.id, bag: s.operations.jobBagId }).from(s.operations)
+    const bagOf = new Map(ops.map((o) => [String(o.id), o.bag]))
+    const [pa] = await t.db.select().from(s.planVersions).where(eq(s.planVersions.id, a))
+    const [pb] = await t.db.select().from(s.planVersions).where(eq(s.planVersions.id, b))
+    const finish = (asg: Record<string, { end: string }>) => {
+      const m = new Map<number, number>()
+      for (const [id, x] of Object.entries(asg)) { const bag = bagOf.get(id)!; m.set(bag, Math.max(m.get(bag) ?? 0, new Date(x.end).getTime())) }
+      return m
+    }
+    const fa = finish(pa!.assignments as any), fb = finish(pb!.assignments as any)
+    let earlier = 0, later = 0
+    for (const [bag, t0] of fa) { const t1 = fb.get(bag); if (t1 !== undefined && t1 < t0) earlier++; else if (t1 !== undefined && t1 > t0) later++ }
+    expect(cmp.gains).toMatchObject({ earlier, later })
+    expect(cmp.gains.lessLate).toBeLessThanOrEqual(earlier)
+    expect(cmp.gains.moreLate).toBeLessThanOrEqual(later)
     expect((await manager.post(`/api/plans/${b}/publish`)).status).toBe(200)
     const stale = await manager.post(`/api/plans/${a}/publish`)
     expect(stale.status).toBe(409)

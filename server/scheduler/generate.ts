@@ -148,7 +148,8 @@ export function generateWorkshop(settings: WorkshopSettings): Problem {
   }
   if (settings.withProgress) {
     // Some first steps are finished, and one job's saw work is running on the saw bench with Gil since now.
-    for (const op of operations) if (op.predecessors.length === 0 && !op.outsideWorkingDays && rng.next() < 0.3) op.done = true
+    // Finished ten minutes ago, so a wait after them (pickle, cure) still holds their successors a little.
+    for (const op of operations) if (op.predecessors.length === 0 && !op.outsideWorkingDays && rng.next() < 0.3) { op.done = true; op.finishedAt = now - 10 }
     const running = operations.find((o) => !o.done && o.kind === 'sawing' && o.predecessors.length === 0)
     const opt = running?.options.find((o) => o.benchId === 'saw-1' && o.personId === 'gil')
     if (running && opt) running.fixed = { benchId: 'saw-1', personId: 'gil', start: now }

@@ -4,6 +4,27 @@ import fc from 'fast-check'
 import { solve, validatePlan, type Operation, type Problem } from '../../server/scheduler/index.ts'
 import { generateWorkshop } from '../../server/scheduler/generate.ts'
 import { at, makeBench, makeJob, makePerson, weekdays } from './builders.ts'
+import { existsSync, mkdtempSync, writeFileSync } from 'node:fs'
+import { spawnSync } from 'node:child_process'
+import { tmpdir } from 'node:os'
+import { dirname, join, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
+const checker = resolve(root, process.env.MILLGRAIN_BENCH_DIR ?? '../shared/bench', '../tools/check-workshop.mjs')
+const haveChecker = existsSync(checker)
+if (!haveChecker) console.warn(`INDEPENDENT CHECKER MISSING at ${checker}: property plans are checked by the engine's validator only.`)
+const tmp = mkdtempSync(join(tmpdir(), 'millgrain-prop-'))
+let checked = 0
+/** The kit's independent workshop checker (written apart from the engine) on one plan: its output when it refuses, else ''. */
+function independent(problem: Problem, plan: unknown): string {
+  if (!haveChecker) return ''
+  const k = checked++
+  writeFileSync(join(tmp, `p${k}.json`), JSON.stringify(problem))
+  writeFileSync(join(tmp, `l${k}.json`), JSON.stringify(plan))
+  const r = spawnSync(process.execPath, [checker, join(tmp, `p${k}.json`), join(tmp, `l${k}.json`)], { encoding: 'utf8' })
+  return r.status === 0 ? '' : r.stdout + r.stderr
+}
 
 /** A random small workshop built from fast-check choices: benches, people with breaks, jobs with branching routings. */
 const workshop = fc.record({
@@ -53,7 +74,7 @@ function build(w: Workshop): Problem {
       const op: Operation = { id, jobId: `j${ji}`, name: id, kind: 'work', predecessors: o.pred >= 0 && o.pred < k ? [`j${ji}o${o.pred}`] : k > 0 ? [`j${ji}o${k - 1}`] : [], options }
       if (o.outside === 1) op.outsideWorkingDays = 2
       if (o.wait > 40) op.waitAfter = o.wait
-      if (o.done === 0 && k === 0) op.done = true
+      if (o.done === 0 && k === 0) { op.done = true; op.finishedAt = Math.max(0, w.now - o.wait) }
       operations.push(op)
     })
     return makeJob({ id: `j${ji}`, release: j.release, due: j.due, weight: j.weight })
@@ -68,6 +89,7 @@ describe('random workshops', () => {
         const problem = build(w)
         const plan = solve(problem, { seed, timeLimitMs: 1000, maxIterations: 40 }, { clock: () => performance.now() })
         expect(validatePlan(problem, plan)).toEqual([])
+        expect(independent(problem, plan)).toBe('')
         expect(plan.operations.length).toBe(problem.operations.filter((o) => !o.done).length)
       }),
       { numRuns: 60, seed: 20250303 },
@@ -80,6 +102,7 @@ describe('random workshops', () => {
         const problem = generateWorkshop({ seed, jobs, withProgress: true })
         const plan = solve(problem, { seed, timeLimitMs: 1000, maxIterations: 30 }, { clock: () => performance.now() })
         expect(validatePlan(problem, plan)).toEqual([])
+        expect(independent(problem, plan)).toBe('')
       }),
       { numRuns: 15, seed: 7 },
     )
@@ -99,6 +122,25 @@ describe('random workshops', () => {
         expect(validatePlan(problem, plan)).toEqual([])
       }),
       { numRuns: 40, seed: 11 },
+    )
+  })
+
+  it('when random shops with a machine and a worker per step and due dates are planned, then both validators accept the plans', () => {
+    fc.assert(
+      fc.property(fc.array(fc.array(fc.record({ m: fc.integer({ min: 0, max: 2 }), w: fc.integer({ min: 0, max: 2 }), d: fc.integer({ min: 1, max: 9 }) }), { minLength: 1, maxLength: 4 }), { minLength: 1, maxLength: 5 }), fc.integer({ min: 0, max: 30 }), (jobs, slack) => {
+        const always = [{ start: 0, end: 10_000 }]
+        const problem: Problem = {
+          origin: '2025-03-03', now: 0, horizon: 10_000, workshopDays: always,
+          benches: [0, 1, 2].map((k) => makeBench({ id: `m${k}`, available: always })),
+          people: [0, 1, 2].map((k) => makePerson({ id: `w${k}`, available: always })),
+          jobs: jobs.map((ops, j) => makeJob({ id: `j${j}`, due: ops.reduce((a, o) => a + o.d, 0) + slack, weight: 1 + (j % 3) })),
+          operations: jobs.flatMap((ops, j) => ops.map((o, k) => ({ id: `j${j}o${k}`, jobId: `j${j}`, name: `j${j}o${k}`, kind: 'machine', predecessors: k > 0 ? [`j${j}o${k - 1}`] : [], options: [{ benchId: `m${o.m}`, personId: `w${o.w}`, minutes: o.d }, { benchId: `m${(o.m + 1) % 3}`, personId: `w${(o.w + 2) % 3}`, minutes: o.d + 2 }] }))),
+        }
+        const plan = solve(problem, { seed: 1, timeLimitMs: 1000, maxIterations: 200 }, { clock: () => performance.now() })
+        expect(validatePlan(problem, plan)).toEqual([])
+        expect(independent(problem, plan)).toBe('')
+      }),
+      { numRuns: 30, seed: 13 },
     )
   })
 

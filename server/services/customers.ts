@@ -1,5 +1,5 @@
 // Customers: searchable list with open-order counts; references are generated (C-0001).
-import { and, asc, count, desc, eq, ilike, or, sql } from 'drizzle-orm'
+import { and, asc, count, desc, eq, ilike, inArray, notInArray, or, sql } from 'drizzle-orm'
 import type { CustomerInput } from '../../shared/schemas/customer'
 import type { ListQuery } from '../../shared/schemas/common'
 import type { Db } from '../db/client'
@@ -11,20 +11,36 @@ import { requireOwned, updateVersioned } from './versioned'
 /** ILIKE pattern for "contains", with the user's % and _ taken literally. */
 const containing = (text: string) => `%${text.replace(/[\\%_]/g, '\\$&')}%`
 
-const openCount = sql<number>`(select count(*)::int from ${orders} where ${orders.customerId} = ${customers.id} and ${orders.status} not in ('collected','cancelled'))`
+/** Orders still in the workshop's hands (not collected, not cancelled), per customer of the page. */
+async function openOrderCounts(db: Db, workshopId: number, customerIds: number[]): Promise<Map<number, number>> {
+  if (!customerIds.length) return new Map()
+  // A grouped query rather than a correlated sub-query: Drizzle leaves columns unqualified in a one-table select, so
+  // "orders.customer_id = customers.id" inside the sub-query would bind both sides to orders.
+  const rows = await db.select({ customerId: orders.customerId, n: count() }).from(orders)
+    .where(and(eq(orders.workshopId, workshopId), inArray(orders.customerId, customerIds), notInArray(orders.status, ['collected', 'cancelled'])))
+    .groupBy(orders.customerId)
+  return new Map(rows.map((r) => [r.customerId, r.n]))
+}
 
 export async function listCustomers(db: Db, workshopId: number, q: ListQuery) {
   const like = q.q ? containing(q.q) : null
   const where = and(eq(customers.workshopId, workshopId), like ? or(ilike(customers.name, like), ilike(customers.email, like), ilike(customers.reference, like)) : undefined)
   const sortCol = q.sort === 'reference' ? customers.reference : q.sort === 'email' ? customers.email : customers.name
   const [total] = await db.select({ n: count() }).from(customers).where(where)
-  const items = await db.select({ id: customers.id, reference: customers.reference, name: customers.name, email: customers.email, phone: customers.phone, notes: customers.notes, version: customers.version, openOrders: openCount })
+  const rows = await db.select({ id: customers.id, reference: customers.reference, name: customers.name, email: customers.email, phone: customers.phone, notes: customers.notes, version: customers.version })
     .from(customers).where(where).orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(customers.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
+  const open = await openOrderCounts(db, workshopId, rows.map((r) => r.id))
+  const items = rows.map((r) => ({ ...r, openOrders: open.get(r.id) ?? 0 }))
   return { items, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
 }
 
+/** One customer row with its open-order count, as the list gives it. */
+async function withOpenOrders<T extends { id: number }>(db: Db, workshopId: number, c: T) {
+  return { ...c, openOrders: (await openOrderCounts(db, workshopId, [c.id])).get(c.id) ?? 0 }
+}
+
 export async function getCustomer(db: Db, workshopId: number, id: number) {
-  return requireOwned(db, customers, 'Customer', id, workshopId)
+  return withOpenOrders(db, workshopId, await requireOwned(db, customers, 'Customer', id, workshopId))
 }
 
 export async function createCustomer({ db, realtime }: Deps, actor: Actor, input: CustomerInput) {
@@ -38,7 +54,7 @@ export async function createCustomer({ db, realtime }: Deps, actor: Actor, input
     return c!
   })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'customer', id: c.id })
-  return c
+  return withOpenOrders(db, actor.workshopId, c)
 }
 
 export async function updateCustomer({ db, realtime }: Deps, actor: Actor, id: number, input: Partial<CustomerInput> & { version: number }) {
@@ -49,5 +65,5 @@ export async function updateCustomer({ db, realtime }: Deps, actor: Actor, id: n
     return c
   })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'customer', id })
-  return c
+  return withOpenOrders(db, actor.workshopId, c)
 }

@@ -54,16 +54,22 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   api.use(express.json({ limit: '1mb' }))
   api.use(sessionMiddleware)
   api.use(passport.session())
-  api.use(requireCsrf)
-  const loginLimiter = rateLimit({
+  // Failed sign-ins are limited per address and per account; a sign-in that succeeds does not count (tablets behind one router sign in all day).
+  const failedSignIns = (what: string, keyGenerator?: (req: express.Request) => string) => rateLimit({
     windowMs: 15 * 60_000,
     limit: config.LOGIN_ATTEMPTS_PER_15_MIN,
+    skipSuccessfulRequests: true,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
+    ...(keyGenerator ? { keyGenerator } : {}),
     handler: (_req, _res, next) =>
-      next(new AppError({ code: 'rate-limited', message: 'Too many sign-in attempts; wait 15 minutes and try again.' })),
+      next(new AppError({ code: 'rate-limited', message: `Too many failed sign-ins ${what}; wait 15 minutes and try again.` })),
   })
-  api.post('/session', loginLimiter)
+  const accountKey = (req: express.Request) => {
+    const email = (req.body as { email?: unknown } | undefined)?.email
+    return `account:${typeof email === 'string' ? email.trim().toLowerCase() : ''}`
+  }
+  api.post('/session', failedSignIns('from this address'), failedSignIns('for this account', accountKey))
 
   for (const spec of allRoutes) register(api, spec, deps)
   api.use((req, _res, next) => next(new AppError({ code: 'not-found', message: `No such API route: ${req.method} ${req.baseUrl}${req.path}` })))
@@ -98,5 +104,6 @@ function register(router: express.Router, spec: RouteSpec, deps: Deps) {
       next(err)
     }
   }
-  router[spec.method](spec.path, authorize(spec.roles), handler)
+  // Who you are before the CSRF token: a write without a session is 401 (sign in), not 403 (reload).
+  router[spec.method](spec.path, authorize(spec.roles), requireCsrf, handler)
 }

@@ -10,6 +10,7 @@ const schema = z.object({
   SESSION_IDLE_MINUTES: z.coerce.number().int().min(1).default(12 * 60),
   /** Bench tablets stay signed in this long. */
   BENCH_SESSION_DAYS: z.coerce.number().int().min(1).default(30),
+  /** Failed sign-ins allowed in 15 minutes, counted per address and per account (successful ones do not count). */
   LOGIN_ATTEMPTS_PER_15_MIN: z.coerce.number().int().min(1).default(20),
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
   /** Built client to serve (omitted in API-only tests). */

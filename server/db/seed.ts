@@ -119,7 +119,7 @@ const TEMPLATES: { code: string; name: string; description: string; steps: Step[
   { code: 'stud-run', name: 'Production run: stud earrings', description: 'Cast studs with soldered posts, per pair minutes.',
     steps: [
       { key: 'cast', kind: 'casting', name: 'Cast tree (caster)', base: 0, lead: 5 },
-      { key: 'clean', kind: 'filing', name: 'Cut off and clean', base: 5 },
+      { key: 'clean', kind: 'filing', name: 'Cut off and clean', base: 5, after: ['cast'] },
       { key: 'post', kind: 'soldering', name: 'Solder posts', base: 4, wait: 20, after: ['clean'] },
       { key: 'polish', kind: 'polishing', name: 'Barrel and polish', base: 4, after: ['post'] },
       { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['polish'] },

@@ -1,6 +1,7 @@
 // Routing templates and their steps (a small graph: steps may branch and join).
 import { and, asc, eq, inArray } from 'drizzle-orm'
 import type { Template, TemplateInput } from '../../shared/schemas/template'
+import { templateWarnings } from '../../shared/domain/template-warnings'
 import type { Db, Trx } from '../db/client'
 import { operationKinds, routingTemplates, templateSteps } from '../db/schema/index'
 import { AppError, invalid, notFound } from '../errors/app-error'
@@ -12,10 +13,12 @@ export async function listTemplates(db: Db, workshopId: number): Promise<Templat
   const rows = await db.select().from(routingTemplates).where(eq(routingTemplates.workshopId, workshopId)).orderBy(asc(routingTemplates.name))
   if (!rows.length) return []
   const steps = await db.select().from(templateSteps).where(inArray(templateSteps.templateId, rows.map((r) => r.id))).orderBy(asc(templateSteps.seq))
-  return rows.map((t) => ({
-    id: t.id, code: t.code, name: t.name, description: t.description, version: t.version,
-    steps: steps.filter((s) => s.templateId === t.id).map((s) => ({ id: s.id, key: s.key, kindId: s.kindId, name: s.name, baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes, requiredLevel: s.requiredLevel, waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after })),
-  }))
+  const kinds = await db.select({ id: operationKinds.id, outside: operationKinds.outside }).from(operationKinds).where(eq(operationKinds.workshopId, workshopId))
+  const outside = new Set(kinds.filter((k) => k.outside).map((k) => k.id))
+  return rows.map((t) => {
+    const own = steps.filter((s) => s.templateId === t.id).map((s) => ({ id: s.id, key: s.key, kindId: s.kindId, name: s.name, baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes, requiredLevel: s.requiredLevel, waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after }))
+    return { id: t.id, code: t.code, name: t.name, description: t.description, version: t.version, steps: own, warnings: templateWarnings(own, (k) => outside.has(k)) }
+  })
 }
 
 export async function getTemplate(db: Db, workshopId: number, id: number) {

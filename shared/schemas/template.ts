@@ -1,6 +1,7 @@
 // Routing templates: the usual steps of a kind of piece, with estimate inputs and a step graph.
 import { z } from 'zod'
 import { code, id, name, notes, version } from './common'
+import type { TemplateWarning } from '../domain/template-warnings'
 
 export const stepInput = z.object({
   key: z.string().trim().min(1, 'is required').max(20).regex(/^[a-z0-9-]+$/, 'use lower-case letters, digits and dashes'),
@@ -44,4 +45,6 @@ export const templateUpdate = z.object({ version }).and(templateInput)
 export type StepInput = z.infer<typeof stepInput>
 export type TemplateInput = z.infer<typeof templateInput>
 export interface TemplateStep extends StepInput { id: number }
-export interface Template { id: number; code: string; name: string; description: string; steps: TemplateStep[]; version: number }
+export type { TemplateWarning } from '../domain/template-warnings'
+/** `warnings`: what the step graph allows that is probably not meant (shared/domain/template-warnings.ts); saving is still allowed. */
+export interface Template { id: number; code: string; name: string; description: string; steps: TemplateStep[]; version: number; warnings: TemplateWarning[] }

@@ -84,7 +84,9 @@ describe('taking an order', () => {
     const r = await sales.post('/api/orders', { customerId, title: 'Studs', dueDate: '2031-07-03', pieces: [{ templateId: tpl['stud-run']!.id, piece: 'Seed studs, 40 pairs', params: { quantity: 40 } }] })
     // Stud run (seed.ts): clean 5, post 4, polish 4, pack 1.5 minutes per pair; casting and hallmarking are outside.
     expect(estimates(r.body.jobBags[0].operations)).toEqual({ cast: 0, clean: 200, post: 160, polish: 160, hallmark: 0, pack: 60 })
-    expect(statuses(r.body.jobBags[0].operations)).toMatchObject({ cast: 'ready', clean: 'ready', post: 'pending', pack: 'pending' })
+    // Cleaning waits for the casting to come back; only the casting can start.
+    expect(statuses(r.body.jobBags[0].operations)).toMatchObject({ cast: 'ready', clean: 'pending', post: 'pending', pack: 'pending' })
+    expect(byKey(r.body.jobBags[0].operations).clean!.after).toEqual(['cast'])
   })
 
   it('when the customer or a template is not the workshop\'s, then 400 naming the field and nothing is saved', async () => {

@@ -2,12 +2,14 @@
 // Monte Carlo walk of the prospective job bag through the gaps of the fixed plan.
 //
 // Method. The current plan is held fixed (when work runs over, the manager re-plans; the customer's date is about the new
-// piece). Each run draws one actual/estimate ratio per operation of the new job bag — resampled from the finished operations
-// of that kind (ratio = actual minutes ÷ (estimate ÷ the worker's speed)), or, when a kind has fewer than MIN_HISTORY finished
-// operations, from a log-normal with median 1 and σ = FALLBACK_SIGMA — and walks the routing in order: each operation starts
-// when its predecessors (and their waits) are done, on the bench × person pair that finishes it first within their common
-// working time without overlapping anything already booked on that bench or person (the fixed plan plus the new bag's own
-// earlier steps). Outside work keeps its working days. The sorted completions give P50/P80/P95 (simple-statistics quantileSorted).
+// piece). Each run draws one actual/estimate ratio per operation of the new job bag — bench work and outside work alike —
+// resampled from the finished operations of that kind (bench work: ratio = actual minutes ÷ (estimate ÷ the worker's speed);
+// outside work: working days from sending (its predecessors' finish) to its return ÷ the lead days), or, when a kind has
+// fewer than MIN_HISTORY finished operations, from the stated assumption: a log-normal with median 1 and σ = FALLBACK_SIGMA.
+// It then walks the routing in order: each operation starts when its predecessors (and their waits) are done, on the
+// bench × person pair that finishes it first within their common working time without overlapping anything already booked
+// on that bench or person (the fixed plan plus the new bag's own earlier steps); outside work takes round(lead days × ratio)
+// whole working days, at least one. The sorted completions give P50/P80/P95 (simple-statistics quantileSorted).
 // Cost: runs × steps × pairs short interval walks — a few milliseconds per hundred runs — instead of re-running the engine.
 import { quantileSorted } from 'simple-statistics'
 import { and, eq, gt, inArray } from 'drizzle-orm'
@@ -16,11 +18,15 @@ import * as s from '../db/schema/index'
 import { intersect, outsideWorkEnd, walkWorkingTime } from '../scheduler/calendar.ts'
 import type { Interval, Operation, Plan, Problem } from '../scheduler/model.ts'
 import { createRng, type Rng } from '../scheduler/random.ts'
+import { dayjs } from '../lib/time'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
 
 export const MIN_HISTORY = 8
 export const FALLBACK_SIGMA = 0.35
 export const DEFAULT_RUNS = 500
+
+/** The stated assumption where history is thin, in words for the screen. */
+export const ASSUMPTION = `Where a kind of work has fewer than ${MIN_HISTORY} finished examples, its duration is an assumption, not a measurement: the estimate times a log-normal factor with median 1 and σ = ${FALLBACK_SIGMA} (about ${Math.round((Math.exp(FALLBACK_SIGMA * 1.2815515655) - 1) * 100)} % over the estimate one time in ten); outside work (casting, hallmarking) in whole working days, at least one.`
 
 export interface KindSpread { kind: string; source: 'history' | 'log-normal'; samples: number; ratios: number[]; p10: number; p50: number; p90: number }
 
@@ -44,6 +50,23 @@ export async function kindSpreads(db: Db, workshopId: number): Promise<Map<strin
     // A record left open for days or a mistyped estimate tells nothing about the work; keep a wide but sane band.
     if (ratio >= 0.1 && ratio <= 10) (ratios.get(d.kindId) ?? ratios.set(d.kindId, []).get(d.kindId)!).push(ratio)
   }
+  // Outside work: working days from its predecessors' finish (when it was sent) to its return, against its lead days.
+  {
+    const workingDaysBetween = await workingDayCounter(db, workshopId)
+    const outside = await db.select({ id: s.operations.id, bag: s.operations.jobBagId, kindId: s.operations.kindId, key: s.operations.key, after: s.operations.after, leadDays: s.operations.leadDays, finishedAt: s.operations.finishedAt })
+      .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+      .where(and(eq(s.jobBags.workshopId, workshopId), eq(s.operations.status, 'done'), gt(s.operations.leadDays, 0)))
+    const bags = [...new Set(outside.map((o) => o.bag))]
+    const siblings = bags.length ? await db.select({ bag: s.operations.jobBagId, key: s.operations.key, finishedAt: s.operations.finishedAt }).from(s.operations).where(inArray(s.operations.jobBagId, bags)) : []
+    for (const o of outside) {
+      if (!o.finishedAt || !o.after.length) continue
+      const sent = siblings.filter((x) => x.bag === o.bag && o.after.includes(x.key)).map((x) => x.finishedAt)
+      if (sent.length !== o.after.length || sent.some((x) => !x)) continue
+      const from = sent.reduce((m, x) => (Date.parse(x!) > Date.parse(m!) ? x : m))!
+      const ratio = workingDaysBetween(from, o.finishedAt) / o.leadDays
+      if (ratio >= 0.1 && ratio <= 10) (ratios.get(o.kindId) ?? ratios.set(o.kindId, []).get(o.kindId)!).push(ratio)
+    }
+  }
   const out = new Map<string, KindSpread>()
   for (const k of kinds) {
     const list = (ratios.get(k.id) ?? []).sort((a, b) => a - b)
@@ -54,11 +77,29 @@ export async function kindSpreads(db: Db, workshopId: number): Promise<Map<strin
   return out
 }
 
+/** Working days of the workshop after the day of `from` up to and including the day of `to` (its week pattern less closures). */
+async function workingDayCounter(db: Db, workshopId: number): Promise<(from: string, to: string) => number> {
+  const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
+  const closures = await db.select().from(s.closures).where(eq(s.closures.workshopId, workshopId))
+  const weekdays = new Set((w?.weekPattern ?? []).map((p) => p.weekday))
+  const tz = w?.timeZone ?? 'UTC'
+  return (from, to) => {
+    let d = dayjs(from).tz(tz).startOf('day').add(1, 'day')
+    const last = dayjs(to).tz(tz).format('YYYY-MM-DD')
+    let n = 0
+    for (let guard = 0; guard < 400 && d.format('YYYY-MM-DD') <= last; guard++, d = d.add(1, 'day')) {
+      const day = d.format('YYYY-MM-DD')
+      if (weekdays.has(d.isoWeekday()) && !closures.some((c) => c.startsOn <= day && day <= c.endsOn)) n++
+    }
+    return n
+  }
+}
+
 /** Standard normal quantiles for the summary points shown beside the range. */
 const Z: Record<number, number> = { 0.1: -1.2815515655, 0.5: 0, 0.9: 1.2815515655 }
 const normalQuantile = (p: number) => Z[p] ?? 0
 
-function drawRatio(spread: KindSpread | undefined, rng: Rng): number {
+export function drawRatio(spread: KindSpread | undefined, rng: Rng): number {
   if (spread && spread.source === 'history') return spread.ratios[rng.int(spread.ratios.length)]!
   // Box–Muller: one standard normal from two uniforms.
   const u = 1 - rng.next(), v = rng.next()
@@ -138,7 +179,9 @@ export function simulateCompletions(o: SimulationInput): number[] {
       for (const p of op.predecessors) ready = Math.max(ready, finish.get(p) ?? problem.now)
       let end: number
       if (op.outsideWorkingDays && op.outsideWorkingDays > 0) {
-        end = outsideWorkEnd(problem.workshopDays, ready, op.outsideWorkingDays) ?? problem.horizon
+        // Outside work varies too, in whole working days (a caster or assay office returns on a working day).
+        const days = Math.max(1, Math.round(op.outsideWorkingDays * drawRatio(o.spreads.get(op.kind), rng)))
+        end = outsideWorkEnd(problem.workshopDays, ready, days) ?? problem.horizon
       } else {
         const ratio = drawRatio(o.spreads.get(op.kind), rng)
         let best: { end: number; start: number; benchId: string | null; personId: string | null } | null = null

@@ -17,7 +17,7 @@ import { createOrder } from './orders'
 import { currentAssignments, type Assignment } from './planning/assignments'
 import { loadPlanningData, operationOptions, weightOfPriority, type PlanningData } from './planning/problem'
 import { planningError } from './planning/runs'
-import { DEFAULT_RUNS, kindSpreads, simulateCompletions, type KindSpread } from './promise-range'
+import { ASSUMPTION, DEFAULT_RUNS, kindSpreads, simulateCompletions, type KindSpread } from './promise-range'
 import { requireOwned } from './versioned'
 
 /** Search budget of the "everything re-planned" answer; the fixed answer is one decode. */
@@ -201,7 +201,8 @@ function confidenceRange(data: PlanningData, plan: Plan, operations: Operation[]
   const used = new Set(operations.map((o) => o.kind))
   return {
     runs, seed,
-    method: 'The current plan stays as it is; the new job bag is walked through its gaps in each run with durations drawn from how long each kind of work really took against its estimate.',
+    method: 'The current plan stays as it is; the new job bag is walked through its gaps in each run with every duration drawn — bench work in minutes, outside work in working days — from how long each kind of work really took against its estimate.',
+    assumption: ASSUMPTION,
     p50: at(q.p50), p80: at(q.p80), p95: at(q.p95), quantileMinutes: q,
     kinds: [...spreads.values()].filter((k) => used.has(k.kind)).map(({ ratios: _r, ...k }) => ({ ...k, p10: round2(k.p10), p50: round2(k.p50), p90: round2(k.p90) })),
     ...(withSample ? { sampleMinutes: sample } : {}),

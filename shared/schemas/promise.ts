@@ -49,6 +49,8 @@ export interface PromiseCheckResult {
   wanted: { date: string; fixedPlanMeets: boolean; replannedMeets: boolean } | null
   range: null | {
     runs: number; seed: number; method: string
+    /** The stated default where history is thin (distribution and its σ). */
+    assumption: string
     p50: PromiseMoment; p80: PromiseMoment; p95: PromiseMoment
     /** The quantiles in minutes after now, unrounded. */
     quantileMinutes: { p50: number; p80: number; p95: number }

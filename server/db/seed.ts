@@ -200,7 +200,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
   const rand = rng(20261202)
   const hash = await hashPassword(DEMO_PASSWORD)
   await db.transaction(async (tx) => {
-    const [w] = await tx.insert(s.workshops).values({ name: 'Wrenfield Street Workshop', timeZone: 'Europe/London', weekPattern: WEEK }).returning()
+    const [w] = await tx.insert(s.workshops).values({ name: 'Wrenfield Street Workshop', timeZone: 'Europe/London', weekPattern: WEEK, address: '14 Wrenfield Street, Bristol BS1 4QX', phone: '0117 496 0321', contactEmail: 'orders@wrenfield.test', currency: 'GBP' }).returning()
     const workshopId = w!.id
     const kinds = await tx.insert(s.operationKinds).values(KINDS.map((k) => ({ workshopId, code: k.code, name: k.name, hazards: [...k.hazards], color: k.color, outside: 'outside' in k ? k.outside : false }))).returning()
     const kindId = (c: KindCode) => kinds.find((k) => k.code === c)!.id

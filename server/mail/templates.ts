@@ -8,30 +8,49 @@ const esc = (s: string) => s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&
 /** "Thursday 12 March 2026" — a date the customer reads without doubt about day and month order. */
 export const longDate = (isoDate: string) => dayjs(isoDate).format('dddd D MMMM YYYY')
 
-function wrap(workshopName: string, paragraphs: string[], lines: string[] = []): { text: string; html: string } {
-  const text = [...paragraphs, ...(lines.length ? ['', ...lines.map((l) => `  - ${l}`)] : []), '', `— ${workshopName}`].join('\n')
-  const html = `<div style="font-family:sans-serif;line-height:1.5">${paragraphs.map((p) => `<p>${esc(p)}</p>`).join('')}${lines.length ? `<ul>${lines.map((l) => `<li>${esc(l)}</li>`).join('')}</ul>` : ''}<p>— ${esc(workshopName)}</p></div>`
+/** Who the customer writes back to: the workshop's name, address and contact, as kept in its settings. */
+export interface WorkshopContact { name: string; address?: string; phone?: string; email?: string; currency?: string }
+
+/** Whether the new piece's steps are in the live plan, with the workshop-local dates they span. */
+export type BookingFacts = { booked: true; startDate: string; endDate: string } | { booked: false }
+
+/** A price with its currency, e.g. "£640.00" (Intl, British English). */
+export const money = (amount: number, currency = 'GBP') => new Intl.NumberFormat('en-GB', { style: 'currency', currency }).format(amount)
+
+function signature(w: WorkshopContact): string[] {
+  return [w.name, ...(w.address ? [w.address] : []), ...[w.phone && `Telephone ${w.phone}`, w.email && `E-mail ${w.email}`].filter((x): x is string => !!x)]
+}
+
+function wrap(w: WorkshopContact, paragraphs: string[], lines: string[] = []): { text: string; html: string } {
+  const sig = signature(w)
+  const text = [...paragraphs, ...(lines.length ? ['', ...lines.map((l) => `  - ${l}`)] : []), '', `— ${sig[0]}`, ...sig.slice(1)].join('\n')
+  const html = `<div style="font-family:sans-serif;line-height:1.5">${paragraphs.map((p) => `<p>${esc(p)}</p>`).join('')}${lines.length ? `<ul>${lines.map((l) => `<li>${esc(l)}</li>`).join('')}</ul>` : ''}<p>— ${sig.map(esc).join('<br>')}</p></div>`
   return { text, html }
 }
 
-export function promiseConfirmation(o: { workshopName: string; customerName: string; orderNumber: string; title: string; promisedDate: string; priceQuoted: number }): MailContent {
+export function promiseConfirmation(o: { workshop: WorkshopContact; customerName: string; orderNumber: string; title: string; promisedDate: string; priceQuoted: number; booking: BookingFacts }): MailContent {
   const when = `${longDate(o.promisedDate)} (${o.promisedDate})`
+  const b = o.booking
   return {
-    subject: `${o.workshopName}: your order ${o.orderNumber} will be ready by ${longDate(o.promisedDate)}`,
-    ...wrap(o.workshopName, [
+    subject: `${o.workshop.name}: your order ${o.orderNumber} will be ready by ${longDate(o.promisedDate)}`,
+    ...wrap(o.workshop, [
       `Dear ${o.customerName},`,
-      `Thank you for your order "${o.title}" (${o.orderNumber}).`,
-      `We have planned it into our workshop and promise it ready by ${when}.`,
-      ...(o.priceQuoted > 0 ? [`Price as quoted: ${o.priceQuoted.toFixed(2)}.`] : []),
+      `Thank you for your order "${o.title}" (${o.orderNumber}). We promise it ready by ${when}.`,
+      b.booked
+        ? (b.startDate === b.endDate
+          ? `It is booked into our workshop plan for ${longDate(b.startDate)}.`
+          : `It is booked into our workshop plan: work starts on ${longDate(b.startDate)} and is planned to be finished on ${longDate(b.endDate)}.`)
+        : 'It is not in our workshop plan yet; we will confirm the dates when it is.',
+      ...(o.priceQuoted > 0 ? [`Price as quoted: ${money(o.priceQuoted, o.workshop.currency)}.`] : []),
       'We will write again when it is ready to collect.',
     ]),
   }
 }
 
-export function readyForCollection(o: { workshopName: string; customerName: string; orderNumber: string; title: string }): MailContent {
+export function readyForCollection(o: { workshop: WorkshopContact; customerName: string; orderNumber: string; title: string }): MailContent {
   return {
-    subject: `${o.workshopName}: order ${o.orderNumber} is ready to collect`,
-    ...wrap(o.workshopName, [`Dear ${o.customerName},`, `Your order "${o.title}" (${o.orderNumber}) is finished and ready for collection.`, 'Please bring your order number with you.']),
+    subject: `${o.workshop.name}: order ${o.orderNumber} is ready to collect`,
+    ...wrap(o.workshop, [`Dear ${o.customerName},`, `Your order "${o.title}" (${o.orderNumber}) is finished and ready for collection.`, 'Please bring your order number with you.']),
   }
 }
 
@@ -43,6 +62,6 @@ export function atRiskDigest(o: { workshopName: string; day: string; jobs: Diges
   const lines = [...fresh.map((j) => `NEW ${line(j)}`), ...still.map(line)]
   return {
     subject: `${o.workshopName}: ${fresh.length} job bag${fresh.length === 1 ? '' : 's'} newly at risk, ${o.jobs.length} in all (${o.day})`,
-    ...wrap(o.workshopName, [`Job bags at risk of missing their date on ${longDate(o.day)}, from the live plan:`], lines),
+    ...wrap({ name: o.workshopName }, [`Job bags at risk of missing their date on ${longDate(o.day)}, from the live plan:`], lines),
   }
 }

@@ -37,19 +37,20 @@ export async function sendRecorded(deps: Pick<Deps, 'db' | 'mailer'>, m: MailReq
 }
 
 async function orderFacts(db: Db, workshopId: number, orderId: number) {
-  const [r] = await db.select({ order: s.orders, customerName: s.customers.name, customerEmail: s.customers.email, workshopName: s.workshops.name })
+  const [r] = await db.select({ order: s.orders, customerName: s.customers.name, customerEmail: s.customers.email, workshopName: s.workshops.name, workshop: { name: s.workshops.name, address: s.workshops.address, phone: s.workshops.phone, email: s.workshops.contactEmail, currency: s.workshops.currency } })
     .from(s.orders).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId)).innerJoin(s.workshops, eq(s.workshops.id, s.orders.workshopId))
     .where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
   if (!r) throw notFound('Order')
   return r
 }
 
-export async function sendPromiseConfirmation(deps: Pick<Deps, 'db' | 'mailer'>, workshopId: number, orderId: number) {
+/** The customer's confirmation; `booking` says whether the steps are in the live plan (with their dates) or not yet. */
+export async function sendPromiseConfirmation(deps: Pick<Deps, 'db' | 'mailer'>, workshopId: number, orderId: number, booking: t.BookingFacts = { booked: false }) {
   const f = await orderFacts(deps.db, workshopId, orderId)
   const promised = f.order.promisedDate ?? f.order.dueDate
   return sendRecorded(deps, {
-    workshopId, to: f.customerEmail, kind: 'promise-confirmation', orderId, meta: { promisedDate: promised },
-    content: t.promiseConfirmation({ workshopName: f.workshopName, customerName: f.customerName, orderNumber: f.order.number, title: f.order.title, promisedDate: promised, priceQuoted: f.order.priceQuoted }),
+    workshopId, to: f.customerEmail, kind: 'promise-confirmation', orderId, meta: { promisedDate: promised, booked: booking.booked, ...(booking.booked ? { startDate: booking.startDate, endDate: booking.endDate } : {}) },
+    content: t.promiseConfirmation({ workshop: f.workshop, customerName: f.customerName, orderNumber: f.order.number, title: f.order.title, promisedDate: promised, priceQuoted: f.order.priceQuoted, booking }),
   })
 }
 
@@ -57,7 +58,7 @@ export async function sendReadyNotice(deps: Pick<Deps, 'db' | 'mailer'>, worksho
   const f = await orderFacts(deps.db, workshopId, orderId)
   return sendRecorded(deps, {
     workshopId, to: f.customerEmail, kind: 'ready-for-collection', orderId,
-    content: t.readyForCollection({ workshopName: f.workshopName, customerName: f.customerName, orderNumber: f.order.number, title: f.order.title }),
+    content: t.readyForCollection({ workshop: f.workshop, customerName: f.customerName, orderNumber: f.order.number, title: f.order.title }),
   })
 }
 

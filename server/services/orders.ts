@@ -57,7 +57,11 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
   return bag!
 }
 
-export async function createOrder({ db, realtime }: Deps, actor: Actor, input: OrderInput) {
+/**
+ * Takes an order. `within`, when given, runs inside the same transaction after the job bags are written (taking an order
+ * from a promise books its steps there), and its answer is returned beside the order.
+ */
+export async function takeOrder<T>({ db, realtime }: Deps, actor: Actor, input: OrderInput, within: (tx: Trx, orderId: number) => Promise<T>) {
   const id = await db.transaction(async (tx) => {
     const [c] = await tx.select({ id: customers.id }).from(customers).where(and(eq(customers.id, input.customerId), eq(customers.workshopId, actor.workshopId)))
     if (!c) throw invalid('customerId', 'is not a customer of this workshop')
@@ -69,10 +73,14 @@ export async function createOrder({ db, realtime }: Deps, actor: Actor, input: O
     const [o] = await tx.insert(orders).values({ workshopId: actor.workshopId, number, ...values }).returning()
     for (const [i, p] of pieces.entries()) await addJobBag(tx, actor.workshopId, o!.id, number, i, p)
     await audit(tx, actor, 'create', 'order', o!.id, { number, pieces: pieces.length })
-    return o!.id
+    return { id: o!.id, extra: await within(tx, o!.id) }
   })
-  realtime.emit(actor.workshopId, 'order:created', { id })
-  return getOrder(db, actor.workshopId, id)
+  realtime.emit(actor.workshopId, 'order:created', { id: id.id })
+  return { order: await getOrder(db, actor.workshopId, id.id), extra: id.extra }
+}
+
+export async function createOrder(deps: Deps, actor: Actor, input: OrderInput) {
+  return (await takeOrder(deps, actor, input, async () => null)).order
 }
 
 export async function updateOrder(deps: Deps, actor: Actor, id: number, input: OrderUpdate) {

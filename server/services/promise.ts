@@ -1,6 +1,6 @@
 // Promise dates for sales: the earliest completion of a prospective piece on the live plan (and re-planned), its
 // confidence range, turning it into an order with the promised date, and the forecast of an existing order.
-import { and, asc, eq } from 'drizzle-orm'
+import { and, asc, eq, gt, inArray, isNotNull, lt, or, sql } from 'drizzle-orm'
 import { quantileSorted } from 'simple-statistics'
 import type { JobBagForecast, OrderForecast, PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
 import { templateEstimate } from '../../shared/domain/estimate'
@@ -10,10 +10,14 @@ import type { Actor, Deps } from '../lib/route'
 import type { Realtime } from '../realtime/hub'
 import { dayjs } from '../lib/time'
 import { clipToWindows, intersect } from '../scheduler/calendar.ts'
-import { promise, solve, type Job, type Operation, type Plan, type PlannedOperation } from '../scheduler/index.ts'
+import { checkProblem, promise, solve, type Job, type Operation, type Plan, type PlannedOperation, type Problem } from '../scheduler/index.ts'
+import { compile, decode, toPlan } from '../scheduler/decode.ts'
+import { topologicalOrder } from '../scheduler/search.ts'
+import type { Trx } from '../db/client'
 import { boardData } from './board'
 import { sendPromiseConfirmation } from './mail'
-import { createOrder } from './orders'
+import { audit } from './audit'
+import { getOrder, takeOrder } from './orders'
 import { currentAssignments, type Assignment } from './planning/assignments'
 import { loadPlanningData, operationOptions, weightOfPriority, type PlanningData } from './planning/problem'
 import { planningError } from './planning/runs'
@@ -210,18 +214,96 @@ function confidenceRange(data: PlanningData, plan: Plan, operations: Operation[]
 }
 const round2 = (n: number) => Math.round(n * 100) / 100
 
-/** Creates the order with the promised date (one job bag from the template), then sends the customer's confirmation. */
-export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcceptInput) {
+/** Where a promise finds room now: the prospective job decoded into the gaps of the live plan, nothing else moving. */
+export function placeInGaps(problem: Problem, live: Plan, job: Job, operations: Operation[]) {
+  const planned = new Map(live.operations.map((p) => [p.operationId, p]))
+  const pinned = problem.operations.map((op) => {
+    const p = planned.get(op.id)
+    return op.done || !p ? op : { ...op, fixed: { benchId: p.benchId, personId: p.personId, start: p.start, end: p.end } }
+  })
+  const fixedProblem: Problem = { ...problem, jobs: [...problem.jobs, job], operations: [...pinned, ...operations] }
+  checkProblem(fixedProblem)
+  const c = compile(fixedProblem)
+  const key = new Float64Array(c.n)
+  topologicalOrder(c).forEach((i, rank) => { key[i] = rank })
+  const d = decode(c, key, new Int32Array(c.n).fill(-1))
+  const ids = new Set(operations.map((o) => o.id))
+  const feasible = d.overflow < 0 || !ids.has(c.ops[d.overflow]!.id)
+  const steps = toPlan(c, d, { iterations: 0, elapsedMs: 0, firstPlanMs: 0 }).operations.filter((o) => ids.has(o.operationId))
+  return { feasible, steps, completion: steps.reduce((m, o) => Math.max(m, o.end), problem.now) }
+}
+
+export type Booking =
+  | { booked: true; start: string; end: string; startDate: string; endDate: string; steps: number }
+  | { booked: false; reason: string }
+
+/** The planned steps of the new job bag, checked free and written inside the order's transaction; or why not. */
+export async function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: number, placed: ReturnType<typeof placeInGaps>): Promise<Booking> {
+  // Publishing a plan takes the same lock, so the plan cannot change under the check.
+  await tx.execute(sql`select pg_advisory_xact_lock(1003, ${actor.workshopId})`)
+  const c = data.clock
+  const [bag] = await tx.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId))
+  const ops = await tx.select({ id: s.operations.id, key: s.operations.key }).from(s.operations).where(eq(s.operations.jobBagId, bag!.id))
+  const idOf = new Map(ops.map((o) => [`${PROSPECTIVE_JOB}:${o.key}`, o.id]))
+  const benches = new Map(data.problem.benches.map((b) => [b.id, b.available]))
+  const people = new Map(data.problem.people.map((p) => [p.id, p.available]))
+  for (const st of placed.steps) {
+    if (!st.benchId && !st.personId) continue
+    const from = c.toDate(st.start).toISOString(), to = c.toDate(st.end).toISOString()
+    const others = await tx.select({ id: s.operations.id, name: s.operations.name, number: s.jobBags.number, benchId: s.operations.plannedBenchId, personId: s.operations.plannedPersonId, start: s.operations.plannedStart, end: s.operations.plannedEnd })
+      .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+      .where(and(eq(s.jobBags.workshopId, actor.workshopId), inArray(s.operations.status, ['pending', 'ready', 'claimed', 'paused', 'running']), isNotNull(s.operations.plannedStart),
+        lt(s.operations.plannedStart, to), gt(s.operations.plannedEnd, from),
+        or(st.benchId ? eq(s.operations.plannedBenchId, Number(st.benchId)) : undefined, st.personId ? eq(s.operations.plannedPersonId, Number(st.personId)) : undefined)))
+    for (const o of others) {
+      const bench = o.benchId === null ? undefined : benches.get(String(o.benchId)), person = o.personId === null ? undefined : people.get(String(o.personId))
+      const theirs = bench && person ? clipToWindows(intersect(bench, person), c.toMinute(o.start!), c.toMinute(o.end!)) : [{ start: c.toMinute(o.start!), end: c.toMinute(o.end!) }]
+      if (theirs.some((t) => st.segments.some((x) => x.start < t.end && t.start < x.end)))
+        return { booked: false, reason: `the room the promise found was taken meanwhile (${o.number} "${o.name}"); the manager plans it at the next re-plan` }
+    }
+  }
+  for (const st of placed.steps) {
+    await tx.update(s.operations).set({
+      plannedBenchId: st.benchId === null ? null : Number(st.benchId), plannedPersonId: st.personId === null ? null : Number(st.personId),
+      plannedStart: c.toDate(st.start).toISOString(), plannedEnd: c.toDate(st.end).toISOString(), version: sql`${s.operations.version} + 1`,
+    }).where(eq(s.operations.id, idOf.get(st.operationId)!))
+  }
+  const first = placed.steps.reduce((m, o) => Math.min(m, o.start), Infinity)
+  await audit(tx, actor, 'book', 'order', orderId, { steps: placed.steps.length, start: c.toDate(first).toISOString(), end: c.toDate(placed.completion).toISOString() })
+  const a = local(data, first), b = local(data, placed.completion)
+  return { booked: true, start: a.at, end: b.at, startDate: a.date, endDate: b.date, steps: placed.steps.length }
+}
+
+/**
+ * Creates the order with the promised date (one job bag from the template), books its steps into the live plan where the
+ * promise finds room (nothing else moves; checked again inside the order's transaction), then sends the confirmation,
+ * which says the piece is booked only when it is.
+ */
+export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcceptInput, now = new Date()) {
   const [t] = await deps.db.select({ name: s.routingTemplates.name }).from(s.routingTemplates).where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, actor.workshopId)))
   if (!t) throw invalid('templateId', 'is not a routing template of this workshop')
   if (input.dueDate && input.dueDate < input.promisedDate) throw invalid('dueDate', 'must not be before the promised date')
-  const order = await createOrder(deps, actor, {
+  // Fresh data, not the promise cache: the booking must be against the plan as it is now.
+  const data = await loadPlanningData(deps.db, actor.workshopId, now)
+  const live = planFromAssignments(data, await currentAssignments(deps.db, actor.workshopId))
+  let placed: ReturnType<typeof placeInGaps> | null = null
+  let notBooked: string | null = null
+  if (!live.operations.length) notBooked = 'no plan is published yet; the manager plans it with the first plan'
+  else {
+    const pj = await prospectiveJob(deps, actor.workshopId, data, input)
+    try { placed = placeInGaps(data.problem, live, pj.job, pj.operations) } catch (err) { throw planningError(err, data) }
+    if (!placed.feasible) { notBooked = 'there is no room for it before the end of the calendar'; placed = null }
+    else if (local(data, placed.completion).date > input.promisedDate) { notBooked = `the room found now ends ${local(data, placed.completion).date}, after the promised date; the manager plans it at the next re-plan`; placed = null }
+  }
+  const { order, extra: booking } = await takeOrder(deps, actor, {
     customerId: input.customerId, title: input.title, dueDate: input.dueDate ?? input.promisedDate, promisedDate: input.promisedDate,
     priority: input.priority, priceQuoted: input.priceQuoted, notes: input.notes,
     pieces: [{ templateId: input.templateId, piece: input.piece ?? input.title, params: input.params }],
-  })
-  const confirmation = await sendPromiseConfirmation(deps, actor.workshopId, order.id)
-  return { order, confirmation }
+  }, async (tx, orderId): Promise<Booking> => placed ? bookSlot(tx, actor, data, orderId, placed) : { booked: false, reason: notBooked! })
+  const firstOp = order.jobBags[0]?.operations[0]
+  if (booking.booked && firstOp) deps.realtime.emit(actor.workshopId, 'plan:changed', { id: firstOp.id, operationId: firstOp.id })
+  const confirmation = await sendPromiseConfirmation(deps, actor.workshopId, order.id, booking)
+  return { order: booking.booked ? await getOrder(deps.db, actor.workshopId, order.id) : order, booking, confirmation }
 }
 
 const hoursText = (min: number) => (Math.abs(min) >= 1440 ? `${Math.round(Math.abs(min) / 144) / 10} days` : `${Math.round(Math.abs(min) / 6) / 10} h`)

@@ -5,7 +5,10 @@ import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { loadPlanningData } from '../../server/services/planning/problem'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { expectFieldError } from './helpers'
+import { auditRows, expectFieldError } from './helpers'
+import { currentAssignments } from '../../server/services/planning/assignments'
+import { operationOptions } from '../../server/services/planning/problem'
+import { bookSlot, placeInGaps, planFromAssignments, PROSPECTIVE_JOB } from '../../server/services/promise'
 
 let t: TestApp
 let fake: FakeSmtp
@@ -102,8 +105,28 @@ describe('promise check', () => {
   })
 })
 
+/** Books the first `n` open bench steps of seeded orders onto bench × person pairs from now, as a live plan (written straight in). */
+async function seedLivePlan(n: number) {
+  const data = await loadPlanningData(t.db, 1, new Date())
+  const { rows: open } = await t.pool.query(`select o.id from operations o join job_bags b on b.id = o.job_bag_id join orders r on r.id = b.order_id where r.status = 'open' and o.status in ('ready','pending') and o.lead_days = 0 and o.planned_start is null order by o.id limit $1`, [n])
+  const b = data.problem.benches[0]!, p = data.problem.people[0]!
+  const w = intersect(b.available, p.available)
+  let at = data.problem.now
+  for (const o of open) {
+    const segs = walkWorkingTime(w, at, 120)!
+    at = segs.at(-1)!.end
+    await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`,
+      [Number(b.id), Number(p.id), data.clock.toDate(segs[0]!.start).toISOString(), data.clock.toDate(at).toISOString(), o.id])
+  }
+  t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 })
+  return open.map((o: { id: number }) => o.id as number)
+}
+const planned = async () => (await t.pool.query(`select id, planned_bench_id, planned_person_id, planned_start, planned_end from operations where planned_start is not null order by id`)).rows
+const clearPlan = async () => { await t.pool.query(`update operations set planned_bench_id = null, planned_person_id = null, planned_start = null, planned_end = null`); t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 }) }
+
 describe('accepting a promise', () => {
-  it('when sales turns the promise into an order, then the order keeps the promised date and the customer gets a confirmation with that date', async () => {
+  it('when no plan is published, then the order is taken but not booked, and the e-mail says the dates will be confirmed rather than that it is planned', async () => {
+    await clearPlan()
     const check = await sales.post('/api/promise/check', { templateId, params })
     const promisedDate: string = check.body.fixedPlan.date
     const { rows: [c] } = await t.pool.query(`select id, email from customers where workshop_id = 1 order by id limit 1`)
@@ -112,16 +135,100 @@ describe('accepting a promise', () => {
     expect(r.body.order.promisedDate).toBe(promisedDate)
     expect(r.body.order.dueDate).toBe(promisedDate)
     expect(r.body.order.jobBags).toHaveLength(1)
+    expect(r.body.booking).toMatchObject({ booked: false, reason: expect.stringMatching(/no plan is published/) })
+    expect(r.body.order.jobBags[0].operations.every((o: { plannedStart: string | null }) => o.plannedStart === null)).toBe(true)
     expect(['sent', 'delivered']).toContain(r.body.confirmation.status)
     const msg = await fake.waitFor((m) => m.to.includes(c.email) && m.subject.includes(r.body.order.number))
     // Reference: date-fns formats the long date independently of our dayjs template.
     const long = format(parseISO(promisedDate), 'EEEE d MMMM yyyy')
     expect(msg.text).toContain(long)
     expect(msg.text).toContain(promisedDate)
+    expect(msg.text).not.toMatch(/planned it|booked into/i)
+    expect(msg.text).toMatch(/we will confirm the dates/)
+    // Price with its currency: Intl en-GB GBP of 640 is "£640.00"; the workshop's invented demo address and contact.
+    expect(msg.text).toContain('£640.00')
+    expect(msg.text).toContain('14 Wrenfield Street, Bristol BS1 4QX')
+    expect(msg.text).toContain('orders@wrenfield.test')
     const { rows: [o] } = await t.pool.query(`select * from outbox where order_id = $1 and kind = 'promise-confirmation'`, [r.body.order.id])
     expect(o.to).toBe(c.email)
     expect(o.status).toBe('delivered')
     expect(o.text).toContain(long)
+    expect(o.meta).toMatchObject({ booked: false })
+  })
+
+  it('when there is a live plan, then taking the order books its steps where the promise found room, moves nobody, and the e-mail gives the booked dates', async () => {
+    await clearPlan()
+    await seedLivePlan(6)
+    const before = await planned()
+    const check = await sales.post('/api/promise/check', { templateId, params })
+    expect(check.body.basis).toBe('live-plan')
+    const promisedDate: string = check.body.fixedPlan.date
+    const { rows: [c] } = await t.pool.query(`select id, email from customers where workshop_id = 1 order by id limit 1`)
+    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Booked bezel ring', templateId, params, promisedDate, priority: 3, priceQuoted: 1250.5 })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    expect(r.body.booking.booked, JSON.stringify(r.body.booking)).toBe(true)
+    // The booked end is the completion the check promised (same gaps, same decode).
+    expect(r.body.booking.end).toBe(check.body.fixedPlan.at)
+    expect(r.body.booking.endDate).toBe(promisedDate)
+    const ops = r.body.order.jobBags[0].operations as { id: number; leadDays: number; plannedBenchId: number | null; plannedPersonId: number | null; plannedStart: string | null; plannedEnd: string | null }[]
+    for (const o of ops) {
+      expect(o.plannedStart, `op ${o.id}`).not.toBeNull()
+      if (o.leadDays === 0) { expect(o.plannedBenchId).not.toBeNull(); expect(o.plannedPersonId).not.toBeNull() }
+    }
+    // Nobody else moved: every other operation keeps exactly its planned bench, person and times.
+    const after = (await planned()).filter((x) => !ops.some((o) => o.id === x.id))
+    expect(after).toEqual(before)
+    // No double booking of a bench or a person between the new steps and the rest (wall-clock overlap, hand-checked rule).
+    const { rows: clashes } = await t.pool.query(`select a.id from operations a join operations b on a.id <> b.id and (a.planned_bench_id = b.planned_bench_id or a.planned_person_id = b.planned_person_id)
+      and a.planned_start < b.planned_end and b.planned_start < a.planned_end where a.id = any($1) and b.lead_days = 0 and a.lead_days = 0`, [ops.map((o) => o.id)])
+    expect(clashes).toEqual([])
+    // The order is on the plan at once, not "not planned yet" until a re-plan.
+    const f = await sales.get(`/api/orders/${r.body.order.id}/forecast`)
+    expect(f.body.jobBags[0].state).not.toBe('unplanned')
+    const msg = await fake.waitFor((m) => m.subject.includes(r.body.order.number))
+    expect(msg.text).toMatch(/booked into our workshop plan/)
+    // Reference: date-fns long dates of the booked first and last day.
+    expect(msg.text).toContain(format(parseISO(r.body.booking.startDate), 'EEEE d MMMM yyyy'))
+    expect(msg.text).toContain(format(parseISO(r.body.booking.endDate), 'EEEE d MMMM yyyy'))
+    expect(msg.text).toContain('£1,250.50')
+    expect((await auditRows(t, 'order', r.body.order.id)).map((x) => x.action)).toContain('book')
+    await clearPlan()
+  })
+
+  it('when the room found now ends after the promised date, then the order is not booked and the e-mail does not claim it is', async () => {
+    await clearPlan()
+    await seedLivePlan(6)
+    const check = await sales.post('/api/promise/check', { templateId, params })
+    const earlier = format(new Date(Date.parse(check.body.now) - 86_400_000), 'yyyy-MM-dd')
+    const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
+    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Too soon', templateId, params, promisedDate: earlier, priority: 3, priceQuoted: 10 })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    expect(r.body.booking).toMatchObject({ booked: false, reason: expect.stringMatching(/after the promised date/) })
+    expect(r.body.order.jobBags[0].operations.every((o: { plannedStart: string | null }) => o.plannedStart === null)).toBe(true)
+    const msg = await fake.waitFor((m) => m.subject.includes(r.body.order.number))
+    expect(msg.text).toMatch(/not in our workshop plan yet/)
+    await clearPlan()
+  })
+
+  it('when the slot is taken between the check and the order’s transaction, then nothing is booked and the answer says why', async () => {
+    await clearPlan()
+    await seedLivePlan(3)
+    const data = await loadPlanningData(t.db, 1, new Date())
+    const live = planFromAssignments(data, await currentAssignments(t.db, 1))
+    const { rows: steps } = await t.pool.query(`select key, kind_id, lead_days from template_steps where template_id = $1 order by seq`, [templateId])
+    // A one-step prospective job on the first bench step's kind, placed in the gaps.
+    const step = steps.find((x: { lead_days: number }) => x.lead_days === 0)
+    const opts = operationOptions(data.meta, step.kind_id, 1, () => 60)
+    const placed = placeInGaps(data.problem, live, { id: PROSPECTIVE_JOB, name: 'x', release: data.problem.now, due: null, weight: 1 }, [{ id: `${PROSPECTIVE_JOB}:${step.key}`, jobId: PROSPECTIVE_JOB, name: 'x', kind: 'x', options: opts, predecessors: [] }])
+    const st = placed.steps[0]!
+    // Someone else books that very bench and person for that time first.
+    const { rows: [other] } = await t.pool.query(`select o.id from operations o join job_bags b on b.id = o.job_bag_id join orders r on r.id = b.order_id where r.status = 'open' and o.status in ('ready','pending') and o.lead_days = 0 and o.planned_start is null order by o.id limit 1`)
+    await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`, [Number(st.benchId), Number(st.personId), data.clock.toDate(st.start).toISOString(), data.clock.toDate(st.end).toISOString(), other.id])
+    const { rows: [order] } = await t.pool.query(`select b.order_id from job_bags b join operations o on o.job_bag_id = b.id where o.key = $1 and b.template_id = $2 limit 1`, [step.key, templateId])
+    const actor = { userId: 1, workshopId: 1, role: 'sales' } as never
+    const result = await t.db.transaction((tx) => bookSlot(tx, actor, data, order.order_id, placed))
+    expect(result).toMatchObject({ booked: false, reason: expect.stringMatching(/taken meanwhile/) })
+    await clearPlan()
   })
 
   it('when the due date is before the promised date, then it is refused on the field', async () => {

@@ -10,6 +10,11 @@ export const workshops = pgTable('workshops', {
   timeZone: text().notNull().default('Europe/London'),
   weekPattern: jsonb().$type<WorkSpan[]>().notNull(),
   planningLoad: real().notNull().default(0.85),
+  /** What the customer's e-mails carry: postal address (lines), phone, reply address, and the currency prices are in (ISO 4217). */
+  address: text().notNull().default(''),
+  phone: text().notNull().default(''),
+  contactEmail: text().notNull().default(''),
+  currency: text().notNull().default('GBP'),
   version: version(),
   createdAt: createdAt(),
 })

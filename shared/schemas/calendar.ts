@@ -17,6 +17,13 @@ export const workshopSettingsInput = z.object({
   weekPattern: weekPattern.refine((w) => w.length > 0, 'needs at least one working span'),
   /** Share of available hours the planner fills (headroom for the unexpected). */
   planningLoad: z.number().min(0.5, 'must be between 0.5 and 1').max(1, 'must be between 0.5 and 1').default(0.85),
+  /** What customers' e-mails carry; left out of a change, each keeps its value. */
+  address: z.string().trim().max(300, 'must be at most 300 characters').optional(),
+  phone: z.string().trim().max(40, 'must be at most 40 characters').optional(),
+  contactEmail: z.union([z.literal(''), z.string().trim().email('must be an e-mail address such as orders@example.com').max(200)]).optional(),
+  currency: z.string().trim().toUpperCase().refine((c) => {
+    try { return /^[A-Z]{3}$/.test(c) && !!new Intl.NumberFormat('en', { style: 'currency', currency: c }) } catch { return false }
+  }, 'must be a three-letter currency code such as GBP or EUR').optional(),
   version,
 })
 export const closureInput = z

@@ -6,6 +6,7 @@ import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { loadPlanningData } from '../../server/services/planning/problem'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { expectFieldError } from './helpers'
 
 let t: TestApp
 let fake: FakeSmtp
@@ -38,6 +39,33 @@ describe('mail', () => {
     expect(format(parseISO('2031-03-14'), 'EEEE d MMMM yyyy')).toBe('Friday 14 March 2031')
     expect(m.text).toContain('Friday 14 March 2031')
     expect(m.html).toContain('Friday 14 March 2031')
+  })
+
+  it('when the owner changes the workshop’s address, contact and currency, then the next confirmation carries them; bad values are refused on the field', async () => {
+    const owner = await signedIn(t.app, 'owner')
+    const w = (await owner.get('/api/workshop')).body
+    expect(w).toMatchObject({ address: '14 Wrenfield Street, Bristol BS1 4QX', phone: '0117 496 0321', contactEmail: 'orders@wrenfield.test', currency: 'GBP' })
+    expectFieldError(await owner.put('/api/workshop', { ...w, currency: 'POUNDS' }), 'currency', /three-letter currency code/)
+    expectFieldError(await owner.put('/api/workshop', { ...w, contactEmail: 'not-an-address' }), 'contactEmail', /e-mail address/)
+    expectFieldError(await owner.put('/api/workshop', { ...w, address: 'x'.repeat(301) }), 'address', /at most 300/)
+    const u = await owner.put('/api/workshop', { ...w, address: '3 Vyse Street, Birmingham B18 6LT', phone: '0121 496 0777', contactEmail: 'atelier@wrenfield.test', currency: 'eur' })
+    expect(u.status, JSON.stringify(u.body)).toBe(200)
+    expect(u.body.currency).toBe('EUR')
+    const sales = await signedIn(t.app, 'sales')
+    const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
+    const { rows: [tpl] } = await t.pool.query(`select id from routing_templates order by id limit 1`)
+    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Euro ring', templateId: tpl.id, promisedDate: '2031-03-14', priority: 3, priceQuoted: 1999 })
+    const m = await fake.waitFor((x) => x.subject.includes(r.body.order.number))
+    // Intl en-GB formats 1999 EUR as "€1,999.00" (ECMA-402 currency formatting).
+    expect(m.text).toContain('€1,999.00')
+    expect(m.text).toContain('3 Vyse Street, Birmingham B18 6LT')
+    expect(m.text).toContain('0121 496 0777')
+    expect(m.text).toContain('atelier@wrenfield.test')
+    expect(m.html).toContain('3 Vyse Street, Birmingham B18 6LT')
+    // A change that leaves the contact out (the calendar page saves only its own fields) keeps it.
+    const again = await owner.put('/api/workshop', { name: u.body.name, timeZone: u.body.timeZone, weekPattern: u.body.weekPattern, planningLoad: u.body.planningLoad, version: u.body.version })
+    expect(again.body).toMatchObject({ address: '3 Vyse Street, Birmingham B18 6LT', currency: 'EUR' })
+    await owner.put('/api/workshop', { ...w, version: again.body.version })
   })
 
   it('when an order becomes ready, then the customer gets a ready-for-collection notice once', async () => {

@@ -60,12 +60,14 @@ async function moveOneDayLater(manager: Page, sales: Page, skip: Set<number>) {
   const lastOfBag = new Map<number, Bar>()
   for (const b of board.items) if (!b.outside && (!lastOfBag.get(b.jobBagId) || lastOfBag.get(b.jobBagId)!.end < b.end)) lastOfBag.set(b.jobBagId, b)
   const tried: string[] = []
-  for (const b of lastOfBag.values()) {
+  // Last steps of their job bags first (nothing after them to collide with), then any other bar the server may accept.
+  const order = [...lastOfBag.values(), ...board.items.filter((i) => !i.outside && lastOfBag.get(i.jobBagId)?.id !== i.id)]
+  for (const b of order) {
     if (skip.has(b.id) || b.status === 'running') continue
     const box = await boxOf(sales, b.id)
-    if (!box) continue
+    if (!box || box.width < 8) continue
     // Later the same week (Friday evening at the latest), so the bar stays on screen: a day, or a few hours.
-    for (const hours of [24, 48, 26, 4, 6, 28, 50, 2]) {
+    for (const hours of [24, 48, 26, 4, 6, 28, 50, 2, 72, 3, 8, 30]) {
       const start = new Date(new Date(b.start).getTime() + hours * 3_600_000)
       const weekday = start.getUTCDay()
       if (weekday === 0 || weekday === 6 || (weekday === 5 && start.getUTCHours() >= 14)) continue
@@ -76,7 +78,7 @@ async function moveOneDayLater(manager: Page, sales: Page, skip: Set<number>) {
       tried.push(r.body.error)
     }
   }
-  throw new Error(`no last step could move later this week: ${tried.slice(0, 5).join(' | ')}`)
+  throw new Error(`no step could move later this week: ${tried.slice(0, 5).join(' | ')}`)
 }
 
 describe('the planning board', () => {
@@ -136,13 +138,22 @@ describe('the planning board', () => {
     await expect(sales.locator('[data-test=board-run]').count()).resolves.toBe(0)
 
     // A polishing step dropped on a setting bench: refused with the reason, and the bar goes back.
+    // Well after now (a drop may nudge the time, and the past is refused for its own reason); when the demo plan has no
+    // polishing in view this week (its castings still out), both screens step on to next week.
     const board = await boardOf(manager)
-    const onScreen: Bar[] = []
-    for (const b of board.items.filter((i) => i.kind === 'polishing' && i.status !== 'running' && !i.outside)) {
-      const box = await boxOf(manager, b.id)
-      if (box && box.width >= 8) onScreen.push(b)
+    const later = Date.now() + 3 * 3_600_000
+    const polishing = board.items.filter((i) => i.kind === 'polishing' && i.status !== 'running' && !i.outside && new Date(i.start).getTime() > later)
+    const visible = async (): Promise<Bar[]> => {
+      const out: Bar[] = []
+      for (const b of polishing) { const box = await boxOf(manager, b.id); if (box && box.width >= 8) out.push(b) }
+      return out
     }
-    expect(onScreen.length, 'a polishing bar visible in this week').toBeGreaterThan(0)
+    let onScreen = await visible()
+    if (onScreen.length === 0) {
+      for (const page of [manager, sales]) { await page.locator('[data-test=board-next]').click(); await rendered(page) }
+      onScreen = await visible()
+    }
+    expect(onScreen.length, 'a polishing bar visible this week or next').toBeGreaterThan(0)
     const polish = onScreen[0]!
     const from = (await boxOf(manager, polish.id))!
     const fromRow = await rowOfY(manager, from.y + from.height / 2)

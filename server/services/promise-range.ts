@@ -4,7 +4,8 @@
 // Method. The current plan is held fixed (when work runs over, the manager re-plans; the customer's date is about the new
 // piece). Each run draws one actual/estimate ratio per operation of the new job bag — bench work and outside work alike —
 // resampled from the finished operations of that kind (bench work: ratio = actual minutes ÷ (estimate ÷ the worker's speed);
-// outside work: working days from sending (its predecessors' finish) to its return ÷ the lead days), or, when a kind has
+// outside work: working days from sending (its predecessors' finish, or the job bag's creation for a first step) to its
+// return ÷ the lead days), or, when a kind has
 // fewer than MIN_HISTORY finished operations, from the stated assumption: a log-normal with median 1 and σ = FALLBACK_SIGMA.
 // It then walks the routing in order: each operation starts when its predecessors (and their waits) are done, on the
 // bench × person pair that finishes it first within their common working time without overlapping anything already booked
@@ -53,15 +54,16 @@ export async function kindSpreads(db: Db, workshopId: number): Promise<Map<strin
   // Outside work: working days from its predecessors' finish (when it was sent) to its return, against its lead days.
   {
     const workingDaysBetween = await workingDayCounter(db, workshopId)
-    const outside = await db.select({ id: s.operations.id, bag: s.operations.jobBagId, kindId: s.operations.kindId, key: s.operations.key, after: s.operations.after, leadDays: s.operations.leadDays, finishedAt: s.operations.finishedAt })
+    const outside = await db.select({ id: s.operations.id, bag: s.operations.jobBagId, bagCreated: s.jobBags.createdAt, kindId: s.operations.kindId, key: s.operations.key, after: s.operations.after, leadDays: s.operations.leadDays, finishedAt: s.operations.finishedAt })
       .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
       .where(and(eq(s.jobBags.workshopId, workshopId), eq(s.operations.status, 'done'), gt(s.operations.leadDays, 0)))
     const bags = [...new Set(outside.map((o) => o.bag))]
     const siblings = bags.length ? await db.select({ bag: s.operations.jobBagId, key: s.operations.key, finishedAt: s.operations.finishedAt }).from(s.operations).where(inArray(s.operations.jobBagId, bags)) : []
     for (const o of outside) {
-      if (!o.finishedAt || !o.after.length) continue
-      const sent = siblings.filter((x) => x.bag === o.bag && o.after.includes(x.key)).map((x) => x.finishedAt)
-      if (sent.length !== o.after.length || sent.some((x) => !x)) continue
+      if (!o.finishedAt) continue
+      // A first step (a casting) can go out as soon as the job bag exists: counted from then.
+      const sent = o.after.length ? siblings.filter((x) => x.bag === o.bag && o.after.includes(x.key)).map((x) => x.finishedAt) : [new Date(o.bagCreated).toISOString()]
+      if (sent.length !== Math.max(1, o.after.length) || sent.some((x) => !x)) continue
       const from = sent.reduce((m, x) => (Date.parse(x!) > Date.parse(m!) ? x : m))!
       const ratio = workingDaysBetween(from, o.finishedAt) / o.leadDays
       if (ratio >= 0.1 && ratio <= 10) (ratios.get(o.kindId) ?? ratios.set(o.kindId, []).get(o.kindId)!).push(ratio)

@@ -6,6 +6,7 @@ import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { loadPlanningData } from '../../server/services/planning/problem'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { auditRows, expectFieldError } from './helpers'
+import { kindSpreads, MIN_HISTORY } from '../../server/services/promise-range'
 import { currentAssignments } from '../../server/services/planning/assignments'
 import { operationOptions } from '../../server/services/planning/problem'
 import { bookSlot, placeInGaps, planFromAssignments, PROSPECTIVE_JOB } from '../../server/services/promise'
@@ -123,6 +124,23 @@ async function seedLivePlan(n: number) {
 }
 const planned = async () => (await t.pool.query(`select id, planned_bench_id, planned_person_id, planned_start, planned_end from operations where planned_start is not null order by id`)).rows
 const clearPlan = async () => { await t.pool.query(`update operations set planned_bench_id = null, planned_person_id = null, planned_start = null, planned_end = null`); t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 }) }
+
+describe('outside work history', () => {
+  it('when castings and hallmarking have come back before, then their spread is measured in working days from sending to return, not assumed', async () => {
+    const spreads = await kindSpreads(t.db, 1)
+    const { rows } = await t.pool.query(`select k.code, count(*)::int as n from operations o join operation_kinds k on k.id = o.kind_id where o.lead_days > 0 and o.status = 'done' group by 1`)
+    for (const r of rows as { code: string; n: number }[]) {
+      const k = spreads.get(r.code)!
+      expect(k.source, r.code).toBe(r.n >= MIN_HISTORY ? 'history' : 'log-normal')
+      if (k.source === 'history') {
+        expect(k.samples, r.code).toBe(r.n)
+        // The demo returns outside work lead days + 1 calendar days after sending (seed.ts), so weekends make it vary.
+        expect(k.p10, r.code).toBeLessThan(k.p90)
+      }
+    }
+    expect(rows.length).toBeGreaterThan(0)
+  })
+})
 
 describe('accepting a promise', () => {
   it('when no plan is published, then the order is taken but not booked, and the e-mail says the dates will be confirmed rather than that it is planned', async () => {

@@ -5,7 +5,7 @@ import { quantileSorted } from 'simple-statistics'
 import type { JobBagForecast, OrderForecast, PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
 import { templateEstimate } from '../../shared/domain/estimate'
 import * as s from '../db/schema/index'
-import { invalid } from '../errors/app-error'
+import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import type { Realtime } from '../realtime/hub'
 import { dayjs } from '../lib/time'
@@ -291,8 +291,13 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
   if (!live.operations.length) notBooked = 'no plan is published yet; the manager plans it with the first plan'
   else {
     const pj = await prospectiveJob(deps, actor.workshopId, data, input)
-    try { placed = placeInGaps(data.problem, live, pj.job, pj.operations) } catch (err) { throw planningError(err, data) }
-    if (!placed.feasible) { notBooked = 'there is no room for it before the end of the calendar'; placed = null }
+    // A routing the plan cannot place (no bench or person for a step) still makes an order; it is only not booked.
+    try { placed = placeInGaps(data.problem, live, pj.job, pj.operations) } catch (err) {
+      const e = planningError(err, data)
+      if (!(e instanceof AppError)) throw e
+      notBooked = `the plan cannot place it (${e.message})`
+    }
+    if (!placed) { /* reason set above */ } else if (!placed.feasible) { notBooked = 'there is no room for it before the end of the calendar'; placed = null }
     else if (local(data, placed.completion).date > input.promisedDate) { notBooked = `the room found now ends ${local(data, placed.completion).date}, after the promised date; the manager plans it at the next re-plan`; placed = null }
   }
   const { order, extra: booking } = await takeOrder(deps, actor, {

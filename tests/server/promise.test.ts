@@ -249,6 +249,22 @@ describe('accepting a promise', () => {
     await clearPlan()
   })
 
+  it('when no bench can do a step of the routing, then the order is still taken, not booked, and the answer says why', async () => {
+    await clearPlan()
+    await seedLivePlan(3)
+    const owner = await signedIn(t.app, 'owner')
+    const kind = (await owner.post('/api/operation-kinds', { code: 'enamelling', name: 'Enamelling' })).body
+    const tpl = (await owner.post('/api/templates', { code: 'enamel-only', name: 'Enamel only', steps: [{ key: 'enamel', kindId: kind.id, name: 'Enamel', baseMinutes: 30 }] })).body
+    expect(tpl.id, JSON.stringify(tpl)).toBeTruthy()
+    const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
+    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Enamel pendant', templateId: tpl.id, promisedDate: '2031-05-10', priority: 3, priceQuoted: 90 })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    expect(r.body.booking).toMatchObject({ booked: false, reason: expect.stringMatching(/cannot place it/) })
+    const msg = await fake.waitFor((m) => m.subject.includes(r.body.order.number))
+    expect(msg.text).toMatch(/we will confirm the dates/)
+    await clearPlan()
+  })
+
   it('when the due date is before the promised date, then it is refused on the field', async () => {
     const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
     expectFieldError(await sales.post('/api/promise/accept', { customerId: c.id, title: 'x', templateId, params, promisedDate: '2031-05-10', dueDate: '2031-05-01', priority: 3, priceQuoted: 1 }), 'dueDate')

@@ -20,7 +20,8 @@ describe('workshop contact in the settings', () => {
     await page.goto('/settings')
     await field('settings-address').waitFor()
     // Invented demo data (server/db/seed.ts).
-    expect(await field('settings-address').inputValue()).toBe('14 Wrenfield Street, Bristol BS1 4QX')
+    // The form fills in once the settings have loaded: wait for the value, not for time.
+    await expect.poll(() => field('settings-address').inputValue(), { timeout: 10_000 }).toBe('14 Wrenfield Street, Bristol BS1 4QX')
     expect(await field('settings-currency').inputValue()).toBe('GBP')
     await field('settings-currency').fill('XX')
     await page.locator('[data-test=settings-save]').click()

@@ -130,16 +130,12 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const comp = new Float64Array(jobs)
   let evaluations = 0
   let lastMakespan = 0, lastTwt = 0
-  const evaluate = (r: Int32Array): number => {
-    evaluations++
-    let qt = 0
-    for (let i = 0; i < n; i++) {
-      const d = (jobPred[i]! >= 0 ? 1 : 0) + (pred[M]![i]! >= 0 ? 1 : 0) + (pred[W]![i]! >= 0 ? 1 : 0)
-      indeg[i] = d
-      if (d === 0) topo[qt++] = i
-    }
+  /** Operations the last propagate() placed (fewer than its part of the order means a cycle). */
+  let passed = 0
+  /** Kahn's order from the qt ready operations in topo (indegrees set): heads into r; returns the latest end, from `cmax` up. */
+  const propagate = (r: Int32Array, qt: number, cmax: number): number => {
     const pm = pred[M]!, pw = pred[W]!, sm = succ[M]!, sw = succ[W]!
-    let qh = 0, cmax = 0
+    let qh = 0
     while (qh < qt) {
       const x = topo[qh++]!
       let rx = release[x]!
@@ -154,7 +150,19 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       if (ms >= 0 && --indeg[ms]! === 0) topo[qt++] = ms
       if (ws >= 0 && --indeg[ws]! === 0) topo[qt++] = ws
     }
-    if (qt !== n) return Infinity
+    passed = qt
+    return cmax
+  }
+  const evaluate = (r: Int32Array): number => {
+    evaluations++
+    let qt = 0
+    for (let i = 0; i < n; i++) {
+      const d = (jobPred[i]! >= 0 ? 1 : 0) + (pred[M]![i]! >= 0 ? 1 : 0) + (pred[W]![i]! >= 0 ? 1 : 0)
+      indeg[i] = d
+      if (d === 0) topo[qt++] = i
+    }
+    const cmax = propagate(r, qt, 0)
+    if (passed !== n) return Infinity
     if (r === rCur) {
       topoCur.set(topo)
       let mx = 0
@@ -182,7 +190,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     if (from >= n) { rTmp.set(rCur); return finish(rTmp, prefMax[n]!) }
     evaluations++
     rTmp.set(rCur)
-    const pm = pred[M]!, pw = pred[W]!, sm = succ[M]!, sw = succ[W]!
+    const pm = pred[M]!, pw = pred[W]!
     let qt = 0
     for (let k = from; k < n; k++) {
       const x = topoCur[k]!
@@ -191,24 +199,9 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       indeg[x] = d
       if (d === 0) topo[qt++] = x
     }
-    let qh = 0, cmax = prefMax[from]!
-    const r = rTmp
-    while (qh < qt) {
-      const x = topo[qh++]!
-      let rx = release[x]!
-      const a = jobPred[x]!, b = pm[x]!, c = pw[x]!
-      if (a >= 0) { const e = r[a]! + p[a]!; if (e > rx) rx = e }
-      if (b >= 0) { const e = r[b]! + p[b]!; if (e > rx) rx = e }
-      if (c >= 0) { const e = r[c]! + p[c]!; if (e > rx) rx = e }
-      r[x] = rx
-      if (rx + p[x]! > cmax) cmax = rx + p[x]!
-      const js = jobSucc[x]!, ms = sm[x]!, ws = sw[x]!
-      if (js >= 0 && --indeg[js]! === 0) topo[qt++] = js
-      if (ms >= 0 && --indeg[ms]! === 0) topo[qt++] = ms
-      if (ws >= 0 && --indeg[ws]! === 0) topo[qt++] = ws
-    }
-    if (qt !== n - from) return Infinity
-    return finish(r, cmax)
+    const cmax = propagate(rTmp, qt, prefMax[from]!)
+    if (passed !== n - from) return Infinity
+    return finish(rTmp, cmax)
   }
 
   // ---------- first schedule: the best of a few dispatching rules ----------

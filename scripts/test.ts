@@ -1,5 +1,5 @@
 // `npm test`: a throwaway PostgreSQL cluster (speed over durability), a migrated + seeded template database,
-// the client build for the browser tests, then every Vitest project. Exits non-zero on any failure.
+// the client build for the browser tests, the typecheck, then every Vitest project. Exits non-zero on any failure.
 import { spawnSync } from 'node:child_process'
 import { join } from 'node:path'
 import { createDb } from '../server/db/client'
@@ -26,6 +26,11 @@ if (!process.env.SKIP_BUILD) {
 }
 
 const args = process.argv.slice(2)
+// With no arguments the types are checked first (client and server), so nothing keeps passing with a type error in it.
+if (!args.length) {
+  const tc = spawnSync('npm', ['run', '-s', 'typecheck'], { cwd: root, stdio: 'inherit' })
+  if (tc.status !== 0) { console.error('[test] typecheck failed'); if (!process.env.KEEP_TEST_DB) stopCluster(test.pgDir); process.exit(tc.status ?? 1) }
+}
 const env = { ...process.env, TEST_PG_PORT: String(test.pgPort), TEST_DATABASE_TEMPLATE: test.dbName, NODE_ENV: 'test' }
 const vitest = (a: string[]) => spawnSync(join(root, 'node_modules/.bin/vitest'), ['run', ...a], { cwd: root, stdio: 'inherit', env }).status ?? 1
 // With no arguments: everything, the browser flows after the rest so they do not compete for the two cores.

@@ -1,6 +1,6 @@
 // Bench floor records: replay-safe transition requests, time record corrections, estimate changes with their reasons, the workshop's pause reasons.
-import { boolean, index, integer, jsonb, pgTable, real, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core'
-import { createdAt, pk, version } from './common'
+import { boolean, index, integer, jsonb, pgTable, real, text, uniqueIndex } from 'drizzle-orm/pg-core'
+import { createdAt, pk, version, instant } from './common'
 import { operations, timeRecords } from './work'
 import { users, workshops } from './workshop'
 
@@ -26,10 +26,10 @@ export const timeRecordCorrections = pgTable('time_record_corrections', {
   workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
   timeRecordId: integer().notNull().references(() => timeRecords.id, { onDelete: 'cascade' }),
   kind: text().$type<'change' | 'void' | 'add'>().notNull(),
-  startedAt: timestamp({ withTimezone: true, mode: 'string' }),
-  endedAt: timestamp({ withTimezone: true, mode: 'string' }),
-  previousStartedAt: timestamp({ withTimezone: true, mode: 'string' }),
-  previousEndedAt: timestamp({ withTimezone: true, mode: 'string' }),
+  startedAt: instant(),
+  endedAt: instant(),
+  previousStartedAt: instant(),
+  previousEndedAt: instant(),
   reason: text().notNull(),
   correctedBy: integer().notNull().references(() => users.id),
   createdAt: createdAt(),

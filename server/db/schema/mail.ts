@@ -1,6 +1,6 @@
 // E-mail outbox: every message the workshop sends, with its delivery state.
-import { index, integer, jsonb, pgTable, text, timestamp } from 'drizzle-orm/pg-core'
-import { createdAt, pk } from './common'
+import { index, integer, jsonb, pgTable, text } from 'drizzle-orm/pg-core'
+import { createdAt, pk, instant } from './common'
 import { orders } from './work'
 import { workshops } from './workshop'
 
@@ -23,5 +23,5 @@ export const outbox = pgTable('outbox', {
   /** Extra facts of the message (e.g. the job bags a digest listed). */
   meta: jsonb().$type<Record<string, unknown>>().notNull().default({}),
   createdAt: createdAt(),
-  sentAt: timestamp({ withTimezone: true, mode: 'string' }),
+  sentAt: instant(),
 }, (t) => [index().on(t.workshopId, t.createdAt), index().on(t.orderId)])

@@ -1,7 +1,7 @@
 // Problem facts for planning: operation kinds, benches (capabilities, downtime), people (skills, leave).
-import { boolean, date, index, integer, jsonb, pgTable, primaryKey, real, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core'
+import { boolean, date, index, integer, jsonb, pgTable, primaryKey, real, text, uniqueIndex } from 'drizzle-orm/pg-core'
 import type { WorkSpan } from '../../../shared/schemas/common'
-import { pk, version } from './common'
+import { pk, version, instant } from './common'
 import { users, workshops } from './workshop'
 
 export const operationKinds = pgTable('operation_kinds', {
@@ -34,8 +34,8 @@ export const benchCapabilities = pgTable('bench_capabilities', {
 export const benchDowntime = pgTable('bench_downtime', {
   id: pk(),
   benchId: integer().notNull().references(() => benches.id, { onDelete: 'cascade' }),
-  startsAt: timestamp({ withTimezone: true, mode: 'string' }).notNull(),
-  endsAt: timestamp({ withTimezone: true, mode: 'string' }).notNull(),
+  startsAt: instant().notNull(),
+  endsAt: instant().notNull(),
   reason: text().notNull(),
 }, (t) => [index().on(t.benchId)])
 

@@ -1,7 +1,7 @@
 // The work itself: customers, orders, routing templates, job bags, operations, time records, plan versions.
-import { boolean, date, index, integer, jsonb, pgTable, real, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core'
+import { boolean, date, index, integer, jsonb, pgTable, real, text, uniqueIndex } from 'drizzle-orm/pg-core'
 import type { PieceParams } from '../../../shared/schemas/order'
-import { createdAt, pk, updatedAt, version } from './common'
+import { createdAt, pk, updatedAt, version, instant } from './common'
 import { benches, operationKinds, people } from './resources'
 import { users, workshops } from './workshop'
 
@@ -67,7 +67,7 @@ export const jobBags = pgTable('job_bags', {
   templateId: integer().references(() => routingTemplates.id, { onDelete: 'set null' }),
   params: jsonb().$type<PieceParams>().notNull(),
   status: text().notNull().default('waiting'),
-  releaseAt: timestamp({ withTimezone: true, mode: 'string' }),
+  releaseAt: instant(),
   version: version(),
   createdAt: createdAt(),
 }, (t) => [uniqueIndex().on(t.workshopId, t.number), index().on(t.orderId)])
@@ -88,11 +88,11 @@ export const operations = pgTable('operations', {
   after: text().array().notNull().default([]),
   plannedBenchId: integer().references(() => benches.id, { onDelete: 'set null' }),
   plannedPersonId: integer().references(() => people.id, { onDelete: 'set null' }),
-  plannedStart: timestamp({ withTimezone: true, mode: 'string' }),
-  plannedEnd: timestamp({ withTimezone: true, mode: 'string' }),
+  plannedStart: instant(),
+  plannedEnd: instant(),
   pinned: boolean().notNull().default(false),
   claimedBy: integer().references(() => people.id, { onDelete: 'set null' }),
-  finishedAt: timestamp({ withTimezone: true, mode: 'string' }),
+  finishedAt: instant(),
   version: version(),
 }, (t) => [uniqueIndex().on(t.jobBagId, t.key), index().on(t.status)])
 
@@ -101,8 +101,8 @@ export const timeRecords = pgTable('time_records', {
   operationId: integer().notNull().references(() => operations.id, { onDelete: 'cascade' }),
   personId: integer().notNull().references(() => people.id),
   benchId: integer().references(() => benches.id, { onDelete: 'set null' }),
-  startedAt: timestamp({ withTimezone: true, mode: 'string' }).notNull(),
-  endedAt: timestamp({ withTimezone: true, mode: 'string' }),
+  startedAt: instant().notNull(),
+  endedAt: instant(),
   endReason: text(),
   note: text().notNull().default(''),
   /** Client-generated id: a replayed request finds its earlier record instead of writing a second. */
@@ -118,7 +118,7 @@ export const planVersions = pgTable('plan_versions', {
   createdBy: integer().references(() => users.id),
   createdAt: createdAt(),
   publishedBy: integer().references(() => users.id),
-  publishedAt: timestamp({ withTimezone: true, mode: 'string' }),
+  publishedAt: instant(),
   score: jsonb().$type<Record<string, unknown>>().notNull().default({}),
   /** operationId → { benchId, personId, start, end, reason } at the time of the plan. */
   assignments: jsonb().$type<Record<string, unknown>>().notNull().default({}),

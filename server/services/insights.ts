@@ -8,6 +8,7 @@ import { customers, jobBags, operationCosts, operationKinds, operations, orders,
 import { notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
+import { COSTING_NOTE, marginCaveat } from '../../shared/domain/costing'
 import { audit } from './audit'
 import { actualMinutes, finishedOperations, workshopZone, type FinishedOperation } from './estimates'
 
@@ -128,7 +129,7 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
 
   const out: CostingRow[] = chosen.map((ops) => {
     const order = ops[0]!.order
-    let estMin = 0, actMin = 0, labourEst = 0, labourAct = 0, outsideEst = 0, outsideAct = 0
+    let estMin = 0, actMin = 0, labourEst = 0, labourAct = 0, outsideEst = 0, outsideAct = 0, outsideSteps = 0, outsideUncosted = 0
     for (const { op, bag, outside } of ops) {
       if (op.status !== 'done') continue
       const mine = records.filter((r) => r.operationId === op.id)
@@ -143,8 +144,13 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
         labourEst += (op.estimateMinutes / 60) * rate
         labourAct += mine.reduce((s, r) => s + (r.minutes / 60) * (rateOf.get(r.personId) ?? averageRate), 0)
       }
-      const expected = (stepCosts.find((c) => c.templateId === bag.templateId && c.stepKey === op.key)?.outsideCost ?? 0) * Math.max(1, bag.params.quantity)
+      const perUnit = stepCosts.find((c) => c.templateId === bag.templateId && c.stepKey === op.key)?.outsideCost ?? null
+      const expected = (perUnit ?? 0) * Math.max(1, bag.params.quantity)
       const invoiced = opCosts.find((c) => c.operationId === op.id)?.outsideCost
+      if (outside || op.leadDays > 0) {
+        outsideSteps++
+        if (perUnit === null && (invoiced === null || invoiced === undefined)) outsideUncosted++
+      }
       outsideEst += expected
       outsideAct += invoiced ?? expected
     }
@@ -158,6 +164,7 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
       marginAtEstimate: r2(order.priceQuoted - costEst), marginAtActual: r2(order.priceQuoted - costAct),
       marginPctAtEstimate: order.priceQuoted > 0 ? r1(((order.priceQuoted - costEst) / order.priceQuoted) * 100) : null,
       marginPctAtActual: order.priceQuoted > 0 ? r1(((order.priceQuoted - costAct) / order.priceQuoted) * 100) : null,
+      outsideSteps, outsideUncosted, marginCaveat: marginCaveat({ outsideSteps, outsideUncosted }),
     }
   }).sort((a, b) => b.finishedOn.localeCompare(a.finishedOn) || a.orderNumber.localeCompare(b.orderNumber))
 
@@ -173,7 +180,10 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
       outsideAtEstimate: sum((r) => r.outsideAtEstimate), outsideAtActual: sum((r) => r.outsideAtActual),
       costAtEstimate: costEst, costAtActual: costAct, marginAtEstimate: r2(price - costEst), marginAtActual: r2(price - costAct),
       marginPctAtEstimate: price > 0 ? r1(((price - costEst) / price) * 100) : null, marginPctAtActual: price > 0 ? r1(((price - costAct) / price) * 100) : null,
+      outsideSteps: out.reduce((s, r) => s + r.outsideSteps, 0), outsideUncosted: out.reduce((s, r) => s + r.outsideUncosted, 0),
+      marginCaveat: marginCaveat({ outsideSteps: out.reduce((s, r) => s + r.outsideSteps, 0), outsideUncosted: out.reduce((s, r) => s + r.outsideUncosted, 0) }),
     },
+    note: COSTING_NOTE,
   }
 }
 
@@ -234,14 +244,20 @@ export function comparisonCsv(t: ComparisonTable): string {
   return toCsv(header, [...t.rows.map(line), line(t.total)])
 }
 
+/**
+ * Job costing as CSV: the margin columns say in their names that they leave metal and stones out, a column beside them
+ * says what each row's margin counts, and a last line carries the note (blank cells before it keep the column count).
+ */
 export function costingCsv(t: CostingTable): string {
   const header = ['order', 'title', 'customer', 'finished_on', 'price_quoted', 'estimate_hours', 'actual_hours', 'labour_at_estimate', 'labour_at_actual',
-    'outside_at_estimate', 'outside_at_actual', 'cost_at_estimate', 'cost_at_actual', 'margin_at_estimate', 'margin_at_actual', 'margin_pct_at_estimate', 'margin_pct_at_actual']
-  const rows = t.rows.map((r) => [r.orderNumber, r.title, r.customerName, r.finishedOn, r.priceQuoted, r.estimateHours, r.actualHours, r.labourAtEstimate, r.labourAtActual,
-    r.outsideAtEstimate, r.outsideAtActual, r.costAtEstimate, r.costAtActual, r.marginAtEstimate, r.marginAtActual, r.marginPctAtEstimate, r.marginPctAtActual])
+    'outside_at_estimate', 'outside_at_actual', 'cost_at_estimate', 'cost_at_actual', 'margin_at_estimate_without_metal_and_stones', 'margin_at_actual_without_metal_and_stones',
+    'margin_pct_at_estimate_without_metal_and_stones', 'margin_pct_at_actual_without_metal_and_stones', 'margin_counts']
+  const rows: unknown[][] = t.rows.map((r) => [r.orderNumber, r.title, r.customerName, r.finishedOn, r.priceQuoted, r.estimateHours, r.actualHours, r.labourAtEstimate, r.labourAtActual,
+    r.outsideAtEstimate, r.outsideAtActual, r.costAtEstimate, r.costAtActual, r.marginAtEstimate, r.marginAtActual, r.marginPctAtEstimate, r.marginPctAtActual, r.marginCaveat])
   const x = t.total
   rows.push(['Total', `${x.orders} orders`, '', '', x.priceQuoted, x.estimateHours, x.actualHours, x.labourAtEstimate, x.labourAtActual, x.outsideAtEstimate, x.outsideAtActual,
-    x.costAtEstimate, x.costAtActual, x.marginAtEstimate, x.marginAtActual, x.marginPctAtEstimate, x.marginPctAtActual])
+    x.costAtEstimate, x.costAtActual, x.marginAtEstimate, x.marginAtActual, x.marginPctAtEstimate, x.marginPctAtActual, x.marginCaveat])
+  rows.push(['Note', t.note, ...Array<string>(header.length - 2).fill('')])
   return toCsv(header, rows)
 }
 

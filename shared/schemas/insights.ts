@@ -119,8 +119,19 @@ export interface CostingRow {
   marginAtActual: number
   marginPctAtEstimate: number | null
   marginPctAtActual: number | null
+  /** Finished outside-work steps, and those of them with no cost entered (expected or invoiced). */
+  outsideSteps: number
+  outsideUncosted: number
+  /** What the margins leave out, in words (shared/domain/costing.ts): shown beside every margin figure. */
+  marginCaveat: string
 }
-export interface CostingTable { filter: InsightFilter; rows: CostingRow[]; total: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'> & { orders: number } }
+export interface CostingTable {
+  filter: InsightFilter
+  rows: CostingRow[]
+  total: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'> & { orders: number }
+  /** What every margin leaves out, as one sentence. */
+  note: string
+}
 
 /** How much history a learned figure rests on. */
 export interface History { n: number; from: string | null; to: string | null; spread: { q1: number; median: number; q3: number; mad: number } | null }

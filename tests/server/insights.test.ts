@@ -182,6 +182,40 @@ describe('job costing', () => {
     expect(csv.text).toContain(`${orderNumbers[0]},Fixture order A,`)
   })
 
+  it('when a margin is shown, then it says beside it that metal and stones are left out, in the answer and in the CSV', async () => {
+    const r = await owner.get(`/api/insights/costing?templateId=${templateId}`)
+    // Both fixture orders have their hallmark costed (2.50 per unit on the routing step, set above): labour and outside work are in, metal and stones are not.
+    for (const row of r.body.rows) expect(row).toMatchObject({ outsideSteps: 1, outsideUncosted: 0, marginCaveat: 'labour and outside work — metal and stones not yet counted' })
+    expect(r.body.total).toMatchObject({ outsideSteps: 2, outsideUncosted: 0, marginCaveat: 'labour and outside work — metal and stones not yet counted' })
+    expect(r.body.note).toMatch(/metal and stones are not yet counted/)
+    const lines = (await owner.get(`/api/insights/costing?templateId=${templateId}&format=csv`)).text.split('\r\n')
+    expect(lines[0]).toBe('order,title,customer,finished_on,price_quoted,estimate_hours,actual_hours,labour_at_estimate,labour_at_actual,outside_at_estimate,outside_at_actual,'
+      + 'cost_at_estimate,cost_at_actual,margin_at_estimate_without_metal_and_stones,margin_at_actual_without_metal_and_stones,'
+      + 'margin_pct_at_estimate_without_metal_and_stones,margin_pct_at_actual_without_metal_and_stones,margin_counts')
+    const a = lines.find((l) => l.startsWith(`${orderNumbers[0]},`))!
+    expect(a.endsWith(',88.8,85.1,labour and outside work — metal and stones not yet counted')).toBe(true)
+    // Last line before the final CRLF: the note, padded to the header's 18 columns (RFC 4180 §2: each line the same number of fields).
+    const note = lines.at(-2)!
+    expect(note.startsWith('Note,')).toBe(true)
+    expect(note).toContain('metal and stones are not yet counted')
+    expect(note.split(',').length).toBe(18 + (r.body.note.match(/,/g)?.length ?? 0))
+  })
+
+  it('when the seeded history is costed, then every order of a routing whose outside work carries no cost says labour only', async () => {
+    // The demo seeds no outside costs (server/db/seed.ts inserts no template_step_costs or operation_costs); the query below checks that independently.
+    const { rows: uncostedOutside } = await q(`
+      select distinct o.number from orders o join job_bags b on b.order_id = o.id join operations op on op.job_bag_id = b.id join operation_kinds k on k.id = op.kind_id
+      where op.status = 'done' and (k.outside or op.lead_days > 0)
+        and not exists (select 1 from template_step_costs c where c.template_id = b.template_id and c.step_key = op.key and c.outside_cost is not null)
+        and not exists (select 1 from operation_costs c where c.operation_id = op.id and c.outside_cost is not null)`)
+    expect(uncostedOutside.length).toBeGreaterThan(10)
+    const rows = (await owner.get('/api/insights/costing')).body.rows as { orderNumber: string; marginCaveat: string; outsideUncosted: number; outsideSteps: number }[]
+    const seeded = rows.filter((x) => uncostedOutside.some((u) => u.number === x.orderNumber))
+    expect(seeded.length).toBe(uncostedOutside.length)
+    for (const row of seeded.filter((x) => x.outsideUncosted === x.outsideSteps)) expect(row.marginCaveat).toBe('labour only — metal, stones and outside work not yet counted')
+    expect(seeded.filter((x) => x.outsideUncosted === x.outsideSteps).length).toBeGreaterThan(10)
+  })
+
   it('when an outside cost is not a number or negative, then the field is named', async () => {
     expectFieldError(await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCost: -1 }), 'outsideCost', /negative/)
     expectCleanError(await owner.put(`/api/insights/operations/999999/outside-cost`, { outsideCost: 1 }), 404)

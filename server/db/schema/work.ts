@@ -23,6 +23,8 @@ export const routingTemplates = pgTable('routing_templates', {
   code: text().notNull(),
   name: text().notNull(),
   description: text().notNull().default(''),
+  /** Production runs: the learning rate per doubling of quantity (0.8 = an 80 % curve); null = every unit takes the same time. */
+  learningRate: real(),
   version: version(),
 }, (t) => [uniqueIndex().on(t.workshopId, t.code)])
 
@@ -35,6 +37,10 @@ export const templateSteps = pgTable('template_steps', {
   name: text().notNull(),
   baseMinutes: real().notNull(),
   perStoneMinutes: real().notNull().default(0),
+  /** Minutes per millimetre of piece size (0 where size does not matter). */
+  perMmMinutes: real().notNull().default(0),
+  /** Factor on the per-stone minutes by stone size band (melee / small / large); a band not given counts 1. */
+  sizeBandFactors: jsonb().$type<Partial<Record<'melee' | 'small' | 'large', number>>>().notNull().default({}),
   requiredLevel: integer().notNull().default(1),
   waitAfterMinutes: integer().notNull().default(0),
   leadDays: integer().notNull().default(0),

@@ -15,6 +15,8 @@ export const workshops = pgTable('workshops', {
   phone: text().notNull().default(''),
   contactEmail: text().notNull().default(''),
   currency: text().notNull().default('GBP'),
+  /** The address tablets on the workshop network reach the app at (what a ticket's QR code opens); '' = the address the request came in on. */
+  publicUrl: text().notNull().default(''),
   version: version(),
   createdAt: createdAt(),
 })

@@ -1,7 +1,7 @@
 // Delivery promises for a prospective job bag: slotted into the gaps of the current plan, and with everything re-planned.
 import type { Job, Operation, Plan, Problem, SolveHooks, SolveOptions } from './model.ts'
 import { checkProblem } from './check.ts'
-import { compile, decode } from './decode.ts'
+import { compile, decode, toPlan } from './decode.ts'
 import { topologicalOrder } from './search.ts'
 import { solve } from './solve.ts'
 
@@ -9,8 +9,8 @@ import { solve } from './solve.ts'
 export interface ProspectiveJob { job: Job; operations: Operation[] }
 
 export interface PromiseResult {
-  /** Current work does not move; the new job uses the gaps. feasible is false when it cannot fit before the horizon. */
-  withPlanFixed: { completion: number; feasible: boolean }
+  /** Current work does not move; the new job uses the gaps. feasible is false when it cannot fit before the horizon. operations: every step as placed. */
+  withPlanFixed: { completion: number; feasible: boolean; operations: Plan['operations'] }
   /** Everything re-planned together (search budget: options.timeLimitMs, keep it short, e.g. 150 ms). */
   withReplan: { completion: number; plan: Plan }
 }
@@ -36,7 +36,7 @@ export function promise(problem: Problem, currentPlan: Plan, prospective: Prospe
   const d = decode(c, key, new Int32Array(c.n).fill(-1))
   let completion = problem.now
   for (let i = 0; i < c.n; i++) if (newIds.has(c.ops[i]!.id)) completion = Math.max(completion, d.end[i]!)
-  const withPlanFixed = { completion, feasible: d.overflow < 0 || !newIds.has(c.ops[d.overflow]!.id) }
+  const withPlanFixed = { completion, feasible: d.overflow < 0 || !newIds.has(c.ops[d.overflow]!.id), operations: toPlan(c, d, { iterations: 0, elapsedMs: 0, firstPlanMs: 0 }).operations }
 
   const previous: NonNullable<Problem['previous']> = { ...(problem.previous ?? {}) }
   for (const p of currentPlan.operations) previous[p.operationId] = { benchId: p.benchId, personId: p.personId, start: p.start }

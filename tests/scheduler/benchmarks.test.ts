@@ -1,27 +1,36 @@
 // Published benchmarks from the kit (MILLGRAIN_BENCH_DIR, default ../shared/bench) and tiny shops against the HiGHS MIP optimum.
 import { describe, it, expect } from 'vitest'
-import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs'
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs'
 import { spawnSync } from 'node:child_process'
 import { tmpdir } from 'node:os'
-import { dirname, join, resolve } from 'node:path'
-import { fileURLToPath } from 'node:url'
+import { join } from 'node:path'
 import { solve, validatePlan } from '../../server/scheduler/index.ts'
 import { parseShopFile, shopToProblem, type ShopFile } from '../../server/scheduler/formats.ts'
 import { solveMip } from '../../server/scheduler/reference/mip.ts'
 import { createRng } from '../../server/scheduler/random.ts'
+import { benchDir, requireKit } from '../setup/kit.ts'
 
-const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
-const benchDir = resolve(root, process.env.MILLGRAIN_BENCH_DIR ?? '../shared/bench')
-const haveKit = existsSync(join(benchDir, 'bounds.json'))
-const checker = resolve(benchDir, '../tools/check-schedule.mjs')
-if (!haveKit) console.warn(`Benchmark kit not found at ${benchDir}: kit benchmark tests are skipped (set MILLGRAIN_BENCH_DIR).`)
+const haveKit = requireKit('kit benchmarks', ['bounds.json', '../tools/check-schedule.mjs'])
+const checker = join(benchDir, '../tools/check-schedule.mjs')
 
 interface Bound { name: string; file: string; lower_bound: number; upper_bound: number }
 const bounds: Bound[] = haveKit ? JSON.parse(readFileSync(join(benchDir, 'bounds.json'), 'utf8')) : []
+if (haveKit) requireKit('kit benchmarks', bounds.map((b) => b.file))
 const load = (b: Bound): ShopFile => parseShopFile(b.file, readFileSync(join(benchDir, b.file), 'utf8'))
 const clock = () => performance.now()
 
-describe.skipIf(!haveKit)('kit benchmarks (skipped when the benchmark kit is absent)', () => {
+/** Solves a kit instance for makespan until `target` is reached or `limitMs` runs out; the plan must be valid. */
+function solveUntil(name: string, target: number, limitMs: number) {
+  const bound = bounds.find((b) => b.name === name)
+  expect(bound, `${name} in bounds.json`).toBeDefined()
+  const problem = shopToProblem(load(bound!))
+  let best = Infinity
+  const plan = solve(problem, { seed: 1, timeLimitMs: limitMs, objective: ['makespan'] }, { clock, onProgress: (p) => { best = Math.min(best, p.best.makespan) }, shouldStop: () => best <= target })
+  expect(validatePlan(problem, plan), name).toEqual([])
+  return { plan, bound: bound! }
+}
+
+describe.skipIf(!haveKit)('kit benchmarks (skipped with a message when the benchmark kit is absent outside CI)', () => {
   it('when ft06 is solved with a generous limit, then it reaches the optimum 55', () => {
     const problem = shopToProblem(load(bounds.find((b) => b.name === 'ft06')!))
     let best = Infinity
@@ -29,6 +38,29 @@ describe.skipIf(!haveKit)('kit benchmarks (skipped when the benchmark kit is abs
     // Published optimum ft06 = 55 (Fisher & Thompson 1963; bounds.json)
     expect(plan.score.makespan).toBe(55)
     expect(validatePlan(problem, plan)).toEqual([])
+  })
+
+  it('when la01 is solved with a generous limit, then it reaches the proven optimum 666', () => {
+    const { plan, bound } = solveUntil('la01', 666, 8_000)
+    // Optimum la01 = 666: Lawrence (1984) instance, optimum as compiled in JSPLIB instances.json (bounds.json).
+    expect(bound.upper_bound).toBe(666)
+    expect(plan.score.makespan).toBe(666)
+  })
+
+  it('when ft10 is solved with a generous limit, then its makespan is within 3 % of the proven optimum 930', () => {
+    const { plan, bound } = solveUntil('ft10', Math.floor(930 * 1.03), 10_000)
+    // Optimum ft10 = 930: Fisher & Thompson (1963), proven by Carlier & Pinson (1989); JSPLIB instances.json (bounds.json).
+    expect(bound.upper_bound).toBe(930)
+    expect(plan.score.makespan).toBeGreaterThanOrEqual(930)
+    expect(plan.score.makespan).toBeLessThanOrEqual(957)
+  })
+
+  it('when Brandimarte mk01 is solved with a generous limit, then its makespan is within 5 % of the best known 40', () => {
+    const { plan, bound } = solveUntil('mk01', Math.floor(40 * 1.05), 8_000)
+    // mk01 = 40: Brandimarte (1993) instance, bound from the SchedulingLab/fjsp-instances table (bounds.json, optimum 40).
+    expect(bound.upper_bound).toBe(40)
+    expect(plan.score.makespan).toBeGreaterThanOrEqual(40)
+    expect(plan.score.makespan).toBeLessThanOrEqual(42)
   })
 
   it('when every kit instance is solved briefly, then each schedule passes both checkers and respects the published lower bound', () => {
@@ -39,14 +71,13 @@ describe.skipIf(!haveKit)('kit benchmarks (skipped when the benchmark kit is abs
       expect(validatePlan(problem, plan), b.name).toEqual([])
       // Lower bounds as published in bounds.json (compiled from JSPLIB / SchedulingLab / ScheduleOpt tables): never beaten by a valid schedule.
       expect(plan.score.makespan, b.name).toBeGreaterThanOrEqual(b.lower_bound)
-      if (existsSync(checker)) {
-        const operations = plan.operations.map((p) => { const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!; return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), start: p.start, end: p.end } })
-        const file = join(dir, `${b.name}.json`)
-        writeFileSync(file, JSON.stringify({ makespan: plan.score.makespan, operations }))
-        const out = spawnSync(process.execPath, [checker, join(benchDir, b.file), file, String(b.upper_bound)], { encoding: 'utf8' })
-        expect(out.stdout, b.name).toContain('valid')
-        expect(out.status, `${b.name}: ${out.stdout}`).toBe(0)
-      }
+      // The kit's independent checker (written apart from the engine) must accept every schedule.
+      const operations = plan.operations.map((p) => { const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!; return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), start: p.start, end: p.end } })
+      const file = join(dir, `${b.name}.json`)
+      writeFileSync(file, JSON.stringify({ makespan: plan.score.makespan, operations }))
+      const out = spawnSync(process.execPath, [checker, join(benchDir, b.file), file, String(b.upper_bound)], { encoding: 'utf8' })
+      expect(out.stdout, b.name).toContain(` valid makespan=${plan.score.makespan}`)
+      expect(out.status, `${b.name}: ${out.stdout}`).toBe(0)
     }
   })
 })

@@ -9,7 +9,11 @@ describe('promise', () => {
     const problem = makeProblem({ jobs: [makeJob({ id: 'j1', due: at(0, 12) })], operations: [makeOperation({ id: 'a', jobId: 'j1', on: ['b1', 'p1', 120] })] })
     const current = solve(problem, { seed: 1, timeLimitMs: 50 })
     const res = promise(problem, current, { job: makeJob({ id: 'new', due: at(2, 16) }), operations: [makeOperation({ id: 'n1', jobId: 'new', on: ['b1', 'p1', 60] })] }, { seed: 1, timeLimitMs: 100 })
-    expect(res.withPlanFixed).toEqual({ completion: at(0, 11), feasible: true })
+    // Hand-worked: 'a' holds b1/p1 08:00–10:00 (120 min from the 08:00 opening), so the 60-min new step runs 10:00–11:00.
+    expect(res.withPlanFixed).toMatchObject({ completion: at(0, 11), feasible: true })
+    const fixedOf = (id: string) => res.withPlanFixed.operations.find((o) => o.operationId === id)
+    expect(fixedOf('a')).toMatchObject({ benchId: 'b1', personId: 'p1', start: at(0, 8), end: at(0, 10) })
+    expect(fixedOf('n1')).toMatchObject({ benchId: 'b1', personId: 'p1', start: at(0, 10), end: at(0, 11) })
     expect(res.withReplan.completion).toBeLessThanOrEqual(at(0, 11))
     expect(res.withReplan.plan.operations.find((o) => o.operationId === 'a')!.start).toBe(at(0, 8))
   })
@@ -34,6 +38,18 @@ describe('promise', () => {
     const ms = performance.now() - t0
     expect(res.withPlanFixed.feasible).toBe(true)
     expect(res.withPlanFixed.completion).toBeGreaterThan(problem.now)
+    // Fixed case: every current step keeps its bench, person, start and end exactly as in the current plan.
+    expect(current.operations.length).toBeGreaterThan(50)
+    const fixed = new Map(res.withPlanFixed.operations.map((o) => [o.operationId, o]))
+    for (const o of current.operations) {
+      const f = fixed.get(o.operationId)
+      expect(f, o.operationId).toBeDefined()
+      expect({ benchId: f!.benchId, personId: f!.personId, start: f!.start, end: f!.end }, o.operationId).toEqual({ benchId: o.benchId, personId: o.personId, start: o.start, end: o.end })
+    }
+    // The new job's steps are all placed, and its completion is the end of the last of them.
+    const placed = res.withPlanFixed.operations.filter((o) => o.jobId === lastJob.id)
+    expect(placed.map((o) => o.operationId).sort()).toEqual(newOps.map((o) => o.id).sort())
+    expect(res.withPlanFixed.completion).toBe(Math.max(...placed.map((o) => o.end)))
     expect(res.withReplan.plan.score.feasible).toBe(true)
     expect(ms).toBeLessThan(5_000) // generous: timing targets are measured by the bench script, not here
   })

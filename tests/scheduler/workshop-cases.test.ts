@@ -1,19 +1,19 @@
 // Workshop problems from the kit (generated apart from the engine) and hand-made plans, through the engine's validator and the kit's independent checker.
 import { describe, it, expect } from 'vitest'
-import { existsSync, mkdtempSync, readFileSync, readdirSync, writeFileSync } from 'node:fs'
+import { mkdtempSync, readFileSync, readdirSync, writeFileSync } from 'node:fs'
 import { spawnSync } from 'node:child_process'
 import { tmpdir } from 'node:os'
-import { dirname, join, resolve } from 'node:path'
-import { fileURLToPath } from 'node:url'
+import { join } from 'node:path'
 import { solve, validatePlan, type Plan, type Problem } from '../../server/scheduler/index.ts'
 import { at, makeBench, makeJob, makeOperation, makePerson, makeProblem } from './builders.ts'
+import { benchDir, requireKit, toolsDir } from '../setup/kit.ts'
 
-const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
-const benchDir = resolve(root, process.env.MILLGRAIN_BENCH_DIR ?? '../shared/bench')
 const wsDir = join(benchDir, 'workshop')
-const checker = resolve(benchDir, '../tools/check-workshop.mjs')
-const haveKit = existsSync(wsDir) && existsSync(checker)
-if (!haveKit) console.warn(`WORKSHOP KIT MISSING at ${wsDir} or checker ${checker}: the kit workshop tests are skipped (set MILLGRAIN_BENCH_DIR).`)
+const checker = join(toolsDir, 'check-workshop.mjs')
+const haveKit = requireKit('kit workshop problems and the independent checker', [
+  'workshop/ws-a.json', 'workshop/ws-b.json', 'workshop/ws-c.json',
+  'workshop/cases/running-outside.json', 'workshop/cases/pinned-successor.json', 'workshop/cases/done-wait.json', '../tools/check-workshop.mjs',
+])
 const tmp = mkdtempSync(join(tmpdir(), 'millgrain-ws-'))
 const clock = () => performance.now()
 
@@ -28,11 +28,11 @@ function independent(problem: Problem, plan: Plan, name: string): { status: numb
 const load = (file: string): Problem => JSON.parse(readFileSync(file, 'utf8'))
 const opOf = (p: Plan, id: string) => p.operations.find((o) => o.operationId === id)!
 
-describe.skipIf(!haveKit)('kit workshop problems through both validators (skipped when the kit is absent)', () => {
+describe.skipIf(!haveKit)('kit workshop problems through both validators (skipped with a message when the kit is absent outside CI)', () => {
   const files = haveKit
     ? [...readdirSync(join(wsDir, 'cases')).filter((f) => f.endsWith('.json')).map((f) => join(wsDir, 'cases', f)), ...readdirSync(wsDir).filter((f) => /^ws-.*\.json$/.test(f)).map((f) => join(wsDir, f))]
     : []
-  it('finds the kit\'s cases and generated workshops', () => {
+  it('when the kit is read, then its three cases and three generated workshops are all found', () => {
     expect(files.length).toBeGreaterThanOrEqual(6)
   })
   for (const file of files) {
@@ -114,6 +114,8 @@ function handPlan(segs: Record<string, { start: number; end: number }[]>): Plan 
   return { operations, jobs, score: { weightedTardiness: 0, makespan: Math.max(...operations.map((o) => o.end)), moves: 0, feasible: true, violations: [] }, stats: { iterations: 0, elapsedMs: 0, firstPlanMs: 0 } }
 }
 
+// The independent checker's half of these runs wherever the kit is (always in CI; requireKit fails when a part is missing);
+// without any kit, on a developer's machine, only the engine's validator is asked and requireKit has said so.
 describe('resumption across the whole gap (hand-made lunch break)', () => {
   it('when 300 min of work runs 08:00–12:00 and resumes at 13:00, then both validators accept it', () => {
     const plan = handPlan({ long: [{ start: at(0, 8), end: at(0, 12) }, { start: at(0, 13), end: at(0, 14) }], short: [{ start: at(0, 14), end: at(0, 14, 30) }] })

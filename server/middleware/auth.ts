@@ -2,8 +2,8 @@
 import { verify } from '@node-rs/argon2'
 import connectPgSimple from 'connect-pg-simple'
 import { eq } from 'drizzle-orm'
-import type { RequestHandler } from 'express'
-import session from 'express-session'
+import type { Request, RequestHandler } from 'express'
+import session, { type SessionData } from 'express-session'
 import passport from 'passport'
 import { Strategy as LocalStrategy } from 'passport-local'
 import type pg from 'pg'
@@ -81,17 +81,69 @@ export function configurePassport(db: Db) {
   return p
 }
 
-export function createSessionMiddleware(pool: pg.Pool, config: Config): RequestHandler {
+/**
+ * How long after its last extension a session's expiry is moved forward again: a twentieth of its idle window, at most
+ * ten minutes. Until then requests leave the session row alone (a write on every request cost a third of the board's
+ * throughput on the durable database), so a session idle for its whole window minus at most this step is signed out.
+ */
+export function sessionExtendStepMs(idleWindowMs: number): number {
+  return Math.min(idleWindowMs / 20, 10 * 60_000)
+}
+
+/** True when less than the idle window minus one step is left before the session expires. */
+export function sessionExtensionDue(cookie: { expires?: Date | null; originalMaxAge?: number | null }, now = Date.now()): boolean {
+  const window = cookie.originalMaxAge
+  if (!(cookie.expires instanceof Date) || !window || window <= 0) return false
+  return cookie.expires.getTime() - now < window - sessionExtendStepMs(window)
+}
+
+declare module 'express-session' {
+  interface SessionData { extendedAt?: number }
+}
+
+/** The session table's store; saving a session that was read from the table updates its row and never brings back a row deleted meanwhile (signed out). */
+export function createSessionStore(pool: pg.Pool, config: Config) {
   const PgStore = connectPgSimple(session)
-  return session({
-    store: new PgStore({ pool, tableName: 'user_sessions', createTableIfMissing: true, pruneSessionInterval: 15 * 60 }),
+  const loaded = new WeakSet<object>()
+  class SessionStore extends PgStore {
+    override createSession(req: Request, data: SessionData) {
+      const s = super.createSession(req, data)
+      loaded.add(s)
+      return s
+    }
+    override set(sid: string, sess: SessionData, callback?: (err?: unknown) => void) {
+      if (!loaded.has(sess)) return super.set(sid, sess, callback)
+      const expires = sess.cookie.expires ? new Date(sess.cookie.expires).getTime() : Date.now() + config.SESSION_IDLE_MINUTES * 60_000
+      pool.query('update user_sessions set sess = $1, expire = to_timestamp($2) where sid = $3', [sess, Math.ceil(expires / 1000), sid]).then(
+        () => callback?.(),
+        (err: unknown) => callback?.(err),
+      )
+    }
+  }
+  // express-session asks the store to touch every unchanged session after each request; that write is left out
+  // (disableTouch) and the expiry moves only when due, as a save of the session (createSessionMiddleware).
+  return new SessionStore({ pool, tableName: 'user_sessions', createTableIfMissing: true, pruneSessionInterval: 15 * 60, disableTouch: true })
+}
+
+export function createSessionMiddleware(pool: pg.Pool, config: Config): RequestHandler {
+  const sessions = session({
+    store: createSessionStore(pool, config),
     name: 'millgrain.sid',
     secret: config.SESSION_SECRET,
     resave: false,
     saveUninitialized: false,
-    rolling: true,
+    // The cookie is sent again only with a changed session, so with every extension (which changes extendedAt).
+    rolling: false,
     cookie: { httpOnly: true, sameSite: 'lax', secure: false, maxAge: config.SESSION_IDLE_MINUTES * 60_000 },
   })
+  return (req, res, next) => {
+    sessions(req, res, (err?: unknown) => {
+      if (err) return next(err)
+      // Changing the session makes express-session reset its expiry to a full window, save it and send the cookie again.
+      if (req.session && sessionExtensionDue(req.session.cookie)) req.session.extendedAt = Date.now()
+      next()
+    })
+  }
 }
 
 export function actorOf(user: SessionUser | undefined): Actor | null {

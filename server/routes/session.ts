@@ -35,8 +35,10 @@ export const sessionRoutes = [
   route({
     method: 'get', path: '/session', roles: 'public', summary: 'The signed-in user (or null) and the CSRF token',
     handler: async ({ req }) => {
+      // A session that already has its token is left as it is (no write); a new token is saved before it is handed out.
+      const isNew = !req.session.csrfToken
       const token = csrfToken(req)
-      await new Promise<void>((r, j) => req.session.save((e) => (e ? j(e) : r())))
+      if (isNew) await new Promise<void>((r, j) => req.session.save((e) => (e ? j(e) : r())))
       return { user: (req.user as SessionUser | undefined) ?? null, csrfToken: token }
     },
   }),

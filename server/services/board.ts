@@ -1,7 +1,7 @@
 // The planning board: bars for a window (live plan or a draft), job risk with its reason, calendars, and the week load.
 import { createHash } from 'node:crypto'
 import { gzipSync } from 'node:zlib'
-import { and, eq } from 'drizzle-orm'
+import { and, eq, inArray, isNotNull, sql } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
 import { dayjs, type Interval } from '../lib/time'
@@ -13,15 +13,21 @@ import type { Realtime } from '../realtime/hub'
 import { currentAssignments, type Assignment } from './planning/assignments'
 import { loadPlanningData, type PlanningData } from './planning/problem'
 import { getPlan } from './plans'
+import { actualMinutesByOperation, effectiveRecords } from './time-records'
+import type { BoardActual, BoardPlanned } from '../../shared/schemas/board'
 
 export interface BoardItem {
-  id: number; jobBagId: number; jobBagNumber: string; piece: string; orderId: number; orderNumber: string; name: string
+  id: number; jobBagId: number; jobBagNumber: string; piece: string; orderId: number; orderNumber: string; customerName: string; name: string
   kind: string; kindName: string; color: string; hazards: string[]; outside: boolean; status: string
   benchId: number | null; personId: number | null; start: string; end: string; pinned: boolean; version: number
-  estimateMinutes: number; reason: StartReason | null; late: boolean
+  estimateMinutes: number; requiredLevel: number; reason: StartReason | null; late: boolean
+  /** The plan's times for the step (a finished step keeps the plan it had). */
+  planned: BoardPlanned | null
+  /** What happened, from the time records; null for work not started. */
+  actual: BoardActual | null
 }
 export interface BoardJob {
-  jobBagId: number; number: string; piece: string; orderNumber: string; due: string; expectedCompletion: string | null
+  jobBagId: number; number: string; piece: string; orderNumber: string; customerName: string; due: string; expectedCompletion: string | null
   latenessMinutes: number; lateWorkingMinutes: number; state: 'late' | 'at-risk' | 'on-time' | 'unplanned'; reason: string | null
 }
 
@@ -98,6 +104,14 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     const cur = completion.get(m.bag.id)
     if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: a.reason?.detail ?? null })
   }
+  const customers = new Map((await db.select({ id: s.customers.id, name: s.customers.name }).from(s.customers).where(eq(s.customers.workshopId, workshopId))).map((x) => [x.id, x.name]))
+  const now = o.now ?? new Date()
+  const iso = (v: string | Date) => new Date(v).toISOString()
+  const overlaps = (a: string | Date, b: string | Date) => new Date(b) > winStart && new Date(a) < winEnd
+
+  // Running bench work: its time records say where it really started.
+  const runningIds = [...data.meta.operations.values()].filter((m) => m.op.status === 'running').map((m) => m.op.id)
+  const runningRecords = await effectiveRecords(db, runningIds, now)
   const items: BoardItem[] = []
   for (const [id, m] of data.meta.operations) {
     const due = dayjs.tz(`${m.order.promisedDate ?? m.order.dueDate} 00:00`, c.timeZone).add(1, 'day').valueOf()
@@ -105,32 +119,60 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       const comp = completion.get(m.bag.id)
       const lateness = comp ? Math.round((comp.end - due) / 60_000) : 0
       jobs.set(m.bag.id, {
-        jobBagId: m.bag.id, number: m.bag.number, piece: m.bag.piece, orderNumber: m.order.number, due: m.order.promisedDate ?? m.order.dueDate,
+        jobBagId: m.bag.id, number: m.bag.number, piece: m.bag.piece, orderNumber: m.order.number, customerName: customers.get(m.order.customerId) ?? '', due: m.order.promisedDate ?? m.order.dueDate,
         expectedCompletion: comp ? new Date(comp.end).toISOString() : null, latenessMinutes: lateness,
         lateWorkingMinutes: comp ? workingMinutesBetween(data.meta.open, c.toMinute(new Date(due)), c.toMinute(new Date(comp.end))) : 0,
         state: !comp ? 'unplanned' : lateness > 0 ? 'late' : lateness > -AT_RISK_MINUTES ? 'at-risk' : 'on-time',
         reason: comp?.reason ?? null,
       })
     }
-    const a = assignments[id]
-    if (!a) continue
-    if (new Date(a.end) <= winStart || new Date(a.start) >= winEnd) continue
+    // Finished work is drawn where it really happened (below).
+    if (m.op.status === 'done' || m.op.status === 'skipped') continue
+    const mine = runningRecords.filter((r) => r.operationId === m.op.id && !r.voided)
+    const running = m.op.status === 'running'
+    // Running work stays on the board even when no plan placed it (started before any plan was published).
+    const a = assignments[id] ?? (running && mine.length ? null : undefined)
+    if (a === undefined) continue
+    let start = a?.start ?? '', end = a?.end ?? ''
+    let actual: BoardActual | null = null
+    let benchId = a?.benchId ? Number(a.benchId) : null
+    let personId = a?.personId ? Number(a.personId) : null
+    if (running && mine.length) {
+      // From its first start to now, or to its planned end when that is later.
+      const first = mine.reduce((x, r) => (r.startedAt < x ? r.startedAt : x), mine[0]!.startedAt)
+      const open = mine.find((r) => r.endedAt === null) ?? mine[mine.length - 1]!
+      const plannedEnd = a ? new Date(a.end).getTime() : new Date(first).getTime() + m.op.estimateMinutes * 60_000
+      start = iso(first)
+      end = iso(new Date(Math.max(now.getTime(), plannedEnd)))
+      actual = { start: iso(first), end: null, workedMinutes: actualMinutesByOperation(mine).get(m.op.id) ?? 0, records: mine.length, fromRecords: true }
+      benchId = open.benchId ?? benchId
+      personId = open.personId
+    } else if (a && running && (m.kind.outside || m.op.leadDays > 0)) {
+      // Sent out: away since the day it left (its planned start is set when it goes).
+      actual = { start: iso(a.start), end: null, workedMinutes: 0, records: 0, fromRecords: false }
+      end = iso(new Date(Math.max(now.getTime(), new Date(a.end).getTime())))
+    }
+    if (!overlaps(start, end)) continue
     items.push({
-      id: m.op.id, jobBagId: m.bag.id, jobBagNumber: m.bag.number, piece: m.bag.piece, orderId: m.order.id, orderNumber: m.order.number, name: m.op.name,
+      id: m.op.id, jobBagId: m.bag.id, jobBagNumber: m.bag.number, piece: m.bag.piece, orderId: m.order.id, orderNumber: m.order.number, customerName: customers.get(m.order.customerId) ?? '', name: m.op.name,
       kind: m.kind.code, kindName: m.kind.name, color: m.kind.color, hazards: m.kind.hazards, outside: m.kind.outside || m.op.leadDays > 0, status: m.op.status,
-      benchId: a.benchId === null ? null : Number(a.benchId), personId: a.personId === null ? null : Number(a.personId), start: a.start, end: a.end,
-      pinned: m.op.pinned, version: m.op.version, estimateMinutes: m.op.estimateMinutes, reason: a.reason, late: new Date(a.end).getTime() > due,
+      benchId, personId, start, end,
+      pinned: m.op.pinned, version: m.op.version, estimateMinutes: m.op.estimateMinutes, requiredLevel: m.op.requiredLevel,
+      reason: a?.reason ?? (running ? { kind: 'fixed', detail: 'being worked on at the bench now' } : null), late: new Date(a?.end ?? end).getTime() > due,
+      planned: a ? { start: iso(a.start), end: iso(a.end) } : null, actual,
     })
   }
-  // Time records of running work show where it really is.
+  items.push(...(await finishedItems(db, workshopId, winStart, winEnd, now, customers)))
+  // Bench rows know what they can host and people rows what they are skilled for (moving a bar up or down a row by keyboard).
+  const kindCode = (kindId: number) => data.meta.kinds.get(kindId)?.code ?? ''
   const toIso = (m: number) => c.toDate(m).toISOString()
   const ws = c.toMinute(winStart), we = c.toMinute(winEnd)
   return {
     window: { from: o.from, to: o.to, timeZone: c.timeZone },
     now: (o.now ?? new Date()).toISOString(),
     plan,
-    benches: [...data.meta.benches.values()].map((b) => ({ id: b.id, name: b.name, kind: b.kind })),
-    people: [...data.meta.people.values()].map((p) => ({ id: p.id, name: p.name })),
+    benches: [...data.meta.benches.values()].map((b) => ({ id: b.id, name: b.name, kind: b.kind, kinds: data.meta.capabilities.filter((x) => x.benchId === b.id).map((x) => kindCode(x.kindId)) })),
+    people: [...data.meta.people.values()].map((p) => ({ id: p.id, name: p.name, skills: Object.fromEntries(data.meta.skills.filter((x) => x.personId === p.id).map((x) => [kindCode(x.kindId), x.level])) })),
     items,
     jobs: [...jobs.values()].sort((a, b) => a.due.localeCompare(b.due)),
     nonWorking: data.meta.nonWorking.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
@@ -139,6 +181,69 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     leave: data.meta.leave.map((l) => ({ personId: l.personId, startsOn: l.startsOn, endsOn: l.endsOn, reason: l.reason })),
     downtime: data.meta.downtime.map((d) => ({ benchId: d.benchId, startsAt: d.startsAt, endsAt: d.endsAt, reason: d.reason })),
   }
+}
+
+/**
+ * Finished steps whose actual span (first start to last finish of their time records, corrections applied, voided records
+ * left out) reaches into the window, whatever became of their order since; finished outside work from the day it was sent
+ * out (its planned start, set when it left) to the moment it was booked back.
+ */
+async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd: Date, now: Date, customers: Map<number, string>): Promise<BoardItem[]> {
+  // Candidates by the records as written, with a week's slack either side for corrections that moved them.
+  const slack = 7 * 86_400_000
+  const from = new Date(winStart.getTime() - slack).toISOString(), to = new Date(winEnd.getTime() + slack).toISOString()
+  const withRecords = await db
+    .select({ id: s.operations.id })
+    .from(s.timeRecords)
+    .innerJoin(s.operations, eq(s.operations.id, s.timeRecords.operationId))
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .where(and(eq(s.jobBags.workshopId, workshopId), eq(s.operations.status, 'done')))
+    .groupBy(s.operations.id)
+    .having(and(sql`min(${s.timeRecords.startedAt}) < ${to}`, sql`max(coalesce(${s.timeRecords.endedAt}, ${s.timeRecords.startedAt})) > ${from}`))
+  const outsideDone = await db
+    .select({ id: s.operations.id })
+    .from(s.operations)
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    .where(and(eq(s.jobBags.workshopId, workshopId), eq(s.operations.status, 'done'), isNotNull(s.operations.plannedStart), isNotNull(s.operations.finishedAt),
+      sql`(${s.operationKinds.outside} or ${s.operations.leadDays} > 0)`, sql`${s.operations.plannedStart} < ${winEnd.toISOString()}`, sql`${s.operations.finishedAt} > ${winStart.toISOString()}`))
+  const ids = [...new Set([...withRecords, ...outsideDone].map((x) => x.id))]
+  if (!ids.length) return []
+  const rows = await db
+    .select({ op: s.operations, bag: s.jobBags, order: s.orders, kind: s.operationKinds })
+    .from(s.operations)
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    .where(inArray(s.operations.id, ids))
+  const records = (await effectiveRecords(db, ids, now)).filter((r) => !r.voided)
+  const worked = actualMinutesByOperation(records)
+  const out: BoardItem[] = []
+  for (const { op, bag, order, kind } of rows) {
+    const outside = kind.outside || op.leadDays > 0
+    const mine = records.filter((r) => r.operationId === op.id)
+    let actual: BoardActual
+    let benchId = op.plannedBenchId, personId = op.plannedPersonId
+    if (mine.length) {
+      const start = mine.reduce((x, r) => (Date.parse(r.startedAt) < Date.parse(x) ? r.startedAt : x), mine[0]!.startedAt)
+      const last = mine.reduce((x, r) => (Date.parse(r.endedAt ?? r.startedAt) > Date.parse(x.endedAt ?? x.startedAt) ? r : x), mine[0]!)
+      actual = { start: new Date(start).toISOString(), end: new Date(last.endedAt ?? last.startedAt).toISOString(), workedMinutes: worked.get(op.id) ?? 0, records: mine.length, fromRecords: true }
+      benchId = last.benchId ?? benchId
+      personId = last.personId
+    } else if (outside && op.plannedStart && op.finishedAt) {
+      actual = { start: new Date(op.plannedStart).toISOString(), end: new Date(op.finishedAt).toISOString(), workedMinutes: 0, records: 0, fromRecords: false }
+    } else continue
+    if (!(Date.parse(actual.end!) > winStart.getTime() && Date.parse(actual.start) < winEnd.getTime())) continue
+    out.push({
+      id: op.id, jobBagId: bag.id, jobBagNumber: bag.number, piece: bag.piece, orderId: order.id, orderNumber: order.number, customerName: customers.get(order.customerId) ?? '', name: op.name,
+      kind: kind.code, kindName: kind.name, color: kind.color, hazards: kind.hazards, outside, status: op.status,
+      benchId: outside ? null : benchId, personId: outside ? null : personId, start: actual.start, end: actual.end!,
+      pinned: op.pinned, version: op.version, estimateMinutes: op.estimateMinutes, requiredLevel: op.requiredLevel, reason: null, late: false,
+      planned: op.plannedStart && op.plannedEnd ? { start: new Date(op.plannedStart).toISOString(), end: new Date(op.plannedEnd).toISOString() } : null,
+      actual,
+    })
+  }
+  return out
 }
 
 /** Hours planned against hours available, per bench and per skill, per day and ISO week. */

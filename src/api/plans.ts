@@ -1,5 +1,6 @@
 // Planning API: planner runs, plan versions and comparisons, the board window, moves by hand and the week load.
 import type { MoveInput, PlanRunInput } from '@shared/schemas/plan'
+import type { BoardActual, BoardPlanned } from '@shared/schemas/board'
 import { api } from './client'
 
 /** Why the engine started an operation when it did, e.g. "waiting for Ines Harrowby (setting) until Thu 14:00". */
@@ -17,6 +18,7 @@ export interface BoardItem {
   piece: string
   orderId: number
   orderNumber: string
+  customerName: string
   name: string
   kind: string
   kindName: string
@@ -31,8 +33,13 @@ export interface BoardItem {
   pinned: boolean
   version: number
   estimateMinutes: number
+  requiredLevel: number
   reason: StartReason | null
   late: boolean
+  /** The plan's times for the step (a finished step keeps the plan it had). */
+  planned: BoardPlanned | null
+  /** What happened, from the time records: first start, last finish (null while running), minutes worked. */
+  actual: BoardActual | null
 }
 
 export type JobState = 'late' | 'at-risk' | 'on-time' | 'unplanned'
@@ -42,6 +49,7 @@ export interface BoardJob {
   number: string
   piece: string
   orderNumber: string
+  customerName: string
   due: string
   expectedCompletion: string | null
   latenessMinutes: number
@@ -62,8 +70,10 @@ export interface BoardData {
   window: { from: string; to: string; timeZone: string }
   now: string
   plan: BoardPlanRef | null
-  benches: { id: number; name: string; kind: string }[]
-  people: { id: number; name: string }[]
+  /** `kinds`: operation kind codes the bench can host. */
+  benches: { id: number; name: string; kind: string; kinds: string[] }[]
+  /** `skills`: operation kind code → level. */
+  people: { id: number; name: string; skills: Record<string, number> }[]
   items: BoardItem[]
   jobs: BoardJob[]
   nonWorking: { start: string; end: string }[]

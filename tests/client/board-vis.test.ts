@@ -7,13 +7,13 @@ import {
 } from '@/components/board/board-vis'
 
 const makeItem = (o: Partial<BoardItem> = {}): BoardItem => ({
-  id: 1, jobBagId: 10, jobBagNumber: 'MG26-0001-1', piece: 'Test ring', orderId: 5, orderNumber: 'MG26-0001', name: 'Set stones', kind: 'setting', kindName: 'Stone setting',
+  id: 1, jobBagId: 10, jobBagNumber: 'MG26-0001-1', piece: 'Test ring', orderId: 5, orderNumber: 'MG26-0001', customerName: 'Bea Tamsworth', name: 'Set stones', kind: 'setting', kindName: 'Stone setting',
   color: '#4f5fa8', hazards: [], outside: false, status: 'ready', benchId: 5, personId: 1, start: '2026-12-03T09:00:00.000Z', end: '2026-12-03T10:00:00.000Z',
-  pinned: false, version: 3, estimateMinutes: 60, reason: null, late: false, ...o,
+  pinned: false, version: 3, estimateMinutes: 60, requiredLevel: 1, reason: null, late: false, planned: null, actual: null, ...o,
 })
 const data = (items: BoardItem[] = [makeItem()]): Pick<BoardData, 'benches' | 'people' | 'items'> => ({
-  benches: [{ id: 5, name: 'Setting bench A', kind: 'setting' }, { id: 7, name: 'Polishing station', kind: 'polishing' }],
-  people: [{ id: 1, name: 'Ines Harrowby' }, { id: 5, name: 'Ruth Calder' }],
+  benches: [{ id: 5, name: 'Setting bench A', kind: 'setting', kinds: ['setting'] }, { id: 7, name: 'Polishing station', kind: 'polishing', kinds: ['polishing'] }],
+  people: [{ id: 1, name: 'Ines Harrowby', skills: { setting: 3 } }, { id: 5, name: 'Ruth Calder', skills: { polishing: 2 } }],
   items,
 })
 const opts = { rowsBy: 'bench' as const, colourBy: 'kind' as const, canEdit: true }

@@ -11,9 +11,9 @@ const IMG = '<img src=x onerror=alert(1)>'
 const SQL = "'; drop table orders; --"
 
 const item: BoardItem = {
-  id: 7, jobBagId: 3, jobBagNumber: 'WF-1042-1', piece: `${IMG} signet`, orderId: 2, orderNumber: `${SQL}`, name: SCRIPT, kind: 'setting', kindName: 'Stone setting',
+  id: 7, jobBagId: 3, jobBagNumber: 'WF-1042-1', piece: `${IMG} signet`, orderId: 2, orderNumber: `${SQL}`, customerName: `${SCRIPT} Ltd`, name: SCRIPT, kind: 'setting', kindName: 'Stone setting',
   color: '#3f7f8c', hazards: [], outside: false, status: 'ready', benchId: 1, personId: 4, start: '2026-03-02T09:00:00Z', end: '2026-03-02T10:00:00Z',
-  pinned: false, version: 1, estimateMinutes: 60, reason: { kind: 'person', detail: `waiting for ${IMG}` }, late: false,
+  pinned: false, version: 1, estimateMinutes: 60, requiredLevel: 1, reason: { kind: 'person', detail: `waiting for ${IMG}` }, late: false, planned: null, actual: null,
 }
 const benchName = new Map([[1, `<b onmouseover=alert(1)>Setting bench A</b>`]])
 const personName = new Map([[4, `Ines ${SCRIPT}`]])

@@ -1,0 +1,60 @@
+// The board's answer: bars (planned, running and finished work), jobs at risk, rows and calendars for a window.
+import { z } from 'zod'
+import { isoDate, isoDateTime } from './common'
+
+/** What the plan says for a step: its planned start and end (a finished step keeps the plan it had). */
+export const boardPlanned = z.object({ start: isoDateTime, end: isoDateTime })
+
+/**
+ * What really happened, from the step's time records (corrections applied, voided records left out):
+ * the first start and the last finish (null while the work is still running), and the minutes worked.
+ * Outside work has no time records: sent out and booked back, with no minutes worked (`fromRecords` false).
+ */
+export const boardActual = z.object({
+  start: isoDateTime,
+  end: isoDateTime.nullable(),
+  workedMinutes: z.number().nonnegative(),
+  records: z.number().int().nonnegative(),
+  fromRecords: z.boolean(),
+})
+
+export const boardReason = z.object({ kind: z.string(), detail: z.string(), blockerId: z.string().optional() })
+
+export const boardItem = z.object({
+  id: z.number().int(), jobBagId: z.number().int(), jobBagNumber: z.string(), piece: z.string(), orderId: z.number().int(), orderNumber: z.string(),
+  customerName: z.string(), name: z.string(), kind: z.string(), kindName: z.string(), color: z.string(), hazards: z.array(z.string()), outside: z.boolean(),
+  status: z.string(), benchId: z.number().int().nullable(), personId: z.number().int().nullable(),
+  /** Where the bar is drawn: the plan for open work, the actual times for finished work, actual start to now (or planned end) while running. */
+  start: isoDateTime, end: isoDateTime,
+  pinned: z.boolean(), version: z.number().int(), estimateMinutes: z.number(), requiredLevel: z.number().int(),
+  reason: boardReason.nullable(), late: z.boolean(),
+  planned: boardPlanned.nullable(),
+  actual: boardActual.nullable(),
+})
+
+export const boardJob = z.object({
+  jobBagId: z.number().int(), number: z.string(), piece: z.string(), orderNumber: z.string(), customerName: z.string(), due: isoDate,
+  expectedCompletion: isoDateTime.nullable(), latenessMinutes: z.number(), lateWorkingMinutes: z.number(),
+  state: z.enum(['late', 'at-risk', 'on-time', 'unplanned']), reason: z.string().nullable(),
+})
+
+export const boardAnswer = z.object({
+  window: z.object({ from: isoDate, to: isoDate, timeZone: z.string() }),
+  now: isoDateTime,
+  plan: z.object({ id: z.number().int(), number: z.number().int(), status: z.string(), publishedAt: isoDateTime.nullable() }).nullable(),
+  /** `kinds`: the operation kinds (codes) the bench can host. */
+  benches: z.array(z.object({ id: z.number().int(), name: z.string(), kind: z.string(), kinds: z.array(z.string()) })),
+  /** `skills`: operation kind code → level. */
+  people: z.array(z.object({ id: z.number().int(), name: z.string(), skills: z.record(z.string(), z.number()) })),
+  items: z.array(boardItem),
+  jobs: z.array(boardJob),
+  nonWorking: z.array(z.object({ start: isoDateTime, end: isoDateTime })),
+  dayMinutes: z.number(),
+  closures: z.array(z.object({ name: z.string(), startsOn: isoDate, endsOn: isoDate })),
+  leave: z.array(z.object({ personId: z.number().int(), startsOn: isoDate, endsOn: isoDate, reason: z.string().nullable() })),
+  downtime: z.array(z.object({ benchId: z.number().int(), startsAt: isoDateTime, endsAt: isoDateTime, reason: z.string().nullable() })),
+})
+
+export type BoardActual = z.infer<typeof boardActual>
+export type BoardPlanned = z.infer<typeof boardPlanned>
+export type BoardAnswer = z.infer<typeof boardAnswer>

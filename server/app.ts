@@ -48,7 +48,7 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   )
   const sessionMiddleware = createSessionMiddleware(pool, config)
   const passport = configurePassport(db)
-  const deps: Deps = { db, realtime, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES }
+  const deps: Deps = { db, realtime, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST }
 
   const api = express.Router()
   api.use(express.json({ limit: '1mb' }))

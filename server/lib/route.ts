@@ -11,7 +11,7 @@ export interface Actor { userId: number; workshopId: number; role: Role; personI
 import type { PassportStatic } from 'passport'
 type Authenticator = InstanceType<PassportStatic['Passport']>
 
-export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer }
+export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer; /** The HOST the server listens on (config). */ listenHost?: string }
 
 export interface RouteContext<B, Q, P> {
   req: Request

@@ -5,6 +5,7 @@ import { jobBagListQuery, jobBagStatusInput, sequenceInput, stepAdd, stepSkip, s
 import { timeRecordAdd, timeRecordCorrection } from '../../shared/schemas/bench-work'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
+import { suggestionForRequest } from '../lib/public-url'
 import * as jobBags from '../services/job-bags'
 import * as tickets from '../services/tickets'
 import * as timeRecords from '../services/time-records'
@@ -21,8 +22,9 @@ export const jobBagRoutes = [
   route({
     method: 'get', path: '/job-bags/:id/ticket.pdf', roles: PRINTERS, summary: 'The printable job ticket (PDF, A6 or A5)', params: idParam, query: ticketQuery,
     handler: async ({ deps, actor, params, query, req, res }) => {
-      const origin = `${req.protocol}://${req.get('host')}`
-      const { pdf, number } = await tickets.jobTicketPdf(deps.db, actor.workshopId, params.id, { origin, size: query.size })
+      const requestOrigin = `${req.protocol}://${req.get('host')}`
+      const suggestedOrigin = suggestionForRequest(req, deps.listenHost).url
+      const { pdf, number } = await tickets.jobTicketPdf(deps.db, actor.workshopId, params.id, { requestOrigin, suggestedOrigin, size: query.size })
       res.setHeader('Content-Type', 'application/pdf')
       res.setHeader('Content-Disposition', `inline; filename="job-ticket-${number.replace(/[^A-Za-z0-9-]/g, '')}.pdf"`)
       res.setHeader('Cache-Control', 'no-store')

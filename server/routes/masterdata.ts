@@ -9,6 +9,7 @@ import { templateInput, templateUpdate } from '../../shared/schemas/template'
 import { userCreate, userUpdate } from '../../shared/schemas/user'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
+import { suggestionForRequest } from '../lib/public-url'
 import * as benches from '../services/benches'
 import * as calendar from '../services/calendar'
 import * as customers from '../services/customers'
@@ -55,8 +56,8 @@ export const masterDataRoutes = [
   route({ method: 'post', path: '/people/:id/leave', roles: STAFF, status: 201, summary: 'Add leave', params: idParam, body: leaveInput, handler: ({ deps, actor, params, body }) => people.addLeave(deps, actor, params.id, body) }),
   route({ method: 'delete', path: '/people/:id/leave/:childId', roles: STAFF, summary: 'Remove leave', params: childParam, handler: ({ deps, actor, params }) => people.removeLeave(deps, actor, params.id, params.childId) }),
 
-  route({ method: 'get', path: '/workshop', roles: EVERYONE, summary: 'Workshop settings and calendar', handler: ({ deps, actor }) => calendar.getSettings(deps.db, actor.workshopId) }),
-  route({ method: 'put', path: '/workshop', roles: OWNER, summary: 'Change workshop settings (owner)', body: workshopSettingsInput, handler: ({ deps, actor, body }) => calendar.updateSettings(deps, actor, body) }),
+  route({ method: 'get', path: '/workshop', roles: EVERYONE, summary: 'Workshop settings and calendar', handler: async ({ deps, actor, req }) => ({ ...await calendar.getSettings(deps.db, actor.workshopId), publicUrlSuggestion: suggestionForRequest(req, deps.listenHost) }) }),
+  route({ method: 'put', path: '/workshop', roles: OWNER, summary: 'Change workshop settings (owner)', body: workshopSettingsInput, handler: async ({ deps, actor, body, req }) => ({ ...await calendar.updateSettings(deps, actor, body), publicUrlSuggestion: suggestionForRequest(req, deps.listenHost) }) }),
   route({ method: 'get', path: '/closures', roles: EVERYONE, summary: 'Workshop closures', handler: ({ deps, actor }) => calendar.listClosures(deps.db, actor.workshopId) }),
   route({ method: 'post', path: '/closures', roles: STAFF, status: 201, summary: 'Add a closure', body: closureInput, handler: ({ deps, actor, body }) => calendar.addClosure(deps, actor, body) }),
   route({ method: 'delete', path: '/closures/:id', roles: STAFF, summary: 'Remove a closure', params: idParam, handler: ({ deps, actor, params }) => calendar.removeClosure(deps, actor, params.id) }),

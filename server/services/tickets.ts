@@ -1,8 +1,12 @@
 // The printable job ticket: a PDF (A6 or A5) with the bag's number, piece, customer reference, due date, routing checklist, cautions and a QR link.
+import { eq, inArray } from 'drizzle-orm'
 import PDFDocument from 'pdfkit'
 import QRCode from 'qrcode'
 import { HAZARD_FOOTER, cautionsFor } from '../../shared/domain/status'
+import { metalName } from '../../shared/schemas/order'
 import type { Db } from '../db/client'
+import { benches, workshops } from '../db/schema/index'
+import { notFound } from '../errors/app-error'
 import { getJobBag } from './job-bags'
 
 /** The link a ticket's QR code opens: the job bag's page in the app. */
@@ -13,13 +17,37 @@ export function ticketQrPng(link: string): Promise<Buffer> {
   return QRCode.toBuffer(link, { type: 'png', errorCorrectionLevel: 'M', margin: 2, width: 300 })
 }
 
+/** Where the QR code points: the owner's public address, else the suggested network address, else the address the request came in on. */
+export const ticketOrigin = (publicUrl: string, suggested: string | null, requestOrigin: string) => publicUrl || suggested || requestOrigin
+
+/** A moment as the workshop reads it: 2025-07-15 14:07 BST (Europe/London) — local date and 24-hour time, the zone's abbreviation and its name. */
+export function workshopTime(at: Date, timeZone: string): string {
+  const parts = new Intl.DateTimeFormat('en-GB', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short' }).formatToParts(at)
+  const part = (type: Intl.DateTimeFormatPartTypes) => parts.find((x) => x.type === type)?.value ?? ''
+  return `${part('year')}-${part('month')}-${part('day')} ${part('hour')}:${part('minute')} ${part('timeZoneName')} (${timeZone})`
+}
+
 const SIZES = { A6: [297.64, 419.53], A5: [419.53, 595.28] } as const
 const fmtDate = (d: string) => new Date(`${d}T00:00:00Z`).toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' })
 
-/** Renders the ticket; the customer appears by reference only (no name or contact data leaves on paper). */
-export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number, o: { origin: string; size: 'A5' | 'A6' }): Promise<{ pdf: Buffer; number: string }> {
+export interface TicketOptions {
+  size: 'A5' | 'A6'
+  /** The address the print request came in on (last resort for the QR code). */
+  requestOrigin: string
+  /** This machine's network address, used when the workshop has no public address set. */
+  suggestedOrigin?: string | null
+  /** The clock (printed time); now when left out. */
+  now?: Date
+}
+
+/** Renders the ticket; the customer appears by reference only (no name or contact data leaves on paper). Metals, kinds and benches by name, times in the workshop's zone. */
+export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number, o: TicketOptions): Promise<{ pdf: Buffer; number: string; link: string }> {
+  const [ws] = await db.select({ timeZone: workshops.timeZone, publicUrl: workshops.publicUrl }).from(workshops).where(eq(workshops.id, workshopId))
+  if (!ws) throw notFound('Workshop')
   const bag = await getJobBag(db, workshopId, jobBagId)
-  const link = jobBagLink(o.origin, bag.id)
+  const benchIds = [...new Set(bag.operations.map((x) => x.plannedBenchId).filter((x): x is number => x !== null))]
+  const benchName = new Map((benchIds.length ? await db.select({ id: benches.id, name: benches.name }).from(benches).where(inArray(benches.id, benchIds)) : []).map((b) => [b.id, b.name]))
+  const link = jobBagLink(ticketOrigin(ws.publicUrl, o.suggestedOrigin ?? null, o.requestOrigin), bag.id)
   const qr = await ticketQrPng(link)
   const [w, h] = SIZES[o.size]
   const big = o.size === 'A5'
@@ -43,7 +71,7 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
     ['Due', fmtDate(bag.order.promisedDate ?? bag.order.dueDate)],
   ]
   const p = bag.params as { metal?: string; quantity?: number; stoneCount?: number }
-  facts.push(['Metal / qty', `${p.metal ?? '—'} · ${p.quantity ?? 1}${p.stoneCount ? ` · ${p.stoneCount} stones` : ''}`])
+  facts.push(['Metal / qty', `${p.metal ? metalName(p.metal) : '—'} · ${p.quantity ?? 1}${p.stoneCount ? ` · ${p.stoneCount} stones` : ''}`])
   for (const [k, v] of facts) {
     const y = doc.y
     doc.font('Helvetica').fontSize(fs(7)).fillColor('#555').text(k, m, y, { width: 56 })
@@ -74,7 +102,7 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
     const nameW = w - m - x - estW
     doc.font('Helvetica-Bold').fontSize(fs(8.5)).fillColor('#000').text(`${i + 1}. ${op.name}${cautions.length ? '  (!)' : ''}`, x, y, { width: nameW })
     const yAfter = doc.y
-    doc.font('Helvetica').fontSize(fs(6.5)).fillColor('#444').text(`${op.kindName}${op.requiredLevel > 1 ? ` · level ${op.requiredLevel}` : ''}`, x, yAfter, { width: nameW })
+    doc.font('Helvetica').fontSize(fs(6.5)).fillColor('#444').text(`${op.kindName}${op.requiredLevel > 1 ? ` · level ${op.requiredLevel}` : ''}${op.plannedBenchId !== null && benchName.has(op.plannedBenchId) ? ` · at ${benchName.get(op.plannedBenchId)}` : ''}`, x, yAfter, { width: nameW })
     const est = op.outside || op.leadDays > 0 ? `${op.leadDays} working day${op.leadDays === 1 ? '' : 's'}` : `${Math.round(op.estimateMinutes)} min`
     doc.font('Helvetica').fontSize(fs(8)).fillColor('#000').text(est, w - m - estW, y, { width: estW, align: 'right' })
     doc.y = Math.max(doc.y, yAfter + fs(6.5) * 1.2) + 3
@@ -95,7 +123,7 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
     }
     doc.font('Helvetica-Oblique').fontSize(fs(6.5)).text(HAZARD_FOOTER, m, doc.y, { width: w - 2 * m })
   }
-  doc.font('Helvetica').fontSize(fs(5.5)).fillColor('#777').text(`Printed ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC · ${link}`, m, doc.y + 6, { width: w - 2 * m })
+  doc.font('Helvetica').fontSize(fs(5.5)).fillColor('#777').text(`Printed ${workshopTime(o.now ?? new Date(), ws.timeZone)} · ${link}`, m, doc.y + 6, { width: w - 2 * m })
   doc.end()
-  return { pdf: await done, number: bag.number }
+  return { pdf: await done, number: bag.number, link }
 }

@@ -11,6 +11,15 @@ const timeZone = z.string().min(1).max(64).refine((tz) => {
   }
 }, 'must be an IANA time zone such as Europe/London')
 
+/** The origin (scheme://host[:port]) of an http(s) address that has no path, query, fragment or user; null otherwise. */
+export function publicOrigin(text: string): string | null {
+  if (/[?#\s]/.test(text)) return null
+  let u: URL
+  try { u = new URL(text) } catch { return null }
+  if ((u.protocol !== 'http:' && u.protocol !== 'https:') || !u.hostname || u.username || u.password || u.pathname !== '/') return null
+  return `${u.protocol}//${u.host}`
+}
+
 export const workshopSettingsInput = z.object({
   name,
   timeZone,
@@ -24,6 +33,10 @@ export const workshopSettingsInput = z.object({
   currency: z.string().trim().toUpperCase().refine((c) => {
     try { return /^[A-Z]{3}$/.test(c) && !!new Intl.NumberFormat('en', { style: 'currency', currency: c }) } catch { return false }
   }, 'must be a three-letter currency code such as GBP or EUR').optional(),
+  /** Where tablets on the workshop network open the app (a ticket's QR code): scheme, host and port only; '' = the address the server suggests. */
+  publicUrl: z.string().trim().max(200, 'must be at most 200 characters')
+    .refine((v) => v === '' || publicOrigin(v) !== null, 'must be an http:// or https:// address with no path, such as http://192.168.1.20:8080')
+    .transform((v) => (v === '' ? '' : publicOrigin(v)!)).optional(),
   version,
 })
 export const closureInput = z
@@ -32,4 +45,8 @@ export const closureInput = z
 export type WorkshopSettingsInput = z.infer<typeof workshopSettingsInput>
 export type ClosureInput = z.infer<typeof closureInput>
 export interface Closure extends ClosureInput { id: number }
-export interface WorkshopSettings extends WorkshopSettingsInput { id: number }
+export interface WorkshopSettings extends WorkshopSettingsInput {
+  id: number
+  /** When publicUrl is empty, the address tickets use instead (this machine's network address and the server's port); reachable is false when the server listens on this machine only. */
+  publicUrlSuggestion?: { url: string | null; reachable: boolean }
+}

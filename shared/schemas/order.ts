@@ -4,6 +4,13 @@ import { ORDER_STATUSES } from '../domain/status'
 import { id, isoDate, name, notes, version } from './common'
 
 export const METALS = ['silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950', 'brass', 'copper', 'mixed'] as const
+/** What each metal is called on screen and on paper (the code above is only stored). */
+export const METAL_NAMES: Record<(typeof METALS)[number], string> = {
+  'silver-925': 'Sterling silver 925', 'gold-9ct': '9 ct gold', 'gold-14k': '14 k gold', 'gold-18ct': '18 ct gold',
+  'platinum-950': 'Platinum 950', 'palladium-950': 'Palladium 950', brass: 'Brass', copper: 'Copper', mixed: 'Mixed metals',
+}
+/** The name of a stored metal code; an unknown code is shown as it is. */
+export const metalName = (code: string): string => (METAL_NAMES as Record<string, string>)[code] ?? code
 export const pieceParams = z.object({
   metal: z.enum(METALS, { error: 'must be one of the listed metals' }).default('silver-925'),
   stoneCount: z.number().int().min(0, 'must not be negative').max(2000, 'must be at most 2000').default(0),

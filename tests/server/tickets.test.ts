@@ -1,26 +1,55 @@
-// The printable job ticket: a real PDF (read back with pdf-parse) with number, routing, cautions, no customer contact data, and a QR that decodes to the bag's link.
+// The printable job ticket: a real PDF (read back with pdf-parse) with number, routing, cautions, no customer contact data,
+// names instead of codes, the print time in the workshop's zone, and a QR that decodes to the bag's link at the workshop's public address.
+import { networkInterfaces } from 'node:os'
 import { PDFParse } from 'pdf-parse'
 import jsQR from 'jsqr'
 import { PNG } from 'pngjs'
+import dayjs from 'dayjs'
+import timezone from 'dayjs/plugin/timezone.js'
+import utc from 'dayjs/plugin/utc.js'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { HAZARD_CAUTIONS, HAZARD_FOOTER } from '../../shared/domain/status'
-import { jobBagLink, ticketQrPng } from '../../server/services/tickets'
+import { jobBagLink, jobTicketPdf, ticketQrPng } from '../../server/services/tickets'
+import { suggestPublicUrl } from '../../server/lib/public-url'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { expectCleanError } from './helpers'
+import { expectCleanError, expectFieldError } from './helpers'
+
+dayjs.extend(utc)
+dayjs.extend(timezone)
+
+// The workshop's public address in these tests: a reserved example name (RFC 2606), never contacted.
+const PUBLIC_URL = 'https://millgrain.wrenfield.example'
 
 let t: TestApp
 let manager: Agent
+let owner: Agent
 let bag: { id: number; number: string; customer_name: string; email: string; phone: string; reference: string }
+let benchName: string
+
+/** Sets the workshop's public address through the owner's settings API (version read first). */
+async function setPublicUrl(publicUrl: string) {
+  const w = (await owner.get('/api/workshop')).body
+  const r = await owner.put('/api/workshop', { ...w, publicUrl, version: w.version })
+  expect(r.status, JSON.stringify(r.body)).toBe(200)
+  return r
+}
 
 beforeAll(async () => {
   t = await createTestApp()
   manager = await signedIn(t.app, 'manager')
+  owner = await signedIn(t.app, 'owner')
   // A job bag with a soldering step (torch and pickle hazards).
   const { rows } = await t.pool.query(`
     select jb.id, jb.number, c.name as customer_name, c.email, c.phone, c.reference from job_bags jb join orders o on o.id = jb.order_id join customers c on c.id = o.customer_id
     where o.status = 'open' and exists (select 1 from operations op join operation_kinds k on k.id = op.kind_id where op.job_bag_id = jb.id and k.code = 'soldering')
     order by jb.id limit 1`)
   bag = rows[0]
+  // The piece is platinum, and its first open step is planned at a bench, so the ticket has a metal and a bench to name.
+  await t.pool.query(`update job_bags set params = jsonb_set(params, '{metal}', '"platinum-950"') where id = $1`, [bag.id])
+  const { rows: [b] } = await t.pool.query(`select id, name from benches where workshop_id = 1 and active order by id limit 1`)
+  benchName = b.name
+  await t.pool.query(`update operations set planned_bench_id = $1 where id = (select id from operations where job_bag_id = $2 and status <> 'skipped' order by seq, id limit 1)`, [b.id, bag.id])
+  await setPublicUrl(PUBLIC_URL)
 })
 afterAll(async () => { await t?.close() })
 
@@ -34,6 +63,22 @@ const binary = (r: import('supertest').Request) => r.buffer(true).parse((res, cb
 function decodeQr(png: Buffer | Uint8Array): string | null {
   const img = PNG.sync.read(Buffer.from(png))
   return jsQR(new Uint8ClampedArray(img.data.buffer, img.data.byteOffset, img.data.length), img.width, img.height)?.data ?? null
+}
+
+/** The text of a PDF (pdf-parse) with runs of white space made one space. */
+async function pdfText(pdf: Buffer): Promise<string> {
+  const parser = new PDFParse({ data: new Uint8Array(pdf) })
+  const text = (await parser.getText()).text
+  await parser.destroy()
+  return text.replace(/\s+/g, ' ')
+}
+
+/** The QR code printed on a ticket: the first image of page 1, read by jsqr. */
+async function pdfQr(pdf: Buffer): Promise<string | null> {
+  const parser = new PDFParse({ data: new Uint8Array(pdf) })
+  const images = await parser.getImage({ imageThreshold: 0 })
+  await parser.destroy()
+  return decodeQr(images.pages[0]!.images[0]!.data)
 }
 
 describe('job ticket PDF', () => {
@@ -73,12 +118,34 @@ describe('job ticket PDF', () => {
     expect(text).not.toContain(bag.phone)
   })
 
-  it('when the QR image is taken out of the PDF and read by jsqr, then it is the absolute link to the job bag page', async () => {
-    const parser = new PDFParse({ data: new Uint8Array(pdf) })
-    const images = await parser.getImage({ imageThreshold: 0 })
-    await parser.destroy()
-    const img = images.pages[0]!.images[0]!
-    expect(decodeQr(img.data)).toBe(`http://workshop.example:8080/job-bags/${bag.id}`)
+  it('when the QR image is taken out of the PDF and read by jsqr, then it is the workshop’s public address and the job bag page, not the address it was printed from', async () => {
+    expect(await pdfQr(pdf)).toBe(`${PUBLIC_URL}/job-bags/${bag.id}`)
+    expect(text.replace(/\s+/g, '')).toContain(`${PUBLIC_URL}/job-bags/${bag.id}`)
+    expect(text).not.toContain('workshop.example:8080')
+  })
+
+  it('when the piece is platinum, then the ticket names the metal, the operation kinds and the planned bench, and prints no codes', async () => {
+    const flat = text.replace(/\s+/g, ' ')
+    // The name the workshop uses for platinum-950 (common practice, no source: "Platinum 950" is how the trade writes Pt 950).
+    expect(flat).toContain('Platinum 950')
+    expect(flat).not.toContain('platinum-950')
+    const kinds = (await t.pool.query(`select distinct k.code, k.name from operations op join operation_kinds k on k.id = op.kind_id where op.job_bag_id = $1 and op.status <> 'skipped'`, [bag.id])).rows
+    for (const k of kinds) {
+      expect(flat).toContain(k.name)
+      if (k.code !== k.name && /-/.test(k.code)) expect(flat).not.toContain(k.code)
+    }
+    expect(flat).toContain(benchName)
+  })
+
+  it('when printed, then the print time is in the workshop’s zone (named) and within a minute of now there', () => {
+    const flat = text.replace(/\s+/g, ' ')
+    // The demo workshop is in Europe/London; the abbreviation is GMT in winter and BST in summer (Summer Time Order, UTC+1 from the last Sunday in March).
+    const m = flat.match(/Printed (\d{4}-\d{2}-\d{2} \d{2}:\d{2}) (GMT|BST) \(Europe\/London\)/)
+    expect(m, flat).not.toBeNull()
+    // dayjs with its timezone plugin reads the printed local time back to a moment.
+    const printed = dayjs.tz(m![1]!, 'YYYY-MM-DD HH:mm', 'Europe/London')
+    expect(Math.abs(printed.valueOf() - Date.now())).toBeLessThan(2 * 60_000)
+    expect(m![2]).toBe(dayjs().tz('Europe/London').utcOffset() === 60 ? 'BST' : 'GMT')
   })
 
   it('when the ticket’s QR code path is used directly, then jsqr reads back the link', async () => {
@@ -99,5 +166,96 @@ describe('job ticket PDF', () => {
     expect((await binary(bench.get(`/api/job-bags/${bag.id}/ticket.pdf`))).status).toBe(200)
     expectCleanError(await manager.get('/api/job-bags/999999/ticket.pdf'), 404)
     expectCleanError(await manager.get(`/api/job-bags/${bag.id}/ticket.pdf?size=A3`), 400)
+  })
+})
+
+describe('ticket print time with a clock we hold', () => {
+  it('when printed at 13:07 UTC on 15 July 2025 in London, then it reads 14:07 BST; in Sydney 23:07 that day; at 15:30 UTC in Sydney 01:30 the next day', async () => {
+    const at = new Date('2025-07-15T13:07:00Z')
+    // Hand-worked: London is on BST (UTC+1) from 30 March to 26 October 2025 (Summer Time Order: last Sundays of March and October).
+    let flat = await pdfText((await jobTicketPdf(t.db, 1, bag.id, { size: 'A6', requestOrigin: 'http://127.0.0.1:9', now: at })).pdf)
+    expect(flat).toContain('Printed 2025-07-15 14:07 BST (Europe/London)')
+    expect(dayjs(at).tz('Europe/London').format('YYYY-MM-DD HH:mm')).toBe('2025-07-15 14:07')
+    await t.pool.query(`update workshops set time_zone = 'Australia/Sydney' where id = 1`)
+    try {
+      // Hand-worked: Sydney keeps AEST (UTC+10) in July; daylight time runs from the first Sunday in October (NSW Standard Time Act 1987).
+      flat = await pdfText((await jobTicketPdf(t.db, 1, bag.id, { size: 'A6', requestOrigin: 'http://127.0.0.1:9', now: at })).pdf)
+      expect(flat).toMatch(/Printed 2025-07-15 23:07 \S+ \(Australia\/Sydney\)/)
+      const late = new Date('2025-07-15T15:30:00Z')
+      flat = await pdfText((await jobTicketPdf(t.db, 1, bag.id, { size: 'A6', requestOrigin: 'http://127.0.0.1:9', now: late })).pdf)
+      expect(flat).toMatch(/Printed 2025-07-16 01:30 \S+ \(Australia\/Sydney\)/)
+      expect(dayjs(late).tz('Australia/Sydney').format('YYYY-MM-DD HH:mm')).toBe('2025-07-16 01:30')
+    } finally {
+      await t.pool.query(`update workshops set time_zone = 'Europe/London' where id = 1`)
+    }
+  })
+})
+
+describe('the address a ticket’s QR code opens', () => {
+  // A made-up machine: loopback, then an interface with only IPv6, then wired and wireless IPv4 (TEST-NET addresses, RFC 5737).
+  const machine = {
+    lo: [{ address: '127.0.0.1', netmask: '255.0.0.0', family: 'IPv4' as const, mac: '00:00:00:00:00:00', internal: true, cidr: '127.0.0.1/8' }],
+    tun0: [{ address: 'fd00::7', netmask: 'ffff:ffff:ffff:ffff::', family: 'IPv6' as const, mac: '00:00:00:00:00:00', internal: false, cidr: 'fd00::7/64', scopeid: 0 }],
+    eth0: [{ address: '192.0.2.20', netmask: '255.255.255.0', family: 'IPv4' as const, mac: '02:00:00:00:00:01', internal: false, cidr: '192.0.2.20/24' }],
+    wlan0: [{ address: '198.51.100.7', netmask: '255.255.255.0', family: 'IPv4' as const, mac: '02:00:00:00:00:02', internal: false, cidr: '198.51.100.7/24' }],
+  }
+
+  it('when no address is set, then the suggestion is the first network IPv4 address with the server’s port, and says whether tablets can reach it', () => {
+    expect(suggestPublicUrl(8080, '0.0.0.0', machine)).toEqual({ url: 'http://192.0.2.20:8080', reachable: true })
+    // Listening on loopback only: the address is still the machine's, but a tablet cannot open it until HOST changes.
+    expect(suggestPublicUrl(8080, '127.0.0.1', machine)).toEqual({ url: 'http://192.0.2.20:8080', reachable: false })
+    // Listening on one named address: that one.
+    expect(suggestPublicUrl(8080, '198.51.100.7', machine)).toEqual({ url: 'http://198.51.100.7:8080', reachable: true })
+    expect(suggestPublicUrl(8080, '0.0.0.0', { lo: machine.lo })).toEqual({ url: null, reachable: true })
+  })
+
+  it('when the workshop has no public address, then the ticket’s QR opens the suggested network address; with none, the address it was printed from', async () => {
+    await setPublicUrl('')
+    try {
+      const suggested = suggestPublicUrl(54321, '0.0.0.0', machine).url
+      const r = await jobTicketPdf(t.db, 1, bag.id, { size: 'A6', requestOrigin: 'http://127.0.0.1:8080', suggestedOrigin: suggested })
+      expect(await pdfQr(r.pdf)).toBe(`http://192.0.2.20:54321/job-bags/${bag.id}`)
+      const none = await jobTicketPdf(t.db, 1, bag.id, { size: 'A6', requestOrigin: 'http://127.0.0.1:8080', suggestedOrigin: null })
+      expect(await pdfQr(none.pdf)).toBe(`http://127.0.0.1:8080/job-bags/${bag.id}`)
+      // Over HTTP: this machine's own first network IPv4 address (read here from os.networkInterfaces), with the port the test server got.
+      const ip = Object.values(networkInterfaces()).flat().find((a) => a && a.family === 'IPv4' && !a.internal)?.address
+      const live = await binary(manager.get(`/api/job-bags/${bag.id}/ticket.pdf`).set('host', 'workshop.example:8080'))
+      const qr = await pdfQr(live.body as Buffer)
+      if (ip) expect(qr).toMatch(new RegExp(`^http://${ip.replace(/\./g, '\\.')}:\\d+/job-bags/${bag.id}$`))
+      else expect(qr).toBe(`http://workshop.example:8080/job-bags/${bag.id}`)
+    } finally {
+      await setPublicUrl(PUBLIC_URL)
+    }
+  })
+})
+
+describe('the public address in the workshop settings', () => {
+  it('when the owner saves an address with a path, a query, another scheme or no scheme, then 400 names publicUrl', async () => {
+    const w = (await owner.get('/api/workshop')).body
+    for (const bad of ['http://192.168.1.20:8080/millgrain', 'http://192.168.1.20:8080/?t=1', 'ftp://192.168.1.20', '192.168.1.20:8080', 'https://user:pw@millgrain.example', 'https://millgrain.example/#x']) {
+      expectFieldError(await owner.put('/api/workshop', { ...w, publicUrl: bad }), 'publicUrl', /http:\/\/ or https:\/\/ address with no path/)
+    }
+    expect((await owner.get('/api/workshop')).body.publicUrl).toBe(PUBLIC_URL)
+  })
+
+  it('when the owner saves an address with a trailing slash and capitals, then it reads back as scheme, host and port; a change that leaves it out keeps it', async () => {
+    const r = await setPublicUrl('HTTP://Bench-Server.Example:8443/')
+    // WHATWG URL: scheme and host are lower-cased, the root path "/" is not part of the origin.
+    expect(r.body.publicUrl).toBe('http://bench-server.example:8443')
+    const w = (await owner.get('/api/workshop')).body
+    expect(w.publicUrl).toBe('http://bench-server.example:8443')
+    const again = await owner.put('/api/workshop', { name: w.name, timeZone: w.timeZone, weekPattern: w.weekPattern, planningLoad: w.planningLoad, version: w.version })
+    expect(again.body.publicUrl).toBe('http://bench-server.example:8443')
+    await setPublicUrl(PUBLIC_URL)
+  })
+
+  it('when anyone reads the settings, then they carry the suggested address with the server’s port; only the owner may change them', async () => {
+    const w = (await manager.get('/api/workshop')).body
+    const ip = Object.values(networkInterfaces()).flat().find((a) => a && a.family === 'IPv4' && !a.internal)?.address
+    if (ip) expect(w.publicUrlSuggestion.url).toMatch(new RegExp(`^http://${ip.replace(/\./g, '\\.')}:\\d+$`))
+    else expect(w.publicUrlSuggestion.url).toBeNull()
+    // The test app's configuration keeps the default HOST (127.0.0.1): tablets could not reach the suggestion.
+    expect(w.publicUrlSuggestion.reachable).toBe(false)
+    expectCleanError(await manager.put('/api/workshop', { ...w, publicUrl: 'http://192.0.2.1' }), 403)
   })
 })

@@ -1,6 +1,6 @@
 // Words and tag colours for order, job bag and operation states, and for metals.
 import type { OrderStatus } from '@shared/domain/status'
-import type { METALS } from '@shared/schemas/order'
+import { METAL_NAMES, type METALS } from '@shared/schemas/order'
 
 type TagType = 'primary' | 'success' | 'warning' | 'danger' | 'info'
 
@@ -17,9 +17,7 @@ const WORK_TAGS: Record<string, TagType> = {
 export const workTag = (status: string): TagType => WORK_TAGS[status] ?? 'info'
 export const workLabel = (status: string) => status.replace('-', ' ')
 
-export const METAL_LABELS: Record<(typeof METALS)[number], string> = {
-  'silver-925': 'Sterling silver 925', 'gold-9ct': '9 ct gold', 'gold-14k': '14 k gold', 'gold-18ct': '18 ct gold',
-  'platinum-950': 'Platinum 950', 'palladium-950': 'Palladium 950', brass: 'Brass', copper: 'Copper', mixed: 'Mixed metals',
-}
+/** Metal names live in the shared list so the printed ticket uses the same words. */
+export const METAL_LABELS: Record<(typeof METALS)[number], string> = METAL_NAMES
 
 export const PRIORITY_LABELS: Record<number, string> = { 1: '1 · when there is time', 2: '2 · low', 3: '3 · usual', 4: '4 · high', 5: '5 · urgent' }

@@ -1,11 +1,12 @@
 // The demo workshop (an invented scenario): benches, people, routings, open orders and a history of actual times.
-import { count, eq } from 'drizzle-orm'
+import { count, eq, sql } from 'drizzle-orm'
 import { templateEstimate } from '../../shared/domain/estimate'
 import type { PieceParams } from '../../shared/schemas/order'
 import type { WorkSpan } from '../../shared/schemas/common'
 import type { Db } from './client'
 import * as s from './schema/index'
 import { hashPassword } from '../services/users'
+import { dayRange, dayjs, expandPattern, MinuteClock, subtract, type Interval } from '../lib/time'
 
 export const DEMO_PASSWORD = 'millgrain-demo'
 export const DEMO_USERS = [
@@ -243,36 +244,135 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       return { order: order!, bag: bag!, ops, template: t }
     }
 
-    // History: finished orders over the past twelve weeks, with time records for estimating.
+    // History: finished orders over the past fourteen weeks, with time records for estimating. It keeps to the calendar the
+    // demo itself sets: every record lies in its person's working time (their own pattern, else the workshop's open hours,
+    // less closures and their leave); a person and a bench do one thing at a time; work stops at a break or the end of the
+    // day and goes on when they are back; outside work comes back on a working day; and nothing ends after `now`.
+    const zone = w!.timeZone
+    const weekdayNear = (days: number) => {
+      let d = dayjs(now).tz(zone).add(days, 'day')
+      while (d.isoWeekday() > 5) d = d.add(1, 'day')
+      return d.format('YYYY-MM-DD')
+    }
+    // Days off in the past too, so the history has some to keep to.
+    const trainingDay = weekdayNear(-40)
+    await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: training day', startsOn: trainingDay, endsOn: trainingDay })
+    const jonahAway = weekdayNear(-24)
+    await tx.insert(s.leave).values({ personId: people[3]!.id, startsOn: jonahAway, endsOn: dayjs(jonahAway).add(3, 'day').format('YYYY-MM-DD'), reason: 'Holiday' })
+
+    const HISTORY_DAYS = 98
+    const clock = new MinuteClock(zone, dayjs(now).tz(zone).subtract(HISTORY_DAYS + 7, 'day').format('YYYY-MM-DD'))
+    const days = clock.days(HISTORY_DAYS + 9)
+    const nowMinute = Math.floor((now.getTime() - clock.originMs) / 60_000)
+    const localDay = (m: number) => dayjs(clock.toDate(m)).tz(zone).format('YYYY-MM-DD')
+    const iso = (m: number) => clock.toDate(m).toISOString()
+    const closedDays = (await tx.select().from(s.closures).where(eq(s.closures.workshopId, workshopId))).map((c) => dayRange(clock, c.startsOn, c.endsOn))
+    const workshopOpen = subtract(expandPattern(clock, WEEK, days), closedDays)
+    const leaveRows = await tx.select().from(s.leave)
+    const openOf = new Map(people.map((p) => [p.id, intersect(
+      subtract(expandPattern(clock, p.weekPattern ?? WEEK, days), leaveRows.filter((l) => l.personId === p.id).map((l) => dayRange(clock, l.startsOn, l.endsOn))),
+      workshopOpen,
+    )]))
+    const openDays = [...new Set(workshopOpen.map((iv) => localDay(iv.start)))]
+    const busy = new Map<string, Interval[]>()
+    const busyOf = (k: string) => busy.get(k) ?? busy.set(k, []).get(k)!
+    /** The first `minutes` a person can give at a bench from `ready` on, in pieces of their free working time; null when not done by now. */
+    const book = (personId: number, benchId: number, ready: number, minutes: number): Interval[] | null => {
+      const open = openOf.get(personId)!.filter((iv) => iv.end > ready).map((iv) => ({ start: Math.max(iv.start, ready), end: iv.end }))
+      const free = subtract(open, [...busyOf(`p${personId}`), ...busyOf(`b${benchId}`)].filter((b) => b.end > ready))
+      const pieces: Interval[] = []
+      let left = minutes
+      for (const f of free) {
+        if (left <= 0 || f.start >= nowMinute) break
+        const take = Math.min(left, f.end - f.start)
+        // Nobody starts a job in a gap of a few minutes.
+        if (!pieces.length && take < Math.min(left, 20)) continue
+        pieces.push({ start: f.start, end: f.start + take })
+        left -= take
+      }
+      return left > 0 || pieces.at(-1)!.end > nowMinute ? null : pieces
+    }
+    /** Why a piece of work stopped before the next: a break or the end of the person's day, else another job took them away. */
+    const pauseReason = (personId: number, piece: Interval, next: Interval) =>
+      !openOf.get(personId)!.some((iv) => iv.end === piece.end) ? 'called-away' : localDay(piece.end) === localDay(next.start) ? 'break' : 'end-of-day'
+    /** A moment inside the open hours of the n-th working day after the day of `sent`; null when not before now. */
+    const returnAfter = (sent: number, n: number) => {
+      const day = openDays.filter((d) => d > localDay(sent))[n - 1]
+      const spans = workshopOpen.filter((iv) => localDay(iv.start) === day)
+      if (!spans.length) return null
+      const span = spans[Math.floor(rand() * spans.length)]!
+      const m = span.start + Math.floor(rand() * (span.end - span.start))
+      return m < nowMinute ? m : null
+    }
+    /** The first open minute of the workshop at or after m. */
+    const openFrom = (m: number) => {
+      const iv = workshopOpen.find((x) => x.end > m)
+      return iv ? Math.max(m, iv.start) : null
+    }
+
     const skilled = (kind: number, level: number) => PEOPLE.map((p, i) => ({ p, id: people[i]!.id, skill: p.skills.find(([k]) => kindId(k) === kind) })).filter((x) => x.skill && x.skill[1] >= level)
     const benchFor = (kind: number) => BENCHES.map((b, i) => ({ b, id: benches[i]!.id })).filter((x) => x.b.kinds.some((k) => kindId(k) === kind))
     let historyOps = 0
     for (let i = 0; historyOps < 300; i++) {
-      const created = addDays(now, -84 + i * 1.3)
-      const { ops } = await makeOrder({ due: addDays(created, 21), status: 'collected', created, tIndex: i })
-      let t = new Date(created.getTime() + 9 * 3600_000)
+      // Orders are taken in open hours, about one every working day and a bit.
+      const createdAt = openFrom(Math.floor((now.getTime() - (HISTORY_DAYS - i * 1.3) * 86_400_000 - clock.originMs) / 60_000) + Math.floor(rand() * 90))
+      if (createdAt === null || createdAt >= nowMinute) break
+      const created = clock.toDate(createdAt)
+      const { order, ops } = await makeOrder({ due: addDays(created, 21), status: 'collected', created, tIndex: i })
+      const mark = new Map([...busy].map(([k, v]) => [k, v.length]))
+      const done: { id: number; finishedAt: number; who?: { personId: number; benchId: number; pieces: Interval[] } }[] = []
+      const skipped: number[] = []
+      let ready = createdAt
+      let fits = true
       for (const op of ops) {
-        if (op.leadDays > 0) { t = addDays(t, op.leadDays + 1); await tx.update(s.operations).set({ finishedAt: t.toISOString() }).where(eqId(op.id)); continue }
+        if (op.leadDays > 0) {
+          // Outside work comes back after its lead days in working days, now and then a day or two late.
+          const r = rand()
+          const back = returnAfter(ready, op.leadDays + (r < 0.55 ? 0 : r < 0.85 ? 1 : 2))
+          if (back === null) { fits = false; break }
+          done.push({ id: op.id, finishedAt: back })
+          ready = back
+          continue
+        }
         const who = skilled(op.kindId, op.requiredLevel)
         const where = benchFor(op.kindId)
         const person = who[Math.floor(rand() * who.length)]
         const bench = where[Math.floor(rand() * where.length)]
-        if (!person || !bench) continue
-        // Actual = estimate ÷ speed × noise (log-normal-ish), with an occasional job left on the bench overnight.
+        // A step nobody in the demo can do (or no bench can host) is left out of the finished job, not finished by no one.
+        if (!person || !bench) { skipped.push(op.id); continue }
+        // Actual = estimate ÷ speed × noise (log-normal-ish), with an occasional job that went badly and took hours more.
         const noise = Math.exp((rand() + rand() + rand() - 1.5) * 0.35) * 1.08
         let actual = (op.estimateMinutes / person.skill![2]) * noise
         if (rand() < 0.03) actual += 300 + rand() * 400
         actual = Math.max(3, Math.round(actual))
-        const start = new Date(t)
-        const records = actual > 120 && rand() < 0.5
-          ? [{ s: start, e: new Date(start.getTime() + Math.round(actual * 0.6) * 60_000), reason: 'end-of-day' }, { s: addDays(start, 1), e: new Date(addDays(start, 1).getTime() + Math.round(actual * 0.4) * 60_000), reason: 'finished' }]
-          : [{ s: start, e: new Date(start.getTime() + actual * 60_000), reason: 'finished' }]
-        await tx.insert(s.timeRecords).values(records.map((r) => ({ operationId: op.id, personId: person.id, benchId: bench.id, startedAt: r.s.toISOString(), endedAt: r.e.toISOString(), endReason: r.reason })))
-        const end = records[records.length - 1]!.e
-        await tx.update(s.operations).set({ finishedAt: end.toISOString(), plannedBenchId: bench.id, plannedPersonId: person.id }).where(eqId(op.id))
-        t = new Date(end.getTime() + 30 * 60_000)
-        historyOps++
+        const pieces = book(person.id, bench.id, ready, actual)
+        if (!pieces) { fits = false; break }
+        busyOf(`p${person.id}`).push(...pieces)
+        busyOf(`b${bench.id}`).push(...pieces)
+        const end = pieces.at(-1)!.end
+        done.push({ id: op.id, finishedAt: end, who: { personId: person.id, benchId: bench.id, pieces } })
+        // The next step waits for the step's own wait (pickling, resist drying) and a while in the tray.
+        ready = end + op.waitAfterMinutes + Math.round(10 + rand() * 110)
       }
+      if (!fits) {
+        // The last order would not be finished by now: it is not part of the history.
+        for (const [k, v] of busy) v.length = mark.get(k) ?? 0
+        await tx.delete(s.orders).where(eq(s.orders.id, order.id))
+        orderNo--
+        break
+      }
+      const records = done.flatMap((d) => d.who ? d.who.pieces.map((p, j, all) => ({
+        operationId: d.id, personId: d.who!.personId, benchId: d.who!.benchId, startedAt: iso(p.start), endedAt: iso(p.end),
+        endReason: j === all.length - 1 ? 'finished' : pauseReason(d.who!.personId, p, all[j + 1]!), createdAt: clock.toDate(p.start),
+      })) : [])
+      if (records.length) await tx.insert(s.timeRecords).values(records)
+      for (const d of done) {
+        await tx.update(s.operations).set({ finishedAt: iso(d.finishedAt), ...(d.who ? { plannedBenchId: d.who.benchId, plannedPersonId: d.who.personId } : {}) }).where(eqId(d.id))
+        if (d.who) historyOps++
+      }
+      for (const id of skipped) await tx.update(s.operations).set({ status: 'skipped' }).where(eqId(id))
+      // Collected once the last step was done.
+      await tx.update(s.orders).set({ updatedAt: clock.toDate(Math.max(...done.map((d) => d.finishedAt))) }).where(eq(s.orders.id, order.id))
     }
     // Open work: 30 orders due over the next four weeks.
     for (let i = 0; i < 30; i++) {
@@ -281,8 +381,24 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       while (due.getUTCDay() === 0 || due.getUTCDay() === 6) due = addDays(due, -1)
       await makeOrder({ due, status: 'open', created: addDays(now, -Math.floor(rand() * 10)), tIndex: i * 7 + 3 })
     }
+    // Open orders were last changed when they were taken (not when the demo was written, which may be after the clock it was given).
+    await tx.update(s.orders).set({ updatedAt: sql`${s.orders.createdAt}` }).where(eq(s.orders.status, 'open'))
   })
   return true
 }
 
 const eqId = (id: number) => eq(s.operations.id, id)
+
+/** Where two sorted lists of disjoint intervals overlap. */
+function intersect(a: Interval[], b: Interval[]): Interval[] {
+  const out: Interval[] = []
+  let j = 0
+  for (const x of a) {
+    while (j < b.length && b[j]!.end <= x.start) j++
+    for (let k = j; k < b.length && b[k]!.start < x.end; k++) {
+      const start = Math.max(x.start, b[k]!.start), end = Math.min(x.end, b[k]!.end)
+      if (end > start) out.push({ start, end })
+    }
+  }
+  return out
+}

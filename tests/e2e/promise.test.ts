@@ -25,9 +25,55 @@ afterAll(async () => {
 /** An Element Plus field's input, whether the data-test attribute lands on the input itself or on its wrapper. */
 const field = (scope: Page | ReturnType<Page['locator']>, name: string) => scope.locator(`input[data-test=${name}], [data-test=${name}] input`).first()
 
+const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec']
+const WEEKDAYS = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat']
+/** A day as the screen writes it ("Thu 17 Dec 2026" or "17 Dec 2026") read back as an ISO date; a weekday shown must be that date's (Date.UTC's calendar). */
+function screenDay(text: string): string {
+  const m = /^(?:(\w{3}) )?(\d{1,2}) (\w{3}) (\d{4})$/.exec(text.trim())
+  expect(m, `a day on screen: "${text}"`).not.toBeNull()
+  const [, weekday, day, mon, year] = m!
+  expect(MONTHS, `month of "${text}"`).toContain(mon)
+  const date = new Date(Date.UTC(Number(year), MONTHS.indexOf(mon!), Number(day)))
+  expect(date.getUTCDate(), `"${text}" is a real day`).toBe(Number(day))
+  if (weekday !== undefined) expect(WEEKDAYS[date.getUTCDay()], `weekday of "${text}"`).toBe(weekday)
+  return date.toISOString().slice(0, 10)
+}
+/** The workshop's (Europe/London) calendar date and "ddd D MMM YYYY, HH:mm" of a moment, by Intl (ICU), apart from the app's dayjs. */
+function london(iso: string) {
+  const parts = Object.fromEntries(new Intl.DateTimeFormat('en-GB', { timeZone: 'Europe/London', weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' })
+    .formatToParts(new Date(iso)).map((x) => [x.type, x.value]))
+  const month = String(MONTHS.indexOf(parts.month!) + 1).padStart(2, '0')
+  return { date: `${parts.year}-${month}-${parts.day!.padStart(2, '0')}`, text: `${parts.weekday} ${parts.day} ${parts.month} ${parts.year}, ${parts.hour}:${parts.minute}` }
+}
+interface CheckAnswer { fixedPlan: { at: string; date: string }; replanned: { at: string; date: string }; range: { p50: { date: string }; p80: { date: string }; p95: { date: string } } | null }
+/** Clicks "check" and returns the server's answer the screen is about to show. */
+async function check(): Promise<CheckAnswer> {
+  const answer = page.waitForResponse((r) => r.url().endsWith('/api/promise/check') && r.request().method() === 'POST', { timeout: 30_000 })
+  await page.locator('[data-test=promise-check]').click()
+  const res = await answer
+  expect(res.status()).toBe(200)
+  return (await res.json()) as CheckAnswer
+}
+/** The days shown for an answer checked against it as whole dates: fixed-plan and re-planned dates with their times, and the P50/P80/P95 days. */
+async function expectScreenShows(a: CheckAnswer) {
+  // The day shown is the workshop's calendar day of the completion (Intl in Europe/London), not only the server's own field.
+  expect(a.fixedPlan.date).toBe(london(a.fixedPlan.at).date)
+  expect(a.replanned.date).toBe(london(a.replanned.at).date)
+  const fixed = page.locator('[data-test=promise-fixed]'), replanned = page.locator('[data-test=promise-replanned]')
+  expect(screenDay((await fixed.locator('.big').textContent()) ?? '')).toBe(a.fixedPlan.date)
+  expect(screenDay((await replanned.locator('.big').textContent()) ?? '')).toBe(a.replanned.date)
+  expect(((await fixed.locator('.mg-small', { hasText: /^ready / }).textContent()) ?? '').trim()).toBe(`ready ${london(a.fixedPlan.at).text}`)
+  expect(((await replanned.locator('.mg-small', { hasText: /^ready / }).textContent()) ?? '').trim()).toBe(`ready ${london(a.replanned.at).text}`)
+  expect(a.range, 'the check asks for the range').not.toBeNull()
+  const shown = (await page.locator('[data-test=promise-quantiles] strong').allTextContents()).map(screenDay)
+  expect(shown).toEqual([a.range!.p50.date, a.range!.p80.date, a.range!.p95.date])
+  return shown
+}
+
 describe('promise check as sales', () => {
   let orderNumber = ''
   let promised = ''
+  let lastAnswer: CheckAnswer | null = null
 
   it('when sales checks a ring with stones, then the fixed-plan and re-planned dates and the P50/P80/P95 band show', async () => {
     await page.goto('/promise')
@@ -35,26 +81,24 @@ describe('promise check as sales', () => {
     await page.locator('[data-test=promise-template]').click()
     await page.locator('.el-select-dropdown__item:visible').first().click()
     await field(page, 'promise-stones').fill('5')
-    await page.locator('[data-test=promise-check]').click()
+    const answer = await check()
     await page.locator('[data-test=promise-band]').waitFor({ timeout: 20_000 })
-    const fixed = await page.locator('[data-test=promise-fixed] .big').textContent()
-    expect(fixed).toMatch(/\w{3} \d{1,2} \w{3} \d{4}/)
+    await expectScreenShows(answer)
     const q = await page.locator('[data-test=promise-quantiles]').textContent()
-    expect(q).toContain('P50')
-    expect(q).toContain('P95')
+    expect(q).toMatch(/even chance \(P50\).*safe to promise \(P80\).*nearly certain \(P95\)/)
     await screenshot(page, 'promise-check')
   })
 
   it('when the piece is cast and hallmarked outside, then the band is a range: P50 comes before P95 and the assumption is stated', async () => {
     await page.locator('[data-test=promise-template]').click()
     await page.locator('.el-select-dropdown__item:visible', { hasText: 'Signet ring' }).click()
-    await page.locator('[data-test=promise-check]').click()
+    const answer = await check()
     await page.locator('[data-test=promise-result]', { hasText: /signet ring/i }).locator('[data-test=promise-band]').waitFor({ timeout: 20_000 })
-    const dates = await page.locator('[data-test=promise-quantiles] strong').allTextContents()
-    expect(dates).toHaveLength(3)
-    // Casting (5 working days) and hallmarking (3) vary in whole days (server test: promise-range.test.ts); read back on screen.
-    const day = (x: string) => Date.parse(x.replace(/^\w{3} /, ''))
-    expect(day(dates[0]!), dates.join(' / ')).toBeLessThan(day(dates[2]!))
+    const dates = await expectScreenShows(answer)
+    // Casting (5 working days) and hallmarking (3) vary in whole days (server test: promise-range.test.ts); read back on screen
+    // as whole ISO dates, so P50 < P95 compares days, not digits.
+    expect(dates[0]! < dates[2]!, dates.join(' / ')).toBe(true)
+    expect(dates[0]! <= dates[1]! && dates[1]! <= dates[2]!, dates.join(' / ')).toBe(true)
     const note = (await page.locator('[data-test=promise-result]').textContent()) ?? ''
     // Where history is thin the stated default is shown; where every kind has history, the screen says so instead.
     expect(note).toMatch(/log-normal factor with median 1 and σ = 0\.35|Every kind of work has enough finished history/)
@@ -64,8 +108,9 @@ describe('promise check as sales', () => {
     const first = page.locator('.el-select-dropdown__item:visible').first()
     const name = ((await first.textContent()) ?? '').trim()
     await first.click()
-    await page.locator('[data-test=promise-check]').click()
+    lastAnswer = await check()
     await page.locator('[data-test=promise-result]', { hasText: new RegExp(name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&'), 'i') }).locator('[data-test=promise-band]').waitFor({ timeout: 20_000 })
+    await expectScreenShows(lastAnswer)
   })
 
   it('when sales makes it an order for a customer, then the order keeps the promised date', async () => {
@@ -85,15 +130,27 @@ describe('promise check as sales', () => {
     orderNumber = /Order (\S+) taken/.exec(text)?.[1] ?? ''
     expect(orderNumber).toMatch(/^MG\d\d-\d{4}$/)
     const { rows: [o] } = await e2e.db.pool.query(`select promised_date::text as d from orders where number = $1`, [orderNumber])
-    expect(o.d).toBeTruthy()
-    // The picker shows the day as "D MMM YYYY" (e.g. "17 Dec 2026"); read back as an ISO date it is the stored date.
-    const m = /^(\d{1,2}) (\w{3}) (\d{4})$/.exec(promised)
-    expect(m, `picker showed "${promised}"`).not.toBeNull()
-    const month = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'].indexOf(m![2]!) + 1
-    expect(`${m![3]}-${String(month).padStart(2, '0')}-${m![1]!.padStart(2, '0')}`).toBe(o.d)
-    // The message says whether the steps are booked, as the database has it.
-    const { rows: [b] } = await e2e.db.pool.query(`select bool_and(op.planned_start is not null) as booked from operations op join job_bags j on j.id = op.job_bag_id join orders r on r.id = j.order_id where r.number = $1`, [orderNumber])
-    expect(text).toMatch(b.booked ? /Booked into the live plan/ : /Not booked into the plan/)
+    expect(o.d).toMatch(/^\d{4}-\d{2}-\d{2}$/)
+    // The picker shows the day as "D MMM YYYY" (e.g. "17 Dec 2026"); read back as an ISO date it is the stored date, and the one
+    // the check suggests: P80 when it is later than the fixed-plan date, else the fixed-plan date (computed here from the answer).
+    const suggested = lastAnswer!.range && lastAnswer!.range.p80.date > lastAnswer!.fixedPlan.date ? lastAnswer!.range.p80.date : lastAnswer!.fixedPlan.date
+    expect(screenDay(promised)).toBe(suggested)
+    expect(o.d).toBe(suggested)
+    const title = /Order \S+ taken, promised for (.+?)\./.exec(text)
+    expect(title, text).not.toBeNull()
+    expect(screenDay(title![1]!)).toBe(o.d)
+    // The message says whether the steps are booked, as the database has it, and the booked days are the workshop's calendar days
+    // (Europe/London, by PostgreSQL) of the first planned start and the last planned end.
+    const { rows: [b] } = await e2e.db.pool.query(`select bool_and(op.planned_start is not null) as booked,
+        (min(op.planned_start) at time zone 'Europe/London')::date::text as first, (max(op.planned_end) at time zone 'Europe/London')::date::text as last
+      from operations op join job_bags j on j.id = op.job_bag_id join orders r on r.id = j.order_id where r.number = $1`, [orderNumber])
+    if (b.booked) {
+      const booked = /Booked into the live plan, (.+?) to (.+?)\./.exec(text)
+      expect(booked, text).not.toBeNull()
+      expect([screenDay(booked![1]!), screenDay(booked![2]!)]).toEqual([b.first, b.last])
+    } else {
+      expect(text).toMatch(/Not booked into the plan/)
+    }
   })
 
   it('when sales opens the outbox, then the confirmation to the customer is listed and its text names the promised date', async () => {

@@ -21,7 +21,8 @@ describe('stability against the published plan', () => {
     const plan = solve(again, { seed: 2, timeLimitMs: 30_000, maxIterations: 400 }, { clock })
     expect(validatePlan(again, plan)).toEqual([])
     expect(plan.score.weightedTardiness).toBeLessThanOrEqual(first.score.weightedTardiness)
-    if (plan.score.weightedTardiness === first.score.weightedTardiness) expect(changes(first, plan)).toBe(0)
+    // A step moves only for less lateness: no change exactly when the lateness is the same (asserted both ways, never skipped).
+    expect({ changed: changes(first, plan) > 0 }).toEqual({ changed: plan.score.weightedTardiness < first.score.weightedTardiness })
     expect(plan.stats.previous?.weightedTardiness).toBe(first.score.weightedTardiness)
   })
 
@@ -38,7 +39,7 @@ describe('stability against the published plan', () => {
     const plan = solve(withOrder, { seed: 3, timeLimitMs: 30_000, maxIterations: 400 }, { clock })
     expect(validatePlan(withOrder, plan)).toEqual([])
     expect(plan.score.weightedTardiness).toBeLessThanOrEqual(first.score.weightedTardiness)
-    if (plan.score.weightedTardiness === first.score.weightedTardiness) expect(changes(first, plan)).toBe(0)
+    expect({ changed: changes(first, plan) > 0 }).toEqual({ changed: plan.score.weightedTardiness < first.score.weightedTardiness })
     expect(plan.operations.some((o) => o.operationId === 'new-1')).toBe(true)
   })
 })

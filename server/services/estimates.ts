@@ -290,15 +290,16 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
 
 export async function listStepChanges(db: Db, workshopId: number): Promise<StepChange[]> {
   const rows = await db
-    .select({ c: templateStepChanges, templateName: routingTemplates.name, kind: operationKinds.name, by: users.name })
+    .select({ c: templateStepChanges, templateName: routingTemplates.name, stepName: templateSteps.name, kind: operationKinds.name, by: users.name })
     .from(templateStepChanges)
     .innerJoin(routingTemplates, eq(routingTemplates.id, templateStepChanges.templateId))
+    .leftJoin(templateSteps, and(eq(templateSteps.templateId, templateStepChanges.templateId), eq(templateSteps.key, templateStepChanges.stepKey)))
     .innerJoin(operationKinds, eq(operationKinds.id, templateStepChanges.kindId))
     .innerJoin(users, eq(users.id, templateStepChanges.acceptedBy))
     .where(eq(templateStepChanges.workshopId, workshopId))
     .orderBy(desc(templateStepChanges.id))
-  return rows.map(({ c, templateName, kind, by }) => ({
-    id: c.id, templateId: c.templateId, templateName, stepKey: c.stepKey, kind,
+  return rows.map(({ c, templateName, stepName, kind, by }) => ({
+    id: c.id, templateId: c.templateId, templateName, stepKey: c.stepKey, stepName: stepName ?? c.stepKey, kind,
     from: { baseMinutes: c.fromBaseMinutes, perStoneMinutes: c.fromPerStoneMinutes }, to: { baseMinutes: c.toBaseMinutes, perStoneMinutes: c.toPerStoneMinutes },
     templateVersion: c.templateVersion, basis: c.basis, reason: c.reason, acceptedBy: by, at: new Date(c.createdAt).toISOString(),
   }))

@@ -238,10 +238,16 @@ export function toCsv(header: string[], rows: unknown[][]): string {
   return [header, ...rows].map((r) => r.map(csvCell).join(',')).join('\r\n') + '\r\n'
 }
 
+/** The first column of a comparison CSV names the row (what a person reads first); ids come last, for joining. */
+const CSV_NAME: Record<Grouping, string> = { kind: 'kind', person: 'person', template: 'routing', order: 'order', month: 'month' }
+
 export function comparisonCsv(t: ComparisonTable): string {
-  const header = ['group', 'label', 'operations', 'estimate_hours', 'actual_hours', 'bias_hours', 'bias_pct', 'direction', 'mape_pct']
-  const line = (r: ComparisonRow) => [r.key, r.label, r.n, r.estimateHours, r.actualHours, r.biasHours, r.biasPct, r.direction, r.mapePct]
-  return toCsv(header, [...t.rows.map(line), line(t.total)])
+  const name = CSV_NAME[t.groupBy]
+  // A month's key is the month itself: no id column for it. Work without a routing has key 0, no id.
+  const withId = t.groupBy !== 'month'
+  const header = [name, 'operations', 'estimate_hours', 'actual_hours', 'bias_hours', 'bias_pct', 'direction', 'mape_pct', ...(withId ? [`${name}_id`] : [])]
+  const line = (r: ComparisonRow, id: string) => [r.label, r.n, r.estimateHours, r.actualHours, r.biasHours, r.biasPct, r.direction, r.mapePct, ...(withId ? [id] : [])]
+  return toCsv(header, [...t.rows.map((r) => line(r, r.key === '0' ? '' : r.key)), line(t.total, '')])
 }
 
 /**
@@ -262,10 +268,11 @@ export function costingCsv(t: CostingTable): string {
 }
 
 export function drillCsv(d: DrillDown): string {
-  const header = ['operation', 'order', 'job_bag', 'piece', 'step', 'kind', 'person', 'finished_at', 'estimate_minutes', 'estimate_source', 'actual_minutes',
-    'time_record', 'record_person', 'started_at', 'ended_at', 'record_minutes', 'voided', 'corrected']
-  const rows = d.operations.flatMap((o) => o.records.map((r) => [o.operationId, o.orderNumber, o.jobBagNumber, o.piece, o.step, o.kind, o.personName, o.finishedAt,
-    o.estimateMinutes, o.estimateSource, o.actualMinutes, r.timeRecordId, r.personName, r.startedAt, r.endedAt, r.minutes, r.voided ? 'yes' : 'no', r.corrected ? 'yes' : 'no']))
+  // Names first (order, job bag, piece, step …); the operation's and the record's ids last, for joining.
+  const header = ['order', 'job_bag', 'piece', 'step', 'kind', 'person', 'finished_at', 'estimate_minutes', 'estimate_source', 'actual_minutes',
+    'record_person', 'started_at', 'ended_at', 'record_minutes', 'voided', 'corrected', 'operation_id', 'time_record_id']
+  const rows = d.operations.flatMap((o) => o.records.map((r) => [o.orderNumber, o.jobBagNumber, o.piece, o.step, o.kind, o.personName, o.finishedAt,
+    o.estimateMinutes, o.estimateSource, o.actualMinutes, r.personName, r.startedAt, r.endedAt, r.minutes, r.voided ? 'yes' : 'no', r.corrected ? 'yes' : 'no', o.operationId, r.timeRecordId]))
   return toCsv(header, rows)
 }
 

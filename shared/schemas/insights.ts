@@ -174,7 +174,10 @@ export interface StepSuggestion {
 export interface LearnedEstimates { asOf: string; kinds: KindFigure[]; people: PersonFigure[]; steps: StepSuggestion[] }
 
 export interface StepChange {
-  id: number; templateId: number; templateName: string; stepKey: string; kind: string
+  id: number; templateId: number; templateName: string; stepKey: string
+  /** The step's name in the routing (its key when the step has gone since). */
+  stepName: string
+  kind: string
   from: { baseMinutes: number; perStoneMinutes: number }; to: { baseMinutes: number; perStoneMinutes: number }
   templateVersion: number; basis: { n: number; from: string | null; to: string | null; method: string; spread: Record<string, number> }
   reason: string; acceptedBy: string; at: string

@@ -43,6 +43,33 @@ describe('insights as the owner', () => {
     await screenshot(page, 'insights-overview')
   })
 
+  it('when the table by kind is shown, then the bias and MAPE figures are said in plain words beside them', async () => {
+    const words = page.locator('[data-test=insights-reading]')
+    await words.waitFor()
+    const t = (await (await page.request.get('/api/insights/comparison?groupBy=kind')).json()).total
+    // The figures recomputed here from every finished operation's estimate and actual minutes (the chart data), independently of the table:
+    // bias = (Σ actual − Σ estimate) ÷ Σ estimate; MAPE = mean over operations of |actual − estimate| ÷ actual.
+    const points: { estimateMinutes: number; actualMinutes: number }[] = await (await page.request.get('/api/insights/scatter')).json()
+    const est = points.reduce((x, p) => x + p.estimateMinutes, 0), act = points.reduce((x, p) => x + p.actualMinutes, 0)
+    const bias = ((act - est) / est) * 100
+    const mape = (points.reduce((x, p) => x + Math.abs(p.actualMinutes - p.estimateMinutes) / p.actualMinutes, 0) / points.length) * 100
+    expect(Math.abs(t.biasPct - bias)).toBeLessThan(0.06)
+    expect(Math.abs(t.mapePct - mape)).toBeLessThan(0.06)
+    const pct = (x: number) => `${Math.abs(x).toFixed(1)} %`
+    expect(await words.locator('[data-test=insights-bias-words]').textContent()).toBe(
+      `Bias ${bias > 0 ? '+' : '-'}${pct(t.biasPct)}: taken together, the work took ${pct(t.biasPct)} ${act > est ? 'longer' : 'less time'} than estimated (${t.actualHours.toFixed(2)} h taken against ${t.estimateHours.toFixed(2)} h estimated, ${points.length} operations).`)
+    expect(Math.abs(t.actualHours - act / 60)).toBeLessThanOrEqual(0.005)
+    expect(Math.abs(t.estimateHours - est / 60)).toBeLessThanOrEqual(0.005)
+    expect(await words.locator('[data-test=insights-mape-words]').textContent()).toBe(
+      `MAPE ${pct(t.mapePct)}: on average, an operation's estimate was ${pct(t.mapePct)} off the time it actually took, too high or too low.`)
+    // The short column names explain themselves when pointed at.
+    await page.locator('[data-test=insights-bias-head]').hover()
+    await page.locator('.el-popper', { hasText: 'Plus means the work took longer than estimated' }).waitFor()
+    await page.locator('[data-test=insights-mape-head]').hover()
+    await page.locator('.el-popper', { hasText: 'Over- and underestimates do not cancel out' }).waitFor()
+    await screenshot(page, 'insights-words')
+  })
+
   it('when a row is clicked, then the drawer lists its operations and their time records', async () => {
     await page.locator('[data-test=insights-comparison] .el-table__body .el-table__row', { hasText: 'Stone setting' }).click()
     const drawer = page.locator('[data-test=insights-drill]')
@@ -63,8 +90,55 @@ describe('insights as the owner', () => {
     expect(await page.locator('[data-test=insights-csv]').getAttribute('href')).toBe('/api/insights/comparison?groupBy=person&format=csv')
     const r = await page.request.get('/api/insights/comparison?groupBy=person&format=csv')
     expect(r.status()).toBe(200)
-    expect((await r.text()).split('\r\n')[0]).toBe('group,label,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct')
+    const lines = (await r.text()).split('\r\n')
+    // The first column names the person; their id comes last.
+    expect(lines[0]).toBe('person,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,person_id')
+    const shown = await page.locator('[data-test=insights-comparison] .el-table__body .el-table__row td:first-child').allTextContents()
+    expect(shown.map((x) => x.trim())).toContain(lines[1]!.split(',')[0])
+    expect(lines[1]!.split(',').at(-1)).toMatch(/^\d+$/)
     await screenshot(page, 'insights-by-person')
+  })
+
+  it('when job costing is shown, then every margin figure has the caveat of what it leaves out right beside it', async () => {
+    const costing = page.locator('[data-test=insights-costing]')
+    await costing.locator('.el-table__body .el-table__row').first().waitFor()
+    // Every margin cell (at estimate and at actual, each row and the total) holds the figure and, in the same cell, the words of what it counts.
+    const cells = await costing.locator('.el-table__body td, .el-table__footer td').evaluateAll((tds) => tds
+      .filter((td) => /\d %/.test(td.textContent ?? '') && td.querySelector('[data-test=margin-caveat]') !== null || td.querySelector('[data-test=margin-at-estimate], [data-test=margin-at-actual]') !== null)
+      .map((td) => ({ hasFigure: /\d+\.\d %/.test(td.textContent ?? ''), caveat: td.querySelector('[data-test=margin-caveat]')?.textContent?.trim() ?? '' })))
+    const rows = await costing.locator('.el-table__body .el-table__row').count()
+    expect(cells.length).toBe(2 * rows + 2)
+    // The demo enters no outside costs (server/db/seed.ts): every margin counts labour only; orders with outside steps say those are left out too.
+    for (const c of cells) expect([{ hasFigure: true, caveat: 'labour only — metal, stones and outside work not yet counted' }, { hasFigure: true, caveat: 'labour only — metal and stones not yet counted' }]).toContainEqual(c)
+    expect(cells.at(-1)!.caveat).toBe('labour only — metal, stones and outside work not yet counted')
+    expect(await page.locator('[data-test=insights-costing-note]').textContent()).toContain('metal and stones are not yet counted')
+    await page.locator('[data-test=insights-costing]').scrollIntoViewIfNeeded()
+    await screenshot(page, 'insights-costing')
+  })
+
+  it('when the owner accepts a suggested estimate, then the question and the confirmation name the step, not its key', async () => {
+    type S = { templateName: string; templateVersion: number; stepKey: string; stepName: string; suggested: { baseMinutes: number; perStoneMinutes: number; changePct: number } | null }
+    const learned: { steps: S[] } = await (await page.request.get('/api/estimates/learned')).json()
+    // The screen lists the largest changes first.
+    const s = learned.steps.filter((x) => x.suggested).sort((a, b) => Math.abs(b.suggested!.changePct) - Math.abs(a.suggested!.changePct))[0]!
+    expect(s, 'the seeded history offers a suggestion').toBeTruthy()
+    expect(s.stepName).not.toBe(s.stepKey)
+    const minutes = s.suggested!.perStoneMinutes ? `${s.suggested!.baseMinutes} + ${s.suggested!.perStoneMinutes}/stone` : `${s.suggested!.baseMinutes} min`
+    const row = page.locator('[data-test=insights-suggestions] .el-table__body .el-table__row').first()
+    await row.scrollIntoViewIfNeeded()
+    expect(await row.locator('td').first().textContent()).toContain(s.stepName)
+    await row.locator('[data-test=insights-accept]').click()
+    const question = page.locator('.el-popconfirm', { hasText: 'New orders will use them' })
+    await question.waitFor()
+    expect(await question.locator('.el-popconfirm__main').textContent()).toContain(`Write ${minutes} for “${s.stepName}” into “${s.templateName}”? New orders will use them.`)
+    await screenshot(page, 'insights-accept-question')
+    await question.getByRole('button', { name: 'Accept' }).click()
+    const message = page.locator('.el-message', { hasText: s.stepName })
+    await message.waitFor()
+    expect((await message.textContent())?.trim()).toBe(`“${s.stepName}” in ${s.templateName} now takes ${minutes} (routing version ${s.templateVersion + 1})`)
+    // The list of changes accepted lately names the step too.
+    await page.getByText(`${s.templateName} · ${s.stepName}: `).first().waitFor()
+    await screenshot(page, 'insights-accepted')
   })
 
   it('when the manager tries the insights screen, then it is not for their role', async () => {

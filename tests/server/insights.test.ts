@@ -121,18 +121,38 @@ describe('estimated against actual hours', () => {
     expect(r.headers['content-type']).toMatch(/^text\/csv/)
     expect(r.headers['content-disposition']).toBe('attachment; filename="estimates-by-order.csv"')
     const lines = r.text.split('\r\n')
-    expect(lines[0]).toBe('group,label,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct')
+    expect(lines[0]).toBe('order,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,order_id')
     // Order A: 90 → 114 min, bias 0.4 h (+26.7 %), MAPE (30/90 + 6/24)/2 = 29.2 % (hand-computed).
-    expect(lines).toContain(`${orderIds[0]},${orderNumbers[0]} Fixture order A,2,1.5,1.9,0.4,26.7,over,29.2`)
-    expect(lines.at(-2)).toBe('total,Total,4,4,4.07,0.07,1.7,over,19.6')
+    expect(lines).toContain(`${orderNumbers[0]} Fixture order A,2,1.5,1.9,0.4,26.7,over,29.2,${orderIds[0]}`)
+    expect(lines.at(-2)).toBe('Total,4,4,4.07,0.07,1.7,over,19.6,')
     expect(lines.at(-1)).toBe('')
+  })
+
+  it('when a table is asked for as CSV by person, kind, routing or month, then the first column names the row and its id comes last', async () => {
+    // Hand-computed from the fixture: Ines set A (60 → 90 min) and B (120 → 100 min): 3 h estimated, 190 min = 3.17 h taken,
+    // bias +10 min = 0.17 h = +5.6 %, MAPE (30/90 + 20/100)/2 = 26.7 %.
+    const cases: [string, string, string][] = [
+      ['person', 'person', `Ines Harrowby,2,3,3.17,0.17,5.6,over,26.7,${person.Ines}`],
+      // Setting over both orders is Ines's work: the same figures under the kind's name.
+      ['kind', 'kind', `Stone setting,2,3,3.17,0.17,5.6,over,26.7,${kinds.setting}`],
+      ['template', 'routing', `Fixture: set and polish,4,4,4.07,0.07,1.7,over,19.6,${templateId}`],
+    ]
+    for (const [groupBy, first, line] of cases) {
+      const lines = (await owner.get(`/api/insights/comparison?groupBy=${groupBy}&templateId=${templateId}&format=csv`)).text.split('\r\n')
+      expect(lines[0], groupBy).toBe(`${first},operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,${first}_id`)
+      expect(lines, groupBy).toContain(line)
+    }
+    // A month is its own name: no id column.
+    const months = (await owner.get(`/api/insights/comparison?groupBy=month&templateId=${templateId}&format=csv`)).text.split('\r\n')
+    expect(months[0]).toBe('month,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct')
+    expect(months[1]!.startsWith('2030-03,2,')).toBe(true)
   })
 
   it('when a label holds a comma, a quote or starts like a formula, then the CSV cell is quoted and defused', async () => {
     await q(`update orders set title = $2 where id = $1`, [orderIds[1], '=Ring, "pear" cut'])
     const r = await owner.get(`/api/insights/comparison?groupBy=order&templateId=${templateId}&format=csv`)
     // RFC 4180 §2: fields with commas or quotes are enclosed in quotes and quotes doubled; the leading ' keeps spreadsheets from running it (OWASP CSV injection).
-    expect(r.text).toContain(`${orderIds[1]},"${orderNumbers[1]} =Ring, ""pear"" cut",2,2.5,2.17,`)
+    expect(r.text).toContain(`\r\n"${orderNumbers[1]} =Ring, ""pear"" cut",2,2.5,2.17,`)
     await q(`update orders set title = 'Fixture order B' where id = $1`, [orderIds[1]])
   })
 
@@ -146,6 +166,11 @@ describe('estimated against actual hours', () => {
     const csv = await owner.get(`/api/insights/records?groupBy=kind&key=${kinds.polishing}&templateId=${templateId}&format=csv`)
     expect(csv.headers['content-disposition']).toMatch(/^attachment; filename="time-records-kind-\d+\.csv"$/)
     expect(csv.text.split('\r\n').filter(Boolean)).toHaveLength(1 + 4)
+    // Names first, ids last: the order's number, then job bag, piece and step; the operation's and record's ids at the end.
+    const [head, first] = csv.text.split('\r\n')
+    expect(head!.startsWith('order,job_bag,piece,step,kind,person,')).toBe(true)
+    expect(head!.endsWith(',operation_id,time_record_id')).toBe(true)
+    expect(orderNumbers).toContain(first!.split(',')[0])
     expectCleanError(await owner.get(`/api/insights/records?groupBy=kind&key=999999&templateId=${templateId}`), 404)
   })
 
@@ -279,7 +304,7 @@ describe('learning from actual times', () => {
     const before = (await owner.get(`/api/templates/${tpl.body.id}`)).body
     const acc = await owner.post('/api/estimates/accept', { templateId: tpl.body.id, stepKey: 'set', baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes, templateVersion: before.version, reason: 'learned from 20 jobs' })
     expect(acc.status).toBe(200)
-    expect(acc.body).toMatchObject({ templateId: tpl.body.id, stepKey: 'set', from: { baseMinutes: 10, perStoneMinutes: 4 }, to: { baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes }, templateVersion: before.version + 1, acceptedBy: 'Margit Saale', basis: { n: 20, method: 'theil-sen' } })
+    expect(acc.body).toMatchObject({ templateId: tpl.body.id, stepKey: 'set', stepName: 'Set pavé', from: { baseMinutes: 10, perStoneMinutes: 4 }, to: { baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes }, templateVersion: before.version + 1, acceptedBy: 'Margit Saale', basis: { n: 20, method: 'theil-sen' } })
     const after = (await owner.get(`/api/templates/${tpl.body.id}`)).body
     expect(after.version).toBe(before.version + 1)
     expect(after.steps[0]).toMatchObject({ baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes })

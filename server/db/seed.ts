@@ -1,6 +1,6 @@
 // The demo workshop (an invented scenario): benches, people, routings, open orders and a history of actual times.
 import { count, eq, sql } from 'drizzle-orm'
-import { templateEstimate } from '../../shared/domain/estimate'
+import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { PieceParams } from '../../shared/schemas/order'
 import type { WorkSpan } from '../../shared/schemas/common'
 import type { Db } from './client'
@@ -76,8 +76,11 @@ const PEOPLE: { user: string; name: string; rate: number; skills: [KindCode, num
     pattern: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, start: '08:30', end: '12:30' })) },
 ]
 
-type Step = { key: string; kind: KindCode; name: string; base: number; perStone?: number; level?: number; wait?: number; lead?: number; after?: string[] }
-const TEMPLATES: { code: string; name: string; description: string; steps: Step[] }[] = [
+type Step = { key: string; kind: KindCode; name: string; base: number; perStone?: number; perMm?: number; bands?: { melee?: number; small?: number; large?: number }; level?: number; wait?: number; lead?: number; after?: string[] }
+// Setting: melee is fiddly to pick up and seat, larger stones need more metal moved for their seat (demo figures; minutes per
+// stone and their bands have no published source and should be learned from actual times).
+const SETTING_BANDS = { melee: 1.2, large: 1.5 }
+const TEMPLATES: { code: string; name: string; description: string; learningRate?: number; steps: Step[] }[] = [
   { code: 'pave-pendant', name: 'Pavé pendant in laminated metal', description: 'Laminated silver/copper disc, bail soldered, pavé of small diamonds.',
     steps: [
       { key: 'laminate', kind: 'forging', name: 'Laminate and roll sheet', base: 90, level: 2 },
@@ -87,7 +90,7 @@ const TEMPLATES: { code: string; name: string; description: string; steps: Step[
       { key: 'file', kind: 'filing', name: 'File and emery', base: 40, after: ['solder'] },
       { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark at assay office', base: 0, lead: 4, after: ['file'] },
       { key: 'drill', kind: 'drilling', name: 'Drill and cut seats', base: 10, perStone: 1.5, after: ['hallmark'] },
-      { key: 'set', kind: 'setting', name: 'Set pavé', base: 30, perStone: 7, level: 2, after: ['drill'] },
+      { key: 'set', kind: 'setting', name: 'Set pavé', base: 30, perStone: 7, bands: SETTING_BANDS, level: 2, after: ['drill'] },
       { key: 'polish', kind: 'polishing', name: 'Final polish', base: 35, after: ['set'] },
       { key: 'inspect', kind: 'inspection', name: 'Inspect and bag', base: 10, after: ['polish'] },
     ] },
@@ -117,7 +120,8 @@ const TEMPLATES: { code: string; name: string; description: string; steps: Step[
       { key: 'tighten', kind: 'setting', name: 'Tighten and check stones', base: 20, level: 2, after: ['file'] },
       { key: 'polish', kind: 'polishing', name: 'Polish', base: 20, after: ['tighten'] },
     ] },
-  { code: 'stud-run', name: 'Production run: stud earrings', description: 'Cast studs with soldered posts, per pair minutes.',
+  // Learning curve: each doubling of the run takes 85 % of the time per pair (a usual figure for repeated hand work; common practice, no source).
+  { code: 'stud-run', name: 'Production run: stud earrings', description: 'Cast studs with soldered posts, per pair minutes.', learningRate: 0.85,
     steps: [
       { key: 'cast', kind: 'casting', name: 'Cast tree (caster)', base: 0, lead: 5 },
       { key: 'clean', kind: 'filing', name: 'Cut off and clean', base: 5, after: ['cast'] },
@@ -141,7 +145,8 @@ const TEMPLATES: { code: string; name: string; description: string; steps: Step[
       { key: 'form', kind: 'forging', name: 'Form cuff on mandrel', base: 35, after: ['etch'] },
       { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['form'] },
       { key: 'oxidise', kind: 'etching', name: 'Oxidise and relieve', base: 25, after: ['hallmark'] },
-      { key: 'polish', kind: 'polishing', name: 'Polish highlights', base: 30, after: ['oxidise'] },
+      // Polishing grows with the cuff's length: 14 min + 0.1 min a millimetre (30 min for a 160 mm cuff; demo figures).
+      { key: 'polish', kind: 'polishing', name: 'Polish highlights', base: 14, perMm: 0.1, after: ['oxidise'] },
     ] },
   { code: 'signet-ring', name: 'Signet ring', description: 'Cast signet, hand finished.',
     steps: [
@@ -158,7 +163,7 @@ const TEMPLATES: { code: string; name: string; description: string; steps: Step[
       { key: 'join', kind: 'soldering', name: 'Solder head to shank', base: 40, wait: 20, level: 3, after: ['head', 'shank'] },
       { key: 'file', kind: 'filing', name: 'File and pre-polish', base: 45, after: ['join'] },
       { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['file'] },
-      { key: 'set', kind: 'setting', name: 'Set centre and halo', base: 40, perStone: 8, level: 3, after: ['hallmark'] },
+      { key: 'set', kind: 'setting', name: 'Set centre and halo', base: 40, perStone: 8, bands: SETTING_BANDS, level: 3, after: ['hallmark'] },
       { key: 'polish', kind: 'polishing', name: 'Final polish', base: 40, after: ['set'] },
       { key: 'inspect', kind: 'inspection', name: 'Inspect and box', base: 15, after: ['polish'] },
     ] },
@@ -220,8 +225,8 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
 
     const templates: { row: typeof s.routingTemplates.$inferSelect; steps: (typeof s.templateSteps.$inferSelect)[] }[] = []
     for (const t of TEMPLATES) {
-      const [row] = await tx.insert(s.routingTemplates).values({ workshopId, code: t.code, name: t.name, description: t.description }).returning()
-      const steps = await tx.insert(s.templateSteps).values(t.steps.map((st, seq) => ({ templateId: row!.id, seq, key: st.key, kindId: kindId(st.kind), name: st.name, baseMinutes: st.base, perStoneMinutes: st.perStone ?? 0, requiredLevel: st.level ?? 1, waitAfterMinutes: st.wait ?? 0, leadDays: st.lead ?? 0, after: st.after ?? [] }))).returning()
+      const [row] = await tx.insert(s.routingTemplates).values({ workshopId, code: t.code, name: t.name, description: t.description, learningRate: t.learningRate ?? null }).returning()
+      const steps = await tx.insert(s.templateSteps).values(t.steps.map((st, seq) => ({ templateId: row!.id, seq, key: st.key, kindId: kindId(st.kind), name: st.name, baseMinutes: st.base, perStoneMinutes: st.perStone ?? 0, perMmMinutes: st.perMm ?? 0, sizeBandFactors: st.bands ?? {}, requiredLevel: st.level ?? 1, waitAfterMinutes: st.wait ?? 0, leadDays: st.lead ?? 0, after: st.after ?? [] }))).returning()
       templates.push({ row: row!, steps })
     }
     const customers = await tx.insert(s.customers).values(CUSTOMERS.map((name, i) => ({ workshopId, reference: `C-${String(i + 1).padStart(4, '0')}`, name, email: `${name.split(' ')[0]!.toLowerCase()}@example.com`, phone: `01632 960${String(100 + i).slice(-3)}` }))).returning()
@@ -238,7 +243,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       const [bag] = await tx.insert(s.jobBags).values({ workshopId, orderId: order!.id, number: `${number}-1`, piece: choice.piece, templateId: t.row.id, params, status: opts.status === 'collected' ? 'complete' : 'waiting', createdAt: opts.created }).returning()
       const ops = await tx.insert(s.operations).values(t.steps.map((st) => ({
         jobBagId: bag!.id, seq: st.seq, key: st.key, kindId: st.kindId, name: st.name, requiredLevel: st.requiredLevel, waitAfterMinutes: st.waitAfterMinutes, leadDays: st.leadDays, after: st.after,
-        estimateMinutes: st.leadDays > 0 ? 0 : templateEstimate(st, params), estimateSource: 'template',
+        estimateMinutes: st.leadDays > 0 ? 0 : routingStepMinutes(st, t.row, params), estimateSource: 'template',
         status: opts.status === 'collected' ? 'done' : st.after.length ? 'pending' : 'ready',
       }))).returning()
       return { order: order!, bag: bag!, ops, template: t }

@@ -2,7 +2,7 @@
 import { and, asc, count, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { ListQuery } from '../../shared/schemas/common'
 import type { OrderInput, OrderUpdate } from '../../shared/schemas/order'
-import { templateEstimate } from '../../shared/domain/estimate'
+import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { Db, Trx } from '../db/client'
 import { customers, jobBags, operations, orders, templateSteps, routingTemplates } from '../db/schema/index'
 import { invalid, notFound } from '../errors/app-error'
@@ -50,7 +50,7 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
   await tx.insert(operations).values(
     steps.map((s) => ({
       jobBagId: bag!.id, seq: s.seq, key: s.key, kindId: s.kindId, name: s.name, requiredLevel: s.requiredLevel,
-      estimateMinutes: s.leadDays > 0 ? 0 : templateEstimate(s, piece.params), estimateSource: 'template',
+      estimateMinutes: s.leadDays > 0 ? 0 : routingStepMinutes(s, t, piece.params), estimateSource: 'template',
       waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after, status: s.after.length ? 'pending' : 'ready',
     })),
   )

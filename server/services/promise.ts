@@ -3,7 +3,7 @@
 import { and, asc, eq, gt, inArray, isNotNull, lt, or, sql } from 'drizzle-orm'
 import { quantileSorted } from 'simple-statistics'
 import type { JobBagForecast, OrderForecast, PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
-import { templateEstimate } from '../../shared/domain/estimate'
+import { routingStepMinutes } from '../../shared/domain/estimate'
 import * as s from '../db/schema/index'
 import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
@@ -121,7 +121,7 @@ async function prospectiveJob(deps: Deps, workshopId: number, data: PlanningData
   const operations: Operation[] = steps.map((st) => {
     const kind = data.meta.kinds.get(st.kindId)!
     const outside = kind.outside || st.leadDays > 0
-    const minutes = outside ? 0 : templateEstimate(st, input.params)
+    const minutes = outside ? 0 : routingStepMinutes(st, t, input.params)
     summary.push({ key: st.key, name: st.name, kind: kind.code, minutes, outsideDays: outside ? Math.max(1, st.leadDays) : 0 })
     const base: Operation = {
       id: idOf(st.key), jobId: PROSPECTIVE_JOB, name: st.name, kind: kind.code, options: [],

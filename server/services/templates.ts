@@ -16,8 +16,8 @@ export async function listTemplates(db: Db, workshopId: number): Promise<Templat
   const kinds = await db.select({ id: operationKinds.id, outside: operationKinds.outside }).from(operationKinds).where(eq(operationKinds.workshopId, workshopId))
   const outside = new Set(kinds.filter((k) => k.outside).map((k) => k.id))
   return rows.map((t) => {
-    const own = steps.filter((s) => s.templateId === t.id).map((s) => ({ id: s.id, key: s.key, kindId: s.kindId, name: s.name, baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes, requiredLevel: s.requiredLevel, waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after }))
-    return { id: t.id, code: t.code, name: t.name, description: t.description, version: t.version, steps: own, warnings: templateWarnings(own, (k) => outside.has(k)) }
+    const own = steps.filter((s) => s.templateId === t.id).map((s) => ({ id: s.id, key: s.key, kindId: s.kindId, name: s.name, baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes, perMmMinutes: s.perMmMinutes, sizeBandFactors: s.sizeBandFactors, requiredLevel: s.requiredLevel, waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after }))
+    return { id: t.id, code: t.code, name: t.name, description: t.description, learningRate: t.learningRate, version: t.version, steps: own, warnings: templateWarnings(own, (k) => outside.has(k)) }
   })
 }
 
@@ -40,9 +40,9 @@ const codeTaken = (e: unknown) => (isUniqueViolation(e) ? new AppError({ code: '
 
 export async function createTemplate({ db, realtime }: Deps, actor: Actor, input: TemplateInput) {
   const id = await db.transaction(async (tx) => {
-    const [t] = await tx.insert(routingTemplates).values({ workshopId: actor.workshopId, code: input.code, name: input.name, description: input.description }).returning()
+    const [t] = await tx.insert(routingTemplates).values({ workshopId: actor.workshopId, code: input.code, name: input.name, description: input.description, learningRate: input.learningRate }).returning()
     await writeSteps(tx, actor.workshopId, t!.id, input.steps)
-    await audit(tx, actor, 'create', 'routing-template', t!.id, { code: input.code })
+    await audit(tx, actor, 'create', 'routing-template', t!.id, { code: input.code, learningRate: input.learningRate })
     return t!.id
   }).catch((e) => { throw codeTaken(e) })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing-template', id })
@@ -54,7 +54,7 @@ export async function updateTemplate({ db, realtime }: Deps, actor: Actor, id: n
   await db.transaction(async (tx) => {
     await updateVersioned(tx, routingTemplates, 'Routing template', { id, workshopId: actor.workshopId, version, values })
     await writeSteps(tx, actor.workshopId, id, steps)
-    await audit(tx, actor, 'update', 'routing-template', id, { code: input.code, steps: steps.length })
+    await audit(tx, actor, 'update', 'routing-template', id, { code: input.code, steps: steps.length, learningRate: input.learningRate })
   }).catch((e) => { throw codeTaken(e) })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing-template', id })
   return getTemplate(db, actor.workshopId, id)

@@ -1,14 +1,6 @@
 // Estimating: the step model (base + stones × size band + size, × quantity, learning curve, ÷ speed), PERT three-point figures and robust fits.
 import type { PieceParams } from '../schemas/order'
 
-export interface StepEstimateInputs { baseMinutes: number; perStoneMinutes: number }
-
-/** Minutes for the whole job bag (all units), before any person's speed factor. */
-export function templateEstimate(step: StepEstimateInputs, params: Pick<PieceParams, 'stoneCount' | 'quantity'>): number {
-  const perUnit = step.baseMinutes + step.perStoneMinutes * params.stoneCount
-  return Math.round(perUnit * params.quantity * 10) / 10
-}
-
 // ---------------------------------------------------------------------------------------------------------------
 // Where an estimate comes from
 
@@ -109,6 +101,20 @@ export function stepMinutes(model: StepModel, params: Pick<PieceParams, 'stoneCo
   const all = o.learningRate !== undefined ? wrightTotal(unit, params.quantity, o.learningRate) : unit * params.quantity
   const speed = o.speed !== undefined && o.speed > 0 ? o.speed : 1
   return Math.round((all / speed) * 10) / 10
+}
+
+/** What a routing step carries for estimating (a template step as stored or as edited). */
+export interface RoutingStepModel extends StepModel { perMmMinutes: number; sizeBandFactors: Partial<Record<SizeBand, number>> }
+/** What the routing itself carries: its learning rate for production runs (null = every unit takes the same time). */
+export interface RoutingModel { learningRate: number | null }
+
+/**
+ * Bench minutes for a job bag made by one routing step, before anyone's speed: the whole step model, with the routing's
+ * learning curve only when it has one and more than one piece is made. Every place that estimates from a routing uses this.
+ */
+export function routingStepMinutes(step: RoutingStepModel, routing: RoutingModel, params: Pick<PieceParams, 'stoneCount' | 'stoneSizeMm' | 'sizeMm' | 'quantity'>): number {
+  const learned = routing.learningRate !== null && params.quantity > 1
+  return stepMinutes(step, params, learned ? { learningRate: routing.learningRate! } : {})
 }
 
 // ---------------------------------------------------------------------------------------------------------------

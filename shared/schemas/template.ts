@@ -3,6 +3,8 @@ import { z } from 'zod'
 import { code, id, name, notes, version } from './common'
 import type { TemplateWarning } from '../domain/template-warnings'
 
+const bandFactor = z.number({ error: 'must be a number' }).min(0.2, 'must be at least 0.2').max(5, 'must be at most 5')
+
 export const stepInput = z.object({
   key: z.string().trim().min(1, 'is required').max(20).regex(/^[a-z0-9-]+$/, 'use lower-case letters, digits and dashes'),
   kindId: id,
@@ -10,6 +12,10 @@ export const stepInput = z.object({
   /** Fixed minutes, plus per-stone minutes × stone count (setting). */
   baseMinutes: z.number({ error: 'must be a number' }).min(0, 'must not be negative').max(10000, 'must be at most 10000'),
   perStoneMinutes: z.number().min(0, 'must not be negative').max(240).default(0),
+  /** Minutes per millimetre of the piece's size (polishing a longer cuff takes longer); 0 where size does not matter. */
+  perMmMinutes: z.number({ error: 'must be a number' }).min(0, 'must not be negative').max(60, 'must be at most 60').default(0),
+  /** Factor on the per-stone minutes by the stones' size band; a band left out counts 1. */
+  sizeBandFactors: z.strictObject({ melee: bandFactor.optional(), small: bandFactor.optional(), large: bandFactor.optional() }, { error: 'only melee, small and large have factors' }).default({}),
   requiredLevel: z.number().int().min(1, 'must be 1, 2 or 3').max(3, 'must be 1, 2 or 3').default(1),
   waitAfterMinutes: z.number().int().min(0, 'must not be negative').max(10080, 'must be at most a week').default(0),
   /** Outside work (casting, hallmarking): working days away, no bench. */
@@ -17,7 +23,15 @@ export const stepInput = z.object({
   after: z.array(z.string()).max(20).default([]),
 })
 export const templateInput = z
-  .object({ code, name, description: notes, steps: z.array(stepInput).min(1, 'needs at least one step').max(40, 'has too many steps') })
+  .object({
+    code, name, description: notes,
+    /**
+     * Production runs: the share of the time per piece left after each doubling of the quantity (0.85: 40 pieces take
+     * 12 × 40^(1 + log₂ 0.85) minutes where one takes 12); null = every piece takes the same time.
+     */
+    learningRate: z.number({ error: 'must be a number or empty' }).gt(0.5, 'must be above 0.5 (50 %)').max(1, 'must be at most 1 (100 %)').nullable().default(null),
+    steps: z.array(stepInput).min(1, 'needs at least one step').max(40, 'has too many steps'),
+  })
   .superRefine((t, ctx) => {
     const keys = new Set<string>()
     t.steps.forEach((s, i) => {
@@ -47,4 +61,4 @@ export type TemplateInput = z.infer<typeof templateInput>
 export interface TemplateStep extends StepInput { id: number }
 export type { TemplateWarning } from '../domain/template-warnings'
 /** `warnings`: what the step graph allows that is probably not meant (shared/domain/template-warnings.ts); saving is still allowed. */
-export interface Template { id: number; code: string; name: string; description: string; steps: TemplateStep[]; version: number; warnings: TemplateWarning[] }
+export interface Template { id: number; code: string; name: string; description: string; learningRate: number | null; steps: TemplateStep[]; version: number; warnings: TemplateWarning[] }

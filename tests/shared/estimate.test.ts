@@ -6,7 +6,7 @@ import jstatPkg from 'jstat'
 import { describe, expect, it } from 'vitest'
 import {
   learningExponent, leastSquares, median, medianAbsoluteDeviation, pertMean, pertVariance, quantile, ratioOfMedians, sizeBandFactor, sizeBandOf,
-  stepMinutes, templateEstimate, theilSen, threePointEstimate, unitCurveTime, unitCurveTotal, unitMinutes, wrightCumulativeAverage, wrightMarginalUnit, wrightTotal,
+  routingStepMinutes, stepMinutes, theilSen, threePointEstimate, unitCurveTime, unitCurveTotal, unitMinutes, wrightCumulativeAverage, wrightMarginalUnit, wrightTotal,
   type Point,
 } from '../../shared/domain/estimate'
 
@@ -76,10 +76,19 @@ describe("Wright's learning curve", () => {
 describe('the step model', () => {
   const params = { stoneCount: 18, stoneSizeMm: 1.3, sizeMm: 22, quantity: 2 }
 
-  it('when only base and per-stone minutes are known, then it equals the template estimate', () => {
+  it('when only base and per-stone minutes are known, then it is (base + per-stone × stones) × quantity', () => {
     // Hand-computed: (30 + 7 × 18) × 2 = 312 (seeded pavé setting step; common practice, no source).
     expect(stepMinutes({ baseMinutes: 30, perStoneMinutes: 7 }, params)).toBe(312)
-    expect(templateEstimate({ baseMinutes: 30, perStoneMinutes: 7 }, params)).toBe(312)
+    expect(routingStepMinutes({ baseMinutes: 30, perStoneMinutes: 7, perMmMinutes: 0, sizeBandFactors: {} }, { learningRate: null }, params)).toBe(312)
+  })
+
+  it('when a routing has a learning rate, then only a job bag of more than one piece follows the curve', () => {
+    const step = { baseMinutes: 12, perStoneMinutes: 0, perMmMinutes: 0, sizeBandFactors: {} }
+    const one = { stoneCount: 0, stoneSizeMm: 0, sizeMm: 0, quantity: 1 }
+    expect(routingStepMinutes(step, { learningRate: 0.85 }, one)).toBe(12)
+    // Two pieces at 85 % (Wright 1936): 2 × 12 × 0.85 = 20.4, against 24 without a curve.
+    expect(routingStepMinutes(step, { learningRate: 0.85 }, { ...one, quantity: 2 })).toBeCloseTo(20.4, 9)
+    expect(routingStepMinutes(step, { learningRate: null }, { ...one, quantity: 2 })).toBe(24)
   })
 
   it('when stones are banded by size, then the band factor scales the per-stone minutes', () => {

@@ -1,4 +1,5 @@
-// The owner keeps the workshop's address, contact and currency on the settings page; customers' e-mails carry them.
+// The owner keeps the workshop's address, contact, currency and the address tablets open on the settings page; customers' e-mails and job tickets carry them.
+import { networkInterfaces } from 'node:os'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { BrowserContext, Page } from 'playwright-core'
 import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
@@ -33,5 +34,31 @@ describe('workshop contact in the settings', () => {
     const { rows: [w] } = await e2e.db.pool.query(`select phone, currency, address from workshops where id = 1`)
     expect(w).toEqual({ phone: '0117 496 0999', currency: 'GBP', address: '14 Wrenfield Street, Bristol BS1 4QX' })
     await screenshot(page, 'settings-workshop-contact', { fullPage: false })
+  })
+
+  it('when the owner saves the address tablets open, then the page offers this machine’s address first, refuses one with a path on its field, and reads the saved one back after a reload', async () => {
+    await page.goto('/settings')
+    await field('settings-public-url').waitFor()
+    // The suggestion: this machine's first network IPv4 address (os.networkInterfaces, read here) and the port the test server listens on.
+    const ip = Object.values(networkInterfaces()).flat().find((a) => a && a.family === 'IPv4' && !a.internal)?.address
+    const port = new URL(e2e.url).port
+    const hint = page.locator('[data-test=settings-public-url-hint]')
+    if (ip) await expect.poll(() => page.locator('[data-test=settings-public-url-suggestion]').textContent(), { timeout: 10_000 }).toBe(`http://${ip}:${port}`)
+    else await hint.filter({ hasText: 'the address they were printed from' }).waitFor()
+    // The test server listens on 127.0.0.1 only (HOST default), so the page says tablets cannot reach it yet.
+    await hint.filter({ hasText: 'HOST=0.0.0.0' }).waitFor()
+    await expect.poll(() => field('settings-public-url').inputValue(), { timeout: 10_000 }).toBe('')
+    await field('settings-public-url').fill('http://192.0.2.44:8080/millgrain')
+    await page.locator('[data-test=settings-save]').click()
+    await page.locator('[data-test=settings-workshop] .el-form-item__error', { hasText: /address with no path/ }).waitFor()
+    // A TEST-NET address (RFC 5737): saved and read back, never contacted.
+    await field('settings-public-url').fill('http://192.0.2.44:8080/')
+    await page.locator('[data-test=settings-save]').click()
+    await page.locator('.el-message', { hasText: 'Workshop details saved' }).waitFor()
+    const { rows: [w] } = await e2e.db.pool.query(`select public_url from workshops where id = 1`)
+    expect(w.public_url).toBe('http://192.0.2.44:8080')
+    await page.reload()
+    await expect.poll(() => field('settings-public-url').inputValue(), { timeout: 10_000 }).toBe('http://192.0.2.44:8080')
+    await screenshot(page, 'settings-workshop-public-url', { fullPage: false })
   })
 })

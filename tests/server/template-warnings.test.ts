@@ -19,6 +19,7 @@ describe('routing warnings', () => {
     const all = (await manager.get('/api/templates')).body as Template[]
     expect(all.length).toBeGreaterThanOrEqual(10)
     const outside = new Set(Object.values(kinds).filter((k) => k.outside).map((k) => k.id))
+    expect(all.filter((r) => r.steps.length > 1).length, 'demo routings of several steps').toBeGreaterThanOrEqual(5)
     for (const r of all) {
       expect(r.warnings, r.code).toEqual([])
       expect(templateWarnings(r.steps, (k) => outside.has(k)), r.code).toEqual([])

@@ -87,8 +87,20 @@ describe('one time format in every answer', () => {
     const agent = r.path.startsWith('/bench/') ? bench : roles.includes('owner') ? owner : roles.includes('manager') ? manager : bench
     const res = await agent.get(pathOf(r.path))
     expect(res.status, `${r.path} → ${res.status} ${JSON.stringify(res.body).slice(0, 300)}`).toBe(200)
-    if (!res.type.includes('json')) return expect(res.type).toMatch(/csv|text/)
-    expect(offenders(res.body)).toEqual([])
+    // JSON: every string in it; CSV: every cell (a spreadsheet reads a moment written another way as text or as local time).
+    const cells = (text: string) => text.split(/\r?\n/).flatMap((line) => line.split(',')).map((c) => c.replace(/^"|"$/g, ''))
+    expect(res.type).toMatch(/json|csv/)
+    expect(offenders(res.type.includes('json') ? res.body : cells(res.text))).toEqual([])
+  })
+
+  it('when the records behind a row are downloaded as CSV, then their moments are ISO 8601 with an offset too', async () => {
+    const res = await owner.get(`/api/insights/records?groupBy=kind&key=${ids.kindKey}&format=csv`)
+    expect(res.status, res.text.slice(0, 300)).toBe(200)
+    expect(res.type).toMatch(/csv/)
+    const cells = res.text.split(/\r?\n/).flatMap((line) => line.split(',')).map((c) => c.replace(/^"|"$/g, ''))
+    // Not vacuous: the records carry their start and end moments.
+    expect(cells.filter((c) => LOOKS_LIKE_MOMENT.test(c)).length).toBeGreaterThan(0)
+    expect(offenders(cells)).toEqual([])
   })
 
   it('when the setter claims a step, then the answer carries ISO 8601 moments', async () => {

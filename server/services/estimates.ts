@@ -1,7 +1,7 @@
 // Learning estimates from actual times: finished work with its actual minutes, robust fits per kind and step, people's speed, accepted suggestions.
 import { and, asc, desc, eq, gte, inArray, isNotNull, lt } from 'drizzle-orm'
 import {
-  median, medianAbsoluteDeviation, quantile, ratioOfMedians, sizeBandOf, SIZE_BANDS, theilSen, threePointEstimate, type Point, type SizeBand,
+  median, medianAbsoluteDeviation, quantile, ratioOfMedians, routingStepMinutes, sizeBandOf, SIZE_BANDS, theilSen, threePointEstimate, type Point, type SizeBand,
 } from '../../shared/domain/estimate'
 import type { PieceParams } from '../../shared/schemas/order'
 import type {
@@ -224,10 +224,14 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
       if (!kind) continue
       const mine = ops.filter((o) => o.templateId === t.id && o.key === s.key)
       const points = mine.map((o) => ({ x: o.params.stoneCount, y: standardUnitMinutes(o) }))
-      const ratios = mine.map((o, i) => points[i]!.y / Math.max(0.1, s.baseMinutes + s.perStoneMinutes * o.params.stoneCount))
+      // Actual (at standard speed) against what the routing's whole step model gives for that job bag.
+      const ratios = mine.map((o) => (o.actualMinutes * o.speed) / Math.max(0.1, routingStepMinutes(s, t, o.params)))
       const thin = mine.length < MIN_HISTORY
+      // The fit below learns base and per-stone minutes only: a step that also counts the piece's size, stone size bands or a
+      // learning curve would get a figure that leaves those out, so it is not offered one.
+      const unfitted = s.perMmMinutes > 0 || Object.keys(s.sizeBandFactors ?? {}).length > 0 || t.learningRate !== null
       let suggested: StepSuggestion['suggested'] = null
-      if (!thin) {
+      if (!thin && !unfitted) {
         const fit = fitStep(s, points)
         const next = { baseMinutes: halfMinute(fit.baseMinutes), perStoneMinutes: halfMinute(fit.perStoneMinutes * 2) / 2 }
         // Change at the typical stone count of the history.
@@ -245,7 +249,7 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
       }
       suggestions.push({
         templateId: t.id, templateName: t.name, templateVersion: t.version, stepKey: s.key, stepName: s.name, kindId: kind.id, kind: kind.name,
-        current: { baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes }, suggested, thin, history: historyOf(mine, ratios),
+        current: { baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes }, suggested, thin, unfitted: unfitted && !thin, history: historyOf(mine, ratios),
       })
     }
   }

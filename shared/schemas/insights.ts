@@ -169,6 +169,8 @@ export interface StepSuggestion {
   /** null when history is thin (n < 5: use a three-point estimate) or the template already fits. */
   suggested: { baseMinutes: number; perStoneMinutes: number; method: 'theil-sen' | 'ratio-of-medians'; changePct: number } | null
   thin: boolean
+  /** Enough history, but the step's minutes also count the piece's size, stone size bands or the routing's learning curve, which the fit leaves out: no figure offered. */
+  unfitted: boolean
   history: History
 }
 export interface LearnedEstimates { asOf: string; kinds: KindFigure[]; people: PersonFigure[]; steps: StepSuggestion[] }

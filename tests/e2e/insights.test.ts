@@ -124,6 +124,11 @@ describe('insights as the owner', () => {
     expect(s, 'the seeded history offers a suggestion').toBeTruthy()
     expect(s.stepName).not.toBe(s.stepKey)
     const minutes = s.suggested!.perStoneMinutes ? `${s.suggested!.baseMinutes} + ${s.suggested!.perStoneMinutes}/stone` : `${s.suggested!.baseMinutes} min`
+    // Steps whose minutes also count size, stone bands or a learning curve get no figure, and the screen says which (seed: the cuff's polishing counts its length).
+    const unfitted = learned.steps.filter((x) => (x as S & { unfitted: boolean }).unfitted)
+    expect(unfitted.map((x) => x.stepName)).toContain('Polish highlights')
+    for (const u of unfitted) expect(u.suggested).toBeNull()
+    expect(await page.locator('[data-test=insights-unfitted]').textContent()).toContain('Polish highlights in Etched cuff')
     const row = page.locator('[data-test=insights-suggestions] .el-table__body .el-table__row').first()
     await row.scrollIntoViewIfNeeded()
     expect(await row.locator('td').first().textContent()).toContain(s.stepName)

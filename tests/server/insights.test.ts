@@ -276,6 +276,22 @@ describe('learning from actual times', () => {
     expect(kind.history.from <= kind.history.to).toBe(true)
   })
 
+  it('when a step also counts the piece’s size, then no figure is suggested and its history is measured against the whole step model', async () => {
+    // A routing step of 10 min + 0.1 min per mm; pieces of 100 mm → 10 + 10 = 20 min each (hand-computed). Priya saws at speed 1.0 (seed).
+    const tpl = await manager.post('/api/templates', { code: 'per-mm-fixture', name: 'Fixture: sawn by length', steps: [{ key: 'saw', kindId: kinds.sawing, name: 'Saw to length', baseMinutes: 10, perMmMinutes: 0.1 }] })
+    expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
+    const customerId = (await q(`select min(id) as id from customers`)).rows[0].id
+    for (let i = 0; i < 5; i++) {
+      const o = await manager.post('/api/orders', { customerId, title: `Per-mm fixture ${i}`, dueDate: '2030-06-30', pieces: [{ templateId: tpl.body.id, piece: 'Bar', params: { sizeMm: 100 } }] })
+      const ops = await opsOf(o.body.id)
+      const day = `2030-06-${String(3 + i).padStart(2, '0')}`
+      await finish(ops.saw!, 20, at(day, '10:00'), [{ person: 'Priya', start: at(day, '09:36'), minutes: 24 }])
+    }
+    const s = (await owner.get('/api/estimates/learned')).body.steps.find((x: { templateId: number }) => x.templateId === tpl.body.id)
+    // Every job took 24 min against the model's 20: actual ÷ routing = 1.2 (against the base alone it would read 2.4 and suggest +140 %).
+    expect(s).toMatchObject({ thin: false, unfitted: true, suggested: null, history: { n: 5, spread: { q1: 1.2, median: 1.2, q3: 1.2 } } })
+  })
+
   it('when setting history has overnight outliers, then the learned per-stone minutes stay on the true rate', async () => {
     // A routing whose template is wrong on purpose (10 + 4 per stone); the true work is 20 + 6 per stone at standard speed.
     const tpl = await manager.post('/api/templates', { code: 'outlier-fixture', name: 'Fixture: pavé with outliers', steps: [{ key: 'set', kindId: kinds.setting, name: 'Set pavé', baseMinutes: 10, perStoneMinutes: 4 }] })

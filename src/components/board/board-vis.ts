@@ -13,7 +13,7 @@ dayjs.extend(isoWeek)
 export type RowsBy = 'bench' | 'person'
 export type ColourBy = 'kind' | 'state' | 'order'
 export type Zoom = 'day' | 'week' | 'month'
-export type BarState = 'planned' | 'claimed' | 'running' | 'paused' | 'late'
+export type BarState = 'planned' | 'claimed' | 'running' | 'paused' | 'late' | 'done'
 
 export const OUTSIDE_GROUP = 'outside'
 export const UNASSIGNED_GROUP = 'unassigned'
@@ -25,6 +25,7 @@ export const STATE_COLOURS: Record<BarState, { bg: string; label: string }> = {
   running: { bg: '#4d7a5a', label: 'Running' },
   paused: { bg: '#b58a2f', label: 'Paused' },
   late: { bg: '#a8473a', label: 'Late' },
+  done: { bg: '#a39a8f', label: 'Finished' },
 }
 
 export interface TimelineGroup {
@@ -133,6 +134,7 @@ export function groupsFor(data: Pick<BoardData, 'benches' | 'people' | 'items'>,
 }
 
 export function barState(item: Pick<BoardItem, 'status' | 'late'>): BarState {
+  if (item.status === 'done') return 'done'
   if (item.status === 'running') return 'running'
   if (item.status === 'paused') return 'paused'
   if (item.late) return 'late'
@@ -176,6 +178,8 @@ export interface BarOptions {
   moved?: Map<number, PlanMove['change']>
   /** Job risk by job bag, to outline the bars of jobs at risk. */
   jobStates?: Map<number, JobState>
+  /** A job bag found by the search: its bars stand out, the rest dim. */
+  foundJobBagId?: number | null
 }
 
 /** A bar may be dragged by the manager on the live plan unless it is being worked on or finished. */
@@ -196,6 +200,8 @@ export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
   if (change) classes.push('board-bar--moved', `board-bar--moved-${change.includes('new') ? 'new' : 'shift'}`)
   const drag = isDraggable(item, o.canEdit)
   if (!drag) classes.push('board-bar--fixed')
+  if (item.actual) classes.push('board-bar--actual')
+  if (o.foundJobBagId != null) classes.push(item.jobBagId === o.foundJobBagId ? 'board-bar--found' : 'board-bar--dimmed')
   return {
     id: item.id,
     group: groupOf(item, o.rowsBy),
@@ -275,4 +281,94 @@ export function formatSpan(start: string, end: string, tz: string): string {
   const a = dayjs(parseInstant(start)).tz(tz)
   const b = dayjs(parseInstant(end)).tz(tz)
   return a.format('YYYY-MM-DD') === b.format('YYYY-MM-DD') ? `${a.format('ddd D MMM HH:mm')}–${b.format('HH:mm')}` : `${a.format('ddd D MMM HH:mm')} – ${b.format('ddd D MMM HH:mm')}`
+}
+
+/** Whole minutes as "3 h 10 min" (rounded to the minute). */
+const wholeMinutes = (min: number) => formatMinutes(Math.round(min))
+
+/**
+ * Plan against what happened, in one line: "Finished Wed 2 Dec 12:20 · worked 2 h 50 min against 2 h 30 min estimated",
+ * "Running since Wed 2 Dec 09:10 · worked 1 h 20 min so far of 2 h 30 min estimated"; null for work not started.
+ * Worked minutes are the sum of the time records (breaks between them not counted).
+ */
+export function actualSummary(item: Pick<BoardItem, 'status' | 'actual' | 'estimateMinutes' | 'outside'>, tz: string): string | null {
+  const a = item.actual
+  if (!a) return null
+  if (!a.fromRecords) return a.end ? `Back ${formatWhen(a.end, tz)} · sent out ${formatWhen(a.start, tz)}` : `Sent out ${formatWhen(a.start, tz)}`
+  const against = item.estimateMinutes > 0 ? ` against ${wholeMinutes(item.estimateMinutes)} estimated` : ''
+  if (a.end) return `Finished ${formatWhen(a.end, tz)} · worked ${wholeMinutes(a.workedMinutes)}${against}`
+  return `Running since ${formatWhen(a.start, tz)} · worked ${wholeMinutes(a.workedMinutes)} so far${item.estimateMinutes > 0 ? ` of ${wholeMinutes(item.estimateMinutes)} estimated` : ''}`
+}
+
+/** The actual stretch as "Wed 2 Dec 09:10–12:20", or "since Wed 2 Dec 09:10" while running. */
+export function actualSpan(item: Pick<BoardItem, 'actual'>, tz: string): string | null {
+  const a = item.actual
+  if (!a) return null
+  return a.end ? formatSpan(a.start, a.end, tz) : `since ${formatWhen(a.start, tz)}`
+}
+
+/** Minutes between two instants, e.g. a planned span's clock length. */
+export const minutesBetween = (a: string, b: string) => Math.round((parseInstant(b).getTime() - parseInstant(a).getTime()) / 60_000)
+
+export interface JobBagHit {
+  jobBagId: number
+  number: string
+  piece: string
+  customerName: string
+  orderNumber: string
+  /** Bars of the job bag in the loaded weeks. */
+  bars: number
+}
+
+/** Job bags on the board (bars or jobs list) whose number, order number or customer's name holds the words typed. */
+export function searchJobBags(data: Pick<BoardData, 'items' | 'jobs'>, query: string): JobBagHit[] {
+  const words = query.trim().toLowerCase().split(/\s+/).filter(Boolean)
+  if (!words.length) return []
+  const bags = new Map<number, JobBagHit>()
+  for (const i of data.items) {
+    const b = bags.get(i.jobBagId) ?? { jobBagId: i.jobBagId, number: i.jobBagNumber, piece: i.piece, customerName: i.customerName, orderNumber: i.orderNumber, bars: 0 }
+    b.bars++
+    bags.set(i.jobBagId, b)
+  }
+  for (const j of data.jobs) if (!bags.has(j.jobBagId)) bags.set(j.jobBagId, { jobBagId: j.jobBagId, number: j.number, piece: j.piece, customerName: j.customerName, orderNumber: j.orderNumber, bars: 0 })
+  const hay = (b: JobBagHit) => `${b.number} ${b.orderNumber} ${b.customerName}`.toLowerCase()
+  return [...bags.values()]
+    .filter((b) => words.every((w) => hay(b).includes(w)))
+    // Number matches first, then by number.
+    .sort((a, b) => Number(!a.number.toLowerCase().includes(words[0]!)) - Number(!b.number.toLowerCase().includes(words[0]!)) || a.number.localeCompare(b.number))
+}
+
+/** Keyboard steps for a selected bar: arrows move it by this many minutes, with Shift by the larger step. */
+export const KEY_STEP_MINUTES = 15
+export const KEY_SHIFT_STEP_MINUTES = 60
+
+export type KeyMove = { body: MoveInput; what: string } | { refused: string } | null
+
+/**
+ * The move a key asks for on the selected bar: ←/→ earlier/later by 15 min (Shift: an hour), ↑/↓ to the previous/next
+ * row that can take the step (a bench equipped for its kind, or a person skilled for it at its level). Null: not a moving key.
+ */
+export function keyMove(item: BoardItem, key: string, shift: boolean, data: Pick<BoardData, 'benches' | 'people'>, rowsBy: RowsBy): KeyMove {
+  if (!['ArrowLeft', 'ArrowRight', 'ArrowUp', 'ArrowDown'].includes(key)) return null
+  if (item.status === 'done') return { refused: `“${item.name}” is finished; finished work stays where it happened.` }
+  if (!isDraggable(item, true)) return { refused: `“${item.name}” is being worked on at the bench; it cannot be moved.` }
+  if (key === 'ArrowLeft' || key === 'ArrowRight') {
+    const step = (shift ? KEY_SHIFT_STEP_MINUTES : KEY_STEP_MINUTES) * (key === 'ArrowLeft' ? -1 : 1)
+    const start = new Date(parseInstant(item.start).getTime() + step * 60_000)
+    return { body: { start: start.toISOString(), version: item.version }, what: `${formatMinutes(Math.abs(step))} ${step < 0 ? 'earlier' : 'later'}` }
+  }
+  if (item.outside) return { refused: `“${item.name}” is outside work; it has no bench or person row.` }
+  const dir = key === 'ArrowUp' ? -1 : 1
+  const rows = rowsBy === 'bench'
+    ? data.benches.map((b) => ({ id: b.id, name: b.name, fits: b.kinds.includes(item.kind) }))
+    : data.people.map((p) => ({ id: p.id, name: p.name, fits: (p.skills[item.kind] ?? 0) >= item.requiredLevel }))
+  const current = rowsBy === 'bench' ? item.benchId : item.personId
+  const at = rows.findIndex((r) => r.id === current)
+  for (let i = at + dir; i >= 0 && i < rows.length; i += dir) {
+    const r = rows[i]!
+    if (!r.fits || r.id === current) continue
+    return { body: { ...(rowsBy === 'bench' ? { benchId: r.id } : { personId: r.id }), version: item.version }, what: `to ${r.name}` }
+  }
+  const where = rowsBy === 'bench' ? 'bench equipped for' : 'person skilled for'
+  return { refused: `No ${key === 'ArrowUp' ? 'earlier' : 'later'} row has a ${where} ${item.kindName.toLowerCase()}.` }
 }

@@ -345,10 +345,10 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
         const bench = where[Math.floor(rand() * where.length)]
         // A step nobody in the demo can do (or no bench can host) is left out of the finished job, not finished by no one.
         if (!person || !bench) { skipped.push(op.id); continue }
-        // Actual = estimate ÷ speed × noise (log-normal-ish), with an occasional job that went badly and took hours more.
+        // Actual = estimate ÷ speed × noise (log-normal-ish), with an occasional job that went badly and took two to four times as long.
         const noise = Math.exp((rand() + rand() + rand() - 1.5) * 0.35) * 1.08
         let actual = (op.estimateMinutes / person.skill![2]) * noise
-        if (rand() < 0.03) actual += 300 + rand() * 400
+        if (rand() < 0.03) actual *= 2 + rand() * 2
         actual = Math.max(3, Math.round(actual))
         const pieces = book(person.id, bench.id, ready, actual)
         if (!pieces) { fits = false; break }

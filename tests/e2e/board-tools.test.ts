@@ -80,7 +80,7 @@ describe('the manager\'s board tools', () => {
     // The finished bar: hatched, not draggable, at the times the database holds.
     const done = manager.locator(`.vis-item.board-bar[data-id="${op.id}"]`)
     await done.waitFor({ state: 'attached' })
-    await expect.poll(async () => (await boxOf(manager, op.id)) !== null, { timeout: 10_000 }).toBe(true)
+    await expect.poll(async () => (await boxOf(manager, op.id)) !== null, { timeout: 20_000, interval: 250 }).toBe(true)
     await expect(done.getAttribute('class')).resolves.toMatch(/board-bar--done.*board-bar--fixed|board-bar--fixed.*board-bar--done/)
     const { rows: [rec] } = await pool.query(`select min(started_at) as first, max(ended_at) as last, sum(extract(epoch from ended_at - started_at) / 60)::int as minutes from time_records where operation_id = $1`, [op.id])
     // 95 + 75 = 170 min worked (hand-worked from the two records above); the database must agree.

@@ -9,6 +9,7 @@ import { invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { sendReadyNotice } from './mail'
+import { requireCustomerStonesBack } from './stones'
 import { requireOwned, updateVersioned } from './versioned'
 
 /** ILIKE pattern for "contains", with the user's % and _ taken literally. */
@@ -88,6 +89,7 @@ export async function updateOrder(deps: Deps, actor: Actor, id: number, input: O
   const { version, ...values } = input
   let becameReady = false
   const o = await db.transaction(async (tx) => {
+    if (values.status) await requireCustomerStonesBack(tx, actor.workshopId, id, values.status)
     const [before] = values.status === 'ready' ? await tx.select({ status: orders.status }).from(orders).where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId))) : []
     const o = await updateVersioned(tx, orders, 'Order', { id, workshopId: actor.workshopId, version, values: { ...values, updatedAt: new Date() } })
     await audit(tx, actor, 'update', 'order', id, values)

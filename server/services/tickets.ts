@@ -8,6 +8,8 @@ import type { Db } from '../db/client'
 import { benches, workshops } from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import { getJobBag } from './job-bags'
+import { customerStoneWords } from './stones'
+import { ringSizeWords, type RingSizeInput } from '../../shared/domain/ring-size'
 
 /** The link a ticket's QR code opens: the job bag's page in the app. */
 export const jobBagLink = (origin: string, jobBagId: number) => `${origin.replace(/\/+$/, '')}/job-bags/${jobBagId}`
@@ -72,6 +74,9 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
   ]
   const p = bag.params as { metal?: string; quantity?: number; stoneCount?: number }
   facts.push(['Metal / qty', `${p.metal ? metalName(p.metal) : '—'} · ${p.quantity ?? 1}${p.stoneCount ? ` · ${p.stoneCount} stones` : ''}`])
+  const rs = bag.params as { ringSize?: RingSizeInput; resizeFrom?: RingSizeInput; resizeTo?: RingSizeInput }
+  if (rs.ringSize) facts.push(['Ring size', ringSizeWords(rs.ringSize)])
+  if (rs.resizeFrom || rs.resizeTo) facts.push(['Resize', `from ${rs.resizeFrom ? ringSizeWords(rs.resizeFrom) : '—'} to ${rs.resizeTo ? ringSizeWords(rs.resizeTo) : '—'}`])
   for (const [k, v] of facts) {
     const y = doc.y
     doc.font('Helvetica').fontSize(fs(7)).fillColor('#555').text(k, m, y, { width: 56 })
@@ -80,6 +85,13 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
   doc.y = Math.max(doc.y, m + qrSize + 2)
   doc.font('Helvetica').fontSize(fs(6)).fillColor('#555').text('Scan to open this job bag', w - m - qrSize, m + qrSize - 6, { width: qrSize, align: 'center' })
   doc.y = Math.max(doc.y, m + qrSize + 8)
+
+  // The customer's own stones, to be checked back with them at collection.
+  const ownStones = await customerStoneWords(db, jobBagId)
+  if (ownStones.length) {
+    doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text(`Customer's stones (check back at collection): ${ownStones.join('; ')}`, m, doc.y, { width: w - 2 * m })
+    doc.moveDown(0.3)
+  }
 
   // Routing checklist.
   doc.moveTo(m, doc.y).lineTo(w - m, doc.y).lineWidth(0.7).strokeColor('#000').stroke()

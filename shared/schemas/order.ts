@@ -2,6 +2,7 @@
 import { z } from 'zod'
 import { ORDER_STATUSES } from '../domain/status'
 import { id, isoDate, name, notes, version } from './common'
+import { RING_SCALES, ringSizeToIso } from '../domain/ring-size'
 
 export const METALS = ['silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950', 'brass', 'copper', 'mixed'] as const
 /** What each metal is called on screen and on paper (the code above is only stored). */
@@ -11,6 +12,12 @@ export const METAL_NAMES: Record<(typeof METALS)[number], string> = {
 }
 /** The name of a stored metal code; an unknown code is shown as it is. */
 export const metalName = (code: string): string => (METAL_NAMES as Record<string, string>)[code] ?? code
+/** A ring size as the customer gave it (ISO 8653 mm, US/Canada number or UK/Australia letter); the others are worked out from it. */
+export const ringSizeInput = z.object({
+  scale: z.enum(RING_SCALES, { error: 'must be iso, us or uk' }),
+  value: z.string().trim().min(1, 'is required').max(12),
+}).refine((r) => ringSizeToIso(r) !== null, { message: 'is not a size in that scale (ISO 36–80 mm, US 0–16, UK A–Z½)', path: ['value'] })
+export type RingSizeValue = z.infer<typeof ringSizeInput>
 export const pieceParams = z.object({
   metal: z.enum(METALS, { error: 'must be one of the listed metals' }).default('silver-925'),
   stoneCount: z.number().int().min(0, 'must not be negative').max(2000, 'must be at most 2000').default(0),
@@ -18,6 +25,11 @@ export const pieceParams = z.object({
   sizeMm: z.number().min(0).max(300, 'must be at most 300 mm').default(0),
   finish: z.string().trim().max(60).default('polished'),
   quantity: z.number().int().min(1, 'must be at least 1').max(500).default(1),
+  /** The ring's size, in the scale the customer gave it. */
+  ringSize: ringSizeInput.optional(),
+  /** A resize: the size the ring was and the size it is to be. */
+  resizeFrom: ringSizeInput.optional(),
+  resizeTo: ringSizeInput.optional(),
 })
 export const pieceInput = z.object({ templateId: id, piece: name, params: pieceParams.default(pieceParams.parse({})) })
 export const orderInput = z.object({

@@ -131,6 +131,14 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   'GET /files/:id': ALL,
   'GET /files/:id/thumbnail': ALL,
   'DELETE /files/:id': STAFF,
+  // stones: everyone reads the list; the front office and managers keep it; the setter and managers count stones out and back; managers correct counts; the front office hands a customer's stones back
+  'GET /job-bags/:id/stones': ALL,
+  'POST /job-bags/:id/stones': FRONT,
+  'PATCH /stones/:id': FRONT,
+  'DELETE /stones/:id': FRONT,
+  'POST /stones/:id/movements': WORKERS,
+  'POST /stone-movements/:id/corrections': STAFF,
+  'POST /stones/:id/check-back': FRONT,
 }
 
 /** Bodies for routes where an empty body would start long work; every other write gets {}. */
@@ -158,6 +166,8 @@ const ID_SOURCES: Record<string, string> = {
   operations: "select min(id) as id from operations where status = 'ready'",
   'time-records': 'select min(id) as id from time_records',
   plans: 'select min(id) as id from plan_versions',
+  stones: 'select min(id) as id from job_bag_stones',
+  'stone-movements': 'select min(id) as id from stone_movements',
 }
 const ids: Record<string, number> = {}
 

@@ -1,0 +1,110 @@
+// Stones: carat estimates for round brilliants, the count reconciliation of stones issued to the setter, and the setting step's minutes from a piece's stone list.
+import { sizeBandFactor, wrightTotal, type RoutingModel, type RoutingStepModel } from './estimate'
+import type { PieceParams } from '../schemas/order'
+
+export const STONE_ROLES = ['centre', 'side', 'halo', 'pave'] as const
+export type StoneRole = (typeof STONE_ROLES)[number]
+export const STONE_ROLE_LABELS: Record<StoneRole, string> = { centre: 'Centre', side: 'Side', halo: 'Halo', pave: 'Pavé' }
+
+/** Counted movements the setter (or the bench) records; 'checked-back' is the customer's own stones handed back at collection. */
+export const STONE_COUNT_KINDS = ['issued', 'set', 'returned', 'broken', 'lost'] as const
+export type StoneCountKind = (typeof STONE_COUNT_KINDS)[number]
+export const STONE_MOVEMENT_KINDS = [...STONE_COUNT_KINDS, 'checked-back'] as const
+export type StoneMovementKind = (typeof STONE_MOVEMENT_KINDS)[number]
+export const STONE_MOVEMENT_LABELS: Record<StoneMovementKind, string> = {
+  issued: 'Given to the setter', set: 'Set in the piece', returned: 'Back unused', broken: 'Broken', lost: 'Lost', 'checked-back': 'Handed back to the customer',
+}
+
+// ---------------------------------------------------------------------------------------------------------------
+// Carat estimates (round brilliant cut)
+
+/** The weight formula's constant for round brilliants, with diameter and depth in mm. */
+export const ROUND_BRILLIANT_FACTOR = 0.0061
+/** A slightly thick girdle adds about 2 %. */
+export const THICK_GIRDLE_FACTOR = 1.02
+/**
+ * Depth assumed when only the diameter is known: total depth 60 % of the diameter, a usual proportion of a well-cut round
+ * brilliant (common practice, no source). We estimate from this depth ratio, not from a size table.
+ */
+export const ASSUMED_DEPTH_RATIO = 0.6
+
+/** carat ≈ diameter² × depth × 0.0061 (mm), × 1.02 for a slightly thick girdle. */
+export function caratFromDiameterAndDepth(diameterMm: number, depthMm: number, o: { thickGirdle?: boolean } = {}): number {
+  if (!(diameterMm > 0) || !(depthMm > 0)) return 0
+  return diameterMm * diameterMm * depthMm * ROUND_BRILLIANT_FACTOR * (o.thickGirdle ? THICK_GIRDLE_FACTOR : 1)
+}
+
+/** From the diameter alone, with the assumed depth ratio. Melee (below 1.5 mm) comes out light: treat it as rough. */
+export function caratFromDiameter(diameterMm: number): number {
+  return caratFromDiameterAndDepth(diameterMm, diameterMm * ASSUMED_DEPTH_RATIO)
+}
+
+/** Carats shown to people: three decimals below 0.1 ct, two above. */
+export function roundCarat(ct: number): number {
+  return ct < 0.1 ? Math.round(ct * 1000) / 1000 : Math.round(ct * 100) / 100
+}
+
+/** Only round stones get an estimate from their size; other shapes need their weight entered. */
+export const canEstimateCarat = (shape: string) => shape.trim().toLowerCase() === 'round'
+
+// ---------------------------------------------------------------------------------------------------------------
+// Reconciliation: issued = set + returned + broken + lost
+
+export interface StoneCounts { issued: number; set: number; returned: number; broken: number; lost: number; checkedBack: number }
+export interface Reconciliation extends StoneCounts {
+  /** set + returned + broken + lost */
+  accounted: number
+  /** issued − accounted: above 0 stones not yet counted back, below 0 more counted back than were given out. */
+  difference: number
+  balanced: boolean
+}
+
+export const emptyCounts = (): StoneCounts => ({ issued: 0, set: 0, returned: 0, broken: 0, lost: 0, checkedBack: 0 })
+
+/** Sums signed movements (corrections included) by kind. */
+export function countsOf(movements: readonly { kind: string; count: number }[]): StoneCounts {
+  const c = emptyCounts()
+  for (const m of movements) {
+    if (m.kind === 'checked-back') c.checkedBack += m.count
+    else if ((STONE_COUNT_KINDS as readonly string[]).includes(m.kind)) c[m.kind as StoneCountKind] += m.count
+  }
+  return c
+}
+
+export function reconcile(c: StoneCounts): Reconciliation {
+  const accounted = c.set + c.returned + c.broken + c.lost
+  const difference = c.issued - accounted
+  return { ...c, accounted, difference, balanced: difference === 0 }
+}
+
+/** How many of a customer's own stones go back to them at collection: the line's count less those broken or lost. */
+export const toHandBack = (lineCount: number, c: StoneCounts) => Math.max(0, lineCount - c.broken - c.lost)
+
+/** In words, for the page and the bench: "2 not counted back" / "1 more counted back than given out" / "all counted". */
+export function differenceWords(r: Pick<Reconciliation, 'difference'>): string {
+  if (r.difference === 0) return 'all counted'
+  if (r.difference > 0) return `${r.difference} not counted back`
+  return `${-r.difference} more counted back than given out`
+}
+
+// ---------------------------------------------------------------------------------------------------------------
+// Setting minutes from the stone list
+
+export interface StoneLineForMinutes { sizeMm: number; count: number }
+
+/**
+ * Bench minutes of a step for a piece with a stone list: per piece base + Σ lines (per-stone minutes × count × the band factor
+ * of the line's size) + per-mm × size; then × quantity (or Wright's total for a run, as in routingStepMinutes), rounded to 0.1.
+ */
+export function stoneListStepMinutes(step: RoutingStepModel, routing: RoutingModel, params: Pick<PieceParams, 'sizeMm' | 'quantity'>, lines: readonly StoneLineForMinutes[]): number {
+  const stones = lines.reduce((s, l) => s + step.perStoneMinutes * l.count * sizeBandFactor(l.sizeMm, step.sizeBandFactors), 0)
+  const unit = step.baseMinutes + stones + (step.perMmMinutes ?? 0) * params.sizeMm
+  const all = routing.learningRate !== null && params.quantity > 1 ? wrightTotal(unit, params.quantity, routing.learningRate) : unit * params.quantity
+  return Math.round(all * 10) / 10
+}
+
+/** "1 × 6.5 mm round diamond, 1.00 ct est." */
+export function stoneLineWords(l: { count: number; sizeMm: number; shape: string; stone: string; caratEach: number | null; caratEstimated: boolean }): string {
+  const ct = l.caratEach !== null ? `, ${l.caratEach.toFixed(l.caratEach < 0.1 ? 3 : 2)} ct${l.caratEstimated ? ' est.' : ''}` : ''
+  return `${l.count} × ${l.sizeMm} mm ${l.shape} ${l.stone}${ct}`
+}

@@ -17,6 +17,10 @@ export const workshops = pgTable('workshops', {
   currency: text().notNull().default('GBP'),
   /** The address tablets on the workshop network reach the app at (what a ticket's QR code opens); '' = the address the request came in on. */
   publicUrl: text().notNull().default(''),
+  /** Quotes: the deposit asked by default (% of the price), how many days a quote stays valid, and whether metal-heavy work waits for the deposit. */
+  depositPct: integer().notNull().default(30),
+  quoteValidDays: integer().notNull().default(30),
+  noMetalBeforeDeposit: boolean().notNull().default(false),
   version: version(),
   createdAt: createdAt(),
 })

@@ -16,6 +16,10 @@ export interface ServerToClientEvents {
   /** A file uploaded to (or removed from) an order or a job bag. */
   'file:added': (p: ChangePayload & { orderId: number | null; jobBagId: number | null }) => void
   'file:removed': (p: ChangePayload & { orderId: number | null; jobBagId: number | null }) => void
+  /** Metal issued, returned, bought, adjusted, corrected or sent to refining (one ledger row). */
+  'metal:recorded': (p: ChangePayload & { kind: string; alloyId: number; jobBagId: number | null; refiningLotId: number | null }) => void
+  /** A refining lot opened, sent or settled. */
+  'refiningLot:changed': (p: ChangePayload & { status: string }) => void
 }
 export interface ClientToServerEvents {
   'changes:since': (seq: number, ack: (events: { seq: number; event: string; payload: unknown }[]) => void) => void

@@ -11,6 +11,7 @@ import { promiseRoutes } from './promise'
 import { mailRoutes } from './mail'
 import { fileRoutes } from './files'
 import { pauseReasonRoutes } from './pause-reasons'
+import { metalRoutes } from './metal'
 import { stoneRoutes } from './stones'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes, ...metalRoutes] as RouteSpec[]

@@ -7,6 +7,7 @@ import type { Db } from './client'
 import * as s from './schema/index'
 import { hashPassword } from '../services/users'
 import { seedMetal } from './seed-metal'
+import { seedStones } from './seed-stones'
 import { dayRange, dayjs, expandPattern, MinuteClock, subtract, type Interval } from '../lib/time'
 
 export const DEMO_PASSWORD = 'millgrain-demo'
@@ -390,6 +391,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     // Open orders were last changed when they were taken (not when the demo was written, which may be after the clock it was given).
     await tx.update(s.orders).set({ updatedAt: sql`${s.orders.createdAt}` }).where(eq(s.orders.status, 'open'))
     await seedMetal(tx, { workshopId, now })
+    await seedStones(tx, workshopId)
   })
   return true
 }

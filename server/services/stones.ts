@@ -36,9 +36,9 @@ async function lockLine(tx: Tx, workshopId: number, lineId: number) {
 }
 
 /** Carats of one stone: as entered, or estimated from the size (and depth) for a round stone; null when neither. */
-function caratOf(shape: string, sizeMm: number, entered: number | null | undefined, depthMm: number | null | undefined): { caratEach: number | null; caratEstimated: boolean } {
+function caratOf(shape: string, stone: string, sizeMm: number, entered: number | null | undefined, depthMm: number | null | undefined): { caratEach: number | null; caratEstimated: boolean } {
   if (entered !== null && entered !== undefined) return { caratEach: entered, caratEstimated: false }
-  if (!canEstimateCarat(shape)) return { caratEach: null, caratEstimated: false }
+  if (!canEstimateCarat(shape, stone)) return { caratEach: null, caratEstimated: false }
   const ct = depthMm ? caratFromDiameterAndDepth(sizeMm, depthMm) : caratFromDiameter(sizeMm)
   return { caratEach: roundCarat(ct), caratEstimated: true }
 }
@@ -189,7 +189,7 @@ export function addLine(deps: Deps, actor: Actor, jobBagId: number, input: Stone
     const bag = await bagOf(tx, actor.workshopId, jobBagId)
     requireOpen(bag)
     const [o] = await tx.select({ customerId: orders.customerId }).from(orders).where(eq(orders.id, bag.orderId))
-    const ct = caratOf(input.shape, input.sizeMm, input.caratEach, input.depthMm)
+    const ct = caratOf(input.shape, input.stone, input.sizeMm, input.caratEach, input.depthMm)
     const [l] = await tx.insert(jobBagStones).values({
       jobBagId, role: input.role, stone: input.stone, shape: input.shape, sizeMm: input.sizeMm, count: input.count, ...ct, quality: input.quality,
       customerOwned: input.customerOwned, customerId: input.customerOwned ? o!.customerId : null, costEachMinor: input.customerOwned ? null : input.costEachMinor,
@@ -206,9 +206,9 @@ export function updateLine(deps: Deps, actor: Actor, lineId: number, input: Ston
     requireOpen(bag)
     if (line.version !== input.version) throw staleVersion('Stone line')
     const next = { ...line, ...Object.fromEntries(Object.entries(input).filter(([k, v]) => v !== undefined && k !== 'version' && k !== 'depthMm')) } as Line
-    const sizeChanged = next.sizeMm !== line.sizeMm || next.shape !== line.shape || (input.depthMm ?? null) !== null
+    const sizeChanged = next.sizeMm !== line.sizeMm || next.shape !== line.shape || next.stone !== line.stone || (input.depthMm ?? null) !== null
     const ct = input.caratEach !== undefined && input.caratEach !== null ? { caratEach: input.caratEach, caratEstimated: false }
-      : input.caratEach === null || (line.caratEstimated && sizeChanged) || (line.caratEach === null && sizeChanged) ? caratOf(next.shape, next.sizeMm, null, input.depthMm)
+      : input.caratEach === null || (line.caratEstimated && sizeChanged) || (line.caratEach === null && sizeChanged) ? caratOf(next.shape, next.stone, next.sizeMm, null, input.depthMm)
       : { caratEach: line.caratEach, caratEstimated: line.caratEstimated }
     if (next.customerOwned !== line.customerOwned || next.count < line.count) {
       const [m] = await tx.select({ n: sql<number>`count(*)::int` }).from(stoneMovements).where(eq(stoneMovements.stoneLineId, lineId))

@@ -44,8 +44,8 @@ export function roundCarat(ct: number): number {
   return ct < 0.1 ? Math.round(ct * 1000) / 1000 : Math.round(ct * 100) / 100
 }
 
-/** Only round stones get an estimate from their size; other shapes need their weight entered. */
-export const canEstimateCarat = (shape: string) => shape.trim().toLowerCase() === 'round'
+/** Only round diamonds get an estimate from their size (the formula is for diamond); other stones and shapes need their weight entered. */
+export const canEstimateCarat = (shape: string, stone = 'diamond') => shape.trim().toLowerCase() === 'round' && stone.trim().toLowerCase() === 'diamond'
 
 // ---------------------------------------------------------------------------------------------------------------
 // Reconciliation: issued = set + returned + broken + lost

@@ -1,0 +1,79 @@
+// Stones and ring sizes in Chromium: the setter counts stones back on the tablet's running card and the job bag page shows the
+// reconciliation; a ring size typed in one scale shows the others as it is typed.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { DEMO_PASSWORD, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+
+let e2e: E2E
+beforeAll(async () => { e2e = await startE2E() })
+afterAll(async () => { await e2e?.close() })
+const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
+
+async function page(email: string, viewport = { width: 1280, height: 800 }): Promise<Page> {
+  const context = await e2e.browser.newContext({ baseURL: e2e.url, viewport, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
+  const p = await context.newPage()
+  await signInWith(p, email, DEMO_PASSWORD)
+  await p.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
+  return p
+}
+
+describe('stones on the bench and the job bag', () => {
+  it('when the setter takes the pavé stones and counts them back on the tablet, then the job bag shows them all counted', async () => {
+    // A demo pavé pendant whose setting step nobody has started, with its seeded stone list.
+    const [op] = await q(`select o.id, o.job_bag_id from operations o join job_bags jb on jb.id = o.job_bag_id join routing_templates rt on rt.id = jb.template_id join orders ord on ord.id = jb.order_id
+      where rt.code = 'pave-pendant' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' and exists (select 1 from job_bag_stones s where s.job_bag_id = jb.id) order by jb.id limit 1`)
+    const [line] = await q('select id, count from job_bag_stones where job_bag_id = $1', [op.job_bag_id])
+    const [bag] = await q(`select (params->>'quantity')::int as quantity from job_bags where id = $1`, [op.job_bag_id])
+    await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and key <> 'set' and key not in ('polish', 'inspect')`, [op.job_bag_id])
+    await q(`update operations set status = 'ready' where id = $1`, [op.id])
+    const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
+    const total = line.count * bag.quantity
+
+    const setter = await page('setter@wrenfield.test')
+    await setter.goto('/bench')
+    await setter.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+    await setter.locator(`[data-test=next-for-me] [data-op="${op.id}"] [data-test=claim]`).click()
+    await setter.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=start]`).click()
+    const counter = setter.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=stone-count-back]`)
+    await counter.waitFor()
+    await counter.locator('[data-test=take-stones]').click()
+    // Hand-worked: all the list's stones given out, none back yet: "Given out N · counted back 0 · N not counted back".
+    await expect.poll(() => counter.locator('[data-test=line-state]').innerText(), { timeout: 10_000 }).toBe(`Given out ${total} · counted back 0 · ${total} not counted back`)
+    // Large touch targets: at least 48 px (WCAG 2.5.5 target size 44 px; Material guidance 48 dp).
+    expect((await counter.locator('[data-test=more-returned]').boundingBox())!.height).toBeGreaterThanOrEqual(48)
+    // All start as set; one goes back unused instead: set total − 1, back 1.
+    await counter.locator('[data-test=less-set]').click()
+    await counter.locator('[data-test=more-returned]').click()
+    await expect(counter.locator('[data-test=n-set]').innerText()).resolves.toBe(String(total - 1))
+    await screenshot(setter, 'stones-01-tablet-count-back')
+    await counter.locator('[data-test=count-back]').click()
+    await expect.poll(() => counter.locator('[data-test=line-state]').innerText(), { timeout: 10_000 }).toBe(`Given out ${total} · counted back ${total} · all counted`)
+    await screenshot(setter, 'stones-02-tablet-counted')
+
+    const manager = await page('manager@wrenfield.test')
+    await manager.goto(`/job-bags/${op.job_bag_id}`)
+    const row = manager.locator('[data-test=stone-list] .el-table__row').first()
+    await expect.poll(() => row.locator('[data-test=counts]').innerText(), { timeout: 10_000 }).toBe(`${total} · ${total - 1} · 1 · 0 · 0`)
+    await expect(row.locator('[data-test=state]').innerText()).resolves.toBe('counted')
+    await expect(row.locator('[data-test=difference]').innerText()).resolves.toBe('all counted')
+    await manager.locator('[data-test=stone-list]').scrollIntoViewIfNeeded()
+    await screenshot(manager, 'stones-03-job-bag-reconciled')
+    const rows = await q(`select kind, count from stone_movements where stone_line_id = $1 order by id`, [line.id])
+    expect(rows).toEqual([{ kind: 'issued', count: total }, { kind: 'set', count: total - 1 }, { kind: 'returned', count: 1 }])
+  })
+
+  it('when sales types US 7 in the order dialog, then ISO 54.4 (Ø 17.3 mm) and UK N½ are shown', async () => {
+    const sales = await page('sales@wrenfield.test')
+    await sales.goto('/orders')
+    await sales.locator('[data-test=order-take]').click()
+    await sales.locator('[data-test=ring-size-0-scale]').click()
+    await sales.locator('.el-select-dropdown__item:visible', { hasText: 'US / Canada' }).click()
+    await sales.locator('input[data-test=ring-size-0-value], [data-test=ring-size-0-value] input').first().fill('7')
+    // US 7: (0.458 + 0.032 × 7) in = 17.32 mm inside, π × 17.32 = 54.4 mm round it (TRADE.md, "Ring size"); UK N½ beside US 7 on the pinned chart (just-color.com).
+    await expect.poll(() => sales.locator('[data-test=ring-size-0-others]').innerText(), { timeout: 10_000 }).toBe('US 7 · ISO 54.4 (Ø 17.3 mm) · UK N½')
+    await sales.locator('input[data-test=ring-size-0-value], [data-test=ring-size-0-value] input').first().fill('77')
+    await expect.poll(() => sales.locator('[data-test=ring-size-0-others]').innerText()).toMatch(/Not a size in this scale/)
+    await sales.locator('input[data-test=ring-size-0-value], [data-test=ring-size-0-value] input').first().fill('7')
+    await screenshot(sales, 'stones-04-order-ring-size')
+  })
+})

@@ -8,6 +8,7 @@ import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../server/db/seed'
 import { publishFirstPlans } from '../server/services/planning/first-plan'
 import { startServer } from '../server/index'
 import { startFakeSmtp } from '../server/mail/fake-smtp'
+import { startPayFake } from '../server/dev/pay-fake'
 import { app, root, sessionSecret } from './env'
 import { databaseUrl, ensureDatabase, startCluster, stopCluster } from './pg'
 
@@ -36,9 +37,13 @@ if (!process.env.SKIP_BUILD) {
 const mailDb = process.env.SMTP_URL ? null : createDb(url, 2)
 const mailbox = mailDb ? await startFakeSmtp({ port: Number(process.env.MAIL_PORT ?? 2525), db: mailDb.db, anyPortIfTaken: true }) : null
 if (mailbox) console.log(`[mail] local test mailbox on 127.0.0.1:${mailbox.port}`)
+// Card payments: a real provider account when its keys are set; otherwise the local test provider (no real money).
+const payFake = process.env.STRIPE_SECRET_KEY ? null : await startPayFake({ port: Number(process.env.PAY_FAKE_PORT ?? 12111), anyPortIfTaken: true })
+if (payFake) console.log(`[pay] local test payment provider on ${payFake.url}`)
 const server = await startServer(
-  loadConfig({ ...process.env, DATABASE_URL: url, PORT: String(app.port), SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production', ...(mailbox ? { SMTP_URL: mailbox.url } : {}) }),
+  loadConfig({ ...process.env, DATABASE_URL: url, PORT: String(app.port), SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production', ...(mailbox ? { SMTP_URL: mailbox.url } : {}), ...(payFake ? { PAY_FAKE_URL: payFake.url } : {}) }),
 )
+if (payFake) payFake.webhookUrl = `${server.url}/api/payments/webhook`
 console.log(`\nMillgrain is running at ${server.url}\n`)
 console.log(`Demo sign-ins (password "${DEMO_PASSWORD}"):`)
 for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(8)} ${u.email.padEnd(26)} ${u.name}`)
@@ -52,6 +57,7 @@ async function stop() {
   // Whatever happens, the database is stopped cleanly within a few seconds.
   await Promise.race([server.close().catch(() => {}), new Promise((r) => setTimeout(r, 8000))])
   await mailbox?.close().catch(() => {})
+  await payFake?.close().catch(() => {})
   await mailDb?.pool.end().catch(() => {})
   console.log('[stop] stopping PostgreSQL…')
   stopCluster(app.pgDir)

@@ -18,6 +18,8 @@ import { allRoutes } from './routes/index'
 import { UNSTORABLE_REASON, unstorableText } from './lib/text-guard'
 import { createMailer, type Mailer } from './mail/transport'
 import type { SessionUser } from '../shared/schemas/session'
+import { createPayProvider } from './services/pay-provider'
+import { handleWebhook } from './services/payments'
 
 export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime; mailer?: Mailer }
 
@@ -48,7 +50,7 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   )
   const sessionMiddleware = createSessionMiddleware(pool, config)
   const passport = configurePassport(db)
-  const deps: Deps = { db, realtime, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST }
+  const deps: Deps = { db, realtime, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: `http://${config.HOST}:${config.PORT}` }
 
   const api = express.Router()
   api.use(express.json({ limit: '1mb' }))
@@ -72,6 +74,10 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   api.post('/session', failedSignIns('from this address'), failedSignIns('for this account', accountKey))
 
   for (const spec of allRoutes) register(api, spec, deps)
+  // The provider's signed webhook: no session and no CSRF token, the raw body is what the signature covers.
+  app.post('/api/payments/webhook', express.raw({ type: () => true, limit: '1mb' }), (req, res, next) => {
+    handleWebhook(deps, Buffer.isBuffer(req.body) ? req.body : Buffer.alloc(0), req.get('stripe-signature')).then((r) => res.json(r), next)
+  })
   api.use((req, _res, next) => next(new AppError({ code: 'not-found', message: `No such API route: ${req.method} ${req.baseUrl}${req.path}` })))
   app.use('/api', api)
 

@@ -22,6 +22,11 @@ const schema = z.object({
   /** Uploaded sketches and photos live here, outside the web root. */
   UPLOAD_DIR: z.string().default('.data/uploads'),
   UPLOAD_MAX_BYTES: z.coerce.number().int().min(1).default(10 * 1024 * 1024),
+  /** The payment provider's account (both set → real card payments); unset → the local fake at PAY_FAKE_URL, if any. */
+  STRIPE_SECRET_KEY: z.string().min(1).optional(),
+  STRIPE_WEBHOOK_SECRET: z.string().min(1).optional(),
+  /** The local fake provider (server/dev/pay-fake.ts), started by `npm start` and the tests when no account is set. */
+  PAY_FAKE_URL: z.string().url('must be an http:// URL').optional(),
 })
 export type Config = z.infer<typeof schema>
 

@@ -20,6 +20,12 @@ export interface ServerToClientEvents {
   'metal:recorded': (p: ChangePayload & { kind: string; alloyId: number; jobBagId: number | null; refiningLotId: number | null }) => void
   /** A refining lot opened, sent or settled. */
   'refiningLot:changed': (p: ChangePayload & { status: string }) => void
+  /** A quote created, edited, sent, accepted, expired or withdrawn (ids only, never amounts). */
+  'quote:changed': (p: ChangePayload & { status: string }) => void
+  /** Money in for an order or quote (card from the provider's signed webhook, cash, transfer); ids only. */
+  'payment:received': (p: ChangePayload & { orderId: number | null; quoteId: number | null }) => void
+  'payment:refunded': (p: ChangePayload & { orderId: number | null; quoteId: number | null }) => void
+  'paymentLink:created': (p: ChangePayload & { orderId: number | null; quoteId: number | null }) => void
 }
 export interface ClientToServerEvents {
   'changes:since': (seq: number, ack: (events: { seq: number; event: string; payload: unknown }[]) => void) => void

@@ -5,13 +5,14 @@ import type { Role } from '../../shared/domain/roles'
 import type { Db } from '../db/client'
 import type { Realtime } from '../realtime/hub'
 import type { Mailer } from '../mail/transport'
+import type { PayProvider } from '../services/pay-provider'
 
 export interface Actor { userId: number; workshopId: number; role: Role; personId: number | null; name: string }
 
 import type { PassportStatic } from 'passport'
 type Authenticator = InstanceType<PassportStatic['Passport']>
 
-export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer; /** The HOST the server listens on (config). */ listenHost?: string }
+export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer; /** The HOST the server listens on (config). */ listenHost?: string; /** The payment provider (real or the local fake); null when none is configured. */ pay?: PayProvider | null; /** This server's own address, for the provider's return pages when the workshop has no public address. */ appUrl?: string }
 
 export interface RouteContext<B, Q, P> {
   req: Request

@@ -13,5 +13,7 @@ import { fileRoutes } from './files'
 import { pauseReasonRoutes } from './pause-reasons'
 import { metalRoutes } from './metal'
 import { stoneRoutes } from './stones'
+import { quoteRoutes } from './quotes'
+import { paymentRoutes } from './payments'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes, ...metalRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes, ...metalRoutes, ...quoteRoutes, ...paymentRoutes] as RouteSpec[]

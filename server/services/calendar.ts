@@ -11,7 +11,7 @@ import { sql } from 'drizzle-orm'
 export async function getSettings(db: Db, workshopId: number) {
   const [w] = await db.select().from(workshops).where(eq(workshops.id, workshopId))
   if (!w) throw notFound('Workshop')
-  return { id: w.id, name: w.name, timeZone: w.timeZone, weekPattern: w.weekPattern, planningLoad: w.planningLoad, address: w.address, phone: w.phone, contactEmail: w.contactEmail, currency: w.currency, publicUrl: w.publicUrl, version: w.version }
+  return { id: w.id, name: w.name, timeZone: w.timeZone, weekPattern: w.weekPattern, planningLoad: w.planningLoad, address: w.address, phone: w.phone, contactEmail: w.contactEmail, currency: w.currency, publicUrl: w.publicUrl, depositPct: w.depositPct, quoteValidDays: w.quoteValidDays, noMetalBeforeDeposit: w.noMetalBeforeDeposit, version: w.version }
 }
 
 export async function updateSettings({ db, realtime }: Deps, actor: Actor, input: WorkshopSettingsInput) {

@@ -37,6 +37,10 @@ export const workshopSettingsInput = z.object({
   publicUrl: z.string().trim().max(200, 'must be at most 200 characters')
     .refine((v) => v === '' || publicOrigin(v) !== null, 'must be an http:// or https:// address with no path, such as http://192.168.1.20:8080')
     .transform((v) => (v === '' ? '' : publicOrigin(v)!)).optional(),
+  /** Money rules: the deposit asked on a quote (% of the price), how long a quote stands, and whether metal waits for the deposit. */
+  depositPct: z.number().int('must be a whole percentage').min(0, 'must be 0 to 100').max(100, 'must be 0 to 100').optional(),
+  quoteValidDays: z.number().int('must be whole days').min(1, 'must be 1 to 365 days').max(365, 'must be 1 to 365 days').optional(),
+  noMetalBeforeDeposit: z.boolean().optional(),
   version,
 })
 export const closureInput = z

@@ -162,6 +162,23 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   'POST /stones/:id/movements': WORKERS,
   'POST /stone-movements/:id/corrections': STAFF,
   'POST /stones/:id/check-back': FRONT,
+  // money: the front office and managers quote and read money; the owner and sales take cash; the owner refunds and sees the figures; bench users see none of it
+  'GET /quotes': FRONT,
+  'GET /quotes/:id': FRONT,
+  'POST /quotes': FRONT,
+  'PATCH /quotes/:id': FRONT,
+  'POST /quotes/:id/send': FRONT,
+  'POST /quotes/:id/accept': FRONT,
+  'POST /quotes/:id/withdraw': FRONT,
+  'POST /quotes/:id/payment-links': FRONT,
+  'GET /quotes/:id/pdf': FRONT,
+  'GET /orders/:id/money': FRONT,
+  'POST /orders/:id/payment-links': FRONT,
+  'POST /orders/:id/payments': ['owner', 'sales'],
+  'POST /payments/:id/refund': OWNER,
+  'GET /payments/to-refund': FRONT,
+  'GET /payments/summary': OWNER,
+  'GET /payments/export.csv': OWNER,
 }
 
 /** Bodies for routes where an empty body would start long work; every other write gets {}. */

@@ -1,0 +1,226 @@
+// Quotes: drafted → sent (e-mailed with a deposit link) → accepted (the order is made or linked), or expired / withdrawn; the PDF.
+import { and, count, desc, eq, ilike, inArray, lt, or, sql } from 'drizzle-orm'
+import PDFDocument from 'pdfkit'
+import type { QuoteInput, QuoteUpdate, QuoteStatus } from '../../shared/schemas/quote'
+import type { OrderInput } from '../../shared/schemas/order'
+import type { Db, Trx } from '../db/client'
+import * as s from '../db/schema/index'
+import { invalid, notFound, staleVersion } from '../errors/app-error'
+import type { Actor, Deps } from '../lib/route'
+import { dayjs } from '../lib/time'
+import { money } from '../mail/templates'
+import { audit } from './audit'
+import { sendRecorded } from './mail'
+import { takeOrder } from './orders'
+import { createLink, listPayments } from './payments'
+
+const cols = {
+  id: s.quotes.id, number: s.quotes.number, customerId: s.quotes.customerId, customerName: s.customers.name, customerEmail: s.customers.email, orderId: s.quotes.orderId, orderNumber: s.orders.number,
+  status: s.quotes.status, title: s.quotes.title, description: s.quotes.description, details: s.quotes.details, promisedDate: s.quotes.promisedDate, confidence: s.quotes.confidence,
+  currency: s.quotes.currency, priceMinor: s.quotes.priceMinor, depositMinor: s.quotes.depositMinor, validUntil: s.quotes.validUntil,
+  sentAt: s.quotes.sentAt, acceptedAt: s.quotes.acceptedAt, withdrawnAt: s.quotes.withdrawnAt, createdAt: s.quotes.createdAt, version: s.quotes.version,
+}
+const today = async (db: Db | Trx, workshopId: number) => {
+  const [w] = await db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, workshopId))
+  return dayjs().tz(w?.timeZone ?? 'Europe/London').format('YYYY-MM-DD')
+}
+
+/** Sent quotes past their validity lapse (run before reading and by the daily timer). */
+export async function expireQuotes(deps: Pick<Deps, 'db' | 'realtime'>, workshopId: number) {
+  const rows = await deps.db.update(s.quotes).set({ status: 'expired', version: sql`${s.quotes.version} + 1` })
+    .where(and(eq(s.quotes.workshopId, workshopId), inArray(s.quotes.status, ['drafted', 'sent']), lt(s.quotes.validUntil, await today(deps.db, workshopId)))).returning()
+  for (const q of rows) deps.realtime.emit(workshopId, 'quote:changed', { id: q.id, version: q.version, status: q.status })
+  return rows.length
+}
+
+const withBalance = <T extends { priceMinor: number; depositMinor: number }>(q: T) => ({ ...q, balanceMinor: q.priceMinor - q.depositMinor })
+
+export async function listQuotes(deps: Deps, workshopId: number, q: { q?: string; status?: QuoteStatus | QuoteStatus[]; orderId?: number; page: number; pageSize: number }) {
+  await expireQuotes(deps, workshopId)
+  const statuses = q.status === undefined ? [] : Array.isArray(q.status) ? q.status : [q.status]
+  const like = q.q ? `%${q.q.replace(/[\\%_]/g, '\\$&')}%` : null
+  const where = and(eq(s.quotes.workshopId, workshopId), statuses.length ? inArray(s.quotes.status, statuses) : undefined, q.orderId ? eq(s.quotes.orderId, q.orderId) : undefined,
+    like ? or(ilike(s.quotes.number, like), ilike(s.quotes.title, like), ilike(s.customers.name, like)) : undefined)
+  const [total] = await deps.db.select({ n: count() }).from(s.quotes).innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId)).where(where)
+  const items = await deps.db.select(cols).from(s.quotes).innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId)).leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId))
+    .where(where).orderBy(desc(s.quotes.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
+  return { items: items.map(withBalance), total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
+}
+
+export async function getQuote(db: Db, workshopId: number, id: number) {
+  const [q] = await db.select(cols).from(s.quotes).innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId)).leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId)).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, workshopId)))
+  if (!q) throw notFound('Quote')
+  const links = await db.select({ id: s.paymentLinks.id, quoteId: s.paymentLinks.quoteId, orderId: s.paymentLinks.orderId, purpose: s.paymentLinks.purpose, currency: s.paymentLinks.currency, amountMinor: s.paymentLinks.amountMinor, url: s.paymentLinks.url, status: s.paymentLinks.status, createdAt: s.paymentLinks.createdAt })
+    .from(s.paymentLinks).where(eq(s.paymentLinks.quoteId, id)).orderBy(s.paymentLinks.id)
+  const payments = await listPayments(db, eq(s.payments.quoteId, id))
+  return { ...withBalance(q), links, payments, paidMinor: payments.filter((p) => !p.toRefund).reduce((t, p) => t + p.amountMinor, 0) }
+}
+
+export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
+  const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
+  const id = await deps.db.transaction(async (tx) => {
+    const [c] = await tx.select({ id: s.customers.id }).from(s.customers).where(and(eq(s.customers.id, input.customerId), eq(s.customers.workshopId, actor.workshopId)))
+    if (!c) throw invalid('customerId', 'is not a customer of this workshop')
+    if (input.orderId) {
+      const [o] = await tx.select({ customerId: s.orders.customerId }).from(s.orders).where(and(eq(s.orders.id, input.orderId), eq(s.orders.workshopId, actor.workshopId)))
+      if (!o) throw invalid('orderId', 'is not an order of this workshop')
+      if (o.customerId !== input.customerId) throw invalid('orderId', 'belongs to another customer')
+    }
+    await tx.execute(sql`select pg_advisory_xact_lock(1013, ${actor.workshopId})`)
+    const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(s.quotes).where(eq(s.quotes.workshopId, actor.workshopId))
+    const day = await today(tx, actor.workshopId)
+    const number = `Q${day.slice(2, 4)}-${String(n + 1).padStart(4, '0')}`
+    const depositMinor = input.depositMinor ?? Math.round((input.priceMinor * w!.depositPct) / 100)
+    const validUntil = input.validUntil ?? dayjs(day).add(w!.quoteValidDays, 'day').format('YYYY-MM-DD')
+    const [q] = await tx.insert(s.quotes).values({
+      workshopId: actor.workshopId, number, customerId: input.customerId, orderId: input.orderId, title: input.title, description: input.description, details: input.details,
+      promisedDate: input.promisedDate, confidence: input.confidence, currency: input.currency ?? w!.currency, priceMinor: input.priceMinor, depositMinor, validUntil, createdBy: actor.userId,
+    }).returning()
+    await audit(tx, actor, 'create', 'quote', q!.id, { number, priceMinor: input.priceMinor, depositMinor })
+    return q!
+  })
+  deps.realtime.emit(actor.workshopId, 'quote:changed', { id: id.id, version: id.version, status: id.status })
+  return getQuote(deps.db, actor.workshopId, id.id)
+}
+
+async function change(deps: Deps, actor: Actor, id: number, version: number, allowed: QuoteStatus[], values: Partial<typeof s.quotes.$inferInsert>, action: string, tx0?: Trx) {
+  const run = async (tx: Trx) => {
+    const [cur] = await tx.select().from(s.quotes).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId))).for('update')
+    if (!cur) throw notFound('Quote')
+    if (cur.version !== version) throw staleVersion('The quote')
+    if (!allowed.includes(cur.status)) throw invalid('status', `a ${cur.status} quote cannot be ${action}`)
+    const next = { ...cur, ...values }
+    if (next.depositMinor > next.priceMinor) throw invalid('depositMinor', 'must not be more than the price')
+    const [u] = await tx.update(s.quotes).set({ ...values, version: sql`${s.quotes.version} + 1` }).where(eq(s.quotes.id, id)).returning()
+    await audit(tx, actor, action, 'quote', id, values as Record<string, unknown>)
+    return u!
+  }
+  const u = tx0 ? await run(tx0) : await deps.db.transaction(run)
+  if (!tx0) deps.realtime.emit(actor.workshopId, 'quote:changed', { id, version: u.version, status: u.status })
+  return u
+}
+
+export async function updateQuote(deps: Deps, actor: Actor, id: number, input: QuoteUpdate) {
+  const { version, ...values } = input
+  await change(deps, actor, id, version, ['drafted', 'sent'], values, 'edited')
+  return getQuote(deps.db, actor.workshopId, id)
+}
+
+export async function sendQuote(deps: Deps, actor: Actor, id: number, version: number) {
+  await expireQuotes(deps, actor.workshopId)
+  const before = await getQuote(deps.db, actor.workshopId, id)
+  if (!['drafted', 'sent'].includes(before.status)) throw invalid('status', `a ${before.status} quote cannot be sent`)
+  if (before.version !== version) throw staleVersion('The quote')
+  let link = before.links.find((l) => l.status === 'open' && l.purpose === 'deposit')
+  if (!link && before.depositMinor > 0) link = await createLink(deps, actor, { quoteId: id, orderId: before.orderId, purpose: 'deposit', amountMinor: before.depositMinor, currency: before.currency, description: `Deposit for quote ${before.number}: ${before.title}`, customerEmail: before.customerEmail || undefined })
+  await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'sent', sentAt: new Date().toISOString() }, 'sent')
+  const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
+  const m = (minor: number) => money(minor / 100, before.currency)
+  const text = [
+    `Dear ${before.customerName},`, '', `Thank you for asking us to make ${before.title}. Our quote ${before.number}:`, '',
+    ...(before.description ? [before.description, ''] : []),
+    `Price: ${m(before.priceMinor)}`, `Deposit to start the work: ${m(before.depositMinor)}`, `Balance at collection: ${m(before.priceMinor - before.depositMinor)}`,
+    ...(before.promisedDate ? [`Ready by: ${dayjs(before.promisedDate).format('dddd D MMMM YYYY')}`] : []),
+    `This quote stands until ${dayjs(before.validUntil).format('dddd D MMMM YYYY')}.`, '',
+    ...(link ? [`Pay the deposit securely here: ${link.url}`, 'Paying the deposit accepts the quote.', ''] : []), `— ${w!.name}`,
+  ].join('\n')
+  const html = `<div style="font-family:sans-serif;line-height:1.5">${text.split('\n').map((l) => l.replace(/[&<>]/g, (x) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[x]!)).map((l) => (l.startsWith('Pay the deposit') && link ? `<p><a href="${link.url}">Pay the deposit</a></p>` : l ? `<p>${l}</p>` : '')).join('')}</div>`
+  await sendRecorded(deps, { workshopId: actor.workshopId, to: before.customerEmail, kind: 'quote', orderId: before.orderId, meta: { quoteId: id, linkId: link?.id ?? null }, content: { subject: `${w!.name}: quote ${before.number} for ${before.title}`, text, html } })
+  return getQuote(deps.db, actor.workshopId, id)
+}
+
+/** What an accepted quote becomes: one piece from the quoted routing (none when the quote names no routing). */
+export async function quoteOrderInput(db: Db, q: typeof s.quotes.$inferSelect): Promise<OrderInput> {
+  const d = q.details as { templateId?: number; piece?: string; params?: OrderInput['pieces'][number]['params']; priority?: number }
+  const due = q.promisedDate ?? q.validUntil
+  return {
+    customerId: q.customerId, title: q.title, dueDate: due, promisedDate: q.promisedDate, priority: d.priority ?? 3, priceQuoted: q.priceMinor / 100, notes: `From quote ${q.number}`,
+    pieces: d.templateId ? [{ templateId: d.templateId, piece: d.piece ?? q.title, params: (d.params ?? {}) as OrderInput['pieces'][number]['params'] }] : [],
+  }
+}
+
+export async function acceptQuote(deps: Deps, actor: Actor, id: number, version: number) {
+  await expireQuotes(deps, actor.workshopId)
+  const [q] = await deps.db.select().from(s.quotes).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId)))
+  if (!q) throw notFound('Quote')
+  if (!['drafted', 'sent'].includes(q.status)) throw invalid('status', `a ${q.status} quote cannot be accepted`)
+  if (q.orderId) await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString() }, 'accepted')
+  else {
+    await takeOrder(deps, actor, await quoteOrderInput(deps.db, q), async (tx, orderId) => {
+      await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString(), orderId }, 'accepted', tx)
+      await tx.update(s.payments).set({ orderId }).where(eq(s.payments.quoteId, id))
+      await tx.update(s.paymentLinks).set({ orderId }).where(eq(s.paymentLinks.quoteId, id))
+    })
+  }
+  const after = await getQuote(deps.db, actor.workshopId, id)
+  deps.realtime.emit(actor.workshopId, 'quote:changed', { id, version: after.version, status: after.status })
+  return after
+}
+
+export async function withdrawQuote(deps: Deps, actor: Actor, id: number, version: number) {
+  await change(deps, actor, id, version, ['drafted', 'sent', 'expired'], { status: 'withdrawn', withdrawnAt: new Date().toISOString() }, 'withdrawn')
+  const open = await deps.db.update(s.paymentLinks).set({ status: 'expired' }).where(and(eq(s.paymentLinks.quoteId, id), eq(s.paymentLinks.status, 'open'))).returning()
+  // Close the provider's pages too; a payment that still arrives is listed to be refunded.
+  for (const l of open) await deps.pay?.stripe.checkout.sessions.expire(l.providerId).catch(() => {})
+  return getQuote(deps.db, actor.workshopId, id)
+}
+
+export async function quoteLink(deps: Deps, actor: Actor, id: number, amountMinor?: number) {
+  const q = await getQuote(deps.db, actor.workshopId, id)
+  if (!['drafted', 'sent'].includes(q.status)) throw invalid('status', `a ${q.status} quote takes no payment`)
+  const amount = amountMinor ?? q.depositMinor
+  if (amount < 1) throw invalid('amountMinor', 'must be at least 1')
+  if (amount > q.priceMinor) throw invalid('amountMinor', 'must not be more than the price')
+  return createLink(deps, actor, { quoteId: id, orderId: q.orderId, purpose: 'deposit', amountMinor: amount, currency: q.currency, description: `Deposit for quote ${q.number}: ${q.title}`, customerEmail: q.customerEmail || undefined })
+}
+
+export async function quotePdf(db: Db, workshopId: number, id: number): Promise<Buffer> {
+  const q = await getQuote(db, workshopId, id)
+  const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
+  const m = (minor: number) => money(minor / 100, q.currency)
+  const doc = new PDFDocument({ size: 'A4', margin: 56, info: { Title: `Quote ${q.number}` } })
+  const chunks: Buffer[] = []
+  doc.on('data', (c: Buffer) => chunks.push(c))
+  const done = new Promise<Buffer>((r) => doc.on('end', () => r(Buffer.concat(chunks))))
+  doc.fontSize(18).text(w!.name).fontSize(9).text([w!.address, w!.phone, w!.contactEmail].filter(Boolean).join('  ·  ')).moveDown()
+  doc.fontSize(16).text(`Quote ${q.number}`).fontSize(11).text(`For ${q.customerName}`).text(`Valid until ${dayjs(q.validUntil).format('D MMMM YYYY')}`).moveDown()
+  doc.fontSize(13).text(q.title).fontSize(11)
+  if (q.description) doc.text(q.description)
+  const d = q.details as { metal?: string; stones?: { description: string; count?: number; carats?: number }[] }
+  if (d.metal) doc.text(`Metal: ${d.metal}`)
+  for (const st of d.stones ?? []) doc.text(`Stone: ${st.description}${st.count ? ` × ${st.count}` : ''}${st.carats ? `, ${st.carats} ct` : ''}`)
+  if (q.promisedDate) doc.moveDown().text(`Ready by ${dayjs(q.promisedDate).format('D MMMM YYYY')}`)
+  const c = q.confidence as { p80?: string } | null
+  if (c?.p80) doc.text(`(Our planning gives 4 in 5 chances of finishing by ${dayjs(c.p80).format('D MMMM YYYY')})`)
+  doc.moveDown().fontSize(12).text(`Price: ${m(q.priceMinor)}`).text(`Deposit to start the work: ${m(q.depositMinor)}`).text(`Balance at collection: ${m(q.priceMinor - q.depositMinor)}`)
+  const link = q.links.find((l) => l.status === 'open')
+  if (link) doc.moveDown().fontSize(10).text(`Pay the deposit: ${link.url}`)
+  doc.end()
+  return done
+}
+
+/** Daily: expire lapsed quotes, remind customers of quotes ending within 3 days (once) and of balances owed on pieces ready to collect (once a day). */
+export async function sendMoneyReminders(deps: Deps, workshopId: number) {
+  await expireQuotes(deps, workshopId)
+  const day = await today(deps.db, workshopId)
+  const soon = dayjs(day).add(3, 'day').format('YYYY-MM-DD')
+  const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
+  const sent = await deps.db.select({ kind: s.outbox.kind, meta: s.outbox.meta, orderId: s.outbox.orderId, createdAt: s.outbox.createdAt }).from(s.outbox).where(and(eq(s.outbox.workshopId, workshopId), inArray(s.outbox.kind, ['quote-reminder', 'balance-reminder'])))
+  let n = 0
+  for (const q of await deps.db.select(cols).from(s.quotes).innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId)).leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId)).where(and(eq(s.quotes.workshopId, workshopId), eq(s.quotes.status, 'sent'), sql`${s.quotes.validUntil} <= ${soon}`))) {
+    if (sent.some((x) => x.kind === 'quote-reminder' && x.meta?.quoteId === q.id)) continue
+    const text = `Dear ${q.customerName},\n\nOur quote ${q.number} for ${q.title} stands until ${dayjs(q.validUntil).format('dddd D MMMM YYYY')}. Paying the deposit accepts it.\n\n— ${w!.name}`
+    await sendRecorded(deps, { workshopId, to: q.customerEmail, kind: 'quote-reminder', orderId: q.orderId, meta: { quoteId: q.id }, content: { subject: `${w!.name}: quote ${q.number} ends soon`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` } })
+    n++
+  }
+  const { orderMoney } = await import('./payments')
+  for (const o of await deps.db.select({ id: s.orders.id, number: s.orders.number, email: s.customers.email, name: s.customers.name }).from(s.orders).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId)).where(and(eq(s.orders.workshopId, workshopId), eq(s.orders.status, 'ready')))) {
+    if (sent.some((x) => x.kind === 'balance-reminder' && x.orderId === o.id && x.meta?.day === day)) continue
+    const money2 = await orderMoney(deps.db, workshopId, o.id)
+    if (money2.owedMinor <= 0) continue
+    const text = `Dear ${o.name},\n\nYour order ${o.number} is ready for collection. The balance to pay is ${money(money2.owedMinor / 100, money2.currency)}.\n\n— ${w!.name}`
+    await sendRecorded(deps, { workshopId, to: o.email, kind: 'balance-reminder', orderId: o.id, meta: { day }, content: { subject: `${w!.name}: order ${o.number} is ready — balance to pay`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` } })
+    n++
+  }
+  return n
+}

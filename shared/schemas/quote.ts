@@ -1,0 +1,60 @@
+// Quotes for commissions: what is quoted (piece, metal, stones), the promised date, the price and deposit in minor units.
+import { z } from 'zod'
+import { id, isoDate, name, version } from './common'
+import { pieceParams } from './order'
+
+export const QUOTE_STATUSES = ['drafted', 'sent', 'accepted', 'expired', 'withdrawn'] as const
+export type QuoteStatus = (typeof QUOTE_STATUSES)[number]
+
+/** An amount in minor units (pence, cents): a whole number, never negative. */
+export const minorAmount = z.number({ error: 'must be a whole number of minor units (e.g. pence)' }).int('must be a whole number of minor units (e.g. pence)').min(0, 'must not be negative').max(1_000_000_000, 'is too large')
+const currency = z.string().trim().toUpperCase().regex(/^[A-Z]{3}$/, 'must be a three-letter currency code such as GBP')
+
+export const quoteDetails = z.object({
+  templateId: id.optional(),
+  piece: z.string().trim().max(120).optional(),
+  params: pieceParams.optional(),
+  priority: z.number().int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').optional(),
+  metal: z.string().trim().max(120).optional(),
+  stones: z.array(z.object({ description: z.string().trim().min(1, 'is required').max(200), count: z.number().int().min(0).optional(), carats: z.number().min(0).optional() })).max(100).optional(),
+})
+export const quoteConfidence = z.object({ p50: isoDate.optional(), p80: isoDate.optional(), p95: isoDate.optional(), note: z.string().max(300).optional() })
+
+const quoteFields = {
+  title: name,
+  description: z.string().max(4000, 'must be at most 4000 characters'),
+  details: quoteDetails,
+  promisedDate: isoDate.nullable(),
+  confidence: quoteConfidence.nullable(),
+  priceMinor: minorAmount,
+  depositMinor: minorAmount,
+  validUntil: isoDate,
+}
+export const quoteInput = z.object({
+  customerId: id,
+  orderId: id.nullable().default(null),
+  currency: currency.optional(),
+  ...quoteFields,
+  description: quoteFields.description.default(''),
+  details: quoteDetails.default({}),
+  promisedDate: quoteFields.promisedDate.default(null),
+  confidence: quoteFields.confidence.default(null),
+  depositMinor: minorAmount.optional(),
+  validUntil: isoDate.optional(),
+}).refine((q) => q.depositMinor === undefined || q.depositMinor <= q.priceMinor, { message: 'must not be more than the price', path: ['depositMinor'] })
+export const quoteUpdate = z.object({
+  title: quoteFields.title.optional(), description: quoteFields.description.optional(), details: quoteDetails.optional(), promisedDate: isoDate.nullable().optional(),
+  confidence: quoteConfidence.nullable().optional(), priceMinor: minorAmount.optional(), depositMinor: minorAmount.optional(), validUntil: isoDate.optional(), version,
+})
+export const quoteAction = z.object({ version })
+export const quoteListQuery = z.object({
+  q: z.string().max(120).optional(),
+  status: z.union([z.enum(QUOTE_STATUSES), z.array(z.enum(QUOTE_STATUSES))]).optional(),
+  orderId: id.optional(),
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200).default(50),
+})
+export const quoteLinkInput = z.object({ amountMinor: minorAmount.min(1, 'must be at least 1').optional() })
+export type QuoteInput = z.infer<typeof quoteInput>
+export type QuoteUpdate = z.infer<typeof quoteUpdate>
+export type QuoteDetails = z.infer<typeof quoteDetails>

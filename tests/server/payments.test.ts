@@ -1,0 +1,153 @@
+// Quotes and payments against the local fake provider: the SDK's real calls, webhooks signed as the provider documents.
+import { createServer, type Server } from 'node:http'
+import type { AddressInfo } from 'node:net'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { startPayFake, TEST_CARDS, type PayFake } from '../../server/dev/pay-fake'
+import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+
+let t: TestApp, fake: PayFake, http: Server
+let sales: Agent, owner: Agent, bench: Agent, manager: Agent
+let customerId: number
+
+beforeAll(async () => {
+  fake = await startPayFake()
+  t = await createTestApp({ PAY_FAKE_URL: fake.url })
+  http = createServer(t.app)
+  await new Promise<void>((r) => http.listen(0, '127.0.0.1', () => r()))
+  fake.webhookUrl = `http://127.0.0.1:${(http.address() as AddressInfo).port}/api/payments/webhook`
+  ;[sales, owner, bench, manager] = await Promise.all([signedIn(t.app, 'sales'), signedIn(t.app, 'owner'), signedIn(t.app, 'bench'), signedIn(t.app, 'manager')])
+  customerId = Number((await t.pool.query('select min(id) as id from customers')).rows[0].id)
+})
+afterAll(async () => { await new Promise((r) => http?.close(r)); await fake?.close(); await t?.close() })
+
+const count = async (sql: string, args: unknown[] = []) => Number((await t.pool.query(sql, args)).rows[0].n)
+
+/** Hand-worked: price 1,250.00 GBP = 125000 pence; deposit 30 % = 375.00 (37500); balance 875.00 (87500). */
+async function sentQuote(title = 'Engagement ring') {
+  const q = await sales.post('/api/quotes', { customerId, title, priceMinor: 125000, currency: 'GBP' })
+  expect(q.status, JSON.stringify(q.body)).toBe(201)
+  const s = await sales.post(`/api/quotes/${q.body.id}/send`, { version: q.body.version })
+  expect(s.status, JSON.stringify(s.body)).toBe(200)
+  return s.body
+}
+const sessionOf = (url: string) => url.split('/pay/')[1]!
+
+describe('quotes and deposits', () => {
+  it('when a quote of 1,250.00 GBP is drafted with the 30 % default, then the deposit is 375.00 and the balance 875.00 in minor units', async () => {
+    const q = await sentQuote()
+    expect(q).toMatchObject({ status: 'sent', currency: 'GBP', priceMinor: 125000, depositMinor: 37500, balanceMinor: 87500 })
+    expect(q.links).toHaveLength(1)
+    expect(q.links[0]).toMatchObject({ purpose: 'deposit', amountMinor: 37500, currency: 'GBP', status: 'open' })
+    // The provider was asked for the same amount (its session, made by the SDK's real call).
+    expect(fake.sessions.get(sessionOf(q.links[0].url))).toMatchObject({ amount_total: 37500, currency: 'gbp' })
+  })
+
+  it('when the customer pays the deposit on the hosted page, then the signed webhook books it once and the quote is accepted with its order', async () => {
+    const q = await sentQuote()
+    const declined = await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.declined)
+    expect(declined.outcome).toBe('declined')
+    expect(await count('select count(*) as n from payments where quote_id = $1', [q.id])).toBe(0)
+    const r = await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
+    expect(r.delivery?.status, r.delivery?.body).toBe(200)
+    const after = (await sales.get(`/api/quotes/${q.id}`)).body
+    expect(after.status).toBe('accepted')
+    expect(after.orderId).toBeTypeOf('number')
+    expect(after.paidMinor).toBe(37500)
+    const money = (await sales.get(`/api/orders/${after.orderId}/money`)).body
+    expect(money).toMatchObject({ priceMinor: 125000, depositMinor: 37500, paidMinor: 37500, owedMinor: 87500, depositPaid: true, currency: 'GBP' })
+    // A receipt went to the outbox.
+    expect(await count("select count(*) as n from outbox where kind = 'payment-receipt' and order_id = $1", [after.orderId])).toBe(1)
+  })
+
+  it('when a forged signature arrives, then it is refused with 400 and nothing is booked', async () => {
+    const q = await sentQuote()
+    const s = fake.sessions.get(sessionOf(q.links[0].url))!
+    const forged = { id: 'evt_forged_1', object: 'event' as const, type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false as const, api_version: 'x', data: { object: { ...s, status: 'complete', payment_status: 'paid', payment_intent: 'pi_forged' } } }
+    const d = await fake.deliver(forged, { secret: 'whsec_someone_else' })
+    expect(d.status).toBe(400)
+    expect(JSON.parse(d.body).fields).toHaveProperty('Stripe-Signature')
+    expect(await count("select count(*) as n from payments where provider_ref = 'pi_forged'")).toBe(0)
+    expect(await count("select count(*) as n from provider_events where id = 'evt_forged_1'")).toBe(0)
+    expect((await sales.get(`/api/quotes/${q.id}`)).body.status).toBe('sent')
+  })
+
+  it('when the same event is replayed, then it is booked once', async () => {
+    const q = await sentQuote()
+    await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
+    const ev = fake.events.at(-1)!
+    const again = await fake.deliver(ev)
+    expect(again.status).toBe(200)
+    expect(await count('select count(*) as n from payments where quote_id = $1', [q.id])).toBe(1)
+  })
+
+  it('when 20 deliveries of one event arrive at once, then one payment and one order are booked', async () => {
+    const q = await sentQuote('Signet ring')
+    const s = fake.sessions.get(sessionOf(q.links[0].url))!
+    s.status = 'complete'; s.payment_status = 'paid'; s.payment_intent = 'pi_concurrent_1'
+    const ev = { id: 'evt_concurrent_1', object: 'event' as const, type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false as const, api_version: 'x', data: { object: { ...s } } }
+    const before = await count('select count(*) as n from orders')
+    const all = await Promise.all(Array.from({ length: 20 }, () => fake.deliver(ev)))
+    expect(all.map((d) => d.status)).toEqual(Array(20).fill(200))
+    expect(await count("select count(*) as n from payments where provider_ref = 'pi_concurrent_1'")).toBe(1)
+    expect(await count('select count(*) as n from orders')).toBe(before + 1)
+  })
+
+  it('when a card needs a second step, then nothing is booked until it is confirmed', async () => {
+    const q = await sentQuote()
+    const r = await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.confirm)
+    expect(r.outcome).toBe('confirm')
+    expect(await count('select count(*) as n from payments where quote_id = $1', [q.id])).toBe(0)
+    const page = await fetch(`${fake.url}/pay/${sessionOf(q.links[0].url)}/confirm`, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'answer=yes' })
+    expect(await page.text()).toContain('Paid')
+    expect(await count('select count(*) as n from payments where quote_id = $1', [q.id])).toBe(1)
+  })
+
+  it('when a withdrawn quote is paid anyway, then the payment is on the "to refund" list and the owner alone refunds it through the provider', async () => {
+    const q = await sentQuote()
+    const session = sessionOf(q.links[0].url)
+    const w = await sales.post(`/api/quotes/${q.id}/withdraw`, { version: q.version })
+    expect(w.body.status).toBe('withdrawn')
+    // The page closed with the provider; a payment already under way still arrives (simulated by reopening it).
+    fake.sessions.get(session)!.status = 'open'
+    await fake.pay(session, TEST_CARDS.paid)
+    const list = (await sales.get('/api/payments/to-refund')).body as { id: number; quoteId: number; amountMinor: number }[]
+    const p = list.find((x) => x.quoteId === q.id)!
+    expect(p.amountMinor).toBe(37500)
+    expect((await sales.get(`/api/quotes/${q.id}`)).body.status).toBe('withdrawn')
+    expect((await sales.post(`/api/payments/${p.id}/refund`, {})).status).toBe(403)
+    expect((await manager.post(`/api/payments/${p.id}/refund`, {})).status).toBe(403)
+    const r = await owner.post(`/api/payments/${p.id}/refund`, { note: 'quote withdrawn' })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    expect(r.body).toMatchObject({ amountMinor: -37500, purpose: 'refund', method: 'card' })
+    expect(r.body.providerRef).toMatch(/^re_/)
+    expect(((await sales.get('/api/payments/to-refund')).body as { quoteId: number }[]).some((x) => x.quoteId === q.id)).toBe(false)
+  })
+
+  it('when sales records cash for the balance, then the order owes nothing, with who recorded it; bench users see no money', async () => {
+    const q = await sentQuote()
+    await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
+    const orderId = (await sales.get(`/api/quotes/${q.id}`)).body.orderId
+    const cash = await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', purpose: 'balance', amountMinor: 87500 })
+    expect(cash.status, JSON.stringify(cash.body)).toBe(201)
+    expect(cash.body).toMatchObject({ method: 'cash', amountMinor: 87500, currency: 'GBP', recordedByName: expect.any(String) })
+    expect((await sales.get(`/api/orders/${orderId}/money`)).body).toMatchObject({ paidMinor: 125000, owedMinor: 0 })
+    expect((await manager.post(`/api/orders/${orderId}/payments`, { method: 'cash', amountMinor: 100 })).status).toBe(403)
+    expect((await bench.get(`/api/orders/${orderId}/money`)).status).toBe(403)
+    expect((await bench.get(`/api/quotes/${q.id}`)).status).toBe(403)
+    const bad = await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', amountMinor: 12.5 })
+    expect(bad.status).toBe(400)
+    expect(bad.body.fields).toHaveProperty('amountMinor')
+  })
+
+  it('when the owner asks for the CSV and the summary, then the hand-worked amounts appear in major units and by ISO week', async () => {
+    const csv = await owner.get('/api/payments/export.csv')
+    expect(csv.status).toBe(200)
+    expect(csv.text).toContain(',375.00,GBP,')
+    expect(csv.text).toContain(',875.00,GBP,')
+    expect(csv.text).toContain(',-375.00,GBP,')
+    const s = await owner.get('/api/payments/summary')
+    expect(s.status).toBe(200)
+    expect(s.body.weeks.every((w: { week: string }) => /^\d{4}-W\d{2}$/.test(w.week))).toBe(true)
+    expect((await sales.get('/api/payments/summary')).status).toBe(403)
+  })
+})

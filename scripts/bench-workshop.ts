@@ -1,5 +1,5 @@
 // Benchmark at workshop scale on generated workshops: time to a first valid plan, tardiness after 2 s, memory, and the EDD baseline.
-// usage: npm run bench:workshop [-- --long SECONDS]   (the long run on 200 job bags, default 60 s; 0 skips it)
+// usage: npm run bench:workshop [-- --long SECONDS] [--cpu-clock]   (the long run on 200 job bags, default 60 s; 0 skips it)
 import { mkdirSync, writeFileSync } from 'node:fs'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
@@ -9,7 +9,9 @@ import { compile, decode, toPlan } from '../server/scheduler/decode.ts'
 import { earliestDueDateKeys } from '../server/scheduler/search.ts'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
-const clock = () => performance.now()
+// --cpu-clock: budgets in this process's CPU time instead of wall time (steadier while others share the machine).
+const cpuClock = process.argv.includes('--cpu-clock')
+const clock = cpuClock ? () => { const u = process.cpuUsage(); return (u.user + u.system) / 1000 } : () => performance.now()
 let peakRss = 0, peakHeap = 0
 const sample = (): void => { const m = process.memoryUsage(); peakRss = Math.max(peakRss, m.rss); peakHeap = Math.max(peakHeap, m.heapUsed) }
 const mb = (b: number) => Math.round(b / 2 ** 20)
@@ -38,13 +40,13 @@ const results: Record<string, unknown> = {}
   const violations = validatePlan(problem, plan).length
   const ratio = base.plan.score.weightedTardiness > 0 ? plan.score.weightedTardiness / base.plan.score.weightedTardiness : 1
   results.workshop200 = {
-    jobs: 200, operations: problem.operations.length, firstValidPlanMs: plan.stats.firstPlanMs, budgetMs: 2000, wallMs: wall, iterations: plan.stats.iterations,
+    jobs: 200, operations: problem.operations.length, firstValidPlanMs: plan.stats.firstPlanMs, budgetMs: 2000, wallMs: wall, iterations: plan.stats.iterations, evaluations: plan.stats.evaluations,
     weightedTardiness: plan.score.weightedTardiness, makespan: plan.score.makespan, violations,
     baselineEdd: { weightedTardiness: base.plan.score.weightedTardiness, ms: base.ms, violations: base.violations }, ratioToBaseline: ratio, trace,
   }
-  console.log('200 job bags × 6 ops (8 benches, 6 people)')
+  console.log(`200 job bags × 6 ops (8 benches, 6 people)${cpuClock ? ', budgets in CPU time of this process' : ''}`)
   console.log(`  first valid plan        ${plan.stats.firstPlanMs.toFixed(0)} ms (target < 300 ms)`)
-  console.log(`  weighted tardiness 2 s  ${plan.score.weightedTardiness} min·weight after ${plan.stats.iterations} iterations, ${violations} violations`)
+  console.log(`  weighted tardiness 2 s  ${plan.score.weightedTardiness} min·weight, ${plan.stats.evaluations ?? plan.stats.iterations} evaluated moves (target ≥ 20,000), ${violations} violations`)
   console.log(`  EDD baseline            ${base.plan.score.weightedTardiness} min·weight (${base.ms.toFixed(0)} ms, ${base.violations} violations)`)
   console.log(`  ours / baseline         ${ratio.toFixed(3)}`)
   // The same engine given a long budget (--long S, default 60; 0 skips): how far the 2 s result is from it.
@@ -53,8 +55,8 @@ const results: Record<string, unknown> = {}
   if (long > 0) {
     const lp = solve(problem, { seed: 1, timeLimitMs: long * 1000 }, { clock })
     const gap = lp.score.weightedTardiness > 0 ? (plan.score.weightedTardiness / lp.score.weightedTardiness - 1) * 100 : 0
-    console.log(`  ${long} s budget            ${lp.score.weightedTardiness} min·weight after ${lp.stats.iterations} iterations; 2 s result is ${gap.toFixed(1)} % above it (target ≤ 3 %)`)
-    results.workshop200long = { budgetMs: long * 1000, weightedTardiness: lp.score.weightedTardiness, iterations: lp.stats.iterations, twoSecondsAbovePercent: gap }
+    console.log(`  ${long} s budget            ${lp.score.weightedTardiness} min·weight after ${lp.stats.evaluations ?? lp.stats.iterations} evaluated moves; 2 s result is ${gap.toFixed(1)} % above it (target ≤ 3 %)`)
+    results.workshop200long = { budgetMs: long * 1000, weightedTardiness: lp.score.weightedTardiness, iterations: lp.stats.iterations, evaluations: lp.stats.evaluations, twoSecondsAbovePercent: gap }
   }
 }
 

@@ -20,7 +20,43 @@ export interface PairShop {
   /** Per job; Infinity when the job has no due date. */
   due: Float64Array
   weight: Float64Array
+  /** Elapsed minutes after a step before its job successors may start (holds nothing); zero when absent. */
+  lag?: Int32Array
+  /**
+   * Routing arcs beyond the chains (branches and joins): step x also waits for extraPred[extraPredStart[x]..extraPredStart[x+1])
+   * and holds back extraSucc[extraSuccStart[x]..extraSuccStart[x+1]). Every sink of a job but its chain's last step must reach
+   * that step through these arcs, so the last step's end is the job's completion.
+   */
+  extra?: { predStart: Int32Array; pred: Int32Array; succStart: Int32Array; succ: Int32Array }
+  /** Working calendars: when present, an option's start and end follow its calendar instead of start + duration. */
+  calendar?: PairCalendar
 }
+
+/**
+ * Calendars for the pair core, in minutes from the core's time zero. optCal[o] >= 0: the option works only inside window list
+ * optCal[o] (its windows are winStart/winEnd[calOffset[c]..calOffset[c+1]), with winCum the working minutes before each window)
+ * and takes optDur[o] working minutes, resuming at the next window when one ends; -1: plain, start + optDur[o]; -2: outside work
+ * that leaves at its start and comes back at the end of the optDur[o]-th day in days (sorted day starts and ends) opening at or
+ * after it. Beyond the last window an option ends at FAR.
+ */
+export interface PairCalendar {
+  optCal: Int32Array
+  calOffset: Int32Array
+  winStart: Float64Array
+  winEnd: Float64Array
+  winCum: Float64Array
+  /**
+   * Per window, the last window of its stretch: windows apart only by time the bench and the person are both away (night, a
+   * shared break). A step does not run on past its stretch's end, where it would hold its bench or person through time the other
+   * could work with someone else: it starts at the next stretch instead, unless it fits in none.
+   */
+  winStretchLast: Int32Array
+  dayStart: Float64Array
+  dayEnd: Float64Array
+}
+
+/** Where a calendar runs out: far enough to dominate any objective, small enough for Int32 arithmetic. */
+export const FAR = 1 << 29
 
 export type PairObjective = 'weightedTardiness' | 'makespan'
 
@@ -33,6 +69,12 @@ export interface PairSettings {
   maxIterations?: number
   shouldStop?: () => boolean
   onImprove?: (value: number, iteration: number) => void
+  /** Each new best schedule: options and starts (read them before returning; the arrays are reused). */
+  onBest?: (option: Int32Array, start: Int32Array) => void
+  /** Schedules to start from as well (each step's option and a start order): sequences are the steps in that order. */
+  initial?: { option: Int32Array; start: Float64Array }[]
+  /** Skip the dispatching rules when an initial schedule is given (they are slow on calendars). */
+  initialOnly?: boolean
 }
 
 export interface PairSolution {
@@ -77,7 +119,61 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const rng: Rng = createRng(settings.seed)
   const twtMode = settings.objective === 'weightedTardiness'
   const lastOf = new Int32Array(jobs).fill(-1)
-  for (let i = 0; i < n; i++) if (jobSucc[i]! < 0) lastOf[jobOf[i]!] = i
+  const lag = s.lag ?? new Int32Array(n)
+  const xps = s.extra?.predStart ?? new Int32Array(n + 1), xp = s.extra?.pred ?? new Int32Array(0)
+  const xss = s.extra?.succStart ?? new Int32Array(n + 1), xs = s.extra?.succ ?? new Int32Array(0)
+  for (let i = 0; i < n; i++) if (jobSucc[i]! < 0 && xss[i + 1] === xss[i]) lastOf[jobOf[i]!] = i
+  const hasExtra = xp.length > 0
+  const cal = s.calendar
+  const optCal = cal?.optCal, calOffset = cal?.calOffset, winStart = cal?.winStart, winEnd = cal?.winEnd, winCum = cal?.winCum
+  const stretchLast = cal?.winStretchLast
+  const dayStart = cal?.dayStart, dayEnd = cal?.dayEnd
+  /** First moment at or after t when option o can work. */
+  const startAt = (o: number, t: number): number => {
+    const c = optCal![o]!
+    if (c < 0) return t
+    let lo = calOffset![c]!, hi = calOffset![c + 1]!
+    const last = hi
+    while (lo < hi) { const mid = (lo + hi) >> 1; if (winEnd![mid]! > t) hi = mid; else lo = mid + 1 }
+    if (lo >= last) return FAR
+    let st = winStart![lo]! > t ? winStart![lo]! : t
+    const d = optDur[o]!
+    for (let guard = 0; guard < 16; guard++) {
+      const sl = stretchLast![lo]!
+      if (winCum![lo]! + (st - winStart![lo]!) + d <= winCum![sl]! + winEnd![sl]! - winStart![sl]!) return st
+      const nk = sl + 1
+      if (nk >= last) return st
+      const nl = stretchLast![nk]!
+      if (winCum![nl]! + winEnd![nl]! - winStart![nl]! - winCum![nk]! < d) return st
+      lo = nk; st = winStart![nk]!
+    }
+    return st
+  }
+  /** End of option o's work started at s (a moment startAt gave). */
+  const endAt = (o: number, st: number): number => {
+    const c = optCal![o]!
+    const d = optDur[o]!
+    if (c === -1) return st + d
+    if (c === -2) {
+      let lo = 0, hi = dayStart!.length
+      while (lo < hi) { const mid = (lo + hi) >> 1; if (dayStart![mid]! >= st) hi = mid; else lo = mid + 1 }
+      const k = lo + d - 1
+      return k < dayStart!.length ? dayEnd![k]! : FAR
+    }
+    if (st >= FAR) return FAR
+    if (d <= 0) return st
+    let lo = calOffset![c]!, hi = calOffset![c + 1]!
+    const last = hi
+    while (lo < hi) { const mid = (lo + hi) >> 1; if (winEnd![mid]! > st) hi = mid; else lo = mid + 1 }
+    if (lo >= last) return FAR
+    // Working minutes counted from the calendar's start: the end is where they reach the start's count plus d.
+    const goal = winCum![lo]! + (st - winStart![lo]!) + d
+    if (goal <= winCum![lo]! + winEnd![lo]! - winStart![lo]!) return st + d
+    hi = last
+    while (lo < hi) { const mid = (lo + hi) >> 1; if (winCum![mid]! + winEnd![mid]! - winStart![mid]! >= goal) hi = mid; else lo = mid + 1 }
+    if (lo >= last) return FAR
+    return winStart![lo]! + (goal - winCum![lo]!)
+  }
 
   // Current solution: option, duration, resources, and the two kinds of sequences as linked lists.
   const opt = new Int32Array(n), p = new Int32Array(n)
@@ -127,6 +223,10 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   // Longest paths (heads) by Kahn's order into r; returns the objective or Infinity on a cycle.
   const indeg = new Int32Array(n), topo = new Int32Array(n)
   const rCur = new Int32Array(n), rTmp = new Int32Array(n)
+  // Ends, and the moment each step was ready (before its calendar let it start), beside the heads.
+  const eCur = new Int32Array(n), eTmp = new Int32Array(n), yCur = new Int32Array(n), yTmp = new Int32Array(n)
+  const endsOf = (r: Int32Array): Int32Array => (r === rCur ? eCur : eTmp)
+  const readyOf = (r: Int32Array): Int32Array => (r === rCur ? yCur : yTmp)
   const comp = new Float64Array(jobs)
   let evaluations = 0
   let lastMakespan = 0, lastTwt = 0
@@ -135,20 +235,27 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   /** Kahn's order from the qt ready operations in topo (indegrees set): heads into r; returns the latest end, from `cmax` up. */
   const propagate = (r: Int32Array, qt: number, cmax: number): number => {
     const pm = pred[M]!, pw = pred[W]!, sm = succ[M]!, sw = succ[W]!
+    const en = endsOf(r), y = readyOf(r)
     let qh = 0
     while (qh < qt) {
       const x = topo[qh++]!
       let rx = release[x]!
       const a = jobPred[x]!, b = pm[x]!, c = pw[x]!
-      if (a >= 0) { const e = r[a]! + p[a]!; if (e > rx) rx = e }
-      if (b >= 0) { const e = r[b]! + p[b]!; if (e > rx) rx = e }
-      if (c >= 0) { const e = r[c]! + p[c]!; if (e > rx) rx = e }
+      if (a >= 0) { const e = en[a]! + lag[a]!; if (e > rx) rx = e }
+      if (b >= 0) { const e = en[b]!; if (e > rx) rx = e }
+      if (c >= 0) { const e = en[c]!; if (e > rx) rx = e }
+      for (let q = xps[x]!; q < xps[x + 1]!; q++) { const z = xp[q]!; const e = en[z]! + lag[z]!; if (e > rx) rx = e }
+      y[x] = rx
+      let ex: number
+      if (cal) { const o = opt[x]!; rx = startAt(o, rx); ex = endAt(o, rx) } else ex = rx + p[x]!
       r[x] = rx
-      if (rx + p[x]! > cmax) cmax = rx + p[x]!
+      en[x] = ex
+      if (ex > cmax) cmax = ex
       const js = jobSucc[x]!, ms = sm[x]!, ws = sw[x]!
       if (js >= 0 && --indeg[js]! === 0) topo[qt++] = js
       if (ms >= 0 && --indeg[ms]! === 0) topo[qt++] = ms
       if (ws >= 0 && --indeg[ws]! === 0) topo[qt++] = ws
+      for (let q = xss[x]!; q < xss[x + 1]!; q++) { const z = xs[q]!; if (--indeg[z]! === 0) topo[qt++] = z }
     }
     passed = qt
     return cmax
@@ -157,7 +264,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     evaluations++
     let qt = 0
     for (let i = 0; i < n; i++) {
-      const d = (jobPred[i]! >= 0 ? 1 : 0) + (pred[M]![i]! >= 0 ? 1 : 0) + (pred[W]![i]! >= 0 ? 1 : 0)
+      const d = (jobPred[i]! >= 0 ? 1 : 0) + (pred[M]![i]! >= 0 ? 1 : 0) + (pred[W]![i]! >= 0 ? 1 : 0) + xps[i + 1]! - xps[i]!
       indeg[i] = d
       if (d === 0) topo[qt++] = i
     }
@@ -166,16 +273,17 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     if (r === rCur) {
       topoCur.set(topo)
       let mx = 0
-      for (let k = 0; k < n; k++) { const x = topo[k]!; pos[x] = k; prefMax[k] = mx; if (r[x]! + p[x]! > mx) mx = r[x]! + p[x]! }
+      for (let k = 0; k < n; k++) { const x = topo[k]!; pos[x] = k; prefMax[k] = mx; if (eCur[x]! > mx) mx = eCur[x]! }
       prefMax[n] = mx
     }
     return finish(r, cmax)
   }
   const finish = (r: Int32Array, cmax: number): number => {
     let twt = 0
+    const en = endsOf(r)
     for (let j = 0; j < jobs; j++) {
       const l = lastOf[j]!
-      const c = l >= 0 ? r[l]! + p[l]! : 0
+      const c = l >= 0 ? en[l]! : 0
       comp[j] = c
       if (c > due[j]!) twt += weight[j]! * (c - due[j]!)
     }
@@ -187,15 +295,16 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   /** Heads after a move, into rTmp: positions before the first touched one keep the current heads; the rest by Kahn's order. */
   const evaluateMove = (): number => {
     const from = touched
-    if (from >= n) { rTmp.set(rCur); return finish(rTmp, prefMax[n]!) }
+    if (from >= n) { rTmp.set(rCur); eTmp.set(eCur); yTmp.set(yCur); return finish(rTmp, prefMax[n]!) }
     evaluations++
-    rTmp.set(rCur)
+    rTmp.set(rCur); eTmp.set(eCur); yTmp.set(yCur)
     const pm = pred[M]!, pw = pred[W]!
     let qt = 0
     for (let k = from; k < n; k++) {
       const x = topoCur[k]!
       const a = jobPred[x]!, b = pm[x]!, c = pw[x]!
-      const d = (a >= 0 && pos[a]! >= from ? 1 : 0) + (b >= 0 && pos[b]! >= from ? 1 : 0) + (c >= 0 && pos[c]! >= from ? 1 : 0)
+      let d = (a >= 0 && pos[a]! >= from ? 1 : 0) + (b >= 0 && pos[b]! >= from ? 1 : 0) + (c >= 0 && pos[c]! >= from ? 1 : 0)
+      for (let q = xps[x]!; q < xps[x + 1]!; q++) if (pos[xp[q]!]! >= from) d++
       indeg[x] = d
       if (d === 0) topo[qt++] = x
     }
@@ -226,8 +335,9 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
         let bf = Infinity, bo = -1, be = 0
         for (let o = optStart[x]!; o < optStart[x + 1]!; o++) {
           const w = optWorker[o]!
-          const e = Math.max(e0, mReady[optMachine[o]!]!, w >= 0 ? wReady[w]! : 0)
-          const f = e + optDur[o]!
+          let e = Math.max(e0, mReady[optMachine[o]!]!, w >= 0 ? wReady[w]! : 0)
+          let f: number
+          if (cal) { e = startAt(o, e); f = endAt(o, e) } else f = e + optDur[o]!
           if (f < bf) { bf = f; bo = o; be = e }
         }
         bestOpt[x] = bo; bestEst[x] = be; bestFin[x] = bf
@@ -256,7 +366,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       linkAfter(M, x, k, mLast[k]!); mLast[k] = x; mReady[k] = bestFin[x]!
       if (w >= 0) { linkAfter(W, x, w, wLast[w]!); wLast[w] = x; wReady[w] = bestFin[x]! } else res[W]![x] = -1
       const js = jobSucc[x]!
-      if (js >= 0) ready[js] = bestFin[x]!
+      if (js >= 0) ready[js] = bestFin[x]! + lag[x]!
       heads[pick] = js
     }
   }
@@ -279,10 +389,33 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   }
   const best = { opt: new Int32Array(n), order: [[], []] as number[][][] }
   let bestVal = Infinity
-  for (let rule = 0; rule < (twtMode ? 4 : 3); rule++) {
+  const inits = settings.initial ?? []
+  const init = inits[0]
+  for (const init of inits) {
+    undo.length = 0
+    for (const t of [M, W]) { pred[t]!.fill(-1); succ[t]!.fill(-1); head[t]!.fill(-1); res[t]!.fill(-1) }
+    const byStart = Array.from({ length: n }, (_, i) => i).sort((a, b) => init.start[a]! - init.start[b]! || a - b)
+    const mLast = new Int32Array(s.machines).fill(-1), wLast = new Int32Array(Math.max(1, s.workers)).fill(-1)
+    for (const x of byStart) {
+      const o = init.option[x]!
+      opt[x] = o; p[x] = optDur[o]!
+      const k = optMachine[o]!, w = optWorker[o]!
+      linkAfter(M, x, k, mLast[k]!); mLast[k] = x
+      if (w >= 0) { linkAfter(W, x, w, wLast[w]!); wLast[w] = x } else res[W]![x] = -1
+    }
+    const v = evaluate(rCur)
+    if (v < bestVal) { bestVal = v; snapshot(best) }
+  }
+  if (!init || !(settings.initialOnly || hasExtra)) for (let rule = 0; rule < (twtMode ? 4 : 3); rule++) {
     build(rule)
     const v = evaluate(rCur)
     if (v < bestVal) { bestVal = v; snapshot(best) }
+  }
+  if (!Number.isFinite(bestVal)) {
+    // No schedule to start from (an initial order with a cycle and no rule to build one): give the initial back untouched.
+    const start = new Int32Array(n), end = new Int32Array(n)
+    if (init) for (let i = 0; i < n; i++) { start[i] = Math.round(init.start[i]!); end[i] = start[i]! }
+    return { option: init ? new Int32Array(init.option) : new Int32Array(optStart.subarray(0, n)), start, end, weightedTardiness: Infinity, makespan: Infinity, iterations: 0, evaluations, firstMs: settings.clock() - t0 }
   }
   restore(best)
   let cur = evaluate(rCur)
@@ -314,9 +447,11 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       back.push(x)
       const a = jobPred[x]!, b = pred[M]![x]!, c = pred[W]![x]!
       const cand: number[] = [], ct: number[] = []
-      if (b >= 0 && rCur[b]! + p[b]! === rCur[x]!) { cand.push(b); ct.push(M) }
-      if (c >= 0 && rCur[c]! + p[c]! === rCur[x]!) { cand.push(c); ct.push(W) }
-      if (a >= 0 && rCur[a]! + p[a]! === rCur[x]!) { cand.push(a); ct.push(-1) }
+      const y = yCur[x]!
+      if (b >= 0 && eCur[b]! === y) { cand.push(b); ct.push(M) }
+      if (c >= 0 && eCur[c]! === y) { cand.push(c); ct.push(W) }
+      if (a >= 0 && eCur[a]! + lag[a]! === y) { cand.push(a); ct.push(-1) }
+      for (let q = xps[x]!; q < xps[x + 1]!; q++) { const z = xp[q]!; if (eCur[z]! + lag[z]! === y) { cand.push(z); ct.push(-1) } }
       if (cand.length === 0) { types.push(-2); break }
       const k = rng.int(cand.length)
       types.push(ct[k]!)
@@ -388,9 +523,10 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       const x = topoCur[k]!
       let qx = 0
       const a = jobSucc[x]!, b = sm[x]!, c = sw[x]!
-      if (a >= 0) { const e = p[a]! + qCur[a]!; if (e > qx) qx = e }
-      if (b >= 0) { const e = p[b]! + qCur[b]!; if (e > qx) qx = e }
-      if (c >= 0) { const e = p[c]! + qCur[c]!; if (e > qx) qx = e }
+      if (a >= 0) { const e = lag[x]! + eCur[a]! - rCur[a]! + qCur[a]!; if (e > qx) qx = e }
+      if (b >= 0) { const e = eCur[b]! - rCur[b]! + qCur[b]!; if (e > qx) qx = e }
+      if (c >= 0) { const e = eCur[c]! - rCur[c]! + qCur[c]!; if (e > qx) qx = e }
+      for (let q = xss[x]!; q < xss[x + 1]!; q++) { const z = xs[q]!; const e = lag[x]! + eCur[z]! - rCur[z]! + qCur[z]!; if (e > qx) qx = e }
       qCur[x] = qx
     }
   }
@@ -400,17 +536,20 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const reassignEstimate = (u: number, o: number): number => {
     const k = optMachine[o]!, w = optWorker[o]!
     const jp = jobPred[u]!, js = jobSucc[u]!
-    let h = Math.max(release[u]!, jp >= 0 ? rCur[jp]! + p[jp]! : 0)
-    let t = js >= 0 ? p[js]! + qCur[js]! : 0
+    let h = Math.max(release[u]!, jp >= 0 ? eCur[jp]! + lag[jp]! : 0)
+    let t = js >= 0 ? lag[u]! + eCur[js]! - rCur[js]! + qCur[js]! : 0
+    for (let q = xps[u]!; q < xps[u + 1]!; q++) { const z = xp[q]!; h = Math.max(h, eCur[z]! + lag[z]!) }
+    for (let q = xss[u]!; q < xss[u + 1]!; q++) { const z = xs[q]!; t = Math.max(t, lag[u]! + eCur[z]! - rCur[z]! + qCur[z]!) }
     const around = (tt: number, kk: number): void => {
       let a = -1, b = head[tt]![kk]!
       for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) { if (x === u) { b = succ[tt]![x]!; continue } if (rCur[x]! < rCur[u]! || (rCur[x]! === rCur[u]! && x < u)) { a = x; b = succ[tt]![x]! } else break }
       if (b === u) b = succ[tt]![u]!
-      if (a >= 0) h = Math.max(h, rCur[a]! + p[a]!)
-      if (b >= 0) t = Math.max(t, p[b]! + qCur[b]!)
+      if (a >= 0) h = Math.max(h, eCur[a]!)
+      if (b >= 0) t = Math.max(t, eCur[b]! - rCur[b]! + qCur[b]!)
     }
     around(M, k)
     if (w >= 0) around(W, w)
+    if (cal) { const st = startAt(o, h); return endAt(o, st) + t }
     return h + optDur[o]! + t
   }
 
@@ -510,6 +649,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     if (cur < bestVal - 1e-12) {
       bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best)
       settings.onImprove?.(twtMode ? lastTwt : lastMakespan, iter)
+      settings.onBest?.(opt, rCur)
     } else if (iter - lastImprove > maxStall) perturb()
   }
 
@@ -520,7 +660,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     failedKicks = bestVal < kickBase ? 0 : failedKicks + 1
     kickBase = bestVal
     const from = rng.next()
-    if (from < RESTART_FRESH) { build(4); undo.length = 0 }
+    if (from < RESTART_FRESH && !hasExtra) { build(4); undo.length = 0 }
     else if (from < RESTART_FRESH + RESTART_BEST) restore(best)
     cur = evaluate(rCur)
     tabuBefore?.fill(0); tabuMap?.clear(); tabuOpt.fill(0)
@@ -540,12 +680,11 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     cur = evaluate(rCur)
     lastImprove = iter
     episodeBest = cur
-    if (cur < bestVal) { bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best); settings.onImprove?.(twtMode ? lastTwt : lastMakespan, iter) }
+    if (cur < bestVal) { bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best); settings.onImprove?.(twtMode ? lastTwt : lastMakespan, iter); settings.onBest?.(opt, rCur) }
   }
 
   restore(best)
   evaluate(rCur)
-  const end = new Int32Array(n)
-  for (let i = 0; i < n; i++) end[i] = rCur[i]! + p[i]!
+  const end = new Int32Array(eCur)
   return { option: new Int32Array(opt), start: new Int32Array(rCur), end, weightedTardiness: lastTwt, makespan: lastMakespan, iterations: iter, evaluations, firstMs }
 }

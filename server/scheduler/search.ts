@@ -1,10 +1,13 @@
 // Workshop planning search: due-date-aware dispatching rules for a first plan, then late-acceptance local search along the chains that make jobs late.
-import type { Objective, SolveHooks } from './model.ts'
-import { compareDecoded, decode, type Compiled, type Decoded, Why } from './decode.ts'
+import type { Interval, Objective, SolveHooks } from './model.ts'
+import { compareDecoded, decode, type Compiled, type CompiledOption, type Decoded, Why } from './decode.ts'
 import { createRng } from './random.ts'
+import { clipToWindows } from './calendar.ts'
 import { solvePairShop, type PairShop } from './pair-core.ts'
 
-/** Share of the remaining budget given to the calendar-free sketch before the calendar search. */
+/** Share of the remaining budget given to the search on the disjunctive graph with calendars before the decoder's own search. */
+const GRAPH_SHARE = 0.6
+/** Share of the remaining budget given first to the calendar-free sketch. */
 const SKETCH_SHARE = 0.3
 
 /**
@@ -54,7 +57,147 @@ function sketchShop(c: Compiled): { shop: PairShop; real: Uint8Array } {
   }
 }
 
-export interface GeneralResult { decoded: Decoded; iterations: number; firstPlanMs: number; previous?: { weightedTardiness: number; makespan: number } }
+/** The sorted, disjoint list less the sorted cuts. */
+function subtract(list: Interval[], cuts: Interval[]): Interval[] {
+  if (cuts.length === 0) return list
+  const out: Interval[] = []
+  let k = 0
+  for (const w of list) {
+    let s = w.start
+    while (k < cuts.length && cuts[k]!.end <= s) k++
+    for (let q = k; q < cuts.length && cuts[q]!.start < w.end; q++) {
+      if (cuts[q]!.start > s) out.push({ start: s, end: cuts[q]!.start })
+      if (cuts[q]!.end > s) s = cuts[q]!.end
+    }
+    if (s < w.end) out.push({ start: s, end: w.end })
+  }
+  return out
+}
+
+/**
+ * The workshop as a disjunctive graph for the pair core: each step's bench and person sequences, its minutes walked through the
+ * pair's joint working time (less the time pinned or running work holds), waits as delays on the job arc, outside work in
+ * workshop days, pinned and running work kept where it is (on a machine of its own). Each job bag's steps form one chain in
+ * routing order (branches run one after the other here; the decoder lets them overlap again).
+ */
+export function calendarShop(c: Compiled, first: Decoded, also: { option: Int32Array; order: Float64Array }[] = []): { shop: PairShop; real: Uint8Array; initial: { option: Int32Array; start: Float64Array }[] } {
+  const n = c.n, p = c.problem, now = p.now
+  // Sequences in the first plan's order of ends (then starts, then routing order): work the decoder slipped into the gap of
+  // an interrupted step goes before it, as it must where a step holds its bench and person until it ends. Every arc of the
+  // graph then runs forward in this order, so the first plan is a schedule of the graph.
+  const rank = new Float64Array(n)
+  topologicalOrder(c).forEach((i, k) => { rank[i] = k })
+  const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => first.end[a]! - first.end[b]! || first.start[a]! - first.start[b]! || rank[a]! - rank[b]!)
+  const at = new Float64Array(n)
+  order.forEach((i, k) => { at[i] = k })
+  // Routing arcs: one chain arc into and out of each step where free, the others (branches, joins) as extra arcs; a job's
+  // other sinks lead to its last one, so that step's end is the job's completion.
+  const jobPred = new Int32Array(n).fill(-1), jobSucc = new Int32Array(n).fill(-1)
+  const extraIn: number[][] = Array.from({ length: n }, () => [])
+  const lastSink = new Int32Array(c.jobs.length).fill(-1)
+  for (const i of order) {
+    for (const q of c.preds[i]!) {
+      if (jobPred[i]! < 0 && jobSucc[q]! < 0) { jobPred[i] = q; jobSucc[q] = i } else extraIn[i]!.push(q)
+    }
+    if (c.succs[i]!.length === 0) lastSink[c.jobOf[i]!] = i
+  }
+  for (let i = 0; i < n; i++) {
+    const last = lastSink[c.jobOf[i]!]!
+    if (c.succs[i]!.length === 0 && i !== last) { if (jobPred[last]! < 0 && jobSucc[i]! < 0) { jobPred[last] = i; jobSucc[i] = last } else extraIn[last]!.push(i) }
+  }
+  const predStart = new Int32Array(n + 1), succStart = new Int32Array(n + 1)
+  const extraOut: number[][] = Array.from({ length: n }, () => [])
+  for (let i = 0; i < n; i++) for (const q of extraIn[i]!) extraOut[q]!.push(i)
+  const xPred: number[] = [], xSucc: number[] = []
+  for (let i = 0; i < n; i++) { predStart[i] = xPred.length; xPred.push(...extraIn[i]!); succStart[i] = xSucc.length; xSucc.push(...extraOut[i]!) }
+  predStart[n] = xPred.length; succStart[n] = xSucc.length
+  // Time held by pinned and running work on each bench and person: other work goes round it.
+  const busyBench: Interval[][] = p.benches.map(() => []), busyPerson: Interval[][] = p.people.map(() => [])
+  for (let i = 0; i < n; i++) {
+    const f = c.fixedAt[i]
+    if (!f || c.outsideDays[i]! > 0) continue
+    for (const g of first.segments[i]!) {
+      if (g.end <= g.start) continue
+      if (f.option.bench >= 0) busyBench[f.option.bench]!.push(g)
+      if (f.option.person >= 0) busyPerson[f.option.person]!.push(g)
+    }
+  }
+  for (const l of [...busyBench, ...busyPerson]) l.sort((a, b) => a.start - b.start)
+  const calIds = new Map<string, number>()
+  const calOffset: number[] = [0], ws: number[] = [], we: number[] = [], wc: number[] = [], wl: number[] = []
+  const minutesIn = (list: Interval[], a: number, b: number): number => { let m = 0; for (const g of clipToWindows(list, a, b)) m += g.end - g.start; return m }
+  const calendarOf = (o: CompiledOption): number => {
+    const key = `${o.bench}/${o.person}`
+    let id = calIds.get(key)
+    if (id === undefined) {
+      let w = o.windows
+      if (o.bench >= 0) w = subtract(w, busyBench[o.bench]!)
+      if (o.person >= 0) w = subtract(w, busyPerson[o.person]!)
+      let cum = 0
+      const base = ws.length
+      for (const x of w) { ws.push(x.start - now); we.push(x.end - now); wc.push(cum); cum += x.end - x.start }
+      // Stretches end where pinned work holds the pair: a step does not run round other work.
+      for (let k = w.length - 1; k >= 0; k--) {
+        const next = w[k + 1]
+        const hole = !next || minutesIn(o.windows, w[k]!.end, next.start) > 0
+        wl[base + k] = hole ? base + k : wl[base + k + 1]!
+      }
+      id = calOffset.length - 1
+      calOffset.push(ws.length)
+      calIds.set(key, id)
+    }
+    return id
+  }
+  const optStart = new Int32Array(n + 1)
+  const machine: number[] = [], worker: number[] = [], dur: number[] = [], optCal: number[] = []
+  const release = new Int32Array(n), lag = new Int32Array(n)
+  const real = new Uint8Array(n)
+  let extra = c.benchCount
+  for (let i = 0; i < n; i++) {
+    optStart[i] = machine.length
+    release[i] = Math.max(0, Math.round(c.earliest[i]! - now))
+    lag[i] = Math.round(c.waitAfter[i]!)
+    const opts = c.options[i]!
+    if (c.fixedAt[i]) {
+      // Kept where it is: from its start, for as long as the first plan gives it.
+      release[i] = Math.round(first.start[i]! - now)
+      machine.push(extra++); worker.push(-1); optCal.push(-1); dur.push(Math.max(0, Math.round(first.end[i]! - first.start[i]!)))
+      continue
+    }
+    if (c.outsideDays[i]! > 0) { machine.push(extra++); worker.push(-1); optCal.push(-2); dur.push(c.outsideDays[i]!); continue }
+    if (opts.length === 0 || opts.some((o) => o.bench < 0)) {
+      const m = opts.find((o) => o.minutes > 0)
+      machine.push(extra++); worker.push(-1); optCal.push(m ? calendarOf(m) : -1); dur.push(Math.max(0, Math.round(m?.minutes ?? 0)))
+      continue
+    }
+    real[i] = 1
+    for (const o of opts) { machine.push(o.bench); worker.push(o.person); optCal.push(calendarOf(o)); dur.push(Math.max(0, Math.round(o.minutes))) }
+  }
+  optStart[n] = machine.length
+  const days = p.workshopDays
+  const initial = [{ option: first.option, order: at }, ...also].map((x) => {
+    const option = new Int32Array(n)
+    for (let i = 0; i < n; i++) option[i] = optStart[i]! + (real[i] && x.option[i]! >= 0 && x.option[i]! < c.options[i]!.length ? x.option[i]! : 0)
+    return { option, start: x.order }
+  })
+  return {
+    real,
+    initial,
+    shop: {
+      n, machines: extra, workers: c.personCount, jobs: c.jobs.length, jobOf: Int32Array.from(c.jobOf), jobPred, jobSucc,
+      optStart, optMachine: Int32Array.from(machine), optWorker: Int32Array.from(worker), optDur: Int32Array.from(dur), release,
+      due: Float64Array.from(c.jobs, (j) => (j.due === null ? Infinity : j.due - now)), weight: Float64Array.from(c.jobs, (j) => j.weight),
+      lag,
+      extra: { predStart, pred: Int32Array.from(xPred), succStart, succ: Int32Array.from(xSucc) },
+      calendar: {
+        optCal: Int32Array.from(optCal), calOffset: Int32Array.from(calOffset), winStart: Float64Array.from(ws), winEnd: Float64Array.from(we),
+        winCum: Float64Array.from(wc), winStretchLast: Int32Array.from(wl), dayStart: Float64Array.from(days, (d) => d.start - now), dayEnd: Float64Array.from(days, (d) => d.end - now),
+      },
+    },
+  }
+}
+
+export interface GeneralResult { decoded: Decoded; iterations: number; firstPlanMs: number; evaluations: number; previous?: { weightedTardiness: number; makespan: number } }
 
 /** Remaining work from each operation's start to its job's end, in working minutes (shortest options), plus waits. */
 function tails(c: Compiled): Float64Array {
@@ -93,7 +236,7 @@ function calendarFactor(c: Compiled): number {
 }
 
 /** Priority keys of the dispatching rules tried for the first plan (lower = earlier). */
-function dispatchKeys(c: Compiled): Float64Array[] {
+export function dispatchKeys(c: Compiled): Float64Array[] {
   const tail = tails(c)
   const f = calendarFactor(c)
   const far = c.problem.horizon * 2
@@ -162,10 +305,10 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
     previous = { weightedTardiness: d.weightedTardiness, makespan: d.makespan }
     if (!best || compareDecoded(d, best, obj) <= 0) { best = d; bestKey = key; bestChoice = choice }
   }
-  let iterations = 0
+  let iterations = 0, evaluations = 0
   if (!best) throw new Error('no dispatching rule produced a plan')
   hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: firstPlanMs })
-  const done = (): GeneralResult => ({ decoded: best!, iterations, firstPlanMs, ...(previous ? { previous } : {}) })
+  const done = (): GeneralResult => ({ decoded: best!, iterations, firstPlanMs, evaluations: evaluations + iterations, ...(previous ? { previous } : {}) })
   if (n === 0) return done()
 
   // A calendar-free sketch of the workshop, searched on the disjunctive graph for part of the budget; its order and its bench and
@@ -173,18 +316,59 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   const sketchMs = Math.max(0, (opts.deadline - clock()) * SKETCH_SHARE)
   if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && sketchMs >= 50 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
     const now = clock()
-    const share = sketchMs
     const sketch = sketchShop(c)
+    // The sketch's weighted tardiness only estimates the plan's: its better schedules are decoded on the calendars as they come
+    // (while that takes at most a quarter of the time), and the last one in any case.
+    let pending: { option: Int32Array; start: Int32Array } | null = null, decodeMs = 0, decodes = 0
+    const tryDecode = (option: Int32Array, start: Int32Array): void => {
+      const a = clock()
+      const key = new Float64Array(n), choice = new Int32Array(n).fill(-1)
+      for (let i = 0; i < n; i++) {
+        key[i] = start[i]! + i * 1e-9
+        const k = option[i]! - sketch.shop.optStart[i]!
+        if (sketch.real[i] && k >= 0 && k < c.options[i]!.length) choice[i] = k
+      }
+      let low = Infinity
+      for (let i = 0; i < n; i++) if (key[i]! < low) low = key[i]!
+      for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
+      for (const ch of [choice, new Int32Array(n).fill(-1)]) {
+        const d = decode(c, key, ch)
+        decodes++
+        if (compareDecoded(d, best!, obj) < 0) { best = d; bestKey = key; bestChoice = ch.slice() }
+      }
+      decodeMs += clock() - a
+    }
     const r = solvePairShop(sketch.shop, {
-      seed: opts.seed, objective: 'weightedTardiness', deadline: now + share, clock,
+      seed: opts.seed, objective: 'weightedTardiness', deadline: now + sketchMs, clock,
+      maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
+      ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
+      onBest: (option, start) => {
+        if (decodeMs * 4 < clock() - now) { pending = null; tryDecode(option, start) } else pending = { option: option.slice(), start: start.slice() }
+      },
+    })
+    evaluations += r.evaluations
+    if (pending || decodes === 0) tryDecode(r.option, r.start)
+    hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: clock() - t0 })
+  }
+
+  // The workshop on the disjunctive graph with its calendars, searched for most of the budget: each candidate move is timed
+  // exactly on the calendars, re-timing only the steps after the first one it touches. Its order and bench and person choices
+  // go through the decoder (which lets branches overlap again and fills gaps, so it is never later) and are kept when better.
+  const graphMs = Math.max(0, (opts.deadline - clock()) * GRAPH_SHARE)
+  if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && graphMs >= 20 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
+    const now = clock()
+    const graph = calendarShop(c, best)
+    const r = solvePairShop(graph.shop, {
+      seed: opts.seed, objective: 'weightedTardiness', deadline: now + graphMs, clock, initial: graph.initial, initialOnly: true,
       maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
       ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
     })
+    evaluations += r.evaluations
     const key = new Float64Array(n), choice = new Int32Array(n).fill(-1)
     for (let i = 0; i < n; i++) {
       key[i] = r.start[i]! + i * 1e-9
-      const k = r.option[i]! - sketch.shop.optStart[i]!
-      if (sketch.real[i] && k >= 0 && k < c.options[i]!.length) choice[i] = k
+      const k = r.option[i]! - graph.shop.optStart[i]!
+      if (graph.real[i] && k >= 0 && k < c.options[i]!.length) choice[i] = k
     }
     // Keep what must go first for pins in front.
     let low = Infinity
@@ -196,6 +380,7 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
     }
     hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: clock() - t0 })
   }
+
 
   let curKey: Float64Array = bestKey.slice(), curChoice: Int32Array = bestChoice.slice(), cur = best
   const historyLen = 40

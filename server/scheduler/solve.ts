@@ -62,6 +62,7 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
     decoded = r.decoded
     iterations = r.iterations
     firstPlanMs = r.firstPlanMs
+    evaluations = r.evaluations
     previousScore = r.previous
   }
   assertWithinHorizon(c, decoded)

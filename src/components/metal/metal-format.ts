@@ -1,0 +1,66 @@
+// Metal on screen: grams to 0.01, percentages, money from integer minor units in the workshop's currency, the alloy a piece's metal
+// code means, the tablet's remembered container weight, and CSV made in the browser.
+import type { Alloy, LossRow } from '@shared/schemas/metal'
+import { PIECE_METAL_ALLOY } from '@shared/domain/metal'
+
+const locale = () => (typeof navigator !== 'undefined' && navigator.language ? navigator.language : 'en-GB')
+
+/** 12 → "12.00 g" (always two decimals: the bench scale's step). */
+export const fmtG = (g: number | null | undefined): string => (g === null || g === undefined || !Number.isFinite(g) ? '—' : `${g.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })} g`)
+/** Milligrams as grams to 0.01 g. */
+export const fmtMg = (mg: number | null | undefined): string => (mg === null || mg === undefined ? '—' : fmtG(mg / 1000))
+/** 2.08 → "2.1 %". */
+export const fmtPct = (p: number | null | undefined): string => (p === null || p === undefined || !Number.isFinite(p) ? '—' : `${p.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 })} %`)
+
+/** Minor units per major unit of a currency as Intl (ISO 4217) has it: GBP → 2 digits, JPY → 0. */
+export function currencyDigits(currency: string): number {
+  try { return new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2 } catch { return 2 }
+}
+/** An amount held in integer minor units, written by the browser's locale in the workshop's currency. */
+export function fmtMoney(minor: number | null | undefined, currency: string): string {
+  if (minor === null || minor === undefined || !Number.isFinite(minor)) return '—'
+  try { return new Intl.NumberFormat(locale(), { style: 'currency', currency }).format(minor / 10 ** currencyDigits(currency)) } catch { return `${minor} (minor units of ${currency})` }
+}
+/** A major-unit figure typed in a form (34.5) as whole minor units (3450). */
+export const toMinor = (major: number, currency: string): number => Math.round(major * 10 ** currencyDigits(currency))
+
+/** The first active alloy of the piece's metal code (e.g. gold-14k → a 585 gold), or null. */
+export function alloyForPieceMetal(alloys: readonly Alloy[], pieceMetal: string | null | undefined): Alloy | null {
+  const want = pieceMetal ? PIECE_METAL_ALLOY[pieceMetal] : undefined
+  if (!want) return null
+  return alloys.find((a) => a.active && a.metal === want.metal && a.fineness === want.fineness) ?? null
+}
+
+const TARE_KEY = 'millgrain.metal.containerG'
+/** The container weight this tablet remembers (0 when none). */
+export function loadTare(): number {
+  try { const v = Number(globalThis.localStorage?.getItem(TARE_KEY)); return Number.isFinite(v) && v > 0 ? v : 0 } catch { return 0 }
+}
+export function saveTare(g: number) {
+  try { if (g > 0) globalThis.localStorage?.setItem(TARE_KEY, String(g)); else globalThis.localStorage?.removeItem(TARE_KEY) } catch { /* private mode: not remembered */ }
+}
+
+/** Scale reading minus the container, rounded to 0.01 g (floating point never leaves a 0.009999). */
+export const netOf = (readingG: number, tareG: number): number => Math.round((readingG - tareG) * 100) / 100
+
+const csvCell = (v: unknown) => {
+  const s = v === null || v === undefined ? '' : String(v)
+  return /[",\n\r]/.test(s) || /^[=+\-@]/.test(s) ? `"${(/^[=+\-@]/.test(s) ? `'${s}` : s).replace(/"/g, '""')}"` : s
+}
+/** A loss table as CSV: a name column first, then the figures, and the total last. */
+export function lossCsv(first: string, rows: readonly LossRow[], total: LossRow | null): string {
+  const head = [first, 'units', 'issued g', 'returned g', 'loss g', 'loss %', 'loss fine g', 'over tolerance']
+  const line = (r: LossRow) => [r.label, r.n, r.issuedG.toFixed(2), r.returnedG.toFixed(2), r.lossG.toFixed(2), r.lossPct ?? '', r.lossFineG.toFixed(3), r.overTolerance].map(csvCell).join(',')
+  return [head.join(','), ...rows.map(line), ...(total ? [line(total)] : [])].join('\r\n') + '\r\n'
+}
+/** Hands a text file to the browser's download. */
+export function downloadText(name: string, text: string, type = 'text/csv;charset=utf-8') {
+  const url = URL.createObjectURL(new Blob([text], { type }))
+  const a = document.createElement('a')
+  a.href = url
+  a.download = name
+  document.body.appendChild(a)
+  a.click()
+  a.remove()
+  setTimeout(() => URL.revokeObjectURL(url), 1000)
+}

@@ -1,6 +1,6 @@
 // Money for commissions: quotes sent to customers, the payments taken against orders (deposit, balance, refunds), and the
 // payment provider's events as received, so each is booked once. Amounts are integer minor units with their currency.
-import { boolean, date, index, integer, jsonb, pgTable, text, uniqueIndex } from 'drizzle-orm/pg-core'
+import { type AnyPgColumn, boolean, date, index, integer, jsonb, pgTable, text, uniqueIndex } from 'drizzle-orm/pg-core'
 import { createdAt, instant, pk, version } from './common'
 import { customers, orders } from './work'
 import { users, workshops } from './workshop'
@@ -72,11 +72,13 @@ export const payments = pgTable('payments', {
   providerRef: text(),
   /** A payment that arrived for a withdrawn quote or an order that owes nothing: listed to be refunded. */
   toRefund: boolean().notNull().default(false),
+  /** For a refund: the payment it gives money back from (null for other rows). */
+  refundOf: integer().references((): AnyPgColumn => payments.id, { onDelete: 'set null' }),
   note: text().notNull().default(''),
   recordedBy: integer().references(() => users.id, { onDelete: 'set null' }),
   receivedAt: instant().notNull(),
   createdAt: createdAt(),
-}, (t) => [uniqueIndex().on(t.providerRef), index().on(t.orderId), index().on(t.workshopId, t.receivedAt)])
+}, (t) => [uniqueIndex().on(t.providerRef), index().on(t.orderId), index().on(t.workshopId, t.receivedAt), index().on(t.refundOf)])
 
 /** Every provider event as received (signature already checked): the event id is unique, so a replay is a no-op. */
 export const providerEvents = pgTable('provider_events', {

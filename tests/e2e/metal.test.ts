@@ -17,8 +17,8 @@ async function page(email: string, viewport = { width: 1280, height: 800 }): Pro
   await p.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
   return p
 }
-/** Grams as the screens write them: two decimals, en-GB grouping. */
-const g = (mg: number) => `${(mg / 1000).toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })} g`
+/** Grams as the screens write them: two decimals (the scale's step) or, for stock, three (to the milligram); en-GB grouping. */
+const g = (mg: number, digits = 2) => `${(mg / 1000).toLocaleString('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits })} g`
 
 describe('metal on the bench and the owner’s metal screen', () => {
   it('when the setter weighs 13.50 g in a 1.50 g container out and 11.20 + 0.35 + 0.20 g back, then the card shows loss 0.25 g and 2.1 % and the ledger holds the milligrams', async () => {
@@ -110,7 +110,7 @@ describe('metal on the bench and the owner’s metal screen', () => {
       from alloys a left join metal_movements m on m.alloy_id = a.id group by a.code`)
     expect(sums.length).toBeGreaterThan(0)
     for (const s of sums) {
-      await expect.poll(() => owner.locator(`[data-test="stock-balance-${s.code}"]`).innerText(), { timeout: 15_000 }).toBe(g(s.balance))
+      await expect.poll(() => owner.locator(`[data-test="stock-balance-${s.code}"]`).innerText(), { timeout: 15_000 }).toBe(g(s.balance, 3))
     }
     expect(sums.some((s) => s.balance !== 0), 'the demo holds some stock').toBe(true)
 

@@ -9,6 +9,8 @@ const locale = () => (typeof navigator !== 'undefined' && navigator.language ? n
 export const fmtG = (g: number | null | undefined): string => (g === null || g === undefined || !Number.isFinite(g) ? '—' : `${g.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })} g`)
 /** Milligrams as grams to 0.01 g. */
 export const fmtMg = (mg: number | null | undefined): string => (mg === null || mg === undefined ? '—' : fmtG(mg / 1000))
+/** Milligrams as grams to the milligram (stock and refining reconcile to 1 mg): 214553 → "214.553 g". */
+export const fmtMg3 = (mg: number | null | undefined): string => (mg === null || mg === undefined ? '—' : `${(mg / 1000).toLocaleString('en-GB', { minimumFractionDigits: 3, maximumFractionDigits: 3 })} g`)
 /** 2.08 → "2.1 %". */
 export const fmtPct = (p: number | null | undefined): string => (p === null || p === undefined || !Number.isFinite(p) ? '—' : `${p.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 })} %`)
 

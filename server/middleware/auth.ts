@@ -83,8 +83,9 @@ export function configurePassport(db: Db) {
 
 /**
  * How long after its last extension a session's expiry is moved forward again: a twentieth of its idle window, at most
- * ten minutes. Until then requests leave the session row alone (a write on every request cost a third of the board's
- * throughput on the durable database), so a session idle for its whole window minus at most this step is signed out.
+ * ten minutes. Until then requests leave the session row alone (on a durable database a committed write on every
+ * request cost a third or more of the board's throughput). So an idle session is signed out after its window minus at
+ * most one step, and one that is used at least once per window minus one step is never signed out.
  */
 export function sessionExtendStepMs(idleWindowMs: number): number {
   return Math.min(idleWindowMs / 20, 10 * 60_000)

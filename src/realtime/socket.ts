@@ -9,6 +9,7 @@ export type ConnectionState = 'connecting' | 'connected' | 'reconnecting' | 'off
 export const RECORDED_EVENTS = [
   'order:created', 'order:updated', 'operation:changed', 'jobBag:changed',
   'plan:drafted', 'plan:published', 'plan:discarded', 'plan:changed', 'masterdata:changed', 'file:added', 'file:removed',
+  'quote:changed', 'payment:received', 'payment:refunded', 'paymentLink:created',
 ] as const satisfies readonly EventName[]
 export const LIVE_ONLY_EVENTS = ['plan:progress'] as const satisfies readonly EventName[]
 

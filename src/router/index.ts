@@ -10,6 +10,7 @@ const comingSoon = () => import('@/views/ComingSoonView.vue')
 const laterOr = (name: string): (() => Promise<RouteComponent>) => (later[`../views/${name}.vue`] as (() => Promise<RouteComponent>) | undefined) ?? comingSoon
 
 export const routes: RouteRecordRaw[] = [
+  { path: '/payment-done', name: 'payment-done', component: () => import('@/views/PaymentDoneView.vue'), meta: { public: true, title: 'Payment' } },
   { path: '/sign-in', name: 'sign-in', component: () => import('@/views/SignInView.vue'), meta: { guestOnly: true, title: 'Sign in' } },
   {
     path: '/',
@@ -21,6 +22,7 @@ export const routes: RouteRecordRaw[] = [
       { path: 'job-bags/:id(\\d+)', name: 'job-bag', component: () => import('@/views/JobBagView.vue'), meta: { roles: ['owner', 'manager', 'bench', 'sales'], title: 'Job bag' } },
       { path: 'orders/:id(\\d+)?', name: 'orders', component: () => import('@/views/OrdersView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Orders' } },
       { path: 'promise', name: 'promise', component: laterOr('PromiseView'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Promise check' } },
+      { path: 'quotes/:id(\\d+)?', name: 'quotes', component: () => import('@/views/QuotesView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Quotes' } },
       { path: 'outbox', name: 'outbox', component: () => import('@/views/OutboxView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Sent e-mail' } },
       { path: 'customers', name: 'customers', component: () => import('@/views/CustomersView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Customers' } },
       { path: 'benches', name: 'benches', component: () => import('@/views/BenchesView.vue'), meta: { roles: ['owner', 'manager'], title: 'Benches' } },
@@ -29,6 +31,7 @@ export const routes: RouteRecordRaw[] = [
       { path: 'routings', name: 'routings', component: () => import('@/views/RoutingsView.vue'), meta: { roles: ['owner', 'manager'], title: 'Routings' } },
       { path: 'metal', name: 'metal', component: () => import('@/views/MetalView.vue'), meta: { roles: ['owner', 'manager'], title: 'Metal' } },
       { path: 'insights', name: 'insights', component: laterOr('InsightsView'), meta: { roles: ['owner'], title: 'Insights' } },
+      { path: 'money', name: 'money', component: () => import('@/views/MoneyView.vue'), meta: { roles: ['owner'], title: 'Money' } },
       { path: 'team', name: 'team', component: () => import('@/views/TeamView.vue'), meta: { roles: ['owner'], title: 'Team access' } },
       { path: 'settings', name: 'settings', component: () => import('@/views/SettingsView.vue'), meta: { roles: ['owner'], title: 'Workshop settings' } },
       { path: 'not-allowed', name: 'not-allowed', component: () => import('@/views/NotAllowedView.vue'), meta: { title: 'Not for your role' } },

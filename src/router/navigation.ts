@@ -1,7 +1,7 @@
 // What each role sees in the navigation, and where each role lands after signing in.
 import type { Role } from '@shared/domain/roles'
 
-export type NavIcon = 'plan' | 'orders' | 'promise' | 'customers' | 'benches' | 'people' | 'calendar' | 'routings' | 'queue' | 'insights' | 'team' | 'settings' | 'outbox' | 'metal'
+export type NavIcon = 'plan' | 'orders' | 'promise' | 'customers' | 'benches' | 'people' | 'calendar' | 'routings' | 'queue' | 'insights' | 'team' | 'settings' | 'outbox' | 'quotes' | 'money' | 'metal'
 
 export interface NavItem { to: string; label: string; icon: NavIcon; roles: Role[]; /** Label for a role that only reads here. */ readOnlyFor?: Role[] }
 export interface NavSection { title: string; items: NavItem[] }
@@ -20,6 +20,7 @@ export const NAV: NavSection[] = [
     title: 'Clients',
     items: [
       { to: '/customers', label: 'Customers', icon: 'customers', roles: ['owner', 'manager', 'sales'] },
+      { to: '/quotes', label: 'Quotes', icon: 'quotes', roles: ['owner', 'manager', 'sales'] },
       { to: '/outbox', label: 'Sent e-mail', icon: 'outbox', roles: ['owner', 'manager', 'sales'] },
     ],
   },
@@ -37,6 +38,7 @@ export const NAV: NavSection[] = [
     title: 'Owner’s desk',
     items: [
       { to: '/insights', label: 'Insights', icon: 'insights', roles: ['owner'] },
+      { to: '/money', label: 'Money', icon: 'money', roles: ['owner'] },
       { to: '/team', label: 'Team access', icon: 'team', roles: ['owner'] },
       { to: '/settings', label: 'Workshop settings', icon: 'settings', roles: ['owner'] },
     ],

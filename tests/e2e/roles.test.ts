@@ -13,10 +13,10 @@ afterAll(async () => {
 
 // The navigation each role is meant to have (product decision in the team brief).
 const EXPECTED: Record<Role, { home: string; nav: string[] }> = {
-  owner: { home: '/orders', nav: ['/plan', '/bench', '/orders', '/promise', '/customers', '/outbox', '/benches', '/people', '/calendar', '/routings', '/insights', '/team', '/settings'] },
-  manager: { home: '/plan', nav: ['/plan', '/orders', '/promise', '/customers', '/outbox', '/benches', '/people', '/calendar', '/routings'] },
+  owner: { home: '/orders', nav: ['/plan', '/bench', '/orders', '/promise', '/customers', '/quotes', '/outbox', '/benches', '/people', '/calendar', '/metal', '/routings', '/insights', '/money', '/team', '/settings'] },
+  manager: { home: '/plan', nav: ['/plan', '/orders', '/promise', '/customers', '/quotes', '/outbox', '/benches', '/people', '/calendar', '/metal', '/routings'] },
   bench: { home: '/bench', nav: ['/bench'] },
-  sales: { home: '/orders', nav: ['/plan', '/orders', '/promise', '/customers', '/outbox'] },
+  sales: { home: '/orders', nav: ['/plan', '/orders', '/promise', '/customers', '/quotes', '/outbox'] },
 }
 
 describe('roles in the browser', () => {

@@ -33,8 +33,8 @@ export function launchChromium(extraArgs: string[] = []): Promise<Browser> {
   })
 }
 
-/** Starts the server (port 0) on a copy of the seeded database, with the built client from dist/, and Chromium. */
-export async function startE2E(): Promise<E2E> {
+/** Starts the server (port 0) on a copy of the seeded database, with the built client from dist/, and Chromium; `env` adds settings (e.g. PAY_FAKE_URL). */
+export async function startE2E(o: { env?: Record<string, string> } = {}): Promise<E2E> {
   const db = await createTestDb()
   const server = await startServer(
     loadConfig({
@@ -45,6 +45,7 @@ export async function startE2E(): Promise<E2E> {
       CLIENT_DIR: process.env.E2E_CLIENT_DIR ?? join(ROOT, 'dist'),
       NODE_ENV: 'test',
       LOGIN_ATTEMPTS_PER_15_MIN: '1000',
+      ...o.env,
     }),
   )
   const browser = await launchChromium()

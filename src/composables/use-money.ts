@@ -1,0 +1,51 @@
+// Money on screen: integer minor units from the API shown in the workshop's currency, formatted by the browser's locale.
+
+/** The browser's preferred locale (falls back to en-GB where there is none, e.g. in tests without a navigator). */
+export function browserLocale(): string {
+  if (typeof navigator !== 'undefined' && navigator.language) return navigator.language
+  return 'en-GB'
+}
+
+const formats = new Map<string, Intl.NumberFormat>()
+function currencyFormat(currency: string, locale: string): Intl.NumberFormat {
+  const key = `${locale}|${currency}`
+  let f = formats.get(key)
+  if (!f) {
+    f = new Intl.NumberFormat(locale, { style: 'currency', currency })
+    formats.set(key, f)
+  }
+  return f
+}
+
+/** How many minor units make one major unit of a currency, as Intl (ISO 4217) has it: GBP 2 → 100, JPY 0 → 1. */
+export function minorDigits(currency: string): number {
+  return new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2
+}
+
+/** An amount in minor units (e.g. 23400 pence) as the browser's locale writes it in that currency ("£234.00" in en-GB). */
+export function formatMinor(minor: number | null | undefined, currency: string, locale = browserLocale()): string {
+  if (minor === null || minor === undefined || !Number.isFinite(minor)) return '—'
+  const digits = minorDigits(currency)
+  return currencyFormat(currency, locale).format(minor / 10 ** digits)
+}
+
+/** A major-unit figure typed in a form (e.g. 234.5) as integer minor units (23450), rounded to the nearest unit. */
+export function toMinor(major: number, currency: string): number {
+  return Math.round(major * 10 ** minorDigits(currency))
+}
+
+/** Minor units back to a major-unit figure for a number input (23450 → 234.5). */
+export function toMajor(minor: number, currency: string): number {
+  return minor / 10 ** minorDigits(currency)
+}
+
+/** The workshop's money rules as the settings carry them (defaults until the settings are loaded). */
+export interface WorkshopMoneyRules { currency: string; depositPct: number; quoteValidDays: number; noMetalBeforeDeposit: boolean }
+export function moneyRules(settings: Partial<WorkshopMoneyRules> | null | undefined): WorkshopMoneyRules {
+  return {
+    currency: settings?.currency || 'GBP',
+    depositPct: settings?.depositPct ?? 30,
+    quoteValidDays: settings?.quoteValidDays ?? 30,
+    noMetalBeforeDeposit: settings?.noMetalBeforeDeposit ?? false,
+  }
+}

@@ -1,0 +1,230 @@
+// Quotes and deposits in Chromium: sales quotes from the promise check and from an order, e-mails it, the customer pays the deposit
+// on the local fake's hosted payment page (a declined card first), the order turns paid live, the owner sees the week's money.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { BrowserContext, Page } from 'playwright-core'
+import { startPayFake, TEST_CARDS, type PayFake } from '../../server/dev/pay-fake'
+import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+
+let e2e: E2E
+let fake: PayFake
+let salesContext: BrowserContext
+let customerContext: BrowserContext
+let page: Page
+beforeAll(async () => {
+  fake = await startPayFake()
+  e2e = await startE2E({ env: { PAY_FAKE_URL: fake.url } })
+  fake.webhookUrl = `${e2e.url}/api/payments/webhook`
+  // The provider sends the customer back to the workshop's public address: this test's server.
+  await e2e.db.pool.query(`update workshops set public_url = $1`, [e2e.url])
+  salesContext = await e2e.newContext()
+  // The customer: a browser of their own, never signed in.
+  customerContext = await e2e.newContext()
+  page = await signInPage(salesContext, 'sales')
+}, 120_000)
+afterAll(async () => {
+  await salesContext?.close()
+  await customerContext?.close()
+  await e2e?.close()
+  await fake?.close()
+})
+
+/** An Element Plus field's input, whether the data-test attribute lands on the input itself or on its wrapper. */
+const field = (scope: Page | ReturnType<Page['locator']>, name: string) => scope.locator(`input[data-test=${name}], [data-test=${name}] input`).first()
+const text = async (scope: Page, sel: string) => ((await scope.locator(sel).first().textContent()) ?? '').replace(/\s+/g, ' ').trim()
+/** Pounds as en-GB writes them (the browser context's locale), by Intl (ICU) — the figures below are also written out by hand. */
+const gbp = (minor: number) => new Intl.NumberFormat('en-GB', { style: 'currency', currency: 'GBP' }).format(minor / 100)
+
+describe('quotes and deposits', () => {
+  let orderId = 0
+  let quoteNumber = ''
+  let linkUrl = ''
+
+  it('when sales writes a quote from a promise check and keeps it as a draft, then it keeps the routing, the promised date and how sure it is', async () => {
+    await page.goto('/promise')
+    await page.locator('[data-test=promise-template]').click()
+    await page.locator('.el-select-dropdown__item:visible').first().click()
+    const answer = page.waitForResponse((r) => r.url().endsWith('/api/promise/check') && r.request().method() === 'POST', { timeout: 30_000 })
+    await page.locator('[data-test=promise-check]').click()
+    const check = (await (await answer).json()) as { template: { id: number }; fixedPlan: { date: string }; range: { p50: { date: string }; p80: { date: string }; p95: { date: string } } | null }
+    await page.locator('[data-test=promise-make-quote]').click()
+    const dialog = page.locator('.el-dialog', { hasText: 'Quote from the promise check' })
+    await dialog.waitFor()
+    await dialog.locator('[data-test=quote-customer]').click()
+    await page.locator('.el-select-dropdown__item:visible').first().click()
+    await field(dialog, 'quote-price').fill('640')
+    await field(dialog, 'quote-title').click()
+    // 30 % of £640.00 is £192.00, leaving £448.00 (hand-worked).
+    await dialog.locator('[data-test=quote-deposit-amount]', { hasText: '£192.00 now, £448.00 at collection' }).waitFor()
+    await screenshot(page, 'payments-quote-from-promise', { fullPage: false })
+    await dialog.locator('[data-test=quote-save]').click()
+    const done = page.locator('[data-test=promise-quoted]')
+    await done.waitFor({ timeout: 15_000 })
+    const number = /Quote (\S+) kept as a draft/.exec(await done.textContent() ?? '')?.[1]
+    expect(number).toMatch(/^Q\d\d-\d{4}$/)
+    const { rows: [q] } = await e2e.db.pool.query(`select status, price_minor, deposit_minor, promised_date::text as promised, details, confidence from quotes where number = $1`, [number])
+    expect(q).toMatchObject({ status: 'drafted', price_minor: 64000, deposit_minor: 19200 })
+    expect(q.details.templateId).toBe(check.template.id)
+    // The suggested date: P80 when the range is later than the fixed plan, else the fixed-plan date (as the promise page keeps it).
+    const suggested = check.range && check.range.p80.date > check.fixedPlan.date ? check.range.p80.date : check.fixedPlan.date
+    expect(q.promised).toBe(suggested)
+    if (check.range) expect(q.confidence).toMatchObject({ p50: check.range.p50.date, p80: check.range.p80.date, p95: check.range.p95.date })
+  })
+
+  it('when sales writes a quote from an order and e-mails it, then the order shows the price and the deposit owed with a payment link', async () => {
+    const { rows: [ws] } = await e2e.db.pool.query(`select deposit_pct, currency from workshops`)
+    // The demo workshop asks 30 % and prices in pounds; the figures below are worked for that.
+    expect(ws).toEqual({ deposit_pct: 30, currency: 'GBP' })
+    const { rows: [o] } = await e2e.db.pool.query(`select o.id from orders o join customers c on c.id = o.customer_id
+      where o.status in ('open', 'quoted') and c.email <> '' and not exists (select 1 from payments p where p.order_id = o.id) and not exists (select 1 from quotes q where q.order_id = o.id)
+      order by o.id limit 1`)
+    expect(o, 'an open order of a customer with an e-mail').toBeTruthy()
+    orderId = o.id
+    await page.goto(`/orders/${orderId}`)
+    await page.locator('[data-test=order-money]').waitFor({ timeout: 15_000 })
+    await page.locator('[data-test=money-make-quote]').click()
+    const dialog = page.locator('.el-dialog', { hasText: 'Quote for order' })
+    await dialog.waitFor()
+    await field(dialog, 'quote-price').fill('1250')
+    await dialog.locator('[data-test=quote-description] textarea, textarea[data-test=quote-description]').first().fill('Made to the customer’s sketch, hallmarked.')
+    // 30 % of £1,250.00 is £375.00, leaving £875.00 at collection (hand-worked).
+    await dialog.locator('[data-test=quote-deposit-amount]', { hasText: '£375.00 now, £875.00 at collection' }).waitFor()
+    await dialog.locator('[data-test=quote-save-send]').click()
+    await dialog.waitFor({ state: 'hidden', timeout: 20_000 })
+    const { rows: [q] } = await e2e.db.pool.query(`select id, number, status, price_minor, deposit_minor from quotes where order_id = $1`, [orderId])
+    expect(q).toMatchObject({ status: 'sent', price_minor: 125000, deposit_minor: 37500 })
+    quoteNumber = q.number
+    const { rows: links } = await e2e.db.pool.query(`select url, amount_minor, status, purpose from payment_links where quote_id = $1`, [q.id])
+    expect(links).toHaveLength(1)
+    expect(links[0]).toMatchObject({ amount_minor: 37500, status: 'open', purpose: 'deposit' })
+    linkUrl = links[0].url
+    // The order's figures follow the quote, live (the panel reloads on the quote's and the link's events).
+    await page.locator('[data-test=money-deposit-state]', { hasText: 'deposit owed £375.00' }).waitFor({ timeout: 20_000 })
+    expect(await text(page, '[data-test=money-price]')).toBe('£1,250.00')
+    expect(await text(page, '[data-test=money-paid]')).toBe('£0.00')
+    expect(await text(page, '[data-test=money-owed]')).toBe('£1,250.00')
+    const open = page.locator('[data-test=order-money] [data-purpose=deposit][data-status=open] [data-test=link-open]')
+    await open.waitFor()
+    expect(await open.getAttribute('href')).toBe(linkUrl)
+    await screenshot(page, 'payments-order-owed', { fullPage: false })
+  })
+
+  it('when the customer’s card is declined on the payment page, then nothing is booked and the deposit stays owed', async () => {
+    const customer = await customerContext.newPage()
+    await customer.goto(linkUrl)
+    expect(await text(customer, '[data-test=amount]')).toBe('£375.00')
+    await customer.locator('#card').fill(TEST_CARDS.declined)
+    await customer.locator('button[type=submit]').click()
+    await customer.locator('[data-test=error]', { hasText: /declined/ }).waitFor()
+    await screenshot(customer, 'payments-card-declined', { fullPage: false })
+    await customer.close()
+    const { rows: [n] } = await e2e.db.pool.query(`select count(*)::int as n from payments where order_id = $1`, [orderId])
+    expect(n.n).toBe(0)
+    expect(await text(page, '[data-test=money-deposit-state]')).toBe('deposit owed £375.00')
+    expect(await text(page, '[data-test=money-paid]')).toBe('£0.00')
+  })
+
+  it('when the customer pays the deposit with the test card, then the sales screen turns the deposit paid live with £375.00', async () => {
+    // A mark on the sales page that a reload would wipe.
+    await page.evaluate(() => { (window as unknown as { stillHere: boolean }).stillHere = true })
+    const customer = await customerContext.newPage()
+    await customer.goto(linkUrl)
+    await customer.locator('#card').fill(TEST_CARDS.paid)
+    await customer.locator('button[type=submit]').click()
+    await customer.locator('[data-test=paid]').waitFor({ timeout: 20_000 })
+    await page.locator('[data-test=money-deposit-state]', { hasText: 'deposit paid' }).waitFor({ timeout: 30_000 })
+    expect(await page.evaluate(() => (window as unknown as { stillHere?: boolean }).stillHere)).toBe(true)
+    const { rows: [p] } = await e2e.db.pool.query(`select coalesce(sum(amount_minor), 0)::int as paid, count(*)::int as n, bool_and(method = 'card' and provider_ref is not null) as card from payments where order_id = $1 and not to_refund`, [orderId])
+    expect(p).toEqual({ paid: 37500, n: 1, card: true })
+    // £1,250.00 − £375.00 = £875.00 still owed (hand-worked); the screen agrees with the database.
+    await page.locator('[data-test=money-paid]', { hasText: gbp(p.paid) }).waitFor({ timeout: 10_000 })
+    expect(await text(page, '[data-test=money-paid]')).toBe('£375.00')
+    expect(await text(page, '[data-test=money-owed]')).toBe('£875.00')
+    expect(await text(page, '[data-test=money-payments]')).toContain('Card (online)')
+    await screenshot(page, 'payments-order-deposit-paid', { fullPage: false })
+    // Back to the workshop's page: thanks, and nothing about the workshop's own data.
+    await customer.locator('[data-test=back]').click()
+    await customer.locator('[data-test=payment-done]', { hasText: 'Thank you' }).waitFor()
+    await screenshot(customer, 'payments-customer-thanks', { fullPage: false })
+    await customer.close()
+  })
+
+  it('when the owner opens Money, then this week’s received amount is the database’s sum for the week', async () => {
+    const ownerContext = await e2e.newContext()
+    try {
+      const owner = await signInPage(ownerContext, 'owner')
+      await owner.goto('/money')
+      await owner.locator('[data-test=money-week-received]').waitFor({ timeout: 15_000 })
+      // The ISO week (Monday start) of now in the workshop's zone, by PostgreSQL.
+      const { rows: [w] } = await e2e.db.pool.query(`select coalesce(sum(amount_minor), 0)::int as received,
+          to_char(now() at time zone 'Europe/London', 'IYYY-"W"IW') as week from payments
+        where amount_minor > 0 and not to_refund and date_trunc('week', received_at at time zone 'Europe/London') = date_trunc('week', now() at time zone 'Europe/London')`)
+      expect(w.received).toBeGreaterThanOrEqual(37500)
+      expect(await text(owner, '[data-test=money-week-received]')).toBe(gbp(w.received))
+      const [year, week] = (w.week as string).split('-')
+      expect(await text(owner, '[data-test=money-this-week]')).toContain(`${week} ${year}`)
+      // Owed: each open order's price (its latest quote's, else the order's own price in pounds) less what is paid, never below nothing.
+      const { rows: [owed] } = await e2e.db.pool.query(`select coalesce(sum(greatest(0, price - paid)), 0)::int as owed from (
+          select coalesce((select q.price_minor from quotes q where q.order_id = o.id and q.status in ('accepted', 'sent', 'drafted') order by q.status = 'accepted' desc, q.id desc limit 1), round(o.price_quoted * 100)) as price,
+            coalesce((select sum(p.amount_minor) from payments p where p.order_id = o.id and not p.to_refund), 0) as paid
+          from orders o where o.status not in ('collected', 'cancelled')) t`)
+      expect(await text(owner, '[data-test=money-owed-total]')).toBe(gbp(owed.owed))
+      // The deposit paid on an order whose work has not started is held.
+      expect(await text(owner, '[data-test=money-held]')).toContain('£375.00')
+      await screenshot(owner, 'payments-owner-money')
+      // The owner sets the deposit asked by default and the quote validity; the database keeps them.
+      await owner.goto('/settings')
+      const rules = owner.locator('[data-test=settings-money]')
+      await field(rules, 'settings-deposit-pct').fill('40')
+      await field(rules, 'settings-quote-days').fill('21')
+      await rules.locator('[data-test=settings-no-metal]').click()
+      await rules.locator('[data-test=settings-money-save]').click()
+      await owner.getByText('Quote and deposit rules saved').waitFor()
+      const { rows: [ws] } = await e2e.db.pool.query(`select deposit_pct, quote_valid_days, no_metal_before_deposit from workshops`)
+      expect(ws).toEqual({ deposit_pct: 40, quote_valid_days: 21, no_metal_before_deposit: true })
+      await rules.scrollIntoViewIfNeeded()
+      await screenshot(owner, 'payments-owner-settings', { fullPage: false })
+    } finally {
+      await ownerContext.close()
+    }
+  })
+
+  it('when sales opens the sent e-mail page, then the quote’s e-mail to the customer carries the amounts and the payment link', async () => {
+    await page.goto('/outbox')
+    const row = page.locator('[data-test=outbox-table] .el-table__row', { hasText: quoteNumber })
+    await row.first().waitFor()
+    expect(await row.first().textContent()).toContain('Quote with payment link')
+    await row.first().click()
+    await page.locator('.el-drawer').getByText('Plain text').click()
+    const mail = (await page.locator('[data-test=outbox-text]').textContent()) ?? ''
+    expect(mail).toContain('£1,250.00')
+    expect(mail).toContain('£375.00')
+    expect(mail).toContain('£875.00')
+    expect(mail).toContain(linkUrl)
+    await page.locator('.el-drawer').getByText('As the customer sees it').click()
+    await screenshot(page, 'payments-outbox-quote', { fullPage: false })
+  })
+
+  it('when a bench user opens the job bag of the paid order, then no price or payment is shown', async () => {
+    const benchContext = await e2e.newContext()
+    try {
+      const bench = await signInPage(benchContext, 'bench')
+      const { rows: [b] } = await e2e.db.pool.query(`select id from job_bags where order_id = $1 order by id limit 1`, [orderId])
+      expect(b, 'the order has a job bag').toBeTruthy()
+      await bench.goto(`/job-bags/${b.id}`)
+      await bench.locator('[data-test=bag-number]').waitFor({ timeout: 15_000 })
+      expect(await bench.locator('[data-test=order-money]').count()).toBe(0)
+      expect(await bench.locator('body').textContent()).not.toMatch(/£\d/)
+      // Neither the quotes screen nor the money API is open to the bench.
+      await bench.goto('/quotes')
+      await bench.locator('[data-test=not-allowed]').waitFor()
+      const statuses = await bench.evaluate(async (id) => Promise.all([`/api/quotes`, `/api/orders/${id}/money`].map(async (u) => (await fetch(u)).status)), orderId)
+      expect(statuses).toEqual([403, 403])
+      // And the sales user sees the same bag with its money.
+      await page.goto(`/job-bags/${b.id}`)
+      await page.locator('[data-test=money-deposit-state]', { hasText: 'deposit paid' }).waitFor({ timeout: 15_000 })
+      expect(await text(page, '[data-test=money-owed]')).toBe('£875.00')
+    } finally {
+      await benchContext.close()
+    }
+  })
+})

@@ -10,6 +10,7 @@ import { benchCapabilities, benchRequests, benches, jobBags, operationKinds, ope
 import { AppError, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
+import { depositHolds, heldForDeposit } from './deposit-hold'
 import { lockJobBag, refreshReadiness, syncJobBagStatus, type BagChange } from './job-bags'
 import { requirePauseReason } from './pause-reasons'
 import { closeRecord, effectiveRecords, actualMinutesByOperation, openRecord } from './time-records'
@@ -213,6 +214,12 @@ function requireWorkable(op: OpRow) {
   if (op.jobBagStatus === 'cancelled') throw new AppError({ code: 'unprocessable', message: `Job bag ${op.jobBagNumber} is cancelled`, details: { jobBagStatus: op.jobBagStatus } })
 }
 
+/** Casting and forging wait for the order's deposit when the workshop says so ("no metal before deposit"). */
+async function requireDepositIn(tx: Tx, workshopId: number, op: OpRow) {
+  const h = await heldForDeposit(tx, workshopId, op.jobBagId, op.id)
+  if (h) throw new AppError({ code: 'unprocessable', message: `${label(op)} is ${h.reason}: order ${op.orderNumber} has not paid its deposit, and no metal is cast or forged before it is in`, details: { reason: h.reason, orderNumber: op.orderNumber } })
+}
+
 export function claim(deps: Deps, actor: Actor, operationId: number, input: ClaimInput) {
   return transition(deps, actor, { requestId: input.requestId, action: 'claim', operationId }, async ({ tx, op, now }) => {
     const person = await requirePerson(tx, actor, input.personId)
@@ -221,6 +228,7 @@ export function claim(deps: Deps, actor: Actor, operationId: number, input: Clai
     if (!canMoveOperation(op.status, 'claimed')) refuseMove(op, 'claimed', person)
     requireWorkable(op)
     if (op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is outside work; the manager sends it out and books it back` })
+    await requireDepositIn(tx, actor.workshopId, op)
     const [skill] = await tx.select({ level: personSkills.level }).from(personSkills).where(and(eq(personSkills.personId, person.id), eq(personSkills.kindId, op.kindId)))
     const who = person.id === actor.personId ? 'You' : person.name
     if (!skill) throw new AppError({ code: 'unprocessable', message: `${who} ${who === 'You' ? 'have' : 'has'} no ${op.kindName} skill recorded; ${label(op)} needs level ${op.requiredLevel}`, details: { requiredLevel: op.requiredLevel, level: 0 } })
@@ -309,6 +317,7 @@ export function sendOut(deps: Deps, actor: Actor, operationId: number, input: Ou
     if (op.status === 'pending') throw await pendingReason(tx, op)
     if (op.status !== 'ready') refuseMove(op, 'running', null)
     requireWorkable(op)
+    await requireDepositIn(tx, actor.workshopId, op)
     // The day it left counts for the planner: its working days away run from here.
     await move(tx, op, 'running', { plannedStart: now.toISOString(), plannedBenchId: null, plannedPersonId: null })
     await audit(tx, actor, 'send-out', 'operation', op.id, { from: op.status, to: 'running', note: input.note, jobBagId: op.jobBagId })
@@ -349,7 +358,10 @@ export async function nextForMe(db: Db, actor: Actor, q: { benchId: number; pers
     ))
     .orderBy(sql`${operations.plannedStart} asc nulls last`, asc(orders.dueDate), desc(orders.priority), asc(jobBags.number), asc(operations.seq))
     .limit(50)
-  return { person, items: await toBenchOperations(db, rows) }
+  // Metal work waiting for the deposit is not offered.
+  const holds = await depositHolds(db, actor.workshopId, [...new Set(rows.map((r) => r.jobBagId))])
+  const held = new Set([...holds.values()].flatMap((h) => h.operationIds))
+  return { person, items: await toBenchOperations(db, rows.filter((r) => !held.has(r.id))) }
 }
 
 /** What this person holds: running first, then paused, then claimed. */

@@ -162,6 +162,13 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       planned: a ? { start: iso(a.start), end: iso(a.end) } : null, actual,
     })
   }
+  // Job bags the planner leaves out (metal waiting for the deposit): listed as unplanned, with why.
+  for (const h of data.meta.held) {
+    jobs.set(h.bag.id, {
+      jobBagId: h.bag.id, number: h.bag.number, piece: h.bag.piece, orderNumber: h.order.number, customerName: customers.get(h.order.customerId) ?? '', due: h.order.promisedDate ?? h.order.dueDate,
+      expectedCompletion: null, latenessMinutes: 0, lateWorkingMinutes: 0, state: 'unplanned', reason: h.reason,
+    })
+  }
   items.push(...(await finishedItems(db, workshopId, winStart, winEnd, now, customers)))
   // Bench rows know what they can host and people rows what they are skilled for (moving a bar up or down a row by keyboard).
   const kindCode = (kindId: number) => data.meta.kinds.get(kindId)?.code ?? ''

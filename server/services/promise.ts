@@ -332,7 +332,8 @@ export async function orderForecast(deps: Deps, actor: Actor, orderId: number, n
     }
     const expectedDate = j.expectedCompletion ? dayjs(j.expectedCompletion).tz(tz).format('YYYY-MM-DD') : null
     const because = j.reason ? ` Last step: ${j.reason}.` : ''
-    const why = j.state === 'unplanned' ? 'Not on the live plan yet: publish a plan to get a date.'
+    const why = j.state === 'unplanned' && j.reason ? `Not planned: ${j.reason} (casting and forging wait until it is paid).`
+      : j.state === 'unplanned' ? 'Not on the live plan yet: publish a plan to get a date.'
       : j.state === 'late' ? `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} after the end of ${due}.${because}`
       : j.state === 'at-risk' ? `Expected ${when(j.expectedCompletion!)}, only ${hoursText(j.latenessMinutes)} before the end of ${due}.${because}`
       : `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} to spare.`

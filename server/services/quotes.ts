@@ -2,7 +2,7 @@
 import { and, count, desc, eq, ilike, inArray, lt, or, sql } from 'drizzle-orm'
 import PDFDocument from 'pdfkit'
 import type { QuoteInput, QuoteUpdate, QuoteStatus } from '../../shared/schemas/quote'
-import type { OrderInput } from '../../shared/schemas/order'
+import { pieceParams, type OrderInput } from '../../shared/schemas/order'
 import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
 import { invalid, notFound, staleVersion } from '../errors/app-error'
@@ -135,7 +135,8 @@ export async function quoteOrderInput(db: Db, q: typeof s.quotes.$inferSelect): 
   const due = q.promisedDate ?? q.validUntil
   return {
     customerId: q.customerId, title: q.title, dueDate: due, promisedDate: q.promisedDate, priority: d.priority ?? 3, priceQuoted: q.priceMinor / 100, notes: `From quote ${q.number}`,
-    pieces: d.templateId ? [{ templateId: d.templateId, piece: d.piece ?? q.title, params: (d.params ?? {}) as OrderInput['pieces'][number]['params'] }] : [],
+    // The quoted parameters with the order form's defaults filled in (metal, quantity, …), as the order form would send them.
+    pieces: d.templateId ? [{ templateId: d.templateId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}) }] : [],
   }
 }
 

@@ -5,6 +5,7 @@ import * as s from '../../db/schema/index'
 import { dayjs, expandPattern, MinuteClock, subtract, dayRange, type Interval } from '../../lib/time'
 import type { Operation as EngineOperation, Problem } from '../../scheduler/model.ts'
 import { intersect } from '../../scheduler/calendar.ts'
+import { depositHolds } from '../deposit-hold'
 
 export const HORIZON_DAYS = 84
 
@@ -25,6 +26,11 @@ export interface PlanningData {
     downtime: (typeof s.benchDowntime.$inferSelect)[]
     skills: (typeof s.personSkills.$inferSelect)[]
     capabilities: (typeof s.benchCapabilities.$inferSelect)[]
+    /**
+     * Open job bags left out of the problem, and why: metal work waiting for the deposit ("no metal before deposit"). Releasing
+     * them at the horizon's end instead would make the engine refuse work it cannot finish, so they are not planned at all.
+     */
+    held: { bag: typeof s.jobBags.$inferSelect; order: typeof s.orders.$inferSelect; reason: string }[]
   }
 }
 
@@ -79,9 +85,11 @@ export async function loadPlanningData(db: Db, workshopId: number, now: Date): P
 
   // Open work: job bags of orders still to make.
   const orders = await db.select().from(s.orders).where(and(eq(s.orders.workshopId, workshopId), notInArray(s.orders.status, ['collected', 'cancelled', 'ready', 'quoted'])))
-  const bags = orders.length
+  const openBags = orders.length
     ? await db.select().from(s.jobBags).where(and(inArray(s.jobBags.orderId, orders.map((o) => o.id)), notInArray(s.jobBags.status, ['complete', 'cancelled'])))
     : []
+  const holds = await depositHolds(db, workshopId, openBags.map((b) => b.id))
+  const bags = openBags.filter((b) => !holds.has(b.id))
   const ops = bags.length ? await db.select().from(s.operations).where(inArray(s.operations.jobBagId, bags.map((b) => b.id))) : []
   const openRecords = ops.length
     ? await db.select().from(s.timeRecords).where(inArray(s.timeRecords.operationId, ops.map((o) => o.id)))
@@ -94,6 +102,7 @@ export async function loadPlanningData(db: Db, workshopId: number, now: Date): P
   const meta: PlanningData['meta'] = {
     operations: new Map(), benches: new Map(benches.map((b) => [String(b.id), b])), people: new Map(people.map((p) => [String(p.id), p])),
     kinds: kindMap, nonWorking, open: workshopHours, closures, leave, downtime, skills, capabilities: caps,
+    held: openBags.filter((b) => holds.has(b.id)).map((b) => ({ bag: b, order: orderMap.get(b.orderId)!, reason: holds.get(b.id)!.reason })),
   }
   const keyToId = new Map(ops.map((o) => [`${o.jobBagId}:${o.key}`, String(o.id)]))
   const engineOps: EngineOperation[] = []

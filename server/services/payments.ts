@@ -37,20 +37,14 @@ export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
 
 const paymentCols = {
   id: s.payments.id, orderId: s.payments.orderId, quoteId: s.payments.quoteId, paymentLinkId: s.payments.paymentLinkId, method: s.payments.method, purpose: s.payments.purpose,
-  amountMinor: s.payments.amountMinor, currency: s.payments.currency, providerRef: s.payments.providerRef, toRefund: s.payments.toRefund, note: s.payments.note,
+  amountMinor: s.payments.amountMinor, currency: s.payments.currency, providerRef: s.payments.providerRef, toRefund: s.payments.toRefund, refundOf: s.payments.refundOf, note: s.payments.note,
   recordedBy: s.payments.recordedBy, recordedByName: s.users.name, receivedAt: s.payments.receivedAt, createdAt: s.payments.createdAt,
 }
-/** A refund names the payment it returns at the start of its note: "refund of #12". */
-const REFUND_OF = /^refund of #(\d+)/
-const refundNote = (paymentId: number, note: string) => `refund of #${paymentId}${note ? `: ${note}` : ''}`
-
-function withRefunded<T extends { id: number; amountMinor: number; note: string }>(rows: T[], refunds: { note: string; amountMinor: number }[]) {
-  return rows.map((p) => ({ ...p, refundedMinor: refunds.filter((r) => Number(REFUND_OF.exec(r.note)?.[1]) === p.id).reduce((t, r) => t - r.amountMinor, 0) }))
-}
+/** What has been refunded against each payment (refunds name their payment in refund_of; they are negative). */
+const refundedCol = sql<number>`(select coalesce(-sum(r.amount_minor), 0) from payments r where r.refund_of = ${s.payments.id})::int`.as('refunded_minor')
 
 export async function listPayments(db: Tx, where: ReturnType<typeof and>) {
-  const rows = await db.select(paymentCols).from(s.payments).leftJoin(s.users, eq(s.users.id, s.payments.recordedBy)).where(where).orderBy(asc(s.payments.receivedAt), asc(s.payments.id))
-  return withRefunded(rows, rows.filter((r) => r.amountMinor < 0))
+  return db.select({ ...paymentCols, refundedMinor: refundedCol }).from(s.payments).leftJoin(s.users, eq(s.users.id, s.payments.recordedBy)).where(where).orderBy(asc(s.payments.receivedAt), asc(s.payments.id))
 }
 
 const linkCols = { id: s.paymentLinks.id, quoteId: s.paymentLinks.quoteId, orderId: s.paymentLinks.orderId, purpose: s.paymentLinks.purpose, currency: s.paymentLinks.currency, amountMinor: s.paymentLinks.amountMinor, url: s.paymentLinks.url, status: s.paymentLinks.status, createdAt: s.paymentLinks.createdAt }
@@ -226,36 +220,38 @@ export async function recordManual(deps: Deps, actor: Actor, orderId: number, in
   return (await listPayments(deps.db, eq(s.payments.id, p.id)))[0]
 }
 
-/** Owner only: returns money through the provider (card) or records it as handed back (cash, transfer). */
+/**
+ * Owner only: returns money through the provider (card) or records it as handed back (cash, transfer). The payment is locked
+ * while its refunds are summed and the new one is made, so two refunds at once cannot return more than was paid.
+ */
 export async function refund(deps: Deps, actor: Actor, paymentId: number, input: RefundInput) {
-  const [orig] = await deps.db.select().from(s.payments).where(and(eq(s.payments.id, paymentId), eq(s.payments.workshopId, actor.workshopId)))
-  if (!orig) throw notFound('Payment')
-  if (orig.amountMinor <= 0) throw invalid('paymentId', 'is a refund itself')
-  const done = (await deps.db.select({ note: s.payments.note, amountMinor: s.payments.amountMinor }).from(s.payments).where(and(eq(s.payments.workshopId, actor.workshopId), sql`${s.payments.amountMinor} < 0`)))
-    .filter((r) => Number(REFUND_OF.exec(r.note)?.[1]) === orig.id).reduce((t, r) => t - r.amountMinor, 0)
-  const left = orig.amountMinor - done
-  const amount = input.amountMinor ?? left
-  if (left <= 0) throw invalid('amountMinor', 'this payment is already refunded in full')
-  if (amount > left) throw invalid('amountMinor', `must not be more than what is left of the payment (${left})`)
-  let providerRef: string | null = null
-  if (orig.method === 'card') {
-    if (!deps.pay) throw noProvider()
-    try {
-      const r = await deps.pay.stripe.refunds.create({ payment_intent: orig.providerRef!, amount, metadata: { paymentId: String(orig.id) } })
-      providerRef = r.id
-    } catch (err) {
-      throw new AppError({ code: 'unprocessable', message: `The payment provider refused the refund: ${(err as Error).message}` })
-    }
-  }
   const r = await deps.db.transaction(async (tx) => {
+    const [orig] = await tx.select().from(s.payments).where(and(eq(s.payments.id, paymentId), eq(s.payments.workshopId, actor.workshopId))).for('update')
+    if (!orig) throw notFound('Payment')
+    if (orig.amountMinor <= 0) throw invalid('paymentId', 'is a refund itself')
+    const [{ done } = { done: 0 }] = await tx.select({ done: sql<number>`coalesce(-sum(${s.payments.amountMinor}), 0)::int` }).from(s.payments).where(eq(s.payments.refundOf, orig.id))
+    const left = orig.amountMinor - done
+    const amount = input.amountMinor ?? left
+    if (left <= 0) throw invalid('amountMinor', 'this payment is already refunded in full')
+    if (amount > left) throw invalid('amountMinor', `must not be more than what is left of the payment (${left} of ${orig.amountMinor})`)
+    let providerRef: string | null = null
+    if (orig.method === 'card') {
+      if (!deps.pay) throw noProvider()
+      try {
+        const pr = await deps.pay.stripe.refunds.create({ payment_intent: orig.providerRef!, amount, metadata: { paymentId: String(orig.id) } })
+        providerRef = pr.id
+      } catch (err) {
+        throw new AppError({ code: 'unprocessable', message: `The payment provider refused the refund: ${(err as Error).message}` })
+      }
+    }
     const [r] = await tx.insert(s.payments).values({
       workshopId: actor.workshopId, orderId: orig.orderId, quoteId: orig.quoteId, paymentLinkId: orig.paymentLinkId, method: orig.method, purpose: 'refund', amountMinor: -amount, currency: orig.currency,
-      providerRef, toRefund: orig.toRefund, note: refundNote(orig.id, input.note), recordedBy: actor.userId, receivedAt: new Date().toISOString(),
+      providerRef, toRefund: orig.toRefund, refundOf: orig.id, note: input.note, recordedBy: actor.userId, receivedAt: new Date().toISOString(),
     }).returning()
     // Fully refunded: off the "to refund" list (the payment and its refunds then cancel out in what was paid).
     if (amount === left && orig.toRefund) {
       await tx.update(s.payments).set({ toRefund: false }).where(eq(s.payments.id, orig.id))
-      await tx.update(s.payments).set({ toRefund: false }).where(and(eq(s.payments.workshopId, actor.workshopId), sql`${s.payments.note} like ${`refund of #${orig.id}%`}`))
+      await tx.update(s.payments).set({ toRefund: false }).where(eq(s.payments.refundOf, orig.id))
     }
     await audit(tx, actor, 'refund', 'payment', orig.id, { amountMinor: amount, currency: orig.currency, providerRef })
     return r!

@@ -139,6 +139,43 @@ describe('quotes and deposits', () => {
     expect(bad.body.fields).toHaveProperty('amountMinor')
   })
 
+  it('when the owner refunds part of one of two payments, then the refunds add up per payment and a refund beyond what is left is refused naming the amount', async () => {
+    const q = await sentQuote('Chain')
+    await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
+    const orderId = (await sales.get(`/api/quotes/${q.id}`)).body.orderId
+    // Hand-worked: deposit 375.00 by card, then 100.00 and 200.00 in cash (pence: 37500, 10000, 20000).
+    const a = (await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', purpose: 'balance', amountMinor: 10000 })).body
+    const b = (await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', purpose: 'balance', amountMinor: 20000 })).body
+    const r1 = await owner.post(`/api/payments/${a.id}/refund`, { amountMinor: 6000, note: 'stone returned' })
+    expect(r1.status, JSON.stringify(r1.body)).toBe(201)
+    expect(r1.body).toMatchObject({ amountMinor: -6000, purpose: 'refund', refundOf: a.id, note: 'stone returned' })
+    // 100.00 − 60.00 leaves 40.00 of the first payment: 50.00 is too much, whatever is left on the second.
+    const over = await owner.post(`/api/payments/${a.id}/refund`, { amountMinor: 5000 })
+    expect(over.status).toBe(400)
+    expect(over.body.fields.amountMinor).toContain('4000')
+    expect((await owner.post(`/api/payments/${b.id}/refund`, { amountMinor: 5000 })).status).toBe(201)
+    expect((await owner.post(`/api/payments/${a.id}/refund`, {})).body).toMatchObject({ amountMinor: -4000, refundOf: a.id })
+    const full = await owner.post(`/api/payments/${a.id}/refund`, { amountMinor: 1 })
+    expect(full.status).toBe(400)
+    expect(full.body.fields.amountMinor).toMatch(/refunded in full/)
+    const money = (await sales.get(`/api/orders/${orderId}/money`)).body
+    const byId = new Map((money.payments as { id: number; refundedMinor: number }[]).map((p) => [p.id, p.refundedMinor]))
+    expect(byId.get(a.id)).toBe(10000)
+    expect(byId.get(b.id)).toBe(5000)
+    // Paid: 37500 + 10000 + 20000 − 6000 − 5000 − 4000 = 52500.
+    expect(money.paidMinor).toBe(52500)
+  })
+
+  it('when two refunds of the same payment arrive at once, then together they never return more than was paid', async () => {
+    const q = await sentQuote('Bangle')
+    await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
+    const orderId = (await sales.get(`/api/quotes/${q.id}`)).body.orderId
+    const p = (await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', purpose: 'balance', amountMinor: 10000 })).body
+    const both = await Promise.all([owner.post(`/api/payments/${p.id}/refund`, { amountMinor: 7000 }), owner.post(`/api/payments/${p.id}/refund`, { amountMinor: 7000 })])
+    expect(both.map((r) => r.status).sort()).toEqual([201, 400])
+    expect(Number((await t.pool.query('select -sum(amount_minor) as n from payments where refund_of = $1', [p.id])).rows[0].n)).toBe(7000)
+  })
+
   it('when the owner asks for the CSV and the summary, then the hand-worked amounts appear in major units and by ISO week', async () => {
     const csv = await owner.get('/api/payments/export.csv')
     expect(csv.status).toBe(200)

@@ -15,5 +15,6 @@ import { metalRoutes } from './metal'
 import { stoneRoutes } from './stones'
 import { quoteRoutes } from './quotes'
 import { paymentRoutes } from './payments'
+import { costingRoutes } from './costing'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes, ...metalRoutes, ...quoteRoutes, ...paymentRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes, ...metalRoutes, ...quoteRoutes, ...paymentRoutes, ...costingRoutes] as RouteSpec[]

@@ -4,13 +4,14 @@ import type {
   BiasTrend, ComparisonRow, ComparisonTable, CostingRow, CostingTable, DrillDown, Grouping, InsightFilter, ScatterPoint,
 } from '../../shared/schemas/insights'
 import type { Db } from '../db/client'
-import { customers, jobBags, operationCosts, operationKinds, operations, orders, people, routingTemplates, templateStepCosts, templateSteps } from '../db/schema/index'
+import { customers, jobBags, operationCosts, operationKinds, operations, orders, routingTemplates, templateStepCosts, templateSteps } from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
-import { COSTING_NOTE, marginCaveat } from '../../shared/domain/costing'
+import { COSTING_NOTE, fromMinor, margin, marginCaveat, type Missing } from '../../shared/domain/costing'
+import { costOrders } from './costing'
 import { audit } from './audit'
-import { actualMinutes, finishedOperations, workshopZone, type FinishedOperation } from './estimates'
+import { finishedOperations, workshopZone, type FinishedOperation } from './estimates'
 
 const r2 = (n: number) => Math.round(n * 100) / 100
 const r1 = (n: number) => Math.round(n * 10) / 10
@@ -91,20 +92,17 @@ export async function drillDown(db: Db, workshopId: number, groupBy: Grouping, k
 // Job costing
 
 /**
- * Each complete order (every operation done or skipped, the last finished in the date range): labour at estimate
- * (estimate hours × the rate of whoever did the step), labour at actual (each time record × its person's rate),
- * outside work (the template step's figure × quantity at estimate; the invoiced figure when entered, else the estimate),
- * against the price quoted.
+ * Each complete order (every operation done or skipped, the last finished in the date range) costed at estimate and at actual by
+ * services/costing.ts (metal, stones, outside work, labour in minor units), against the price quoted; figures go out in major units.
  */
 export async function costing(db: Db, workshopId: number, filter: InsightFilter): Promise<CostingTable> {
   const tz = await workshopZone(db, workshopId)
   const rows = await db
-    .select({ op: operations, bag: jobBags, order: orders, customerName: customers.name, outside: operationKinds.outside })
+    .select({ op: operations, bag: jobBags, order: orders, customerName: customers.name })
     .from(operations)
     .innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
     .innerJoin(orders, eq(orders.id, jobBags.orderId))
     .innerJoin(customers, eq(customers.id, orders.customerId))
-    .innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
     .where(eq(jobBags.workshopId, workshopId))
   const byOrder = new Map<number, typeof rows>()
   for (const r of rows) byOrder.set(r.order.id, [...(byOrder.get(r.order.id) ?? []), r])
@@ -117,74 +115,54 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
     if (filter.templateId && !ops.some((r) => r.bag.templateId === filter.templateId)) return false
     return true
   })
-  const opIds = chosen.flatMap((ops) => ops.filter((r) => r.op.status === 'done').map((r) => r.op.id))
-  const { byOperation, records } = await actualMinutes(db, opIds)
-  const staff = await db.select({ id: people.id, rate: people.hourlyRate, active: people.active }).from(people).where(eq(people.workshopId, workshopId))
-  const rateOf = new Map(staff.map((p) => [p.id, p.rate]))
-  const activeRates = staff.filter((p) => p.active).map((p) => p.rate)
-  const averageRate = activeRates.length ? activeRates.reduce((s, x) => s + x, 0) / activeRates.length : 0
-  const templateIds = [...new Set(chosen.flatMap((ops) => ops.map((r) => r.bag.templateId).filter((x): x is number => x !== null)))]
-  const stepCosts = templateIds.length ? await db.select().from(templateStepCosts).where(inArray(templateStepCosts.templateId, templateIds)) : []
-  const opCosts = opIds.length ? await db.select().from(operationCosts).where(inArray(operationCosts.operationId, chosen.flatMap((ops) => ops.map((r) => r.op.id)))) : []
-
+  const costed = await costOrders(db, workshopId, chosen.map((ops) => ops[0]!.order.id))
+  const M = fromMinor
   const out: CostingRow[] = chosen.map((ops) => {
     const order = ops[0]!.order
-    let estMin = 0, actMin = 0, labourEst = 0, labourAct = 0, outsideEst = 0, outsideAct = 0, outsideSteps = 0, outsideUncosted = 0
-    for (const { op, bag, outside } of ops) {
-      if (op.status !== 'done') continue
-      const mine = records.filter((r) => r.operationId === op.id)
-      const byPerson = new Map<number, number>()
-      for (const r of mine) byPerson.set(r.personId, (byPerson.get(r.personId) ?? 0) + r.minutes)
-      const main = [...byPerson.entries()].sort((a, b) => b[1] - a[1] || a[0] - b[0])[0]?.[0] ?? op.plannedPersonId
-      const rate = main != null ? (rateOf.get(main) ?? averageRate) : averageRate
-      const actual = byOperation.get(op.id) ?? 0
-      if (!outside && op.leadDays === 0) {
-        estMin += op.estimateMinutes
-        actMin += actual
-        labourEst += (op.estimateMinutes / 60) * rate
-        labourAct += mine.reduce((s, r) => s + (r.minutes / 60) * (rateOf.get(r.personId) ?? averageRate), 0)
-      }
-      const perUnit = stepCosts.find((c) => c.templateId === bag.templateId && c.stepKey === op.key)?.outsideCost ?? null
-      const expected = (perUnit ?? 0) * Math.max(1, bag.params.quantity)
-      const invoiced = opCosts.find((c) => c.operationId === op.id)?.outsideCost
-      if (outside || op.leadDays > 0) {
-        outsideSteps++
-        if (perUnit === null && (invoiced === null || invoiced === undefined)) outsideUncosted++
-      }
-      outsideEst += expected
-      outsideAct += invoiced ?? expected
-    }
-    const costEst = labourEst + outsideEst
-    const costAct = labourAct + outsideAct
+    const c = costed.get(order.id)!
+    const e = c.estimate, a = c.actual
     return {
-      orderId: order.id, orderNumber: order.number, title: order.title, customerName: ops[0]!.customerName, finishedOn: finishedOn(ops), priceQuoted: order.priceQuoted,
-      estimateHours: r2(estMin / 60), actualHours: r2(actMin / 60),
-      labourAtEstimate: r2(labourEst), labourAtActual: r2(labourAct), outsideAtEstimate: r2(outsideEst), outsideAtActual: r2(outsideAct),
-      costAtEstimate: r2(costEst), costAtActual: r2(costAct),
-      marginAtEstimate: r2(order.priceQuoted - costEst), marginAtActual: r2(order.priceQuoted - costAct),
-      marginPctAtEstimate: order.priceQuoted > 0 ? r1(((order.priceQuoted - costEst) / order.priceQuoted) * 100) : null,
-      marginPctAtActual: order.priceQuoted > 0 ? r1(((order.priceQuoted - costAct) / order.priceQuoted) * 100) : null,
-      outsideSteps, outsideUncosted, marginCaveat: marginCaveat({ outsideSteps, outsideUncosted }),
+      orderId: order.id, orderNumber: order.number, title: order.title, customerName: ops[0]!.customerName, finishedOn: finishedOn(ops), priceQuoted: M(c.priceMinor),
+      estimateHours: r2(c.estimateMinutes / 60), actualHours: r2(c.actualMinutes / 60),
+      metalAtEstimate: M(e.cost.metalMinor), metalAtActual: M(a.cost.metalMinor), stonesAtEstimate: M(e.cost.stonesMinor), stonesAtActual: M(a.cost.stonesMinor),
+      labourAtEstimate: M(e.cost.labourMinor), labourAtActual: M(a.cost.labourMinor), outsideAtEstimate: M(e.cost.outsideMinor), outsideAtActual: M(a.cost.outsideMinor),
+      costAtEstimate: M(e.cost.totalMinor), costAtActual: M(a.cost.totalMinor),
+      marginAtEstimate: M(e.marginMinor), marginAtActual: M(a.marginMinor), marginPctAtEstimate: e.marginPct, marginPctAtActual: a.marginPct,
+      customerMetalLossG: c.customerMetalLossG, outsideSteps: c.outsideSteps, outsideUncosted: c.outsideUncosted,
+      caveatAtEstimate: e.caveat, caveatAtActual: a.caveat,
     }
   }).sort((a, b) => b.finishedOn.localeCompare(a.finishedOn) || a.orderNumber.localeCompare(b.orderNumber))
 
-  const sum = (f: (r: CostingRow) => number) => r2(out.reduce((s, r) => s + f(r), 0))
-  const price = sum((r) => r.priceQuoted)
-  const costEst = sum((r) => r.costAtEstimate)
-  const costAct = sum((r) => r.costAtActual)
+  // Totals are summed in minor units and given back in major units once.
+  const all = [...costed.values()]
+  const sumMinor = (f: (c: (typeof all)[number]) => number) => all.reduce((s, c) => s + f(c), 0)
+  const price = sumMinor((c) => c.priceMinor)
+  const est = sumMinor((c) => c.estimate.cost.totalMinor)
+  const act = sumMinor((c) => c.actual.cost.totalMinor)
+  const mEst = margin(price, est), mAct = margin(price, act)
+  const missingEst = all.flatMap((c) => c.estimate.missing), missingAct = all.flatMap((c) => c.actual.missing)
   return {
     filter: cleanFilter(filter), rows: out,
     total: {
-      orders: out.length, priceQuoted: price, estimateHours: sum((r) => r.estimateHours), actualHours: sum((r) => r.actualHours),
-      labourAtEstimate: sum((r) => r.labourAtEstimate), labourAtActual: sum((r) => r.labourAtActual),
-      outsideAtEstimate: sum((r) => r.outsideAtEstimate), outsideAtActual: sum((r) => r.outsideAtActual),
-      costAtEstimate: costEst, costAtActual: costAct, marginAtEstimate: r2(price - costEst), marginAtActual: r2(price - costAct),
-      marginPctAtEstimate: price > 0 ? r1(((price - costEst) / price) * 100) : null, marginPctAtActual: price > 0 ? r1(((price - costAct) / price) * 100) : null,
-      outsideSteps: out.reduce((s, r) => s + r.outsideSteps, 0), outsideUncosted: out.reduce((s, r) => s + r.outsideUncosted, 0),
-      marginCaveat: marginCaveat({ outsideSteps: out.reduce((s, r) => s + r.outsideSteps, 0), outsideUncosted: out.reduce((s, r) => s + r.outsideUncosted, 0) }),
+      orders: out.length, priceQuoted: M(price), estimateHours: r2(sumMinor((c) => c.estimateMinutes) / 60), actualHours: r2(sumMinor((c) => c.actualMinutes) / 60),
+      metalAtEstimate: M(sumMinor((c) => c.estimate.cost.metalMinor)), metalAtActual: M(sumMinor((c) => c.actual.cost.metalMinor)),
+      stonesAtEstimate: M(sumMinor((c) => c.estimate.cost.stonesMinor)), stonesAtActual: M(sumMinor((c) => c.actual.cost.stonesMinor)),
+      labourAtEstimate: M(sumMinor((c) => c.estimate.cost.labourMinor)), labourAtActual: M(sumMinor((c) => c.actual.cost.labourMinor)),
+      outsideAtEstimate: M(sumMinor((c) => c.estimate.cost.outsideMinor)), outsideAtActual: M(sumMinor((c) => c.actual.cost.outsideMinor)),
+      costAtEstimate: M(est), costAtActual: M(act), marginAtEstimate: M(mEst.marginMinor), marginAtActual: M(mAct.marginMinor),
+      marginPctAtEstimate: mEst.marginPct, marginPctAtActual: mAct.marginPct,
+      customerMetalLossG: Math.round(all.reduce((s, c) => s + c.customerMetalLossG * 1000, 0)) / 1000,
+      outsideSteps: all.reduce((s, c) => s + c.outsideSteps, 0), outsideUncosted: all.reduce((s, c) => s + c.outsideUncosted, 0),
+      caveatAtEstimate: totalCaveat(missingEst, out.length), caveatAtActual: totalCaveat(missingAct, out.length),
     },
     note: COSTING_NOTE,
   }
+}
+
+/** Over several orders: what is missing from some of them ("on some orders: …"), else that all four are counted. */
+function totalCaveat(missing: Missing[], orders: number): string {
+  if (!missing.length || orders === 0) return marginCaveat([])
+  return `on some orders: ${marginCaveat(missing)}`
 }
 
 /** Every outside-work step of the workshop's routings with its expected cost per unit (null: not set). */
@@ -251,18 +229,19 @@ export function comparisonCsv(t: ComparisonTable): string {
 }
 
 /**
- * Job costing as CSV: the margin columns say in their names that they leave metal and stones out, a column beside them
- * says what each row's margin counts, and a last line carries the note (blank cells before it keep the column count).
+ * Job costing as CSV: price, hours, each part of the cost at estimate and at actual, cost, margins, and beside each margin what it
+ * could not count; a last line carries the note (blank cells before it keep the column count). Amounts in major units.
  */
 export function costingCsv(t: CostingTable): string {
-  const header = ['order', 'title', 'customer', 'finished_on', 'price_quoted', 'estimate_hours', 'actual_hours', 'labour_at_estimate', 'labour_at_actual',
-    'outside_at_estimate', 'outside_at_actual', 'cost_at_estimate', 'cost_at_actual', 'margin_at_estimate_without_metal_and_stones', 'margin_at_actual_without_metal_and_stones',
-    'margin_pct_at_estimate_without_metal_and_stones', 'margin_pct_at_actual_without_metal_and_stones', 'margin_counts']
-  const rows: unknown[][] = t.rows.map((r) => [r.orderNumber, r.title, r.customerName, r.finishedOn, r.priceQuoted, r.estimateHours, r.actualHours, r.labourAtEstimate, r.labourAtActual,
-    r.outsideAtEstimate, r.outsideAtActual, r.costAtEstimate, r.costAtActual, r.marginAtEstimate, r.marginAtActual, r.marginPctAtEstimate, r.marginPctAtActual, r.marginCaveat])
-  const x = t.total
-  rows.push(['Total', `${x.orders} orders`, '', '', x.priceQuoted, x.estimateHours, x.actualHours, x.labourAtEstimate, x.labourAtActual, x.outsideAtEstimate, x.outsideAtActual,
-    x.costAtEstimate, x.costAtActual, x.marginAtEstimate, x.marginAtActual, x.marginPctAtEstimate, x.marginPctAtActual, x.marginCaveat])
+  const header = ['order', 'title', 'customer', 'finished_on', 'price_quoted', 'estimate_hours', 'actual_hours',
+    'metal_at_estimate', 'stones_at_estimate', 'outside_at_estimate', 'labour_at_estimate', 'cost_at_estimate', 'margin_at_estimate', 'margin_pct_at_estimate', 'not_counted_at_estimate',
+    'metal_at_actual', 'stones_at_actual', 'outside_at_actual', 'labour_at_actual', 'cost_at_actual', 'margin_at_actual', 'margin_pct_at_actual', 'not_counted_at_actual',
+    'customer_metal_lost_g']
+  const line = (r: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'>) => [r.priceQuoted, r.estimateHours, r.actualHours,
+    r.metalAtEstimate, r.stonesAtEstimate, r.outsideAtEstimate, r.labourAtEstimate, r.costAtEstimate, r.marginAtEstimate, r.marginPctAtEstimate, r.caveatAtEstimate,
+    r.metalAtActual, r.stonesAtActual, r.outsideAtActual, r.labourAtActual, r.costAtActual, r.marginAtActual, r.marginPctAtActual, r.caveatAtActual, r.customerMetalLossG]
+  const rows: unknown[][] = t.rows.map((r) => [r.orderNumber, r.title, r.customerName, r.finishedOn, ...line(r)])
+  rows.push(['Total', `${t.total.orders} orders`, '', '', ...line(t.total)])
   rows.push(['Note', t.note, ...Array<string>(header.length - 2).fill('')])
   return toCsv(header, rows)
 }

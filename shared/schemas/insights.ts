@@ -100,6 +100,7 @@ export interface DrillOperation {
 }
 export interface DrillDown { groupBy: Grouping; key: string; label: string; operations: DrillOperation[] }
 
+/** One complete order costed: amounts in major units of the workshop's currency (each worked out in minor units and converted once). */
 export interface CostingRow {
   orderId: number
   orderNumber: string
@@ -109,6 +110,10 @@ export interface CostingRow {
   priceQuoted: number
   estimateHours: number
   actualHours: number
+  metalAtEstimate: number
+  metalAtActual: number
+  stonesAtEstimate: number
+  stonesAtActual: number
   labourAtEstimate: number
   labourAtActual: number
   outsideAtEstimate: number
@@ -119,17 +124,20 @@ export interface CostingRow {
   marginAtActual: number
   marginPctAtEstimate: number | null
   marginPctAtActual: number | null
+  /** Grams of the customer's own metal lost in the work: no cost to the workshop, shown all the same. */
+  customerMetalLossG: number
   /** Finished outside-work steps, and those of them with no cost entered (expected or invoiced). */
   outsideSteps: number
   outsideUncosted: number
-  /** What the margins leave out, in words (shared/domain/costing.ts): shown beside every margin figure. */
-  marginCaveat: string
+  /** What each margin could not count, in words (shared/domain/costing.ts), or that all four parts are counted: shown beside the figure. */
+  caveatAtEstimate: string
+  caveatAtActual: string
 }
 export interface CostingTable {
   filter: InsightFilter
   rows: CostingRow[]
   total: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'> & { orders: number }
-  /** What every margin leaves out, as one sentence. */
+  /** How every figure is reached, as one paragraph. */
   note: string
 }
 

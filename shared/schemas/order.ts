@@ -30,6 +30,10 @@ export const pieceParams = z.object({
   /** A resize: the size the ring was and the size it is to be. */
   resizeFrom: ringSizeInput.optional(),
   resizeTo: ringSizeInput.optional(),
+  /** Typical metal in one finished piece (g), for the estimated cost before anything is weighed. */
+  metalWeightG: z.number({ error: 'must be a weight in g' }).positive('must be more than 0 g').max(5000, 'must be at most 5000 g').optional(),
+  /** Typical cost of one stone (minor units) when the piece has no stone list yet. */
+  stoneCostEachMinor: z.number({ error: 'must be an amount' }).int('must be whole minor units').min(0, 'must not be negative').max(100_000_000, 'is too large').optional(),
 })
 export const pieceInput = z.object({ templateId: id, piece: name, params: pieceParams.default(pieceParams.parse({})) })
 export const orderInput = z.object({

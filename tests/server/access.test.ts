@@ -109,6 +109,8 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   'GET /insights/scatter': OWNER,
   'GET /insights/bias-trend': OWNER,
   'GET /insights/costing': OWNER,
+  'GET /orders/:id/costing': ['owner', 'manager', 'sales'],
+  'POST /costing/estimate': ['owner', 'manager', 'sales'],
   'GET /insights/outside-costs': OWNER,
   'PUT /insights/templates/:id/outside-cost': OWNER,
   'PUT /insights/operations/:id/outside-cost': OWNER,

@@ -207,38 +207,56 @@ describe('job costing', () => {
     expect(csv.text).toContain(`${orderNumbers[0]},Fixture order A,`)
   })
 
-  it('when a margin is shown, then it says beside it that metal and stones are left out, in the answer and in the CSV', async () => {
+  it('when a margin is shown, then it says beside it only what it could not count, in the answer and in the CSV', async () => {
     const r = await owner.get(`/api/insights/costing?templateId=${templateId}`)
-    // Both fixture orders have their hallmark costed (2.50 per unit on the routing step, set above): labour and outside work are in, metal and stones are not.
-    for (const row of r.body.rows) expect(row).toMatchObject({ outsideSteps: 1, outsideUncosted: 0, marginCaveat: 'labour and outside work — metal and stones not yet counted' })
-    expect(r.body.total).toMatchObject({ outsideSteps: 2, outsideUncosted: 0, marginCaveat: 'labour and outside work — metal and stones not yet counted' })
-    expect(r.body.note).toMatch(/metal and stones are not yet counted/)
+    // Both fixture pieces are silver with no metal weight given and nothing weighed, six stones with no stone list and no cost each;
+    // their hallmark is costed (2.50 per unit on the routing step, set above), so outside work is not missing.
+    for (const row of r.body.rows) {
+      expect(row).toMatchObject({ outsideSteps: 1, outsideUncosted: 0, metalAtEstimate: 0, metalAtActual: 0, stonesAtEstimate: 0, stonesAtActual: 0,
+        caveatAtEstimate: 'no metal weight estimated; stone costs not entered', caveatAtActual: 'no metal weighed yet; stone costs not entered' })
+    }
+    expect(r.body.total).toMatchObject({ outsideSteps: 2, outsideUncosted: 0, caveatAtActual: 'on some orders: no metal weighed yet; stone costs not entered' })
+    expect(r.body.note).toMatch(/^Cost = metal \(net weight in the piece plus loss/)
     const lines = (await owner.get(`/api/insights/costing?templateId=${templateId}&format=csv`)).text.split('\r\n')
-    expect(lines[0]).toBe('order,title,customer,finished_on,price_quoted,estimate_hours,actual_hours,labour_at_estimate,labour_at_actual,outside_at_estimate,outside_at_actual,'
-      + 'cost_at_estimate,cost_at_actual,margin_at_estimate_without_metal_and_stones,margin_at_actual_without_metal_and_stones,'
-      + 'margin_pct_at_estimate_without_metal_and_stones,margin_pct_at_actual_without_metal_and_stones,margin_counts')
+    expect(lines[0]).toBe('order,title,customer,finished_on,price_quoted,estimate_hours,actual_hours,'
+      + 'metal_at_estimate,stones_at_estimate,outside_at_estimate,labour_at_estimate,cost_at_estimate,margin_at_estimate,margin_pct_at_estimate,not_counted_at_estimate,'
+      + 'metal_at_actual,stones_at_actual,outside_at_actual,labour_at_actual,cost_at_actual,margin_at_actual,margin_pct_at_actual,not_counted_at_actual,customer_metal_lost_g')
     const a = lines.find((l) => l.startsWith(`${orderNumbers[0]},`))!
-    expect(a.endsWith(',88.8,85.1,labour and outside work — metal and stones not yet counted')).toBe(true)
-    // Last line before the final CRLF: the note, padded to the header's 18 columns (RFC 4180 §2: each line the same number of fields).
+    // Order A (hand-computed above): estimate 0 + 0 + 5 + 51 = 56, margin 444 = 88.8 %; actual 0 + 0 + 7 + 67.40 = 74.40, margin 425.60 = 85.1 %.
+    expect(a.endsWith(',500,1.5,1.9,0,0,5,51,56,444,88.8,no metal weight estimated; stone costs not entered,0,0,7,67.4,74.4,425.6,85.1,no metal weighed yet; stone costs not entered,0')).toBe(true)
+    // Last line before the final CRLF: the note, padded to the header's 24 columns (RFC 4180 §2: each line the same number of fields).
     const note = lines.at(-2)!
-    expect(note.startsWith('Note,')).toBe(true)
-    expect(note).toContain('metal and stones are not yet counted')
-    expect(note.split(',').length).toBe(18 + (r.body.note.match(/,/g)?.length ?? 0))
+    expect(note.startsWith('Note,"Cost = metal')).toBe(true)
+    expect(note.split(',').length).toBe(24 + (r.body.note.match(/,/g)?.length ?? 0))
   })
 
-  it('when the seeded history is costed, then every order of a routing whose outside work carries no cost says labour only', async () => {
-    // The demo seeds no outside costs (server/db/seed.ts inserts no template_step_costs or operation_costs); the query below checks that independently.
+  it('when the seeded history is costed, then orders with nothing weighed or uncosted outside work say so beside their actual margin', async () => {
+    // Independent of the costing code: complete orders with no metal weighed in or out, and those with a finished outside step without any cost.
+    const { rows: unweighed } = await q(`
+      select o.number from orders o where exists (select 1 from job_bags b where b.order_id = o.id)
+        and not exists (select 1 from operations op join job_bags b on b.id = op.job_bag_id where b.order_id = o.id and op.status not in ('done', 'skipped'))
+        and not exists (select 1 from metal_movements m join job_bags b on b.id = m.job_bag_id where b.order_id = o.id)
+        and exists (select 1 from job_bags b where b.order_id = o.id and b.params->>'metal' in ('silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950'))`)
     const { rows: uncostedOutside } = await q(`
       select distinct o.number from orders o join job_bags b on b.order_id = o.id join operations op on op.job_bag_id = b.id join operation_kinds k on k.id = op.kind_id
       where op.status = 'done' and (k.outside or op.lead_days > 0)
         and not exists (select 1 from template_step_costs c where c.template_id = b.template_id and c.step_key = op.key and c.outside_cost is not null)
         and not exists (select 1 from operation_costs c where c.operation_id = op.id and c.outside_cost is not null)`)
-    expect(uncostedOutside.length).toBeGreaterThan(10)
-    const rows = (await owner.get('/api/insights/costing')).body.rows as { orderNumber: string; marginCaveat: string; outsideUncosted: number; outsideSteps: number }[]
-    const seeded = rows.filter((x) => uncostedOutside.some((u) => u.number === x.orderNumber))
-    expect(seeded.length).toBe(uncostedOutside.length)
-    for (const row of seeded.filter((x) => x.outsideUncosted === x.outsideSteps)) expect(row.marginCaveat).toBe('labour only — metal, stones and outside work not yet counted')
-    expect(seeded.filter((x) => x.outsideUncosted === x.outsideSteps).length).toBeGreaterThan(10)
+    expect(unweighed.length).toBeGreaterThan(5)
+    const rows = (await owner.get('/api/insights/costing')).body.rows as { orderNumber: string; caveatAtActual: string; metalAtActual: number }[]
+    const byNumber = new Map(rows.map((x) => [x.orderNumber, x]))
+    for (const u of unweighed) {
+      const row = byNumber.get(u.number)
+      if (!row) continue
+      expect(row.caveatAtActual).toContain('no metal weighed yet')
+      expect(row.metalAtActual).toBe(0)
+    }
+    for (const u of uncostedOutside) if (byNumber.has(u.number)) expect(byNumber.get(u.number)!.caveatAtActual).toMatch(/outside work not costed/)
+    // Orders weighed in and out carry a metal cost.
+    const { rows: weighed } = await q(`select distinct o.number from orders o join job_bags b on b.order_id = o.id join metal_movements m on m.job_bag_id = b.id where m.kind = 'issued'`)
+    const weighedRows = weighed.map((w) => byNumber.get(w.number)).filter((x) => x !== undefined)
+    expect(weighedRows.length).toBeGreaterThan(3)
+    for (const row of weighedRows) expect(row!.metalAtActual).toBeGreaterThan(0)
   })
 
   it('when an outside cost is not a number or negative, then the field is named', async () => {

@@ -1,0 +1,283 @@
+// Job costing for sales and the owner alike: the estimated cost of pieces (ordered or not) and an order's actual cost from its metal
+// ledger, stone counts, outside costs and time records — one function per side, all in integer minor units (shared/domain/costing.ts).
+import { and, asc, eq, inArray } from 'drizzle-orm'
+import {
+  WORKSHOP_MARGIN_PCT, addBreakdowns, breakdown, labourMinor, margin, marginCaveat, metalActual, metalMinor, stonesMinor, suggestedPriceMinor, toMinor,
+  type CostBreakdown, type Missing,
+} from '../../shared/domain/costing'
+import { routingStepMinutes } from '../../shared/domain/estimate'
+import { PIECE_METAL_ALLOY, gToMg, mgToG } from '../../shared/domain/metal'
+import { countsOf } from '../../shared/domain/stones'
+import type { CostingEstimate, CostingEstimateInput, CostingSide, OrderCosting, PieceEstimate } from '../../shared/schemas/costing'
+import type { PieceParams } from '../../shared/schemas/order'
+import type { Tx } from '../db/client'
+import {
+  alloyPrices, alloys, jobBagStones, jobBags, metalMovements, operationCosts, operationKinds, operations, orders, people, routingTemplates, stoneMovements,
+  templateStepCosts, templateSteps, workshops,
+} from '../db/schema/index'
+import { invalid, notFound } from '../errors/app-error'
+import { dayjs } from '../lib/time'
+import { actualMinutes } from './estimates'
+
+type Alloy = typeof alloys.$inferSelect
+interface StoneLine { count: number; costEachMinor: number | null; customerOwned: boolean }
+
+async function workshopOf(db: Tx, workshopId: number) {
+  const [w] = await db.select({ tz: workshops.timeZone, currency: workshops.currency }).from(workshops).where(eq(workshops.id, workshopId))
+  return { tz: w?.tz ?? 'Europe/London', currency: w?.currency ?? 'GBP' }
+}
+
+/** Every price of the workshop's alloys, so a price on any day is found without a query per line. */
+async function priceBook(db: Tx, workshopId: number) {
+  const list = await db.select().from(alloys).where(eq(alloys.workshopId, workshopId)).orderBy(asc(alloys.id))
+  const prices = list.length ? await db.select().from(alloyPrices).where(inArray(alloyPrices.alloyId, list.map((a) => a.id))).orderBy(asc(alloyPrices.effectiveOn), asc(alloyPrices.id)) : []
+  return {
+    alloys: list,
+    /** The price in force on a day: the latest effective on or before it. */
+    on(alloyId: number, day: string) {
+      let p: { pricePerGramMinor: number; effectiveOn: string } | null = null
+      for (const r of prices) if (r.alloyId === alloyId && r.effectiveOn <= day) p = { pricePerGramMinor: r.pricePerGramMinor, effectiveOn: r.effectiveOn }
+      return p
+    },
+    /** The alloy a piece's metal code means (an active one first; among several, the first set up). */
+    forPiece(metal: string): Alloy | undefined {
+      const m = PIECE_METAL_ALLOY[metal]
+      if (!m) return undefined
+      const fits = list.filter((a) => a.metal === m.metal && a.fineness === m.fineness)
+      return fits.find((a) => a.active) ?? fits[0]
+    },
+  }
+}
+type PriceBook = Awaited<ReturnType<typeof priceBook>>
+
+const side = (cost: CostBreakdown, priceMinor: number, missing: Missing[]): CostingSide => {
+  const m = margin(priceMinor, cost.totalMinor)
+  const seen = [...new Set(missing)]
+  return { cost, marginMinor: m.marginMinor, marginPct: m.marginPct, missing: seen, caveat: marginCaveat(seen) }
+}
+
+/** Metal at estimate: the piece's typical weight × quantity at its alloy's price on the day. */
+function metalEstimate(book: PriceBook, params: PieceParams, day: string) {
+  const alloy = book.forPiece(params.metal)
+  const price = alloy ? book.on(alloy.id, day) : null
+  const missing: Missing[] = []
+  let minor = 0
+  if (!PIECE_METAL_ALLOY[params.metal]) missing.push('metal-not-priced')
+  else if (params.metalWeightG === undefined) missing.push('no-metal-weight')
+  else if (!price) missing.push('no-metal-price')
+  else minor = metalMinor(gToMg(params.metalWeightG) * params.quantity, price.pricePerGramMinor)
+  return { minor, missing, alloyName: alloy?.name ?? null, pricePerGramMinor: price?.pricePerGramMinor ?? null, priceOn: price?.effectiveOn ?? null }
+}
+
+/** Stones at estimate: the stone list (cost each × count per piece × quantity), else the piece's count × its typical cost. */
+function stonesEstimate(params: PieceParams, lines: readonly StoneLine[] | undefined) {
+  const missing: Missing[] = []
+  let minor = 0
+  if (lines && lines.length) {
+    for (const l of lines) {
+      if (l.customerOwned) continue
+      if (l.costEachMinor === null) missing.push('stone-costs')
+      else minor += stonesMinor(l.costEachMinor, l.count * params.quantity)
+    }
+  } else if (params.stoneCount > 0) {
+    if (params.stoneCostEachMinor === undefined) missing.push('stone-costs')
+    else minor = stonesMinor(params.stoneCostEachMinor, params.stoneCount * params.quantity)
+  }
+  return { minor, missing }
+}
+
+async function averageRateMinor(db: Tx, workshopId: number) {
+  const staff = await db.select({ id: people.id, rate: people.hourlyRate, active: people.active }).from(people).where(eq(people.workshopId, workshopId))
+  const active = staff.filter((p) => p.active).map((p) => p.rate)
+  // The average of the rates (reals today) converted once to minor units.
+  const average = toMinor(active.length ? active.reduce((s, x) => s + x, 0) / active.length : 0)
+  return { average, rateOf: new Map(staff.map((p) => [p.id, toMinor(p.rate)])) }
+}
+
+/** The estimated cost of pieces not yet ordered: routing minutes × the workshop's average rate, the routing's outside costs, metal at today's price. */
+export async function estimate(db: Tx, workshopId: number, input: CostingEstimateInput): Promise<CostingEstimate> {
+  const { tz, currency } = await workshopOf(db, workshopId)
+  const day = dayjs().tz(tz).format('YYYY-MM-DD')
+  const book = await priceBook(db, workshopId)
+  const { average } = await averageRateMinor(db, workshopId)
+  const ids = [...new Set(input.pieces.map((p) => p.templateId))]
+  const templates = await db.select().from(routingTemplates).where(and(eq(routingTemplates.workshopId, workshopId), inArray(routingTemplates.id, ids)))
+  const steps = ids.length ? await db.select({ s: templateSteps, outside: operationKinds.outside }).from(templateSteps).innerJoin(operationKinds, eq(operationKinds.id, templateSteps.kindId))
+    .where(inArray(templateSteps.templateId, ids)).orderBy(asc(templateSteps.seq)) : []
+  const costs = ids.length ? await db.select().from(templateStepCosts).where(inArray(templateStepCosts.templateId, ids)) : []
+  const pieces: PieceEstimate[] = input.pieces.map((p, i) => {
+    const t = templates.find((x) => x.id === p.templateId)
+    if (!t) throw invalid(`pieces.${i}.templateId`, 'is not a routing of this workshop')
+    const missing: Missing[] = []
+    let minutes = 0, labour = 0, outside = 0, outsideSteps = 0, uncosted = 0
+    for (const { s, outside: isOutside } of steps.filter((x) => x.s.templateId === t.id)) {
+      if (isOutside || s.leadDays > 0) {
+        outsideSteps++
+        const perUnit = costs.find((c) => c.stepKey === s.key)?.outsideCost ?? null
+        if (perUnit === null) uncosted++
+        else outside += toMinor(perUnit) * p.params.quantity
+        continue
+      }
+      const m = routingStepMinutes(s, t, p.params)
+      minutes += m
+      labour += labourMinor(m, average)
+    }
+    if (uncosted) missing.push(uncosted === outsideSteps ? 'outside-uncosted' : 'some-outside-uncosted')
+    const metal = metalEstimate(book, p.params, day)
+    const stones = stonesEstimate(p.params, p.stones)
+    return {
+      piece: p.piece, quantity: p.params.quantity, metalWeightG: p.params.metalWeightG ?? null, alloyName: metal.alloyName, pricePerGramMinor: metal.pricePerGramMinor, priceOn: metal.priceOn,
+      labourMinutes: Math.round(minutes), cost: breakdown({ metalMinor: metal.minor, stonesMinor: stones.minor, outsideMinor: outside, labourMinor: labour }),
+      missing: [...metal.missing, ...stones.missing, ...missing],
+    }
+  })
+  const cost = addBreakdowns(pieces.map((p) => p.cost))
+  const priceMinor = toMinor(input.priceQuoted)
+  return {
+    priceMinor, estimate: side(cost, priceMinor, pieces.flatMap((p) => p.missing)), pieces,
+    marginTargetPct: WORKSHOP_MARGIN_PCT, suggestedPriceMinor: suggestedPriceMinor(cost.totalMinor), currency, pricedOn: day,
+  }
+}
+
+export interface CostedOrder extends OrderCosting { estimateMinutes: number; actualMinutes: number; outsideSteps: number; outsideUncosted: number }
+
+/**
+ * Orders at estimate and at actual. Estimate: each step's estimate minutes at the rate of whoever did it (else the person planned, else
+ * the average), the routing's outside costs, the piece's typical metal at the price on the day the order was taken, the stone list.
+ * Actual: time records at each person's rate, outside work as invoiced (else expected), metal from the ledger, stones as counted.
+ */
+export async function costOrders(db: Tx, workshopId: number, orderIds: number[]): Promise<Map<number, CostedOrder>> {
+  const out = new Map<number, CostedOrder>()
+  if (!orderIds.length) return out
+  const { tz, currency } = await workshopOf(db, workshopId)
+  const localDay = (d: unknown) => dayjs(new Date(d as string)).tz(tz).format('YYYY-MM-DD')
+  const book = await priceBook(db, workshopId)
+  const { average, rateOf } = await averageRateMinor(db, workshopId)
+  const orderRows = await db.select().from(orders).where(and(eq(orders.workshopId, workshopId), inArray(orders.id, orderIds)))
+  const bags = await db.select().from(jobBags).where(inArray(jobBags.orderId, orderIds)).orderBy(asc(jobBags.id))
+  const bagIds = [...bags.map((b) => b.id), -1]
+  const ops = await db.select({ op: operations, outside: operationKinds.outside }).from(operations).innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
+    .where(inArray(operations.jobBagId, bagIds)).orderBy(asc(operations.seq))
+  const templateIds = [...new Set(bags.map((b) => b.templateId).filter((x): x is number => x !== null)), -1]
+  const stepCosts = await db.select().from(templateStepCosts).where(inArray(templateStepCosts.templateId, templateIds))
+  const opIds = [...ops.map((o) => o.op.id), -1]
+  const opCosts = await db.select().from(operationCosts).where(inArray(operationCosts.operationId, opIds))
+  const { byOperation, records } = await actualMinutes(db, ops.filter((o) => o.op.status === 'done').map((o) => o.op.id))
+  const moves = await db.select().from(metalMovements).where(and(eq(metalMovements.workshopId, workshopId), inArray(metalMovements.jobBagId, bagIds)))
+    .orderBy(asc(metalMovements.recordedAt), asc(metalMovements.id))
+  const lines = await db.select().from(jobBagStones).where(inArray(jobBagStones.jobBagId, bagIds)).orderBy(asc(jobBagStones.id))
+  const stoneMoves = lines.length ? await db.select().from(stoneMovements).where(inArray(stoneMovements.stoneLineId, lines.map((l) => l.id))) : []
+
+  for (const order of orderRows) {
+    const orderDay = localDay(order.createdAt)
+    const est: CostBreakdown[] = [], act: CostBreakdown[] = []
+    const missEst: Missing[] = [], missAct: Missing[] = []
+    const pieces: PieceEstimate[] = []
+    let estMin = 0, actMin = 0, outsideSteps = 0, outsideUncosted = 0, estOutsideSteps = 0, estUncosted = 0, customerLossMg = 0
+    const myBags = bags.filter((b) => b.orderId === order.id)
+    let weighedBags = 0, preciousBags = 0
+    for (const bag of myBags) {
+      const params = bag.params
+      let labourEst = 0, labourAct = 0, outsideEst = 0, outsideAct = 0, bagMinutes = 0
+      for (const { op, outside } of ops.filter((o) => o.op.jobBagId === bag.id)) {
+        if (op.status === 'skipped') continue
+        const mine = records.filter((r) => r.operationId === op.id)
+        const byPerson = new Map<number, number>()
+        for (const r of mine) byPerson.set(r.personId, (byPerson.get(r.personId) ?? 0) + r.minutes)
+        if (!outside && op.leadDays === 0) {
+          const main = [...byPerson.entries()].sort((a, b) => b[1] - a[1] || a[0] - b[0])[0]?.[0] ?? op.plannedPersonId
+          const rate = main != null ? (rateOf.get(main) ?? average) : average
+          estMin += op.estimateMinutes
+          bagMinutes += op.estimateMinutes
+          labourEst += labourMinor(op.estimateMinutes, rate)
+          if (op.status === 'done') {
+            actMin += byOperation.get(op.id) ?? 0
+            // One line per person on the step: their minutes at their rate, rounded once.
+            for (const [personId, minutes] of byPerson) labourAct += labourMinor(minutes, rateOf.get(personId) ?? average)
+          }
+          continue
+        }
+        const perUnit = stepCosts.find((c) => c.templateId === bag.templateId && c.stepKey === op.key)?.outsideCost ?? null
+        const expected = perUnit === null ? 0 : toMinor(perUnit) * Math.max(1, params.quantity)
+        const invoicedRow = opCosts.find((c) => c.operationId === op.id)
+        const invoiced = invoicedRow?.outsideCost ?? null
+        estOutsideSteps++
+        if (perUnit === null) estUncosted++
+        outsideEst += expected
+        if (op.status === 'done') {
+          outsideSteps++
+          if (perUnit === null && invoiced === null) outsideUncosted++
+          outsideAct += invoiced !== null ? toMinor(invoiced) : expected
+        }
+      }
+      // Metal at estimate, on the day the order was taken.
+      const mEst = metalEstimate(book, params, orderDay)
+      const sLines = lines.filter((l) => l.jobBagId === bag.id)
+      const sEst = stonesEstimate(params, sLines.map((l) => ({ count: l.count, costEachMinor: l.costEachMinor, customerOwned: l.customerOwned })))
+      missEst.push(...mEst.missing, ...sEst.missing)
+      const bagEst = breakdown({ metalMinor: mEst.minor, stonesMinor: sEst.minor, outsideMinor: outsideEst, labourMinor: labourEst })
+      est.push(bagEst)
+      pieces.push({ piece: bag.piece, quantity: params.quantity, metalWeightG: params.metalWeightG ?? null, alloyName: mEst.alloyName, pricePerGramMinor: mEst.pricePerGramMinor, priceOn: mEst.priceOn, labourMinutes: Math.round(bagMinutes), cost: bagEst, missing: [...mEst.missing, ...sEst.missing] })
+
+      // Metal at actual: per alloy of the bag, the last piece weighing and the loss at the price on the day of its first issue.
+      let metalAct = 0
+      const bagMoves = moves.filter((m) => m.jobBagId === bag.id && (m.kind === 'issued' || m.kind === 'returned'))
+      if (PIECE_METAL_ALLOY[params.metal] || bagMoves.length) preciousBags++
+      if (bagMoves.length) weighedBags++
+      for (const alloyId of new Set(bagMoves.map((m) => m.alloyId))) {
+        const mine = bagMoves.filter((m) => m.alloyId === alloyId)
+        const issued = mine.filter((m) => m.kind === 'issued')
+        const issuedMg = issued.reduce((s, m) => s + m.weightMg, 0)
+        const customerMg = issued.filter((m) => m.source === 'customer').reduce((s, m) => s + m.weightMg, 0)
+        const returnedMg = mine.filter((m) => m.kind === 'returned').reduce((s, m) => s + m.weightMg, 0)
+        const lastPiece = mine.filter((m) => m.kind === 'returned' && m.form === 'piece' && m.correctsId === null).at(-1)
+        const pieceMg = lastPiece ? lastPiece.weightMg + mine.filter((m) => m.correctsId === lastPiece.id).reduce((s, m) => s + m.weightMg, 0) : 0
+        const firstIssue = issued.find((m) => m.correctsId === null)
+        const price = firstIssue ? book.on(alloyId, localDay(firstIssue.recordedAt)) : null
+        if (!price) { missAct.push('no-metal-price'); continue }
+        const r = metalActual({ pieceMg, lossMg: issuedMg - returnedMg, customerMg, pricePerGramMinor: price.pricePerGramMinor })
+        metalAct += r.minor
+        customerLossMg += r.customerLossMg
+      }
+      if (!bagMoves.length && !PIECE_METAL_ALLOY[params.metal]) missAct.push('metal-not-priced')
+      // Stones at actual: cost each × (set + broken + lost) as counted; the customer's own cost nothing.
+      let stonesAct = 0
+      if (sLines.length) {
+        for (const l of sLines) {
+          const c = countsOf(stoneMoves.filter((m) => m.stoneLineId === l.id))
+          if (c.issued === 0) missAct.push('stones-not-counted')
+          if (l.customerOwned) continue
+          if (l.costEachMinor === null) missAct.push('stone-costs')
+          else stonesAct += stonesMinor(l.costEachMinor, c.set + c.broken + c.lost)
+        }
+      } else {
+        // No stone list: the piece's count at its typical cost, as at estimate.
+        stonesAct = sEst.minor
+        missAct.push(...sEst.missing)
+      }
+      act.push(breakdown({ metalMinor: metalAct, stonesMinor: stonesAct, outsideMinor: outsideAct, labourMinor: labourAct }))
+    }
+    if (preciousBags > 0 && weighedBags === 0) missAct.push('no-metal-weighed')
+    else if (weighedBags > 0 && weighedBags < preciousBags) missAct.push('some-metal-weighed')
+    if (estUncosted) missEst.push(estUncosted === estOutsideSteps ? 'outside-uncosted' : 'some-outside-uncosted')
+    if (outsideUncosted) missAct.push(outsideUncosted === outsideSteps ? 'outside-uncosted' : 'some-outside-uncosted')
+    const estCost = addBreakdowns(est)
+    // The price quoted is a real column today: converted to minor units once, here.
+    const priceMinor = toMinor(order.priceQuoted)
+    out.set(order.id, {
+      orderId: order.id, orderNumber: order.number, priceMinor,
+      estimate: side(estCost, priceMinor, missEst), actual: side(addBreakdowns(act), priceMinor, missAct), pieces,
+      marginTargetPct: WORKSHOP_MARGIN_PCT, suggestedPriceMinor: suggestedPriceMinor(estCost.totalMinor), currency, pricedOn: orderDay,
+      customerMetalLossG: mgToG(customerLossMg), estimateMinutes: estMin, actualMinutes: actMin, outsideSteps, outsideUncosted,
+    })
+  }
+  return out
+}
+
+/** One order's costing (GET /orders/:id/costing). */
+export async function orderCosting(db: Tx, workshopId: number, orderId: number): Promise<OrderCosting> {
+  const c = (await costOrders(db, workshopId, [orderId])).get(orderId)
+  if (!c) throw notFound('Order')
+  const { estimateMinutes: _e, actualMinutes: _a, outsideSteps: _o, outsideUncosted: _u, ...rest } = c
+  return rest
+}

@@ -53,6 +53,8 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
 
   const alloys = await tx.insert(s.alloys).values(ALLOYS.map((a) => ({ workshopId, code: a.code, name: a.name, metal: a.metal, fineness: a.fineness, densityGPerCm3: a.density }))).returning()
   await tx.insert(s.alloyPrices).values(ALLOYS.flatMap((a, i) => [
+    // The year before: 4 % under the first price, so the demo's older orders have a price on the day they were taken.
+    { alloyId: alloys[i]!.id, pricePerGramMinor: Math.round(a.prices[0] * 0.96), effectiveOn: localDay(now, -400), setBy: owner!.id },
     { alloyId: alloys[i]!.id, pricePerGramMinor: a.prices[0], effectiveOn: localDay(now, -45), setBy: owner!.id },
     { alloyId: alloys[i]!.id, pricePerGramMinor: a.prices[1], effectiveOn: localDay(now, -12), setBy: owner!.id },
   ]))

@@ -8,6 +8,7 @@ import * as s from './schema/index'
 import { hashPassword } from '../services/users'
 import { seedMetal } from './seed-metal'
 import { seedStones } from './seed-stones'
+import { seedCosting } from './seed-costing'
 import { dayRange, dayjs, expandPattern, MinuteClock, subtract, type Interval } from '../lib/time'
 
 export const DEMO_PASSWORD = 'millgrain-demo'
@@ -392,6 +393,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     await tx.update(s.orders).set({ updatedAt: sql`${s.orders.createdAt}` }).where(eq(s.orders.status, 'open'))
     await seedMetal(tx, { workshopId, now })
     await seedStones(tx, workshopId)
+    await seedCosting(tx, workshopId)
   })
   return true
 }

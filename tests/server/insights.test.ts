@@ -374,7 +374,8 @@ describe('outside work costs', () => {
     const list = await owner.get('/api/insights/outside-costs')
     expect(list.status).toBe(200)
     const hallmark = list.body.find((r: { stepName: string }) => /Hallmark/.test(r.stepName))
-    expect(hallmark).toMatchObject({ leadDays: expect.any(Number), outsideCost: null })
+    // The demo charges 2.80 per piece at the assay office (server/db/seed-costing.ts).
+    expect(hallmark).toMatchObject({ leadDays: expect.any(Number), outsideCost: 2.8 })
     const put = await owner.put(`/api/insights/templates/${hallmark.templateId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCost: 12.5 })
     expect(put.status).toBe(200)
     const again = (await owner.get('/api/insights/outside-costs')).body.find((r: { templateId: number; stepKey: string }) => r.templateId === hallmark.templateId && r.stepKey === hallmark.stepKey)

@@ -5,7 +5,7 @@ import type { QuoteInput, QuoteUpdate, QuoteStatus } from '../../shared/schemas/
 import { pieceParams, type OrderInput } from '../../shared/schemas/order'
 import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
-import { invalid, notFound, staleVersion } from '../errors/app-error'
+import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { money } from '../mail/templates'
@@ -20,15 +20,15 @@ const cols = {
   currency: s.quotes.currency, priceMinor: s.quotes.priceMinor, depositMinor: s.quotes.depositMinor, validUntil: s.quotes.validUntil,
   sentAt: s.quotes.sentAt, acceptedAt: s.quotes.acceptedAt, withdrawnAt: s.quotes.withdrawnAt, createdAt: s.quotes.createdAt, version: s.quotes.version,
 }
-const today = async (db: Db | Trx, workshopId: number) => {
+const today = async (db: Db | Trx, workshopId: number, now = new Date()) => {
   const [w] = await db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, workshopId))
-  return dayjs().tz(w?.timeZone ?? 'Europe/London').format('YYYY-MM-DD')
+  return dayjs(now).tz(w?.timeZone ?? 'Europe/London').format('YYYY-MM-DD')
 }
 
 /** Sent quotes past their validity lapse (run before reading and by the daily timer). */
-export async function expireQuotes(deps: Pick<Deps, 'db' | 'realtime'>, workshopId: number) {
+export async function expireQuotes(deps: Pick<Deps, 'db' | 'realtime'>, workshopId: number, now = new Date()) {
   const rows = await deps.db.update(s.quotes).set({ status: 'expired', version: sql`${s.quotes.version} + 1` })
-    .where(and(eq(s.quotes.workshopId, workshopId), inArray(s.quotes.status, ['drafted', 'sent']), lt(s.quotes.validUntil, await today(deps.db, workshopId)))).returning()
+    .where(and(eq(s.quotes.workshopId, workshopId), inArray(s.quotes.status, ['drafted', 'sent']), lt(s.quotes.validUntil, await today(deps.db, workshopId, now)))).returning()
   for (const q of rows) deps.realtime.emit(workshopId, 'quote:changed', { id: q.id, version: q.version, status: q.status })
   return rows.length
 }
@@ -83,12 +83,18 @@ export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
   return getQuote(deps.db, actor.workshopId, id.id)
 }
 
+/** A move the quote's state does not allow (sending a withdrawn quote, changing a sent one): 409 with the reason. */
+const wrongState = (status: QuoteStatus, action: string) => new AppError({
+  code: 'conflict', details: { status },
+  message: `A ${status} quote cannot be ${action}${status === 'sent' && action === 'edited' ? ': the customer has it already; take it back and make a new one' : ''}`,
+})
+
 async function change(deps: Deps, actor: Actor, id: number, version: number, allowed: QuoteStatus[], values: Partial<typeof s.quotes.$inferInsert>, action: string, tx0?: Trx) {
   const run = async (tx: Trx) => {
     const [cur] = await tx.select().from(s.quotes).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId))).for('update')
     if (!cur) throw notFound('Quote')
     if (cur.version !== version) throw staleVersion('The quote')
-    if (!allowed.includes(cur.status)) throw invalid('status', `a ${cur.status} quote cannot be ${action}`)
+    if (!allowed.includes(cur.status)) throw wrongState(cur.status, action)
     const next = { ...cur, ...values }
     if (next.depositMinor > next.priceMinor) throw invalid('depositMinor', 'must not be more than the price')
     const [u] = await tx.update(s.quotes).set({ ...values, version: sql`${s.quotes.version} + 1` }).where(eq(s.quotes.id, id)).returning()
@@ -102,14 +108,15 @@ async function change(deps: Deps, actor: Actor, id: number, version: number, all
 
 export async function updateQuote(deps: Deps, actor: Actor, id: number, input: QuoteUpdate) {
   const { version, ...values } = input
-  await change(deps, actor, id, version, ['drafted', 'sent'], values, 'edited')
+  // Only a draft changes: a sent quote is what the customer holds, with its deposit link at the provider.
+  await change(deps, actor, id, version, ['drafted'], values, 'edited')
   return getQuote(deps.db, actor.workshopId, id)
 }
 
 export async function sendQuote(deps: Deps, actor: Actor, id: number, version: number) {
   await expireQuotes(deps, actor.workshopId)
   const before = await getQuote(deps.db, actor.workshopId, id)
-  if (!['drafted', 'sent'].includes(before.status)) throw invalid('status', `a ${before.status} quote cannot be sent`)
+  if (!['drafted', 'sent'].includes(before.status)) throw wrongState(before.status, 'sent')
   if (before.version !== version) throw staleVersion('The quote')
   let link = before.links.find((l) => l.status === 'open' && l.purpose === 'deposit')
   if (!link && before.depositMinor > 0) link = await createLink(deps, actor, { quoteId: id, orderId: before.orderId, purpose: 'deposit', amountMinor: before.depositMinor, currency: before.currency, description: `Deposit for quote ${before.number}: ${before.title}`, customerEmail: before.customerEmail || undefined })
@@ -144,7 +151,7 @@ export async function acceptQuote(deps: Deps, actor: Actor, id: number, version:
   await expireQuotes(deps, actor.workshopId)
   const [q] = await deps.db.select().from(s.quotes).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId)))
   if (!q) throw notFound('Quote')
-  if (!['drafted', 'sent'].includes(q.status)) throw invalid('status', `a ${q.status} quote cannot be accepted`)
+  if (!['drafted', 'sent'].includes(q.status)) throw wrongState(q.status, 'accepted')
   if (q.orderId) await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString() }, 'accepted')
   else {
     await takeOrder(deps, actor, await quoteOrderInput(deps.db, q), async (tx, orderId) => {
@@ -168,7 +175,7 @@ export async function withdrawQuote(deps: Deps, actor: Actor, id: number, versio
 
 export async function quoteLink(deps: Deps, actor: Actor, id: number, amountMinor?: number) {
   const q = await getQuote(deps.db, actor.workshopId, id)
-  if (!['drafted', 'sent'].includes(q.status)) throw invalid('status', `a ${q.status} quote takes no payment`)
+  if (!['drafted', 'sent'].includes(q.status)) throw wrongState(q.status, 'paid')
   const amount = amountMinor ?? q.depositMinor
   if (amount < 1) throw invalid('amountMinor', 'must be at least 1')
   if (amount > q.priceMinor) throw invalid('amountMinor', 'must not be more than the price')
@@ -201,9 +208,9 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
 }
 
 /** Daily: expire lapsed quotes, remind customers of quotes ending within 3 days (once) and of balances owed on pieces ready to collect (once a day). */
-export async function sendMoneyReminders(deps: Deps, workshopId: number) {
-  await expireQuotes(deps, workshopId)
-  const day = await today(deps.db, workshopId)
+export async function sendMoneyReminders(deps: Pick<Deps, 'db' | 'realtime' | 'mailer'>, workshopId: number, now = new Date()) {
+  await expireQuotes(deps, workshopId, now)
+  const day = await today(deps.db, workshopId, now)
   const soon = dayjs(day).add(3, 'day').format('YYYY-MM-DD')
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   const sent = await deps.db.select({ kind: s.outbox.kind, meta: s.outbox.meta, orderId: s.outbox.orderId, createdAt: s.outbox.createdAt }).from(s.outbox).where(and(eq(s.outbox.workshopId, workshopId), inArray(s.outbox.kind, ['quote-reminder', 'balance-reminder'])))

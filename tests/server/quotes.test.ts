@@ -1,0 +1,115 @@
+// Quotes: the state rules (drafted → sent → accepted, withdrawn or expired) and the daily money reminders sent by the timer.
+import { createServer, type Server } from 'node:http'
+import type { AddressInfo } from 'node:net'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { startPayFake, TEST_CARDS, type PayFake } from '../../server/dev/pay-fake'
+import { startDigestTimer } from '../../server/mail/digest-timer'
+import { createMailer } from '../../server/mail/transport'
+import { loadConfig } from '../../server/config'
+import { dayjs } from '../../server/lib/time'
+import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+
+let t: TestApp, fake: PayFake, http: Server
+let sales: Agent, manager: Agent
+let customerId: number, tz: string
+
+beforeAll(async () => {
+  fake = await startPayFake()
+  t = await createTestApp({ PAY_FAKE_URL: fake.url })
+  http = createServer(t.app)
+  await new Promise<void>((r) => http.listen(0, '127.0.0.1', () => r()))
+  fake.webhookUrl = `http://127.0.0.1:${(http.address() as AddressInfo).port}/api/payments/webhook`
+  ;[sales, manager] = await Promise.all([signedIn(t.app, 'sales'), signedIn(t.app, 'manager')])
+  customerId = Number((await t.pool.query('select min(id) as id from customers')).rows[0].id)
+  tz = (await t.pool.query('select time_zone from workshops order by id limit 1')).rows[0].time_zone
+})
+afterAll(async () => { await new Promise((r) => http?.close(r)); await fake?.close(); await t?.close() })
+
+const drafted = async (o: Record<string, unknown> = {}) => {
+  const q = await sales.post('/api/quotes', { customerId, title: 'Signet ring', priceMinor: 125000, currency: 'GBP', ...o })
+  expect(q.status, JSON.stringify(q.body)).toBe(201)
+  return q.body
+}
+const send = async (q: { id: number; version: number }) => {
+  const r = await sales.post(`/api/quotes/${q.id}/send`, { version: q.version })
+  expect(r.status, JSON.stringify(r.body)).toBe(200)
+  return r.body
+}
+
+describe('quote states', () => {
+  it('when a draft is changed, sent and accepted, then each step moves it on, and a sent quote can no longer be changed', async () => {
+    const q = await drafted()
+    expect(q.status).toBe('drafted')
+    const edited = await sales.patch(`/api/quotes/${q.id}`, { title: 'Signet ring, 18 ct', version: q.version })
+    expect(edited.status, JSON.stringify(edited.body)).toBe(200)
+    const sent = await send(edited.body)
+    expect(sent).toMatchObject({ status: 'sent', title: 'Signet ring, 18 ct' })
+    const change = await sales.patch(`/api/quotes/${q.id}`, { priceMinor: 99000, version: sent.version })
+    expect(change.status).toBe(409)
+    expect(change.body.error).toMatch(/sent quote cannot be edited/)
+    const accepted = await sales.post(`/api/quotes/${q.id}/accept`, { version: sent.version })
+    expect(accepted.status, JSON.stringify(accepted.body)).toBe(200)
+    expect(accepted.body).toMatchObject({ status: 'accepted', orderId: expect.any(Number) })
+    expect((await sales.post(`/api/quotes/${q.id}/withdraw`, { version: accepted.body.version })).status).toBe(409)
+  })
+
+  it('when a sent quote is withdrawn, then sending or accepting it again is refused with 409 saying it is withdrawn, and its payment link closes', async () => {
+    const sent = await send(await drafted())
+    const w = await sales.post(`/api/quotes/${sent.id}/withdraw`, { version: sent.version })
+    expect(w.body).toMatchObject({ status: 'withdrawn', withdrawnAt: expect.any(String) })
+    expect(w.body.links.map((l: { status: string }) => l.status)).toEqual(['expired'])
+    const again = await sales.post(`/api/quotes/${sent.id}/send`, { version: w.body.version })
+    expect(again.status).toBe(409)
+    expect(again.body.error).toBe('A withdrawn quote cannot be sent')
+    expect((await sales.post(`/api/quotes/${sent.id}/accept`, { version: w.body.version })).status).toBe(409)
+  })
+
+  it('when a sent quote is edited with an old version, then the edit is refused as stale', async () => {
+    const q = await drafted()
+    expect((await sales.patch(`/api/quotes/${q.id}`, { title: 'A', version: q.version })).status).toBe(200)
+    expect((await sales.patch(`/api/quotes/${q.id}`, { title: 'B', version: q.version })).status).toBe(409)
+  })
+})
+
+describe('daily money reminders', () => {
+  it('when the day runs, then a quote ending within 3 days is reminded once, a lapsed one expires, a piece ready to collect gets its balance; a second run sends nothing more', async () => {
+    const today = dayjs().tz(tz).format('YYYY-MM-DD')
+    const soon = await send(await drafted({ title: 'Pendant ending soon', validUntil: dayjs(today).add(2, 'day').format('YYYY-MM-DD') }))
+    const later = await send(await drafted({ title: 'Pendant ending later', validUntil: dayjs(today).add(10, 'day').format('YYYY-MM-DD') }))
+    const lapsed = await send(await drafted({ title: 'Pendant lapsed' }))
+    await t.pool.query('update quotes set valid_until = $1 where id = $2', [dayjs(today).subtract(1, 'day').format('YYYY-MM-DD'), lapsed.id])
+    // A piece ready to collect: 1,250.00 GBP, deposit 375.00 paid by card, so 875.00 is still owed (hand-worked).
+    const paid = await send(await drafted({ title: 'Ring ready to collect' }))
+    await fake.pay(paid.links[0].url.split('/pay/')[1]!, TEST_CARDS.paid)
+    const orderId = (await sales.get(`/api/quotes/${paid.id}`)).body.orderId as number
+    await t.pool.query("update orders set status = 'ready' where id = $1", [orderId])
+
+    // The timer at 08:00 workshop time today (after the 07:30 start).
+    const at = dayjs.tz(`${today} 08:00`, tz).toDate()
+    const deps = { db: t.db, realtime: t.realtime, mailer: createMailer(loadConfig({ DATABASE_URL: t.url, SESSION_SECRET: 'test-secret-test-secret', NODE_ENV: 'test' })) }
+    const outbox = async (kind: string) => ((await manager.get(`/api/outbox?kind=${kind}&pageSize=100`)).body.items as { id: number; subject: string; orderId: number | null }[])
+    const timer = startDigestTimer(deps, { clock: () => at, everyMs: 3_600_000 })
+    try {
+      await timer.tick()
+      const quoteReminders = await outbox('quote-reminder')
+      expect(quoteReminders.filter((m) => m.subject.includes(soon.number))).toHaveLength(1)
+      expect(quoteReminders.some((m) => m.subject.includes(later.number) || m.subject.includes(lapsed.number))).toBe(false)
+      expect((await sales.get(`/api/quotes/${lapsed.id}`)).body.status).toBe('expired')
+      const balance = (await outbox('balance-reminder')).filter((m) => m.orderId === orderId)
+      expect(balance).toHaveLength(1)
+      const text = (await manager.get(`/api/outbox/${balance[0]!.id}`)).body.text as string
+      expect(text).toContain('£875.00')
+
+      // The same day again, from the timer and from a restarted server's timer: nothing more goes out.
+      const count = async () => Number((await t.pool.query("select count(*) as n from outbox where kind in ('quote-reminder', 'balance-reminder')")).rows[0].n)
+      const before = await count()
+      await timer.tick()
+      const restarted = startDigestTimer(deps, { clock: () => at, everyMs: 3_600_000 })
+      await restarted.tick()
+      restarted.stop()
+      expect(await count()).toBe(before)
+    } finally {
+      timer.stop()
+    }
+  })
+})

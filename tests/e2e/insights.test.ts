@@ -99,7 +99,7 @@ describe('insights as the owner', () => {
     await screenshot(page, 'insights-by-person')
   })
 
-  it('when job costing is shown, then every margin figure has the caveat of what it leaves out right beside it', async () => {
+  it('when job costing is shown, then every margin figure has beside it what it could not count, and the figures are the server’s', async () => {
     const costing = page.locator('[data-test=insights-costing]')
     await costing.locator('.el-table__body .el-table__row').first().waitFor()
     // Every margin cell (at estimate and at actual, each row and the total) holds the figure and, in the same cell, the words of what it counts.
@@ -108,10 +108,24 @@ describe('insights as the owner', () => {
       .map((td) => ({ hasFigure: /\d+\.\d %/.test(td.textContent ?? ''), caveat: td.querySelector('[data-test=margin-caveat]')?.textContent?.trim() ?? '' })))
     const rows = await costing.locator('.el-table__body .el-table__row').count()
     expect(cells.length).toBe(2 * rows + 2)
-    // The demo enters no outside costs (server/db/seed.ts): every margin counts labour only; orders with outside steps say those are left out too.
-    for (const c of cells) expect([{ hasFigure: true, caveat: 'labour only — metal, stones and outside work not yet counted' }, { hasFigure: true, caveat: 'labour only — metal and stones not yet counted' }]).toContainEqual(c)
-    expect(cells.at(-1)!.caveat).toBe('labour only — metal, stones and outside work not yet counted')
-    expect(await page.locator('[data-test=insights-costing-note]').textContent()).toContain('metal and stones are not yet counted')
+    // The words come from a fixed list (shared/domain/costing.ts): all four counted, or only what is missing.
+    const words = /^(on some orders: )?((no metal weight estimated|no metal weighed yet|metal weighed on some pieces only|no alloy price for the day|base or mixed metal not priced|stone costs not entered|stones not counted back|outside work not costed|some outside work not costed)(; |$))+$/
+    for (const c of cells) {
+      expect(c.hasFigure).toBe(true)
+      if (c.caveat !== 'metal, stones, outside work and labour counted') expect(c.caveat).toMatch(words)
+    }
+    // The first row on screen carries the server's figures for that order (its own API answer, formatted as the table does).
+    const api = await page.evaluate(async () => (await fetch('/api/insights/costing', { credentials: 'same-origin' })).json()) as { rows: { orderNumber: string; costAtEstimate: number; metalAtActual: number; caveatAtEstimate: string; caveatAtActual: string }[] }
+    const first = page.locator('[data-test=insights-costing] .el-table__body .el-table__row').first()
+    const number = (await first.locator('.mg-mono').textContent())!.trim()
+    const row = api.rows.find((r) => r.orderNumber === number)!
+    const money = (n: number) => n.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })
+    expect(await first.textContent()).toContain(money(row.costAtEstimate))
+    expect(await first.locator('[data-test=cost-parts-actual]').textContent()).toContain(`metal ${money(row.metalAtActual)}`)
+    expect((await first.locator('[data-test=margin-caveat]').allTextContents()).map((x) => x.trim())).toEqual([row.caveatAtEstimate, row.caveatAtActual])
+    // Some demo orders were weighed in and out: their metal is counted.
+    expect(api.rows.some((r) => r.metalAtActual > 0)).toBe(true)
+    expect(await page.locator('[data-test=insights-costing-note]').textContent()).toContain('Cost = metal')
     await page.locator('[data-test=insights-costing]').scrollIntoViewIfNeeded()
     await screenshot(page, 'insights-costing')
   })

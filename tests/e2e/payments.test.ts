@@ -38,6 +38,7 @@ describe('quotes and deposits', () => {
   let orderId = 0
   let quoteNumber = ''
   let linkUrl = ''
+  let draftNumber = ''
 
   it('when sales writes a quote from a promise check and keeps it as a draft, then it keeps the routing, the promised date and how sure it is', async () => {
     await page.goto('/promise')
@@ -61,6 +62,7 @@ describe('quotes and deposits', () => {
     await done.waitFor({ timeout: 15_000 })
     const number = /Quote (\S+) kept as a draft/.exec(await done.textContent() ?? '')?.[1]
     expect(number).toMatch(/^Q\d\d-\d{4}$/)
+    draftNumber = number!
     const { rows: [q] } = await e2e.db.pool.query(`select status, price_minor, deposit_minor, promised_date::text as promised, details, confidence from quotes where number = $1`, [number])
     expect(q).toMatchObject({ status: 'drafted', price_minor: 64000, deposit_minor: 19200 })
     expect(q.details.templateId).toBe(check.template.id)
@@ -105,6 +107,9 @@ describe('quotes and deposits', () => {
     const open = page.locator('[data-test=order-money] [data-purpose=deposit][data-status=open] [data-test=link-open]')
     await open.waitFor()
     expect(await open.getAttribute('href')).toBe(linkUrl)
+    // The order's own price figure stays as taken; when it differs from the quote's, the drawer says what the quote asks.
+    const { rows: [own] } = await e2e.db.pool.query(`select round(price_quoted * 100)::int as minor from orders where id = $1`, [orderId])
+    if (own.minor !== 125000) await page.locator('[data-test=order-price-quote-note]', { hasText: 'the quote asks £1,250.00' }).waitFor()
     await screenshot(page, 'payments-order-owed', { fullPage: false })
   })
 
@@ -226,5 +231,52 @@ describe('quotes and deposits', () => {
     } finally {
       await benchContext.close()
     }
+  })
+
+  it('when sales opens Quotes, then the paid quote reads agreed with what is paid and owed, and the draft can be taken back', async () => {
+    await page.goto('/quotes')
+    await page.locator('.el-segmented').getByText('All', { exact: true }).click()
+    const row = page.locator('[data-test=quotes-table] .el-table__row', { hasText: quoteNumber })
+    await row.waitFor()
+    const { rows: [q] } = await e2e.db.pool.query(`select status from quotes where number = $1`, [quoteNumber])
+    // Paying the deposit accepts the quote.
+    expect(q.status).toBe('accepted')
+    expect(await row.textContent()).toContain('Agreed')
+    await row.locator('[data-test=quote-row-paid]', { hasText: '£375.00' }).waitFor()
+    expect(((await row.locator('[data-test=quote-row-owed]').textContent()) ?? '').trim()).toBe('£875.00')
+    await screenshot(page, 'payments-quotes-list', { fullPage: false })
+    await page.locator('[data-test=quotes-table] .el-table__row', { hasText: draftNumber }).click()
+    const drawer = page.locator('[data-test=quote-drawer]')
+    await drawer.locator('[data-test=quote-price]', { hasText: '£640.00' }).waitFor()
+    expect(((await drawer.locator('[data-test=quote-deposit]').textContent()) ?? '').trim()).toBe('£192.00')
+    expect(((await drawer.locator('[data-test=quote-owed]').textContent()) ?? '').trim()).toBe('£640.00')
+    await drawer.locator('[data-test=quote-withdraw]').click()
+    await page.locator('.el-message-box').getByRole('button', { name: 'Take it back' }).click()
+    await drawer.locator('[data-test=quote-status]', { hasText: 'Taken back' }).waitFor()
+    // Taken back, it asks for nothing any more.
+    await drawer.locator('[data-test=quote-owed]', { hasText: '£0.00' }).waitFor()
+    await drawer.locator('[data-test=quote-deposit-state]').waitFor({ state: 'detached' })
+    const { rows: [d] } = await e2e.db.pool.query(`select status from quotes where number = $1`, [draftNumber])
+    expect(d.status).toBe('withdrawn')
+    await screenshot(page, 'payments-quote-taken-back', { fullPage: false })
+  })
+
+  it('when sales records the balance paid in cash, then the order owes nothing and the payment names who took it', async () => {
+    await page.goto(`/orders/${orderId}`)
+    await page.locator('[data-test=money-owed]', { hasText: '£875.00' }).waitFor({ timeout: 15_000 })
+    await page.locator('[data-test=money-record]').click()
+    const dialog = page.locator('[data-test=payment-record]').locator('xpath=ancestor-or-self::div[contains(@class, "el-dialog")]').first()
+    await dialog.waitFor()
+    // The balance owed is offered: £1,250.00 − £375.00 = £875.00.
+    expect(await field(dialog, 'payment-amount').inputValue()).toBe('875.00')
+    await field(dialog, 'payment-note').fill('Paid at collection')
+    await dialog.locator('[data-test=payment-save]').click()
+    await page.locator('[data-test=money-owed]', { hasText: '£0.00' }).waitFor({ timeout: 15_000 })
+    const { rows } = await e2e.db.pool.query(`select p.method, p.purpose, p.amount_minor, u.role, u.name from payments p left join users u on u.id = p.recorded_by where p.order_id = $1 order by p.id`, [orderId])
+    expect(rows.map((r) => [r.method, r.purpose, r.amount_minor])).toEqual([['card', 'deposit', 37500], ['cash', 'balance', 87500]])
+    expect(rows[1].role).toBe('sales')
+    expect(await text(page, '[data-test=money-paid]')).toBe('£1,250.00')
+    expect(await text(page, '[data-test=money-payments]')).toContain(rows[1].name)
+    await screenshot(page, 'payments-order-paid-in-full', { fullPage: false })
   })
 })

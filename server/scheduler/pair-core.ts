@@ -96,6 +96,8 @@ const REASSIGN_EVALUATED = 6
 const TARGETS = 2
 /** On stagnation: share of restarts from a fresh shaken dispatch, from the best, else from where the walk is. */
 const RESTART_FRESH = 0.3, RESTART_BEST = 0.5
+/** In a kick, the share of random changes that give a step another machine and worker pair (where steps have a choice). */
+const REASSIGN_KICKS = 0.3
 
 /** Lower bound on the makespan: the longest job chain at its shortest durations (from its release). */
 export function pairLowerBound(s: PairShop): number {
@@ -120,6 +122,8 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const twtMode = settings.objective === 'weightedTardiness'
   const lastOf = new Int32Array(jobs).fill(-1)
   const lag = s.lag ?? new Int32Array(n)
+  let flexible = false
+  for (let i = 0; i < n && !flexible; i++) if (optStart[i + 1]! - optStart[i]! > 1) flexible = true
   const xps = s.extra?.predStart ?? new Int32Array(n + 1), xp = s.extra?.pred ?? new Int32Array(0)
   const xss = s.extra?.succStart ?? new Int32Array(n + 1), xs = s.extra?.succ ?? new Int32Array(0)
   for (let i = 0; i < n; i++) if (jobSucc[i]! < 0 && xss[i + 1] === xss[i]) lastOf[jobOf[i]!] = i
@@ -279,17 +283,20 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     return finish(r, cmax)
   }
   const finish = (r: Int32Array, cmax: number): number => {
-    let twt = 0
+    let twt = 0, sum = 0
     const en = endsOf(r)
     for (let j = 0; j < jobs; j++) {
       const l = lastOf[j]!
       const c = l >= 0 ? en[l]! : 0
       comp[j] = c
+      sum += c
       if (c > due[j]!) twt += weight[j]! * (c - due[j]!)
     }
     lastMakespan = cmax; lastTwt = twt
     // Makespan breaks ties between equal weighted tardiness, so plateaus still lead somewhere.
-    return twtMode ? twt + cmax * 1e-7 : cmax
+    if (twtMode) return twt + cmax * 1e-7
+    // The jobs' total completion time breaks ties between equal makespans, so the walk across a plateau still goes somewhere.
+    return cmax + sum * 1e-9
   }
 
   /** Heads after a move, into rTmp: positions before the first touched one keep the current heads; the rest by Kahn's order. */
@@ -422,6 +429,9 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   let bestTwt = lastTwt, bestCmax = lastMakespan
   const firstMs = settings.clock() - t0
   settings.onImprove?.(twtMode ? lastTwt : lastMakespan, 0)
+  // Progress is reported when the objective itself improves, not its tie-breaker.
+  let reported = twtMode ? lastTwt : lastMakespan
+  const report = (): void => { const v = twtMode ? lastTwt : lastMakespan; if (v < reported) { reported = v; settings.onImprove?.(v, iter) } }
   const lowerBound = twtMode ? 0 : pairLowerBound(s)
 
   // ---------- tabu search ----------
@@ -648,7 +658,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     if (cur < episodeBest - 1e-12) { episodeBest = cur; lastImprove = iter }
     if (cur < bestVal - 1e-12) {
       bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best)
-      settings.onImprove?.(twtMode ? lastTwt : lastMakespan, iter)
+      report()
       settings.onBest?.(opt, rCur)
     } else if (iter - lastImprove > maxStall) perturb()
   }
@@ -668,6 +678,20 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     for (let q = 0; q < kicks; q++) {
       const j = rng.int(jobs)
       tracePath(lastOf[j]!)
+      if (flexible && rng.next() < REASSIGN_KICKS) {
+        // A step of the path to another of its machine and worker pairs, at its current start there.
+        const withChoice = path.filter((x) => optStart[x + 1]! - optStart[x]! > 1)
+        if (withChoice.length > 0) {
+          const x = withChoice[rng.int(withChoice.length)]!
+          let o = optStart[x]! + rng.int(optStart[x + 1]! - optStart[x]! - 1)
+          if (o >= opt[x]!) o++
+          const mark = undo.length
+          apply(3, -1, x, o)
+          if (!Number.isFinite(evaluate(rCur))) { rollback(mark); evaluate(rCur) }
+          undo.length = 0
+          continue
+        }
+      }
       const arcs: number[] = []
       for (let i = 1; i < path.length; i++) if (arcType[i]! >= 0) arcs.push(i)
       if (arcs.length === 0) continue
@@ -680,7 +704,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     cur = evaluate(rCur)
     lastImprove = iter
     episodeBest = cur
-    if (cur < bestVal) { bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best); settings.onImprove?.(twtMode ? lastTwt : lastMakespan, iter); settings.onBest?.(opt, rCur) }
+    if (cur < bestVal) { bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best); report(); settings.onBest?.(opt, rCur) }
   }
 
   restore(best)

@@ -4,6 +4,7 @@ import { createServer, type Server } from 'node:http'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { allRoutes } from '../../server/routes/index'
 import { createTestApp, signedIn, type TestApp } from '../setup/app'
+import { startPayFake, type PayFake } from '../../server/dev/pay-fake'
 import { fuzzRoutes, loadIdPools, makeSessions, planTargets, printPlan, type FuzzStats } from './fuzz/runner'
 import { INJECTIONS, UNICODE } from './fuzz/values'
 
@@ -12,13 +13,17 @@ const SEED = Number(process.env.FUZZ_SEED ?? 20260611)
 
 let t: TestApp
 let server: Server
+// Payment routes reach the local test provider, as they do under `npm start`.
+let fake: PayFake
 beforeAll(async () => {
-  t = await createTestApp()
+  fake = await startPayFake()
+  t = await createTestApp({ PAY_FAKE_URL: fake.url })
   server = createServer(t.app)
   await new Promise<void>((r) => server.listen(0, '127.0.0.1', () => r()))
 })
 afterAll(async () => {
   await new Promise<void>((r) => (server ? server.close(() => r()) : r()))
+  await fake?.close()
   await t?.close()
 })
 

@@ -92,21 +92,29 @@ export function arbOf(js: Js, pools: IdPools, field = '', root: Js = js): fc.Arb
     case 'string': {
       if (js.format === 'uuid') return fc.uuid({ version: 4 })
       if (js.format === 'date-time') return day.map((d) => d.toISOString())
-      if (js.format === 'email') return fc.emailAddress().filter((e) => e.length <= (js.maxLength ?? 200))
+      if (js.format === 'email') return fc.emailAddress().map((e) => e.slice(0, js.maxLength ?? 200))
       if (js.pattern === ISO_DATE) return day.map((d) => d.toISOString().slice(0, 10))
       const min = js.minLength ?? 0
       const max = Math.max(min, Math.min(js.maxLength ?? 60, 60))
       if (js.pattern) {
         try {
-          return fc.stringMatching(new RegExp(js.pattern)).filter((s) => s.length >= min && s.length <= (js.maxLength ?? Infinity))
+          // Stretched to the length bounds instead of filtered: a pattern whose short matches never reach a minimum length
+          // (an 8-character client id, say) would make a filter search forever. A stretched string may no longer match;
+          // the server then answers 400, which the fuzz accepts when it names the field.
+          const top = js.maxLength ?? Infinity
+          return fc.stringMatching(new RegExp(js.pattern)).map((s) => {
+            let t = s
+            while (t.length > 0 && t.length < min) t += s
+            return t.length > top ? t.slice(0, top) : t
+          })
         } catch {
           return fc.string({ minLength: min, maxLength: max })
         }
       }
-      return fc.oneof(
-        { weight: 3, arbitrary: fc.string({ minLength: Math.max(min, 1), maxLength: max }) },
-        { weight: 1, arbitrary: fc.constantFrom("'; drop table orders; --", '<script>alert(1)</script>', '<img src=x onerror=alert(1)>', '💍 Zürich خاتم').filter((s) => s.length >= min && s.length <= (js.maxLength ?? Infinity)) },
-      )
+      // Hostile strings that fit the field's length (chosen before, never filtered after: with none fitting, a filter would search forever).
+      const hostile = ["'; drop table orders; --", '<script>alert(1)</script>', '<img src=x onerror=alert(1)>', '💍 Zürich خاتم'].filter((s) => s.length >= min && s.length <= (js.maxLength ?? Infinity))
+      const plain = fc.string({ minLength: Math.max(min, 1), maxLength: max })
+      return hostile.length ? fc.oneof({ weight: 3, arbitrary: plain }, { weight: 1, arbitrary: fc.constantFrom(...hostile) }) : plain
     }
     default:
       return fc.anything({ maxDepth: 1 })

@@ -81,7 +81,8 @@ export function reconcile(c: StoneCounts): Reconciliation {
 export const toHandBack = (lineCount: number, c: StoneCounts) => Math.max(0, lineCount - c.broken - c.lost)
 
 /** In words, for the page and the bench: "2 not counted back" / "1 more counted back than given out" / "all counted". */
-export function differenceWords(r: Pick<Reconciliation, 'difference'>): string {
+export function differenceWords(r: Pick<Reconciliation, 'difference'> & Partial<Pick<Reconciliation, 'issued'>>): string {
+  if (r.issued === 0 && r.difference === 0) return 'none given out yet'
   if (r.difference === 0) return 'all counted'
   if (r.difference > 0) return `${r.difference} not counted back`
   return `${-r.difference} more counted back than given out`

@@ -57,3 +57,14 @@ describe('setting minutes from a stone list', () => {
     expect(stoneLineWords({ count: 1, sizeMm: 6.5, shape: 'round', stone: 'diamond', caratEach: 1, caratEstimated: true })).toBe('1 × 6.5 mm round diamond, 1.00 ct est.')
   })
 })
+
+describe('the count in words', () => {
+  it('when nothing has been given out yet, then it says so instead of "all counted"', async () => {
+    const { differenceWords } = await import('../../shared/domain/stones')
+    // Hand-worked: 0 given out, 0 counted back → nothing to count yet; 14 out, 12 back → 2 not counted back; 14 out, 14 back → all counted.
+    expect(differenceWords({ issued: 0, difference: 0 })).toBe('none given out yet')
+    expect(differenceWords({ issued: 14, difference: 2 })).toBe('2 not counted back')
+    expect(differenceWords({ issued: 14, difference: 0 })).toBe('all counted')
+    expect(differenceWords({ issued: 3, difference: -1 })).toBe('1 more counted back than given out')
+  })
+})

@@ -56,6 +56,12 @@ beforeAll(async () => {
   // A message in the outbox: the digest of job bags at risk.
   expect((await manager.post('/api/mail/at-risk-digest')).status).toBeLessThan(300)
   ids.outbox = firstId((await owner.get('/api/outbox')).body)
+  // Materials and money: a seeded alloy and refining lot, and a quote drafted here (the demo has none).
+  ids.alloy = firstId((await owner.get('/api/alloys')).body)
+  ids.refiningLot = firstId((await owner.get('/api/refining-lots')).body)
+  const quote = await owner.post('/api/quotes', { customerId: ids.customer, title: 'Time format check', priceMinor: 125_000, promisedDate: from })
+  expect(quote.status, JSON.stringify(quote.body)).toBe(201)
+  ids.quote = quote.body.id
   for (const [k, v] of Object.entries(ids)) expect(v, `a demo ${k} to read`).toBeTruthy()
 })
 afterAll(async () => { await t?.close() })
@@ -70,6 +76,9 @@ function pathOf(path: string): string {
     .replace(/^\/job-bags\/:id/, `/job-bags/${ids.jobBag}`)
     .replace(/^\/plans\/:id/, `/plans/${ids.plan}`)
     .replace(/^\/outbox\/:id/, `/outbox/${ids.outbox}`)
+    .replace(/^\/alloys\/:id/, `/alloys/${ids.alloy}`)
+    .replace(/^\/refining-lots\/:id/, `/refining-lots/${ids.refiningLot}`)
+    .replace(/^\/quotes\/:id/, `/quotes/${ids.quote}`)
   const query: Record<string, string> = {
     '/board': `from=${from}&to=${to}`, '/load': `from=${from}&to=${to}`, '/insights/comparison': 'groupBy=kind',
     '/insights/records': `groupBy=kind&key=${ids.kindKey}`, '/bench/next': `benchId=${ids.settingBench}`,
@@ -78,7 +87,7 @@ function pathOf(path: string): string {
 }
 
 // Binary answers (the ticket PDF, uploaded files) carry no JSON times; files need an upload first and are covered by their own tests.
-const reads = allRoutes.filter((r) => r.method === 'get' && !r.path.endsWith('.pdf') && !r.path.startsWith('/files/'))
+const reads = allRoutes.filter((r) => r.method === 'get' && !r.path.endsWith('.pdf') && !r.path.endsWith('/pdf') && !r.path.startsWith('/files/'))
 
 describe('one time format in every answer', () => {
   it.each(reads.map((r) => [r.path, r] as const))('when GET %s is read, then every moment in the answer is ISO 8601 with an offset', async (_p, r) => {

@@ -66,8 +66,15 @@ describe('stones on the bench and the job bag', () => {
     const sales = await page('sales@wrenfield.test')
     await sales.goto('/orders')
     await sales.locator('[data-test=order-take]').click()
-    await sales.locator('[data-test=ring-size-0-scale]').click()
-    await sales.locator('.el-select-dropdown__item:visible', { hasText: 'US / Canada' }).click()
+    // Choose the US scale and wait until the field shows it (on a busy machine a click can land while the list is still opening).
+    const scale = sales.locator('[data-test=ring-size-0-scale]')
+    await expect.poll(async () => {
+      if (!(await scale.innerText()).includes('US / Canada')) {
+        await scale.click()
+        await sales.locator('.el-select-dropdown__item:visible', { hasText: 'US / Canada' }).click({ timeout: 3_000 }).catch(() => undefined)
+      }
+      return scale.innerText()
+    }, { timeout: 20_000 }).toContain('US / Canada')
     await sales.locator('input[data-test=ring-size-0-value], [data-test=ring-size-0-value] input').first().fill('7')
     // US 7: (0.458 + 0.032 × 7) in = 17.32 mm inside, π × 17.32 = 54.4 mm round it (TRADE.md, "Ring size"); UK N½ beside US 7 on the pinned chart (just-color.com).
     await expect.poll(() => sales.locator('[data-test=ring-size-0-others]').innerText(), { timeout: 10_000 }).toBe('US 7 · ISO 54.4 (Ø 17.3 mm) · UK N½')

@@ -438,13 +438,13 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
   return list.map((a) => {
     const s = (kind: string, source?: string) => sums.filter((x) => x.alloyId === a.id && x.kind === kind && (source === undefined || x.source === source)).reduce((t, x) => t + Number(x.mg), 0)
     const boughtMg = s('bought'), fromCustomerMg = s('issued', 'customer'), issuedMg = s('issued'), returnedMg = s('returned')
-    const toRefiningMg = s('to-refining'), fromRefiningMg = s('from-refining'), adjustedMg = s('adjusted')
-    const balanceMg = boughtMg + fromCustomerMg - issuedMg + returnedMg - toRefiningMg + fromRefiningMg + adjustedMg
+    const toRefiningMg = s('to-refining'), fromRefiningMg = s('from-refining'), adjustedMg = s('adjusted'), deliveredMg = s('delivered')
+    const balanceMg = boughtMg + fromCustomerMg - issuedMg + returnedMg - toRefiningMg + fromRefiningMg + adjustedMg - deliveredMg
     const p = prices.get(a.id)
     const fine = fineMg(balanceMg, a.fineness)
     return {
       alloyId: a.id, code: a.code, name: a.name, metal: a.metal, fineness: a.fineness,
-      boughtMg, fromCustomerMg, issuedMg, returnedMg, toRefiningMg, fromRefiningMg, adjustedMg, balanceMg, balanceG: mgToG(balanceMg), fineMg: fine, fineG: mgToG(fine),
+      boughtMg, fromCustomerMg, issuedMg, returnedMg, toRefiningMg, fromRefiningMg, adjustedMg, deliveredMg, balanceMg, balanceG: mgToG(balanceMg), fineMg: fine, fineG: mgToG(fine),
       pricePerGramMinor: p?.pricePerGramMinor ?? null, priceOn: p?.effectiveOn ?? null, valueMinor: p ? Math.round((balanceMg * p.pricePerGramMinor) / 1000) : null,
     }
   })
@@ -553,4 +553,43 @@ export async function settleLot({ db, realtime }: Deps, actor: Actor, id: number
   realtime.emit(actor.workshopId, 'refiningLot:changed', { id: lot.id, version: lot.version, status: lot.status })
   if (movementId !== null) realtime.emit(actor.workshopId, 'metal:recorded', { id: movementId, kind: 'from-refining', alloyId: input.returnedAlloyId!, jobBagId: null, refiningLotId: id })
   return lot
+}
+
+// ---------------------------------------------------------------------------------------------------------------
+// Finished pieces leave stock
+
+/**
+ * When an order is collected its pieces leave the workshop: for each job bag and alloy whose last weighing (issue or
+ * return, corrections applied) was the piece coming back, that weight leaves stock as a 'delivered' row. A piece last
+ * seen going out to the bench, or a bag already delivered, writes nothing. Runs inside the order's own transaction.
+ */
+export async function deliverOrderMetal(tx: Tx, actor: Actor, orderId: number): Promise<number> {
+  const rows = await tx.select({ m: metalMovements }).from(metalMovements)
+    .innerJoin(jobBags, eq(jobBags.id, metalMovements.jobBagId))
+    .where(and(eq(jobBags.orderId, orderId), eq(metalMovements.workshopId, actor.workshopId), inArray(metalMovements.kind, ['issued', 'returned', 'delivered'])))
+    .orderBy(asc(metalMovements.recordedAt), asc(metalMovements.id))
+  const effective = new Map<number, number>()
+  for (const { m } of rows) effective.set(m.correctsId ?? m.id, (effective.get(m.correctsId ?? m.id) ?? 0) + m.weightMg)
+  const last = new Map<string, typeof metalMovements.$inferSelect>()
+  const delivered = new Set<string>()
+  for (const { m } of rows) {
+    const key = `${m.jobBagId}:${m.alloyId}`
+    if (m.kind === 'delivered') { delivered.add(key); continue }
+    if (m.correctsId !== null || (effective.get(m.id) ?? 0) === 0) continue
+    last.set(key, m)
+  }
+  let written = 0
+  const at = new Date().toISOString()
+  for (const [key, m] of last) {
+    if (delivered.has(key) || m.kind !== 'returned' || m.form !== 'piece') continue
+    const weightMg = effective.get(m.id) ?? 0
+    if (weightMg <= 0) continue
+    const [row] = await tx.insert(metalMovements).values({
+      workshopId: actor.workshopId, alloyId: m.alloyId, kind: 'delivered', weightMg, jobBagId: m.jobBagId, personId: null, operationId: null,
+      reason: 'collected with its order', recordedBy: actor.userId, recordedAt: at,
+    }).returning({ id: metalMovements.id })
+    await audit(tx, actor, 'deliver', 'metal-movement', row!.id, { orderId, jobBagId: m.jobBagId, alloyId: m.alloyId, weightMg })
+    written++
+  }
+  return written
 }

@@ -10,6 +10,7 @@ import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { sendReadyNotice } from './mail'
 import { requireCustomerStonesBack } from './stones'
+import { deliverOrderMetal } from './metal'
 import { requireOwned, updateVersioned } from './versioned'
 
 /** ILIKE pattern for "contains", with the user's % and _ taken literally. */
@@ -93,6 +94,8 @@ export async function updateOrder(deps: Deps, actor: Actor, id: number, input: O
     const [before] = values.status === 'ready' ? await tx.select({ status: orders.status }).from(orders).where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId))) : []
     const o = await updateVersioned(tx, orders, 'Order', { id, workshopId: actor.workshopId, version, values: { ...values, updatedAt: new Date() } })
     await audit(tx, actor, 'update', 'order', id, values)
+    // Collected: the finished pieces' metal leaves stock with them.
+    if (values.status === 'collected') await deliverOrderMetal(tx, actor, id)
     becameReady = !!before && before.status !== 'ready'
     return o
   })

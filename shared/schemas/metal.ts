@@ -118,7 +118,7 @@ export interface Alloy {
   /** The price in force today (owner and manager only; null for others or when none is set). */
   pricePerGramMinor: number | null; priceOn: string | null
 }
-export type MovementKind = 'bought' | 'issued' | 'returned' | 'to-refining' | 'from-refining' | 'adjusted'
+export type MovementKind = 'bought' | 'issued' | 'returned' | 'to-refining' | 'from-refining' | 'adjusted' | 'delivered'
 export interface MetalMovement {
   id: number; kind: MovementKind; alloyId: number; alloyName: string; weightMg: number; weightG: number; source: 'stock' | 'customer' | null; form: 'piece' | 'scrap' | 'lemel' | null
   jobBagId: number | null; operationId: number | null; operationName: string | null; personId: number | null; personName: string | null; refiningLotId: number | null
@@ -148,6 +148,8 @@ export interface LossTable { groupBy: LossGrouping; filter: { from?: string; to?
 export interface StockRow {
   alloyId: number; code: string; name: string; metal: AlloyMetal; fineness: number
   boughtMg: number; fromCustomerMg: number; issuedMg: number; returnedMg: number; toRefiningMg: number; fromRefiningMg: number; adjustedMg: number
+  /** Finished pieces that left with their collected orders (their last weighing back). */
+  deliveredMg: number
   /** bought + from customers − issued + returned − to refining + from refining + adjustments. */
   balanceMg: number; balanceG: number; fineMg: number; fineG: number
   pricePerGramMinor: number | null; priceOn: string | null; valueMinor: number | null

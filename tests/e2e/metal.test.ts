@@ -104,9 +104,9 @@ describe('metal on the bench and the owner’s metal screen', () => {
   it('when the owner opens Metal, then each alloy’s balance is the sum of its ledger rows, loss by person matches the ledger, and 5 g of wax in 14K needs 71.89 g', async () => {
     const owner = await page('owner@wrenfield.test', { width: 1440, height: 900 })
     await owner.goto('/metal')
-    // Balance by the stock rule, summed here from the rows: bought + customers' own − issued + returned − to refining + from refining + adjusted.
+    // Balance by the stock rule, summed here from the rows: bought + customers' own − issued + returned − to refining + from refining + adjusted − left with collected pieces.
     const sums = await q(`select a.code, coalesce(sum(case m.kind when 'bought' then m.weight_mg when 'issued' then -m.weight_mg + case when m.source = 'customer' then m.weight_mg else 0 end
-        when 'returned' then m.weight_mg when 'to-refining' then -m.weight_mg when 'from-refining' then m.weight_mg when 'adjusted' then m.weight_mg else 0 end), 0)::int as balance
+        when 'returned' then m.weight_mg when 'to-refining' then -m.weight_mg when 'from-refining' then m.weight_mg when 'adjusted' then m.weight_mg when 'delivered' then -m.weight_mg else 0 end), 0)::int as balance
       from alloys a left join metal_movements m on m.alloy_id = a.id group by a.code`)
     expect(sums.length).toBeGreaterThan(0)
     for (const s of sums) {

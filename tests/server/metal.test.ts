@@ -273,3 +273,38 @@ describe('the demo', () => {
     for (const s of stock.body.filter((x: { code: string }) => !x.code.startsWith('test-'))) expect(s.balanceMg, s.code).toBeGreaterThan(0)
   })
 })
+
+describe('finished pieces leave stock', () => {
+  it('when an order is collected, then each bag’s piece as last weighed back (corrections applied) leaves stock once; a piece last seen at the bench does not', async () => {
+    const alloy = await newAlloy()
+    // A fresh order with two bags of the seeded routing, made through the API as sales would.
+    const { rows: [c] } = await t.pool.query(`select id from customers order by id limit 1`)
+    const { rows: [tpl] } = await t.pool.query(`select id from routing_templates order by id limit 1`)
+    const made = await as.sales.post('/api/orders', { customerId: c.id, title: 'Two pieces to collect', dueDate: '2031-09-01', pieces: [{ templateId: tpl.id, piece: 'One' }, { templateId: tpl.id, piece: 'Two' }] })
+    expect(made.status, JSON.stringify(made.body)).toBe(201)
+    const { rows: bags } = await t.pool.query(`select id from job_bags where order_id = $1 order by id`, [made.body.id])
+    const [b1, b2] = bags as { id: number }[]
+    const post = async (path: string, body: Record<string, unknown>) => { const r = await as.bench.post(path, { alloyId: alloy.id, personId, clientId: cid(), ...body }); expect(r.status, JSON.stringify(r.body)).toBe(201); return r.body.movement }
+    await as.owner.post('/api/metal/purchases', { alloyId: alloy.id, weightG: 50, clientId: cid() })
+    // Bag one: 12.00 out, 11.30 back as the piece, corrected to 11.20 (scale not tared) → 11.20 g leaves with the order.
+    await post('/api/metal/issues', { jobBagId: b1!.id, weightG: 12 })
+    const piece = await post('/api/metal/returns', { jobBagId: b1!.id, weightG: 11.3, form: 'piece' })
+    expect((await as.bench.post(`/api/metal/movements/${piece.id}/corrections`, { weightG: 11.2, reason: 'scale not tared', clientId: cid() })).status).toBe(201)
+    // Bag two: 5.00 out, 4.90 back as the piece, then out again to the bench (4.90) → last seen at the bench: nothing leaves.
+    await post('/api/metal/issues', { jobBagId: b2!.id, weightG: 5 })
+    await post('/api/metal/returns', { jobBagId: b2!.id, weightG: 4.9, form: 'piece' })
+    await post('/api/metal/issues', { jobBagId: b2!.id, weightG: 4.9 })
+    const stockOf = async () => (await as.owner.get('/api/metal/stock')).body.find((x: { alloyId: number }) => x.alloyId === alloy.id)
+    const before = await stockOf()
+    // Hand-worked: 50 − 12 + 11.20 − 5 + 4.90 − 4.90 = 44.20 g in stock before collection.
+    expect(before.balanceMg).toBe(44_200)
+    await t.pool.query(`update orders set status = 'ready' where id = $1`, [made.body.id])
+    const o = (await as.manager.get(`/api/orders/${made.body.id}`)).body
+    expect((await as.manager.patch(`/api/orders/${made.body.id}`, { status: 'collected', version: o.version })).status).toBe(200)
+    const after = await stockOf()
+    // 44.20 − 11.20 (bag one's piece) = 33.00 g; bag two's metal is still out at the bench.
+    expect(after).toMatchObject({ deliveredMg: 11_200, balanceMg: 33_000 })
+    const { rows: delivered } = await t.pool.query(`select job_bag_id, weight_mg from metal_movements where kind = 'delivered' and alloy_id = $1`, [alloy.id])
+    expect(delivered).toEqual([{ job_bag_id: b1!.id, weight_mg: 11_200 }])
+  })
+})

@@ -53,15 +53,15 @@ export const refiningLots = pgTable('refining_lots', {
 
 /**
  * The metal ledger: every movement of an alloy, by weight in mg. Stock of an alloy = bought + returned + back from refining
- * − issued − sent to refining (customer's own metal is issued and returned but never bought). Rows are never edited:
+ * − issued − sent to refining − delivered (customer's own metal is issued and returned but never bought). Rows are never edited:
  * a correction is a new row that names the row it corrects, who made it and why.
  */
 export const metalMovements = pgTable('metal_movements', {
   id: pk(),
   workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
   alloyId: integer().notNull().references(() => alloys.id),
-  /** bought | issued | returned | to-refining | from-refining | adjusted (stock count difference). */
-  kind: text().$type<'bought' | 'issued' | 'returned' | 'to-refining' | 'from-refining' | 'adjusted'>().notNull(),
+  /** bought | issued | returned | to-refining | from-refining | adjusted (stock count difference) | delivered (the finished piece left with its order). */
+  kind: text().$type<'bought' | 'issued' | 'returned' | 'to-refining' | 'from-refining' | 'adjusted' | 'delivered'>().notNull(),
   /** Signed milligrams as entered for the kind (always > 0 except for corrections and adjustments, which may be negative). */
   weightMg: integer().notNull(),
   /** Issued metal: from the workshop's stock or the customer's own (old gold to be remade). */

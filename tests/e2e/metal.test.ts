@@ -1,22 +1,15 @@
 // Metal in Chromium: the setter weighs metal out and back on a tablet with a container on the scale, a weight of 0 is refused at
 // its field, the owner's metal screen shows stock and loss by person as the database has them, and the casting calculator.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Page } from 'playwright-core'
 import { PIECE_METAL_ALLOY } from '../../shared/domain/metal'
-import { DEMO_PASSWORD, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { screenshot, signedInTablet, startE2E, type E2E } from '../setup/e2e'
 
 let e2e: E2E
 beforeAll(async () => { e2e = await startE2E() })
 afterAll(async () => { await e2e?.close() })
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
-async function page(email: string, viewport = { width: 1280, height: 800 }): Promise<Page> {
-  const context = await e2e.browser.newContext({ baseURL: e2e.url, viewport, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
-  const p = await context.newPage()
-  await signInWith(p, email, DEMO_PASSWORD)
-  await p.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
-  return p
-}
+const page = (email: string, viewport?: { width: number; height: number }) => signedInTablet(e2e, email, viewport)
 /** Grams as the screens write them: two decimals (the scale's step) or, for stock, three (to the milligram); en-GB grouping. */
 const g = (mg: number, digits = 2) => `${(mg / 1000).toLocaleString('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits })} g`
 

@@ -1,21 +1,14 @@
 // Stones and ring sizes in Chromium: the setter counts stones back on the tablet's running card and the job bag page shows the
 // reconciliation; a ring size typed in one scale shows the others as it is typed.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Page } from 'playwright-core'
-import { DEMO_PASSWORD, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { screenshot, signedInTablet, startE2E, type E2E } from '../setup/e2e'
 
 let e2e: E2E
 beforeAll(async () => { e2e = await startE2E() })
 afterAll(async () => { await e2e?.close() })
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
-async function page(email: string, viewport = { width: 1280, height: 800 }): Promise<Page> {
-  const context = await e2e.browser.newContext({ baseURL: e2e.url, viewport, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
-  const p = await context.newPage()
-  await signInWith(p, email, DEMO_PASSWORD)
-  await p.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
-  return p
-}
+const page = (email: string, viewport?: { width: number; height: number }) => signedInTablet(e2e, email, viewport)
 
 describe('stones on the bench and the job bag', () => {
   it('when the setter takes the pavé stones and counts them back on the tablet, then the job bag shows them all counted', async () => {

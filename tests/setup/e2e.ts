@@ -79,6 +79,15 @@ export async function signInPage(context: BrowserContext, role: Role): Promise<P
   return page
 }
 
+/** A signed-in page for a demo account in its own context, as a tablet or desktop browser of the given size would open it. */
+export async function signedInTablet(e2e: E2E, email: string, viewport = { width: 1280, height: 800 }): Promise<Page> {
+  const context = await e2e.browser.newContext({ baseURL: e2e.url, viewport, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
+  const p = await context.newPage()
+  await signInWith(p, email, DEMO_PASSWORD)
+  await p.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
+  return p
+}
+
 /** Saves a screenshot as test-results/<name>.png (the whole page unless `fullPage: false`, e.g. for dialogs) and returns its path. */
 export async function screenshot(page: Page, name: string, o: { fullPage?: boolean } = {}): Promise<string> {
   mkdirSync(SCREENSHOT_DIR, { recursive: true })

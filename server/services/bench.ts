@@ -14,6 +14,7 @@ import { depositHolds, heldForDeposit } from './deposit-hold'
 import { lockJobBag, refreshReadiness, syncJobBagStatus, type BagChange } from './job-bags'
 import { requirePauseReason } from './pause-reasons'
 import { closeRecord, effectiveRecords, actualMinutesByOperation, openRecord } from './time-records'
+import { LOCK } from '../lib/locks'
 
 const claimer = alias(people, 'claimer')
 const opFields = {
@@ -136,7 +137,7 @@ async function holderFor(tx: Tx, actor: Actor, op: OpRow, personId: number | und
 
 /** Refuses a second running operation for one person (409 naming the running one). Call with the person lock held. */
 async function requireNothingElseRunning(tx: Tx, person: Person, operationId: number, isSelf: boolean) {
-  await tx.execute(sql`select pg_advisory_xact_lock(3001, ${person.id})`)
+  await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.personAtBench}, ${person.id})`)
   const [other] = await tx
     .select({ id: operations.id, name: operations.name, number: jobBags.number })
     .from(timeRecords).innerJoin(operations, eq(operations.id, timeRecords.operationId)).innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))

@@ -7,6 +7,7 @@ import { customers, orders } from '../db/schema/index'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { requireOwned, updateVersioned } from './versioned'
+import { LOCK } from '../lib/locks'
 
 /** ILIKE pattern for "contains", with the user's % and _ taken literally. */
 const containing = (text: string) => `%${text.replace(/[\\%_]/g, '\\$&')}%`
@@ -46,7 +47,7 @@ export async function getCustomer(db: Db, workshopId: number, id: number) {
 export async function createCustomer({ db, realtime }: Deps, actor: Actor, input: CustomerInput) {
   const c = await db.transaction(async (tx) => {
     // Serialise reference numbering per workshop.
-    await tx.execute(sql`select pg_advisory_xact_lock(1001, ${actor.workshopId})`)
+    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.customerNumbers}, ${actor.workshopId})`)
     const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(customers).where(eq(customers.workshopId, actor.workshopId))
     const reference = `C-${String(n + 1).padStart(4, '0')}`
     const [c] = await tx.insert(customers).values({ workshopId: actor.workshopId, reference, ...input }).returning()

@@ -20,12 +20,13 @@ import { dayjs } from '../lib/time'
 import { audit } from './audit'
 import { workshopZone } from './estimates'
 import { isUniqueViolation, requireOwned, updateVersioned } from './versioned'
+import { LOCK } from '../lib/locks'
 
 type MovementRow = typeof metalMovements.$inferSelect
 const PRICE_ROLES = new Set(['owner', 'manager'])
 const r1 = (n: number) => Math.round(n * 10) / 10
 /** One lock per workshop for metal writes, so the checks (returns against issues, lot status) see a settled ledger. */
-const lockMetal = (tx: Tx, workshopId: number) => tx.execute(sql`select pg_advisory_xact_lock(3101, ${workshopId})`)
+const lockMetal = (tx: Tx, workshopId: number) => tx.execute(sql`select pg_advisory_xact_lock(${LOCK.metalLedger}, ${workshopId})`)
 const today = async (db: Tx, workshopId: number) => dayjs().tz(await workshopZone(db, workshopId)).format('YYYY-MM-DD')
 
 // ---------------------------------------------------------------------------------------------------------------

@@ -12,6 +12,7 @@ import { sendReadyNotice } from './mail'
 import { requireCustomerStonesBack } from './stones'
 import { deliverOrderMetal } from './metal'
 import { requireOwned, updateVersioned } from './versioned'
+import { LOCK } from '../lib/locks'
 
 /** ILIKE pattern for "contains", with the user's % and _ taken literally. */
 const containing = (text: string) => `%${text.replace(/[\\%_]/g, '\\$&')}%`
@@ -67,7 +68,7 @@ export async function takeOrder<T>({ db, realtime }: Deps, actor: Actor, input: 
   const id = await db.transaction(async (tx) => {
     const [c] = await tx.select({ id: customers.id }).from(customers).where(and(eq(customers.id, input.customerId), eq(customers.workshopId, actor.workshopId)))
     if (!c) throw invalid('customerId', 'is not a customer of this workshop')
-    await tx.execute(sql`select pg_advisory_xact_lock(1002, ${actor.workshopId})`)
+    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.orderNumbers}, ${actor.workshopId})`)
     const year = input.dueDate.slice(2, 4)
     const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(orders).where(eq(orders.workshopId, actor.workshopId))
     const number = `MG${year}-${String(n + 1).padStart(4, '0')}`

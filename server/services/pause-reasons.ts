@@ -8,6 +8,7 @@ import { invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { requireOwned, updateVersioned } from './versioned'
+import { LOCK } from '../lib/locks'
 
 const out = (r: typeof pauseReasons.$inferSelect): PauseReason =>
   ({ id: r.id, code: r.code, label: r.label, needsNote: r.needsNote, active: r.active, sort: r.sort, version: r.version })
@@ -52,7 +53,7 @@ async function labelFree(tx: Tx, workshopId: number, label: string, exceptId: nu
 
 export async function createPauseReason({ db, realtime }: Deps, actor: Actor, input: PauseReasonInput): Promise<PauseReason> {
   const r = await db.transaction(async (tx) => {
-    await tx.execute(sql`select pg_advisory_xact_lock(3002, ${actor.workshopId})`)
+    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.pauseReasons}, ${actor.workshopId})`)
     const all = await listPauseReasons(tx, actor.workshopId)
     await labelFree(tx, actor.workshopId, input.label, null)
     const base = pauseReasonCode(input.label)
@@ -72,7 +73,7 @@ export async function createPauseReason({ db, realtime }: Deps, actor: Actor, in
 export async function updatePauseReason({ db, realtime }: Deps, actor: Actor, id: number, input: PauseReasonUpdate): Promise<PauseReason> {
   const { version, ...values } = input
   const r = await db.transaction(async (tx) => {
-    await tx.execute(sql`select pg_advisory_xact_lock(3002, ${actor.workshopId})`)
+    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.pauseReasons}, ${actor.workshopId})`)
     const before = await requireOwned(tx, pauseReasons, 'Pause reason', id, actor.workshopId)
     if (values.label !== undefined) await labelFree(tx, actor.workshopId, values.label, id)
     if (values.active === false && before.active) {

@@ -7,6 +7,7 @@ import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { dayjs } from '../lib/time'
 import { currentAssignments, type Assignment } from './planning/assignments'
+import { LOCK } from '../lib/locks'
 
 export async function listPlans(db: Db, workshopId: number) {
   const rows = await db
@@ -83,7 +84,7 @@ export async function comparePlan(db: Db, workshopId: number, id: number, agains
 
 export async function publishPlan({ db, realtime }: Deps, actor: Actor, id: number) {
   const result = await db.transaction(async (tx) => {
-    await tx.execute(sql`select pg_advisory_xact_lock(1003, ${actor.workshopId})`)
+    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
     const [p] = await tx.select().from(s.planVersions).where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, actor.workshopId))).for('update')
     if (!p) throw notFound('Plan')
     if (p.status !== 'draft') throw new AppError({ code: 'conflict', message: `Plan ${p.number} is ${p.status}, not a draft; only drafts can be published` })

@@ -23,6 +23,7 @@ import { loadPlanningData, operationOptions, weightOfPriority, type PlanningData
 import { planningError } from './planning/runs'
 import { ASSUMPTION, DEFAULT_RUNS, kindSpreads, simulateCompletions, type KindSpread } from './promise-range'
 import { requireOwned } from './versioned'
+import { LOCK } from '../lib/locks'
 
 /** Search budget of the "everything re-planned" answer; the fixed answer is one decode. */
 export const REPLAN_MS = 80
@@ -240,7 +241,7 @@ export type Booking =
 /** The planned steps of the new job bag, checked free and written inside the order's transaction; or why not. */
 export async function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: number, placed: ReturnType<typeof placeInGaps>): Promise<Booking> {
   // Publishing a plan takes the same lock, so the plan cannot change under the check.
-  await tx.execute(sql`select pg_advisory_xact_lock(1003, ${actor.workshopId})`)
+  await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
   const c = data.clock
   const [bag] = await tx.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId))
   const ops = await tx.select({ id: s.operations.id, key: s.operations.key }).from(s.operations).where(eq(s.operations.jobBagId, bag!.id))

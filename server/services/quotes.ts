@@ -13,6 +13,7 @@ import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
 import { createLink, listPayments } from './payments'
+import { LOCK } from '../lib/locks'
 
 const cols = {
   id: s.quotes.id, number: s.quotes.number, customerId: s.quotes.customerId, customerName: s.customers.name, customerEmail: s.customers.email, orderId: s.quotes.orderId, orderNumber: s.orders.number,
@@ -66,7 +67,7 @@ export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
       if (!o) throw invalid('orderId', 'is not an order of this workshop')
       if (o.customerId !== input.customerId) throw invalid('orderId', 'belongs to another customer')
     }
-    await tx.execute(sql`select pg_advisory_xact_lock(1013, ${actor.workshopId})`)
+    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.quoteNumbers}, ${actor.workshopId})`)
     const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(s.quotes).where(eq(s.quotes.workshopId, actor.workshopId))
     const day = await today(tx, actor.workshopId)
     const number = `Q${day.slice(2, 4)}-${String(n + 1).padStart(4, '0')}`

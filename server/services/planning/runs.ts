@@ -13,6 +13,7 @@ import { audit } from '../audit'
 import { typicalDayMinutes, workingMinutesBetween } from '../../../shared/domain/working-time'
 import { loadPlanningData, type PlanningData } from './problem'
 import { currentAssignments, toAssignments } from './assignments'
+import { LOCK } from '../../lib/locks'
 
 export interface RunState {
   id: string
@@ -129,7 +130,7 @@ export async function waitForRun(id: string, timeoutMs = 120_000) {
 
 async function saveDraft(deps: Deps, actor: Actor, data: PlanningData, plan: Plan) {
   return deps.db.transaction(async (tx) => {
-    await tx.execute(sql`select pg_advisory_xact_lock(1003, ${actor.workshopId})`)
+    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
     const [last] = await tx.select({ n: s.planVersions.number }).from(s.planVersions).where(eq(s.planVersions.workshopId, actor.workshopId)).orderBy(desc(s.planVersions.number)).limit(1)
     const [published] = await tx.select({ id: s.planVersions.id }).from(s.planVersions).where(and(eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'published')))
     const [row] = await tx.insert(s.planVersions).values({

@@ -34,13 +34,13 @@ export const templateStepChanges = pgTable('template_step_changes', {
 export const templateStepCosts = pgTable('template_step_costs', {
   templateId: integer().notNull().references(() => routingTemplates.id, { onDelete: 'cascade' }),
   stepKey: text().notNull(),
-  outsideCost: real(),
+  outsideCostMinor: integer(),
   updatedAt: updatedAt(),
 }, (t) => [primaryKey({ columns: [t.templateId, t.stepKey] })])
 
 /** The outside cost actually invoiced for one operation (null = not known yet: the template's figure stands in). */
 export const operationCosts = pgTable('operation_costs', {
   operationId: integer().primaryKey().references(() => operations.id, { onDelete: 'cascade' }),
-  outsideCost: real(),
+  outsideCostMinor: integer(),
   updatedAt: updatedAt(),
 })

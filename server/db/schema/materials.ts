@@ -82,12 +82,13 @@ export const metalMovements = pgTable('metal_movements', {
   /** Client-generated id: a replayed request finds its earlier row instead of writing a second. */
   clientId: text(),
   createdAt: createdAt(),
-}, (t) => [index().on(t.workshopId, t.alloyId), index().on(t.jobBagId), index().on(t.refiningLotId), uniqueIndex().on(t.clientId)])
+}, (t) => [index().on(t.workshopId, t.alloyId), index().on(t.jobBagId), index().on(t.refiningLotId), uniqueIndex().on(t.workshopId, t.clientId)])
 
 /** How much metal loss a kind of work may have before it is flagged (% of the metal issued for it). */
 export const lossTolerances = pgTable('loss_tolerances', {
   kindId: integer().primaryKey().references(() => operationKinds.id, { onDelete: 'cascade' }),
   tolerancePct: real().notNull(),
+  version: version(),
 })
 
 /** One line of a piece's stone list. */
@@ -103,6 +104,8 @@ export const jobBagStones = pgTable('job_bag_stones', {
   /** Carats per stone; estimated from the size for round brilliants when not entered. */
   caratEach: real(),
   caratEstimated: boolean().notNull().default(false),
+  /** Measured total depth of one stone (mm), when the setter or the stone's paper gives it. */
+  depthMm: real(),
   quality: text().notNull().default(''),
   customerOwned: boolean().notNull().default(false),
   customerId: integer().references(() => customers.id, { onDelete: 'set null' }),

@@ -45,7 +45,8 @@ export const people = pgTable('people', {
   userId: integer().references(() => users.id, { onDelete: 'set null' }),
   name: text().notNull(),
   weekPattern: jsonb().$type<WorkSpan[] | null>(),
-  hourlyRate: real().notNull().default(0),
+  /** What an hour of this person costs, in integer minor units of the workshop's currency. */
+  hourlyRateMinor: integer().notNull().default(0),
   active: boolean().notNull().default(true),
   version: version(),
 }, (t) => [uniqueIndex().on(t.userId), index().on(t.workshopId)])

@@ -41,6 +41,8 @@ export const templateSteps = pgTable('template_steps', {
   perMmMinutes: real().notNull().default(0),
   /** Factor on the per-stone minutes by stone size band (melee / small / large); a band not given counts 1. */
   sizeBandFactors: jsonb().$type<Partial<Record<'melee' | 'small' | 'large', number>>>().notNull().default({}),
+  /** Factor on the per-stone minutes by the stone's role on a stone list (centre / side / halo / pave); a role not given takes the usual factor (shared/domain/stones.ts). */
+  roleFactors: jsonb().$type<Partial<Record<'centre' | 'side' | 'halo' | 'pave', number>>>().notNull().default({}),
   requiredLevel: integer().notNull().default(1),
   waitAfterMinutes: integer().notNull().default(0),
   leadDays: integer().notNull().default(0),
@@ -57,7 +59,8 @@ export const orders = pgTable('orders', {
   promisedDate: date({ mode: 'string' }),
   priority: integer().notNull().default(3),
   status: text().notNull().default('open'),
-  priceQuoted: real().notNull().default(0),
+  /** The price quoted, in integer minor units of the workshop's currency. */
+  priceQuotedMinor: integer().notNull().default(0),
   notes: text().notNull().default(''),
   version: version(),
   createdAt: createdAt(),

@@ -10,7 +10,8 @@ import type { Config } from './config'
 import type { Db } from './db/client'
 import { AppError, invalid } from './errors/app-error'
 import { errorHandler } from './errors/handler'
-import { actorOf, authorize, configurePassport, createSessionMiddleware } from './middleware/auth'
+import { actorOf, authorize, configurePassport, createSessionMiddleware, useSessionUserCache } from './middleware/auth'
+import { Cache } from './lib/cache'
 import { requireCsrf } from './middleware/csrf'
 import type { Deps, RouteSpec } from './lib/route'
 import { Realtime } from './realtime/hub'
@@ -50,7 +51,11 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   )
   const sessionMiddleware = createSessionMiddleware(pool, config)
   const passport = configurePassport(db)
-  const deps: Deps = { db, realtime, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: `http://${config.HOST}:${config.PORT}` }
+  // Change events are numbered in PostgreSQL and the read cache is shared by board, promise checks and signed-in users.
+  realtime.useDatabase(pool)
+  const cache = new Cache(realtime)
+  useSessionUserCache(db, cache)
+  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: `http://${config.HOST}:${config.PORT}` }
 
   const api = express.Router()
   api.use(express.json({ limit: '1mb' }))
@@ -76,7 +81,7 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   for (const spec of allRoutes) register(api, spec, deps)
   // The provider's signed webhook: no session and no CSRF token, the raw body is what the signature covers.
   app.post('/api/payments/webhook', express.raw({ type: () => true, limit: '1mb' }), (req, res, next) => {
-    handleWebhook(deps, Buffer.isBuffer(req.body) ? req.body : Buffer.alloc(0), req.get('stripe-signature')).then((r) => res.json(r), next)
+    handleWebhook(deps, Buffer.isBuffer(req.body) ? req.body : Buffer.alloc(0), req.get('stripe-signature')).then(async (r) => { await deps.realtime.flush(); res.json(r) }, next)
   })
   api.use((req, _res, next) => next(new AppError({ code: 'not-found', message: `No such API route: ${req.method} ${req.baseUrl}${req.path}` })))
   app.use('/api', api)
@@ -88,7 +93,7 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
     app.get(/^(?!\/api\/|\/socket\.io\/).*/, (_req, res) => res.sendFile(join(clientDir, 'index.html')))
   }
   app.use(errorHandler)
-  return { app, sessionMiddleware, passport, realtime, deps }
+  return { app, sessionMiddleware, passport, realtime, cache, deps }
 }
 
 function register(router: express.Router, spec: RouteSpec, deps: Deps) {
@@ -101,6 +106,8 @@ function register(router: express.Router, spec: RouteSpec, deps: Deps) {
       const body = spec.body ? spec.body.parse(req.body ?? {}) : req.body
       const actor = actorOf(req.user as SessionUser | undefined)
       const result = await spec.handler({ req, res, actor: actor!, body, query, params, deps })
+      // The change events of this request are numbered and sent before it answers, so whoever reads next (on any instance) sees them.
+      await deps.realtime.flush()
       if (result === undefined) {
         if (!res.headersSent) res.status(204).end()
         return

@@ -1,6 +1,7 @@
 // The server process: HTTP + Socket.IO on one port, closed cleanly on SIGINT/SIGTERM.
 import { createServer } from 'node:http'
 import { Server } from 'socket.io'
+import { createAdapter } from '@socket.io/postgres-adapter'
 import { createApp } from './app'
 import { loadConfig, type Config } from './config'
 import { createDb } from './db/client'
@@ -16,6 +17,9 @@ export async function startServer(config: Config) {
   const digest = config.NODE_ENV === 'test' ? { stop() {} } : startDigestTimer(deps)
   const http = createServer(app)
   const io = new Server(http, { serveClient: false })
+  // Broadcasts and disconnects reach the sockets of every instance over this database (one instance works the same).
+  io.adapter(createAdapter(pool, { errorHandler: (err) => console.error('[realtime] adapter:', err.message) }))
+  await realtime.listen(config.DATABASE_URL)
   attachSockets(io, { sessionMiddleware, passport, realtime })
   await new Promise<void>((resolve, reject) => {
     http.once('error', reject)
@@ -30,6 +34,7 @@ export async function startServer(config: Config) {
     async close() {
       digest.stop()
       deps.mailer?.close()
+      await realtime.close()
       io.close()
       // Requests in flight get a few seconds to finish; then remaining connections are cut so shutdown never hangs.
       const cut = setTimeout(() => http.closeAllConnections(), 3000)

@@ -12,35 +12,31 @@ import type { Db } from '../db/client'
 import { people, users, workshops } from '../db/schema/index'
 import { AppError } from '../errors/app-error'
 import type { Access, Actor } from '../lib/route'
+import { ANY_WORKSHOP, cachedOr, type Cache } from '../lib/cache'
 import type { SessionUser } from '../../shared/schemas/session'
 
 // A hash to verify against when the e-mail is unknown, so timing does not reveal which addresses exist.
 const DUMMY_HASH = '$argon2id$v=19$m=19456,t=2,p=1$c29tZXNhbHRzb21lc2FsdA$W5CGbW6oN9cFs9Rz1b1N0VqC0n3FJQ7m8pQmYb3dZ2k'
 
-// Signed-in users are looked up on every request; a short cache spares the database, and changes to a user drop their entry.
-const caches = new Set<Map<number, { at: number; user: SessionUser | null }>>()
-const cacheByDb = new WeakMap<Db, Map<number, { at: number; user: SessionUser | null }>>()
+// Signed-in users are looked up on every request; a short stay in the app's cache spares the database, and changes to a
+// user drop their entry here and on every other instance.
+const cacheByDb = new WeakMap<Db, Cache>()
+const caches = new Set<Cache>()
 const USER_CACHE_MS = 2000
+/** Signed-in users of this database are kept in the app's cache (createApp). */
+export function useSessionUserCache(db: Db, cache: Cache) {
+  cacheByDb.set(db, cache)
+  caches.add(cache)
+}
 export function forgetSessionUser(userId?: number) {
   for (const c of caches) {
-    if (userId === undefined) c.clear()
-    else c.delete(userId)
+    if (userId === undefined) c.dropWorkshop(ANY_WORKSHOP, { everywhere: true })
+    else c.drop(ANY_WORKSHOP, `user|${userId}`, { everywhere: true })
   }
 }
 
-async function cachedSessionUser(db: Db, userId: number): Promise<SessionUser | null> {
-  let recentUsers = cacheByDb.get(db)
-  if (!recentUsers) {
-    recentUsers = new Map()
-    cacheByDb.set(db, recentUsers)
-    caches.add(recentUsers)
-  }
-  const hit = recentUsers.get(userId)
-  if (hit && Date.now() - hit.at < USER_CACHE_MS) return hit.user
-  const user = await loadSessionUser(db, userId)
-  recentUsers.set(userId, { at: Date.now(), user })
-  if (recentUsers.size > 1000) recentUsers.delete(recentUsers.keys().next().value!)
-  return user
+function cachedSessionUser(db: Db, userId: number): Promise<SessionUser | null> {
+  return cachedOr(cacheByDb.get(db), ANY_WORKSHOP, `user|${userId}`, () => loadSessionUser(db, userId), { ttlMs: USER_CACHE_MS })
 }
 
 export async function loadSessionUser(db: Db, userId: number): Promise<SessionUser | null> {

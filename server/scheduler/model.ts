@@ -1,4 +1,5 @@
 // The engine's contract: problem facts, planning results, scores and the input error, in integer minutes from problem.origin.
+import type { RuleViolation } from '../../shared/domain/rules.ts'
 
 /** Half-open time interval [start, end) in minutes from the problem origin. */
 export type Interval = { start: number; end: number }
@@ -88,7 +89,8 @@ export interface Score {
   /** Previously planned operations kept on their bench and person but starting at another minute. */
   shifted?: number
   feasible: boolean
-  violations: string[]
+  /** What the rule book found (hard ones make the plan infeasible); empty while searching. */
+  violations: Violation[]
 }
 
 export interface Plan {
@@ -131,8 +133,8 @@ export interface SolveHooks {
   clock?(): number
 }
 
-/** One broken rule in a plan, with a message the UI can show. */
-export interface Violation { rule: string; operationId?: string; jobId?: string; message: string }
+/** One finding of the rule book (shared/domain/rules.ts): rule name, hard or soft, the step and job concerned, a message. */
+export type Violation = RuleViolation
 
 export type SchedulingInputErrorCode =
   | 'no-option'

@@ -1,5 +1,5 @@
 // Workshop planning search: due-date-aware dispatching rules for a first plan, then late-acceptance local search along the chains that make jobs late.
-import type { Interval, Objective, SolveHooks } from './model.ts'
+import type { Interval, Objective, SolveHooks, Violation } from './model.ts'
 import { compareDecoded, decode, type Compiled, type CompiledOption, type Decoded, Why } from './decode.ts'
 import { createRng } from './random.ts'
 import { clipToWindows } from './calendar.ts'
@@ -467,4 +467,4 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   return done()
 }
 
-const scoreOf = (d: Decoded) => ({ weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, shifted: d.shifted, feasible: d.overflow < 0, violations: [] as string[] })
+const scoreOf = (d: Decoded) => ({ weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, shifted: d.shifted, feasible: d.overflow < 0, violations: [] as Violation[] })

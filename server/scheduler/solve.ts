@@ -68,7 +68,7 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
   assertWithinHorizon(c, decoded)
   const plan = toPlan(c, decoded, { iterations, elapsedMs: clock() - t0, firstPlanMs, ...(evaluations !== undefined ? { evaluations } : {}), ...(previousScore ? { previous: previousScore } : {}) })
   const violations = validatePlan(problem, plan)
-  plan.score.violations = violations.map((v) => `${v.rule}: ${v.message}`)
+  plan.score.violations = violations
   plan.score.feasible = violations.length === 0
   plan.stats.elapsedMs = clock() - t0
   return plan

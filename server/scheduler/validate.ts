@@ -1,4 +1,7 @@
-// Independent plan checker: one function per scheduling rule, written apart from the decoder, each violation carrying a readable message.
+// Independent plan checker: the rule book (shared/domain/rules.ts) applied to a whole plan, one function per rule, written apart
+// from the decoder. The same builders word a refused move on the board and a refused claim at the bench.
+import * as rules from '../../shared/domain/rules.ts'
+import { violation } from '../../shared/domain/rules.ts'
 import type { Interval, Operation, Plan, PlannedOperation, Problem, Violation } from './model.ts'
 
 interface Context {
@@ -13,6 +16,7 @@ interface Context {
 type Rule = (ctx: Context) => Violation[]
 
 const isOutside = (op: Operation): boolean => (op.outsideWorkingDays ?? 0) > 0
+const ref = (op: Operation): rules.StepRef => ({ operationId: op.id, jobId: op.jobId, name: op.name })
 
 const mergedCache = new WeakMap<Interval[], Interval[]>()
 /** The list with touching intervals joined, so that work running across a join counts as covered. */
@@ -46,24 +50,35 @@ const everyOperationPlannedOnce: Rule = ({ problem, plan, ops }) => {
   for (const p of plan.operations) count.set(p.operationId, (count.get(p.operationId) ?? 0) + 1)
   for (const op of problem.operations) {
     const k = count.get(op.id) ?? 0
-    if (op.done && k > 0) out.push({ rule: 'done work is not planned again', operationId: op.id, jobId: op.jobId, message: `${op.name} is done but appears in the plan` })
-    if (!op.done && k !== 1) out.push({ rule: 'every operation planned once', operationId: op.id, jobId: op.jobId, message: `${op.name} is planned ${k} times` })
+    if (op.done && k > 0) out.push(violation('done work is not planned again', ref(op), `${op.name} is done but appears in the plan`))
+    if (!op.done && k !== 1) out.push(violation('every operation planned once', ref(op), `${op.name} is planned ${k} times`))
   }
-  for (const id of count.keys()) if (!ops.has(id)) out.push({ rule: 'every operation planned once', operationId: id, message: `the plan contains unknown operation ${id}` })
+  for (const id of count.keys()) if (!ops.has(id)) out.push(violation('every operation planned once', { operationId: id, name: id }, `the plan contains unknown operation ${id}`))
   return out
 }
 
-/** The bench and person used are one of the operation's options (or its pinned pair; none for outside work). */
-const allowedBenchAndPerson: Rule = ({ plan, ops }) => {
+/**
+ * The bench and person used are one of the operation's options (or its pinned pair; none for outside work). The options already
+ * combine bench capability and skill: a bench no option names is not equipped, a person no option names is not skilled.
+ */
+const allowedBenchAndPerson: Rule = ({ plan, ops, benches, people }) => {
   const out: Violation[] = []
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
     if (!op) continue
-    let ok: boolean
-    if (op.fixed) ok = p.benchId === op.fixed.benchId && p.personId === op.fixed.personId
-    else if (isOutside(op)) ok = p.benchId === null && p.personId === null
-    else ok = op.options.some((o) => o.benchId === p.benchId && o.personId === p.personId)
-    if (!ok) out.push({ rule: 'allowed bench and person', operationId: op.id, jobId: op.jobId, message: `${op.name} is on bench ${p.benchId ?? '-'} with ${p.personId ?? 'nobody'}, which is not one of its options` })
+    const bench = p.benchId !== null ? benches.get(p.benchId)?.name ?? p.benchId : null
+    const person = p.personId !== null ? people.get(p.personId)?.name ?? p.personId : null
+    if (op.fixed) {
+      if (p.benchId !== op.fixed.benchId || p.personId !== op.fixed.personId) out.push(rules.allowedPair(ref(op), { bench, person, why: 'it is pinned to another bench and person' }))
+    } else if (isOutside(op)) {
+      if (p.benchId !== null || p.personId !== null) out.push(rules.outsideWork(ref(op), { why: 'it takes no bench and no person' }))
+    } else if (!op.options.some((o) => o.benchId === p.benchId && o.personId === p.personId)) {
+      const benchOk = op.options.some((o) => o.benchId === p.benchId)
+      const personOk = op.options.some((o) => o.personId === p.personId)
+      if (!benchOk && bench !== null) out.push(rules.benchCapability(ref(op), { benchName: bench, kindName: op.kind, capable: false })!)
+      if (!personOk && person !== null) out.push(rules.skill(ref(op), { personName: person, kindName: op.kind, level: undefined, required: null })!)
+      if ((benchOk && personOk) || bench === null || person === null) out.push(rules.allowedPair(ref(op), { bench, person, why: 'not one of its options' }))
+    }
   }
   return out
 }
@@ -74,7 +89,7 @@ const segmentsAddUp: Rule = ({ plan, ops }) => {
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
     if (!op) continue
-    const bad = (why: string): void => { out.push({ rule: 'work adds up', operationId: op.id, jobId: op.jobId, message: `${op.name}: ${why}` }) }
+    const bad = (why: string): void => { out.push(violation('work adds up', ref(op), `${op.name}: ${why}`)) }
     const segs = p.segments
     if (segs.length === 0) { bad('has no worked segments'); continue }
     let ordered = true
@@ -102,8 +117,8 @@ const benchAndPersonAvailableTogether: Rule = ({ plan, ops, benches, people }) =
       if (s.end <= s.start) continue
       const b = p.benchId !== null ? benches.get(p.benchId) : undefined
       const who = p.personId !== null ? people.get(p.personId) : undefined
-      if (b && !covered(b.available, s.start, s.end)) out.push({ rule: 'within bench working time', operationId: op.id, jobId: op.jobId, message: `${op.name} works on ${b.name} during ${s.start}–${s.end}, when the bench is not available` })
-      if (who && !covered(who.available, s.start, s.end)) out.push({ rule: 'within personal working time', operationId: op.id, jobId: op.jobId, message: `${op.name} needs ${who.name} during ${s.start}–${s.end}, outside their working time` })
+      if (b && !covered(b.available, s.start, s.end)) out.push(rules.workingTime(ref(op), { resource: 'bench', name: b.name, from: s.start, to: s.end }))
+      if (who && !covered(who.available, s.start, s.end)) out.push(rules.workingTime(ref(op), { resource: 'person', name: who.name, from: s.start, to: s.end }))
     }
   }
   return out
@@ -162,15 +177,15 @@ const resumesAtNextWorkingTime: Rule = ({ problem, plan, ops, benches, people })
         }
         if (t < j.end) free += j.end - t
       }
-      if (free > 0) out.push({ rule: 'work resumes only at next working time', operationId: op.id, jobId: op.jobId, message: `${op.name} pauses ${gapStart}–${p.segments[i]!.start} although bench and person are both at work and free for ${free} min of it` })
-      else out.push({ rule: 'work is interrupted only by the end of working time', operationId: op.id, jobId: op.jobId, message: `${op.name} pauses ${gapStart}–${p.segments[i]!.start} while its bench and person work on other steps in their joint working time` })
+      if (free > 0) out.push(violation('work resumes only at next working time', ref(op), `${op.name} pauses ${gapStart}–${p.segments[i]!.start} although bench and person are both at work and free for ${free} min of it`))
+      else out.push(violation('work is interrupted only by the end of working time', ref(op), `${op.name} pauses ${gapStart}–${p.segments[i]!.start} while its bench and person work on other steps in their joint working time`))
     }
   }
   return out
 }
 
 /** Overlap check shared by benches and people. */
-const noDoubleBooking = (which: 'benchId' | 'personId', rule: string, noun: (id: string) => string): Rule => ({ plan, ops }) => {
+const noDoubleBooking = (which: 'benchId' | 'personId'): Rule => ({ plan, ops, benches, people }) => {
   const out: Violation[] = []
   const byResource = new Map<string, { s: number; e: number; id: string }[]>()
   for (const p of plan.operations) {
@@ -185,7 +200,9 @@ const noDoubleBooking = (which: 'benchId' | 'personId', rule: string, noun: (id:
     for (const x of list) {
       if (x.s < reach && x.id !== reachId) {
         const op = ops.get(x.id)
-        out.push({ rule, operationId: x.id, jobId: op?.jobId, message: `${noun(r)} is booked for ${ops.get(reachId)?.name ?? reachId} and ${op?.name ?? x.id} at the same time (${x.s})` })
+        const other = ops.get(reachId)
+        const name = which === 'benchId' ? benches.get(r)?.name ?? `bench ${r}` : people.get(r)?.name ?? `person ${r}`
+        out.push(rules.doubleBooking(op ? ref(op) : { operationId: x.id, name: x.id }, { resource: which === 'benchId' ? 'bench' : 'person', name, other: other ? ref(other) : { operationId: reachId, name: reachId }, from: x.s, to: Math.min(x.e, reach) }))
       }
       if (x.e > reach) { reach = x.e; reachId = x.id }
     }
@@ -205,14 +222,14 @@ const routingOrder: Rule = ({ plan, ops, planned }) => {
       if (pred.done) {
         const finished = pred.finishedAt ?? pred.fixed?.end
         if (finished === undefined) continue
-        const ready = finished + (pred.waitAfter ?? 0)
-        if (p.start < ready) out.push({ rule: 'routing order and wait-after', operationId: op.id, jobId: op.jobId, message: `${op.name} starts at ${p.start} but ${pred.name} finished at ${finished} and is only ready at ${ready}` })
+        const v = rules.routingOrder(ref(op), { start: p.start, predecessor: pred.name, readyAt: finished + (pred.waitAfter ?? 0), waitAfter: pred.waitAfter ?? 0, finished: true })
+        if (v) out.push(v)
         continue
       }
       const pp = planned.get(predId)
       if (!pp) continue
-      const ready = pp.end + (pred.waitAfter ?? 0)
-      if (p.start < ready) out.push({ rule: 'routing order and wait-after', operationId: op.id, jobId: op.jobId, message: `${op.name} starts at ${p.start} but ${pred.name} is only ready at ${ready}` })
+      const v = rules.routingOrder(ref(op), { start: p.start, predecessor: pred.name, readyAt: pp.end + (pred.waitAfter ?? 0), waitAfter: pred.waitAfter ?? 0 })
+      if (v) out.push(v)
     }
   }
   return out
@@ -226,8 +243,9 @@ const releaseAndNow: Rule = ({ problem, plan, ops }) => {
     const op = ops.get(p.operationId)
     if (!op || op.fixed) continue
     const job = jobs.get(op.jobId)
-    if (job && p.start < job.release) out.push({ rule: 'not before release', operationId: op.id, jobId: op.jobId, message: `${op.name} starts at ${p.start}, before job ${job.name} is released at ${job.release}` })
-    if (p.start < problem.now) out.push({ rule: 'not before now', operationId: op.id, jobId: op.jobId, message: `${op.name} starts at ${p.start}, before now (${problem.now})` })
+    if (job && p.start < job.release) out.push(violation('not before release', ref(op), `${op.name} starts at ${p.start}, before job ${job.name} is released at ${job.release}`))
+    const early = rules.notBeforeNow(ref(op), { start: p.start, now: problem.now })
+    if (early) out.push(early)
   }
   return out
 }
@@ -240,7 +258,7 @@ const pinnedStayPut: Rule = ({ plan, ops }) => {
     const f = op?.fixed
     if (!op || !f) continue
     if (p.start !== f.start || p.benchId !== f.benchId || p.personId !== f.personId || (f.end !== undefined && p.end !== f.end)) {
-      out.push({ rule: 'pinned work stays put', operationId: op.id, jobId: op.jobId, message: `${op.name} is pinned at ${f.start} on ${f.benchId ?? '-'} with ${f.personId ?? 'nobody'} but is planned at ${p.start} on ${p.benchId ?? '-'} with ${p.personId ?? 'nobody'}` })
+      out.push(violation('pinned work stays put', ref(op), `${op.name} is pinned at ${f.start} on ${f.benchId ?? '-'} with ${f.personId ?? 'nobody'} but is planned at ${p.start} on ${p.benchId ?? '-'} with ${p.personId ?? 'nobody'}`))
     }
   }
   return out
@@ -254,7 +272,7 @@ const outsideWorkingDays: Rule = ({ problem, plan, ops }) => {
     if (!op || !isOutside(op)) continue
     const days = problem.workshopDays.filter((d) => d.start >= p.start)
     const back = days[op.outsideWorkingDays! - 1]?.end
-    if (back === undefined || p.end !== back) out.push({ rule: 'outside work takes its working days', operationId: op.id, jobId: op.jobId, message: `${op.name} is away ${p.start}–${p.end}, but ${op.outsideWorkingDays} workshop days from ${p.start} end at ${back ?? 'beyond the calendar'}` })
+    if (back === undefined || p.end !== back) out.push(rules.outsideWork(ref(op), { why: `away ${p.start}–${p.end}, but ${op.outsideWorkingDays} workshop days from ${p.start} end at ${back ?? 'beyond the calendar'}` }))
   }
   return out
 }
@@ -263,7 +281,7 @@ const outsideWorkingDays: Rule = ({ problem, plan, ops }) => {
 const withinHorizon: Rule = ({ problem, plan, ops }) =>
   plan.operations
     .filter((p) => p.end > problem.horizon)
-    .map((p) => ({ rule: 'within the horizon', operationId: p.operationId, jobId: ops.get(p.operationId)?.jobId, message: `${ops.get(p.operationId)?.name ?? p.operationId} ends at ${p.end}, after the horizon ${problem.horizon}` }))
+    .map((p) => violation('within the horizon', { operationId: p.operationId, jobId: ops.get(p.operationId)?.jobId, name: ops.get(p.operationId)?.name ?? p.operationId }, `${ops.get(p.operationId)?.name ?? p.operationId} ends at ${p.end}, after the horizon ${problem.horizon}`))
 
 /** Job completion, lateness and tardiness match the planned operations; every job with planned work has one summary. */
 const jobSummariesMatch: Rule = ({ problem, plan }) => {
@@ -271,14 +289,16 @@ const jobSummariesMatch: Rule = ({ problem, plan }) => {
   const ends = new Map<string, number>()
   for (const p of plan.operations) ends.set(p.jobId, Math.max(ends.get(p.jobId) ?? -Infinity, p.end))
   const listed = new Set(plan.jobs.map((j) => j.jobId))
-  for (const id of ends.keys()) if (!listed.has(id)) out.push({ rule: 'job summary matches', jobId: id, message: `job ${problem.jobs.find((x) => x.id === id)?.name ?? id} has planned work but no summary` })
+  const named = (id: string) => ({ jobId: id, name: problem.jobs.find((x) => x.id === id)?.name ?? id })
+  for (const id of ends.keys()) if (!listed.has(id)) out.push(violation('job summary matches', named(id), `job ${named(id).name} has planned work but no summary`))
   for (const j of plan.jobs) {
-    if (!ends.has(j.jobId)) out.push({ rule: 'job summary matches', jobId: j.jobId, message: `job ${j.jobId} has a summary but nothing planned` })
-    const job = problem.jobs.find((x) => x.id === j.jobId)
+    if (!ends.has(j.jobId)) out.push(violation('job summary matches', named(j.jobId), `job ${j.jobId} has a summary but nothing planned`))
+    const found = problem.jobs.find((x) => x.id === j.jobId)
     const c = ends.get(j.jobId)
-    if (!job || c === undefined) continue
+    if (!found || c === undefined) continue
+    const job = found
     const lateness = job.due === null ? 0 : c - job.due
-    if (j.completion !== c || j.lateness !== lateness || j.tardiness !== Math.max(0, lateness)) out.push({ rule: 'job summary matches', jobId: j.jobId, message: `job ${job.name}: summary says completion ${j.completion}, but its work ends at ${c}` })
+    if (j.completion !== c || j.lateness !== lateness || j.tardiness !== Math.max(0, lateness)) out.push(violation('job summary matches', { jobId: j.jobId, name: job.name }, `job ${job.name}: summary says completion ${j.completion}, but its work ends at ${c}`))
   }
   return out
 }
@@ -303,7 +323,7 @@ const scoreTotalsMatch: Rule = ({ problem, plan, ops }) => {
   }
   const out: Violation[] = []
   const sc = plan.score
-  const say = (what: string, claimed: number, actual: number): void => { out.push({ rule: 'score matches the plan', message: `the score says ${what} ${claimed}, the planned work gives ${actual}` }) }
+  const say = (what: string, claimed: number, actual: number): void => { out.push(violation('score matches the plan', null, `the score says ${what} ${claimed}, the planned work gives ${actual}`)) }
   if (Math.abs(sc.weightedTardiness - wt) > 1e-6 * Math.max(1, wt)) say('weighted tardiness', sc.weightedTardiness, wt)
   if (sc.makespan !== makespan) say('makespan', sc.makespan, makespan)
   if (sc.moves !== moves) say('moves', sc.moves, moves)
@@ -317,18 +337,28 @@ export const PLAN_RULES: { name: string; check: Rule }[] = [
   { name: 'work adds up', check: segmentsAddUp },
   { name: 'bench and person available together', check: benchAndPersonAvailableTogether },
   { name: 'work resumes only at next working time', check: resumesAtNextWorkingTime },
-  { name: 'one operation at a time per bench', check: noDoubleBooking('benchId', 'one operation at a time per bench', (id) => `bench ${id}`) },
-  { name: 'one operation at a time per person', check: noDoubleBooking('personId', 'one operation at a time per person', (id) => `person ${id}`) },
-  { name: 'routing order and wait-after', check: routingOrder },
+  { name: 'bench double booking', check: noDoubleBooking('benchId') },
+  { name: 'person double booking', check: noDoubleBooking('personId') },
+  { name: 'routing order', check: routingOrder },
   { name: 'release and now', check: releaseAndNow },
   { name: 'pinned work stays put', check: pinnedStayPut },
-  { name: 'outside work takes its working days', check: outsideWorkingDays },
+  { name: 'outside work', check: outsideWorkingDays },
   { name: 'within the horizon', check: withinHorizon },
   { name: 'job summary matches', check: jobSummariesMatch },
   { name: 'score matches the plan', check: scoreTotalsMatch },
 ]
 
-/** Checks a plan against every rule; an empty list means the plan is valid. */
+/** Late pieces: the soft findings of a plan (not part of validity). */
+export function lateJobs(problem: Problem, plan: Plan): Violation[] {
+  const byId = new Map(problem.jobs.map((j) => [j.id, j]))
+  return plan.jobs.flatMap((j) => {
+    const job = byId.get(j.jobId)
+    const v = job && job.due !== null ? rules.dueDate({ jobId: job.id, name: job.name }, { completion: j.completion, due: job.due }) : null
+    return v ? [v] : []
+  })
+}
+
+/** Checks a plan against every hard rule; an empty list means the plan is valid. */
 export function validatePlan(problem: Problem, plan: Plan): Violation[] {
   const ctx: Context = {
     problem,
@@ -339,4 +369,9 @@ export function validatePlan(problem: Problem, plan: Plan): Violation[] {
     people: new Map(problem.people.map((x) => [x.id, x])),
   }
   return PLAN_RULES.flatMap((r) => r.check(ctx))
+}
+
+/** The rule book on a whole plan, grouped: hard findings make it invalid, soft ones (late pieces) are shown beside it. */
+export function checkPlan(problem: Problem, plan: Plan): { hard: Violation[]; soft: Violation[] } {
+  return { hard: validatePlan(problem, plan), soft: lateJobs(problem, plan) }
 }

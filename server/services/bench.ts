@@ -3,6 +3,8 @@ import { and, asc, desc, eq, inArray, isNull, ne, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/pg-core'
 import { STAFF } from '../../shared/domain/roles'
 import { HELD_OPERATION, canMoveOperation, cautionsFor, type OperationStatus } from '../../shared/domain/status'
+import * as rules from '../../shared/domain/rules'
+import type { RuleViolation, StepRef } from '../../shared/domain/rules'
 import type { BenchOperation, BenchStones, ClaimInput, FinishInput, OutsideInput, PauseInput, ReleaseInput, StartInput, TransitionResult } from '../../shared/schemas/bench-work'
 import type { PieceParams } from '../../shared/schemas/order'
 import type { Db, Trx, Tx } from '../db/client'
@@ -84,16 +86,20 @@ async function requirePerson(tx: Tx, actor: Actor, personId: number | undefined)
   return p
 }
 
-async function requireBench(tx: Tx, workshopId: number, benchId: number, kindId: number, kindName: string) {
+async function requireBench(tx: Tx, workshopId: number, benchId: number, kindId: number, kindName: string, step: StepRef) {
   const [b] = await tx.select({ id: benches.id, name: benches.name, active: benches.active }).from(benches).where(and(eq(benches.id, benchId), eq(benches.workshopId, workshopId)))
   if (!b) throw new AppError({ code: 'validation', message: 'benchId: is not a bench of this workshop', fields: { benchId: 'is not a bench of this workshop' } })
   if (!b.active) throw new AppError({ code: 'unprocessable', message: `${b.name} is switched off`, fields: { benchId: 'is switched off' } })
   const [cap] = await tx.select().from(benchCapabilities).where(and(eq(benchCapabilities.benchId, benchId), eq(benchCapabilities.kindId, kindId)))
-  if (!cap) throw new AppError({ code: 'unprocessable', message: `${b.name} is not equipped for ${kindName}; take it at a bench that is`, fields: { benchId: `cannot do ${kindName}` } })
+  const v = rules.benchCapability(step, { benchName: b.name, kindName, capable: !!cap })
+  if (v) throw new AppError({ code: 'unprocessable', message: `${v.message} Take it at a bench that is.`, fields: { benchId: `cannot do ${kindName}` }, details: { rule: v.rule } })
   return b
 }
 
 const label = (op: Pick<OpRow, 'name' | 'jobBagNumber'>) => `“${op.name}” (job bag ${op.jobBagNumber})`
+const stepOf = (op: Pick<OpRow, 'id' | 'jobBagId' | 'name' | 'jobBagNumber'>): StepRef => ({ operationId: op.id, jobId: op.jobBagId, name: op.name, bag: `job bag ${op.jobBagNumber}` })
+/** A rule book finding as the tablet's refusal (422), with the facts the tablet shows beside it. */
+const ruleError = (v: RuleViolation, details: Record<string, unknown>) => new AppError({ code: 'unprocessable', message: v.message, details: { rule: v.rule, ...details } })
 
 function refuseMove(op: OpRow, to: OperationStatus, person: Person | null): never {
   const held = (HELD_OPERATION as readonly string[]).includes(op.status)
@@ -109,8 +115,8 @@ function refuseMove(op: OpRow, to: OperationStatus, person: Person | null): neve
 async function pendingReason(tx: Tx, op: OpRow) {
   const preds = op.after.length ? await tx.select({ key: operations.key, name: operations.name, status: operations.status }).from(operations).where(and(eq(operations.jobBagId, op.jobBagId), inArray(operations.key, op.after))) : []
   const open = preds.filter((p) => p.status !== 'done' && p.status !== 'skipped')
-  const names = open.map((p) => `“${p.name}”`).join(', ')
-  return new AppError({ code: 'unprocessable', message: `${label(op)} is not ready: ${names || 'an earlier step'} must be finished first`, details: { waitingFor: open.map((p) => p.key) } })
+  const v = rules.predecessorsFinished(stepOf(op), { open: open.length ? open.map((p) => p.name) : ['an earlier step'] })!
+  return ruleError(v, { waitingFor: open.map((p) => p.key) })
 }
 
 /** A step waits out its predecessors' wait-after (pickle, glue cure) before anyone takes it up. */
@@ -121,7 +127,8 @@ async function requireRested(tx: Tx, op: OpRow, now: Date) {
   for (const p of preds) {
     if (!p.finishedAt || p.waitAfter <= 0) continue
     const left = Math.ceil((new Date(p.finishedAt).getTime() + p.waitAfter * 60_000 - now.getTime()) / 60_000)
-    if (left > 0) throw new AppError({ code: 'unprocessable', message: `${label(op)} can start in ${left} min: “${p.name}” has a ${p.waitAfter} min wait after it`, details: { waitMinutesLeft: left } })
+    const v = rules.predecessorsFinished(stepOf(op), { open: [], waitMinutesLeft: left, waitingOn: p.name, waitAfter: p.waitAfter })
+    if (v) throw ruleError(v, { waitMinutesLeft: left })
   }
 }
 
@@ -231,10 +238,9 @@ export function claim(deps: Deps, actor: Actor, operationId: number, input: Clai
     if (op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is outside work; the manager sends it out and books it back` })
     await requireDepositIn(tx, actor.workshopId, op)
     const [skill] = await tx.select({ level: personSkills.level }).from(personSkills).where(and(eq(personSkills.personId, person.id), eq(personSkills.kindId, op.kindId)))
-    const who = person.id === actor.personId ? 'You' : person.name
-    if (!skill) throw new AppError({ code: 'unprocessable', message: `${who} ${who === 'You' ? 'have' : 'has'} no ${op.kindName} skill recorded; ${label(op)} needs level ${op.requiredLevel}`, details: { requiredLevel: op.requiredLevel, level: 0 } })
-    if (skill.level < op.requiredLevel) throw new AppError({ code: 'unprocessable', message: `${label(op)} needs ${op.kindName} at level ${op.requiredLevel}; ${who === 'You' ? 'your' : `${person.name}’s`} level is ${skill.level}`, details: { requiredLevel: op.requiredLevel, level: skill.level } })
-    const bench = await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName)
+    const unskilled = rules.skill(stepOf(op), { personName: person.name, kindName: op.kindName, level: skill?.level ?? null, required: op.requiredLevel })
+    if (unskilled) throw ruleError(unskilled, { requiredLevel: op.requiredLevel, level: skill?.level ?? 0 })
+    const bench = await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName, stepOf(op))
     // The conditional update is the last guard: only a still unclaimed, ready operation is taken.
     const [won] = await tx.update(operations).set({ status: 'claimed', claimedBy: person.id, version: sql`${operations.version} + 1` })
       .where(and(eq(operations.id, op.id), eq(operations.status, 'ready'), isNull(operations.claimedBy))).returning({ id: operations.id })
@@ -263,7 +269,7 @@ export function start(deps: Deps, actor: Actor, operationId: number, input: Star
     const cautions = cautionsFor(op.hazards)
     if (cautions.length && !input.acknowledgeHazards)
       throw new AppError({ code: 'unprocessable', message: `${label(op)} is hazardous: read and confirm the cautions before starting`, details: { needsAcknowledgement: true, hazards: op.hazards, cautions } })
-    const bench = input.benchId ? await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName) : null
+    const bench = input.benchId ? await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName, stepOf(op)) : null
     await requireNothingElseRunning(tx, person, op.id, person.id === actor.personId)
     await openRecord(tx, { operationId: op.id, personId: person.id, benchId: bench?.id ?? null, at: now, clientId: input.requestId })
     await move(tx, op, 'running')
@@ -289,7 +295,7 @@ export function resume(deps: Deps, actor: Actor, operationId: number, input: Sta
     if (op.status !== 'paused') refuseMove(op, 'running', null)
     requireWorkable(op)
     const person = await holderFor(tx, actor, op, input.personId)
-    const bench = input.benchId ? await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName) : null
+    const bench = input.benchId ? await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName, stepOf(op)) : null
     await requireNothingElseRunning(tx, person, op.id, person.id === actor.personId)
     await openRecord(tx, { operationId: op.id, personId: person.id, benchId: bench?.id ?? null, at: now, clientId: input.requestId })
     await move(tx, op, 'running')

@@ -1,4 +1,5 @@
 // Plan versions: list, read, compare, publish (the draft becomes the live plan) and discard.
+import { describe, type RuleViolation } from '../../shared/domain/rules'
 import { and, desc, eq, inArray, sql } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
@@ -89,7 +90,7 @@ export async function publishPlan({ db, realtime }: Deps, actor: Actor, id: numb
     if (!p) throw notFound('Plan')
     if (p.status !== 'draft') throw new AppError({ code: 'conflict', message: `Plan ${p.number} is ${p.status}, not a draft; only drafts can be published` })
     if ((p.score as { feasible?: boolean }).feasible === false)
-      throw new AppError({ code: 'unprocessable', message: `Plan ${p.number} breaks a planning rule (${((p.score as { violations?: string[] }).violations ?? [])[0] ?? 'see the draft'}); it cannot become the live plan.` })
+      throw new AppError({ code: 'unprocessable', message: `Plan ${p.number} breaks a planning rule (${describe((p.score as { violations?: (RuleViolation | string)[] }).violations ?? [], 1) || 'see the draft'}); it cannot become the live plan.` })
     const [live] = await tx.select().from(s.planVersions).where(and(eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'published')))
     const basedOn = (p.score as { basedOnPlanId?: number | null }).basedOnPlanId ?? null
     if ((live?.id ?? null) !== basedOn)

@@ -1,5 +1,6 @@
 // Promise dates for sales: the earliest completion of a prospective piece on the live plan (and re-planned), its
 // confidence range, turning it into an order with the promised date, and the forecast of an existing order.
+import { cachedOr } from '../lib/cache'
 import { and, asc, eq, gt, inArray, isNotNull, lt, or, sql } from 'drizzle-orm'
 import { quantileSorted } from 'simple-statistics'
 import type { JobBagForecast, OrderForecast, PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
@@ -7,7 +8,6 @@ import { routingStepMinutes } from '../../shared/domain/estimate'
 import * as s from '../db/schema/index'
 import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import type { Realtime } from '../realtime/hub'
 import { dayjs } from '../lib/time'
 import { clipToWindows, intersect } from '../scheduler/calendar.ts'
 import { checkProblem, promise, solve, type Job, type Operation, type Plan, type PlannedOperation, type Problem } from '../scheduler/index.ts'
@@ -31,28 +31,10 @@ const QUICK_PLAN_MS = 120
 const CACHE_MS = 5 * 60_000
 export const PROSPECTIVE_JOB = 'prospective'
 
-// Per app (realtime hub) and workshop: the quick plan used when nothing is published, and the duration spreads.
-// Dropped on any change in the workshop, and after CACHE_MS.
-const caches = new WeakMap<Realtime, { entries: Map<string, { at: number; value: unknown }>; generation: Map<string, number> }>()
-async function cached<T>(realtime: Realtime, key: string, load: () => Promise<T> | T, replace = false): Promise<T> {
-  let c = caches.get(realtime)
-  if (!c) {
-    const fresh = { entries: new Map<string, { at: number; value: unknown }>(), generation: new Map<string, number>() }
-    realtime.onChange((ws) => {
-      fresh.generation.set(String(ws), (fresh.generation.get(String(ws)) ?? 0) + 1)
-      for (const k of fresh.entries.keys()) if (k.startsWith(`${ws}|`)) fresh.entries.delete(k)
-    })
-    caches.set(realtime, fresh)
-    c = fresh
-  }
-  const hit = c.entries.get(key)
-  if (hit && !replace && Date.now() - hit.at < CACHE_MS) return hit.value as T
-  // A load that began before a change must not fill the cache after it.
-  const w = key.slice(0, key.indexOf('|'))
-  const before = c.generation.get(w) ?? 0
-  const value = await load()
-  if ((c.generation.get(w) ?? 0) === before) c.entries.set(key, { at: Date.now(), value })
-  return value
+// Per workshop, in the app's cache: the quick plan used when nothing is published, the duration spreads, the planning
+// data and the answers. Dropped on any change in the workshop (on any instance), and after CACHE_MS.
+function cached<T>(deps: Deps, workshopId: number, key: string, load: () => Promise<T> | T, replace = false): Promise<T> {
+  return cachedOr(deps.cache, workshopId, key, load, { ttlMs: CACHE_MS, verify: true, replace })
 }
 
 const local = (data: PlanningData, minute: number) => {
@@ -102,7 +84,7 @@ async function basePlan(deps: Deps, workshopId: number, data: PlanningData) {
   const plan = planFromAssignments(data, live)
   if (plan.operations.length > 0) return { plan, basis: 'live-plan' as const, basisNote: 'Measured against the live plan; current work keeps its times.' }
   const quick = data.problem.operations.some((o) => !o.done)
-    ? await cached(deps.realtime, `${workshopId}|quick-plan`, () => { try { return solve(data.problem, { seed: 1, timeLimitMs: QUICK_PLAN_MS }) } catch (err) { throw planningError(err, data) } })
+    ? await cached(deps, workshopId, 'quick-plan', () => { try { return solve(data.problem, { seed: 1, timeLimitMs: QUICK_PLAN_MS }) } catch (err) { throw planningError(err, data) } })
     : plan
   // Only operations still open in this problem (the cached plan may be a few minutes old).
   const ids = new Set(data.problem.operations.filter((o) => !o.done).map((o) => o.id))
@@ -144,12 +126,12 @@ async function prospectiveJob(deps: Deps, workshopId: number, data: PlanningData
  * it): sales try several variants in a row, and loading is most of the cost. `now` is moved to the current minute.
  */
 async function planningData(deps: Deps, workshopId: number, now: Date): Promise<PlanningData> {
-  const key = `${workshopId}|planning-data`
-  const hit = await cached(deps.realtime, key, async () => ({ at: Date.now(), data: await loadPlanningData(deps.db, workshopId, now) }))
+  const key = 'planning-data'
+  const hit = await cached(deps, workshopId, key, async () => ({ at: Date.now(), data: await loadPlanningData(deps.db, workshopId, now) }))
   const nowMin = hit.data.clock.toMinute(now)
   if (Date.now() - hit.at > 60_000 || nowMin < hit.data.problem.now || nowMin >= hit.data.problem.horizon - 7 * 1440) {
     const fresh = { at: Date.now(), data: await loadPlanningData(deps.db, workshopId, now) }
-    await cached(deps.realtime, key, () => fresh, true)
+    await cached(deps, workshopId, key, () => fresh, true)
     return fresh.data
   }
   return { ...hit.data, problem: { ...hit.data.problem, now: nowMin } }
@@ -161,11 +143,11 @@ async function planningData(deps: Deps, workshopId: number, now: Date): Promise<
  */
 const inFlight = new Map<string, Promise<PromiseCheckResult>>()
 export async function checkPromise(deps: Deps, actor: Actor, input: PromiseCheckInput, now = new Date()): Promise<PromiseCheckResult> {
-  const key = `${actor.workshopId}|answer|${Math.floor(now.getTime() / 60_000)}|${JSON.stringify(input)}`
-  const running = inFlight.get(key)
+  const key = `answer|${Math.floor(now.getTime() / 60_000)}|${JSON.stringify(input)}`
+  const running = inFlight.get(`${actor.workshopId}|${key}`)
   if (running) return running
-  const work = cached(deps.realtime, key, () => computePromise(deps, actor, input, now)).finally(() => inFlight.delete(key))
-  inFlight.set(key, work)
+  const work = cached(deps, actor.workshopId, key, () => computePromise(deps, actor, input, now)).finally(() => inFlight.delete(`${actor.workshopId}|${key}`))
+  inFlight.set(`${actor.workshopId}|${key}`, work)
   return work
 }
 
@@ -186,7 +168,7 @@ async function computePromise(deps: Deps, actor: Actor, input: PromiseCheckInput
 
   let range: PromiseCheckResult['range'] = null
   if (input.range) {
-    const spreads = await cached(deps.realtime, `${actor.workshopId}|spreads`, () => kindSpreads(deps.db, actor.workshopId))
+    const spreads = await cached(deps, actor.workshopId, 'spreads', () => kindSpreads(deps.db, actor.workshopId))
     range = confidenceRange(data, base.plan, pj.operations, spreads, input.runs ?? DEFAULT_RUNS, input.seed, input.sample)
   }
   return {

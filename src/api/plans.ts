@@ -1,6 +1,7 @@
 // Planning API: planner runs, plan versions and comparisons, the board window, moves by hand and the week load.
 import type { MoveInput, PlanRunInput } from '@shared/schemas/plan'
 import type { BoardActual, BoardPlanned } from '@shared/schemas/board'
+import type { RuleViolation } from '@shared/domain/rules'
 import { api } from './client'
 
 /** Why the engine started an operation when it did, e.g. "waiting for Ines Harrowby (setting) until Thu 14:00". */
@@ -90,7 +91,8 @@ export interface PlanScore {
   completion?: string
   moves?: number
   feasible?: boolean
-  violations?: string[]
+  /** Rule book findings; drafts saved before findings were structured hold plain strings. */
+  violations?: (RuleViolation | string)[]
   lateJobs?: number
   /** Working minutes late, summed over the late pieces, and the latest piece's; a working day is dayMinutes. */
   lateWorkingMinutes?: number

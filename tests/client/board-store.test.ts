@@ -29,10 +29,10 @@ describe('moving a bar', () => {
   })
 
   it('when the server refuses (422), then the bar goes back and the reason and rule are kept for the board', async () => {
-    api.moveOperation.mockRejectedValue(new ApiError({ status: 422, code: 'unprocessable', message: 'Setting bench A cannot host polishing ("Barrel and polish").', details: { rule: 'bench capability' } }))
+    api.moveOperation.mockRejectedValue(new ApiError({ status: 422, code: 'unprocessable', message: 'Setting bench A is not equipped for polishing (“Barrel and polish” of JB-0001).', details: { rule: 'bench capability' } }))
     const settle = vi.fn()
     const r = await useBoardStore().move(item, { benchId: 5, version: 2 }, settle)
-    expect(r).toEqual({ ok: false, kind: 'refused', message: 'Setting bench A cannot host polishing ("Barrel and polish").', rule: 'bench capability' })
+    expect(r).toEqual({ ok: false, kind: 'refused', message: 'Setting bench A is not equipped for polishing (“Barrel and polish” of JB-0001).', rule: 'bench capability' })
     expect(settle).toHaveBeenCalledWith(false)
     expect(api.getBoard).not.toHaveBeenCalled()
   })

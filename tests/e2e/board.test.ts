@@ -194,7 +194,7 @@ describe('the planning board', () => {
     await manager.mouse.up()
     const refusal = manager.locator('[data-test=board-refusal]')
     await refusal.waitFor({ timeout: 10_000 })
-    await expect(refusal.textContent()).resolves.toMatch(/Setting bench A cannot host polishing/)
+    await expect(refusal.textContent()).resolves.toMatch(/Setting bench A is not equipped for polishing/)
     await manager.waitForTimeout(300)
     const back = (await boxOf(manager, polish.id))!
     expect(await rowOfY(manager, back.y + back.height / 2)).toBe('Polishing station')

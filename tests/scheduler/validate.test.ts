@@ -40,8 +40,27 @@ describe('validatePlan', () => {
   it('when a done operation is planned again, then it is reported', () => {
     expect(broken((p) => { p.operations.push({ ...op(p, 'b'), operationId: 'old' }) })).toContain('done work is not planned again')
   })
-  it('when an operation uses a bench it has no option for, then "allowed bench and person" is reported', () => {
-    expect(broken((p) => { op(p, 'a').benchId = 'b2' })).toContain('allowed bench and person')
+  it('when an operation uses a bench none of its options names, then "bench capability" is reported', () => {
+    expect(broken((p) => { op(p, 'a').benchId = 'b2' })).toContain('bench capability')
+  })
+  it('when an operation needs a person none of its options names, then "skill" is reported', () => {
+    expect(broken((p) => { op(p, 'a').personId = 'p2' })).toContain('skill')
+  })
+  it('when bench and person are each allowed but not as a pair, then "allowed bench and person" is reported, and neither capability nor skill', () => {
+    // Hand-built: step x may run on (b1, p1) or (b2, p2); the plan puts it on b1 with p2.
+    const pairs: Problem = makeProblem({
+      benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
+      people: [makePerson({ id: 'p1' }), makePerson({ id: 'p2' })],
+      workshopDays: weekdays(),
+      jobs: [makeJob({ id: 'j' })],
+      operations: [makeOperation({ id: 'x', jobId: 'j', options: [{ benchId: 'b1', personId: 'p1', minutes: 60 }, { benchId: 'b2', personId: 'p2', minutes: 60 }] })],
+    })
+    const plan = solve(pairs, { seed: 1, timeLimitMs: 100, maxIterations: 10 }, { clock: () => performance.now() })
+    const x = plan.operations[0]!
+    x.benchId = 'b1'; x.personId = 'p2'
+    const found = validatePlan(pairs, plan)
+    expect(found.map((v) => v.rule)).toEqual(['allowed bench and person'])
+    expect(found[0]).toMatchObject({ severity: 'hard', operationId: 'x', jobId: 'j' })
   })
   it('when the worked minutes do not add up, then "work adds up" is reported', () => {
     expect(broken((p) => { const o = op(p, 'a'); o.end -= 10; o.segments[o.segments.length - 1]!.end -= 10 })).toContain('work adds up')
@@ -56,11 +75,11 @@ describe('validatePlan', () => {
   })
   it('when two operations share a bench at the same time, then double booking is reported for bench and person', () => {
     const rules = broken((p) => { const a = op(p, 'a'), b = op(p, 'b'); b.start = a.start; b.end = a.end; b.segments = a.segments.map((s) => ({ ...s })) })
-    expect(rules).toContain('one operation at a time per bench')
-    expect(rules).toContain('one operation at a time per person')
+    expect(rules).toContain('bench double booking')
+    expect(rules).toContain('person double booking')
   })
-  it('when a successor starts during the pickle wait, then "routing order and wait-after" is reported', () => {
-    expect(broken((p) => shift(p, 'b', -10))).toContain('routing order and wait-after')
+  it('when a successor starts during the pickle wait, then "routing order" is reported', () => {
+    expect(broken((p) => shift(p, 'b', -10))).toContain('routing order')
   })
   it('when work starts before its job is released, then "not before release" is reported', () => {
     expect(broken((p) => shift(p, 'a', -60))).toContain('not before release')
@@ -75,7 +94,7 @@ describe('validatePlan', () => {
     expect(broken((p) => shift(p, 'pin', 30))).toContain('pinned work stays put')
   })
   it('when outside work comes back too early, then "outside work takes its working days" is reported', () => {
-    expect(broken((p) => { const o = op(p, 'cast'); o.end -= 60; o.segments = [{ start: o.start, end: o.end }] })).toContain('outside work takes its working days')
+    expect(broken((p) => { const o = op(p, 'cast'); o.end -= 60; o.segments = [{ start: o.start, end: o.end }] })).toContain('outside work')
   })
   it('when work ends after the horizon, then "within the horizon" is reported', () => {
     expect(broken((p) => shift(p, 'cast', 30 * 1440))).toContain('within the horizon')

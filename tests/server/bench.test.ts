@@ -230,21 +230,24 @@ describe('refusals', () => {
     expect(op.required_level).toBeGreaterThan(1)
     const r = await trainee.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
     expectCleanError(r, 422)
-    expect(r.body.error).toMatch(/needs Stone setting at level \d; your level is 1/)
+    expect(r.body.error).toMatch(/is not skilled for “.+” of job bag \S+: it needs stone setting at level \d; their level is 1/)
+    expect(r.body.details).toMatchObject({ rule: 'skill', level: 1 })
   })
 
   it('when the person has no skill for the kind at all, then 422 says so', async () => {
     const polish = await freshReady(t, 'polishing')
     const r = await setter.post(`/api/bench/operations/${polish.id}/claim`, { requestId: rid(), benchId: polishing })
     expectCleanError(r, 422)
-    expect(r.body.error).toMatch(/no Polishing skill/)
+    expect(r.body.error).toMatch(/needs polishing at level \d; none is recorded for them/)
+    expect(r.body.details).toMatchObject({ rule: 'skill', level: 0 })
   })
 
   it('when the bench is not equipped for the kind, then 422 names the bench', async () => {
     const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
     const r = await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: fab1 })
     expectCleanError(r, 422)
-    expect(r.body.error).toMatch(/Fabrication bench 1 is not equipped for Stone setting/)
+    expect(r.body.error).toMatch(/Fabrication bench 1 is not equipped for stone setting/)
+    expect(r.body.details.rule).toBe('bench capability')
   })
 
   it('when a bench user tries to act for someone else, then 403', async () => {

@@ -141,7 +141,7 @@ describe('board and moves by hand', () => {
     const setting = benches.find((b: any) => b.kind === 'setting')
     const r = await manager.patch(`/api/board/operations/${bar.id}`, { benchId: setting.id, version: bar.version })
     expect(r.status).toBe(422)
-    expect(r.body.error).toMatch(/cannot host polishing/)
+    expect(r.body.error).toMatch(/is not equipped for polishing/)
     expect(r.body.details.rule).toBe('bench capability')
   })
 
@@ -152,6 +152,7 @@ describe('board and moves by hand', () => {
     const r = await manager.patch(`/api/board/operations/${bar.id}`, { personId: ruth.id, version: bar.version })
     expect(r.status).toBe(422)
     expect(r.body.error).toMatch(/Ruth Calder is not skilled/)
+    expect(r.body.details.rule).toBe('skill')
   })
 
   it('when a bar is moved before its predecessor ends, then the move is refused naming the predecessor', async () => {

@@ -21,7 +21,7 @@ export async function createTestApp(overrides: Record<string, string> = {}): Pro
   const config = loadConfig({ DATABASE_URL: tdb.url, SESSION_SECRET: 'test-secret-test-secret', NODE_ENV: 'test', LOGIN_ATTEMPTS_PER_15_MIN: '1000', ...overrides })
   const realtime = new Realtime()
   const { app } = createApp({ db: tdb.db, pool: tdb.pool, config, realtime })
-  return { ...tdb, app, realtime, close: () => tdb.drop() }
+  return { ...tdb, app, realtime, async close() { await realtime.close(); await tdb.drop() } }
 }
 
 /** An agent that keeps cookies and sends the CSRF token on writes. */

@@ -1,6 +1,6 @@
 // Plan assignments as stored (ISO times, per operation) and read back from the operations' planned fields.
 import { and, eq, inArray, isNotNull } from 'drizzle-orm'
-import type { Db } from '../../db/client'
+import type { Db, Tx } from '../../db/client'
 import * as s from '../../db/schema/index'
 import type { Plan, StartReason } from '../../scheduler/model.ts'
 import type { PlanningData } from './problem'
@@ -23,7 +23,7 @@ export function toAssignments(data: PlanningData, plan: Plan): Record<string, As
 }
 
 /** The live plan: what the operations table holds now (published plan plus manual moves and work done). */
-export async function currentAssignments(db: Db, workshopId: number): Promise<Record<string, Assignment>> {
+export async function currentAssignments(db: Tx, workshopId: number): Promise<Record<string, Assignment>> {
   const rows = await db
     .select({ id: s.operations.id, benchId: s.operations.plannedBenchId, personId: s.operations.plannedPersonId, start: s.operations.plannedStart, end: s.operations.plannedEnd })
     .from(s.operations)

@@ -1,6 +1,6 @@
 // Builds the engine's problem from the workshop's data: calendars as minute intervals, job bags as jobs, operations with options.
 import { and, eq, inArray, notInArray } from 'drizzle-orm'
-import type { Db } from '../../db/client'
+import type { Db, Tx } from '../../db/client'
 import * as s from '../../db/schema/index'
 import { dayjs, expandPattern, MinuteClock, subtract, dayRange, type Interval } from '../../lib/time'
 import type { Operation as EngineOperation, Problem } from '../../scheduler/model.ts'
@@ -44,7 +44,7 @@ export function operationOptions(meta: Pick<PlanningData['meta'], 'benches' | 'p
   return benchIds.flatMap((b) => able.map((k) => ({ benchId: String(b), personId: String(k.personId), minutes: minutes(k.speed) })))
 }
 
-export async function loadPlanningData(db: Db, workshopId: number, now: Date): Promise<PlanningData> {
+export async function loadPlanningData(db: Tx, workshopId: number, now: Date): Promise<PlanningData> {
   const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   if (!w) throw new Error('workshop missing')
   // Minute 0 is the Monday of this ISO week, so the whole week shows on the board.

@@ -13,6 +13,7 @@ import { errorHandler } from './errors/handler'
 import { actorOf, authorize, configurePassport, createSessionMiddleware, useSessionUserCache } from './middleware/auth'
 import { Cache } from './lib/cache'
 import { requireCsrf } from './middleware/csrf'
+import { endPinAfterWrite, resolveBenchPerson } from './middleware/bench-person'
 import type { Deps, RouteSpec } from './lib/route'
 import { Realtime } from './realtime/hub'
 import { allRoutes } from './routes/index'
@@ -55,12 +56,13 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   realtime.useDatabase(pool)
   const cache = new Cache(realtime)
   useSessionUserCache(db, cache)
-  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: `http://${config.HOST}:${config.PORT}` }
+  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: `http://${config.HOST}:${config.PORT}`, accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS } }
 
   const api = express.Router()
   api.use(express.json({ limit: '1mb' }))
   api.use(sessionMiddleware)
   api.use(passport.session())
+  api.use(resolveBenchPerson)
   // Failed sign-ins are limited per address and per account; a sign-in that succeeds does not count (tablets behind one router sign in all day).
   const failedSignIns = (what: string, keyGenerator?: (req: express.Request) => string) => rateLimit({
     windowMs: 15 * 60_000,
@@ -77,6 +79,20 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
     return `account:${typeof email === 'string' ? email.trim().toLowerCase() : ''}`
   }
   api.post('/session', failedSignIns('from this address'), failedSignIns('for this account', accountKey))
+  // Invitations, reset requests, one-time links and PIN checks are limited per address (reset requests also per address asked for).
+  const accountRequests = (what: string, o: { keyGenerator?: (req: express.Request) => string; failedOnly?: boolean } = {}) => rateLimit({
+    windowMs: 15 * 60_000,
+    limit: config.ACCOUNT_REQUESTS_PER_15_MIN,
+    skipSuccessfulRequests: o.failedOnly ?? false,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    ...(o.keyGenerator ? { keyGenerator: o.keyGenerator } : {}),
+    handler: (_req, _res, next) => next(new AppError({ code: 'rate-limited', message: `Too many ${what}; wait 15 minutes and try again.` })),
+  })
+  api.post(['/invitations', '/invitations/:id/resend'], accountRequests('invitations sent from here'))
+  api.post('/password-reset', accountRequests('reset requests from here'), accountRequests('reset requests for this address', { keyGenerator: accountKey }))
+  api.use('/account-links', accountRequests('tries of one-time links from here'))
+  api.post('/bench-station/pin', accountRequests('wrong PINs on this tablet', { failedOnly: true, keyGenerator: (req) => `station:${req.sessionID}` }))
 
   for (const spec of allRoutes) register(api, spec, deps)
   // The provider's signed webhook: no session and no CSRF token, the raw body is what the signature covers.
@@ -106,6 +122,7 @@ function register(router: express.Router, spec: RouteSpec, deps: Deps) {
       const body = spec.body ? spec.body.parse(req.body ?? {}) : req.body
       const actor = actorOf(req.user as SessionUser | undefined)
       const result = await spec.handler({ req, res, actor: actor!, body, query, params, deps })
+      endPinAfterWrite(req)
       // The change events of this request are numbered and sent before it answers, so whoever reads next (on any instance) sees them.
       await deps.realtime.flush()
       if (result === undefined) {

@@ -12,6 +12,12 @@ const schema = z.object({
   BENCH_SESSION_DAYS: z.coerce.number().int().min(1).default(30),
   /** Failed sign-ins allowed in 15 minutes, counted per address and per account (successful ones do not count). */
   LOGIN_ATTEMPTS_PER_15_MIN: z.coerce.number().int().min(1).default(20),
+  /** Invitation links stay usable this many hours, password-reset links this many minutes; a bench PIN lasts this many seconds (or one action). */
+  INVITE_LINK_HOURS: z.coerce.number().int().min(1).default(72),
+  RESET_LINK_MINUTES: z.coerce.number().int().min(1).default(60),
+  BENCH_PIN_SECONDS: z.coerce.number().int().min(10).default(120),
+  /** Requests allowed in 15 minutes per address to each of: invitations, reset requests, one-time links, PIN checks. */
+  ACCOUNT_REQUESTS_PER_15_MIN: z.coerce.number().int().min(1).default(20),
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
   /** Built client to serve (omitted in API-only tests). */
   CLIENT_DIR: z.string().optional(),

@@ -15,6 +15,8 @@ export const LOCK = {
   pauseReasons: 3002,
   /** The metal ledger, per workshop. */
   metalLedger: 3101,
+  /** Invitations, per workshop: one open invitation per address. */
+  invitations: 3201,
   /** Change-event numbering, per workshop: numbers are committed in the order they are handed out. */
   changeEvents: 4001,
 } as const

@@ -7,12 +7,12 @@ import type { Realtime } from '../realtime/hub'
 import type { Mailer } from '../mail/transport'
 import type { PayProvider } from '../services/pay-provider'
 
-export interface Actor { userId: number; workshopId: number; role: Role; personId: number | null; name: string }
+export interface Actor { userId: number; workshopId: number; role: Role; personId: number | null; name: string; /** A bench station tablet the person acts at (after their PIN). */ station?: { benchId: number; benchName: string } | null }
 
 import type { PassportStatic } from 'passport'
 type Authenticator = InstanceType<PassportStatic['Passport']>
 
-export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer; /** The HOST the server listens on (config). */ listenHost?: string; /** The payment provider (real or the local fake); null when none is configured. */ pay?: PayProvider | null; /** This server's own address, for the provider's return pages when the workshop has no public address. */ appUrl?: string }
+export interface Deps { db: Db; realtime: Realtime; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer; /** The HOST the server listens on (config). */ listenHost?: string; /** The payment provider (real or the local fake); null when none is configured. */ pay?: PayProvider | null; /** This server's own address, for the provider's return pages when the workshop has no public address. */ appUrl?: string; /** Link lifetimes and the bench PIN time (config). */ accounts?: { inviteHours: number; resetMinutes: number; pinSeconds: number } }
 
 export interface RouteContext<B, Q, P> {
   req: Request

@@ -67,9 +67,11 @@ export function configurePassport(db: Db) {
     }),
   )
   p.serializeUser((user, done) => done(null, (user as SessionUser).id))
-  p.deserializeUser(async (id: number, done) => {
+  p.deserializeUser(async (req: Request, id: number, done: (err: unknown, user?: SessionUser | false) => void) => {
     try {
-      done(null, (await cachedSessionUser(db, id)) ?? false)
+      const user = await cachedSessionUser(db, id)
+      const station = (req.session as Partial<SessionData> | undefined)?.station
+      done(null, (user && station ? stationUser(user, station) : user) ?? false)
     } catch (err) {
       done(err)
     }
@@ -143,9 +145,18 @@ export function createSessionMiddleware(pool: pg.Pool, config: Config): RequestH
   }
 }
 
+/**
+ * A bench station: the tablet a manager or the owner signed in for one bench. It has the bench role and no person of its
+ * own; it lasts while the one who set it up may still do so.
+ */
+export function stationUser(setUpBy: SessionUser, station: { benchId: number; benchName: string }): SessionUser | null {
+  if (setUpBy.role !== 'owner' && setUpBy.role !== 'manager') return null
+  return { ...setUpBy, role: 'bench', name: `${station.benchName} station`, personId: null, station }
+}
+
 export function actorOf(user: SessionUser | undefined): Actor | null {
   if (!user) return null
-  return { userId: user.id, workshopId: user.workshopId, role: user.role, personId: user.personId, name: user.name }
+  return { userId: user.id, workshopId: user.workshopId, role: user.role, personId: user.personId, name: user.name, station: user.station ?? null }
 }
 
 /** Deny by default: a route that does not list the user's role answers 403. */

@@ -7,6 +7,7 @@ import { masterDataRoutes } from './masterdata'
 import { orderRoutes } from './orders'
 import { planRoutes } from './plans'
 import { sessionRoutes } from './session'
+import { accountRoutes } from './accounts'
 import { promiseRoutes } from './promise'
 import { mailRoutes } from './mail'
 import { fileRoutes } from './files'
@@ -17,4 +18,4 @@ import { quoteRoutes } from './quotes'
 import { paymentRoutes } from './payments'
 import { costingRoutes } from './costing'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes, ...metalRoutes, ...quoteRoutes, ...paymentRoutes, ...costingRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [...sessionRoutes, ...accountRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes, ...metalRoutes, ...quoteRoutes, ...paymentRoutes, ...costingRoutes] as RouteSpec[]

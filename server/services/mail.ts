@@ -10,12 +10,12 @@ import * as t from '../mail/templates'
 import { OUTBOX_HEADER } from '../mail/transport'
 import { boardData } from './board'
 
-export interface MailRequest { workshopId: number; to: string; kind: string; orderId?: number | null; meta?: Record<string, unknown>; content: t.MailContent }
+export interface MailRequest { workshopId: number; to: string; kind: string; orderId?: number | null; meta?: Record<string, unknown>; content: t.MailContent; /** What the outbox keeps when it must not keep the sent text (a one-time link); same subject. */ kept?: t.MailContent }
 
 /** Records the message as queued, sends it, and stores the outcome. Never throws: the outcome is returned. */
 export async function sendRecorded(deps: Pick<Deps, 'db' | 'mailer'>, m: MailRequest) {
   const [row] = await deps.db.insert(s.outbox).values({
-    workshopId: m.workshopId, to: m.to, subject: m.content.subject, text: m.content.text, html: m.content.html, kind: m.kind, orderId: m.orderId ?? null, meta: m.meta ?? {},
+    workshopId: m.workshopId, to: m.to, subject: m.content.subject, text: (m.kept ?? m.content).text, html: (m.kept ?? m.content).html, kind: m.kind, orderId: m.orderId ?? null, meta: m.meta ?? {},
   }).returning({ id: s.outbox.id })
   const id = row!.id
   const fail = async (error: string) => {

@@ -16,6 +16,8 @@ export const sessionUser = z.object({
   workshopId: z.number(),
   workshopName: z.string(),
   personId: z.number().nullable(),
+  /** Set when this is a bench station tablet (signed in for one bench; people act with their PIN). */
+  station: z.object({ benchId: z.number(), benchName: z.string() }).nullable().optional(),
 })
 export type SessionUser = z.infer<typeof sessionUser>
 export const sessionInfo = z.object({ user: sessionUser.nullable(), csrfToken: z.string() })

@@ -3,10 +3,10 @@ import type { RequestHandler } from 'express'
 import type { Store } from 'express-session'
 import type { PassportStatic } from 'passport'
 type Authenticator = InstanceType<PassportStatic['Passport']>
-import type { Server, Socket } from 'socket.io'
+import type { Server } from 'socket.io'
 import type { ClientToServerEvents, ServerToClientEvents } from '../../shared/events'
 import type { SessionUser } from '../../shared/schemas/session'
-import type { Realtime } from './hub'
+import { sessionRoom, userRoom, type Realtime } from './hub'
 
 interface SocketRequest { user?: SessionUser; sessionID?: string; sessionStore?: Store }
 
@@ -28,17 +28,20 @@ export function attachSockets(
     socket.data.sessionId = req.sessionID
     // Rooms are decided here from the session; clients cannot ask to join any room.
     socket.join(`workshop:${user.workshopId}`)
+    // So a sign-out or a user switched off on any instance reaches this connection (Realtime.endSessions).
+    socket.join(userRoom(user.id))
+    if (req.sessionID) socket.join(sessionRoom(req.sessionID))
     const planner = user.role === 'owner' || user.role === 'manager'
     if (planner) socket.join(`workshop:${user.workshopId}:planners`)
     socket.on('changes:since', (seq, ack) => {
       if (typeof ack !== 'function') return
       const n = Number(seq)
-      ack(Number.isFinite(n) ? o.realtime.since(user.workshopId, n, planner) : [])
+      if (!Number.isFinite(n)) return ack([])
+      o.realtime.since(user.workshopId, n, planner).then(ack, (err) => {
+        console.error('[realtime] catch-up failed:', (err as Error).message)
+        ack([])
+      })
     })
-  })
-  const matching = (pred: (s: Socket) => boolean) => [...io.of('/').sockets.values()].filter(pred)
-  o.realtime.onEndSessions(({ userId, sessionId }) => {
-    for (const s of matching((s) => (userId !== undefined && s.data.userId === userId) || (sessionId !== undefined && s.data.sessionId === sessionId))) s.disconnect(true)
   })
   // Sessions also end without a request here (idle expiry, another process): connections whose session is gone are closed.
   const sweepMs = Number(process.env.SOCKET_SESSION_SWEEP_MS ?? 30_000)

@@ -5,8 +5,8 @@ import type { Role } from '../../shared/domain/roles'
 import { boardQuery, moveInput, planRunInput } from '../../shared/schemas/plan'
 import { id } from '../../shared/schemas/common'
 import { route } from '../lib/route'
-import type { Realtime } from '../realtime/hub'
-import { BoardCache, boardData, weekLoad } from '../services/board'
+import type { Deps } from '../lib/route'
+import { boardData, cachedAnswer, weekLoad } from '../services/board'
 import { moveOperation } from '../services/planning/move'
 import { cancelRun, getRun, startRun } from '../services/planning/runs'
 import * as plans from '../services/plans'
@@ -17,12 +17,9 @@ const PLANNER: Role[] = ['manager']
 const VIEWERS: Role[] = ['owner', 'manager', 'sales']
 const runParam = z.object({ runId: z.string().uuid('must be a run id') })
 
-const caches = new WeakMap<Realtime, BoardCache>()
-const cacheOf = (r: Realtime) => caches.get(r) ?? caches.set(r, new BoardCache(r)).get(r)!
-
 /** Answers from the cache, with an ETag so an unchanged board costs a 304. */
-async function sendCached(req: Request, res: Response, realtime: Realtime, key: string, load: () => Promise<unknown>) {
-  const { json, gzip, etag } = await cacheOf(realtime).get(key, load)
+async function sendCached(req: Request, res: Response, deps: Deps, workshopId: number, key: string, load: () => Promise<unknown>) {
+  const { json, gzip, etag } = await cachedAnswer(deps.cache, workshopId, key, load)
   res.setHeader('ETag', etag)
   res.setHeader('Cache-Control', 'private, no-cache')
   res.setHeader('Vary', 'Accept-Encoding')
@@ -36,20 +33,20 @@ async function sendCached(req: Request, res: Response, realtime: Realtime, key: 
 }
 
 export const planRoutes = [
-  route({ method: 'post', path: '/plans/runs', roles: PLANNER, status: 202, summary: 'Start the planner (worker thread); the result becomes a draft', body: planRunInput, handler: ({ deps, actor, body }) => startRun(deps, actor, body) }),
-  route({ method: 'get', path: '/plans/runs/:runId', roles: PLANNER, summary: 'A planner run: progress, result or error', params: runParam, handler: async ({ actor, params }) => getRun(actor, params.runId) }),
-  route({ method: 'delete', path: '/plans/runs/:runId', roles: PLANNER, summary: 'Stop a planner run (the live plan is untouched)', params: runParam, handler: async ({ actor, params }) => cancelRun(actor, params.runId) }),
+  route({ method: 'post', path: '/plans/runs', roles: PLANNER, status: 202, summary: 'Queue a planner run (any instance takes it; worker thread); the result becomes a draft', body: planRunInput, handler: ({ deps, actor, body }) => startRun(deps, actor, body) }),
+  route({ method: 'get', path: '/plans/runs/:runId', roles: PLANNER, summary: 'A planner run: progress, result or error', params: runParam, handler: ({ deps, actor, params }) => getRun(deps.db, actor, params.runId) }),
+  route({ method: 'delete', path: '/plans/runs/:runId', roles: PLANNER, summary: 'Stop a planner run (the live plan is untouched)', params: runParam, handler: ({ deps, actor, params }) => cancelRun(deps.db, actor, params.runId) }),
   route({ method: 'get', path: '/plans', roles: VIEWERS, summary: 'Plan versions with who and when', handler: ({ deps, actor }) => plans.listPlans(deps.db, actor.workshopId) }),
   route({ method: 'get', path: '/plans/:id/compare', roles: VIEWERS, summary: 'What a plan moves against the live plan (or ?against=id)', params: idParam, query: z.object({ against: id.optional() }), handler: ({ deps, actor, params, query }) => plans.comparePlan(deps.db, actor.workshopId, params.id, query.against) }),
   route({ method: 'post', path: '/plans/:id/publish', roles: PLANNER, summary: 'Publish a draft: it becomes the live plan', params: idParam, handler: ({ deps, actor, params }) => plans.publishPlan(deps, actor, params.id) }),
   route({ method: 'post', path: '/plans/:id/discard', roles: PLANNER, summary: 'Throw a draft away', params: idParam, handler: ({ deps, actor, params }) => plans.discardPlan(deps, actor, params.id) }),
   route({
     method: 'get', path: '/board', roles: VIEWERS, summary: 'Board data for a window (live plan, or ?planId= a draft)', query: boardQuery,
-    handler: ({ req, res, deps, actor, query }) => sendCached(req, res, deps.realtime, `${actor.workshopId}|board|${query.from}|${query.to}|${query.planId ?? ''}`, () => boardData(deps.db, actor.workshopId, query)),
+    handler: ({ req, res, deps, actor, query }) => sendCached(req, res, deps, actor.workshopId, `board|${query.from}|${query.to}|${query.planId ?? ''}`, () => boardData(deps.db, actor.workshopId, query)),
   }),
   route({ method: 'patch', path: '/board/operations/:id', roles: PLANNER, summary: 'Move or pin one bar on the live plan', params: idParam, body: moveInput, handler: ({ deps, actor, params, body }) => moveOperation(deps, actor, params.id, body) }),
   route({
     method: 'get', path: '/load', roles: VIEWERS, summary: 'Planned against available hours per bench and skill, per day and ISO week', query: boardQuery,
-    handler: ({ req, res, deps, actor, query }) => sendCached(req, res, deps.realtime, `${actor.workshopId}|load|${query.from}|${query.to}|${query.planId ?? ''}`, () => weekLoad(deps.db, actor.workshopId, query)),
+    handler: ({ req, res, deps, actor, query }) => sendCached(req, res, deps, actor.workshopId, `load|${query.from}|${query.to}|${query.planId ?? ''}`, () => weekLoad(deps.db, actor.workshopId, query)),
   }),
 ]

@@ -9,7 +9,7 @@ import { intersect, clipToWindows } from '../scheduler/calendar.ts'
 import type { StartReason } from '../scheduler/model.ts'
 import { explainStarts } from '../scheduler/explain.ts'
 import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
-import type { Realtime } from '../realtime/hub'
+import { cachedOr, type Cache } from '../lib/cache'
 import { currentAssignments, type Assignment } from './planning/assignments'
 import { loadPlanningData, type PlanningData } from './planning/problem'
 import { getPlan } from './plans'
@@ -33,35 +33,20 @@ export interface BoardJob {
 
 const AT_RISK_MINUTES = 8 * 60
 
+export interface SerialisedAnswer { json: string; gzip: Buffer; etag: string }
+
 /**
- * Serialised answers kept until the workshop changes: the board is read far more often than the workshop changes.
- * Entries also expire after a minute, because "now" moves and lateness with it.
+ * Serialised answers kept until the workshop changes (on any instance): the board is read far more often than the
+ * workshop changes. Entries also expire after a minute, because "now" moves and lateness with it; and each answer from
+ * the cache is first checked against the workshop's latest change number, so no instance answers with a board older
+ * than a change another instance committed.
  */
-export class BoardCache {
-  private readonly entries = new Map<string, { at: number; json: string; gzip: Buffer; etag: string }>()
-  /** Bumped on every change of a workshop: a load that began before the change must not fill the cache after it. */
-  private readonly generation = new Map<string, number>()
-  constructor(realtime: Realtime) {
-    realtime.onChange((workshopId) => {
-      const w = String(workshopId)
-      this.generation.set(w, (this.generation.get(w) ?? 0) + 1)
-      for (const k of this.entries.keys()) if (k.startsWith(`${workshopId}|`)) this.entries.delete(k)
-    })
-  }
-  async get(key: string, load: () => Promise<unknown>): Promise<{ json: string; gzip: Buffer; etag: string }> {
-    const hit = this.entries.get(key)
-    if (hit && Date.now() - hit.at < 60_000) return hit
-    const w = key.slice(0, key.indexOf('|'))
-    const before = this.generation.get(w) ?? 0
+export function cachedAnswer(cache: Cache | undefined, workshopId: number, key: string, load: () => Promise<unknown>): Promise<SerialisedAnswer> {
+  return cachedOr(cache, workshopId, key, async () => {
     const json = JSON.stringify(await load())
     // Compressed once here rather than on every answer.
-    const entry = { at: Date.now(), json, gzip: gzipSync(json, { level: 6 }), etag: `"${createHash('sha1').update(json).digest('base64url')}"` }
-    if ((this.generation.get(w) ?? 0) === before) {
-      this.entries.set(key, entry)
-      if (this.entries.size > 200) this.entries.delete(this.entries.keys().next().value!)
-    }
-    return entry
-  }
+    return { json, gzip: gzipSync(json, { level: 6 }), etag: `"${createHash('sha1').update(json).digest('base64url')}"` }
+  }, { ttlMs: 60_000, verify: true })
 }
 
 function windowsFor(data: PlanningData, benchId: string | null, personId: string | null): Interval[] | null {

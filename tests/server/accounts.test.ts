@@ -314,7 +314,7 @@ describe('bench station and PINs', () => {
     expect(c2.status, JSON.stringify(c2.body)).toBe(200)
     expect(c2.body.operation).toMatchObject({ claimedBy: hand, claimedByName: 'Tomas Vane' })
     const [a2] = await auditRows(t, 'operation', op2.id)
-    expect(a2.details).toMatchObject({ personId: hand, actingPersonName: 'Tomas Vane', station: 'Setting bench A' })
+    expect(a2!.details).toMatchObject({ personId: hand, actingPersonName: 'Tomas Vane', station: 'Setting bench A' })
   })
 
   it('when the PIN time runs out, then the token is refused', async () => {

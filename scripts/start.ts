@@ -1,4 +1,4 @@
-// `npm start`: private durable PostgreSQL, migrations, demo data once, client build, then the app on 127.0.0.1.
+// `npm start`: private durable PostgreSQL, migrations, demo data once, client build, then the app on 127.0.0.1 (`--lan`: HTTPS on the workshop network).
 import { spawnSync } from 'node:child_process'
 import { join } from 'node:path'
 import { loadConfig } from '../server/config'
@@ -9,8 +9,12 @@ import { publishFirstPlans } from '../server/services/planning/first-plan'
 import { startServer } from '../server/index'
 import { startFakeSmtp } from '../server/mail/fake-smtp'
 import { startPayFake } from '../server/dev/pay-fake'
-import { app, root, sessionSecret } from './env'
+import { lanBanner } from '../server/lib/tls'
+import { app, dataRoot, root, sessionSecret } from './env'
 import { databaseUrl, ensureDatabase, startCluster, stopCluster } from './pg'
+
+// `npm start -- --lan` is LAN=1: HTTPS with the workshop's own certificate, listening on the network (server/config.ts).
+const lan = process.argv.includes('--lan') ? { LAN: '1' } : {}
 
 await startCluster({ dataDir: app.pgDir, port: app.pgPort, durable: true })
 console.log(`[db] PostgreSQL on 127.0.0.1:${app.pgPort} (data in ${app.pgDir})`)
@@ -40,11 +44,16 @@ if (mailbox) console.log(`[mail] local test mailbox on 127.0.0.1:${mailbox.port}
 // Card payments: a real provider account when its keys are set; otherwise the local test provider (no real money).
 const payFake = process.env.STRIPE_SECRET_KEY ? null : await startPayFake({ port: Number(process.env.PAY_FAKE_PORT ?? 12111), anyPortIfTaken: true })
 if (payFake) console.log(`[pay] local test payment provider on ${payFake.url}`)
-const server = await startServer(
-  loadConfig({ ...process.env, DATABASE_URL: url, PORT: String(app.port), SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production', ...(mailbox ? { SMTP_URL: mailbox.url } : {}), ...(payFake ? { PAY_FAKE_URL: payFake.url } : {}) }),
-)
-if (payFake) payFake.webhookUrl = `${server.url}/api/payments/webhook`
-console.log(`\nMillgrain is running at ${server.url}\n`)
+const config = loadConfig({ TLS_DIR: join(dataRoot, 'tls'), ...process.env, ...lan, DATABASE_URL: url, PORT: String(app.port), SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production', ...(mailbox ? { SMTP_URL: mailbox.url } : {}), ...(payFake ? { PAY_FAKE_URL: payFake.url } : {}) })
+const server = await startServer(config)
+// Over HTTPS on every address (LAN), this computer reaches the app on loopback, trusting the workshop's CA.
+const localUrl = server.tls && /^(0\.0\.0\.0|::)$/.test(config.HOST) ? `https://127.0.0.1:${server.port}` : server.url
+if (payFake) {
+  payFake.webhookUrl = `${localUrl}/api/payments/webhook`
+  if (server.tls) payFake.webhookCa = server.tls.ca
+}
+console.log(`\nMillgrain is running at ${localUrl}\n`)
+if (server.tls) console.log(`${await lanBanner({ host: config.HOST, port: server.port })}\n`)
 console.log(`Demo sign-ins (password "${DEMO_PASSWORD}"):`)
 for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(8)} ${u.email.padEnd(26)} ${u.name}`)
 console.log('\nPress Ctrl-C to stop the app and the database.')

@@ -22,6 +22,8 @@ import { createMailer, type Mailer } from './mail/transport'
 import type { SessionUser } from '../shared/schemas/session'
 import { createPayProvider } from './services/pay-provider'
 import { handleWebhook } from './services/payments'
+import { ownAppUrl } from './lib/public-url'
+import { CA_PATH, caCertificateHandler } from './lib/tls'
 
 export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime; mailer?: Mailer }
 
@@ -46,7 +48,8 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
           upgradeInsecureRequests: null,
         },
       },
-      // Served over plain http on loopback by default; HSTS belongs to the TLS proxy in front.
+      // Served over plain http on loopback by default, or with a self-signed certificate on the workshop network (LAN):
+      // HSTS belongs to a TLS proxy with a real certificate in front.
       strictTransportSecurity: false,
     }),
   )
@@ -56,7 +59,7 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   realtime.useDatabase(pool)
   const cache = new Cache(realtime)
   useSessionUserCache(db, cache)
-  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: `http://${config.HOST}:${config.PORT}`, accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS } }
+  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: ownAppUrl(config), accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS } }
 
   const api = express.Router()
   api.use(express.json({ limit: '1mb' }))
@@ -101,6 +104,9 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   })
   api.use((req, _res, next) => next(new AppError({ code: 'not-found', message: `No such API route: ${req.method} ${req.baseUrl}${req.path}` })))
   app.use('/api', api)
+
+  // Over HTTPS with the workshop's own CA, tablets download its certificate here to trust it (see README).
+  if (config.TLS) app.get(CA_PATH, caCertificateHandler(config.TLS_DIR))
 
   const clientDir = config.CLIENT_DIR ? resolve(config.CLIENT_DIR) : null
   if (clientDir && existsSync(join(clientDir, 'index.html'))) {

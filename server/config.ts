@@ -4,7 +4,8 @@ import { z } from 'zod'
 const schema = z.object({
   DATABASE_URL: z.string().url('must be a postgres:// URL'),
   PORT: z.coerce.number().int().min(0).max(65535).default(8080),
-  HOST: z.string().default('127.0.0.1'),
+  /** Listening address: 127.0.0.1 unless LAN (then 0.0.0.0). */
+  HOST: z.string().optional(),
   SESSION_SECRET: z.string().min(16, 'must be at least 16 characters'),
   /** Idle sessions expire after this many minutes. */
   SESSION_IDLE_MINUTES: z.coerce.number().int().min(1).default(12 * 60),
@@ -33,7 +34,13 @@ const schema = z.object({
   STRIPE_WEBHOOK_SECRET: z.string().min(1).optional(),
   /** The local fake provider (server/dev/pay-fake.ts), started by `npm start` and the tests when no account is set. */
   PAY_FAKE_URL: z.string().url('must be an http:// URL').optional(),
-})
+  /** `npm start -- --lan`: HTTPS on the workshop network (HOST defaults to 0.0.0.0, TLS on). */
+  LAN: z.stringbool().default(false),
+  /** Serve HTTPS with the workshop's own certificate, on whatever HOST is (LAN turns it on; tests use it on loopback). */
+  TLS: z.stringbool().optional(),
+  /** The local CA and server certificate (server/lib/tls.ts). */
+  TLS_DIR: z.string().default('.data/tls'),
+}).transform(({ HOST, TLS, ...c }) => ({ ...c, HOST: HOST ?? (c.LAN ? '0.0.0.0' : '127.0.0.1'), TLS: TLS ?? c.LAN }))
 export type Config = z.infer<typeof schema>
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {

@@ -1,5 +1,4 @@
 // The server process: HTTP + Socket.IO on one port, closed cleanly on SIGINT/SIGTERM.
-import { createServer } from 'node:http'
 import { Server } from 'socket.io'
 import { createAdapter } from '@socket.io/postgres-adapter'
 import { createApp } from './app'
@@ -8,14 +7,15 @@ import { createDb } from './db/client'
 import { attachSockets } from './realtime/sockets'
 import { Realtime } from './realtime/hub'
 import { startDigestTimer } from './mail/digest-timer'
+import { createHttpServer } from './lib/tls'
 
 export async function startServer(config: Config) {
   const { db, pool } = createDb(config.DATABASE_URL)
   const realtime = new Realtime()
   const { app, sessionMiddleware, passport, deps } = createApp({ db, pool, config, realtime })
+  const { server: http, scheme, tls } = await createHttpServer(config, app)
   // Tests drive the digest by hand; a timer firing into a test database being dropped would only make noise.
   const digest = config.NODE_ENV === 'test' ? { stop() {} } : startDigestTimer(deps)
-  const http = createServer(app)
   const io = new Server(http, { serveClient: false })
   // Broadcasts and disconnects reach the sockets of every instance over this database (one instance works the same).
   io.adapter(createAdapter(pool, { errorHandler: (err) => console.error('[realtime] adapter:', err.message) }))
@@ -29,7 +29,9 @@ export async function startServer(config: Config) {
   const port = typeof address === 'object' && address ? address.port : config.PORT
   return {
     port,
-    url: `http://${config.HOST}:${port}`,
+    url: `${scheme}://${config.HOST}:${port}`,
+    /** The certificate served over HTTPS (TLS on), else null. */
+    tls,
     db,
     async close() {
       digest.stop()

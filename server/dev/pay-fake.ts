@@ -2,6 +2,7 @@
 // payment page, so `npm start` and the tests take card payments without an account and without card data reaching the app.
 import { createHmac, randomBytes } from 'node:crypto'
 import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http'
+import { request as httpsRequest } from 'node:https'
 import type { AddressInfo } from 'node:net'
 
 export const FAKE_SECRET_KEY = 'sk_test_millgrain_fake'
@@ -26,6 +27,8 @@ export interface PayFake {
   deliveries: Delivery[]
   /** Where webhooks go (the app's /api/payments/webhook); set once the app listens. */
   webhookUrl: string | null
+  /** The CA to trust when the webhook URL is https with the workshop's own certificate (`npm start -- --lan`). */
+  webhookCa?: string
   /** The `Stripe-Signature` header for a payload, made as the provider documents: t=<unix>,v1=HMAC-SHA256(secret, "t.payload"). */
   sign(payload: string, secret?: string, t?: number): string
   /** Sends an event (again) to the webhook URL, signed; returns the app's answer. */
@@ -87,8 +90,9 @@ export async function startPayFake(o: { port?: number; host?: string; webhookUrl
     if (!fake.webhookUrl) return { eventId: event.id, status: 0, body: 'no webhook URL' }
     const payload = JSON.stringify(event, null, 2)
     try {
-      const r = await fetch(fake.webhookUrl, { method: 'POST', headers: { 'content-type': 'application/json', 'stripe-signature': sign(payload, d.secret) }, body: payload })
-      const out = { eventId: event.id, status: r.status, body: await r.text() }
+      const headers = { 'content-type': 'application/json', 'stripe-signature': sign(payload, d.secret) }
+      const r = fake.webhookCa && fake.webhookUrl.startsWith('https:') ? await postTrusting(fake.webhookUrl, fake.webhookCa, headers, payload) : await fetch(fake.webhookUrl, { method: 'POST', headers, body: payload }).then(async (x) => ({ status: x.status, text: await x.text() }))
+      const out = { eventId: event.id, status: r.status, body: r.text }
       deliveries.push(out)
       return out
     } catch (err) {
@@ -218,4 +222,18 @@ export async function startPayFake(o: { port?: number; host?: string; webhookUrl
     close: () => new Promise<void>((r) => { server.closeAllConnections?.(); server.close(() => r()) }),
   }
   return fake
+}
+
+/** POST over https trusting one CA (fetch offers no way to add one without another package). */
+function postTrusting(url: string, ca: string, headers: Record<string, string>, body: string): Promise<{ status: number; text: string }> {
+  return new Promise((resolve, reject) => {
+    const req = httpsRequest(url, { method: 'POST', ca, headers: { ...headers, 'content-length': String(Buffer.byteLength(body)) } }, (res) => {
+      const chunks: Buffer[] = []
+      res.on('data', (c: Buffer) => chunks.push(c))
+      res.on('end', () => resolve({ status: res.statusCode ?? 0, text: Buffer.concat(chunks).toString('utf8') }))
+      res.on('error', reject)
+    })
+    req.on('error', reject)
+    req.end(body)
+  })
 }

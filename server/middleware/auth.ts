@@ -133,7 +133,8 @@ export function createSessionMiddleware(pool: pg.Pool, config: Config): RequestH
     saveUninitialized: false,
     // The cookie is sent again only with a changed session, so with every extension (which changes extendedAt).
     rolling: false,
-    cookie: { httpOnly: true, sameSite: 'lax', secure: false, maxAge: config.SESSION_IDLE_MINUTES * 60_000 },
+    // Secure when the request came over HTTPS (the server's own TLS, or a TLS proxy on loopback); plain http on loopback stays as it was.
+    cookie: { httpOnly: true, sameSite: 'lax', secure: 'auto', maxAge: config.SESSION_IDLE_MINUTES * 60_000 },
   })
   return (req, res, next) => {
     sessions(req, res, (err?: unknown) => {

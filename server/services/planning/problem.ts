@@ -53,16 +53,15 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
   const days = clock.days(HORIZON_DAYS)
   const lastDay = days[days.length - 1]!
 
-  const [closures, benches, caps, downtime, people, skills, leave, kinds] = await Promise.all([
-    db.select().from(s.closures).where(eq(s.closures.workshopId, workshopId)),
-    db.select().from(s.benches).where(and(eq(s.benches.workshopId, workshopId), eq(s.benches.active, true))),
-    db.select({ benchId: s.benchCapabilities.benchId, kindId: s.benchCapabilities.kindId }).from(s.benchCapabilities).innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId)).where(eq(s.benches.workshopId, workshopId)),
-    db.select({ d: s.benchDowntime }).from(s.benchDowntime).innerJoin(s.benches, eq(s.benches.id, s.benchDowntime.benchId)).where(eq(s.benches.workshopId, workshopId)).then((r) => r.map((x) => x.d)),
-    db.select().from(s.people).where(and(eq(s.people.workshopId, workshopId), eq(s.people.active, true))),
-    db.select({ k: s.personSkills }).from(s.personSkills).innerJoin(s.people, eq(s.people.id, s.personSkills.personId)).where(eq(s.people.workshopId, workshopId)).then((r) => r.map((x) => x.k)),
-    db.select({ l: s.leave }).from(s.leave).innerJoin(s.people, eq(s.people.id, s.leave.personId)).where(eq(s.people.workshopId, workshopId)).then((r) => r.map((x) => x.l)),
-    db.select().from(s.operationKinds).where(eq(s.operationKinds.workshopId, workshopId)),
-  ])
+  // One after another: inside a transaction the queries share one connection, which runs them in turn anyway.
+  const closures = await db.select().from(s.closures).where(eq(s.closures.workshopId, workshopId))
+  const benches = await db.select().from(s.benches).where(and(eq(s.benches.workshopId, workshopId), eq(s.benches.active, true)))
+  const caps = await db.select({ benchId: s.benchCapabilities.benchId, kindId: s.benchCapabilities.kindId }).from(s.benchCapabilities).innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId)).where(eq(s.benches.workshopId, workshopId))
+  const downtime = await db.select({ d: s.benchDowntime }).from(s.benchDowntime).innerJoin(s.benches, eq(s.benches.id, s.benchDowntime.benchId)).where(eq(s.benches.workshopId, workshopId)).then((r) => r.map((x) => x.d))
+  const people = await db.select().from(s.people).where(and(eq(s.people.workshopId, workshopId), eq(s.people.active, true)))
+  const skills = await db.select({ k: s.personSkills }).from(s.personSkills).innerJoin(s.people, eq(s.people.id, s.personSkills.personId)).where(eq(s.people.workshopId, workshopId)).then((r) => r.map((x) => x.k))
+  const leave = await db.select({ l: s.leave }).from(s.leave).innerJoin(s.people, eq(s.people.id, s.leave.personId)).where(eq(s.people.workshopId, workshopId)).then((r) => r.map((x) => x.l))
+  const kinds = await db.select().from(s.operationKinds).where(eq(s.operationKinds.workshopId, workshopId))
   const closed = closures.map((c) => dayRange(clock, c.startsOn, c.endsOn))
   const workshopHours = subtract(expandPattern(clock, w.weekPattern, days), closed)
   const nonWorking = subtract([{ start: 0, end: clock.at(lastDay, '23:59') }], workshopHours)

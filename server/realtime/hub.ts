@@ -47,6 +47,7 @@ export class Realtime {
   private readonly listeners: ChangeListener[] = []
   private readonly resetListeners: (() => void)[] = []
   private listenClient: pg.Client | null = null
+  private listenReady = false
   private listenRetry: ReturnType<typeof setTimeout> | null = null
   private closed = false
 
@@ -168,6 +169,7 @@ export class Realtime {
       const retry = () => {
         if (this.closed || this.listenClient !== client) return
         this.listenClient = null
+        this.listenReady = false
         // Notes sent while we were away are lost: every cached entry may be stale.
         for (const fn of this.resetListeners) fn()
         this.listenRetry = setTimeout(() => void connect(attempt + 1), Math.min(5000, 250 * 2 ** Math.min(attempt, 5)))
@@ -189,6 +191,7 @@ export class Realtime {
       try {
         await client.connect()
         await client.query(`listen ${CHANGES_CHANNEL}`)
+        this.listenReady = this.listenClient === client
         // Connected again after a loss: whatever was cached before may have missed a note.
         if (attempt > 0) for (const fn of this.resetListeners) fn()
       } catch (err) {
@@ -205,10 +208,16 @@ export class Realtime {
     await connect(0)
   }
 
+  /** True while the connection listening for other instances' changes is up. */
+  get listening() {
+    return this.listenReady
+  }
+
   /** Waits for queued events, then stops listening. */
   async close() {
     await Promise.race([this.queue, new Promise((r) => setTimeout(r, 3000))])
     this.closed = true
+    this.listenReady = false
     if (this.listenRetry) clearTimeout(this.listenRetry)
     const c = this.listenClient
     this.listenClient = null

@@ -14,10 +14,16 @@ export const useCustomersStore = defineStore('customers', () => {
   const query = reactive<Required<Omit<customersApi.ListParams, 'sort'>> & { sort: string | undefined }>({ q: '', page: 1, pageSize: 20, sort: 'name', order: 'asc' })
   const { loading, error, track } = useLoading()
 
+  /** Asks for the page of the current query; an answer to an older query that arrives late is not shown. */
   async function load() {
-    const page = await track(() => customersApi.listCustomers({ ...query }))
-    items.value = page.items
-    total.value = page.total
+    const params = { ...query }
+    await track(() => customersApi.listCustomers(params), {
+      key: JSON.stringify(params),
+      apply: (page) => {
+        items.value = page.items
+        total.value = page.total
+      },
+    })
   }
   /** Finds customers by name for pickers (does not touch the list). */
   const search = async (q: string) => (await customersApi.listCustomers({ q, pageSize: 20 })).items

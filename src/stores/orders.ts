@@ -19,10 +19,16 @@ export const useOrdersStore = defineStore('orders', () => {
   })
   const { loading, error, track } = useLoading()
 
+  /** Asks for the page of the current query; an answer to an older query that arrives late is not shown. */
   async function load() {
-    const page = await track(() => ordersApi.listOrders({ ...query, status: query.status || undefined }))
-    items.value = page.items
-    total.value = page.total
+    const params = { ...query, status: query.status || undefined }
+    await track(() => ordersApi.listOrders(params), {
+      key: JSON.stringify(params),
+      apply: (page) => {
+        items.value = page.items
+        total.value = page.total
+      },
+    })
   }
   async function create(input: OrderInput) {
     const o = await ordersApi.createOrder(input)

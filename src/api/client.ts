@@ -58,6 +58,11 @@ const unauthenticatedListeners = new Set<() => void>()
 export function setCsrfToken(token: string | null) {
   csrfToken = token
 }
+/** On a bench station: the token of the person whose PIN was entered (memory only), sent with every request. */
+let benchPersonToken: string | null = null
+export function setBenchPersonToken(token: string | null) {
+  benchPersonToken = token
+}
 export function onUnauthenticated(fn: () => void): () => void {
   unauthenticatedListeners.add(fn)
   return () => unauthenticatedListeners.delete(fn)
@@ -82,6 +87,7 @@ async function send(method: Method, path: string, body: unknown, query: Query | 
   const headers: Record<string, string> = { accept: 'application/json' }
   if (body !== undefined) headers['content-type'] = 'application/json'
   if (method !== 'GET') headers['x-csrf-token'] = csrfToken ?? (await refreshCsrfToken())
+  if (benchPersonToken) headers['x-bench-person'] = benchPersonToken
   try {
     return await fetch(url(path, query), { method, headers, credentials: 'same-origin', body: body === undefined ? undefined : JSON.stringify(body), signal })
   } catch (err) {

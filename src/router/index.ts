@@ -11,6 +11,8 @@ const laterOr = (name: string): (() => Promise<RouteComponent>) => (later[`../vi
 
 export const routes: RouteRecordRaw[] = [
   { path: '/payment-done', name: 'payment-done', component: () => import('@/views/PaymentDoneView.vue'), meta: { public: true, title: 'Payment' } },
+  { path: '/welcome/:token', name: 'welcome', component: () => import('@/views/AccountLinkView.vue'), meta: { public: true, title: 'Welcome' } },
+  { path: '/new-password/:token', name: 'new-password', component: () => import('@/views/AccountLinkView.vue'), meta: { public: true, title: 'New password' } },
   { path: '/sign-in', name: 'sign-in', component: () => import('@/views/SignInView.vue'), meta: { guestOnly: true, title: 'Sign in' } },
   {
     path: '/',

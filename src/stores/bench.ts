@@ -23,6 +23,8 @@ export const useBenchStore = defineStore('bench', () => {
   /** Operation ids with a request on its way (buttons show busy). */
   const busy = ref(new Set<number>())
   const bench = computed(() => benches.value.find((b) => b.id === benchId.value) ?? null)
+  /** On a bench station: called after each action, and when the server says the PIN has run out (the next person enters theirs). */
+  const afterAction = ref<(() => void) | null>(null)
 
   async function loadBenches() {
     benches.value = (await listBenches()).filter((b) => b.active)
@@ -61,14 +63,16 @@ export const useBenchStore = defineStore('bench', () => {
       for (let attempt = 0; ; attempt++) {
         try {
           const r = await benchApi.transition(op.id, action, body)
-          await refresh().catch(() => undefined)
+          if (afterAction.value) afterAction.value()
+          else await refresh().catch(() => undefined)
           return r
         } catch (err) {
           if (err instanceof ApiError && err.code === 'network' && attempt < 4) {
             await new Promise((res) => setTimeout(res, 800 * (attempt + 1)))
             continue
           }
-          if (err instanceof ApiError && err.status !== 0) await refresh().catch(() => undefined)
+          if (err instanceof ApiError && err.status === 403 && (err.details as { reason?: string } | undefined)?.reason === 'bench-pin' && afterAction.value) afterAction.value()
+          else if (err instanceof ApiError && err.status !== 0) await refresh().catch(() => undefined)
           throw err
         }
       }
@@ -79,5 +83,5 @@ export const useBenchStore = defineStore('bench', () => {
     }
   }
 
-  return { benchId, benches, bench, next, mine, person, loading, busy, loadBenches, chooseBench, refresh, act }
+  return { benchId, benches, bench, next, mine, person, loading, busy, afterAction, loadBenches, chooseBench, refresh, act }
 })

@@ -2,8 +2,9 @@
 import { defineStore } from 'pinia'
 import { computed, ref } from 'vue'
 import type { Role } from '@shared/domain/roles'
-import type { SessionUser, SignIn } from '@shared/schemas/session'
+import type { SessionInfo, SessionUser, SignIn } from '@shared/schemas/session'
 import * as sessionApi from '@/api/session'
+import * as accountsApi from '@/api/accounts'
 
 export const useSessionStore = defineStore('session', () => {
   /** The signed-in user, or null. */
@@ -54,10 +55,26 @@ export const useSessionStore = defineStore('session', () => {
     }
   }
 
+  /** Takes the session the server handed back (a one-time link used, a station started). */
+  function adopt(info: SessionInfo): SessionUser | null {
+    user.value = info.user
+    loaded.value = true
+    return info.user
+  }
+
+  /** Ends every session of this user, this one too. */
+  async function signOutEverywhere(): Promise<void> {
+    try {
+      await accountsApi.signOutEverywhere()
+    } finally {
+      user.value = null
+    }
+  }
+
   /** Forgets the user without asking the server (the server said 401). */
   function forget() {
     user.value = null
   }
 
-  return { user, role, signedIn, loaded, loading, fetch, ensure, signIn, signOut, forget }
+  return { user, role, signedIn, loaded, loading, fetch, ensure, signIn, signOut, signOutEverywhere, adopt, forget }
 })

@@ -2,11 +2,11 @@
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import QRCode from 'qrcode'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { jobBagLink } from '../../server/services/tickets'
 import { DEMO_PASSWORD, launchChromium, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { qrVideo } from '../setup/qr-video'
 
 let e2e: E2E
 let cameraBrowser: Browser | null = null
@@ -21,31 +21,6 @@ afterAll(async () => {
 })
 
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
-
-/**
- * A Y4M video (YUV4MPEG2, 4:2:0, full-range "C420jpeg") of a white sheet with the QR code centred on it, as a camera
- * would see a printed ticket held in front of it. Y = 0 black / 255 white, U = V = 128 (no colour).
- * Frame layout after the header: "FRAME\n", then the Y plane (W×H bytes), the U and the V planes (W/2×H/2 each).
- */
-function qrVideo(text: string, o: { width: number; height: number; modulePx: number; frames: number }): Buffer {
-  // Same error correction as the printed ticket (server/services/tickets.ts ticketQrPng: level M).
-  const qr = QRCode.create(text, { errorCorrectionLevel: 'M' })
-  const n = qr.modules.size
-  const side = n * o.modulePx
-  const x0 = Math.floor((o.width - side) / 2)
-  const y0 = Math.floor((o.height - side) / 2)
-  const y = Buffer.alloc(o.width * o.height, 255)
-  for (let r = 0; r < n; r++) {
-    for (let c = 0; c < n; c++) {
-      if (!qr.modules.get(r, c)) continue
-      for (let dy = 0; dy < o.modulePx; dy++) y.fill(0, (y0 + r * o.modulePx + dy) * o.width + x0 + c * o.modulePx, (y0 + r * o.modulePx + dy) * o.width + x0 + (c + 1) * o.modulePx)
-    }
-  }
-  const chroma = Buffer.alloc((o.width / 2) * (o.height / 2), 128)
-  const frame = Buffer.concat([Buffer.from('FRAME\n'), y, chroma, chroma])
-  const header = Buffer.from(`YUV4MPEG2 W${o.width} H${o.height} F25:1 Ip A1:1 C420jpeg\n`)
-  return Buffer.concat([header, ...Array.from({ length: o.frames }, () => frame)])
-}
 
 async function benchTablet(browser: Browser): Promise<Page> {
   const context = await browser.newContext({ baseURL: e2e.url, viewport: TABLET, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true, permissions: ['camera'] })

@@ -10,8 +10,8 @@ const METAL_G: Record<string, number> = {
   'pave-pendant': 3.5, 'bezel-ring': 4.5, 'wedding-pair': 9, 'retip-claws': 0.3, 'stud-run': 0.8, 'ring-resize': 0.4,
   'etched-cuff': 28, 'signet-ring': 9, 'halo-ring': 4.2, 'chain-repair': 0.2,
 }
-/** What the caster and the assay office charge per piece (invented demo figures). */
-const OUTSIDE_PER_UNIT: Record<string, number> = { casting: 24, hallmarking: 2.8 }
+/** What the caster and the assay office charge per piece, in pence (invented demo figures: £24.00 and £2.80). */
+const OUTSIDE_PER_UNIT_MINOR: Record<string, number> = { casting: 2400, hallmarking: 280 }
 
 export async function seedCosting(tx: Trx, workshopId: number): Promise<void> {
   let a = 604_12
@@ -20,7 +20,7 @@ export async function seedCosting(tx: Trx, workshopId: number): Promise<void> {
   const templates = await tx.select().from(s.routingTemplates).where(eq(s.routingTemplates.workshopId, workshopId))
   const steps = await tx.select({ st: s.templateSteps, code: s.operationKinds.code }).from(s.templateSteps).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.templateSteps.kindId))
     .where(inArray(s.templateSteps.templateId, [...templates.map((t) => t.id), -1]))
-  const costs = steps.filter((x) => OUTSIDE_PER_UNIT[x.code] !== undefined).map((x) => ({ templateId: x.st.templateId, stepKey: x.st.key, outsideCost: OUTSIDE_PER_UNIT[x.code]! }))
+  const costs = steps.filter((x) => OUTSIDE_PER_UNIT_MINOR[x.code] !== undefined).map((x) => ({ templateId: x.st.templateId, stepKey: x.st.key, outsideCostMinor: OUTSIDE_PER_UNIT_MINOR[x.code]! }))
   if (costs.length) await tx.insert(s.templateStepCosts).values(costs)
   const bags = await tx.select().from(s.jobBags).where(eq(s.jobBags.workshopId, workshopId))
   for (const bag of bags) {
@@ -34,8 +34,8 @@ export async function seedCosting(tx: Trx, workshopId: number): Promise<void> {
     const cost = c.estimate.cost.totalMinor
     if (cost <= 0) continue
     const m = rand() < 0.125 ? 0.08 + rand() * 0.07 : 0.3 + rand() * 0.25
-    // Whole pounds, up to the next 5.
-    const price = Math.ceil(cost / (1 - m) / 500) * 5
-    await tx.update(s.orders).set({ priceQuoted: price }).where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
+    // Whole pounds, up to the next 5 (the demo workshop prices in GBP), in pence.
+    const price = Math.ceil(cost / (1 - m) / 500) * 500
+    await tx.update(s.orders).set({ priceQuotedMinor: price }).where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
   }
 }

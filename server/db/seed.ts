@@ -66,15 +66,15 @@ const BENCHES: { name: string; kind: string; kinds: KindCode[]; notes?: string }
   { name: 'Acid & etch station', kind: 'wet', kinds: ['etching'], notes: 'Fume cupboard, eyewash' },
 ]
 
-const PEOPLE: { user: string; name: string; rate: number; skills: [KindCode, number, number][] ; pattern?: WorkSpan[] }[] = [
-  { user: 'setter@wrenfield.test', name: 'Ines Harrowby', rate: 38, skills: [['setting', 3, 1.15], ['drilling', 2, 1], ['inspection', 3, 1]] },
-  { user: 'trainee@wrenfield.test', name: 'Theo Brae', rate: 18, skills: [['setting', 1, 0.6], ['drilling', 2, 0.8], ['filing', 2, 0.9], ['polishing', 1, 0.8]] },
-  { user: 'priya@wrenfield.test', name: 'Priya Oduya', rate: 32, skills: [['forging', 3, 1.1], ['sawing', 3, 1], ['filing', 3, 1], ['soldering', 3, 1.1], ['drilling', 2, 1], ['etching', 2, 1]] },
-  { user: 'jonah@wrenfield.test', name: 'Jonah Vell', rate: 30, skills: [['forging', 2, 0.9], ['sawing', 3, 1.05], ['filing', 3, 1], ['soldering', 2, 0.95], ['drilling', 3, 1.1], ['polishing', 1, 0.8]] },
-  { user: 'ruth@wrenfield.test', name: 'Ruth Calder', rate: 26, skills: [['polishing', 3, 1.1], ['etching', 2, 1], ['inspection', 2, 1], ['filing', 1, 0.8]],
+const PEOPLE: { user: string; name: string; rateMinor: number; skills: [KindCode, number, number][] ; pattern?: WorkSpan[] }[] = [
+  { user: 'setter@wrenfield.test', name: 'Ines Harrowby', rateMinor: 3800, skills: [['setting', 3, 1.15], ['drilling', 2, 1], ['inspection', 3, 1]] },
+  { user: 'trainee@wrenfield.test', name: 'Theo Brae', rateMinor: 1800, skills: [['setting', 1, 0.6], ['drilling', 2, 0.8], ['filing', 2, 0.9], ['polishing', 1, 0.8]] },
+  { user: 'priya@wrenfield.test', name: 'Priya Oduya', rateMinor: 3200, skills: [['forging', 3, 1.1], ['sawing', 3, 1], ['filing', 3, 1], ['soldering', 3, 1.1], ['drilling', 2, 1], ['etching', 2, 1]] },
+  { user: 'jonah@wrenfield.test', name: 'Jonah Vell', rateMinor: 3000, skills: [['forging', 2, 0.9], ['sawing', 3, 1.05], ['filing', 3, 1], ['soldering', 2, 0.95], ['drilling', 3, 1.1], ['polishing', 1, 0.8]] },
+  { user: 'ruth@wrenfield.test', name: 'Ruth Calder', rateMinor: 2600, skills: [['polishing', 3, 1.1], ['etching', 2, 1], ['inspection', 2, 1], ['filing', 1, 0.8]],
     // Four days a week.
     pattern: WEEK.filter((w) => w.weekday !== 5) },
-  { user: 'manager@wrenfield.test', name: 'Sam Ottery', rate: 35, skills: [['filing', 2, 0.9], ['sawing', 2, 0.9], ['polishing', 2, 0.9], ['inspection', 3, 1], ['soldering', 1, 0.8]],
+  { user: 'manager@wrenfield.test', name: 'Sam Ottery', rateMinor: 3500, skills: [['filing', 2, 0.9], ['sawing', 2, 0.9], ['polishing', 2, 0.9], ['inspection', 3, 1], ['soldering', 1, 0.8]],
     // Mornings at the bench; afternoons planning.
     pattern: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, start: '08:30', end: '12:30' })) },
 ]
@@ -220,7 +220,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     const downStart = addDays(now, 9)
     downStart.setUTCHours(8, 30, 0, 0)
     await tx.insert(s.benchDowntime).values({ benchId: polishing.id, startsAt: downStart.toISOString(), endsAt: new Date(downStart.getTime() + 4 * 3600_000).toISOString(), reason: 'Lathe service and extraction filter change' })
-    const people = await tx.insert(s.people).values(PEOPLE.map((p) => ({ workshopId, name: p.name, userId: users.find((u) => u.email === p.user)!.id, hourlyRate: p.rate, weekPattern: p.pattern ?? null }))).returning()
+    const people = await tx.insert(s.people).values(PEOPLE.map((p) => ({ workshopId, name: p.name, userId: users.find((u) => u.email === p.user)!.id, hourlyRateMinor: p.rateMinor, weekPattern: p.pattern ?? null }))).returning()
     await tx.insert(s.personSkills).values(PEOPLE.flatMap((p, i) => p.skills.map(([k, level, speed]) => ({ personId: people[i]!.id, kindId: kindId(k), level, speed }))))
     const l1 = addDays(now, 12)
     await tx.insert(s.leave).values({ personId: people[2]!.id, startsOn: dayStr(l1), endsOn: dayStr(addDays(l1, 2)), reason: 'Holiday' })
@@ -242,7 +242,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       const choice = choices[Math.floor(rand() * choices.length)]!
       const params = { ...DEFAULT_PARAMS, ...choice.params }
       const number = `MG${String(opts.due.getUTCFullYear()).slice(2)}-${String(orderNo).padStart(4, '0')}`
-      const [order] = await tx.insert(s.orders).values({ workshopId, number, customerId: customers[Math.floor(rand() * customers.length)]!.id, title: choice.piece, dueDate: dayStr(opts.due), priority: 1 + Math.floor(rand() * 5), status: opts.status, priceQuoted: Math.round(150 + rand() * 2400), createdAt: opts.created }).returning()
+      const [order] = await tx.insert(s.orders).values({ workshopId, number, customerId: customers[Math.floor(rand() * customers.length)]!.id, title: choice.piece, dueDate: dayStr(opts.due), priority: 1 + Math.floor(rand() * 5), status: opts.status, priceQuotedMinor: Math.round(150 + rand() * 2400) * 100, createdAt: opts.created }).returning()
       const [bag] = await tx.insert(s.jobBags).values({ workshopId, orderId: order!.id, number: `${number}-1`, piece: choice.piece, templateId: t.row.id, params, status: opts.status === 'collected' ? 'complete' : 'waiting', createdAt: opts.created }).returning()
       const ops = await tx.insert(s.operations).values(t.steps.map((st) => ({
         jobBagId: bag!.id, seq: st.seq, key: st.key, kindId: st.kindId, name: st.name, requiredLevel: st.requiredLevel, waitAfterMinutes: st.waitAfterMinutes, leadDays: st.leadDays, after: st.after,

@@ -44,8 +44,8 @@ export const insightRoutes = [
     },
   }),
   route({ method: 'get', path: '/insights/outside-costs', roles: OWNER, summary: 'Outside-work steps of the routings with their expected cost per unit (owner)', handler: ({ deps, actor }) => insights.listStepCosts(deps.db, actor.workshopId) }),
-  route({ method: 'put', path: '/insights/templates/:id/outside-cost', roles: OWNER, summary: 'Expected outside cost per unit of a template step (owner)', params: idParam, body: stepCostInput, handler: ({ deps, actor, params, body }) => insights.setStepCost(deps, actor, params.id, body.stepKey, body.outsideCost) }),
-  route({ method: 'put', path: '/insights/operations/:id/outside-cost', roles: OWNER, summary: 'Invoiced outside cost of an operation (owner)', params: idParam, body: operationCostInput, handler: ({ deps, actor, params, body }) => insights.setOperationCost(deps, actor, params.id, body.outsideCost) }),
+  route({ method: 'put', path: '/insights/templates/:id/outside-cost', roles: OWNER, summary: 'Expected outside cost per unit of a template step (owner)', params: idParam, body: stepCostInput, handler: ({ deps, actor, params, body }) => insights.setStepCost(deps, actor, params.id, body.stepKey, body.outsideCostMinor) }),
+  route({ method: 'put', path: '/insights/operations/:id/outside-cost', roles: OWNER, summary: 'Invoiced outside cost of an operation (owner)', params: idParam, body: operationCostInput, handler: ({ deps, actor, params, body }) => insights.setOperationCost(deps, actor, params.id, body.outsideCostMinor) }),
 
   route({ method: 'get', path: '/estimates/learned', roles: OWNER, summary: 'Figures learned from actual times: kinds, people, template steps with suggestions (owner)', query: insightFilter, handler: ({ deps, actor, query }) => estimates.learnEstimates(deps.db, actor.workshopId, query) }),
   route({ method: 'post', path: '/estimates/accept', roles: OWNER, summary: 'Accept learned minutes into a template step (owner; bumps the template version)', body: acceptSuggestionInput, handler: ({ deps, actor, body }) => estimates.acceptSuggestion(deps, actor, body) }),

@@ -1,7 +1,7 @@
 // Job bag routes: read (page, list), routing edits, hold/cancel, the printable ticket, and time record corrections.
 import { z } from 'zod'
 import { id } from '../../shared/schemas/common'
-import { jobBagListQuery, jobBagStatusInput, sequenceInput, stepAdd, stepSkip, stepUpdate, ticketQuery } from '../../shared/schemas/job-bag'
+import { jobBagListQuery, jobBagStatusInput, ringSizeChange, sequenceInput, stepAdd, stepSkip, stepUpdate, ticketQuery } from '../../shared/schemas/job-bag'
 import { timeRecordAdd, timeRecordCorrection } from '../../shared/schemas/bench-work'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
@@ -14,6 +14,8 @@ import { idParam } from './params'
 // Bench users read job bags too: scanning a ticket opens the bag's page on the tablet.
 const READERS: Role[] = EVERYONE
 const PRINTERS: Role[] = ['owner', 'manager', 'bench']
+/** The office changes what the customer asked for (a ring size given again): owner, manager, sales. */
+const OFFICE: Role[] = ['owner', 'manager', 'sales']
 const stepParam = z.object({ id, operationId: id })
 
 export const jobBagRoutes = [
@@ -36,6 +38,7 @@ export const jobBagRoutes = [
   route({ method: 'patch', path: '/job-bags/:id/operations/:operationId', roles: STAFF, summary: 'Change a step (estimate with a reason, name, level, what it waits for)', params: stepParam, body: stepUpdate, handler: ({ deps, actor, params, body }) => jobBags.updateStep(deps, actor, params.id, params.operationId, body) }),
   route({ method: 'post', path: '/job-bags/:id/operations/:operationId/skip', roles: STAFF, summary: 'Remove a step that nobody has started (it becomes skipped)', params: stepParam, body: stepSkip, handler: ({ deps, actor, params, body }) => jobBags.skipStep(deps, actor, params.id, params.operationId, body) }),
   route({ method: 'put', path: '/job-bags/:id/sequence', roles: STAFF, summary: 'Reorder the steps', params: idParam, body: sequenceInput, handler: ({ deps, actor, params, body }) => jobBags.setSequence(deps, actor, params.id, body) }),
+  route({ method: 'put', path: '/job-bags/:id/ring-size', roles: OFFICE, summary: 'Change the ring size (or a resize\'s from and to) after ordering', params: idParam, body: ringSizeChange, handler: ({ deps, actor, params, body }) => jobBags.changeRingSize(deps, actor, params.id, body) }),
   route({ method: 'post', path: '/job-bags/:id/status', roles: STAFF, summary: 'Put on hold, cancel, or lift the hold', params: idParam, body: jobBagStatusInput, handler: ({ deps, actor, params, body }) => jobBags.setJobBagStatus(deps, actor, params.id, body) }),
   route({ method: 'post', path: '/operations/:id/time-records', roles: STAFF, status: 201, summary: 'Add a missing time record (kept with who and why)', params: idParam, body: timeRecordAdd, handler: ({ deps, actor, params, body }) => timeRecords.addTimeRecord(deps, actor, params.id, body) }),
   route({ method: 'post', path: '/time-records/:id/corrections', roles: STAFF, status: 201, summary: 'Correct or void a time record (the record itself is kept)', params: idParam, body: timeRecordCorrection, handler: ({ deps, actor, params, body }) => timeRecords.correctTimeRecord(deps, actor, params.id, body) }),

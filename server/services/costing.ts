@@ -2,7 +2,7 @@
 // ledger, stone counts, outside costs and time records — one function per side, all in integer minor units (shared/domain/costing.ts).
 import { and, asc, eq, inArray } from 'drizzle-orm'
 import {
-  WORKSHOP_MARGIN_PCT, addBreakdowns, breakdown, labourMinor, margin, marginCaveat, metalActual, metalMinor, stonesMinor, suggestedPriceMinor, toMinor,
+  WORKSHOP_MARGIN_PCT, addBreakdowns, mulDivRound, breakdown, labourMinor, margin, marginCaveat, metalActual, metalMinor, stonesMinor, suggestedPriceMinor,
   type CostBreakdown, type Missing,
 } from '../../shared/domain/costing'
 import { routingStepMinutes } from '../../shared/domain/estimate'
@@ -87,11 +87,11 @@ function stonesEstimate(params: PieceParams, lines: readonly StoneLine[] | undef
 }
 
 async function averageRateMinor(db: Tx, workshopId: number) {
-  const staff = await db.select({ id: people.id, rate: people.hourlyRate, active: people.active }).from(people).where(eq(people.workshopId, workshopId))
+  const staff = await db.select({ id: people.id, rate: people.hourlyRateMinor, active: people.active }).from(people).where(eq(people.workshopId, workshopId))
   const active = staff.filter((p) => p.active).map((p) => p.rate)
-  // The average of the rates (reals today) converted once to minor units.
-  const average = toMinor(active.length ? active.reduce((s, x) => s + x, 0) / active.length : 0)
-  return { average, rateOf: new Map(staff.map((p) => [p.id, toMinor(p.rate)])) }
+  // The average of the rates (integer minor units), rounded once, half away from zero.
+  const average = active.length ? mulDivRound(active.reduce((s, x) => s + x, 0), 1, active.length) : 0
+  return { average, rateOf: new Map(staff.map((p) => [p.id, p.rate])) }
 }
 
 /** The estimated cost of pieces not yet ordered: routing minutes × the workshop's average rate, the routing's outside costs, metal at today's price. */
@@ -113,9 +113,9 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
     for (const { s, outside: isOutside } of steps.filter((x) => x.s.templateId === t.id)) {
       if (isOutside || s.leadDays > 0) {
         outsideSteps++
-        const perUnit = costs.find((c) => c.stepKey === s.key)?.outsideCost ?? null
+        const perUnit = costs.find((c) => c.stepKey === s.key)?.outsideCostMinor ?? null
         if (perUnit === null) uncosted++
-        else outside += toMinor(perUnit) * p.params.quantity
+        else outside += perUnit * p.params.quantity
         continue
       }
       const m = routingStepMinutes(s, t, p.params)
@@ -132,10 +132,10 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
     }
   })
   const cost = addBreakdowns(pieces.map((p) => p.cost))
-  const priceMinor = toMinor(input.priceQuoted)
+  const priceMinor = input.priceQuotedMinor
   return {
     priceMinor, estimate: side(cost, priceMinor, pieces.flatMap((p) => p.missing)), pieces,
-    marginTargetPct: WORKSHOP_MARGIN_PCT, suggestedPriceMinor: suggestedPriceMinor(cost.totalMinor), currency, pricedOn: day,
+    marginTargetPct: WORKSHOP_MARGIN_PCT, suggestedPriceMinor: suggestedPriceMinor(cost.totalMinor, WORKSHOP_MARGIN_PCT, currency), currency, pricedOn: day,
   }
 }
 
@@ -197,17 +197,17 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
           }
           continue
         }
-        const perUnit = stepCosts.find((c) => c.templateId === bag.templateId && c.stepKey === op.key)?.outsideCost ?? null
-        const expected = perUnit === null ? 0 : toMinor(perUnit) * Math.max(1, params.quantity)
+        const perUnit = stepCosts.find((c) => c.templateId === bag.templateId && c.stepKey === op.key)?.outsideCostMinor ?? null
+        const expected = perUnit === null ? 0 : perUnit * Math.max(1, params.quantity)
         const invoicedRow = opCosts.find((c) => c.operationId === op.id)
-        const invoiced = invoicedRow?.outsideCost ?? null
+        const invoiced = invoicedRow?.outsideCostMinor ?? null
         estOutsideSteps++
         if (perUnit === null) estUncosted++
         outsideEst += expected
         if (op.status === 'done') {
           outsideSteps++
           if (perUnit === null && invoiced === null) outsideUncosted++
-          outsideAct += invoiced !== null ? toMinor(invoiced) : expected
+          outsideAct += invoiced !== null ? invoiced : expected
         }
       }
       // Metal at estimate, on the day the order was taken.
@@ -262,12 +262,11 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
     if (estUncosted) missEst.push(estUncosted === estOutsideSteps ? 'outside-uncosted' : 'some-outside-uncosted')
     if (outsideUncosted) missAct.push(outsideUncosted === outsideSteps ? 'outside-uncosted' : 'some-outside-uncosted')
     const estCost = addBreakdowns(est)
-    // The price quoted is a real column today: converted to minor units once, here.
-    const priceMinor = toMinor(order.priceQuoted)
+    const priceMinor = order.priceQuotedMinor
     out.set(order.id, {
       orderId: order.id, orderNumber: order.number, priceMinor,
       estimate: side(estCost, priceMinor, missEst), actual: side(addBreakdowns(act), priceMinor, missAct), pieces,
-      marginTargetPct: WORKSHOP_MARGIN_PCT, suggestedPriceMinor: suggestedPriceMinor(estCost.totalMinor), currency, pricedOn: orderDay,
+      marginTargetPct: WORKSHOP_MARGIN_PCT, suggestedPriceMinor: suggestedPriceMinor(estCost.totalMinor, WORKSHOP_MARGIN_PCT, currency), currency, pricedOn: orderDay,
       customerMetalLossG: mgToG(customerLossMg), estimateMinutes: estMin, actualMinutes: actMin, outsideSteps, outsideUncosted,
     })
   }

@@ -4,11 +4,12 @@ import type {
   BiasTrend, ComparisonRow, ComparisonTable, CostingRow, CostingTable, DrillDown, Grouping, InsightFilter, ScatterPoint,
 } from '../../shared/schemas/insights'
 import type { Db } from '../db/client'
-import { customers, jobBags, operationCosts, operationKinds, operations, orders, routingTemplates, templateStepCosts, templateSteps } from '../db/schema/index'
+import { customers, jobBags, operationCosts, operationKinds, operations, orders, routingTemplates, templateStepCosts, templateSteps, workshops } from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
-import { COSTING_NOTE, fromMinor, margin, marginCaveat, type Missing } from '../../shared/domain/costing'
+import { COSTING_NOTE, margin, marginCaveat, type Missing } from '../../shared/domain/costing'
+import { minorToDecimal } from '../../shared/domain/currency'
 import { costOrders } from './costing'
 import { audit } from './audit'
 import { finishedOperations, workshopZone, type FinishedOperation } from './estimates'
@@ -97,6 +98,8 @@ export async function drillDown(db: Db, workshopId: number, groupBy: Grouping, k
  */
 export async function costing(db: Db, workshopId: number, filter: InsightFilter): Promise<CostingTable> {
   const tz = await workshopZone(db, workshopId)
+  const [w] = await db.select({ currency: workshops.currency }).from(workshops).where(eq(workshops.id, workshopId))
+  const currency = w?.currency ?? 'GBP'
   const rows = await db
     .select({ op: operations, bag: jobBags, order: orders, customerName: customers.name })
     .from(operations)
@@ -116,24 +119,25 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
     return true
   })
   const costed = await costOrders(db, workshopId, chosen.map((ops) => ops[0]!.order.id))
-  const M = fromMinor
+  // Amounts stay in integer minor units of the workshop's currency.
+  const M = (minor: number) => minor
   const out: CostingRow[] = chosen.map((ops) => {
     const order = ops[0]!.order
     const c = costed.get(order.id)!
     const e = c.estimate, a = c.actual
     return {
-      orderId: order.id, orderNumber: order.number, title: order.title, customerName: ops[0]!.customerName, finishedOn: finishedOn(ops), priceQuoted: M(c.priceMinor),
+      orderId: order.id, orderNumber: order.number, title: order.title, customerName: ops[0]!.customerName, finishedOn: finishedOn(ops), priceQuotedMinor: M(c.priceMinor),
       estimateHours: r2(c.estimateMinutes / 60), actualHours: r2(c.actualMinutes / 60),
-      metalAtEstimate: M(e.cost.metalMinor), metalAtActual: M(a.cost.metalMinor), stonesAtEstimate: M(e.cost.stonesMinor), stonesAtActual: M(a.cost.stonesMinor),
-      labourAtEstimate: M(e.cost.labourMinor), labourAtActual: M(a.cost.labourMinor), outsideAtEstimate: M(e.cost.outsideMinor), outsideAtActual: M(a.cost.outsideMinor),
-      costAtEstimate: M(e.cost.totalMinor), costAtActual: M(a.cost.totalMinor),
-      marginAtEstimate: M(e.marginMinor), marginAtActual: M(a.marginMinor), marginPctAtEstimate: e.marginPct, marginPctAtActual: a.marginPct,
+      metalAtEstimateMinor: M(e.cost.metalMinor), metalAtActualMinor: M(a.cost.metalMinor), stonesAtEstimateMinor: M(e.cost.stonesMinor), stonesAtActualMinor: M(a.cost.stonesMinor),
+      labourAtEstimateMinor: M(e.cost.labourMinor), labourAtActualMinor: M(a.cost.labourMinor), outsideAtEstimateMinor: M(e.cost.outsideMinor), outsideAtActualMinor: M(a.cost.outsideMinor),
+      costAtEstimateMinor: M(e.cost.totalMinor), costAtActualMinor: M(a.cost.totalMinor),
+      marginAtEstimateMinor: M(e.marginMinor), marginAtActualMinor: M(a.marginMinor), marginPctAtEstimate: e.marginPct, marginPctAtActual: a.marginPct,
       customerMetalLossG: c.customerMetalLossG, outsideSteps: c.outsideSteps, outsideUncosted: c.outsideUncosted,
       caveatAtEstimate: e.caveat, caveatAtActual: a.caveat,
     }
   }).sort((a, b) => b.finishedOn.localeCompare(a.finishedOn) || a.orderNumber.localeCompare(b.orderNumber))
 
-  // Totals are summed in minor units and given back in major units once.
+  // Totals are summed in minor units.
   const all = [...costed.values()]
   const sumMinor = (f: (c: (typeof all)[number]) => number) => all.reduce((s, c) => s + f(c), 0)
   const price = sumMinor((c) => c.priceMinor)
@@ -142,14 +146,14 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
   const mEst = margin(price, est), mAct = margin(price, act)
   const missingEst = all.flatMap((c) => c.estimate.missing), missingAct = all.flatMap((c) => c.actual.missing)
   return {
-    filter: cleanFilter(filter), rows: out,
+    filter: cleanFilter(filter), currency, rows: out,
     total: {
-      orders: out.length, priceQuoted: M(price), estimateHours: r2(sumMinor((c) => c.estimateMinutes) / 60), actualHours: r2(sumMinor((c) => c.actualMinutes) / 60),
-      metalAtEstimate: M(sumMinor((c) => c.estimate.cost.metalMinor)), metalAtActual: M(sumMinor((c) => c.actual.cost.metalMinor)),
-      stonesAtEstimate: M(sumMinor((c) => c.estimate.cost.stonesMinor)), stonesAtActual: M(sumMinor((c) => c.actual.cost.stonesMinor)),
-      labourAtEstimate: M(sumMinor((c) => c.estimate.cost.labourMinor)), labourAtActual: M(sumMinor((c) => c.actual.cost.labourMinor)),
-      outsideAtEstimate: M(sumMinor((c) => c.estimate.cost.outsideMinor)), outsideAtActual: M(sumMinor((c) => c.actual.cost.outsideMinor)),
-      costAtEstimate: M(est), costAtActual: M(act), marginAtEstimate: M(mEst.marginMinor), marginAtActual: M(mAct.marginMinor),
+      orders: out.length, priceQuotedMinor: M(price), estimateHours: r2(sumMinor((c) => c.estimateMinutes) / 60), actualHours: r2(sumMinor((c) => c.actualMinutes) / 60),
+      metalAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.metalMinor)), metalAtActualMinor: M(sumMinor((c) => c.actual.cost.metalMinor)),
+      stonesAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.stonesMinor)), stonesAtActualMinor: M(sumMinor((c) => c.actual.cost.stonesMinor)),
+      labourAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.labourMinor)), labourAtActualMinor: M(sumMinor((c) => c.actual.cost.labourMinor)),
+      outsideAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.outsideMinor)), outsideAtActualMinor: M(sumMinor((c) => c.actual.cost.outsideMinor)),
+      costAtEstimateMinor: M(est), costAtActualMinor: M(act), marginAtEstimateMinor: M(mEst.marginMinor), marginAtActualMinor: M(mAct.marginMinor),
       marginPctAtEstimate: mEst.marginPct, marginPctAtActual: mAct.marginPct,
       customerMetalLossG: Math.round(all.reduce((s, c) => s + c.customerMetalLossG * 1000, 0)) / 1000,
       outsideSteps: all.reduce((s, c) => s + c.outsideSteps, 0), outsideUncosted: all.reduce((s, c) => s + c.outsideUncosted, 0),
@@ -168,36 +172,37 @@ function totalCaveat(missing: Missing[], orders: number): string {
 /** Every outside-work step of the workshop's routings with its expected cost per unit (null: not set). */
 export async function listStepCosts(db: Db, workshopId: number) {
   const rows = await db
-    .select({ templateId: routingTemplates.id, templateName: routingTemplates.name, stepKey: templateSteps.key, stepName: templateSteps.name, leadDays: templateSteps.leadDays, outsideCost: templateStepCosts.outsideCost })
+    .select({ templateId: routingTemplates.id, templateName: routingTemplates.name, stepKey: templateSteps.key, stepName: templateSteps.name, leadDays: templateSteps.leadDays, outsideCostMinor: templateStepCosts.outsideCostMinor, currency: workshops.currency })
     .from(templateSteps)
     .innerJoin(routingTemplates, eq(routingTemplates.id, templateSteps.templateId))
+    .innerJoin(workshops, eq(workshops.id, routingTemplates.workshopId))
     .innerJoin(operationKinds, eq(operationKinds.id, templateSteps.kindId))
     .leftJoin(templateStepCosts, and(eq(templateStepCosts.templateId, templateSteps.templateId), eq(templateStepCosts.stepKey, templateSteps.key)))
     .where(and(eq(routingTemplates.workshopId, workshopId), sql`(${templateSteps.leadDays} > 0 or ${operationKinds.outside})`))
     .orderBy(asc(routingTemplates.name), asc(templateSteps.seq))
-  return rows.map((r) => ({ ...r, outsideCost: r.outsideCost ?? null }))
+  return rows.map((r) => ({ ...r, outsideCostMinor: r.outsideCostMinor ?? null }))
 }
 
-/** The owner sets the expected outside cost (per unit) of a template step. */
-export async function setStepCost({ db }: Deps, actor: Actor, templateId: number, stepKey: string, outsideCost: number | null) {
+/** The owner sets the expected outside cost (per unit, integer minor units) of a template step. */
+export async function setStepCost({ db }: Deps, actor: Actor, templateId: number, stepKey: string, outsideCostMinor: number | null) {
   return db.transaction(async (tx) => {
     const [t] = await tx.select({ id: routingTemplates.id }).from(routingTemplates).where(and(eq(routingTemplates.id, templateId), eq(routingTemplates.workshopId, actor.workshopId)))
     if (!t) throw notFound('Routing template')
-    await tx.insert(templateStepCosts).values({ templateId, stepKey, outsideCost }).onConflictDoUpdate({ target: [templateStepCosts.templateId, templateStepCosts.stepKey], set: { outsideCost, updatedAt: new Date() } })
-    await audit(tx, actor, 'set-outside-cost', 'routing-template', templateId, { stepKey, outsideCost })
-    return { templateId, stepKey, outsideCost }
+    await tx.insert(templateStepCosts).values({ templateId, stepKey, outsideCostMinor }).onConflictDoUpdate({ target: [templateStepCosts.templateId, templateStepCosts.stepKey], set: { outsideCostMinor, updatedAt: new Date() } })
+    await audit(tx, actor, 'set-outside-cost', 'routing-template', templateId, { stepKey, outsideCostMinor })
+    return { templateId, stepKey, outsideCostMinor }
   })
 }
 
-/** The owner records what an operation's outside work was invoiced at. */
-export async function setOperationCost({ db }: Deps, actor: Actor, operationId: number, outsideCost: number | null) {
+/** The owner records what an operation's outside work was invoiced at (integer minor units). */
+export async function setOperationCost({ db }: Deps, actor: Actor, operationId: number, outsideCostMinor: number | null) {
   return db.transaction(async (tx) => {
     const [op] = await tx.select({ id: operations.id }).from(operations).innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
       .where(and(eq(operations.id, operationId), eq(jobBags.workshopId, actor.workshopId)))
     if (!op) throw notFound('Operation')
-    await tx.insert(operationCosts).values({ operationId, outsideCost }).onConflictDoUpdate({ target: operationCosts.operationId, set: { outsideCost, updatedAt: new Date() } })
-    await audit(tx, actor, 'set-outside-cost', 'operation', operationId, { outsideCost })
-    return { operationId, outsideCost }
+    await tx.insert(operationCosts).values({ operationId, outsideCostMinor }).onConflictDoUpdate({ target: operationCosts.operationId, set: { outsideCostMinor, updatedAt: new Date() } })
+    await audit(tx, actor, 'set-outside-cost', 'operation', operationId, { outsideCostMinor })
+    return { operationId, outsideCostMinor }
   })
 }
 
@@ -230,16 +235,18 @@ export function comparisonCsv(t: ComparisonTable): string {
 
 /**
  * Job costing as CSV: price, hours, each part of the cost at estimate and at actual, cost, margins, and beside each margin what it
- * could not count; a last line carries the note (blank cells before it keep the column count). Amounts in major units.
+ * could not count; a last line carries the note (blank cells before it keep the column count). Amounts in major units of the table's currency.
  */
 export function costingCsv(t: CostingTable): string {
   const header = ['order', 'title', 'customer', 'finished_on', 'price_quoted', 'estimate_hours', 'actual_hours',
     'metal_at_estimate', 'stones_at_estimate', 'outside_at_estimate', 'labour_at_estimate', 'cost_at_estimate', 'margin_at_estimate', 'margin_pct_at_estimate', 'not_counted_at_estimate',
     'metal_at_actual', 'stones_at_actual', 'outside_at_actual', 'labour_at_actual', 'cost_at_actual', 'margin_at_actual', 'margin_pct_at_actual', 'not_counted_at_actual',
     'customer_metal_lost_g']
-  const line = (r: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'>) => [r.priceQuoted, r.estimateHours, r.actualHours,
-    r.metalAtEstimate, r.stonesAtEstimate, r.outsideAtEstimate, r.labourAtEstimate, r.costAtEstimate, r.marginAtEstimate, r.marginPctAtEstimate, r.caveatAtEstimate,
-    r.metalAtActual, r.stonesAtActual, r.outsideAtActual, r.labourAtActual, r.costAtActual, r.marginAtActual, r.marginPctAtActual, r.caveatAtActual, r.customerMetalLossG]
+  // Major units with the currency's own decimals (ISO 4217), written from the integer minor units digit by digit.
+  const $ = (minor: number) => minorToDecimal(minor, t.currency)
+  const line = (r: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'>) => [$(r.priceQuotedMinor), r.estimateHours, r.actualHours,
+    $(r.metalAtEstimateMinor), $(r.stonesAtEstimateMinor), $(r.outsideAtEstimateMinor), $(r.labourAtEstimateMinor), $(r.costAtEstimateMinor), $(r.marginAtEstimateMinor), r.marginPctAtEstimate, r.caveatAtEstimate,
+    $(r.metalAtActualMinor), $(r.stonesAtActualMinor), $(r.outsideAtActualMinor), $(r.labourAtActualMinor), $(r.costAtActualMinor), $(r.marginAtActualMinor), r.marginPctAtActual, r.caveatAtActual, r.customerMetalLossG]
   const rows: unknown[][] = t.rows.map((r) => [r.orderNumber, r.title, r.customerName, r.finishedOn, ...line(r)])
   rows.push(['Total', `${t.total.orders} orders`, '', '', ...line(t.total)])
   rows.push(['Note', t.note, ...Array<string>(header.length - 2).fill('')])

@@ -1,7 +1,9 @@
 // Job bags through their life: the routing (add, change, skip, reorder steps; estimates with reasons), readiness, status, history.
 import { and, asc, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import { FINISHED_OPERATION, canMoveJobBag, deriveJobBagStatus, type OperationStatus } from '../../shared/domain/status'
-import type { EffectiveTimeRecord, HistoryEntry, JobBagDetail, JobBagOperation, JobBagStatusInput, SequenceInput, StepAdd, StepSkip, StepUpdate } from '../../shared/schemas/job-bag'
+import type { EffectiveTimeRecord, HistoryEntry, JobBagDetail, JobBagOperation, JobBagStatusInput, RingSizeChange, SequenceInput, StepAdd, StepSkip, StepUpdate } from '../../shared/schemas/job-bag'
+import type { PieceParams, RingSizeValue } from '../../shared/schemas/order'
+import { ringSizeToIso, ringSizeWords } from '../../shared/domain/ring-size'
 import type { Db, Tx } from '../db/client'
 import { auditLog, customers, estimateChanges, jobBags, operationKinds, operations, orders, users } from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
@@ -267,4 +269,48 @@ export function setJobBagStatus(deps: Deps, actor: Actor, jobBagId: number, inpu
     await audit(tx, actor, 'status', 'job-bag', jobBagId, { from: bag.status, to, reason: input.reason })
     return []
   })
+}
+
+const RING_FIELDS = ['ringSize', 'resizeFrom', 'resizeTo'] as const
+const RING_NAMES: Record<(typeof RING_FIELDS)[number], string> = { ringSize: 'ring size', resizeFrom: 'resize from', resizeTo: 'resize to' }
+const sameSize = (a: RingSizeValue | null | undefined, b: RingSizeValue | null | undefined) => (a ?? null) === (b ?? null) || (!!a && !!b && a.scale === b.scale && a.value.trim() === b.value.trim())
+
+/**
+ * A ring size changed after the order was taken (the customer came back with another size, or a resize's sizes were
+ * corrected): the bag's own record of the size changes, audited with what it was and why; a resize keeps both its sizes.
+ */
+export async function changeRingSize(deps: Deps, actor: Actor, jobBagId: number, input: RingSizeChange) {
+  const { db, realtime } = deps
+  const out = await db.transaction(async (tx) => {
+    const [owned] = await tx.select({ id: jobBags.id }).from(jobBags).where(and(eq(jobBags.id, jobBagId), eq(jobBags.workshopId, actor.workshopId)))
+    if (!owned) throw notFound('Job bag')
+    const bag = await lockJobBag(tx, jobBagId)
+    if (bag.version !== input.version) throw staleVersion('Job bag')
+    if (bag.status === 'complete' || bag.status === 'cancelled') throw new AppError({ code: 'unprocessable', message: `Job bag ${bag.number} is ${bag.status}; its ring size can no longer change` })
+    const before = bag.params as PieceParams
+    const next: PieceParams = { ...before }
+    const changes: Record<string, { from: RingSizeValue | null; to: RingSizeValue | null }> = {}
+    for (const f of RING_FIELDS) {
+      const v = input[f]
+      if (v === undefined || sameSize(before[f], v)) continue
+      changes[f] = { from: before[f] ?? null, to: v }
+      if (v === null) delete next[f]
+      else next[f] = v
+    }
+    // A resize says both where it starts and where it ends, and they differ.
+    if ((next.resizeFrom && !next.resizeTo) || (!next.resizeFrom && next.resizeTo)) {
+      throw invalid(next.resizeFrom ? 'resizeTo' : 'resizeFrom', 'a resize keeps both the size the ring was and the size it is to be')
+    }
+    if (next.resizeFrom && next.resizeTo && Math.abs(ringSizeToIso(next.resizeFrom)! - ringSizeToIso(next.resizeTo)!) < 0.05) {
+      throw invalid('resizeTo', 'is the same size as the ring is now')
+    }
+    if (!Object.keys(changes).length) throw invalid(Object.keys(input).find((k) => (RING_FIELDS as readonly string[]).includes(k)) ?? 'ringSize', 'is what the job bag already says')
+    const [u] = await tx.update(jobBags).set({ params: next, version: sql`${jobBags.version} + 1` }).where(eq(jobBags.id, jobBagId))
+      .returning({ id: jobBags.id, status: jobBags.status, version: jobBags.version })
+    const words = Object.entries(changes).map(([f, c]) => `${RING_NAMES[f as (typeof RING_FIELDS)[number]]} ${c.from ? ringSizeWords(c.from) : 'none'} → ${c.to ? ringSizeWords(c.to) : 'none'}`)
+    await audit(tx, actor, 'ring-size', 'job-bag', jobBagId, { changes, summary: words.join('; '), reason: input.reason })
+    return u!
+  })
+  realtime.emit(actor.workshopId, 'jobBag:changed', { id: jobBagId, version: out.version, status: out.status })
+  return getJobBag(db, actor.workshopId, jobBagId)
 }

@@ -6,6 +6,7 @@ import * as s from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
+import { minorToMajor } from '../../shared/domain/currency'
 import * as t from '../mail/templates'
 import { OUTBOX_HEADER } from '../mail/transport'
 import { boardData } from './board'
@@ -50,7 +51,7 @@ export async function sendPromiseConfirmation(deps: Pick<Deps, 'db' | 'mailer'>,
   const promised = f.order.promisedDate ?? f.order.dueDate
   return sendRecorded(deps, {
     workshopId, to: f.customerEmail, kind: 'promise-confirmation', orderId, meta: { promisedDate: promised, booked: booking.booked, ...(booking.booked ? { startDate: booking.startDate, endDate: booking.endDate } : {}) },
-    content: t.promiseConfirmation({ workshop: f.workshop, customerName: f.customerName, orderNumber: f.order.number, title: f.order.title, promisedDate: promised, priceQuoted: f.order.priceQuoted, booking }),
+    content: t.promiseConfirmation({ workshop: f.workshop, customerName: f.customerName, orderNumber: f.order.number, title: f.order.title, promisedDate: promised, priceQuoted: minorToMajor(f.order.priceQuotedMinor, f.workshop.currency), booking }),
   })
 }
 

@@ -14,7 +14,7 @@ import {
 } from '../../shared/schemas/metal'
 import type { Db, Tx } from '../db/client'
 import { alloyPrices, alloys, jobBags, lossTolerances, metalMovements, operationKinds, operations, people, refiningLots, users } from '../db/schema/index'
-import { AppError, invalid, notFound } from '../errors/app-error'
+import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { audit } from './audit'
@@ -140,9 +140,10 @@ async function record(deps: Deps, actor: Actor, values: NewMovement, action: str
   const { db, realtime } = deps
   const byClientId = async (tx: Tx) => {
     if (!values.clientId) return null
-    const [prev] = await tx.select().from(metalMovements).where(eq(metalMovements.clientId, values.clientId))
+    // Client ids are unique within a workshop: another workshop's entry with the same id is not this one.
+    const [prev] = await tx.select().from(metalMovements).where(and(eq(metalMovements.workshopId, actor.workshopId), eq(metalMovements.clientId, values.clientId)))
     if (!prev) return null
-    if (prev.workshopId !== actor.workshopId || prev.kind !== values.kind || (values.correctsId ?? null) !== prev.correctsId) {
+    if (prev.kind !== values.kind || (values.correctsId ?? null) !== prev.correctsId) {
       throw new AppError({ code: 'conflict', message: 'clientId: was used for another entry; send a new one', fields: { clientId: 'was used for another entry' } })
     }
     return prev
@@ -322,19 +323,29 @@ export function lossFigures(rows: readonly Pick<Joined, 'm' | 'fineness'>[]): Lo
 
 /** Each kind of work of the workshop with its loss tolerance (its own, else the usual default, else the fallback). */
 export async function listTolerances(db: Tx, workshopId: number): Promise<Tolerance[]> {
-  const rows = await db.select({ k: operationKinds, t: lossTolerances.tolerancePct }).from(operationKinds).leftJoin(lossTolerances, eq(lossTolerances.kindId, operationKinds.id))
+  const rows = await db.select({ k: operationKinds, t: lossTolerances.tolerancePct, v: lossTolerances.version }).from(operationKinds).leftJoin(lossTolerances, eq(lossTolerances.kindId, operationKinds.id))
     .where(eq(operationKinds.workshopId, workshopId)).orderBy(asc(operationKinds.name))
-  return rows.map(({ k, t }) => ({ kindId: k.id, code: k.code, name: k.name, tolerancePct: t ?? DEFAULT_LOSS_TOLERANCE_PCT[k.code] ?? FALLBACK_LOSS_TOLERANCE_PCT, isDefault: t === null }))
+  return rows.map(({ k, t, v }) => ({ kindId: k.id, code: k.code, name: k.name, tolerancePct: t ?? DEFAULT_LOSS_TOLERANCE_PCT[k.code] ?? FALLBACK_LOSS_TOLERANCE_PCT, isDefault: t === null, version: v ?? 0 }))
 }
 
 export async function setTolerance({ db, realtime }: Deps, actor: Actor, kindId: number, input: ToleranceInput): Promise<Tolerance> {
   const t = await db.transaction(async (tx) => {
     const [k] = await tx.select().from(operationKinds).where(and(eq(operationKinds.id, kindId), eq(operationKinds.workshopId, actor.workshopId)))
     if (!k) throw notFound('Kind of work')
-    const [before] = await tx.select().from(lossTolerances).where(eq(lossTolerances.kindId, kindId))
-    await tx.insert(lossTolerances).values({ kindId, tolerancePct: input.tolerancePct }).onConflictDoUpdate({ target: lossTolerances.kindId, set: { tolerancePct: input.tolerancePct } })
-    await audit(tx, actor, 'set-tolerance', 'operation-kind', kindId, { kind: k.code, from: before?.tolerancePct ?? null, to: input.tolerancePct })
-    return { kindId, code: k.code, name: k.name, tolerancePct: input.tolerancePct, isDefault: false }
+    const [before] = await tx.select().from(lossTolerances).where(eq(lossTolerances.kindId, kindId)).for('update')
+    // A kind still on the usual default is at version 0; its first own figure is version 1. Two first edits at once: one inserts, the other finds the row and is stale.
+    let row: { version: number } | undefined
+    if (before) {
+      if (before.version !== input.version) throw staleVersion('Loss tolerance')
+      ;[row] = await tx.update(lossTolerances).set({ tolerancePct: input.tolerancePct, version: sql`${lossTolerances.version} + 1` })
+        .where(and(eq(lossTolerances.kindId, kindId), eq(lossTolerances.version, input.version))).returning({ version: lossTolerances.version })
+    } else {
+      if (input.version !== 0) throw staleVersion('Loss tolerance')
+      ;[row] = await tx.insert(lossTolerances).values({ kindId, tolerancePct: input.tolerancePct, version: 1 }).onConflictDoNothing().returning({ version: lossTolerances.version })
+    }
+    if (!row) throw staleVersion('Loss tolerance')
+    await audit(tx, actor, 'set-tolerance', 'operation-kind', kindId, { kind: k.code, from: before?.tolerancePct ?? null, to: input.tolerancePct, version: row.version })
+    return { kindId, code: k.code, name: k.name, tolerancePct: input.tolerancePct, isDefault: false, version: row.version }
   })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'loss-tolerance', id: kindId })
   return t

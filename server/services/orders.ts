@@ -4,7 +4,7 @@ import type { ListQuery } from '../../shared/schemas/common'
 import type { OrderInput, OrderUpdate } from '../../shared/schemas/order'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { Db, Trx } from '../db/client'
-import { customers, jobBags, operations, orders, templateSteps, routingTemplates } from '../db/schema/index'
+import { customers, jobBags, operations, orders, templateSteps, routingTemplates, workshops } from '../db/schema/index'
 import { invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
@@ -30,8 +30,8 @@ export async function listOrders(db: Db, workshopId: number, q: ListQuery & { st
   const sortCol = q.sort === 'number' ? orders.number : q.sort === 'priority' ? orders.priority : q.sort === 'customer' ? customers.name : orders.dueDate
   const [total] = await db.select({ n: count() }).from(orders).innerJoin(customers, eq(customers.id, orders.customerId)).where(where)
   const items = await db
-    .select({ id: orders.id, number: orders.number, customerId: orders.customerId, customerName: customers.name, title: orders.title, dueDate: orders.dueDate, promisedDate: orders.promisedDate, priority: orders.priority, status: orders.status, priceQuoted: orders.priceQuoted, jobBags: bagCount, version: orders.version })
-    .from(orders).innerJoin(customers, eq(customers.id, orders.customerId)).where(where)
+    .select({ id: orders.id, number: orders.number, customerId: orders.customerId, customerName: customers.name, title: orders.title, dueDate: orders.dueDate, promisedDate: orders.promisedDate, priority: orders.priority, status: orders.status, priceQuotedMinor: orders.priceQuotedMinor, currency: workshops.currency, jobBags: bagCount, version: orders.version })
+    .from(orders).innerJoin(customers, eq(customers.id, orders.customerId)).innerJoin(workshops, eq(workshops.id, orders.workshopId)).where(where)
     .orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(orders.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
   return { items, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
 }
@@ -39,9 +39,10 @@ export async function listOrders(db: Db, workshopId: number, q: ListQuery & { st
 export async function getOrder(db: Db, workshopId: number, id: number) {
   const o = await requireOwned(db, orders, 'Order', id, workshopId)
   const [c] = await db.select({ name: customers.name, reference: customers.reference }).from(customers).where(eq(customers.id, o.customerId))
+  const [w] = await db.select({ currency: workshops.currency }).from(workshops).where(eq(workshops.id, workshopId))
   const bags = await db.select().from(jobBags).where(eq(jobBags.orderId, id)).orderBy(asc(jobBags.number))
   const ops = bags.length ? await db.select().from(operations).where(inArray(operations.jobBagId, bags.map((b) => b.id))).orderBy(asc(operations.seq)) : []
-  return { ...o, customerName: c?.name ?? '', customerReference: c?.reference ?? '', jobBags: bags.map((b) => ({ ...b, operations: ops.filter((op) => op.jobBagId === b.id) })) }
+  return { ...o, currency: w?.currency ?? 'GBP', customerName: c?.name ?? '', customerReference: c?.reference ?? '', jobBags: bags.map((b) => ({ ...b, operations: ops.filter((op) => op.jobBagId === b.id) })) }
 }
 
 /** Adds one job bag with the template's routing as operations (inside the caller's transaction). */

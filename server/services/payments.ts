@@ -30,7 +30,8 @@ export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
   if (!o) throw notFound('Order')
   const w = await workshopOf(db, workshopId)
   const [q] = await db.select().from(s.quotes).where(and(eq(s.quotes.orderId, orderId), inArray(s.quotes.status, ['accepted', 'sent', 'drafted']))).orderBy(sql`${s.quotes.status} = 'accepted' desc`, desc(s.quotes.id)).limit(1)
-  const priceMinor = q ? q.priceMinor : Math.round(o.priceQuoted * 100)
+  // The order's own price is stored in minor units of the workshop's currency already: no conversion.
+  const priceMinor = q ? q.priceMinor : o.priceQuotedMinor
   const depositMinor = q ? q.depositMinor : Math.round((priceMinor * w.depositPct) / 100)
   return { order: o, quote: q ?? null, currency: q?.currency ?? w.currency, priceMinor, depositMinor }
 }

@@ -16,7 +16,7 @@ export async function listPeople(db: Db, workshopId: number): Promise<Person[]> 
   const skills = await db.select().from(personSkills).where(inArray(personSkills.personId, ids))
   const lv = await db.select().from(leave).where(inArray(leave.personId, ids)).orderBy(asc(leave.startsOn))
   return rows.map(({ p, email }) => ({
-    id: p.id, name: p.name, userId: p.userId, userEmail: email ?? null, weekPattern: p.weekPattern ?? null, hourlyRate: p.hourlyRate, active: p.active, version: p.version,
+    id: p.id, name: p.name, userId: p.userId, userEmail: email ?? null, weekPattern: p.weekPattern ?? null, hourlyRateMinor: p.hourlyRateMinor, active: p.active, version: p.version,
     skills: skills.filter((s) => s.personId === p.id).map((s) => ({ kindId: s.kindId, level: s.level, speed: s.speed })),
     leave: lv.filter((l) => l.personId === p.id),
   }))
@@ -46,7 +46,7 @@ const userTaken = (e: unknown) =>
 export async function createPerson({ db, realtime }: Deps, actor: Actor, input: PersonInput) {
   const id = await db.transaction(async (tx) => {
     await checkRefs(tx, actor.workshopId, input)
-    const [p] = await tx.insert(people).values({ workshopId: actor.workshopId, name: input.name, userId: input.userId, weekPattern: input.weekPattern, hourlyRate: input.hourlyRate, active: input.active }).returning()
+    const [p] = await tx.insert(people).values({ workshopId: actor.workshopId, name: input.name, userId: input.userId, weekPattern: input.weekPattern, hourlyRateMinor: input.hourlyRateMinor, active: input.active }).returning()
     if (input.skills.length) await tx.insert(personSkills).values(input.skills.map((s) => ({ personId: p!.id, ...s })))
     await audit(tx, actor, 'create', 'person', p!.id, { name: input.name })
     return p!.id

@@ -285,7 +285,7 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
   }
   const { order, extra: booking } = await takeOrder(deps, actor, {
     customerId: input.customerId, title: input.title, dueDate: input.dueDate ?? input.promisedDate, promisedDate: input.promisedDate,
-    priority: input.priority, priceQuoted: input.priceQuoted, notes: input.notes,
+    priority: input.priority, priceQuotedMinor: input.priceQuotedMinor, notes: input.notes,
     pieces: [{ templateId: input.templateId, piece: input.piece ?? input.title, params: input.params }],
   }, async (tx, orderId): Promise<Booking> => placed ? bookSlot(tx, actor, data, orderId, placed) : { booked: false, reason: notBooked! })
   const firstOp = order.jobBags[0]?.operations[0]

@@ -4,7 +4,7 @@ import { and, asc, eq, inArray, like, sql } from 'drizzle-orm'
 import { FINISHED_OPERATION } from '../../shared/domain/status'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import {
-  canEstimateCarat, caratFromDiameter, caratFromDiameterAndDepth, countsOf, emptyCounts, reconcile, roundCarat, stoneLineWords, stoneListStepMinutes, toHandBack,
+  STONE_ROLE_LABELS, canEstimateCarat, caratFromDiameter, caratFromDiameterAndDepth, countsOf, emptyCounts, reconcile, roundCarat, stoneLineWords, stoneListStepMinutes, toHandBack,
   type Reconciliation, type StoneMovementKind,
 } from '../../shared/domain/stones'
 import type { JobBagStones, StoneCheckBackInput, StoneCorrectionInput, StoneLineInput, StoneLineOut, StoneLineState, StoneLineUpdate, StoneMovementInput } from '../../shared/schemas/stone'
@@ -76,7 +76,7 @@ export async function getStones(db: Tx, workshopId: number, jobBagId: number): P
     const r = reconcile(countsOf(mine.map((x) => x.m)))
     const handBack = l.customerOwned ? Math.max(0, toHandBack(l.count * quantity, r) - r.checkedBack) : 0
     return {
-      id: l.id, jobBagId: l.jobBagId, role: l.role, stone: l.stone, shape: l.shape, sizeMm: l.sizeMm, count: l.count, caratEach: l.caratEach, caratEstimated: l.caratEstimated,
+      id: l.id, jobBagId: l.jobBagId, role: l.role, stone: l.stone, shape: l.shape, sizeMm: l.sizeMm, depthMm: l.depthMm, count: l.count, caratEach: l.caratEach, caratEstimated: l.caratEstimated,
       quality: l.quality, customerOwned: l.customerOwned, customerId: l.customerId, costEachMinor: l.costEachMinor, version: l.version,
       reconciliation: r, state: stateOf(r, settingOpen), handBackOutstanding: handBack,
       movements: mine.map(({ m, personName, by }) => ({
@@ -114,6 +114,12 @@ export async function customerStoneWords(db: Tx, jobBagId: number): Promise<stri
   return lines.map(stoneLineWords)
 }
 
+/** Every line of the stone list for the job ticket, its role first: "Centre: 1 × 6.5 mm round diamond, 3.9 mm deep, 0.98 ct est." */
+export async function stoneListWords(db: Tx, jobBagId: number): Promise<string[]> {
+  const lines = await db.select().from(jobBagStones).where(eq(jobBagStones.jobBagId, jobBagId)).orderBy(asc(jobBagStones.id))
+  return lines.map((l) => `${STONE_ROLE_LABELS[l.role]}: ${stoneLineWords(l)}`)
+}
+
 /**
  * An order may not be marked ready while a customer's own stones are not all counted back from the setter, nor collected
  * before they are handed back; the refusal names what is missing.
@@ -149,7 +155,7 @@ export async function recomputeStoneSteps(tx: Tx, actor: Actor, jobBagId: number
   if (!t) return []
   const steps = (await tx.select().from(templateSteps).where(eq(templateSteps.templateId, t.id))).filter((s) => s.perStoneMinutes > 0 && s.leadDays === 0)
   if (!steps.length) return []
-  const lines = await tx.select({ sizeMm: jobBagStones.sizeMm, count: jobBagStones.count }).from(jobBagStones).where(eq(jobBagStones.jobBagId, jobBagId))
+  const lines = await tx.select({ sizeMm: jobBagStones.sizeMm, count: jobBagStones.count, role: jobBagStones.role }).from(jobBagStones).where(eq(jobBagStones.jobBagId, jobBagId))
   const params = bag.params as PieceParams
   const ops = await tx.select().from(operations).where(and(eq(operations.jobBagId, jobBagId), inArray(operations.key, steps.map((s) => s.key)), inArray(operations.status, ['pending', 'ready', 'claimed'])))
   const changed: Changed['operations'] = []
@@ -177,8 +183,8 @@ async function write<T>(deps: Deps, actor: Actor, fn: (tx: Tx) => Promise<{ jobB
   return getStones(deps.db, actor.workshopId, out.jobBagId)
 }
 
-const lineDetails = (l: Pick<Line, 'role' | 'stone' | 'shape' | 'sizeMm' | 'count' | 'caratEach' | 'caratEstimated' | 'customerOwned' | 'costEachMinor' | 'quality'>) =>
-  ({ role: l.role, stone: l.stone, shape: l.shape, sizeMm: l.sizeMm, count: l.count, caratEach: l.caratEach, caratEstimated: l.caratEstimated, customerOwned: l.customerOwned, costEachMinor: l.costEachMinor, quality: l.quality })
+const lineDetails = (l: Pick<Line, 'role' | 'stone' | 'shape' | 'sizeMm' | 'depthMm' | 'count' | 'caratEach' | 'caratEstimated' | 'customerOwned' | 'costEachMinor' | 'quality'>) =>
+  ({ role: l.role, stone: l.stone, shape: l.shape, sizeMm: l.sizeMm, depthMm: l.depthMm, count: l.count, caratEach: l.caratEach, caratEstimated: l.caratEstimated, customerOwned: l.customerOwned, costEachMinor: l.costEachMinor, quality: l.quality })
 
 function requireOpen(bag: { status: string; number: string }) {
   if (bag.status === 'complete' || bag.status === 'cancelled') throw new AppError({ code: 'unprocessable', message: `Job bag ${bag.number} is ${bag.status}; its stone list can no longer change` })
@@ -191,7 +197,7 @@ export function addLine(deps: Deps, actor: Actor, jobBagId: number, input: Stone
     const [o] = await tx.select({ customerId: orders.customerId }).from(orders).where(eq(orders.id, bag.orderId))
     const ct = caratOf(input.shape, input.stone, input.sizeMm, input.caratEach, input.depthMm)
     const [l] = await tx.insert(jobBagStones).values({
-      jobBagId, role: input.role, stone: input.stone, shape: input.shape, sizeMm: input.sizeMm, count: input.count, ...ct, quality: input.quality,
+      jobBagId, role: input.role, stone: input.stone, shape: input.shape, sizeMm: input.sizeMm, depthMm: input.depthMm, count: input.count, ...ct, quality: input.quality,
       customerOwned: input.customerOwned, customerId: input.customerOwned ? o!.customerId : null, costEachMinor: input.customerOwned ? null : input.costEachMinor,
     }).returning()
     await audit(tx, actor, 'add-stones', 'job-bag', jobBagId, { stoneLineId: l!.id, ...lineDetails(l!) })
@@ -205,10 +211,10 @@ export function updateLine(deps: Deps, actor: Actor, lineId: number, input: Ston
     const { line, bag } = await lockLine(tx, actor.workshopId, lineId)
     requireOpen(bag)
     if (line.version !== input.version) throw staleVersion('Stone line')
-    const next = { ...line, ...Object.fromEntries(Object.entries(input).filter(([k, v]) => v !== undefined && k !== 'version' && k !== 'depthMm')) } as Line
-    const sizeChanged = next.sizeMm !== line.sizeMm || next.shape !== line.shape || next.stone !== line.stone || (input.depthMm ?? null) !== null
+    const next = { ...line, ...Object.fromEntries(Object.entries(input).filter(([k, v]) => v !== undefined && k !== 'version')) } as Line
+    const sizeChanged = next.sizeMm !== line.sizeMm || next.shape !== line.shape || next.stone !== line.stone || next.depthMm !== line.depthMm
     const ct = input.caratEach !== undefined && input.caratEach !== null ? { caratEach: input.caratEach, caratEstimated: false }
-      : input.caratEach === null || (line.caratEstimated && sizeChanged) || (line.caratEach === null && sizeChanged) ? caratOf(next.shape, next.stone, next.sizeMm, null, input.depthMm)
+      : input.caratEach === null || (line.caratEstimated && sizeChanged) || (line.caratEach === null && sizeChanged) ? caratOf(next.shape, next.stone, next.sizeMm, null, next.depthMm)
       : { caratEach: line.caratEach, caratEstimated: line.caratEstimated }
     if (next.customerOwned !== line.customerOwned || next.count < line.count) {
       const [m] = await tx.select({ n: sql<number>`count(*)::int` }).from(stoneMovements).where(eq(stoneMovements.stoneLineId, lineId))
@@ -216,7 +222,7 @@ export function updateLine(deps: Deps, actor: Actor, lineId: number, input: Ston
     }
     const [o] = await tx.select({ customerId: orders.customerId }).from(orders).where(eq(orders.id, bag.orderId))
     const [u] = await tx.update(jobBagStones).set({
-      role: next.role, stone: next.stone, shape: next.shape, sizeMm: next.sizeMm, count: next.count, quality: next.quality, ...ct,
+      role: next.role, stone: next.stone, shape: next.shape, sizeMm: next.sizeMm, depthMm: next.depthMm, count: next.count, quality: next.quality, ...ct,
       customerOwned: next.customerOwned, customerId: next.customerOwned ? o!.customerId : null, costEachMinor: next.customerOwned ? null : next.costEachMinor,
       version: sql`${jobBagStones.version} + 1`,
     }).where(eq(jobBagStones.id, lineId)).returning()

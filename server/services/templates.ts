@@ -16,7 +16,7 @@ export async function listTemplates(db: Db, workshopId: number): Promise<Templat
   const kinds = await db.select({ id: operationKinds.id, outside: operationKinds.outside }).from(operationKinds).where(eq(operationKinds.workshopId, workshopId))
   const outside = new Set(kinds.filter((k) => k.outside).map((k) => k.id))
   return rows.map((t) => {
-    const own = steps.filter((s) => s.templateId === t.id).map((s) => ({ id: s.id, key: s.key, kindId: s.kindId, name: s.name, baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes, perMmMinutes: s.perMmMinutes, sizeBandFactors: s.sizeBandFactors, requiredLevel: s.requiredLevel, waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after }))
+    const own = steps.filter((s) => s.templateId === t.id).map((s) => ({ id: s.id, key: s.key, kindId: s.kindId, name: s.name, baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes, perMmMinutes: s.perMmMinutes, sizeBandFactors: s.sizeBandFactors, roleFactors: s.roleFactors, requiredLevel: s.requiredLevel, waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after }))
     return { id: t.id, code: t.code, name: t.name, description: t.description, learningRate: t.learningRate, version: t.version, steps: own, warnings: templateWarnings(own, (k) => outside.has(k)) }
   })
 }

@@ -8,7 +8,7 @@ import type { Db } from '../db/client'
 import { benches, workshops } from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import { getJobBag } from './job-bags'
-import { customerStoneWords } from './stones'
+import { customerStoneWords, stoneListWords } from './stones'
 import { ringSizeWords, type RingSizeInput } from '../../shared/domain/ring-size'
 
 /** The link a ticket's QR code opens: the job bag's page in the app. */
@@ -86,6 +86,12 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
   doc.font('Helvetica').fontSize(fs(6)).fillColor('#555').text('Scan to open this job bag', w - m - qrSize, m + qrSize - 6, { width: qrSize, align: 'center' })
   doc.y = Math.max(doc.y, m + qrSize + 8)
 
+  // The stone list for the setter: role, count, size, measured depth, carats.
+  const stoneList = await stoneListWords(db, jobBagId)
+  if (stoneList.length) {
+    doc.font('Helvetica').fontSize(fs(7)).fillColor('#000').text(`Stones — ${stoneList.join('; ')}`, m, doc.y, { width: w - 2 * m })
+    doc.moveDown(0.3)
+  }
   // The customer's own stones, to be checked back with them at collection.
   const ownStones = await customerStoneWords(db, jobBagId)
   if (ownStones.length) {

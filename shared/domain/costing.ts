@@ -1,13 +1,10 @@
 // Job costing in integer minor units: metal (net weight in the piece and its loss at the alloy's price on the day it was issued), stones,
 // outside work and labour; each line rounded once (half away from zero); margins; the words beside a margin saying what is missing.
 
-/**
- * A stored amount in major units (a real column: orders.price_quoted, outside costs, hourly rates) to integer minor units, once, at the
- * edge: Math.round(x × 100) — right for two-decimal currencies (GBP, EUR, USD), which are all a workshop sets today.
- */
-export const toMinor = (amount: number): number => Math.round(amount * 100)
-/** Minor units back to a major-unit number for the wire and CSV (exact to two decimals; never summed again). */
-export const fromMinor = (minor: number): number => minor / 100
+import { currencyExponent, minorToMajor } from './currency'
+
+/** Minor units back to a major-unit number for a figure only shown or exported (never summed again), by the currency's decimals. */
+export const fromMinor = (minor: number, currency: string): number => minorToMajor(minor, currency)
 
 /** Rounds half away from zero (2.5 → 3, −2.5 → −3); guards against binary noise such as 0.1 × 3 = 0.30000000000000004. */
 export function roundHalfAway(x: number): number {
@@ -69,11 +66,12 @@ export function margin(priceMinor: number, costMinor: number): { marginMinor: nu
 
 /** The margin a new workshop prices at when nothing else is set: 40 % of the price (common practice, no source). */
 export const WORKSHOP_MARGIN_PCT = 40
-/** The price that leaves the margin on the cost: cost ÷ (1 − margin), up to the next whole major unit. */
-export function suggestedPriceMinor(costMinor: number, marginPct = WORKSHOP_MARGIN_PCT): number {
+/** The price that leaves the margin on the cost: cost ÷ (1 − margin), up to the next whole major unit of the currency. */
+export function suggestedPriceMinor(costMinor: number, marginPct = WORKSHOP_MARGIN_PCT, currency = 'GBP'): number {
   if (costMinor <= 0) return 0
   const exact = Math.ceil((costMinor * 100) / (100 - marginPct))
-  return Math.ceil(exact / 100) * 100
+  const unit = 10 ** currencyExponent(currency)
+  return Math.ceil(exact / unit) * unit
 }
 
 /** What a costing could not count, in the words shown beside the margin. */

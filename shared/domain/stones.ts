@@ -91,21 +91,39 @@ export function differenceWords(r: Pick<Reconciliation, 'difference'> & Partial<
 // ---------------------------------------------------------------------------------------------------------------
 // Setting minutes from the stone list
 
-export interface StoneLineForMinutes { sizeMm: number; count: number }
+/**
+ * How long a stone of each role takes to set against a pavé stone of the same size (the per-stone minutes a step learns from
+ * whole pieces are mostly small pavé and halo stones): a centre stone gets its own seat cut in each claw, squared up and checked
+ * from every side; a side stone is matched to the centre; a halo stone is set in a tight ring round the centre. Common practice,
+ * no source — a step's own role factors (set on the routing step) replace these.
+ */
+export const DEFAULT_ROLE_FACTORS: Readonly<Record<StoneRole, number>> = { centre: 3, side: 1.5, halo: 1.2, pave: 1 }
+
+/** The factor on the per-stone minutes for a stone's role: the step's own, else the usual one above. */
+export function roleFactor(role: StoneRole | undefined, factors: Partial<Record<StoneRole, number>> | undefined = {}): number {
+  if (!role) return 1
+  const f = factors?.[role]
+  return f !== undefined && Number.isFinite(f) && f > 0 ? f : DEFAULT_ROLE_FACTORS[role]
+}
+
+export interface StoneLineForMinutes { sizeMm: number; count: number; role?: StoneRole }
+export type RoleFactors = Partial<Record<StoneRole, number>>
 
 /**
  * Bench minutes of a step for a piece with a stone list: per piece base + Σ lines (per-stone minutes × count × the band factor
- * of the line's size) + per-mm × size; then × quantity (or Wright's total for a run, as in routingStepMinutes), rounded to 0.1.
+ * of the line's size × the factor of its role) + per-mm × size; then × quantity (or Wright's total for a run, as in
+ * routingStepMinutes), rounded to 0.1.
  */
-export function stoneListStepMinutes(step: RoutingStepModel, routing: RoutingModel, params: Pick<PieceParams, 'sizeMm' | 'quantity'>, lines: readonly StoneLineForMinutes[]): number {
-  const stones = lines.reduce((s, l) => s + step.perStoneMinutes * l.count * sizeBandFactor(l.sizeMm, step.sizeBandFactors), 0)
+export function stoneListStepMinutes(step: RoutingStepModel & { roleFactors?: RoleFactors }, routing: RoutingModel, params: Pick<PieceParams, 'sizeMm' | 'quantity'>, lines: readonly StoneLineForMinutes[]): number {
+  const stones = lines.reduce((s, l) => s + step.perStoneMinutes * l.count * sizeBandFactor(l.sizeMm, step.sizeBandFactors) * roleFactor(l.role, step.roleFactors), 0)
   const unit = step.baseMinutes + stones + (step.perMmMinutes ?? 0) * params.sizeMm
   const all = routing.learningRate !== null && params.quantity > 1 ? wrightTotal(unit, params.quantity, routing.learningRate) : unit * params.quantity
   return Math.round(all * 10) / 10
 }
 
-/** "1 × 6.5 mm round diamond, 1.00 ct est." */
-export function stoneLineWords(l: { count: number; sizeMm: number; shape: string; stone: string; caratEach: number | null; caratEstimated: boolean }): string {
+/** "1 × 6.5 mm round diamond, 1.00 ct est."; with a measured depth "1 × 6.5 mm round diamond, 3.9 mm deep, 0.98 ct est." */
+export function stoneLineWords(l: { count: number; sizeMm: number; shape: string; stone: string; caratEach: number | null; caratEstimated: boolean; depthMm?: number | null }): string {
+  const depth = l.depthMm ? `, ${l.depthMm} mm deep` : ''
   const ct = l.caratEach !== null ? `, ${l.caratEach.toFixed(l.caratEach < 0.1 ? 3 : 2)} ct${l.caratEstimated ? ' est.' : ''}` : ''
-  return `${l.count} × ${l.sizeMm} mm ${l.shape} ${l.stone}${ct}`
+  return `${l.count} × ${l.sizeMm} mm ${l.shape} ${l.stone}${depth}${ct}`
 }

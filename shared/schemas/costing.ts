@@ -1,7 +1,7 @@
 // Job costing: the estimate request for pieces not yet ordered, and the answer shared by the order dialog, an order's costing and the owner's table.
 import { z } from 'zod'
 import type { CostBreakdown, Missing } from '../domain/costing'
-import { pieceInput } from './order'
+import { minorAmount, pieceInput } from './order'
 
 export const estimateStoneLine = z.object({
   count: z.number({ error: 'must be a number of stones' }).int('must be whole stones').min(1, 'must be at least 1').max(2000, 'must be at most 2000'),
@@ -11,8 +11,8 @@ export const estimateStoneLine = z.object({
 export const estimatePiece = pieceInput.extend({ stones: z.array(estimateStoneLine).max(50, 'has too many lines').optional() })
 export const costingEstimateInput = z.object({
   pieces: z.array(estimatePiece).min(1, 'needs at least one piece').max(50, 'has too many pieces'),
-  /** The price being quoted (major units), to show the margin it leaves. */
-  priceQuoted: z.number({ error: 'must be an amount' }).min(0, 'must not be negative').max(10_000_000, 'is too large').default(0),
+  /** The price being quoted (integer minor units of the workshop's currency), to show the margin it leaves. */
+  priceQuotedMinor: minorAmount.default(0),
 })
 export type CostingEstimateInput = z.infer<typeof costingEstimateInput>
 

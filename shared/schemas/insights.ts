@@ -49,9 +49,10 @@ export const acceptSuggestionInput = z.object({
 })
 export type AcceptSuggestionInput = z.infer<typeof acceptSuggestionInput>
 
-const money = z.number({ error: 'must be an amount' }).min(0, 'must not be negative').max(10_000_000, 'is too large').nullable()
-export const stepCostInput = z.object({ stepKey: z.string({ error: 'is required' }).trim().min(1, 'is required').max(40), outsideCost: money })
-export const operationCostInput = z.object({ outsideCost: money })
+/** Outside-work cost in integer minor units of the workshop's currency; null = not known. */
+const money = z.number({ error: 'must be an amount in minor units' }).int('must be whole minor units').min(0, 'must not be negative').max(10_000_000_000, 'is too large').nullable()
+export const stepCostInput = z.object({ stepKey: z.string({ error: 'is required' }).trim().min(1, 'is required').max(40), outsideCostMinor: money })
+export const operationCostInput = z.object({ outsideCostMinor: money })
 
 // ---------------------------------------------------------------------------------------------------------------
 // Answers
@@ -100,28 +101,28 @@ export interface DrillOperation {
 }
 export interface DrillDown { groupBy: Grouping; key: string; label: string; operations: DrillOperation[] }
 
-/** One complete order costed: amounts in major units of the workshop's currency (each worked out in minor units and converted once). */
+/** One complete order costed: amounts (`…Minor`) in integer minor units of the table's currency. */
 export interface CostingRow {
   orderId: number
   orderNumber: string
   title: string
   customerName: string
   finishedOn: string
-  priceQuoted: number
+  priceQuotedMinor: number
   estimateHours: number
   actualHours: number
-  metalAtEstimate: number
-  metalAtActual: number
-  stonesAtEstimate: number
-  stonesAtActual: number
-  labourAtEstimate: number
-  labourAtActual: number
-  outsideAtEstimate: number
-  outsideAtActual: number
-  costAtEstimate: number
-  costAtActual: number
-  marginAtEstimate: number
-  marginAtActual: number
+  metalAtEstimateMinor: number
+  metalAtActualMinor: number
+  stonesAtEstimateMinor: number
+  stonesAtActualMinor: number
+  labourAtEstimateMinor: number
+  labourAtActualMinor: number
+  outsideAtEstimateMinor: number
+  outsideAtActualMinor: number
+  costAtEstimateMinor: number
+  costAtActualMinor: number
+  marginAtEstimateMinor: number
+  marginAtActualMinor: number
   marginPctAtEstimate: number | null
   marginPctAtActual: number | null
   /** Grams of the customer's own metal lost in the work: no cost to the workshop, shown all the same. */
@@ -135,6 +136,8 @@ export interface CostingRow {
 }
 export interface CostingTable {
   filter: InsightFilter
+  /** The workshop's currency (ISO 4217) the figures are in. */
+  currency: string
   rows: CostingRow[]
   total: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'> & { orders: number }
   /** How every figure is reached, as one paragraph. */

@@ -1,6 +1,7 @@
 // Job bags: one piece of an order with its routing (operations), planned vs actual minutes, history and status.
 import { z } from 'zod'
 import { id, name, version } from './common'
+import { ringSizeInput } from './order'
 import type { BenchOperation } from './bench-work'
 
 const reason = z.string({ error: 'is required' }).trim().min(3, 'say why (at least 3 characters)').max(500, 'must be at most 500 characters')
@@ -41,6 +42,18 @@ export const jobBagStatusInput = z.object({
   reason,
   version,
 })
+/**
+ * A ring size changed after ordering: the ring's size, or a resize's from and to; a field left out stays, null clears it.
+ * A resize keeps both sizes (the one it was and the one it is to be).
+ */
+export const ringSizeChange = z.object({
+  ringSize: ringSizeInput.nullable().optional(),
+  resizeFrom: ringSizeInput.nullable().optional(),
+  resizeTo: ringSizeInput.nullable().optional(),
+  reason: z.string().trim().max(500, 'must be at most 500 characters').default(''),
+  version,
+}).refine((c) => c.ringSize !== undefined || c.resizeFrom !== undefined || c.resizeTo !== undefined, { message: 'give the ring size, or the resize from and to', path: ['ringSize'] })
+export type RingSizeChange = z.infer<typeof ringSizeChange>
 export const ticketQuery = z.object({ size: z.enum(['A5', 'A6']).optional().default('A6') })
 export const jobBagListQuery = z.object({ orderId: id.optional(), status: z.string().max(40).optional(), q: z.string().max(120).optional() })
 

@@ -81,7 +81,11 @@ export const lossQuery = z.object({
 }).refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
 export type LossQuery = z.infer<typeof lossQuery>
 
-export const toleranceInput = z.object({ tolerancePct: z.number({ error: 'must be a percentage' }).min(0, 'must not be negative').max(50, 'must be at most 50 %') }).strict()
+/** The tolerance and the version it was read at (0 while the kind still has the usual default). */
+export const toleranceInput = z.object({
+  tolerancePct: z.number({ error: 'must be a percentage' }).min(0, 'must not be negative').max(50, 'must be at most 50 %'),
+  version: z.number({ error: 'is required (the version you edited)' }).int('must be a whole number').nonnegative('must not be negative'),
+}).strict()
 export type ToleranceInput = z.infer<typeof toleranceInput>
 
 export const refiningLotInput = z.object({
@@ -154,7 +158,7 @@ export interface StockRow {
   balanceMg: number; balanceG: number; fineMg: number; fineG: number
   pricePerGramMinor: number | null; priceOn: string | null; valueMinor: number | null
 }
-export interface Tolerance { kindId: number; code: string; name: string; tolerancePct: number; isDefault: boolean }
+export interface Tolerance { kindId: number; code: string; name: string; tolerancePct: number; isDefault: boolean; version: number }
 export interface RefiningLot {
   id: number; number: string; status: 'open' | 'sent' | 'settled'; refiner: string; sentAt: string | null; settledAt: string | null
   creditedFineMg: number | null; creditedMinor: number | null; notes: string; version: number; createdAt: string

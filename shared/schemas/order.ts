@@ -18,6 +18,8 @@ export const ringSizeInput = z.object({
   value: z.string().trim().min(1, 'is required').max(12),
 }).refine((r) => ringSizeToIso(r) !== null, { message: 'is not a size in that scale (ISO 36–80 mm, US 0–16, UK A–Z½)', path: ['value'] })
 export type RingSizeValue = z.infer<typeof ringSizeInput>
+/** An amount in integer minor units of the workshop's currency (pence, cents, yen, fils). */
+export const minorAmount = z.number({ error: 'must be an amount in minor units' }).int('must be whole minor units').min(0, 'must not be negative').max(10_000_000_000, 'is too large')
 export const pieceParams = z.object({
   metal: z.enum(METALS, { error: 'must be one of the listed metals' }).default('silver-925'),
   stoneCount: z.number().int().min(0, 'must not be negative').max(2000, 'must be at most 2000').default(0),
@@ -43,7 +45,8 @@ export const orderInput = z.object({
   promisedDate: isoDate.nullable().default(null),
   /** 1 = when there is time … 5 = urgent; the planner weighs lateness by it. */
   priority: z.number({ error: 'must be 1 to 5' }).int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').default(3),
-  priceQuoted: z.number().min(0, 'must not be negative').max(10_000_000).default(0),
+  /** The price quoted, in integer minor units of the workshop's currency. */
+  priceQuotedMinor: minorAmount.default(0),
   notes,
   pieces: z.array(pieceInput).max(50, 'has too many pieces').default([]),
 })
@@ -53,7 +56,7 @@ export const orderUpdate = z.object({
   promisedDate: isoDate.nullable().optional(),
   priority: z.number().int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').optional(),
   status: z.enum(ORDER_STATUSES).optional(),
-  priceQuoted: z.number().min(0).max(10_000_000).optional(),
+  priceQuotedMinor: minorAmount.optional(),
   notes: z.string().max(2000).optional(),
   version,
 })
@@ -62,5 +65,5 @@ export type OrderInput = z.infer<typeof orderInput>
 export type OrderUpdate = z.infer<typeof orderUpdate>
 export interface OrderSummary {
   id: number; number: string; customerId: number; customerName: string; title: string; dueDate: string; promisedDate: string | null
-  priority: number; status: string; priceQuoted: number; jobBags: number; version: number
+  priority: number; status: string; priceQuotedMinor: number; currency: string; jobBags: number; version: number
 }

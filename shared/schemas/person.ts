@@ -13,7 +13,8 @@ export const personInput = z.object({
   userId: id.nullable().default(null),
   /** null: follows the workshop's hours. */
   weekPattern: weekPattern.nullable().default(null),
-  hourlyRate: z.number().min(0, 'must not be negative').max(10000).default(0),
+  /** What an hour of this person costs, in integer minor units of the workshop's currency. */
+  hourlyRateMinor: z.number({ error: 'must be an amount in minor units' }).int('must be whole minor units').min(0, 'must not be negative').max(100_000_000, 'is too large').default(0),
   active: z.boolean().default(true),
   skills: z
     .array(skillInput)

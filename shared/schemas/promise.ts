@@ -1,7 +1,7 @@
 // Promise dates for sales: the check for a prospective piece, turning it into an order, and an order's forecast.
 import { z } from 'zod'
 import { id, isoDate, name, notes } from './common'
-import { pieceParams } from './order'
+import { minorAmount, pieceParams } from './order'
 
 const priority = z.number({ error: 'must be 1 to 5' }).int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').default(3)
 
@@ -28,7 +28,8 @@ export const promiseAcceptInput = z.object({
   promisedDate: isoDate,
   dueDate: isoDate.optional(),
   priority,
-  priceQuoted: z.number({ error: 'must be a number' }).min(0, 'must not be negative').max(10_000_000).default(0),
+  /** The price quoted, in integer minor units of the workshop's currency. */
+  priceQuotedMinor: minorAmount.default(0),
   notes,
 })
 export type PromiseAcceptInput = z.infer<typeof promiseAcceptInput>

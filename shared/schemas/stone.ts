@@ -8,22 +8,33 @@ const reason = z.string({ error: 'is required (say why)' }).trim().min(3, 'say w
 /** Client-generated id: a replay of the same request gets the first answer back. */
 export const clientId = z.string().trim().min(8, 'must be at least 8 characters').max(64, 'must be at most 64 characters').regex(/^[A-Za-z0-9_-]+$/, 'use letters, digits, - and _')
 
-export const stoneLineInput = z.object({
+const lineFields = {
   role: z.enum(STONE_ROLES, { error: 'must be centre, side, halo or pave' }),
-  stone: text(40).min(1, 'is required').default('diamond'),
-  shape: text(30).min(1, 'is required').default('round'),
+  stone: text(40).min(1, 'is required'),
+  shape: text(30).min(1, 'is required'),
   sizeMm: z.number({ error: 'must be a number of mm' }).positive('must be more than 0 mm').max(30, 'must be at most 30 mm'),
   count: z.number({ error: 'must be a whole number' }).int('must be a whole number').min(1, 'must be at least 1').max(2000, 'must be at most 2000'),
   /** Carats of one stone; left empty for a round stone, it is estimated from its size (and depth when given). */
-  caratEach: z.number({ error: 'must be a number' }).positive('must be more than 0').max(100, 'must be at most 100 ct').nullable().default(null),
-  /** Measured depth of a round brilliant (mm), for a closer estimate. */
-  depthMm: z.number({ error: 'must be a number of mm' }).positive('must be more than 0 mm').max(30, 'must be at most 30 mm').nullable().default(null),
-  quality: text(200).default(''),
-  customerOwned: z.boolean({ error: 'must be true or false' }).default(false),
+  caratEach: z.number({ error: 'must be a number' }).positive('must be more than 0').max(100, 'must be at most 100 ct').nullable(),
+  /** Measured total depth of one stone (mm): kept on the line and shown on the ticket; for a round brilliant it also gives a closer carat estimate. */
+  depthMm: z.number({ error: 'must be a number of mm' }).positive('must be more than 0 mm').max(30, 'must be at most 30 mm').nullable(),
+  quality: text(200),
+  customerOwned: z.boolean({ error: 'must be true or false' }),
   /** Minor units (pence, cents) per stone; null when not known or the customer's own. */
-  costEachMinor: z.number({ error: 'must be a whole number of minor units' }).int('must be a whole number of minor units').min(0, 'must not be negative').max(100_000_000).nullable().default(null),
+  costEachMinor: z.number({ error: 'must be a whole number of minor units' }).int('must be a whole number of minor units').min(0, 'must not be negative').max(100_000_000).nullable(),
+}
+export const stoneLineInput = z.object({
+  ...lineFields,
+  stone: lineFields.stone.default('diamond'),
+  shape: lineFields.shape.default('round'),
+  caratEach: lineFields.caratEach.default(null),
+  depthMm: lineFields.depthMm.default(null),
+  quality: lineFields.quality.default(''),
+  customerOwned: lineFields.customerOwned.default(false),
+  costEachMinor: lineFields.costEachMinor.default(null),
 })
-export const stoneLineUpdate = stoneLineInput.partial().extend({ version })
+/** A change names only what changes (no defaults: a field left out keeps its value). */
+export const stoneLineUpdate = z.object(lineFields).partial().extend({ version })
 export const stoneLineRemoveQuery = z.object({ version: z.coerce.number({ error: 'is required (the version you edited)' }).int().nonnegative() })
 
 /** Stones counted in one go (e.g. 17 set and 1 back): each entry one kind. */
@@ -62,7 +73,7 @@ export interface StoneMovementOut {
 /** with-setter: stones out while setting is under way; mismatch: the counts do not add up and nobody is setting. */
 export type StoneLineState = 'none-issued' | 'with-setter' | 'balanced' | 'mismatch'
 export interface StoneLineOut {
-  id: number; jobBagId: number; role: StoneRole; stone: string; shape: string; sizeMm: number; count: number
+  id: number; jobBagId: number; role: StoneRole; stone: string; shape: string; sizeMm: number; depthMm: number | null; count: number
   caratEach: number | null; caratEstimated: boolean; quality: string; customerOwned: boolean; customerId: number | null; costEachMinor: number | null
   version: number; reconciliation: Reconciliation; state: StoneLineState
   /** The customer's own stones still to hand back at collection (count less broken and lost, less those checked back). */

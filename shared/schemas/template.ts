@@ -16,6 +16,8 @@ export const stepInput = z.object({
   perMmMinutes: z.number({ error: 'must be a number' }).min(0, 'must not be negative').max(60, 'must be at most 60').default(0),
   /** Factor on the per-stone minutes by the stones' size band; a band left out counts 1. */
   sizeBandFactors: z.strictObject({ melee: bandFactor.optional(), small: bandFactor.optional(), large: bandFactor.optional() }, { error: 'only melee, small and large have factors' }).default({}),
+  /** Factor on the per-stone minutes by a stone's role on the piece's stone list; a role left out takes the usual factor (DEFAULT_ROLE_FACTORS). */
+  roleFactors: z.strictObject({ centre: bandFactor.optional(), side: bandFactor.optional(), halo: bandFactor.optional(), pave: bandFactor.optional() }, { error: 'only centre, side, halo and pave have factors' }).default({}),
   requiredLevel: z.number().int().min(1, 'must be 1, 2 or 3').max(3, 'must be 1, 2 or 3').default(1),
   waitAfterMinutes: z.number().int().min(0, 'must not be negative').max(10080, 'must be at most a week').default(0),
   /** Outside work (casting, hallmarking): working days away, no bench. */

@@ -27,6 +27,7 @@ export const comparisonCsvUrl = (groupBy: Grouping, f: InsightFilter) => csvUrl(
 export const costingCsvUrl = (f: InsightFilter) => csvUrl('/insights/costing', q(f))
 export const drillCsvUrl = (groupBy: Grouping, key: string, f: InsightFilter) => csvUrl('/insights/records', { groupBy, key, ...q(f) })
 
-export interface StepCost { templateId: number; templateName: string; stepKey: string; stepName: string; leadDays: number; outsideCost: number | null }
+/** An outside step's expected cost per unit in integer minor units of `currency` (null: not set). */
+export interface StepCost { templateId: number; templateName: string; stepKey: string; stepName: string; leadDays: number; outsideCostMinor: number | null; currency: string }
 export const getStepCosts = () => api.get<StepCost[]>('/insights/outside-costs')
-export const setStepCost = (templateId: number, stepKey: string, outsideCost: number | null) => api.put<{ templateId: number; stepKey: string; outsideCost: number | null }>(`/insights/templates/${templateId}/outside-cost`, { stepKey, outsideCost })
+export const setStepCost = (templateId: number, stepKey: string, outsideCostMinor: number | null) => api.put<{ templateId: number; stepKey: string; outsideCostMinor: number | null }>(`/insights/templates/${templateId}/outside-cost`, { stepKey, outsideCostMinor })

@@ -1,5 +1,5 @@
 // Job bags API: the bag's page data, routing edits, hold / cancel, ticket link, time record corrections.
-import type { JobBagDetail, JobBagStatusInput, SequenceInput, StepAdd, StepSkip, StepUpdate, EffectiveTimeRecord } from '@shared/schemas/job-bag'
+import type { JobBagDetail, JobBagStatusInput, RingSizeChange, SequenceInput, StepAdd, StepSkip, StepUpdate, EffectiveTimeRecord } from '@shared/schemas/job-bag'
 import type { TimeRecordAdd, TimeRecordCorrection } from '@shared/schemas/bench-work'
 import { api } from './client'
 
@@ -12,6 +12,7 @@ export const updateStep = (id: number, operationId: number, body: StepUpdate) =>
 export const skipStep = (id: number, operationId: number, body: StepSkip) => api.post<JobBagDetail>(`/job-bags/${id}/operations/${operationId}/skip`, body)
 export const setSequence = (id: number, body: SequenceInput) => api.put<JobBagDetail>(`/job-bags/${id}/sequence`, body)
 export const setJobBagStatus = (id: number, body: JobBagStatusInput) => api.post<JobBagDetail>(`/job-bags/${id}/status`, body)
+export const changeRingSize = (id: number, body: RingSizeChange) => api.put<JobBagDetail>(`/job-bags/${id}/ring-size`, body)
 export const ticketUrl = (id: number, size: 'A5' | 'A6' = 'A6') => `/api/job-bags/${id}/ticket.pdf?size=${size}`
 export const correctTimeRecord = (recordId: number, body: TimeRecordCorrection) => api.post<EffectiveTimeRecord>(`/time-records/${recordId}/corrections`, body)
 export const addTimeRecord = (operationId: number, body: TimeRecordAdd) => api.post<EffectiveTimeRecord>(`/operations/${operationId}/time-records`, body)

@@ -13,7 +13,9 @@ export interface OrderOperation {
 export interface OrderJobBag { id: number; number: string; piece: string; templateId: number | null; params: PieceParams; status: string; operations: OrderOperation[] }
 export interface OrderDetail {
   id: number; number: string; customerId: number; customerName: string; customerReference: string; title: string
-  dueDate: string; promisedDate: string | null; priority: number; status: OrderStatus; priceQuoted: number; notes: string; version: number
+  dueDate: string; promisedDate: string | null; priority: number; status: OrderStatus
+  /** Integer minor units of `currency` (the workshop's). */
+  priceQuotedMinor: number; currency: string; notes: string; version: number
   jobBags: OrderJobBag[]
 }
 

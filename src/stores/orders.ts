@@ -38,7 +38,7 @@ export const useOrdersStore = defineStore('orders', () => {
   async function update(id: number, input: OrderUpdate) {
     const o = await ordersApi.updateOrder(id, input)
     const i = items.value.findIndex((x) => x.id === id)
-    if (i >= 0) items.value.splice(i, 1, { ...items.value[i]!, title: o.title, dueDate: o.dueDate, promisedDate: o.promisedDate, priority: o.priority, status: o.status, priceQuoted: o.priceQuoted, version: o.version })
+    if (i >= 0) items.value.splice(i, 1, { ...items.value[i]!, title: o.title, dueDate: o.dueDate, promisedDate: o.promisedDate, priority: o.priority, status: o.status, priceQuotedMinor: o.priceQuotedMinor, currency: o.currency, version: o.version })
     return o
   }
 

@@ -108,7 +108,7 @@ describe('quotes and deposits', () => {
     await open.waitFor()
     expect(await open.getAttribute('href')).toBe(linkUrl)
     // The order's own price figure stays as taken; when it differs from the quote's, the drawer says what the quote asks.
-    const { rows: [own] } = await e2e.db.pool.query(`select round(price_quoted * 100)::int as minor from orders where id = $1`, [orderId])
+    const { rows: [own] } = await e2e.db.pool.query(`select price_quoted_minor as minor from orders where id = $1`, [orderId])
     if (own.minor !== 125000) await page.locator('[data-test=order-price-quote-note]', { hasText: 'the quote asks £1,250.00' }).waitFor()
     await screenshot(page, 'payments-order-owed', { fullPage: false })
   })
@@ -169,7 +169,7 @@ describe('quotes and deposits', () => {
       expect(await text(owner, '[data-test=money-this-week]')).toContain(`${week} ${year}`)
       // Owed: each open order's price (its latest quote's, else the order's own price in pounds) less what is paid, never below nothing.
       const { rows: [owed] } = await e2e.db.pool.query(`select coalesce(sum(greatest(0, price - paid)), 0)::int as owed from (
-          select coalesce((select q.price_minor from quotes q where q.order_id = o.id and q.status in ('accepted', 'sent', 'drafted') order by q.status = 'accepted' desc, q.id desc limit 1), round(o.price_quoted * 100)) as price,
+          select coalesce((select q.price_minor from quotes q where q.order_id = o.id and q.status in ('accepted', 'sent', 'drafted') order by q.status = 'accepted' desc, q.id desc limit 1), o.price_quoted_minor) as price,
             coalesce((select sum(p.amount_minor) from payments p where p.order_id = o.id and not p.to_refund), 0) as paid
           from orders o where o.status not in ('collected', 'cancelled')) t`)
       expect(await text(owner, '[data-test=money-owed-total]')).toBe(gbp(owed.owed))

@@ -18,15 +18,15 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   const manager = await signedIn(t.app, 'manager')
   const kinds = Object.fromEntries((await owner.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
-  // Everyone at 32.00 an hour, so the average rate (used before anyone is planned) is 32.00.
-  await q(`update people set hourly_rate = 32`)
+  // Everyone at 32.00 an hour (3,200 p), so the average rate (used before anyone is planned) is 32.00.
+  await q(`update people set hourly_rate_minor = 3200`)
   const tpl = await manager.post('/api/templates', {
     code: 'costing-fixture', name: 'Fixture: fabricate and hallmark', description: 'Hand-worked costing fixture.',
     steps: [{ key: 'make', kindId: kinds.sawing, name: 'Make', baseMinutes: 210 }, { key: 'hallmark', kindId: kinds.hallmarking, name: 'Hallmark', baseMinutes: 0, leadDays: 3, after: ['make'] }],
   })
   expect(tpl.status).toBe(201)
   templateId = tpl.body.id
-  expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCost: 45 })).status).toBe(200)
+  expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })).status).toBe(200)
   alloyId = (await q(`select id from alloys where code = 'au750y'`)).rows[0].id
   customerId = (await q(`select min(id) as id from customers`)).rows[0].id
   // Today's 18 ct price 6,000 p/g; 25 days ago it was 5,234 p/g (the seeded change 12 days ago and today's come later).
@@ -38,7 +38,7 @@ const piece = { templateId: 0, piece: 'Fixture ring', params: { metal: 'gold-18c
 
 describe('estimated cost', () => {
   it('when sales price a piece not yet ordered, then metal, stones, outside work and labour are the hand-worked figures', async () => {
-    const r = await sales.post('/api/costing/estimate', { priceQuoted: 1250, pieces: [{ ...piece, templateId, stones: [{ count: 3, costEachMinor: 12_000 }, { count: 1, customerOwned: true }] }] })
+    const r = await sales.post('/api/costing/estimate', { priceQuotedMinor: 125_000, pieces: [{ ...piece, templateId, stones: [{ count: 3, costEachMinor: 12_000 }, { count: 1, customerOwned: true }] }] })
     expect(r.status).toBe(200)
     // Metal 6,200 mg × 6,000 p/g (today) = 37,200 p; stones 3 × 12,000 = 36,000 p (the customer's stone free); hallmark 45.00 × 1 = 4,500 p;
     // labour 210 min × 3,200 p/h ÷ 60 = 11,200 p. Total 88,900 p. Margin on 1,250.00: 36,100 p = 28.88 % → 28.9 %.
@@ -62,12 +62,14 @@ describe('estimated cost', () => {
     expectFieldError(await sales.post('/api/costing/estimate', { pieces: [] }), 'pieces')
     expectFieldError(await sales.post('/api/costing/estimate', { pieces: [{ ...piece, templateId, params: { metalWeightG: -1 } }] }), 'pieces.0.params.metalWeightG')
     expectFieldError(await sales.post('/api/costing/estimate', { pieces: [{ ...piece, templateId: 999999 }] }), 'pieces.0.templateId')
+    // A price in minor units is a whole number: 1250.5 pence is not an amount.
+    expectFieldError(await sales.post('/api/costing/estimate', { priceQuotedMinor: 1250.5, pieces: [{ ...piece, templateId }] }), 'priceQuotedMinor', /whole minor units/)
   })
 })
 
 describe('an order costed', () => {
   it('when an order is taken from the same piece, then its cost at estimate is the figure sales saw, and at actual it follows the ledger', async () => {
-    const o = await sales.post('/api/orders', { customerId, title: 'Fixture ring', dueDate: '2031-01-31', priceQuoted: 1250, pieces: [{ ...piece, templateId }] })
+    const o = await sales.post('/api/orders', { customerId, title: 'Fixture ring', dueDate: '2031-01-31', priceQuotedMinor: 125_000, pieces: [{ ...piece, templateId }] })
     expect(o.status).toBe(201)
     const bag = (await q(`select id from job_bags where order_id = $1`, [o.body.id])).rows[0].id
     const ops = Object.fromEntries((await q(`select key, id from operations where job_bag_id = $1`, [bag])).rows.map((r) => [r.key, r.id]))
@@ -90,20 +92,21 @@ describe('an order costed', () => {
     // 3.5 h at the bench (32.00/h) and the hallmark invoiced at 45.00.
     await q(`update operations set status = 'done', finished_at = now() where job_bag_id = $1`, [bag])
     await q(`insert into time_records (operation_id, person_id, started_at, ended_at, end_reason) values ($1, $2, now() - interval '210 minutes', now(), 'finished')`, [ops.make, personId])
-    expect((await owner.put(`/api/insights/operations/${ops.hallmark}/outside-cost`, { outsideCost: 45 })).status).toBe(200)
+    expect((await owner.put(`/api/insights/operations/${ops.hallmark}/outside-cost`, { outsideCostMinor: 4500 })).status).toBe(200)
 
     const after = await owner.get(`/api/orders/${o.body.id}/costing`)
     // Metal 6,200 × 5,234 / 1,000 = 32,450.8 → 32,451 p + loss 150 × 5,234 / 1,000 = 785.1 → 785 p = 33,236 p; stones 4 × 12,000 = 48,000 p;
     // outside 4,500 p; labour 210 × 3,200 / 60 = 11,200 p. Total 96,936 p; margin 125,000 − 96,936 = 28,064 p = 22.45 % → 22.5 %.
     expect(after.body.actual.cost).toEqual({ metalMinor: 33_236, stonesMinor: 48_000, outsideMinor: 4_500, labourMinor: 11_200, totalMinor: 96_936 })
     expect(after.body.actual).toMatchObject({ marginMinor: 28_064, marginPct: 22.5, caveat: 'metal, stones, outside work and labour counted' })
-    // The owner's table shows the same figures in major units.
+    // The owner's table shows the same figures, in minor units of the workshop's currency.
     const table = await owner.get(`/api/insights/costing?templateId=${templateId}`)
-    expect(table.body.rows).toEqual([expect.objectContaining({ orderId: o.body.id, costAtEstimate: 889, costAtActual: 969.36, marginAtActual: 280.64, marginPctAtActual: 22.5, metalAtActual: 332.36 })])
+    expect(table.body.currency).toBe('GBP')
+    expect(table.body.rows).toEqual([expect.objectContaining({ orderId: o.body.id, costAtEstimateMinor: 88_900, costAtActualMinor: 96_936, marginAtActualMinor: 28_064, marginPctAtActual: 22.5, metalAtActualMinor: 33_236 })])
   })
 
   it('when the metal was the customer’s own, then it costs nothing and its loss is shown', async () => {
-    const o = await sales.post('/api/orders', { customerId, title: 'Remade from old gold', dueDate: '2031-01-31', priceQuoted: 400, pieces: [{ ...piece, templateId }] })
+    const o = await sales.post('/api/orders', { customerId, title: 'Remade from old gold', dueDate: '2031-01-31', priceQuotedMinor: 40_000, pieces: [{ ...piece, templateId }] })
     const bag = (await q(`select id from job_bags where order_id = $1`, [o.body.id])).rows[0].id
     await q(`insert into metal_movements (workshop_id, alloy_id, kind, weight_mg, source, job_bag_id, recorded_at) select workshop_id, $1, 'issued', 8000, 'customer', $2, now() - interval '1 day' from job_bags where id = $2`, [alloyId, bag])
     await q(`insert into metal_movements (workshop_id, alloy_id, kind, weight_mg, form, job_bag_id, recorded_at) select workshop_id, $1, 'returned', 6200, 'piece', $2, now() from job_bags where id = $2`, [alloyId, bag])
@@ -118,5 +121,21 @@ describe('an order costed', () => {
     const bench = await signedIn(t.app, 'bench')
     const id = (await q(`select min(id) as id from orders`)).rows[0].id
     expect((await bench.get(`/api/orders/${id}/costing`)).status).toBe(403)
+  })
+})
+
+describe('a workshop pricing in yen', () => {
+  it('when the workshop currency has no decimals, then rates, outside costs and prices are whole yen and the suggested price is a whole yen', async () => {
+    // ISO 4217: JPY has no minor unit, so 1 minor unit = ¥1. Everyone at ¥3,000 an hour, the hallmark at ¥4,501, brass (not priced), no stones.
+    await q(`update workshops set currency = 'JPY'`)
+    await q(`update people set hourly_rate_minor = 3000`)
+    expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4501 })).status).toBe(200)
+    const r = await sales.post('/api/costing/estimate', { priceQuotedMinor: 30_000, pieces: [{ templateId, piece: 'Yen ring', params: { metal: 'brass' } }] })
+    // Labour ¥10,500 + hallmark ¥4,501 = ¥15,001; at 40 %: 15,001 ÷ 0.6 = 25,001.67 → ¥25,002 (whole yen; rounding to "whole hundreds of minor units" would give ¥25,100).
+    expect(r.body).toMatchObject({ currency: 'JPY', priceMinor: 30_000, suggestedPriceMinor: 25_002 })
+    expect(r.body.estimate.cost).toMatchObject({ labourMinor: 10_500, outsideMinor: 4_501, totalMinor: 15_001 })
+    await q(`update workshops set currency = 'GBP'`)
+    await q(`update people set hourly_rate_minor = 3200`)
+    await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })
   })
 })

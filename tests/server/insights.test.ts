@@ -49,8 +49,8 @@ beforeAll(async () => {
   })
   expect(tpl.status).toBe(201)
   templateId = tpl.body.id
-  for (const [title, price, quantity] of [['Fixture order A', 500, 2], ['Fixture order B', 300, 1]] as const) {
-    const o = await manager.post('/api/orders', { customerId, title, dueDate: '2030-04-30', priceQuoted: price, pieces: [{ templateId, piece: title, params: { stoneCount: 6, stoneSizeMm: 1.5, quantity } }] })
+  for (const [title, price, quantity] of [['Fixture order A', 50_000, 2], ['Fixture order B', 30_000, 1]] as const) {
+    const o = await manager.post('/api/orders', { customerId, title, dueDate: '2030-04-30', priceQuotedMinor: price, pieces: [{ templateId, piece: title, params: { stoneCount: 6, stoneSizeMm: 1.5, quantity } }] })
     expect(o.status).toBe(201)
     orderIds.push(o.body.id)
     orderNumbers.push(o.body.number)
@@ -71,8 +71,8 @@ beforeAll(async () => {
   await q(`insert into time_record_corrections (workshop_id, time_record_id, kind, reason, corrected_by) select workshop_id, $1, 'void', 'left running overnight', $2 from users where id = $2`, [forgotten, managerUser])
   await finish(b.hallmark!, 0, at('2030-04-08', '12:00'), [])
   // Expected outside cost: 2.50 per unit at the assay office; order A's was invoiced at 7.00.
-  expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCost: 2.5 })).status).toBe(200)
-  expect((await owner.put(`/api/insights/operations/${a.hallmark}/outside-cost`, { outsideCost: 7 })).status).toBe(200)
+  expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 250 })).status).toBe(200)
+  expect((await owner.put(`/api/insights/operations/${a.hallmark}/outside-cost`, { outsideCostMinor: 700 })).status).toBe(200)
 })
 afterAll(async () => { await t?.close() })
 
@@ -190,18 +190,20 @@ describe('job costing', () => {
     const r = await owner.get(`/api/insights/costing?templateId=${templateId}`)
     expect(r.status).toBe(200)
     const rows = Object.fromEntries(r.body.rows.map((x: { orderId: number }) => [x.orderId, x]))
-    // Hand-computed with the seeded rates (Ines 38, Ruth 26, Theo 18 per hour):
-    // A: labour at estimate 60/60 × 38 + 30/60 × 26 = 51; at actual 90/60 × 38 + 24/60 × 26 = 67.40; outside 2.50 × 2 units = 5 expected, 7 invoiced.
+    // Hand-computed in pence with the seeded rates (Ines 3,800, Ruth 2,600, Theo 1,800 p an hour), each line rounded once:
+    // A: labour at estimate 60/60 × 3,800 + 30/60 × 2,600 = 5,100; at actual 90/60 × 3,800 + 24/60 × 2,600 = 5,700 + 1,040 = 6,740;
+    // outside 250 × 2 units = 500 expected, 700 invoiced. Price 50,000: margins 44,400 (88.8 %) and 42,560 (85.1 %).
+    expect(r.body.currency).toBe('GBP')
     expect(rows[orderIds[0]!]).toMatchObject({
-      priceQuoted: 500, finishedOn: '2030-03-14', estimateHours: 1.5, actualHours: 1.9, labourAtEstimate: 51, labourAtActual: 67.4, outsideAtEstimate: 5, outsideAtActual: 7,
-      costAtEstimate: 56, costAtActual: 74.4, marginAtEstimate: 444, marginAtActual: 425.6, marginPctAtEstimate: 88.8, marginPctAtActual: 85.1,
+      priceQuotedMinor: 50_000, finishedOn: '2030-03-14', estimateHours: 1.5, actualHours: 1.9, labourAtEstimateMinor: 5_100, labourAtActualMinor: 6_740, outsideAtEstimateMinor: 500, outsideAtActualMinor: 700,
+      costAtEstimateMinor: 5_600, costAtActualMinor: 7_440, marginAtEstimateMinor: 44_400, marginAtActualMinor: 42_560, marginPctAtEstimate: 88.8, marginPctAtActual: 85.1,
     })
-    // B: at estimate 120/60 × 38 + 30/60 × 18 = 85; at actual 100/60 × 38 + 30/60 × 18 = 72.33; outside 2.50 (nothing invoiced yet).
+    // B: at estimate 120/60 × 3,800 + 30/60 × 1,800 = 8,500; at actual 100/60 × 3,800 = 6,333.3 → 6,333 + 900 = 7,233; outside 250 (nothing invoiced yet).
     expect(rows[orderIds[1]!]).toMatchObject({
-      priceQuoted: 300, labourAtEstimate: 85, labourAtActual: 72.33, outsideAtEstimate: 2.5, outsideAtActual: 2.5,
-      costAtEstimate: 87.5, costAtActual: 74.83, marginAtEstimate: 212.5, marginAtActual: 225.17, marginPctAtEstimate: 70.8, marginPctAtActual: 75.1,
+      priceQuotedMinor: 30_000, labourAtEstimateMinor: 8_500, labourAtActualMinor: 7_233, outsideAtEstimateMinor: 250, outsideAtActualMinor: 250,
+      costAtEstimateMinor: 8_750, costAtActualMinor: 7_483, marginAtEstimateMinor: 21_250, marginAtActualMinor: 22_517, marginPctAtEstimate: 70.8, marginPctAtActual: 75.1,
     })
-    expect(r.body.total).toMatchObject({ orders: 2, priceQuoted: 800, costAtEstimate: 143.5, costAtActual: 149.23, marginAtEstimate: 656.5, marginAtActual: 650.77 })
+    expect(r.body.total).toMatchObject({ orders: 2, priceQuotedMinor: 80_000, costAtEstimateMinor: 14_350, costAtActualMinor: 14_923, marginAtEstimateMinor: 65_650, marginAtActualMinor: 65_077 })
     const csv = await owner.get(`/api/insights/costing?templateId=${templateId}&format=csv`)
     expect(csv.headers['content-disposition']).toBe('attachment; filename="job-costing.csv"')
     expect(csv.text).toContain(`${orderNumbers[0]},Fixture order A,`)
@@ -212,7 +214,7 @@ describe('job costing', () => {
     // Both fixture pieces are silver with no metal weight given and nothing weighed, six stones with no stone list and no cost each;
     // their hallmark is costed (2.50 per unit on the routing step, set above), so outside work is not missing.
     for (const row of r.body.rows) {
-      expect(row).toMatchObject({ outsideSteps: 1, outsideUncosted: 0, metalAtEstimate: 0, metalAtActual: 0, stonesAtEstimate: 0, stonesAtActual: 0,
+      expect(row).toMatchObject({ outsideSteps: 1, outsideUncosted: 0, metalAtEstimateMinor: 0, metalAtActualMinor: 0, stonesAtEstimateMinor: 0, stonesAtActualMinor: 0,
         caveatAtEstimate: 'no metal weight estimated; stone costs not entered', caveatAtActual: 'no metal weighed yet; stone costs not entered' })
     }
     expect(r.body.total).toMatchObject({ outsideSteps: 2, outsideUncosted: 0, caveatAtActual: 'on some orders: no metal weighed yet; stone costs not entered' })
@@ -222,8 +224,9 @@ describe('job costing', () => {
       + 'metal_at_estimate,stones_at_estimate,outside_at_estimate,labour_at_estimate,cost_at_estimate,margin_at_estimate,margin_pct_at_estimate,not_counted_at_estimate,'
       + 'metal_at_actual,stones_at_actual,outside_at_actual,labour_at_actual,cost_at_actual,margin_at_actual,margin_pct_at_actual,not_counted_at_actual,customer_metal_lost_g')
     const a = lines.find((l) => l.startsWith(`${orderNumbers[0]},`))!
-    // Order A (hand-computed above): estimate 0 + 0 + 5 + 51 = 56, margin 444 = 88.8 %; actual 0 + 0 + 7 + 67.40 = 74.40, margin 425.60 = 85.1 %.
-    expect(a.endsWith(',500,1.5,1.9,0,0,5,51,56,444,88.8,no metal weight estimated; stone costs not entered,0,0,7,67.4,74.4,425.6,85.1,no metal weighed yet; stone costs not entered,0')).toBe(true)
+    // Order A (hand-computed above), in pounds with GBP's two decimals: estimate 0 + 0 + 5.00 + 51.00 = 56.00, margin 444.00 = 88.8 %;
+    // actual 0 + 0 + 7.00 + 67.40 = 74.40, margin 425.60 = 85.1 %.
+    expect(a.endsWith(',500.00,1.5,1.9,0.00,0.00,5.00,51.00,56.00,444.00,88.8,no metal weight estimated; stone costs not entered,0.00,0.00,7.00,67.40,74.40,425.60,85.1,no metal weighed yet; stone costs not entered,0'), a).toBe(true)
     // Last line before the final CRLF: the note, padded to the header's 24 columns (RFC 4180 §2: each line the same number of fields).
     const note = lines.at(-2)!
     expect(note.startsWith('Note,"Cost = metal')).toBe(true)
@@ -240,28 +243,29 @@ describe('job costing', () => {
     const { rows: uncostedOutside } = await q(`
       select distinct o.number from orders o join job_bags b on b.order_id = o.id join operations op on op.job_bag_id = b.id join operation_kinds k on k.id = op.kind_id
       where op.status = 'done' and (k.outside or op.lead_days > 0)
-        and not exists (select 1 from template_step_costs c where c.template_id = b.template_id and c.step_key = op.key and c.outside_cost is not null)
-        and not exists (select 1 from operation_costs c where c.operation_id = op.id and c.outside_cost is not null)`)
+        and not exists (select 1 from template_step_costs c where c.template_id = b.template_id and c.step_key = op.key and c.outside_cost_minor is not null)
+        and not exists (select 1 from operation_costs c where c.operation_id = op.id and c.outside_cost_minor is not null)`)
     expect(unweighed.length).toBeGreaterThan(5)
-    const rows = (await owner.get('/api/insights/costing')).body.rows as { orderNumber: string; caveatAtActual: string; metalAtActual: number }[]
+    const rows = (await owner.get('/api/insights/costing')).body.rows as { orderNumber: string; caveatAtActual: string; metalAtActualMinor: number }[]
     const byNumber = new Map(rows.map((x) => [x.orderNumber, x]))
     for (const u of unweighed) {
       const row = byNumber.get(u.number)
       if (!row) continue
       expect(row.caveatAtActual).toContain('no metal weighed yet')
-      expect(row.metalAtActual).toBe(0)
+      expect(row.metalAtActualMinor).toBe(0)
     }
     for (const u of uncostedOutside) if (byNumber.has(u.number)) expect(byNumber.get(u.number)!.caveatAtActual).toMatch(/outside work not costed/)
     // Orders weighed in and out carry a metal cost.
     const { rows: weighed } = await q(`select distinct o.number from orders o join job_bags b on b.order_id = o.id join metal_movements m on m.job_bag_id = b.id where m.kind = 'issued'`)
     const weighedRows = weighed.map((w) => byNumber.get(w.number)).filter((x) => x !== undefined)
     expect(weighedRows.length).toBeGreaterThan(3)
-    for (const row of weighedRows) expect(row!.metalAtActual).toBeGreaterThan(0)
+    for (const row of weighedRows) expect(row!.metalAtActualMinor).toBeGreaterThan(0)
   })
 
   it('when an outside cost is not a number or negative, then the field is named', async () => {
-    expectFieldError(await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCost: -1 }), 'outsideCost', /negative/)
-    expectCleanError(await owner.put(`/api/insights/operations/999999/outside-cost`, { outsideCost: 1 }), 404)
+    expectFieldError(await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: -1 }), 'outsideCostMinor', /negative/)
+    expectFieldError(await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 2.5 }), 'outsideCostMinor', /whole minor units/)
+    expectCleanError(await owner.put(`/api/insights/operations/999999/outside-cost`, { outsideCostMinor: 100 }), 404)
   })
 })
 
@@ -374,12 +378,12 @@ describe('outside work costs', () => {
     const list = await owner.get('/api/insights/outside-costs')
     expect(list.status).toBe(200)
     const hallmark = list.body.find((r: { stepName: string }) => /Hallmark/.test(r.stepName))
-    // The demo charges 2.80 per piece at the assay office (server/db/seed-costing.ts).
-    expect(hallmark).toMatchObject({ leadDays: expect.any(Number), outsideCost: 2.8 })
-    const put = await owner.put(`/api/insights/templates/${hallmark.templateId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCost: 12.5 })
+    // The demo charges 2.80 (280 p) per piece at the assay office (server/db/seed-costing.ts).
+    expect(hallmark).toMatchObject({ leadDays: expect.any(Number), outsideCostMinor: 280, currency: 'GBP' })
+    const put = await owner.put(`/api/insights/templates/${hallmark.templateId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCostMinor: 1250 })
     expect(put.status).toBe(200)
     const again = (await owner.get('/api/insights/outside-costs')).body.find((r: { templateId: number; stepKey: string }) => r.templateId === hallmark.templateId && r.stepKey === hallmark.stepKey)
-    expect(again.outsideCost).toBe(12.5)
+    expect(again.outsideCostMinor).toBe(1250)
     const manager = await signedIn(t.app, 'manager')
     expect((await manager.get('/api/insights/outside-costs')).status).toBe(403)
   })

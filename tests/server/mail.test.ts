@@ -30,7 +30,7 @@ describe('mail', () => {
     const sales = await signedIn(t.app, 'sales')
     const { rows: [c] } = await t.pool.query(`select id, email from customers where workshop_id = 1 order by id desc limit 1`)
     const { rows: [tpl] } = await t.pool.query(`select id from routing_templates order by id limit 1`)
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Signet ring', templateId: tpl.id, promisedDate: '2031-03-14', priority: 3, priceQuoted: 300 })
+    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Signet ring', templateId: tpl.id, promisedDate: '2031-03-14', priority: 3, priceQuotedMinor: 30_000 })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     const m = await fake.waitFor((x) => x.subject.includes(r.body.order.number))
     expect(m.to).toEqual([c.email])
@@ -54,9 +54,9 @@ describe('mail', () => {
     const sales = await signedIn(t.app, 'sales')
     const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
     const { rows: [tpl] } = await t.pool.query(`select id from routing_templates order by id limit 1`)
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Euro ring', templateId: tpl.id, promisedDate: '2031-03-14', priority: 3, priceQuoted: 1999 })
+    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Euro ring', templateId: tpl.id, promisedDate: '2031-03-14', priority: 3, priceQuotedMinor: 199_900 })
     const m = await fake.waitFor((x) => x.subject.includes(r.body.order.number))
-    // Intl en-GB formats 1999 EUR as "€1,999.00" (ECMA-402 currency formatting).
+    // 199,900 cents (EUR has 2 decimals, ISO 4217) = 1,999.00; Intl en-GB formats it as "€1,999.00" (ECMA-402 currency formatting).
     expect(m.text).toContain('€1,999.00')
     expect(m.text).toContain('3 Vyse Street, Birmingham B18 6LT')
     expect(m.text).toContain('0121 496 0777')

@@ -90,9 +90,9 @@ describe('benches', () => {
 
 describe('people', () => {
   it('when a person is added with skills and leave, then they are saved and audited', async () => {
-    const c = await manager.post('/api/people', { name: 'Wren Haddow', hourlyRate: 24, skills: [{ kindId: kinds.setting, level: 2, speed: 0.9 }, { kindId: kinds.polishing, level: 1 }] })
+    const c = await manager.post('/api/people', { name: 'Wren Haddow', hourlyRateMinor: 2400, skills: [{ kindId: kinds.setting, level: 2, speed: 0.9 }, { kindId: kinds.polishing, level: 1 }] })
     expect(c.status).toBe(201)
-    expect(c.body).toMatchObject({ name: 'Wren Haddow', userId: null, weekPattern: null, hourlyRate: 24, version: 0 })
+    expect(c.body).toMatchObject({ name: 'Wren Haddow', userId: null, weekPattern: null, hourlyRateMinor: 2400, version: 0 })
     expect(c.body.skills).toEqual(expect.arrayContaining([{ kindId: kinds.setting, level: 2, speed: 0.9 }, { kindId: kinds.polishing, level: 1, speed: 1 }]))
 
     const u = await manager.patch(`/api/people/${c.body.id}`, { skills: [{ kindId: kinds.setting, level: 3, speed: 1.1 }], version: 0 })
@@ -133,11 +133,11 @@ describe('people', () => {
 
   it('when a person is changed from an old version or does not exist, then 409 or 404', async () => {
     const p = (await manager.get('/api/people')).body[0]
-    expect((await manager.patch(`/api/people/${p.id}`, { hourlyRate: 40, version: p.version })).status).toBe(200)
-    const stale = await manager.patch(`/api/people/${p.id}`, { hourlyRate: 41, version: p.version })
+    expect((await manager.patch(`/api/people/${p.id}`, { hourlyRateMinor: 4000, version: p.version })).status).toBe(200)
+    const stale = await manager.patch(`/api/people/${p.id}`, { hourlyRateMinor: 4100, version: p.version })
     expectCleanError(stale, 409)
     expect(stale.body.error).toMatch(STALE)
-    expectCleanError(await manager.patch('/api/people/999999', { hourlyRate: 1, version: 0 }), 404)
+    expectCleanError(await manager.patch('/api/people/999999', { hourlyRateMinor: 100, version: 0 }), 404)
     expectCleanError(await manager.post('/api/people/999999/leave', { startsOn: '2030-05-06', endsOn: '2030-05-06' }), 404)
   })
 })
@@ -424,7 +424,7 @@ describe('another workshop', () => {
       await a.get(`/api/orders/${f.order.id}`),
       await a.patch(`/api/benches/${f.bench.id}`, { notes: 'taken over', version: f.bench.version }),
       await a.post(`/api/benches/${f.bench.id}/downtime`, { startsAt: '2030-03-04T09:00:00Z', endsAt: '2030-03-04T12:00:00Z', reason: 'x' }),
-      await a.patch(`/api/people/${f.person.id}`, { hourlyRate: 1, version: f.person.version }),
+      await a.patch(`/api/people/${f.person.id}`, { hourlyRateMinor: 100, version: f.person.version }),
       await a.post(`/api/people/${f.person.id}/leave`, { startsOn: '2030-05-06', endsOn: '2030-05-06' }),
       await a.delete(`/api/people/${f.person.id}/leave/${f.person.leave[0]!.id}`),
       await a.patch(`/api/operation-kinds/${f.kind.id}`, { name: 'taken over', version: f.kind.version }),
@@ -457,9 +457,9 @@ describe('partial changes', () => {
     expect([...b.body.kindIds].sort()).toEqual([...bench.kindIds].sort())
 
     const person = (await manager.get('/api/people')).body.find((p: { name: string }) => p.name === 'Ruth Calder')
-    const p = await manager.patch(`/api/people/${person.id}`, { hourlyRate: 27, version: person.version })
+    const p = await manager.patch(`/api/people/${person.id}`, { hourlyRateMinor: 2700, version: person.version })
     expect(p.status).toBe(200)
-    expect(p.body).toMatchObject({ userId: person.userId, weekPattern: person.weekPattern, active: true, hourlyRate: 27 })
+    expect(p.body).toMatchObject({ userId: person.userId, weekPattern: person.weekPattern, active: true, hourlyRateMinor: 2700 })
     expect(p.body.skills).toEqual(expect.arrayContaining(person.skills))
     expect(p.body.skills).toHaveLength(person.skills.length)
 

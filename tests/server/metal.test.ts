@@ -4,7 +4,7 @@ import fc from 'fast-check'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Role } from '../../shared/domain/roles'
 import { Agent, signedIn, createTestApp, type TestApp } from '../setup/app'
-import { auditRows, expectCleanError, expectFieldError, userIdOf } from './helpers'
+import { auditRows, expectCleanError, expectFieldError, secondWorkshop, userIdOf } from './helpers'
 
 let t: TestApp
 const as = {} as Record<Role, Agent>
@@ -34,8 +34,10 @@ afterAll(async () => { await t?.close() })
 describe('a hand-worked job bag', () => {
   it('when 12.00 g of 18 ct is issued and 11.20 g piece, 0.35 g scrap and 0.20 g lemel come back, then 0.25 g (2.1 %, 0.188 g fine) is lost and flagged over a 2 % tolerance', async () => {
     const alloy = await newAlloy()
-    const tol = await as.owner.put(`/api/metal/tolerances/${kindId}`, { tolerancePct: 2 })
-    expect(tol.status).toBe(200)
+    const v0 = (await as.owner.get('/api/metal/tolerances')).body.find((k: { kindId: number }) => k.kindId === kindId).version
+    const tol = await as.owner.put(`/api/metal/tolerances/${kindId}`, { tolerancePct: 2, version: v0 })
+    expect(tol.status, JSON.stringify(tol.body)).toBe(200)
+    expect(tol.body.version).toBe(v0 + 1)
     const base = { jobBagId: bag.id, alloyId: alloy.id, personId, operationId: opId }
     expect((await as.bench.post('/api/metal/issues', { ...base, weightG: 12 })).status).toBe(201)
     for (const [form, weightG] of [['piece', 11.2], ['scrap', 0.35], ['lemel', 0.2]] as const) {
@@ -56,12 +58,16 @@ describe('a hand-worked job bag', () => {
     expect(acc.body.hallmark).toMatchObject({ metal: 'gold', pieceG: 11.2, thresholdG: 1, needed: true })
   })
 
-  it('when the tolerance is 3 %, then the same 2.1 % loss is not flagged', async () => {
-    expect((await as.owner.put(`/api/metal/tolerances/${kindId}`, { tolerancePct: 3 })).status).toBe(200)
+  it('when the tolerance is 3 %, then the same 2.1 % loss is not flagged; an edit from a stale read is refused', async () => {
+    const v = (await as.owner.get('/api/metal/tolerances')).body.find((k: { kindId: number }) => k.kindId === kindId).version
+    expect((await as.owner.put(`/api/metal/tolerances/${kindId}`, { tolerancePct: 3, version: v })).status).toBe(200)
+    // Someone who read the table before that change: 409, and the 3 % stands.
+    expectCleanError(await as.owner.put(`/api/metal/tolerances/${kindId}`, { tolerancePct: 1, version: v }), 409)
+    expectFieldError(await as.owner.put(`/api/metal/tolerances/${kindId}`, { tolerancePct: 3 }), 'version')
     const acc = await as.owner.get(`/api/job-bags/${bag.id}/metal`)
     expect(acc.body.bySteps.find((s: { operationId: number }) => s.operationId === opId).overTolerance).toBe(false)
     const tols = await as.bench.get('/api/metal/tolerances')
-    expect(tols.body.find((k: { kindId: number }) => k.kindId === kindId)).toMatchObject({ tolerancePct: 3, isDefault: false })
+    expect(tols.body.find((k: { kindId: number }) => k.kindId === kindId)).toMatchObject({ tolerancePct: 3, isDefault: false, version: v + 1 })
   })
 
   it('when the owner reads losses by person, kind and month, then the hand-worked 0.25 g is in the totals', async () => {
@@ -123,6 +129,24 @@ describe('replays and corrections', () => {
     expect((await t.pool.query(`select count(*)::int n from metal_movements where client_id = $1`, [body.clientId])).rows[0].n).toBe(1)
     const clash = await as.bench.post('/api/metal/returns', { ...body, form: 'piece', weightG: 1 })
     expectCleanError(clash, 409)
+  })
+
+  it('when another workshop’s tablet happens to send the same clientId, then each workshop keeps its own entry', async () => {
+    const other = await secondWorkshop(t, 'metal-cid')
+    const theirs = await other.agent.post('/api/alloys', { code: 'ag925', name: 'Sterling silver', metal: 'silver', fineness: 925, densityGPerCm3: 10.36 })
+    expect(theirs.status, JSON.stringify(theirs.body)).toBe(201)
+    const mine = await newAlloy()
+    const clientId = cid()
+    const a = await as.owner.post('/api/metal/purchases', { alloyId: mine.id, weightG: 10, clientId })
+    const b = await other.agent.post('/api/metal/purchases', { alloyId: theirs.body.id, weightG: 20, clientId })
+    expect([a.status, b.status], JSON.stringify([a.body, b.body])).toEqual([201, 201])
+    expect(b.body.replayed).toBe(false)
+    const { rows } = await t.pool.query(`select workshop_id, weight_mg from metal_movements where client_id = $1 order by weight_mg`, [clientId])
+    expect(rows.map((r) => r.weight_mg)).toEqual([10_000, 20_000])
+    expect(new Set(rows.map((r) => r.workshop_id)).size).toBe(2)
+    // Within one workshop the id still means one entry: a replay answers the first.
+    const again = await other.agent.post('/api/metal/purchases', { alloyId: theirs.body.id, weightG: 20, clientId })
+    expect(again.body).toMatchObject({ replayed: true, movement: { id: b.body.movement.id } })
   })
 
   it('when the manager corrects a weighing, then a new row keeps who and why, the original stays, and the account uses the right weight', async () => {

@@ -29,7 +29,7 @@ describe('taking an order', () => {
   it('when an order with two pieces is taken, then it is numbered, each piece gets a numbered job bag, and it is audited', async () => {
     const n = await orderCount()
     const r = await sales.post('/api/orders', {
-      customerId, title: 'Pendant and ring set', dueDate: '2031-06-20', promisedDate: '2031-06-18', priority: 2, priceQuoted: 1850,
+      customerId, title: 'Pendant and ring set', dueDate: '2031-06-20', promisedDate: '2031-06-18', priority: 2, priceQuotedMinor: 185_000,
       pieces: [
         { templateId: tpl['pave-pendant']!.id, piece: 'Pavé wave pendant', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, quantity: 2 } },
         { templateId: tpl['bezel-ring']!.id, piece: 'Garnet bezel ring', params: { stoneCount: 1, stoneSizeMm: 7 } },
@@ -38,7 +38,7 @@ describe('taking an order', () => {
     expect(r.status).toBe(201)
     // Order number: MG + two-digit year of the due date + running count in the workshop (our own scheme).
     const number = `MG31-${String(n + 1).padStart(4, '0')}`
-    expect(r.body).toMatchObject({ number, customerId, customerName: 'Emrys Calloway', title: 'Pendant and ring set', dueDate: '2031-06-20', promisedDate: '2031-06-18', priority: 2, priceQuoted: 1850, status: 'open', version: 0 })
+    expect(r.body).toMatchObject({ number, customerId, customerName: 'Emrys Calloway', title: 'Pendant and ring set', dueDate: '2031-06-20', promisedDate: '2031-06-18', priority: 2, priceQuotedMinor: 185_000, currency: 'GBP', status: 'open', version: 0 })
     expect(r.body.jobBags.map((b: { number: string; piece: string }) => [b.number, b.piece])).toEqual([[`${number}-1`, 'Pavé wave pendant'], [`${number}-2`, 'Garnet bezel ring']])
     expect(r.body.jobBags[0]).toMatchObject({ templateId: tpl['pave-pendant']!.id, status: 'waiting', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, sizeMm: 0, finish: 'polished', quantity: 2 } })
     expect(r.body.jobBags[1].params).toMatchObject({ metal: 'silver-925', quantity: 1, stoneCount: 1 })
@@ -112,7 +112,9 @@ describe('taking an order', () => {
     expectFieldError(await sales.post('/api/orders', { customerId, dueDate: '2031-01-01' }), 'title', /required/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-02-30' }), 'dueDate', /real date/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priority: 9 }), 'priority', /1 to 5/)
-    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuoted: -1 }), 'priceQuoted', /negative/)
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuotedMinor: -1 }), 'priceQuotedMinor', /negative/)
+    // Minor units are whole: 18.5 pence is refused rather than rounded.
+    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuotedMinor: 18.5 }), 'priceQuotedMinor', /whole minor units/)
     expectFieldError(await sales.post('/api/orders', piece({ stoneCount: -1 })), 'pieces.0.params.stoneCount', /negative/)
     expectFieldError(await sales.post('/api/orders', piece({ quantity: 0 })), 'pieces.0.params.quantity', /at least 1/)
     expectFieldError(await sales.post('/api/orders', piece({ metal: 'tin' })), 'pieces.0.params.metal', /listed metals/)

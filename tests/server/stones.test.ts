@@ -49,46 +49,72 @@ describe('the stone list', () => {
     expect(centre.caratEstimated).toBe(true)
     expect(Math.abs(centre.caratEach! - 1.0)).toBeLessThanOrEqual(0.05)
     expect(centre.customerOwned).toBe(true)
-    // Hand-worked from the seeded halo routing (set: base 40 + 8 min a stone, band factor 1.5 over 3 mm): 40 + 8 × 1 × 1.5 = 52.
+    // Hand-worked from the seeded halo routing (set: base 40 + 8 min a stone, band factor 1.5 over 3 mm) and the usual role factor
+    // of a centre stone (×3, shared/domain/stones.ts; common practice, no source): 40 + 8 × 1 × 1.5 × 3 = 76.
     const s = await setStep()
-    expect(s).toMatchObject({ estimateMinutes: 52, estimateSource: 'template' })
-    expect(s.estimateChanges.at(-1)).toMatchObject({ fromMinutes: 40, toMinutes: 52 })
+    expect(s).toMatchObject({ estimateMinutes: 76, estimateSource: 'template' })
+    expect(s.estimateChanges.at(-1)).toMatchObject({ fromMinutes: 40, toMinutes: 76 })
     expect(s.estimateChanges.at(-1)!.reason).toMatch(/Stone list: added 1 × 6.5 mm round diamond/)
   })
 
-  it('when 14 halo stones of 1.3 mm are added, then the setting step is 186.4 min', async () => {
+  it('when 14 halo stones of 1.3 mm are added, then the setting step is 237.3 min', async () => {
     const r = await manager.post(`/api/job-bags/${bagId}/stones`, { role: 'halo', sizeMm: 1.3, count: 14, costEachMinor: 1200 })
     expect(r.status).toBe(201)
     halo = (r.body as Stones).lines[1]!
-    // Hand-worked: 40 + 8 × 1 × 1.5 (6.5 mm, over 3 mm) + 8 × 14 × 1.2 (1.3 mm, under 1.5 mm) = 40 + 12 + 134.4 = 186.4 min.
-    expect((await setStep()).estimateMinutes).toBe(186.4)
+    // Hand-worked: 40 + 8 × 1 × 1.5 (6.5 mm, over 3 mm) × 3 (centre) + 8 × 14 × 1.2 (1.3 mm, under 1.5 mm) × 1.2 (halo)
+    // = 40 + 36 + 161.28 = 237.28 → 237.3 min.
+    expect((await setStep()).estimateMinutes).toBe(237.3)
     const { rows: [op] } = await t.pool.query(`select estimate_minutes from operations where job_bag_id = $1 and key = 'set'`, [bagId])
-    expect(op.estimate_minutes).toBe(186.4)
+    expect(op.estimate_minutes).toBe(237.3)
   })
 
   it('when a halo line is edited to 16 stones and back, then the minutes follow and a stale version is refused', async () => {
     const r = await manager.patch(`/api/stones/${halo.id}`, { count: 16, version: halo.version })
     expect(r.status).toBe(200)
-    // Hand-worked: 40 + 12 + 8 × 16 × 1.2 = 205.6 min.
-    expect((await setStep()).estimateMinutes).toBe(205.6)
+    // Hand-worked: 40 + 36 + 8 × 16 × 1.2 × 1.2 = 40 + 36 + 184.32 = 260.32 → 260.3 min.
+    expect((await setStep()).estimateMinutes).toBe(260.3)
     expectCleanError(await manager.patch(`/api/stones/${halo.id}`, { count: 14, version: halo.version }), 409)
     const back = await manager.patch(`/api/stones/${halo.id}`, { count: 14, version: halo.version + 1 })
     expect(back.status).toBe(200)
     halo = (back.body as Stones).lines[1]!
-    expect((await setStep()).estimateMinutes).toBe(186.4)
+    expect((await setStep()).estimateMinutes).toBe(237.3)
   })
 
   it('when a line is added and removed, then the list and the minutes are as before and both are audited', async () => {
     const r = await sales.post(`/api/job-bags/${bagId}/stones`, { role: 'side', sizeMm: 2.5, count: 2 })
     const side = (r.body as Stones).lines[2]!
-    // Hand-worked: 186.4 + 8 × 2 × 1 (1.5–3 mm: no factor) = 202.4 min.
-    expect((await setStep()).estimateMinutes).toBe(202.4)
+    // Hand-worked: 237.28 + 8 × 2 × 1 (1.5–3 mm: no band factor) × 1.5 (side) = 237.28 + 24 = 261.28 → 261.3 min.
+    expect((await setStep()).estimateMinutes).toBe(261.3)
     const del = await sales.delete(`/api/stones/${side.id}?version=${side.version}`)
     expect(del.status).toBe(200)
     expect((del.body as Stones).lines).toHaveLength(2)
-    expect((await setStep()).estimateMinutes).toBe(186.4)
+    expect((await setStep()).estimateMinutes).toBe(237.3)
     const actions = (await auditRows(t, 'job-bag', bagId)).map((a) => a.action)
     expect(actions).toEqual(expect.arrayContaining(['add-stones', 'edit-stones', 'remove-stones']))
+  })
+
+  it('when a stone’s depth is measured, then it is kept, shown on the ticket and gives the carat estimate; an edit keeps what it does not name', async () => {
+    const r = await sales.post(`/api/job-bags/${bagId}/stones`, { role: 'side', sizeMm: 5, depthMm: 3.2, count: 1, quality: 'H SI1', costEachMinor: 45_000 })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    const side = (r.body as Stones).lines[2]! as Line & { depthMm: number | null; quality: string; costEachMinor: number | null }
+    // carat ≈ diameter² × depth × 0.0061 (round brilliant; GemGate, "Diamond Weight Estimate for Round Brilliant Cut"): 5² × 3.2 × 0.0061 = 0.488 → 0.49 ct (from 5 mm alone, depth 60 %: 0.4575 → 0.46).
+    expect(side).toMatchObject({ depthMm: 3.2, caratEach: 0.49, caratEstimated: true })
+    // Setting: 237.28 + 8 × 1 × 1.5 (over 3 mm) × 1.5 (side) = 237.28 + 18 = 255.28 → 255.3 min.
+    expect((await setStep()).estimateMinutes).toBe(255.3)
+    const { PDFParse } = await import('pdf-parse')
+    const res = await owner.get(`/api/job-bags/${bagId}/ticket.pdf`).buffer(true).parse((x, cb) => { const c: Buffer[] = []; x.on('data', (d: Buffer) => c.push(d)); x.on('end', () => cb(null, Buffer.concat(c))) })
+    const parser = new PDFParse({ data: new Uint8Array(res.body as Buffer) })
+    const text = (await parser.getText()).text.replace(/\s+/g, ' ')
+    await parser.destroy()
+    expect(text).toContain('Side: 1 × 5 mm round diamond, 3.2 mm deep, 0.49 ct est.')
+    // Only the depth changes: 5² × 3.0 × 0.0061 = 0.4575 → 0.46 ct; the quality and cost stay as they were.
+    const e = await sales.patch(`/api/stones/${side.id}`, { depthMm: 3, version: side.version })
+    expect(e.status, JSON.stringify(e.body)).toBe(200)
+    expect((e.body as Stones).lines[2]).toMatchObject({ depthMm: 3, caratEach: 0.46, quality: 'H SI1', costEachMinor: 45_000, customerOwned: false, stone: 'diamond' })
+    expectFieldError(await sales.patch(`/api/stones/${side.id}`, { depthMm: -1, version: side.version + 1 }), 'depthMm', /more than 0/)
+    const del = await sales.delete(`/api/stones/${side.id}?version=${side.version + 1}`)
+    expect(del.status).toBe(200)
+    expect((await setStep()).estimateMinutes).toBe(237.3)
   })
 
   it('when the input is bad, then the answer is 400 naming the field', async () => {

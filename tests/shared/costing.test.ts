@@ -1,7 +1,7 @@
 // Job costing arithmetic in minor units against hand-worked examples: metal at the price of the day issued, loss, stones, outside work, labour, margins.
 import { describe, expect, it } from 'vitest'
 import {
-  ALL_COUNTED, addBreakdowns, breakdown, labourMinor, margin, marginCaveat, metalActual, metalMinor, mulDivRound, roundHalfAway, stonesMinor, suggestedPriceMinor, toMinor,
+  ALL_COUNTED, addBreakdowns, breakdown, labourMinor, margin, marginCaveat, metalActual, metalMinor, mulDivRound, roundHalfAway, stonesMinor, suggestedPriceMinor,
 } from '../../shared/domain/costing'
 
 describe('rounding', () => {
@@ -16,9 +16,6 @@ describe('rounding', () => {
     // 3 min at 0.50/h = 150/60 = 2.5 p → 3 p; 1 min at 32.50/h = 3250/60 = 54.17 p → 54 p.
     expect(labourMinor(3, 50)).toBe(3)
     expect(labourMinor(1, 3250)).toBe(54)
-    // A stored real to minor units once at the edge: 0.1 + 0.2 is 0.30000000000000004 in binary floating point, still 30 p.
-    expect(toMinor(0.1 + 0.2)).toBe(30)
-    expect(toMinor(1250)).toBe(125_000)
   })
 })
 
@@ -32,15 +29,16 @@ describe('a job costed by hand', () => {
     const stones = stonesMinor(12_000, 3 + 1)
     expect(stones).toBe(48_000)
     // Outside work 45.00 = 4,500 p; labour 3.5 h = 210 min at 32.00/h: 210 × 3,200 / 60 = 11,200 p.
-    const labour = labourMinor(210, toMinor(32))
+    const labour = labourMinor(210, 3200)
     expect(labour).toBe(11_200)
-    const cost = breakdown({ metalMinor: metal.minor, stonesMinor: stones, outsideMinor: toMinor(45), labourMinor: labour })
+    const cost = breakdown({ metalMinor: metal.minor, stonesMinor: stones, outsideMinor: 4500, labourMinor: labour })
     // Total 33,236 + 48,000 + 4,500 + 11,200 = 96,936 p = 969.36.
     expect(cost.totalMinor).toBe(96_936)
     // Price 1,250.00 = 125,000 p: margin 28,064 p = 280.64; 28,064 / 125,000 = 22.45 % → 22.5 %.
-    expect(margin(toMinor(1250), cost.totalMinor)).toEqual({ marginMinor: 28_064, marginPct: 22.5 })
+    expect(margin(125_000, cost.totalMinor)).toEqual({ marginMinor: 28_064, marginPct: 22.5 })
     // At a 40 % margin: 96,936 / 0.6 = 161,560 p, up to the next whole pound: 1,616.00.
     expect(suggestedPriceMinor(cost.totalMinor, 40)).toBe(161_600)
+    expect(suggestedPriceMinor(cost.totalMinor, 40, 'GBP')).toBe(161_600)
     expect(addBreakdowns([cost, cost]).totalMinor).toBe(193_872)
   })
 
@@ -54,5 +52,15 @@ describe('a job costed by hand', () => {
   it('when nothing is missing, then the margin says all four are counted; otherwise it names only what is missing', () => {
     expect(marginCaveat([])).toBe(ALL_COUNTED)
     expect(marginCaveat(['stone-costs', 'no-metal-weighed', 'stone-costs'])).toBe('no metal weighed yet; stone costs not entered')
+  })
+})
+
+describe('the suggested price in currencies without two decimals', () => {
+  it('when the workshop prices in yen or dinars, then the price goes up to the next whole yen or dinar', () => {
+    // ISO 4217: JPY has 0 decimals, BHD 3. Cost ¥96,936 at 40 %: 96,936 / 0.6 = 161,560 yen, already whole → ¥161,560
+    // (a two-decimal rule would wrongly round it to 161,600).
+    expect(suggestedPriceMinor(96_936, 40, 'JPY')).toBe(161_560)
+    // Cost 96.936 BHD = 96,936 fils at 40 %: 161,560 fils = 161.560 BHD, up to the next whole dinar: 162.000 BHD = 162,000 fils.
+    expect(suggestedPriceMinor(96_936, 40, 'BHD')).toBe(162_000)
   })
 })

@@ -1,6 +1,6 @@
 // Carat estimates for round brilliants against the published worked example and size table; the stone count reconciliation.
 import { describe, expect, it } from 'vitest'
-import { caratFromDiameter, caratFromDiameterAndDepth, countsOf, reconcile, stoneListStepMinutes, stoneLineWords } from '../../shared/domain/stones'
+import { DEFAULT_ROLE_FACTORS, caratFromDiameter, caratFromDiameterAndDepth, countsOf, reconcile, roleFactor, stoneListStepMinutes, stoneLineWords } from '../../shared/domain/stones'
 
 describe('carat estimate of a round brilliant', () => {
   it('when the diameter is 6.08 mm and the depth 3.63 mm, then the estimate is 0.82 ct within 5 %', () => {
@@ -53,8 +53,28 @@ describe('setting minutes from a stone list', () => {
     expect(stoneListStepMinutes(step, { learningRate: null }, { sizeMm: 0, quantity: 1 }, [{ sizeMm: 6.5, count: 1 }, { sizeMm: 1.3, count: 14 }])).toBe(186.4)
   })
 
+  it('when a centre stone and a pavé stone are the same size, then the centre takes longer by its role factor', () => {
+    // The usual role factors (common practice, no source): centre ×3, side ×1.5, halo ×1.2, pavé ×1.
+    expect(DEFAULT_ROLE_FACTORS).toEqual({ centre: 3, side: 1.5, halo: 1.2, pave: 1 })
+    const step = { baseMinutes: 40, perStoneMinutes: 8, perMmMinutes: 0, sizeBandFactors: { small: 1.1 } }
+    const minutes = (role: 'centre' | 'pave') => stoneListStepMinutes(step, { learningRate: null }, { sizeMm: 0, quantity: 1 }, [{ sizeMm: 2, count: 1, role }])
+    // Hand-worked, one 2 mm stone (band 1.5–3 mm, ×1.1): pavé 40 + 8 × 1 × 1.1 × 1 = 48.8 min; centre 40 + 8 × 1 × 1.1 × 3 = 66.4 min.
+    expect(minutes('pave')).toBe(48.8)
+    expect(minutes('centre')).toBe(66.4)
+  })
+
+  it('when a step sets its own role factors, then they replace the usual ones for those roles only', () => {
+    const step = { baseMinutes: 30, perStoneMinutes: 6, perMmMinutes: 0, sizeBandFactors: { melee: 1.2, large: 1.5 }, roleFactors: { centre: 4 } }
+    // Halo ring, 2 pieces: one 6.5 mm centre (large ×1.5, own centre ×4) and 14 × 1.3 mm halo stones (melee ×1.2, usual halo ×1.2).
+    // Per piece: 30 + 6 × 1 × 1.5 × 4 + 6 × 14 × 1.2 × 1.2 = 30 + 36 + 120.96 = 186.96; × 2 = 373.92 → 373.9 min.
+    expect(stoneListStepMinutes(step, { learningRate: null }, { sizeMm: 0, quantity: 2 }, [{ sizeMm: 6.5, count: 1, role: 'centre' }, { sizeMm: 1.3, count: 14, role: 'halo' }])).toBe(373.9)
+    expect(roleFactor('side', step.roleFactors)).toBe(1.5)
+    expect(roleFactor('centre', step.roleFactors)).toBe(4)
+  })
+
   it('when the words of a line are written, then they read like the ticket', () => {
     expect(stoneLineWords({ count: 1, sizeMm: 6.5, shape: 'round', stone: 'diamond', caratEach: 1, caratEstimated: true })).toBe('1 × 6.5 mm round diamond, 1.00 ct est.')
+    expect(stoneLineWords({ count: 1, sizeMm: 6.5, shape: 'round', stone: 'diamond', caratEach: 0.98, caratEstimated: true, depthMm: 3.9 })).toBe('1 × 6.5 mm round diamond, 3.9 mm deep, 0.98 ct est.')
   })
 })
 

@@ -133,7 +133,8 @@ export async function ensureCertificate(o: { dir: string; names: string[]; now?:
       ca: { key: readFileSync(path('caKey'), 'utf8'), cert: caPem },
       extensions: [
         { name: 'basicConstraints', cA: false },
-        { name: 'keyUsage', digitalSignature: true, keyEncipherment: true, critical: true },
+        // An EC key signs the handshake; key encipherment belongs to RSA keys (RFC 5480 §3).
+        { name: 'keyUsage', digitalSignature: true, critical: true },
         { name: 'extKeyUsage', serverAuth: true },
         { name: 'subjectAltName', altNames: names.map((n) => (isIP(n) ? { type: 7 as const, ip: n } : { type: 2 as const, value: n })) },
       ],

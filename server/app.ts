@@ -15,6 +15,7 @@ import { Cache } from './lib/cache'
 import { requireCsrf } from './middleware/csrf'
 import { endPinAfterWrite, resolveBenchPerson } from './middleware/bench-person'
 import type { Deps, RouteSpec } from './lib/route'
+import type { Jobs } from './jobs/queue'
 import { Realtime } from './realtime/hub'
 import { allRoutes } from './routes/index'
 import { UNSTORABLE_REASON, unstorableText } from './lib/text-guard'
@@ -25,9 +26,9 @@ import { handleWebhook } from './services/payments'
 import { ownAppUrl } from './lib/public-url'
 import { CA_PATH, caCertificateHandler } from './lib/tls'
 
-export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime; mailer?: Mailer }
+export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime; mailer?: Mailer; /** The job queue; the caller starts it with the returned deps. */ jobs?: Jobs }
 
-export function createApp({ db, pool, config, realtime = new Realtime(), mailer = createMailer(config) }: AppDeps) {
+export function createApp({ db, pool, config, realtime = new Realtime(), mailer = createMailer(config), jobs }: AppDeps) {
   const app = express()
   app.disable('x-powered-by')
   app.set('trust proxy', 'loopback')
@@ -60,6 +61,7 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   const cache = new Cache(realtime)
   useSessionUserCache(db, cache)
   const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: ownAppUrl(config), accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS } }
+  if (jobs) deps.jobs = jobs
 
   const api = express.Router()
   api.use(express.json({ limit: '1mb' }))

@@ -34,6 +34,10 @@ const schema = z.object({
   STRIPE_WEBHOOK_SECRET: z.string().min(1).optional(),
   /** The local fake provider (server/dev/pay-fake.ts), started by `npm start` and the tests when no account is set. */
   PAY_FAKE_URL: z.string().url('must be an http:// URL').optional(),
+  /** The job queue (server/jobs): how often an idle instance looks for work; after how long without a heartbeat a planner run counts as lost; the first wait before an e-mail is tried again (doubling). */
+  JOBS_POLL_SECONDS: z.coerce.number().min(0.5).default(1),
+  PLAN_RUN_STALE_SECONDS: z.coerce.number().int().min(2).default(30),
+  MAIL_RETRY_SECONDS: z.coerce.number().int().min(1).default(30),
   /** `npm start -- --lan`: HTTPS on the workshop network (HOST defaults to 0.0.0.0, TLS on). */
   LAN: z.stringbool().default(false),
   /** Serve HTTPS with the workshop's own certificate, on whatever HOST is (LAN turns it on; tests use it on loopback). */

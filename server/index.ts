@@ -7,12 +7,15 @@ import { createDb } from './db/client'
 import { attachSockets } from './realtime/sockets'
 import { Realtime } from './realtime/hub'
 import { startDigestTimer } from './mail/digest-timer'
+import { createAppJobs } from './jobs/index'
 import { createHttpServer } from './lib/tls'
 
 export async function startServer(config: Config) {
   const { db, pool } = createDb(config.DATABASE_URL)
   const realtime = new Realtime()
-  const { app, sessionMiddleware, passport, deps } = createApp({ db, pool, config, realtime })
+  const jobs = createAppJobs(config)
+  const { app, sessionMiddleware, passport, deps } = createApp({ db, pool, config, realtime, jobs })
+  await jobs.start(deps)
   const { server: http, scheme, tls } = await createHttpServer(config, app)
   // Tests drive the digest by hand; a timer firing into a test database being dropped would only make noise.
   const digest = config.NODE_ENV === 'test' ? { stop() {} } : startDigestTimer(deps)
@@ -35,6 +38,7 @@ export async function startServer(config: Config) {
     db,
     async close() {
       digest.stop()
+      await jobs.stop()
       deps.mailer?.close()
       await realtime.close()
       io.close()

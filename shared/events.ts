@@ -12,6 +12,8 @@ export interface ServerToClientEvents {
   /** A bar moved or pinned by hand on the live plan. */
   'plan:changed': (p: ChangePayload & { operationId: number }) => void
   'plan:progress': (p: { runId: string; iteration: number; weightedTardiness: number; makespan: number; elapsedMs: number }) => void
+  /** A planner run ended with an error (or its instance went away for good): nothing was drafted. */
+  'plan:failed': (p: { runId: string; error: string; seq?: number }) => void
   'masterdata:changed': (p: ChangePayload & { entity: string }) => void
   /** A file uploaded to (or removed from) an order or a job bag. */
   'file:added': (p: ChangePayload & { orderId: number | null; jobBagId: number | null }) => void

@@ -17,6 +17,8 @@ export const LOCK = {
   metalLedger: 3101,
   /** Invitations, per workshop: one open invitation per address. */
   invitations: 3201,
+  /** The daily money reminders and digest, per workshop: done once per day whatever the number of app instances. */
+  dailyMail: 3301,
   /** Change-event numbering, per workshop: numbers are committed in the order they are handed out. */
   changeEvents: 4001,
 } as const

@@ -23,6 +23,9 @@ export interface FakeSmtp {
   messages: ReceivedMessage[]
   /** Marks outbox rows delivered in this database from now on (when it is created after the mailbox). */
   useDb(db: Db): void
+  /** Refuses the next `n` messages with a temporary error (451), as a busy mail server does; counted in `refused`. */
+  refuseNext(n: number): void
+  refused: number
   /** Resolves with the first message matching `test` (already received or arriving within timeoutMs). */
   waitFor(test: (m: ReceivedMessage) => boolean, timeoutMs?: number): Promise<ReceivedMessage>
   close(): Promise<void>
@@ -44,12 +47,20 @@ export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> 
   let db = o.db
   const messages: ReceivedMessage[] = []
   const waiters: { test: (m: ReceivedMessage) => boolean; resolve: (m: ReceivedMessage) => void }[] = []
+  let refuse = 0
   const server = new SMTPServer({
     authOptional: true,
     disabledCommands: ['STARTTLS', 'AUTH'],
     logger: false,
     size: 25 * 1024 * 1024,
     onData(stream, session, callback) {
+      if (refuse > 0) {
+        refuse--
+        box.refused++
+        stream.resume()
+        stream.on('end', () => callback(Object.assign(new Error('Mailbox busy, try again later'), { responseCode: 451 })))
+        return
+      }
       const chunks: Buffer[] = []
       stream.on('data', (c: Buffer) => chunks.push(c))
       stream.on('end', async () => {
@@ -95,10 +106,12 @@ export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> 
     if ((err as NodeJS.ErrnoException).code !== 'EADDRINUSE' || !o.anyPortIfTaken) throw err
     port = await listen(0)
   }
-  return {
+  const box: FakeSmtp = {
     port,
     url: `smtp://${host}:${port}`,
     messages,
+    refused: 0,
+    refuseNext(n) { refuse = n },
     useDb(d) { db = d },
     waitFor(test, timeoutMs = 5_000) {
       const hit = messages.find(test)
@@ -111,6 +124,7 @@ export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> 
     },
     close: () => new Promise<void>((resolve) => server.close(() => resolve())),
   }
+  return box
 }
 
 // A small MIME reader: enough for what nodemailer writes (headers, multipart/alternative, quoted-printable, base64).

@@ -1,7 +1,7 @@
-// E-mail use-cases: every message is written to the outbox first, then sent after the business change committed;
-// a failed send is recorded on its row and never undoes the change.
+// E-mail use-cases: every message is written to the outbox with its send job in one transaction (the caller's, when it
+// passes one), and a queue job (server/jobs) sends it, retrying with growing waits; a failed send never undoes the change.
 import { and, count, desc, eq } from 'drizzle-orm'
-import type { Db } from '../db/client'
+import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Deps } from '../lib/route'
@@ -9,12 +9,63 @@ import { dayjs } from '../lib/time'
 import { minorToMajor } from '../../shared/domain/currency'
 import * as t from '../mail/templates'
 import { OUTBOX_HEADER } from '../mail/transport'
+import { QUEUES } from '../jobs/queue'
 import { boardData } from './board'
 
 export interface MailRequest { workshopId: number; to: string; kind: string; orderId?: number | null; meta?: Record<string, unknown>; content: t.MailContent; /** What the outbox keeps when it must not keep the sent text (a one-time link); same subject. */ kept?: t.MailContent }
 
-/** Records the message as queued, sends it, and stores the outcome. Never throws: the outcome is returned. */
-export async function sendRecorded(deps: Pick<Deps, 'db' | 'mailer'>, m: MailRequest) {
+const inTransaction = (db: Db | Trx): db is Trx => typeof (db as Trx).rollback === 'function'
+
+/**
+ * Records the message as queued with its send job, in the caller's transaction when `deps.db` is one (the mail then
+ * stands or falls with the change), else in its own. The request does not wait for the mail server: the answer says
+ * 'queued' and the job sends it. A message whose text must not be kept (`kept`, a one-time link) never goes through the
+ * queue's tables: it is sent here at once, as is everything when there is no queue (scripts).
+ */
+export async function sendRecorded(deps: Pick<Deps, 'db' | 'mailer' | 'jobs'>, m: MailRequest) {
+  const jobs = deps.jobs
+  if (!jobs || m.kept || !m.to.trim()) return sendNow(deps, m)
+  const write = async (tx: Trx) => {
+    const [row] = await tx.insert(s.outbox).values({
+      workshopId: m.workshopId, to: m.to, subject: m.content.subject, text: m.content.text, html: m.content.html, kind: m.kind, orderId: m.orderId ?? null, meta: m.meta ?? {},
+    }).returning({ id: s.outbox.id })
+    await jobs.send(QUEUES.mailSend, { outboxId: row!.id }, { tx })
+    return row!.id
+  }
+  const id = inTransaction(deps.db) ? await write(deps.db) : await deps.db.transaction(write)
+  if (!inTransaction(deps.db)) jobs.wake(QUEUES.mailSend)
+  return { id, status: 'queued' as const, error: null }
+}
+
+/**
+ * The send job: sends one queued outbox row. A refusal by the mail server is written on the row (still queued) and thrown,
+ * so the queue tries again later; the last try marks it failed.
+ */
+export async function deliverOutboxJob(deps: Pick<Deps, 'db' | 'mailer'>, { outboxId }: { outboxId: number }, job?: { retryCount: number; retryLimit: number }) {
+  const [m] = await deps.db.select().from(s.outbox).where(eq(s.outbox.id, outboxId))
+  if (!m || m.status !== 'queued') return { skipped: m?.status ?? 'gone' }
+  const last = !job || job.retryCount >= job.retryLimit
+  if (!deps.mailer) {
+    await deps.db.update(s.outbox).set({ status: 'failed', error: 'no mail transport configured' }).where(eq(s.outbox.id, outboxId))
+    return { failed: 'no mail transport configured' }
+  }
+  try {
+    await deps.mailer.send({ to: m.to, subject: m.subject, text: m.text, html: m.html, headers: { [OUTBOX_HEADER]: String(outboxId) } })
+  } catch (err) {
+    const error = ((err as Error).message || String(err)).slice(0, 500)
+    console.warn(`[mail] sending "${m.kind}" #${outboxId} failed${last ? '' : ' (will try again)'}:`, error)
+    await deps.db.update(s.outbox).set({ status: last ? 'failed' : 'queued', error }).where(and(eq(s.outbox.id, outboxId), eq(s.outbox.status, 'queued')))
+    if (last) return { failed: error }
+    throw err
+  }
+  // The local test mailbox may already have marked it delivered; an earlier try's error no longer holds.
+  await deps.db.update(s.outbox).set({ status: 'sent', sentAt: new Date().toISOString() }).where(and(eq(s.outbox.id, outboxId), eq(s.outbox.status, 'queued')))
+  await deps.db.update(s.outbox).set({ error: null }).where(eq(s.outbox.id, outboxId))
+  return { sent: outboxId }
+}
+
+/** Records and sends in place; never throws: the outcome is returned. */
+async function sendNow(deps: Pick<Deps, 'db' | 'mailer'>, m: MailRequest) {
   const [row] = await deps.db.insert(s.outbox).values({
     workshopId: m.workshopId, to: m.to, subject: m.content.subject, text: (m.kept ?? m.content).text, html: (m.kept ?? m.content).html, kind: m.kind, orderId: m.orderId ?? null, meta: m.meta ?? {},
   }).returning({ id: s.outbox.id })
@@ -46,7 +97,7 @@ async function orderFacts(db: Db, workshopId: number, orderId: number) {
 }
 
 /** The customer's confirmation; `booking` says whether the steps are in the live plan (with their dates) or not yet. */
-export async function sendPromiseConfirmation(deps: Pick<Deps, 'db' | 'mailer'>, workshopId: number, orderId: number, booking: t.BookingFacts = { booked: false }) {
+export async function sendPromiseConfirmation(deps: Pick<Deps, 'db' | 'mailer' | 'jobs'>, workshopId: number, orderId: number, booking: t.BookingFacts = { booked: false }) {
   const f = await orderFacts(deps.db, workshopId, orderId)
   const promised = f.order.promisedDate ?? f.order.dueDate
   return sendRecorded(deps, {
@@ -55,7 +106,7 @@ export async function sendPromiseConfirmation(deps: Pick<Deps, 'db' | 'mailer'>,
   })
 }
 
-export async function sendReadyNotice(deps: Pick<Deps, 'db' | 'mailer'>, workshopId: number, orderId: number) {
+export async function sendReadyNotice(deps: Pick<Deps, 'db' | 'mailer' | 'jobs'>, workshopId: number, orderId: number) {
   const f = await orderFacts(deps.db, workshopId, orderId)
   return sendRecorded(deps, {
     workshopId, to: f.customerEmail, kind: 'ready-for-collection', orderId,
@@ -67,7 +118,7 @@ export async function sendReadyNotice(deps: Pick<Deps, 'db' | 'mailer'>, worksho
  * The managers' digest of job bags at risk or late on the live plan; those not in the previous digest are marked new.
  * Sends nothing when no job bag is at risk. Managers receive it; owners when the workshop has no manager.
  */
-export async function sendAtRiskDigest(deps: Pick<Deps, 'db' | 'mailer'>, workshopId: number, now = new Date()) {
+export async function sendAtRiskDigest(deps: Pick<Deps, 'db' | 'mailer' | 'jobs'>, workshopId: number, now = new Date()) {
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   if (!w) throw notFound('Workshop')
   const day = dayjs(now).tz(w.timeZone).format('YYYY-MM-DD')

@@ -31,7 +31,7 @@ async function rows(entity: string, entityId: number, action?: string): Promise<
 async function draft(): Promise<number> {
   const r = await manager.post('/api/plans/runs', { timeLimitSeconds: 1 })
   expect(r.status, JSON.stringify(r.body)).toBe(202)
-  const done = await waitForRun(r.body.id)
+  const done = await waitForRun(t.db, r.body.id)
   expect(done?.status).toBe('done')
   return done!.planId!
 }

@@ -68,7 +68,7 @@ const nextIds = async () => {
 async function draftAssignments() {
   const r = await manager.post('/api/plans/runs', { timeLimitSeconds: 1 })
   expect(r.status, JSON.stringify(r.body)).toBe(202)
-  const done = await waitForRun(r.body.id)
+  const done = await waitForRun(t.db, r.body.id)
   expect(done?.status, JSON.stringify(done)).toBe('done')
   const { rows: [p] } = await t.pool.query('select assignments from plan_versions where id = $1', [done!.planId])
   return p.assignments as Record<string, { start: string }>

@@ -15,7 +15,7 @@ const to = dayjs(from).add(27, 'day').format('YYYY-MM-DD')
 async function runPlanner(a: Agent, seconds = 1) {
   const r = await a.post('/api/plans/runs', { timeLimitSeconds: seconds })
   expect(r.status, JSON.stringify(r.body)).toBe(202)
-  const done = await waitForRun(r.body.id)
+  const done = await waitForRun(t.db, r.body.id)
   expect(done?.status, JSON.stringify(done)).toBe('done')
   return done!.planId!
 }
@@ -51,7 +51,7 @@ describe('planner runs and versions', () => {
     const before = (await manager.get('/api/plans')).body.length
     const r = await manager.post('/api/plans/runs', { timeLimitSeconds: 1 })
     expect(r.status, JSON.stringify(r.body)).toBe(202)
-    const done = await waitForRun(r.body.id)
+    const done = await waitForRun(t.db, r.body.id)
     expect(done, JSON.stringify(done)).toMatchObject({ status: 'done', planId: null, note: expect.stringMatching(/No better plan found/) })
     expect((await manager.get('/api/plans')).body.length).toBe(before)
   })
@@ -104,7 +104,7 @@ describe('planner runs and versions', () => {
     const r = await manager.post('/api/plans/runs', { timeLimitSeconds: 30 })
     await new Promise((res) => setTimeout(res, 600))
     expect((await manager.delete(`/api/plans/runs/${r.body.id}`)).status).toBe(200)
-    const end = await waitForRun(r.body.id)
+    const end = await waitForRun(t.db, r.body.id)
     expect(end?.status).toBe('cancelled')
     const after = await t.db.select({ id: s.operations.id, start: s.operations.plannedStart }).from(s.operations)
     expect(after).toEqual(before)

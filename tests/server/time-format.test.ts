@@ -42,7 +42,7 @@ beforeAll(async () => {
   // A planned and published workshop, so plans, the board and forecasts carry times.
   const run = await manager.post('/api/plans/runs', { timeLimitSeconds: 1 })
   expect(run.status, JSON.stringify(run.body)).toBe(202)
-  const done = await waitForRun(run.body.id)
+  const done = await waitForRun(t.db, run.body.id)
   expect(done?.status, JSON.stringify(done)).toBe('done')
   ids.runId = run.body.id
   ids.plan = done!.planId!

@@ -6,6 +6,8 @@ import { loadConfig } from '../../server/config'
 import { Realtime } from '../../server/realtime/hub'
 import { DEMO_PASSWORD } from '../../server/db/seed'
 import { createTestDb, type TestDb } from './db'
+import { createAppJobs, type Jobs } from '../../server/jobs/index'
+import type { Deps } from '../../server/lib/route'
 
 export const DEMO_EMAIL: Record<Role, string> = {
   owner: 'owner@wrenfield.test',
@@ -14,14 +16,17 @@ export const DEMO_EMAIL: Record<Role, string> = {
   sales: 'sales@wrenfield.test',
 }
 
-export interface TestApp extends TestDb { app: ReturnType<typeof createApp>['app']; realtime: Realtime; close(): Promise<void> }
+export interface TestApp extends TestDb { app: ReturnType<typeof createApp>['app']; realtime: Realtime; deps: Deps; jobs: Jobs; close(): Promise<void> }
 
 export async function createTestApp(overrides: Record<string, string> = {}): Promise<TestApp> {
   const tdb = await createTestDb()
   const config = loadConfig({ DATABASE_URL: tdb.url, SESSION_SECRET: 'test-secret-test-secret', NODE_ENV: 'test', LOGIN_ATTEMPTS_PER_15_MIN: '1000', ...overrides })
   const realtime = new Realtime()
-  const { app } = createApp({ db: tdb.db, pool: tdb.pool, config, realtime })
-  return { ...tdb, app, realtime, async close() { await realtime.close(); await tdb.drop() } }
+  // The job queue runs in the test process as it does in the server (planner runs, e-mails, the daily mail).
+  const jobs = createAppJobs(config)
+  const { app, deps } = createApp({ db: tdb.db, pool: tdb.pool, config, realtime, jobs })
+  await jobs.start(deps)
+  return { ...tdb, app, realtime, deps, jobs, async close() { await jobs.stop(); await realtime.close(); await tdb.drop() } }
 }
 
 /** An agent that keeps cookies and sends the CSRF token on writes. */

@@ -18,7 +18,7 @@ export async function publishFirstPlans(db: Db, seconds = 5): Promise<number[]> 
     const actor: Actor = { userId: planner.id, workshopId: w.id, role: planner.role, personId: null, name: planner.name }
     const deps = { db, realtime: new Realtime() }
     const run = await startRun(deps, actor, { timeLimitSeconds: seconds, seed: 1 })
-    const done = await waitForRun(run.id, (seconds + 30) * 1000)
+    const done = await waitForRun(db, run.id, (seconds + 30) * 1000)
     if (done?.status !== 'done' || !done.planId) continue
     await publishPlan(deps, actor, done.planId)
     published.push(done.planId)

@@ -1,7 +1,8 @@
-// Planner runs: one at a time per workshop, in a worker thread; progress is pushed live and the result becomes a draft plan.
+// Planner runs: a row any app instance can read and a queue job one instance takes (server/jobs); one run at a time per
+// workshop, solved in a worker thread, progress and a heartbeat written to the row and relayed live, the result saved once as a draft.
 import { randomUUID } from 'node:crypto'
-import { and, desc, eq, sql } from 'drizzle-orm'
-import type { Db } from '../../db/client'
+import { and, desc, eq, inArray, lt, sql } from 'drizzle-orm'
+import type { Db, Trx } from '../../db/client'
 import * as s from '../../db/schema/index'
 import { AppError } from '../../errors/app-error'
 import type { Actor, Deps } from '../../lib/route'
@@ -14,24 +15,8 @@ import { typicalDayMinutes, workingMinutesBetween } from '../../../shared/domain
 import { loadPlanningData, type PlanningData } from './problem'
 import { currentAssignments, toAssignments } from './assignments'
 import { LOCK } from '../../lib/locks'
-
-export interface RunState {
-  id: string
-  workshopId: number
-  status: 'running' | 'done' | 'cancelled' | 'failed'
-  startedAt: string
-  timeLimitSeconds: number
-  progress: { iteration: number; weightedTardiness: number; makespan: number; elapsedMs: number } | null
-  planId: number | null
-  error: string | null
-  /** Why a finished run left no draft (nothing better than the live plan). */
-  note: string | null
-  stability: 'small-changes' | 'best-dates'
-  controller: AbortController
-}
-
-const runs = new Map<string, RunState>()
-const publicRun = ({ controller: _c, ...r }: RunState) => r
+import { PLAN_RUN_TRIES, QUEUES } from '../../jobs/queue'
+import { isUniqueViolation } from '../versioned'
 
 /** Turns the engine's input errors into a 422 that names the job bag and operation. */
 export function planningError(err: unknown, data?: PlanningData): AppError | unknown {
@@ -53,49 +38,202 @@ export async function problemWithPrevious(db: Db, workshopId: number, now: Date)
   return data
 }
 
+export type PlanRunRow = typeof s.planRuns.$inferSelect
+
+/** What the API answers for a run (the same on every instance: it is read from the row). */
+export function publicRun(r: PlanRunRow) {
+  return {
+    id: r.id, workshopId: r.workshopId, status: r.status, startedAt: r.startedAt ?? r.createdAt, timeLimitSeconds: r.options.timeLimitSeconds,
+    progress: r.progress, planId: r.planId, error: r.error, note: r.note, stability: r.options.stability, cancelRequested: r.cancelRequested,
+  }
+}
+export type PublicRun = ReturnType<typeof publicRun>
+const ACTIVE = ['queued', 'running'] as const
+
+/** Runs taking place on this instance, with the attempt they hold (their writes name it). */
+const local = new Map<string, { attempt: number; controller: AbortController }>()
+
+/** Checks the problem here (a bad input is refused at once), stores the run and queues it in one transaction. */
 export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: number; seed: number; stability?: 'small-changes' | 'best-dates'; now?: Date }) {
-  for (const r of runs.values()) if (r.workshopId === actor.workshopId && r.status === 'running')
-    throw new AppError({ code: 'conflict', message: 'The planner is already running for this workshop; wait for it or stop it.', details: { runId: r.id } })
+  await refuseIfActive(deps.db, actor.workshopId)
   const data = await problemWithPrevious(deps.db, actor.workshopId, o.now ?? new Date())
   try {
     checkProblem(data.problem)
   } catch (err) {
     throw planningError(err, data)
   }
-  const run: RunState = { id: randomUUID(), workshopId: actor.workshopId, status: 'running', startedAt: new Date().toISOString(), timeLimitSeconds: o.timeLimitSeconds, progress: null, planId: null, error: null, note: null, stability: o.stability ?? 'small-changes', controller: new AbortController() }
-  runs.set(run.id, run)
-  let lastEmit = 0
-  void runInWorker(data.problem, { seed: o.seed, timeLimitMs: o.timeLimitSeconds * 1000, stability: run.stability }, {
-    signal: run.controller.signal,
-    onProgress: (p) => {
-      run.progress = { iteration: p.iteration, weightedTardiness: p.best.weightedTardiness, makespan: p.best.makespan, elapsedMs: p.elapsedMs }
-      if (p.elapsedMs - lastEmit > 250) {
-        lastEmit = p.elapsedMs
-        deps.realtime.emitTransient(actor.workshopId, 'plan:progress', { runId: run.id, ...run.progress })
+  const options: s.PlanRunOptions = { timeLimitSeconds: o.timeLimitSeconds, seed: o.seed, stability: o.stability ?? 'small-changes', ...(o.now ? { now: o.now.toISOString() } : {}) }
+  let row: PlanRunRow
+  try {
+    row = await deps.db.transaction(async (tx) => {
+      const [r] = await tx.insert(s.planRuns).values({ id: randomUUID(), workshopId: actor.workshopId, createdBy: actor.userId, options }).returning()
+      if (!deps.jobs) return r!
+      const jobId = await deps.jobs.send(QUEUES.planRun, { runId: r!.id }, { tx })
+      const [withJob] = await tx.update(s.planRuns).set({ jobId }).where(eq(s.planRuns.id, r!.id)).returning()
+      return withJob!
+    })
+  } catch (err) {
+    // Two managers pressing at once (on one instance or two): the database keeps one active run per workshop.
+    if (isUniqueViolation(err)) await refuseIfActive(deps.db, actor.workshopId)
+    throw err
+  }
+  if (deps.jobs) deps.jobs.wake(QUEUES.planRun)
+  // Without a queue (the demo's first plan from a script) the run takes place here.
+  else void runPlanJob(deps, { runId: row.id }).catch((err) => console.error('[planner] run failed:', err))
+  return publicRun(row)
+}
+
+async function refuseIfActive(db: Db, workshopId: number) {
+  const [r] = await db.select({ id: s.planRuns.id }).from(s.planRuns).where(and(eq(s.planRuns.workshopId, workshopId), inArray(s.planRuns.status, [...ACTIVE])))
+  if (r) throw new AppError({ code: 'conflict', message: 'The planner is already running for this workshop; wait for it or stop it.', details: { runId: r.id } })
+}
+
+/**
+ * The queue's handler: takes the run (a new attempt), solves, and saves the draft in a transaction that first checks
+ * the row is still held by this attempt — a run another instance took over meanwhile saves nothing here.
+ */
+export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?: { id: string }) {
+  const [row] = await deps.db.update(s.planRuns)
+    .set({ status: 'running', attempt: sql`${s.planRuns.attempt} + 1`, instance: deps.jobs?.instance ?? 'local', jobId: job?.id ?? sql`${s.planRuns.jobId}`, startedAt: sql`coalesce(${s.planRuns.startedAt}, now())`, heartbeatAt: sql`now()`, error: null })
+    .where(and(eq(s.planRuns.id, runId), inArray(s.planRuns.status, [...ACTIVE]))).returning()
+  if (!row) return { skipped: 'the run has ended already' }
+  const held = and(eq(s.planRuns.id, runId), eq(s.planRuns.attempt, row.attempt), eq(s.planRuns.status, 'running'))
+  const o = row.options
+  const controller = new AbortController()
+  let lost = false
+  let progress: s.PlanRunProgress | null = row.progress
+  let data: PlanningData | undefined
+  /** Ends the run if this attempt still holds it; says whether it did. */
+  const finish = async (set: Partial<typeof s.planRuns.$inferInsert>) =>
+    (await deps.db.update(s.planRuns).set({ ...set, progress, finishedAt: sql`now()` }).where(held).returning({ id: s.planRuns.id })).length > 0
+  if (row.cancelRequested) return finish({ status: 'cancelled' })
+  local.set(runId, { attempt: row.attempt, controller })
+  const beatMs = Math.min(2000, ((deps.jobs?.timing.staleRunSeconds ?? 30) * 1000) / 4)
+  const beat = setInterval(() => {
+    deps.db.update(s.planRuns).set({ heartbeatAt: sql`now()`, progress }).where(held).returning({ cancel: s.planRuns.cancelRequested })
+      .then(([r]) => {
+        if (!r) { lost = true; controller.abort() } // taken over by another instance (this one looked gone) or ended
+        else if (r.cancel) controller.abort()
+      }, (err) => console.error('[planner] heartbeat failed:', (err as Error).message))
+  }, beatMs)
+  try {
+    const loaded = await problemWithPrevious(deps.db, row.workshopId, o.now ? new Date(o.now) : new Date())
+    data = loaded
+    checkProblem(loaded.problem)
+    let lastEmit = 0
+    const plan = await runInWorker(loaded.problem, { seed: o.seed, timeLimitMs: o.timeLimitSeconds * 1000, stability: o.stability }, {
+      signal: controller.signal,
+      onProgress: (p) => {
+        progress = { iteration: p.iteration, weightedTardiness: p.best.weightedTardiness, makespan: p.best.makespan, elapsedMs: p.elapsedMs }
+        if (p.elapsedMs - lastEmit > 250) {
+          lastEmit = p.elapsedMs
+          deps.realtime.emitTransient(row.workshopId, 'plan:progress', { runId, ...progress })
+        }
+      },
+    })
+    if (controller.signal.aborted) {
+      if (!lost) await finish({ status: 'cancelled' })
+      return { cancelled: true }
+    }
+    // A plan that breaks a rule (say, a pin its earlier steps cannot reach) is never offered as a draft.
+    if (!plan.score.feasible) throw new AppError({ code: 'unprocessable', message: `The planner found no plan that keeps every rule: ${plan.score.violations.slice(0, 3).join('; ')}. Unpin or move the step concerned and run again.` })
+    // A draft is offered only when it beats the live plan kept as it is (re-timed from now).
+    const live = plan.stats.previous
+    if (live && !betterThanLive(plan.score, live, o.stability)) {
+      await finish({ status: 'done', note: `No better plan found in ${o.timeLimitSeconds} s: the live plan stays as it is.` })
+      return { planId: null }
+    }
+    const actor = await actorOf(deps.db, row)
+    const planId = await deps.db.transaction(async (tx) => {
+      const [cur] = await tx.select().from(s.planRuns).where(eq(s.planRuns.id, runId)).for('update')
+      if (!cur || cur.status !== 'running' || cur.attempt !== row.attempt) return null
+      if (cur.cancelRequested) {
+        await tx.update(s.planRuns).set({ status: 'cancelled', progress, finishedAt: sql`now()` }).where(eq(s.planRuns.id, runId))
+        return null
       }
-    },
+      const id = await saveDraft(tx, actor, loaded, plan)
+      await tx.update(s.planRuns).set({ status: 'done', planId: id, progress, finishedAt: sql`now()` }).where(eq(s.planRuns.id, runId))
+      return id
+    })
+    if (planId) deps.realtime.emit(row.workshopId, 'plan:drafted', { id: planId, runId })
+    return { planId }
+  } catch (err) {
+    if (lost) return { lost: true }
+    if (controller.signal.aborted) {
+      await finish({ status: 'cancelled' })
+      return { cancelled: true }
+    }
+    const error = String((planningError(err, data) as Error).message ?? err)
+    if (await finish({ status: 'failed', error })) {
+      console.error('[planner] run failed:', err)
+      deps.realtime.emit(row.workshopId, 'plan:failed', { runId, error })
+    }
+    return { failed: error }
+  } finally {
+    clearInterval(beat)
+    local.delete(runId)
+  }
+}
+
+/** The manager who asked for the run (drafts and the audit name them). */
+async function actorOf(db: Db, row: PlanRunRow): Promise<Actor> {
+  const [u] = row.createdBy ? await db.select().from(s.users).where(eq(s.users.id, row.createdBy)) : []
+  return { userId: u?.id ?? 0, workshopId: row.workshopId, role: u?.role ?? 'manager', personId: null, name: u?.name ?? 'planner' }
+}
+
+/**
+ * Every instance, every few seconds: a running run whose instance stopped writing its heartbeat is queued again (a new job;
+ * the old one is cancelled so it is not retried as well), or failed — visibly, with an event — once it has had its tries.
+ * A queued run whose job is gone (failed in the queue itself) is failed too.
+ */
+export async function recoverStaleRuns(deps: Deps) {
+  const jobs = deps.jobs
+  if (!jobs) return
+  const staleSeconds = jobs.timing.staleRunSeconds
+  const failed = await deps.db.transaction(async (tx) => {
+    const out: PlanRunRow[] = []
+    const stale = await tx.select().from(s.planRuns)
+      .where(and(eq(s.planRuns.status, 'running'), lt(s.planRuns.heartbeatAt, sql`now() - make_interval(secs => ${staleSeconds})`)))
+      .for('update', { skipLocked: true })
+    for (const r of stale) {
+      if (r.jobId) await jobs.cancel(QUEUES.planRun, r.jobId, { tx })
+      if (r.attempt >= PLAN_RUN_TRIES) {
+        const [f] = await tx.update(s.planRuns).set({ status: 'failed', finishedAt: sql`now()`, error: `The planner stopped answering ${r.attempt} times (the app instance running it went away). Nothing was changed; start it again.` }).where(eq(s.planRuns.id, r.id)).returning()
+        out.push(f!)
+      } else {
+        const jobId = await jobs.send(QUEUES.planRun, { runId: r.id }, { tx })
+        await tx.update(s.planRuns).set({ status: 'queued', instance: null, jobId }).where(eq(s.planRuns.id, r.id))
+        console.warn(`[planner] run ${r.id} lost its instance (${r.instance}); queued again`)
+      }
+    }
+    const orphans = await tx.select().from(s.planRuns)
+      .where(and(eq(s.planRuns.status, 'queued'), lt(s.planRuns.createdAt, sql`now() - make_interval(secs => ${staleSeconds * 2})`)))
+      .for('update', { skipLocked: true })
+    for (const r of orphans) {
+      const alive = r.jobId ? await tx.execute(sql`select 1 from pgboss.job where name = ${QUEUES.planRun} and id = ${r.jobId}::uuid and state in ('created', 'retry', 'active')`) : { rows: [] }
+      if (alive.rows.length) continue
+      const [f] = await tx.update(s.planRuns).set({ status: 'failed', finishedAt: sql`now()`, error: 'The planner run was lost from the queue before it started. Nothing was changed; start it again.' }).where(eq(s.planRuns.id, r.id)).returning()
+      out.push(f!)
+    }
+    return out
   })
-    .then(async (plan) => {
-      if (run.controller.signal.aborted) { run.status = 'cancelled'; return }
-      // A plan that breaks a rule (say, a pin its earlier steps cannot reach) is never offered as a draft.
-      if (!plan.score.feasible) throw new AppError({ code: 'unprocessable', message: `The planner found no plan that keeps every rule: ${plan.score.violations.slice(0, 3).join('; ')}. Unpin or move the step concerned and run again.` })
-      // A draft is offered only when it beats the live plan kept as it is (re-timed from now).
-      const live = plan.stats.previous
-      if (live && !betterThanLive(plan.score, live, run.stability)) {
-        run.status = 'done'
-        run.note = `No better plan found in ${o.timeLimitSeconds} s: the live plan stays as it is.`
-        return
-      }
-      run.planId = await saveDraft(deps, actor, data, plan)
-      run.status = 'done'
-      deps.realtime.emit(actor.workshopId, 'plan:drafted', { id: run.planId, runId: run.id })
-    })
-    .catch((err) => {
-      run.status = run.controller.signal.aborted ? 'cancelled' : 'failed'
-      run.error = run.status === 'cancelled' ? null : String((planningError(err, data) as Error).message ?? err)
-      if (run.status === 'failed') console.error('[planner] run failed:', err)
-    })
-  return publicRun(run)
+  for (const r of failed) deps.realtime.emit(r.workshopId, 'plan:failed', { runId: r.id, error: r.error ?? '' })
+  jobs.wake(QUEUES.planRun)
+}
+
+/** Before this instance stops: its runs go back to the queue (a new job) for another instance, and stop here. */
+export async function releaseLocalRuns(deps: Deps) {
+  for (const [runId, l] of [...local]) {
+    await deps.db.transaction(async (tx) => {
+      const [r] = await tx.update(s.planRuns).set({ status: 'queued', instance: null })
+        .where(and(eq(s.planRuns.id, runId), eq(s.planRuns.attempt, l.attempt), eq(s.planRuns.status, 'running'))).returning()
+      if (!r || !deps.jobs) return
+      if (r.jobId) await deps.jobs.cancel(QUEUES.planRun, r.jobId, { tx })
+      const jobId = await deps.jobs.send(QUEUES.planRun, { runId }, { tx })
+      await tx.update(s.planRuns).set({ jobId }).where(eq(s.planRuns.id, runId))
+    }).catch((err) => console.error('[planner] could not hand a run back:', (err as Error).message))
+    l.controller.abort()
+  }
 }
 
 /** Less weighted lateness always counts; an earlier finish at equal lateness only when the manager asked for best dates. */
@@ -104,43 +242,46 @@ export function betterThanLive(score: { weightedTardiness: number; makespan: num
   return stability === 'best-dates' && score.makespan < live.makespan
 }
 
-export function getRun(actor: Actor, id: string) {
-  const r = runs.get(id)
-  if (!r || r.workshopId !== actor.workshopId) throw new AppError({ code: 'not-found', message: 'Planner run not found' })
+export async function getRun(db: Db, actor: Actor, id: string) {
+  const [r] = await db.select().from(s.planRuns).where(and(eq(s.planRuns.id, id), eq(s.planRuns.workshopId, actor.workshopId)))
+  if (!r) throw new AppError({ code: 'not-found', message: 'Planner run not found' })
   return publicRun(r)
 }
 
-export function cancelRun(actor: Actor, id: string) {
-  const r = runs.get(id)
-  if (!r || r.workshopId !== actor.workshopId) throw new AppError({ code: 'not-found', message: 'Planner run not found' })
-  if (r.status === 'running') r.controller.abort()
-  return publicRun(r)
+/** A queued run ends at once; a running one is asked to stop (its instance sees it at the next heartbeat, this one at once). */
+export async function cancelRun(db: Db, actor: Actor, id: string) {
+  const mine = and(eq(s.planRuns.id, id), eq(s.planRuns.workshopId, actor.workshopId))
+  const [r] = await db.select().from(s.planRuns).where(mine)
+  if (!r) throw new AppError({ code: 'not-found', message: 'Planner run not found' })
+  await db.update(s.planRuns).set({ status: 'cancelled', finishedAt: sql`now()` }).where(and(mine, eq(s.planRuns.status, 'queued')))
+  await db.update(s.planRuns).set({ cancelRequested: true }).where(and(mine, eq(s.planRuns.status, 'running')))
+  local.get(id)?.controller.abort()
+  return getRun(db, actor, id)
 }
 
-/** Waits for a run to end (used by tests and the CLI-like callers). */
-export async function waitForRun(id: string, timeoutMs = 120_000) {
+/** Waits for a run to end, reading its row (used by tests and the demo's first plan). */
+export async function waitForRun(db: Db, id: string, timeoutMs = 120_000) {
   const t0 = Date.now()
   for (;;) {
-    const r = runs.get(id)
-    if (!r || r.status !== 'running') return r ? publicRun(r) : undefined
+    const [r] = await db.select().from(s.planRuns).where(eq(s.planRuns.id, id))
+    if (!r || !(ACTIVE as readonly string[]).includes(r.status)) return r ? publicRun(r) : undefined
     if (Date.now() - t0 > timeoutMs) throw new Error('run did not end in time')
     await new Promise((res) => setTimeout(res, 50))
   }
 }
 
-async function saveDraft(deps: Deps, actor: Actor, data: PlanningData, plan: Plan) {
-  return deps.db.transaction(async (tx) => {
-    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
-    const [last] = await tx.select({ n: s.planVersions.number }).from(s.planVersions).where(eq(s.planVersions.workshopId, actor.workshopId)).orderBy(desc(s.planVersions.number)).limit(1)
-    const [published] = await tx.select({ id: s.planVersions.id }).from(s.planVersions).where(and(eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'published')))
-    const [row] = await tx.insert(s.planVersions).values({
-      workshopId: actor.workshopId, number: (last?.n ?? 0) + 1, status: 'draft', createdBy: actor.userId,
-      score: { ...summarise(data, plan), basedOnPlanId: published?.id ?? null },
-      assignments: toAssignments(data, plan),
-    }).returning({ id: s.planVersions.id })
-    await audit(tx, actor, 'draft', 'plan', row!.id, { weightedTardiness: plan.score.weightedTardiness, makespan: plan.score.makespan })
-    return row!.id
-  })
+/** Inside the transaction that marks the run done (its row locked and still held by this attempt). */
+async function saveDraft(tx: Trx, actor: Actor, data: PlanningData, plan: Plan) {
+  await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
+  const [last] = await tx.select({ n: s.planVersions.number }).from(s.planVersions).where(eq(s.planVersions.workshopId, actor.workshopId)).orderBy(desc(s.planVersions.number)).limit(1)
+  const [published] = await tx.select({ id: s.planVersions.id }).from(s.planVersions).where(and(eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'published')))
+  const [row] = await tx.insert(s.planVersions).values({
+    workshopId: actor.workshopId, number: (last?.n ?? 0) + 1, status: 'draft', createdBy: actor.userId,
+    score: { ...summarise(data, plan), basedOnPlanId: published?.id ?? null },
+    assignments: toAssignments(data, plan),
+  }).returning({ id: s.planVersions.id })
+  await audit(tx, actor, 'draft', 'plan', row!.id, { weightedTardiness: plan.score.weightedTardiness, makespan: plan.score.makespan })
+  return row!.id
 }
 
 function summarise(data: PlanningData, plan: Plan) {

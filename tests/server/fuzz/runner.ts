@@ -26,6 +26,12 @@ const OPAQUE_BODIES: Record<string, ZodType> = {
 export interface Target { key: string; spec: RouteSpec; body?: Record<string, any>; query?: Record<string, any>; notes: string[] }
 export interface Plan { targets: Target[]; excluded: { key: string; reason: string }[] }
 
+/** Routes that end or change the fuzzing agent's own session when they succeed. */
+export const SESSION_CHANGERS: Record<string, string> = {
+  'DELETE /session/everywhere': 'ends every session of the fuzzing agent (covered by tests/server/accounts.test.ts)',
+  'POST /bench-station': 'turns the fuzzing agent\'s session into a bench station (covered by tests/server/accounts.test.ts)',
+}
+
 /** Every route of the list, minus those that cannot be fuzzed with JSON (said with the reason). */
 export function planTargets(routes: RouteSpec[]): Plan {
   const targets: Target[] = []
@@ -33,6 +39,7 @@ export function planTargets(routes: RouteSpec[]): Plan {
   for (const spec of routes) {
     const key = keyOf(spec)
     if (key === 'DELETE /session') { excluded.push({ key, reason: 'ends the session of the fuzzing agent (sign-out is covered by tests/server/session.test.ts)' }); continue }
+    if (SESSION_CHANGERS[key]) { excluded.push({ key, reason: SESSION_CHANGERS[key]! }); continue }
     if (spec.method === 'post' && /multipart|upload/i.test(spec.summary)) { excluded.push({ key, reason: 'multipart file upload, not a JSON body (covered by tests/server/files.test.ts)' }); continue }
     const notes: string[] = []
     let body = spec.body ? jsonSchemaOf(spec.body) : undefined

@@ -32,7 +32,8 @@ export const resolveBenchPerson: RequestHandler = (req, _res, next) => {
   next(pinFirst(sent ? 'Your PIN time is over; tap your name and enter your PIN again.' : 'Tap your name and enter your PIN first.'))
 }
 
-/** After a write made with a PIN, the PIN session ends, so the next person must enter theirs. */
+/** After a write made with a PIN, that PIN session ends (not one opened by this very request), so the next person must enter theirs. */
 export function endPinAfterWrite(req: Request) {
-  if (req.method !== 'GET' && (req as BenchPersonRequest).benchPerson) delete req.session.benchPerson
+  const used = (req as BenchPersonRequest).benchPerson
+  if (req.method !== 'GET' && used && req.session.benchPerson?.tokenHash === used.tokenHash) delete req.session.benchPerson
 }

@@ -317,6 +317,16 @@ describe('bench station and PINs', () => {
     expect(a2!.details).toMatchObject({ personId: hand, actingPersonName: 'Tomas Vane', station: 'Setting bench A' })
   })
 
+  it('when the next person enters their PIN while the tablet still sends the last token, then the new PIN session is the one that stays', async () => {
+    const first = await station.post('/api/bench-station/pin', { personId: ines, pin: '4821' })
+    const second = await station.agent.post('/api/bench-station/pin').set('x-csrf-token', station.csrf).set('x-bench-person', first.body.token).send({ personId: hand, pin: '907153' })
+    expect(second.status, JSON.stringify(second.body)).toBe(200)
+    const mine = await station.agent.get('/api/bench/mine').set('x-bench-person', second.body.token)
+    expect(mine.body.person).toMatchObject({ id: hand })
+    expect((await station.agent.get('/api/bench/mine').set('x-bench-person', first.body.token)).status).toBe(422)
+    await station.delete('/api/bench-station/pin')
+  })
+
   it('when the PIN time runs out, then the token is refused', async () => {
     const pin = await station.post('/api/bench-station/pin', { personId: ines, pin: '4821' })
     const { rows: [s] } = await t.pool.query(`select sid, sess from user_sessions where sess::jsonb -> 'station' is not null`)

@@ -90,7 +90,7 @@ export async function getJobBag(db: Tx, workshopId: number, id: number): Promise
     .where(and(eq(auditLog.workshopId, workshopId), or(and(eq(auditLog.entity, 'job-bag'), eq(auditLog.entityId, id)), ids.length ? and(eq(auditLog.entity, 'operation'), inArray(auditLog.entityId, ids)) : undefined)))
     .orderBy(desc(auditLog.at), desc(auditLog.id)).limit(500)
   const history: HistoryEntry[] = [
-    ...audits.map(({ a, who }) => ({ at: new Date(a.at).toISOString(), kind: 'audit' as const, action: a.action, operationId: a.entity === 'operation' ? a.entityId : null, who: who ?? '', details: a.details })),
+    ...audits.map(({ a, who }) => ({ at: new Date(a.at).toISOString(), kind: 'audit' as const, action: a.action, operationId: a.entity === 'operation' ? a.entityId : null, who: (typeof a.details.actingPersonName === 'string' ? a.details.actingPersonName : who) ?? '', details: a.details })),
     ...records.map((r) => ({ at: r.startedAt, kind: 'time' as const, action: r.voided ? 'time-voided' : r.endedAt ? 'time' : 'time-open', operationId: r.operationId, who: r.personName, details: { timeRecordId: r.id, startedAt: r.startedAt, endedAt: r.endedAt, minutes: r.minutes, endReason: r.endReason, note: r.note, corrected: r.corrections.some((c) => c.kind !== 'add'), added: r.corrections.some((c) => c.kind === 'add') } })),
   ].sort((x, y) => y.at.localeCompare(x.at))
   const next = operationsOut.find((x) => x.status === 'ready') ?? operationsOut.find((x) => ['claimed', 'paused', 'running'].includes(x.status))

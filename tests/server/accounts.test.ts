@@ -315,6 +315,9 @@ describe('bench station and PINs', () => {
     expect(c2.body.operation).toMatchObject({ claimedBy: hand, claimedByName: 'Tomas Vane' })
     const [a2] = await auditRows(t, 'operation', op2.id)
     expect(a2!.details).toMatchObject({ personId: hand, actingPersonName: 'Tomas Vane', station: 'Setting bench A' })
+    // The job bag's history names him, not the manager who set the station up.
+    const bag = (await owner.get(`/api/job-bags/${op2.job_bag_id}`)).body
+    expect(bag.history.find((h: { action: string; operationId: number | null }) => h.action === 'claim' && h.operationId === op2.id)).toMatchObject({ who: 'Tomas Vane' })
   })
 
   it('when the next person enters their PIN while the tablet still sends the last token, then the new PIN session is the one that stays', async () => {

@@ -178,7 +178,9 @@ export async function createHttpServer(config: Pick<Config, 'TLS' | 'TLS_DIR' | 
  * when the workshop has set no public address), and how to trust the workshop's certificate on a tablet.
  */
 export async function lanBanner(o: { host: string; port: number; interfaces?: Interfaces }): Promise<string> {
-  const ips = isWildcard(o.host.trim()) ? lanIPv4Addresses(o.interfaces ?? networkInterfaces()) : [o.host]
+  const host = o.host.trim()
+  if (host === 'localhost' || host === '::1' || /^127\./.test(host)) return `HTTPS on this computer only (HOST=${host}): tablets cannot reach it; start without HOST to listen on the workshop network.`
+  const ips = isWildcard(host) ? lanIPv4Addresses(o.interfaces ?? networkInterfaces()) : [host]
   const urls = ips.map((ip) => `https://${ip.includes(':') ? `[${ip}]` : ip}:${o.port}`)
   if (!urls.length) return `No network address found: only this computer can open https://localhost:${o.port} (connect it to the workshop network and start again).`
   const lines = ['Tablets on the workshop network open:', ...urls.map((u) => `  ${u}`)]

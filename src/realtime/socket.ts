@@ -13,6 +13,9 @@ export const RECORDED_EVENTS = [
 ] as const satisfies readonly EventName[]
 export const LIVE_ONLY_EVENTS = ['plan:progress'] as const satisfies readonly EventName[]
 
+/** How far below the highest number an unseen event may arrive and still be a late one (a restart starts far lower). */
+export const LATE_WINDOW = 1000
+
 export interface CaughtUpEvent { seq: number; event: string; payload: unknown }
 type Handler = (payload: Record<string, unknown>, event: string) => void
 type Listener = (...args: any[]) => void
@@ -101,8 +104,8 @@ export class LiveChannel {
     const seq = typeof payload?.seq === 'number' ? payload.seq : null
     if (seq === null) return this.dispatch(event, payload)
     if (this.delivered.has(seq)) return
-    if (seq < this.lastSeq) {
-      // Never seen and older than what we have: the server's numbering started again (restart).
+    if (seq < this.lastSeq - LATE_WINDOW) {
+      // Never seen and far below what we have: the numbering started again (a new database).
       this.delivered.clear()
       this.lastSeq = seq
       this.mark(seq)
@@ -110,6 +113,8 @@ export class LiveChannel {
       this.resync([])
       return
     }
+    // A number a little below the last one is a late arrival, not a restart: several app instances number their
+    // events in one database, and one instance's broadcast can overtake another's.
     this.mark(seq)
     this.dispatch(event, payload)
   }

@@ -139,7 +139,7 @@ describe('catch-up after a reconnect', () => {
     expect(resync).toHaveBeenCalledTimes(1)
   })
 
-  it('when the server restarted and numbers from 1 again, then new events still arrive and the board resyncs', () => {
+  it('when the numbering started again far below (a new database), then new events still arrive and the board resyncs', () => {
     const s = new FakeSocket()
     const ch = new LiveChannel(s)
     const got: number[] = []
@@ -147,12 +147,29 @@ describe('catch-up after a reconnect', () => {
     ch.onAnyChange((p) => got.push(p.seq as number))
     ch.onResync(resync)
     s.serverConnects()
-    s.fire('plan:changed', ev(40))
+    s.fire('plan:changed', ev(5000))
     s.fire('plan:changed', ev(1))
     s.fire('plan:changed', ev(2))
-    expect(got).toEqual([40, 1, 2])
+    expect(got).toEqual([5000, 1, 2])
     expect(ch.lastSeq).toBe(2)
     expect(resync).toHaveBeenCalledTimes(1)
+  })
+
+  it('when another instance\'s event overtakes one with a smaller number, then both are delivered once, without a resync', () => {
+    const s = new FakeSocket()
+    const ch = new LiveChannel(s)
+    const got: number[] = []
+    const resync = vi.fn()
+    ch.onAnyChange((p) => got.push(p.seq as number))
+    ch.onResync(resync)
+    s.serverConnects()
+    s.fire('plan:changed', ev(41))
+    s.fire('plan:changed', ev(40))
+    s.fire('plan:changed', ev(40))
+    s.fire('plan:changed', ev(42))
+    expect(got).toEqual([41, 40, 42])
+    expect(ch.lastSeq).toBe(42)
+    expect(resync).not.toHaveBeenCalled()
   })
 
   it('when the server refused the connection (session not ready), then it tries again by itself', () => {

@@ -15,6 +15,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { loadConfig } from '../../server/config'
 import { ownAppUrl } from '../../server/lib/public-url'
 import { ensureCertificate, lanBanner } from '../../server/lib/tls'
+import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { DEMO_EMAIL, startTestServer } from '../setup/app'
 import { DEMO_PASSWORD } from '../../server/db/seed'
 
@@ -22,6 +23,7 @@ type Srv = Awaited<ReturnType<typeof startTestServer>>
 const dir = mkdtempSync(join(tmpdir(), 'mg-tls-'))
 let srv: Srv
 let ca: string
+let mailbox: FakeSmtp
 
 /** The machine's own non-loopback IPv4 addresses, read here straight from node:os (never contacted). */
 const machineIPv4 = Object.values(networkInterfaces()).flat().filter((a) => a && a.family === 'IPv4' && !a.internal).map((a) => a!.address)
@@ -43,23 +45,26 @@ function get(path: string, o: RequestOptions & { body?: string } = {}): Promise<
   })
 }
 
-async function signIn() {
+async function signIn(email = DEMO_EMAIL.manager) {
   const a = await get('/api/session')
   let cookie = String(a.headers['set-cookie']?.[0] ?? '').split(';')[0]!
   const { csrfToken } = JSON.parse(a.body.toString()) as { csrfToken: string }
-  const body = JSON.stringify({ email: DEMO_EMAIL.manager, password: DEMO_PASSWORD })
+  const body = JSON.stringify({ email, password: DEMO_PASSWORD })
   const b = await get('/api/session', { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie, 'content-length': String(Buffer.byteLength(body)) }, body })
   expect(b.status).toBe(200)
   cookie = String(b.headers['set-cookie']?.[0] ?? cookie).split(';')[0]!
-  return cookie
+  return { cookie, csrf: (JSON.parse(b.body.toString()) as { csrfToken: string }).csrfToken }
 }
 
 beforeAll(async () => {
-  srv = await startTestServer({ HOST: '127.0.0.1', TLS: '1', TLS_DIR: dir })
+  mailbox = await startFakeSmtp()
+  srv = await startTestServer({ HOST: '127.0.0.1', TLS: '1', TLS_DIR: dir, SMTP_URL: mailbox.url })
+  mailbox.useDb(srv.db)
   ca = readFileSync(join(dir, 'millgrain-ca.crt'), 'utf8')
 }, 60_000)
 afterAll(async () => {
   await srv?.stop()
+  await mailbox?.close()
   rmSync(dir, { recursive: true, force: true })
 })
 
@@ -117,7 +122,7 @@ describe('https on loopback with the workshop certificate', () => {
   })
 
   it('when a signed-in tablet opens Socket.IO over the same https port, then it connects', async () => {
-    const cookie = await signIn()
+    const { cookie } = await signIn()
     const socket = connect(srv.url, { transports: ['websocket'], extraHeaders: { cookie }, ca, reconnection: false })
     try {
       await new Promise<void>((resolve, reject) => { socket.once('connect', () => resolve()); socket.once('connect_error', reject) })
@@ -135,7 +140,7 @@ describe('https on loopback with the workshop certificate', () => {
   })
 
   it('when a ticket is printed over https with no public address set, then its QR code holds an https link to the job bag', async () => {
-    const cookie = await signIn()
+    const { cookie } = await signIn()
     const bags = JSON.parse((await get('/api/job-bags', { headers: { cookie } })).body.toString()) as { id: number }[]
     const id = bags[0]!.id
     const r = await get(`/api/job-bags/${id}/ticket.pdf`, { headers: { cookie } })
@@ -148,6 +153,16 @@ describe('https on loopback with the workshop certificate', () => {
     // The seeded demo sets no public address; the suggestion is this machine's first network IPv4 address on the server's port, else the address asked.
     const port = new URL(srv.url).port
     expect(link).toBe(machineIPv4.length ? `https://${machineIPv4[0]}:${port}/job-bags/${id}` : `${srv.url}/job-bags/${id}`)
+  })
+
+  it('when an invitation is e-mailed over https with no public address set, then its link is an https address of this server', async () => {
+    const { cookie, csrf } = await signIn(DEMO_EMAIL.owner)
+    const body = JSON.stringify({ email: 'tablet@lan.test', name: 'Lan Tablet', role: 'bench' })
+    const r = await get('/api/invitations', { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrf, cookie, 'content-length': String(Buffer.byteLength(body)) }, body })
+    expect(r.status, r.body.toString()).toBe(201)
+    const m = await mailbox.waitFor((x) => x.to.includes('tablet@lan.test'), 15_000)
+    // Listening on loopback, the link names the address asked (server/services/accounts.ts linkBase), now over https.
+    expect(m.text).toMatch(new RegExp(`${srv.url.replace(/[.:/]/g, '\\$&')}/welcome/[A-Za-z0-9_-]+`))
   })
 })
 

@@ -127,7 +127,8 @@ export interface RunProgress {
 
 export interface PlanRun {
   id: string
-  status: 'running' | 'done' | 'cancelled' | 'failed'
+  /** queued: waiting for an app instance to take it; running: solving (on whichever instance took it). */
+  status: 'queued' | 'running' | 'done' | 'cancelled' | 'failed'
   startedAt: string
   timeLimitSeconds: number
   progress: RunProgress | null
@@ -135,7 +136,12 @@ export interface PlanRun {
   error: string | null
   note: string | null
   stability: 'small-changes' | 'best-dates'
+  /** Stop was asked for; the instance running it stops within seconds. */
+  cancelRequested?: boolean
 }
+
+/** A run still waiting or solving (the dialog shows its progress, a second run is refused). */
+export const runActive = (r: Pick<PlanRun, 'status'> | null | undefined) => r?.status === 'queued' || r?.status === 'running'
 
 export interface Assignment {
   benchId: string | null

@@ -44,6 +44,8 @@ export interface LiveBoardHooks {
   reload: () => void | Promise<void>
   onProgress?: (p: RunProgress & { runId: string }) => void
   onDrafted?: (p: { id: number; runId?: string }) => void
+  /** A planner run ended with an error (any manager's; the handler checks whether it is ours). */
+  onFailed?: (p: { runId: string; error: string }) => void
   /** Any recorded change, before the debounced reload (e.g. to note who moved what). */
   onChange?: (event: string, payload: Record<string, unknown>) => void
   debounceMs?: number
@@ -63,6 +65,7 @@ export function useLiveBoard(h: LiveBoardHooks): { state: ShallowRef<ConnectionS
     }),
     channel.on('plan:progress', (p) => h.onProgress?.(p as unknown as RunProgress & { runId: string })),
     channel.on('plan:drafted', (p) => h.onDrafted?.(p as unknown as { id: number; runId?: string })),
+    channel.on('plan:failed', (p) => h.onFailed?.(p as unknown as { runId: string; error: string })),
     // After a reconnect the missed events were replayed above; reload at once whatever they were.
     channel.onResync(() => {
       reload.cancel()

@@ -8,7 +8,7 @@ export type ConnectionState = 'connecting' | 'connected' | 'reconnecting' | 'off
 /** Events the server records with a `seq` (catch-up works for these); `plan:progress` is live only. */
 export const RECORDED_EVENTS = [
   'order:created', 'order:updated', 'operation:changed', 'jobBag:changed',
-  'plan:drafted', 'plan:published', 'plan:discarded', 'plan:changed', 'masterdata:changed', 'file:added', 'file:removed',
+  'plan:drafted', 'plan:published', 'plan:discarded', 'plan:changed', 'plan:failed', 'masterdata:changed', 'file:added', 'file:removed',
   'quote:changed', 'payment:received', 'payment:refunded', 'paymentLink:created',
 ] as const satisfies readonly EventName[]
 export const LIVE_ONLY_EVENTS = ['plan:progress'] as const satisfies readonly EventName[]

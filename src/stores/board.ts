@@ -2,6 +2,7 @@
 import { defineStore } from 'pinia'
 import { computed, ref, shallowRef } from 'vue'
 import * as plansApi from '@/api/plans'
+import { runActive } from '@/api/plans'
 import type { BoardData, BoardItem, JobState, PlanComparison, PlanMove, PlanRun, PlanVersion, RunProgress, WeekLoad } from '@/api/plans'
 import type { MoveInput } from '@shared/schemas/plan'
 import { ApiError } from '@/api/client'
@@ -49,7 +50,7 @@ export const useBoardStore = defineStore('board', () => {
   const moved = computed(() => new Map<number, PlanMove['change']>((viewPlanId.value && comparison.value?.planId === viewPlanId.value ? comparison.value.moves : []).map((m) => [m.operationId, m.change])))
   const benchName = computed(() => new Map((data.value?.benches ?? []).map((b) => [b.id, b.name])))
   const personName = computed(() => new Map((data.value?.people ?? []).map((p) => [p.id, p.name])))
-  const running = computed(() => run.value?.status === 'running')
+  const running = computed(() => runActive(run.value))
 
   // Reloads may overlap (events, window changes): only the newest answer is kept.
   let boardGen = 0
@@ -157,7 +158,7 @@ export const useBoardStore = defineStore('board', () => {
   }
 
   async function followRun(runId: string) {
-    while (run.value?.id === runId && run.value.status === 'running') {
+    while (run.value?.id === runId && runActive(run.value)) {
       await new Promise((r) => setTimeout(r, 700))
       try {
         const r = await plansApi.getRun(runId)
@@ -172,7 +173,7 @@ export const useBoardStore = defineStore('board', () => {
   }
 
   async function stopPlanner() {
-    if (run.value?.status === 'running') run.value = await plansApi.stopRun(run.value.id)
+    if (runActive(run.value)) run.value = await plansApi.stopRun(run.value!.id)
   }
 
   function onProgress(p: RunProgress & { runId: string }) {
@@ -183,9 +184,14 @@ export const useBoardStore = defineStore('board', () => {
   /** A draft was saved (ours or another manager's): list it; our own run's draft is shown with its moves. */
   async function onDrafted(planId: number, runId?: string) {
     const ours = run.value && (!runId || run.value.id === runId)
-    if (ours && run.value && run.value.status === 'running') run.value = { ...run.value, status: 'done', planId }
+    if (ours && run.value && runActive(run.value)) run.value = { ...run.value, status: 'done', planId }
     await loadVersions().catch(() => undefined)
     if (ours && viewPlanId.value !== planId) await showPlan(planId)
+  }
+
+  /** A run ended with an error (on whichever instance ran it): ours shows the reason at once, without waiting for the poll. */
+  function onFailed(p: { runId: string; error: string }) {
+    if (run.value?.id === p.runId && runActive(run.value)) run.value = { ...run.value, status: 'failed', error: p.error }
   }
 
   function clearRun() {
@@ -222,6 +228,6 @@ export const useBoardStore = defineStore('board', () => {
     data, loading, error, viewPlanId, comparison, versions, weekLoad, loadLoading, run, progress,
     dataWindow, livePlan, pendingDraft, viewedPlan, itemsById, jobStates, moved, benchName, personName, running,
     loadBoard, loadVersions, loadWeekLoad, refresh, loadComparison, setAnchor, step, today, showPlan, publish, discard,
-    startPlanner, stopPlanner, onProgress, onDrafted, clearRun, move, setPinned,
+    startPlanner, stopPlanner, onProgress, onDrafted, onFailed, clearRun, move, setPinned,
   }
 })

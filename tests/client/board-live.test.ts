@@ -225,4 +225,22 @@ describe('debounced reload', () => {
     vi.advanceTimersByTime(500)
     expect(reload).toHaveBeenCalledTimes(2)
   })
+
+  it('when a planner run fails, then the live board hands its run and reason on, once, without reloading the board', () => {
+    const s = new FakeSocket()
+    const channel = new LiveChannel(s)
+    const reload = vi.fn()
+    const onFailed = vi.fn()
+    const scope = effectScope()
+    scope.run(() => useLiveBoard({ reload, channel, onFailed }))
+    s.serverConnects()
+    const failed = { runId: 'run-1', error: 'The planner found no plan that keeps every rule.', seq: 4 }
+    s.fire('plan:failed', failed)
+    s.fire('plan:failed', failed)
+    expect(onFailed).toHaveBeenCalledTimes(1)
+    expect(onFailed).toHaveBeenCalledWith(failed)
+    vi.advanceTimersByTime(500)
+    expect(reload).not.toHaveBeenCalled()
+    scope.stop()
+  })
 })

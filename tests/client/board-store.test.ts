@@ -2,10 +2,10 @@
 import { beforeEach, describe, expect, it, vi } from 'vitest'
 import { createPinia, setActivePinia } from 'pinia'
 import { ApiError } from '@/api/client'
-import type { BoardItem } from '@/api/plans'
+import type { BoardItem, PlanRun } from '@/api/plans'
 
 const api = vi.hoisted(() => ({ moveOperation: vi.fn(), getBoard: vi.fn() }))
-vi.mock('@/api/plans', () => api)
+vi.mock('@/api/plans', async () => ({ ...(await vi.importActual<object>('@/api/plans')), ...api }))
 const { useBoardStore } = await import('@/stores/board')
 
 const item = { id: 9, name: 'Barrel and polish', jobBagNumber: 'MG26-0066-1', version: 2 } as BoardItem
@@ -45,5 +45,28 @@ describe('moving a bar', () => {
     expect((r as { message: string }).message).toMatch(/Someone else changed “Barrel and polish” of MG26-0066-1/)
     expect(settle).toHaveBeenCalledWith(false)
     expect(api.getBoard).toHaveBeenCalledTimes(1)
+  })
+})
+
+describe('planner runs', () => {
+  const run = (status: PlanRun['status']): PlanRun => ({ id: 'run-1', status, startedAt: '2026-12-03T10:00:00.000Z', timeLimitSeconds: 10, progress: null, planId: null, error: null, note: null, stability: 'small-changes' })
+
+  it('when our run is still queued, then it counts as running; when it fails on whichever instance ran it, then it reads failed with the reason', () => {
+    const store = useBoardStore()
+    store.run = run('queued')
+    expect(store.running).toBe(true)
+    // Another manager's run failing is not ours.
+    store.onFailed({ runId: 'run-2', error: 'elsewhere' })
+    expect(store.run).toMatchObject({ status: 'queued', error: null })
+    store.onFailed({ runId: 'run-1', error: 'The planner stopped answering 3 times (the app instance running it went away).' })
+    expect(store.run).toMatchObject({ status: 'failed', error: 'The planner stopped answering 3 times (the app instance running it went away).' })
+    expect(store.running).toBe(false)
+  })
+
+  it('when a failure arrives for a run that already ended, then its outcome stays', () => {
+    const store = useBoardStore()
+    store.run = { ...run('done'), planId: 12 }
+    store.onFailed({ runId: 'run-1', error: 'late news' })
+    expect(store.run).toMatchObject({ status: 'done', planId: 12, error: null })
   })
 })

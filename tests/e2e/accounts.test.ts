@@ -140,3 +140,22 @@ describe('bench station', () => {
     }
   })
 })
+
+describe('forgotten password', () => {
+  it('when someone asks for a new-password link on the sign-in page, then the page says a link is on its way without saying whether the address has an account', async () => {
+    const context = await e2e.newContext()
+    try {
+      const page = await context.newPage()
+      await page.goto('/sign-in')
+      await page.locator('[data-test=forgot-password]').click()
+      await page.locator('input[name=reset-email]').fill('nobody@nowhere.test')
+      await page.locator('[data-test=reset-submit]').click()
+      const sent = page.locator('[data-test=reset-sent]')
+      await sent.waitFor()
+      expect(await sent.textContent()).toMatch(/If nobody@nowhere\.test belongs to an account here, a link to choose a new password is on its way\. It works once, for 60 minutes\./)
+      await screenshot(page, 'accounts-forgot-password')
+    } finally {
+      await context.close()
+    }
+  })
+})

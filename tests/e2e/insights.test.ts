@@ -115,16 +115,19 @@ describe('insights as the owner', () => {
       if (c.caveat !== 'metal, stones, outside work and labour counted') expect(c.caveat).toMatch(words)
     }
     // The first row on screen carries the server's figures for that order (its own API answer, formatted as the table does).
-    const api = await page.evaluate(async () => (await fetch('/api/insights/costing', { credentials: 'same-origin' })).json()) as { rows: { orderNumber: string; costAtEstimate: number; metalAtActual: number; caveatAtEstimate: string; caveatAtActual: string }[] }
+    const api = await page.evaluate(async () => (await fetch('/api/insights/costing', { credentials: 'same-origin' })).json()) as { currency: string; rows: { orderNumber: string; costAtEstimateMinor: number; metalAtActualMinor: number; caveatAtEstimate: string; caveatAtActual: string }[] }
     const first = page.locator('[data-test=insights-costing] .el-table__body .el-table__row').first()
     const number = (await first.locator('.mg-mono').textContent())!.trim()
     const row = api.rows.find((r) => r.orderNumber === number)!
-    const money = (n: number) => n.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })
-    expect(await first.textContent()).toContain(money(row.costAtEstimate))
-    expect(await first.locator('[data-test=cost-parts-actual]').textContent()).toContain(`metal ${money(row.metalAtActual)}`)
+    // Pence in the demo's GBP (ISO 4217: 2 decimals) written as the browser's locale writes pounds (ECMA-402 Intl currency formatting).
+    expect(api.currency).toBe('GBP')
+    const locale = await page.evaluate(() => navigator.language)
+    const money = (minor: number) => new Intl.NumberFormat(locale, { style: 'currency', currency: 'GBP' }).format(minor / 100)
+    expect(await first.textContent()).toContain(money(row.costAtEstimateMinor))
+    expect(await first.locator('[data-test=cost-parts-actual]').textContent()).toContain(`metal ${money(row.metalAtActualMinor)}`)
     expect((await first.locator('[data-test=margin-caveat]').allTextContents()).map((x) => x.trim())).toEqual([row.caveatAtEstimate, row.caveatAtActual])
     // Some demo orders were weighed in and out: their metal is counted.
-    expect(api.rows.some((r) => r.metalAtActual > 0)).toBe(true)
+    expect(api.rows.some((r) => r.metalAtActualMinor > 0)).toBe(true)
     expect(await page.locator('[data-test=insights-costing-note]').textContent()).toContain('Cost = metal')
     await page.locator('[data-test=insights-costing]').scrollIntoViewIfNeeded()
     await screenshot(page, 'insights-costing')

@@ -129,8 +129,10 @@ describe('promise check as sales', () => {
     const text = (await done.textContent()) ?? ''
     orderNumber = /Order (\S+) taken/.exec(text)?.[1] ?? ''
     expect(orderNumber).toMatch(/^MG\d\d-\d{4}$/)
-    const { rows: [o] } = await e2e.db.pool.query(`select promised_date::text as d from orders where number = $1`, [orderNumber])
+    const { rows: [o] } = await e2e.db.pool.query(`select promised_date::text as d, price_quoted_minor from orders where number = $1`, [orderNumber])
     expect(o.d).toMatch(/^\d{4}-\d{2}-\d{2}$/)
+    // "780" typed in pounds is 78,000 pence (GBP has 2 decimals, ISO 4217), stored whole.
+    expect(o.price_quoted_minor).toBe(78_000)
     // The picker shows the day as "D MMM YYYY" (e.g. "17 Dec 2026"); read back as an ISO date it is the stored date, and the one
     // the check suggests: P80 when it is later than the fixed-plan date, else the fixed-plan date (computed here from the answer).
     const suggested = lastAnswer!.range && lastAnswer!.range.p80.date > lastAnswer!.fixedPlan.date ? lastAnswer!.range.p80.date : lastAnswer!.fixedPlan.date

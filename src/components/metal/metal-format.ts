@@ -23,8 +23,6 @@ export function fmtMoney(minor: number | null | undefined, currency: string): st
   if (minor === null || minor === undefined || !Number.isFinite(minor)) return '—'
   try { return new Intl.NumberFormat(locale(), { style: 'currency', currency }).format(minor / 10 ** currencyDigits(currency)) } catch { return `${minor} (minor units of ${currency})` }
 }
-/** A major-unit figure typed in a form (34.5) as whole minor units (3450). */
-export const toMinor = (major: number, currency: string): number => Math.round(major * 10 ** currencyDigits(currency))
 
 /** The first active alloy of the piece's metal code (e.g. gold-14k → a 585 gold), or null. */
 export function alloyForPieceMetal(alloys: readonly Alloy[], pieceMetal: string | null | undefined): Alloy | null {

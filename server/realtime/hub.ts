@@ -48,6 +48,7 @@ export class Realtime {
   private readonly resetListeners: (() => void)[] = []
   private listenClient: pg.Client | null = null
   private listenReady = false
+  private readonly seqBatches = new Map<number, Promise<number>>()
   private listenRetry: ReturnType<typeof setTimeout> | null = null
   private closed = false
 
@@ -143,11 +144,25 @@ export class Realtime {
     return r.rows.map((row) => ({ seq: Number(row.seq), event: row.event as EventName, payload: row.payload }))
   }
 
-  /** The highest recorded number of a workshop (0 when none): a cache entry older than this is stale. */
-  async latestSeq(workshopId: number): Promise<number> {
-    if (!this.pool) return this.memSeq
-    const r = await this.pool.query('select coalesce(max(seq), 0) as seq from realtime_events where workshop_id = $1', [workshopId])
-    return Number(r.rows[0].seq)
+  /**
+   * The highest recorded number of a workshop (0 when none): a cache entry older than this is stale. Callers arriving
+   * in the same turn of the event loop share one query; a query already sent is never shared with a later caller (it
+   * may have been answered before that caller's change committed).
+   */
+  latestSeq(workshopId: number): Promise<number> {
+    if (!this.pool) return Promise.resolve(this.memSeq)
+    const waiting = this.seqBatches.get(workshopId)
+    if (waiting) return waiting
+    const pool = this.pool
+    const batch = new Promise<number>((resolve, reject) => {
+      setImmediate(() => {
+        this.seqBatches.delete(workshopId)
+        pool.query('select coalesce(max(seq), 0) as seq from realtime_events where workshop_id = $1', [workshopId])
+          .then((r) => resolve(Number(r.rows[0].seq)), reject)
+      })
+    })
+    this.seqBatches.set(workshopId, batch)
+    return batch
   }
 
   /**

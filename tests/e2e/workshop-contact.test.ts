@@ -46,7 +46,7 @@ describe('workshop contact in the settings', () => {
     if (ip) await expect.poll(() => page.locator('[data-test=settings-public-url-suggestion]').textContent(), { timeout: 10_000 }).toBe(`http://${ip}:${port}`)
     else await hint.filter({ hasText: 'the address they were printed from' }).waitFor()
     // The test server listens on 127.0.0.1 only (HOST default), so the page says tablets cannot reach it yet.
-    await hint.filter({ hasText: 'HOST=0.0.0.0' }).waitFor()
+    await hint.filter({ hasText: 'npm start -- --lan' }).waitFor()
     await expect.poll(() => field('settings-public-url').inputValue(), { timeout: 10_000 }).toBe('')
     await field('settings-public-url').fill('http://192.0.2.44:8080/millgrain')
     await page.locator('[data-test=settings-save]').click()

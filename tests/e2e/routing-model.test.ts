@@ -1,5 +1,5 @@
-// The routing editor in Chromium: a routing's learning curve for production runs, per-mm minutes and stone size band
-// factors are shown, saved and read back.
+// The routing editor in Chromium: a routing's learning curve for production runs, per-mm minutes, stone size band factors and
+// stone role factors are shown, saved and read back.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { BrowserContext, Locator, Page } from 'playwright-core'
 import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
@@ -93,5 +93,26 @@ describe('the step model in the routing editor', () => {
     await row(page, CUFF).locator('[data-test=routing-learning]').waitFor({ state: 'detached' })
     const { rows } = await e2e.db.pool.query(`select learning_rate from routing_templates where name = $1`, [CUFF])
     expect(rows[0].learning_rate).toBeNull()
+  })
+
+  it('when the owner sets centre stones of the halo ring at ×4, then the step shows each role’s minutes a stone and saves only that factor', async () => {
+    await openRouting('Halo engagement ring')
+    const set = page.locator('[data-step=set]')
+    const example = set.locator('[data-test=step-role-example]')
+    // Seeded setting step (seed.ts): 8 min a stone. The usual role factors (common practice, no source): centre ×3, side ×1.5, halo ×1.2,
+    // pavé ×1 → 24, 12, 9.6 and 8 min a stone before its size band.
+    expect(await example.textContent()).toBe('One stone: centre 24 min · side 12 min · halo 9.6 min · pavé 8 min')
+    expect(await numberBox(set, 'step-role-centre').getAttribute('placeholder')).toBe('×3')
+    await numberBox(set, 'step-role-centre').fill('4')
+    await numberBox(set, 'step-role-centre').press('Tab')
+    // 8 × 4 = 32 min for a centre stone; the others keep the usual factors.
+    await example.filter({ hasText: 'centre 32 min' }).waitFor()
+    expect(await example.textContent()).toBe('One stone: centre 32 min · side 12 min · halo 9.6 min · pavé 8 min')
+    await set.scrollIntoViewIfNeeded()
+    await screenshot(page, 'routing-role-factors', { fullPage: false })
+    await page.locator('[data-test=routing-save]').click()
+    await page.locator('.el-drawer').waitFor({ state: 'hidden' })
+    const { rows } = await e2e.db.pool.query(`select s.role_factors from routing_templates t join template_steps s on s.template_id = t.id where t.name = 'Halo engagement ring' and s.key = 'set'`)
+    expect(rows[0].role_factors).toEqual({ centre: 4 })
   })
 })

@@ -232,3 +232,27 @@ describe('a customer’s own stones', () => {
     expect(text).toMatch(/UK N · ISO 53.8 \(Ø 17.1 mm\) · US 6¾/)
   })
 })
+
+describe('a routing step’s own role factors', () => {
+  it('when the step sets its own factor for centre stones, then the stone list’s minutes use it and the other roles keep the usual factor; bad factors are refused', async () => {
+    const kinds = Object.fromEntries((await manager.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
+    const bad = (roleFactors: unknown) => manager.post('/api/templates', { code: 'role-bad', name: 'Bad', steps: [{ key: 'set', kindId: kinds.setting, name: 'Set', baseMinutes: 30, perStoneMinutes: 6, roleFactors }] })
+    expectFieldError(await bad({ centre: 6 }), 'steps.0.roleFactors.centre', /at most 5/)
+    expectFieldError(await bad({ crown: 2 }), 'steps.0.roleFactors', /centre, side, halo and pave/)
+    const tpl = await manager.post('/api/templates', {
+      code: 'role-fixture', name: 'Fixture: set by role',
+      steps: [{ key: 'set', kindId: kinds.setting, name: 'Set stones', baseMinutes: 30, perStoneMinutes: 6, sizeBandFactors: { melee: 1.2, large: 1.5 }, roleFactors: { centre: 4 } }],
+    })
+    expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
+    expect(tpl.body.steps[0].roleFactors).toEqual({ centre: 4 })
+    const { rows: [c] } = await t.pool.query('select min(id) as id from customers')
+    const o = await sales.post('/api/orders', { customerId: c.id, title: 'Two halo rings', dueDate: '2031-09-01', pieces: [{ templateId: tpl.body.id, piece: 'Halo ring', params: { quantity: 2 } }] })
+    const bag = o.body.jobBags[0].id
+    await sales.post(`/api/job-bags/${bag}/stones`, { role: 'centre', sizeMm: 6.5, count: 1 })
+    await sales.post(`/api/job-bags/${bag}/stones`, { role: 'halo', sizeMm: 1.3, count: 14 })
+    const { rows: [op] } = await t.pool.query(`select estimate_minutes from operations where job_bag_id = $1 and key = 'set'`, [bag])
+    // Hand-worked, per piece: 30 + 6 × 1 × 1.5 (over 3 mm) × 4 (this step's centre) + 6 × 14 × 1.2 (under 1.5 mm) × 1.2 (usual halo)
+    // = 30 + 36 + 120.96 = 186.96; two pieces, no learning curve: 373.92 → 373.9 min.
+    expect(op.estimate_minutes).toBe(373.9)
+  })
+})

@@ -99,11 +99,13 @@ export async function updateOrder(deps: Deps, actor: Actor, id: number, input: O
     // Collected: the finished pieces' metal leaves stock with them.
     if (values.status === 'collected') await deliverOrderMetal(tx, actor, id)
     becameReady = !!before && before.status !== 'ready'
+    // With the job queue the notice is queued in this transaction: it goes out if and only if the change commits.
+    if (becameReady && deps.jobs) await sendReadyNotice({ ...deps, db: tx as unknown as Db }, actor.workshopId, id)
     return o
   })
   realtime.emit(actor.workshopId, 'order:updated', { id, version: o.version })
-  // After commit: the notice's outcome is kept in the outbox and never undoes the change.
-  if (becameReady) await sendReadyNotice(deps, actor.workshopId, id).catch((err) => console.error('[mail] ready notice:', (err as Error).message))
+  // Without a queue (scripts): sent after commit; the outcome is kept in the outbox and never undoes the change.
+  if (becameReady && !deps.jobs) await sendReadyNotice(deps, actor.workshopId, id).catch((err) => console.error('[mail] ready notice:', (err as Error).message))
   return getOrder(db, actor.workshopId, id)
 }
 

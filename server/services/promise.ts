@@ -13,7 +13,7 @@ import { clipToWindows, intersect } from '../scheduler/calendar.ts'
 import { checkProblem, promise, solve, type Job, type Operation, type Plan, type PlannedOperation, type Problem } from '../scheduler/index.ts'
 import { compile, decode, toPlan } from '../scheduler/decode.ts'
 import { topologicalOrder } from '../scheduler/search.ts'
-import type { Trx } from '../db/client'
+import type { Db, Trx } from '../db/client'
 import { boardData } from './board'
 import { sendPromiseConfirmation } from './mail'
 import { audit } from './audit'
@@ -283,14 +283,19 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
     if (!placed) { /* reason set above */ } else if (!placed.feasible) { notBooked = 'there is no room for it before the end of the calendar'; placed = null }
     else if (local(data, placed.completion).date > input.promisedDate) { notBooked = `the room found now ends ${local(data, placed.completion).date}, after the promised date; the manager plans it at the next re-plan`; placed = null }
   }
-  const { order, extra: booking } = await takeOrder(deps, actor, {
+  const { order, extra: taken } = await takeOrder(deps, actor, {
     customerId: input.customerId, title: input.title, dueDate: input.dueDate ?? input.promisedDate, promisedDate: input.promisedDate,
     priority: input.priority, priceQuotedMinor: input.priceQuotedMinor, notes: input.notes,
     pieces: [{ templateId: input.templateId, piece: input.piece ?? input.title, params: input.params }],
-  }, async (tx, orderId): Promise<Booking> => placed ? bookSlot(tx, actor, data, orderId, placed) : { booked: false, reason: notBooked! })
+  }, async (tx, orderId) => {
+    const booking: Booking = placed ? await bookSlot(tx, actor, data, orderId, placed) : { booked: false, reason: notBooked! }
+    // With the job queue the confirmation is queued in the order's transaction: no order without its e-mail, nor the reverse.
+    return { booking, queued: deps.jobs ? await sendPromiseConfirmation({ ...deps, db: tx as unknown as Db }, actor.workshopId, orderId, booking) : null }
+  })
+  const { booking } = taken
   const firstOp = order.jobBags[0]?.operations[0]
   if (booking.booked && firstOp) deps.realtime.emit(actor.workshopId, 'plan:changed', { id: firstOp.id, operationId: firstOp.id })
-  const confirmation = await sendPromiseConfirmation(deps, actor.workshopId, order.id, booking)
+  const confirmation = taken.queued ?? await sendPromiseConfirmation(deps, actor.workshopId, order.id, booking)
   return { order: booking.booked ? await getOrder(deps.db, actor.workshopId, order.id) : order, booking, confirmation }
 }
 

@@ -1,6 +1,6 @@
 // HTTPS for the workshop network: a small local CA and a server certificate (kept in TLS_DIR), and the HTTP or HTTPS server for the app.
 import { X509Certificate } from 'node:crypto'
-import { chmodSync, existsSync, mkdirSync, readFileSync, renameSync, writeFileSync } from 'node:fs'
+import { chmodSync, closeSync, existsSync, mkdirSync, openSync, readFileSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs'
 import { createServer as createPlainServer, type RequestListener, type Server } from 'node:http'
 import { createServer as createTlsServer } from 'node:https'
 import { hostname, networkInterfaces, type NetworkInterfaceInfo } from 'node:os'
@@ -103,12 +103,32 @@ export interface TlsMaterial {
  * so a tablet that trusted it keeps trusting the new server certificate. Private keys are written 0600.
  */
 export async function ensureCertificate(o: { dir: string; names: string[]; now?: Date }): Promise<TlsMaterial> {
-  const now = o.now ?? new Date()
-  const renewBy = new Date(now.getTime() + RENEW_DAYS * DAY)
   const dir = resolve(o.dir)
   mkdirSync(dir, { recursive: true, mode: 0o700 })
+  // Several app processes starting at once on one folder: one at a time, so a CA and its key are never from two makers.
+  const lock = join(dir, 'making.lock')
+  for (const until = Date.now() + 30_000; ;) {
+    try {
+      closeSync(openSync(lock, 'wx'))
+      break
+    } catch {
+      // A lock left by a process that died while making (older than a minute) is taken over.
+      try { if (Date.now() - statSync(lock).mtimeMs > 60_000) rmSync(lock, { force: true }) } catch { /* gone meanwhile */ }
+      if (Date.now() > until) throw new Error(`Another process is still making the certificate in ${dir} (remove ${lock} if none is running)`)
+      await new Promise((r) => setTimeout(r, 100))
+    }
+  }
+  try {
+    return await ensureLocked(dir, o.names, o.now ?? new Date())
+  } finally {
+    rmSync(lock, { force: true })
+  }
+}
+
+async function ensureLocked(dir: string, wanted: string[], now: Date): Promise<TlsMaterial> {
+  const renewBy = new Date(now.getTime() + RENEW_DAYS * DAY)
   const path = (f: keyof typeof TLS_FILES) => join(dir, TLS_FILES[f])
-  const names = [...new Set(o.names.map(canonicalName))]
+  const names = [...new Set(wanted.map(canonicalName))]
   let made: TlsMaterial['made'] = 'none'
 
   let caCert = readCert(path('caCert'))

@@ -207,6 +207,21 @@ describe('keeping and renewing the certificate', () => {
   })
 })
 
+describe('several processes on one folder', () => {
+  it('when two starts make the certificate at the same moment, then one makes it and the other uses the same CA and certificate', async () => {
+    const own = mkdtempSync(join(tmpdir(), 'mg-tls-race-'))
+    try {
+      const names = ['localhost', '127.0.0.1', '::1']
+      const [a, b] = await Promise.all([ensureCertificate({ dir: own, names }), ensureCertificate({ dir: own, names })])
+      expect([a.made, b.made].sort()).toEqual(['ca+server', 'none'])
+      expect(new X509Certificate(a.cert).fingerprint256).toBe(new X509Certificate(b.cert).fingerprint256)
+      expect(new X509Certificate(b.cert).checkIssued(new X509Certificate(readFileSync(join(own, 'millgrain-ca.crt'))))).toBe(true)
+    } finally {
+      rmSync(own, { recursive: true, force: true })
+    }
+  })
+})
+
 describe('what npm start -- --lan prints', () => {
   it('when the machine has a network address, then it prints the https address, a terminal QR code of it that a reader decodes, and how to trust the certificate', async () => {
     const interfaces = { eth0: [{ address: '192.0.2.7', family: 'IPv4', internal: false }] } as unknown as ReturnType<typeof networkInterfaces>

@@ -9,6 +9,7 @@ import { AppError, invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { money } from '../mail/templates'
+import { minorToDecimal, minorToMajor } from '../../shared/domain/currency'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
@@ -129,12 +130,12 @@ async function sendReceipt(deps: Deps, workshopId: number, paymentId: number) {
   if (!customerId) return null
   const [c] = await deps.db.select().from(s.customers).where(eq(s.customers.id, customerId))
   const what = o ? `order ${o.number}` : `quote ${q!.number}`
-  const amount = money(Math.abs(p.amountMinor) / 100, p.currency)
+  const amount = money(minorToMajor(Math.abs(p.amountMinor), p.currency), p.currency)
   const refund = p.amountMinor < 0
   const left = o ? (await orderMoney(deps.db, workshopId, o.id)).owedMinor : null
   const lines = [
     `${refund ? 'Refunded' : 'Received'}: ${amount} (${p.method === 'card' ? 'card' : p.method === 'cash' ? 'cash' : 'bank transfer'}) on ${dayjs(p.receivedAt).tz(w.timeZone).format('D MMMM YYYY')}`,
-    ...(left !== null ? [`Still to pay on ${what}: ${money(left / 100, p.currency)}`] : []),
+    ...(left !== null ? [`Still to pay on ${what}: ${money(minorToMajor(left, p.currency), p.currency)}`] : []),
   ]
   const text = [`Dear ${c?.name ?? 'customer'},`, '', refund ? `We have refunded ${amount} for ${what}.` : `Thank you: we have received ${amount} for ${what}.`, '', ...lines, '', `— ${w.name}`].join('\n')
   const html = `<div style="font-family:sans-serif;line-height:1.5">${text.split('\n').map((l) => (l ? `<p>${l.replace(/[&<>]/g, (x) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[x]!)}</p>` : '')).join('')}</div>`
@@ -313,9 +314,8 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
   for (const r of rows) {
     const day = dayjs(r.p.receivedAt).tz(w.timeZone).format('YYYY-MM-DD')
     if ((q.from && day < q.from) || (q.to && day > q.to)) continue
-    const sign = r.p.amountMinor < 0 ? '-' : ''
-    const abs = Math.abs(r.p.amountMinor)
-    const amount = `${sign}${Math.floor(abs / 100)}.${String(abs % 100).padStart(2, '0')}`
+    // Major units with the currency's own decimals (ISO 4217: 2 for GBP, none for JPY), written from the minor units digit by digit.
+    const amount = minorToDecimal(r.p.amountMinor, r.p.currency)
     lines.push([new Date(r.p.receivedAt).toISOString(), r.orderNumber, r.quoteNumber, r.customer, r.p.method, r.p.purpose, amount, r.p.currency, r.p.toRefund ? 'yes' : 'no', r.p.providerRef, r.by, r.p.note].map(csvCell).join(','))
   }
   return lines.join('\r\n') + '\r\n'

@@ -9,6 +9,7 @@ import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { money } from '../mail/templates'
+import { minorToMajor } from '../../shared/domain/currency'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
@@ -123,7 +124,7 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
   if (!link && before.depositMinor > 0) link = await createLink(deps, actor, { quoteId: id, orderId: before.orderId, purpose: 'deposit', amountMinor: before.depositMinor, currency: before.currency, description: `Deposit for quote ${before.number}: ${before.title}`, customerEmail: before.customerEmail || undefined })
   await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'sent', sentAt: new Date().toISOString() }, 'sent')
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
-  const m = (minor: number) => money(minor / 100, before.currency)
+  const m = (minor: number) => money(minorToMajor(minor, before.currency), before.currency)
   const text = [
     `Dear ${before.customerName},`, '', `Thank you for asking us to make ${before.title}. Our quote ${before.number}:`, '',
     ...(before.description ? [before.description, ''] : []),
@@ -186,7 +187,7 @@ export async function quoteLink(deps: Deps, actor: Actor, id: number, amountMino
 export async function quotePdf(db: Db, workshopId: number, id: number): Promise<Buffer> {
   const q = await getQuote(db, workshopId, id)
   const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
-  const m = (minor: number) => money(minor / 100, q.currency)
+  const m = (minor: number) => money(minorToMajor(minor, q.currency), q.currency)
   const doc = new PDFDocument({ size: 'A4', margin: 56, info: { Title: `Quote ${q.number}` } })
   const chunks: Buffer[] = []
   doc.on('data', (c: Buffer) => chunks.push(c))
@@ -227,7 +228,7 @@ export async function sendMoneyReminders(deps: Pick<Deps, 'db' | 'realtime' | 'm
     if (sent.some((x) => x.kind === 'balance-reminder' && x.orderId === o.id && x.meta?.day === day)) continue
     const money2 = await orderMoney(deps.db, workshopId, o.id)
     if (money2.owedMinor <= 0) continue
-    const text = `Dear ${o.name},\n\nYour order ${o.number} is ready for collection. The balance to pay is ${money(money2.owedMinor / 100, money2.currency)}.\n\n— ${w!.name}`
+    const text = `Dear ${o.name},\n\nYour order ${o.number} is ready for collection. The balance to pay is ${money(minorToMajor(money2.owedMinor, money2.currency), money2.currency)}.\n\n— ${w!.name}`
     await sendRecorded(deps, { workshopId, to: o.email, kind: 'balance-reminder', orderId: o.id, meta: { day }, content: { subject: `${w!.name}: order ${o.number} is ready — balance to pay`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` } })
     n++
   }

@@ -1,8 +1,6 @@
 // The job queue over one database shared by several app instances: a planner run is taken once, survives its instance
 // being killed, the daily digest goes once, and a refused e-mail is tried again and delivered once.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { spawn, type ChildProcess } from 'node:child_process'
-import { join } from 'node:path'
 import { createApp } from '../../server/app'
 import { loadConfig } from '../../server/config'
 import { createDb } from '../../server/db/client'
@@ -15,9 +13,8 @@ import { dayjs } from '../../server/lib/time'
 import { loadPlanningData } from '../../server/services/planning/problem'
 import { waitForRun } from '../../server/services/planning/runs'
 import { createTestApp, httpSignIn, signedIn, type TestApp } from '../setup/app'
-import { createTestDb, type TestDb } from '../setup/db'
+import { startInstances, type Instances } from '../setup/instances'
 
-const root = join(import.meta.dirname, '../..')
 const SECRET = 'test-secret-test-secret'
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms))
 
@@ -40,25 +37,6 @@ async function secondInstance(url: string, overrides: Record<string, string> = {
   const { deps } = createApp({ db, pool, config, realtime, jobs })
   await jobs.start(deps)
   return { db, pool, deps, jobs, async close() { await jobs.stop(); await realtime.close(); await pool.end() } }
-}
-
-/** The server as its own process (node with tsx's loader, one process so its pid is the server's), on a free port. */
-function serverProcess(url: string, env: Record<string, string>) {
-  const child: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
-    cwd: root, env: { ...process.env, DATABASE_URL: url, PORT: '0', SESSION_SECRET: SECRET, NODE_ENV: 'test', LOGIN_ATTEMPTS_PER_15_MIN: '1000', ...env }, stdio: ['ignore', 'pipe', 'pipe'],
-  })
-  let out = ''
-  const listening = new Promise<string>((resolve, reject) => {
-    const onData = (b: Buffer) => {
-      out += b.toString()
-      const m = /listening on (https?:\/\/\S+)/.exec(out)
-      if (m) resolve(m[1]!)
-    }
-    child.stdout!.on('data', onData)
-    child.stderr!.on('data', (b: Buffer) => { out += b.toString() })
-    child.once('exit', (code) => reject(new Error(`server process exited (${code}) before listening:\n${out}`)))
-  })
-  return { child, listening, output: () => out }
 }
 
 describe('planner runs on two instances', () => {
@@ -105,43 +83,42 @@ describe('planner runs on two instances', () => {
 })
 
 describe('an instance killed mid-run', () => {
-  let tdb: TestDb
-  let proc: ReturnType<typeof serverProcess> | undefined
-  let second: Awaited<ReturnType<typeof secondInstance>> | undefined
-  beforeAll(async () => { tdb = await createTestDb() })
-  afterAll(async () => {
-    if (proc?.child.exitCode === null) proc.child.kill('SIGKILL')
-    await second?.close()
-    await tdb?.drop()
-  })
+  let cluster: Instances | undefined
+  afterAll(async () => { await cluster?.stop() })
 
-  it('when the instance running a planner run is killed, then another instance takes it over and it ends done with one draft', async () => {
-    proc = serverProcess(tdb.url, { PLAN_RUN_STALE_SECONDS: '3', JOBS_POLL_SECONDS: '0.5' })
-    const base = await proc.listening
-    const { cookie, csrf } = await httpSignIn(base, 'manager')
-    const r = await fetch(`${base}/api/plans/runs`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrf, cookie }, body: JSON.stringify({ timeLimitSeconds: 6, seed: 7 }) })
+  it('when the instance running a planner run is killed, then the other instance takes it over and it ends done with one draft', async () => {
+    // Two app processes over one database; a heartbeat older than 3 s counts as a lost instance.
+    cluster = await startInstances(2, { env: { PLAN_RUN_STALE_SECONDS: '3', JOBS_POLL_SECONDS: '0.5' } })
+    const { pool, db } = cluster.database
+    const [a] = cluster.instances
+    const { cookie, csrf } = await httpSignIn(a!.url, 'manager')
+    const r = await fetch(`${a!.url}/api/plans/runs`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrf, cookie }, body: JSON.stringify({ timeLimitSeconds: 6, seed: 7 }) })
     expect(r.status).toBe(202)
     const run = (await r.json()) as { id: string }
-    // Mid-run on the process: it has taken the run and written progress with its heartbeat.
-    const taken = await until('the process to report progress', async () => {
-      const { rows: [row] } = await tdb.pool.query(`select status, instance, attempt, progress from plan_runs where id = $1`, [run.id])
+    // Mid-run: one of the two has taken the run and written progress with its heartbeat.
+    const taken = await until('an instance to report progress', async () => {
+      const { rows: [row] } = await pool.query(`select status, instance, attempt, progress from plan_runs where id = $1`, [run.id])
       return row?.status === 'running' && row.progress ? row : null
     })
-    expect(taken.instance).toContain(`:${proc.child.pid}`)
-    proc.child.kill('SIGKILL')
-    await new Promise((res) => proc!.child.once('exit', res))
+    const holder = cluster.instances.find((i) => String(taken.instance).endsWith(`:${i.pid}`))!
+    const other = cluster.instances.find((i) => i !== holder)!
+    expect(holder, `run held by ${taken.instance}`).toBeDefined()
+    await holder.kill('SIGKILL')
 
-    second = await secondInstance(tdb.url, { PLAN_RUN_STALE_SECONDS: '3', JOBS_POLL_SECONDS: '0.5' })
-    const done = await waitForRun(tdb.db, run.id, 90_000)
-    const { rows: [row] } = await tdb.pool.query(`select status, attempt, instance, plan_id, error from plan_runs where id = $1`, [run.id])
+    const done = await waitForRun(db, run.id, 90_000)
+    const { rows: [row] } = await pool.query(`select status, attempt, instance, plan_id, error from plan_runs where id = $1`, [run.id])
     expect(done?.status, JSON.stringify(row)).toBe('done')
     expect(row.attempt).toBe(2)
-    expect(row.instance).toBe('second')
-    const { rows: [drafts] } = await tdb.pool.query(`select count(*)::int as n from audit_log where action = 'draft' and entity = 'plan'`)
+    expect(row.instance).toMatch(new RegExp(`:${other.pid}$`))
+    const { rows: [drafts] } = await pool.query(`select count(*)::int as n from audit_log where action = 'draft' and entity = 'plan'`)
     expect(drafts.n).toBe(row.plan_id ? 1 : 0)
     // Its first job was cancelled when the run was taken over, so the queue does not retry it as well.
-    const { rows: jobs } = await tdb.pool.query(`select state from pgboss.job where name = 'plan-run' and data->>'runId' = $1 order by created_on`, [run.id])
+    const { rows: jobs } = await pool.query(`select state from pgboss.job where name = 'plan-run' and data->>'runId' = $1 order by created_on`, [run.id])
     expect(jobs.map((j: { state: string }) => j.state)).toEqual(['cancelled', 'completed'])
+    // Polling the run reads the row: the surviving instance answers it.
+    const seen = await httpSignIn(other.url, 'manager')
+    const polled = await fetch(`${other.url}/api/plans/runs/${run.id}`, { headers: { cookie: seen.cookie } })
+    expect(await polled.json()).toMatchObject({ id: run.id, status: 'done', planId: row.plan_id })
   })
 })
 

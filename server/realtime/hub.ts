@@ -125,7 +125,7 @@ export class Realtime {
 
   /** Tells the other instances to drop what they cached for a workshop (or one key of it) without recording an event. */
   announceDrop(workshopId: number, key?: string) {
-    if (!this.pool) return
+    if (!this.pool || this.closed || (this.pool as pg.Pool & { ending?: boolean }).ending) return
     const note: ChangeNote = { i: this.instanceId, w: workshopId, s: 0, ...(key ? { k: key } : {}) }
     this.pool.query('select pg_notify($1, $2)', [CHANGES_CHANNEL, JSON.stringify(note)]).catch((err) => {
       if (!this.closed) console.error('[realtime] could not announce a cache drop:', (err as Error).message)

@@ -1,6 +1,7 @@
 // The job queue over one database shared by several app instances: a planner run is taken once, survives its instance
 // being killed, the daily digest goes once, and a refused e-mail is tried again and delivered once.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { randomUUID } from 'node:crypto'
 import { createApp } from '../../server/app'
 import { loadConfig } from '../../server/config'
 import { createDb } from '../../server/db/client'
@@ -11,7 +12,7 @@ import { Realtime } from '../../server/realtime/hub'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { dayjs } from '../../server/lib/time'
 import { loadPlanningData } from '../../server/services/planning/problem'
-import { waitForRun } from '../../server/services/planning/runs'
+import { recoverStaleRuns, runPlanJob, startRun, waitForRun } from '../../server/services/planning/runs'
 import { createTestApp, httpSignIn, signedIn, type TestApp } from '../setup/app'
 import { startInstances, type Instances } from '../setup/instances'
 
@@ -69,6 +70,45 @@ describe('planner runs on two instances', () => {
     const { rows: [audits] } = await t.pool.query(`select count(*)::int as n from audit_log where action = 'draft' and entity = 'plan'`)
     const { rows: [made] } = await t.pool.query(`select count(*)::int as n from plan_runs where plan_id is not null`)
     expect(audits.n).toBe(made.n)
+  })
+
+  it('when a run is taken twice at once (a takeover while the first taker still runs), then only the latest take saves, and one draft is made', async () => {
+    const { rows: [u] } = await t.pool.query(`select id, workshop_id, role, name from users where email = 'manager@wrenfield.test'`)
+    const actor = { userId: u.id, workshopId: u.workshop_id, role: u.role, personId: null, name: u.name }
+    // Empty the live plan's unplanned bars so any plan beats it and a draft is due (as the planner tests do).
+    await t.pool.query(`update operations set planned_start = null, planned_end = null, planned_bench_id = null, planned_person_id = null where status not in ('running', 'done', 'skipped') and not pinned`)
+    const { jobs: _queue, ...noQueue } = t.deps
+    // Without a queue the run starts in place (first take); the second instance takes it as well, as a retried job would.
+    const run = await startRun(noQueue, actor, { timeLimitSeconds: 3, seed: 3 })
+    await until('the first take', async () => (await t.pool.query(`select 1 from plan_runs where id = $1 and attempt = 1`, [run.id])).rows.length > 0)
+    const second_ = await runPlanJob(second.deps, { runId: run.id })
+    const done = await waitForRun(t.db, run.id, 60_000)
+    expect(second_).toMatchObject({ planId: expect.any(Number) })
+    expect(done).toMatchObject({ status: 'done', planId: (second_ as { planId: number }).planId })
+    const { rows: [row] } = await t.pool.query(`select attempt, instance from plan_runs where id = $1`, [run.id])
+    expect(row).toMatchObject({ attempt: 2, instance: 'second' })
+    const { rows: drafts } = await t.pool.query(`select id from plan_versions where status = 'draft' and created_at >= (select created_at from plan_runs where id = $1)`, [run.id])
+    expect(drafts.map((d: { id: number }) => d.id)).toEqual([done!.planId])
+  })
+
+  it('when a running run\'s heartbeat has stopped and it has had its tries, then it is marked failed with the reason and plan:failed is sent', async () => {
+    const emitted: unknown[][] = []
+    const realtime = Object.create(second.deps.realtime, { emit: { value: (...a: unknown[]) => void emitted.push(a) } })
+    const { rows: [u] } = await t.pool.query(`select id from users where email = 'manager@wrenfield.test'`)
+    const id = randomUUID()
+    // A run stuck on its second try: its instance last wrote a heartbeat a minute ago (the limit here is 30 s, the default).
+    await t.pool.query(`insert into plan_runs (id, workshop_id, created_by, options, status, attempt, instance, heartbeat_at, started_at) values ($1, 1, $2, '{"timeLimitSeconds": 5, "seed": 1, "stability": "small-changes"}', 'running', 2, 'gone:1', now() - interval '60 seconds', now() - interval '70 seconds')`, [id, u.id])
+    await recoverStaleRuns({ ...second.deps, realtime })
+    const { rows: [row] } = await t.pool.query(`select status, error, finished_at from plan_runs where id = $1`, [id])
+    expect(row.status).toBe('failed')
+    expect(row.error).toMatch(/stopped answering 2 times/)
+    expect(row.finished_at).not.toBeNull()
+    expect(emitted).toEqual([[1, 'plan:failed', { runId: id, error: row.error }]])
+    // The workshop can plan again.
+    const manager = await signedIn(t.app, 'manager')
+    const again = await manager.post('/api/plans/runs', { timeLimitSeconds: 1 })
+    expect(again.status, JSON.stringify(again.body)).toBe(202)
+    await waitForRun(t.db, again.body.id, 60_000)
   })
 
   it('when a second run is asked for while one is queued or running, then it is refused with 409 naming the running one', async () => {

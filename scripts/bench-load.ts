@@ -51,6 +51,7 @@ for (const t of targets) {
       body: t.body ? JSON.stringify(t.body) : undefined,
     })
     inst.on('response', (_c: unknown, _status: number, _bytes: number, ms: number) => times.push(ms))
+    // eslint-disable-next-line @typescript-eslint/no-explicit-any -- autocannon's result object, read for a few printed figures
     const res = await new Promise<any>((resolve) => inst.on('done', resolve))
     times.sort((x, y) => x - y)
     rows.push({

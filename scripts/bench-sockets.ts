@@ -10,6 +10,8 @@ import { benchServer, pct, type HttpSession } from './bench-common'
 const CLIENTS = Number(process.env.SOCKET_CLIENTS ?? 200)
 const MOVES = Number(process.env.SOCKET_MOVES ?? 50)
 const TRANSITIONS = Number(process.env.SOCKET_TRANSITIONS ?? 20)
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- raw SQL rows; the benchmark reads the columns its queries name
+const rowsOf = (r: unknown) => (r as { rows: any[] }).rows
 const TRACKED = ['plan:changed', 'operation:changed', 'jobBag:changed'] as const
 
 const b = await benchServer('millgrain_bench_sockets')
@@ -28,14 +30,14 @@ const t0c = performance.now()
 await Promise.all(Array.from({ length: CLIENTS }, (_, i) => new Promise<void>((res, rej) => {
   const sock = connect(b.server.url, { extraHeaders: { cookie: sessions[i % sessions.length]!.cookie }, transports: ['websocket'], forceNew: true, reconnection: false })
   const c: Client = { sock, seqs: new Set(), at: new Map() }
-  for (const ev of TRACKED) sock.on(ev as any, (p: { seq: number }) => { c.seqs.add(p.seq); c.at.set(p.seq, performance.now()) })
+  for (const ev of TRACKED) sock.on(ev, (p: { seq: number }) => { c.seqs.add(p.seq); c.at.set(p.seq, performance.now()) })
   sock.once('connect', () => res())
   sock.once('connect_error', rej)
   clients.push(c)
 })))
 console.log(`${CLIENTS} clients connected over ${sessions.length} sessions in ${(performance.now() - t0c).toFixed(0)} ms`)
 
-const { rows: [op] } = (await b.server.db.execute(sql`select id, version from operations where planned_start is not null and status in ('pending', 'ready') order by id limit 1`)) as any
+const [op] = rowsOf(await b.server.db.execute(sql`select id, version from operations where planned_start is not null and status in ('pending', 'ready') order by id limit 1`))
 const triggers: { kind: string; t: number; seqs: number[] }[] = []
 /** Waits until every client has an event for which `match` holds that arrived after the trigger, or 5 s. */
 async function allHeard(since: number, count: number) {
@@ -59,9 +61,9 @@ for (let k = 0; k < MOVES; k++) {
 const notes: string[] = []
 if (allRoutes.some((r) => r.path === '/bench/operations/:id/claim')) {
   // A ready stone-setting step and the setting bench; claim and release it in turn (each: operation:changed, jobBag:changed).
-  const { rows: [bench] } = (await b.server.db.execute(sql`select id from benches where name = 'Setting bench A'`)) as any
-  const { rows: [step] } = (await b.server.db.execute(sql`select o.id, o.job_bag_id, o.after from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
-    where k.code = 'setting' and ord.status = 'open' and o.status in ('pending', 'ready') order by ord.due_date, o.seq limit 1`)) as any
+  const [bench] = rowsOf(await b.server.db.execute(sql`select id from benches where name = 'Setting bench A'`))
+  const [step] = rowsOf(await b.server.db.execute(sql`select o.id, o.job_bag_id, o.after from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
+    where k.code = 'setting' and ord.status = 'open' and o.status in ('pending', 'ready') order by ord.due_date, o.seq limit 1`))
   await b.server.db.execute(sql`update operations set status = 'done', finished_at = now() where job_bag_id = ${step.job_bag_id} and key in (select jsonb_array_elements_text(${JSON.stringify(step.after)}::jsonb))`)
   await b.server.db.execute(sql`update operations set status = 'ready', claimed_by = null where id = ${step.id}`)
   for (let k = 0; k < TRANSITIONS; k++) {

@@ -6,7 +6,8 @@ export interface ServerToClientEvents {
   'order:updated': (p: ChangePayload) => void
   'operation:changed': (p: ChangePayload & { status?: string }) => void
   'jobBag:changed': (p: ChangePayload & { status?: string }) => void
-  'plan:drafted': (p: ChangePayload) => void
+  /** A planner run saved a draft (runId: the run that made it). */
+  'plan:drafted': (p: ChangePayload & { runId?: string }) => void
   'plan:published': (p: ChangePayload) => void
   'plan:discarded': (p: ChangePayload) => void
   /** A bar moved or pinned by hand on the live plan. */

@@ -72,6 +72,7 @@ export function adapterOf(db: Db | Trx): PgBoss.Db {
   return { executeSql: (text, values) => client.query(text, values) }
 }
 
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- each queue's handler reads the data shape its own sender wrote
 export type JobHandler = (deps: Deps, data: any, job: PgBoss.JobWithMetadata<any>) => Promise<unknown>
 
 export interface Jobs {

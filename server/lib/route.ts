@@ -28,6 +28,7 @@ export interface RouteContext<B, Q, P> {
 
 export type Access = Role[] | 'public'
 
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- one list holds routes of every input type; each route() call infers its own
 export interface RouteSpec<B = any, Q = any, P = any> {
   method: 'get' | 'post' | 'put' | 'patch' | 'delete'
   /** Express path under /api. */

@@ -17,6 +17,7 @@ export function sniffType(b: Buffer): { mime: string; ext: string; image: boolea
 /** The uploader's file name for display only: no folders, no control or reserved characters, not too long. */
 export function displayName(raw: string, ext: string): string {
   const base = raw.split(/[\\/]/).pop() ?? ''
+  // eslint-disable-next-line no-control-regex -- control characters are exactly what the file name must not keep
   const clean = base.normalize('NFC').replace(/[\u0000-\u001f\u007f<>:"|?*]/g, '').replace(/\s+/g, ' ').replace(/^[.\s]+/, '').trim().slice(0, 120)
   return clean || `file${ext}`
 }
@@ -55,6 +56,7 @@ export async function receiveOne(req: Request, res: Response, maxBytes: number):
   if (!f) throw invalid('file', 'is required (the field "file")')
   if (f.size === 0) throw invalid('file', 'is empty')
   // Browsers send the bare file name; folders or control characters in it mean a crafted request.
+  // eslint-disable-next-line no-control-regex -- a name with control characters in it is refused
   if (/[\\/\u0000-\u001f]/.test(f.originalname) || f.originalname.split('.').every((p) => p === '')) throw invalid('file', 'has a file name with folders or control characters in it; send the bare file name')
   const fields = Object.fromEntries(Object.entries((req.body ?? {}) as Record<string, unknown>).map(([k, v]) => [k, String(v)]))
   return { buffer: f.buffer, originalName: f.originalname, fields }

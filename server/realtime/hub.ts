@@ -7,6 +7,10 @@ import type { ClientToServerEvents, EventName, ServerToClientEvents } from '../.
 import { LOCK } from '../lib/locks'
 
 export interface RecordedEvent { seq: number; event: EventName; payload: unknown }
+/** What an event carries, as declared in shared/events.ts; the hub adds `seq`. */
+export type EventPayload<E extends EventName> = Omit<Parameters<ServerToClientEvents[E]>[0], 'seq'>
+/** Socket.IO's typed emit cannot follow a generic event name; payloads are checked by emit's own signature instead. */
+type RoomEmitter = { emit(event: EventName, payload: unknown): void }
 export interface SessionEnd { userId?: number; sessionId?: string }
 
 /** Events only the planners (owner, manager) receive: drafts and planner progress are theirs until published. */
@@ -66,7 +70,7 @@ export class Realtime {
    * instance's caches drop the workshop now, and the numbered row, the note to other instances and the broadcast
    * follow in order (`flush()` waits for them; the API answers only after they are done).
    */
-  emit(workshopId: number, event: EventName, payload: Record<string, unknown>) {
+  emit<E extends EventName>(workshopId: number, event: E, payload: EventPayload<E>) {
     for (const fn of this.listeners) fn(workshopId, 0)
     if (!this.pool) {
       const seq = ++this.memSeq
@@ -75,7 +79,7 @@ export class Realtime {
       list.push({ seq, event, payload: full })
       if (list.length > KEPT_EVENTS) list.splice(0, list.length - KEPT_EVENTS)
       this.memRecent.set(workshopId, list)
-      ;(this.io?.to(roomOf(workshopId, event)) as any)?.emit(event, full)
+      this.room(workshopId, event)?.emit(event, full)
       return
     }
     const pool = this.pool
@@ -88,7 +92,7 @@ export class Realtime {
         // The change itself is committed; clients still hear of it, they just cannot catch up on this one.
         if (!this.closed) console.error(`[realtime] could not record ${event}:`, (err as Error).message)
       }
-      ;(this.io?.to(roomOf(workshopId, event)) as any)?.emit(event, seq === null ? payload : { ...payload, seq })
+      this.room(workshopId, event)?.emit(event, seq === null ? payload : { ...payload, seq })
       if (seq !== null && ++this.recorded % PRUNE_EVERY === 0) await this.prune(workshopId)
     })
   }
@@ -106,8 +110,12 @@ export class Realtime {
   }
 
   /** Progress-style events: sent live (through the adapter to every instance), not kept for catch-up. */
-  emitTransient(workshopId: number, event: EventName, payload: Record<string, unknown>) {
-    ;(this.io?.to(roomOf(workshopId, event)) as any)?.emit(event, payload)
+  emitTransient<E extends EventName>(workshopId: number, event: E, payload: EventPayload<E>) {
+    this.room(workshopId, event)?.emit(event, payload)
+  }
+
+  private room(workshopId: number, event: EventName): RoomEmitter | undefined {
+    return this.io?.to(roomOf(workshopId, event)) as RoomEmitter | undefined
   }
 
   /**

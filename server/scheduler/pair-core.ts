@@ -377,15 +377,15 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       heads[pick] = js
     }
   }
-  const saved = { opt: new Int32Array(n), order: [[], []] as number[][][] }
-  const snapshot = (into: typeof saved): void => {
+  type Saved = { opt: Int32Array; order: number[][][] }
+  const snapshot = (into: Saved): void => {
     into.opt.set(opt)
     for (const t of [M, W]) {
       into.order[t] = []
       for (let k = 0; k < head[t]!.length; k++) { const seq: number[] = []; for (let x = head[t]![k]!; x >= 0; x = succ[t]![x]!) seq.push(x); into.order[t]!.push(seq) }
     }
   }
-  const restore = (from: typeof saved): void => {
+  const restore = (from: Saved): void => {
     undo.length = 0
     opt.set(from.opt)
     for (let i = 0; i < n; i++) p[i] = optDur[opt[i]!]!

@@ -31,7 +31,7 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
   const deadline = t0 + Math.max(0, options.timeLimitMs)
   const shop = asShop(c)
   let decoded: Decoded, iterations: number, firstPlanMs: number, evaluations: number | undefined
-  let pair: PairShop | null = null
+  let pair: PairShop | null
   let previousScore: { weightedTardiness: number; makespan: number } | undefined
   if (shop) {
     const r = solveShop(shop, {

@@ -279,7 +279,7 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
     for (const iv of dayIv) {
       let planned = 0
       const ids: number[] = []
-      for (const [id, a] of Object.entries(assignments)) {
+      for (const id of Object.keys(assignments)) {
         const m = data.meta.operations.get(id)
         if (!m || m.op.kindId !== k.id || !worked.has(id)) continue
         const mins = minutesIn(worked.get(id)!, iv)

@@ -1,7 +1,7 @@
 // Learning estimates from actual times: finished work with its actual minutes, robust fits per kind and step, people's speed, accepted suggestions.
 import { and, asc, desc, eq, gte, inArray, isNotNull, lt } from 'drizzle-orm'
 import {
-  median, medianAbsoluteDeviation, quantile, ratioOfMedians, routingStepMinutes, sizeBandOf, SIZE_BANDS, theilSen, threePointEstimate, type Point, type SizeBand,
+  median, medianAbsoluteDeviation, quantile, ratioOfMedians, routingStepMinutes, sizeBandOf, SIZE_BANDS, theilSen, threePointEstimate, type Point,
 } from '../../shared/domain/estimate'
 import type { PieceParams } from '../../shared/schemas/order'
 import type {

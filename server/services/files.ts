@@ -1,7 +1,7 @@
 // Files of orders and job bags: checked by content, stored under generated names in the upload directory, with thumbnails.
 import { randomUUID } from 'node:crypto'
 import { mkdir, readFile, unlink, writeFile } from 'node:fs/promises'
-import { join, resolve, sep } from 'node:path'
+import { resolve, sep } from 'node:path'
 import { and, desc, eq } from 'drizzle-orm'
 import sharp from 'sharp'
 import type { Role } from '../../shared/domain/roles'

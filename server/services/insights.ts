@@ -1,5 +1,5 @@
 // The owner's figures: estimated against actual hours by kind, person, routing, order and month; drill-down; job costing; CSV.
-import { and, asc, eq, inArray, sql } from 'drizzle-orm'
+import { and, asc, eq, sql } from 'drizzle-orm'
 import type {
   BiasTrend, ComparisonRow, ComparisonTable, CostingRow, CostingTable, DrillDown, Grouping, InsightFilter, ScatterPoint,
 } from '../../shared/schemas/insights'

@@ -9,7 +9,7 @@ import {
 } from '../../shared/domain/stones'
 import type { JobBagStones, StoneCheckBackInput, StoneCorrectionInput, StoneLineInput, StoneLineOut, StoneLineState, StoneLineUpdate, StoneMovementInput } from '../../shared/schemas/stone'
 import type { PieceParams } from '../../shared/schemas/order'
-import type { Db, Tx } from '../db/client'
+import type { Tx } from '../db/client'
 import { estimateChanges, jobBags, jobBagStones, operationKinds, operations, orders, people, routingTemplates, stoneMovements, templateSteps, users } from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'

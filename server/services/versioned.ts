@@ -4,6 +4,8 @@ import type { PgColumn, PgTable } from 'drizzle-orm/pg-core'
 import type { Tx } from '../db/client'
 import { notFound, staleVersion } from '../errors/app-error'
 
+/* eslint-disable @typescript-eslint/no-explicit-any -- Drizzle cannot type a query over a table known only as "some versioned
+   table"; the answers are typed for callers by T['$inferSelect'] below. */
 type VersionedTable = PgTable & { id: PgColumn; version: PgColumn; workshopId: PgColumn }
 
 export async function updateVersioned<T extends VersionedTable>(

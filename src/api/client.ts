@@ -26,7 +26,7 @@ export class ApiError extends Error {
   }
 
   static async fromResponse(res: Response): Promise<ApiError> {
-    let body: Partial<ErrorBody> | null = null
+    let body: Partial<ErrorBody> | null
     try {
       body = (await res.json()) as Partial<ErrorBody>
     } catch {

@@ -18,6 +18,7 @@ export const LATE_WINDOW = 1000
 
 export interface CaughtUpEvent { seq: number; event: string; payload: unknown }
 type Handler = (payload: Record<string, unknown>, event: string) => void
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- socket.io-client's own listener type; payloads are read as Record<string, unknown>
 type Listener = (...args: any[]) => void
 
 /** What the channel needs from a socket.io-client socket (a fake one in tests). */

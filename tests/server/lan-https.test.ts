@@ -239,6 +239,7 @@ describe('what npm start -- --lan prints', () => {
  */
 function decodeTerminalQr(text: string): string | null {
   // The final row draws the light quiet zone in the foreground colour (escape 37): it is all light.
+  // eslint-disable-next-line no-control-regex -- the terminal's colour escapes are what this strips
   const rows = text.split('\n').filter((l) => l.startsWith('\u001b[47m\u001b[30m ') && !l.includes('\u001b[37m')).map((l) => l.replace(/\u001b\[\d+m/g, ''))
   const modules: boolean[][] = []
   for (const r of rows) {

@@ -1,6 +1,6 @@
 // Builds the engine's problem from the workshop's data: calendars as minute intervals, job bags as jobs, operations with options.
 import { and, eq, inArray, notInArray } from 'drizzle-orm'
-import type { Db, Tx } from '../../db/client'
+import type { Tx } from '../../db/client'
 import * as s from '../../db/schema/index'
 import { dayjs, expandPattern, MinuteClock, subtract, dayRange, type Interval } from '../../lib/time'
 import type { Operation as EngineOperation, Problem } from '../../scheduler/model.ts'

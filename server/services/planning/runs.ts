@@ -2,6 +2,7 @@
 // workshop, solved in a worker thread, progress and a heartbeat written to the row and relayed live, the result saved once as a draft.
 import { randomUUID } from 'node:crypto'
 import { and, desc, eq, inArray, lt, sql } from 'drizzle-orm'
+import { describe } from '../../../shared/domain/rules'
 import type { Db, Trx } from '../../db/client'
 import * as s from '../../db/schema/index'
 import { AppError } from '../../errors/app-error'
@@ -136,7 +137,7 @@ export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?:
       return { cancelled: true }
     }
     // A plan that breaks a rule (say, a pin its earlier steps cannot reach) is never offered as a draft.
-    if (!plan.score.feasible) throw new AppError({ code: 'unprocessable', message: `The planner found no plan that keeps every rule: ${plan.score.violations.slice(0, 3).join('; ')}. Unpin or move the step concerned and run again.` })
+    if (!plan.score.feasible) throw new AppError({ code: 'unprocessable', message: `The planner found no plan that keeps every rule: ${describe(plan.score.violations)}. Unpin or move the step concerned and run again.` })
     // A draft is offered only when it beats the live plan kept as it is (re-timed from now).
     const live = plan.stats.previous
     if (live && !betterThanLive(plan.score, live, o.stability)) {

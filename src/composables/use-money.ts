@@ -1,4 +1,5 @@
 // Money on screen: integer minor units from the API shown in the workshop's currency, formatted by the browser's locale.
+import { currencyExponent } from '@shared/domain/currency'
 
 /** The browser's preferred locale (falls back to en-GB where there is none, e.g. in tests without a navigator). */
 export function browserLocale(): string {
@@ -17,9 +18,12 @@ function currencyFormat(currency: string, locale: string): Intl.NumberFormat {
   return f
 }
 
-/** How many minor units make one major unit of a currency, as Intl (ISO 4217) has it: GBP 2 → 100, JPY 0 → 1. */
+/**
+ * Decimals of a currency's major unit as ISO 4217 has them (GBP 2, JPY 0, BHD 3) — the same table the server stores amounts by
+ * (shared/domain/currency.ts). Intl's own figure is a display habit and differs for some (HUF, IQD, COP…), so it is not used here.
+ */
 export function minorDigits(currency: string): number {
-  return new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2
+  return currencyExponent(currency)
 }
 
 /** An amount in minor units (e.g. 23400 pence) as the browser's locale writes it in that currency ("£234.00" in en-GB). */

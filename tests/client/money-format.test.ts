@@ -11,6 +11,13 @@ describe('money on screen', () => {
     expect([minorDigits('GBP'), minorDigits('EUR'), minorDigits('JPY'), minorDigits('BHD')]).toEqual([2, 2, 0, 3])
   })
 
+  it('when a currency has decimals in ISO 4217 that Intl does not show, then the amount is still read by ISO 4217', () => {
+    // ISO 4217: HUF has 2 decimals (fillér), so 150000 minor units are 1,500 forint; Intl (CLDR) writes forint without decimals.
+    // Taking Intl's 0 as the minor unit would have shown HUF 150,000.
+    expect(minorDigits('HUF')).toBe(2)
+    expect(plain(formatMinor(150000, 'HUF', 'en-GB'))).toBe('HUF 1,500')
+  })
+
   it('when 125000 pence are shown in en-GB, then they read £1,250.00', () => {
     // 125000 p = £1,250.00 (hand-worked); en-GB groups thousands with a comma and puts £ before the figure.
     expect(formatMinor(125000, 'GBP', 'en-GB')).toBe('£1,250.00')

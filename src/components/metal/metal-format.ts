@@ -2,6 +2,7 @@
 // code means, the tablet's remembered container weight, and CSV made in the browser.
 import type { Alloy, LossRow } from '@shared/schemas/metal'
 import { PIECE_METAL_ALLOY } from '@shared/domain/metal'
+import { currencyExponent } from '@shared/domain/currency'
 
 const locale = () => (typeof navigator !== 'undefined' && navigator.language ? navigator.language : 'en-GB')
 
@@ -14,10 +15,8 @@ export const fmtMg3 = (mg: number | null | undefined): string => (mg === null ||
 /** 2.08 → "2.1 %". */
 export const fmtPct = (p: number | null | undefined): string => (p === null || p === undefined || !Number.isFinite(p) ? '—' : `${p.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 })} %`)
 
-/** Minor units per major unit of a currency as Intl (ISO 4217) has it: GBP → 2 digits, JPY → 0. */
-export function currencyDigits(currency: string): number {
-  try { return new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2 } catch { return 2 }
-}
+/** Decimals of a currency as ISO 4217 has them (GBP 2, JPY 0, BHD 3): the table amounts are stored by (shared/domain/currency.ts). */
+export const currencyDigits = (currency: string): number => currencyExponent(currency)
 /** An amount held in integer minor units, written by the browser's locale in the workshop's currency. */
 export function fmtMoney(minor: number | null | undefined, currency: string): string {
   if (minor === null || minor === undefined || !Number.isFinite(minor)) return '—'

@@ -26,10 +26,13 @@ if (!process.env.SKIP_BUILD) {
 }
 
 const args = process.argv.slice(2)
-// With no arguments the types are checked first (client and server), so nothing keeps passing with a type error in it.
+// With no arguments the types and the lint rules are checked first (client and server), so nothing keeps passing with a
+// type error or a lint finding in it.
 if (!args.length) {
-  const tc = spawnSync('npm', ['run', '-s', 'typecheck'], { cwd: root, stdio: 'inherit' })
-  if (tc.status !== 0) { console.error('[test] typecheck failed'); if (!process.env.KEEP_TEST_DB) stopCluster(test.pgDir); process.exit(tc.status ?? 1) }
+  for (const script of ['typecheck', 'lint']) {
+    const r = spawnSync('npm', ['run', '-s', script], { cwd: root, stdio: 'inherit' })
+    if (r.status !== 0) { console.error(`[test] ${script} failed`); if (!process.env.KEEP_TEST_DB) stopCluster(test.pgDir); process.exit(r.status ?? 1) }
+  }
 }
 const env = { ...process.env, TEST_PG_PORT: String(test.pgPort), TEST_DATABASE_TEMPLATE: test.dbName, NODE_ENV: 'test' }
 const vitest = (a: string[]) => spawnSync(join(root, 'node_modules/.bin/vitest'), ['run', ...a], { cwd: root, stdio: 'inherit', env }).status ?? 1

@@ -179,6 +179,22 @@ describe('the sticky proxy', () => {
     if ((await cluster.database.pool.query('select pinned from operations where id = $1', [step.id])).rows[0].pinned) await pin(a.url, onA, step, false)
   })
 
+  it('when a client starts with long-polling through the proxy, then it upgrades to a WebSocket through the proxy and hears a change made on another instance', async () => {
+    const proxyUrl = cluster.proxyUrl!
+    const s = await httpSignIn(proxyUrl, 'owner')
+    const client = await listen(proxyUrl, s, ['polling', 'websocket'])
+    const engine = (client.sock.io as unknown as { engine: { transport: { name: string }; once(e: string, f: () => void): void } }).engine
+    if (engine.transport.name !== 'websocket') await new Promise<void>((res) => engine.once('upgrade', () => res()))
+    expect(engine.transport.name).toBe('websocket')
+    const onA = await httpSignIn(a.url, 'manager')
+    const step = await plannedStep()
+    const heard = until(client.sock, 'plan:changed')
+    const r = await pin(a.url, onA, step, true)
+    expect(r.status).toBe(200)
+    expect(await heard).toMatchObject({ operationId: step.id })
+    await pin(a.url, onA, { id: step.id, version: ((await r.json()) as { version: number }).version }, false)
+  })
+
   it('when a browser without the instance cookie asks for a page, then the proxy names its instance in a cookie beside the session cookie', async () => {
     const r = await fetch(`${cluster.proxyUrl}/api/session`)
     const cookies = r.headers.getSetCookie()

@@ -191,11 +191,13 @@ export class Realtime {
       const client = new pg.Client({ connectionString })
       const retry = () => {
         if (this.closed || this.listenClient !== client) return
+        // A connection that was up starts its backoff again from the shortest wait.
+        const next = this.listenReady ? 1 : attempt + 1
         this.listenClient = null
         this.listenReady = false
         // Notes sent while we were away are lost: every cached entry may be stale.
         for (const fn of this.resetListeners) fn()
-        this.listenRetry = setTimeout(() => void connect(attempt + 1), Math.min(5000, 250 * 2 ** Math.min(attempt, 5)))
+        this.listenRetry = setTimeout(() => void connect(next), Math.min(5000, 250 * 2 ** Math.min(next - 1, 5)))
         this.listenRetry.unref()
       }
       client.on('error', (err) => {

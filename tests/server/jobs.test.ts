@@ -2,6 +2,7 @@
 // being killed, the daily digest goes once, and a refused e-mail is tried again and delivered once.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { randomUUID } from 'node:crypto'
+import { sql } from 'drizzle-orm'
 import { createApp } from '../../server/app'
 import { loadConfig } from '../../server/config'
 import { createDb } from '../../server/db/client'
@@ -12,6 +13,7 @@ import { Realtime } from '../../server/realtime/hub'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { dayjs } from '../../server/lib/time'
 import { loadPlanningData } from '../../server/services/planning/problem'
+import { sendRecorded } from '../../server/services/mail'
 import { recoverStaleRuns, runPlanJob, startRun, waitForRun } from '../../server/services/planning/runs'
 import { createTestApp, httpSignIn, signedIn, type TestApp } from '../setup/app'
 import { startInstances, type Instances } from '../setup/instances'
@@ -211,6 +213,26 @@ describe('daily mail and e-mail retries on two instances', () => {
     }
     const { rows: days } = await t.pool.query(`select count(*)::int as n from daily_mail_runs where workshop_id = 1`)
     expect(days[0].n).toBe(1)
+  })
+
+  it('when the change that queued an e-mail rolls back, then neither its outbox row nor its send job exists; when it commits, both do', async () => {
+    const content = { subject: 'Queued in a transaction', text: 'x', html: '<p>x</p>' }
+    const jobsFor = async (outboxId: number) => Number((await t.pool.query(`select count(*) from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1`, [String(outboxId)])).rows[0].count)
+    let rolledBack = 0
+    await t.db.transaction(async (tx) => {
+      rolledBack = (await sendRecorded({ ...t.deps, db: tx as unknown as typeof t.db }, { workshopId: 1, to: 'rolled-back@example.com', kind: 'test', content })).id
+      // Inside the transaction its job is there (written on the transaction's own connection).
+      const { rows } = await tx.execute(sql`select count(*)::int as n from pgboss.job where name = 'mail-send' and data->>'outboxId' = ${String(rolledBack)}`)
+      expect(rows[0]).toMatchObject({ n: 1 })
+      tx.rollback()
+    }).catch((err) => { if (!/rollback/i.test(String(err))) throw err })
+    expect(rolledBack).toBeGreaterThan(0)
+    expect(await jobsFor(rolledBack)).toBe(0)
+    expect((await t.pool.query(`select 1 from outbox where id = $1`, [rolledBack])).rows).toHaveLength(0)
+    const committed = { ...content, subject: 'Queued and committed' }
+    const kept = await t.db.transaction((tx) => sendRecorded({ ...t.deps, db: tx as unknown as typeof t.db }, { workshopId: 1, to: 'committed@example.com', kind: 'test', content: committed }))
+    expect(await jobsFor(kept.id)).toBe(1)
+    await fake.waitFor((m) => m.subject === committed.subject, 30_000)
   })
 
   it('when the mail server refuses the first try, then the message is tried again and delivered once', async () => {

@@ -26,7 +26,7 @@ import { handleWebhook } from './services/payments'
 import { ownAppUrl } from './lib/public-url'
 import { CA_PATH, caCertificateHandler } from './lib/tls'
 
-export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime; mailer?: Mailer; /** The job queue; the caller starts it with the returned deps. */ jobs?: Jobs }
+export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime; mailer?: Mailer; /** The job queue; the caller starts it with the returned deps. */ jobs?: Jobs<Deps> }
 
 export function createApp({ db, pool, config, realtime = new Realtime(), mailer = createMailer(config), jobs }: AppDeps) {
   const app = express()
@@ -130,9 +130,9 @@ function register(router: express.Router, spec: RouteSpec, deps: Deps) {
       const body = spec.body ? spec.body.parse(req.body ?? {}) : req.body
       const actor = actorOf(req.user as SessionUser | undefined)
       const result = await spec.handler({ req, res, actor: actor!, body, query, params, deps })
-      endPinAfterWrite(req)
       // The change events of this request are numbered and sent before it answers, so whoever reads next (on any instance) sees them.
       await deps.realtime.flush()
+      endPinAfterWrite(req)
       if (result === undefined) {
         if (!res.headersSent) res.status(204).end()
         return

@@ -5,11 +5,13 @@ import type { Deps } from '../lib/route'
 import { runDailyMail } from '../mail/digest-timer'
 import { deliverOutboxJob } from '../services/mail'
 import { recoverStaleRuns, releaseLocalRuns, runPlanJob } from '../services/planning/runs'
-import { createJobs, QUEUES, timingOf, type JobHandler, type Jobs, type QueueName } from './queue'
+import { createJobs, QUEUES, timingOf, type JobHandler, type Jobs as QueueJobs, type QueueName } from './queue'
 
-export { QUEUES, type Jobs } from './queue'
+export { QUEUES } from './queue'
+/** The app's job queue: its handlers get the app's Deps. */
+export type Jobs = QueueJobs<Deps>
 
-export const HANDLERS: Record<QueueName, JobHandler> = {
+export const HANDLERS: Record<QueueName, JobHandler<Deps>> = {
   [QUEUES.planRun]: (deps, data, job) => runPlanJob(deps, data, job),
   [QUEUES.mailSend]: (deps, data, job) => deliverOutboxJob(deps, data, job),
   [QUEUES.dailyMail]: (deps, data) => runDailyMail(deps, data),
@@ -23,7 +25,7 @@ export function createAppJobs(config: Config, o: { only?: QueueName[]; instance?
   let deps: Deps | undefined
   const timing = timingOf(config)
   const handlers = Object.fromEntries(Object.entries(HANDLERS).filter(([q]) => !o.only || o.only.includes(q as QueueName)))
-  const jobs = createJobs(config.DATABASE_URL, {
+  const jobs = createJobs<Deps>(config.DATABASE_URL, {
     timing, handlers, ...(o.instance ? { instance: o.instance } : {}),
     beforeStop: async () => { if (deps) await releaseLocalRuns(deps) },
   })

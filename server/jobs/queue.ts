@@ -5,7 +5,6 @@ import PgBoss from 'pg-boss'
 import type pg from 'pg'
 import type { Config } from '../config'
 import type { Db, Trx } from '../db/client'
-import type { Deps } from '../lib/route'
 
 export const QUEUES = {
   /** { runId }: one planner run (server/services/planning/runs.ts). */
@@ -73,9 +72,10 @@ export function adapterOf(db: Db | Trx): PgBoss.Db {
 }
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- each queue's handler reads the data shape its own sender wrote
-export type JobHandler = (deps: Deps, data: any, job: PgBoss.JobWithMetadata<any>) => Promise<unknown>
+export type JobHandler<D> = (deps: D, data: any, job: PgBoss.JobWithMetadata<any>) => Promise<unknown>
 
-export interface Jobs {
+/** The queue, generic in what its handlers are given (the app's Deps), so this module needs nothing from the app's layers. */
+export interface Jobs<D> {
   /** This instance's name in run rows and logs (host:pid). */
   readonly instance: string
   readonly timing: JobTiming
@@ -87,20 +87,20 @@ export interface Jobs {
   wake(queue: QueueName): void
   /** Runs every `seconds` while started (e.g. the heartbeat check of planner runs). */
   every(seconds: number, fn: () => Promise<void>): void
-  start(deps: Deps): Promise<void>
+  start(deps: D): Promise<void>
   stop(): Promise<void>
 }
 
-export interface JobsOptions {
+export interface JobsOptions<D> {
   timing: JobTiming
   /** Handlers per queue; tests may leave some out to play a consumer of certain kinds only. */
-  handlers: Partial<Record<QueueName, JobHandler>>
+  handlers: Partial<Record<QueueName, JobHandler<D>>>
   /** Runs before the queue stops (e.g. hand this instance's planner runs back). */
   beforeStop?: () => Promise<void>
   instance?: string
 }
 
-export function createJobs(connectionString: string, o: JobsOptions): Jobs {
+export function createJobs<D>(connectionString: string, o: JobsOptions<D>): Jobs<D> {
   const t = o.timing
   const boss = new PgBoss({
     connectionString, max: 4, application_name: 'millgrain-jobs',
@@ -115,7 +115,7 @@ export function createJobs(connectionString: string, o: JobsOptions): Jobs {
   const periodic: { seconds: number; fn: () => Promise<void> }[] = []
   let started = false
   let stopping = false
-  const jobs: Jobs = {
+  const jobs: Jobs<D> = {
     instance: o.instance ?? `${hostname()}:${process.pid}`,
     timing: t,
     async send(queue, data, so = {}) {
@@ -137,7 +137,7 @@ export function createJobs(connectionString: string, o: JobsOptions): Jobs {
     async start(deps) {
       await boss.start()
       await installQueues(boss, t)
-      for (const [queue, handler] of Object.entries(o.handlers) as [QueueName, JobHandler][]) {
+      for (const [queue, handler] of Object.entries(o.handlers) as [QueueName, JobHandler<D>][]) {
         const id = await boss.work(queue, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: t.pollSeconds }, async ([job]) => {
           if (job) return handler(deps, job.data, job)
         })

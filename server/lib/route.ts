@@ -14,7 +14,7 @@ import type { PassportStatic } from 'passport'
 import type { Jobs } from '../jobs/queue'
 type Authenticator = InstanceType<PassportStatic['Passport']>
 
-export interface Deps { db: Db; realtime: Realtime; /** The app's read cache (absent in scripts: everything is loaded). */ cache?: Cache; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer; /** The HOST the server listens on (config). */ listenHost?: string; /** The payment provider (real or the local fake); null when none is configured. */ pay?: PayProvider | null; /** This server's own address, for the provider's return pages when the workshop has no public address. */ appUrl?: string; /** Link lifetimes and the bench PIN time (config). */ accounts?: { inviteHours: number; resetMinutes: number; pinSeconds: number }; /** The job queue (server/jobs); absent in scripts, where the work happens in place. */ jobs?: Jobs }
+export interface Deps { db: Db; realtime: Realtime; /** The app's read cache (absent in scripts: everything is loaded). */ cache?: Cache; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer; /** The HOST the server listens on (config). */ listenHost?: string; /** The payment provider (real or the local fake); null when none is configured. */ pay?: PayProvider | null; /** This server's own address, for the provider's return pages when the workshop has no public address. */ appUrl?: string; /** Link lifetimes and the bench PIN time (config). */ accounts?: { inviteHours: number; resetMinutes: number; pinSeconds: number }; /** The job queue (server/jobs); absent in scripts, where the work happens in place. */ jobs?: Jobs<Deps> }
 
 export interface RouteContext<B, Q, P> {
   req: Request

@@ -10,7 +10,7 @@ import { LOCK } from '../lib/locks'
 import type { Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import type { Realtime } from '../realtime/hub'
-import { digestSentOn, sendAtRiskDigest } from '../services/mail'
+import { digestSentOn, sendAtRiskDigest } from '../services/digest'
 import { sendMoneyReminders } from '../services/quotes'
 
 export const DIGEST_TIME = '07:30'

@@ -1,4 +1,5 @@
 // Mail routes: the outbox (what was sent, with a preview) and sending the managers' at-risk digest now.
+import * as digest from '../services/digest'
 import { z } from 'zod'
 import type { Role } from '../../shared/domain/roles'
 import { id } from '../../shared/schemas/common'
@@ -17,5 +18,5 @@ const outboxQuery = z.object({
 export const mailRoutes = [
   route({ method: 'get', path: '/outbox', roles: FRONT, summary: 'Messages sent by the workshop, newest first', query: outboxQuery, handler: ({ deps, actor, query }) => mail.listOutbox(deps.db, actor.workshopId, query) }),
   route({ method: 'get', path: '/outbox/:id', roles: FRONT, summary: 'One message with its text and HTML', params: idParam, handler: ({ deps, actor, params }) => mail.getOutboxMessage(deps.db, actor.workshopId, params.id) }),
-  route({ method: 'post', path: '/mail/at-risk-digest', roles: ['owner', 'manager'], summary: 'Send the managers the digest of job bags at risk now', handler: ({ deps, actor }) => mail.sendAtRiskDigest(deps, actor.workshopId) }),
+  route({ method: 'post', path: '/mail/at-risk-digest', roles: ['owner', 'manager'], summary: 'Send the managers the digest of job bags at risk now', handler: ({ deps, actor }) => digest.sendAtRiskDigest(deps, actor.workshopId) }),
 ]

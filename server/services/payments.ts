@@ -13,6 +13,7 @@ import { minorToDecimal, minorToMajor } from '../../shared/domain/currency'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
+import { quoteOrderInput } from './quote-order'
 
 type Tx = Db | Trx
 const STARTED = ['claimed', 'running', 'paused', 'done']
@@ -192,8 +193,7 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
   try {
     const needsOrder = quote && quote.status !== 'withdrawn' && quote.status !== 'accepted' && !quote.orderId && !link.orderId
     if (needsOrder) {
-      const { quoteOrderInput } = await import('./quotes')
-      booked = (await takeOrder(deps, actor, await quoteOrderInput(deps.db, quote), (tx, orderId) => book(tx, orderId))).extra
+      booked = (await takeOrder(deps, actor, quoteOrderInput(quote), (tx, orderId) => book(tx, orderId))).extra
     } else booked = await deps.db.transaction((tx) => book(tx, null))
   } catch (err) {
     if (err instanceof AlreadyBooked) return { received: true, booked: false }

@@ -2,7 +2,6 @@
 import { and, count, desc, eq, ilike, inArray, lt, or, sql } from 'drizzle-orm'
 import PDFDocument from 'pdfkit'
 import type { QuoteInput, QuoteUpdate, QuoteStatus } from '../../shared/schemas/quote'
-import { pieceParams, type OrderInput } from '../../shared/schemas/order'
 import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
@@ -14,6 +13,7 @@ import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
 import { createLink, listPayments } from './payments'
+import { quoteOrderInput } from './quote-order'
 import { LOCK } from '../lib/locks'
 
 const cols = {
@@ -138,17 +138,6 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
   return getQuote(deps.db, actor.workshopId, id)
 }
 
-/** What an accepted quote becomes: one piece from the quoted routing (none when the quote names no routing). */
-export async function quoteOrderInput(db: Db, q: typeof s.quotes.$inferSelect): Promise<OrderInput> {
-  const d = q.details as { templateId?: number; piece?: string; params?: OrderInput['pieces'][number]['params']; priority?: number }
-  const due = q.promisedDate ?? q.validUntil
-  return {
-    customerId: q.customerId, title: q.title, dueDate: due, promisedDate: q.promisedDate, priority: d.priority ?? 3, priceQuotedMinor: q.priceMinor, notes: `From quote ${q.number}`,
-    // The quoted parameters with the order form's defaults filled in (metal, quantity, …), as the order form would send them.
-    pieces: d.templateId ? [{ templateId: d.templateId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}) }] : [],
-  }
-}
-
 export async function acceptQuote(deps: Deps, actor: Actor, id: number, version: number) {
   await expireQuotes(deps, actor.workshopId)
   const [q] = await deps.db.select().from(s.quotes).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId)))
@@ -156,7 +145,7 @@ export async function acceptQuote(deps: Deps, actor: Actor, id: number, version:
   if (!['drafted', 'sent'].includes(q.status)) throw wrongState(q.status, 'accepted')
   if (q.orderId) await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString() }, 'accepted')
   else {
-    await takeOrder(deps, actor, await quoteOrderInput(deps.db, q), async (tx, orderId) => {
+    await takeOrder(deps, actor, quoteOrderInput(q), async (tx, orderId) => {
       await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString(), orderId }, 'accepted', tx)
       await tx.update(s.payments).set({ orderId }).where(eq(s.payments.quoteId, id))
       await tx.update(s.paymentLinks).set({ orderId }).where(eq(s.paymentLinks.quoteId, id))

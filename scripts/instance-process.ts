@@ -1,5 +1,5 @@
 // One app instance as its own process (`node --import tsx server/index.ts`), started on a loopback port and followed
-// until it says where it listens; used by `npm run start:cluster`, `bench:instances` and tests/setup/instances.ts.
+// until it says where it listens; used by `npm run start:cluster`, `benchmark:instances` and tests/setup/instances.ts.
 import { spawn, type ChildProcess } from 'node:child_process'
 import { join } from 'node:path'
 import { root } from './env'

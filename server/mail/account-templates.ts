@@ -1,5 +1,5 @@
 // E-mails that carry a one-time link: an invitation to the workshop and a password reset. The outbox keeps a copy without the link.
-import type { MailContent } from './templates'
+import type { MailContent } from './messages'
 
 const esc = (s: string) => s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!)
 

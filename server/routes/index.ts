@@ -1,6 +1,6 @@
 // Every API route, in one list: the app mounts it and the access test walks it.
 import type { RouteSpec } from '../lib/route'
-import { benchRoutes } from './bench'
+import { benchRoutes } from './bench-floor'
 import { insightRoutes } from './insights'
 import { jobBagRoutes } from './job-bags'
 import { masterDataRoutes } from './masterdata'

@@ -2,7 +2,7 @@
 import { z } from 'zod'
 import { id } from '../../shared/schemas/common'
 import { jobBagListQuery, jobBagStatusInput, ringSizeChange, sequenceInput, stepAdd, stepSkip, stepUpdate, ticketQuery } from '../../shared/schemas/job-bag'
-import { timeRecordAdd, timeRecordCorrection } from '../../shared/schemas/bench-work'
+import { timeRecordAdd, timeRecordCorrection } from '../../shared/schemas/bench-floor'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
 import { suggestionForRequest } from '../lib/public-url'

@@ -5,7 +5,7 @@ import * as s from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
-import * as t from '../mail/templates'
+import * as t from '../mail/messages'
 import { boardData } from './board'
 import { sendRecorded } from './mail'
 

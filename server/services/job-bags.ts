@@ -10,7 +10,7 @@ import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { finished, lockJobBag, refreshReadiness, syncJobBagStatus, type OperationChange } from './job-bag-state'
-import { benchRowsById, toBenchOperations } from './bench'
+import { benchRowsById, toBenchOperations } from './bench-floor'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
 
 export type { BagChange, OperationChange } from './job-bag-state'

@@ -6,7 +6,7 @@ import * as s from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Deps } from '../lib/route'
 import { minorToMajor } from '../../shared/domain/currency'
-import * as t from '../mail/templates'
+import * as t from '../mail/messages'
 import { OUTBOX_HEADER } from '../mail/transport'
 import { QUEUES } from '../jobs/queue'
 

@@ -1,7 +1,7 @@
 // Time records: opening and closing them at the bench, their effective values after corrections, and managers' corrections.
 import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm'
 import type { EffectiveTimeRecord } from '../../shared/schemas/job-bag'
-import type { TimeRecordAdd, TimeRecordCorrection } from '../../shared/schemas/bench-work'
+import type { TimeRecordAdd, TimeRecordCorrection } from '../../shared/schemas/bench-floor'
 import type { Tx } from '../db/client'
 import { benches, jobBags, operations, people, timeRecordCorrections, timeRecords, users } from '../db/schema/index'
 import { AppError, invalid, notFound } from '../errors/app-error'

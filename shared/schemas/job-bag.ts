@@ -2,7 +2,7 @@
 import { z } from 'zod'
 import { id, name, version } from './common'
 import { ringSizeInput } from './order'
-import type { BenchOperation } from './bench-work'
+import type { BenchOperation } from './bench-floor'
 
 const reason = z.string({ error: 'is required' }).trim().min(3, 'say why (at least 3 characters)').max(500, 'must be at most 500 characters')
 const minutes = z.number({ error: 'must be a number of minutes' }).min(0, 'must not be negative').max(100_000, 'must be at most 100000 minutes')

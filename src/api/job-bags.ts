@@ -1,6 +1,6 @@
 // Job bags API: the bag's page data, routing edits, hold / cancel, ticket link, time record corrections.
 import type { JobBagDetail, JobBagStatusInput, RingSizeChange, SequenceInput, StepAdd, StepSkip, StepUpdate, EffectiveTimeRecord } from '@shared/schemas/job-bag'
-import type { TimeRecordAdd, TimeRecordCorrection } from '@shared/schemas/bench-work'
+import type { TimeRecordAdd, TimeRecordCorrection } from '@shared/schemas/bench-floor'
 import { api } from './client'
 
 export interface JobBagSummary { id: number; number: string; piece: string; status: string; version: number; orderId: number; orderNumber: string; dueDate: string; priority: number; operations: number; finished: number }

@@ -5,7 +5,7 @@ import { onUnauthenticated } from '@/api/client'
 import { decide } from './guards'
 
 // Screens other engineers add later: used as soon as the file exists, a "coming" page until then.
-const later = import.meta.glob(['../views/BenchView.vue', '../views/PlanView.vue', '../views/InsightsView.vue', '../views/PromiseView.vue'])
+const later = import.meta.glob(['../views/BenchFloorView.vue', '../views/PlanView.vue', '../views/InsightsView.vue', '../views/PromiseView.vue'])
 const comingSoon = () => import('@/views/ComingSoonView.vue')
 const laterOr = (name: string): (() => Promise<RouteComponent>) => (later[`../views/${name}.vue`] as (() => Promise<RouteComponent>) | undefined) ?? comingSoon
 
@@ -20,7 +20,7 @@ export const routes: RouteRecordRaw[] = [
     children: [
       { path: '', name: 'home', component: comingSoon },
       { path: 'plan', name: 'plan', component: () => import('@/views/PlanBoardView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Plan board' } },
-      { path: 'bench', name: 'bench', component: laterOr('BenchView'), meta: { roles: ['owner', 'manager', 'bench'], title: 'My bench queue' } },
+      { path: 'bench', name: 'bench', component: laterOr('BenchFloorView'), meta: { roles: ['owner', 'manager', 'bench'], title: 'My bench queue' } },
       { path: 'job-bags/:id(\\d+)', name: 'job-bag', component: () => import('@/views/JobBagView.vue'), meta: { roles: ['owner', 'manager', 'bench', 'sales'], title: 'Job bag' } },
       { path: 'orders/:id(\\d+)?', name: 'orders', component: () => import('@/views/OrdersView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Orders' } },
       { path: 'promise', name: 'promise', component: laterOr('PromiseView'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Promise check' } },

@@ -1,7 +1,7 @@
 // Routing warnings in the API: every seeded routing passes its own check, and a routing that lets work start while a casting is away comes back with warnings.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { templateWarnings } from '../../shared/domain/template-warnings'
-import type { Template } from '../../shared/schemas/template'
+import type { Template } from '../../shared/schemas/routing'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 
 let t: TestApp

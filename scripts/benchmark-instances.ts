@@ -1,4 +1,4 @@
-// `npm run bench:instances`: 1, 2 and 4 app processes over one PostgreSQL behind the sticky proxy of start:cluster.
+// `npm run benchmark:instances`: 1, 2 and 4 app processes over one PostgreSQL behind the sticky proxy of start:cluster.
 // Board throughput: autocannon through the proxy (50 connections, 10 s; requests without the instance cookie are dealt
 // round the instances, as many browsers would be). Change latency: a bar pinned through instance a, heard by a client
 // connected to instance b (a itself when there is one instance), 40 times. Prints figures; asserts nothing.
@@ -8,7 +8,7 @@ import autocannon from 'autocannon'
 import { io as connect } from 'socket.io-client'
 import { DEMO_PASSWORD } from '../server/db/seed'
 import { dayjs } from '../server/lib/time'
-import { addPlannedLoad, pct } from './bench-common'
+import { addPlannedLoad, pct } from './benchmark-common'
 import { startProxy } from './cluster-proxy'
 import { instanceName, spawnInstance } from './instance-process'
 import { scratchDatabase } from './scratch-db'

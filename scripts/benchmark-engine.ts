@@ -1,5 +1,5 @@
 // Benchmark: every kit instance at a time limit, checked twice (our validator and the kit's checker), beside the HiGHS MIP on small ones.
-// usage: npm run bench:engine -- [--time-limit S] [--only ft06,mk01,la01-f13] [--seed N] [--sets shop,twt,fjw] [--cpu-clock]
+// usage: npm run benchmark:engine -- [--time-limit S] [--only ft06,mk01,la01-f13] [--seed N] [--sets shop,twt,fjw] [--cpu-clock]
 // --cpu-clock: time limits in this process's CPU time instead of wall time (steadier while others share the machine).
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { spawnSync } from 'node:child_process'

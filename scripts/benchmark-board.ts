@@ -1,4 +1,4 @@
-// `npm run bench:board`: board data for a four-week window with 1,200 planned operations under autocannon (10 and 50
+// `npm run benchmark:board`: board data for a four-week window with 1,200 planned operations under autocannon (10 and 50
 // connections), and how fast a change reaches a second connected client. Prints figures; asserts nothing.
 import autocannon from 'autocannon'
 import { io as connect } from 'socket.io-client'
@@ -6,7 +6,7 @@ import { and, eq, sql } from 'drizzle-orm'
 import { createDb } from '../server/db/client'
 import * as s from '../server/db/schema/index'
 import { dayjs } from '../server/lib/time'
-import { addPlannedLoad, benchServer } from './bench-common'
+import { addPlannedLoad, benchServer } from './benchmark-common'
 
 const TARGET_OPS = Number(process.env.BOARD_OPS ?? 1400)
 const bench = await benchServer('millgrain_bench_board')

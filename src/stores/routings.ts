@@ -1,11 +1,11 @@
 // Routing templates and their step graphs.
 import { defineStore } from 'pinia'
 import { computed, ref } from 'vue'
-import type { Template, TemplateInput } from '@shared/schemas/template'
-import * as templatesApi from '@/api/templates'
+import type { Template, TemplateInput } from '@shared/schemas/routing'
+import * as templatesApi from '@/api/routings'
 import { useLoading } from '@/composables/use-loading'
 
-export const useTemplatesStore = defineStore('templates', () => {
+export const useRoutingsStore = defineStore('routings', () => {
   /** All routing templates with steps. */
   const items = ref<Template[]>([])
   const loaded = ref(false)

@@ -1,5 +1,5 @@
 // Benchmark at workshop scale on generated workshops: time to a first valid plan, tardiness after 2 s, memory, and the EDD baseline.
-// usage: npm run bench:workshop [-- --long SECONDS] [--cpu-clock]   (the long run on 200 job bags, default 60 s; 0 skips it)
+// usage: npm run benchmark:workshop [-- --long SECONDS] [--cpu-clock]   (the long run on 200 job bags, default 60 s; 0 skips it)
 import { mkdirSync, writeFileSync } from 'node:fs'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'

@@ -1,11 +1,11 @@
-// `npm run bench:sockets`: 200 Socket.IO clients on a few signed-in sessions receive plan moves (50 pin/unpin by the
+// `npm run benchmark:sockets`: 200 Socket.IO clients on a few signed-in sessions receive plan moves (50 pin/unpin by the
 // manager) and bench transitions (claim/release by the setter). Prints delivery latency p50/p95/max and lost events
 // (must be 0: every client must receive every event, counted by seq). Clients run in this process, beside the server.
 import { sql } from 'drizzle-orm'
 import { io as connect, type Socket } from 'socket.io-client'
 import { allRoutes } from '../server/routes/index'
 import { DEMO_EMAIL } from '../tests/setup/app'
-import { benchServer, pct, type HttpSession } from './bench-common'
+import { benchServer, pct, type HttpSession } from './benchmark-common'
 
 const CLIENTS = Number(process.env.SOCKET_CLIENTS ?? 200)
 const MOVES = Number(process.env.SOCKET_MOVES ?? 50)

@@ -1,4 +1,4 @@
-// `npm run bench:fuzz`: the seeded API fuzzer at volume (≥ 10,000 requests over every JSON route) against the app on a
+// `npm run benchmark:fuzz`: the seeded API fuzzer at volume (≥ 10,000 requests over every JSON route) against the app on a
 // scratch copy of the demo data. Prints requests, the status histogram, the 5xx count (must be 0) and the time; exits 1 on any failure.
 import { createServer } from 'node:http'
 import { createApp } from '../server/app'

@@ -1,11 +1,11 @@
-// `npm run bench:load`: autocannon against the real server on loopback with the demo data and a published plan —
+// `npm run benchmark:load`: autocannon against the real server on loopback with the demo data and a published plan —
 // board data, the bench's "next for me", the order list and a promise check — at 10 and 50 connections.
 // Prints p50/p95/p99 latency, requests/s and errors (must be 0; non-2xx answers count as errors). Asserts nothing else.
 import autocannon from 'autocannon'
 import { allRoutes } from '../server/routes/index'
 import { dayjs } from '../server/lib/time'
 import { DEMO_EMAIL } from '../tests/setup/app'
-import { benchServer, pct } from './bench-common'
+import { benchServer, pct } from './benchmark-common'
 
 const DURATION = Number(process.env.LOAD_SECONDS ?? 10)
 const b = await benchServer('millgrain_bench_load')

@@ -1,5 +1,5 @@
 // Benchmark of the promise check on the seeded demo workshop: p50/p95 over ~50 calls without and with the 500-run range.
-// usage: npx tsx scripts/bench-promise.ts   (own throwaway cluster on TEST_PG_PORT / TEST_PG_DIR, or DATABASE_URL of a seeded database)
+// usage: npx tsx scripts/benchmark-promise.ts   (own throwaway cluster on TEST_PG_PORT / TEST_PG_DIR, or DATABASE_URL of a seeded database)
 import { quantile } from 'simple-statistics'
 import { eq } from 'drizzle-orm'
 import { createDb } from '../server/db/client'

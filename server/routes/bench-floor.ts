@@ -1,8 +1,8 @@
 // Bench routes: next for me, my work, and the replay-safe transitions claim / release / start / pause / resume / finish; outside work.
-import { claimInput, finishInput, mineQuery, outsideInput, pauseInput, queueQuery, releaseInput, resumeInput, startInput } from '../../shared/schemas/bench-work'
+import { claimInput, finishInput, mineQuery, outsideInput, pauseInput, queueQuery, releaseInput, resumeInput, startInput } from '../../shared/schemas/bench-floor'
 import { STAFF, type Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
-import * as bench from '../services/bench'
+import * as bench from '../services/bench-floor'
 import { idParam } from './params'
 
 // Bench users act for themselves; managers and the owner may act on behalf of a person (personId).

@@ -1,11 +1,11 @@
-// `npm run bench:board-render`: the planning board in Chromium with ~1,200 bars in a four-week window — time to first bar,
+// `npm run benchmark:board-render`: the planning board in Chromium with ~1,200 bars in a four-week window — time to first bar,
 // to all bars, and to re-render after a zoom change and a row toggle. Prints figures; asserts nothing.
 import { join } from 'node:path'
 import { spawnSync } from 'node:child_process'
 import { dayjs } from '../server/lib/time'
 import { launchChromium, signInWith } from '../tests/setup/e2e'
 import { DEMO_PASSWORD } from '../server/db/seed'
-import { addPlannedLoad, benchServer } from './bench-common'
+import { addPlannedLoad, benchServer } from './benchmark-common'
 import { root } from './env'
 
 const clientDir = join(root, 'dist')

@@ -1,15 +1,15 @@
 // The bench tablet's state: which bench this is (remembered on the device), next for me, my work, and replay-safe transitions.
 import { defineStore } from 'pinia'
 import { computed, ref } from 'vue'
-import type { BenchOperation, TransitionResult } from '@shared/schemas/bench-work'
+import type { BenchOperation, TransitionResult } from '@shared/schemas/bench-floor'
 import type { Bench } from '@shared/schemas/bench'
 import { ApiError } from '@/api/client'
 import { listBenches } from '@/api/benches'
-import * as benchApi from '@/api/bench'
+import * as benchApi from '@/api/bench-floor'
 
 const BENCH_KEY = 'millgrain.bench'
 
-export const useBenchStore = defineStore('bench', () => {
+export const useBenchFloorStore = defineStore('benchFloor', () => {
   /** The bench this tablet stands at (chosen once, kept in localStorage). */
   const benchId = ref<number | null>(Number(localStorage.getItem(BENCH_KEY)) || null)
   /** Every active bench of the workshop. */

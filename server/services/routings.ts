@@ -1,6 +1,6 @@
 // Routing templates and their steps (a small graph: steps may branch and join).
 import { and, asc, eq, inArray } from 'drizzle-orm'
-import type { Template, TemplateInput } from '../../shared/schemas/template'
+import type { Template, TemplateInput } from '../../shared/schemas/routing'
 import { templateWarnings } from '../../shared/domain/template-warnings'
 import type { Db, Trx } from '../db/client'
 import { operationKinds, routingTemplates, templateSteps } from '../db/schema/index'

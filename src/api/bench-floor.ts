@@ -1,5 +1,5 @@
 // Bench API: next for me, my work, and the transitions (each carries a requestId so a replay gets the first answer).
-import type { BenchOperation, TransitionResult } from '@shared/schemas/bench-work'
+import type { BenchOperation, TransitionResult } from '@shared/schemas/bench-floor'
 import { api } from './client'
 
 export interface BenchList { person: { id: number; name: string }; items: BenchOperation[] }

@@ -1,5 +1,5 @@
 // Routing templates API: templates with their step graph.
-import type { Template, TemplateInput } from '@shared/schemas/template'
+import type { Template, TemplateInput } from '@shared/schemas/routing'
 import { api } from './client'
 
 export const listTemplates = () => api.get<Template[]>('/templates')

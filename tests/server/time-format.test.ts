@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { allRoutes } from '../../server/routes/index'
 import { waitForRun } from '../../server/services/planning/runs'
 import { dayjs } from '../../server/lib/time'
+import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 
 // Anything that reads as a date followed by a time of day is a moment and must be written the one way:
@@ -22,6 +23,8 @@ function offenders(value: unknown, path = '$', out: string[] = []): string[] {
 }
 
 let t: TestApp
+let fake: FakeSmtp
+let station: Agent
 let owner: Agent
 let manager: Agent
 let bench: Agent
@@ -35,7 +38,10 @@ const firstId = (body: any): number => {
 }
 
 beforeAll(async () => {
-  t = await createTestApp()
+  // The local mailbox receives the invitation whose one-time link the link page reads.
+  fake = await startFakeSmtp()
+  t = await createTestApp({ SMTP_URL: fake.url })
+  fake.useDb(t.db)
   owner = await signedIn(t.app, 'owner')
   manager = await signedIn(t.app, 'manager')
   bench = await signedIn(t.app, 'bench')
@@ -62,14 +68,24 @@ beforeAll(async () => {
   const quote = await owner.post('/api/quotes', { customerId: ids.customer, title: 'Time format check', priceMinor: 125_000, promisedDate: from })
   expect(quote.status, JSON.stringify(quote.body)).toBe(201)
   ids.quote = quote.body.id
+  // A one-time link (an invitation, read from the mailbox as the invited person would) and a tablet made a bench station.
+  const invited = await owner.post('/api/invitations', { email: 'time.format@example.test', name: 'Time Format', role: 'bench' })
+  expect(invited.status, JSON.stringify(invited.body)).toBe(201)
+  const mail = await fake.waitFor((m) => m.to.includes('time.format@example.test'), 15_000)
+  ids.token = /\/welcome\/([A-Za-z0-9_-]+)/.exec(mail.text)?.[1] ?? ''
+  station = await signedIn(t.app, 'manager')
+  const made = await station.post('/api/bench-station', { benchId: ids.settingBench })
+  expect(made.status, JSON.stringify(made.body)).toBe(200)
+  station.csrf = made.body.csrfToken
   for (const [k, v] of Object.entries(ids)) expect(v, `a demo ${k} to read`).toBeTruthy()
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => { await t?.close(); await fake?.close() })
 
 /** The path with its parameters filled from the demo, and the query each read needs. */
 function pathOf(path: string): string {
   const filled = path
     .replace(':runId', String(ids.runId))
+    .replace(/^\/account-links\/:token/, `/account-links/${ids.token}`)
     .replace(/^\/templates\/:id/, `/templates/${ids.template}`)
     .replace(/^\/customers\/:id/, `/customers/${ids.customer}`)
     .replace(/^\/orders\/:id/, `/orders/${ids.order}`)
@@ -93,7 +109,8 @@ describe('one time format in every answer', () => {
   it.each(reads.map((r) => [r.path, r] as const))('when GET %s is read, then every moment in the answer is ISO 8601 with an offset', async (_p, r) => {
     const roles = r.roles === 'public' ? ['owner'] : r.roles
     // The bench floor's reads as the setter (linked to a person); the rest as the most senior role allowed.
-    const agent = r.path.startsWith('/bench/') ? bench : roles.includes('owner') ? owner : roles.includes('manager') ? manager : bench
+    // A station's own reads from the tablet made a bench station.
+    const agent = r.path.startsWith('/bench-station/') ? station : r.path.startsWith('/bench/') ? bench : roles.includes('owner') ? owner : roles.includes('manager') ? manager : bench
     const res = await agent.get(pathOf(r.path))
     expect(res.status, `${r.path} → ${res.status} ${JSON.stringify(res.body).slice(0, 300)}`).toBe(200)
     // JSON: every string in it; CSV: every cell (a spreadsheet reads a moment written another way as text or as local time).

@@ -1,22 +1,24 @@
 // Shared helpers for the API tests: a second workshop, error-body checks, audit-log reads.
 import { expect } from 'vitest'
 import type { Response } from 'supertest'
+import { and, desc, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { hashPassword } from '../../server/services/users'
 import { Agent, type TestApp } from '../setup/app'
+import { addWorkshop, userIdByEmail } from '../setup/fixtures'
 
 export const OTHER_PASSWORD = 'other-workshop-pass'
 
 /** Creates a second workshop straight in the database with one owner, and signs that owner in. */
 export async function secondWorkshop(t: TestApp, tag = 'b'): Promise<{ workshopId: number; userId: number; agent: Agent }> {
-  const week = JSON.stringify([{ weekday: 1, start: '09:00', end: '17:00' }])
-  const { rows: [w] } = await t.pool.query(`insert into workshops (name, time_zone, week_pattern) values ($1, 'Europe/London', $2::jsonb) returning id`, [`Other bench ${tag}`, week])
   const hash = await hashPassword(OTHER_PASSWORD)
-  const email = `owner-${tag}-${w.id}@other.test`
-  const { rows: [u] } = await t.pool.query(`insert into users (workshop_id, email, name, role, password_hash) values ($1, $2, 'Other Owner', 'owner', $3) returning id`, [w.id, email, hash])
+  const { workshopId } = await addWorkshop(t.db, { name: `Other bench ${tag}` })
+  const email = `owner-${tag}-${workshopId}@other.test`
+  const [u] = await t.db.insert(s.users).values({ workshopId, email, name: 'Other Owner', role: 'owner', passwordHash: hash }).returning({ id: s.users.id })
   const agent = new Agent(t.app)
   const r = await agent.signIn(email, OTHER_PASSWORD)
   if (r.status !== 200) throw new Error(`sign-in to the second workshop failed: ${r.status} ${JSON.stringify(r.body)}`)
-  return { workshopId: w.id, userId: u.id, agent }
+  return { workshopId, userId: u!.id, agent }
 }
 
 /** An error body in the wire shape, without internals (no stack, no SQL). */
@@ -40,11 +42,11 @@ export interface AuditRow { action: string; entity: string; entity_id: number | 
 
 /** Audit rows for one entity, newest first. */
 export async function auditRows(t: TestApp, entity: string, entityId: number): Promise<AuditRow[]> {
-  const { rows } = await t.pool.query(`select action, entity, entity_id, user_id, workshop_id, details from audit_log where entity = $1 and entity_id = $2 order by id desc`, [entity, entityId])
-  return rows
+  const a = s.auditLog
+  return t.db.select({ action: a.action, entity: a.entity, entity_id: a.entityId, user_id: a.userId, workshop_id: a.workshopId, details: a.details })
+    .from(a).where(and(eq(a.entity, entity), eq(a.entityId, entityId))).orderBy(desc(a.id))
 }
 
 export async function userIdOf(t: TestApp, email: string): Promise<number> {
-  const { rows: [u] } = await t.pool.query(`select id from users where email = $1`, [email])
-  return u.id
+  return userIdByEmail(t.db, email)
 }

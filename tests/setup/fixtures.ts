@@ -1,0 +1,124 @@
+// Named builders for database fixtures in the API and browser tests, written with Drizzle on the schema so a renamed column fails the type check.
+import { and, asc, eq, gte, inArray, notInArray, sql } from 'drizzle-orm'
+import type { Db } from '../../server/db/client'
+import * as s from '../../server/db/schema/index'
+
+/** The demo workshop (the first one). */
+export async function firstWorkshopId(db: Db): Promise<number> {
+  const [w] = await db.select({ id: s.workshops.id }).from(s.workshops).orderBy(asc(s.workshops.id)).limit(1)
+  return w!.id
+}
+
+/** The first customer (of one workshop, when given). */
+export async function firstCustomerId(db: Db, workshopId?: number): Promise<number> {
+  const [c] = await db.select({ id: s.customers.id }).from(s.customers).where(workshopId == null ? undefined : eq(s.customers.workshopId, workshopId)).orderBy(asc(s.customers.id)).limit(1)
+  return c!.id
+}
+
+/** A routing template by its code, or the first one. */
+export async function templateId(db: Db, code?: string): Promise<number> {
+  const [r] = await db.select({ id: s.routingTemplates.id }).from(s.routingTemplates).where(code == null ? undefined : eq(s.routingTemplates.code, code)).orderBy(asc(s.routingTemplates.id)).limit(1)
+  if (!r) throw new Error(`no routing template ${code ?? ''} in the test database`)
+  return r.id
+}
+
+export async function benchIdByName(db: Db, name: string): Promise<number> {
+  const [b] = await db.select({ id: s.benches.id }).from(s.benches).where(eq(s.benches.name, name))
+  if (!b) throw new Error(`no bench named ${name}`)
+  return b.id
+}
+
+export async function userIdByEmail(db: Db, email: string): Promise<number> {
+  const [u] = await db.select({ id: s.users.id }).from(s.users).where(eq(s.users.email, email))
+  if (!u) throw new Error(`no user ${email}`)
+  return u.id
+}
+
+/** The person at a bench who signs in with this e-mail. */
+export async function personIdByEmail(db: Db, email: string): Promise<number> {
+  const [p] = await db.select({ id: s.people.id }).from(s.people).innerJoin(s.users, eq(s.users.id, s.people.userId)).where(eq(s.users.email, email))
+  if (!p) throw new Error(`no person for ${email}`)
+  return p.id
+}
+
+/** Marks every predecessor of the operation (transitively, by its `after` keys) done, finished yesterday so any wait-after is long over. */
+export async function finishPredecessors(db: Db, operationId: number): Promise<number[]> {
+  const [me] = await db.select({ jobBagId: s.operations.jobBagId }).from(s.operations).where(eq(s.operations.id, operationId))
+  if (!me) throw new Error(`no operation ${operationId}`)
+  const ops = await db.select({ id: s.operations.id, key: s.operations.key, after: s.operations.after }).from(s.operations).where(eq(s.operations.jobBagId, me.jobBagId))
+  const byKey = new Map(ops.map((o) => [o.key, o]))
+  const seen = new Set<number>()
+  const stack = [...ops.find((o) => o.id === operationId)!.after]
+  while (stack.length) {
+    const p = byKey.get(stack.pop()!)
+    if (!p || seen.has(p.id)) continue
+    seen.add(p.id)
+    stack.push(...p.after)
+  }
+  if (seen.size) await db.update(s.operations).set({ status: 'done', finishedAt: sql`now() - interval '1 day'` }).where(inArray(s.operations.id, [...seen]))
+  return [...seen]
+}
+
+/** Finishes the operation's predecessors and makes it ready and unclaimed, straight in the database. */
+export async function readyStep(db: Db, operationId: number): Promise<void> {
+  await finishPredecessors(db, operationId)
+  await db.update(s.operations).set({ status: 'ready', claimedBy: null }).where(eq(s.operations.id, operationId))
+}
+
+/** Books an operation on the board: bench, person and times (ISO or Date). */
+export async function planStep(db: Db, operationId: number, at: { benchId: number | null; personId: number | null; start: string | Date; end: string | Date }): Promise<void> {
+  const iso = (d: string | Date) => (typeof d === 'string' ? d : d.toISOString())
+  await db.update(s.operations).set({ plannedBenchId: at.benchId, plannedPersonId: at.personId, plannedStart: iso(at.start), plannedEnd: iso(at.end) }).where(eq(s.operations.id, operationId))
+}
+
+const UNPLANNED = { plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null }
+
+/** Takes operations off the board (all of them when no ids are given). */
+export async function unplanSteps(db: Db, ids?: number[]): Promise<void> {
+  await db.update(s.operations).set(UNPLANNED).where(ids ? inArray(s.operations.id, ids) : undefined)
+}
+
+/** Takes every open, unpinned step off the board (what a first planner run starts from); running, finished and skipped ones keep their place. */
+export async function unplanOpenSteps(db: Db): Promise<void> {
+  await db.update(s.operations).set(UNPLANNED).where(and(notInArray(s.operations.status, ['running', 'done', 'skipped']), eq(s.operations.pinned, false)))
+}
+
+/** An open order's waiting or ready steps with no lead days, earliest first (the ones a promise check may book around). */
+export async function openStepIds(db: Db, o: { limit?: number } = {}): Promise<number[]> {
+  const q = db.select({ id: s.operations.id }).from(s.operations)
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .where(and(eq(s.orders.status, 'open'), inArray(s.operations.status, ['ready', 'pending']), eq(s.operations.leadDays, 0)))
+    .orderBy(asc(s.operations.id))
+  return (await (o.limit ? q.limit(o.limit) : q)).map((r) => r.id)
+}
+
+/** An open, ready bench step of the demo (not outside work) with a person skilled for it and a bench that hosts it. */
+export async function readyBenchStep(db: Db, skip: number[] = []): Promise<{ id: number; kindId: number; number: string; estimate: number; personId: number; benchId: number }> {
+  const [op] = await db.select({ id: s.operations.id, kindId: s.operations.kindId, requiredLevel: s.operations.requiredLevel, estimate: s.operations.estimateMinutes, number: s.jobBags.number })
+    .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    .where(and(eq(s.operations.status, 'ready'), eq(s.orders.status, 'open'), eq(s.operationKinds.outside, false), eq(s.operations.leadDays, 0), skip.length ? notInArray(s.operations.id, skip) : undefined))
+    .orderBy(asc(s.operations.id)).limit(1)
+  if (!op) throw new Error('no ready bench step left in the test database')
+  const [who] = await db.select({ personId: s.personSkills.personId }).from(s.personSkills).innerJoin(s.people, eq(s.people.id, s.personSkills.personId))
+    .where(and(eq(s.personSkills.kindId, op.kindId), gte(s.personSkills.level, op.requiredLevel), eq(s.people.active, true))).orderBy(asc(s.personSkills.personId)).limit(1)
+  const [where] = await db.select({ benchId: s.benchCapabilities.benchId }).from(s.benchCapabilities).innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId))
+    .where(and(eq(s.benchCapabilities.kindId, op.kindId), eq(s.benches.active, true))).orderBy(asc(s.benchCapabilities.benchId)).limit(1)
+  return { id: op.id, kindId: op.kindId, number: op.number, estimate: op.estimate, personId: who!.personId, benchId: where!.benchId }
+}
+
+/** A workshop of its own (London time, Monday 09:00–17:00 unless told) with the given users. */
+export async function addWorkshop(db: Db, o: { name: string; weekPattern?: (typeof s.workshops.$inferInsert)['weekPattern']; users?: { email: string; name: string; role: 'owner' | 'manager' | 'bench' | 'sales'; passwordHash: string }[] }): Promise<{ workshopId: number; userIds: number[] }> {
+  const [w] = await db.insert(s.workshops).values({ name: o.name, timeZone: 'Europe/London', weekPattern: o.weekPattern ?? [{ weekday: 1, start: '09:00', end: '17:00' }] }).returning({ id: s.workshops.id })
+  const users = o.users?.length ? await db.insert(s.users).values(o.users.map((u) => ({ ...u, workshopId: w!.id }))).returning({ id: s.users.id }) : []
+  return { workshopId: w!.id, userIds: users.map((u) => u.id) }
+}
+
+/** A person at a bench (with an account when userId is given) and their skills by operation kind code. */
+export async function addPerson(db: Db, o: { workshopId: number; name: string; userId?: number; skills?: { codes: string[]; level: number; speed?: number } }): Promise<number> {
+  const [p] = await db.insert(s.people).values({ workshopId: o.workshopId, name: o.name, userId: o.userId ?? null }).returning({ id: s.people.id })
+  if (o.skills) {
+    const kinds = await db.select({ id: s.operationKinds.id }).from(s.operationKinds).where(and(eq(s.operationKinds.workshopId, o.workshopId), inArray(s.operationKinds.code, o.skills.codes)))
+    if (kinds.length) await db.insert(s.personSkills).values(kinds.map((k) => ({ personId: p!.id, kindId: k.id, level: o.skills!.level, speed: o.skills!.speed ?? 1 })))
+  }
+  return p!.id
+}

@@ -1,5 +1,5 @@
 import { createDb } from '../server/db/client'
-import { loadPlanningData } from '../server/services/planning/problem'
+import { loadPlanningData } from '../server/planning/problem'
 import { solve, validatePlan } from '../server/scheduler/index.ts'
 const { db, pool } = createDb('postgres://postgres@127.0.0.1:54339/millgrain_template')
 const t0 = Date.now()

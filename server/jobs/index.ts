@@ -4,7 +4,7 @@ import type { Config } from '../config'
 import type { Deps } from '../lib/route'
 import { runDailyMail } from '../mail/digest-timer'
 import { deliverOutboxJob } from '../services/mail'
-import { recoverStaleRuns, releaseLocalRuns, runPlanJob } from '../services/planning/runs'
+import { recoverStaleRuns, releaseLocalRuns, runPlanJob } from '../planning/runs'
 import { createJobs, QUEUES, timingOf, type JobHandler, type Jobs as QueueJobs, type QueueName } from './queue'
 
 export { QUEUES } from './queue'

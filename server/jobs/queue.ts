@@ -7,7 +7,7 @@ import type { Config } from '../config'
 import type { Db, Trx } from '../db/client'
 
 export const QUEUES = {
-  /** { runId }: one planner run (server/services/planning/runs.ts). */
+  /** { runId }: one planner run (server/planning/runs.ts). */
   planRun: 'plan-run',
   /** { outboxId }: one outgoing e-mail (server/services/mail.ts). */
   mailSend: 'mail-send',

@@ -1,8 +1,8 @@
 // Plan assignments as stored (ISO times, per operation) and read back from the operations' planned fields.
 import { and, eq, inArray, isNotNull } from 'drizzle-orm'
-import type { Tx } from '../../db/client'
-import * as s from '../../db/schema/index'
-import type { Plan, StartReason } from '../../scheduler/model.ts'
+import type { Tx } from '../db/client'
+import * as s from '../db/schema/index'
+import type { Plan, StartReason } from '../scheduler/model.ts'
 import type { PlanningData } from './problem'
 
 export interface Assignment {

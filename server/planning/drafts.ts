@@ -5,9 +5,9 @@ import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
 import { AppError, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import { audit } from './audit'
+import { audit } from '../services/audit'
 import { dayjs } from '../lib/time'
-import { currentAssignments, type Assignment } from './planning/assignments'
+import { currentAssignments, type Assignment } from './assignments'
 import { LOCK } from '../lib/locks'
 
 export async function listPlans(db: Db, workshopId: number) {

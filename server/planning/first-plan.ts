@@ -1,10 +1,10 @@
 // A first published plan for a workshop that has never planned, so a new demo opens on a filled board.
 import { and, asc, count, eq, inArray } from 'drizzle-orm'
-import type { Db } from '../../db/client'
-import * as s from '../../db/schema/index'
-import { Realtime } from '../../realtime/hub'
-import type { Actor } from '../../lib/route'
-import { publishPlan } from '../plans'
+import type { Db } from '../db/client'
+import * as s from '../db/schema/index'
+import { Realtime } from '../realtime/hub'
+import type { Actor } from '../lib/route'
+import { publishPlan } from './drafts'
 import { startRun, waitForRun } from './runs'
 
 /** Runs the planner for `seconds` and publishes the result as the workshop's first plan; skips workshops that have plans. */

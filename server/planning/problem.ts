@@ -1,11 +1,11 @@
 // Builds the engine's problem from the workshop's data: calendars as minute intervals, job bags as jobs, operations with options.
 import { and, eq, inArray, notInArray } from 'drizzle-orm'
-import type { Tx } from '../../db/client'
-import * as s from '../../db/schema/index'
-import { dayjs, expandPattern, MinuteClock, subtract, dayRange, type Interval } from '../../lib/time'
-import type { Operation as EngineOperation, Problem } from '../../scheduler/model.ts'
-import { intersect } from '../../scheduler/calendar.ts'
-import { depositHolds } from '../deposit-hold'
+import type { Tx } from '../db/client'
+import * as s from '../db/schema/index'
+import { dayjs, expandPattern, MinuteClock, subtract, dayRange, type Interval } from '../lib/time'
+import type { Operation as EngineOperation, Problem } from '../scheduler/model.ts'
+import { intersect } from '../scheduler/calendar.ts'
+import { depositHolds } from '../services/deposit-hold'
 
 export const HORIZON_DAYS = 84
 

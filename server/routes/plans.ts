@@ -7,9 +7,9 @@ import { id } from '../../shared/schemas/common'
 import { route } from '../lib/route'
 import type { Deps } from '../lib/route'
 import { boardData, cachedAnswer, weekLoad } from '../services/board'
-import { moveOperation } from '../services/planning/move'
-import { cancelRun, getRun, startRun } from '../services/planning/runs'
-import * as plans from '../services/plans'
+import { moveOperation } from '../planning/move'
+import { cancelRun, getRun, startRun } from '../planning/runs'
+import * as plans from '../planning/drafts'
 import { idParam } from './params'
 
 // The manager plans; the owner and sales look on (read-only board).

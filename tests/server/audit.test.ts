@@ -2,7 +2,7 @@
 // time; who changed estimates and users — and no API route can edit or delete it.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { allRoutes } from '../../server/routes/index'
-import { waitForRun } from '../../server/services/planning/runs'
+import { waitForRun } from '../../server/planning/runs'
 import { createTestApp, DEMO_EMAIL, signedIn, type Agent, type TestApp } from '../setup/app'
 import { benchId, makeReady, openOps, personIdOf, rid } from './bench-fixtures'
 import { userIdOf } from './helpers'

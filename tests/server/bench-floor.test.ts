@@ -197,7 +197,7 @@ describe('claim → start → pause → resume → finish', () => {
   })
 
   it('when the planner reads a finished step, then it knows when the step finished (its last record), so a wait after it still holds', async () => {
-    const { loadPlanningData } = await import('../../server/services/planning/problem')
+    const { loadPlanningData } = await import('../../server/planning/problem')
     const data = await loadPlanningData(t.db, 1, new Date())
     const done = data.problem.operations.find((o) => o.id === String(op.id))
     expect(done?.done).toBe(true)
@@ -444,7 +444,7 @@ describe('acting on behalf and outside work', () => {
     // The planner keeps it away from the moment it left, for its working days.
     const sent = await opRow(hm.id)
     expect(Math.abs(new Date(sent.planned_start).getTime() - Date.now())).toBeLessThan(60_000)
-    const { loadPlanningData } = await import('../../server/services/planning/problem')
+    const { loadPlanningData } = await import('../../server/planning/problem')
     const data = await loadPlanningData(t.db, 1, new Date())
     const away = data.problem.operations.find((o) => o.id === String(hm.id))!
     expect(away.fixed?.start).toBe(data.clock.toMinute(sent.planned_start))

@@ -2,7 +2,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
-import { publishFirstPlans } from '../../server/services/planning/first-plan'
+import { publishFirstPlans } from '../../server/planning/first-plan'
 import { createTestDb, type TestDb } from '../setup/db'
 
 let t: TestDb

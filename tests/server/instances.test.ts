@@ -3,7 +3,7 @@
 import { sql } from 'drizzle-orm'
 import { io as connect, type Socket } from 'socket.io-client'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { publishFirstPlans } from '../../server/services/planning/first-plan'
+import { publishFirstPlans } from '../../server/planning/first-plan'
 import { STICKY_COOKIE } from '../../scripts/cluster-proxy'
 import { httpSignIn } from '../setup/app'
 import type { TestApp } from '../setup/app'

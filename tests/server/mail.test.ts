@@ -4,7 +4,7 @@ import { createServer } from 'node:net'
 import { format, parseISO } from 'date-fns'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
-import { loadPlanningData } from '../../server/services/planning/problem'
+import { loadPlanningData } from '../../server/planning/problem'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { expectFieldError } from './helpers'
 

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { io as connect } from 'socket.io-client'
 import { eq, notInArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
-import { waitForRun } from '../../server/services/planning/runs'
+import { waitForRun } from '../../server/planning/runs'
 import { dayjs } from '../../server/lib/time'
 import { createTestApp, httpSignIn, signedIn, startTestServer, type Agent, type TestApp } from '../setup/app'
 

@@ -2,7 +2,7 @@
 // all JSON reads walked with demo data and a planned workshop, plus the writes that answer with times.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { allRoutes } from '../../server/routes/index'
-import { waitForRun } from '../../server/services/planning/runs'
+import { waitForRun } from '../../server/planning/runs'
 import { dayjs } from '../../server/lib/time'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'

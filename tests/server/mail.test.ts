@@ -3,9 +3,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createServer } from 'node:net'
 import { format, parseISO } from 'date-fns'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
-import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
-import { loadPlanningData } from '../../server/planning/problem'
+import { and, asc, desc, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { bookLastStepLate, firstCustomerId, templateId as firstTemplateId } from '../setup/fixtures'
 import { expectFieldError } from './helpers'
 
 let t: TestApp
@@ -13,8 +14,9 @@ let fake: FakeSmtp
 let manager: Agent
 
 async function openOrder(app: TestApp, offset = 0) {
-  const { rows } = await app.pool.query(`select r.id, r.number, r.version, c.email, c.name from orders r join customers c on c.id = r.customer_id where r.status = 'open' order by r.id offset $1 limit 1`, [offset])
-  return rows[0] as { id: number; number: string; version: number; email: string; name: string }
+  const [o] = await app.db.select({ id: s.orders.id, number: s.orders.number, version: s.orders.version, email: s.customers.email, name: s.customers.name })
+    .from(s.orders).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId)).where(eq(s.orders.status, 'open')).orderBy(asc(s.orders.id)).offset(offset).limit(1)
+  return o!
 }
 
 beforeAll(async () => {
@@ -28,9 +30,8 @@ afterAll(async () => { await t?.close(); await fake?.close() })
 describe('mail', () => {
   it('when a promise is accepted, then the test mailbox receives it with recipient, subject and the promised date', async () => {
     const sales = await signedIn(t.app, 'sales')
-    const { rows: [c] } = await t.pool.query(`select id, email from customers where workshop_id = 1 order by id desc limit 1`)
-    const { rows: [tpl] } = await t.pool.query(`select id from routing_templates order by id limit 1`)
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Signet ring', templateId: tpl.id, promisedDate: '2031-03-14', priority: 3, priceQuotedMinor: 30_000 })
+    const c = (await t.db.select({ id: s.customers.id, email: s.customers.email }).from(s.customers).where(eq(s.customers.workshopId, 1)).orderBy(desc(s.customers.id)).limit(1))[0]!
+    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Signet ring', templateId: await firstTemplateId(t.db), promisedDate: '2031-03-14', priority: 3, priceQuotedMinor: 30_000 })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     const m = await fake.waitFor((x) => x.subject.includes(r.body.order.number))
     expect(m.to).toEqual([c.email])
@@ -52,9 +53,7 @@ describe('mail', () => {
     expect(u.status, JSON.stringify(u.body)).toBe(200)
     expect(u.body.currency).toBe('EUR')
     const sales = await signedIn(t.app, 'sales')
-    const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
-    const { rows: [tpl] } = await t.pool.query(`select id from routing_templates order by id limit 1`)
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Euro ring', templateId: tpl.id, promisedDate: '2031-03-14', priority: 3, priceQuotedMinor: 199_900 })
+    const r = await sales.post('/api/promise/accept', { customerId: await firstCustomerId(t.db, 1), title: 'Euro ring', templateId: await firstTemplateId(t.db), promisedDate: '2031-03-14', priority: 3, priceQuotedMinor: 199_900 })
     const m = await fake.waitFor((x) => x.subject.includes(r.body.order.number))
     // 199,900 cents (EUR has 2 decimals, ISO 4217) = 1,999.00; Intl en-GB formats it as "€1,999.00" (ECMA-402 currency formatting).
     expect(m.text).toContain('€1,999.00')
@@ -78,21 +77,16 @@ describe('mail', () => {
     // Saving again with status ready sends nothing more.
     const again = await manager.patch(`/api/orders/${o.id}`, { status: 'ready', version: r.body.version })
     expect(again.status).toBe(200)
-    const { rows } = await t.pool.query(`select status from outbox where order_id = $1 and kind = 'ready-for-collection'`, [o.id])
+    const rows = await t.db.select({ status: s.outbox.status }).from(s.outbox).where(and(eq(s.outbox.orderId, o.id), eq(s.outbox.kind, 'ready-for-collection')))
     expect(rows).toHaveLength(1)
     expect(rows[0].status).toBe('delivered')
   })
 
   it('when a job bag on the live plan ends after its promised date, then the at-risk digest lists it to the managers', async () => {
     const o = await openOrder(t, 1)
-    const { rows: [bag] } = await t.pool.query(`select id, number from job_bags where order_id = $1`, [o.id])
-    const data = await loadPlanningData(t.db, 1, new Date())
-    const b = data.problem.benches[0]!, p = data.problem.people[0]!
-    const segs = walkWorkingTime(intersect(b.available, p.available), data.problem.now + 3 * 1440, 60)!
-    const end = data.clock.toDate(segs.at(-1)!.end)
-    await t.pool.query(`update orders set promised_date = $1 where id = $2`, [new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10), o.id])
-    const { rows: [op] } = await t.pool.query(`select id from operations where job_bag_id = $1 and lead_days = 0 order by seq desc limit 1`, [bag.id])
-    await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`, [Number(b.id), Number(p.id), data.clock.toDate(segs[0]!.start).toISOString(), end.toISOString(), op.id])
+    const bag = (await t.db.select({ id: s.jobBags.id, number: s.jobBags.number }).from(s.jobBags).where(eq(s.jobBags.orderId, o.id)))[0]!
+    // Its last bench step booked three working days from now, the order promised two days before that step ends.
+    await bookLastStepLate(t.db, { workshopId: 1, orderId: o.id, bagId: bag.id, fromMinute: 3 * 1440, promised: (end) => new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10) })
     const r = await manager.post('/api/mail/at-risk-digest')
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect(r.body.jobs.map((j: { number: string }) => j.number)).toContain(bag.number)
@@ -131,16 +125,17 @@ describe('mail failures', () => {
       const r = await m.patch(`/api/orders/${o.id}`, { status: 'ready', version: o.version })
       expect(r.status, JSON.stringify(r.body)).toBe(200)
       expect(r.body.status).toBe('ready')
-      const { rows: [row] } = await broken.pool.query(`select status from orders where id = $1`, [o.id])
-      expect(row.status).toBe('ready')
+      const [row] = await broken.db.select({ status: s.orders.status }).from(s.orders).where(eq(s.orders.id, o.id))
+      expect(row!.status).toBe('ready')
       // The send job's first try fails; its error is written on the row, which waits for the next try.
-      const tried = async () => (await broken.pool.query(`select id, status, error, sent_at from outbox where order_id = $1 and kind = 'ready-for-collection'`, [o.id])).rows[0]
+      const tried = async () => (await broken.db.select({ id: s.outbox.id, status: s.outbox.status, error: s.outbox.error, sentAt: s.outbox.sentAt }).from(s.outbox).where(and(eq(s.outbox.orderId, o.id), eq(s.outbox.kind, 'ready-for-collection'))))[0]
       let mail = await tried()
       for (const t0 = Date.now(); !mail?.error && Date.now() - t0 < 20_000;) { await new Promise((r) => setTimeout(r, 100)); mail = await tried() }
-      expect(mail.status).toBe('queued')
-      expect(mail.error).toMatch(/ECONNREFUSED|connect/i)
-      expect(mail.sent_at).toBeNull()
-      const { rows: [job] } = await broken.pool.query(`select state, retry_count from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1`, [String(mail.id)])
+      expect(mail!.status).toBe('queued')
+      expect(mail!.error).toMatch(/ECONNREFUSED|connect/i)
+      expect(mail!.sentAt).toBeNull()
+      // Raw SQL on purpose: pg-boss's own table, not part of our schema.
+      const { rows: [job] } = await broken.pool.query(`select state, retry_count from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1`, [String(mail!.id)])
       expect(job).toMatchObject({ state: 'retry' })
     } finally {
       await broken.close()

@@ -4,7 +4,10 @@ import { format, parseISO } from 'date-fns'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { loadPlanningData } from '../../server/planning/problem'
+import { and, asc, count, eq, gt, isNotNull } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { bookLastStepLate, firstCustomerId, openOrder, openStepIds, planStep, templateId as firstTemplateId, unplanSteps } from '../setup/fixtures'
 import { auditRows, expectFieldError } from './helpers'
 import { kindSpreads, MIN_HISTORY } from '../../server/services/promise-range'
 import { currentAssignments } from '../../server/planning/assignments'
@@ -22,8 +25,7 @@ beforeAll(async () => {
   t = await createTestApp({ SMTP_URL: fake.url })
   fake.useDb(t.db)
   sales = await signedIn(t.app, 'sales')
-  const { rows } = await t.pool.query(`select t.id from routing_templates t order by t.id limit 1`)
-  templateId = rows[0].id
+  templateId = await firstTemplateId(t.db)
 })
 afterAll(async () => { await t?.close(); await fake?.close() })
 
@@ -55,13 +57,13 @@ describe('promise check', () => {
   it('when every person with the first step’s skill is booked on the live plan, then the promise does not finish before they are free', async () => {
     const now = new Date()
     const data = await loadPlanningData(t.db, 1, now)
-    const { rows: steps } = await t.pool.query(`select kind_id, required_level, lead_days from template_steps where template_id = $1 order by seq`, [templateId])
-    const first = steps.find((s: { lead_days: number }) => s.lead_days === 0)
-    const able = data.meta.skills.filter((k) => k.kindId === first.kind_id && k.level >= first.required_level && data.meta.people.has(String(k.personId)))
-    const benchIds = data.meta.capabilities.filter((c) => c.kindId === first.kind_id && data.meta.benches.has(String(c.benchId))).map((c) => String(c.benchId))
+    const steps = await t.db.select({ kindId: s.templateSteps.kindId, requiredLevel: s.templateSteps.requiredLevel, leadDays: s.templateSteps.leadDays }).from(s.templateSteps).where(eq(s.templateSteps.templateId, templateId)).orderBy(asc(s.templateSteps.seq))
+    const first = steps.find((x) => x.leadDays === 0)!
+    const able = data.meta.skills.filter((k) => k.kindId === first.kindId && k.level >= first.requiredLevel && data.meta.people.has(String(k.personId)))
+    const benchIds = data.meta.capabilities.filter((c) => c.kindId === first.kindId && data.meta.benches.has(String(c.benchId))).map((c) => String(c.benchId))
     expect(able.length).toBeGreaterThan(0)
     // Book each skilled person (on a bench of their own) for 3 working days from their next working minute.
-    const { rows: open } = await t.pool.query(`select o.id from operations o join job_bags b on b.id = o.job_bag_id join orders r on r.id = b.order_id where r.status = 'open' and o.status in ('ready','pending') and o.lead_days = 0 order by o.id limit $1`, [able.length])
+    const open = await openStepIds(t.db, { limit: able.length })
     const allBenches = data.problem.benches.map((b) => b.id)
     let freeAt = Infinity
     for (const [i, k] of able.entries()) {
@@ -72,8 +74,7 @@ describe('promise check', () => {
       const start = segs[0]!.start, end = segs[segs.length - 1]!.end
       // Free for this skill once the person is free, on any capable bench.
       freeAt = Math.min(freeAt, end)
-      await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`,
-        [Number(benchId), k.personId, data.clock.toDate(start).toISOString(), data.clock.toDate(end).toISOString(), open[i].id])
+      await planStep(t.db, open[i]!, { benchId: Number(benchId), personId: k.personId, start: data.clock.toDate(start), end: data.clock.toDate(end) })
     }
     expect(benchIds.length).toBeGreaterThan(0)
     // Written straight into the database: announce the change as the services do, so cached answers are dropped.
@@ -85,7 +86,7 @@ describe('promise check', () => {
     const completion = data.clock.toMinute(r.body.fixedPlan.at)
     expect(completion).toBeGreaterThan(data.problem.now)
     expect(completion).toBeGreaterThanOrEqual(freeAt)
-    await t.pool.query(`update operations set planned_bench_id = null, planned_person_id = null, planned_start = null, planned_end = null where id = any($1)`, [open.map((o: { id: number }) => o.id)])
+    await unplanSteps(t.db, open)
   })
 
   it('when the range is asked for, then P50 ≤ P80 ≤ P95, P50 is before P95, and the stated assumption comes with it', async () => {
@@ -112,29 +113,29 @@ describe('promise check', () => {
 /** Books the first `n` open bench steps of seeded orders onto bench × person pairs from now, as a live plan (written straight in). */
 async function seedLivePlan(n: number) {
   const data = await loadPlanningData(t.db, 1, new Date())
-  const { rows: open } = await t.pool.query(`select o.id from operations o join job_bags b on b.id = o.job_bag_id join orders r on r.id = b.order_id where r.status = 'open' and o.status in ('ready','pending') and o.lead_days = 0 and o.planned_start is null order by o.id limit $1`, [n])
+  const open = await openStepIds(t.db, { limit: n, unplanned: true })
   const b = data.problem.benches[0]!, p = data.problem.people[0]!
   const w = intersect(b.available, p.available)
   let at = data.problem.now
-  for (const o of open) {
+  for (const id of open) {
     const segs = walkWorkingTime(w, at, 120)!
     at = segs.at(-1)!.end
-    await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`,
-      [Number(b.id), Number(p.id), data.clock.toDate(segs[0]!.start).toISOString(), data.clock.toDate(at).toISOString(), o.id])
+    await planStep(t.db, id, { benchId: Number(b.id), personId: Number(p.id), start: data.clock.toDate(segs[0]!.start), end: data.clock.toDate(at) })
   }
   t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 })
-  return open.map((o: { id: number }) => o.id as number)
+  return open
 }
-const planned = async () => (await t.pool.query(`select id, planned_bench_id, planned_person_id, planned_start, planned_end from operations where planned_start is not null order by id`)).rows
-const clearPlan = async () => { await t.pool.query(`update operations set planned_bench_id = null, planned_person_id = null, planned_start = null, planned_end = null`); t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 }) }
+const o = s.operations
+const planned = async () => t.db.select({ id: o.id, plannedBenchId: o.plannedBenchId, plannedPersonId: o.plannedPersonId, plannedStart: o.plannedStart, plannedEnd: o.plannedEnd }).from(o).where(isNotNull(o.plannedStart)).orderBy(asc(o.id))
+const clearPlan = async () => { await unplanSteps(t.db); t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 }) }
 
 describe('outside work history', () => {
   it('when castings and hallmarking have come back before, then their spread is measured in working days from sending to return, not assumed', async () => {
     const spreads = await kindSpreads(t.db, 1)
-    const { rows } = await t.pool.query(`select k.code, count(*)::int as n from operations o join operation_kinds k on k.id = o.kind_id where o.lead_days > 0 and o.status = 'done' group by 1`)
-    const measured = (rows as { code: string; n: number }[]).filter((r) => r.n >= MIN_HISTORY)
+    const rows = await t.db.select({ code: s.operationKinds.code, n: count() }).from(o).innerJoin(s.operationKinds, eq(s.operationKinds.id, o.kindId)).where(and(gt(o.leadDays, 0), eq(o.status, 'done'))).groupBy(s.operationKinds.code)
+    const measured = rows.filter((r) => r.n >= MIN_HISTORY)
     expect(measured.length, 'the demo has enough returned outside work of some kind').toBeGreaterThan(0)
-    for (const r of rows as { code: string; n: number }[]) expect(spreads.get(r.code)!.source, r.code).toBe(r.n >= MIN_HISTORY ? 'history' : 'log-normal')
+    for (const r of rows) expect(spreads.get(r.code)!.source, r.code).toBe(r.n >= MIN_HISTORY ? 'history' : 'log-normal')
     for (const r of measured) {
       const k = spreads.get(r.code)!
       expect(k.samples, r.code).toBe(r.n)
@@ -149,7 +150,7 @@ describe('accepting a promise', () => {
     await clearPlan()
     const check = await sales.post('/api/promise/check', { templateId, params })
     const promisedDate: string = check.body.fixedPlan.date
-    const { rows: [c] } = await t.pool.query(`select id, email from customers where workshop_id = 1 order by id limit 1`)
+    const c = (await t.db.select({ id: s.customers.id, email: s.customers.email }).from(s.customers).where(eq(s.customers.workshopId, 1)).orderBy(asc(s.customers.id)).limit(1))[0]!
     const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Bezel ring with three stones', templateId, params, promisedDate, priority: 2, priceQuotedMinor: 64_000 })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.order.promisedDate).toBe(promisedDate)
@@ -171,11 +172,11 @@ describe('accepting a promise', () => {
     expect(msg.text).toContain('£640.00')
     expect(msg.text).toContain('14 Wrenfield Street, Bristol BS1 4QX')
     expect(msg.text).toContain('orders@wrenfield.test')
-    const { rows: [o] } = await t.pool.query(`select * from outbox where order_id = $1 and kind = 'promise-confirmation'`, [r.body.order.id])
-    expect(o.to).toBe(c.email)
-    expect(o.status).toBe('delivered')
-    expect(o.text).toContain(long)
-    expect(o.meta).toMatchObject({ booked: false })
+    const [mail] = await t.db.select().from(s.outbox).where(and(eq(s.outbox.orderId, r.body.order.id), eq(s.outbox.kind, 'promise-confirmation')))
+    expect(mail!.to).toBe(c.email)
+    expect(mail!.status).toBe('delivered')
+    expect(mail!.text).toContain(long)
+    expect(mail!.meta).toMatchObject({ booked: false })
   })
 
   it('when there is a live plan, then taking the order books its steps where the promise found room, moves nobody, and the e-mail gives the booked dates', async () => {
@@ -185,7 +186,7 @@ describe('accepting a promise', () => {
     const check = await sales.post('/api/promise/check', { templateId, params })
     expect(check.body.basis).toBe('live-plan')
     const promisedDate: string = check.body.fixedPlan.date
-    const { rows: [c] } = await t.pool.query(`select id, email from customers where workshop_id = 1 order by id limit 1`)
+    const c = (await t.db.select({ id: s.customers.id, email: s.customers.email }).from(s.customers).where(eq(s.customers.workshopId, 1)).orderBy(asc(s.customers.id)).limit(1))[0]!
     const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Booked bezel ring', templateId, params, promisedDate, priority: 3, priceQuotedMinor: 125_050 })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.booking.booked, JSON.stringify(r.body.booking)).toBe(true)
@@ -201,9 +202,10 @@ describe('accepting a promise', () => {
     const after = (await planned()).filter((x) => !ops.some((o) => o.id === x.id))
     expect(after).toEqual(before)
     // No double booking of a bench or a person between the new steps and the rest (wall-clock overlap, hand-checked rule).
-    const { rows: clashes } = await t.pool.query(`select a.id from operations a join operations b on a.id <> b.id and (a.planned_bench_id = b.planned_bench_id or a.planned_person_id = b.planned_person_id)
-      and a.planned_start < b.planned_end and b.planned_start < a.planned_end where a.id = any($1) and b.lead_days = 0 and a.lead_days = 0`, [ops.map((o) => o.id)])
-    expect(clashes).toEqual([])
+    const bench = (await t.db.select({ id: o.id, benchId: o.plannedBenchId, personId: o.plannedPersonId, start: o.plannedStart, end: o.plannedEnd }).from(o).where(and(isNotNull(o.plannedStart), eq(o.leadDays, 0))))
+      .map((x) => ({ ...x, from: Date.parse(x.start!), to: Date.parse(x.end!) }))
+    const clashes = bench.filter((a) => ops.some((n) => n.id === a.id) && bench.some((b) => a.id !== b.id && ((a.benchId !== null && a.benchId === b.benchId) || (a.personId !== null && a.personId === b.personId)) && a.from < b.to && b.from < a.to))
+    expect(clashes.map((x) => x.id)).toEqual([])
     // The order is on the plan at once, not "not planned yet" until a re-plan.
     const f = await sales.get(`/api/orders/${r.body.order.id}/forecast`)
     expect(f.body.jobBags[0].state).not.toBe('unplanned')
@@ -222,7 +224,7 @@ describe('accepting a promise', () => {
     await seedLivePlan(6)
     const check = await sales.post('/api/promise/check', { templateId, params })
     const earlier = format(new Date(Date.parse(check.body.now) - 86_400_000), 'yyyy-MM-dd')
-    const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
+    const c = { id: await firstCustomerId(t.db, 1) }
     const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Too soon', templateId, params, promisedDate: earlier, priority: 3, priceQuotedMinor: 1000 })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.booking).toMatchObject({ booked: false, reason: expect.stringMatching(/after the promised date/) })
@@ -238,18 +240,18 @@ describe('accepting a promise', () => {
     await seedLivePlan(3)
     const data = await loadPlanningData(t.db, 1, new Date())
     const live = planFromAssignments(data, await currentAssignments(t.db, 1))
-    const { rows: steps } = await t.pool.query(`select key, kind_id, lead_days from template_steps where template_id = $1 order by seq`, [templateId])
+    const steps = await t.db.select({ key: s.templateSteps.key, kindId: s.templateSteps.kindId, leadDays: s.templateSteps.leadDays }).from(s.templateSteps).where(eq(s.templateSteps.templateId, templateId)).orderBy(asc(s.templateSteps.seq))
     // A one-step prospective job on the first bench step's kind, placed in the gaps.
-    const step = steps.find((x: { lead_days: number }) => x.lead_days === 0)
-    const opts = operationOptions(data.meta, step.kind_id, 1, () => 60)
+    const step = steps.find((x) => x.leadDays === 0)!
+    const opts = operationOptions(data.meta, step.kindId, 1, () => 60)
     const placed = placeInGaps(data.problem, live, { id: PROSPECTIVE_JOB, name: 'x', release: data.problem.now, due: null, weight: 1 }, [{ id: `${PROSPECTIVE_JOB}:${step.key}`, jobId: PROSPECTIVE_JOB, name: 'x', kind: 'x', options: opts, predecessors: [] }])
     const st = placed.steps[0]!
     // Someone else books that very bench and person for that time first.
-    const { rows: [other] } = await t.pool.query(`select o.id from operations o join job_bags b on b.id = o.job_bag_id join orders r on r.id = b.order_id where r.status = 'open' and o.status in ('ready','pending') and o.lead_days = 0 and o.planned_start is null order by o.id limit 1`)
-    await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`, [Number(st.benchId), Number(st.personId), data.clock.toDate(st.start).toISOString(), data.clock.toDate(st.end).toISOString(), other.id])
-    const { rows: [order] } = await t.pool.query(`select b.order_id from job_bags b join operations o on o.job_bag_id = b.id where o.key = $1 and b.template_id = $2 limit 1`, [step.key, templateId])
+    const [other] = await openStepIds(t.db, { limit: 1, unplanned: true })
+    await planStep(t.db, other!, { benchId: Number(st.benchId), personId: Number(st.personId), start: data.clock.toDate(st.start), end: data.clock.toDate(st.end) })
+    const [order] = await t.db.select({ orderId: s.jobBags.orderId }).from(s.jobBags).innerJoin(o, eq(o.jobBagId, s.jobBags.id)).where(and(eq(o.key, step.key), eq(s.jobBags.templateId, templateId))).limit(1)
     const actor = { userId: 1, workshopId: 1, role: 'sales' } as never
-    const result = await t.db.transaction((tx) => bookSlot(tx, actor, data, order.order_id, placed))
+    const result = await t.db.transaction((tx) => bookSlot(tx, actor, data, order!.orderId, placed))
     expect(result).toMatchObject({ booked: false, reason: expect.stringMatching(/taken meanwhile/) })
     await clearPlan()
   })
@@ -261,7 +263,7 @@ describe('accepting a promise', () => {
     const kind = (await owner.post('/api/operation-kinds', { code: 'enamelling', name: 'Enamelling' })).body
     const tpl = (await owner.post('/api/templates', { code: 'enamel-only', name: 'Enamel only', steps: [{ key: 'enamel', kindId: kind.id, name: 'Enamel', baseMinutes: 30 }] })).body
     expect(tpl.id, JSON.stringify(tpl)).toBeTruthy()
-    const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
+    const c = { id: await firstCustomerId(t.db, 1) }
     const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Enamel pendant', templateId: tpl.id, promisedDate: '2031-05-10', priority: 3, priceQuotedMinor: 9000 })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.booking).toMatchObject({ booked: false, reason: expect.stringMatching(/cannot place it/) })
@@ -271,23 +273,17 @@ describe('accepting a promise', () => {
   })
 
   it('when the due date is before the promised date, then it is refused on the field', async () => {
-    const { rows: [c] } = await t.pool.query(`select id from customers where workshop_id = 1 order by id limit 1`)
+    const c = { id: await firstCustomerId(t.db, 1) }
     expectFieldError(await sales.post('/api/promise/accept', { customerId: c.id, title: 'x', templateId, params, promisedDate: '2031-05-10', dueDate: '2031-05-01', priority: 3, priceQuotedMinor: 100 }), 'dueDate')
   })
 })
 
 describe('order forecast', () => {
   it('when an order has a job bag on the live plan past its promised date, then the forecast says late and why', async () => {
-    const { rows: [o] } = await t.pool.query(`select r.id, b.id as bag_id from orders r join job_bags b on b.order_id = r.id where r.status = 'open' order by r.id limit 1`)
-    const today = new Date().toISOString().slice(0, 10)
-    await t.pool.query(`update orders set promised_date = $1::date - 3 where id = $2`, [today, o.id])
-    const data = await loadPlanningData(t.db, 1, new Date())
-    const { rows: [op] } = await t.pool.query(`select id from operations where job_bag_id = $1 and lead_days = 0 order by seq desc limit 1`, [o.bag_id])
-    const b = data.problem.benches[0]!, p = data.problem.people[0]!
-    const segs = walkWorkingTime(intersect(b.available, p.available), data.problem.now, 60)!
-    await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`,
-      [Number(b.id), Number(p.id), data.clock.toDate(segs[0]!.start).toISOString(), data.clock.toDate(segs.at(-1)!.end).toISOString(), op.id])
-    const r = await sales.get(`/api/orders/${o.id}/forecast`)
+    const order = await openOrder(t.db)
+    // Promised three days before today (UTC calendar date), its last bench step booked from now on the live plan.
+    await bookLastStepLate(t.db, { workshopId: 1, orderId: order.id, bagId: order.bagId, promised: () => new Date(Date.now() - 3 * 86_400_000).toISOString().slice(0, 10) })
+    const r = await sales.get(`/api/orders/${order.id}/forecast`)
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect(r.body.state).toBe('late')
     expect(r.body.jobBags[0].state).toBe('late')

@@ -1,5 +1,7 @@
 // Named builders for database fixtures in the API and browser tests, written with Drizzle on the schema so a renamed column fails the type check.
-import { and, asc, eq, gte, inArray, notInArray, sql } from 'drizzle-orm'
+import { and, asc, desc, eq, gte, inArray, isNull, notInArray, sql } from 'drizzle-orm'
+import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
+import { loadPlanningData } from '../../server/planning/problem'
 import type { Db } from '../../server/db/client'
 import * as s from '../../server/db/schema/index'
 
@@ -84,10 +86,10 @@ export async function unplanOpenSteps(db: Db): Promise<void> {
 }
 
 /** An open order's waiting or ready steps with no lead days, earliest first (the ones a promise check may book around). */
-export async function openStepIds(db: Db, o: { limit?: number } = {}): Promise<number[]> {
+export async function openStepIds(db: Db, o: { limit?: number; unplanned?: boolean } = {}): Promise<number[]> {
   const q = db.select({ id: s.operations.id }).from(s.operations)
     .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-    .where(and(eq(s.orders.status, 'open'), inArray(s.operations.status, ['ready', 'pending']), eq(s.operations.leadDays, 0)))
+    .where(and(eq(s.orders.status, 'open'), inArray(s.operations.status, ['ready', 'pending']), eq(s.operations.leadDays, 0), o.unplanned ? isNull(s.operations.plannedStart) : undefined))
     .orderBy(asc(s.operations.id))
   return (await (o.limit ? q.limit(o.limit) : q)).map((r) => r.id)
 }
@@ -121,4 +123,27 @@ export async function addPerson(db: Db, o: { workshopId: number; name: string; u
     if (kinds.length) await db.insert(s.personSkills).values(kinds.map((k) => ({ personId: p!.id, kindId: k.id, level: o.skills!.level, speed: o.skills!.speed ?? 1 })))
   }
   return p!.id
+}
+
+/** The first open order (skipping `offset`) and its first job bag. */
+export async function openOrder(db: Db, offset = 0): Promise<{ id: number; number: string; version: number; bagId: number; bagNumber: string }> {
+  const [o] = await db.select({ id: s.orders.id, number: s.orders.number, version: s.orders.version }).from(s.orders).where(eq(s.orders.status, 'open')).orderBy(asc(s.orders.id)).offset(offset).limit(1)
+  if (!o) throw new Error('no open order left in the test database')
+  const [b] = await db.select({ id: s.jobBags.id, number: s.jobBags.number }).from(s.jobBags).where(eq(s.jobBags.orderId, o.id)).orderBy(asc(s.jobBags.id)).limit(1)
+  return { ...o, bagId: b!.id, bagNumber: b!.number }
+}
+
+/**
+ * Books a job bag's last bench step on the live plan past its order's promised date: on the first bench and person, `minutes` of their
+ * shared working time from `fromMinute` working-calendar minutes after now, and the order promised on the date `promised(end)` gives.
+ */
+export async function bookLastStepLate(db: Db, o: { workshopId: number; orderId: number; bagId: number; fromMinute?: number; minutes?: number; promised: (end: Date) => string }): Promise<{ operationId: number; start: Date; end: Date }> {
+  const data = await loadPlanningData(db, o.workshopId, new Date())
+  const b = data.problem.benches[0]!, p = data.problem.people[0]!
+  const segs = walkWorkingTime(intersect(b.available, p.available), data.problem.now + (o.fromMinute ?? 0), o.minutes ?? 60)!
+  const start = data.clock.toDate(segs[0]!.start), end = data.clock.toDate(segs.at(-1)!.end)
+  await db.update(s.orders).set({ promisedDate: o.promised(end) }).where(eq(s.orders.id, o.orderId))
+  const [op] = await db.select({ id: s.operations.id }).from(s.operations).where(and(eq(s.operations.jobBagId, o.bagId), eq(s.operations.leadDays, 0))).orderBy(desc(s.operations.seq)).limit(1)
+  await planStep(db, op!.id, { benchId: Number(b.id), personId: Number(p.id), start, end })
+  return { operationId: op!.id, start, end }
 }

@@ -14,7 +14,7 @@ import { actorOf, authorize, configurePassport, createSessionMiddleware, useSess
 import { Cache } from './lib/cache'
 import { requireCsrf } from './middleware/csrf'
 import { endPinAfterWrite, resolveBenchPerson } from './middleware/bench-person'
-import type { Deps, RouteSpec } from './lib/route'
+import { checkAnswer, type Deps, type RouteSpec } from './lib/route'
 import type { Jobs } from './jobs/queue'
 import { Realtime } from './realtime/hub'
 import { allRoutes } from './routes/index'
@@ -60,7 +60,7 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   realtime.useDatabase(pool)
   const cache = new Cache(realtime)
   useSessionUserCache(db, cache)
-  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: ownAppUrl(config), accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS } }
+  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: ownAppUrl(config), accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS }, checkAnswers: config.NODE_ENV !== 'production' }
   if (jobs) deps.jobs = jobs
 
   const api = express.Router()
@@ -120,7 +120,8 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   return { app, sessionMiddleware, passport, realtime, cache, deps }
 }
 
-function register(router: express.Router, spec: RouteSpec, deps: Deps) {
+/** Mounts one route: role and CSRF checks, input parsing, the handler, its events flushed, its answer (checked against `response` in development and tests). */
+export function register(router: express.Router, spec: RouteSpec, deps: Deps) {
   const handler: RequestHandler = async (req, res, next) => {
     try {
       const unstorable = unstorableText(req.params) ?? unstorableText(req.query) ?? unstorableText(req.body)
@@ -132,6 +133,7 @@ function register(router: express.Router, spec: RouteSpec, deps: Deps) {
       const result = await spec.handler({ req, res, actor: actor!, body, query, params, deps })
       // The change events of this request are numbered and sent before it answers, so whoever reads next (on any instance) sees them.
       await deps.realtime.flush()
+      if (deps.checkAnswers) checkAnswer(`${spec.method.toUpperCase()} ${spec.path}`, spec.response, result)
       endPinAfterWrite(req)
       if (result === undefined) {
         if (!res.headersSent) res.status(204).end()

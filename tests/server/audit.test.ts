@@ -1,11 +1,14 @@
 // The audit trail: who drafted, published, discarded and moved plans; who claimed, started, finished, added and corrected
 // time; who changed estimates and users — and no API route can edit or delete it.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { and, asc, desc, eq, inArray, isNotNull, lte } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { allRoutes } from '../../server/routes/index'
 import { waitForRun } from '../../server/planning/runs'
 import { createTestApp, DEMO_EMAIL, signedIn, type Agent, type TestApp } from '../setup/app'
 import { benchId, makeReady, openOps, personIdOf, rid } from './bench-fixtures'
 import { userIdOf } from './helpers'
+import { unplanOpenSteps } from '../setup/fixtures'
 
 let t: TestApp
 let owner: Agent
@@ -24,8 +27,9 @@ afterAll(async () => { await t?.close() })
 
 interface Row { action: string; entity: string; entity_id: number | null; user_id: number | null; details: Record<string, any>; at: Date }
 async function rows(entity: string, entityId: number, action?: string): Promise<Row[]> {
-  const { rows } = await t.pool.query(`select action, entity, entity_id, user_id, details, at from audit_log where entity = $1 and entity_id = $2 and ($3::text is null or action = $3) order by id desc`, [entity, entityId, action ?? null])
-  return rows
+  const a = s.auditLog
+  return t.db.select({ action: a.action, entity: a.entity, entity_id: a.entityId, user_id: a.userId, details: a.details, at: a.at })
+    .from(a).where(and(eq(a.entity, entity), eq(a.entityId, entityId), action ? eq(a.action, action) : undefined)).orderBy(desc(a.id))
 }
 
 async function draft(): Promise<number> {
@@ -43,16 +47,18 @@ describe('plans', () => {
     expect((await manager.post(`/api/plans/${first}/publish`)).status).toBe(200)
     expect(await rows('plan', first, 'publish')).toMatchObject([{ user_id: who.manager }])
 
-    const { rows: [op] } = await t.pool.query(`select id, version, planned_start, planned_bench_id from operations where planned_start is not null and status in ('pending', 'ready') order by id limit 1`)
+    const o = s.operations
+    const op = (await t.db.select({ id: o.id, version: o.version, planned_start: o.plannedStart, planned_bench_id: o.plannedBenchId }).from(o)
+      .where(and(isNotNull(o.plannedStart), inArray(o.status, ['pending', 'ready']))).orderBy(asc(o.id)).limit(1))[0]!
     const pin = await manager.patch(`/api/board/operations/${op.id}`, { pinned: true, version: op.version })
     expect(pin.status, JSON.stringify(pin.body)).toBe(200)
     expect((await rows('operation', op.id, 'pin'))[0]).toMatchObject({ user_id: who.manager, details: { pinned: true } })
-    const move = await manager.patch(`/api/board/operations/${op.id}`, { start: new Date(op.planned_start).toISOString(), benchId: op.planned_bench_id, version: pin.body.version })
+    const move = await manager.patch(`/api/board/operations/${op.id}`, { start: new Date(op.planned_start!).toISOString(), benchId: op.planned_bench_id, version: pin.body.version })
     expect(move.status, JSON.stringify(move.body)).toBe(200)
     expect((await rows('operation', op.id, 'move'))[0]).toMatchObject({ user_id: who.manager, details: { benchId: op.planned_bench_id, start: expect.any(String) } })
 
     // The planner offers a draft only when it beats the live plan: empty the live plan's unpinned bars first.
-    await t.pool.query(`update operations set planned_start = null, planned_end = null, planned_bench_id = null, planned_person_id = null where status not in ('running', 'done', 'skipped') and not pinned`)
+    await unplanOpenSteps(t.db)
     const second = await draft()
     expect((await manager.post(`/api/plans/${second}/discard`)).status).toBe(200)
     expect(await rows('plan', second, 'discard')).toMatchObject([{ user_id: who.manager }])
@@ -88,7 +94,10 @@ describe('time records', () => {
 
 describe('estimates', () => {
   it('when a step estimate is changed on a job bag and the owner accepts new template minutes, then both are audited with from, to and why', async () => {
-    const { rows: [op] } = await t.pool.query(`select o.id, o.version, o.job_bag_id, o.estimate_minutes from operations o join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id where ord.status = 'open' and o.status = 'pending' order by o.id limit 1`)
+    const o = s.operations
+    const op = (await t.db.select({ id: o.id, version: o.version, job_bag_id: o.jobBagId, estimate_minutes: o.estimateMinutes }).from(o)
+      .innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending'))).orderBy(asc(o.id)).limit(1))[0]!
     const r = await manager.patch(`/api/job-bags/${op.job_bag_id}/operations/${op.id}`, { estimateMinutes: Number(op.estimate_minutes) + 30, reason: 'heavier casting than usual', version: op.version })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     const step = (await rows('operation', op.id, 'update-step'))[0]
@@ -116,7 +125,7 @@ describe('users', () => {
     expect(u.status, JSON.stringify(u.body)).toBe(200)
     const [upd] = await rows('user', c.body.id, 'update')
     expect(upd).toMatchObject({ user_id: who.owner, details: { role: 'sales', password: 'changed' } })
-    const { rows: all } = await t.pool.query(`select details::text as d from audit_log where entity = 'user'`)
+    const all = (await t.db.select({ details: s.auditLog.details }).from(s.auditLog).where(eq(s.auditLog.entity, 'user'))).map((r) => ({ d: JSON.stringify(r.details) }))
     for (const r of all) {
       expect(r.d).not.toContain(password)
       expect(r.d).not.toContain('another-long-secret-43')
@@ -133,12 +142,15 @@ describe('the audit log itself', () => {
   })
 
   it('when every write route is called by the owner with placeholder input, then the rows already in the audit log are unchanged', async () => {
-    const before = (await t.pool.query('select id, action, entity, entity_id, user_id, details::text as d, at from audit_log order by id')).rows
+    const a = s.auditLog
+    const read = (upTo?: number) => t.db.select({ id: a.id, action: a.action, entity: a.entity, entityId: a.entityId, userId: a.userId, workshopId: a.workshopId, details: a.details, at: a.at })
+      .from(a).where(upTo === undefined ? undefined : lte(a.id, upTo)).orderBy(asc(a.id))
+    const before = await read()
     for (const r of allRoutes.filter((x) => x.method !== 'get' && x.path !== '/session')) {
       const path = `/api${r.path.replace(/:[a-zA-Z]+/g, '1')}`
       await (r.method === 'delete' ? owner.delete(path) : owner[r.method](path, { id: before[0]?.id ?? 1, auditId: 1, action: 'nothing happened' }))
     }
-    const after = (await t.pool.query('select id, action, entity, entity_id, user_id, details::text as d, at from audit_log where id <= $1 order by id', [before[before.length - 1]?.id ?? 0])).rows
+    const after = await read(before[before.length - 1]?.id ?? 0)
     expect(after).toEqual(before)
   })
 })

@@ -2,7 +2,8 @@
 // being killed, the daily digest goes once, and a refused e-mail is tried again and delivered once.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { randomUUID } from 'node:crypto'
-import { sql } from 'drizzle-orm'
+import { and, asc, count, eq, gte, inArray, isNotNull, sql } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createApp } from '../../server/app'
 import { loadConfig } from '../../server/config'
 import { createDb } from '../../server/db/client'
@@ -10,13 +11,12 @@ import { createAppJobs } from '../../server/jobs/index'
 import { startDigestTimer } from '../../server/mail/digest-timer'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { Realtime } from '../../server/realtime/hub'
-import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { dayjs } from '../../server/lib/time'
-import { loadPlanningData } from '../../server/planning/problem'
 import { sendRecorded } from '../../server/services/mail'
 import { recoverStaleRuns, runPlanJob, startRun, waitForRun } from '../../server/planning/runs'
 import { createTestApp, httpSignIn, signedIn, type TestApp } from '../setup/app'
 import { startInstances, type Instances } from '../setup/instances'
+import { bookLastStepLate, openOrder, unplanOpenSteps, userIdByEmail } from '../setup/fixtures'
 
 const SECRET = 'test-secret-test-secret'
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms))
@@ -62,49 +62,51 @@ describe('planner runs on two instances', () => {
       expect(seen?.workshopId).toBe(r.body.workshopId)
       const done = await waitForRun(t.db, r.body.id, 60_000)
       expect(done?.status, JSON.stringify(done)).toBe('done')
-      const { rows: [row] } = await t.pool.query(`select attempt, instance, plan_id from plan_runs where id = $1`, [r.body.id])
+      const row = (await t.db.select({ attempt: s.planRuns.attempt, planId: s.planRuns.planId }).from(s.planRuns).where(eq(s.planRuns.id, r.body.id)))[0]!
       expect(row.attempt).toBe(1)
+      // Raw SQL on purpose: pg-boss's own table, not part of our schema.
       const { rows: jobs } = await t.pool.query(`select state from pgboss.job where name = 'plan-run' and data->>'runId' = $1`, [r.body.id])
       expect(jobs).toHaveLength(1)
-      const { rows: [drafts] } = await t.pool.query(`select count(*)::int as n from plan_versions where score->>'iterations' is not null and id = any($1::int[])`, [[row.plan_id ?? 0]])
-      expect(drafts.n).toBe(row.plan_id ? 1 : 0)
+      const [drafts] = await t.db.select({ n: count() }).from(s.planVersions).where(and(isNotNull(sql`${s.planVersions.score}->>'iterations'`), inArray(s.planVersions.id, [row.planId ?? 0])))
+      expect(drafts!.n).toBe(row.planId ? 1 : 0)
     }
-    const { rows: [audits] } = await t.pool.query(`select count(*)::int as n from audit_log where action = 'draft' and entity = 'plan'`)
-    const { rows: [made] } = await t.pool.query(`select count(*)::int as n from plan_runs where plan_id is not null`)
-    expect(audits.n).toBe(made.n)
+    const [audits] = await t.db.select({ n: count() }).from(s.auditLog).where(and(eq(s.auditLog.action, 'draft'), eq(s.auditLog.entity, 'plan')))
+    const [made] = await t.db.select({ n: count() }).from(s.planRuns).where(isNotNull(s.planRuns.planId))
+    expect(audits!.n).toBe(made!.n)
   })
 
   it('when a run is taken twice at once (a takeover while the first taker still runs), then only the latest take saves, and one draft is made', async () => {
-    const { rows: [u] } = await t.pool.query(`select id, workshop_id, role, name from users where email = 'manager@wrenfield.test'`)
-    const actor = { userId: u.id, workshopId: u.workshop_id, role: u.role, personId: null, name: u.name }
+    const u = (await t.db.select({ id: s.users.id, workshopId: s.users.workshopId, role: s.users.role, name: s.users.name }).from(s.users).where(eq(s.users.email, 'manager@wrenfield.test')))[0]!
+    const actor = { userId: u.id, workshopId: u.workshopId, role: u.role, personId: null, name: u.name }
     // Empty the live plan's unplanned bars so any plan beats it and a draft is due (as the planner tests do).
-    await t.pool.query(`update operations set planned_start = null, planned_end = null, planned_bench_id = null, planned_person_id = null where status not in ('running', 'done', 'skipped') and not pinned`)
+    await unplanOpenSteps(t.db)
     const { jobs: _queue, ...noQueue } = t.deps
     // Without a queue the run starts in place (first take); the second instance takes it as well, as a retried job would.
     const run = await startRun(noQueue, actor, { timeLimitSeconds: 3, seed: 3 })
-    await until('the first take', async () => (await t.pool.query(`select 1 from plan_runs where id = $1 and attempt = 1`, [run.id])).rows.length > 0)
+    await until('the first take', async () => (await t.db.select({ id: s.planRuns.id }).from(s.planRuns).where(and(eq(s.planRuns.id, run.id), eq(s.planRuns.attempt, 1)))).length > 0)
     const second_ = await runPlanJob(second.deps, { runId: run.id })
     const done = await waitForRun(t.db, run.id, 60_000)
     expect(second_).toMatchObject({ planId: expect.any(Number) })
     expect(done).toMatchObject({ status: 'done', planId: (second_ as { planId: number }).planId })
-    const { rows: [row] } = await t.pool.query(`select attempt, instance from plan_runs where id = $1`, [run.id])
+    const [row] = await t.db.select({ attempt: s.planRuns.attempt, instance: s.planRuns.instance, createdAt: s.planRuns.createdAt }).from(s.planRuns).where(eq(s.planRuns.id, run.id))
     expect(row).toMatchObject({ attempt: 2, instance: 'second' })
-    const { rows: drafts } = await t.pool.query(`select id from plan_versions where status = 'draft' and created_at >= (select created_at from plan_runs where id = $1)`, [run.id])
-    expect(drafts.map((d: { id: number }) => d.id)).toEqual([done!.planId])
+    const drafts = await t.db.select({ id: s.planVersions.id }).from(s.planVersions).where(and(eq(s.planVersions.status, 'draft'), gte(s.planVersions.createdAt, row!.createdAt)))
+    expect(drafts.map((d) => d.id)).toEqual([done!.planId])
   })
 
   it('when a running run\'s heartbeat has stopped and it has had its tries, then it is marked failed with the reason and plan:failed is sent', async () => {
     const emitted: unknown[][] = []
     const realtime = Object.create(second.deps.realtime, { emit: { value: (...a: unknown[]) => void emitted.push(a) } })
-    const { rows: [u] } = await t.pool.query(`select id from users where email = 'manager@wrenfield.test'`)
+    const createdBy = await userIdByEmail(t.db, 'manager@wrenfield.test')
     const id = randomUUID()
     // A run stuck on its second try: its instance last wrote a heartbeat a minute ago (the limit here is 30 s, the default).
-    await t.pool.query(`insert into plan_runs (id, workshop_id, created_by, options, status, attempt, instance, heartbeat_at, started_at) values ($1, 1, $2, '{"timeLimitSeconds": 5, "seed": 1, "stability": "small-changes"}', 'running', 2, 'gone:1', now() - interval '60 seconds', now() - interval '70 seconds')`, [id, u.id])
+    await t.db.insert(s.planRuns).values({ id, workshopId: 1, createdBy, options: { timeLimitSeconds: 5, seed: 1, stability: 'small-changes' }, status: 'running', attempt: 2, instance: 'gone:1',
+      heartbeatAt: new Date(Date.now() - 60_000).toISOString(), startedAt: new Date(Date.now() - 70_000).toISOString() })
     await recoverStaleRuns({ ...second.deps, realtime })
-    const { rows: [row] } = await t.pool.query(`select status, error, finished_at from plan_runs where id = $1`, [id])
+    const row = (await t.db.select({ status: s.planRuns.status, error: s.planRuns.error, finishedAt: s.planRuns.finishedAt }).from(s.planRuns).where(eq(s.planRuns.id, id)))[0]!
     expect(row.status).toBe('failed')
     expect(row.error).toMatch(/stopped answering 2 times/)
-    expect(row.finished_at).not.toBeNull()
+    expect(row.finishedAt).not.toBeNull()
     expect(emitted).toEqual([[1, 'plan:failed', { runId: id, error: row.error }]])
     // The workshop can plan again.
     const manager = await signedIn(t.app, 'manager')
@@ -139,7 +141,7 @@ describe('an instance killed mid-run', () => {
     const run = (await r.json()) as { id: string }
     // Mid-run: one of the two has taken the run and written progress with its heartbeat.
     const taken = await until('an instance to report progress', async () => {
-      const { rows: [row] } = await pool.query(`select status, instance, attempt, progress from plan_runs where id = $1`, [run.id])
+      const [row] = await db.select({ status: s.planRuns.status, instance: s.planRuns.instance, progress: s.planRuns.progress }).from(s.planRuns).where(eq(s.planRuns.id, run.id))
       return row?.status === 'running' && row.progress ? row : null
     })
     const holder = cluster.instances.find((i) => String(taken.instance).endsWith(`:${i.pid}`))!
@@ -148,19 +150,20 @@ describe('an instance killed mid-run', () => {
     await holder.kill('SIGKILL')
 
     const done = await waitForRun(db, run.id, 90_000)
-    const { rows: [row] } = await pool.query(`select status, attempt, instance, plan_id, error from plan_runs where id = $1`, [run.id])
+    const row = (await db.select({ status: s.planRuns.status, attempt: s.planRuns.attempt, instance: s.planRuns.instance, planId: s.planRuns.planId, error: s.planRuns.error }).from(s.planRuns).where(eq(s.planRuns.id, run.id)))[0]!
     expect(done?.status, JSON.stringify(row)).toBe('done')
     expect(row.attempt).toBe(2)
     expect(row.instance).toMatch(new RegExp(`:${other.pid}$`))
-    const { rows: [drafts] } = await pool.query(`select count(*)::int as n from audit_log where action = 'draft' and entity = 'plan'`)
-    expect(drafts.n).toBe(row.plan_id ? 1 : 0)
+    const [drafts] = await db.select({ n: count() }).from(s.auditLog).where(and(eq(s.auditLog.action, 'draft'), eq(s.auditLog.entity, 'plan')))
+    expect(drafts!.n).toBe(row.planId ? 1 : 0)
+    // Raw SQL on purpose below: pg-boss's own table, not part of our schema.
     // Its first job was cancelled when the run was taken over, so the queue does not retry it as well.
     const { rows: jobs } = await pool.query(`select state from pgboss.job where name = 'plan-run' and data->>'runId' = $1 order by created_on`, [run.id])
     expect(jobs.map((j: { state: string }) => j.state)).toEqual(['cancelled', 'completed'])
     // Polling the run reads the row: the surviving instance answers it.
     const seen = await httpSignIn(other.url, 'manager')
     const polled = await fetch(`${other.url}/api/plans/runs/${run.id}`, { headers: { cookie: seen.cookie } })
-    expect(await polled.json()).toMatchObject({ id: run.id, status: 'done', planId: row.plan_id })
+    expect(await polled.json()).toMatchObject({ id: run.id, status: 'done', planId: row.planId })
   })
 })
 
@@ -178,45 +181,40 @@ describe('daily mail and e-mail retries on two instances', () => {
 
   it('when both instances\' timers ask for the day\'s digest, again and again, then it goes out once to each manager', async () => {
     // A job bag on the live plan made late (as in the mail tests): its last step ends two days after its promised date.
-    const { rows: [o] } = await t.pool.query(`select r.id from orders r where r.status = 'open' order by r.id limit 1`)
-    const { rows: [bag] } = await t.pool.query(`select id, number from job_bags where order_id = $1`, [o.id])
-    const data = await loadPlanningData(t.db, 1, new Date())
-    const b = data.problem.benches[0]!, p = data.problem.people[0]!
-    const segs = walkWorkingTime(intersect(b.available, p.available), data.problem.now + 3 * 1440, 60)!
-    const end = data.clock.toDate(segs.at(-1)!.end)
-    await t.pool.query(`update orders set promised_date = $1 where id = $2`, [new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10), o.id])
-    const { rows: [op] } = await t.pool.query(`select id from operations where job_bag_id = $1 and lead_days = 0 order by seq desc limit 1`, [bag.id])
-    await t.pool.query(`update operations set planned_bench_id = $1, planned_person_id = $2, planned_start = $3, planned_end = $4 where id = $5`, [Number(b.id), Number(p.id), data.clock.toDate(segs[0]!.start).toISOString(), end.toISOString(), op.id])
+    const o = await openOrder(t.db)
+    const bag = { number: o.bagNumber }
+    await bookLastStepLate(t.db, { workshopId: 1, orderId: o.id, bagId: o.bagId, fromMinute: 3 * 1440, promised: (end) => new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10) })
 
-    const { rows: [w] } = await t.pool.query(`select time_zone from workshops where id = 1`)
-    const today = dayjs().tz(w.time_zone).format('YYYY-MM-DD')
-    const at = dayjs.tz(`${today} 08:00`, w.time_zone).toDate()
+    const { timeZone } = (await t.db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, 1)))[0]!
+    const today = dayjs().tz(timeZone).format('YYYY-MM-DD')
+    const at = dayjs.tz(`${today} 08:00`, timeZone).toDate()
     const timers = [startDigestTimer(t.deps, { clock: () => at, everyMs: 3_600_000 }), startDigestTimer(second.deps, { clock: () => at, everyMs: 3_600_000 })]
     try {
       for (let i = 0; i < 3; i++) await Promise.all(timers.map((x) => x.tick()))
-      await until('the day to be done', async () => (await t.pool.query(`select 1 from daily_mail_runs where workshop_id = 1 and day = $1`, [today])).rows.length > 0)
+      await until('the day to be done', async () => (await t.db.select({ day: s.dailyMailRuns.day }).from(s.dailyMailRuns).where(and(eq(s.dailyMailRuns.workshopId, 1), eq(s.dailyMailRuns.day, today)))).length > 0)
       for (let i = 0; i < 2; i++) await Promise.all(timers.map((x) => x.tick()))
     } finally {
       timers.forEach((x) => x.stop())
     }
-    const { rows: managers } = await t.pool.query(`select email from users where workshop_id = 1 and role = 'manager' and active`)
+    const managers = await t.db.select({ email: s.users.email }).from(s.users).where(and(eq(s.users.workshopId, 1), eq(s.users.role, 'manager'), eq(s.users.active, true)))
     expect(managers.length).toBeGreaterThan(0)
     for (const m of managers) await fake.waitFor((x) => x.to.includes(m.email) && x.subject.includes('at risk'), 30_000)
     // Every queued mail sent, then count: one digest row and one message per manager, the late job bag in it.
-    await until('the outbox to drain', async () => (await t.pool.query(`select 1 from outbox where status = 'queued'`)).rows.length === 0, 30_000)
-    const { rows: digests } = await t.pool.query(`select "to" from outbox where kind = 'at-risk-digest' and meta->>'day' = $1 order by "to"`, [today])
-    expect(digests.map((d: { to: string }) => d.to)).toEqual(managers.map((m: { email: string }) => m.email).sort())
+    await until('the outbox to drain', async () => (await t.db.select({ id: s.outbox.id }).from(s.outbox).where(eq(s.outbox.status, 'queued'))).length === 0, 30_000)
+    const digests = await t.db.select({ to: s.outbox.to }).from(s.outbox).where(and(eq(s.outbox.kind, 'at-risk-digest'), eq(sql`${s.outbox.meta}->>'day'`, today))).orderBy(asc(s.outbox.to))
+    expect(digests.map((d) => d.to)).toEqual(managers.map((m) => m.email).sort())
     for (const m of managers) {
       const got = fake.messages.filter((x) => x.to.includes(m.email) && x.subject.includes('at risk'))
       expect(got).toHaveLength(1)
       expect(got[0]!.text).toContain(bag.number)
     }
-    const { rows: days } = await t.pool.query(`select count(*)::int as n from daily_mail_runs where workshop_id = 1`)
-    expect(days[0].n).toBe(1)
+    const [days] = await t.db.select({ n: count() }).from(s.dailyMailRuns).where(eq(s.dailyMailRuns.workshopId, 1))
+    expect(days!.n).toBe(1)
   })
 
   it('when the change that queued an e-mail rolls back, then neither its outbox row nor its send job exists; when it commits, both do', async () => {
     const content = { subject: 'Queued in a transaction', text: 'x', html: '<p>x</p>' }
+    // Raw SQL on purpose for the queue's jobs: pg-boss's own table, not part of our schema.
     const jobsFor = async (outboxId: number) => Number((await t.pool.query(`select count(*) from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1`, [String(outboxId)])).rows[0].count)
     let rolledBack = 0
     await t.db.transaction(async (tx) => {
@@ -228,7 +226,7 @@ describe('daily mail and e-mail retries on two instances', () => {
     }).catch((err) => { if (!/rollback/i.test(String(err))) throw err })
     expect(rolledBack).toBeGreaterThan(0)
     expect(await jobsFor(rolledBack)).toBe(0)
-    expect((await t.pool.query(`select 1 from outbox where id = $1`, [rolledBack])).rows).toHaveLength(0)
+    expect(await t.db.select({ id: s.outbox.id }).from(s.outbox).where(eq(s.outbox.id, rolledBack))).toHaveLength(0)
     const committed = { ...content, subject: 'Queued and committed' }
     const kept = await t.db.transaction((tx) => sendRecorded({ ...t.deps, db: tx as unknown as typeof t.db }, { workshopId: 1, to: 'committed@example.com', kind: 'test', content: committed }))
     expect(await jobsFor(kept.id)).toBe(1)
@@ -237,7 +235,7 @@ describe('daily mail and e-mail retries on two instances', () => {
 
   it('when the mail server refuses the first try, then the message is tried again and delivered once', async () => {
     const manager = await signedIn(t.app, 'manager')
-    const { rows: [o] } = await t.pool.query(`select r.id, r.number, r.version from orders r where r.status = 'open' order by r.id offset 1 limit 1`)
+    const o = await openOrder(t.db, 1)
     fake.refuseNext(1)
     const refusedBefore = fake.refused
     const r = await manager.patch(`/api/orders/${o.id}`, { status: 'ready', version: o.version })
@@ -247,12 +245,13 @@ describe('daily mail and e-mail retries on two instances', () => {
     const m = await fake.waitFor((x) => x.subject.includes(o.number) && /ready to collect/.test(x.subject), 30_000)
     expect(fake.refused - refusedBefore).toBe(1)
     expect(new Date(m.receivedAt).getTime()).toBeGreaterThan(answeredAt)
-    const { rows: [row] } = await t.pool.query(`select id, status, error from outbox where order_id = $1 and kind = 'ready-for-collection'`, [o.id])
+    const row = (await t.db.select({ id: s.outbox.id, status: s.outbox.status, error: s.outbox.error }).from(s.outbox).where(and(eq(s.outbox.orderId, o.id), eq(s.outbox.kind, 'ready-for-collection'))))[0]!
     expect(row).toMatchObject({ status: 'delivered' })
+    // Raw SQL on purpose: pg-boss's own table, not part of our schema.
     const job = await until('the send job to complete', async () => (await t.pool.query(`select state, retry_count from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1 and state = 'completed'`, [String(row.id)])).rows[0])
     expect(job.retry_count).toBe(1)
     await sleep(1500)
     expect(fake.messages.filter((x) => x.subject === m.subject)).toHaveLength(1)
-    expect((await t.pool.query(`select error from outbox where id = $1`, [row.id])).rows[0].error).toBeNull()
+    expect((await t.db.select({ error: s.outbox.error }).from(s.outbox).where(eq(s.outbox.id, row.id)))[0]!.error).toBeNull()
   })
 })

@@ -79,7 +79,7 @@ describe('mail', () => {
     expect(again.status).toBe(200)
     const rows = await t.db.select({ status: s.outbox.status }).from(s.outbox).where(and(eq(s.outbox.orderId, o.id), eq(s.outbox.kind, 'ready-for-collection')))
     expect(rows).toHaveLength(1)
-    expect(rows[0].status).toBe('delivered')
+    expect(rows[0]!.status).toBe('delivered')
   })
 
   it('when a job bag on the live plan ends after its promised date, then the at-risk digest lists it to the managers', async () => {

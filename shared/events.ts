@@ -1,5 +1,6 @@
 // Typed Socket.IO events (domain:pastTense), sent to the room of one workshop. Payloads stay small: ids and versions.
-export interface ChangePayload { id: number; version?: number; seq: number }
+// A type alias (not an interface), so a payload also reads as a plain Record<string, unknown>.
+export type ChangePayload = { id: number; version?: number; seq: number }
 
 export interface ServerToClientEvents {
   'order:created': (p: ChangePayload) => void

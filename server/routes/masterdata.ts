@@ -1,11 +1,11 @@
 // Master data routes: operation kinds, benches, people, calendar, routing templates, customers, users.
-import { benchInput, benchUpdate, downtimeInput } from '../../shared/schemas/bench'
+import { bench, benchInput, benchUpdate, downtimeInput } from '../../shared/schemas/bench'
 import { closureInput, workshopSettingsInput } from '../../shared/schemas/calendar'
 import { listQuery } from '../../shared/schemas/common'
-import { customerInput, customerUpdate } from '../../shared/schemas/customer'
+import { customer, customerInput, customerPage, customerUpdate } from '../../shared/schemas/customer'
 import { operationKindInput, operationKindUpdate } from '../../shared/schemas/operation-kind'
-import { leaveInput, personInput, personUpdate } from '../../shared/schemas/person'
-import { templateInput, templateUpdate } from '../../shared/schemas/routing'
+import { leaveInput, person, personInput, personUpdate } from '../../shared/schemas/person'
+import { template, templateInput, templateUpdate } from '../../shared/schemas/routing'
 import { userCreate, userUpdate } from '../../shared/schemas/user'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
@@ -44,17 +44,17 @@ export const masterDataRoutes = [
   route({ method: 'post', path: '/operation-kinds', roles: STAFF, status: 201, summary: 'Add an operation kind', body: operationKindInput, handler: ({ deps, actor, body }) => kinds.createKind(deps, actor, body) }),
   route({ method: 'patch', path: '/operation-kinds/:id', roles: STAFF, summary: 'Change an operation kind', params: idParam, body: sentOnly(operationKindUpdate), handler: ({ deps, actor, params, body }) => kinds.updateKind(deps, actor, params.id, body) }),
 
-  route({ method: 'get', path: '/benches', roles: EVERYONE, summary: 'Benches with capabilities and downtime', handler: ({ deps, actor }) => benches.listBenches(deps.db, actor.workshopId) }),
-  route({ method: 'post', path: '/benches', roles: STAFF, status: 201, summary: 'Add a bench', body: benchInput, handler: ({ deps, actor, body }) => benches.createBench(deps, actor, body) }),
-  route({ method: 'patch', path: '/benches/:id', roles: STAFF, summary: 'Change a bench', params: idParam, body: sentOnly(benchUpdate), handler: ({ deps, actor, params, body }) => benches.updateBench(deps, actor, params.id, body) }),
-  route({ method: 'post', path: '/benches/:id/downtime', roles: STAFF, status: 201, summary: 'Add bench downtime', params: idParam, body: downtimeInput, handler: ({ deps, actor, params, body }) => benches.addDowntime(deps, actor, params.id, body) }),
-  route({ method: 'delete', path: '/benches/:id/downtime/:childId', roles: STAFF, summary: 'Remove bench downtime', params: childParam, handler: ({ deps, actor, params }) => benches.removeDowntime(deps, actor, params.id, params.childId) }),
+  route({ method: 'get', path: '/benches', roles: EVERYONE, summary: 'Benches with capabilities and downtime', response: z.array(bench), handler: ({ deps, actor }) => benches.listBenches(deps.db, actor.workshopId) }),
+  route({ method: 'post', path: '/benches', roles: STAFF, status: 201, summary: 'Add a bench', body: benchInput, response: bench, handler: ({ deps, actor, body }) => benches.createBench(deps, actor, body) }),
+  route({ method: 'patch', path: '/benches/:id', roles: STAFF, summary: 'Change a bench', params: idParam, body: sentOnly(benchUpdate), response: bench, handler: ({ deps, actor, params, body }) => benches.updateBench(deps, actor, params.id, body) }),
+  route({ method: 'post', path: '/benches/:id/downtime', roles: STAFF, status: 201, summary: 'Add bench downtime', params: idParam, body: downtimeInput, response: bench, handler: ({ deps, actor, params, body }) => benches.addDowntime(deps, actor, params.id, body) }),
+  route({ method: 'delete', path: '/benches/:id/downtime/:childId', roles: STAFF, summary: 'Remove bench downtime', params: childParam, response: bench, handler: ({ deps, actor, params }) => benches.removeDowntime(deps, actor, params.id, params.childId) }),
 
-  route({ method: 'get', path: '/people', roles: EVERYONE, summary: 'People with skills and leave', handler: ({ deps, actor }) => people.listPeople(deps.db, actor.workshopId) }),
-  route({ method: 'post', path: '/people', roles: STAFF, status: 201, summary: 'Add a person', body: personInput, handler: ({ deps, actor, body }) => people.createPerson(deps, actor, body) }),
-  route({ method: 'patch', path: '/people/:id', roles: STAFF, summary: 'Change a person and their skills', params: idParam, body: sentOnly(personUpdate), handler: ({ deps, actor, params, body }) => people.updatePerson(deps, actor, params.id, body) }),
-  route({ method: 'post', path: '/people/:id/leave', roles: STAFF, status: 201, summary: 'Add leave', params: idParam, body: leaveInput, handler: ({ deps, actor, params, body }) => people.addLeave(deps, actor, params.id, body) }),
-  route({ method: 'delete', path: '/people/:id/leave/:childId', roles: STAFF, summary: 'Remove leave', params: childParam, handler: ({ deps, actor, params }) => people.removeLeave(deps, actor, params.id, params.childId) }),
+  route({ method: 'get', path: '/people', roles: EVERYONE, summary: 'People with skills and leave', response: z.array(person), handler: ({ deps, actor }) => people.listPeople(deps.db, actor.workshopId) }),
+  route({ method: 'post', path: '/people', roles: STAFF, status: 201, summary: 'Add a person', body: personInput, response: person, handler: ({ deps, actor, body }) => people.createPerson(deps, actor, body) }),
+  route({ method: 'patch', path: '/people/:id', roles: STAFF, summary: 'Change a person and their skills', params: idParam, body: sentOnly(personUpdate), response: person, handler: ({ deps, actor, params, body }) => people.updatePerson(deps, actor, params.id, body) }),
+  route({ method: 'post', path: '/people/:id/leave', roles: STAFF, status: 201, summary: 'Add leave', params: idParam, body: leaveInput, response: person, handler: ({ deps, actor, params, body }) => people.addLeave(deps, actor, params.id, body) }),
+  route({ method: 'delete', path: '/people/:id/leave/:childId', roles: STAFF, summary: 'Remove leave', params: childParam, response: person, handler: ({ deps, actor, params }) => people.removeLeave(deps, actor, params.id, params.childId) }),
 
   route({ method: 'get', path: '/workshop', roles: EVERYONE, summary: 'Workshop settings and calendar', handler: async ({ deps, actor, req }) => ({ ...await calendar.getSettings(deps.db, actor.workshopId), publicUrlSuggestion: suggestionForRequest(req, deps.listenHost) }) }),
   route({ method: 'put', path: '/workshop', roles: OWNER, summary: 'Change workshop settings (owner)', body: workshopSettingsInput, handler: async ({ deps, actor, body, req }) => ({ ...await calendar.updateSettings(deps, actor, body), publicUrlSuggestion: suggestionForRequest(req, deps.listenHost) }) }),
@@ -62,15 +62,15 @@ export const masterDataRoutes = [
   route({ method: 'post', path: '/closures', roles: STAFF, status: 201, summary: 'Add a closure', body: closureInput, handler: ({ deps, actor, body }) => calendar.addClosure(deps, actor, body) }),
   route({ method: 'delete', path: '/closures/:id', roles: STAFF, summary: 'Remove a closure', params: idParam, handler: ({ deps, actor, params }) => calendar.removeClosure(deps, actor, params.id) }),
 
-  route({ method: 'get', path: '/templates', roles: EVERYONE, summary: 'Routing templates with steps', handler: ({ deps, actor }) => templates.listTemplates(deps.db, actor.workshopId) }),
-  route({ method: 'get', path: '/templates/:id', roles: EVERYONE, summary: 'One routing template', params: idParam, handler: ({ deps, actor, params }) => templates.getTemplate(deps.db, actor.workshopId, params.id) }),
-  route({ method: 'post', path: '/templates', roles: STAFF, status: 201, summary: 'Add a routing template', body: templateInput, handler: ({ deps, actor, body }) => templates.createTemplate(deps, actor, body) }),
-  route({ method: 'put', path: '/templates/:id', roles: STAFF, summary: 'Replace a routing template', params: idParam, body: templateUpdate, handler: ({ deps, actor, params, body }) => templates.updateTemplate(deps, actor, params.id, body) }),
+  route({ method: 'get', path: '/templates', roles: EVERYONE, summary: 'Routing templates with steps', response: z.array(template), handler: ({ deps, actor }) => templates.listTemplates(deps.db, actor.workshopId) }),
+  route({ method: 'get', path: '/templates/:id', roles: EVERYONE, summary: 'One routing template', params: idParam, response: template, handler: ({ deps, actor, params }) => templates.getTemplate(deps.db, actor.workshopId, params.id) }),
+  route({ method: 'post', path: '/templates', roles: STAFF, status: 201, summary: 'Add a routing template', body: templateInput, response: template, handler: ({ deps, actor, body }) => templates.createTemplate(deps, actor, body) }),
+  route({ method: 'put', path: '/templates/:id', roles: STAFF, summary: 'Replace a routing template', params: idParam, body: templateUpdate, response: template, handler: ({ deps, actor, params, body }) => templates.updateTemplate(deps, actor, params.id, body) }),
 
-  route({ method: 'get', path: '/customers', roles: FRONT, summary: 'Customers (search, sort, pages)', query: listQuery, handler: ({ deps, actor, query }) => customers.listCustomers(deps.db, actor.workshopId, query) }),
-  route({ method: 'get', path: '/customers/:id', roles: FRONT, summary: 'One customer', params: idParam, handler: ({ deps, actor, params }) => customers.getCustomer(deps.db, actor.workshopId, params.id) }),
-  route({ method: 'post', path: '/customers', roles: FRONT, status: 201, summary: 'Add a customer', body: customerInput, handler: ({ deps, actor, body }) => customers.createCustomer(deps, actor, body) }),
-  route({ method: 'patch', path: '/customers/:id', roles: FRONT, summary: 'Change a customer', params: idParam, body: sentOnly(customerUpdate), handler: ({ deps, actor, params, body }) => customers.updateCustomer(deps, actor, params.id, body) }),
+  route({ method: 'get', path: '/customers', roles: FRONT, summary: 'Customers (search, sort, pages)', query: listQuery, response: customerPage, handler: ({ deps, actor, query }) => customers.listCustomers(deps.db, actor.workshopId, query) }),
+  route({ method: 'get', path: '/customers/:id', roles: FRONT, summary: 'One customer', params: idParam, response: customer, handler: ({ deps, actor, params }) => customers.getCustomer(deps.db, actor.workshopId, params.id) }),
+  route({ method: 'post', path: '/customers', roles: FRONT, status: 201, summary: 'Add a customer', body: customerInput, response: customer, handler: ({ deps, actor, body }) => customers.createCustomer(deps, actor, body) }),
+  route({ method: 'patch', path: '/customers/:id', roles: FRONT, summary: 'Change a customer', params: idParam, body: sentOnly(customerUpdate), response: customer, handler: ({ deps, actor, params, body }) => customers.updateCustomer(deps, actor, params.id, body) }),
 
   route({ method: 'get', path: '/users', roles: OWNER, summary: 'Users (owner)', handler: ({ deps, actor }) => users.listUsers(deps.db, actor.workshopId) }),
   route({ method: 'post', path: '/users', roles: OWNER, status: 201, summary: 'Create a user (owner)', body: userCreate, handler: ({ deps, actor, body }) => users.createUser(deps, actor, body) }),

@@ -1,6 +1,6 @@
 // Work at the bench: claim, start, pause, resume, finish (each replay-safe by its requestId), and time record corrections.
 import { z } from 'zod'
-import { id, isoDateTime } from './common'
+import { id, isoDate, isoDateTime, wireInt } from './common'
 import { pauseReasonCode } from './pause-reason'
 
 /** Client-generated per tap; a replay with the same id gets the first answer. */
@@ -43,53 +43,56 @@ export type OutsideInput = z.infer<typeof outsideInput>
 export type TimeRecordCorrection = z.infer<typeof timeRecordCorrection>
 export type TimeRecordAdd = z.infer<typeof timeRecordAdd>
 
-/** One operation as the bench sees it. */
-export interface BenchOperation {
-  id: number
-  version: number
-  status: string
-  key: string
-  name: string
-  seq: number
-  kindId: number
-  kindCode: string
-  kindName: string
-  hazards: string[]
-  cautions: string[]
-  requiredLevel: number
-  estimateMinutes: number
-  actualMinutes: number
-  /** Start of the open time record when running. */
-  runningSince: string | null
-  plannedStart: string | null
-  claimedBy: number | null
-  claimedByName: string | null
-  jobBagId: number
-  jobBagNumber: string
-  piece: string
-  orderNumber: string
-  dueDate: string
-  priority: number
-  /** The stones to set, from the job bag's piece parameters. */
-  stones: BenchStones
-  /** The piece's metal code (see METALS), or null when the bag has none recorded. */
-  metal: string | null
-}
-
 /** Stones of a job bag: count per piece, how many pieces, the total, and the stone size in mm (null when not given). */
-export interface BenchStones {
-  perPiece: number
-  pieces: number
-  total: number
-  sizeMm: number | null
-}
+export const benchStones = z.object({ perPiece: z.number(), pieces: z.number(), total: z.number(), sizeMm: z.number().nullable() })
+
+/** One operation as the bench sees it. */
+export const benchOperation = z.object({
+  id: wireInt,
+  version: wireInt,
+  status: z.string(),
+  key: z.string(),
+  name: z.string(),
+  seq: wireInt,
+  kindId: wireInt,
+  kindCode: z.string(),
+  kindName: z.string(),
+  hazards: z.array(z.string()),
+  cautions: z.array(z.string()),
+  requiredLevel: wireInt,
+  estimateMinutes: z.number(),
+  actualMinutes: z.number(),
+  /** Start of the open time record when running. */
+  runningSince: isoDateTime.nullable(),
+  plannedStart: isoDateTime.nullable(),
+  claimedBy: wireInt.nullable(),
+  claimedByName: z.string().nullable(),
+  jobBagId: wireInt,
+  jobBagNumber: z.string(),
+  piece: z.string(),
+  orderNumber: z.string(),
+  dueDate: isoDate,
+  priority: wireInt,
+  /** The stones to set, from the job bag's piece parameters. */
+  stones: benchStones,
+  /** The piece's metal code (see METALS), or null when the bag has none recorded. */
+  metal: z.string().nullable(),
+})
 
 /** The answer to every transition. */
-export interface TransitionResult {
-  operation: BenchOperation
-  jobBag: { id: number; status: string; version: number }
+export const transitionResult = z.object({
+  operation: benchOperation,
+  jobBag: z.object({ id: wireInt, status: z.string(), version: wireInt }),
   /** Successors that became ready with this finish. */
-  readied: number[]
+  readied: z.array(wireInt),
   /** Cautions for a hazardous operation (show before starting). */
-  cautions: string[]
-}
+  cautions: z.array(z.string()),
+})
+
+/** Next for me and my work: the person they are for, and the operations. */
+export const benchList = z.object({ person: z.object({ id: wireInt, name: z.string() }), items: z.array(benchOperation) })
+
+export type BenchStones = z.infer<typeof benchStones>
+export type BenchOperation = z.infer<typeof benchOperation>
+export type TransitionResult = z.infer<typeof transitionResult>
+export type BenchList = z.infer<typeof benchList>

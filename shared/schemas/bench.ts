@@ -1,6 +1,6 @@
 // Benches: where work is done, what kinds of operation each can host, and when it is down.
 import { z } from 'zod'
-import { id, isoDateTime, name, notes, version } from './common'
+import { id, isoDateTime, name, notes, version, wireInt } from './common'
 
 export const benchInput = z.object({
   name,
@@ -17,5 +17,10 @@ export const downtimeInput = z
 export type BenchInput = z.infer<typeof benchInput>
 export type BenchUpdate = z.infer<typeof benchUpdate>
 export type DowntimeInput = z.infer<typeof downtimeInput>
-export interface Downtime { id: number; benchId: number; startsAt: string; endsAt: string; reason: string }
-export interface Bench extends Omit<BenchInput, 'notes'> { id: number; notes: string; version: number; downtime: Downtime[] }
+
+// ---- Answers ----
+
+export const downtime = z.object({ id: wireInt, benchId: wireInt, startsAt: isoDateTime, endsAt: isoDateTime, reason: z.string() })
+export const bench = z.object({ id: wireInt, version: wireInt, name: z.string(), kind: z.string(), capacity: wireInt, kindIds: z.array(wireInt), active: z.boolean(), notes: z.string(), downtime: z.array(downtime) })
+export type Downtime = z.infer<typeof downtime>
+export type Bench = z.infer<typeof bench>

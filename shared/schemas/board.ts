@@ -18,7 +18,14 @@ export const boardActual = z.object({
   fromRecords: z.boolean(),
 })
 
-export const boardReason = z.object({ kind: z.string(), detail: z.string(), blockerId: z.string().optional() })
+/** Why the engine started an operation when it did, e.g. "waiting for Ines Harrowby (setting) until Thu 14:00". */
+export const startReason = z.object({
+  kind: z.enum(['release', 'predecessor', 'bench', 'person', 'working-time', 'fixed', 'now', 'by-hand']),
+  detail: z.string(),
+  /** The operation (or resource) that holds this one back, if any. */
+  blockerId: z.string().optional(),
+})
+export const boardReason = startReason
 
 export const boardItem = z.object({
   id: z.number().int(), jobBagId: z.number().int(), jobBagNumber: z.string(), piece: z.string(), orderId: z.number().int(), orderNumber: z.string(),
@@ -38,10 +45,12 @@ export const boardJob = z.object({
   state: z.enum(['late', 'at-risk', 'on-time', 'unplanned']), reason: z.string().nullable(),
 })
 
+export const boardPlanRef = z.object({ id: z.number().int(), number: z.number().int(), status: z.string(), publishedAt: isoDateTime.nullable() })
+
 export const boardAnswer = z.object({
   window: z.object({ from: isoDate, to: isoDate, timeZone: z.string() }),
   now: isoDateTime,
-  plan: z.object({ id: z.number().int(), number: z.number().int(), status: z.string(), publishedAt: isoDateTime.nullable() }).nullable(),
+  plan: boardPlanRef.nullable(),
   /** `kinds`: the operation kinds (codes) the bench can host. */
   benches: z.array(z.object({ id: z.number().int(), name: z.string(), kind: z.string(), kinds: z.array(z.string()) })),
   /** `skills`: operation kind code → level. */
@@ -58,3 +67,11 @@ export const boardAnswer = z.object({
 export type BoardActual = z.infer<typeof boardActual>
 export type BoardPlanned = z.infer<typeof boardPlanned>
 export type BoardAnswer = z.infer<typeof boardAnswer>
+/** The board's whole answer as the client holds it. */
+export type BoardData = BoardAnswer
+export type StartReason = z.infer<typeof startReason>
+/** One bar of the board: an operation with its planned bench, person and times. */
+export type BoardItem = z.infer<typeof boardItem>
+export type BoardJob = z.infer<typeof boardJob>
+export type JobState = BoardJob['state']
+export type BoardPlanRef = z.infer<typeof boardPlanRef>

@@ -46,6 +46,12 @@ export const listQuery = z.object({
 export type ListQuery = z.infer<typeof listQuery>
 export interface Page<T> { items: T[]; total: number; page: number; pageSize: number }
 
+// Answers on the wire: plain checks, no coercion, defaults or trimming (a response schema says what the server sends).
+/** A row id or count as the server sends it. */
+export const wireInt = z.number().int()
+/** One page of a list answer. */
+export const pageOf = <T extends z.ZodType>(item: T) => z.object({ items: z.array(item), total: wireInt.nonnegative(), page: wireInt.positive(), pageSize: wireInt.positive() })
+
 // Plain-language messages for type errors everywhere ("is required", "must be a number").
 z.config({
   customError: (issue) => {

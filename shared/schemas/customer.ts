@@ -1,6 +1,6 @@
 // Customers of the workshop (contact data stays off job tickets).
 import { z } from 'zod'
-import { name, notes, version } from './common'
+import { name, notes, pageOf, version, wireInt } from './common'
 
 export const customerInput = z.object({
   name,
@@ -10,4 +10,9 @@ export const customerInput = z.object({
 })
 export const customerUpdate = customerInput.partial().extend({ version })
 export type CustomerInput = z.infer<typeof customerInput>
-export interface Customer extends CustomerInput { id: number; reference: string; version: number; openOrders: number }
+
+// ---- Answers ----
+
+export const customer = z.object({ id: wireInt, reference: z.string(), version: wireInt, name: z.string(), email: z.string(), phone: z.string(), notes: z.string(), openOrders: wireInt })
+export const customerPage = pageOf(customer)
+export type Customer = z.infer<typeof customer>

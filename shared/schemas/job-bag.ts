@@ -1,8 +1,8 @@
 // Job bags: one piece of an order with its routing (operations), planned vs actual minutes, history and status.
 import { z } from 'zod'
-import { id, name, version } from './common'
+import { id, isoDate, isoDateTime, name, version, wireInt } from './common'
 import { ringSizeInput } from './order'
-import type { BenchOperation } from './bench-floor'
+import { benchOperation } from './bench-floor'
 
 const reason = z.string({ error: 'is required' }).trim().min(3, 'say why (at least 3 characters)').max(500, 'must be at most 500 characters')
 const minutes = z.number({ error: 'must be a number of minutes' }).min(0, 'must not be negative').max(100_000, 'must be at most 100000 minutes')
@@ -63,53 +63,64 @@ export type StepSkip = z.infer<typeof stepSkip>
 export type SequenceInput = z.infer<typeof sequenceInput>
 export type JobBagStatusInput = z.infer<typeof jobBagStatusInput>
 
-export interface EffectiveTimeRecord {
-  id: number
-  operationId: number
-  personId: number
-  personName: string
-  benchId: number | null
-  startedAt: string
-  endedAt: string | null
-  endReason: string | null
-  note: string
-  minutes: number
-  voided: boolean
+// ---- Answers ----
+
+export const effectiveTimeRecord = z.object({
+  id: wireInt,
+  operationId: wireInt,
+  personId: wireInt,
+  personName: z.string(),
+  benchId: wireInt.nullable(),
+  startedAt: isoDateTime,
+  endedAt: isoDateTime.nullable(),
+  endReason: z.string().nullable(),
+  note: z.string(),
+  minutes: z.number(),
+  voided: z.boolean(),
   /** Recorded start/end before any correction. */
-  recordedStartedAt: string
-  recordedEndedAt: string | null
-  corrections: { id: number; kind: string; startedAt: string | null; endedAt: string | null; reason: string; by: string; at: string }[]
-}
+  recordedStartedAt: isoDateTime,
+  recordedEndedAt: isoDateTime.nullable(),
+  corrections: z.array(z.object({ id: wireInt, kind: z.string(), startedAt: isoDateTime.nullable(), endedAt: isoDateTime.nullable(), reason: z.string(), by: z.string(), at: isoDateTime })),
+})
 
-export interface JobBagOperation extends BenchOperation {
-  after: string[]
-  estimateSource: string
-  waitAfterMinutes: number
-  leadDays: number
-  outside: boolean
-  plannedBenchId: number | null
-  plannedPersonId: number | null
-  finishedAt: string | null
+export const jobBagOperation = benchOperation.extend({
+  after: z.array(z.string()),
+  estimateSource: z.string(),
+  waitAfterMinutes: z.number(),
+  leadDays: z.number(),
+  outside: z.boolean(),
+  plannedBenchId: wireInt.nullable(),
+  plannedPersonId: wireInt.nullable(),
+  finishedAt: isoDateTime.nullable(),
   /** Keys of predecessors not finished yet. */
-  waitingFor: string[]
-  estimateChanges: { fromMinutes: number; toMinutes: number; reason: string; by: string; at: string }[]
-}
+  waitingFor: z.array(z.string()),
+  estimateChanges: z.array(z.object({ fromMinutes: z.number(), toMinutes: z.number(), reason: z.string(), by: z.string(), at: isoDateTime })),
+})
 
-export interface HistoryEntry { at: string; kind: 'audit' | 'time'; action: string; operationId: number | null; who: string; details: Record<string, unknown> }
+export const historyEntry = z.object({ at: isoDateTime, kind: z.enum(['audit', 'time']), action: z.string(), operationId: wireInt.nullable(), who: z.string(), details: z.record(z.string(), z.unknown()) })
 
-export interface JobBagDetail {
-  id: number
-  number: string
-  piece: string
-  status: string
-  version: number
-  params: Record<string, unknown>
-  order: { id: number; number: string; title: string; dueDate: string; promisedDate: string | null; priority: number; status: string; customerReference: string }
-  operations: JobBagOperation[]
-  timeRecords: EffectiveTimeRecord[]
-  history: HistoryEntry[]
-  plannedMinutes: number
-  actualMinutes: number
+export const jobBagDetail = z.object({
+  id: wireInt,
+  number: z.string(),
+  piece: z.string(),
+  status: z.string(),
+  version: wireInt,
+  params: z.record(z.string(), z.unknown()),
+  order: z.object({ id: wireInt, number: z.string(), title: z.string(), dueDate: isoDate, promisedDate: isoDate.nullable(), priority: wireInt, status: z.string(), customerReference: z.string() }),
+  operations: z.array(jobBagOperation),
+  timeRecords: z.array(effectiveTimeRecord),
+  history: z.array(historyEntry),
+  plannedMinutes: z.number(),
+  actualMinutes: z.number(),
   /** The operation a person would take up next (first ready, else first held). */
-  nextOperationId: number | null
-}
+  nextOperationId: wireInt.nullable(),
+})
+
+/** One row of the job bag list. */
+export const jobBagSummary = z.object({ id: wireInt, number: z.string(), piece: z.string(), status: z.string(), version: wireInt, orderId: wireInt, orderNumber: z.string(), dueDate: isoDate, priority: wireInt, operations: wireInt, finished: wireInt })
+
+export type EffectiveTimeRecord = z.infer<typeof effectiveTimeRecord>
+export type JobBagOperation = z.infer<typeof jobBagOperation>
+export type HistoryEntry = z.infer<typeof historyEntry>
+export type JobBagDetail = z.infer<typeof jobBagDetail>
+export type JobBagSummary = z.infer<typeof jobBagSummary>

@@ -1,7 +1,7 @@
 // Orders and the pieces (job bags) they are made of.
 import { z } from 'zod'
 import { ORDER_STATUSES } from '../domain/status'
-import { id, isoDate, name, notes, version } from './common'
+import { id, isoDate, isoDateTime, name, notes, pageOf, version, wireInt } from './common'
 import { RING_SCALES, ringSizeToIso } from '../domain/ring-size'
 
 export const METALS = ['silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950', 'brass', 'copper', 'mixed'] as const
@@ -63,7 +63,30 @@ export const orderUpdate = z.object({
 export type PieceParams = z.infer<typeof pieceParams>
 export type OrderInput = z.infer<typeof orderInput>
 export type OrderUpdate = z.infer<typeof orderUpdate>
-export interface OrderSummary {
-  id: number; number: string; customerId: number; customerName: string; title: string; dueDate: string; promisedDate: string | null
-  priority: number; status: string; priceQuotedMinor: number; currency: string; jobBags: number; version: number
-}
+
+// ---- Answers ----
+
+export const orderSummary = z.object({
+  id: wireInt, number: z.string(), customerId: wireInt, customerName: z.string(), title: z.string(), dueDate: isoDate, promisedDate: isoDate.nullable(),
+  priority: wireInt, status: z.string(), priceQuotedMinor: wireInt, currency: z.string(), jobBags: wireInt, version: wireInt,
+})
+export const orderSummaryPage = pageOf(orderSummary)
+export const orderOperation = z.object({
+  id: wireInt, jobBagId: wireInt, seq: wireInt, key: z.string(), kindId: wireInt, name: z.string(), status: z.string(),
+  estimateMinutes: z.number(), requiredLevel: wireInt, waitAfterMinutes: z.number(), leadDays: z.number(), after: z.array(z.string()),
+  plannedBenchId: wireInt.nullable(), plannedPersonId: wireInt.nullable(), plannedStart: isoDateTime.nullable(), plannedEnd: isoDateTime.nullable(), finishedAt: isoDateTime.nullable(),
+})
+/** A piece's parameters as stored (checked like the input, without filling in defaults). */
+const storedPieceParams = z.custom<PieceParams>((v) => pieceParams.safeParse(v).success, 'must be piece parameters')
+export const orderJobBag = z.object({ id: wireInt, number: z.string(), piece: z.string(), templateId: wireInt.nullable(), params: storedPieceParams, status: z.string(), operations: z.array(orderOperation) })
+export const orderDetail = z.object({
+  id: wireInt, number: z.string(), customerId: wireInt, customerName: z.string(), customerReference: z.string(), title: z.string(),
+  dueDate: isoDate, promisedDate: isoDate.nullable(), priority: wireInt, status: z.enum(ORDER_STATUSES),
+  /** Integer minor units of `currency` (the workshop's). */
+  priceQuotedMinor: wireInt, currency: z.string(), notes: z.string(), version: wireInt,
+  jobBags: z.array(orderJobBag),
+})
+export type OrderSummary = z.infer<typeof orderSummary>
+export type OrderOperation = z.infer<typeof orderOperation>
+export type OrderJobBag = z.infer<typeof orderJobBag>
+export type OrderDetail = z.infer<typeof orderDetail>

@@ -1,6 +1,6 @@
 // People at the benches: skills per operation kind (level 1–3, speed), weekly pattern and leave.
 import { z } from 'zod'
-import { id, isoDate, name, version, weekPattern } from './common'
+import { id, isoDate, name, version, weekPattern, wireInt } from './common'
 
 export const skillInput = z.object({
   kindId: id,
@@ -30,5 +30,17 @@ export type PersonInput = z.infer<typeof personInput>
 export type PersonUpdate = z.infer<typeof personUpdate>
 export type SkillInput = z.infer<typeof skillInput>
 export type LeaveInput = z.infer<typeof leaveInput>
-export interface Leave { id: number; personId: number; startsOn: string; endsOn: string; reason: string }
-export interface Person extends PersonInput { id: number; version: number; leave: Leave[]; userEmail: string | null }
+
+// ---- Answers ----
+
+export const leave = z.object({ id: wireInt, personId: wireInt, startsOn: isoDate, endsOn: isoDate, reason: z.string() })
+export const person = z.object({
+  id: wireInt, version: wireInt, name: z.string(), userId: wireInt.nullable(), userEmail: z.string().nullable(),
+  /** null: follows the workshop's hours. */
+  weekPattern: z.array(z.object({ weekday: wireInt, start: z.string(), end: z.string() })).nullable(),
+  hourlyRateMinor: wireInt, active: z.boolean(),
+  skills: z.array(z.object({ kindId: wireInt, level: wireInt, speed: z.number() })),
+  leave: z.array(leave),
+})
+export type Leave = z.infer<typeof leave>
+export type Person = z.infer<typeof person>

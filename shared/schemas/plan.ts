@@ -1,6 +1,8 @@
-// Planning requests: planner runs, board windows, moving or pinning a bar by hand.
+// Planning: requests (planner runs, board windows, moving or pinning a bar by hand) and answers (runs, versions, comparisons, moves, week load).
 import { z } from 'zod'
-import { id, isoDate, isoDateTime, version } from './common'
+import { id, isoDate, isoDateTime, version, wireInt } from './common'
+import { startReason } from './board'
+import type { RuleViolation } from '../domain/rules'
 
 export const planRunInput = z.object({
   timeLimitSeconds: z.number({ error: 'must be a number of seconds' }).int().min(1, 'must be at least 1 second').max(120, 'must be at most 120 seconds').default(10),
@@ -22,3 +24,119 @@ export const moveInput = z.object({
 export type PlanRunInput = z.infer<typeof planRunInput>
 export type BoardQuery = z.infer<typeof boardQuery>
 export type MoveInput = z.infer<typeof moveInput>
+
+// ---- The plan's own records: the live plan and drafts place each operation the same way ----
+
+const recordId = z.number().int().positive()
+/** Where a plan puts one operation: its bench and person (both null for outside work), when, and whether a manager pinned it. */
+export const planAssignment = z.object({
+  operationId: recordId,
+  benchId: recordId.nullable(),
+  personId: recordId.nullable(),
+  start: isoDateTime,
+  end: isoDateTime,
+  pinned: z.boolean().optional(),
+})
+/** Ids as drafts saved before assignments were typed wrote them ("12"), read as numbers. */
+const oldId = (v: unknown) => (typeof v === 'string' && /^\d+$/.test(v) ? Number(v) : v)
+/** One stored draft entry (keyed by its operation id); older drafts lack operationId and hold string ids, segments and a reason. */
+export const storedAssignment = (key: string) =>
+  z.preprocess((v) => {
+    if (typeof v !== 'object' || v === null) return v
+    const o = v as Record<string, unknown>
+    return { operationId: oldId(o.operationId ?? key), benchId: oldId(o.benchId), personId: oldId(o.personId), start: o.start, end: o.end, ...(o.pinned === undefined ? {} : { pinned: o.pinned }) }
+  }, planAssignment)
+export type PlanAssignment = z.infer<typeof planAssignment>
+
+// ---- Answers ----
+
+/** A planner run's progress (the newest the instance running it wrote). */
+export const runProgress = z.object({ iteration: z.number(), weightedTardiness: z.number(), makespan: z.number(), elapsedMs: z.number() })
+export const planRun = z.object({
+  id: z.string(),
+  /** queued: waiting for an app instance to take it; running: solving (on whichever instance took it). */
+  status: z.enum(['queued', 'running', 'done', 'cancelled', 'failed']),
+  startedAt: isoDateTime,
+  timeLimitSeconds: z.number(),
+  progress: runProgress.nullable(),
+  planId: wireInt.nullable(),
+  error: z.string().nullable(),
+  note: z.string().nullable(),
+  stability: z.enum(['small-changes', 'best-dates']),
+  /** Stop was asked for; the instance running it stops within seconds. */
+  cancelRequested: z.boolean().optional(),
+})
+
+/** A rule book finding as stored with a draft (see shared/domain/rules.ts). */
+const ruleViolation = z.custom<RuleViolation>((v) => typeof v === 'object' && v !== null && typeof (v as { rule?: unknown }).rule === 'string' && typeof (v as { message?: unknown }).message === 'string', 'must be a rule finding')
+export const planScore = z.object({
+  weightedTardiness: z.number().optional(),
+  weightedTardinessHours: z.number().optional(),
+  completion: z.string().nullable().optional(),
+  moves: z.number().optional(),
+  feasible: z.boolean().optional(),
+  /** Rule book findings; drafts saved before findings were structured hold plain strings. */
+  violations: z.array(z.union([ruleViolation, z.string()])).optional(),
+  lateJobs: z.number().optional(),
+  /** Working minutes late, summed over the late pieces, and the latest piece's; a working day is dayMinutes. */
+  lateWorkingMinutes: z.number().optional(),
+  worstLateWorkingMinutes: z.number().optional(),
+  dayMinutes: z.number().optional(),
+  jobs: z.number().optional(),
+  operations: z.number().optional(),
+  iterations: z.number().optional(),
+  elapsedMs: z.number().optional(),
+  basedOnPlanId: wireInt.nullable().optional(),
+})
+/** A plan version as publish and discard answer it (the stored row). */
+export const planVersionRow = z.object({
+  id: wireInt,
+  number: wireInt,
+  status: z.enum(['draft', 'published', 'superseded', 'discarded']),
+  createdAt: isoDateTime,
+  publishedAt: isoDateTime.nullable(),
+  score: planScore,
+  createdBy: wireInt.nullable(),
+  publishedBy: wireInt.nullable(),
+})
+/** A plan version in the list, with who made and published it. */
+export const planVersion = planVersionRow.extend({ createdByName: z.string().nullable(), publishedByName: z.string().nullable() })
+
+/** Where a plan puts one operation (bench and person ids as the engine names them). */
+export const assignment = z.object({ benchId: z.string().nullable(), personId: z.string().nullable(), start: isoDateTime, end: isoDateTime, reason: startReason.nullable() })
+export const planMove = z.object({ operationId: wireInt, from: planAssignment.nullable(), to: planAssignment.nullable(), change: z.array(z.enum(['new', 'dropped', 'bench', 'person', 'time'])) })
+export const planComparison = z.object({
+  planId: wireInt,
+  against: z.union([wireInt, z.literal('live')]),
+  moves: z.array(planMove),
+  counts: z.object({ bench: wireInt, person: wireInt, time: wireInt, new: wireInt }),
+  /** Job bags planned in both: finishing earlier / later, and less / more late than promised. */
+  gains: z.object({ earlier: wireInt, later: wireInt, lessLate: wireInt, moreLate: wireInt }),
+})
+/** The answer to a move by hand: the operation's new planned place. */
+export const moveResult = z.object({ id: wireInt, version: wireInt, benchId: wireInt.nullable(), personId: wireInt.nullable(), start: isoDateTime.nullable(), end: isoDateTime.nullable(), pinned: z.boolean() })
+
+export const loadCell = z.object({ day: isoDate, week: z.string(), plannedMinutes: z.number(), availableMinutes: z.number(), operationIds: z.array(wireInt) })
+export const loadRow = z.object({ type: z.enum(['bench', 'skill']), id: wireInt, name: z.string(), cells: z.array(loadCell) })
+export const weekLoad = z.object({
+  from: isoDate,
+  to: isoDate,
+  days: z.array(isoDate),
+  weeks: z.array(z.object({ week: z.string(), days: z.array(isoDate) })),
+  rows: z.array(loadRow),
+  /** Share of the available hours the workshop means to fill (0..1); above it a cell counts as overloaded. */
+  planningLoad: z.number(),
+})
+
+export type RunProgress = z.infer<typeof runProgress>
+export type PlanRun = z.infer<typeof planRun>
+export type PlanScore = z.infer<typeof planScore>
+export type PlanVersionRow = z.infer<typeof planVersionRow>
+export type PlanVersion = z.infer<typeof planVersion>
+export type Assignment = z.infer<typeof assignment>
+export type PlanMove = z.infer<typeof planMove>
+export type PlanComparison = z.infer<typeof planComparison>
+export type MoveResult = z.infer<typeof moveResult>
+export type LoadCell = z.infer<typeof loadCell>
+export type LoadRow = z.infer<typeof loadRow>
+export type WeekLoad = z.infer<typeof weekLoad>

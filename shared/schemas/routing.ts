@@ -1,6 +1,6 @@
 // Routing templates: the usual steps of a kind of piece, with estimate inputs and a step graph.
 import { z } from 'zod'
-import { code, id, name, notes, version } from './common'
+import { code, id, name, notes, version, wireInt } from './common'
 import type { TemplateWarning } from '../domain/template-warnings'
 
 const bandFactor = z.number({ error: 'must be a number' }).min(0.2, 'must be at least 0.2').max(5, 'must be at most 5')
@@ -60,7 +60,21 @@ export const templateInput = z
 export const templateUpdate = z.object({ version }).and(templateInput)
 export type StepInput = z.infer<typeof stepInput>
 export type TemplateInput = z.infer<typeof templateInput>
-export interface TemplateStep extends StepInput { id: number }
+
+// ---- Answers ----
+
+export const templateStep = z.object({
+  id: wireInt, key: z.string(), kindId: wireInt, name: z.string(), baseMinutes: z.number(), perStoneMinutes: z.number(), perMmMinutes: z.number(),
+  sizeBandFactors: z.object({ melee: z.number().optional(), small: z.number().optional(), large: z.number().optional() }),
+  roleFactors: z.object({ centre: z.number().optional(), side: z.number().optional(), halo: z.number().optional(), pave: z.number().optional() }),
+  requiredLevel: wireInt, waitAfterMinutes: z.number(), leadDays: z.number(), after: z.array(z.string()),
+})
+/** What the step graph allows that is probably not meant (shared/domain/template-warnings.ts); saving is still allowed. */
+export const templateWarning = z.discriminatedUnion('code', [
+  z.object({ code: z.literal('starts-while-away'), step: z.string(), outside: z.array(z.string()), message: z.string() }),
+  z.object({ code: z.literal('not-connected'), steps: z.array(z.string()), message: z.string() }),
+]) satisfies z.ZodType<TemplateWarning>
+export const template = z.object({ id: wireInt, code: z.string(), name: z.string(), description: z.string(), learningRate: z.number().nullable(), steps: z.array(templateStep), version: wireInt, warnings: z.array(templateWarning) })
+export type TemplateStep = z.infer<typeof templateStep>
+export type Template = z.infer<typeof template>
 export type { TemplateWarning } from '../domain/template-warnings'
-/** `warnings`: what the step graph allows that is probably not meant (shared/domain/template-warnings.ts); saving is still allowed. */
-export interface Template { id: number; code: string; name: string; description: string; learningRate: number | null; steps: TemplateStep[]; version: number; warnings: TemplateWarning[] }

@@ -12,7 +12,7 @@ export const withdrawInvitation = (id: number) => api.delete<void>(`/invitations
 
 export const linkInfo = (token: string) => api.get<LinkInfo>(`/account-links/${encodeURIComponent(token)}`)
 export async function useLink(token: string, password: string): Promise<SessionInfo> {
-  const info = await api.post(`/account-links/${encodeURIComponent(token)}`, { password }, (d) => sessionInfo.parse(d))
+  const info = await api.post(`/account-links/${encodeURIComponent(token)}`, { password }, { parse: (d) => sessionInfo.parse(d) })
   setCsrfToken(info.csrfToken)
   return info
 }
@@ -26,7 +26,7 @@ export const setMyPin = (pin: string) => api.put<{ personId: number; hasPin: boo
 export const setPersonPin = (personId: number, pin: string) => api.put<{ personId: number; hasPin: boolean }>(`/people/${personId}/pin`, { pin })
 
 export async function startStation(benchId: number): Promise<SessionInfo> {
-  const info = await api.post('/bench-station', { benchId }, (d) => sessionInfo.parse(d))
+  const info = await api.post('/bench-station', { benchId }, { parse: (d) => sessionInfo.parse(d) })
   setCsrfToken(info.csrfToken)
   return info
 }

@@ -1,14 +1,14 @@
 // Bench API: next for me, my work, and the transitions (each carries a requestId so a replay gets the first answer).
-import type { BenchOperation, TransitionResult } from '@shared/schemas/bench-floor'
+import { benchList, transitionResult } from '@shared/schemas/bench-floor'
 import { api } from './client'
 
-export interface BenchList { person: { id: number; name: string }; items: BenchOperation[] }
+export type { BenchList } from '@shared/schemas/bench-floor'
 export type BenchAction = 'claim' | 'release' | 'start' | 'pause' | 'resume' | 'finish'
 export interface TransitionBody { requestId: string; benchId?: number; acknowledgeHazards?: boolean; reason?: string; note?: string; personId?: number }
 
-export const nextForMe = (benchId: number) => api.get<BenchList>('/bench/next', { benchId })
-export const myWork = () => api.get<BenchList>('/bench/mine')
-export const transition = (operationId: number, action: BenchAction, body: TransitionBody) => api.post<TransitionResult>(`/bench/operations/${operationId}/${action}`, body)
+export const nextForMe = (benchId: number) => api.get('/bench/next', { query: { benchId }, schema: benchList })
+export const myWork = () => api.get('/bench/mine', { schema: benchList })
+export const transition = (operationId: number, action: BenchAction, body: TransitionBody) => api.post(`/bench/operations/${operationId}/${action}`, body, { schema: transitionResult })
 
 /** A v4 UUID; also on plain-http tablets, where crypto.randomUUID is missing. */
 export function newRequestId(): string {
@@ -21,5 +21,5 @@ export function newRequestId(): string {
 }
 
 /** Outside work (casting, hallmarking): the office sends it out and books it back. */
-export const sendOut = (operationId: number, note = '') => api.post<TransitionResult>(`/operations/${operationId}/send-out`, { requestId: newRequestId(), note })
-export const bookBack = (operationId: number, note = '') => api.post<TransitionResult>(`/operations/${operationId}/receive`, { requestId: newRequestId(), note })
+export const sendOut = (operationId: number, note = '') => api.post(`/operations/${operationId}/send-out`, { requestId: newRequestId(), note }, { schema: transitionResult })
+export const bookBack = (operationId: number, note = '') => api.post(`/operations/${operationId}/receive`, { requestId: newRequestId(), note }, { schema: transitionResult })

@@ -1,5 +1,7 @@
 // The one HTTP client of the app: JSON, same-origin cookies, the CSRF token on writes, error bodies as ApiError.
 import type { ErrorBody, ErrorCode } from '@shared/errors'
+import type { ZodType } from 'zod'
+import { CLIENT_ID } from '@/realtime/client-id'
 
 export type ApiErrorCode = ErrorCode | 'network'
 
@@ -84,7 +86,7 @@ function url(path: string, query?: Query): string {
 }
 
 async function send(method: Method, path: string, body: unknown, query: Query | undefined, signal?: AbortSignal): Promise<Response> {
-  const headers: Record<string, string> = { accept: 'application/json' }
+  const headers: Record<string, string> = { accept: 'application/json', 'x-client-id': CLIENT_ID }
   if (body !== undefined) headers['content-type'] = 'application/json'
   if (method !== 'GET') headers['x-csrf-token'] = csrfToken ?? (await refreshCsrfToken())
   if (benchPersonToken) headers['x-bench-person'] = benchPersonToken
@@ -96,8 +98,25 @@ async function send(method: Method, path: string, body: unknown, query: Query | 
   }
 }
 
+/** How a call reads its answer: `schema` (shared/schemas) checks it in development and tests; `parse` turns it into T always. */
+export interface AnswerOptions<T> { schema?: ZodType<T>; parse?: (data: unknown) => T }
+export interface GetOptions<T> extends AnswerOptions<T> { query?: Query; signal?: AbortSignal }
+
+/** Answers are checked against their schema in development and tests; production trusts them (the board answer is large). */
+const CHECK_ANSWERS = import.meta.env.DEV || import.meta.env.MODE === 'test'
+
+/** The answer itself, after its schema passed it (a mismatch is an ApiError naming the call and the fields). */
+function checked<T>(method: Method, path: string, schema: ZodType<T>, data: unknown): T {
+  if (!CHECK_ANSWERS) return data as T
+  const r = schema.safeParse(data)
+  if (r.success) return data as T
+  const issues = r.error.issues.slice(0, 5).map((i) => `${i.path.join('.') || '(answer)'}: ${i.message}`)
+  console.error(`[contract] ${method} ${path} answered something its schema does not allow`, r.error.issues)
+  throw new ApiError({ status: 200, code: 'internal', message: `The server's answer to ${method} ${path} is not what this page expects (${issues.join('; ')})` })
+}
+
 /** One API call; a write refused for a stale security token is retried once with a fresh token. */
-export async function request<T>(method: Method, path: string, o: { body?: unknown; query?: Query; signal?: AbortSignal; parse?: (data: unknown) => T } = {}): Promise<T> {
+export async function request<T>(method: Method, path: string, o: { body?: unknown; query?: Query; signal?: AbortSignal } & AnswerOptions<T> = {}): Promise<T> {
   let res = await send(method, path, o.body, o.query, o.signal)
   if (!res.ok) {
     let err = await ApiError.fromResponse(res)
@@ -113,13 +132,14 @@ export async function request<T>(method: Method, path: string, o: { body?: unkno
   }
   if (res.status === 204) return undefined as T
   const data: unknown = await res.json()
-  return o.parse ? o.parse(data) : (data as T)
+  if (o.parse) return o.parse(data)
+  return o.schema ? checked(method, path, o.schema, data) : (data as T)
 }
 
 export const api = {
-  get: <T>(path: string, query?: Query, parse?: (data: unknown) => T) => request<T>('GET', path, { query, parse }),
-  post: <T>(path: string, body?: unknown, parse?: (data: unknown) => T) => request<T>('POST', path, { body: body ?? {}, parse }),
-  put: <T>(path: string, body?: unknown, parse?: (data: unknown) => T) => request<T>('PUT', path, { body: body ?? {}, parse }),
-  patch: <T>(path: string, body?: unknown, parse?: (data: unknown) => T) => request<T>('PATCH', path, { body: body ?? {}, parse }),
-  delete: <T>(path: string) => request<T>('DELETE', path),
+  get: <T>(path: string, o: GetOptions<T> = {}) => request<T>('GET', path, o),
+  post: <T>(path: string, body?: unknown, o: AnswerOptions<T> = {}) => request<T>('POST', path, { body: body ?? {}, ...o }),
+  put: <T>(path: string, body?: unknown, o: AnswerOptions<T> = {}) => request<T>('PUT', path, { body: body ?? {}, ...o }),
+  patch: <T>(path: string, body?: unknown, o: AnswerOptions<T> = {}) => request<T>('PATCH', path, { body: body ?? {}, ...o }),
+  delete: <T>(path: string, o: AnswerOptions<T> = {}) => request<T>('DELETE', path, o),
 }

@@ -7,12 +7,12 @@ import { api, type Query } from './client'
 
 const q = (f: InsightFilter): Query => ({ from: f.from, to: f.to, templateId: f.templateId })
 
-export const getComparison = (groupBy: Grouping, f: InsightFilter) => api.get<ComparisonTable>('/insights/comparison', { groupBy, ...q(f) })
-export const getScatter = (f: InsightFilter) => api.get<ScatterPoint[]>('/insights/scatter', q(f))
-export const getBiasTrend = (f: InsightFilter) => api.get<BiasTrend>('/insights/bias-trend', q(f))
-export const getDrillDown = (groupBy: Grouping, key: string, f: InsightFilter) => api.get<DrillDown>('/insights/records', { groupBy, key, ...q(f) })
-export const getCosting = (f: InsightFilter) => api.get<CostingTable>('/insights/costing', q(f))
-export const getLearned = (f: InsightFilter = {}) => api.get<LearnedEstimates>('/estimates/learned', q(f))
+export const getComparison = (groupBy: Grouping, f: InsightFilter) => api.get<ComparisonTable>('/insights/comparison', { query: { groupBy, ...q(f) } })
+export const getScatter = (f: InsightFilter) => api.get<ScatterPoint[]>('/insights/scatter', { query: q(f) })
+export const getBiasTrend = (f: InsightFilter) => api.get<BiasTrend>('/insights/bias-trend', { query: q(f) })
+export const getDrillDown = (groupBy: Grouping, key: string, f: InsightFilter) => api.get<DrillDown>('/insights/records', { query: { groupBy, key, ...q(f) } })
+export const getCosting = (f: InsightFilter) => api.get<CostingTable>('/insights/costing', { query: q(f) })
+export const getLearned = (f: InsightFilter = {}) => api.get<LearnedEstimates>('/estimates/learned', { query: q(f) })
 export const getStepChanges = () => api.get<StepChange[]>('/estimates/changes')
 export const acceptSuggestion = (body: AcceptSuggestionInput) => api.post<StepChange>('/estimates/accept', body)
 export const threePoint = (body: ThreePointInput) => api.post<Extract<Estimate, { source: 'three-point' }>>('/estimates/three-point', body)

@@ -19,7 +19,7 @@ export const purchaseMetal = (body: PurchaseInput) => api.post<unknown>('/metal/
 export const adjustStock = (body: AdjustmentInput) => api.post<unknown>('/metal/adjustments', body)
 
 export const getStock = () => api.get<StockRow[]>('/metal/stock')
-export const getLosses = (groupBy: LossGrouping, filter: { from?: string; to?: string } = {}) => api.get<LossTable>('/metal/losses', { groupBy, ...filter })
+export const getLosses = (groupBy: LossGrouping, filter: { from?: string; to?: string } = {}) => api.get<LossTable>('/metal/losses', { query: { groupBy, ...filter } })
 export const listTolerances = () => api.get<Tolerance[]>('/metal/tolerances')
 export const setTolerance = (kindId: number, body: ToleranceInput) => api.put<Tolerance>(`/metal/tolerances/${kindId}`, body)
 

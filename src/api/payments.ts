@@ -35,7 +35,7 @@ export const createOrderLink = (orderId: number, body: { purpose: 'deposit' | 'b
 export const recordPayment = (orderId: number, body: PaymentInput) => api.post<Payment>(`/orders/${orderId}/payments`, body)
 export const refundPayment = (paymentId: number, body: { amountMinor?: number; note?: string } = {}) => api.post<Payment>(`/payments/${paymentId}/refund`, body)
 export const listToRefund = () => api.get<Payment[]>('/payments/to-refund')
-export const getMoneySummary = (p: { from?: string; to?: string } = {}) => api.get<MoneySummary>('/payments/summary', { ...p })
+export const getMoneySummary = (p: { from?: string; to?: string } = {}) => api.get<MoneySummary>('/payments/summary', { query: { ...p } })
 export const moneyCsvUrl = (p: { from?: string; to?: string } = {}) => {
   const qs = new URLSearchParams(Object.entries(p).filter(([, v]) => !!v) as [string, string][]).toString()
   return `/api/payments/export.csv${qs ? `?${qs}` : ''}`

@@ -1,9 +1,12 @@
 // People API: skills, weekly pattern, leave and the linked user.
-import type { LeaveInput, Person, PersonInput, PersonUpdate } from '@shared/schemas/person'
+import { z } from 'zod'
+import { person, type LeaveInput, type PersonInput, type PersonUpdate } from '@shared/schemas/person'
 import { api } from './client'
 
-export const listPeople = () => api.get<Person[]>('/people')
-export const createPerson = (body: PersonInput) => api.post<Person>('/people', body)
-export const updatePerson = (id: number, body: PersonUpdate) => api.patch<Person>(`/people/${id}`, body)
-export const addLeave = (personId: number, body: LeaveInput) => api.post<Person>(`/people/${personId}/leave`, body)
-export const removeLeave = (personId: number, leaveId: number) => api.delete<Person>(`/people/${personId}/leave/${leaveId}`)
+const people = z.array(person)
+
+export const listPeople = () => api.get('/people', { schema: people })
+export const createPerson = (body: PersonInput) => api.post('/people', body, { schema: person })
+export const updatePerson = (id: number, body: PersonUpdate) => api.patch(`/people/${id}`, body, { schema: person })
+export const addLeave = (personId: number, body: LeaveInput) => api.post(`/people/${personId}/leave`, body, { schema: person })
+export const removeLeave = (personId: number, leaveId: number) => api.delete(`/people/${personId}/leave/${leaveId}`, { schema: person })

@@ -5,13 +5,13 @@ import { api, setCsrfToken } from './client'
 const parseInfo = (d: unknown): SessionInfo => sessionInfo.parse(d)
 
 export async function fetchSession(): Promise<SessionInfo> {
-  const info = await api.get('/session', undefined, parseInfo)
+  const info = await api.get('/session', { parse: parseInfo })
   setCsrfToken(info.csrfToken)
   return info
 }
 
 export async function signIn(body: SignIn): Promise<SessionInfo> {
-  const info = await api.post('/session', body, parseInfo)
+  const info = await api.post('/session', body, { parse: parseInfo })
   setCsrfToken(info.csrfToken)
   return info
 }

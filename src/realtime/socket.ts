@@ -1,7 +1,7 @@
 // The app's one Socket.IO connection: connection state, typed event subscription, and catch-up by seq after a reconnect.
 import { shallowRef, type ShallowRef } from 'vue'
 import { io } from 'socket.io-client'
-import type { EventName } from '@shared/events'
+import type { EventName, ServerToClientEvents } from '@shared/events'
 
 export type ConnectionState = 'connecting' | 'connected' | 'reconnecting' | 'offline'
 
@@ -9,9 +9,15 @@ export type ConnectionState = 'connecting' | 'connected' | 'reconnecting' | 'off
 export const RECORDED_EVENTS = [
   'order:created', 'order:updated', 'operation:changed', 'jobBag:changed',
   'plan:drafted', 'plan:published', 'plan:discarded', 'plan:changed', 'plan:failed', 'masterdata:changed', 'file:added', 'file:removed',
-  'quote:changed', 'payment:received', 'payment:refunded', 'paymentLink:created',
+  'quote:changed', 'payment:received', 'payment:refunded', 'paymentLink:created', 'metal:recorded', 'refiningLot:changed',
 ] as const satisfies readonly EventName[]
 export const LIVE_ONLY_EVENTS = ['plan:progress'] as const satisfies readonly EventName[]
+/** Every event of shared/events.ts is on one of the two lists (otherwise the channel would never hear it). */
+const everyEventListed: Exclude<EventName, (typeof RECORDED_EVENTS)[number] | (typeof LIVE_ONLY_EVENTS)[number]> extends never ? true : false = true
+void everyEventListed
+
+/** What one event carries, as shared/events.ts declares it. */
+export type EventPayload<E extends EventName> = Parameters<ServerToClientEvents[E]>[0]
 
 /** How far below the highest number an unseen event may arrive and still be a late one (a restart starts far lower). */
 export const LATE_WINDOW = 1000
@@ -73,12 +79,13 @@ export class LiveChannel {
     if (socket.connected) this.onConnect()
   }
 
-  /** Subscribes to one event; returns the unsubscribe function. */
-  on(event: EventName, fn: Handler): () => void {
+  /** Subscribes to one event (the handler gets its declared payload); returns the unsubscribe function. */
+  on<E extends EventName>(event: E, fn: (payload: EventPayload<E>, event: E) => void): () => void {
     const set = this.handlers.get(event) ?? new Set()
-    set.add(fn)
+    const handler = fn as unknown as Handler
+    set.add(handler)
     this.handlers.set(event, set)
-    return () => set.delete(fn)
+    return () => set.delete(handler)
   }
 
   /** Subscribes to every recorded change event (not progress). */

@@ -1,0 +1,204 @@
+// One contract per resource: every route that declares a response schema answers what it allows, on the demo workshop, as a role
+// that may call it; and the app refuses (500) an answer its route's schema does not allow.
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
+import express from 'express'
+import request from 'supertest'
+import { z } from 'zod'
+import { allRoutes } from '../../server/routes/index'
+import { register } from '../../server/app'
+import { errorHandler } from '../../server/errors/handler'
+import { route, type Deps } from '../../server/lib/route'
+import { waitForRun } from '../../server/planning/runs'
+import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { readyBenchStep } from '../setup/fixtures'
+
+let t: TestApp
+let manager: Agent
+let owner: Agent
+
+const withSchema = allRoutes.filter((r) => r.response)
+const labelOf = (method: string, path: string) => `${method.toUpperCase()} ${path}`
+const specs = new Map(withSchema.map((r) => [labelOf(r.method, r.path), r]))
+const called = new Set<string>()
+
+/**
+ * Calls one route (by its declared path, with the ids filled in) and checks the answer: the status, and the body against the
+ * route's own response schema, read here apart from the app's check (which would have answered 500).
+ */
+async function call(agent: Agent, method: 'get' | 'post' | 'put' | 'patch' | 'delete', path: string, url: string, body?: unknown, status = 200) {
+  const label = labelOf(method, path)
+  const spec = specs.get(label)
+  expect(spec, `${label} declares a response schema`).toBeTruthy()
+  const r = method === 'get' ? await agent.get(`/api${url}`) : method === 'delete' ? await agent.delete(`/api${url}`) : await agent[method](`/api${url}`, body)
+  expect(r.status, `${label}: ${JSON.stringify(r.body).slice(0, 400)}`).toBe(status)
+  const checked = spec!.response!.safeParse(r.body)
+  expect(checked.success ? [] : checked.error.issues.slice(0, 5), label).toEqual([])
+  called.add(label)
+  return r.body
+}
+
+beforeAll(async () => {
+  t = await createTestApp()
+  manager = await signedIn(t.app, 'manager')
+  owner = await signedIn(t.app, 'owner')
+}, 60_000)
+afterAll(async () => { await t.close() })
+
+describe('answers on the demo workshop', () => {
+  it('when the master data is read and changed, then benches, people, routings and customers answer what their schemas allow', async () => {
+    const kinds = (await manager.get('/api/operation-kinds')).body as { id: number; outside: boolean }[]
+    const kindId = kinds.find((k) => !k.outside)!.id
+
+    const benches = await call(manager, 'get', '/benches', '/benches')
+    expect(benches.length).toBeGreaterThan(0)
+    const bench = await call(manager, 'post', '/benches', '/benches', { name: 'Contract bench', kind: 'bench', kindIds: [kindId] }, 201)
+    const changedBench = await call(manager, 'patch', '/benches/:id', `/benches/${bench.id}`, { notes: 'by the window', version: bench.version })
+    const down = await call(manager, 'post', '/benches/:id/downtime', `/benches/${bench.id}/downtime`, { startsAt: '2026-12-07T09:00:00Z', endsAt: '2026-12-07T12:00:00Z', reason: 'new motor' }, 201)
+    await call(manager, 'delete', '/benches/:id/downtime/:childId', `/benches/${bench.id}/downtime/${down.downtime[0].id}`)
+    expect(changedBench.notes).toBe('by the window')
+
+    const people = await call(manager, 'get', '/people', '/people')
+    expect(people.length).toBeGreaterThan(0)
+    const person = await call(manager, 'post', '/people', '/people', { name: 'Contract Person', skills: [{ kindId, level: 2 }] }, 201)
+    const changedPerson = await call(manager, 'patch', '/people/:id', `/people/${person.id}`, { hourlyRateMinor: 2500, version: person.version })
+    const onLeave = await call(manager, 'post', '/people/:id/leave', `/people/${person.id}/leave`, { startsOn: '2026-12-14', endsOn: '2026-12-15' }, 201)
+    await call(manager, 'delete', '/people/:id/leave/:childId', `/people/${person.id}/leave/${onLeave.leave[0].id}`)
+    expect(changedPerson.hourlyRateMinor).toBe(2500)
+
+    const templates = await call(manager, 'get', '/templates', '/templates')
+    const tpl = await call(manager, 'get', '/templates/:id', `/templates/${templates[0].id}`)
+    const steps = tpl.steps.map(({ id: _id, ...step }: { id: number }) => step)
+    const copy = await call(manager, 'post', '/templates', '/templates', { code: 'contract-copy', name: 'Contract copy', description: '', learningRate: null, steps }, 201)
+    await call(manager, 'put', '/templates/:id', `/templates/${copy.id}`, { code: 'contract-copy', name: 'Contract copy, renamed', description: '', learningRate: null, steps, version: copy.version })
+
+    const customers = await call(manager, 'get', '/customers', '/customers?pageSize=5')
+    expect(customers.items.length).toBeGreaterThan(0)
+    await call(manager, 'get', '/customers/:id', `/customers/${customers.items[0].id}`)
+    const customer = await call(manager, 'post', '/customers', '/customers', { name: 'Contract Customer', email: 'contract@example.test' }, 201)
+    await call(manager, 'patch', '/customers/:id', `/customers/${customer.id}`, { phone: '01632 960000', version: customer.version })
+  })
+
+  it('when orders and job bags are read and changed, then their summaries and details answer what their schemas allow', async () => {
+    const page = await call(manager, 'get', '/orders', '/orders?pageSize=10&status=open,in-work')
+    expect(page.items.length).toBeGreaterThan(0)
+    await call(manager, 'get', '/orders/:id', `/orders/${page.items[0].id}`)
+    const customers = (await manager.get('/api/customers?pageSize=1')).body
+    const templates = (await manager.get('/api/templates')).body
+    const order = await call(manager, 'post', '/orders', '/orders', { customerId: customers.items[0].id, title: 'Contract ring', dueDate: '2027-02-01', pieces: [{ templateId: templates[0].id, piece: 'Ring' }] }, 201)
+    await call(manager, 'patch', '/orders/:id', `/orders/${order.id}`, { priority: 4, version: order.version })
+
+    const bags = await call(manager, 'get', '/job-bags', '/job-bags')
+    expect(bags.length).toBeGreaterThan(0)
+    const bagId = order.jobBags[0].id as number
+    let bag = await call(manager, 'get', '/job-bags/:id', `/job-bags/${bagId}`)
+    const kindId = bag.operations[0].kindId
+    bag = await call(manager, 'post', '/job-bags/:id/operations', `/job-bags/${bagId}/operations`, { kindId, name: 'Extra check', estimateMinutes: 10, reason: 'customer asked for it', version: bag.version }, 201)
+    const extra = bag.operations.find((o: { name: string }) => o.name === 'Extra check')
+    bag = await call(manager, 'patch', '/job-bags/:id/operations/:operationId', `/job-bags/${bagId}/operations/${extra.id}`, { name: 'Extra inspection', version: extra.version })
+    bag = await call(manager, 'post', '/job-bags/:id/operations/:operationId/skip', `/job-bags/${bagId}/operations/${extra.id}/skip`, { reason: 'not needed after all', version: bag.operations.find((o: { id: number }) => o.id === extra.id).version })
+    bag = await call(manager, 'put', '/job-bags/:id/sequence', `/job-bags/${bagId}/sequence`, { operationIds: bag.operations.map((o: { id: number }) => o.id), version: bag.version })
+    bag = await call(manager, 'post', '/job-bags/:id/status', `/job-bags/${bagId}/status`, { status: 'on-hold', reason: 'waiting for the stone', version: bag.version })
+    bag = await call(manager, 'post', '/job-bags/:id/status', `/job-bags/${bagId}/status`, { status: 'resume', reason: 'the stone came in', version: bag.version })
+    await call(manager, 'put', '/job-bags/:id/ring-size', `/job-bags/${bagId}/ring-size`, { ringSize: { scale: 'uk', value: 'N' }, reason: 'measured again', version: bag.version })
+  })
+
+  it('when work is done at the bench and its time corrected, then the queues, transitions and time records answer what their schemas allow', async () => {
+    const op = await readyBenchStep(t.db)
+    const onBehalf = { personId: op.personId }
+    const id = () => crypto.randomUUID()
+    await call(manager, 'get', '/bench/next', `/bench/next?benchId=${op.benchId}&personId=${op.personId}`)
+    await call(manager, 'post', '/bench/operations/:id/claim', `/bench/operations/${op.id}/claim`, { requestId: id(), benchId: op.benchId, ...onBehalf })
+    await call(manager, 'post', '/bench/operations/:id/release', `/bench/operations/${op.id}/release`, { requestId: id(), ...onBehalf })
+    await call(manager, 'post', '/bench/operations/:id/claim', `/bench/operations/${op.id}/claim`, { requestId: id(), benchId: op.benchId, ...onBehalf })
+    await call(manager, 'post', '/bench/operations/:id/start', `/bench/operations/${op.id}/start`, { requestId: id(), benchId: op.benchId, acknowledgeHazards: true, ...onBehalf })
+    const reasons = (await manager.get('/api/pause-reasons')).body as { code: string; needsNote?: boolean; active?: boolean }[]
+    const reason = reasons.find((r) => !r.needsNote && r.active !== false && r.code !== 'finished')!.code
+    await call(manager, 'post', '/bench/operations/:id/pause', `/bench/operations/${op.id}/pause`, { requestId: id(), reason, note: 'lunch', ...onBehalf })
+    await call(manager, 'get', '/bench/mine', `/bench/mine?personId=${op.personId}`)
+    await call(manager, 'post', '/bench/operations/:id/resume', `/bench/operations/${op.id}/resume`, { requestId: id(), acknowledgeHazards: true, ...onBehalf })
+    await call(manager, 'post', '/bench/operations/:id/finish', `/bench/operations/${op.id}/finish`, { requestId: id(), ...onBehalf })
+
+    const next = await readyBenchStep(t.db, [op.id])
+    const record = await call(manager, 'post', '/operations/:id/time-records', `/operations/${next.id}/time-records`, { personId: next.personId, benchId: next.benchId, startedAt: '2026-11-25T09:10:00Z', endedAt: '2026-11-25T10:45:00Z', reason: 'forgot to tap at the bench' }, 201)
+    await call(manager, 'post', '/time-records/:id/corrections', `/time-records/${record.id}/corrections`, { endedAt: '2026-11-25T10:30:00Z', reason: 'stopped earlier' }, 201)
+
+    // Outside work (casting, hallmarking): sent out and booked back by the office.
+    const { rows: [outside] } = await t.pool.query(`select o.id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id where k.outside and o.status = 'ready' and ord.status in ('open', 'in-work') order by o.id limit 1`)
+    if (outside) {
+      await call(manager, 'post', '/operations/:id/send-out', `/operations/${outside.id}/send-out`, { requestId: id(), note: '' })
+      await call(manager, 'post', '/operations/:id/receive', `/operations/${outside.id}/receive`, { requestId: id(), note: '' })
+    }
+    expect(outside, 'the demo has outside work ready').toBeTruthy()
+  })
+
+  it('when the planner runs and the board is read, then runs, versions, comparisons, the board, the load and a move answer what their schemas allow', async () => {
+    const week = { from: '2026-11-30', to: '2026-12-13' }
+    await call(owner, 'get', '/board', `/board?from=${week.from}&to=${week.to}`)
+    await call(owner, 'get', '/load', `/load?from=${week.from}&to=${week.to}`)
+
+
+    // Two planner runs while there is no live plan, each ending in a draft: the first is compared and published, the second
+    // stopped (it is over already: the answer is the run as it ended) and thrown away.
+    const run = await call(manager, 'post', '/plans/runs', '/plans/runs', { timeLimitSeconds: 1 }, 202)
+    await call(manager, 'get', '/plans/runs/:runId', `/plans/runs/${run.id}`)
+    const first = (await waitForRun(t.db, run.id))!
+    const again = await call(manager, 'post', '/plans/runs', '/plans/runs', { timeLimitSeconds: 1, stability: 'best-dates' }, 202)
+    const second = (await waitForRun(t.db, again.id))!
+    await call(manager, 'delete', '/plans/runs/:runId', `/plans/runs/${again.id}`)
+    for (const r of [first, second]) expect(r.planId, `the run made a draft (${r.status} ${r.error ?? ''} ${r.note ?? ''})`).toBeTruthy()
+
+    await call(owner, 'get', '/plans/:id/compare', `/plans/${first.planId}/compare`)
+    const versions = await call(owner, 'get', '/plans', '/plans')
+    expect(versions.map((v: { id: number }) => v.id)).toEqual(expect.arrayContaining([first.planId, second.planId]))
+    await call(manager, 'post', '/plans/:id/publish', `/plans/${first.planId}/publish`)
+    await call(manager, 'post', '/plans/:id/discard', `/plans/${second.planId}/discard`)
+
+    // On the live plan now: a bar pinned by hand.
+    const live = await call(owner, 'get', '/board', `/board?from=${week.from}&to=${week.to}`)
+    const bar = live.items.find((i: { status: string; pinned: boolean; benchId: number | null }) => !['running', 'done', 'skipped'].includes(i.status) && !i.pinned && i.benchId)
+    expect(bar, 'an open bar on the live plan').toBeTruthy()
+    await call(manager, 'patch', '/board/operations/:id', `/board/operations/${bar.id}`, { pinned: true, version: bar.version })
+  }, 120_000)
+
+  it('when every call above is done, then each route with a response schema was called at least once', () => {
+    expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])
+  })
+})
+
+describe('the answer check', () => {
+  /** A bare router with one route mounted by the app's own register (no database, no session: the route is public). */
+  async function answer(result: unknown, checkAnswers: boolean) {
+    const app = express()
+    const router = express.Router()
+    const deps = { realtime: { flush: async () => undefined }, checkAnswers } as unknown as Deps
+    register(router, route({ method: 'get', path: '/thing', roles: 'public', summary: 'A thing', response: z.object({ id: z.number().int(), name: z.string() }), handler: async () => result }), deps)
+    app.use('/api', router)
+    app.use(errorHandler)
+    return request(app).get('/api/thing')
+  }
+
+  it('when a route answers a field its schema does not allow, then the app answers 500 and logs the route and the field', async () => {
+    const log = vi.spyOn(console, 'error').mockImplementation(() => undefined)
+    try {
+      const r = await answer({ id: 'seven', name: 'Ring' }, true)
+      expect(r.status).toBe(500)
+      const lines = log.mock.calls.map((c) => c.map(String).join(' ')).join('\n')
+      expect(lines).toContain('GET /thing')
+      expect(lines).toMatch(/\bid: /)
+    } finally {
+      log.mockRestore()
+    }
+  })
+
+  it('when the answer matches, then it is sent as the handler gave it (fields the schema does not name stay)', async () => {
+    const r = await answer({ id: 7, name: 'Ring', extra: true }, true)
+    expect(r.status).toBe(200)
+    expect(r.body).toEqual({ id: 7, name: 'Ring', extra: true })
+  })
+
+  it('when answers are not checked (production), then a mismatch goes out as it is', async () => {
+    const r = await answer({ id: 'seven', name: 'Ring' }, false)
+    expect(r.status).toBe(200)
+    expect(r.body).toEqual({ id: 'seven', name: 'Ring' })
+  })
+})

@@ -1,35 +1,37 @@
-// Plan assignments as stored (ISO times, per operation) and read back from the operations' planned fields.
-import { and, eq, inArray, isNotNull } from 'drizzle-orm'
-import type { Tx } from '../db/client'
-import * as s from '../db/schema/index'
-import type { Plan, StartReason } from '../scheduler/model.ts'
+// Plan assignments as records: one typed entry per operation (shared/schemas/plan.ts), made from the engine's plan, stored
+// in a draft as an object keyed by operation id, and read back from storage (older drafts' string ids become numbers).
+import { storedAssignment, type PlanAssignment } from '../../shared/schemas/plan'
+import type { Plan } from '../scheduler/model.ts'
 import type { PlanningData } from './problem'
 
-export interface Assignment {
-  benchId: string | null
-  personId: string | null
-  start: string
-  end: string
-  segments: { start: string; end: string }[]
-  reason: StartReason | null
+export type Assignment = PlanAssignment
+/** A plan's assignments by operation id. */
+export type Assignments = Map<number, Assignment>
+
+/** The engine names benches and people by string ids; plans by numbers. */
+export const engineId = (id: number | null) => (id === null ? null : String(id))
+const recordId = (id: string | null) => (id === null ? null : Number(id))
+
+/** The engine's plan as assignments (pinned where the operation is pinned on the live plan). */
+export function fromEnginePlan(data: PlanningData, plan: Plan): Assignments {
+  const iso = (m: number) => data.clock.toDate(m).toISOString()
+  return new Map(plan.operations.map((p) => {
+    const operationId = Number(p.operationId)
+    const a: Assignment = { operationId, benchId: recordId(p.benchId), personId: recordId(p.personId), start: iso(p.start), end: iso(p.end) }
+    if (data.meta.operations.get(p.operationId)?.op.pinned) a.pinned = true
+    return [operationId, a]
+  }))
 }
 
-export function toAssignments(data: PlanningData, plan: Plan): Record<string, Assignment> {
-  const c = data.clock
-  const iso = (m: number) => c.toDate(m).toISOString()
-  return Object.fromEntries(
-    plan.operations.map((p) => [p.operationId, { benchId: p.benchId, personId: p.personId, start: iso(p.start), end: iso(p.end), segments: p.segments.map((x) => ({ start: iso(x.start), end: iso(x.end) })), reason: p.reason }]),
-  )
-}
+/** As a draft stores them (jsonb object keyed by operation id). */
+export const toStored = (a: Assignments): Record<string, Assignment> => Object.fromEntries([...a].map(([id, x]) => [String(id), x]))
 
-/** The live plan: what the operations table holds now (published plan plus manual moves and work done). */
-export async function currentAssignments(db: Tx, workshopId: number): Promise<Record<string, Assignment>> {
-  const rows = await db
-    .select({ id: s.operations.id, benchId: s.operations.plannedBenchId, personId: s.operations.plannedPersonId, start: s.operations.plannedStart, end: s.operations.plannedEnd })
-    .from(s.operations)
-    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
-    .where(and(eq(s.jobBags.workshopId, workshopId), isNotNull(s.operations.plannedStart), inArray(s.operations.status, ['pending', 'ready', 'claimed', 'paused', 'running'])))
-  return Object.fromEntries(
-    rows.map((r) => [String(r.id), { benchId: r.benchId === null ? null : String(r.benchId), personId: r.personId === null ? null : String(r.personId), start: new Date(r.start!).toISOString(), end: new Date(r.end ?? r.start!).toISOString(), segments: [], reason: null }]),
-  )
+/** A draft's stored assignments, each checked against the schema; drafts saved with string ids are converted. */
+export function fromStored(json: unknown): Assignments {
+  const out: Assignments = new Map()
+  for (const [key, value] of Object.entries((json ?? {}) as Record<string, unknown>)) {
+    const a = storedAssignment(key).parse(value)
+    out.set(a.operationId, a)
+  }
+  return out
 }

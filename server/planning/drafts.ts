@@ -1,14 +1,18 @@
-// Plan versions: list, read, compare, publish (the draft becomes the live plan) and discard.
+// Plan versions as records: drafts saved by a planner run, listed, read (typed assignments), compared, published (the
+// draft becomes the live plan, one transaction under the live plan's lock) and discarded.
 import { describe, type RuleViolation } from '../../shared/domain/rules'
-import { and, desc, eq, inArray, sql } from 'drizzle-orm'
-import type { Db } from '../db/client'
+import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
+import { and, desc, eq, inArray } from 'drizzle-orm'
+import type { Db, Trx, Tx } from '../db/client'
 import * as s from '../db/schema/index'
 import { AppError, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from '../services/audit'
 import { dayjs } from '../lib/time'
-import { currentAssignments, type Assignment } from './assignments'
-import { LOCK } from '../lib/locks'
+import type { Plan } from '../scheduler/model.ts'
+import { fromEnginePlan, fromStored, toStored, type Assignment, type Assignments } from './assignments'
+import { lockLivePlan, readLivePlan, writeAssignment } from './live-plan'
+import type { PlanningData } from './problem'
 
 export async function listPlans(db: Db, workshopId: number) {
   const rows = await db
@@ -18,18 +22,24 @@ export async function listPlans(db: Db, workshopId: number) {
   return rows.map((r) => ({ ...r, createdByName: r.createdBy ? names.get(r.createdBy) ?? null : null, publishedByName: r.publishedBy ? names.get(r.publishedBy) ?? null : null }))
 }
 
-export async function getPlan(db: Db, workshopId: number, id: number) {
+/** A plan version with its assignments read through the schema (older drafts' string ids become numbers). */
+export async function getPlan(db: Tx, workshopId: number, id: number) {
   const [p] = await db.select().from(s.planVersions).where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, workshopId)))
   if (!p) throw notFound('Plan')
-  return p
+  return { ...p, assignments: toStored(fromStored(p.assignments)) }
+}
+
+/** A plan version's assignments by operation id. */
+export async function readDraft(db: Tx, workshopId: number, id: number): Promise<Assignments> {
+  return fromStored((await getPlan(db, workshopId, id)).assignments)
 }
 
 /** What would move between two sets of assignments: bench, person or start changed. */
-export function diffAssignments(from: Record<string, Assignment>, to: Record<string, Assignment>) {
+export function diffAssignments(from: Assignments, to: Assignments) {
   const moved: { operationId: number; from: Assignment | null; to: Assignment | null; change: string[] }[] = []
-  for (const id of new Set([...Object.keys(from), ...Object.keys(to)])) {
-    const a = from[id] ?? null
-    const b = to[id] ?? null
+  for (const id of new Set([...from.keys(), ...to.keys()])) {
+    const a = from.get(id) ?? null
+    const b = to.get(id) ?? null
     const change: string[] = []
     if (!a) change.push('new')
     else if (!b) change.push('dropped')
@@ -38,7 +48,7 @@ export function diffAssignments(from: Record<string, Assignment>, to: Record<str
       if (a.personId !== b.personId) change.push('person')
       if (Math.abs(new Date(a.start).getTime() - new Date(b.start).getTime()) >= 60_000) change.push('time')
     }
-    if (change.length) moved.push({ operationId: Number(id), from: a, to: b, change })
+    if (change.length) moved.push({ operationId: id, from: a, to: b, change })
   }
   return moved
 }
@@ -47,17 +57,17 @@ export function diffAssignments(from: Record<string, Assignment>, to: Record<str
  * What the changes buy, per job bag planned in both: pieces that finish earlier or later, and those among them whose lateness
  * (after the promised day) shrinks or grows.
  */
-async function whatItBuys(db: Db, workshopId: number, base: Record<string, Assignment>, draft: Record<string, Assignment>) {
+async function whatItBuys(db: Db, workshopId: number, base: Assignments, draft: Assignments) {
   const [w] = await db.select({ tz: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, workshopId))
-  const ids = [...new Set([...Object.keys(base), ...Object.keys(draft)])].map(Number)
+  const ids = [...new Set([...base.keys(), ...draft.keys()])]
   const rows = ids.length
     ? await db.select({ id: s.operations.id, bag: s.operations.jobBagId, promised: s.orders.promisedDate, due: s.orders.dueDate })
       .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
       .where(and(inArray(s.operations.id, ids), eq(s.jobBags.workshopId, workshopId)))
     : []
-  const finish = (a: Record<string, Assignment>) => {
+  const finish = (a: Assignments) => {
     const m = new Map<number, number>()
-    for (const r of rows) { const x = a[String(r.id)]; if (x) m.set(r.bag, Math.max(m.get(r.bag) ?? -Infinity, new Date(x.end).getTime())) }
+    for (const r of rows) { const x = a.get(r.id); if (x) m.set(r.bag, Math.max(m.get(r.bag) ?? -Infinity, new Date(x.end).getTime())) }
     return m
   }
   const before = finish(base), after = finish(draft)
@@ -76,46 +86,48 @@ async function whatItBuys(db: Db, workshopId: number, base: Record<string, Assig
 
 /** A draft against the live plan (or any two versions). */
 export async function comparePlan(db: Db, workshopId: number, id: number, againstId?: number) {
-  const p = await getPlan(db, workshopId, id)
-  const base = againstId ? ((await getPlan(db, workshopId, againstId)).assignments as Record<string, Assignment>) : await currentAssignments(db, workshopId)
-  const draft = p.assignments as Record<string, Assignment>
+  const draft = await readDraft(db, workshopId, id)
+  const base = againstId ? await readDraft(db, workshopId, againstId) : (await readLivePlan(db, workshopId)).assignments
   const moves = diffAssignments(base, draft)
   return { planId: id, against: againstId ?? 'live', moves, gains: await whatItBuys(db, workshopId, base, draft), counts: { bench: moves.filter((m) => m.change.includes('bench')).length, person: moves.filter((m) => m.change.includes('person')).length, time: moves.filter((m) => m.change.includes('time')).length, new: moves.filter((m) => m.change.includes('new')).length } }
 }
 
-export async function publishPlan({ db, realtime }: Deps, actor: Actor, id: number) {
+/**
+ * Publishing: the draft becomes the live plan, in one transaction under the live plan's lock. Refused when the draft breaks a
+ * rule (the rule book's findings saved with it) or was made from a live plan that has been replaced since.
+ */
+export async function publishDraft({ db, realtime }: Deps, actor: Actor, id: number) {
   const result = await db.transaction(async (tx) => {
-    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
+    await lockLivePlan(tx, actor.workshopId)
     const [p] = await tx.select().from(s.planVersions).where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, actor.workshopId))).for('update')
     if (!p) throw notFound('Plan')
     if (p.status !== 'draft') throw new AppError({ code: 'conflict', message: `Plan ${p.number} is ${p.status}, not a draft; only drafts can be published` })
     if ((p.score as { feasible?: boolean }).feasible === false)
       throw new AppError({ code: 'unprocessable', message: `Plan ${p.number} breaks a planning rule (${describe((p.score as { violations?: (RuleViolation | string)[] }).violations ?? [], 1) || 'see the draft'}); it cannot become the live plan.` })
-    const [live] = await tx.select().from(s.planVersions).where(and(eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'published')))
+    const live = await readLivePlan(tx, actor.workshopId)
     const basedOn = (p.score as { basedOnPlanId?: number | null }).basedOnPlanId ?? null
-    if ((live?.id ?? null) !== basedOn)
-      throw new AppError({ code: 'conflict', message: `Plan ${live?.number} was published after this draft was made; run the planner again to start from it.` })
-    if (live) await tx.update(s.planVersions).set({ status: 'superseded' }).where(eq(s.planVersions.id, live.id))
+    if (live.planId !== basedOn)
+      throw new AppError({ code: 'conflict', message: `Plan ${live.number} was published after this draft was made; run the planner again to start from it.` })
+    if (live.planId) await tx.update(s.planVersions).set({ status: 'superseded' }).where(eq(s.planVersions.id, live.planId))
     const now = new Date().toISOString()
     await tx.update(s.planVersions).set({ status: 'published', publishedAt: now, publishedBy: actor.userId }).where(eq(s.planVersions.id, id))
-    // Write the plan onto the operations that are still open; running and finished work keeps what it has.
-    const assignments = p.assignments as Record<string, Assignment>
-    const ids = Object.keys(assignments).map(Number)
+    // Written onto the operations that are still open; running and finished work keeps what it has. Pins stay as the manager left them.
+    const assignments = fromStored(p.assignments)
+    const ids = [...assignments.keys()]
     const open = ids.length ? await tx.select({ id: s.operations.id, status: s.operations.status }).from(s.operations).where(inArray(s.operations.id, ids)) : []
     for (const op of open) {
       if (op.status === 'done' || op.status === 'skipped') continue
-      const a = assignments[String(op.id)]!
-      await tx.update(s.operations).set({
-        plannedBenchId: a.benchId === null ? null : Number(a.benchId), plannedPersonId: a.personId === null ? null : Number(a.personId),
-        plannedStart: a.start, plannedEnd: a.end, version: sql`${s.operations.version} + 1`,
-      }).where(eq(s.operations.id, op.id))
+      const { pinned: _pinned, ...a } = assignments.get(op.id)!
+      await writeAssignment(tx, a)
     }
-    await audit(tx, actor, 'publish', 'plan', id, { number: p.number, replaced: live?.number ?? null })
+    await audit(tx, actor, 'publish', 'plan', id, { number: p.number, replaced: live.number })
     return { id, number: p.number }
   })
   realtime.emit(actor.workshopId, 'plan:published', { id })
   return getPlan(db, actor.workshopId, result.id)
 }
+/** The plans route's name for publishing a draft. */
+export const publishPlan = publishDraft
 
 export async function discardPlan({ db, realtime }: Deps, actor: Actor, id: number) {
   await db.transaction(async (tx) => {
@@ -128,4 +140,42 @@ export async function discardPlan({ db, realtime }: Deps, actor: Actor, id: numb
   })
   realtime.emit(actor.workshopId, 'plan:discarded', { id })
   return getPlan(db, actor.workshopId, id)
+}
+
+/** A planner run's result saved as a draft, inside the transaction that marks the run done (its row locked and still held by this attempt). */
+export async function saveDraft(tx: Trx, actor: Actor, data: PlanningData, plan: Plan) {
+  await lockLivePlan(tx, actor.workshopId)
+  const [last] = await tx.select({ n: s.planVersions.number }).from(s.planVersions).where(eq(s.planVersions.workshopId, actor.workshopId)).orderBy(desc(s.planVersions.number)).limit(1)
+  const live = await readLivePlan(tx, actor.workshopId)
+  const [row] = await tx.insert(s.planVersions).values({
+    workshopId: actor.workshopId, number: (last?.n ?? 0) + 1, status: 'draft', createdBy: actor.userId,
+    score: { ...summarise(data, plan), basedOnPlanId: live.planId },
+    assignments: toStored(fromEnginePlan(data, plan)),
+  }).returning({ id: s.planVersions.id })
+  await audit(tx, actor, 'draft', 'plan', row!.id, { weightedTardiness: plan.score.weightedTardiness, makespan: plan.score.makespan })
+  return row!.id
+}
+
+function summarise(data: PlanningData, plan: Plan) {
+  const c = data.clock
+  const late = plan.jobs.filter((j) => j.tardiness > 0).length
+  // Lateness as the workshop counts it: working time between the promised moment and the expected finish.
+  const dues = new Map(data.problem.jobs.map((j) => [j.id, j.due]))
+  const lateWorking = plan.jobs.filter((j) => j.tardiness > 0).map((j) => workingMinutesBetween(data.meta.open, dues.get(j.jobId)!, j.completion))
+  return {
+    weightedTardiness: plan.score.weightedTardiness,
+    weightedTardinessHours: Math.round((plan.score.weightedTardiness / 60) * 10) / 10,
+    completion: c.toDate(plan.score.makespan).toISOString(),
+    moves: plan.score.moves,
+    feasible: plan.score.feasible,
+    violations: plan.score.violations.slice(0, 20),
+    lateJobs: late,
+    lateWorkingMinutes: lateWorking.reduce((a, m) => a + m, 0),
+    worstLateWorkingMinutes: lateWorking.reduce((a, m) => Math.max(a, m), 0),
+    dayMinutes: typicalDayMinutes(data.meta.open),
+    jobs: plan.jobs.length,
+    operations: plan.operations.length,
+    iterations: plan.stats.iterations,
+    elapsedMs: Math.round(plan.stats.elapsedMs),
+  }
 }

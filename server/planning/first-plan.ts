@@ -4,7 +4,7 @@ import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
 import { Realtime } from '../realtime/hub'
 import type { Actor } from '../lib/route'
-import { publishPlan } from './drafts'
+import { publishDraft } from './drafts'
 import { startRun, waitForRun } from './runs'
 
 /** Runs the planner for `seconds` and publishes the result as the workshop's first plan; skips workshops that have plans. */
@@ -20,7 +20,7 @@ export async function publishFirstPlans(db: Db, seconds = 5): Promise<number[]> 
     const run = await startRun(deps, actor, { timeLimitSeconds: seconds, seed: 1 })
     const done = await waitForRun(db, run.id, (seconds + 30) * 1000)
     if (done?.status !== 'done' || !done.planId) continue
-    await publishPlan(deps, actor, done.planId)
+    await publishDraft(deps, actor, done.planId)
     published.push(done.planId)
   }
   return published

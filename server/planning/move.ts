@@ -1,5 +1,5 @@
-// Moving or pinning one bar by hand on the live plan: checked with the rule book inside the transaction that writes it, refused
-// with the rule's message the board can show.
+// Moving or pinning one bar by hand on the live plan: one transaction under the live plan's lock, checked with the rule book
+// against the live plan it changes, refused with the rule's message the board can show.
 import { and, eq, sql } from 'drizzle-orm'
 import type { MoveInput } from '../../shared/schemas/plan'
 import * as s from '../db/schema/index'
@@ -9,10 +9,10 @@ import { dayjs } from '../lib/time'
 import { intersect, walkWorkingTime, clipToWindows, outsideWorkEnd } from '../scheduler/calendar.ts'
 import type { Interval } from '../scheduler/model.ts'
 import { audit } from '../services/audit'
-import { LOCK } from '../lib/locks'
 import * as rules from '../../shared/domain/rules'
 import { violation, type RuleViolation, type StepRef } from '../../shared/domain/rules'
-import { currentAssignments } from './assignments'
+import { engineId } from './assignments'
+import { lockLivePlan, readLivePlan } from './live-plan'
 import { loadPlanningData } from './problem'
 
 const refuse = (message: string, rule: string) => new AppError({ code: 'unprocessable', message, details: { rule } })
@@ -20,10 +20,11 @@ const refuse = (message: string, rule: string) => new AppError({ code: 'unproces
 const refused = (v: RuleViolation) => new AppError({ code: 'unprocessable', message: v.message, details: { rule: v.rule, severity: v.severity, ...v.details } })
 const check = (v: RuleViolation | null) => { if (v) throw refused(v) }
 
-export async function moveOperation({ db, realtime }: Deps, actor: Actor, opId: number, input: MoveInput, now = new Date()) {
+/** A move (bench, person, start) and/or a pin of one operation on the live plan; the board's PATCH. */
+export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId: number, input: MoveInput, now = new Date()) {
   const updated = await db.transaction(async (tx) => {
-    // The checks read the live plan they change: one change to it at a time per workshop (publish and promise take the same lock).
-    await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
+    // The checks read the live plan they change: one change to it at a time per workshop (every change takes the same lock).
+    await lockLivePlan(tx, actor.workshopId)
     const data = await loadPlanningData(tx, actor.workshopId, now)
     const c = data.clock
     const when = (m: number) => dayjs(c.toDate(m)).tz(c.timeZone).format('ddd D MMM HH:mm')
@@ -44,7 +45,7 @@ export async function moveOperation({ db, realtime }: Deps, actor: Actor, opId: 
     let segments: Interval[] = []
     let start = startIso ? c.toMinute(startIso) : null
     let end = op.plannedEnd ? c.toMinute(op.plannedEnd) : null
-    const live = await currentAssignments(tx, actor.workshopId)
+    const live = (await readLivePlan(tx, actor.workshopId)).assignments
 
     if (moving) {
       if (start === null) throw new AppError({ code: 'validation', message: 'start: is required', fields: { start: 'is required' } })
@@ -73,14 +74,14 @@ export async function moveOperation({ db, realtime }: Deps, actor: Actor, opId: 
         // A drop in a break or after hours starts at the next time both are at work.
         start = walked[0]!.start
         end = walked[walked.length - 1]!.end
-        for (const [otherId, a] of Object.entries(live)) {
-          if (otherId === String(opId)) continue
-          const sameBench = a.benchId === String(bench.id)
-          const samePerson = a.personId === String(person.id)
+        for (const a of live.values()) {
+          if (a.operationId === opId) continue
+          const sameBench = a.benchId === bench.id
+          const samePerson = a.personId === person.id
           if (!sameBench && !samePerson) continue
-          const other = data.meta.operations.get(otherId)
+          const other = data.meta.operations.get(String(a.operationId))
           if (!other || other.op.status === 'done') continue
-          const w = a.benchId && a.personId ? intersect(data.problem.benches.find((b) => b.id === a.benchId)?.available ?? [], data.problem.people.find((p) => p.id === a.personId)?.available ?? []) : null
+          const w = a.benchId && a.personId ? intersect(data.problem.benches.find((b) => b.id === engineId(a.benchId))?.available ?? [], data.problem.people.find((p) => p.id === engineId(a.personId))?.available ?? []) : null
           const theirs = w ? clipToWindows(w, c.toMinute(a.start), c.toMinute(a.end)) : [{ start: c.toMinute(a.start), end: c.toMinute(a.end) }]
           const clash = theirs.find((t) => segments.some((x) => x.start < t.end && t.start < x.end))
           if (clash) {
@@ -100,12 +101,12 @@ export async function moveOperation({ db, realtime }: Deps, actor: Actor, opId: 
       }
       for (const p of siblings.filter((x) => op.after.includes(x.op.key))) {
         if (p.op.status === 'done' || p.op.status === 'skipped') continue
-        const pa = live[String(p.op.id)]
+        const pa = live.get(p.op.id)
         if (!pa) throw refused(violation('routing order', self, `“${p.op.name}” comes first and is not planned yet.`, { predecessor: p.op.name }))
         check(rules.routingOrder(self, { start, predecessor: p.op.name, readyAt: c.toMinute(pa.end) + p.op.waitAfterMinutes, waitAfter: p.op.waitAfterMinutes, when }))
       }
       for (const n of siblings.filter((x) => x.op.after.includes(op.key))) {
-        const na = live[String(n.op.id)]
+        const na = live.get(n.op.id)
         if (!na) continue
         check(rules.beforeSuccessor(self, { end, waitAfter: op.waitAfterMinutes, successor: n.op.name, successorStart: c.toMinute(na.start), when }))
       }
@@ -121,4 +122,9 @@ export async function moveOperation({ db, realtime }: Deps, actor: Actor, opId: 
   })
   realtime.emit(actor.workshopId, 'plan:changed', { id: opId, operationId: opId, version: updated.version })
   return { id: updated.id, version: updated.version, benchId: updated.plannedBenchId, personId: updated.plannedPersonId, start: updated.plannedStart, end: updated.plannedEnd, pinned: updated.pinned }
+}
+
+/** Pinning (or unpinning) one operation where it stands: the same transaction and routing-order checks as a move. */
+export function pin(deps: Deps, actor: Actor, opId: number, input: { pinned: boolean; version: number }, now = new Date()) {
+  return moveAssignment(deps, actor, opId, { pinned: input.pinned, version: input.version }, now)
 }

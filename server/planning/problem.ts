@@ -168,3 +168,9 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
   }
   return { problem, clock, meta }
 }
+
+/** A minute of the plan as an instant and as the workshop's local date. */
+export function localTime(data: Pick<PlanningData, 'clock'>, minute: number) {
+  const at = data.clock.toDate(minute)
+  return { at: at.toISOString(), date: dayjs(at).tz(data.clock.timeZone).format('YYYY-MM-DD') }
+}

@@ -1,21 +1,19 @@
 // Planner runs: a row any app instance can read and a queue job one instance takes (server/jobs); one run at a time per
 // workshop, solved in a worker thread, progress and a heartbeat written to the row and relayed live, the result saved once as a draft.
 import { randomUUID } from 'node:crypto'
-import { and, desc, eq, inArray, lt, sql } from 'drizzle-orm'
+import { and, eq, inArray, lt, sql } from 'drizzle-orm'
 import { describe } from '../../shared/domain/rules'
-import type { Db, Trx } from '../db/client'
+import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
 import { AppError } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import type { Plan } from '../scheduler/model.ts'
 import { SchedulingInputError } from '../scheduler/model.ts'
 import { checkProblem } from '../scheduler/check.ts'
 import { runInWorker } from '../scheduler/run-in-worker.ts'
-import { audit } from '../services/audit'
-import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
 import { loadPlanningData, type PlanningData } from './problem'
-import { currentAssignments, toAssignments } from './assignments'
-import { LOCK } from '../lib/locks'
+import { engineId } from './assignments'
+import { saveDraft } from './drafts'
+import { readLivePlan } from './live-plan'
 import { PLAN_RUN_TRIES, QUEUES } from '../jobs/queue'
 import { isUniqueViolation } from '../services/versioned'
 
@@ -30,11 +28,11 @@ export function planningError(err: unknown, data?: PlanningData): AppError | unk
 /** Loads the problem with the published plan as the one to stay close to (stability). */
 export async function problemWithPrevious(db: Db, workshopId: number, now: Date) {
   const data = await loadPlanningData(db, workshopId, now)
-  const previous = await currentAssignments(db, workshopId)
+  const previous = await readLivePlan(db, workshopId)
   data.problem.previous = Object.fromEntries(
-    Object.entries(previous)
-      .filter(([id]) => data.meta.operations.has(id))
-      .map(([id, a]) => [id, { benchId: a.benchId, personId: a.personId, start: data.clock.toMinute(a.start) }]),
+    [...previous.assignments.values()]
+      .filter((a) => data.meta.operations.has(String(a.operationId)))
+      .map((a) => [String(a.operationId), { benchId: engineId(a.benchId), personId: engineId(a.personId), start: data.clock.toMinute(a.start) }]),
   )
   return data
 }
@@ -268,43 +266,5 @@ export async function waitForRun(db: Db, id: string, timeoutMs = 120_000) {
     if (!r || !(ACTIVE as readonly string[]).includes(r.status)) return r ? publicRun(r) : undefined
     if (Date.now() - t0 > timeoutMs) throw new Error('run did not end in time')
     await new Promise((res) => setTimeout(res, 50))
-  }
-}
-
-/** Inside the transaction that marks the run done (its row locked and still held by this attempt). */
-async function saveDraft(tx: Trx, actor: Actor, data: PlanningData, plan: Plan) {
-  await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
-  const [last] = await tx.select({ n: s.planVersions.number }).from(s.planVersions).where(eq(s.planVersions.workshopId, actor.workshopId)).orderBy(desc(s.planVersions.number)).limit(1)
-  const [published] = await tx.select({ id: s.planVersions.id }).from(s.planVersions).where(and(eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'published')))
-  const [row] = await tx.insert(s.planVersions).values({
-    workshopId: actor.workshopId, number: (last?.n ?? 0) + 1, status: 'draft', createdBy: actor.userId,
-    score: { ...summarise(data, plan), basedOnPlanId: published?.id ?? null },
-    assignments: toAssignments(data, plan),
-  }).returning({ id: s.planVersions.id })
-  await audit(tx, actor, 'draft', 'plan', row!.id, { weightedTardiness: plan.score.weightedTardiness, makespan: plan.score.makespan })
-  return row!.id
-}
-
-function summarise(data: PlanningData, plan: Plan) {
-  const c = data.clock
-  const late = plan.jobs.filter((j) => j.tardiness > 0).length
-  // Lateness as the workshop counts it: working time between the promised moment and the expected finish.
-  const dues = new Map(data.problem.jobs.map((j) => [j.id, j.due]))
-  const lateWorking = plan.jobs.filter((j) => j.tardiness > 0).map((j) => workingMinutesBetween(data.meta.open, dues.get(j.jobId)!, j.completion))
-  return {
-    weightedTardiness: plan.score.weightedTardiness,
-    weightedTardinessHours: Math.round((plan.score.weightedTardiness / 60) * 10) / 10,
-    completion: c.toDate(plan.score.makespan).toISOString(),
-    moves: plan.score.moves,
-    feasible: plan.score.feasible,
-    violations: plan.score.violations.slice(0, 20),
-    lateJobs: late,
-    lateWorkingMinutes: lateWorking.reduce((a, m) => a + m, 0),
-    worstLateWorkingMinutes: lateWorking.reduce((a, m) => Math.max(a, m), 0),
-    dayMinutes: typicalDayMinutes(data.meta.open),
-    jobs: plan.jobs.length,
-    operations: plan.operations.length,
-    iterations: plan.stats.iterations,
-    elapsedMs: Math.round(plan.stats.elapsedMs),
   }
 }

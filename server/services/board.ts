@@ -10,9 +10,10 @@ import type { StartReason } from '../scheduler/model.ts'
 import { explainStarts } from '../scheduler/explain.ts'
 import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
 import { cachedOr, type Cache } from '../lib/cache'
-import { currentAssignments, type Assignment } from '../planning/assignments'
+import { engineId, fromStored, type Assignments } from '../planning/assignments'
 import { loadPlanningData, type PlanningData } from '../planning/problem'
-import { getPlan } from '../planning/drafts'
+import { getPlan, readDraft } from '../planning/drafts'
+import { readLivePlan } from '../planning/live-plan'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
 import type { BoardActual, BoardPlanned } from '../../shared/schemas/board'
 
@@ -49,6 +50,11 @@ export function cachedAnswer(cache: Cache | undefined, workshopId: number, key: 
   }, { ttlMs: 60_000, verify: true })
 }
 
+/** A plan's assignments as the board works on them: keyed and named as the engine names things (string ids), with a reason. */
+type Shown = { benchId: string | null; personId: string | null; start: string; end: string; reason: StartReason | null }
+const shown = (a: Assignments): Record<string, Shown> =>
+  Object.fromEntries([...a.values()].map((x) => [String(x.operationId), { benchId: engineId(x.benchId), personId: engineId(x.personId), start: x.start, end: x.end, reason: null }]))
+
 function windowsFor(data: PlanningData, benchId: string | null, personId: string | null): Interval[] | null {
   const b = benchId ? data.problem.benches.find((x) => x.id === benchId)?.available : null
   const p = personId ? data.problem.people.find((x) => x.id === personId)?.available : null
@@ -58,15 +64,15 @@ function windowsFor(data: PlanningData, benchId: string | null, personId: string
 export async function boardData(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
   const data = await loadPlanningData(db, workshopId, o.now ?? new Date())
   const c = data.clock
-  let assignments: Record<string, Assignment>
+  let assignments: Record<string, Shown>
   let plan: { id: number; number: number; status: string; publishedAt: string | null } | null = null
   const [live] = await db.select().from(s.planVersions).where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
   if (o.planId) {
     const p = await getPlan(db, workshopId, o.planId)
-    assignments = p.assignments as Record<string, Assignment>
+    assignments = shown(fromStored(p.assignments))
     plan = { id: p.id, number: p.number, status: p.status, publishedAt: p.publishedAt }
   } else {
-    assignments = await currentAssignments(db, workshopId)
+    assignments = shown((await readLivePlan(db, workshopId)).assignments)
     if (live) plan = { id: live.id, number: live.number, status: live.status, publishedAt: live.publishedAt }
   }
   // Reasons come from the plan shown, as it is now (after moves by hand), never from when it was made.
@@ -242,7 +248,7 @@ async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd:
 export async function weekLoad(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
   const data = await loadPlanningData(db, workshopId, o.now ?? new Date())
   const c = data.clock
-  const assignments = o.planId ? ((await getPlan(db, workshopId, o.planId)).assignments as Record<string, Assignment>) : await currentAssignments(db, workshopId)
+  const assignments = shown(o.planId ? await readDraft(db, workshopId, o.planId) : (await readLivePlan(db, workshopId)).assignments)
   const days: string[] = []
   for (let d = dayjs(o.from); !d.isAfter(dayjs(o.to)); d = d.add(1, 'day')) days.push(d.format('YYYY-MM-DD'))
   const dayIv = days.map((d) => ({ day: d, week: `${dayjs(d).isoWeekYear()}-W${String(dayjs(d).isoWeek()).padStart(2, '0')}`, start: c.at(d), end: c.at(dayjs(d).add(1, 'day').format('YYYY-MM-DD')) }))

@@ -1,7 +1,7 @@
 // Promise dates for sales: the earliest completion of a prospective piece on the live plan (and re-planned), its
 // confidence range, turning it into an order with the promised date, and the forecast of an existing order.
 import { cachedOr } from '../lib/cache'
-import { and, asc, eq, gt, inArray, isNotNull, lt, or, sql } from 'drizzle-orm'
+import { and, asc, eq } from 'drizzle-orm'
 import { quantileSorted } from 'simple-statistics'
 import type { JobBagForecast, OrderForecast, PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
 import { routingStepMinutes } from '../../shared/domain/estimate'
@@ -16,14 +16,13 @@ import { topologicalOrder } from '../scheduler/search.ts'
 import type { Db, Trx } from '../db/client'
 import { boardData } from './board'
 import { sendPromiseConfirmation } from './mail'
-import { audit } from './audit'
 import { getOrder, takeOrder } from './orders'
-import { currentAssignments, type Assignment } from '../planning/assignments'
-import { loadPlanningData, operationOptions, weightOfPriority, type PlanningData } from '../planning/problem'
+import { engineId, type Assignments } from '../planning/assignments'
+import { bookPromise, readLivePlan, type Booking } from '../planning/live-plan'
+import { loadPlanningData, localTime, operationOptions, weightOfPriority, type PlanningData } from '../planning/problem'
 import { planningError } from '../planning/runs'
 import { ASSUMPTION, DEFAULT_RUNS, kindSpreads, simulateCompletions, type KindSpread } from './promise-range'
 import { requireOwned } from './versioned'
-import { LOCK } from '../lib/locks'
 
 /** Search budget of the "everything re-planned" answer; the fixed answer is one decode. */
 export const REPLAN_MS = 80
@@ -37,33 +36,31 @@ function cached<T>(deps: Deps, workshopId: number, key: string, load: () => Prom
   return cachedOr(deps.cache, workshopId, key, load, { ttlMs: CACHE_MS, verify: true, replace })
 }
 
-const local = (data: PlanningData, minute: number) => {
-  const at = data.clock.toDate(minute)
-  return { at: at.toISOString(), date: dayjs(at).tz(data.clock.timeZone).format('YYYY-MM-DD') }
-}
+const local = localTime
 
 /** The live plan (operations' planned fields) as an engine plan; assignments that no longer fit the calendars are left free. */
-export function planFromAssignments(data: PlanningData, live: Record<string, Assignment>): Plan {
+export function planFromAssignments(data: PlanningData, live: Assignments): Plan {
   const c = data.clock
   const p = data.problem
   const engineOps = new Map(p.operations.map((o) => [o.id, o]))
   const benches = new Map(p.benches.map((b) => [b.id, b.available]))
   const people = new Map(p.people.map((x) => [x.id, x.available]))
   const operations: PlannedOperation[] = []
-  for (const [id, a] of Object.entries(live)) {
+  for (const a of live.values()) {
+    const id = String(a.operationId)
     const op = engineOps.get(id)
     if (!op || op.done) continue
     const start = c.toMinute(a.start), end = Math.max(start, c.toMinute(a.end))
     const outside = !!op.outsideWorkingDays
     let segments = [{ start, end }]
     if (!outside) {
-      const b = a.benchId ? benches.get(a.benchId) : undefined, pe = a.personId ? people.get(a.personId) : undefined
+      const b = a.benchId ? benches.get(String(a.benchId)) : undefined, pe = a.personId ? people.get(String(a.personId)) : undefined
       if (!b || !pe) continue
       const w = intersect(b, pe)
       if (!w.some((x) => x.start <= start && start < x.end)) continue
       segments = clipToWindows(w, start, end)
     }
-    operations.push({ operationId: id, jobId: op.jobId, benchId: outside ? null : a.benchId, personId: outside ? null : a.personId, start, end, segments, reason: { kind: 'fixed', detail: 'on the live plan' } })
+    operations.push({ operationId: id, jobId: op.jobId, benchId: outside ? null : engineId(a.benchId), personId: outside ? null : engineId(a.personId), start, end, segments, reason: { kind: 'fixed', detail: 'on the live plan' } })
   }
   const jobs = p.jobs.map((j) => {
     const completion = operations.filter((o) => o.jobId === j.id).reduce((m, o) => Math.max(m, o.end), p.now)
@@ -80,8 +77,7 @@ export function planFromAssignments(data: PlanningData, live: Record<string, Ass
 
 /** The plan a promise is measured against: the live plan, or a quick plan of the open work when nothing is planned. */
 async function basePlan(deps: Deps, workshopId: number, data: PlanningData) {
-  const live = await currentAssignments(deps.db, workshopId)
-  const plan = planFromAssignments(data, live)
+  const plan = planFromAssignments(data, (await readLivePlan(deps.db, workshopId)).assignments)
   if (plan.operations.length > 0) return { plan, basis: 'live-plan' as const, basisNote: 'Measured against the live plan; current work keeps its times.' }
   const quick = data.problem.operations.some((o) => !o.done)
     ? await cached(deps, workshopId, 'quick-plan', () => { try { return solve(data.problem, { seed: 1, timeLimitMs: QUICK_PLAN_MS }) } catch (err) { throw planningError(err, data) } })
@@ -216,45 +212,13 @@ export function placeInGaps(problem: Problem, live: Plan, job: Job, operations: 
   return { feasible, steps, completion: steps.reduce((m, o) => Math.max(m, o.end), problem.now) }
 }
 
-export type Booking =
-  | { booked: true; start: string; end: string; startDate: string; endDate: string; steps: number }
-  | { booked: false; reason: string }
+export type { Booking }
 
-/** The planned steps of the new job bag, checked free and written inside the order's transaction; or why not. */
-export async function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: number, placed: ReturnType<typeof placeInGaps>): Promise<Booking> {
-  // Publishing a plan takes the same lock, so the plan cannot change under the check.
-  await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${actor.workshopId})`)
-  const c = data.clock
-  const [bag] = await tx.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId))
-  const ops = await tx.select({ id: s.operations.id, key: s.operations.key }).from(s.operations).where(eq(s.operations.jobBagId, bag!.id))
-  const idOf = new Map(ops.map((o) => [`${PROSPECTIVE_JOB}:${o.key}`, o.id]))
-  const benches = new Map(data.problem.benches.map((b) => [b.id, b.available]))
-  const people = new Map(data.problem.people.map((p) => [p.id, p.available]))
-  for (const st of placed.steps) {
-    if (!st.benchId && !st.personId) continue
-    const from = c.toDate(st.start).toISOString(), to = c.toDate(st.end).toISOString()
-    const others = await tx.select({ id: s.operations.id, name: s.operations.name, number: s.jobBags.number, benchId: s.operations.plannedBenchId, personId: s.operations.plannedPersonId, start: s.operations.plannedStart, end: s.operations.plannedEnd })
-      .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
-      .where(and(eq(s.jobBags.workshopId, actor.workshopId), inArray(s.operations.status, ['pending', 'ready', 'claimed', 'paused', 'running']), isNotNull(s.operations.plannedStart),
-        lt(s.operations.plannedStart, to), gt(s.operations.plannedEnd, from),
-        or(st.benchId ? eq(s.operations.plannedBenchId, Number(st.benchId)) : undefined, st.personId ? eq(s.operations.plannedPersonId, Number(st.personId)) : undefined)))
-    for (const o of others) {
-      const bench = o.benchId === null ? undefined : benches.get(String(o.benchId)), person = o.personId === null ? undefined : people.get(String(o.personId))
-      const theirs = bench && person ? clipToWindows(intersect(bench, person), c.toMinute(o.start!), c.toMinute(o.end!)) : [{ start: c.toMinute(o.start!), end: c.toMinute(o.end!) }]
-      if (theirs.some((t) => st.segments.some((x) => x.start < t.end && t.start < x.end)))
-        return { booked: false, reason: `the room the promise found was taken meanwhile (${o.number} "${o.name}"); the manager plans it at the next re-plan` }
-    }
-  }
-  for (const st of placed.steps) {
-    await tx.update(s.operations).set({
-      plannedBenchId: st.benchId === null ? null : Number(st.benchId), plannedPersonId: st.personId === null ? null : Number(st.personId),
-      plannedStart: c.toDate(st.start).toISOString(), plannedEnd: c.toDate(st.end).toISOString(), version: sql`${s.operations.version} + 1`,
-    }).where(eq(s.operations.id, idOf.get(st.operationId)!))
-  }
-  const first = placed.steps.reduce((m, o) => Math.min(m, o.start), Infinity)
-  await audit(tx, actor, 'book', 'order', orderId, { steps: placed.steps.length, start: c.toDate(first).toISOString(), end: c.toDate(placed.completion).toISOString() })
-  const a = local(data, first), b = local(data, placed.completion)
-  return { booked: true, start: a.at, end: b.at, startDate: a.date, endDate: b.date, steps: placed.steps.length }
+/** The planned steps of the new job bag, checked free and written inside the order's transaction (the planning module's booking); or why not. */
+export function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: number, placed: ReturnType<typeof placeInGaps>): Promise<Booking> {
+  const prefix = `${PROSPECTIVE_JOB}:`
+  const steps = placed.steps.map((st) => ({ key: st.operationId.slice(prefix.length), benchId: st.benchId, personId: st.personId, start: st.start, end: st.end, segments: st.segments }))
+  return bookPromise(tx, actor, { data, orderId, steps, completion: placed.completion })
 }
 
 /**
@@ -268,7 +232,7 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
   if (input.dueDate && input.dueDate < input.promisedDate) throw invalid('dueDate', 'must not be before the promised date')
   // Fresh data, not the promise cache: the booking must be against the plan as it is now.
   const data = await loadPlanningData(deps.db, actor.workshopId, now)
-  const live = planFromAssignments(data, await currentAssignments(deps.db, actor.workshopId))
+  const live = planFromAssignments(data, (await readLivePlan(deps.db, actor.workshopId)).assignments)
   let placed: ReturnType<typeof placeInGaps> | null = null
   let notBooked: string | null = null
   if (!live.operations.length) notBooked = 'no plan is published yet; the manager plans it with the first plan'

@@ -10,7 +10,7 @@ import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { bookLastStepLate, firstCustomerId, openOrder, openStepIds, planStep, templateId as firstTemplateId, unplanSteps } from '../setup/fixtures'
 import { auditRows, expectFieldError } from './helpers'
 import { kindSpreads, MIN_HISTORY } from '../../server/services/promise-range'
-import { currentAssignments } from '../../server/planning/assignments'
+import { readLivePlan } from '../../server/planning/live-plan'
 import { operationOptions } from '../../server/planning/problem'
 import { bookSlot, placeInGaps, planFromAssignments, PROSPECTIVE_JOB } from '../../server/services/promise'
 
@@ -239,7 +239,7 @@ describe('accepting a promise', () => {
     await clearPlan()
     await seedLivePlan(3)
     const data = await loadPlanningData(t.db, 1, new Date())
-    const live = planFromAssignments(data, await currentAssignments(t.db, 1))
+    const live = planFromAssignments(data, (await readLivePlan(t.db, 1)).assignments)
     const steps = await t.db.select({ key: s.templateSteps.key, kindId: s.templateSteps.kindId, leadDays: s.templateSteps.leadDays }).from(s.templateSteps).where(eq(s.templateSteps.templateId, templateId)).orderBy(asc(s.templateSteps.seq))
     // A one-step prospective job on the first bench step's kind, placed in the gaps.
     const step = steps.find((x) => x.leadDays === 0)!

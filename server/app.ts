@@ -17,6 +17,7 @@ import { endPinAfterWrite, resolveBenchPerson } from './middleware/bench-person'
 import { checkAnswer, type Deps, type RouteSpec } from './lib/route'
 import type { Jobs } from './jobs/queue'
 import { Realtime } from './realtime/hub'
+import { realtimeOrigin } from './realtime/origin'
 import { allRoutes } from './routes/index'
 import { UNSTORABLE_REASON, unstorableText } from './lib/text-guard'
 import { createMailer, type Mailer } from './mail/transport'
@@ -68,6 +69,8 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   api.use(sessionMiddleware)
   api.use(passport.session())
   api.use(resolveBenchPerson)
+  // The tab that sent a write is named in the events it causes, so that tab can skip its own echo.
+  api.use(realtimeOrigin)
   // Failed sign-ins are limited per address and per account; a sign-in that succeeds does not count (tablets behind one router sign in all day).
   const failedSignIns = (what: string, keyGenerator?: (req: express.Request) => string) => rateLimit({
     windowMs: 15 * 60_000,

@@ -1,6 +1,7 @@
 // Typed Socket.IO events (domain:pastTense), sent to the room of one workshop. Payloads stay small: ids and versions.
 // A type alias (not an interface), so a payload also reads as a plain Record<string, unknown>.
-export type ChangePayload = { id: number; version?: number; seq: number }
+/** `origin`: the browser tab whose request caused the change (its x-client-id), absent for jobs and scripts. */
+export type ChangePayload = { id: number; version?: number; seq: number; origin?: string }
 
 export interface ServerToClientEvents {
   'order:created': (p: ChangePayload) => void
@@ -15,7 +16,7 @@ export interface ServerToClientEvents {
   'plan:changed': (p: ChangePayload & { operationId: number }) => void
   'plan:progress': (p: { runId: string; iteration: number; weightedTardiness: number; makespan: number; elapsedMs: number }) => void
   /** A planner run ended with an error (or its instance went away for good): nothing was drafted. */
-  'plan:failed': (p: { runId: string; error: string; seq?: number }) => void
+  'plan:failed': (p: { runId: string; error: string; seq?: number; origin?: string }) => void
   'masterdata:changed': (p: ChangePayload & { entity: string }) => void
   /** A file uploaded to (or removed from) an order or a job bag. */
   'file:added': (p: ChangePayload & { orderId: number | null; jobBagId: number | null }) => void

@@ -5,6 +5,7 @@ import pg from 'pg'
 import type { Server } from 'socket.io'
 import type { ClientToServerEvents, EventName, ServerToClientEvents } from '../../shared/events'
 import { LOCK } from '../lib/locks'
+import { currentOrigin } from './origin'
 
 export interface RecordedEvent { seq: number; event: EventName; payload: unknown }
 /** What an event carries, as declared in shared/events.ts; the hub adds `seq`. */
@@ -70,8 +71,11 @@ export class Realtime {
    * instance's caches drop the workshop now, and the numbered row, the note to other instances and the broadcast
    * follow in order (`flush()` waits for them; the API answers only after they are done).
    */
-  emit<E extends EventName>(workshopId: number, event: E, payload: EventPayload<E>) {
+  emit<E extends EventName>(workshopId: number, event: E, given: EventPayload<E>) {
     for (const fn of this.listeners) fn(workshopId, 0)
+    // Read now, inside the request's async context: the tab that asked for the change (its own echo is skipped there).
+    const origin = currentOrigin()
+    const payload = origin ? { ...given, origin } : given
     if (!this.pool) {
       const seq = ++this.memSeq
       const full = { ...payload, seq }

@@ -21,9 +21,13 @@ export type EventPayload<E extends EventName> = Parameters<ServerToClientEvents[
 
 /** How far below the highest number an unseen event may arrive and still be a late one (a restart starts far lower). */
 export const LATE_WINDOW = 1000
+/** The most events one catch-up answer holds (the server's kept window). */
+export const CATCH_UP_LIMIT = 5000
 
 export interface CaughtUpEvent { seq: number; event: string; payload: unknown }
 type Handler = (payload: Record<string, unknown>, event: string) => void
+/** `complete`: every missed event was replayed (the catch-up answered in full); false: reload what you show. */
+type ResyncListener = (missed: CaughtUpEvent[], complete: boolean) => void
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- socket.io-client's own listener type; payloads are read as Record<string, unknown>
 type Listener = (...args: any[]) => void
 
@@ -63,7 +67,7 @@ export class LiveChannel {
   private readonly delivered = new Set<number>()
   private readonly handlers = new Map<string, Set<Handler>>()
   private readonly anyHandlers = new Set<Handler>()
-  private readonly resyncListeners = new Set<(missed: CaughtUpEvent[]) => void>()
+  private readonly resyncListeners = new Set<ResyncListener>()
   private readonly opts: Required<ChannelOptions>
   private retryTimer: ReturnType<typeof setTimeout> | null = null
   private closed = false
@@ -94,8 +98,8 @@ export class LiveChannel {
     return () => this.anyHandlers.delete(fn)
   }
 
-  /** Called after a reconnect once the missed events were replayed (or could not be): reload what you show. */
-  onResync(fn: (missed: CaughtUpEvent[]) => void): () => void {
+  /** Called after a reconnect once the missed events were replayed (complete) or could not be (reload what you show). */
+  onResync(fn: ResyncListener): () => void {
     this.resyncListeners.add(fn)
     return () => this.resyncListeners.delete(fn)
   }
@@ -139,8 +143,8 @@ export class LiveChannel {
     if ((RECORDED_EVENTS as readonly string[]).includes(event)) for (const fn of this.anyHandlers) fn(payload, event)
   }
 
-  private resync(missed: CaughtUpEvent[]) {
-    for (const fn of this.resyncListeners) fn(missed)
+  private resync(missed: CaughtUpEvent[], complete = false) {
+    for (const fn of this.resyncListeners) fn(missed, complete)
   }
 
   /** Asks the server for everything after `lastSeq` and replays what was not delivered live meanwhile. */
@@ -157,12 +161,14 @@ export class LiveChannel {
       if (answered) return
       answered = true
       clearTimeout(timer)
+      // A full page may have left some out (the server answers at most its kept window).
+      const complete = Array.isArray(events) && events.length < CATCH_UP_LIMIT
       const missed = (Array.isArray(events) ? events : []).filter((e) => e.seq > since && !this.delivered.has(e.seq)).sort((a, b) => a.seq - b.seq)
       for (const e of missed) {
         this.mark(e.seq)
         this.dispatch(e.event, (e.payload ?? {}) as Record<string, unknown>)
       }
-      this.resync(missed)
+      this.resync(missed, complete)
     })
   }
 

@@ -25,6 +25,11 @@ export const useBenchFloorStore = defineStore('benchFloor', () => {
   const bench = computed(() => benches.value.find((b) => b.id === benchId.value) ?? null)
   /** On a bench station: called after each action, and when the server says the PIN has run out (the next person enters theirs). */
   const afterAction = ref<(() => void) | null>(null)
+  /** On a bench station between people: there is no queue of anyone's to show, so live events do not reload it. */
+  const waitingForPin = ref(false)
+
+  /** The version of an operation the lists hold, if they show it: an event at or below it is already here. */
+  const knownVersion = (operationId: number): number | undefined => (next.value.find((o) => o.id === operationId) ?? mine.value.find((o) => o.id === operationId))?.version
 
   async function loadBenches() {
     benches.value = (await listBenches()).filter((b) => b.active)
@@ -83,5 +88,5 @@ export const useBenchFloorStore = defineStore('benchFloor', () => {
     }
   }
 
-  return { benchId, benches, bench, next, mine, person, loading, busy, afterAction, loadBenches, chooseBench, refresh, act }
+  return { benchId, benches, bench, next, mine, person, loading, busy, afterAction, waitingForPin, knownVersion, loadBenches, chooseBench, refresh, act }
 })

@@ -1,13 +1,13 @@
 // The planning board: the window shown, board data (live plan or a draft), plan versions, planner runs, moves by hand and the week load.
 import { defineStore } from 'pinia'
-import { computed, ref, shallowRef } from 'vue'
+import { computed, ref, shallowRef, toRef } from 'vue'
 import * as plansApi from '@/api/plans'
-import { runActive } from '@/api/plans'
 import type { BoardData, BoardItem, JobState, PlanComparison, PlanMove, PlanRun, PlanVersion, RunProgress, WeekLoad } from '@/api/plans'
+import { usePlannerRunStore } from '@/stores/planner-run'
 import type { MoveInput } from '@shared/schemas/plan'
 import { ApiError } from '@/api/client'
 import { messageOf } from '@/composables/use-api-error'
-import { dataWindowFor, localDay, shiftAnchor, type ColourBy, type RowsBy, type Zoom } from '@/components/board/board-vis'
+import { dataWindowFor, localDay, shiftAnchor, type ColourBy, type RowsBy, type Zoom } from '@/lib/board-calendar'
 
 export type BoardTab = 'timeline' | 'load'
 
@@ -36,9 +36,13 @@ export const useBoardStore = defineStore('board', () => {
   const versions = ref<PlanVersion[]>([])
   const weekLoad = shallowRef<WeekLoad | null>(null)
   const loadLoading = ref(false)
-  /** The planner run started from this board, and its latest figures. */
-  const run = ref<PlanRun | null>(null)
-  const progress = ref<RunProgress | null>(null)
+  /** The planner run started from this board, and its latest figures (the planner-run store's state machine). */
+  const runs = usePlannerRunStore()
+  const run = toRef(runs, 'run')
+  const progress = toRef(runs, 'progress')
+  /** Bars just changed by someone else, highlighted for a moment after the reload that brought them. */
+  const flashIds = ref<Set<number>>(new Set())
+  let flashTimer: ReturnType<typeof setTimeout> | null = null
 
   const dataWindow = computed(() => dataWindowFor(anchorDay.value))
   const livePlan = computed(() => versions.value.find((v) => v.status === 'published') ?? null)
@@ -50,7 +54,7 @@ export const useBoardStore = defineStore('board', () => {
   const moved = computed(() => new Map<number, PlanMove['change']>((viewPlanId.value && comparison.value?.planId === viewPlanId.value ? comparison.value.moves : []).map((m) => [m.operationId, m.change])))
   const benchName = computed(() => new Map((data.value?.benches ?? []).map((b) => [b.id, b.name])))
   const personName = computed(() => new Map((data.value?.people ?? []).map((p) => [p.id, p.name])))
-  const running = computed(() => runActive(run.value))
+  const running = computed(() => runs.active)
 
   // Reloads may overlap (events, window changes): only the newest answer is kept.
   let boardGen = 0
@@ -107,6 +111,18 @@ export const useBoardStore = defineStore('board', () => {
     await Promise.all(tasks)
   }
 
+  /** Live: bars or job bags changed (operation:changed, plan:changed, jobBag:changed): the window (and the week load when shown) again. */
+  async function reloadBars(flash: readonly number[] = []) {
+    await Promise.all([loadBoard(), tab.value === 'load' ? loadWeekLoad().catch(() => undefined) : Promise.resolve()])
+    if (!flash.length) return
+    flashIds.value = new Set(flash)
+    if (flashTimer) clearTimeout(flashTimer)
+    flashTimer = setTimeout(() => (flashIds.value = new Set()), 1800)
+  }
+
+  /** The version of a bar (operation) the board holds, if it shows it: an event at or below it is already here. */
+  const knownVersion = (operationId: number): number | undefined => itemsById.value.get(operationId)?.version
+
   async function loadComparison(planId: number, against?: number) {
     const c = await plansApi.comparePlan(planId, against)
     if (!against) comparison.value = c
@@ -149,55 +165,22 @@ export const useBoardStore = defineStore('board', () => {
     return p
   }
 
-  /** Starts the planner with a time budget; progress comes by socket events and by polling the run as a fallback. */
-  async function startPlanner(timeLimitSeconds: number, stability: PlanRun['stability'] = 'small-changes', seed = Math.floor(Math.random() * 1_000_000)) {
-    progress.value = null
-    run.value = await plansApi.startRun({ timeLimitSeconds, seed, stability })
-    void followRun(run.value.id)
-    return run.value
+  /** Starts the planner with a time budget; the planner-run store follows it (socket events, polling while disconnected). */
+  function startPlanner(timeLimitSeconds: number, stability: PlanRun['stability'] = 'small-changes', seed = Math.floor(Math.random() * 1_000_000)) {
+    return runs.start({ timeLimitSeconds, seed, stability })
   }
-
-  async function followRun(runId: string) {
-    while (run.value?.id === runId && runActive(run.value)) {
-      await new Promise((r) => setTimeout(r, 700))
-      try {
-        const r = await plansApi.getRun(runId)
-        if (run.value?.id !== runId) return
-        run.value = r
-        if (r.progress && (!progress.value || r.progress.elapsedMs >= progress.value.elapsedMs)) progress.value = r.progress
-      } catch {
-        // The socket still brings the result; keep polling gently.
-      }
-    }
-    if (run.value?.id === runId && run.value.status === 'done' && run.value.planId) await onDrafted(run.value.planId, runId)
-  }
-
-  async function stopPlanner() {
-    if (runActive(run.value)) run.value = await plansApi.stopRun(run.value!.id)
-  }
-
-  function onProgress(p: RunProgress & { runId: string }) {
-    if (run.value?.id !== p.runId) return
-    if (!progress.value || p.elapsedMs >= progress.value.elapsedMs) progress.value = { iteration: p.iteration, weightedTardiness: p.weightedTardiness, makespan: p.makespan, elapsedMs: p.elapsedMs }
-  }
+  const stopPlanner = () => runs.stop()
+  const onProgress = (p: RunProgress & { runId: string }) => runs.onProgress(p)
+  const onFailed = (p: { runId: string; error: string }) => runs.onFailed(p)
+  const clearRun = () => runs.clear()
 
   /** A draft was saved (ours or another manager's): list it; our own run's draft is shown with its moves. */
   async function onDrafted(planId: number, runId?: string) {
-    const ours = run.value && (!runId || run.value.id === runId)
-    if (ours && run.value && runActive(run.value)) run.value = { ...run.value, status: 'done', planId }
+    const ours = runs.onDrafted(planId, runId)
     await loadVersions().catch(() => undefined)
     if (ours && viewPlanId.value !== planId) await showPlan(planId)
   }
-
-  /** A run ended with an error (on whichever instance ran it): ours shows the reason at once, without waiting for the poll. */
-  function onFailed(p: { runId: string; error: string }) {
-    if (run.value?.id === p.runId && runActive(run.value)) run.value = { ...run.value, status: 'failed', error: p.error }
-  }
-
-  function clearRun() {
-    run.value = null
-    progress.value = null
-  }
+  runs.setAfterDrafted(onDrafted)
 
   /**
    * Saves a move (or pin) of one bar on the live plan; a refusal carries the rule's reason, a stale version reloads.
@@ -225,9 +208,9 @@ export const useBoardStore = defineStore('board', () => {
 
   return {
     timeZone, anchorDay, zoom, rowsBy, colourBy, workingHoursOnly, tab,
-    data, loading, error, viewPlanId, comparison, versions, weekLoad, loadLoading, run, progress,
+    data, loading, error, viewPlanId, comparison, versions, weekLoad, loadLoading, run, progress, flashIds,
     dataWindow, livePlan, pendingDraft, viewedPlan, itemsById, jobStates, moved, benchName, personName, running,
-    loadBoard, loadVersions, loadWeekLoad, refresh, loadComparison, setAnchor, step, today, showPlan, publish, discard,
+    loadBoard, loadVersions, loadWeekLoad, refresh, reloadBars, knownVersion, loadComparison, setAnchor, step, today, showPlan, publish, discard,
     startPlanner, stopPlanner, onProgress, onDrafted, onFailed, clearRun, move, setPinned,
   }
 })

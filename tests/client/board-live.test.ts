@@ -1,34 +1,8 @@
 // Live board: connection states, duplicate-free delivery by seq, catch-up with changes:since after a reconnect, and the debounced reload.
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest'
-import { effectScope } from 'vue'
-import { LiveChannel, type SocketLike } from '@/realtime/socket'
-import { createDebounce, useLiveBoard } from '@/composables/use-live-board'
-
-type Fn = (...args: any[]) => void
-
-/** A socket.io-client stand-in: the test plays the server. */
-class FakeSocket implements SocketLike {
-  connected = false
-  active = true
-  private handlers = new Map<string, Fn[]>()
-  private managerHandlers = new Map<string, Fn[]>()
-  /** What the client asked for with changes:since, and the ack to answer it. */
-  asks: { seq: number; ack: Fn }[] = []
-  io = {
-    on: (event: string, fn: Fn) => { this.managerHandlers.set(event, [...(this.managerHandlers.get(event) ?? []), fn]) },
-  }
-  on(event: string, fn: Fn) { this.handlers.set(event, [...(this.handlers.get(event) ?? []), fn]) }
-  off() {}
-  emit(event: string, ...args: unknown[]) {
-    if (event === 'changes:since') this.asks.push({ seq: args[0] as number, ack: args[1] as Fn })
-  }
-  connect() { this.serverConnects() }
-  disconnect() { this.connected = false; this.fire('disconnect', 'io client disconnect') }
-  fire(event: string, ...args: unknown[]) { for (const fn of this.handlers.get(event) ?? []) fn(...args) }
-  fireManager(event: string, ...args: unknown[]) { for (const fn of this.managerHandlers.get(event) ?? []) fn(...args) }
-  serverConnects() { this.connected = true; this.fire('connect') }
-  drops() { this.connected = false; this.fire('disconnect', 'transport close') }
-}
+import { LiveChannel } from '@/realtime/socket'
+import { createDebounce } from '@/lib/debounce'
+import { FakeSocket } from './fake-socket'
 
 const ev = (seq: number, id = seq) => ({ id, seq, operationId: id })
 
@@ -201,46 +175,5 @@ describe('debounced reload', () => {
     const d = createDebounce(fn, 150, 1000)
     for (let t = 0; t < 1100; t += 100) { d(); vi.advanceTimersByTime(100) }
     expect(fn).toHaveBeenCalledTimes(1)
-  })
-
-  it('when the live board hears a change, then it reloads after the debounce; a resync reloads at once; file events are ignored', () => {
-    const s = new FakeSocket()
-    const channel = new LiveChannel(s)
-    const reload = vi.fn()
-    const scope = effectScope()
-    scope.run(() => useLiveBoard({ reload, channel }))
-    s.serverConnects()
-    s.fire('plan:changed', ev(1))
-    s.fire('file:added', ev(2))
-    vi.advanceTimersByTime(149)
-    expect(reload).not.toHaveBeenCalled()
-    vi.advanceTimersByTime(1)
-    expect(reload).toHaveBeenCalledTimes(1)
-    s.drops()
-    s.serverConnects()
-    s.asks[0]!.ack([])
-    expect(reload).toHaveBeenCalledTimes(2)
-    scope.stop()
-    s.fire('plan:changed', ev(3))
-    vi.advanceTimersByTime(500)
-    expect(reload).toHaveBeenCalledTimes(2)
-  })
-
-  it('when a planner run fails, then the live board hands its run and reason on, once, without reloading the board', () => {
-    const s = new FakeSocket()
-    const channel = new LiveChannel(s)
-    const reload = vi.fn()
-    const onFailed = vi.fn()
-    const scope = effectScope()
-    scope.run(() => useLiveBoard({ reload, channel, onFailed }))
-    s.serverConnects()
-    const failed = { runId: 'run-1', error: 'The planner found no plan that keeps every rule.', seq: 4 }
-    s.fire('plan:failed', failed)
-    s.fire('plan:failed', failed)
-    expect(onFailed).toHaveBeenCalledTimes(1)
-    expect(onFailed).toHaveBeenCalledWith(failed)
-    vi.advanceTimersByTime(500)
-    expect(reload).not.toHaveBeenCalled()
-    scope.stop()
   })
 })

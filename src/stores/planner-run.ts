@@ -1,0 +1,114 @@
+// The planner run started from this tab, as one state machine: queued → running → drafted / failed / stopped, driven by the
+// socket's plan:progress, plan:drafted and plan:failed, and by polling the run only while the socket is disconnected.
+import { defineStore } from 'pinia'
+import { computed, ref, watch } from 'vue'
+import * as plansApi from '@/api/plans'
+import { runActive } from '@/api/plans'
+import type { PlanRun, RunProgress } from '@/api/plans'
+import type { PlanRunInput } from '@shared/schemas/plan'
+import { useLiveStore } from '@/stores/live'
+
+export type RunPhase = 'idle' | 'queued' | 'running' | 'drafted' | 'failed' | 'stopped'
+
+/** How often the run is asked for while the socket is down. */
+export const RUN_POLL_MS = 700
+
+const PHASE: Record<PlanRun['status'], RunPhase> = { queued: 'queued', running: 'running', done: 'drafted', failed: 'failed', cancelled: 'stopped' }
+
+export const usePlannerRunStore = defineStore('plannerRun', () => {
+  const live = useLiveStore()
+  const run = ref<PlanRun | null>(null)
+  const progress = ref<RunProgress | null>(null)
+  const phase = computed<RunPhase>(() => (run.value ? PHASE[run.value.status] : 'idle'))
+  const active = computed(() => runActive(run.value))
+  /** True while the fallback poll is scheduled (the socket is down and the run is not over). */
+  const polling = ref(false)
+  /** Told when our run's draft is known from the poll (the board lists and shows it, as for the socket event). */
+  let afterDrafted: ((planId: number, runId: string) => unknown) | null = null
+  let timer: ReturnType<typeof setTimeout> | null = null
+
+  async function start(body: PlanRunInput) {
+    progress.value = null
+    run.value = await plansApi.startRun(body)
+    schedule()
+    return run.value
+  }
+
+  async function stop() {
+    if (active.value) apply(await plansApi.stopRun(run.value!.id))
+  }
+
+  function clear() {
+    cancelPoll()
+    run.value = null
+    progress.value = null
+  }
+
+  /** plan:progress (any planner's run; only ours counts): a queued run is running now. */
+  function onProgress(p: RunProgress & { runId: string }) {
+    if (run.value?.id !== p.runId || !active.value) return
+    if (run.value.status === 'queued') run.value = { ...run.value, status: 'running' }
+    if (!progress.value || p.elapsedMs >= progress.value.elapsedMs) progress.value = { iteration: p.iteration, weightedTardiness: p.weightedTardiness, makespan: p.makespan, elapsedMs: p.elapsedMs }
+  }
+
+  /** plan:drafted: returns whether the draft is our run's (a draft without a run id while ours runs counts as ours). */
+  function onDrafted(planId: number, runId?: string): boolean {
+    const ours = !!run.value && (!runId || run.value.id === runId)
+    if (ours && active.value) run.value = { ...run.value!, status: 'done', planId }
+    return ours
+  }
+
+  /** plan:failed: ours shows the reason at once; a run already over keeps its outcome. */
+  function onFailed(p: { runId: string; error: string }) {
+    if (run.value?.id === p.runId && active.value) run.value = { ...run.value, status: 'failed', error: p.error }
+  }
+
+  /** An answer of GET /plans/runs/:id (poll, stop, catch-up after a reconnect). */
+  function apply(r: PlanRun) {
+    if (run.value?.id !== r.id || !active.value) return
+    run.value = r
+    if (r.progress && (!progress.value || r.progress.elapsedMs >= progress.value.elapsedMs)) progress.value = r.progress
+    if (r.status === 'done' && r.planId) void afterDrafted?.(r.planId, r.id)
+  }
+
+  async function fetchRun() {
+    const id = run.value?.id
+    if (!id) return
+    try {
+      apply(await plansApi.getRun(id))
+    } catch {
+      // Asked again at the next poll, or the socket brings the outcome.
+    }
+  }
+
+  function schedule() {
+    if (timer || !active.value || live.connected) return
+    polling.value = true
+    timer = setTimeout(async () => {
+      timer = null
+      if (!active.value || live.connected) return cancelPoll()
+      await fetchRun()
+      polling.value = false
+      schedule()
+    }, RUN_POLL_MS)
+  }
+
+  function cancelPoll() {
+    if (timer) clearTimeout(timer)
+    timer = null
+    polling.value = false
+  }
+
+  // The socket going down starts the poll; coming back stops it and asks once for what progress was missed.
+  watch(() => live.connected, (connected, was) => {
+    if (!connected) return schedule()
+    cancelPoll()
+    if (!was && active.value) void fetchRun()
+  }, { flush: 'sync' })
+
+  function setAfterDrafted(fn: typeof afterDrafted) {
+    afterDrafted = fn
+  }
+
+  return { run, progress, phase, active, polling, start, stop, clear, onProgress, onDrafted, onFailed, apply, fetchRun, setAfterDrafted }
+})

@@ -1,6 +1,8 @@
 // Bench floor API against real PostgreSQL: next for me, claim / start / pause / resume / finish, refusals, replays, 50 claims at once, time corrections.
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { HAZARD_CAUTIONS, HAZARD_FOOTER } from '../../shared/domain/status'
+import { and, arrayContains, asc, count, eq, inArray } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { auditRows, expectCleanError, expectFieldError } from './helpers'
 import { benchId, extraSetters, freshReady, makeReady, openOps, personIdOf, rid } from './bench-fixtures'
@@ -29,21 +31,28 @@ beforeAll(async () => {
 })
 afterAll(async () => { await t?.close() })
 
-const records = async (operationId: number) =>
-  (await t.pool.query('select * from time_records where operation_id = $1 order by id', [operationId])).rows as { id: number; started_at: Date; ended_at: Date | null; end_reason: string | null; note: string; person_id: number; client_id: string | null }[]
-const opRow = async (id: number) => (await t.pool.query('select * from operations where id = $1', [id])).rows[0]
+const records = async (operationId: number) => t.db.select().from(s.timeRecords).where(eq(s.timeRecords.operationId, operationId)).orderBy(asc(s.timeRecords.id))
+const opRow = async (id: number) => (await t.db.select().from(s.operations).where(eq(s.operations.id, id)))[0]!
+const ago = (minutes: number) => new Date(Date.now() - minutes * 60_000).toISOString()
+const setOp = (id: number, v: Partial<typeof s.operations.$inferInsert>) => t.db.update(s.operations).set(v).where(eq(s.operations.id, id))
+const setRecord = (id: number, v: Partial<typeof s.timeRecords.$inferInsert>) => t.db.update(s.timeRecords).set(v).where(eq(s.timeRecords.id, id))
+const setBag = (id: number, v: Partial<typeof s.jobBags.$inferInsert>) => t.db.update(s.jobBags).set(v).where(eq(s.jobBags.id, id))
+const mergeParams = async (id: number, extra: Partial<typeof s.jobBags.$inferSelect['params']>) => {
+  const [b] = await t.db.select({ params: s.jobBags.params }).from(s.jobBags).where(eq(s.jobBags.id, id))
+  await setBag(id, { params: { ...b!.params, ...extra } })
+}
 
 describe('next for me', () => {
   it('when a predecessor has just finished and its wait-after is still running, then the step is not offered and cannot be taken yet', async () => {
     // Pavé pendant: "File and emery" follows "Solder bail", which has a 20 min pickle wait after it (seeded routing).
     const files = await openOps(t, 'filing', { key: 'file', status: 'pending' })
-    const { rows: soldered } = await t.pool.query(`select job_bag_id from operations where key = 'solder' and job_bag_id = any($1::int[])`, [files.map((f) => f.job_bag_id)])
-    const file = files.find((f) => soldered.some((x: { job_bag_id: number }) => x.job_bag_id === f.job_bag_id))!
+    const soldered = await t.db.select({ jobBagId: s.operations.jobBagId }).from(s.operations).where(and(eq(s.operations.key, 'solder'), inArray(s.operations.jobBagId, files.map((f) => f.job_bag_id))))
+    const file = files.find((f) => soldered.some((x) => x.jobBagId === f.job_bag_id))!
     expect(file, 'an open pavé pendant whose "File and emery" is still pending').toBeDefined()
     await makeReady(t, file.id)
-    const { rows: [solder] } = await t.pool.query(`select id, wait_after_minutes from operations where job_bag_id = $1 and key = 'solder'`, [file.job_bag_id])
-    expect(solder.wait_after_minutes).toBeGreaterThan(0)
-    await t.pool.query(`update operations set finished_at = now() where id = $1`, [solder.id])
+    const solder = (await t.db.select({ id: s.operations.id, waitAfterMinutes: s.operations.waitAfterMinutes }).from(s.operations).where(and(eq(s.operations.jobBagId, file.job_bag_id), eq(s.operations.key, 'solder'))))[0]!
+    expect(solder.waitAfterMinutes).toBeGreaterThan(0)
+    await setOp(solder.id, { finishedAt: ago(0) })
     const next = await trainee.get(`/api/bench/next?benchId=${fab1}`)
     expect(next.status).toBe(200)
     expect(next.body.items.map((i: { id: number }) => i.id)).not.toContain(file.id)
@@ -54,7 +63,7 @@ describe('next for me', () => {
     expect(Number(/can start in (\d+) min/.exec(r.body.error)![1])).toBeGreaterThanOrEqual(19)
     expect(Number(/can start in (\d+) min/.exec(r.body.error)![1])).toBeLessThanOrEqual(20)
     // Once the wait is over, it is offered again.
-    await t.pool.query(`update operations set finished_at = now() - interval '1 hour' where id = $1`, [solder.id])
+    await setOp(solder.id, { finishedAt: ago(60) })
     const later = await trainee.get(`/api/bench/next?benchId=${fab1}`)
     expect(later.body.items.map((i: { id: number }) => i.id)).toContain(file.id)
   })
@@ -82,10 +91,10 @@ describe('next for me', () => {
 
   it('when a planned start is set, then that step comes first', async () => {
     const [, second] = await openOps(t, 'setting', { key: 'set', status: 'ready' })
-    await t.pool.query(`update operations set planned_start = now() + interval '1 hour' where id = $1`, [second!.id])
+    await setOp(second!.id, { plannedStart: ago(-60) })
     const r = await setter.get(`/api/bench/next?benchId=${setA}`)
     expect(r.body.items[0].id).toBe(second!.id)
-    await t.pool.query('update operations set planned_start = null where id = $1', [second!.id])
+    await setOp(second!.id, { plannedStart: null })
   })
 
   it('when the bench is unknown or missing, then 400 names benchId', async () => {
@@ -138,7 +147,7 @@ describe('claim → start → pause → resume → finish', () => {
     expect(r.body.operation.runningSince).toEqual(expect.any(String))
     const recs = await records(op.id)
     expect(recs).toHaveLength(1)
-    expect(recs[0]).toMatchObject({ person_id: setterPerson, ended_at: null })
+    expect(recs[0]).toMatchObject({ personId: setterPerson, endedAt: null })
   })
 
   it('when she starts a second step while one runs, then 409 names the running one', async () => {
@@ -165,8 +174,8 @@ describe('claim → start → pause → resume → finish', () => {
     expect(r.status).toBe(200)
     expect(r.body.operation.status).toBe('paused')
     const recs = await records(op.id)
-    expect(recs[0]).toMatchObject({ end_reason: 'waiting-for-parts', note: 'stones not matched' })
-    expect(recs[0]!.ended_at).not.toBeNull()
+    expect(recs[0]).toMatchObject({ endReason: 'waiting-for-parts', note: 'stones not matched' })
+    expect(recs[0]!.endedAt).not.toBeNull()
   })
 
   it('when she resumes and finishes, then a second record opens and closes, actual minutes are their sum, and the next step becomes ready in the same step', async () => {
@@ -174,8 +183,8 @@ describe('claim → start → pause → resume → finish', () => {
     expect(await records(op.id)).toHaveLength(2)
     // Back-date both records a little so minutes are measurable.
     const recs = await records(op.id)
-    await t.pool.query(`update time_records set started_at = now() - interval '50 minutes', ended_at = now() - interval '30 minutes' where id = $1`, [recs[0]!.id])
-    await t.pool.query(`update time_records set started_at = now() - interval '15 minutes' where id = $1`, [recs[1]!.id])
+    await setRecord(recs[0]!.id, { startedAt: ago(50), endedAt: ago(30) })
+    await setRecord(recs[1]!.id, { startedAt: ago(15) })
     const emit = vi.spyOn(t.realtime, 'emit')
     const r = await setter.post(`/api/bench/operations/${op.id}/finish`, { requestId: rid(), note: 'all stones tight' })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
@@ -184,16 +193,16 @@ describe('claim → start → pause → resume → finish', () => {
     expect(r.body.operation.actualMinutes).toBeGreaterThanOrEqual(34.9)
     expect(r.body.operation.actualMinutes).toBeLessThan(36)
     const after = await records(op.id)
-    expect(after[1]).toMatchObject({ end_reason: 'finished', note: 'all stones tight' })
-    const successor = (await t.pool.query(`select id, status from operations where job_bag_id = $1 and $2 = any(after)`, [op.job_bag_id, op.key])).rows
+    expect(after[1]).toMatchObject({ endReason: 'finished', note: 'all stones tight' })
+    const successor = await t.db.select({ id: s.operations.id, status: s.operations.status }).from(s.operations).where(and(eq(s.operations.jobBagId, op.job_bag_id), arrayContains(s.operations.after, [op.key])))
     expect(successor.length).toBeGreaterThan(0)
     for (const s of successor) expect(s.status).toBe('ready')
-    expect(r.body.readied.sort()).toEqual(successor.map((s: { id: number }) => s.id).sort())
+    expect(r.body.readied.sort()).toEqual(successor.map((x) => x.id).sort())
     for (const s of successor) expect(emit).toHaveBeenCalledWith(expect.any(Number), 'operation:changed', expect.objectContaining({ id: s.id, status: 'ready' }))
     emit.mockRestore()
     const actions = (await auditRows(t, 'operation', op.id)).map((a) => a.action).reverse()
     expect(actions).toEqual(['claim', 'start', 'pause', 'resume', 'finish'])
-    expect((await auditRows(t, 'operation', successor[0].id))[0]).toMatchObject({ action: 'ready', details: expect.objectContaining({ from: 'pending', to: 'ready' }) })
+    expect((await auditRows(t, 'operation', successor[0]!.id))[0]).toMatchObject({ action: 'ready', details: expect.objectContaining({ from: 'pending', to: 'ready' }) })
   })
 
   it('when the planner reads a finished step, then it knows when the step finished (its last record), so a wait after it still holds', async () => {
@@ -202,10 +211,10 @@ describe('claim → start → pause → resume → finish', () => {
     const done = data.problem.operations.find((o) => o.id === String(op.id))
     expect(done?.done).toBe(true)
     const recs = await records(op.id)
-    const last = recs.map((r) => new Date(r.ended_at!).getTime()).sort((a, b) => b - a)[0]!
+    const last = recs.map((r) => new Date(r.endedAt!).getTime()).sort((a, b) => b - a)[0]!
     const row = await opRow(op.id)
     // The step's own finish time, or the end of its last record; either is within a minute of the last record.
-    expect(done!.finishedAt).toBe(data.clock.toMinute(row.finished_at ?? new Date(last).toISOString()))
+    expect(done!.finishedAt).toBe(data.clock.toMinute(row.finishedAt ?? new Date(last).toISOString()))
     expect(Math.abs(done!.finishedAt! - data.clock.toMinute(new Date(last).toISOString()))).toBeLessThanOrEqual(1)
   })
 
@@ -258,11 +267,11 @@ describe('refusals', () => {
 
   it('when the job bag is on hold, then claiming is refused with 422', async () => {
     const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
-    await t.pool.query(`update job_bags set status = 'on-hold' where id = $1`, [op.job_bag_id])
+    await setBag(op.job_bag_id, { status: 'on-hold' })
     const r = await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
     expectCleanError(r, 422)
     expect(r.body.error).toMatch(/on hold/)
-    await t.pool.query(`update job_bags set status = 'waiting' where id = $1`, [op.job_bag_id])
+    await setBag(op.job_bag_id, { status: 'waiting' })
   })
 
   it('when the operation does not exist or belongs to nobody here, then 404', async () => {
@@ -319,7 +328,7 @@ describe('replays', () => {
     expect(f3.body).toEqual(f1.body)
     const recs = await records(op.id)
     expect(recs).toHaveLength(1)
-    expect(recs[0]!.end_reason).toBe('finished')
+    expect(recs[0]!.endReason).toBe('finished')
     expect((await auditRows(t, 'operation', op.id)).filter((a) => a.action === 'finish')).toHaveLength(1)
   })
 
@@ -358,10 +367,10 @@ describe('50 claims at once', () => {
     const winner = crowd.find((c) => c.personId === ok[0]!.body.operation.claimedBy)!
     for (const r of refused) expect(r.body.error).toContain(winner.name)
     const row = await opRow(op.id)
-    expect(row).toMatchObject({ status: 'claimed', claimed_by: winner.personId })
+    expect(row).toMatchObject({ status: 'claimed', claimedBy: winner.personId })
     expect((await auditRows(t, 'operation', op.id)).filter((a) => a.action === 'claim')).toHaveLength(claimsBefore + 1)
     expect(await records(op.id)).toEqual([])
-    const stored = (await t.pool.query(`select status, count(*)::int as n from bench_requests where request_id = any($1::text[]) group by status order by status`, [requestIds])).rows
+    const stored = await t.db.select({ status: s.benchRequests.status, n: count() }).from(s.benchRequests).where(inArray(s.benchRequests.requestId, requestIds)).groupBy(s.benchRequests.status).orderBy(asc(s.benchRequests.status))
     expect(stored, JSON.stringify(stored)).toEqual([{ status: 200, n: 1 }, { status: 409, n: 49 }])
   })
 })
@@ -376,7 +385,7 @@ describe('time record corrections', () => {
     await setter.post(`/api/bench/operations/${opId}/start`, { requestId: rid(), benchId: setA })
     await setter.post(`/api/bench/operations/${opId}/pause`, { requestId: rid(), reason: 'end-of-day' })
     recordId = (await records(opId))[0]!.id
-    await t.pool.query(`update time_records set started_at = '2025-01-07T09:00:00Z', ended_at = '2025-01-07T09:10:00Z' where id = $1`, [recordId])
+    await setRecord(recordId, { startedAt: '2025-01-07T09:00:00Z', endedAt: '2025-01-07T09:10:00Z' })
   })
 
   it('when a manager corrects the end of a record, then the actual minutes use it, the record itself is unchanged, and who and why are kept', async () => {
@@ -386,8 +395,8 @@ describe('time record corrections', () => {
     expect(r.body).toMatchObject({ minutes: 90, recordedEndedAt: '2025-01-07T09:10:00.000Z', endedAt: '2025-01-07T10:30:00.000Z' })
     expect(r.body.corrections[0]).toMatchObject({ kind: 'change', by: 'Sam Ottery', reason: expect.stringMatching(/lunch/) })
     const raw = await records(opId)
-    expect(raw[0]!.ended_at!.toISOString()).toBe('2025-01-07T09:10:00.000Z')
-    const bag = await manager.get(`/api/job-bags/${(await opRow(opId)).job_bag_id}`)
+    expect(raw[0]!.endedAt).toBe('2025-01-07T09:10:00.000Z')
+    const bag = await manager.get(`/api/job-bags/${(await opRow(opId)).jobBagId}`)
     expect(bag.body.operations.find((o: { id: number }) => o.id === opId).actualMinutes).toBe(90)
     expect((await auditRows(t, 'operation', opId))[0]).toMatchObject({ action: 'correct-time' })
   })
@@ -403,7 +412,7 @@ describe('time record corrections', () => {
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.minutes).toBe(45)
     expect(r.body.corrections[0]).toMatchObject({ kind: 'add', reason: 'tablet was flat' })
-    const bag = await manager.get(`/api/job-bags/${(await opRow(opId)).job_bag_id}`)
+    const bag = await manager.get(`/api/job-bags/${(await opRow(opId)).jobBagId}`)
     expect(bag.body.operations.find((o: { id: number }) => o.id === opId).actualMinutes).toBe(105)
   })
 
@@ -429,7 +438,7 @@ describe('acting on behalf and outside work', () => {
     const s = await manager.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
     // The setter has a paused step only (from the correction tests), so nothing else is running.
     expect(s.status, JSON.stringify(s.body)).toBe(200)
-    expect((await records(op.id))[0]!.person_id).toBe(setterPerson)
+    expect((await records(op.id))[0]!.personId).toBe(setterPerson)
     const a = await auditRows(t, 'operation', op.id)
     expect(a[0]!.user_id).not.toBe(a[0]!.details.personId)
   })
@@ -443,11 +452,11 @@ describe('acting on behalf and outside work', () => {
     expect(out.body.operation.status).toBe('running')
     // The planner keeps it away from the moment it left, for its working days.
     const sent = await opRow(hm.id)
-    expect(Math.abs(new Date(sent.planned_start).getTime() - Date.now())).toBeLessThan(60_000)
+    expect(Math.abs(new Date(sent.plannedStart!).getTime() - Date.now())).toBeLessThan(60_000)
     const { loadPlanningData } = await import('../../server/planning/problem')
     const data = await loadPlanningData(t.db, 1, new Date())
     const away = data.problem.operations.find((o) => o.id === String(hm.id))!
-    expect(away.fixed?.start).toBe(data.clock.toMinute(sent.planned_start))
+    expect(away.fixed?.start).toBe(data.clock.toMinute(sent.plannedStart!))
     expect(away.outsideWorkingDays).toBeGreaterThan(0)
     const back = await manager.post(`/api/operations/${hm.id}/receive`, { requestId: rid() })
     expect(back.body.operation.status).toBe('done')
@@ -458,24 +467,24 @@ describe('acting on behalf and outside work', () => {
 describe('what a running card shows', () => {
   it('when a setter starts setting a bag of 3 pieces with 14 stones of 1.25 mm each, then the operation carries 14 a piece × 3 = 42 stones, their size and the step’s planned minutes', async () => {
     const op = await freshReady(t, 'setting', 'set')
-    await t.pool.query(`update job_bags set params = params || '{"stoneCount": 14, "stoneSizeMm": 1.25, "quantity": 3}'::jsonb where id = $1`, [op.job_bag_id])
-    const { rows: [row] } = await t.pool.query('select o.estimate_minutes, jb.params from operations o join job_bags jb on jb.id = o.job_bag_id where o.id = $1', [op.id])
-    const [s] = await extraSetters(t, 1, 'card')
-    expect((await s!.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })).status).toBe(200)
-    const r = await s!.agent.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
+    await mergeParams(op.job_bag_id, { stoneCount: 14, stoneSizeMm: 1.25, quantity: 3 })
+    const row = (await t.db.select({ estimateMinutes: s.operations.estimateMinutes, params: s.jobBags.params }).from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).where(eq(s.operations.id, op.id)))[0]!
+    const [card] = await extraSetters(t, 1, 'card')
+    expect((await card!.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })).status).toBe(200)
+    const r = await card!.agent.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     // Hand-worked: 14 stones per piece × 3 pieces = 42; the size is the bag's stoneSizeMm as recorded.
     expect(r.body.operation.stones).toEqual({ perPiece: 14, pieces: 3, total: 42, sizeMm: 1.25 })
     // Planned minutes are the operation's own estimate, as stored (not recomputed for the card).
-    expect(r.body.operation.estimateMinutes).toBe(row.estimate_minutes)
+    expect(r.body.operation.estimateMinutes).toBe(row.estimateMinutes)
     expect(r.body.operation.metal).toBe(row.params.metal)
-    const mine = await s!.agent.get('/api/bench/mine')
+    const mine = await card!.agent.get('/api/bench/mine')
     expect(mine.body.items.find((x: { id: number }) => x.id === op.id).stones).toEqual({ perPiece: 14, pieces: 3, total: 42, sizeMm: 1.25 })
   })
 
   it('when a bag records no stone size, then the size is null rather than 0 mm', async () => {
     const op = await freshReady(t, 'setting', 'set')
-    await t.pool.query(`update job_bags set params = params || '{"stoneCount": 6, "stoneSizeMm": 0, "quantity": 1}'::jsonb where id = $1`, [op.job_bag_id])
+    await mergeParams(op.job_bag_id, { stoneCount: 6, stoneSizeMm: 0, quantity: 1 })
     const r = await setter.get(`/api/bench/next?benchId=${setA}`)
     expect(r.body.items.find((x: { id: number }) => x.id === op.id).stones).toEqual({ perPiece: 6, pieces: 1, total: 6, sizeMm: null })
   })

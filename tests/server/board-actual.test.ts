@@ -2,23 +2,17 @@
 // voided records left out), running steps from their first start; neither can be moved.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { boardAnswer } from '../../shared/schemas/board'
+import { and, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { readyBenchStep as readyStepWithPeople } from '../setup/fixtures'
 
 let t: TestApp
 let manager: Agent
 
 /** An open, ready bench step of the demo (not outside work), with a person skilled for it and a bench that hosts it. */
-async function readyBenchStep(skip: number[] = []) {
-  const { rows } = await t.pool.query(`
-    select o.id, o.kind_id, o.required_level, o.estimate_minutes, jb.number
-      from operations o join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id join operation_kinds k on k.id = o.kind_id
-     where o.status = 'ready' and ord.status = 'open' and not k.outside and o.lead_days = 0 and not (o.id = any($1::int[]))
-     order by o.id limit 1`, [skip])
-  const op = rows[0]
-  const { rows: [who] } = await t.pool.query(`select ps.person_id from person_skills ps join people p on p.id = ps.person_id where ps.kind_id = $1 and ps.level >= $2 and p.active order by ps.person_id limit 1`, [op.kind_id, op.required_level])
-  const { rows: [where] } = await t.pool.query(`select bc.bench_id from bench_capabilities bc join benches b on b.id = bc.bench_id where bc.kind_id = $1 and b.active order by bc.bench_id limit 1`, [op.kind_id])
-  return { id: op.id as number, number: op.number as string, estimate: op.estimate_minutes as number, personId: who.person_id as number, benchId: where.bench_id as number }
-}
+const readyBenchStep = (skip: number[] = []) => readyStepWithPeople(t.db, skip)
+const setOp = (id: number, v: Partial<typeof s.operations.$inferInsert>) => t.db.update(s.operations).set(v).where(eq(s.operations.id, id))
 
 beforeAll(async () => {
   t = await createTestApp()
@@ -42,7 +36,7 @@ describe('finished work on the board', () => {
     for (const r of [r1, r2, r3]) expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect((await manager.post(`/api/time-records/${r2.body.id}/corrections`, { startedAt: '2026-11-25T11:05:00Z', endedAt: '2026-11-25T12:20:00Z', reason: 'tapped late and early' })).status).toBe(201)
     expect((await manager.post(`/api/time-records/${r3.body.id}/corrections`, { void: true, reason: 'tapped on the wrong job' })).status).toBe(201)
-    await t.pool.query(`update operations set status = 'done', finished_at = '2026-11-25T12:20:00Z', planned_start = '2026-11-25T09:00:00Z', planned_end = '2026-11-25T11:30:00Z' where id = $1`, [op.id])
+    await setOp(op.id, { status: 'done', finishedAt: '2026-11-25T12:20:00Z', plannedStart: '2026-11-25T09:00:00Z', plannedEnd: '2026-11-25T11:30:00Z' })
 
     const r = await manager.get('/api/board?from=2026-11-23&to=2026-11-29')
     expect(r.status).toBe(200)
@@ -60,6 +54,7 @@ describe('finished work on the board', () => {
     expect(bar.personId).toBe(op.personId)
 
     // The same figures straight from the database, corrections applied by hand in SQL (newest change wins, voided left out).
+    // Raw SQL on purpose: an independent reckoning of the records the board is checked against, not a fixture.
     const { rows: [db] } = await t.pool.query(`
       with eff as (
         select tr.id,
@@ -79,27 +74,29 @@ describe('finished work on the board', () => {
   })
 
   it('when a finished step is moved, then the move is refused because it is done; a step of a collected order is refused too', async () => {
-    const { rows: [done] } = await t.pool.query(`select o.id, o.version from operations o join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id where o.status = 'done' and ord.status = 'open' limit 1`)
+    const stepOf = (...where: Parameters<typeof and>) => t.db.select({ id: s.operations.id, version: s.operations.version }).from(s.operations)
+      .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).where(and(...where)).limit(1).then((r) => r[0]!)
+    const done = await stepOf(eq(s.operations.status, 'done'), eq(s.orders.status, 'open'))
     expect(done, 'a finished step of an open order (from the test before)').toBeTruthy()
     const r = await manager.patch(`/api/board/operations/${done.id}`, { start: '2027-01-05T10:00:00Z', version: done.version })
     expect(r.status, JSON.stringify(r.body)).toBe(422)
     expect(r.body.error).toMatch(/is done; it cannot be moved/)
     expect(r.body.details).toEqual({ rule: 'status' })
-    const { rows: [old] } = await t.pool.query(`select o.id, o.version from operations o join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id where ord.status = 'collected' limit 1`)
+    const old = await stepOf(eq(s.orders.status, 'collected'))
     const closed = await manager.patch(`/api/board/operations/${old.id}`, { start: '2027-01-05T10:00:00Z', version: old.version })
     expect(closed.status).toBe(422)
     expect(closed.body.details).toEqual({ rule: 'closed' })
     // Nothing was written.
-    const { rows: [after] } = await t.pool.query(`select version, planned_start from operations where id = $1`, [done.id])
-    expect(after.version).toBe(done.version)
-    expect(new Date(after.planned_start).toISOString()).toBe('2026-11-25T09:00:00.000Z')
+    const [after] = await t.db.select({ version: s.operations.version, plannedStart: s.operations.plannedStart }).from(s.operations).where(eq(s.operations.id, done.id))
+    expect(after!.version).toBe(done.version)
+    expect(after!.plannedStart).toBe('2026-11-25T09:00:00.000Z')
   })
 
   it('when a step is running, then the board draws it from its first start to now and it cannot be moved', async () => {
-    const op = await readyBenchStep((await t.pool.query(`select id from operations where status = 'done'`)).rows.map((x) => x.id))
+    const op = await readyBenchStep((await t.db.select({ id: s.operations.id }).from(s.operations).where(eq(s.operations.status, 'done'))).map((x) => x.id))
     const started = new Date(Date.now() - 50 * 60_000)
-    await t.pool.query(`insert into time_records (operation_id, person_id, bench_id, started_at) values ($1, $2, $3, $4)`, [op.id, op.personId, op.benchId, started.toISOString()])
-    await t.pool.query(`update operations set status = 'running', claimed_by = $2 where id = $1`, [op.id, op.personId])
+    await t.db.insert(s.timeRecords).values({ operationId: op.id, personId: op.personId, benchId: op.benchId, startedAt: started.toISOString() })
+    await setOp(op.id, { status: 'running', claimedBy: op.personId })
     const from = new Date(started.getTime() - 7 * 86_400_000).toISOString().slice(0, 10)
     const to = new Date(started.getTime() + 7 * 86_400_000).toISOString().slice(0, 10)
     const before = Date.now()

@@ -61,7 +61,7 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   realtime.useDatabase(pool)
   const cache = new Cache(realtime)
   useSessionUserCache(db, cache)
-  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: ownAppUrl(config), accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS }, checkAnswers: config.NODE_ENV !== 'production' }
+  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: ownAppUrl(config), accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS, benchSessionDays: config.BENCH_SESSION_DAYS }, checkAnswers: config.NODE_ENV !== 'production' }
   if (jobs) deps.jobs = jobs
 
   const api = express.Router()

@@ -11,6 +11,8 @@ const schema = z.object({
   SESSION_IDLE_MINUTES: z.coerce.number().int().min(1).default(12 * 60),
   /** Bench tablets stay signed in this long. */
   BENCH_SESSION_DAYS: z.coerce.number().int().min(1).default(30),
+  /** How often open sockets are checked for a session that ended without a request (idle expiry, another process). */
+  SOCKET_SESSION_SWEEP_MS: z.coerce.number().int().min(50).default(30_000),
   /** Failed sign-ins allowed in 15 minutes, counted per address and per account (successful ones do not count). */
   LOGIN_ATTEMPTS_PER_15_MIN: z.coerce.number().int().min(1).default(20),
   /** Invitation links stay usable this many hours, password-reset links this many minutes; a bench PIN lasts this many seconds (or one action). */

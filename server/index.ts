@@ -23,7 +23,7 @@ export async function startServer(config: Config) {
   // Broadcasts and disconnects reach the sockets of every instance over this database (one instance works the same).
   io.adapter(createAdapter(pool, { errorHandler: (err) => console.error('[realtime] adapter:', err.message) }))
   await realtime.listen(config.DATABASE_URL)
-  attachSockets(io, { sessionMiddleware, passport, realtime })
+  attachSockets(io, { sessionMiddleware, passport, realtime, sweepMs: config.SOCKET_SESSION_SWEEP_MS })
   await new Promise<void>((resolve, reject) => {
     http.once('error', reject)
     http.listen(config.PORT, config.HOST, () => resolve())

@@ -13,30 +13,23 @@ import { people, users, workshops } from '../db/schema/index'
 import { AppError } from '../errors/app-error'
 import type { Access, Actor } from '../lib/route'
 import { ANY_WORKSHOP, cachedOr, type Cache } from '../lib/cache'
+import { sessionUserKey } from '../lib/session-users'
 import type { SessionUser } from '../../shared/schemas/session'
 
 // A hash to verify against when the e-mail is unknown, so timing does not reveal which addresses exist.
 const DUMMY_HASH = '$argon2id$v=19$m=19456,t=2,p=1$c29tZXNhbHRzb21lc2FsdA$W5CGbW6oN9cFs9Rz1b1N0VqC0n3FJQ7m8pQmYb3dZ2k'
 
 // Signed-in users are looked up on every request; a short stay in the app's cache spares the database, and changes to a
-// user drop their entry here and on every other instance.
+// user drop their entry here and on every other instance (services call dropSessionUsers in lib/session-users.ts with deps.cache).
 const cacheByDb = new WeakMap<Db, Cache>()
-const caches = new Set<Cache>()
 const USER_CACHE_MS = 2000
 /** Signed-in users of this database are kept in the app's cache (createApp). */
 export function useSessionUserCache(db: Db, cache: Cache) {
   cacheByDb.set(db, cache)
-  caches.add(cache)
-}
-export function forgetSessionUser(userId?: number) {
-  for (const c of caches) {
-    if (userId === undefined) c.dropWorkshop(ANY_WORKSHOP, { everywhere: true })
-    else c.drop(ANY_WORKSHOP, `user|${userId}`, { everywhere: true })
-  }
 }
 
 function cachedSessionUser(db: Db, userId: number): Promise<SessionUser | null> {
-  return cachedOr(cacheByDb.get(db), ANY_WORKSHOP, `user|${userId}`, () => loadSessionUser(db, userId), { ttlMs: USER_CACHE_MS })
+  return cachedOr(cacheByDb.get(db), ANY_WORKSHOP, sessionUserKey(userId), () => loadSessionUser(db, userId), { ttlMs: USER_CACHE_MS })
 }
 
 export async function loadSessionUser(db: Db, userId: number): Promise<SessionUser | null> {

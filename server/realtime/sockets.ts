@@ -12,7 +12,7 @@ interface SocketRequest { user?: SessionUser; sessionID?: string; sessionStore?:
 
 export function attachSockets(
   io: Server<ClientToServerEvents, ServerToClientEvents>,
-  o: { sessionMiddleware: RequestHandler; passport: Authenticator; realtime: Realtime },
+  o: { sessionMiddleware: RequestHandler; passport: Authenticator; realtime: Realtime; /** config.SOCKET_SESSION_SWEEP_MS */ sweepMs: number },
 ) {
   io.engine.use(o.sessionMiddleware)
   io.engine.use(o.passport.session())
@@ -44,7 +44,6 @@ export function attachSockets(
     })
   })
   // Sessions also end without a request here (idle expiry, another process): connections whose session is gone are closed.
-  const sweepMs = Number(process.env.SOCKET_SESSION_SWEEP_MS ?? 30_000)
   const sweep = setInterval(() => {
     for (const s of io.of('/').sockets.values()) {
       const req = s.request as SocketRequest
@@ -53,7 +52,7 @@ export function attachSockets(
         if (!err && !(sess as { passport?: { user?: unknown } } | null | undefined)?.passport?.user) s.disconnect(true)
       })
     }
-  }, sweepMs)
+  }, o.sweepMs)
   sweep.unref()
   io.httpServer?.once('close', () => clearInterval(sweep))
   o.realtime.attach(io)

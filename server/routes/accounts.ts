@@ -14,9 +14,9 @@ import { idParam } from './params'
 
 const OWNER: Role[] = ['owner']
 const BENCH: Role[] = ['bench']
-const BENCH_DAYS = Number(process.env.BENCH_SESSION_DAYS ?? 30)
-
-const lifetimes = (deps: Deps) => deps.accounts ?? { ...accounts.DEFAULT_LIFETIMES, pinSeconds: 120 }
+const lifetimes = (deps: Deps) => deps.accounts ?? { ...accounts.DEFAULT_LIFETIMES, pinSeconds: 120, benchSessionDays: 30 }
+/** Where the request came in, for links when the workshop has no public address. */
+const arrivedAt = (req: Request): accounts.ArrivedAt => ({ port: req.socket.localPort, secure: req.secure })
 const save = (req: Request) => new Promise<void>((r, j) => req.session.save((e) => (e ? j(e) : r())))
 const notStation = () => new AppError({ code: 'unprocessable', message: 'This tablet is not signed in as a bench station; a manager can make it one from the bench page' })
 
@@ -32,8 +32,8 @@ async function signInAs(req: Request, deps: Deps, userId: number) {
 
 export const accountRoutes = [
   route({ method: 'get', path: '/invitations', roles: OWNER, summary: 'Invitations not yet accepted (owner)', handler: ({ deps, actor }) => accounts.listInvitations(deps.db, actor.workshopId) }),
-  route({ method: 'post', path: '/invitations', roles: OWNER, status: 201, summary: 'Invite someone by e-mail with a one-time link (owner)', body: invitationInput, handler: ({ deps, actor, body, req }) => accounts.invite(deps, actor, body, req, lifetimes(deps)) }),
-  route({ method: 'post', path: '/invitations/:id/resend', roles: OWNER, summary: 'Send an invitation again with a new link; the old link stops working (owner)', params: idParam, handler: ({ deps, actor, params, req }) => accounts.resendInvitation(deps, actor, params.id, req, lifetimes(deps)) }),
+  route({ method: 'post', path: '/invitations', roles: OWNER, status: 201, summary: 'Invite someone by e-mail with a one-time link (owner)', body: invitationInput, handler: ({ deps, actor, body, req }) => accounts.invite(deps, actor, body, arrivedAt(req), lifetimes(deps)) }),
+  route({ method: 'post', path: '/invitations/:id/resend', roles: OWNER, summary: 'Send an invitation again with a new link; the old link stops working (owner)', params: idParam, handler: ({ deps, actor, params, req }) => accounts.resendInvitation(deps, actor, params.id, arrivedAt(req), lifetimes(deps)) }),
   route({ method: 'delete', path: '/invitations/:id', roles: OWNER, summary: 'Withdraw an invitation; its link stops working (owner)', params: idParam, handler: async ({ deps, actor, params }) => { await accounts.withdrawInvitation(deps, actor, params.id) } }),
 
   route({ method: 'get', path: '/account-links/:token', roles: 'public', summary: 'What a one-time link is for (invitation or new password), if it still works', params: linkToken, handler: ({ deps, params }) => accounts.linkInfo(deps.db, params.token) }),
@@ -49,7 +49,7 @@ export const accountRoutes = [
     method: 'post', path: '/password-reset', roles: 'public', status: 202, summary: 'Ask for a new-password link by e-mail (the answer is the same whether or not the address has an account)', body: resetRequest,
     handler: async ({ deps, body, req }) => {
       // Not awaited: the answer must not wait longer (or differ) when the address has an account.
-      void accounts.requestReset(deps, body.email, req, lifetimes(deps)).catch((err: Error) => console.error('[accounts] reset request failed:', err.message))
+      void accounts.requestReset(deps, body.email, arrivedAt(req), lifetimes(deps)).catch((err: Error) => console.error('[accounts] reset request failed:', err.message))
       return { ok: true, message: `If ${body.email} belongs to an account here, a link to choose a new password is on its way. It works once, for ${lifetimes(deps).resetMinutes} minutes.` }
     },
   }),
@@ -80,7 +80,7 @@ export const accountRoutes = [
       await deps.db.transaction((tx) => audit(tx, actor, 'start-station', 'bench', s.benchId, { benchName: s.benchName }))
       req.session.station = s
       delete req.session.benchPerson
-      req.session.cookie.maxAge = BENCH_DAYS * 86_400_000
+      req.session.cookie.maxAge = lifetimes(deps).benchSessionDays * 86_400_000
       const token = csrfToken(req)
       await save(req)
       return { user: stationUser(req.user as SessionUser, s), csrfToken: token }

@@ -8,8 +8,6 @@ import { route } from '../lib/route'
 import { csrfToken } from '../middleware/csrf'
 import { EVERYONE } from '../../shared/domain/roles'
 
-const BENCH_DAYS = Number(process.env.BENCH_SESSION_DAYS ?? 30)
-
 function authenticate(req: Request, passport: NonNullable<import('../lib/route').Deps['passport']>): Promise<SessionUser> {
   return new Promise((resolve, reject) => {
     passport.authenticate('local', (err: unknown, user: SessionUser | false, info?: { message?: string }) => {
@@ -48,7 +46,7 @@ export const sessionRoutes = [
       const user = await authenticate(req, deps.passport!)
       // req.login regenerates the session id (no fixation); the CSRF token is renewed with it.
       await new Promise<void>((r, j) => req.login(user, (e) => (e ? j(e) : r())))
-      if (user.role === 'bench') req.session.cookie.maxAge = BENCH_DAYS * 86_400_000
+      if (user.role === 'bench') req.session.cookie.maxAge = (deps.accounts?.benchSessionDays ?? 30) * 86_400_000
       const token = csrfToken(req)
       await new Promise<void>((r, j) => req.session.save((e) => (e ? j(e) : r())))
       return { user, csrfToken: token }

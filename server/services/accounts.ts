@@ -2,7 +2,6 @@
 import { createHash, randomBytes } from 'node:crypto'
 import { and, desc, eq, gt, isNull, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/pg-core'
-import type { Request } from 'express'
 import { ROLE_LABELS } from '../../shared/domain/roles'
 import type { Invitation, InvitationInput, LinkInfo } from '../../shared/schemas/account'
 import type { Db, Trx } from '../db/client'
@@ -12,7 +11,7 @@ import type { Actor, Deps } from '../lib/route'
 import { LOCK } from '../lib/locks'
 import { suggestPublicUrl } from '../lib/public-url'
 import { invitationMail, resetMail } from '../mail/account-templates'
-import { forgetSessionUser } from '../middleware/auth'
+import { dropSessionUsers } from '../lib/session-users'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { hashPassword } from './users'
@@ -30,11 +29,14 @@ export function newLinkToken() {
   return { token, hash: sha256(token) }
 }
 
+/** Where a request came in: the local port it reached and whether it came over https (the route reads them from the request). */
+export interface ArrivedAt { port: number | undefined; secure: boolean }
+
 /** Where links point: the workshop's public address, else the address this server listens on (never the request's Host header). */
-export function linkBase(req: Pick<Request, 'socket' | 'secure'>, listenHost: string | undefined, publicUrl: string): string {
+export function linkBase(at: ArrivedAt, listenHost: string | undefined, publicUrl: string): string {
   if (publicUrl.trim()) return publicUrl.trim().replace(/\/+$/, '')
-  const port = req.socket.localPort ?? 8080
-  const scheme = req.secure ? 'https' : 'http'
+  const port = at.port ?? 8080
+  const scheme = at.secure ? 'https' : 'http'
   const s = suggestPublicUrl(port, listenHost ?? '127.0.0.1')
   if (s.reachable && s.url) return s.url.replace(/^http:/, `${scheme}:`)
   return `${scheme}://127.0.0.1:${port}`
@@ -61,14 +63,14 @@ async function workshopOf(db: Db | Trx, workshopId: number) {
   return w!
 }
 
-async function sendInvitation(deps: Deps, actor: Actor, row: { id: number; email: string; name: string; role: string | null }, token: string, req: Request, hours: number) {
+async function sendInvitation(deps: Deps, actor: Actor, row: { id: number; email: string; name: string; role: string | null }, token: string, at: ArrivedAt, hours: number) {
   const w = await workshopOf(deps.db, actor.workshopId)
-  const link = `${linkBase(req, deps.listenHost, w.publicUrl)}${invitePath(token)}`
+  const link = `${linkBase(at, deps.listenHost, w.publicUrl)}${invitePath(token)}`
   const mail = invitationMail({ workshopName: w.name, name: row.name, invitedBy: actor.name, roleLabel: ROLE_LABELS[row.role as keyof typeof ROLE_LABELS] ?? String(row.role), link, hours })
   return sendRecorded(deps, { workshopId: actor.workshopId, to: row.email, kind: 'invitation', meta: { invitationId: row.id }, content: mail.sent, kept: mail.kept })
 }
 
-export async function invite(deps: Deps, actor: Actor, input: InvitationInput, req: Request, life = DEFAULT_LIFETIMES) {
+export async function invite(deps: Deps, actor: Actor, input: InvitationInput, at: ArrivedAt, life = DEFAULT_LIFETIMES) {
   const { token, hash } = newLinkToken()
   const row = await deps.db.transaction(async (tx) => {
     const [taken] = await tx.select({ id: users.id }).from(users).where(eq(users.email, input.email))
@@ -89,7 +91,7 @@ export async function invite(deps: Deps, actor: Actor, input: InvitationInput, r
     await audit(tx, actor, 'invite', 'user-invitation', r!.id, { email: input.email, role: input.role, personId: input.personId ?? null })
     return r!
   })
-  const mail = await sendInvitation(deps, actor, row, token, req, life.inviteHours)
+  const mail = await sendInvitation(deps, actor, row, token, at, life.inviteHours)
   const inv = (await listInvitations(deps.db, actor.workshopId)).find((i) => i.id === row.id)!
   return { ...inv, mail: { status: mail.status, error: mail.error } }
 }
@@ -102,7 +104,7 @@ async function pendingInvitation(tx: Trx, workshopId: number, id: number) {
 }
 
 /** A new link with a full lifetime; the old link stops working at once. */
-export async function resendInvitation(deps: Deps, actor: Actor, id: number, req: Request, life = DEFAULT_LIFETIMES) {
+export async function resendInvitation(deps: Deps, actor: Actor, id: number, at: ArrivedAt, life = DEFAULT_LIFETIMES) {
   const { token, hash } = newLinkToken()
   const row = await deps.db.transaction(async (tx) => {
     const r = await pendingInvitation(tx, actor.workshopId, id)
@@ -110,7 +112,7 @@ export async function resendInvitation(deps: Deps, actor: Actor, id: number, req
     await audit(tx, actor, 'resend', 'user-invitation', r.id, { email: r.email })
     return u!
   })
-  const mail = await sendInvitation(deps, actor, row, token, req, life.inviteHours)
+  const mail = await sendInvitation(deps, actor, row, token, at, life.inviteHours)
   const inv = (await listInvitations(deps.db, actor.workshopId)).find((i) => i.id === row.id)!
   return { ...inv, mail: { status: mail.status, error: mail.error } }
 }
@@ -183,7 +185,7 @@ export async function useLink(deps: Pick<Deps, 'db'>, token: string, password: s
  * A reset link to the account with this address, if there is an active one; nothing otherwise. The caller answers the
  * same either way (and does not wait for this), so the answer tells nobody which addresses have accounts.
  */
-export async function requestReset(deps: Deps, email: string, req: Request, life = DEFAULT_LIFETIMES) {
+export async function requestReset(deps: Deps, email: string, at: ArrivedAt, life = DEFAULT_LIFETIMES) {
   const [u] = await deps.db.select({ id: users.id, name: users.name, role: users.role, workshopId: users.workshopId, active: users.active }).from(users).where(eq(users.email, email))
   if (!u || !u.active) return null
   const { token, hash } = newLinkToken()
@@ -195,7 +197,7 @@ export async function requestReset(deps: Deps, email: string, req: Request, life
     await audit(tx, { userId: u.id, workshopId: u.workshopId, role: u.role, personId: null, name: u.name }, 'request-reset', 'user', u.id, { linkId: r!.id })
   })
   const w = await workshopOf(deps.db, u.workshopId)
-  const mail = resetMail({ workshopName: w.name, name: u.name, link: `${linkBase(req, deps.listenHost, w.publicUrl)}${resetPath(token)}`, minutes: life.resetMinutes })
+  const mail = resetMail({ workshopName: w.name, name: u.name, link: `${linkBase(at, deps.listenHost, w.publicUrl)}${resetPath(token)}`, minutes: life.resetMinutes })
   return sendRecorded(deps, { workshopId: u.workshopId, to: email, kind: 'password-reset', content: mail.sent, kept: mail.kept })
 }
 
@@ -203,7 +205,7 @@ export async function requestReset(deps: Deps, email: string, req: Request, life
  * Ends every signed-in session of a user (the session rows are deleted) and their live connections. Bench station
  * tablets a manager signed in stay: they belong to the workshop, not to the person who set them up.
  */
-export async function endUserSessions(deps: Pick<Deps, 'db' | 'realtime'>, userId: number): Promise<number> {
+export async function endUserSessions(deps: Pick<Deps, 'db' | 'realtime' | 'cache'>, userId: number): Promise<number> {
   let ended = 0
   try {
     const r = await deps.db.execute(sql`delete from user_sessions where (sess::jsonb -> 'passport' ->> 'user') = ${String(userId)} and (sess::jsonb -> 'station') is null`)
@@ -212,7 +214,7 @@ export async function endUserSessions(deps: Pick<Deps, 'db' | 'realtime'>, userI
     // No session was ever stored: nothing to end.
     if ((err as { code?: string }).code !== '42P01') throw err
   }
-  forgetSessionUser(userId)
+  dropSessionUsers(deps.cache, userId)
   deps.realtime.endSessions({ userId })
   return ended
 }

@@ -6,7 +6,8 @@ import { benchCapabilities, benchDowntime, benches, operationKinds } from '../db
 import { AppError, invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
-import { isUniqueViolation, requireOwned, updateVersioned } from './versioned'
+import { changeOwnedParts } from './owned-parts'
+import { isUniqueViolation, updateVersioned } from './versioned'
 
 export async function listBenches(db: Db, workshopId: number): Promise<Bench[]> {
   const rows = await db.select().from(benches).where(eq(benches.workshopId, workshopId)).orderBy(asc(benches.name))
@@ -62,23 +63,17 @@ export async function updateBench({ db, realtime }: Deps, actor: Actor, id: numb
   return getBench(db, actor.workshopId, id)
 }
 
-export async function addDowntime({ db, realtime }: Deps, actor: Actor, benchId: number, input: DowntimeInput) {
-  await db.transaction(async (tx) => {
-    await requireOwned(tx, benches, 'Bench', benchId, actor.workshopId)
-    await tx.insert(benchDowntime).values({ benchId, ...input })
-    await audit(tx, actor, 'add-downtime', 'bench', benchId, input)
-  })
-  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'bench', id: benchId })
-  return getBench(db, actor.workshopId, benchId)
+const benchOf = (id: number) => ({ table: benches, entity: 'bench' as const, what: 'Bench', id })
+
+export async function addDowntime(deps: Deps, actor: Actor, benchId: number, input: DowntimeInput) {
+  await changeOwnedParts(deps, actor, benchOf(benchId), { action: 'add-downtime', details: input }, (tx) => tx.insert(benchDowntime).values({ benchId, ...input }))
+  return getBench(deps.db, actor.workshopId, benchId)
 }
 
-export async function removeDowntime({ db, realtime }: Deps, actor: Actor, benchId: number, downtimeId: number) {
-  await db.transaction(async (tx) => {
-    await requireOwned(tx, benches, 'Bench', benchId, actor.workshopId)
+export async function removeDowntime(deps: Deps, actor: Actor, benchId: number, downtimeId: number) {
+  await changeOwnedParts(deps, actor, benchOf(benchId), { action: 'remove-downtime', details: { downtimeId } }, async (tx) => {
     const r = await tx.delete(benchDowntime).where(and(eq(benchDowntime.id, downtimeId), eq(benchDowntime.benchId, benchId))).returning()
     if (!r.length) throw notFound('Downtime')
-    await audit(tx, actor, 'remove-downtime', 'bench', benchId, { downtimeId })
   })
-  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'bench', id: benchId })
-  return getBench(db, actor.workshopId, benchId)
+  return getBench(deps.db, actor.workshopId, benchId)
 }

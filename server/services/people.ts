@@ -6,8 +6,9 @@ import { leave, operationKinds, people, personSkills, users } from '../db/schema
 import { AppError, invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
-import { forgetSessionUser } from '../middleware/auth'
-import { isUniqueViolation, requireOwned, updateVersioned } from './versioned'
+import { dropSessionUsers } from '../lib/session-users'
+import { changeOwnedParts } from './owned-parts'
+import { isUniqueViolation, updateVersioned } from './versioned'
 
 export async function listPeople(db: Db, workshopId: number): Promise<Person[]> {
   const rows = await db.select({ p: people, email: users.email }).from(people).leftJoin(users, eq(users.id, people.userId)).where(eq(people.workshopId, workshopId)).orderBy(asc(people.name))
@@ -43,7 +44,7 @@ async function checkRefs(tx: Trx, workshopId: number, input: Partial<PersonInput
 const userTaken = (e: unknown) =>
   isUniqueViolation(e) ? new AppError({ code: 'conflict', message: 'That user is linked to another person already', fields: { userId: 'is linked to another person already' } }) : e
 
-export async function createPerson({ db, realtime }: Deps, actor: Actor, input: PersonInput) {
+export async function createPerson({ db, realtime, cache }: Deps, actor: Actor, input: PersonInput) {
   const id = await db.transaction(async (tx) => {
     await checkRefs(tx, actor.workshopId, input)
     const [p] = await tx.insert(people).values({ workshopId: actor.workshopId, name: input.name, userId: input.userId, weekPattern: input.weekPattern, hourlyRateMinor: input.hourlyRateMinor, active: input.active }).returning()
@@ -51,12 +52,13 @@ export async function createPerson({ db, realtime }: Deps, actor: Actor, input: 
     await audit(tx, actor, 'create', 'person', p!.id, { name: input.name })
     return p!.id
   }).catch((e) => { throw userTaken(e) })
-  forgetSessionUser()
+  // A signed-in user's person link may have changed.
+  dropSessionUsers(cache)
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'person', id })
   return getPerson(db, actor.workshopId, id)
 }
 
-export async function updatePerson({ db, realtime }: Deps, actor: Actor, id: number, input: PersonUpdate) {
+export async function updatePerson({ db, realtime, cache }: Deps, actor: Actor, id: number, input: PersonUpdate) {
   const { version, skills, ...values } = input
   await db.transaction(async (tx) => {
     await checkRefs(tx, actor.workshopId, input)
@@ -67,28 +69,23 @@ export async function updatePerson({ db, realtime }: Deps, actor: Actor, id: num
     }
     await audit(tx, actor, 'update', 'person', id, input as Record<string, unknown>)
   }).catch((e) => { throw userTaken(e) })
-  forgetSessionUser()
+  // A signed-in user's person link may have changed.
+  dropSessionUsers(cache)
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'person', id })
   return getPerson(db, actor.workshopId, id)
 }
 
-export async function addLeave({ db, realtime }: Deps, actor: Actor, personId: number, input: LeaveInput) {
-  await db.transaction(async (tx) => {
-    await requireOwned(tx, people, 'Person', personId, actor.workshopId)
-    await tx.insert(leave).values({ personId, ...input })
-    await audit(tx, actor, 'add-leave', 'person', personId, input)
-  })
-  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'person', id: personId })
-  return getPerson(db, actor.workshopId, personId)
+const personOf = (id: number) => ({ table: people, entity: 'person' as const, what: 'Person', id })
+
+export async function addLeave(deps: Deps, actor: Actor, personId: number, input: LeaveInput) {
+  await changeOwnedParts(deps, actor, personOf(personId), { action: 'add-leave', details: input }, (tx) => tx.insert(leave).values({ personId, ...input }))
+  return getPerson(deps.db, actor.workshopId, personId)
 }
 
-export async function removeLeave({ db, realtime }: Deps, actor: Actor, personId: number, leaveId: number) {
-  await db.transaction(async (tx) => {
-    await requireOwned(tx, people, 'Person', personId, actor.workshopId)
+export async function removeLeave(deps: Deps, actor: Actor, personId: number, leaveId: number) {
+  await changeOwnedParts(deps, actor, personOf(personId), { action: 'remove-leave', details: { leaveId } }, async (tx) => {
     const r = await tx.delete(leave).where(and(eq(leave.id, leaveId), eq(leave.personId, personId))).returning()
     if (!r.length) throw notFound('Leave')
-    await audit(tx, actor, 'remove-leave', 'person', personId, { leaveId })
   })
-  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'person', id: personId })
-  return getPerson(db, actor.workshopId, personId)
+  return getPerson(deps.db, actor.workshopId, personId)
 }

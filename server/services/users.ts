@@ -7,7 +7,7 @@ import { people, users } from '../db/schema/index'
 import { AppError } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
-import { forgetSessionUser } from '../middleware/auth'
+import { dropSessionUsers } from '../lib/session-users'
 import { isUniqueViolation, updateVersioned } from './versioned'
 
 /** argon2id with the OWASP-recommended minimum (19 MiB, 2 passes). */
@@ -35,7 +35,7 @@ export async function createUser({ db }: Deps, actor: Actor, input: UserCreate) 
   return getUser(db, actor.workshopId, id)
 }
 
-export async function updateUser({ db, realtime }: Deps, actor: Actor, id: number, input: UserUpdate) {
+export async function updateUser({ db, realtime, cache }: Deps, actor: Actor, id: number, input: UserUpdate) {
   const { version, password, ...values } = input
   if (id === actor.userId && values.active === false)
     throw new AppError({ code: 'unprocessable', message: 'You cannot switch off your own owner account; another owner must do it', fields: { active: 'cannot switch yourself off' } })
@@ -47,7 +47,7 @@ export async function updateUser({ db, realtime }: Deps, actor: Actor, id: numbe
     await updateVersioned(tx, users, 'User', { id, workshopId: actor.workshopId, version, values: set })
     await audit(tx, actor, 'update', 'user', id, { ...values, password: password ? 'changed' : undefined })
   })
-  forgetSessionUser(id)
+  dropSessionUsers(cache, id)
   // Switched off, new role or new password: their live connections end (a client still signed in reconnects with its new rooms).
   if (values.active === false || values.role || password) realtime.endSessions({ userId: id })
   return getUser(db, actor.workshopId, id)

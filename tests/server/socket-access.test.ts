@@ -14,8 +14,7 @@ const open: Socket[] = []
 
 beforeAll(async () => {
   // Check open connections against the session store every half second (30 s in production) so expiry is seen quickly.
-  process.env.SOCKET_SESSION_SWEEP_MS = '500'
-  srv = await startTestServer()
+  srv = await startTestServer({ SOCKET_SESSION_SWEEP_MS: '500' })
   // A published plan, so the manager has bars to pin and unpin.
   const manager = await signIn(DEMO_EMAIL.manager)
   const run = (await (await api(manager, 'POST', '/plans/runs', { timeLimitSeconds: 1 })).json()) as { id: string }

@@ -1,7 +1,7 @@
 // Customers: searchable list with open-order counts; references are generated (C-0001).
 import { and, asc, count, desc, eq, ilike, inArray, notInArray, or, sql } from 'drizzle-orm'
-import type { CustomerInput } from '../../shared/schemas/customer'
-import type { ListQuery } from '../../shared/schemas/common'
+import type { Customer, CustomerInput } from '../../shared/schemas/customer'
+import type { ListQuery, Page } from '../../shared/schemas/common'
 import type { Db } from '../db/client'
 import { customers, orders } from '../db/schema/index'
 import type { Actor, Deps } from '../lib/route'
@@ -23,7 +23,7 @@ async function openOrderCounts(db: Db, workshopId: number, customerIds: number[]
   return new Map(rows.map((r) => [r.customerId, r.n]))
 }
 
-export async function listCustomers(db: Db, workshopId: number, q: ListQuery) {
+export async function listCustomers(db: Db, workshopId: number, q: ListQuery): Promise<Page<Customer>> {
   const like = q.q ? containing(q.q) : null
   const where = and(eq(customers.workshopId, workshopId), like ? or(ilike(customers.name, like), ilike(customers.email, like), ilike(customers.reference, like)) : undefined)
   const sortCol = q.sort === 'reference' ? customers.reference : q.sort === 'email' ? customers.email : customers.name
@@ -40,7 +40,7 @@ async function withOpenOrders<T extends { id: number }>(db: Db, workshopId: numb
   return { ...c, openOrders: (await openOrderCounts(db, workshopId, [c.id])).get(c.id) ?? 0 }
 }
 
-export async function getCustomer(db: Db, workshopId: number, id: number) {
+export async function getCustomer(db: Db, workshopId: number, id: number): Promise<Customer> {
   return withOpenOrders(db, workshopId, await requireOwned(db, customers, 'Customer', id, workshopId))
 }
 

@@ -1,7 +1,7 @@
 // Job bags through their life: the routing (add, change, skip, reorder steps; estimates with reasons), readiness, status, history.
 import { and, asc, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import { canMoveJobBag, deriveJobBagStatus } from '../../shared/domain/status'
-import type { EffectiveTimeRecord, HistoryEntry, JobBagDetail, JobBagOperation, JobBagStatusInput, RingSizeChange, SequenceInput, StepAdd, StepSkip, StepUpdate } from '../../shared/schemas/job-bag'
+import type { EffectiveTimeRecord, HistoryEntry, JobBagDetail, JobBagOperation, JobBagSummary, JobBagStatusInput, RingSizeChange, SequenceInput, StepAdd, StepSkip, StepUpdate } from '../../shared/schemas/job-bag'
 import type { PieceParams, RingSizeValue } from '../../shared/schemas/order'
 import { ringSizeToIso, ringSizeWords } from '../../shared/domain/ring-size'
 import type { Db, Tx } from '../db/client'
@@ -15,7 +15,7 @@ import { actualMinutesByOperation, effectiveRecords } from './time-records'
 
 export type { BagChange, OperationChange } from './job-bag-state'
 
-export async function listJobBags(db: Db, workshopId: number, q: { orderId?: number; status?: string; q?: string }) {
+export async function listJobBags(db: Db, workshopId: number, q: { orderId?: number; status?: string; q?: string }): Promise<JobBagSummary[]> {
   const rows = await db
     .select({
       id: jobBags.id, number: jobBags.number, piece: jobBags.piece, status: jobBags.status, version: jobBags.version, orderId: orders.id, orderNumber: orders.number,

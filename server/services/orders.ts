@@ -1,7 +1,7 @@
 // Orders and their job bags: numbering, routings copied from templates into operations, and the order list.
 import { and, asc, count, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
-import type { ListQuery } from '../../shared/schemas/common'
-import type { OrderInput, OrderUpdate } from '../../shared/schemas/order'
+import type { ListQuery, Page } from '../../shared/schemas/common'
+import type { OrderInput, OrderSummary, OrderUpdate } from '../../shared/schemas/order'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { Db, Trx } from '../db/client'
 import { customers, jobBags, operations, orders, templateSteps, routingTemplates, workshops } from '../db/schema/index'
@@ -19,7 +19,7 @@ const containing = (text: string) => `%${text.replace(/[\\%_]/g, '\\$&')}%`
 
 const bagCount = sql<number>`(select count(*)::int from ${jobBags} where ${jobBags.orderId} = ${orders.id})`
 
-export async function listOrders(db: Db, workshopId: number, q: ListQuery & { status?: string | string[] }) {
+export async function listOrders(db: Db, workshopId: number, q: ListQuery & { status?: string | string[] }): Promise<Page<OrderSummary>> {
   const statuses = q.status === undefined ? [] : Array.isArray(q.status) ? q.status : [q.status]
   const like = q.q ? containing(q.q) : null
   const where = and(

@@ -1,5 +1,6 @@
 // The API client: error bodies become one ApiError, the CSRF token rides on writes and is refreshed once when stale.
 import { afterEach, describe, expect, it, vi } from 'vitest'
+import { z } from 'zod'
 import { ApiError, api, setCsrfToken } from '@/api/client'
 
 const json = (status: number, body: unknown) => new Response(JSON.stringify(body), { status, headers: { 'content-type': 'application/json' } })
@@ -50,5 +51,21 @@ describe('api client', () => {
     expect(err.status).toBe(403)
     expect(err.isCsrf).toBe(false)
     expect(fetchMock).toHaveBeenCalledTimes(1)
+  })
+
+  it('when an answer does not match the schema the call names (development and tests), then the call rejects naming the call and the field', async () => {
+    vi.stubGlobal('fetch', vi.fn(async () => json(200, { id: 'seven', name: 'Polishing bench' })))
+    vi.spyOn(console, 'error').mockImplementation(() => undefined)
+    const err = (await api.get('/benches/7', { schema: z.object({ id: z.number().int(), name: z.string() }) }).catch((e: unknown) => e)) as ApiError
+    expect(err).toBeInstanceOf(ApiError)
+    expect(err.message).toContain('GET /benches/7')
+    expect(err.message).toMatch(/\bid: /)
+    vi.mocked(console.error).mockRestore()
+  })
+
+  it('when an answer matches its schema, then the call gives the answer as the server sent it', async () => {
+    vi.stubGlobal('fetch', vi.fn(async () => json(200, { id: 7, name: 'Polishing bench', extra: true })))
+    await expect(api.get('/benches/7', { query: { full: true }, schema: z.object({ id: z.number().int(), name: z.string() }) })).resolves.toEqual({ id: 7, name: 'Polishing bench', extra: true })
+    expect(vi.mocked(fetch).mock.calls[0]![0]).toBe('/api/benches/7?full=true')
   })
 })

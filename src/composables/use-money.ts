@@ -33,16 +33,6 @@ export function formatMinor(minor: number | null | undefined, currency: string, 
   return currencyFormat(currency, locale).format(minor / 10 ** digits)
 }
 
-/** A major-unit figure typed in a form (e.g. 234.5) as integer minor units (23450), rounded to the nearest unit. */
-export function toMinor(major: number, currency: string): number {
-  return Math.round(major * 10 ** minorDigits(currency))
-}
-
-/** Minor units back to a major-unit figure for a number input (23450 → 234.5). */
-export function toMajor(minor: number, currency: string): number {
-  return minor / 10 ** minorDigits(currency)
-}
-
 /** The workshop's money rules as the settings carry them (defaults until the settings are loaded). */
 export interface WorkshopMoneyRules { currency: string; depositPct: number; quoteValidDays: number; noMetalBeforeDeposit: boolean }
 export function moneyRules(settings: Partial<WorkshopMoneyRules> | null | undefined): WorkshopMoneyRules {

@@ -17,6 +17,7 @@ import { lockJobBag, refreshReadiness, syncJobBagStatus, type BagChange } from '
 import { requirePauseReason } from './pause-reasons'
 import { closeRecord, effectiveRecords, actualMinutesByOperation, openRecord } from './time-records'
 import { LOCK } from '../lib/locks'
+import { claimOnPlan, lockLivePlan } from '../planning/live-plan'
 
 const claimer = alias(people, 'claimer')
 const opFields = {
@@ -161,7 +162,7 @@ type ReplayStored = { status: number; body: unknown }
  * Runs one transition exactly once per requestId: the request row is written first (a concurrent replay waits on it),
  * the work runs in a savepoint with the job bag and the operation locked, and its answer — success or refusal — is kept for replays.
  */
-async function transition(deps: Deps, actor: Actor, o: { requestId: string; action: string; operationId: number }, work: (w: Work) => Promise<WorkResult>): Promise<TransitionResult> {
+async function transition(deps: Deps, actor: Actor, o: { requestId: string; action: string; operationId: number; livePlan?: boolean }, work: (w: Work) => Promise<WorkResult>): Promise<TransitionResult> {
   const { db, realtime } = deps
   const outcome = await db.transaction(async (tx) => {
     const mine = await tx.insert(benchRequests).values({ requestId: o.requestId, workshopId: actor.workshopId, userId: actor.userId, action: o.action, operationId: null })
@@ -178,6 +179,8 @@ async function transition(deps: Deps, actor: Actor, o: { requestId: string; acti
           .where(and(eq(operations.id, o.operationId), eq(jobBags.workshopId, actor.workshopId)))
         if (!found) throw notFound('Operation')
         // Every transition of one job bag runs one at a time, so successors see all their predecessors' finishes.
+        // A transition that changes the live plan takes its lock first, in the order every plan change takes it.
+        if (o.livePlan) await lockLivePlan(sp, actor.workshopId)
         await lockJobBag(sp, found.jobBagId)
         const [op] = await baseQuery(sp).where(eq(operations.id, o.operationId)).for('update', { of: operations })
         const result = await work({ tx: sp, op: op!, now: new Date() })
@@ -229,7 +232,7 @@ async function requireDepositIn(tx: Tx, workshopId: number, op: OpRow) {
 }
 
 export function claim(deps: Deps, actor: Actor, operationId: number, input: ClaimInput) {
-  return transition(deps, actor, { requestId: input.requestId, action: 'claim', operationId }, async ({ tx, op, now }) => {
+  return transition(deps, actor, { requestId: input.requestId, action: 'claim', operationId, livePlan: true }, async ({ tx, op, now }) => {
     const person = await requirePerson(tx, actor, input.personId)
     if (op.status === 'pending') throw await pendingReason(tx, op)
     await requireRested(tx, op, now)
@@ -245,7 +248,9 @@ export function claim(deps: Deps, actor: Actor, operationId: number, input: Clai
     const [won] = await tx.update(operations).set({ status: 'claimed', claimedBy: person.id, version: sql`${operations.version} + 1` })
       .where(and(eq(operations.id, op.id), eq(operations.status, 'ready'), isNull(operations.claimedBy))).returning({ id: operations.id })
     if (!won) refuseMove({ ...op, status: 'claimed' }, 'claimed', person)
-    await audit(tx, actor, 'claim', 'operation', op.id, { from: op.status, to: 'claimed', personId: person.id, personName: person.name, benchId: bench.id, benchName: bench.name, jobBagId: op.jobBagId })
+    // On the live plan the step moves to the claimer and this bench (through the planning module).
+    const plan = await claimOnPlan(tx, actor, { operationId: op.id, person, bench })
+    await audit(tx, actor, 'claim', 'operation', op.id, { from: op.status, to: 'claimed', personId: person.id, personName: person.name, benchId: bench.id, benchName: bench.name, jobBagId: op.jobBagId, ...(plan ? { plan } : {}) })
     return { status: 'claimed' }
   })
 }

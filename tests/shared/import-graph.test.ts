@@ -83,6 +83,14 @@ describe('import graph', () => {
     expect(cycles(edges)).toEqual([])
   })
 
+  it('when the stores\' imports are resolved, then none is a component or a view (pure helpers live in src/lib)', () => {
+    const edges = graph()
+    const stores = [...edges.keys()].filter((f) => relative(root, f).startsWith('src/stores/'))
+    expect(stores.length).toBeGreaterThan(10)
+    const ui = stores.flatMap((f) => (edges.get(f) ?? []).map((t) => relative(root, t)).filter((t) => t.startsWith('src/components/') || t.startsWith('src/views/')).map((t) => `${relative(root, f)} → ${t}`))
+    expect(ui).toEqual([])
+  })
+
   it('when two modules import each other, then the check reports them (the checker itself can fail)', () => {
     const a = '/x/a.ts', b = '/x/b.ts', c = '/x/c.ts'
     expect(cycles(new Map([[a, [b]], [b, [a, c]], [c, []]])).map((s) => s.length)).toEqual([2])

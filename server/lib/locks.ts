@@ -5,7 +5,7 @@ export const LOCK = {
   customerNumbers: 1001,
   /** Order numbering, per workshop. */
   orderNumbers: 1002,
-  /** The live plan, per workshop: draft numbering, publishing, and booking a promised slot. */
+  /** The live plan, per workshop: every change to it (server/planning: drafts, publishing, moves and pins, a promise's booking, a claim's plan effect). */
   livePlan: 1003,
   /** Quote numbering, per workshop. */
   quoteNumbers: 1013,

@@ -4,7 +4,10 @@ import { createHash } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { startFakeSmtp, type FakeSmtp, type ReceivedMessage } from '../../server/mail/fake-smtp'
 import { DEMO_PASSWORD } from '../../server/db/seed'
+import { count, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { Agent, DEMO_EMAIL, createTestApp, signedIn, type TestApp } from '../setup/app'
+import { addPerson } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError, userIdOf } from './helpers'
 import { benchId, freshReady, personIdOf, rid } from './bench-fixtures'
 
@@ -34,8 +37,8 @@ async function sessionEmail(a: Agent): Promise<string | null> {
 
 describe('invitations', () => {
   it('when the owner invites someone, then the e-mail carries a link that sets their password once and signs them in, linked to their person', async () => {
-    const { rows: [p] } = await t.pool.query(`insert into people (workshop_id, name) values (1, 'Petra Quill') returning id`)
-    const { rows: [{ name: ownerName }] } = await t.pool.query(`select name from users where email = $1`, [DEMO_EMAIL.owner])
+    const p = { id: await addPerson(t.db, { workshopId: 1, name: 'Petra Quill' }) }
+    const { name: ownerName } = (await t.db.select({ name: s.users.name }).from(s.users).where(eq(s.users.email, DEMO_EMAIL.owner)))[0]!
     const r = await owner.post('/api/invitations', { email: 'Petra@Quill.test', name: 'Petra Quill', role: 'bench', personId: p.id })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body).toMatchObject({ email: 'petra@quill.test', role: 'bench', personId: p.id, personName: 'Petra Quill', expired: false, invitedBy: ownerName })
@@ -45,11 +48,11 @@ describe('invitations', () => {
     const token = tokenIn(m, 'welcome')
     // Only the SHA-256 of the token is kept. Reference vector: SHA-256("abc") from FIPS 180-2, appendix B.1.
     expect(createHash('sha256').update('abc').digest('hex')).toBe('ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad')
-    const { rows: stored } = await t.pool.query(`select token_hash from account_tokens where id = $1`, [r.body.id])
-    expect(stored[0].token_hash).toBe(createHash('sha256').update(token).digest('hex'))
-    expect(JSON.stringify(await t.pool.query(`select * from account_tokens`).then((x) => x.rows))).not.toContain(token)
+    const stored = await t.db.select({ tokenHash: s.accountTokens.tokenHash }).from(s.accountTokens).where(eq(s.accountTokens.id, r.body.id))
+    expect(stored[0]!.tokenHash).toBe(createHash('sha256').update(token).digest('hex'))
+    expect(JSON.stringify(await t.db.select().from(s.accountTokens))).not.toContain(token)
     // The outbox keeps the message without the link (staff read the outbox).
-    const { rows: [kept] } = await t.pool.query(`select text, html from outbox where id = $1`, [m.outboxId])
+    const kept = (await t.db.select({ text: s.outbox.text, html: s.outbox.html }).from(s.outbox).where(eq(s.outbox.id, Number(m.outboxId))))[0]!
     expect(kept.text).not.toContain(token)
     expect(kept.html).not.toContain(token)
     expect(kept.text).toContain('not kept here')
@@ -64,8 +67,8 @@ describe('invitations', () => {
     expect(used.body.user).toMatchObject({ email: 'petra@quill.test', role: 'bench', personId: p.id })
     newcomer.csrf = used.body.csrfToken
     expect(await sessionEmail(newcomer)).toBe('petra@quill.test')
-    const { rows: [linked] } = await t.pool.query(`select user_id from people where id = $1`, [p.id])
-    expect(linked.user_id).toBe(used.body.user.id)
+    const [linked] = await t.db.select({ userId: s.people.userId }).from(s.people).where(eq(s.people.id, p.id))
+    expect(linked!.userId).toBe(used.body.user.id)
     expect((await auditRows(t, 'user', used.body.user.id))[0]).toMatchObject({ action: 'accept-invitation', user_id: used.body.user.id })
     // No longer pending.
     expect((await owner.get('/api/invitations')).body.map((i: { id: number }) => i.id)).not.toContain(r.body.id)
@@ -91,13 +94,12 @@ describe('invitations', () => {
 
     const r = await owner.post('/api/invitations', { email: 'late@quill.test', name: 'Late Comer', role: 'sales' })
     const token = tokenIn(await mailTo('late@quill.test', /invited/), 'welcome')
-    await t.pool.query(`update account_tokens set expires_at = now() - interval '1 second' where id = $1`, [r.body.id])
+    await t.db.update(s.accountTokens).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(s.accountTokens.id, r.body.id))
     const expired = await a.post(`/api/account-links/${token}`, { password: 'a good long password' })
     expectCleanError(expired, 410)
     expect(expired.body.details).toMatchObject({ reason: 'expired' })
     expect((await owner.get('/api/invitations')).body.find((i: { id: number }) => i.id === r.body.id)).toMatchObject({ expired: true })
-    const { rows } = await t.pool.query(`select id from users where email = 'late@quill.test'`)
-    expect(rows).toEqual([])
+    expect(await t.db.select({ id: s.users.id }).from(s.users).where(eq(s.users.email, 'late@quill.test'))).toEqual([])
   })
 
   it('when the owner sends an invitation again, then only the new link works; when withdrawn, none does', async () => {
@@ -141,8 +143,8 @@ describe('password reset', () => {
     expect(Object.keys(unknown.body)).toEqual(Object.keys(known.body))
     expect(unknown.body.message.replace('nobody@nowhere.test', 'X')).toBe(known.body.message.replace(DEMO_EMAIL.manager, 'X'))
     await mailTo(DEMO_EMAIL.manager, /new Millgrain password/)
-    const { rows } = await t.pool.query(`select count(*)::int as n from outbox where "to" = 'nobody@nowhere.test'`)
-    expect(rows[0].n).toBe(0)
+    const [sent] = await t.db.select({ n: count() }).from(s.outbox).where(eq(s.outbox.to, 'nobody@nowhere.test'))
+    expect(sent!.n).toBe(0)
     expectFieldError(await anon.post('/api/password-reset', { email: 'not-an-address' }), 'email', /e-mail address/)
   })
 
@@ -156,9 +158,9 @@ describe('password reset', () => {
     await anon.post('/api/password-reset', { email: DEMO_EMAIL.sales })
     const m = await mailTo(DEMO_EMAIL.sales, /new Millgrain password/, before)
     const token = tokenIn(m, 'new-password')
-    const { rows: [row] } = await t.pool.query(`select expires_at, created_at from account_tokens where token_hash = $1`, [createHash('sha256').update(token).digest('hex')])
+    const row = (await t.db.select({ expiresAt: s.accountTokens.expiresAt, createdAt: s.accountTokens.createdAt }).from(s.accountTokens).where(eq(s.accountTokens.tokenHash, createHash('sha256').update(token).digest('hex'))))[0]!
     // Default lifetime 60 minutes.
-    expect(Math.round((row.expires_at.getTime() - row.created_at.getTime()) / 1000)).toBe(3600)
+    expect(Math.round((row.expiresAt.getTime() - row.createdAt.getTime()) / 1000)).toBe(3600)
     expect((await anon.get(`/api/account-links/${token}`)).body).toMatchObject({ kind: 'reset', email: DEMO_EMAIL.sales })
     const r = await anon.post(`/api/account-links/${token}`, { password: 'a brand new password' })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
@@ -186,7 +188,7 @@ describe('password reset', () => {
     await anon.post('/api/password-reset', { email: DEMO_EMAIL.bench })
     const second = tokenIn(await mailTo(DEMO_EMAIL.bench, /new Millgrain password/, before), 'new-password')
     expect((await anon.get(`/api/account-links/${first}`)).body.details).toMatchObject({ reason: 'withdrawn' })
-    await t.pool.query(`update account_tokens set expires_at = now() - interval '1 second' where token_hash = $1`, [createHash('sha256').update(second).digest('hex')])
+    await t.db.update(s.accountTokens).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(s.accountTokens.tokenHash, createHash('sha256').update(second).digest('hex')))
     const expired = await anon.post(`/api/account-links/${second}`, { password: 'a brand new password' })
     expectCleanError(expired, 410)
     expect(expired.body.details).toMatchObject({ reason: 'expired' })
@@ -240,9 +242,7 @@ describe('bench station and PINs', () => {
     setA = await benchId(t, 'Setting bench A')
     ines = await personIdOf(t, DEMO_EMAIL.bench)
     // A bench hand without an account of their own, who can set stones.
-    const { rows: [p] } = await t.pool.query(`insert into people (workshop_id, name) values (1, 'Tomas Vane') returning id`)
-    hand = p.id
-    await t.pool.query(`insert into person_skills (person_id, kind_id, level, speed) select $1, id, 3, 1 from operation_kinds where workshop_id = 1 and code in ('setting', 'inspection')`, [hand])
+    hand = await addPerson(t.db, { workshopId: 1, name: 'Tomas Vane', skills: { codes: ['setting', 'inspection'], level: 3 } })
   })
 
   it('when PINs are set by the person and by the owner, then a PIN must be 4 to 6 digits', async () => {
@@ -332,10 +332,11 @@ describe('bench station and PINs', () => {
 
   it('when the PIN time runs out, then the token is refused', async () => {
     const pin = await station.post('/api/bench-station/pin', { personId: ines, pin: '4821' })
-    const { rows: [s] } = await t.pool.query(`select sid, sess from user_sessions where sess::jsonb -> 'station' is not null`)
-    const sess = s.sess
+    // Raw SQL on purpose: the session table belongs to connect-pg-simple, not to our schema.
+    const { rows: [stored] } = await t.pool.query(`select sid, sess from user_sessions where sess::jsonb -> 'station' is not null`)
+    const sess = stored.sess
     sess.benchPerson.expiresAt = Date.now() - 1000
-    await t.pool.query(`update user_sessions set sess = $1 where sid = $2`, [sess, s.sid])
+    await t.pool.query(`update user_sessions set sess = $1 where sid = $2`, [sess, stored.sid])
     const op = await freshReady(t, 'setting', 'set')
     const r = await asPerson(pin.body.token, `/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
     expectCleanError(r, 403)

@@ -3,7 +3,10 @@
 import fc from 'fast-check'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Role } from '../../shared/domain/roles'
+import { and, asc, count, eq, gte, isNotNull, isNull, lte, max, ne, notExists, notLike, sql } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { Agent, signedIn, createTestApp, type TestApp } from '../setup/app'
+import { firstCustomerId, templateId as firstTemplateId } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop, userIdOf } from './helpers'
 
 let t: TestApp
@@ -21,13 +24,12 @@ const cid = () => `t-${Math.random().toString(36).slice(2)}-${Date.now()}`
 beforeAll(async () => {
   t = await createTestApp()
   for (const role of ['owner', 'manager', 'bench', 'sales'] as Role[]) as[role] = await signedIn(t.app, role)
-  const { rows: [b] } = await t.pool.query(`select jb.id from job_bags jb where status = 'waiting' order by id limit 1`)
-  bag = b
-  const { rows: [o] } = await t.pool.query(`select o.id, o.kind_id from operations o join operation_kinds k on k.id = o.kind_id where o.job_bag_id = $1 and not k.outside order by seq limit 1`, [bag.id])
+  bag = (await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.status, 'waiting')).orderBy(asc(s.jobBags.id)).limit(1))[0]!
+  const o = (await t.db.select({ id: s.operations.id, kindId: s.operations.kindId }).from(s.operations).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    .where(and(eq(s.operations.jobBagId, bag.id), eq(s.operationKinds.outside, false))).orderBy(asc(s.operations.seq)).limit(1))[0]!
   opId = o.id
-  kindId = o.kind_id
-  const { rows: [p] } = await t.pool.query(`select id from people order by id limit 1`)
-  personId = p.id
+  kindId = o.kindId
+  personId = (await t.db.select({ id: s.people.id }).from(s.people).orderBy(asc(s.people.id)).limit(1))[0]!.id
 })
 afterAll(async () => { await t?.close() })
 
@@ -99,9 +101,10 @@ describe('bad input', () => {
     const alloy = await newAlloy()
     const base = { jobBagId: bag.id, alloyId: alloy.id, personId }
     await as.bench.post('/api/metal/issues', { ...base, weightG: 5 })
-    const before = await t.pool.query(`select count(*)::int n from metal_movements where alloy_id = $1`, [alloy.id])
+    const rowsOf = async () => (await t.db.select({ n: count() }).from(s.metalMovements).where(eq(s.metalMovements.alloyId, alloy.id)))[0]!.n
+    const before = await rowsOf()
     expectFieldError(await as.bench.post('/api/metal/returns', { ...base, weightG: 5.01, form: 'piece' }), 'reason', /more than/)
-    expect((await t.pool.query(`select count(*)::int n from metal_movements where alloy_id = $1`, [alloy.id])).rows[0].n).toBe(before.rows[0].n)
+    expect(await rowsOf()).toBe(before)
     const ok = await as.bench.post('/api/metal/returns', { ...base, weightG: 5.01, form: 'piece', reason: 'Solder added at the bench' })
     expect(ok.status).toBe(201)
     expect(ok.body.movement.reason).toBe('Solder added at the bench')
@@ -112,8 +115,8 @@ describe('bad input', () => {
     expectFieldError(await as.bench.post('/api/metal/issues', { jobBagId: 999999, alloyId: alloy.id, personId, weightG: 1 }), 'jobBagId')
     expectFieldError(await as.bench.post('/api/metal/issues', { jobBagId: bag.id, alloyId: alloy.id, personId: 999999, weightG: 1 }), 'personId')
     expectFieldError(await as.bench.post('/api/metal/issues', { jobBagId: bag.id, alloyId: 999999, personId, weightG: 1 }), 'alloyId')
-    const { rows: [other] } = await t.pool.query(`select id from operations where job_bag_id <> $1 limit 1`, [bag.id])
-    expectFieldError(await as.bench.post('/api/metal/issues', { jobBagId: bag.id, alloyId: alloy.id, personId, operationId: other.id, weightG: 1 }), 'operationId')
+    const [other] = await t.db.select({ id: s.operations.id }).from(s.operations).where(ne(s.operations.jobBagId, bag.id)).limit(1)
+    expectFieldError(await as.bench.post('/api/metal/issues', { jobBagId: bag.id, alloyId: alloy.id, personId, operationId: other!.id, weightG: 1 }), 'operationId')
   })
 })
 
@@ -126,7 +129,7 @@ describe('replays and corrections', () => {
     expect(a.status).toBe(201)
     expect(b.body.replayed).toBe(true)
     expect(b.body.movement.id).toBe(a.body.movement.id)
-    expect((await t.pool.query(`select count(*)::int n from metal_movements where client_id = $1`, [body.clientId])).rows[0].n).toBe(1)
+    expect((await t.db.select({ n: count() }).from(s.metalMovements).where(eq(s.metalMovements.clientId, body.clientId)))[0]!.n).toBe(1)
     const clash = await as.bench.post('/api/metal/returns', { ...body, form: 'piece', weightG: 1 })
     expectCleanError(clash, 409)
   })
@@ -141,9 +144,9 @@ describe('replays and corrections', () => {
     const b = await other.agent.post('/api/metal/purchases', { alloyId: theirs.body.id, weightG: 20, clientId })
     expect([a.status, b.status], JSON.stringify([a.body, b.body])).toEqual([201, 201])
     expect(b.body.replayed).toBe(false)
-    const { rows } = await t.pool.query(`select workshop_id, weight_mg from metal_movements where client_id = $1 order by weight_mg`, [clientId])
-    expect(rows.map((r) => r.weight_mg)).toEqual([10_000, 20_000])
-    expect(new Set(rows.map((r) => r.workshop_id)).size).toBe(2)
+    const rows = await t.db.select({ workshopId: s.metalMovements.workshopId, weightMg: s.metalMovements.weightMg }).from(s.metalMovements).where(eq(s.metalMovements.clientId, clientId)).orderBy(asc(s.metalMovements.weightMg))
+    expect(rows.map((r) => r.weightMg)).toEqual([10_000, 20_000])
+    expect(new Set(rows.map((r) => r.workshopId)).size).toBe(2)
     // Within one workshop the id still means one entry: a replay answers the first.
     const again = await other.agent.post('/api/metal/purchases', { alloyId: theirs.body.id, weightG: 20, clientId })
     expect(again.body).toMatchObject({ replayed: true, movement: { id: b.body.movement.id } })
@@ -159,8 +162,8 @@ describe('replays and corrections', () => {
     expect(c.status, JSON.stringify(c.body)).toBe(201)
     expect(c.body.movement).toMatchObject({ weightMg: 10000, effectiveMg: 10500 })
     expect(c.body.movement.corrections[0]).toMatchObject({ weightMg: 500, reason: 'Scale read before it settled', recordedBy: 'Sam Ottery' })
-    const { rows: [row] } = await t.pool.query(`select corrects_id, recorded_by, reason, weight_mg from metal_movements where id = $1`, [c.body.correctionId])
-    expect(row).toMatchObject({ corrects_id: issued.body.movement.id, recorded_by: await userIdOf(t, 'manager@wrenfield.test'), weight_mg: 500 })
+    const [row] = await t.db.select({ correctsId: s.metalMovements.correctsId, recordedBy: s.metalMovements.recordedBy, reason: s.metalMovements.reason, weightMg: s.metalMovements.weightMg }).from(s.metalMovements).where(eq(s.metalMovements.id, c.body.correctionId))
+    expect(row).toMatchObject({ correctsId: issued.body.movement.id, recordedBy: await userIdOf(t, 'manager@wrenfield.test'), weightMg: 500 })
     const audits = await auditRows(t, 'metal-movement', c.body.correctionId)
     expect(audits[0]).toMatchObject({ action: 'correct', user_id: await userIdOf(t, 'manager@wrenfield.test') })
     expect(audits[0]!.details).toMatchObject({ reason: 'Scale read before it settled', correctsId: issued.body.movement.id })
@@ -279,14 +282,14 @@ describe('stock reconciles to the milligram', () => {
 
 describe('the demo', () => {
   it('when the demo is seeded, then its metal lies in working time before now, some steps are over tolerance and a lot is settled', async () => {
-    const { rows: [n] } = await t.pool.query(`select count(*)::int n, max(recorded_at) as last from metal_movements m join alloys a on a.id = m.alloy_id where a.code = 'ag925'`)
+    const m = s.metalMovements, r = s.timeRecords
+    const n = (await t.db.select({ n: count(), last: max(m.recordedAt) }).from(m).innerJoin(s.alloys, eq(s.alloys.id, m.alloyId)).where(eq(s.alloys.code, 'ag925')))[0]!
     expect(n.n).toBeGreaterThan(20)
-    expect(new Date(n.last).getTime()).toBeLessThanOrEqual(Date.now())
+    expect(new Date(n.last!).getTime()).toBeLessThanOrEqual(Date.now())
     // Each issue and return on a step lies inside one of that step's own time records (which keep to working time).
-    const { rows: off } = await t.pool.query(`
-      select m.id from metal_movements m join alloys a on a.id = m.alloy_id
-      where a.code not like 'test-%' and m.operation_id is not null and m.corrects_id is null
-        and not exists (select 1 from time_records r where r.operation_id = m.operation_id and m.recorded_at between r.started_at and r.ended_at)`)
+    const inRecord = t.db.select({ one: sql`1` }).from(r).where(and(eq(r.operationId, m.operationId), gte(m.recordedAt, r.startedAt), lte(m.recordedAt, r.endedAt)))
+    const off = await t.db.select({ id: m.id }).from(m).innerJoin(s.alloys, eq(s.alloys.id, m.alloyId))
+      .where(and(notLike(s.alloys.code, 'test-%'), isNotNull(m.operationId), isNull(m.correctsId), notExists(inRecord)))
     expect(off).toEqual([])
     const losses = await as.owner.get('/api/metal/losses?groupBy=kind')
     expect(losses.body.total.overTolerance).toBeGreaterThan(0)
@@ -302,12 +305,11 @@ describe('finished pieces leave stock', () => {
   it('when an order is collected, then each bag’s piece as last weighed back (corrections applied) leaves stock once; a piece last seen at the bench does not', async () => {
     const alloy = await newAlloy()
     // A fresh order with two bags of the seeded routing, made through the API as sales would.
-    const { rows: [c] } = await t.pool.query(`select id from customers order by id limit 1`)
-    const { rows: [tpl] } = await t.pool.query(`select id from routing_templates order by id limit 1`)
+    const c = { id: await firstCustomerId(t.db) }
+    const tpl = { id: await firstTemplateId(t.db) }
     const made = await as.sales.post('/api/orders', { customerId: c.id, title: 'Two pieces to collect', dueDate: '2031-09-01', pieces: [{ templateId: tpl.id, piece: 'One' }, { templateId: tpl.id, piece: 'Two' }] })
     expect(made.status, JSON.stringify(made.body)).toBe(201)
-    const { rows: bags } = await t.pool.query(`select id from job_bags where order_id = $1 order by id`, [made.body.id])
-    const [b1, b2] = bags as { id: number }[]
+    const [b1, b2] = await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, made.body.id)).orderBy(asc(s.jobBags.id))
     const post = async (path: string, body: Record<string, unknown>) => { const r = await as.bench.post(path, { alloyId: alloy.id, personId, clientId: cid(), ...body }); expect(r.status, JSON.stringify(r.body)).toBe(201); return r.body.movement }
     await as.owner.post('/api/metal/purchases', { alloyId: alloy.id, weightG: 50, clientId: cid() })
     // Bag one: 12.00 out, 11.30 back as the piece, corrected to 11.20 (scale not tared) → 11.20 g leaves with the order.
@@ -322,13 +324,13 @@ describe('finished pieces leave stock', () => {
     const before = await stockOf()
     // Hand-worked: 50 − 12 + 11.20 − 5 + 4.90 − 4.90 = 44.20 g in stock before collection.
     expect(before.balanceMg).toBe(44_200)
-    await t.pool.query(`update orders set status = 'ready' where id = $1`, [made.body.id])
+    await t.db.update(s.orders).set({ status: 'ready' }).where(eq(s.orders.id, made.body.id))
     const o = (await as.manager.get(`/api/orders/${made.body.id}`)).body
     expect((await as.manager.patch(`/api/orders/${made.body.id}`, { status: 'collected', version: o.version })).status).toBe(200)
     const after = await stockOf()
     // 44.20 − 11.20 (bag one's piece) = 33.00 g; bag two's metal is still out at the bench.
     expect(after).toMatchObject({ deliveredMg: 11_200, balanceMg: 33_000 })
-    const { rows: delivered } = await t.pool.query(`select job_bag_id, weight_mg from metal_movements where kind = 'delivered' and alloy_id = $1`, [alloy.id])
-    expect(delivered).toEqual([{ job_bag_id: b1!.id, weight_mg: 11_200 }])
+    const delivered = await t.db.select({ jobBagId: s.metalMovements.jobBagId, weightMg: s.metalMovements.weightMg }).from(s.metalMovements).where(and(eq(s.metalMovements.kind, 'delivered'), eq(s.metalMovements.alloyId, alloy.id)))
+    expect(delivered).toEqual([{ jobBagId: b1!.id, weightMg: 11_200 }])
   })
 })

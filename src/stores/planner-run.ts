@@ -26,10 +26,24 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
   /** Told when our run's draft is known from the poll (the board lists and shows it, as for the socket event). */
   let afterDrafted: ((planId: number, runId: string) => unknown) | null = null
   let timer: ReturnType<typeof setTimeout> | null = null
+  /** Outcomes heard for runs not (yet) ours: a run that ends before its start request has answered is still caught. */
+  const early = new Map<string, { planId?: number; error?: string }>()
+
+  function remember(runId: string, outcome: { planId?: number; error?: string }) {
+    early.set(runId, outcome)
+    if (early.size > 20) early.delete(early.keys().next().value!)
+  }
 
   async function start(body: PlanRunInput) {
     progress.value = null
     run.value = await plansApi.startRun(body)
+    const heard = early.get(run.value.id)
+    if (heard?.planId) {
+      onDrafted(heard.planId, run.value.id)
+      void afterDrafted?.(heard.planId, run.value.id)
+    }
+    else if (heard?.error !== undefined) onFailed({ runId: run.value.id, error: heard.error })
+    early.clear()
     schedule()
     return run.value
   }
@@ -54,6 +68,7 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
   /** plan:drafted: returns whether the draft is our run's (a draft without a run id while ours runs counts as ours). */
   function onDrafted(planId: number, runId?: string): boolean {
     const ours = !!run.value && (!runId || run.value.id === runId)
+    if (!ours && runId) remember(runId, { planId })
     if (ours && active.value) run.value = { ...run.value!, status: 'done', planId }
     return ours
   }
@@ -61,6 +76,7 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
   /** plan:failed: ours shows the reason at once; a run already over keeps its outcome. */
   function onFailed(p: { runId: string; error: string }) {
     if (run.value?.id === p.runId && active.value) run.value = { ...run.value, status: 'failed', error: p.error }
+    else if (run.value?.id !== p.runId) remember(p.runId, { error: p.error })
   }
 
   /** An answer of GET /plans/runs/:id (poll, stop, catch-up after a reconnect). */

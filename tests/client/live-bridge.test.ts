@@ -157,6 +157,17 @@ describe('planner run', () => {
     expect(runs.run?.error).toBe('The planner found no plan.')
   })
 
+  it('when the run fails before its start request has answered, then the outcome heard meanwhile still ends it', async () => {
+    plans.startRun.mockImplementation(async () => {
+      socket.fire('plan:failed', { runId: 'run-1', error: 'Nothing to plan.', seq: 1 })
+      return run('queued')
+    })
+    const runs = usePlannerRunStore()
+    await runs.start({ timeLimitSeconds: 10, seed: 1, stability: 'small-changes' })
+    expect(runs.phase).toBe('failed')
+    expect(runs.run?.error).toBe('Nothing to plan.')
+  })
+
   it('when the socket is down, then the run is polled, and when it is back, then polling stops', async () => {
     plans.startRun.mockResolvedValue(run('queued'))
     plans.getRun.mockResolvedValue(run('running', { progress: { iteration: 9, weightedTardiness: 50, makespan: 800, elapsedMs: 1500 } }))

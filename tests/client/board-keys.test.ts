@@ -1,6 +1,6 @@
 // Board tools in pure form: the move a key asks for, finding a job bag by number or customer, and the plan-against-actual line.
 import { describe, expect, it } from 'vitest'
-import type { BoardData, BoardItem } from '@/api/plans'
+import type { BoardData, BoardItem } from '@shared/schemas/board'
 import { actualSpan, actualSummary, barFor, keyMove, searchJobBags } from '@/components/board/board-vis'
 
 const item = (o: Partial<BoardItem> = {}): BoardItem => ({

@@ -1,6 +1,6 @@
 // Week load: planned against available hours, the overload mark at the planning load, our colour ramp, week totals and the tightest rows.
 import { describe, expect, it } from 'vitest'
-import type { LoadRow } from '@/api/plans'
+import type { LoadRow } from '@shared/schemas/plan'
 import { bottlenecks, cellLabel, heatColour, hours, loadLevel, loadRatio, percent, weekTotal } from '@/components/board/load-heat'
 
 const row = (type: 'bench' | 'skill', id: number, name: string, cells: [string, string, number, number, number[]][]): LoadRow => ({

@@ -2,7 +2,8 @@
 import { beforeEach, describe, expect, it, vi } from 'vitest'
 import { createPinia, setActivePinia } from 'pinia'
 import { ApiError } from '@/api/client'
-import type { BoardItem, PlanRun } from '@/api/plans'
+import type { BoardItem } from '@shared/schemas/board'
+import type { PlanRun } from '@shared/schemas/plan'
 
 const api = vi.hoisted(() => ({ moveOperation: vi.fn(), getBoard: vi.fn() }))
 vi.mock('@/api/plans', async () => ({ ...(await vi.importActual<object>('@/api/plans')), ...api }))

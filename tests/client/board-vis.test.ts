@@ -1,6 +1,6 @@
 // Board mapping: rows, bars and their colours, shading, windows in the workshop's zone, and the move request a drop makes.
 import { describe, expect, it } from 'vitest'
-import type { BoardData, BoardItem } from '@/api/plans'
+import type { BoardData, BoardItem } from '@shared/schemas/board'
 import {
   ORDER_TONES, OUTSIDE_GROUP, STATE_COLOURS, backgroundsFor, orderTone, barFor, barState, completionFromMakespan, contrast, dataWindowFor, dayStart, foldedStretches,
   groupOf, groupsFor, inkOn, isDraggable, moveRequest, outsideWindow, parseInstant, shiftAnchor, visibleWindow,

@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest'
 import { mount } from '@vue/test-utils'
 import ElementPlus from 'element-plus'
-import type { BoardItem } from '@/api/plans'
+import type { BoardItem } from '@shared/schemas/board'
 import BoardBarDetails from '@/components/board/BoardBarDetails.vue'
 import BoardBarTooltip from '@/components/board/BoardBarTooltip.vue'
 

@@ -1,7 +1,8 @@
 // Pure mapping from board data to timeline rows and bars: groups, bar colours by kind or state, backgrounds, windows, move requests.
 import dayjs from 'dayjs'
 import type { MoveInput } from '@shared/schemas/plan'
-import type { BoardData, BoardItem, JobState, PlanMove } from '@/api/plans'
+import type { BoardData, BoardItem, JobState } from '@shared/schemas/board'
+import type { PlanMove } from '@shared/schemas/plan'
 import { dayStart, type ColourBy, type RowsBy } from '@/lib/board-calendar'
 
 // The calendar arithmetic lives in src/lib so stores can use it without importing a component module.

@@ -1,5 +1,5 @@
 // Pure helpers of the week-load heat table: planned against available hours, our colour ramp, the overload mark, week totals.
-import type { LoadCell, LoadRow, WeekLoad } from '@/api/plans'
+import type { LoadCell, LoadRow, WeekLoad } from '@shared/schemas/plan'
 
 export type LoadLevel = 'closed' | 'idle' | 'light' | 'steady' | 'near' | 'over' | 'beyond'
 

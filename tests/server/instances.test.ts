@@ -129,7 +129,7 @@ describe('caches across instances', () => {
 
 describe('claims across instances', () => {
   it('when 100 setters claim one ready step at the same moment, half through A and half through B, then exactly one wins and 99 are told who has it', async () => {
-    const t = { pool: cluster.database.pool } as unknown as TestApp
+    const t = { pool: cluster.database.pool, db: cluster.database.db } as unknown as TestApp
     const viaA = await extraSetters({ ...t, app: a.url } as unknown as TestApp, 50, 'inst-a')
     const viaB = await extraSetters({ ...t, app: b.url } as unknown as TestApp, 50, 'inst-b')
     const crowd = [...viaA, ...viaB]

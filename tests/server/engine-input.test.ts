@@ -2,6 +2,8 @@
 // answer 422 naming the job bag and the step; routings that go round in a circle cannot be saved at all.
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import { MAX_OPERATION_MINUTES } from '../../server/scheduler/check'
+import { and, asc, count, eq, inArray, notInArray, sql } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { expectCleanError, expectFieldError } from './helpers'
 
@@ -15,13 +17,13 @@ afterEach(async () => { await t?.close() })
 
 /** A step still to do on a job bag of an open order, done at a bench (not outside work). */
 async function openStep(kindCode?: string) {
-  const { rows: [op] } = await t.pool.query(
-    `select o.id, o.name, o.version, o.kind_id, jb.id as bag_id, jb.number, jb.version as bag_version
-       from operations o join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id join operation_kinds k on k.id = o.kind_id
-      where ord.status = 'open' and jb.status not in ('complete', 'cancelled') and o.status in ('pending', 'ready') and not k.outside and ($1::text is null or k.code = $1)
-      order by ord.due_date, jb.number, o.seq limit 1`, [kindCode ?? null])
+  const o = s.operations, jb = s.jobBags, k = s.operationKinds
+  const [op] = await t.db.select({ id: o.id, name: o.name, version: o.version, kind_id: o.kindId, bag_id: jb.id, number: jb.number, bag_version: jb.version })
+    .from(o).innerJoin(jb, eq(jb.id, o.jobBagId)).innerJoin(s.orders, eq(s.orders.id, jb.orderId)).innerJoin(k, eq(k.id, o.kindId))
+    .where(and(eq(s.orders.status, 'open'), notInArray(jb.status, ['complete', 'cancelled']), inArray(o.status, ['pending', 'ready']), eq(k.outside, false), kindCode == null ? undefined : eq(k.code, kindCode)))
+    .orderBy(asc(s.orders.dueDate), asc(jb.number), asc(o.seq)).limit(1)
   expect(op, 'the demo data has an open step').toBeTruthy()
-  return op as { id: number; name: string; version: number; kind_id: number; bag_id: number; number: string; bag_version: number }
+  return op!
 }
 
 async function planRun() {
@@ -44,16 +46,16 @@ describe('impossible skills', () => {
     const step = await openStep()
     const add = await manager.post(`/api/job-bags/${step.bag_id}/operations`, { kindId: kind.body.id, name: 'Enamel the bezel', estimateMinutes: 90, reason: 'customer asked for colour', version: step.bag_version })
     expect(add.status, JSON.stringify(add.body)).toBe(201)
-    const { rows: [added] } = await t.pool.query(`select id, name from operations where job_bag_id = $1 and kind_id = $2`, [step.bag_id, kind.body.id])
+    const [added] = await t.db.select({ id: s.operations.id, name: s.operations.name }).from(s.operations).where(and(eq(s.operations.jobBagId, step.bag_id), eq(s.operations.kindId, kind.body.id)))
     const r = await planRun()
-    expectNamed(r, { number: step.number, id: step.bag_id }, added, 'no-option')
+    expectNamed(r, { number: step.number, id: step.bag_id }, added!, 'no-option')
     expect(r.body.error).toMatch(/add the skill to someone or a suitable bench/)
   })
 
   it('when a step requires a level that no person with that skill reaches, then starting the planner answers 422 naming the job bag and the step', async () => {
     const step = await openStep()
     // Everybody who has this kind of work is at most level 2; the step asks for level 3 (set through the API).
-    await t.pool.query('update person_skills set level = least(level, 2) where kind_id = $1', [step.kind_id])
+    await t.db.update(s.personSkills).set({ level: sql`least(${s.personSkills.level}, 2)` }).where(eq(s.personSkills.kindId, step.kind_id))
     const patch = await manager.patch(`/api/job-bags/${step.bag_id}/operations/${step.id}`, { requiredLevel: 3, version: step.version })
     expect(patch.status, JSON.stringify(patch.body)).toBe(200)
     expectNamed(await planRun(), { number: step.number, id: step.bag_id }, step, 'no-option')
@@ -63,7 +65,7 @@ describe('impossible skills', () => {
 describe('absurd durations', () => {
   it('when an estimate of 10^7 minutes is written straight into the database, then starting the planner answers 422 naming the job bag and the step', async () => {
     const step = await openStep()
-    await t.pool.query('update operations set estimate_minutes = 10000000 where id = $1', [step.id])
+    await t.db.update(s.operations).set({ estimateMinutes: 10_000_000 }).where(eq(s.operations.id, step.id))
     const r = await planRun()
     expectNamed(r, { number: step.number, id: step.bag_id }, step, 'bad-duration')
     expect(r.body.error).toContain(`at most ${MAX_OPERATION_MINUTES}`)
@@ -80,8 +82,8 @@ describe('absurd durations', () => {
   })
 
   it('when a template step would take 10000 base minutes plus 240 per stone on 2000 stones, then checking a promise answers 422 naming the step, not a 500', async () => {
-    const { rows: [k] } = await t.pool.query(`select id from operation_kinds where code = 'setting'`)
-    const tpl = await manager.post('/api/templates', { code: 'pave-everything', name: 'Pavé everything', steps: [{ key: 'set', kindId: k.id, name: 'Set every stone', baseMinutes: 10000, perStoneMinutes: 240 }] })
+    const [k] = await t.db.select({ id: s.operationKinds.id }).from(s.operationKinds).where(eq(s.operationKinds.code, 'setting'))
+    const tpl = await manager.post('/api/templates', { code: 'pave-everything', name: 'Pavé everything', steps: [{ key: 'set', kindId: k!.id, name: 'Set every stone', baseMinutes: 10000, perStoneMinutes: 240 }] })
     expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
     const r = await manager.post('/api/promise/check', { templateId: tpl.body.id, params: { stoneCount: 2000, stoneSizeMm: 1 } })
     expect(r.status, JSON.stringify(r.body)).toBe(422)
@@ -91,7 +93,7 @@ describe('absurd durations', () => {
 })
 
 describe('routings in a circle', () => {
-  const kindId = async () => (await t.pool.query(`select id from operation_kinds where code = 'polishing'`)).rows[0].id as number
+  const kindId = async () => (await t.db.select({ id: s.operationKinds.id }).from(s.operationKinds).where(eq(s.operationKinds.code, 'polishing')))[0]!.id
 
   it('when a template whose steps follow each other in a circle is sent, then it is refused with 400 on steps and nothing is saved', async () => {
     const kid = await kindId()
@@ -104,8 +106,8 @@ describe('routings in a circle', () => {
     expectFieldError(r, 'steps', /circle/)
     const self = await manager.post('/api/templates', { code: 'own-tail', name: 'Own tail', steps: [{ key: 'a', kindId: kid, name: 'Only', baseMinutes: 10, after: ['a'] }] })
     expectFieldError(self, 'steps.0.after', /itself/)
-    const { rows: [n] } = await t.pool.query(`select count(*)::int n from routing_templates where code in ('round-and-round', 'own-tail')`)
-    expect(n.n).toBe(0)
+    const [n] = await t.db.select({ n: count() }).from(s.routingTemplates).where(inArray(s.routingTemplates.code, ['round-and-round', 'own-tail']))
+    expect(n!.n).toBe(0)
   })
 
   it('when an existing template is replaced by one with a circle, then it is refused with 400 and the saved steps stay as they were', async () => {
@@ -122,17 +124,17 @@ describe('routings in a circle', () => {
   })
 
   it('when a job bag step is made to wait for a step that waits for it, then the change is refused naming "after" and the routing is unchanged', async () => {
-    const { rows } = await t.pool.query(
-      `select o.id, o.key, o.version, o.after, o.job_bag_id from operations o where o.job_bag_id = (
-         select o2.job_bag_id from operations o2 join job_bags jb on jb.id = o2.job_bag_id join orders ord on ord.id = jb.order_id
-          where ord.status = 'open' and o2.status = 'pending' and cardinality(o2.after) > 0 order by jb.number limit 1) order by o.seq`)
-    const later = rows.find((o: { after: string[] }) => o.after.length > 0)!
-    const earlier = rows.find((o: { key: string }) => o.key === later.after[0])!
+    const o = s.operations
+    const [bag] = await t.db.select({ id: o.jobBagId }).from(o).innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending'), sql`cardinality(${o.after}) > 0`)).orderBy(asc(s.jobBags.number)).limit(1)
+    const rows = await t.db.select({ id: o.id, key: o.key, version: o.version, after: o.after, job_bag_id: o.jobBagId }).from(o).where(eq(o.jobBagId, bag!.id)).orderBy(asc(o.seq))
+    const later = rows.find((x) => x.after.length > 0)!
+    const earlier = rows.find((x) => x.key === later.after[0])!
     const r = await manager.patch(`/api/job-bags/${earlier.job_bag_id}/operations/${earlier.id}`, { after: [...earlier.after, later.key], version: earlier.version })
     expect([400, 422]).toContain(r.status)
     expectCleanError(r, r.status)
     expect(Object.keys(r.body.fields ?? {})).toContain('after')
-    const { rows: [still] } = await t.pool.query('select after, version from operations where id = $1', [earlier.id])
+    const [still] = await t.db.select({ after: o.after, version: o.version }).from(o).where(eq(o.id, earlier.id))
     expect(still).toEqual({ after: earlier.after, version: earlier.version })
   })
 })

@@ -2,7 +2,10 @@
 // mismatch, corrections with who and why, replays, field errors, a customer's own stones before ready and collected, and the
 // setting step's planned minutes following the stone list.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { and, count, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { firstCustomerId, templateId } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from './helpers'
 import { rid } from './bench-fixtures'
 
@@ -29,8 +32,8 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   setter = await signedIn(t.app, 'bench')
   owner = await signedIn(t.app, 'owner')
-  const { rows: [tpl] } = await t.pool.query(`select id from routing_templates where code = 'halo-ring'`)
-  const { rows: [c] } = await t.pool.query('select min(id) as id from customers')
+  const tpl = { id: await templateId(t.db, 'halo-ring') }
+  const c = { id: await firstCustomerId(t.db) }
   // A halo ring taken with no stone figures: its setting step starts at the routing's base of 40 min.
   const r = await sales.post('/api/orders', { customerId: c.id, title: 'Halo ring, customer’s diamond', dueDate: '2031-09-01', pieces: [{ templateId: tpl.id, piece: 'Halo ring', params: { metal: 'platinum-950', ringSize: { scale: 'uk', value: 'N' } } }] })
   expect(r.status).toBe(201)
@@ -38,6 +41,11 @@ beforeAll(async () => {
   bagId = r.body.jobBags[0].id
 })
 afterAll(async () => { await t?.close() })
+
+/** The setting step ('set') of a job bag: its stored minutes, and its status set straight in the database. */
+const setStepOf = (bagId: number) => and(eq(s.operations.jobBagId, bagId), eq(s.operations.key, 'set'))
+const setMinutes = async (bagId: number) => (await t.db.select({ m: s.operations.estimateMinutes }).from(s.operations).where(setStepOf(bagId)))[0]!.m
+const setStatus = (bagId: number, status: string) => t.db.update(s.operations).set({ status }).where(setStepOf(bagId))
 
 describe('the stone list', () => {
   it('when sales adds the customer’s 6.5 mm round diamond without a weight, then it is listed with 1.00 ct estimated and the setting minutes follow', async () => {
@@ -64,8 +72,7 @@ describe('the stone list', () => {
     // Hand-worked: 40 + 8 × 1 × 1.5 (6.5 mm, over 3 mm) × 3 (centre) + 8 × 14 × 1.2 (1.3 mm, under 1.5 mm) × 1.2 (halo)
     // = 40 + 36 + 161.28 = 237.28 → 237.3 min.
     expect((await setStep()).estimateMinutes).toBe(237.3)
-    const { rows: [op] } = await t.pool.query(`select estimate_minutes from operations where job_bag_id = $1 and key = 'set'`, [bagId])
-    expect(op.estimate_minutes).toBe(237.3)
+    expect(await setMinutes(bagId)).toBe(237.3)
   })
 
   it('when a halo line is edited to 16 stones and back, then the minutes follow and a stale version is refused', async () => {
@@ -156,8 +163,8 @@ describe('counting stones out and back', () => {
     expect(a.status).toBe(201)
     expect(b.status).toBe(201)
     expect((b.body as Stones).lines.find((x) => x.id === centre.id)!.reconciliation.issued).toBe(1)
-    const { rows: [n] } = await t.pool.query('select count(*)::int as n from stone_movements where stone_line_id = $1', [centre.id])
-    expect(n.n).toBe(1)
+    const [n] = await t.db.select({ n: count() }).from(s.stoneMovements).where(eq(s.stoneMovements.stoneLineId, centre.id))
+    expect(n!.n).toBe(1)
   })
 
   it('when more are counted back than went out, then it is refused naming the entry unless a reason is given', async () => {
@@ -166,11 +173,11 @@ describe('counting stones out and back', () => {
   })
 
   it('when the setting step is finished with one stone unaccounted, then the line is flagged as a mismatch', async () => {
-    await t.pool.query(`update operations set status = 'done' where job_bag_id = $1 and key = 'set'`, [bagId])
+    await setStatus(bagId, 'done')
     const l = (await stones()).lines.find((x) => x.id === halo.id)!
     expect(l.state).toBe('mismatch')
     expect(l.reconciliation.difference).toBe(1)
-    await t.pool.query(`update operations set status = 'pending' where job_bag_id = $1 and key = 'set'`, [bagId])
+    await setStatus(bagId, 'pending')
   })
 
   it('when the manager corrects the set count from 12 to 13 with a reason, then it balances and the correction says who and why', async () => {
@@ -245,14 +252,12 @@ describe('a routing step’s own role factors', () => {
     })
     expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
     expect(tpl.body.steps[0].roleFactors).toEqual({ centre: 4 })
-    const { rows: [c] } = await t.pool.query('select min(id) as id from customers')
-    const o = await sales.post('/api/orders', { customerId: c.id, title: 'Two halo rings', dueDate: '2031-09-01', pieces: [{ templateId: tpl.body.id, piece: 'Halo ring', params: { quantity: 2 } }] })
+    const o = await sales.post('/api/orders', { customerId: await firstCustomerId(t.db), title: 'Two halo rings', dueDate: '2031-09-01', pieces: [{ templateId: tpl.body.id, piece: 'Halo ring', params: { quantity: 2 } }] })
     const bag = o.body.jobBags[0].id
     await sales.post(`/api/job-bags/${bag}/stones`, { role: 'centre', sizeMm: 6.5, count: 1 })
     await sales.post(`/api/job-bags/${bag}/stones`, { role: 'halo', sizeMm: 1.3, count: 14 })
-    const { rows: [op] } = await t.pool.query(`select estimate_minutes from operations where job_bag_id = $1 and key = 'set'`, [bag])
     // Hand-worked, per piece: 30 + 6 × 1 × 1.5 (over 3 mm) × 4 (this step's centre) + 6 × 14 × 1.2 (under 1.5 mm) × 1.2 (usual halo)
     // = 30 + 36 + 120.96 = 186.96; two pieces, no learning curve: 373.92 → 373.9 min.
-    expect(op.estimate_minutes).toBe(373.9)
+    expect(await setMinutes(bag)).toBe(373.9)
   })
 })

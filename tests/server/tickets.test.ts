@@ -11,6 +11,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { HAZARD_CAUTIONS, HAZARD_FOOTER } from '../../shared/domain/status'
 import { jobBagLink, jobTicketPdf, ticketQrPng } from '../../server/services/tickets'
 import { suggestPublicUrl } from '../../server/lib/public-url'
+import { and, asc, eq, exists, ne } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { expectCleanError, expectFieldError } from './helpers'
 
@@ -39,16 +41,18 @@ beforeAll(async () => {
   manager = await signedIn(t.app, 'manager')
   owner = await signedIn(t.app, 'owner')
   // A job bag with a soldering step (torch and pickle hazards).
-  const { rows } = await t.pool.query(`
-    select jb.id, jb.number, c.name as customer_name, c.email, c.phone, c.reference from job_bags jb join orders o on o.id = jb.order_id join customers c on c.id = o.customer_id
-    where o.status = 'open' and exists (select 1 from operations op join operation_kinds k on k.id = op.kind_id where op.job_bag_id = jb.id and k.code = 'soldering')
-    order by jb.id limit 1`)
-  bag = rows[0]
+  const soldering = t.db.select({ id: s.operations.id }).from(s.operations).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    .where(and(eq(s.operations.jobBagId, s.jobBags.id), eq(s.operationKinds.code, 'soldering')))
+  const [found] = await t.db.select({ id: s.jobBags.id, number: s.jobBags.number, params: s.jobBags.params, customer_name: s.customers.name, email: s.customers.email, phone: s.customers.phone, reference: s.customers.reference })
+    .from(s.jobBags).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
+    .where(and(eq(s.orders.status, 'open'), exists(soldering))).orderBy(asc(s.jobBags.id)).limit(1)
+  bag = found!
   // The piece is platinum, and its first open step is planned at a bench, so the ticket has a metal and a bench to name.
-  await t.pool.query(`update job_bags set params = jsonb_set(params, '{metal}', '"platinum-950"') where id = $1`, [bag.id])
-  const { rows: [b] } = await t.pool.query(`select id, name from benches where workshop_id = 1 and active order by id limit 1`)
-  benchName = b.name
-  await t.pool.query(`update operations set planned_bench_id = $1 where id = (select id from operations where job_bag_id = $2 and status <> 'skipped' order by seq, id limit 1)`, [b.id, bag.id])
+  await t.db.update(s.jobBags).set({ params: { ...found!.params, metal: 'platinum-950' } }).where(eq(s.jobBags.id, bag.id))
+  const [b] = await t.db.select({ id: s.benches.id, name: s.benches.name }).from(s.benches).where(and(eq(s.benches.workshopId, 1), eq(s.benches.active, true))).orderBy(asc(s.benches.id)).limit(1)
+  benchName = b!.name
+  const [first] = await t.db.select({ id: s.operations.id }).from(s.operations).where(and(eq(s.operations.jobBagId, bag.id), ne(s.operations.status, 'skipped'))).orderBy(asc(s.operations.seq), asc(s.operations.id)).limit(1)
+  await t.db.update(s.operations).set({ plannedBenchId: b!.id }).where(eq(s.operations.id, first!.id))
   await setPublicUrl(PUBLIC_URL)
 })
 afterAll(async () => { await t?.close() })
@@ -100,8 +104,8 @@ describe('job ticket PDF', () => {
     expect(pdf.toString('latin1')).toMatch(/\/MediaBox \[0 0 297\.64 419\.53\]/)
     expect(text).toContain(bag.number)
     expect(text).toContain(bag.reference)
-    const steps = (await t.pool.query('select name from operations where job_bag_id = $1', [bag.id])).rows
-    for (const s of steps) expect(text.replace(/\s+/g, ' ')).toContain(s.name)
+    const steps = await t.db.select({ name: s.operations.name }).from(s.operations).where(eq(s.operations.jobBagId, bag.id))
+    for (const step of steps) expect(text.replace(/\s+/g, ' ')).toContain(step.name)
   })
 
   it('when a step is hazardous, then its cautions and the footer are printed', () => {
@@ -129,7 +133,8 @@ describe('job ticket PDF', () => {
     // The name the workshop uses for platinum-950 (common practice, no source: "Platinum 950" is how the trade writes Pt 950).
     expect(flat).toContain('Platinum 950')
     expect(flat).not.toContain('platinum-950')
-    const kinds = (await t.pool.query(`select distinct k.code, k.name from operations op join operation_kinds k on k.id = op.kind_id where op.job_bag_id = $1 and op.status <> 'skipped'`, [bag.id])).rows
+    const kinds = await t.db.selectDistinct({ code: s.operationKinds.code, name: s.operationKinds.name }).from(s.operations).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+      .where(and(eq(s.operations.jobBagId, bag.id), ne(s.operations.status, 'skipped')))
     for (const k of kinds) {
       expect(flat).toContain(k.name)
       if (k.code !== k.name && /-/.test(k.code)) expect(flat).not.toContain(k.code)
@@ -176,7 +181,7 @@ describe('ticket print time with a clock we hold', () => {
     let flat = await pdfText((await jobTicketPdf(t.db, 1, bag.id, { size: 'A6', requestOrigin: 'http://127.0.0.1:9', now: at })).pdf)
     expect(flat).toContain('Printed 2025-07-15 14:07 BST (Europe/London)')
     expect(dayjs(at).tz('Europe/London').format('YYYY-MM-DD HH:mm')).toBe('2025-07-15 14:07')
-    await t.pool.query(`update workshops set time_zone = 'Australia/Sydney' where id = 1`)
+    await t.db.update(s.workshops).set({ timeZone: 'Australia/Sydney' }).where(eq(s.workshops.id, 1))
     try {
       // Hand-worked: Sydney keeps AEST (UTC+10) in July; daylight time runs from the first Sunday in October (NSW Standard Time Act 1987).
       flat = await pdfText((await jobTicketPdf(t.db, 1, bag.id, { size: 'A6', requestOrigin: 'http://127.0.0.1:9', now: at })).pdf)
@@ -186,7 +191,7 @@ describe('ticket print time with a clock we hold', () => {
       expect(flat).toMatch(/Printed 2025-07-16 01:30 \S+ \(Australia\/Sydney\)/)
       expect(dayjs(late).tz('Australia/Sydney').format('YYYY-MM-DD HH:mm')).toBe('2025-07-16 01:30')
     } finally {
-      await t.pool.query(`update workshops set time_zone = 'Europe/London' where id = 1`)
+      await t.db.update(s.workshops).set({ timeZone: 'Europe/London' }).where(eq(s.workshops.id, 1))
     }
   })
 })

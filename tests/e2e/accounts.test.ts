@@ -1,26 +1,18 @@
 // Accounts in Chromium: the owner invites someone by e-mail, the link from the local test mailbox opens the page where
 // they choose their password, and they land signed in; a manager makes a tablet a bench station where a setter acts with her PIN.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Page } from 'playwright-core'
+import type { Page } from 'playwright-core'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
-import { DEMO_PASSWORD, screenshot, signInPage, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { DEMO_PASSWORD, screenshot, signInPage, signInWith, useE2E } from '../setup/e2e'
 
-let e2e: E2E
 let fake: FakeSmtp
-let ownerContext: BrowserContext
 let owner: Page
-
+beforeAll(async () => { fake = await startFakeSmtp() })
+afterAll(async () => { await fake?.close() })
+const e2e = useE2E({ env: () => ({ SMTP_URL: fake.url }) })
 beforeAll(async () => {
-  fake = await startFakeSmtp()
-  e2e = await startE2E({ env: { SMTP_URL: fake.url } })
   fake.useDb(e2e.db.db)
-  ownerContext = await e2e.newContext()
-  owner = await signInPage(ownerContext, 'owner')
-})
-afterAll(async () => {
-  await ownerContext?.close()
-  await e2e?.close()
-  await fake?.close()
+  owner = await signInPage(await e2e.newContext(), 'owner')
 })
 
 describe('invitation by e-mail', () => {

@@ -1,33 +1,15 @@
 // The bench tablet in Chromium at 10-inch sizes: the setter picks a bench, takes, starts, pauses, resumes and finishes a setting job while the manager's job bag page follows live.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import type { BrowserContext, Page } from 'playwright-core'
-import { DEMO_PASSWORD, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { DEMO_PASSWORD, makeStepReady, screenshot, signInWith, useE2E } from '../setup/e2e'
 
-let e2e: E2E
+const e2e = useE2E()
 const TABLET_LANDSCAPE = { width: 1280, height: 800 }
 const TABLET_PORTRAIT = { width: 800, height: 1280 }
 
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
-
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
-/** Marks every predecessor done and the step ready, straight in the test database. */
-async function makeReady(operationId: number) {
-  const [op] = await q('select job_bag_id from operations where id = $1', [operationId])
-  const ops = await q('select id, key, after from operations where job_bag_id = $1', [op.job_bag_id])
-  const byKey = new Map(ops.map((o) => [o.key, o]))
-  const seen = new Set<number>()
-  const stack = [...ops.find((o) => o.id === operationId).after]
-  while (stack.length) {
-    const p = byKey.get(stack.pop())
-    if (!p || seen.has(p.id)) continue
-    seen.add(p.id)
-    stack.push(...p.after)
-  }
-  await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where id = any($1::int[])`, [[...seen]])
-  await q(`update operations set status = 'ready' where id = $1`, [operationId])
-}
+const makeReady = (operationId: number) => makeStepReady(e2e, operationId)
 
 async function firstPending(kind: string, key?: string) {
   const [op] = await q(`select o.id, o.job_bag_id, o.name from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id

@@ -2,21 +2,19 @@
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { afterAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { jobBagLink } from '../../server/services/tickets'
-import { DEMO_PASSWORD, launchChromium, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { DEMO_PASSWORD, launchChromium, screenshot, signInWith, useE2E } from '../setup/e2e'
 import { qrVideo } from '../setup/qr-video'
 
-let e2e: E2E
+const e2e = useE2E()
 let cameraBrowser: Browser | null = null
 const dir = mkdtempSync(join(tmpdir(), 'mg-scan-'))
 const TABLET = { width: 1280, height: 800 }
 
-beforeAll(async () => { e2e = await startE2E() })
 afterAll(async () => {
   await cameraBrowser?.close().catch(() => undefined)
-  await e2e?.close()
   rmSync(dir, { recursive: true, force: true })
 })
 

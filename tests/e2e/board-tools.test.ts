@@ -1,21 +1,19 @@
 // The manager's board tools in Chromium: finished work at its actual times, finding a job bag, moving a bar by keyboard
 // (accepted by exactly the step, or refused with the reason), and the icon rail that gives the board the width on a tablet.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import dayjs from 'dayjs'
 import utc from 'dayjs/plugin/utc'
 import timezone from 'dayjs/plugin/timezone'
 import isoWeek from 'dayjs/plugin/isoWeek'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { barBox, screenshot, signInPage, useE2E } from '../setup/e2e'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
 dayjs.extend(isoWeek)
 
 const TZ = 'Europe/London'
-let e2e: E2E
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
+const e2e = useE2E()
 
 interface Bar { id: number; jobBagId: number; jobBagNumber: string; name: string; status: string; outside: boolean; start: string; end: string; benchId: number | null; personId: number | null; version: number; customerName: string }
 
@@ -31,14 +29,7 @@ async function call(page: Page, method: string, path: string, body?: unknown): P
   }, { method, path, body })
 }
 
-/** Where a bar is drawn, or null when it is not wholly inside the visible part of the timeline. */
-async function boxOf(page: Page, id: number) {
-  const el = page.locator(`.vis-item.board-bar[data-id="${id}"]`)
-  if (!(await el.count())) return null
-  const [box, panel] = await Promise.all([el.boundingBox(), page.locator('.vis-panel.vis-center').boundingBox()])
-  if (!box || !panel || box.x < panel.x || box.x + box.width > panel.x + panel.width || box.y < panel.y || box.y + box.height > panel.y + panel.height) return null
-  return box
-}
+const boxOf = barBox
 
 /** "2 h 50 min" / "45 min" / "3 h": minutes as the board writes them (worked out here, not imported). */
 const hm = (min: number) => (min < 60 ? `${min} min` : min % 60 ? `${Math.floor(min / 60)} h ${min % 60} min` : `${min / 60} h`)

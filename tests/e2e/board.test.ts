@@ -1,11 +1,9 @@
 // The planning board in Chromium: the manager runs the planner, publishes, is refused a drop on a bench that cannot host the step, moves a bar; sales watches it live.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { barBox, screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
+const e2e = useE2E()
 
 interface Bar { id: number; kind: string; name: string; jobBagId: number; jobBagNumber: string; benchId: number | null; personId: number | null; start: string; end: string; status: string; outside: boolean; version: number }
 
@@ -29,14 +27,7 @@ async function patchAs(page: Page, path: string, body: unknown): Promise<{ statu
   }, { path, body })
 }
 
-/** Where a bar is drawn, or null when it is not wholly inside the visible part of the timeline. */
-async function boxOf(page: Page, id: number) {
-  const el = page.locator(`.vis-item.board-bar[data-id="${id}"]`)
-  if (!(await el.count())) return null
-  const [box, panel] = await Promise.all([el.boundingBox(), page.locator('.vis-panel.vis-center').boundingBox()])
-  if (!box || !panel || box.x < panel.x || box.x + box.width > panel.x + panel.width || box.y < panel.y || box.y + box.height > panel.y + panel.height) return null
-  return box
-}
+const boxOf = barBox
 
 /** The vertical middle of a row, by its label. */
 async function rowMiddle(page: Page, label: string) {

@@ -1,12 +1,10 @@
 // Money typed on screen in Chromium: the order dialog reads a typed price digit by digit into whole pence and shows the server's
 // estimated cost, margin and suggested price in the workshop's currency; a person's hourly cost is stored in whole pence.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import type { Locator, Page } from 'playwright-core'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
+const e2e = useE2E()
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 const input = (scope: Page | Locator, name: string) => scope.locator(`input[data-test=${name}], [data-test=${name}] input`).first()
 

@@ -1,11 +1,9 @@
 // Our own Content-Security-Policy must not break our own screens: every page each role can reach loads without a policy violation.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import { ROLES } from '../../shared/domain/roles'
-import { navTargets, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { navTargets, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
+const e2e = useE2E()
 
 describe('content security policy in the browser', () => {
   it.each(ROLES)('when the %s opens every page of their navigation, then Chromium reports no Content-Security-Policy violation', async (role) => {

@@ -1,20 +1,11 @@
 // The owner's insights screen in Chromium: comparison tables with totals, charts drawn on canvas, drill-down to time records, suggestions, job costing.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Page } from 'playwright-core'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { beforeAll, describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-let context: BrowserContext
+const e2e = useE2E()
 let page: Page
-beforeAll(async () => {
-  e2e = await startE2E()
-  context = await e2e.newContext()
-  page = await signInPage(context, 'owner')
-})
-afterAll(async () => {
-  await context?.close()
-  await e2e?.close()
-})
+beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
 
 /** Pixels of a chart's canvas that are not blank (transparent or white): proof something was drawn. */
 const inkedPixels = (p: Page, testId: string) => p.locator(`[data-test=${testId}] canvas`).first().evaluate((c: HTMLCanvasElement) => {

@@ -1,11 +1,9 @@
 // The job bag page in Chromium: outside work sent out and booked back, a step added to the routing (manager); the ring size
 // changed after ordering and a stone with its measured depth added (sales).
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { describe, expect, it } from 'vitest'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
+const e2e = useE2E()
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
 describe('job bag page', () => {

@@ -8,19 +8,17 @@ import jsQR from 'jsqr'
 import { PDFParse } from 'pdf-parse'
 import { PNG } from 'pngjs'
 import type { Browser } from 'playwright-core'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { DEMO_PASSWORD, launchChromium, screenshot, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { afterAll, describe, expect, it } from 'vitest'
+import { DEMO_PASSWORD, launchChromium, screenshot, signInWith, useE2E } from '../setup/e2e'
 import { qrVideo } from '../setup/qr-video'
 
-let e2e: E2E
 let camera: Browser | null = null
 const dir = mkdtempSync(join(tmpdir(), 'mg-lan-scan-'))
 const tlsDir = join(dir, 'tls')
 
-beforeAll(async () => { e2e = await startE2E({ env: { HOST: '127.0.0.1', TLS: '1', TLS_DIR: tlsDir } }) }, 120_000)
+const e2e = useE2E({ env: { HOST: '127.0.0.1', TLS: '1', TLS_DIR: tlsDir } })
 afterAll(async () => {
   await camera?.close().catch(() => undefined)
-  await e2e?.close()
   rmSync(dir, { recursive: true, force: true })
 })
 

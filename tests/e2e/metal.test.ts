@@ -1,12 +1,10 @@
 // Metal in Chromium: the setter weighs metal out and back on a tablet with a container on the scale, a weight of 0 is refused at
 // its field, the owner's metal screen shows stock and loss by person as the database has them, and the casting calculator.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import { PIECE_METAL_ALLOY } from '../../shared/domain/metal'
-import { screenshot, signedInTablet, startE2E, type E2E } from '../setup/e2e'
+import { screenshot, signedInTablet, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
+const e2e = useE2E()
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
 const page = (email: string, viewport?: { width: number; height: number }) => signedInTablet(e2e, email, viewport)

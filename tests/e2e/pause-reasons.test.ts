@@ -1,10 +1,8 @@
 // Pause reasons in Chromium: the owner adds one and switches one off in the workshop settings; the bench's pause dialog follows.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { DEMO_PASSWORD, screenshot, signInPage, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { describe, expect, it } from 'vitest'
+import { DEMO_PASSWORD, makeStepReady, screenshot, signInPage, signInWith, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
+const e2e = useE2E()
 
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
@@ -12,18 +10,7 @@ const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(
 async function readySettingStep() {
   const [op] = await q(`select o.id, o.job_bag_id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
     where k.code = 'setting' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`)
-  const ops = await q('select id, key, after from operations where job_bag_id = $1', [op.job_bag_id])
-  const byKey = new Map(ops.map((o) => [o.key, o]))
-  const seen = new Set<number>()
-  const stack = [...ops.find((o) => o.id === op.id).after]
-  while (stack.length) {
-    const p = byKey.get(stack.pop())
-    if (!p || seen.has(p.id)) continue
-    seen.add(p.id)
-    stack.push(...p.after)
-  }
-  await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where id = any($1::int[])`, [[...seen]])
-  await q(`update operations set status = 'ready' where id = $1`, [op.id])
+  await makeStepReady(e2e, op.id)
   return op as { id: number; job_bag_id: number }
 }
 

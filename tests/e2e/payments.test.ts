@@ -3,29 +3,21 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { BrowserContext, Page } from 'playwright-core'
 import { startPayFake, TEST_CARDS, type PayFake } from '../../server/dev/pay-fake'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
 let fake: PayFake
-let salesContext: BrowserContext
 let customerContext: BrowserContext
 let page: Page
+beforeAll(async () => { fake = await startPayFake() })
+afterAll(async () => { await fake?.close() })
+const e2e = useE2E({ env: () => ({ PAY_FAKE_URL: fake.url }) })
 beforeAll(async () => {
-  fake = await startPayFake()
-  e2e = await startE2E({ env: { PAY_FAKE_URL: fake.url } })
   fake.webhookUrl = `${e2e.url}/api/payments/webhook`
   // The provider sends the customer back to the workshop's public address: this test's server.
   await e2e.db.pool.query(`update workshops set public_url = $1`, [e2e.url])
-  salesContext = await e2e.newContext()
   // The customer: a browser of their own, never signed in.
   customerContext = await e2e.newContext()
-  page = await signInPage(salesContext, 'sales')
-}, 120_000)
-afterAll(async () => {
-  await salesContext?.close()
-  await customerContext?.close()
-  await e2e?.close()
-  await fake?.close()
+  page = await signInPage(await e2e.newContext(), 'sales')
 })
 
 /** An Element Plus field's input, whether the data-test attribute lands on the input itself or on its wrapper. */

@@ -1,25 +1,18 @@
 // Sales in Chromium: checks a date for a prospective piece, sees the range, makes it an order, finds the confirmation in the outbox.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Page } from 'playwright-core'
+import type { Page } from 'playwright-core'
 import { rmSync } from 'node:fs'
 import { basename, resolve } from 'node:path'
 import { PNG } from 'pngjs'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-let context: BrowserContext
+const e2e = useE2E()
 let page: Page
-beforeAll(async () => {
-  e2e = await startE2E()
-  context = await e2e.newContext()
-  page = await signInPage(context, 'sales')
-})
+beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'sales') })
 afterAll(async () => {
   // The server stores uploads in the default directory; remove what this test added.
   const { rows } = await e2e.db.pool.query(`select stored_name, thumbnail_name from files`).catch(() => ({ rows: [] as { stored_name: string; thumbnail_name: string | null }[] }))
   for (const r of rows) for (const n of [r.stored_name, r.thumbnail_name]) if (n) rmSync(resolve('.data/uploads', basename(n)), { force: true })
-  await context?.close()
-  await e2e?.close()
 })
 
 /** An Element Plus field's input, whether the data-test attribute lands on the input itself or on its wrapper. */

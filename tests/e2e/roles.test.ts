@@ -1,15 +1,9 @@
 // Each role signs in in Chromium and sees its own navigation; screens not for a role say so, and the API agrees.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import type { Role } from '../../shared/domain/roles'
-import { DEMO_EMAIL, navTargets, screenshot, signInPage, signInWith, startE2E, type E2E } from '../setup/e2e'
+import { DEMO_EMAIL, navTargets, screenshot, signInPage, signInWith, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-beforeAll(async () => {
-  e2e = await startE2E()
-})
-afterAll(async () => {
-  await e2e?.close()
-})
+const e2e = useE2E()
 
 // The navigation each role is meant to have (product decision in the team brief).
 const EXPECTED: Record<Role, { home: string; nav: string[] }> = {

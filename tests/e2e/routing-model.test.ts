@@ -1,21 +1,12 @@
 // The routing editor in Chromium: a routing's learning curve for production runs, per-mm minutes, stone size band factors and
 // stone role factors are shown, saved and read back.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Locator, Page } from 'playwright-core'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { beforeAll, describe, expect, it } from 'vitest'
+import type { Locator, Page } from 'playwright-core'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-let context: BrowserContext
+const e2e = useE2E()
 let page: Page
-beforeAll(async () => {
-  e2e = await startE2E()
-  context = await e2e.newContext()
-  page = await signInPage(context, 'owner')
-})
-afterAll(async () => {
-  await context?.close()
-  await e2e?.close()
-})
+beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
 
 const CUFF = 'Etched cuff'
 const row = (p: Page, name: string) => p.locator('.el-table__row', { hasText: name })

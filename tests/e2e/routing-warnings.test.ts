@@ -1,20 +1,11 @@
 // The routing editor in Chromium: a step freed from the casting is warned about while editing, the list marks the saved routing, and putting the link back clears it.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Page } from 'playwright-core'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { beforeAll, describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-let context: BrowserContext
+const e2e = useE2E()
 let page: Page
-beforeAll(async () => {
-  e2e = await startE2E()
-  context = await e2e.newContext()
-  page = await signInPage(context, 'manager')
-})
-afterAll(async () => {
-  await context?.close()
-  await e2e?.close()
-})
+beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'manager') })
 
 const STUDS = 'Production run: stud earrings'
 const row = (p: Page) => p.locator('.el-table__row', { hasText: STUDS })

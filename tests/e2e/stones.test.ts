@@ -1,11 +1,9 @@
 // Stones and ring sizes in Chromium: the setter counts stones back on the tablet's running card and the job bag page shows the
 // reconciliation; a ring size typed in one scale shows the others as it is typed.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { screenshot, signedInTablet, startE2E, type E2E } from '../setup/e2e'
+import { describe, expect, it } from 'vitest'
+import { screenshot, signedInTablet, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-beforeAll(async () => { e2e = await startE2E() })
-afterAll(async () => { await e2e?.close() })
+const e2e = useE2E()
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
 const page = (email: string, viewport?: { width: number; height: number }) => signedInTablet(e2e, email, viewport)

@@ -1,18 +1,12 @@
 // The owner keeps the workshop's address, contact, currency and the address tablets open on the settings page; customers' e-mails and job tickets carry them.
 import { networkInterfaces } from 'node:os'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Page } from 'playwright-core'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { beforeAll, describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-let context: BrowserContext
+const e2e = useE2E()
 let page: Page
-beforeAll(async () => {
-  e2e = await startE2E()
-  context = await e2e.newContext()
-  page = await signInPage(context, 'owner')
-})
-afterAll(async () => { await context?.close(); await e2e?.close() })
+beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
 
 const field = (name: string) => page.locator(`input[data-test=${name}], [data-test=${name}] input`).first()
 

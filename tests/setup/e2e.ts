@@ -2,6 +2,7 @@
 import { mkdirSync } from 'node:fs'
 import { join } from 'node:path'
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
+import { afterAll, beforeAll } from 'vitest'
 import type { Role } from '../../shared/domain/roles'
 import { loadConfig } from '../../server/config'
 import { startServer } from '../../server/index'
@@ -60,6 +61,62 @@ export async function startE2E(o: { env?: Record<string, string> } = {}): Promis
       await db.drop().catch(() => undefined)
     },
   }
+}
+
+/**
+ * The server and Chromium for every test of one file: started before the first test, closed after the last. The handle
+ * can be taken at the top of the file and used inside tests and hooks. `env` may be a function, read when the server
+ * starts (e.g. the address of a fake mail or payment server started in an earlier beforeAll).
+ */
+export function useE2E(o: { env?: Record<string, string> | (() => Record<string, string>) } = {}): E2E {
+  let started: E2E | undefined
+  beforeAll(async () => {
+    started = await startE2E({ env: typeof o.env === 'function' ? o.env() : o.env })
+  })
+  const stop = async () => {
+    const s = started
+    started = undefined
+    await s?.close()
+  }
+  afterAll(stop)
+  const need = (): E2E => {
+    if (!started) throw new Error('The browser test server is not running: use it inside tests and hooks, after useE2E()')
+    return started
+  }
+  return {
+    get url() { return need().url },
+    get browser() { return need().browser },
+    get db() { return need().db },
+    newContext: (c) => need().newContext(c),
+    close: stop,
+  }
+}
+
+/** Makes a step ready straight in the test database: every step it follows (and theirs) is marked done yesterday. */
+export async function makeStepReady(e2e: E2E, operationId: number) {
+  const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
+  const [op] = await q('select job_bag_id from operations where id = $1', [operationId])
+  const ops = await q('select id, key, after from operations where job_bag_id = $1', [op.job_bag_id])
+  const byKey = new Map(ops.map((o) => [o.key, o]))
+  const seen = new Set<number>()
+  const stack = [...ops.find((o) => o.id === operationId).after]
+  while (stack.length) {
+    const p = byKey.get(stack.pop())
+    if (!p || seen.has(p.id)) continue
+    seen.add(p.id)
+    stack.push(...p.after)
+  }
+  await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where id = any($1::int[])`, [[...seen]])
+  await q(`update operations set status = 'ready' where id = $1`, [operationId])
+}
+
+/** Where a bar of the plan board is drawn, or null when it is not wholly inside the visible part of the timeline. */
+export async function barBox(page: Page, id: number) {
+  const el = page.locator(`.vis-item.board-bar[data-id="${id}"]`)
+  if (!(await el.count())) return null
+  const [box, panel] = await Promise.all([el.boundingBox(), page.locator('.vis-panel.vis-center').boundingBox()])
+  if (!box || !panel || box.x < panel.x || box.x + box.width > panel.x + panel.width || box.y < panel.y || box.y + box.height > panel.y + panel.height) return null
+  return box
 }
 
 /** Fills the sign-in form and waits until the app has left the sign-in page. */

@@ -1,20 +1,11 @@
 // The master-data screens in Chromium: each opens with the demo workshop's data, forms show reasons next to fields, saving works.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Page } from 'playwright-core'
-import { screenshot, signInPage, startE2E, type E2E } from '../setup/e2e'
+import { beforeAll, describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
-let e2e: E2E
-let context: BrowserContext
+const e2e = useE2E()
 let page: Page
-beforeAll(async () => {
-  e2e = await startE2E()
-  context = await e2e.newContext()
-  page = await signInPage(context, 'owner')
-})
-afterAll(async () => {
-  await context?.close()
-  await e2e?.close()
-})
+beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
 
 const heading = (p: Page) => p.locator('.mg-page-head h1').textContent()
 
@@ -143,5 +134,17 @@ describe('master-data screens as the owner', () => {
     await page.goto('/settings')
     await page.getByText('Etching & oxidising').waitFor()
     await screenshot(page, 'settings')
+  })
+
+  it('when an operation kind is renamed in its dialog, then the new name is stored with the next version and listed', async () => {
+    await page.goto('/settings')
+    const [before] = (await e2e.db.pool.query(`select id, version from operation_kinds where name = 'Etching & oxidising'`)).rows
+    await page.getByText('Etching & oxidising').click()
+    const dialog = page.locator('.el-dialog', { hasText: 'Operation kind: Etching & oxidising' })
+    await dialog.locator('.el-form-item', { hasText: 'Name' }).first().locator('input').fill('Etching and oxidising')
+    await dialog.getByRole('button', { name: 'Save' }).click()
+    await page.locator('.el-table').getByText('Etching and oxidising').waitFor()
+    const [after] = (await e2e.db.pool.query(`select name, version from operation_kinds where id = $1`, [before.id])).rows
+    expect(after).toEqual({ name: 'Etching and oxidising', version: before.version + 1 })
   })
 })

@@ -5,7 +5,7 @@ import { STAFF } from '../../shared/domain/roles'
 import { HELD_OPERATION, canMoveOperation, cautionsFor, type OperationStatus } from '../../shared/domain/status'
 import * as rules from '../../shared/domain/rules'
 import type { RuleViolation, StepRef } from '../../shared/domain/rules'
-import type { BenchOperation, BenchStones, ClaimInput, FinishInput, OutsideInput, PauseInput, ReleaseInput, StartInput, TransitionResult } from '../../shared/schemas/bench-floor'
+import type { BenchList, BenchOperation, BenchStones, ClaimInput, FinishInput, OutsideInput, PauseInput, ReleaseInput, StartInput, TransitionResult } from '../../shared/schemas/bench-floor'
 import type { PieceParams } from '../../shared/schemas/order'
 import type { Db, Trx, Tx } from '../db/client'
 import { benchCapabilities, benchRequests, benches, jobBags, operationKinds, operations, orders, people, personSkills, timeRecords } from '../db/schema/index'
@@ -354,7 +354,7 @@ export function receive(deps: Deps, actor: Actor, operationId: number, input: Ou
  * Ready operations this person can do at this bench (skill level at or above the step's, bench equipped for the kind),
  * in the plan's order: planned start if set, else the order's due date, then priority (5 = most urgent), then job bag number.
  */
-export async function nextForMe(db: Db, actor: Actor, q: { benchId: number; personId?: number }) {
+export async function nextForMe(db: Db, actor: Actor, q: { benchId: number; personId?: number }): Promise<BenchList> {
   const person = await personFor(db, actor, q.personId)
   if (!person) throw notLinked()
   const [b] = await db.select({ id: benches.id }).from(benches).where(and(eq(benches.id, q.benchId), eq(benches.workshopId, actor.workshopId)))
@@ -377,7 +377,7 @@ export async function nextForMe(db: Db, actor: Actor, q: { benchId: number; pers
 }
 
 /** What this person holds: running first, then paused, then claimed. */
-export async function myWork(db: Db, actor: Actor, q: { personId?: number }) {
+export async function myWork(db: Db, actor: Actor, q: { personId?: number }): Promise<BenchList> {
   const person = await personFor(db, actor, q.personId)
   if (!person) throw notLinked()
   const rows = await baseQuery(db)

@@ -74,7 +74,7 @@ async function recordInWorkshop(tx: Tx, workshopId: number, id: number) {
 }
 
 /** A manager changes a record's start/end or voids it; the record itself stays as it was written. */
-export async function correctTimeRecord({ db, realtime }: Deps, actor: Actor, id: number, input: TimeRecordCorrection) {
+export async function correctTimeRecord({ db, realtime }: Deps, actor: Actor, id: number, input: TimeRecordCorrection): Promise<EffectiveTimeRecord> {
   const out = await db.transaction(async (tx) => {
     const { r } = await recordInWorkshop(tx, actor.workshopId, id)
     const [current] = await effectiveRecords(tx, [r.operationId]).then((all) => all.filter((x) => x.id === id))
@@ -102,7 +102,7 @@ export async function correctTimeRecord({ db, realtime }: Deps, actor: Actor, id
 }
 
 /** A manager adds a record that was never taken (forgot to tap); kept with who and why. */
-export async function addTimeRecord({ db, realtime }: Deps, actor: Actor, operationId: number, input: TimeRecordAdd) {
+export async function addTimeRecord({ db, realtime }: Deps, actor: Actor, operationId: number, input: TimeRecordAdd): Promise<EffectiveTimeRecord> {
   const out = await db.transaction(async (tx) => {
     const [op] = await tx.select({ id: operations.id }).from(operations).innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
       .where(and(eq(operations.id, operationId), eq(jobBags.workshopId, actor.workshopId)))

@@ -1,7 +1,6 @@
 // Planning: requests (planner runs, board windows, moving or pinning a bar by hand) and answers (runs, versions, comparisons, moves, week load).
 import { z } from 'zod'
 import { id, isoDate, isoDateTime, version, wireInt } from './common'
-import { startReason } from './board'
 import type { RuleViolation } from '../domain/rules'
 
 export const planRunInput = z.object({
@@ -102,8 +101,8 @@ export const planVersionRow = z.object({
 /** A plan version in the list, with who made and published it. */
 export const planVersion = planVersionRow.extend({ createdByName: z.string().nullable(), publishedByName: z.string().nullable() })
 
-/** Where a plan puts one operation (bench and person ids as the engine names them). */
-export const assignment = z.object({ benchId: z.string().nullable(), personId: z.string().nullable(), start: isoDateTime, end: isoDateTime, reason: startReason.nullable() })
+/** Where a plan puts one operation, as the comparison answers it: the plan's own record (planAssignment above). */
+export const assignment = planAssignment
 export const planMove = z.object({ operationId: wireInt, from: planAssignment.nullable(), to: planAssignment.nullable(), change: z.array(z.enum(['new', 'dropped', 'bench', 'person', 'time'])) })
 export const planComparison = z.object({
   planId: wireInt,

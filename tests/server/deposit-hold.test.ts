@@ -8,7 +8,10 @@ import { dayjs } from '../../server/lib/time'
 import { loadPlanningData } from '../../server/planning/problem'
 import { waitForRun } from '../../server/planning/runs'
 import { WAITING_FOR_DEPOSIT } from '../../shared/domain/deposit-hold'
+import { and, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, Agent, type TestApp } from '../setup/app'
+import { firstCustomerId, firstWorkshopId, templateId as templateOf } from '../setup/fixtures'
 import { benchId, makeReady, rid } from './bench-fixtures'
 
 let t: TestApp, fake: PayFake, http: Server
@@ -27,11 +30,11 @@ beforeAll(async () => {
   // Priya forges (level 3 in the demo workshop) at the forge.
   priya = new Agent(t.app)
   expect((await priya.signIn('priya@wrenfield.test')).status).toBe(200)
-  customerId = Number((await t.pool.query('select min(id) as id from customers')).rows[0].id)
+  customerId = await firstCustomerId(t.db)
   // The bezel ring's routing starts with "Forge band" (forging).
-  templateId = Number((await t.pool.query("select id from routing_templates where code = 'bezel-ring'")).rows[0].id)
+  templateId = await templateOf(t.db, 'bezel-ring')
   forge = await benchId(t, 'Forge & soldering station')
-  workshopId = Number((await t.pool.query('select min(id) as id from workshops')).rows[0].id)
+  workshopId = await firstWorkshopId(t.db)
 }, 60_000)
 afterAll(async () => { await new Promise((r) => http?.close(r)); await fake?.close(); await t?.close() })
 
@@ -51,11 +54,11 @@ async function acceptedUnpaid() {
   const a = await sales.post(`/api/quotes/${q.body.id}/accept`, { version: sent.body.version })
   expect(a.status, JSON.stringify(a.body)).toBe(200)
   const orderId = a.body.orderId as number
-  const { rows: [bag] } = await t.pool.query('select id from job_bags where order_id = $1', [orderId])
-  const { rows: [band] } = await t.pool.query("select id from operations where job_bag_id = $1 and key = 'band'", [bag.id])
+  const bag = (await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId)))[0]!
+  const band = (await t.db.select({ id: s.operations.id }).from(s.operations).where(and(eq(s.operations.jobBagId, bag.id), eq(s.operations.key, 'band'))))[0]!
   await makeReady(t, band.id)
   expect((await sales.get(`/api/orders/${orderId}/money`)).body).toMatchObject({ depositMinor: 24000, paidMinor: 0, depositPaid: false })
-  return { quote: a.body, orderId, bagId: bag.id as number, bandId: band.id as number, link: sent.body.links[0] as { url: string } }
+  return { quote: a.body, orderId, bagId: bag.id, bandId: band.id, link: sent.body.links[0] as { url: string } }
 }
 
 const inProblem = async (bagId: number) => (await loadPlanningData(t.db, workshopId, new Date())).problem.jobs.some((j) => j.id === String(bagId))
@@ -70,8 +73,8 @@ async function draftAssignments() {
   expect(r.status, JSON.stringify(r.body)).toBe(202)
   const done = await waitForRun(t.db, r.body.id)
   expect(done?.status, JSON.stringify(done)).toBe('done')
-  const { rows: [p] } = await t.pool.query('select assignments from plan_versions where id = $1', [done!.planId])
-  return p.assignments as Record<string, { start: string }>
+  const [p] = await t.db.select({ assignments: s.planVersions.assignments }).from(s.planVersions).where(eq(s.planVersions.id, done!.planId!))
+  return p!.assignments as Record<string, { start: string }>
 }
 
 describe('no metal before the deposit', () => {
@@ -93,9 +96,9 @@ describe('no metal before the deposit', () => {
     expect(f.body.jobBags[0]).toMatchObject({ state: 'unplanned', expectedCompletion: null })
     expect(f.body.jobBags[0].why).toContain('waiting for the deposit')
     // A re-plan gives none of the bag's steps a time.
-    const { rows: ops } = await t.pool.query('select id from operations where job_bag_id = $1', [o.bagId])
+    const ops = await t.db.select({ id: s.operations.id }).from(s.operations).where(eq(s.operations.jobBagId, o.bagId))
     const held = await draftAssignments()
-    expect(ops.filter((x: { id: number }) => held[String(x.id)])).toEqual([])
+    expect(ops.filter((x) => held[String(x.id)])).toEqual([])
     // The bench neither sees nor takes the forging step, and is told why.
     expect(await nextIds()).not.toContain(o.bandId)
     const refused = await priya.post(`/api/bench/operations/${o.bandId}/claim`, { requestId: rid(), benchId: forge })

@@ -1,7 +1,10 @@
 // The whole step model through the API: a routing's learning curve, stone size bands and per-mm minutes reach the job
 // bag's step minutes and the promise check alike; the routing API keeps and validates them.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { count, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { firstCustomerId } from '../setup/fixtures'
 import { auditRows, expectFieldError } from './helpers'
 
 let t: TestApp
@@ -19,7 +22,7 @@ beforeAll(async () => {
   manager = await signedIn(t.app, 'manager')
   sales = await signedIn(t.app, 'sales')
   kinds = Object.fromEntries((await manager.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
-  customerId = (await t.pool.query(`select min(id) as id from customers`)).rows[0].id
+  customerId = await firstCustomerId(t.db)
   const a = await manager.post('/api/templates', {
     code: 'run-fixture', name: 'Fixture: production run', learningRate: 0.85,
     steps: [{ key: 'finish', kindId: kinds.filing, name: 'Finish each piece', baseMinutes: 12 }],
@@ -129,7 +132,7 @@ describe('refused routing input', () => {
     expectFieldError(await manager.post('/api/templates', step({ sizeBandFactors: { melee: 0.1 } })), 'steps.0.sizeBandFactors.melee', /at least 0\.2/)
     expectFieldError(await manager.post('/api/templates', step({ sizeBandFactors: { huge: 2 } })), 'steps.0.sizeBandFactors', /melee, small and large/)
     expectFieldError(await manager.post('/api/templates', step({ perMmMinutes: -0.5 })), 'steps.0.perMmMinutes', /negative/)
-    const { rows } = await t.pool.query(`select count(*)::int as n from routing_templates where code = 'bad-fixture'`)
-    expect(rows[0].n).toBe(0)
+    const [n] = await t.db.select({ n: count() }).from(s.routingTemplates).where(eq(s.routingTemplates.code, 'bad-fixture'))
+    expect(n!.n).toBe(0)
   })
 })

@@ -3,7 +3,10 @@
 import { createServer, type Server } from 'node:http'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { allRoutes } from '../../server/routes/index'
+import { count } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type TestApp } from '../setup/app'
+import { templateId } from '../setup/fixtures'
 import { startPayFake, type PayFake } from '../../server/dev/pay-fake'
 import { fuzzRoutes, loadIdPools, makeSessions, planTargets, printPlan, type FuzzStats } from './fuzz/runner'
 import { INJECTIONS, UNICODE } from './fuzz/values'
@@ -60,7 +63,7 @@ describe('injection strings are data', () => {
 
   it('when customers and orders are named with SQL, HTML and Unicode tricks, then they are stored and returned literally, and searching for them finds them', async () => {
     const sales = await signedIn(t.app, 'sales')
-    const { rows: [tpl] } = await t.pool.query('select id from routing_templates order by id limit 1')
+    const tpl = { id: await templateId(t.db) }
     for (const text of hostile) {
       const c = await sales.post('/api/customers', { name: text, notes: text })
       expect(c.status, `${JSON.stringify(text)} → ${c.status} ${JSON.stringify(c.body)}`).toBe(201)
@@ -77,7 +80,7 @@ describe('injection strings are data', () => {
       expect(found.body.items.map((x: { id: number }) => x.id)).toContain(c.body.id)
     }
     // The tables the strings talked about are all still there.
-    const { rows: [n] } = await t.pool.query('select (select count(*) from orders)::int orders, (select count(*) from customers)::int customers')
+    const n = { orders: (await t.db.select({ n: count() }).from(s.orders))[0]!.n, customers: (await t.db.select({ n: count() }).from(s.customers))[0]!.n }
     expect(n.orders).toBeGreaterThan(30)
     expect(n.customers).toBeGreaterThan(hostile.length)
   })

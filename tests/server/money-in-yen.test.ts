@@ -1,7 +1,10 @@
 // An order priced in a currency without decimals, end to end on the server: its own price (no quote) is what the payments
 // side asks, the deposit and the cash taken stay in whole yen, and the receipt and the owner's CSV write yen as yen.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { and, desc, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { firstCustomerId } from '../setup/fixtures'
 
 let t: TestApp
 let sales: Agent
@@ -11,13 +14,13 @@ beforeAll(async () => {
   t = await createTestApp()
   sales = await signedIn(t.app, 'sales')
   owner = await signedIn(t.app, 'owner')
-  await t.pool.query(`update workshops set currency = 'JPY'`)
+  await t.db.update(s.workshops).set({ currency: 'JPY' })
 })
 afterAll(async () => { await t?.close() })
 
 describe('a workshop pricing in yen', () => {
   it('when an order priced ¥150,000 takes a ¥45,000 cash deposit, then the money, the receipt and the CSV are in whole yen', async () => {
-    const { rows: [c] } = await t.pool.query('select min(id) as id from customers')
+    const c = { id: await firstCustomerId(t.db) }
     const o = await sales.post('/api/orders', { customerId: c.id, title: 'Yen ring', dueDate: '2031-09-01', priceQuotedMinor: 150_000 })
     expect(o.status, JSON.stringify(o.body)).toBe(201)
     expect(o.body).toMatchObject({ priceQuotedMinor: 150_000, currency: 'JPY' })
@@ -29,7 +32,7 @@ describe('a workshop pricing in yen', () => {
     expect(cash.status, JSON.stringify(cash.body)).toBe(201)
     expect((await sales.get(`/api/orders/${o.body.id}/money`)).body).toMatchObject({ paidMinor: 45_000, owedMinor: 105_000, depositPaid: true })
     // Intl en-GB writes yen as "JP¥45,000" (ECMA-402 currency formatting, no decimals for JPY).
-    const { rows: [mail] } = await t.pool.query(`select text from outbox where order_id = $1 and kind = 'payment-receipt' order by id desc limit 1`, [o.body.id])
+    const mail = (await t.db.select({ text: s.outbox.text }).from(s.outbox).where(and(eq(s.outbox.orderId, o.body.id), eq(s.outbox.kind, 'payment-receipt'))).orderBy(desc(s.outbox.id)).limit(1))[0]!
     expect(mail.text).toContain('JP¥45,000')
     expect(mail.text).toContain('JP¥105,000')
     const csv = (await owner.get('/api/payments/export.csv')).text.split('\r\n').find((l) => l.includes(o.body.number))!

@@ -3,7 +3,11 @@ import { createServer, type Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startPayFake, TEST_CARDS, type PayFake } from '../../server/dev/pay-fake'
+import { and, count as countRows, eq, sum, type SQL } from 'drizzle-orm'
+import type { PgTable } from 'drizzle-orm/pg-core'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { firstCustomerId } from '../setup/fixtures'
 
 let t: TestApp, fake: PayFake, http: Server
 let sales: Agent, owner: Agent, bench: Agent, manager: Agent
@@ -16,11 +20,11 @@ beforeAll(async () => {
   await new Promise<void>((r) => http.listen(0, '127.0.0.1', () => r()))
   fake.webhookUrl = `http://127.0.0.1:${(http.address() as AddressInfo).port}/api/payments/webhook`
   ;[sales, owner, bench, manager] = await Promise.all([signedIn(t.app, 'sales'), signedIn(t.app, 'owner'), signedIn(t.app, 'bench'), signedIn(t.app, 'manager')])
-  customerId = Number((await t.pool.query('select min(id) as id from customers')).rows[0].id)
+  customerId = await firstCustomerId(t.db)
 })
 afterAll(async () => { await new Promise((r) => http?.close(r)); await fake?.close(); await t?.close() })
 
-const count = async (sql: string, args: unknown[] = []) => Number((await t.pool.query(sql, args)).rows[0].n)
+const count = async (table: PgTable, where?: SQL) => (await t.db.select({ n: countRows() }).from(table).where(where))[0]!.n
 
 /** Hand-worked: price 1,250.00 GBP = 125000 pence; deposit 30 % = 375.00 (37500); balance 875.00 (87500). */
 async function sentQuote(title = 'Engagement ring') {
@@ -46,7 +50,7 @@ describe('quotes and deposits', () => {
     const q = await sentQuote()
     const declined = await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.declined)
     expect(declined.outcome).toBe('declined')
-    expect(await count('select count(*) as n from payments where quote_id = $1', [q.id])).toBe(0)
+    expect(await count(s.payments, eq(s.payments.quoteId, q.id))).toBe(0)
     const r = await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
     expect(r.delivery?.status, r.delivery?.body).toBe(200)
     const after = (await sales.get(`/api/quotes/${q.id}`)).body
@@ -56,18 +60,18 @@ describe('quotes and deposits', () => {
     const money = (await sales.get(`/api/orders/${after.orderId}/money`)).body
     expect(money).toMatchObject({ priceMinor: 125000, depositMinor: 37500, paidMinor: 37500, owedMinor: 87500, depositPaid: true, currency: 'GBP' })
     // A receipt went to the outbox.
-    expect(await count("select count(*) as n from outbox where kind = 'payment-receipt' and order_id = $1", [after.orderId])).toBe(1)
+    expect(await count(s.outbox, and(eq(s.outbox.kind, 'payment-receipt'), eq(s.outbox.orderId, after.orderId)))).toBe(1)
   })
 
   it('when a forged signature arrives, then it is refused with 400 and nothing is booked', async () => {
     const q = await sentQuote()
-    const s = fake.sessions.get(sessionOf(q.links[0].url))!
-    const forged = { id: 'evt_forged_1', object: 'event' as const, type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false as const, api_version: 'x', data: { object: { ...s, status: 'complete', payment_status: 'paid', payment_intent: 'pi_forged' } } }
+    const session = fake.sessions.get(sessionOf(q.links[0].url))!
+    const forged = { id: 'evt_forged_1', object: 'event' as const, type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false as const, api_version: 'x', data: { object: { ...session, status: 'complete', payment_status: 'paid', payment_intent: 'pi_forged' } } }
     const d = await fake.deliver(forged, { secret: 'whsec_someone_else' })
     expect(d.status).toBe(400)
     expect(JSON.parse(d.body).fields).toHaveProperty('Stripe-Signature')
-    expect(await count("select count(*) as n from payments where provider_ref = 'pi_forged'")).toBe(0)
-    expect(await count("select count(*) as n from provider_events where id = 'evt_forged_1'")).toBe(0)
+    expect(await count(s.payments, eq(s.payments.providerRef, 'pi_forged'))).toBe(0)
+    expect(await count(s.providerEvents, eq(s.providerEvents.id, 'evt_forged_1'))).toBe(0)
     expect((await sales.get(`/api/quotes/${q.id}`)).body.status).toBe('sent')
   })
 
@@ -77,29 +81,29 @@ describe('quotes and deposits', () => {
     const ev = fake.events.at(-1)!
     const again = await fake.deliver(ev)
     expect(again.status).toBe(200)
-    expect(await count('select count(*) as n from payments where quote_id = $1', [q.id])).toBe(1)
+    expect(await count(s.payments, eq(s.payments.quoteId, q.id))).toBe(1)
   })
 
   it('when 20 deliveries of one event arrive at once, then one payment and one order are booked', async () => {
     const q = await sentQuote('Signet ring')
-    const s = fake.sessions.get(sessionOf(q.links[0].url))!
-    s.status = 'complete'; s.payment_status = 'paid'; s.payment_intent = 'pi_concurrent_1'
-    const ev = { id: 'evt_concurrent_1', object: 'event' as const, type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false as const, api_version: 'x', data: { object: { ...s } } }
-    const before = await count('select count(*) as n from orders')
+    const session = fake.sessions.get(sessionOf(q.links[0].url))!
+    session.status = 'complete'; session.payment_status = 'paid'; session.payment_intent = 'pi_concurrent_1'
+    const ev = { id: 'evt_concurrent_1', object: 'event' as const, type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false as const, api_version: 'x', data: { object: { ...session } } }
+    const before = await count(s.orders)
     const all = await Promise.all(Array.from({ length: 20 }, () => fake.deliver(ev)))
     expect(all.map((d) => d.status)).toEqual(Array(20).fill(200))
-    expect(await count("select count(*) as n from payments where provider_ref = 'pi_concurrent_1'")).toBe(1)
-    expect(await count('select count(*) as n from orders')).toBe(before + 1)
+    expect(await count(s.payments, eq(s.payments.providerRef, 'pi_concurrent_1'))).toBe(1)
+    expect(await count(s.orders)).toBe(before + 1)
   })
 
   it('when a card needs a second step, then nothing is booked until it is confirmed', async () => {
     const q = await sentQuote()
     const r = await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.confirm)
     expect(r.outcome).toBe('confirm')
-    expect(await count('select count(*) as n from payments where quote_id = $1', [q.id])).toBe(0)
+    expect(await count(s.payments, eq(s.payments.quoteId, q.id))).toBe(0)
     const page = await fetch(`${fake.url}/pay/${sessionOf(q.links[0].url)}/confirm`, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'answer=yes' })
     expect(await page.text()).toContain('Paid')
-    expect(await count('select count(*) as n from payments where quote_id = $1', [q.id])).toBe(1)
+    expect(await count(s.payments, eq(s.payments.quoteId, q.id))).toBe(1)
   })
 
   it('when a withdrawn quote is paid anyway, then the payment is on the "to refund" list and the owner alone refunds it through the provider', async () => {
@@ -173,7 +177,7 @@ describe('quotes and deposits', () => {
     const p = (await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', purpose: 'balance', amountMinor: 10000 })).body
     const both = await Promise.all([owner.post(`/api/payments/${p.id}/refund`, { amountMinor: 7000 }), owner.post(`/api/payments/${p.id}/refund`, { amountMinor: 7000 })])
     expect(both.map((r) => r.status).sort()).toEqual([201, 400])
-    expect(Number((await t.pool.query('select -sum(amount_minor) as n from payments where refund_of = $1', [p.id])).rows[0].n)).toBe(7000)
+    expect(-Number((await t.db.select({ n: sum(s.payments.amountMinor) }).from(s.payments).where(eq(s.payments.refundOf, p.id)))[0]!.n)).toBe(7000)
   })
 
   it('when the owner asks for the CSV and the summary, then the hand-worked amounts appear in major units and by ISO week', async () => {

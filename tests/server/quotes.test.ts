@@ -7,7 +7,10 @@ import { startDigestTimer } from '../../server/mail/digest-timer'
 import { createMailer } from '../../server/mail/transport'
 import { loadConfig } from '../../server/config'
 import { dayjs } from '../../server/lib/time'
+import { count as countRows, eq, inArray } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { firstCustomerId } from '../setup/fixtures'
 
 let t: TestApp, fake: PayFake, http: Server
 let sales: Agent, manager: Agent
@@ -20,8 +23,8 @@ beforeAll(async () => {
   await new Promise<void>((r) => http.listen(0, '127.0.0.1', () => r()))
   fake.webhookUrl = `http://127.0.0.1:${(http.address() as AddressInfo).port}/api/payments/webhook`
   ;[sales, manager] = await Promise.all([signedIn(t.app, 'sales'), signedIn(t.app, 'manager')])
-  customerId = Number((await t.pool.query('select min(id) as id from customers')).rows[0].id)
-  tz = (await t.pool.query('select time_zone from workshops order by id limit 1')).rows[0].time_zone
+  customerId = await firstCustomerId(t.db)
+  tz = (await t.db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).orderBy(s.workshops.id).limit(1))[0]!.timeZone
 })
 afterAll(async () => { await new Promise((r) => http?.close(r)); await fake?.close(); await t?.close() })
 
@@ -77,12 +80,12 @@ describe('daily money reminders', () => {
     const soon = await send(await drafted({ title: 'Pendant ending soon', validUntil: dayjs(today).add(2, 'day').format('YYYY-MM-DD') }))
     const later = await send(await drafted({ title: 'Pendant ending later', validUntil: dayjs(today).add(10, 'day').format('YYYY-MM-DD') }))
     const lapsed = await send(await drafted({ title: 'Pendant lapsed' }))
-    await t.pool.query('update quotes set valid_until = $1 where id = $2', [dayjs(today).subtract(1, 'day').format('YYYY-MM-DD'), lapsed.id])
+    await t.db.update(s.quotes).set({ validUntil: dayjs(today).subtract(1, 'day').format('YYYY-MM-DD') }).where(eq(s.quotes.id, lapsed.id))
     // A piece ready to collect: 1,250.00 GBP, deposit 375.00 paid by card, so 875.00 is still owed (hand-worked).
     const paid = await send(await drafted({ title: 'Ring ready to collect' }))
     await fake.pay(paid.links[0].url.split('/pay/')[1]!, TEST_CARDS.paid)
     const orderId = (await sales.get(`/api/quotes/${paid.id}`)).body.orderId as number
-    await t.pool.query("update orders set status = 'ready' where id = $1", [orderId])
+    await t.db.update(s.orders).set({ status: 'ready' }).where(eq(s.orders.id, orderId))
 
     // The timer at 08:00 workshop time today (after the 07:30 start).
     const at = dayjs.tz(`${today} 08:00`, tz).toDate()
@@ -101,7 +104,7 @@ describe('daily money reminders', () => {
       expect(text).toContain('£875.00')
 
       // The same day again, from the timer and from a restarted server's timer: nothing more goes out.
-      const count = async () => Number((await t.pool.query("select count(*) as n from outbox where kind in ('quote-reminder', 'balance-reminder')")).rows[0].n)
+      const count = async () => (await t.db.select({ n: countRows() }).from(s.outbox).where(inArray(s.outbox.kind, ['quote-reminder', 'balance-reminder'])))[0]!.n
       const before = await count()
       await timer.tick()
       const restarted = startDigestTimer(deps, { clock: () => at, everyMs: 3_600_000 })

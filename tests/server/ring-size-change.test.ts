@@ -2,6 +2,7 @@
 // checked (409 when stale), audited with from, to and why; a bad size refused naming the field; a resize keeps both its sizes.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { firstCustomerId, templateId } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from './helpers'
 
 let t: TestApp
@@ -16,9 +17,9 @@ beforeAll(async () => {
   t = await createTestApp()
   sales = await signedIn(t.app, 'sales')
   manager = await signedIn(t.app, 'manager')
-  const { rows: [c] } = await t.pool.query('select min(id) as id from customers')
-  const { rows: [signet] } = await t.pool.query(`select id from routing_templates where code = 'signet-ring'`)
-  const { rows: [resize] } = await t.pool.query(`select id from routing_templates where code = 'ring-resize'`)
+  const c = { id: await firstCustomerId(t.db) }
+  const signet = { id: await templateId(t.db, 'signet-ring') }
+  const resize = { id: await templateId(t.db, 'ring-resize') }
   const r = await sales.post('/api/orders', {
     customerId: c.id, title: 'Signet ring and a resize', dueDate: '2031-09-01', pieces: [
       { templateId: signet.id, piece: 'Signet ring', params: { metal: 'gold-9ct', ringSize: { scale: 'uk', value: 'N' } } },

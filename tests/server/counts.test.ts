@@ -1,5 +1,7 @@
 // Counts shown in lists (a customer's open orders, an order's job bags, a job bag's steps done) against orders made in the test and counted by hand.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { and, count, eq, notInArray } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 
 let t: TestApp
@@ -47,8 +49,9 @@ describe('counts in lists', () => {
 
   it('when the seeded customers are listed, then each open-order count equals the orders counted straight from the database', async () => {
     const list = (await sales.get('/api/customers?pageSize=100')).body.items as { id: number; openOrders: number }[]
-    const { rows } = await t.pool.query(`select c.id, count(o.id)::int as n from customers c left join orders o on o.customer_id = c.id and o.status not in ('collected', 'cancelled') group by c.id`)
-    const want = Object.fromEntries(rows.map((r: { id: number; n: number }) => [r.id, r.n]))
+    const rows = await t.db.select({ id: s.customers.id, n: count(s.orders.id) }).from(s.customers)
+      .leftJoin(s.orders, and(eq(s.orders.customerId, s.customers.id), notInArray(s.orders.status, ['collected', 'cancelled']))).groupBy(s.customers.id)
+    const want = Object.fromEntries(rows.map((r) => [r.id, r.n]))
     expect(Object.fromEntries(list.map((c) => [c.id, c.openOrders]))).toEqual(Object.fromEntries(list.map((c) => [c.id, want[c.id]])))
     // The seed has 30 open orders over 16 customers, so some customer has more than none.
     expect(list.some((c) => c.openOrders > 0)).toBe(true)

@@ -6,7 +6,10 @@ import { tmpdir } from 'node:os'
 import { join, resolve } from 'node:path'
 import { PNG } from 'pngjs'
 import PDFDocument from 'pdfkit'
+import { eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { openOrder } from '../setup/fixtures'
 import { expectCleanError, expectFieldError, secondWorkshop } from './helpers'
 
 const MAX = 200_000
@@ -53,9 +56,9 @@ beforeAll(async () => {
   uploadDir = join(root, 'uploads')
   t = await createTestApp({ UPLOAD_DIR: uploadDir, UPLOAD_MAX_BYTES: String(MAX) })
   sales = await signedIn(t.app, 'sales')
-  const { rows: [o] } = await t.pool.query(`select r.id, b.id as bag from orders r join job_bags b on b.order_id = r.id where r.workshop_id = 1 and r.status = 'open' order by r.id limit 1`)
+  const o = await openOrder(t.db)
   orderId = o.id
-  jobBagId = o.bag
+  jobBagId = o.bagId
 })
 afterAll(async () => { await t?.close(); rmSync(root, { recursive: true, force: true }) })
 
@@ -125,14 +128,14 @@ describe('uploading files', () => {
     expect(ok.body.kind).toBe('progress')
     expectCleanError(await upload(bench, `/api/job-bags/${jobBagId}/files`).field('kind', 'sketch').attach('file', png(), 'x.png'), 403)
     expectCleanError(await upload(bench, `/api/orders/${orderId}/files`).attach('file', png(), 'x.png'), 403)
-    const { rows: [orderFile] } = await t.pool.query(`select id from files where order_id = $1 limit 1`, [orderId])
-    expectCleanError(await bench.get(`/api/files/${orderFile.id}`), 404)
+    const [orderFile] = await t.db.select({ id: s.files.id }).from(s.files).where(eq(s.files.orderId, orderId)).limit(1)
+    expectCleanError(await bench.get(`/api/files/${orderFile!.id}`), 404)
     expectCleanError(await bench.delete(`/api/files/${ok.body.id}`), 403)
   })
 
   it('when another workshop’s user asks for a file by id, then it is not found', async () => {
     const other = await secondWorkshop(t, 'files')
-    const { rows: [f] } = await t.pool.query(`select id from files where order_id = $1 limit 1`, [orderId])
+    const f = (await t.db.select({ id: s.files.id }).from(s.files).where(eq(s.files.orderId, orderId)).limit(1))[0]!
     expectCleanError(await other.agent.get(`/api/files/${f.id}`), 404)
     expectCleanError(await other.agent.get(`/api/files/${f.id}/thumbnail`), 404)
     expectCleanError(await other.agent.get(`/api/orders/${orderId}/files`), 404)

@@ -1,6 +1,8 @@
 // Job bags against real PostgreSQL: the page's data, routing edits (estimates with reasons, add / skip / reorder), hold and cancel, the transition table.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { OPERATION_STATUSES, OPERATION_TRANSITIONS, JOB_BAG_STATUSES, JOB_BAG_TRANSITIONS, deriveJobBagStatus } from '../../shared/domain/status'
+import { and, asc, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { auditRows, expectCleanError, expectFieldError } from './helpers'
 import { benchId, freshReady, rid } from './bench-fixtures'
@@ -20,8 +22,9 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   setter = await signedIn(t.app, 'bench')
   // A ring resize: cut → solder → file → polish.
-  const { rows } = await t.pool.query(`select jb.id from job_bags jb join routing_templates rt on rt.id = jb.template_id join orders o on o.id = jb.order_id where rt.code = 'ring-resize' and o.status = 'open' order by jb.id limit 1`)
-  bagId = rows[0].id
+  const [bag] = await t.db.select({ id: s.jobBags.id }).from(s.jobBags).innerJoin(s.routingTemplates, eq(s.routingTemplates.id, s.jobBags.templateId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .where(and(eq(s.routingTemplates.code, 'ring-resize'), eq(s.orders.status, 'open'))).orderBy(asc(s.jobBags.id)).limit(1)
+  bagId = bag!.id
 })
 afterAll(async () => { await t?.close() })
 

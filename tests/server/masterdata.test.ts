@@ -1,6 +1,8 @@
 // Master data API against real PostgreSQL: benches, people, operation kinds, calendar, routing templates, customers, users,
 // their validation, optimistic locking, workshop isolation, audit trail and error hygiene.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { and, count, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { Agent, DEMO_EMAIL, createTestApp, signedIn, type TestApp } from '../setup/app'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop, userIdOf } from './helpers'
 
@@ -245,7 +247,7 @@ describe('routing templates', () => {
     expectFieldError(await post([step('a', [], { kindId: 999999 })]), 'steps.0.kindId', /not an operation kind/)
     expectFieldError(await post([step('a', [], { baseMinutes: -5 })]), 'steps.0.baseMinutes', /negative/)
     expectFieldError(await post([step('A b')]), 'steps.0.key', /lower-case/)
-    expect((await t.pool.query(`select count(*)::int as n from routing_templates where code = 'bad-graph'`)).rows[0].n).toBe(0)
+    expect((await t.db.select({ n: count() }).from(s.routingTemplates).where(eq(s.routingTemplates.code, 'bad-graph')))[0]!.n).toBe(0)
   })
 
   it('when the code is taken or the template does not exist, then 409 or 404', async () => {
@@ -371,14 +373,15 @@ describe('users', () => {
 
   it('when the owner tries to demote or switch off their own account, then it is refused naming the field, and nothing changes', async () => {
     const me = await userIdOf(t, DEMO_EMAIL.owner)
-    const { rows: [before] } = await t.pool.query('select role, active, version from users where id = $1', [me])
+    const userRow = async () => (await t.db.select({ role: s.users.role, active: s.users.active, version: s.users.version }).from(s.users).where(eq(s.users.id, me)))[0]!
+    const before = await userRow()
     const demote = await owner.patch(`/api/users/${me}`, { role: 'manager', version: before.version })
     expectCleanError(demote, 422)
     expect(demote.body.fields).toEqual({ role: expect.stringMatching(/yourself/) })
     const off = await owner.patch(`/api/users/${me}`, { active: false, version: before.version })
     expectCleanError(off, 422)
     expect(off.body.fields).toEqual({ active: expect.stringMatching(/yourself/) })
-    const { rows: [after] } = await t.pool.query('select role, active, version from users where id = $1', [me])
+    const after = await userRow()
     expect(after).toEqual(before)
     expect((await owner.patch(`/api/users/${me}`, { name: 'Margit Saale-Brook', version: before.version })).status).toBe(200)
   })
@@ -439,12 +442,16 @@ describe('another workshop', () => {
     expectFieldError(await a.post('/api/people', { name: 'Borrowed', userId: f.user.id }), 'userId')
     expectFieldError(await a.post('/api/orders', { customerId: f.customer.id, title: 'x', dueDate: '2030-01-01' }), 'customerId')
 
-    const { rows } = await t.pool.query(
-      `select (select version from benches where id = $1) b, (select version from people where id = $2) p, (select version from customers where id = $3) c,
-              (select count(*)::int from closures where id = $4) cl, (select active from users where id = $5) u, (select count(*)::int from audit_log where workshop_id = $6) audits`,
-      [f.bench.id, f.person.id, f.customer.id, f.closure.id, f.user.id, other.workshopId],
-    )
-    expect(rows[0]).toEqual({ b: f.bench.version, p: f.person.version, c: f.customer.version, cl: 1, u: true, audits: 0 })
+    const one = <T>(rows: T[]) => rows[0]
+    const now = {
+      b: one(await t.db.select({ v: s.benches.version }).from(s.benches).where(eq(s.benches.id, f.bench.id)))?.v,
+      p: one(await t.db.select({ v: s.people.version }).from(s.people).where(eq(s.people.id, f.person.id)))?.v,
+      c: one(await t.db.select({ v: s.customers.version }).from(s.customers).where(eq(s.customers.id, f.customer.id)))?.v,
+      cl: one(await t.db.select({ n: count() }).from(s.closures).where(eq(s.closures.id, f.closure.id)))?.n,
+      u: one(await t.db.select({ v: s.users.active }).from(s.users).where(and(eq(s.users.id, f.user.id))))?.v,
+      audits: one(await t.db.select({ n: count() }).from(s.auditLog).where(eq(s.auditLog.workshopId, other.workshopId)))?.n,
+    }
+    expect(now).toEqual({ b: f.bench.version, p: f.person.version, c: f.customer.version, cl: 1, u: true, audits: 0 })
   })
 })
 

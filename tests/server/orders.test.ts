@@ -1,5 +1,7 @@
 // Orders API against real PostgreSQL: taking an order with pieces (job bags, routings copied as operations), the list, changes.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { count } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from './helpers'
 
@@ -23,7 +25,7 @@ beforeAll(async () => {
 })
 afterAll(async () => { await t?.close() })
 
-const orderCount = async () => (await t.pool.query('select count(*)::int as n from orders')).rows[0].n as number
+const orderCount = async () => (await t.db.select({ n: count() }).from(s.orders))[0]!.n
 
 describe('taking an order', () => {
   it('when an order with two pieces is taken, then it is numbered, each piece gets a numbered job bag, and it is audited', async () => {

@@ -1,5 +1,7 @@
 // The workshop's pause reasons against real PostgreSQL: the starting list, the owner's changes, and what a bench pause accepts.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { desc, eq, ne } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from './helpers'
 import { benchId, freshReady, personIdOf, rid } from './bench-fixtures'
@@ -43,8 +45,8 @@ describe('the starting list', () => {
     expect(reasons.every((r) => r.active)).toBe(true)
     expect(reasons.find((r) => r.code === 'other')!.needsNote).toBe(true)
     // The seeded history ends some records with "end-of-day" (server/db/seed.ts): its name is in the list.
-    const { rows } = await t.pool.query(`select distinct end_reason from time_records where end_reason <> 'finished'`)
-    for (const { end_reason } of rows) expect(reasons.map((r) => r.code)).toContain(end_reason)
+    const rows = await t.db.selectDistinct({ endReason: s.timeRecords.endReason }).from(s.timeRecords).where(ne(s.timeRecords.endReason, 'finished'))
+    for (const { endReason } of rows) expect(reasons.map((r) => r.code)).toContain(endReason)
   })
 
   it('when two workshops read their lists, then each has its own rows', async () => {
@@ -61,8 +63,8 @@ describe('pausing with the workshop’s reasons', () => {
     const id = await running()
     const r = await setter.post(`/api/bench/operations/${id}/pause`, { requestId: rid(), reason: 'waiting-for-stones', note: 'sapphires at the dealer' })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
-    const { rows: [rec] } = await t.pool.query('select end_reason, note from time_records where operation_id = $1 order by id desc limit 1', [id])
-    expect(rec).toEqual({ end_reason: 'waiting-for-stones', note: 'sapphires at the dealer' })
+    const [rec] = await t.db.select({ endReason: s.timeRecords.endReason, note: s.timeRecords.note }).from(s.timeRecords).where(eq(s.timeRecords.operationId, id)).orderBy(desc(s.timeRecords.id)).limit(1)
+    expect(rec).toEqual({ endReason: 'waiting-for-stones', note: 'sapphires at the dealer' })
     const [a] = await auditRows(t, 'operation', id)
     expect(a!.details).toMatchObject({ reason: 'waiting-for-stones', reasonLabel: 'Waiting for stones' })
     expect((await setter.post(`/api/bench/operations/${id}/resume`, { requestId: rid(), benchId: setA })).status).toBe(200)
@@ -75,8 +77,8 @@ describe('pausing with the workshop’s reasons', () => {
     expectFieldError(await setter.post(`/api/bench/operations/${id}/pause`, { requestId: rid(), reason: 'tea' }), 'reason', /break, waiting-for-stones/)
     expectFieldError(await setter.post(`/api/bench/operations/${id}/pause`, { requestId: rid(), reason: '' }), 'reason')
     expectFieldError(await setter.post(`/api/bench/operations/${id}/pause`, { requestId: rid(), reason: 7 }), 'reason')
-    const { rows: [op] } = await t.pool.query('select status from operations where id = $1', [id])
-    expect(op.status).toBe('running')
+    const [op] = await t.db.select({ status: s.operations.status }).from(s.operations).where(eq(s.operations.id, id))
+    expect(op!.status).toBe('running')
     expect((await finish(id)).status).toBe(200)
   })
 })

@@ -1,7 +1,7 @@
 // Planning API: planner runs become drafts, publish/discard, the board, moves by hand with their refusals, live events.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { io as connect } from 'socket.io-client'
-import { eq, notInArray } from 'drizzle-orm'
+import { and, eq, inArray, isNotNull, max, notInArray, or } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { waitForRun } from '../../server/planning/runs'
 import { dayjs } from '../../server/lib/time'
@@ -179,9 +179,10 @@ describe('board and moves by hand', () => {
     const lastSteps = board.items.filter((i: any) => !i.outside && i.status !== 'running' && i.benchId && i.personId && !ops.some((o) => o.jobBagId === i.jobBagId && o.after.includes(ops.find((x) => x.id === i.id)!.key)))
     expect(lastSteps.length, 'the demo board has last steps of job bags').toBeGreaterThan(0)
     const busyUntil = async (bar: any) => {
-      const { rows: [r] } = await t.pool.query(`select max(o.planned_end) as until from operations o join job_bags b on b.id = o.job_bag_id
-        where b.workshop_id = 1 and o.planned_start is not null and o.status in ('pending','ready','claimed','paused','running') and (o.planned_bench_id = $1 or o.planned_person_id = $2)`, [bar.benchId, bar.personId])
-      return new Date(r.until).getTime()
+      const o = s.operations
+      const [r] = await t.db.select({ until: max(o.plannedEnd) }).from(o).innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId))
+        .where(and(eq(s.jobBags.workshopId, 1), isNotNull(o.plannedStart), inArray(o.status, ['pending', 'ready', 'claimed', 'paused', 'running']), or(eq(o.plannedBenchId, bar.benchId), eq(o.plannedPersonId, bar.personId))))
+      return new Date(r!.until!).getTime()
     }
     let bar: any = null, after = Infinity
     for (const i of lastSteps) { const u = await busyUntil(i); if (u < after) { after = u; bar = i } }

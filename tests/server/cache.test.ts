@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Cache } from '../../server/lib/cache'
 import { Realtime } from '../../server/realtime/hub'
 import { createTestDb, type TestDb } from '../setup/db'
+import { firstWorkshopId } from '../setup/fixtures'
 
 let d: TestDb
 let workshopId: number
@@ -13,7 +14,7 @@ const verified = { ttlMs: 60_000, verify: true }
 
 beforeAll(async () => {
   d = await createTestDb()
-  workshopId = (await d.pool.query('select id from workshops order by id limit 1')).rows[0].id
+  workshopId = await firstWorkshopId(d.db)
 })
 afterAll(async () => {
   for (const r of hubs) await r.close()
@@ -82,6 +83,7 @@ describe('two instances, one database', () => {
     await cache.get(workshopId, 'k', () => 1, { ttlMs: 60_000 })
     expect(b.listening).toBe(true)
     // Cut B's listening connection (the newest one: B started listening last).
+    // Raw SQL on purpose: PostgreSQL's own pg_stat_activity and pg_terminate_backend, not our schema.
     const { rows: cut } = await d.pool.query(`select pg_terminate_backend(pid) from pg_stat_activity where datname = current_database() and query ilike 'listen millgrain_changes%' order by backend_start desc limit 1`)
     expect(cut).toHaveLength(1)
     await waitFor('the cache being emptied', () => cache.size === 0 && !b.listening)

@@ -1,6 +1,7 @@
 // Two app instances (separate processes) over one PostgreSQL: live events, catch-up, caches, claims and sign-out work
 // across them; and the sticky proxy of `npm run start:cluster` keeps a long-polling Socket.IO client on one instance.
-import { sql } from 'drizzle-orm'
+import { and, asc, eq, inArray, isNotNull, max } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { io as connect, type Socket } from 'socket.io-client'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { publishFirstPlans } from '../../server/planning/first-plan'
@@ -9,6 +10,7 @@ import { httpSignIn } from '../setup/app'
 import type { TestApp } from '../setup/app'
 import { startInstances, type Instance, type Instances } from '../setup/instances'
 import { extraSetters, freshReady, rid } from './bench-fixtures'
+import { benchIdByName } from '../setup/fixtures'
 
 let cluster: Instances
 let a: Instance
@@ -45,12 +47,15 @@ const until = (sock: Socket, event: string, timeoutMs = 20_000) =>
   new Promise<any>((res, rej) => { const t = setTimeout(() => rej(new Error(`no ${event} within ${timeoutMs} ms`)), timeoutMs); sock.once(event, (p: unknown) => { clearTimeout(t); res(p) }) })
 const since = (sock: Socket, seq: number) => new Promise<{ seq: number; event: string; payload: any }[]>((res) => sock.emit('changes:since' as any, seq, res))
 
+const pinnedNow = async (id: number) => (await cluster.database.db.select({ pinned: s.operations.pinned }).from(s.operations).where(eq(s.operations.id, id)))[0]!.pinned
+
 /** A planned step of the live plan that is not started and not pinned, with its version. */
-async function plannedStep(): Promise<{ id: number; version: number; planned_start: Date }> {
-  const r = await cluster.database.db.execute(sql`select id, version, planned_start from operations where status in ('pending', 'ready') and planned_start is not null and not pinned order by planned_start, id limit 1`)
-  const row = r.rows[0] as { id: number; version: number; planned_start: Date } | undefined
+async function plannedStep(): Promise<{ id: number; version: number; planned_start: string }> {
+  const o = s.operations
+  const [row] = await cluster.database.db.select({ id: o.id, version: o.version, planned_start: o.plannedStart }).from(o)
+    .where(and(inArray(o.status, ['pending', 'ready']), isNotNull(o.plannedStart), eq(o.pinned, false))).orderBy(asc(o.plannedStart), asc(o.id)).limit(1)
   if (!row) throw new Error('the first plan left no planned step to pin')
-  return row
+  return { ...row, planned_start: row.planned_start! }
 }
 const pin = (base: string, s: Session, step: { id: number; version: number }, pinned: boolean) => api(base, s, 'PATCH', `/board/operations/${step.id}`, { pinned, version: step.version })
 
@@ -66,8 +71,8 @@ describe('live events across instances', () => {
     const event = await heard
     expect(event).toMatchObject({ operationId: step.id, seq: expect.any(Number) })
     // The number is the row A wrote in PostgreSQL, not a count kept by either process.
-    const { rows } = await cluster.database.pool.query(`select seq, event from realtime_events where seq = $1`, [event.seq])
-    expect(rows).toEqual([{ seq: String(event.seq), event: 'plan:changed' }])
+    const rows = await cluster.database.db.select({ seq: s.realtimeEvents.seq, event: s.realtimeEvents.event }).from(s.realtimeEvents).where(eq(s.realtimeEvents.seq, event.seq))
+    expect(rows).toEqual([{ seq: event.seq, event: 'plan:changed' }])
     const back = await pin(a.url, onA, { id: step.id, version: ((await r.json()) as { version: number }).version }, false)
     expect(back.status).toBe(200)
   })
@@ -78,7 +83,7 @@ describe('live events across instances', () => {
     const planner = await httpSignIn(b.url, 'owner')
     const benchSock = await listen(b.url, bench)
     const plannerSock = await listen(b.url, planner)
-    const { rows: [{ seq: before }] } = await cluster.database.pool.query(`select coalesce(max(seq), 0)::int as seq from realtime_events`)
+    const before = (await cluster.database.db.select({ seq: max(s.realtimeEvents.seq) }).from(s.realtimeEvents))[0]?.seq ?? 0
     // Three changes on A: pin, unpin, pin again.
     let step = await plannedStep()
     const seen: number[] = []
@@ -95,8 +100,8 @@ describe('live events across instances', () => {
     expect(mine.map((e) => e.payload.seq)).toEqual(seen)
     expect([...seen].sort((x, y) => x - y)).toEqual(seen)
     // Planner-only events recorded on A reach the owner's catch-up on B, never the bench user's.
-    const { rows: [{ id: draftLike }] } = await cluster.database.pool.query(`select id from plan_versions order by id limit 1`)
-    await cluster.database.pool.query(`insert into realtime_events (workshop_id, event, payload) select workshop_id, 'plan:drafted', jsonb_build_object('id', $1::int) from plan_versions where id = $1`, [draftLike])
+    const [draftLike] = await cluster.database.db.select({ id: s.planVersions.id, workshopId: s.planVersions.workshopId }).from(s.planVersions).orderBy(asc(s.planVersions.id)).limit(1)
+    await cluster.database.db.insert(s.realtimeEvents).values({ workshopId: draftLike!.workshopId, event: 'plan:drafted', payload: { id: draftLike!.id } })
     expect((await since(benchSock.sock, before)).map((e) => e.event)).not.toContain('plan:drafted')
     expect((await since(plannerSock.sock, before)).map((e) => e.event)).toContain('plan:drafted')
     await pin(a.url, manager, step, false)
@@ -134,7 +139,7 @@ describe('claims across instances', () => {
     const viaB = await extraSetters({ ...t, app: b.url } as unknown as TestApp, 50, 'inst-b')
     const crowd = [...viaA, ...viaB]
     const op = await freshReady(t, 'setting', 'set')
-    const { rows: [{ id: setA }] } = await cluster.database.pool.query(`select id from benches where name = 'Setting bench A'`)
+    const setA = await benchIdByName(cluster.database.db, 'Setting bench A')
     const answers = await Promise.all(crowd.map((c) => c.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })))
     const ok = answers.filter((r) => r.status === 200)
     const refused = answers.filter((r) => r.status === 409)
@@ -142,8 +147,8 @@ describe('claims across instances', () => {
     expect(refused).toHaveLength(99)
     const winner = crowd.find((c) => c.personId === ok[0]!.body.operation.claimedBy)!
     for (const r of refused) expect(r.body.error).toContain(winner.name)
-    const { rows: [row] } = await cluster.database.pool.query('select status, claimed_by from operations where id = $1', [op.id])
-    expect(row).toEqual({ status: 'claimed', claimed_by: winner.personId })
+    const [row] = await cluster.database.db.select({ status: s.operations.status, claimedBy: s.operations.claimedBy }).from(s.operations).where(eq(s.operations.id, op.id))
+    expect(row).toEqual({ status: 'claimed', claimedBy: winner.personId })
   }, 120_000)
 })
 
@@ -170,13 +175,13 @@ describe('the sticky proxy', () => {
     let step = await plannedStep()
     for (const [base, who] of [[a.url, onA], [b.url, onB]] as const) {
       const heard = until(polled.sock, 'plan:changed')
-      const r = await pin(base, who, step, !((await cluster.database.pool.query('select pinned from operations where id = $1', [step.id])).rows[0].pinned))
+      const r = await pin(base, who, step, !(await pinnedNow(step.id)))
       expect(r.status).toBe(200)
       step = { ...step, version: ((await r.json()) as { version: number }).version }
       expect(await heard).toMatchObject({ operationId: step.id })
     }
     expect(polled.sock.connected).toBe(true)
-    if ((await cluster.database.pool.query('select pinned from operations where id = $1', [step.id])).rows[0].pinned) await pin(a.url, onA, step, false)
+    if (await pinnedNow(step.id)) await pin(a.url, onA, step, false)
   })
 
   it('when a client starts with long-polling through the proxy, then it upgrades to a WebSocket through the proxy and hears a change made on another instance', async () => {

@@ -16,6 +16,7 @@ async function fingerprint(url: string) {
   const c = new pg.Client({ connectionString: url })
   await c.connect()
   const out: Record<string, { rows: number; md5: string | null }> = {}
+  // Raw SQL on purpose: a whole-row fingerprint of each table (md5 over its text form), compared before the dump and after the restore.
   for (const t of KEY_TABLES) {
     const order = t === 'person_skills' ? 'person_id, kind_id' : 'id'
     const r = await c.query(`select count(*)::int as n, md5(string_agg(x::text, '|' order by ${order})) as h from ${t} x`)

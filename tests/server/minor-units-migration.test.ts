@@ -7,6 +7,7 @@ import pg from 'pg'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { migrationsFolder } from '../../server/db/migrate'
 
+// Raw SQL throughout on purpose: the rows are written in the columns as they stood before the migration under test, which the schema no longer has.
 const port = process.env.TEST_PG_PORT
 const name = `m_${randomBytes(6).toString('hex')}`
 const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/postgres` })

@@ -146,7 +146,7 @@ describe('the demo seeded with a clock it is given', () => {
   beforeAll(async () => {
     const c = admin()
     await c.connect()
-    await c.query(`create database ${name}`)
+    await c.query(`create database ${name}`) // Raw SQL on purpose: making a database is not a table write
     await c.end()
     const made = createDb(`postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/${name}`, 2)
     pool = made.pool

@@ -104,6 +104,7 @@ function cookieExpires(setCookie: string[] | string | undefined): number | null 
   return m ? Date.parse(m[1]!) : null
 }
 
+// Raw SQL on purpose: user_sessions is connect-pg-simple's table (expire, xmin, the sess JSON), not part of our schema.
 async function row(sid: string) {
   const r = await t.db.execute(sql`select extract(epoch from expire) * 1000 as expire, xmin::text as xmin, sess from user_sessions where sid = ${sid}`)
   const x = r.rows[0] as { expire: string; xmin: string; sess: { cookie: { expires: string } } } | undefined

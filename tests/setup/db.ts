@@ -12,6 +12,7 @@ function env() {
   return { port, template }
 }
 
+// Raw SQL on purpose: creating and dropping databases from the template is PostgreSQL administration, not a table write.
 async function admin<T>(fn: (c: pg.Client) => Promise<T>): Promise<T> {
   const { port } = env()
   const c = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/postgres` })

@@ -6,7 +6,10 @@ import dayjs from 'dayjs'
 import utc from 'dayjs/plugin/utc'
 import timezone from 'dayjs/plugin/timezone'
 import isoWeek from 'dayjs/plugin/isoWeek'
+import { eq, inArray } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { barBox, screenshot, signInPage, useE2E } from '../setup/e2e'
+import { readyBenchStep } from '../setup/fixtures'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
@@ -48,15 +51,14 @@ describe('the manager\'s board tools', () => {
     while (day.isoWeekday() > 5) day = day.subtract(1, 'day')
     const weeksBack = dayjs().tz(TZ).startOf('isoWeek').isAfter(day) ? 1 : 0
     const at = (hhmm: string) => dayjs.tz(`${day.format('YYYY-MM-DD')} ${hhmm}`, TZ).toISOString()
-    const { rows: [op] } = await pool.query(`
-      select o.id, o.name, o.kind_id, o.required_level, o.estimate_minutes, jb.number
-        from operations o join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id join operation_kinds k on k.id = o.kind_id
-       where o.status = 'ready' and ord.status = 'open' and not k.outside and o.lead_days = 0 order by o.id limit 1`)
-    const { rows: [who] } = await pool.query(`select ps.person_id from person_skills ps where ps.kind_id = $1 and ps.level >= $2 order by ps.person_id limit 1`, [op.kind_id, op.required_level])
-    const { rows: [where] } = await pool.query(`select bench_id from bench_capabilities where kind_id = $1 order by bench_id limit 1`, [op.kind_id])
-    await pool.query(`insert into time_records (operation_id, person_id, bench_id, started_at, ended_at, end_reason) values ($1, $2, $3, $4, $5, 'end-of-day'), ($1, $2, $3, $6, $7, 'finished')`,
-      [op.id, who.person_id, where.bench_id, at('09:10'), at('10:45'), at('11:05'), at('12:20')])
-    await pool.query(`update operations set status = 'done', finished_at = $2 where id = $1`, [op.id, at('12:20')])
+    const db = e2e.db.db
+    const stepNow = async (id: number) => (await db.select({ planned_start: s.operations.plannedStart, version: s.operations.version }).from(s.operations).where(eq(s.operations.id, id)))[0]!
+    const op = await readyBenchStep(db)
+    await db.insert(s.timeRecords).values([
+      { operationId: op.id, personId: op.personId, benchId: op.benchId, startedAt: at('09:10'), endedAt: at('10:45'), endReason: 'end-of-day' },
+      { operationId: op.id, personId: op.personId, benchId: op.benchId, startedAt: at('11:05'), endedAt: at('12:20'), endReason: 'finished' },
+    ])
+    await db.update(s.operations).set({ status: 'done', finishedAt: at('12:20') }).where(eq(s.operations.id, op.id))
 
     // Plan and publish through the API, then open the board.
     const run = await call(manager, 'POST', '/api/plans/runs', { timeLimitSeconds: 2 })
@@ -73,13 +75,14 @@ describe('the manager\'s board tools', () => {
     await done.waitFor({ state: 'attached' })
     await expect.poll(async () => (await boxOf(manager, op.id)) !== null, { timeout: 20_000, interval: 250 }).toBe(true)
     await expect(done.getAttribute('class')).resolves.toMatch(/board-bar--done.*board-bar--fixed|board-bar--fixed.*board-bar--done/)
+    // Raw SQL on purpose: the worked minutes reckoned by PostgreSQL's own interval arithmetic, apart from the app's code.
     const { rows: [rec] } = await pool.query(`select min(started_at) as first, max(ended_at) as last, sum(extract(epoch from ended_at - started_at) / 60)::int as minutes from time_records where operation_id = $1`, [op.id])
     // 95 + 75 = 170 min worked (hand-worked from the two records above); the database must agree.
     expect(rec.minutes).toBe(170)
     await done.hover()
     const tip = manager.locator('[data-test=bar-tooltip]')
     await tip.waitFor()
-    await expect(tip.locator('[data-test=bar-tip-actual]').textContent()).resolves.toBe(`Finished ${clock(rec.last)} · worked ${hm(rec.minutes)} against ${hm(Math.round(op.estimate_minutes))} estimated`)
+    await expect(tip.locator('[data-test=bar-tip-actual]').textContent()).resolves.toBe(`Finished ${clock(rec.last)} · worked ${hm(rec.minutes)} against ${hm(Math.round(op.estimate))} estimated`)
     await expect(tip.locator('[data-test=bar-tip-actual-span]').textContent()).resolves.toBe(`Actual: ${clock(rec.first)}–${dayjs(rec.last).tz(TZ).format('HH:mm')}`)
     await screenshot(manager, 'board-tools-01-finished-tooltip')
     await done.click()
@@ -111,8 +114,8 @@ describe('the manager\'s board tools', () => {
 
     // By its customer's name, read from the database: every hit is one of that customer's job bags.
     const other = open.find((b) => b.jobBagId === bags[bags.length - 1])!
-    const { rows: [cust] } = await pool.query(`select c.id, c.name from customers c join orders o on o.customer_id = c.id join job_bags jb on jb.order_id = o.id where jb.id = $1`, [other.jobBagId])
-    const { rows: theirs } = await pool.query(`select jb.id from job_bags jb join orders o on o.id = jb.order_id where o.customer_id = $1`, [cust.id])
+    const cust = (await db.select({ id: s.customers.id, name: s.customers.name }).from(s.customers).innerJoin(s.orders, eq(s.orders.customerId, s.customers.id)).innerJoin(s.jobBags, eq(s.jobBags.orderId, s.orders.id)).where(eq(s.jobBags.id, other.jobBagId)))[0]!
+    const theirs = await db.select({ id: s.jobBags.id }).from(s.jobBags).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).where(eq(s.orders.customerId, cust.id))
     await search.fill(cust.name)
     const hits = manager.locator('[data-test=board-search-hit]')
     await hits.first().waitFor()
@@ -132,8 +135,8 @@ describe('the manager\'s board tools', () => {
     await rendered(manager)
 
     // Keyboard: select a bar (focus and Enter), → moves it 15 minutes later, through the server's checks.
-    const { rows: steps } = await pool.query(`select o.id, o.key, o.after, o.job_bag_id, o.wait_after_minutes from operations o where o.id = any($1::int[])`, [open.map((b) => b.id)])
-    const byId = new Map<number, any>(steps.map((s: any) => [s.id, s]))
+    const steps = await db.select({ id: s.operations.id, key: s.operations.key, after: s.operations.after, job_bag_id: s.operations.jobBagId, wait_after_minutes: s.operations.waitAfterMinutes }).from(s.operations).where(inArray(s.operations.id, open.map((b) => b.id)))
+    const byId = new Map<number, any>(steps.map((x) => [x.id, x]))
     const successorOf = (b: Bar) => open.find((x) => x.jobBagId === b.jobBagId && byId.get(x.id)?.after.includes(byId.get(b.id)?.key))
     const inSpan = (iso: string) => {
       // Still inside the same working span 15 minutes later (else the server starts it at the next span: not a 15-minute shift).
@@ -154,19 +157,19 @@ describe('the manager\'s board tools', () => {
       await manager.keyboard.press('Enter')
       await manager.locator('[data-test=bar-details]').filter({ hasText: b.name }).waitFor()
       await manager.locator('[data-test=board-keys-hint]').waitFor()
-      const { rows: [row] } = await pool.query(`select planned_start from operations where id = $1`, [b.id])
+      const row = await stepNow(b.id)
       await manager.keyboard.press('ArrowRight')
       const success = manager.locator('.el-message--success', { hasText: `of ${b.jobBagNumber} 15 min later` })
       await success.or(refusal).first().waitFor({ timeout: 10_000 })
-      if (await success.count()) { moved = { bar: b, before: new Date(row.planned_start) }; break }
+      if (await success.count()) { moved = { bar: b, before: new Date(row.planned_start!) }; break }
       tried.push((await refusal.textContent()) ?? '')
       await refusal.locator('.el-alert__close-btn').click()
       await manager.keyboard.press('Escape')
       if (tried.length >= 12) break
     }
     expect(moved, `a bar moved by keyboard; refusals: ${tried.join(' | ')}`).toBeTruthy()
-    const { rows: [after] } = await pool.query(`select planned_start from operations where id = $1`, [moved!.bar.id])
-    expect(new Date(after.planned_start).getTime() - moved!.before.getTime()).toBe(15 * 60_000)
+    const after = await stepNow(moved!.bar.id)
+    expect(new Date(after.planned_start!).getTime() - moved!.before.getTime()).toBe(15 * 60_000)
     await expect(manager.locator('[data-test=bar-details-planned]').textContent()).resolves.toContain(dayjs(after.planned_start).tz(TZ).format('HH:mm'))
     await screenshot(manager, 'board-tools-05-key-moved')
     await manager.keyboard.press('Escape')
@@ -187,7 +190,7 @@ describe('the manager\'s board tools', () => {
       break
     }
     expect(refused, 'a step on screen whose predecessor ends less than an hour before it').toBeTruthy()
-    const { rows: [was] } = await pool.query(`select planned_start, version from operations where id = $1`, [refused!.b.id])
+    const was = await stepNow(refused!.b.id)
     await manager.locator(`.vis-item.board-bar[data-id="${refused!.b.id}"]`).click()
     await manager.locator('[data-test=bar-details]').filter({ hasText: refused!.b.name }).waitFor()
     await manager.keyboard.press('Shift+ArrowLeft')
@@ -197,8 +200,8 @@ describe('the manager\'s board tools', () => {
     expect(same.status).toBe(422)
     expect(same.body.error).toMatch(/must wait for|is booked for/)
     await expect(refusal.textContent()).resolves.toBe(`Not moved: ${refused!.b.jobBagNumber} “${refused!.b.name}”${same.body.error}`)
-    const { rows: [still] } = await pool.query(`select planned_start, version from operations where id = $1`, [refused!.b.id])
-    expect(new Date(still.planned_start).getTime()).toBe(new Date(was.planned_start).getTime())
+    const still = await stepNow(refused!.b.id)
+    expect(new Date(still.planned_start!).getTime()).toBe(new Date(was.planned_start!).getTime())
     expect(still.version).toBe(was.version)
     await screenshot(manager, 'board-tools-06-key-refused')
     await ctx.close()

@@ -3,6 +3,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { BrowserContext, Page } from 'playwright-core'
 import { startPayFake, TEST_CARDS, type PayFake } from '../../server/dev/pay-fake'
+import { and, asc, count, eq, inArray, ne, notExists } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 let fake: PayFake
@@ -14,7 +16,7 @@ const e2e = useE2E({ env: () => ({ PAY_FAKE_URL: fake.url }) })
 beforeAll(async () => {
   fake.webhookUrl = `${e2e.url}/api/payments/webhook`
   // The provider sends the customer back to the workshop's public address: this test's server.
-  await e2e.db.pool.query(`update workshops set public_url = $1`, [e2e.url])
+  await e2e.db.db.update(s.workshops).set({ publicUrl: e2e.url })
   // The customer: a browser of their own, never signed in.
   customerContext = await e2e.newContext()
   page = await signInPage(await e2e.newContext(), 'sales')
@@ -55,8 +57,9 @@ describe('quotes and deposits', () => {
     const number = /Quote (\S+) kept as a draft/.exec(await done.textContent() ?? '')?.[1]
     expect(number).toMatch(/^Q\d\d-\d{4}$/)
     draftNumber = number!
-    const { rows: [q] } = await e2e.db.pool.query(`select status, price_minor, deposit_minor, promised_date::text as promised, details, confidence from quotes where number = $1`, [number])
-    expect(q).toMatchObject({ status: 'drafted', price_minor: 64000, deposit_minor: 19200 })
+    const q = (await e2e.db.db.select({ status: s.quotes.status, priceMinor: s.quotes.priceMinor, depositMinor: s.quotes.depositMinor, promised: s.quotes.promisedDate, details: s.quotes.details, confidence: s.quotes.confidence })
+      .from(s.quotes).where(eq(s.quotes.number, number!)))[0]!
+    expect(q).toMatchObject({ status: 'drafted', priceMinor: 64000, depositMinor: 19200 })
     expect(q.details.templateId).toBe(check.template.id)
     // The suggested date: P80 when the range is later than the fixed plan, else the fixed-plan date (as the promise page keeps it).
     const suggested = check.range && check.range.p80.date > check.fixedPlan.date ? check.range.p80.date : check.fixedPlan.date
@@ -65,14 +68,17 @@ describe('quotes and deposits', () => {
   })
 
   it('when sales writes a quote from an order and e-mails it, then the order shows the price and the deposit owed with a payment link', async () => {
-    const { rows: [ws] } = await e2e.db.pool.query(`select deposit_pct, currency from workshops`)
+    const [ws] = await e2e.db.db.select({ depositPct: s.workshops.depositPct, currency: s.workshops.currency }).from(s.workshops)
     // The demo workshop asks 30 % and prices in pounds; the figures below are worked for that.
-    expect(ws).toEqual({ deposit_pct: 30, currency: 'GBP' })
-    const { rows: [o] } = await e2e.db.pool.query(`select o.id from orders o join customers c on c.id = o.customer_id
-      where o.status in ('open', 'quoted') and c.email <> '' and not exists (select 1 from payments p where p.order_id = o.id) and not exists (select 1 from quotes q where q.order_id = o.id)
-      order by o.id limit 1`)
+    expect(ws).toEqual({ depositPct: 30, currency: 'GBP' })
+    const db = e2e.db.db
+    const [o] = await db.select({ id: s.orders.id }).from(s.orders).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
+      .where(and(inArray(s.orders.status, ['open', 'quoted']), ne(s.customers.email, ''),
+        notExists(db.select({ id: s.payments.id }).from(s.payments).where(eq(s.payments.orderId, s.orders.id))),
+        notExists(db.select({ id: s.quotes.id }).from(s.quotes).where(eq(s.quotes.orderId, s.orders.id)))))
+      .orderBy(asc(s.orders.id)).limit(1)
     expect(o, 'an open order of a customer with an e-mail').toBeTruthy()
-    orderId = o.id
+    orderId = o!.id
     await page.goto(`/orders/${orderId}`)
     await page.locator('[data-test=order-money]').waitFor({ timeout: 15_000 })
     await page.locator('[data-test=money-make-quote]').click()
@@ -84,13 +90,13 @@ describe('quotes and deposits', () => {
     await dialog.locator('[data-test=quote-deposit-amount]', { hasText: '£375.00 now, £875.00 at collection' }).waitFor()
     await dialog.locator('[data-test=quote-save-send]').click()
     await dialog.waitFor({ state: 'hidden', timeout: 20_000 })
-    const { rows: [q] } = await e2e.db.pool.query(`select id, number, status, price_minor, deposit_minor from quotes where order_id = $1`, [orderId])
-    expect(q).toMatchObject({ status: 'sent', price_minor: 125000, deposit_minor: 37500 })
+    const q = (await e2e.db.db.select({ id: s.quotes.id, number: s.quotes.number, status: s.quotes.status, priceMinor: s.quotes.priceMinor, depositMinor: s.quotes.depositMinor }).from(s.quotes).where(eq(s.quotes.orderId, orderId)))[0]!
+    expect(q).toMatchObject({ status: 'sent', priceMinor: 125000, depositMinor: 37500 })
     quoteNumber = q.number
-    const { rows: links } = await e2e.db.pool.query(`select url, amount_minor, status, purpose from payment_links where quote_id = $1`, [q.id])
+    const links = await e2e.db.db.select({ url: s.paymentLinks.url, amountMinor: s.paymentLinks.amountMinor, status: s.paymentLinks.status, purpose: s.paymentLinks.purpose }).from(s.paymentLinks).where(eq(s.paymentLinks.quoteId, q.id))
     expect(links).toHaveLength(1)
-    expect(links[0]).toMatchObject({ amount_minor: 37500, status: 'open', purpose: 'deposit' })
-    linkUrl = links[0].url
+    expect(links[0]).toMatchObject({ amountMinor: 37500, status: 'open', purpose: 'deposit' })
+    linkUrl = links[0]!.url
     // The order's figures follow the quote, live (the panel reloads on the quote's and the link's events).
     await page.locator('[data-test=money-deposit-state]', { hasText: 'deposit owed £375.00' }).waitFor({ timeout: 20_000 })
     expect(await text(page, '[data-test=money-price]')).toBe('£1,250.00')
@@ -100,7 +106,7 @@ describe('quotes and deposits', () => {
     await open.waitFor()
     expect(await open.getAttribute('href')).toBe(linkUrl)
     // The order's own price figure stays as taken; when it differs from the quote's, the drawer says what the quote asks.
-    const { rows: [own] } = await e2e.db.pool.query(`select price_quoted_minor as minor from orders where id = $1`, [orderId])
+    const own = (await e2e.db.db.select({ minor: s.orders.priceQuotedMinor }).from(s.orders).where(eq(s.orders.id, orderId)))[0]!
     if (own.minor !== 125000) await page.locator('[data-test=order-price-quote-note]', { hasText: 'the quote asks £1,250.00' }).waitFor()
     await screenshot(page, 'payments-order-owed', { fullPage: false })
   })
@@ -114,8 +120,8 @@ describe('quotes and deposits', () => {
     await customer.locator('[data-test=error]', { hasText: /declined/ }).waitFor()
     await screenshot(customer, 'payments-card-declined', { fullPage: false })
     await customer.close()
-    const { rows: [n] } = await e2e.db.pool.query(`select count(*)::int as n from payments where order_id = $1`, [orderId])
-    expect(n.n).toBe(0)
+    const [n] = await e2e.db.db.select({ n: count() }).from(s.payments).where(eq(s.payments.orderId, orderId))
+    expect(n!.n).toBe(0)
     expect(await text(page, '[data-test=money-deposit-state]')).toBe('deposit owed £375.00')
     expect(await text(page, '[data-test=money-paid]')).toBe('£0.00')
   })
@@ -130,7 +136,8 @@ describe('quotes and deposits', () => {
     await customer.locator('[data-test=paid]').waitFor({ timeout: 20_000 })
     await page.locator('[data-test=money-deposit-state]', { hasText: 'deposit paid' }).waitFor({ timeout: 30_000 })
     expect(await page.evaluate(() => (window as unknown as { stillHere?: boolean }).stillHere)).toBe(true)
-    const { rows: [p] } = await e2e.db.pool.query(`select coalesce(sum(amount_minor), 0)::int as paid, count(*)::int as n, bool_and(method = 'card' and provider_ref is not null) as card from payments where order_id = $1 and not to_refund`, [orderId])
+    const booked = await e2e.db.db.select({ amountMinor: s.payments.amountMinor, method: s.payments.method, providerRef: s.payments.providerRef }).from(s.payments).where(and(eq(s.payments.orderId, orderId), eq(s.payments.toRefund, false)))
+    const p = { paid: booked.reduce((a, x) => a + x.amountMinor, 0), n: booked.length, card: booked.every((x) => x.method === 'card' && x.providerRef !== null) }
     expect(p).toEqual({ paid: 37500, n: 1, card: true })
     // £1,250.00 − £375.00 = £875.00 still owed (hand-worked); the screen agrees with the database.
     await page.locator('[data-test=money-paid]', { hasText: gbp(p.paid) }).waitFor({ timeout: 10_000 })
@@ -152,6 +159,7 @@ describe('quotes and deposits', () => {
       await owner.goto('/money')
       await owner.locator('[data-test=money-week-received]').waitFor({ timeout: 15_000 })
       // The ISO week (Monday start) of now in the workshop's zone, by PostgreSQL.
+      // Raw SQL on purpose: the week's takings reckoned by PostgreSQL's own ISO-week arithmetic, apart from the app's code.
       const { rows: [w] } = await e2e.db.pool.query(`select coalesce(sum(amount_minor), 0)::int as received,
           to_char(now() at time zone 'Europe/London', 'IYYY-"W"IW') as week from payments
         where amount_minor > 0 and not to_refund and date_trunc('week', received_at at time zone 'Europe/London') = date_trunc('week', now() at time zone 'Europe/London')`)
@@ -160,6 +168,7 @@ describe('quotes and deposits', () => {
       const [year, week] = (w.week as string).split('-')
       expect(await text(owner, '[data-test=money-this-week]')).toContain(`${week} ${year}`)
       // Owed: each open order's price (its latest quote's, else the order's own price in pounds) less what is paid, never below nothing.
+      // Raw SQL on purpose: what is owed reckoned in one SQL statement, apart from the app's code.
       const { rows: [owed] } = await e2e.db.pool.query(`select coalesce(sum(greatest(0, price - paid)), 0)::int as owed from (
           select coalesce((select q.price_minor from quotes q where q.order_id = o.id and q.status in ('accepted', 'sent', 'drafted') order by q.status = 'accepted' desc, q.id desc limit 1), o.price_quoted_minor) as price,
             coalesce((select sum(p.amount_minor) from payments p where p.order_id = o.id and not p.to_refund), 0) as paid
@@ -176,8 +185,8 @@ describe('quotes and deposits', () => {
       await rules.locator('[data-test=settings-no-metal]').click()
       await rules.locator('[data-test=settings-money-save]').click()
       await owner.getByText('Quote and deposit rules saved').waitFor()
-      const { rows: [ws] } = await e2e.db.pool.query(`select deposit_pct, quote_valid_days, no_metal_before_deposit from workshops`)
-      expect(ws).toEqual({ deposit_pct: 40, quote_valid_days: 21, no_metal_before_deposit: true })
+      const [ws] = await e2e.db.db.select({ depositPct: s.workshops.depositPct, quoteValidDays: s.workshops.quoteValidDays, noMetalBeforeDeposit: s.workshops.noMetalBeforeDeposit }).from(s.workshops)
+      expect(ws).toEqual({ depositPct: 40, quoteValidDays: 21, noMetalBeforeDeposit: true })
       await rules.scrollIntoViewIfNeeded()
       await screenshot(owner, 'payments-owner-settings', { fullPage: false })
     } finally {
@@ -205,9 +214,9 @@ describe('quotes and deposits', () => {
     const benchContext = await e2e.newContext()
     try {
       const bench = await signInPage(benchContext, 'bench')
-      const { rows: [b] } = await e2e.db.pool.query(`select id from job_bags where order_id = $1 order by id limit 1`, [orderId])
+      const [b] = await e2e.db.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId)).orderBy(asc(s.jobBags.id)).limit(1)
       expect(b, 'the order has a job bag').toBeTruthy()
-      await bench.goto(`/job-bags/${b.id}`)
+      await bench.goto(`/job-bags/${b!.id}`)
       await bench.locator('[data-test=bag-number]').waitFor({ timeout: 15_000 })
       expect(await bench.locator('[data-test=order-money]').count()).toBe(0)
       expect(await bench.locator('body').textContent()).not.toMatch(/£\d/)
@@ -217,7 +226,7 @@ describe('quotes and deposits', () => {
       const statuses = await bench.evaluate(async (id) => Promise.all([`/api/quotes`, `/api/orders/${id}/money`].map(async (u) => (await fetch(u)).status)), orderId)
       expect(statuses).toEqual([403, 403])
       // And the sales user sees the same bag with its money.
-      await page.goto(`/job-bags/${b.id}`)
+      await page.goto(`/job-bags/${b!.id}`)
       await page.locator('[data-test=money-deposit-state]', { hasText: 'deposit paid' }).waitFor({ timeout: 15_000 })
       expect(await text(page, '[data-test=money-owed]')).toBe('£875.00')
     } finally {
@@ -230,9 +239,9 @@ describe('quotes and deposits', () => {
     await page.locator('.el-segmented').getByText('All', { exact: true }).click()
     const row = page.locator('[data-test=quotes-table] .el-table__row', { hasText: quoteNumber })
     await row.waitFor()
-    const { rows: [q] } = await e2e.db.pool.query(`select status from quotes where number = $1`, [quoteNumber])
+    const [q] = await e2e.db.db.select({ status: s.quotes.status }).from(s.quotes).where(eq(s.quotes.number, quoteNumber))
     // Paying the deposit accepts the quote.
-    expect(q.status).toBe('accepted')
+    expect(q!.status).toBe('accepted')
     expect(await row.textContent()).toContain('Agreed')
     await row.locator('[data-test=quote-row-paid]', { hasText: '£375.00' }).waitFor()
     expect(((await row.locator('[data-test=quote-row-owed]').textContent()) ?? '').trim()).toBe('£875.00')
@@ -248,8 +257,8 @@ describe('quotes and deposits', () => {
     // Taken back, it asks for nothing any more.
     await drawer.locator('[data-test=quote-owed]', { hasText: '£0.00' }).waitFor()
     await drawer.locator('[data-test=quote-deposit-state]').waitFor({ state: 'detached' })
-    const { rows: [d] } = await e2e.db.pool.query(`select status from quotes where number = $1`, [draftNumber])
-    expect(d.status).toBe('withdrawn')
+    const [d] = await e2e.db.db.select({ status: s.quotes.status }).from(s.quotes).where(eq(s.quotes.number, draftNumber))
+    expect(d!.status).toBe('withdrawn')
     await screenshot(page, 'payments-quote-taken-back', { fullPage: false })
   })
 
@@ -264,11 +273,12 @@ describe('quotes and deposits', () => {
     await field(dialog, 'payment-note').fill('Paid at collection')
     await dialog.locator('[data-test=payment-save]').click()
     await page.locator('[data-test=money-owed]', { hasText: '£0.00' }).waitFor({ timeout: 15_000 })
-    const { rows } = await e2e.db.pool.query(`select p.method, p.purpose, p.amount_minor, u.role, u.name from payments p left join users u on u.id = p.recorded_by where p.order_id = $1 order by p.id`, [orderId])
-    expect(rows.map((r) => [r.method, r.purpose, r.amount_minor])).toEqual([['card', 'deposit', 37500], ['cash', 'balance', 87500]])
-    expect(rows[1].role).toBe('sales')
+    const rows = await e2e.db.db.select({ method: s.payments.method, purpose: s.payments.purpose, amountMinor: s.payments.amountMinor, role: s.users.role, name: s.users.name })
+      .from(s.payments).leftJoin(s.users, eq(s.users.id, s.payments.recordedBy)).where(eq(s.payments.orderId, orderId)).orderBy(asc(s.payments.id))
+    expect(rows.map((r) => [r.method, r.purpose, r.amountMinor])).toEqual([['card', 'deposit', 37500], ['cash', 'balance', 87500]])
+    expect(rows[1]!.role).toBe('sales')
     expect(await text(page, '[data-test=money-paid]')).toBe('£1,250.00')
-    expect(await text(page, '[data-test=money-payments]')).toContain(rows[1].name)
+    expect(await text(page, '[data-test=money-payments]')).toContain(rows[1]!.name!)
     await screenshot(page, 'payments-order-paid-in-full', { fullPage: false })
   })
 })

@@ -4,6 +4,8 @@ import type { Page } from 'playwright-core'
 import { rmSync } from 'node:fs'
 import { basename, resolve } from 'node:path'
 import { PNG } from 'pngjs'
+import { and, eq, isNull } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
@@ -11,8 +13,8 @@ let page: Page
 beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'sales') })
 afterAll(async () => {
   // The server stores uploads in the default directory; remove what this test added.
-  const { rows } = await e2e.db.pool.query(`select stored_name, thumbnail_name from files`).catch(() => ({ rows: [] as { stored_name: string; thumbnail_name: string | null }[] }))
-  for (const r of rows) for (const n of [r.stored_name, r.thumbnail_name]) if (n) rmSync(resolve('.data/uploads', basename(n)), { force: true })
+  const rows = await e2e.db.db.select({ storedName: s.files.storedName, thumbnailName: s.files.thumbnailName }).from(s.files).catch(() => [] as { storedName: string; thumbnailName: string | null }[])
+  for (const r of rows) for (const n of [r.storedName, r.thumbnailName]) if (n) rmSync(resolve('.data/uploads', basename(n)), { force: true })
 })
 
 /** An Element Plus field's input, whether the data-test attribute lands on the input itself or on its wrapper. */
@@ -122,10 +124,10 @@ describe('promise check as sales', () => {
     const text = (await done.textContent()) ?? ''
     orderNumber = /Order (\S+) taken/.exec(text)?.[1] ?? ''
     expect(orderNumber).toMatch(/^MG\d\d-\d{4}$/)
-    const { rows: [o] } = await e2e.db.pool.query(`select promised_date::text as d, price_quoted_minor from orders where number = $1`, [orderNumber])
+    const o = (await e2e.db.db.select({ d: s.orders.promisedDate, priceQuotedMinor: s.orders.priceQuotedMinor }).from(s.orders).where(eq(s.orders.number, orderNumber)))[0]!
     expect(o.d).toMatch(/^\d{4}-\d{2}-\d{2}$/)
     // "780" typed in pounds is 78,000 pence (GBP has 2 decimals, ISO 4217), stored whole.
-    expect(o.price_quoted_minor).toBe(78_000)
+    expect(o.priceQuotedMinor).toBe(78_000)
     // The picker shows the day as "D MMM YYYY" (e.g. "17 Dec 2026"); read back as an ISO date it is the stored date, and the one
     // the check suggests: P80 when it is later than the fixed-plan date, else the fixed-plan date (computed here from the answer).
     const suggested = lastAnswer!.range && lastAnswer!.range.p80.date > lastAnswer!.fixedPlan.date ? lastAnswer!.range.p80.date : lastAnswer!.fixedPlan.date
@@ -136,6 +138,7 @@ describe('promise check as sales', () => {
     expect(screenDay(title![1]!)).toBe(o.d)
     // The message says whether the steps are booked, as the database has it, and the booked days are the workshop's calendar days
     // (Europe/London, by PostgreSQL) of the first planned start and the last planned end.
+    // Raw SQL on purpose: the booked days in London time by PostgreSQL's own time-zone conversion, apart from the app's code.
     const { rows: [b] } = await e2e.db.pool.query(`select bool_and(op.planned_start is not null) as booked,
         (min(op.planned_start) at time zone 'Europe/London')::date::text as first, (max(op.planned_end) at time zone 'Europe/London')::date::text as last
       from operations op join job_bags j on j.id = op.job_bag_id join orders r on r.id = j.order_id where r.number = $1`, [orderNumber])
@@ -155,11 +158,12 @@ describe('promise check as sales', () => {
     await row.first().click()
     await page.locator('.el-drawer').getByText('Plain text').click()
     const text = (await page.locator('[data-test=outbox-text]').textContent()) ?? ''
-    const { rows: [o] } = await e2e.db.pool.query(`select promised_date::text as d from orders where number = $1`, [orderNumber])
-    expect(text).toContain(o.d)
+    const o = (await e2e.db.db.select({ d: s.orders.promisedDate }).from(s.orders).where(eq(s.orders.number, orderNumber)))[0]!
+    expect(text).toContain(o.d!)
     // Only what is true: booked with dates, or the dates still to be confirmed — as the operations say.
-    const { rows: [b] } = await e2e.db.pool.query(`select bool_and(op.planned_start is not null) as booked from operations op join job_bags j on j.id = op.job_bag_id join orders r on r.id = j.order_id where r.number = $1`, [orderNumber])
-    expect(text).toMatch(b.booked ? /booked into our workshop plan/ : /we will confirm the dates/)
+    const unbooked = await e2e.db.db.select({ id: s.operations.id }).from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .where(and(eq(s.orders.number, orderNumber), isNull(s.operations.plannedStart)))
+    expect(text).toMatch(unbooked.length === 0 ? /booked into our workshop plan/ : /we will confirm the dates/)
     expect(text).not.toMatch(/We have planned it/)
     // Price with its currency (Intl en-GB: 780 GBP is "£780.00"), and the workshop's invented demo address.
     expect(text).toContain('£780.00')
@@ -169,7 +173,7 @@ describe('promise check as sales', () => {
   })
 
   it('when sales adds a sketch to the new order, then the gallery shows its thumbnail', async () => {
-    const { rows: [o] } = await e2e.db.pool.query(`select id from orders where number = $1`, [orderNumber])
+    const o = (await e2e.db.db.select({ id: s.orders.id }).from(s.orders).where(eq(s.orders.number, orderNumber)))[0]!
     await page.goto(`/orders/${o.id}`)
     const gallery = page.locator('[data-test=file-gallery]')
     await gallery.waitFor()

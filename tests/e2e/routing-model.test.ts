@@ -2,9 +2,14 @@
 // stone role factors are shown, saved and read back.
 import { beforeAll, describe, expect, it } from 'vitest'
 import type { Locator, Page } from 'playwright-core'
+import { and, eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
+/** A routing's step as stored, with the routing's learning rate. */
+const stepOf = (routing: string, key: string) => e2e.db.db.select({ learningRate: s.routingTemplates.learningRate, perMmMinutes: s.templateSteps.perMmMinutes, roleFactors: s.templateSteps.roleFactors })
+  .from(s.routingTemplates).innerJoin(s.templateSteps, eq(s.templateSteps.templateId, s.routingTemplates.id)).where(and(eq(s.routingTemplates.name, routing), eq(s.templateSteps.key, key)))
 let page: Page
 beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
 
@@ -63,10 +68,9 @@ describe('the step model in the routing editor', () => {
     await page.locator('.el-drawer').waitFor({ state: 'hidden' })
     await row(page, CUFF).locator('[data-test=routing-learning]', { hasText: 'each doubling at 90 % per piece' }).waitFor()
 
-    const { rows } = await e2e.db.pool.query(
-      `select t.learning_rate, s.per_mm_minutes from routing_templates t join template_steps s on s.template_id = t.id where t.name = $1 and s.key = 'polish'`, [CUFF])
-    expect(rows[0].learning_rate).toBeCloseTo(0.9, 6)
-    expect(rows[0].per_mm_minutes).toBeCloseTo(0.15, 6)
+    const [stored] = await stepOf(CUFF, 'polish')
+    expect(stored!.learningRate).toBeCloseTo(0.9, 6)
+    expect(stored!.perMmMinutes).toBeCloseTo(0.15, 6)
 
     // Read back in a fresh page: the editor shows what was stored.
     await page.reload()
@@ -82,8 +86,8 @@ describe('the step model in the routing editor', () => {
     await page.locator('[data-test=routing-save]').click()
     await page.locator('.el-drawer').waitFor({ state: 'hidden' })
     await row(page, CUFF).locator('[data-test=routing-learning]').waitFor({ state: 'detached' })
-    const { rows } = await e2e.db.pool.query(`select learning_rate from routing_templates where name = $1`, [CUFF])
-    expect(rows[0].learning_rate).toBeNull()
+    const [stored] = await e2e.db.db.select({ learningRate: s.routingTemplates.learningRate }).from(s.routingTemplates).where(eq(s.routingTemplates.name, CUFF))
+    expect(stored!.learningRate).toBeNull()
   })
 
   it('when the owner sets centre stones of the halo ring at ×4, then the step shows each role’s minutes a stone and saves only that factor', async () => {
@@ -103,7 +107,7 @@ describe('the step model in the routing editor', () => {
     await screenshot(page, 'routing-role-factors', { fullPage: false })
     await page.locator('[data-test=routing-save]').click()
     await page.locator('.el-drawer').waitFor({ state: 'hidden' })
-    const { rows } = await e2e.db.pool.query(`select s.role_factors from routing_templates t join template_steps s on s.template_id = t.id where t.name = 'Halo engagement ring' and s.key = 'set'`)
-    expect(rows[0].role_factors).toEqual({ centre: 4 })
+    const [stored] = await stepOf('Halo engagement ring', 'set')
+    expect(stored!.roleFactors).toEqual({ centre: 4 })
   })
 })

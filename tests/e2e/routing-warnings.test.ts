@@ -1,6 +1,8 @@
 // The routing editor in Chromium: a step freed from the casting is warned about while editing, the list marks the saved routing, and putting the link back clears it.
 import { beforeAll, describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
+import { and, count, eq, notInArray } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
@@ -59,8 +61,9 @@ describe('routing warnings in the editor', () => {
 
 describe('customers’ open orders', () => {
   it('when the customers open, then each open-order count equals the customer’s orders not collected or cancelled in the database', async () => {
-    const { rows } = await e2e.db.pool.query(`select c.name, count(o.id)::int as n from customers c left join orders o on o.customer_id = c.id and o.status not in ('collected', 'cancelled') group by c.name`)
-    const want = Object.fromEntries(rows.map((r: { name: string; n: number }) => [r.name, r.n]))
+    const rows = await e2e.db.db.select({ name: s.customers.name, n: count(s.orders.id) }).from(s.customers)
+      .leftJoin(s.orders, and(eq(s.orders.customerId, s.customers.id), notInArray(s.orders.status, ['collected', 'cancelled']))).groupBy(s.customers.name)
+    const want = Object.fromEntries(rows.map((r) => [r.name, r.n]))
     expect(Object.values(want).some((n) => n > 0)).toBe(true)
     await page.goto('/customers')
     await page.locator('.el-table__row').first().waitFor()

@@ -2,6 +2,8 @@
 import { networkInterfaces } from 'node:os'
 import { beforeAll, describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
+import { eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
@@ -25,7 +27,7 @@ describe('workshop contact in the settings', () => {
     await field('settings-phone').fill('0117 496 0999')
     await page.locator('[data-test=settings-save]').click()
     await page.locator('.el-message', { hasText: 'Workshop details saved' }).waitFor()
-    const { rows: [w] } = await e2e.db.pool.query(`select phone, currency, address from workshops where id = 1`)
+    const [w] = await e2e.db.db.select({ phone: s.workshops.phone, currency: s.workshops.currency, address: s.workshops.address }).from(s.workshops).where(eq(s.workshops.id, 1))
     expect(w).toEqual({ phone: '0117 496 0999', currency: 'GBP', address: '14 Wrenfield Street, Bristol BS1 4QX' })
     await screenshot(page, 'settings-workshop-contact', { fullPage: false })
   })
@@ -49,8 +51,8 @@ describe('workshop contact in the settings', () => {
     await field('settings-public-url').fill('http://192.0.2.44:8080/')
     await page.locator('[data-test=settings-save]').click()
     await page.locator('.el-message', { hasText: 'Workshop details saved' }).waitFor()
-    const { rows: [w] } = await e2e.db.pool.query(`select public_url from workshops where id = 1`)
-    expect(w.public_url).toBe('http://192.0.2.44:8080')
+    const [w] = await e2e.db.db.select({ publicUrl: s.workshops.publicUrl }).from(s.workshops).where(eq(s.workshops.id, 1))
+    expect(w!.publicUrl).toBe('http://192.0.2.44:8080')
     await page.reload()
     await expect.poll(() => field('settings-public-url').inputValue(), { timeout: 10_000 }).toBe('http://192.0.2.44:8080')
     await screenshot(page, 'settings-workshop-public-url', { fullPage: false })

@@ -1,12 +1,14 @@
 // Who hears what over Socket.IO: no connection without a session; bench users hear their workshop's work but not the
 // planners' drafts and progress; another workshop hears nothing of this one, whatever it emits; and a connection
 // stops hearing anything once its session ends or its user is switched off.
-import { sql } from 'drizzle-orm'
+import { and, asc, eq, inArray, isNotNull, sql } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { io as connect, type Socket } from 'socket.io-client'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_PASSWORD } from '../../server/db/seed'
 import { hashPassword } from '../../server/services/users'
 import { DEMO_EMAIL, startTestServer } from '../setup/app'
+import { addWorkshop, unplanOpenSteps } from '../setup/fixtures'
 
 type Srv = Awaited<ReturnType<typeof startTestServer>>
 let srv: Srv
@@ -64,8 +66,9 @@ const until = (sock: Socket, event: string, timeoutMs = 20_000) =>
 
 /** A step of the demo data's live plan the manager may pin and unpin (plan:changed to the whole workshop). */
 async function plannedOperation(): Promise<{ id: number; version: number }> {
-  const r = await srv.db.execute(sql`select id, version from operations where status in ('pending', 'ready') and planned_start is not null order by id limit 1`)
-  return r.rows[0] as { id: number; version: number }
+  const o = s.operations
+  const [op] = await srv.db.select({ id: o.id, version: o.version }).from(o).where(and(inArray(o.status, ['pending', 'ready']), isNotNull(o.plannedStart))).orderBy(asc(o.id)).limit(1)
+  return op!
 }
 
 let pinVersion: number | null = null
@@ -95,7 +98,7 @@ describe('one workshop, several roles', () => {
     for (const ev of ['join', 'subscribe', 'room:join', 'workshop:join']) b.sock.emit(ev as any, 'workshop:1:planners')
 
     // The planner offers a draft only when it beats the live plan: empty the live plan's bars that are not pinned.
-    await srv.db.execute(sql`update operations set planned_start = null, planned_end = null, planned_bench_id = null, planned_person_id = null where status not in ('running', 'done', 'skipped') and not pinned`)
+    await unplanOpenSteps(srv.db)
     const drafted = until(m.sock, 'plan:drafted')
     const run = await api(manager, 'POST', '/plans/runs', { timeLimitSeconds: 1 })
     expect(run.status).toBe(202)
@@ -109,7 +112,9 @@ describe('one workshop, several roles', () => {
     expect(await changed).toMatchObject({ operationId: opId, seq: expect.any(Number) })
 
     // A step change through the job bag API reaches the bench as operation:changed.
-    const { rows: [step] } = (await srv.db.execute(sql`select o.id, o.version, o.job_bag_id from operations o join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id where ord.status = 'open' and o.status = 'pending' order by o.id limit 1`)) as any
+    const o = s.operations
+    const step = (await srv.db.select({ id: o.id, version: o.version, job_bag_id: o.jobBagId }).from(o).innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending'))).orderBy(asc(o.id)).limit(1))[0]!
     const opChanged = until(b.sock, 'operation:changed')
     const patch = await api(manager, 'PATCH', `/job-bags/${step.job_bag_id}/operations/${step.id}`, { name: 'Polish again, gently', version: step.version })
     expect(patch.status).toBe(200)
@@ -131,11 +136,12 @@ describe('one workshop, several roles', () => {
 
 describe('a second workshop', () => {
   it('when a user of another workshop is connected, then they never hear the first workshop\'s events, live, on catch-up or by asking for its rooms', async () => {
-    const week = JSON.stringify([{ weekday: 1, start: '09:00', end: '17:00' }])
-    const { rows: [w] } = (await srv.db.execute(sql`insert into workshops (name, time_zone, week_pattern) values ('Harrowgate Lane Bench', 'Europe/London', ${week}::jsonb) returning id`)) as any
-    const hash = await hashPassword('other-bench-password')
-    await srv.db.execute(sql`insert into users (workshop_id, email, name, role, password_hash) values (${w.id}, 'maker@harrowgate.test', 'Other Maker', 'bench', ${hash}), (${w.id}, 'boss@harrowgate.test', 'Other Boss', 'owner', ${hash})`)
-    const { rows: [first] } = (await srv.db.execute(sql`select id from workshops where name = 'Wrenfield Street Workshop'`)) as any
+    const passwordHash = await hashPassword('other-bench-password')
+    await addWorkshop(srv.db, { name: 'Harrowgate Lane Bench', users: [
+      { email: 'maker@harrowgate.test', name: 'Other Maker', role: 'bench', passwordHash },
+      { email: 'boss@harrowgate.test', name: 'Other Boss', role: 'owner', passwordHash },
+    ] })
+    const first = (await srv.db.select({ id: s.workshops.id }).from(s.workshops).where(eq(s.workshops.name, 'Wrenfield Street Workshop')))[0]!
 
     const manager = await signIn(DEMO_EMAIL.manager)
     const sales = await listen(await signIn(DEMO_EMAIL.sales))
@@ -207,10 +213,11 @@ describe('when a session ends', () => {
   })
 
   it('when a session disappears from the store without a request here (expiry), then the sweep closes its connection', async () => {
-    const s = await signIn(DEMO_EMAIL.sales)
-    const c = await listen(s)
+    const session = await signIn(DEMO_EMAIL.sales)
+    const c = await listen(session)
     const closed = new Promise<string>((res) => c.sock.on('disconnect', (reason) => res(reason)))
-    await srv.db.execute(sql`delete from user_sessions where (sess->'passport'->>'user')::int = ${s.userId}`)
+    // Raw SQL on purpose: the session table belongs to connect-pg-simple, not to our schema.
+    await srv.db.execute(sql`delete from user_sessions where (sess->'passport'->>'user')::int = ${session.userId}`)
     expect(await closed).toBe('io server disconnect')
   }, 20_000)
 })

@@ -1,6 +1,8 @@
 // The master-data screens in Chromium: each opens with the demo workshop's data, forms show reasons next to fields, saving works.
 import { beforeAll, describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
+import { eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
@@ -138,13 +140,13 @@ describe('master-data screens as the owner', () => {
 
   it('when an operation kind is renamed in its dialog, then the new name is stored with the next version and listed', async () => {
     await page.goto('/settings')
-    const [before] = (await e2e.db.pool.query(`select id, version from operation_kinds where name = 'Etching & oxidising'`)).rows
+    const before = (await e2e.db.db.select({ id: s.operationKinds.id, version: s.operationKinds.version }).from(s.operationKinds).where(eq(s.operationKinds.name, 'Etching & oxidising')))[0]!
     await page.getByText('Etching & oxidising').click()
     const dialog = page.locator('.el-dialog', { hasText: 'Operation kind: Etching & oxidising' })
     await dialog.locator('.el-form-item', { hasText: 'Name' }).first().locator('input').fill('Etching and oxidising')
     await dialog.getByRole('button', { name: 'Save' }).click()
     await page.locator('.el-table').getByText('Etching and oxidising').waitFor()
-    const [after] = (await e2e.db.pool.query(`select name, version from operation_kinds where id = $1`, [before.id])).rows
+    const [after] = await e2e.db.db.select({ name: s.operationKinds.name, version: s.operationKinds.version }).from(s.operationKinds).where(eq(s.operationKinds.id, before.id))
     expect(after).toEqual({ name: 'Etching and oxidising', version: before.version + 1 })
   })
 })

@@ -4,7 +4,9 @@
 import { randomBytes } from 'node:crypto'
 import pg from 'pg'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { createDb } from '../../server/db/client'
+import { countDistinct, eq, inArray, max } from 'drizzle-orm'
+import { createDb, type Db } from '../../server/db/client'
+import * as s from '../../server/db/schema/index'
 import { runMigrations } from '../../server/db/migrate'
 import { seedDemo } from '../../server/db/seed'
 import { createTestDb, type TestDb } from '../setup/db'
@@ -45,23 +47,25 @@ function outsideWorkingTime(cal: Calendar, personId: number | null, start: Date,
 }
 const fmt = (m: number) => `${String(Math.floor(m / 60)).padStart(2, '0')}:${String(Math.floor(m % 60)).padStart(2, '0')}`
 
-async function calendarOf(pool: pg.Pool): Promise<Calendar> {
-  const [w] = (await pool.query(`select id, time_zone, week_pattern from workshops`)).rows
-  const closures = (await pool.query(`select starts_on::text, ends_on::text from closures where workshop_id = $1`, [w.id])).rows
-  const people = (await pool.query(`select id, name, week_pattern from people where workshop_id = $1`, [w.id])).rows
-  const leave = (await pool.query(`select person_id, starts_on::text, ends_on::text from leave`)).rows
+async function calendarOf(db: Db): Promise<Calendar> {
+  const w = (await db.select({ id: s.workshops.id, timeZone: s.workshops.timeZone, weekPattern: s.workshops.weekPattern }).from(s.workshops))[0]!
+  const closures = await db.select({ startsOn: s.closures.startsOn, endsOn: s.closures.endsOn }).from(s.closures).where(eq(s.closures.workshopId, w.id))
+  const people = await db.select({ id: s.people.id, name: s.people.name, weekPattern: s.people.weekPattern }).from(s.people).where(eq(s.people.workshopId, w.id))
+  const leave = await db.select({ personId: s.leave.personId, startsOn: s.leave.startsOn, endsOn: s.leave.endsOn }).from(s.leave)
   return {
-    zone: w.time_zone, workshop: w.week_pattern,
-    closures: closures.map((c) => ({ startsOn: c.starts_on, endsOn: c.ends_on })),
-    people: new Map(people.map((p) => [p.id, { name: p.name, pattern: p.week_pattern, leave: leave.filter((l) => l.person_id === p.id).map((l) => ({ startsOn: l.starts_on, endsOn: l.ends_on })) }])),
+    zone: w.timeZone, workshop: w.weekPattern as Span[],
+    closures,
+    people: new Map(people.map((p) => [p.id, { name: p.name, pattern: p.weekPattern as Span[] | null, leave: leave.filter((l) => l.personId === p.id).map((l) => ({ startsOn: l.startsOn, endsOn: l.endsOn })) }])),
   }
 }
 
 /** Every contradiction between the seeded history and its calendar or `now`, in words (empty when there is none). */
-async function contradictions(pool: pg.Pool, now: Date): Promise<{ problems: string[]; records: number; cal: Calendar; recordDays: string[] }> {
-  const cal = await calendarOf(pool)
+async function contradictions(db: Db, now: Date): Promise<{ problems: string[]; records: number; cal: Calendar; recordDays: string[] }> {
+  const cal = await calendarOf(db)
   const problems: string[] = []
-  const records = (await pool.query(`select id, operation_id, person_id, started_at, ended_at from time_records order by person_id, started_at`)).rows
+  const tr = s.timeRecords
+  const records = (await db.select({ id: tr.id, operationId: tr.operationId, personId: tr.personId, startedAt: tr.startedAt, endedAt: tr.endedAt }).from(tr).orderBy(tr.personId, tr.startedAt))
+    .map((r) => ({ id: r.id, operation_id: r.operationId, person_id: r.personId, started_at: new Date(r.startedAt), ended_at: r.endedAt === null ? null : new Date(r.endedAt) }))
   for (const r of records) {
     if (!r.ended_at) { problems.push(`record ${r.id} is still running`); continue }
     const why = outsideWorkingTime(cal, r.person_id, r.started_at, r.ended_at)
@@ -70,9 +74,13 @@ async function contradictions(pool: pg.Pool, now: Date): Promise<{ problems: str
   }
   for (let i = 1; i < records.length; i++) {
     const [p, r] = [records[i - 1]!, records[i]!]
-    if (p.person_id === r.person_id && r.started_at < p.ended_at) problems.push(`${cal.people.get(r.person_id)!.name} is at two jobs at once (records ${p.id} and ${r.id})`)
+    if (p.person_id === r.person_id && p.ended_at && r.started_at < p.ended_at) problems.push(`${cal.people.get(r.person_id)!.name} is at two jobs at once (records ${p.id} and ${r.id})`)
   }
-  const ops = (await pool.query(`select o.id, o.status, o.lead_days, o.finished_at, (select max(t.ended_at) from time_records t where t.operation_id = o.id) as last_record from operations o`)).rows
+  const lastRecord = new Map<number, Date>()
+  for (const r of records) if (r.ended_at && !(lastRecord.get(r.operation_id)! >= r.ended_at)) lastRecord.set(r.operation_id, r.ended_at)
+  const ops = (await db.select({ id: s.operations.id, orderId: s.jobBags.orderId, status: s.operations.status, leadDays: s.operations.leadDays, finishedAt: s.operations.finishedAt })
+    .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)))
+    .map((o) => ({ id: o.id, order_id: o.orderId, status: o.status, lead_days: o.leadDays, finished_at: o.finishedAt === null ? null : new Date(o.finishedAt), last_record: lastRecord.get(o.id) ?? null }))
   for (const o of ops) {
     if (o.status === 'done' && !o.finished_at) problems.push(`operation ${o.id} is done but has no finishing time`)
     if (o.finished_at && o.finished_at > now) problems.push(`operation ${o.id} finished ${o.finished_at.toISOString()}, after now`)
@@ -84,15 +92,18 @@ async function contradictions(pool: pg.Pool, now: Date): Promise<{ problems: str
       if (!open) problems.push(`outside work ${o.id} came back ${at.day} (weekday ${at.weekday}) ${fmt(at.minute)}, when the workshop is not open`)
     }
   }
-  const orders = (await pool.query(`select o.number, o.status, o.created_at, o.updated_at, (select bool_and(x.status in ('done', 'skipped')) from operations x join job_bags b on b.id = x.job_bag_id where b.order_id = o.id) as all_done,
-    (select max(x.finished_at) from operations x join job_bags b on b.id = x.job_bag_id where b.order_id = o.id) as finished from orders o`)).rows
+  const orders = (await db.select({ id: s.orders.id, number: s.orders.number, status: s.orders.status, createdAt: s.orders.createdAt, updatedAt: s.orders.updatedAt }).from(s.orders)).map((o) => {
+    const mine = ops.filter((x) => x.order_id === o.id)
+    const finished = mine.reduce<Date | null>((m, x) => (x.finished_at && (!m || x.finished_at > m) ? x.finished_at : m), null)
+    return { number: o.number, status: o.status, created_at: o.createdAt, updated_at: o.updatedAt, all_done: mine.length ? mine.every((x) => x.status === 'done' || x.status === 'skipped') : null, finished }
+  })
   for (const o of orders) {
     if (o.created_at > now) problems.push(`order ${o.number} was taken after now`)
     if (o.updated_at > now) problems.push(`order ${o.number} was last changed after now`)
     if (o.status === 'collected') {
       if (!o.all_done) problems.push(`order ${o.number} is collected with work not done`)
       if (!o.finished || o.finished > now) problems.push(`order ${o.number} is collected but finished ${o.finished?.toISOString()}`)
-      if (o.updated_at < o.finished) problems.push(`order ${o.number} was collected before its last step was done`)
+      if (o.finished && o.updated_at < o.finished) problems.push(`order ${o.number} was collected before its last step was done`)
     }
   }
   const recordDays = [...new Set(records.map((r) => local(r.started_at, cal.zone).day))].sort()
@@ -123,8 +134,8 @@ describe('the seeded demo in the template database', () => {
 
   it('when its history is read back, then every time record is working time for its person, nobody is at two jobs at once and nothing is finished after now', async () => {
     // The seed ran (with the real clock) in the transaction that created the workshop, so the workshop's creation is not before the seed's now.
-    const [{ created_at: seededAt }] = (await t.pool.query(`select created_at from workshops`)).rows
-    const { problems, records, cal, recordDays } = await contradictions(t.pool, seededAt)
+    const seededAt = (await t.db.select({ createdAt: s.workshops.createdAt }).from(s.workshops))[0]!.createdAt
+    const { problems, records, cal, recordDays } = await contradictions(t.db, seededAt)
     expect(problems).toEqual([])
     expect(records).toBeGreaterThanOrEqual(300)
     // The check has something to bite on: a past closure and someone's past leave fall inside the history, and people with their own pattern worked in it.
@@ -132,7 +143,7 @@ describe('the seeded demo in the template database', () => {
     expect(cal.closures.filter(within).length).toBeGreaterThan(0)
     expect([...cal.people.values()].flatMap((p) => p.leave).filter(within).length).toBeGreaterThan(0)
     const own = [...cal.people.entries()].filter(([, p]) => p.pattern).map(([id]) => id)
-    expect((await t.pool.query(`select count(distinct person_id)::int as n from time_records where person_id = any($1)`, [own])).rows[0].n).toBe(own.length)
+    expect((await t.db.select({ n: countDistinct(s.timeRecords.personId) }).from(s.timeRecords).where(inArray(s.timeRecords.personId, own)))[0]!.n).toBe(own.length)
   })
 })
 
@@ -143,6 +154,7 @@ describe('the demo seeded with a clock it is given', () => {
   const name = `h_${randomBytes(6).toString('hex')}`
   const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/postgres` })
   let pool: pg.Pool
+  let db: Db
   beforeAll(async () => {
     const c = admin()
     await c.connect()
@@ -150,6 +162,7 @@ describe('the demo seeded with a clock it is given', () => {
     await c.end()
     const made = createDb(`postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/${name}`, 2)
     pool = made.pool
+    db = made.db
     await runMigrations(made.db)
     expect(await seedDemo(made.db, { now })).toBe(true)
   }, 180_000)
@@ -162,11 +175,11 @@ describe('the demo seeded with a clock it is given', () => {
   })
 
   it('when its history is read back, then it keeps to the calendar across the clock change and ends before the given now', async () => {
-    const { problems, records, recordDays } = await contradictions(pool, now)
+    const { problems, records, recordDays } = await contradictions(db, now)
     expect(problems).toEqual([])
     expect(records).toBeGreaterThanOrEqual(300)
     expect(recordDays[0]! < '2026-03-29' && recordDays.at(-1)! > '2026-03-29').toBe(true)
-    const last = (await pool.query(`select max(ended_at) as m from time_records`)).rows[0].m as Date
+    const last = new Date((await db.select({ m: max(s.timeRecords.endedAt) }).from(s.timeRecords))[0]!.m!)
     expect(last <= new Date('2026-04-10T16:00:00Z')).toBe(true)
   })
 })

@@ -9,6 +9,9 @@ import { startServer } from '../../server/index'
 import { DEMO_PASSWORD } from '../../server/db/seed'
 import { DEMO_EMAIL } from './app'
 import { createTestDb, type TestDb } from './db'
+import { eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
+import { finishPredecessors } from './fixtures'
 
 export { DEMO_EMAIL, DEMO_PASSWORD }
 
@@ -94,20 +97,8 @@ export function useE2E(o: { env?: Record<string, string> | (() => Record<string,
 
 /** Makes a step ready straight in the test database: every step it follows (and theirs) is marked done yesterday. */
 export async function makeStepReady(e2e: E2E, operationId: number) {
-  const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
-  const [op] = await q('select job_bag_id from operations where id = $1', [operationId])
-  const ops = await q('select id, key, after from operations where job_bag_id = $1', [op.job_bag_id])
-  const byKey = new Map(ops.map((o) => [o.key, o]))
-  const seen = new Set<number>()
-  const stack = [...ops.find((o) => o.id === operationId).after]
-  while (stack.length) {
-    const p = byKey.get(stack.pop())
-    if (!p || seen.has(p.id)) continue
-    seen.add(p.id)
-    stack.push(...p.after)
-  }
-  await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where id = any($1::int[])`, [[...seen]])
-  await q(`update operations set status = 'ready' where id = $1`, [operationId])
+  await finishPredecessors(e2e.db.db, operationId)
+  await e2e.db.db.update(s.operations).set({ status: 'ready' }).where(eq(s.operations.id, operationId))
 }
 
 /** Where a bar of the plan board is drawn, or null when it is not wholly inside the visible part of the timeline. */

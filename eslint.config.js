@@ -24,7 +24,10 @@ export default defineConfig(
       // TypeScript checks names itself; typescript-eslint advises switching this rule off for TypeScript code.
       'no-undef': 'off',
       // A leading underscore marks a value left out on purpose (e.g. `const { id: _id, ...rest } = row`).
-      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_', destructuredArrayIgnorePattern: '^_', ignoreRestSiblings: true }],
+      '@typescript-eslint/no-unused-vars': [
+        'error',
+        { argsIgnorePattern: '^_', varsIgnorePattern: '^_', destructuredArrayIgnorePattern: '^_', ignoreRestSiblings: true },
+      ],
     },
   },
   {

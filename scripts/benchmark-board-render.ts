@@ -20,7 +20,9 @@ await signInWith(page, 'manager@wrenfield.test', DEMO_PASSWORD)
 await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'))
 const bars = () => page.locator('.vis-item.vis-range').count()
 async function settle(t0: number) {
-  let last = -1, n = await bars(), first = n > 0 ? performance.now() - t0 : NaN
+  let last = -1,
+    n = await bars(),
+    first = n > 0 ? performance.now() - t0 : NaN
   while (n !== last) {
     await page.waitForTimeout(300)
     last = n

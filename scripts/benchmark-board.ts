@@ -30,9 +30,22 @@ console.log(`Board window ${from.format('YYYY-MM-DD')} … ${to.format('YYYY-MM-
 const results: Record<string, unknown>[] = []
 for (const connections of [10, 50]) {
   // The load comes from a worker thread, so the server's event loop is not also driving the load.
-  const res = await autocannon({ url: server.url + path, connections, duration: 10, workers: 1, headers: { cookie: manager.cookie, 'accept-encoding': 'gzip' } })
+  const res = await autocannon({
+    url: server.url + path,
+    connections,
+    duration: 10,
+    workers: 1,
+    headers: { cookie: manager.cookie, 'accept-encoding': 'gzip' },
+  })
   // autocannon reports p97.5, not p95; p95 is at most that.
-  const row = { connections, p50: res.latency.p50, p97_5: res.latency.p97_5, p99: res.latency.p99, reqPerSec: res.requests.average, errors: res.errors + res.non2xx + res.timeouts }
+  const row = {
+    connections,
+    p50: res.latency.p50,
+    p97_5: res.latency.p97_5,
+    p99: res.latency.p99,
+    reqPerSec: res.requests.average,
+    errors: res.errors + res.non2xx + res.timeouts,
+  }
   results.push(row)
 }
 console.log('\nGET /api/board (four weeks, ~1,200 bars), autocannon 10 s per row')
@@ -42,13 +55,21 @@ console.table(results)
 const sock = connect(server.url, { extraHeaders: { cookie: sales.cookie }, transports: ['websocket'] })
 await new Promise<void>((res) => sock.on('connect', () => res()))
 const { db: db2, pool: pool2 } = createDb(url, 2)
-const [op] = await db2.select().from(s.operations).where(and(eq(s.operations.status, 'pending'), sql`planned_start is not null`)).limit(1)
+const [op] = await db2
+  .select()
+  .from(s.operations)
+  .where(and(eq(s.operations.status, 'pending'), sql`planned_start is not null`))
+  .limit(1)
 let version = op!.version
 const lat: number[] = []
 for (let k = 0; k < 40; k++) {
   const got = new Promise<number>((res) => sock.once('plan:changed', () => res(performance.now())))
   const t = performance.now()
-  const r = await fetch(`${server.url}/api/board/operations/${op!.id}`, { method: 'PATCH', headers: { 'content-type': 'application/json', cookie: manager.cookie, 'x-csrf-token': manager.csrf }, body: JSON.stringify({ pinned: k % 2 === 0, version }) })
+  const r = await fetch(`${server.url}/api/board/operations/${op!.id}`, {
+    method: 'PATCH',
+    headers: { 'content-type': 'application/json', cookie: manager.cookie, 'x-csrf-token': manager.csrf },
+    body: JSON.stringify({ pinned: k % 2 === 0, version }),
+  })
   const j = (await r.json()) as { version: number }
   version = j.version
   lat.push((await got) - t)

@@ -8,24 +8,49 @@ import { DEMO_PASSWORD } from '../server/db/seed'
 import { startServer } from '../server/index'
 import { scratchDatabase } from './scratch-db'
 
-export interface HttpSession { cookie: string; csrf: string; userId: number }
+export interface HttpSession {
+  cookie: string
+  csrf: string
+  userId: number
+}
 
 export async function benchServer(dbName: string, o: { clientDir?: string } = {}) {
   const { url, stop } = await scratchDatabase(dbName)
-  const server = await startServer(loadConfig({ DATABASE_URL: url, PORT: '0', SESSION_SECRET: 'bench-secret-bench-secret', NODE_ENV: 'production', LOGIN_ATTEMPTS_PER_15_MIN: '100000', ...(o.clientDir ? { CLIENT_DIR: o.clientDir } : {}) }))
+  const server = await startServer(
+    loadConfig({
+      DATABASE_URL: url,
+      PORT: '0',
+      SESSION_SECRET: 'bench-secret-bench-secret',
+      NODE_ENV: 'production',
+      LOGIN_ATTEMPTS_PER_15_MIN: '100000',
+      ...(o.clientDir ? { CLIENT_DIR: o.clientDir } : {}),
+    }),
+  )
   const signIn = async (email: string): Promise<HttpSession> => {
     let cookie = ''
-    const keep = (r: Response) => { const c = r.headers.get('set-cookie'); if (c) cookie = c.split(';')[0]! }
-    const a = await fetch(`${server.url}/api/session`); keep(a)
+    const keep = (r: Response) => {
+      const c = r.headers.get('set-cookie')
+      if (c) cookie = c.split(';')[0]!
+    }
+    const a = await fetch(`${server.url}/api/session`)
+    keep(a)
     const { csrfToken } = (await a.json()) as { csrfToken: string }
-    const b = await fetch(`${server.url}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) })
+    const b = await fetch(`${server.url}/api/session`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie },
+      body: JSON.stringify({ email, password: DEMO_PASSWORD }),
+    })
     keep(b)
     const body = (await b.json()) as { csrfToken: string; user: { id: number } }
     if (b.status !== 200) throw new Error(`sign-in ${email}: ${b.status}`)
     return { cookie, csrf: body.csrfToken, userId: body.user.id }
   }
   const call = async (s: HttpSession, method: string, path: string, body?: unknown) => {
-    const r = await fetch(`${server.url}/api${path}`, { method, headers: { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf }, body: body === undefined ? undefined : JSON.stringify(body) })
+    const r = await fetch(`${server.url}/api${path}`, {
+      method,
+      headers: { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf },
+      body: body === undefined ? undefined : JSON.stringify(body),
+    })
     const text = await r.text()
     return { status: r.status, body: text ? JSON.parse(text) : null }
   }
@@ -42,7 +67,17 @@ export async function benchServer(dbName: string, o: { clientDir?: string } = {}
     const p = await call(manager, 'POST', `/plans/${state.planId}/publish`)
     if (p.status !== 200) throw new Error(`publish: ${p.status}`)
   }
-  return { server, url, signIn, call, publishPlan, async stop() { await server.close(); stop() } }
+  return {
+    server,
+    url,
+    signIn,
+    call,
+    publishPlan,
+    async stop() {
+      await server.close()
+      stop()
+    },
+  }
 }
 
 export const pct = (sorted: number[], p: number) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))]! : NaN)
@@ -60,18 +95,47 @@ export async function addPlannedLoad(url: string, target: number, from: Dayjs) {
   let have = (await db.execute(sql`select count(*)::int n from operations where status not in ('done','skipped')`)).rows[0]!.n as number
   let i = 0
   let rnd = 7
-  const r = () => ((rnd = (rnd * 48271) % 2147483647) / 2147483647)
+  const r = () => (rnd = (rnd * 48271) % 2147483647) / 2147483647
   while (have < target) {
     i++
-    const [o] = await db.insert(schema.orders).values({ workshopId: w!.id, number: `BB-${i}`, customerId: cust!.id, title: `Bench load ${i}`, dueDate: to.format('YYYY-MM-DD'), priority: 3 }).returning()
-    const [b] = await db.insert(schema.jobBags).values({ workshopId: w!.id, orderId: o!.id, number: `BB-${i}-1`, piece: 'Load piece', templateId: tpl!.id, params: { metal: 'silver-925', stoneCount: 10, stoneSizeMm: 1.5, sizeMm: 20, finish: 'polished', quantity: 1 } }).returning()
-    await db.insert(schema.operations).values(steps.map((st) => {
-      const day = Math.floor(r() * 20)
-      const start = from.add(Math.floor(day / 5) * 7 + (day % 5), 'day').hour(9).minute(Math.floor(r() * 420))
-      return { jobBagId: b!.id, seq: st.seq, key: st.key, kindId: st.kindId, name: st.name, estimateMinutes: 45, after: st.after, status: 'pending',
-        plannedBenchId: benches[Math.floor(r() * benches.length)]!.id, plannedPersonId: people[Math.floor(r() * people.length)]!.id,
-        plannedStart: start.toISOString(), plannedEnd: start.add(45, 'minute').toISOString() }
-    }))
+    const [o] = await db
+      .insert(schema.orders)
+      .values({ workshopId: w!.id, number: `BB-${i}`, customerId: cust!.id, title: `Bench load ${i}`, dueDate: to.format('YYYY-MM-DD'), priority: 3 })
+      .returning()
+    const [b] = await db
+      .insert(schema.jobBags)
+      .values({
+        workshopId: w!.id,
+        orderId: o!.id,
+        number: `BB-${i}-1`,
+        piece: 'Load piece',
+        templateId: tpl!.id,
+        params: { metal: 'silver-925', stoneCount: 10, stoneSizeMm: 1.5, sizeMm: 20, finish: 'polished', quantity: 1 },
+      })
+      .returning()
+    await db.insert(schema.operations).values(
+      steps.map((st) => {
+        const day = Math.floor(r() * 20)
+        const start = from
+          .add(Math.floor(day / 5) * 7 + (day % 5), 'day')
+          .hour(9)
+          .minute(Math.floor(r() * 420))
+        return {
+          jobBagId: b!.id,
+          seq: st.seq,
+          key: st.key,
+          kindId: st.kindId,
+          name: st.name,
+          estimateMinutes: 45,
+          after: st.after,
+          status: 'pending',
+          plannedBenchId: benches[Math.floor(r() * benches.length)]!.id,
+          plannedPersonId: people[Math.floor(r() * people.length)]!.id,
+          plannedStart: start.toISOString(),
+          plannedEnd: start.add(45, 'minute').toISOString(),
+        }
+      }),
+    )
     have += steps.length
   }
   await pool.end()

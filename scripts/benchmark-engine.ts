@@ -13,10 +13,23 @@ const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
 const benchDir = resolve(root, process.env.MILLGRAIN_BENCH_DIR ?? '../shared/bench')
 const checker = resolve(benchDir, '../tools/check-schedule.mjs')
 
-interface Bound { name: string; kind: string; file: string; jobs: number; machines: number; optimum: number | null; lower_bound: number; upper_bound: number }
+interface Bound {
+  name: string
+  kind: string
+  file: string
+  jobs: number
+  machines: number
+  optimum: number | null
+  lower_bound: number
+  upper_bound: number
+}
 
 const args = process.argv.slice(2)
-let timeLimit = 10, seed = 1, only: string[] | null = null, sets = ['shop', 'twt', 'fjw'], cpuClock = false
+let timeLimit = 10,
+  seed = 1,
+  only: string[] | null = null,
+  sets = ['shop', 'twt', 'fjw'],
+  cpuClock = false
 for (let i = 0; i < args.length; i++) {
   if (args[i] === '--time-limit') timeLimit = Number(args[++i])
   else if (args[i] === '--seed') seed = Number(args[++i])
@@ -24,7 +37,12 @@ for (let i = 0; i < args.length; i++) {
   else if (args[i] === '--sets') sets = args[++i]!.split(',')
   else if (args[i] === '--cpu-clock') cpuClock = true
 }
-const clock = cpuClock ? () => { const u = process.cpuUsage(); return (u.user + u.system) / 1000 } : () => performance.now()
+const clock = cpuClock
+  ? () => {
+      const u = process.cpuUsage()
+      return (u.user + u.system) / 1000
+    }
+  : () => performance.now()
 if (!existsSync(join(benchDir, 'bounds.json'))) {
   console.error(`No benchmark kit at ${benchDir} (set MILLGRAIN_BENCH_DIR).`)
   process.exit(1)
@@ -36,7 +54,20 @@ mkdirSync(outDir, { recursive: true })
 const rows: Record<string, unknown>[] = []
 const pad = (s: unknown, n: number) => String(s).padEnd(n)
 console.log(`time limit ${timeLimit}s per instance${cpuClock ? ' (CPU time of this process)' : ''}, seed ${seed}, kit ${benchDir}`)
-console.log([pad('instance', 9), pad('size', 7), pad('best', 6), pad('lb', 6), pad('ours', 6), pad('gap%', 7), pad('to best s', 10), pad('valid', 6), pad('MIP', 14), pad('MIP gap%', 8)].join(' '))
+console.log(
+  [
+    pad('instance', 9),
+    pad('size', 7),
+    pad('best', 6),
+    pad('lb', 6),
+    pad('ours', 6),
+    pad('gap%', 7),
+    pad('to best s', 10),
+    pad('valid', 6),
+    pad('MIP', 14),
+    pad('MIP gap%', 8),
+  ].join(' '),
+)
 for (const b of sets.includes('shop') ? bounds : []) {
   if (only && !only.includes(b.name)) continue
   const path = join(benchDir, b.file)
@@ -44,14 +75,26 @@ for (const b of sets.includes('shop') ? bounds : []) {
   const problem = shopToProblem(file)
   let bestAt = 0
   const t0 = performance.now()
-  const plan = solve(problem, { seed, timeLimitMs: timeLimit * 1000, objective: ['makespan'] }, { clock, onProgress: (p) => { bestAt = p.elapsedMs } })
+  const plan = solve(
+    problem,
+    { seed, timeLimitMs: timeLimit * 1000, objective: ['makespan'] },
+    {
+      clock,
+      onProgress: (p) => {
+        bestAt = p.elapsedMs
+      },
+    },
+  )
   const seconds = (performance.now() - t0) / 1000
   const ours = plan.score.makespan
   const violations = validatePlan(problem, plan)
   // The kit's own checker on the CLI's JSON shape.
   const schedule = {
     makespan: ours,
-    operations: plan.operations.map((p) => { const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!; return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), start: p.start, end: p.end } }),
+    operations: plan.operations.map((p) => {
+      const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!
+      return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), start: p.start, end: p.end }
+    }),
   }
   const schedPath = join(outDir, `${b.name}.schedule.json`)
   writeFileSync(schedPath, JSON.stringify(schedule))
@@ -63,9 +106,44 @@ for (const b of sets.includes('shop') ? bounds : []) {
   if (b.jobs <= 10 && b.machines <= 10) mip = await solveMip(file, timeLimit)
   const mipText = mip ? `${mip.makespan ?? '-'}${mip.optimal ? ' (opt)' : ' (tl)'}` : ''
   const mipGap = mip?.makespan ? (((mip.makespan - b.upper_bound) / b.upper_bound) * 100).toFixed(2) : ''
-  console.log([pad(b.name, 9), pad(`${b.jobs}x${b.machines}`, 7), pad(b.upper_bound, 6), pad(b.lower_bound, 6), pad(ours, 6), pad(gap.toFixed(2), 7), pad((bestAt / 1000).toFixed(2), 10), pad(valid ? 'yes' : 'NO', 6), pad(mipText, 14), pad(mipGap, 8)].join(' '))
-  if (!valid) console.log(`  ! ${violations.slice(0, 3).map((v) => v.message).join('; ')} ${kit?.stdout.trim() ?? ''}`)
-  rows.push({ instance: b.name, family: b.name.replace(/\d+[a-z]?$/, ''), kind: b.kind, jobs: b.jobs, machines: b.machines, best: b.upper_bound, lowerBound: b.lower_bound, ours, gapPercent: gap, secondsToBest: bestAt / 1000, seconds, iterations: plan.stats.iterations, valid, kitChecker: kit?.stdout.trim() ?? null, mip })
+  console.log(
+    [
+      pad(b.name, 9),
+      pad(`${b.jobs}x${b.machines}`, 7),
+      pad(b.upper_bound, 6),
+      pad(b.lower_bound, 6),
+      pad(ours, 6),
+      pad(gap.toFixed(2), 7),
+      pad((bestAt / 1000).toFixed(2), 10),
+      pad(valid ? 'yes' : 'NO', 6),
+      pad(mipText, 14),
+      pad(mipGap, 8),
+    ].join(' '),
+  )
+  if (!valid)
+    console.log(
+      `  ! ${violations
+        .slice(0, 3)
+        .map((v) => v.message)
+        .join('; ')} ${kit?.stdout.trim() ?? ''}`,
+    )
+  rows.push({
+    instance: b.name,
+    family: b.name.replace(/\d+[a-z]?$/, ''),
+    kind: b.kind,
+    jobs: b.jobs,
+    machines: b.machines,
+    best: b.upper_bound,
+    lowerBound: b.lower_bound,
+    ours,
+    gapPercent: gap,
+    secondsToBest: bestAt / 1000,
+    seconds,
+    iterations: plan.stats.iterations,
+    valid,
+    kitChecker: kit?.stdout.trim() ?? null,
+    mip,
+  })
 }
 const families = [...new Set(rows.map((r) => r.family as string))]
 const means: Record<string, number> = {}
@@ -80,7 +158,10 @@ for (const f of families) {
 const extra: Record<string, unknown>[] = []
 for (const set of (['twt', 'fjw'] as const).filter((x) => sets.includes(x))) {
   const dir = join(benchDir, set)
-  if (!existsSync(join(dir, 'bounds.json'))) { console.log(`\n(no ${set} set in the kit)`); continue }
+  if (!existsSync(join(dir, 'bounds.json'))) {
+    console.log(`\n(no ${set} set in the kit)`)
+    continue
+  }
   const list: { name: string; file: string; best_known_twt?: number; upper_bound?: number }[] = JSON.parse(readFileSync(join(dir, 'bounds.json'), 'utf8'))
   const tool = resolve(benchDir, `../tools/check-${set}.mjs`)
   console.log(`\n${set === 'twt' ? 'total weighted tardiness (.twt, f = 1.3)' : 'flexible shop with workers (.fjw, makespan)'}, ${timeLimit}s per instance`)
@@ -92,10 +173,29 @@ for (const set of (['twt', 'fjw'] as const).filter((x) => sets.includes(x))) {
     const text = readFileSync(path, 'utf8')
     const problem = set === 'twt' ? parseTwt(text) : parseFjw(text)
     let bestAt = 0
-    const plan = solve(problem, { seed, timeLimitMs: timeLimit * 1000, objective: set === 'twt' ? ['weightedTardiness', 'makespan'] : ['makespan'] }, { clock, onProgress: (p) => { bestAt = p.elapsedMs } })
+    const plan = solve(
+      problem,
+      { seed, timeLimitMs: timeLimit * 1000, objective: set === 'twt' ? ['weightedTardiness', 'makespan'] : ['makespan'] },
+      {
+        clock,
+        onProgress: (p) => {
+          bestAt = p.elapsedMs
+        },
+      },
+    )
     const ours = set === 'twt' ? plan.score.weightedTardiness : plan.score.makespan
     const best = (set === 'twt' ? b.best_known_twt : b.upper_bound)!
-    const operations = plan.operations.map((p) => { const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!; return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), ...(set === 'fjw' ? { worker: Number(p.personId!.slice(1)) } : {}), start: p.start, end: p.end } })
+    const operations = plan.operations.map((p) => {
+      const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!
+      return {
+        job: Number(m[1]),
+        op: Number(m[2]),
+        machine: Number(p.benchId!.slice(1)),
+        ...(set === 'fjw' ? { worker: Number(p.personId!.slice(1)) } : {}),
+        start: p.start,
+        end: p.end,
+      }
+    })
     const schedPath = join(outDir, `${b.name}.schedule.json`)
     writeFileSync(schedPath, JSON.stringify(set === 'twt' ? { objective: ours, operations } : { makespan: ours, operations }))
     const kit = existsSync(tool) ? spawnSync(process.execPath, [tool, path, schedPath, String(best)], { encoding: 'utf8' }) : null
@@ -103,11 +203,34 @@ for (const set of (['twt', 'fjw'] as const).filter((x) => sets.includes(x))) {
     const gap = best > 0 ? ((ours - best) / best) * 100 : 0
     gaps.push(gap)
     const rate = plan.stats.evaluations ? Math.round(plan.stats.evaluations / (plan.stats.elapsedMs / 1000)) : ''
-    console.log([pad(b.name, 9), pad(best, 7), pad(ours, 7), pad(gap.toFixed(2), 7), pad((bestAt / 1000).toFixed(2), 10), pad(rate, 12), pad(valid ? 'yes' : 'NO', 6)].join(' '))
+    console.log(
+      [
+        pad(b.name, 9),
+        pad(best, 7),
+        pad(ours, 7),
+        pad(gap.toFixed(2), 7),
+        pad((bestAt / 1000).toFixed(2), 10),
+        pad(rate, 12),
+        pad(valid ? 'yes' : 'NO', 6),
+      ].join(' '),
+    )
     if (!valid) console.log(`  ! ${kit?.stdout.trim() ?? ''}`)
-    extra.push({ set, instance: b.name, best, ours, gapPercent: gap, secondsToBest: bestAt / 1000, evaluations: plan.stats.evaluations, iterations: plan.stats.iterations, valid })
+    extra.push({
+      set,
+      instance: b.name,
+      best,
+      ours,
+      gapPercent: gap,
+      secondsToBest: bestAt / 1000,
+      evaluations: plan.stats.evaluations,
+      iterations: plan.stats.iterations,
+      valid,
+    })
   }
-  if (gaps.length) { means[set] = gaps.reduce((a, g) => a + g, 0) / gaps.length; console.log(`  mean gap ${means[set]!.toFixed(2)} % over ${gaps.length} instance(s)`) }
+  if (gaps.length) {
+    means[set] = gaps.reduce((a, g) => a + g, 0) / gaps.length
+    console.log(`  mean gap ${means[set]!.toFixed(2)} % over ${gaps.length} instance(s)`)
+  }
 }
 const outFile = join(outDir, `engine-${timeLimit}s.json`)
 writeFileSync(outFile, JSON.stringify({ timeLimitSeconds: timeLimit, seed, benchDir, rows, extra, meanGapPercentByFamily: means }, null, 2))

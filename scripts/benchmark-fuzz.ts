@@ -29,10 +29,22 @@ const t0 = performance.now()
 const stats = await fuzzRoutes({ routes: allRoutes, sessions, pools, runsPerRoute, seed: SEED }, plan)
 const seconds = (performance.now() - t0) / 1000
 
-const fivexx = Object.entries(stats.byStatus).filter(([s]) => Number(s) >= 500).reduce((n, [, c]) => n + c, 0)
-console.log(`\nAPI fuzz, seed ${SEED}: ${stats.requests} requests over ${plan.targets.length} routes (${runsPerRoute} each) in ${seconds.toFixed(1)} s (${(stats.requests / seconds).toFixed(0)} req/s), ${stats.readBacks} read-backs of accepted writes, ${stats.runsStopped} planner runs stopped`)
-console.table(Object.fromEntries(Object.entries(stats.byStatus).sort().map(([s, n]) => [s, { requests: n }])))
-console.log(`5xx answers: ${fivexx} (must be 0); other failed checks: ${stats.failures.length - stats.failures.filter((f) => f.status >= 500).length}; sessions lost: ${stats.sessionsRenewed.length}`)
+const fivexx = Object.entries(stats.byStatus)
+  .filter(([s]) => Number(s) >= 500)
+  .reduce((n, [, c]) => n + c, 0)
+console.log(
+  `\nAPI fuzz, seed ${SEED}: ${stats.requests} requests over ${plan.targets.length} routes (${runsPerRoute} each) in ${seconds.toFixed(1)} s (${(stats.requests / seconds).toFixed(0)} req/s), ${stats.readBacks} read-backs of accepted writes, ${stats.runsStopped} planner runs stopped`,
+)
+console.table(
+  Object.fromEntries(
+    Object.entries(stats.byStatus)
+      .sort()
+      .map(([s, n]) => [s, { requests: n }]),
+  ),
+)
+console.log(
+  `5xx answers: ${fivexx} (must be 0); other failed checks: ${stats.failures.length - stats.failures.filter((f) => f.status >= 500).length}; sessions lost: ${stats.sessionsRenewed.length}`,
+)
 for (const f of stats.failures.slice(0, 20)) console.log(`  ✗ ${f.key} as ${f.who}: ${f.problem}\n      ${f.url.slice(0, 160)}  [${f.mutation.slice(0, 120)}]`)
 
 server.close()

@@ -27,10 +27,18 @@ const env = { DATABASE_URL: url, SESSION_SECRET: 'bench-secret-bench-secret', NO
 
 async function signIn(base: string, email: string) {
   let cookie = ''
-  const keep = (r: Response) => { const c = r.headers.getSetCookie().find((x) => x.startsWith('millgrain.sid=')); if (c) cookie = c.split(';')[0]! }
-  const a = await fetch(`${base}/api/session`); keep(a)
+  const keep = (r: Response) => {
+    const c = r.headers.getSetCookie().find((x) => x.startsWith('millgrain.sid='))
+    if (c) cookie = c.split(';')[0]!
+  }
+  const a = await fetch(`${base}/api/session`)
+  keep(a)
   const { csrfToken } = (await a.json()) as { csrfToken: string }
-  const b = await fetch(`${base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) })
+  const b = await fetch(`${base}/api/session`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie },
+    body: JSON.stringify({ email, password: DEMO_PASSWORD }),
+  })
   keep(b)
   if (b.status !== 200) throw new Error(`sign-in ${email}: ${b.status}`)
   return { cookie, csrf: ((await b.json()) as { csrfToken: string }).csrfToken }
@@ -50,17 +58,28 @@ for (const { n, direct } of runs) {
     const sales = await signIn(proxy.url, 'sales@wrenfield.test')
     // Every instance answers once before measuring, so each has the board in its cache.
     for (const inst of instances) await (await fetch(inst.url + path, { headers: { cookie: manager.cookie } })).arrayBuffer()
-    const res = await autocannon({ url: front + path, connections: CONNECTIONS, duration: DURATION, workers: 1, headers: { cookie: manager.cookie, 'accept-encoding': 'gzip' } })
+    const res = await autocannon({
+      url: front + path,
+      connections: CONNECTIONS,
+      duration: DURATION,
+      workers: 1,
+      headers: { cookie: manager.cookie, 'accept-encoding': 'gzip' },
+    })
 
     // Change latency across instances.
     const a = instances[0]!
     const b = instances[Math.min(1, n - 1)]!
     const sock = connect(b.url, { extraHeaders: { cookie: sales.cookie }, transports: ['websocket'] })
-    await new Promise<void>((res, rej) => { sock.on('connect', () => res()); sock.on('connect_error', rej) })
+    await new Promise<void>((res, rej) => {
+      sock.on('connect', () => res())
+      sock.on('connect_error', rej)
+    })
     const { Client } = (await import('pg')).default
     const pg = new Client({ connectionString: url })
     await pg.connect()
-    const { rows: [op] } = await pg.query(`select id, version, pinned from operations where status = 'pending' and planned_start is not null order by id limit 1`)
+    const {
+      rows: [op],
+    } = await pg.query(`select id, version, pinned from operations where status = 'pending' and planned_start is not null order by id limit 1`)
     await pg.end()
     let version = op.version as number
     let pinned = op.pinned as boolean
@@ -69,7 +88,11 @@ for (const { n, direct } of runs) {
       const got = new Promise<number>((res) => sock.once('plan:changed', () => res(performance.now())))
       const t = performance.now()
       pinned = !pinned
-      const r = await fetch(`${a.url}/api/board/operations/${op.id}`, { method: 'PATCH', headers: { 'content-type': 'application/json', cookie: manager.cookie, 'x-csrf-token': manager.csrf }, body: JSON.stringify({ pinned, version }) })
+      const r = await fetch(`${a.url}/api/board/operations/${op.id}`, {
+        method: 'PATCH',
+        headers: { 'content-type': 'application/json', cookie: manager.cookie, 'x-csrf-token': manager.csrf },
+        body: JSON.stringify({ pinned, version }),
+      })
       if (r.status !== 200) throw new Error(`pin: ${r.status} ${await r.text()}`)
       version = ((await r.json()) as { version: number }).version
       lat.push((await got) - t)
@@ -77,15 +100,23 @@ for (const { n, direct } of runs) {
     sock.close()
     lat.sort((x, y) => x - y)
     rows.push({
-      instances: direct ? `${n} (no proxy)` : n, 'board req/s': Math.round(res.requests.average), 'board p50 ms': res.latency.p50, 'board p97.5 ms': res.latency.p97_5,
-      errors: res.errors + res.non2xx + res.timeouts, 'change p50 ms': +pct(lat, 0.5).toFixed(1), 'change p95 ms': +pct(lat, 0.95).toFixed(1),
-      path: n === 1 ? 'a → a' : 'a → b', 'load avg': `${load0.toFixed(1)}–${loadavg()[0]!.toFixed(1)}`,
+      instances: direct ? `${n} (no proxy)` : n,
+      'board req/s': Math.round(res.requests.average),
+      'board p50 ms': res.latency.p50,
+      'board p97.5 ms': res.latency.p97_5,
+      errors: res.errors + res.non2xx + res.timeouts,
+      'change p50 ms': +pct(lat, 0.5).toFixed(1),
+      'change p95 ms': +pct(lat, 0.95).toFixed(1),
+      path: n === 1 ? 'a → a' : 'a → b',
+      'load avg': `${load0.toFixed(1)}–${loadavg()[0]!.toFixed(1)}`,
     })
   } finally {
     await proxy.close()
     await Promise.all(instances.map((i) => i.kill('SIGTERM')))
   }
 }
-console.log(`\nGET /api/board (four weeks, ~1,200 bars) through the proxy, autocannon ${CONNECTIONS} connections × ${DURATION} s; change = PATCH pin on a → plan:changed on a client of b (${CHANGES} times)`)
+console.log(
+  `\nGET /api/board (four weeks, ~1,200 bars) through the proxy, autocannon ${CONNECTIONS} connections × ${DURATION} s; change = PATCH pin on a → plan:changed on a client of b (${CHANGES} times)`,
+)
 console.table(rows)
 stop()

@@ -21,7 +21,13 @@ const benches = (await b.call(manager, 'GET', '/benches')).body as { id: number;
 const settingBench = benches.find((x) => /setting/i.test(x.name)) ?? benches[0]!
 const template = ((await b.call(manager, 'GET', '/templates')).body as { id: number; code: string }[])[0]!
 
-interface Target { name: string; method: 'GET' | 'POST'; path: string; who: { cookie: string; csrf: string }; body?: unknown }
+interface Target {
+  name: string
+  method: 'GET' | 'POST'
+  path: string
+  who: { cookie: string; csrf: string }
+  body?: unknown
+}
 const targets: Target[] = [
   { name: 'board (4 weeks)', method: 'GET', path: `/api/board?from=${from.format('YYYY-MM-DD')}&to=${to.format('YYYY-MM-DD')}`, who: manager },
 ]
@@ -29,12 +35,23 @@ const notes: string[] = []
 if (has('get', '/bench/next')) targets.push({ name: 'bench next for me', method: 'GET', path: `/api/bench/next?benchId=${settingBench.id}`, who: setter })
 else notes.push('bench "next for me" skipped: no GET /bench/next route yet')
 targets.push({ name: 'order list', method: 'GET', path: '/api/orders?status=quoted,open,in-work,ready&pageSize=50', who: sales })
-if (has('post', '/promise/check')) targets.push({ name: 'promise check', method: 'POST', path: '/api/promise/check', who: sales, body: { templateId: template.id, params: { metal: 'gold-18ct', stoneCount: 12, stoneSizeMm: 1.5 } } })
+if (has('post', '/promise/check'))
+  targets.push({
+    name: 'promise check',
+    method: 'POST',
+    path: '/api/promise/check',
+    who: sales,
+    body: { templateId: template.id, params: { metal: 'gold-18ct', stoneCount: 12, stoneSizeMm: 1.5 } },
+  })
 else notes.push('promise check skipped: no POST /promise/check route yet')
 
 // One warm-up answer each, and a sanity check that the request is what we mean to measure.
 for (const t of targets) {
-  const r = await fetch(b.server.url + t.path, { method: t.method, headers: { cookie: t.who.cookie, 'x-csrf-token': t.who.csrf, 'content-type': 'application/json' }, body: t.body ? JSON.stringify(t.body) : undefined })
+  const r = await fetch(b.server.url + t.path, {
+    method: t.method,
+    headers: { cookie: t.who.cookie, 'x-csrf-token': t.who.csrf, 'content-type': 'application/json' },
+    body: t.body ? JSON.stringify(t.body) : undefined,
+  })
   const text = await r.text()
   console.log(`${t.name}: ${t.method} ${t.path.split('?')[0]} → ${r.status}, ${(text.length / 1024).toFixed(1)} KiB`)
   if (r.status >= 300) throw new Error(`${t.name} answers ${r.status}: ${text.slice(0, 300)}`)
@@ -46,7 +63,10 @@ for (const t of targets) {
     // Every response time is kept, so p95 is exact (autocannon's own table has p97.5, not p95).
     const times: number[] = []
     const inst = autocannon({
-      url: b.server.url + t.path, method: t.method, connections, duration: DURATION,
+      url: b.server.url + t.path,
+      method: t.method,
+      connections,
+      duration: DURATION,
       headers: { cookie: t.who.cookie, 'x-csrf-token': t.who.csrf, 'content-type': 'application/json', 'accept-encoding': 'gzip' },
       body: t.body ? JSON.stringify(t.body) : undefined,
     })
@@ -55,12 +75,22 @@ for (const t of targets) {
     const res = await new Promise<any>((resolve) => inst.on('done', resolve))
     times.sort((x, y) => x - y)
     rows.push({
-      endpoint: t.name, connections, 'p50 ms': +pct(times, 0.5).toFixed(1), 'p95 ms': +pct(times, 0.95).toFixed(1), 'p99 ms': +pct(times, 0.99).toFixed(1),
-      'req/s': Math.round(res.requests.average), requests: res.requests.total, errors: res.errors + res.non2xx, timeouts: res.timeouts, non2xx: res.non2xx,
+      endpoint: t.name,
+      connections,
+      'p50 ms': +pct(times, 0.5).toFixed(1),
+      'p95 ms': +pct(times, 0.95).toFixed(1),
+      'p99 ms': +pct(times, 0.99).toFixed(1),
+      'req/s': Math.round(res.requests.average),
+      requests: res.requests.total,
+      errors: res.errors + res.non2xx,
+      timeouts: res.timeouts,
+      non2xx: res.non2xx,
     })
   }
 }
-console.log(`\nLoad on loopback, demo data with a published plan, autocannon ${DURATION} s per row (errors = socket errors incl. timeouts (10 s) + non-2xx; must be 0)`)
+console.log(
+  `\nLoad on loopback, demo data with a published plan, autocannon ${DURATION} s per row (errors = socket errors incl. timeouts (10 s) + non-2xx; must be 0)`,
+)
 console.table(rows)
 for (const n of notes) console.log(`note: ${n}`)
 const errors = rows.reduce((n, r) => n + Number(r.errors), 0)

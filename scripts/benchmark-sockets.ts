@@ -20,24 +20,58 @@ const setter = await b.signIn(DEMO_EMAIL.bench)
 await b.publishPlan(manager)
 
 // A dozen sessions of every role, shared round-robin by the clients (tablets, office screens, phones).
-const emails = [DEMO_EMAIL.owner, DEMO_EMAIL.manager, DEMO_EMAIL.sales, DEMO_EMAIL.sales, DEMO_EMAIL.bench, 'priya@wrenfield.test', 'jonah@wrenfield.test', 'ruth@wrenfield.test', 'trainee@wrenfield.test', DEMO_EMAIL.manager, DEMO_EMAIL.sales, DEMO_EMAIL.owner]
+const emails = [
+  DEMO_EMAIL.owner,
+  DEMO_EMAIL.manager,
+  DEMO_EMAIL.sales,
+  DEMO_EMAIL.sales,
+  DEMO_EMAIL.bench,
+  'priya@wrenfield.test',
+  'jonah@wrenfield.test',
+  'ruth@wrenfield.test',
+  'trainee@wrenfield.test',
+  DEMO_EMAIL.manager,
+  DEMO_EMAIL.sales,
+  DEMO_EMAIL.owner,
+]
 const sessions: HttpSession[] = []
 for (const e of emails) sessions.push(await b.signIn(e))
 
-interface Client { sock: Socket; seqs: Set<number>; at: Map<number, number> }
+interface Client {
+  sock: Socket
+  seqs: Set<number>
+  at: Map<number, number>
+}
 const clients: Client[] = []
 const t0c = performance.now()
-await Promise.all(Array.from({ length: CLIENTS }, (_, i) => new Promise<void>((res, rej) => {
-  const sock = connect(b.server.url, { extraHeaders: { cookie: sessions[i % sessions.length]!.cookie }, transports: ['websocket'], forceNew: true, reconnection: false })
-  const c: Client = { sock, seqs: new Set(), at: new Map() }
-  for (const ev of TRACKED) sock.on(ev, (p: { seq: number }) => { c.seqs.add(p.seq); c.at.set(p.seq, performance.now()) })
-  sock.once('connect', () => res())
-  sock.once('connect_error', rej)
-  clients.push(c)
-})))
+await Promise.all(
+  Array.from(
+    { length: CLIENTS },
+    (_, i) =>
+      new Promise<void>((res, rej) => {
+        const sock = connect(b.server.url, {
+          extraHeaders: { cookie: sessions[i % sessions.length]!.cookie },
+          transports: ['websocket'],
+          forceNew: true,
+          reconnection: false,
+        })
+        const c: Client = { sock, seqs: new Set(), at: new Map() }
+        for (const ev of TRACKED)
+          sock.on(ev, (p: { seq: number }) => {
+            c.seqs.add(p.seq)
+            c.at.set(p.seq, performance.now())
+          })
+        sock.once('connect', () => res())
+        sock.once('connect_error', rej)
+        clients.push(c)
+      }),
+  ),
+)
 console.log(`${CLIENTS} clients connected over ${sessions.length} sessions in ${(performance.now() - t0c).toFixed(0)} ms`)
 
-const [op] = rowsOf(await b.server.db.execute(sql`select id, version from operations where planned_start is not null and status in ('pending', 'ready') order by id limit 1`))
+const [op] = rowsOf(
+  await b.server.db.execute(sql`select id, version from operations where planned_start is not null and status in ('pending', 'ready') order by id limit 1`),
+)
 const triggers: { kind: string; t: number; seqs: number[] }[] = []
 /** Waits until every client has an event for which `match` holds that arrived after the trigger, or 5 s. */
 async function allHeard(since: number, count: number) {
@@ -62,9 +96,14 @@ const notes: string[] = []
 if (allRoutes.some((r) => r.path === '/bench/operations/:id/claim')) {
   // A ready stone-setting step and the setting bench; claim and release it in turn (each: operation:changed, jobBag:changed).
   const [bench] = rowsOf(await b.server.db.execute(sql`select id from benches where name = 'Setting bench A'`))
-  const [step] = rowsOf(await b.server.db.execute(sql`select o.id, o.job_bag_id, o.after from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
-    where k.code = 'setting' and ord.status = 'open' and o.status in ('pending', 'ready') order by ord.due_date, o.seq limit 1`))
-  await b.server.db.execute(sql`update operations set status = 'done', finished_at = now() where job_bag_id = ${step.job_bag_id} and key in (select jsonb_array_elements_text(${JSON.stringify(step.after)}::jsonb))`)
+  const [step] = rowsOf(
+    await b.server.db
+      .execute(sql`select o.id, o.job_bag_id, o.after from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
+    where k.code = 'setting' and ord.status = 'open' and o.status in ('pending', 'ready') order by ord.due_date, o.seq limit 1`),
+  )
+  await b.server.db.execute(
+    sql`update operations set status = 'done', finished_at = now() where job_bag_id = ${step.job_bag_id} and key in (select jsonb_array_elements_text(${JSON.stringify(step.after)}::jsonb))`,
+  )
   await b.server.db.execute(sql`update operations set status = 'ready', claimed_by = null where id = ${step.id}`)
   for (let k = 0; k < TRANSITIONS; k++) {
     const action = k % 2 === 0 ? 'claim' : 'release'
@@ -92,8 +131,20 @@ for (const c of clients) {
   }
 }
 lat.sort((x, y) => x - y)
-console.log(`\nSocket delivery: ${CLIENTS} clients, ${triggers.length} triggers (${MOVES} plan moves${notes.length ? '' : `, ${TRANSITIONS} bench transitions`}), ${all.size} distinct events`)
-console.table([{ clients: CLIENTS, events: all.size, deliveries: clients.reduce((n, c) => n + c.seqs.size, 0), 'p50 ms': +pct(lat, 0.5).toFixed(1), 'p95 ms': +pct(lat, 0.95).toFixed(1), 'max ms': +(lat[lat.length - 1] ?? NaN).toFixed(1), lost }])
+console.log(
+  `\nSocket delivery: ${CLIENTS} clients, ${triggers.length} triggers (${MOVES} plan moves${notes.length ? '' : `, ${TRANSITIONS} bench transitions`}), ${all.size} distinct events`,
+)
+console.table([
+  {
+    clients: CLIENTS,
+    events: all.size,
+    deliveries: clients.reduce((n, c) => n + c.seqs.size, 0),
+    'p50 ms': +pct(lat, 0.5).toFixed(1),
+    'p95 ms': +pct(lat, 0.95).toFixed(1),
+    'max ms': +(lat[lat.length - 1] ?? NaN).toFixed(1),
+    lost,
+  },
+])
 for (const n of notes) console.log(`note: ${n}`)
 for (const c of clients) c.sock.close()
 await b.stop()

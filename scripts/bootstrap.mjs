@@ -23,7 +23,9 @@ if (have !== want || !existsSync(join(root, 'node_modules', '.bin', 'tsx'))) {
 function pgBinDir() {
   const base = '/usr/lib/postgresql'
   if (!existsSync(base)) return null
-  const versions = readdirSync(base).filter((v) => existsSync(join(base, v, 'bin', 'initdb'))).sort((a, b) => Number(b) - Number(a))
+  const versions = readdirSync(base)
+    .filter((v) => existsSync(join(base, v, 'bin', 'initdb')))
+    .sort((a, b) => Number(b) - Number(a))
   return versions.length ? join(base, versions[0], 'bin') : null
 }
 if (!process.env.PG_BIN && !pgBinDir()) {
@@ -41,6 +43,10 @@ if (!process.env.PG_BIN && !pgBinDir()) {
 if (process.argv.includes('--browser') && !existsSync(process.env.CHROMIUM_PATH || '/usr/bin/chromium')) {
   console.log('[setup] installing Debian package "chromium" for the browser tests…')
   const sudo = process.getuid && process.getuid() === 0 ? '' : 'sudo '
-  try { run(`${sudo}env DEBIAN_FRONTEND=noninteractive apt-get install -y chromium`) }
-  catch { run(`${sudo}apt-get update`); run(`${sudo}env DEBIAN_FRONTEND=noninteractive apt-get install -y chromium`) }
+  try {
+    run(`${sudo}env DEBIAN_FRONTEND=noninteractive apt-get install -y chromium`)
+  } catch {
+    run(`${sudo}apt-get update`)
+    run(`${sudo}env DEBIAN_FRONTEND=noninteractive apt-get install -y chromium`)
+  }
 }

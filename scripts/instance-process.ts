@@ -33,14 +33,22 @@ export function spawnInstance(name: string, env: Record<string, string>, o: { ti
   })
   const output: string[] = []
   let alive = true
-  const exited = new Promise<number | null>((res) => child.once('exit', (code) => { alive = false; res(code) }))
+  const exited = new Promise<number | null>((res) =>
+    child.once('exit', (code) => {
+      alive = false
+      res(code)
+    }),
+  )
   const keep = (text: string) => {
     output.push(text)
     if (output.length > 500) output.splice(0, output.length - 500)
     if (o.echo) for (const line of text.split('\n')) if (line.trim()) console.log(`[${name}] ${line}`)
   }
   return new Promise<InstanceProcess>((res, rej) => {
-    const timer = setTimeout(() => { child.kill('SIGKILL'); rej(new Error(`instance ${name} did not start within ${timeoutMs} ms:\n${output.join('')}`)) }, timeoutMs)
+    const timer = setTimeout(() => {
+      child.kill('SIGKILL')
+      rej(new Error(`instance ${name} did not start within ${timeoutMs} ms:\n${output.join('')}`))
+    }, timeoutMs)
     let started = false
     child.stdout!.on('data', (chunk: Buffer) => {
       const text = chunk.toString()
@@ -51,8 +59,15 @@ export function spawnInstance(name: string, env: Record<string, string>, o: { ti
       clearTimeout(timer)
       const port = Number(m[1])
       res({
-        name, port, url: `http://127.0.0.1:${port}`, pid: child.pid!, output, exited,
-        get alive() { return alive },
+        name,
+        port,
+        url: `http://127.0.0.1:${port}`,
+        pid: child.pid!,
+        output,
+        exited,
+        get alive() {
+          return alive
+        },
         async kill(signal: NodeJS.Signals = 'SIGTERM') {
           if (!alive) return
           child.kill(signal)
@@ -63,6 +78,10 @@ export function spawnInstance(name: string, env: Record<string, string>, o: { ti
       })
     })
     child.stderr!.on('data', (c: Buffer) => keep(c.toString()))
-    void exited.then((code) => { if (started) return; clearTimeout(timer); rej(new Error(`instance ${name} exited (${code}) before listening:\n${output.join('')}`)) })
+    void exited.then((code) => {
+      if (started) return
+      clearTimeout(timer)
+      rej(new Error(`instance ${name} exited (${code}) before listening:\n${output.join('')}`))
+    })
   })
 }

@@ -15,7 +15,9 @@ export function pgBin(): string {
   if (process.env.PG_BIN) return process.env.PG_BIN
   const base = '/usr/lib/postgresql'
   const versions = existsSync(base)
-    ? readdirSync(base).filter((v) => existsSync(join(base, v, 'bin', 'initdb'))).sort((a, b) => Number(b) - Number(a))
+    ? readdirSync(base)
+        .filter((v) => existsSync(join(base, v, 'bin', 'initdb')))
+        .sort((a, b) => Number(b) - Number(a))
     : []
   if (!versions[0]) throw new Error('PostgreSQL server binaries not found (run `node scripts/bootstrap.mjs`)')
   return join(base, versions[0], 'bin')
@@ -133,7 +135,11 @@ export function stopCluster(dataDir: string): void {
 }
 
 export function ensureDatabase(port: number, name: string): void {
-  const q = spawnSync(join(pgBin(), 'psql'), ['-h', '127.0.0.1', '-p', String(port), '-U', 'postgres', '-tAc', `select 1 from pg_database where datname='${name}'`], { encoding: 'utf8' })
+  const q = spawnSync(
+    join(pgBin(), 'psql'),
+    ['-h', '127.0.0.1', '-p', String(port), '-U', 'postgres', '-tAc', `select 1 from pg_database where datname='${name}'`],
+    { encoding: 'utf8' },
+  )
   if (q.stdout.trim() === '1') return
   execFileSync(join(pgBin(), 'createdb'), ['-h', '127.0.0.1', '-p', String(port), '-U', 'postgres', name])
 }

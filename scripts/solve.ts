@@ -12,7 +12,9 @@ import type { Objective, Plan, Problem } from '../server/scheduler/model.ts'
 
 function main(): void {
   const args = process.argv.slice(2)
-  let timeLimit = 10, seed = 1, file: string | undefined
+  let timeLimit = 10,
+    seed = 1,
+    file: string | undefined
   for (let i = 0; i < args.length; i++) {
     const a = args[i]!
     if (a === '--time-limit') timeLimit = Number(args[++i])
@@ -28,12 +30,22 @@ function main(): void {
   const name = basename(file)
   let problem: Problem, objective: Objective[] | undefined
   if (name.endsWith('.json')) problem = JSON.parse(text) as Problem
-  else if (name.endsWith('.twt')) { problem = parseTwt(text); objective = ['weightedTardiness', 'makespan'] }
-  else if (name.endsWith('.fjw')) { problem = parseFjw(text); objective = ['makespan'] }
-  else { problem = shopToProblem(parseShopFile(name, text)); objective = ['makespan'] }
+  else if (name.endsWith('.twt')) {
+    problem = parseTwt(text)
+    objective = ['weightedTardiness', 'makespan']
+  } else if (name.endsWith('.fjw')) {
+    problem = parseFjw(text)
+    objective = ['makespan']
+  } else {
+    problem = shopToProblem(parseShopFile(name, text))
+    objective = ['makespan']
+  }
   const plan = solve(problem, { seed, timeLimitMs: timeLimit * 1000, ...(objective ? { objective } : {}) }, { clock: () => performance.now() })
   if (!plan.score.feasible) process.stderr.write(`warning: ${plan.score.violations.join('; ')}\n`)
-  if (name.endsWith('.json')) { process.stdout.write(JSON.stringify(plan) + '\n'); return }
+  if (name.endsWith('.json')) {
+    process.stdout.write(JSON.stringify(plan) + '\n')
+    return
+  }
   process.stdout.write(JSON.stringify(benchmarkSchedule(plan, name)) + '\n')
 }
 
@@ -42,7 +54,14 @@ function benchmarkSchedule(plan: Plan, name: string) {
   const withWorker = name.endsWith('.fjw')
   const operations = plan.operations.map((p) => {
     const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!
-    return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), ...(withWorker ? { worker: Number(p.personId!.slice(1)) } : {}), start: p.start, end: p.end }
+    return {
+      job: Number(m[1]),
+      op: Number(m[2]),
+      machine: Number(p.benchId!.slice(1)),
+      ...(withWorker ? { worker: Number(p.personId!.slice(1)) } : {}),
+      start: p.start,
+      end: p.end,
+    }
   })
   operations.sort((a, b) => a.job - b.job || a.op - b.op)
   if (name.endsWith('.twt')) return { objective: plan.score.weightedTardiness, operations }

@@ -10,7 +10,7 @@ import { buildClient, prepareDatabase, printSignIns, startLocalServices } from '
 
 function instanceCount(argv: string[], env: NodeJS.ProcessEnv): number {
   const i = argv.indexOf('--instances')
-  const raw = i >= 0 ? argv[i + 1] : argv.find((a) => a.startsWith('--instances='))?.split('=')[1] ?? env.INSTANCES ?? '2'
+  const raw = i >= 0 ? argv[i + 1] : (argv.find((a) => a.startsWith('--instances='))?.split('=')[1] ?? env.INSTANCES ?? '2')
   const n = Number(raw)
   if (!Number.isInteger(n) || n < 1 || n > 16) throw new Error(`--instances must be a whole number from 1 to 16 (got ${raw})`)
   return n
@@ -22,8 +22,13 @@ buildClient()
 const local = await startLocalServices(url)
 // Every instance: the one database and session secret (a session made on one is valid on all), plain HTTP on loopback.
 const env: Record<string, string> = {
-  DATABASE_URL: url, SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production',
-  LAN: 'false', TLS: 'false', ...local.env,
+  DATABASE_URL: url,
+  SESSION_SECRET: sessionSecret(),
+  CLIENT_DIR: join(root, 'dist'),
+  NODE_ENV: process.env.NODE_ENV ?? 'production',
+  LAN: 'false',
+  TLS: 'false',
+  ...local.env,
 }
 const instances: InstanceProcess[] = await Promise.all(Array.from({ length: n }, (_, i) => spawnInstance(instanceName(i), env, { echo: true })))
 const proxy = await startProxy({ port: app.port, host: process.env.HOST ?? '127.0.0.1', targets: instances.map((i) => i.url) })

@@ -49,7 +49,8 @@ export async function startLocalServices(url: string) {
   const payFake = process.env.STRIPE_SECRET_KEY ? null : await startPayFake({ port: Number(process.env.PAY_FAKE_PORT ?? 12111), anyPortIfTaken: true })
   if (payFake) console.log(`[pay] local test payment provider on ${payFake.url}`)
   return {
-    mailbox, payFake,
+    mailbox,
+    payFake,
     /** What the app needs to reach them. */
     env: { ...(mailbox ? { SMTP_URL: mailbox.url } : {}), ...(payFake ? { PAY_FAKE_URL: payFake.url } : {}) } as Record<string, string>,
     async close() {

@@ -15,7 +15,17 @@ buildClient()
 // Mail and payments: the configured providers, or the local stand-ins (see the outbox page and the test payment page).
 const local = await startLocalServices(url)
 const { payFake } = local
-const config = loadConfig({ TLS_DIR: join(dataRoot, 'tls'), ...process.env, ...lan, DATABASE_URL: url, PORT: String(app.port), SESSION_SECRET: sessionSecret(), CLIENT_DIR: join(root, 'dist'), NODE_ENV: process.env.NODE_ENV ?? 'production', ...local.env })
+const config = loadConfig({
+  TLS_DIR: join(dataRoot, 'tls'),
+  ...process.env,
+  ...lan,
+  DATABASE_URL: url,
+  PORT: String(app.port),
+  SESSION_SECRET: sessionSecret(),
+  CLIENT_DIR: join(root, 'dist'),
+  NODE_ENV: process.env.NODE_ENV ?? 'production',
+  ...local.env,
+})
 const server = await startServer(config)
 // Over HTTPS on every address (LAN), this computer reaches the app on loopback, trusting the workshop's CA.
 const localUrl = server.tls && /^(0\.0\.0\.0|::)$/.test(config.HOST) ? `https://127.0.0.1:${server.port}` : server.url

@@ -31,14 +31,16 @@ const args = process.argv.slice(2)
 if (!args.length) {
   for (const script of ['typecheck', 'lint']) {
     const r = spawnSync('npm', ['run', '-s', script], { cwd: root, stdio: 'inherit' })
-    if (r.status !== 0) { console.error(`[test] ${script} failed`); if (!process.env.KEEP_TEST_DB) stopCluster(test.pgDir); process.exit(r.status ?? 1) }
+    if (r.status !== 0) {
+      console.error(`[test] ${script} failed`)
+      if (!process.env.KEEP_TEST_DB) stopCluster(test.pgDir)
+      process.exit(r.status ?? 1)
+    }
   }
 }
 const env = { ...process.env, TEST_PG_PORT: String(test.pgPort), TEST_DATABASE_TEMPLATE: test.dbName, NODE_ENV: 'test' }
 const vitest = (a: string[]) => spawnSync(join(root, 'node_modules/.bin/vitest'), ['run', ...a], { cwd: root, stdio: 'inherit', env }).status ?? 1
 // With no arguments: everything, the browser flows after the rest so they do not compete for the two cores.
-const status = args.length
-  ? vitest(args)
-  : Math.max(vitest(['--project', 'unit', '--project', 'server', '--project', 'client']), vitest(['--project', 'e2e']))
+const status = args.length ? vitest(args) : Math.max(vitest(['--project', 'unit', '--project', 'server', '--project', 'client']), vitest(['--project', 'e2e']))
 if (!process.env.KEEP_TEST_DB) stopCluster(test.pgDir)
 process.exit(status)

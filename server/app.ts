@@ -27,7 +27,14 @@ import { handleWebhook } from './services/payments'
 import { ownAppUrl } from './lib/public-url'
 import { CA_PATH, caCertificateHandler } from './lib/tls'
 
-export interface AppDeps { db: Db; pool: pg.Pool; config: Config; realtime?: Realtime; mailer?: Mailer; /** The job queue; the caller starts it with the returned deps. */ jobs?: Jobs<Deps> }
+export interface AppDeps {
+  db: Db
+  pool: pg.Pool
+  config: Config
+  realtime?: Realtime
+  mailer?: Mailer
+  /** The job queue; the caller starts it with the returned deps. */ jobs?: Jobs<Deps>
+}
 
 export function createApp({ db, pool, config, realtime = new Realtime(), mailer = createMailer(config), jobs }: AppDeps) {
   const app = express()
@@ -61,7 +68,25 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   realtime.useDatabase(pool)
   const cache = new Cache(realtime)
   useSessionUserCache(db, cache)
-  const deps: Deps = { db, realtime, cache, passport, mailer, uploadDir: resolve(config.UPLOAD_DIR), uploadMaxBytes: config.UPLOAD_MAX_BYTES, listenHost: config.HOST, pay: createPayProvider(config), appUrl: ownAppUrl(config), accounts: { inviteHours: config.INVITE_LINK_HOURS, resetMinutes: config.RESET_LINK_MINUTES, pinSeconds: config.BENCH_PIN_SECONDS, benchSessionDays: config.BENCH_SESSION_DAYS }, checkAnswers: config.NODE_ENV !== 'production' }
+  const deps: Deps = {
+    db,
+    realtime,
+    cache,
+    passport,
+    mailer,
+    uploadDir: resolve(config.UPLOAD_DIR),
+    uploadMaxBytes: config.UPLOAD_MAX_BYTES,
+    listenHost: config.HOST,
+    pay: createPayProvider(config),
+    appUrl: ownAppUrl(config),
+    accounts: {
+      inviteHours: config.INVITE_LINK_HOURS,
+      resetMinutes: config.RESET_LINK_MINUTES,
+      pinSeconds: config.BENCH_PIN_SECONDS,
+      benchSessionDays: config.BENCH_SESSION_DAYS,
+    },
+    checkAnswers: config.NODE_ENV !== 'production',
+  }
   if (jobs) deps.jobs = jobs
 
   const api = express.Router()
@@ -72,31 +97,32 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   // The tab that sent a write is named in the events it causes, so that tab can skip its own echo.
   api.use(realtimeOrigin)
   // Failed sign-ins are limited per address and per account; a sign-in that succeeds does not count (tablets behind one router sign in all day).
-  const failedSignIns = (what: string, keyGenerator?: (req: express.Request) => string) => rateLimit({
-    windowMs: 15 * 60_000,
-    limit: config.LOGIN_ATTEMPTS_PER_15_MIN,
-    skipSuccessfulRequests: true,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    ...(keyGenerator ? { keyGenerator } : {}),
-    handler: (_req, _res, next) =>
-      next(new AppError({ code: 'rate-limited', message: `Too many failed sign-ins ${what}; wait 15 minutes and try again.` })),
-  })
+  const failedSignIns = (what: string, keyGenerator?: (req: express.Request) => string) =>
+    rateLimit({
+      windowMs: 15 * 60_000,
+      limit: config.LOGIN_ATTEMPTS_PER_15_MIN,
+      skipSuccessfulRequests: true,
+      standardHeaders: 'draft-8',
+      legacyHeaders: false,
+      ...(keyGenerator ? { keyGenerator } : {}),
+      handler: (_req, _res, next) => next(new AppError({ code: 'rate-limited', message: `Too many failed sign-ins ${what}; wait 15 minutes and try again.` })),
+    })
   const accountKey = (req: express.Request) => {
     const email = (req.body as { email?: unknown } | undefined)?.email
     return `account:${typeof email === 'string' ? email.trim().toLowerCase() : ''}`
   }
   api.post('/session', failedSignIns('from this address'), failedSignIns('for this account', accountKey))
   // Invitations, reset requests, one-time links and PIN checks are limited per address (reset requests also per address asked for).
-  const accountRequests = (what: string, o: { keyGenerator?: (req: express.Request) => string; failedOnly?: boolean } = {}) => rateLimit({
-    windowMs: 15 * 60_000,
-    limit: config.ACCOUNT_REQUESTS_PER_15_MIN,
-    skipSuccessfulRequests: o.failedOnly ?? false,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    ...(o.keyGenerator ? { keyGenerator: o.keyGenerator } : {}),
-    handler: (_req, _res, next) => next(new AppError({ code: 'rate-limited', message: `Too many ${what}; wait 15 minutes and try again.` })),
-  })
+  const accountRequests = (what: string, o: { keyGenerator?: (req: express.Request) => string; failedOnly?: boolean } = {}) =>
+    rateLimit({
+      windowMs: 15 * 60_000,
+      limit: config.ACCOUNT_REQUESTS_PER_15_MIN,
+      skipSuccessfulRequests: o.failedOnly ?? false,
+      standardHeaders: 'draft-8',
+      legacyHeaders: false,
+      ...(o.keyGenerator ? { keyGenerator: o.keyGenerator } : {}),
+      handler: (_req, _res, next) => next(new AppError({ code: 'rate-limited', message: `Too many ${what}; wait 15 minutes and try again.` })),
+    })
   api.post(['/invitations', '/invitations/:id/resend'], accountRequests('invitations sent from here'))
   api.post('/password-reset', accountRequests('reset requests from here'), accountRequests('reset requests for this address', { keyGenerator: accountKey }))
   api.use('/account-links', accountRequests('tries of one-time links from here'))
@@ -105,7 +131,10 @@ export function createApp({ db, pool, config, realtime = new Realtime(), mailer 
   for (const spec of allRoutes) register(api, spec, deps)
   // The provider's signed webhook: no session and no CSRF token, the raw body is what the signature covers.
   app.post('/api/payments/webhook', express.raw({ type: () => true, limit: '1mb' }), (req, res, next) => {
-    handleWebhook(deps, Buffer.isBuffer(req.body) ? req.body : Buffer.alloc(0), req.get('stripe-signature')).then(async (r) => { await deps.realtime.flush(); res.json(r) }, next)
+    handleWebhook(deps, Buffer.isBuffer(req.body) ? req.body : Buffer.alloc(0), req.get('stripe-signature')).then(async (r) => {
+      await deps.realtime.flush()
+      res.json(r)
+    }, next)
   })
   api.use((req, _res, next) => next(new AppError({ code: 'not-found', message: `No such API route: ${req.method} ${req.baseUrl}${req.path}` })))
   app.use('/api', api)

@@ -7,8 +7,16 @@ import { costOrders } from '../services/costing'
 
 /** Typical metal in one finished piece (g) by routing; invented for the demo but in the range of such pieces. */
 const METAL_G: Record<string, number> = {
-  'pave-pendant': 3.5, 'bezel-ring': 4.5, 'wedding-pair': 9, 'retip-claws': 0.3, 'stud-run': 0.8, 'ring-resize': 0.4,
-  'etched-cuff': 28, 'signet-ring': 9, 'halo-ring': 4.2, 'chain-repair': 0.2,
+  'pave-pendant': 3.5,
+  'bezel-ring': 4.5,
+  'wedding-pair': 9,
+  'retip-claws': 0.3,
+  'stud-run': 0.8,
+  'ring-resize': 0.4,
+  'etched-cuff': 28,
+  'signet-ring': 9,
+  'halo-ring': 4.2,
+  'chain-repair': 0.2,
 }
 /** What the caster and the assay office charge per piece, in pence (invented demo figures: £24.00 and £2.80). */
 const OUTSIDE_PER_UNIT_MINOR: Record<string, number> = { casting: 2400, hallmarking: 280 }
@@ -16,16 +24,25 @@ const OUTSIDE_PER_UNIT_MINOR: Record<string, number> = { casting: 2400, hallmark
 export async function seedCosting(tx: Trx, workshopId: number): Promise<void> {
   let a = 604_12
   // Park–Miller: its own numbers, so the prices are the same on every machine whatever else the demo draws.
-  const rand = () => ((a = (a * 16_807) % 2_147_483_647) / 2_147_483_647)
+  const rand = () => (a = (a * 16_807) % 2_147_483_647) / 2_147_483_647
   const templates = await tx.select().from(s.routingTemplates).where(eq(s.routingTemplates.workshopId, workshopId))
-  const steps = await tx.select({ st: s.templateSteps, code: s.operationKinds.code }).from(s.templateSteps).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.templateSteps.kindId))
+  const steps = await tx
+    .select({ st: s.templateSteps, code: s.operationKinds.code })
+    .from(s.templateSteps)
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.templateSteps.kindId))
     .where(inArray(s.templateSteps.templateId, [...templates.map((t) => t.id), -1]))
-  const costs = steps.filter((x) => OUTSIDE_PER_UNIT_MINOR[x.code] !== undefined).map((x) => ({ templateId: x.st.templateId, stepKey: x.st.key, outsideCostMinor: OUTSIDE_PER_UNIT_MINOR[x.code]! }))
+  const costs = steps
+    .filter((x) => OUTSIDE_PER_UNIT_MINOR[x.code] !== undefined)
+    .map((x) => ({ templateId: x.st.templateId, stepKey: x.st.key, outsideCostMinor: OUTSIDE_PER_UNIT_MINOR[x.code]! }))
   if (costs.length) await tx.insert(s.templateStepCosts).values(costs)
   const bags = await tx.select().from(s.jobBags).where(eq(s.jobBags.workshopId, workshopId))
   for (const bag of bags) {
     const code = templates.find((t) => t.id === bag.templateId)?.code ?? ''
-    if (METAL_G[code] !== undefined) await tx.update(s.jobBags).set({ params: { ...bag.params, metalWeightG: METAL_G[code] } }).where(eq(s.jobBags.id, bag.id))
+    if (METAL_G[code] !== undefined)
+      await tx
+        .update(s.jobBags)
+        .set({ params: { ...bag.params, metalWeightG: METAL_G[code] } })
+        .where(eq(s.jobBags.id, bag.id))
   }
   // Priced from the estimate: most at 30–55 % of the price, one in eight thin (8–15 %): a favour to a regular or a price held from last year.
   const orderIds = [...new Set(bags.map((b) => b.orderId))]
@@ -36,6 +53,9 @@ export async function seedCosting(tx: Trx, workshopId: number): Promise<void> {
     const m = rand() < 0.125 ? 0.08 + rand() * 0.07 : 0.3 + rand() * 0.25
     // Whole pounds, up to the next 5 (the demo workshop prices in GBP), in pence.
     const price = Math.ceil(cost / (1 - m) / 500) * 500
-    await tx.update(s.orders).set({ priceQuotedMinor: price }).where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
+    await tx
+      .update(s.orders)
+      .set({ priceQuotedMinor: price })
+      .where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
   }
 }

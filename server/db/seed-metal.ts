@@ -48,18 +48,31 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
   const [w] = await tx.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   const zone = w!.timeZone
   const localDay = (d: Date | string, plus = 0) => dayjs(d).tz(zone).add(plus, 'day').format('YYYY-MM-DD')
-  const [owner] = await tx.select().from(s.users).where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'owner')))
-  const [manager] = await tx.select().from(s.users).where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'manager')))
+  const [owner] = await tx
+    .select()
+    .from(s.users)
+    .where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'owner')))
+  const [manager] = await tx
+    .select()
+    .from(s.users)
+    .where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'manager')))
 
-  const alloys = await tx.insert(s.alloys).values(ALLOYS.map((a) => ({ workshopId, code: a.code, name: a.name, metal: a.metal, fineness: a.fineness, densityGPerCm3: a.density }))).returning()
-  await tx.insert(s.alloyPrices).values(ALLOYS.flatMap((a, i) => [
-    // The year before: 4 % under the first price, so the demo's older orders have a price on the day they were taken.
-    { alloyId: alloys[i]!.id, pricePerGramMinor: Math.round(a.prices[0] * 0.96), effectiveOn: localDay(now, -400), setBy: owner!.id },
-    { alloyId: alloys[i]!.id, pricePerGramMinor: a.prices[0], effectiveOn: localDay(now, -45), setBy: owner!.id },
-    { alloyId: alloys[i]!.id, pricePerGramMinor: a.prices[1], effectiveOn: localDay(now, -12), setBy: owner!.id },
-  ]))
+  const alloys = await tx
+    .insert(s.alloys)
+    .values(ALLOYS.map((a) => ({ workshopId, code: a.code, name: a.name, metal: a.metal, fineness: a.fineness, densityGPerCm3: a.density })))
+    .returning()
+  await tx.insert(s.alloyPrices).values(
+    ALLOYS.flatMap((a, i) => [
+      // The year before: 4 % under the first price, so the demo's older orders have a price on the day they were taken.
+      { alloyId: alloys[i]!.id, pricePerGramMinor: Math.round(a.prices[0] * 0.96), effectiveOn: localDay(now, -400), setBy: owner!.id },
+      { alloyId: alloys[i]!.id, pricePerGramMinor: a.prices[0], effectiveOn: localDay(now, -45), setBy: owner!.id },
+      { alloyId: alloys[i]!.id, pricePerGramMinor: a.prices[1], effectiveOn: localDay(now, -12), setBy: owner!.id },
+    ]),
+  )
   const kinds = await tx.select().from(s.operationKinds).where(eq(s.operationKinds.workshopId, workshopId))
-  await tx.insert(s.lossTolerances).values(kinds.map((k) => ({ kindId: k.id, tolerancePct: DEFAULT_LOSS_TOLERANCE_PCT[k.code] ?? FALLBACK_LOSS_TOLERANCE_PCT })))
+  await tx
+    .insert(s.lossTolerances)
+    .values(kinds.map((k) => ({ kindId: k.id, tolerancePct: DEFAULT_LOSS_TOLERANCE_PCT[k.code] ?? FALLBACK_LOSS_TOLERANCE_PCT })))
   const tolOf = new Map(kinds.map((k) => [k.id, DEFAULT_LOSS_TOLERANCE_PCT[k.code] ?? FALLBACK_LOSS_TOLERANCE_PCT]))
   const kindCode = new Map(kinds.map((k) => [k.id, k.code]))
   const alloyFor = (metalCode: string) => {
@@ -69,23 +82,44 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
 
   // Time records of finished work in the last month: each step's metal is weighed out at its first start and back at its last end.
   const since = new Date(now.getTime() - HISTORY_DAYS * 86_400_000).toISOString()
-  const records = await tx.select({ r: s.timeRecords, op: s.operations, bag: s.jobBags, userId: s.people.userId }).from(s.timeRecords)
+  const records = await tx
+    .select({ r: s.timeRecords, op: s.operations, bag: s.jobBags, userId: s.people.userId })
+    .from(s.timeRecords)
     .innerJoin(s.operations, eq(s.operations.id, s.timeRecords.operationId))
     .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
     .innerJoin(s.people, eq(s.people.id, s.timeRecords.personId))
     .where(and(eq(s.jobBags.workshopId, workshopId), isNotNull(s.timeRecords.endedAt), gte(s.timeRecords.startedAt, since)))
     .orderBy(asc(s.timeRecords.startedAt))
-  const moments = records.map((x) => new Date(x.r.endedAt as unknown as string)).filter((d) => d <= now).sort((a, b) => a.getTime() - b.getTime())
+  const moments = records
+    .map((x) => new Date(x.r.endedAt as unknown as string))
+    .filter((d) => d <= now)
+    .sort((a, b) => a.getTime() - b.getTime())
   /** A moment someone was at work, about `daysAgo` days before now. */
   const workMomentNear = (daysAgo: number) => moments.find((m) => m.getTime() >= now.getTime() - daysAgo * 86_400_000) ?? moments.at(-1) ?? now
   const iso = (d: Date | string) => new Date(d).toISOString()
 
   const rows: (typeof s.metalMovements.$inferInsert)[] = []
   const bought = workMomentNear(HISTORY_DAYS + 1)
-  for (const a of alloys) rows.push({ workshopId, alloyId: a.id, kind: 'bought', weightMg: BOUGHT_G[a.code]! * 1000, costMinor: BOUGHT_G[a.code]! * ALLOYS.find((x) => x.code === a.code)!.prices[0], recordedBy: manager!.id, recordedAt: iso(bought), reason: 'Monthly stock order' })
+  for (const a of alloys)
+    rows.push({
+      workshopId,
+      alloyId: a.id,
+      kind: 'bought',
+      weightMg: BOUGHT_G[a.code]! * 1000,
+      costMinor: BOUGHT_G[a.code]! * ALLOYS.find((x) => x.code === a.code)!.prices[0],
+      recordedBy: manager!.id,
+      recordedAt: iso(bought),
+      reason: 'Monthly stock order',
+    })
 
   // Steps per job bag (only bags whose whole metal work falls in the month, so each account starts with its first issue).
-  const bags = new Map<number, { bag: typeof s.jobBags.$inferSelect; steps: Map<number, { op: typeof s.operations.$inferSelect; personId: number; userId: number | null; start: string; end: string }> }>()
+  const bags = new Map<
+    number,
+    {
+      bag: typeof s.jobBags.$inferSelect
+      steps: Map<number, { op: typeof s.operations.$inferSelect; personId: number; userId: number | null; start: string; end: string }>
+    }
+  >()
   for (const x of records) {
     if (!METAL_KINDS.has(kindCode.get(x.op.kindId) ?? '') || x.bag.status !== 'complete') continue
     const b = bags.get(x.bag.id) ?? bags.set(x.bag.id, { bag: x.bag, steps: new Map() }).get(x.bag.id)!
@@ -93,12 +127,24 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
     if (!st) b.steps.set(x.op.id, { op: x.op, personId: x.r.personId, userId: x.userId, start: iso(x.r.startedAt), end: iso(x.r.endedAt!) })
     else if (iso(x.r.endedAt!) > st.end) st.end = iso(x.r.endedAt!)
   }
-  const allFirst = await tx.select({ jobBagId: s.operations.jobBagId, started: s.timeRecords.startedAt }).from(s.timeRecords).innerJoin(s.operations, eq(s.operations.id, s.timeRecords.operationId))
+  const allFirst = await tx
+    .select({ jobBagId: s.operations.jobBagId, started: s.timeRecords.startedAt })
+    .from(s.timeRecords)
+    .innerJoin(s.operations, eq(s.operations.id, s.timeRecords.operationId))
     .where(inArray(s.operations.jobBagId, [...bags.keys(), -1]))
   const startedBefore = new Set(allFirst.filter((r) => iso(r.started) < since).map((r) => r.jobBagId))
 
   const scrapOf: Record<string, number> = { forging: 0.04, sawing: 0.1, filing: 0.01, drilling: 0.005, setting: 0.003, soldering: 0, polishing: 0, etching: 0 }
-  const lemelOf: Record<string, number> = { forging: 0, sawing: 0.01, filing: 0.025, drilling: 0.004, setting: 0.004, soldering: 0, polishing: 0.006, etching: 0 }
+  const lemelOf: Record<string, number> = {
+    forging: 0,
+    sawing: 0.01,
+    filing: 0.025,
+    drilling: 0.004,
+    setting: 0.004,
+    soldering: 0,
+    polishing: 0.006,
+    etching: 0,
+  }
   for (const { bag, steps } of bags.values()) {
     if (startedBefore.has(bag.id)) continue
     const alloy = alloyFor((bag.params as { metal?: string }).metal ?? '')
@@ -120,7 +166,14 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
       const piece = issued - lossMg - scrap - lemel
       if (piece <= 0) return
       const common = { workshopId, alloyId: alloy.id, jobBagId: bag.id, operationId: st.op.id, personId: st.personId, recordedBy: st.userId }
-      rows.push({ ...common, kind: 'issued', weightMg: issued, source: i === 0 && fromCustomer ? 'customer' : 'stock', recordedAt: st.start, reason: i === 0 && fromCustomer ? 'Customer’s old gold, melted and rolled' : '' })
+      rows.push({
+        ...common,
+        kind: 'issued',
+        weightMg: issued,
+        source: i === 0 && fromCustomer ? 'customer' : 'stock',
+        recordedAt: st.start,
+        reason: i === 0 && fromCustomer ? 'Customer’s old gold, melted and rolled' : '',
+      })
       rows.push({ ...common, kind: 'returned', form: 'piece', weightMg: piece, recordedAt: st.end })
       if (scrap > 0) rows.push({ ...common, kind: 'returned', form: 'scrap', weightMg: scrap, recordedAt: st.end })
       if (lemel > 0) rows.push({ ...common, kind: 'returned', form: 'lemel', weightMg: lemel, recordedAt: st.end })
@@ -132,7 +185,14 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
   // One weighing corrected by the manager: the scale was not tared with the tray on it.
   const toCorrect = inserted.find((m) => m.kind === 'returned' && m.form === 'scrap' && m.weightMg > 800)
   if (toCorrect) {
-    await tx.insert(s.metalMovements).values({ ...withoutId(toCorrect), weightMg: -300, correctsId: toCorrect.id, reason: 'Weighed with the tray on; scale not tared', recordedBy: manager!.id, recordedAt: iso(new Date(new Date(toCorrect.recordedAt as unknown as string).getTime() + 5 * 60_000)) })
+    await tx.insert(s.metalMovements).values({
+      ...withoutId(toCorrect),
+      weightMg: -300,
+      correctsId: toCorrect.id,
+      reason: 'Weighed with the tray on; scale not tared',
+      recordedBy: manager!.id,
+      recordedAt: iso(new Date(new Date(toCorrect.recordedAt as unknown as string).getTime() + 5 * 60_000)),
+    })
   }
 
   // Refining: the silver scrap and lemel of the first three weeks went in lot RL-0001, sent and settled; 9 ct scrap collects in RL-0002.
@@ -141,23 +201,82 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
   const collectedBy = workMomentNear(14)
   const sentAt = workMomentNear(12)
   const settledAt = workMomentNear(4)
-  const scrapOfAlloy = (alloyId: number, form: 'scrap' | 'lemel', before: Date) => inserted.filter((m) => m.alloyId === alloyId && m.kind === 'returned' && m.form === form && new Date(m.recordedAt as unknown as string) < before)
-    .reduce((t, m) => t + m.weightMg + (m.id === toCorrect?.id ? -300 : 0), 0)
+  const scrapOfAlloy = (alloyId: number, form: 'scrap' | 'lemel', before: Date) =>
+    inserted
+      .filter((m) => m.alloyId === alloyId && m.kind === 'returned' && m.form === form && new Date(m.recordedAt as unknown as string) < before)
+      .reduce((t, m) => t + m.weightMg + (m.id === toCorrect?.id ? -300 : 0), 0)
   const agScrap = scrapOfAlloy(silver.id, 'scrap', collectedBy)
   const agLemel = scrapOfAlloy(silver.id, 'lemel', collectedBy)
   const fineSent = fineMg(agScrap, silver.fineness) + fineMg(agLemel, silver.fineness)
   // Scrap refines at about 98 %, lemel (with sweepings) lower: 95 % over the lot is a usual figure (common practice, no source).
   const credited = Math.round(fineSent * 0.95)
-  const [lot1] = await tx.insert(s.refiningLots).values({ workshopId, number: 'RL-0001', status: 'settled', refiner: 'Severn Bullion Refiners', sentAt: iso(sentAt), settledAt: iso(settledAt), creditedFineMg: credited, creditedMinor: null, notes: 'Silver scrap and lemel; taken back as sterling casting grain', createdAt: collectedBy }).returning()
+  const [lot1] = await tx
+    .insert(s.refiningLots)
+    .values({
+      workshopId,
+      number: 'RL-0001',
+      status: 'settled',
+      refiner: 'Severn Bullion Refiners',
+      sentAt: iso(sentAt),
+      settledAt: iso(settledAt),
+      creditedFineMg: credited,
+      creditedMinor: null,
+      notes: 'Silver scrap and lemel; taken back as sterling casting grain',
+      createdAt: collectedBy,
+    })
+    .returning()
   const grainMg = Math.floor((credited * 1000) / silver.fineness)
   const lotRows: (typeof s.metalMovements.$inferInsert)[] = []
-  if (agScrap > 0) lotRows.push({ workshopId, alloyId: silver.id, kind: 'to-refining', form: 'scrap', weightMg: agScrap, refiningLotId: lot1!.id, recordedBy: manager!.id, recordedAt: iso(collectedBy) })
-  if (agLemel > 0) lotRows.push({ workshopId, alloyId: silver.id, kind: 'to-refining', form: 'lemel', weightMg: agLemel, refiningLotId: lot1!.id, recordedBy: manager!.id, recordedAt: iso(collectedBy) })
-  if (grainMg > 0) lotRows.push({ workshopId, alloyId: silver.id, kind: 'from-refining', weightMg: grainMg, refiningLotId: lot1!.id, recordedBy: owner!.id, recordedAt: iso(settledAt), reason: 'Sterling casting grain from the credited fine silver' })
-  const [lot2] = await tx.insert(s.refiningLots).values({ workshopId, number: 'RL-0002', status: 'open', refiner: 'Severn Bullion Refiners', notes: '9 ct scrap', createdAt: workMomentNear(3) }).returning()
+  if (agScrap > 0)
+    lotRows.push({
+      workshopId,
+      alloyId: silver.id,
+      kind: 'to-refining',
+      form: 'scrap',
+      weightMg: agScrap,
+      refiningLotId: lot1!.id,
+      recordedBy: manager!.id,
+      recordedAt: iso(collectedBy),
+    })
+  if (agLemel > 0)
+    lotRows.push({
+      workshopId,
+      alloyId: silver.id,
+      kind: 'to-refining',
+      form: 'lemel',
+      weightMg: agLemel,
+      refiningLotId: lot1!.id,
+      recordedBy: manager!.id,
+      recordedAt: iso(collectedBy),
+    })
+  if (grainMg > 0)
+    lotRows.push({
+      workshopId,
+      alloyId: silver.id,
+      kind: 'from-refining',
+      weightMg: grainMg,
+      refiningLotId: lot1!.id,
+      recordedBy: owner!.id,
+      recordedAt: iso(settledAt),
+      reason: 'Sterling casting grain from the credited fine silver',
+    })
+  const [lot2] = await tx
+    .insert(s.refiningLots)
+    .values({ workshopId, number: 'RL-0002', status: 'open', refiner: 'Severn Bullion Refiners', notes: '9 ct scrap', createdAt: workMomentNear(3) })
+    .returning()
   const nineAt = workMomentNear(2)
   const nineScrap = scrapOfAlloy(nine.id, 'scrap', nineAt)
-  if (nineScrap > 0) lotRows.push({ workshopId, alloyId: nine.id, kind: 'to-refining', form: 'scrap', weightMg: nineScrap, refiningLotId: lot2!.id, recordedBy: manager!.id, recordedAt: iso(nineAt) })
+  if (nineScrap > 0)
+    lotRows.push({
+      workshopId,
+      alloyId: nine.id,
+      kind: 'to-refining',
+      form: 'scrap',
+      weightMg: nineScrap,
+      refiningLotId: lot2!.id,
+      recordedBy: manager!.id,
+      recordedAt: iso(nineAt),
+    })
   if (lotRows.length) await tx.insert(s.metalMovements).values(lotRows)
 }
 

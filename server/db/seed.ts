@@ -66,25 +66,104 @@ const BENCHES: { name: string; kind: string; kinds: KindCode[]; notes?: string }
   { name: 'Acid & etch station', kind: 'wet', kinds: ['etching'], notes: 'Fume cupboard, eyewash' },
 ]
 
-const PEOPLE: { user: string; name: string; rateMinor: number; skills: [KindCode, number, number][] ; pattern?: WorkSpan[] }[] = [
-  { user: 'setter@wrenfield.test', name: 'Ines Harrowby', rateMinor: 3800, skills: [['setting', 3, 1.15], ['drilling', 2, 1], ['inspection', 3, 1]] },
-  { user: 'trainee@wrenfield.test', name: 'Theo Brae', rateMinor: 1800, skills: [['setting', 1, 0.6], ['drilling', 2, 0.8], ['filing', 2, 0.9], ['polishing', 1, 0.8]] },
-  { user: 'priya@wrenfield.test', name: 'Priya Oduya', rateMinor: 3200, skills: [['forging', 3, 1.1], ['sawing', 3, 1], ['filing', 3, 1], ['soldering', 3, 1.1], ['drilling', 2, 1], ['etching', 2, 1]] },
-  { user: 'jonah@wrenfield.test', name: 'Jonah Vell', rateMinor: 3000, skills: [['forging', 2, 0.9], ['sawing', 3, 1.05], ['filing', 3, 1], ['soldering', 2, 0.95], ['drilling', 3, 1.1], ['polishing', 1, 0.8]] },
-  { user: 'ruth@wrenfield.test', name: 'Ruth Calder', rateMinor: 2600, skills: [['polishing', 3, 1.1], ['etching', 2, 1], ['inspection', 2, 1], ['filing', 1, 0.8]],
+const PEOPLE: { user: string; name: string; rateMinor: number; skills: [KindCode, number, number][]; pattern?: WorkSpan[] }[] = [
+  {
+    user: 'setter@wrenfield.test',
+    name: 'Ines Harrowby',
+    rateMinor: 3800,
+    skills: [
+      ['setting', 3, 1.15],
+      ['drilling', 2, 1],
+      ['inspection', 3, 1],
+    ],
+  },
+  {
+    user: 'trainee@wrenfield.test',
+    name: 'Theo Brae',
+    rateMinor: 1800,
+    skills: [
+      ['setting', 1, 0.6],
+      ['drilling', 2, 0.8],
+      ['filing', 2, 0.9],
+      ['polishing', 1, 0.8],
+    ],
+  },
+  {
+    user: 'priya@wrenfield.test',
+    name: 'Priya Oduya',
+    rateMinor: 3200,
+    skills: [
+      ['forging', 3, 1.1],
+      ['sawing', 3, 1],
+      ['filing', 3, 1],
+      ['soldering', 3, 1.1],
+      ['drilling', 2, 1],
+      ['etching', 2, 1],
+    ],
+  },
+  {
+    user: 'jonah@wrenfield.test',
+    name: 'Jonah Vell',
+    rateMinor: 3000,
+    skills: [
+      ['forging', 2, 0.9],
+      ['sawing', 3, 1.05],
+      ['filing', 3, 1],
+      ['soldering', 2, 0.95],
+      ['drilling', 3, 1.1],
+      ['polishing', 1, 0.8],
+    ],
+  },
+  {
+    user: 'ruth@wrenfield.test',
+    name: 'Ruth Calder',
+    rateMinor: 2600,
+    skills: [
+      ['polishing', 3, 1.1],
+      ['etching', 2, 1],
+      ['inspection', 2, 1],
+      ['filing', 1, 0.8],
+    ],
     // Four days a week.
-    pattern: WEEK.filter((w) => w.weekday !== 5) },
-  { user: 'manager@wrenfield.test', name: 'Sam Ottery', rateMinor: 3500, skills: [['filing', 2, 0.9], ['sawing', 2, 0.9], ['polishing', 2, 0.9], ['inspection', 3, 1], ['soldering', 1, 0.8]],
+    pattern: WEEK.filter((w) => w.weekday !== 5),
+  },
+  {
+    user: 'manager@wrenfield.test',
+    name: 'Sam Ottery',
+    rateMinor: 3500,
+    skills: [
+      ['filing', 2, 0.9],
+      ['sawing', 2, 0.9],
+      ['polishing', 2, 0.9],
+      ['inspection', 3, 1],
+      ['soldering', 1, 0.8],
+    ],
     // Mornings at the bench; afternoons planning.
-    pattern: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, start: '08:30', end: '12:30' })) },
+    pattern: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, start: '08:30', end: '12:30' })),
+  },
 ]
 
-type Step = { key: string; kind: KindCode; name: string; base: number; perStone?: number; perMm?: number; bands?: { melee?: number; small?: number; large?: number }; level?: number; wait?: number; lead?: number; after?: string[] }
+type Step = {
+  key: string
+  kind: KindCode
+  name: string
+  base: number
+  perStone?: number
+  perMm?: number
+  bands?: { melee?: number; small?: number; large?: number }
+  level?: number
+  wait?: number
+  lead?: number
+  after?: string[]
+}
 // Setting: melee is fiddly to pick up and seat, larger stones need more metal moved for their seat (demo figures; minutes per
 // stone and their bands have no published source and should be learned from actual times).
 const SETTING_BANDS = { melee: 1.2, large: 1.5 }
 const TEMPLATES: { code: string; name: string; description: string; learningRate?: number; steps: Step[] }[] = [
-  { code: 'pave-pendant', name: 'Pavé pendant in laminated metal', description: 'Laminated silver/copper disc, bail soldered, pavé of small diamonds.',
+  {
+    code: 'pave-pendant',
+    name: 'Pavé pendant in laminated metal',
+    description: 'Laminated silver/copper disc, bail soldered, pavé of small diamonds.',
     steps: [
       { key: 'laminate', kind: 'forging', name: 'Laminate and roll sheet', base: 90, level: 2 },
       { key: 'bail', kind: 'sawing', name: 'Saw and form bail', base: 25 },
@@ -96,8 +175,12 @@ const TEMPLATES: { code: string; name: string; description: string; learningRate
       { key: 'set', kind: 'setting', name: 'Set pavé', base: 30, perStone: 7, bands: SETTING_BANDS, level: 2, after: ['drill'] },
       { key: 'polish', kind: 'polishing', name: 'Final polish', base: 35, after: ['set'] },
       { key: 'inspect', kind: 'inspection', name: 'Inspect and bag', base: 10, after: ['polish'] },
-    ] },
-  { code: 'bezel-ring', name: 'Bezel-set solitaire ring', description: 'Forged band with a soldered bezel cup.',
+    ],
+  },
+  {
+    code: 'bezel-ring',
+    name: 'Bezel-set solitaire ring',
+    description: 'Forged band with a soldered bezel cup.',
     steps: [
       { key: 'band', kind: 'forging', name: 'Forge band', base: 45 },
       { key: 'bezel', kind: 'soldering', name: 'Make and solder bezel', base: 40, wait: 20, level: 2, after: ['band'] },
@@ -106,25 +189,38 @@ const TEMPLATES: { code: string; name: string; description: string; learningRate
       { key: 'set', kind: 'setting', name: 'Set stone in bezel', base: 45, perStone: 0, level: 2, after: ['hallmark'] },
       { key: 'polish', kind: 'polishing', name: 'Polish', base: 30, after: ['set'] },
       { key: 'inspect', kind: 'inspection', name: 'Inspect and bag', base: 10, after: ['polish'] },
-    ] },
-  { code: 'wedding-pair', name: 'Wedding band pair', description: 'Two cast bands, matched finish.',
+    ],
+  },
+  {
+    code: 'wedding-pair',
+    name: 'Wedding band pair',
+    description: 'Two cast bands, matched finish.',
     steps: [
       { key: 'cast', kind: 'casting', name: 'Cast bands (caster)', base: 0, lead: 5 },
       { key: 'file', kind: 'filing', name: 'Clean castings and size', base: 60, after: ['cast'] },
       { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['file'] },
       { key: 'polish', kind: 'polishing', name: 'Polish and finish pair', base: 50, after: ['hallmark'] },
       { key: 'inspect', kind: 'inspection', name: 'Inspect and box', base: 10, after: ['polish'] },
-    ] },
-  { code: 'retip-claws', name: 'Repair: retip claws', description: 'Rebuild worn claws on a customer ring; check stones first.',
+    ],
+  },
+  {
+    code: 'retip-claws',
+    name: 'Repair: retip claws',
+    description: 'Rebuild worn claws on a customer ring; check stones first.',
     steps: [
       { key: 'assess', kind: 'inspection', name: 'Assess and record stones', base: 15, level: 2 },
       { key: 'retip', kind: 'soldering', name: 'Retip claws', base: 15, perStone: 0, level: 3, wait: 15, after: ['assess'] },
       { key: 'file', kind: 'filing', name: 'Shape tips', base: 20, after: ['retip'] },
       { key: 'tighten', kind: 'setting', name: 'Tighten and check stones', base: 20, level: 2, after: ['file'] },
       { key: 'polish', kind: 'polishing', name: 'Polish', base: 20, after: ['tighten'] },
-    ] },
+    ],
+  },
   // Learning curve: each doubling of the run takes 85 % of the time per pair (a usual figure for repeated hand work; common practice, no source).
-  { code: 'stud-run', name: 'Production run: stud earrings', description: 'Cast studs with soldered posts, per pair minutes.', learningRate: 0.85,
+  {
+    code: 'stud-run',
+    name: 'Production run: stud earrings',
+    description: 'Cast studs with soldered posts, per pair minutes.',
+    learningRate: 0.85,
     steps: [
       { key: 'cast', kind: 'casting', name: 'Cast tree (caster)', base: 0, lead: 5 },
       { key: 'clean', kind: 'filing', name: 'Cut off and clean', base: 5, after: ['cast'] },
@@ -132,15 +228,23 @@ const TEMPLATES: { code: string; name: string; description: string; learningRate
       { key: 'polish', kind: 'polishing', name: 'Barrel and polish', base: 4, after: ['post'] },
       { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['polish'] },
       { key: 'pack', kind: 'inspection', name: 'Pair and pack', base: 1.5, after: ['hallmark'] },
-    ] },
-  { code: 'ring-resize', name: 'Repair: ring resize', description: 'Cut, add or remove metal, solder, clean up.',
+    ],
+  },
+  {
+    code: 'ring-resize',
+    name: 'Repair: ring resize',
+    description: 'Cut, add or remove metal, solder, clean up.',
     steps: [
       { key: 'cut', kind: 'sawing', name: 'Cut shank', base: 10 },
       { key: 'solder', kind: 'soldering', name: 'Solder shank', base: 20, wait: 15, level: 2, after: ['cut'] },
       { key: 'file', kind: 'filing', name: 'True up and file', base: 15, after: ['solder'] },
       { key: 'polish', kind: 'polishing', name: 'Polish', base: 20, after: ['file'] },
-    ] },
-  { code: 'etched-cuff', name: 'Etched cuff', description: 'Sheet cuff with an etched pattern, oxidised recesses.',
+    ],
+  },
+  {
+    code: 'etched-cuff',
+    name: 'Etched cuff',
+    description: 'Sheet cuff with an etched pattern, oxidised recesses.',
     steps: [
       { key: 'blank', kind: 'sawing', name: 'Saw blank', base: 25 },
       { key: 'resist', kind: 'filing', name: 'Clean and apply resist', base: 30, after: ['blank'] },
@@ -150,16 +254,24 @@ const TEMPLATES: { code: string; name: string; description: string; learningRate
       { key: 'oxidise', kind: 'etching', name: 'Oxidise and relieve', base: 25, after: ['hallmark'] },
       // Polishing grows with the cuff's length: 14 min + 0.1 min a millimetre (30 min for a 160 mm cuff; demo figures).
       { key: 'polish', kind: 'polishing', name: 'Polish highlights', base: 14, perMm: 0.1, after: ['oxidise'] },
-    ] },
-  { code: 'signet-ring', name: 'Signet ring', description: 'Cast signet, hand finished.',
+    ],
+  },
+  {
+    code: 'signet-ring',
+    name: 'Signet ring',
+    description: 'Cast signet, hand finished.',
     steps: [
       { key: 'cast', kind: 'casting', name: 'Cast (caster)', base: 0, lead: 5 },
       { key: 'file', kind: 'filing', name: 'Clean up and size', base: 50, after: ['cast'] },
       { key: 'hallmark', kind: 'hallmarking', name: 'Hallmark', base: 0, lead: 3, after: ['file'] },
       { key: 'polish', kind: 'polishing', name: 'Polish', base: 40, after: ['hallmark'] },
       { key: 'inspect', kind: 'inspection', name: 'Inspect and box', base: 10, after: ['polish'] },
-    ] },
-  { code: 'halo-ring', name: 'Halo engagement ring', description: 'Cast head and fabricated shank joined, centre and halo set.',
+    ],
+  },
+  {
+    code: 'halo-ring',
+    name: 'Halo engagement ring',
+    description: 'Cast head and fabricated shank joined, centre and halo set.',
     steps: [
       { key: 'head', kind: 'casting', name: 'Cast halo head (caster)', base: 0, lead: 5 },
       { key: 'shank', kind: 'forging', name: 'Forge shank', base: 50, level: 2 },
@@ -169,27 +281,69 @@ const TEMPLATES: { code: string; name: string; description: string; learningRate
       { key: 'set', kind: 'setting', name: 'Set centre and halo', base: 40, perStone: 8, bands: SETTING_BANDS, level: 3, after: ['hallmark'] },
       { key: 'polish', kind: 'polishing', name: 'Final polish', base: 40, after: ['set'] },
       { key: 'inspect', kind: 'inspection', name: 'Inspect and box', base: 15, after: ['polish'] },
-    ] },
-  { code: 'chain-repair', name: 'Repair: chain link', description: 'Solder a broken link, clean up.',
+    ],
+  },
+  {
+    code: 'chain-repair',
+    name: 'Repair: chain link',
+    description: 'Solder a broken link, clean up.',
     steps: [
       { key: 'solder', kind: 'soldering', name: 'Solder link', base: 20, wait: 15 },
       { key: 'polish', kind: 'polishing', name: 'Clean and polish', base: 15, after: ['solder'] },
-    ] },
+    ],
+  },
 ]
 
-const CUSTOMERS = ['Aldous Fenwright', 'Bea Tamsworth', 'Corin Oakhill', 'Delphine Marsh-Idle', 'Emrys Calloway', 'Farah Quillon', 'Gideon Pellow', 'Hana Brightwater',
-  'Ivo Stannard', 'Juno Halvergate', 'Kasimir Dunlow', 'Leonie Ashgrove', 'Milo Trevenna', 'Nell Wetherby', 'Orla Finchcombe', 'Pascal Rooke']
+const CUSTOMERS = [
+  'Aldous Fenwright',
+  'Bea Tamsworth',
+  'Corin Oakhill',
+  'Delphine Marsh-Idle',
+  'Emrys Calloway',
+  'Farah Quillon',
+  'Gideon Pellow',
+  'Hana Brightwater',
+  'Ivo Stannard',
+  'Juno Halvergate',
+  'Kasimir Dunlow',
+  'Leonie Ashgrove',
+  'Milo Trevenna',
+  'Nell Wetherby',
+  'Orla Finchcombe',
+  'Pascal Rooke',
+]
 
 const PIECES: Record<string, { piece: string; params: Partial<PieceParams> }[]> = {
-  'pave-pendant': [{ piece: 'Laminated disc pendant, 18 pavé', params: { metal: 'mixed', stoneCount: 18, stoneSizeMm: 1.5, sizeMm: 22 } }, { piece: 'Pavé moon pendant', params: { metal: 'silver-925', stoneCount: 12, stoneSizeMm: 1.3, sizeMm: 18 } }],
-  'bezel-ring': [{ piece: 'Sapphire bezel ring, size N', params: { metal: 'gold-18ct', stoneCount: 1, stoneSizeMm: 6 } }, { piece: 'Moonstone bezel ring', params: { metal: 'silver-925', stoneCount: 1, stoneSizeMm: 8 } }],
-  'wedding-pair': [{ piece: 'Court bands 3 mm and 5 mm', params: { metal: 'platinum-950', quantity: 1 } }, { piece: 'D-shape bands, brushed', params: { metal: 'gold-18ct', finish: 'brushed' } }],
-  'retip-claws': [{ piece: 'Six-claw solitaire: retip', params: { metal: 'gold-18ct', stoneCount: 6 } }, { piece: 'Trilogy ring: retip four claws', params: { metal: 'platinum-950', stoneCount: 4 } }],
-  'stud-run': [{ piece: 'Seed studs, 40 pairs', params: { metal: 'silver-925', quantity: 40 } }, { piece: 'Knot studs, 25 pairs', params: { metal: 'gold-9ct', quantity: 25 } }],
-  'ring-resize': [{ piece: 'Resize L to N', params: { metal: 'gold-9ct' } }, { piece: 'Resize Q to O', params: { metal: 'silver-925' } }],
+  'pave-pendant': [
+    { piece: 'Laminated disc pendant, 18 pavé', params: { metal: 'mixed', stoneCount: 18, stoneSizeMm: 1.5, sizeMm: 22 } },
+    { piece: 'Pavé moon pendant', params: { metal: 'silver-925', stoneCount: 12, stoneSizeMm: 1.3, sizeMm: 18 } },
+  ],
+  'bezel-ring': [
+    { piece: 'Sapphire bezel ring, size N', params: { metal: 'gold-18ct', stoneCount: 1, stoneSizeMm: 6 } },
+    { piece: 'Moonstone bezel ring', params: { metal: 'silver-925', stoneCount: 1, stoneSizeMm: 8 } },
+  ],
+  'wedding-pair': [
+    { piece: 'Court bands 3 mm and 5 mm', params: { metal: 'platinum-950', quantity: 1 } },
+    { piece: 'D-shape bands, brushed', params: { metal: 'gold-18ct', finish: 'brushed' } },
+  ],
+  'retip-claws': [
+    { piece: 'Six-claw solitaire: retip', params: { metal: 'gold-18ct', stoneCount: 6 } },
+    { piece: 'Trilogy ring: retip four claws', params: { metal: 'platinum-950', stoneCount: 4 } },
+  ],
+  'stud-run': [
+    { piece: 'Seed studs, 40 pairs', params: { metal: 'silver-925', quantity: 40 } },
+    { piece: 'Knot studs, 25 pairs', params: { metal: 'gold-9ct', quantity: 25 } },
+  ],
+  'ring-resize': [
+    { piece: 'Resize L to N', params: { metal: 'gold-9ct' } },
+    { piece: 'Resize Q to O', params: { metal: 'silver-925' } },
+  ],
   'etched-cuff': [{ piece: 'Fern-etched cuff', params: { metal: 'silver-925', sizeMm: 160, finish: 'oxidised' } }],
   'signet-ring': [{ piece: 'Oval signet, plain face', params: { metal: 'gold-9ct' } }],
-  'halo-ring': [{ piece: 'Oval halo, 14 stones', params: { metal: 'platinum-950', stoneCount: 15, stoneSizeMm: 1.5 } }, { piece: 'Round halo, 18 stones', params: { metal: 'gold-18ct', stoneCount: 19, stoneSizeMm: 1.3 } }],
+  'halo-ring': [
+    { piece: 'Oval halo, 14 stones', params: { metal: 'platinum-950', stoneCount: 15, stoneSizeMm: 1.5 } },
+    { piece: 'Round halo, 18 stones', params: { metal: 'gold-18ct', stoneCount: 19, stoneSizeMm: 1.3 } },
+  ],
   'chain-repair': [{ piece: 'Belcher chain, broken link', params: { metal: 'gold-9ct' } }],
 }
 
@@ -209,30 +363,103 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
   const rand = rng(20261202)
   const hash = await hashPassword(DEMO_PASSWORD)
   await db.transaction(async (tx) => {
-    const [w] = await tx.insert(s.workshops).values({ name: 'Wrenfield Street Workshop', timeZone: 'Europe/London', weekPattern: WEEK, address: '14 Wrenfield Street, Bristol BS1 4QX', phone: '0117 496 0321', contactEmail: 'orders@wrenfield.test', currency: 'GBP' }).returning()
+    const [w] = await tx
+      .insert(s.workshops)
+      .values({
+        name: 'Wrenfield Street Workshop',
+        timeZone: 'Europe/London',
+        weekPattern: WEEK,
+        address: '14 Wrenfield Street, Bristol BS1 4QX',
+        phone: '0117 496 0321',
+        contactEmail: 'orders@wrenfield.test',
+        currency: 'GBP',
+      })
+      .returning()
     const workshopId = w!.id
-    const kinds = await tx.insert(s.operationKinds).values(KINDS.map((k) => ({ workshopId, code: k.code, name: k.name, hazards: [...k.hazards], color: k.color, outside: 'outside' in k ? k.outside : false }))).returning()
+    const kinds = await tx
+      .insert(s.operationKinds)
+      .values(
+        KINDS.map((k) => ({ workshopId, code: k.code, name: k.name, hazards: [...k.hazards], color: k.color, outside: 'outside' in k ? k.outside : false })),
+      )
+      .returning()
     const kindId = (c: KindCode) => kinds.find((k) => k.code === c)!.id
-    const users = await tx.insert(s.users).values(DEMO_USERS.map((u) => ({ workshopId, email: u.email, name: u.name, role: u.role, passwordHash: hash }))).returning()
-    const benches = await tx.insert(s.benches).values(BENCHES.map((b) => ({ workshopId, name: b.name, kind: b.kind, notes: b.notes ?? '' }))).returning()
+    const users = await tx
+      .insert(s.users)
+      .values(DEMO_USERS.map((u) => ({ workshopId, email: u.email, name: u.name, role: u.role, passwordHash: hash })))
+      .returning()
+    const benches = await tx
+      .insert(s.benches)
+      .values(BENCHES.map((b) => ({ workshopId, name: b.name, kind: b.kind, notes: b.notes ?? '' })))
+      .returning()
     await tx.insert(s.benchCapabilities).values(BENCHES.flatMap((b, i) => b.kinds.map((k) => ({ benchId: benches[i]!.id, kindId: kindId(k) }))))
     const polishing = benches.find((b) => b.kind === 'polishing')!
     const downStart = addDays(now, 9)
     downStart.setUTCHours(8, 30, 0, 0)
-    await tx.insert(s.benchDowntime).values({ benchId: polishing.id, startsAt: downStart.toISOString(), endsAt: new Date(downStart.getTime() + 4 * 3600_000).toISOString(), reason: 'Lathe service and extraction filter change' })
-    const people = await tx.insert(s.people).values(PEOPLE.map((p) => ({ workshopId, name: p.name, userId: users.find((u) => u.email === p.user)!.id, hourlyRateMinor: p.rateMinor, weekPattern: p.pattern ?? null }))).returning()
-    await tx.insert(s.personSkills).values(PEOPLE.flatMap((p, i) => p.skills.map(([k, level, speed]) => ({ personId: people[i]!.id, kindId: kindId(k), level, speed }))))
+    await tx.insert(s.benchDowntime).values({
+      benchId: polishing.id,
+      startsAt: downStart.toISOString(),
+      endsAt: new Date(downStart.getTime() + 4 * 3600_000).toISOString(),
+      reason: 'Lathe service and extraction filter change',
+    })
+    const people = await tx
+      .insert(s.people)
+      .values(
+        PEOPLE.map((p) => ({
+          workshopId,
+          name: p.name,
+          userId: users.find((u) => u.email === p.user)!.id,
+          hourlyRateMinor: p.rateMinor,
+          weekPattern: p.pattern ?? null,
+        })),
+      )
+      .returning()
+    await tx
+      .insert(s.personSkills)
+      .values(PEOPLE.flatMap((p, i) => p.skills.map(([k, level, speed]) => ({ personId: people[i]!.id, kindId: kindId(k), level, speed }))))
     const l1 = addDays(now, 12)
     await tx.insert(s.leave).values({ personId: people[2]!.id, startsOn: dayStr(l1), endsOn: dayStr(addDays(l1, 2)), reason: 'Holiday' })
     await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: stocktake', startsOn: dayStr(addDays(now, 17)), endsOn: dayStr(addDays(now, 17)) })
 
     const templates: { row: typeof s.routingTemplates.$inferSelect; steps: (typeof s.templateSteps.$inferSelect)[] }[] = []
     for (const t of TEMPLATES) {
-      const [row] = await tx.insert(s.routingTemplates).values({ workshopId, code: t.code, name: t.name, description: t.description, learningRate: t.learningRate ?? null }).returning()
-      const steps = await tx.insert(s.templateSteps).values(t.steps.map((st, seq) => ({ templateId: row!.id, seq, key: st.key, kindId: kindId(st.kind), name: st.name, baseMinutes: st.base, perStoneMinutes: st.perStone ?? 0, perMmMinutes: st.perMm ?? 0, sizeBandFactors: st.bands ?? {}, requiredLevel: st.level ?? 1, waitAfterMinutes: st.wait ?? 0, leadDays: st.lead ?? 0, after: st.after ?? [] }))).returning()
+      const [row] = await tx
+        .insert(s.routingTemplates)
+        .values({ workshopId, code: t.code, name: t.name, description: t.description, learningRate: t.learningRate ?? null })
+        .returning()
+      const steps = await tx
+        .insert(s.templateSteps)
+        .values(
+          t.steps.map((st, seq) => ({
+            templateId: row!.id,
+            seq,
+            key: st.key,
+            kindId: kindId(st.kind),
+            name: st.name,
+            baseMinutes: st.base,
+            perStoneMinutes: st.perStone ?? 0,
+            perMmMinutes: st.perMm ?? 0,
+            sizeBandFactors: st.bands ?? {},
+            requiredLevel: st.level ?? 1,
+            waitAfterMinutes: st.wait ?? 0,
+            leadDays: st.lead ?? 0,
+            after: st.after ?? [],
+          })),
+        )
+        .returning()
       templates.push({ row: row!, steps })
     }
-    const customers = await tx.insert(s.customers).values(CUSTOMERS.map((name, i) => ({ workshopId, reference: `C-${String(i + 1).padStart(4, '0')}`, name, email: `${name.split(' ')[0]!.toLowerCase()}@example.com`, phone: `01632 960${String(100 + i).slice(-3)}` }))).returning()
+    const customers = await tx
+      .insert(s.customers)
+      .values(
+        CUSTOMERS.map((name, i) => ({
+          workshopId,
+          reference: `C-${String(i + 1).padStart(4, '0')}`,
+          name,
+          email: `${name.split(' ')[0]!.toLowerCase()}@example.com`,
+          phone: `01632 960${String(100 + i).slice(-3)}`,
+        })),
+      )
+      .returning()
 
     let orderNo = 0
     const makeOrder = async (opts: { due: Date; status: string; created: Date; tIndex: number }) => {
@@ -242,13 +469,52 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       const choice = choices[Math.floor(rand() * choices.length)]!
       const params = { ...DEFAULT_PARAMS, ...choice.params }
       const number = `MG${String(opts.due.getUTCFullYear()).slice(2)}-${String(orderNo).padStart(4, '0')}`
-      const [order] = await tx.insert(s.orders).values({ workshopId, number, customerId: customers[Math.floor(rand() * customers.length)]!.id, title: choice.piece, dueDate: dayStr(opts.due), priority: 1 + Math.floor(rand() * 5), status: opts.status, priceQuotedMinor: Math.round(150 + rand() * 2400) * 100, createdAt: opts.created }).returning()
-      const [bag] = await tx.insert(s.jobBags).values({ workshopId, orderId: order!.id, number: `${number}-1`, piece: choice.piece, templateId: t.row.id, params, status: opts.status === 'collected' ? 'complete' : 'waiting', createdAt: opts.created }).returning()
-      const ops = await tx.insert(s.operations).values(t.steps.map((st) => ({
-        jobBagId: bag!.id, seq: st.seq, key: st.key, kindId: st.kindId, name: st.name, requiredLevel: st.requiredLevel, waitAfterMinutes: st.waitAfterMinutes, leadDays: st.leadDays, after: st.after,
-        estimateMinutes: st.leadDays > 0 ? 0 : routingStepMinutes(st, t.row, params), estimateSource: 'template',
-        status: opts.status === 'collected' ? 'done' : st.after.length ? 'pending' : 'ready',
-      }))).returning()
+      const [order] = await tx
+        .insert(s.orders)
+        .values({
+          workshopId,
+          number,
+          customerId: customers[Math.floor(rand() * customers.length)]!.id,
+          title: choice.piece,
+          dueDate: dayStr(opts.due),
+          priority: 1 + Math.floor(rand() * 5),
+          status: opts.status,
+          priceQuotedMinor: Math.round(150 + rand() * 2400) * 100,
+          createdAt: opts.created,
+        })
+        .returning()
+      const [bag] = await tx
+        .insert(s.jobBags)
+        .values({
+          workshopId,
+          orderId: order!.id,
+          number: `${number}-1`,
+          piece: choice.piece,
+          templateId: t.row.id,
+          params,
+          status: opts.status === 'collected' ? 'complete' : 'waiting',
+          createdAt: opts.created,
+        })
+        .returning()
+      const ops = await tx
+        .insert(s.operations)
+        .values(
+          t.steps.map((st) => ({
+            jobBagId: bag!.id,
+            seq: st.seq,
+            key: st.key,
+            kindId: st.kindId,
+            name: st.name,
+            requiredLevel: st.requiredLevel,
+            waitAfterMinutes: st.waitAfterMinutes,
+            leadDays: st.leadDays,
+            after: st.after,
+            estimateMinutes: st.leadDays > 0 ? 0 : routingStepMinutes(st, t.row, params),
+            estimateSource: 'template',
+            status: opts.status === 'collected' ? 'done' : st.after.length ? 'pending' : 'ready',
+          })),
+        )
+        .returning()
       return { order: order!, bag: bag!, ops, template: t }
     }
 
@@ -266,10 +532,18 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     const trainingDay = weekdayNear(-40)
     await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: training day', startsOn: trainingDay, endsOn: trainingDay })
     const jonahAway = weekdayNear(-24)
-    await tx.insert(s.leave).values({ personId: people[3]!.id, startsOn: jonahAway, endsOn: dayjs(jonahAway).add(3, 'day').format('YYYY-MM-DD'), reason: 'Holiday' })
+    await tx
+      .insert(s.leave)
+      .values({ personId: people[3]!.id, startsOn: jonahAway, endsOn: dayjs(jonahAway).add(3, 'day').format('YYYY-MM-DD'), reason: 'Holiday' })
 
     const HISTORY_DAYS = 98
-    const clock = new MinuteClock(zone, dayjs(now).tz(zone).subtract(HISTORY_DAYS + 7, 'day').format('YYYY-MM-DD'))
+    const clock = new MinuteClock(
+      zone,
+      dayjs(now)
+        .tz(zone)
+        .subtract(HISTORY_DAYS + 7, 'day')
+        .format('YYYY-MM-DD'),
+    )
     const days = clock.days(HISTORY_DAYS + 9)
     const nowMinute = Math.floor((now.getTime() - clock.originMs) / 60_000)
     const localDay = (m: number) => dayjs(clock.toDate(m)).tz(zone).format('YYYY-MM-DD')
@@ -277,17 +551,31 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     const closedDays = (await tx.select().from(s.closures).where(eq(s.closures.workshopId, workshopId))).map((c) => dayRange(clock, c.startsOn, c.endsOn))
     const workshopOpen = subtract(expandPattern(clock, WEEK, days), closedDays)
     const leaveRows = await tx.select().from(s.leave)
-    const openOf = new Map(people.map((p) => [p.id, intersect(
-      subtract(expandPattern(clock, p.weekPattern ?? WEEK, days), leaveRows.filter((l) => l.personId === p.id).map((l) => dayRange(clock, l.startsOn, l.endsOn))),
-      workshopOpen,
-    )]))
+    const openOf = new Map(
+      people.map((p) => [
+        p.id,
+        intersect(
+          subtract(
+            expandPattern(clock, p.weekPattern ?? WEEK, days),
+            leaveRows.filter((l) => l.personId === p.id).map((l) => dayRange(clock, l.startsOn, l.endsOn)),
+          ),
+          workshopOpen,
+        ),
+      ]),
+    )
     const openDays = [...new Set(workshopOpen.map((iv) => localDay(iv.start)))]
     const busy = new Map<string, Interval[]>()
     const busyOf = (k: string) => busy.get(k) ?? busy.set(k, []).get(k)!
     /** The first `minutes` a person can give at a bench from `ready` on, in pieces of their free working time; null when not done by now. */
     const book = (personId: number, benchId: number, ready: number, minutes: number): Interval[] | null => {
-      const open = openOf.get(personId)!.filter((iv) => iv.end > ready).map((iv) => ({ start: Math.max(iv.start, ready), end: iv.end }))
-      const free = subtract(open, [...busyOf(`p${personId}`), ...busyOf(`b${benchId}`)].filter((b) => b.end > ready))
+      const open = openOf
+        .get(personId)!
+        .filter((iv) => iv.end > ready)
+        .map((iv) => ({ start: Math.max(iv.start, ready), end: iv.end }))
+      const free = subtract(
+        open,
+        [...busyOf(`p${personId}`), ...busyOf(`b${benchId}`)].filter((b) => b.end > ready),
+      )
       const pieces: Interval[] = []
       let left = minutes
       for (const f of free) {
@@ -318,7 +606,8 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       return iv ? Math.max(m, iv.start) : null
     }
 
-    const skilled = (kind: number, level: number) => PEOPLE.map((p, i) => ({ p, id: people[i]!.id, skill: p.skills.find(([k]) => kindId(k) === kind) })).filter((x) => x.skill && x.skill[1] >= level)
+    const skilled = (kind: number, level: number) =>
+      PEOPLE.map((p, i) => ({ p, id: people[i]!.id, skill: p.skills.find(([k]) => kindId(k) === kind) })).filter((x) => x.skill && x.skill[1] >= level)
     const benchFor = (kind: number) => BENCHES.map((b, i) => ({ b, id: benches[i]!.id })).filter((x) => x.b.kinds.some((k) => kindId(k) === kind))
     let historyOps = 0
     for (let i = 0; historyOps < 300; i++) {
@@ -337,7 +626,10 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
           // Outside work comes back after its lead days in working days, now and then a day or two late.
           const r = rand()
           const back = returnAfter(ready, op.leadDays + (r < 0.55 ? 0 : r < 0.85 ? 1 : 2))
-          if (back === null) { fits = false; break }
+          if (back === null) {
+            fits = false
+            break
+          }
           done.push({ id: op.id, finishedAt: back })
           ready = back
           continue
@@ -347,14 +639,20 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
         const person = who[Math.floor(rand() * who.length)]
         const bench = where[Math.floor(rand() * where.length)]
         // A step nobody in the demo can do (or no bench can host) is left out of the finished job, not finished by no one.
-        if (!person || !bench) { skipped.push(op.id); continue }
+        if (!person || !bench) {
+          skipped.push(op.id)
+          continue
+        }
         // Actual = estimate ÷ speed × noise (log-normal-ish), with an occasional job that went badly and took two to four times as long.
         const noise = Math.exp((rand() + rand() + rand() - 1.5) * 0.35) * 1.08
         let actual = (op.estimateMinutes / person.skill![2]) * noise
         if (rand() < 0.03) actual *= 2 + rand() * 2
         actual = Math.max(3, Math.round(actual))
         const pieces = book(person.id, bench.id, ready, actual)
-        if (!pieces) { fits = false; break }
+        if (!pieces) {
+          fits = false
+          break
+        }
         busyOf(`p${person.id}`).push(...pieces)
         busyOf(`b${bench.id}`).push(...pieces)
         const end = pieces.at(-1)!.end
@@ -369,18 +667,33 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
         orderNo--
         break
       }
-      const records = done.flatMap((d) => d.who ? d.who.pieces.map((p, j, all) => ({
-        operationId: d.id, personId: d.who!.personId, benchId: d.who!.benchId, startedAt: iso(p.start), endedAt: iso(p.end),
-        endReason: j === all.length - 1 ? 'finished' : pauseReason(d.who!.personId, p, all[j + 1]!), createdAt: clock.toDate(p.start),
-      })) : [])
+      const records = done.flatMap((d) =>
+        d.who
+          ? d.who.pieces.map((p, j, all) => ({
+              operationId: d.id,
+              personId: d.who!.personId,
+              benchId: d.who!.benchId,
+              startedAt: iso(p.start),
+              endedAt: iso(p.end),
+              endReason: j === all.length - 1 ? 'finished' : pauseReason(d.who!.personId, p, all[j + 1]!),
+              createdAt: clock.toDate(p.start),
+            }))
+          : [],
+      )
       if (records.length) await tx.insert(s.timeRecords).values(records)
       for (const d of done) {
-        await tx.update(s.operations).set({ finishedAt: iso(d.finishedAt), ...(d.who ? { plannedBenchId: d.who.benchId, plannedPersonId: d.who.personId } : {}) }).where(eqId(d.id))
+        await tx
+          .update(s.operations)
+          .set({ finishedAt: iso(d.finishedAt), ...(d.who ? { plannedBenchId: d.who.benchId, plannedPersonId: d.who.personId } : {}) })
+          .where(eqId(d.id))
         if (d.who) historyOps++
       }
       for (const id of skipped) await tx.update(s.operations).set({ status: 'skipped' }).where(eqId(id))
       // Collected once the last step was done.
-      await tx.update(s.orders).set({ updatedAt: clock.toDate(Math.max(...done.map((d) => d.finishedAt))) }).where(eq(s.orders.id, order.id))
+      await tx
+        .update(s.orders)
+        .set({ updatedAt: clock.toDate(Math.max(...done.map((d) => d.finishedAt))) })
+        .where(eq(s.orders.id, order.id))
     }
     // Open work: 30 orders due over the next four weeks.
     for (let i = 0; i < 30; i++) {
@@ -390,7 +703,10 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       await makeOrder({ due, status: 'open', created: addDays(now, -Math.floor(rand() * 10)), tIndex: i * 7 + 3 })
     }
     // Open orders were last changed when they were taken (not when the demo was written, which may be after the clock it was given).
-    await tx.update(s.orders).set({ updatedAt: sql`${s.orders.createdAt}` }).where(eq(s.orders.status, 'open'))
+    await tx
+      .update(s.orders)
+      .set({ updatedAt: sql`${s.orders.createdAt}` })
+      .where(eq(s.orders.status, 'open'))
     await seedMetal(tx, { workshopId, now })
     await seedStones(tx, workshopId)
     await seedCosting(tx, workshopId)
@@ -407,7 +723,8 @@ function intersect(a: Interval[], b: Interval[]): Interval[] {
   for (const x of a) {
     while (j < b.length && b[j]!.end <= x.start) j++
     for (let k = j; k < b.length && b[k]!.start < x.end; k++) {
-      const start = Math.max(x.start, b[k]!.start), end = Math.min(x.end, b[k]!.end)
+      const start = Math.max(x.start, b[k]!.start),
+        end = Math.min(x.end, b[k]!.end)
       if (end > start) out.push({ start, end })
     }
   }

@@ -11,12 +11,35 @@ export const FAKE_WEBHOOK_SECRET = 'whsec_millgrain_fake'
 export const TEST_CARDS = { paid: '4242424242424242', declined: '4000000000000002', confirm: '4000002500003155' } as const
 
 export interface FakeSession {
-  id: string; object: 'checkout.session'; mode: 'payment'; status: 'open' | 'complete' | 'expired'; payment_status: 'unpaid' | 'paid'
-  amount_total: number; currency: string; metadata: Record<string, string>; client_reference_id: string | null
-  success_url: string; cancel_url: string | null; url: string; payment_intent: string | null; created: number
+  id: string
+  object: 'checkout.session'
+  mode: 'payment'
+  status: 'open' | 'complete' | 'expired'
+  payment_status: 'unpaid' | 'paid'
+  amount_total: number
+  currency: string
+  metadata: Record<string, string>
+  client_reference_id: string | null
+  success_url: string
+  cancel_url: string | null
+  url: string
+  payment_intent: string | null
+  created: number
 }
-export interface FakeEvent { id: string; object: 'event'; type: string; created: number; livemode: false; api_version: string; data: { object: unknown } }
-export interface Delivery { eventId: string; status: number; body: string }
+export interface FakeEvent {
+  id: string
+  object: 'event'
+  type: string
+  created: number
+  livemode: false
+  api_version: string
+  data: { object: unknown }
+}
+export interface Delivery {
+  eventId: string
+  status: number
+  body: string
+}
 
 export interface PayFake {
   port: number
@@ -62,10 +85,13 @@ async function readBody(req: IncomingMessage): Promise<string> {
 }
 
 function apiError(res: ServerResponse, status: number, message: string, param?: string) {
-  res.writeHead(status, { 'content-type': 'application/json' }).end(JSON.stringify({ error: { type: 'invalid_request_error', message, ...(param ? { param } : {}) } }))
+  res
+    .writeHead(status, { 'content-type': 'application/json' })
+    .end(JSON.stringify({ error: { type: 'invalid_request_error', message, ...(param ? { param } : {}) } }))
 }
 
-const amountText = (minor: number, currency: string) => new Intl.NumberFormat('en-GB', { style: 'currency', currency: currency.toUpperCase() }).format(minor / 100)
+const amountText = (minor: number, currency: string) =>
+  new Intl.NumberFormat('en-GB', { style: 'currency', currency: currency.toUpperCase() }).format(minor / 100)
 
 function page(title: string, body: string) {
   return `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width,initial-scale=1"><title>${esc(title)}</title>
@@ -91,7 +117,10 @@ export async function startPayFake(o: { port?: number; host?: string; webhookUrl
     const payload = JSON.stringify(event, null, 2)
     try {
       const headers = { 'content-type': 'application/json', 'stripe-signature': sign(payload, d.secret) }
-      const r = fake.webhookCa && fake.webhookUrl.startsWith('https:') ? await postTrusting(fake.webhookUrl, fake.webhookCa, headers, payload) : await fetch(fake.webhookUrl, { method: 'POST', headers, body: payload }).then(async (x) => ({ status: x.status, text: await x.text() }))
+      const r =
+        fake.webhookCa && fake.webhookUrl.startsWith('https:')
+          ? await postTrusting(fake.webhookUrl, fake.webhookCa, headers, payload)
+          : await fetch(fake.webhookUrl, { method: 'POST', headers, body: payload }).then(async (x) => ({ status: x.status, text: await x.text() }))
       const out = { eventId: event.id, status: r.status, body: r.text }
       deliveries.push(out)
       return out
@@ -107,7 +136,15 @@ export async function startPayFake(o: { port?: number; host?: string; webhookUrl
     s.payment_status = 'paid'
     s.payment_intent = rid('pi')
     paidAmount.set(s.payment_intent, { amount: s.amount_total, currency: s.currency })
-    const event: FakeEvent = { id: rid('evt'), object: 'event', type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false, api_version: '2025-01-01', data: { object: { ...s } } }
+    const event: FakeEvent = {
+      id: rid('evt'),
+      object: 'event',
+      type: 'checkout.session.completed',
+      created: Math.floor(Date.now() / 1000),
+      livemode: false,
+      api_version: '2025-01-01',
+      data: { object: { ...s } },
+    }
     events.push(event)
     return deliver(event)
   }
@@ -132,15 +169,28 @@ export async function startPayFake(o: { port?: number; host?: string; webhookUrl
         if (req.method === 'POST' && parts[1] === 'checkout' && parts[2] === 'sessions' && parts.length === 3) {
           const items = (body.line_items ?? {}) as Record<string, { price_data?: { currency?: string; unit_amount?: string }; quantity?: string }>
           const first = items['0']
-          const unit = Number(first?.price_data?.unit_amount), qty = Number(first?.quantity ?? 1)
-          if (!first?.price_data?.currency) return apiError(res, 400, 'Missing required param: line_items[0][price_data][currency].', 'line_items[0][price_data][currency]')
+          const unit = Number(first?.price_data?.unit_amount),
+            qty = Number(first?.quantity ?? 1)
+          if (!first?.price_data?.currency)
+            return apiError(res, 400, 'Missing required param: line_items[0][price_data][currency].', 'line_items[0][price_data][currency]')
           if (!Number.isInteger(unit) || unit < 1) return apiError(res, 400, 'Invalid integer: unit_amount', 'line_items[0][price_data][unit_amount]')
           if (typeof body.success_url !== 'string') return apiError(res, 400, 'Missing required param: success_url.', 'success_url')
           const id = rid('cs')
           const s: FakeSession = {
-            id, object: 'checkout.session', mode: 'payment', status: 'open', payment_status: 'unpaid', amount_total: unit * qty, currency: String(first.price_data.currency).toLowerCase(),
-            metadata: (body.metadata ?? {}) as Record<string, string>, client_reference_id: typeof body.client_reference_id === 'string' ? body.client_reference_id : null,
-            success_url: body.success_url, cancel_url: typeof body.cancel_url === 'string' ? body.cancel_url : null, url: `${base}/pay/${id}`, payment_intent: null, created: Math.floor(Date.now() / 1000),
+            id,
+            object: 'checkout.session',
+            mode: 'payment',
+            status: 'open',
+            payment_status: 'unpaid',
+            amount_total: unit * qty,
+            currency: String(first.price_data.currency).toLowerCase(),
+            metadata: (body.metadata ?? {}) as Record<string, string>,
+            client_reference_id: typeof body.client_reference_id === 'string' ? body.client_reference_id : null,
+            success_url: body.success_url,
+            cancel_url: typeof body.cancel_url === 'string' ? body.cancel_url : null,
+            url: `${base}/pay/${id}`,
+            payment_intent: null,
+            created: Math.floor(Date.now() / 1000),
           }
           sessions.set(id, s)
           return res.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify(s))
@@ -162,9 +212,19 @@ export async function startPayFake(o: { port?: number; host?: string; webhookUrl
           if (!paid) return apiError(res, 404, `No such payment_intent: '${pi}'`, 'payment_intent')
           const left = paid.amount - (refunded.get(pi) ?? 0)
           const amount = body.amount === undefined ? left : Number(body.amount)
-          if (!Number.isInteger(amount) || amount < 1 || amount > left) return apiError(res, 400, `Refund amount (${amount}) is greater than the unrefunded amount on the charge (${left})`, 'amount')
+          if (!Number.isInteger(amount) || amount < 1 || amount > left)
+            return apiError(res, 400, `Refund amount (${amount}) is greater than the unrefunded amount on the charge (${left})`, 'amount')
           refunded.set(pi, (refunded.get(pi) ?? 0) + amount)
-          const refund = { id: rid('re'), object: 'refund', amount, currency: paid.currency, payment_intent: pi, status: 'succeeded', created: Math.floor(Date.now() / 1000), metadata: body.metadata ?? {} }
+          const refund = {
+            id: rid('re'),
+            object: 'refund',
+            amount,
+            currency: paid.currency,
+            payment_intent: pi,
+            status: 'succeeded',
+            created: Math.floor(Date.now() / 1000),
+            metadata: body.metadata ?? {},
+          }
           return res.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify(refund))
         }
         return apiError(res, 404, `Unrecognized request URL (${req.method}: ${url.pathname})`)
@@ -189,8 +249,12 @@ export async function startPayFake(o: { port?: number; host?: string; webhookUrl
           const card = String(new URLSearchParams(await readBody(req)).get('card') ?? '')
           const r = await pay(s.id, card)
           if (r.outcome === 'paid') return html('Paid', `${heading}<p class="ok" data-test="paid">Paid. Thank you.</p>${back}`)
-          if (r.outcome === 'confirm') return html('Confirm', `${heading}<p data-test="confirm-step">Your bank asks you to confirm this payment.</p>
-<form method="post" action="/pay/${s.id}/confirm"><button name="answer" value="yes" type="submit">Confirm</button><button name="answer" value="no" type="submit">Cancel</button></form>`)
+          if (r.outcome === 'confirm')
+            return html(
+              'Confirm',
+              `${heading}<p data-test="confirm-step">Your bank asks you to confirm this payment.</p>
+<form method="post" action="/pay/${s.id}/confirm"><button name="answer" value="yes" type="submit">Confirm</button><button name="answer" value="no" type="submit">Cancel</button></form>`,
+            )
           if (r.outcome === 'closed') return html('Closed', `${heading}<p class="error">This payment link is closed.</p>`)
           return html('Declined', form('The card was declined. Try another card.'))
         }
@@ -207,19 +271,37 @@ export async function startPayFake(o: { port?: number; host?: string; webhookUrl
       res.writeHead(500, { 'content-type': 'text/plain' }).end((err as Error).message)
     }
   })
-  const listen = (port: number) => new Promise<void>((resolve, reject) => {
-    server.once('error', reject)
-    server.listen(port, host, () => { server.off('error', reject); resolve() })
-  })
-  try { await listen(o.port ?? 0) } catch (err) {
+  const listen = (port: number) =>
+    new Promise<void>((resolve, reject) => {
+      server.once('error', reject)
+      server.listen(port, host, () => {
+        server.off('error', reject)
+        resolve()
+      })
+    })
+  try {
+    await listen(o.port ?? 0)
+  } catch (err) {
     if (!o.anyPortIfTaken || (err as NodeJS.ErrnoException).code !== 'EADDRINUSE') throw err
     await listen(0)
   }
   const port = (server.address() as AddressInfo).port
   base = `http://${host}:${port}`
   const fake: PayFake = {
-    port, url: base, sessions, events, deliveries, webhookUrl: o.webhookUrl ?? null, sign, deliver, pay,
-    close: () => new Promise<void>((r) => { server.closeAllConnections?.(); server.close(() => r()) }),
+    port,
+    url: base,
+    sessions,
+    events,
+    deliveries,
+    webhookUrl: o.webhookUrl ?? null,
+    sign,
+    deliver,
+    pay,
+    close: () =>
+      new Promise<void>((r) => {
+        server.closeAllConnections?.()
+        server.close(() => r())
+      }),
   }
   return fake
 }

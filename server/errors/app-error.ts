@@ -2,8 +2,15 @@
 import type { ErrorCode } from '../../shared/errors'
 
 const STATUS: Record<ErrorCode, number> = {
-  validation: 400, unauthenticated: 401, forbidden: 403, 'not-found': 404, conflict: 409,
-  unprocessable: 422, 'rate-limited': 429, unavailable: 503, internal: 500,
+  validation: 400,
+  unauthenticated: 401,
+  forbidden: 403,
+  'not-found': 404,
+  conflict: 409,
+  unprocessable: 422,
+  'rate-limited': 429,
+  unavailable: 503,
+  internal: 500,
 }
 
 export class AppError extends Error {
@@ -23,5 +30,4 @@ export class AppError extends Error {
 export const notFound = (what: string) => new AppError({ code: 'not-found', message: `${what} not found` })
 export const staleVersion = (what: string) =>
   new AppError({ code: 'conflict', message: `${what} was changed by someone else since you opened it; reload to see their change, then edit again` })
-export const invalid = (field: string, reason: string) =>
-  new AppError({ code: 'validation', message: `${field}: ${reason}`, fields: { [field]: reason } })
+export const invalid = (field: string, reason: string) => new AppError({ code: 'validation', message: `${field}: ${reason}`, fields: { [field]: reason } })

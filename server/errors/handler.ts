@@ -45,7 +45,13 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   } else if (err instanceof ZodError) {
     status = 400
     const fields = zodFields(err)
-    body = { error: `Please correct: ${Object.entries(fields).map(([k, v]) => `${k} ${v}`).join('; ')}`, code: 'validation', fields }
+    body = {
+      error: `Please correct: ${Object.entries(fields)
+        .map(([k, v]) => `${k} ${v}`)
+        .join('; ')}`,
+      code: 'validation',
+      fields,
+    }
   } else if (err?.type === 'entity.parse.failed') {
     status = 400
     body = { error: 'The request body is not valid JSON', code: 'validation', fields: { _: 'is not valid JSON' } }

@@ -26,14 +26,20 @@ export function createAppJobs(config: Config, o: { only?: QueueName[]; instance?
   const timing = timingOf(config)
   const handlers = Object.fromEntries(Object.entries(HANDLERS).filter(([q]) => !o.only || o.only.includes(q as QueueName)))
   const jobs = createJobs<Deps>(config.DATABASE_URL, {
-    timing, handlers, ...(o.instance ? { instance: o.instance } : {}),
-    beforeStop: async () => { if (deps) await releaseLocalRuns(deps) },
+    timing,
+    handlers,
+    ...(o.instance ? { instance: o.instance } : {}),
+    beforeStop: async () => {
+      if (deps) await releaseLocalRuns(deps)
+    },
   })
   const start = jobs.start
   jobs.start = async (d) => {
     deps = d
     await start(d)
   }
-  jobs.every(Math.max(1, timing.staleRunSeconds / 3), async () => { if (deps) await recoverStaleRuns(deps) })
+  jobs.every(Math.max(1, timing.staleRunSeconds / 3), async () => {
+    if (deps) await recoverStaleRuns(deps)
+  })
   return jobs
 }

@@ -25,8 +25,11 @@ export interface JobTiming {
   mailRetrySeconds: number
 }
 
-export const timingOf = (config: Pick<Config, 'JOBS_POLL_SECONDS' | 'PLAN_RUN_STALE_SECONDS' | 'MAIL_RETRY_SECONDS'>): JobTiming =>
-  ({ pollSeconds: config.JOBS_POLL_SECONDS, staleRunSeconds: config.PLAN_RUN_STALE_SECONDS, mailRetrySeconds: config.MAIL_RETRY_SECONDS })
+export const timingOf = (config: Pick<Config, 'JOBS_POLL_SECONDS' | 'PLAN_RUN_STALE_SECONDS' | 'MAIL_RETRY_SECONDS'>): JobTiming => ({
+  pollSeconds: config.JOBS_POLL_SECONDS,
+  staleRunSeconds: config.PLAN_RUN_STALE_SECONDS,
+  mailRetrySeconds: config.MAIL_RETRY_SECONDS,
+})
 
 /** The configuration's defaults (for the migrations, which install the queues before any app runs). */
 export const DEFAULT_TIMING: JobTiming = { pollSeconds: 1, staleRunSeconds: 30, mailRetrySeconds: 30 }
@@ -103,13 +106,18 @@ export interface JobsOptions<D> {
 export function createJobs<D>(connectionString: string, o: JobsOptions<D>): Jobs<D> {
   const t = o.timing
   const boss = new PgBoss({
-    connectionString, max: 4, application_name: 'millgrain-jobs',
+    connectionString,
+    max: 4,
+    application_name: 'millgrain-jobs',
     // No cron schedules: the daily mail is asked for by every instance's timer and deduplicated per workshop and day.
     schedule: false,
     // Expired jobs (an instance gone mid-job) are put back to retry by whichever instance runs maintenance first.
-    supervise: true, maintenanceIntervalSeconds: Math.max(1, Math.min(30, t.staleRunSeconds)),
+    supervise: true,
+    maintenanceIntervalSeconds: Math.max(1, Math.min(30, t.staleRunSeconds)),
   })
-  boss.on('error', (err) => { if (!stopping) console.error('[jobs] queue error:', err.message) })
+  boss.on('error', (err) => {
+    if (!stopping) console.error('[jobs] queue error:', err.message)
+  })
   const workers = new Map<QueueName, string>()
   const timers: ReturnType<typeof setInterval>[] = []
   const periodic: { seconds: number; fn: () => Promise<void> }[] = []
@@ -161,7 +169,11 @@ export function createJobs<D>(connectionString: string, o: JobsOptions<D>): Jobs
     const timer = setInterval(() => {
       if (busy || !started) return
       busy = true
-      p.fn().catch((err) => console.error('[jobs] periodic task:', (err as Error).message)).finally(() => { busy = false })
+      p.fn()
+        .catch((err) => console.error('[jobs] periodic task:', (err as Error).message))
+        .finally(() => {
+          busy = false
+        })
     }, p.seconds * 1000)
     timer.unref()
     timers.push(timer)

@@ -17,7 +17,12 @@ export interface CacheOptions {
   replace?: boolean
 }
 
-interface Entry { workshopId: number; at: number; seq: number; value: unknown }
+interface Entry {
+  workshopId: number
+  at: number
+  seq: number
+  value: unknown
+}
 
 export class Cache {
   private readonly entries = new Map<string, Entry>()
@@ -25,7 +30,10 @@ export class Cache {
   private readonly generation = new Map<number, number>()
   private epoch = 0
 
-  constructor(private readonly realtime: Realtime, private readonly maxEntries = 500) {
+  constructor(
+    private readonly realtime: Realtime,
+    private readonly maxEntries = 500,
+  ) {
     realtime.onChange((workshopId, _seq, key) => (key ? this.drop(workshopId, key) : this.dropWorkshop(workshopId)))
     realtime.onReset(() => this.dropAll())
   }
@@ -43,7 +51,7 @@ export class Cache {
     const gen = this.generationOf(workshopId)
     const epoch = this.epoch
     // The number read before loading: what is loaded is at least this fresh.
-    const seq = o.verify ? latest ?? (await this.realtime.latestSeq(workshopId)) : 0
+    const seq = o.verify ? (latest ?? (await this.realtime.latestSeq(workshopId))) : 0
     const value = await load()
     if (this.generationOf(workshopId) === gen && this.epoch === epoch) this.set(workshopId, key, value, seq)
     return value

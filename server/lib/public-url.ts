@@ -28,7 +28,12 @@ export function firstNetworkIPv4(interfaces: Interfaces = networkInterfaces()): 
  * The address to suggest when the owner has set none: the server's own listening host when that is a real address,
  * else the machine's first network IPv4 address, with the port the server answers on. Nothing is sent to it.
  */
-export function suggestPublicUrl(port: number, listenHost: string, interfaces: Interfaces = networkInterfaces(), scheme: 'http' | 'https' = 'http'): PublicUrlSuggestion {
+export function suggestPublicUrl(
+  port: number,
+  listenHost: string,
+  interfaces: Interfaces = networkInterfaces(),
+  scheme: 'http' | 'https' = 'http',
+): PublicUrlSuggestion {
   const host = listenHost.trim()
   if (host && !isWildcard(host) && !isLoopback(host)) return { url: `${scheme}://${host.includes(':') ? `[${host}]` : host}:${port}`, reachable: true }
   const ip = firstNetworkIPv4(interfaces)

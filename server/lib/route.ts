@@ -8,13 +8,39 @@ import type { Mailer } from '../mail/transport'
 import type { PayProvider } from '../services/pay-provider'
 import type { Cache } from './cache'
 
-export interface Actor { userId: number; workshopId: number; role: Role; personId: number | null; name: string; /** A bench station tablet the person acts at (after their PIN). */ station?: { benchId: number; benchName: string } | null }
+export interface Actor {
+  userId: number
+  workshopId: number
+  role: Role
+  personId: number | null
+  name: string
+  /** A bench station tablet the person acts at (after their PIN). */ station?: { benchId: number; benchName: string } | null
+}
 
 import type { PassportStatic } from 'passport'
 import type { Jobs } from '../jobs/queue'
 type Authenticator = InstanceType<PassportStatic['Passport']>
 
-export interface Deps { db: Db; realtime: Realtime; /** The app's read cache (absent in scripts: everything is loaded). */ cache?: Cache; passport?: Authenticator; uploadDir?: string; uploadMaxBytes?: number; mailer?: Mailer; /** The HOST the server listens on (config). */ listenHost?: string; /** The payment provider (real or the local fake); null when none is configured. */ pay?: PayProvider | null; /** This server's own address, for the provider's return pages when the workshop has no public address. */ appUrl?: string; /** Link lifetimes, the bench PIN time and a bench session's days (config). */ accounts?: { inviteHours: number; resetMinutes: number; pinSeconds: number; benchSessionDays: number }; /** The job queue (server/jobs); absent in scripts, where the work happens in place. */ jobs?: Jobs<Deps>; /** Check answers against their routes' response schemas (NODE_ENV development or test; see checkAnswer). */ checkAnswers?: boolean }
+export interface Deps {
+  db: Db
+  realtime: Realtime
+  /** The app's read cache (absent in scripts: everything is loaded). */ cache?: Cache
+  passport?: Authenticator
+  uploadDir?: string
+  uploadMaxBytes?: number
+  mailer?: Mailer
+  /** The HOST the server listens on (config). */ listenHost?: string
+  /** The payment provider (real or the local fake); null when none is configured. */ pay?: PayProvider | null
+  /** This server's own address, for the provider's return pages when the workshop has no public address. */ appUrl?: string
+  /** Link lifetimes, the bench PIN time and a bench session's days (config). */ accounts?: {
+    inviteHours: number
+    resetMinutes: number
+    pinSeconds: number
+    benchSessionDays: number
+  }
+  /** The job queue (server/jobs); absent in scripts, where the work happens in place. */ jobs?: Jobs<Deps>
+  /** Check answers against their routes' response schemas (NODE_ENV development or test; see checkAnswer). */ checkAnswers?: boolean
+}
 
 export interface RouteContext<B, Q, P> {
   req: Request
@@ -56,7 +82,10 @@ export function checkAnswer(label: string, schema: ZodType | undefined, result: 
   if (!schema || result === undefined) return
   const checked = schema.safeParse(JSON.parse(JSON.stringify(result)))
   if (checked.success) return
-  const issues = checked.error.issues.slice(0, 10).map((i) => `${i.path.join('.') || '(answer)'}: ${i.message}`).join('; ')
+  const issues = checked.error.issues
+    .slice(0, 10)
+    .map((i) => `${i.path.join('.') || '(answer)'}: ${i.message}`)
+    .join('; ')
   console.error(`[contract] ${label} answered something its response schema does not allow: ${issues}`)
   throw new Error(`The answer of ${label} does not match its response schema`)
 }

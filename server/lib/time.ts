@@ -11,12 +11,18 @@ dayjs.extend(timezone)
 dayjs.extend(isoWeek)
 export { dayjs, type Dayjs }
 
-export interface Interval { start: number; end: number }
+export interface Interval {
+  start: number
+  end: number
+}
 
 /** Minute clock: minute 0 is local midnight of `originDay` in the workshop's zone. */
 export class MinuteClock {
   readonly originMs: number
-  constructor(readonly timeZone: string, readonly originDay: string) {
+  constructor(
+    readonly timeZone: string,
+    readonly originDay: string,
+  ) {
     this.originMs = dayjs.tz(`${originDay} 00:00`, timeZone).valueOf()
   }
   toMinute(t: Date | string | number): number {

@@ -113,7 +113,11 @@ export async function ensureCertificate(o: { dir: string; names: string[]; now?:
       break
     } catch {
       // A lock left by a process that died while making (older than a minute) is taken over.
-      try { if (Date.now() - statSync(lock).mtimeMs > 60_000) rmSync(lock, { force: true }) } catch { /* gone meanwhile */ }
+      try {
+        if (Date.now() - statSync(lock).mtimeMs > 60_000) rmSync(lock, { force: true })
+      } catch {
+        /* gone meanwhile */
+      }
       if (Date.now() > until) throw new Error(`Another process is still making the certificate in ${dir} (remove ${lock} if none is running)`)
       await new Promise((r) => setTimeout(r, 100))
     }
@@ -133,10 +137,23 @@ async function ensureLocked(dir: string, wanted: string[], now: Date): Promise<T
 
   let caCert = readCert(path('caCert'))
   if (!caCert || !existsSync(path('caKey')) || !caCert.ca || !lastsUntil(caCert, renewBy)) {
-    const ca = await generate([{ name: 'commonName', value: `Millgrain workshop CA (${hostname()})` }, { name: 'organizationName', value: 'Millgrain' }], {
-      keyType: 'ec', curve: 'P-256', algorithm: 'sha256', notBeforeDate: new Date(now.getTime() - DAY), notAfterDate: new Date(now.getTime() + CA_DAYS * DAY),
-      extensions: [{ name: 'basicConstraints', cA: true, pathLenConstraint: 0, critical: true }, { name: 'keyUsage', keyCertSign: true, cRLSign: true, critical: true }],
-    })
+    const ca = await generate(
+      [
+        { name: 'commonName', value: `Millgrain workshop CA (${hostname()})` },
+        { name: 'organizationName', value: 'Millgrain' },
+      ],
+      {
+        keyType: 'ec',
+        curve: 'P-256',
+        algorithm: 'sha256',
+        notBeforeDate: new Date(now.getTime() - DAY),
+        notAfterDate: new Date(now.getTime() + CA_DAYS * DAY),
+        extensions: [
+          { name: 'basicConstraints', cA: true, pathLenConstraint: 0, critical: true },
+          { name: 'keyUsage', keyCertSign: true, cRLSign: true, critical: true },
+        ],
+      },
+    )
     writeKey(path('caKey'), ca.private)
     writeCert(path('caCert'), ca.cert)
     caCert = new X509Certificate(ca.cert)
@@ -146,25 +163,50 @@ async function ensureLocked(dir: string, wanted: string[], now: Date): Promise<T
 
   let leaf = readCert(path('cert'))
   const covers = leaf ? new Set(namesIn(leaf)) : new Set<string>()
-  const fresh = leaf && existsSync(path('key')) && made === 'none' && leaf.checkIssued(caCert) && leaf.verify(caCert.publicKey) && lastsUntil(leaf, renewBy) && names.every((n) => covers.has(n))
+  const fresh =
+    leaf &&
+    existsSync(path('key')) &&
+    made === 'none' &&
+    leaf.checkIssued(caCert) &&
+    leaf.verify(caCert.publicKey) &&
+    lastsUntil(leaf, renewBy) &&
+    names.every((n) => covers.has(n))
   if (!fresh) {
-    const issued = await generate([{ name: 'commonName', value: names.find((n) => !isIP(n) && n !== 'localhost') ?? 'localhost' }, { name: 'organizationName', value: 'Millgrain' }], {
-      keyType: 'ec', curve: 'P-256', algorithm: 'sha256', notBeforeDate: new Date(now.getTime() - DAY), notAfterDate: new Date(now.getTime() + LEAF_DAYS * DAY),
-      ca: { key: readFileSync(path('caKey'), 'utf8'), cert: caPem },
-      extensions: [
-        { name: 'basicConstraints', cA: false },
-        // An EC key signs the handshake; key encipherment belongs to RSA keys (RFC 5480 §3).
-        { name: 'keyUsage', digitalSignature: true, critical: true },
-        { name: 'extKeyUsage', serverAuth: true },
-        { name: 'subjectAltName', altNames: names.map((n) => (isIP(n) ? { type: 7 as const, ip: n } : { type: 2 as const, value: n })) },
+    const issued = await generate(
+      [
+        { name: 'commonName', value: names.find((n) => !isIP(n) && n !== 'localhost') ?? 'localhost' },
+        { name: 'organizationName', value: 'Millgrain' },
       ],
-    })
+      {
+        keyType: 'ec',
+        curve: 'P-256',
+        algorithm: 'sha256',
+        notBeforeDate: new Date(now.getTime() - DAY),
+        notAfterDate: new Date(now.getTime() + LEAF_DAYS * DAY),
+        ca: { key: readFileSync(path('caKey'), 'utf8'), cert: caPem },
+        extensions: [
+          { name: 'basicConstraints', cA: false },
+          // An EC key signs the handshake; key encipherment belongs to RSA keys (RFC 5480 §3).
+          { name: 'keyUsage', digitalSignature: true, critical: true },
+          { name: 'extKeyUsage', serverAuth: true },
+          { name: 'subjectAltName', altNames: names.map((n) => (isIP(n) ? { type: 7 as const, ip: n } : { type: 2 as const, value: n })) },
+        ],
+      },
+    )
     writeKey(path('key'), issued.private)
     writeCert(path('cert'), issued.cert)
     leaf = new X509Certificate(issued.cert)
     if (made === 'none') made = 'server'
   }
-  return { key: readFileSync(path('key'), 'utf8'), cert: readFileSync(path('cert'), 'utf8'), ca: caPem, dir, made, names: namesIn(leaf!), validTo: leaf!.validTo }
+  return {
+    key: readFileSync(path('key'), 'utf8'),
+    cert: readFileSync(path('cert'), 'utf8'),
+    ca: caPem,
+    dir,
+    made,
+    names: namesIn(leaf!),
+    validTo: leaf!.validTo,
+  }
 }
 
 /** Serves the local CA's certificate for tablets to download and install (a public certificate: no sign-in). */
@@ -199,10 +241,12 @@ export async function createHttpServer(config: Pick<Config, 'TLS' | 'TLS_DIR' | 
  */
 export async function lanBanner(o: { host: string; port: number; interfaces?: Interfaces }): Promise<string> {
   const host = o.host.trim()
-  if (host === 'localhost' || host === '::1' || /^127\./.test(host)) return `HTTPS on this computer only (HOST=${host}): tablets cannot reach it; start without HOST to listen on the workshop network.`
+  if (host === 'localhost' || host === '::1' || /^127\./.test(host))
+    return `HTTPS on this computer only (HOST=${host}): tablets cannot reach it; start without HOST to listen on the workshop network.`
   const ips = isWildcard(host) ? lanIPv4Addresses(o.interfaces ?? networkInterfaces()) : [host]
   const urls = ips.map((ip) => `https://${ip.includes(':') ? `[${ip}]` : ip}:${o.port}`)
-  if (!urls.length) return `No network address found: only this computer can open https://localhost:${o.port} (connect it to the workshop network and start again).`
+  if (!urls.length)
+    return `No network address found: only this computer can open https://localhost:${o.port} (connect it to the workshop network and start again).`
   const lines = ['Tablets on the workshop network open:', ...urls.map((u) => `  ${u}`)]
   lines.push('', await QRCode.toString(urls[0]!, { type: 'terminal', small: true, errorCorrectionLevel: 'M' }))
   lines.push(

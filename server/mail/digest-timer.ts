@@ -20,7 +20,10 @@ const LAST_CALL = '12:00'
 type DailyDeps = Pick<Deps, 'db' | 'mailer' | 'realtime' | 'jobs'>
 
 export async function dailyMailDone(db: Db, workshopId: number, day: string) {
-  const [r] = await db.select({ day: s.dailyMailRuns.day }).from(s.dailyMailRuns).where(and(eq(s.dailyMailRuns.workshopId, workshopId), eq(s.dailyMailRuns.day, day)))
+  const [r] = await db
+    .select({ day: s.dailyMailRuns.day })
+    .from(s.dailyMailRuns)
+    .where(and(eq(s.dailyMailRuns.workshopId, workshopId), eq(s.dailyMailRuns.day, day)))
   return !!r
 }
 
@@ -32,7 +35,10 @@ export async function runDailyMail(deps: DailyDeps, job: { workshopId: number; d
   const emitted: Parameters<Realtime['emit']>[] = []
   const result = await deps.db.transaction(async (tx) => {
     await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.dailyMail}, ${job.workshopId})`)
-    const [done] = await tx.select().from(s.dailyMailRuns).where(and(eq(s.dailyMailRuns.workshopId, job.workshopId), eq(s.dailyMailRuns.day, job.day)))
+    const [done] = await tx
+      .select()
+      .from(s.dailyMailRuns)
+      .where(and(eq(s.dailyMailRuns.workshopId, job.workshopId), eq(s.dailyMailRuns.day, job.day)))
     if (done) return null
     const now = new Date(job.at)
     // Events wait for the commit (a quote expired here is news only once it is).
@@ -66,10 +72,14 @@ export function startDigestTimer(deps: DailyDeps, o: { at?: string; everyMs?: nu
       const now = clock()
       for (const w of await deps.db.select({ id: s.workshops.id, timeZone: s.workshops.timeZone }).from(s.workshops)) {
         const local = dayjs(now).tz(w.timeZone)
-        const day = local.format('YYYY-MM-DD'), hm = local.format('HH:mm')
+        const day = local.format('YYYY-MM-DD'),
+          hm = local.format('HH:mm')
         const key = `${w.id}:${day}`
         if (hm < at || hm >= LAST_CALL || handled.has(key)) continue
-        if (await dailyMailDone(deps.db, w.id, day)) { handled.add(key); continue }
+        if (await dailyMailDone(deps.db, w.id, day)) {
+          handled.add(key)
+          continue
+        }
         const job = { workshopId: w.id, day, at: now.toISOString() }
         // Asked again each minute until done: a job lost with its instance is asked for again by the next tick.
         if (deps.jobs) await deps.jobs.send(QUEUES.dailyMail, job, { singletonKey: key })

@@ -78,11 +78,17 @@ export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> 
           messages.push(msg)
           if (messages.length > (o.keep ?? 1000)) messages.shift()
           if (db && msg.outboxId) {
-            await db.update(outbox).set({ status: 'delivered', sentAt: sql`coalesce(${outbox.sentAt}, now())` })
+            await db
+              .update(outbox)
+              .set({ status: 'delivered', sentAt: sql`coalesce(${outbox.sentAt}, now())` })
               .where(and(eq(outbox.id, msg.outboxId), eq(outbox.subject, msg.subject), inArray(outbox.status, ['queued', 'sent'])))
               .catch((err: Error) => console.error('[mail] test mailbox could not mark the outbox row:', err.message))
           }
-          for (const w of [...waiters]) if (w.test(msg)) { waiters.splice(waiters.indexOf(w), 1); w.resolve(msg) }
+          for (const w of [...waiters])
+            if (w.test(msg)) {
+              waiters.splice(waiters.indexOf(w), 1)
+              w.resolve(msg)
+            }
           callback()
         } catch (err) {
           callback(err as Error)
@@ -91,14 +97,22 @@ export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> 
     },
   })
   server.on('error', (err) => console.error('[mail] test mailbox error:', err.message))
-  const listen = (port: number) => new Promise<number>((resolve, reject) => {
-    const net = server.server
-    const onError = (err: Error) => { net.off('listening', onListening); reject(err) }
-    const onListening = () => { net.off('error', onError); const a = net.address(); resolve(typeof a === 'object' && a ? a.port : port) }
-    net.once('error', onError)
-    net.once('listening', onListening)
-    server.listen(port, host)
-  })
+  const listen = (port: number) =>
+    new Promise<number>((resolve, reject) => {
+      const net = server.server
+      const onError = (err: Error) => {
+        net.off('listening', onListening)
+        reject(err)
+      }
+      const onListening = () => {
+        net.off('error', onError)
+        const a = net.address()
+        resolve(typeof a === 'object' && a ? a.port : port)
+      }
+      net.once('error', onError)
+      net.once('listening', onListening)
+      server.listen(port, host)
+    })
   let port: number
   try {
     port = await listen(o.port ?? 0)
@@ -111,14 +125,27 @@ export async function startFakeSmtp(o: FakeSmtpOptions = {}): Promise<FakeSmtp> 
     url: `smtp://${host}:${port}`,
     messages,
     refused: 0,
-    refuseNext(n) { refuse = n },
-    useDb(d) { db = d },
+    refuseNext(n) {
+      refuse = n
+    },
+    useDb(d) {
+      db = d
+    },
     waitFor(test, timeoutMs = 5_000) {
       const hit = messages.find(test)
       if (hit) return Promise.resolve(hit)
       return new Promise((resolve, reject) => {
-        const w = { test, resolve: (m: ReceivedMessage) => { clearTimeout(timer); resolve(m) } }
-        const timer = setTimeout(() => { waiters.splice(waiters.indexOf(w), 1); reject(new Error('no such message arrived in the test mailbox')) }, timeoutMs)
+        const w = {
+          test,
+          resolve: (m: ReceivedMessage) => {
+            clearTimeout(timer)
+            resolve(m)
+          },
+        }
+        const timer = setTimeout(() => {
+          waiters.splice(waiters.indexOf(w), 1)
+          reject(new Error('no such message arrived in the test mailbox'))
+        }, timeoutMs)
         waiters.push(w)
       })
     },
@@ -146,8 +173,10 @@ function decodeQuotedPrintable(s: string): string {
   const text = s.replace(/=\r?\n/g, '')
   for (let i = 0; i < text.length; i++) {
     const ch = text[i]!
-    if (ch === '=' && /^[0-9A-F]{2}$/i.test(text.slice(i + 1, i + 3))) { bytes.push(parseInt(text.slice(i + 1, i + 3), 16)); i += 2 }
-    else bytes.push(...Buffer.from(ch, 'utf8'))
+    if (ch === '=' && /^[0-9A-F]{2}$/i.test(text.slice(i + 1, i + 3))) {
+      bytes.push(parseInt(text.slice(i + 1, i + 3), 16))
+      i += 2
+    } else bytes.push(...Buffer.from(ch, 'utf8'))
   }
   return Buffer.from(bytes).toString('utf8')
 }
@@ -162,12 +191,14 @@ function decodeBody(body: string, encoding = ''): string {
 /** Decodes RFC 2047 encoded words (=?UTF-8?Q?…?= and =?UTF-8?B?…?=) in a header. */
 export function decodeHeader(value: string): string {
   return value.replace(/=\?([^?]+)\?([QqBb])\?([^?]*)\?=\s*/g, (_m, _cs, enc: string, data: string) =>
-    enc.toUpperCase() === 'B' ? Buffer.from(data, 'base64').toString('utf8') : decodeQuotedPrintable(data.replace(/_/g, ' ')))
+    enc.toUpperCase() === 'B' ? Buffer.from(data, 'base64').toString('utf8') : decodeQuotedPrintable(data.replace(/_/g, ' ')),
+  )
 }
 
 function parseMessage(raw: string): Pick<ReceivedMessage, 'subject' | 'text' | 'html' | 'headers'> {
   const { headers, body } = splitHead(raw)
-  let text = '', html = ''
+  let text = '',
+    html = ''
   const visit = (h: Record<string, string>, b: string) => {
     const type = h['content-type'] ?? 'text/plain'
     const boundary = /boundary="?([^";]+)"?/i.exec(type)?.[1]

@@ -1,7 +1,11 @@
 // The workshop's e-mail texts: promise confirmation, ready for collection, and the managers' daily at-risk digest.
 import { dayjs } from '../lib/time'
 
-export interface MailContent { subject: string; text: string; html: string }
+export interface MailContent {
+  subject: string
+  text: string
+  html: string
+}
 
 const esc = (s: string) => s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!)
 
@@ -9,7 +13,13 @@ const esc = (s: string) => s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&
 export const longDate = (isoDate: string) => dayjs(isoDate).format('dddd D MMMM YYYY')
 
 /** Who the customer writes back to: the workshop's name, address and contact, as kept in its settings. */
-export interface WorkshopContact { name: string; address?: string; phone?: string; email?: string; currency?: string }
+export interface WorkshopContact {
+  name: string
+  address?: string
+  phone?: string
+  email?: string
+  currency?: string
+}
 
 /** Whether the new piece's steps are in the live plan, with the workshop-local dates they span. */
 export type BookingFacts = { booked: true; startDate: string; endDate: string } | { booked: false }
@@ -28,7 +38,15 @@ function wrap(w: WorkshopContact, paragraphs: string[], lines: string[] = []): {
   return { text, html }
 }
 
-export function promiseConfirmation(o: { workshop: WorkshopContact; customerName: string; orderNumber: string; title: string; promisedDate: string; priceQuoted: number; booking: BookingFacts }): MailContent {
+export function promiseConfirmation(o: {
+  workshop: WorkshopContact
+  customerName: string
+  orderNumber: string
+  title: string
+  promisedDate: string
+  priceQuoted: number
+  booking: BookingFacts
+}): MailContent {
   const when = `${longDate(o.promisedDate)} (${o.promisedDate})`
   const b = o.booking
   return {
@@ -37,9 +55,9 @@ export function promiseConfirmation(o: { workshop: WorkshopContact; customerName
       `Dear ${o.customerName},`,
       `Thank you for your order "${o.title}" (${o.orderNumber}). We promise it ready by ${when}.`,
       b.booked
-        ? (b.startDate === b.endDate
+        ? b.startDate === b.endDate
           ? `It is booked into our workshop plan for ${longDate(b.startDate)}.`
-          : `It is booked into our workshop plan: work starts on ${longDate(b.startDate)} and is planned to be finished on ${longDate(b.endDate)}.`)
+          : `It is booked into our workshop plan: work starts on ${longDate(b.startDate)} and is planned to be finished on ${longDate(b.endDate)}.`
         : 'It is not in our workshop plan yet; we will confirm the dates when it is.',
       ...(o.priceQuoted > 0 ? [`Price as quoted: ${money(o.priceQuoted, o.workshop.currency)}.`] : []),
       'We will write again when it is ready to collect.',
@@ -50,15 +68,30 @@ export function promiseConfirmation(o: { workshop: WorkshopContact; customerName
 export function readyForCollection(o: { workshop: WorkshopContact; customerName: string; orderNumber: string; title: string }): MailContent {
   return {
     subject: `${o.workshop.name}: order ${o.orderNumber} is ready to collect`,
-    ...wrap(o.workshop, [`Dear ${o.customerName},`, `Your order "${o.title}" (${o.orderNumber}) is finished and ready for collection.`, 'Please bring your order number with you.']),
+    ...wrap(o.workshop, [
+      `Dear ${o.customerName},`,
+      `Your order "${o.title}" (${o.orderNumber}) is finished and ready for collection.`,
+      'Please bring your order number with you.',
+    ]),
   }
 }
 
-export interface DigestLine { number: string; piece: string; orderNumber: string; due: string; expected: string | null; state: string; reason: string | null; isNew: boolean }
+export interface DigestLine {
+  number: string
+  piece: string
+  orderNumber: string
+  due: string
+  expected: string | null
+  state: string
+  reason: string | null
+  isNew: boolean
+}
 
 export function atRiskDigest(o: { workshopName: string; day: string; jobs: DigestLine[] }): MailContent {
-  const line = (j: DigestLine) => `${j.number} ${j.piece} (order ${j.orderNumber}) — ${j.state === 'late' ? 'LATE' : 'at risk'}: due ${j.due}, expected ${j.expected ?? 'not planned'}${j.reason ? `; ${j.reason}` : ''}`
-  const fresh = o.jobs.filter((j) => j.isNew), still = o.jobs.filter((j) => !j.isNew)
+  const line = (j: DigestLine) =>
+    `${j.number} ${j.piece} (order ${j.orderNumber}) — ${j.state === 'late' ? 'LATE' : 'at risk'}: due ${j.due}, expected ${j.expected ?? 'not planned'}${j.reason ? `; ${j.reason}` : ''}`
+  const fresh = o.jobs.filter((j) => j.isNew),
+    still = o.jobs.filter((j) => !j.isNew)
   const lines = [...fresh.map((j) => `NEW ${line(j)}`), ...still.map(line)]
   return {
     subject: `${o.workshopName}: ${fresh.length} job bag${fresh.length === 1 ? '' : 's'} newly at risk, ${o.jobs.length} in all (${o.day})`,

@@ -3,7 +3,13 @@ import nodemailer from 'nodemailer'
 import type SMTPTransport from 'nodemailer/lib/smtp-transport'
 import type { Config } from '../config'
 
-export interface OutgoingMessage { to: string; subject: string; text: string; html: string; headers?: Record<string, string> }
+export interface OutgoingMessage {
+  to: string
+  subject: string
+  text: string
+  html: string
+  headers?: Record<string, string>
+}
 
 /** What the services need from a mail transport. */
 export interface Mailer {
@@ -33,7 +39,15 @@ export function createMailer(config: Pick<Config, 'SMTP_URL' | 'MAIL_PORT' | 'MA
     target: inProcess ? 'in-process (test)' : withoutCredentials(url),
     async send(msg) {
       // Quoted-printable keeps the text readable for the local mailbox's small decoder and for people reading raw mail.
-      const info = await transport.sendMail({ from: config.MAIL_FROM, to: msg.to, subject: msg.subject, text: msg.text, html: msg.html, headers: msg.headers, textEncoding: 'quoted-printable' })
+      const info = await transport.sendMail({
+        from: config.MAIL_FROM,
+        to: msg.to,
+        subject: msg.subject,
+        text: msg.text,
+        html: msg.html,
+        headers: msg.headers,
+        textEncoding: 'quoted-printable',
+      })
       return { messageId: String(info.messageId ?? '') }
     },
     close: () => transport.close(),

@@ -34,7 +34,16 @@ function cachedSessionUser(db: Db, userId: number): Promise<SessionUser | null> 
 
 export async function loadSessionUser(db: Db, userId: number): Promise<SessionUser | null> {
   const rows = await db
-    .select({ id: users.id, email: users.email, name: users.name, role: users.role, active: users.active, workshopId: users.workshopId, workshopName: workshops.name, personId: people.id })
+    .select({
+      id: users.id,
+      email: users.email,
+      name: users.name,
+      role: users.role,
+      active: users.active,
+      workshopId: users.workshopId,
+      workshopName: workshops.name,
+      personId: people.id,
+    })
     .from(users)
     .innerJoin(workshops, eq(workshops.id, users.workshopId))
     .leftJoin(people, eq(people.userId, users.id))
@@ -90,7 +99,9 @@ export function sessionExtensionDue(cookie: { expires?: Date | null; originalMax
 }
 
 declare module 'express-session' {
-  interface SessionData { extendedAt?: number }
+  interface SessionData {
+    extendedAt?: number
+  }
 }
 
 /** The session table's store; saving a session that was read from the table updates its row and never brings back a row deleted meanwhile (signed out). */

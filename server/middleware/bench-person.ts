@@ -9,7 +9,9 @@ export const BENCH_PERSON_HEADER = 'x-bench-person'
 /** Routes a station may call without a PIN: entering or ending a PIN, and signing the tablet out. */
 const WITHOUT_PIN = new Set(['POST /bench-station/pin', 'DELETE /bench-station/pin', 'DELETE /session'])
 
-export interface BenchPersonRequest extends Request { benchPerson?: BenchPersonSession }
+export interface BenchPersonRequest extends Request {
+  benchPerson?: BenchPersonSession
+}
 
 const pinFirst = (message: string) => new AppError({ code: 'forbidden', message, details: { reason: 'bench-pin' } })
 

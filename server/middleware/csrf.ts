@@ -4,7 +4,9 @@ import type { Request, RequestHandler } from 'express'
 import { AppError } from '../errors/app-error'
 
 declare module 'express-session' {
-  interface SessionData { csrfToken?: string }
+  interface SessionData {
+    csrfToken?: string
+  }
 }
 
 export function csrfToken(req: Request): string {
@@ -17,6 +19,13 @@ export const requireCsrf: RequestHandler = (req, _res, next) => {
   const sent = req.get('x-csrf-token') ?? ''
   const want = req.session?.csrfToken ?? ''
   const ok = want.length > 0 && sent.length === want.length && timingSafeEqual(Buffer.from(sent), Buffer.from(want))
-  if (!ok) return next(new AppError({ code: 'forbidden', message: 'The page is out of date (security token missing or expired); reload and try again.', details: { reason: 'csrf' } }))
+  if (!ok)
+    return next(
+      new AppError({
+        code: 'forbidden',
+        message: 'The page is out of date (security token missing or expired); reload and try again.',
+        details: { reason: 'csrf' },
+      }),
+    )
   next()
 }

@@ -15,12 +15,14 @@ const recordId = (id: string | null) => (id === null ? null : Number(id))
 /** The engine's plan as assignments (pinned where the operation is pinned on the live plan). */
 export function fromEnginePlan(data: PlanningData, plan: Plan): Assignments {
   const iso = (m: number) => data.clock.toDate(m).toISOString()
-  return new Map(plan.operations.map((p) => {
-    const operationId = Number(p.operationId)
-    const a: Assignment = { operationId, benchId: recordId(p.benchId), personId: recordId(p.personId), start: iso(p.start), end: iso(p.end) }
-    if (data.meta.operations.get(p.operationId)?.op.pinned) a.pinned = true
-    return [operationId, a]
-  }))
+  return new Map(
+    plan.operations.map((p) => {
+      const operationId = Number(p.operationId)
+      const a: Assignment = { operationId, benchId: recordId(p.benchId), personId: recordId(p.personId), start: iso(p.start), end: iso(p.end) }
+      if (data.meta.operations.get(p.operationId)?.op.pinned) a.pinned = true
+      return [operationId, a]
+    }),
+  )
 }
 
 /** As a draft stores them (jsonb object keyed by operation id). */

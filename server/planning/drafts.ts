@@ -16,15 +16,36 @@ import type { PlanningData } from './problem'
 
 export async function listPlans(db: Db, workshopId: number) {
   const rows = await db
-    .select({ id: s.planVersions.id, number: s.planVersions.number, status: s.planVersions.status, createdAt: s.planVersions.createdAt, publishedAt: s.planVersions.publishedAt, score: s.planVersions.score, createdBy: s.planVersions.createdBy, publishedBy: s.planVersions.publishedBy })
-    .from(s.planVersions).where(eq(s.planVersions.workshopId, workshopId)).orderBy(desc(s.planVersions.number)).limit(100)
-  const names = new Map((await db.select({ id: s.users.id, name: s.users.name }).from(s.users).where(eq(s.users.workshopId, workshopId))).map((u) => [u.id, u.name]))
-  return rows.map((r) => ({ ...r, createdByName: r.createdBy ? names.get(r.createdBy) ?? null : null, publishedByName: r.publishedBy ? names.get(r.publishedBy) ?? null : null }))
+    .select({
+      id: s.planVersions.id,
+      number: s.planVersions.number,
+      status: s.planVersions.status,
+      createdAt: s.planVersions.createdAt,
+      publishedAt: s.planVersions.publishedAt,
+      score: s.planVersions.score,
+      createdBy: s.planVersions.createdBy,
+      publishedBy: s.planVersions.publishedBy,
+    })
+    .from(s.planVersions)
+    .where(eq(s.planVersions.workshopId, workshopId))
+    .orderBy(desc(s.planVersions.number))
+    .limit(100)
+  const names = new Map(
+    (await db.select({ id: s.users.id, name: s.users.name }).from(s.users).where(eq(s.users.workshopId, workshopId))).map((u) => [u.id, u.name]),
+  )
+  return rows.map((r) => ({
+    ...r,
+    createdByName: r.createdBy ? (names.get(r.createdBy) ?? null) : null,
+    publishedByName: r.publishedBy ? (names.get(r.publishedBy) ?? null) : null,
+  }))
 }
 
 /** A plan version with its assignments read through the schema (older drafts' string ids become numbers). */
 export async function getPlan(db: Tx, workshopId: number, id: number) {
-  const [p] = await db.select().from(s.planVersions).where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, workshopId)))
+  const [p] = await db
+    .select()
+    .from(s.planVersions)
+    .where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, workshopId)))
   if (!p) throw notFound('Plan')
   return { ...p, assignments: toStored(fromStored(p.assignments)) }
 }
@@ -61,25 +82,46 @@ async function whatItBuys(db: Db, workshopId: number, base: Assignments, draft: 
   const [w] = await db.select({ tz: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, workshopId))
   const ids = [...new Set([...base.keys(), ...draft.keys()])]
   const rows = ids.length
-    ? await db.select({ id: s.operations.id, bag: s.operations.jobBagId, promised: s.orders.promisedDate, due: s.orders.dueDate })
-      .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-      .where(and(inArray(s.operations.id, ids), eq(s.jobBags.workshopId, workshopId)))
+    ? await db
+        .select({ id: s.operations.id, bag: s.operations.jobBagId, promised: s.orders.promisedDate, due: s.orders.dueDate })
+        .from(s.operations)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+        .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+        .where(and(inArray(s.operations.id, ids), eq(s.jobBags.workshopId, workshopId)))
     : []
   const finish = (a: Assignments) => {
     const m = new Map<number, number>()
-    for (const r of rows) { const x = a.get(r.id); if (x) m.set(r.bag, Math.max(m.get(r.bag) ?? -Infinity, new Date(x.end).getTime())) }
+    for (const r of rows) {
+      const x = a.get(r.id)
+      if (x) m.set(r.bag, Math.max(m.get(r.bag) ?? -Infinity, new Date(x.end).getTime()))
+    }
     return m
   }
-  const before = finish(base), after = finish(draft)
-  const dueOf = new Map(rows.map((r) => [r.bag, dayjs.tz(`${r.promised ?? r.due} 00:00`, w?.tz ?? 'UTC').add(1, 'day').valueOf()]))
-  let earlier = 0, later = 0, lessLate = 0, moreLate = 0
+  const before = finish(base),
+    after = finish(draft)
+  const dueOf = new Map(
+    rows.map((r) => [
+      r.bag,
+      dayjs
+        .tz(`${r.promised ?? r.due} 00:00`, w?.tz ?? 'UTC')
+        .add(1, 'day')
+        .valueOf(),
+    ]),
+  )
+  let earlier = 0,
+    later = 0,
+    lessLate = 0,
+    moreLate = 0
   for (const [bag, b] of before) {
     const a = after.get(bag)
     if (a === undefined || a === b) continue
-    if (a < b) earlier++; else later++
+    if (a < b) earlier++
+    else later++
     const due = dueOf.get(bag)!
-    const lb = Math.max(0, b - due), la = Math.max(0, a - due)
-    if (la < lb) lessLate++; else if (la > lb) moreLate++
+    const lb = Math.max(0, b - due),
+      la = Math.max(0, a - due)
+    if (la < lb) lessLate++
+    else if (la > lb) moreLate++
   }
   return { earlier, later, lessLate, moreLate }
 }
@@ -89,7 +131,18 @@ export async function comparePlan(db: Db, workshopId: number, id: number, agains
   const draft = await readDraft(db, workshopId, id)
   const base = againstId ? await readDraft(db, workshopId, againstId) : (await readLivePlan(db, workshopId)).assignments
   const moves = diffAssignments(base, draft)
-  return { planId: id, against: againstId ?? 'live', moves, gains: await whatItBuys(db, workshopId, base, draft), counts: { bench: moves.filter((m) => m.change.includes('bench')).length, person: moves.filter((m) => m.change.includes('person')).length, time: moves.filter((m) => m.change.includes('time')).length, new: moves.filter((m) => m.change.includes('new')).length } }
+  return {
+    planId: id,
+    against: againstId ?? 'live',
+    moves,
+    gains: await whatItBuys(db, workshopId, base, draft),
+    counts: {
+      bench: moves.filter((m) => m.change.includes('bench')).length,
+      person: moves.filter((m) => m.change.includes('person')).length,
+      time: moves.filter((m) => m.change.includes('time')).length,
+      new: moves.filter((m) => m.change.includes('new')).length,
+    },
+  }
 }
 
 /**
@@ -99,11 +152,18 @@ export async function comparePlan(db: Db, workshopId: number, id: number, agains
 export async function publishDraft({ db, realtime }: Deps, actor: Actor, id: number) {
   const result = await db.transaction(async (tx) => {
     await lockLivePlan(tx, actor.workshopId)
-    const [p] = await tx.select().from(s.planVersions).where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, actor.workshopId))).for('update')
+    const [p] = await tx
+      .select()
+      .from(s.planVersions)
+      .where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, actor.workshopId)))
+      .for('update')
     if (!p) throw notFound('Plan')
     if (p.status !== 'draft') throw new AppError({ code: 'conflict', message: `Plan ${p.number} is ${p.status}, not a draft; only drafts can be published` })
     if ((p.score as { feasible?: boolean }).feasible === false)
-      throw new AppError({ code: 'unprocessable', message: `Plan ${p.number} breaks a planning rule (${describe((p.score as { violations?: (RuleViolation | string)[] }).violations ?? [], 1) || 'see the draft'}); it cannot become the live plan.` })
+      throw new AppError({
+        code: 'unprocessable',
+        message: `Plan ${p.number} breaks a planning rule (${describe((p.score as { violations?: (RuleViolation | string)[] }).violations ?? [], 1) || 'see the draft'}); it cannot become the live plan.`,
+      })
     const live = await readLivePlan(tx, actor.workshopId)
     const basedOn = (p.score as { basedOnPlanId?: number | null }).basedOnPlanId ?? null
     if (live.planId !== basedOn)
@@ -131,7 +191,11 @@ export const publishPlan = publishDraft
 
 export async function discardPlan({ db, realtime }: Deps, actor: Actor, id: number) {
   await db.transaction(async (tx) => {
-    const r = await tx.update(s.planVersions).set({ status: 'discarded' }).where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'draft'))).returning()
+    const r = await tx
+      .update(s.planVersions)
+      .set({ status: 'discarded' })
+      .where(and(eq(s.planVersions.id, id), eq(s.planVersions.workshopId, actor.workshopId), eq(s.planVersions.status, 'draft')))
+      .returning()
     if (!r.length) {
       await getPlan(db, actor.workshopId, id)
       throw new AppError({ code: 'conflict', message: 'Only a draft can be thrown away' })
@@ -145,13 +209,24 @@ export async function discardPlan({ db, realtime }: Deps, actor: Actor, id: numb
 /** A planner run's result saved as a draft, inside the transaction that marks the run done (its row locked and still held by this attempt). */
 export async function saveDraft(tx: Trx, actor: Actor, data: PlanningData, plan: Plan) {
   await lockLivePlan(tx, actor.workshopId)
-  const [last] = await tx.select({ n: s.planVersions.number }).from(s.planVersions).where(eq(s.planVersions.workshopId, actor.workshopId)).orderBy(desc(s.planVersions.number)).limit(1)
+  const [last] = await tx
+    .select({ n: s.planVersions.number })
+    .from(s.planVersions)
+    .where(eq(s.planVersions.workshopId, actor.workshopId))
+    .orderBy(desc(s.planVersions.number))
+    .limit(1)
   const live = await readLivePlan(tx, actor.workshopId)
-  const [row] = await tx.insert(s.planVersions).values({
-    workshopId: actor.workshopId, number: (last?.n ?? 0) + 1, status: 'draft', createdBy: actor.userId,
-    score: { ...summarise(data, plan), basedOnPlanId: live.planId },
-    assignments: toStored(fromEnginePlan(data, plan)),
-  }).returning({ id: s.planVersions.id })
+  const [row] = await tx
+    .insert(s.planVersions)
+    .values({
+      workshopId: actor.workshopId,
+      number: (last?.n ?? 0) + 1,
+      status: 'draft',
+      createdBy: actor.userId,
+      score: { ...summarise(data, plan), basedOnPlanId: live.planId },
+      assignments: toStored(fromEnginePlan(data, plan)),
+    })
+    .returning({ id: s.planVersions.id })
   await audit(tx, actor, 'draft', 'plan', row!.id, { weightedTardiness: plan.score.weightedTardiness, makespan: plan.score.makespan })
   return row!.id
 }

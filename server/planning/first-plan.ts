@@ -13,7 +13,12 @@ export async function publishFirstPlans(db: Db, seconds = 5): Promise<number[]> 
   for (const w of await db.select({ id: s.workshops.id }).from(s.workshops)) {
     const [n] = await db.select({ n: count() }).from(s.planVersions).where(eq(s.planVersions.workshopId, w.id))
     if ((n?.n ?? 0) > 0) continue
-    const [planner] = await db.select().from(s.users).where(and(eq(s.users.workshopId, w.id), inArray(s.users.role, ['manager', 'owner']), eq(s.users.active, true))).orderBy(asc(s.users.role), asc(s.users.id)).limit(1)
+    const [planner] = await db
+      .select()
+      .from(s.users)
+      .where(and(eq(s.users.workshopId, w.id), inArray(s.users.role, ['manager', 'owner']), eq(s.users.active, true)))
+      .orderBy(asc(s.users.role), asc(s.users.id))
+      .limit(1)
     if (!planner) continue
     const actor: Actor = { userId: planner.id, workshopId: w.id, role: planner.role, personId: null, name: planner.name }
     const deps = { db, realtime: new Realtime() }

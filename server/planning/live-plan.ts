@@ -36,15 +36,36 @@ export async function lockLivePlan(tx: Tx, workshopId: number) {
 /** The live plan as it is in this transaction (a change reads it after taking the lock). */
 export async function readLivePlan(tx: Tx, workshopId: number): Promise<LivePlan> {
   const rows = await tx
-    .select({ id: s.operations.id, benchId: s.operations.plannedBenchId, personId: s.operations.plannedPersonId, start: s.operations.plannedStart, end: s.operations.plannedEnd, pinned: s.operations.pinned })
+    .select({
+      id: s.operations.id,
+      benchId: s.operations.plannedBenchId,
+      personId: s.operations.plannedPersonId,
+      start: s.operations.plannedStart,
+      end: s.operations.plannedEnd,
+      pinned: s.operations.pinned,
+    })
     .from(s.operations)
     .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
     .where(and(eq(s.jobBags.workshopId, workshopId), isNotNull(s.operations.plannedStart), inArray(s.operations.status, [...OPEN_OPERATION])))
-  const [published] = await tx.select({ id: s.planVersions.id, number: s.planVersions.number }).from(s.planVersions).where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
-  const [last] = await tx.select({ seq: s.realtimeEvents.seq }).from(s.realtimeEvents).where(eq(s.realtimeEvents.workshopId, workshopId)).orderBy(desc(s.realtimeEvents.seq)).limit(1)
+  const [published] = await tx
+    .select({ id: s.planVersions.id, number: s.planVersions.number })
+    .from(s.planVersions)
+    .where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
+  const [last] = await tx
+    .select({ seq: s.realtimeEvents.seq })
+    .from(s.realtimeEvents)
+    .where(eq(s.realtimeEvents.workshopId, workshopId))
+    .orderBy(desc(s.realtimeEvents.seq))
+    .limit(1)
   const assignments: Assignments = new Map()
   for (const r of rows) {
-    const a: Assignment = { operationId: r.id, benchId: r.benchId, personId: r.personId, start: new Date(r.start!).toISOString(), end: new Date(r.end ?? r.start!).toISOString() }
+    const a: Assignment = {
+      operationId: r.id,
+      benchId: r.benchId,
+      personId: r.personId,
+      start: new Date(r.start!).toISOString(),
+      end: new Date(r.end ?? r.start!).toISOString(),
+    }
     if (r.pinned) a.pinned = true
     assignments.set(r.id, a)
   }
@@ -53,10 +74,17 @@ export async function readLivePlan(tx: Tx, workshopId: number): Promise<LivePlan
 
 /** Writes one assignment onto its operation's planned fields (the caller holds the lock and has checked it). A pin is set by a move or pin by hand only. */
 export async function writeAssignment(tx: Tx, a: Assignment, o: { bumpVersion?: boolean } = {}) {
-  const [row] = await tx.update(s.operations).set({
-    plannedBenchId: a.benchId, plannedPersonId: a.personId, plannedStart: a.start, plannedEnd: a.end,
-    ...(o.bumpVersion === false ? {} : { version: sql`${s.operations.version} + 1` }),
-  }).where(eq(s.operations.id, a.operationId)).returning({ id: s.operations.id, version: s.operations.version })
+  const [row] = await tx
+    .update(s.operations)
+    .set({
+      plannedBenchId: a.benchId,
+      plannedPersonId: a.personId,
+      plannedStart: a.start,
+      plannedEnd: a.end,
+      ...(o.bumpVersion === false ? {} : { version: sql`${s.operations.version} + 1` }),
+    })
+    .where(eq(s.operations.id, a.operationId))
+    .returning({ id: s.operations.id, version: s.operations.version })
   return row
 }
 
@@ -77,42 +105,66 @@ function clashes(plan: Assignments, a: Assignment, mine: Interval[], spans: (x: 
 /** Names of some operations, as the rule book names a step. */
 async function stepsById(tx: Tx, ids: number[]): Promise<Map<number, StepRef>> {
   if (!ids.length) return new Map()
-  const rows = await tx.select({ id: s.operations.id, name: s.operations.name, bagId: s.jobBags.id, bag: s.jobBags.number }).from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).where(inArray(s.operations.id, ids))
+  const rows = await tx
+    .select({ id: s.operations.id, name: s.operations.name, bagId: s.jobBags.id, bag: s.jobBags.number })
+    .from(s.operations)
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .where(inArray(s.operations.id, ids))
   return new Map(rows.map((r) => [r.id, { operationId: r.id, jobId: r.bagId, name: r.name, bag: r.bag }]))
 }
 
-export type Booking =
-  | { booked: true; start: string; end: string; startDate: string; endDate: string; steps: number }
-  | { booked: false; reason: string }
+export type Booking = { booked: true; start: string; end: string; startDate: string; endDate: string; steps: number } | { booked: false; reason: string }
 
 /** A step of a new job bag as a promise placed it (engine minutes; bench and person as the engine names them). */
-export interface PromisedStep { key: string; benchId: string | null; personId: string | null; start: number; end: number; segments: Interval[] }
+export interface PromisedStep {
+  key: string
+  benchId: string | null
+  personId: string | null
+  start: number
+  end: number
+  segments: Interval[]
+}
 
 /**
  * A promise books the slot it found: inside the order's transaction, under the live plan's lock, each bench step is checked
  * against the live plan as it is now (the rule book's double booking, on the bench's and person's working time); any clash
  * and nothing is booked, the answer saying which booking took the room. Otherwise the new job bag's steps are written.
  */
-export async function bookPromise(tx: Tx, actor: Actor, o: { data: PlanningData; orderId: number; steps: PromisedStep[]; completion: number }): Promise<Booking> {
+export async function bookPromise(
+  tx: Tx,
+  actor: Actor,
+  o: { data: PlanningData; orderId: number; steps: PromisedStep[]; completion: number },
+): Promise<Booking> {
   await lockLivePlan(tx, actor.workshopId)
   const { data, orderId, steps } = o
   const c = data.clock
   const when = (m: number) => dayjs(c.toDate(m)).tz(c.timeZone).format('ddd D MMM HH:mm')
   const [bag] = await tx.select({ id: s.jobBags.id, number: s.jobBags.number }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId))
-  const ops = await tx.select({ id: s.operations.id, key: s.operations.key, name: s.operations.name }).from(s.operations).where(eq(s.operations.jobBagId, bag!.id))
+  const ops = await tx
+    .select({ id: s.operations.id, key: s.operations.key, name: s.operations.name })
+    .from(s.operations)
+    .where(eq(s.operations.jobBagId, bag!.id))
   const byKey = new Map(ops.map((x) => [x.key, x]))
   const benches = new Map(data.problem.benches.map((b) => [b.id, b.available]))
   const people = new Map(data.problem.people.map((p) => [p.id, p.available]))
   /** Where another booking really takes time: its span clipped to its bench's and person's shared working time. */
   const spans = (x: Assignment): Interval[] => {
-    const b = benches.get(engineId(x.benchId) ?? ''), p = people.get(engineId(x.personId) ?? '')
-    const from = c.toMinute(x.start), to = c.toMinute(x.end)
+    const b = benches.get(engineId(x.benchId) ?? ''),
+      p = people.get(engineId(x.personId) ?? '')
+    const from = c.toMinute(x.start),
+      to = c.toMinute(x.end)
     return b && p ? clipToWindows(intersect(b, p), from, to) : [{ start: from, end: to }]
   }
   const live = await readLivePlan(tx, actor.workshopId)
   const wanted = steps.map((st) => {
     const op = byKey.get(st.key)!
-    const a: Assignment = { operationId: op.id, benchId: st.benchId === null ? null : Number(st.benchId), personId: st.personId === null ? null : Number(st.personId), start: c.toDate(st.start).toISOString(), end: c.toDate(st.end).toISOString() }
+    const a: Assignment = {
+      operationId: op.id,
+      benchId: st.benchId === null ? null : Number(st.benchId),
+      personId: st.personId === null ? null : Number(st.personId),
+      start: c.toDate(st.start).toISOString(),
+      end: c.toDate(st.end).toISOString(),
+    }
     return { st, op, a }
   })
   for (const { st, op, a } of wanted) {
@@ -120,14 +172,24 @@ export async function bookPromise(tx: Tx, actor: Actor, o: { data: PlanningData;
     const found = clashes(live.assignments, a, st.segments, spans)[0]
     if (!found) continue
     const other = (await stepsById(tx, [found.other.operationId])).get(found.other.operationId)!
-    const name = found.resource === 'bench' ? data.meta.benches.get(String(a.benchId))?.name ?? 'the bench' : data.meta.people.get(String(a.personId))?.name ?? 'the person'
-    const v = rules.doubleBooking({ operationId: op.id, jobId: bag!.id, name: op.name, bag: bag!.number }, { resource: found.resource, name, other, from: found.from, to: found.to, when })
-    return { booked: false, reason: `the room the promise found was taken meanwhile (${other.bag} "${other.name}"; ${v.message}); the manager plans it at the next re-plan` }
+    const name =
+      found.resource === 'bench'
+        ? (data.meta.benches.get(String(a.benchId))?.name ?? 'the bench')
+        : (data.meta.people.get(String(a.personId))?.name ?? 'the person')
+    const v = rules.doubleBooking(
+      { operationId: op.id, jobId: bag!.id, name: op.name, bag: bag!.number },
+      { resource: found.resource, name, other, from: found.from, to: found.to, when },
+    )
+    return {
+      booked: false,
+      reason: `the room the promise found was taken meanwhile (${other.bag} "${other.name}"; ${v.message}); the manager plans it at the next re-plan`,
+    }
   }
   for (const { a } of wanted) await writeAssignment(tx, a)
   const first = steps.reduce((m, x) => Math.min(m, x.start), Infinity)
   await audit(tx, actor, 'book', 'order', orderId, { steps: steps.length, start: c.toDate(first).toISOString(), end: c.toDate(o.completion).toISOString() })
-  const a = localTime(data, first), b = localTime(data, o.completion)
+  const a = localTime(data, first),
+    b = localTime(data, o.completion)
   return { booked: true, start: a.at, end: b.at, startDate: a.date, endDate: b.date, steps: steps.length }
 }
 
@@ -144,7 +206,11 @@ export interface ClaimOnPlan {
  * claim's transaction, which takes the live plan's lock before it locks the job bag (the same order as every plan change).
  * Double bookings the move makes are reported as findings, never refused. Unplanned steps stay unplanned (null).
  */
-export async function claimOnPlan(tx: Tx, actor: Actor, o: { operationId: number; person: { id: number; name: string }; bench: { id: number; name: string } }): Promise<ClaimOnPlan | null> {
+export async function claimOnPlan(
+  tx: Tx,
+  actor: Actor,
+  o: { operationId: number; person: { id: number; name: string }; bench: { id: number; name: string } },
+): Promise<ClaimOnPlan | null> {
   await lockLivePlan(tx, actor.workshopId)
   const live = await readLivePlan(tx, actor.workshopId)
   const mine = live.assignments.get(o.operationId)
@@ -154,8 +220,20 @@ export async function claimOnPlan(tx: Tx, actor: Actor, o: { operationId: number
   const found = clashes(live.assignments, a, span(a), span)
   const named = await stepsById(tx, [o.operationId, ...found.map((f) => f.other.operationId)])
   const [w] = await tx.select({ tz: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
-  const when = (m: number) => dayjs(m * 60_000).tz(w?.tz ?? 'UTC').format('ddd D MMM HH:mm')
-  const findings = found.map((f) => rules.doubleBooking(named.get(o.operationId)!, { resource: f.resource, name: f.resource === 'bench' ? o.bench.name : o.person.name, other: named.get(f.other.operationId)!, from: f.from, to: f.to, when }))
+  const when = (m: number) =>
+    dayjs(m * 60_000)
+      .tz(w?.tz ?? 'UTC')
+      .format('ddd D MMM HH:mm')
+  const findings = found.map((f) =>
+    rules.doubleBooking(named.get(o.operationId)!, {
+      resource: f.resource,
+      name: f.resource === 'bench' ? o.bench.name : o.person.name,
+      other: named.get(f.other.operationId)!,
+      from: f.from,
+      to: f.to,
+      when,
+    }),
+  )
   // The claim has moved the row's version on already: one change, one version.
   await writeAssignment(tx, a, { bumpVersion: false })
   return { from: { benchId: mine.benchId, personId: mine.personId }, to: { benchId: o.bench.id, personId: o.person.id }, findings }

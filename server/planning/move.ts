@@ -18,7 +18,9 @@ import { loadPlanningData } from './problem'
 const refuse = (message: string, rule: string) => new AppError({ code: 'unprocessable', message, details: { rule } })
 /** A rule book finding as the board's refusal: the message to show, the rule's name for the bar's tooltip, the facts. */
 const refused = (v: RuleViolation) => new AppError({ code: 'unprocessable', message: v.message, details: { rule: v.rule, severity: v.severity, ...v.details } })
-const check = (v: RuleViolation | null) => { if (v) throw refused(v) }
+const check = (v: RuleViolation | null) => {
+  if (v) throw refused(v)
+}
 
 /** A move (bench, person, start) and/or a pin of one operation on the live plan; the board's PATCH. */
 export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId: number, input: MoveInput, now = new Date()) {
@@ -30,13 +32,18 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
     const when = (m: number) => dayjs(c.toDate(m)).tz(c.timeZone).format('ddd D MMM HH:mm')
     const m = data.meta.operations.get(String(opId))
     if (!m) {
-      const [row] = await tx.select({ id: s.operations.id }).from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).where(and(eq(s.operations.id, opId), eq(s.jobBags.workshopId, actor.workshopId)))
+      const [row] = await tx
+        .select({ id: s.operations.id })
+        .from(s.operations)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+        .where(and(eq(s.operations.id, opId), eq(s.jobBags.workshopId, actor.workshopId)))
       throw row ? refuse('This operation is finished or its order is closed; it is no longer on the plan.', 'closed') : notFound('Operation')
     }
     const { op, kind, bag } = m
     const self: StepRef = { operationId: op.id, jobId: bag.id, name: op.name, bag: bag.number }
     if (op.version !== input.version) throw staleVersion(`Step "${op.name}" of ${bag.number}`)
-    if (['running', 'done', 'skipped'].includes(op.status)) throw refuse(`"${op.name}" of ${bag.number} is ${op.status === 'running' ? 'being worked on at the bench' : op.status}; it cannot be moved.`, 'status')
+    if (['running', 'done', 'skipped'].includes(op.status))
+      throw refuse(`"${op.name}" of ${bag.number} is ${op.status === 'running' ? 'being worked on at the bench' : op.status}; it cannot be moved.`, 'status')
     const outside = kind.outside || op.leadDays > 0
     const benchId = input.benchId === undefined ? op.plannedBenchId : input.benchId
     const personId = input.personId === undefined ? op.plannedPersonId : input.personId
@@ -62,14 +69,31 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
         const person = data.meta.people.get(String(personId))
         if (!bench) throw refused(rules.allowedPair(self, { bench: String(benchId), person: null, why: 'that bench is not in use' }))
         if (!person) throw refused(rules.allowedPair(self, { bench: bench.name, person: String(personId), why: 'that person is not active' }))
-        check(rules.benchCapability(self, { benchName: bench.name, kindName: kind.name, capable: data.meta.capabilities.some((x) => x.benchId === bench.id && x.kindId === op.kindId) }))
+        check(
+          rules.benchCapability(self, {
+            benchName: bench.name,
+            kindName: kind.name,
+            capable: data.meta.capabilities.some((x) => x.benchId === bench.id && x.kindId === op.kindId),
+          }),
+        )
         const skill = data.meta.skills.find((x) => x.personId === person.id && x.kindId === op.kindId)
         check(rules.skill(self, { personName: person.name, kindName: kind.name, level: skill?.level ?? null, required: op.requiredLevel }))
-        if (op.claimedBy && op.claimedBy !== person.id) throw refused(rules.allowedPair(self, { bench: bench.name, person: person.name, why: `it is claimed by ${data.meta.people.get(String(op.claimedBy))?.name ?? 'someone else'}` }))
-        const windows = intersect(data.problem.benches.find((b) => b.id === String(bench.id))!.available, data.problem.people.find((p) => p.id === String(person.id))!.available)
+        if (op.claimedBy && op.claimedBy !== person.id)
+          throw refused(
+            rules.allowedPair(self, {
+              bench: bench.name,
+              person: person.name,
+              why: `it is claimed by ${data.meta.people.get(String(op.claimedBy))?.name ?? 'someone else'}`,
+            }),
+          )
+        const windows = intersect(
+          data.problem.benches.find((b) => b.id === String(bench.id))!.available,
+          data.problem.people.find((p) => p.id === String(person.id))!.available,
+        )
         const minutes = Math.max(1, Math.ceil(op.estimateMinutes / skill!.speed))
         const walked = walkWorkingTime(windows, start, minutes)
-        if (!walked) throw refused(violation('within the horizon', self, `${bench.name} and ${person.name} have no working time left in the calendar for “${op.name}”.`))
+        if (!walked)
+          throw refused(violation('within the horizon', self, `${bench.name} and ${person.name} have no working time left in the calendar for “${op.name}”.`))
         segments = walked
         // A drop in a break or after hours starts at the next time both are at work.
         start = walked[0]!.start
@@ -81,11 +105,26 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
           if (!sameBench && !samePerson) continue
           const other = data.meta.operations.get(String(a.operationId))
           if (!other || other.op.status === 'done') continue
-          const w = a.benchId && a.personId ? intersect(data.problem.benches.find((b) => b.id === engineId(a.benchId))?.available ?? [], data.problem.people.find((p) => p.id === engineId(a.personId))?.available ?? []) : null
+          const w =
+            a.benchId && a.personId
+              ? intersect(
+                  data.problem.benches.find((b) => b.id === engineId(a.benchId))?.available ?? [],
+                  data.problem.people.find((p) => p.id === engineId(a.personId))?.available ?? [],
+                )
+              : null
           const theirs = w ? clipToWindows(w, c.toMinute(a.start), c.toMinute(a.end)) : [{ start: c.toMinute(a.start), end: c.toMinute(a.end) }]
           const clash = theirs.find((t) => segments.some((x) => x.start < t.end && t.start < x.end))
           if (clash) {
-            throw refused(rules.doubleBooking(self, { resource: sameBench ? 'bench' : 'person', name: sameBench ? bench.name : person.name, other: { operationId: other.op.id, jobId: other.bag.id, name: other.op.name, bag: other.bag.number }, from: clash.start, to: clash.end, when }))
+            throw refused(
+              rules.doubleBooking(self, {
+                resource: sameBench ? 'bench' : 'person',
+                name: sameBench ? bench.name : person.name,
+                other: { operationId: other.op.id, jobId: other.bag.id, name: other.op.name, bag: other.bag.number },
+                from: clash.start,
+                to: clash.end,
+                when,
+              }),
+            )
           }
         }
       }
@@ -103,7 +142,15 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
         if (p.op.status === 'done' || p.op.status === 'skipped') continue
         const pa = live.get(p.op.id)
         if (!pa) throw refused(violation('routing order', self, `“${p.op.name}” comes first and is not planned yet.`, { predecessor: p.op.name }))
-        check(rules.routingOrder(self, { start, predecessor: p.op.name, readyAt: c.toMinute(pa.end) + p.op.waitAfterMinutes, waitAfter: p.op.waitAfterMinutes, when }))
+        check(
+          rules.routingOrder(self, {
+            start,
+            predecessor: p.op.name,
+            readyAt: c.toMinute(pa.end) + p.op.waitAfterMinutes,
+            waitAfter: p.op.waitAfterMinutes,
+            when,
+          }),
+        )
       }
       for (const n of siblings.filter((x) => x.op.after.includes(op.key))) {
         const na = live.get(n.op.id)
@@ -113,15 +160,38 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
     }
 
     const values: Record<string, unknown> = { version: sql`${s.operations.version} + 1` }
-    if (moving) Object.assign(values, { plannedBenchId: benchId ?? null, plannedPersonId: personId ?? null, plannedStart: c.toDate(start!).toISOString(), plannedEnd: c.toDate(end!).toISOString() })
+    if (moving)
+      Object.assign(values, {
+        plannedBenchId: benchId ?? null,
+        plannedPersonId: personId ?? null,
+        plannedStart: c.toDate(start!).toISOString(),
+        plannedEnd: c.toDate(end!).toISOString(),
+      })
     if (input.pinned !== undefined) values.pinned = input.pinned
-    const r = await tx.update(s.operations).set(values).where(and(eq(s.operations.id, opId), eq(s.operations.version, input.version))).returning()
+    const r = await tx
+      .update(s.operations)
+      .set(values)
+      .where(and(eq(s.operations.id, opId), eq(s.operations.version, input.version)))
+      .returning()
     if (!r[0]) throw staleVersion(`Step "${op.name}" of ${bag.number}`)
-    await audit(tx, actor, moving ? 'move' : 'pin', 'operation', opId, { benchId, personId, start: moving ? c.toDate(start!).toISOString() : undefined, pinned: input.pinned })
+    await audit(tx, actor, moving ? 'move' : 'pin', 'operation', opId, {
+      benchId,
+      personId,
+      start: moving ? c.toDate(start!).toISOString() : undefined,
+      pinned: input.pinned,
+    })
     return r[0]
   })
   realtime.emit(actor.workshopId, 'plan:changed', { id: opId, operationId: opId, version: updated.version })
-  return { id: updated.id, version: updated.version, benchId: updated.plannedBenchId, personId: updated.plannedPersonId, start: updated.plannedStart, end: updated.plannedEnd, pinned: updated.pinned }
+  return {
+    id: updated.id,
+    version: updated.version,
+    benchId: updated.plannedBenchId,
+    personId: updated.plannedPersonId,
+    start: updated.plannedStart,
+    end: updated.plannedEnd,
+    pinned: updated.pinned,
+  }
 }
 
 /** Pinning (or unpinning) one operation where it stands: the same transaction and routing-order checks as a move. */

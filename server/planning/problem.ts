@@ -14,7 +14,15 @@ export interface PlanningData {
   problem: Problem
   clock: MinuteClock
   meta: {
-    operations: Map<string, { op: typeof s.operations.$inferSelect; bag: typeof s.jobBags.$inferSelect; order: typeof s.orders.$inferSelect; kind: typeof s.operationKinds.$inferSelect }>
+    operations: Map<
+      string,
+      {
+        op: typeof s.operations.$inferSelect
+        bag: typeof s.jobBags.$inferSelect
+        order: typeof s.orders.$inferSelect
+        kind: typeof s.operationKinds.$inferSelect
+      }
+    >
     benches: Map<string, typeof s.benches.$inferSelect>
     people: Map<string, typeof s.people.$inferSelect>
     kinds: Map<number, typeof s.operationKinds.$inferSelect>
@@ -38,8 +46,16 @@ export interface PlanningData {
 export const weightOfPriority = (priority: number) => Math.min(5, Math.max(1, priority))
 
 /** Bench × person pairs that can do work of this kind at this level (active benches and people), with each person's minutes. */
-export function operationOptions(meta: Pick<PlanningData['meta'], 'benches' | 'people' | 'skills' | 'capabilities'>, kindId: number, requiredLevel: number, minutes: (speed: number) => number) {
-  const benchIds = meta.capabilities.filter((c) => c.kindId === kindId).map((c) => c.benchId).filter((id) => meta.benches.has(String(id)))
+export function operationOptions(
+  meta: Pick<PlanningData['meta'], 'benches' | 'people' | 'skills' | 'capabilities'>,
+  kindId: number,
+  requiredLevel: number,
+  minutes: (speed: number) => number,
+) {
+  const benchIds = meta.capabilities
+    .filter((c) => c.kindId === kindId)
+    .map((c) => c.benchId)
+    .filter((id) => meta.benches.has(String(id)))
   const able = meta.skills.filter((k) => k.kindId === kindId && k.level >= requiredLevel && meta.people.has(String(k.personId)))
   return benchIds.flatMap((b) => able.map((k) => ({ benchId: String(b), personId: String(k.personId), minutes: minutes(k.speed) })))
 }
@@ -55,12 +71,37 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
 
   // One after another: inside a transaction the queries share one connection, which runs them in turn anyway.
   const closures = await db.select().from(s.closures).where(eq(s.closures.workshopId, workshopId))
-  const benches = await db.select().from(s.benches).where(and(eq(s.benches.workshopId, workshopId), eq(s.benches.active, true)))
-  const caps = await db.select({ benchId: s.benchCapabilities.benchId, kindId: s.benchCapabilities.kindId }).from(s.benchCapabilities).innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId)).where(eq(s.benches.workshopId, workshopId))
-  const downtime = await db.select({ d: s.benchDowntime }).from(s.benchDowntime).innerJoin(s.benches, eq(s.benches.id, s.benchDowntime.benchId)).where(eq(s.benches.workshopId, workshopId)).then((r) => r.map((x) => x.d))
-  const people = await db.select().from(s.people).where(and(eq(s.people.workshopId, workshopId), eq(s.people.active, true)))
-  const skills = await db.select({ k: s.personSkills }).from(s.personSkills).innerJoin(s.people, eq(s.people.id, s.personSkills.personId)).where(eq(s.people.workshopId, workshopId)).then((r) => r.map((x) => x.k))
-  const leave = await db.select({ l: s.leave }).from(s.leave).innerJoin(s.people, eq(s.people.id, s.leave.personId)).where(eq(s.people.workshopId, workshopId)).then((r) => r.map((x) => x.l))
+  const benches = await db
+    .select()
+    .from(s.benches)
+    .where(and(eq(s.benches.workshopId, workshopId), eq(s.benches.active, true)))
+  const caps = await db
+    .select({ benchId: s.benchCapabilities.benchId, kindId: s.benchCapabilities.kindId })
+    .from(s.benchCapabilities)
+    .innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId))
+    .where(eq(s.benches.workshopId, workshopId))
+  const downtime = await db
+    .select({ d: s.benchDowntime })
+    .from(s.benchDowntime)
+    .innerJoin(s.benches, eq(s.benches.id, s.benchDowntime.benchId))
+    .where(eq(s.benches.workshopId, workshopId))
+    .then((r) => r.map((x) => x.d))
+  const people = await db
+    .select()
+    .from(s.people)
+    .where(and(eq(s.people.workshopId, workshopId), eq(s.people.active, true)))
+  const skills = await db
+    .select({ k: s.personSkills })
+    .from(s.personSkills)
+    .innerJoin(s.people, eq(s.people.id, s.personSkills.personId))
+    .where(eq(s.people.workshopId, workshopId))
+    .then((r) => r.map((x) => x.k))
+  const leave = await db
+    .select({ l: s.leave })
+    .from(s.leave)
+    .innerJoin(s.people, eq(s.people.id, s.leave.personId))
+    .where(eq(s.people.workshopId, workshopId))
+    .then((r) => r.map((x) => x.l))
   const kinds = await db.select().from(s.operationKinds).where(eq(s.operationKinds.workshopId, workshopId))
   const closed = closures.map((c) => dayRange(clock, c.startsOn, c.endsOn))
   const workshopHours = subtract(expandPattern(clock, w.weekPattern, days), closed)
@@ -71,11 +112,16 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
   )
 
   const benchModels = benches.map((b) => ({
-    id: String(b.id), name: b.name,
-    available: subtract(workshopHours, downtime.filter((d) => d.benchId === b.id).map((d) => ({ start: clock.toMinute(d.startsAt), end: clock.toMinute(d.endsAt) }))),
+    id: String(b.id),
+    name: b.name,
+    available: subtract(
+      workshopHours,
+      downtime.filter((d) => d.benchId === b.id).map((d) => ({ start: clock.toMinute(d.startsAt), end: clock.toMinute(d.endsAt) })),
+    ),
   }))
   const personModels = people.map((p) => ({
-    id: String(p.id), name: p.name,
+    id: String(p.id),
+    name: p.name,
     available: subtract(
       subtract(expandPattern(clock, p.weekPattern ?? w.weekPattern, days), closed),
       leave.filter((l) => l.personId === p.id).map((l) => dayRange(clock, l.startsOn, l.endsOn)),
@@ -83,15 +129,51 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
   }))
 
   // Open work: job bags of orders still to make.
-  const orders = await db.select().from(s.orders).where(and(eq(s.orders.workshopId, workshopId), notInArray(s.orders.status, ['collected', 'cancelled', 'ready', 'quoted'])))
+  const orders = await db
+    .select()
+    .from(s.orders)
+    .where(and(eq(s.orders.workshopId, workshopId), notInArray(s.orders.status, ['collected', 'cancelled', 'ready', 'quoted'])))
   const openBags = orders.length
-    ? await db.select().from(s.jobBags).where(and(inArray(s.jobBags.orderId, orders.map((o) => o.id)), notInArray(s.jobBags.status, ['complete', 'cancelled'])))
+    ? await db
+        .select()
+        .from(s.jobBags)
+        .where(
+          and(
+            inArray(
+              s.jobBags.orderId,
+              orders.map((o) => o.id),
+            ),
+            notInArray(s.jobBags.status, ['complete', 'cancelled']),
+          ),
+        )
     : []
-  const holds = await depositHolds(db, workshopId, openBags.map((b) => b.id))
+  const holds = await depositHolds(
+    db,
+    workshopId,
+    openBags.map((b) => b.id),
+  )
   const bags = openBags.filter((b) => !holds.has(b.id))
-  const ops = bags.length ? await db.select().from(s.operations).where(inArray(s.operations.jobBagId, bags.map((b) => b.id))) : []
+  const ops = bags.length
+    ? await db
+        .select()
+        .from(s.operations)
+        .where(
+          inArray(
+            s.operations.jobBagId,
+            bags.map((b) => b.id),
+          ),
+        )
+    : []
   const openRecords = ops.length
-    ? await db.select().from(s.timeRecords).where(inArray(s.timeRecords.operationId, ops.map((o) => o.id)))
+    ? await db
+        .select()
+        .from(s.timeRecords)
+        .where(
+          inArray(
+            s.timeRecords.operationId,
+            ops.map((o) => o.id),
+          ),
+        )
     : []
 
   const nowMin = clock.toMinute(now)
@@ -99,8 +181,17 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
   const orderMap = new Map(orders.map((o) => [o.id, o]))
   const bagMap = new Map(bags.map((b) => [b.id, b]))
   const meta: PlanningData['meta'] = {
-    operations: new Map(), benches: new Map(benches.map((b) => [String(b.id), b])), people: new Map(people.map((p) => [String(p.id), p])),
-    kinds: kindMap, nonWorking, open: workshopHours, closures, leave, downtime, skills, capabilities: caps,
+    operations: new Map(),
+    benches: new Map(benches.map((b) => [String(b.id), b])),
+    people: new Map(people.map((p) => [String(p.id), p])),
+    kinds: kindMap,
+    nonWorking,
+    open: workshopHours,
+    closures,
+    leave,
+    downtime,
+    skills,
+    capabilities: caps,
     held: openBags.filter((b) => holds.has(b.id)).map((b) => ({ bag: b, order: orderMap.get(b.orderId)!, reason: holds.get(b.id)!.reason })),
   }
   const keyToId = new Map(ops.map((o) => [`${o.jobBagId}:${o.key}`, String(o.id)]))
@@ -110,21 +201,27 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
     const kind = kindMap.get(op.kindId)!
     meta.operations.set(String(op.id), { op, bag, order: orderMap.get(bag.orderId)!, kind })
     const base: EngineOperation = {
-      id: String(op.id), jobId: String(bag.id), name: op.name, kind: kind.code,
+      id: String(op.id),
+      jobId: String(bag.id),
+      name: op.name,
+      kind: kind.code,
       predecessors: op.after.map((k) => keyToId.get(`${bag.id}:${k}`)).filter((x): x is string => !!x),
       options: [],
       ...(op.waitAfterMinutes > 0 ? { waitAfter: op.waitAfterMinutes } : {}),
     }
     if (op.status === 'done' || op.status === 'skipped') {
       // When it finished: the step's own finish, else the end of its last time record; its wait (pickle, cure) runs from there.
-      const lastRecord = openRecords.filter((r) => r.operationId === op.id && r.endedAt).reduce<string | null>((m, r) => (m === null || new Date(r.endedAt!).getTime() > new Date(m).getTime() ? r.endedAt! : m), null)
-      const finished = op.status === 'done' ? op.finishedAt ?? lastRecord : null
+      const lastRecord = openRecords
+        .filter((r) => r.operationId === op.id && r.endedAt)
+        .reduce<string | null>((m, r) => (m === null || new Date(r.endedAt!).getTime() > new Date(m).getTime() ? r.endedAt! : m), null)
+      const finished = op.status === 'done' ? (op.finishedAt ?? lastRecord) : null
       engineOps.push({ ...base, done: true, ...(finished ? { finishedAt: clock.toMinute(finished) } : {}) })
       continue
     }
     if (op.leadDays > 0 || kind.outside) {
       // Sent out (running) or pinned: away from the day it left (or is pinned to leave).
-      const away = (op.status === 'running' || op.pinned) && op.plannedStart ? { fixed: { benchId: null, personId: null, start: clock.toMinute(op.plannedStart) } } : {}
+      const away =
+        (op.status === 'running' || op.pinned) && op.plannedStart ? { fixed: { benchId: null, personId: null, start: clock.toMinute(op.plannedStart) } } : {}
       engineOps.push({ ...base, outsideWorkingDays: Math.max(1, op.leadDays), ...away })
       continue
     }
@@ -156,15 +253,26 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
   const jobs = bags.map((b) => {
     const order = orderMap.get(b.orderId)!
     return {
-      id: String(b.id), name: `${b.number} ${b.piece}`,
+      id: String(b.id),
+      name: `${b.number} ${b.piece}`,
       release: Math.max(nowMin, b.releaseAt ? clock.toMinute(b.releaseAt) : nowMin),
-      due: clock.at(dayjs(order.promisedDate ?? order.dueDate).add(1, 'day').format('YYYY-MM-DD')),
+      due: clock.at(
+        dayjs(order.promisedDate ?? order.dueDate)
+          .add(1, 'day')
+          .format('YYYY-MM-DD'),
+      ),
       weight: weightOfPriority(order.priority),
     }
   })
   const problem: Problem = {
-    origin: originDay, now: nowMin, horizon: clock.at(lastDay, '23:59'), workshopDays,
-    benches: benchModels, people: personModels, jobs, operations: engineOps,
+    origin: originDay,
+    now: nowMin,
+    horizon: clock.at(lastDay, '23:59'),
+    workshopDays,
+    benches: benchModels,
+    people: personModels,
+    jobs,
+    operations: engineOps,
   }
   return { problem, clock, meta }
 }

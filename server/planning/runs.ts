@@ -22,7 +22,11 @@ export function planningError(err: unknown, data?: PlanningData): AppError | unk
   if (!(err instanceof SchedulingInputError)) return err
   const m = err.operationId ? data?.meta.operations.get(err.operationId) : undefined
   const where = m ? `Job bag ${m.bag.number}, step "${m.op.name}": ` : ''
-  return new AppError({ code: 'unprocessable', message: `${where}${err.message}`, details: { reason: err.code, jobBagId: m?.bag.id ?? err.jobId, operationId: m?.op.id ?? err.operationId } })
+  return new AppError({
+    code: 'unprocessable',
+    message: `${where}${err.message}`,
+    details: { reason: err.code, jobBagId: m?.bag.id ?? err.jobId, operationId: m?.op.id ?? err.operationId },
+  })
 }
 
 /** Loads the problem with the published plan as the one to stay close to (stability). */
@@ -42,8 +46,17 @@ export type PlanRunRow = typeof s.planRuns.$inferSelect
 /** What the API answers for a run (the same on every instance: it is read from the row). */
 export function publicRun(r: PlanRunRow) {
   return {
-    id: r.id, workshopId: r.workshopId, status: r.status, startedAt: r.startedAt ?? r.createdAt, timeLimitSeconds: r.options.timeLimitSeconds,
-    progress: r.progress, planId: r.planId, error: r.error, note: r.note, stability: r.options.stability, cancelRequested: r.cancelRequested,
+    id: r.id,
+    workshopId: r.workshopId,
+    status: r.status,
+    startedAt: r.startedAt ?? r.createdAt,
+    timeLimitSeconds: r.options.timeLimitSeconds,
+    progress: r.progress,
+    planId: r.planId,
+    error: r.error,
+    note: r.note,
+    stability: r.options.stability,
+    cancelRequested: r.cancelRequested,
   }
 }
 export type PublicRun = ReturnType<typeof publicRun>
@@ -53,7 +66,11 @@ const ACTIVE = ['queued', 'running'] as const
 const local = new Map<string, { attempt: number; controller: AbortController }>()
 
 /** Checks the problem here (a bad input is refused at once), stores the run and queues it in one transaction. */
-export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: number; seed: number; stability?: 'small-changes' | 'best-dates'; now?: Date }) {
+export async function startRun(
+  deps: Deps,
+  actor: Actor,
+  o: { timeLimitSeconds: number; seed: number; stability?: 'small-changes' | 'best-dates'; now?: Date },
+) {
   await refuseIfActive(deps.db, actor.workshopId)
   const data = await problemWithPrevious(deps.db, actor.workshopId, o.now ?? new Date())
   try {
@@ -61,7 +78,12 @@ export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: 
   } catch (err) {
     throw planningError(err, data)
   }
-  const options: s.PlanRunOptions = { timeLimitSeconds: o.timeLimitSeconds, seed: o.seed, stability: o.stability ?? 'small-changes', ...(o.now ? { now: o.now.toISOString() } : {}) }
+  const options: s.PlanRunOptions = {
+    timeLimitSeconds: o.timeLimitSeconds,
+    seed: o.seed,
+    stability: o.stability ?? 'small-changes',
+    ...(o.now ? { now: o.now.toISOString() } : {}),
+  }
   let row: PlanRunRow
   try {
     row = await deps.db.transaction(async (tx) => {
@@ -83,8 +105,12 @@ export async function startRun(deps: Deps, actor: Actor, o: { timeLimitSeconds: 
 }
 
 async function refuseIfActive(db: Db, workshopId: number) {
-  const [r] = await db.select({ id: s.planRuns.id }).from(s.planRuns).where(and(eq(s.planRuns.workshopId, workshopId), inArray(s.planRuns.status, [...ACTIVE])))
-  if (r) throw new AppError({ code: 'conflict', message: 'The planner is already running for this workshop; wait for it or stop it.', details: { runId: r.id } })
+  const [r] = await db
+    .select({ id: s.planRuns.id })
+    .from(s.planRuns)
+    .where(and(eq(s.planRuns.workshopId, workshopId), inArray(s.planRuns.status, [...ACTIVE])))
+  if (r)
+    throw new AppError({ code: 'conflict', message: 'The planner is already running for this workshop; wait for it or stop it.', details: { runId: r.id } })
 }
 
 /**
@@ -92,9 +118,19 @@ async function refuseIfActive(db: Db, workshopId: number) {
  * the row is still held by this attempt — a run another instance took over meanwhile saves nothing here.
  */
 export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?: { id: string }) {
-  const [row] = await deps.db.update(s.planRuns)
-    .set({ status: 'running', attempt: sql`${s.planRuns.attempt} + 1`, instance: deps.jobs?.instance ?? 'local', jobId: job?.id ?? sql`${s.planRuns.jobId}`, startedAt: sql`coalesce(${s.planRuns.startedAt}, now())`, heartbeatAt: sql`now()`, error: null })
-    .where(and(eq(s.planRuns.id, runId), inArray(s.planRuns.status, [...ACTIVE]))).returning()
+  const [row] = await deps.db
+    .update(s.planRuns)
+    .set({
+      status: 'running',
+      attempt: sql`${s.planRuns.attempt} + 1`,
+      instance: deps.jobs?.instance ?? 'local',
+      jobId: job?.id ?? sql`${s.planRuns.jobId}`,
+      startedAt: sql`coalesce(${s.planRuns.startedAt}, now())`,
+      heartbeatAt: sql`now()`,
+      error: null,
+    })
+    .where(and(eq(s.planRuns.id, runId), inArray(s.planRuns.status, [...ACTIVE])))
+    .returning()
   if (!row) return { skipped: 'the run has ended already' }
   const held = and(eq(s.planRuns.id, runId), eq(s.planRuns.attempt, row.attempt), eq(s.planRuns.status, 'running'))
   const o = row.options
@@ -104,38 +140,62 @@ export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?:
   let data: PlanningData | undefined
   /** Ends the run if this attempt still holds it; says whether it did. */
   const finish = async (set: Partial<typeof s.planRuns.$inferInsert>) =>
-    (await deps.db.update(s.planRuns).set({ ...set, progress, finishedAt: sql`now()` }).where(held).returning({ id: s.planRuns.id })).length > 0
+    (
+      await deps.db
+        .update(s.planRuns)
+        .set({ ...set, progress, finishedAt: sql`now()` })
+        .where(held)
+        .returning({ id: s.planRuns.id })
+    ).length > 0
   if (row.cancelRequested) return finish({ status: 'cancelled' })
   local.set(runId, { attempt: row.attempt, controller })
   const beatMs = Math.min(2000, ((deps.jobs?.timing.staleRunSeconds ?? 30) * 1000) / 4)
   const beat = setInterval(() => {
-    deps.db.update(s.planRuns).set({ heartbeatAt: sql`now()`, progress }).where(held).returning({ cancel: s.planRuns.cancelRequested })
-      .then(([r]) => {
-        if (!r) { lost = true; controller.abort() } // taken over by another instance (this one looked gone) or ended
-        else if (r.cancel) controller.abort()
-      }, (err) => console.error('[planner] heartbeat failed:', (err as Error).message))
+    deps.db
+      .update(s.planRuns)
+      .set({ heartbeatAt: sql`now()`, progress })
+      .where(held)
+      .returning({ cancel: s.planRuns.cancelRequested })
+      .then(
+        ([r]) => {
+          if (!r) {
+            lost = true
+            controller.abort()
+          } // taken over by another instance (this one looked gone) or ended
+          else if (r.cancel) controller.abort()
+        },
+        (err) => console.error('[planner] heartbeat failed:', (err as Error).message),
+      )
   }, beatMs)
   try {
     const loaded = await problemWithPrevious(deps.db, row.workshopId, o.now ? new Date(o.now) : new Date())
     data = loaded
     checkProblem(loaded.problem)
     let lastEmit = 0
-    const plan = await runInWorker(loaded.problem, { seed: o.seed, timeLimitMs: o.timeLimitSeconds * 1000, stability: o.stability }, {
-      signal: controller.signal,
-      onProgress: (p) => {
-        progress = { iteration: p.iteration, weightedTardiness: p.best.weightedTardiness, makespan: p.best.makespan, elapsedMs: p.elapsedMs }
-        if (p.elapsedMs - lastEmit > 250) {
-          lastEmit = p.elapsedMs
-          deps.realtime.emitTransient(row.workshopId, 'plan:progress', { runId, ...progress })
-        }
+    const plan = await runInWorker(
+      loaded.problem,
+      { seed: o.seed, timeLimitMs: o.timeLimitSeconds * 1000, stability: o.stability },
+      {
+        signal: controller.signal,
+        onProgress: (p) => {
+          progress = { iteration: p.iteration, weightedTardiness: p.best.weightedTardiness, makespan: p.best.makespan, elapsedMs: p.elapsedMs }
+          if (p.elapsedMs - lastEmit > 250) {
+            lastEmit = p.elapsedMs
+            deps.realtime.emitTransient(row.workshopId, 'plan:progress', { runId, ...progress })
+          }
+        },
       },
-    })
+    )
     if (controller.signal.aborted) {
       if (!lost) await finish({ status: 'cancelled' })
       return { cancelled: true }
     }
     // A plan that breaks a rule (say, a pin its earlier steps cannot reach) is never offered as a draft.
-    if (!plan.score.feasible) throw new AppError({ code: 'unprocessable', message: `The planner found no plan that keeps every rule: ${describe(plan.score.violations)}. Unpin or move the step concerned and run again.` })
+    if (!plan.score.feasible)
+      throw new AppError({
+        code: 'unprocessable',
+        message: `The planner found no plan that keeps every rule: ${describe(plan.score.violations)}. Unpin or move the step concerned and run again.`,
+      })
     // A draft is offered only when it beats the live plan kept as it is (re-timed from now).
     const live = plan.stats.previous
     if (live && !betterThanLive(plan.score, live, o.stability)) {
@@ -147,11 +207,17 @@ export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?:
       const [cur] = await tx.select().from(s.planRuns).where(eq(s.planRuns.id, runId)).for('update')
       if (!cur || cur.status !== 'running' || cur.attempt !== row.attempt) return null
       if (cur.cancelRequested) {
-        await tx.update(s.planRuns).set({ status: 'cancelled', progress, finishedAt: sql`now()` }).where(eq(s.planRuns.id, runId))
+        await tx
+          .update(s.planRuns)
+          .set({ status: 'cancelled', progress, finishedAt: sql`now()` })
+          .where(eq(s.planRuns.id, runId))
         return null
       }
       const id = await saveDraft(tx, actor, loaded, plan)
-      await tx.update(s.planRuns).set({ status: 'done', planId: id, progress, finishedAt: sql`now()` }).where(eq(s.planRuns.id, runId))
+      await tx
+        .update(s.planRuns)
+        .set({ status: 'done', planId: id, progress, finishedAt: sql`now()` })
+        .where(eq(s.planRuns.id, runId))
       return id
     })
     if (planId) deps.realtime.emit(row.workshopId, 'plan:drafted', { id: planId, runId })
@@ -191,13 +257,23 @@ export async function recoverStaleRuns(deps: Deps) {
   const staleSeconds = jobs.timing.staleRunSeconds
   const failed = await deps.db.transaction(async (tx) => {
     const out: PlanRunRow[] = []
-    const stale = await tx.select().from(s.planRuns)
+    const stale = await tx
+      .select()
+      .from(s.planRuns)
       .where(and(eq(s.planRuns.status, 'running'), lt(s.planRuns.heartbeatAt, sql`now() - make_interval(secs => ${staleSeconds})`)))
       .for('update', { skipLocked: true })
     for (const r of stale) {
       if (r.jobId) await jobs.cancel(QUEUES.planRun, r.jobId, { tx })
       if (r.attempt >= PLAN_RUN_TRIES) {
-        const [f] = await tx.update(s.planRuns).set({ status: 'failed', finishedAt: sql`now()`, error: `The planner stopped answering ${r.attempt} times (the app instance running it went away). Nothing was changed; start it again.` }).where(eq(s.planRuns.id, r.id)).returning()
+        const [f] = await tx
+          .update(s.planRuns)
+          .set({
+            status: 'failed',
+            finishedAt: sql`now()`,
+            error: `The planner stopped answering ${r.attempt} times (the app instance running it went away). Nothing was changed; start it again.`,
+          })
+          .where(eq(s.planRuns.id, r.id))
+          .returning()
         out.push(f!)
       } else {
         const jobId = await jobs.send(QUEUES.planRun, { runId: r.id }, { tx })
@@ -205,13 +281,25 @@ export async function recoverStaleRuns(deps: Deps) {
         console.warn(`[planner] run ${r.id} lost its instance (${r.instance}); queued again`)
       }
     }
-    const orphans = await tx.select().from(s.planRuns)
+    const orphans = await tx
+      .select()
+      .from(s.planRuns)
       .where(and(eq(s.planRuns.status, 'queued'), lt(s.planRuns.createdAt, sql`now() - make_interval(secs => ${staleSeconds * 2})`)))
       .for('update', { skipLocked: true })
     for (const r of orphans) {
-      const alive = r.jobId ? await tx.execute(sql`select 1 from pgboss.job where name = ${QUEUES.planRun} and id = ${r.jobId}::uuid and state in ('created', 'retry', 'active')`) : { rows: [] }
+      const alive = r.jobId
+        ? await tx.execute(sql`select 1 from pgboss.job where name = ${QUEUES.planRun} and id = ${r.jobId}::uuid and state in ('created', 'retry', 'active')`)
+        : { rows: [] }
       if (alive.rows.length) continue
-      const [f] = await tx.update(s.planRuns).set({ status: 'failed', finishedAt: sql`now()`, error: 'The planner run was lost from the queue before it started. Nothing was changed; start it again.' }).where(eq(s.planRuns.id, r.id)).returning()
+      const [f] = await tx
+        .update(s.planRuns)
+        .set({
+          status: 'failed',
+          finishedAt: sql`now()`,
+          error: 'The planner run was lost from the queue before it started. Nothing was changed; start it again.',
+        })
+        .where(eq(s.planRuns.id, r.id))
+        .returning()
       out.push(f!)
     }
     return out
@@ -223,26 +311,38 @@ export async function recoverStaleRuns(deps: Deps) {
 /** Before this instance stops: its runs go back to the queue (a new job) for another instance, and stop here. */
 export async function releaseLocalRuns(deps: Deps) {
   for (const [runId, l] of [...local]) {
-    await deps.db.transaction(async (tx) => {
-      const [r] = await tx.update(s.planRuns).set({ status: 'queued', instance: null })
-        .where(and(eq(s.planRuns.id, runId), eq(s.planRuns.attempt, l.attempt), eq(s.planRuns.status, 'running'))).returning()
-      if (!r || !deps.jobs) return
-      if (r.jobId) await deps.jobs.cancel(QUEUES.planRun, r.jobId, { tx })
-      const jobId = await deps.jobs.send(QUEUES.planRun, { runId }, { tx })
-      await tx.update(s.planRuns).set({ jobId }).where(eq(s.planRuns.id, runId))
-    }).catch((err) => console.error('[planner] could not hand a run back:', (err as Error).message))
+    await deps.db
+      .transaction(async (tx) => {
+        const [r] = await tx
+          .update(s.planRuns)
+          .set({ status: 'queued', instance: null })
+          .where(and(eq(s.planRuns.id, runId), eq(s.planRuns.attempt, l.attempt), eq(s.planRuns.status, 'running')))
+          .returning()
+        if (!r || !deps.jobs) return
+        if (r.jobId) await deps.jobs.cancel(QUEUES.planRun, r.jobId, { tx })
+        const jobId = await deps.jobs.send(QUEUES.planRun, { runId }, { tx })
+        await tx.update(s.planRuns).set({ jobId }).where(eq(s.planRuns.id, runId))
+      })
+      .catch((err) => console.error('[planner] could not hand a run back:', (err as Error).message))
     l.controller.abort()
   }
 }
 
 /** Less weighted lateness always counts; an earlier finish at equal lateness only when the manager asked for best dates. */
-export function betterThanLive(score: { weightedTardiness: number; makespan: number }, live: { weightedTardiness: number; makespan: number }, stability: 'small-changes' | 'best-dates') {
+export function betterThanLive(
+  score: { weightedTardiness: number; makespan: number },
+  live: { weightedTardiness: number; makespan: number },
+  stability: 'small-changes' | 'best-dates',
+) {
   if (score.weightedTardiness !== live.weightedTardiness) return score.weightedTardiness < live.weightedTardiness
   return stability === 'best-dates' && score.makespan < live.makespan
 }
 
 export async function getRun(db: Db, actor: Actor, id: string) {
-  const [r] = await db.select().from(s.planRuns).where(and(eq(s.planRuns.id, id), eq(s.planRuns.workshopId, actor.workshopId)))
+  const [r] = await db
+    .select()
+    .from(s.planRuns)
+    .where(and(eq(s.planRuns.id, id), eq(s.planRuns.workshopId, actor.workshopId)))
   if (!r) throw new AppError({ code: 'not-found', message: 'Planner run not found' })
   return publicRun(r)
 }
@@ -252,8 +352,14 @@ export async function cancelRun(db: Db, actor: Actor, id: string) {
   const mine = and(eq(s.planRuns.id, id), eq(s.planRuns.workshopId, actor.workshopId))
   const [r] = await db.select().from(s.planRuns).where(mine)
   if (!r) throw new AppError({ code: 'not-found', message: 'Planner run not found' })
-  await db.update(s.planRuns).set({ status: 'cancelled', finishedAt: sql`now()` }).where(and(mine, eq(s.planRuns.status, 'queued')))
-  await db.update(s.planRuns).set({ cancelRequested: true }).where(and(mine, eq(s.planRuns.status, 'running')))
+  await db
+    .update(s.planRuns)
+    .set({ status: 'cancelled', finishedAt: sql`now()` })
+    .where(and(mine, eq(s.planRuns.status, 'queued')))
+  await db
+    .update(s.planRuns)
+    .set({ cancelRequested: true })
+    .where(and(mine, eq(s.planRuns.status, 'running')))
   local.get(id)?.controller.abort()
   return getRun(db, actor, id)
 }

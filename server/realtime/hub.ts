@@ -7,12 +7,19 @@ import type { ClientToServerEvents, EventName, ServerToClientEvents } from '../.
 import { LOCK } from '../lib/locks'
 import { currentOrigin } from './origin'
 
-export interface RecordedEvent { seq: number; event: EventName; payload: unknown }
+export interface RecordedEvent {
+  seq: number
+  event: EventName
+  payload: unknown
+}
 /** What an event carries, as declared in shared/events.ts; the hub adds `seq`. */
 export type EventPayload<E extends EventName> = Omit<Parameters<ServerToClientEvents[E]>[0], 'seq'>
 /** Socket.IO's typed emit cannot follow a generic event name; payloads are checked by emit's own signature instead. */
 type RoomEmitter = { emit(event: EventName, payload: unknown): void }
-export interface SessionEnd { userId?: number; sessionId?: string }
+export interface SessionEnd {
+  userId?: number
+  sessionId?: string
+}
 
 /** Events only the planners (owner, manager) receive: drafts and planner progress are theirs until published. */
 export const PLANNER_EVENTS = new Set<EventName>(['plan:progress', 'plan:drafted', 'plan:discarded', 'plan:failed'])
@@ -28,7 +35,12 @@ export const KEPT_EVENTS = 5000
 const PRUNE_EVERY = 200
 
 /** What travels on CHANGES_CHANNEL: instance, workshop, seq (0 = a drop without an event), and an optional cache key. */
-interface ChangeNote { i: string; w: number; s: number; k?: string }
+interface ChangeNote {
+  i: string
+  w: number
+  s: number
+  k?: string
+}
 type ChangeListener = (workshopId: number, seq: number, key?: string) => void
 
 // One statement, its own transaction: the per-workshop lock makes numbers commit in the order they are handed out
@@ -169,7 +181,8 @@ export class Realtime {
     const batch = new Promise<number>((resolve, reject) => {
       setImmediate(() => {
         this.seqBatches.delete(workshopId)
-        pool.query('select coalesce(max(seq), 0) as seq from realtime_events where workshop_id = $1', [workshopId])
+        pool
+          .query('select coalesce(max(seq), 0) as seq from realtime_events where workshop_id = $1', [workshopId])
           .then((r) => resolve(Number(r.rows[0].seq)), reject)
       })
     })
@@ -212,7 +225,11 @@ export class Realtime {
       client.on('notification', (msg) => {
         if (msg.channel !== CHANGES_CHANNEL || !msg.payload) return
         let note: ChangeNote
-        try { note = JSON.parse(msg.payload) as ChangeNote } catch { return }
+        try {
+          note = JSON.parse(msg.payload) as ChangeNote
+        } catch {
+          return
+        }
         if (note.i === this.instanceId || typeof note.w !== 'number') return
         for (const fn of this.listeners) fn(note.w, Number(note.s) || 0, note.k)
       })

@@ -8,7 +8,11 @@ import type { ClientToServerEvents, ServerToClientEvents } from '../../shared/ev
 import type { SessionUser } from '../../shared/schemas/session'
 import { sessionRoom, userRoom, type Realtime } from './hub'
 
-interface SocketRequest { user?: SessionUser; sessionID?: string; sessionStore?: Store }
+interface SocketRequest {
+  user?: SessionUser
+  sessionID?: string
+  sessionStore?: Store
+}
 
 export function attachSockets(
   io: Server<ClientToServerEvents, ServerToClientEvents>,

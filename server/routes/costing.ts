@@ -9,6 +9,20 @@ import { idParam } from './params'
 const FRONT: Role[] = ['owner', 'manager', 'sales']
 
 export const costingRoutes = [
-  route({ method: 'get', path: '/orders/:id/costing', roles: FRONT, summary: 'An order’s cost (metal, stones, outside work, labour) and margin at estimate and at actual', params: idParam, handler: ({ deps, actor, params }) => costing.orderCosting(deps.db, actor.workshopId, params.id) }),
-  route({ method: 'post', path: '/costing/estimate', roles: FRONT, summary: 'Estimated cost and suggested price of pieces not yet ordered', body: costingEstimateInput, handler: ({ deps, actor, body }) => costing.estimate(deps.db, actor.workshopId, body) }),
+  route({
+    method: 'get',
+    path: '/orders/:id/costing',
+    roles: FRONT,
+    summary: 'An order’s cost (metal, stones, outside work, labour) and margin at estimate and at actual',
+    params: idParam,
+    handler: ({ deps, actor, params }) => costing.orderCosting(deps.db, actor.workshopId, params.id),
+  }),
+  route({
+    method: 'post',
+    path: '/costing/estimate',
+    roles: FRONT,
+    summary: 'Estimated cost and suggested price of pieces not yet ordered',
+    body: costingEstimateInput,
+    handler: ({ deps, actor, body }) => costing.estimate(deps.db, actor.workshopId, body),
+  }),
 ]

@@ -22,15 +22,66 @@ function sendContent(res: Response, c: Awaited<ReturnType<typeof files.readFileC
 }
 
 export const fileRoutes = [
-  route({ method: 'post', path: '/orders/:id/files', roles: FRONT, status: 201, summary: 'Upload a sketch, reference or photo to an order (multipart: file, kind)', params: idParam,
-    handler: async ({ deps, actor, params, req, res }) => files.addFile(deps, actor, { type: 'order', id: params.id }, await receiveOne(req, res, maxOf(deps))) }),
-  route({ method: 'post', path: '/job-bags/:id/files', roles: EVERYONE, status: 201, summary: 'Upload a file to a job bag (bench: progress photos only)', params: idParam,
-    handler: async ({ deps, actor, params, req, res }) => files.addFile(deps, actor, { type: 'jobBag', id: params.id }, await receiveOne(req, res, maxOf(deps))) }),
-  route({ method: 'get', path: '/orders/:id/files', roles: FRONT, summary: 'Files of an order', params: idParam, handler: ({ deps, actor, params }) => files.listFiles(deps.db, actor, { type: 'order', id: params.id }) }),
-  route({ method: 'get', path: '/job-bags/:id/files', roles: EVERYONE, summary: 'Files of a job bag', params: idParam, handler: ({ deps, actor, params }) => files.listFiles(deps.db, actor, { type: 'jobBag', id: params.id }) }),
-  route({ method: 'get', path: '/files/:id', roles: EVERYONE, summary: 'Download a file (images shown inline, PDFs as attachment)', params: idParam,
-    handler: async ({ deps, actor, params, res }) => { const c = await files.readFileContent(deps, actor, params.id, 'file'); return sendContent(res, c, c.mime.startsWith('image/') ? 'inline' : 'attachment') } }),
-  route({ method: 'get', path: '/files/:id/thumbnail', roles: EVERYONE, summary: 'Thumbnail of an image (WebP)', params: idParam,
-    handler: async ({ deps, actor, params, res }) => sendContent(res, await files.readFileContent(deps, actor, params.id, 'thumbnail'), 'inline') }),
-  route({ method: 'delete', path: '/files/:id', roles: STAFF, summary: 'Remove a file', params: idParam, handler: ({ deps, actor, params }) => files.deleteFile(deps, actor, params.id) }),
+  route({
+    method: 'post',
+    path: '/orders/:id/files',
+    roles: FRONT,
+    status: 201,
+    summary: 'Upload a sketch, reference or photo to an order (multipart: file, kind)',
+    params: idParam,
+    handler: async ({ deps, actor, params, req, res }) => files.addFile(deps, actor, { type: 'order', id: params.id }, await receiveOne(req, res, maxOf(deps))),
+  }),
+  route({
+    method: 'post',
+    path: '/job-bags/:id/files',
+    roles: EVERYONE,
+    status: 201,
+    summary: 'Upload a file to a job bag (bench: progress photos only)',
+    params: idParam,
+    handler: async ({ deps, actor, params, req, res }) =>
+      files.addFile(deps, actor, { type: 'jobBag', id: params.id }, await receiveOne(req, res, maxOf(deps))),
+  }),
+  route({
+    method: 'get',
+    path: '/orders/:id/files',
+    roles: FRONT,
+    summary: 'Files of an order',
+    params: idParam,
+    handler: ({ deps, actor, params }) => files.listFiles(deps.db, actor, { type: 'order', id: params.id }),
+  }),
+  route({
+    method: 'get',
+    path: '/job-bags/:id/files',
+    roles: EVERYONE,
+    summary: 'Files of a job bag',
+    params: idParam,
+    handler: ({ deps, actor, params }) => files.listFiles(deps.db, actor, { type: 'jobBag', id: params.id }),
+  }),
+  route({
+    method: 'get',
+    path: '/files/:id',
+    roles: EVERYONE,
+    summary: 'Download a file (images shown inline, PDFs as attachment)',
+    params: idParam,
+    handler: async ({ deps, actor, params, res }) => {
+      const c = await files.readFileContent(deps, actor, params.id, 'file')
+      return sendContent(res, c, c.mime.startsWith('image/') ? 'inline' : 'attachment')
+    },
+  }),
+  route({
+    method: 'get',
+    path: '/files/:id/thumbnail',
+    roles: EVERYONE,
+    summary: 'Thumbnail of an image (WebP)',
+    params: idParam,
+    handler: async ({ deps, actor, params, res }) => sendContent(res, await files.readFileContent(deps, actor, params.id, 'thumbnail'), 'inline'),
+  }),
+  route({
+    method: 'delete',
+    path: '/files/:id',
+    roles: STAFF,
+    summary: 'Remove a file',
+    params: idParam,
+    handler: ({ deps, actor, params }) => files.deleteFile(deps, actor, params.id),
+  }),
 ]

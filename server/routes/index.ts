@@ -18,4 +18,22 @@ import { quoteRoutes } from './quotes'
 import { paymentRoutes } from './payments'
 import { costingRoutes } from './costing'
 
-export const allRoutes: RouteSpec[] = [...sessionRoutes, ...accountRoutes, ...masterDataRoutes, ...orderRoutes, ...planRoutes, ...jobBagRoutes, ...benchRoutes, ...insightRoutes, ...promiseRoutes, ...mailRoutes, ...fileRoutes, ...pauseReasonRoutes, ...stoneRoutes, ...metalRoutes, ...quoteRoutes, ...paymentRoutes, ...costingRoutes] as RouteSpec[]
+export const allRoutes: RouteSpec[] = [
+  ...sessionRoutes,
+  ...accountRoutes,
+  ...masterDataRoutes,
+  ...orderRoutes,
+  ...planRoutes,
+  ...jobBagRoutes,
+  ...benchRoutes,
+  ...insightRoutes,
+  ...promiseRoutes,
+  ...mailRoutes,
+  ...fileRoutes,
+  ...pauseReasonRoutes,
+  ...stoneRoutes,
+  ...metalRoutes,
+  ...quoteRoutes,
+  ...paymentRoutes,
+  ...costingRoutes,
+] as RouteSpec[]

@@ -16,7 +16,27 @@ const outboxQuery = z.object({
 })
 
 export const mailRoutes = [
-  route({ method: 'get', path: '/outbox', roles: FRONT, summary: 'Messages sent by the workshop, newest first', query: outboxQuery, handler: ({ deps, actor, query }) => mail.listOutbox(deps.db, actor.workshopId, query) }),
-  route({ method: 'get', path: '/outbox/:id', roles: FRONT, summary: 'One message with its text and HTML', params: idParam, handler: ({ deps, actor, params }) => mail.getOutboxMessage(deps.db, actor.workshopId, params.id) }),
-  route({ method: 'post', path: '/mail/at-risk-digest', roles: ['owner', 'manager'], summary: 'Send the managers the digest of job bags at risk now', handler: ({ deps, actor }) => digest.sendAtRiskDigest(deps, actor.workshopId) }),
+  route({
+    method: 'get',
+    path: '/outbox',
+    roles: FRONT,
+    summary: 'Messages sent by the workshop, newest first',
+    query: outboxQuery,
+    handler: ({ deps, actor, query }) => mail.listOutbox(deps.db, actor.workshopId, query),
+  }),
+  route({
+    method: 'get',
+    path: '/outbox/:id',
+    roles: FRONT,
+    summary: 'One message with its text and HTML',
+    params: idParam,
+    handler: ({ deps, actor, params }) => mail.getOutboxMessage(deps.db, actor.workshopId, params.id),
+  }),
+  route({
+    method: 'post',
+    path: '/mail/at-risk-digest',
+    roles: ['owner', 'manager'],
+    summary: 'Send the managers the digest of job bags at risk now',
+    handler: ({ deps, actor }) => digest.sendAtRiskDigest(deps, actor.workshopId),
+  }),
 ]

@@ -14,12 +14,49 @@ const statusList = z
   .string()
   .max(200)
   .transform((s) => s.split(',').filter(Boolean) as OrderStatus[])
-  .refine((list) => list.length > 0 && list.every((s) => (ORDER_STATUSES as readonly string[]).includes(s)), `must be one of: ${ORDER_STATUSES.join(', ')} (several separated by commas)`)
+  .refine(
+    (list) => list.length > 0 && list.every((s) => (ORDER_STATUSES as readonly string[]).includes(s)),
+    `must be one of: ${ORDER_STATUSES.join(', ')} (several separated by commas)`,
+  )
 const orderListQuery = listQuery.extend({ status: statusList.optional() })
 
 export const orderRoutes = [
-  route({ method: 'get', path: '/orders', roles: FRONT, summary: 'Orders (search, sort, pages)', query: orderListQuery, response: orderSummaryPage, handler: ({ deps, actor, query }) => orders.listOrders(deps.db, actor.workshopId, query) }),
-  route({ method: 'get', path: '/orders/:id', roles: FRONT, summary: 'One order with its job bags', params: idParam, response: orderDetail, handler: ({ deps, actor, params }) => orders.getOrder(deps.db, actor.workshopId, params.id) }),
-  route({ method: 'post', path: '/orders', roles: FRONT, status: 201, summary: 'Take an order', body: orderInput, response: orderDetail, handler: ({ deps, actor, body }) => orders.createOrder(deps, actor, body) }),
-  route({ method: 'patch', path: '/orders/:id', roles: FRONT, summary: 'Change an order', params: idParam, body: orderUpdate, response: orderDetail, handler: ({ deps, actor, params, body }) => orders.updateOrder(deps, actor, params.id, body) }),
+  route({
+    method: 'get',
+    path: '/orders',
+    roles: FRONT,
+    summary: 'Orders (search, sort, pages)',
+    query: orderListQuery,
+    response: orderSummaryPage,
+    handler: ({ deps, actor, query }) => orders.listOrders(deps.db, actor.workshopId, query),
+  }),
+  route({
+    method: 'get',
+    path: '/orders/:id',
+    roles: FRONT,
+    summary: 'One order with its job bags',
+    params: idParam,
+    response: orderDetail,
+    handler: ({ deps, actor, params }) => orders.getOrder(deps.db, actor.workshopId, params.id),
+  }),
+  route({
+    method: 'post',
+    path: '/orders',
+    roles: FRONT,
+    status: 201,
+    summary: 'Take an order',
+    body: orderInput,
+    response: orderDetail,
+    handler: ({ deps, actor, body }) => orders.createOrder(deps, actor, body),
+  }),
+  route({
+    method: 'patch',
+    path: '/orders/:id',
+    roles: FRONT,
+    summary: 'Change an order',
+    params: idParam,
+    body: orderUpdate,
+    response: orderDetail,
+    handler: ({ deps, actor, params, body }) => orders.updateOrder(deps, actor, params.id, body),
+  }),
 ]

@@ -6,7 +6,29 @@ import * as reasons from '../services/pause-reasons'
 import { idParam } from './params'
 
 export const pauseReasonRoutes = [
-  route({ method: 'get', path: '/pause-reasons', roles: EVERYONE, summary: 'The workshop’s pause reasons, switched-off ones included', handler: ({ deps, actor }) => reasons.listPauseReasons(deps.db, actor.workshopId) }),
-  route({ method: 'post', path: '/pause-reasons', roles: ['owner'], status: 201, summary: 'Add a pause reason (owner)', body: pauseReasonInput, handler: ({ deps, actor, body }) => reasons.createPauseReason(deps, actor, body) }),
-  route({ method: 'patch', path: '/pause-reasons/:id', roles: ['owner'], summary: 'Rename a pause reason, say whether it needs a note, switch it on or off (owner)', params: idParam, body: pauseReasonUpdate, handler: ({ deps, actor, params, body }) => reasons.updatePauseReason(deps, actor, params.id, body) }),
+  route({
+    method: 'get',
+    path: '/pause-reasons',
+    roles: EVERYONE,
+    summary: 'The workshop’s pause reasons, switched-off ones included',
+    handler: ({ deps, actor }) => reasons.listPauseReasons(deps.db, actor.workshopId),
+  }),
+  route({
+    method: 'post',
+    path: '/pause-reasons',
+    roles: ['owner'],
+    status: 201,
+    summary: 'Add a pause reason (owner)',
+    body: pauseReasonInput,
+    handler: ({ deps, actor, body }) => reasons.createPauseReason(deps, actor, body),
+  }),
+  route({
+    method: 'patch',
+    path: '/pause-reasons/:id',
+    roles: ['owner'],
+    summary: 'Rename a pause reason, say whether it needs a note, switch it on or off (owner)',
+    params: idParam,
+    body: pauseReasonUpdate,
+    handler: ({ deps, actor, params, body }) => reasons.updatePauseReason(deps, actor, params.id, body),
+  }),
 ]

@@ -2,7 +2,17 @@
 import type { Request, Response } from 'express'
 import { z, type ZodType } from 'zod'
 import type { Role } from '../../shared/domain/roles'
-import { boardQuery, moveInput, moveResult, planComparison, planRun, planRunInput, planVersion, planVersionRow, weekLoad as weekLoadAnswer } from '../../shared/schemas/plan'
+import {
+  boardQuery,
+  moveInput,
+  moveResult,
+  planComparison,
+  planRun,
+  planRunInput,
+  planVersion,
+  planVersionRow,
+  weekLoad as weekLoadAnswer,
+} from '../../shared/schemas/plan'
 import { boardAnswer } from '../../shared/schemas/board'
 import { id } from '../../shared/schemas/common'
 import { checkAnswer, route } from '../lib/route'
@@ -40,20 +50,102 @@ async function sendCached(req: Request, res: Response, deps: Deps, workshopId: n
 }
 
 export const planRoutes = [
-  route({ method: 'post', path: '/plans/runs', roles: PLANNER, status: 202, summary: 'Queue a planner run (any instance takes it; worker thread); the result becomes a draft', body: planRunInput, response: planRun, handler: ({ deps, actor, body }) => startRun(deps, actor, body) }),
-  route({ method: 'get', path: '/plans/runs/:runId', roles: PLANNER, summary: 'A planner run: progress, result or error', params: runParam, response: planRun, handler: ({ deps, actor, params }) => getRun(deps.db, actor, params.runId) }),
-  route({ method: 'delete', path: '/plans/runs/:runId', roles: PLANNER, summary: 'Stop a planner run (the live plan is untouched)', params: runParam, response: planRun, handler: ({ deps, actor, params }) => cancelRun(deps.db, actor, params.runId) }),
-  route({ method: 'get', path: '/plans', roles: VIEWERS, summary: 'Plan versions with who and when', response: z.array(planVersion), handler: ({ deps, actor }) => plans.listPlans(deps.db, actor.workshopId) }),
-  route({ method: 'get', path: '/plans/:id/compare', roles: VIEWERS, summary: 'What a plan moves against the live plan (or ?against=id)', params: idParam, query: z.object({ against: id.optional() }), response: planComparison, handler: ({ deps, actor, params, query }) => plans.comparePlan(deps.db, actor.workshopId, params.id, query.against) }),
-  route({ method: 'post', path: '/plans/:id/publish', roles: PLANNER, summary: 'Publish a draft: it becomes the live plan', params: idParam, response: planVersionRow, handler: ({ deps, actor, params }) => plans.publishPlan(deps, actor, params.id) }),
-  route({ method: 'post', path: '/plans/:id/discard', roles: PLANNER, summary: 'Throw a draft away', params: idParam, response: planVersionRow, handler: ({ deps, actor, params }) => plans.discardPlan(deps, actor, params.id) }),
   route({
-    method: 'get', path: '/board', roles: VIEWERS, summary: 'Board data for a window (live plan, or ?planId= a draft)', query: boardQuery, response: boardAnswer,
-    handler: ({ req, res, deps, actor, query }) => sendCached(req, res, deps, actor.workshopId, `board|${query.from}|${query.to}|${query.planId ?? ''}`, async () => checked(deps, 'GET /board', boardAnswer, await boardData(deps.db, actor.workshopId, query))),
+    method: 'post',
+    path: '/plans/runs',
+    roles: PLANNER,
+    status: 202,
+    summary: 'Queue a planner run (any instance takes it; worker thread); the result becomes a draft',
+    body: planRunInput,
+    response: planRun,
+    handler: ({ deps, actor, body }) => startRun(deps, actor, body),
   }),
-  route({ method: 'patch', path: '/board/operations/:id', roles: PLANNER, summary: 'Move or pin one bar on the live plan', params: idParam, body: moveInput, response: moveResult, handler: ({ deps, actor, params, body }) => moveOperation(deps, actor, params.id, body) }),
   route({
-    method: 'get', path: '/load', roles: VIEWERS, summary: 'Planned against available hours per bench and skill, per day and ISO week', query: boardQuery, response: weekLoadAnswer,
-    handler: ({ req, res, deps, actor, query }) => sendCached(req, res, deps, actor.workshopId, `load|${query.from}|${query.to}|${query.planId ?? ''}`, async () => checked(deps, 'GET /load', weekLoadAnswer, await weekLoad(deps.db, actor.workshopId, query))),
+    method: 'get',
+    path: '/plans/runs/:runId',
+    roles: PLANNER,
+    summary: 'A planner run: progress, result or error',
+    params: runParam,
+    response: planRun,
+    handler: ({ deps, actor, params }) => getRun(deps.db, actor, params.runId),
+  }),
+  route({
+    method: 'delete',
+    path: '/plans/runs/:runId',
+    roles: PLANNER,
+    summary: 'Stop a planner run (the live plan is untouched)',
+    params: runParam,
+    response: planRun,
+    handler: ({ deps, actor, params }) => cancelRun(deps.db, actor, params.runId),
+  }),
+  route({
+    method: 'get',
+    path: '/plans',
+    roles: VIEWERS,
+    summary: 'Plan versions with who and when',
+    response: z.array(planVersion),
+    handler: ({ deps, actor }) => plans.listPlans(deps.db, actor.workshopId),
+  }),
+  route({
+    method: 'get',
+    path: '/plans/:id/compare',
+    roles: VIEWERS,
+    summary: 'What a plan moves against the live plan (or ?against=id)',
+    params: idParam,
+    query: z.object({ against: id.optional() }),
+    response: planComparison,
+    handler: ({ deps, actor, params, query }) => plans.comparePlan(deps.db, actor.workshopId, params.id, query.against),
+  }),
+  route({
+    method: 'post',
+    path: '/plans/:id/publish',
+    roles: PLANNER,
+    summary: 'Publish a draft: it becomes the live plan',
+    params: idParam,
+    response: planVersionRow,
+    handler: ({ deps, actor, params }) => plans.publishPlan(deps, actor, params.id),
+  }),
+  route({
+    method: 'post',
+    path: '/plans/:id/discard',
+    roles: PLANNER,
+    summary: 'Throw a draft away',
+    params: idParam,
+    response: planVersionRow,
+    handler: ({ deps, actor, params }) => plans.discardPlan(deps, actor, params.id),
+  }),
+  route({
+    method: 'get',
+    path: '/board',
+    roles: VIEWERS,
+    summary: 'Board data for a window (live plan, or ?planId= a draft)',
+    query: boardQuery,
+    response: boardAnswer,
+    handler: ({ req, res, deps, actor, query }) =>
+      sendCached(req, res, deps, actor.workshopId, `board|${query.from}|${query.to}|${query.planId ?? ''}`, async () =>
+        checked(deps, 'GET /board', boardAnswer, await boardData(deps.db, actor.workshopId, query)),
+      ),
+  }),
+  route({
+    method: 'patch',
+    path: '/board/operations/:id',
+    roles: PLANNER,
+    summary: 'Move or pin one bar on the live plan',
+    params: idParam,
+    body: moveInput,
+    response: moveResult,
+    handler: ({ deps, actor, params, body }) => moveOperation(deps, actor, params.id, body),
+  }),
+  route({
+    method: 'get',
+    path: '/load',
+    roles: VIEWERS,
+    summary: 'Planned against available hours per bench and skill, per day and ISO week',
+    query: boardQuery,
+    response: weekLoadAnswer,
+    handler: ({ req, res, deps, actor, query }) =>
+      sendCached(req, res, deps, actor.workshopId, `load|${query.from}|${query.to}|${query.planId ?? ''}`, async () =>
+        checked(deps, 'GET /load', weekLoadAnswer, await weekLoad(deps.db, actor.workshopId, query)),
+      ),
   }),
 ]

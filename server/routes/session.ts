@@ -20,7 +20,10 @@ function authenticate(req: Request, passport: NonNullable<import('../lib/route')
 
 export const sessionRoutes = [
   route({
-    method: 'get', path: '/health', roles: 'public', summary: 'Liveness with a database check',
+    method: 'get',
+    path: '/health',
+    roles: 'public',
+    summary: 'Liveness with a database check',
     handler: async ({ deps }) => {
       try {
         await deps.db.execute(sql`select 1`)
@@ -31,7 +34,10 @@ export const sessionRoutes = [
     },
   }),
   route({
-    method: 'get', path: '/session', roles: 'public', summary: 'The signed-in user (or null) and the CSRF token',
+    method: 'get',
+    path: '/session',
+    roles: 'public',
+    summary: 'The signed-in user (or null) and the CSRF token',
     handler: async ({ req }) => {
       // A session that already has its token is left as it is (no write); a new token is saved before it is handed out.
       const isNew = !req.session.csrfToken
@@ -41,7 +47,11 @@ export const sessionRoutes = [
     },
   }),
   route({
-    method: 'post', path: '/session', roles: 'public', summary: 'Sign in', body: signIn,
+    method: 'post',
+    path: '/session',
+    roles: 'public',
+    summary: 'Sign in',
+    body: signIn,
     handler: async ({ req, deps }) => {
       const user = await authenticate(req, deps.passport!)
       // req.login regenerates the session id (no fixation); the CSRF token is renewed with it.
@@ -53,7 +63,10 @@ export const sessionRoutes = [
     },
   }),
   route({
-    method: 'delete', path: '/session', roles: EVERYONE, summary: 'Sign out (the session is destroyed on the server)',
+    method: 'delete',
+    path: '/session',
+    roles: EVERYONE,
+    summary: 'Sign out (the session is destroyed on the server)',
     handler: async ({ req, res, deps }) => {
       const sessionId = req.sessionID
       await new Promise<void>((r, j) => req.logout((e) => (e ? j(e) : r())))

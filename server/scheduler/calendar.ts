@@ -4,22 +4,28 @@ import type { Interval } from './model.ts'
 /** Intersection of two sorted, disjoint interval lists. */
 export function intersect(a: Interval[], b: Interval[]): Interval[] {
   const out: Interval[] = []
-  let i = 0, j = 0
+  let i = 0,
+    j = 0
   while (i < a.length && j < b.length) {
-    const x = a[i]!, y = b[j]!
-    const s = Math.max(x.start, y.start), e = Math.min(x.end, y.end)
+    const x = a[i]!,
+      y = b[j]!
+    const s = Math.max(x.start, y.start),
+      e = Math.min(x.end, y.end)
     if (s < e) out.push({ start: s, end: e })
-    if (x.end < y.end) i++; else j++
+    if (x.end < y.end) i++
+    else j++
   }
   return out
 }
 
 /** Index of the first interval whose end is after t (or list length). */
 export function firstEndingAfter(list: Interval[], t: number): number {
-  let lo = 0, hi = list.length
+  let lo = 0,
+    hi = list.length
   while (lo < hi) {
     const mid = (lo + hi) >> 1
-    if (list[mid]!.end > t) hi = mid; else lo = mid + 1
+    if (list[mid]!.end > t) hi = mid
+    else lo = mid + 1
   }
   return lo
 }
@@ -43,7 +49,8 @@ export function walkWorkingTime(windows: Interval[], t: number, minutes: number)
     const s = Math.max(t, w.start)
     const e = Math.min(w.end, s + left)
     const last = segs[segs.length - 1]
-    if (last && last.end === s) last.end = e // touching windows are one stretch of work
+    if (last && last.end === s)
+      last.end = e // touching windows are one stretch of work
     else segs.push({ start: s, end: e })
     left -= e - s
     t = e
@@ -58,7 +65,8 @@ export function clipToWindows(windows: Interval[], start: number, end: number): 
   for (let i = firstEndingAfter(windows, start); i < windows.length; i++) {
     const w = windows[i]!
     if (w.start >= end) break
-    const s = Math.max(start, w.start), e = Math.min(end, w.end)
+    const s = Math.max(start, w.start),
+      e = Math.min(end, w.end)
     if (s < e) out.push({ start: s, end: e })
   }
   return out

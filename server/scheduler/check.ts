@@ -25,10 +25,22 @@ export function checkProblem(problem: Problem): void {
       seen.add(id)
     }
   }
-  unique(problem.jobs.map((j) => j.id), 'jobs')
-  unique(problem.benches.map((b) => b.id), 'benches')
-  unique(problem.people.map((p) => p.id), 'people')
-  unique(problem.operations.map((o) => o.id), 'operations')
+  unique(
+    problem.jobs.map((j) => j.id),
+    'jobs',
+  )
+  unique(
+    problem.benches.map((b) => b.id),
+    'benches',
+  )
+  unique(
+    problem.people.map((p) => p.id),
+    'people',
+  )
+  unique(
+    problem.operations.map((o) => o.id),
+    'operations',
+  )
   if (!Number.isFinite(problem.now) || !Number.isFinite(problem.horizon) || problem.horizon <= problem.now) {
     throw new SchedulingInputError({ code: 'bad-calendar', message: `The horizon (${problem.horizon}) must be a number after now (${problem.now})` })
   }
@@ -36,7 +48,10 @@ export function checkProblem(problem: Problem): void {
     for (let i = 0; i < list.length; i++) {
       const w = list[i]!
       if (!Number.isFinite(w.start) || !Number.isFinite(w.end) || w.end <= w.start || (i > 0 && w.start < list[i - 1]!.end)) {
-        throw new SchedulingInputError({ code: 'bad-calendar', message: `The calendar of ${what} must be sorted, disjoint, non-empty intervals (problem at entry ${i})` })
+        throw new SchedulingInputError({
+          code: 'bad-calendar',
+          message: `The calendar of ${what} must be sorted, disjoint, non-empty intervals (problem at entry ${i})`,
+        })
       }
     }
   }
@@ -47,7 +62,8 @@ export function checkProblem(problem: Problem): void {
   for (const op of problem.operations) {
     ops.set(op.id, op)
     const job = jobs.get(op.jobId)
-    if (!job) throw new SchedulingInputError({ code: 'unknown-job', operationId: op.id, jobId: op.jobId, message: `${label(op)} belongs to unknown job ${op.jobId}` })
+    if (!job)
+      throw new SchedulingInputError({ code: 'unknown-job', operationId: op.id, jobId: op.jobId, message: `${label(op)} belongs to unknown job ${op.jobId}` })
   }
   for (const op of problem.operations) {
     const where = { jobId: op.jobId, operationId: op.id }
@@ -55,27 +71,54 @@ export function checkProblem(problem: Problem): void {
     for (const p of op.predecessors) {
       const pred = ops.get(p)
       if (!pred) throw new SchedulingInputError({ code: 'unknown-predecessor', ...where, message: `Job ${jn}: ${label(op)} waits for unknown operation ${p}` })
-      if (pred.jobId !== op.jobId) throw new SchedulingInputError({ code: 'foreign-predecessor', ...where, message: `Job ${jn}: ${label(op)} waits for ${label(pred)} of another job (${jobName(pred.jobId)}); routings stay within one job bag` })
+      if (pred.jobId !== op.jobId)
+        throw new SchedulingInputError({
+          code: 'foreign-predecessor',
+          ...where,
+          message: `Job ${jn}: ${label(op)} waits for ${label(pred)} of another job (${jobName(pred.jobId)}); routings stay within one job bag`,
+        })
     }
     if (op.done) {
-      if (op.finishedAt !== undefined && !Number.isFinite(op.finishedAt)) throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: finished ${label(op)} has finishedAt ${op.finishedAt}; expected a minute` })
+      if (op.finishedAt !== undefined && !Number.isFinite(op.finishedAt))
+        throw new SchedulingInputError({
+          code: 'bad-duration',
+          ...where,
+          message: `Job ${jn}: finished ${label(op)} has finishedAt ${op.finishedAt}; expected a minute`,
+        })
       continue
     }
     const outside = op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0
-    if (op.outsideWorkingDays !== undefined && (!Number.isInteger(op.outsideWorkingDays) || op.outsideWorkingDays < 0 || op.outsideWorkingDays > MAX_OUTSIDE_DAYS)) {
-      throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: ${label(op)} has outside work of ${op.outsideWorkingDays} working days; expected a whole number from 0 to ${MAX_OUTSIDE_DAYS}` })
+    if (
+      op.outsideWorkingDays !== undefined &&
+      (!Number.isInteger(op.outsideWorkingDays) || op.outsideWorkingDays < 0 || op.outsideWorkingDays > MAX_OUTSIDE_DAYS)
+    ) {
+      throw new SchedulingInputError({
+        code: 'bad-duration',
+        ...where,
+        message: `Job ${jn}: ${label(op)} has outside work of ${op.outsideWorkingDays} working days; expected a whole number from 0 to ${MAX_OUTSIDE_DAYS}`,
+      })
     }
     if (op.waitAfter !== undefined && (!Number.isFinite(op.waitAfter) || op.waitAfter < 0 || op.waitAfter > MAX_OPERATION_MINUTES)) {
       throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: ${label(op)} has a wait-after of ${op.waitAfter} minutes` })
     }
     if (!outside && op.options.length === 0) {
-      throw new SchedulingInputError({ code: 'no-option', ...where, message: `Job ${jn}: no bench and person can do ${label(op)} (kind ${op.kind}); add the skill to someone or a suitable bench` })
+      throw new SchedulingInputError({
+        code: 'no-option',
+        ...where,
+        message: `Job ${jn}: no bench and person can do ${label(op)} (kind ${op.kind}); add the skill to someone or a suitable bench`,
+      })
     }
     for (const o of op.options) {
-      if (o.benchId !== null && !benches.has(o.benchId)) throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: ${label(op)} names unknown bench ${o.benchId}` })
-      if (o.personId !== null && !people.has(o.personId)) throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: ${label(op)} names unknown person ${o.personId}` })
+      if (o.benchId !== null && !benches.has(o.benchId))
+        throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: ${label(op)} names unknown bench ${o.benchId}` })
+      if (o.personId !== null && !people.has(o.personId))
+        throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: ${label(op)} names unknown person ${o.personId}` })
       if (!outside && (!Number.isFinite(o.minutes) || o.minutes <= 0 || o.minutes > MAX_OPERATION_MINUTES)) {
-        throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: ${label(op)} has a duration of ${o.minutes} minutes; expected more than 0 and at most ${MAX_OPERATION_MINUTES}` })
+        throw new SchedulingInputError({
+          code: 'bad-duration',
+          ...where,
+          message: `Job ${jn}: ${label(op)} has a duration of ${o.minutes} minutes; expected more than 0 and at most ${MAX_OPERATION_MINUTES}`,
+        })
       }
     }
     if (op.fixed) {
@@ -86,19 +129,35 @@ export function checkProblem(problem: Problem): void {
       const inside = (list: Interval[]): boolean => list.some((w) => w.start <= f.start && f.start < w.end)
       if (f.benchId !== null) {
         const b = benches.get(f.benchId)
-        if (!b) throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: pinned ${label(op)} names unknown bench ${f.benchId}` })
-        if (!outside && !inside(b.available)) throw new SchedulingInputError({ code: 'fixed-outside-working-time', ...where, message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}, outside the working time of bench ${b.name}` })
+        if (!b)
+          throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: pinned ${label(op)} names unknown bench ${f.benchId}` })
+        if (!outside && !inside(b.available))
+          throw new SchedulingInputError({
+            code: 'fixed-outside-working-time',
+            ...where,
+            message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}, outside the working time of bench ${b.name}`,
+          })
       }
       if (f.personId !== null) {
         const p = people.get(f.personId)
-        if (!p) throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: pinned ${label(op)} names unknown person ${f.personId}` })
-        if (!outside && !inside(p.available)) throw new SchedulingInputError({ code: 'fixed-outside-working-time', ...where, message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}, outside the working time of ${p.name}` })
+        if (!p)
+          throw new SchedulingInputError({ code: 'unknown-resource', ...where, message: `Job ${jn}: pinned ${label(op)} names unknown person ${f.personId}` })
+        if (!outside && !inside(p.available))
+          throw new SchedulingInputError({
+            code: 'fixed-outside-working-time',
+            ...where,
+            message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}, outside the working time of ${p.name}`,
+          })
       }
     }
   }
   for (const job of problem.jobs) {
     if (!Number.isFinite(job.release) || (job.due !== null && !Number.isFinite(job.due)) || !Number.isFinite(job.weight) || job.weight < 0) {
-      throw new SchedulingInputError({ code: 'bad-duration', jobId: job.id, message: `Job ${job.name}: release, due date and weight must be numbers (weight not negative)` })
+      throw new SchedulingInputError({
+        code: 'bad-duration',
+        jobId: job.id,
+        message: `Job ${job.name}: release, due date and weight must be numbers (weight not negative)`,
+      })
     }
   }
 
@@ -113,7 +172,12 @@ export function checkProblem(problem: Problem): void {
       if (s === 1) {
         const cycle = stack.slice(stack.indexOf(p)).map((x) => ops.get(x)!)
         const op = ops.get(id)!
-        throw new SchedulingInputError({ code: 'routing-cycle', jobId: op.jobId, operationId: id, message: `Job ${jobName(op.jobId)}: the routing has a cycle through ${cycle.map((o) => `"${o.name}" (${o.id})`).join(' → ')}` })
+        throw new SchedulingInputError({
+          code: 'routing-cycle',
+          jobId: op.jobId,
+          operationId: id,
+          message: `Job ${jobName(op.jobId)}: the routing has a cycle through ${cycle.map((o) => `"${o.name}" (${o.id})`).join(' → ')}`,
+        })
       }
       if (s === undefined) visit(p)
     }
@@ -133,16 +197,23 @@ export function checkProblem(problem: Problem): void {
     for (let h = 0; h < queue.length; h++) {
       const o = queue[h]!
       order.push(o)
-      for (const s of succ.get(o.id) ?? []) { const d = indeg.get(s)! - 1; indeg.set(s, d); if (d === 0) queue.push(ops.get(s)!) }
+      for (const s of succ.get(o.id) ?? []) {
+        const d = indeg.get(s)! - 1
+        indeg.set(s, d)
+        if (d === 0) queue.push(ops.get(s)!)
+      }
     }
   }
   const windowsOf = (benchId: string | null, personId: string | null): Interval[] => {
     const b = benchId !== null ? benches.get(benchId)!.available : null
     const p = personId !== null ? people.get(personId)!.available : null
-    return b && p ? intersect(b, p) : b ?? p ?? [{ start: -1e15, end: 1e15 }]
+    return b && p ? intersect(b, p) : (b ?? p ?? [{ start: -1e15, end: 1e15 }])
   }
   for (const op of order) {
-    if (op.done) { finish.set(op.id, op.finishedAt ?? op.fixed?.end ?? -Infinity); continue }
+    if (op.done) {
+      finish.set(op.id, op.finishedAt ?? op.fixed?.end ?? -Infinity)
+      continue
+    }
     const job = jobs.get(op.jobId)!
     let est = Math.max(problem.now, job.release)
     for (const p of op.predecessors) est = Math.max(est, finish.get(p)! + (ops.get(p)!.waitAfter ?? 0))
@@ -160,7 +231,12 @@ export function checkProblem(problem: Problem): void {
       }
     }
     if (end === null || end > problem.horizon) {
-      throw new SchedulingInputError({ code: 'beyond-horizon', jobId: op.jobId, operationId: op.id, message: `Job ${job.name}: ${label(op)} cannot finish before the end of the calendars (minute ${problem.horizon}) even with its bench and person free; extend the horizon` })
+      throw new SchedulingInputError({
+        code: 'beyond-horizon',
+        jobId: op.jobId,
+        operationId: op.id,
+        message: `Job ${job.name}: ${label(op)} cannot finish before the end of the calendars (minute ${problem.horizon}) even with its bench and person free; extend the horizon`,
+      })
     }
     finish.set(op.id, end)
   }

@@ -4,7 +4,12 @@ import { SchedulingInputError } from './model.ts'
 import { clipToWindows, firstEndingAfter, formatMinute, intersect, outsideWorkEnd, walkWorkingTime, weekdayOf } from './calendar.ts'
 
 /** One resource option of an operation, with indices and its joint working windows. */
-export interface CompiledOption { bench: number; person: number; minutes: number; windows: Interval[] }
+export interface CompiledOption {
+  bench: number
+  person: number
+  minutes: number
+  windows: Interval[]
+}
 
 /** The problem indexed for fast decoding: only operations that are not done. */
 export interface Compiled {
@@ -44,7 +49,8 @@ export function compile(problem: Problem): Compiled {
   const ops = problem.operations.filter((o) => !o.done)
   const n = ops.length
   const opIndex = new Map(ops.map((o, i) => [o.id, i]))
-  const horizonCap = (list: Interval[]): Interval[] => list.filter((w) => w.start < problem.horizon).map((w) => ({ start: w.start, end: Math.min(w.end, problem.horizon) }))
+  const horizonCap = (list: Interval[]): Interval[] =>
+    list.filter((w) => w.start < problem.horizon).map((w) => ({ start: w.start, end: Math.min(w.end, problem.horizon) }))
   const windowCache = new Map<string, Interval[]>()
   const windowsFor = (bench: number, person: number): Interval[] => {
     const key = `${bench}/${person}`
@@ -52,7 +58,7 @@ export function compile(problem: Problem): Compiled {
     if (!w) {
       const bw = bench >= 0 ? problem.benches[bench]!.available : null
       const pw = person >= 0 ? problem.people[person]!.available : null
-      w = bw && pw ? intersect(bw, pw) : bw ?? pw ?? ALWAYS
+      w = bw && pw ? intersect(bw, pw) : (bw ?? pw ?? ALWAYS)
       w = horizonCap(w)
       windowCache.set(key, w)
     }
@@ -74,21 +80,29 @@ export function compile(problem: Problem): Compiled {
     const job = problem.jobs[j]!
     earliest[i] = Math.max(problem.now, job.release)
     waitAfter[i] = op.waitAfter ?? 0
-    for (const p of op.predecessors) { const r = doneFinish.get(p); if (r !== undefined && r > doneReady[i]!) doneReady[i] = r }
+    for (const p of op.predecessors) {
+      const r = doneFinish.get(p)
+      if (r !== undefined && r > doneReady[i]!) doneReady[i] = r
+    }
     if (doneReady[i]! > earliest[i]!) earliest[i] = doneReady[i]!
-    preds.push(op.predecessors.filter((p) => !doneIds.has(p)).map((p) => opIndex.get(p)!).filter((p) => p !== undefined))
+    preds.push(
+      op.predecessors
+        .filter((p) => !doneIds.has(p))
+        .map((p) => opIndex.get(p)!)
+        .filter((p) => p !== undefined),
+    )
     for (const p of preds[i]!) succs[p]!.push(i)
     if (op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0) outsideDays[i] = op.outsideWorkingDays
     const opts = op.options.map((o) => {
-      const b = o.benchId === null ? -1 : benchIdx.get(o.benchId) ?? -1
-      const p = o.personId === null ? -1 : personIdx.get(o.personId) ?? -1
+      const b = o.benchId === null ? -1 : (benchIdx.get(o.benchId) ?? -1)
+      const p = o.personId === null ? -1 : (personIdx.get(o.personId) ?? -1)
       return { bench: b, person: p, minutes: o.minutes, windows: windowsFor(b, p) }
     })
     options.push(opts)
     if (op.fixed) {
       const f = op.fixed
-      const b = f.benchId === null ? -1 : benchIdx.get(f.benchId) ?? -1
-      const p = f.personId === null ? -1 : personIdx.get(f.personId) ?? -1
+      const b = f.benchId === null ? -1 : (benchIdx.get(f.benchId) ?? -1)
+      const p = f.personId === null ? -1 : (personIdx.get(f.personId) ?? -1)
       const match = opts.find((o) => o.bench === b && o.person === p)
       const option = match ?? { bench: b, person: p, minutes: opts[0]?.minutes ?? 0, windows: windowsFor(b, p) }
       fixedAt.push({ option, start: f.start, ...(f.end !== undefined ? { end: f.end } : {}), benchId: f.benchId, personId: f.personId })
@@ -104,7 +118,8 @@ export function compile(problem: Problem): Compiled {
     if (!f) continue
     for (const p of preds[i]!) stack.push(p, f.start)
     while (stack.length > 0) {
-      const by = stack.pop()!, x = stack.pop()!
+      const by = stack.pop()!,
+        x = stack.pop()!
       if (fixedAt[x]) continue
       if (pinDeadline[x]! <= by) continue
       pinDeadline[x] = by
@@ -112,8 +127,25 @@ export function compile(problem: Problem): Compiled {
     }
   }
   return {
-    problem, n, ops, opIndex, jobs: problem.jobs, jobOf, preds, succs, options, earliest, doneReady, waitAfter, outsideDays, fixedAt, previousOption, pinDeadline,
-    benchCount: problem.benches.length, personCount: problem.people.length, originWeekday: weekdayOf(problem.origin),
+    problem,
+    n,
+    ops,
+    opIndex,
+    jobs: problem.jobs,
+    jobOf,
+    preds,
+    succs,
+    options,
+    earliest,
+    doneReady,
+    waitAfter,
+    outsideDays,
+    fixedAt,
+    previousOption,
+    pinDeadline,
+    benchCount: problem.benches.length,
+    personCount: problem.people.length,
+    originWeekday: weekdayOf(problem.origin),
   }
 }
 
@@ -132,35 +164,68 @@ class Timeline {
   /** Index of the busy block containing t, or -1. */
   containing(t: number): number {
     const ends = this.ends
-    let lo = 0, hi = ends.length
-    while (lo < hi) { const mid = (lo + hi) >> 1; if (ends[mid]! > t) hi = mid; else lo = mid + 1 }
+    let lo = 0,
+      hi = ends.length
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (ends[mid]! > t) hi = mid
+      else lo = mid + 1
+    }
     return lo < ends.length && this.starts[lo]! <= t ? lo : -1
   }
   /** First busy segment overlapping [s, e), or -1. */
   overlap(s: number, e: number): number {
     const ends = this.ends
-    let lo = 0, hi = ends.length
-    while (lo < hi) { const mid = (lo + hi) >> 1; if (ends[mid]! > s) hi = mid; else lo = mid + 1 }
+    let lo = 0,
+      hi = ends.length
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (ends[mid]! > s) hi = mid
+      else lo = mid + 1
+    }
     return lo < ends.length && this.starts[lo]! < e ? lo : -1
   }
   add(s: number, e: number, owner: number): void {
     const ends = this.ends
-    let lo = 0, hi = ends.length
-    while (lo < hi) { const mid = (lo + hi) >> 1; if (ends[mid]! > s) hi = mid; else lo = mid + 1 }
+    let lo = 0,
+      hi = ends.length
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (ends[mid]! > s) hi = mid
+      else lo = mid + 1
+    }
     // Touching busy stretches are kept as one block (owned by the operation that ends it), so searches jump whole blocks.
     const joinPrev = lo > 0 && !this.idleBetween(ends[lo - 1]!, s)
     const joinNext = lo < ends.length && !this.idleBetween(e, this.starts[lo]!)
     if (joinPrev && joinNext) {
-      ends[lo - 1] = ends[lo]!; this.owners[lo - 1] = this.owners[lo]!
-      this.starts.splice(lo, 1); ends.splice(lo, 1); this.owners.splice(lo, 1)
-    } else if (joinPrev) { ends[lo - 1] = e; this.owners[lo - 1] = owner }
-    else if (joinNext) { this.starts[lo] = s }
-    else { this.starts.splice(lo, 0, s); ends.splice(lo, 0, e); this.owners.splice(lo, 0, owner) }
+      ends[lo - 1] = ends[lo]!
+      this.owners[lo - 1] = this.owners[lo]!
+      this.starts.splice(lo, 1)
+      ends.splice(lo, 1)
+      this.owners.splice(lo, 1)
+    } else if (joinPrev) {
+      ends[lo - 1] = e
+      this.owners[lo - 1] = owner
+    } else if (joinNext) {
+      this.starts[lo] = s
+    } else {
+      this.starts.splice(lo, 0, s)
+      ends.splice(lo, 0, e)
+      this.owners.splice(lo, 0, owner)
+    }
   }
 }
 
 /** Reason codes kept compactly during decoding. */
-export enum Why { Now = 0, Release = 1, Predecessor = 2, Bench = 3, Person = 4, WorkingTime = 5, Fixed = 6 }
+export enum Why {
+  Now = 0,
+  Release = 1,
+  Predecessor = 2,
+  Bench = 3,
+  Person = 4,
+  WorkingTime = 5,
+  Fixed = 6,
+}
 
 /** The timed result of one decode. */
 export interface Decoded {
@@ -182,7 +247,13 @@ export interface Decoded {
 }
 
 /** Earliest start at or after t on option `o` that avoids busy bench and person time; null past the horizon. */
-function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline[], limit = Infinity): { segs: Interval[]; blockedBy: number; blockedOn: Why } | null | undefined {
+function fit(
+  o: CompiledOption,
+  t: number,
+  benches: Timeline[],
+  people: Timeline[],
+  limit = Infinity,
+): { segs: Interval[]; blockedBy: number; blockedOn: Why } | null | undefined {
   let blockedBy = -1
   let blockedOn: Why = Why.WorkingTime
   const bt = o.bench >= 0 ? benches[o.bench]! : null
@@ -197,9 +268,19 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
       if (!w) return null
       if (w.start > t) t = w.start
       const kb = bt ? bt.containing(t) : -1
-      if (kb >= 0) { t = bt!.ends[kb]!; blockedBy = bt!.owners[kb]!; blockedOn = Why.Bench; continue }
+      if (kb >= 0) {
+        t = bt!.ends[kb]!
+        blockedBy = bt!.owners[kb]!
+        blockedOn = Why.Bench
+        continue
+      }
       const kp = pt ? pt.containing(t) : -1
-      if (kp >= 0) { t = pt!.ends[kp]!; blockedBy = pt!.owners[kp]!; blockedOn = Why.Person; continue }
+      if (kp >= 0) {
+        t = pt!.ends[kp]!
+        blockedBy = pt!.owners[kp]!
+        blockedOn = Why.Person
+        continue
+      }
       break
     }
     const segs = walkWorkingTime(win, t, o.minutes)
@@ -207,8 +288,24 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
     let pushTo = -Infinity
     for (const s of segs) {
       if (s.end <= s.start) continue
-      if (bt) { const k = bt.overlap(s.start, s.end); if (k >= 0) { pushTo = bt.ends[k]!; blockedBy = bt.owners[k]!; blockedOn = Why.Bench; break } }
-      if (pt) { const k = pt.overlap(s.start, s.end); if (k >= 0) { pushTo = pt.ends[k]!; blockedBy = pt.owners[k]!; blockedOn = Why.Person; break } }
+      if (bt) {
+        const k = bt.overlap(s.start, s.end)
+        if (k >= 0) {
+          pushTo = bt.ends[k]!
+          blockedBy = bt.owners[k]!
+          blockedOn = Why.Bench
+          break
+        }
+      }
+      if (pt) {
+        const k = pt.overlap(s.start, s.end)
+        if (k >= 0) {
+          pushTo = pt.ends[k]!
+          blockedBy = pt.owners[k]!
+          blockedOn = Why.Person
+          break
+        }
+      }
     }
     if (pushTo === -Infinity) return { segs, blockedBy, blockedOn }
     t = pushTo
@@ -219,26 +316,44 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
 class KeyHeap {
   private items: number[] = []
   constructor(private key: Float64Array) {}
-  get size(): number { return this.items.length }
+  get size(): number {
+    return this.items.length
+  }
   push(x: number): void {
-    const a = this.items, k = this.key
+    const a = this.items,
+      k = this.key
     a.push(x)
     let i = a.length - 1
-    while (i > 0) { const p = (i - 1) >> 1; if (k[a[p]!]! <= k[x]!) break; a[i] = a[p]!; i = p }
+    while (i > 0) {
+      const p = (i - 1) >> 1
+      if (k[a[p]!]! <= k[x]!) break
+      a[i] = a[p]!
+      i = p
+    }
     a[i] = x
   }
   pop(): number {
-    const a = this.items, k = this.key
-    const top = a[0]!, last = a.pop()!
+    const a = this.items,
+      k = this.key
+    const top = a[0]!,
+      last = a.pop()!
     if (a.length > 0) {
       let i = 0
       for (;;) {
-        const l = 2 * i + 1, r = l + 1
-        let m = i, mv = k[last]!
-        if (l < a.length && k[a[l]!]! < mv) { m = l; mv = k[a[l]!]! }
-        if (r < a.length && k[a[r]!]! < mv) { m = r }
+        const l = 2 * i + 1,
+          r = l + 1
+        let m = i,
+          mv = k[last]!
+        if (l < a.length && k[a[l]!]! < mv) {
+          m = l
+          mv = k[a[l]!]!
+        }
+        if (r < a.length && k[a[r]!]! < mv) {
+          m = r
+        }
         if (m === i) break
-        a[i] = a[m]!; i = m
+        a[i] = a[m]!
+        i = m
       }
       a[i] = last
     }
@@ -252,10 +367,12 @@ class KeyHeap {
  */
 export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Decoded {
   const n = c.n
-  const start = new Float64Array(n), end = new Float64Array(n)
+  const start = new Float64Array(n),
+    end = new Float64Array(n)
   const option = new Int32Array(n).fill(-1)
   const segments: Interval[][] = new Array(n)
-  const why = new Uint8Array(n), blocker = new Int32Array(n).fill(-1)
+  const why = new Uint8Array(n),
+    blocker = new Int32Array(n).fill(-1)
   const benches: Timeline[] = c.problem.benches.map((b) => new Timeline(b.available))
   const people: Timeline[] = c.problem.people.map((p) => new Timeline(p.available))
   const placed = new Uint8Array(n)
@@ -270,9 +387,12 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
       // Sent out (or pinned to leave): away for its working days from the day it left, whatever the plan does.
       const back = outsideWorkEnd(c.problem.workshopDays, f.start, c.outsideDays[i]!)
       if (back === null && overflow < 0) overflow = i
-      start[i] = f.start; end[i] = back ?? f.start + c.outsideDays[i]! * 1440
+      start[i] = f.start
+      end[i] = back ?? f.start + c.outsideDays[i]! * 1440
       segments[i] = [{ start: f.start, end: end[i]! }]
-      option[i] = -1; why[i] = Why.Fixed; placed[i] = 1
+      option[i] = -1
+      why[i] = Why.Fixed
+      placed[i] = 1
       continue
     }
     const segs = f.end !== undefined ? clipToWindows(f.option.windows, f.start, f.end) : walkWorkingTime(f.option.windows, f.start, f.option.minutes)
@@ -297,71 +417,122 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
     if (w === 0) heap.push(i)
   }
   const release = (i: number): void => {
-    for (const s of c.succs[i]!) if (!placed[s]) { waiting[s] = waiting[s]! - 1; if (waiting[s] === 0) heap.push(s) }
+    for (const s of c.succs[i]!)
+      if (!placed[s]) {
+        waiting[s] = waiting[s]! - 1
+        if (waiting[s] === 0) heap.push(s)
+      }
   }
   for (let i = 0; i < n; i++) if (placed[i]) release(i)
 
   while (heap.size > 0) {
     const i = heap.pop()
     // Earliest start from now, release and predecessors (with their wait-after).
-    let est = c.problem.now, w: Why = Why.Now, blk = -1
+    let est = c.problem.now,
+      w: Why = Why.Now,
+      blk = -1
     const rel = c.jobs[c.jobOf[i]!]!.release
-    if (rel > est) { est = rel; w = Why.Release }
-    if (c.doneReady[i]! > est) { est = c.doneReady[i]!; w = Why.Predecessor }
+    if (rel > est) {
+      est = rel
+      w = Why.Release
+    }
+    if (c.doneReady[i]! > est) {
+      est = c.doneReady[i]!
+      w = Why.Predecessor
+    }
     for (const p of c.preds[i]!) {
       const e = end[p]! + c.waitAfter[p]!
-      if (e > est) { est = e; w = Why.Predecessor; blk = p }
+      if (e > est) {
+        est = e
+        w = Why.Predecessor
+        blk = p
+      }
     }
     if (c.outsideDays[i]! > 0) {
       const e = outsideWorkEnd(c.problem.workshopDays, est, c.outsideDays[i]!)
-      if (e === null) { if (overflow < 0) overflow = i }
+      if (e === null) {
+        if (overflow < 0) overflow = i
+      }
       const fin = e ?? est + c.outsideDays[i]! * 1440
-      start[i] = est; end[i] = fin; segments[i] = [{ start: est, end: fin }]
-      why[i] = w; blocker[i] = blk
+      start[i] = est
+      end[i] = fin
+      segments[i] = [{ start: est, end: fin }]
+      why[i] = w
+      blocker[i] = blk
     } else {
       const opts = c.options[i]!
       const forced = choice[i]!
-      let best: ReturnType<typeof fit> = null, bestK = -1, bestEnd = Infinity
+      let best: ReturnType<typeof fit> = null,
+        bestK = -1,
+        bestEnd = Infinity
       for (let k = 0; k < opts.length; k++) {
         if (forced >= 0 && k !== forced) continue
         const r = fit(opts[k]!, est, benches, people, bestEnd)
         if (!r) continue
         const e = r.segs[r.segs.length - 1]!.end
-        const better = e < bestEnd || (e === bestEnd && (k === c.previousOption[i] || (bestK !== c.previousOption[i] && opts[k]!.minutes < opts[bestK]!.minutes)))
-        if (better) { best = r; bestK = k; bestEnd = e }
+        const better =
+          e < bestEnd || (e === bestEnd && (k === c.previousOption[i] || (bestK !== c.previousOption[i] && opts[k]!.minutes < opts[bestK]!.minutes)))
+        if (better) {
+          best = r
+          bestK = k
+          bestEnd = e
+        }
       }
       if (!best) {
         if (overflow < 0) overflow = i
         const d = opts[0]?.minutes ?? 0
-        start[i] = est; end[i] = est + d; segments[i] = [{ start: est, end: est + d }]; option[i] = opts.length > 0 ? 0 : -1
-        why[i] = w; blocker[i] = blk
+        start[i] = est
+        end[i] = est + d
+        segments[i] = [{ start: est, end: est + d }]
+        option[i] = opts.length > 0 ? 0 : -1
+        why[i] = w
+        blocker[i] = blk
       } else {
         const o = opts[bestK]!
         const segs = best.segs
         const s0 = segs[0]!.start
-        start[i] = s0; end[i] = bestEnd; segments[i] = segs; option[i] = bestK
+        start[i] = s0
+        end[i] = bestEnd
+        segments[i] = segs
+        option[i] = bestK
         for (const g of segs) {
           if (g.end <= g.start) continue
           if (o.bench >= 0) benches[o.bench]!.add(g.start, g.end, i)
           if (o.person >= 0) people[o.person]!.add(g.start, g.end, i)
         }
-        if (s0 > est) { why[i] = best.blockedBy >= 0 ? best.blockedOn : Why.WorkingTime; blocker[i] = best.blockedBy }
-        else { why[i] = w; blocker[i] = blk }
+        if (s0 > est) {
+          why[i] = best.blockedBy >= 0 ? best.blockedOn : Why.WorkingTime
+          blocker[i] = best.blockedBy
+        } else {
+          why[i] = w
+          blocker[i] = blk
+        }
       }
     }
     placed[i] = 1
     release(i)
   }
   // Operations left unplaced sit on a cycle; checkProblem rules that out, so this is defensive.
-  for (let i = 0; i < n; i++) if (!placed[i]) { if (overflow < 0) overflow = i; start[i] = end[i] = c.problem.now; segments[i] = [] }
+  for (let i = 0; i < n; i++)
+    if (!placed[i]) {
+      if (overflow < 0) overflow = i
+      start[i] = end[i] = c.problem.now
+      segments[i] = []
+    }
 
   let brokenPins = 0
   for (let i = 0; i < n; i++) {
     if (!c.fixedAt[i]) continue
-    for (const p of c.preds[i]!) if (end[p]! + c.waitAfter[p]! > start[i]!) { brokenPins++; break }
+    for (const p of c.preds[i]!)
+      if (end[p]! + c.waitAfter[p]! > start[i]!) {
+        brokenPins++
+        break
+      }
   }
   const completion = new Float64Array(c.jobs.length).fill(-Infinity)
-  let makespan = 0, moves = 0, shifted = 0
+  let makespan = 0,
+    moves = 0,
+    shifted = 0
   for (let i = 0; i < n; i++) {
     const j = c.jobOf[i]!
     if (end[i]! > completion[j]!) completion[j] = end[i]!
@@ -381,7 +552,8 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
 
 /** Lexicographic comparison of two decodes: negative when a is better; overflowing decodes are always worse. */
 export function compareDecoded(a: Decoded, b: Decoded, objective: Objective[]): number {
-  const ao = a.overflow >= 0 ? 1 : 0, bo = b.overflow >= 0 ? 1 : 0
+  const ao = a.overflow >= 0 ? 1 : 0,
+    bo = b.overflow >= 0 ? 1 : 0
   if (ao !== bo) return ao - bo
   if (a.brokenPins !== b.brokenPins) return a.brokenPins - b.brokenPins
   for (const k of objective) {
@@ -409,13 +581,28 @@ export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
     const bop = b >= 0 ? c.ops[b]! : null
     let detail: string
     switch (kind) {
-      case 'fixed': detail = `pinned at ${at(d.start[i]!)}`; break
-      case 'now': detail = `starts as soon as planning allows (${at(d.start[i]!)})`; break
-      case 'release': detail = `job ${c.jobs[c.jobOf[i]!]!.name} is released at ${at(c.jobs[c.jobOf[i]!]!.release)}`; break
-      case 'predecessor': detail = bop ? `waiting for ${bop.name} to finish${c.waitAfter[b]! > 0 ? ` and ${c.waitAfter[b]} min wait` : ''} until ${at(d.start[i]!)}` : `waiting for a predecessor until ${at(d.start[i]!)}`; break
-      case 'bench': detail = `waiting for ${benchId ? p.benches.find((x) => x.id === benchId)?.name ?? benchId : 'the bench'} (${bop?.name ?? 'busy'}) until ${at(d.start[i]!)}`; break
-      case 'person': detail = `waiting for ${personId ? p.people.find((x) => x.id === personId)?.name ?? personId : 'the person'} (${bop?.kind ?? 'busy'}) until ${at(d.start[i]!)}`; break
-      default: detail = `outside working time of ${[benchId && p.benches.find((x) => x.id === benchId)?.name, personId && p.people.find((x) => x.id === personId)?.name].filter(Boolean).join(' and ') || 'the workshop'} until ${at(d.start[i]!)}`
+      case 'fixed':
+        detail = `pinned at ${at(d.start[i]!)}`
+        break
+      case 'now':
+        detail = `starts as soon as planning allows (${at(d.start[i]!)})`
+        break
+      case 'release':
+        detail = `job ${c.jobs[c.jobOf[i]!]!.name} is released at ${at(c.jobs[c.jobOf[i]!]!.release)}`
+        break
+      case 'predecessor':
+        detail = bop
+          ? `waiting for ${bop.name} to finish${c.waitAfter[b]! > 0 ? ` and ${c.waitAfter[b]} min wait` : ''} until ${at(d.start[i]!)}`
+          : `waiting for a predecessor until ${at(d.start[i]!)}`
+        break
+      case 'bench':
+        detail = `waiting for ${benchId ? (p.benches.find((x) => x.id === benchId)?.name ?? benchId) : 'the bench'} (${bop?.name ?? 'busy'}) until ${at(d.start[i]!)}`
+        break
+      case 'person':
+        detail = `waiting for ${personId ? (p.people.find((x) => x.id === personId)?.name ?? personId) : 'the person'} (${bop?.kind ?? 'busy'}) until ${at(d.start[i]!)}`
+        break
+      default:
+        detail = `outside working time of ${[benchId && p.benches.find((x) => x.id === benchId)?.name, personId && p.people.find((x) => x.id === personId)?.name].filter(Boolean).join(' and ') || 'the workshop'} until ${at(d.start[i]!)}`
     }
     const reason: StartReason = { kind, detail, ...(bop ? { blockerId: bop.id } : {}) }
     operations.push({ operationId: op.id, jobId: op.jobId, benchId, personId, start: d.start[i]!, end: d.end[i]!, segments: d.segments[i]!, reason })

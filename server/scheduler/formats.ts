@@ -34,8 +34,10 @@ export function parseJobShop(text: string): ShopFile {
   for (let j = 0; j < n; j++) {
     const ops: { machine: number; duration: number }[][] = []
     for (let o = 0; o < m; o++) {
-      const machine = stream[k++], duration = stream[k++]
-      if (machine === undefined || duration === undefined || !Number.isFinite(machine) || !Number.isFinite(duration)) fail(`job ${j} has fewer than ${m} operations`)
+      const machine = stream[k++],
+        duration = stream[k++]
+      if (machine === undefined || duration === undefined || !Number.isFinite(machine) || !Number.isFinite(duration))
+        fail(`job ${j} has fewer than ${m} operations`)
       ops.push([{ machine: machine!, duration: duration! }])
     }
     jobs.push(ops)
@@ -74,8 +76,14 @@ export function parseFlexibleJobShop(text: string): ShopFile {
 
 /** Detects 1-based machine numbering: some machine index equals the machine count and none is 0. */
 function withBase(file: ShopFile): ShopFile {
-  let min = Infinity, max = -Infinity
-  for (const job of file.jobs) for (const op of job) for (const a of op) { min = Math.min(min, a.machine); max = Math.max(max, a.machine) }
+  let min = Infinity,
+    max = -Infinity
+  for (const job of file.jobs)
+    for (const op of job)
+      for (const a of op) {
+        min = Math.min(min, a.machine)
+        max = Math.max(max, a.machine)
+      }
   const base: 0 | 1 = max === file.machines && min >= 1 ? 1 : 0
   if (max - base >= file.machines || min - base < 0) fail(`machine numbers ${min}..${max} do not fit ${file.machines} machines`)
   return { ...file, machineBase: base }
@@ -131,7 +139,12 @@ export function parseTwt(text: string): Problem {
   if (!Number.isInteger(n) || !Number.isInteger(m) || n <= 0 || m <= 0) fail('bad header')
   const tail = rows.slice(rows.length - n)
   if (tail.some((r) => r.length !== 3)) fail(`expected ${n} lines of "release due weight" after the jobs`)
-  const shop = parseJobShop(rows.slice(0, rows.length - n).map((r) => r.join(' ')).join('\n'))
+  const shop = parseJobShop(
+    rows
+      .slice(0, rows.length - n)
+      .map((r) => r.join(' '))
+      .join('\n'),
+  )
   const problem = shopToProblem(shop)
   problem.jobs = problem.jobs.map((j, k) => ({ ...j, release: tail[k]![0]!, due: tail[k]![1]!, weight: tail[k]![2]! }))
   // Room for a very late schedule: all work in a row after the latest release.
@@ -167,14 +180,23 @@ export function parseFjw(text: string): Problem {
       const options = []
       let longest = 0
       for (let a = 0; a < alts; a++) {
-        const machine = next(`job ${j} op ${o}`), worker = next(`job ${j} op ${o}`), duration = next(`job ${j} op ${o}`)
+        const machine = next(`job ${j} op ${o}`),
+          worker = next(`job ${j} op ${o}`),
+          duration = next(`job ${j} op ${o}`)
         if (machine < 0 || machine >= m || worker < 0 || worker >= w) fail(`job ${j} op ${o}: machine ${machine} or worker ${worker} out of range`)
         options.push({ benchId: shopBenchId(machine), personId: shopWorkerId(worker), minutes: duration })
         longest = Math.max(longest, duration)
       }
       if (options.length === 0) fail(`job ${j} op ${o} has no option`)
       horizon += longest
-      operations.push({ id: shopOperationId(j, o), jobId: `j${j}`, name: `job ${j} op ${o}`, kind: 'machine', predecessors: o > 0 ? [shopOperationId(j, o - 1)] : [], options })
+      operations.push({
+        id: shopOperationId(j, o),
+        jobId: `j${j}`,
+        name: `job ${j} op ${o}`,
+        kind: 'machine',
+        predecessors: o > 0 ? [shopOperationId(j, o - 1)] : [],
+        options,
+      })
     }
   }
   const always = [{ start: 0, end: horizon }]

@@ -18,7 +18,12 @@ const at = (day: number, h: number, m = 0): number => day * DAY + h * 60 + m
 
 type Kind = 'sawing' | 'soldering' | 'setting' | 'polishing' | 'finishing' | 'assembly'
 
-interface Skilled { id: string; name: string; speed: Partial<Record<Kind, number>>; mornings?: boolean }
+interface Skilled {
+  id: string
+  name: string
+  speed: Partial<Record<Kind, number>>
+  mornings?: boolean
+}
 
 const BENCHES: { id: string; name: string; kinds: Kind[] }[] = [
   { id: 'saw-1', name: 'Saw bench', kinds: ['sawing'] },
@@ -37,10 +42,22 @@ const PEOPLE: Skilled[] = [
   { id: 'gil', name: 'Gil (goldsmith)', speed: { sawing: 1, soldering: 1, finishing: 1, assembly: 1 } },
   { id: 'rhea', name: 'Rhea (goldsmith)', speed: { sawing: 1.1, soldering: 0.9, finishing: 1.1, assembly: 1 } },
   { id: 'pol', name: 'Paul (polisher)', speed: { polishing: 1, finishing: 1.2 } },
-  { id: 'mia', name: 'Mia (manager at the bench)', speed: { sawing: 1.3, soldering: 1.3, setting: 1.4, polishing: 1.4, finishing: 1.2, assembly: 1.3 }, mornings: true },
+  {
+    id: 'mia',
+    name: 'Mia (manager at the bench)',
+    speed: { sawing: 1.3, soldering: 1.3, setting: 1.4, polishing: 1.4, finishing: 1.2, assembly: 1.3 },
+    mornings: true,
+  },
 ]
 
-interface Step { name: string; kind: Kind | 'casting' | 'hallmarking'; minutes?: number; days?: number; after: number[]; waitAfter?: number }
+interface Step {
+  name: string
+  kind: Kind | 'casting' | 'hallmarking'
+  minutes?: number
+  days?: number
+  after: number[]
+  waitAfter?: number
+}
 
 /** Routings of about six operations, with branch/join, outside work and pickle waits. */
 const ROUTINGS: Step[][] = [
@@ -104,7 +121,14 @@ export function generateWorkshop(settings: WorkshopSettings): Problem {
     return { id: b.id, name: b.name, available }
   })
   const people: Person[] = PEOPLE.map((p) => {
-    let available: Interval[] = open.flatMap((d) => (p.mornings ? [{ start: at(d, 8, 30), end: at(d, 12, 30) }] : [{ start: at(d, 8, 30), end: at(d, 12, 30) }, { start: at(d, 13), end: at(d, 17) }]))
+    let available: Interval[] = open.flatMap((d) =>
+      p.mornings
+        ? [{ start: at(d, 8, 30), end: at(d, 12, 30) }]
+        : [
+            { start: at(d, 8, 30), end: at(d, 12, 30) },
+            { start: at(d, 13), end: at(d, 17) },
+          ],
+    )
     if (p.id === 'tom') available = minus(available, { start: at(7, 0), end: at(10, 0) }) // leave
     if (p.id === 'rhea') available = minus(available, { start: at(4, 12, 30), end: at(4, 17) }) // half day off
     return { id: p.id, name: p.name, available }
@@ -149,7 +173,11 @@ export function generateWorkshop(settings: WorkshopSettings): Problem {
   if (settings.withProgress) {
     // Some first steps are finished, and one job's saw work is running on the saw bench with Gil since now.
     // Finished ten minutes ago, so a wait after them (pickle, cure) still holds their successors a little.
-    for (const op of operations) if (op.predecessors.length === 0 && !op.outsideWorkingDays && rng.next() < 0.3) { op.done = true; op.finishedAt = now - 10 }
+    for (const op of operations)
+      if (op.predecessors.length === 0 && !op.outsideWorkingDays && rng.next() < 0.3) {
+        op.done = true
+        op.finishedAt = now - 10
+      }
     const running = operations.find((o) => !o.done && o.kind === 'sawing' && o.predecessors.length === 0)
     const opt = running?.options.find((o) => o.benchId === 'saw-1' && o.personId === 'gil')
     if (running && opt) running.fixed = { benchId: 'saw-1', personId: 'gil', start: now }

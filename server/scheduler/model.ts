@@ -5,16 +5,33 @@ import type { RuleViolation } from '../../shared/domain/rules.ts'
 export type Interval = { start: number; end: number }
 
 /** A bench (workstation); `available` is working time minus downtime and closures, sorted and disjoint. */
-export interface Bench { id: string; name: string; available: Interval[] }
+export interface Bench {
+  id: string
+  name: string
+  available: Interval[]
+}
 
 /** A person at the bench; `available` is the weekly pattern minus leave and closures, sorted and disjoint. */
-export interface Person { id: string; name: string; available: Interval[] }
+export interface Person {
+  id: string
+  name: string
+  available: Interval[]
+}
 
 /** One way to carry out an operation: a bench, a person (either may be null) and the minutes it takes that pair. */
-export interface OperationOption { benchId: string | null; personId: string | null; minutes: number }
+export interface OperationOption {
+  benchId: string | null
+  personId: string | null
+  minutes: number
+}
 
 /** A pinned or running operation: it keeps its bench, person and start. */
-export interface FixedPlacement { benchId: string | null; personId: string | null; start: number; end?: number }
+export interface FixedPlacement {
+  benchId: string | null
+  personId: string | null
+  start: number
+  end?: number
+}
 
 /** One step of a job bag's routing. */
 export interface Operation {
@@ -40,7 +57,13 @@ export interface Operation {
 }
 
 /** A job bag; weight is its priority, due null means no due date. */
-export interface Job { id: string; name: string; release: number; due: number | null; weight: number }
+export interface Job {
+  id: string
+  name: string
+  release: number
+  due: number | null
+  weight: number
+}
 
 /** Everything the engine needs to plan a workshop. */
 export interface Problem {
@@ -99,7 +122,10 @@ export interface Plan {
   score: Score
   /** evaluations: candidate schedules evaluated exactly, where the search counts them. */
   stats: {
-    iterations: number; elapsedMs: number; firstPlanMs: number; evaluations?: number
+    iterations: number
+    elapsedMs: number
+    firstPlanMs: number
+    evaluations?: number
     /** The previous plan kept as it is (re-timed from now): what a new plan must beat to be worth its changes. */
     previous?: { weightedTardiness: number; makespan: number }
   }
@@ -123,7 +149,11 @@ export interface SolveOptions {
 }
 
 /** Progress report during a solve. */
-export interface SolveProgress { iteration: number; best: Score; elapsedMs: number }
+export interface SolveProgress {
+  iteration: number
+  best: Score
+  elapsedMs: number
+}
 
 /** Caller-supplied hooks: progress, cancellation and the clock (milliseconds). */
 export interface SolveHooks {

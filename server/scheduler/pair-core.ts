@@ -89,13 +89,15 @@ export interface PairSolution {
   firstMs: number
 }
 
-const M = 0, W = 1 // resource types: machine, worker
+const M = 0,
+  W = 1 // resource types: machine, worker
 /** Reassignments evaluated exactly per iteration (the best by estimate). */
 const REASSIGN_EVALUATED = 6
 /** Tardy jobs whose critical paths feed one iteration's moves (chosen by weighted tardiness). */
 const TARGETS = 2
 /** On stagnation: share of restarts from a fresh shaken dispatch, from the best, else from where the walk is. */
-const RESTART_FRESH = 0.3, RESTART_BEST = 0.5
+const RESTART_FRESH = 0.3,
+  RESTART_BEST = 0.5
 /** In a kick, the share of random changes that give a step another machine and worker pair (where steps have a choice). */
 const REASSIGN_KICKS = 0.3
 
@@ -124,21 +126,33 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const lag = s.lag ?? new Int32Array(n)
   let flexible = false
   for (let i = 0; i < n && !flexible; i++) if (optStart[i + 1]! - optStart[i]! > 1) flexible = true
-  const xps = s.extra?.predStart ?? new Int32Array(n + 1), xp = s.extra?.pred ?? new Int32Array(0)
-  const xss = s.extra?.succStart ?? new Int32Array(n + 1), xs = s.extra?.succ ?? new Int32Array(0)
+  const xps = s.extra?.predStart ?? new Int32Array(n + 1),
+    xp = s.extra?.pred ?? new Int32Array(0)
+  const xss = s.extra?.succStart ?? new Int32Array(n + 1),
+    xs = s.extra?.succ ?? new Int32Array(0)
   for (let i = 0; i < n; i++) if (jobSucc[i]! < 0 && xss[i + 1] === xss[i]) lastOf[jobOf[i]!] = i
   const hasExtra = xp.length > 0
   const cal = s.calendar
-  const optCal = cal?.optCal, calOffset = cal?.calOffset, winStart = cal?.winStart, winEnd = cal?.winEnd, winCum = cal?.winCum
+  const optCal = cal?.optCal,
+    calOffset = cal?.calOffset,
+    winStart = cal?.winStart,
+    winEnd = cal?.winEnd,
+    winCum = cal?.winCum
   const stretchLast = cal?.winStretchLast
-  const dayStart = cal?.dayStart, dayEnd = cal?.dayEnd
+  const dayStart = cal?.dayStart,
+    dayEnd = cal?.dayEnd
   /** First moment at or after t when option o can work. */
   const startAt = (o: number, t: number): number => {
     const c = optCal![o]!
     if (c < 0) return t
-    let lo = calOffset![c]!, hi = calOffset![c + 1]!
+    let lo = calOffset![c]!,
+      hi = calOffset![c + 1]!
     const last = hi
-    while (lo < hi) { const mid = (lo + hi) >> 1; if (winEnd![mid]! > t) hi = mid; else lo = mid + 1 }
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (winEnd![mid]! > t) hi = mid
+      else lo = mid + 1
+    }
     if (lo >= last) return FAR
     let st = winStart![lo]! > t ? winStart![lo]! : t
     const d = optDur[o]!
@@ -149,7 +163,8 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       if (nk >= last) return st
       const nl = stretchLast![nk]!
       if (winCum![nl]! + winEnd![nl]! - winStart![nl]! - winCum![nk]! < d) return st
-      lo = nk; st = winStart![nk]!
+      lo = nk
+      st = winStart![nk]!
     }
     return st
   }
@@ -159,53 +174,79 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     const d = optDur[o]!
     if (c === -1) return st + d
     if (c === -2) {
-      let lo = 0, hi = dayStart!.length
-      while (lo < hi) { const mid = (lo + hi) >> 1; if (dayStart![mid]! >= st) hi = mid; else lo = mid + 1 }
+      let lo = 0,
+        hi = dayStart!.length
+      while (lo < hi) {
+        const mid = (lo + hi) >> 1
+        if (dayStart![mid]! >= st) hi = mid
+        else lo = mid + 1
+      }
       const k = lo + d - 1
       return k < dayStart!.length ? dayEnd![k]! : FAR
     }
     if (st >= FAR) return FAR
     if (d <= 0) return st
-    let lo = calOffset![c]!, hi = calOffset![c + 1]!
+    let lo = calOffset![c]!,
+      hi = calOffset![c + 1]!
     const last = hi
-    while (lo < hi) { const mid = (lo + hi) >> 1; if (winEnd![mid]! > st) hi = mid; else lo = mid + 1 }
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (winEnd![mid]! > st) hi = mid
+      else lo = mid + 1
+    }
     if (lo >= last) return FAR
     // Working minutes counted from the calendar's start: the end is where they reach the start's count plus d.
     const goal = winCum![lo]! + (st - winStart![lo]!) + d
     if (goal <= winCum![lo]! + winEnd![lo]! - winStart![lo]!) return st + d
     hi = last
-    while (lo < hi) { const mid = (lo + hi) >> 1; if (winCum![mid]! + winEnd![mid]! - winStart![mid]! >= goal) hi = mid; else lo = mid + 1 }
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (winCum![mid]! + winEnd![mid]! - winStart![mid]! >= goal) hi = mid
+      else lo = mid + 1
+    }
     if (lo >= last) return FAR
     return winStart![lo]! + (goal - winCum![lo]!)
   }
 
   // Current solution: option, duration, resources, and the two kinds of sequences as linked lists.
-  const opt = new Int32Array(n), p = new Int32Array(n)
+  const opt = new Int32Array(n),
+    p = new Int32Array(n)
   const res = [new Int32Array(n), new Int32Array(n)]
   const pred = [new Int32Array(n).fill(-1), new Int32Array(n).fill(-1)]
   const succ = [new Int32Array(n).fill(-1), new Int32Array(n).fill(-1)]
   const head = [new Int32Array(s.machines).fill(-1), new Int32Array(Math.max(1, s.workers)).fill(-1)]
 
   // Order positions of the current schedule; a move only changes heads from the first position whose in-arcs it touches.
-  const pos = new Int32Array(n), topoCur = new Int32Array(n), prefMax = new Int32Array(n + 1)
+  const pos = new Int32Array(n),
+    topoCur = new Int32Array(n),
+    prefMax = new Int32Array(n + 1)
   let touched = n
-  const touch = (x: number): void => { if (x >= 0 && pos[x]! < touched) touched = pos[x]! }
+  const touch = (x: number): void => {
+    if (x >= 0 && pos[x]! < touched) touched = pos[x]!
+  }
   const unlink = (t: number, x: number): void => {
     const k = res[t]![x]!
     if (k < 0) return
-    const a = pred[t]![x]!, b = succ[t]![x]!
-    touch(x); touch(b)
-    if (a >= 0) succ[t]![a] = b; else head[t]![k] = b
+    const a = pred[t]![x]!,
+      b = succ[t]![x]!
+    touch(x)
+    touch(b)
+    if (a >= 0) succ[t]![a] = b
+    else head[t]![k] = b
     if (b >= 0) pred[t]![b] = a
-    pred[t]![x] = -1; succ[t]![x] = -1
+    pred[t]![x] = -1
+    succ[t]![x] = -1
   }
   const linkAfter = (t: number, x: number, k: number, a: number): void => {
     res[t]![x] = k
     if (k < 0) return
     const b = a >= 0 ? succ[t]![a]! : head[t]![k]!
-    touch(x); touch(b)
-    pred[t]![x] = a; succ[t]![x] = b
-    if (a >= 0) succ[t]![a] = x; else head[t]![k] = x
+    touch(x)
+    touch(b)
+    pred[t]![x] = a
+    succ[t]![x] = b
+    if (a >= 0) succ[t]![a] = x
+    else head[t]![k] = x
     if (b >= 0) pred[t]![b] = x
   }
   // Undo log of relocations: type, op, old resource, old predecessor, old option.
@@ -217,49 +258,88 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   }
   const rollback = (mark: number): void => {
     while (undo.length > mark) {
-      const o = undo.pop()!, a = undo.pop()!, k = undo.pop()!, x = undo.pop()!, t = undo.pop()!
+      const o = undo.pop()!,
+        a = undo.pop()!,
+        k = undo.pop()!,
+        x = undo.pop()!,
+        t = undo.pop()!
       unlink(t, x)
       linkAfter(t, x, k, a)
-      opt[x] = o; p[x] = optDur[o]!
+      opt[x] = o
+      p[x] = optDur[o]!
     }
   }
 
   // Longest paths (heads) by Kahn's order into r; returns the objective or Infinity on a cycle.
-  const indeg = new Int32Array(n), topo = new Int32Array(n)
-  const rCur = new Int32Array(n), rTmp = new Int32Array(n)
+  const indeg = new Int32Array(n),
+    topo = new Int32Array(n)
+  const rCur = new Int32Array(n),
+    rTmp = new Int32Array(n)
   // Ends, and the moment each step was ready (before its calendar let it start), beside the heads.
-  const eCur = new Int32Array(n), eTmp = new Int32Array(n), yCur = new Int32Array(n), yTmp = new Int32Array(n)
+  const eCur = new Int32Array(n),
+    eTmp = new Int32Array(n),
+    yCur = new Int32Array(n),
+    yTmp = new Int32Array(n)
   const endsOf = (r: Int32Array): Int32Array => (r === rCur ? eCur : eTmp)
   const readyOf = (r: Int32Array): Int32Array => (r === rCur ? yCur : yTmp)
   const comp = new Float64Array(jobs)
   let evaluations = 0
-  let lastMakespan = 0, lastTwt = 0
+  let lastMakespan = 0,
+    lastTwt = 0
   /** Operations the last propagate() placed (fewer than its part of the order means a cycle). */
   let passed = 0
   /** Kahn's order from the qt ready operations in topo (indegrees set): heads into r; returns the latest end, from `cmax` up. */
   const propagate = (r: Int32Array, qt: number, cmax: number): number => {
-    const pm = pred[M]!, pw = pred[W]!, sm = succ[M]!, sw = succ[W]!
-    const en = endsOf(r), y = readyOf(r)
+    const pm = pred[M]!,
+      pw = pred[W]!,
+      sm = succ[M]!,
+      sw = succ[W]!
+    const en = endsOf(r),
+      y = readyOf(r)
     let qh = 0
     while (qh < qt) {
       const x = topo[qh++]!
       let rx = release[x]!
-      const a = jobPred[x]!, b = pm[x]!, c = pw[x]!
-      if (a >= 0) { const e = en[a]! + lag[a]!; if (e > rx) rx = e }
-      if (b >= 0) { const e = en[b]!; if (e > rx) rx = e }
-      if (c >= 0) { const e = en[c]!; if (e > rx) rx = e }
-      for (let q = xps[x]!; q < xps[x + 1]!; q++) { const z = xp[q]!; const e = en[z]! + lag[z]!; if (e > rx) rx = e }
+      const a = jobPred[x]!,
+        b = pm[x]!,
+        c = pw[x]!
+      if (a >= 0) {
+        const e = en[a]! + lag[a]!
+        if (e > rx) rx = e
+      }
+      if (b >= 0) {
+        const e = en[b]!
+        if (e > rx) rx = e
+      }
+      if (c >= 0) {
+        const e = en[c]!
+        if (e > rx) rx = e
+      }
+      for (let q = xps[x]!; q < xps[x + 1]!; q++) {
+        const z = xp[q]!
+        const e = en[z]! + lag[z]!
+        if (e > rx) rx = e
+      }
       y[x] = rx
       let ex: number
-      if (cal) { const o = opt[x]!; rx = startAt(o, rx); ex = endAt(o, rx) } else ex = rx + p[x]!
+      if (cal) {
+        const o = opt[x]!
+        rx = startAt(o, rx)
+        ex = endAt(o, rx)
+      } else ex = rx + p[x]!
       r[x] = rx
       en[x] = ex
       if (ex > cmax) cmax = ex
-      const js = jobSucc[x]!, ms = sm[x]!, ws = sw[x]!
+      const js = jobSucc[x]!,
+        ms = sm[x]!,
+        ws = sw[x]!
       if (js >= 0 && --indeg[js]! === 0) topo[qt++] = js
       if (ms >= 0 && --indeg[ms]! === 0) topo[qt++] = ms
       if (ws >= 0 && --indeg[ws]! === 0) topo[qt++] = ws
-      for (let q = xss[x]!; q < xss[x + 1]!; q++) { const z = xs[q]!; if (--indeg[z]! === 0) topo[qt++] = z }
+      for (let q = xss[x]!; q < xss[x + 1]!; q++) {
+        const z = xs[q]!
+        if (--indeg[z]! === 0) topo[qt++] = z
+      }
     }
     passed = qt
     return cmax
@@ -277,13 +357,19 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     if (r === rCur) {
       topoCur.set(topo)
       let mx = 0
-      for (let k = 0; k < n; k++) { const x = topo[k]!; pos[x] = k; prefMax[k] = mx; if (eCur[x]! > mx) mx = eCur[x]! }
+      for (let k = 0; k < n; k++) {
+        const x = topo[k]!
+        pos[x] = k
+        prefMax[k] = mx
+        if (eCur[x]! > mx) mx = eCur[x]!
+      }
       prefMax[n] = mx
     }
     return finish(r, cmax)
   }
   const finish = (r: Int32Array, cmax: number): number => {
-    let twt = 0, sum = 0
+    let twt = 0,
+      sum = 0
     const en = endsOf(r)
     for (let j = 0; j < jobs; j++) {
       const l = lastOf[j]!
@@ -292,7 +378,8 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       sum += c
       if (c > due[j]!) twt += weight[j]! * (c - due[j]!)
     }
-    lastMakespan = cmax; lastTwt = twt
+    lastMakespan = cmax
+    lastTwt = twt
     // Makespan breaks ties between equal weighted tardiness, so plateaus still lead somewhere.
     if (twtMode) return twt + cmax * 1e-7
     // The jobs' total completion time breaks ties between equal makespans, so the walk across a plateau still goes somewhere.
@@ -302,14 +389,24 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   /** Heads after a move, into rTmp: positions before the first touched one keep the current heads; the rest by Kahn's order. */
   const evaluateMove = (): number => {
     const from = touched
-    if (from >= n) { rTmp.set(rCur); eTmp.set(eCur); yTmp.set(yCur); return finish(rTmp, prefMax[n]!) }
+    if (from >= n) {
+      rTmp.set(rCur)
+      eTmp.set(eCur)
+      yTmp.set(yCur)
+      return finish(rTmp, prefMax[n]!)
+    }
     evaluations++
-    rTmp.set(rCur); eTmp.set(eCur); yTmp.set(yCur)
-    const pm = pred[M]!, pw = pred[W]!
+    rTmp.set(rCur)
+    eTmp.set(eCur)
+    yTmp.set(yCur)
+    const pm = pred[M]!,
+      pw = pred[W]!
     let qt = 0
     for (let k = from; k < n; k++) {
       const x = topoCur[k]!
-      const a = jobPred[x]!, b = pm[x]!, c = pw[x]!
+      const a = jobPred[x]!,
+        b = pm[x]!,
+        c = pw[x]!
       let d = (a >= 0 && pos[a]! >= from ? 1 : 0) + (b >= 0 && pos[b]! >= from ? 1 : 0) + (c >= 0 && pos[c]! >= from ? 1 : 0)
       for (let q = xps[x]!; q < xps[x + 1]!; q++) if (pos[xp[q]!]! >= from) d++
       indeg[x] = d
@@ -322,36 +419,67 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
 
   // ---------- first schedule: the best of a few dispatching rules ----------
   const minDur = new Float64Array(n)
-  for (let i = 0; i < n; i++) { let d = Infinity; for (let o = optStart[i]!; o < optStart[i + 1]!; o++) d = Math.min(d, optDur[o]!); minDur[i] = d }
+  for (let i = 0; i < n; i++) {
+    let d = Infinity
+    for (let o = optStart[i]!; o < optStart[i + 1]!; o++) d = Math.min(d, optDur[o]!)
+    minDur[i] = d
+  }
   const remaining = new Float64Array(n)
-  for (let j = 0; j < jobs; j++) { let acc = 0; for (let x = lastOf[j]!; x >= 0; x = jobPred[x]!) { acc += minDur[x]!; remaining[x] = acc } }
+  for (let j = 0; j < jobs; j++) {
+    let acc = 0
+    for (let x = lastOf[j]!; x >= 0; x = jobPred[x]!) {
+      acc += minDur[x]!
+      remaining[x] = acc
+    }
+  }
   const build = (rule: number): void => {
     undo.length = 0
-    for (const t of [M, W]) { pred[t]!.fill(-1); succ[t]!.fill(-1); head[t]!.fill(-1); res[t]!.fill(-1) }
+    for (const t of [M, W]) {
+      pred[t]!.fill(-1)
+      succ[t]!.fill(-1)
+      head[t]!.fill(-1)
+      res[t]!.fill(-1)
+    }
     const ready = new Float64Array(n)
-    const mReady = new Float64Array(s.machines), wReady = new Float64Array(Math.max(1, s.workers))
-    const mLast = new Int32Array(s.machines).fill(-1), wLast = new Int32Array(Math.max(1, s.workers)).fill(-1)
+    const mReady = new Float64Array(s.machines),
+      wReady = new Float64Array(Math.max(1, s.workers))
+    const mLast = new Int32Array(s.machines).fill(-1),
+      wLast = new Int32Array(Math.max(1, s.workers)).fill(-1)
     const heads: number[] = []
     for (let i = 0; i < n; i++) if (jobPred[i]! < 0) heads.push(i)
-    const bestOpt = new Int32Array(n), bestEst = new Float64Array(n), bestFin = new Float64Array(n)
+    const bestOpt = new Int32Array(n),
+      bestEst = new Float64Array(n),
+      bestFin = new Float64Array(n)
     for (let left = n; left > 0; left--) {
       let fStar = Infinity
       for (const x of heads) {
         if (x < 0) continue
         const e0 = Math.max(ready[x]!, release[x]!)
-        let bf = Infinity, bo = -1, be = 0
+        let bf = Infinity,
+          bo = -1,
+          be = 0
         for (let o = optStart[x]!; o < optStart[x + 1]!; o++) {
           const w = optWorker[o]!
           let e = Math.max(e0, mReady[optMachine[o]!]!, w >= 0 ? wReady[w]! : 0)
           let f: number
-          if (cal) { e = startAt(o, e); f = endAt(o, e) } else f = e + optDur[o]!
-          if (f < bf) { bf = f; bo = o; be = e }
+          if (cal) {
+            e = startAt(o, e)
+            f = endAt(o, e)
+          } else f = e + optDur[o]!
+          if (f < bf) {
+            bf = f
+            bo = o
+            be = e
+          }
         }
-        bestOpt[x] = bo; bestEst[x] = be; bestFin[x] = bf
+        bestOpt[x] = bo
+        bestEst[x] = be
+        bestFin[x] = bf
         if (bf < fStar) fStar = bf
       }
       // Among the operations that could start before the earliest finish, take the one the rule ranks first.
-      let pick = -1, pickKey = Infinity
+      let pick = -1,
+        pickKey = Infinity
       for (let h = 0; h < heads.length; h++) {
         const x = heads[h]!
         if (x < 0 || bestEst[x]! >= fStar) continue
@@ -359,19 +487,33 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
         const slack = (Number.isFinite(due[j]!) ? due[j]! : 1e12) - bestEst[x]! - remaining[x]!
         let key: number
         if (!twtMode) key = rule === 0 ? -remaining[x]! : rule === 1 ? bestFin[x]! - remaining[x]! * 1e-3 : bestEst[x]! + rng.next()
-        else if (rule === 0) key = slack > 0 ? slack / weight[j]! : slack * weight[j]! // weighted slack
-        else if (rule === 1) key = Math.max(due[j]!, bestEst[x]! + remaining[x]!) // modified due date
-        else if (rule === 2) key = -weight[j]! / minDur[x]! * Math.exp(-Math.max(0, slack) / (2 * Math.max(1, minDur[x]!))) // apparent tardiness cost
+        else if (rule === 0)
+          key = slack > 0 ? slack / weight[j]! : slack * weight[j]! // weighted slack
+        else if (rule === 1)
+          key = Math.max(due[j]!, bestEst[x]! + remaining[x]!) // modified due date
+        else if (rule === 2)
+          key = (-weight[j]! / minDur[x]!) * Math.exp(-Math.max(0, slack) / (2 * Math.max(1, minDur[x]!))) // apparent tardiness cost
         else if (rule === 3) key = due[j]! + rng.next() * 20
         else key = (slack > 0 ? slack / weight[j]! : slack * weight[j]!) + (rng.next() - 0.5) * 2 * Math.max(10, Math.abs(slack)) // weighted slack, shaken
-        if (key < pickKey) { pickKey = key; pick = h }
+        if (key < pickKey) {
+          pickKey = key
+          pick = h
+        }
       }
       const x = heads[pick]!
       const o = bestOpt[x]!
-      const k = optMachine[o]!, w = optWorker[o]!
-      opt[x] = o; p[x] = optDur[o]!
-      linkAfter(M, x, k, mLast[k]!); mLast[k] = x; mReady[k] = bestFin[x]!
-      if (w >= 0) { linkAfter(W, x, w, wLast[w]!); wLast[w] = x; wReady[w] = bestFin[x]! } else res[W]![x] = -1
+      const k = optMachine[o]!,
+        w = optWorker[o]!
+      opt[x] = o
+      p[x] = optDur[o]!
+      linkAfter(M, x, k, mLast[k]!)
+      mLast[k] = x
+      mReady[k] = bestFin[x]!
+      if (w >= 0) {
+        linkAfter(W, x, w, wLast[w]!)
+        wLast[w] = x
+        wReady[w] = bestFin[x]!
+      } else res[W]![x] = -1
       const js = jobSucc[x]!
       if (js >= 0) ready[js] = bestFin[x]! + lag[x]!
       heads[pick] = js
@@ -382,7 +524,11 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     into.opt.set(opt)
     for (const t of [M, W]) {
       into.order[t] = []
-      for (let k = 0; k < head[t]!.length; k++) { const seq: number[] = []; for (let x = head[t]![k]!; x >= 0; x = succ[t]![x]!) seq.push(x); into.order[t]!.push(seq) }
+      for (let k = 0; k < head[t]!.length; k++) {
+        const seq: number[] = []
+        for (let x = head[t]![k]!; x >= 0; x = succ[t]![x]!) seq.push(x)
+        into.order[t]!.push(seq)
+      }
     }
   }
   const restore = (from: Saved): void => {
@@ -390,8 +536,17 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     opt.set(from.opt)
     for (let i = 0; i < n; i++) p[i] = optDur[opt[i]!]!
     for (const t of [M, W]) {
-      pred[t]!.fill(-1); succ[t]!.fill(-1); head[t]!.fill(-1); res[t]!.fill(-1)
-      from.order[t]!.forEach((seq, k) => { let last = -1; for (const x of seq) { linkAfter(t, x, k, last); last = x } })
+      pred[t]!.fill(-1)
+      succ[t]!.fill(-1)
+      head[t]!.fill(-1)
+      res[t]!.fill(-1)
+      from.order[t]!.forEach((seq, k) => {
+        let last = -1
+        for (const x of seq) {
+          linkAfter(t, x, k, last)
+          last = x
+        }
+      })
     }
   }
   const best = { opt: new Int32Array(n), order: [[], []] as number[][][] }
@@ -400,50 +555,94 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const init = inits[0]
   for (const init of inits) {
     undo.length = 0
-    for (const t of [M, W]) { pred[t]!.fill(-1); succ[t]!.fill(-1); head[t]!.fill(-1); res[t]!.fill(-1) }
+    for (const t of [M, W]) {
+      pred[t]!.fill(-1)
+      succ[t]!.fill(-1)
+      head[t]!.fill(-1)
+      res[t]!.fill(-1)
+    }
     const byStart = Array.from({ length: n }, (_, i) => i).sort((a, b) => init.start[a]! - init.start[b]! || a - b)
-    const mLast = new Int32Array(s.machines).fill(-1), wLast = new Int32Array(Math.max(1, s.workers)).fill(-1)
+    const mLast = new Int32Array(s.machines).fill(-1),
+      wLast = new Int32Array(Math.max(1, s.workers)).fill(-1)
     for (const x of byStart) {
       const o = init.option[x]!
-      opt[x] = o; p[x] = optDur[o]!
-      const k = optMachine[o]!, w = optWorker[o]!
-      linkAfter(M, x, k, mLast[k]!); mLast[k] = x
-      if (w >= 0) { linkAfter(W, x, w, wLast[w]!); wLast[w] = x } else res[W]![x] = -1
+      opt[x] = o
+      p[x] = optDur[o]!
+      const k = optMachine[o]!,
+        w = optWorker[o]!
+      linkAfter(M, x, k, mLast[k]!)
+      mLast[k] = x
+      if (w >= 0) {
+        linkAfter(W, x, w, wLast[w]!)
+        wLast[w] = x
+      } else res[W]![x] = -1
     }
     const v = evaluate(rCur)
-    if (v < bestVal) { bestVal = v; snapshot(best) }
+    if (v < bestVal) {
+      bestVal = v
+      snapshot(best)
+    }
   }
-  if (!init || !(settings.initialOnly || hasExtra)) for (let rule = 0; rule < (twtMode ? 4 : 3); rule++) {
-    build(rule)
-    const v = evaluate(rCur)
-    if (v < bestVal) { bestVal = v; snapshot(best) }
-  }
+  if (!init || !(settings.initialOnly || hasExtra))
+    for (let rule = 0; rule < (twtMode ? 4 : 3); rule++) {
+      build(rule)
+      const v = evaluate(rCur)
+      if (v < bestVal) {
+        bestVal = v
+        snapshot(best)
+      }
+    }
   if (!Number.isFinite(bestVal)) {
     // No schedule to start from (an initial order with a cycle and no rule to build one): give the initial back untouched.
-    const start = new Int32Array(n), end = new Int32Array(n)
-    if (init) for (let i = 0; i < n; i++) { start[i] = Math.round(init.start[i]!); end[i] = start[i]! }
-    return { option: init ? new Int32Array(init.option) : new Int32Array(optStart.subarray(0, n)), start, end, weightedTardiness: Infinity, makespan: Infinity, iterations: 0, evaluations, firstMs: settings.clock() - t0 }
+    const start = new Int32Array(n),
+      end = new Int32Array(n)
+    if (init)
+      for (let i = 0; i < n; i++) {
+        start[i] = Math.round(init.start[i]!)
+        end[i] = start[i]!
+      }
+    return {
+      option: init ? new Int32Array(init.option) : new Int32Array(optStart.subarray(0, n)),
+      start,
+      end,
+      weightedTardiness: Infinity,
+      makespan: Infinity,
+      iterations: 0,
+      evaluations,
+      firstMs: settings.clock() - t0,
+    }
   }
   restore(best)
   let cur = evaluate(rCur)
-  let bestTwt = lastTwt, bestCmax = lastMakespan
+  let bestTwt = lastTwt,
+    bestCmax = lastMakespan
   const firstMs = settings.clock() - t0
   settings.onImprove?.(twtMode ? lastTwt : lastMakespan, 0)
   // Progress is reported when the objective itself improves, not its tie-breaker.
   let reported = twtMode ? lastTwt : lastMakespan
-  const report = (): void => { const v = twtMode ? lastTwt : lastMakespan; if (v < reported) { reported = v; settings.onImprove?.(v, iter) } }
+  const report = (): void => {
+    const v = twtMode ? lastTwt : lastMakespan
+    if (v < reported) {
+      reported = v
+      settings.onImprove?.(v, iter)
+    }
+  }
   const lowerBound = twtMode ? 0 : pairLowerBound(s)
 
   // ---------- tabu search ----------
   const bigTabu = n <= 3000
   const tabuBefore = bigTabu ? new Int32Array(n * n) : null
   const tabuMap = bigTabu ? null : new Map<number, number>()
-  const getTabu = (a: number, b: number): number => (tabuBefore ? tabuBefore[a * n + b]! : tabuMap!.get(a * n + b) ?? 0)
-  const setTabu = (a: number, b: number, v: number): void => { if (tabuBefore) tabuBefore[a * n + b] = v; else tabuMap!.set(a * n + b, v) }
+  const getTabu = (a: number, b: number): number => (tabuBefore ? tabuBefore[a * n + b]! : (tabuMap!.get(a * n + b) ?? 0))
+  const setTabu = (a: number, b: number, v: number): void => {
+    if (tabuBefore) tabuBefore[a * n + b] = v
+    else tabuMap!.set(a * n + b, v)
+  }
   const tabuOpt = new Int32Array(optDur.length)
   const baseTenure = 8 + Math.floor(Math.sqrt(n) / 2)
   const tenure = (): number => baseTenure + rng.int(baseTenure + 1)
-  let iter = 0, lastImprove = 0
+  let iter = 0,
+    lastImprove = 0
   const maxIter = settings.maxIterations ?? Infinity
   const maxStall = Math.max(300, 4 * n)
   const path: number[] = []
@@ -451,35 +650,67 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
 
   /** A critical path ending at op `end`: tight arcs traced back, ties at random. */
   const tracePath = (end: number): void => {
-    path.length = 0; arcType.length = 0
-    const back: number[] = [], types: number[] = []
+    path.length = 0
+    arcType.length = 0
+    const back: number[] = [],
+      types: number[] = []
     for (let x = end; x >= 0;) {
       back.push(x)
-      const a = jobPred[x]!, b = pred[M]![x]!, c = pred[W]![x]!
-      const cand: number[] = [], ct: number[] = []
+      const a = jobPred[x]!,
+        b = pred[M]![x]!,
+        c = pred[W]![x]!
+      const cand: number[] = [],
+        ct: number[] = []
       const y = yCur[x]!
-      if (b >= 0 && eCur[b]! === y) { cand.push(b); ct.push(M) }
-      if (c >= 0 && eCur[c]! === y) { cand.push(c); ct.push(W) }
-      if (a >= 0 && eCur[a]! + lag[a]! === y) { cand.push(a); ct.push(-1) }
-      for (let q = xps[x]!; q < xps[x + 1]!; q++) { const z = xp[q]!; if (eCur[z]! + lag[z]! === y) { cand.push(z); ct.push(-1) } }
-      if (cand.length === 0) { types.push(-2); break }
+      if (b >= 0 && eCur[b]! === y) {
+        cand.push(b)
+        ct.push(M)
+      }
+      if (c >= 0 && eCur[c]! === y) {
+        cand.push(c)
+        ct.push(W)
+      }
+      if (a >= 0 && eCur[a]! + lag[a]! === y) {
+        cand.push(a)
+        ct.push(-1)
+      }
+      for (let q = xps[x]!; q < xps[x + 1]!; q++) {
+        const z = xp[q]!
+        if (eCur[z]! + lag[z]! === y) {
+          cand.push(z)
+          ct.push(-1)
+        }
+      }
+      if (cand.length === 0) {
+        types.push(-2)
+        break
+      }
       const k = rng.int(cand.length)
       types.push(ct[k]!)
       x = cand[k]!
     }
     // types[i] is the arc into back[i]; arcType[k] is the arc path[k-1] -> path[k].
-    for (let k = 0; k < back.length; k++) { path.push(back[back.length - 1 - k]!); arcType.push(k === 0 ? -2 : types[back.length - 1 - k]!) }
+    for (let k = 0; k < back.length; k++) {
+      path.push(back[back.length - 1 - k]!)
+      arcType.push(k === 0 ? -2 : types[back.length - 1 - k]!)
+    }
   }
 
   // Candidate moves: kind 0 = swap u before... (u, v adjacent on resource t: v goes before u); kind 1 = u after v (insertion);
   // kind 2 = v before u (insertion); kind 3 = op u to option v.
-  const cKind: number[] = [], cT: number[] = [], cU: number[] = [], cV: number[] = []
+  const cKind: number[] = [],
+    cT: number[] = [],
+    cU: number[] = [],
+    cV: number[] = []
   const seen = new Set<number>()
   const addMove = (kind: number, t: number, u: number, v: number): void => {
     const key = ((kind * 2 + Math.max(0, t)) * n + u) * (optDur.length + n) + v
     if (seen.has(key)) return
     seen.add(key)
-    cKind.push(kind); cT.push(t); cU.push(u); cV.push(v)
+    cKind.push(kind)
+    cT.push(t)
+    cU.push(u)
+    cV.push(v)
   }
   /** Applies a move; returns false when it cannot be made. */
   const apply = (kind: number, t: number, u: number, v: number): boolean => {
@@ -492,51 +723,96 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
         else {
           // Only reorder when u is before v there; then v goes right before u.
           let before = false
-          for (let x = succ[o]![u]!; x >= 0; x = succ[o]![x]!) if (x === v) { before = true; break }
+          for (let x = succ[o]![u]!; x >= 0; x = succ[o]![x]!)
+            if (x === v) {
+              before = true
+              break
+            }
           if (before) relocate(o, v, res[o]![v]!, pred[o]![u]!)
         }
       }
       return true
     }
-    if (kind === 1) { relocate(t, u, res[t]![u]!, v); return true }
-    if (kind === 2) { relocate(t, v, res[t]![v]!, pred[t]![u]!); return true }
+    if (kind === 1) {
+      relocate(t, u, res[t]![u]!, v)
+      return true
+    }
+    if (kind === 2) {
+      relocate(t, v, res[t]![v]!, pred[t]![u]!)
+      return true
+    }
     // Reassignment: op u takes option v, placed on the new machine and worker by its current start.
     const o = v
-    const k = optMachine[o]!, w = optWorker[o]!
+    const k = optMachine[o]!,
+      w = optWorker[o]!
     const placeAfter = (tt: number, kk: number): number => {
       let a = -1
-      for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) { if (x === u) continue; if (rCur[x]! < rCur[u]! || (rCur[x]! === rCur[u]! && x < u)) a = x; else break }
+      for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) {
+        if (x === u) continue
+        if (rCur[x]! < rCur[u]! || (rCur[x]! === rCur[u]! && x < u)) a = x
+        else break
+      }
       return a
     }
     const oldOpt = opt[u]!
     undo.push(M, u, res[M]![u]!, pred[M]![u]!, oldOpt)
     unlink(M, u)
-    opt[u] = o; p[u] = optDur[o]!
+    opt[u] = o
+    p[u] = optDur[o]!
     linkAfter(M, u, k, placeAfter(M, k))
     undo.push(W, u, res[W]![u]!, pred[W]![u]!, oldOpt)
     unlink(W, u)
-    if (w >= 0) linkAfter(W, u, w, placeAfter(W, w)); else res[W]![u] = -1
+    if (w >= 0) linkAfter(W, u, w, placeAfter(W, w))
+    else res[W]![u] = -1
     return true
   }
   /** Would the move recreate an order the tabu list forbids? */
   const isTabu = (kind: number, t: number, u: number, v: number): boolean => {
     if (kind === 0) return getTabu(v, u) > iter
-    if (kind === 1) { for (let x = succ[t]![u]!; x >= 0; x = succ[t]![x]!) { if (getTabu(x, u) > iter) return true; if (x === v) break } return false }
-    if (kind === 2) { for (let x = pred[t]![v]!; x >= 0; x = pred[t]![x]!) { if (getTabu(v, x) > iter) return true; if (x === u) break } return false }
+    if (kind === 1) {
+      for (let x = succ[t]![u]!; x >= 0; x = succ[t]![x]!) {
+        if (getTabu(x, u) > iter) return true
+        if (x === v) break
+      }
+      return false
+    }
+    if (kind === 2) {
+      for (let x = pred[t]![v]!; x >= 0; x = pred[t]![x]!) {
+        if (getTabu(v, x) > iter) return true
+        if (x === u) break
+      }
+      return false
+    }
     return tabuOpt[v]! > iter
   }
   // Tails of the current schedule (longest path after each step, excluding it), from the order of its last evaluation.
   const qCur = new Int32Array(n)
   const computeTails = (): void => {
-    const sm = succ[M]!, sw = succ[W]!
+    const sm = succ[M]!,
+      sw = succ[W]!
     for (let k = n - 1; k >= 0; k--) {
       const x = topoCur[k]!
       let qx = 0
-      const a = jobSucc[x]!, b = sm[x]!, c = sw[x]!
-      if (a >= 0) { const e = lag[x]! + eCur[a]! - rCur[a]! + qCur[a]!; if (e > qx) qx = e }
-      if (b >= 0) { const e = eCur[b]! - rCur[b]! + qCur[b]!; if (e > qx) qx = e }
-      if (c >= 0) { const e = eCur[c]! - rCur[c]! + qCur[c]!; if (e > qx) qx = e }
-      for (let q = xss[x]!; q < xss[x + 1]!; q++) { const z = xs[q]!; const e = lag[x]! + eCur[z]! - rCur[z]! + qCur[z]!; if (e > qx) qx = e }
+      const a = jobSucc[x]!,
+        b = sm[x]!,
+        c = sw[x]!
+      if (a >= 0) {
+        const e = lag[x]! + eCur[a]! - rCur[a]! + qCur[a]!
+        if (e > qx) qx = e
+      }
+      if (b >= 0) {
+        const e = eCur[b]! - rCur[b]! + qCur[b]!
+        if (e > qx) qx = e
+      }
+      if (c >= 0) {
+        const e = eCur[c]! - rCur[c]! + qCur[c]!
+        if (e > qx) qx = e
+      }
+      for (let q = xss[x]!; q < xss[x + 1]!; q++) {
+        const z = xs[q]!
+        const e = lag[x]! + eCur[z]! - rCur[z]! + qCur[z]!
+        if (e > qx) qx = e
+      }
       qCur[x] = qx
     }
   }
@@ -544,22 +820,43 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const estimateOf: number[] = []
   /** Longest path through step u once it takes option o at the place the move would give it. */
   const reassignEstimate = (u: number, o: number): number => {
-    const k = optMachine[o]!, w = optWorker[o]!
-    const jp = jobPred[u]!, js = jobSucc[u]!
+    const k = optMachine[o]!,
+      w = optWorker[o]!
+    const jp = jobPred[u]!,
+      js = jobSucc[u]!
     let h = Math.max(release[u]!, jp >= 0 ? eCur[jp]! + lag[jp]! : 0)
     let t = js >= 0 ? lag[u]! + eCur[js]! - rCur[js]! + qCur[js]! : 0
-    for (let q = xps[u]!; q < xps[u + 1]!; q++) { const z = xp[q]!; h = Math.max(h, eCur[z]! + lag[z]!) }
-    for (let q = xss[u]!; q < xss[u + 1]!; q++) { const z = xs[q]!; t = Math.max(t, lag[u]! + eCur[z]! - rCur[z]! + qCur[z]!) }
+    for (let q = xps[u]!; q < xps[u + 1]!; q++) {
+      const z = xp[q]!
+      h = Math.max(h, eCur[z]! + lag[z]!)
+    }
+    for (let q = xss[u]!; q < xss[u + 1]!; q++) {
+      const z = xs[q]!
+      t = Math.max(t, lag[u]! + eCur[z]! - rCur[z]! + qCur[z]!)
+    }
     const around = (tt: number, kk: number): void => {
-      let a = -1, b = head[tt]![kk]!
-      for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) { if (x === u) { b = succ[tt]![x]!; continue } if (rCur[x]! < rCur[u]! || (rCur[x]! === rCur[u]! && x < u)) { a = x; b = succ[tt]![x]! } else break }
+      let a = -1,
+        b = head[tt]![kk]!
+      for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) {
+        if (x === u) {
+          b = succ[tt]![x]!
+          continue
+        }
+        if (rCur[x]! < rCur[u]! || (rCur[x]! === rCur[u]! && x < u)) {
+          a = x
+          b = succ[tt]![x]!
+        } else break
+      }
       if (b === u) b = succ[tt]![u]!
       if (a >= 0) h = Math.max(h, eCur[a]!)
       if (b >= 0) t = Math.max(t, eCur[b]! - rCur[b]! + qCur[b]!)
     }
     around(M, k)
     if (w >= 0) around(W, w)
-    if (cal) { const st = startAt(o, h); return endAt(o, st) + t }
+    if (cal) {
+      const st = startAt(o, h)
+      return endAt(o, st) + t
+    }
     return h + optDur[o]! + t
   }
 
@@ -567,18 +864,31 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const remember = (kind: number, t: number, u: number, v: number): void => {
     const ten = iter + tenure()
     if (kind === 0) setTabu(u, v, ten)
-    else if (kind === 1) { for (let x = succ[t]![u]!; x >= 0; x = succ[t]![x]!) { setTabu(u, x, ten); if (x === v) break } }
-    else if (kind === 2) { for (let x = pred[t]![v]!; x >= 0; x = pred[t]![x]!) { setTabu(x, v, ten); if (x === u) break } }
-    else tabuOpt[opt[u]!] = ten
+    else if (kind === 1) {
+      for (let x = succ[t]![u]!; x >= 0; x = succ[t]![x]!) {
+        setTabu(u, x, ten)
+        if (x === v) break
+      }
+    } else if (kind === 2) {
+      for (let x = pred[t]![v]!; x >= 0; x = pred[t]![x]!) {
+        setTabu(x, v, ten)
+        if (x === u) break
+      }
+    } else tabuOpt[opt[u]!] = ten
   }
 
   const stopNow = (): boolean => {
     if (iter >= maxIter) return true
-    if ((iter & 7) === 0) { if (settings.clock() >= settings.deadline) return true; if (settings.shouldStop?.()) return true }
+    if ((iter & 7) === 0) {
+      if (settings.clock() >= settings.deadline) return true
+      if (settings.shouldStop?.()) return true
+    }
     return false
   }
   const targets: number[] = []
-  let failedKicks = 0, kickBase = Infinity, episodeBest = cur
+  let failedKicks = 0,
+    kickBase = Infinity,
+    episodeBest = cur
   while ((twtMode ? bestTwt > 0 : bestCmax > lowerBound) && !stopNow()) {
     iter++
     computeTails()
@@ -590,17 +900,35 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       for (let pick = 0; pick < Math.min(TARGETS, tardy.length); pick++) {
         let tot = 0
         for (const j of tardy) tot += weight[j]! * (comp[j]! - due[j]!)
-        let r = rng.next() * tot, chosen = tardy.length - 1
-        for (let q = 0; q < tardy.length; q++) { r -= weight[tardy[q]!]! * (comp[tardy[q]!]! - due[tardy[q]!]!); if (r <= 0) { chosen = q; break } }
+        let r = rng.next() * tot,
+          chosen = tardy.length - 1
+        for (let q = 0; q < tardy.length; q++) {
+          r -= weight[tardy[q]!]! * (comp[tardy[q]!]! - due[tardy[q]!]!)
+          if (r <= 0) {
+            chosen = q
+            break
+          }
+        }
         targets.push(tardy[chosen]!)
         tardy.splice(chosen, 1)
       }
     }
     if (targets.length === 0) {
       let c = 0
-      for (let j = 0; j < jobs; j++) if (comp[j] === lastMakespan) { c++; if (rng.int(c) === 0) { targets.length = 0; targets.push(j) } }
+      for (let j = 0; j < jobs; j++)
+        if (comp[j] === lastMakespan) {
+          c++
+          if (rng.int(c) === 0) {
+            targets.length = 0
+            targets.push(j)
+          }
+        }
     }
-    cKind.length = 0; cT.length = 0; cU.length = 0; cV.length = 0; seen.clear()
+    cKind.length = 0
+    cT.length = 0
+    cU.length = 0
+    cV.length = 0
+    seen.clear()
     for (const j of targets) {
       tracePath(lastOf[j]!)
       // Blocks: runs of the path joined by arcs of one resource.
@@ -627,13 +955,20 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     // Reassignments are many: rank them by the longest path through the step afterwards and evaluate only the most promising.
     skip.length = 0
     const ranked: number[] = []
-    for (let c = 0; c < cKind.length; c++) if (cKind[c] === 3) { ranked.push(c); estimateOf[c] = reassignEstimate(cU[c]!, cV[c]!) }
+    for (let c = 0; c < cKind.length; c++)
+      if (cKind[c] === 3) {
+        ranked.push(c)
+        estimateOf[c] = reassignEstimate(cU[c]!, cV[c]!)
+      }
     if (ranked.length > REASSIGN_EVALUATED) {
       ranked.sort((a, b) => estimateOf[a]! - estimateOf[b]!)
       for (let q = REASSIGN_EVALUATED; q < ranked.length; q++) skip[ranked[q]!] = 1
     }
-    let bestMove = -1, bestMoveVal = Infinity, ties = 0
-    let fallback = -1, fallbackVal = Infinity
+    let bestMove = -1,
+      bestMoveVal = Infinity,
+      ties = 0
+    let fallback = -1,
+      fallbackVal = Infinity
     for (let c = 0; c < cKind.length; c++) {
       if (skip[c]) continue
       const mark = undo.length
@@ -644,25 +979,43 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       rollback(mark)
       if (!Number.isFinite(v)) continue
       if (!tabu || v < bestVal) {
-        if (v < bestMoveVal) { bestMoveVal = v; bestMove = c; ties = 1 } else if (v === bestMoveVal && rng.int(++ties) === 0) bestMove = c
-      } else if (v < fallbackVal) { fallbackVal = v; fallback = c }
+        if (v < bestMoveVal) {
+          bestMoveVal = v
+          bestMove = c
+          ties = 1
+        } else if (v === bestMoveVal && rng.int(++ties) === 0) bestMove = c
+      } else if (v < fallbackVal) {
+        fallbackVal = v
+        fallback = c
+      }
     }
     if (bestMove < 0) bestMove = fallback
-    if (bestMove < 0) { perturb(); continue }
-    const k = cKind[bestMove]!, t = cT[bestMove]!, u = cU[bestMove]!, v = cV[bestMove]!
+    if (bestMove < 0) {
+      perturb()
+      continue
+    }
+    const k = cKind[bestMove]!,
+      t = cT[bestMove]!,
+      u = cU[bestMove]!,
+      v = cV[bestMove]!
     remember(k, t, u, v)
     undo.length = 0
     apply(k, t, u, v)
     undo.length = 0
     cur = evaluate(rCur)
-    if (cur < episodeBest - 1e-12) { episodeBest = cur; lastImprove = iter }
+    if (cur < episodeBest - 1e-12) {
+      episodeBest = cur
+      lastImprove = iter
+    }
     if (cur < bestVal - 1e-12) {
-      bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best)
+      bestVal = cur
+      bestTwt = lastTwt
+      bestCmax = lastMakespan
+      snapshot(best)
       report()
       settings.onBest?.(opt, rCur)
     } else if (iter - lastImprove > maxStall) perturb()
   }
-
 
   /** Stagnation: back to the best, then a few random critical swaps. */
   function perturb(): void {
@@ -670,10 +1023,14 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     failedKicks = bestVal < kickBase ? 0 : failedKicks + 1
     kickBase = bestVal
     const from = rng.next()
-    if (from < RESTART_FRESH && !hasExtra) { build(4); undo.length = 0 }
-    else if (from < RESTART_FRESH + RESTART_BEST) restore(best)
+    if (from < RESTART_FRESH && !hasExtra) {
+      build(4)
+      undo.length = 0
+    } else if (from < RESTART_FRESH + RESTART_BEST) restore(best)
     cur = evaluate(rCur)
-    tabuBefore?.fill(0); tabuMap?.clear(); tabuOpt.fill(0)
+    tabuBefore?.fill(0)
+    tabuMap?.clear()
+    tabuOpt.fill(0)
     const kicks = 2 + rng.int(4) + Math.min(failedKicks, Math.max(4, n >> 3))
     for (let q = 0; q < kicks; q++) {
       const j = rng.int(jobs)
@@ -687,7 +1044,10 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
           if (o >= opt[x]!) o++
           const mark = undo.length
           apply(3, -1, x, o)
-          if (!Number.isFinite(evaluate(rCur))) { rollback(mark); evaluate(rCur) }
+          if (!Number.isFinite(evaluate(rCur))) {
+            rollback(mark)
+            evaluate(rCur)
+          }
           undo.length = 0
           continue
         }
@@ -698,17 +1058,36 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       const i = arcs[rng.int(arcs.length)]!
       const mark = undo.length
       apply(0, arcType[i]!, path[i - 1]!, path[i]!)
-      if (!Number.isFinite(evaluate(rCur))) { rollback(mark); evaluate(rCur) }
+      if (!Number.isFinite(evaluate(rCur))) {
+        rollback(mark)
+        evaluate(rCur)
+      }
       undo.length = 0
     }
     cur = evaluate(rCur)
     lastImprove = iter
     episodeBest = cur
-    if (cur < bestVal) { bestVal = cur; bestTwt = lastTwt; bestCmax = lastMakespan; snapshot(best); report(); settings.onBest?.(opt, rCur) }
+    if (cur < bestVal) {
+      bestVal = cur
+      bestTwt = lastTwt
+      bestCmax = lastMakespan
+      snapshot(best)
+      report()
+      settings.onBest?.(opt, rCur)
+    }
   }
 
   restore(best)
   evaluate(rCur)
   const end = new Int32Array(eCur)
-  return { option: new Int32Array(opt), start: new Int32Array(rCur), end, weightedTardiness: lastTwt, makespan: lastMakespan, iterations: iter, evaluations, firstMs }
+  return {
+    option: new Int32Array(opt),
+    start: new Int32Array(rCur),
+    end,
+    weightedTardiness: lastTwt,
+    makespan: lastMakespan,
+    iterations: iter,
+    evaluations,
+    firstMs,
+  }
 }

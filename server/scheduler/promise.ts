@@ -6,7 +6,10 @@ import { topologicalOrder } from './search.ts'
 import { solve } from './solve.ts'
 
 /** A job bag the customer is asking about, with its routing. */
-export interface ProspectiveJob { job: Job; operations: Operation[] }
+export interface ProspectiveJob {
+  job: Job
+  operations: Operation[]
+}
 
 export interface PromiseResult {
   /** Current work does not move; the new job uses the gaps. feasible is false when it cannot fit before the horizon. operations: every step as placed. */
@@ -32,15 +35,26 @@ export function promise(problem: Problem, currentPlan: Plan, prospective: Prospe
   const c = compile(fixedProblem)
   // Only the new job's operations are free; a topological order of them is the whole priority.
   const key = new Float64Array(c.n)
-  topologicalOrder(c).forEach((i, rank) => { key[i] = rank })
+  topologicalOrder(c).forEach((i, rank) => {
+    key[i] = rank
+  })
   const d = decode(c, key, new Int32Array(c.n).fill(-1))
   let completion = problem.now
   for (let i = 0; i < c.n; i++) if (newIds.has(c.ops[i]!.id)) completion = Math.max(completion, d.end[i]!)
-  const withPlanFixed = { completion, feasible: d.overflow < 0 || !newIds.has(c.ops[d.overflow]!.id), operations: toPlan(c, d, { iterations: 0, elapsedMs: 0, firstPlanMs: 0 }).operations }
+  const withPlanFixed = {
+    completion,
+    feasible: d.overflow < 0 || !newIds.has(c.ops[d.overflow]!.id),
+    operations: toPlan(c, d, { iterations: 0, elapsedMs: 0, firstPlanMs: 0 }).operations,
+  }
 
   const previous: NonNullable<Problem['previous']> = { ...(problem.previous ?? {}) }
   for (const p of currentPlan.operations) previous[p.operationId] = { benchId: p.benchId, personId: p.personId, start: p.start }
-  const replanProblem: Problem = { ...problem, previous, jobs: [...problem.jobs, prospective.job], operations: [...problem.operations, ...prospective.operations] }
+  const replanProblem: Problem = {
+    ...problem,
+    previous,
+    jobs: [...problem.jobs, prospective.job],
+    operations: [...problem.operations, ...prospective.operations],
+  }
   const plan = solve(replanProblem, options, hooks)
   const replanCompletion = plan.jobs.find((j) => j.jobId === prospective.job.id)?.completion ?? problem.now
   return { withPlanFixed, withReplan: { completion: replanCompletion, plan } }

@@ -6,7 +6,12 @@ import { SchedulingInputError, type Plan, type Problem, type SolveOptions, type 
 import type { WorkerReply } from './worker.ts'
 
 /** tsx's loader API as an absolute URL, so the worker finds it whatever the working directory. */
-const tsxApi = (): string => pathToFileURL(createRequire(import.meta.url).resolve('tsx/esm/api').replace(/\.cjs$/, '.mjs')).href
+const tsxApi = (): string =>
+  pathToFileURL(
+    createRequire(import.meta.url)
+      .resolve('tsx/esm/api')
+      .replace(/\.cjs$/, '.mjs'),
+  ).href
 
 /** How long an aborted solve may take to hand back its best plan before the worker is terminated. */
 const ABORT_GRACE_MS = 2000
@@ -17,10 +22,17 @@ const ABORT_GRACE_MS = 2000
  * An abort before the first plan exists also ends that way. Input errors reject with SchedulingInputError; a crash of the
  * worker rejects with its error.
  */
-export function runInWorker(problem: Problem, options: SolveOptions, opts: { onProgress?: (p: SolveProgress) => void; signal?: AbortSignal } = {}): Promise<Plan> {
+export function runInWorker(
+  problem: Problem,
+  options: SolveOptions,
+  opts: { onProgress?: (p: SolveProgress) => void; signal?: AbortSignal } = {},
+): Promise<Plan> {
   return new Promise<Plan>((resolvePlan, reject) => {
     const abortError = (): DOMException => new DOMException('The planning run was aborted', 'AbortError')
-    if (opts.signal?.aborted) { reject(abortError()); return }
+    if (opts.signal?.aborted) {
+      reject(abortError())
+      return
+    }
     const stop = new SharedArrayBuffer(4)
     const flag = new Int32Array(stop)
     const isTs = import.meta.url.endsWith('.ts')
@@ -28,7 +40,10 @@ export function runInWorker(problem: Problem, options: SolveOptions, opts: { onP
     // Under tsx or vitest the worker file is TypeScript. On Node 20 `execArgv: ['--import', 'tsx']` does not reach a worker's
     // entry module, so a tiny JavaScript bootstrap registers tsx's loader inside the worker and then imports the entry.
     const worker = isTs
-      ? new Worker(`import(${JSON.stringify(tsxApi())}).then((m) => { m.register(); return import(${JSON.stringify(entry.href)}) })`, { eval: true, workerData: { problem, options, stop } })
+      ? new Worker(`import(${JSON.stringify(tsxApi())}).then((m) => { m.register(); return import(${JSON.stringify(entry.href)}) })`, {
+          eval: true,
+          workerData: { problem, options, stop },
+        })
       : new Worker(entry, { workerData: { problem, options, stop } })
     let settled = false
     let grace: ReturnType<typeof setTimeout> | undefined
@@ -48,9 +63,19 @@ export function runInWorker(problem: Problem, options: SolveOptions, opts: { onP
     worker.on('message', (m: WorkerReply) => {
       if (m.type === 'progress') opts.onProgress?.({ iteration: m.iteration, best: m.best, elapsedMs: m.elapsedMs })
       else if (m.type === 'done') finish(() => resolvePlan(m.plan))
-      else finish(() => reject(m.name === 'SchedulingInputError'
-        ? new SchedulingInputError({ code: m.code as SchedulingInputErrorCode, message: m.message, ...(m.jobId ? { jobId: m.jobId } : {}), ...(m.operationId ? { operationId: m.operationId } : {}) })
-        : Object.assign(new Error(m.message), { name: m.name })))
+      else
+        finish(() =>
+          reject(
+            m.name === 'SchedulingInputError'
+              ? new SchedulingInputError({
+                  code: m.code as SchedulingInputErrorCode,
+                  message: m.message,
+                  ...(m.jobId ? { jobId: m.jobId } : {}),
+                  ...(m.operationId ? { operationId: m.operationId } : {}),
+                })
+              : Object.assign(new Error(m.message), { name: m.name }),
+          ),
+        )
     })
     worker.on('error', (e) => finish(() => reject(e)))
     worker.on('exit', (code) => finish(() => reject(new Error(`planning worker exited with code ${code} before answering`))))

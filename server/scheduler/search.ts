@@ -18,16 +18,22 @@ function sketchShop(c: Compiled): { shop: PairShop; real: Uint8Array } {
   const n = c.n
   const f = calendarFactor(c)
   const order = topologicalOrder(c)
-  const jobPred = new Int32Array(n).fill(-1), jobSucc = new Int32Array(n).fill(-1)
+  const jobPred = new Int32Array(n).fill(-1),
+    jobSucc = new Int32Array(n).fill(-1)
   const lastInJob = new Int32Array(c.jobs.length).fill(-1)
   for (const i of order) {
     const j = c.jobOf[i]!
     const p = lastInJob[j]!
-    if (p >= 0) { jobPred[i] = p; jobSucc[p] = i }
+    if (p >= 0) {
+      jobPred[i] = p
+      jobSucc[p] = i
+    }
     lastInJob[j] = i
   }
   const optStart = new Int32Array(n + 1)
-  const machine: number[] = [], worker: number[] = [], dur: number[] = []
+  const machine: number[] = [],
+    worker: number[] = [],
+    dur: number[] = []
   const real = new Uint8Array(n)
   let extra = c.benchCount
   for (let i = 0; i < n; i++) {
@@ -36,12 +42,17 @@ function sketchShop(c: Compiled): { shop: PairShop; real: Uint8Array } {
     const away = c.outsideDays[i]! > 0
     if (away || opts.length === 0 || opts.some((o) => o.bench < 0)) {
       const m = opts.find((o) => o.minutes > 0)
-      machine.push(extra++); worker.push(-1)
+      machine.push(extra++)
+      worker.push(-1)
       dur.push(Math.max(1, Math.round(away ? c.outsideDays[i]! * 1440 * 1.4 : (m?.minutes ?? 1) * f)))
       continue
     }
     real[i] = 1
-    for (const o of opts) { machine.push(o.bench); worker.push(o.person); dur.push(Math.max(1, Math.round(o.minutes * f + c.waitAfter[i]!))) }
+    for (const o of opts) {
+      machine.push(o.bench)
+      worker.push(o.person)
+      dur.push(Math.max(1, Math.round(o.minutes * f + c.waitAfter[i]!)))
+    }
   }
   optStart[n] = machine.length
   const now = c.problem.now
@@ -50,9 +61,20 @@ function sketchShop(c: Compiled): { shop: PairShop; real: Uint8Array } {
   return {
     real,
     shop: {
-      n, machines: extra, workers: c.personCount, jobs: c.jobs.length, jobOf: Int32Array.from(c.jobOf), jobPred, jobSucc,
-      optStart, optMachine: Int32Array.from(machine), optWorker: Int32Array.from(worker), optDur: Int32Array.from(dur), release,
-      due: Float64Array.from(c.jobs, (j) => (j.due === null ? Infinity : j.due - now)), weight: Float64Array.from(c.jobs, (j) => j.weight),
+      n,
+      machines: extra,
+      workers: c.personCount,
+      jobs: c.jobs.length,
+      jobOf: Int32Array.from(c.jobOf),
+      jobPred,
+      jobSucc,
+      optStart,
+      optMachine: Int32Array.from(machine),
+      optWorker: Int32Array.from(worker),
+      optDur: Int32Array.from(dur),
+      release,
+      due: Float64Array.from(c.jobs, (j) => (j.due === null ? Infinity : j.due - now)),
+      weight: Float64Array.from(c.jobs, (j) => j.weight),
     },
   }
 }
@@ -80,39 +102,67 @@ function subtract(list: Interval[], cuts: Interval[]): Interval[] {
  * workshop days, pinned and running work kept where it is (on a machine of its own). Each job bag's steps form one chain in
  * routing order (branches run one after the other here; the decoder lets them overlap again).
  */
-export function calendarShop(c: Compiled, first: Decoded, also: { option: Int32Array; order: Float64Array }[] = []): { shop: PairShop; real: Uint8Array; initial: { option: Int32Array; start: Float64Array }[] } {
-  const n = c.n, p = c.problem, now = p.now
+export function calendarShop(
+  c: Compiled,
+  first: Decoded,
+  also: { option: Int32Array; order: Float64Array }[] = [],
+): { shop: PairShop; real: Uint8Array; initial: { option: Int32Array; start: Float64Array }[] } {
+  const n = c.n,
+    p = c.problem,
+    now = p.now
   // Sequences in the first plan's order of ends (then starts, then routing order): work the decoder slipped into the gap of
   // an interrupted step goes before it, as it must where a step holds its bench and person until it ends. Every arc of the
   // graph then runs forward in this order, so the first plan is a schedule of the graph.
   const rank = new Float64Array(n)
-  topologicalOrder(c).forEach((i, k) => { rank[i] = k })
+  topologicalOrder(c).forEach((i, k) => {
+    rank[i] = k
+  })
   const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => first.end[a]! - first.end[b]! || first.start[a]! - first.start[b]! || rank[a]! - rank[b]!)
   const at = new Float64Array(n)
-  order.forEach((i, k) => { at[i] = k })
+  order.forEach((i, k) => {
+    at[i] = k
+  })
   // Routing arcs: one chain arc into and out of each step where free, the others (branches, joins) as extra arcs; a job's
   // other sinks lead to its last one, so that step's end is the job's completion.
-  const jobPred = new Int32Array(n).fill(-1), jobSucc = new Int32Array(n).fill(-1)
+  const jobPred = new Int32Array(n).fill(-1),
+    jobSucc = new Int32Array(n).fill(-1)
   const extraIn: number[][] = Array.from({ length: n }, () => [])
   const lastSink = new Int32Array(c.jobs.length).fill(-1)
   for (const i of order) {
     for (const q of c.preds[i]!) {
-      if (jobPred[i]! < 0 && jobSucc[q]! < 0) { jobPred[i] = q; jobSucc[q] = i } else extraIn[i]!.push(q)
+      if (jobPred[i]! < 0 && jobSucc[q]! < 0) {
+        jobPred[i] = q
+        jobSucc[q] = i
+      } else extraIn[i]!.push(q)
     }
     if (c.succs[i]!.length === 0) lastSink[c.jobOf[i]!] = i
   }
   for (let i = 0; i < n; i++) {
     const last = lastSink[c.jobOf[i]!]!
-    if (c.succs[i]!.length === 0 && i !== last) { if (jobPred[last]! < 0 && jobSucc[i]! < 0) { jobPred[last] = i; jobSucc[i] = last } else extraIn[last]!.push(i) }
+    if (c.succs[i]!.length === 0 && i !== last) {
+      if (jobPred[last]! < 0 && jobSucc[i]! < 0) {
+        jobPred[last] = i
+        jobSucc[i] = last
+      } else extraIn[last]!.push(i)
+    }
   }
-  const predStart = new Int32Array(n + 1), succStart = new Int32Array(n + 1)
+  const predStart = new Int32Array(n + 1),
+    succStart = new Int32Array(n + 1)
   const extraOut: number[][] = Array.from({ length: n }, () => [])
   for (let i = 0; i < n; i++) for (const q of extraIn[i]!) extraOut[q]!.push(i)
-  const xPred: number[] = [], xSucc: number[] = []
-  for (let i = 0; i < n; i++) { predStart[i] = xPred.length; xPred.push(...extraIn[i]!); succStart[i] = xSucc.length; xSucc.push(...extraOut[i]!) }
-  predStart[n] = xPred.length; succStart[n] = xSucc.length
+  const xPred: number[] = [],
+    xSucc: number[] = []
+  for (let i = 0; i < n; i++) {
+    predStart[i] = xPred.length
+    xPred.push(...extraIn[i]!)
+    succStart[i] = xSucc.length
+    xSucc.push(...extraOut[i]!)
+  }
+  predStart[n] = xPred.length
+  succStart[n] = xSucc.length
   // Time held by pinned and running work on each bench and person: other work goes round it.
-  const busyBench: Interval[][] = p.benches.map(() => []), busyPerson: Interval[][] = p.people.map(() => [])
+  const busyBench: Interval[][] = p.benches.map(() => []),
+    busyPerson: Interval[][] = p.people.map(() => [])
   for (let i = 0; i < n; i++) {
     const f = c.fixedAt[i]
     if (!f || c.outsideDays[i]! > 0) continue
@@ -124,8 +174,16 @@ export function calendarShop(c: Compiled, first: Decoded, also: { option: Int32A
   }
   for (const l of [...busyBench, ...busyPerson]) l.sort((a, b) => a.start - b.start)
   const calIds = new Map<string, number>()
-  const calOffset: number[] = [0], ws: number[] = [], we: number[] = [], wc: number[] = [], wl: number[] = []
-  const minutesIn = (list: Interval[], a: number, b: number): number => { let m = 0; for (const g of clipToWindows(list, a, b)) m += g.end - g.start; return m }
+  const calOffset: number[] = [0],
+    ws: number[] = [],
+    we: number[] = [],
+    wc: number[] = [],
+    wl: number[] = []
+  const minutesIn = (list: Interval[], a: number, b: number): number => {
+    let m = 0
+    for (const g of clipToWindows(list, a, b)) m += g.end - g.start
+    return m
+  }
   const calendarOf = (o: CompiledOption): number => {
     const key = `${o.bench}/${o.person}`
     let id = calIds.get(key)
@@ -135,7 +193,12 @@ export function calendarShop(c: Compiled, first: Decoded, also: { option: Int32A
       if (o.person >= 0) w = subtract(w, busyPerson[o.person]!)
       let cum = 0
       const base = ws.length
-      for (const x of w) { ws.push(x.start - now); we.push(x.end - now); wc.push(cum); cum += x.end - x.start }
+      for (const x of w) {
+        ws.push(x.start - now)
+        we.push(x.end - now)
+        wc.push(cum)
+        cum += x.end - x.start
+      }
       // Stretches end where pinned work holds the pair: a step does not run round other work.
       for (let k = w.length - 1; k >= 0; k--) {
         const next = w[k + 1]
@@ -149,8 +212,12 @@ export function calendarShop(c: Compiled, first: Decoded, also: { option: Int32A
     return id
   }
   const optStart = new Int32Array(n + 1)
-  const machine: number[] = [], worker: number[] = [], dur: number[] = [], optCal: number[] = []
-  const release = new Int32Array(n), lag = new Int32Array(n)
+  const machine: number[] = [],
+    worker: number[] = [],
+    dur: number[] = [],
+    optCal: number[] = []
+  const release = new Int32Array(n),
+    lag = new Int32Array(n)
   const real = new Uint8Array(n)
   let extra = c.benchCount
   for (let i = 0; i < n; i++) {
@@ -161,17 +228,34 @@ export function calendarShop(c: Compiled, first: Decoded, also: { option: Int32A
     if (c.fixedAt[i]) {
       // Kept where it is: from its start, for as long as the first plan gives it.
       release[i] = Math.round(first.start[i]! - now)
-      machine.push(extra++); worker.push(-1); optCal.push(-1); dur.push(Math.max(0, Math.round(first.end[i]! - first.start[i]!)))
+      machine.push(extra++)
+      worker.push(-1)
+      optCal.push(-1)
+      dur.push(Math.max(0, Math.round(first.end[i]! - first.start[i]!)))
       continue
     }
-    if (c.outsideDays[i]! > 0) { machine.push(extra++); worker.push(-1); optCal.push(-2); dur.push(c.outsideDays[i]!); continue }
+    if (c.outsideDays[i]! > 0) {
+      machine.push(extra++)
+      worker.push(-1)
+      optCal.push(-2)
+      dur.push(c.outsideDays[i]!)
+      continue
+    }
     if (opts.length === 0 || opts.some((o) => o.bench < 0)) {
       const m = opts.find((o) => o.minutes > 0)
-      machine.push(extra++); worker.push(-1); optCal.push(m ? calendarOf(m) : -1); dur.push(Math.max(0, Math.round(m?.minutes ?? 0)))
+      machine.push(extra++)
+      worker.push(-1)
+      optCal.push(m ? calendarOf(m) : -1)
+      dur.push(Math.max(0, Math.round(m?.minutes ?? 0)))
       continue
     }
     real[i] = 1
-    for (const o of opts) { machine.push(o.bench); worker.push(o.person); optCal.push(calendarOf(o)); dur.push(Math.max(0, Math.round(o.minutes))) }
+    for (const o of opts) {
+      machine.push(o.bench)
+      worker.push(o.person)
+      optCal.push(calendarOf(o))
+      dur.push(Math.max(0, Math.round(o.minutes)))
+    }
   }
   optStart[n] = machine.length
   const days = p.workshopDays
@@ -184,20 +268,43 @@ export function calendarShop(c: Compiled, first: Decoded, also: { option: Int32A
     real,
     initial,
     shop: {
-      n, machines: extra, workers: c.personCount, jobs: c.jobs.length, jobOf: Int32Array.from(c.jobOf), jobPred, jobSucc,
-      optStart, optMachine: Int32Array.from(machine), optWorker: Int32Array.from(worker), optDur: Int32Array.from(dur), release,
-      due: Float64Array.from(c.jobs, (j) => (j.due === null ? Infinity : j.due - now)), weight: Float64Array.from(c.jobs, (j) => j.weight),
+      n,
+      machines: extra,
+      workers: c.personCount,
+      jobs: c.jobs.length,
+      jobOf: Int32Array.from(c.jobOf),
+      jobPred,
+      jobSucc,
+      optStart,
+      optMachine: Int32Array.from(machine),
+      optWorker: Int32Array.from(worker),
+      optDur: Int32Array.from(dur),
+      release,
+      due: Float64Array.from(c.jobs, (j) => (j.due === null ? Infinity : j.due - now)),
+      weight: Float64Array.from(c.jobs, (j) => j.weight),
       lag,
       extra: { predStart, pred: Int32Array.from(xPred), succStart, succ: Int32Array.from(xSucc) },
       calendar: {
-        optCal: Int32Array.from(optCal), calOffset: Int32Array.from(calOffset), winStart: Float64Array.from(ws), winEnd: Float64Array.from(we),
-        winCum: Float64Array.from(wc), winStretchLast: Int32Array.from(wl), dayStart: Float64Array.from(days, (d) => d.start - now), dayEnd: Float64Array.from(days, (d) => d.end - now),
+        optCal: Int32Array.from(optCal),
+        calOffset: Int32Array.from(calOffset),
+        winStart: Float64Array.from(ws),
+        winEnd: Float64Array.from(we),
+        winCum: Float64Array.from(wc),
+        winStretchLast: Int32Array.from(wl),
+        dayStart: Float64Array.from(days, (d) => d.start - now),
+        dayEnd: Float64Array.from(days, (d) => d.end - now),
       },
     },
   }
 }
 
-export interface GeneralResult { decoded: Decoded; iterations: number; firstPlanMs: number; evaluations: number; previous?: { weightedTardiness: number; makespan: number } }
+export interface GeneralResult {
+  decoded: Decoded
+  iterations: number
+  firstPlanMs: number
+  evaluations: number
+  previous?: { weightedTardiness: number; makespan: number }
+}
 
 /** Remaining work from each operation's start to its job's end, in working minutes (shortest options), plus waits. */
 function tails(c: Compiled): Float64Array {
@@ -245,13 +352,19 @@ export function dispatchKeys(c: Compiled): Float64Array[] {
   const rules: ((i: number) => number)[] = [
     (i) => dueOf(i) - f * tail[i]!, // minimum slack
     (i) => dueOf(i) * 1e3 - tail[i]!, // earliest due date, longest remaining work first within a job bag
-    (i) => { const s = dueOf(i) - f * tail[i]! - c.problem.now; return s >= 0 ? s / weightOf(i) : s * weightOf(i) }, // weighted slack
+    (i) => {
+      const s = dueOf(i) - f * tail[i]! - c.problem.now
+      return s >= 0 ? s / weightOf(i) : s * weightOf(i)
+    }, // weighted slack
     (i) => -tail[i]!, // most work remaining (makespan)
   ]
   return rules.map((rule) => {
     const k = new Float64Array(c.n)
     let low = Infinity
-    for (let i = 0; i < c.n; i++) { k[i] = rule(i) + i * 1e-9; if (k[i]! < low) low = k[i]! }
+    for (let i = 0; i < c.n; i++) {
+      k[i] = rule(i) + i * 1e-9
+      if (k[i]! < low) low = k[i]!
+    }
     // Work that must be done before a pinned step goes first, earliest pin first, so the pin can hold.
     for (let i = 0; i < c.n; i++) if (Number.isFinite(c.pinDeadline[i]!)) k[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3 - tail[i]! * 1e-6
     return k
@@ -259,7 +372,9 @@ export function dispatchKeys(c: Compiled): Float64Array[] {
 }
 
 /** The first-plan rule set and the earliest-due-date baseline a manager would use by hand. */
-export function earliestDueDateKeys(c: Compiled): Float64Array { return dispatchKeys(c)[1]! }
+export function earliestDueDateKeys(c: Compiled): Float64Array {
+  return dispatchKeys(c)[1]!
+}
 
 /** Operations on the chain that fixes job j's completion: predecessors and resource blockers traced back from its last operation. */
 function criticalChain(c: Compiled, d: Decoded, j: number, lastOf: Int32Array): number[] {
@@ -276,17 +391,28 @@ function criticalChain(c: Compiled, d: Decoded, j: number, lastOf: Int32Array): 
 }
 
 /** Constructive first plan and late-acceptance improvement within the time limit. */
-export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number; maxIterations?: number; objective: Objective[] }, hooks: SolveHooks, clock: () => number, t0: number): GeneralResult {
+export function solveGeneral(
+  c: Compiled,
+  opts: { seed: number; deadline: number; maxIterations?: number; objective: Objective[] },
+  hooks: SolveHooks,
+  clock: () => number,
+  t0: number,
+): GeneralResult {
   const rng = createRng(opts.seed)
   const obj = opts.objective
   const n = c.n
   const greedy = new Int32Array(n).fill(-1)
-  let bestKey: Float64Array = new Float64Array(n), bestChoice: Int32Array = greedy.slice(), best: Decoded | null = null
+  let bestKey: Float64Array = new Float64Array(n),
+    bestChoice: Int32Array = greedy.slice(),
+    best: Decoded | null = null
   let firstPlanMs = -1
   for (const key of dispatchKeys(c)) {
     const d = decode(c, key, greedy)
     if (firstPlanMs < 0) firstPlanMs = clock() - t0 // the first rule's plan is already a valid plan
-    if (!best || compareDecoded(d, best, obj) < 0) { best = d; bestKey = key }
+    if (!best || compareDecoded(d, best, obj) < 0) {
+      best = d
+      bestKey = key
+    }
     if (hooks.shouldStop?.()) break
   }
   // The previous plan as it stands: its operations in their old order on their old bench and person, new work after them
@@ -294,7 +420,8 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   let previous: GeneralResult['previous']
   const prev = c.problem.previous
   if (prev && Object.keys(prev).length > 0 && !hooks.shouldStop?.()) {
-    const key = new Float64Array(n), choice = new Int32Array(n).fill(-1)
+    const key = new Float64Array(n),
+      choice = new Int32Array(n).fill(-1)
     const tail = tails(c)
     for (let i = 0; i < n; i++) {
       const at = prev[c.ops[i]!.id]
@@ -303,9 +430,14 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
     }
     const d = decode(c, key, choice)
     previous = { weightedTardiness: d.weightedTardiness, makespan: d.makespan }
-    if (!best || compareDecoded(d, best, obj) <= 0) { best = d; bestKey = key; bestChoice = choice }
+    if (!best || compareDecoded(d, best, obj) <= 0) {
+      best = d
+      bestKey = key
+      bestChoice = choice
+    }
   }
-  let iterations = 0, evaluations = 0
+  let iterations = 0,
+    evaluations = 0
   if (!best) throw new Error('no dispatching rule produced a plan')
   hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: firstPlanMs })
   const done = (): GeneralResult => ({ decoded: best!, iterations, firstPlanMs, evaluations: evaluations + iterations, ...(previous ? { previous } : {}) })
@@ -319,10 +451,13 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
     const sketch = sketchShop(c)
     // The sketch's weighted tardiness only estimates the plan's: its better schedules are decoded on the calendars as they come
     // (while that takes at most a quarter of the time), and the last one in any case.
-    let pending: { option: Int32Array; start: Int32Array } | null = null, decodeMs = 0, decodes = 0
+    let pending: { option: Int32Array; start: Int32Array } | null = null,
+      decodeMs = 0,
+      decodes = 0
     const tryDecode = (option: Int32Array, start: Int32Array): void => {
       const a = clock()
-      const key = new Float64Array(n), choice = new Int32Array(n).fill(-1)
+      const key = new Float64Array(n),
+        choice = new Int32Array(n).fill(-1)
       for (let i = 0; i < n; i++) {
         key[i] = start[i]! + i * 1e-9
         const k = option[i]! - sketch.shop.optStart[i]!
@@ -334,16 +469,26 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
       for (const ch of [choice, new Int32Array(n).fill(-1)]) {
         const d = decode(c, key, ch)
         decodes++
-        if (compareDecoded(d, best!, obj) < 0) { best = d; bestKey = key; bestChoice = ch.slice() }
+        if (compareDecoded(d, best!, obj) < 0) {
+          best = d
+          bestKey = key
+          bestChoice = ch.slice()
+        }
       }
       decodeMs += clock() - a
     }
     const r = solvePairShop(sketch.shop, {
-      seed: opts.seed, objective: 'weightedTardiness', deadline: now + sketchMs, clock,
+      seed: opts.seed,
+      objective: 'weightedTardiness',
+      deadline: now + sketchMs,
+      clock,
       maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
       ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
       onBest: (option, start) => {
-        if (decodeMs * 4 < clock() - now) { pending = null; tryDecode(option, start) } else pending = { option: option.slice(), start: start.slice() }
+        if (decodeMs * 4 < clock() - now) {
+          pending = null
+          tryDecode(option, start)
+        } else pending = { option: option.slice(), start: start.slice() }
       },
     })
     evaluations += r.evaluations
@@ -359,12 +504,18 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
     const now = clock()
     const graph = calendarShop(c, best)
     const r = solvePairShop(graph.shop, {
-      seed: opts.seed, objective: 'weightedTardiness', deadline: now + graphMs, clock, initial: graph.initial, initialOnly: true,
+      seed: opts.seed,
+      objective: 'weightedTardiness',
+      deadline: now + graphMs,
+      clock,
+      initial: graph.initial,
+      initialOnly: true,
       maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
       ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
     })
     evaluations += r.evaluations
-    const key = new Float64Array(n), choice = new Int32Array(n).fill(-1)
+    const key = new Float64Array(n),
+      choice = new Int32Array(n).fill(-1)
     for (let i = 0; i < n; i++) {
       key[i] = r.start[i]! + i * 1e-9
       const k = r.option[i]! - graph.shop.optStart[i]!
@@ -376,13 +527,18 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
     for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
     for (const ch of [choice, new Int32Array(n).fill(-1)]) {
       const d = decode(c, key, ch)
-      if (compareDecoded(d, best, obj) < 0) { best = d; bestKey = key; bestChoice = ch.slice() }
+      if (compareDecoded(d, best, obj) < 0) {
+        best = d
+        bestKey = key
+        bestChoice = ch.slice()
+      }
     }
     hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: clock() - t0 })
   }
 
-
-  let curKey: Float64Array = bestKey.slice(), curChoice: Int32Array = bestChoice.slice(), cur = best
+  let curKey: Float64Array = bestKey.slice(),
+    curChoice: Int32Array = bestChoice.slice(),
+    cur = best
   const historyLen = 40
   const history: Decoded[] = new Array(historyLen).fill(cur)
   const maxIt = opts.maxIterations ?? Infinity
@@ -395,15 +551,21 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
   while (iterations < maxIt) {
     if ((iterations & 3) === 0 && (clock() >= opts.deadline || hooks.shouldStop?.())) break
     iterations++
-    const key = curKey.slice(), choice = curChoice.slice()
+    const key = curKey.slice(),
+      choice = curChoice.slice()
     // Pick the job to help: a tardy one weighted by its weighted tardiness, else the one that ends last.
     lastOf.fill(-1)
-    for (let i = 0; i < n; i++) { const j = c.jobOf[i]!; if (lastOf[j]! < 0 || cur.end[i]! > cur.end[lastOf[j]!]!) lastOf[j] = i }
+    for (let i = 0; i < n; i++) {
+      const j = c.jobOf[i]!
+      if (lastOf[j]! < 0 || cur.end[i]! > cur.end[lastOf[j]!]!) lastOf[j] = i
+    }
     let target = -1
     const tardinessFirst = obj[0] === 'weightedTardiness' && cur.weightedTardiness > 0
     if (tardinessFirst) {
       let total = 0
-      c.jobs.forEach((job, j) => { if (job.due !== null && cur.completion[j]! > job.due) total += job.weight * (cur.completion[j]! - job.due) })
+      c.jobs.forEach((job, j) => {
+        if (job.due !== null && cur.completion[j]! > job.due) total += job.weight * (cur.completion[j]! - job.due)
+      })
       let pick = rng.next() * total
       c.jobs.forEach((job, j) => {
         if (target >= 0 || job.due === null || cur.completion[j]! <= job.due) return
@@ -412,11 +574,16 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
       })
     }
     if (target < 0) {
-      let bestEnd = -Infinity, ties = 0
+      let bestEnd = -Infinity,
+        ties = 0
       c.jobs.forEach((_, j) => {
         if (lastOf[j]! < 0) return
         const e = cur.completion[j]!
-        if (e > bestEnd) { bestEnd = e; target = j; ties = 1 } else if (e === bestEnd && rng.int(++ties) === 0) target = j
+        if (e > bestEnd) {
+          bestEnd = e
+          target = j
+          ties = 1
+        } else if (e === bestEnd && rng.int(++ties) === 0) target = j
       })
     }
     const chain = target >= 0 ? criticalChain(c, cur, target, lastOf).filter((x) => !c.fixedAt[x] && c.outsideDays[x]! < 0) : []
@@ -441,30 +608,48 @@ export function solveGeneral(c: Compiled, opts: { seed: number; deadline: number
       }
     } else if (r < 0.92 && target >= 0) {
       // Move the whole job bag forward in priority.
-      const shift = (rng.next() * 0.2 + 0.02)
+      const shift = rng.next() * 0.2 + 0.02
       let span = 1
       for (let i = 0; i < n; i++) span = Math.max(span, Math.abs(key[i]!))
       for (let i = 0; i < n; i++) if (c.jobOf[i] === target) key[i] = key[i]! - shift * span
     } else {
       // Diversify: swap the priorities of two operations.
-      const a = movable[rng.int(movable.length)]!, b = movable[rng.int(movable.length)]!
-      const t = key[a]!; key[a] = key[b]!; key[b] = t
+      const a = movable[rng.int(movable.length)]!,
+        b = movable[rng.int(movable.length)]!
+      const t = key[a]!
+      key[a] = key[b]!
+      key[b] = t
     }
     const cand = decode(c, key, choice)
     const slot = iterations % historyLen
     if (compareDecoded(cand, cur, obj) <= 0 || compareDecoded(cand, history[slot]!, obj) <= 0) {
-      cur = cand; curKey = key; curChoice = choice
+      cur = cand
+      curKey = key
+      curChoice = choice
       if (compareDecoded(cand, best, obj) < 0) {
-        best = cand; bestKey = key; bestChoice = choice
+        best = cand
+        bestKey = key
+        bestChoice = choice
         hooks.onProgress?.({ iteration: iterations, best: scoreOf(best), elapsedMs: clock() - t0 })
         lastReport = clock()
       }
     }
     if (compareDecoded(cur, history[slot]!, obj) < 0) history[slot] = cur
-    if (clock() - lastReport > 500) { lastReport = clock(); hooks.onProgress?.({ iteration: iterations, best: scoreOf(best), elapsedMs: lastReport - t0 }) }
+    if (clock() - lastReport > 500) {
+      lastReport = clock()
+      hooks.onProgress?.({ iteration: iterations, best: scoreOf(best), elapsedMs: lastReport - t0 })
+    }
   }
-  void bestKey; void bestChoice
+  void bestKey
+  void bestChoice
   return done()
 }
 
-const scoreOf = (d: Decoded) => ({ weightedTardiness: d.weightedTardiness, makespan: d.makespan, moves: d.moves, shifted: d.shifted, feasible: d.overflow < 0, violations: [] as Violation[] })
+const scoreOf = (d: Decoded) => ({
+  weightedTardiness: d.weightedTardiness,
+  makespan: d.makespan,
+  moves: d.moves,
+  shifted: d.shifted,
+  feasible: d.overflow < 0,
+  violations: [] as Violation[],
+})

@@ -85,17 +85,22 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
   const indeg = new Int32Array(n)
 
   const unlink = (x: number): void => {
-    const a = mPred[x]!, b = mSucc[x]!
-    if (a >= 0) mSucc[a] = b; else mHead[mach[x]!] = b
+    const a = mPred[x]!,
+      b = mSucc[x]!
+    if (a >= 0) mSucc[a] = b
+    else mHead[mach[x]!] = b
     if (b >= 0) mPred[b] = a
-    mPred[x] = -1; mSucc[x] = -1
+    mPred[x] = -1
+    mSucc[x] = -1
   }
   /** Puts x on machine k right after a (a = -1: at the head). */
   const linkAfter = (x: number, k: number, a: number): void => {
     mach[x] = k
     const b = a >= 0 ? mSucc[a]! : mHead[k]!
-    mPred[x] = a; mSucc[x] = b
-    if (a >= 0) mSucc[a] = x; else mHead[k] = x
+    mPred[x] = a
+    mSucc[x] = b
+    if (a >= 0) mSucc[a] = x
+    else mHead[k] = x
     if (b >= 0) mPred[b] = x
   }
 
@@ -111,7 +116,10 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     for (let i = 0; i < n; i++) {
       if (jobSucc[i]! >= 0) continue
       let acc = 0
-      for (let x = i; x >= 0; x = jobPred[x]!) { acc += minDur[x]!; remaining[x] = acc }
+      for (let x = i; x >= 0; x = jobPred[x]!) {
+        acc += minDur[x]!
+        remaining[x] = acc
+      }
     }
     const heads: number[] = []
     for (let i = 0; i < n; i++) if (jobPred[i]! < 0) heads.push(i)
@@ -120,14 +128,22 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     const machLast = new Int32Array(m).fill(-1)
     let left = n
     while (left > 0) {
-      let bestH = -1, bestOpt = -1, bestF = Infinity, bestRem = -1
+      let bestH = -1,
+        bestOpt = -1,
+        bestF = Infinity,
+        bestRem = -1
       for (let h = 0; h < heads.length; h++) {
         const o = heads[h]!
         if (o < 0) continue
         const est = Math.max(ready[o]!, rel[o]!)
         for (let k = optStart[o]!; k < optStart[o + 1]!; k++) {
           const f = Math.max(est, machReady[optMachine[k]!]!) + optDur[k]!
-          if (f < bestF || (f === bestF && remaining[o]! > bestRem)) { bestF = f; bestH = h; bestOpt = k; bestRem = remaining[o]! }
+          if (f < bestF || (f === bestF && remaining[o]! > bestRem)) {
+            bestF = f
+            bestH = h
+            bestOpt = k
+            bestRem = remaining[o]!
+          }
         }
       }
       const o = heads[bestH]!
@@ -145,7 +161,8 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
 
   /** Heads by Kahn's order; false when the graph has a cycle. */
   const computeHeads = (): boolean => {
-    let qh = 0, qt = 0
+    let qh = 0,
+      qt = 0
     for (let i = 0; i < n; i++) {
       const d = (jobPred[i]! >= 0 ? 1 : 0) + (mPred[i]! >= 0 ? 1 : 0)
       indeg[i] = d
@@ -154,13 +171,29 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     while (qh < qt) {
       const x = topo[qh++]!
       let rx = rel[x]!
-      const jp = jobPred[x]!, mp = mPred[x]!
-      if (jp >= 0) { const e = r[jp]! + p[jp]!; if (e > rx) rx = e }
-      if (mp >= 0) { const e = r[mp]! + p[mp]!; if (e > rx) rx = e }
+      const jp = jobPred[x]!,
+        mp = mPred[x]!
+      if (jp >= 0) {
+        const e = r[jp]! + p[jp]!
+        if (e > rx) rx = e
+      }
+      if (mp >= 0) {
+        const e = r[mp]! + p[mp]!
+        if (e > rx) rx = e
+      }
       r[x] = rx
-      const js = jobSucc[x]!, ms = mSucc[x]!
-      if (js >= 0) { const d = indeg[js]! - 1; indeg[js] = d; if (d === 0) topo[qt++] = js }
-      if (ms >= 0) { const d = indeg[ms]! - 1; indeg[ms] = d; if (d === 0) topo[qt++] = ms }
+      const js = jobSucc[x]!,
+        ms = mSucc[x]!
+      if (js >= 0) {
+        const d = indeg[js]! - 1
+        indeg[js] = d
+        if (d === 0) topo[qt++] = js
+      }
+      if (ms >= 0) {
+        const d = indeg[ms]! - 1
+        indeg[ms] = d
+        if (d === 0) topo[qt++] = ms
+      }
     }
     return qt === n
   }
@@ -169,9 +202,16 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     for (let k = n - 1; k >= 0; k--) {
       const x = topo[k]!
       let qx = 0
-      const js = jobSucc[x]!, ms = mSucc[x]!
-      if (js >= 0) { const e = q[js]! + p[js]!; if (e > qx) qx = e }
-      if (ms >= 0) { const e = q[ms]! + p[ms]!; if (e > qx) qx = e }
+      const js = jobSucc[x]!,
+        ms = mSucc[x]!
+      if (js >= 0) {
+        const e = q[js]! + p[js]!
+        if (e > qx) qx = e
+      }
+      if (ms >= 0) {
+        const e = q[ms]! + p[ms]!
+        if (e > qx) qx = e
+      }
       q[x] = qx
       const c = r[x]! + p[x]! + qx
       if (c > cmax) cmax = c
@@ -181,12 +221,16 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
 
   if (!computeHeads()) throw new Error('shop core: initial schedule has a cycle')
   let cmax = computeTails()
-  const bestMach = new Int32Array(n), bestP = new Int32Array(n), bestPred = new Int32Array(n)
+  const bestMach = new Int32Array(n),
+    bestP = new Int32Array(n),
+    bestPred = new Int32Array(n)
   const bestOrder: number[][] = []
   let bestCmax = Infinity
   const saveBest = (): void => {
     bestCmax = cmax
-    bestMach.set(mach); bestP.set(p); bestPred.set(mPred)
+    bestMach.set(mach)
+    bestP.set(p)
+    bestPred.set(mPred)
     bestOrder.length = 0
     for (let k = 0; k < m; k++) {
       const seq: number[] = []
@@ -195,11 +239,17 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     }
   }
   const restoreBest = (): void => {
-    mPred.fill(-1); mSucc.fill(-1); mHead.fill(-1)
-    mach.set(bestMach); p.set(bestP)
+    mPred.fill(-1)
+    mSucc.fill(-1)
+    mHead.fill(-1)
+    mach.set(bestMach)
+    p.set(bestP)
     for (let k = 0; k < m; k++) {
       let last = -1
-      for (const x of bestOrder[k]!) { linkAfter(x, k, last); last = x }
+      for (const x of bestOrder[k]!) {
+        linkAfter(x, k, last)
+        last = x
+      }
     }
     computeHeads()
     cmax = computeTails()
@@ -212,8 +262,11 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
   const pairKeyed = n <= 4096
   const orderTabu = pairKeyed ? new Int32Array(n * n) : null
   const orderTabuMap = pairKeyed ? null : new Map<number, number>()
-  const getOrderTabu = (a: number, b: number): number => (orderTabu ? orderTabu[a * n + b]! : orderTabuMap!.get(a * n + b) ?? 0)
-  const setOrderTabu = (a: number, b: number, v: number): void => { if (orderTabu) orderTabu[a * n + b] = v; else orderTabuMap!.set(a * n + b, v) }
+  const getOrderTabu = (a: number, b: number): number => (orderTabu ? orderTabu[a * n + b]! : (orderTabuMap!.get(a * n + b) ?? 0))
+  const setOrderTabu = (a: number, b: number, v: number): void => {
+    if (orderTabu) orderTabu[a * n + b] = v
+    else orderTabuMap!.set(a * n + b, v)
+  }
   const machTabu = new Int32Array(n * m)
   const baseTenure = 10 + Math.floor(inst.jobs / Math.max(1, m))
   const tenure = (): number => baseTenure + rng.int(Math.max(1, Math.floor(baseTenure * 0.4)) + 1)
@@ -230,7 +283,10 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       const x = segBuf[k]!
       let rx = rel[x]! > prevEnd ? rel[x]! : prevEnd
       const jp = jobPred[x]!
-      if (jp >= 0) { const e = r[jp]! + p[jp]!; if (e > rx) rx = e }
+      if (jp >= 0) {
+        const e = r[jp]! + p[jp]!
+        if (e > rx) rx = e
+      }
       rBuf[k] = rx
       prevEnd = rx + p[x]!
     }
@@ -240,7 +296,10 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       const x = segBuf[k]!
       let qx = nextTail
       const js = jobSucc[x]!
-      if (js >= 0) { const e = q[js]! + p[js]!; if (e > qx) qx = e }
+      if (js >= 0) {
+        const e = q[js]! + p[js]!
+        if (e > qx) qx = e
+      }
       const c = rBuf[k]! + p[x]! + qx
       if (c > est) est = c
       nextTail = qx + p[x]!
@@ -253,7 +312,14 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
   const maxStall = Math.max(2000, 40 * Math.floor(Math.sqrt(n)) * 10)
   const maxIter = settings.maxIterations ?? Infinity
   // Chosen move, described for application: relocate op `mvOp` to machine `mvMach` after `mvAfter` with duration `mvDur`.
-  let mvOp = -1, mvMach = -1, mvAfter = -1, mvDur = 0, mvKind = 0, mvFrom = 0, mvTo = 0, mvBlockStart = 0
+  let mvOp = -1,
+    mvMach = -1,
+    mvAfter = -1,
+    mvDur = 0,
+    mvKind = 0,
+    mvFrom = 0,
+    mvTo = 0,
+    mvBlockStart = 0
   let ties = 0
 
   const stopNow = (): boolean => {
@@ -268,14 +334,19 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
   while (bestCmax > lowerBound && !stopNow()) {
     iter++
     // One critical path, ties broken at random so that different paths get explored.
-    let end = -1, cnt = 0
+    let end = -1,
+      cnt = 0
     for (let i = 0; i < n; i++) {
-      if (q[i] === 0 && r[i]! + p[i]! === cmax) { cnt++; if (rng.int(cnt) === 0) end = i }
+      if (q[i] === 0 && r[i]! + p[i]! === cmax) {
+        cnt++
+        if (rng.int(cnt) === 0) end = i
+      }
     }
     let len = 0
     for (let x = end; x >= 0;) {
       path[len++] = x
-      const jp = jobPred[x]!, mp = mPred[x]!
+      const jp = jobPred[x]!,
+        mp = mPred[x]!
       const jt = jp >= 0 && r[jp]! + p[jp]! === r[x]!
       const mt = mp >= 0 && r[mp]! + p[mp]! === r[x]!
       if (jt && mt) x = rng.next() < 0.5 ? jp : mp
@@ -283,22 +354,65 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       else if (jt) x = jp
       else x = -1
     }
-    for (let a = 0, b = len - 1; a < b; a++, b--) { const t = path[a]!; path[a] = path[b]!; path[b] = t }
+    for (let a = 0, b = len - 1; a < b; a++, b--) {
+      const t = path[a]!
+      path[a] = path[b]!
+      path[b] = t
+    }
 
     let bestEst = Infinity
     let anyEst = Infinity
     let anyCount = 0
-    mvOp = -1; ties = 0
-    let fbOp = -1, fbMach = -1, fbAfter = -1, fbDur = 0, fbKind = 0, fbFrom = 0, fbTo = 0, fbBlockStart = 0
-    const consider = (est: number, tabu: boolean, op: number, k: number, after: number, dur: number, kind: number, from: number, to: number, blockStart: number): void => {
+    mvOp = -1
+    ties = 0
+    let fbOp = -1,
+      fbMach = -1,
+      fbAfter = -1,
+      fbDur = 0,
+      fbKind = 0,
+      fbFrom = 0,
+      fbTo = 0,
+      fbBlockStart = 0
+    const consider = (
+      est: number,
+      tabu: boolean,
+      op: number,
+      k: number,
+      after: number,
+      dur: number,
+      kind: number,
+      from: number,
+      to: number,
+      blockStart: number,
+    ): void => {
       if (!tabu || est < bestCmax) {
-        if (est < bestEst) { bestEst = est; ties = 1 } else if (est === bestEst) { ties++; if (rng.int(ties) !== 0) return } else return
-        mvOp = op; mvMach = k; mvAfter = after; mvDur = dur; mvKind = kind; mvFrom = from; mvTo = to; mvBlockStart = blockStart
+        if (est < bestEst) {
+          bestEst = est
+          ties = 1
+        } else if (est === bestEst) {
+          ties++
+          if (rng.int(ties) !== 0) return
+        } else return
+        mvOp = op
+        mvMach = k
+        mvAfter = after
+        mvDur = dur
+        mvKind = kind
+        mvFrom = from
+        mvTo = to
+        mvBlockStart = blockStart
       } else if (mvOp < 0) {
         anyCount++
         if (est < anyEst || rng.int(anyCount) === 0) {
           anyEst = Math.min(anyEst, est)
-          fbOp = op; fbMach = k; fbAfter = after; fbDur = dur; fbKind = kind; fbFrom = from; fbTo = to; fbBlockStart = blockStart
+          fbOp = op
+          fbMach = k
+          fbAfter = after
+          fbDur = dur
+          fbKind = kind
+          fbFrom = from
+          fbTo = to
+          fbBlockStart = blockStart
         }
       }
     }
@@ -311,18 +425,24 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       const bl = be - bs + 1
       if (bl >= 2) {
         const k = mach[path[bs]!]!
-        const before = mPred[path[bs]!]!, after = mSucc[path[be]!]!
+        const before = mPred[path[bs]!]!,
+          after = mSucc[path[be]!]!
         // Forward: op at i moves right after op at j (i < j), for i = first with any j, and any i with j = last.
         for (let i = bs; i < be; i++) {
           for (let j = i + 1; j <= be; j++) {
             if (i !== bs && j !== be) continue
-            const u = path[i]!, v = path[j]!
+            const u = path[i]!,
+              v = path[j]!
             const js = jobSucc[u]!
             if (js === v) continue
             if (js >= 0 && !(q[js]! < p[v]! + q[v]!)) continue
             let tabu = false
             let w = 0
-            for (let t = i + 1; t <= j; t++) { const l = path[t]!; segBuf[w++] = l; if (getOrderTabu(l, u) > iter) tabu = true }
+            for (let t = i + 1; t <= j; t++) {
+              const l = path[t]!
+              segBuf[w++] = l
+              if (getOrderTabu(l, u) > iter) tabu = true
+            }
             segBuf[w++] = u
             const est = estimateStretch(w, i === bs ? before : path[i - 1]!, j === be ? after : path[j + 1]!)
             consider(est, tabu, u, k, v, p[u]!, 0, i, j, bs)
@@ -333,14 +453,19 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
           for (let i = j - 1; i >= bs; i--) {
             if (j !== be && i !== bs) continue
             if (j === i + 1) continue // adjacent swaps are already among the forward moves
-            const u = path[i]!, v = path[j]!
+            const u = path[i]!,
+              v = path[j]!
             const jp = jobPred[v]!
             if (jp === u) continue
             if (jp >= 0 && !(r[jp]! < r[u]! + p[u]!)) continue
             let tabu = false
             let w = 0
             segBuf[w++] = v
-            for (let t = i; t < j; t++) { const l = path[t]!; segBuf[w++] = l; if (getOrderTabu(v, l) > iter) tabu = true }
+            for (let t = i; t < j; t++) {
+              const l = path[t]!
+              segBuf[w++] = l
+              if (getOrderTabu(v, l) > iter) tabu = true
+            }
             const est = estimateStretch(w, i === bs ? before : path[i - 1]!, j === be ? after : path[j + 1]!)
             consider(est, tabu, v, k, i === bs ? before : path[i - 1]!, p[v]!, 1, i, j, bs)
           }
@@ -352,26 +477,33 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     // Reassignment of critical operations to another machine, at the best acyclic position there.
     for (let t = 0; t < len; t++) {
       const v = path[t]!
-      const o0 = optStart[v]!, o1 = optStart[v + 1]!
+      const o0 = optStart[v]!,
+        o1 = optStart[v + 1]!
       if (o1 - o0 < 2) continue
-      const jp = jobPred[v]!, js = jobSucc[v]!
+      const jp = jobPred[v]!,
+        js = jobSucc[v]!
       const headIn = Math.max(rel[v]!, jp >= 0 ? r[jp]! + p[jp]! : 0)
       const tailOut = js >= 0 ? q[js]! + p[js]! : 0
-      const rLimit = r[v]! + p[v]!, qLimit = q[v]! + p[v]!
+      const rLimit = r[v]! + p[v]!,
+        qLimit = q[v]! + p[v]!
       for (let o = o0; o < o1; o++) {
         const k = optMachine[o]!
         if (k === mach[v]) continue
         const d = optDur[o]!
         let sl = 0
         for (let x = mHead[k]!; x >= 0; x = mSucc[x]!) seqBuf[sl++] = x
-        let bestPos = -2, bestPosEst = Infinity
+        let bestPos = -2,
+          bestPosEst = Infinity
         for (let i = 0; i <= sl; i++) {
           const a = i > 0 ? seqBuf[i - 1]! : -1
           if (a >= 0 && !(r[a]! < rLimit)) break
           const b = i < sl ? seqBuf[i]! : -1
           if (b >= 0 && !(q[b]! < qLimit)) continue
           const est = Math.max(headIn, a >= 0 ? r[a]! + p[a]! : 0) + d + Math.max(tailOut, b >= 0 ? q[b]! + p[b]! : 0)
-          if (est < bestPosEst) { bestPosEst = est; bestPos = a }
+          if (est < bestPosEst) {
+            bestPosEst = est
+            bestPos = a
+          }
         }
         if (bestPos === -2) continue
         consider(bestPosEst, machTabu[v * m + k]! > iter, v, k, bestPos, d, 2, 0, 0, 0)
@@ -391,16 +523,27 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       continue
     }
     if (mvOp < 0) {
-      mvOp = fbOp; mvMach = fbMach; mvAfter = fbAfter; mvDur = fbDur; mvKind = fbKind; mvFrom = fbFrom; mvTo = fbTo; mvBlockStart = fbBlockStart
+      mvOp = fbOp
+      mvMach = fbMach
+      mvAfter = fbAfter
+      mvDur = fbDur
+      mvKind = fbKind
+      mvFrom = fbFrom
+      mvTo = fbTo
+      mvBlockStart = fbBlockStart
     }
 
     // Apply, remembering how to undo.
-    const oldMach = mach[mvOp]!, oldAfter = mPred[mvOp]!, oldDur = p[mvOp]!
+    const oldMach = mach[mvOp]!,
+      oldAfter = mPred[mvOp]!,
+      oldDur = p[mvOp]!
     unlink(mvOp)
     p[mvOp] = mvDur
     linkAfter(mvOp, mvMach, mvAfter)
     if (!computeHeads()) {
-      unlink(mvOp); p[mvOp] = oldDur; linkAfter(mvOp, oldMach, oldAfter)
+      unlink(mvOp)
+      p[mvOp] = oldDur
+      linkAfter(mvOp, oldMach, oldAfter)
       computeHeads()
       cmax = computeTails()
       if (mvKind === 2) machTabu[mvOp * m + mvMach] = iter + tenure()
@@ -430,46 +573,78 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
 
   /** Stagnation: go back to the best schedule and shake it with a few random critical swaps and machine changes. */
   function kick(): void {
-      restoreBest()
-      orderTabu?.fill(0); orderTabuMap?.clear(); machTabu.fill(0)
-      const kicks = 2 + rng.int(4)
-      for (let s = 0; s < kicks; s++) {
-        let e2 = -1, c2 = 0
-        for (let i = 0; i < n; i++) if (q[i] === 0 && r[i]! + p[i]! === cmax) { c2++; if (rng.int(c2) === 0) e2 = i }
-        const cand: number[] = []
-        for (let x = e2; x >= 0;) {
-          const mp = mPred[x]!, jp = jobPred[x]!
-          if (mp >= 0 && r[mp]! + p[mp]! === r[x]!) { if (jobSucc[mp] !== x) cand.push(x); x = mp }
-          else if (jp >= 0 && r[jp]! + p[jp]! === r[x]!) x = jp
-          else x = -1
+    restoreBest()
+    orderTabu?.fill(0)
+    orderTabuMap?.clear()
+    machTabu.fill(0)
+    const kicks = 2 + rng.int(4)
+    for (let s = 0; s < kicks; s++) {
+      let e2 = -1,
+        c2 = 0
+      for (let i = 0; i < n; i++)
+        if (q[i] === 0 && r[i]! + p[i]! === cmax) {
+          c2++
+          if (rng.int(c2) === 0) e2 = i
         }
-        if (cand.length === 0) break
-        const v = cand[rng.int(cand.length)]!
-        const u = mPred[v]!
-        // Swap u and v: move u right after v.
-        const om = mach[u]!, oa = mPred[u]!
-        unlink(u); linkAfter(u, om, v)
-        if (!computeHeads()) { unlink(u); linkAfter(u, om, oa); computeHeads() }
-        cmax = computeTails()
+      const cand: number[] = []
+      for (let x = e2; x >= 0;) {
+        const mp = mPred[x]!,
+          jp = jobPred[x]!
+        if (mp >= 0 && r[mp]! + p[mp]! === r[x]!) {
+          if (jobSucc[mp] !== x) cand.push(x)
+          x = mp
+        } else if (jp >= 0 && r[jp]! + p[jp]! === r[x]!) x = jp
+        else x = -1
       }
-      // A random operation with alternatives moves to another machine (kept only if the graph stays acyclic).
-      for (let tries = 0; tries < 3; tries++) {
-        const v = rng.int(n)
-        const o0 = optStart[v]!, o1 = optStart[v + 1]!
-        if (o1 - o0 < 2) continue
-        const o = o0 + rng.int(o1 - o0)
-        const k = optMachine[o]!
-        if (k === mach[v]) continue
-        const om = mach[v]!, oa = mPred[v]!, od = p[v]!
-        let after = -1
-        for (let x = mHead[k]!; x >= 0; x = mSucc[x]!) { if (r[x]! >= r[v]!) break; after = x }
-        unlink(v); p[v] = optDur[o]!; linkAfter(v, k, after)
-        if (!computeHeads()) { unlink(v); p[v] = od; linkAfter(v, om, oa); computeHeads() }
-        cmax = computeTails()
-        break
+      if (cand.length === 0) break
+      const v = cand[rng.int(cand.length)]!
+      const u = mPred[v]!
+      // Swap u and v: move u right after v.
+      const om = mach[u]!,
+        oa = mPred[u]!
+      unlink(u)
+      linkAfter(u, om, v)
+      if (!computeHeads()) {
+        unlink(u)
+        linkAfter(u, om, oa)
+        computeHeads()
       }
-      lastImprove = iter
-      if (cmax < bestCmax) { saveBest(); settings.onImprove?.(bestCmax, iter) }
+      cmax = computeTails()
+    }
+    // A random operation with alternatives moves to another machine (kept only if the graph stays acyclic).
+    for (let tries = 0; tries < 3; tries++) {
+      const v = rng.int(n)
+      const o0 = optStart[v]!,
+        o1 = optStart[v + 1]!
+      if (o1 - o0 < 2) continue
+      const o = o0 + rng.int(o1 - o0)
+      const k = optMachine[o]!
+      if (k === mach[v]) continue
+      const om = mach[v]!,
+        oa = mPred[v]!,
+        od = p[v]!
+      let after = -1
+      for (let x = mHead[k]!; x >= 0; x = mSucc[x]!) {
+        if (r[x]! >= r[v]!) break
+        after = x
+      }
+      unlink(v)
+      p[v] = optDur[o]!
+      linkAfter(v, k, after)
+      if (!computeHeads()) {
+        unlink(v)
+        p[v] = od
+        linkAfter(v, om, oa)
+        computeHeads()
+      }
+      cmax = computeTails()
+      break
+    }
+    lastImprove = iter
+    if (cmax < bestCmax) {
+      saveBest()
+      settings.onImprove?.(bestCmax, iter)
+    }
   }
 
   restoreBest()

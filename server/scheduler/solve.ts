@@ -23,10 +23,14 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
   const clock = hooks.clock ?? defaultClock
   const t0 = clock()
   const hasPrevious = !!problem.previous && Object.keys(problem.previous).length > 0
-  const objective = options.objective && options.objective.length > 0 ? options.objective
-    : !hasPrevious ? DEFAULT_OBJECTIVE
-    : options.stability === 'best-dates' ? ['weightedTardiness', 'makespan', 'moves', 'shifted'] as Objective[]
-    : ['weightedTardiness', 'moves', 'shifted', 'makespan'] as Objective[]
+  const objective =
+    options.objective && options.objective.length > 0
+      ? options.objective
+      : !hasPrevious
+        ? DEFAULT_OBJECTIVE
+        : options.stability === 'best-dates'
+          ? (['weightedTardiness', 'makespan', 'moves', 'shifted'] as Objective[])
+          : (['weightedTardiness', 'moves', 'shifted', 'makespan'] as Objective[])
   const c = compile(problem)
   const deadline = t0 + Math.max(0, options.timeLimitMs)
   const shop = asShop(c)
@@ -40,7 +44,12 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
       clock,
       ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}),
       ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
-      onImprove: (makespan, iteration) => hooks.onProgress?.({ iteration, best: { weightedTardiness: 0, makespan: makespan + problem.now, moves: 0, feasible: true, violations: [] }, elapsedMs: clock() - t0 }),
+      onImprove: (makespan, iteration) =>
+        hooks.onProgress?.({
+          iteration,
+          best: { weightedTardiness: 0, makespan: makespan + problem.now, moves: 0, feasible: true, violations: [] },
+          elapsedMs: clock() - t0,
+        }),
     })
     decoded = fromShop(c, r.machine, r.start, r.duration)
     iterations = r.iterations
@@ -48,17 +57,31 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
   } else if ((pair = asPairShop(c))) {
     const twt = objective[0] === 'weightedTardiness' && problem.jobs.some((j) => j.due !== null)
     const r = solvePairShop(pair, {
-      seed: options.seed, objective: twt ? 'weightedTardiness' : 'makespan', deadline, clock,
+      seed: options.seed,
+      objective: twt ? 'weightedTardiness' : 'makespan',
+      deadline,
+      clock,
       ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}),
       ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
-      onImprove: (value, iteration) => hooks.onProgress?.({ iteration, best: { weightedTardiness: twt ? value : 0, makespan: twt ? 0 : value + problem.now, moves: 0, feasible: true, violations: [] }, elapsedMs: clock() - t0 }),
+      onImprove: (value, iteration) =>
+        hooks.onProgress?.({
+          iteration,
+          best: { weightedTardiness: twt ? value : 0, makespan: twt ? 0 : value + problem.now, moves: 0, feasible: true, violations: [] },
+          elapsedMs: clock() - t0,
+        }),
     })
     decoded = fromPair(c, r.option, r.start, r.end)
     iterations = r.iterations
     evaluations = r.evaluations
     firstPlanMs = r.firstMs
   } else {
-    const r = solveGeneral(c, { seed: options.seed, deadline, objective, ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}) }, hooks, clock, t0)
+    const r = solveGeneral(
+      c,
+      { seed: options.seed, deadline, objective, ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}) },
+      hooks,
+      clock,
+      t0,
+    )
     decoded = r.decoded
     iterations = r.iterations
     firstPlanMs = r.firstPlanMs
@@ -66,7 +89,13 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
     previousScore = r.previous
   }
   assertWithinHorizon(c, decoded)
-  const plan = toPlan(c, decoded, { iterations, elapsedMs: clock() - t0, firstPlanMs, ...(evaluations !== undefined ? { evaluations } : {}), ...(previousScore ? { previous: previousScore } : {}) })
+  const plan = toPlan(c, decoded, {
+    iterations,
+    elapsedMs: clock() - t0,
+    firstPlanMs,
+    ...(evaluations !== undefined ? { evaluations } : {}),
+    ...(previousScore ? { previous: previousScore } : {}),
+  })
   const violations = validatePlan(problem, plan)
   plan.score.violations = violations
   plan.score.feasible = violations.length === 0
@@ -86,17 +115,23 @@ function asShop(c: Compiled): ShopInstance | null {
   if (p.operations.some((o) => o.done)) return null
   const openBench = p.benches.map((b) => b.available.some((w) => w.start <= p.now && w.end >= p.horizon))
   const n = c.n
-  const jobPred = new Int32Array(n).fill(-1), jobSucc = new Int32Array(n).fill(-1)
+  const jobPred = new Int32Array(n).fill(-1),
+    jobSucc = new Int32Array(n).fill(-1)
   const optStart = new Int32Array(n + 1)
-  const machines: number[] = [], durs: number[] = []
+  const machines: number[] = [],
+    durs: number[] = []
   for (let i = 0; i < n; i++) {
     if (c.fixedAt[i] || c.outsideDays[i]! > 0 || c.waitAfter[i]! > 0) return null
     if (c.preds[i]!.length > 1 || c.succs[i]!.length > 1) return null
-    if (c.preds[i]!.length === 1) { jobPred[i] = c.preds[i]![0]!; jobSucc[c.preds[i]![0]!] = i }
+    if (c.preds[i]!.length === 1) {
+      jobPred[i] = c.preds[i]![0]!
+      jobSucc[c.preds[i]![0]!] = i
+    }
     optStart[i] = machines.length
     for (const o of c.options[i]!) {
       if (o.person >= 0 || o.bench < 0 || !openBench[o.bench] || !Number.isInteger(o.minutes)) return null
-      machines.push(o.bench); durs.push(o.minutes)
+      machines.push(o.bench)
+      durs.push(o.minutes)
     }
   }
   optStart[n] = machines.length
@@ -105,9 +140,13 @@ function asShop(c: Compiled): ShopInstance | null {
 
 /** Turns the core's machine and start arrays into a decode (times shifted to start at now), with start reasons. */
 function fromShop(c: Compiled, machine: Int32Array, start0: Int32Array, duration: Int32Array): Decoded {
-  const n = c.n, now = c.problem.now
-  const start = new Float64Array(n), end = new Float64Array(n)
-  const option = new Int32Array(n), why = new Uint8Array(n), blocker = new Int32Array(n).fill(-1)
+  const n = c.n,
+    now = c.problem.now
+  const start = new Float64Array(n),
+    end = new Float64Array(n)
+  const option = new Int32Array(n),
+    why = new Uint8Array(n),
+    blocker = new Int32Array(n).fill(-1)
   const segments = new Array(n)
   const byMachine = new Map<number, number[]>()
   for (let i = 0; i < n; i++) {
@@ -128,14 +167,32 @@ function fromShop(c: Compiled, machine: Int32Array, start0: Int32Array, duration
     const jp = c.preds[i]![0]
     const mp = machinePred[i]!
     if (start[i] === now) why[i] = Why.Now
-    else if (jp !== undefined && end[jp] === start[i]) { why[i] = Why.Predecessor; blocker[i] = jp }
-    else if (mp >= 0 && end[mp] === start[i]) { why[i] = Why.Bench; blocker[i] = mp }
-    else why[i] = Why.WorkingTime
+    else if (jp !== undefined && end[jp] === start[i]) {
+      why[i] = Why.Predecessor
+      blocker[i] = jp
+    } else if (mp >= 0 && end[mp] === start[i]) {
+      why[i] = Why.Bench
+      blocker[i] = mp
+    } else why[i] = Why.WorkingTime
     makespan = Math.max(makespan, end[i]!)
     const j = c.jobOf[i]!
     completion[j] = Math.max(completion[j]!, end[i]!)
   }
-  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, brokenPins: 0, completion, weightedTardiness: 0, makespan, moves: 0, shifted: 0 }
+  return {
+    start,
+    end,
+    option,
+    segments,
+    why,
+    blocker,
+    overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1,
+    brokenPins: 0,
+    completion,
+    weightedTardiness: 0,
+    makespan,
+    moves: 0,
+    shifted: 0,
+  }
 }
 
 /**
@@ -147,73 +204,129 @@ function asPairShop(c: Compiled): PairShop | null {
   if (p.previous && Object.keys(p.previous).length > 0) return null
   if (p.operations.some((o) => o.done)) return null
   const open = (list: { available: { start: number; end: number }[] }[]) => list.map((b) => b.available.some((w) => w.start <= p.now && w.end >= p.horizon))
-  const openBench = open(p.benches), openPerson = open(p.people)
+  const openBench = open(p.benches),
+    openPerson = open(p.people)
   const n = c.n
-  const jobPred = new Int32Array(n).fill(-1), jobSucc = new Int32Array(n).fill(-1)
+  const jobPred = new Int32Array(n).fill(-1),
+    jobSucc = new Int32Array(n).fill(-1)
   const optStart = new Int32Array(n + 1)
-  const machines: number[] = [], workers: number[] = [], durs: number[] = []
+  const machines: number[] = [],
+    workers: number[] = [],
+    durs: number[] = []
   const release = new Int32Array(n)
   for (let i = 0; i < n; i++) {
     if (c.fixedAt[i] || c.outsideDays[i]! > 0 || c.waitAfter[i]! > 0) return null
     if (c.preds[i]!.length > 1 || c.succs[i]!.length > 1) return null
-    if (c.preds[i]!.length === 1) { jobPred[i] = c.preds[i]![0]!; jobSucc[c.preds[i]![0]!] = i }
+    if (c.preds[i]!.length === 1) {
+      jobPred[i] = c.preds[i]![0]!
+      jobSucc[c.preds[i]![0]!] = i
+    }
     const rel = c.jobs[c.jobOf[i]!]!.release
     if (!Number.isInteger(rel)) return null
     release[i] = Math.max(0, rel - p.now)
     optStart[i] = machines.length
     for (const o of c.options[i]!) {
       if (o.bench < 0 || !openBench[o.bench] || (o.person >= 0 && !openPerson[o.person]) || !Number.isInteger(o.minutes)) return null
-      machines.push(o.bench); workers.push(o.person); durs.push(o.minutes)
+      machines.push(o.bench)
+      workers.push(o.person)
+      durs.push(o.minutes)
     }
   }
   optStart[n] = machines.length
   const due = Float64Array.from(c.jobs, (j) => (j.due === null ? Infinity : j.due - p.now))
   const weight = Float64Array.from(c.jobs, (j) => j.weight)
   return {
-    n, machines: p.benches.length, workers: p.people.length, jobs: c.jobs.length, jobOf: Int32Array.from(c.jobOf), jobPred, jobSucc,
-    optStart, optMachine: Int32Array.from(machines), optWorker: Int32Array.from(workers), optDur: Int32Array.from(durs), release, due, weight,
+    n,
+    machines: p.benches.length,
+    workers: p.people.length,
+    jobs: c.jobs.length,
+    jobOf: Int32Array.from(c.jobOf),
+    jobPred,
+    jobSucc,
+    optStart,
+    optMachine: Int32Array.from(machines),
+    optWorker: Int32Array.from(workers),
+    optDur: Int32Array.from(durs),
+    release,
+    due,
+    weight,
   }
 }
 
 /** Turns the pair core's options and times (from now) into a decode with start reasons and the workshop score. */
 function fromPair(c: Compiled, opt: Int32Array, start0: Int32Array, end0: Int32Array): Decoded {
-  const n = c.n, now = c.problem.now
-  const start = new Float64Array(n), end = new Float64Array(n)
-  const option = new Int32Array(n), why = new Uint8Array(n), blocker = new Int32Array(n).fill(-1)
+  const n = c.n,
+    now = c.problem.now
+  const start = new Float64Array(n),
+    end = new Float64Array(n)
+  const option = new Int32Array(n),
+    why = new Uint8Array(n),
+    blocker = new Int32Array(n).fill(-1)
   const segments = new Array(n)
   let k = 0
   for (let i = 0; i < n; i++) {
-    start[i] = start0[i]! + now; end[i] = end0[i]! + now
+    start[i] = start0[i]! + now
+    end[i] = end0[i]! + now
     option[i] = opt[i]! - k
     k += c.options[i]!.length
     segments[i] = [{ start: start[i]!, end: end[i]! }]
   }
-  const lastOn = (list: Map<number, number[]>, key: number, i: number) => { (list.get(key) ?? list.set(key, []).get(key)!).push(i) }
-  const byBench = new Map<number, number[]>(), byPerson = new Map<number, number[]>()
+  const lastOn = (list: Map<number, number[]>, key: number, i: number) => {
+    ;(list.get(key) ?? list.set(key, []).get(key)!).push(i)
+  }
+  const byBench = new Map<number, number[]>(),
+    byPerson = new Map<number, number[]>()
   for (let i = 0; i < n; i++) {
     const o = c.options[i]![option[i]!]!
     lastOn(byBench, o.bench, i)
     if (o.person >= 0) lastOn(byPerson, o.person, i)
   }
-  const benchPred = new Int32Array(n).fill(-1), personPred = new Int32Array(n).fill(-1)
-  for (const [list, into] of [[byBench, benchPred], [byPerson, personPred]] as const) for (const ops of list.values()) {
-    ops.sort((a, b) => start[a]! - start[b]!)
-    for (let q = 1; q < ops.length; q++) into[ops[q]!] = ops[q - 1]!
-  }
+  const benchPred = new Int32Array(n).fill(-1),
+    personPred = new Int32Array(n).fill(-1)
+  for (const [list, into] of [
+    [byBench, benchPred],
+    [byPerson, personPred],
+  ] as const)
+    for (const ops of list.values()) {
+      ops.sort((a, b) => start[a]! - start[b]!)
+      for (let q = 1; q < ops.length; q++) into[ops[q]!] = ops[q - 1]!
+    }
   let makespan = 0
   const completion = new Float64Array(c.jobs.length).fill(-Infinity)
   for (let i = 0; i < n; i++) {
     const jp = c.preds[i]![0]
-    if (jp !== undefined && end[jp] === start[i]) { why[i] = Why.Predecessor; blocker[i] = jp }
-    else if (benchPred[i]! >= 0 && end[benchPred[i]!] === start[i]) { why[i] = Why.Bench; blocker[i] = benchPred[i]! }
-    else if (personPred[i]! >= 0 && end[personPred[i]!] === start[i]) { why[i] = Why.Person; blocker[i] = personPred[i]! }
-    else if (start[i] === now) why[i] = Why.Now
+    if (jp !== undefined && end[jp] === start[i]) {
+      why[i] = Why.Predecessor
+      blocker[i] = jp
+    } else if (benchPred[i]! >= 0 && end[benchPred[i]!] === start[i]) {
+      why[i] = Why.Bench
+      blocker[i] = benchPred[i]!
+    } else if (personPred[i]! >= 0 && end[personPred[i]!] === start[i]) {
+      why[i] = Why.Person
+      blocker[i] = personPred[i]!
+    } else if (start[i] === now) why[i] = Why.Now
     else why[i] = Why.Release
     makespan = Math.max(makespan, end[i]!)
     const j = c.jobOf[i]!
     completion[j] = Math.max(completion[j]!, end[i]!)
   }
   let weightedTardiness = 0
-  c.jobs.forEach((job, j) => { if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due) })
-  return { start, end, option, segments, why, blocker, overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1, brokenPins: 0, completion, weightedTardiness, makespan, moves: 0, shifted: 0 }
+  c.jobs.forEach((job, j) => {
+    if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
+  })
+  return {
+    start,
+    end,
+    option,
+    segments,
+    why,
+    blocker,
+    overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1,
+    brokenPins: 0,
+    completion,
+    weightedTardiness,
+    makespan,
+    moves: 0,
+    shifted: 0,
+  }
 }

@@ -37,8 +37,13 @@ const merged = (list: Interval[]): Interval[] => {
 /** Is [s, e) inside the available time of the list? */
 const covered = (list: Interval[], s: number, e: number): boolean => {
   const m = merged(list)
-  let lo = 0, hi = m.length
-  while (lo < hi) { const mid = (lo + hi) >> 1; if (m[mid]!.end > s) hi = mid; else lo = mid + 1 }
+  let lo = 0,
+    hi = m.length
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1
+    if (m[mid]!.end > s) hi = mid
+    else lo = mid + 1
+  }
   const w = m[lo]
   return w !== undefined && w.start <= s && e <= w.end
 }
@@ -53,7 +58,8 @@ const everyOperationPlannedOnce: Rule = ({ problem, plan, ops }) => {
     if (op.done && k > 0) out.push(violation('done work is not planned again', ref(op), `${op.name} is done but appears in the plan`))
     if (!op.done && k !== 1) out.push(violation('every operation planned once', ref(op), `${op.name} is planned ${k} times`))
   }
-  for (const id of count.keys()) if (!ops.has(id)) out.push(violation('every operation planned once', { operationId: id, name: id }, `the plan contains unknown operation ${id}`))
+  for (const id of count.keys())
+    if (!ops.has(id)) out.push(violation('every operation planned once', { operationId: id, name: id }, `the plan contains unknown operation ${id}`))
   return out
 }
 
@@ -66,10 +72,11 @@ const allowedBenchAndPerson: Rule = ({ plan, ops, benches, people }) => {
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
     if (!op) continue
-    const bench = p.benchId !== null ? benches.get(p.benchId)?.name ?? p.benchId : null
-    const person = p.personId !== null ? people.get(p.personId)?.name ?? p.personId : null
+    const bench = p.benchId !== null ? (benches.get(p.benchId)?.name ?? p.benchId) : null
+    const person = p.personId !== null ? (people.get(p.personId)?.name ?? p.personId) : null
     if (op.fixed) {
-      if (p.benchId !== op.fixed.benchId || p.personId !== op.fixed.personId) out.push(rules.allowedPair(ref(op), { bench, person, why: 'it is pinned to another bench and person' }))
+      if (p.benchId !== op.fixed.benchId || p.personId !== op.fixed.personId)
+        out.push(rules.allowedPair(ref(op), { bench, person, why: 'it is pinned to another bench and person' }))
     } else if (isOutside(op)) {
       if (p.benchId !== null || p.personId !== null) out.push(rules.outsideWork(ref(op), { why: 'it takes no bench and no person' }))
     } else if (!op.options.some((o) => o.benchId === p.benchId && o.personId === p.personId)) {
@@ -89,16 +96,25 @@ const segmentsAddUp: Rule = ({ plan, ops }) => {
   for (const p of plan.operations) {
     const op = ops.get(p.operationId)
     if (!op) continue
-    const bad = (why: string): void => { out.push(violation('work adds up', ref(op), `${op.name}: ${why}`)) }
+    const bad = (why: string): void => {
+      out.push(violation('work adds up', ref(op), `${op.name}: ${why}`))
+    }
     const segs = p.segments
-    if (segs.length === 0) { bad('has no worked segments'); continue }
+    if (segs.length === 0) {
+      bad('has no worked segments')
+      continue
+    }
     let ordered = true
     for (let i = 0; i < segs.length; i++) {
       const s = segs[i]!
       if (s.end < s.start || (i > 0 && s.start < segs[i - 1]!.end)) ordered = false
     }
-    if (!ordered) { bad('segments overlap or run backwards'); continue }
-    if (segs[0]!.start !== p.start || segs[segs.length - 1]!.end !== p.end) bad(`segments span ${segs[0]!.start}–${segs[segs.length - 1]!.end} but the operation says ${p.start}–${p.end}`)
+    if (!ordered) {
+      bad('segments overlap or run backwards')
+      continue
+    }
+    if (segs[0]!.start !== p.start || segs[segs.length - 1]!.end !== p.end)
+      bad(`segments span ${segs[0]!.start}–${segs[segs.length - 1]!.end} but the operation says ${p.start}–${p.end}`)
     if (op.fixed || isOutside(op)) continue
     const worked = segs.reduce((a, s) => a + (s.end - s.start), 0)
     const option = op.options.find((o) => o.benchId === p.benchId && o.personId === p.personId)
@@ -157,14 +173,15 @@ const resumesAtNextWorkingTime: Rule = ({ problem, plan, ops, benches, people })
     const b = p.benchId !== null ? benches.get(p.benchId)?.available : undefined
     const w = p.personId !== null ? people.get(p.personId)?.available : undefined
     for (let i = 1; i < p.segments.length; i++) {
-      const gapStart = p.segments[i - 1]!.end, gapEnd = Math.min(p.segments[i]!.start, problem.horizon)
+      const gapStart = p.segments[i - 1]!.end,
+        gapEnd = Math.min(p.segments[i]!.start, problem.horizon)
       if (gapEnd <= gapStart) continue
       const joint: Interval[] = []
       for (const x of within(b, gapStart, gapEnd)) for (const y of within(w, x.start, x.end)) joint.push(y)
       if (joint.length === 0) continue
       const others = [
-        ...(p.benchId !== null ? busy.benchId.get(p.benchId) ?? [] : []),
-        ...(p.personId !== null ? busy.personId.get(p.personId) ?? [] : []),
+        ...(p.benchId !== null ? (busy.benchId.get(p.benchId) ?? []) : []),
+        ...(p.personId !== null ? (busy.personId.get(p.personId) ?? []) : []),
       ].filter((x) => x.id !== op.id && x.s < gapEnd && x.e > gapStart)
       let free = 0
       for (const j of joint) {
@@ -177,38 +194,66 @@ const resumesAtNextWorkingTime: Rule = ({ problem, plan, ops, benches, people })
         }
         if (t < j.end) free += j.end - t
       }
-      if (free > 0) out.push(violation('work resumes only at next working time', ref(op), `${op.name} pauses ${gapStart}–${p.segments[i]!.start} although bench and person are both at work and free for ${free} min of it`))
-      else out.push(violation('work is interrupted only by the end of working time', ref(op), `${op.name} pauses ${gapStart}–${p.segments[i]!.start} while its bench and person work on other steps in their joint working time`))
+      if (free > 0)
+        out.push(
+          violation(
+            'work resumes only at next working time',
+            ref(op),
+            `${op.name} pauses ${gapStart}–${p.segments[i]!.start} although bench and person are both at work and free for ${free} min of it`,
+          ),
+        )
+      else
+        out.push(
+          violation(
+            'work is interrupted only by the end of working time',
+            ref(op),
+            `${op.name} pauses ${gapStart}–${p.segments[i]!.start} while its bench and person work on other steps in their joint working time`,
+          ),
+        )
     }
   }
   return out
 }
 
 /** Overlap check shared by benches and people. */
-const noDoubleBooking = (which: 'benchId' | 'personId'): Rule => ({ plan, ops, benches, people }) => {
-  const out: Violation[] = []
-  const byResource = new Map<string, { s: number; e: number; id: string }[]>()
-  for (const p of plan.operations) {
-    const r = p[which]
-    if (r === null) continue
-    const list = byResource.get(r) ?? byResource.set(r, []).get(r)!
-    for (const s of p.segments) if (s.end > s.start) list.push({ s: s.start, e: s.end, id: p.operationId })
-  }
-  for (const [r, list] of byResource) {
-    list.sort((a, b) => a.s - b.s || a.e - b.e)
-    let reach = -Infinity, reachId = ''
-    for (const x of list) {
-      if (x.s < reach && x.id !== reachId) {
-        const op = ops.get(x.id)
-        const other = ops.get(reachId)
-        const name = which === 'benchId' ? benches.get(r)?.name ?? `bench ${r}` : people.get(r)?.name ?? `person ${r}`
-        out.push(rules.doubleBooking(op ? ref(op) : { operationId: x.id, name: x.id }, { resource: which === 'benchId' ? 'bench' : 'person', name, other: other ? ref(other) : { operationId: reachId, name: reachId }, from: x.s, to: Math.min(x.e, reach) }))
-      }
-      if (x.e > reach) { reach = x.e; reachId = x.id }
+const noDoubleBooking =
+  (which: 'benchId' | 'personId'): Rule =>
+  ({ plan, ops, benches, people }) => {
+    const out: Violation[] = []
+    const byResource = new Map<string, { s: number; e: number; id: string }[]>()
+    for (const p of plan.operations) {
+      const r = p[which]
+      if (r === null) continue
+      const list = byResource.get(r) ?? byResource.set(r, []).get(r)!
+      for (const s of p.segments) if (s.end > s.start) list.push({ s: s.start, e: s.end, id: p.operationId })
     }
+    for (const [r, list] of byResource) {
+      list.sort((a, b) => a.s - b.s || a.e - b.e)
+      let reach = -Infinity,
+        reachId = ''
+      for (const x of list) {
+        if (x.s < reach && x.id !== reachId) {
+          const op = ops.get(x.id)
+          const other = ops.get(reachId)
+          const name = which === 'benchId' ? (benches.get(r)?.name ?? `bench ${r}`) : (people.get(r)?.name ?? `person ${r}`)
+          out.push(
+            rules.doubleBooking(op ? ref(op) : { operationId: x.id, name: x.id }, {
+              resource: which === 'benchId' ? 'bench' : 'person',
+              name,
+              other: other ? ref(other) : { operationId: reachId, name: reachId },
+              from: x.s,
+              to: Math.min(x.e, reach),
+            }),
+          )
+        }
+        if (x.e > reach) {
+          reach = x.e
+          reachId = x.id
+        }
+      }
+    }
+    return out
   }
-  return out
-}
 
 /** Successors start after their predecessors end plus any wait-after (a done predecessor from when it finished, when known). */
 const routingOrder: Rule = ({ plan, ops, planned }) => {
@@ -222,7 +267,13 @@ const routingOrder: Rule = ({ plan, ops, planned }) => {
       if (pred.done) {
         const finished = pred.finishedAt ?? pred.fixed?.end
         if (finished === undefined) continue
-        const v = rules.routingOrder(ref(op), { start: p.start, predecessor: pred.name, readyAt: finished + (pred.waitAfter ?? 0), waitAfter: pred.waitAfter ?? 0, finished: true })
+        const v = rules.routingOrder(ref(op), {
+          start: p.start,
+          predecessor: pred.name,
+          readyAt: finished + (pred.waitAfter ?? 0),
+          waitAfter: pred.waitAfter ?? 0,
+          finished: true,
+        })
         if (v) out.push(v)
         continue
       }
@@ -243,7 +294,8 @@ const releaseAndNow: Rule = ({ problem, plan, ops }) => {
     const op = ops.get(p.operationId)
     if (!op || op.fixed) continue
     const job = jobs.get(op.jobId)
-    if (job && p.start < job.release) out.push(violation('not before release', ref(op), `${op.name} starts at ${p.start}, before job ${job.name} is released at ${job.release}`))
+    if (job && p.start < job.release)
+      out.push(violation('not before release', ref(op), `${op.name} starts at ${p.start}, before job ${job.name} is released at ${job.release}`))
     const early = rules.notBeforeNow(ref(op), { start: p.start, now: problem.now })
     if (early) out.push(early)
   }
@@ -258,7 +310,13 @@ const pinnedStayPut: Rule = ({ plan, ops }) => {
     const f = op?.fixed
     if (!op || !f) continue
     if (p.start !== f.start || p.benchId !== f.benchId || p.personId !== f.personId || (f.end !== undefined && p.end !== f.end)) {
-      out.push(violation('pinned work stays put', ref(op), `${op.name} is pinned at ${f.start} on ${f.benchId ?? '-'} with ${f.personId ?? 'nobody'} but is planned at ${p.start} on ${p.benchId ?? '-'} with ${p.personId ?? 'nobody'}`))
+      out.push(
+        violation(
+          'pinned work stays put',
+          ref(op),
+          `${op.name} is pinned at ${f.start} on ${f.benchId ?? '-'} with ${f.personId ?? 'nobody'} but is planned at ${p.start} on ${p.benchId ?? '-'} with ${p.personId ?? 'nobody'}`,
+        ),
+      )
     }
   }
   return out
@@ -272,7 +330,12 @@ const outsideWorkingDays: Rule = ({ problem, plan, ops }) => {
     if (!op || !isOutside(op)) continue
     const days = problem.workshopDays.filter((d) => d.start >= p.start)
     const back = days[op.outsideWorkingDays! - 1]?.end
-    if (back === undefined || p.end !== back) out.push(rules.outsideWork(ref(op), { why: `away ${p.start}–${p.end}, but ${op.outsideWorkingDays} workshop days from ${p.start} end at ${back ?? 'beyond the calendar'}` }))
+    if (back === undefined || p.end !== back)
+      out.push(
+        rules.outsideWork(ref(op), {
+          why: `away ${p.start}–${p.end}, but ${op.outsideWorkingDays} workshop days from ${p.start} end at ${back ?? 'beyond the calendar'}`,
+        }),
+      )
   }
   return out
 }
@@ -281,7 +344,13 @@ const outsideWorkingDays: Rule = ({ problem, plan, ops }) => {
 const withinHorizon: Rule = ({ problem, plan, ops }) =>
   plan.operations
     .filter((p) => p.end > problem.horizon)
-    .map((p) => violation('within the horizon', { operationId: p.operationId, jobId: ops.get(p.operationId)?.jobId, name: ops.get(p.operationId)?.name ?? p.operationId }, `${ops.get(p.operationId)?.name ?? p.operationId} ends at ${p.end}, after the horizon ${problem.horizon}`))
+    .map((p) =>
+      violation(
+        'within the horizon',
+        { operationId: p.operationId, jobId: ops.get(p.operationId)?.jobId, name: ops.get(p.operationId)?.name ?? p.operationId },
+        `${ops.get(p.operationId)?.name ?? p.operationId} ends at ${p.end}, after the horizon ${problem.horizon}`,
+      ),
+    )
 
 /** Job completion, lateness and tardiness match the planned operations; every job with planned work has one summary. */
 const jobSummariesMatch: Rule = ({ problem, plan }) => {
@@ -290,7 +359,8 @@ const jobSummariesMatch: Rule = ({ problem, plan }) => {
   for (const p of plan.operations) ends.set(p.jobId, Math.max(ends.get(p.jobId) ?? -Infinity, p.end))
   const listed = new Set(plan.jobs.map((j) => j.jobId))
   const named = (id: string) => ({ jobId: id, name: problem.jobs.find((x) => x.id === id)?.name ?? id })
-  for (const id of ends.keys()) if (!listed.has(id)) out.push(violation('job summary matches', named(id), `job ${named(id).name} has planned work but no summary`))
+  for (const id of ends.keys())
+    if (!listed.has(id)) out.push(violation('job summary matches', named(id), `job ${named(id).name} has planned work but no summary`))
   for (const j of plan.jobs) {
     if (!ends.has(j.jobId)) out.push(violation('job summary matches', named(j.jobId), `job ${j.jobId} has a summary but nothing planned`))
     const found = problem.jobs.find((x) => x.id === j.jobId)
@@ -298,7 +368,14 @@ const jobSummariesMatch: Rule = ({ problem, plan }) => {
     if (!found || c === undefined) continue
     const job = found
     const lateness = job.due === null ? 0 : c - job.due
-    if (j.completion !== c || j.lateness !== lateness || j.tardiness !== Math.max(0, lateness)) out.push(violation('job summary matches', { jobId: j.jobId, name: job.name }, `job ${job.name}: summary says completion ${j.completion}, but its work ends at ${c}`))
+    if (j.completion !== c || j.lateness !== lateness || j.tardiness !== Math.max(0, lateness))
+      out.push(
+        violation(
+          'job summary matches',
+          { jobId: j.jobId, name: job.name },
+          `job ${job.name}: summary says completion ${j.completion}, but its work ends at ${c}`,
+        ),
+      )
   }
   return out
 }
@@ -323,7 +400,9 @@ const scoreTotalsMatch: Rule = ({ problem, plan, ops }) => {
   }
   const out: Violation[] = []
   const sc = plan.score
-  const say = (what: string, claimed: number, actual: number): void => { out.push(violation('score matches the plan', null, `the score says ${what} ${claimed}, the planned work gives ${actual}`)) }
+  const say = (what: string, claimed: number, actual: number): void => {
+    out.push(violation('score matches the plan', null, `the score says ${what} ${claimed}, the planned work gives ${actual}`))
+  }
   if (Math.abs(sc.weightedTardiness - wt) > 1e-6 * Math.max(1, wt)) say('weighted tardiness', sc.weightedTardiness, wt)
   if (sc.makespan !== makespan) say('makespan', sc.makespan, makespan)
   if (sc.moves !== moves) say('moves', sc.moves, moves)

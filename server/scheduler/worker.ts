@@ -21,5 +21,12 @@ try {
   post({ type: 'done', plan })
 } catch (e) {
   const err = e as Error & { code?: string; jobId?: string; operationId?: string }
-  post({ type: 'error', name: err.name, message: err.message, ...(err.code ? { code: err.code } : {}), ...(err.jobId ? { jobId: err.jobId } : {}), ...(err.operationId ? { operationId: err.operationId } : {}) })
+  post({
+    type: 'error',
+    name: err.name,
+    message: err.message,
+    ...(err.code ? { code: err.code } : {}),
+    ...(err.jobId ? { jobId: err.jobId } : {}),
+    ...(err.operationId ? { operationId: err.operationId } : {}),
+  })
 }

@@ -18,7 +18,10 @@ import { hashPassword } from './users'
 import { isUniqueViolation } from './versioned'
 
 /** How long links last; from the configuration (INVITE_LINK_HOURS, RESET_LINK_MINUTES). */
-export interface LinkLifetimes { inviteHours: number; resetMinutes: number }
+export interface LinkLifetimes {
+  inviteHours: number
+  resetMinutes: number
+}
 export const DEFAULT_LIFETIMES: LinkLifetimes = { inviteHours: 72, resetMinutes: 60 }
 
 export const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex')
@@ -30,7 +33,10 @@ export function newLinkToken() {
 }
 
 /** Where a request came in: the local port it reached and whether it came over https (the route reads them from the request). */
-export interface ArrivedAt { port: number | undefined; secure: boolean }
+export interface ArrivedAt {
+  port: number | undefined
+  secure: boolean
+}
 
 /** Where links point: the workshop's public address, else the address this server listens on (never the request's Host header). */
 export function linkBase(at: ArrivedAt, listenHost: string | undefined, publicUrl: string): string {
@@ -48,13 +54,24 @@ export const resetPath = (token: string) => `/new-password/${token}`
 const inviter = alias(users, 'inviter')
 
 export async function listInvitations(db: Db, workshopId: number, now = new Date()): Promise<Invitation[]> {
-  const rows = await db.select({ t: accountTokens, personName: people.name, invitedBy: inviter.name }).from(accountTokens)
-    .leftJoin(people, eq(people.id, accountTokens.personId)).leftJoin(inviter, eq(inviter.id, accountTokens.createdBy))
+  const rows = await db
+    .select({ t: accountTokens, personName: people.name, invitedBy: inviter.name })
+    .from(accountTokens)
+    .leftJoin(people, eq(people.id, accountTokens.personId))
+    .leftJoin(inviter, eq(inviter.id, accountTokens.createdBy))
     .where(and(eq(accountTokens.workshopId, workshopId), eq(accountTokens.kind, 'invite'), isNull(accountTokens.usedAt), isNull(accountTokens.withdrawnAt)))
     .orderBy(desc(accountTokens.createdAt), desc(accountTokens.id))
   return rows.map(({ t, personName, invitedBy }) => ({
-    id: t.id, email: t.email, name: t.name, role: t.role!, personId: t.personId, personName: personName ?? null,
-    createdAt: t.createdAt.toISOString(), expiresAt: t.expiresAt.toISOString(), expired: t.expiresAt.getTime() <= now.getTime(), invitedBy: invitedBy ?? null,
+    id: t.id,
+    email: t.email,
+    name: t.name,
+    role: t.role!,
+    personId: t.personId,
+    personName: personName ?? null,
+    createdAt: t.createdAt.toISOString(),
+    expiresAt: t.expiresAt.toISOString(),
+    expired: t.expiresAt.getTime() <= now.getTime(),
+    invitedBy: invitedBy ?? null,
   }))
 }
 
@@ -63,11 +80,32 @@ async function workshopOf(db: Db | Trx, workshopId: number) {
   return w!
 }
 
-async function sendInvitation(deps: Deps, actor: Actor, row: { id: number; email: string; name: string; role: string | null }, token: string, at: ArrivedAt, hours: number) {
+async function sendInvitation(
+  deps: Deps,
+  actor: Actor,
+  row: { id: number; email: string; name: string; role: string | null },
+  token: string,
+  at: ArrivedAt,
+  hours: number,
+) {
   const w = await workshopOf(deps.db, actor.workshopId)
   const link = `${linkBase(at, deps.listenHost, w.publicUrl)}${invitePath(token)}`
-  const mail = invitationMail({ workshopName: w.name, name: row.name, invitedBy: actor.name, roleLabel: ROLE_LABELS[row.role as keyof typeof ROLE_LABELS] ?? String(row.role), link, hours })
-  return sendRecorded(deps, { workshopId: actor.workshopId, to: row.email, kind: 'invitation', meta: { invitationId: row.id }, content: mail.sent, kept: mail.kept })
+  const mail = invitationMail({
+    workshopName: w.name,
+    name: row.name,
+    invitedBy: actor.name,
+    roleLabel: ROLE_LABELS[row.role as keyof typeof ROLE_LABELS] ?? String(row.role),
+    link,
+    hours,
+  })
+  return sendRecorded(deps, {
+    workshopId: actor.workshopId,
+    to: row.email,
+    kind: 'invitation',
+    meta: { invitationId: row.id },
+    content: mail.sent,
+    kept: mail.kept,
+  })
 }
 
 export async function invite(deps: Deps, actor: Actor, input: InvitationInput, at: ArrivedAt, life = DEFAULT_LIFETIMES) {
@@ -76,18 +114,47 @@ export async function invite(deps: Deps, actor: Actor, input: InvitationInput, a
     const [taken] = await tx.select({ id: users.id }).from(users).where(eq(users.email, input.email))
     if (taken) throw new AppError({ code: 'conflict', message: `${input.email} has an account already`, fields: { email: 'has an account already' } })
     await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.invitations}, ${actor.workshopId})`)
-    const [pending] = await tx.select({ id: accountTokens.id }).from(accountTokens)
-      .where(and(eq(accountTokens.workshopId, actor.workshopId), eq(accountTokens.kind, 'invite'), eq(accountTokens.email, input.email), isNull(accountTokens.usedAt), isNull(accountTokens.withdrawnAt)))
-    if (pending) throw new AppError({ code: 'conflict', message: `${input.email} is invited already; send that invitation again instead`, fields: { email: 'is invited already' }, details: { invitationId: pending.id } })
+    const [pending] = await tx
+      .select({ id: accountTokens.id })
+      .from(accountTokens)
+      .where(
+        and(
+          eq(accountTokens.workshopId, actor.workshopId),
+          eq(accountTokens.kind, 'invite'),
+          eq(accountTokens.email, input.email),
+          isNull(accountTokens.usedAt),
+          isNull(accountTokens.withdrawnAt),
+        ),
+      )
+    if (pending)
+      throw new AppError({
+        code: 'conflict',
+        message: `${input.email} is invited already; send that invitation again instead`,
+        fields: { email: 'is invited already' },
+        details: { invitationId: pending.id },
+      })
     if (input.personId) {
-      const [p] = await tx.select({ id: people.id, userId: people.userId }).from(people).where(and(eq(people.id, input.personId), eq(people.workshopId, actor.workshopId)))
+      const [p] = await tx
+        .select({ id: people.id, userId: people.userId })
+        .from(people)
+        .where(and(eq(people.id, input.personId), eq(people.workshopId, actor.workshopId)))
       if (!p) throw invalid('personId', 'is not a person of this workshop')
       if (p.userId) throw invalid('personId', 'has an account already')
     }
-    const [r] = await tx.insert(accountTokens).values({
-      workshopId: actor.workshopId, kind: 'invite', tokenHash: hash, email: input.email, name: input.name, role: input.role, personId: input.personId ?? null,
-      createdBy: actor.userId, expiresAt: new Date(Date.now() + life.inviteHours * 3_600_000),
-    }).returning()
+    const [r] = await tx
+      .insert(accountTokens)
+      .values({
+        workshopId: actor.workshopId,
+        kind: 'invite',
+        tokenHash: hash,
+        email: input.email,
+        name: input.name,
+        role: input.role,
+        personId: input.personId ?? null,
+        createdBy: actor.userId,
+        expiresAt: new Date(Date.now() + life.inviteHours * 3_600_000),
+      })
+      .returning()
     await audit(tx, actor, 'invite', 'user-invitation', r!.id, { email: input.email, role: input.role, personId: input.personId ?? null })
     return r!
   })
@@ -97,7 +164,11 @@ export async function invite(deps: Deps, actor: Actor, input: InvitationInput, a
 }
 
 async function pendingInvitation(tx: Trx, workshopId: number, id: number) {
-  const [r] = await tx.select().from(accountTokens).where(and(eq(accountTokens.id, id), eq(accountTokens.workshopId, workshopId), eq(accountTokens.kind, 'invite'))).for('update')
+  const [r] = await tx
+    .select()
+    .from(accountTokens)
+    .where(and(eq(accountTokens.id, id), eq(accountTokens.workshopId, workshopId), eq(accountTokens.kind, 'invite')))
+    .for('update')
   if (!r || r.withdrawnAt) throw notFound('Invitation')
   if (r.usedAt) throw new AppError({ code: 'conflict', message: `${r.name} has accepted the invitation already` })
   return r
@@ -108,7 +179,11 @@ export async function resendInvitation(deps: Deps, actor: Actor, id: number, at:
   const { token, hash } = newLinkToken()
   const row = await deps.db.transaction(async (tx) => {
     const r = await pendingInvitation(tx, actor.workshopId, id)
-    const [u] = await tx.update(accountTokens).set({ tokenHash: hash, expiresAt: new Date(Date.now() + life.inviteHours * 3_600_000) }).where(eq(accountTokens.id, r.id)).returning()
+    const [u] = await tx
+      .update(accountTokens)
+      .set({ tokenHash: hash, expiresAt: new Date(Date.now() + life.inviteHours * 3_600_000) })
+      .where(eq(accountTokens.id, r.id))
+      .returning()
     await audit(tx, actor, 'resend', 'user-invitation', r.id, { email: r.email })
     return u!
   })
@@ -129,41 +204,88 @@ type TokenRow = typeof accountTokens.$inferSelect
 
 /** Why a link cannot be used, or null when it can. */
 function refusal(r: TokenRow | undefined, now: Date): AppError | null {
-  if (!r) return new AppError({ code: 'not-found', message: 'This link is not valid. Check that it was copied whole, or ask for a new one.', details: { reason: 'unknown' } })
+  if (!r)
+    return new AppError({
+      code: 'not-found',
+      message: 'This link is not valid. Check that it was copied whole, or ask for a new one.',
+      details: { reason: 'unknown' },
+    })
   const gone = (message: string, reason: string) => new AppError({ code: 'not-found', status: 410, message, details: { reason } })
   if (r.usedAt) return gone('This link has been used already; each link works once. Sign in, or ask for a new link.', 'used')
-  if (r.withdrawnAt) return gone(r.kind === 'invite' ? 'This invitation was withdrawn; ask the workshop owner.' : 'A newer link was sent since; use the newest one.', 'withdrawn')
-  if (r.expiresAt.getTime() <= now.getTime()) return gone(r.kind === 'invite' ? 'This invitation has expired; ask the workshop owner to send it again.' : 'This link has expired; ask for a new one from the sign-in page.', 'expired')
+  if (r.withdrawnAt)
+    return gone(
+      r.kind === 'invite' ? 'This invitation was withdrawn; ask the workshop owner.' : 'A newer link was sent since; use the newest one.',
+      'withdrawn',
+    )
+  if (r.expiresAt.getTime() <= now.getTime())
+    return gone(
+      r.kind === 'invite'
+        ? 'This invitation has expired; ask the workshop owner to send it again.'
+        : 'This link has expired; ask for a new one from the sign-in page.',
+      'expired',
+    )
   return null
 }
 
 /** What a link is for (to show before the password is chosen). */
 export async function linkInfo(db: Db, token: string, now = new Date()): Promise<LinkInfo> {
-  const [row] = await db.select({ t: accountTokens, workshopName: workshops.name, userName: users.name, userActive: users.active }).from(accountTokens)
-    .innerJoin(workshops, eq(workshops.id, accountTokens.workshopId)).leftJoin(users, eq(users.id, accountTokens.userId))
+  const [row] = await db
+    .select({ t: accountTokens, workshopName: workshops.name, userName: users.name, userActive: users.active })
+    .from(accountTokens)
+    .innerJoin(workshops, eq(workshops.id, accountTokens.workshopId))
+    .leftJoin(users, eq(users.id, accountTokens.userId))
     .where(eq(accountTokens.tokenHash, sha256(token)))
   const no = refusal(row?.t, now)
   if (no) throw no
-  if (row!.t.kind === 'reset' && !row!.userActive) throw new AppError({ code: 'not-found', status: 410, message: 'This account has been switched off; ask the workshop owner.', details: { reason: 'switched-off' } })
-  return { kind: row!.t.kind, email: row!.t.email, name: row!.t.kind === 'reset' ? row!.userName ?? '' : row!.t.name, workshopName: row!.workshopName, expiresAt: row!.t.expiresAt.toISOString() }
+  if (row!.t.kind === 'reset' && !row!.userActive)
+    throw new AppError({
+      code: 'not-found',
+      status: 410,
+      message: 'This account has been switched off; ask the workshop owner.',
+      details: { reason: 'switched-off' },
+    })
+  return {
+    kind: row!.t.kind,
+    email: row!.t.email,
+    name: row!.t.kind === 'reset' ? (row!.userName ?? '') : row!.t.name,
+    workshopName: row!.workshopName,
+    expiresAt: row!.t.expiresAt.toISOString(),
+  }
 }
 
 /** Uses a link once: an invitation makes the account, a reset sets the new password. Returns the user to sign in. */
-export async function useLink(deps: Pick<Deps, 'db'>, token: string, password: string, now = new Date()): Promise<{ userId: number; kind: 'invite' | 'reset' }> {
+export async function useLink(
+  deps: Pick<Deps, 'db'>,
+  token: string,
+  password: string,
+  now = new Date(),
+): Promise<{ userId: number; kind: 'invite' | 'reset' }> {
   const passwordHash = await hashPassword(password)
   return deps.db.transaction(async (tx) => {
-    const [r] = await tx.select().from(accountTokens).where(eq(accountTokens.tokenHash, sha256(token))).for('update')
+    const [r] = await tx
+      .select()
+      .from(accountTokens)
+      .where(eq(accountTokens.tokenHash, sha256(token)))
+      .for('update')
     const no = refusal(r, now)
     if (no) throw no
     const t = r!
     if (t.kind === 'invite') {
-      const [u] = await tx.insert(users).values({ workshopId: t.workshopId, email: t.email, name: t.name, role: t.role!, passwordHash }).returning({ id: users.id }).catch((e) => {
-        throw isUniqueViolation(e) ? new AppError({ code: 'conflict', message: `${t.email} has an account already; sign in instead` }) : e
-      })
+      const [u] = await tx
+        .insert(users)
+        .values({ workshopId: t.workshopId, email: t.email, name: t.name, role: t.role!, passwordHash })
+        .returning({ id: users.id })
+        .catch((e) => {
+          throw isUniqueViolation(e) ? new AppError({ code: 'conflict', message: `${t.email} has an account already; sign in instead` }) : e
+        })
       const userId = u!.id
       let personId: number | null = null
       if (t.personId) {
-        const linked = await tx.update(people).set({ userId, version: sql`${people.version} + 1` }).where(and(eq(people.id, t.personId), isNull(people.userId))).returning({ id: people.id })
+        const linked = await tx
+          .update(people)
+          .set({ userId, version: sql`${people.version} + 1` })
+          .where(and(eq(people.id, t.personId), isNull(people.userId)))
+          .returning({ id: people.id })
         personId = linked[0]?.id ?? null
       }
       await tx.update(accountTokens).set({ usedAt: now, userId }).where(eq(accountTokens.id, t.id))
@@ -172,11 +294,25 @@ export async function useLink(deps: Pick<Deps, 'db'>, token: string, password: s
       return { userId, kind: 'invite' as const }
     }
     const [u] = await tx.select().from(users).where(eq(users.id, t.userId!))
-    if (!u || !u.active) throw new AppError({ code: 'not-found', status: 410, message: 'This account has been switched off; ask the workshop owner.', details: { reason: 'switched-off' } })
-    await tx.update(users).set({ passwordHash, version: sql`${users.version} + 1`, updatedAt: now }).where(eq(users.id, u.id))
+    if (!u || !u.active)
+      throw new AppError({
+        code: 'not-found',
+        status: 410,
+        message: 'This account has been switched off; ask the workshop owner.',
+        details: { reason: 'switched-off' },
+      })
+    await tx
+      .update(users)
+      .set({ passwordHash, version: sql`${users.version} + 1`, updatedAt: now })
+      .where(eq(users.id, u.id))
     await tx.update(accountTokens).set({ usedAt: now }).where(eq(accountTokens.id, t.id))
-    await tx.update(accountTokens).set({ withdrawnAt: now }).where(and(eq(accountTokens.userId, u.id), eq(accountTokens.kind, 'reset'), isNull(accountTokens.usedAt), isNull(accountTokens.withdrawnAt)))
-    await audit(tx, { userId: u.id, workshopId: u.workshopId, role: u.role, personId: null, name: u.name }, 'reset-password', 'user', u.id, { by: 'e-mail link' })
+    await tx
+      .update(accountTokens)
+      .set({ withdrawnAt: now })
+      .where(and(eq(accountTokens.userId, u.id), eq(accountTokens.kind, 'reset'), isNull(accountTokens.usedAt), isNull(accountTokens.withdrawnAt)))
+    await audit(tx, { userId: u.id, workshopId: u.workshopId, role: u.role, personId: null, name: u.name }, 'reset-password', 'user', u.id, {
+      by: 'e-mail link',
+    })
     return { userId: u.id, kind: 'reset' as const }
   })
 }
@@ -186,18 +322,47 @@ export async function useLink(deps: Pick<Deps, 'db'>, token: string, password: s
  * same either way (and does not wait for this), so the answer tells nobody which addresses have accounts.
  */
 export async function requestReset(deps: Deps, email: string, at: ArrivedAt, life = DEFAULT_LIFETIMES) {
-  const [u] = await deps.db.select({ id: users.id, name: users.name, role: users.role, workshopId: users.workshopId, active: users.active }).from(users).where(eq(users.email, email))
+  const [u] = await deps.db
+    .select({ id: users.id, name: users.name, role: users.role, workshopId: users.workshopId, active: users.active })
+    .from(users)
+    .where(eq(users.email, email))
   if (!u || !u.active) return null
   const { token, hash } = newLinkToken()
   const now = new Date()
   await deps.db.transaction(async (tx) => {
     // Only the newest link works.
-    await tx.update(accountTokens).set({ withdrawnAt: now }).where(and(eq(accountTokens.userId, u.id), eq(accountTokens.kind, 'reset'), isNull(accountTokens.usedAt), isNull(accountTokens.withdrawnAt), gt(accountTokens.expiresAt, now)))
-    const [r] = await tx.insert(accountTokens).values({ workshopId: u.workshopId, kind: 'reset', tokenHash: hash, email, userId: u.id, expiresAt: new Date(now.getTime() + life.resetMinutes * 60_000) }).returning({ id: accountTokens.id })
+    await tx
+      .update(accountTokens)
+      .set({ withdrawnAt: now })
+      .where(
+        and(
+          eq(accountTokens.userId, u.id),
+          eq(accountTokens.kind, 'reset'),
+          isNull(accountTokens.usedAt),
+          isNull(accountTokens.withdrawnAt),
+          gt(accountTokens.expiresAt, now),
+        ),
+      )
+    const [r] = await tx
+      .insert(accountTokens)
+      .values({
+        workshopId: u.workshopId,
+        kind: 'reset',
+        tokenHash: hash,
+        email,
+        userId: u.id,
+        expiresAt: new Date(now.getTime() + life.resetMinutes * 60_000),
+      })
+      .returning({ id: accountTokens.id })
     await audit(tx, { userId: u.id, workshopId: u.workshopId, role: u.role, personId: null, name: u.name }, 'request-reset', 'user', u.id, { linkId: r!.id })
   })
   const w = await workshopOf(deps.db, u.workshopId)
-  const mail = resetMail({ workshopName: w.name, name: u.name, link: `${linkBase(at, deps.listenHost, w.publicUrl)}${resetPath(token)}`, minutes: life.resetMinutes })
+  const mail = resetMail({
+    workshopName: w.name,
+    name: u.name,
+    link: `${linkBase(at, deps.listenHost, w.publicUrl)}${resetPath(token)}`,
+    minutes: life.resetMinutes,
+  })
   return sendRecorded(deps, { workshopId: u.workshopId, to: email, kind: 'password-reset', content: mail.sent, kept: mail.kept })
 }
 
@@ -208,7 +373,9 @@ export async function requestReset(deps: Deps, email: string, at: ArrivedAt, lif
 export async function endUserSessions(deps: Pick<Deps, 'db' | 'realtime' | 'cache'>, userId: number): Promise<number> {
   let ended = 0
   try {
-    const r = await deps.db.execute(sql`delete from user_sessions where (sess::jsonb -> 'passport' ->> 'user') = ${String(userId)} and (sess::jsonb -> 'station') is null`)
+    const r = await deps.db.execute(
+      sql`delete from user_sessions where (sess::jsonb -> 'passport' ->> 'user') = ${String(userId)} and (sess::jsonb -> 'station') is null`,
+    )
     ended = (r as { rowCount?: number | null }).rowCount ?? 0
   } catch (err) {
     // No session was ever stored: nothing to end.

@@ -18,23 +18,56 @@ import { actualMinutesByOperation, effectiveRecords } from './time-records'
 import type { BoardActual, BoardPlanned } from '../../shared/schemas/board'
 
 export interface BoardItem {
-  id: number; jobBagId: number; jobBagNumber: string; piece: string; orderId: number; orderNumber: string; customerName: string; name: string
-  kind: string; kindName: string; color: string; hazards: string[]; outside: boolean; status: string
-  benchId: number | null; personId: number | null; start: string; end: string; pinned: boolean; version: number
-  estimateMinutes: number; requiredLevel: number; reason: StartReason | null; late: boolean
+  id: number
+  jobBagId: number
+  jobBagNumber: string
+  piece: string
+  orderId: number
+  orderNumber: string
+  customerName: string
+  name: string
+  kind: string
+  kindName: string
+  color: string
+  hazards: string[]
+  outside: boolean
+  status: string
+  benchId: number | null
+  personId: number | null
+  start: string
+  end: string
+  pinned: boolean
+  version: number
+  estimateMinutes: number
+  requiredLevel: number
+  reason: StartReason | null
+  late: boolean
   /** The plan's times for the step (a finished step keeps the plan it had). */
   planned: BoardPlanned | null
   /** What happened, from the time records; null for work not started. */
   actual: BoardActual | null
 }
 export interface BoardJob {
-  jobBagId: number; number: string; piece: string; orderNumber: string; customerName: string; due: string; expectedCompletion: string | null
-  latenessMinutes: number; lateWorkingMinutes: number; state: 'late' | 'at-risk' | 'on-time' | 'unplanned'; reason: string | null
+  jobBagId: number
+  number: string
+  piece: string
+  orderNumber: string
+  customerName: string
+  due: string
+  expectedCompletion: string | null
+  latenessMinutes: number
+  lateWorkingMinutes: number
+  state: 'late' | 'at-risk' | 'on-time' | 'unplanned'
+  reason: string | null
 }
 
 const AT_RISK_MINUTES = 8 * 60
 
-export interface SerialisedAnswer { json: string; gzip: Buffer; etag: string }
+export interface SerialisedAnswer {
+  json: string
+  gzip: Buffer
+  etag: string
+}
 
 /**
  * Serialised answers kept until the workshop changes (on any instance): the board is read far more often than the
@@ -43,22 +76,33 @@ export interface SerialisedAnswer { json: string; gzip: Buffer; etag: string }
  * than a change another instance committed.
  */
 export function cachedAnswer(cache: Cache | undefined, workshopId: number, key: string, load: () => Promise<unknown>): Promise<SerialisedAnswer> {
-  return cachedOr(cache, workshopId, key, async () => {
-    const json = JSON.stringify(await load())
-    // Compressed once here rather than on every answer.
-    return { json, gzip: gzipSync(json, { level: 6 }), etag: `"${createHash('sha1').update(json).digest('base64url')}"` }
-  }, { ttlMs: 60_000, verify: true })
+  return cachedOr(
+    cache,
+    workshopId,
+    key,
+    async () => {
+      const json = JSON.stringify(await load())
+      // Compressed once here rather than on every answer.
+      return { json, gzip: gzipSync(json, { level: 6 }), etag: `"${createHash('sha1').update(json).digest('base64url')}"` }
+    },
+    { ttlMs: 60_000, verify: true },
+  )
 }
 
 /** A plan's assignments as the board works on them: keyed and named as the engine names things (string ids), with a reason. */
 type Shown = { benchId: string | null; personId: string | null; start: string; end: string; reason: StartReason | null }
 const shown = (a: Assignments): Record<string, Shown> =>
-  Object.fromEntries([...a.values()].map((x) => [String(x.operationId), { benchId: engineId(x.benchId), personId: engineId(x.personId), start: x.start, end: x.end, reason: null }]))
+  Object.fromEntries(
+    [...a.values()].map((x) => [
+      String(x.operationId),
+      { benchId: engineId(x.benchId), personId: engineId(x.personId), start: x.start, end: x.end, reason: null },
+    ]),
+  )
 
 function windowsFor(data: PlanningData, benchId: string | null, personId: string | null): Interval[] | null {
   const b = benchId ? data.problem.benches.find((x) => x.id === benchId)?.available : null
   const p = personId ? data.problem.people.find((x) => x.id === personId)?.available : null
-  return b && p ? intersect(b, p) : b ?? p ?? null
+  return b && p ? intersect(b, p) : (b ?? p ?? null)
 }
 
 export async function boardData(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
@@ -66,7 +110,10 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const c = data.clock
   let assignments: Record<string, Shown>
   let plan: { id: number; number: number; status: string; publishedAt: string | null } | null = null
-  const [live] = await db.select().from(s.planVersions).where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
+  const [live] = await db
+    .select()
+    .from(s.planVersions)
+    .where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
   if (o.planId) {
     const p = await getPlan(db, workshopId, o.planId)
     assignments = shown(fromStored(p.assignments))
@@ -76,11 +123,13 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     if (live) plan = { id: live.id, number: live.number, status: live.status, publishedAt: live.publishedAt }
   }
   // Reasons come from the plan shown, as it is now (after moves by hand), never from when it was made.
-  const steps = Object.entries(assignments).filter(([id]) => data.meta.operations.has(id)).map(([id, a]) => ({ operationId: id, benchId: a.benchId, personId: a.personId, start: c.toMinute(a.start), end: c.toMinute(a.end) }))
+  const steps = Object.entries(assignments)
+    .filter(([id]) => data.meta.operations.has(id))
+    .map(([id, a]) => ({ operationId: id, benchId: a.benchId, personId: a.personId, start: c.toMinute(a.start), end: c.toMinute(a.end) }))
   const why = explainStarts(data.problem, steps)
   for (const [id, a] of Object.entries(assignments)) {
     const m = data.meta.operations.get(id)
-    a.reason = m?.op.status === 'running' ? { kind: 'fixed', detail: 'being worked on at the bench now' } : why.get(id) ?? null
+    a.reason = m?.op.status === 'running' ? { kind: 'fixed', detail: 'being worked on at the bench now' } : (why.get(id) ?? null)
   }
   const winStart = new Date(dayjs.tz(`${o.from} 00:00`, c.timeZone).valueOf())
   const winEnd = new Date(dayjs.tz(`${o.to} 00:00`, c.timeZone).add(1, 'day').valueOf())
@@ -95,7 +144,12 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     const cur = completion.get(m.bag.id)
     if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: a.reason?.detail ?? null })
   }
-  const customers = new Map((await db.select({ id: s.customers.id, name: s.customers.name }).from(s.customers).where(eq(s.customers.workshopId, workshopId))).map((x) => [x.id, x.name]))
+  const customers = new Map(
+    (await db.select({ id: s.customers.id, name: s.customers.name }).from(s.customers).where(eq(s.customers.workshopId, workshopId))).map((x) => [
+      x.id,
+      x.name,
+    ]),
+  )
   const now = o.now ?? new Date()
   const iso = (v: string | Date) => new Date(v).toISOString()
   const overlaps = (a: string | Date, b: string | Date) => new Date(b) > winStart && new Date(a) < winEnd
@@ -105,13 +159,22 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const runningRecords = await effectiveRecords(db, runningIds, now)
   const items: BoardItem[] = []
   for (const [id, m] of data.meta.operations) {
-    const due = dayjs.tz(`${m.order.promisedDate ?? m.order.dueDate} 00:00`, c.timeZone).add(1, 'day').valueOf()
+    const due = dayjs
+      .tz(`${m.order.promisedDate ?? m.order.dueDate} 00:00`, c.timeZone)
+      .add(1, 'day')
+      .valueOf()
     if (!jobs.has(m.bag.id)) {
       const comp = completion.get(m.bag.id)
       const lateness = comp ? Math.round((comp.end - due) / 60_000) : 0
       jobs.set(m.bag.id, {
-        jobBagId: m.bag.id, number: m.bag.number, piece: m.bag.piece, orderNumber: m.order.number, customerName: customers.get(m.order.customerId) ?? '', due: m.order.promisedDate ?? m.order.dueDate,
-        expectedCompletion: comp ? new Date(comp.end).toISOString() : null, latenessMinutes: lateness,
+        jobBagId: m.bag.id,
+        number: m.bag.number,
+        piece: m.bag.piece,
+        orderNumber: m.order.number,
+        customerName: customers.get(m.order.customerId) ?? '',
+        due: m.order.promisedDate ?? m.order.dueDate,
+        expectedCompletion: comp ? new Date(comp.end).toISOString() : null,
+        latenessMinutes: lateness,
         lateWorkingMinutes: comp ? workingMinutesBetween(data.meta.open, c.toMinute(new Date(due)), c.toMinute(new Date(comp.end))) : 0,
         state: !comp ? 'unplanned' : lateness > 0 ? 'late' : lateness > -AT_RISK_MINUTES ? 'at-risk' : 'on-time',
         reason: comp?.reason ?? null,
@@ -124,7 +187,8 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     // Running work stays on the board even when no plan placed it (started before any plan was published).
     const a = assignments[id] ?? (running && mine.length ? null : undefined)
     if (a === undefined) continue
-    let start = a?.start ?? '', end = a?.end ?? ''
+    let start = a?.start ?? '',
+      end = a?.end ?? ''
     let actual: BoardActual | null = null
     let benchId = a?.benchId ? Number(a.benchId) : null
     let personId = a?.personId ? Number(a.personId) : null
@@ -145,32 +209,71 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     }
     if (!overlaps(start, end)) continue
     items.push({
-      id: m.op.id, jobBagId: m.bag.id, jobBagNumber: m.bag.number, piece: m.bag.piece, orderId: m.order.id, orderNumber: m.order.number, customerName: customers.get(m.order.customerId) ?? '', name: m.op.name,
-      kind: m.kind.code, kindName: m.kind.name, color: m.kind.color, hazards: m.kind.hazards, outside: m.kind.outside || m.op.leadDays > 0, status: m.op.status,
-      benchId, personId, start, end,
-      pinned: m.op.pinned, version: m.op.version, estimateMinutes: m.op.estimateMinutes, requiredLevel: m.op.requiredLevel,
-      reason: a?.reason ?? (running ? { kind: 'fixed', detail: 'being worked on at the bench now' } : null), late: new Date(a?.end ?? end).getTime() > due,
-      planned: a ? { start: iso(a.start), end: iso(a.end) } : null, actual,
+      id: m.op.id,
+      jobBagId: m.bag.id,
+      jobBagNumber: m.bag.number,
+      piece: m.bag.piece,
+      orderId: m.order.id,
+      orderNumber: m.order.number,
+      customerName: customers.get(m.order.customerId) ?? '',
+      name: m.op.name,
+      kind: m.kind.code,
+      kindName: m.kind.name,
+      color: m.kind.color,
+      hazards: m.kind.hazards,
+      outside: m.kind.outside || m.op.leadDays > 0,
+      status: m.op.status,
+      benchId,
+      personId,
+      start,
+      end,
+      pinned: m.op.pinned,
+      version: m.op.version,
+      estimateMinutes: m.op.estimateMinutes,
+      requiredLevel: m.op.requiredLevel,
+      reason: a?.reason ?? (running ? { kind: 'fixed', detail: 'being worked on at the bench now' } : null),
+      late: new Date(a?.end ?? end).getTime() > due,
+      planned: a ? { start: iso(a.start), end: iso(a.end) } : null,
+      actual,
     })
   }
   // Job bags the planner leaves out (metal waiting for the deposit): listed as unplanned, with why.
   for (const h of data.meta.held) {
     jobs.set(h.bag.id, {
-      jobBagId: h.bag.id, number: h.bag.number, piece: h.bag.piece, orderNumber: h.order.number, customerName: customers.get(h.order.customerId) ?? '', due: h.order.promisedDate ?? h.order.dueDate,
-      expectedCompletion: null, latenessMinutes: 0, lateWorkingMinutes: 0, state: 'unplanned', reason: h.reason,
+      jobBagId: h.bag.id,
+      number: h.bag.number,
+      piece: h.bag.piece,
+      orderNumber: h.order.number,
+      customerName: customers.get(h.order.customerId) ?? '',
+      due: h.order.promisedDate ?? h.order.dueDate,
+      expectedCompletion: null,
+      latenessMinutes: 0,
+      lateWorkingMinutes: 0,
+      state: 'unplanned',
+      reason: h.reason,
     })
   }
   items.push(...(await finishedItems(db, workshopId, winStart, winEnd, now, customers)))
   // Bench rows know what they can host and people rows what they are skilled for (moving a bar up or down a row by keyboard).
   const kindCode = (kindId: number) => data.meta.kinds.get(kindId)?.code ?? ''
   const toIso = (m: number) => c.toDate(m).toISOString()
-  const ws = c.toMinute(winStart), we = c.toMinute(winEnd)
+  const ws = c.toMinute(winStart),
+    we = c.toMinute(winEnd)
   return {
     window: { from: o.from, to: o.to, timeZone: c.timeZone },
     now: (o.now ?? new Date()).toISOString(),
     plan,
-    benches: [...data.meta.benches.values()].map((b) => ({ id: b.id, name: b.name, kind: b.kind, kinds: data.meta.capabilities.filter((x) => x.benchId === b.id).map((x) => kindCode(x.kindId)) })),
-    people: [...data.meta.people.values()].map((p) => ({ id: p.id, name: p.name, skills: Object.fromEntries(data.meta.skills.filter((x) => x.personId === p.id).map((x) => [kindCode(x.kindId), x.level])) })),
+    benches: [...data.meta.benches.values()].map((b) => ({
+      id: b.id,
+      name: b.name,
+      kind: b.kind,
+      kinds: data.meta.capabilities.filter((x) => x.benchId === b.id).map((x) => kindCode(x.kindId)),
+    })),
+    people: [...data.meta.people.values()].map((p) => ({
+      id: p.id,
+      name: p.name,
+      skills: Object.fromEntries(data.meta.skills.filter((x) => x.personId === p.id).map((x) => [kindCode(x.kindId), x.level])),
+    })),
     items,
     jobs: [...jobs.values()].sort((a, b) => a.due.localeCompare(b.due)),
     nonWorking: data.meta.nonWorking.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
@@ -189,7 +292,8 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
 async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd: Date, now: Date, customers: Map<number, string>): Promise<BoardItem[]> {
   // Candidates by the records as written, with a week's slack either side for corrections that moved them.
   const slack = 7 * 86_400_000
-  const from = new Date(winStart.getTime() - slack).toISOString(), to = new Date(winEnd.getTime() + slack).toISOString()
+  const from = new Date(winStart.getTime() - slack).toISOString(),
+    to = new Date(winEnd.getTime() + slack).toISOString()
   const withRecords = await db
     .select({ id: s.operations.id })
     .from(s.timeRecords)
@@ -203,8 +307,17 @@ async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd:
     .from(s.operations)
     .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
     .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
-    .where(and(eq(s.jobBags.workshopId, workshopId), eq(s.operations.status, 'done'), isNotNull(s.operations.plannedStart), isNotNull(s.operations.finishedAt),
-      sql`(${s.operationKinds.outside} or ${s.operations.leadDays} > 0)`, sql`${s.operations.plannedStart} < ${winEnd.toISOString()}`, sql`${s.operations.finishedAt} > ${winStart.toISOString()}`))
+    .where(
+      and(
+        eq(s.jobBags.workshopId, workshopId),
+        eq(s.operations.status, 'done'),
+        isNotNull(s.operations.plannedStart),
+        isNotNull(s.operations.finishedAt),
+        sql`(${s.operationKinds.outside} or ${s.operations.leadDays} > 0)`,
+        sql`${s.operations.plannedStart} < ${winEnd.toISOString()}`,
+        sql`${s.operations.finishedAt} > ${winStart.toISOString()}`,
+      ),
+    )
   const ids = [...new Set([...withRecords, ...outsideDone].map((x) => x.id))]
   if (!ids.length) return []
   const rows = await db
@@ -221,11 +334,18 @@ async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd:
     const outside = kind.outside || op.leadDays > 0
     const mine = records.filter((r) => r.operationId === op.id)
     let actual: BoardActual
-    let benchId = op.plannedBenchId, personId = op.plannedPersonId
+    let benchId = op.plannedBenchId,
+      personId = op.plannedPersonId
     if (mine.length) {
       const start = mine.reduce((x, r) => (Date.parse(r.startedAt) < Date.parse(x) ? r.startedAt : x), mine[0]!.startedAt)
       const last = mine.reduce((x, r) => (Date.parse(r.endedAt ?? r.startedAt) > Date.parse(x.endedAt ?? x.startedAt) ? r : x), mine[0]!)
-      actual = { start: new Date(start).toISOString(), end: new Date(last.endedAt ?? last.startedAt).toISOString(), workedMinutes: worked.get(op.id) ?? 0, records: mine.length, fromRecords: true }
+      actual = {
+        start: new Date(start).toISOString(),
+        end: new Date(last.endedAt ?? last.startedAt).toISOString(),
+        workedMinutes: worked.get(op.id) ?? 0,
+        records: mine.length,
+        fromRecords: true,
+      }
       benchId = last.benchId ?? benchId
       personId = last.personId
     } else if (outside && op.plannedStart && op.finishedAt) {
@@ -233,10 +353,30 @@ async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd:
     } else continue
     if (!(Date.parse(actual.end!) > winStart.getTime() && Date.parse(actual.start) < winEnd.getTime())) continue
     out.push({
-      id: op.id, jobBagId: bag.id, jobBagNumber: bag.number, piece: bag.piece, orderId: order.id, orderNumber: order.number, customerName: customers.get(order.customerId) ?? '', name: op.name,
-      kind: kind.code, kindName: kind.name, color: kind.color, hazards: kind.hazards, outside, status: op.status,
-      benchId: outside ? null : benchId, personId: outside ? null : personId, start: actual.start, end: actual.end!,
-      pinned: op.pinned, version: op.version, estimateMinutes: op.estimateMinutes, requiredLevel: op.requiredLevel, reason: null, late: false,
+      id: op.id,
+      jobBagId: bag.id,
+      jobBagNumber: bag.number,
+      piece: bag.piece,
+      orderId: order.id,
+      orderNumber: order.number,
+      customerName: customers.get(order.customerId) ?? '',
+      name: op.name,
+      kind: kind.code,
+      kindName: kind.name,
+      color: kind.color,
+      hazards: kind.hazards,
+      outside,
+      status: op.status,
+      benchId: outside ? null : benchId,
+      personId: outside ? null : personId,
+      start: actual.start,
+      end: actual.end!,
+      pinned: op.pinned,
+      version: op.version,
+      estimateMinutes: op.estimateMinutes,
+      requiredLevel: op.requiredLevel,
+      reason: null,
+      late: false,
       planned: op.plannedStart && op.plannedEnd ? { start: new Date(op.plannedStart).toISOString(), end: new Date(op.plannedEnd).toISOString() } : null,
       actual,
     })
@@ -251,17 +391,28 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
   const assignments = shown(o.planId ? await readDraft(db, workshopId, o.planId) : (await readLivePlan(db, workshopId)).assignments)
   const days: string[] = []
   for (let d = dayjs(o.from); !d.isAfter(dayjs(o.to)); d = d.add(1, 'day')) days.push(d.format('YYYY-MM-DD'))
-  const dayIv = days.map((d) => ({ day: d, week: `${dayjs(d).isoWeekYear()}-W${String(dayjs(d).isoWeek()).padStart(2, '0')}`, start: c.at(d), end: c.at(dayjs(d).add(1, 'day').format('YYYY-MM-DD')) }))
+  const dayIv = days.map((d) => ({
+    day: d,
+    week: `${dayjs(d).isoWeekYear()}-W${String(dayjs(d).isoWeek()).padStart(2, '0')}`,
+    start: c.at(d),
+    end: c.at(dayjs(d).add(1, 'day').format('YYYY-MM-DD')),
+  }))
   const minutesIn = (list: Interval[], iv: { start: number; end: number }) => clipToWindows(list, iv.start, iv.end).reduce((t, x) => t + x.end - x.start, 0)
 
-  type Row = { type: 'bench' | 'skill'; id: number; name: string; cells: { day: string; week: string; plannedMinutes: number; availableMinutes: number; operationIds: number[] }[] }
+  type Row = {
+    type: 'bench' | 'skill'
+    id: number
+    name: string
+    cells: { day: string; week: string; plannedMinutes: number; availableMinutes: number; operationIds: number[] }[]
+  }
   const rows: Row[] = []
   const worked = new Map<string, Interval[]>()
   for (const [id, a] of Object.entries(assignments)) {
     const m = data.meta.operations.get(id)
     if (!m || m.op.status === 'done' || m.kind.outside || m.op.leadDays > 0) continue
     const w = windowsFor(data, a.benchId, a.personId)
-    const s0 = c.toMinute(a.start), e0 = c.toMinute(a.end)
+    const s0 = c.toMinute(a.start),
+      e0 = c.toMinute(a.end)
     worked.set(id, w ? clipToWindows(w, s0, e0) : [{ start: s0, end: e0 }])
   }
   for (const b of data.problem.benches) {
@@ -272,7 +423,10 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
       for (const [id, a] of Object.entries(assignments)) {
         if (a.benchId !== b.id || !worked.has(id)) continue
         const m = minutesIn(worked.get(id)!, iv)
-        if (m > 0) { planned += m; ids.push(Number(id)) }
+        if (m > 0) {
+          planned += m
+          ids.push(Number(id))
+        }
       }
       row.cells.push({ day: iv.day, week: iv.week, plannedMinutes: planned, availableMinutes: minutesIn(b.available, iv), operationIds: ids })
     }
@@ -289,7 +443,10 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
         const m = data.meta.operations.get(id)
         if (!m || m.op.kindId !== k.id || !worked.has(id)) continue
         const mins = minutesIn(worked.get(id)!, iv)
-        if (mins > 0) { planned += mins; ids.push(Number(id)) }
+        if (mins > 0) {
+          planned += mins
+          ids.push(Number(id))
+        }
       }
       // Available: the working time of everyone holding the skill (a person with several skills counts in each row).
       const available = data.problem.people.filter((p) => holders.includes(p.id)).reduce((t, p) => t + minutesIn(p.available, iv), 0)
@@ -298,5 +455,12 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
     rows.push(row)
   }
   const weeks = [...new Set(dayIv.map((d) => d.week))].map((week) => ({ week, days: dayIv.filter((d) => d.week === week).map((d) => d.day) }))
-  return { from: o.from, to: o.to, days, weeks, rows, planningLoad: (await db.select({ l: s.workshops.planningLoad }).from(s.workshops).where(eq(s.workshops.id, workshopId)))[0]?.l ?? 0.85 }
+  return {
+    from: o.from,
+    to: o.to,
+    days,
+    weeks,
+    rows,
+    planningLoad: (await db.select({ l: s.workshops.planningLoad }).from(s.workshops).where(eq(s.workshops.id, workshopId)))[0]?.l ?? 0.85,
+  }
 }

@@ -11,13 +11,32 @@ import { sql } from 'drizzle-orm'
 export async function getSettings(db: Db, workshopId: number) {
   const [w] = await db.select().from(workshops).where(eq(workshops.id, workshopId))
   if (!w) throw notFound('Workshop')
-  return { id: w.id, name: w.name, timeZone: w.timeZone, weekPattern: w.weekPattern, planningLoad: w.planningLoad, address: w.address, phone: w.phone, contactEmail: w.contactEmail, currency: w.currency, publicUrl: w.publicUrl, depositPct: w.depositPct, quoteValidDays: w.quoteValidDays, noMetalBeforeDeposit: w.noMetalBeforeDeposit, version: w.version }
+  return {
+    id: w.id,
+    name: w.name,
+    timeZone: w.timeZone,
+    weekPattern: w.weekPattern,
+    planningLoad: w.planningLoad,
+    address: w.address,
+    phone: w.phone,
+    contactEmail: w.contactEmail,
+    currency: w.currency,
+    publicUrl: w.publicUrl,
+    depositPct: w.depositPct,
+    quoteValidDays: w.quoteValidDays,
+    noMetalBeforeDeposit: w.noMetalBeforeDeposit,
+    version: w.version,
+  }
 }
 
 export async function updateSettings({ db, realtime }: Deps, actor: Actor, input: WorkshopSettingsInput) {
   const { version, ...values } = input
   await db.transaction(async (tx) => {
-    const r = await tx.update(workshops).set({ ...values, version: sql`${workshops.version} + 1` }).where(and(eq(workshops.id, actor.workshopId), eq(workshops.version, version))).returning()
+    const r = await tx
+      .update(workshops)
+      .set({ ...values, version: sql`${workshops.version} + 1` })
+      .where(and(eq(workshops.id, actor.workshopId), eq(workshops.version, version)))
+      .returning()
     if (!r.length) throw staleVersion('The workshop settings')
     await audit(tx, actor, 'update', 'workshop', actor.workshopId, values)
   })
@@ -30,7 +49,10 @@ export const listClosures = (db: Db, workshopId: number) =>
 
 export async function addClosure({ db, realtime }: Deps, actor: Actor, input: ClosureInput) {
   const c = await db.transaction(async (tx) => {
-    const [c] = await tx.insert(closures).values({ workshopId: actor.workshopId, ...input }).returning()
+    const [c] = await tx
+      .insert(closures)
+      .values({ workshopId: actor.workshopId, ...input })
+      .returning()
     await audit(tx, actor, 'create', 'closure', c!.id, input)
     return c!
   })
@@ -40,7 +62,10 @@ export async function addClosure({ db, realtime }: Deps, actor: Actor, input: Cl
 
 export async function removeClosure({ db, realtime }: Deps, actor: Actor, id: number) {
   await db.transaction(async (tx) => {
-    const r = await tx.delete(closures).where(and(eq(closures.id, id), eq(closures.workshopId, actor.workshopId))).returning()
+    const r = await tx
+      .delete(closures)
+      .where(and(eq(closures.id, id), eq(closures.workshopId, actor.workshopId)))
+      .returning()
     if (!r.length) throw notFound('Closure')
     await audit(tx, actor, 'delete', 'closure', id, {})
   })

@@ -2,8 +2,19 @@
 // ledger, stone counts, outside costs and time records — one function per side, all in integer minor units (shared/domain/costing.ts).
 import { and, asc, eq, inArray } from 'drizzle-orm'
 import {
-  WORKSHOP_MARGIN_PCT, addBreakdowns, mulDivRound, breakdown, labourMinor, margin, marginCaveat, metalActual, metalMinor, stonesMinor, suggestedPriceMinor,
-  type CostBreakdown, type Missing,
+  WORKSHOP_MARGIN_PCT,
+  addBreakdowns,
+  mulDivRound,
+  breakdown,
+  labourMinor,
+  margin,
+  marginCaveat,
+  metalActual,
+  metalMinor,
+  stonesMinor,
+  suggestedPriceMinor,
+  type CostBreakdown,
+  type Missing,
 } from '../../shared/domain/costing'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import { PIECE_METAL_ALLOY, gToMg, mgToG } from '../../shared/domain/metal'
@@ -12,15 +23,32 @@ import type { CostingEstimate, CostingEstimateInput, CostingSide, OrderCosting, 
 import type { PieceParams } from '../../shared/schemas/order'
 import type { Tx } from '../db/client'
 import {
-  alloyPrices, alloys, jobBagStones, jobBags, metalMovements, operationCosts, operationKinds, operations, orders, people, routingTemplates, stoneMovements,
-  templateStepCosts, templateSteps, workshops,
+  alloyPrices,
+  alloys,
+  jobBagStones,
+  jobBags,
+  metalMovements,
+  operationCosts,
+  operationKinds,
+  operations,
+  orders,
+  people,
+  routingTemplates,
+  stoneMovements,
+  templateStepCosts,
+  templateSteps,
+  workshops,
 } from '../db/schema/index'
 import { invalid, notFound } from '../errors/app-error'
 import { dayjs } from '../lib/time'
 import { actualMinutes } from './estimates'
 
 type Alloy = typeof alloys.$inferSelect
-interface StoneLine { count: number; costEachMinor: number | null; customerOwned: boolean }
+interface StoneLine {
+  count: number
+  costEachMinor: number | null
+  customerOwned: boolean
+}
 
 async function workshopOf(db: Tx, workshopId: number) {
   const [w] = await db.select({ tz: workshops.timeZone, currency: workshops.currency }).from(workshops).where(eq(workshops.id, workshopId))
@@ -30,7 +58,18 @@ async function workshopOf(db: Tx, workshopId: number) {
 /** Every price of the workshop's alloys, so a price on any day is found without a query per line. */
 async function priceBook(db: Tx, workshopId: number) {
   const list = await db.select().from(alloys).where(eq(alloys.workshopId, workshopId)).orderBy(asc(alloys.id))
-  const prices = list.length ? await db.select().from(alloyPrices).where(inArray(alloyPrices.alloyId, list.map((a) => a.id))).orderBy(asc(alloyPrices.effectiveOn), asc(alloyPrices.id)) : []
+  const prices = list.length
+    ? await db
+        .select()
+        .from(alloyPrices)
+        .where(
+          inArray(
+            alloyPrices.alloyId,
+            list.map((a) => a.id),
+          ),
+        )
+        .orderBy(asc(alloyPrices.effectiveOn), asc(alloyPrices.id))
+    : []
   return {
     alloys: list,
     /** The price in force on a day: the latest effective on or before it. */
@@ -90,7 +129,13 @@ async function averageRateMinor(db: Tx, workshopId: number) {
   const staff = await db.select({ id: people.id, rate: people.hourlyRateMinor, active: people.active }).from(people).where(eq(people.workshopId, workshopId))
   const active = staff.filter((p) => p.active).map((p) => p.rate)
   // The average of the rates (integer minor units), rounded once, half away from zero.
-  const average = active.length ? mulDivRound(active.reduce((s, x) => s + x, 0), 1, active.length) : 0
+  const average = active.length
+    ? mulDivRound(
+        active.reduce((s, x) => s + x, 0),
+        1,
+        active.length,
+      )
+    : 0
   return { average, rateOf: new Map(staff.map((p) => [p.id, p.rate])) }
 }
 
@@ -101,15 +146,28 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
   const book = await priceBook(db, workshopId)
   const { average } = await averageRateMinor(db, workshopId)
   const ids = [...new Set(input.pieces.map((p) => p.templateId))]
-  const templates = await db.select().from(routingTemplates).where(and(eq(routingTemplates.workshopId, workshopId), inArray(routingTemplates.id, ids)))
-  const steps = ids.length ? await db.select({ s: templateSteps, outside: operationKinds.outside }).from(templateSteps).innerJoin(operationKinds, eq(operationKinds.id, templateSteps.kindId))
-    .where(inArray(templateSteps.templateId, ids)).orderBy(asc(templateSteps.seq)) : []
+  const templates = await db
+    .select()
+    .from(routingTemplates)
+    .where(and(eq(routingTemplates.workshopId, workshopId), inArray(routingTemplates.id, ids)))
+  const steps = ids.length
+    ? await db
+        .select({ s: templateSteps, outside: operationKinds.outside })
+        .from(templateSteps)
+        .innerJoin(operationKinds, eq(operationKinds.id, templateSteps.kindId))
+        .where(inArray(templateSteps.templateId, ids))
+        .orderBy(asc(templateSteps.seq))
+    : []
   const costs = ids.length ? await db.select().from(templateStepCosts).where(inArray(templateStepCosts.templateId, ids)) : []
   const pieces: PieceEstimate[] = input.pieces.map((p, i) => {
     const t = templates.find((x) => x.id === p.templateId)
     if (!t) throw invalid(`pieces.${i}.templateId`, 'is not a routing of this workshop')
     const missing: Missing[] = []
-    let minutes = 0, labour = 0, outside = 0, outsideSteps = 0, uncosted = 0
+    let minutes = 0,
+      labour = 0,
+      outside = 0,
+      outsideSteps = 0,
+      uncosted = 0
     for (const { s, outside: isOutside } of steps.filter((x) => x.s.templateId === t.id)) {
       if (isOutside || s.leadDays > 0) {
         outsideSteps++
@@ -126,20 +184,40 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
     const metal = metalEstimate(book, p.params, day)
     const stones = stonesEstimate(p.params, p.stones)
     return {
-      piece: p.piece, quantity: p.params.quantity, metalWeightG: p.params.metalWeightG ?? null, alloyName: metal.alloyName, pricePerGramMinor: metal.pricePerGramMinor, priceOn: metal.priceOn,
-      labourMinutes: Math.round(minutes), cost: breakdown({ metalMinor: metal.minor, stonesMinor: stones.minor, outsideMinor: outside, labourMinor: labour }),
+      piece: p.piece,
+      quantity: p.params.quantity,
+      metalWeightG: p.params.metalWeightG ?? null,
+      alloyName: metal.alloyName,
+      pricePerGramMinor: metal.pricePerGramMinor,
+      priceOn: metal.priceOn,
+      labourMinutes: Math.round(minutes),
+      cost: breakdown({ metalMinor: metal.minor, stonesMinor: stones.minor, outsideMinor: outside, labourMinor: labour }),
       missing: [...metal.missing, ...stones.missing, ...missing],
     }
   })
   const cost = addBreakdowns(pieces.map((p) => p.cost))
   const priceMinor = input.priceQuotedMinor
   return {
-    priceMinor, estimate: side(cost, priceMinor, pieces.flatMap((p) => p.missing)), pieces,
-    marginTargetPct: WORKSHOP_MARGIN_PCT, suggestedPriceMinor: suggestedPriceMinor(cost.totalMinor, WORKSHOP_MARGIN_PCT, currency), currency, pricedOn: day,
+    priceMinor,
+    estimate: side(
+      cost,
+      priceMinor,
+      pieces.flatMap((p) => p.missing),
+    ),
+    pieces,
+    marginTargetPct: WORKSHOP_MARGIN_PCT,
+    suggestedPriceMinor: suggestedPriceMinor(cost.totalMinor, WORKSHOP_MARGIN_PCT, currency),
+    currency,
+    pricedOn: day,
   }
 }
 
-export interface CostedOrder extends OrderCosting { estimateMinutes: number; actualMinutes: number; outsideSteps: number; outsideUncosted: number }
+export interface CostedOrder extends OrderCosting {
+  estimateMinutes: number
+  actualMinutes: number
+  outsideSteps: number
+  outsideUncosted: number
+}
 
 /**
  * Orders at estimate and at actual. Estimate: each step's estimate minutes at the rate of whoever did it (else the person planned, else
@@ -150,35 +228,74 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
   const out = new Map<number, CostedOrder>()
   if (!orderIds.length) return out
   const { tz, currency } = await workshopOf(db, workshopId)
-  const localDay = (d: unknown) => dayjs(new Date(d as string)).tz(tz).format('YYYY-MM-DD')
+  const localDay = (d: unknown) =>
+    dayjs(new Date(d as string))
+      .tz(tz)
+      .format('YYYY-MM-DD')
   const book = await priceBook(db, workshopId)
   const { average, rateOf } = await averageRateMinor(db, workshopId)
-  const orderRows = await db.select().from(orders).where(and(eq(orders.workshopId, workshopId), inArray(orders.id, orderIds)))
+  const orderRows = await db
+    .select()
+    .from(orders)
+    .where(and(eq(orders.workshopId, workshopId), inArray(orders.id, orderIds)))
   const bags = await db.select().from(jobBags).where(inArray(jobBags.orderId, orderIds)).orderBy(asc(jobBags.id))
   const bagIds = [...bags.map((b) => b.id), -1]
-  const ops = await db.select({ op: operations, outside: operationKinds.outside }).from(operations).innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
-    .where(inArray(operations.jobBagId, bagIds)).orderBy(asc(operations.seq))
+  const ops = await db
+    .select({ op: operations, outside: operationKinds.outside })
+    .from(operations)
+    .innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
+    .where(inArray(operations.jobBagId, bagIds))
+    .orderBy(asc(operations.seq))
   const templateIds = [...new Set(bags.map((b) => b.templateId).filter((x): x is number => x !== null)), -1]
   const stepCosts = await db.select().from(templateStepCosts).where(inArray(templateStepCosts.templateId, templateIds))
   const opIds = [...ops.map((o) => o.op.id), -1]
   const opCosts = await db.select().from(operationCosts).where(inArray(operationCosts.operationId, opIds))
-  const { byOperation, records } = await actualMinutes(db, ops.filter((o) => o.op.status === 'done').map((o) => o.op.id))
-  const moves = await db.select().from(metalMovements).where(and(eq(metalMovements.workshopId, workshopId), inArray(metalMovements.jobBagId, bagIds)))
+  const { byOperation, records } = await actualMinutes(
+    db,
+    ops.filter((o) => o.op.status === 'done').map((o) => o.op.id),
+  )
+  const moves = await db
+    .select()
+    .from(metalMovements)
+    .where(and(eq(metalMovements.workshopId, workshopId), inArray(metalMovements.jobBagId, bagIds)))
     .orderBy(asc(metalMovements.recordedAt), asc(metalMovements.id))
   const lines = await db.select().from(jobBagStones).where(inArray(jobBagStones.jobBagId, bagIds)).orderBy(asc(jobBagStones.id))
-  const stoneMoves = lines.length ? await db.select().from(stoneMovements).where(inArray(stoneMovements.stoneLineId, lines.map((l) => l.id))) : []
+  const stoneMoves = lines.length
+    ? await db
+        .select()
+        .from(stoneMovements)
+        .where(
+          inArray(
+            stoneMovements.stoneLineId,
+            lines.map((l) => l.id),
+          ),
+        )
+    : []
 
   for (const order of orderRows) {
     const orderDay = localDay(order.createdAt)
-    const est: CostBreakdown[] = [], act: CostBreakdown[] = []
-    const missEst: Missing[] = [], missAct: Missing[] = []
+    const est: CostBreakdown[] = [],
+      act: CostBreakdown[] = []
+    const missEst: Missing[] = [],
+      missAct: Missing[] = []
     const pieces: PieceEstimate[] = []
-    let estMin = 0, actMin = 0, outsideSteps = 0, outsideUncosted = 0, estOutsideSteps = 0, estUncosted = 0, customerLossMg = 0
+    let estMin = 0,
+      actMin = 0,
+      outsideSteps = 0,
+      outsideUncosted = 0,
+      estOutsideSteps = 0,
+      estUncosted = 0,
+      customerLossMg = 0
     const myBags = bags.filter((b) => b.orderId === order.id)
-    let weighedBags = 0, preciousBags = 0
+    let weighedBags = 0,
+      preciousBags = 0
     for (const bag of myBags) {
       const params = bag.params
-      let labourEst = 0, labourAct = 0, outsideEst = 0, outsideAct = 0, bagMinutes = 0
+      let labourEst = 0,
+        labourAct = 0,
+        outsideEst = 0,
+        outsideAct = 0,
+        bagMinutes = 0
       for (const { op, outside } of ops.filter((o) => o.op.jobBagId === bag.id)) {
         if (op.status === 'skipped') continue
         const mine = records.filter((r) => r.operationId === op.id)
@@ -213,11 +330,24 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       // Metal at estimate, on the day the order was taken.
       const mEst = metalEstimate(book, params, orderDay)
       const sLines = lines.filter((l) => l.jobBagId === bag.id)
-      const sEst = stonesEstimate(params, sLines.map((l) => ({ count: l.count, costEachMinor: l.costEachMinor, customerOwned: l.customerOwned })))
+      const sEst = stonesEstimate(
+        params,
+        sLines.map((l) => ({ count: l.count, costEachMinor: l.costEachMinor, customerOwned: l.customerOwned })),
+      )
       missEst.push(...mEst.missing, ...sEst.missing)
       const bagEst = breakdown({ metalMinor: mEst.minor, stonesMinor: sEst.minor, outsideMinor: outsideEst, labourMinor: labourEst })
       est.push(bagEst)
-      pieces.push({ piece: bag.piece, quantity: params.quantity, metalWeightG: params.metalWeightG ?? null, alloyName: mEst.alloyName, pricePerGramMinor: mEst.pricePerGramMinor, priceOn: mEst.priceOn, labourMinutes: Math.round(bagMinutes), cost: bagEst, missing: [...mEst.missing, ...sEst.missing] })
+      pieces.push({
+        piece: bag.piece,
+        quantity: params.quantity,
+        metalWeightG: params.metalWeightG ?? null,
+        alloyName: mEst.alloyName,
+        pricePerGramMinor: mEst.pricePerGramMinor,
+        priceOn: mEst.priceOn,
+        labourMinutes: Math.round(bagMinutes),
+        cost: bagEst,
+        missing: [...mEst.missing, ...sEst.missing],
+      })
 
       // Metal at actual: per alloy of the bag, the last piece weighing and the loss at the price on the day of its first issue.
       let metalAct = 0
@@ -234,7 +364,10 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
         const pieceMg = lastPiece ? lastPiece.weightMg + mine.filter((m) => m.correctsId === lastPiece.id).reduce((s, m) => s + m.weightMg, 0) : 0
         const firstIssue = issued.find((m) => m.correctsId === null)
         const price = firstIssue ? book.on(alloyId, localDay(firstIssue.recordedAt)) : null
-        if (!price) { missAct.push('no-metal-price'); continue }
+        if (!price) {
+          missAct.push('no-metal-price')
+          continue
+        }
         const r = metalActual({ pieceMg, lossMg: issuedMg - returnedMg, customerMg, pricePerGramMinor: price.pricePerGramMinor })
         metalAct += r.minor
         customerLossMg += r.customerLossMg
@@ -264,10 +397,21 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
     const estCost = addBreakdowns(est)
     const priceMinor = order.priceQuotedMinor
     out.set(order.id, {
-      orderId: order.id, orderNumber: order.number, priceMinor,
-      estimate: side(estCost, priceMinor, missEst), actual: side(addBreakdowns(act), priceMinor, missAct), pieces,
-      marginTargetPct: WORKSHOP_MARGIN_PCT, suggestedPriceMinor: suggestedPriceMinor(estCost.totalMinor, WORKSHOP_MARGIN_PCT, currency), currency, pricedOn: orderDay,
-      customerMetalLossG: mgToG(customerLossMg), estimateMinutes: estMin, actualMinutes: actMin, outsideSteps, outsideUncosted,
+      orderId: order.id,
+      orderNumber: order.number,
+      priceMinor,
+      estimate: side(estCost, priceMinor, missEst),
+      actual: side(addBreakdowns(act), priceMinor, missAct),
+      pieces,
+      marginTargetPct: WORKSHOP_MARGIN_PCT,
+      suggestedPriceMinor: suggestedPriceMinor(estCost.totalMinor, WORKSHOP_MARGIN_PCT, currency),
+      currency,
+      pricedOn: orderDay,
+      customerMetalLossG: mgToG(customerLossMg),
+      estimateMinutes: estMin,
+      actualMinutes: actMin,
+      outsideSteps,
+      outsideUncosted,
     })
   }
   return out

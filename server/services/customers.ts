@@ -17,7 +17,9 @@ async function openOrderCounts(db: Db, workshopId: number, customerIds: number[]
   if (!customerIds.length) return new Map()
   // A grouped query rather than a correlated sub-query: Drizzle leaves columns unqualified in a one-table select, so
   // "orders.customer_id = customers.id" inside the sub-query would bind both sides to orders.
-  const rows = await db.select({ customerId: orders.customerId, n: count() }).from(orders)
+  const rows = await db
+    .select({ customerId: orders.customerId, n: count() })
+    .from(orders)
     .where(and(eq(orders.workshopId, workshopId), inArray(orders.customerId, customerIds), notInArray(orders.status, ['collected', 'cancelled'])))
     .groupBy(orders.customerId)
   return new Map(rows.map((r) => [r.customerId, r.n]))
@@ -25,12 +27,32 @@ async function openOrderCounts(db: Db, workshopId: number, customerIds: number[]
 
 export async function listCustomers(db: Db, workshopId: number, q: ListQuery): Promise<Page<Customer>> {
   const like = q.q ? containing(q.q) : null
-  const where = and(eq(customers.workshopId, workshopId), like ? or(ilike(customers.name, like), ilike(customers.email, like), ilike(customers.reference, like)) : undefined)
+  const where = and(
+    eq(customers.workshopId, workshopId),
+    like ? or(ilike(customers.name, like), ilike(customers.email, like), ilike(customers.reference, like)) : undefined,
+  )
   const sortCol = q.sort === 'reference' ? customers.reference : q.sort === 'email' ? customers.email : customers.name
   const [total] = await db.select({ n: count() }).from(customers).where(where)
-  const rows = await db.select({ id: customers.id, reference: customers.reference, name: customers.name, email: customers.email, phone: customers.phone, notes: customers.notes, version: customers.version })
-    .from(customers).where(where).orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(customers.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
-  const open = await openOrderCounts(db, workshopId, rows.map((r) => r.id))
+  const rows = await db
+    .select({
+      id: customers.id,
+      reference: customers.reference,
+      name: customers.name,
+      email: customers.email,
+      phone: customers.phone,
+      notes: customers.notes,
+      version: customers.version,
+    })
+    .from(customers)
+    .where(where)
+    .orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(customers.id))
+    .limit(q.pageSize)
+    .offset((q.page - 1) * q.pageSize)
+  const open = await openOrderCounts(
+    db,
+    workshopId,
+    rows.map((r) => r.id),
+  )
   const items = rows.map((r) => ({ ...r, openOrders: open.get(r.id) ?? 0 }))
   return { items, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
 }
@@ -50,7 +72,10 @@ export async function createCustomer({ db, realtime }: Deps, actor: Actor, input
     await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.customerNumbers}, ${actor.workshopId})`)
     const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(customers).where(eq(customers.workshopId, actor.workshopId))
     const reference = `C-${String(n + 1).padStart(4, '0')}`
-    const [c] = await tx.insert(customers).values({ workshopId: actor.workshopId, reference, ...input }).returning()
+    const [c] = await tx
+      .insert(customers)
+      .values({ workshopId: actor.workshopId, reference, ...input })
+      .returning()
     await audit(tx, actor, 'create', 'customer', c!.id, { reference })
     return c!
   })

@@ -19,15 +19,33 @@ export async function sendAtRiskDigest(deps: Pick<Deps, 'db' | 'mailer' | 'jobs'
   const day = dayjs(now).tz(w.timeZone).format('YYYY-MM-DD')
   const board = await boardData(deps.db, workshopId, { from: day, to: day, now })
   const risky = board.jobs.filter((j) => j.state === 'at-risk' || j.state === 'late')
-  const [last] = await deps.db.select({ meta: s.outbox.meta }).from(s.outbox).where(and(eq(s.outbox.workshopId, workshopId), eq(s.outbox.kind, 'at-risk-digest'))).orderBy(desc(s.outbox.id)).limit(1)
-  const before = new Set(((last?.meta?.jobBagIds as number[] | undefined) ?? []))
+  const [last] = await deps.db
+    .select({ meta: s.outbox.meta })
+    .from(s.outbox)
+    .where(and(eq(s.outbox.workshopId, workshopId), eq(s.outbox.kind, 'at-risk-digest')))
+    .orderBy(desc(s.outbox.id))
+    .limit(1)
+  const before = new Set((last?.meta?.jobBagIds as number[] | undefined) ?? [])
   const jobs: t.DigestLine[] = risky.map((j) => ({
-    number: j.number, piece: j.piece, orderNumber: j.orderNumber, due: j.due, state: j.state, reason: j.reason, isNew: !before.has(j.jobBagId),
+    number: j.number,
+    piece: j.piece,
+    orderNumber: j.orderNumber,
+    due: j.due,
+    state: j.state,
+    reason: j.reason,
+    isNew: !before.has(j.jobBagId),
     expected: j.expectedCompletion ? dayjs(j.expectedCompletion).tz(w.timeZone).format('ddd D MMM HH:mm') : null,
   }))
   if (!jobs.length) return { day, jobs: [], messages: [] }
-  let to = await deps.db.select({ email: s.users.email }).from(s.users).where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'manager'), eq(s.users.active, true)))
-  if (!to.length) to = await deps.db.select({ email: s.users.email }).from(s.users).where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'owner'), eq(s.users.active, true)))
+  let to = await deps.db
+    .select({ email: s.users.email })
+    .from(s.users)
+    .where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'manager'), eq(s.users.active, true)))
+  if (!to.length)
+    to = await deps.db
+      .select({ email: s.users.email })
+      .from(s.users)
+      .where(and(eq(s.users.workshopId, workshopId), eq(s.users.role, 'owner'), eq(s.users.active, true)))
   const content = t.atRiskDigest({ workshopName: w.name, day, jobs })
   const meta = { day, jobBagIds: risky.map((j) => j.jobBagId) }
   const messages = []
@@ -37,6 +55,11 @@ export async function sendAtRiskDigest(deps: Pick<Deps, 'db' | 'mailer' | 'jobs'
 
 /** Whether today's digest went out already (the daily timer asks before sending). */
 export async function digestSentOn(db: Db, workshopId: number, day: string) {
-  const rows = await db.select({ meta: s.outbox.meta }).from(s.outbox).where(and(eq(s.outbox.workshopId, workshopId), eq(s.outbox.kind, 'at-risk-digest'))).orderBy(desc(s.outbox.id)).limit(1)
+  const rows = await db
+    .select({ meta: s.outbox.meta })
+    .from(s.outbox)
+    .where(and(eq(s.outbox.workshopId, workshopId), eq(s.outbox.kind, 'at-risk-digest')))
+    .orderBy(desc(s.outbox.id))
+    .limit(1)
   return rows[0]?.meta?.day === day
 }

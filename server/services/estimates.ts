@@ -1,16 +1,43 @@
 // Learning estimates from actual times: finished work with its actual minutes, robust fits per kind and step, people's speed, accepted suggestions.
 import { and, asc, desc, eq, gte, inArray, isNotNull, lt } from 'drizzle-orm'
 import {
-  median, medianAbsoluteDeviation, quantile, ratioOfMedians, routingStepMinutes, sizeBandOf, SIZE_BANDS, theilSen, threePointEstimate, type Point,
+  median,
+  medianAbsoluteDeviation,
+  quantile,
+  ratioOfMedians,
+  routingStepMinutes,
+  sizeBandOf,
+  SIZE_BANDS,
+  theilSen,
+  threePointEstimate,
+  type Point,
 } from '../../shared/domain/estimate'
 import type { PieceParams } from '../../shared/schemas/order'
 import type {
-  AcceptSuggestionInput, History, InsightFilter, KindFigure, LearnedEstimates, PersonFigure, StepChange, StepSuggestion, ThreePointInput,
+  AcceptSuggestionInput,
+  History,
+  InsightFilter,
+  KindFigure,
+  LearnedEstimates,
+  PersonFigure,
+  StepChange,
+  StepSuggestion,
+  ThreePointInput,
 } from '../../shared/schemas/insights'
 import type { EffectiveTimeRecord } from '../../shared/schemas/job-bag'
 import type { Db, Tx } from '../db/client'
 import {
-  jobBags, operationKinds, operations, orders, people, personSkills, routingTemplates, templateStepChanges, templateSteps, users, workshops,
+  jobBags,
+  operationKinds,
+  operations,
+  orders,
+  people,
+  personSkills,
+  routingTemplates,
+  templateStepChanges,
+  templateSteps,
+  users,
+  workshops,
 } from '../db/schema/index'
 import { AppError, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
@@ -73,7 +100,13 @@ export async function actualMinutes(db: Tx, operationIds: number[]): Promise<{ b
 /** Finished bench operations (not outside work) with actual time, finished in the filter's local date range. */
 export async function finishedOperations(db: Db, workshopId: number, filter: InsightFilter = {}): Promise<FinishedOperation[]> {
   const tz = await workshopZone(db, workshopId)
-  const where = [eq(jobBags.workshopId, workshopId), eq(operations.status, 'done'), isNotNull(operations.finishedAt), eq(operationKinds.outside, false), eq(operations.leadDays, 0)]
+  const where = [
+    eq(jobBags.workshopId, workshopId),
+    eq(operations.status, 'done'),
+    isNotNull(operations.finishedAt),
+    eq(operationKinds.outside, false),
+    eq(operations.leadDays, 0),
+  ]
   if (filter.from) where.push(gte(operations.finishedAt, dayjs.tz(`${filter.from} 00:00`, tz).toISOString()))
   if (filter.to) where.push(lt(operations.finishedAt, dayjs.tz(`${filter.to} 00:00`, tz).add(1, 'day').toISOString()))
   if (filter.templateId) where.push(eq(jobBags.templateId, filter.templateId))
@@ -87,7 +120,10 @@ export async function finishedOperations(db: Db, workshopId: number, filter: Ins
     .where(and(...where))
     .orderBy(asc(operations.finishedAt), asc(operations.id))
   if (!rows.length) return []
-  const { byOperation, records } = await actualMinutes(db, rows.map((r) => r.op.id))
+  const { byOperation, records } = await actualMinutes(
+    db,
+    rows.map((r) => r.op.id),
+  )
   const personIds = [...new Set(records.map((r) => r.personId))]
   const skills = personIds.length ? await db.select().from(personSkills).where(inArray(personSkills.personId, personIds)) : []
   const out: FinishedOperation[] = []
@@ -104,11 +140,33 @@ export async function finishedOperations(db: Db, workshopId: number, filter: Ins
     const [personId, main] = [...byPerson.entries()].sort((a, b) => b[1].minutes - a[1].minutes || a[0] - b[0])[0]!
     const speed = skills.find((s) => s.personId === personId && s.kindId === op.kindId)?.speed ?? 1
     out.push({
-      id: op.id, key: op.key, name: op.name, kindId: kind.id, kindCode: kind.code, kindName: kind.name, kindColor: kind.color,
-      templateId: bag.templateId, templateName, orderId: order.id, orderNumber: order.number, orderTitle: order.title, customerId: order.customerId,
-      jobBagId: bag.id, jobBagNumber: bag.number, piece: bag.piece, params: bag.params, estimateMinutes: op.estimateMinutes, estimateSource: op.estimateSource,
-      plannedPersonId: op.plannedPersonId, finishedAt: new Date(op.finishedAt!).toISOString(), month: dayjs(op.finishedAt!).tz(tz).format('YYYY-MM'),
-      actualMinutes: actual, personId, personName: main.name, speed: speed > 0 ? speed : 1, records: mine,
+      id: op.id,
+      key: op.key,
+      name: op.name,
+      kindId: kind.id,
+      kindCode: kind.code,
+      kindName: kind.name,
+      kindColor: kind.color,
+      templateId: bag.templateId,
+      templateName,
+      orderId: order.id,
+      orderNumber: order.number,
+      orderTitle: order.title,
+      customerId: order.customerId,
+      jobBagId: bag.id,
+      jobBagNumber: bag.number,
+      piece: bag.piece,
+      params: bag.params,
+      estimateMinutes: op.estimateMinutes,
+      estimateSource: op.estimateSource,
+      plannedPersonId: op.plannedPersonId,
+      finishedAt: new Date(op.finishedAt!).toISOString(),
+      month: dayjs(op.finishedAt!).tz(tz).format('YYYY-MM'),
+      actualMinutes: actual,
+      personId,
+      personName: main.name,
+      speed: speed > 0 ? speed : 1,
+      records: mine,
     })
   }
   return out
@@ -128,14 +186,21 @@ export function historyOf(ops: readonly Pick<FinishedOperation, 'finishedAt'>[],
     n: ops.length,
     from: dates[0]?.slice(0, 10) ?? null,
     to: dates[dates.length - 1]?.slice(0, 10) ?? null,
-    spread: ratios.length ? { q1: r3(quantile(ratios, 0.25)), median: r3(median(ratios)), q3: r3(quantile(ratios, 0.75)), mad: r3(medianAbsoluteDeviation(ratios)) } : null,
+    spread: ratios.length
+      ? { q1: r3(quantile(ratios, 0.25)), median: r3(median(ratios)), q3: r3(quantile(ratios, 0.75)), mad: r3(medianAbsoluteDeviation(ratios)) }
+      : null,
   }
 }
 
 /** Actual minutes of one unit at standard speed: what the template's per-unit estimate should have been. */
 const standardUnitMinutes = (o: FinishedOperation) => (o.actualMinutes * o.speed) / Math.max(1, o.params.quantity)
 
-export interface StepFit { baseMinutes: number; perStoneMinutes: number; method: 'theil-sen' | 'ratio-of-medians'; medianAbsResidual: number }
+export interface StepFit {
+  baseMinutes: number
+  perStoneMinutes: number
+  method: 'theil-sen' | 'ratio-of-medians'
+  medianAbsResidual: number
+}
 
 /**
  * Fits one template step from its history (points: stones → standard minutes per unit). Theil–Sen when the step counts
@@ -144,7 +209,10 @@ export interface StepFit { baseMinutes: number; perStoneMinutes: number; method:
  */
 export function fitStep(current: { baseMinutes: number; perStoneMinutes: number }, points: readonly Point[]): StepFit {
   const templateAt = (x: number) => current.baseMinutes + current.perStoneMinutes * x
-  const k = ratioOfMedians(points.map((p) => p.y), points.map((p) => templateAt(p.x)))
+  const k = ratioOfMedians(
+    points.map((p) => p.y),
+    points.map((p) => templateAt(p.x)),
+  )
   const scale = Number.isFinite(k) ? k : 1
   const ratioFit = { baseMinutes: current.baseMinutes * scale, perStoneMinutes: current.perStoneMinutes * scale }
   const residual = (f: { baseMinutes: number; perStoneMinutes: number }) => median(points.map((p) => Math.abs(p.y - f.baseMinutes - f.perStoneMinutes * p.x)))
@@ -159,10 +227,19 @@ export function fitStep(current: { baseMinutes: number; perStoneMinutes: number 
   return ratioResult
 }
 
-function kindFigure(kind: { id: number; code: string; name: string }, ops: FinishedOperation[], stepsOf: (o: FinishedOperation) => { baseMinutes: number; perStoneMinutes: number } | null): KindFigure {
+function kindFigure(
+  kind: { id: number; code: string; name: string },
+  ops: FinishedOperation[],
+  stepsOf: (o: FinishedOperation) => { baseMinutes: number; perStoneMinutes: number } | null,
+): KindFigure {
   const ratios = ops.map((o) => (o.actualMinutes * o.speed) / o.estimateMinutes).filter((x) => Number.isFinite(x) && x > 0)
   const est = ops.filter((o) => o.estimateMinutes > 0)
-  const ratio = est.length ? ratioOfMedians(est.map((o) => o.actualMinutes * o.speed), est.map((o) => o.estimateMinutes)) : NaN
+  const ratio = est.length
+    ? ratioOfMedians(
+        est.map((o) => o.actualMinutes * o.speed),
+        est.map((o) => o.estimateMinutes),
+      )
+    : NaN
   // Stones: only steps that count stones per stone; y = standard minutes per unit above the step's base.
   const stoneOps = ops.flatMap((o) => {
     const s = stepsOf(o)
@@ -178,42 +255,91 @@ function kindFigure(kind: { id: number; code: string; name: string }, ops: Finis
     if (line.slope > 0) {
       for (const band of SIZE_BANDS) {
         const inBand = stoneOps.filter((p) => sizeBandOf(p.o.params.stoneSizeMm) === band)
-        if (inBand.length >= MIN_HISTORY) sizeBands.push({ band, factor: r3(median(inBand.map((p) => (p.y - line.intercept) / (line.slope * p.x)))), n: inBand.length })
+        if (inBand.length >= MIN_HISTORY)
+          sizeBands.push({ band, factor: r3(median(inBand.map((p) => (p.y - line.intercept) / (line.slope * p.x)))), n: inBand.length })
       }
     }
   }
   return {
-    kindId: kind.id, code: kind.code, name: kind.name, method: perStone !== null ? 'theil-sen' : 'ratio-of-medians',
-    ratio: Number.isFinite(ratio) ? r3(ratio) : null, perStoneMinutes: perStone, extraBaseMinutes: extra, sizeBands, history: historyOf(ops, ratios),
+    kindId: kind.id,
+    code: kind.code,
+    name: kind.name,
+    method: perStone !== null ? 'theil-sen' : 'ratio-of-medians',
+    ratio: Number.isFinite(ratio) ? r3(ratio) : null,
+    perStoneMinutes: perStone,
+    extraBaseMinutes: extra,
+    sizeBands,
+    history: historyOf(ops, ratios),
   }
 }
 
 /** Everything learned from finished work: per kind, per person, and per template step with suggestions. */
 export async function learnEstimates(db: Db, workshopId: number, filter: InsightFilter = {}): Promise<LearnedEstimates> {
   const ops = await finishedOperations(db, workshopId, filter)
-  const kinds = await db.select().from(operationKinds).where(and(eq(operationKinds.workshopId, workshopId), eq(operationKinds.outside, false))).orderBy(asc(operationKinds.name))
+  const kinds = await db
+    .select()
+    .from(operationKinds)
+    .where(and(eq(operationKinds.workshopId, workshopId), eq(operationKinds.outside, false)))
+    .orderBy(asc(operationKinds.name))
   const templates = await db.select().from(routingTemplates).where(eq(routingTemplates.workshopId, workshopId)).orderBy(asc(routingTemplates.name))
-  const steps = templates.length ? await db.select().from(templateSteps).where(inArray(templateSteps.templateId, templates.map((t) => t.id))).orderBy(asc(templateSteps.seq)) : []
+  const steps = templates.length
+    ? await db
+        .select()
+        .from(templateSteps)
+        .where(
+          inArray(
+            templateSteps.templateId,
+            templates.map((t) => t.id),
+          ),
+        )
+        .orderBy(asc(templateSteps.seq))
+    : []
   const stepOf = (o: FinishedOperation) => steps.find((s) => s.templateId === o.templateId && s.key === o.key) ?? null
 
-  const kindFigures = kinds.map((k) => kindFigure(k, ops.filter((o) => o.kindId === k.id), stepOf)).filter((k) => k.history.n > 0)
+  const kindFigures = kinds
+    .map((k) =>
+      kindFigure(
+        k,
+        ops.filter((o) => o.kindId === k.id),
+        stepOf,
+      ),
+    )
+    .filter((k) => k.history.n > 0)
 
   const staff = await db.select({ id: people.id, name: people.name }).from(people).where(eq(people.workshopId, workshopId)).orderBy(asc(people.name))
-  const skills = staff.length ? await db.select().from(personSkills).where(inArray(personSkills.personId, staff.map((p) => p.id))) : []
+  const skills = staff.length
+    ? await db
+        .select()
+        .from(personSkills)
+        .where(
+          inArray(
+            personSkills.personId,
+            staff.map((p) => p.id),
+          ),
+        )
+    : []
   const personFigures: PersonFigure[] = staff.map((p) => {
     const mine = ops.filter((o) => o.personId === p.id && o.estimateMinutes > 0)
     const ratios = mine.map((o) => o.estimateMinutes / o.actualMinutes)
     const kindIds = [...new Set([...mine.map((o) => o.kindId), ...skills.filter((s) => s.personId === p.id).map((s) => s.kindId)])]
     return {
-      personId: p.id, name: p.name, speed: ratios.length ? r3(median(ratios)) : null, history: historyOf(mine, ratios),
-      kinds: kindIds.map((kindId) => {
-        const k = mine.filter((o) => o.kindId === kindId)
-        return {
-          kindId, kind: kinds.find((x) => x.id === kindId)?.name ?? '', n: k.length,
-          learned: k.length ? r3(median(k.map((o) => o.estimateMinutes / o.actualMinutes))) : null,
-          configured: skills.find((s) => s.personId === p.id && s.kindId === kindId)?.speed ?? null,
-        }
-      }).filter((k) => k.kind !== '').sort((a, b) => b.n - a.n || a.kind.localeCompare(b.kind)),
+      personId: p.id,
+      name: p.name,
+      speed: ratios.length ? r3(median(ratios)) : null,
+      history: historyOf(mine, ratios),
+      kinds: kindIds
+        .map((kindId) => {
+          const k = mine.filter((o) => o.kindId === kindId)
+          return {
+            kindId,
+            kind: kinds.find((x) => x.id === kindId)?.name ?? '',
+            n: k.length,
+            learned: k.length ? r3(median(k.map((o) => o.estimateMinutes / o.actualMinutes))) : null,
+            configured: skills.find((s) => s.personId === p.id && s.kindId === kindId)?.speed ?? null,
+          }
+        })
+        .filter((k) => k.kind !== '')
+        .sort((a, b) => b.n - a.n || a.kind.localeCompare(b.kind)),
     }
   })
 
@@ -248,8 +374,18 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
         }
       }
       suggestions.push({
-        templateId: t.id, templateName: t.name, templateVersion: t.version, stepKey: s.key, stepName: s.name, kindId: kind.id, kind: kind.name,
-        current: { baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes }, suggested, thin, unfitted: unfitted && !thin, history: historyOf(mine, ratios),
+        templateId: t.id,
+        templateName: t.name,
+        templateVersion: t.version,
+        stepKey: s.key,
+        stepName: s.name,
+        kindId: kind.id,
+        kind: kind.name,
+        current: { baseMinutes: s.baseMinutes, perStoneMinutes: s.perStoneMinutes },
+        suggested,
+        thin,
+        unfitted: unfitted && !thin,
+        history: historyOf(mine, ratios),
       })
     }
   }
@@ -263,28 +399,60 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
   const learned = await learnEstimates(db, actor.workshopId)
   const basisOf = learned.steps.find((s) => s.templateId === input.templateId && s.stepKey === input.stepKey)
   const change = await db.transaction(async (tx) => {
-    const [step] = await tx.select({ s: templateSteps }).from(templateSteps).innerJoin(routingTemplates, eq(routingTemplates.id, templateSteps.templateId))
+    const [step] = await tx
+      .select({ s: templateSteps })
+      .from(templateSteps)
+      .innerJoin(routingTemplates, eq(routingTemplates.id, templateSteps.templateId))
       .where(and(eq(templateSteps.templateId, input.templateId), eq(templateSteps.key, input.stepKey), eq(routingTemplates.workshopId, actor.workshopId)))
     if (!step) {
-      const [t] = await tx.select({ id: routingTemplates.id }).from(routingTemplates).where(and(eq(routingTemplates.id, input.templateId), eq(routingTemplates.workshopId, actor.workshopId)))
-      throw t ? new AppError({ code: 'validation', message: `stepKey: no such step in this routing`, fields: { stepKey: 'is not a step of this routing' } }) : notFound('Routing template')
+      const [t] = await tx
+        .select({ id: routingTemplates.id })
+        .from(routingTemplates)
+        .where(and(eq(routingTemplates.id, input.templateId), eq(routingTemplates.workshopId, actor.workshopId)))
+      throw t
+        ? new AppError({ code: 'validation', message: `stepKey: no such step in this routing`, fields: { stepKey: 'is not a step of this routing' } })
+        : notFound('Routing template')
     }
-    if (step.s.leadDays > 0) throw new AppError({ code: 'unprocessable', message: 'Outside work has lead days, not bench minutes', fields: { stepKey: 'is outside work' } })
-    const t = await updateVersioned(tx, routingTemplates, 'Routing template', { id: input.templateId, workshopId: actor.workshopId, version: input.templateVersion, values: {} })
+    if (step.s.leadDays > 0)
+      throw new AppError({ code: 'unprocessable', message: 'Outside work has lead days, not bench minutes', fields: { stepKey: 'is outside work' } })
+    const t = await updateVersioned(tx, routingTemplates, 'Routing template', {
+      id: input.templateId,
+      workshopId: actor.workshopId,
+      version: input.templateVersion,
+      values: {},
+    })
     await tx.update(templateSteps).set({ baseMinutes: input.baseMinutes, perStoneMinutes: input.perStoneMinutes }).where(eq(templateSteps.id, step.s.id))
     const h = basisOf?.history
     const basis = {
-      n: h?.n ?? 0, from: h?.from ?? null, to: h?.to ?? null, method: basisOf?.suggested?.method ?? 'owner',
+      n: h?.n ?? 0,
+      from: h?.from ?? null,
+      to: h?.to ?? null,
+      method: basisOf?.suggested?.method ?? 'owner',
       spread: h?.spread ? { ...h.spread } : {},
     }
-    const [row] = await tx.insert(templateStepChanges).values({
-      workshopId: actor.workshopId, templateId: input.templateId, stepKey: input.stepKey, kindId: step.s.kindId,
-      fromBaseMinutes: step.s.baseMinutes, fromPerStoneMinutes: step.s.perStoneMinutes, toBaseMinutes: input.baseMinutes, toPerStoneMinutes: input.perStoneMinutes,
-      templateVersion: t.version, basis, reason: input.reason, acceptedBy: actor.userId,
-    }).returning()
+    const [row] = await tx
+      .insert(templateStepChanges)
+      .values({
+        workshopId: actor.workshopId,
+        templateId: input.templateId,
+        stepKey: input.stepKey,
+        kindId: step.s.kindId,
+        fromBaseMinutes: step.s.baseMinutes,
+        fromPerStoneMinutes: step.s.perStoneMinutes,
+        toBaseMinutes: input.baseMinutes,
+        toPerStoneMinutes: input.perStoneMinutes,
+        templateVersion: t.version,
+        basis,
+        reason: input.reason,
+        acceptedBy: actor.userId,
+      })
+      .returning()
     await audit(tx, actor, 'accept-estimate', 'routing-template', input.templateId, {
-      stepKey: input.stepKey, from: { baseMinutes: step.s.baseMinutes, perStoneMinutes: step.s.perStoneMinutes },
-      to: { baseMinutes: input.baseMinutes, perStoneMinutes: input.perStoneMinutes }, basis, reason: input.reason,
+      stepKey: input.stepKey,
+      from: { baseMinutes: step.s.baseMinutes, perStoneMinutes: step.s.perStoneMinutes },
+      to: { baseMinutes: input.baseMinutes, perStoneMinutes: input.perStoneMinutes },
+      basis,
+      reason: input.reason,
     })
     return { id: row!.id, version: t.version }
   })
@@ -303,9 +471,19 @@ export async function listStepChanges(db: Db, workshopId: number): Promise<StepC
     .where(eq(templateStepChanges.workshopId, workshopId))
     .orderBy(desc(templateStepChanges.id))
   return rows.map(({ c, templateName, stepName, kind, by }) => ({
-    id: c.id, templateId: c.templateId, templateName, stepKey: c.stepKey, stepName: stepName ?? c.stepKey, kind,
-    from: { baseMinutes: c.fromBaseMinutes, perStoneMinutes: c.fromPerStoneMinutes }, to: { baseMinutes: c.toBaseMinutes, perStoneMinutes: c.toPerStoneMinutes },
-    templateVersion: c.templateVersion, basis: c.basis, reason: c.reason, acceptedBy: by, at: new Date(c.createdAt).toISOString(),
+    id: c.id,
+    templateId: c.templateId,
+    templateName,
+    stepKey: c.stepKey,
+    stepName: stepName ?? c.stepKey,
+    kind,
+    from: { baseMinutes: c.fromBaseMinutes, perStoneMinutes: c.fromPerStoneMinutes },
+    to: { baseMinutes: c.toBaseMinutes, perStoneMinutes: c.toPerStoneMinutes },
+    templateVersion: c.templateVersion,
+    basis: c.basis,
+    reason: c.reason,
+    acceptedBy: by,
+    at: new Date(c.createdAt).toISOString(),
   }))
 }
 

@@ -31,14 +31,28 @@ function pathIn(dir: string, stored: string) {
 
 async function requireOwner(db: Db, workshopId: number, owner: FileOwner) {
   const table = owner.type === 'order' ? s.orders : s.jobBags
-  const [row] = await db.select({ id: table.id }).from(table).where(and(eq(table.id, owner.id), eq(table.workshopId, workshopId)))
+  const [row] = await db
+    .select({ id: table.id })
+    .from(table)
+    .where(and(eq(table.id, owner.id), eq(table.workshopId, workshopId)))
   if (!row) throw notFound(owner.type === 'order' ? 'Order' : 'Job bag')
 }
 
 const publicFile = (f: typeof s.files.$inferSelect & { uploadedByName?: string | null }) => ({
-  id: f.id, orderId: f.orderId, jobBagId: f.jobBagId, kind: f.kind, originalName: f.originalName, mime: f.mime, size: f.size,
-  width: f.width, height: f.height, uploadedBy: f.uploadedBy, uploadedByName: f.uploadedByName ?? null, createdAt: f.createdAt,
-  url: `/api/files/${f.id}`, thumbnailUrl: f.thumbnailName ? `/api/files/${f.id}/thumbnail` : null,
+  id: f.id,
+  orderId: f.orderId,
+  jobBagId: f.jobBagId,
+  kind: f.kind,
+  originalName: f.originalName,
+  mime: f.mime,
+  size: f.size,
+  width: f.width,
+  height: f.height,
+  uploadedBy: f.uploadedBy,
+  uploadedByName: f.uploadedByName ?? null,
+  createdAt: f.createdAt,
+  url: `/api/files/${f.id}`,
+  thumbnailUrl: f.thumbnailName ? `/api/files/${f.id}/thumbnail` : null,
 })
 
 export async function addFile(deps: Deps, actor: Actor, owner: FileOwner, upload: Received) {
@@ -49,13 +63,19 @@ export async function addFile(deps: Deps, actor: Actor, owner: FileOwner, upload
   if (actor.role === 'bench' && kind !== 'progress') throw new AppError({ code: 'forbidden', message: 'At the bench you can add progress photos only.' })
   const type = sniffType(upload.buffer)
   if (!type) throw invalid('file', 'must be a JPEG, PNG or WebP image or a PDF (its content is not one of these, whatever its name says)')
-  let width: number | null = null, height: number | null = null, thumb: Buffer | null = null
+  let width: number | null = null,
+    height: number | null = null,
+    thumb: Buffer | null = null
   if (type.image) {
     try {
       const meta = await sharp(upload.buffer).metadata()
       width = meta.width ?? null
       height = meta.height ?? null
-      thumb = await sharp(upload.buffer).rotate().resize({ width: THUMB_PX, height: THUMB_PX, fit: 'inside', withoutEnlargement: true }).webp({ quality: 78 }).toBuffer()
+      thumb = await sharp(upload.buffer)
+        .rotate()
+        .resize({ width: THUMB_PX, height: THUMB_PX, fit: 'inside', withoutEnlargement: true })
+        .webp({ quality: 78 })
+        .toBuffer()
     } catch {
       throw invalid('file', 'is not a readable image (damaged or cut short)')
     }
@@ -69,10 +89,23 @@ export async function addFile(deps: Deps, actor: Actor, owner: FileOwner, upload
   if (thumb && thumbnailName) await writeFile(pathIn(dir, thumbnailName), thumb, { flag: 'wx' })
   try {
     const row = await deps.db.transaction(async (tx) => {
-      const [f] = await tx.insert(s.files).values({
-        workshopId: actor.workshopId, orderId: owner.type === 'order' ? owner.id : null, jobBagId: owner.type === 'jobBag' ? owner.id : null,
-        kind, storedName, thumbnailName, originalName: displayName(upload.originalName, type.ext), mime: type.mime, size: upload.buffer.length, width, height, uploadedBy: actor.userId,
-      }).returning()
+      const [f] = await tx
+        .insert(s.files)
+        .values({
+          workshopId: actor.workshopId,
+          orderId: owner.type === 'order' ? owner.id : null,
+          jobBagId: owner.type === 'jobBag' ? owner.id : null,
+          kind,
+          storedName,
+          thumbnailName,
+          originalName: displayName(upload.originalName, type.ext),
+          mime: type.mime,
+          size: upload.buffer.length,
+          width,
+          height,
+          uploadedBy: actor.userId,
+        })
+        .returning()
       await audit(tx, actor, 'upload', 'file', f!.id, { owner: owner.type, ownerId: owner.id, kind, mime: type.mime, size: upload.buffer.length })
       return f!
     })
@@ -87,14 +120,21 @@ export async function addFile(deps: Deps, actor: Actor, owner: FileOwner, upload
 export async function listFiles(db: Db, actor: Actor, owner: FileOwner) {
   await requireOwner(db, actor.workshopId, owner)
   const col = owner.type === 'order' ? s.files.orderId : s.files.jobBagId
-  const rows = await db.select({ f: s.files, by: s.users.name }).from(s.files).leftJoin(s.users, eq(s.users.id, s.files.uploadedBy))
-    .where(and(eq(col, owner.id), eq(s.files.workshopId, actor.workshopId))).orderBy(desc(s.files.createdAt), desc(s.files.id))
+  const rows = await db
+    .select({ f: s.files, by: s.users.name })
+    .from(s.files)
+    .leftJoin(s.users, eq(s.users.id, s.files.uploadedBy))
+    .where(and(eq(col, owner.id), eq(s.files.workshopId, actor.workshopId)))
+    .orderBy(desc(s.files.createdAt), desc(s.files.id))
   return { items: rows.map((r) => publicFile({ ...r.f, uploadedByName: r.by })) }
 }
 
 /** A file the actor may see; another workshop's file or one the role may not see is simply not found. */
 async function visibleFile(db: Db, actor: Actor, id: number) {
-  const [f] = await db.select().from(s.files).where(and(eq(s.files.id, id), eq(s.files.workshopId, actor.workshopId)))
+  const [f] = await db
+    .select()
+    .from(s.files)
+    .where(and(eq(s.files.id, id), eq(s.files.workshopId, actor.workshopId)))
   if (!f || !SEES[f.orderId ? 'order' : 'jobBag'].includes(actor.role)) throw notFound('File')
   return f
 }

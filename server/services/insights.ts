@@ -1,10 +1,29 @@
 // The owner's figures: estimated against actual hours by kind, person, routing, order and month; drill-down; job costing; CSV.
 import { and, asc, eq, sql } from 'drizzle-orm'
 import type {
-  BiasTrend, ComparisonRow, ComparisonTable, CostingRow, CostingTable, DrillDown, Grouping, InsightFilter, ScatterPoint,
+  BiasTrend,
+  ComparisonRow,
+  ComparisonTable,
+  CostingRow,
+  CostingTable,
+  DrillDown,
+  Grouping,
+  InsightFilter,
+  ScatterPoint,
 } from '../../shared/schemas/insights'
 import type { Db } from '../db/client'
-import { customers, jobBags, operationCosts, operationKinds, operations, orders, routingTemplates, templateStepCosts, templateSteps, workshops } from '../db/schema/index'
+import {
+  customers,
+  jobBags,
+  operationCosts,
+  operationKinds,
+  operations,
+  orders,
+  routingTemplates,
+  templateStepCosts,
+  templateSteps,
+  workshops,
+} from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
@@ -24,8 +43,12 @@ export function comparisonRow(key: string, label: string, ops: readonly Pick<Fin
   const bias = act - est
   const ape = ops.filter((o) => o.actualMinutes > 0).map((o) => Math.abs(o.actualMinutes - o.estimateMinutes) / o.actualMinutes)
   return {
-    key, label, n: ops.length,
-    estimateHours: r2(est / 60), actualHours: r2(act / 60), biasHours: r2(bias / 60),
+    key,
+    label,
+    n: ops.length,
+    estimateHours: r2(est / 60),
+    actualHours: r2(act / 60),
+    biasHours: r2(bias / 60),
     biasPct: est > 0 ? r1((bias / est) * 100) : null,
     direction: Math.abs(bias) < 0.05 ? 'even' : bias > 0 ? 'over' : 'under',
     mapePct: ape.length ? r1((ape.reduce((s, x) => s + x, 0) / ape.length) * 100) : null,
@@ -54,22 +77,38 @@ export async function comparison(db: Db, workshopId: number, groupBy: Grouping, 
   return { groupBy, filter: cleanFilter(filter), rows, total: comparisonRow('total', 'Total', ops) }
 }
 
-const cleanFilter = (f: InsightFilter): InsightFilter => Object.fromEntries(Object.entries({ from: f.from, to: f.to, templateId: f.templateId }).filter(([, v]) => v !== undefined))
+const cleanFilter = (f: InsightFilter): InsightFilter =>
+  Object.fromEntries(Object.entries({ from: f.from, to: f.to, templateId: f.templateId }).filter(([, v]) => v !== undefined))
 
 export async function scatter(db: Db, workshopId: number, filter: InsightFilter): Promise<ScatterPoint[]> {
   const ops = await finishedOperations(db, workshopId, filter)
-  return ops.map((o) => ({ operationId: o.id, kindId: o.kindId, kind: o.kindName, estimateMinutes: o.estimateMinutes, actualMinutes: o.actualMinutes, finishedAt: o.finishedAt }))
+  return ops.map((o) => ({
+    operationId: o.id,
+    kindId: o.kindId,
+    kind: o.kindName,
+    estimateMinutes: o.estimateMinutes,
+    actualMinutes: o.actualMinutes,
+    finishedAt: o.finishedAt,
+  }))
 }
 
 /** Bias % by kind for each month that has finished work. */
 export async function biasTrend(db: Db, workshopId: number, filter: InsightFilter): Promise<BiasTrend> {
   const ops = await finishedOperations(db, workshopId, filter)
   const months = [...new Set(ops.map((o) => o.month))].sort()
-  const kinds = [...new Map(ops.map((o) => [o.kindId, { kindId: o.kindId, kind: o.kindName, color: o.kindColor }])).values()].sort((a, b) => a.kind.localeCompare(b.kind))
+  const kinds = [...new Map(ops.map((o) => [o.kindId, { kindId: o.kindId, kind: o.kindName, color: o.kindColor }])).values()].sort((a, b) =>
+    a.kind.localeCompare(b.kind),
+  )
   return {
     months,
     series: kinds.map((k) => {
-      const cells = months.map((m) => comparisonRow(m, m, ops.filter((o) => o.kindId === k.kindId && o.month === m)))
+      const cells = months.map((m) =>
+        comparisonRow(
+          m,
+          m,
+          ops.filter((o) => o.kindId === k.kindId && o.month === m),
+        ),
+      )
       return { ...k, biasPct: cells.map((c) => (c.n ? c.biasPct : null)), n: cells.map((c) => c.n) }
     }),
   }
@@ -80,11 +119,31 @@ export async function drillDown(db: Db, workshopId: number, groupBy: Grouping, k
   const ops = (await finishedOperations(db, workshopId, filter)).filter((o) => groupKey[groupBy](o).key === key)
   if (!ops.length) throw notFound('Row')
   return {
-    groupBy, key, label: groupKey[groupBy](ops[0]!).label,
+    groupBy,
+    key,
+    label: groupKey[groupBy](ops[0]!).label,
     operations: ops.map((o) => ({
-      operationId: o.id, orderNumber: o.orderNumber, jobBagNumber: o.jobBagNumber, piece: o.piece, step: o.name, kind: o.kindName, personName: o.personName,
-      finishedAt: o.finishedAt, estimateMinutes: o.estimateMinutes, estimateSource: o.estimateSource, actualMinutes: o.actualMinutes,
-      records: o.records.map((r) => ({ timeRecordId: r.id, personName: r.personName, startedAt: r.startedAt, endedAt: r.endedAt, minutes: r.minutes, voided: r.voided, corrected: r.corrections.length > 0, endReason: r.endReason })),
+      operationId: o.id,
+      orderNumber: o.orderNumber,
+      jobBagNumber: o.jobBagNumber,
+      piece: o.piece,
+      step: o.name,
+      kind: o.kindName,
+      personName: o.personName,
+      finishedAt: o.finishedAt,
+      estimateMinutes: o.estimateMinutes,
+      estimateSource: o.estimateSource,
+      actualMinutes: o.actualMinutes,
+      records: o.records.map((r) => ({
+        timeRecordId: r.id,
+        personName: r.personName,
+        startedAt: r.startedAt,
+        endedAt: r.endedAt,
+        minutes: r.minutes,
+        voided: r.voided,
+        corrected: r.corrections.length > 0,
+        endReason: r.endReason,
+      })),
     })),
   }
 }
@@ -109,8 +168,19 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
     .where(eq(jobBags.workshopId, workshopId))
   const byOrder = new Map<number, typeof rows>()
   for (const r of rows) byOrder.set(r.order.id, [...(byOrder.get(r.order.id) ?? []), r])
-  const complete = [...byOrder.values()].filter((ops) => ops.every((r) => r.op.status === 'done' || r.op.status === 'skipped') && ops.some((r) => r.op.finishedAt))
-  const finishedOn = (ops: typeof rows) => dayjs(ops.map((r) => r.op.finishedAt).filter(Boolean).sort().at(-1)!).tz(tz).format('YYYY-MM-DD')
+  const complete = [...byOrder.values()].filter(
+    (ops) => ops.every((r) => r.op.status === 'done' || r.op.status === 'skipped') && ops.some((r) => r.op.finishedAt),
+  )
+  const finishedOn = (ops: typeof rows) =>
+    dayjs(
+      ops
+        .map((r) => r.op.finishedAt)
+        .filter(Boolean)
+        .sort()
+        .at(-1)!,
+    )
+      .tz(tz)
+      .format('YYYY-MM-DD')
   const chosen = complete.filter((ops) => {
     const day = finishedOn(ops)
     if (filter.from && day < filter.from) return false
@@ -118,24 +188,50 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
     if (filter.templateId && !ops.some((r) => r.bag.templateId === filter.templateId)) return false
     return true
   })
-  const costed = await costOrders(db, workshopId, chosen.map((ops) => ops[0]!.order.id))
+  const costed = await costOrders(
+    db,
+    workshopId,
+    chosen.map((ops) => ops[0]!.order.id),
+  )
   // Amounts stay in integer minor units of the workshop's currency.
   const M = (minor: number) => minor
-  const out: CostingRow[] = chosen.map((ops) => {
-    const order = ops[0]!.order
-    const c = costed.get(order.id)!
-    const e = c.estimate, a = c.actual
-    return {
-      orderId: order.id, orderNumber: order.number, title: order.title, customerName: ops[0]!.customerName, finishedOn: finishedOn(ops), priceQuotedMinor: M(c.priceMinor),
-      estimateHours: r2(c.estimateMinutes / 60), actualHours: r2(c.actualMinutes / 60),
-      metalAtEstimateMinor: M(e.cost.metalMinor), metalAtActualMinor: M(a.cost.metalMinor), stonesAtEstimateMinor: M(e.cost.stonesMinor), stonesAtActualMinor: M(a.cost.stonesMinor),
-      labourAtEstimateMinor: M(e.cost.labourMinor), labourAtActualMinor: M(a.cost.labourMinor), outsideAtEstimateMinor: M(e.cost.outsideMinor), outsideAtActualMinor: M(a.cost.outsideMinor),
-      costAtEstimateMinor: M(e.cost.totalMinor), costAtActualMinor: M(a.cost.totalMinor),
-      marginAtEstimateMinor: M(e.marginMinor), marginAtActualMinor: M(a.marginMinor), marginPctAtEstimate: e.marginPct, marginPctAtActual: a.marginPct,
-      customerMetalLossG: c.customerMetalLossG, outsideSteps: c.outsideSteps, outsideUncosted: c.outsideUncosted,
-      caveatAtEstimate: e.caveat, caveatAtActual: a.caveat,
-    }
-  }).sort((a, b) => b.finishedOn.localeCompare(a.finishedOn) || a.orderNumber.localeCompare(b.orderNumber))
+  const out: CostingRow[] = chosen
+    .map((ops) => {
+      const order = ops[0]!.order
+      const c = costed.get(order.id)!
+      const e = c.estimate,
+        a = c.actual
+      return {
+        orderId: order.id,
+        orderNumber: order.number,
+        title: order.title,
+        customerName: ops[0]!.customerName,
+        finishedOn: finishedOn(ops),
+        priceQuotedMinor: M(c.priceMinor),
+        estimateHours: r2(c.estimateMinutes / 60),
+        actualHours: r2(c.actualMinutes / 60),
+        metalAtEstimateMinor: M(e.cost.metalMinor),
+        metalAtActualMinor: M(a.cost.metalMinor),
+        stonesAtEstimateMinor: M(e.cost.stonesMinor),
+        stonesAtActualMinor: M(a.cost.stonesMinor),
+        labourAtEstimateMinor: M(e.cost.labourMinor),
+        labourAtActualMinor: M(a.cost.labourMinor),
+        outsideAtEstimateMinor: M(e.cost.outsideMinor),
+        outsideAtActualMinor: M(a.cost.outsideMinor),
+        costAtEstimateMinor: M(e.cost.totalMinor),
+        costAtActualMinor: M(a.cost.totalMinor),
+        marginAtEstimateMinor: M(e.marginMinor),
+        marginAtActualMinor: M(a.marginMinor),
+        marginPctAtEstimate: e.marginPct,
+        marginPctAtActual: a.marginPct,
+        customerMetalLossG: c.customerMetalLossG,
+        outsideSteps: c.outsideSteps,
+        outsideUncosted: c.outsideUncosted,
+        caveatAtEstimate: e.caveat,
+        caveatAtActual: a.caveat,
+      }
+    })
+    .sort((a, b) => b.finishedOn.localeCompare(a.finishedOn) || a.orderNumber.localeCompare(b.orderNumber))
 
   // Totals are summed in minor units.
   const all = [...costed.values()]
@@ -143,21 +239,38 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
   const price = sumMinor((c) => c.priceMinor)
   const est = sumMinor((c) => c.estimate.cost.totalMinor)
   const act = sumMinor((c) => c.actual.cost.totalMinor)
-  const mEst = margin(price, est), mAct = margin(price, act)
-  const missingEst = all.flatMap((c) => c.estimate.missing), missingAct = all.flatMap((c) => c.actual.missing)
+  const mEst = margin(price, est),
+    mAct = margin(price, act)
+  const missingEst = all.flatMap((c) => c.estimate.missing),
+    missingAct = all.flatMap((c) => c.actual.missing)
   return {
-    filter: cleanFilter(filter), currency, rows: out,
+    filter: cleanFilter(filter),
+    currency,
+    rows: out,
     total: {
-      orders: out.length, priceQuotedMinor: M(price), estimateHours: r2(sumMinor((c) => c.estimateMinutes) / 60), actualHours: r2(sumMinor((c) => c.actualMinutes) / 60),
-      metalAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.metalMinor)), metalAtActualMinor: M(sumMinor((c) => c.actual.cost.metalMinor)),
-      stonesAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.stonesMinor)), stonesAtActualMinor: M(sumMinor((c) => c.actual.cost.stonesMinor)),
-      labourAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.labourMinor)), labourAtActualMinor: M(sumMinor((c) => c.actual.cost.labourMinor)),
-      outsideAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.outsideMinor)), outsideAtActualMinor: M(sumMinor((c) => c.actual.cost.outsideMinor)),
-      costAtEstimateMinor: M(est), costAtActualMinor: M(act), marginAtEstimateMinor: M(mEst.marginMinor), marginAtActualMinor: M(mAct.marginMinor),
-      marginPctAtEstimate: mEst.marginPct, marginPctAtActual: mAct.marginPct,
+      orders: out.length,
+      priceQuotedMinor: M(price),
+      estimateHours: r2(sumMinor((c) => c.estimateMinutes) / 60),
+      actualHours: r2(sumMinor((c) => c.actualMinutes) / 60),
+      metalAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.metalMinor)),
+      metalAtActualMinor: M(sumMinor((c) => c.actual.cost.metalMinor)),
+      stonesAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.stonesMinor)),
+      stonesAtActualMinor: M(sumMinor((c) => c.actual.cost.stonesMinor)),
+      labourAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.labourMinor)),
+      labourAtActualMinor: M(sumMinor((c) => c.actual.cost.labourMinor)),
+      outsideAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.outsideMinor)),
+      outsideAtActualMinor: M(sumMinor((c) => c.actual.cost.outsideMinor)),
+      costAtEstimateMinor: M(est),
+      costAtActualMinor: M(act),
+      marginAtEstimateMinor: M(mEst.marginMinor),
+      marginAtActualMinor: M(mAct.marginMinor),
+      marginPctAtEstimate: mEst.marginPct,
+      marginPctAtActual: mAct.marginPct,
       customerMetalLossG: Math.round(all.reduce((s, c) => s + c.customerMetalLossG * 1000, 0)) / 1000,
-      outsideSteps: all.reduce((s, c) => s + c.outsideSteps, 0), outsideUncosted: all.reduce((s, c) => s + c.outsideUncosted, 0),
-      caveatAtEstimate: totalCaveat(missingEst, out.length), caveatAtActual: totalCaveat(missingAct, out.length),
+      outsideSteps: all.reduce((s, c) => s + c.outsideSteps, 0),
+      outsideUncosted: all.reduce((s, c) => s + c.outsideUncosted, 0),
+      caveatAtEstimate: totalCaveat(missingEst, out.length),
+      caveatAtActual: totalCaveat(missingAct, out.length),
     },
     note: COSTING_NOTE,
   }
@@ -172,7 +285,15 @@ function totalCaveat(missing: Missing[], orders: number): string {
 /** Every outside-work step of the workshop's routings with its expected cost per unit (null: not set). */
 export async function listStepCosts(db: Db, workshopId: number) {
   const rows = await db
-    .select({ templateId: routingTemplates.id, templateName: routingTemplates.name, stepKey: templateSteps.key, stepName: templateSteps.name, leadDays: templateSteps.leadDays, outsideCostMinor: templateStepCosts.outsideCostMinor, currency: workshops.currency })
+    .select({
+      templateId: routingTemplates.id,
+      templateName: routingTemplates.name,
+      stepKey: templateSteps.key,
+      stepName: templateSteps.name,
+      leadDays: templateSteps.leadDays,
+      outsideCostMinor: templateStepCosts.outsideCostMinor,
+      currency: workshops.currency,
+    })
     .from(templateSteps)
     .innerJoin(routingTemplates, eq(routingTemplates.id, templateSteps.templateId))
     .innerJoin(workshops, eq(workshops.id, routingTemplates.workshopId))
@@ -186,9 +307,15 @@ export async function listStepCosts(db: Db, workshopId: number) {
 /** The owner sets the expected outside cost (per unit, integer minor units) of a template step. */
 export async function setStepCost({ db }: Deps, actor: Actor, templateId: number, stepKey: string, outsideCostMinor: number | null) {
   return db.transaction(async (tx) => {
-    const [t] = await tx.select({ id: routingTemplates.id }).from(routingTemplates).where(and(eq(routingTemplates.id, templateId), eq(routingTemplates.workshopId, actor.workshopId)))
+    const [t] = await tx
+      .select({ id: routingTemplates.id })
+      .from(routingTemplates)
+      .where(and(eq(routingTemplates.id, templateId), eq(routingTemplates.workshopId, actor.workshopId)))
     if (!t) throw notFound('Routing template')
-    await tx.insert(templateStepCosts).values({ templateId, stepKey, outsideCostMinor }).onConflictDoUpdate({ target: [templateStepCosts.templateId, templateStepCosts.stepKey], set: { outsideCostMinor, updatedAt: new Date() } })
+    await tx
+      .insert(templateStepCosts)
+      .values({ templateId, stepKey, outsideCostMinor })
+      .onConflictDoUpdate({ target: [templateStepCosts.templateId, templateStepCosts.stepKey], set: { outsideCostMinor, updatedAt: new Date() } })
     await audit(tx, actor, 'set-outside-cost', 'routing-template', templateId, { stepKey, outsideCostMinor })
     return { templateId, stepKey, outsideCostMinor }
   })
@@ -197,10 +324,16 @@ export async function setStepCost({ db }: Deps, actor: Actor, templateId: number
 /** The owner records what an operation's outside work was invoiced at (integer minor units). */
 export async function setOperationCost({ db }: Deps, actor: Actor, operationId: number, outsideCostMinor: number | null) {
   return db.transaction(async (tx) => {
-    const [op] = await tx.select({ id: operations.id }).from(operations).innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
+    const [op] = await tx
+      .select({ id: operations.id })
+      .from(operations)
+      .innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
       .where(and(eq(operations.id, operationId), eq(jobBags.workshopId, actor.workshopId)))
     if (!op) throw notFound('Operation')
-    await tx.insert(operationCosts).values({ operationId, outsideCostMinor }).onConflictDoUpdate({ target: operationCosts.operationId, set: { outsideCostMinor, updatedAt: new Date() } })
+    await tx
+      .insert(operationCosts)
+      .values({ operationId, outsideCostMinor })
+      .onConflictDoUpdate({ target: operationCosts.operationId, set: { outsideCostMinor, updatedAt: new Date() } })
     await audit(tx, actor, 'set-outside-cost', 'operation', operationId, { outsideCostMinor })
     return { operationId, outsideCostMinor }
   })
@@ -229,7 +362,17 @@ export function comparisonCsv(t: ComparisonTable): string {
   // A month's key is the month itself: no id column for it. Work without a routing has key 0, no id.
   const withId = t.groupBy !== 'month'
   const header = [name, 'operations', 'estimate_hours', 'actual_hours', 'bias_hours', 'bias_pct', 'direction', 'mape_pct', ...(withId ? [`${name}_id`] : [])]
-  const line = (r: ComparisonRow, id: string) => [r.label, r.n, r.estimateHours, r.actualHours, r.biasHours, r.biasPct, r.direction, r.mapePct, ...(withId ? [id] : [])]
+  const line = (r: ComparisonRow, id: string) => [
+    r.label,
+    r.n,
+    r.estimateHours,
+    r.actualHours,
+    r.biasHours,
+    r.biasPct,
+    r.direction,
+    r.mapePct,
+    ...(withId ? [id] : []),
+  ]
   return toCsv(header, [...t.rows.map((r) => line(r, r.key === '0' ? '' : r.key)), line(t.total, '')])
 }
 
@@ -238,15 +381,56 @@ export function comparisonCsv(t: ComparisonTable): string {
  * could not count; a last line carries the note (blank cells before it keep the column count). Amounts in major units of the table's currency.
  */
 export function costingCsv(t: CostingTable): string {
-  const header = ['order', 'title', 'customer', 'finished_on', 'price_quoted', 'estimate_hours', 'actual_hours',
-    'metal_at_estimate', 'stones_at_estimate', 'outside_at_estimate', 'labour_at_estimate', 'cost_at_estimate', 'margin_at_estimate', 'margin_pct_at_estimate', 'not_counted_at_estimate',
-    'metal_at_actual', 'stones_at_actual', 'outside_at_actual', 'labour_at_actual', 'cost_at_actual', 'margin_at_actual', 'margin_pct_at_actual', 'not_counted_at_actual',
-    'customer_metal_lost_g']
+  const header = [
+    'order',
+    'title',
+    'customer',
+    'finished_on',
+    'price_quoted',
+    'estimate_hours',
+    'actual_hours',
+    'metal_at_estimate',
+    'stones_at_estimate',
+    'outside_at_estimate',
+    'labour_at_estimate',
+    'cost_at_estimate',
+    'margin_at_estimate',
+    'margin_pct_at_estimate',
+    'not_counted_at_estimate',
+    'metal_at_actual',
+    'stones_at_actual',
+    'outside_at_actual',
+    'labour_at_actual',
+    'cost_at_actual',
+    'margin_at_actual',
+    'margin_pct_at_actual',
+    'not_counted_at_actual',
+    'customer_metal_lost_g',
+  ]
   // Major units with the currency's own decimals (ISO 4217), written from the integer minor units digit by digit.
   const $ = (minor: number) => minorToDecimal(minor, t.currency)
-  const line = (r: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'>) => [$(r.priceQuotedMinor), r.estimateHours, r.actualHours,
-    $(r.metalAtEstimateMinor), $(r.stonesAtEstimateMinor), $(r.outsideAtEstimateMinor), $(r.labourAtEstimateMinor), $(r.costAtEstimateMinor), $(r.marginAtEstimateMinor), r.marginPctAtEstimate, r.caveatAtEstimate,
-    $(r.metalAtActualMinor), $(r.stonesAtActualMinor), $(r.outsideAtActualMinor), $(r.labourAtActualMinor), $(r.costAtActualMinor), $(r.marginAtActualMinor), r.marginPctAtActual, r.caveatAtActual, r.customerMetalLossG]
+  const line = (r: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'>) => [
+    $(r.priceQuotedMinor),
+    r.estimateHours,
+    r.actualHours,
+    $(r.metalAtEstimateMinor),
+    $(r.stonesAtEstimateMinor),
+    $(r.outsideAtEstimateMinor),
+    $(r.labourAtEstimateMinor),
+    $(r.costAtEstimateMinor),
+    $(r.marginAtEstimateMinor),
+    r.marginPctAtEstimate,
+    r.caveatAtEstimate,
+    $(r.metalAtActualMinor),
+    $(r.stonesAtActualMinor),
+    $(r.outsideAtActualMinor),
+    $(r.labourAtActualMinor),
+    $(r.costAtActualMinor),
+    $(r.marginAtActualMinor),
+    r.marginPctAtActual,
+    r.caveatAtActual,
+    r.customerMetalLossG,
+  ]
   const rows: unknown[][] = t.rows.map((r) => [r.orderNumber, r.title, r.customerName, r.finishedOn, ...line(r)])
   rows.push(['Total', `${t.total.orders} orders`, '', '', ...line(t.total)])
   rows.push(['Note', t.note, ...Array<string>(header.length - 2).fill('')])
@@ -255,16 +439,58 @@ export function costingCsv(t: CostingTable): string {
 
 export function drillCsv(d: DrillDown): string {
   // Names first (order, job bag, piece, step …); the operation's and the record's ids last, for joining.
-  const header = ['order', 'job_bag', 'piece', 'step', 'kind', 'person', 'finished_at', 'estimate_minutes', 'estimate_source', 'actual_minutes',
-    'record_person', 'started_at', 'ended_at', 'record_minutes', 'voided', 'corrected', 'operation_id', 'time_record_id']
-  const rows = d.operations.flatMap((o) => o.records.map((r) => [o.orderNumber, o.jobBagNumber, o.piece, o.step, o.kind, o.personName, o.finishedAt,
-    o.estimateMinutes, o.estimateSource, o.actualMinutes, r.personName, r.startedAt, r.endedAt, r.minutes, r.voided ? 'yes' : 'no', r.corrected ? 'yes' : 'no', o.operationId, r.timeRecordId]))
+  const header = [
+    'order',
+    'job_bag',
+    'piece',
+    'step',
+    'kind',
+    'person',
+    'finished_at',
+    'estimate_minutes',
+    'estimate_source',
+    'actual_minutes',
+    'record_person',
+    'started_at',
+    'ended_at',
+    'record_minutes',
+    'voided',
+    'corrected',
+    'operation_id',
+    'time_record_id',
+  ]
+  const rows = d.operations.flatMap((o) =>
+    o.records.map((r) => [
+      o.orderNumber,
+      o.jobBagNumber,
+      o.piece,
+      o.step,
+      o.kind,
+      o.personName,
+      o.finishedAt,
+      o.estimateMinutes,
+      o.estimateSource,
+      o.actualMinutes,
+      r.personName,
+      r.startedAt,
+      r.endedAt,
+      r.minutes,
+      r.voided ? 'yes' : 'no',
+      r.corrected ? 'yes' : 'no',
+      o.operationId,
+      r.timeRecordId,
+    ]),
+  )
   return toCsv(header, rows)
 }
 
 /** A CSV answer the browser saves as a file. */
 export function sendCsv(res: import('express').Response, name: string, csv: string): undefined {
-  const safe = name.replace(/[^a-z0-9-]+/gi, '-').replace(/^-+|-+$/g, '').toLowerCase() || 'insights'
+  const safe =
+    name
+      .replace(/[^a-z0-9-]+/gi, '-')
+      .replace(/^-+|-+$/g, '')
+      .toLowerCase() || 'insights'
   res.status(200)
   res.setHeader('Content-Type', 'text/csv; charset=utf-8')
   res.setHeader('Content-Disposition', `attachment; filename="${safe}.csv"`)

@@ -30,9 +30,28 @@ export async function listOrders(db: Db, workshopId: number, q: ListQuery & { st
   const sortCol = q.sort === 'number' ? orders.number : q.sort === 'priority' ? orders.priority : q.sort === 'customer' ? customers.name : orders.dueDate
   const [total] = await db.select({ n: count() }).from(orders).innerJoin(customers, eq(customers.id, orders.customerId)).where(where)
   const items = await db
-    .select({ id: orders.id, number: orders.number, customerId: orders.customerId, customerName: customers.name, title: orders.title, dueDate: orders.dueDate, promisedDate: orders.promisedDate, priority: orders.priority, status: orders.status, priceQuotedMinor: orders.priceQuotedMinor, currency: workshops.currency, jobBags: bagCount, version: orders.version })
-    .from(orders).innerJoin(customers, eq(customers.id, orders.customerId)).innerJoin(workshops, eq(workshops.id, orders.workshopId)).where(where)
-    .orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(orders.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
+    .select({
+      id: orders.id,
+      number: orders.number,
+      customerId: orders.customerId,
+      customerName: customers.name,
+      title: orders.title,
+      dueDate: orders.dueDate,
+      promisedDate: orders.promisedDate,
+      priority: orders.priority,
+      status: orders.status,
+      priceQuotedMinor: orders.priceQuotedMinor,
+      currency: workshops.currency,
+      jobBags: bagCount,
+      version: orders.version,
+    })
+    .from(orders)
+    .innerJoin(customers, eq(customers.id, orders.customerId))
+    .innerJoin(workshops, eq(workshops.id, orders.workshopId))
+    .where(where)
+    .orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(orders.id))
+    .limit(q.pageSize)
+    .offset((q.page - 1) * q.pageSize)
   return { items, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
 }
 
@@ -41,21 +60,53 @@ export async function getOrder(db: Db, workshopId: number, id: number) {
   const [c] = await db.select({ name: customers.name, reference: customers.reference }).from(customers).where(eq(customers.id, o.customerId))
   const [w] = await db.select({ currency: workshops.currency }).from(workshops).where(eq(workshops.id, workshopId))
   const bags = await db.select().from(jobBags).where(eq(jobBags.orderId, id)).orderBy(asc(jobBags.number))
-  const ops = bags.length ? await db.select().from(operations).where(inArray(operations.jobBagId, bags.map((b) => b.id))).orderBy(asc(operations.seq)) : []
-  return { ...o, currency: w?.currency ?? 'GBP', customerName: c?.name ?? '', customerReference: c?.reference ?? '', jobBags: bags.map((b) => ({ ...b, operations: ops.filter((op) => op.jobBagId === b.id) })) }
+  const ops = bags.length
+    ? await db
+        .select()
+        .from(operations)
+        .where(
+          inArray(
+            operations.jobBagId,
+            bags.map((b) => b.id),
+          ),
+        )
+        .orderBy(asc(operations.seq))
+    : []
+  return {
+    ...o,
+    currency: w?.currency ?? 'GBP',
+    customerName: c?.name ?? '',
+    customerReference: c?.reference ?? '',
+    jobBags: bags.map((b) => ({ ...b, operations: ops.filter((op) => op.jobBagId === b.id) })),
+  }
 }
 
 /** Adds one job bag with the template's routing as operations (inside the caller's transaction). */
 export async function addJobBag(tx: Trx, workshopId: number, orderId: number, orderNumber: string, index: number, piece: OrderInput['pieces'][number]) {
-  const [t] = await tx.select().from(routingTemplates).where(and(eq(routingTemplates.id, piece.templateId), eq(routingTemplates.workshopId, workshopId)))
+  const [t] = await tx
+    .select()
+    .from(routingTemplates)
+    .where(and(eq(routingTemplates.id, piece.templateId), eq(routingTemplates.workshopId, workshopId)))
   if (!t) throw invalid(`pieces.${index}.templateId`, 'is not a routing template of this workshop')
   const steps = await tx.select().from(templateSteps).where(eq(templateSteps.templateId, t.id)).orderBy(asc(templateSteps.seq))
-  const [bag] = await tx.insert(jobBags).values({ workshopId, orderId, number: `${orderNumber}-${index + 1}`, piece: piece.piece, templateId: t.id, params: piece.params }).returning()
+  const [bag] = await tx
+    .insert(jobBags)
+    .values({ workshopId, orderId, number: `${orderNumber}-${index + 1}`, piece: piece.piece, templateId: t.id, params: piece.params })
+    .returning()
   await tx.insert(operations).values(
     steps.map((s) => ({
-      jobBagId: bag!.id, seq: s.seq, key: s.key, kindId: s.kindId, name: s.name, requiredLevel: s.requiredLevel,
-      estimateMinutes: s.leadDays > 0 ? 0 : routingStepMinutes(s, t, piece.params), estimateSource: 'template',
-      waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after, status: s.after.length ? 'pending' : 'ready',
+      jobBagId: bag!.id,
+      seq: s.seq,
+      key: s.key,
+      kindId: s.kindId,
+      name: s.name,
+      requiredLevel: s.requiredLevel,
+      estimateMinutes: s.leadDays > 0 ? 0 : routingStepMinutes(s, t, piece.params),
+      estimateSource: 'template',
+      waitAfterMinutes: s.waitAfterMinutes,
+      leadDays: s.leadDays,
+      after: s.after,
+      status: s.after.length ? 'pending' : 'ready',
     })),
   )
   return bag!
@@ -67,14 +118,20 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
  */
 export async function takeOrder<T>({ db, realtime }: Deps, actor: Actor, input: OrderInput, within: (tx: Trx, orderId: number) => Promise<T>) {
   const id = await db.transaction(async (tx) => {
-    const [c] = await tx.select({ id: customers.id }).from(customers).where(and(eq(customers.id, input.customerId), eq(customers.workshopId, actor.workshopId)))
+    const [c] = await tx
+      .select({ id: customers.id })
+      .from(customers)
+      .where(and(eq(customers.id, input.customerId), eq(customers.workshopId, actor.workshopId)))
     if (!c) throw invalid('customerId', 'is not a customer of this workshop')
     await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.orderNumbers}, ${actor.workshopId})`)
     const year = input.dueDate.slice(2, 4)
     const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(orders).where(eq(orders.workshopId, actor.workshopId))
     const number = `MG${year}-${String(n + 1).padStart(4, '0')}`
     const { pieces, ...values } = input
-    const [o] = await tx.insert(orders).values({ workshopId: actor.workshopId, number, ...values }).returning()
+    const [o] = await tx
+      .insert(orders)
+      .values({ workshopId: actor.workshopId, number, ...values })
+      .returning()
     for (const [i, p] of pieces.entries()) await addJobBag(tx, actor.workshopId, o!.id, number, i, p)
     await audit(tx, actor, 'create', 'order', o!.id, { number, pieces: pieces.length })
     return { id: o!.id, extra: await within(tx, o!.id) }
@@ -93,7 +150,13 @@ export async function updateOrder(deps: Deps, actor: Actor, id: number, input: O
   let becameReady = false
   const o = await db.transaction(async (tx) => {
     if (values.status) await requireCustomerStonesBack(tx, actor.workshopId, id, values.status)
-    const [before] = values.status === 'ready' ? await tx.select({ status: orders.status }).from(orders).where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId))) : []
+    const [before] =
+      values.status === 'ready'
+        ? await tx
+            .select({ status: orders.status })
+            .from(orders)
+            .where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId)))
+        : []
     const o = await updateVersioned(tx, orders, 'Order', { id, workshopId: actor.workshopId, version, values: { ...values, updatedAt: new Date() } })
     await audit(tx, actor, 'update', 'order', id, values)
     // Collected: the finished pieces' metal leaves stock with them.
@@ -108,4 +171,3 @@ export async function updateOrder(deps: Deps, actor: Actor, id: number, input: O
   if (becameReady && !deps.jobs) await sendReadyNotice(deps, actor.workshopId, id).catch((err) => console.error('[mail] ready notice:', (err as Error).message))
   return getOrder(db, actor.workshopId, id)
 }
-

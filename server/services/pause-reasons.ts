@@ -10,14 +10,24 @@ import { audit } from './audit'
 import { requireOwned, updateVersioned } from './versioned'
 import { LOCK } from '../lib/locks'
 
-const out = (r: typeof pauseReasons.$inferSelect): PauseReason =>
-  ({ id: r.id, code: r.code, label: r.label, needsNote: r.needsNote, active: r.active, sort: r.sort, version: r.version })
+const out = (r: typeof pauseReasons.$inferSelect): PauseReason => ({
+  id: r.id,
+  code: r.code,
+  label: r.label,
+  needsNote: r.needsNote,
+  active: r.active,
+  sort: r.sort,
+  version: r.version,
+})
 
 /** A workshop that has none yet (new, or from before reasons were its own) gets the defaults, once. */
 async function ensureDefaults(tx: Tx, workshopId: number) {
   const [any] = await tx.select({ id: pauseReasons.id }).from(pauseReasons).where(eq(pauseReasons.workshopId, workshopId)).limit(1)
   if (any) return
-  await tx.insert(pauseReasons).values(DEFAULT_PAUSE_REASONS.map((d) => ({ workshopId, ...d }))).onConflictDoNothing()
+  await tx
+    .insert(pauseReasons)
+    .values(DEFAULT_PAUSE_REASONS.map((d) => ({ workshopId, ...d })))
+    .onConflictDoNothing()
 }
 
 /** Every reason of the workshop, switched-off ones too (history still names them), in the order the bench shows them. */
@@ -31,7 +41,10 @@ export async function listPauseReasons(db: Tx, workshopId: number): Promise<Paus
 export async function requirePauseReason(tx: Tx, workshopId: number, code: string, note: string): Promise<PauseReason> {
   const all = await listPauseReasons(tx, workshopId)
   const r = all.find((x) => x.code === code)
-  const offered = all.filter((x) => x.active).map((x) => x.code).join(', ')
+  const offered = all
+    .filter((x) => x.active)
+    .map((x) => x.code)
+    .join(', ')
   if (!r) throw invalid('reason', `is not one of this workshop’s pause reasons (${offered})`)
   if (!r.active) throw invalid('reason', `“${r.label}” is switched off in the workshop settings; choose another (${offered})`)
   if (r.needsNote && !note.trim()) throw invalid('note', `say briefly why (“${r.label}” needs a note)`)
@@ -42,12 +55,21 @@ export async function requirePauseReason(tx: Tx, workshopId: number, code: strin
 export async function requireEndReason(tx: Tx, workshopId: number, code: string) {
   if (code === FINISHED) return
   const all = await listPauseReasons(tx, workshopId)
-  if (!all.some((x) => x.code === code)) throw invalid('endReason', `must be finished or one of this workshop’s pause reasons (${all.map((x) => x.code).join(', ')})`)
+  if (!all.some((x) => x.code === code))
+    throw invalid('endReason', `must be finished or one of this workshop’s pause reasons (${all.map((x) => x.code).join(', ')})`)
 }
 
 async function labelFree(tx: Tx, workshopId: number, label: string, exceptId: number | null) {
-  const [clash] = await tx.select({ id: pauseReasons.id }).from(pauseReasons)
-    .where(and(eq(pauseReasons.workshopId, workshopId), sql`lower(${pauseReasons.label}) = lower(${label})`, exceptId === null ? undefined : ne(pauseReasons.id, exceptId)))
+  const [clash] = await tx
+    .select({ id: pauseReasons.id })
+    .from(pauseReasons)
+    .where(
+      and(
+        eq(pauseReasons.workshopId, workshopId),
+        sql`lower(${pauseReasons.label}) = lower(${label})`,
+        exceptId === null ? undefined : ne(pauseReasons.id, exceptId),
+      ),
+    )
   if (clash) throw invalid('label', 'is a pause reason already')
 }
 
@@ -77,11 +99,18 @@ export async function updatePauseReason({ db, realtime }: Deps, actor: Actor, id
     const before = await requireOwned(tx, pauseReasons, 'Pause reason', id, actor.workshopId)
     if (values.label !== undefined) await labelFree(tx, actor.workshopId, values.label, id)
     if (values.active === false && before.active) {
-      const [{ n }] = await tx.select({ n: sql<number>`count(*)::int` }).from(pauseReasons).where(and(eq(pauseReasons.workshopId, actor.workshopId), eq(pauseReasons.active, true), ne(pauseReasons.id, id))) as [{ n: number }]
+      const [{ n }] = (await tx
+        .select({ n: sql<number>`count(*)::int` })
+        .from(pauseReasons)
+        .where(and(eq(pauseReasons.workshopId, actor.workshopId), eq(pauseReasons.active, true), ne(pauseReasons.id, id)))) as [{ n: number }]
       if (n === 0) throw invalid('active', 'at least one pause reason must stay on, or the bench cannot pause')
     }
     const row = await updateVersioned(tx, pauseReasons, 'Pause reason', { id, workshopId: actor.workshopId, version, values })
-    await audit(tx, actor, 'update', 'pause-reason', id, { code: before.code, from: { label: before.label, needsNote: before.needsNote, active: before.active }, to: values })
+    await audit(tx, actor, 'update', 'pause-reason', id, {
+      code: before.code,
+      from: { label: before.label, needsNote: before.needsNote, active: before.active },
+      to: values,
+    })
     return out(row)
   })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'pause-reason', id: r.id })

@@ -18,7 +18,8 @@ import { quoteOrderInput } from './quote-order'
 type Tx = Db | Trx
 const STARTED = ['claimed', 'running', 'paused', 'done']
 
-const noProvider = () => new AppError({ code: 'unavailable', message: 'No payment provider is set up (STRIPE_SECRET_KEY and STRIPE_WEBHOOK_SECRET, or the local test provider)' })
+const noProvider = () =>
+  new AppError({ code: 'unavailable', message: 'No payment provider is set up (STRIPE_SECRET_KEY and STRIPE_WEBHOOK_SECRET, or the local test provider)' })
 
 async function workshopOf(db: Tx, workshopId: number) {
   const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
@@ -28,10 +29,18 @@ async function workshopOf(db: Tx, workshopId: number) {
 
 /** An order's price and deposit in minor units: its accepted quote's, else the order's quoted price and the workshop's deposit %. */
 export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
-  const [o] = await db.select().from(s.orders).where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
+  const [o] = await db
+    .select()
+    .from(s.orders)
+    .where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
   if (!o) throw notFound('Order')
   const w = await workshopOf(db, workshopId)
-  const [q] = await db.select().from(s.quotes).where(and(eq(s.quotes.orderId, orderId), inArray(s.quotes.status, ['accepted', 'sent', 'drafted']))).orderBy(sql`${s.quotes.status} = 'accepted' desc`, desc(s.quotes.id)).limit(1)
+  const [q] = await db
+    .select()
+    .from(s.quotes)
+    .where(and(eq(s.quotes.orderId, orderId), inArray(s.quotes.status, ['accepted', 'sent', 'drafted'])))
+    .orderBy(sql`${s.quotes.status} = 'accepted' desc`, desc(s.quotes.id))
+    .limit(1)
   // The order's own price is stored in minor units of the workshop's currency already: no conversion.
   const priceMinor = q ? q.priceMinor : o.priceQuotedMinor
   const depositMinor = q ? q.depositMinor : Math.round((priceMinor * w.depositPct) / 100)
@@ -39,18 +48,46 @@ export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
 }
 
 const paymentCols = {
-  id: s.payments.id, orderId: s.payments.orderId, quoteId: s.payments.quoteId, paymentLinkId: s.payments.paymentLinkId, method: s.payments.method, purpose: s.payments.purpose,
-  amountMinor: s.payments.amountMinor, currency: s.payments.currency, providerRef: s.payments.providerRef, toRefund: s.payments.toRefund, refundOf: s.payments.refundOf, note: s.payments.note,
-  recordedBy: s.payments.recordedBy, recordedByName: s.users.name, receivedAt: s.payments.receivedAt, createdAt: s.payments.createdAt,
+  id: s.payments.id,
+  orderId: s.payments.orderId,
+  quoteId: s.payments.quoteId,
+  paymentLinkId: s.payments.paymentLinkId,
+  method: s.payments.method,
+  purpose: s.payments.purpose,
+  amountMinor: s.payments.amountMinor,
+  currency: s.payments.currency,
+  providerRef: s.payments.providerRef,
+  toRefund: s.payments.toRefund,
+  refundOf: s.payments.refundOf,
+  note: s.payments.note,
+  recordedBy: s.payments.recordedBy,
+  recordedByName: s.users.name,
+  receivedAt: s.payments.receivedAt,
+  createdAt: s.payments.createdAt,
 }
 /** What has been refunded against each payment (refunds name their payment in refund_of; they are negative). */
 const refundedCol = sql<number>`(select coalesce(-sum(r.amount_minor), 0) from payments r where r.refund_of = ${s.payments.id})::int`.as('refunded_minor')
 
 export async function listPayments(db: Tx, where: ReturnType<typeof and>) {
-  return db.select({ ...paymentCols, refundedMinor: refundedCol }).from(s.payments).leftJoin(s.users, eq(s.users.id, s.payments.recordedBy)).where(where).orderBy(asc(s.payments.receivedAt), asc(s.payments.id))
+  return db
+    .select({ ...paymentCols, refundedMinor: refundedCol })
+    .from(s.payments)
+    .leftJoin(s.users, eq(s.users.id, s.payments.recordedBy))
+    .where(where)
+    .orderBy(asc(s.payments.receivedAt), asc(s.payments.id))
 }
 
-const linkCols = { id: s.paymentLinks.id, quoteId: s.paymentLinks.quoteId, orderId: s.paymentLinks.orderId, purpose: s.paymentLinks.purpose, currency: s.paymentLinks.currency, amountMinor: s.paymentLinks.amountMinor, url: s.paymentLinks.url, status: s.paymentLinks.status, createdAt: s.paymentLinks.createdAt }
+const linkCols = {
+  id: s.paymentLinks.id,
+  quoteId: s.paymentLinks.quoteId,
+  orderId: s.paymentLinks.orderId,
+  purpose: s.paymentLinks.purpose,
+  currency: s.paymentLinks.currency,
+  amountMinor: s.paymentLinks.amountMinor,
+  url: s.paymentLinks.url,
+  status: s.paymentLinks.status,
+  createdAt: s.paymentLinks.createdAt,
+}
 
 /** Paid counts every payment that is not waiting to be refunded (refunds are negative and lower it). */
 const paidOf = (rows: { amountMinor: number; toRefund: boolean }[]) => rows.filter((p) => !p.toRefund).reduce((t, p) => t + p.amountMinor, 0)
@@ -58,11 +95,24 @@ const paidOf = (rows: { amountMinor: number; toRefund: boolean }[]) => rows.filt
 export async function orderMoney(db: Tx, workshopId: number, orderId: number) {
   const t = await orderTerms(db, workshopId, orderId)
   const payments = await listPayments(db, and(eq(s.payments.workshopId, workshopId), eq(s.payments.orderId, orderId)))
-  const links = await db.select(linkCols).from(s.paymentLinks).where(and(eq(s.paymentLinks.workshopId, workshopId), eq(s.paymentLinks.orderId, orderId))).orderBy(asc(s.paymentLinks.id))
+  const links = await db
+    .select(linkCols)
+    .from(s.paymentLinks)
+    .where(and(eq(s.paymentLinks.workshopId, workshopId), eq(s.paymentLinks.orderId, orderId)))
+    .orderBy(asc(s.paymentLinks.id))
   const paidMinor = paidOf(payments)
   return {
-    orderId, orderNumber: t.order.number, currency: t.currency, priceMinor: t.priceMinor, depositMinor: t.depositMinor, paidMinor,
-    owedMinor: Math.max(0, t.priceMinor - paidMinor), depositPaid: paidMinor >= t.depositMinor, quoteId: t.quote?.id ?? null, payments, links,
+    orderId,
+    orderNumber: t.order.number,
+    currency: t.currency,
+    priceMinor: t.priceMinor,
+    depositMinor: t.depositMinor,
+    paidMinor,
+    owedMinor: Math.max(0, t.priceMinor - paidMinor),
+    depositPaid: paidMinor >= t.depositMinor,
+    quoteId: t.quote?.id ?? null,
+    payments,
+    links,
   }
 }
 
@@ -85,7 +135,19 @@ async function returnBase(deps: Deps, workshopId: number) {
 }
 
 /** Makes a checkout session with the provider for an amount and keeps it as a payment link. */
-export async function createLink(deps: Deps, actor: Actor, o: { quoteId: number | null; orderId: number | null; purpose: 'deposit' | 'balance'; amountMinor: number; currency: string; description: string; customerEmail?: string }) {
+export async function createLink(
+  deps: Deps,
+  actor: Actor,
+  o: {
+    quoteId: number | null
+    orderId: number | null
+    purpose: 'deposit' | 'balance'
+    amountMinor: number
+    currency: string
+    description: string
+    customerEmail?: string
+  },
+) {
   if (!deps.pay) throw noProvider()
   const base = await returnBase(deps, actor.workshopId)
   const nonce = `${Date.now()}-${Math.random().toString(36).slice(2)}`
@@ -96,19 +158,48 @@ export async function createLink(deps: Deps, actor: Actor, o: { quoteId: number 
       line_items: [{ quantity: 1, price_data: { currency: o.currency.toLowerCase(), unit_amount: o.amountMinor, product_data: { name: o.description } } }],
       success_url: `${base}/payment-done?ref=${nonce}`,
       cancel_url: `${base}/payment-done?ref=${nonce}&cancelled=1`,
-      metadata: { workshopId: String(actor.workshopId), purpose: o.purpose, description: o.description, ...(o.quoteId ? { quoteId: String(o.quoteId) } : {}), ...(o.orderId ? { orderId: String(o.orderId) } : {}) },
+      metadata: {
+        workshopId: String(actor.workshopId),
+        purpose: o.purpose,
+        description: o.description,
+        ...(o.quoteId ? { quoteId: String(o.quoteId) } : {}),
+        ...(o.orderId ? { orderId: String(o.orderId) } : {}),
+      },
       ...(o.customerEmail ? { customer_email: o.customerEmail } : {}),
     })
   } catch (err) {
     throw new AppError({ code: 'unavailable', message: `The payment provider refused the payment link: ${(err as Error).message}` })
   }
   const link = await deps.db.transaction(async (tx) => {
-    const [l] = await tx.insert(s.paymentLinks).values({ workshopId: actor.workshopId, quoteId: o.quoteId, orderId: o.orderId, purpose: o.purpose, currency: o.currency, amountMinor: o.amountMinor, providerId: session.id, url: session.url ?? '', createdBy: actor.userId }).returning()
+    const [l] = await tx
+      .insert(s.paymentLinks)
+      .values({
+        workshopId: actor.workshopId,
+        quoteId: o.quoteId,
+        orderId: o.orderId,
+        purpose: o.purpose,
+        currency: o.currency,
+        amountMinor: o.amountMinor,
+        providerId: session.id,
+        url: session.url ?? '',
+        createdBy: actor.userId,
+      })
+      .returning()
     await audit(tx, actor, 'create', 'payment-link', l!.id, { purpose: o.purpose, amountMinor: o.amountMinor, currency: o.currency })
     return l!
   })
   deps.realtime.emit(actor.workshopId, 'paymentLink:created', { id: link.id, orderId: link.orderId, quoteId: link.quoteId })
-  return { id: link.id, quoteId: link.quoteId, orderId: link.orderId, purpose: link.purpose, currency: link.currency, amountMinor: link.amountMinor, url: link.url, status: link.status, createdAt: link.createdAt }
+  return {
+    id: link.id,
+    quoteId: link.quoteId,
+    orderId: link.orderId,
+    purpose: link.purpose,
+    currency: link.currency,
+    amountMinor: link.amountMinor,
+    url: link.url,
+    status: link.status,
+    createdAt: link.createdAt,
+  }
 }
 
 export async function createOrderLink(deps: Deps, actor: Actor, orderId: number, input: PaymentLinkInput) {
@@ -117,8 +208,19 @@ export async function createOrderLink(deps: Deps, actor: Actor, orderId: number,
   if (dueForPurpose <= 0) throw invalid('purpose', input.purpose === 'deposit' ? 'the deposit is already paid' : 'nothing is owed on this order')
   const amount = input.amountMinor ?? dueForPurpose
   if (amount > m.owedMinor) throw invalid('amountMinor', `must not be more than what is owed (${m.owedMinor})`)
-  const [c] = await deps.db.select({ email: s.customers.email }).from(s.customers).where(eq(s.customers.id, (await orderTerms(deps.db, actor.workshopId, orderId)).order.customerId))
-  return createLink(deps, actor, { quoteId: m.quoteId, orderId, purpose: input.purpose, amountMinor: amount, currency: m.currency, description: `${input.purpose === 'deposit' ? 'Deposit' : 'Balance'} for order ${m.orderNumber}`, customerEmail: c?.email || undefined })
+  const [c] = await deps.db
+    .select({ email: s.customers.email })
+    .from(s.customers)
+    .where(eq(s.customers.id, (await orderTerms(deps.db, actor.workshopId, orderId)).order.customerId))
+  return createLink(deps, actor, {
+    quoteId: m.quoteId,
+    orderId,
+    purpose: input.purpose,
+    amountMinor: amount,
+    currency: m.currency,
+    description: `${input.purpose === 'deposit' ? 'Deposit' : 'Balance'} for order ${m.orderNumber}`,
+    customerEmail: c?.email || undefined,
+  })
 }
 
 async function sendReceipt(deps: Deps, workshopId: number, paymentId: number) {
@@ -138,9 +240,27 @@ async function sendReceipt(deps: Deps, workshopId: number, paymentId: number) {
     `${refund ? 'Refunded' : 'Received'}: ${amount} (${p.method === 'card' ? 'card' : p.method === 'cash' ? 'cash' : 'bank transfer'}) on ${dayjs(p.receivedAt).tz(w.timeZone).format('D MMMM YYYY')}`,
     ...(left !== null ? [`Still to pay on ${what}: ${money(minorToMajor(left, p.currency), p.currency)}`] : []),
   ]
-  const text = [`Dear ${c?.name ?? 'customer'},`, '', refund ? `We have refunded ${amount} for ${what}.` : `Thank you: we have received ${amount} for ${what}.`, '', ...lines, '', `— ${w.name}`].join('\n')
-  const html = `<div style="font-family:sans-serif;line-height:1.5">${text.split('\n').map((l) => (l ? `<p>${l.replace(/[&<>]/g, (x) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[x]!)}</p>` : '')).join('')}</div>`
-  return sendRecorded(deps, { workshopId, to: c?.email ?? '', kind: 'payment-receipt', orderId: o?.id ?? null, meta: { paymentId, quoteId: q?.id ?? null }, content: { subject: `${w.name}: ${refund ? 'refund' : 'receipt'} for ${what}`, text, html } })
+  const text = [
+    `Dear ${c?.name ?? 'customer'},`,
+    '',
+    refund ? `We have refunded ${amount} for ${what}.` : `Thank you: we have received ${amount} for ${what}.`,
+    '',
+    ...lines,
+    '',
+    `— ${w.name}`,
+  ].join('\n')
+  const html = `<div style="font-family:sans-serif;line-height:1.5">${text
+    .split('\n')
+    .map((l) => (l ? `<p>${l.replace(/[&<>]/g, (x) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[x]!)}</p>` : ''))
+    .join('')}</div>`
+  return sendRecorded(deps, {
+    workshopId,
+    to: c?.email ?? '',
+    kind: 'payment-receipt',
+    orderId: o?.id ?? null,
+    meta: { paymentId, quoteId: q?.id ?? null },
+    content: { subject: `${w.name}: ${refund ? 'refund' : 'receipt'} for ${what}`, text, html },
+  })
 }
 
 class AlreadyBooked extends Error {}
@@ -156,35 +276,65 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
     throw invalid('Stripe-Signature', `does not match the payload (${(err as Error).message.split('\n')[0]})`)
   }
   const session = event.data.object as Stripe.Checkout.Session
-  const booksMoney = (event.type === 'checkout.session.completed' || event.type === 'checkout.session.async_payment_succeeded') && session.payment_status === 'paid'
+  const booksMoney =
+    (event.type === 'checkout.session.completed' || event.type === 'checkout.session.async_payment_succeeded') && session.payment_status === 'paid'
   const [link] = booksMoney ? await deps.db.select().from(s.paymentLinks).where(eq(s.paymentLinks.providerId, session.id)) : []
   if (!booksMoney || !link) {
-    await deps.db.insert(s.providerEvents).values({ id: event.id, workshopId: link?.workshopId ?? null, type: event.type, payload: event as unknown as Record<string, unknown> }).onConflictDoNothing()
+    await deps.db
+      .insert(s.providerEvents)
+      .values({ id: event.id, workshopId: link?.workshopId ?? null, type: event.type, payload: event as unknown as Record<string, unknown> })
+      .onConflictDoNothing()
     return { received: true, booked: false }
   }
   const [quote] = link.quoteId ? await deps.db.select().from(s.quotes).where(eq(s.quotes.id, link.quoteId)) : []
   const actor: Actor = { userId: link.createdBy ?? quote?.createdBy ?? 0, workshopId: link.workshopId, role: 'sales', personId: null, name: 'payment provider' }
-  const providerRef = typeof session.payment_intent === 'string' ? session.payment_intent : session.payment_intent?.id ?? session.id
+  const providerRef = typeof session.payment_intent === 'string' ? session.payment_intent : (session.payment_intent?.id ?? session.id)
 
   const book = async (tx: Trx, newOrderId: number | null) => {
-    const ins = await tx.insert(s.providerEvents).values({ id: event.id, workshopId: link.workshopId, type: event.type, payload: event as unknown as Record<string, unknown> }).onConflictDoNothing().returning({ id: s.providerEvents.id })
+    const ins = await tx
+      .insert(s.providerEvents)
+      .values({ id: event.id, workshopId: link.workshopId, type: event.type, payload: event as unknown as Record<string, unknown> })
+      .onConflictDoNothing()
+      .returning({ id: s.providerEvents.id })
     if (!ins.length) throw new AlreadyBooked()
     const [q] = link.quoteId ? await tx.select().from(s.quotes).where(eq(s.quotes.id, link.quoteId)).for('update') : []
     const withdrawn = q?.status === 'withdrawn'
     const orderId = newOrderId ?? link.orderId ?? q?.orderId ?? null
-    const [p] = await tx.insert(s.payments).values({
-      workshopId: link.workshopId, orderId, quoteId: link.quoteId, paymentLinkId: link.id, method: 'card', purpose: link.purpose,
-      amountMinor: session.amount_total ?? link.amountMinor, currency: (session.currency ?? link.currency).toUpperCase(), providerRef, toRefund: withdrawn,
-      note: withdrawn ? 'paid after the quote was withdrawn' : '', recordedBy: null, receivedAt: new Date(event.created * 1000).toISOString(),
-    }).onConflictDoNothing().returning()
+    const [p] = await tx
+      .insert(s.payments)
+      .values({
+        workshopId: link.workshopId,
+        orderId,
+        quoteId: link.quoteId,
+        paymentLinkId: link.id,
+        method: 'card',
+        purpose: link.purpose,
+        amountMinor: session.amount_total ?? link.amountMinor,
+        currency: (session.currency ?? link.currency).toUpperCase(),
+        providerRef,
+        toRefund: withdrawn,
+        note: withdrawn ? 'paid after the quote was withdrawn' : '',
+        recordedBy: null,
+        receivedAt: new Date(event.created * 1000).toISOString(),
+      })
+      .onConflictDoNothing()
+      .returning()
     if (!p) throw new AlreadyBooked()
     await tx.update(s.paymentLinks).set({ status: 'paid' }).where(eq(s.paymentLinks.id, link.id))
     let quoteChanged: { id: number; version: number; status: string } | null = null
     if (q && !withdrawn && q.status !== 'accepted') {
-      const [u] = await tx.update(s.quotes).set({ status: 'accepted', acceptedAt: new Date().toISOString(), orderId, version: sql`${s.quotes.version} + 1` }).where(eq(s.quotes.id, q.id)).returning()
+      const [u] = await tx
+        .update(s.quotes)
+        .set({ status: 'accepted', acceptedAt: new Date().toISOString(), orderId, version: sql`${s.quotes.version} + 1` })
+        .where(eq(s.quotes.id, q.id))
+        .returning()
       quoteChanged = { id: u!.id, version: u!.version, status: u!.status }
     }
-    if (q && orderId) await tx.update(s.payments).set({ orderId }).where(and(eq(s.payments.quoteId, q.id), isNull(s.payments.orderId)))
+    if (q && orderId)
+      await tx
+        .update(s.payments)
+        .set({ orderId })
+        .where(and(eq(s.payments.quoteId, q.id), isNull(s.payments.orderId)))
     await audit(tx, actor, 'book', 'payment', p.id, { eventId: event.id, providerRef, amountMinor: p.amountMinor, currency: p.currency, toRefund: withdrawn })
     return { payment: p, quoteChanged }
   }
@@ -210,10 +360,21 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
 export async function recordManual(deps: Deps, actor: Actor, orderId: number, input: ManualPaymentInput) {
   const m = await orderTerms(deps.db, actor.workshopId, orderId)
   const p = await deps.db.transaction(async (tx) => {
-    const [p] = await tx.insert(s.payments).values({
-      workshopId: actor.workshopId, orderId, quoteId: m.quote?.id ?? null, method: input.method, purpose: input.purpose, amountMinor: input.amountMinor, currency: m.currency,
-      note: input.note, recordedBy: actor.userId, receivedAt: input.receivedAt ? new Date(input.receivedAt).toISOString() : new Date().toISOString(),
-    }).returning()
+    const [p] = await tx
+      .insert(s.payments)
+      .values({
+        workshopId: actor.workshopId,
+        orderId,
+        quoteId: m.quote?.id ?? null,
+        method: input.method,
+        purpose: input.purpose,
+        amountMinor: input.amountMinor,
+        currency: m.currency,
+        note: input.note,
+        recordedBy: actor.userId,
+        receivedAt: input.receivedAt ? new Date(input.receivedAt).toISOString() : new Date().toISOString(),
+      })
+      .returning()
     await audit(tx, actor, 'record', 'payment', p!.id, { method: input.method, amountMinor: input.amountMinor, currency: m.currency })
     return p!
   })
@@ -228,10 +389,17 @@ export async function recordManual(deps: Deps, actor: Actor, orderId: number, in
  */
 export async function refund(deps: Deps, actor: Actor, paymentId: number, input: RefundInput) {
   const r = await deps.db.transaction(async (tx) => {
-    const [orig] = await tx.select().from(s.payments).where(and(eq(s.payments.id, paymentId), eq(s.payments.workshopId, actor.workshopId))).for('update')
+    const [orig] = await tx
+      .select()
+      .from(s.payments)
+      .where(and(eq(s.payments.id, paymentId), eq(s.payments.workshopId, actor.workshopId)))
+      .for('update')
     if (!orig) throw notFound('Payment')
     if (orig.amountMinor <= 0) throw invalid('paymentId', 'is a refund itself')
-    const [{ done } = { done: 0 }] = await tx.select({ done: sql<number>`coalesce(-sum(${s.payments.amountMinor}), 0)::int` }).from(s.payments).where(eq(s.payments.refundOf, orig.id))
+    const [{ done } = { done: 0 }] = await tx
+      .select({ done: sql<number>`coalesce(-sum(${s.payments.amountMinor}), 0)::int` })
+      .from(s.payments)
+      .where(eq(s.payments.refundOf, orig.id))
     const left = orig.amountMinor - done
     const amount = input.amountMinor ?? left
     if (left <= 0) throw invalid('amountMinor', 'this payment is already refunded in full')
@@ -246,10 +414,25 @@ export async function refund(deps: Deps, actor: Actor, paymentId: number, input:
         throw new AppError({ code: 'unprocessable', message: `The payment provider refused the refund: ${(err as Error).message}` })
       }
     }
-    const [r] = await tx.insert(s.payments).values({
-      workshopId: actor.workshopId, orderId: orig.orderId, quoteId: orig.quoteId, paymentLinkId: orig.paymentLinkId, method: orig.method, purpose: 'refund', amountMinor: -amount, currency: orig.currency,
-      providerRef, toRefund: orig.toRefund, refundOf: orig.id, note: input.note, recordedBy: actor.userId, receivedAt: new Date().toISOString(),
-    }).returning()
+    const [r] = await tx
+      .insert(s.payments)
+      .values({
+        workshopId: actor.workshopId,
+        orderId: orig.orderId,
+        quoteId: orig.quoteId,
+        paymentLinkId: orig.paymentLinkId,
+        method: orig.method,
+        purpose: 'refund',
+        amountMinor: -amount,
+        currency: orig.currency,
+        providerRef,
+        toRefund: orig.toRefund,
+        refundOf: orig.id,
+        note: input.note,
+        recordedBy: actor.userId,
+        receivedAt: new Date().toISOString(),
+      })
+      .returning()
     // Fully refunded: off the "to refund" list (the payment and its refunds then cancel out in what was paid).
     if (amount === left && orig.toRefund) {
       await tx.update(s.payments).set({ toRefund: false }).where(eq(s.payments.id, orig.id))
@@ -277,21 +460,36 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
   const from = q.from ?? dayjs(to).subtract(12, 'week').format('YYYY-MM-DD')
   const weeks = new Map<string, { week: string; receivedMinor: number; refundedMinor: number; owedMinor: number }>()
   const at = (k: string) => weeks.get(k) ?? weeks.set(k, { week: k, receivedMinor: 0, refundedMinor: 0, owedMinor: 0 }).get(k)!
-  for (const p of await db.select().from(s.payments).where(and(eq(s.payments.workshopId, workshopId), eq(s.payments.toRefund, false)))) {
+  for (const p of await db
+    .select()
+    .from(s.payments)
+    .where(and(eq(s.payments.workshopId, workshopId), eq(s.payments.toRefund, false)))) {
     const d = dayjs(p.receivedAt).tz(w.timeZone)
     const day = d.format('YYYY-MM-DD')
     if (day < from || day > to) continue
     if (p.amountMinor >= 0) at(isoWeek(d)).receivedMinor += p.amountMinor
     else at(isoWeek(d)).refundedMinor -= p.amountMinor
   }
-  const open = await db.select().from(s.orders).where(and(eq(s.orders.workshopId, workshopId), sql`${s.orders.status} not in ('collected', 'cancelled')`))
-  let owedMinor = 0, depositsHeldMinor = 0
+  const open = await db
+    .select()
+    .from(s.orders)
+    .where(and(eq(s.orders.workshopId, workshopId), sql`${s.orders.status} not in ('collected', 'cancelled')`))
+  let owedMinor = 0,
+    depositsHeldMinor = 0
   const depositsHeld: { orderId: number; orderNumber: string; customerName: string; paidMinor: number }[] = []
   for (const o of open) {
     const m = await orderMoney(db, workshopId, o.id)
-    if (m.owedMinor > 0) { owedMinor += m.owedMinor; at(isoWeek(dayjs(o.promisedDate ?? o.dueDate))).owedMinor += m.owedMinor }
+    if (m.owedMinor > 0) {
+      owedMinor += m.owedMinor
+      at(isoWeek(dayjs(o.promisedDate ?? o.dueDate))).owedMinor += m.owedMinor
+    }
     if (m.paidMinor > 0) {
-      const started = await db.select({ id: s.operations.id }).from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).where(and(eq(s.jobBags.orderId, o.id), inArray(s.operations.status, STARTED))).limit(1)
+      const started = await db
+        .select({ id: s.operations.id })
+        .from(s.operations)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+        .where(and(eq(s.jobBags.orderId, o.id), inArray(s.operations.status, STARTED)))
+        .limit(1)
       if (!started.length) {
         const [c] = await db.select({ name: s.customers.name }).from(s.customers).where(eq(s.customers.id, o.customerId))
         depositsHeldMinor += m.paidMinor
@@ -302,21 +500,48 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
   return { currency: w.currency, from, to, weeks: [...weeks.values()].sort((a, b) => a.week.localeCompare(b.week)), owedMinor, depositsHeldMinor, depositsHeld }
 }
 
-const csvCell = (v: unknown) => { const t = v === null || v === undefined ? '' : String(v); return /[",\n]/.test(t) || (/^[=+\-@]/.test(t) && !/^-?\d+(\.\d+)?$/.test(t)) ? `"${t.replace(/"/g, '""')}"` : t }
+const csvCell = (v: unknown) => {
+  const t = v === null || v === undefined ? '' : String(v)
+  return /[",\n]/.test(t) || (/^[=+\-@]/.test(t) && !/^-?\d+(\.\d+)?$/.test(t)) ? `"${t.replace(/"/g, '""')}"` : t
+}
 
 export async function exportCsv(db: Db, workshopId: number, q: { from?: string; to?: string }) {
   const w = await workshopOf(db, workshopId)
-  const rows = await db.select({ p: s.payments, orderNumber: s.orders.number, quoteNumber: s.quotes.number, customer: s.customers.name, by: s.users.name })
-    .from(s.payments).leftJoin(s.orders, eq(s.orders.id, s.payments.orderId)).leftJoin(s.quotes, eq(s.quotes.id, s.payments.quoteId))
-    .leftJoin(s.customers, sql`${s.customers.id} = coalesce(${s.orders.customerId}, ${s.quotes.customerId})`).leftJoin(s.users, eq(s.users.id, s.payments.recordedBy))
-    .where(eq(s.payments.workshopId, workshopId)).orderBy(asc(s.payments.receivedAt), asc(s.payments.id))
-  const lines = [['received_at', 'order', 'quote', 'customer', 'method', 'purpose', 'amount', 'currency', 'to_refund', 'provider_ref', 'recorded_by', 'note'].join(',')]
+  const rows = await db
+    .select({ p: s.payments, orderNumber: s.orders.number, quoteNumber: s.quotes.number, customer: s.customers.name, by: s.users.name })
+    .from(s.payments)
+    .leftJoin(s.orders, eq(s.orders.id, s.payments.orderId))
+    .leftJoin(s.quotes, eq(s.quotes.id, s.payments.quoteId))
+    .leftJoin(s.customers, sql`${s.customers.id} = coalesce(${s.orders.customerId}, ${s.quotes.customerId})`)
+    .leftJoin(s.users, eq(s.users.id, s.payments.recordedBy))
+    .where(eq(s.payments.workshopId, workshopId))
+    .orderBy(asc(s.payments.receivedAt), asc(s.payments.id))
+  const lines = [
+    ['received_at', 'order', 'quote', 'customer', 'method', 'purpose', 'amount', 'currency', 'to_refund', 'provider_ref', 'recorded_by', 'note'].join(','),
+  ]
   for (const r of rows) {
     const day = dayjs(r.p.receivedAt).tz(w.timeZone).format('YYYY-MM-DD')
     if ((q.from && day < q.from) || (q.to && day > q.to)) continue
     // Major units with the currency's own decimals (ISO 4217: 2 for GBP, none for JPY), written from the minor units digit by digit.
     const amount = minorToDecimal(r.p.amountMinor, r.p.currency)
-    lines.push([new Date(r.p.receivedAt).toISOString(), r.orderNumber, r.quoteNumber, r.customer, r.p.method, r.p.purpose, amount, r.p.currency, r.p.toRefund ? 'yes' : 'no', r.p.providerRef, r.by, r.p.note].map(csvCell).join(','))
+    lines.push(
+      [
+        new Date(r.p.receivedAt).toISOString(),
+        r.orderNumber,
+        r.quoteNumber,
+        r.customer,
+        r.p.method,
+        r.p.purpose,
+        amount,
+        r.p.currency,
+        r.p.toRefund ? 'yes' : 'no',
+        r.p.providerRef,
+        r.by,
+        r.p.note,
+      ]
+        .map(csvCell)
+        .join(','),
+    )
   }
   return lines.join('\r\n') + '\r\n'
 }

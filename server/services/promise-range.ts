@@ -29,16 +29,39 @@ export const DEFAULT_RUNS = 500
 /** The stated assumption where history is thin, in words for the screen. */
 export const ASSUMPTION = `Where a kind of work has fewer than ${MIN_HISTORY} finished examples, its duration is an assumption, not a measurement: the estimate times a log-normal factor with median 1 and σ = ${FALLBACK_SIGMA} (about ${Math.round((Math.exp(FALLBACK_SIGMA * 1.2815515655) - 1) * 100)} % over the estimate one time in ten); outside work (casting, hallmarking) in whole working days, at least one.`
 
-export interface KindSpread { kind: string; source: 'history' | 'log-normal'; samples: number; ratios: number[]; p10: number; p50: number; p90: number }
+export interface KindSpread {
+  kind: string
+  source: 'history' | 'log-normal'
+  samples: number
+  ratios: number[]
+  p10: number
+  p50: number
+  p90: number
+}
 
 /** Actual ÷ estimate ratios per operation kind (code) from finished operations with time records. */
 export async function kindSpreads(db: Db, workshopId: number): Promise<Map<string, KindSpread>> {
-  const done = await db.select({ id: s.operations.id, kindId: s.operations.kindId, estimate: s.operations.estimateMinutes })
-    .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+  const done = await db
+    .select({ id: s.operations.id, kindId: s.operations.kindId, estimate: s.operations.estimateMinutes })
+    .from(s.operations)
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
     .where(and(eq(s.jobBags.workshopId, workshopId), eq(s.operations.status, 'done'), gt(s.operations.estimateMinutes, 0)))
   const kinds = await db.select().from(s.operationKinds).where(eq(s.operationKinds.workshopId, workshopId))
-  const skills = kinds.length ? await db.select().from(s.personSkills).where(inArray(s.personSkills.kindId, kinds.map((k) => k.id))) : []
-  const records = await effectiveRecords(db, done.map((d) => d.id))
+  const skills = kinds.length
+    ? await db
+        .select()
+        .from(s.personSkills)
+        .where(
+          inArray(
+            s.personSkills.kindId,
+            kinds.map((k) => k.id),
+          ),
+        )
+    : []
+  const records = await effectiveRecords(
+    db,
+    done.map((d) => d.id),
+  )
   const actual = actualMinutesByOperation(records)
   const worker = new Map<number, number>()
   for (const r of records) if (!r.voided && !worker.has(r.operationId)) worker.set(r.operationId, r.personId)
@@ -54,15 +77,33 @@ export async function kindSpreads(db: Db, workshopId: number): Promise<Map<strin
   // Outside work: working days from its predecessors' finish (when it was sent) to its return, against its lead days.
   {
     const workingDaysBetween = await workingDayCounter(db, workshopId)
-    const outside = await db.select({ id: s.operations.id, bag: s.operations.jobBagId, bagCreated: s.jobBags.createdAt, kindId: s.operations.kindId, key: s.operations.key, after: s.operations.after, leadDays: s.operations.leadDays, finishedAt: s.operations.finishedAt })
-      .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    const outside = await db
+      .select({
+        id: s.operations.id,
+        bag: s.operations.jobBagId,
+        bagCreated: s.jobBags.createdAt,
+        kindId: s.operations.kindId,
+        key: s.operations.key,
+        after: s.operations.after,
+        leadDays: s.operations.leadDays,
+        finishedAt: s.operations.finishedAt,
+      })
+      .from(s.operations)
+      .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
       .where(and(eq(s.jobBags.workshopId, workshopId), eq(s.operations.status, 'done'), gt(s.operations.leadDays, 0)))
     const bags = [...new Set(outside.map((o) => o.bag))]
-    const siblings = bags.length ? await db.select({ bag: s.operations.jobBagId, key: s.operations.key, finishedAt: s.operations.finishedAt }).from(s.operations).where(inArray(s.operations.jobBagId, bags)) : []
+    const siblings = bags.length
+      ? await db
+          .select({ bag: s.operations.jobBagId, key: s.operations.key, finishedAt: s.operations.finishedAt })
+          .from(s.operations)
+          .where(inArray(s.operations.jobBagId, bags))
+      : []
     for (const o of outside) {
       if (!o.finishedAt) continue
       // A first step (a casting) can go out as soon as the job bag exists: counted from then.
-      const sent = o.after.length ? siblings.filter((x) => x.bag === o.bag && o.after.includes(x.key)).map((x) => x.finishedAt) : [new Date(o.bagCreated).toISOString()]
+      const sent = o.after.length
+        ? siblings.filter((x) => x.bag === o.bag && o.after.includes(x.key)).map((x) => x.finishedAt)
+        : [new Date(o.bagCreated).toISOString()]
       if (sent.length !== Math.max(1, o.after.length) || sent.some((x) => !x)) continue
       const from = sent.reduce((m, x) => (Date.parse(x!) > Date.parse(m!) ? x : m))!
       const ratio = workingDaysBetween(from, o.finishedAt) / o.leadDays
@@ -73,8 +114,16 @@ export async function kindSpreads(db: Db, workshopId: number): Promise<Map<strin
   for (const k of kinds) {
     const list = (ratios.get(k.id) ?? []).sort((a, b) => a - b)
     const history = list.length >= MIN_HISTORY
-    const q = (p: number) => history ? quantileSorted(list, p) : Math.exp(FALLBACK_SIGMA * normalQuantile(p))
-    out.set(k.code, { kind: k.code, source: history ? 'history' : 'log-normal', samples: list.length, ratios: history ? list : [], p10: q(0.1), p50: q(0.5), p90: q(0.9) })
+    const q = (p: number) => (history ? quantileSorted(list, p) : Math.exp(FALLBACK_SIGMA * normalQuantile(p)))
+    out.set(k.code, {
+      kind: k.code,
+      source: history ? 'history' : 'log-normal',
+      samples: list.length,
+      ratios: history ? list : [],
+      p10: q(0.1),
+      p50: q(0.5),
+      p90: q(0.9),
+    })
   }
   return out
 }
@@ -104,14 +153,18 @@ const normalQuantile = (p: number) => Z[p] ?? 0
 export function drawRatio(spread: KindSpread | undefined, rng: Rng): number {
   if (spread && spread.source === 'history') return spread.ratios[rng.int(spread.ratios.length)]!
   // Box–Muller: one standard normal from two uniforms.
-  const u = 1 - rng.next(), v = rng.next()
+  const u = 1 - rng.next(),
+    v = rng.next()
   return Math.exp(FALLBACK_SIGMA * Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * v))
 }
 
 /** Bookings per resource as sorted, merged wall-clock intervals. */
 function bookings(plan: Plan, from: number): { bench: Map<string, Interval[]>; person: Map<string, Interval[]> } {
-  const bench = new Map<string, Interval[]>(), person = new Map<string, Interval[]>()
-  const add = (m: Map<string, Interval[]>, id: string | null, iv: Interval) => { if (id) (m.get(id) ?? m.set(id, []).get(id)!).push(iv) }
+  const bench = new Map<string, Interval[]>(),
+    person = new Map<string, Interval[]>()
+  const add = (m: Map<string, Interval[]>, id: string | null, iv: Interval) => {
+    if (id) (m.get(id) ?? m.set(id, []).get(id)!).push(iv)
+  }
   for (const p of plan.operations) {
     if (p.end <= from) continue
     add(bench, p.benchId, { start: p.start, end: p.end })
@@ -135,26 +188,42 @@ function merge(list: Interval[]): Interval[] {
 /** First booking overlapping [start, end) in a sorted list, or undefined. */
 function clash(list: Interval[] | undefined, start: number, end: number): Interval | undefined {
   if (!list) return undefined
-  let lo = 0, hi = list.length
-  while (lo < hi) { const mid = (lo + hi) >> 1; if (list[mid]!.end > start) hi = mid; else lo = mid + 1 }
+  let lo = 0,
+    hi = list.length
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1
+    if (list[mid]!.end > start) hi = mid
+    else lo = mid + 1
+  }
   const b = list[lo]
   return b && b.start < end ? b : undefined
 }
 
 function topo(ops: Operation[]): Operation[] {
   const byId = new Map(ops.map((o) => [o.id, o]))
-  const seen = new Set<string>(), out: Operation[] = []
+  const seen = new Set<string>(),
+    out: Operation[] = []
   const visit = (o: Operation) => {
     if (seen.has(o.id)) return
     seen.add(o.id)
-    for (const p of o.predecessors) { const q = byId.get(p); if (q) visit(q) }
+    for (const p of o.predecessors) {
+      const q = byId.get(p)
+      if (q) visit(q)
+    }
     out.push(o)
   }
   ops.forEach(visit)
   return out
 }
 
-export interface SimulationInput { problem: Problem; plan: Plan; operations: Operation[]; spreads: Map<string, KindSpread>; runs: number; seed: number }
+export interface SimulationInput {
+  problem: Problem
+  plan: Plan
+  operations: Operation[]
+  spreads: Map<string, KindSpread>
+  runs: number
+  seed: number
+}
 
 /** Completion minute of the prospective job bag in each run (unsorted, in run order). Pure and repeatable for a seed. */
 export function simulateCompletions(o: SimulationInput): number[] {
@@ -167,14 +236,18 @@ export function simulateCompletions(o: SimulationInput): number[] {
   const pairWindows = (b: string | null, p: string | null) => {
     const key = `${b}|${p}`
     let w = windows.get(key)
-    if (!w) { w = b && p ? intersect(benches.get(b) ?? [], people.get(p) ?? []) : (b ? benches.get(b) : p ? people.get(p) : undefined) ?? []; windows.set(key, w) }
+    if (!w) {
+      w = b && p ? intersect(benches.get(b) ?? [], people.get(p) ?? []) : ((b ? benches.get(b) : p ? people.get(p) : undefined) ?? [])
+      windows.set(key, w)
+    }
     return w
   }
   const order = topo(o.operations)
   const out: number[] = []
   for (let run = 0; run < o.runs; run++) {
     const finish = new Map<string, number>()
-    const ownBench = new Map<string, Interval[]>(), ownPerson = new Map<string, Interval[]>()
+    const ownBench = new Map<string, Interval[]>(),
+      ownPerson = new Map<string, Interval[]>()
     let completion = problem.now
     for (const op of order) {
       let ready = problem.now
@@ -194,15 +267,22 @@ export function simulateCompletions(o: SimulationInput): number[] {
           for (let guard = 0; guard < 500; guard++) {
             const segs = walkWorkingTime(w, t, minutes)
             if (!segs) break
-            const st = segs[0]!.start, en = segs[segs.length - 1]!.end
+            const st = segs[0]!.start,
+              en = segs[segs.length - 1]!.end
             if (best && st >= best.end) break
-            const hit = (opt.benchId && (clash(base.bench.get(opt.benchId), st, en) ?? clash(ownBench.get(opt.benchId), st, en)))
-              || (opt.personId && (clash(base.person.get(opt.personId), st, en) ?? clash(ownPerson.get(opt.personId), st, en)))
-            if (!hit) { if (!best || en < best.end) best = { start: st, end: en, benchId: opt.benchId, personId: opt.personId }; break }
+            const hit =
+              (opt.benchId && (clash(base.bench.get(opt.benchId), st, en) ?? clash(ownBench.get(opt.benchId), st, en))) ||
+              (opt.personId && (clash(base.person.get(opt.personId), st, en) ?? clash(ownPerson.get(opt.personId), st, en)))
+            if (!hit) {
+              if (!best || en < best.end) best = { start: st, end: en, benchId: opt.benchId, personId: opt.personId }
+              break
+            }
             t = hit.end
           }
         }
-        if (!best) { end = problem.horizon } else {
+        if (!best) {
+          end = problem.horizon
+        } else {
           end = best.end
           if (best.benchId) ownBench.set(best.benchId, merge([...(ownBench.get(best.benchId) ?? []), { start: best.start, end: best.end }]))
           if (best.personId) ownPerson.set(best.personId, merge([...(ownPerson.get(best.personId) ?? []), { start: best.start, end: best.end }]))

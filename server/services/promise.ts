@@ -50,17 +50,28 @@ export function planFromAssignments(data: PlanningData, live: Assignments): Plan
     const id = String(a.operationId)
     const op = engineOps.get(id)
     if (!op || op.done) continue
-    const start = c.toMinute(a.start), end = Math.max(start, c.toMinute(a.end))
+    const start = c.toMinute(a.start),
+      end = Math.max(start, c.toMinute(a.end))
     const outside = !!op.outsideWorkingDays
     let segments = [{ start, end }]
     if (!outside) {
-      const b = a.benchId ? benches.get(String(a.benchId)) : undefined, pe = a.personId ? people.get(String(a.personId)) : undefined
+      const b = a.benchId ? benches.get(String(a.benchId)) : undefined,
+        pe = a.personId ? people.get(String(a.personId)) : undefined
       if (!b || !pe) continue
       const w = intersect(b, pe)
       if (!w.some((x) => x.start <= start && start < x.end)) continue
       segments = clipToWindows(w, start, end)
     }
-    operations.push({ operationId: id, jobId: op.jobId, benchId: outside ? null : engineId(a.benchId), personId: outside ? null : engineId(a.personId), start, end, segments, reason: { kind: 'fixed', detail: 'on the live plan' } })
+    operations.push({
+      operationId: id,
+      jobId: op.jobId,
+      benchId: outside ? null : engineId(a.benchId),
+      personId: outside ? null : engineId(a.personId),
+      start,
+      end,
+      segments,
+      reason: { kind: 'fixed', detail: 'on the live plan' },
+    })
   }
   const jobs = p.jobs.map((j) => {
     const completion = operations.filter((o) => o.jobId === j.id).reduce((m, o) => Math.max(m, o.end), p.now)
@@ -69,8 +80,15 @@ export function planFromAssignments(data: PlanningData, live: Assignments): Plan
   })
   const weight = new Map(p.jobs.map((j) => [j.id, j.weight]))
   return {
-    operations, jobs,
-    score: { weightedTardiness: jobs.reduce((t, j) => t + j.tardiness * (weight.get(j.jobId) ?? 1), 0), makespan: operations.reduce((m, o) => Math.max(m, o.end), p.now), moves: 0, feasible: true, violations: [] },
+    operations,
+    jobs,
+    score: {
+      weightedTardiness: jobs.reduce((t, j) => t + j.tardiness * (weight.get(j.jobId) ?? 1), 0),
+      makespan: operations.reduce((m, o) => Math.max(m, o.end), p.now),
+      moves: 0,
+      feasible: true,
+      violations: [],
+    },
     stats: { iterations: 0, elapsedMs: 0, firstPlanMs: 0 },
   }
 }
@@ -80,7 +98,13 @@ async function basePlan(deps: Deps, workshopId: number, data: PlanningData) {
   const plan = planFromAssignments(data, (await readLivePlan(deps.db, workshopId)).assignments)
   if (plan.operations.length > 0) return { plan, basis: 'live-plan' as const, basisNote: 'Measured against the live plan; current work keeps its times.' }
   const quick = data.problem.operations.some((o) => !o.done)
-    ? await cached(deps, workshopId, 'quick-plan', () => { try { return solve(data.problem, { seed: 1, timeLimitMs: QUICK_PLAN_MS }) } catch (err) { throw planningError(err, data) } })
+    ? await cached(deps, workshopId, 'quick-plan', () => {
+        try {
+          return solve(data.problem, { seed: 1, timeLimitMs: QUICK_PLAN_MS })
+        } catch (err) {
+          throw planningError(err, data)
+        }
+      })
     : plan
   // Only operations still open in this problem (the cached plan may be a few minutes old).
   const ids = new Set(data.problem.operations.filter((o) => !o.done).map((o) => o.id))
@@ -89,8 +113,16 @@ async function basePlan(deps: Deps, workshopId: number, data: PlanningData) {
 }
 
 /** The prospective job bag from a routing template: operations with estimates and the bench × person options. */
-async function prospectiveJob(deps: Deps, workshopId: number, data: PlanningData, input: Pick<PromiseCheckInput, 'templateId' | 'params' | 'priority' | 'wantedDate'>) {
-  const [t] = await deps.db.select().from(s.routingTemplates).where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, workshopId)))
+async function prospectiveJob(
+  deps: Deps,
+  workshopId: number,
+  data: PlanningData,
+  input: Pick<PromiseCheckInput, 'templateId' | 'params' | 'priority' | 'wantedDate'>,
+) {
+  const [t] = await deps.db
+    .select()
+    .from(s.routingTemplates)
+    .where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, workshopId)))
   if (!t) throw invalid('templateId', 'is not a routing template of this workshop')
   const steps = await deps.db.select().from(s.templateSteps).where(eq(s.templateSteps.templateId, t.id)).orderBy(asc(s.templateSteps.seq))
   if (!steps.length) throw invalid('templateId', 'has no steps')
@@ -103,7 +135,11 @@ async function prospectiveJob(deps: Deps, workshopId: number, data: PlanningData
     const minutes = outside ? 0 : routingStepMinutes(st, t, input.params)
     summary.push({ key: st.key, name: st.name, kind: kind.code, minutes, outsideDays: outside ? Math.max(1, st.leadDays) : 0 })
     const base: Operation = {
-      id: idOf(st.key), jobId: PROSPECTIVE_JOB, name: st.name, kind: kind.code, options: [],
+      id: idOf(st.key),
+      jobId: PROSPECTIVE_JOB,
+      name: st.name,
+      kind: kind.code,
+      options: [],
       predecessors: st.after.filter((k) => keys.has(k)).map(idOf),
       ...(st.waitAfterMinutes > 0 ? { waitAfter: st.waitAfterMinutes } : {}),
     }
@@ -168,14 +204,31 @@ async function computePromise(deps: Deps, actor: Actor, input: PromiseCheckInput
     range = confidenceRange(data, base.plan, pj.operations, spreads, input.runs ?? DEFAULT_RUNS, input.seed, input.sample)
   }
   return {
-    now: now.toISOString(), timeZone: data.clock.timeZone, basis: base.basis, basisNote: base.basisNote,
-    template: { id: pj.template.id, name: pj.template.name }, operations: pj.summary, fixedPlan, replanned,
-    wanted: input.wantedDate ? { date: input.wantedDate, fixedPlanMeets: fixedPlan.date <= input.wantedDate, replannedMeets: replanned.date <= input.wantedDate } : null,
-    range, elapsedMs: Math.round(performance.now() - t0),
+    now: now.toISOString(),
+    timeZone: data.clock.timeZone,
+    basis: base.basis,
+    basisNote: base.basisNote,
+    template: { id: pj.template.id, name: pj.template.name },
+    operations: pj.summary,
+    fixedPlan,
+    replanned,
+    wanted: input.wantedDate
+      ? { date: input.wantedDate, fixedPlanMeets: fixedPlan.date <= input.wantedDate, replannedMeets: replanned.date <= input.wantedDate }
+      : null,
+    range,
+    elapsedMs: Math.round(performance.now() - t0),
   }
 }
 
-function confidenceRange(data: PlanningData, plan: Plan, operations: Operation[], spreads: Map<string, KindSpread>, runs: number, seed: number, withSample: boolean): NonNullable<PromiseCheckResult['range']> {
+function confidenceRange(
+  data: PlanningData,
+  plan: Plan,
+  operations: Operation[],
+  spreads: Map<string, KindSpread>,
+  runs: number,
+  seed: number,
+  withSample: boolean,
+): NonNullable<PromiseCheckResult['range']> {
   const now = data.problem.now
   const sample = simulateCompletions({ problem: data.problem, plan, operations, spreads, runs, seed }).map((m) => m - now)
   const sorted = [...sample].sort((a, b) => a - b)
@@ -183,11 +236,18 @@ function confidenceRange(data: PlanningData, plan: Plan, operations: Operation[]
   const at = (m: number) => local(data, now + Math.round(m))
   const used = new Set(operations.map((o) => o.kind))
   return {
-    runs, seed,
-    method: 'The current plan stays as it is; the new job bag is walked through its gaps in each run with every duration drawn — bench work in minutes, outside work in working days — from how long each kind of work really took against its estimate.',
+    runs,
+    seed,
+    method:
+      'The current plan stays as it is; the new job bag is walked through its gaps in each run with every duration drawn — bench work in minutes, outside work in working days — from how long each kind of work really took against its estimate.',
     assumption: ASSUMPTION,
-    p50: at(q.p50), p80: at(q.p80), p95: at(q.p95), quantileMinutes: q,
-    kinds: [...spreads.values()].filter((k) => used.has(k.kind)).map(({ ratios: _r, ...k }) => ({ ...k, p10: round2(k.p10), p50: round2(k.p50), p90: round2(k.p90) })),
+    p50: at(q.p50),
+    p80: at(q.p80),
+    p95: at(q.p95),
+    quantileMinutes: q,
+    kinds: [...spreads.values()]
+      .filter((k) => used.has(k.kind))
+      .map(({ ratios: _r, ...k }) => ({ ...k, p10: round2(k.p10), p50: round2(k.p50), p90: round2(k.p90) })),
     ...(withSample ? { sampleMinutes: sample } : {}),
   }
 }
@@ -204,7 +264,9 @@ export function placeInGaps(problem: Problem, live: Plan, job: Job, operations: 
   checkProblem(fixedProblem)
   const c = compile(fixedProblem)
   const key = new Float64Array(c.n)
-  topologicalOrder(c).forEach((i, rank) => { key[i] = rank })
+  topologicalOrder(c).forEach((i, rank) => {
+    key[i] = rank
+  })
   const d = decode(c, key, new Int32Array(c.n).fill(-1))
   const ids = new Set(operations.map((o) => o.id))
   const feasible = d.overflow < 0 || !ids.has(c.ops[d.overflow]!.id)
@@ -217,7 +279,14 @@ export type { Booking }
 /** The planned steps of the new job bag, checked free and written inside the order's transaction (the planning module's booking); or why not. */
 export function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: number, placed: ReturnType<typeof placeInGaps>): Promise<Booking> {
   const prefix = `${PROSPECTIVE_JOB}:`
-  const steps = placed.steps.map((st) => ({ key: st.operationId.slice(prefix.length), benchId: st.benchId, personId: st.personId, start: st.start, end: st.end, segments: st.segments }))
+  const steps = placed.steps.map((st) => ({
+    key: st.operationId.slice(prefix.length),
+    benchId: st.benchId,
+    personId: st.personId,
+    start: st.start,
+    end: st.end,
+    segments: st.segments,
+  }))
   return bookPromise(tx, actor, { data, orderId, steps, completion: placed.completion })
 }
 
@@ -227,7 +296,10 @@ export function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: num
  * which says the piece is booked only when it is.
  */
 export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcceptInput, now = new Date()) {
-  const [t] = await deps.db.select({ name: s.routingTemplates.name }).from(s.routingTemplates).where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, actor.workshopId)))
+  const [t] = await deps.db
+    .select({ name: s.routingTemplates.name })
+    .from(s.routingTemplates)
+    .where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, actor.workshopId)))
   if (!t) throw invalid('templateId', 'is not a routing template of this workshop')
   if (input.dueDate && input.dueDate < input.promisedDate) throw invalid('dueDate', 'must not be before the promised date')
   // Fresh data, not the promise cache: the booking must be against the plan as it is now.
@@ -239,27 +311,46 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
   else {
     const pj = await prospectiveJob(deps, actor.workshopId, data, input)
     // A routing the plan cannot place (no bench or person for a step) still makes an order; it is only not booked.
-    try { placed = placeInGaps(data.problem, live, pj.job, pj.operations) } catch (err) {
+    try {
+      placed = placeInGaps(data.problem, live, pj.job, pj.operations)
+    } catch (err) {
       const e = planningError(err, data)
       if (!(e instanceof AppError)) throw e
       notBooked = `the plan cannot place it (${e.message})`
     }
-    if (!placed) { /* reason set above */ } else if (!placed.feasible) { notBooked = 'there is no room for it before the end of the calendar'; placed = null }
-    else if (local(data, placed.completion).date > input.promisedDate) { notBooked = `the room found now ends ${local(data, placed.completion).date}, after the promised date; the manager plans it at the next re-plan`; placed = null }
+    if (!placed) {
+      /* reason set above */
+    } else if (!placed.feasible) {
+      notBooked = 'there is no room for it before the end of the calendar'
+      placed = null
+    } else if (local(data, placed.completion).date > input.promisedDate) {
+      notBooked = `the room found now ends ${local(data, placed.completion).date}, after the promised date; the manager plans it at the next re-plan`
+      placed = null
+    }
   }
-  const { order, extra: taken } = await takeOrder(deps, actor, {
-    customerId: input.customerId, title: input.title, dueDate: input.dueDate ?? input.promisedDate, promisedDate: input.promisedDate,
-    priority: input.priority, priceQuotedMinor: input.priceQuotedMinor, notes: input.notes,
-    pieces: [{ templateId: input.templateId, piece: input.piece ?? input.title, params: input.params }],
-  }, async (tx, orderId) => {
-    const booking: Booking = placed ? await bookSlot(tx, actor, data, orderId, placed) : { booked: false, reason: notBooked! }
-    // With the job queue the confirmation is queued in the order's transaction: no order without its e-mail, nor the reverse.
-    return { booking, queued: deps.jobs ? await sendPromiseConfirmation({ ...deps, db: tx as unknown as Db }, actor.workshopId, orderId, booking) : null }
-  })
+  const { order, extra: taken } = await takeOrder(
+    deps,
+    actor,
+    {
+      customerId: input.customerId,
+      title: input.title,
+      dueDate: input.dueDate ?? input.promisedDate,
+      promisedDate: input.promisedDate,
+      priority: input.priority,
+      priceQuotedMinor: input.priceQuotedMinor,
+      notes: input.notes,
+      pieces: [{ templateId: input.templateId, piece: input.piece ?? input.title, params: input.params }],
+    },
+    async (tx, orderId) => {
+      const booking: Booking = placed ? await bookSlot(tx, actor, data, orderId, placed) : { booked: false, reason: notBooked! }
+      // With the job queue the confirmation is queued in the order's transaction: no order without its e-mail, nor the reverse.
+      return { booking, queued: deps.jobs ? await sendPromiseConfirmation({ ...deps, db: tx as unknown as Db }, actor.workshopId, orderId, booking) : null }
+    },
+  )
   const { booking } = taken
   const firstOp = order.jobBags[0]?.operations[0]
   if (booking.booked && firstOp) deps.realtime.emit(actor.workshopId, 'plan:changed', { id: firstOp.id, operationId: firstOp.id })
-  const confirmation = taken.queued ?? await sendPromiseConfirmation(deps, actor.workshopId, order.id, booking)
+  const confirmation = taken.queued ?? (await sendPromiseConfirmation(deps, actor.workshopId, order.id, booking))
   return { order: booking.booked ? await getOrder(deps.db, actor.workshopId, order.id) : order, booking, confirmation }
 }
 
@@ -280,21 +371,40 @@ export async function orderForecast(deps: Deps, actor: Actor, orderId: number, n
     const base = { jobBagId: b.id, number: b.number, piece: b.piece, status: b.status }
     if (!j) {
       const finished = b.status === 'complete' || ['ready', 'collected'].includes(order.status)
-      return { ...base, expectedCompletion: null, expectedDate: null, state: finished ? 'finished' : 'unplanned', latenessMinutes: 0, why: finished ? 'Finished.' : `Not on the plan (order ${order.status}, job bag ${b.status}).` }
+      return {
+        ...base,
+        expectedCompletion: null,
+        expectedDate: null,
+        state: finished ? 'finished' : 'unplanned',
+        latenessMinutes: 0,
+        why: finished ? 'Finished.' : `Not on the plan (order ${order.status}, job bag ${b.status}).`,
+      }
     }
     const expectedDate = j.expectedCompletion ? dayjs(j.expectedCompletion).tz(tz).format('YYYY-MM-DD') : null
     const because = j.reason ? ` Last step: ${j.reason}.` : ''
-    const why = j.state === 'unplanned' && j.reason ? `Not planned: ${j.reason} (casting and forging wait until it is paid).`
-      : j.state === 'unplanned' ? 'Not on the live plan yet: publish a plan to get a date.'
-      : j.state === 'late' ? `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} after the end of ${due}.${because}`
-      : j.state === 'at-risk' ? `Expected ${when(j.expectedCompletion!)}, only ${hoursText(j.latenessMinutes)} before the end of ${due}.${because}`
-      : `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} to spare.`
+    const why =
+      j.state === 'unplanned' && j.reason
+        ? `Not planned: ${j.reason} (casting and forging wait until it is paid).`
+        : j.state === 'unplanned'
+          ? 'Not on the live plan yet: publish a plan to get a date.'
+          : j.state === 'late'
+            ? `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} after the end of ${due}.${because}`
+            : j.state === 'at-risk'
+              ? `Expected ${when(j.expectedCompletion!)}, only ${hoursText(j.latenessMinutes)} before the end of ${due}.${because}`
+              : `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} to spare.`
     return { ...base, expectedCompletion: j.expectedCompletion, expectedDate, state: j.state, latenessMinutes: j.latenessMinutes, why }
   })
   const rank: JobBagForecast['state'][] = ['late', 'at-risk', 'unplanned', 'on-time', 'finished']
   const state = jobBags.map((x) => x.state).sort((a, b) => rank.indexOf(a) - rank.indexOf(b))[0] ?? 'unplanned'
   return {
-    orderId: order.id, number: order.number, status: order.status, due: order.dueDate, promisedDate: order.promisedDate, timeZone: tz,
-    plan: board.plan ? { id: board.plan.id, number: board.plan.number, publishedAt: board.plan.publishedAt } : null, state, jobBags,
+    orderId: order.id,
+    number: order.number,
+    status: order.status,
+    due: order.dueDate,
+    promisedDate: order.promisedDate,
+    timeZone: tz,
+    plan: board.plan ? { id: board.plan.id, number: board.plan.number, publishedAt: board.plan.publishedAt } : null,
+    state,
+    jobBags,
   }
 }

@@ -8,7 +8,13 @@ export function quoteOrderInput(q: typeof s.quotes.$inferSelect): OrderInput {
   const d = q.details as { templateId?: number; piece?: string; params?: OrderInput['pieces'][number]['params']; priority?: number }
   const due = q.promisedDate ?? q.validUntil
   return {
-    customerId: q.customerId, title: q.title, dueDate: due, promisedDate: q.promisedDate, priority: d.priority ?? 3, priceQuotedMinor: q.priceMinor, notes: `From quote ${q.number}`,
+    customerId: q.customerId,
+    title: q.title,
+    dueDate: due,
+    promisedDate: q.promisedDate,
+    priority: d.priority ?? 3,
+    priceQuotedMinor: q.priceMinor,
+    notes: `From quote ${q.number}`,
     // The quoted parameters with the order form's defaults filled in (metal, quantity, …), as the order form would send them.
     pieces: d.templateId ? [{ templateId: d.templateId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}) }] : [],
   }

@@ -17,43 +17,101 @@ import { quoteOrderInput } from './quote-order'
 import { LOCK } from '../lib/locks'
 
 const cols = {
-  id: s.quotes.id, number: s.quotes.number, customerId: s.quotes.customerId, customerName: s.customers.name, customerEmail: s.customers.email, orderId: s.quotes.orderId, orderNumber: s.orders.number,
-  status: s.quotes.status, title: s.quotes.title, description: s.quotes.description, details: s.quotes.details, promisedDate: s.quotes.promisedDate, confidence: s.quotes.confidence,
-  currency: s.quotes.currency, priceMinor: s.quotes.priceMinor, depositMinor: s.quotes.depositMinor, validUntil: s.quotes.validUntil,
-  sentAt: s.quotes.sentAt, acceptedAt: s.quotes.acceptedAt, withdrawnAt: s.quotes.withdrawnAt, createdAt: s.quotes.createdAt, version: s.quotes.version,
+  id: s.quotes.id,
+  number: s.quotes.number,
+  customerId: s.quotes.customerId,
+  customerName: s.customers.name,
+  customerEmail: s.customers.email,
+  orderId: s.quotes.orderId,
+  orderNumber: s.orders.number,
+  status: s.quotes.status,
+  title: s.quotes.title,
+  description: s.quotes.description,
+  details: s.quotes.details,
+  promisedDate: s.quotes.promisedDate,
+  confidence: s.quotes.confidence,
+  currency: s.quotes.currency,
+  priceMinor: s.quotes.priceMinor,
+  depositMinor: s.quotes.depositMinor,
+  validUntil: s.quotes.validUntil,
+  sentAt: s.quotes.sentAt,
+  acceptedAt: s.quotes.acceptedAt,
+  withdrawnAt: s.quotes.withdrawnAt,
+  createdAt: s.quotes.createdAt,
+  version: s.quotes.version,
 }
 const today = async (db: Db | Trx, workshopId: number, now = new Date()) => {
   const [w] = await db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, workshopId))
-  return dayjs(now).tz(w?.timeZone ?? 'Europe/London').format('YYYY-MM-DD')
+  return dayjs(now)
+    .tz(w?.timeZone ?? 'Europe/London')
+    .format('YYYY-MM-DD')
 }
 
 /** Sent quotes past their validity lapse (run before reading and by the daily timer). */
 export async function expireQuotes(deps: Pick<Deps, 'db' | 'realtime'>, workshopId: number, now = new Date()) {
-  const rows = await deps.db.update(s.quotes).set({ status: 'expired', version: sql`${s.quotes.version} + 1` })
-    .where(and(eq(s.quotes.workshopId, workshopId), inArray(s.quotes.status, ['drafted', 'sent']), lt(s.quotes.validUntil, await today(deps.db, workshopId, now)))).returning()
+  const rows = await deps.db
+    .update(s.quotes)
+    .set({ status: 'expired', version: sql`${s.quotes.version} + 1` })
+    .where(
+      and(eq(s.quotes.workshopId, workshopId), inArray(s.quotes.status, ['drafted', 'sent']), lt(s.quotes.validUntil, await today(deps.db, workshopId, now))),
+    )
+    .returning()
   for (const q of rows) deps.realtime.emit(workshopId, 'quote:changed', { id: q.id, version: q.version, status: q.status })
   return rows.length
 }
 
 const withBalance = <T extends { priceMinor: number; depositMinor: number }>(q: T) => ({ ...q, balanceMinor: q.priceMinor - q.depositMinor })
 
-export async function listQuotes(deps: Deps, workshopId: number, q: { q?: string; status?: QuoteStatus | QuoteStatus[]; orderId?: number; page: number; pageSize: number }) {
+export async function listQuotes(
+  deps: Deps,
+  workshopId: number,
+  q: { q?: string; status?: QuoteStatus | QuoteStatus[]; orderId?: number; page: number; pageSize: number },
+) {
   await expireQuotes(deps, workshopId)
   const statuses = q.status === undefined ? [] : Array.isArray(q.status) ? q.status : [q.status]
   const like = q.q ? `%${q.q.replace(/[\\%_]/g, '\\$&')}%` : null
-  const where = and(eq(s.quotes.workshopId, workshopId), statuses.length ? inArray(s.quotes.status, statuses) : undefined, q.orderId ? eq(s.quotes.orderId, q.orderId) : undefined,
-    like ? or(ilike(s.quotes.number, like), ilike(s.quotes.title, like), ilike(s.customers.name, like)) : undefined)
+  const where = and(
+    eq(s.quotes.workshopId, workshopId),
+    statuses.length ? inArray(s.quotes.status, statuses) : undefined,
+    q.orderId ? eq(s.quotes.orderId, q.orderId) : undefined,
+    like ? or(ilike(s.quotes.number, like), ilike(s.quotes.title, like), ilike(s.customers.name, like)) : undefined,
+  )
   const [total] = await deps.db.select({ n: count() }).from(s.quotes).innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId)).where(where)
-  const items = await deps.db.select(cols).from(s.quotes).innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId)).leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId))
-    .where(where).orderBy(desc(s.quotes.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
+  const items = await deps.db
+    .select(cols)
+    .from(s.quotes)
+    .innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId))
+    .leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId))
+    .where(where)
+    .orderBy(desc(s.quotes.id))
+    .limit(q.pageSize)
+    .offset((q.page - 1) * q.pageSize)
   return { items: items.map(withBalance), total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
 }
 
 export async function getQuote(db: Db, workshopId: number, id: number) {
-  const [q] = await db.select(cols).from(s.quotes).innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId)).leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId)).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, workshopId)))
+  const [q] = await db
+    .select(cols)
+    .from(s.quotes)
+    .innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId))
+    .leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId))
+    .where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, workshopId)))
   if (!q) throw notFound('Quote')
-  const links = await db.select({ id: s.paymentLinks.id, quoteId: s.paymentLinks.quoteId, orderId: s.paymentLinks.orderId, purpose: s.paymentLinks.purpose, currency: s.paymentLinks.currency, amountMinor: s.paymentLinks.amountMinor, url: s.paymentLinks.url, status: s.paymentLinks.status, createdAt: s.paymentLinks.createdAt })
-    .from(s.paymentLinks).where(eq(s.paymentLinks.quoteId, id)).orderBy(s.paymentLinks.id)
+  const links = await db
+    .select({
+      id: s.paymentLinks.id,
+      quoteId: s.paymentLinks.quoteId,
+      orderId: s.paymentLinks.orderId,
+      purpose: s.paymentLinks.purpose,
+      currency: s.paymentLinks.currency,
+      amountMinor: s.paymentLinks.amountMinor,
+      url: s.paymentLinks.url,
+      status: s.paymentLinks.status,
+      createdAt: s.paymentLinks.createdAt,
+    })
+    .from(s.paymentLinks)
+    .where(eq(s.paymentLinks.quoteId, id))
+    .orderBy(s.paymentLinks.id)
   const payments = await listPayments(db, eq(s.payments.quoteId, id))
   return { ...withBalance(q), links, payments, paidMinor: payments.filter((p) => !p.toRefund).reduce((t, p) => t + p.amountMinor, 0) }
 }
@@ -61,10 +119,16 @@ export async function getQuote(db: Db, workshopId: number, id: number) {
 export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
   const id = await deps.db.transaction(async (tx) => {
-    const [c] = await tx.select({ id: s.customers.id }).from(s.customers).where(and(eq(s.customers.id, input.customerId), eq(s.customers.workshopId, actor.workshopId)))
+    const [c] = await tx
+      .select({ id: s.customers.id })
+      .from(s.customers)
+      .where(and(eq(s.customers.id, input.customerId), eq(s.customers.workshopId, actor.workshopId)))
     if (!c) throw invalid('customerId', 'is not a customer of this workshop')
     if (input.orderId) {
-      const [o] = await tx.select({ customerId: s.orders.customerId }).from(s.orders).where(and(eq(s.orders.id, input.orderId), eq(s.orders.workshopId, actor.workshopId)))
+      const [o] = await tx
+        .select({ customerId: s.orders.customerId })
+        .from(s.orders)
+        .where(and(eq(s.orders.id, input.orderId), eq(s.orders.workshopId, actor.workshopId)))
       if (!o) throw invalid('orderId', 'is not an order of this workshop')
       if (o.customerId !== input.customerId) throw invalid('orderId', 'belongs to another customer')
     }
@@ -74,10 +138,25 @@ export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
     const number = `Q${day.slice(2, 4)}-${String(n + 1).padStart(4, '0')}`
     const depositMinor = input.depositMinor ?? Math.round((input.priceMinor * w!.depositPct) / 100)
     const validUntil = input.validUntil ?? dayjs(day).add(w!.quoteValidDays, 'day').format('YYYY-MM-DD')
-    const [q] = await tx.insert(s.quotes).values({
-      workshopId: actor.workshopId, number, customerId: input.customerId, orderId: input.orderId, title: input.title, description: input.description, details: input.details,
-      promisedDate: input.promisedDate, confidence: input.confidence, currency: input.currency ?? w!.currency, priceMinor: input.priceMinor, depositMinor, validUntil, createdBy: actor.userId,
-    }).returning()
+    const [q] = await tx
+      .insert(s.quotes)
+      .values({
+        workshopId: actor.workshopId,
+        number,
+        customerId: input.customerId,
+        orderId: input.orderId,
+        title: input.title,
+        description: input.description,
+        details: input.details,
+        promisedDate: input.promisedDate,
+        confidence: input.confidence,
+        currency: input.currency ?? w!.currency,
+        priceMinor: input.priceMinor,
+        depositMinor,
+        validUntil,
+        createdBy: actor.userId,
+      })
+      .returning()
     await audit(tx, actor, 'create', 'quote', q!.id, { number, priceMinor: input.priceMinor, depositMinor })
     return q!
   })
@@ -86,20 +165,39 @@ export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
 }
 
 /** A move the quote's state does not allow (sending a withdrawn quote, changing a sent one): 409 with the reason. */
-const wrongState = (status: QuoteStatus, action: string) => new AppError({
-  code: 'conflict', details: { status },
-  message: `A ${status} quote cannot be ${action}${status === 'sent' && action === 'edited' ? ': the customer has it already; take it back and make a new one' : ''}`,
-})
+const wrongState = (status: QuoteStatus, action: string) =>
+  new AppError({
+    code: 'conflict',
+    details: { status },
+    message: `A ${status} quote cannot be ${action}${status === 'sent' && action === 'edited' ? ': the customer has it already; take it back and make a new one' : ''}`,
+  })
 
-async function change(deps: Deps, actor: Actor, id: number, version: number, allowed: QuoteStatus[], values: Partial<typeof s.quotes.$inferInsert>, action: string, tx0?: Trx) {
+async function change(
+  deps: Deps,
+  actor: Actor,
+  id: number,
+  version: number,
+  allowed: QuoteStatus[],
+  values: Partial<typeof s.quotes.$inferInsert>,
+  action: string,
+  tx0?: Trx,
+) {
   const run = async (tx: Trx) => {
-    const [cur] = await tx.select().from(s.quotes).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId))).for('update')
+    const [cur] = await tx
+      .select()
+      .from(s.quotes)
+      .where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId)))
+      .for('update')
     if (!cur) throw notFound('Quote')
     if (cur.version !== version) throw staleVersion('The quote')
     if (!allowed.includes(cur.status)) throw wrongState(cur.status, action)
     const next = { ...cur, ...values }
     if (next.depositMinor > next.priceMinor) throw invalid('depositMinor', 'must not be more than the price')
-    const [u] = await tx.update(s.quotes).set({ ...values, version: sql`${s.quotes.version} + 1` }).where(eq(s.quotes.id, id)).returning()
+    const [u] = await tx
+      .update(s.quotes)
+      .set({ ...values, version: sql`${s.quotes.version} + 1` })
+      .where(eq(s.quotes.id, id))
+      .returning()
     await audit(tx, actor, action, 'quote', id, values as Record<string, unknown>)
     return u!
   }
@@ -121,26 +219,56 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
   if (!['drafted', 'sent'].includes(before.status)) throw wrongState(before.status, 'sent')
   if (before.version !== version) throw staleVersion('The quote')
   let link = before.links.find((l) => l.status === 'open' && l.purpose === 'deposit')
-  if (!link && before.depositMinor > 0) link = await createLink(deps, actor, { quoteId: id, orderId: before.orderId, purpose: 'deposit', amountMinor: before.depositMinor, currency: before.currency, description: `Deposit for quote ${before.number}: ${before.title}`, customerEmail: before.customerEmail || undefined })
+  if (!link && before.depositMinor > 0)
+    link = await createLink(deps, actor, {
+      quoteId: id,
+      orderId: before.orderId,
+      purpose: 'deposit',
+      amountMinor: before.depositMinor,
+      currency: before.currency,
+      description: `Deposit for quote ${before.number}: ${before.title}`,
+      customerEmail: before.customerEmail || undefined,
+    })
   await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'sent', sentAt: new Date().toISOString() }, 'sent')
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
   const m = (minor: number) => money(minorToMajor(minor, before.currency), before.currency)
   const text = [
-    `Dear ${before.customerName},`, '', `Thank you for asking us to make ${before.title}. Our quote ${before.number}:`, '',
+    `Dear ${before.customerName},`,
+    '',
+    `Thank you for asking us to make ${before.title}. Our quote ${before.number}:`,
+    '',
     ...(before.description ? [before.description, ''] : []),
-    `Price: ${m(before.priceMinor)}`, `Deposit to start the work: ${m(before.depositMinor)}`, `Balance at collection: ${m(before.priceMinor - before.depositMinor)}`,
+    `Price: ${m(before.priceMinor)}`,
+    `Deposit to start the work: ${m(before.depositMinor)}`,
+    `Balance at collection: ${m(before.priceMinor - before.depositMinor)}`,
     ...(before.promisedDate ? [`Ready by: ${dayjs(before.promisedDate).format('dddd D MMMM YYYY')}`] : []),
-    `This quote stands until ${dayjs(before.validUntil).format('dddd D MMMM YYYY')}.`, '',
-    ...(link ? [`Pay the deposit securely here: ${link.url}`, 'Paying the deposit accepts the quote.', ''] : []), `— ${w!.name}`,
+    `This quote stands until ${dayjs(before.validUntil).format('dddd D MMMM YYYY')}.`,
+    '',
+    ...(link ? [`Pay the deposit securely here: ${link.url}`, 'Paying the deposit accepts the quote.', ''] : []),
+    `— ${w!.name}`,
   ].join('\n')
-  const html = `<div style="font-family:sans-serif;line-height:1.5">${text.split('\n').map((l) => l.replace(/[&<>]/g, (x) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[x]!)).map((l) => (l.startsWith('Pay the deposit') && link ? `<p><a href="${link.url}">Pay the deposit</a></p>` : l ? `<p>${l}</p>` : '')).join('')}</div>`
-  await sendRecorded(deps, { workshopId: actor.workshopId, to: before.customerEmail, kind: 'quote', orderId: before.orderId, meta: { quoteId: id, linkId: link?.id ?? null }, content: { subject: `${w!.name}: quote ${before.number} for ${before.title}`, text, html } })
+  const html = `<div style="font-family:sans-serif;line-height:1.5">${text
+    .split('\n')
+    .map((l) => l.replace(/[&<>]/g, (x) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[x]!))
+    .map((l) => (l.startsWith('Pay the deposit') && link ? `<p><a href="${link.url}">Pay the deposit</a></p>` : l ? `<p>${l}</p>` : ''))
+    .join('')}</div>`
+  await sendRecorded(deps, {
+    workshopId: actor.workshopId,
+    to: before.customerEmail,
+    kind: 'quote',
+    orderId: before.orderId,
+    meta: { quoteId: id, linkId: link?.id ?? null },
+    content: { subject: `${w!.name}: quote ${before.number} for ${before.title}`, text, html },
+  })
   return getQuote(deps.db, actor.workshopId, id)
 }
 
 export async function acceptQuote(deps: Deps, actor: Actor, id: number, version: number) {
   await expireQuotes(deps, actor.workshopId)
-  const [q] = await deps.db.select().from(s.quotes).where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId)))
+  const [q] = await deps.db
+    .select()
+    .from(s.quotes)
+    .where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId)))
   if (!q) throw notFound('Quote')
   if (!['drafted', 'sent'].includes(q.status)) throw wrongState(q.status, 'accepted')
   if (q.orderId) await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString() }, 'accepted')
@@ -158,7 +286,11 @@ export async function acceptQuote(deps: Deps, actor: Actor, id: number, version:
 
 export async function withdrawQuote(deps: Deps, actor: Actor, id: number, version: number) {
   await change(deps, actor, id, version, ['drafted', 'sent', 'expired'], { status: 'withdrawn', withdrawnAt: new Date().toISOString() }, 'withdrawn')
-  const open = await deps.db.update(s.paymentLinks).set({ status: 'expired' }).where(and(eq(s.paymentLinks.quoteId, id), eq(s.paymentLinks.status, 'open'))).returning()
+  const open = await deps.db
+    .update(s.paymentLinks)
+    .set({ status: 'expired' })
+    .where(and(eq(s.paymentLinks.quoteId, id), eq(s.paymentLinks.status, 'open')))
+    .returning()
   // Close the provider's pages too; a payment that still arrives is listed to be refunded.
   for (const l of open) await deps.pay?.stripe.checkout.sessions.expire(l.providerId).catch(() => {})
   return getQuote(deps.db, actor.workshopId, id)
@@ -170,7 +302,15 @@ export async function quoteLink(deps: Deps, actor: Actor, id: number, amountMino
   const amount = amountMinor ?? q.depositMinor
   if (amount < 1) throw invalid('amountMinor', 'must be at least 1')
   if (amount > q.priceMinor) throw invalid('amountMinor', 'must not be more than the price')
-  return createLink(deps, actor, { quoteId: id, orderId: q.orderId, purpose: 'deposit', amountMinor: amount, currency: q.currency, description: `Deposit for quote ${q.number}: ${q.title}`, customerEmail: q.customerEmail || undefined })
+  return createLink(deps, actor, {
+    quoteId: id,
+    orderId: q.orderId,
+    purpose: 'deposit',
+    amountMinor: amount,
+    currency: q.currency,
+    description: `Deposit for quote ${q.number}: ${q.title}`,
+    customerEmail: q.customerEmail || undefined,
+  })
 }
 
 export async function quotePdf(db: Db, workshopId: number, id: number): Promise<Buffer> {
@@ -182,7 +322,13 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
   doc.on('data', (c: Buffer) => chunks.push(c))
   const done = new Promise<Buffer>((r) => doc.on('end', () => r(Buffer.concat(chunks))))
   doc.fontSize(18).text(w!.name).fontSize(9).text([w!.address, w!.phone, w!.contactEmail].filter(Boolean).join('  ·  ')).moveDown()
-  doc.fontSize(16).text(`Quote ${q.number}`).fontSize(11).text(`For ${q.customerName}`).text(`Valid until ${dayjs(q.validUntil).format('D MMMM YYYY')}`).moveDown()
+  doc
+    .fontSize(16)
+    .text(`Quote ${q.number}`)
+    .fontSize(11)
+    .text(`For ${q.customerName}`)
+    .text(`Valid until ${dayjs(q.validUntil).format('D MMMM YYYY')}`)
+    .moveDown()
   doc.fontSize(13).text(q.title).fontSize(11)
   if (q.description) doc.text(q.description)
   const d = q.details as { metal?: string; stones?: { description: string; count?: number; carats?: number }[] }
@@ -191,7 +337,12 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
   if (q.promisedDate) doc.moveDown().text(`Ready by ${dayjs(q.promisedDate).format('D MMMM YYYY')}`)
   const c = q.confidence as { p80?: string } | null
   if (c?.p80) doc.text(`(Our planning gives 4 in 5 chances of finishing by ${dayjs(c.p80).format('D MMMM YYYY')})`)
-  doc.moveDown().fontSize(12).text(`Price: ${m(q.priceMinor)}`).text(`Deposit to start the work: ${m(q.depositMinor)}`).text(`Balance at collection: ${m(q.priceMinor - q.depositMinor)}`)
+  doc
+    .moveDown()
+    .fontSize(12)
+    .text(`Price: ${m(q.priceMinor)}`)
+    .text(`Deposit to start the work: ${m(q.depositMinor)}`)
+    .text(`Balance at collection: ${m(q.priceMinor - q.depositMinor)}`)
   const link = q.links.find((l) => l.status === 'open')
   if (link) doc.moveDown().fontSize(10).text(`Pay the deposit: ${link.url}`)
   doc.end()
@@ -204,21 +355,47 @@ export async function sendMoneyReminders(deps: Pick<Deps, 'db' | 'realtime' | 'm
   const day = await today(deps.db, workshopId, now)
   const soon = dayjs(day).add(3, 'day').format('YYYY-MM-DD')
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
-  const sent = await deps.db.select({ kind: s.outbox.kind, meta: s.outbox.meta, orderId: s.outbox.orderId, createdAt: s.outbox.createdAt }).from(s.outbox).where(and(eq(s.outbox.workshopId, workshopId), inArray(s.outbox.kind, ['quote-reminder', 'balance-reminder'])))
+  const sent = await deps.db
+    .select({ kind: s.outbox.kind, meta: s.outbox.meta, orderId: s.outbox.orderId, createdAt: s.outbox.createdAt })
+    .from(s.outbox)
+    .where(and(eq(s.outbox.workshopId, workshopId), inArray(s.outbox.kind, ['quote-reminder', 'balance-reminder'])))
   let n = 0
-  for (const q of await deps.db.select(cols).from(s.quotes).innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId)).leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId)).where(and(eq(s.quotes.workshopId, workshopId), eq(s.quotes.status, 'sent'), sql`${s.quotes.validUntil} <= ${soon}`))) {
+  for (const q of await deps.db
+    .select(cols)
+    .from(s.quotes)
+    .innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId))
+    .leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId))
+    .where(and(eq(s.quotes.workshopId, workshopId), eq(s.quotes.status, 'sent'), sql`${s.quotes.validUntil} <= ${soon}`))) {
     if (sent.some((x) => x.kind === 'quote-reminder' && x.meta?.quoteId === q.id)) continue
     const text = `Dear ${q.customerName},\n\nOur quote ${q.number} for ${q.title} stands until ${dayjs(q.validUntil).format('dddd D MMMM YYYY')}. Paying the deposit accepts it.\n\n— ${w!.name}`
-    await sendRecorded(deps, { workshopId, to: q.customerEmail, kind: 'quote-reminder', orderId: q.orderId, meta: { quoteId: q.id }, content: { subject: `${w!.name}: quote ${q.number} ends soon`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` } })
+    await sendRecorded(deps, {
+      workshopId,
+      to: q.customerEmail,
+      kind: 'quote-reminder',
+      orderId: q.orderId,
+      meta: { quoteId: q.id },
+      content: { subject: `${w!.name}: quote ${q.number} ends soon`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` },
+    })
     n++
   }
   const { orderMoney } = await import('./payments')
-  for (const o of await deps.db.select({ id: s.orders.id, number: s.orders.number, email: s.customers.email, name: s.customers.name }).from(s.orders).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId)).where(and(eq(s.orders.workshopId, workshopId), eq(s.orders.status, 'ready')))) {
+  for (const o of await deps.db
+    .select({ id: s.orders.id, number: s.orders.number, email: s.customers.email, name: s.customers.name })
+    .from(s.orders)
+    .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
+    .where(and(eq(s.orders.workshopId, workshopId), eq(s.orders.status, 'ready')))) {
     if (sent.some((x) => x.kind === 'balance-reminder' && x.orderId === o.id && x.meta?.day === day)) continue
     const money2 = await orderMoney(deps.db, workshopId, o.id)
     if (money2.owedMinor <= 0) continue
     const text = `Dear ${o.name},\n\nYour order ${o.number} is ready for collection. The balance to pay is ${money(minorToMajor(money2.owedMinor, money2.currency), money2.currency)}.\n\n— ${w!.name}`
-    await sendRecorded(deps, { workshopId, to: o.email, kind: 'balance-reminder', orderId: o.id, meta: { day }, content: { subject: `${w!.name}: order ${o.number} is ready — balance to pay`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` } })
+    await sendRecorded(deps, {
+      workshopId,
+      to: o.email,
+      kind: 'balance-reminder',
+      orderId: o.id,
+      meta: { day },
+      content: { subject: `${w!.name}: order ${o.number} is ready — balance to pay`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` },
+    })
     n++
   }
   return n

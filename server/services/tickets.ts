@@ -24,13 +24,23 @@ export const ticketOrigin = (publicUrl: string, suggested: string | null, reques
 
 /** A moment as the workshop reads it: 2025-07-15 14:07 BST (Europe/London) — local date and 24-hour time, the zone's abbreviation and its name. */
 export function workshopTime(at: Date, timeZone: string): string {
-  const parts = new Intl.DateTimeFormat('en-GB', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short' }).formatToParts(at)
+  const parts = new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    year: 'numeric',
+    month: '2-digit',
+    day: '2-digit',
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+    timeZoneName: 'short',
+  }).formatToParts(at)
   const part = (type: Intl.DateTimeFormatPartTypes) => parts.find((x) => x.type === type)?.value ?? ''
   return `${part('year')}-${part('month')}-${part('day')} ${part('hour')}:${part('minute')} ${part('timeZoneName')} (${timeZone})`
 }
 
 const SIZES = { A6: [297.64, 419.53], A5: [419.53, 595.28] } as const
-const fmtDate = (d: string) => new Date(`${d}T00:00:00Z`).toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' })
+const fmtDate = (d: string) =>
+  new Date(`${d}T00:00:00Z`).toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' })
 
 export interface TicketOptions {
   size: 'A5' | 'A6'
@@ -48,16 +58,28 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
   if (!ws) throw notFound('Workshop')
   const bag = await getJobBag(db, workshopId, jobBagId)
   const benchIds = [...new Set(bag.operations.map((x) => x.plannedBenchId).filter((x): x is number => x !== null))]
-  const benchName = new Map((benchIds.length ? await db.select({ id: benches.id, name: benches.name }).from(benches).where(inArray(benches.id, benchIds)) : []).map((b) => [b.id, b.name]))
+  const benchName = new Map(
+    (benchIds.length ? await db.select({ id: benches.id, name: benches.name }).from(benches).where(inArray(benches.id, benchIds)) : []).map((b) => [
+      b.id,
+      b.name,
+    ]),
+  )
   const link = jobBagLink(ticketOrigin(ws.publicUrl, o.suggestedOrigin ?? null, o.requestOrigin), bag.id)
   const qr = await ticketQrPng(link)
   const [w, h] = SIZES[o.size]
   const big = o.size === 'A5'
   const m = big ? 28 : 18
-  const doc = new PDFDocument({ size: [w, h], margins: { top: m, bottom: m, left: m, right: m }, info: { Title: `Job ticket ${bag.number}`, Subject: bag.piece, Creator: 'Millgrain' } })
+  const doc = new PDFDocument({
+    size: [w, h],
+    margins: { top: m, bottom: m, left: m, right: m },
+    info: { Title: `Job ticket ${bag.number}`, Subject: bag.piece, Creator: 'Millgrain' },
+  })
   const chunks: Buffer[] = []
   doc.on('data', (c: Buffer) => chunks.push(c))
-  const done = new Promise<Buffer>((resolve, reject) => { doc.on('end', () => resolve(Buffer.concat(chunks))); doc.on('error', reject) })
+  const done = new Promise<Buffer>((resolve, reject) => {
+    doc.on('end', () => resolve(Buffer.concat(chunks)))
+    doc.on('error', reject)
+  })
 
   const fs = (n: number) => (big ? n * 1.3 : n)
   const qrSize = big ? 110 : 78
@@ -76,31 +98,53 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
   facts.push(['Metal / qty', `${p.metal ? metalName(p.metal) : '—'} · ${p.quantity ?? 1}${p.stoneCount ? ` · ${p.stoneCount} stones` : ''}`])
   const rs = bag.params as { ringSize?: RingSizeInput; resizeFrom?: RingSizeInput; resizeTo?: RingSizeInput }
   if (rs.ringSize) facts.push(['Ring size', ringSizeWords(rs.ringSize)])
-  if (rs.resizeFrom || rs.resizeTo) facts.push(['Resize', `from ${rs.resizeFrom ? ringSizeWords(rs.resizeFrom) : '—'} to ${rs.resizeTo ? ringSizeWords(rs.resizeTo) : '—'}`])
+  if (rs.resizeFrom || rs.resizeTo)
+    facts.push(['Resize', `from ${rs.resizeFrom ? ringSizeWords(rs.resizeFrom) : '—'} to ${rs.resizeTo ? ringSizeWords(rs.resizeTo) : '—'}`])
   for (const [k, v] of facts) {
     const y = doc.y
     doc.font('Helvetica').fontSize(fs(7)).fillColor('#555').text(k, m, y, { width: 56 })
-    doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text(v, m + fs(56), y, { width: textW - fs(56) })
+    doc
+      .font('Helvetica-Bold')
+      .fontSize(fs(8))
+      .fillColor('#000')
+      .text(v, m + fs(56), y, { width: textW - fs(56) })
   }
   doc.y = Math.max(doc.y, m + qrSize + 2)
-  doc.font('Helvetica').fontSize(fs(6)).fillColor('#555').text('Scan to open this job bag', w - m - qrSize, m + qrSize - 6, { width: qrSize, align: 'center' })
+  doc
+    .font('Helvetica')
+    .fontSize(fs(6))
+    .fillColor('#555')
+    .text('Scan to open this job bag', w - m - qrSize, m + qrSize - 6, { width: qrSize, align: 'center' })
   doc.y = Math.max(doc.y, m + qrSize + 8)
 
   // The stone list for the setter: role, count, size, measured depth, carats.
   const stoneList = await stoneListWords(db, jobBagId)
   if (stoneList.length) {
-    doc.font('Helvetica').fontSize(fs(7)).fillColor('#000').text(`Stones — ${stoneList.join('; ')}`, m, doc.y, { width: w - 2 * m })
+    doc
+      .font('Helvetica')
+      .fontSize(fs(7))
+      .fillColor('#000')
+      .text(`Stones — ${stoneList.join('; ')}`, m, doc.y, { width: w - 2 * m })
     doc.moveDown(0.3)
   }
   // The customer's own stones, to be checked back with them at collection.
   const ownStones = await customerStoneWords(db, jobBagId)
   if (ownStones.length) {
-    doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text(`Customer's stones (check back at collection): ${ownStones.join('; ')}`, m, doc.y, { width: w - 2 * m })
+    doc
+      .font('Helvetica-Bold')
+      .fontSize(fs(8))
+      .fillColor('#000')
+      .text(`Customer's stones (check back at collection): ${ownStones.join('; ')}`, m, doc.y, { width: w - 2 * m })
     doc.moveDown(0.3)
   }
 
   // Routing checklist.
-  doc.moveTo(m, doc.y).lineTo(w - m, doc.y).lineWidth(0.7).strokeColor('#000').stroke()
+  doc
+    .moveTo(m, doc.y)
+    .lineTo(w - m, doc.y)
+    .lineWidth(0.7)
+    .strokeColor('#000')
+    .stroke()
   doc.moveDown(0.3)
   doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text('Routing', m, doc.y)
   doc.moveDown(0.2)
@@ -114,15 +158,41 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
     const lineH = fs(9) * 1.25 + fs(6.5) * 1.2 + 4
     if (doc.y + lineH > h - m - 10) doc.addPage()
     const y = doc.y
-    doc.rect(m, y + 1, box, box).lineWidth(0.8).strokeColor('#000').stroke()
-    if (op.status === 'done') doc.moveTo(m + 1.5, y + box / 2 + 1).lineTo(m + box / 2.5, y + box - 0.5).lineTo(m + box - 1, y + 2.5).stroke()
+    doc
+      .rect(m, y + 1, box, box)
+      .lineWidth(0.8)
+      .strokeColor('#000')
+      .stroke()
+    if (op.status === 'done')
+      doc
+        .moveTo(m + 1.5, y + box / 2 + 1)
+        .lineTo(m + box / 2.5, y + box - 0.5)
+        .lineTo(m + box - 1, y + 2.5)
+        .stroke()
     const x = m + box + 6
     const nameW = w - m - x - estW
-    doc.font('Helvetica-Bold').fontSize(fs(8.5)).fillColor('#000').text(`${i + 1}. ${op.name}${cautions.length ? '  (!)' : ''}`, x, y, { width: nameW })
+    doc
+      .font('Helvetica-Bold')
+      .fontSize(fs(8.5))
+      .fillColor('#000')
+      .text(`${i + 1}. ${op.name}${cautions.length ? '  (!)' : ''}`, x, y, { width: nameW })
     const yAfter = doc.y
-    doc.font('Helvetica').fontSize(fs(6.5)).fillColor('#444').text(`${op.kindName}${op.requiredLevel > 1 ? ` · level ${op.requiredLevel}` : ''}${op.plannedBenchId !== null && benchName.has(op.plannedBenchId) ? ` · at ${benchName.get(op.plannedBenchId)}` : ''}`, x, yAfter, { width: nameW })
+    doc
+      .font('Helvetica')
+      .fontSize(fs(6.5))
+      .fillColor('#444')
+      .text(
+        `${op.kindName}${op.requiredLevel > 1 ? ` · level ${op.requiredLevel}` : ''}${op.plannedBenchId !== null && benchName.has(op.plannedBenchId) ? ` · at ${benchName.get(op.plannedBenchId)}` : ''}`,
+        x,
+        yAfter,
+        { width: nameW },
+      )
     const est = op.outside || op.leadDays > 0 ? `${op.leadDays} working day${op.leadDays === 1 ? '' : 's'}` : `${Math.round(op.estimateMinutes)} min`
-    doc.font('Helvetica').fontSize(fs(8)).fillColor('#000').text(est, w - m - estW, y, { width: estW, align: 'right' })
+    doc
+      .font('Helvetica')
+      .fontSize(fs(8))
+      .fillColor('#000')
+      .text(est, w - m - estW, y, { width: estW, align: 'right' })
     doc.y = Math.max(doc.y, yAfter + fs(6.5) * 1.2) + 3
     doc.x = m
   }
@@ -130,18 +200,33 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
   if (hazardous.length) {
     doc.moveDown(0.4)
     if (doc.y > h - m - 60) doc.addPage()
-    doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text('Safety cautions', m, doc.y, { width: w - 2 * m })
+    doc
+      .font('Helvetica-Bold')
+      .fontSize(fs(8))
+      .fillColor('#000')
+      .text('Safety cautions', m, doc.y, { width: w - 2 * m })
     const seen = new Set<string>()
     for (const hz of hazardous) {
       for (const c of hz.cautions) {
         if (seen.has(c)) continue
         seen.add(c)
-        doc.font('Helvetica').fontSize(fs(6.5)).fillColor('#000').text(`• ${c}`, m, doc.y, { width: w - 2 * m })
+        doc
+          .font('Helvetica')
+          .fontSize(fs(6.5))
+          .fillColor('#000')
+          .text(`• ${c}`, m, doc.y, { width: w - 2 * m })
       }
     }
-    doc.font('Helvetica-Oblique').fontSize(fs(6.5)).text(HAZARD_FOOTER, m, doc.y, { width: w - 2 * m })
+    doc
+      .font('Helvetica-Oblique')
+      .fontSize(fs(6.5))
+      .text(HAZARD_FOOTER, m, doc.y, { width: w - 2 * m })
   }
-  doc.font('Helvetica').fontSize(fs(5.5)).fillColor('#777').text(`Printed ${workshopTime(o.now ?? new Date(), ws.timeZone)} · ${link}`, m, doc.y + 6, { width: w - 2 * m })
+  doc
+    .font('Helvetica')
+    .fontSize(fs(5.5))
+    .fillColor('#777')
+    .text(`Printed ${workshopTime(o.now ?? new Date(), ws.timeZone)} · ${link}`, m, doc.y + 6, { width: w - 2 * m })
   doc.end()
   return { pdf: await done, number: bag.number, link }
 }

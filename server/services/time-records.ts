@@ -18,13 +18,18 @@ export async function effectiveRecords(tx: Tx, operationIds: number[], now = new
   if (!operationIds.length) return []
   const rows = await tx
     .select({ r: timeRecords, personName: people.name })
-    .from(timeRecords).innerJoin(people, eq(people.id, timeRecords.personId))
+    .from(timeRecords)
+    .innerJoin(people, eq(people.id, timeRecords.personId))
     .where(inArray(timeRecords.operationId, operationIds))
     .orderBy(asc(timeRecords.startedAt), asc(timeRecords.id))
   const ids = rows.map((x) => x.r.id)
   const corr = ids.length
-    ? await tx.select({ c: timeRecordCorrections, by: users.name }).from(timeRecordCorrections).innerJoin(users, eq(users.id, timeRecordCorrections.correctedBy))
-        .where(inArray(timeRecordCorrections.timeRecordId, ids)).orderBy(asc(timeRecordCorrections.id))
+    ? await tx
+        .select({ c: timeRecordCorrections, by: users.name })
+        .from(timeRecordCorrections)
+        .innerJoin(users, eq(users.id, timeRecordCorrections.correctedBy))
+        .where(inArray(timeRecordCorrections.timeRecordId, ids))
+        .orderBy(asc(timeRecordCorrections.id))
     : []
   return rows.map(({ r, personName }) => {
     const mine = corr.filter((c) => c.c.timeRecordId === r.id)
@@ -34,9 +39,28 @@ export async function effectiveRecords(tx: Tx, operationIds: number[], now = new
     const endedAt = iso(last?.kind === 'change' && last.endedAt ? last.endedAt : r.endedAt)
     const minutes = voided ? 0 : round1(minutesBetween(startedAt, endedAt ?? now.toISOString()))
     return {
-      id: r.id, operationId: r.operationId, personId: r.personId, personName, benchId: r.benchId, startedAt, endedAt,
-      endReason: r.endReason, note: r.note, minutes, voided, recordedStartedAt: iso(r.startedAt)!, recordedEndedAt: iso(r.endedAt),
-      corrections: mine.map(({ c, by }) => ({ id: c.id, kind: c.kind, startedAt: iso(c.startedAt), endedAt: iso(c.endedAt), reason: c.reason, by, at: new Date(c.createdAt).toISOString() })),
+      id: r.id,
+      operationId: r.operationId,
+      personId: r.personId,
+      personName,
+      benchId: r.benchId,
+      startedAt,
+      endedAt,
+      endReason: r.endReason,
+      note: r.note,
+      minutes,
+      voided,
+      recordedStartedAt: iso(r.startedAt)!,
+      recordedEndedAt: iso(r.endedAt),
+      corrections: mine.map(({ c, by }) => ({
+        id: c.id,
+        kind: c.kind,
+        startedAt: iso(c.startedAt),
+        endedAt: iso(c.endedAt),
+        reason: c.reason,
+        by,
+        at: new Date(c.createdAt).toISOString(),
+      })),
     }
   })
 }
@@ -49,25 +73,37 @@ export function actualMinutesByOperation(records: EffectiveTimeRecord[]): Map<nu
 }
 
 export async function openRecordOf(tx: Tx, operationId: number) {
-  const [r] = await tx.select().from(timeRecords).where(and(eq(timeRecords.operationId, operationId), isNull(timeRecords.endedAt)))
+  const [r] = await tx
+    .select()
+    .from(timeRecords)
+    .where(and(eq(timeRecords.operationId, operationId), isNull(timeRecords.endedAt)))
   return r ?? null
 }
 
 export async function openRecord(tx: Tx, o: { operationId: number; personId: number; benchId: number | null; at: Date; clientId: string }) {
-  const [r] = await tx.insert(timeRecords).values({ operationId: o.operationId, personId: o.personId, benchId: o.benchId, startedAt: o.at.toISOString(), clientId: o.clientId }).returning()
+  const [r] = await tx
+    .insert(timeRecords)
+    .values({ operationId: o.operationId, personId: o.personId, benchId: o.benchId, startedAt: o.at.toISOString(), clientId: o.clientId })
+    .returning()
   return r!
 }
 
 /** Closes the open record of an operation (if any) with its end reason. */
 export async function closeRecord(tx: Tx, operationId: number, at: Date, endReason: string, note: string) {
-  const [r] = await tx.update(timeRecords).set({ endedAt: at.toISOString(), endReason, note }).where(and(eq(timeRecords.operationId, operationId), isNull(timeRecords.endedAt))).returning()
+  const [r] = await tx
+    .update(timeRecords)
+    .set({ endedAt: at.toISOString(), endReason, note })
+    .where(and(eq(timeRecords.operationId, operationId), isNull(timeRecords.endedAt)))
+    .returning()
   return r ?? null
 }
 
 async function recordInWorkshop(tx: Tx, workshopId: number, id: number) {
   const [row] = await tx
     .select({ r: timeRecords, workshopId: jobBags.workshopId, opVersion: operations.version, opStatus: operations.status })
-    .from(timeRecords).innerJoin(operations, eq(operations.id, timeRecords.operationId)).innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
+    .from(timeRecords)
+    .innerJoin(operations, eq(operations.id, timeRecords.operationId))
+    .innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
     .where(and(eq(timeRecords.id, id), eq(jobBags.workshopId, workshopId)))
   if (!row) throw notFound('Time record')
   return row
@@ -88,12 +124,23 @@ export async function correctTimeRecord({ db, realtime }: Deps, actor: Actor, id
       throw new AppError({ code: 'unprocessable', message: 'An open time record cannot be voided; pause or finish the work first' })
     }
     await tx.insert(timeRecordCorrections).values({
-      workshopId: actor.workshopId, timeRecordId: id, kind: input.void ? 'void' : 'change',
-      startedAt: input.void ? null : startedAt, endedAt: input.void ? null : endedAt,
-      previousStartedAt: current!.startedAt, previousEndedAt: current!.endedAt, reason: input.reason, correctedBy: actor.userId,
+      workshopId: actor.workshopId,
+      timeRecordId: id,
+      kind: input.void ? 'void' : 'change',
+      startedAt: input.void ? null : startedAt,
+      endedAt: input.void ? null : endedAt,
+      previousStartedAt: current!.startedAt,
+      previousEndedAt: current!.endedAt,
+      reason: input.reason,
+      correctedBy: actor.userId,
     })
     const bumped = await bumpOperation(tx, r.operationId)
-    await audit(tx, actor, input.void ? 'void-time' : 'correct-time', 'operation', r.operationId, { timeRecordId: id, from: { startedAt: current!.startedAt, endedAt: current!.endedAt }, to: input.void ? 'void' : { startedAt, endedAt }, reason: input.reason })
+    await audit(tx, actor, input.void ? 'void-time' : 'correct-time', 'operation', r.operationId, {
+      timeRecordId: id,
+      from: { startedAt: current!.startedAt, endedAt: current!.endedAt },
+      to: input.void ? 'void' : { startedAt, endedAt },
+      reason: input.reason,
+    })
     return { operationId: r.operationId, ...bumped }
   })
   realtime.emit(actor.workshopId, 'operation:changed', { id: out.operationId, version: out.version, status: out.status })
@@ -104,21 +151,55 @@ export async function correctTimeRecord({ db, realtime }: Deps, actor: Actor, id
 /** A manager adds a record that was never taken (forgot to tap); kept with who and why. */
 export async function addTimeRecord({ db, realtime }: Deps, actor: Actor, operationId: number, input: TimeRecordAdd): Promise<EffectiveTimeRecord> {
   const out = await db.transaction(async (tx) => {
-    const [op] = await tx.select({ id: operations.id }).from(operations).innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
+    const [op] = await tx
+      .select({ id: operations.id })
+      .from(operations)
+      .innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
       .where(and(eq(operations.id, operationId), eq(jobBags.workshopId, actor.workshopId)))
     if (!op) throw notFound('Operation')
-    const [p] = await tx.select({ id: people.id }).from(people).where(and(eq(people.id, input.personId), eq(people.workshopId, actor.workshopId)))
+    const [p] = await tx
+      .select({ id: people.id })
+      .from(people)
+      .where(and(eq(people.id, input.personId), eq(people.workshopId, actor.workshopId)))
     if (!p) throw invalid('personId', 'is not a person of this workshop')
     if (input.benchId) {
-      const [b] = await tx.select({ id: benches.id }).from(benches).where(and(eq(benches.id, input.benchId), eq(benches.workshopId, actor.workshopId)))
+      const [b] = await tx
+        .select({ id: benches.id })
+        .from(benches)
+        .where(and(eq(benches.id, input.benchId), eq(benches.workshopId, actor.workshopId)))
       if (!b) throw invalid('benchId', 'is not a bench of this workshop')
     }
     if (Date.parse(input.endedAt) > Date.now() + 60_000) throw invalid('endedAt', 'must not be in the future')
     await requireEndReason(tx, actor.workshopId, input.endReason)
-    const [r] = await tx.insert(timeRecords).values({ operationId, personId: input.personId, benchId: input.benchId, startedAt: input.startedAt, endedAt: input.endedAt, endReason: input.endReason, note: '' }).returning()
-    await tx.insert(timeRecordCorrections).values({ workshopId: actor.workshopId, timeRecordId: r!.id, kind: 'add', startedAt: input.startedAt, endedAt: input.endedAt, reason: input.reason, correctedBy: actor.userId })
+    const [r] = await tx
+      .insert(timeRecords)
+      .values({
+        operationId,
+        personId: input.personId,
+        benchId: input.benchId,
+        startedAt: input.startedAt,
+        endedAt: input.endedAt,
+        endReason: input.endReason,
+        note: '',
+      })
+      .returning()
+    await tx.insert(timeRecordCorrections).values({
+      workshopId: actor.workshopId,
+      timeRecordId: r!.id,
+      kind: 'add',
+      startedAt: input.startedAt,
+      endedAt: input.endedAt,
+      reason: input.reason,
+      correctedBy: actor.userId,
+    })
     const bumped = await bumpOperation(tx, operationId)
-    await audit(tx, actor, 'add-time', 'operation', operationId, { timeRecordId: r!.id, personId: input.personId, startedAt: input.startedAt, endedAt: input.endedAt, reason: input.reason })
+    await audit(tx, actor, 'add-time', 'operation', operationId, {
+      timeRecordId: r!.id,
+      personId: input.personId,
+      startedAt: input.startedAt,
+      endedAt: input.endedAt,
+      reason: input.reason,
+    })
     return { id: r!.id, ...bumped }
   })
   realtime.emit(actor.workshopId, 'operation:changed', { id: operationId, version: out.version, status: out.status })
@@ -127,6 +208,10 @@ export async function addTimeRecord({ db, realtime }: Deps, actor: Actor, operat
 }
 
 async function bumpOperation(tx: Tx, operationId: number) {
-  const [u] = await tx.update(operations).set({ version: sql`${operations.version} + 1` }).where(eq(operations.id, operationId)).returning({ version: operations.version, status: operations.status })
+  const [u] = await tx
+    .update(operations)
+    .set({ version: sql`${operations.version} + 1` })
+    .where(eq(operations.id, operationId))
+    .returning({ version: operations.version, status: operations.status })
   return u!
 }

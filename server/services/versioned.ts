@@ -20,12 +20,18 @@ export async function updateVersioned<T extends VersionedTable>(
     .where(and(eq(table.id, o.id), eq(table.workshopId, o.workshopId), eq(table.version, o.version)))
     .returning()
   if (rows[0]) return rows[0]
-  const exists = await (tx as any).select({ id: table.id }).from(table).where(and(eq(table.id, o.id), eq(table.workshopId, o.workshopId)))
+  const exists = await (tx as any)
+    .select({ id: table.id })
+    .from(table)
+    .where(and(eq(table.id, o.id), eq(table.workshopId, o.workshopId)))
   throw exists.length ? staleVersion(what) : notFound(what)
 }
 
 export async function requireOwned<T extends VersionedTable>(tx: Tx, table: T, what: string, id: number, workshopId: number): Promise<T['$inferSelect']> {
-  const rows = await (tx as any).select().from(table).where(and(eq(table.id, id), eq(table.workshopId, workshopId)))
+  const rows = await (tx as any)
+    .select()
+    .from(table)
+    .where(and(eq(table.id, id), eq(table.workshopId, workshopId)))
   if (!rows[0]) throw notFound(what)
   return rows[0]
 }

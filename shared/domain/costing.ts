@@ -17,7 +17,8 @@ export function mulDivRound(a: number, b: number, d: number): number {
   if (Number.isInteger(a) && Number.isInteger(b) && Number.isInteger(d) && Number.isSafeInteger(a * b)) {
     const n = a * b
     const sign = Math.sign(n) * Math.sign(d)
-    const an = Math.abs(n), ad = Math.abs(d)
+    const an = Math.abs(n),
+      ad = Math.abs(d)
     const r = an % ad
     const q = (an - r) / ad
     return sign * (2 * r >= ad ? q + 1 : q)
@@ -37,7 +38,12 @@ export const stonesMinor = (costEachMinor: number, used: number): number => cost
  * both at the price in force on the day the alloy was first issued to the bag. The customer's own metal (issued with source customer)
  * covers the piece first, then the loss, and costs nothing; the loss it covers is still reported.
  */
-export interface MetalAtActual { pieceMg: number; lossMg: number; customerMg: number; pricePerGramMinor: number }
+export interface MetalAtActual {
+  pieceMg: number
+  lossMg: number
+  customerMg: number
+  pricePerGramMinor: number
+}
 export function metalActual(m: MetalAtActual) {
   const used = m.pieceMg + Math.max(0, m.lossMg)
   const customerCovers = Math.min(Math.max(0, m.customerMg), used)
@@ -51,12 +57,24 @@ export function metalActual(m: MetalAtActual) {
 }
 
 /** Everything a job costs, in minor units. */
-export interface CostBreakdown { metalMinor: number; stonesMinor: number; outsideMinor: number; labourMinor: number; totalMinor: number }
-export const breakdown = (b: Omit<CostBreakdown, 'totalMinor'>): CostBreakdown => ({ ...b, totalMinor: b.metalMinor + b.stonesMinor + b.outsideMinor + b.labourMinor })
-export const addBreakdowns = (xs: readonly CostBreakdown[]): CostBreakdown => breakdown({
-  metalMinor: xs.reduce((s, x) => s + x.metalMinor, 0), stonesMinor: xs.reduce((s, x) => s + x.stonesMinor, 0),
-  outsideMinor: xs.reduce((s, x) => s + x.outsideMinor, 0), labourMinor: xs.reduce((s, x) => s + x.labourMinor, 0),
+export interface CostBreakdown {
+  metalMinor: number
+  stonesMinor: number
+  outsideMinor: number
+  labourMinor: number
+  totalMinor: number
+}
+export const breakdown = (b: Omit<CostBreakdown, 'totalMinor'>): CostBreakdown => ({
+  ...b,
+  totalMinor: b.metalMinor + b.stonesMinor + b.outsideMinor + b.labourMinor,
 })
+export const addBreakdowns = (xs: readonly CostBreakdown[]): CostBreakdown =>
+  breakdown({
+    metalMinor: xs.reduce((s, x) => s + x.metalMinor, 0),
+    stonesMinor: xs.reduce((s, x) => s + x.stonesMinor, 0),
+    outsideMinor: xs.reduce((s, x) => s + x.outsideMinor, 0),
+    labourMinor: xs.reduce((s, x) => s + x.labourMinor, 0),
+  })
 
 /** Price − cost in minor units, and as % of the price (one decimal; null without a price). */
 export function margin(priceMinor: number, costMinor: number): { marginMinor: number; marginPct: number | null } {
@@ -76,8 +94,15 @@ export function suggestedPriceMinor(costMinor: number, marginPct = WORKSHOP_MARG
 
 /** What a costing could not count, in the words shown beside the margin. */
 export type Missing =
-  | 'no-metal-weight' | 'no-metal-weighed' | 'some-metal-weighed' | 'no-metal-price' | 'metal-not-priced'
-  | 'stone-costs' | 'stones-not-counted' | 'outside-uncosted' | 'some-outside-uncosted'
+  | 'no-metal-weight'
+  | 'no-metal-weighed'
+  | 'some-metal-weighed'
+  | 'no-metal-price'
+  | 'metal-not-priced'
+  | 'stone-costs'
+  | 'stones-not-counted'
+  | 'outside-uncosted'
+  | 'some-outside-uncosted'
 export const MISSING_WORDS: Record<Missing, string> = {
   'no-metal-weight': 'no metal weight estimated',
   'no-metal-weighed': 'no metal weighed yet',
@@ -100,4 +125,5 @@ export function marginCaveat(missing: readonly Missing[]): string {
 }
 
 /** The note above the costing table and at the end of its CSV. */
-export const COSTING_NOTE = 'Cost = metal (net weight in the piece plus loss, at the alloy’s price on the day it was issued; the customer’s own metal free) + stones (cost each × set, broken and lost; the customer’s own free) + outside work + labour (hours × each person’s rate). At estimate: the routing’s minutes, the piece’s metal weight at the price on the order’s day, the stone list. Beside each margin: what could not be counted.'
+export const COSTING_NOTE =
+  'Cost = metal (net weight in the piece plus loss, at the alloy’s price on the day it was issued; the customer’s own metal free) + stones (cost each × set, broken and lost; the customer’s own free) + outside work + labour (hours × each person’s rate). At estimate: the routing’s minutes, the piece’s metal weight at the price on the order’s day, the stone list. Beside each margin: what could not be counted.'

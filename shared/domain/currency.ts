@@ -6,9 +6,32 @@
  * (drizzle/0011) carries the same lists in SQL.
  */
 export const CURRENCY_EXPONENT_EXCEPTIONS: Readonly<Record<string, 0 | 3 | 4>> = {
-  BIF: 0, CLP: 0, DJF: 0, GNF: 0, ISK: 0, JPY: 0, KMF: 0, KRW: 0, PYG: 0, RWF: 0, UGX: 0, UYI: 0, VND: 0, VUV: 0, XAF: 0, XOF: 0, XPF: 0,
-  BHD: 3, IQD: 3, JOD: 3, KWD: 3, LYD: 3, OMR: 3, TND: 3,
-  CLF: 4, UYW: 4,
+  BIF: 0,
+  CLP: 0,
+  DJF: 0,
+  GNF: 0,
+  ISK: 0,
+  JPY: 0,
+  KMF: 0,
+  KRW: 0,
+  PYG: 0,
+  RWF: 0,
+  UGX: 0,
+  UYI: 0,
+  VND: 0,
+  VUV: 0,
+  XAF: 0,
+  XOF: 0,
+  XPF: 0,
+  BHD: 3,
+  IQD: 3,
+  JOD: 3,
+  KWD: 3,
+  LYD: 3,
+  OMR: 3,
+  TND: 3,
+  CLF: 4,
+  UYW: 4,
 }
 
 /** Decimals of a currency's major unit: GBP 2, JPY 0, BHD 3. */
@@ -40,7 +63,8 @@ export function parseAmount(text: string, currency: string): ParsedAmount {
   if (!m || (m[1] === '' && (m[2] ?? '') === '')) return { ok: false, reason: 'must be an amount such as 1250.50' }
   const whole = m[1] === '' ? '0' : m[1]!
   const frac = (m[2] ?? '').replace(/0+$/, '')
-  if (frac.length > digits) return { ok: false, reason: digits === 0 ? `has no decimals in ${currency.toUpperCase()}` : `has at most ${digits} decimals in ${currency.toUpperCase()}` }
+  if (frac.length > digits)
+    return { ok: false, reason: digits === 0 ? `has no decimals in ${currency.toUpperCase()}` : `has at most ${digits} decimals in ${currency.toUpperCase()}` }
   const major = Number(whole)
   if (major > MAX_MAJOR) return { ok: false, reason: 'is too large' }
   const minor = major * 10 ** digits + (frac ? Number(frac.padEnd(digits, '0')) : 0)

@@ -90,13 +90,19 @@ export interface StepEstimateOptions {
 
 /** Minutes for one unit: base + per-stone × stones × band factor + per-mm × size. */
 export function unitMinutes(model: StepModel, params: Pick<PieceParams, 'stoneCount' | 'stoneSizeMm' | 'sizeMm'>): number {
-  return model.baseMinutes
-    + model.perStoneMinutes * params.stoneCount * sizeBandFactor(params.stoneSizeMm, model.sizeBandFactors)
-    + (model.perMmMinutes ?? 0) * params.sizeMm
+  return (
+    model.baseMinutes +
+    model.perStoneMinutes * params.stoneCount * sizeBandFactor(params.stoneSizeMm, model.sizeBandFactors) +
+    (model.perMmMinutes ?? 0) * params.sizeMm
+  )
 }
 
 /** Minutes for the whole job bag: unit minutes × quantity (or Wright's total for a run), ÷ speed. */
-export function stepMinutes(model: StepModel, params: Pick<PieceParams, 'stoneCount' | 'stoneSizeMm' | 'sizeMm' | 'quantity'>, o: StepEstimateOptions = {}): number {
+export function stepMinutes(
+  model: StepModel,
+  params: Pick<PieceParams, 'stoneCount' | 'stoneSizeMm' | 'sizeMm' | 'quantity'>,
+  o: StepEstimateOptions = {},
+): number {
   const unit = unitMinutes(model, params)
   const all = o.learningRate !== undefined ? wrightTotal(unit, params.quantity, o.learningRate) : unit * params.quantity
   const speed = o.speed !== undefined && o.speed > 0 ? o.speed : 1
@@ -104,15 +110,24 @@ export function stepMinutes(model: StepModel, params: Pick<PieceParams, 'stoneCo
 }
 
 /** What a routing step carries for estimating (a template step as stored or as edited). */
-export interface RoutingStepModel extends StepModel { perMmMinutes: number; sizeBandFactors: Partial<Record<SizeBand, number>> }
+export interface RoutingStepModel extends StepModel {
+  perMmMinutes: number
+  sizeBandFactors: Partial<Record<SizeBand, number>>
+}
 /** What the routing itself carries: its learning rate for production runs (null = every unit takes the same time). */
-export interface RoutingModel { learningRate: number | null }
+export interface RoutingModel {
+  learningRate: number | null
+}
 
 /**
  * Bench minutes for a job bag made by one routing step, before anyone's speed: the whole step model, with the routing's
  * learning curve only when it has one and more than one piece is made. Every place that estimates from a routing uses this.
  */
-export function routingStepMinutes(step: RoutingStepModel, routing: RoutingModel, params: Pick<PieceParams, 'stoneCount' | 'stoneSizeMm' | 'sizeMm' | 'quantity'>): number {
+export function routingStepMinutes(
+  step: RoutingStepModel,
+  routing: RoutingModel,
+  params: Pick<PieceParams, 'stoneCount' | 'stoneSizeMm' | 'sizeMm' | 'quantity'>,
+): number {
   const learned = routing.learningRate !== null && params.quantity > 1
   return stepMinutes(step, params, learned ? { learningRate: routing.learningRate! } : {})
 }
@@ -127,13 +142,22 @@ export function pertVariance(optimistic: number, pessimistic: number): number {
   return ((pessimistic - optimistic) / 6) ** 2
 }
 
-export interface ThreePoint { optimistic: number; mostLikely: number; pessimistic: number }
+export interface ThreePoint {
+  optimistic: number
+  mostLikely: number
+  pessimistic: number
+}
 
 /** The PERT figure of a three-point guess (a ≤ m ≤ b), rounded for display. */
 export function threePointEstimate(t: ThreePoint): Extract<Estimate, { source: 'three-point' }> {
   if (!(t.optimistic <= t.mostLikely && t.mostLikely <= t.pessimistic)) throw new RangeError('need optimistic ≤ most likely ≤ pessimistic')
   const variance = pertVariance(t.optimistic, t.pessimistic)
-  return { minutes: round3(pertMean(t.optimistic, t.mostLikely, t.pessimistic)), source: 'three-point', variance: round3(variance), stdDev: round3(Math.sqrt(variance)) }
+  return {
+    minutes: round3(pertMean(t.optimistic, t.mostLikely, t.pessimistic)),
+    source: 'three-point',
+    variance: round3(variance),
+    stdDev: round3(Math.sqrt(variance)),
+  }
 }
 
 // ---------------------------------------------------------------------------------------------------------------
@@ -142,7 +166,10 @@ export function threePointEstimate(t: ThreePoint): Extract<Estimate, { source: '
 const round3 = (n: number) => Math.round(n * 1000) / 1000
 
 export function median(xs: readonly number[]): number {
-  return quantileSorted([...xs].sort((a, b) => a - b), 0.5)
+  return quantileSorted(
+    [...xs].sort((a, b) => a - b),
+    0.5,
+  )
 }
 
 /** Quantile with linear interpolation between order statistics (R type 7). */
@@ -154,7 +181,10 @@ export function quantileSorted(sorted: readonly number[], p: number): number {
   return sorted[lo]! + (sorted[hi]! - sorted[lo]!) * (h - lo)
 }
 export function quantile(xs: readonly number[], p: number): number {
-  return quantileSorted([...xs].sort((a, b) => a - b), p)
+  return quantileSorted(
+    [...xs].sort((a, b) => a - b),
+    p,
+  )
 }
 
 /** Median absolute deviation from the median (unscaled). */
@@ -163,8 +193,14 @@ export function medianAbsoluteDeviation(xs: readonly number[]): number {
   return median(xs.map((x) => Math.abs(x - m)))
 }
 
-export interface Point { x: number; y: number }
-export interface LineFit { slope: number; intercept: number }
+export interface Point {
+  x: number
+  y: number
+}
+export interface LineFit {
+  slope: number
+  intercept: number
+}
 
 /**
  * Theil–Sen line: slope = median of the pairwise slopes (pairs with distinct x), intercept = median of y − slope·x.
@@ -190,7 +226,10 @@ export function leastSquares(points: readonly Point[]): LineFit {
   const my = points.reduce((s, p) => s + p.y, 0) / n
   let sxy = 0
   let sxx = 0
-  for (const p of points) { sxy += (p.x - mx) * (p.y - my); sxx += (p.x - mx) ** 2 }
+  for (const p of points) {
+    sxy += (p.x - mx) * (p.y - my)
+    sxx += (p.x - mx) ** 2
+  }
   const slope = sxx === 0 ? 0 : sxy / sxx
   return { slope, intercept: my - slope * mx }
 }

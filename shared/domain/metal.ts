@@ -4,7 +4,13 @@
 export const ALLOY_METALS = ['gold', 'silver', 'platinum', 'palladium', 'base'] as const
 export type AlloyMetal = (typeof ALLOY_METALS)[number]
 
-export const ALLOY_METAL_NAMES: Record<AlloyMetal, string> = { gold: 'Gold', silver: 'Silver', platinum: 'Platinum', palladium: 'Palladium', base: 'Base metal' }
+export const ALLOY_METAL_NAMES: Record<AlloyMetal, string> = {
+  gold: 'Gold',
+  silver: 'Silver',
+  platinum: 'Platinum',
+  palladium: 'Palladium',
+  base: 'Base metal',
+}
 
 /** UK legal fineness standards in parts per thousand (Hallmarking Convention, "Country profile – United Kingdom"); base metals carry 0. */
 export const LEGAL_FINENESS: Record<AlloyMetal, readonly number[]> = {
@@ -51,7 +57,12 @@ export function alloyDensity(parts: readonly { weight: number; density: number }
   return 1 / parts.reduce((s, p) => s + p.weight / total / p.density, 0)
 }
 
-export interface MetalLoss { issuedMg: number; returnedMg: number; lossMg: number; lossPct: number | null }
+export interface MetalLoss {
+  issuedMg: number
+  returnedMg: number
+  lossMg: number
+  lossPct: number | null
+}
 
 /** Loss = issued − (piece + scrap + lemel), in mg and as % of issued (one decimal; null when nothing was issued). */
 export function metalLoss(issuedMg: number, returned: { pieceMg?: number; scrapMg?: number; lemelMg?: number }): MetalLoss {
@@ -69,7 +80,17 @@ export const mgToG = (mg: number): number => Math.round(mg) / 1000
  * figures of bench practice — common practice, no published source; the owner sets the workshop's own.
  */
 export const DEFAULT_LOSS_TOLERANCE_PCT: Record<string, number> = {
-  forging: 1, sawing: 2, filing: 3, soldering: 0.5, drilling: 1, setting: 1, polishing: 1.5, etching: 1, inspection: 0.2, casting: 5, hallmarking: 0.2,
+  forging: 1,
+  sawing: 2,
+  filing: 3,
+  soldering: 0.5,
+  drilling: 1,
+  setting: 1,
+  polishing: 1.5,
+  etching: 1,
+  inspection: 0.2,
+  casting: 5,
+  hallmarking: 0.2,
 }
 /** For a kind of work with no tolerance of its own (common practice, no source). */
 export const FALLBACK_LOSS_TOLERANCE_PCT = 2
@@ -77,6 +98,10 @@ export const TOLERANCE_NOTE = 'Loss tolerances start at the usual figures of ben
 
 /** Metal codes of a job bag's piece (order form) → the alloy metal and fineness they mean. */
 export const PIECE_METAL_ALLOY: Record<string, { metal: AlloyMetal; fineness: number } | undefined> = {
-  'silver-925': { metal: 'silver', fineness: 925 }, 'gold-9ct': { metal: 'gold', fineness: 375 }, 'gold-14k': { metal: 'gold', fineness: 585 },
-  'gold-18ct': { metal: 'gold', fineness: 750 }, 'platinum-950': { metal: 'platinum', fineness: 950 }, 'palladium-950': { metal: 'palladium', fineness: 950 },
+  'silver-925': { metal: 'silver', fineness: 925 },
+  'gold-9ct': { metal: 'gold', fineness: 375 },
+  'gold-14k': { metal: 'gold', fineness: 585 },
+  'gold-18ct': { metal: 'gold', fineness: 750 },
+  'platinum-950': { metal: 'platinum', fineness: 950 },
+  'palladium-950': { metal: 'palladium', fineness: 950 },
 }

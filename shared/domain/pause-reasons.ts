@@ -1,6 +1,11 @@
 // Why a person stops work for now: the reasons a workshop starts with (the owner adds, renames and switches them off), and how a reason's code is made.
 
-export interface PauseReasonDefault { code: string; label: string; needsNote: boolean; sort: number }
+export interface PauseReasonDefault {
+  code: string
+  label: string
+  needsNote: boolean
+  sort: number
+}
 
 /**
  * Every workshop starts with these. "waiting-for-parts", "end-of-day", "question-for-manager" and "other" were the fixed
@@ -23,6 +28,13 @@ export const FINISHED = 'finished'
 
 /** A reason's code from its label: lower-case letters and digits joined by hyphens ("Tool / machine fault" → "tool-machine-fault"). */
 export function pauseReasonCode(label: string): string {
-  const slug = label.normalize('NFKD').replace(/[\u0300-\u036f]/g, '').toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 40).replace(/-+$/, '')
+  const slug = label
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-+|-+$/g, '')
+    .slice(0, 40)
+    .replace(/-+$/, '')
   return slug || 'reason'
 }

@@ -23,12 +23,58 @@ export const isoToUs = (iso: number) => diameterMmToUs(isoToDiameterMm(iso))
  * A to P are that chart's values; P½ to Z½ are from memory, continuing the chart's step of one half letter per quarter US size.
  */
 export const UK_LETTER_CHART: readonly (readonly [string, number])[] = [
-  ['A', 37.8], ['A½', 38.5], ['B', 39.1], ['B½', 39.7], ['C', 40.4], ['C½', 41.0], ['D', 41.7], ['D½', 42.3], ['E', 42.9], ['E½', 43.6],
-  ['F', 44.2], ['F½', 44.8], ['G', 45.5], ['G½', 46.1], ['H', 46.8], ['H½', 47.4], ['I', 48.0], ['J', 48.7], ['J½', 49.3], ['K', 50.0],
-  ['K½', 50.6], ['L', 51.2], ['L½', 51.9], ['M', 52.5], ['M½', 53.1], ['N', 53.8], ['N½', 54.4], ['O', 55.1], ['O½', 55.7], ['P', 56.3],
+  ['A', 37.8],
+  ['A½', 38.5],
+  ['B', 39.1],
+  ['B½', 39.7],
+  ['C', 40.4],
+  ['C½', 41.0],
+  ['D', 41.7],
+  ['D½', 42.3],
+  ['E', 42.9],
+  ['E½', 43.6],
+  ['F', 44.2],
+  ['F½', 44.8],
+  ['G', 45.5],
+  ['G½', 46.1],
+  ['H', 46.8],
+  ['H½', 47.4],
+  ['I', 48.0],
+  ['J', 48.7],
+  ['J½', 49.3],
+  ['K', 50.0],
+  ['K½', 50.6],
+  ['L', 51.2],
+  ['L½', 51.9],
+  ['M', 52.5],
+  ['M½', 53.1],
+  ['N', 53.8],
+  ['N½', 54.4],
+  ['O', 55.1],
+  ['O½', 55.7],
+  ['P', 56.3],
   // from memory, continuing the chart's step
-  ['P½', 57.0], ['Q', 57.6], ['Q½', 58.3], ['R', 58.9], ['R½', 59.5], ['S', 60.2], ['S½', 60.8], ['T', 61.4], ['T½', 62.1], ['U', 62.7],
-  ['U½', 63.4], ['V', 64.0], ['V½', 64.6], ['W', 65.3], ['W½', 65.9], ['X', 66.6], ['X½', 67.2], ['Y', 67.8], ['Y½', 68.5], ['Z', 69.1], ['Z½', 69.7],
+  ['P½', 57.0],
+  ['Q', 57.6],
+  ['Q½', 58.3],
+  ['R', 58.9],
+  ['R½', 59.5],
+  ['S', 60.2],
+  ['S½', 60.8],
+  ['T', 61.4],
+  ['T½', 62.1],
+  ['U', 62.7],
+  ['U½', 63.4],
+  ['V', 64.0],
+  ['V½', 64.6],
+  ['W', 65.3],
+  ['W½', 65.9],
+  ['X', 66.6],
+  ['X½', 67.2],
+  ['Y', 67.8],
+  ['Y½', 68.5],
+  ['Z', 69.1],
+  ['Z½', 69.7],
 ]
 export const UK_CHART_NAME = 'just-color.com “Ring Size Chart” (UK & Aus. column)'
 
@@ -47,7 +93,8 @@ export const ukToIso = (letter: string): number | null => {
 
 /** The chart's letter nearest to a circumference; null outside the chart (more than a half step beyond A or Z½). */
 export function isoToUk(iso: number): string | null {
-  const first = UK_LETTER_CHART[0]![1], last = UK_LETTER_CHART.at(-1)![1]
+  const first = UK_LETTER_CHART[0]![1],
+    last = UK_LETTER_CHART.at(-1)![1]
   if (!(iso >= first - 0.35 && iso <= last + 0.35)) return null
   let best = UK_LETTER_CHART[0]!
   for (const e of UK_LETTER_CHART) if (Math.abs(e[1] - iso) < Math.abs(best[1] - iso)) best = e
@@ -57,14 +104,30 @@ export function isoToUk(iso: number): string | null {
 /** Position of a letter on the chart in half letters (A = 0, A½ = 1, …): how far apart two letters are. */
 export const ukIndex = (letter: string): number => UK_LETTER_CHART.findIndex(([l]) => l === normaliseUkLetter(letter))
 
-export interface RingSizeInput { scale: RingScale; value: string }
-export interface RingSizeAll { iso: number; diameterMm: number; us: number; uk: string | null }
+export interface RingSizeInput {
+  scale: RingScale
+  value: string
+}
+export interface RingSizeAll {
+  iso: number
+  diameterMm: number
+  us: number
+  uk: string | null
+}
 
 /** The circumference a size stands for, or null when the value is not a size in its scale (US 0–16, ISO 36–80 mm, a chart letter). */
 export function ringSizeToIso(r: RingSizeInput): number | null {
   const v = r.value.trim().replace(',', '.')
   if (r.scale === 'uk') return ukToIso(v)
-  const n = Number(r.scale === 'us' ? v.replace(/½$/, '.5').replace(/\s*1\/2$/, '.5').replace(/\s*1\/4$/, '.25').replace(/\s*3\/4$/, '.75') : v)
+  const n = Number(
+    r.scale === 'us'
+      ? v
+          .replace(/½$/, '.5')
+          .replace(/\s*1\/2$/, '.5')
+          .replace(/\s*1\/4$/, '.25')
+          .replace(/\s*3\/4$/, '.75')
+      : v,
+  )
   if (!Number.isFinite(n) || v === '') return null
   if (r.scale === 'us') return n >= 0 && n <= 16 ? usToIso(n) : null
   return n >= 36 && n <= 80 ? n : null
@@ -86,6 +149,7 @@ export function ringSizeWords(r: RingSizeInput): string {
 }
 
 const usWords = (us: number) => {
-  const w = Math.floor(us), f = us - w
+  const w = Math.floor(us),
+    f = us - w
   return f === 0 ? `${w}` : `${w}${f === 0.25 ? '¼' : f === 0.5 ? '½' : '¾'}`
 }

@@ -39,7 +39,12 @@ export interface RuleViolation {
 }
 
 /** The step concerned, as named to people: its routing step name and (when known) its job bag. */
-export interface StepRef { operationId?: string | number; jobId?: string | number; name: string; bag?: string }
+export interface StepRef {
+  operationId?: string | number
+  jobId?: string | number
+  name: string
+  bag?: string
+}
 
 /** How a point in time is written: the engine writes minutes, the server the workshop's local time. */
 export type When = (minute: number) => string
@@ -60,22 +65,34 @@ export const isHard = (v: RuleViolation) => v.severity === 'hard'
 
 /** One line per violation, for a banner or a refusal. */
 export const describe = (list: readonly (RuleViolation | string)[], max = 3) =>
-  list.slice(0, max).map((v) => (typeof v === 'string' ? v : v.message)).join('; ')
+  list
+    .slice(0, max)
+    .map((v) => (typeof v === 'string' ? v : v.message))
+    .join('; ')
 
 // ---- the rules, as facts in and a violation (or nothing) out ----
 
 /** The bench must be equipped for the step's kind of work. */
 export function benchCapability(s: StepRef, o: { benchName: string; kindName: string; capable: boolean }): RuleViolation | null {
   if (o.capable) return null
-  return violation('bench capability', s, `${o.benchName} is not equipped for ${o.kindName.toLowerCase()} (${step(s)}).`, { bench: o.benchName, kind: o.kindName })
+  return violation('bench capability', s, `${o.benchName} is not equipped for ${o.kindName.toLowerCase()} (${step(s)}).`, {
+    bench: o.benchName,
+    kind: o.kindName,
+  })
 }
 
 /** The person must hold the step's skill at its required level (level null = not recorded; undefined = not known here). */
-export function skill(s: StepRef, o: { personName: string; kindName: string; level: number | null | undefined; required: number | null }): RuleViolation | null {
+export function skill(
+  s: StepRef,
+  o: { personName: string; kindName: string; level: number | null | undefined; required: number | null },
+): RuleViolation | null {
   if (o.level != null && o.required !== null && o.level >= o.required) return null
   if (o.level === undefined || o.required === null) return violation('skill', s, `${o.personName} is not skilled for ${step(s)} (${o.kindName.toLowerCase()}).`)
   const has = o.level === null ? 'none is recorded for them' : `their level is ${o.level}`
-  return violation('skill', s, `${o.personName} is not skilled for ${step(s)}: it needs ${o.kindName.toLowerCase()} at level ${o.required}; ${has}.`, { requiredLevel: o.required, level: o.level ?? 0 })
+  return violation('skill', s, `${o.personName} is not skilled for ${step(s)}: it needs ${o.kindName.toLowerCase()} at level ${o.required}; ${has}.`, {
+    requiredLevel: o.required,
+    level: o.level ?? 0,
+  })
 }
 
 /** The bench and person are one of the step's options (used when neither capability nor skill explains the mismatch). */
@@ -84,31 +101,61 @@ export function allowedPair(s: StepRef, o: { bench: string | null; person: strin
 }
 
 /** A step starts only after each predecessor ends (planned or finished) and its wait-after has passed. */
-export function routingOrder(s: StepRef, o: { start: number; predecessor: string; readyAt: number; waitAfter: number; finished?: boolean; when?: When }): RuleViolation | null {
+export function routingOrder(
+  s: StepRef,
+  o: { start: number; predecessor: string; readyAt: number; waitAfter: number; finished?: boolean; when?: When },
+): RuleViolation | null {
   if (o.start >= o.readyAt) return null
   const when = o.when ?? minutesAsIs
   const wait = o.waitAfter > 0 ? ` and its ${o.waitAfter} min wait` : ''
-  return violation('routing order', s, `${step(s)} must wait for ${q(o.predecessor)}${o.finished ? ' (finished)' : ''}${wait}, ready ${when(o.readyAt)}.`, { predecessor: o.predecessor, readyAt: o.readyAt, start: o.start })
+  return violation('routing order', s, `${step(s)} must wait for ${q(o.predecessor)}${o.finished ? ' (finished)' : ''}${wait}, ready ${when(o.readyAt)}.`, {
+    predecessor: o.predecessor,
+    readyAt: o.readyAt,
+    start: o.start,
+  })
 }
 
 /** A step must end (with its wait) before a successor that is already planned starts. */
-export function beforeSuccessor(s: StepRef, o: { end: number; waitAfter: number; successor: string; successorStart: number; when?: When }): RuleViolation | null {
+export function beforeSuccessor(
+  s: StepRef,
+  o: { end: number; waitAfter: number; successor: string; successorStart: number; when?: When },
+): RuleViolation | null {
   if (o.end + o.waitAfter <= o.successorStart) return null
   const when = o.when ?? minutesAsIs
-  return violation('routing order', s, `${step(s)} would end after ${q(o.successor)} is planned to start (${when(o.successorStart)}); move that first.`, { successor: o.successor })
+  return violation('routing order', s, `${step(s)} would end after ${q(o.successor)} is planned to start (${when(o.successorStart)}); move that first.`, {
+    successor: o.successor,
+  })
 }
 
 /** At the bench: a step is taken up only when its predecessors are finished and their waits are over. */
-export function predecessorsFinished(s: StepRef, o: { open: string[]; waitMinutesLeft?: number; waitingOn?: string; waitAfter?: number }): RuleViolation | null {
-  if (o.open.length) return violation('routing order', s, `${step(s)} is not ready: ${o.open.map(q).join(', ')} must be finished first.`, { waitingFor: o.open })
-  if (o.waitMinutesLeft && o.waitMinutesLeft > 0) return violation('routing order', s, `${step(s)} can start in ${o.waitMinutesLeft} min: ${q(o.waitingOn ?? 'an earlier step')} has a ${o.waitAfter} min wait after it.`, { waitMinutesLeft: o.waitMinutesLeft })
+export function predecessorsFinished(
+  s: StepRef,
+  o: { open: string[]; waitMinutesLeft?: number; waitingOn?: string; waitAfter?: number },
+): RuleViolation | null {
+  if (o.open.length)
+    return violation('routing order', s, `${step(s)} is not ready: ${o.open.map(q).join(', ')} must be finished first.`, { waitingFor: o.open })
+  if (o.waitMinutesLeft && o.waitMinutesLeft > 0)
+    return violation(
+      'routing order',
+      s,
+      `${step(s)} can start in ${o.waitMinutesLeft} min: ${q(o.waitingOn ?? 'an earlier step')} has a ${o.waitAfter} min wait after it.`,
+      { waitMinutesLeft: o.waitMinutesLeft },
+    )
   return null
 }
 
 /** One step at a time per bench and per person. */
-export function doubleBooking(s: StepRef, o: { resource: 'bench' | 'person'; name: string; other: StepRef; from: number; to: number; when?: When }): RuleViolation {
+export function doubleBooking(
+  s: StepRef,
+  o: { resource: 'bench' | 'person'; name: string; other: StepRef; from: number; to: number; when?: When },
+): RuleViolation {
   const when = o.when ?? minutesAsIs
-  return violation(o.resource === 'bench' ? 'bench double booking' : 'person double booking', s, `${o.name} is booked for ${step(o.other)} ${when(o.from)}–${when(o.to)}, the same time as ${step(s)}.`, { with: o.other.operationId !== undefined ? String(o.other.operationId) : undefined, from: o.from, to: o.to })
+  return violation(
+    o.resource === 'bench' ? 'bench double booking' : 'person double booking',
+    s,
+    `${o.name} is booked for ${step(o.other)} ${when(o.from)}–${when(o.to)}, the same time as ${step(s)}.`,
+    { with: o.other.operationId !== undefined ? String(o.other.operationId) : undefined, from: o.from, to: o.to },
+  )
 }
 
 /** Work happens inside the bench's and the person's working time. */
@@ -135,5 +182,7 @@ export function outsideWork(s: StepRef, o: { why: string }): RuleViolation {
 export function dueDate(job: { jobId: string | number; name: string }, o: { completion: number; due: number; when?: When }): RuleViolation | null {
   if (o.completion <= o.due) return null
   const when = o.when ?? minutesAsIs
-  return violation('due date', { jobId: job.jobId, name: job.name }, `${job.name} finishes ${when(o.completion)}, after its due date ${when(o.due)}.`, { lateBy: o.completion - o.due })
+  return violation('due date', { jobId: job.jobId, name: job.name }, `${job.name} finishes ${when(o.completion)}, after its due date ${when(o.due)}.`, {
+    lateBy: o.completion - o.due,
+  })
 }

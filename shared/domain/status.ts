@@ -44,10 +44,8 @@ export const JOB_BAG_TRANSITIONS: Record<JobBagStatus, readonly JobBagStatus[]> 
   cancelled: [],
 }
 
-export const canMoveOperation = (from: string, to: OperationStatus): boolean =>
-  (OPERATION_TRANSITIONS[from as OperationStatus] ?? []).includes(to)
-export const canMoveJobBag = (from: string, to: JobBagStatus): boolean =>
-  from === to || (JOB_BAG_TRANSITIONS[from as JobBagStatus] ?? []).includes(to)
+export const canMoveOperation = (from: string, to: OperationStatus): boolean => (OPERATION_TRANSITIONS[from as OperationStatus] ?? []).includes(to)
+export const canMoveJobBag = (from: string, to: JobBagStatus): boolean => from === to || (JOB_BAG_TRANSITIONS[from as JobBagStatus] ?? []).includes(to)
 
 /** Operations that count as finished for their successors. */
 export const FINISHED_OPERATION: readonly OperationStatus[] = ['done', 'skipped']

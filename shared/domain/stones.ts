@@ -12,7 +12,12 @@ export type StoneCountKind = (typeof STONE_COUNT_KINDS)[number]
 export const STONE_MOVEMENT_KINDS = [...STONE_COUNT_KINDS, 'checked-back'] as const
 export type StoneMovementKind = (typeof STONE_MOVEMENT_KINDS)[number]
 export const STONE_MOVEMENT_LABELS: Record<StoneMovementKind, string> = {
-  issued: 'Given to the setter', set: 'Set in the piece', returned: 'Back unused', broken: 'Broken', lost: 'Lost', 'checked-back': 'Handed back to the customer',
+  issued: 'Given to the setter',
+  set: 'Set in the piece',
+  returned: 'Back unused',
+  broken: 'Broken',
+  lost: 'Lost',
+  'checked-back': 'Handed back to the customer',
 }
 
 // ---------------------------------------------------------------------------------------------------------------
@@ -50,7 +55,14 @@ export const canEstimateCarat = (shape: string, stone = 'diamond') => shape.trim
 // ---------------------------------------------------------------------------------------------------------------
 // Reconciliation: issued = set + returned + broken + lost
 
-export interface StoneCounts { issued: number; set: number; returned: number; broken: number; lost: number; checkedBack: number }
+export interface StoneCounts {
+  issued: number
+  set: number
+  returned: number
+  broken: number
+  lost: number
+  checkedBack: number
+}
 export interface Reconciliation extends StoneCounts {
   /** set + returned + broken + lost */
   accounted: number
@@ -106,7 +118,11 @@ export function roleFactor(role: StoneRole | undefined, factors: Partial<Record<
   return f !== undefined && Number.isFinite(f) && f > 0 ? f : DEFAULT_ROLE_FACTORS[role]
 }
 
-export interface StoneLineForMinutes { sizeMm: number; count: number; role?: StoneRole }
+export interface StoneLineForMinutes {
+  sizeMm: number
+  count: number
+  role?: StoneRole
+}
 export type RoleFactors = Partial<Record<StoneRole, number>>
 
 /**
@@ -114,15 +130,31 @@ export type RoleFactors = Partial<Record<StoneRole, number>>
  * of the line's size × the factor of its role) + per-mm × size; then × quantity (or Wright's total for a run, as in
  * routingStepMinutes), rounded to 0.1.
  */
-export function stoneListStepMinutes(step: RoutingStepModel & { roleFactors?: RoleFactors }, routing: RoutingModel, params: Pick<PieceParams, 'sizeMm' | 'quantity'>, lines: readonly StoneLineForMinutes[]): number {
-  const stones = lines.reduce((s, l) => s + step.perStoneMinutes * l.count * sizeBandFactor(l.sizeMm, step.sizeBandFactors) * roleFactor(l.role, step.roleFactors), 0)
+export function stoneListStepMinutes(
+  step: RoutingStepModel & { roleFactors?: RoleFactors },
+  routing: RoutingModel,
+  params: Pick<PieceParams, 'sizeMm' | 'quantity'>,
+  lines: readonly StoneLineForMinutes[],
+): number {
+  const stones = lines.reduce(
+    (s, l) => s + step.perStoneMinutes * l.count * sizeBandFactor(l.sizeMm, step.sizeBandFactors) * roleFactor(l.role, step.roleFactors),
+    0,
+  )
   const unit = step.baseMinutes + stones + (step.perMmMinutes ?? 0) * params.sizeMm
   const all = routing.learningRate !== null && params.quantity > 1 ? wrightTotal(unit, params.quantity, routing.learningRate) : unit * params.quantity
   return Math.round(all * 10) / 10
 }
 
 /** "1 × 6.5 mm round diamond, 1.00 ct est."; with a measured depth "1 × 6.5 mm round diamond, 3.9 mm deep, 0.98 ct est." */
-export function stoneLineWords(l: { count: number; sizeMm: number; shape: string; stone: string; caratEach: number | null; caratEstimated: boolean; depthMm?: number | null }): string {
+export function stoneLineWords(l: {
+  count: number
+  sizeMm: number
+  shape: string
+  stone: string
+  caratEach: number | null
+  caratEstimated: boolean
+  depthMm?: number | null
+}): string {
   const depth = l.depthMm ? `, ${l.depthMm} mm deep` : ''
   const ct = l.caratEach !== null ? `, ${l.caratEach.toFixed(l.caratEach < 0.1 ? 3 : 2)} ct${l.caratEstimated ? ' est.' : ''}` : ''
   return `${l.count} × ${l.sizeMm} mm ${l.shape} ${l.stone}${depth}${ct}`

@@ -1,6 +1,11 @@
 // Routing warnings: step graphs that save fine but plan work too early (a step free to start while outside work is away) or leave steps unconnected.
 
-export interface WarningStep { key: string; name: string; kindId: number; after: string[] }
+export interface WarningStep {
+  key: string
+  name: string
+  kindId: number
+  after: string[]
+}
 
 export type TemplateWarning =
   /** A step that follows nothing, listed after outside work it never meets: the planner may start it while that work is still away. */
@@ -33,7 +38,11 @@ export function templateWarnings(steps: WarningStep[], isOutside: (kindId: numbe
     for (const n of succs.get(key)!) for (const k of reach(n)) out.add(k)
     return out
   }
-  const meets = (a: string, b: string) => { const rb = reach(b); for (const k of reach(a)) if (rb.has(k)) return true; return false }
+  const meets = (a: string, b: string) => {
+    const rb = reach(b)
+    for (const k of reach(a)) if (rb.has(k)) return true
+    return false
+  }
 
   const warnings: TemplateWarning[] = []
   steps.forEach((s, i) => {
@@ -41,7 +50,9 @@ export function templateWarnings(steps: WarningStep[], isOutside: (kindId: numbe
     const away = steps.slice(0, i).filter((o) => isOutside(o.kindId) && !meets(o.key, s.key))
     if (!away.length) return
     warnings.push({
-      code: 'starts-while-away', step: s.key, outside: away.map((o) => o.key),
+      code: 'starts-while-away',
+      step: s.key,
+      outside: away.map((o) => o.key),
       message: `${quoted(s)} comes after no step, so it can be planned and started while ${list(away.map(quoted))} ${away.length === 1 ? 'is' : 'are'} still out. If it needs that work back, choose it under “Comes after”.`,
     })
   })
@@ -58,7 +69,11 @@ export function templateWarnings(steps: WarningStep[], isOutside: (kindId: numbe
     while (todo.length) {
       const k = todo.pop()!
       members.push(k)
-      for (const m of [...preds.get(k)!, ...succs.get(k)!]) if (!part.has(m)) { part.set(m, n); todo.push(m) }
+      for (const m of [...preds.get(k)!, ...succs.get(k)!])
+        if (!part.has(m)) {
+          part.set(m, n)
+          todo.push(m)
+        }
     }
     parts.push(members)
   }
@@ -71,10 +86,12 @@ export function templateWarnings(steps: WarningStep[], isOutside: (kindId: numbe
       const inOrder = steps.filter((s) => p.includes(s.key))
       const names = inOrder.map((s) => quoted(byKey.get(s.key)!))
       warnings.push({
-        code: 'not-connected', steps: inOrder.map((s) => s.key),
-        message: inOrder.length === 1
-          ? `${names[0]} is not connected to the other steps: it comes after none of them and none comes after it.`
-          : `${list(names)} are not connected to the other steps of the routing.`,
+        code: 'not-connected',
+        steps: inOrder.map((s) => s.key),
+        message:
+          inOrder.length === 1
+            ? `${names[0]} is not connected to the other steps: it comes after none of them and none comes after it.`
+            : `${list(names)} are not connected to the other steps of the routing.`,
       })
     })
   }

@@ -1,6 +1,9 @@
 // Lateness in the workshop's own terms: working minutes between two moments, and "2 working days 3 h" for people.
 
-export interface Span { start: number; end: number }
+export interface Span {
+  start: number
+  end: number
+}
 
 /** Working minutes in [a, b) given the workshop's open hours (sorted, disjoint); negative when b is before a. */
 export function workingMinutesBetween(open: Span[], a: number, b: number): number {
@@ -17,11 +20,19 @@ export function workingMinutesBetween(open: Span[], a: number, b: number): numbe
 /** Open minutes of a typical working day: the most common length among the open days. */
 export function typicalDayMinutes(open: Span[]): number {
   const perDay = new Map<number, number>()
-  for (const w of open) { const d = Math.floor(w.start / 1440); perDay.set(d, (perDay.get(d) ?? 0) + (w.end - w.start)) }
+  for (const w of open) {
+    const d = Math.floor(w.start / 1440)
+    perDay.set(d, (perDay.get(d) ?? 0) + (w.end - w.start))
+  }
   const counts = new Map<number, number>()
   for (const m of perDay.values()) counts.set(m, (counts.get(m) ?? 0) + 1)
-  let best = 480, n = 0
-  for (const [m, c] of counts) if (c > n) { best = m; n = c }
+  let best = 480,
+    n = 0
+  for (const [m, c] of counts)
+    if (c > n) {
+      best = m
+      n = c
+    }
   return best
 }
 
@@ -30,7 +41,8 @@ export function formatWorkingTime(minutes: number, dayMinutes: number): string {
   const m = Math.round(Math.abs(minutes))
   const days = dayMinutes > 0 ? Math.floor(m / dayMinutes) : 0
   const rest = m - days * dayMinutes
-  const h = Math.floor(rest / 60), min = rest % 60
+  const h = Math.floor(rest / 60),
+    min = rest % 60
   const parts: string[] = []
   if (days > 0) parts.push(`${days} working day${days === 1 ? '' : 's'}`)
   if (h > 0) parts.push(`${h} h`)

@@ -26,7 +26,32 @@ export const pinInput = z.object({ pin })
 export const pinCheck = z.object({ personId: id, pin })
 export const stationInput = z.object({ benchId: id })
 
-export interface Invitation { id: number; email: string; name: string; role: (typeof ROLES)[number]; personId: number | null; personName: string | null; createdAt: string; expiresAt: string; expired: boolean; invitedBy: string | null }
-export interface LinkInfo { kind: 'invite' | 'reset'; email: string; name: string; workshopName: string; expiresAt: string }
-export interface StationPerson { id: number; name: string; hasPin: boolean }
-export interface PinSession { token: string; person: { id: number; name: string }; expiresAt: string }
+export interface Invitation {
+  id: number
+  email: string
+  name: string
+  role: (typeof ROLES)[number]
+  personId: number | null
+  personName: string | null
+  createdAt: string
+  expiresAt: string
+  expired: boolean
+  invitedBy: string | null
+}
+export interface LinkInfo {
+  kind: 'invite' | 'reset'
+  email: string
+  name: string
+  workshopName: string
+  expiresAt: string
+}
+export interface StationPerson {
+  id: number
+  name: string
+  hasPin: boolean
+}
+export interface PinSession {
+  token: string
+  person: { id: number; name: string }
+  expiresAt: string
+}

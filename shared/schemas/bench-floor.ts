@@ -31,7 +31,14 @@ export const timeRecordCorrection = z
   .object({ startedAt: isoDateTime.optional(), endedAt: isoDateTime.optional(), void: z.boolean().optional().default(false), reason })
   .refine((c) => c.void || c.startedAt || c.endedAt, { message: 'give a new start, a new end, or void the record', path: ['startedAt'] })
 export const timeRecordAdd = z
-  .object({ personId: id, benchId: id.nullable().optional().default(null), startedAt: isoDateTime, endedAt: isoDateTime, endReason: pauseReasonCode.default('finished'), reason })
+  .object({
+    personId: id,
+    benchId: id.nullable().optional().default(null),
+    startedAt: isoDateTime,
+    endedAt: isoDateTime,
+    endReason: pauseReasonCode.default('finished'),
+    reason,
+  })
   .refine((c) => Date.parse(c.endedAt) > Date.parse(c.startedAt), { message: 'must be after the start', path: ['endedAt'] })
 
 export type ClaimInput = z.infer<typeof claimInput>

@@ -21,6 +21,16 @@ export type DowntimeInput = z.infer<typeof downtimeInput>
 // ---- Answers ----
 
 export const downtime = z.object({ id: wireInt, benchId: wireInt, startsAt: isoDateTime, endsAt: isoDateTime, reason: z.string() })
-export const bench = z.object({ id: wireInt, version: wireInt, name: z.string(), kind: z.string(), capacity: wireInt, kindIds: z.array(wireInt), active: z.boolean(), notes: z.string(), downtime: z.array(downtime) })
+export const bench = z.object({
+  id: wireInt,
+  version: wireInt,
+  name: z.string(),
+  kind: z.string(),
+  capacity: wireInt,
+  kindIds: z.array(wireInt),
+  active: z.boolean(),
+  notes: z.string(),
+  downtime: z.array(downtime),
+})
 export type Downtime = z.infer<typeof downtime>
 export type Bench = z.infer<typeof bench>

@@ -28,21 +28,47 @@ export const startReason = z.object({
 export const boardReason = startReason
 
 export const boardItem = z.object({
-  id: z.number().int(), jobBagId: z.number().int(), jobBagNumber: z.string(), piece: z.string(), orderId: z.number().int(), orderNumber: z.string(),
-  customerName: z.string(), name: z.string(), kind: z.string(), kindName: z.string(), color: z.string(), hazards: z.array(z.string()), outside: z.boolean(),
-  status: z.string(), benchId: z.number().int().nullable(), personId: z.number().int().nullable(),
+  id: z.number().int(),
+  jobBagId: z.number().int(),
+  jobBagNumber: z.string(),
+  piece: z.string(),
+  orderId: z.number().int(),
+  orderNumber: z.string(),
+  customerName: z.string(),
+  name: z.string(),
+  kind: z.string(),
+  kindName: z.string(),
+  color: z.string(),
+  hazards: z.array(z.string()),
+  outside: z.boolean(),
+  status: z.string(),
+  benchId: z.number().int().nullable(),
+  personId: z.number().int().nullable(),
   /** Where the bar is drawn: the plan for open work, the actual times for finished work, actual start to now (or planned end) while running. */
-  start: isoDateTime, end: isoDateTime,
-  pinned: z.boolean(), version: z.number().int(), estimateMinutes: z.number(), requiredLevel: z.number().int(),
-  reason: boardReason.nullable(), late: z.boolean(),
+  start: isoDateTime,
+  end: isoDateTime,
+  pinned: z.boolean(),
+  version: z.number().int(),
+  estimateMinutes: z.number(),
+  requiredLevel: z.number().int(),
+  reason: boardReason.nullable(),
+  late: z.boolean(),
   planned: boardPlanned.nullable(),
   actual: boardActual.nullable(),
 })
 
 export const boardJob = z.object({
-  jobBagId: z.number().int(), number: z.string(), piece: z.string(), orderNumber: z.string(), customerName: z.string(), due: isoDate,
-  expectedCompletion: isoDateTime.nullable(), latenessMinutes: z.number(), lateWorkingMinutes: z.number(),
-  state: z.enum(['late', 'at-risk', 'on-time', 'unplanned']), reason: z.string().nullable(),
+  jobBagId: z.number().int(),
+  number: z.string(),
+  piece: z.string(),
+  orderNumber: z.string(),
+  customerName: z.string(),
+  due: isoDate,
+  expectedCompletion: isoDateTime.nullable(),
+  latenessMinutes: z.number(),
+  lateWorkingMinutes: z.number(),
+  state: z.enum(['late', 'at-risk', 'on-time', 'unplanned']),
+  reason: z.string().nullable(),
 })
 
 export const boardPlanRef = z.object({ id: z.number().int(), number: z.number().int(), status: z.string(), publishedAt: isoDateTime.nullable() })

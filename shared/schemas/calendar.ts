@@ -2,20 +2,28 @@
 import { z } from 'zod'
 import { isoDate, name, version, weekPattern } from './common'
 
-const timeZone = z.string().min(1).max(64).refine((tz) => {
-  try {
-    new Intl.DateTimeFormat('en', { timeZone: tz })
-    return true
-  } catch {
-    return false
-  }
-}, 'must be an IANA time zone such as Europe/London')
+const timeZone = z
+  .string()
+  .min(1)
+  .max(64)
+  .refine((tz) => {
+    try {
+      new Intl.DateTimeFormat('en', { timeZone: tz })
+      return true
+    } catch {
+      return false
+    }
+  }, 'must be an IANA time zone such as Europe/London')
 
 /** The origin (scheme://host[:port]) of an http(s) address that has no path, query, fragment or user; null otherwise. */
 export function publicOrigin(text: string): string | null {
   if (/[?#\s]/.test(text)) return null
   let u: URL
-  try { u = new URL(text) } catch { return null }
+  try {
+    u = new URL(text)
+  } catch {
+    return null
+  }
   if ((u.protocol !== 'http:' && u.protocol !== 'https:') || !u.hostname || u.username || u.password || u.pathname !== '/') return null
   return `${u.protocol}//${u.host}`
 }
@@ -30,13 +38,26 @@ export const workshopSettingsInput = z.object({
   address: z.string().trim().max(300, 'must be at most 300 characters').optional(),
   phone: z.string().trim().max(40, 'must be at most 40 characters').optional(),
   contactEmail: z.union([z.literal(''), z.string().trim().email('must be an e-mail address such as orders@example.com').max(200)]).optional(),
-  currency: z.string().trim().toUpperCase().refine((c) => {
-    try { return /^[A-Z]{3}$/.test(c) && !!new Intl.NumberFormat('en', { style: 'currency', currency: c }) } catch { return false }
-  }, 'must be a three-letter currency code such as GBP or EUR').optional(),
+  currency: z
+    .string()
+    .trim()
+    .toUpperCase()
+    .refine((c) => {
+      try {
+        return /^[A-Z]{3}$/.test(c) && !!new Intl.NumberFormat('en', { style: 'currency', currency: c })
+      } catch {
+        return false
+      }
+    }, 'must be a three-letter currency code such as GBP or EUR')
+    .optional(),
   /** Where tablets on the workshop network open the app (a ticket's QR code): scheme, host and port only; '' = the address the server suggests. */
-  publicUrl: z.string().trim().max(200, 'must be at most 200 characters')
+  publicUrl: z
+    .string()
+    .trim()
+    .max(200, 'must be at most 200 characters')
     .refine((v) => v === '' || publicOrigin(v) !== null, 'must be an http:// or https:// address with no path, such as http://192.168.1.20:8080')
-    .transform((v) => (v === '' ? '' : publicOrigin(v)!)).optional(),
+    .transform((v) => (v === '' ? '' : publicOrigin(v)!))
+    .optional(),
   /** Money rules: the deposit asked on a quote (% of the price), how long a quote stands, and whether metal waits for the deposit. */
   depositPct: z.number().int('must be a whole percentage').min(0, 'must be 0 to 100').max(100, 'must be 0 to 100').optional(),
   quoteValidDays: z.number().int('must be whole days').min(1, 'must be 1 to 365 days').max(365, 'must be 1 to 365 days').optional(),
@@ -48,7 +69,9 @@ export const closureInput = z
   .refine((c) => c.endsOn >= c.startsOn, { message: 'must not be before the first day', path: ['endsOn'] })
 export type WorkshopSettingsInput = z.infer<typeof workshopSettingsInput>
 export type ClosureInput = z.infer<typeof closureInput>
-export interface Closure extends ClosureInput { id: number }
+export interface Closure extends ClosureInput {
+  id: number
+}
 export interface WorkshopSettings extends WorkshopSettingsInput {
   id: number
   /** When publicUrl is empty, the address tickets use instead (this machine's network address and the server's port); reachable is false when the server listens on this machine only. */

@@ -10,10 +10,13 @@ export const code = z
   .max(40, 'must be at most 40 characters')
   .regex(/^[a-z0-9][a-z0-9-]*$/, 'use lower-case letters, digits and dashes')
 export const notes = z.string().max(2000, 'must be at most 2000 characters').optional().default('')
-export const isoDate = z.string({ error: 'is required' }).regex(/^\d{4}-\d{2}-\d{2}$/, 'must be a date YYYY-MM-DD').refine((s) => {
-  const d = new Date(`${s}T00:00:00Z`)
-  return !Number.isNaN(d.getTime()) && d.toISOString().startsWith(s) && d.getUTCFullYear() >= 2000 && d.getUTCFullYear() <= 2100
-}, 'must be a real date between 2000 and 2100')
+export const isoDate = z
+  .string({ error: 'is required' })
+  .regex(/^\d{4}-\d{2}-\d{2}$/, 'must be a date YYYY-MM-DD')
+  .refine((s) => {
+    const d = new Date(`${s}T00:00:00Z`)
+    return !Number.isNaN(d.getTime()) && d.toISOString().startsWith(s) && d.getUTCFullYear() >= 2000 && d.getUTCFullYear() <= 2100
+  }, 'must be a real date between 2000 and 2100')
 export const isoDateTime = z.iso.datetime({ offset: true, error: 'must be a date and time (ISO 8601)' })
 export const timeOfDay = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'must be a time HH:mm')
 export const version = z.number({ error: 'is required (the version you edited)' }).int().nonnegative()
@@ -44,18 +47,27 @@ export const listQuery = z.object({
   order: z.enum(['asc', 'desc']).optional().default('asc'),
 })
 export type ListQuery = z.infer<typeof listQuery>
-export interface Page<T> { items: T[]; total: number; page: number; pageSize: number }
+export interface Page<T> {
+  items: T[]
+  total: number
+  page: number
+  pageSize: number
+}
 
 // Answers on the wire: plain checks, no coercion, defaults or trimming (a response schema says what the server sends).
 /** A row id or count as the server sends it. */
 export const wireInt = z.number().int()
 /** One page of a list answer. */
-export const pageOf = <T extends z.ZodType>(item: T) => z.object({ items: z.array(item), total: wireInt.nonnegative(), page: wireInt.positive(), pageSize: wireInt.positive() })
+export const pageOf = <T extends z.ZodType>(item: T) =>
+  z.object({ items: z.array(item), total: wireInt.nonnegative(), page: wireInt.positive(), pageSize: wireInt.positive() })
 
 // Plain-language messages for type errors everywhere ("is required", "must be a number").
 z.config({
   customError: (issue) => {
-    if (issue.code === 'invalid_type') return issue.input === undefined ? 'is required' : `must be ${issue.expected === 'array' ? 'a list' : issue.expected === 'object' ? 'an object' : `a ${issue.expected}`}`
+    if (issue.code === 'invalid_type')
+      return issue.input === undefined
+        ? 'is required'
+        : `must be ${issue.expected === 'array' ? 'a list' : issue.expected === 'object' ? 'an object' : `a ${issue.expected}`}`
     if (issue.code === 'unrecognized_keys') return `has unknown field(s): ${issue.keys.join(', ')}`
     if (issue.code === 'invalid_value') return `must be one of: ${issue.values.map(String).join(', ')}`
     return undefined

@@ -5,7 +5,13 @@ import { minorAmount, pieceInput } from './order'
 
 export const estimateStoneLine = z.object({
   count: z.number({ error: 'must be a number of stones' }).int('must be whole stones').min(1, 'must be at least 1').max(2000, 'must be at most 2000'),
-  costEachMinor: z.number({ error: 'must be an amount' }).int('must be whole minor units').min(0, 'must not be negative').max(100_000_000, 'is too large').nullable().default(null),
+  costEachMinor: z
+    .number({ error: 'must be an amount' })
+    .int('must be whole minor units')
+    .min(0, 'must not be negative')
+    .max(100_000_000, 'is too large')
+    .nullable()
+    .default(null),
   customerOwned: z.boolean().default(false),
 })
 export const estimatePiece = pieceInput.extend({ stones: z.array(estimateStoneLine).max(50, 'has too many lines').optional() })

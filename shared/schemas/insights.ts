@@ -11,29 +11,42 @@ const optionalDate = z.preprocess((v) => (v === '' ? undefined : v), isoDate.opt
 const format = z.enum(['json', 'csv'], { error: 'must be json or csv' }).default('json')
 
 /** Filters every insight shares: finished between two local dates (inclusive), one routing template. */
-export const insightFilter = z.object({ from: optionalDate, to: optionalDate, templateId: optionalId })
+export const insightFilter = z
+  .object({ from: optionalDate, to: optionalDate, templateId: optionalId })
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
 export type InsightFilter = z.infer<typeof insightFilter>
 
-export const comparisonQuery = z.object({
-  groupBy: z.enum(GROUPINGS, { error: 'must be kind, person, template, order or month' }).default('kind'),
-  from: optionalDate, to: optionalDate, templateId: optionalId, format,
-}).refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
+export const comparisonQuery = z
+  .object({
+    groupBy: z.enum(GROUPINGS, { error: 'must be kind, person, template, order or month' }).default('kind'),
+    from: optionalDate,
+    to: optionalDate,
+    templateId: optionalId,
+    format,
+  })
+  .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
 export type ComparisonQuery = z.infer<typeof comparisonQuery>
 
-export const recordsQuery = z.object({
-  groupBy: z.enum(GROUPINGS, { error: 'must be kind, person, template, order or month' }),
-  key: z.string({ error: 'is required' }).trim().min(1, 'is required').max(40),
-  from: optionalDate, to: optionalDate, templateId: optionalId, format,
-}).refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
+export const recordsQuery = z
+  .object({
+    groupBy: z.enum(GROUPINGS, { error: 'must be kind, person, template, order or month' }),
+    key: z.string({ error: 'is required' }).trim().min(1, 'is required').max(40),
+    from: optionalDate,
+    to: optionalDate,
+    templateId: optionalId,
+    format,
+  })
+  .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
 export type RecordsQuery = z.infer<typeof recordsQuery>
 
-export const costingQuery = z.object({ from: optionalDate, to: optionalDate, templateId: optionalId, format })
+export const costingQuery = z
+  .object({ from: optionalDate, to: optionalDate, templateId: optionalId, format })
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
 export type CostingQuery = z.infer<typeof costingQuery>
 
 const minutesField = z.number({ error: 'must be a number of minutes' }).min(0, 'must not be negative').max(100_000, 'must be at most 100000 minutes')
-export const threePointInput = z.object({ optimistic: minutesField, mostLikely: minutesField, pessimistic: minutesField })
+export const threePointInput = z
+  .object({ optimistic: minutesField, mostLikely: minutesField, pessimistic: minutesField })
   .refine((t) => t.optimistic <= t.mostLikely, { message: 'must not be less than the optimistic figure', path: ['mostLikely'] })
   .refine((t) => t.mostLikely <= t.pessimistic, { message: 'must not be less than the most likely figure', path: ['pessimistic'] })
 export type ThreePointInput = z.infer<typeof threePointInput>
@@ -50,7 +63,12 @@ export const acceptSuggestionInput = z.object({
 export type AcceptSuggestionInput = z.infer<typeof acceptSuggestionInput>
 
 /** Outside-work cost in integer minor units of the workshop's currency; null = not known. */
-const money = z.number({ error: 'must be an amount in minor units' }).int('must be whole minor units').min(0, 'must not be negative').max(10_000_000_000, 'is too large').nullable()
+const money = z
+  .number({ error: 'must be an amount in minor units' })
+  .int('must be whole minor units')
+  .min(0, 'must not be negative')
+  .max(10_000_000_000, 'is too large')
+  .nullable()
 export const stepCostInput = z.object({ stepKey: z.string({ error: 'is required' }).trim().min(1, 'is required').max(40), outsideCostMinor: money })
 export const operationCostInput = z.object({ outsideCostMinor: money })
 
@@ -70,10 +88,25 @@ export interface ComparisonRow {
   /** Mean over operations of |actual − estimate| ÷ actual, in %. */
   mapePct: number | null
 }
-export interface ComparisonTable { groupBy: Grouping; filter: InsightFilter; rows: ComparisonRow[]; total: ComparisonRow }
+export interface ComparisonTable {
+  groupBy: Grouping
+  filter: InsightFilter
+  rows: ComparisonRow[]
+  total: ComparisonRow
+}
 
-export interface ScatterPoint { operationId: number; kindId: number; kind: string; estimateMinutes: number; actualMinutes: number; finishedAt: string }
-export interface BiasTrend { months: string[]; series: { kindId: number; kind: string; color: string; biasPct: (number | null)[]; n: number[] }[] }
+export interface ScatterPoint {
+  operationId: number
+  kindId: number
+  kind: string
+  estimateMinutes: number
+  actualMinutes: number
+  finishedAt: string
+}
+export interface BiasTrend {
+  months: string[]
+  series: { kindId: number; kind: string; color: string; biasPct: (number | null)[]; n: number[] }[]
+}
 
 export interface DrillRecord {
   timeRecordId: number
@@ -99,7 +132,12 @@ export interface DrillOperation {
   actualMinutes: number
   records: DrillRecord[]
 }
-export interface DrillDown { groupBy: Grouping; key: string; label: string; operations: DrillOperation[] }
+export interface DrillDown {
+  groupBy: Grouping
+  key: string
+  label: string
+  operations: DrillOperation[]
+}
 
 /** One complete order costed: amounts (`…Minor`) in integer minor units of the table's currency. */
 export interface CostingRow {
@@ -145,7 +183,12 @@ export interface CostingTable {
 }
 
 /** How much history a learned figure rests on. */
-export interface History { n: number; from: string | null; to: string | null; spread: { q1: number; median: number; q3: number; mad: number } | null }
+export interface History {
+  n: number
+  from: string | null
+  to: string | null
+  spread: { q1: number; median: number; q3: number; mad: number } | null
+}
 
 export interface KindFigure {
   kindId: number
@@ -184,14 +227,26 @@ export interface StepSuggestion {
   unfitted: boolean
   history: History
 }
-export interface LearnedEstimates { asOf: string; kinds: KindFigure[]; people: PersonFigure[]; steps: StepSuggestion[] }
+export interface LearnedEstimates {
+  asOf: string
+  kinds: KindFigure[]
+  people: PersonFigure[]
+  steps: StepSuggestion[]
+}
 
 export interface StepChange {
-  id: number; templateId: number; templateName: string; stepKey: string
+  id: number
+  templateId: number
+  templateName: string
+  stepKey: string
   /** The step's name in the routing (its key when the step has gone since). */
   stepName: string
   kind: string
-  from: { baseMinutes: number; perStoneMinutes: number }; to: { baseMinutes: number; perStoneMinutes: number }
-  templateVersion: number; basis: { n: number; from: string | null; to: string | null; method: string; spread: Record<string, number> }
-  reason: string; acceptedBy: string; at: string
+  from: { baseMinutes: number; perStoneMinutes: number }
+  to: { baseMinutes: number; perStoneMinutes: number }
+  templateVersion: number
+  basis: { n: number; from: string | null; to: string | null; method: string; spread: Record<string, number> }
+  reason: string
+  acceptedBy: string
+  at: string
 }

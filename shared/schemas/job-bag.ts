@@ -6,7 +6,12 @@ import { benchOperation } from './bench-floor'
 
 const reason = z.string({ error: 'is required' }).trim().min(3, 'say why (at least 3 characters)').max(500, 'must be at most 500 characters')
 const minutes = z.number({ error: 'must be a number of minutes' }).min(0, 'must not be negative').max(100_000, 'must be at most 100000 minutes')
-const stepKey = z.string().trim().min(1).max(40).regex(/^[a-z0-9][a-z0-9-]*$/, 'use lower-case letters, digits and dashes')
+const stepKey = z
+  .string()
+  .trim()
+  .min(1)
+  .max(40)
+  .regex(/^[a-z0-9][a-z0-9-]*$/, 'use lower-case letters, digits and dashes')
 
 export const stepAdd = z.object({
   kindId: id,
@@ -46,13 +51,18 @@ export const jobBagStatusInput = z.object({
  * A ring size changed after ordering: the ring's size, or a resize's from and to; a field left out stays, null clears it.
  * A resize keeps both sizes (the one it was and the one it is to be).
  */
-export const ringSizeChange = z.object({
-  ringSize: ringSizeInput.nullable().optional(),
-  resizeFrom: ringSizeInput.nullable().optional(),
-  resizeTo: ringSizeInput.nullable().optional(),
-  reason: z.string().trim().max(500, 'must be at most 500 characters').default(''),
-  version,
-}).refine((c) => c.ringSize !== undefined || c.resizeFrom !== undefined || c.resizeTo !== undefined, { message: 'give the ring size, or the resize from and to', path: ['ringSize'] })
+export const ringSizeChange = z
+  .object({
+    ringSize: ringSizeInput.nullable().optional(),
+    resizeFrom: ringSizeInput.nullable().optional(),
+    resizeTo: ringSizeInput.nullable().optional(),
+    reason: z.string().trim().max(500, 'must be at most 500 characters').default(''),
+    version,
+  })
+  .refine((c) => c.ringSize !== undefined || c.resizeFrom !== undefined || c.resizeTo !== undefined, {
+    message: 'give the ring size, or the resize from and to',
+    path: ['ringSize'],
+  })
 export type RingSizeChange = z.infer<typeof ringSizeChange>
 export const ticketQuery = z.object({ size: z.enum(['A5', 'A6']).optional().default('A6') })
 export const jobBagListQuery = z.object({ orderId: id.optional(), status: z.string().max(40).optional(), q: z.string().max(120).optional() })
@@ -80,7 +90,17 @@ export const effectiveTimeRecord = z.object({
   /** Recorded start/end before any correction. */
   recordedStartedAt: isoDateTime,
   recordedEndedAt: isoDateTime.nullable(),
-  corrections: z.array(z.object({ id: wireInt, kind: z.string(), startedAt: isoDateTime.nullable(), endedAt: isoDateTime.nullable(), reason: z.string(), by: z.string(), at: isoDateTime })),
+  corrections: z.array(
+    z.object({
+      id: wireInt,
+      kind: z.string(),
+      startedAt: isoDateTime.nullable(),
+      endedAt: isoDateTime.nullable(),
+      reason: z.string(),
+      by: z.string(),
+      at: isoDateTime,
+    }),
+  ),
 })
 
 export const jobBagOperation = benchOperation.extend({
@@ -97,7 +117,14 @@ export const jobBagOperation = benchOperation.extend({
   estimateChanges: z.array(z.object({ fromMinutes: z.number(), toMinutes: z.number(), reason: z.string(), by: z.string(), at: isoDateTime })),
 })
 
-export const historyEntry = z.object({ at: isoDateTime, kind: z.enum(['audit', 'time']), action: z.string(), operationId: wireInt.nullable(), who: z.string(), details: z.record(z.string(), z.unknown()) })
+export const historyEntry = z.object({
+  at: isoDateTime,
+  kind: z.enum(['audit', 'time']),
+  action: z.string(),
+  operationId: wireInt.nullable(),
+  who: z.string(),
+  details: z.record(z.string(), z.unknown()),
+})
 
 export const jobBagDetail = z.object({
   id: wireInt,
@@ -106,7 +133,16 @@ export const jobBagDetail = z.object({
   status: z.string(),
   version: wireInt,
   params: z.record(z.string(), z.unknown()),
-  order: z.object({ id: wireInt, number: z.string(), title: z.string(), dueDate: isoDate, promisedDate: isoDate.nullable(), priority: wireInt, status: z.string(), customerReference: z.string() }),
+  order: z.object({
+    id: wireInt,
+    number: z.string(),
+    title: z.string(),
+    dueDate: isoDate,
+    promisedDate: isoDate.nullable(),
+    priority: wireInt,
+    status: z.string(),
+    customerReference: z.string(),
+  }),
   operations: z.array(jobBagOperation),
   timeRecords: z.array(effectiveTimeRecord),
   history: z.array(historyEntry),
@@ -117,7 +153,19 @@ export const jobBagDetail = z.object({
 })
 
 /** One row of the job bag list. */
-export const jobBagSummary = z.object({ id: wireInt, number: z.string(), piece: z.string(), status: z.string(), version: wireInt, orderId: wireInt, orderNumber: z.string(), dueDate: isoDate, priority: wireInt, operations: wireInt, finished: wireInt })
+export const jobBagSummary = z.object({
+  id: wireInt,
+  number: z.string(),
+  piece: z.string(),
+  status: z.string(),
+  version: wireInt,
+  orderId: wireInt,
+  orderNumber: z.string(),
+  dueDate: isoDate,
+  priority: wireInt,
+  operations: wireInt,
+  finished: wireInt,
+})
 
 export type EffectiveTimeRecord = z.infer<typeof effectiveTimeRecord>
 export type JobBagOperation = z.infer<typeof jobBagOperation>

@@ -8,8 +8,14 @@ export const operationKindInput = z.object({
   name,
   outside: z.boolean().default(false),
   hazards: z.array(z.enum(HAZARDS)).max(5).default([]),
-  color: z.string().regex(/^#[0-9a-fA-F]{6}$/, 'must be a colour like #a1b2c3').default('#7a8ca3'),
+  color: z
+    .string()
+    .regex(/^#[0-9a-fA-F]{6}$/, 'must be a colour like #a1b2c3')
+    .default('#7a8ca3'),
 })
 export const operationKindUpdate = operationKindInput.partial().extend({ version })
 export type OperationKindInput = z.infer<typeof operationKindInput>
-export interface OperationKind extends OperationKindInput { id: number; version: number }
+export interface OperationKind extends OperationKindInput {
+  id: number
+  version: number
+}

@@ -7,19 +7,32 @@ import { RING_SCALES, ringSizeToIso } from '../domain/ring-size'
 export const METALS = ['silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950', 'brass', 'copper', 'mixed'] as const
 /** What each metal is called on screen and on paper (the code above is only stored). */
 export const METAL_NAMES: Record<(typeof METALS)[number], string> = {
-  'silver-925': 'Sterling silver 925', 'gold-9ct': '9 ct gold', 'gold-14k': '14 k gold', 'gold-18ct': '18 ct gold',
-  'platinum-950': 'Platinum 950', 'palladium-950': 'Palladium 950', brass: 'Brass', copper: 'Copper', mixed: 'Mixed metals',
+  'silver-925': 'Sterling silver 925',
+  'gold-9ct': '9 ct gold',
+  'gold-14k': '14 k gold',
+  'gold-18ct': '18 ct gold',
+  'platinum-950': 'Platinum 950',
+  'palladium-950': 'Palladium 950',
+  brass: 'Brass',
+  copper: 'Copper',
+  mixed: 'Mixed metals',
 }
 /** The name of a stored metal code; an unknown code is shown as it is. */
 export const metalName = (code: string): string => (METAL_NAMES as Record<string, string>)[code] ?? code
 /** A ring size as the customer gave it (ISO 8653 mm, US/Canada number or UK/Australia letter); the others are worked out from it. */
-export const ringSizeInput = z.object({
-  scale: z.enum(RING_SCALES, { error: 'must be iso, us or uk' }),
-  value: z.string().trim().min(1, 'is required').max(12),
-}).refine((r) => ringSizeToIso(r) !== null, { message: 'is not a size in that scale (ISO 36–80 mm, US 0–16, UK A–Z½)', path: ['value'] })
+export const ringSizeInput = z
+  .object({
+    scale: z.enum(RING_SCALES, { error: 'must be iso, us or uk' }),
+    value: z.string().trim().min(1, 'is required').max(12),
+  })
+  .refine((r) => ringSizeToIso(r) !== null, { message: 'is not a size in that scale (ISO 36–80 mm, US 0–16, UK A–Z½)', path: ['value'] })
 export type RingSizeValue = z.infer<typeof ringSizeInput>
 /** An amount in integer minor units of the workshop's currency (pence, cents, yen, fils). */
-export const minorAmount = z.number({ error: 'must be an amount in minor units' }).int('must be whole minor units').min(0, 'must not be negative').max(10_000_000_000, 'is too large')
+export const minorAmount = z
+  .number({ error: 'must be an amount in minor units' })
+  .int('must be whole minor units')
+  .min(0, 'must not be negative')
+  .max(10_000_000_000, 'is too large')
 export const pieceParams = z.object({
   metal: z.enum(METALS, { error: 'must be one of the listed metals' }).default('silver-925'),
   stoneCount: z.number().int().min(0, 'must not be negative').max(2000, 'must be at most 2000').default(0),
@@ -35,7 +48,12 @@ export const pieceParams = z.object({
   /** Typical metal in one finished piece (g), for the estimated cost before anything is weighed. */
   metalWeightG: z.number({ error: 'must be a weight in g' }).positive('must be more than 0 g').max(5000, 'must be at most 5000 g').optional(),
   /** Typical cost of one stone (minor units) when the piece has no stone list yet. */
-  stoneCostEachMinor: z.number({ error: 'must be an amount' }).int('must be whole minor units').min(0, 'must not be negative').max(100_000_000, 'is too large').optional(),
+  stoneCostEachMinor: z
+    .number({ error: 'must be an amount' })
+    .int('must be whole minor units')
+    .min(0, 'must not be negative')
+    .max(100_000_000, 'is too large')
+    .optional(),
 })
 export const pieceInput = z.object({ templateId: id, piece: name, params: pieceParams.default(pieceParams.parse({})) })
 export const orderInput = z.object({
@@ -67,23 +85,67 @@ export type OrderUpdate = z.infer<typeof orderUpdate>
 // ---- Answers ----
 
 export const orderSummary = z.object({
-  id: wireInt, number: z.string(), customerId: wireInt, customerName: z.string(), title: z.string(), dueDate: isoDate, promisedDate: isoDate.nullable(),
-  priority: wireInt, status: z.string(), priceQuotedMinor: wireInt, currency: z.string(), jobBags: wireInt, version: wireInt,
+  id: wireInt,
+  number: z.string(),
+  customerId: wireInt,
+  customerName: z.string(),
+  title: z.string(),
+  dueDate: isoDate,
+  promisedDate: isoDate.nullable(),
+  priority: wireInt,
+  status: z.string(),
+  priceQuotedMinor: wireInt,
+  currency: z.string(),
+  jobBags: wireInt,
+  version: wireInt,
 })
 export const orderSummaryPage = pageOf(orderSummary)
 export const orderOperation = z.object({
-  id: wireInt, jobBagId: wireInt, seq: wireInt, key: z.string(), kindId: wireInt, name: z.string(), status: z.string(),
-  estimateMinutes: z.number(), requiredLevel: wireInt, waitAfterMinutes: z.number(), leadDays: z.number(), after: z.array(z.string()),
-  plannedBenchId: wireInt.nullable(), plannedPersonId: wireInt.nullable(), plannedStart: isoDateTime.nullable(), plannedEnd: isoDateTime.nullable(), finishedAt: isoDateTime.nullable(),
+  id: wireInt,
+  jobBagId: wireInt,
+  seq: wireInt,
+  key: z.string(),
+  kindId: wireInt,
+  name: z.string(),
+  status: z.string(),
+  estimateMinutes: z.number(),
+  requiredLevel: wireInt,
+  waitAfterMinutes: z.number(),
+  leadDays: z.number(),
+  after: z.array(z.string()),
+  plannedBenchId: wireInt.nullable(),
+  plannedPersonId: wireInt.nullable(),
+  plannedStart: isoDateTime.nullable(),
+  plannedEnd: isoDateTime.nullable(),
+  finishedAt: isoDateTime.nullable(),
 })
 /** A piece's parameters as stored (checked like the input, without filling in defaults). */
 const storedPieceParams = z.custom<PieceParams>((v) => pieceParams.safeParse(v).success, 'must be piece parameters')
-export const orderJobBag = z.object({ id: wireInt, number: z.string(), piece: z.string(), templateId: wireInt.nullable(), params: storedPieceParams, status: z.string(), operations: z.array(orderOperation) })
+export const orderJobBag = z.object({
+  id: wireInt,
+  number: z.string(),
+  piece: z.string(),
+  templateId: wireInt.nullable(),
+  params: storedPieceParams,
+  status: z.string(),
+  operations: z.array(orderOperation),
+})
 export const orderDetail = z.object({
-  id: wireInt, number: z.string(), customerId: wireInt, customerName: z.string(), customerReference: z.string(), title: z.string(),
-  dueDate: isoDate, promisedDate: isoDate.nullable(), priority: wireInt, status: z.enum(ORDER_STATUSES),
+  id: wireInt,
+  number: z.string(),
+  customerId: wireInt,
+  customerName: z.string(),
+  customerReference: z.string(),
+  title: z.string(),
+  dueDate: isoDate,
+  promisedDate: isoDate.nullable(),
+  priority: wireInt,
+  status: z.enum(ORDER_STATUSES),
   /** Integer minor units of `currency` (the workshop's). */
-  priceQuotedMinor: wireInt, currency: z.string(), notes: z.string(), version: wireInt,
+  priceQuotedMinor: wireInt,
+  currency: z.string(),
+  notes: z.string(),
+  version: wireInt,
   jobBags: z.array(orderJobBag),
 })
 export type OrderSummary = z.infer<typeof orderSummary>

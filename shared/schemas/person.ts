@@ -14,7 +14,12 @@ export const personInput = z.object({
   /** null: follows the workshop's hours. */
   weekPattern: weekPattern.nullable().default(null),
   /** What an hour of this person costs, in integer minor units of the workshop's currency. */
-  hourlyRateMinor: z.number({ error: 'must be an amount in minor units' }).int('must be whole minor units').min(0, 'must not be negative').max(100_000_000, 'is too large').default(0),
+  hourlyRateMinor: z
+    .number({ error: 'must be an amount in minor units' })
+    .int('must be whole minor units')
+    .min(0, 'must not be negative')
+    .max(100_000_000, 'is too large')
+    .default(0),
   active: z.boolean().default(true),
   skills: z
     .array(skillInput)
@@ -35,10 +40,15 @@ export type LeaveInput = z.infer<typeof leaveInput>
 
 export const leave = z.object({ id: wireInt, personId: wireInt, startsOn: isoDate, endsOn: isoDate, reason: z.string() })
 export const person = z.object({
-  id: wireInt, version: wireInt, name: z.string(), userId: wireInt.nullable(), userEmail: z.string().nullable(),
+  id: wireInt,
+  version: wireInt,
+  name: z.string(),
+  userId: wireInt.nullable(),
+  userEmail: z.string().nullable(),
   /** null: follows the workshop's hours. */
   weekPattern: z.array(z.object({ weekday: wireInt, start: z.string(), end: z.string() })).nullable(),
-  hourlyRateMinor: wireInt, active: z.boolean(),
+  hourlyRateMinor: wireInt,
+  active: z.boolean(),
   skills: z.array(z.object({ kindId: wireInt, level: wireInt, speed: z.number() })),
   leave: z.array(leave),
 })

@@ -4,8 +4,18 @@ import { id, isoDate, isoDateTime, version, wireInt } from './common'
 import type { RuleViolation } from '../domain/rules'
 
 export const planRunInput = z.object({
-  timeLimitSeconds: z.number({ error: 'must be a number of seconds' }).int().min(1, 'must be at least 1 second').max(120, 'must be at most 120 seconds').default(10),
-  seed: z.number().int().min(0).max(2 ** 31).default(1),
+  timeLimitSeconds: z
+    .number({ error: 'must be a number of seconds' })
+    .int()
+    .min(1, 'must be at least 1 second')
+    .max(120, 'must be at most 120 seconds')
+    .default(10),
+  seed: z
+    .number()
+    .int()
+    .min(0)
+    .max(2 ** 31)
+    .default(1),
   /** small-changes: a change to the live plan must buy less lateness; best-dates: an earlier finish is worth changes too. */
   stability: z.enum(['small-changes', 'best-dates'], { error: 'must be small-changes or best-dates' }).default('small-changes'),
 })
@@ -43,7 +53,14 @@ export const storedAssignment = (key: string) =>
   z.preprocess((v) => {
     if (typeof v !== 'object' || v === null) return v
     const o = v as Record<string, unknown>
-    return { operationId: oldId(o.operationId ?? key), benchId: oldId(o.benchId), personId: oldId(o.personId), start: o.start, end: o.end, ...(o.pinned === undefined ? {} : { pinned: o.pinned }) }
+    return {
+      operationId: oldId(o.operationId ?? key),
+      benchId: oldId(o.benchId),
+      personId: oldId(o.personId),
+      start: o.start,
+      end: o.end,
+      ...(o.pinned === undefined ? {} : { pinned: o.pinned }),
+    }
   }, planAssignment)
 export type PlanAssignment = z.infer<typeof planAssignment>
 
@@ -67,7 +84,10 @@ export const planRun = z.object({
 })
 
 /** A rule book finding as stored with a draft (see shared/domain/rules.ts). */
-const ruleViolation = z.custom<RuleViolation>((v) => typeof v === 'object' && v !== null && typeof (v as { rule?: unknown }).rule === 'string' && typeof (v as { message?: unknown }).message === 'string', 'must be a rule finding')
+const ruleViolation = z.custom<RuleViolation>(
+  (v) => typeof v === 'object' && v !== null && typeof (v as { rule?: unknown }).rule === 'string' && typeof (v as { message?: unknown }).message === 'string',
+  'must be a rule finding',
+)
 export const planScore = z.object({
   weightedTardiness: z.number().optional(),
   weightedTardinessHours: z.number().optional(),
@@ -103,7 +123,12 @@ export const planVersion = planVersionRow.extend({ createdByName: z.string().nul
 
 /** Where a plan puts one operation, as the comparison answers it: the plan's own record (planAssignment above). */
 export const assignment = planAssignment
-export const planMove = z.object({ operationId: wireInt, from: planAssignment.nullable(), to: planAssignment.nullable(), change: z.array(z.enum(['new', 'dropped', 'bench', 'person', 'time'])) })
+export const planMove = z.object({
+  operationId: wireInt,
+  from: planAssignment.nullable(),
+  to: planAssignment.nullable(),
+  change: z.array(z.enum(['new', 'dropped', 'bench', 'person', 'time'])),
+})
 export const planComparison = z.object({
   planId: wireInt,
   against: z.union([wireInt, z.literal('live')]),
@@ -113,7 +138,15 @@ export const planComparison = z.object({
   gains: z.object({ earlier: wireInt, later: wireInt, lessLate: wireInt, moreLate: wireInt }),
 })
 /** The answer to a move by hand: the operation's new planned place. */
-export const moveResult = z.object({ id: wireInt, version: wireInt, benchId: wireInt.nullable(), personId: wireInt.nullable(), start: isoDateTime.nullable(), end: isoDateTime.nullable(), pinned: z.boolean() })
+export const moveResult = z.object({
+  id: wireInt,
+  version: wireInt,
+  benchId: wireInt.nullable(),
+  personId: wireInt.nullable(),
+  start: isoDateTime.nullable(),
+  end: isoDateTime.nullable(),
+  pinned: z.boolean(),
+})
 
 export const loadCell = z.object({ day: isoDate, week: z.string(), plannedMinutes: z.number(), availableMinutes: z.number(), operationIds: z.array(wireInt) })
 export const loadRow = z.object({ type: z.enum(['bench', 'skill']), id: wireInt, name: z.string(), cells: z.array(loadCell) })

@@ -13,7 +13,12 @@ export const promiseCheckInput = z.object({
   /** Also simulate the range (P50 / P80 / P95). */
   range: z.boolean().default(false),
   runs: z.number().int().min(50, 'must be at least 50').max(5000, 'must be at most 5000').default(500),
-  seed: z.number().int().min(0).max(2 ** 31 - 1).default(1),
+  seed: z
+    .number()
+    .int()
+    .min(0)
+    .max(2 ** 31 - 1)
+    .default(1),
   /** Return the simulated completions too (for checking the quantiles). */
   sample: z.boolean().default(false),
 })
@@ -35,7 +40,10 @@ export const promiseAcceptInput = z.object({
 export type PromiseAcceptInput = z.infer<typeof promiseAcceptInput>
 
 /** An instant and the workshop-local date it falls on. */
-export interface PromiseMoment { at: string; date: string }
+export interface PromiseMoment {
+  at: string
+  date: string
+}
 
 export interface PromiseCheckResult {
   now: string
@@ -49,10 +57,14 @@ export interface PromiseCheckResult {
   replanned: PromiseMoment & { delayedJobBags: number }
   wanted: { date: string; fixedPlanMeets: boolean; replannedMeets: boolean } | null
   range: null | {
-    runs: number; seed: number; method: string
+    runs: number
+    seed: number
+    method: string
     /** The stated default where history is thin (distribution and its σ). */
     assumption: string
-    p50: PromiseMoment; p80: PromiseMoment; p95: PromiseMoment
+    p50: PromiseMoment
+    p80: PromiseMoment
+    p95: PromiseMoment
     /** The quantiles in minutes after now, unrounded. */
     quantileMinutes: { p50: number; p80: number; p95: number }
     kinds: { kind: string; source: 'history' | 'log-normal'; samples: number; p10: number; p50: number; p90: number }[]
@@ -62,13 +74,24 @@ export interface PromiseCheckResult {
 }
 
 export interface JobBagForecast {
-  jobBagId: number; number: string; piece: string; status: string
-  expectedCompletion: string | null; expectedDate: string | null
+  jobBagId: number
+  number: string
+  piece: string
+  status: string
+  expectedCompletion: string | null
+  expectedDate: string | null
   state: 'late' | 'at-risk' | 'on-time' | 'unplanned' | 'finished'
-  latenessMinutes: number; why: string
+  latenessMinutes: number
+  why: string
 }
 export interface OrderForecast {
-  orderId: number; number: string; status: string; due: string; promisedDate: string | null; timeZone: string
+  orderId: number
+  number: string
+  status: string
+  due: string
+  promisedDate: string | null
+  timeZone: string
   plan: { id: number; number: number; publishedAt: string | null } | null
-  state: JobBagForecast['state']; jobBags: JobBagForecast[]
+  state: JobBagForecast['state']
+  jobBags: JobBagForecast[]
 }

@@ -7,8 +7,16 @@ export const QUOTE_STATUSES = ['drafted', 'sent', 'accepted', 'expired', 'withdr
 export type QuoteStatus = (typeof QUOTE_STATUSES)[number]
 
 /** An amount in minor units (pence, cents): a whole number, never negative. */
-export const minorAmount = z.number({ error: 'must be a whole number of minor units (e.g. pence)' }).int('must be a whole number of minor units (e.g. pence)').min(0, 'must not be negative').max(1_000_000_000, 'is too large')
-const currency = z.string().trim().toUpperCase().regex(/^[A-Z]{3}$/, 'must be a three-letter currency code such as GBP')
+export const minorAmount = z
+  .number({ error: 'must be a whole number of minor units (e.g. pence)' })
+  .int('must be a whole number of minor units (e.g. pence)')
+  .min(0, 'must not be negative')
+  .max(1_000_000_000, 'is too large')
+const currency = z
+  .string()
+  .trim()
+  .toUpperCase()
+  .regex(/^[A-Z]{3}$/, 'must be a three-letter currency code such as GBP')
 
 export const quoteDetails = z.object({
   templateId: id.optional(),
@@ -16,7 +24,16 @@ export const quoteDetails = z.object({
   params: pieceParams.optional(),
   priority: z.number().int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').optional(),
   metal: z.string().trim().max(120).optional(),
-  stones: z.array(z.object({ description: z.string().trim().min(1, 'is required').max(200), count: z.number().int().min(0).optional(), carats: z.number().min(0).optional() })).max(100).optional(),
+  stones: z
+    .array(
+      z.object({
+        description: z.string().trim().min(1, 'is required').max(200),
+        count: z.number().int().min(0).optional(),
+        carats: z.number().min(0).optional(),
+      }),
+    )
+    .max(100)
+    .optional(),
 })
 export const quoteConfidence = z.object({ p50: isoDate.optional(), p80: isoDate.optional(), p95: isoDate.optional(), note: z.string().max(300).optional() })
 
@@ -30,21 +47,30 @@ const quoteFields = {
   depositMinor: minorAmount,
   validUntil: isoDate,
 }
-export const quoteInput = z.object({
-  customerId: id,
-  orderId: id.nullable().default(null),
-  currency: currency.optional(),
-  ...quoteFields,
-  description: quoteFields.description.default(''),
-  details: quoteDetails.default({}),
-  promisedDate: quoteFields.promisedDate.default(null),
-  confidence: quoteFields.confidence.default(null),
+export const quoteInput = z
+  .object({
+    customerId: id,
+    orderId: id.nullable().default(null),
+    currency: currency.optional(),
+    ...quoteFields,
+    description: quoteFields.description.default(''),
+    details: quoteDetails.default({}),
+    promisedDate: quoteFields.promisedDate.default(null),
+    confidence: quoteFields.confidence.default(null),
+    depositMinor: minorAmount.optional(),
+    validUntil: isoDate.optional(),
+  })
+  .refine((q) => q.depositMinor === undefined || q.depositMinor <= q.priceMinor, { message: 'must not be more than the price', path: ['depositMinor'] })
+export const quoteUpdate = z.object({
+  title: quoteFields.title.optional(),
+  description: quoteFields.description.optional(),
+  details: quoteDetails.optional(),
+  promisedDate: isoDate.nullable().optional(),
+  confidence: quoteConfidence.nullable().optional(),
+  priceMinor: minorAmount.optional(),
   depositMinor: minorAmount.optional(),
   validUntil: isoDate.optional(),
-}).refine((q) => q.depositMinor === undefined || q.depositMinor <= q.priceMinor, { message: 'must not be more than the price', path: ['depositMinor'] })
-export const quoteUpdate = z.object({
-  title: quoteFields.title.optional(), description: quoteFields.description.optional(), details: quoteDetails.optional(), promisedDate: isoDate.nullable().optional(),
-  confidence: quoteConfidence.nullable().optional(), priceMinor: minorAmount.optional(), depositMinor: minorAmount.optional(), validUntil: isoDate.optional(), version,
+  version,
 })
 export const quoteAction = z.object({ version })
 export const quoteListQuery = z.object({

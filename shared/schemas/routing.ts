@@ -6,7 +6,12 @@ import type { TemplateWarning } from '../domain/template-warnings'
 const bandFactor = z.number({ error: 'must be a number' }).min(0.2, 'must be at least 0.2').max(5, 'must be at most 5')
 
 export const stepInput = z.object({
-  key: z.string().trim().min(1, 'is required').max(20).regex(/^[a-z0-9-]+$/, 'use lower-case letters, digits and dashes'),
+  key: z
+    .string()
+    .trim()
+    .min(1, 'is required')
+    .max(20)
+    .regex(/^[a-z0-9-]+$/, 'use lower-case letters, digits and dashes'),
   kindId: id,
   name,
   /** Fixed minutes, plus per-stone minutes × stone count (setting). */
@@ -15,9 +20,19 @@ export const stepInput = z.object({
   /** Minutes per millimetre of the piece's size (polishing a longer cuff takes longer); 0 where size does not matter. */
   perMmMinutes: z.number({ error: 'must be a number' }).min(0, 'must not be negative').max(60, 'must be at most 60').default(0),
   /** Factor on the per-stone minutes by the stones' size band; a band left out counts 1. */
-  sizeBandFactors: z.strictObject({ melee: bandFactor.optional(), small: bandFactor.optional(), large: bandFactor.optional() }, { error: 'only melee, small and large have factors' }).default({}),
+  sizeBandFactors: z
+    .strictObject(
+      { melee: bandFactor.optional(), small: bandFactor.optional(), large: bandFactor.optional() },
+      { error: 'only melee, small and large have factors' },
+    )
+    .default({}),
   /** Factor on the per-stone minutes by a stone's role on the piece's stone list; a role left out takes the usual factor (DEFAULT_ROLE_FACTORS). */
-  roleFactors: z.strictObject({ centre: bandFactor.optional(), side: bandFactor.optional(), halo: bandFactor.optional(), pave: bandFactor.optional() }, { error: 'only centre, side, halo and pave have factors' }).default({}),
+  roleFactors: z
+    .strictObject(
+      { centre: bandFactor.optional(), side: bandFactor.optional(), halo: bandFactor.optional(), pave: bandFactor.optional() },
+      { error: 'only centre, side, halo and pave have factors' },
+    )
+    .default({}),
   requiredLevel: z.number().int().min(1, 'must be 1, 2 or 3').max(3, 'must be 1, 2 or 3').default(1),
   waitAfterMinutes: z.number().int().min(0, 'must not be negative').max(10080, 'must be at most a week').default(0),
   /** Outside work (casting, hallmarking): working days away, no bench. */
@@ -26,12 +41,19 @@ export const stepInput = z.object({
 })
 export const templateInput = z
   .object({
-    code, name, description: notes,
+    code,
+    name,
+    description: notes,
     /**
      * Production runs: the share of the time per piece left after each doubling of the quantity (0.85: 40 pieces take
      * 12 × 40^(1 + log₂ 0.85) minutes where one takes 12); null = every piece takes the same time.
      */
-    learningRate: z.number({ error: 'must be a number or empty' }).gt(0.5, 'must be above 0.5 (50 %)').max(1, 'must be at most 1 (100 %)').nullable().default(null),
+    learningRate: z
+      .number({ error: 'must be a number or empty' })
+      .gt(0.5, 'must be above 0.5 (50 %)')
+      .max(1, 'must be at most 1 (100 %)')
+      .nullable()
+      .default(null),
     steps: z.array(stepInput).min(1, 'needs at least one step').max(40, 'has too many steps'),
   })
   .superRefine((t, ctx) => {
@@ -53,7 +75,11 @@ export const templateInput = z
     while (queue.length) {
       const k = queue.shift()!
       seen++
-      for (const s of t.steps) if (s.after.includes(k)) { indeg.set(s.key, indeg.get(s.key)! - 1); if (indeg.get(s.key) === 0) queue.push(s.key) }
+      for (const s of t.steps)
+        if (s.after.includes(k)) {
+          indeg.set(s.key, indeg.get(s.key)! - 1)
+          if (indeg.get(s.key) === 0) queue.push(s.key)
+        }
     }
     if (seen < t.steps.length) ctx.addIssue({ code: 'custom', path: ['steps'], message: 'the steps follow each other in a circle' })
   })
@@ -64,17 +90,35 @@ export type TemplateInput = z.infer<typeof templateInput>
 // ---- Answers ----
 
 export const templateStep = z.object({
-  id: wireInt, key: z.string(), kindId: wireInt, name: z.string(), baseMinutes: z.number(), perStoneMinutes: z.number(), perMmMinutes: z.number(),
+  id: wireInt,
+  key: z.string(),
+  kindId: wireInt,
+  name: z.string(),
+  baseMinutes: z.number(),
+  perStoneMinutes: z.number(),
+  perMmMinutes: z.number(),
   sizeBandFactors: z.object({ melee: z.number().optional(), small: z.number().optional(), large: z.number().optional() }),
   roleFactors: z.object({ centre: z.number().optional(), side: z.number().optional(), halo: z.number().optional(), pave: z.number().optional() }),
-  requiredLevel: wireInt, waitAfterMinutes: z.number(), leadDays: z.number(), after: z.array(z.string()),
+  requiredLevel: wireInt,
+  waitAfterMinutes: z.number(),
+  leadDays: z.number(),
+  after: z.array(z.string()),
 })
 /** What the step graph allows that is probably not meant (shared/domain/template-warnings.ts); saving is still allowed. */
 export const templateWarning = z.discriminatedUnion('code', [
   z.object({ code: z.literal('starts-while-away'), step: z.string(), outside: z.array(z.string()), message: z.string() }),
   z.object({ code: z.literal('not-connected'), steps: z.array(z.string()), message: z.string() }),
 ]) satisfies z.ZodType<TemplateWarning>
-export const template = z.object({ id: wireInt, code: z.string(), name: z.string(), description: z.string(), learningRate: z.number().nullable(), steps: z.array(templateStep), version: wireInt, warnings: z.array(templateWarning) })
+export const template = z.object({
+  id: wireInt,
+  code: z.string(),
+  name: z.string(),
+  description: z.string(),
+  learningRate: z.number().nullable(),
+  steps: z.array(templateStep),
+  version: wireInt,
+  warnings: z.array(templateWarning),
+})
 export type TemplateStep = z.infer<typeof templateStep>
 export type Template = z.infer<typeof template>
 export type { TemplateWarning } from '../domain/template-warnings'

@@ -6,7 +6,12 @@ import { id, version } from './common'
 const text = (max: number) => z.string().trim().max(max, `must be at most ${max} characters`)
 const reason = z.string({ error: 'is required (say why)' }).trim().min(3, 'say why (at least 3 characters)').max(500, 'must be at most 500 characters')
 /** Client-generated id: a replay of the same request gets the first answer back. */
-export const clientId = z.string().trim().min(8, 'must be at least 8 characters').max(64, 'must be at most 64 characters').regex(/^[A-Za-z0-9_-]+$/, 'use letters, digits, - and _')
+export const clientId = z
+  .string()
+  .trim()
+  .min(8, 'must be at least 8 characters')
+  .max(64, 'must be at most 64 characters')
+  .regex(/^[A-Za-z0-9_-]+$/, 'use letters, digits, - and _')
 
 const lineFields = {
   role: z.enum(STONE_ROLES, { error: 'must be centre, side, halo or pave' }),
@@ -21,7 +26,12 @@ const lineFields = {
   quality: text(200),
   customerOwned: z.boolean({ error: 'must be true or false' }),
   /** Minor units (pence, cents) per stone; null when not known or the customer's own. */
-  costEachMinor: z.number({ error: 'must be a whole number of minor units' }).int('must be a whole number of minor units').min(0, 'must not be negative').max(100_000_000).nullable(),
+  costEachMinor: z
+    .number({ error: 'must be a whole number of minor units' })
+    .int('must be a whole number of minor units')
+    .min(0, 'must not be negative')
+    .max(100_000_000)
+    .nullable(),
 }
 export const stoneLineInput = z.object({
   ...lineFields,
@@ -39,10 +49,15 @@ export const stoneLineRemoveQuery = z.object({ version: z.coerce.number({ error:
 
 /** Stones counted in one go (e.g. 17 set and 1 back): each entry one kind. */
 export const stoneMovementInput = z.object({
-  entries: z.array(z.object({
-    kind: z.enum(STONE_COUNT_KINDS, { error: 'must be issued, set, returned, broken or lost' }),
-    count: z.number({ error: 'must be a whole number' }).int('must be a whole number').min(1, 'must be at least 1').max(2000, 'must be at most 2000'),
-  })).min(1, 'count at least one kind').max(5, 'has too many entries'),
+  entries: z
+    .array(
+      z.object({
+        kind: z.enum(STONE_COUNT_KINDS, { error: 'must be issued, set, returned, broken or lost' }),
+        count: z.number({ error: 'must be a whole number' }).int('must be a whole number').min(1, 'must be at least 1').max(2000, 'must be at most 2000'),
+      }),
+    )
+    .min(1, 'count at least one kind')
+    .max(5, 'has too many entries'),
   operationId: id.nullable().default(null),
   personId: id.nullable().default(null),
   clientId,
@@ -67,21 +82,45 @@ export type StoneCorrectionInput = z.infer<typeof stoneCorrectionInput>
 export type StoneCheckBackInput = z.infer<typeof stoneCheckBackInput>
 
 export interface StoneMovementOut {
-  id: number; kind: StoneMovementKind; count: number; personName: string | null; operationId: number | null
-  correctsId: number | null; reason: string; recordedBy: string | null; recordedAt: string; corrected: boolean
+  id: number
+  kind: StoneMovementKind
+  count: number
+  personName: string | null
+  operationId: number | null
+  correctsId: number | null
+  reason: string
+  recordedBy: string | null
+  recordedAt: string
+  corrected: boolean
 }
 /** with-setter: stones out while setting is under way; mismatch: the counts do not add up and nobody is setting. */
 export type StoneLineState = 'none-issued' | 'with-setter' | 'balanced' | 'mismatch'
 export interface StoneLineOut {
-  id: number; jobBagId: number; role: StoneRole; stone: string; shape: string; sizeMm: number; depthMm: number | null; count: number
-  caratEach: number | null; caratEstimated: boolean; quality: string; customerOwned: boolean; customerId: number | null; costEachMinor: number | null
-  version: number; reconciliation: Reconciliation; state: StoneLineState
+  id: number
+  jobBagId: number
+  role: StoneRole
+  stone: string
+  shape: string
+  sizeMm: number
+  depthMm: number | null
+  count: number
+  caratEach: number | null
+  caratEstimated: boolean
+  quality: string
+  customerOwned: boolean
+  customerId: number | null
+  costEachMinor: number | null
+  version: number
+  reconciliation: Reconciliation
+  state: StoneLineState
   /** The customer's own stones still to hand back at collection (count less broken and lost, less those checked back). */
   handBackOutstanding: number
   movements: StoneMovementOut[]
 }
 export interface JobBagStones {
-  jobBagId: number; quantity: number; settingRunning: boolean
+  jobBagId: number
+  quantity: number
+  settingRunning: boolean
   lines: StoneLineOut[]
   totals: Reconciliation & { lines: number; stonesPerPiece: number; caratsPerPiece: number }
   /** A customer's own stones: all counted back from the setter (needed before the order is ready) and handed back (before collected). */

@@ -16,4 +16,13 @@ export const userUpdate = z.object({
 })
 export type UserCreate = z.infer<typeof userCreate>
 export type UserUpdate = z.infer<typeof userUpdate>
-export interface User { id: number; email: string; name: string; role: (typeof ROLES)[number]; active: boolean; personId: number | null; version: number; createdAt: string }
+export interface User {
+  id: number
+  email: string
+  name: string
+  role: (typeof ROLES)[number]
+  active: boolean
+  personId: number | null
+  version: number
+  createdAt: string
+}

@@ -4,11 +4,19 @@ import { api } from './client'
 
 export type { BenchList } from '@shared/schemas/bench-floor'
 export type BenchAction = 'claim' | 'release' | 'start' | 'pause' | 'resume' | 'finish'
-export interface TransitionBody { requestId: string; benchId?: number; acknowledgeHazards?: boolean; reason?: string; note?: string; personId?: number }
+export interface TransitionBody {
+  requestId: string
+  benchId?: number
+  acknowledgeHazards?: boolean
+  reason?: string
+  note?: string
+  personId?: number
+}
 
 export const nextForMe = (benchId: number) => api.get('/bench/next', { query: { benchId }, schema: benchList })
 export const myWork = () => api.get('/bench/mine', { schema: benchList })
-export const transition = (operationId: number, action: BenchAction, body: TransitionBody) => api.post(`/bench/operations/${operationId}/${action}`, body, { schema: transitionResult })
+export const transition = (operationId: number, action: BenchAction, body: TransitionBody) =>
+  api.post(`/bench/operations/${operationId}/${action}`, body, { schema: transitionResult })
 
 /** A v4 UUID; also on plain-http tablets, where crypto.randomUUID is missing. */
 export function newRequestId(): string {
@@ -21,5 +29,7 @@ export function newRequestId(): string {
 }
 
 /** Outside work (casting, hallmarking): the office sends it out and books it back. */
-export const sendOut = (operationId: number, note = '') => api.post(`/operations/${operationId}/send-out`, { requestId: newRequestId(), note }, { schema: transitionResult })
-export const bookBack = (operationId: number, note = '') => api.post(`/operations/${operationId}/receive`, { requestId: newRequestId(), note }, { schema: transitionResult })
+export const sendOut = (operationId: number, note = '') =>
+  api.post(`/operations/${operationId}/send-out`, { requestId: newRequestId(), note }, { schema: transitionResult })
+export const bookBack = (operationId: number, note = '') =>
+  api.post(`/operations/${operationId}/receive`, { requestId: newRequestId(), note }, { schema: transitionResult })

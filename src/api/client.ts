@@ -46,7 +46,16 @@ export class ApiError extends Error {
 }
 
 function fallbackCode(status: number): ErrorCode {
-  const byStatus: Record<number, ErrorCode> = { 400: 'validation', 401: 'unauthenticated', 403: 'forbidden', 404: 'not-found', 409: 'conflict', 422: 'unprocessable', 429: 'rate-limited', 503: 'unavailable' }
+  const byStatus: Record<number, ErrorCode> = {
+    400: 'validation',
+    401: 'unauthenticated',
+    403: 'forbidden',
+    404: 'not-found',
+    409: 'conflict',
+    422: 'unprocessable',
+    429: 'rate-limited',
+    503: 'unavailable',
+  }
   return byStatus[status] ?? 'internal'
 }
 
@@ -99,8 +108,14 @@ async function send(method: Method, path: string, body: unknown, query: Query | 
 }
 
 /** How a call reads its answer: `schema` (shared/schemas) checks it in development and tests; `parse` turns it into T always. */
-export interface AnswerOptions<T> { schema?: ZodType<T>; parse?: (data: unknown) => T }
-export interface GetOptions<T> extends AnswerOptions<T> { query?: Query; signal?: AbortSignal }
+export interface AnswerOptions<T> {
+  schema?: ZodType<T>
+  parse?: (data: unknown) => T
+}
+export interface GetOptions<T> extends AnswerOptions<T> {
+  query?: Query
+  signal?: AbortSignal
+}
 
 /** Answers are checked against their schema in development and tests; production trusts them (the board answer is large). */
 const CHECK_ANSWERS = import.meta.env.DEV || import.meta.env.MODE === 'test'
@@ -112,7 +127,11 @@ function checked<T>(method: Method, path: string, schema: ZodType<T>, data: unkn
   if (r.success) return data as T
   const issues = r.error.issues.slice(0, 5).map((i) => `${i.path.join('.') || '(answer)'}: ${i.message}`)
   console.error(`[contract] ${method} ${path} answered something its schema does not allow`, r.error.issues)
-  throw new ApiError({ status: 200, code: 'internal', message: `The server's answer to ${method} ${path} is not what this page expects (${issues.join('; ')})` })
+  throw new ApiError({
+    status: 200,
+    code: 'internal',
+    message: `The server's answer to ${method} ${path} is not what this page expects (${issues.join('; ')})`,
+  })
 }
 
 /** One API call; a write refused for a stale security token is retried once with a fresh token. */

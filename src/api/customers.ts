@@ -2,7 +2,13 @@
 import { customer, customerPage, type CustomerInput } from '@shared/schemas/customer'
 import { api } from './client'
 
-export interface ListParams { q?: string; page?: number; pageSize?: number; sort?: string; order?: 'asc' | 'desc' }
+export interface ListParams {
+  q?: string
+  page?: number
+  pageSize?: number
+  sort?: string
+  order?: 'asc' | 'desc'
+}
 
 export const listCustomers = (p: ListParams = {}) => api.get('/customers', { query: { ...p }, schema: customerPage })
 export const getCustomer = (id: number) => api.get(`/customers/${id}`, { schema: customer })

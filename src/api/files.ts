@@ -4,8 +4,20 @@ import { ApiError, api } from './client'
 export type FileKind = 'sketch' | 'reference' | 'progress'
 export type FileOwner = { type: 'order' | 'jobBag'; id: number }
 export interface StoredFile {
-  id: number; orderId: number | null; jobBagId: number | null; kind: FileKind; originalName: string; mime: string; size: number
-  width: number | null; height: number | null; uploadedBy: number | null; uploadedByName: string | null; createdAt: string; url: string; thumbnailUrl: string | null
+  id: number
+  orderId: number | null
+  jobBagId: number | null
+  kind: FileKind
+  originalName: string
+  mime: string
+  size: number
+  width: number | null
+  height: number | null
+  uploadedBy: number | null
+  uploadedByName: string | null
+  createdAt: string
+  url: string
+  thumbnailUrl: string | null
 }
 
 const base = (o: FileOwner) => (o.type === 'order' ? `/orders/${o.id}/files` : `/job-bags/${o.id}/files`)
@@ -21,7 +33,12 @@ export async function uploadFile(owner: FileOwner, file: File, kind: FileKind): 
   form.append('file', file, file.name)
   let res: Response
   try {
-    res = await fetch(`/api${base(owner)}`, { method: 'POST', body: form, credentials: 'same-origin', headers: { accept: 'application/json', 'x-csrf-token': session.csrfToken } })
+    res = await fetch(`/api${base(owner)}`, {
+      method: 'POST',
+      body: form,
+      credentials: 'same-origin',
+      headers: { accept: 'application/json', 'x-csrf-token': session.csrfToken },
+    })
   } catch {
     throw new ApiError({ status: 0, code: 'network', message: 'The workshop server cannot be reached; check the connection and try again.' })
   }

@@ -1,6 +1,16 @@
 // Insights API: estimate-vs-actual tables, chart data, drill-down, job costing, learned estimates and accepting them.
 import type {
-  AcceptSuggestionInput, BiasTrend, ComparisonTable, CostingTable, DrillDown, Grouping, InsightFilter, LearnedEstimates, ScatterPoint, StepChange, ThreePointInput,
+  AcceptSuggestionInput,
+  BiasTrend,
+  ComparisonTable,
+  CostingTable,
+  DrillDown,
+  Grouping,
+  InsightFilter,
+  LearnedEstimates,
+  ScatterPoint,
+  StepChange,
+  ThreePointInput,
 } from '@shared/schemas/insights'
 import type { Estimate } from '@shared/domain/estimate'
 import { api, type Query } from './client'
@@ -28,6 +38,18 @@ export const costingCsvUrl = (f: InsightFilter) => csvUrl('/insights/costing', q
 export const drillCsvUrl = (groupBy: Grouping, key: string, f: InsightFilter) => csvUrl('/insights/records', { groupBy, key, ...q(f) })
 
 /** An outside step's expected cost per unit in integer minor units of `currency` (null: not set). */
-export interface StepCost { templateId: number; templateName: string; stepKey: string; stepName: string; leadDays: number; outsideCostMinor: number | null; currency: string }
+export interface StepCost {
+  templateId: number
+  templateName: string
+  stepKey: string
+  stepName: string
+  leadDays: number
+  outsideCostMinor: number | null
+  currency: string
+}
 export const getStepCosts = () => api.get<StepCost[]>('/insights/outside-costs')
-export const setStepCost = (templateId: number, stepKey: string, outsideCostMinor: number | null) => api.put<{ templateId: number; stepKey: string; outsideCostMinor: number | null }>(`/insights/templates/${templateId}/outside-cost`, { stepKey, outsideCostMinor })
+export const setStepCost = (templateId: number, stepKey: string, outsideCostMinor: number | null) =>
+  api.put<{ templateId: number; stepKey: string; outsideCostMinor: number | null }>(`/insights/templates/${templateId}/outside-cost`, {
+    stepKey,
+    outsideCostMinor,
+  })

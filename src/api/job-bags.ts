@@ -1,6 +1,16 @@
 // Job bags API: the bag's page data, routing edits, hold / cancel, ticket link, time record corrections.
 import { z } from 'zod'
-import { effectiveTimeRecord, jobBagDetail, jobBagSummary, type JobBagStatusInput, type RingSizeChange, type SequenceInput, type StepAdd, type StepSkip, type StepUpdate } from '@shared/schemas/job-bag'
+import {
+  effectiveTimeRecord,
+  jobBagDetail,
+  jobBagSummary,
+  type JobBagStatusInput,
+  type RingSizeChange,
+  type SequenceInput,
+  type StepAdd,
+  type StepSkip,
+  type StepUpdate,
+} from '@shared/schemas/job-bag'
 import type { TimeRecordAdd, TimeRecordCorrection } from '@shared/schemas/bench-floor'
 import { api } from './client'
 
@@ -17,5 +27,7 @@ export const setSequence = (id: number, body: SequenceInput) => api.put(`/job-ba
 export const setJobBagStatus = (id: number, body: JobBagStatusInput) => api.post(`/job-bags/${id}/status`, body, detail)
 export const changeRingSize = (id: number, body: RingSizeChange) => api.put(`/job-bags/${id}/ring-size`, body, detail)
 export const ticketUrl = (id: number, size: 'A5' | 'A6' = 'A6') => `/api/job-bags/${id}/ticket.pdf?size=${size}`
-export const correctTimeRecord = (recordId: number, body: TimeRecordCorrection) => api.post(`/time-records/${recordId}/corrections`, body, { schema: effectiveTimeRecord })
-export const addTimeRecord = (operationId: number, body: TimeRecordAdd) => api.post(`/operations/${operationId}/time-records`, body, { schema: effectiveTimeRecord })
+export const correctTimeRecord = (recordId: number, body: TimeRecordCorrection) =>
+  api.post(`/time-records/${recordId}/corrections`, body, { schema: effectiveTimeRecord })
+export const addTimeRecord = (operationId: number, body: TimeRecordAdd) =>
+  api.post(`/operations/${operationId}/time-records`, body, { schema: effectiveTimeRecord })

@@ -1,11 +1,32 @@
 // Metal API: alloys and prices, weighing out and back for a job bag, corrections, stock, loss figures, tolerances, refining lots.
 import type {
-  AdjustmentInput, Alloy, AlloyPrice, AlloyPriceInput, CorrectionInput, IssueInput, JobBagMetal, LossGrouping, LossTable, MetalMovement, PurchaseInput, RefiningItemInput,
-  RefiningLot, RefiningLotInput, RefiningSendInput, RefiningSettleInput, ReturnInput, StockRow, Tolerance, ToleranceInput,
+  AdjustmentInput,
+  Alloy,
+  AlloyPrice,
+  AlloyPriceInput,
+  CorrectionInput,
+  IssueInput,
+  JobBagMetal,
+  LossGrouping,
+  LossTable,
+  MetalMovement,
+  PurchaseInput,
+  RefiningItemInput,
+  RefiningLot,
+  RefiningLotInput,
+  RefiningSendInput,
+  RefiningSettleInput,
+  ReturnInput,
+  StockRow,
+  Tolerance,
+  ToleranceInput,
 } from '@shared/schemas/metal'
 import { api } from './client'
 
-export interface Recorded { replayed: boolean; movement: MetalMovement }
+export interface Recorded {
+  replayed: boolean
+  movement: MetalMovement
+}
 
 export const listAlloys = () => api.get<Alloy[]>('/alloys')
 export const listPrices = (alloyId: number) => api.get<AlloyPrice[]>(`/alloys/${alloyId}/prices`)
@@ -14,12 +35,14 @@ export const setPrice = (alloyId: number, body: AlloyPriceInput) => api.post<All
 export const getJobBagMetal = (jobBagId: number) => api.get<JobBagMetal>(`/job-bags/${jobBagId}/metal`)
 export const issueMetal = (body: IssueInput) => api.post<Recorded>('/metal/issues', body)
 export const returnMetal = (body: ReturnInput) => api.post<Recorded>('/metal/returns', body)
-export const correctMovement = (movementId: number, body: CorrectionInput) => api.post<Recorded & { correctionId: number }>(`/metal/movements/${movementId}/corrections`, body)
+export const correctMovement = (movementId: number, body: CorrectionInput) =>
+  api.post<Recorded & { correctionId: number }>(`/metal/movements/${movementId}/corrections`, body)
 export const purchaseMetal = (body: PurchaseInput) => api.post<unknown>('/metal/purchases', body)
 export const adjustStock = (body: AdjustmentInput) => api.post<unknown>('/metal/adjustments', body)
 
 export const getStock = () => api.get<StockRow[]>('/metal/stock')
-export const getLosses = (groupBy: LossGrouping, filter: { from?: string; to?: string } = {}) => api.get<LossTable>('/metal/losses', { query: { groupBy, ...filter } })
+export const getLosses = (groupBy: LossGrouping, filter: { from?: string; to?: string } = {}) =>
+  api.get<LossTable>('/metal/losses', { query: { groupBy, ...filter } })
 export const listTolerances = () => api.get<Tolerance[]>('/metal/tolerances')
 export const setTolerance = (kindId: number, body: ToleranceInput) => api.put<Tolerance>(`/metal/tolerances/${kindId}`, body)
 

@@ -1,12 +1,35 @@
 // Planning API: planner runs, plan versions and comparisons, the board window, moves by hand and the week load.
 import { z } from 'zod'
-import { moveResult, planComparison, planRun, planVersion, planVersionRow, weekLoad, type MoveInput, type PlanRun, type PlanRunInput } from '@shared/schemas/plan'
+import {
+  moveResult,
+  planComparison,
+  planRun,
+  planVersion,
+  planVersionRow,
+  weekLoad,
+  type MoveInput,
+  type PlanRun,
+  type PlanRunInput,
+} from '@shared/schemas/plan'
 import { boardAnswer } from '@shared/schemas/board'
 import { api } from './client'
 
 // The answers' types are declared once, with their schemas, in shared/schemas (board.ts and plan.ts).
 export type { BoardData, BoardItem, BoardJob, BoardPlanRef, JobState, StartReason } from '@shared/schemas/board'
-export type { Assignment, LoadCell, LoadRow, MoveResult, PlanComparison, PlanMove, PlanRun, PlanScore, PlanVersion, PlanVersionRow, RunProgress, WeekLoad } from '@shared/schemas/plan'
+export type {
+  Assignment,
+  LoadCell,
+  LoadRow,
+  MoveResult,
+  PlanComparison,
+  PlanMove,
+  PlanRun,
+  PlanScore,
+  PlanVersion,
+  PlanVersionRow,
+  RunProgress,
+  WeekLoad,
+} from '@shared/schemas/plan'
 
 /** A run still waiting or solving (the dialog shows its progress, a second run is refused). */
 export const runActive = (r: Pick<PlanRun, 'status'> | null | undefined) => r?.status === 'queued' || r?.status === 'running'

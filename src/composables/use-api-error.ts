@@ -44,12 +44,16 @@ export function useApiError(o: { model?: () => unknown } = {}) {
   if (o.model) {
     const model = o.model
     let before = flatten(model())
-    watch(model, () => {
-      const after = flatten(model())
-      const changed = Object.keys({ ...before, ...after }).filter((p) => before[p] !== after[p])
-      for (const key of Object.keys(fields)) if (changed.some((p) => p === key || p.startsWith(`${key}.`) || key.startsWith(`${p}.`))) delete fields[key]
-      before = after
-    }, { deep: true })
+    watch(
+      model,
+      () => {
+        const after = flatten(model())
+        const changed = Object.keys({ ...before, ...after }).filter((p) => before[p] !== after[p])
+        for (const key of Object.keys(fields)) if (changed.some((p) => p === key || p.startsWith(`${key}.`) || key.startsWith(`${p}.`))) delete fields[key]
+        before = after
+      },
+      { deep: true },
+    )
   }
 
   function clear() {

@@ -28,7 +28,9 @@ export interface EditDialogOptions<Row extends { id: number; version: number }, 
   invalid?: () => void
 }
 
-export function useEditDialog<Row extends { id: number; version: number }, Saved, C extends ZodType, U extends ZodType>(o: EditDialogOptions<Row, Saved, C, U>) {
+export function useEditDialog<Row extends { id: number; version: number }, Saved, C extends ZodType, U extends ZodType>(
+  o: EditDialogOptions<Row, Saved, C, U>,
+) {
   const errors = useApiError({ model: o.form })
   /** True after the server said someone else changed the row since it was opened. */
   const stale = ref(false)
@@ -61,7 +63,12 @@ export function useEditDialog<Row extends { id: number; version: number }, Saved
       // A 409 naming fields is a clash with another row (a name taken): its reasons go under the fields like a 400.
       if (err instanceof ApiError && err.status === 409 && Object.keys(err.fields).every((k) => k === 'version')) {
         stale.value = true
-        ElMessage({ type: 'warning', message: `Someone else changed this ${o.noun} while you were editing it, so your changes were not saved. Close it and open it again to see theirs.`, showClose: true, duration: 0 })
+        ElMessage({
+          type: 'warning',
+          message: `Someone else changed this ${o.noun} while you were editing it, so your changes were not saved. Close it and open it again to see theirs.`,
+          showClose: true,
+          duration: 0,
+        })
         void Promise.resolve(o.stale?.()).catch(() => undefined)
       } else errors.show(err)
       return undefined

@@ -16,5 +16,9 @@ export function useLiveShown(name: 'board' | 'bench-floor' | 'metal') {
 export function useLiveKeys(keys: () => readonly string[], reload: () => void, wait = 200, maxWait = 1500) {
   const debounced = createDebounce(reload, wait, maxWait)
   const off = useLiveStore().watchKeys(keys, debounced)
-  if (getCurrentScope()) onScopeDispose(() => { off(); debounced.cancel() })
+  if (getCurrentScope())
+    onScopeDispose(() => {
+      off()
+      debounced.cancel()
+    })
 }

@@ -34,7 +34,12 @@ export function formatMinor(minor: number | null | undefined, currency: string, 
 }
 
 /** The workshop's money rules as the settings carry them (defaults until the settings are loaded). */
-export interface WorkshopMoneyRules { currency: string; depositPct: number; quoteValidDays: number; noMetalBeforeDeposit: boolean }
+export interface WorkshopMoneyRules {
+  currency: string
+  depositPct: number
+  quoteValidDays: number
+  noMetalBeforeDeposit: boolean
+}
 export function moneyRules(settings: Partial<WorkshopMoneyRules> | null | undefined): WorkshopMoneyRules {
   return {
     currency: settings?.currency || 'GBP',

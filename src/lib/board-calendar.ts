@@ -37,7 +37,8 @@ export function dataWindowFor(anchorDay: string): { from: string; to: string } {
 export function visibleWindow(zoom: Zoom, anchorDay: string, tz: string): { start: Date; end: Date } {
   if (zoom === 'day') return { start: dayjs.tz(`${anchorDay} 07:30`, tz).toDate(), end: dayjs.tz(`${anchorDay} 17:30`, tz).toDate() }
   const monday = weekMonday(anchorDay)
-  if (zoom === 'week') return { start: dayjs.tz(`${monday} 06:00`, tz).toDate(), end: dayjs.tz(`${dayjs(monday).add(4, 'day').format('YYYY-MM-DD')} 19:00`, tz).toDate() }
+  if (zoom === 'week')
+    return { start: dayjs.tz(`${monday} 06:00`, tz).toDate(), end: dayjs.tz(`${dayjs(monday).add(4, 'day').format('YYYY-MM-DD')} 19:00`, tz).toDate() }
   return { start: dayStart(monday, tz), end: dayStart(dayjs(monday).add(28, 'day').format('YYYY-MM-DD'), tz) }
 }
 

@@ -23,7 +23,9 @@ export function createDebounce(fn: () => void, wait: number, maxWait = wait * 8)
     const left = Math.max(0, Math.min(wait, firstAt + maxWait - now))
     timer = setTimeout(run, left)
   }) as Debounced
-  d.flush = () => { if (timer) run() }
+  d.flush = () => {
+    if (timer) run()
+  }
   d.cancel = () => {
     if (timer) clearTimeout(timer)
     timer = null

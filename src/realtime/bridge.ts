@@ -50,19 +50,42 @@ const keysOf = (...keys: (string | null | false)[]) => keys.filter((k): k is str
 // Board: bars and job bags reload the window only; plan versions reload the plan list; drafts go through the planner run.
 const boardBars = (flashOf?: (p: Payload) => number | null): LiveRoute => ({
   store: 'board',
-  known: (p, c) => { const id = flashOf?.(p); return id ? c.board.knownVersion(id) : undefined },
+  known: (p, c) => {
+    const id = flashOf?.(p)
+    return id ? c.board.knownVersion(id) : undefined
+  },
   apply: (p, c) => {
     if (!c.live.isShown('board')) return
     const id = flashOf?.(p)
     if (id) c.flash.add(id)
-    c.soon('board:bars', () => { const ids = [...c.flash]; c.flash.clear(); return c.board.reloadBars(ids) }, 150, 1000)
+    c.soon(
+      'board:bars',
+      () => {
+        const ids = [...c.flash]
+        c.flash.clear()
+        return c.board.reloadBars(ids)
+      },
+      150,
+      1000,
+    )
   },
 })
-const boardPlans: LiveRoute = { store: 'board', ownWritesReload: true, apply: (_p, c) => { if (c.live.isShown('board')) c.soon('board:plans', () => c.board.refresh(), 150, 1000) } }
+const boardPlans: LiveRoute = {
+  store: 'board',
+  ownWritesReload: true,
+  apply: (_p, c) => {
+    if (c.live.isShown('board')) c.soon('board:plans', () => c.board.refresh(), 150, 1000)
+  },
+}
 const benchQueue = (ownWritesReload: boolean, known = false): LiveRoute => ({
   store: 'benchFloor',
   ownWritesReload,
-  known: known ? (p, c) => { const id = num(p.operationId) ?? num(p.id); return id ? c.benchFloor.knownVersion(id) : undefined } : undefined,
+  known: known
+    ? (p, c) => {
+        const id = num(p.operationId) ?? num(p.id)
+        return id ? c.benchFloor.knownVersion(id) : undefined
+      }
+    : undefined,
   apply: (_p, c) => {
     if (!c.live.isShown('bench-floor') || c.benchFloor.waitingForPin) return
     c.soon('bench', () => c.benchFloor.refresh(), 300, 2000)
@@ -70,7 +93,9 @@ const benchQueue = (ownWritesReload: boolean, known = false): LiveRoute => ({
 })
 const metalStore: LiveRoute = {
   store: 'metal',
-  apply: (_p, c) => { if (c.live.isShown('metal')) c.soon('metal', () => Promise.all([c.metal.loadStock(), c.metal.loadLots()]), 500, 3000) },
+  apply: (_p, c) => {
+    if (c.live.isShown('metal')) c.soon('metal', () => Promise.all([c.metal.loadStock(), c.metal.loadLots()]), 500, 3000)
+  },
 }
 const keys = (of: (p: Payload) => string[]): LiveRoute => ({ store: 'keys', apply: (p, c) => c.live.invalidate(of(p)) })
 const moneyKeys = keys((p) => keysOf('money', num(p.orderId) !== null && `order:${p.orderId}:money`, num(p.quoteId) !== null && `quote:${p.quoteId}:money`))
@@ -81,16 +106,43 @@ const masterData: LiveRoute = {
   ownWritesReload: true,
   apply: (p, c) => {
     const reload: Record<string, () => unknown> = {
-      bench: () => { const s = useBenchesStore(); if (s.loaded) return s.load(true) },
-      person: () => { const s = usePeopleStore(); if (s.loaded) return s.load(true) },
-      'operation-kind': () => { const s = useKindsStore(); if (s.loaded) return s.load(true) },
-      'pause-reason': () => { const s = usePauseReasonsStore(); if (s.loaded) return s.load(true) },
-      'routing-template': () => { const s = useRoutingsStore(); if (s.loaded) return s.load(true) },
-      alloy: () => { if (c.metal.alloys.length) return c.metal.loadAlloys(true) },
-      'alloy-price': () => { if (c.metal.alloys.length) return c.metal.loadAlloys(true) },
-      'loss-tolerance': () => { if (c.metal.tolerances.length) return c.metal.loadTolerances() },
-      workshop: () => { const s = useCalendarStore(); if (s.settings) return s.load(true) },
-      closure: () => { const s = useCalendarStore(); if (s.settings) return s.load(true) },
+      bench: () => {
+        const s = useBenchesStore()
+        if (s.loaded) return s.load(true)
+      },
+      person: () => {
+        const s = usePeopleStore()
+        if (s.loaded) return s.load(true)
+      },
+      'operation-kind': () => {
+        const s = useKindsStore()
+        if (s.loaded) return s.load(true)
+      },
+      'pause-reason': () => {
+        const s = usePauseReasonsStore()
+        if (s.loaded) return s.load(true)
+      },
+      'routing-template': () => {
+        const s = useRoutingsStore()
+        if (s.loaded) return s.load(true)
+      },
+      alloy: () => {
+        if (c.metal.alloys.length) return c.metal.loadAlloys(true)
+      },
+      'alloy-price': () => {
+        if (c.metal.alloys.length) return c.metal.loadAlloys(true)
+      },
+      'loss-tolerance': () => {
+        if (c.metal.tolerances.length) return c.metal.loadTolerances()
+      },
+      workshop: () => {
+        const s = useCalendarStore()
+        if (s.settings) return s.load(true)
+      },
+      closure: () => {
+        const s = useCalendarStore()
+        if (s.settings) return s.load(true)
+      },
     }
     const entity = String(p.entity ?? '')
     const fn = reload[entity]
@@ -107,7 +159,15 @@ export const LIVE_TABLE: Record<EventName, LiveRoute[]> = {
   'plan:changed': [{ ...boardBars((p) => num(p.operationId) ?? num(p.id)), ownWritesReload: true }, benchQueue(false, true)],
   'plan:published': [boardPlans, benchQueue(false)],
   'plan:discarded': [boardPlans],
-  'plan:drafted': [{ store: 'plannerRun', apply: (p, c) => { const id = num(p.id); if (id) void c.board.onDrafted(id, typeof p.runId === 'string' ? p.runId : undefined) } }],
+  'plan:drafted': [
+    {
+      store: 'plannerRun',
+      apply: (p, c) => {
+        const id = num(p.id)
+        if (id) void c.board.onDrafted(id, typeof p.runId === 'string' ? p.runId : undefined)
+      },
+    },
+  ],
   'plan:progress': [{ store: 'plannerRun', apply: (p, c) => c.runs.onProgress(p as unknown as RunProgress & { runId: string }) }],
   'plan:failed': [{ store: 'plannerRun', apply: (p, c) => c.runs.onFailed({ runId: String(p.runId), error: String(p.error ?? '') }) }],
   'order:created': [boardBars(), keys(() => ['orders'])],
@@ -199,7 +259,9 @@ export function startLiveBridge(o: { channel?: LiveChannel; clientId?: string; d
   const offs = [
     ...(Object.keys(LIVE_TABLE) as EventName[]).map((e) => channel.on(e, (p) => handle(e, p))),
     // Missed events were replayed through the table above; reload everything only when some could not be.
-    channel.onResync((_missed, complete) => { if (!complete) resyncAll() }),
+    channel.onResync((_missed, complete) => {
+      if (!complete) resyncAll()
+    }),
   ]
   c.live.connection = channel.state.value
   const stopState = watch(channel.state, (s) => (c.live.connection = s), { flush: 'sync' })

@@ -7,9 +7,24 @@ export type ConnectionState = 'connecting' | 'connected' | 'reconnecting' | 'off
 
 /** Events the server records with a `seq` (catch-up works for these); `plan:progress` is live only. */
 export const RECORDED_EVENTS = [
-  'order:created', 'order:updated', 'operation:changed', 'jobBag:changed',
-  'plan:drafted', 'plan:published', 'plan:discarded', 'plan:changed', 'plan:failed', 'masterdata:changed', 'file:added', 'file:removed',
-  'quote:changed', 'payment:received', 'payment:refunded', 'paymentLink:created', 'metal:recorded', 'refiningLot:changed',
+  'order:created',
+  'order:updated',
+  'operation:changed',
+  'jobBag:changed',
+  'plan:drafted',
+  'plan:published',
+  'plan:discarded',
+  'plan:changed',
+  'plan:failed',
+  'masterdata:changed',
+  'file:added',
+  'file:removed',
+  'quote:changed',
+  'payment:received',
+  'payment:refunded',
+  'paymentLink:created',
+  'metal:recorded',
+  'refiningLot:changed',
 ] as const satisfies readonly EventName[]
 export const LIVE_ONLY_EVENTS = ['plan:progress'] as const satisfies readonly EventName[]
 /** Every event of shared/events.ts is on one of the two lists (otherwise the channel would never hear it). */
@@ -24,7 +39,11 @@ export const LATE_WINDOW = 1000
 /** The most events one catch-up answer holds (the server's kept window). */
 export const CATCH_UP_LIMIT = 5000
 
-export interface CaughtUpEvent { seq: number; event: string; payload: unknown }
+export interface CaughtUpEvent {
+  seq: number
+  event: string
+  payload: unknown
+}
 type Handler = (payload: Record<string, unknown>, event: string) => void
 /** `complete`: every missed event was replayed (the catch-up answered in full); false: reload what you show. */
 type ResyncListener = (missed: CaughtUpEvent[], complete: boolean) => void
@@ -72,7 +91,10 @@ export class LiveChannel {
   private retryTimer: ReturnType<typeof setTimeout> | null = null
   private closed = false
 
-  constructor(readonly socket: SocketLike, opts: ChannelOptions = {}) {
+  constructor(
+    readonly socket: SocketLike,
+    opts: ChannelOptions = {},
+  ) {
     this.opts = { offlineAfterAttempts: 3, catchUpTimeoutMs: 5000, retryAfterRefusalMs: 4000, ...opts }
     socket.on('connect', this.onConnect)
     socket.on('disconnect', this.onDisconnect)
@@ -135,7 +157,10 @@ export class LiveChannel {
     this.delivered.add(seq)
     if (seq > this.lastSeq) this.lastSeq = seq
     // Keep the duplicate filter small: only numbers near the top can still arrive twice.
-    if (this.delivered.size > 500) for (const s of this.delivered) { if (s < this.lastSeq - 400) this.delivered.delete(s) }
+    if (this.delivered.size > 500)
+      for (const s of this.delivered) {
+        if (s < this.lastSeq - 400) this.delivered.delete(s)
+      }
   }
 
   private dispatch(event: string, payload: Record<string, unknown>) {

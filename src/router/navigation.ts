@@ -1,10 +1,35 @@
 // What each role sees in the navigation, and where each role lands after signing in.
 import type { Role } from '@shared/domain/roles'
 
-export type NavIcon = 'plan' | 'orders' | 'promise' | 'customers' | 'benches' | 'people' | 'calendar' | 'routings' | 'queue' | 'insights' | 'team' | 'settings' | 'outbox' | 'quotes' | 'money' | 'metal'
+export type NavIcon =
+  | 'plan'
+  | 'orders'
+  | 'promise'
+  | 'customers'
+  | 'benches'
+  | 'people'
+  | 'calendar'
+  | 'routings'
+  | 'queue'
+  | 'insights'
+  | 'team'
+  | 'settings'
+  | 'outbox'
+  | 'quotes'
+  | 'money'
+  | 'metal'
 
-export interface NavItem { to: string; label: string; icon: NavIcon; roles: Role[]; /** Label for a role that only reads here. */ readOnlyFor?: Role[] }
-export interface NavSection { title: string; items: NavItem[] }
+export interface NavItem {
+  to: string
+  label: string
+  icon: NavIcon
+  roles: Role[]
+  /** Label for a role that only reads here. */ readOnlyFor?: Role[]
+}
+export interface NavSection {
+  title: string
+  items: NavItem[]
+}
 
 export const NAV: NavSection[] = [
   {

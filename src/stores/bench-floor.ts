@@ -29,7 +29,8 @@ export const useBenchFloorStore = defineStore('benchFloor', () => {
   const waitingForPin = ref(false)
 
   /** The version of an operation the lists hold, if they show it: an event at or below it is already here. */
-  const knownVersion = (operationId: number): number | undefined => (next.value.find((o) => o.id === operationId) ?? mine.value.find((o) => o.id === operationId))?.version
+  const knownVersion = (operationId: number): number | undefined =>
+    (next.value.find((o) => o.id === operationId) ?? mine.value.find((o) => o.id === operationId))?.version
 
   async function loadBenches() {
     benches.value = (await listBenches()).filter((b) => b.active)
@@ -60,7 +61,11 @@ export const useBenchFloorStore = defineStore('benchFloor', () => {
    * Sends one transition. The request id is made once per tap; when the connection drops the same id is sent again,
    * so the server answers with its first answer instead of doing the work twice.
    */
-  async function act(op: Pick<BenchOperation, 'id'>, action: benchApi.BenchAction, extra: Omit<benchApi.TransitionBody, 'requestId'> = {}): Promise<TransitionResult> {
+  async function act(
+    op: Pick<BenchOperation, 'id'>,
+    action: benchApi.BenchAction,
+    extra: Omit<benchApi.TransitionBody, 'requestId'> = {},
+  ): Promise<TransitionResult> {
     const body: benchApi.TransitionBody = { requestId: benchApi.newRequestId(), ...extra }
     if ((action === 'claim' || action === 'start' || action === 'resume') && benchId.value && !body.benchId) body.benchId = benchId.value
     busy.value = new Set([...busy.value, op.id])
@@ -76,7 +81,8 @@ export const useBenchFloorStore = defineStore('benchFloor', () => {
             await new Promise((res) => setTimeout(res, 800 * (attempt + 1)))
             continue
           }
-          if (err instanceof ApiError && err.status === 403 && (err.details as { reason?: string } | undefined)?.reason === 'bench-pin' && afterAction.value) afterAction.value()
+          if (err instanceof ApiError && err.status === 403 && (err.details as { reason?: string } | undefined)?.reason === 'bench-pin' && afterAction.value)
+            afterAction.value()
           else if (err instanceof ApiError && err.status !== 0) await refresh().catch(() => undefined)
           throw err
         }

@@ -51,7 +51,12 @@ export const useBoardStore = defineStore('board', () => {
   const viewedPlan = computed(() => (viewPlanId.value ? (versions.value.find((v) => v.id === viewPlanId.value) ?? null) : null))
   const itemsById = computed(() => new Map((data.value?.items ?? []).map((i) => [i.id, i])))
   const jobStates = computed(() => new Map<number, JobState>((data.value?.jobs ?? []).map((j) => [j.jobBagId, j.state])))
-  const moved = computed(() => new Map<number, PlanMove['change']>((viewPlanId.value && comparison.value?.planId === viewPlanId.value ? comparison.value.moves : []).map((m) => [m.operationId, m.change])))
+  const moved = computed(
+    () =>
+      new Map<number, PlanMove['change']>(
+        (viewPlanId.value && comparison.value?.planId === viewPlanId.value ? comparison.value.moves : []).map((m) => [m.operationId, m.change]),
+      ),
+  )
   const benchName = computed(() => new Map((data.value?.benches ?? []).map((b) => [b.id, b.name])))
   const personName = computed(() => new Map((data.value?.people ?? []).map((p) => [p.id, p.name])))
   const running = computed(() => runs.active)
@@ -105,7 +110,11 @@ export const useBoardStore = defineStore('board', () => {
 
   /** Everything the board shows, e.g. after a change event. */
   async function refresh() {
-    const tasks: Promise<unknown>[] = [loadVersions().catch(() => undefined).then(() => loadBoard())]
+    const tasks: Promise<unknown>[] = [
+      loadVersions()
+        .catch(() => undefined)
+        .then(() => loadBoard()),
+    ]
     if (tab.value === 'load') tasks.push(loadWeekLoad().catch(() => undefined))
     if (viewPlanId.value) tasks.push(loadComparison(viewPlanId.value).catch(() => undefined))
     await Promise.all(tasks)
@@ -144,7 +153,11 @@ export const useBoardStore = defineStore('board', () => {
   async function showPlan(planId: number | null) {
     viewPlanId.value = planId
     comparison.value = null
-    await Promise.all([loadBoard(), planId ? loadComparison(planId).catch(() => undefined) : Promise.resolve(), tab.value === 'load' ? loadWeekLoad().catch(() => undefined) : Promise.resolve()])
+    await Promise.all([
+      loadBoard(),
+      planId ? loadComparison(planId).catch(() => undefined) : Promise.resolve(),
+      tab.value === 'load' ? loadWeekLoad().catch(() => undefined) : Promise.resolve(),
+    ])
   }
 
   async function publish(planId: number) {
@@ -192,8 +205,14 @@ export const useBoardStore = defineStore('board', () => {
       await plansApi.moveOperation(item.id, body)
       outcome = { ok: true }
     } catch (err) {
-      if (err instanceof ApiError && err.status === 422) outcome = { ok: false, kind: 'refused', message: err.message, rule: (err.details as { rule?: string } | undefined)?.rule }
-      else if (err instanceof ApiError && err.status === 409) outcome = { ok: false, kind: 'stale', message: `Someone else changed “${item.name}” of ${item.jobBagNumber} a moment ago; the board now shows the latest plan.` }
+      if (err instanceof ApiError && err.status === 422)
+        outcome = { ok: false, kind: 'refused', message: err.message, rule: (err.details as { rule?: string } | undefined)?.rule }
+      else if (err instanceof ApiError && err.status === 409)
+        outcome = {
+          ok: false,
+          kind: 'stale',
+          message: `Someone else changed “${item.name}” of ${item.jobBagNumber} a moment ago; the board now shows the latest plan.`,
+        }
       else if (err instanceof ApiError && err.status === 400) {
         const [field, reason] = Object.entries(err.fields)[0] ?? []
         outcome = { ok: false, kind: 'refused', message: field ? `${field}: ${reason}` : err.message }
@@ -207,10 +226,54 @@ export const useBoardStore = defineStore('board', () => {
   const setPinned = (item: BoardItem, pinned: boolean) => move(item, { pinned, version: item.version })
 
   return {
-    timeZone, anchorDay, zoom, rowsBy, colourBy, workingHoursOnly, tab,
-    data, loading, error, viewPlanId, comparison, versions, weekLoad, loadLoading, run, progress, flashIds,
-    dataWindow, livePlan, pendingDraft, viewedPlan, itemsById, jobStates, moved, benchName, personName, running,
-    loadBoard, loadVersions, loadWeekLoad, refresh, reloadBars, knownVersion, loadComparison, setAnchor, step, today, showPlan, publish, discard,
-    startPlanner, stopPlanner, onProgress, onDrafted, onFailed, clearRun, move, setPinned,
+    timeZone,
+    anchorDay,
+    zoom,
+    rowsBy,
+    colourBy,
+    workingHoursOnly,
+    tab,
+    data,
+    loading,
+    error,
+    viewPlanId,
+    comparison,
+    versions,
+    weekLoad,
+    loadLoading,
+    run,
+    progress,
+    flashIds,
+    dataWindow,
+    livePlan,
+    pendingDraft,
+    viewedPlan,
+    itemsById,
+    jobStates,
+    moved,
+    benchName,
+    personName,
+    running,
+    loadBoard,
+    loadVersions,
+    loadWeekLoad,
+    refresh,
+    reloadBars,
+    knownVersion,
+    loadComparison,
+    setAnchor,
+    step,
+    today,
+    showPlan,
+    publish,
+    discard,
+    startPlanner,
+    stopPlanner,
+    onProgress,
+    onDrafted,
+    onFailed,
+    clearRun,
+    move,
+    setPinned,
   }
 })

@@ -11,7 +11,13 @@ export const useCustomersStore = defineStore('customers', () => {
   /** Matches over all pages. */
   const total = ref(0)
   /** Search, sort and page sent to the server. */
-  const query = reactive<Required<Omit<customersApi.ListParams, 'sort'>> & { sort: string | undefined }>({ q: '', page: 1, pageSize: 20, sort: 'name', order: 'asc' })
+  const query = reactive<Required<Omit<customersApi.ListParams, 'sort'>> & { sort: string | undefined }>({
+    q: '',
+    page: 1,
+    pageSize: 20,
+    sort: 'name',
+    order: 'asc',
+  })
   const { loading, error, track } = useLoading()
 
   /** Asks for the page of the current query; an answer to an older query that arrives late is not shown. */

@@ -1,7 +1,18 @@
 // Insights: the filter, the estimate-vs-actual table of each grouping, chart data, job costing, learned suggestions and the drill-down.
 import { defineStore } from 'pinia'
 import { reactive, ref } from 'vue'
-import type { BiasTrend, ComparisonTable, CostingTable, DrillDown, Grouping, InsightFilter, LearnedEstimates, ScatterPoint, StepChange, StepSuggestion } from '@shared/schemas/insights'
+import type {
+  BiasTrend,
+  ComparisonTable,
+  CostingTable,
+  DrillDown,
+  Grouping,
+  InsightFilter,
+  LearnedEstimates,
+  ScatterPoint,
+  StepChange,
+  StepSuggestion,
+} from '@shared/schemas/insights'
 import * as insightsApi from '@/api/insights'
 import { messageOf } from '@/composables/use-api-error'
 
@@ -35,8 +46,12 @@ export const useInsightsStore = defineStore('insights', () => {
       for (const k of Object.keys(tables) as Grouping[]) delete tables[k]
       const f = current()
       const [table, points, t, c, l, ch] = await Promise.all([
-        insightsApi.getComparison(groupBy.value, f), insightsApi.getScatter(f), insightsApi.getBiasTrend(f), insightsApi.getCosting(f),
-        insightsApi.getLearned(), insightsApi.getStepChanges(),
+        insightsApi.getComparison(groupBy.value, f),
+        insightsApi.getScatter(f),
+        insightsApi.getBiasTrend(f),
+        insightsApi.getCosting(f),
+        insightsApi.getLearned(),
+        insightsApi.getStepChanges(),
       ])
       tables[groupBy.value] = table
       scatter.value = points

@@ -4,7 +4,10 @@ import { computed, reactive, ref } from 'vue'
 import type { ConnectionState } from '@/realtime/socket'
 
 /** A screen's interest in invalidations: the keys it shows now (read at each invalidation) and what to do. */
-interface Watcher { keys: () => readonly string[]; fn: () => void }
+interface Watcher {
+  keys: () => readonly string[]
+  fn: () => void
+}
 
 export const useLiveStore = defineStore('live', () => {
   /** Set by the bridge (src/realtime/bridge.ts) from the one socket; 'offline' while signed out. */

@@ -20,14 +20,22 @@ export const useMetalStore = defineStore('metal', () => {
     alloysLoaded = true
     return alloys.value
   }
-  async function loadTolerances() { tolerances.value = await metalApi.listTolerances() }
-  async function loadStock() { stock.value = await metalApi.getStock() }
-  async function loadLots() { lots.value = await metalApi.listLots() }
+  async function loadTolerances() {
+    tolerances.value = await metalApi.listTolerances()
+  }
+  async function loadStock() {
+    stock.value = await metalApi.getStock()
+  }
+  async function loadLots() {
+    lots.value = await metalApi.listLots()
+  }
   async function loadLosses(groupBy: LossGrouping) {
     losses[groupBy] = await metalApi.getLosses(groupBy, { ...lossFilter })
     return losses[groupBy]!
   }
-  function clearLosses() { for (const k of Object.keys(losses) as LossGrouping[]) delete losses[k] }
+  function clearLosses() {
+    for (const k of Object.keys(losses) as LossGrouping[]) delete losses[k]
+  }
 
   return { alloys, tolerances, stock, lots, losses, lossFilter, loadAlloys, loadTolerances, loadStock, loadLots, loadLosses, clearLosses }
 })

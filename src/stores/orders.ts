@@ -15,7 +15,12 @@ export const useOrdersStore = defineStore('orders', () => {
   const total = ref(0)
   /** Search, status filter (statuses separated by commas, '' for all), sort and page sent to the server. */
   const query = reactive<{ q: string; status: string; page: number; pageSize: number; sort: string; order: 'asc' | 'desc' }>({
-    q: '', status: IN_WORKSHOP, page: 1, pageSize: 20, sort: 'due', order: 'asc',
+    q: '',
+    status: IN_WORKSHOP,
+    page: 1,
+    pageSize: 20,
+    sort: 'due',
+    order: 'asc',
   })
   const { loading, error, track } = useLoading()
 
@@ -38,7 +43,18 @@ export const useOrdersStore = defineStore('orders', () => {
   async function update(id: number, input: OrderUpdate) {
     const o = await ordersApi.updateOrder(id, input)
     const i = items.value.findIndex((x) => x.id === id)
-    if (i >= 0) items.value.splice(i, 1, { ...items.value[i]!, title: o.title, dueDate: o.dueDate, promisedDate: o.promisedDate, priority: o.priority, status: o.status, priceQuotedMinor: o.priceQuotedMinor, currency: o.currency, version: o.version })
+    if (i >= 0)
+      items.value.splice(i, 1, {
+        ...items.value[i]!,
+        title: o.title,
+        dueDate: o.dueDate,
+        promisedDate: o.promisedDate,
+        priority: o.priority,
+        status: o.status,
+        priceQuotedMinor: o.priceQuotedMinor,
+        currency: o.currency,
+        version: o.version,
+      })
     return o
   }
 

@@ -41,8 +41,7 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
     if (heard?.planId) {
       onDrafted(heard.planId, run.value.id)
       void afterDrafted?.(heard.planId, run.value.id)
-    }
-    else if (heard?.error !== undefined) onFailed({ runId: run.value.id, error: heard.error })
+    } else if (heard?.error !== undefined) onFailed({ runId: run.value.id, error: heard.error })
     early.clear()
     schedule()
     return run.value
@@ -62,7 +61,8 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
   function onProgress(p: RunProgress & { runId: string }) {
     if (run.value?.id !== p.runId || !active.value) return
     if (run.value.status === 'queued') run.value = { ...run.value, status: 'running' }
-    if (!progress.value || p.elapsedMs >= progress.value.elapsedMs) progress.value = { iteration: p.iteration, weightedTardiness: p.weightedTardiness, makespan: p.makespan, elapsedMs: p.elapsedMs }
+    if (!progress.value || p.elapsedMs >= progress.value.elapsedMs)
+      progress.value = { iteration: p.iteration, weightedTardiness: p.weightedTardiness, makespan: p.makespan, elapsedMs: p.elapsedMs }
   }
 
   /** plan:drafted: returns whether the draft is our run's (a draft without a run id while ours runs counts as ours). */
@@ -116,11 +116,15 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
   }
 
   // The socket going down starts the poll; coming back stops it and asks once for what progress was missed.
-  watch(() => live.connected, (connected, was) => {
-    if (!connected) return schedule()
-    cancelPoll()
-    if (!was && active.value) void fetchRun()
-  }, { flush: 'sync' })
+  watch(
+    () => live.connected,
+    (connected, was) => {
+      if (!connected) return schedule()
+      cancelPoll()
+      if (!was && active.value) void fetchRun()
+    },
+    { flush: 'sync' },
+  )
 
   function setAfterDrafted(fn: typeof afterDrafted) {
     afterDrafted = fn

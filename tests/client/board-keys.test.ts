@@ -4,9 +4,33 @@ import type { BoardData, BoardItem } from '@shared/schemas/board'
 import { actualSpan, actualSummary, barFor, keyMove, searchJobBags } from '@/components/board/board-vis'
 
 const item = (o: Partial<BoardItem> = {}): BoardItem => ({
-  id: 1, jobBagId: 10, jobBagNumber: 'MG26-0007-1', piece: 'Bezel ring', orderId: 5, orderNumber: 'MG26-0007', customerName: 'Bea Tamsworth', name: 'Set stone', kind: 'setting', kindName: 'Stone setting',
-  color: '#4f5fa8', hazards: [], outside: false, status: 'ready', benchId: 5, personId: 1, start: '2026-12-03T09:00:00.000Z', end: '2026-12-03T10:00:00.000Z',
-  pinned: false, version: 3, estimateMinutes: 150, requiredLevel: 2, reason: null, late: false, planned: null, actual: null, ...o,
+  id: 1,
+  jobBagId: 10,
+  jobBagNumber: 'MG26-0007-1',
+  piece: 'Bezel ring',
+  orderId: 5,
+  orderNumber: 'MG26-0007',
+  customerName: 'Bea Tamsworth',
+  name: 'Set stone',
+  kind: 'setting',
+  kindName: 'Stone setting',
+  color: '#4f5fa8',
+  hazards: [],
+  outside: false,
+  status: 'ready',
+  benchId: 5,
+  personId: 1,
+  start: '2026-12-03T09:00:00.000Z',
+  end: '2026-12-03T10:00:00.000Z',
+  pinned: false,
+  version: 3,
+  estimateMinutes: 150,
+  requiredLevel: 2,
+  reason: null,
+  late: false,
+  planned: null,
+  actual: null,
+  ...o,
 })
 const rows: Pick<BoardData, 'benches' | 'people'> = {
   benches: [
@@ -42,7 +66,9 @@ describe('moving the selected bar by keyboard', () => {
   it('when the bar is finished, running or outside work, then keys refuse without asking the server; other keys are not moves', () => {
     expect(keyMove(item({ status: 'done' }), 'ArrowRight', false, rows, 'bench')).toMatchObject({ refused: expect.stringMatching(/finished/) })
     expect(keyMove(item({ status: 'running' }), 'ArrowRight', false, rows, 'bench')).toMatchObject({ refused: expect.stringMatching(/being worked on/) })
-    expect(keyMove(item({ outside: true, benchId: null, personId: null }), 'ArrowUp', false, rows, 'bench')).toMatchObject({ refused: expect.stringMatching(/outside work/) })
+    expect(keyMove(item({ outside: true, benchId: null, personId: null }), 'ArrowUp', false, rows, 'bench')).toMatchObject({
+      refused: expect.stringMatching(/outside work/),
+    })
     expect(keyMove(item(), 'Enter', false, rows, 'bench')).toBeNull()
   })
 })
@@ -50,13 +76,32 @@ describe('moving the selected bar by keyboard', () => {
 describe('finding a job bag', () => {
   const data = {
     items: [item(), item({ id: 2 }), item({ id: 3, jobBagId: 11, jobBagNumber: 'MG26-0012-1', orderNumber: 'MG26-0012', customerName: 'Corin Oakhill' })],
-    jobs: [{ jobBagId: 12, number: 'MG26-0020-1', piece: 'Signet', orderNumber: 'MG26-0020', customerName: 'Bea Tamsworth', due: '2026-12-20', expectedCompletion: null, latenessMinutes: 0, lateWorkingMinutes: 0, state: 'unplanned' as const, reason: null }],
+    jobs: [
+      {
+        jobBagId: 12,
+        number: 'MG26-0020-1',
+        piece: 'Signet',
+        orderNumber: 'MG26-0020',
+        customerName: 'Bea Tamsworth',
+        due: '2026-12-20',
+        expectedCompletion: null,
+        latenessMinutes: 0,
+        lateWorkingMinutes: 0,
+        state: 'unplanned' as const,
+        reason: null,
+      },
+    ],
   }
   it('when part of a number is typed, then that job bag is found with its bars counted', () => {
-    expect(searchJobBags(data, '0012')).toEqual([{ jobBagId: 11, number: 'MG26-0012-1', piece: 'Bezel ring', customerName: 'Corin Oakhill', orderNumber: 'MG26-0012', bars: 1 }])
+    expect(searchJobBags(data, '0012')).toEqual([
+      { jobBagId: 11, number: 'MG26-0012-1', piece: 'Bezel ring', customerName: 'Corin Oakhill', orderNumber: 'MG26-0012', bars: 1 },
+    ])
   })
   it('when a customer name is typed in any case, then all their job bags are found, including ones without bars', () => {
-    expect(searchJobBags(data, 'bea TAMS').map((h) => [h.number, h.bars])).toEqual([['MG26-0007-1', 2], ['MG26-0020-1', 0]])
+    expect(searchJobBags(data, 'bea TAMS').map((h) => [h.number, h.bars])).toEqual([
+      ['MG26-0007-1', 2],
+      ['MG26-0020-1', 0],
+    ])
   })
   it('when nothing matches, then the list is empty', () => {
     expect(searchJobBags(data, 'zzz')).toEqual([])
@@ -73,7 +118,11 @@ describe('plan against what happened', () => {
   const tz = 'Europe/London'
   it('when a step is finished, then the line gives its finish and minutes worked against the estimate', () => {
     // 2 December 2026 is a Wednesday; London is on GMT in December, so 12:20Z reads 12:20.
-    const done = item({ status: 'done', estimateMinutes: 150, actual: { start: '2026-12-02T09:10:00.000Z', end: '2026-12-02T12:20:00.000Z', workedMinutes: 170, records: 2, fromRecords: true } })
+    const done = item({
+      status: 'done',
+      estimateMinutes: 150,
+      actual: { start: '2026-12-02T09:10:00.000Z', end: '2026-12-02T12:20:00.000Z', workedMinutes: 170, records: 2, fromRecords: true },
+    })
     expect(actualSummary(done, tz)).toBe('Finished Wed 2 Dec 12:20 · worked 2 h 50 min against 2 h 30 min estimated')
     expect(actualSpan(done, tz)).toBe('Wed 2 Dec 09:10–12:20')
     expect(barFor(done, { rowsBy: 'bench', colourBy: 'kind', canEdit: true })).toMatchObject({ editable: { updateTime: false, updateGroup: false } })

@@ -129,7 +129,7 @@ describe('catch-up after a reconnect', () => {
     expect(resync).toHaveBeenCalledTimes(1)
   })
 
-  it('when another instance\'s event overtakes one with a smaller number, then both are delivered once, without a resync', () => {
+  it("when another instance's event overtakes one with a smaller number, then both are delivered once, without a resync", () => {
     const s = new FakeSocket()
     const ch = new LiveChannel(s)
     const got: number[] = []
@@ -164,7 +164,11 @@ describe('debounced reload', () => {
   it('when events come in a burst, then the board reloads once 150 ms after the last', () => {
     const fn = vi.fn()
     const d = createDebounce(fn, 150, 1000)
-    d(); vi.advanceTimersByTime(100); d(); vi.advanceTimersByTime(100); d()
+    d()
+    vi.advanceTimersByTime(100)
+    d()
+    vi.advanceTimersByTime(100)
+    d()
     expect(fn).not.toHaveBeenCalled()
     vi.advanceTimersByTime(150)
     expect(fn).toHaveBeenCalledTimes(1)
@@ -173,7 +177,10 @@ describe('debounced reload', () => {
   it('when events never stop, then it still reloads at least once a second', () => {
     const fn = vi.fn()
     const d = createDebounce(fn, 150, 1000)
-    for (let t = 0; t < 1100; t += 100) { d(); vi.advanceTimersByTime(100) }
+    for (let t = 0; t < 1100; t += 100) {
+      d()
+      vi.advanceTimersByTime(100)
+    }
     expect(fn).toHaveBeenCalledTimes(1)
   })
 })

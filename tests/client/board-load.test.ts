@@ -4,7 +4,10 @@ import type { LoadRow } from '@shared/schemas/plan'
 import { bottlenecks, cellLabel, heatColour, hours, loadLevel, loadRatio, percent, weekTotal } from '@/components/board/load-heat'
 
 const row = (type: 'bench' | 'skill', id: number, name: string, cells: [string, string, number, number, number[]][]): LoadRow => ({
-  type, id, name, cells: cells.map(([day, week, plannedMinutes, availableMinutes, operationIds]) => ({ day, week, plannedMinutes, availableMinutes, operationIds })),
+  type,
+  id,
+  name,
+  cells: cells.map(([day, week, plannedMinutes, availableMinutes, operationIds]) => ({ day, week, plannedMinutes, availableMinutes, operationIds })),
 })
 
 describe('load cells', () => {
@@ -42,15 +45,26 @@ describe('load cells', () => {
 
 describe('weeks and bottlenecks', () => {
   const setting = row('skill', 6, 'Stone setting', [
-    ['2026-12-07', '2026-W50', 450, 465, [1, 2]], ['2026-12-08', '2026-W50', 465, 465, [2, 3]],
+    ['2026-12-07', '2026-W50', 450, 465, [1, 2]],
+    ['2026-12-08', '2026-W50', 465, 465, [2, 3]],
     ['2026-12-14', '2026-W51', 100, 465, [4]],
   ])
-  const polish = row('bench', 7, 'Polishing station', [['2026-12-07', '2026-W50', 200, 465, [5]], ['2026-12-08', '2026-W50', 100, 465, [6]]])
+  const polish = row('bench', 7, 'Polishing station', [
+    ['2026-12-07', '2026-W50', 200, 465, [5]],
+    ['2026-12-08', '2026-W50', 100, 465, [6]],
+  ])
   it('when a week is summed, then hours add up and operations are listed once', () => {
     expect(weekTotal(setting, '2026-W50')).toEqual({ plannedMinutes: 915, availableMinutes: 930, operationIds: [1, 2, 3] })
   })
   it('when rows pass the planning load in some week, then the fullest comes first with that week', () => {
-    const b = bottlenecks({ rows: [polish, setting], weeks: [{ week: '2026-W50', days: [] }, { week: '2026-W51', days: [] }], planningLoad: 0.85 })
+    const b = bottlenecks({
+      rows: [polish, setting],
+      weeks: [
+        { week: '2026-W50', days: [] },
+        { week: '2026-W51', days: [] },
+      ],
+      planningLoad: 0.85,
+    })
     expect(b).toHaveLength(1)
     expect(b[0]).toMatchObject({ week: '2026-W50' })
     expect(b[0]!.row.name).toBe('Stone setting')

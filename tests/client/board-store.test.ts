@@ -22,7 +22,10 @@ describe('moving a bar', () => {
   it('when the server accepts, then the drag is accepted before the board reloads', async () => {
     const order: string[] = []
     api.moveOperation.mockResolvedValue({ id: 9, version: 3 })
-    api.getBoard.mockImplementation(async () => { order.push('reload'); return emptyBoard })
+    api.getBoard.mockImplementation(async () => {
+      order.push('reload')
+      return emptyBoard
+    })
     const r = await useBoardStore().move(item, { benchId: 7, version: 2 }, (ok) => order.push(`settle:${ok}`))
     expect(r).toEqual({ ok: true })
     expect(order).toEqual(['settle:true', 'reload'])
@@ -30,10 +33,22 @@ describe('moving a bar', () => {
   })
 
   it('when the server refuses (422), then the bar goes back and the reason and rule are kept for the board', async () => {
-    api.moveOperation.mockRejectedValue(new ApiError({ status: 422, code: 'unprocessable', message: 'Setting bench A is not equipped for polishing (“Barrel and polish” of JB-0001).', details: { rule: 'bench capability' } }))
+    api.moveOperation.mockRejectedValue(
+      new ApiError({
+        status: 422,
+        code: 'unprocessable',
+        message: 'Setting bench A is not equipped for polishing (“Barrel and polish” of JB-0001).',
+        details: { rule: 'bench capability' },
+      }),
+    )
     const settle = vi.fn()
     const r = await useBoardStore().move(item, { benchId: 5, version: 2 }, settle)
-    expect(r).toEqual({ ok: false, kind: 'refused', message: 'Setting bench A is not equipped for polishing (“Barrel and polish” of JB-0001).', rule: 'bench capability' })
+    expect(r).toEqual({
+      ok: false,
+      kind: 'refused',
+      message: 'Setting bench A is not equipped for polishing (“Barrel and polish” of JB-0001).',
+      rule: 'bench capability',
+    })
     expect(settle).toHaveBeenCalledWith(false)
     expect(api.getBoard).not.toHaveBeenCalled()
   })
@@ -50,7 +65,17 @@ describe('moving a bar', () => {
 })
 
 describe('planner runs', () => {
-  const run = (status: PlanRun['status']): PlanRun => ({ id: 'run-1', status, startedAt: '2026-12-03T10:00:00.000Z', timeLimitSeconds: 10, progress: null, planId: null, error: null, note: null, stability: 'small-changes' })
+  const run = (status: PlanRun['status']): PlanRun => ({
+    id: 'run-1',
+    status,
+    startedAt: '2026-12-03T10:00:00.000Z',
+    timeLimitSeconds: 10,
+    progress: null,
+    planId: null,
+    error: null,
+    note: null,
+    stability: 'small-changes',
+  })
 
   it('when our run is still queued, then it counts as running; when it fails on whichever instance ran it, then it reads failed with the reason', () => {
     const store = useBoardStore()

@@ -2,18 +2,67 @@
 import { describe, expect, it } from 'vitest'
 import type { BoardData, BoardItem } from '@shared/schemas/board'
 import {
-  ORDER_TONES, OUTSIDE_GROUP, STATE_COLOURS, backgroundsFor, orderTone, barFor, barState, completionFromMakespan, contrast, dataWindowFor, dayStart, foldedStretches,
-  groupOf, groupsFor, inkOn, isDraggable, moveRequest, outsideWindow, parseInstant, shiftAnchor, visibleWindow,
+  ORDER_TONES,
+  OUTSIDE_GROUP,
+  STATE_COLOURS,
+  backgroundsFor,
+  orderTone,
+  barFor,
+  barState,
+  completionFromMakespan,
+  contrast,
+  dataWindowFor,
+  dayStart,
+  foldedStretches,
+  groupOf,
+  groupsFor,
+  inkOn,
+  isDraggable,
+  moveRequest,
+  outsideWindow,
+  parseInstant,
+  shiftAnchor,
+  visibleWindow,
 } from '@/components/board/board-vis'
 
 const makeItem = (o: Partial<BoardItem> = {}): BoardItem => ({
-  id: 1, jobBagId: 10, jobBagNumber: 'MG26-0001-1', piece: 'Test ring', orderId: 5, orderNumber: 'MG26-0001', customerName: 'Bea Tamsworth', name: 'Set stones', kind: 'setting', kindName: 'Stone setting',
-  color: '#4f5fa8', hazards: [], outside: false, status: 'ready', benchId: 5, personId: 1, start: '2026-12-03T09:00:00.000Z', end: '2026-12-03T10:00:00.000Z',
-  pinned: false, version: 3, estimateMinutes: 60, requiredLevel: 1, reason: null, late: false, planned: null, actual: null, ...o,
+  id: 1,
+  jobBagId: 10,
+  jobBagNumber: 'MG26-0001-1',
+  piece: 'Test ring',
+  orderId: 5,
+  orderNumber: 'MG26-0001',
+  customerName: 'Bea Tamsworth',
+  name: 'Set stones',
+  kind: 'setting',
+  kindName: 'Stone setting',
+  color: '#4f5fa8',
+  hazards: [],
+  outside: false,
+  status: 'ready',
+  benchId: 5,
+  personId: 1,
+  start: '2026-12-03T09:00:00.000Z',
+  end: '2026-12-03T10:00:00.000Z',
+  pinned: false,
+  version: 3,
+  estimateMinutes: 60,
+  requiredLevel: 1,
+  reason: null,
+  late: false,
+  planned: null,
+  actual: null,
+  ...o,
 })
 const data = (items: BoardItem[] = [makeItem()]): Pick<BoardData, 'benches' | 'people' | 'items'> => ({
-  benches: [{ id: 5, name: 'Setting bench A', kind: 'setting', kinds: ['setting'] }, { id: 7, name: 'Polishing station', kind: 'polishing', kinds: ['polishing'] }],
-  people: [{ id: 1, name: 'Ines Harrowby', skills: { setting: 3 } }, { id: 5, name: 'Ruth Calder', skills: { polishing: 2 } }],
+  benches: [
+    { id: 5, name: 'Setting bench A', kind: 'setting', kinds: ['setting'] },
+    { id: 7, name: 'Polishing station', kind: 'polishing', kinds: ['polishing'] },
+  ],
+  people: [
+    { id: 1, name: 'Ines Harrowby', skills: { setting: 3 } },
+    { id: 5, name: 'Ruth Calder', skills: { polishing: 2 } },
+  ],
   items,
 })
 const opts = { rowsBy: 'bench' as const, colourBy: 'kind' as const, canEdit: true }
@@ -91,7 +140,10 @@ describe('contrast of bar text', () => {
 describe('shading', () => {
   const bg = {
     window: { from: '2026-12-14', to: '2026-12-20', timeZone: 'Europe/London' },
-    nonWorking: [{ start: '2026-12-14T17:00:00.000Z', end: '2026-12-15T08:30:00.000Z' }, { start: '2026-12-15T12:30:00.000Z', end: '2026-12-15T13:15:00.000Z' }],
+    nonWorking: [
+      { start: '2026-12-14T17:00:00.000Z', end: '2026-12-15T08:30:00.000Z' },
+      { start: '2026-12-15T12:30:00.000Z', end: '2026-12-15T13:15:00.000Z' },
+    ],
     closures: [{ name: 'Workshop closed: stocktake', startsOn: '2026-12-19', endsOn: '2026-12-19' }],
     leave: [{ personId: 3, startsOn: '2026-12-14', endsOn: '2026-12-16', reason: 'Holiday' }],
     downtime: [{ benchId: 7, startsAt: '2026-12-11 08:30:00+00', endsAt: '2026-12-11 12:30:00+00', reason: 'Lathe service' }],
@@ -99,7 +151,11 @@ describe('shading', () => {
   it('when rows are by bench, then closed hours and closures span all rows and downtime sits on its bench', () => {
     const b = backgroundsFor(bg, 'bench')
     expect(b.filter((x) => x.className === 'board-bg-off')).toHaveLength(2)
-    expect(b.find((x) => x.className === 'board-bg-closure')).toMatchObject({ content: 'Workshop closed: stocktake', start: new Date('2026-12-19T00:00:00Z'), end: new Date('2026-12-20T00:00:00Z') })
+    expect(b.find((x) => x.className === 'board-bg-closure')).toMatchObject({
+      content: 'Workshop closed: stocktake',
+      start: new Date('2026-12-19T00:00:00Z'),
+      end: new Date('2026-12-20T00:00:00Z'),
+    })
     expect(b.find((x) => x.className === 'board-bg-down')).toMatchObject({ group: 'b:7', start: new Date('2026-12-11T08:30:00Z') })
     expect(b.some((x) => x.className === 'board-bg-leave')).toBe(false)
   })
@@ -147,7 +203,11 @@ describe('moves', () => {
     expect(moveRequest(makeItem(), { group: 'b:7', start: new Date('2026-12-03T09:00:00Z') }, 'bench')).toEqual({ version: 3, benchId: 7 })
   })
   it('when a bar is dropped later on a person row, then the request names the person and the new start', () => {
-    expect(moveRequest(makeItem(), { group: 'p:5', start: new Date('2026-12-03T11:00:00Z') }, 'person')).toEqual({ version: 3, personId: 5, start: '2026-12-03T11:00:00.000Z' })
+    expect(moveRequest(makeItem(), { group: 'p:5', start: new Date('2026-12-03T11:00:00Z') }, 'person')).toEqual({
+      version: 3,
+      personId: 5,
+      start: '2026-12-03T11:00:00.000Z',
+    })
   })
   it('when a bar is dropped on the outside row, then bench is cleared (the server refuses it with its reason)', () => {
     expect(moveRequest(makeItem(), { group: OUTSIDE_GROUP, start: new Date('2026-12-03T09:00:00Z') }, 'bench')).toEqual({ version: 3, benchId: null })

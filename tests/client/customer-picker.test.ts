@@ -34,7 +34,12 @@ describe('useCustomerPicker', () => {
   })
 
   it('when the search fails, then nothing is offered and the form carries on', async () => {
-    const picker = useCustomerPicker({ search: async () => { throw new Error('offline') }, create: async () => row(1, 'x') })
+    const picker = useCustomerPicker({
+      search: async () => {
+        throw new Error('offline')
+      },
+      create: async () => row(1, 'x'),
+    })
     await picker.find('a')
     expect(picker.options.value).toEqual([])
     expect(picker.finding.value).toBe(false)

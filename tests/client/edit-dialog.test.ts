@@ -6,9 +6,17 @@ import { ApiError } from '@/api/client'
 import { useEditDialog } from '@/composables/use-edit-dialog'
 
 /** The toasts on screen (Element Plus puts them in the page body). */
-const toasts = () => [...document.querySelectorAll('.el-message')].map((e) => ({ type: [...e.classList].find((c) => c.startsWith('el-message--'))?.slice('el-message--'.length), message: e.textContent?.trim() ?? '' }))
+const toasts = () =>
+  [...document.querySelectorAll('.el-message')].map((e) => ({
+    type: [...e.classList].find((c) => c.startsWith('el-message--'))?.slice('el-message--'.length),
+    message: e.textContent?.trim() ?? '',
+  }))
 
-interface Row { id: number; version: number; name: string }
+interface Row {
+  id: number
+  version: number
+  name: string
+}
 const input = z.object({ name: z.string().trim().min(1, 'is required') })
 const update = input.extend({ version: z.number().int() })
 
@@ -19,18 +27,34 @@ function dialog(answer: (body: unknown) => Promise<Row>) {
   const sent: unknown[] = []
   const saved: Row[] = []
   let staleCalls = 0
-  const d = effectScope().run(() => useEditDialog({
-    open: () => open.value,
-    row: () => row.value,
-    form: () => form,
-    fill: (r) => Object.assign(form, { name: r?.name ?? '' }),
-    create: { schema: input, save: (b) => { sent.push(b); return answer(b) } },
-    update: { schema: update, save: (_id, b) => { sent.push(b); return answer(b) } },
-    messages: { added: 'Thing added', saved: 'Thing saved' },
-    noun: 'thing',
-    stale: () => { staleCalls++ },
-    saved: (r) => void saved.push(r),
-  }))!
+  const d = effectScope().run(() =>
+    useEditDialog({
+      open: () => open.value,
+      row: () => row.value,
+      form: () => form,
+      fill: (r) => Object.assign(form, { name: r?.name ?? '' }),
+      create: {
+        schema: input,
+        save: (b) => {
+          sent.push(b)
+          return answer(b)
+        },
+      },
+      update: {
+        schema: update,
+        save: (_id, b) => {
+          sent.push(b)
+          return answer(b)
+        },
+      },
+      messages: { added: 'Thing added', saved: 'Thing saved' },
+      noun: 'thing',
+      stale: () => {
+        staleCalls++
+      },
+      saved: (r) => void saved.push(r),
+    }),
+  )!
   return { d, open, row, form, sent, saved, staleCalls: () => staleCalls }
 }
 
@@ -58,7 +82,9 @@ describe('useEditDialog', () => {
   })
 
   it('when the server refuses a field (400), then its reason goes under that field and nothing is handed on', async () => {
-    const t = dialog(async () => { throw new ApiError({ status: 400, code: 'validation', message: 'Check the form', fields: { name: 'is already taken' } }) })
+    const t = dialog(async () => {
+      throw new ApiError({ status: 400, code: 'validation', message: 'Check the form', fields: { name: 'is already taken' } })
+    })
     t.open.value = true
     await nextTick()
     t.form.name = 'Twin'
@@ -70,7 +96,9 @@ describe('useEditDialog', () => {
   })
 
   it('when the server says a value clashes with another row (409 naming the field), then the reason goes under that field and it is not taken for a stale edit', async () => {
-    const t = dialog(async () => { throw new ApiError({ status: 409, code: 'conflict', message: 'That name is taken', fields: { name: 'is already used by another thing' } }) })
+    const t = dialog(async () => {
+      throw new ApiError({ status: 409, code: 'conflict', message: 'That name is taken', fields: { name: 'is already used by another thing' } })
+    })
     t.open.value = true
     await nextTick()
     t.form.name = 'Twin'
@@ -81,7 +109,9 @@ describe('useEditDialog', () => {
   })
 
   it('when someone else saved the row first (409), then the dialog says so, asks for a reload and hands nothing on', async () => {
-    const t = dialog(async () => { throw new ApiError({ status: 409, code: 'conflict', message: 'Changed by someone else' }) })
+    const t = dialog(async () => {
+      throw new ApiError({ status: 409, code: 'conflict', message: 'Changed by someone else' })
+    })
     t.row.value = { id: 7, version: 3, name: 'Old' }
     t.open.value = true
     await nextTick()

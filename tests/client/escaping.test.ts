@@ -11,9 +11,32 @@ const IMG = '<img src=x onerror=alert(1)>'
 const SQL = "'; drop table orders; --"
 
 const item: BoardItem = {
-  id: 7, jobBagId: 3, jobBagNumber: 'WF-1042-1', piece: `${IMG} signet`, orderId: 2, orderNumber: `${SQL}`, customerName: `${SCRIPT} Ltd`, name: SCRIPT, kind: 'setting', kindName: 'Stone setting',
-  color: '#3f7f8c', hazards: [], outside: false, status: 'ready', benchId: 1, personId: 4, start: '2026-03-02T09:00:00Z', end: '2026-03-02T10:00:00Z',
-  pinned: false, version: 1, estimateMinutes: 60, requiredLevel: 1, reason: { kind: 'person', detail: `waiting for ${IMG}` }, late: false, planned: null, actual: null,
+  id: 7,
+  jobBagId: 3,
+  jobBagNumber: 'WF-1042-1',
+  piece: `${IMG} signet`,
+  orderId: 2,
+  orderNumber: `${SQL}`,
+  customerName: `${SCRIPT} Ltd`,
+  name: SCRIPT,
+  kind: 'setting',
+  kindName: 'Stone setting',
+  color: '#3f7f8c',
+  hazards: [],
+  outside: false,
+  status: 'ready',
+  benchId: 1,
+  personId: 4,
+  start: '2026-03-02T09:00:00Z',
+  end: '2026-03-02T10:00:00Z',
+  pinned: false,
+  version: 1,
+  estimateMinutes: 60,
+  requiredLevel: 1,
+  reason: { kind: 'person', detail: `waiting for ${IMG}` },
+  late: false,
+  planned: null,
+  actual: null,
 }
 const benchName = new Map([[1, `<b onmouseover=alert(1)>Setting bench A</b>`]])
 const personName = new Map([[4, `Ines ${SCRIPT}`]])
@@ -27,8 +50,11 @@ function expectInert(html: string, root: Element) {
 }
 
 describe('typed text on the board', () => {
-  it('when a bar\'s step, piece, reason, bench and person hold HTML, then the details panel shows them as text', () => {
-    const w = mount(BoardBarDetails, { props: { item, benchName, personName, timeZone: 'Europe/London', canEdit: true, pinning: false }, global: { plugins: [ElementPlus] } })
+  it("when a bar's step, piece, reason, bench and person hold HTML, then the details panel shows them as text", () => {
+    const w = mount(BoardBarDetails, {
+      props: { item, benchName, personName, timeZone: 'Europe/London', canEdit: true, pinning: false },
+      global: { plugins: [ElementPlus] },
+    })
     const text = w.text()
     expect(text).toContain(SCRIPT)
     expect(text).toContain(`${IMG} signet`)
@@ -39,7 +65,10 @@ describe('typed text on the board', () => {
   })
 
   it('when the same bar is hovered, then the tooltip shows the text literally as well', () => {
-    const w = mount(BoardBarTooltip, { props: { item, rect: new DOMRect(10, 10, 100, 20), benchName, personName, timeZone: 'Europe/London' }, global: { plugins: [ElementPlus] } })
+    const w = mount(BoardBarTooltip, {
+      props: { item, rect: new DOMRect(10, 10, 100, 20), benchName, personName, timeZone: 'Europe/London' },
+      global: { plugins: [ElementPlus] },
+    })
     expect(w.text()).toContain(SCRIPT)
     expect(w.text()).toContain(`${IMG} signet`)
     expectInert(w.html(), w.element)

@@ -12,17 +12,36 @@ export class FakeSocket implements SocketLike {
   /** What the client asked for with changes:since, and the ack to answer it. */
   asks: { seq: number; ack: Fn }[] = []
   io = {
-    on: (event: string, fn: Fn) => { this.managerHandlers.set(event, [...(this.managerHandlers.get(event) ?? []), fn]) },
+    on: (event: string, fn: Fn) => {
+      this.managerHandlers.set(event, [...(this.managerHandlers.get(event) ?? []), fn])
+    },
   }
-  on(event: string, fn: Fn) { this.handlers.set(event, [...(this.handlers.get(event) ?? []), fn]) }
+  on(event: string, fn: Fn) {
+    this.handlers.set(event, [...(this.handlers.get(event) ?? []), fn])
+  }
   off() {}
   emit(event: string, ...args: unknown[]) {
     if (event === 'changes:since') this.asks.push({ seq: args[0] as number, ack: args[1] as Fn })
   }
-  connect() { this.serverConnects() }
-  disconnect() { this.connected = false; this.fire('disconnect', 'io client disconnect') }
-  fire(event: string, ...args: unknown[]) { for (const fn of this.handlers.get(event) ?? []) fn(...args) }
-  fireManager(event: string, ...args: unknown[]) { for (const fn of this.managerHandlers.get(event) ?? []) fn(...args) }
-  serverConnects() { this.connected = true; this.fire('connect') }
-  drops() { this.connected = false; this.fire('disconnect', 'transport close') }
+  connect() {
+    this.serverConnects()
+  }
+  disconnect() {
+    this.connected = false
+    this.fire('disconnect', 'io client disconnect')
+  }
+  fire(event: string, ...args: unknown[]) {
+    for (const fn of this.handlers.get(event) ?? []) fn(...args)
+  }
+  fireManager(event: string, ...args: unknown[]) {
+    for (const fn of this.managerHandlers.get(event) ?? []) fn(...args)
+  }
+  serverConnects() {
+    this.connected = true
+    this.fire('connect')
+  }
+  drops() {
+    this.connected = false
+    this.fire('disconnect', 'transport close')
+  }
 }

@@ -6,7 +6,14 @@ import type { HistoryEntry } from '@shared/schemas/job-bag'
 import JobBagHistory from '@/components/jobbag/JobBagHistory.vue'
 
 const at = '2026-12-02T10:15:00.000Z'
-const entry = (action: string, details: Record<string, unknown>): HistoryEntry => ({ at, kind: 'audit', action, operationId: null, who: 'Ines Farrow', details })
+const entry = (action: string, details: Record<string, unknown>): HistoryEntry => ({
+  at,
+  kind: 'audit',
+  action,
+  operationId: null,
+  who: 'Ines Farrow',
+  details,
+})
 
 describe('JobBagHistory', () => {
   it('when stones are added, counted, corrected and handed back, then each line reads as a sentence naming the stones', () => {
@@ -15,7 +22,13 @@ describe('JobBagHistory', () => {
         operations: [],
         entries: [
           entry('add-stones', { count: 18, sizeMm: 1.3, shape: 'round', stone: 'diamond', role: 'pave' }),
-          entry('count-stones', { line: '18 × 1.3 mm round diamond', entries: [{ kind: 'set', count: 17 }, { kind: 'returned', count: 1 }] }),
+          entry('count-stones', {
+            line: '18 × 1.3 mm round diamond',
+            entries: [
+              { kind: 'set', count: 17 },
+              { kind: 'returned', count: 1 },
+            ],
+          }),
           entry('correct-stones', { line: '18 × 1.3 mm round diamond', kind: 'set', from: 17, to: 16, reason: 'one fell out at polishing' }),
           entry('hand-back-stones', { line: '1 × 6.5 mm round diamond', count: 1 }),
         ],

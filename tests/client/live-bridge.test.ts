@@ -5,7 +5,15 @@ import { createPinia, setActivePinia } from 'pinia'
 import type { BoardItem, PlanRun } from '@/api/plans'
 import { FakeSocket } from './fake-socket'
 
-const plans = vi.hoisted(() => ({ getBoard: vi.fn(), listPlans: vi.fn(), getLoad: vi.fn(), comparePlan: vi.fn(), startRun: vi.fn(), getRun: vi.fn(), stopRun: vi.fn() }))
+const plans = vi.hoisted(() => ({
+  getBoard: vi.fn(),
+  listPlans: vi.fn(),
+  getLoad: vi.fn(),
+  comparePlan: vi.fn(),
+  startRun: vi.fn(),
+  getRun: vi.fn(),
+  stopRun: vi.fn(),
+}))
 const bench = vi.hoisted(() => ({ myWork: vi.fn(), nextForMe: vi.fn() }))
 const benchesApi = vi.hoisted(() => ({ listBenches: vi.fn() }))
 vi.mock('@/api/plans', async () => ({ ...(await vi.importActual<object>('@/api/plans')), ...plans }))
@@ -22,8 +30,25 @@ const { useBenchesStore } = await import('@/stores/benches')
 const SELF = 'tab-self-0001'
 const OTHER = 'tab-other-002'
 const bar = (id: number, version: number) => ({ id, version, name: 'Polish', jobBagNumber: 'MG26-0001-1' }) as BoardItem
-const board = (items: BoardItem[]) => ({ window: { from: '2026-11-30', to: '2026-12-27', timeZone: 'Europe/London' }, items, jobs: [], benches: [], people: [] })
-const run = (status: PlanRun['status'], extra: Partial<PlanRun> = {}): PlanRun => ({ id: 'run-1', status, startedAt: '2026-12-03T10:00:00.000Z', timeLimitSeconds: 10, progress: null, planId: null, error: null, note: null, stability: 'small-changes', ...extra })
+const board = (items: BoardItem[]) => ({
+  window: { from: '2026-11-30', to: '2026-12-27', timeZone: 'Europe/London' },
+  items,
+  jobs: [],
+  benches: [],
+  people: [],
+})
+const run = (status: PlanRun['status'], extra: Partial<PlanRun> = {}): PlanRun => ({
+  id: 'run-1',
+  status,
+  startedAt: '2026-12-03T10:00:00.000Z',
+  timeLimitSeconds: 10,
+  progress: null,
+  planId: null,
+  error: null,
+  note: null,
+  stability: 'small-changes',
+  ...extra,
+})
 
 let socket: FakeSocket
 let stop: () => void
@@ -59,7 +84,9 @@ afterEach(() => {
   vi.useRealTimers()
 })
 
-const settle = async () => { await vi.advanceTimersByTimeAsync(10) }
+const settle = async () => {
+  await vi.advanceTimersByTimeAsync(10)
+}
 
 describe('routing by event', () => {
   it('when a bar changes from another tab, then the board window reloads once, the bench queue once, the job bag screen once, and nothing else reloads', async () => {
@@ -106,7 +133,7 @@ describe('routing by event', () => {
 })
 
 describe('own echo and versions', () => {
-  it('when the event is this tab\'s own echo, then the bench queue (which reloaded with its answer) is not reloaded again; another tab\'s is', async () => {
+  it("when the event is this tab's own echo, then the bench queue (which reloaded with its answer) is not reloaded again; another tab's is", async () => {
     socket.fire('operation:changed', { id: 41, version: 8, seq: 1, origin: SELF })
     await settle()
     expect(bench.myWork).not.toHaveBeenCalled()

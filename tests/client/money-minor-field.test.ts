@@ -4,7 +4,8 @@ import { mount } from '@vue/test-utils'
 import ElementPlus from 'element-plus'
 import MoneyMinorField from '@/components/money/MoneyMinorField.vue'
 
-const field = (props: Record<string, unknown>) => mount(MoneyMinorField, { props: { modelValue: null, currency: 'GBP', ...props }, global: { plugins: [ElementPlus] } })
+const field = (props: Record<string, unknown>) =>
+  mount(MoneyMinorField, { props: { modelValue: null, currency: 'GBP', ...props }, global: { plugins: [ElementPlus] } })
 const last = (w: ReturnType<typeof field>) => (w.emitted('update:modelValue') ?? []).at(-1)?.[0]
 
 describe('MoneyMinorField', () => {

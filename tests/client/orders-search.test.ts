@@ -9,7 +9,9 @@ const { useOrdersStore } = await import('@/stores/orders')
 /** A server answer the test releases by hand. */
 function deferred<T>() {
   let resolve!: (v: T) => void
-  const promise = new Promise<T>((r) => { resolve = r })
+  const promise = new Promise<T>((r) => {
+    resolve = r
+  })
   return { promise, resolve }
 }
 const page = (q: string, total: number) => ({ items: [{ id: total, number: `MG26-${q}`, title: q }], total })
@@ -20,8 +22,9 @@ beforeEach(() => {
 })
 
 describe('orders search', () => {
-  it('when the query changes while the first search is still out and the old answer arrives last, then the new query\'s page stays', async () => {
-    const first = deferred<ReturnType<typeof page>>(), second = deferred<ReturnType<typeof page>>()
+  it("when the query changes while the first search is still out and the old answer arrives last, then the new query's page stays", async () => {
+    const first = deferred<ReturnType<typeof page>>(),
+      second = deferred<ReturnType<typeof page>>()
     api.listOrders.mockReturnValueOnce(first.promise).mockReturnValueOnce(second.promise)
     const store = useOrdersStore()
     store.query.q = 'ring'
@@ -39,8 +42,9 @@ describe('orders search', () => {
     expect(store.loading).toBe(false)
   })
 
-  it('when the answers come back in order, then the last query\'s page is shown', async () => {
-    const first = deferred<ReturnType<typeof page>>(), second = deferred<ReturnType<typeof page>>()
+  it("when the answers come back in order, then the last query's page is shown", async () => {
+    const first = deferred<ReturnType<typeof page>>(),
+      second = deferred<ReturnType<typeof page>>()
     api.listOrders.mockReturnValueOnce(first.promise).mockReturnValueOnce(second.promise)
     const store = useOrdersStore()
     store.query.q = 'pendant'
@@ -61,7 +65,8 @@ describe('orders search', () => {
     api.listOrders.mockReturnValueOnce(only.promise)
     const store = useOrdersStore()
     store.query.q = 'brooch'
-    const a = store.load(), b = store.load()
+    const a = store.load(),
+      b = store.load()
     only.resolve(page('brooch', 2))
     await Promise.all([a, b])
     expect(api.listOrders).toHaveBeenCalledTimes(1)

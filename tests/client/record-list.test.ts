@@ -17,7 +17,10 @@ describe('record list', () => {
   })
 
   it('when a write answers, then its record replaces the one with its id, or is added when new, and byId follows', async () => {
-    const list = useRecordList(async (): Promise<Row[]> => [{ id: 1, name: 'Polishing' }, { id: 2, name: 'Soldering' }])
+    const list = useRecordList(async (): Promise<Row[]> => [
+      { id: 1, name: 'Polishing' },
+      { id: 2, name: 'Soldering' },
+    ])
     await list.load()
     list.put({ id: 2, name: 'Soldering and annealing' })
     list.put({ id: 7, name: 'Engraving' })
@@ -26,11 +29,19 @@ describe('record list', () => {
     expect(list.byId.value.get(7)?.name).toBe('Engraving')
   })
 
-  it('when a write is followed by a reload, then the answer is returned and the list is the server\'s new one', async () => {
+  it("when a write is followed by a reload, then the answer is returned and the list is the server's new one", async () => {
     let server: Row[] = [{ id: 1, name: 'B' }]
     const list = useRecordList(async () => server)
     await list.load()
-    const answer = await list.thenReload((async () => { server = [{ id: 2, name: 'A' }, { id: 1, name: 'B' }]; return { id: 2, name: 'A' } })())
+    const answer = await list.thenReload(
+      (async () => {
+        server = [
+          { id: 2, name: 'A' },
+          { id: 1, name: 'B' },
+        ]
+        return { id: 2, name: 'A' }
+      })(),
+    )
     expect(answer).toEqual({ id: 2, name: 'A' })
     expect(list.items.value.map((r) => r.id)).toEqual([2, 1])
   })

@@ -22,7 +22,10 @@ function makeRouter() {
 
 beforeEach(() => {
   setActivePinia(createPinia())
-  vi.stubGlobal('fetch', vi.fn(async () => new Response('{}', { status: 200 })))
+  vi.stubGlobal(
+    'fetch',
+    vi.fn(async () => new Response('{}', { status: 200 })),
+  )
 })
 
 // The first navigation loads the lazy screens (and Element Plus) through the transformer: allow it time.

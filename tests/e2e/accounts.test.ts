@@ -7,8 +7,12 @@ import { DEMO_PASSWORD, screenshot, signInPage, signInWith, useE2E } from '../se
 
 let fake: FakeSmtp
 let owner: Page
-beforeAll(async () => { fake = await startFakeSmtp() })
-afterAll(async () => { await fake?.close() })
+beforeAll(async () => {
+  fake = await startFakeSmtp()
+})
+afterAll(async () => {
+  await fake?.close()
+})
 const e2e = useE2E({ env: () => ({ SMTP_URL: fake.url }) })
 beforeAll(async () => {
   fake.useDb(e2e.db.db)
@@ -80,9 +84,13 @@ describe('bench station', () => {
     const [ines] = await q(`select p.id from people p join users u on u.id = p.user_id where u.email = 'setter@wrenfield.test'`)
     const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
     // A setting step made ready straight in the database (its predecessors marked done yesterday).
-    const [op] = await q(`select o.id, o.job_bag_id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
+    const [op] =
+      await q(`select o.id, o.job_bag_id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
       where k.code = 'setting' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`)
-    await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and id <> $2 and seq < (select seq from operations where id = $2)`, [op.job_bag_id, op.id])
+    await q(
+      `update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and id <> $2 and seq < (select seq from operations where id = $2)`,
+      [op.job_bag_id, op.id],
+    )
     await q(`update operations set status = 'ready' where id = $1`, [op.id])
 
     // The owner sets Ines's PIN on People & skills.
@@ -93,7 +101,13 @@ describe('bench station', () => {
     await box.getByRole('button', { name: 'Set PIN' }).click()
     await owner.getByText("Ines Harrowby's PIN is set").waitFor()
 
-    const context = await e2e.browser.newContext({ baseURL: e2e.url, viewport: { width: 1280, height: 800 }, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
+    const context = await e2e.browser.newContext({
+      baseURL: e2e.url,
+      viewport: { width: 1280, height: 800 },
+      locale: 'en-GB',
+      timezoneId: 'Europe/London',
+      hasTouch: true,
+    })
     try {
       const tablet = await context.newPage()
       await signInWith(tablet, 'manager@wrenfield.test', DEMO_PASSWORD)
@@ -144,7 +158,9 @@ describe('forgotten password', () => {
       await page.locator('[data-test=reset-submit]').click()
       const sent = page.locator('[data-test=reset-sent]')
       await sent.waitFor()
-      expect(await sent.textContent()).toMatch(/If nobody@nowhere\.test belongs to an account here, a link to choose a new password is on its way\. It works once, for 60 minutes\./)
+      expect(await sent.textContent()).toMatch(
+        /If nobody@nowhere\.test belongs to an account here, a link to choose a new password is on its way\. It works once, for 60 minutes\./,
+      )
       await screenshot(page, 'accounts-forgot-password')
     } finally {
       await context.close()

@@ -12,8 +12,11 @@ const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(
 const makeReady = (operationId: number) => makeStepReady(e2e, operationId)
 
 async function firstPending(kind: string, key?: string) {
-  const [op] = await q(`select o.id, o.job_bag_id, o.name from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
-    where k.code = $1 and ($2::text is null or o.key = $2) and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`, [kind, key ?? null])
+  const [op] = await q(
+    `select o.id, o.job_bag_id, o.name from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
+    where k.code = $1 and ($2::text is null or o.key = $2) and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`,
+    [kind, key ?? null],
+  )
   return op as { id: number; job_bag_id: number; name: string }
 }
 
@@ -21,10 +24,12 @@ async function tablet(email: string, viewport = TABLET_LANDSCAPE): Promise<{ con
   const context = await e2e.browser.newContext({ baseURL: e2e.url, viewport, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
   const page = await context.newPage()
   await signInWith(page, email, DEMO_PASSWORD)
-  await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 }).catch(async (err) => {
-    await screenshot(page, `bench-sign-in-failed-${email.split('@')[0]}`)
-    throw err
-  })
+  await page
+    .waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
+    .catch(async (err) => {
+      await screenshot(page, `bench-sign-in-failed-${email.split('@')[0]}`)
+      throw err
+    })
   return { context, page }
 }
 
@@ -65,13 +70,15 @@ describe('the bench tablet', () => {
     await mine.locator('[data-test=start]').click()
     // Setting carries no hazard; a hazardous step would open the caution dialog here (covered below).
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
-    await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Working'), op.id, { timeout: 10_000 })
+    await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Working'), op.id, {
+      timeout: 10_000,
+    })
     // What to set, on the running card: hand-worked from the bag's parameters set above (12 stones a piece × 2 pieces = 24, 1.3 mm, under 1.5 mm).
     const facts = page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=work-facts]`)
     await expect(facts.locator('[data-test=stone-count]').innerText()).resolves.toMatch(/Stones\s+24\s+12 a piece × 2 pieces/i)
     await expect(facts.locator('[data-test=stone-size]').innerText()).resolves.toMatch(/Stone size\s+1\.3 mm\s+under 1\.5 mm/i)
     const [{ estimate_minutes: planned }] = await q('select estimate_minutes from operations where id = $1', [op.id])
-    await expect(facts.locator('[data-test=planned-minutes]').innerText()).resolves.toMatch(new RegExp(`Planned\\s+${Math.round(planned)} min`, "i"))
+    await expect(facts.locator('[data-test=planned-minutes]').innerText()).resolves.toMatch(new RegExp(`Planned\\s+${Math.round(planned)} min`, 'i'))
     await screenshot(page, 'bench-03-running-landscape')
 
     await mine.locator('[data-test=pause]').click()
@@ -80,7 +87,9 @@ describe('the bench tablet', () => {
     await screenshot(page, 'bench-04-pause-dialog-landscape')
     await page.locator('[data-test=confirm-pause]').click()
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=paused]`).waitFor()
-    await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Paused'), op.id, { timeout: 10_000 })
+    await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Paused'), op.id, {
+      timeout: 10_000,
+    })
 
     await page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=resume]`).click()
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
@@ -93,7 +102,10 @@ describe('the bench tablet', () => {
     await screenshot(manager.page, 'bench-05-manager-job-bag-live')
 
     const records = await q('select end_reason, note from time_records where operation_id = $1 order by id', [op.id])
-    expect(records).toEqual([{ end_reason: 'end-of-day', note: '' }, { end_reason: 'finished', note: 'All stones tight, checked under the scope' }])
+    expect(records).toEqual([
+      { end_reason: 'end-of-day', note: '' },
+      { end_reason: 'finished', note: 'All stones tight, checked under the scope' },
+    ])
 
     // Portrait: the same screen stacks its two lists.
     await page.setViewportSize(TABLET_PORTRAIT)

@@ -21,7 +21,14 @@ afterAll(async () => {
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
 async function benchTablet(browser: Browser): Promise<Page> {
-  const context = await browser.newContext({ baseURL: e2e.url, viewport: TABLET, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true, permissions: ['camera'] })
+  const context = await browser.newContext({
+    baseURL: e2e.url,
+    viewport: TABLET,
+    locale: 'en-GB',
+    timezoneId: 'Europe/London',
+    hasTouch: true,
+    permissions: ['camera'],
+  })
   const page = await context.newPage()
   await signInWith(page, 'setter@wrenfield.test', DEMO_PASSWORD)
   await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
@@ -33,9 +40,12 @@ async function benchTablet(browser: Browser): Promise<Page> {
 /** A job bag whose next step is ready, so its page offers that step to the bench. */
 async function bagWithReadyStep(offset: number) {
   // The job bag page offers its first ready step in routing order (server/services/job-bags.ts: next = first 'ready').
-  const [op] = await q(`select * from (select distinct on (jb.number) o.id, o.job_bag_id, o.name, jb.number, k.outside from operations o join job_bags jb on jb.id = o.job_bag_id
+  const [op] = await q(
+    `select * from (select distinct on (jb.number) o.id, o.job_bag_id, o.name, jb.number, k.outside from operations o join job_bags jb on jb.id = o.job_bag_id
     join orders ord on ord.id = jb.order_id join operation_kinds k on k.id = o.kind_id where o.status = 'ready' and ord.status = 'open' and jb.status not in ('on-hold', 'cancelled') order by jb.number, o.seq) x
-    where not x.outside order by number offset $1 limit 1`, [offset])
+    where not x.outside order by number offset $1 limit 1`,
+    [offset],
+  )
   return op as { id: number; job_bag_id: number; name: string; number: string }
 }
 
@@ -50,15 +60,24 @@ describe('scanning a job ticket at the bench', () => {
     cameraBrowser = await launchChromium(['--use-fake-ui-for-media-stream', '--use-fake-device-for-media-stream', `--use-file-for-fake-video-capture=${video}`])
     const page = await benchTablet(cameraBrowser)
     const violations: string[] = []
-    page.on('console', (m) => { if (/Content Security Policy|Refused to/i.test(m.text())) violations.push(m.text()) })
+    page.on('console', (m) => {
+      if (/Content Security Policy|Refused to/i.test(m.text())) violations.push(m.text())
+    })
     page.on('pageerror', (e) => violations.push(String(e)))
 
     await page.locator('[data-test=scan]').click()
     await page.locator('[data-test=scan-dialog] video').waitFor()
-    await page.waitForURL((u) => u.pathname === `/job-bags/${op.job_bag_id}` && u.searchParams.get('from') === 'scan', { timeout: 20_000 }).catch(async (err) => {
-      await screenshot(page, 'bench-scan-failed', { fullPage: false })
-      throw new Error(`${(err as Error).message}\nwhat the scan dialog said: ${await page.locator('[data-test=scan-dialog]').textContent().catch(() => '?')}\nconsole: ${violations.join(' | ')}`)
-    })
+    await page
+      .waitForURL((u) => u.pathname === `/job-bags/${op.job_bag_id}` && u.searchParams.get('from') === 'scan', { timeout: 20_000 })
+      .catch(async (err) => {
+        await screenshot(page, 'bench-scan-failed', { fullPage: false })
+        throw new Error(
+          `${(err as Error).message}\nwhat the scan dialog said: ${await page
+            .locator('[data-test=scan-dialog]')
+            .textContent()
+            .catch(() => '?')}\nconsole: ${violations.join(' | ')}`,
+        )
+      })
     await page.locator('[data-test=next-step]').waitFor()
     await expect(page.locator('[data-test=next-step]').textContent()).resolves.toContain(op.name)
     await screenshot(page, 'bench-scan-01-opened-by-camera')

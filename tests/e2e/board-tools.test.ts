@@ -18,18 +18,34 @@ dayjs.extend(isoWeek)
 const TZ = 'Europe/London'
 const e2e = useE2E()
 
-interface Bar { id: number; jobBagId: number; jobBagNumber: string; name: string; status: string; outside: boolean; start: string; end: string; benchId: number | null; personId: number | null; version: number; customerName: string }
+interface Bar {
+  id: number
+  jobBagId: number
+  jobBagNumber: string
+  name: string
+  status: string
+  outside: boolean
+  start: string
+  end: string
+  benchId: number | null
+  personId: number | null
+  version: number
+  customerName: string
+}
 
 const rendered = (page: Page) => page.locator('[data-test=board-timeline][data-rendered=true]').waitFor({ timeout: 20_000 })
 
 /** A call through the page's own session (CSRF token from GET /api/session on writes). */
 async function call(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: any }> {
-  return page.evaluate(async ({ method, path, body }) => {
-    const headers: Record<string, string> = { 'content-type': 'application/json' }
-    if (method !== 'GET') headers['x-csrf-token'] = (await (await fetch('/api/session', { credentials: 'same-origin' })).json()).csrfToken
-    const r = await fetch(path, { method, credentials: 'same-origin', headers, body: body === undefined ? undefined : JSON.stringify(body) })
-    return { status: r.status, body: await r.json().catch(() => null) }
-  }, { method, path, body })
+  return page.evaluate(
+    async ({ method, path, body }) => {
+      const headers: Record<string, string> = { 'content-type': 'application/json' }
+      if (method !== 'GET') headers['x-csrf-token'] = (await (await fetch('/api/session', { credentials: 'same-origin' })).json()).csrfToken
+      const r = await fetch(path, { method, credentials: 'same-origin', headers, body: body === undefined ? undefined : JSON.stringify(body) })
+      return { status: r.status, body: await r.json().catch(() => null) }
+    },
+    { method, path, body },
+  )
 }
 
 const boxOf = barBox
@@ -38,7 +54,7 @@ const boxOf = barBox
 const hm = (min: number) => (min < 60 ? `${min} min` : min % 60 ? `${Math.floor(min / 60)} h ${min % 60} min` : `${min / 60} h`)
 const clock = (at: Date | string) => dayjs(at).tz(TZ).format('ddd D MMM HH:mm')
 
-describe('the manager\'s board tools', () => {
+describe("the manager's board tools", () => {
   it('when a step was finished, then it shows at its actual times; a job bag is found by number or customer; keys move a bar or are refused with the reason', async () => {
     const pool = e2e.db.pool
     const ctx = await e2e.newContext()
@@ -52,13 +68,17 @@ describe('the manager\'s board tools', () => {
     const weeksBack = dayjs().tz(TZ).startOf('isoWeek').isAfter(day) ? 1 : 0
     const at = (hhmm: string) => dayjs.tz(`${day.format('YYYY-MM-DD')} ${hhmm}`, TZ).toISOString()
     const db = e2e.db.db
-    const stepNow = async (id: number) => (await db.select({ planned_start: s.operations.plannedStart, version: s.operations.version }).from(s.operations).where(eq(s.operations.id, id)))[0]!
+    const stepNow = async (id: number) =>
+      (await db.select({ planned_start: s.operations.plannedStart, version: s.operations.version }).from(s.operations).where(eq(s.operations.id, id)))[0]!
     const op = await readyBenchStep(db)
     await db.insert(s.timeRecords).values([
       { operationId: op.id, personId: op.personId, benchId: op.benchId, startedAt: at('09:10'), endedAt: at('10:45'), endReason: 'end-of-day' },
       { operationId: op.id, personId: op.personId, benchId: op.benchId, startedAt: at('11:05'), endedAt: at('12:20'), endReason: 'finished' },
     ])
-    await db.update(s.operations).set({ status: 'done', finishedAt: at('12:20') }).where(eq(s.operations.id, op.id))
+    await db
+      .update(s.operations)
+      .set({ status: 'done', finishedAt: at('12:20') })
+      .where(eq(s.operations.id, op.id))
 
     // Plan and publish through the API, then open the board.
     const run = await call(manager, 'POST', '/api/plans/runs', { timeLimitSeconds: 2 })
@@ -68,7 +88,10 @@ describe('the manager\'s board tools', () => {
     expect((await call(manager, 'POST', `/api/plans/${planId}/publish`)).status).toBe(200)
     await manager.goto('/plan')
     await rendered(manager)
-    for (let i = 0; i < weeksBack; i++) { await manager.locator('[data-test=board-prev]').click(); await rendered(manager) }
+    for (let i = 0; i < weeksBack; i++) {
+      await manager.locator('[data-test=board-prev]').click()
+      await rendered(manager)
+    }
 
     // The finished bar: hatched, not draggable, at the times the database holds.
     const done = manager.locator(`.vis-item.board-bar[data-id="${op.id}"]`)
@@ -76,18 +99,29 @@ describe('the manager\'s board tools', () => {
     await expect.poll(async () => (await boxOf(manager, op.id)) !== null, { timeout: 20_000, interval: 250 }).toBe(true)
     await expect(done.getAttribute('class')).resolves.toMatch(/board-bar--done.*board-bar--fixed|board-bar--fixed.*board-bar--done/)
     // Raw SQL on purpose: the worked minutes reckoned by PostgreSQL's own interval arithmetic, apart from the app's code.
-    const { rows: [rec] } = await pool.query(`select min(started_at) as first, max(ended_at) as last, sum(extract(epoch from ended_at - started_at) / 60)::int as minutes from time_records where operation_id = $1`, [op.id])
+    const {
+      rows: [rec],
+    } = await pool.query(
+      `select min(started_at) as first, max(ended_at) as last, sum(extract(epoch from ended_at - started_at) / 60)::int as minutes from time_records where operation_id = $1`,
+      [op.id],
+    )
     // 95 + 75 = 170 min worked (hand-worked from the two records above); the database must agree.
     expect(rec.minutes).toBe(170)
     await done.hover()
     const tip = manager.locator('[data-test=bar-tooltip]')
     await tip.waitFor()
-    await expect(tip.locator('[data-test=bar-tip-actual]').textContent()).resolves.toBe(`Finished ${clock(rec.last)} · worked ${hm(rec.minutes)} against ${hm(Math.round(op.estimate))} estimated`)
-    await expect(tip.locator('[data-test=bar-tip-actual-span]').textContent()).resolves.toBe(`Actual: ${clock(rec.first)}–${dayjs(rec.last).tz(TZ).format('HH:mm')}`)
+    await expect(tip.locator('[data-test=bar-tip-actual]').textContent()).resolves.toBe(
+      `Finished ${clock(rec.last)} · worked ${hm(rec.minutes)} against ${hm(Math.round(op.estimate))} estimated`,
+    )
+    await expect(tip.locator('[data-test=bar-tip-actual-span]').textContent()).resolves.toBe(
+      `Actual: ${clock(rec.first)}–${dayjs(rec.last).tz(TZ).format('HH:mm')}`,
+    )
     await screenshot(manager, 'board-tools-01-finished-tooltip')
     await done.click()
     const details = manager.locator('[data-test=bar-details]')
-    await expect(details.locator('[data-test=bar-details-actual]').textContent()).resolves.toContain(`${clock(rec.first)}–${dayjs(rec.last).tz(TZ).format('HH:mm')}`)
+    await expect(details.locator('[data-test=bar-details-actual]').textContent()).resolves.toContain(
+      `${clock(rec.first)}–${dayjs(rec.last).tz(TZ).format('HH:mm')}`,
+    )
     await expect(details.locator('[data-test=bar-details-worked]').textContent()).resolves.toBe(`${hm(rec.minutes)} in 2 time records`)
     // Keys do not move finished work either.
     await manager.keyboard.press('ArrowRight')
@@ -95,10 +129,19 @@ describe('the manager\'s board tools', () => {
     await manager.locator('[data-test=board-refusal] .el-alert__close-btn').click()
     await manager.keyboard.press('Escape')
     await details.waitFor({ state: 'detached' })
-    for (let i = 0; i < weeksBack; i++) { await manager.locator('[data-test=board-next]').click(); await rendered(manager) }
+    for (let i = 0; i < weeksBack; i++) {
+      await manager.locator('[data-test=board-next]').click()
+      await rendered(manager)
+    }
 
     // Find a job bag by its number.
-    const board = (await call(manager, 'GET', `/api/board?from=${dayjs().tz(TZ).startOf('isoWeek').format('YYYY-MM-DD')}&to=${dayjs().tz(TZ).startOf('isoWeek').add(27, 'day').format('YYYY-MM-DD')}`)).body as { items: Bar[] }
+    const board = (
+      await call(
+        manager,
+        'GET',
+        `/api/board?from=${dayjs().tz(TZ).startOf('isoWeek').format('YYYY-MM-DD')}&to=${dayjs().tz(TZ).startOf('isoWeek').add(27, 'day').format('YYYY-MM-DD')}`,
+      )
+    ).body as { items: Bar[] }
     const open = board.items.filter((b) => b.status !== 'done')
     const bags = [...new Set(open.map((b) => b.jobBagId))]
     const first = open.find((b) => b.jobBagId === bags[0])!
@@ -114,16 +157,33 @@ describe('the manager\'s board tools', () => {
 
     // By its customer's name, read from the database: every hit is one of that customer's job bags.
     const other = open.find((b) => b.jobBagId === bags[bags.length - 1])!
-    const cust = (await db.select({ id: s.customers.id, name: s.customers.name }).from(s.customers).innerJoin(s.orders, eq(s.orders.customerId, s.customers.id)).innerJoin(s.jobBags, eq(s.jobBags.orderId, s.orders.id)).where(eq(s.jobBags.id, other.jobBagId)))[0]!
-    const theirs = await db.select({ id: s.jobBags.id }).from(s.jobBags).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).where(eq(s.orders.customerId, cust.id))
+    const cust = (
+      await db
+        .select({ id: s.customers.id, name: s.customers.name })
+        .from(s.customers)
+        .innerJoin(s.orders, eq(s.orders.customerId, s.customers.id))
+        .innerJoin(s.jobBags, eq(s.jobBags.orderId, s.orders.id))
+        .where(eq(s.jobBags.id, other.jobBagId))
+    )[0]!
+    const theirs = await db
+      .select({ id: s.jobBags.id })
+      .from(s.jobBags)
+      .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .where(eq(s.orders.customerId, cust.id))
     await search.fill(cust.name)
     const hits = manager.locator('[data-test=board-search-hit]')
     await hits.first().waitFor()
     const hitBags = await hits.evaluateAll((els) => els.map((e) => Number(e.getAttribute('data-job-bag'))))
-    expect(hitBags.every((id) => theirs.some((x: { id: number }) => x.id === id)), `hits ${hitBags} all of ${cust.name}`).toBe(true)
+    expect(
+      hitBags.every((id) => theirs.some((x: { id: number }) => x.id === id)),
+      `hits ${hitBags} all of ${cust.name}`,
+    ).toBe(true)
     expect(hitBags).toContain(other.jobBagId)
     await manager.locator(`[data-test=board-search-hit][data-job-bag="${other.jobBagId}"]`).click()
-    await manager.locator('[data-test=board-found]').filter({ hasText: `${other.jobBagNumber} · ${cust.name}` }).waitFor()
+    await manager
+      .locator('[data-test=board-found]')
+      .filter({ hasText: `${other.jobBagNumber} · ${cust.name}` })
+      .waitFor()
     await expect.poll(() => manager.locator(`.vis-item.board-bar--found[data-id="${other.id}"]`).count()).toBe(1)
     await screenshot(manager, 'board-tools-03-found-by-customer')
     await search.fill('Nobody Of That Name')
@@ -135,7 +195,21 @@ describe('the manager\'s board tools', () => {
     await rendered(manager)
 
     // Keyboard: select a bar (focus and Enter), → moves it 15 minutes later, through the server's checks.
-    const steps = await db.select({ id: s.operations.id, key: s.operations.key, after: s.operations.after, job_bag_id: s.operations.jobBagId, wait_after_minutes: s.operations.waitAfterMinutes }).from(s.operations).where(inArray(s.operations.id, open.map((b) => b.id)))
+    const steps = await db
+      .select({
+        id: s.operations.id,
+        key: s.operations.key,
+        after: s.operations.after,
+        job_bag_id: s.operations.jobBagId,
+        wait_after_minutes: s.operations.waitAfterMinutes,
+      })
+      .from(s.operations)
+      .where(
+        inArray(
+          s.operations.id,
+          open.map((b) => b.id),
+        ),
+      )
     const byId = new Map<number, any>(steps.map((x) => [x.id, x]))
     const successorOf = (b: Bar) => open.find((x) => x.jobBagId === b.jobBagId && byId.get(x.id)?.after.includes(byId.get(b.id)?.key))
     const inSpan = (iso: string) => {
@@ -161,7 +235,10 @@ describe('the manager\'s board tools', () => {
       await manager.keyboard.press('ArrowRight')
       const success = manager.locator('.el-message--success', { hasText: `of ${b.jobBagNumber} 15 min later` })
       await success.or(refusal).first().waitFor({ timeout: 10_000 })
-      if (await success.count()) { moved = { bar: b, before: new Date(row.planned_start!) }; break }
+      if (await success.count()) {
+        moved = { bar: b, before: new Date(row.planned_start!) }
+        break
+      }
       tried.push((await refusal.textContent()) ?? '')
       await refusal.locator('.el-alert__close-btn').click()
       await manager.keyboard.press('Escape')
@@ -177,12 +254,20 @@ describe('the manager\'s board tools', () => {
     // A key move that breaks a rule: Shift+← an hour earlier on a step whose predecessor is planned to end less than an hour
     // (plus its wait) before it starts (the server names the predecessor, or first a booking of the bench or person in the
     // way). Refused with the reason, and nothing changes in the database.
-    const fresh = (await call(manager, 'GET', `/api/board?from=${dayjs().tz(TZ).startOf('isoWeek').format('YYYY-MM-DD')}&to=${dayjs().tz(TZ).startOf('isoWeek').add(27, 'day').format('YYYY-MM-DD')}`)).body.items as Bar[]
-    const tight = fresh.filter((b) => !b.outside && b.status !== 'running' && b.status !== 'done' && Date.parse(b.start) - 3_600_000 > Date.now() + 600_000).flatMap((b) => {
-      const s = byId.get(b.id)
-      const pred = fresh.find((p) => p.jobBagId === b.jobBagId && p.status !== 'done' && s?.after.includes(byId.get(p.id)?.key))
-      return pred && Date.parse(pred.end) + byId.get(pred.id).wait_after_minutes * 60_000 > Date.parse(b.start) - 3_600_000 ? [{ b, pred }] : []
-    })
+    const fresh = (
+      await call(
+        manager,
+        'GET',
+        `/api/board?from=${dayjs().tz(TZ).startOf('isoWeek').format('YYYY-MM-DD')}&to=${dayjs().tz(TZ).startOf('isoWeek').add(27, 'day').format('YYYY-MM-DD')}`,
+      )
+    ).body.items as Bar[]
+    const tight = fresh
+      .filter((b) => !b.outside && b.status !== 'running' && b.status !== 'done' && Date.parse(b.start) - 3_600_000 > Date.now() + 600_000)
+      .flatMap((b) => {
+        const s = byId.get(b.id)
+        const pred = fresh.find((p) => p.jobBagId === b.jobBagId && p.status !== 'done' && s?.after.includes(byId.get(p.id)?.key))
+        return pred && Date.parse(pred.end) + byId.get(pred.id).wait_after_minutes * 60_000 > Date.parse(b.start) - 3_600_000 ? [{ b, pred }] : []
+      })
     let refused: { b: Bar; pred: Bar } | null = null
     for (const c of tight) {
       if (!(await boxOf(manager, c.b.id))) continue
@@ -196,7 +281,10 @@ describe('the manager\'s board tools', () => {
     await manager.keyboard.press('Shift+ArrowLeft')
     await refusal.waitFor({ timeout: 10_000 })
     // The reason is the server's own for that move (the same endpoint a drag uses): asked again here through the API.
-    const same = await call(manager, 'PATCH', `/api/board/operations/${refused!.b.id}`, { start: new Date(Date.parse(refused!.b.start) - 3_600_000).toISOString(), version: was.version })
+    const same = await call(manager, 'PATCH', `/api/board/operations/${refused!.b.id}`, {
+      start: new Date(Date.parse(refused!.b.start) - 3_600_000).toISOString(),
+      version: was.version,
+    })
     expect(same.status).toBe(422)
     expect(same.body.error).toMatch(/must wait for|is booked for/)
     await expect(refusal.textContent()).resolves.toBe(`Not moved: ${refused!.b.jobBagNumber} “${refused!.b.name}”${same.body.error}`)
@@ -207,7 +295,7 @@ describe('the manager\'s board tools', () => {
     await ctx.close()
   })
 
-  it('when the screen is 1024 pixels wide, then every role gets the icon rail and the board\'s timeline is at least 850 px wide; at 1025 the full side is back', async () => {
+  it("when the screen is 1024 pixels wide, then every role gets the icon rail and the board's timeline is at least 850 px wide; at 1025 the full side is back", async () => {
     for (const role of ['manager', 'owner', 'sales', 'bench'] as const) {
       const ctx = await e2e.newContext({ viewport: { width: 1024, height: 768 } })
       const page = await signInPage(ctx, role)

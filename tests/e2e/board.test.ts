@@ -5,7 +5,20 @@ import { barBox, screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
 
-interface Bar { id: number; kind: string; name: string; jobBagId: number; jobBagNumber: string; benchId: number | null; personId: number | null; start: string; end: string; status: string; outside: boolean; version: number }
+interface Bar {
+  id: number
+  kind: string
+  name: string
+  jobBagId: number
+  jobBagNumber: string
+  benchId: number | null
+  personId: number | null
+  start: string
+  end: string
+  status: string
+  outside: boolean
+  version: number
+}
 
 const rendered = (page: Page) => page.locator('[data-test=board-timeline][data-rendered=true]').waitFor({ timeout: 20_000 })
 
@@ -20,11 +33,19 @@ async function boardOf(page: Page): Promise<{ items: Bar[]; benches: { id: numbe
 
 /** A write through the page's session (CSRF token from GET /api/session). */
 async function patchAs(page: Page, path: string, body: unknown): Promise<{ status: number; body: any }> {
-  return page.evaluate(async ({ path, body }) => {
-    const { csrfToken } = await (await fetch('/api/session', { credentials: 'same-origin' })).json()
-    const r = await fetch(path, { method: 'PATCH', credentials: 'same-origin', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken }, body: JSON.stringify(body) })
-    return { status: r.status, body: await r.json() }
-  }, { path, body })
+  return page.evaluate(
+    async ({ path, body }) => {
+      const { csrfToken } = await (await fetch('/api/session', { credentials: 'same-origin' })).json()
+      const r = await fetch(path, {
+        method: 'PATCH',
+        credentials: 'same-origin',
+        headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken },
+        body: JSON.stringify(body),
+      })
+      return { status: r.status, body: await r.json() }
+    },
+    { path, body },
+  )
 }
 
 const boxOf = barBox
@@ -53,9 +74,15 @@ async function rowOfY(page: Page, y: number): Promise<string | null> {
 async function moveOneDayLater(manager: Page, sales: Page) {
   const tried: string[] = []
   for (let stepped = 0; stepped <= 3; stepped++) {
-    if (stepped > 0) { await sales.locator('[data-test=board-next]').click(); await rendered(sales) }
+    if (stepped > 0) {
+      await sales.locator('[data-test=board-next]').click()
+      await rendered(sales)
+    }
     const moved = await tryMovesInView(manager, sales, tried)
-    if (moved) { console.log(`[board] moved a bar after ${tried.length} refusals, ${stepped} week(s) on; first refusals: ${tried.slice(0, 6).join(" | ")}`); return { ...moved, stepped } }
+    if (moved) {
+      console.log(`[board] moved a bar after ${tried.length} refusals, ${stepped} week(s) on; first refusals: ${tried.slice(0, 6).join(' | ')}`)
+      return { ...moved, stepped }
+    }
   }
   throw new Error(`no step could move within the week on screen: ${tried.slice(0, 5).join(' | ')}`)
 }
@@ -76,8 +103,12 @@ async function tryMovesInView(manager: Page, sales: Page, tried: string[]) {
     // (the server still judges working time and routing order). Then a day or a few hours later or earlier.
     const t = (x: string) => new Date(x).getTime()
     const length = t(b.end) - t(b.start)
-    const sharing = board.items.filter((i) => i.id !== b.id && !i.outside && ((b.benchId !== null && i.benchId === b.benchId) || (b.personId !== null && i.personId === b.personId)))
-    const gaps = sharing.map((i) => t(i.end)).filter((at) => Math.abs(at - t(b.start)) >= 3_600_000 && !sharing.some((j) => t(j.start) < at + length && t(j.end) > at))
+    const sharing = board.items.filter(
+      (i) => i.id !== b.id && !i.outside && ((b.benchId !== null && i.benchId === b.benchId) || (b.personId !== null && i.personId === b.personId)),
+    )
+    const gaps = sharing
+      .map((i) => t(i.end))
+      .filter((at) => Math.abs(at - t(b.start)) >= 3_600_000 && !sharing.some((j) => t(j.start) < at + length && t(j.end) > at))
     const nudges = [24, 48, 26, 4, 6, 28, 50, 2, 72, 3, 8, 30, 1, -1, -2, -3, -4, -6, -24, -26].map((h) => t(b.start) + h * 3_600_000)
     // Steps with a successor only where the board shows room (a nudge would mostly run into the successor).
     for (const at of [...gaps.sort((x, y) => x - y), ...(lastOfBag.get(b.jobBagId)?.id === b.id ? nudges : [])]) {
@@ -91,8 +122,13 @@ async function tryMovesInView(manager: Page, sales: Page, tried: string[]) {
       const r = await patchAs(manager, `/api/board/operations/${b.id}`, { start: start.toISOString(), version: b.version })
       // Timed from the moment the save answered: what follows is the event, the debounce and the reload.
       // A drop in a break starts at the next working time: count only a move that really shifted the bar by an hour or more.
-      if (r.status === 200 && Math.abs(new Date(r.body.start).getTime() - new Date(b.start).getTime()) >= 3_600_000) return { bar: b, x: box.x, at: Date.now(), version: r.body.version as number }
-      if (r.status === 200) { b.version = r.body.version; b.start = r.body.start; continue }
+      if (r.status === 200 && Math.abs(new Date(r.body.start).getTime() - new Date(b.start).getTime()) >= 3_600_000)
+        return { bar: b, x: box.x, at: Date.now(), version: r.body.version as number }
+      if (r.status === 200) {
+        b.version = r.body.version
+        b.start = r.body.start
+        continue
+      }
       expect(r.status, JSON.stringify(r.body)).toBe(422)
       tried.push(r.body.error)
     }
@@ -116,7 +152,10 @@ describe('the planning board', () => {
     await manager.locator('[data-test=board-run]').click()
     await manager.locator('[data-test=plan-budget-2]').click()
     await manager.locator('[data-test=plan-start]').click()
-    await manager.locator('[data-test=plan-progress-lateness]').filter({ hasText: /^[\d,.]+$/ }).waitFor({ timeout: 10_000 })
+    await manager
+      .locator('[data-test=plan-progress-lateness]')
+      .filter({ hasText: /^[\d,.]+$/ })
+      .waitFor({ timeout: 10_000 })
     await screenshot(manager, 'board-02-planning')
     const banner = manager.locator('[data-test=draft-banner]')
     await banner.locator('[data-test=draft-moves]').waitFor({ timeout: 20_000 })
@@ -145,7 +184,9 @@ describe('the planning board', () => {
     const wall = Date.now() - t0
     const mark = await manager.evaluate(() => performance.getEntriesByName('board:first-render')[0]?.startTime ?? null)
     const bars = await manager.locator('.vis-item.board-bar').count()
-    console.log(`[board] time to first render with the demo plan: ${wall} ms wall clock (navigation → bars drawn), ${mark === null ? '?' : Math.round(mark)} ms after navigation start by the page's own mark; ${bars} bars on screen`)
+    console.log(
+      `[board] time to first render with the demo plan: ${wall} ms wall clock (navigation → bars drawn), ${mark === null ? '?' : Math.round(mark)} ms after navigation start by the page's own mark; ${bars} bars on screen`,
+    )
     expect(wall).toBeLessThan(5000)
     await screenshot(manager, 'board-04-published')
 
@@ -164,12 +205,18 @@ describe('the planning board', () => {
     const polishing = board.items.filter((i) => i.kind === 'polishing' && i.status !== 'running' && !i.outside && new Date(i.start).getTime() > later)
     const visible = async (): Promise<Bar[]> => {
       const out: Bar[] = []
-      for (const b of polishing) { const box = await boxOf(manager, b.id); if (box && box.width >= 8) out.push(b) }
+      for (const b of polishing) {
+        const box = await boxOf(manager, b.id)
+        if (box && box.width >= 8) out.push(b)
+      }
       return out
     }
     let onScreen = await visible()
     if (onScreen.length === 0) {
-      for (const page of [manager, sales]) { await page.locator('[data-test=board-next]').click(); await rendered(page) }
+      for (const page of [manager, sales]) {
+        await page.locator('[data-test=board-next]').click()
+        await rendered(page)
+      }
       onScreen = await visible()
     }
     expect(onScreen.length, 'a polishing bar visible this week or next').toBeGreaterThan(0)
@@ -206,10 +253,17 @@ describe('the planning board', () => {
     const framesSent: string[] = []
     // The reconnect may start on HTTP long-polling before upgrading: watch both.
     sales.on('websocket', (ws) => ws.on('framesent', (f) => framesSent.push(String(f.payload))))
-    sales.on('request', (r) => { if (r.url().includes('/socket.io/') && r.method() === 'POST') framesSent.push(r.postData() ?? '') })
-    await sales.evaluate(() => { (window as unknown as { sameDocument: boolean }).sameDocument = true })
+    sales.on('request', (r) => {
+      if (r.url().includes('/socket.io/') && r.method() === 'POST') framesSent.push(r.postData() ?? '')
+    })
+    await sales.evaluate(() => {
+      ;(window as unknown as { sameDocument: boolean }).sameDocument = true
+    })
     await salesCtx.setOffline(true)
-    await sales.locator('[data-test=board-connection][data-state=offline], [data-test=board-connection][data-state=reconnecting]').first().waitFor({ timeout: 10_000 })
+    await sales
+      .locator('[data-test=board-connection][data-state=offline], [data-test=board-connection][data-state=reconnecting]')
+      .first()
+      .waitFor({ timeout: 10_000 })
     await screenshot(sales, 'board-07-sales-offline')
     // Meanwhile the manager puts the moved bar back where it was: its old place is free, whatever the week's load.
     const movedX = (await boxOf(sales, first.bar.id))!.x
@@ -221,15 +275,25 @@ describe('the planning board', () => {
     expect((await boxOf(sales, second.bar.id))!.x).toBe(second.x)
     await salesCtx.setOffline(false)
     await sales.locator('[data-test=board-connection][data-state=connected]').waitFor({ timeout: 20_000 })
-    await sales.waitForFunction(({ id, x }) => {
-      const el = document.querySelector(`.vis-item.board-bar[data-id="${id}"]`)
-      // Any shift: a move of a few hours is a few pixels at week zoom with the nights folded away.
-      return !!el && Math.abs(el.getBoundingClientRect().x - x) > 2
-    }, { id: second.bar.id, x: second.x }, { timeout: 10_000 })
-    expect(framesSent.some((f) => f.includes('changes:since')), 'asked for the missed events').toBe(true)
+    await sales.waitForFunction(
+      ({ id, x }) => {
+        const el = document.querySelector(`.vis-item.board-bar[data-id="${id}"]`)
+        // Any shift: a move of a few hours is a few pixels at week zoom with the nights folded away.
+        return !!el && Math.abs(el.getBoundingClientRect().x - x) > 2
+      },
+      { id: second.bar.id, x: second.x },
+      { timeout: 10_000 },
+    )
+    expect(
+      framesSent.some((f) => f.includes('changes:since')),
+      'asked for the missed events',
+    ).toBe(true)
     await expect(sales.evaluate(() => (window as unknown as { sameDocument?: boolean }).sameDocument)).resolves.toBe(true)
     // Back to the week with the polishing bar, when sales stepped on to find room for the moves.
-    for (let i = 0; i < first.stepped; i++) { await sales.locator('[data-test=board-prev]').click(); await rendered(sales) }
+    for (let i = 0; i < first.stepped; i++) {
+      await sales.locator('[data-test=board-prev]').click()
+      await rendered(sales)
+    }
 
     // Details and pinning through the board.
     await manager.locator(`.vis-item.board-bar[data-id="${polish.id}"]`).click()
@@ -255,14 +319,20 @@ describe('the planning board', () => {
     const table = manager.locator('[data-test=load-table]')
     await table.waitFor()
     await expect(table.textContent()).resolves.toMatch(/Stone setting/)
-    const busy = table.locator('td.load__cell').filter({ hasText: /^[1-9][\d.]* \/ / }).first()
+    const busy = table
+      .locator('td.load__cell')
+      .filter({ hasText: /^[1-9][\d.]* \/ / })
+      .first()
     await busy.click()
     await manager.locator('[data-test=load-picked] li').first().waitFor()
     await screenshot(manager, 'board-10-load')
 
     // Versions: the published plan with who and when.
     await manager.locator('[data-test=board-versions]').click()
-    await manager.locator('[data-test=plan-version-1]').filter({ hasText: /Published by Sam Ottery/ }).waitFor()
+    await manager
+      .locator('[data-test=plan-version-1]')
+      .filter({ hasText: /Published by Sam Ottery/ })
+      .waitFor()
     await screenshot(manager, 'board-11-versions')
 
     await managerCtx.close()

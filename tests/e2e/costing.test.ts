@@ -20,10 +20,18 @@ describe('money typed on screen', () => {
     await input(dialog, 'order-price').fill('12.345')
     await expect.poll(() => dialog.locator('[data-test=order-price-problem]').innerText()).toBe('has at most 2 decimals in GBP')
     // 1250.50 read as digits: 1250 × 100 + 50 = 125,050 pence (1250.5 × 100 in floating point happens to be exact, 19.99 × 100 is not).
-    const answered = page.waitForResponse((r) => r.url().endsWith('/api/costing/estimate') && (r.request().postDataJSON() as { priceQuotedMinor: number }).priceQuotedMinor === 125_050, { timeout: 20_000 })
+    const answered = page.waitForResponse(
+      (r) => r.url().endsWith('/api/costing/estimate') && (r.request().postDataJSON() as { priceQuotedMinor: number }).priceQuotedMinor === 125_050,
+      { timeout: 20_000 },
+    )
     await input(dialog, 'order-price').fill('1250.50')
     const res = await answered
-    const est = await res.json() as { currency: string; priceMinor: number; suggestedPriceMinor: number; estimate: { cost: { totalMinor: number }; marginMinor: number; marginPct: number } }
+    const est = (await res.json()) as {
+      currency: string
+      priceMinor: number
+      suggestedPriceMinor: number
+      estimate: { cost: { totalMinor: number }; marginMinor: number; marginPct: number }
+    }
     expect(est).toMatchObject({ currency: 'GBP', priceMinor: 125_050 })
     // The server's minor units written as the browser's locale writes pounds (ECMA-402; GBP has 2 decimals, ISO 4217).
     const locale = await page.evaluate(() => navigator.language)
@@ -34,7 +42,7 @@ describe('money typed on screen', () => {
     expect(text).toContain(`Estimated cost ${gbp(est.estimate.cost.totalMinor)}`)
     expect(await dialog.locator('[data-test=order-suggested-price]').innerText()).toBe(gbp(est.suggestedPriceMinor))
     // The suggested price is a whole pound at the 40 % margin: ⌈cost ÷ 0.6⌉ up to the next 100 pence, worked here from the cost.
-    expect(est.suggestedPriceMinor).toBe(Math.ceil(Math.ceil(est.estimate.cost.totalMinor * 100 / 60) / 100) * 100)
+    expect(est.suggestedPriceMinor).toBe(Math.ceil(Math.ceil((est.estimate.cost.totalMinor * 100) / 60) / 100) * 100)
     await input(dialog, 'order-price').blur()
     expect(await input(dialog, 'order-price').inputValue()).toBe('1250.50')
     await screenshot(page, 'costing-order-dialog', { fullPage: false })
@@ -49,6 +57,8 @@ describe('money typed on screen', () => {
     await input(dialog, 'person-rate').fill('27.50')
     await screenshot(page, 'costing-person-rate', { fullPage: false })
     await dialog.locator('[data-test=person-save]').click()
-    await expect.poll(async () => (await q(`select hourly_rate_minor from people where name = 'Ada Penhallow'`))[0]?.hourly_rate_minor, { timeout: 15_000 }).toBe(2750)
+    await expect
+      .poll(async () => (await q(`select hourly_rate_minor from people where name = 'Ada Penhallow'`))[0]?.hourly_rate_minor, { timeout: 15_000 })
+      .toBe(2750)
   })
 })

@@ -10,9 +10,15 @@ describe('content security policy in the browser', () => {
     const context = await e2e.newContext()
     const page = await signInPage(context, role)
     const violations: string[] = []
-    page.on('console', (m) => { if (/Content Security Policy|Refused to (load|execute|create|connect|apply|frame)/i.test(m.text())) violations.push(`${page.url()}: ${m.text()}`) })
+    page.on('console', (m) => {
+      if (/Content Security Policy|Refused to (load|execute|create|connect|apply|frame)/i.test(m.text())) violations.push(`${page.url()}: ${m.text()}`)
+    })
     // securitypolicyviolation events catch what the console may word differently.
-    await context.addInitScript(() => document.addEventListener('securitypolicyviolation', (e) => console.error(`Content Security Policy violation: ${e.violatedDirective} ${e.blockedURI} at ${e.sourceFile}:${e.lineNumber}:${e.columnNumber}`)))
+    await context.addInitScript(() =>
+      document.addEventListener('securitypolicyviolation', (e) =>
+        console.error(`Content Security Policy violation: ${e.violatedDirective} ${e.blockedURI} at ${e.sourceFile}:${e.lineNumber}:${e.columnNumber}`),
+      ),
+    )
     const targets = await navTargets(page)
     expect(targets.length).toBeGreaterThan(0)
     for (const to of targets) {

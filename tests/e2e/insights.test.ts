@@ -5,16 +5,22 @@ import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
 let page: Page
-beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
+beforeAll(async () => {
+  page = await signInPage(await e2e.newContext(), 'owner')
+})
 
 /** Pixels of a chart's canvas that are not blank (transparent or white): proof something was drawn. */
-const inkedPixels = (p: Page, testId: string) => p.locator(`[data-test=${testId}] canvas`).first().evaluate((c: HTMLCanvasElement) => {
-  const ctx = c.getContext('2d')!
-  const { data } = ctx.getImageData(0, 0, c.width, c.height)
-  let n = 0
-  for (let i = 0; i < data.length; i += 4) if (data[i + 3]! > 0 && !(data[i]! > 245 && data[i + 1]! > 245 && data[i + 2]! > 245)) n++
-  return n
-})
+const inkedPixels = (p: Page, testId: string) =>
+  p
+    .locator(`[data-test=${testId}] canvas`)
+    .first()
+    .evaluate((c: HTMLCanvasElement) => {
+      const ctx = c.getContext('2d')!
+      const { data } = ctx.getImageData(0, 0, c.width, c.height)
+      let n = 0
+      for (let i = 0; i < data.length; i += 4) if (data[i + 3]! > 0 && !(data[i]! > 245 && data[i + 1]! > 245 && data[i + 2]! > 245)) n++
+      return n
+    })
 
 describe('insights as the owner', () => {
   it('when the owner opens insights, then the table by kind has rows and a total, and both charts are drawn', async () => {
@@ -41,18 +47,21 @@ describe('insights as the owner', () => {
     // The figures recomputed here from every finished operation's estimate and actual minutes (the chart data), independently of the table:
     // bias = (Σ actual − Σ estimate) ÷ Σ estimate; MAPE = mean over operations of |actual − estimate| ÷ actual.
     const points: { estimateMinutes: number; actualMinutes: number }[] = await (await page.request.get('/api/insights/scatter')).json()
-    const est = points.reduce((x, p) => x + p.estimateMinutes, 0), act = points.reduce((x, p) => x + p.actualMinutes, 0)
+    const est = points.reduce((x, p) => x + p.estimateMinutes, 0),
+      act = points.reduce((x, p) => x + p.actualMinutes, 0)
     const bias = ((act - est) / est) * 100
     const mape = (points.reduce((x, p) => x + Math.abs(p.actualMinutes - p.estimateMinutes) / p.actualMinutes, 0) / points.length) * 100
     expect(Math.abs(t.biasPct - bias)).toBeLessThan(0.06)
     expect(Math.abs(t.mapePct - mape)).toBeLessThan(0.06)
     const pct = (x: number) => `${Math.abs(x).toFixed(1)} %`
     expect(await words.locator('[data-test=insights-bias-words]').textContent()).toBe(
-      `Bias ${bias > 0 ? '+' : '-'}${pct(t.biasPct)}: taken together, the work took ${pct(t.biasPct)} ${act > est ? 'longer' : 'less time'} than estimated (${t.actualHours.toFixed(2)} h taken against ${t.estimateHours.toFixed(2)} h estimated, ${points.length} operations).`)
+      `Bias ${bias > 0 ? '+' : '-'}${pct(t.biasPct)}: taken together, the work took ${pct(t.biasPct)} ${act > est ? 'longer' : 'less time'} than estimated (${t.actualHours.toFixed(2)} h taken against ${t.estimateHours.toFixed(2)} h estimated, ${points.length} operations).`,
+    )
     expect(Math.abs(t.actualHours - act / 60)).toBeLessThanOrEqual(0.005)
     expect(Math.abs(t.estimateHours - est / 60)).toBeLessThanOrEqual(0.005)
     expect(await words.locator('[data-test=insights-mape-words]').textContent()).toBe(
-      `MAPE ${pct(t.mapePct)}: on average, an operation's estimate was ${pct(t.mapePct)} off the time it actually took, too high or too low.`)
+      `MAPE ${pct(t.mapePct)}: on average, an operation's estimate was ${pct(t.mapePct)} off the time it actually took, too high or too low.`,
+    )
     // The short column names explain themselves when pointed at.
     await page.locator('[data-test=insights-bias-head]').hover()
     await page.locator('.el-popper', { hasText: 'Plus means the work took longer than estimated' }).waitFor()
@@ -94,19 +103,32 @@ describe('insights as the owner', () => {
     const costing = page.locator('[data-test=insights-costing]')
     await costing.locator('.el-table__body .el-table__row').first().waitFor()
     // Every margin cell (at estimate and at actual, each row and the total) holds the figure and, in the same cell, the words of what it counts.
-    const cells = await costing.locator('.el-table__body td, .el-table__footer td').evaluateAll((tds) => tds
-      .filter((td) => /\d %/.test(td.textContent ?? '') && td.querySelector('[data-test=margin-caveat]') !== null || td.querySelector('[data-test=margin-at-estimate], [data-test=margin-at-actual]') !== null)
-      .map((td) => ({ hasFigure: /\d+\.\d %/.test(td.textContent ?? ''), caveat: td.querySelector('[data-test=margin-caveat]')?.textContent?.trim() ?? '' })))
+    const cells = await costing.locator('.el-table__body td, .el-table__footer td').evaluateAll((tds) =>
+      tds
+        .filter(
+          (td) =>
+            (/\d %/.test(td.textContent ?? '') && td.querySelector('[data-test=margin-caveat]') !== null) ||
+            td.querySelector('[data-test=margin-at-estimate], [data-test=margin-at-actual]') !== null,
+        )
+        .map((td) => ({
+          hasFigure: /\d+\.\d %/.test(td.textContent ?? ''),
+          caveat: td.querySelector('[data-test=margin-caveat]')?.textContent?.trim() ?? '',
+        })),
+    )
     const rows = await costing.locator('.el-table__body .el-table__row').count()
     expect(cells.length).toBe(2 * rows + 2)
     // The words come from a fixed list (shared/domain/costing.ts): all four counted, or only what is missing.
-    const words = /^(on some orders: )?((no metal weight estimated|no metal weighed yet|metal weighed on some pieces only|no alloy price for the day|base or mixed metal not priced|stone costs not entered|stones not counted back|outside work not costed|some outside work not costed)(; |$))+$/
+    const words =
+      /^(on some orders: )?((no metal weight estimated|no metal weighed yet|metal weighed on some pieces only|no alloy price for the day|base or mixed metal not priced|stone costs not entered|stones not counted back|outside work not costed|some outside work not costed)(; |$))+$/
     for (const c of cells) {
       expect(c.hasFigure).toBe(true)
       if (c.caveat !== 'metal, stones, outside work and labour counted') expect(c.caveat).toMatch(words)
     }
     // The first row on screen carries the server's figures for that order (its own API answer, formatted as the table does).
-    const api = await page.evaluate(async () => (await fetch('/api/insights/costing', { credentials: 'same-origin' })).json()) as { currency: string; rows: { orderNumber: string; costAtEstimateMinor: number; metalAtActualMinor: number; caveatAtEstimate: string; caveatAtActual: string }[] }
+    const api = (await page.evaluate(async () => (await fetch('/api/insights/costing', { credentials: 'same-origin' })).json())) as {
+      currency: string
+      rows: { orderNumber: string; costAtEstimateMinor: number; metalAtActualMinor: number; caveatAtEstimate: string; caveatAtActual: string }[]
+    }
     const first = page.locator('[data-test=insights-costing] .el-table__body .el-table__row').first()
     const number = (await first.locator('.mg-mono').textContent())!.trim()
     const row = api.rows.find((r) => r.orderNumber === number)!
@@ -125,7 +147,13 @@ describe('insights as the owner', () => {
   })
 
   it('when the owner accepts a suggested estimate, then the question and the confirmation name the step, not its key', async () => {
-    type S = { templateName: string; templateVersion: number; stepKey: string; stepName: string; suggested: { baseMinutes: number; perStoneMinutes: number; changePct: number } | null }
+    type S = {
+      templateName: string
+      templateVersion: number
+      stepKey: string
+      stepName: string
+      suggested: { baseMinutes: number; perStoneMinutes: number; changePct: number } | null
+    }
     const learned: { steps: S[] } = await (await page.request.get('/api/estimates/learned')).json()
     // The screen lists the largest changes first.
     const s = learned.steps.filter((x) => x.suggested).sort((a, b) => Math.abs(b.suggested!.changePct) - Math.abs(a.suggested!.changePct))[0]!
@@ -143,7 +171,9 @@ describe('insights as the owner', () => {
     await row.locator('[data-test=insights-accept]').click()
     const question = page.locator('.el-popconfirm', { hasText: 'New orders will use them' })
     await question.waitFor()
-    expect(await question.locator('.el-popconfirm__main').textContent()).toContain(`Write ${minutes} for “${s.stepName}” into “${s.templateName}”? New orders will use them.`)
+    expect(await question.locator('.el-popconfirm__main').textContent()).toContain(
+      `Write ${minutes} for “${s.stepName}” into “${s.templateName}”? New orders will use them.`,
+    )
     await screenshot(page, 'insights-accept-question')
     await question.getByRole('button', { name: 'Accept' }).click()
     const message = page.locator('.el-message', { hasText: s.stepName })

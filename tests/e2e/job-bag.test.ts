@@ -9,15 +9,22 @@ const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(
 describe('job bag page', () => {
   it('when the manager sends hallmarking out and books it back, then the page shows it away and then done; a new step joins the routing', async () => {
     // A job bag whose hallmarking is next: everything before it done yesterday.
-    const [hm] = await q(`select o.id, o.job_bag_id, o.after from operations o join operation_kinds k on k.id = o.kind_id join job_bags b on b.id = o.job_bag_id join orders r on r.id = b.order_id
+    const [hm] =
+      await q(`select o.id, o.job_bag_id, o.after from operations o join operation_kinds k on k.id = o.kind_id join job_bags b on b.id = o.job_bag_id join orders r on r.id = b.order_id
       where k.code = 'hallmarking' and r.status = 'open' order by r.due_date limit 1`)
-    await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and seq < (select seq from operations where id = $2)`, [hm.job_bag_id, hm.id])
+    await q(
+      `update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and seq < (select seq from operations where id = $2)`,
+      [hm.job_bag_id, hm.id],
+    )
     await q(`update operations set status = 'ready' where id = $1`, [hm.id])
     const page = await signInPage(await e2e.newContext(), 'manager')
     await page.goto(`/job-bags/${hm.job_bag_id}`)
     await page.locator(`[data-test=send-out-${hm.id}]`).click()
     await page.locator(`[data-test=book-back-${hm.id}]`).waitFor()
-    expect((await q('select status, planned_start from operations where id = $1', [hm.id]))[0]).toMatchObject({ status: 'running', planned_start: expect.any(Date) })
+    expect((await q('select status, planned_start from operations where id = $1', [hm.id]))[0]).toMatchObject({
+      status: 'running',
+      planned_start: expect.any(Date),
+    })
     await screenshot(page, 'job-bag-sent-out', { fullPage: false })
     await page.locator(`[data-test=book-back-${hm.id}]`).click()
     await page.locator(`[data-test=book-back-${hm.id}]`).waitFor({ state: 'detached' })
@@ -63,7 +70,9 @@ describe('job bag page', () => {
     const [after] = await q('select params, version from job_bags where id = $1', [bag.id])
     expect(after.params.ringSize).toEqual({ scale: 'uk', value: 'P' })
     expect(after.version).toBeGreaterThan(bag.version)
-    await expect.poll(() => page.locator('[data-test=history]').innerText(), { timeout: 15_000 }).toMatch(/changed the ring size UK N .* → UK P .* — measured again at the counter/)
+    await expect
+      .poll(() => page.locator('[data-test=history]').innerText(), { timeout: 15_000 })
+      .toMatch(/changed the ring size UK N .* → UK P .* — measured again at the counter/)
 
     // A 5 mm side stone measured 3.2 mm deep: carat ≈ 5² × 3.2 × 0.0061 = 0.488 → 0.49 ct (GemGate, "Diamond Weight Estimate for Round Brilliant Cut").
     const list = page.locator('[data-test=stone-list]')

@@ -25,7 +25,10 @@ afterAll(async () => {
 })
 
 /** The base64 SHA-256 of a certificate's public key (SPKI), the form Chromium's --ignore-certificate-errors-spki-list takes. */
-const spkiHash = (pem: string) => createHash('sha256').update(new X509Certificate(pem).publicKey.export({ type: 'spki', format: 'der' })).digest('base64')
+const spkiHash = (pem: string) =>
+  createHash('sha256')
+    .update(new X509Certificate(pem).publicKey.export({ type: 'spki', format: 'der' }))
+    .digest('base64')
 
 /** The QR code printed on a ticket PDF: the first image of page 1 (pdf-parse), read by jsqr. */
 async function ticketQr(pdf: Buffer): Promise<string | null> {
@@ -40,9 +43,14 @@ describe('a bench tablet over https', () => {
   it('when the tablet trusts the workshop certificate and its camera sees a printed ticket, then the job bag opens', async () => {
     expect(e2e.url).toMatch(/^https:\/\/127\.0\.0\.1:\d+$/)
     // A job bag whose next step is ready, so its page offers that step (server/services/job-bags.ts: next = first 'ready').
-    const ready = await e2e.db.db.select({ job_bag_id: s.operations.jobBagId, name: s.operations.name, number: s.jobBags.number, outside: s.operationKinds.outside })
-      .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
-      .where(and(eq(s.operations.status, 'ready'), eq(s.orders.status, 'open'), notInArray(s.jobBags.status, ['on-hold', 'cancelled']))).orderBy(asc(s.jobBags.number), asc(s.operations.seq))
+    const ready = await e2e.db.db
+      .select({ job_bag_id: s.operations.jobBagId, name: s.operations.name, number: s.jobBags.number, outside: s.operationKinds.outside })
+      .from(s.operations)
+      .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+      .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+      .where(and(eq(s.operations.status, 'ready'), eq(s.orders.status, 'open'), notInArray(s.jobBags.status, ['on-hold', 'cancelled'])))
+      .orderBy(asc(s.jobBags.number), asc(s.operations.seq))
     // Each bag's first ready step (its page offers that one), the first bag by number whose step is at a bench.
     const op = ready.filter((x, i) => ready.findIndex((y) => y.job_bag_id === x.job_bag_id) === i).find((x) => !x.outside)!
     expect(op, 'the seeded demo has a ready bench step').toBeTruthy()
@@ -51,11 +59,25 @@ describe('a bench tablet over https', () => {
     const serverCert = readFileSync(join(tlsDir, 'server.crt'), 'utf8')
     const video = join(dir, 'ticket.y4m')
     // The fake camera reads its file when the camera opens (after the ticket below is printed).
-    camera = await launchChromium(['--use-fake-ui-for-media-stream', '--use-fake-device-for-media-stream', `--use-file-for-fake-video-capture=${video}`, `--ignore-certificate-errors-spki-list=${spkiHash(serverCert)}`])
-    const context = await camera.newContext({ baseURL: e2e.url, viewport: { width: 1280, height: 800 }, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true, permissions: ['camera'] })
+    camera = await launchChromium([
+      '--use-fake-ui-for-media-stream',
+      '--use-fake-device-for-media-stream',
+      `--use-file-for-fake-video-capture=${video}`,
+      `--ignore-certificate-errors-spki-list=${spkiHash(serverCert)}`,
+    ])
+    const context = await camera.newContext({
+      baseURL: e2e.url,
+      viewport: { width: 1280, height: 800 },
+      locale: 'en-GB',
+      timezoneId: 'Europe/London',
+      hasTouch: true,
+      permissions: ['camera'],
+    })
     const page = await context.newPage()
     const problems: string[] = []
-    page.on('console', (m) => { if (/Content Security Policy|Refused to|Mixed Content/i.test(m.text())) problems.push(m.text()) })
+    page.on('console', (m) => {
+      if (/Content Security Policy|Refused to|Mixed Content/i.test(m.text())) problems.push(m.text())
+    })
     page.on('pageerror', (e) => problems.push(String(e)))
     await signInWith(page, 'setter@wrenfield.test', DEMO_PASSWORD)
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
@@ -88,10 +110,17 @@ describe('a bench tablet over https', () => {
     writeFileSync(video, qrVideo(link!, { width: 640, height: 480, modulePx: 8, frames: 10 }))
     await page.locator('[data-test=scan]').click()
     await page.locator('[data-test=scan-dialog] video').waitFor()
-    await page.waitForURL((u) => u.pathname === `/job-bags/${op!.job_bag_id}` && u.searchParams.get('from') === 'scan', { timeout: 30_000 }).catch(async (err) => {
-      await screenshot(page, 'lan-scan-failed', { fullPage: false })
-      throw new Error(`${(err as Error).message}\nwhat the scan dialog said: ${await page.locator('[data-test=scan-dialog]').textContent().catch(() => '?')}\nconsole: ${problems.join(' | ')}`)
-    })
+    await page
+      .waitForURL((u) => u.pathname === `/job-bags/${op!.job_bag_id}` && u.searchParams.get('from') === 'scan', { timeout: 30_000 })
+      .catch(async (err) => {
+        await screenshot(page, 'lan-scan-failed', { fullPage: false })
+        throw new Error(
+          `${(err as Error).message}\nwhat the scan dialog said: ${await page
+            .locator('[data-test=scan-dialog]')
+            .textContent()
+            .catch(() => '?')}\nconsole: ${problems.join(' | ')}`,
+        )
+      })
     await page.locator('[data-test=next-step]').waitFor()
     await expect(page.locator('[data-test=next-step]').textContent()).resolves.toContain(op!.name)
     expect(new URL(page.url()).protocol).toBe('https:')

@@ -7,7 +7,9 @@ import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
 let page: Page
-beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
+beforeAll(async () => {
+  page = await signInPage(await e2e.newContext(), 'owner')
+})
 
 const heading = (p: Page) => p.locator('.mg-page-head h1').textContent()
 
@@ -140,13 +142,21 @@ describe('master-data screens as the owner', () => {
 
   it('when an operation kind is renamed in its dialog, then the new name is stored with the next version and listed', async () => {
     await page.goto('/settings')
-    const before = (await e2e.db.db.select({ id: s.operationKinds.id, version: s.operationKinds.version }).from(s.operationKinds).where(eq(s.operationKinds.name, 'Etching & oxidising')))[0]!
+    const before = (
+      await e2e.db.db
+        .select({ id: s.operationKinds.id, version: s.operationKinds.version })
+        .from(s.operationKinds)
+        .where(eq(s.operationKinds.name, 'Etching & oxidising'))
+    )[0]!
     await page.getByText('Etching & oxidising').click()
     const dialog = page.locator('.el-dialog', { hasText: 'Operation kind: Etching & oxidising' })
     await dialog.locator('.el-form-item', { hasText: 'Name' }).first().locator('input').fill('Etching and oxidising')
     await dialog.getByRole('button', { name: 'Save' }).click()
     await page.locator('.el-table').getByText('Etching and oxidising').waitFor()
-    const [after] = await e2e.db.db.select({ name: s.operationKinds.name, version: s.operationKinds.version }).from(s.operationKinds).where(eq(s.operationKinds.id, before.id))
+    const [after] = await e2e.db.db
+      .select({ name: s.operationKinds.name, version: s.operationKinds.version })
+      .from(s.operationKinds)
+      .where(eq(s.operationKinds.id, before.id))
     expect(after).toEqual({ name: 'Etching and oxidising', version: before.version + 1 })
   })
 })

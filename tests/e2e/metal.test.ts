@@ -14,15 +14,24 @@ const g = (mg: number, digits = 2) => `${(mg / 1000).toLocaleString('en-GB', { m
 describe('metal on the bench and the owner’s metal screen', () => {
   it('when the setter weighs 13.50 g in a 1.50 g container out and 11.20 + 0.35 + 0.20 g back, then the card shows loss 0.25 g and 2.1 % and the ledger holds the milligrams', async () => {
     // A demo pavé pendant whose setting step nobody has started and whose job bag has no metal weighed yet.
-    const [op] = await q(`select o.id, o.job_bag_id, jb.params->>'metal' as metal from operations o join job_bags jb on jb.id = o.job_bag_id join routing_templates rt on rt.id = jb.template_id join orders ord on ord.id = jb.order_id
+    const [op] = await q(
+      `select o.id, o.job_bag_id, jb.params->>'metal' as metal from operations o join job_bags jb on jb.id = o.job_bag_id join routing_templates rt on rt.id = jb.template_id join orders ord on ord.id = jb.order_id
       where rt.code = 'pave-pendant' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' and jb.params->>'metal' = any($1::text[])
-        and not exists (select 1 from metal_movements m where m.job_bag_id = jb.id) order by jb.id limit 1`, [Object.keys(PIECE_METAL_ALLOY)])
+        and not exists (select 1 from metal_movements m where m.job_bag_id = jb.id) order by jb.id limit 1`,
+      [Object.keys(PIECE_METAL_ALLOY)],
+    )
     expect(op, 'a pavé pendant job bag with a metal and nothing weighed').toBeTruthy()
-    await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and key <> 'set' and key not in ('polish', 'inspect')`, [op.job_bag_id])
+    await q(
+      `update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and key <> 'set' and key not in ('polish', 'inspect')`,
+      [op.job_bag_id],
+    )
     await q(`update operations set status = 'ready' where id = $1`, [op.id])
     const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
     const want = PIECE_METAL_ALLOY[op.metal]!
-    const [alloy] = await q('select id, name from alloys where metal = $1 and fineness = $2 and active order by metal, fineness, name limit 1', [want.metal, want.fineness])
+    const [alloy] = await q('select id, name from alloys where metal = $1 and fineness = $2 and active order by metal, fineness, name limit 1', [
+      want.metal,
+      want.fineness,
+    ])
 
     const setter = await page('setter@wrenfield.test', { width: 1024, height: 768 })
     await setter.evaluate(() => localStorage.removeItem('millgrain.metal.containerG'))
@@ -34,7 +43,9 @@ describe('metal on the bench and the owner’s metal screen', () => {
     await w.waitFor()
     // The alloy comes preselected from the piece's metal.
     await expect.poll(() => w.locator('[data-test=weigh-alloy]').innerText(), { timeout: 10_000 }).toContain(alloy.name)
-    const keys = async (s: string) => { for (const c of s) await w.locator(`[data-test="key-${c === '.' ? 'dot' : c}"]`).click() }
+    const keys = async (s: string) => {
+      for (const c of s) await w.locator(`[data-test="key-${c === '.' ? 'dot' : c}"]`).click()
+    }
     // Large keys for one hand: at least 48 px (WCAG 2.5.5 target size 44 px; Material guidance 48 dp).
     expect((await w.locator('[data-test=key-5]').boundingBox())!.height).toBeGreaterThanOrEqual(48)
 
@@ -58,7 +69,11 @@ describe('metal on the bench and the owner’s metal screen', () => {
 
     // Back in the same container: 12.70 → the piece 11.20 g, 1.85 → scrap 0.35 g, 1.70 → lemel 0.20 g.
     await w.locator('[data-test=weigh-mode-back]').click()
-    for (const [form, reading, net] of [['piece', '12.70', '11.20'], ['scrap', '1.85', '0.35'], ['lemel', '1.70', '0.20']] as const) {
+    for (const [form, reading, net] of [
+      ['piece', '12.70', '11.20'],
+      ['scrap', '1.85', '0.35'],
+      ['lemel', '1.70', '0.20'],
+    ] as const) {
       await w.locator(`[data-test=form-${form}]`).click()
       await keys(reading)
       await expect.poll(() => w.locator('[data-test=weigh-net]').innerText()).toBe(`${net} g`)
@@ -96,17 +111,22 @@ describe('metal on the bench and the owner’s metal screen', () => {
     const owner = await page('owner@wrenfield.test', { width: 1440, height: 900 })
     await owner.goto('/metal')
     // Balance by the stock rule, summed here from the rows: bought + customers' own − issued + returned − to refining + from refining + adjusted − left with collected pieces.
-    const sums = await q(`select a.code, coalesce(sum(case m.kind when 'bought' then m.weight_mg when 'issued' then -m.weight_mg + case when m.source = 'customer' then m.weight_mg else 0 end
+    const sums =
+      await q(`select a.code, coalesce(sum(case m.kind when 'bought' then m.weight_mg when 'issued' then -m.weight_mg + case when m.source = 'customer' then m.weight_mg else 0 end
         when 'returned' then m.weight_mg when 'to-refining' then -m.weight_mg when 'from-refining' then m.weight_mg when 'adjusted' then m.weight_mg when 'delivered' then -m.weight_mg else 0 end), 0)::int as balance
       from alloys a left join metal_movements m on m.alloy_id = a.id group by a.code`)
     expect(sums.length).toBeGreaterThan(0)
     for (const s of sums) {
       await expect.poll(() => owner.locator(`[data-test="stock-balance-${s.code}"]`).innerText(), { timeout: 15_000 }).toBe(g(s.balance, 3))
     }
-    expect(sums.some((s) => s.balance !== 0), 'the demo holds some stock').toBe(true)
+    expect(
+      sums.some((s) => s.balance !== 0),
+      'the demo holds some stock',
+    ).toBe(true)
 
     // Loss by person: each person's issued and loss, summed here from the job-bag rows (corrections included).
-    const people = await q(`select p.name, sum(case when m.kind = 'issued' then m.weight_mg else 0 end)::int as issued, sum(case when m.kind = 'returned' then m.weight_mg else 0 end)::int as returned
+    const people =
+      await q(`select p.name, sum(case when m.kind = 'issued' then m.weight_mg else 0 end)::int as issued, sum(case when m.kind = 'returned' then m.weight_mg else 0 end)::int as returned
       from metal_movements m join people p on p.id = m.person_id where m.job_bag_id is not null and m.kind in ('issued', 'returned') group by p.name`)
     const table = owner.locator('[data-test=loss-table]')
     await table.locator('.el-table__row').first().waitFor({ timeout: 15_000 })

@@ -8,7 +8,8 @@ const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(
 
 /** A setting step made ready straight in the test database (its predecessors marked done yesterday). */
 async function readySettingStep() {
-  const [op] = await q(`select o.id, o.job_bag_id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
+  const [op] =
+    await q(`select o.id, o.job_bag_id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
     where k.code = 'setting' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`)
   await makeStepReady(e2e, op.id)
   return op as { id: number; job_bag_id: number }
@@ -40,7 +41,13 @@ describe('pause reasons', () => {
 
     const op = await readySettingStep()
     const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
-    const ctx = await e2e.browser.newContext({ baseURL: e2e.url, viewport: { width: 1280, height: 800 }, locale: 'en-GB', timezoneId: 'Europe/London', hasTouch: true })
+    const ctx = await e2e.browser.newContext({
+      baseURL: e2e.url,
+      viewport: { width: 1280, height: 800 },
+      locale: 'en-GB',
+      timezoneId: 'Europe/London',
+      hasTouch: true,
+    })
     const page = await ctx.newPage()
     await signInWith(page, 'setter@wrenfield.test', DEMO_PASSWORD)
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
@@ -53,7 +60,17 @@ describe('pause reasons', () => {
     await dialog.locator('[data-test=reason-waiting-for-a-casting]').waitFor()
     const offered = await dialog.locator('[role=radio]').allInnerTexts()
     // The default list (shared/domain/pause-reasons.ts) less the one switched off, plus the one added (before "Other").
-    expect(offered.map((s) => s.trim())).toEqual(['Break', 'Waiting for stones', 'Waiting for parts', 'Waiting for the customer’s approval', 'Tool or machine fault', 'Called away', 'End of day', 'Waiting for a casting', 'Other'])
+    expect(offered.map((s) => s.trim())).toEqual([
+      'Break',
+      'Waiting for stones',
+      'Waiting for parts',
+      'Waiting for the customer’s approval',
+      'Tool or machine fault',
+      'Called away',
+      'End of day',
+      'Waiting for a casting',
+      'Other',
+    ])
     await dialog.locator('[data-test=reason-waiting-for-a-casting]').click()
     await page.locator('[data-test=confirm-pause]').click()
     await dialog.locator('.el-form-item__error', { hasText: 'Waiting for a casting' }).waitFor()
@@ -67,7 +84,11 @@ describe('pause reasons', () => {
     // The job bag's history names the reason, not its code.
     await page.goto(`/job-bags/${op.job_bag_id}`)
     // Both the pause and the time record it closed: "… paused “Set pavé” (Waiting for a casting: …)" and "… worked N min on “Set pavé” — Waiting for a casting".
-    await page.waitForFunction(() => /worked \d+ min on “.+” — Waiting for a casting/.test(document.querySelector('[data-test=history]')?.textContent ?? ''), null, { timeout: 10_000 })
+    await page.waitForFunction(
+      () => /worked \d+ min on “.+” — Waiting for a casting/.test(document.querySelector('[data-test=history]')?.textContent ?? ''),
+      null,
+      { timeout: 10_000 },
+    )
     const history = await page.locator('[data-test=history]').innerText()
     expect(history).not.toContain('waiting-for-a-casting')
     await screenshot(page, 'pause-reasons-03-history')

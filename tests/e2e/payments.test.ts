@@ -10,8 +10,12 @@ import { screenshot, signInPage, useE2E } from '../setup/e2e'
 let fake: PayFake
 let customerContext: BrowserContext
 let page: Page
-beforeAll(async () => { fake = await startPayFake() })
-afterAll(async () => { await fake?.close() })
+beforeAll(async () => {
+  fake = await startPayFake()
+})
+afterAll(async () => {
+  await fake?.close()
+})
 const e2e = useE2E({ env: () => ({ PAY_FAKE_URL: fake.url }) })
 beforeAll(async () => {
   fake.webhookUrl = `${e2e.url}/api/payments/webhook`
@@ -40,7 +44,11 @@ describe('quotes and deposits', () => {
     await page.locator('.el-select-dropdown__item:visible').first().click()
     const answer = page.waitForResponse((r) => r.url().endsWith('/api/promise/check') && r.request().method() === 'POST', { timeout: 30_000 })
     await page.locator('[data-test=promise-check]').click()
-    const check = (await (await answer).json()) as { template: { id: number }; fixedPlan: { date: string }; range: { p50: { date: string }; p80: { date: string }; p95: { date: string } } | null }
+    const check = (await (await answer).json()) as {
+      template: { id: number }
+      fixedPlan: { date: string }
+      range: { p50: { date: string }; p80: { date: string }; p95: { date: string } } | null
+    }
     await page.locator('[data-test=promise-make-quote]').click()
     const dialog = page.locator('.el-dialog', { hasText: 'Quote from the promise check' })
     await dialog.waitFor()
@@ -54,11 +62,22 @@ describe('quotes and deposits', () => {
     await dialog.locator('[data-test=quote-save]').click()
     const done = page.locator('[data-test=promise-quoted]')
     await done.waitFor({ timeout: 15_000 })
-    const number = /Quote (\S+) kept as a draft/.exec(await done.textContent() ?? '')?.[1]
+    const number = /Quote (\S+) kept as a draft/.exec((await done.textContent()) ?? '')?.[1]
     expect(number).toMatch(/^Q\d\d-\d{4}$/)
     draftNumber = number!
-    const q = (await e2e.db.db.select({ status: s.quotes.status, priceMinor: s.quotes.priceMinor, depositMinor: s.quotes.depositMinor, promised: s.quotes.promisedDate, details: s.quotes.details, confidence: s.quotes.confidence })
-      .from(s.quotes).where(eq(s.quotes.number, number!)))[0]!
+    const q = (
+      await e2e.db.db
+        .select({
+          status: s.quotes.status,
+          priceMinor: s.quotes.priceMinor,
+          depositMinor: s.quotes.depositMinor,
+          promised: s.quotes.promisedDate,
+          details: s.quotes.details,
+          confidence: s.quotes.confidence,
+        })
+        .from(s.quotes)
+        .where(eq(s.quotes.number, number!))
+    )[0]!
     expect(q).toMatchObject({ status: 'drafted', priceMinor: 64000, depositMinor: 19200 })
     expect(q.details.templateId).toBe(check.template.id)
     // The suggested date: P80 when the range is later than the fixed plan, else the fixed-plan date (as the promise page keeps it).
@@ -72,11 +91,20 @@ describe('quotes and deposits', () => {
     // The demo workshop asks 30 % and prices in pounds; the figures below are worked for that.
     expect(ws).toEqual({ depositPct: 30, currency: 'GBP' })
     const db = e2e.db.db
-    const [o] = await db.select({ id: s.orders.id }).from(s.orders).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
-      .where(and(inArray(s.orders.status, ['open', 'quoted']), ne(s.customers.email, ''),
-        notExists(db.select({ id: s.payments.id }).from(s.payments).where(eq(s.payments.orderId, s.orders.id))),
-        notExists(db.select({ id: s.quotes.id }).from(s.quotes).where(eq(s.quotes.orderId, s.orders.id)))))
-      .orderBy(asc(s.orders.id)).limit(1)
+    const [o] = await db
+      .select({ id: s.orders.id })
+      .from(s.orders)
+      .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
+      .where(
+        and(
+          inArray(s.orders.status, ['open', 'quoted']),
+          ne(s.customers.email, ''),
+          notExists(db.select({ id: s.payments.id }).from(s.payments).where(eq(s.payments.orderId, s.orders.id))),
+          notExists(db.select({ id: s.quotes.id }).from(s.quotes).where(eq(s.quotes.orderId, s.orders.id))),
+        ),
+      )
+      .orderBy(asc(s.orders.id))
+      .limit(1)
     expect(o, 'an open order of a customer with an e-mail').toBeTruthy()
     orderId = o!.id
     await page.goto(`/orders/${orderId}`)
@@ -85,15 +113,26 @@ describe('quotes and deposits', () => {
     const dialog = page.locator('.el-dialog', { hasText: 'Quote for order' })
     await dialog.waitFor()
     await field(dialog, 'quote-price').fill('1250')
-    await dialog.locator('[data-test=quote-description] textarea, textarea[data-test=quote-description]').first().fill('Made to the customer’s sketch, hallmarked.')
+    await dialog
+      .locator('[data-test=quote-description] textarea, textarea[data-test=quote-description]')
+      .first()
+      .fill('Made to the customer’s sketch, hallmarked.')
     // 30 % of £1,250.00 is £375.00, leaving £875.00 at collection (hand-worked).
     await dialog.locator('[data-test=quote-deposit-amount]', { hasText: '£375.00 now, £875.00 at collection' }).waitFor()
     await dialog.locator('[data-test=quote-save-send]').click()
     await dialog.waitFor({ state: 'hidden', timeout: 20_000 })
-    const q = (await e2e.db.db.select({ id: s.quotes.id, number: s.quotes.number, status: s.quotes.status, priceMinor: s.quotes.priceMinor, depositMinor: s.quotes.depositMinor }).from(s.quotes).where(eq(s.quotes.orderId, orderId)))[0]!
+    const q = (
+      await e2e.db.db
+        .select({ id: s.quotes.id, number: s.quotes.number, status: s.quotes.status, priceMinor: s.quotes.priceMinor, depositMinor: s.quotes.depositMinor })
+        .from(s.quotes)
+        .where(eq(s.quotes.orderId, orderId))
+    )[0]!
     expect(q).toMatchObject({ status: 'sent', priceMinor: 125000, depositMinor: 37500 })
     quoteNumber = q.number
-    const links = await e2e.db.db.select({ url: s.paymentLinks.url, amountMinor: s.paymentLinks.amountMinor, status: s.paymentLinks.status, purpose: s.paymentLinks.purpose }).from(s.paymentLinks).where(eq(s.paymentLinks.quoteId, q.id))
+    const links = await e2e.db.db
+      .select({ url: s.paymentLinks.url, amountMinor: s.paymentLinks.amountMinor, status: s.paymentLinks.status, purpose: s.paymentLinks.purpose })
+      .from(s.paymentLinks)
+      .where(eq(s.paymentLinks.quoteId, q.id))
     expect(links).toHaveLength(1)
     expect(links[0]).toMatchObject({ amountMinor: 37500, status: 'open', purpose: 'deposit' })
     linkUrl = links[0]!.url
@@ -128,7 +167,9 @@ describe('quotes and deposits', () => {
 
   it('when the customer pays the deposit with the test card, then the sales screen turns the deposit paid live with £375.00', async () => {
     // A mark on the sales page that a reload would wipe.
-    await page.evaluate(() => { (window as unknown as { stillHere: boolean }).stillHere = true })
+    await page.evaluate(() => {
+      ;(window as unknown as { stillHere: boolean }).stillHere = true
+    })
     const customer = await customerContext.newPage()
     await customer.goto(linkUrl)
     await customer.locator('#card').fill(TEST_CARDS.paid)
@@ -136,8 +177,15 @@ describe('quotes and deposits', () => {
     await customer.locator('[data-test=paid]').waitFor({ timeout: 20_000 })
     await page.locator('[data-test=money-deposit-state]', { hasText: 'deposit paid' }).waitFor({ timeout: 30_000 })
     expect(await page.evaluate(() => (window as unknown as { stillHere?: boolean }).stillHere)).toBe(true)
-    const booked = await e2e.db.db.select({ amountMinor: s.payments.amountMinor, method: s.payments.method, providerRef: s.payments.providerRef }).from(s.payments).where(and(eq(s.payments.orderId, orderId), eq(s.payments.toRefund, false)))
-    const p = { paid: booked.reduce((a, x) => a + x.amountMinor, 0), n: booked.length, card: booked.every((x) => x.method === 'card' && x.providerRef !== null) }
+    const booked = await e2e.db.db
+      .select({ amountMinor: s.payments.amountMinor, method: s.payments.method, providerRef: s.payments.providerRef })
+      .from(s.payments)
+      .where(and(eq(s.payments.orderId, orderId), eq(s.payments.toRefund, false)))
+    const p = {
+      paid: booked.reduce((a, x) => a + x.amountMinor, 0),
+      n: booked.length,
+      card: booked.every((x) => x.method === 'card' && x.providerRef !== null),
+    }
     expect(p).toEqual({ paid: 37500, n: 1, card: true })
     // £1,250.00 − £375.00 = £875.00 still owed (hand-worked); the screen agrees with the database.
     await page.locator('[data-test=money-paid]', { hasText: gbp(p.paid) }).waitFor({ timeout: 10_000 })
@@ -160,7 +208,9 @@ describe('quotes and deposits', () => {
       await owner.locator('[data-test=money-week-received]').waitFor({ timeout: 15_000 })
       // The ISO week (Monday start) of now in the workshop's zone, by PostgreSQL.
       // Raw SQL on purpose: the week's takings reckoned by PostgreSQL's own ISO-week arithmetic, apart from the app's code.
-      const { rows: [w] } = await e2e.db.pool.query(`select coalesce(sum(amount_minor), 0)::int as received,
+      const {
+        rows: [w],
+      } = await e2e.db.pool.query(`select coalesce(sum(amount_minor), 0)::int as received,
           to_char(now() at time zone 'Europe/London', 'IYYY-"W"IW') as week from payments
         where amount_minor > 0 and not to_refund and date_trunc('week', received_at at time zone 'Europe/London') = date_trunc('week', now() at time zone 'Europe/London')`)
       expect(w.received).toBeGreaterThanOrEqual(37500)
@@ -169,7 +219,9 @@ describe('quotes and deposits', () => {
       expect(await text(owner, '[data-test=money-this-week]')).toContain(`${week} ${year}`)
       // Owed: each open order's price (its latest quote's, else the order's own price in pounds) less what is paid, never below nothing.
       // Raw SQL on purpose: what is owed reckoned in one SQL statement, apart from the app's code.
-      const { rows: [owed] } = await e2e.db.pool.query(`select coalesce(sum(greatest(0, price - paid)), 0)::int as owed from (
+      const {
+        rows: [owed],
+      } = await e2e.db.pool.query(`select coalesce(sum(greatest(0, price - paid)), 0)::int as owed from (
           select coalesce((select q.price_minor from quotes q where q.order_id = o.id and q.status in ('accepted', 'sent', 'drafted') order by q.status = 'accepted' desc, q.id desc limit 1), o.price_quoted_minor) as price,
             coalesce((select sum(p.amount_minor) from payments p where p.order_id = o.id and not p.to_refund), 0) as paid
           from orders o where o.status not in ('collected', 'cancelled')) t`)
@@ -185,7 +237,9 @@ describe('quotes and deposits', () => {
       await rules.locator('[data-test=settings-no-metal]').click()
       await rules.locator('[data-test=settings-money-save]').click()
       await owner.getByText('Quote and deposit rules saved').waitFor()
-      const [ws] = await e2e.db.db.select({ depositPct: s.workshops.depositPct, quoteValidDays: s.workshops.quoteValidDays, noMetalBeforeDeposit: s.workshops.noMetalBeforeDeposit }).from(s.workshops)
+      const [ws] = await e2e.db.db
+        .select({ depositPct: s.workshops.depositPct, quoteValidDays: s.workshops.quoteValidDays, noMetalBeforeDeposit: s.workshops.noMetalBeforeDeposit })
+        .from(s.workshops)
       expect(ws).toEqual({ depositPct: 40, quoteValidDays: 21, noMetalBeforeDeposit: true })
       await rules.scrollIntoViewIfNeeded()
       await screenshot(owner, 'payments-owner-settings', { fullPage: false })
@@ -223,7 +277,10 @@ describe('quotes and deposits', () => {
       // Neither the quotes screen nor the money API is open to the bench.
       await bench.goto('/quotes')
       await bench.locator('[data-test=not-allowed]').waitFor()
-      const statuses = await bench.evaluate(async (id) => Promise.all([`/api/quotes`, `/api/orders/${id}/money`].map(async (u) => (await fetch(u)).status)), orderId)
+      const statuses = await bench.evaluate(
+        async (id) => Promise.all([`/api/quotes`, `/api/orders/${id}/money`].map(async (u) => (await fetch(u)).status)),
+        orderId,
+      )
       expect(statuses).toEqual([403, 403])
       // And the sales user sees the same bag with its money.
       await page.goto(`/job-bags/${b!.id}`)
@@ -273,9 +330,16 @@ describe('quotes and deposits', () => {
     await field(dialog, 'payment-note').fill('Paid at collection')
     await dialog.locator('[data-test=payment-save]').click()
     await page.locator('[data-test=money-owed]', { hasText: '£0.00' }).waitFor({ timeout: 15_000 })
-    const rows = await e2e.db.db.select({ method: s.payments.method, purpose: s.payments.purpose, amountMinor: s.payments.amountMinor, role: s.users.role, name: s.users.name })
-      .from(s.payments).leftJoin(s.users, eq(s.users.id, s.payments.recordedBy)).where(eq(s.payments.orderId, orderId)).orderBy(asc(s.payments.id))
-    expect(rows.map((r) => [r.method, r.purpose, r.amountMinor])).toEqual([['card', 'deposit', 37500], ['cash', 'balance', 87500]])
+    const rows = await e2e.db.db
+      .select({ method: s.payments.method, purpose: s.payments.purpose, amountMinor: s.payments.amountMinor, role: s.users.role, name: s.users.name })
+      .from(s.payments)
+      .leftJoin(s.users, eq(s.users.id, s.payments.recordedBy))
+      .where(eq(s.payments.orderId, orderId))
+      .orderBy(asc(s.payments.id))
+    expect(rows.map((r) => [r.method, r.purpose, r.amountMinor])).toEqual([
+      ['card', 'deposit', 37500],
+      ['cash', 'balance', 87500],
+    ])
     expect(rows[1]!.role).toBe('sales')
     expect(await text(page, '[data-test=money-paid]')).toBe('£1,250.00')
     expect(await text(page, '[data-test=money-payments]')).toContain(rows[1]!.name!)

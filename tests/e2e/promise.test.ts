@@ -10,10 +10,15 @@ import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
 let page: Page
-beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'sales') })
+beforeAll(async () => {
+  page = await signInPage(await e2e.newContext(), 'sales')
+})
 afterAll(async () => {
   // The server stores uploads in the default directory; remove what this test added.
-  const rows = await e2e.db.db.select({ storedName: s.files.storedName, thumbnailName: s.files.thumbnailName }).from(s.files).catch(() => [] as { storedName: string; thumbnailName: string | null }[])
+  const rows = await e2e.db.db
+    .select({ storedName: s.files.storedName, thumbnailName: s.files.thumbnailName })
+    .from(s.files)
+    .catch(() => [] as { storedName: string; thumbnailName: string | null }[])
   for (const r of rows) for (const n of [r.storedName, r.thumbnailName]) if (n) rmSync(resolve('.data/uploads', basename(n)), { force: true })
 })
 
@@ -35,12 +40,31 @@ function screenDay(text: string): string {
 }
 /** The workshop's (Europe/London) calendar date and "ddd D MMM YYYY, HH:mm" of a moment, by Intl (ICU), apart from the app's dayjs. */
 function london(iso: string) {
-  const parts = Object.fromEntries(new Intl.DateTimeFormat('en-GB', { timeZone: 'Europe/London', weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' })
-    .formatToParts(new Date(iso)).map((x) => [x.type, x.value]))
+  const parts = Object.fromEntries(
+    new Intl.DateTimeFormat('en-GB', {
+      timeZone: 'Europe/London',
+      weekday: 'short',
+      day: 'numeric',
+      month: 'short',
+      year: 'numeric',
+      hour: '2-digit',
+      minute: '2-digit',
+      hourCycle: 'h23',
+    })
+      .formatToParts(new Date(iso))
+      .map((x) => [x.type, x.value]),
+  )
   const month = String(MONTHS.indexOf(parts.month!) + 1).padStart(2, '0')
-  return { date: `${parts.year}-${month}-${parts.day!.padStart(2, '0')}`, text: `${parts.weekday} ${parts.day} ${parts.month} ${parts.year}, ${parts.hour}:${parts.minute}` }
+  return {
+    date: `${parts.year}-${month}-${parts.day!.padStart(2, '0')}`,
+    text: `${parts.weekday} ${parts.day} ${parts.month} ${parts.year}, ${parts.hour}:${parts.minute}`,
+  }
 }
-interface CheckAnswer { fixedPlan: { at: string; date: string }; replanned: { at: string; date: string }; range: { p50: { date: string }; p80: { date: string }; p95: { date: string } } | null }
+interface CheckAnswer {
+  fixedPlan: { at: string; date: string }
+  replanned: { at: string; date: string }
+  range: { p50: { date: string }; p80: { date: string }; p95: { date: string } } | null
+}
 /** Clicks "check" and returns the server's answer the screen is about to show. */
 async function check(): Promise<CheckAnswer> {
   const answer = page.waitForResponse((r) => r.url().endsWith('/api/promise/check') && r.request().method() === 'POST', { timeout: 30_000 })
@@ -54,7 +78,8 @@ async function expectScreenShows(a: CheckAnswer) {
   // The day shown is the workshop's calendar day of the completion (Intl in Europe/London), not only the server's own field.
   expect(a.fixedPlan.date).toBe(london(a.fixedPlan.at).date)
   expect(a.replanned.date).toBe(london(a.replanned.at).date)
-  const fixed = page.locator('[data-test=promise-fixed]'), replanned = page.locator('[data-test=promise-replanned]')
+  const fixed = page.locator('[data-test=promise-fixed]'),
+    replanned = page.locator('[data-test=promise-replanned]')
   expect(screenDay((await fixed.locator('.big').textContent()) ?? '')).toBe(a.fixedPlan.date)
   expect(screenDay((await replanned.locator('.big').textContent()) ?? '')).toBe(a.replanned.date)
   expect(((await fixed.locator('.mg-small', { hasText: /^ready / }).textContent()) ?? '').trim()).toBe(`ready ${london(a.fixedPlan.at).text}`)
@@ -88,7 +113,10 @@ describe('promise check as sales', () => {
     await page.locator('[data-test=promise-template]').click()
     await page.locator('.el-select-dropdown__item:visible', { hasText: 'Signet ring' }).click()
     const answer = await check()
-    await page.locator('[data-test=promise-result]', { hasText: /signet ring/i }).locator('[data-test=promise-band]').waitFor({ timeout: 20_000 })
+    await page
+      .locator('[data-test=promise-result]', { hasText: /signet ring/i })
+      .locator('[data-test=promise-band]')
+      .waitFor({ timeout: 20_000 })
     const dates = await expectScreenShows(answer)
     // Casting (5 working days) and hallmarking (3) vary in whole days (server test: promise-range.test.ts); read back on screen
     // as whole ISO dates, so P50 < P95 compares days, not digits.
@@ -104,7 +132,10 @@ describe('promise check as sales', () => {
     const name = ((await first.textContent()) ?? '').trim()
     await first.click()
     lastAnswer = await check()
-    await page.locator('[data-test=promise-result]', { hasText: new RegExp(name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&'), 'i') }).locator('[data-test=promise-band]').waitFor({ timeout: 20_000 })
+    await page
+      .locator('[data-test=promise-result]', { hasText: new RegExp(name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&'), 'i') })
+      .locator('[data-test=promise-band]')
+      .waitFor({ timeout: 20_000 })
     await expectScreenShows(lastAnswer)
   })
 
@@ -124,7 +155,9 @@ describe('promise check as sales', () => {
     const text = (await done.textContent()) ?? ''
     orderNumber = /Order (\S+) taken/.exec(text)?.[1] ?? ''
     expect(orderNumber).toMatch(/^MG\d\d-\d{4}$/)
-    const o = (await e2e.db.db.select({ d: s.orders.promisedDate, priceQuotedMinor: s.orders.priceQuotedMinor }).from(s.orders).where(eq(s.orders.number, orderNumber)))[0]!
+    const o = (
+      await e2e.db.db.select({ d: s.orders.promisedDate, priceQuotedMinor: s.orders.priceQuotedMinor }).from(s.orders).where(eq(s.orders.number, orderNumber))
+    )[0]!
     expect(o.d).toMatch(/^\d{4}-\d{2}-\d{2}$/)
     // "780" typed in pounds is 78,000 pence (GBP has 2 decimals, ISO 4217), stored whole.
     expect(o.priceQuotedMinor).toBe(78_000)
@@ -139,9 +172,14 @@ describe('promise check as sales', () => {
     // The message says whether the steps are booked, as the database has it, and the booked days are the workshop's calendar days
     // (Europe/London, by PostgreSQL) of the first planned start and the last planned end.
     // Raw SQL on purpose: the booked days in London time by PostgreSQL's own time-zone conversion, apart from the app's code.
-    const { rows: [b] } = await e2e.db.pool.query(`select bool_and(op.planned_start is not null) as booked,
+    const {
+      rows: [b],
+    } = await e2e.db.pool.query(
+      `select bool_and(op.planned_start is not null) as booked,
         (min(op.planned_start) at time zone 'Europe/London')::date::text as first, (max(op.planned_end) at time zone 'Europe/London')::date::text as last
-      from operations op join job_bags j on j.id = op.job_bag_id join orders r on r.id = j.order_id where r.number = $1`, [orderNumber])
+      from operations op join job_bags j on j.id = op.job_bag_id join orders r on r.id = j.order_id where r.number = $1`,
+      [orderNumber],
+    )
     if (b.booked) {
       const booked = /Booked into the live plan, (.+?) to (.+?)\./.exec(text)
       expect(booked, text).not.toBeNull()
@@ -161,7 +199,11 @@ describe('promise check as sales', () => {
     const o = (await e2e.db.db.select({ d: s.orders.promisedDate }).from(s.orders).where(eq(s.orders.number, orderNumber)))[0]!
     expect(text).toContain(o.d!)
     // Only what is true: booked with dates, or the dates still to be confirmed — as the operations say.
-    const unbooked = await e2e.db.db.select({ id: s.operations.id }).from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    const unbooked = await e2e.db.db
+      .select({ id: s.operations.id })
+      .from(s.operations)
+      .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+      .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
       .where(and(eq(s.orders.number, orderNumber), isNull(s.operations.plannedStart)))
     expect(text).toMatch(unbooked.length === 0 ? /booked into our workshop plan/ : /we will confirm the dates/)
     expect(text).not.toMatch(/We have planned it/)

@@ -7,8 +7,31 @@ const e2e = useE2E()
 
 // The navigation each role is meant to have (product decision in the team brief).
 const EXPECTED: Record<Role, { home: string; nav: string[] }> = {
-  owner: { home: '/orders', nav: ['/plan', '/bench', '/orders', '/promise', '/customers', '/quotes', '/outbox', '/benches', '/people', '/calendar', '/metal', '/routings', '/insights', '/money', '/team', '/settings'] },
-  manager: { home: '/plan', nav: ['/plan', '/orders', '/promise', '/customers', '/quotes', '/outbox', '/benches', '/people', '/calendar', '/metal', '/routings'] },
+  owner: {
+    home: '/orders',
+    nav: [
+      '/plan',
+      '/bench',
+      '/orders',
+      '/promise',
+      '/customers',
+      '/quotes',
+      '/outbox',
+      '/benches',
+      '/people',
+      '/calendar',
+      '/metal',
+      '/routings',
+      '/insights',
+      '/money',
+      '/team',
+      '/settings',
+    ],
+  },
+  manager: {
+    home: '/plan',
+    nav: ['/plan', '/orders', '/promise', '/customers', '/quotes', '/outbox', '/benches', '/people', '/calendar', '/metal', '/routings'],
+  },
   bench: { home: '/bench', nav: ['/bench'] },
   sales: { home: '/orders', nav: ['/plan', '/orders', '/promise', '/customers', '/quotes', '/outbox'] },
 }
@@ -56,7 +79,17 @@ describe('roles in the browser', () => {
       await screenshot(page, 'not-allowed-bench')
       const status = await page.evaluate(async () => {
         const s = await (await fetch('/api/session')).json()
-        const r = await fetch('/api/workshop', { method: 'PUT', headers: { 'content-type': 'application/json', 'x-csrf-token': s.csrfToken }, body: JSON.stringify({ name: 'Taken over', timeZone: 'Europe/London', weekPattern: [{ weekday: 1, start: '08:00', end: '12:00' }], planningLoad: 0.8, version: 0 }) })
+        const r = await fetch('/api/workshop', {
+          method: 'PUT',
+          headers: { 'content-type': 'application/json', 'x-csrf-token': s.csrfToken },
+          body: JSON.stringify({
+            name: 'Taken over',
+            timeZone: 'Europe/London',
+            weekPattern: [{ weekday: 1, start: '08:00', end: '12:00' }],
+            planningLoad: 0.8,
+            version: 0,
+          }),
+        })
         return r.status
       })
       expect(status).toBe(403)

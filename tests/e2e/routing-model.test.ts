@@ -8,10 +8,16 @@ import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
 /** A routing's step as stored, with the routing's learning rate. */
-const stepOf = (routing: string, key: string) => e2e.db.db.select({ learningRate: s.routingTemplates.learningRate, perMmMinutes: s.templateSteps.perMmMinutes, roleFactors: s.templateSteps.roleFactors })
-  .from(s.routingTemplates).innerJoin(s.templateSteps, eq(s.templateSteps.templateId, s.routingTemplates.id)).where(and(eq(s.routingTemplates.name, routing), eq(s.templateSteps.key, key)))
+const stepOf = (routing: string, key: string) =>
+  e2e.db.db
+    .select({ learningRate: s.routingTemplates.learningRate, perMmMinutes: s.templateSteps.perMmMinutes, roleFactors: s.templateSteps.roleFactors })
+    .from(s.routingTemplates)
+    .innerJoin(s.templateSteps, eq(s.templateSteps.templateId, s.routingTemplates.id))
+    .where(and(eq(s.routingTemplates.name, routing), eq(s.templateSteps.key, key)))
 let page: Page
-beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
+beforeAll(async () => {
+  page = await signInPage(await e2e.newContext(), 'owner')
+})
 
 const CUFF = 'Etched cuff'
 const row = (p: Page, name: string) => p.locator('.el-table__row', { hasText: name })

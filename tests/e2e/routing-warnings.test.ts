@@ -7,7 +7,9 @@ import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
 let page: Page
-beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'manager') })
+beforeAll(async () => {
+  page = await signInPage(await e2e.newContext(), 'manager')
+})
 
 const STUDS = 'Production run: stud earrings'
 const row = (p: Page) => p.locator('.el-table__row', { hasText: STUDS })
@@ -61,13 +63,18 @@ describe('routing warnings in the editor', () => {
 
 describe('customers’ open orders', () => {
   it('when the customers open, then each open-order count equals the customer’s orders not collected or cancelled in the database', async () => {
-    const rows = await e2e.db.db.select({ name: s.customers.name, n: count(s.orders.id) }).from(s.customers)
-      .leftJoin(s.orders, and(eq(s.orders.customerId, s.customers.id), notInArray(s.orders.status, ['collected', 'cancelled']))).groupBy(s.customers.name)
+    const rows = await e2e.db.db
+      .select({ name: s.customers.name, n: count(s.orders.id) })
+      .from(s.customers)
+      .leftJoin(s.orders, and(eq(s.orders.customerId, s.customers.id), notInArray(s.orders.status, ['collected', 'cancelled'])))
+      .groupBy(s.customers.name)
     const want = Object.fromEntries(rows.map((r) => [r.name, r.n]))
     expect(Object.values(want).some((n) => n > 0)).toBe(true)
     await page.goto('/customers')
     await page.locator('.el-table__row').first().waitFor()
-    const shown = await page.locator('.el-table__body-wrapper .el-table__row').evaluateAll((trs) => trs.map((tr) => Array.from(tr.querySelectorAll('td')).map((td) => td.textContent?.trim() ?? '')))
+    const shown = await page
+      .locator('.el-table__body-wrapper .el-table__row')
+      .evaluateAll((trs) => trs.map((tr) => Array.from(tr.querySelectorAll('td')).map((td) => td.textContent?.trim() ?? '')))
     const header = await page.locator('.el-table__header-wrapper th').evaluateAll((ths) => ths.map((th) => th.textContent?.trim() ?? ''))
     const col = header.indexOf('Open orders')
     expect(col).toBeGreaterThan(-1)

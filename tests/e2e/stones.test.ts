@@ -11,11 +11,15 @@ const page = (email: string, viewport?: { width: number; height: number }) => si
 describe('stones on the bench and the job bag', () => {
   it('when the setter takes the pavé stones and counts them back on the tablet, then the job bag shows them all counted', async () => {
     // A demo pavé pendant whose setting step nobody has started, with its seeded stone list.
-    const [op] = await q(`select o.id, o.job_bag_id from operations o join job_bags jb on jb.id = o.job_bag_id join routing_templates rt on rt.id = jb.template_id join orders ord on ord.id = jb.order_id
+    const [op] =
+      await q(`select o.id, o.job_bag_id from operations o join job_bags jb on jb.id = o.job_bag_id join routing_templates rt on rt.id = jb.template_id join orders ord on ord.id = jb.order_id
       where rt.code = 'pave-pendant' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' and exists (select 1 from job_bag_stones s where s.job_bag_id = jb.id) order by jb.id limit 1`)
     const [line] = await q('select id, count from job_bag_stones where job_bag_id = $1', [op.job_bag_id])
     const [bag] = await q(`select (params->>'quantity')::int as quantity from job_bags where id = $1`, [op.job_bag_id])
-    await q(`update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and key <> 'set' and key not in ('polish', 'inspect')`, [op.job_bag_id])
+    await q(
+      `update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and key <> 'set' and key not in ('polish', 'inspect')`,
+      [op.job_bag_id],
+    )
     await q(`update operations set status = 'ready' where id = $1`, [op.id])
     const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
     const total = line.count * bag.quantity
@@ -29,7 +33,9 @@ describe('stones on the bench and the job bag', () => {
     await counter.waitFor()
     await counter.locator('[data-test=take-stones]').click()
     // Hand-worked: all the list's stones given out, none back yet: "Given out N · counted back 0 · N not counted back".
-    await expect.poll(() => counter.locator('[data-test=line-state]').innerText(), { timeout: 10_000 }).toBe(`Given out ${total} · counted back 0 · ${total} not counted back`)
+    await expect
+      .poll(() => counter.locator('[data-test=line-state]').innerText(), { timeout: 10_000 })
+      .toBe(`Given out ${total} · counted back 0 · ${total} not counted back`)
     // Large touch targets: at least 48 px (WCAG 2.5.5 target size 44 px; Material guidance 48 dp).
     expect((await counter.locator('[data-test=more-returned]').boundingBox())!.height).toBeGreaterThanOrEqual(48)
     // All start as set; one goes back unused instead: set total − 1, back 1.
@@ -38,7 +44,9 @@ describe('stones on the bench and the job bag', () => {
     await expect(counter.locator('[data-test=n-set]').innerText()).resolves.toBe(String(total - 1))
     await screenshot(setter, 'stones-01-tablet-count-back')
     await counter.locator('[data-test=count-back]').click()
-    await expect.poll(() => counter.locator('[data-test=line-state]').innerText(), { timeout: 10_000 }).toBe(`Given out ${total} · counted back ${total} · all counted`)
+    await expect
+      .poll(() => counter.locator('[data-test=line-state]').innerText(), { timeout: 10_000 })
+      .toBe(`Given out ${total} · counted back ${total} · all counted`)
     await screenshot(setter, 'stones-02-tablet-counted')
 
     const manager = await page('manager@wrenfield.test')
@@ -50,7 +58,11 @@ describe('stones on the bench and the job bag', () => {
     await manager.locator('[data-test=stone-list]').scrollIntoViewIfNeeded()
     await screenshot(manager, 'stones-03-job-bag-reconciled')
     const rows = await q(`select kind, count from stone_movements where stone_line_id = $1 order by id`, [line.id])
-    expect(rows).toEqual([{ kind: 'issued', count: total }, { kind: 'set', count: total - 1 }, { kind: 'returned', count: 1 }])
+    expect(rows).toEqual([
+      { kind: 'issued', count: total },
+      { kind: 'set', count: total - 1 },
+      { kind: 'returned', count: 1 },
+    ])
   })
 
   it('when sales types US 7 in the order dialog, then ISO 54.4 (Ø 17.3 mm) and UK N½ are shown', async () => {
@@ -59,13 +71,21 @@ describe('stones on the bench and the job bag', () => {
     await sales.locator('[data-test=order-take]').click()
     // Choose the US scale and wait until the field shows it (on a busy machine a click can land while the list is still opening).
     const scale = sales.locator('[data-test=ring-size-0-scale]')
-    await expect.poll(async () => {
-      if (!(await scale.innerText()).includes('US / Canada')) {
-        await scale.click()
-        await sales.locator('.el-select-dropdown__item:visible', { hasText: 'US / Canada' }).click({ timeout: 3_000 }).catch(() => undefined)
-      }
-      return scale.innerText()
-    }, { timeout: 20_000 }).toContain('US / Canada')
+    await expect
+      .poll(
+        async () => {
+          if (!(await scale.innerText()).includes('US / Canada')) {
+            await scale.click()
+            await sales
+              .locator('.el-select-dropdown__item:visible', { hasText: 'US / Canada' })
+              .click({ timeout: 3_000 })
+              .catch(() => undefined)
+          }
+          return scale.innerText()
+        },
+        { timeout: 20_000 },
+      )
+      .toContain('US / Canada')
     await sales.locator('input[data-test=ring-size-0-value], [data-test=ring-size-0-value] input').first().fill('7')
     // US 7: (0.458 + 0.032 × 7) in = 17.32 mm inside, π × 17.32 = 54.4 mm round it (TRADE.md, "Ring size"); UK N½ beside US 7 on the pinned chart (just-color.com).
     await expect.poll(() => sales.locator('[data-test=ring-size-0-others]').innerText(), { timeout: 10_000 }).toBe('US 7 · ISO 54.4 (Ø 17.3 mm) · UK N½')

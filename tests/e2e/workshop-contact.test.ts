@@ -8,7 +8,9 @@ import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
 let page: Page
-beforeAll(async () => { page = await signInPage(await e2e.newContext(), 'owner') })
+beforeAll(async () => {
+  page = await signInPage(await e2e.newContext(), 'owner')
+})
 
 const field = (name: string) => page.locator(`input[data-test=${name}], [data-test=${name}] input`).first()
 
@@ -27,7 +29,10 @@ describe('workshop contact in the settings', () => {
     await field('settings-phone').fill('0117 496 0999')
     await page.locator('[data-test=settings-save]').click()
     await page.locator('.el-message', { hasText: 'Workshop details saved' }).waitFor()
-    const [w] = await e2e.db.db.select({ phone: s.workshops.phone, currency: s.workshops.currency, address: s.workshops.address }).from(s.workshops).where(eq(s.workshops.id, 1))
+    const [w] = await e2e.db.db
+      .select({ phone: s.workshops.phone, currency: s.workshops.currency, address: s.workshops.address })
+      .from(s.workshops)
+      .where(eq(s.workshops.id, 1))
     expect(w).toEqual({ phone: '0117 496 0999', currency: 'GBP', address: '14 Wrenfield Street, Bristol BS1 4QX' })
     await screenshot(page, 'settings-workshop-contact', { fullPage: false })
   })
@@ -36,7 +41,9 @@ describe('workshop contact in the settings', () => {
     await page.goto('/settings')
     await field('settings-public-url').waitFor()
     // The suggestion: this machine's first network IPv4 address (os.networkInterfaces, read here) and the port the test server listens on.
-    const ip = Object.values(networkInterfaces()).flat().find((a) => a && a.family === 'IPv4' && !a.internal)?.address
+    const ip = Object.values(networkInterfaces())
+      .flat()
+      .find((a) => a && a.family === 'IPv4' && !a.internal)?.address
     const port = new URL(e2e.url).port
     const hint = page.locator('[data-test=settings-public-url-hint]')
     if (ip) await expect.poll(() => page.locator('[data-test=settings-public-url-suggestion]').textContent(), { timeout: 10_000 }).toBe(`http://${ip}:${port}`)

@@ -13,9 +13,18 @@ import { benchDir, requireKit } from '../setup/kit.ts'
 const haveKit = requireKit('kit benchmarks', ['bounds.json', '../tools/check-schedule.mjs'])
 const checker = join(benchDir, '../tools/check-schedule.mjs')
 
-interface Bound { name: string; file: string; lower_bound: number; upper_bound: number }
+interface Bound {
+  name: string
+  file: string
+  lower_bound: number
+  upper_bound: number
+}
 const bounds: Bound[] = haveKit ? JSON.parse(readFileSync(join(benchDir, 'bounds.json'), 'utf8')) : []
-if (haveKit) requireKit('kit benchmarks', bounds.map((b) => b.file))
+if (haveKit)
+  requireKit(
+    'kit benchmarks',
+    bounds.map((b) => b.file),
+  )
 const load = (b: Bound): ShopFile => parseShopFile(b.file, readFileSync(join(benchDir, b.file), 'utf8'))
 const clock = () => performance.now()
 
@@ -25,7 +34,17 @@ function solveUntil(name: string, target: number, limitMs: number) {
   expect(bound, `${name} in bounds.json`).toBeDefined()
   const problem = shopToProblem(load(bound!))
   let best = Infinity
-  const plan = solve(problem, { seed: 1, timeLimitMs: limitMs, objective: ['makespan'] }, { clock, onProgress: (p) => { best = Math.min(best, p.best.makespan) }, shouldStop: () => best <= target })
+  const plan = solve(
+    problem,
+    { seed: 1, timeLimitMs: limitMs, objective: ['makespan'] },
+    {
+      clock,
+      onProgress: (p) => {
+        best = Math.min(best, p.best.makespan)
+      },
+      shouldStop: () => best <= target,
+    },
+  )
   expect(validatePlan(problem, plan), name).toEqual([])
   return { plan, bound: bound! }
 }
@@ -34,7 +53,17 @@ describe.skipIf(!haveKit)('kit benchmarks (skipped with a message when the bench
   it('when ft06 is solved with a generous limit, then it reaches the optimum 55', () => {
     const problem = shopToProblem(load(bounds.find((b) => b.name === 'ft06')!))
     let best = Infinity
-    const plan = solve(problem, { seed: 1, timeLimitMs: 10_000, objective: ['makespan'] }, { clock, onProgress: (p) => { best = p.best.makespan }, shouldStop: () => best <= 55 })
+    const plan = solve(
+      problem,
+      { seed: 1, timeLimitMs: 10_000, objective: ['makespan'] },
+      {
+        clock,
+        onProgress: (p) => {
+          best = p.best.makespan
+        },
+        shouldStop: () => best <= 55,
+      },
+    )
     // Published optimum ft06 = 55 (Fisher & Thompson 1963; bounds.json)
     expect(plan.score.makespan).toBe(55)
     expect(validatePlan(problem, plan)).toEqual([])
@@ -72,7 +101,10 @@ describe.skipIf(!haveKit)('kit benchmarks (skipped with a message when the bench
       // Lower bounds as published in bounds.json (compiled from JSPLIB / SchedulingLab / ScheduleOpt tables): never beaten by a valid schedule.
       expect(plan.score.makespan, b.name).toBeGreaterThanOrEqual(b.lower_bound)
       // The kit's independent checker (written apart from the engine) must accept every schedule.
-      const operations = plan.operations.map((p) => { const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!; return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), start: p.start, end: p.end } })
+      const operations = plan.operations.map((p) => {
+        const m = /^j(\d+)o(\d+)$/.exec(p.operationId)!
+        return { job: Number(m[1]), op: Number(m[2]), machine: Number(p.benchId!.slice(1)), start: p.start, end: p.end }
+      })
       const file = join(dir, `${b.name}.json`)
       writeFileSync(file, JSON.stringify({ makespan: plan.score.makespan, operations }))
       const out = spawnSync(process.execPath, [checker, join(benchDir, b.file), file, String(b.upper_bound)], { encoding: 'utf8' })
@@ -86,17 +118,28 @@ describe.skipIf(!haveKit)('kit benchmarks (skipped with a message when the bench
 function randomJobShop(seed: number, jobs: number, machines: number): ShopFile {
   const rng = createRng(seed)
   return {
-    kind: 'jssp', machines, machineBase: 0,
+    kind: 'jssp',
+    machines,
+    machineBase: 0,
     jobs: Array.from({ length: jobs }, () => {
       const order = Array.from({ length: machines }, (_, k) => k)
-      for (let k = order.length - 1; k > 0; k--) { const r = rng.int(k + 1); [order[k], order[r]] = [order[r]!, order[k]!] }
+      for (let k = order.length - 1; k > 0; k--) {
+        const r = rng.int(k + 1)
+        ;[order[k], order[r]] = [order[r]!, order[k]!]
+      }
       return order.map((m) => [{ machine: m, duration: 1 + rng.int(9) }])
     }),
   }
 }
 
 describe('tiny shops against the MIP optimum', () => {
-  const cases: [number, number, number][] = [[1, 3, 3], [2, 3, 3], [3, 4, 3], [4, 4, 3], [5, 3, 4]]
+  const cases: [number, number, number][] = [
+    [1, 3, 3],
+    [2, 3, 3],
+    [3, 4, 3],
+    [4, 4, 3],
+    [5, 3, 4],
+  ]
   it.each(cases)('when random job shop #%i (%i jobs × %i machines) is solved, then the engine equals the proven optimum', async (seed, jobs, machines) => {
     const file = randomJobShop(seed, jobs, machines)
     const mip = await solveMip(file, 30)
@@ -110,7 +153,20 @@ describe('tiny shops against the MIP optimum', () => {
 
   it('when a tiny flexible shop is solved, then the engine equals the proven MIP optimum', async () => {
     const rng = createRng(9)
-    const file: ShopFile = { kind: 'fjsp', machines: 3, machineBase: 0, jobs: Array.from({ length: 3 }, () => Array.from({ length: 3 }, () => [0, 1, 2].filter(() => rng.next() < 0.7).concat([rng.int(3)]).filter((m, i, a) => a.indexOf(m) === i).map((m) => ({ machine: m, duration: 1 + rng.int(9) })))) }
+    const file: ShopFile = {
+      kind: 'fjsp',
+      machines: 3,
+      machineBase: 0,
+      jobs: Array.from({ length: 3 }, () =>
+        Array.from({ length: 3 }, () =>
+          [0, 1, 2]
+            .filter(() => rng.next() < 0.7)
+            .concat([rng.int(3)])
+            .filter((m, i, a) => a.indexOf(m) === i)
+            .map((m) => ({ machine: m, duration: 1 + rng.int(9) })),
+        ),
+      ),
+    }
     const mip = await solveMip(file, 30)
     // Reference: optimum proven by the HiGHS MIP solver (npm `highs`) on the disjunctive model with assignment variables
     expect(mip.optimal).toBe(true)

@@ -24,12 +24,23 @@ const at = (day: number, h: number, m = 0) => day * DAY + h * 60 + m
  * Weighted tardiness: B (835 − 600) × 3 = 705, A (4860 − 3900) × 1 = 960, total 1665.
  */
 function handCase(): Problem {
-  const work = [0, 1, 2, 3].flatMap((d) => [{ start: at(d, 8), end: at(d, 12) }, { start: at(d, 13), end: at(d, 17) }])
+  const work = [0, 1, 2, 3].flatMap((d) => [
+    { start: at(d, 8), end: at(d, 12) },
+    { start: at(d, 13), end: at(d, 17) },
+  ])
   const step = (id: string, jobId: string, minutes: number, predecessors: string[], extra: object = {}) => ({
-    id, jobId, name: id, kind: 'x', predecessors, options: minutes > 0 ? [{ benchId: 'b', personId: 'p', minutes }] : [], ...extra,
+    id,
+    jobId,
+    name: id,
+    kind: 'x',
+    predecessors,
+    options: minutes > 0 ? [{ benchId: 'b', personId: 'p', minutes }] : [],
+    ...extra,
   })
   return {
-    origin: '2025-03-03', now: at(0, 8), horizon: at(5, 0),
+    origin: '2025-03-03',
+    now: at(0, 8),
+    horizon: at(5, 0),
     workshopDays: [0, 1, 2, 3].map((d) => ({ start: at(d, 8), end: at(d, 17) })),
     benches: [{ id: 'b', name: 'bench', available: work }],
     people: [{ id: 'p', name: 'person', available: work }],
@@ -55,10 +66,20 @@ describe('the workshop as a disjunctive graph with calendars', () => {
     const c = compile(problem)
     const order = ['engrave', 'set', 'clean', 'check', 'shape', 'cast', 'polish']
     const key = new Float64Array(c.n)
-    order.forEach((id, k) => { key[c.opIndex.get(id)!] = k })
+    order.forEach((id, k) => {
+      key[c.opIndex.get(id)!] = k
+    })
     const first = decode(c, key, new Int32Array(c.n).fill(-1))
     const graph = calendarShop(c, first)
-    const r = solvePairShop(graph.shop, { seed: 1, objective: 'weightedTardiness', deadline: Infinity, clock, maxIterations: 0, initial: graph.initial, initialOnly: true })
+    const r = solvePairShop(graph.shop, {
+      seed: 1,
+      objective: 'weightedTardiness',
+      deadline: Infinity,
+      clock,
+      maxIterations: 0,
+      initial: graph.initial,
+      initialOnly: true,
+    })
     const ends = Object.fromEntries(order.map((id) => [id, r.end[c.opIndex.get(id)!]! + problem.now]))
     expect(ends).toEqual({ engrave: 600, set: 790, clean: 820, check: 835, shape: 2035, cast: 3900, polish: 4860 })
     expect(r.weightedTardiness).toBe(1665)
@@ -71,9 +92,21 @@ describe('the workshop as a disjunctive graph with calendars', () => {
     const c = compile(problem)
     const first = decode(c, dispatchKeys(c)[2]!, new Int32Array(c.n).fill(-1))
     const graph = calendarShop(c, first)
-    const r = solvePairShop(graph.shop, { seed: 3, objective: 'weightedTardiness', deadline: Infinity, clock, maxIterations: 300, initial: graph.initial, initialOnly: true })
-    const key = new Float64Array(c.n), choice = new Int32Array(c.n).fill(-1)
-    for (let i = 0; i < c.n; i++) { key[i] = r.start[i]! + i * 1e-9; if (graph.real[i]) choice[i] = r.option[i]! - graph.shop.optStart[i]! }
+    const r = solvePairShop(graph.shop, {
+      seed: 3,
+      objective: 'weightedTardiness',
+      deadline: Infinity,
+      clock,
+      maxIterations: 300,
+      initial: graph.initial,
+      initialOnly: true,
+    })
+    const key = new Float64Array(c.n),
+      choice = new Int32Array(c.n).fill(-1)
+    for (let i = 0; i < c.n; i++) {
+      key[i] = r.start[i]! + i * 1e-9
+      if (graph.real[i]) choice[i] = r.option[i]! - graph.shop.optStart[i]!
+    }
     const d = decode(c, key, choice)
     // Each step holds its bench and person from start to end on the graph; the decoder places the same steps in the same order
     // with the same choices and may only fill gaps earlier, so no step ends later (a list-scheduling argument, common practice, no source).

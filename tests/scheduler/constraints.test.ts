@@ -18,8 +18,25 @@ const placed = (p: Plan, id: string) => {
 describe('engine constraints', () => {
   it('when the bench opens at 8 and the person at 10, then the work starts at 10 with both, for working-time reasons', () => {
     const problem = makeProblem({
-      benches: [makeBench({ id: 'b1', available: [{ start: at(0, 8), end: at(0, 12) }, { start: at(1, 8), end: at(1, 12) }] })],
-      people: [makePerson({ id: 'p1', name: 'Ada', available: [{ start: at(0, 10), end: at(0, 16) }, { start: at(1, 8), end: at(1, 16) }] })],
+      benches: [
+        makeBench({
+          id: 'b1',
+          available: [
+            { start: at(0, 8), end: at(0, 12) },
+            { start: at(1, 8), end: at(1, 12) },
+          ],
+        }),
+      ],
+      people: [
+        makePerson({
+          id: 'p1',
+          name: 'Ada',
+          available: [
+            { start: at(0, 10), end: at(0, 16) },
+            { start: at(1, 8), end: at(1, 16) },
+          ],
+        }),
+      ],
       operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 60] })],
     })
     const a = placed(plan(problem), 'a')
@@ -33,10 +50,22 @@ describe('engine constraints', () => {
       benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
       people: [makePerson({ id: 'p1' }), makePerson({ id: 'p2' })],
       jobs: [makeJob({ id: 'j', release: at(0, 13) })],
-      operations: [makeOperation({ id: 'a', jobId: 'j', options: [{ benchId: 'b1', personId: 'p1', minutes: 300 }, { benchId: 'b2', personId: 'p2', minutes: 300 }] })],
+      operations: [
+        makeOperation({
+          id: 'a',
+          jobId: 'j',
+          options: [
+            { benchId: 'b1', personId: 'p1', minutes: 300 },
+            { benchId: 'b2', personId: 'p2', minutes: 300 },
+          ],
+        }),
+      ],
     })
     const a = placed(plan(problem), 'a')
-    expect(a.segments).toEqual([{ start: at(0, 13), end: at(0, 16) }, { start: at(1, 8), end: at(1, 10) }])
+    expect(a.segments).toEqual([
+      { start: at(0, 13), end: at(0, 16) },
+      { start: at(1, 8), end: at(1, 10) },
+    ])
     expect(a.end).toBe(at(1, 10))
   })
 
@@ -143,7 +172,16 @@ describe('engine constraints', () => {
   it('when two benches are equally good, then the one of the previous plan is kept', () => {
     const base = {
       benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
-      operations: [makeOperation({ id: 'a', jobId: 'j', options: [{ benchId: 'b1', personId: 'p1', minutes: 30 }, { benchId: 'b2', personId: 'p1', minutes: 30 }] })],
+      operations: [
+        makeOperation({
+          id: 'a',
+          jobId: 'j',
+          options: [
+            { benchId: 'b1', personId: 'p1', minutes: 30 },
+            { benchId: 'b2', personId: 'p1', minutes: 30 },
+          ],
+        }),
+      ],
     }
     expect(placed(plan(makeProblem(base)), 'a').benchId).toBe('b1')
     const stable = plan(makeProblem({ ...base, previous: { a: { benchId: 'b2', personId: 'p1', start: at(0, 8) } } }))
@@ -184,7 +222,14 @@ describe('engine constraints', () => {
       benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
       jobs: [makeJob({ id: 'j1', due: at(0, 12) }), makeJob({ id: 'j2', due: at(0, 12) }), makeJob({ id: 'j3', due: at(0, 12) })],
       operations: ['j1', 'j2', 'j3'].flatMap((j) => [
-        makeOperation({ id: `${j}a`, jobId: j, options: [{ benchId: 'b1', personId: 'p1', minutes: 40 }, { benchId: 'b2', personId: 'p1', minutes: 50 }] }),
+        makeOperation({
+          id: `${j}a`,
+          jobId: j,
+          options: [
+            { benchId: 'b1', personId: 'p1', minutes: 40 },
+            { benchId: 'b2', personId: 'p1', minutes: 50 },
+          ],
+        }),
         makeOperation({ id: `${j}b`, jobId: j, predecessors: [`${j}a`], options: [{ benchId: 'b2', personId: 'p1', minutes: 30 }] }),
       ]),
     })

@@ -4,14 +4,26 @@ import { explainStarts, type Problem } from '../../server/scheduler/index.ts'
 import { at, makeBench, makeJob, makeOperation, makePerson, makeProblem } from './builders.ts'
 
 // Mon 08:00–12:00 and 13:00–16:00 for everyone.
-const day = [{ start: at(0, 8), end: at(0, 12) }, { start: at(0, 13), end: at(0, 16) }]
+const day = [
+  { start: at(0, 8), end: at(0, 12) },
+  { start: at(0, 13), end: at(0, 16) },
+]
 const problem: Problem = makeProblem({
   benches: [makeBench({ id: 'b1', name: 'Setting bench A', available: day }), makeBench({ id: 'b2', name: 'Setting bench B', available: day })],
   people: [makePerson({ id: 'p1', name: 'Ada', available: day }), makePerson({ id: 'p2', name: 'Ben', available: day })],
   now: at(0, 8),
   jobs: [makeJob({ id: 'j1' }), makeJob({ id: 'j2' })],
   operations: [
-    makeOperation({ id: 'a', jobId: 'j1', name: 'set stones', options: [{ benchId: 'b1', personId: 'p1', minutes: 60 }, { benchId: 'b2', personId: 'p2', minutes: 60 }], waitAfter: 15 }),
+    makeOperation({
+      id: 'a',
+      jobId: 'j1',
+      name: 'set stones',
+      options: [
+        { benchId: 'b1', personId: 'p1', minutes: 60 },
+        { benchId: 'b2', personId: 'p2', minutes: 60 },
+      ],
+      waitAfter: 15,
+    }),
     makeOperation({ id: 'b', jobId: 'j2', name: 'set bezel', on: ['b1', 'p1', 60] }),
     makeOperation({ id: 'c', jobId: 'j1', name: 'polish', predecessors: ['a'], on: ['b2', 'p2', 30] }),
   ],

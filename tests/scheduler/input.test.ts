@@ -4,7 +4,12 @@ import { checkProblem, solve, SchedulingInputError, type Problem } from '../../s
 import { at, makeJob, makeOperation, makeProblem } from './builders.ts'
 
 const refusal = (p: Problem): SchedulingInputError => {
-  try { checkProblem(p) } catch (e) { expect(e).toBeInstanceOf(SchedulingInputError); return e as SchedulingInputError }
+  try {
+    checkProblem(p)
+  } catch (e) {
+    expect(e).toBeInstanceOf(SchedulingInputError)
+    return e as SchedulingInputError
+  }
   throw new Error('expected a SchedulingInputError')
 }
 
@@ -20,34 +25,48 @@ describe('checkProblem', () => {
     expect(e.message).toContain('stone setting')
   })
   it('when a routing has a cycle, then "routing-cycle" lists the operations on it', () => {
-    const e = refusal(makeProblem({
-      operations: [
-        makeOperation({ id: 'a', jobId: 'j', predecessors: ['c'], on: ['b1', 'p1', 10] }),
-        makeOperation({ id: 'b', jobId: 'j', predecessors: ['a'], on: ['b1', 'p1', 10] }),
-        makeOperation({ id: 'c', jobId: 'j', predecessors: ['b'], on: ['b1', 'p1', 10] }),
-      ],
-    }))
+    const e = refusal(
+      makeProblem({
+        operations: [
+          makeOperation({ id: 'a', jobId: 'j', predecessors: ['c'], on: ['b1', 'p1', 10] }),
+          makeOperation({ id: 'b', jobId: 'j', predecessors: ['a'], on: ['b1', 'p1', 10] }),
+          makeOperation({ id: 'c', jobId: 'j', predecessors: ['b'], on: ['b1', 'p1', 10] }),
+        ],
+      }),
+    )
     expect(e.code).toBe('routing-cycle')
     expect(e.message).toMatch(/"a".*"c".*"b"|"a".*"b".*"c"/)
   })
   it('when a predecessor is unknown, then "unknown-predecessor" is raised', () => {
-    expect(refusal(makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', predecessors: ['ghost'], on: ['b1', 'p1', 10] })] }))).toMatchObject({ code: 'unknown-predecessor', operationId: 'a' })
+    expect(refusal(makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', predecessors: ['ghost'], on: ['b1', 'p1', 10] })] }))).toMatchObject({
+      code: 'unknown-predecessor',
+      operationId: 'a',
+    })
   })
   it('when a predecessor belongs to another job, then "foreign-predecessor" is raised', () => {
-    const e = refusal(makeProblem({
-      operations: [makeOperation({ id: 'x', jobId: 'j1', on: ['b1', 'p1', 10] }), makeOperation({ id: 'y', jobId: 'j2', predecessors: ['x'], on: ['b1', 'p1', 10] })],
-    }))
+    const e = refusal(
+      makeProblem({
+        operations: [
+          makeOperation({ id: 'x', jobId: 'j1', on: ['b1', 'p1', 10] }),
+          makeOperation({ id: 'y', jobId: 'j2', predecessors: ['x'], on: ['b1', 'p1', 10] }),
+        ],
+      }),
+    )
     expect(e).toMatchObject({ code: 'foreign-predecessor', jobId: 'j2', operationId: 'y' })
   })
   it('when pinned work sits outside working time, then "fixed-outside-working-time" is raised', () => {
-    const e = refusal(makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 20) } })] }))
+    const e = refusal(
+      makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 20) } })] }),
+    )
     expect(e).toMatchObject({ code: 'fixed-outside-working-time', operationId: 'a' })
   })
   it.each([0, -5, Number.NaN, 1e9])('when a duration is %s minutes, then "bad-duration" is raised', (minutes) => {
     expect(refusal(makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', minutes] })] })).code).toBe('bad-duration')
   })
   it('when work cannot finish before the horizon, then "beyond-horizon" is raised', () => {
-    const e = refusal(makeProblem({ jobs: [makeJob({ id: 'j', release: at(11, 8) })], operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30 * 60] })] }))
+    const e = refusal(
+      makeProblem({ jobs: [makeJob({ id: 'j', release: at(11, 8) })], operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30 * 60] })] }),
+    )
     expect(e).toMatchObject({ code: 'beyond-horizon', jobId: 'j', operationId: 'a' })
   })
   it('when the load as a whole does not fit before the horizon, then solve reports "beyond-horizon"', () => {

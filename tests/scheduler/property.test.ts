@@ -59,21 +59,37 @@ type Workshop = typeof workshop extends fc.Arbitrary<infer T> ? T : never
 function build(w: Workshop): Problem {
   const days = 60
   const benches = Array.from({ length: w.benches }, (_, k) => makeBench({ id: `b${k}`, available: weekdays({ days, from: 7 * 60 + 30 * k, to: 17 * 60 }) }))
-  const people = Array.from({ length: w.people }, (_, k) => makePerson({
-    id: `p${k}`,
-    available: weekdays({ days, from: 8 * 60, to: 12 * 60 + 30, closed: [w.closed + k] }).flatMap((m) => [m, { start: m.end + 30, end: m.end + 30 + 4 * 60 }]),
-  }))
+  const people = Array.from({ length: w.people }, (_, k) =>
+    makePerson({
+      id: `p${k}`,
+      available: weekdays({ days, from: 8 * 60, to: 12 * 60 + 30, closed: [w.closed + k] }).flatMap((m) => [
+        m,
+        { start: m.end + 30, end: m.end + 30 + 4 * 60 },
+      ]),
+    }),
+  )
   const operations: Operation[] = []
   const jobs = w.jobs.map((j, ji) => {
     j.ops.forEach((o, k) => {
       const id = `j${ji}o${k}`
-      const bench = `b${o.bench % w.benches}`, person = `p${o.person % w.people}`
+      const bench = `b${o.bench % w.benches}`,
+        person = `p${o.person % w.people}`
       const options = [{ benchId: bench, personId: person, minutes: o.minutes }]
       if (o.alt) options.push({ benchId: `b${(o.bench + 1) % w.benches}`, personId: `p${(o.person + 1) % w.people}`, minutes: Math.round(o.minutes * 1.3) })
-      const op: Operation = { id, jobId: `j${ji}`, name: id, kind: 'work', predecessors: o.pred >= 0 && o.pred < k ? [`j${ji}o${o.pred}`] : k > 0 ? [`j${ji}o${k - 1}`] : [], options }
+      const op: Operation = {
+        id,
+        jobId: `j${ji}`,
+        name: id,
+        kind: 'work',
+        predecessors: o.pred >= 0 && o.pred < k ? [`j${ji}o${o.pred}`] : k > 0 ? [`j${ji}o${k - 1}`] : [],
+        options,
+      }
       if (o.outside === 1) op.outsideWorkingDays = 2
       if (o.wait > 40) op.waitAfter = o.wait
-      if (o.done === 0 && k === 0) { op.done = true; op.finishedAt = Math.max(0, w.now - o.wait) }
+      if (o.done === 0 && k === 0) {
+        op.done = true
+        op.finishedAt = Math.max(0, w.now - o.wait)
+      }
       operations.push(op)
     })
     return makeJob({ id: `j${ji}`, release: j.release, due: j.due, weight: j.weight })
@@ -109,42 +125,95 @@ describe('random workshops', () => {
 
   it('when tiny shops of machines are planned by the fast core, then the validator finds no violation', () => {
     fc.assert(
-      fc.property(fc.array(fc.array(fc.record({ m: fc.integer({ min: 0, max: 2 }), d: fc.integer({ min: 1, max: 9 }) }), { minLength: 1, maxLength: 4 }), { minLength: 1, maxLength: 4 }), (jobs) => {
-        const always = [{ start: 0, end: 10_000 }]
-        const problem: Problem = {
-          origin: '2025-03-03', now: 0, horizon: 10_000, workshopDays: always,
-          benches: [0, 1, 2].map((k) => makeBench({ id: `m${k}`, available: always })), people: [],
-          jobs: jobs.map((_, j) => makeJob({ id: `j${j}` })),
-          operations: jobs.flatMap((ops, j) => ops.map((o, k) => ({ id: `j${j}o${k}`, jobId: `j${j}`, name: `j${j}o${k}`, kind: 'machine', predecessors: k > 0 ? [`j${j}o${k - 1}`] : [], options: [{ benchId: `m${o.m}`, personId: null, minutes: o.d }, { benchId: `m${(o.m + 1) % 3}`, personId: null, minutes: o.d + 1 }] }))),
-        }
-        const plan = solve(problem, { seed: 1, timeLimitMs: 1000, maxIterations: 200 }, { clock: () => performance.now() })
-        expect(validatePlan(problem, plan)).toEqual([])
-      }),
+      fc.property(
+        fc.array(fc.array(fc.record({ m: fc.integer({ min: 0, max: 2 }), d: fc.integer({ min: 1, max: 9 }) }), { minLength: 1, maxLength: 4 }), {
+          minLength: 1,
+          maxLength: 4,
+        }),
+        (jobs) => {
+          const always = [{ start: 0, end: 10_000 }]
+          const problem: Problem = {
+            origin: '2025-03-03',
+            now: 0,
+            horizon: 10_000,
+            workshopDays: always,
+            benches: [0, 1, 2].map((k) => makeBench({ id: `m${k}`, available: always })),
+            people: [],
+            jobs: jobs.map((_, j) => makeJob({ id: `j${j}` })),
+            operations: jobs.flatMap((ops, j) =>
+              ops.map((o, k) => ({
+                id: `j${j}o${k}`,
+                jobId: `j${j}`,
+                name: `j${j}o${k}`,
+                kind: 'machine',
+                predecessors: k > 0 ? [`j${j}o${k - 1}`] : [],
+                options: [
+                  { benchId: `m${o.m}`, personId: null, minutes: o.d },
+                  { benchId: `m${(o.m + 1) % 3}`, personId: null, minutes: o.d + 1 },
+                ],
+              })),
+            ),
+          }
+          const plan = solve(problem, { seed: 1, timeLimitMs: 1000, maxIterations: 200 }, { clock: () => performance.now() })
+          expect(validatePlan(problem, plan)).toEqual([])
+        },
+      ),
       { numRuns: 40, seed: 11 },
     )
   })
 
   it('when random shops with a machine and a worker per step and due dates are planned, then both validators accept the plans', () => {
     fc.assert(
-      fc.property(fc.array(fc.array(fc.record({ m: fc.integer({ min: 0, max: 2 }), w: fc.integer({ min: 0, max: 2 }), d: fc.integer({ min: 1, max: 9 }) }), { minLength: 1, maxLength: 4 }), { minLength: 1, maxLength: 5 }), fc.integer({ min: 0, max: 30 }), (jobs, slack) => {
-        const always = [{ start: 0, end: 10_000 }]
-        const problem: Problem = {
-          origin: '2025-03-03', now: 0, horizon: 10_000, workshopDays: always,
-          benches: [0, 1, 2].map((k) => makeBench({ id: `m${k}`, available: always })),
-          people: [0, 1, 2].map((k) => makePerson({ id: `w${k}`, available: always })),
-          jobs: jobs.map((ops, j) => makeJob({ id: `j${j}`, due: ops.reduce((a, o) => a + o.d, 0) + slack, weight: 1 + (j % 3) })),
-          operations: jobs.flatMap((ops, j) => ops.map((o, k) => ({ id: `j${j}o${k}`, jobId: `j${j}`, name: `j${j}o${k}`, kind: 'machine', predecessors: k > 0 ? [`j${j}o${k - 1}`] : [], options: [{ benchId: `m${o.m}`, personId: `w${o.w}`, minutes: o.d }, { benchId: `m${(o.m + 1) % 3}`, personId: `w${(o.w + 2) % 3}`, minutes: o.d + 2 }] }))),
-        }
-        const plan = solve(problem, { seed: 1, timeLimitMs: 1000, maxIterations: 200 }, { clock: () => performance.now() })
-        expect(validatePlan(problem, plan)).toEqual([])
-        expect(independent(problem, plan)).toBe('')
-      }),
+      fc.property(
+        fc.array(
+          fc.array(fc.record({ m: fc.integer({ min: 0, max: 2 }), w: fc.integer({ min: 0, max: 2 }), d: fc.integer({ min: 1, max: 9 }) }), {
+            minLength: 1,
+            maxLength: 4,
+          }),
+          { minLength: 1, maxLength: 5 },
+        ),
+        fc.integer({ min: 0, max: 30 }),
+        (jobs, slack) => {
+          const always = [{ start: 0, end: 10_000 }]
+          const problem: Problem = {
+            origin: '2025-03-03',
+            now: 0,
+            horizon: 10_000,
+            workshopDays: always,
+            benches: [0, 1, 2].map((k) => makeBench({ id: `m${k}`, available: always })),
+            people: [0, 1, 2].map((k) => makePerson({ id: `w${k}`, available: always })),
+            jobs: jobs.map((ops, j) => makeJob({ id: `j${j}`, due: ops.reduce((a, o) => a + o.d, 0) + slack, weight: 1 + (j % 3) })),
+            operations: jobs.flatMap((ops, j) =>
+              ops.map((o, k) => ({
+                id: `j${j}o${k}`,
+                jobId: `j${j}`,
+                name: `j${j}o${k}`,
+                kind: 'machine',
+                predecessors: k > 0 ? [`j${j}o${k - 1}`] : [],
+                options: [
+                  { benchId: `m${o.m}`, personId: `w${o.w}`, minutes: o.d },
+                  { benchId: `m${(o.m + 1) % 3}`, personId: `w${(o.w + 2) % 3}`, minutes: o.d + 2 },
+                ],
+              })),
+            ),
+          }
+          const plan = solve(problem, { seed: 1, timeLimitMs: 1000, maxIterations: 200 }, { clock: () => performance.now() })
+          expect(validatePlan(problem, plan)).toEqual([])
+          expect(independent(problem, plan)).toBe('')
+        },
+      ),
       { numRuns: 30, seed: 13 },
     )
   })
 
   it('when a job is released at minute 0 and now is later, then nothing starts before now', () => {
-    const problem = build({ benches: 1, people: 1, jobs: [{ release: 0, due: null, weight: 1, ops: [{ minutes: 30, pred: -1, wait: 0, outside: 0, bench: 0, person: 0, alt: false, done: 5 }] }], now: at(0, 10), closed: 12 })
+    const problem = build({
+      benches: 1,
+      people: 1,
+      jobs: [{ release: 0, due: null, weight: 1, ops: [{ minutes: 30, pred: -1, wait: 0, outside: 0, bench: 0, person: 0, alt: false, done: 5 }] }],
+      now: at(0, 10),
+      closed: 12,
+    })
     const plan = solve(problem, { seed: 1, timeLimitMs: 100 })
     expect(plan.operations[0]!.start).toBeGreaterThanOrEqual(at(0, 10))
   })

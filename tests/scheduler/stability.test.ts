@@ -5,11 +5,15 @@ import { solve, validatePlan, type Plan, type Problem } from '../../server/sched
 import { generateWorkshop } from '../../server/scheduler/generate.ts'
 
 const clock = () => performance.now()
-const asPrevious = (plan: Plan): Problem['previous'] => Object.fromEntries(plan.operations.map((o) => [o.operationId, { benchId: o.benchId, personId: o.personId, start: o.start }]))
+const asPrevious = (plan: Plan): Problem['previous'] =>
+  Object.fromEntries(plan.operations.map((o) => [o.operationId, { benchId: o.benchId, personId: o.personId, start: o.start }]))
 /** Operations whose bench, person or start differ between two plans (counted here, apart from the engine's score). */
 function changes(a: Plan, b: Plan): number {
   const before = new Map(a.operations.map((o) => [o.operationId, o]))
-  return b.operations.filter((o) => { const x = before.get(o.operationId); return x && (x.benchId !== o.benchId || x.personId !== o.personId || x.start !== o.start) }).length
+  return b.operations.filter((o) => {
+    const x = before.get(o.operationId)
+    return x && (x.benchId !== o.benchId || x.personId !== o.personId || x.start !== o.start)
+  }).length
 }
 
 describe('stability against the published plan', () => {
@@ -34,7 +38,10 @@ describe('stability against the published plan', () => {
       ...problem,
       previous: asPrevious(first),
       jobs: [...problem.jobs, job],
-      operations: [...problem.operations, { id: 'new-1', jobId: 'new', name: 'make', kind: 'assembly', predecessors: [], options: [{ ...option, minutes: 45 }] }],
+      operations: [
+        ...problem.operations,
+        { id: 'new-1', jobId: 'new', name: 'make', kind: 'assembly', predecessors: [], options: [{ ...option, minutes: 45 }] },
+      ],
     }
     const plan = solve(withOrder, { seed: 3, timeLimitMs: 30_000, maxIterations: 400 }, { clock })
     expect(validatePlan(withOrder, plan)).toEqual([])

@@ -26,7 +26,8 @@ const broken = (edit: (p: Plan) => void): string[] => {
 const op = (p: Plan, id: string) => p.operations.find((o) => o.operationId === id)!
 const shift = (p: Plan, id: string, by: number): void => {
   const o = op(p, id)
-  o.start += by; o.end += by
+  o.start += by
+  o.end += by
   o.segments = o.segments.map((s) => ({ start: s.start + by, end: s.end + by }))
 }
 
@@ -35,16 +36,32 @@ describe('validatePlan', () => {
     expect(validatePlan(problem, good())).toEqual([])
   })
   it('when an operation is missing, then "every operation planned once" is reported', () => {
-    expect(broken((p) => { p.operations = p.operations.filter((o) => o.operationId !== 'b') })).toContain('every operation planned once')
+    expect(
+      broken((p) => {
+        p.operations = p.operations.filter((o) => o.operationId !== 'b')
+      }),
+    ).toContain('every operation planned once')
   })
   it('when a done operation is planned again, then it is reported', () => {
-    expect(broken((p) => { p.operations.push({ ...op(p, 'b'), operationId: 'old' }) })).toContain('done work is not planned again')
+    expect(
+      broken((p) => {
+        p.operations.push({ ...op(p, 'b'), operationId: 'old' })
+      }),
+    ).toContain('done work is not planned again')
   })
   it('when an operation uses a bench none of its options names, then "bench capability" is reported', () => {
-    expect(broken((p) => { op(p, 'a').benchId = 'b2' })).toContain('bench capability')
+    expect(
+      broken((p) => {
+        op(p, 'a').benchId = 'b2'
+      }),
+    ).toContain('bench capability')
   })
   it('when an operation needs a person none of its options names, then "skill" is reported', () => {
-    expect(broken((p) => { op(p, 'a').personId = 'p2' })).toContain('skill')
+    expect(
+      broken((p) => {
+        op(p, 'a').personId = 'p2'
+      }),
+    ).toContain('skill')
   })
   it('when bench and person are each allowed but not as a pair, then "allowed bench and person" is reported, and neither capability nor skill', () => {
     // Hand-built: step x may run on (b1, p1) or (b2, p2); the plan puts it on b1 with p2.
@@ -53,17 +70,33 @@ describe('validatePlan', () => {
       people: [makePerson({ id: 'p1' }), makePerson({ id: 'p2' })],
       workshopDays: weekdays(),
       jobs: [makeJob({ id: 'j' })],
-      operations: [makeOperation({ id: 'x', jobId: 'j', options: [{ benchId: 'b1', personId: 'p1', minutes: 60 }, { benchId: 'b2', personId: 'p2', minutes: 60 }] })],
+      operations: [
+        makeOperation({
+          id: 'x',
+          jobId: 'j',
+          options: [
+            { benchId: 'b1', personId: 'p1', minutes: 60 },
+            { benchId: 'b2', personId: 'p2', minutes: 60 },
+          ],
+        }),
+      ],
     })
     const plan = solve(pairs, { seed: 1, timeLimitMs: 100, maxIterations: 10 }, { clock: () => performance.now() })
     const x = plan.operations[0]!
-    x.benchId = 'b1'; x.personId = 'p2'
+    x.benchId = 'b1'
+    x.personId = 'p2'
     const found = validatePlan(pairs, plan)
     expect(found.map((v) => v.rule)).toEqual(['allowed bench and person'])
     expect(found[0]).toMatchObject({ severity: 'hard', operationId: 'x', jobId: 'j' })
   })
   it('when the worked minutes do not add up, then "work adds up" is reported', () => {
-    expect(broken((p) => { const o = op(p, 'a'); o.end -= 10; o.segments[o.segments.length - 1]!.end -= 10 })).toContain('work adds up')
+    expect(
+      broken((p) => {
+        const o = op(p, 'a')
+        o.end -= 10
+        o.segments[o.segments.length - 1]!.end -= 10
+      }),
+    ).toContain('work adds up')
   })
   it('when work is planned at night, then the bench and personal working-time rules are reported', () => {
     const rules = broken((p) => shift(p, 'b', 10 * 60))
@@ -71,10 +104,22 @@ describe('validatePlan', () => {
     expect(rules).toContain('within personal working time')
   })
   it('when work pauses although bench and person are free, then "work resumes only at next working time" is reported', () => {
-    expect(broken((p) => { const o = op(p, 'c'); const s = o.segments[0]!; o.segments = [{ start: s.start, end: s.start + 60 }, { start: s.start + 120, end: s.end + 60 }, ...o.segments.slice(1)] })).toContain('work resumes only at next working time')
+    expect(
+      broken((p) => {
+        const o = op(p, 'c')
+        const s = o.segments[0]!
+        o.segments = [{ start: s.start, end: s.start + 60 }, { start: s.start + 120, end: s.end + 60 }, ...o.segments.slice(1)]
+      }),
+    ).toContain('work resumes only at next working time')
   })
   it('when two operations share a bench at the same time, then double booking is reported for bench and person', () => {
-    const rules = broken((p) => { const a = op(p, 'a'), b = op(p, 'b'); b.start = a.start; b.end = a.end; b.segments = a.segments.map((s) => ({ ...s })) })
+    const rules = broken((p) => {
+      const a = op(p, 'a'),
+        b = op(p, 'b')
+      b.start = a.start
+      b.end = a.end
+      b.segments = a.segments.map((s) => ({ ...s }))
+    })
     expect(rules).toContain('bench double booking')
     expect(rules).toContain('person double booking')
   })
@@ -94,12 +139,22 @@ describe('validatePlan', () => {
     expect(broken((p) => shift(p, 'pin', 30))).toContain('pinned work stays put')
   })
   it('when outside work comes back too early, then "outside work takes its working days" is reported', () => {
-    expect(broken((p) => { const o = op(p, 'cast'); o.end -= 60; o.segments = [{ start: o.start, end: o.end }] })).toContain('outside work')
+    expect(
+      broken((p) => {
+        const o = op(p, 'cast')
+        o.end -= 60
+        o.segments = [{ start: o.start, end: o.end }]
+      }),
+    ).toContain('outside work')
   })
   it('when work ends after the horizon, then "within the horizon" is reported', () => {
     expect(broken((p) => shift(p, 'cast', 30 * 1440))).toContain('within the horizon')
   })
   it('when the job summary is wrong, then "job summary matches" is reported', () => {
-    expect(broken((p) => { p.jobs[0]!.completion -= 5 })).toContain('job summary matches')
+    expect(
+      broken((p) => {
+        p.jobs[0]!.completion -= 5
+      }),
+    ).toContain('job summary matches')
   })
 })

@@ -9,7 +9,15 @@ describe('runInWorker', () => {
   it('when a workshop is planned in a worker, then a valid plan comes back with progress on the way', async () => {
     const problem = generateWorkshop({ seed: 5, jobs: 15 })
     let reports = 0
-    const plan = await runInWorker(problem, { seed: 1, timeLimitMs: 300 }, { onProgress: () => { reports++ } })
+    const plan = await runInWorker(
+      problem,
+      { seed: 1, timeLimitMs: 300 },
+      {
+        onProgress: () => {
+          reports++
+        },
+      },
+    )
     expect(validatePlan(problem, plan)).toEqual([])
     expect(reports).toBeGreaterThan(0)
   })
@@ -27,7 +35,9 @@ describe('runInWorker', () => {
   it('when the signal is already aborted, then it rejects with an AbortError', async () => {
     const ac = new AbortController()
     ac.abort()
-    await expect(runInWorker(generateWorkshop({ seed: 1, jobs: 2 }), { seed: 1, timeLimitMs: 100 }, { signal: ac.signal })).rejects.toMatchObject({ name: 'AbortError' })
+    await expect(runInWorker(generateWorkshop({ seed: 1, jobs: 2 }), { seed: 1, timeLimitMs: 100 }, { signal: ac.signal })).rejects.toMatchObject({
+      name: 'AbortError',
+    })
   })
 
   it('when the input is bad, then the promise rejects with a SchedulingInputError', async () => {

@@ -261,7 +261,9 @@ beforeAll(async () => {
   anonymous = new Agent(t.app)
   await anonymous.refreshCsrf()
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 describe('access table', () => {
   it('when a route is declared, then it has an entry in the expected-access table', () => {
@@ -274,7 +276,10 @@ describe('access table', () => {
 
   it('when an entry is in the table, then the route still exists', () => {
     const declared = new Set(allRoutes.map(keyOf))
-    expect(Object.keys(EXPECTED_ACCESS).filter((k) => !declared.has(k)), 'Entries for routes that no longer exist: remove them from EXPECTED_ACCESS').toEqual([])
+    expect(
+      Object.keys(EXPECTED_ACCESS).filter((k) => !declared.has(k)),
+      'Entries for routes that no longer exist: remove them from EXPECTED_ACCESS',
+    ).toEqual([])
   })
 
   it('when a route declares its roles, then they equal the agreed access', () => {
@@ -282,14 +287,22 @@ describe('access table', () => {
       .filter((r) => keyOf(r) in EXPECTED_ACCESS)
       .filter((r) => JSON.stringify(norm(r.roles)) !== JSON.stringify(norm(EXPECTED_ACCESS[keyOf(r)]!)))
       .map((r) => `${keyOf(r)}: declared ${JSON.stringify(r.roles)}, agreed ${JSON.stringify(EXPECTED_ACCESS[keyOf(r)])}`)
-    expect(differ, 'Declared roles differ from the agreed access: fix the route\'s roles, or, if the change is intended, change EXPECTED_ACCESS on purpose').toEqual([])
+    expect(
+      differ,
+      "Declared roles differ from the agreed access: fix the route's roles, or, if the change is intended, change EXPECTED_ACCESS on purpose",
+    ).toEqual([])
   })
 
   it('when routes are declared, then no two share a method and path, and none is public except health, session, one-time links and reset requests', () => {
     const keys = allRoutes.map(keyOf)
     expect(keys.filter((k, i) => keys.indexOf(k) !== i)).toEqual([])
     const PUBLIC = ['/health', '/session', '/account-links/:token', '/password-reset']
-    expect(allRoutes.filter((r) => r.roles === 'public').map((r) => r.path).filter((p) => !PUBLIC.includes(p))).toEqual([])
+    expect(
+      allRoutes
+        .filter((r) => r.roles === 'public')
+        .map((r) => r.path)
+        .filter((p) => !PUBLIC.includes(p)),
+    ).toEqual([])
     for (const r of allRoutes) if (r.roles !== 'public') expect(r.roles.length, `${keyOf(r)} lists no role`).toBeGreaterThan(0)
   })
 })

@@ -21,7 +21,10 @@ beforeAll(async () => {
   fake.useDb(t.db)
   owner = await signedIn(t.app, 'owner')
 })
-afterAll(async () => { await t?.close(); await fake?.close() })
+afterAll(async () => {
+  await t?.close()
+  await fake?.close()
+})
 
 /** The one-time link's token from a received message (the path after /welcome/ or /new-password/). */
 function tokenIn(m: ReceivedMessage, path: 'welcome' | 'new-password'): string {
@@ -29,7 +32,8 @@ function tokenIn(m: ReceivedMessage, path: 'welcome' | 'new-password'): string {
   if (!found) throw new Error(`no ${path} link in: ${m.text}`)
   return found[1]!
 }
-const mailTo = (to: string, subject: RegExp, after = 0) => fake.waitFor((m) => m.to.includes(to) && subject.test(m.subject) && fake.messages.indexOf(m) >= after, 15_000)
+const mailTo = (to: string, subject: RegExp, after = 0) =>
+  fake.waitFor((m) => m.to.includes(to) && subject.test(m.subject) && fake.messages.indexOf(m) >= after, 15_000)
 
 async function sessionEmail(a: Agent): Promise<string | null> {
   return (await a.get('/api/session')).body.user?.email ?? null
@@ -52,7 +56,12 @@ describe('invitations', () => {
     expect(stored[0]!.tokenHash).toBe(createHash('sha256').update(token).digest('hex'))
     expect(JSON.stringify(await t.db.select().from(s.accountTokens))).not.toContain(token)
     // The outbox keeps the message without the link (staff read the outbox).
-    const kept = (await t.db.select({ text: s.outbox.text, html: s.outbox.html }).from(s.outbox).where(eq(s.outbox.id, Number(m.outboxId))))[0]!
+    const kept = (
+      await t.db
+        .select({ text: s.outbox.text, html: s.outbox.html })
+        .from(s.outbox)
+        .where(eq(s.outbox.id, Number(m.outboxId)))
+    )[0]!
     expect(kept.text).not.toContain(token)
     expect(kept.html).not.toContain(token)
     expect(kept.text).toContain('not kept here')
@@ -94,7 +103,10 @@ describe('invitations', () => {
 
     const r = await owner.post('/api/invitations', { email: 'late@quill.test', name: 'Late Comer', role: 'sales' })
     const token = tokenIn(await mailTo('late@quill.test', /invited/), 'welcome')
-    await t.db.update(s.accountTokens).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(s.accountTokens.id, r.body.id))
+    await t.db
+      .update(s.accountTokens)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .where(eq(s.accountTokens.id, r.body.id))
     const expired = await a.post(`/api/account-links/${token}`, { password: 'a good long password' })
     expectCleanError(expired, 410)
     expect(expired.body.details).toMatchObject({ reason: 'expired' })
@@ -158,7 +170,12 @@ describe('password reset', () => {
     await anon.post('/api/password-reset', { email: DEMO_EMAIL.sales })
     const m = await mailTo(DEMO_EMAIL.sales, /new Millgrain password/, before)
     const token = tokenIn(m, 'new-password')
-    const row = (await t.db.select({ expiresAt: s.accountTokens.expiresAt, createdAt: s.accountTokens.createdAt }).from(s.accountTokens).where(eq(s.accountTokens.tokenHash, createHash('sha256').update(token).digest('hex'))))[0]!
+    const row = (
+      await t.db
+        .select({ expiresAt: s.accountTokens.expiresAt, createdAt: s.accountTokens.createdAt })
+        .from(s.accountTokens)
+        .where(eq(s.accountTokens.tokenHash, createHash('sha256').update(token).digest('hex')))
+    )[0]!
     // Default lifetime 60 minutes.
     expect(Math.round((row.expiresAt.getTime() - row.createdAt.getTime()) / 1000)).toBe(3600)
     expect((await anon.get(`/api/account-links/${token}`)).body).toMatchObject({ kind: 'reset', email: DEMO_EMAIL.sales })
@@ -188,7 +205,10 @@ describe('password reset', () => {
     await anon.post('/api/password-reset', { email: DEMO_EMAIL.bench })
     const second = tokenIn(await mailTo(DEMO_EMAIL.bench, /new Millgrain password/, before), 'new-password')
     expect((await anon.get(`/api/account-links/${first}`)).body.details).toMatchObject({ reason: 'withdrawn' })
-    await t.db.update(s.accountTokens).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(s.accountTokens.tokenHash, createHash('sha256').update(second).digest('hex')))
+    await t.db
+      .update(s.accountTokens)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .where(eq(s.accountTokens.tokenHash, createHash('sha256').update(second).digest('hex')))
     const expired = await anon.post(`/api/account-links/${second}`, { password: 'a brand new password' })
     expectCleanError(expired, 410)
     expect(expired.body.details).toMatchObject({ reason: 'expired' })
@@ -236,7 +256,8 @@ describe('bench station and PINs', () => {
   let setA: number
   let ines: number
   let hand: number
-  const asPerson = (token: string, path: string, body: object) => station.agent.post(path).set('x-csrf-token', station.csrf).set('x-bench-person', token).send(body)
+  const asPerson = (token: string, path: string, body: object) =>
+    station.agent.post(path).set('x-csrf-token', station.csrf).set('x-bench-person', token).send(body)
 
   beforeAll(async () => {
     setA = await benchId(t, 'Setting bench A')
@@ -296,7 +317,11 @@ describe('bench station and PINs', () => {
     expect(claim.body.operation).toMatchObject({ status: 'claimed', claimedBy: ines, claimedByName: 'Ines Harrowby' })
     const [a] = await auditRows(t, 'operation', op.id)
     // Ines has her own account, so the audit row is hers; the station and the acting person are named too.
-    expect(a).toMatchObject({ action: 'claim', user_id: await userIdOf(t, DEMO_EMAIL.bench), details: expect.objectContaining({ personId: ines, actingPersonId: ines, actingPersonName: 'Ines Harrowby', station: 'Setting bench A' }) })
+    expect(a).toMatchObject({
+      action: 'claim',
+      user_id: await userIdOf(t, DEMO_EMAIL.bench),
+      details: expect.objectContaining({ personId: ines, actingPersonId: ines, actingPersonName: 'Ines Harrowby', station: 'Setting bench A' }),
+    })
     // The PIN session ended with the action: the next tap needs a PIN again.
     const next = await asPerson(pin.body.token, `/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
     expectCleanError(next, 403)
@@ -317,12 +342,18 @@ describe('bench station and PINs', () => {
     expect(a2!.details).toMatchObject({ personId: hand, actingPersonName: 'Tomas Vane', station: 'Setting bench A' })
     // The job bag's history names him, not the manager who set the station up.
     const bag = (await owner.get(`/api/job-bags/${op2.job_bag_id}`)).body
-    expect(bag.history.find((h: { action: string; operationId: number | null }) => h.action === 'claim' && h.operationId === op2.id)).toMatchObject({ who: 'Tomas Vane' })
+    expect(bag.history.find((h: { action: string; operationId: number | null }) => h.action === 'claim' && h.operationId === op2.id)).toMatchObject({
+      who: 'Tomas Vane',
+    })
   })
 
   it('when the next person enters their PIN while the tablet still sends the last token, then the new PIN session is the one that stays', async () => {
     const first = await station.post('/api/bench-station/pin', { personId: ines, pin: '4821' })
-    const second = await station.agent.post('/api/bench-station/pin').set('x-csrf-token', station.csrf).set('x-bench-person', first.body.token).send({ personId: hand, pin: '907153' })
+    const second = await station.agent
+      .post('/api/bench-station/pin')
+      .set('x-csrf-token', station.csrf)
+      .set('x-bench-person', first.body.token)
+      .send({ personId: hand, pin: '907153' })
     expect(second.status, JSON.stringify(second.body)).toBe(200)
     const mine = await station.agent.get('/api/bench/mine').set('x-bench-person', second.body.token)
     expect(mine.body.person).toMatchObject({ id: hand })
@@ -333,7 +364,9 @@ describe('bench station and PINs', () => {
   it('when the PIN time runs out, then the token is refused', async () => {
     const pin = await station.post('/api/bench-station/pin', { personId: ines, pin: '4821' })
     // Raw SQL on purpose: the session table belongs to connect-pg-simple, not to our schema.
-    const { rows: [stored] } = await t.pool.query(`select sid, sess from user_sessions where sess::jsonb -> 'station' is not null`)
+    const {
+      rows: [stored],
+    } = await t.pool.query(`select sid, sess from user_sessions where sess::jsonb -> 'station' is not null`)
     const sess = stored.sess
     sess.benchPerson.expiresAt = Date.now() - 1000
     await t.pool.query(`update user_sessions set sess = $1 where sid = $2`, [sess, stored.sid])

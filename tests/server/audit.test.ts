@@ -23,13 +23,25 @@ beforeAll(async () => {
   setter = await signedIn(t.app, 'bench')
   for (const r of ['owner', 'manager', 'bench'] as const) who[r] = await userIdOf(t, DEMO_EMAIL[r])
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
-interface Row { action: string; entity: string; entity_id: number | null; user_id: number | null; details: Record<string, any>; at: Date }
+interface Row {
+  action: string
+  entity: string
+  entity_id: number | null
+  user_id: number | null
+  details: Record<string, any>
+  at: Date
+}
 async function rows(entity: string, entityId: number, action?: string): Promise<Row[]> {
   const a = s.auditLog
-  return t.db.select({ action: a.action, entity: a.entity, entity_id: a.entityId, user_id: a.userId, details: a.details, at: a.at })
-    .from(a).where(and(eq(a.entity, entity), eq(a.entityId, entityId), action ? eq(a.action, action) : undefined)).orderBy(desc(a.id))
+  return t.db
+    .select({ action: a.action, entity: a.entity, entity_id: a.entityId, user_id: a.userId, details: a.details, at: a.at })
+    .from(a)
+    .where(and(eq(a.entity, entity), eq(a.entityId, entityId), action ? eq(a.action, action) : undefined))
+    .orderBy(desc(a.id))
 }
 
 async function draft(): Promise<number> {
@@ -48,14 +60,27 @@ describe('plans', () => {
     expect(await rows('plan', first, 'publish')).toMatchObject([{ user_id: who.manager }])
 
     const o = s.operations
-    const op = (await t.db.select({ id: o.id, version: o.version, planned_start: o.plannedStart, planned_bench_id: o.plannedBenchId }).from(o)
-      .where(and(isNotNull(o.plannedStart), inArray(o.status, ['pending', 'ready']))).orderBy(asc(o.id)).limit(1))[0]!
+    const op = (
+      await t.db
+        .select({ id: o.id, version: o.version, planned_start: o.plannedStart, planned_bench_id: o.plannedBenchId })
+        .from(o)
+        .where(and(isNotNull(o.plannedStart), inArray(o.status, ['pending', 'ready'])))
+        .orderBy(asc(o.id))
+        .limit(1)
+    )[0]!
     const pin = await manager.patch(`/api/board/operations/${op.id}`, { pinned: true, version: op.version })
     expect(pin.status, JSON.stringify(pin.body)).toBe(200)
     expect((await rows('operation', op.id, 'pin'))[0]).toMatchObject({ user_id: who.manager, details: { pinned: true } })
-    const move = await manager.patch(`/api/board/operations/${op.id}`, { start: new Date(op.planned_start!).toISOString(), benchId: op.planned_bench_id, version: pin.body.version })
+    const move = await manager.patch(`/api/board/operations/${op.id}`, {
+      start: new Date(op.planned_start!).toISOString(),
+      benchId: op.planned_bench_id,
+      version: pin.body.version,
+    })
     expect(move.status, JSON.stringify(move.body)).toBe(200)
-    expect((await rows('operation', op.id, 'move'))[0]).toMatchObject({ user_id: who.manager, details: { benchId: op.planned_bench_id, start: expect.any(String) } })
+    expect((await rows('operation', op.id, 'move'))[0]).toMatchObject({
+      user_id: who.manager,
+      details: { benchId: op.planned_bench_id, start: expect.any(String) },
+    })
 
     // The planner offers a draft only when it beats the live plan: empty the live plan's unpinned bars first.
     await unplanOpenSteps(t.db)
@@ -77,7 +102,11 @@ describe('time records', () => {
       expect((await rows('operation', op!.id, step))[0], step).toMatchObject({ user_id: who.bench })
     }
     const add = await manager.post(`/api/operations/${op!.id}/time-records`, {
-      personId: setterPerson, benchId: setA, startedAt: '2026-01-05T09:00:00Z', endedAt: '2026-01-05T09:40:00Z', reason: 'forgot to tap start on Monday',
+      personId: setterPerson,
+      benchId: setA,
+      startedAt: '2026-01-05T09:00:00Z',
+      endedAt: '2026-01-05T09:40:00Z',
+      reason: 'forgot to tap start on Monday',
     })
     expect(add.status, JSON.stringify(add.body)).toBe(201)
     const added = (await rows('operation', op!.id, 'add-time'))[0]!
@@ -85,7 +114,10 @@ describe('time records', () => {
     const recordId = added.details.timeRecordId as number
     const fix = await manager.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2026-01-05T09:30:00Z', reason: 'left for lunch at half past' })
     expect(fix.status, JSON.stringify(fix.body)).toBe(201)
-    expect((await rows('operation', op!.id, 'correct-time'))[0]).toMatchObject({ user_id: who.manager, details: { timeRecordId: recordId, reason: 'left for lunch at half past' } })
+    expect((await rows('operation', op!.id, 'correct-time'))[0]).toMatchObject({
+      user_id: who.manager,
+      details: { timeRecordId: recordId, reason: 'left for lunch at half past' },
+    })
     const voided = await manager.post(`/api/time-records/${recordId}/corrections`, { void: true, reason: 'double booking' })
     expect(voided.status).toBe(201)
     expect((await rows('operation', op!.id, 'void-time'))[0]).toMatchObject({ user_id: who.manager, details: { to: 'void' } })
@@ -95,10 +127,21 @@ describe('time records', () => {
 describe('estimates', () => {
   it('when a step estimate is changed on a job bag and the owner accepts new template minutes, then both are audited with from, to and why', async () => {
     const o = s.operations
-    const op = (await t.db.select({ id: o.id, version: o.version, job_bag_id: o.jobBagId, estimate_minutes: o.estimateMinutes }).from(o)
-      .innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-      .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending'))).orderBy(asc(o.id)).limit(1))[0]!
-    const r = await manager.patch(`/api/job-bags/${op.job_bag_id}/operations/${op.id}`, { estimateMinutes: Number(op.estimate_minutes) + 30, reason: 'heavier casting than usual', version: op.version })
+    const op = (
+      await t.db
+        .select({ id: o.id, version: o.version, job_bag_id: o.jobBagId, estimate_minutes: o.estimateMinutes })
+        .from(o)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId))
+        .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+        .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending')))
+        .orderBy(asc(o.id))
+        .limit(1)
+    )[0]!
+    const r = await manager.patch(`/api/job-bags/${op.job_bag_id}/operations/${op.id}`, {
+      estimateMinutes: Number(op.estimate_minutes) + 30,
+      reason: 'heavier casting than usual',
+      version: op.version,
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     const step = (await rows('operation', op.id, 'update-step'))[0]
     expect(step).toMatchObject({ user_id: who.manager })
@@ -107,7 +150,14 @@ describe('estimates', () => {
 
     const tpl = (await owner.get('/api/templates')).body[0]
     const s0 = tpl.steps[0]
-    const acc = await owner.post('/api/estimates/accept', { templateId: tpl.id, stepKey: s0.key, baseMinutes: s0.baseMinutes + 5, perStoneMinutes: s0.perStoneMinutes, templateVersion: tpl.version, reason: 'our own times say so' })
+    const acc = await owner.post('/api/estimates/accept', {
+      templateId: tpl.id,
+      stepKey: s0.key,
+      baseMinutes: s0.baseMinutes + 5,
+      perStoneMinutes: s0.perStoneMinutes,
+      templateVersion: tpl.version,
+      reason: 'our own times say so',
+    })
     expect(acc.status, JSON.stringify(acc.body)).toBe(200)
     const a = (await rows('routing-template', tpl.id, 'accept-estimate'))[0]
     expect(a).toMatchObject({ user_id: who.owner })
@@ -125,7 +175,9 @@ describe('users', () => {
     expect(u.status, JSON.stringify(u.body)).toBe(200)
     const [upd] = await rows('user', c.body.id, 'update')
     expect(upd).toMatchObject({ user_id: who.owner, details: { role: 'sales', password: 'changed' } })
-    const all = (await t.db.select({ details: s.auditLog.details }).from(s.auditLog).where(eq(s.auditLog.entity, 'user'))).map((r) => ({ d: JSON.stringify(r.details) }))
+    const all = (await t.db.select({ details: s.auditLog.details }).from(s.auditLog).where(eq(s.auditLog.entity, 'user'))).map((r) => ({
+      d: JSON.stringify(r.details),
+    }))
     for (const r of all) {
       expect(r.d).not.toContain(password)
       expect(r.d).not.toContain('another-long-secret-43')
@@ -135,7 +187,7 @@ describe('users', () => {
 })
 
 describe('the audit log itself', () => {
-  it('when the route list is read, then no route writes, edits or deletes audit rows, and any route that reads them is the owner\'s', () => {
+  it("when the route list is read, then no route writes, edits or deletes audit rows, and any route that reads them is the owner's", () => {
     const auditRoutes = allRoutes.filter((r) => /audit/i.test(r.path))
     expect(auditRoutes.filter((r) => r.method !== 'get').map((r) => `${r.method} ${r.path}`)).toEqual([])
     for (const r of auditRoutes) expect(r.roles, `${r.method} ${r.path}`).toEqual(['owner'])
@@ -143,8 +195,21 @@ describe('the audit log itself', () => {
 
   it('when every write route is called by the owner with placeholder input, then the rows already in the audit log are unchanged', async () => {
     const a = s.auditLog
-    const read = (upTo?: number) => t.db.select({ id: a.id, action: a.action, entity: a.entity, entityId: a.entityId, userId: a.userId, workshopId: a.workshopId, details: a.details, at: a.at })
-      .from(a).where(upTo === undefined ? undefined : lte(a.id, upTo)).orderBy(asc(a.id))
+    const read = (upTo?: number) =>
+      t.db
+        .select({
+          id: a.id,
+          action: a.action,
+          entity: a.entity,
+          entityId: a.entityId,
+          userId: a.userId,
+          workshopId: a.workshopId,
+          details: a.details,
+          at: a.at,
+        })
+        .from(a)
+        .where(upTo === undefined ? undefined : lte(a.id, upTo))
+        .orderBy(asc(a.id))
     const before = await read()
     for (const r of allRoutes.filter((x) => x.method !== 'get' && x.path !== '/session')) {
       const path = `/api${r.path.replace(/:[a-zA-Z]+/g, '1')}`

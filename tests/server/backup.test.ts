@@ -10,7 +10,20 @@ import { startCluster, stopCluster } from '../../scripts/pg'
 import { createTestDb, type TestDb } from '../setup/db'
 
 const root = resolve(import.meta.dirname, '../..')
-const KEY_TABLES = ['workshops', 'users', 'benches', 'people', 'person_skills', 'routing_templates', 'template_steps', 'customers', 'orders', 'job_bags', 'operations', 'time_records']
+const KEY_TABLES = [
+  'workshops',
+  'users',
+  'benches',
+  'people',
+  'person_skills',
+  'routing_templates',
+  'template_steps',
+  'customers',
+  'orders',
+  'job_bags',
+  'operations',
+  'time_records',
+]
 
 async function fingerprint(url: string) {
   const c = new pg.Client({ connectionString: url })
@@ -29,7 +42,9 @@ async function fingerprint(url: string) {
 let src: TestDb
 const dataDir = join(root, '.data', `restore-${randomBytes(4).toString('hex')}`)
 const port = 55000 + Math.floor(Math.random() * 900)
-beforeAll(async () => { src = await createTestDb() })
+beforeAll(async () => {
+  src = await createTestDb()
+})
 afterAll(async () => {
   stopCluster(join(dataDir, 'pg'))
   rmSync(dataDir, { recursive: true, force: true })
@@ -42,7 +57,11 @@ describe('backup and restore', () => {
     const { bytes } = backupDatabase({ port: Number(process.env.TEST_PG_PORT), database: new URL(src.url).pathname.slice(1), file })
     expect(bytes).toBeGreaterThan(10_000)
     // The real command, on a cluster that does not exist yet.
-    const r = spawnSync(join(root, 'node_modules/.bin/tsx'), ['scripts/db-restore.ts', file], { cwd: root, encoding: 'utf8', env: { ...process.env, MILLGRAIN_DATA_DIR: dataDir, PG_PORT: String(port) } })
+    const r = spawnSync(join(root, 'node_modules/.bin/tsx'), ['scripts/db-restore.ts', file], {
+      cwd: root,
+      encoding: 'utf8',
+      env: { ...process.env, MILLGRAIN_DATA_DIR: dataDir, PG_PORT: String(port) },
+    })
     expect(r.status, r.stderr + r.stdout).toBe(0)
     expect(r.stdout).toMatch(/restored/)
     await startCluster({ dataDir: join(dataDir, 'pg'), port, durable: true })
@@ -53,7 +72,11 @@ describe('backup and restore', () => {
     expect(restored).toEqual(original)
     stopCluster(join(dataDir, 'pg'))
     // Restoring over data is refused rather than mixing two workshops' rows.
-    const again = spawnSync(join(root, 'node_modules/.bin/tsx'), ['scripts/db-restore.ts', file], { cwd: root, encoding: 'utf8', env: { ...process.env, MILLGRAIN_DATA_DIR: dataDir, PG_PORT: String(port) } })
+    const again = spawnSync(join(root, 'node_modules/.bin/tsx'), ['scripts/db-restore.ts', file], {
+      cwd: root,
+      encoding: 'utf8',
+      env: { ...process.env, MILLGRAIN_DATA_DIR: dataDir, PG_PORT: String(port) },
+    })
     expect(again.status).not.toBe(0)
     expect(again.stderr).toMatch(/not empty/)
   })

@@ -17,11 +17,26 @@ export async function personIdOf(t: TestApp, email: string): Promise<number> {
 }
 
 /** Open-order operations of one kind (optionally of one template step key), earliest due first. */
-export async function openOps(t: TestApp, kind: string, o: { key?: string; status?: string } = {}): Promise<{ id: number; key: string; job_bag_id: number; required_level: number }[]> {
+export async function openOps(
+  t: TestApp,
+  kind: string,
+  o: { key?: string; status?: string } = {},
+): Promise<{ id: number; key: string; job_bag_id: number; required_level: number }[]> {
   const o2 = s.operations
-  return t.db.select({ id: o2.id, key: o2.key, job_bag_id: o2.jobBagId, required_level: o2.requiredLevel })
-    .from(o2).innerJoin(s.operationKinds, eq(s.operationKinds.id, o2.kindId)).innerJoin(s.jobBags, eq(s.jobBags.id, o2.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-    .where(and(eq(s.operationKinds.code, kind), eq(s.orders.status, 'open'), o.key == null ? undefined : eq(o2.key, o.key), o.status == null ? undefined : eq(o2.status, o.status)))
+  return t.db
+    .select({ id: o2.id, key: o2.key, job_bag_id: o2.jobBagId, required_level: o2.requiredLevel })
+    .from(o2)
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, o2.kindId))
+    .innerJoin(s.jobBags, eq(s.jobBags.id, o2.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .where(
+      and(
+        eq(s.operationKinds.code, kind),
+        eq(s.orders.status, 'open'),
+        o.key == null ? undefined : eq(o2.key, o.key),
+        o.status == null ? undefined : eq(o2.status, o.status),
+      ),
+    )
     .orderBy(asc(s.orders.dueDate), asc(s.jobBags.number), asc(o2.seq))
 }
 
@@ -43,12 +58,14 @@ export async function extraSetters(t: TestApp, n: number, tag: string): Promise<
     const personId = await addPerson(t.db, { workshopId, name, userId: u!.id, skills: { codes: ['setting', 'drilling', 'inspection'], level: 3 } })
     out.push({ agent: null as unknown as Agent, personId, name })
   }
-  await Promise.all(out.map(async (x, i) => {
-    const a = new Agent(t.app)
-    const r = await a.signIn(`setter-${tag}-${i + 1}@bench.test`, 'bench-test-password')
-    if (r.status !== 200) throw new Error(`sign-in failed: ${r.status}`)
-    x.agent = a
-  }))
+  await Promise.all(
+    out.map(async (x, i) => {
+      const a = new Agent(t.app)
+      const r = await a.signIn(`setter-${tag}-${i + 1}@bench.test`, 'bench-test-password')
+      if (r.status !== 200) throw new Error(`sign-in failed: ${r.status}`)
+      x.agent = a
+    }),
+  )
   return out
 }
 

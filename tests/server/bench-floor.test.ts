@@ -29,15 +29,18 @@ beforeAll(async () => {
   fab1 = await benchId(t, 'Fabrication bench 1')
   setterPerson = await personIdOf(t, 'setter@wrenfield.test')
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
-const records = async (operationId: number) => t.db.select().from(s.timeRecords).where(eq(s.timeRecords.operationId, operationId)).orderBy(asc(s.timeRecords.id))
+const records = async (operationId: number) =>
+  t.db.select().from(s.timeRecords).where(eq(s.timeRecords.operationId, operationId)).orderBy(asc(s.timeRecords.id))
 const opRow = async (id: number) => (await t.db.select().from(s.operations).where(eq(s.operations.id, id)))[0]!
 const ago = (minutes: number) => new Date(Date.now() - minutes * 60_000).toISOString()
 const setOp = (id: number, v: Partial<typeof s.operations.$inferInsert>) => t.db.update(s.operations).set(v).where(eq(s.operations.id, id))
 const setRecord = (id: number, v: Partial<typeof s.timeRecords.$inferInsert>) => t.db.update(s.timeRecords).set(v).where(eq(s.timeRecords.id, id))
 const setBag = (id: number, v: Partial<typeof s.jobBags.$inferInsert>) => t.db.update(s.jobBags).set(v).where(eq(s.jobBags.id, id))
-const mergeParams = async (id: number, extra: Partial<typeof s.jobBags.$inferSelect['params']>) => {
+const mergeParams = async (id: number, extra: Partial<(typeof s.jobBags.$inferSelect)['params']>) => {
   const [b] = await t.db.select({ params: s.jobBags.params }).from(s.jobBags).where(eq(s.jobBags.id, id))
   await setBag(id, { params: { ...b!.params, ...extra } })
 }
@@ -46,11 +49,27 @@ describe('next for me', () => {
   it('when a predecessor has just finished and its wait-after is still running, then the step is not offered and cannot be taken yet', async () => {
     // Pavé pendant: "File and emery" follows "Solder bail", which has a 20 min pickle wait after it (seeded routing).
     const files = await openOps(t, 'filing', { key: 'file', status: 'pending' })
-    const soldered = await t.db.select({ jobBagId: s.operations.jobBagId }).from(s.operations).where(and(eq(s.operations.key, 'solder'), inArray(s.operations.jobBagId, files.map((f) => f.job_bag_id))))
+    const soldered = await t.db
+      .select({ jobBagId: s.operations.jobBagId })
+      .from(s.operations)
+      .where(
+        and(
+          eq(s.operations.key, 'solder'),
+          inArray(
+            s.operations.jobBagId,
+            files.map((f) => f.job_bag_id),
+          ),
+        ),
+      )
     const file = files.find((f) => soldered.some((x) => x.jobBagId === f.job_bag_id))!
     expect(file, 'an open pavé pendant whose "File and emery" is still pending').toBeDefined()
     await makeReady(t, file.id)
-    const solder = (await t.db.select({ id: s.operations.id, waitAfterMinutes: s.operations.waitAfterMinutes }).from(s.operations).where(and(eq(s.operations.jobBagId, file.job_bag_id), eq(s.operations.key, 'solder'))))[0]!
+    const solder = (
+      await t.db
+        .select({ id: s.operations.id, waitAfterMinutes: s.operations.waitAfterMinutes })
+        .from(s.operations)
+        .where(and(eq(s.operations.jobBagId, file.job_bag_id), eq(s.operations.key, 'solder')))
+    )[0]!
     expect(solder.waitAfterMinutes).toBeGreaterThan(0)
     await setOp(solder.id, { finishedAt: ago(0) })
     const next = await trainee.get(`/api/bench/next?benchId=${fab1}`)
@@ -81,7 +100,13 @@ describe('next for me', () => {
     const unplanned = items.filter((x) => !x.plannedStart)
     expect(unplanned.length, 'at least the three steps made ready have no planned start').toBeGreaterThanOrEqual(3)
     // Sorted here by that rule, apart from the server: the unplanned steps keep exactly this order.
-    const byRule = [...unplanned].sort((a, b) => (a.dueDate < b.dueDate ? -1 : a.dueDate > b.dueDate ? 1 : b.priority - a.priority || (a.jobBagNumber < b.jobBagNumber ? -1 : a.jobBagNumber > b.jobBagNumber ? 1 : 0)))
+    const byRule = [...unplanned].sort((a, b) =>
+      a.dueDate < b.dueDate
+        ? -1
+        : a.dueDate > b.dueDate
+          ? 1
+          : b.priority - a.priority || (a.jobBagNumber < b.jobBagNumber ? -1 : a.jobBagNumber > b.jobBagNumber ? 1 : 0),
+    )
     expect(unplanned.map((x) => [x.dueDate, x.priority, x.jobBagNumber])).toEqual(byRule.map((x) => [x.dueDate, x.priority, x.jobBagNumber]))
     expect(items.every((x) => x.status === 'ready' && ['setting', 'inspection'].includes(x.kindCode))).toBe(true)
     const tr = await trainee.get(`/api/bench/next?benchId=${setA}`)
@@ -194,15 +219,22 @@ describe('claim → start → pause → resume → finish', () => {
     expect(r.body.operation.actualMinutes).toBeLessThan(36)
     const after = await records(op.id)
     expect(after[1]).toMatchObject({ endReason: 'finished', note: 'all stones tight' })
-    const successor = await t.db.select({ id: s.operations.id, status: s.operations.status }).from(s.operations).where(and(eq(s.operations.jobBagId, op.job_bag_id), arrayContains(s.operations.after, [op.key])))
+    const successor = await t.db
+      .select({ id: s.operations.id, status: s.operations.status })
+      .from(s.operations)
+      .where(and(eq(s.operations.jobBagId, op.job_bag_id), arrayContains(s.operations.after, [op.key])))
     expect(successor.length).toBeGreaterThan(0)
     for (const s of successor) expect(s.status).toBe('ready')
     expect(r.body.readied.sort()).toEqual(successor.map((x) => x.id).sort())
-    for (const s of successor) expect(emit).toHaveBeenCalledWith(expect.any(Number), 'operation:changed', expect.objectContaining({ id: s.id, status: 'ready' }))
+    for (const s of successor)
+      expect(emit).toHaveBeenCalledWith(expect.any(Number), 'operation:changed', expect.objectContaining({ id: s.id, status: 'ready' }))
     emit.mockRestore()
     const actions = (await auditRows(t, 'operation', op.id)).map((a) => a.action).reverse()
     expect(actions).toEqual(['claim', 'start', 'pause', 'resume', 'finish'])
-    expect((await auditRows(t, 'operation', successor[0]!.id))[0]).toMatchObject({ action: 'ready', details: expect.objectContaining({ from: 'pending', to: 'ready' }) })
+    expect((await auditRows(t, 'operation', successor[0]!.id))[0]).toMatchObject({
+      action: 'ready',
+      details: expect.objectContaining({ from: 'pending', to: 'ready' }),
+    })
   })
 
   it('when the planner reads a finished step, then it knows when the step finished (its last record), so a wait after it still holds', async () => {
@@ -302,7 +334,10 @@ describe('hazardous steps', () => {
     expect(await records(polish.id)).toEqual([])
     const ok = await ruth.post(`/api/bench/operations/${polish.id}/start`, { requestId: rid(), benchId: polishing, acknowledgeHazards: true })
     expect(ok.status).toBe(200)
-    expect((await auditRows(t, 'operation', polish.id))[0]).toMatchObject({ action: 'start', details: expect.objectContaining({ acknowledgedHazards: ['lathe'] }) })
+    expect((await auditRows(t, 'operation', polish.id))[0]).toMatchObject({
+      action: 'start',
+      details: expect.objectContaining({ acknowledgedHazards: ['lathe'] }),
+    })
   })
 })
 
@@ -370,8 +405,16 @@ describe('50 claims at once', () => {
     expect(row).toMatchObject({ status: 'claimed', claimedBy: winner.personId })
     expect((await auditRows(t, 'operation', op.id)).filter((a) => a.action === 'claim')).toHaveLength(claimsBefore + 1)
     expect(await records(op.id)).toEqual([])
-    const stored = await t.db.select({ status: s.benchRequests.status, n: count() }).from(s.benchRequests).where(inArray(s.benchRequests.requestId, requestIds)).groupBy(s.benchRequests.status).orderBy(asc(s.benchRequests.status))
-    expect(stored, JSON.stringify(stored)).toEqual([{ status: 200, n: 1 }, { status: 409, n: 49 }])
+    const stored = await t.db
+      .select({ status: s.benchRequests.status, n: count() })
+      .from(s.benchRequests)
+      .where(inArray(s.benchRequests.requestId, requestIds))
+      .groupBy(s.benchRequests.status)
+      .orderBy(asc(s.benchRequests.status))
+    expect(stored, JSON.stringify(stored)).toEqual([
+      { status: 200, n: 1 },
+      { status: 409, n: 49 },
+    ])
   })
 })
 
@@ -389,7 +432,10 @@ describe('time record corrections', () => {
   })
 
   it('when a manager corrects the end of a record, then the actual minutes use it, the record itself is unchanged, and who and why are kept', async () => {
-    const r = await manager.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2025-01-07T10:30:00Z', reason: 'forgot to pause at lunch; worked till half ten' })
+    const r = await manager.post(`/api/time-records/${recordId}/corrections`, {
+      endedAt: '2025-01-07T10:30:00Z',
+      reason: 'forgot to pause at lunch; worked till half ten',
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     // 09:00 → 10:30 = 90 minutes.
     expect(r.body).toMatchObject({ minutes: 90, recordedEndedAt: '2025-01-07T09:10:00.000Z', endedAt: '2025-01-07T10:30:00.000Z' })
@@ -408,7 +454,14 @@ describe('time record corrections', () => {
   })
 
   it('when a manager adds a missing record, then it counts and is marked as added with the reason', async () => {
-    const r = await manager.post(`/api/operations/${opId}/time-records`, { personId: setterPerson, benchId: setA, startedAt: '2025-01-08T09:00:00Z', endedAt: '2025-01-08T09:45:00Z', endReason: 'end-of-day', reason: 'tablet was flat' })
+    const r = await manager.post(`/api/operations/${opId}/time-records`, {
+      personId: setterPerson,
+      benchId: setA,
+      startedAt: '2025-01-08T09:00:00Z',
+      endedAt: '2025-01-08T09:45:00Z',
+      endReason: 'end-of-day',
+      reason: 'tablet was flat',
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.minutes).toBe(45)
     expect(r.body.corrections[0]).toMatchObject({ kind: 'add', reason: 'tablet was flat' })
@@ -423,8 +476,23 @@ describe('time record corrections', () => {
 
   it('when a correction has no reason or ends before it starts, then 400 names the field; a bench user may not correct', async () => {
     expectFieldError(await manager.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2025-01-07T10:30:00Z' }), 'reason')
-    expectFieldError(await manager.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2025-01-07T08:00:00Z', startedAt: '2025-01-07T09:00:00Z', reason: 'typo fix' }), 'endedAt')
-    expectFieldError(await manager.post(`/api/operations/${opId}/time-records`, { personId: setterPerson, startedAt: '2025-01-08T09:00:00Z', endedAt: '2025-01-08T08:00:00Z', reason: 'x-y-z' }), 'endedAt')
+    expectFieldError(
+      await manager.post(`/api/time-records/${recordId}/corrections`, {
+        endedAt: '2025-01-07T08:00:00Z',
+        startedAt: '2025-01-07T09:00:00Z',
+        reason: 'typo fix',
+      }),
+      'endedAt',
+    )
+    expectFieldError(
+      await manager.post(`/api/operations/${opId}/time-records`, {
+        personId: setterPerson,
+        startedAt: '2025-01-08T09:00:00Z',
+        endedAt: '2025-01-08T08:00:00Z',
+        reason: 'x-y-z',
+      }),
+      'endedAt',
+    )
     expectCleanError(await setter.post(`/api/time-records/${recordId}/corrections`, { endedAt: '2025-01-07T10:30:00Z', reason: 'my own fix' }), 403)
   })
 })
@@ -468,7 +536,13 @@ describe('what a running card shows', () => {
   it('when a setter starts setting a bag of 3 pieces with 14 stones of 1.25 mm each, then the operation carries 14 a piece × 3 = 42 stones, their size and the step’s planned minutes', async () => {
     const op = await freshReady(t, 'setting', 'set')
     await mergeParams(op.job_bag_id, { stoneCount: 14, stoneSizeMm: 1.25, quantity: 3 })
-    const row = (await t.db.select({ estimateMinutes: s.operations.estimateMinutes, params: s.jobBags.params }).from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).where(eq(s.operations.id, op.id)))[0]!
+    const row = (
+      await t.db
+        .select({ estimateMinutes: s.operations.estimateMinutes, params: s.jobBags.params })
+        .from(s.operations)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+        .where(eq(s.operations.id, op.id))
+    )[0]!
     const [card] = await extraSetters(t, 1, 'card')
     expect((await card!.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })).status).toBe(200)
     const r = await card!.agent.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })

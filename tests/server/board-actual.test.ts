@@ -18,13 +18,21 @@ beforeAll(async () => {
   t = await createTestApp()
   manager = await signedIn(t.app, 'manager')
 })
-afterAll(async () => { await t.close() })
+afterAll(async () => {
+  await t.close()
+})
 
 describe('finished work on the board', () => {
   it('when a step was finished with corrected and voided records, then the board draws it from its first start to its last finish with the minutes worked', async () => {
     const op = await readyBenchStep()
     const add = (startedAt: string, endedAt: string) =>
-      manager.post(`/api/operations/${op.id}/time-records`, { personId: op.personId, benchId: op.benchId, startedAt, endedAt, reason: 'forgot to tap at the bench' })
+      manager.post(`/api/operations/${op.id}/time-records`, {
+        personId: op.personId,
+        benchId: op.benchId,
+        startedAt,
+        endedAt,
+        reason: 'forgot to tap at the bench',
+      })
     // Wednesday 25 November 2026 (GMT, so London time equals UTC):
     //   record 1 09:10–10:45                      = 95 min
     //   record 2 written 11:00–12:30, corrected to 11:05–12:20 = 75 min
@@ -34,7 +42,15 @@ describe('finished work on the board', () => {
     const r2 = await add('2026-11-25T11:00:00Z', '2026-11-25T12:30:00Z')
     const r3 = await add('2026-11-25T13:30:00Z', '2026-11-25T14:40:00Z')
     for (const r of [r1, r2, r3]) expect(r.status, JSON.stringify(r.body)).toBe(201)
-    expect((await manager.post(`/api/time-records/${r2.body.id}/corrections`, { startedAt: '2026-11-25T11:05:00Z', endedAt: '2026-11-25T12:20:00Z', reason: 'tapped late and early' })).status).toBe(201)
+    expect(
+      (
+        await manager.post(`/api/time-records/${r2.body.id}/corrections`, {
+          startedAt: '2026-11-25T11:05:00Z',
+          endedAt: '2026-11-25T12:20:00Z',
+          reason: 'tapped late and early',
+        })
+      ).status,
+    ).toBe(201)
     expect((await manager.post(`/api/time-records/${r3.body.id}/corrections`, { void: true, reason: 'tapped on the wrong job' })).status).toBe(201)
     await setOp(op.id, { status: 'done', finishedAt: '2026-11-25T12:20:00Z', plannedStart: '2026-11-25T09:00:00Z', plannedEnd: '2026-11-25T11:30:00Z' })
 
@@ -55,14 +71,19 @@ describe('finished work on the board', () => {
 
     // The same figures straight from the database, corrections applied by hand in SQL (newest change wins, voided left out).
     // Raw SQL on purpose: an independent reckoning of the records the board is checked against, not a fixture.
-    const { rows: [db] } = await t.pool.query(`
+    const {
+      rows: [db],
+    } = await t.pool.query(
+      `
       with eff as (
         select tr.id,
                coalesce(c.started_at, tr.started_at) as s, coalesce(c.ended_at, tr.ended_at) as e, coalesce(c.kind, '') as kind
           from time_records tr
           left join lateral (select * from time_record_corrections x where x.time_record_id = tr.id and x.kind <> 'add' order by x.id desc limit 1) c on true
          where tr.operation_id = $1)
-      select min(s) as first, max(e) as last, sum(extract(epoch from e - s) / 60) as minutes, count(*) as n from eff where kind <> 'void'`, [op.id])
+      select min(s) as first, max(e) as last, sum(extract(epoch from e - s) / 60) as minutes, count(*) as n from eff where kind <> 'void'`,
+      [op.id],
+    )
     expect(new Date(db.first).toISOString()).toBe(bar.actual.start)
     expect(new Date(db.last).toISOString()).toBe(bar.actual.end)
     expect(Number(db.minutes)).toBe(bar.actual.workedMinutes)
@@ -74,8 +95,15 @@ describe('finished work on the board', () => {
   })
 
   it('when a finished step is moved, then the move is refused because it is done; a step of a collected order is refused too', async () => {
-    const stepOf = (...where: Parameters<typeof and>) => t.db.select({ id: s.operations.id, version: s.operations.version }).from(s.operations)
-      .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).where(and(...where)).limit(1).then((r) => r[0]!)
+    const stepOf = (...where: Parameters<typeof and>) =>
+      t.db
+        .select({ id: s.operations.id, version: s.operations.version })
+        .from(s.operations)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+        .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+        .where(and(...where))
+        .limit(1)
+        .then((r) => r[0]!)
     const done = await stepOf(eq(s.operations.status, 'done'), eq(s.orders.status, 'open'))
     expect(done, 'a finished step of an open order (from the test before)').toBeTruthy()
     const r = await manager.patch(`/api/board/operations/${done.id}`, { start: '2027-01-05T10:00:00Z', version: done.version })
@@ -87,7 +115,10 @@ describe('finished work on the board', () => {
     expect(closed.status).toBe(422)
     expect(closed.body.details).toEqual({ rule: 'closed' })
     // Nothing was written.
-    const [after] = await t.db.select({ version: s.operations.version, plannedStart: s.operations.plannedStart }).from(s.operations).where(eq(s.operations.id, done.id))
+    const [after] = await t.db
+      .select({ version: s.operations.version, plannedStart: s.operations.plannedStart })
+      .from(s.operations)
+      .where(eq(s.operations.id, done.id))
     expect(after!.version).toBe(done.version)
     expect(after!.plannedStart).toBe('2026-11-25T09:00:00.000Z')
   })

@@ -9,7 +9,12 @@ import { firstWorkshopId } from '../setup/fixtures'
 let d: TestDb
 let workshopId: number
 const hubs: Realtime[] = []
-const hub = () => { const r = new Realtime(); r.useDatabase(d.pool); hubs.push(r); return r }
+const hub = () => {
+  const r = new Realtime()
+  r.useDatabase(d.pool)
+  hubs.push(r)
+  return r
+}
 const verified = { ttlMs: 60_000, verify: true }
 
 beforeAll(async () => {
@@ -49,7 +54,7 @@ describe('two instances, one database', () => {
     expect(await cache.get(workshopId, 'board', load, verified)).toBe(2)
   })
 
-  it('when B listens and A records a change, then the note drops B\'s entries of that workshop only', async () => {
+  it("when B listens and A records a change, then the note drops B's entries of that workshop only", async () => {
     const a = hub()
     const b = hub()
     await b.listen(d.url)
@@ -66,7 +71,15 @@ describe('two instances, one database', () => {
     const b = hub()
     const cache = new Cache(b)
     let release!: () => void
-    const slow = cache.get(workshopId, 'slow', () => new Promise<string>((r) => { release = () => r('before the change') }), { ttlMs: 60_000 })
+    const slow = cache.get(
+      workshopId,
+      'slow',
+      () =>
+        new Promise<string>((r) => {
+          release = () => r('before the change')
+        }),
+      { ttlMs: 60_000 },
+    )
     await new Promise((r) => setTimeout(r, 10))
     b.emit(workshopId, 'order:updated', { id: 1, version: 3 })
     release()
@@ -75,7 +88,7 @@ describe('two instances, one database', () => {
     await b.flush()
   })
 
-  it('when B\'s listening connection is cut, then B drops everything it cached and hears notes again once reconnected', async () => {
+  it("when B's listening connection is cut, then B drops everything it cached and hears notes again once reconnected", async () => {
     const a = hub()
     const b = hub()
     await b.listen(d.url)
@@ -84,7 +97,9 @@ describe('two instances, one database', () => {
     expect(b.listening).toBe(true)
     // Cut B's listening connection (the newest one: B started listening last).
     // Raw SQL on purpose: PostgreSQL's own pg_stat_activity and pg_terminate_backend, not our schema.
-    const { rows: cut } = await d.pool.query(`select pg_terminate_backend(pid) from pg_stat_activity where datname = current_database() and query ilike 'listen millgrain_changes%' order by backend_start desc limit 1`)
+    const { rows: cut } = await d.pool.query(
+      `select pg_terminate_backend(pid) from pg_stat_activity where datname = current_database() and query ilike 'listen millgrain_changes%' order by backend_start desc limit 1`,
+    )
     expect(cut).toHaveLength(1)
     await waitFor('the cache being emptied', () => cache.size === 0 && !b.listening)
     await waitFor('B listening again', () => b.listening)

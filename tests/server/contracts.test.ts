@@ -42,7 +42,9 @@ beforeAll(async () => {
   manager = await signedIn(t.app, 'manager')
   owner = await signedIn(t.app, 'owner')
 }, 60_000)
-afterAll(async () => { await t.close() })
+afterAll(async () => {
+  await t.close()
+})
 
 describe('answers on the demo workshop', () => {
   it('when the master data is read and changed, then benches, people, routings and customers answer what their schemas allow', async () => {
@@ -53,7 +55,14 @@ describe('answers on the demo workshop', () => {
     expect(benches.length).toBeGreaterThan(0)
     const bench = await call(manager, 'post', '/benches', '/benches', { name: 'Contract bench', kind: 'bench', kindIds: [kindId] }, 201)
     const changedBench = await call(manager, 'patch', '/benches/:id', `/benches/${bench.id}`, { notes: 'by the window', version: bench.version })
-    const down = await call(manager, 'post', '/benches/:id/downtime', `/benches/${bench.id}/downtime`, { startsAt: '2026-12-07T09:00:00Z', endsAt: '2026-12-07T12:00:00Z', reason: 'new motor' }, 201)
+    const down = await call(
+      manager,
+      'post',
+      '/benches/:id/downtime',
+      `/benches/${bench.id}/downtime`,
+      { startsAt: '2026-12-07T09:00:00Z', endsAt: '2026-12-07T12:00:00Z', reason: 'new motor' },
+      201,
+    )
     await call(manager, 'delete', '/benches/:id/downtime/:childId', `/benches/${bench.id}/downtime/${down.downtime[0].id}`)
     expect(changedBench.notes).toBe('by the window')
 
@@ -68,8 +77,22 @@ describe('answers on the demo workshop', () => {
     const templates = await call(manager, 'get', '/templates', '/templates')
     const tpl = await call(manager, 'get', '/templates/:id', `/templates/${templates[0].id}`)
     const steps = tpl.steps.map(({ id: _id, ...step }: { id: number }) => step)
-    const copy = await call(manager, 'post', '/templates', '/templates', { code: 'contract-copy', name: 'Contract copy', description: '', learningRate: null, steps }, 201)
-    await call(manager, 'put', '/templates/:id', `/templates/${copy.id}`, { code: 'contract-copy', name: 'Contract copy, renamed', description: '', learningRate: null, steps, version: copy.version })
+    const copy = await call(
+      manager,
+      'post',
+      '/templates',
+      '/templates',
+      { code: 'contract-copy', name: 'Contract copy', description: '', learningRate: null, steps },
+      201,
+    )
+    await call(manager, 'put', '/templates/:id', `/templates/${copy.id}`, {
+      code: 'contract-copy',
+      name: 'Contract copy, renamed',
+      description: '',
+      learningRate: null,
+      steps,
+      version: copy.version,
+    })
 
     const customers = await call(manager, 'get', '/customers', '/customers?pageSize=5')
     expect(customers.items.length).toBeGreaterThan(0)
@@ -84,7 +107,14 @@ describe('answers on the demo workshop', () => {
     await call(manager, 'get', '/orders/:id', `/orders/${page.items[0].id}`)
     const customers = (await manager.get('/api/customers?pageSize=1')).body
     const templates = (await manager.get('/api/templates')).body
-    const order = await call(manager, 'post', '/orders', '/orders', { customerId: customers.items[0].id, title: 'Contract ring', dueDate: '2027-02-01', pieces: [{ templateId: templates[0].id, piece: 'Ring' }] }, 201)
+    const order = await call(
+      manager,
+      'post',
+      '/orders',
+      '/orders',
+      { customerId: customers.items[0].id, title: 'Contract ring', dueDate: '2027-02-01', pieces: [{ templateId: templates[0].id, piece: 'Ring' }] },
+      201,
+    )
     await call(manager, 'patch', '/orders/:id', `/orders/${order.id}`, { priority: 4, version: order.version })
 
     const bags = await call(manager, 'get', '/job-bags', '/job-bags')
@@ -92,14 +122,42 @@ describe('answers on the demo workshop', () => {
     const bagId = order.jobBags[0].id as number
     let bag = await call(manager, 'get', '/job-bags/:id', `/job-bags/${bagId}`)
     const kindId = bag.operations[0].kindId
-    bag = await call(manager, 'post', '/job-bags/:id/operations', `/job-bags/${bagId}/operations`, { kindId, name: 'Extra check', estimateMinutes: 10, reason: 'customer asked for it', version: bag.version }, 201)
+    bag = await call(
+      manager,
+      'post',
+      '/job-bags/:id/operations',
+      `/job-bags/${bagId}/operations`,
+      { kindId, name: 'Extra check', estimateMinutes: 10, reason: 'customer asked for it', version: bag.version },
+      201,
+    )
     const extra = bag.operations.find((o: { name: string }) => o.name === 'Extra check')
-    bag = await call(manager, 'patch', '/job-bags/:id/operations/:operationId', `/job-bags/${bagId}/operations/${extra.id}`, { name: 'Extra inspection', version: extra.version })
-    bag = await call(manager, 'post', '/job-bags/:id/operations/:operationId/skip', `/job-bags/${bagId}/operations/${extra.id}/skip`, { reason: 'not needed after all', version: bag.operations.find((o: { id: number }) => o.id === extra.id).version })
-    bag = await call(manager, 'put', '/job-bags/:id/sequence', `/job-bags/${bagId}/sequence`, { operationIds: bag.operations.map((o: { id: number }) => o.id), version: bag.version })
-    bag = await call(manager, 'post', '/job-bags/:id/status', `/job-bags/${bagId}/status`, { status: 'on-hold', reason: 'waiting for the stone', version: bag.version })
-    bag = await call(manager, 'post', '/job-bags/:id/status', `/job-bags/${bagId}/status`, { status: 'resume', reason: 'the stone came in', version: bag.version })
-    await call(manager, 'put', '/job-bags/:id/ring-size', `/job-bags/${bagId}/ring-size`, { ringSize: { scale: 'uk', value: 'N' }, reason: 'measured again', version: bag.version })
+    bag = await call(manager, 'patch', '/job-bags/:id/operations/:operationId', `/job-bags/${bagId}/operations/${extra.id}`, {
+      name: 'Extra inspection',
+      version: extra.version,
+    })
+    bag = await call(manager, 'post', '/job-bags/:id/operations/:operationId/skip', `/job-bags/${bagId}/operations/${extra.id}/skip`, {
+      reason: 'not needed after all',
+      version: bag.operations.find((o: { id: number }) => o.id === extra.id).version,
+    })
+    bag = await call(manager, 'put', '/job-bags/:id/sequence', `/job-bags/${bagId}/sequence`, {
+      operationIds: bag.operations.map((o: { id: number }) => o.id),
+      version: bag.version,
+    })
+    bag = await call(manager, 'post', '/job-bags/:id/status', `/job-bags/${bagId}/status`, {
+      status: 'on-hold',
+      reason: 'waiting for the stone',
+      version: bag.version,
+    })
+    bag = await call(manager, 'post', '/job-bags/:id/status', `/job-bags/${bagId}/status`, {
+      status: 'resume',
+      reason: 'the stone came in',
+      version: bag.version,
+    })
+    await call(manager, 'put', '/job-bags/:id/ring-size', `/job-bags/${bagId}/ring-size`, {
+      ringSize: { scale: 'uk', value: 'N' },
+      reason: 'measured again',
+      version: bag.version,
+    })
   })
 
   it('when work is done at the bench and its time corrected, then the queues, transitions and time records answer what their schemas allow', async () => {
@@ -110,7 +168,12 @@ describe('answers on the demo workshop', () => {
     await call(manager, 'post', '/bench/operations/:id/claim', `/bench/operations/${op.id}/claim`, { requestId: id(), benchId: op.benchId, ...onBehalf })
     await call(manager, 'post', '/bench/operations/:id/release', `/bench/operations/${op.id}/release`, { requestId: id(), ...onBehalf })
     await call(manager, 'post', '/bench/operations/:id/claim', `/bench/operations/${op.id}/claim`, { requestId: id(), benchId: op.benchId, ...onBehalf })
-    await call(manager, 'post', '/bench/operations/:id/start', `/bench/operations/${op.id}/start`, { requestId: id(), benchId: op.benchId, acknowledgeHazards: true, ...onBehalf })
+    await call(manager, 'post', '/bench/operations/:id/start', `/bench/operations/${op.id}/start`, {
+      requestId: id(),
+      benchId: op.benchId,
+      acknowledgeHazards: true,
+      ...onBehalf,
+    })
     const reasons = (await manager.get('/api/pause-reasons')).body as { code: string; needsNote?: boolean; active?: boolean }[]
     const reason = reasons.find((r) => !r.needsNote && r.active !== false && r.code !== 'finished')!.code
     await call(manager, 'post', '/bench/operations/:id/pause', `/bench/operations/${op.id}/pause`, { requestId: id(), reason, note: 'lunch', ...onBehalf })
@@ -119,11 +182,35 @@ describe('answers on the demo workshop', () => {
     await call(manager, 'post', '/bench/operations/:id/finish', `/bench/operations/${op.id}/finish`, { requestId: id(), ...onBehalf })
 
     const next = await readyBenchStep(t.db, [op.id])
-    const record = await call(manager, 'post', '/operations/:id/time-records', `/operations/${next.id}/time-records`, { personId: next.personId, benchId: next.benchId, startedAt: '2026-11-25T09:10:00Z', endedAt: '2026-11-25T10:45:00Z', reason: 'forgot to tap at the bench' }, 201)
-    await call(manager, 'post', '/time-records/:id/corrections', `/time-records/${record.id}/corrections`, { endedAt: '2026-11-25T10:30:00Z', reason: 'stopped earlier' }, 201)
+    const record = await call(
+      manager,
+      'post',
+      '/operations/:id/time-records',
+      `/operations/${next.id}/time-records`,
+      {
+        personId: next.personId,
+        benchId: next.benchId,
+        startedAt: '2026-11-25T09:10:00Z',
+        endedAt: '2026-11-25T10:45:00Z',
+        reason: 'forgot to tap at the bench',
+      },
+      201,
+    )
+    await call(
+      manager,
+      'post',
+      '/time-records/:id/corrections',
+      `/time-records/${record.id}/corrections`,
+      { endedAt: '2026-11-25T10:30:00Z', reason: 'stopped earlier' },
+      201,
+    )
 
     // Outside work (casting, hallmarking): sent out and booked back by the office.
-    const { rows: [outside] } = await t.pool.query(`select o.id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id where k.outside and o.status = 'ready' and ord.status in ('open', 'in-work') order by o.id limit 1`)
+    const {
+      rows: [outside],
+    } = await t.pool.query(
+      `select o.id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id where k.outside and o.status = 'ready' and ord.status in ('open', 'in-work') order by o.id limit 1`,
+    )
     if (outside) {
       await call(manager, 'post', '/operations/:id/send-out', `/operations/${outside.id}/send-out`, { requestId: id(), note: '' })
       await call(manager, 'post', '/operations/:id/receive', `/operations/${outside.id}/receive`, { requestId: id(), note: '' })
@@ -135,7 +222,6 @@ describe('answers on the demo workshop', () => {
     const week = { from: '2026-11-30', to: '2026-12-13' }
     await call(owner, 'get', '/board', `/board?from=${week.from}&to=${week.to}`)
     await call(owner, 'get', '/load', `/load?from=${week.from}&to=${week.to}`)
-
 
     // Two planner runs while there is no live plan, each ending in a draft: the first is compared and published, the second
     // stopped (it is over already: the answer is the run as it ended) and thrown away.
@@ -155,7 +241,9 @@ describe('answers on the demo workshop', () => {
 
     // On the live plan now: a bar pinned by hand.
     const live = await call(owner, 'get', '/board', `/board?from=${week.from}&to=${week.to}`)
-    const bar = live.items.find((i: { status: string; pinned: boolean; benchId: number | null }) => !['running', 'done', 'skipped'].includes(i.status) && !i.pinned && i.benchId)
+    const bar = live.items.find(
+      (i: { status: string; pinned: boolean; benchId: number | null }) => !['running', 'done', 'skipped'].includes(i.status) && !i.pinned && i.benchId,
+    )
     expect(bar, 'an open bar on the live plan').toBeTruthy()
     await call(manager, 'patch', '/board/operations/:id', `/board/operations/${bar.id}`, { pinned: true, version: bar.version })
   }, 120_000)
@@ -171,7 +259,18 @@ describe('the answer check', () => {
     const app = express()
     const router = express.Router()
     const deps = { realtime: { flush: async () => undefined }, checkAnswers } as unknown as Deps
-    register(router, route({ method: 'get', path: '/thing', roles: 'public', summary: 'A thing', response: z.object({ id: z.number().int(), name: z.string() }), handler: async () => result }), deps)
+    register(
+      router,
+      route({
+        method: 'get',
+        path: '/thing',
+        roles: 'public',
+        summary: 'A thing',
+        response: z.object({ id: z.number().int(), name: z.string() }),
+        handler: async () => result,
+      }),
+      deps,
+    )
     app.use('/api', router)
     app.use(errorHandler)
     return request(app).get('/api/thing')

@@ -14,7 +14,9 @@ beforeAll(async () => {
   manager = await signedIn(t.app, 'manager')
   tpl = Object.fromEntries((await manager.get('/api/templates')).body.map((x: { code: string }) => [x.code, x]))
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 const newCustomer = async (name: string) => {
   const r = await sales.post('/api/customers', { name, email: `${name.split(' ')[0]!.toLowerCase()}@example.test` })
@@ -22,7 +24,12 @@ const newCustomer = async (name: string) => {
   return r.body.id as number
 }
 const takeOrder = async (customerId: number, pieces = 1) => {
-  const r = await sales.post('/api/orders', { customerId, title: 'Count check', dueDate: '2031-03-14', pieces: Array.from({ length: pieces }, (_, i) => ({ templateId: tpl['ring-resize']!.id, piece: `Resize ${i + 1}` })) })
+  const r = await sales.post('/api/orders', {
+    customerId,
+    title: 'Count check',
+    dueDate: '2031-03-14',
+    pieces: Array.from({ length: pieces }, (_, i) => ({ templateId: tpl['ring-resize']!.id, piece: `Resize ${i + 1}` })),
+  })
   expect(r.status, JSON.stringify(r.body)).toBe(201)
   return r.body as { id: number; version: number; jobBags: { id: number; operations: { id: number; version: number }[] }[] }
 }
@@ -49,8 +56,11 @@ describe('counts in lists', () => {
 
   it('when the seeded customers are listed, then each open-order count equals the orders counted straight from the database', async () => {
     const list = (await sales.get('/api/customers?pageSize=100')).body.items as { id: number; openOrders: number }[]
-    const rows = await t.db.select({ id: s.customers.id, n: count(s.orders.id) }).from(s.customers)
-      .leftJoin(s.orders, and(eq(s.orders.customerId, s.customers.id), notInArray(s.orders.status, ['collected', 'cancelled']))).groupBy(s.customers.id)
+    const rows = await t.db
+      .select({ id: s.customers.id, n: count(s.orders.id) })
+      .from(s.customers)
+      .leftJoin(s.orders, and(eq(s.orders.customerId, s.customers.id), notInArray(s.orders.status, ['collected', 'cancelled'])))
+      .groupBy(s.customers.id)
     const want = Object.fromEntries(rows.map((r) => [r.id, r.n]))
     expect(Object.fromEntries(list.map((c) => [c.id, c.openOrders]))).toEqual(Object.fromEntries(list.map((c) => [c.id, want[c.id]])))
     // The seed has 30 open orders over 16 customers, so some customer has more than none.

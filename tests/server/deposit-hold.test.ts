@@ -36,18 +36,35 @@ beforeAll(async () => {
   forge = await benchId(t, 'Forge & soldering station')
   workshopId = await firstWorkshopId(t.db)
 }, 60_000)
-afterAll(async () => { await new Promise((r) => http?.close(r)); await fake?.close(); await t?.close() })
+afterAll(async () => {
+  await new Promise((r) => http?.close(r))
+  await fake?.close()
+  await t?.close()
+})
 
 async function setting(on: boolean) {
   const w = (await owner.get('/api/workshop')).body
-  const r = await owner.put('/api/workshop', { name: w.name, timeZone: w.timeZone, weekPattern: w.weekPattern, planningLoad: w.planningLoad, noMetalBeforeDeposit: on, version: w.version })
+  const r = await owner.put('/api/workshop', {
+    name: w.name,
+    timeZone: w.timeZone,
+    weekPattern: w.weekPattern,
+    planningLoad: w.planningLoad,
+    noMetalBeforeDeposit: on,
+    version: w.version,
+  })
   expect(r.status, JSON.stringify(r.body)).toBe(200)
   expect(r.body.noMetalBeforeDeposit).toBe(on)
 }
 
 /** A quote for a bezel ring accepted by hand (no deposit paid): 800.00 GBP, deposit 30 % = 240.00 (24000 pence). */
 async function acceptedUnpaid() {
-  const q = await sales.post('/api/quotes', { customerId, title: 'Bezel ring', priceMinor: 80000, currency: 'GBP', details: { templateId, piece: 'Bezel ring' } })
+  const q = await sales.post('/api/quotes', {
+    customerId,
+    title: 'Bezel ring',
+    priceMinor: 80000,
+    currency: 'GBP',
+    details: { templateId, piece: 'Bezel ring' },
+  })
   expect(q.status, JSON.stringify(q.body)).toBe(201)
   const sent = await sales.post(`/api/quotes/${q.body.id}/send`, { version: q.body.version })
   expect(sent.status, JSON.stringify(sent.body)).toBe(200)
@@ -55,14 +72,22 @@ async function acceptedUnpaid() {
   expect(a.status, JSON.stringify(a.body)).toBe(200)
   const orderId = a.body.orderId as number
   const bag = (await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId)))[0]!
-  const band = (await t.db.select({ id: s.operations.id }).from(s.operations).where(and(eq(s.operations.jobBagId, bag.id), eq(s.operations.key, 'band'))))[0]!
+  const band = (
+    await t.db
+      .select({ id: s.operations.id })
+      .from(s.operations)
+      .where(and(eq(s.operations.jobBagId, bag.id), eq(s.operations.key, 'band')))
+  )[0]!
   await makeReady(t, band.id)
   expect((await sales.get(`/api/orders/${orderId}/money`)).body).toMatchObject({ depositMinor: 24000, paidMinor: 0, depositPaid: false })
   return { quote: a.body, orderId, bagId: bag.id, bandId: band.id, link: sent.body.links[0] as { url: string } }
 }
 
 const inProblem = async (bagId: number) => (await loadPlanningData(t.db, workshopId, new Date())).problem.jobs.some((j) => j.id === String(bagId))
-const boardJob = async (bagId: number) => ((await manager.get(`/api/board?from=${from}&to=${to}`)).body.jobs as { jobBagId: number; state: string; reason: string | null }[]).find((j) => j.jobBagId === bagId)
+const boardJob = async (bagId: number) =>
+  ((await manager.get(`/api/board?from=${from}&to=${to}`)).body.jobs as { jobBagId: number; state: string; reason: string | null }[]).find(
+    (j) => j.jobBagId === bagId,
+  )
 const nextIds = async () => {
   const r = await priya.get(`/api/bench/next?benchId=${forge}`)
   expect(r.status, JSON.stringify(r.body)).toBe(200)

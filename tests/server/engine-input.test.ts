@@ -13,15 +13,32 @@ beforeEach(async () => {
   t = await createTestApp()
   manager = await signedIn(t.app, 'manager')
 })
-afterEach(async () => { await t?.close() })
+afterEach(async () => {
+  await t?.close()
+})
 
 /** A step still to do on a job bag of an open order, done at a bench (not outside work). */
 async function openStep(kindCode?: string) {
-  const o = s.operations, jb = s.jobBags, k = s.operationKinds
-  const [op] = await t.db.select({ id: o.id, name: o.name, version: o.version, kind_id: o.kindId, bag_id: jb.id, number: jb.number, bag_version: jb.version })
-    .from(o).innerJoin(jb, eq(jb.id, o.jobBagId)).innerJoin(s.orders, eq(s.orders.id, jb.orderId)).innerJoin(k, eq(k.id, o.kindId))
-    .where(and(eq(s.orders.status, 'open'), notInArray(jb.status, ['complete', 'cancelled']), inArray(o.status, ['pending', 'ready']), eq(k.outside, false), kindCode == null ? undefined : eq(k.code, kindCode)))
-    .orderBy(asc(s.orders.dueDate), asc(jb.number), asc(o.seq)).limit(1)
+  const o = s.operations,
+    jb = s.jobBags,
+    k = s.operationKinds
+  const [op] = await t.db
+    .select({ id: o.id, name: o.name, version: o.version, kind_id: o.kindId, bag_id: jb.id, number: jb.number, bag_version: jb.version })
+    .from(o)
+    .innerJoin(jb, eq(jb.id, o.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, jb.orderId))
+    .innerJoin(k, eq(k.id, o.kindId))
+    .where(
+      and(
+        eq(s.orders.status, 'open'),
+        notInArray(jb.status, ['complete', 'cancelled']),
+        inArray(o.status, ['pending', 'ready']),
+        eq(k.outside, false),
+        kindCode == null ? undefined : eq(k.code, kindCode),
+      ),
+    )
+    .orderBy(asc(s.orders.dueDate), asc(jb.number), asc(o.seq))
+    .limit(1)
   expect(op, 'the demo data has an open step').toBeTruthy()
   return op!
 }
@@ -44,9 +61,18 @@ describe('impossible skills', () => {
     const kind = await manager.post('/api/operation-kinds', { code: 'enamel-champleve', name: 'Champlevé enamel' })
     expect(kind.status, JSON.stringify(kind.body)).toBe(201)
     const step = await openStep()
-    const add = await manager.post(`/api/job-bags/${step.bag_id}/operations`, { kindId: kind.body.id, name: 'Enamel the bezel', estimateMinutes: 90, reason: 'customer asked for colour', version: step.bag_version })
+    const add = await manager.post(`/api/job-bags/${step.bag_id}/operations`, {
+      kindId: kind.body.id,
+      name: 'Enamel the bezel',
+      estimateMinutes: 90,
+      reason: 'customer asked for colour',
+      version: step.bag_version,
+    })
     expect(add.status, JSON.stringify(add.body)).toBe(201)
-    const [added] = await t.db.select({ id: s.operations.id, name: s.operations.name }).from(s.operations).where(and(eq(s.operations.jobBagId, step.bag_id), eq(s.operations.kindId, kind.body.id)))
+    const [added] = await t.db
+      .select({ id: s.operations.id, name: s.operations.name })
+      .from(s.operations)
+      .where(and(eq(s.operations.jobBagId, step.bag_id), eq(s.operations.kindId, kind.body.id)))
     const r = await planRun()
     expectNamed(r, { number: step.number, id: step.bag_id }, added!, 'no-option')
     expect(r.body.error).toMatch(/add the skill to someone or a suitable bench/)
@@ -55,7 +81,10 @@ describe('impossible skills', () => {
   it('when a step requires a level that no person with that skill reaches, then starting the planner answers 422 naming the job bag and the step', async () => {
     const step = await openStep()
     // Everybody who has this kind of work is at most level 2; the step asks for level 3 (set through the API).
-    await t.db.update(s.personSkills).set({ level: sql`least(${s.personSkills.level}, 2)` }).where(eq(s.personSkills.kindId, step.kind_id))
+    await t.db
+      .update(s.personSkills)
+      .set({ level: sql`least(${s.personSkills.level}, 2)` })
+      .where(eq(s.personSkills.kindId, step.kind_id))
     const patch = await manager.patch(`/api/job-bags/${step.bag_id}/operations/${step.id}`, { requiredLevel: 3, version: step.version })
     expect(patch.status, JSON.stringify(patch.body)).toBe(200)
     expectNamed(await planRun(), { number: step.number, id: step.bag_id }, step, 'no-option')
@@ -73,17 +102,29 @@ describe('absurd durations', () => {
 
   it('when the API is asked for 10^7 minutes, then it refuses with a 400 on estimateMinutes; its own maximum still plans as a 422 naming the step, not a 500', async () => {
     const step = await openStep()
-    const tooMuch = await manager.patch(`/api/job-bags/${step.bag_id}/operations/${step.id}`, { estimateMinutes: 1e7, reason: 'typo on the tablet', version: step.version })
+    const tooMuch = await manager.patch(`/api/job-bags/${step.bag_id}/operations/${step.id}`, {
+      estimateMinutes: 1e7,
+      reason: 'typo on the tablet',
+      version: step.version,
+    })
     expectFieldError(tooMuch, 'estimateMinutes', /at most/)
     // 100,000 minutes passes the field check but is over the engine's limit for one operation (60 working days of 8 h).
-    const max = await manager.patch(`/api/job-bags/${step.bag_id}/operations/${step.id}`, { estimateMinutes: 100_000, reason: 'a very long job', version: step.version })
+    const max = await manager.patch(`/api/job-bags/${step.bag_id}/operations/${step.id}`, {
+      estimateMinutes: 100_000,
+      reason: 'a very long job',
+      version: step.version,
+    })
     expect(max.status, JSON.stringify(max.body)).toBe(200)
     expectNamed(await planRun(), { number: step.number, id: step.bag_id }, step, 'bad-duration')
   })
 
   it('when a template step would take 10000 base minutes plus 240 per stone on 2000 stones, then checking a promise answers 422 naming the step, not a 500', async () => {
     const [k] = await t.db.select({ id: s.operationKinds.id }).from(s.operationKinds).where(eq(s.operationKinds.code, 'setting'))
-    const tpl = await manager.post('/api/templates', { code: 'pave-everything', name: 'Pavé everything', steps: [{ key: 'set', kindId: k!.id, name: 'Set every stone', baseMinutes: 10000, perStoneMinutes: 240 }] })
+    const tpl = await manager.post('/api/templates', {
+      code: 'pave-everything',
+      name: 'Pavé everything',
+      steps: [{ key: 'set', kindId: k!.id, name: 'Set every stone', baseMinutes: 10000, perStoneMinutes: 240 }],
+    })
     expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
     const r = await manager.post('/api/promise/check', { templateId: tpl.body.id, params: { stoneCount: 2000, stoneSizeMm: 1 } })
     expect(r.status, JSON.stringify(r.body)).toBe(422)
@@ -104,9 +145,16 @@ describe('routings in a circle', () => {
     ]
     const r = await manager.post('/api/templates', { code: 'round-and-round', name: 'Round and round', steps })
     expectFieldError(r, 'steps', /circle/)
-    const self = await manager.post('/api/templates', { code: 'own-tail', name: 'Own tail', steps: [{ key: 'a', kindId: kid, name: 'Only', baseMinutes: 10, after: ['a'] }] })
+    const self = await manager.post('/api/templates', {
+      code: 'own-tail',
+      name: 'Own tail',
+      steps: [{ key: 'a', kindId: kid, name: 'Only', baseMinutes: 10, after: ['a'] }],
+    })
     expectFieldError(self, 'steps.0.after', /itself/)
-    const [n] = await t.db.select({ n: count() }).from(s.routingTemplates).where(inArray(s.routingTemplates.code, ['round-and-round', 'own-tail']))
+    const [n] = await t.db
+      .select({ n: count() })
+      .from(s.routingTemplates)
+      .where(inArray(s.routingTemplates.code, ['round-and-round', 'own-tail']))
     expect(n!.n).toBe(0)
   })
 
@@ -116,8 +164,14 @@ describe('routings in a circle', () => {
     const tpl = list.body[0]
     const before = await manager.get(`/api/templates/${tpl.id}`)
     const r = await manager.put(`/api/templates/${tpl.id}`, {
-      version: tpl.version, code: tpl.code, name: tpl.name, description: '',
-      steps: [{ key: 'x', kindId: kid, name: 'X', baseMinutes: 5, after: ['y'] }, { key: 'y', kindId: kid, name: 'Y', baseMinutes: 5, after: ['x'] }],
+      version: tpl.version,
+      code: tpl.code,
+      name: tpl.name,
+      description: '',
+      steps: [
+        { key: 'x', kindId: kid, name: 'X', baseMinutes: 5, after: ['y'] },
+        { key: 'y', kindId: kid, name: 'Y', baseMinutes: 5, after: ['x'] },
+      ],
     })
     expectFieldError(r, 'steps', /circle/)
     expect((await manager.get(`/api/templates/${tpl.id}`)).body).toEqual(before.body)
@@ -125,12 +179,25 @@ describe('routings in a circle', () => {
 
   it('when a job bag step is made to wait for a step that waits for it, then the change is refused naming "after" and the routing is unchanged', async () => {
     const o = s.operations
-    const [bag] = await t.db.select({ id: o.jobBagId }).from(o).innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-      .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending'), sql`cardinality(${o.after}) > 0`)).orderBy(asc(s.jobBags.number)).limit(1)
-    const rows = await t.db.select({ id: o.id, key: o.key, version: o.version, after: o.after, job_bag_id: o.jobBagId }).from(o).where(eq(o.jobBagId, bag!.id)).orderBy(asc(o.seq))
+    const [bag] = await t.db
+      .select({ id: o.jobBagId })
+      .from(o)
+      .innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId))
+      .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending'), sql`cardinality(${o.after}) > 0`))
+      .orderBy(asc(s.jobBags.number))
+      .limit(1)
+    const rows = await t.db
+      .select({ id: o.id, key: o.key, version: o.version, after: o.after, job_bag_id: o.jobBagId })
+      .from(o)
+      .where(eq(o.jobBagId, bag!.id))
+      .orderBy(asc(o.seq))
     const later = rows.find((x) => x.after.length > 0)!
     const earlier = rows.find((x) => x.key === later.after[0])!
-    const r = await manager.patch(`/api/job-bags/${earlier.job_bag_id}/operations/${earlier.id}`, { after: [...earlier.after, later.key], version: earlier.version })
+    const r = await manager.patch(`/api/job-bags/${earlier.job_bag_id}/operations/${earlier.id}`, {
+      after: [...earlier.after, later.key],
+      version: earlier.version,
+    })
     expect([400, 422]).toContain(r.status)
     expectCleanError(r, r.status)
     expect(Object.keys(r.body.fields ?? {})).toContain('after')

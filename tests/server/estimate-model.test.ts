@@ -24,13 +24,16 @@ beforeAll(async () => {
   kinds = Object.fromEntries((await manager.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
   customerId = await firstCustomerId(t.db)
   const a = await manager.post('/api/templates', {
-    code: 'run-fixture', name: 'Fixture: production run', learningRate: 0.85,
+    code: 'run-fixture',
+    name: 'Fixture: production run',
+    learningRate: 0.85,
     steps: [{ key: 'finish', kindId: kinds.filing, name: 'Finish each piece', baseMinutes: 12 }],
   })
   expect(a.status, JSON.stringify(a.body)).toBe(201)
   run = a.body
   const b = await manager.post('/api/templates', {
-    code: 'model-fixture', name: 'Fixture: set and polish by size',
+    code: 'model-fixture',
+    name: 'Fixture: set and polish by size',
     steps: [
       { key: 'set', kindId: kinds.setting, name: 'Set stones', baseMinutes: 30, perStoneMinutes: 7, sizeBandFactors: { melee: 1.2, large: 1.5 } },
       { key: 'polish', kindId: kinds.polishing, name: 'Polish', baseMinutes: 20, perMmMinutes: 0.25, after: ['set'] },
@@ -39,7 +42,9 @@ beforeAll(async () => {
   expect(b.status, JSON.stringify(b.body)).toBe(201)
   oneOff = b.body
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 describe('a production run with a learning curve', () => {
   it('when 40 pieces of a 12-minute step are ordered on an 85 % routing, then the job bag step takes Wright’s total of 202.1 min', async () => {
@@ -47,7 +52,12 @@ describe('a production run with a learning curve', () => {
     // a = 12 min, r = 0.85, N = 40: b = ln 0.85 / ln 2 = −0.162519 / 0.693147 = −0.234465; 1 + b = 0.765535;
     // 40^0.765535 = 10^(0.765535 × 1.602060) = 10^1.226433 = 16.8435; T(40) = 12 × 16.8435 = 202.12 min
     // (calculator, outside the code), against 12 × 40 = 480 min without a curve.
-    const r = await sales.post('/api/orders', { customerId, title: 'Run of 40', dueDate: '2031-08-01', pieces: [{ templateId: run.id, piece: '40 pieces', params: { quantity: 40 } }] })
+    const r = await sales.post('/api/orders', {
+      customerId,
+      title: 'Run of 40',
+      dueDate: '2031-08-01',
+      pieces: [{ templateId: run.id, piece: '40 pieces', params: { quantity: 40 } }],
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     const [op] = r.body.jobBags[0].operations
     expect(op.estimateSource).toBe('template')
@@ -55,7 +65,12 @@ describe('a production run with a learning curve', () => {
   })
 
   it('when one piece is ordered on the same routing, then it takes the first piece’s 12 min (no curve for one piece)', async () => {
-    const r = await sales.post('/api/orders', { customerId, title: 'One piece', dueDate: '2031-08-01', pieces: [{ templateId: run.id, piece: 'one', params: { quantity: 1 } }] })
+    const r = await sales.post('/api/orders', {
+      customerId,
+      title: 'One piece',
+      dueDate: '2031-08-01',
+      pieces: [{ templateId: run.id, piece: 'one', params: { quantity: 1 } }],
+    })
     expect(estimates(r.body.jobBags[0].operations)).toEqual({ finish: 12 })
   })
 
@@ -72,7 +87,12 @@ describe('a production run with a learning curve', () => {
     expect(put.status, JSON.stringify(put.body)).toBe(200)
     expect(put.body.learningRate).toBeNull()
     expect((await auditRows(t, 'routing-template', run.id))[0]).toMatchObject({ action: 'update', details: { learningRate: null } })
-    const r = await sales.post('/api/orders', { customerId, title: 'Run of 40, flat', dueDate: '2031-08-01', pieces: [{ templateId: run.id, piece: '40 pieces', params: { quantity: 40 } }] })
+    const r = await sales.post('/api/orders', {
+      customerId,
+      title: 'Run of 40, flat',
+      dueDate: '2031-08-01',
+      pieces: [{ templateId: run.id, piece: '40 pieces', params: { quantity: 40 } }],
+    })
     expect(estimates(r.body.jobBags[0].operations)).toEqual({ finish: 480 })
   })
 })
@@ -89,7 +109,12 @@ describe('stone size bands and per-mm minutes', () => {
   })
 
   it('when three 4 mm stones and a 62 mm piece are ordered twice over, then setting uses the large band and polishing the size', async () => {
-    const r = await sales.post('/api/orders', { customerId, title: 'Two large-stone pieces', dueDate: '2031-08-02', pieces: [{ templateId: oneOff.id, piece: 'pair', params: { stoneCount: 3, stoneSizeMm: 4, sizeMm: 62, quantity: 2 } }] })
+    const r = await sales.post('/api/orders', {
+      customerId,
+      title: 'Two large-stone pieces',
+      dueDate: '2031-08-02',
+      pieces: [{ templateId: oneOff.id, piece: 'pair', params: { stoneCount: 3, stoneSizeMm: 4, sizeMm: 62, quantity: 2 } }],
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     // Hand-worked: 4 mm is over 3 mm, the large band (×1.5): set = (30 + 7 × 3 × 1.5) × 2 = (30 + 31.5) × 2 = 123;
     // polish = (20 + 0.25 × 62) × 2 = (20 + 15.5) × 2 = 71. No learning rate on this routing: plain × 2.
@@ -98,9 +123,19 @@ describe('stone size bands and per-mm minutes', () => {
 
   it('when the stones are 1.3 mm melee, then the melee factor applies; a band not given counts 1', async () => {
     // Hand-worked: set = 30 + 7 × 10 × 1.2 = 114 (melee); 2 mm (small, no factor) = 30 + 7 × 10 = 100; polish with size 0 = 20.
-    const melee = await sales.post('/api/orders', { customerId, title: 'Melee', dueDate: '2031-08-02', pieces: [{ templateId: oneOff.id, piece: 'melee', params: { stoneCount: 10, stoneSizeMm: 1.3 } }] })
+    const melee = await sales.post('/api/orders', {
+      customerId,
+      title: 'Melee',
+      dueDate: '2031-08-02',
+      pieces: [{ templateId: oneOff.id, piece: 'melee', params: { stoneCount: 10, stoneSizeMm: 1.3 } }],
+    })
     expect(estimates(melee.body.jobBags[0].operations)).toEqual({ set: 114, polish: 20 })
-    const small = await sales.post('/api/orders', { customerId, title: 'Small', dueDate: '2031-08-02', pieces: [{ templateId: oneOff.id, piece: 'small', params: { stoneCount: 10, stoneSizeMm: 2 } }] })
+    const small = await sales.post('/api/orders', {
+      customerId,
+      title: 'Small',
+      dueDate: '2031-08-02',
+      pieces: [{ templateId: oneOff.id, piece: 'small', params: { stoneCount: 10, stoneSizeMm: 2 } }],
+    })
     expect(estimates(small.body.jobBags[0].operations)).toEqual({ set: 100, polish: 20 })
   })
 

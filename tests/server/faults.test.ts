@@ -23,14 +23,27 @@ function startApp(): Promise<ChildProcess> {
     const t = setTimeout(() => rej(new Error(`app did not start:\n${out}`)), 60_000)
     const onData = (d: Buffer) => {
       out += d.toString()
-      if (out.includes('Millgrain is running at')) { clearTimeout(t); res(child) }
+      if (out.includes('Millgrain is running at')) {
+        clearTimeout(t)
+        res(child)
+      }
     }
     child.stdout!.on('data', onData)
     child.stderr!.on('data', onData)
-    child.on('exit', (code) => { clearTimeout(t); if (code !== null && code !== 0) console.error(`app exited (${code}):\n${out.slice(-4000)}`); rej(new Error(`app exited (${code}):\n${out}`)) })
+    child.on('exit', (code) => {
+      clearTimeout(t)
+      if (code !== null && code !== 0) console.error(`app exited (${code}):\n${out.slice(-4000)}`)
+      rej(new Error(`app exited (${code}):\n${out}`))
+    })
   })
 }
-const killGroup = (c: ChildProcess, sig: NodeJS.Signals) => { try { process.kill(-c.pid!, sig) } catch { /* gone */ } }
+const killGroup = (c: ChildProcess, sig: NodeJS.Signals) => {
+  try {
+    process.kill(-c.pid!, sig)
+  } catch {
+    /* gone */
+  }
+}
 
 /** Ids the writers need: a customer, a routing, and an operation with a person to book time to. */
 async function writeTargets(cookie: string) {
@@ -40,7 +53,12 @@ async function writeTargets(cookie: string) {
   const people = await get('/people')
   const orders = await get('/orders?status=open')
   const order = await get(`/orders/${orders.items[0].id}`)
-  return { customerId: customers.items[0].id as number, template: templates[0] as { id: number; steps: unknown[] }, personId: people[0].id as number, operationId: order.jobBags[0].operations[0].id as number }
+  return {
+    customerId: customers.items[0].id as number,
+    template: templates[0] as { id: number; steps: unknown[] },
+    personId: people[0].id as number,
+    operationId: order.jobBags[0].operations[0].id as number,
+  }
 }
 
 /** 20 writers, each alternating an order (with its job bag and operations) and a time record, until stopped. */
@@ -54,29 +72,53 @@ function writers(sessions: { cookie: string; csrf: string }[], t: Awaited<Return
       const headers = { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf }
       try {
         if (n % 2 === 0) {
-          const r = await fetch(`${base}/api/orders`, { method: 'POST', headers, signal: AbortSignal.timeout(15_000), body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ templateId: t.template.id, piece: title }] }) })
+          const r = await fetch(`${base}/api/orders`, {
+            method: 'POST',
+            headers,
+            signal: AbortSignal.timeout(15_000),
+            body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ templateId: t.template.id, piece: title }] }),
+          })
           if (r.status === 201) acked.push(title)
           else await r.text()
         } else {
           const startedAt = new Date(Date.now() - 3_600_000 - n * 60_000).toISOString()
-          const r = await fetch(`${base}/api/operations/${t.operationId}/time-records`, { method: 'POST', headers, signal: AbortSignal.timeout(15_000),
-            body: JSON.stringify({ personId: t.personId, startedAt, endedAt: new Date(Date.parse(startedAt) + 30 * 60_000).toISOString(), reason: title }) })
+          const r = await fetch(`${base}/api/operations/${t.operationId}/time-records`, {
+            method: 'POST',
+            headers,
+            signal: AbortSignal.timeout(15_000),
+            body: JSON.stringify({ personId: t.personId, startedAt, endedAt: new Date(Date.parse(startedAt) + 30 * 60_000).toISOString(), reason: title }),
+          })
           if (r.status === 201) ackedRecords.push(title)
           else await r.text()
         }
-      } catch { await new Promise((r) => setTimeout(r, 20)) }
+      } catch {
+        await new Promise((r) => setTimeout(r, 20))
+      }
     }
   })
-  return { acked, ackedRecords, stop: async () => { running = false; await Promise.all(work) } }
+  return {
+    acked,
+    ackedRecords,
+    stop: async () => {
+      running = false
+      await Promise.all(work)
+    },
+  }
 }
 
 async function dbCheck(tag: string) {
   const c = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${pgPort}/millgrain` })
   await c.connect()
-  const orders = await c.query(`select o.title, (select count(*)::int from job_bags b where b.order_id = o.id) as bags,
-    (select count(*)::int from operations op join job_bags b on b.id = op.job_bag_id where b.order_id = o.id) as ops from orders o where o.title like $1`, [`${tag}-%`])
+  const orders = await c.query(
+    `select o.title, (select count(*)::int from job_bags b where b.order_id = o.id) as bags,
+    (select count(*)::int from operations op join job_bags b on b.id = op.job_bag_id where b.order_id = o.id) as ops from orders o where o.title like $1`,
+    [`${tag}-%`],
+  )
   // A time record and its "added by hand" entry are written together or not at all.
-  const records = await c.query(`select k.reason, count(r.id)::int as records from time_record_corrections k left join time_records r on r.id = k.time_record_id where k.reason like $1 group by k.id, k.reason`, [`${tag}-%`])
+  const records = await c.query(
+    `select k.reason, count(r.id)::int as records from time_record_corrections k left join time_records r on r.id = k.time_record_id where k.reason like $1 group by k.id, k.reason`,
+    [`${tag}-%`],
+  )
   await c.end()
   return Object.assign(orders.rows as { title: string; bags: number; ops: number }[], { records: records.rows as { reason: string; records: number }[] })
 }
@@ -129,7 +171,11 @@ describe('faults', { timeout: 180_000 }, () => {
     // (A keep-alive connection the server closes while it notices may reset once: ask again.)
     const ask = async (path: string) => {
       for (let i = 0; i < 5; i++) {
-        try { return await fetch(`${base}${path}`, { headers: { cookie: sessions[0]!.cookie }, signal: AbortSignal.timeout(15_000) }) } catch { await new Promise((r) => setTimeout(r, 100)) }
+        try {
+          return await fetch(`${base}${path}`, { headers: { cookie: sessions[0]!.cookie }, signal: AbortSignal.timeout(15_000) })
+        } catch {
+          await new Promise((r) => setTimeout(r, 100))
+        }
       }
       throw new Error(`no answer from ${path}`)
     }

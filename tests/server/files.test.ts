@@ -38,7 +38,10 @@ async function pdf(): Promise<Buffer> {
 /** Every file under a directory, relative paths. */
 function tree(dir: string): string[] {
   if (!existsSync(dir)) return []
-  return readdirSync(dir, { recursive: true, withFileTypes: true }).filter((d) => d.isFile()).map((d) => join(d.parentPath, d.name).slice(dir.length + 1)).sort()
+  return readdirSync(dir, { recursive: true, withFileTypes: true })
+    .filter((d) => d.isFile())
+    .map((d) => join(d.parentPath, d.name).slice(dir.length + 1))
+    .sort()
 }
 const upload = (a: Agent, path: string) => a.agent.post(path).set('x-csrf-token', a.csrf)
 /** A hand-written multipart body: client libraries strip folders from file names, a crafted request does not. */
@@ -46,7 +49,8 @@ function rawMultipart(a: Agent, path: string, filename: string, content: Buffer)
   const boundary = '----millgrain-test-boundary'
   const body = Buffer.concat([
     Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${filename}"\r\nContent-Type: image/png\r\n\r\n`),
-    content, Buffer.from(`\r\n--${boundary}--\r\n`),
+    content,
+    Buffer.from(`\r\n--${boundary}--\r\n`),
   ])
   return upload(a, path).set('content-type', `multipart/form-data; boundary=${boundary}`).send(body)
 }
@@ -60,12 +64,17 @@ beforeAll(async () => {
   orderId = o.id
   jobBagId = o.bagId
 })
-afterAll(async () => { await t?.close(); rmSync(root, { recursive: true, force: true }) })
+afterAll(async () => {
+  await t?.close()
+  rmSync(root, { recursive: true, force: true })
+})
 
 describe('uploading files', () => {
   it('when sales uploads a real PNG sketch to an order, then it is stored under a generated name with a WebP thumbnail', async () => {
     const body = png()
-    const r = await upload(sales, `/api/orders/${orderId}/files`).field('kind', 'sketch').attach('file', body, { filename: 'ring sketch é.png', contentType: 'image/png' })
+    const r = await upload(sales, `/api/orders/${orderId}/files`)
+      .field('kind', 'sketch')
+      .attach('file', body, { filename: 'ring sketch é.png', contentType: 'image/png' })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body).toMatchObject({ kind: 'sketch', mime: 'image/png', size: body.length, width: 40, height: 30, originalName: 'ring sketch é.png' })
     expect(r.body.thumbnailUrl).toBe(`/api/files/${r.body.id}/thumbnail`)
@@ -92,7 +101,9 @@ describe('uploading files', () => {
     const body = await pdf()
     // Magic bytes of a PDF: "%PDF-" (ISO 32000-1 §7.5.2).
     expect(body.toString('latin1', 0, 5)).toBe('%PDF-')
-    const r = await upload(manager, `/api/job-bags/${jobBagId}/files`).field('kind', 'reference').attach('file', body, { filename: 'drawing.pdf', contentType: 'application/octet-stream' })
+    const r = await upload(manager, `/api/job-bags/${jobBagId}/files`)
+      .field('kind', 'reference')
+      .attach('file', body, { filename: 'drawing.pdf', contentType: 'application/octet-stream' })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body).toMatchObject({ mime: 'application/pdf', thumbnailUrl: null, jobBagId })
     const got = await manager.get(r.body.url).buffer(true)
@@ -103,18 +114,34 @@ describe('uploading files', () => {
   it('when the upload is disguised, too big, empty, has folders in its name or comes several at once, then it is refused with a reason and nothing is written', async () => {
     const before = tree(root)
     const text = Buffer.from('just some text, not a picture at all\n')
-    expectFieldError(await upload(sales, `/api/orders/${orderId}/files`).attach('file', text, { filename: 'photo.png', contentType: 'image/png' }), 'file', /JPEG, PNG or WebP image or a PDF/)
+    expectFieldError(
+      await upload(sales, `/api/orders/${orderId}/files`).attach('file', text, { filename: 'photo.png', contentType: 'image/png' }),
+      'file',
+      /JPEG, PNG or WebP image or a PDF/,
+    )
     // A PNG signature followed by garbage: the signature alone is not enough.
     const broken = Buffer.concat([png().subarray(0, 8), Buffer.alloc(200, 7)])
-    expectFieldError(await upload(sales, `/api/orders/${orderId}/files`).attach('file', broken, { filename: 'broken.png', contentType: 'image/png' }), 'file', /readable image/)
+    expectFieldError(
+      await upload(sales, `/api/orders/${orderId}/files`).attach('file', broken, { filename: 'broken.png', contentType: 'image/png' }),
+      'file',
+      /readable image/,
+    )
     const big = Buffer.concat([png().subarray(0, 8), Buffer.alloc(MAX + 10, 1)])
     const tooBig = await upload(sales, `/api/orders/${orderId}/files`).attach('file', big, { filename: 'big.png', contentType: 'image/png' })
     expectCleanError(tooBig, 413)
     expect(tooBig.body.fields.file).toMatch(/too large/)
-    expectFieldError(await upload(sales, `/api/orders/${orderId}/files`).attach('file', Buffer.alloc(0), { filename: 'empty.png', contentType: 'image/png' }), 'file', /empty/)
+    expectFieldError(
+      await upload(sales, `/api/orders/${orderId}/files`).attach('file', Buffer.alloc(0), { filename: 'empty.png', contentType: 'image/png' }),
+      'file',
+      /empty/,
+    )
     expectFieldError(await rawMultipart(sales, `/api/orders/${orderId}/files`, '../../etc/passwd.png', png()), 'file', /folders/)
     expectFieldError(await rawMultipart(sales, `/api/orders/${orderId}/files`, '..\\..\\boot.png', png()), 'file', /folders/)
-    expectFieldError(await upload(sales, `/api/orders/${orderId}/files`).attach('file', png(), 'a.png').attach('file', png(), 'b.png'), 'file', /one file at a time/)
+    expectFieldError(
+      await upload(sales, `/api/orders/${orderId}/files`).attach('file', png(), 'a.png').attach('file', png(), 'b.png'),
+      'file',
+      /one file at a time/,
+    )
     expectFieldError(await upload(sales, `/api/orders/${orderId}/files`).field('kind', 'invoice').attach('file', png(), 'a.png'), 'kind')
     expectFieldError(await sales.post(`/api/orders/${orderId}/files`, { file: 'not multipart' }), 'file')
     expect(tree(root)).toEqual(before)

@@ -6,8 +6,12 @@ import { publishFirstPlans } from '../../server/planning/first-plan'
 import { createTestDb, type TestDb } from '../setup/db'
 
 let t: TestDb
-beforeAll(async () => { t = await createTestDb() })
-afterAll(async () => { await t.drop() })
+beforeAll(async () => {
+  t = await createTestDb()
+})
+afterAll(async () => {
+  await t.drop()
+})
 
 describe('first plan', () => {
   it('when a workshop has never planned, then a plan is made and published once', async () => {

@@ -34,7 +34,14 @@ describe('fuzzing every route', () => {
   it('when the route list is planned, then only sign-out, what changes the agent’s own session and multipart uploads are left out, each with its reason', () => {
     const plan = printPlanQuiet()
     expect(plan.excluded.map((e) => e.key).sort()).toEqual(
-      allRoutes.filter((r) => ['delete /session', 'delete /session/everywhere', 'post /bench-station'].includes(`${r.method} ${r.path}`) || (r.method === 'post' && /multipart|upload/i.test(r.summary))).map((r) => `${r.method.toUpperCase()} ${r.path}`).sort(),
+      allRoutes
+        .filter(
+          (r) =>
+            ['delete /session', 'delete /session/everywhere', 'post /bench-station'].includes(`${r.method} ${r.path}`) ||
+            (r.method === 'post' && /multipart|upload/i.test(r.summary)),
+        )
+        .map((r) => `${r.method.toUpperCase()} ${r.path}`)
+        .sort(),
     )
     expect(plan.targets.length + plan.excluded.length).toBe(allRoutes.length)
   })
@@ -45,10 +52,12 @@ describe('fuzzing every route', () => {
     const sessions = await makeSessions(server)
     const pools = await loadIdPools(t.pool)
     const stats: FuzzStats = await fuzzRoutes({ routes: allRoutes, sessions, pools, runsPerRoute: RUNS_PER_ROUTE, seed: SEED }, plan)
-    console.log(`fuzz: ${stats.requests} requests, statuses ${JSON.stringify(stats.byStatus)}, ${stats.readBacks} read-backs, ${stats.runsStopped} planner runs stopped`)
+    console.log(
+      `fuzz: ${stats.requests} requests, statuses ${JSON.stringify(stats.byStatus)}, ${stats.readBacks} read-backs, ${stats.runsStopped} planner runs stopped`,
+    )
     if (process.env.FUZZ_VERBOSE) for (const [k, v] of Object.entries(stats.byRoute)) console.log(`${k.padEnd(50)} ${JSON.stringify(v)}`)
     expect(stats.failures, JSON.stringify(stats.failures.slice(0, 15), null, 1)).toEqual([])
-    expect(stats.sessionsRenewed, 'no fuzzed request may end a fuzzing agent\'s session').toEqual([])
+    expect(stats.sessionsRenewed, "no fuzzed request may end a fuzzing agent's session").toEqual([])
     // The sample reaches past validation on most routes: at least one 2xx overall per method family.
     expect(Object.keys(stats.byStatus).some((s) => s.startsWith('2'))).toBe(true)
   }, 180_000)

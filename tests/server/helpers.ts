@@ -38,13 +38,23 @@ export function expectFieldError(r: Response, field: string, reason?: RegExp) {
   if (reason) expect(r.body.fields[field]).toMatch(reason)
 }
 
-export interface AuditRow { action: string; entity: string; entity_id: number | null; user_id: number | null; workshop_id: number; details: Record<string, unknown> }
+export interface AuditRow {
+  action: string
+  entity: string
+  entity_id: number | null
+  user_id: number | null
+  workshop_id: number
+  details: Record<string, unknown>
+}
 
 /** Audit rows for one entity, newest first. */
 export async function auditRows(t: TestApp, entity: string, entityId: number): Promise<AuditRow[]> {
   const a = s.auditLog
-  return t.db.select({ action: a.action, entity: a.entity, entity_id: a.entityId, user_id: a.userId, workshop_id: a.workshopId, details: a.details })
-    .from(a).where(and(eq(a.entity, entity), eq(a.entityId, entityId))).orderBy(desc(a.id))
+  return t.db
+    .select({ action: a.action, entity: a.entity, entity_id: a.entityId, user_id: a.userId, workshop_id: a.workshopId, details: a.details })
+    .from(a)
+    .where(and(eq(a.entity, entity), eq(a.entityId, entityId)))
+    .orderBy(desc(a.id))
 }
 
 export async function userIdOf(t: TestApp, email: string): Promise<number> {

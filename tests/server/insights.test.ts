@@ -21,7 +21,14 @@ async function finish(opId: number, estimate: number, finishedAt: string, record
   await q(`update operations set status = 'done', estimate_minutes = $2, finished_at = $3 where id = $1`, [opId, estimate, finishedAt])
   const ids: number[] = []
   for (const r of records) {
-    const { rows: [row] } = await q(`insert into time_records (operation_id, person_id, started_at, ended_at, end_reason) values ($1, $2, $3, $4, 'finished') returning id`, [opId, person[r.person], r.start, plus(r.start, r.minutes)])
+    const {
+      rows: [row],
+    } = await q(`insert into time_records (operation_id, person_id, started_at, ended_at, end_reason) values ($1, $2, $3, $4, 'finished') returning id`, [
+      opId,
+      person[r.person],
+      r.start,
+      plus(r.start, r.minutes),
+    ])
     ids.push(row.id)
   }
   return ids
@@ -40,7 +47,9 @@ beforeAll(async () => {
   person = Object.fromEntries((await q(`select id, name from people`)).rows.map((p) => [p.name.split(' ')[0], p.id]))
   const customerId = (await q(`select min(id) as id from customers`)).rows[0].id
   const tpl = await manager.post('/api/templates', {
-    code: 'insight-fixture', name: 'Fixture: set and polish', description: 'Hand-computed fixture for the insights tests.',
+    code: 'insight-fixture',
+    name: 'Fixture: set and polish',
+    description: 'Hand-computed fixture for the insights tests.',
     steps: [
       { key: 'set', kindId: kinds.setting, name: 'Set stones', baseMinutes: 30, perStoneMinutes: 5 },
       { key: 'polish', kindId: kinds.polishing, name: 'Polish', baseMinutes: 20, after: ['set'] },
@@ -49,8 +58,17 @@ beforeAll(async () => {
   })
   expect(tpl.status).toBe(201)
   templateId = tpl.body.id
-  for (const [title, price, quantity] of [['Fixture order A', 50_000, 2], ['Fixture order B', 30_000, 1]] as const) {
-    const o = await manager.post('/api/orders', { customerId, title, dueDate: '2030-04-30', priceQuotedMinor: price, pieces: [{ templateId, piece: title, params: { stoneCount: 6, stoneSizeMm: 1.5, quantity } }] })
+  for (const [title, price, quantity] of [
+    ['Fixture order A', 50_000, 2],
+    ['Fixture order B', 30_000, 1],
+  ] as const) {
+    const o = await manager.post('/api/orders', {
+      customerId,
+      title,
+      dueDate: '2030-04-30',
+      priceQuotedMinor: price,
+      pieces: [{ templateId, piece: title, params: { stoneCount: 6, stoneSizeMm: 1.5, quantity } }],
+    })
     expect(o.status).toBe(201)
     orderIds.push(o.body.id)
     orderNumbers.push(o.body.number)
@@ -64,17 +82,23 @@ beforeAll(async () => {
   // Order B (April 2030): setting 120 → 100 min (Ines), polishing 30 → 20 + 10 min (Theo) and a 500-min record the manager voided.
   await finish(b.set!, 120, at('2030-04-02', '12:00'), [{ person: 'Ines', start: at('2030-04-02', '08:00'), minutes: 100 }])
   const [, , forgotten] = await finish(b.polish!, 30, at('2030-04-03', '15:00'), [
-    { person: 'Theo', start: at('2030-04-03', '09:00'), minutes: 20 }, { person: 'Theo', start: at('2030-04-03', '10:00'), minutes: 10 },
+    { person: 'Theo', start: at('2030-04-03', '09:00'), minutes: 20 },
+    { person: 'Theo', start: at('2030-04-03', '10:00'), minutes: 10 },
     { person: 'Theo', start: at('2030-04-03', '11:00'), minutes: 500 },
   ])
   const managerUser = (await q(`select id from users where email = 'manager@wrenfield.test'`)).rows[0].id
-  await q(`insert into time_record_corrections (workshop_id, time_record_id, kind, reason, corrected_by) select workshop_id, $1, 'void', 'left running overnight', $2 from users where id = $2`, [forgotten, managerUser])
+  await q(
+    `insert into time_record_corrections (workshop_id, time_record_id, kind, reason, corrected_by) select workshop_id, $1, 'void', 'left running overnight', $2 from users where id = $2`,
+    [forgotten, managerUser],
+  )
   await finish(b.hallmark!, 0, at('2030-04-08', '12:00'), [])
   // Expected outside cost: 2.50 per unit at the assay office; order A's was invoiced at 7.00.
   expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 250 })).status).toBe(200)
   expect((await owner.put(`/api/insights/operations/${a.hallmark}/outside-cost`, { outsideCostMinor: 700 })).status).toBe(200)
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 const byLabel = (rows: { label: string }[]) => Object.fromEntries(rows.map((r) => [r.label, r]))
 
@@ -85,11 +109,41 @@ describe('estimated against actual hours', () => {
     const rows = byLabel(r.body.rows)
     // Hand-computed (MAPE = mean |A − F| / A, Hyndman & Koehler 2006 definition; hours = minutes / 60, 2 decimals):
     // setting 60 + 120 = 180 min estimated, 90 + 100 = 190 actual → bias +10 min = +0.17 h, +5.6 %; MAPE (30/90 + 20/100)/2 = 26.7 %.
-    expect(rows['Stone setting']).toEqual({ key: String(kinds.setting), label: 'Stone setting', n: 2, estimateHours: 3, actualHours: 3.17, biasHours: 0.17, biasPct: 5.6, direction: 'over', mapePct: 26.7 })
+    expect(rows['Stone setting']).toEqual({
+      key: String(kinds.setting),
+      label: 'Stone setting',
+      n: 2,
+      estimateHours: 3,
+      actualHours: 3.17,
+      biasHours: 0.17,
+      biasPct: 5.6,
+      direction: 'over',
+      mapePct: 26.7,
+    })
     // polishing 30 + 30 = 60 estimated, 24 + 30 = 54 actual (the voided 500 min record counts 0) → −6 min = −0.1 h, −10 %; MAPE (6/24 + 0)/2 = 12.5 %.
-    expect(rows.Polishing).toEqual({ key: String(kinds.polishing), label: 'Polishing', n: 2, estimateHours: 1, actualHours: 0.9, biasHours: -0.1, biasPct: -10, direction: 'under', mapePct: 12.5 })
+    expect(rows.Polishing).toEqual({
+      key: String(kinds.polishing),
+      label: 'Polishing',
+      n: 2,
+      estimateHours: 1,
+      actualHours: 0.9,
+      biasHours: -0.1,
+      biasPct: -10,
+      direction: 'under',
+      mapePct: 12.5,
+    })
     // Total 240 → 244 min: +4 min = 0.07 h, +1.7 %; MAPE (1/3 + 0.2 + 0.25 + 0)/4 = 19.6 %. Outside work (hallmark) has no bench time: not counted.
-    expect(r.body.total).toEqual({ key: 'total', label: 'Total', n: 4, estimateHours: 4, actualHours: 4.07, biasHours: 0.07, biasPct: 1.7, direction: 'over', mapePct: 19.6 })
+    expect(r.body.total).toEqual({
+      key: 'total',
+      label: 'Total',
+      n: 4,
+      estimateHours: 4,
+      actualHours: 4.07,
+      biasHours: 0.07,
+      biasPct: 1.7,
+      direction: 'over',
+      mapePct: 19.6,
+    })
   })
 
   it('when grouped by person, order and month, then each row sums its own operations', async () => {
@@ -99,10 +153,21 @@ describe('estimated against actual hours', () => {
     expect(person['Theo Brae']).toMatchObject({ n: 1, estimateHours: 0.5, actualHours: 0.5, biasHours: 0, direction: 'even', mapePct: 0 })
     const order = (await owner.get(`/api/insights/comparison?groupBy=order&templateId=${templateId}`)).body.rows
     // Order A: 90 → 114 min (+26.7 %); order B: 150 → 130 min (−13.3 %).
-    expect(order.map((x: { key: string; estimateHours: number; actualHours: number; biasPct: number }) => [Number(x.key), x.estimateHours, x.actualHours, x.biasPct]).sort())
-      .toEqual([[orderIds[0], 1.5, 1.9, 26.7], [orderIds[1], 2.5, 2.17, -13.3]].sort())
+    expect(
+      order
+        .map((x: { key: string; estimateHours: number; actualHours: number; biasPct: number }) => [Number(x.key), x.estimateHours, x.actualHours, x.biasPct])
+        .sort(),
+    ).toEqual(
+      [
+        [orderIds[0], 1.5, 1.9, 26.7],
+        [orderIds[1], 2.5, 2.17, -13.3],
+      ].sort(),
+    )
     const month = (await owner.get(`/api/insights/comparison?groupBy=month&templateId=${templateId}`)).body.rows
-    expect(month.map((x: { key: string; n: number }) => [x.key, x.n])).toEqual([['2030-03', 2], ['2030-04', 2]])
+    expect(month.map((x: { key: string; n: number }) => [x.key, x.n])).toEqual([
+      ['2030-03', 2],
+      ['2030-04', 2],
+    ])
     const tpl = (await owner.get(`/api/insights/comparison?groupBy=template&templateId=${templateId}`)).body.rows
     expect(tpl).toEqual([expect.objectContaining({ key: String(templateId), label: 'Fixture: set and polish', n: 4 })])
   })
@@ -162,7 +227,11 @@ describe('estimated against actual hours', () => {
     expect(r.body.label).toBe('Polishing')
     const b = r.body.operations.find((o: { orderNumber: string }) => o.orderNumber === orderNumbers[1])
     expect(b).toMatchObject({ estimateMinutes: 30, actualMinutes: 30, personName: 'Theo Brae', kind: 'Polishing' })
-    expect(b.records.map((x: { minutes: number; voided: boolean }) => [x.minutes, x.voided])).toEqual([[20, false], [10, false], [0, true]])
+    expect(b.records.map((x: { minutes: number; voided: boolean }) => [x.minutes, x.voided])).toEqual([
+      [20, false],
+      [10, false],
+      [0, true],
+    ])
     const csv = await owner.get(`/api/insights/records?groupBy=kind&key=${kinds.polishing}&templateId=${templateId}&format=csv`)
     expect(csv.headers['content-disposition']).toMatch(/^attachment; filename="time-records-kind-\d+\.csv"$/)
     expect(csv.text.split('\r\n').filter(Boolean)).toHaveLength(1 + 4)
@@ -176,7 +245,14 @@ describe('estimated against actual hours', () => {
 
   it('when the chart data is asked for, then the scatter has one point per operation and the trend one cell per kind and month', async () => {
     const s = await owner.get(`/api/insights/scatter?templateId=${templateId}`)
-    expect(s.body.map((p: { estimateMinutes: number; actualMinutes: number }) => [p.estimateMinutes, p.actualMinutes]).sort()).toEqual([[120, 100], [30, 24], [30, 30], [60, 90]].sort())
+    expect(s.body.map((p: { estimateMinutes: number; actualMinutes: number }) => [p.estimateMinutes, p.actualMinutes]).sort()).toEqual(
+      [
+        [120, 100],
+        [30, 24],
+        [30, 30],
+        [60, 90],
+      ].sort(),
+    )
     const trend = await owner.get(`/api/insights/bias-trend?templateId=${templateId}`)
     expect(trend.body.months).toEqual(['2030-03', '2030-04'])
     const setting = trend.body.series.find((x: { kindId: number }) => x.kindId === kinds.setting)
@@ -195,15 +271,43 @@ describe('job costing', () => {
     // outside 250 × 2 units = 500 expected, 700 invoiced. Price 50,000: margins 44,400 (88.8 %) and 42,560 (85.1 %).
     expect(r.body.currency).toBe('GBP')
     expect(rows[orderIds[0]!]).toMatchObject({
-      priceQuotedMinor: 50_000, finishedOn: '2030-03-14', estimateHours: 1.5, actualHours: 1.9, labourAtEstimateMinor: 5_100, labourAtActualMinor: 6_740, outsideAtEstimateMinor: 500, outsideAtActualMinor: 700,
-      costAtEstimateMinor: 5_600, costAtActualMinor: 7_440, marginAtEstimateMinor: 44_400, marginAtActualMinor: 42_560, marginPctAtEstimate: 88.8, marginPctAtActual: 85.1,
+      priceQuotedMinor: 50_000,
+      finishedOn: '2030-03-14',
+      estimateHours: 1.5,
+      actualHours: 1.9,
+      labourAtEstimateMinor: 5_100,
+      labourAtActualMinor: 6_740,
+      outsideAtEstimateMinor: 500,
+      outsideAtActualMinor: 700,
+      costAtEstimateMinor: 5_600,
+      costAtActualMinor: 7_440,
+      marginAtEstimateMinor: 44_400,
+      marginAtActualMinor: 42_560,
+      marginPctAtEstimate: 88.8,
+      marginPctAtActual: 85.1,
     })
     // B: at estimate 120/60 × 3,800 + 30/60 × 1,800 = 8,500; at actual 100/60 × 3,800 = 6,333.3 → 6,333 + 900 = 7,233; outside 250 (nothing invoiced yet).
     expect(rows[orderIds[1]!]).toMatchObject({
-      priceQuotedMinor: 30_000, labourAtEstimateMinor: 8_500, labourAtActualMinor: 7_233, outsideAtEstimateMinor: 250, outsideAtActualMinor: 250,
-      costAtEstimateMinor: 8_750, costAtActualMinor: 7_483, marginAtEstimateMinor: 21_250, marginAtActualMinor: 22_517, marginPctAtEstimate: 70.8, marginPctAtActual: 75.1,
+      priceQuotedMinor: 30_000,
+      labourAtEstimateMinor: 8_500,
+      labourAtActualMinor: 7_233,
+      outsideAtEstimateMinor: 250,
+      outsideAtActualMinor: 250,
+      costAtEstimateMinor: 8_750,
+      costAtActualMinor: 7_483,
+      marginAtEstimateMinor: 21_250,
+      marginAtActualMinor: 22_517,
+      marginPctAtEstimate: 70.8,
+      marginPctAtActual: 75.1,
     })
-    expect(r.body.total).toMatchObject({ orders: 2, priceQuotedMinor: 80_000, costAtEstimateMinor: 14_350, costAtActualMinor: 14_923, marginAtEstimateMinor: 65_650, marginAtActualMinor: 65_077 })
+    expect(r.body.total).toMatchObject({
+      orders: 2,
+      priceQuotedMinor: 80_000,
+      costAtEstimateMinor: 14_350,
+      costAtActualMinor: 14_923,
+      marginAtEstimateMinor: 65_650,
+      marginAtActualMinor: 65_077,
+    })
     const csv = await owner.get(`/api/insights/costing?templateId=${templateId}&format=csv`)
     expect(csv.headers['content-disposition']).toBe('attachment; filename="job-costing.csv"')
     expect(csv.text).toContain(`${orderNumbers[0]},Fixture order A,`)
@@ -214,19 +318,34 @@ describe('job costing', () => {
     // Both fixture pieces are silver with no metal weight given and nothing weighed, six stones with no stone list and no cost each;
     // their hallmark is costed (2.50 per unit on the routing step, set above), so outside work is not missing.
     for (const row of r.body.rows) {
-      expect(row).toMatchObject({ outsideSteps: 1, outsideUncosted: 0, metalAtEstimateMinor: 0, metalAtActualMinor: 0, stonesAtEstimateMinor: 0, stonesAtActualMinor: 0,
-        caveatAtEstimate: 'no metal weight estimated; stone costs not entered', caveatAtActual: 'no metal weighed yet; stone costs not entered' })
+      expect(row).toMatchObject({
+        outsideSteps: 1,
+        outsideUncosted: 0,
+        metalAtEstimateMinor: 0,
+        metalAtActualMinor: 0,
+        stonesAtEstimateMinor: 0,
+        stonesAtActualMinor: 0,
+        caveatAtEstimate: 'no metal weight estimated; stone costs not entered',
+        caveatAtActual: 'no metal weighed yet; stone costs not entered',
+      })
     }
     expect(r.body.total).toMatchObject({ outsideSteps: 2, outsideUncosted: 0, caveatAtActual: 'on some orders: no metal weighed yet; stone costs not entered' })
     expect(r.body.note).toMatch(/^Cost = metal \(net weight in the piece plus loss/)
     const lines = (await owner.get(`/api/insights/costing?templateId=${templateId}&format=csv`)).text.split('\r\n')
-    expect(lines[0]).toBe('order,title,customer,finished_on,price_quoted,estimate_hours,actual_hours,'
-      + 'metal_at_estimate,stones_at_estimate,outside_at_estimate,labour_at_estimate,cost_at_estimate,margin_at_estimate,margin_pct_at_estimate,not_counted_at_estimate,'
-      + 'metal_at_actual,stones_at_actual,outside_at_actual,labour_at_actual,cost_at_actual,margin_at_actual,margin_pct_at_actual,not_counted_at_actual,customer_metal_lost_g')
+    expect(lines[0]).toBe(
+      'order,title,customer,finished_on,price_quoted,estimate_hours,actual_hours,' +
+        'metal_at_estimate,stones_at_estimate,outside_at_estimate,labour_at_estimate,cost_at_estimate,margin_at_estimate,margin_pct_at_estimate,not_counted_at_estimate,' +
+        'metal_at_actual,stones_at_actual,outside_at_actual,labour_at_actual,cost_at_actual,margin_at_actual,margin_pct_at_actual,not_counted_at_actual,customer_metal_lost_g',
+    )
     const a = lines.find((l) => l.startsWith(`${orderNumbers[0]},`))!
     // Order A (hand-computed above), in pounds with GBP's two decimals: estimate 0 + 0 + 5.00 + 51.00 = 56.00, margin 444.00 = 88.8 %;
     // actual 0 + 0 + 7.00 + 67.40 = 74.40, margin 425.60 = 85.1 %.
-    expect(a.endsWith(',500.00,1.5,1.9,0.00,0.00,5.00,51.00,56.00,444.00,88.8,no metal weight estimated; stone costs not entered,0.00,0.00,7.00,67.40,74.40,425.60,85.1,no metal weighed yet; stone costs not entered,0'), a).toBe(true)
+    expect(
+      a.endsWith(
+        ',500.00,1.5,1.9,0.00,0.00,5.00,51.00,56.00,444.00,88.8,no metal weight estimated; stone costs not entered,0.00,0.00,7.00,67.40,74.40,425.60,85.1,no metal weighed yet; stone costs not entered,0',
+      ),
+      a,
+    ).toBe(true)
     // Last line before the final CRLF: the note, padded to the header's 24 columns (RFC 4180 §2: each line the same number of fields).
     const note = lines.at(-2)!
     expect(note.startsWith('Note,"Cost = metal')).toBe(true)
@@ -265,8 +384,16 @@ describe('job costing', () => {
   })
 
   it('when an outside cost is not a number or negative, then the field is named', async () => {
-    expectFieldError(await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: -1 }), 'outsideCostMinor', /negative/)
-    expectFieldError(await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 2.5 }), 'outsideCostMinor', /whole minor units/)
+    expectFieldError(
+      await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: -1 }),
+      'outsideCostMinor',
+      /negative/,
+    )
+    expectFieldError(
+      await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 2.5 }),
+      'outsideCostMinor',
+      /whole minor units/,
+    )
     expectCleanError(await owner.put(`/api/insights/operations/999999/outside-cost`, { outsideCostMinor: 100 }), 404)
   })
 })
@@ -302,11 +429,20 @@ describe('learning from actual times', () => {
 
   it('when a step also counts the piece’s size, then no figure is suggested and its history is measured against the whole step model', async () => {
     // A routing step of 10 min + 0.1 min per mm; pieces of 100 mm → 10 + 10 = 20 min each (hand-computed). Priya saws at speed 1.0 (seed).
-    const tpl = await manager.post('/api/templates', { code: 'per-mm-fixture', name: 'Fixture: sawn by length', steps: [{ key: 'saw', kindId: kinds.sawing, name: 'Saw to length', baseMinutes: 10, perMmMinutes: 0.1 }] })
+    const tpl = await manager.post('/api/templates', {
+      code: 'per-mm-fixture',
+      name: 'Fixture: sawn by length',
+      steps: [{ key: 'saw', kindId: kinds.sawing, name: 'Saw to length', baseMinutes: 10, perMmMinutes: 0.1 }],
+    })
     expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
     const customerId = (await q(`select min(id) as id from customers`)).rows[0].id
     for (let i = 0; i < 5; i++) {
-      const o = await manager.post('/api/orders', { customerId, title: `Per-mm fixture ${i}`, dueDate: '2030-06-30', pieces: [{ templateId: tpl.body.id, piece: 'Bar', params: { sizeMm: 100 } }] })
+      const o = await manager.post('/api/orders', {
+        customerId,
+        title: `Per-mm fixture ${i}`,
+        dueDate: '2030-06-30',
+        pieces: [{ templateId: tpl.body.id, piece: 'Bar', params: { sizeMm: 100 } }],
+      })
       const ops = await opsOf(o.body.id)
       const day = `2030-06-${String(3 + i).padStart(2, '0')}`
       await finish(ops.saw!, 20, at(day, '10:00'), [{ person: 'Priya', start: at(day, '09:36'), minutes: 24 }])
@@ -318,18 +454,29 @@ describe('learning from actual times', () => {
 
   it('when setting history has overnight outliers, then the learned per-stone minutes stay on the true rate', async () => {
     // A routing whose template is wrong on purpose (10 + 4 per stone); the true work is 20 + 6 per stone at standard speed.
-    const tpl = await manager.post('/api/templates', { code: 'outlier-fixture', name: 'Fixture: pavé with outliers', steps: [{ key: 'set', kindId: kinds.setting, name: 'Set pavé', baseMinutes: 10, perStoneMinutes: 4 }] })
+    const tpl = await manager.post('/api/templates', {
+      code: 'outlier-fixture',
+      name: 'Fixture: pavé with outliers',
+      steps: [{ key: 'set', kindId: kinds.setting, name: 'Set pavé', baseMinutes: 10, perStoneMinutes: 4 }],
+    })
     const customerId = (await q(`select min(id) as id from customers`)).rows[0].id
     const speed = 1.15 // Ines's setting speed (seed)
     for (let i = 0; i < 20; i++) {
       const stones = 2 + i
-      const o = await manager.post('/api/orders', { customerId, title: `Outlier fixture ${i}`, dueDate: '2030-06-30', pieces: [{ templateId: tpl.body.id, piece: 'Pavé', params: { stoneCount: stones } }] })
+      const o = await manager.post('/api/orders', {
+        customerId,
+        title: `Outlier fixture ${i}`,
+        dueDate: '2030-06-30',
+        pieces: [{ templateId: tpl.body.id, piece: 'Pavé', params: { stoneCount: stones } }],
+      })
       const ops = await opsOf(o.body.id)
       let minutes = Math.round(((20 + 6 * stones) / speed) * 60) / 60
       // Two jobs left on the bench overnight (+480 and +620 min), as the seed's "left on the bench" records.
       if (i === 4) minutes += 480
       if (i === 15) minutes += 620
-      await finish(ops.set!, 10 + 4 * stones, at('2030-05-01', '08:00').replace('01T', `${String(1 + i).padStart(2, '0')}T`), [{ person: 'Ines', start: at('2030-05-01', '08:00').replace('01T', `${String(1 + i).padStart(2, '0')}T`), minutes }])
+      await finish(ops.set!, 10 + 4 * stones, at('2030-05-01', '08:00').replace('01T', `${String(1 + i).padStart(2, '0')}T`), [
+        { person: 'Ines', start: at('2030-05-01', '08:00').replace('01T', `${String(1 + i).padStart(2, '0')}T`), minutes },
+      ])
     }
     const r = await owner.get('/api/estimates/learned')
     const s = r.body.steps.find((x: { templateId: number }) => x.templateId === tpl.body.id)
@@ -342,17 +489,54 @@ describe('learning from actual times', () => {
 
     // The owner accepts: the step's minutes change, the template version goes up, the change is kept with who, when and its basis.
     const before = (await owner.get(`/api/templates/${tpl.body.id}`)).body
-    const acc = await owner.post('/api/estimates/accept', { templateId: tpl.body.id, stepKey: 'set', baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes, templateVersion: before.version, reason: 'learned from 20 jobs' })
+    const acc = await owner.post('/api/estimates/accept', {
+      templateId: tpl.body.id,
+      stepKey: 'set',
+      baseMinutes: s.suggested.baseMinutes,
+      perStoneMinutes: s.suggested.perStoneMinutes,
+      templateVersion: before.version,
+      reason: 'learned from 20 jobs',
+    })
     expect(acc.status).toBe(200)
-    expect(acc.body).toMatchObject({ templateId: tpl.body.id, stepKey: 'set', stepName: 'Set pavé', from: { baseMinutes: 10, perStoneMinutes: 4 }, to: { baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes }, templateVersion: before.version + 1, acceptedBy: 'Margit Saale', basis: { n: 20, method: 'theil-sen' } })
+    expect(acc.body).toMatchObject({
+      templateId: tpl.body.id,
+      stepKey: 'set',
+      stepName: 'Set pavé',
+      from: { baseMinutes: 10, perStoneMinutes: 4 },
+      to: { baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes },
+      templateVersion: before.version + 1,
+      acceptedBy: 'Margit Saale',
+      basis: { n: 20, method: 'theil-sen' },
+    })
     const after = (await owner.get(`/api/templates/${tpl.body.id}`)).body
     expect(after.version).toBe(before.version + 1)
     expect(after.steps[0]).toMatchObject({ baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes })
-    expect((await auditRows(t, 'routing-template', tpl.body.id))[0]).toMatchObject({ action: 'accept-estimate', details: { stepKey: 'set', reason: 'learned from 20 jobs' } })
+    expect((await auditRows(t, 'routing-template', tpl.body.id))[0]).toMatchObject({
+      action: 'accept-estimate',
+      details: { stepKey: 'set', reason: 'learned from 20 jobs' },
+    })
     expect((await owner.get('/api/estimates/changes')).body[0]).toMatchObject({ id: acc.body.id })
     // Accepting against the old version again: someone changed the template since → 409.
-    expectCleanError(await owner.post('/api/estimates/accept', { templateId: tpl.body.id, stepKey: 'set', baseMinutes: 20, perStoneMinutes: 6, templateVersion: before.version }), 409)
-    expectFieldError(await owner.post('/api/estimates/accept', { templateId: tpl.body.id, stepKey: 'nope', baseMinutes: 20, perStoneMinutes: 6, templateVersion: after.version }), 'stepKey')
+    expectCleanError(
+      await owner.post('/api/estimates/accept', {
+        templateId: tpl.body.id,
+        stepKey: 'set',
+        baseMinutes: 20,
+        perStoneMinutes: 6,
+        templateVersion: before.version,
+      }),
+      409,
+    )
+    expectFieldError(
+      await owner.post('/api/estimates/accept', {
+        templateId: tpl.body.id,
+        stepKey: 'nope',
+        baseMinutes: 20,
+        perStoneMinutes: 6,
+        templateVersion: after.version,
+      }),
+      'stepKey',
+    )
   })
 })
 
@@ -361,7 +545,13 @@ describe('access', () => {
     const bench = await signedIn(t.app, 'bench')
     const sales = await signedIn(t.app, 'sales')
     for (const a of [bench, sales, manager]) {
-      for (const path of ['/api/insights/comparison', '/api/insights/costing', '/api/insights/scatter', '/api/estimates/learned', `/api/insights/records?groupBy=kind&key=${kinds.setting}`]) {
+      for (const path of [
+        '/api/insights/comparison',
+        '/api/insights/costing',
+        '/api/insights/scatter',
+        '/api/estimates/learned',
+        `/api/insights/records?groupBy=kind&key=${kinds.setting}`,
+      ]) {
         const r = await a.get(path)
         expectCleanError(r, 403)
       }
@@ -384,7 +574,9 @@ describe('outside work costs', () => {
     expect(hallmark).toMatchObject({ leadDays: expect.any(Number), outsideCostMinor: 280, currency: 'GBP' })
     const put = await owner.put(`/api/insights/templates/${hallmark.templateId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCostMinor: 1250 })
     expect(put.status).toBe(200)
-    const again = (await owner.get('/api/insights/outside-costs')).body.find((r: { templateId: number; stepKey: string }) => r.templateId === hallmark.templateId && r.stepKey === hallmark.stepKey)
+    const again = (await owner.get('/api/insights/outside-costs')).body.find(
+      (r: { templateId: number; stepKey: string }) => r.templateId === hallmark.templateId && r.stepKey === hallmark.stepKey,
+    )
     expect(again.outsideCostMinor).toBe(1250)
     const manager = await signedIn(t.app, 'manager')
     expect((await manager.get('/api/insights/outside-costs')).status).toBe(403)

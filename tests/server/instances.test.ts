@@ -22,7 +22,9 @@ beforeAll(async () => {
     proxy: true,
     env: { SOCKET_SESSION_SWEEP_MS: '500' },
     // A live plan, so the manager has bars to pin on the board.
-    prepare: async (d) => { await publishFirstPlans(d.db, 2) },
+    prepare: async (d) => {
+      await publishFirstPlans(d.db, 2)
+    },
   })
   ;[a, b] = cluster.instances as [Instance, Instance]
 }, 120_000)
@@ -33,31 +35,50 @@ afterAll(async () => {
 
 type Session = Awaited<ReturnType<typeof httpSignIn>>
 const api = (base: string, s: Session, method: string, path: string, body?: unknown) =>
-  fetch(`${base}/api${path}`, { method, headers: { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf }, body: body === undefined ? undefined : JSON.stringify(body) })
+  fetch(`${base}/api${path}`, {
+    method,
+    headers: { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf },
+    body: body === undefined ? undefined : JSON.stringify(body),
+  })
 
 async function listen(base: string, s: Session, transports: ('websocket' | 'polling')[] = ['websocket']) {
   const sock = connect(base, { extraHeaders: { cookie: s.cookie }, transports, reconnection: false })
   open.push(sock)
   const heard: { event: string; payload: any }[] = []
   sock.onAny((event, payload) => heard.push({ event, payload }))
-  await new Promise<void>((res, rej) => { sock.on('connect', () => res()); sock.on('connect_error', rej) })
+  await new Promise<void>((res, rej) => {
+    sock.on('connect', () => res())
+    sock.on('connect_error', rej)
+  })
   return { sock, heard }
 }
 const until = (sock: Socket, event: string, timeoutMs = 20_000) =>
-  new Promise<any>((res, rej) => { const t = setTimeout(() => rej(new Error(`no ${event} within ${timeoutMs} ms`)), timeoutMs); sock.once(event, (p: unknown) => { clearTimeout(t); res(p) }) })
+  new Promise<any>((res, rej) => {
+    const t = setTimeout(() => rej(new Error(`no ${event} within ${timeoutMs} ms`)), timeoutMs)
+    sock.once(event, (p: unknown) => {
+      clearTimeout(t)
+      res(p)
+    })
+  })
 const since = (sock: Socket, seq: number) => new Promise<{ seq: number; event: string; payload: any }[]>((res) => sock.emit('changes:since' as any, seq, res))
 
-const pinnedNow = async (id: number) => (await cluster.database.db.select({ pinned: s.operations.pinned }).from(s.operations).where(eq(s.operations.id, id)))[0]!.pinned
+const pinnedNow = async (id: number) =>
+  (await cluster.database.db.select({ pinned: s.operations.pinned }).from(s.operations).where(eq(s.operations.id, id)))[0]!.pinned
 
 /** A planned step of the live plan that is not started and not pinned, with its version. */
 async function plannedStep(): Promise<{ id: number; version: number; planned_start: string }> {
   const o = s.operations
-  const [row] = await cluster.database.db.select({ id: o.id, version: o.version, planned_start: o.plannedStart }).from(o)
-    .where(and(inArray(o.status, ['pending', 'ready']), isNotNull(o.plannedStart), eq(o.pinned, false))).orderBy(asc(o.plannedStart), asc(o.id)).limit(1)
+  const [row] = await cluster.database.db
+    .select({ id: o.id, version: o.version, planned_start: o.plannedStart })
+    .from(o)
+    .where(and(inArray(o.status, ['pending', 'ready']), isNotNull(o.plannedStart), eq(o.pinned, false)))
+    .orderBy(asc(o.plannedStart), asc(o.id))
+    .limit(1)
   if (!row) throw new Error('the first plan left no planned step to pin')
   return { ...row, planned_start: row.planned_start! }
 }
-const pin = (base: string, s: Session, step: { id: number; version: number }, pinned: boolean) => api(base, s, 'PATCH', `/board/operations/${step.id}`, { pinned, version: step.version })
+const pin = (base: string, s: Session, step: { id: number; version: number }, pinned: boolean) =>
+  api(base, s, 'PATCH', `/board/operations/${step.id}`, { pinned, version: step.version })
 
 describe('live events across instances', () => {
   it('when the manager pins a bar on instance A, then a planner connected to B hears it with the same number A recorded', async () => {
@@ -71,7 +92,10 @@ describe('live events across instances', () => {
     const event = await heard
     expect(event).toMatchObject({ operationId: step.id, seq: expect.any(Number) })
     // The number is the row A wrote in PostgreSQL, not a count kept by either process.
-    const rows = await cluster.database.db.select({ seq: s.realtimeEvents.seq, event: s.realtimeEvents.event }).from(s.realtimeEvents).where(eq(s.realtimeEvents.seq, event.seq))
+    const rows = await cluster.database.db
+      .select({ seq: s.realtimeEvents.seq, event: s.realtimeEvents.event })
+      .from(s.realtimeEvents)
+      .where(eq(s.realtimeEvents.seq, event.seq))
     expect(rows).toEqual([{ seq: event.seq, event: 'plan:changed' }])
     const back = await pin(a.url, onA, { id: step.id, version: ((await r.json()) as { version: number }).version }, false)
     expect(back.status).toBe(200)
@@ -100,7 +124,11 @@ describe('live events across instances', () => {
     expect(mine.map((e) => e.payload.seq)).toEqual(seen)
     expect([...seen].sort((x, y) => x - y)).toEqual(seen)
     // Planner-only events recorded on A reach the owner's catch-up on B, never the bench user's.
-    const [draftLike] = await cluster.database.db.select({ id: s.planVersions.id, workshopId: s.planVersions.workshopId }).from(s.planVersions).orderBy(asc(s.planVersions.id)).limit(1)
+    const [draftLike] = await cluster.database.db
+      .select({ id: s.planVersions.id, workshopId: s.planVersions.workshopId })
+      .from(s.planVersions)
+      .orderBy(asc(s.planVersions.id))
+      .limit(1)
     await cluster.database.db.insert(s.realtimeEvents).values({ workshopId: draftLike!.workshopId, event: 'plan:drafted', payload: { id: draftLike!.id } })
     expect((await since(benchSock.sock, before)).map((e) => e.event)).not.toContain('plan:drafted')
     expect((await since(plannerSock.sock, before)).map((e) => e.event)).toContain('plan:drafted')
@@ -147,7 +175,10 @@ describe('claims across instances', () => {
     expect(refused).toHaveLength(99)
     const winner = crowd.find((c) => c.personId === ok[0]!.body.operation.claimedBy)!
     for (const r of refused) expect(r.body.error).toContain(winner.name)
-    const [row] = await cluster.database.db.select({ status: s.operations.status, claimedBy: s.operations.claimedBy }).from(s.operations).where(eq(s.operations.id, op.id))
+    const [row] = await cluster.database.db
+      .select({ status: s.operations.status, claimedBy: s.operations.claimedBy })
+      .from(s.operations)
+      .where(eq(s.operations.id, op.id))
     expect(row).toEqual({ status: 'claimed', claimedBy: winner.personId })
   }, 120_000)
 })
@@ -173,7 +204,10 @@ describe('the sticky proxy', () => {
     const onA = await httpSignIn(a.url, 'manager')
     const onB = await httpSignIn(b.url, 'manager')
     let step = await plannedStep()
-    for (const [base, who] of [[a.url, onA], [b.url, onB]] as const) {
+    for (const [base, who] of [
+      [a.url, onA],
+      [b.url, onB],
+    ] as const) {
       const heard = until(polled.sock, 'plan:changed')
       const r = await pin(base, who, step, !(await pinnedNow(step.id)))
       expect(r.status).toBe(200)

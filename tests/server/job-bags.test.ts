@@ -12,8 +12,29 @@ let manager: Agent
 let sales: Agent
 let setter: Agent
 let bagId: number
-interface Op { id: number; key: string; name: string; status: string; version: number; seq: number; after: string[]; estimateMinutes: number; estimateSource: string; actualMinutes: number; waitingFor: string[] }
-const get = async (id = bagId) => (await manager.get(`/api/job-bags/${id}`)).body as { version: number; status: string; operations: Op[]; history: { action: string }[]; plannedMinutes: number; order: Record<string, unknown>; nextOperationId: number | null }
+interface Op {
+  id: number
+  key: string
+  name: string
+  status: string
+  version: number
+  seq: number
+  after: string[]
+  estimateMinutes: number
+  estimateSource: string
+  actualMinutes: number
+  waitingFor: string[]
+}
+const get = async (id = bagId) =>
+  (await manager.get(`/api/job-bags/${id}`)).body as {
+    version: number
+    status: string
+    operations: Op[]
+    history: { action: string }[]
+    plannedMinutes: number
+    order: Record<string, unknown>
+    nextOperationId: number | null
+  }
 const op = (b: { operations: Op[] }, key: string) => b.operations.find((o) => o.key === key)!
 
 beforeAll(async () => {
@@ -22,11 +43,19 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   setter = await signedIn(t.app, 'bench')
   // A ring resize: cut → solder → file → polish.
-  const [bag] = await t.db.select({ id: s.jobBags.id }).from(s.jobBags).innerJoin(s.routingTemplates, eq(s.routingTemplates.id, s.jobBags.templateId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-    .where(and(eq(s.routingTemplates.code, 'ring-resize'), eq(s.orders.status, 'open'))).orderBy(asc(s.jobBags.id)).limit(1)
+  const [bag] = await t.db
+    .select({ id: s.jobBags.id })
+    .from(s.jobBags)
+    .innerJoin(s.routingTemplates, eq(s.routingTemplates.id, s.jobBags.templateId))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .where(and(eq(s.routingTemplates.code, 'ring-resize'), eq(s.orders.status, 'open')))
+    .orderBy(asc(s.jobBags.id))
+    .limit(1)
   bagId = bag!.id
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 describe('the transition table', () => {
   it('when reading the table, then it covers every status and follows pending → ready → claimed → running ⇄ paused → done', () => {
@@ -73,17 +102,33 @@ describe('editing the routing', () => {
   it('when an estimate changes with a reason, then it becomes an override and the reason is kept', async () => {
     const b = await get()
     const file = op(b, 'file')
-    const r = await manager.patch(`/api/job-bags/${bagId}/operations/${file.id}`, { estimateMinutes: 40, reason: 'heavy shank, lots to true up', version: file.version })
+    const r = await manager.patch(`/api/job-bags/${bagId}/operations/${file.id}`, {
+      estimateMinutes: 40,
+      reason: 'heavy shank, lots to true up',
+      version: file.version,
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
-    expect(op(r.body, 'file')).toMatchObject({ estimateMinutes: 40, estimateSource: 'override', estimateChanges: [expect.objectContaining({ fromMinutes: file.estimateMinutes, toMinutes: 40, reason: 'heavy shank, lots to true up', by: 'Sam Ottery' })] })
+    expect(op(r.body, 'file')).toMatchObject({
+      estimateMinutes: 40,
+      estimateSource: 'override',
+      estimateChanges: [
+        expect.objectContaining({ fromMinutes: file.estimateMinutes, toMinutes: 40, reason: 'heavy shank, lots to true up', by: 'Sam Ottery' }),
+      ],
+    })
     expect((await auditRows(t, 'operation', file.id))[0]).toMatchObject({ action: 'update-step' })
   })
 
   it('when an estimate changes without a reason or with a stale version, then 400 / 409', async () => {
     const file = op(await get(), 'file')
     expectFieldError(await manager.patch(`/api/job-bags/${bagId}/operations/${file.id}`, { estimateMinutes: 50, version: file.version }), 'reason')
-    expectCleanError(await manager.patch(`/api/job-bags/${bagId}/operations/${file.id}`, { estimateMinutes: 50, reason: 'again', version: file.version - 1 }), 409)
-    expectFieldError(await manager.patch(`/api/job-bags/${bagId}/operations/${file.id}`, { estimateMinutes: -5, reason: 'oops', version: file.version }), 'estimateMinutes')
+    expectCleanError(
+      await manager.patch(`/api/job-bags/${bagId}/operations/${file.id}`, { estimateMinutes: 50, reason: 'again', version: file.version - 1 }),
+      409,
+    )
+    expectFieldError(
+      await manager.patch(`/api/job-bags/${bagId}/operations/${file.id}`, { estimateMinutes: -5, reason: 'oops', version: file.version }),
+      'estimateMinutes',
+    )
   })
 
   it('when sales or a bench user tries to edit, then 403', async () => {
@@ -95,7 +140,15 @@ describe('editing the routing', () => {
   it('when a step is added between file and polish, then polish waits for it and it is placed before polish', async () => {
     const b = await get()
     const kinds = (await manager.get('/api/operation-kinds')).body as { id: number; code: string }[]
-    const r = await manager.post(`/api/job-bags/${bagId}/operations`, { kindId: kinds.find((k) => k.code === 'inspection')!.id, name: 'Check size on mandrel', estimateMinutes: 5, after: ['file'], before: ['polish'], reason: 'customer asked for a check', version: b.version })
+    const r = await manager.post(`/api/job-bags/${bagId}/operations`, {
+      kindId: kinds.find((k) => k.code === 'inspection')!.id,
+      name: 'Check size on mandrel',
+      estimateMinutes: 5,
+      after: ['file'],
+      before: ['polish'],
+      reason: 'customer asked for a check',
+      version: b.version,
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.operations.map((o: Op) => o.key)).toEqual(['cut', 'solder', 'file', 'check-size-on-mandrel', 'polish'])
     expect(op(r.body, 'polish').after).toContain('check-size-on-mandrel')

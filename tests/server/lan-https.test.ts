@@ -26,9 +26,17 @@ let ca: string
 let mailbox: FakeSmtp
 
 /** The machine's own non-loopback IPv4 addresses, read here straight from node:os (never contacted). */
-const machineIPv4 = Object.values(networkInterfaces()).flat().filter((a) => a && a.family === 'IPv4' && !a.internal).map((a) => a!.address)
+const machineIPv4 = Object.values(networkInterfaces())
+  .flat()
+  .filter((a) => a && a.family === 'IPv4' && !a.internal)
+  .map((a) => a!.address)
 
-interface Answer { status: number; headers: Record<string, string | string[] | undefined>; body: Buffer; peer: X509Certificate }
+interface Answer {
+  status: number
+  headers: Record<string, string | string[] | undefined>
+  body: Buffer
+  peer: X509Certificate
+}
 /** One https request to the loopback server, trusting only `ca` (node:https, not the code under test). */
 function get(path: string, o: RequestOptions & { body?: string } = {}): Promise<Answer> {
   return new Promise((resolve, reject) => {
@@ -50,7 +58,11 @@ async function signIn(email = DEMO_EMAIL.manager) {
   let cookie = String(a.headers['set-cookie']?.[0] ?? '').split(';')[0]!
   const { csrfToken } = JSON.parse(a.body.toString()) as { csrfToken: string }
   const body = JSON.stringify({ email, password: DEMO_PASSWORD })
-  const b = await get('/api/session', { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie, 'content-length': String(Buffer.byteLength(body)) }, body })
+  const b = await get('/api/session', {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie, 'content-length': String(Buffer.byteLength(body)) },
+    body,
+  })
   expect(b.status).toBe(200)
   cookie = String(b.headers['set-cookie']?.[0] ?? cookie).split(';')[0]!
   return { cookie, csrf: (JSON.parse(b.body.toString()) as { csrfToken: string }).csrfToken }
@@ -83,7 +95,10 @@ describe('settings', () => {
   })
   it('when serving https on every address, then links the server hands out use the network address tablets open', () => {
     // 192.0.2.0/24 is reserved for documentation (RFC 5737): written into the link, never contacted.
-    const interfaces = { lo: [{ address: '127.0.0.1', family: 'IPv4', internal: true }], eth0: [{ address: '192.0.2.7', family: 'IPv4', internal: false }] } as unknown as ReturnType<typeof networkInterfaces>
+    const interfaces = {
+      lo: [{ address: '127.0.0.1', family: 'IPv4', internal: true }],
+      eth0: [{ address: '192.0.2.7', family: 'IPv4', internal: false }],
+    } as unknown as ReturnType<typeof networkInterfaces>
     expect(ownAppUrl({ HOST: '0.0.0.0', PORT: 8080, TLS: true }, interfaces)).toBe('https://192.0.2.7:8080')
     expect(ownAppUrl({ HOST: '0.0.0.0', PORT: 8080, TLS: false }, interfaces)).toBe('http://0.0.0.0:8080')
   })
@@ -96,7 +111,15 @@ describe('https on loopback with the workshop certificate', () => {
     const root = new X509Certificate(ca)
     // node:crypto writes names as "DNS:x" and "IP Address:y", IPv6 in full (::1 → 0:0:0:0:0:0:0:1).
     const sans = leaf.subjectAltName!.split(', ')
-    expect(sans).toEqual(expect.arrayContaining(['DNS:localhost', 'IP Address:127.0.0.1', 'IP Address:0:0:0:0:0:0:0:1', `DNS:${hostname().toLowerCase()}`, ...machineIPv4.map((ip) => `IP Address:${ip}`)]))
+    expect(sans).toEqual(
+      expect.arrayContaining([
+        'DNS:localhost',
+        'IP Address:127.0.0.1',
+        'IP Address:0:0:0:0:0:0:0:1',
+        `DNS:${hostname().toLowerCase()}`,
+        ...machineIPv4.map((ip) => `IP Address:${ip}`),
+      ]),
+    )
     expect(leaf.checkIssued(root) && leaf.verify(root.publicKey)).toBe(true)
     expect(root.ca).toBe(true)
     expect(leaf.ca).toBe(false)
@@ -109,7 +132,9 @@ describe('https on loopback with the workshop certificate', () => {
     const r = await get('/api/session')
     expect(r.status).toBe(200)
     expect(r.peer.fingerprint256).toBe(new X509Certificate(readFileSync(join(dir, 'server.crt'))).fingerprint256)
-    await expect(new Promise((resolve, reject) => httpsRequest(new URL('/api/session', srv.url), { agent: false }, resolve).on('error', reject).end())).rejects.toThrow(/self[- ]signed|unable to verify|certificate/i)
+    await expect(
+      new Promise((resolve, reject) => httpsRequest(new URL('/api/session', srv.url), { agent: false }, resolve).on('error', reject).end()),
+    ).rejects.toThrow(/self[- ]signed|unable to verify|certificate/i)
   })
 
   it('when a session starts over https, then its cookie is Secure and HttpOnly, and no HSTS header is sent', async () => {
@@ -125,7 +150,10 @@ describe('https on loopback with the workshop certificate', () => {
     const { cookie } = await signIn()
     const socket = connect(srv.url, { transports: ['websocket'], extraHeaders: { cookie }, ca, reconnection: false })
     try {
-      await new Promise<void>((resolve, reject) => { socket.once('connect', () => resolve()); socket.once('connect_error', reject) })
+      await new Promise<void>((resolve, reject) => {
+        socket.once('connect', () => resolve())
+        socket.once('connect_error', reject)
+      })
       expect(socket.connected).toBe(true)
     } finally {
       socket.close()
@@ -158,7 +186,11 @@ describe('https on loopback with the workshop certificate', () => {
   it('when an invitation is e-mailed over https with no public address set, then its link is an https address of this server', async () => {
     const { cookie, csrf } = await signIn(DEMO_EMAIL.owner)
     const body = JSON.stringify({ email: 'tablet@lan.test', name: 'Lan Tablet', role: 'bench' })
-    const r = await get('/api/invitations', { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrf, cookie, 'content-length': String(Buffer.byteLength(body)) }, body })
+    const r = await get('/api/invitations', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', 'x-csrf-token': csrf, cookie, 'content-length': String(Buffer.byteLength(body)) },
+      body,
+    })
     expect(r.status, r.body.toString()).toBe(201)
     const m = await mailbox.waitFor((x) => x.to.includes('tablet@lan.test'), 15_000)
     // Listening on loopback, the link names the address asked (server/services/accounts.ts linkBase), now over https.
@@ -174,7 +206,12 @@ describe('keeping and renewing the certificate', () => {
       expect(second.tls?.made).toBe('none')
       expect(readFileSync(join(dir, 'server.crt'), 'utf8')).toBe(before)
       const peer = await new Promise<X509Certificate>((resolve, reject) => {
-        httpsRequest(new URL('/api/session', second.url), { ca, agent: false }, (res) => { resolve(new X509Certificate((res.socket as TLSSocket).getPeerCertificate().raw)); res.resume() }).on('error', reject).end()
+        httpsRequest(new URL('/api/session', second.url), { ca, agent: false }, (res) => {
+          resolve(new X509Certificate((res.socket as TLSSocket).getPeerCertificate().raw))
+          res.resume()
+        })
+          .on('error', reject)
+          .end()
       })
       expect(peer.fingerprint256).toBe(new X509Certificate(before).fingerprint256)
     } finally {
@@ -239,8 +276,11 @@ describe('what npm start -- --lan prints', () => {
  */
 function decodeTerminalQr(text: string): string | null {
   // The final row draws the light quiet zone in the foreground colour (escape 37): it is all light.
-  // eslint-disable-next-line no-control-regex -- the terminal's colour escapes are what this strips
-  const rows = text.split('\n').filter((l) => l.startsWith('\u001b[47m\u001b[30m ') && !l.includes('\u001b[37m')).map((l) => l.replace(/\u001b\[\d+m/g, ''))
+  const rows = text
+    .split('\n')
+    .filter((l) => l.startsWith('\u001b[47m\u001b[30m ') && !l.includes('\u001b[37m'))
+    // eslint-disable-next-line no-control-regex -- the terminal's colour escapes are what this strips
+    .map((l) => l.replace(/\u001b\[\d+m/g, ''))
   const modules: boolean[][] = []
   for (const r of rows) {
     modules.push([...r].map((ch) => ch === '█' || ch === '▀'))
@@ -251,12 +291,15 @@ function decodeTerminalQr(text: string): string | null {
   const w = (modules[0]!.length + 2 * margin) * scale
   const h = (modules.length + 2 * margin) * scale
   const px = new Uint8ClampedArray(w * h * 4).fill(255)
-  modules.forEach((row, y) => row.forEach((dark, x) => {
-    if (!dark) return
-    for (let dy = 0; dy < scale; dy++) for (let dx = 0; dx < scale; dx++) {
-      const i = (((y + margin) * scale + dy) * w + (x + margin) * scale + dx) * 4
-      px[i] = px[i + 1] = px[i + 2] = 0
-    }
-  }))
+  modules.forEach((row, y) =>
+    row.forEach((dark, x) => {
+      if (!dark) return
+      for (let dy = 0; dy < scale; dy++)
+        for (let dx = 0; dx < scale; dx++) {
+          const i = (((y + margin) * scale + dy) * w + (x + margin) * scale + dx) * 4
+          px[i] = px[i + 1] = px[i + 2] = 0
+        }
+    }),
+  )
   return jsQR(px, w, h)?.data ?? null
 }

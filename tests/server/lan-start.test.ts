@@ -11,14 +11,31 @@ const root = resolve(import.meta.dirname, '../..')
 const dataDir = join(root, '.data', `lan-start-${randomBytes(4).toString('hex')}`)
 const pgPort = 55700 + Math.floor(Math.random() * 90)
 const appPort = 56700 + Math.floor(Math.random() * 90)
-const env = { ...process.env, MILLGRAIN_DATA_DIR: dataDir, PG_PORT: String(pgPort), PORT: String(appPort), HOST: '127.0.0.1', MAIL_PORT: String(appPort + 100), PAY_FAKE_PORT: String(appPort + 200), SKIP_BUILD: '1', NODE_ENV: 'production' }
+const env = {
+  ...process.env,
+  MILLGRAIN_DATA_DIR: dataDir,
+  PG_PORT: String(pgPort),
+  PORT: String(appPort),
+  HOST: '127.0.0.1',
+  MAIL_PORT: String(appPort + 100),
+  PAY_FAKE_PORT: String(appPort + 200),
+  SKIP_BUILD: '1',
+  NODE_ENV: 'production',
+}
 let child: ChildProcess | null = null
 let out = ''
 
 afterAll(async () => {
   if (child && child.exitCode === null) {
-    try { process.kill(-child.pid!, 'SIGINT') } catch { /* gone */ }
-    await new Promise((r) => { child!.once('exit', r); setTimeout(r, 20_000) })
+    try {
+      process.kill(-child.pid!, 'SIGINT')
+    } catch {
+      /* gone */
+    }
+    await new Promise((r) => {
+      child!.once('exit', r)
+      setTimeout(r, 20_000)
+    })
   }
   rmSync(dataDir, { recursive: true, force: true })
 }, 40_000)
@@ -28,10 +45,19 @@ describe('npm start -- --lan', () => {
     child = spawn(join(root, 'node_modules/.bin/tsx'), ['scripts/start.ts', '--lan'], { cwd: root, env, detached: true, stdio: ['ignore', 'pipe', 'pipe'] })
     await new Promise<void>((res, rej) => {
       const t = setTimeout(() => rej(new Error(`app did not start:\n${out}`)), 90_000)
-      const onData = (d: Buffer) => { out += d.toString(); if (out.includes('Press Ctrl-C')) { clearTimeout(t); res() } }
+      const onData = (d: Buffer) => {
+        out += d.toString()
+        if (out.includes('Press Ctrl-C')) {
+          clearTimeout(t)
+          res()
+        }
+      }
       child!.stdout!.on('data', onData)
       child!.stderr!.on('data', onData)
-      child!.on('exit', (code) => { clearTimeout(t); rej(new Error(`app exited (${code}):\n${out}`)) })
+      child!.on('exit', (code) => {
+        clearTimeout(t)
+        rej(new Error(`app exited (${code}):\n${out}`))
+      })
     })
     expect(out).toContain(`Millgrain is running at https://127.0.0.1:${appPort}`)
     expect(out).toContain('HTTPS on this computer only (HOST=127.0.0.1)')
@@ -43,14 +69,19 @@ describe('npm start -- --lan', () => {
         const fingerprint = new X509Certificate((r.socket as import('node:tls').TLSSocket).getPeerCertificate().raw).fingerprint256
         r.resume()
         r.on('end', () => res({ status: r.statusCode ?? 0, cookie: String(r.headers['set-cookie']?.[0] ?? ''), fingerprint }))
-      }).on('error', rej).end()
+      })
+        .on('error', rej)
+        .end()
     })
     expect(answer.status).toBe(200)
     expect(answer.cookie).toMatch(/;\s*Secure/i)
     expect(answer.fingerprint).toBe(new X509Certificate(readFileSync(join(tls, 'server.crt'))).fingerprint256)
 
     // Ctrl-C reaches the whole process group, as in a terminal (tsx itself then exits with 130, the shell's code for it).
-    await new Promise((r) => { child!.once('exit', r); process.kill(-child!.pid!, 'SIGINT') })
+    await new Promise((r) => {
+      child!.once('exit', r)
+      process.kill(-child!.pid!, 'SIGINT')
+    })
     expect(out).toContain('[stop] stopping PostgreSQL')
     // PostgreSQL removes its pid file when it has stopped (the script's own process may still be finishing after tsx exits).
     await expect.poll(() => existsSync(join(dataDir, 'pg', 'postmaster.pid')), { timeout: 30_000, interval: 250 }).toBe(false)

@@ -18,10 +18,20 @@ beforeAll(async () => {
   manager = await signedIn(t.app, 'manager')
   workshopId = await firstWorkshopId(t.db)
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 const opRow = async (id: number) => (await t.db.select().from(s.operations).where(eq(s.operations.id, id)))[0]!
-const claimAudit = async (id: number) => (await t.db.select({ details: s.auditLog.details }).from(s.auditLog).where(and(eq(s.auditLog.entity, 'operation'), eq(s.auditLog.entityId, id), eq(s.auditLog.action, 'claim'))).orderBy(desc(s.auditLog.id)).limit(1))[0]?.details
+const claimAudit = async (id: number) =>
+  (
+    await t.db
+      .select({ details: s.auditLog.details })
+      .from(s.auditLog)
+      .where(and(eq(s.auditLog.entity, 'operation'), eq(s.auditLog.entityId, id), eq(s.auditLog.action, 'claim')))
+      .orderBy(desc(s.auditLog.id))
+      .limit(1)
+  )[0]?.details
 /** A fixed hour next week, far from anything the demo books by then (any time will do: the claim keeps it). */
 const slot = (hour: number) => ({ start: new Date(Date.UTC(2031, 0, 6, hour)).toISOString(), end: new Date(Date.UTC(2031, 0, 6, hour + 1)).toISOString() })
 
@@ -33,19 +43,49 @@ describe('the live plan', () => {
     await t.db.update(s.operations).set({ pinned: true }).where(eq(s.operations.id, step.id))
     const live = await readLivePlan(t.db, workshopId)
     // Expected: exactly what was written above.
-    expect(live.assignments.get(step.id)).toEqual({ operationId: step.id, benchId: step.benchId, personId: step.personId, start: at.start, end: at.end, pinned: true })
-    await t.db.update(s.operations).set({ pinned: false, plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null }).where(eq(s.operations.id, step.id))
+    expect(live.assignments.get(step.id)).toEqual({
+      operationId: step.id,
+      benchId: step.benchId,
+      personId: step.personId,
+      start: at.start,
+      end: at.end,
+      pinned: true,
+    })
+    await t.db
+      .update(s.operations)
+      .set({ pinned: false, plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null })
+      .where(eq(s.operations.id, step.id))
   })
 
   it('when a draft was saved with string ids, then comparing it answers numbers and names the operation', async () => {
     const step = await readyBenchStep(t.db)
     const at = slot(11)
-    const [last] = await t.db.select({ n: s.planVersions.number }).from(s.planVersions).where(eq(s.planVersions.workshopId, workshopId)).orderBy(desc(s.planVersions.number)).limit(1)
+    const [last] = await t.db
+      .select({ n: s.planVersions.number })
+      .from(s.planVersions)
+      .where(eq(s.planVersions.workshopId, workshopId))
+      .orderBy(desc(s.planVersions.number))
+      .limit(1)
     // The shape drafts had before assignments were typed: keyed by id, ids as strings, with segments and a reason.
-    const [draft] = await t.db.insert(s.planVersions).values({
-      workshopId, number: (last?.n ?? 0) + 1, status: 'draft', score: { feasible: true },
-      assignments: { [String(step.id)]: { benchId: String(step.benchId), personId: String(step.personId), start: at.start, end: at.end, segments: [{ start: 0, end: 60 }], reason: null } },
-    }).returning({ id: s.planVersions.id })
+    const [draft] = await t.db
+      .insert(s.planVersions)
+      .values({
+        workshopId,
+        number: (last?.n ?? 0) + 1,
+        status: 'draft',
+        score: { feasible: true },
+        assignments: {
+          [String(step.id)]: {
+            benchId: String(step.benchId),
+            personId: String(step.personId),
+            start: at.start,
+            end: at.end,
+            segments: [{ start: 0, end: 60 }],
+            reason: null,
+          },
+        },
+      })
+      .returning({ id: s.planVersions.id })
     const r = await manager.get(`/api/plans/${draft!.id}/compare`)
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     const move = (r.body.moves as { operationId: number; to: unknown }[]).find((m) => m.operationId === step.id)
@@ -67,20 +107,33 @@ describe('a claim on the live plan', () => {
     const r = await manager.post(`/api/bench/operations/${step.id}/claim`, { requestId: rid(), benchId: step.benchId, personId: step.personId })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     const after = await opRow(step.id)
-    expect({ bench: after.plannedBenchId, person: after.plannedPersonId, start: after.plannedStart && new Date(after.plannedStart).toISOString(), end: after.plannedEnd && new Date(after.plannedEnd).toISOString() })
-      .toEqual({ bench: step.benchId, person: step.personId, start: at.start, end: at.end })
+    expect({
+      bench: after.plannedBenchId,
+      person: after.plannedPersonId,
+      start: after.plannedStart && new Date(after.plannedStart).toISOString(),
+      end: after.plannedEnd && new Date(after.plannedEnd).toISOString(),
+    }).toEqual({ bench: step.benchId, person: step.personId, start: at.start, end: at.end })
     // One change, one version step (the claim and its plan effect are one transaction).
     expect(after.version).toBe(before.version + 1)
     const details = (await claimAudit(step.id)) as { plan?: { from: unknown; to: unknown; findings: { rule: string }[] } }
     expect(details.plan).toMatchObject({ from: { benchId: step.benchId, personId: other }, to: { benchId: step.benchId, personId: step.personId } })
     expect(details.plan!.findings.map((f) => f.rule)).toEqual(['person double booking'])
-    await t.db.update(s.operations).set({ status: 'ready', claimedBy: null, plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null }).where(eq(s.operations.id, step.id))
-    await t.db.update(s.operations).set({ plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null }).where(eq(s.operations.id, busy.id))
+    await t.db
+      .update(s.operations)
+      .set({ status: 'ready', claimedBy: null, plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null })
+      .where(eq(s.operations.id, step.id))
+    await t.db
+      .update(s.operations)
+      .set({ plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null })
+      .where(eq(s.operations.id, busy.id))
   })
 
   it('when an unplanned step is claimed, then it stays off the plan and the claim names no plan change', async () => {
     const step = await readyBenchStep(t.db)
-    await t.db.update(s.operations).set({ plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null }).where(eq(s.operations.id, step.id))
+    await t.db
+      .update(s.operations)
+      .set({ plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null })
+      .where(eq(s.operations.id, step.id))
     const r = await manager.post(`/api/bench/operations/${step.id}/claim`, { requestId: rid(), benchId: step.benchId, personId: step.personId })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect((await opRow(step.id)).plannedStart).toBeNull()
@@ -91,9 +144,13 @@ describe('a claim on the live plan', () => {
   it('when another change holds the live plan, then a claim waits for it and goes through once it is done', async () => {
     const step = await readyBenchStep(t.db)
     let release!: () => void
-    const released = new Promise<void>((res) => { release = res })
+    const released = new Promise<void>((res) => {
+      release = res
+    })
     let locked!: () => void
-    const isLocked = new Promise<void>((res) => { locked = res })
+    const isLocked = new Promise<void>((res) => {
+      locked = res
+    })
     const holder = t.db.transaction(async (tx) => {
       await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${workshopId})`)
       locked()
@@ -101,7 +158,10 @@ describe('a claim on the live plan', () => {
     })
     await isLocked
     let answered = false
-    const claim = manager.post(`/api/bench/operations/${step.id}/claim`, { requestId: rid(), benchId: step.benchId, personId: step.personId }).then((r) => { answered = true; return r })
+    const claim = manager.post(`/api/bench/operations/${step.id}/claim`, { requestId: rid(), benchId: step.benchId, personId: step.personId }).then((r) => {
+      answered = true
+      return r
+    })
     // While the lock is held the claim cannot commit: its row stays ready, whatever the machine's speed.
     await new Promise((res) => setTimeout(res, 300))
     expect(answered).toBe(false)

@@ -14,8 +14,14 @@ let fake: FakeSmtp
 let manager: Agent
 
 async function openOrder(app: TestApp, offset = 0) {
-  const [o] = await app.db.select({ id: s.orders.id, number: s.orders.number, version: s.orders.version, email: s.customers.email, name: s.customers.name })
-    .from(s.orders).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId)).where(eq(s.orders.status, 'open')).orderBy(asc(s.orders.id)).offset(offset).limit(1)
+  const [o] = await app.db
+    .select({ id: s.orders.id, number: s.orders.number, version: s.orders.version, email: s.customers.email, name: s.customers.name })
+    .from(s.orders)
+    .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
+    .where(eq(s.orders.status, 'open'))
+    .orderBy(asc(s.orders.id))
+    .offset(offset)
+    .limit(1)
   return o!
 }
 
@@ -25,13 +31,30 @@ beforeAll(async () => {
   fake.useDb(t.db)
   manager = await signedIn(t.app, 'manager')
 })
-afterAll(async () => { await t?.close(); await fake?.close() })
+afterAll(async () => {
+  await t?.close()
+  await fake?.close()
+})
 
 describe('mail', () => {
   it('when a promise is accepted, then the test mailbox receives it with recipient, subject and the promised date', async () => {
     const sales = await signedIn(t.app, 'sales')
-    const c = (await t.db.select({ id: s.customers.id, email: s.customers.email }).from(s.customers).where(eq(s.customers.workshopId, 1)).orderBy(desc(s.customers.id)).limit(1))[0]!
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Signet ring', templateId: await firstTemplateId(t.db), promisedDate: '2031-03-14', priority: 3, priceQuotedMinor: 30_000 })
+    const c = (
+      await t.db
+        .select({ id: s.customers.id, email: s.customers.email })
+        .from(s.customers)
+        .where(eq(s.customers.workshopId, 1))
+        .orderBy(desc(s.customers.id))
+        .limit(1)
+    )[0]!
+    const r = await sales.post('/api/promise/accept', {
+      customerId: c.id,
+      title: 'Signet ring',
+      templateId: await firstTemplateId(t.db),
+      promisedDate: '2031-03-14',
+      priority: 3,
+      priceQuotedMinor: 30_000,
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     const m = await fake.waitFor((x) => x.subject.includes(r.body.order.number))
     expect(m.to).toEqual([c.email])
@@ -49,11 +72,24 @@ describe('mail', () => {
     expectFieldError(await owner.put('/api/workshop', { ...w, currency: 'POUNDS' }), 'currency', /three-letter currency code/)
     expectFieldError(await owner.put('/api/workshop', { ...w, contactEmail: 'not-an-address' }), 'contactEmail', /e-mail address/)
     expectFieldError(await owner.put('/api/workshop', { ...w, address: 'x'.repeat(301) }), 'address', /at most 300/)
-    const u = await owner.put('/api/workshop', { ...w, address: '3 Vyse Street, Birmingham B18 6LT', phone: '0121 496 0777', contactEmail: 'atelier@wrenfield.test', currency: 'eur' })
+    const u = await owner.put('/api/workshop', {
+      ...w,
+      address: '3 Vyse Street, Birmingham B18 6LT',
+      phone: '0121 496 0777',
+      contactEmail: 'atelier@wrenfield.test',
+      currency: 'eur',
+    })
     expect(u.status, JSON.stringify(u.body)).toBe(200)
     expect(u.body.currency).toBe('EUR')
     const sales = await signedIn(t.app, 'sales')
-    const r = await sales.post('/api/promise/accept', { customerId: await firstCustomerId(t.db, 1), title: 'Euro ring', templateId: await firstTemplateId(t.db), promisedDate: '2031-03-14', priority: 3, priceQuotedMinor: 199_900 })
+    const r = await sales.post('/api/promise/accept', {
+      customerId: await firstCustomerId(t.db, 1),
+      title: 'Euro ring',
+      templateId: await firstTemplateId(t.db),
+      promisedDate: '2031-03-14',
+      priority: 3,
+      priceQuotedMinor: 199_900,
+    })
     const m = await fake.waitFor((x) => x.subject.includes(r.body.order.number))
     // 199,900 cents (EUR has 2 decimals, ISO 4217) = 1,999.00; Intl en-GB formats it as "€1,999.00" (ECMA-402 currency formatting).
     expect(m.text).toContain('€1,999.00')
@@ -62,7 +98,13 @@ describe('mail', () => {
     expect(m.text).toContain('atelier@wrenfield.test')
     expect(m.html).toContain('3 Vyse Street, Birmingham B18 6LT')
     // A change that leaves the contact out (the calendar page saves only its own fields) keeps it.
-    const again = await owner.put('/api/workshop', { name: u.body.name, timeZone: u.body.timeZone, weekPattern: u.body.weekPattern, planningLoad: u.body.planningLoad, version: u.body.version })
+    const again = await owner.put('/api/workshop', {
+      name: u.body.name,
+      timeZone: u.body.timeZone,
+      weekPattern: u.body.weekPattern,
+      planningLoad: u.body.planningLoad,
+      version: u.body.version,
+    })
     expect(again.body).toMatchObject({ address: '3 Vyse Street, Birmingham B18 6LT', currency: 'EUR' })
     await owner.put('/api/workshop', { ...w, version: again.body.version })
   })
@@ -77,7 +119,10 @@ describe('mail', () => {
     // Saving again with status ready sends nothing more.
     const again = await manager.patch(`/api/orders/${o.id}`, { status: 'ready', version: r.body.version })
     expect(again.status).toBe(200)
-    const rows = await t.db.select({ status: s.outbox.status }).from(s.outbox).where(and(eq(s.outbox.orderId, o.id), eq(s.outbox.kind, 'ready-for-collection')))
+    const rows = await t.db
+      .select({ status: s.outbox.status })
+      .from(s.outbox)
+      .where(and(eq(s.outbox.orderId, o.id), eq(s.outbox.kind, 'ready-for-collection')))
     expect(rows).toHaveLength(1)
     expect(rows[0]!.status).toBe('delivered')
   })
@@ -86,7 +131,13 @@ describe('mail', () => {
     const o = await openOrder(t, 1)
     const bag = (await t.db.select({ id: s.jobBags.id, number: s.jobBags.number }).from(s.jobBags).where(eq(s.jobBags.orderId, o.id)))[0]!
     // Its last bench step booked three working days from now, the order promised two days before that step ends.
-    await bookLastStepLate(t.db, { workshopId: 1, orderId: o.id, bagId: bag.id, fromMinute: 3 * 1440, promised: (end) => new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10) })
+    await bookLastStepLate(t.db, {
+      workshopId: 1,
+      orderId: o.id,
+      bagId: bag.id,
+      fromMinute: 3 * 1440,
+      promised: (end) => new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10),
+    })
     const r = await manager.post('/api/mail/at-risk-digest')
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect(r.body.jobs.map((j: { number: string }) => j.number)).toContain(bag.number)
@@ -117,7 +168,12 @@ describe('mail', () => {
 describe('mail failures', () => {
   it('when the mail server cannot be reached, then the order change still commits and the message stays queued with the error, to be tried again', async () => {
     // A port nobody listens on: taken and released again.
-    const port = await new Promise<number>((resolve) => { const s = createServer().listen(0, '127.0.0.1', () => { const a = s.address() as { port: number }; s.close(() => resolve(a.port)) }) })
+    const port = await new Promise<number>((resolve) => {
+      const s = createServer().listen(0, '127.0.0.1', () => {
+        const a = s.address() as { port: number }
+        s.close(() => resolve(a.port))
+      })
+    })
     const broken = await createTestApp({ SMTP_URL: `smtp://127.0.0.1:${port}` })
     try {
       const m = await signedIn(broken.app, 'manager')
@@ -128,14 +184,25 @@ describe('mail failures', () => {
       const [row] = await broken.db.select({ status: s.orders.status }).from(s.orders).where(eq(s.orders.id, o.id))
       expect(row!.status).toBe('ready')
       // The send job's first try fails; its error is written on the row, which waits for the next try.
-      const tried = async () => (await broken.db.select({ id: s.outbox.id, status: s.outbox.status, error: s.outbox.error, sentAt: s.outbox.sentAt }).from(s.outbox).where(and(eq(s.outbox.orderId, o.id), eq(s.outbox.kind, 'ready-for-collection'))))[0]
+      const tried = async () =>
+        (
+          await broken.db
+            .select({ id: s.outbox.id, status: s.outbox.status, error: s.outbox.error, sentAt: s.outbox.sentAt })
+            .from(s.outbox)
+            .where(and(eq(s.outbox.orderId, o.id), eq(s.outbox.kind, 'ready-for-collection')))
+        )[0]
       let mail = await tried()
-      for (const t0 = Date.now(); !mail?.error && Date.now() - t0 < 20_000;) { await new Promise((r) => setTimeout(r, 100)); mail = await tried() }
+      for (const t0 = Date.now(); !mail?.error && Date.now() - t0 < 20_000;) {
+        await new Promise((r) => setTimeout(r, 100))
+        mail = await tried()
+      }
       expect(mail!.status).toBe('queued')
       expect(mail!.error).toMatch(/ECONNREFUSED|connect/i)
       expect(mail!.sentAt).toBeNull()
       // Raw SQL on purpose: pg-boss's own table, not part of our schema.
-      const { rows: [job] } = await broken.pool.query(`select state, retry_count from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1`, [String(mail!.id)])
+      const {
+        rows: [job],
+      } = await broken.pool.query(`select state, retry_count from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1`, [String(mail!.id)])
       expect(job).toMatchObject({ state: 'retry' })
     } finally {
       await broken.close()

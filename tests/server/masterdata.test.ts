@@ -19,7 +19,9 @@ beforeAll(async () => {
   const r = await manager.get('/api/operation-kinds')
   kinds = Object.fromEntries((r.body as { code: string; id: number }[]).map((k) => [k.code, k.id]))
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 describe('benches', () => {
   it('when listing benches, then the eight seeded benches come with capabilities and downtime', async () => {
@@ -32,7 +34,12 @@ describe('benches', () => {
   })
 
   it('when a bench is added, changed and given downtime, then each step is saved, versioned and written to the audit log', async () => {
-    const c = await manager.post('/api/benches', { name: 'Engraving bench', kind: 'engraving', kindIds: [kinds.etching, kinds.inspection], notes: 'Graver sharpener' })
+    const c = await manager.post('/api/benches', {
+      name: 'Engraving bench',
+      kind: 'engraving',
+      kindIds: [kinds.etching, kinds.inspection],
+      notes: 'Graver sharpener',
+    })
     expect(c.status).toBe(201)
     expect(c.body).toMatchObject({ name: 'Engraving bench', capacity: 1, active: true, version: 0 })
     expect([...c.body.kindIds].sort()).toEqual([kinds.etching, kinds.inspection].sort())
@@ -41,9 +48,15 @@ describe('benches', () => {
     expect(u.status).toBe(200)
     expect(u.body).toMatchObject({ capacity: 2, version: 1, kindIds: [kinds.etching] })
 
-    const d = await manager.post(`/api/benches/${c.body.id}/downtime`, { startsAt: '2030-03-04T09:00:00Z', endsAt: '2030-03-04T12:00:00Z', reason: 'New vice fitted' })
+    const d = await manager.post(`/api/benches/${c.body.id}/downtime`, {
+      startsAt: '2030-03-04T09:00:00Z',
+      endsAt: '2030-03-04T12:00:00Z',
+      reason: 'New vice fitted',
+    })
     expect(d.status).toBe(201)
-    expect(d.body.downtime).toEqual([expect.objectContaining({ startsAt: '2030-03-04T09:00:00.000Z', endsAt: '2030-03-04T12:00:00.000Z', reason: 'New vice fitted' })])
+    expect(d.body.downtime).toEqual([
+      expect.objectContaining({ startsAt: '2030-03-04T09:00:00.000Z', endsAt: '2030-03-04T12:00:00.000Z', reason: 'New vice fitted' }),
+    ])
 
     const rm = await manager.delete(`/api/benches/${c.body.id}/downtime/${d.body.downtime[0].id}`)
     expect(rm.status).toBe(200)
@@ -62,8 +75,16 @@ describe('benches', () => {
     expectFieldError(await manager.post('/api/benches', { name: 'Bench X', kind: 'x', kindIds: [999999] }), 'kindIds', /does not exist/)
     expectFieldError(await manager.post('/api/benches', { name: 'Bench X', kind: 'x', kindIds: ['soldering'] }), 'kindIds.0', /number/)
     const benches = (await manager.get('/api/benches')).body
-    expectFieldError(await manager.post(`/api/benches/${benches[0].id}/downtime`, { startsAt: '2030-03-04T12:00:00Z', endsAt: '2030-03-04T09:00:00Z', reason: 'x' }), 'endsAt', /after it starts/)
-    expectFieldError(await manager.post(`/api/benches/${benches[0].id}/downtime`, { startsAt: 'tomorrow', endsAt: '2030-03-04T09:00:00Z', reason: 'x' }), 'startsAt', /ISO 8601/)
+    expectFieldError(
+      await manager.post(`/api/benches/${benches[0].id}/downtime`, { startsAt: '2030-03-04T12:00:00Z', endsAt: '2030-03-04T09:00:00Z', reason: 'x' }),
+      'endsAt',
+      /after it starts/,
+    )
+    expectFieldError(
+      await manager.post(`/api/benches/${benches[0].id}/downtime`, { startsAt: 'tomorrow', endsAt: '2030-03-04T09:00:00Z', reason: 'x' }),
+      'startsAt',
+      /ISO 8601/,
+    )
     expectFieldError(await manager.patch(`/api/benches/${benches[0].id}`, { capacity: 2 }), 'version', /required/)
   })
 
@@ -92,10 +113,22 @@ describe('benches', () => {
 
 describe('people', () => {
   it('when a person is added with skills and leave, then they are saved and audited', async () => {
-    const c = await manager.post('/api/people', { name: 'Wren Haddow', hourlyRateMinor: 2400, skills: [{ kindId: kinds.setting, level: 2, speed: 0.9 }, { kindId: kinds.polishing, level: 1 }] })
+    const c = await manager.post('/api/people', {
+      name: 'Wren Haddow',
+      hourlyRateMinor: 2400,
+      skills: [
+        { kindId: kinds.setting, level: 2, speed: 0.9 },
+        { kindId: kinds.polishing, level: 1 },
+      ],
+    })
     expect(c.status).toBe(201)
     expect(c.body).toMatchObject({ name: 'Wren Haddow', userId: null, weekPattern: null, hourlyRateMinor: 2400, version: 0 })
-    expect(c.body.skills).toEqual(expect.arrayContaining([{ kindId: kinds.setting, level: 2, speed: 0.9 }, { kindId: kinds.polishing, level: 1, speed: 1 }]))
+    expect(c.body.skills).toEqual(
+      expect.arrayContaining([
+        { kindId: kinds.setting, level: 2, speed: 0.9 },
+        { kindId: kinds.polishing, level: 1, speed: 1 },
+      ]),
+    )
 
     const u = await manager.patch(`/api/people/${c.body.id}`, { skills: [{ kindId: kinds.setting, level: 3, speed: 1.1 }], version: 0 })
     expect(u.status).toBe(200)
@@ -115,12 +148,34 @@ describe('people', () => {
   it('when person input is wrong, then the answer is 400 naming the field', async () => {
     expectFieldError(await manager.post('/api/people', { name: '' }), 'name', /required/)
     expectFieldError(await manager.post('/api/people', { name: 'A', skills: [{ kindId: kinds.setting, level: 4 }] }), 'skills.0.level', /1, 2 or 3/)
-    expectFieldError(await manager.post('/api/people', { name: 'A', skills: [{ kindId: kinds.setting, level: 1, speed: 5 }] }), 'skills.0.speed', /between 0.3 and 3/)
-    expectFieldError(await manager.post('/api/people', { name: 'A', skills: [{ kindId: kinds.setting, level: 1 }, { kindId: kinds.setting, level: 2 }] }), 'skills', /once/)
+    expectFieldError(
+      await manager.post('/api/people', { name: 'A', skills: [{ kindId: kinds.setting, level: 1, speed: 5 }] }),
+      'skills.0.speed',
+      /between 0.3 and 3/,
+    )
+    expectFieldError(
+      await manager.post('/api/people', {
+        name: 'A',
+        skills: [
+          { kindId: kinds.setting, level: 1 },
+          { kindId: kinds.setting, level: 2 },
+        ],
+      }),
+      'skills',
+      /once/,
+    )
     expectFieldError(await manager.post('/api/people', { name: 'A', skills: [{ kindId: 999999, level: 1 }] }), 'skills', /does not exist/)
     expectFieldError(await manager.post('/api/people', { name: 'A', userId: 999999 }), 'userId', /not a user/)
-    expectFieldError(await manager.post('/api/people', { name: 'A', weekPattern: [{ weekday: 8, start: '09:00', end: '17:00' }] }), 'weekPattern.0.weekday', /1 \(Mon\) to 7/)
-    expectFieldError(await manager.post('/api/people', { name: 'A', weekPattern: [{ weekday: 1, start: '09:00', end: '08:00' }] }), 'weekPattern.0.end', /after it starts/)
+    expectFieldError(
+      await manager.post('/api/people', { name: 'A', weekPattern: [{ weekday: 8, start: '09:00', end: '17:00' }] }),
+      'weekPattern.0.weekday',
+      /1 \(Mon\) to 7/,
+    )
+    expectFieldError(
+      await manager.post('/api/people', { name: 'A', weekPattern: [{ weekday: 1, start: '09:00', end: '08:00' }] }),
+      'weekPattern.0.end',
+      /after it starts/,
+    )
     const p = (await manager.get('/api/people')).body[0]
     expectFieldError(await manager.post(`/api/people/${p.id}/leave`, { startsOn: '2030-05-08', endsOn: '2030-05-06' }), 'endsOn', /before the first day/)
     expectFieldError(await manager.post(`/api/people/${p.id}/leave`, { startsOn: '2030-02-30', endsOn: '2030-03-01' }), 'startsOn', /real date/)
@@ -172,7 +227,10 @@ describe('calendar', () => {
   it('when the owner changes the settings, then they are saved with a new version and audited; a stale version gets 409', async () => {
     const w = (await owner.get('/api/workshop')).body
     expect(w).toMatchObject({ name: 'Wrenfield Street Workshop', timeZone: 'Europe/London', planningLoad: 0.85 })
-    const week = [{ weekday: 1, start: '08:00', end: '12:00' }, { weekday: 1, start: '12:30', end: '16:30' }]
+    const week = [
+      { weekday: 1, start: '08:00', end: '12:00' },
+      { weekday: 1, start: '12:30', end: '16:30' },
+    ]
     const r = await owner.put('/api/workshop', { name: w.name, timeZone: 'Europe/Dublin', weekPattern: week, planningLoad: 0.8, version: w.version })
     expect(r.status).toBe(200)
     expect(r.body).toMatchObject({ timeZone: 'Europe/Dublin', weekPattern: week, planningLoad: 0.8, version: w.version + 1 })
@@ -193,7 +251,17 @@ describe('calendar', () => {
     expectFieldError(await owner.put('/api/workshop', { ...base, timeZone: 'Mars/Olympus' }), 'timeZone', /IANA/)
     expectFieldError(await owner.put('/api/workshop', { ...base, planningLoad: 1.2 }), 'planningLoad', /between 0.5 and 1/)
     expectFieldError(await owner.put('/api/workshop', { ...base, weekPattern: [] }), 'weekPattern', /at least one/)
-    expectFieldError(await owner.put('/api/workshop', { ...base, weekPattern: [{ weekday: 2, start: '08:00', end: '12:00' }, { weekday: 2, start: '11:00', end: '15:00' }] }), 'weekPattern', /overlap/)
+    expectFieldError(
+      await owner.put('/api/workshop', {
+        ...base,
+        weekPattern: [
+          { weekday: 2, start: '08:00', end: '12:00' },
+          { weekday: 2, start: '11:00', end: '15:00' },
+        ],
+      }),
+      'weekPattern',
+      /overlap/,
+    )
     expectFieldError(await owner.put('/api/workshop', { ...base, weekPattern: [{ weekday: 2, start: '8:00', end: '12:00' }] }), 'weekPattern.0.start', /HH:mm/)
   })
 
@@ -213,12 +281,25 @@ describe('calendar', () => {
 })
 
 describe('routing templates', () => {
-  const step = (key: string, after: string[] = [], extra: Record<string, unknown> = {}) => ({ key, kindId: kinds.filing, name: `Step ${key}`, baseMinutes: 10, after, ...extra })
+  const step = (key: string, after: string[] = [], extra: Record<string, unknown> = {}) => ({
+    key,
+    kindId: kinds.filing,
+    name: `Step ${key}`,
+    baseMinutes: 10,
+    after,
+    ...extra,
+  })
 
   it('when a branching template is added and replaced, then its steps come back in order and it is audited', async () => {
     const c = await manager.post('/api/templates', {
-      code: 'toggle-bracelet', name: 'Toggle bracelet',
-      steps: [step('bar'), step('ring'), step('join', ['bar', 'ring'], { kindId: kinds.soldering, waitAfterMinutes: 15 }), step('polish', ['join'], { kindId: kinds.polishing, perStoneMinutes: 0 })],
+      code: 'toggle-bracelet',
+      name: 'Toggle bracelet',
+      steps: [
+        step('bar'),
+        step('ring'),
+        step('join', ['bar', 'ring'], { kindId: kinds.soldering, waitAfterMinutes: 15 }),
+        step('polish', ['join'], { kindId: kinds.polishing, perStoneMinutes: 0 }),
+      ],
     })
     expect(c.status).toBe(201)
     expect(c.body.steps.map((s: { key: string }) => s.key)).toEqual(['bar', 'ring', 'join', 'polish'])
@@ -227,7 +308,12 @@ describe('routing templates', () => {
     const got = await manager.get(`/api/templates/${c.body.id}`)
     expect(got.body).toEqual(c.body)
 
-    const u = await manager.put(`/api/templates/${c.body.id}`, { code: 'toggle-bracelet', name: 'Toggle bracelet, heavy', steps: [step('bar'), step('polish', ['bar'])], version: 0 })
+    const u = await manager.put(`/api/templates/${c.body.id}`, {
+      code: 'toggle-bracelet',
+      name: 'Toggle bracelet, heavy',
+      steps: [step('bar'), step('polish', ['bar'])],
+      version: 0,
+    })
     expect(u.status).toBe(200)
     expect(u.body).toMatchObject({ name: 'Toggle bracelet, heavy', version: 1 })
     expect(u.body.steps.map((s: { key: string }) => s.key)).toEqual(['bar', 'polish'])
@@ -348,13 +434,18 @@ describe('users', () => {
   })
 
   it('when user input is wrong, then 400 naming the field', async () => {
-    expectFieldError(await owner.post('/api/users', { email: 'x@y.test', name: 'X', role: 'admin', password: 'a-long-enough-pass' }), 'role', /owner, manager, bench or sales/)
+    expectFieldError(
+      await owner.post('/api/users', { email: 'x@y.test', name: 'X', role: 'admin', password: 'a-long-enough-pass' }),
+      'role',
+      /owner, manager, bench or sales/,
+    )
     expectFieldError(await owner.post('/api/users', { email: 'x@y.test', name: 'X', role: 'bench', password: 'short' }), 'password', /at least 10/)
     expectFieldError(await owner.post('/api/users', { email: 'x', name: 'X', role: 'bench', password: 'a-long-enough-pass' }), 'email', /e-mail/)
   })
 
   it('when the owner changes a role, then the user has the new role at once; switched off, they are out', async () => {
-    const created = (await owner.post('/api/users', { email: 'kit.rowan@wrenfield.test', name: 'Kit Rowan', role: 'manager', password: 'a-long-enough-pass' })).body
+    const created = (await owner.post('/api/users', { email: 'kit.rowan@wrenfield.test', name: 'Kit Rowan', role: 'manager', password: 'a-long-enough-pass' }))
+      .body
     const kit = new Agent(t.app)
     await kit.signIn('kit.rowan@wrenfield.test', 'a-long-enough-pass')
     expect((await kit.get('/api/customers')).status).toBe(200)
@@ -373,7 +464,8 @@ describe('users', () => {
 
   it('when the owner tries to demote or switch off their own account, then it is refused naming the field, and nothing changes', async () => {
     const me = await userIdOf(t, DEMO_EMAIL.owner)
-    const userRow = async () => (await t.db.select({ role: s.users.role, active: s.users.active, version: s.users.version }).from(s.users).where(eq(s.users.id, me)))[0]!
+    const userRow = async () =>
+      (await t.db.select({ role: s.users.role, active: s.users.active, version: s.users.version }).from(s.users).where(eq(s.users.id, me)))[0]!
     const before = await userRow()
     const demote = await owner.patch(`/api/users/${me}`, { role: 'manager', version: before.version })
     expectCleanError(demote, 422)
@@ -389,7 +481,16 @@ describe('users', () => {
 
 describe('another workshop', () => {
   let other: Awaited<ReturnType<typeof secondWorkshop>>
-  let first: { bench: { id: number; version: number }; person: { id: number; version: number; leave: { id: number }[] }; kind: { id: number; version: number }; template: { id: number; version: number }; customer: { id: number; version: number }; closure: { id: number }; order: { id: number; version: number }; user: { id: number; version: number } }
+  let first: {
+    bench: { id: number; version: number }
+    person: { id: number; version: number; leave: { id: number }[] }
+    kind: { id: number; version: number }
+    template: { id: number; version: number }
+    customer: { id: number; version: number }
+    closure: { id: number }
+    order: { id: number; version: number }
+    user: { id: number; version: number }
+  }
 
   beforeAll(async () => {
     other = await secondWorkshop(t)
@@ -406,7 +507,7 @@ describe('another workshop', () => {
     }
   })
 
-  it('when its owner lists master data, then none of the first workshop\'s rows show', async () => {
+  it("when its owner lists master data, then none of the first workshop's rows show", async () => {
     for (const path of ['/api/benches', '/api/people', '/api/operation-kinds', '/api/templates', '/api/closures']) {
       const r = await other.agent.get(path)
       expect(r.status, path).toBe(200)
@@ -418,7 +519,7 @@ describe('another workshop', () => {
     expect((await other.agent.get('/api/workshop')).body.name).toMatch(/^Other bench/)
   })
 
-  it('when its owner reads or changes the first workshop\'s rows by id, then 404 and nothing changes', async () => {
+  it("when its owner reads or changes the first workshop's rows by id, then 404 and nothing changes", async () => {
     const a = other.agent
     const f = first
     const tries = [
@@ -431,7 +532,12 @@ describe('another workshop', () => {
       await a.post(`/api/people/${f.person.id}/leave`, { startsOn: '2030-05-06', endsOn: '2030-05-06' }),
       await a.delete(`/api/people/${f.person.id}/leave/${f.person.leave[0]!.id}`),
       await a.patch(`/api/operation-kinds/${f.kind.id}`, { name: 'taken over', version: f.kind.version }),
-      await a.put(`/api/templates/${f.template.id}`, { code: 'x', name: 'x', steps: [{ key: 'a', kindId: f.kind.id, name: 'a', baseMinutes: 1 }], version: f.template.version }),
+      await a.put(`/api/templates/${f.template.id}`, {
+        code: 'x',
+        name: 'x',
+        steps: [{ key: 'a', kindId: f.kind.id, name: 'a', baseMinutes: 1 }],
+        version: f.template.version,
+      }),
       await a.patch(`/api/customers/${f.customer.id}`, { notes: 'taken over', version: f.customer.version }),
       await a.delete(`/api/closures/${f.closure.id}`),
       await a.patch(`/api/orders/${f.order.id}`, { title: 'taken over', version: f.order.version }),
@@ -448,7 +554,12 @@ describe('another workshop', () => {
       p: one(await t.db.select({ v: s.people.version }).from(s.people).where(eq(s.people.id, f.person.id)))?.v,
       c: one(await t.db.select({ v: s.customers.version }).from(s.customers).where(eq(s.customers.id, f.customer.id)))?.v,
       cl: one(await t.db.select({ n: count() }).from(s.closures).where(eq(s.closures.id, f.closure.id)))?.n,
-      u: one(await t.db.select({ v: s.users.active }).from(s.users).where(and(eq(s.users.id, f.user.id))))?.v,
+      u: one(
+        await t.db
+          .select({ v: s.users.active })
+          .from(s.users)
+          .where(and(eq(s.users.id, f.user.id))),
+      )?.v,
       audits: one(await t.db.select({ n: count() }).from(s.auditLog).where(eq(s.auditLog.workshopId, other.workshopId)))?.n,
     }
     expect(now).toEqual({ b: f.bench.version, p: f.person.version, c: f.customer.version, cl: 1, u: true, audits: 0 })

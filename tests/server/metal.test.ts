@@ -15,7 +15,14 @@ let bag: { id: number }, opId: number, kindId: number, personId: number
 let alloyN = 0
 
 async function newAlloy(over: Record<string, unknown> = {}) {
-  const r = await as.owner.post('/api/alloys', { code: `test-${++alloyN}-${Date.now() % 100000}`, name: `Test 18 ct ${alloyN}`, metal: 'gold', fineness: 750, densityGPerCm3: 15.58, ...over })
+  const r = await as.owner.post('/api/alloys', {
+    code: `test-${++alloyN}-${Date.now() % 100000}`,
+    name: `Test 18 ct ${alloyN}`,
+    metal: 'gold',
+    fineness: 750,
+    densityGPerCm3: 15.58,
+    ...over,
+  })
   expect(r.status, JSON.stringify(r.body)).toBe(201)
   return r.body as { id: number; version: number }
 }
@@ -25,13 +32,22 @@ beforeAll(async () => {
   t = await createTestApp()
   for (const role of ['owner', 'manager', 'bench', 'sales'] as Role[]) as[role] = await signedIn(t.app, role)
   bag = (await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.status, 'waiting')).orderBy(asc(s.jobBags.id)).limit(1))[0]!
-  const o = (await t.db.select({ id: s.operations.id, kindId: s.operations.kindId }).from(s.operations).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
-    .where(and(eq(s.operations.jobBagId, bag.id), eq(s.operationKinds.outside, false))).orderBy(asc(s.operations.seq)).limit(1))[0]!
+  const o = (
+    await t.db
+      .select({ id: s.operations.id, kindId: s.operations.kindId })
+      .from(s.operations)
+      .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+      .where(and(eq(s.operations.jobBagId, bag.id), eq(s.operationKinds.outside, false)))
+      .orderBy(asc(s.operations.seq))
+      .limit(1)
+  )[0]!
   opId = o.id
   kindId = o.kindId
   personId = (await t.db.select({ id: s.people.id }).from(s.people).orderBy(asc(s.people.id)).limit(1))[0]!.id
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 describe('a hand-worked job bag', () => {
   it('when 12.00 g of 18 ct is issued and 11.20 g piece, 0.35 g scrap and 0.20 g lemel come back, then 0.25 g (2.1 %, 0.188 g fine) is lost and flagged over a 2 % tolerance', async () => {
@@ -42,7 +58,11 @@ describe('a hand-worked job bag', () => {
     expect(tol.body.version).toBe(v0 + 1)
     const base = { jobBagId: bag.id, alloyId: alloy.id, personId, operationId: opId }
     expect((await as.bench.post('/api/metal/issues', { ...base, weightG: 12 })).status).toBe(201)
-    for (const [form, weightG] of [['piece', 11.2], ['scrap', 0.35], ['lemel', 0.2]] as const) {
+    for (const [form, weightG] of [
+      ['piece', 11.2],
+      ['scrap', 0.35],
+      ['lemel', 0.2],
+    ] as const) {
       const r = await as.bench.post('/api/metal/returns', { ...base, weightG, form })
       expect(r.status, JSON.stringify(r.body)).toBe(201)
     }
@@ -50,7 +70,18 @@ describe('a hand-worked job bag', () => {
     expect(acc.status).toBe(200)
     const mine = acc.body.byAlloy.find((a: { alloyId: number }) => a.alloyId === alloy.id)
     // Hand-worked: 12000 − (11200 + 350 + 200) = 250 mg = 0.25 g; 250 / 12000 = 2.08 % → 2.1 %; fine 250 × 750 / 1000 = 187.5 mg → 188 mg.
-    expect(mine).toMatchObject({ issuedMg: 12000, pieceMg: 11200, scrapMg: 350, lemelMg: 200, returnedMg: 11750, lossMg: 250, lossG: 0.25, lossPct: 2.1, lossFineMg: 188, lossFineG: 0.188 })
+    expect(mine).toMatchObject({
+      issuedMg: 12000,
+      pieceMg: 11200,
+      scrapMg: 350,
+      lemelMg: 200,
+      returnedMg: 11750,
+      lossMg: 250,
+      lossG: 0.25,
+      lossPct: 2.1,
+      lossFineMg: 188,
+      lossFineG: 0.188,
+    })
     const step = acc.body.bySteps.find((s: { operationId: number }) => s.operationId === opId)
     expect(step.tolerancePct).toBe(2)
     expect(step.overTolerance).toBe(true)
@@ -92,7 +123,11 @@ describe('bad input', () => {
   })
 
   it('when an alloy claims 583 ‰ gold or 750 ‰ silver, then 400 names fineness', async () => {
-    expectFieldError(await as.owner.post('/api/alloys', { code: 'bad-14', name: 'Bad 14', metal: 'gold', fineness: 583, densityGPerCm3: 13 }), 'fineness', /legal/)
+    expectFieldError(
+      await as.owner.post('/api/alloys', { code: 'bad-14', name: 'Bad 14', metal: 'gold', fineness: 583, densityGPerCm3: 13 }),
+      'fineness',
+      /legal/,
+    )
     const a = await newAlloy()
     expectFieldError(await as.owner.patch(`/api/alloys/${a.id}`, { version: a.version, metal: 'silver' }), 'fineness', /925/)
   })
@@ -116,7 +151,10 @@ describe('bad input', () => {
     expectFieldError(await as.bench.post('/api/metal/issues', { jobBagId: bag.id, alloyId: alloy.id, personId: 999999, weightG: 1 }), 'personId')
     expectFieldError(await as.bench.post('/api/metal/issues', { jobBagId: bag.id, alloyId: 999999, personId, weightG: 1 }), 'alloyId')
     const [other] = await t.db.select({ id: s.operations.id }).from(s.operations).where(ne(s.operations.jobBagId, bag.id)).limit(1)
-    expectFieldError(await as.bench.post('/api/metal/issues', { jobBagId: bag.id, alloyId: alloy.id, personId, operationId: other!.id, weightG: 1 }), 'operationId')
+    expectFieldError(
+      await as.bench.post('/api/metal/issues', { jobBagId: bag.id, alloyId: alloy.id, personId, operationId: other!.id, weightG: 1 }),
+      'operationId',
+    )
   })
 })
 
@@ -144,7 +182,11 @@ describe('replays and corrections', () => {
     const b = await other.agent.post('/api/metal/purchases', { alloyId: theirs.body.id, weightG: 20, clientId })
     expect([a.status, b.status], JSON.stringify([a.body, b.body])).toEqual([201, 201])
     expect(b.body.replayed).toBe(false)
-    const rows = await t.db.select({ workshopId: s.metalMovements.workshopId, weightMg: s.metalMovements.weightMg }).from(s.metalMovements).where(eq(s.metalMovements.clientId, clientId)).orderBy(asc(s.metalMovements.weightMg))
+    const rows = await t.db
+      .select({ workshopId: s.metalMovements.workshopId, weightMg: s.metalMovements.weightMg })
+      .from(s.metalMovements)
+      .where(eq(s.metalMovements.clientId, clientId))
+      .orderBy(asc(s.metalMovements.weightMg))
     expect(rows.map((r) => r.weightMg)).toEqual([10_000, 20_000])
     expect(new Set(rows.map((r) => r.workshopId)).size).toBe(2)
     // Within one workshop the id still means one entry: a replay answers the first.
@@ -162,7 +204,15 @@ describe('replays and corrections', () => {
     expect(c.status, JSON.stringify(c.body)).toBe(201)
     expect(c.body.movement).toMatchObject({ weightMg: 10000, effectiveMg: 10500 })
     expect(c.body.movement.corrections[0]).toMatchObject({ weightMg: 500, reason: 'Scale read before it settled', recordedBy: 'Sam Ottery' })
-    const [row] = await t.db.select({ correctsId: s.metalMovements.correctsId, recordedBy: s.metalMovements.recordedBy, reason: s.metalMovements.reason, weightMg: s.metalMovements.weightMg }).from(s.metalMovements).where(eq(s.metalMovements.id, c.body.correctionId))
+    const [row] = await t.db
+      .select({
+        correctsId: s.metalMovements.correctsId,
+        recordedBy: s.metalMovements.recordedBy,
+        reason: s.metalMovements.reason,
+        weightMg: s.metalMovements.weightMg,
+      })
+      .from(s.metalMovements)
+      .where(eq(s.metalMovements.id, c.body.correctionId))
     expect(row).toMatchObject({ correctsId: issued.body.movement.id, recordedBy: await userIdOf(t, 'manager@wrenfield.test'), weightMg: 500 })
     const audits = await auditRows(t, 'metal-movement', c.body.correctionId)
     expect(audits[0]).toMatchObject({ action: 'correct', user_id: await userIdOf(t, 'manager@wrenfield.test') })
@@ -238,57 +288,93 @@ describe('stock reconciles to the milligram', () => {
   }) as fc.Arbitrary<Step>
 
   it('when any sequence of buys, issues, returns, adjustments, refining sends and credits is recorded, then stock = bought + customer’s − issued + returned − sent + credited + adjusted', async () => {
-    await fc.assert(fc.asyncProperty(fc.array(step, { minLength: 1, maxLength: 9 }), async (steps) => {
-      const a = await newAlloy({ metal: 'silver', fineness: 925, densityGPerCm3: 10.36 })
-      // The expected figures, kept here in integer mg from the inputs alone.
-      const e = { bought: 0, customer: 0, issued: 0, returned: 0, sent: 0, credited: 0, adjusted: 0 }
-      let lot: { id: number; version: number; items: number } | null = null
-      for (const s of steps) {
-        const g = s.cg / 100
-        const mg = s.cg * 10
-        const base = { jobBagId: bag.id, alloyId: a.id, personId }
-        let r
-        if (s.op === 'buy') { r = await as.owner.post('/api/metal/purchases', { alloyId: a.id, weightG: g }); e.bought += mg }
-        else if (s.op === 'issue') { r = await as.owner.post('/api/metal/issues', { ...base, weightG: g }); e.issued += mg }
-        else if (s.op === 'customer') { r = await as.owner.post('/api/metal/issues', { ...base, weightG: g, source: 'customer' }); e.issued += mg; e.customer += mg }
-        else if (s.op === 'return') { r = await as.owner.post('/api/metal/returns', { ...base, weightG: g, form: s.form, reason: 'test sequence' }); e.returned += mg }
-        else if (s.op === 'adjust') { r = await as.owner.post('/api/metal/adjustments', { alloyId: a.id, weightG: g * s.sign, reason: 'count' }); e.adjusted += mg * s.sign }
-        else if (s.op === 'send') {
-          if (!lot) { const l = await as.owner.post('/api/refining-lots', {}); lot = { id: l.body.id, version: l.body.version, items: 0 } }
-          r = await as.owner.post(`/api/refining-lots/${lot.id}/items`, { alloyId: a.id, weightG: g, form: s.form === 'piece' ? 'scrap' : s.form })
-          lot.version = r.body.lot?.version ?? lot.version
-          lot.items++
-          e.sent += mg
-        } else {
-          if (!lot) continue
-          const sent = await as.owner.post(`/api/refining-lots/${lot.id}/send`, { version: lot.version })
-          expect(sent.status, JSON.stringify(sent.body)).toBe(200)
-          r = await as.owner.post(`/api/refining-lots/${lot.id}/settle`, { version: sent.body.version, returnedAlloyId: a.id, returnedWeightG: g })
-          e.credited += mg
-          lot = null
+    await fc.assert(
+      fc.asyncProperty(fc.array(step, { minLength: 1, maxLength: 9 }), async (steps) => {
+        const a = await newAlloy({ metal: 'silver', fineness: 925, densityGPerCm3: 10.36 })
+        // The expected figures, kept here in integer mg from the inputs alone.
+        const e = { bought: 0, customer: 0, issued: 0, returned: 0, sent: 0, credited: 0, adjusted: 0 }
+        let lot: { id: number; version: number; items: number } | null = null
+        for (const s of steps) {
+          const g = s.cg / 100
+          const mg = s.cg * 10
+          const base = { jobBagId: bag.id, alloyId: a.id, personId }
+          let r
+          if (s.op === 'buy') {
+            r = await as.owner.post('/api/metal/purchases', { alloyId: a.id, weightG: g })
+            e.bought += mg
+          } else if (s.op === 'issue') {
+            r = await as.owner.post('/api/metal/issues', { ...base, weightG: g })
+            e.issued += mg
+          } else if (s.op === 'customer') {
+            r = await as.owner.post('/api/metal/issues', { ...base, weightG: g, source: 'customer' })
+            e.issued += mg
+            e.customer += mg
+          } else if (s.op === 'return') {
+            r = await as.owner.post('/api/metal/returns', { ...base, weightG: g, form: s.form, reason: 'test sequence' })
+            e.returned += mg
+          } else if (s.op === 'adjust') {
+            r = await as.owner.post('/api/metal/adjustments', { alloyId: a.id, weightG: g * s.sign, reason: 'count' })
+            e.adjusted += mg * s.sign
+          } else if (s.op === 'send') {
+            if (!lot) {
+              const l = await as.owner.post('/api/refining-lots', {})
+              lot = { id: l.body.id, version: l.body.version, items: 0 }
+            }
+            r = await as.owner.post(`/api/refining-lots/${lot.id}/items`, { alloyId: a.id, weightG: g, form: s.form === 'piece' ? 'scrap' : s.form })
+            lot.version = r.body.lot?.version ?? lot.version
+            lot.items++
+            e.sent += mg
+          } else {
+            if (!lot) continue
+            const sent = await as.owner.post(`/api/refining-lots/${lot.id}/send`, { version: lot.version })
+            expect(sent.status, JSON.stringify(sent.body)).toBe(200)
+            r = await as.owner.post(`/api/refining-lots/${lot.id}/settle`, { version: sent.body.version, returnedAlloyId: a.id, returnedWeightG: g })
+            e.credited += mg
+            lot = null
+          }
+          expect(r.status, `${s.op}: ${JSON.stringify(r.body)}`).toBeLessThan(300)
         }
-        expect(r.status, `${s.op}: ${JSON.stringify(r.body)}`).toBeLessThan(300)
-      }
-      const stock = (await as.owner.get('/api/metal/stock')).body.find((x: { alloyId: number }) => x.alloyId === a.id)
-      expect(stock).toMatchObject({
-        boughtMg: e.bought, fromCustomerMg: e.customer, issuedMg: e.issued, returnedMg: e.returned, toRefiningMg: e.sent, fromRefiningMg: e.credited, adjustedMg: e.adjusted,
-        balanceMg: e.bought + e.customer - e.issued + e.returned - e.sent + e.credited + e.adjusted,
-      })
-      // Fine weight: balance × 925 / 1000, rounded to the mg.
-      expect(stock.fineMg).toBe(Math.round((stock.balanceMg * 925) / 1000))
-    }), { numRuns: 12 })
+        const stock = (await as.owner.get('/api/metal/stock')).body.find((x: { alloyId: number }) => x.alloyId === a.id)
+        expect(stock).toMatchObject({
+          boughtMg: e.bought,
+          fromCustomerMg: e.customer,
+          issuedMg: e.issued,
+          returnedMg: e.returned,
+          toRefiningMg: e.sent,
+          fromRefiningMg: e.credited,
+          adjustedMg: e.adjusted,
+          balanceMg: e.bought + e.customer - e.issued + e.returned - e.sent + e.credited + e.adjusted,
+        })
+        // Fine weight: balance × 925 / 1000, rounded to the mg.
+        expect(stock.fineMg).toBe(Math.round((stock.balanceMg * 925) / 1000))
+      }),
+      { numRuns: 12 },
+    )
   }, 240_000)
 })
 
 describe('the demo', () => {
   it('when the demo is seeded, then its metal lies in working time before now, some steps are over tolerance and a lot is settled', async () => {
-    const m = s.metalMovements, r = s.timeRecords
-    const n = (await t.db.select({ n: count(), last: max(m.recordedAt) }).from(m).innerJoin(s.alloys, eq(s.alloys.id, m.alloyId)).where(eq(s.alloys.code, 'ag925')))[0]!
+    const m = s.metalMovements,
+      r = s.timeRecords
+    const n = (
+      await t.db
+        .select({ n: count(), last: max(m.recordedAt) })
+        .from(m)
+        .innerJoin(s.alloys, eq(s.alloys.id, m.alloyId))
+        .where(eq(s.alloys.code, 'ag925'))
+    )[0]!
     expect(n.n).toBeGreaterThan(20)
     expect(new Date(n.last!).getTime()).toBeLessThanOrEqual(Date.now())
     // Each issue and return on a step lies inside one of that step's own time records (which keep to working time).
-    const inRecord = t.db.select({ one: sql`1` }).from(r).where(and(eq(r.operationId, m.operationId), gte(m.recordedAt, r.startedAt), lte(m.recordedAt, r.endedAt)))
-    const off = await t.db.select({ id: m.id }).from(m).innerJoin(s.alloys, eq(s.alloys.id, m.alloyId))
+    const inRecord = t.db
+      .select({ one: sql`1` })
+      .from(r)
+      .where(and(eq(r.operationId, m.operationId), gte(m.recordedAt, r.startedAt), lte(m.recordedAt, r.endedAt)))
+    const off = await t.db
+      .select({ id: m.id })
+      .from(m)
+      .innerJoin(s.alloys, eq(s.alloys.id, m.alloyId))
       .where(and(notLike(s.alloys.code, 'test-%'), isNotNull(m.operationId), isNull(m.correctsId), notExists(inRecord)))
     expect(off).toEqual([])
     const losses = await as.owner.get('/api/metal/losses?groupBy=kind')
@@ -307,15 +393,29 @@ describe('finished pieces leave stock', () => {
     // A fresh order with two bags of the seeded routing, made through the API as sales would.
     const c = { id: await firstCustomerId(t.db) }
     const tpl = { id: await firstTemplateId(t.db) }
-    const made = await as.sales.post('/api/orders', { customerId: c.id, title: 'Two pieces to collect', dueDate: '2031-09-01', pieces: [{ templateId: tpl.id, piece: 'One' }, { templateId: tpl.id, piece: 'Two' }] })
+    const made = await as.sales.post('/api/orders', {
+      customerId: c.id,
+      title: 'Two pieces to collect',
+      dueDate: '2031-09-01',
+      pieces: [
+        { templateId: tpl.id, piece: 'One' },
+        { templateId: tpl.id, piece: 'Two' },
+      ],
+    })
     expect(made.status, JSON.stringify(made.body)).toBe(201)
     const [b1, b2] = await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, made.body.id)).orderBy(asc(s.jobBags.id))
-    const post = async (path: string, body: Record<string, unknown>) => { const r = await as.bench.post(path, { alloyId: alloy.id, personId, clientId: cid(), ...body }); expect(r.status, JSON.stringify(r.body)).toBe(201); return r.body.movement }
+    const post = async (path: string, body: Record<string, unknown>) => {
+      const r = await as.bench.post(path, { alloyId: alloy.id, personId, clientId: cid(), ...body })
+      expect(r.status, JSON.stringify(r.body)).toBe(201)
+      return r.body.movement
+    }
     await as.owner.post('/api/metal/purchases', { alloyId: alloy.id, weightG: 50, clientId: cid() })
     // Bag one: 12.00 out, 11.30 back as the piece, corrected to 11.20 (scale not tared) → 11.20 g leaves with the order.
     await post('/api/metal/issues', { jobBagId: b1!.id, weightG: 12 })
     const piece = await post('/api/metal/returns', { jobBagId: b1!.id, weightG: 11.3, form: 'piece' })
-    expect((await as.bench.post(`/api/metal/movements/${piece.id}/corrections`, { weightG: 11.2, reason: 'scale not tared', clientId: cid() })).status).toBe(201)
+    expect((await as.bench.post(`/api/metal/movements/${piece.id}/corrections`, { weightG: 11.2, reason: 'scale not tared', clientId: cid() })).status).toBe(
+      201,
+    )
     // Bag two: 5.00 out, 4.90 back as the piece, then out again to the bench (4.90) → last seen at the bench: nothing leaves.
     await post('/api/metal/issues', { jobBagId: b2!.id, weightG: 5 })
     await post('/api/metal/returns', { jobBagId: b2!.id, weightG: 4.9, form: 'piece' })
@@ -330,7 +430,10 @@ describe('finished pieces leave stock', () => {
     const after = await stockOf()
     // 44.20 − 11.20 (bag one's piece) = 33.00 g; bag two's metal is still out at the bench.
     expect(after).toMatchObject({ deliveredMg: 11_200, balanceMg: 33_000 })
-    const delivered = await t.db.select({ jobBagId: s.metalMovements.jobBagId, weightMg: s.metalMovements.weightMg }).from(s.metalMovements).where(and(eq(s.metalMovements.kind, 'delivered'), eq(s.metalMovements.alloyId, alloy.id)))
+    const delivered = await t.db
+      .select({ jobBagId: s.metalMovements.jobBagId, weightMg: s.metalMovements.weightMg })
+      .from(s.metalMovements)
+      .where(and(eq(s.metalMovements.kind, 'delivered'), eq(s.metalMovements.alloyId, alloy.id)))
     expect(delivered).toEqual([{ jobBagId: b1!.id, weightMg: 11_200 }])
   })
 })

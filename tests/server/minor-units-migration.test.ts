@@ -30,13 +30,29 @@ beforeAll(async () => {
   for (const e of journal.entries.filter((x) => x.idx < upTo)) await apply(e.tag)
   const week = JSON.stringify([{ weekday: 1, start: '09:00', end: '17:00' }])
   // Three workshops: pounds (2 decimals), yen (0) and Bahraini dinars (3), ISO 4217.
-  for (const [i, currency] of [[1, 'GBP'], [2, 'JPY'], [3, 'BHD']] as const) {
-    await db.query(`insert into workshops (id, name, week_pattern, currency) overriding system value values ($1, $2, $3::jsonb, $4)`, [i, `W${i}`, week, currency])
+  for (const [i, currency] of [
+    [1, 'GBP'],
+    [2, 'JPY'],
+    [3, 'BHD'],
+  ] as const) {
+    await db.query(`insert into workshops (id, name, week_pattern, currency) overriding system value values ($1, $2, $3::jsonb, $4)`, [
+      i,
+      `W${i}`,
+      week,
+      currency,
+    ])
     await db.query(`insert into customers (id, workshop_id, reference, name) overriding system value values ($1, $1, 'C-1', 'Customer')`, [i])
-    await db.query(`insert into operation_kinds (id, workshop_id, code, name, outside) overriding system value values ($1, $1, 'hallmarking', 'Hallmarking', true)`, [i])
+    await db.query(
+      `insert into operation_kinds (id, workshop_id, code, name, outside) overriding system value values ($1, $1, 'hallmarking', 'Hallmarking', true)`,
+      [i],
+    )
     await db.query(`insert into routing_templates (id, workshop_id, code, name) overriding system value values ($1, $1, 't', 'T')`, [i])
   }
-  const order = (id: number, w: number, price: number) => db.query(`insert into orders (id, workshop_id, number, customer_id, title, due_date, price_quoted) overriding system value values ($1, $2, $3, $2, 'x', '2030-01-01', $4)`, [id, w, `O-${id}`, price])
+  const order = (id: number, w: number, price: number) =>
+    db.query(
+      `insert into orders (id, workshop_id, number, customer_id, title, due_date, price_quoted) overriding system value values ($1, $2, $3, $2, 'x', '2030-01-01', $4)`,
+      [id, w, `O-${id}`, price],
+    )
   await order(11, 1, 1234.56)
   await order(12, 1, 99999.99)
   await order(13, 1, 0.125)
@@ -46,10 +62,18 @@ beforeAll(async () => {
   await person(1, 32.5)
   await person(2, 3000)
   await person(3, 4.125)
-  await db.query(`insert into template_step_costs (template_id, step_key, outside_cost) values (1, 'hallmark', 2.8), (1, 'cast', null), (2, 'hallmark', 450), (3, 'hallmark', 1.75)`)
+  await db.query(
+    `insert into template_step_costs (template_id, step_key, outside_cost) values (1, 'hallmark', 2.8), (1, 'cast', null), (2, 'hallmark', 450), (3, 'hallmark', 1.75)`,
+  )
   for (const w of [1, 2, 3]) {
-    await db.query(`insert into job_bags (id, workshop_id, order_id, number, piece, params) overriding system value values ($1, $1, $2, 'B', 'p', '{}'::jsonb)`, [w, w === 1 ? 11 : w === 2 ? 21 : 31])
-    await db.query(`insert into operations (id, job_bag_id, seq, key, kind_id, name, estimate_minutes) overriding system value values ($1, $1, 0, 'hallmark', $1, 'Hallmark', 0)`, [w])
+    await db.query(
+      `insert into job_bags (id, workshop_id, order_id, number, piece, params) overriding system value values ($1, $1, $2, 'B', 'p', '{}'::jsonb)`,
+      [w, w === 1 ? 11 : w === 2 ? 21 : 31],
+    )
+    await db.query(
+      `insert into operations (id, job_bag_id, seq, key, kind_id, name, estimate_minutes) overriding system value values ($1, $1, 0, 'hallmark', $1, 'Hallmark', 0)`,
+      [w],
+    )
   }
   await db.query(`insert into operation_costs (operation_id, outside_cost) values (1, 0.1), (2, 500), (3, 2.5)`)
   await apply(TARGET)
@@ -67,7 +91,13 @@ describe('amounts to minor units', () => {
     const { rows } = await db.query(`select id, price_quoted_minor from orders order by id`)
     // Hand-worked. GBP × 100: 1234.56 → 123,456; 99,999.99 (a real holds 99999.9921875) → 9,999,999; 0.125 (exact in binary) → 12.5 → 13,
     // half away from zero. JPY × 1: ¥150,000 → 150,000. BHD × 1000: 12.345 (a real holds 12.3450002670288) → 12,345 fils.
-    expect(rows.map((r) => [r.id, r.price_quoted_minor])).toEqual([[11, 123_456], [12, 9_999_999], [13, 13], [21, 150_000], [31, 12_345]])
+    expect(rows.map((r) => [r.id, r.price_quoted_minor])).toEqual([
+      [11, 123_456],
+      [12, 9_999_999],
+      [13, 13],
+      [21, 150_000],
+      [31, 12_345],
+    ])
   })
 
   it('when rates and outside costs are converted, then the same rule applies and a cost not known stays unknown', async () => {
@@ -76,9 +106,16 @@ describe('amounts to minor units', () => {
     expect(rates).toEqual([3250, 3000, 4125])
     const steps = (await db.query(`select template_id, step_key, outside_cost_minor from template_step_costs order by template_id, step_key`)).rows
     // 2.80 GBP → 280 p; the caster's cost was never entered → null; ¥450 → 450; 1.75 BHD → 1,750 fils.
-    expect(steps.map((r) => [r.template_id, r.step_key, r.outside_cost_minor])).toEqual([[1, 'cast', null], [1, 'hallmark', 280], [2, 'hallmark', 450], [3, 'hallmark', 1750]])
+    expect(steps.map((r) => [r.template_id, r.step_key, r.outside_cost_minor])).toEqual([
+      [1, 'cast', null],
+      [1, 'hallmark', 280],
+      [2, 'hallmark', 450],
+      [3, 'hallmark', 1750],
+    ])
     // 0.10 GBP (a real holds 0.100000001490116) → 10 p; ¥500 → 500; 2.5 BHD → 2,500 fils.
-    const invoiced = (await db.query(`select operation_id, outside_cost_minor from operation_costs order by operation_id`)).rows.map((r) => r.outside_cost_minor)
+    const invoiced = (await db.query(`select operation_id, outside_cost_minor from operation_costs order by operation_id`)).rows.map(
+      (r) => r.outside_cost_minor,
+    )
     expect(invoiced).toEqual([10, 500, 2500])
   })
 

@@ -16,7 +16,9 @@ beforeAll(async () => {
   owner = await signedIn(t.app, 'owner')
   await t.db.update(s.workshops).set({ currency: 'JPY' })
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 describe('a workshop pricing in yen', () => {
   it('when an order priced ¥150,000 takes a ¥45,000 cash deposit, then the money, the receipt and the CSV are in whole yen', async () => {
@@ -32,7 +34,14 @@ describe('a workshop pricing in yen', () => {
     expect(cash.status, JSON.stringify(cash.body)).toBe(201)
     expect((await sales.get(`/api/orders/${o.body.id}/money`)).body).toMatchObject({ paidMinor: 45_000, owedMinor: 105_000, depositPaid: true })
     // Intl en-GB writes yen as "JP¥45,000" (ECMA-402 currency formatting, no decimals for JPY).
-    const mail = (await t.db.select({ text: s.outbox.text }).from(s.outbox).where(and(eq(s.outbox.orderId, o.body.id), eq(s.outbox.kind, 'payment-receipt'))).orderBy(desc(s.outbox.id)).limit(1))[0]!
+    const mail = (
+      await t.db
+        .select({ text: s.outbox.text })
+        .from(s.outbox)
+        .where(and(eq(s.outbox.orderId, o.body.id), eq(s.outbox.kind, 'payment-receipt')))
+        .orderBy(desc(s.outbox.id))
+        .limit(1)
+    )[0]!
     expect(mail.text).toContain('JP¥45,000')
     expect(mail.text).toContain('JP¥105,000')
     const csv = (await owner.get('/api/payments/export.csv')).text.split('\r\n').find((l) => l.includes(o.body.number))!

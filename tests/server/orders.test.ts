@@ -8,10 +8,24 @@ import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from '.
 let t: TestApp
 let sales: Agent
 let manager: Agent
-let tpl: Record<string, { id: number; steps: { key: string; kindId: number; requiredLevel: number; waitAfterMinutes: number; leadDays: number; after: string[] }[] }>
+let tpl: Record<
+  string,
+  { id: number; steps: { key: string; kindId: number; requiredLevel: number; waitAfterMinutes: number; leadDays: number; after: string[] }[] }
+>
 let customerId: number
 
-interface Op { key: string; seq: number; kindId: number; status: string; estimateMinutes: number; estimateSource: string; after: string[]; requiredLevel: number; waitAfterMinutes: number; leadDays: number }
+interface Op {
+  key: string
+  seq: number
+  kindId: number
+  status: string
+  estimateMinutes: number
+  estimateSource: string
+  after: string[]
+  requiredLevel: number
+  waitAfterMinutes: number
+  leadDays: number
+}
 const byKey = (ops: Op[]) => Object.fromEntries(ops.map((o) => [o.key, o]))
 const estimates = (ops: Op[]) => Object.fromEntries(ops.map((o) => [o.key, o.estimateMinutes]))
 const statuses = (ops: Op[]) => Object.fromEntries(ops.map((o) => [o.key, o.status]))
@@ -23,7 +37,9 @@ beforeAll(async () => {
   tpl = Object.fromEntries((await manager.get('/api/templates')).body.map((x: { code: string }) => [x.code, x]))
   customerId = (await sales.get('/api/customers?q=Emrys')).body.items[0].id
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 const orderCount = async () => (await t.db.select({ n: count() }).from(s.orders))[0]!.n
 
@@ -31,7 +47,12 @@ describe('taking an order', () => {
   it('when an order with two pieces is taken, then it is numbered, each piece gets a numbered job bag, and it is audited', async () => {
     const n = await orderCount()
     const r = await sales.post('/api/orders', {
-      customerId, title: 'Pendant and ring set', dueDate: '2031-06-20', promisedDate: '2031-06-18', priority: 2, priceQuotedMinor: 185_000,
+      customerId,
+      title: 'Pendant and ring set',
+      dueDate: '2031-06-20',
+      promisedDate: '2031-06-18',
+      priority: 2,
+      priceQuotedMinor: 185_000,
       pieces: [
         { templateId: tpl['pave-pendant']!.id, piece: 'Pavé wave pendant', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, quantity: 2 } },
         { templateId: tpl['bezel-ring']!.id, piece: 'Garnet bezel ring', params: { stoneCount: 1, stoneSizeMm: 7 } },
@@ -40,9 +61,28 @@ describe('taking an order', () => {
     expect(r.status).toBe(201)
     // Order number: MG + two-digit year of the due date + running count in the workshop (our own scheme).
     const number = `MG31-${String(n + 1).padStart(4, '0')}`
-    expect(r.body).toMatchObject({ number, customerId, customerName: 'Emrys Calloway', title: 'Pendant and ring set', dueDate: '2031-06-20', promisedDate: '2031-06-18', priority: 2, priceQuotedMinor: 185_000, currency: 'GBP', status: 'open', version: 0 })
-    expect(r.body.jobBags.map((b: { number: string; piece: string }) => [b.number, b.piece])).toEqual([[`${number}-1`, 'Pavé wave pendant'], [`${number}-2`, 'Garnet bezel ring']])
-    expect(r.body.jobBags[0]).toMatchObject({ templateId: tpl['pave-pendant']!.id, status: 'waiting', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, sizeMm: 0, finish: 'polished', quantity: 2 } })
+    expect(r.body).toMatchObject({
+      number,
+      customerId,
+      customerName: 'Emrys Calloway',
+      title: 'Pendant and ring set',
+      dueDate: '2031-06-20',
+      promisedDate: '2031-06-18',
+      priority: 2,
+      priceQuotedMinor: 185_000,
+      currency: 'GBP',
+      status: 'open',
+      version: 0,
+    })
+    expect(r.body.jobBags.map((b: { number: string; piece: string }) => [b.number, b.piece])).toEqual([
+      [`${number}-1`, 'Pavé wave pendant'],
+      [`${number}-2`, 'Garnet bezel ring'],
+    ])
+    expect(r.body.jobBags[0]).toMatchObject({
+      templateId: tpl['pave-pendant']!.id,
+      status: 'waiting',
+      params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, sizeMm: 0, finish: 'polished', quantity: 2 },
+    })
     expect(r.body.jobBags[1].params).toMatchObject({ metal: 'silver-925', quantity: 1, stoneCount: 1 })
 
     const got = await sales.get(`/api/orders/${r.body.id}`)
@@ -54,26 +94,58 @@ describe('taking an order', () => {
   })
 
   it('when a pavé pendant with 18 stones is ordered twice over, then each step is (base + per-stone × 18) × 2 minutes', async () => {
-    const r = await sales.post('/api/orders', { customerId, title: 'Two pendants', dueDate: '2031-07-01', pieces: [{ templateId: tpl['pave-pendant']!.id, piece: 'Pavé pendant', params: { stoneCount: 18, quantity: 2 } }] })
+    const r = await sales.post('/api/orders', {
+      customerId,
+      title: 'Two pendants',
+      dueDate: '2031-07-01',
+      pieces: [{ templateId: tpl['pave-pendant']!.id, piece: 'Pavé pendant', params: { stoneCount: 18, quantity: 2 } }],
+    })
     const ops: Op[] = r.body.jobBags[0].operations
     // Hand-computed from the seeded pavé-pendant routing (server/db/seed.ts); estimate rule: common practice, no source.
     expect(estimates(ops)).toEqual({
-      laminate: 90 * 2, bail: 25 * 2, pierce: 40 * 2, solder: 30 * 2, file: 40 * 2,
+      laminate: 90 * 2,
+      bail: 25 * 2,
+      pierce: 40 * 2,
+      solder: 30 * 2,
+      file: 40 * 2,
       hallmark: 0, // outside work: lead days, no bench minutes
       drill: (10 + 1.5 * 18) * 2, // 74
       set: (30 + 7 * 18) * 2, // 312
-      polish: 35 * 2, inspect: 10 * 2,
+      polish: 35 * 2,
+      inspect: 10 * 2,
     })
-    expect(statuses(ops)).toEqual({ laminate: 'ready', bail: 'ready', pierce: 'pending', solder: 'pending', file: 'pending', hallmark: 'pending', drill: 'pending', set: 'pending', polish: 'pending', inspect: 'pending' })
+    expect(statuses(ops)).toEqual({
+      laminate: 'ready',
+      bail: 'ready',
+      pierce: 'pending',
+      solder: 'pending',
+      file: 'pending',
+      hallmark: 'pending',
+      drill: 'pending',
+      set: 'pending',
+      polish: 'pending',
+      inspect: 'pending',
+    })
     expect(ops.map((o) => o.seq)).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8, 9])
     expect(ops.every((o) => o.estimateSource === 'template')).toBe(true)
   })
 
   it('when operations are copied, then kind, level, wait, lead days and predecessors are those of the template steps', async () => {
-    const r = await sales.post('/api/orders', { customerId, title: 'Halo ring', dueDate: '2031-07-02', pieces: [{ templateId: tpl['halo-ring']!.id, piece: 'Halo ring', params: { metal: 'platinum-950', stoneCount: 15 } }] })
+    const r = await sales.post('/api/orders', {
+      customerId,
+      title: 'Halo ring',
+      dueDate: '2031-07-02',
+      pieces: [{ templateId: tpl['halo-ring']!.id, piece: 'Halo ring', params: { metal: 'platinum-950', stoneCount: 15 } }],
+    })
     const ops = byKey(r.body.jobBags[0].operations)
     for (const s of tpl['halo-ring']!.steps) {
-      expect(ops[s.key], s.key).toMatchObject({ kindId: s.kindId, requiredLevel: s.requiredLevel, waitAfterMinutes: s.waitAfterMinutes, leadDays: s.leadDays, after: s.after })
+      expect(ops[s.key], s.key).toMatchObject({
+        kindId: s.kindId,
+        requiredLevel: s.requiredLevel,
+        waitAfterMinutes: s.waitAfterMinutes,
+        leadDays: s.leadDays,
+        after: s.after,
+      })
     }
     // Halo ring, 15 stones, one piece (seed.ts): set = 40 + 8 × 15.
     expect(estimates(r.body.jobBags[0].operations)).toEqual({ head: 0, shank: 50, join: 40, file: 45, hallmark: 0, set: 160, polish: 40, inspect: 15 })
@@ -83,7 +155,12 @@ describe('taking an order', () => {
   })
 
   it('when a production run of 40 stud pairs is ordered, then each step takes Wright’s total for 40 pairs at the routing’s 85 %', async () => {
-    const r = await sales.post('/api/orders', { customerId, title: 'Studs', dueDate: '2031-07-03', pieces: [{ templateId: tpl['stud-run']!.id, piece: 'Seed studs, 40 pairs', params: { quantity: 40 } }] })
+    const r = await sales.post('/api/orders', {
+      customerId,
+      title: 'Studs',
+      dueDate: '2031-07-03',
+      pieces: [{ templateId: tpl['stud-run']!.id, piece: 'Seed studs, 40 pairs', params: { quantity: 40 } }],
+    })
     // Stud run (seed.ts): clean 5, post 4, polish 4, pack 1.5 minutes for the first pair, learning rate 0.85; casting and
     // hallmarking are outside. Wright 1936: T(N) = a·N^(1+log₂ r); 40^(1 + log₂ 0.85) = 40^0.765535 = 16.8435 (calculator),
     // so clean 5 × 16.8435 = 84.22, post and polish 4 × 16.8435 = 67.37, pack 1.5 × 16.8435 = 25.27 (stored to 0.1 min).
@@ -96,31 +173,56 @@ describe('taking an order', () => {
     expect(byKey(r.body.jobBags[0].operations).clean!.after).toEqual(['cast'])
   })
 
-  it('when the customer or a template is not the workshop\'s, then 400 naming the field and nothing is saved', async () => {
+  it("when the customer or a template is not the workshop's, then 400 naming the field and nothing is saved", async () => {
     const n = await orderCount()
     const good = { templateId: tpl['ring-resize']!.id, piece: 'Resize' }
     expectFieldError(await sales.post('/api/orders', { customerId: 999999, title: 'x', dueDate: '2031-01-01', pieces: [good] }), 'customerId', /not a customer/)
-    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: 999999, piece: 'x' }] }), 'pieces.0.templateId', /not a routing template/)
-    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [good, { templateId: 999999, piece: 'x' }] }), 'pieces.1.templateId', /not a routing template/)
+    expectFieldError(
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: 999999, piece: 'x' }] }),
+      'pieces.0.templateId',
+      /not a routing template/,
+    )
+    expectFieldError(
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [good, { templateId: 999999, piece: 'x' }] }),
+      'pieces.1.templateId',
+      /not a routing template/,
+    )
     const other = await secondWorkshop(t, 'orders')
     const kind = (await other.agent.post('/api/operation-kinds', { code: 'filing', name: 'Filing' })).body
-    const foreign = (await other.agent.post('/api/templates', { code: 'own', name: 'Own', steps: [{ key: 'a', kindId: kind.id, name: 'A', baseMinutes: 5 }] })).body
-    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: foreign.id, piece: 'x' }] }), 'pieces.0.templateId')
+    const foreign = (await other.agent.post('/api/templates', { code: 'own', name: 'Own', steps: [{ key: 'a', kindId: kind.id, name: 'A', baseMinutes: 5 }] }))
+      .body
+    expectFieldError(
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: foreign.id, piece: 'x' }] }),
+      'pieces.0.templateId',
+    )
     expect(await orderCount()).toBe(n)
   })
 
   it('when order input is wrong, then 400 naming each field', async () => {
-    const piece = (params: Record<string, unknown>) => ({ customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: tpl['ring-resize']!.id, piece: 'x', params }] })
+    const piece = (params: Record<string, unknown>) => ({
+      customerId,
+      title: 'x',
+      dueDate: '2031-01-01',
+      pieces: [{ templateId: tpl['ring-resize']!.id, piece: 'x', params }],
+    })
     expectFieldError(await sales.post('/api/orders', { customerId, dueDate: '2031-01-01' }), 'title', /required/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-02-30' }), 'dueDate', /real date/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priority: 9 }), 'priority', /1 to 5/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuotedMinor: -1 }), 'priceQuotedMinor', /negative/)
     // Minor units are whole: 18.5 pence is refused rather than rounded.
-    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuotedMinor: 18.5 }), 'priceQuotedMinor', /whole minor units/)
+    expectFieldError(
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuotedMinor: 18.5 }),
+      'priceQuotedMinor',
+      /whole minor units/,
+    )
     expectFieldError(await sales.post('/api/orders', piece({ stoneCount: -1 })), 'pieces.0.params.stoneCount', /negative/)
     expectFieldError(await sales.post('/api/orders', piece({ quantity: 0 })), 'pieces.0.params.quantity', /at least 1/)
     expectFieldError(await sales.post('/api/orders', piece({ metal: 'tin' })), 'pieces.0.params.metal', /listed metals/)
-    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: tpl['ring-resize']!.id }] }), 'pieces.0.piece', /required/)
+    expectFieldError(
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: tpl['ring-resize']!.id }] }),
+      'pieces.0.piece',
+      /required/,
+    )
   })
 })
 
@@ -144,7 +246,9 @@ describe('order list', () => {
     expect(byCustomer.total).toBe(all.filter((o) => o.customerName === one.customerName).length)
     const word = 'bezel'
     const byTitle = (await sales.get(`/api/orders?q=${word}&pageSize=500`)).body
-    expect(byTitle.total).toBe(all.filter((o) => o.title.toLowerCase().includes(word) || o.customerName.toLowerCase().includes(word) || o.number.toLowerCase().includes(word)).length)
+    expect(byTitle.total).toBe(
+      all.filter((o) => o.title.toLowerCase().includes(word) || o.customerName.toLowerCase().includes(word) || o.number.toLowerCase().includes(word)).length,
+    )
     expect(byTitle.total).toBeGreaterThan(0)
     expect((await sales.get('/api/orders?q=%25')).body.total).toBe(0)
   })
@@ -181,7 +285,14 @@ describe('order list', () => {
 
 describe('changing an order', () => {
   it('when an order is changed with its version, then it is saved and audited; an old version gets 409 and an unknown id 404', async () => {
-    const o = (await sales.post('/api/orders', { customerId, title: 'Resize', dueDate: '2031-08-01', pieces: [{ templateId: tpl['ring-resize']!.id, piece: 'Resize M to O' }] })).body
+    const o = (
+      await sales.post('/api/orders', {
+        customerId,
+        title: 'Resize',
+        dueDate: '2031-08-01',
+        pieces: [{ templateId: tpl['ring-resize']!.id, piece: 'Resize M to O' }],
+      })
+    ).body
     const u = await sales.patch(`/api/orders/${o.id}`, { promisedDate: '2031-07-30', priority: 1, version: 0 })
     expect(u.status).toBe(200)
     expect(u.body).toMatchObject({ promisedDate: '2031-07-30', priority: 1, title: 'Resize', dueDate: '2031-08-01', version: 1 })

@@ -19,9 +19,19 @@ beforeAll(async () => {
   setter = await signedIn(t.app, 'bench')
   setA = await benchId(t, 'Setting bench A')
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
-interface Reason { id: number; code: string; label: string; needsNote: boolean; active: boolean; sort: number; version: number }
+interface Reason {
+  id: number
+  code: string
+  label: string
+  needsNote: boolean
+  active: boolean
+  sort: number
+  version: number
+}
 const list = async (a: Agent = setter): Promise<Reason[]> => {
   const r = await a.get('/api/pause-reasons')
   expect(r.status, JSON.stringify(r.body)).toBe(200)
@@ -41,7 +51,17 @@ const finish = (id: number) => setter.post(`/api/bench/operations/${id}/finish`,
 describe('the starting list', () => {
   it('when a workshop has set nothing yet, then the bench is offered break, waiting for stones, waiting for approval, tool or machine fault, called away — and the earlier fixed reasons, so old records keep their names', async () => {
     const reasons = await list()
-    expect(reasons.map((r) => r.code)).toEqual(['break', 'waiting-for-stones', 'waiting-for-parts', 'waiting-for-approval', 'tool-fault', 'called-away', 'question-for-manager', 'end-of-day', 'other'])
+    expect(reasons.map((r) => r.code)).toEqual([
+      'break',
+      'waiting-for-stones',
+      'waiting-for-parts',
+      'waiting-for-approval',
+      'tool-fault',
+      'called-away',
+      'question-for-manager',
+      'end-of-day',
+      'other',
+    ])
     expect(reasons.every((r) => r.active)).toBe(true)
     expect(reasons.find((r) => r.code === 'other')!.needsNote).toBe(true)
     // The seeded history ends some records with "end-of-day" (server/db/seed.ts): its name is in the list.
@@ -63,7 +83,12 @@ describe('pausing with the workshop’s reasons', () => {
     const id = await running()
     const r = await setter.post(`/api/bench/operations/${id}/pause`, { requestId: rid(), reason: 'waiting-for-stones', note: 'sapphires at the dealer' })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
-    const [rec] = await t.db.select({ endReason: s.timeRecords.endReason, note: s.timeRecords.note }).from(s.timeRecords).where(eq(s.timeRecords.operationId, id)).orderBy(desc(s.timeRecords.id)).limit(1)
+    const [rec] = await t.db
+      .select({ endReason: s.timeRecords.endReason, note: s.timeRecords.note })
+      .from(s.timeRecords)
+      .where(eq(s.timeRecords.operationId, id))
+      .orderBy(desc(s.timeRecords.id))
+      .limit(1)
     expect(rec).toEqual({ endReason: 'waiting-for-stones', note: 'sapphires at the dealer' })
     const [a] = await auditRows(t, 'operation', id)
     expect(a!.details).toMatchObject({ reason: 'waiting-for-stones', reasonLabel: 'Waiting for stones' })
@@ -149,7 +174,8 @@ describe('the owner keeps the list', () => {
     const last = on[0]!
     expectFieldError(await owner.patch(`/api/pause-reasons/${last.id}`, { active: false, version: last.version }), 'active', /at least one/)
     // Back on, for the tests after this one.
-    for (const r of (await list(owner)).filter((x) => !x.active)) expect((await owner.patch(`/api/pause-reasons/${r.id}`, { active: true, version: r.version })).status).toBe(200)
+    for (const r of (await list(owner)).filter((x) => !x.active))
+      expect((await owner.patch(`/api/pause-reasons/${r.id}`, { active: true, version: r.version })).status).toBe(200)
   })
 
   it('when a manager, a bench user or sales tries to change the list, then 403; a reason of another workshop is 404', async () => {

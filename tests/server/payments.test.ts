@@ -19,10 +19,19 @@ beforeAll(async () => {
   http = createServer(t.app)
   await new Promise<void>((r) => http.listen(0, '127.0.0.1', () => r()))
   fake.webhookUrl = `http://127.0.0.1:${(http.address() as AddressInfo).port}/api/payments/webhook`
-  ;[sales, owner, bench, manager] = await Promise.all([signedIn(t.app, 'sales'), signedIn(t.app, 'owner'), signedIn(t.app, 'bench'), signedIn(t.app, 'manager')])
+  ;[sales, owner, bench, manager] = await Promise.all([
+    signedIn(t.app, 'sales'),
+    signedIn(t.app, 'owner'),
+    signedIn(t.app, 'bench'),
+    signedIn(t.app, 'manager'),
+  ])
   customerId = await firstCustomerId(t.db)
 })
-afterAll(async () => { await new Promise((r) => http?.close(r)); await fake?.close(); await t?.close() })
+afterAll(async () => {
+  await new Promise((r) => http?.close(r))
+  await fake?.close()
+  await t?.close()
+})
 
 const count = async (table: PgTable, where?: SQL) => (await t.db.select({ n: countRows() }).from(table).where(where))[0]!.n
 
@@ -66,7 +75,15 @@ describe('quotes and deposits', () => {
   it('when a forged signature arrives, then it is refused with 400 and nothing is booked', async () => {
     const q = await sentQuote()
     const session = fake.sessions.get(sessionOf(q.links[0].url))!
-    const forged = { id: 'evt_forged_1', object: 'event' as const, type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false as const, api_version: 'x', data: { object: { ...session, status: 'complete', payment_status: 'paid', payment_intent: 'pi_forged' } } }
+    const forged = {
+      id: 'evt_forged_1',
+      object: 'event' as const,
+      type: 'checkout.session.completed',
+      created: Math.floor(Date.now() / 1000),
+      livemode: false as const,
+      api_version: 'x',
+      data: { object: { ...session, status: 'complete', payment_status: 'paid', payment_intent: 'pi_forged' } },
+    }
     const d = await fake.deliver(forged, { secret: 'whsec_someone_else' })
     expect(d.status).toBe(400)
     expect(JSON.parse(d.body).fields).toHaveProperty('Stripe-Signature')
@@ -87,8 +104,18 @@ describe('quotes and deposits', () => {
   it('when 20 deliveries of one event arrive at once, then one payment and one order are booked', async () => {
     const q = await sentQuote('Signet ring')
     const session = fake.sessions.get(sessionOf(q.links[0].url))!
-    session.status = 'complete'; session.payment_status = 'paid'; session.payment_intent = 'pi_concurrent_1'
-    const ev = { id: 'evt_concurrent_1', object: 'event' as const, type: 'checkout.session.completed', created: Math.floor(Date.now() / 1000), livemode: false as const, api_version: 'x', data: { object: { ...session } } }
+    session.status = 'complete'
+    session.payment_status = 'paid'
+    session.payment_intent = 'pi_concurrent_1'
+    const ev = {
+      id: 'evt_concurrent_1',
+      object: 'event' as const,
+      type: 'checkout.session.completed',
+      created: Math.floor(Date.now() / 1000),
+      livemode: false as const,
+      api_version: 'x',
+      data: { object: { ...session } },
+    }
     const before = await count(s.orders)
     const all = await Promise.all(Array.from({ length: 20 }, () => fake.deliver(ev)))
     expect(all.map((d) => d.status)).toEqual(Array(20).fill(200))
@@ -101,7 +128,11 @@ describe('quotes and deposits', () => {
     const r = await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.confirm)
     expect(r.outcome).toBe('confirm')
     expect(await count(s.payments, eq(s.payments.quoteId, q.id))).toBe(0)
-    const page = await fetch(`${fake.url}/pay/${sessionOf(q.links[0].url)}/confirm`, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'answer=yes' })
+    const page = await fetch(`${fake.url}/pay/${sessionOf(q.links[0].url)}/confirm`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: 'answer=yes',
+    })
     expect(await page.text()).toContain('Paid')
     expect(await count(s.payments, eq(s.payments.quoteId, q.id))).toBe(1)
   })
@@ -175,9 +206,21 @@ describe('quotes and deposits', () => {
     await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
     const orderId = (await sales.get(`/api/quotes/${q.id}`)).body.orderId
     const p = (await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', purpose: 'balance', amountMinor: 10000 })).body
-    const both = await Promise.all([owner.post(`/api/payments/${p.id}/refund`, { amountMinor: 7000 }), owner.post(`/api/payments/${p.id}/refund`, { amountMinor: 7000 })])
+    const both = await Promise.all([
+      owner.post(`/api/payments/${p.id}/refund`, { amountMinor: 7000 }),
+      owner.post(`/api/payments/${p.id}/refund`, { amountMinor: 7000 }),
+    ])
     expect(both.map((r) => r.status).sort()).toEqual([201, 400])
-    expect(-Number((await t.db.select({ n: sum(s.payments.amountMinor) }).from(s.payments).where(eq(s.payments.refundOf, p.id)))[0]!.n)).toBe(7000)
+    expect(
+      -Number(
+        (
+          await t.db
+            .select({ n: sum(s.payments.amountMinor) })
+            .from(s.payments)
+            .where(eq(s.payments.refundOf, p.id))
+        )[0]!.n,
+      ),
+    ).toBe(7000)
   })
 
   it('when the owner asks for the CSV and the summary, then the hand-worked amounts appear in major units and by ISO week', async () => {

@@ -24,7 +24,9 @@ beforeAll(async () => {
   t = await createTestApp()
   manager = await signedIn(t.app, 'manager')
 })
-afterAll(async () => { await t.close() })
+afterAll(async () => {
+  await t.close()
+})
 
 describe('planner runs and versions', () => {
   it('when the manager runs the planner, then a draft appears with its figures and publishing makes it live', async () => {
@@ -58,7 +60,10 @@ describe('planner runs and versions', () => {
 
   it('when a draft was made before another plan was published, then publishing it is refused as stale', async () => {
     // An emptied live plan (nothing planned): every planner run has something to offer.
-    await t.db.update(s.operations).set({ plannedStart: null, plannedEnd: null, plannedBenchId: null, plannedPersonId: null }).where(notInArray(s.operations.status, ['running', 'done', 'skipped']))
+    await t.db
+      .update(s.operations)
+      .set({ plannedStart: null, plannedEnd: null, plannedBenchId: null, plannedPersonId: null })
+      .where(notInArray(s.operations.status, ['running', 'done', 'skipped']))
     const a = await runPlanner(manager)
     const b = await runPlanner(manager)
     // What b buys against a, counted here from the two drafts' own assignments (job bag finish = its last step's end).
@@ -69,12 +74,21 @@ describe('planner runs and versions', () => {
     const [pb] = await t.db.select().from(s.planVersions).where(eq(s.planVersions.id, b))
     const finish = (asg: Record<string, { end: string }>) => {
       const m = new Map<number, number>()
-      for (const [id, x] of Object.entries(asg)) { const bag = bagOf.get(id)!; m.set(bag, Math.max(m.get(bag) ?? 0, new Date(x.end).getTime())) }
+      for (const [id, x] of Object.entries(asg)) {
+        const bag = bagOf.get(id)!
+        m.set(bag, Math.max(m.get(bag) ?? 0, new Date(x.end).getTime()))
+      }
       return m
     }
-    const fa = finish(pa!.assignments as any), fb = finish(pb!.assignments as any)
-    let earlier = 0, later = 0
-    for (const [bag, t0] of fa) { const t1 = fb.get(bag); if (t1 !== undefined && t1 < t0) earlier++; else if (t1 !== undefined && t1 > t0) later++ }
+    const fa = finish(pa!.assignments as any),
+      fb = finish(pb!.assignments as any)
+    let earlier = 0,
+      later = 0
+    for (const [bag, t0] of fa) {
+      const t1 = fb.get(bag)
+      if (t1 !== undefined && t1 < t0) earlier++
+      else if (t1 !== undefined && t1 > t0) later++
+    }
     expect(cmp.gains).toMatchObject({ earlier, later })
     expect(cmp.gains.lessLate).toBeLessThanOrEqual(earlier)
     expect(cmp.gains.moreLate).toBeLessThanOrEqual(later)
@@ -117,7 +131,13 @@ describe('board and moves by hand', () => {
     expect(r.status).toBe(200)
     expect(r.body.items.length).toBeGreaterThan(20)
     const bar = r.body.items.find((i: { outside: boolean }) => !i.outside)
-    expect(bar).toMatchObject({ jobBagNumber: expect.stringMatching(/^MG/), piece: expect.any(String), name: expect.any(String), benchId: expect.any(Number), personId: expect.any(Number) })
+    expect(bar).toMatchObject({
+      jobBagNumber: expect.stringMatching(/^MG/),
+      piece: expect.any(String),
+      name: expect.any(String),
+      benchId: expect.any(Number),
+      personId: expect.any(Number),
+    })
     expect(r.body.items.some((i: { reason: unknown }) => i.reason !== null)).toBe(true)
     expect(r.body.jobs.every((j: { state: string }) => ['late', 'at-risk', 'on-time', 'unplanned'].includes(j.state))).toBe(true)
     expect(r.body.nonWorking.length).toBeGreaterThan(0)
@@ -161,7 +181,15 @@ describe('board and moves by hand', () => {
     // A planned bar whose predecessors are all planned to start after now, so moving it onto a predecessor's start breaks
     // the routing order and nothing else (the board also shows work that already started, whose start is in the past).
     const future = (b: any) => b && b.status !== 'running' && b.status !== 'done' && new Date(b.start).getTime() > Date.now() + 3_600_000
-    const bar = board.items.find((i: any) => !i.outside && future(i) && ops.find((o) => o.id === i.id)!.after.length > 0 && ops.filter((o) => o.jobBagId === i.jobBagId && ops.find((x) => x.id === i.id)!.after.includes(o.key)).every((p) => p.status !== 'done' && future(board.items.find((b: any) => b.id === p.id))))
+    const bar = board.items.find(
+      (i: any) =>
+        !i.outside &&
+        future(i) &&
+        ops.find((o) => o.id === i.id)!.after.length > 0 &&
+        ops
+          .filter((o) => o.jobBagId === i.jobBagId && ops.find((x) => x.id === i.id)!.after.includes(o.key))
+          .every((p) => p.status !== 'done' && future(board.items.find((b: any) => b.id === p.id))),
+    )
     expect(bar, 'the demo board has a bar whose predecessors are all still to come').toBeTruthy()
     const pred = ops.find((o) => o.jobBagId === bar.jobBagId && ops.find((x) => x.id === bar.id)!.after.includes(o.key))!
     const predBar = board.items.find((b: any) => b.id === pred.id)
@@ -171,21 +199,45 @@ describe('board and moves by hand', () => {
     expect(r.body.details.rule).toMatch(/routing order|double booking/)
   })
 
-  it('when a last step is moved past everything booked on its bench and person and pinned, then it is accepted in the board\'s own time format; a second save with the old version is refused', async () => {
+  it("when a last step is moved past everything booked on its bench and person and pinned, then it is accepted in the board's own time format; a second save with the old version is refused", async () => {
     const board = (await manager.get(`/api/board?from=${from}&to=${to}`)).body
     const ops = await t.db.select().from(s.operations)
     // A bar with no successor, moved after the last booking of its own bench and person (read from the database, apart from
     // the move's own checks), breaks no rule: no double booking, no successor to overtake, its predecessors end before its old start.
-    const lastSteps = board.items.filter((i: any) => !i.outside && i.status !== 'running' && i.benchId && i.personId && !ops.some((o) => o.jobBagId === i.jobBagId && o.after.includes(ops.find((x) => x.id === i.id)!.key)))
+    const lastSteps = board.items.filter(
+      (i: any) =>
+        !i.outside &&
+        i.status !== 'running' &&
+        i.benchId &&
+        i.personId &&
+        !ops.some((o) => o.jobBagId === i.jobBagId && o.after.includes(ops.find((x) => x.id === i.id)!.key)),
+    )
     expect(lastSteps.length, 'the demo board has last steps of job bags').toBeGreaterThan(0)
     const busyUntil = async (bar: any) => {
       const o = s.operations
-      const [r] = await t.db.select({ until: max(o.plannedEnd) }).from(o).innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId))
-        .where(and(eq(s.jobBags.workshopId, 1), isNotNull(o.plannedStart), inArray(o.status, ['pending', 'ready', 'claimed', 'paused', 'running']), or(eq(o.plannedBenchId, bar.benchId), eq(o.plannedPersonId, bar.personId))))
+      const [r] = await t.db
+        .select({ until: max(o.plannedEnd) })
+        .from(o)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId))
+        .where(
+          and(
+            eq(s.jobBags.workshopId, 1),
+            isNotNull(o.plannedStart),
+            inArray(o.status, ['pending', 'ready', 'claimed', 'paused', 'running']),
+            or(eq(o.plannedBenchId, bar.benchId), eq(o.plannedPersonId, bar.personId)),
+          ),
+        )
       return new Date(r!.until!).getTime()
     }
-    let bar: any = null, after = Infinity
-    for (const i of lastSteps) { const u = await busyUntil(i); if (u < after) { after = u; bar = i } }
+    let bar: any = null,
+      after = Infinity
+    for (const i of lastSteps) {
+      const u = await busyUntil(i)
+      if (u < after) {
+        after = u
+        bar = i
+      }
+    }
     const requested = new Date(after + 60_000)
     // Well inside the 84-day planning calendar, so the pair still has working time after it.
     expect(dayjs(requested).diff(dayjs(from), 'day')).toBeLessThan(60)
@@ -200,7 +252,11 @@ describe('board and moves by hand', () => {
     expect(body.start).toMatch(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/)
     expect(body.end).toMatch(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/)
     const [row] = await t.db.select().from(s.operations).where(eq(s.operations.id, bar.id))
-    expect({ start: new Date(row!.plannedStart!).toISOString(), end: new Date(row!.plannedEnd!).toISOString(), pinned: row!.pinned }).toEqual({ start: body.start, end: body.end, pinned: true })
+    expect({ start: new Date(row!.plannedStart!).toISOString(), end: new Date(row!.plannedEnd!).toISOString(), pinned: row!.pinned }).toEqual({
+      start: body.start,
+      end: body.end,
+      pinned: true,
+    })
     const later = (await manager.get(`/api/board?from=${from}&to=${dayjs(body.end).add(1, 'day').format('YYYY-MM-DD')}`)).body
     expect(later.items.find((i: any) => i.id === bar.id)).toMatchObject({ start: body.start, end: body.end })
     const stale = await manager.patch(`/api/board/operations/${bar.id}`, { start: body.start, version: bar.version })
@@ -212,11 +268,30 @@ describe('board and moves by hand', () => {
     const board = (await manager.get(`/api/board?from=${from}&to=${to}`)).body
     const ops = await t.db.select().from(s.operations)
     // A bar not pinned already (an earlier test pins the step it moves), so the refusal can be seen to leave it unpinned.
-    const bar = board.items.find((i: any) => !i.outside && i.status !== 'running' && i.status !== 'done' && !ops.find((x) => x.id === i.id)!.pinned && ops.some((o) => o.jobBagId === i.jobBagId && ops.find((x) => x.id === i.id)!.after.includes(o.key) && o.status !== 'done' && o.status !== 'skipped' && board.items.some((b: any) => b.id === o.id)))
+    const bar = board.items.find(
+      (i: any) =>
+        !i.outside &&
+        i.status !== 'running' &&
+        i.status !== 'done' &&
+        !ops.find((x) => x.id === i.id)!.pinned &&
+        ops.some(
+          (o) =>
+            o.jobBagId === i.jobBagId &&
+            ops.find((x) => x.id === i.id)!.after.includes(o.key) &&
+            o.status !== 'done' &&
+            o.status !== 'skipped' &&
+            board.items.some((b: any) => b.id === o.id),
+        ),
+    )
     expect(bar, 'the demo board has a bar with a planned predecessor').toBeTruthy()
-    const pred = ops.find((o) => o.jobBagId === bar.jobBagId && ops.find((x) => x.id === bar.id)!.after.includes(o.key) && o.status !== 'done' && o.status !== 'skipped')!
+    const pred = ops.find(
+      (o) => o.jobBagId === bar.jobBagId && ops.find((x) => x.id === bar.id)!.after.includes(o.key) && o.status !== 'done' && o.status !== 'skipped',
+    )!
     // The predecessor ran late: the live plan now has it ending an hour after the bar starts.
-    await t.db.update(s.operations).set({ plannedEnd: dayjs(bar.start).add(1, 'hour').toISOString() }).where(eq(s.operations.id, pred.id))
+    await t.db
+      .update(s.operations)
+      .set({ plannedEnd: dayjs(bar.start).add(1, 'hour').toISOString() })
+      .where(eq(s.operations.id, pred.id))
     const r = await manager.patch(`/api/board/operations/${bar.id}`, { pinned: true, version: bar.version })
     expect(r.status, JSON.stringify(r.body)).toBe(422)
     expect(r.body.details.rule).toBe('routing order')
@@ -225,7 +300,7 @@ describe('board and moves by hand', () => {
     expect(after!.pinned).toBe(false)
   })
 
-  it('when bars have been moved by hand, then every bar\'s reason names a blocker that really is before it on its bench, person or routing', async () => {
+  it("when bars have been moved by hand, then every bar's reason names a blocker that really is before it on its bench, person or routing", async () => {
     const board = (await manager.get(`/api/board?from=${from}&to=${to}`)).body
     const byId = new Map(board.items.map((i: any) => [i.id, i]))
     let checked = 0
@@ -264,12 +339,22 @@ describe('live updates', () => {
       const c = await httpSignIn(srv.url, 'sales')
       const sock = connect(srv.url, { extraHeaders: { cookie: b.cookie }, transports: ['websocket'] })
       const salesSock = connect(srv.url, { extraHeaders: { cookie: c.cookie }, transports: ['websocket'] })
-      await new Promise<void>((res, rej) => { sock.on('connect', () => res()); sock.on('connect_error', rej) })
-      await new Promise<void>((res, rej) => { salesSock.on('connect', () => res()); salesSock.on('connect_error', rej) })
+      await new Promise<void>((res, rej) => {
+        sock.on('connect', () => res())
+        sock.on('connect_error', rej)
+      })
+      await new Promise<void>((res, rej) => {
+        salesSock.on('connect', () => res())
+        salesSock.on('connect_error', rej)
+      })
       const salesGot: string[] = []
       salesSock.onAny((event) => salesGot.push(event))
       const got = new Promise<any>((res) => sock.on('plan:drafted', res))
-      const r = await fetch(`${srv.url}/api/plans/runs`, { method: 'POST', headers: { 'content-type': 'application/json', cookie: a.cookie, 'x-csrf-token': a.csrf }, body: JSON.stringify({ timeLimitSeconds: 1 }) })
+      const r = await fetch(`${srv.url}/api/plans/runs`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', cookie: a.cookie, 'x-csrf-token': a.csrf },
+        body: JSON.stringify({ timeLimitSeconds: 1 }),
+      })
       expect(r.status).toBe(202)
       const ev = await got
       expect(ev).toMatchObject({ id: expect.any(Number), seq: expect.any(Number) })

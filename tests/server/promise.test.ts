@@ -27,7 +27,10 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   templateId = await firstTemplateId(t.db)
 })
-afterAll(async () => { await t?.close(); await fake?.close() })
+afterAll(async () => {
+  await t?.close()
+  await fake?.close()
+})
 
 describe('promise check', () => {
   it('when nothing is published yet, then it answers from a quick plan with a completion after now and a re-planned answer', async () => {
@@ -37,7 +40,8 @@ describe('promise check', () => {
     expect(Date.parse(r.body.fixedPlan.at)).toBeGreaterThan(Date.parse(r.body.now))
     expect(Date.parse(r.body.replanned.at)).toBeGreaterThan(Date.parse(r.body.now))
     // The date is the workshop's (Europe/London) calendar day of the completion; en-CA writes it as YYYY-MM-DD (Intl, apart from dayjs).
-    const londonDay = (iso: string) => new Intl.DateTimeFormat('en-CA', { timeZone: 'Europe/London', year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date(iso))
+    const londonDay = (iso: string) =>
+      new Intl.DateTimeFormat('en-CA', { timeZone: 'Europe/London', year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date(iso))
     expect(r.body.fixedPlan.date).toBe(londonDay(r.body.fixedPlan.at))
     expect(r.body.replanned.date).toBe(londonDay(r.body.replanned.at))
     expect(r.body.operations.length).toBeGreaterThan(0)
@@ -57,7 +61,11 @@ describe('promise check', () => {
   it('when every person with the first step’s skill is booked on the live plan, then the promise does not finish before they are free', async () => {
     const now = new Date()
     const data = await loadPlanningData(t.db, 1, now)
-    const steps = await t.db.select({ kindId: s.templateSteps.kindId, requiredLevel: s.templateSteps.requiredLevel, leadDays: s.templateSteps.leadDays }).from(s.templateSteps).where(eq(s.templateSteps.templateId, templateId)).orderBy(asc(s.templateSteps.seq))
+    const steps = await t.db
+      .select({ kindId: s.templateSteps.kindId, requiredLevel: s.templateSteps.requiredLevel, leadDays: s.templateSteps.leadDays })
+      .from(s.templateSteps)
+      .where(eq(s.templateSteps.templateId, templateId))
+      .orderBy(asc(s.templateSteps.seq))
     const first = steps.find((x) => x.leadDays === 0)!
     const able = data.meta.skills.filter((k) => k.kindId === first.kindId && k.level >= first.requiredLevel && data.meta.people.has(String(k.personId)))
     const benchIds = data.meta.capabilities.filter((c) => c.kindId === first.kindId && data.meta.benches.has(String(c.benchId))).map((c) => String(c.benchId))
@@ -71,7 +79,8 @@ describe('promise check', () => {
       const benchId = allBenches[i % allBenches.length]!
       const w = intersect(data.problem.benches.find((b) => b.id === benchId)!.available, person.available)
       const segs = walkWorkingTime(w, data.problem.now, 3 * 8 * 60)!
-      const start = segs[0]!.start, end = segs[segs.length - 1]!.end
+      const start = segs[0]!.start,
+        end = segs[segs.length - 1]!.end
       // Free for this skill once the person is free, on any capable bench.
       freeAt = Math.min(freeAt, end)
       await planStep(t.db, open[i]!, { benchId: Number(benchId), personId: k.personId, start: data.clock.toDate(start), end: data.clock.toDate(end) })
@@ -114,7 +123,8 @@ describe('promise check', () => {
 async function seedLivePlan(n: number) {
   const data = await loadPlanningData(t.db, 1, new Date())
   const open = await openStepIds(t.db, { limit: n, unplanned: true })
-  const b = data.problem.benches[0]!, p = data.problem.people[0]!
+  const b = data.problem.benches[0]!,
+    p = data.problem.people[0]!
   const w = intersect(b.available, p.available)
   let at = data.problem.now
   for (const id of open) {
@@ -126,13 +136,26 @@ async function seedLivePlan(n: number) {
   return open
 }
 const o = s.operations
-const planned = async () => t.db.select({ id: o.id, plannedBenchId: o.plannedBenchId, plannedPersonId: o.plannedPersonId, plannedStart: o.plannedStart, plannedEnd: o.plannedEnd }).from(o).where(isNotNull(o.plannedStart)).orderBy(asc(o.id))
-const clearPlan = async () => { await unplanSteps(t.db); t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 }) }
+const planned = async () =>
+  t.db
+    .select({ id: o.id, plannedBenchId: o.plannedBenchId, plannedPersonId: o.plannedPersonId, plannedStart: o.plannedStart, plannedEnd: o.plannedEnd })
+    .from(o)
+    .where(isNotNull(o.plannedStart))
+    .orderBy(asc(o.id))
+const clearPlan = async () => {
+  await unplanSteps(t.db)
+  t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 })
+}
 
 describe('outside work history', () => {
   it('when castings and hallmarking have come back before, then their spread is measured in working days from sending to return, not assumed', async () => {
     const spreads = await kindSpreads(t.db, 1)
-    const rows = await t.db.select({ code: s.operationKinds.code, n: count() }).from(o).innerJoin(s.operationKinds, eq(s.operationKinds.id, o.kindId)).where(and(gt(o.leadDays, 0), eq(o.status, 'done'))).groupBy(s.operationKinds.code)
+    const rows = await t.db
+      .select({ code: s.operationKinds.code, n: count() })
+      .from(o)
+      .innerJoin(s.operationKinds, eq(s.operationKinds.id, o.kindId))
+      .where(and(gt(o.leadDays, 0), eq(o.status, 'done')))
+      .groupBy(s.operationKinds.code)
     const measured = rows.filter((r) => r.n >= MIN_HISTORY)
     expect(measured.length, 'the demo has enough returned outside work of some kind').toBeGreaterThan(0)
     for (const r of rows) expect(spreads.get(r.code)!.source, r.code).toBe(r.n >= MIN_HISTORY ? 'history' : 'log-normal')
@@ -150,8 +173,23 @@ describe('accepting a promise', () => {
     await clearPlan()
     const check = await sales.post('/api/promise/check', { templateId, params })
     const promisedDate: string = check.body.fixedPlan.date
-    const c = (await t.db.select({ id: s.customers.id, email: s.customers.email }).from(s.customers).where(eq(s.customers.workshopId, 1)).orderBy(asc(s.customers.id)).limit(1))[0]!
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Bezel ring with three stones', templateId, params, promisedDate, priority: 2, priceQuotedMinor: 64_000 })
+    const c = (
+      await t.db
+        .select({ id: s.customers.id, email: s.customers.email })
+        .from(s.customers)
+        .where(eq(s.customers.workshopId, 1))
+        .orderBy(asc(s.customers.id))
+        .limit(1)
+    )[0]!
+    const r = await sales.post('/api/promise/accept', {
+      customerId: c.id,
+      title: 'Bezel ring with three stones',
+      templateId,
+      params,
+      promisedDate,
+      priority: 2,
+      priceQuotedMinor: 64_000,
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.order.promisedDate).toBe(promisedDate)
     expect(r.body.order.dueDate).toBe(promisedDate)
@@ -172,7 +210,10 @@ describe('accepting a promise', () => {
     expect(msg.text).toContain('£640.00')
     expect(msg.text).toContain('14 Wrenfield Street, Bristol BS1 4QX')
     expect(msg.text).toContain('orders@wrenfield.test')
-    const [mail] = await t.db.select().from(s.outbox).where(and(eq(s.outbox.orderId, r.body.order.id), eq(s.outbox.kind, 'promise-confirmation')))
+    const [mail] = await t.db
+      .select()
+      .from(s.outbox)
+      .where(and(eq(s.outbox.orderId, r.body.order.id), eq(s.outbox.kind, 'promise-confirmation')))
     expect(mail!.to).toBe(c.email)
     expect(mail!.status).toBe('delivered')
     expect(mail!.text).toContain(long)
@@ -186,25 +227,65 @@ describe('accepting a promise', () => {
     const check = await sales.post('/api/promise/check', { templateId, params })
     expect(check.body.basis).toBe('live-plan')
     const promisedDate: string = check.body.fixedPlan.date
-    const c = (await t.db.select({ id: s.customers.id, email: s.customers.email }).from(s.customers).where(eq(s.customers.workshopId, 1)).orderBy(asc(s.customers.id)).limit(1))[0]!
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Booked bezel ring', templateId, params, promisedDate, priority: 3, priceQuotedMinor: 125_050 })
+    const c = (
+      await t.db
+        .select({ id: s.customers.id, email: s.customers.email })
+        .from(s.customers)
+        .where(eq(s.customers.workshopId, 1))
+        .orderBy(asc(s.customers.id))
+        .limit(1)
+    )[0]!
+    const r = await sales.post('/api/promise/accept', {
+      customerId: c.id,
+      title: 'Booked bezel ring',
+      templateId,
+      params,
+      promisedDate,
+      priority: 3,
+      priceQuotedMinor: 125_050,
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.booking.booked, JSON.stringify(r.body.booking)).toBe(true)
     // The booked end is the completion the check promised (same gaps, same decode).
     expect(r.body.booking.end).toBe(check.body.fixedPlan.at)
     expect(r.body.booking.endDate).toBe(promisedDate)
-    const ops = r.body.order.jobBags[0].operations as { id: number; leadDays: number; plannedBenchId: number | null; plannedPersonId: number | null; plannedStart: string | null; plannedEnd: string | null }[]
+    const ops = r.body.order.jobBags[0].operations as {
+      id: number
+      leadDays: number
+      plannedBenchId: number | null
+      plannedPersonId: number | null
+      plannedStart: string | null
+      plannedEnd: string | null
+    }[]
     // Every step has its time; every bench step (no lead days) also its bench and person.
-    expect(ops.some((o) => o.leadDays === 0), 'the routing has bench steps').toBe(true)
+    expect(
+      ops.some((o) => o.leadDays === 0),
+      'the routing has bench steps',
+    ).toBe(true)
     for (const o of ops) expect(o.plannedStart, `op ${o.id}`).not.toBeNull()
-    for (const o of ops.filter((x) => x.leadDays === 0)) expect({ bench: o.plannedBenchId !== null, person: o.plannedPersonId !== null }, `op ${o.id}`).toEqual({ bench: true, person: true })
+    for (const o of ops.filter((x) => x.leadDays === 0))
+      expect({ bench: o.plannedBenchId !== null, person: o.plannedPersonId !== null }, `op ${o.id}`).toEqual({ bench: true, person: true })
     // Nobody else moved: every other operation keeps exactly its planned bench, person and times.
     const after = (await planned()).filter((x) => !ops.some((o) => o.id === x.id))
     expect(after).toEqual(before)
     // No double booking of a bench or a person between the new steps and the rest (wall-clock overlap, hand-checked rule).
-    const bench = (await t.db.select({ id: o.id, benchId: o.plannedBenchId, personId: o.plannedPersonId, start: o.plannedStart, end: o.plannedEnd }).from(o).where(and(isNotNull(o.plannedStart), eq(o.leadDays, 0))))
-      .map((x) => ({ ...x, from: Date.parse(x.start!), to: Date.parse(x.end!) }))
-    const clashes = bench.filter((a) => ops.some((n) => n.id === a.id) && bench.some((b) => a.id !== b.id && ((a.benchId !== null && a.benchId === b.benchId) || (a.personId !== null && a.personId === b.personId)) && a.from < b.to && b.from < a.to))
+    const bench = (
+      await t.db
+        .select({ id: o.id, benchId: o.plannedBenchId, personId: o.plannedPersonId, start: o.plannedStart, end: o.plannedEnd })
+        .from(o)
+        .where(and(isNotNull(o.plannedStart), eq(o.leadDays, 0)))
+    ).map((x) => ({ ...x, from: Date.parse(x.start!), to: Date.parse(x.end!) }))
+    const clashes = bench.filter(
+      (a) =>
+        ops.some((n) => n.id === a.id) &&
+        bench.some(
+          (b) =>
+            a.id !== b.id &&
+            ((a.benchId !== null && a.benchId === b.benchId) || (a.personId !== null && a.personId === b.personId)) &&
+            a.from < b.to &&
+            b.from < a.to,
+        ),
+    )
     expect(clashes.map((x) => x.id)).toEqual([])
     // The order is on the plan at once, not "not planned yet" until a re-plan.
     const f = await sales.get(`/api/orders/${r.body.order.id}/forecast`)
@@ -225,7 +306,15 @@ describe('accepting a promise', () => {
     const check = await sales.post('/api/promise/check', { templateId, params })
     const earlier = format(new Date(Date.parse(check.body.now) - 86_400_000), 'yyyy-MM-dd')
     const c = { id: await firstCustomerId(t.db, 1) }
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Too soon', templateId, params, promisedDate: earlier, priority: 3, priceQuotedMinor: 1000 })
+    const r = await sales.post('/api/promise/accept', {
+      customerId: c.id,
+      title: 'Too soon',
+      templateId,
+      params,
+      promisedDate: earlier,
+      priority: 3,
+      priceQuotedMinor: 1000,
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.booking).toMatchObject({ booked: false, reason: expect.stringMatching(/after the promised date/) })
     expect(r.body.order.jobBags[0].operations.length).toBeGreaterThan(0)
@@ -240,16 +329,32 @@ describe('accepting a promise', () => {
     await seedLivePlan(3)
     const data = await loadPlanningData(t.db, 1, new Date())
     const live = planFromAssignments(data, (await readLivePlan(t.db, 1)).assignments)
-    const steps = await t.db.select({ key: s.templateSteps.key, kindId: s.templateSteps.kindId, leadDays: s.templateSteps.leadDays }).from(s.templateSteps).where(eq(s.templateSteps.templateId, templateId)).orderBy(asc(s.templateSteps.seq))
+    const steps = await t.db
+      .select({ key: s.templateSteps.key, kindId: s.templateSteps.kindId, leadDays: s.templateSteps.leadDays })
+      .from(s.templateSteps)
+      .where(eq(s.templateSteps.templateId, templateId))
+      .orderBy(asc(s.templateSteps.seq))
     // A one-step prospective job on the first bench step's kind, placed in the gaps.
     const step = steps.find((x) => x.leadDays === 0)!
     const opts = operationOptions(data.meta, step.kindId, 1, () => 60)
-    const placed = placeInGaps(data.problem, live, { id: PROSPECTIVE_JOB, name: 'x', release: data.problem.now, due: null, weight: 1 }, [{ id: `${PROSPECTIVE_JOB}:${step.key}`, jobId: PROSPECTIVE_JOB, name: 'x', kind: 'x', options: opts, predecessors: [] }])
+    const placed = placeInGaps(data.problem, live, { id: PROSPECTIVE_JOB, name: 'x', release: data.problem.now, due: null, weight: 1 }, [
+      { id: `${PROSPECTIVE_JOB}:${step.key}`, jobId: PROSPECTIVE_JOB, name: 'x', kind: 'x', options: opts, predecessors: [] },
+    ])
     const st = placed.steps[0]!
     // Someone else books that very bench and person for that time first.
     const [other] = await openStepIds(t.db, { limit: 1, unplanned: true })
-    await planStep(t.db, other!, { benchId: Number(st.benchId), personId: Number(st.personId), start: data.clock.toDate(st.start), end: data.clock.toDate(st.end) })
-    const [order] = await t.db.select({ orderId: s.jobBags.orderId }).from(s.jobBags).innerJoin(o, eq(o.jobBagId, s.jobBags.id)).where(and(eq(o.key, step.key), eq(s.jobBags.templateId, templateId))).limit(1)
+    await planStep(t.db, other!, {
+      benchId: Number(st.benchId),
+      personId: Number(st.personId),
+      start: data.clock.toDate(st.start),
+      end: data.clock.toDate(st.end),
+    })
+    const [order] = await t.db
+      .select({ orderId: s.jobBags.orderId })
+      .from(s.jobBags)
+      .innerJoin(o, eq(o.jobBagId, s.jobBags.id))
+      .where(and(eq(o.key, step.key), eq(s.jobBags.templateId, templateId)))
+      .limit(1)
     const actor = { userId: 1, workshopId: 1, role: 'sales' } as never
     const result = await t.db.transaction((tx) => bookSlot(tx, actor, data, order!.orderId, placed))
     expect(result).toMatchObject({ booked: false, reason: expect.stringMatching(/taken meanwhile/) })
@@ -261,10 +366,23 @@ describe('accepting a promise', () => {
     await seedLivePlan(3)
     const owner = await signedIn(t.app, 'owner')
     const kind = (await owner.post('/api/operation-kinds', { code: 'enamelling', name: 'Enamelling' })).body
-    const tpl = (await owner.post('/api/templates', { code: 'enamel-only', name: 'Enamel only', steps: [{ key: 'enamel', kindId: kind.id, name: 'Enamel', baseMinutes: 30 }] })).body
+    const tpl = (
+      await owner.post('/api/templates', {
+        code: 'enamel-only',
+        name: 'Enamel only',
+        steps: [{ key: 'enamel', kindId: kind.id, name: 'Enamel', baseMinutes: 30 }],
+      })
+    ).body
     expect(tpl.id, JSON.stringify(tpl)).toBeTruthy()
     const c = { id: await firstCustomerId(t.db, 1) }
-    const r = await sales.post('/api/promise/accept', { customerId: c.id, title: 'Enamel pendant', templateId: tpl.id, promisedDate: '2031-05-10', priority: 3, priceQuotedMinor: 9000 })
+    const r = await sales.post('/api/promise/accept', {
+      customerId: c.id,
+      title: 'Enamel pendant',
+      templateId: tpl.id,
+      promisedDate: '2031-05-10',
+      priority: 3,
+      priceQuotedMinor: 9000,
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     expect(r.body.booking).toMatchObject({ booked: false, reason: expect.stringMatching(/cannot place it/) })
     const msg = await fake.waitFor((m) => m.subject.includes(r.body.order.number))
@@ -274,7 +392,19 @@ describe('accepting a promise', () => {
 
   it('when the due date is before the promised date, then it is refused on the field', async () => {
     const c = { id: await firstCustomerId(t.db, 1) }
-    expectFieldError(await sales.post('/api/promise/accept', { customerId: c.id, title: 'x', templateId, params, promisedDate: '2031-05-10', dueDate: '2031-05-01', priority: 3, priceQuotedMinor: 100 }), 'dueDate')
+    expectFieldError(
+      await sales.post('/api/promise/accept', {
+        customerId: c.id,
+        title: 'x',
+        templateId,
+        params,
+        promisedDate: '2031-05-10',
+        dueDate: '2031-05-01',
+        priority: 3,
+        priceQuotedMinor: 100,
+      }),
+      'dueDate',
+    )
   })
 })
 
@@ -282,7 +412,12 @@ describe('order forecast', () => {
   it('when an order has a job bag on the live plan past its promised date, then the forecast says late and why', async () => {
     const order = await openOrder(t.db)
     // Promised three days before today (UTC calendar date), its last bench step booked from now on the live plan.
-    await bookLastStepLate(t.db, { workshopId: 1, orderId: order.id, bagId: order.bagId, promised: () => new Date(Date.now() - 3 * 86_400_000).toISOString().slice(0, 10) })
+    await bookLastStepLate(t.db, {
+      workshopId: 1,
+      orderId: order.id,
+      bagId: order.bagId,
+      promised: () => new Date(Date.now() - 3 * 86_400_000).toISOString().slice(0, 10),
+    })
     const r = await sales.get(`/api/orders/${order.id}/forecast`)
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect(r.body.state).toBe('late')

@@ -26,7 +26,11 @@ beforeAll(async () => {
   customerId = await firstCustomerId(t.db)
   tz = (await t.db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).orderBy(s.workshops.id).limit(1))[0]!.timeZone
 })
-afterAll(async () => { await new Promise((r) => http?.close(r)); await fake?.close(); await t?.close() })
+afterAll(async () => {
+  await new Promise((r) => http?.close(r))
+  await fake?.close()
+  await t?.close()
+})
 
 const drafted = async (o: Record<string, unknown> = {}) => {
   const q = await sales.post('/api/quotes', { customerId, title: 'Signet ring', priceMinor: 125000, currency: 'GBP', ...o })
@@ -80,7 +84,10 @@ describe('daily money reminders', () => {
     const soon = await send(await drafted({ title: 'Pendant ending soon', validUntil: dayjs(today).add(2, 'day').format('YYYY-MM-DD') }))
     const later = await send(await drafted({ title: 'Pendant ending later', validUntil: dayjs(today).add(10, 'day').format('YYYY-MM-DD') }))
     const lapsed = await send(await drafted({ title: 'Pendant lapsed' }))
-    await t.db.update(s.quotes).set({ validUntil: dayjs(today).subtract(1, 'day').format('YYYY-MM-DD') }).where(eq(s.quotes.id, lapsed.id))
+    await t.db
+      .update(s.quotes)
+      .set({ validUntil: dayjs(today).subtract(1, 'day').format('YYYY-MM-DD') })
+      .where(eq(s.quotes.id, lapsed.id))
     // A piece ready to collect: 1,250.00 GBP, deposit 375.00 paid by card, so 875.00 is still owed (hand-worked).
     const paid = await send(await drafted({ title: 'Ring ready to collect' }))
     await fake.pay(paid.links[0].url.split('/pay/')[1]!, TEST_CARDS.paid)
@@ -89,8 +96,13 @@ describe('daily money reminders', () => {
 
     // The timer at 08:00 workshop time today (after the 07:30 start).
     const at = dayjs.tz(`${today} 08:00`, tz).toDate()
-    const deps = { db: t.db, realtime: t.realtime, mailer: createMailer(loadConfig({ DATABASE_URL: t.url, SESSION_SECRET: 'test-secret-test-secret', NODE_ENV: 'test' })) }
-    const outbox = async (kind: string) => ((await manager.get(`/api/outbox?kind=${kind}&pageSize=100`)).body.items as { id: number; subject: string; orderId: number | null }[])
+    const deps = {
+      db: t.db,
+      realtime: t.realtime,
+      mailer: createMailer(loadConfig({ DATABASE_URL: t.url, SESSION_SECRET: 'test-secret-test-secret', NODE_ENV: 'test' })),
+    }
+    const outbox = async (kind: string) =>
+      (await manager.get(`/api/outbox?kind=${kind}&pageSize=100`)).body.items as { id: number; subject: string; orderId: number | null }[]
     const timer = startDigestTimer(deps, { clock: () => at, everyMs: 3_600_000 })
     try {
       await timer.tick()
@@ -104,7 +116,13 @@ describe('daily money reminders', () => {
       expect(text).toContain('£875.00')
 
       // The same day again, from the timer and from a restarted server's timer: nothing more goes out.
-      const count = async () => (await t.db.select({ n: countRows() }).from(s.outbox).where(inArray(s.outbox.kind, ['quote-reminder', 'balance-reminder'])))[0]!.n
+      const count = async () =>
+        (
+          await t.db
+            .select({ n: countRows() })
+            .from(s.outbox)
+            .where(inArray(s.outbox.kind, ['quote-reminder', 'balance-reminder']))
+        )[0]!.n
       const before = await count()
       await timer.tick()
       const restarted = startDigestTimer(deps, { clock: () => at, everyMs: 3_600_000 })

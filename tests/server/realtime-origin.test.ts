@@ -12,13 +12,16 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   workshopId = (await sales.get('/api/session')).body.user.workshopId
 })
-afterAll(async () => { await t.close() })
+afterAll(async () => {
+  await t.close()
+})
 
 /** The recorded payload of the newest customer event for that customer. */
 async function eventOf(customerId: number) {
   await t.realtime.flush()
   const all = await t.realtime.since(workshopId, 0, true)
-  return all.filter((e) => e.event === 'masterdata:changed' && (e.payload as { id: number }).id === customerId).at(-1)?.payload as Record<string, unknown> | undefined
+  return all.filter((e) => e.event === 'masterdata:changed' && (e.payload as { id: number }).id === customerId).at(-1)?.payload as
+    Record<string, unknown> | undefined
 }
 
 describe('origin of an event', () => {

@@ -3,12 +3,25 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Agent, createTestApp, type TestApp } from '../setup/app'
 
 let t: TestApp
-beforeAll(async () => { t = await createTestApp() })
-afterAll(async () => { await t?.close() })
+beforeAll(async () => {
+  t = await createTestApp()
+})
+afterAll(async () => {
+  await t?.close()
+})
 
 /** "a x y; b z" → { a: ['x', 'y'], b: ['z'] } */
 function directives(header: string): Record<string, string[]> {
-  return Object.fromEntries(header.split(';').map((d) => d.trim()).filter(Boolean).map((d) => { const [name, ...values] = d.split(/\s+/); return [name!, values] }))
+  return Object.fromEntries(
+    header
+      .split(';')
+      .map((d) => d.trim())
+      .filter(Boolean)
+      .map((d) => {
+        const [name, ...values] = d.split(/\s+/)
+        return [name!, values]
+      }),
+  )
 }
 
 describe('content security policy', () => {

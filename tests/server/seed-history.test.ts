@@ -11,7 +11,11 @@ import { runMigrations } from '../../server/db/migrate'
 import { seedDemo } from '../../server/db/seed'
 import { createTestDb, type TestDb } from '../setup/db'
 
-interface Span { weekday: number; start: string; end: string }
+interface Span {
+  weekday: number
+  start: string
+  end: string
+}
 interface Calendar {
   zone: string
   workshop: Span[]
@@ -24,16 +28,33 @@ const hhmm = (t: string) => Number(t.slice(0, 2)) * 60 + Number(t.slice(3, 5))
 
 /** Local calendar day, ISO weekday and minute of the day (with seconds as a fraction) of a moment in a time zone. */
 function local(at: Date, zone: string) {
-  const parts = Object.fromEntries(new Intl.DateTimeFormat('en-GB', {
-    timeZone: zone, year: 'numeric', month: '2-digit', day: '2-digit', weekday: 'short', hour: '2-digit', minute: '2-digit', second: '2-digit', hourCycle: 'h23',
-  }).formatToParts(at).map((p) => [p.type, p.value]))
-  return { day: `${parts.year}-${parts.month}-${parts.day}`, weekday: WEEKDAY[parts.weekday!]!, minute: Number(parts.hour) * 60 + Number(parts.minute) + Number(parts.second) / 60 }
+  const parts = Object.fromEntries(
+    new Intl.DateTimeFormat('en-GB', {
+      timeZone: zone,
+      year: 'numeric',
+      month: '2-digit',
+      day: '2-digit',
+      weekday: 'short',
+      hour: '2-digit',
+      minute: '2-digit',
+      second: '2-digit',
+      hourCycle: 'h23',
+    })
+      .formatToParts(at)
+      .map((p) => [p.type, p.value]),
+  )
+  return {
+    day: `${parts.year}-${parts.month}-${parts.day}`,
+    weekday: WEEKDAY[parts.weekday!]!,
+    minute: Number(parts.hour) * 60 + Number(parts.minute) + Number(parts.second) / 60,
+  }
 }
 
 /** Why [start, end] is not working time for this person (or null when it is): one local day, inside one span of both patterns, no closure, no leave. */
 function outsideWorkingTime(cal: Calendar, personId: number | null, start: Date, end: Date): string | null {
   if (!(end > start)) return 'does not end after it starts'
-  const a = local(start, cal.zone), b = local(end, cal.zone)
+  const a = local(start, cal.zone),
+    b = local(end, cal.zone)
   if (a.day !== b.day) return `runs from ${a.day} into ${b.day}`
   const inside = (pattern: Span[]) => pattern.some((s) => s.weekday === a.weekday && hhmm(s.start) <= a.minute && b.minute <= hhmm(s.end))
   if (!inside(cal.workshop)) return `${a.day} (weekday ${a.weekday}) ${fmt(a.minute)}–${fmt(b.minute)} is outside the workshop's open hours`
@@ -50,12 +71,25 @@ const fmt = (m: number) => `${String(Math.floor(m / 60)).padStart(2, '0')}:${Str
 async function calendarOf(db: Db): Promise<Calendar> {
   const w = (await db.select({ id: s.workshops.id, timeZone: s.workshops.timeZone, weekPattern: s.workshops.weekPattern }).from(s.workshops))[0]!
   const closures = await db.select({ startsOn: s.closures.startsOn, endsOn: s.closures.endsOn }).from(s.closures).where(eq(s.closures.workshopId, w.id))
-  const people = await db.select({ id: s.people.id, name: s.people.name, weekPattern: s.people.weekPattern }).from(s.people).where(eq(s.people.workshopId, w.id))
+  const people = await db
+    .select({ id: s.people.id, name: s.people.name, weekPattern: s.people.weekPattern })
+    .from(s.people)
+    .where(eq(s.people.workshopId, w.id))
   const leave = await db.select({ personId: s.leave.personId, startsOn: s.leave.startsOn, endsOn: s.leave.endsOn }).from(s.leave)
   return {
-    zone: w.timeZone, workshop: w.weekPattern as Span[],
+    zone: w.timeZone,
+    workshop: w.weekPattern as Span[],
     closures,
-    people: new Map(people.map((p) => [p.id, { name: p.name, pattern: p.weekPattern as Span[] | null, leave: leave.filter((l) => l.personId === p.id).map((l) => ({ startsOn: l.startsOn, endsOn: l.endsOn })) }])),
+    people: new Map(
+      people.map((p) => [
+        p.id,
+        {
+          name: p.name,
+          pattern: p.weekPattern as Span[] | null,
+          leave: leave.filter((l) => l.personId === p.id).map((l) => ({ startsOn: l.startsOn, endsOn: l.endsOn })),
+        },
+      ]),
+    ),
   }
 }
 
@@ -64,38 +98,82 @@ async function contradictions(db: Db, now: Date): Promise<{ problems: string[]; 
   const cal = await calendarOf(db)
   const problems: string[] = []
   const tr = s.timeRecords
-  const records = (await db.select({ id: tr.id, operationId: tr.operationId, personId: tr.personId, startedAt: tr.startedAt, endedAt: tr.endedAt }).from(tr).orderBy(tr.personId, tr.startedAt))
-    .map((r) => ({ id: r.id, operation_id: r.operationId, person_id: r.personId, started_at: new Date(r.startedAt), ended_at: r.endedAt === null ? null : new Date(r.endedAt) }))
+  const records = (
+    await db
+      .select({ id: tr.id, operationId: tr.operationId, personId: tr.personId, startedAt: tr.startedAt, endedAt: tr.endedAt })
+      .from(tr)
+      .orderBy(tr.personId, tr.startedAt)
+  ).map((r) => ({
+    id: r.id,
+    operation_id: r.operationId,
+    person_id: r.personId,
+    started_at: new Date(r.startedAt),
+    ended_at: r.endedAt === null ? null : new Date(r.endedAt),
+  }))
   for (const r of records) {
-    if (!r.ended_at) { problems.push(`record ${r.id} is still running`); continue }
+    if (!r.ended_at) {
+      problems.push(`record ${r.id} is still running`)
+      continue
+    }
     const why = outsideWorkingTime(cal, r.person_id, r.started_at, r.ended_at)
     if (why) problems.push(`record ${r.id}: ${why}`)
     if (r.ended_at > now) problems.push(`record ${r.id} ends ${r.ended_at.toISOString()}, after now ${now.toISOString()}`)
   }
   for (let i = 1; i < records.length; i++) {
     const [p, r] = [records[i - 1]!, records[i]!]
-    if (p.person_id === r.person_id && p.ended_at && r.started_at < p.ended_at) problems.push(`${cal.people.get(r.person_id)!.name} is at two jobs at once (records ${p.id} and ${r.id})`)
+    if (p.person_id === r.person_id && p.ended_at && r.started_at < p.ended_at)
+      problems.push(`${cal.people.get(r.person_id)!.name} is at two jobs at once (records ${p.id} and ${r.id})`)
   }
   const lastRecord = new Map<number, Date>()
   for (const r of records) if (r.ended_at && !(lastRecord.get(r.operation_id)! >= r.ended_at)) lastRecord.set(r.operation_id, r.ended_at)
-  const ops = (await db.select({ id: s.operations.id, orderId: s.jobBags.orderId, status: s.operations.status, leadDays: s.operations.leadDays, finishedAt: s.operations.finishedAt })
-    .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)))
-    .map((o) => ({ id: o.id, order_id: o.orderId, status: o.status, lead_days: o.leadDays, finished_at: o.finishedAt === null ? null : new Date(o.finishedAt), last_record: lastRecord.get(o.id) ?? null }))
+  const ops = (
+    await db
+      .select({
+        id: s.operations.id,
+        orderId: s.jobBags.orderId,
+        status: s.operations.status,
+        leadDays: s.operations.leadDays,
+        finishedAt: s.operations.finishedAt,
+      })
+      .from(s.operations)
+      .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+  ).map((o) => ({
+    id: o.id,
+    order_id: o.orderId,
+    status: o.status,
+    lead_days: o.leadDays,
+    finished_at: o.finishedAt === null ? null : new Date(o.finishedAt),
+    last_record: lastRecord.get(o.id) ?? null,
+  }))
   for (const o of ops) {
     if (o.status === 'done' && !o.finished_at) problems.push(`operation ${o.id} is done but has no finishing time`)
     if (o.finished_at && o.finished_at > now) problems.push(`operation ${o.id} finished ${o.finished_at.toISOString()}, after now`)
-    if (o.last_record && o.finished_at && o.finished_at.getTime() !== o.last_record.getTime()) problems.push(`operation ${o.id} finished at ${o.finished_at.toISOString()}, not when its last record ended`)
+    if (o.last_record && o.finished_at && o.finished_at.getTime() !== o.last_record.getTime())
+      problems.push(`operation ${o.id} finished at ${o.finished_at.toISOString()}, not when its last record ended`)
     // Outside work comes back to the workshop while it is open.
     if (o.lead_days > 0 && o.finished_at) {
       const at = local(o.finished_at, cal.zone)
-      const open = cal.workshop.some((s) => s.weekday === at.weekday && hhmm(s.start) <= at.minute && at.minute <= hhmm(s.end)) && !cal.closures.some((c) => c.startsOn <= at.day && at.day <= c.endsOn)
+      const open =
+        cal.workshop.some((s) => s.weekday === at.weekday && hhmm(s.start) <= at.minute && at.minute <= hhmm(s.end)) &&
+        !cal.closures.some((c) => c.startsOn <= at.day && at.day <= c.endsOn)
       if (!open) problems.push(`outside work ${o.id} came back ${at.day} (weekday ${at.weekday}) ${fmt(at.minute)}, when the workshop is not open`)
     }
   }
-  const orders = (await db.select({ id: s.orders.id, number: s.orders.number, status: s.orders.status, createdAt: s.orders.createdAt, updatedAt: s.orders.updatedAt }).from(s.orders)).map((o) => {
+  const orders = (
+    await db
+      .select({ id: s.orders.id, number: s.orders.number, status: s.orders.status, createdAt: s.orders.createdAt, updatedAt: s.orders.updatedAt })
+      .from(s.orders)
+  ).map((o) => {
     const mine = ops.filter((x) => x.order_id === o.id)
     const finished = mine.reduce<Date | null>((m, x) => (x.finished_at && (!m || x.finished_at > m) ? x.finished_at : m), null)
-    return { number: o.number, status: o.status, created_at: o.createdAt, updated_at: o.updatedAt, all_done: mine.length ? mine.every((x) => x.status === 'done' || x.status === 'skipped') : null, finished }
+    return {
+      number: o.number,
+      status: o.status,
+      created_at: o.createdAt,
+      updated_at: o.updatedAt,
+      all_done: mine.length ? mine.every((x) => x.status === 'done' || x.status === 'skipped') : null,
+      finished,
+    }
   })
   for (const o of orders) {
     if (o.created_at > now) problems.push(`order ${o.number} was taken after now`)
@@ -114,7 +192,15 @@ describe('the check itself', () => {
   it('when moments either side of the clock change are read in Europe/London, then they fall on the right side of the open hours', () => {
     // UK summer time starts at 01:00 UTC on the last Sunday in March (29 March 2026) and ends on the last Sunday in October
     // (Summer Time Order 2002; gov.uk "When do the clocks change?"). The workshop opens 08:30–12:30 and 13:15–17:00, Mon–Fri.
-    const cal: Calendar = { zone: 'Europe/London', workshop: [1, 2, 3, 4, 5].flatMap((weekday) => [{ weekday, start: '08:30', end: '12:30' }, { weekday, start: '13:15', end: '17:00' }]), closures: [], people: new Map() }
+    const cal: Calendar = {
+      zone: 'Europe/London',
+      workshop: [1, 2, 3, 4, 5].flatMap((weekday) => [
+        { weekday, start: '08:30', end: '12:30' },
+        { weekday, start: '13:15', end: '17:00' },
+      ]),
+      closures: [],
+      people: new Map(),
+    }
     const ok = (a: string, b: string) => outsideWorkingTime(cal, null, new Date(a), new Date(b))
     expect(ok('2026-03-27T16:00:00Z', '2026-03-27T17:00:00Z')).toBeNull() // Fri 16:00–17:00 GMT
     expect(ok('2026-03-30T15:30:00Z', '2026-03-30T16:00:00Z')).toBeNull() // Mon 16:30–17:00 BST
@@ -129,8 +215,12 @@ describe('the check itself', () => {
 
 describe('the seeded demo in the template database', () => {
   let t: TestDb
-  beforeAll(async () => { t = await createTestDb() })
-  afterAll(async () => { await t?.drop() })
+  beforeAll(async () => {
+    t = await createTestDb()
+  })
+  afterAll(async () => {
+    await t?.drop()
+  })
 
   it('when its history is read back, then every time record is working time for its person, nobody is at two jobs at once and nothing is finished after now', async () => {
     // The seed ran (with the real clock) in the transaction that created the workshop, so the workshop's creation is not before the seed's now.
@@ -143,7 +233,14 @@ describe('the seeded demo in the template database', () => {
     expect(cal.closures.filter(within).length).toBeGreaterThan(0)
     expect([...cal.people.values()].flatMap((p) => p.leave).filter(within).length).toBeGreaterThan(0)
     const own = [...cal.people.entries()].filter(([, p]) => p.pattern).map(([id]) => id)
-    expect((await t.db.select({ n: countDistinct(s.timeRecords.personId) }).from(s.timeRecords).where(inArray(s.timeRecords.personId, own)))[0]!.n).toBe(own.length)
+    expect(
+      (
+        await t.db
+          .select({ n: countDistinct(s.timeRecords.personId) })
+          .from(s.timeRecords)
+          .where(inArray(s.timeRecords.personId, own))
+      )[0]!.n,
+    ).toBe(own.length)
   })
 })
 

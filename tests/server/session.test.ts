@@ -6,8 +6,12 @@ import { createSessionStore } from '../../server/middleware/auth'
 import { Agent, DEMO_EMAIL, createTestApp, signedIn, type TestApp } from '../setup/app'
 
 let t: TestApp
-beforeAll(async () => { t = await createTestApp() })
-afterAll(async () => { await t.close() })
+beforeAll(async () => {
+  t = await createTestApp()
+})
+afterAll(async () => {
+  await t.close()
+})
 
 describe('session', () => {
   it('when the health check is called without sign-in, then it answers ok after asking the database', async () => {
@@ -113,7 +117,9 @@ async function row(sid: string) {
 /** Sets a session's expiry as if its last extension were longer ago: the row keeps it in the expire column and in the saved cookie. */
 async function setExpiry(sid: string, at: number) {
   const iso = new Date(at).toISOString()
-  await t.db.execute(sql`update user_sessions set expire = ${iso}::timestamptz, sess = jsonb_set(sess::jsonb, '{cookie,expires}', to_jsonb(${iso}::text))::json where sid = ${sid}`)
+  await t.db.execute(
+    sql`update user_sessions set expire = ${iso}::timestamptz, sess = jsonb_set(sess::jsonb, '{cookie,expires}', to_jsonb(${iso}::text))::json where sid = ${sid}`,
+  )
 }
 
 /** Counts the app's writes to the session table while `fn` runs (the store and express-session use the app's pool). */
@@ -122,7 +128,7 @@ async function sessionWrites(fn: () => Promise<void>): Promise<number> {
   try {
     await fn()
     return spy.mock.calls.filter(([q]) => {
-      const text = typeof q === 'string' ? q : (q as { text?: string } | undefined)?.text ?? ''
+      const text = typeof q === 'string' ? q : ((q as { text?: string } | undefined)?.text ?? '')
       return /^\s*(update|insert\s+into)\s+"?user_sessions"?\s/i.test(text)
     }).length
   } finally {
@@ -162,7 +168,9 @@ describe('session idle expiry', () => {
     const { a, sid } = await signInSid('manager')
     const at = Date.now() + 11 * HOUR + 51 * MIN
     await setExpiry(sid, at)
-    const writes = await sessionWrites(async () => { expect((await a.get('/api/benches')).status).toBe(200) })
+    const writes = await sessionWrites(async () => {
+      expect((await a.get('/api/benches')).status).toBe(200)
+    })
     expect(writes).toBe(0)
     expect((await row(sid))!.expire).toBe(at)
   })
@@ -187,7 +195,11 @@ describe('session idle expiry', () => {
     expect(cookieExpires(cookie)).toBeGreaterThanOrEqual(t0 + IDLE - 1000)
     expect(cookieExpires(cookie)).toBeLessThanOrEqual(t1 + IDLE + 1000)
     expect(sidOf(cookie)).toBe(sid)
-    expect(await sessionWrites(async () => { expect((await a.get('/api/benches')).status).toBe(200) })).toBe(0)
+    expect(
+      await sessionWrites(async () => {
+        expect((await a.get('/api/benches')).status).toBe(200)
+      }),
+    ).toBe(0)
   })
 
   it('when the session has passed its expiry, then the next request answers 401', async () => {
@@ -209,7 +221,11 @@ describe('session idle expiry', () => {
     expect(reads).toBe(0)
     await setExpiry(sid, Date.now() + 30 * DAY - 11 * MIN)
     const t0 = Date.now()
-    expect(await sessionWrites(async () => { expect((await a.get('/api/benches')).status).toBe(200) })).toBe(1)
+    expect(
+      await sessionWrites(async () => {
+        expect((await a.get('/api/benches')).status).toBe(200)
+      }),
+    ).toBe(1)
     const r1 = (await row(sid))!
     expect(r1.expire).toBeGreaterThanOrEqual(t0 + 30 * DAY - 1000)
     expect(r1.expire).toBeLessThanOrEqual(Date.now() + 30 * DAY + 1000)

@@ -9,8 +9,12 @@ import { Agent, DEMO_EMAIL, createTestApp, signedIn, type TestApp } from '../set
 const LIMIT = 20
 
 let t: TestApp
-beforeAll(async () => { t = await createTestApp({ LOGIN_ATTEMPTS_PER_15_MIN: String(LIMIT) }) })
-afterAll(async () => { await t?.close() })
+beforeAll(async () => {
+  t = await createTestApp({ LOGIN_ATTEMPTS_PER_15_MIN: String(LIMIT) })
+})
+afterAll(async () => {
+  await t?.close()
+})
 
 /** Signs in from a given address (the app trusts X-Forwarded-For from loopback, as behind a local proxy). */
 async function signInFrom(address: string, email: string, password: string) {

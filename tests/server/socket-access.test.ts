@@ -35,10 +35,18 @@ afterAll(async () => {
 
 async function signIn(email: string, password = DEMO_PASSWORD) {
   let cookie = ''
-  const keep = (r: Response) => { const c = r.headers.get('set-cookie'); if (c) cookie = c.split(';')[0]! }
-  const a = await fetch(`${srv.url}/api/session`); keep(a)
+  const keep = (r: Response) => {
+    const c = r.headers.get('set-cookie')
+    if (c) cookie = c.split(';')[0]!
+  }
+  const a = await fetch(`${srv.url}/api/session`)
+  keep(a)
   const { csrfToken } = (await a.json()) as { csrfToken: string }
-  const b = await fetch(`${srv.url}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie }, body: JSON.stringify({ email, password }) })
+  const b = await fetch(`${srv.url}/api/session`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie },
+    body: JSON.stringify({ email, password }),
+  })
   keep(b)
   const body = (await b.json()) as { csrfToken: string; user: { id: number } }
   expect(b.status, JSON.stringify(body)).toBe(200)
@@ -47,7 +55,11 @@ async function signIn(email: string, password = DEMO_PASSWORD) {
 type Session = Awaited<ReturnType<typeof signIn>>
 
 function api(s: Session, method: string, path: string, body?: unknown) {
-  return fetch(`${srv.url}/api${path}`, { method, headers: { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf }, body: body === undefined ? undefined : JSON.stringify(body) })
+  return fetch(`${srv.url}/api${path}`, {
+    method,
+    headers: { 'content-type': 'application/json', cookie: s.cookie, 'x-csrf-token': s.csrf },
+    body: body === undefined ? undefined : JSON.stringify(body),
+  })
 }
 
 /** A connected socket that records every event it hears. */
@@ -56,18 +68,32 @@ async function listen(s: Session | null) {
   open.push(sock)
   const heard: { event: string; payload: any }[] = []
   sock.onAny((event, payload) => heard.push({ event, payload }))
-  await new Promise<void>((res, rej) => { sock.on('connect', () => res()); sock.on('connect_error', rej) })
+  await new Promise<void>((res, rej) => {
+    sock.on('connect', () => res())
+    sock.on('connect_error', rej)
+  })
   return { sock, heard }
 }
 
 const since = (sock: Socket, seq: unknown) => new Promise<{ event: string }[]>((res) => sock.emit('changes:since' as any, seq, res))
 const until = (sock: Socket, event: string, timeoutMs = 20_000) =>
-  new Promise<any>((res, rej) => { const t = setTimeout(() => rej(new Error(`no ${event} within ${timeoutMs} ms`)), timeoutMs); sock.once(event, (p: unknown) => { clearTimeout(t); res(p) }) })
+  new Promise<any>((res, rej) => {
+    const t = setTimeout(() => rej(new Error(`no ${event} within ${timeoutMs} ms`)), timeoutMs)
+    sock.once(event, (p: unknown) => {
+      clearTimeout(t)
+      res(p)
+    })
+  })
 
 /** A step of the demo data's live plan the manager may pin and unpin (plan:changed to the whole workshop). */
 async function plannedOperation(): Promise<{ id: number; version: number }> {
   const o = s.operations
-  const [op] = await srv.db.select({ id: o.id, version: o.version }).from(o).where(and(inArray(o.status, ['pending', 'ready']), isNotNull(o.plannedStart))).orderBy(asc(o.id)).limit(1)
+  const [op] = await srv.db
+    .select({ id: o.id, version: o.version })
+    .from(o)
+    .where(and(inArray(o.status, ['pending', 'ready']), isNotNull(o.plannedStart)))
+    .orderBy(asc(o.id))
+    .limit(1)
   return op!
 }
 
@@ -105,7 +131,10 @@ describe('one workshop, several roles', () => {
     const draft = (await drafted) as { id: number }
     // Publish it, so the bars are back on the live plan for the rest of this file.
     expect((await api(manager, 'POST', `/plans/${draft.id}/publish`)).status).toBe(200)
-    expect(m.heard.some((e) => e.event === 'plan:progress'), 'the manager hears planner progress').toBe(true)
+    expect(
+      m.heard.some((e) => e.event === 'plan:progress'),
+      'the manager hears planner progress',
+    ).toBe(true)
 
     const changed = until(b.sock, 'plan:changed')
     const opId = await pinToggle(manager, true)
@@ -113,8 +142,16 @@ describe('one workshop, several roles', () => {
 
     // A step change through the job bag API reaches the bench as operation:changed.
     const o = s.operations
-    const step = (await srv.db.select({ id: o.id, version: o.version, job_bag_id: o.jobBagId }).from(o).innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-      .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending'))).orderBy(asc(o.id)).limit(1))[0]!
+    const step = (
+      await srv.db
+        .select({ id: o.id, version: o.version, job_bag_id: o.jobBagId })
+        .from(o)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId))
+        .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+        .where(and(eq(s.orders.status, 'open'), eq(o.status, 'pending')))
+        .orderBy(asc(o.id))
+        .limit(1)
+    )[0]!
     const opChanged = until(b.sock, 'operation:changed')
     const patch = await api(manager, 'PATCH', `/job-bags/${step.job_bag_id}/operations/${step.id}`, { name: 'Polish again, gently', version: step.version })
     expect(patch.status).toBe(200)
@@ -135,12 +172,15 @@ describe('one workshop, several roles', () => {
 })
 
 describe('a second workshop', () => {
-  it('when a user of another workshop is connected, then they never hear the first workshop\'s events, live, on catch-up or by asking for its rooms', async () => {
+  it("when a user of another workshop is connected, then they never hear the first workshop's events, live, on catch-up or by asking for its rooms", async () => {
     const passwordHash = await hashPassword('other-bench-password')
-    await addWorkshop(srv.db, { name: 'Harrowgate Lane Bench', users: [
-      { email: 'maker@harrowgate.test', name: 'Other Maker', role: 'bench', passwordHash },
-      { email: 'boss@harrowgate.test', name: 'Other Boss', role: 'owner', passwordHash },
-    ] })
+    await addWorkshop(srv.db, {
+      name: 'Harrowgate Lane Bench',
+      users: [
+        { email: 'maker@harrowgate.test', name: 'Other Maker', role: 'bench', passwordHash },
+        { email: 'boss@harrowgate.test', name: 'Other Boss', role: 'owner', passwordHash },
+      ],
+    })
     const first = (await srv.db.select({ id: s.workshops.id }).from(s.workshops).where(eq(s.workshops.name, 'Wrenfield Street Workshop')))[0]!
 
     const manager = await signIn(DEMO_EMAIL.manager)
@@ -148,7 +188,8 @@ describe('a second workshop', () => {
     const otherBench = await listen(await signIn('maker@harrowgate.test', 'other-bench-password'))
     const otherOwner = await listen(await signIn('boss@harrowgate.test', 'other-bench-password'))
     for (const o of [otherBench, otherOwner]) {
-      for (const ev of ['join', 'subscribe', 'room:join']) for (const room of [`workshop:${first.id}`, `workshop:${first.id}:planners`, first.id]) o.sock.emit(ev as any, room)
+      for (const ev of ['join', 'subscribe', 'room:join'])
+        for (const room of [`workshop:${first.id}`, `workshop:${first.id}:planners`, first.id]) o.sock.emit(ev as any, room)
       o.sock.emit('changes:since' as any, { workshopId: first.id, seq: 0 }, () => {})
     }
     // Events of the first workshop: a move (to everyone there) and a draft (to its planners); sales of the first workshop is the barrier.
@@ -190,7 +231,7 @@ describe('when a session ends', () => {
     m.sock.close()
   })
 
-  it('when the owner switches a bench user off, then that user\'s open connections are closed and cannot come back', async () => {
+  it("when the owner switches a bench user off, then that user's open connections are closed and cannot come back", async () => {
     const owner = await signIn(DEMO_EMAIL.owner)
     const manager = await signIn(DEMO_EMAIL.manager)
     const m = await listen(manager)

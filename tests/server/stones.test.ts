@@ -16,11 +16,35 @@ let setter: Agent
 let owner: Agent
 let orderId: number
 let bagId: number
-interface Line { id: number; version: number; count: number; sizeMm: number; caratEach: number | null; caratEstimated: boolean; customerOwned: boolean; state: string; handBackOutstanding: number; reconciliation: { issued: number; set: number; returned: number; broken: number; lost: number; accounted: number; difference: number; checkedBack: number }; movements: { id: number; kind: string; count: number; reason: string; recordedBy: string | null; correctsId: number | null }[] }
-interface Stones { lines: Line[]; totals: { difference: number }; customerStones: { lines: number; reconciled: boolean; handedBack: boolean; problems: string[] } }
+interface Line {
+  id: number
+  version: number
+  count: number
+  sizeMm: number
+  caratEach: number | null
+  caratEstimated: boolean
+  customerOwned: boolean
+  state: string
+  handBackOutstanding: number
+  reconciliation: { issued: number; set: number; returned: number; broken: number; lost: number; accounted: number; difference: number; checkedBack: number }
+  movements: { id: number; kind: string; count: number; reason: string; recordedBy: string | null; correctsId: number | null }[]
+}
+interface Stones {
+  lines: Line[]
+  totals: { difference: number }
+  customerStones: { lines: number; reconciled: boolean; handedBack: boolean; problems: string[] }
+}
 const stones = async () => (await manager.get(`/api/job-bags/${bagId}/stones`)).body as Stones
 const setStep = async () => {
-  const b = (await manager.get(`/api/job-bags/${bagId}`)).body as { operations: { id: number; key: string; estimateMinutes: number; estimateSource: string; estimateChanges: { fromMinutes: number; toMinutes: number; reason: string }[] }[] }
+  const b = (await manager.get(`/api/job-bags/${bagId}`)).body as {
+    operations: {
+      id: number
+      key: string
+      estimateMinutes: number
+      estimateSource: string
+      estimateChanges: { fromMinutes: number; toMinutes: number; reason: string }[]
+    }[]
+  }
   return b.operations.find((o) => o.key === 'set')!
 }
 let centre: Line
@@ -35,12 +59,19 @@ beforeAll(async () => {
   const tpl = { id: await templateId(t.db, 'halo-ring') }
   const c = { id: await firstCustomerId(t.db) }
   // A halo ring taken with no stone figures: its setting step starts at the routing's base of 40 min.
-  const r = await sales.post('/api/orders', { customerId: c.id, title: 'Halo ring, customer’s diamond', dueDate: '2031-09-01', pieces: [{ templateId: tpl.id, piece: 'Halo ring', params: { metal: 'platinum-950', ringSize: { scale: 'uk', value: 'N' } } }] })
+  const r = await sales.post('/api/orders', {
+    customerId: c.id,
+    title: 'Halo ring, customer’s diamond',
+    dueDate: '2031-09-01',
+    pieces: [{ templateId: tpl.id, piece: 'Halo ring', params: { metal: 'platinum-950', ringSize: { scale: 'uk', value: 'N' } } }],
+  })
   expect(r.status).toBe(201)
   orderId = r.body.id
   bagId = r.body.jobBags[0].id
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 /** The setting step ('set') of a job bag: its stored minutes, and its status set straight in the database. */
 const setStepOf = (bagId: number) => and(eq(s.operations.jobBagId, bagId), eq(s.operations.key, 'set'))
@@ -109,7 +140,14 @@ describe('the stone list', () => {
     // Setting: 237.28 + 8 × 1 × 1.5 (over 3 mm) × 1.5 (side) = 237.28 + 18 = 255.28 → 255.3 min.
     expect((await setStep()).estimateMinutes).toBe(255.3)
     const { PDFParse } = await import('pdf-parse')
-    const res = await owner.get(`/api/job-bags/${bagId}/ticket.pdf`).buffer(true).parse((x, cb) => { const c: Buffer[] = []; x.on('data', (d: Buffer) => c.push(d)); x.on('end', () => cb(null, Buffer.concat(c))) })
+    const res = await owner
+      .get(`/api/job-bags/${bagId}/ticket.pdf`)
+      .buffer(true)
+      .parse((x, cb) => {
+        const c: Buffer[] = []
+        x.on('data', (d: Buffer) => c.push(d))
+        x.on('end', () => cb(null, Buffer.concat(c)))
+      })
     const parser = new PDFParse({ data: new Uint8Array(res.body as Buffer) })
     const text = (await parser.getText()).text.replace(/\s+/g, ' ')
     await parser.destroy()
@@ -117,7 +155,14 @@ describe('the stone list', () => {
     // Only the depth changes: 5² × 3.0 × 0.0061 = 0.4575 → 0.46 ct; the quality and cost stay as they were.
     const e = await sales.patch(`/api/stones/${side.id}`, { depthMm: 3, version: side.version })
     expect(e.status, JSON.stringify(e.body)).toBe(200)
-    expect((e.body as Stones).lines[2]).toMatchObject({ depthMm: 3, caratEach: 0.46, quality: 'H SI1', costEachMinor: 45_000, customerOwned: false, stone: 'diamond' })
+    expect((e.body as Stones).lines[2]).toMatchObject({
+      depthMm: 3,
+      caratEach: 0.46,
+      quality: 'H SI1',
+      costEachMinor: 45_000,
+      customerOwned: false,
+      stone: 'diamond',
+    })
     expectFieldError(await sales.patch(`/api/stones/${side.id}`, { depthMm: -1, version: side.version + 1 }), 'depthMm', /more than 0/)
     const del = await sales.delete(`/api/stones/${side.id}?version=${side.version + 1}`)
     expect(del.status).toBe(200)
@@ -147,7 +192,13 @@ describe('counting stones out and back', () => {
   it('when 14 halo stones go to the setter and 12 set + 1 back are counted, then 1 is still with the setter', async () => {
     const out = await setter.post(`/api/stones/${halo.id}/movements`, { entries: [{ kind: 'issued', count: 14 }], clientId: rid() })
     expect(out.status, JSON.stringify(out.body)).toBe(201)
-    const back = await setter.post(`/api/stones/${halo.id}/movements`, { entries: [{ kind: 'set', count: 12 }, { kind: 'returned', count: 1 }], clientId: rid() })
+    const back = await setter.post(`/api/stones/${halo.id}/movements`, {
+      entries: [
+        { kind: 'set', count: 12 },
+        { kind: 'returned', count: 1 },
+      ],
+      clientId: rid(),
+    })
     expect(back.status).toBe(201)
     const l = (back.body as Stones).lines.find((x) => x.id === halo.id)!
     // Hand-worked: accounted 12 + 1 + 0 + 0 = 13; difference 14 − 13 = 1; the setting step is not finished, so it is with the setter.
@@ -168,8 +219,16 @@ describe('counting stones out and back', () => {
   })
 
   it('when more are counted back than went out, then it is refused naming the entry unless a reason is given', async () => {
-    expectFieldError(await setter.post(`/api/stones/${halo.id}/movements`, { entries: [{ kind: 'set', count: 3 }], clientId: rid() }), 'entries.0.count', /only 14 were given out/)
-    expectFieldError(await setter.post(`/api/stones/${centre.id}/movements`, { entries: [{ kind: 'issued', count: 1 }], clientId: rid() }), 'entries.0.count', /only 1 of the customer/)
+    expectFieldError(
+      await setter.post(`/api/stones/${halo.id}/movements`, { entries: [{ kind: 'set', count: 3 }], clientId: rid() }),
+      'entries.0.count',
+      /only 14 were given out/,
+    )
+    expectFieldError(
+      await setter.post(`/api/stones/${centre.id}/movements`, { entries: [{ kind: 'issued', count: 1 }], clientId: rid() }),
+      'entries.0.count',
+      /only 1 of the customer/,
+    )
   })
 
   it('when the setting step is finished with one stone unaccounted, then the line is flagged as a mismatch', async () => {
@@ -183,7 +242,11 @@ describe('counting stones out and back', () => {
   it('when the manager corrects the set count from 12 to 13 with a reason, then it balances and the correction says who and why', async () => {
     expectCleanError(await setter.post(`/api/stone-movements/${setRowId}/corrections`, { count: 13, reason: 'miscounted', clientId: rid() }), 403)
     expectFieldError(await manager.post(`/api/stone-movements/${setRowId}/corrections`, { count: 13, clientId: rid() }), 'reason')
-    const r = await manager.post(`/api/stone-movements/${setRowId}/corrections`, { count: 13, reason: 'Counted again under the scope: 13 set', clientId: rid() })
+    const r = await manager.post(`/api/stone-movements/${setRowId}/corrections`, {
+      count: 13,
+      reason: 'Counted again under the scope: 13 set',
+      clientId: rid(),
+    })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     const l = (r.body as Stones).lines.find((x) => x.id === halo.id)!
     expect(l.reconciliation).toMatchObject({ set: 13, accounted: 14, difference: 0 })
@@ -229,7 +292,14 @@ describe('a customer’s own stones', () => {
 
   it('when the job ticket is printed, then it lists the customer’s stones and the ring size in every scale', async () => {
     const { PDFParse } = await import('pdf-parse')
-    const res = await owner.get(`/api/job-bags/${bagId}/ticket.pdf`).buffer(true).parse((r, cb) => { const c: Buffer[] = []; r.on('data', (d: Buffer) => c.push(d)); r.on('end', () => cb(null, Buffer.concat(c))) })
+    const res = await owner
+      .get(`/api/job-bags/${bagId}/ticket.pdf`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const c: Buffer[] = []
+        r.on('data', (d: Buffer) => c.push(d))
+        r.on('end', () => cb(null, Buffer.concat(c)))
+      })
     const parser = new PDFParse({ data: new Uint8Array(res.body as Buffer) })
     const text = (await parser.getText()).text.replace(/\s+/g, ' ')
     await parser.destroy()
@@ -243,16 +313,37 @@ describe('a customer’s own stones', () => {
 describe('a routing step’s own role factors', () => {
   it('when the step sets its own factor for centre stones, then the stone list’s minutes use it and the other roles keep the usual factor; bad factors are refused', async () => {
     const kinds = Object.fromEntries((await manager.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
-    const bad = (roleFactors: unknown) => manager.post('/api/templates', { code: 'role-bad', name: 'Bad', steps: [{ key: 'set', kindId: kinds.setting, name: 'Set', baseMinutes: 30, perStoneMinutes: 6, roleFactors }] })
+    const bad = (roleFactors: unknown) =>
+      manager.post('/api/templates', {
+        code: 'role-bad',
+        name: 'Bad',
+        steps: [{ key: 'set', kindId: kinds.setting, name: 'Set', baseMinutes: 30, perStoneMinutes: 6, roleFactors }],
+      })
     expectFieldError(await bad({ centre: 6 }), 'steps.0.roleFactors.centre', /at most 5/)
     expectFieldError(await bad({ crown: 2 }), 'steps.0.roleFactors', /centre, side, halo and pave/)
     const tpl = await manager.post('/api/templates', {
-      code: 'role-fixture', name: 'Fixture: set by role',
-      steps: [{ key: 'set', kindId: kinds.setting, name: 'Set stones', baseMinutes: 30, perStoneMinutes: 6, sizeBandFactors: { melee: 1.2, large: 1.5 }, roleFactors: { centre: 4 } }],
+      code: 'role-fixture',
+      name: 'Fixture: set by role',
+      steps: [
+        {
+          key: 'set',
+          kindId: kinds.setting,
+          name: 'Set stones',
+          baseMinutes: 30,
+          perStoneMinutes: 6,
+          sizeBandFactors: { melee: 1.2, large: 1.5 },
+          roleFactors: { centre: 4 },
+        },
+      ],
     })
     expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
     expect(tpl.body.steps[0].roleFactors).toEqual({ centre: 4 })
-    const o = await sales.post('/api/orders', { customerId: await firstCustomerId(t.db), title: 'Two halo rings', dueDate: '2031-09-01', pieces: [{ templateId: tpl.body.id, piece: 'Halo ring', params: { quantity: 2 } }] })
+    const o = await sales.post('/api/orders', {
+      customerId: await firstCustomerId(t.db),
+      title: 'Two halo rings',
+      dueDate: '2031-09-01',
+      pieces: [{ templateId: tpl.body.id, piece: 'Halo ring', params: { quantity: 2 } }],
+    })
     const bag = o.body.jobBags[0].id
     await sales.post(`/api/job-bags/${bag}/stones`, { role: 'centre', sizeMm: 6.5, count: 1 })
     await sales.post(`/api/job-bags/${bag}/stones`, { role: 'halo', sizeMm: 1.3, count: 14 })

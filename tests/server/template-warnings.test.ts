@@ -12,19 +12,29 @@ beforeAll(async () => {
   manager = await signedIn(t.app, 'manager')
   kinds = Object.fromEntries(((await manager.get('/api/operation-kinds')).body as { code: string; id: number; outside: boolean }[]).map((k) => [k.code, k]))
 })
-afterAll(async () => { await t?.close() })
+afterAll(async () => {
+  await t?.close()
+})
 
 describe('routing warnings', () => {
   it('when the demo routings are read, then none has a warning and in each every step is linked to the others', async () => {
     const all = (await manager.get('/api/templates')).body as Template[]
     expect(all.length).toBeGreaterThanOrEqual(10)
-    const outside = new Set(Object.values(kinds).filter((k) => k.outside).map((k) => k.id))
+    const outside = new Set(
+      Object.values(kinds)
+        .filter((k) => k.outside)
+        .map((k) => k.id),
+    )
     expect(all.filter((r) => r.steps.length > 1).length, 'demo routings of several steps').toBeGreaterThanOrEqual(5)
     for (const r of all) {
       expect(r.warnings, r.code).toEqual([])
-      expect(templateWarnings(r.steps, (k) => outside.has(k)), r.code).toEqual([])
+      expect(
+        templateWarnings(r.steps, (k) => outside.has(k)),
+        r.code,
+      ).toEqual([])
       // Said plainly: in a routing of several steps, each step comes after another or has one coming after it.
-      if (r.steps.length > 1) for (const s of r.steps) expect(s.after.length > 0 || r.steps.some((o) => o.after.includes(s.key)), `${r.code}: ${s.key}`).toBe(true)
+      if (r.steps.length > 1)
+        for (const s of r.steps) expect(s.after.length > 0 || r.steps.some((o) => o.after.includes(s.key)), `${r.code}: ${s.key}`).toBe(true)
     }
   })
 

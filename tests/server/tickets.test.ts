@@ -41,27 +41,59 @@ beforeAll(async () => {
   manager = await signedIn(t.app, 'manager')
   owner = await signedIn(t.app, 'owner')
   // A job bag with a soldering step (torch and pickle hazards).
-  const soldering = t.db.select({ id: s.operations.id }).from(s.operations).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+  const soldering = t.db
+    .select({ id: s.operations.id })
+    .from(s.operations)
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
     .where(and(eq(s.operations.jobBagId, s.jobBags.id), eq(s.operationKinds.code, 'soldering')))
-  const [found] = await t.db.select({ id: s.jobBags.id, number: s.jobBags.number, params: s.jobBags.params, customer_name: s.customers.name, email: s.customers.email, phone: s.customers.phone, reference: s.customers.reference })
-    .from(s.jobBags).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
-    .where(and(eq(s.orders.status, 'open'), exists(soldering))).orderBy(asc(s.jobBags.id)).limit(1)
+  const [found] = await t.db
+    .select({
+      id: s.jobBags.id,
+      number: s.jobBags.number,
+      params: s.jobBags.params,
+      customer_name: s.customers.name,
+      email: s.customers.email,
+      phone: s.customers.phone,
+      reference: s.customers.reference,
+    })
+    .from(s.jobBags)
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
+    .where(and(eq(s.orders.status, 'open'), exists(soldering)))
+    .orderBy(asc(s.jobBags.id))
+    .limit(1)
   bag = found!
   // The piece is platinum, and its first open step is planned at a bench, so the ticket has a metal and a bench to name.
-  await t.db.update(s.jobBags).set({ params: { ...found!.params, metal: 'platinum-950' } }).where(eq(s.jobBags.id, bag.id))
-  const [b] = await t.db.select({ id: s.benches.id, name: s.benches.name }).from(s.benches).where(and(eq(s.benches.workshopId, 1), eq(s.benches.active, true))).orderBy(asc(s.benches.id)).limit(1)
+  await t.db
+    .update(s.jobBags)
+    .set({ params: { ...found!.params, metal: 'platinum-950' } })
+    .where(eq(s.jobBags.id, bag.id))
+  const [b] = await t.db
+    .select({ id: s.benches.id, name: s.benches.name })
+    .from(s.benches)
+    .where(and(eq(s.benches.workshopId, 1), eq(s.benches.active, true)))
+    .orderBy(asc(s.benches.id))
+    .limit(1)
   benchName = b!.name
-  const [first] = await t.db.select({ id: s.operations.id }).from(s.operations).where(and(eq(s.operations.jobBagId, bag.id), ne(s.operations.status, 'skipped'))).orderBy(asc(s.operations.seq), asc(s.operations.id)).limit(1)
+  const [first] = await t.db
+    .select({ id: s.operations.id })
+    .from(s.operations)
+    .where(and(eq(s.operations.jobBagId, bag.id), ne(s.operations.status, 'skipped')))
+    .orderBy(asc(s.operations.seq), asc(s.operations.id))
+    .limit(1)
   await t.db.update(s.operations).set({ plannedBenchId: b!.id }).where(eq(s.operations.id, first!.id))
   await setPublicUrl(PUBLIC_URL)
 })
-afterAll(async () => { await t?.close() })
-
-const binary = (r: import('supertest').Request) => r.buffer(true).parse((res, cb) => {
-  const chunks: Buffer[] = []
-  res.on('data', (c: Buffer) => chunks.push(c))
-  res.on('end', () => cb(null, Buffer.concat(chunks)))
+afterAll(async () => {
+  await t?.close()
 })
+
+const binary = (r: import('supertest').Request) =>
+  r.buffer(true).parse((res, cb) => {
+    const chunks: Buffer[] = []
+    res.on('data', (c: Buffer) => chunks.push(c))
+    res.on('end', () => cb(null, Buffer.concat(chunks)))
+  })
 
 /** Decodes a QR code from PNG bytes with jsqr (an independent reader). */
 function decodeQr(png: Buffer | Uint8Array): string | null {
@@ -133,7 +165,10 @@ describe('job ticket PDF', () => {
     // The name the workshop uses for platinum-950 (common practice, no source: "Platinum 950" is how the trade writes Pt 950).
     expect(flat).toContain('Platinum 950')
     expect(flat).not.toContain('platinum-950')
-    const kinds = await t.db.selectDistinct({ code: s.operationKinds.code, name: s.operationKinds.name }).from(s.operations).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    const kinds = await t.db
+      .selectDistinct({ code: s.operationKinds.code, name: s.operationKinds.name })
+      .from(s.operations)
+      .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
       .where(and(eq(s.operations.jobBagId, bag.id), ne(s.operations.status, 'skipped')))
     for (const k of kinds) {
       expect(flat).toContain(k.name)
@@ -200,7 +235,17 @@ describe('the address a ticket’s QR code opens', () => {
   // A made-up machine: loopback, then an interface with only IPv6, then wired and wireless IPv4 (TEST-NET addresses, RFC 5737).
   const machine = {
     lo: [{ address: '127.0.0.1', netmask: '255.0.0.0', family: 'IPv4' as const, mac: '00:00:00:00:00:00', internal: true, cidr: '127.0.0.1/8' }],
-    tun0: [{ address: 'fd00::7', netmask: 'ffff:ffff:ffff:ffff::', family: 'IPv6' as const, mac: '00:00:00:00:00:00', internal: false, cidr: 'fd00::7/64', scopeid: 0 }],
+    tun0: [
+      {
+        address: 'fd00::7',
+        netmask: 'ffff:ffff:ffff:ffff::',
+        family: 'IPv6' as const,
+        mac: '00:00:00:00:00:00',
+        internal: false,
+        cidr: 'fd00::7/64',
+        scopeid: 0,
+      },
+    ],
     eth0: [{ address: '192.0.2.20', netmask: '255.255.255.0', family: 'IPv4' as const, mac: '02:00:00:00:00:01', internal: false, cidr: '192.0.2.20/24' }],
     wlan0: [{ address: '198.51.100.7', netmask: '255.255.255.0', family: 'IPv4' as const, mac: '02:00:00:00:00:02', internal: false, cidr: '198.51.100.7/24' }],
   }
@@ -223,7 +268,9 @@ describe('the address a ticket’s QR code opens', () => {
       const none = await jobTicketPdf(t.db, 1, bag.id, { size: 'A6', requestOrigin: 'http://127.0.0.1:8080', suggestedOrigin: null })
       expect(await pdfQr(none.pdf)).toBe(`http://127.0.0.1:8080/job-bags/${bag.id}`)
       // Over HTTP: this machine's own first network IPv4 address (read here from os.networkInterfaces), with the port the test server got.
-      const ip = Object.values(networkInterfaces()).flat().find((a) => a && a.family === 'IPv4' && !a.internal)?.address
+      const ip = Object.values(networkInterfaces())
+        .flat()
+        .find((a) => a && a.family === 'IPv4' && !a.internal)?.address
       const live = await binary(manager.get(`/api/job-bags/${bag.id}/ticket.pdf`).set('host', 'workshop.example:8080'))
       const qr = await pdfQr(live.body as Buffer)
       if (ip) expect(qr).toMatch(new RegExp(`^http://${ip.replace(/\./g, '\\.')}:\\d+/job-bags/${bag.id}$`))
@@ -237,7 +284,14 @@ describe('the address a ticket’s QR code opens', () => {
 describe('the public address in the workshop settings', () => {
   it('when the owner saves an address with a path, a query, another scheme or no scheme, then 400 names publicUrl', async () => {
     const w = (await owner.get('/api/workshop')).body
-    for (const bad of ['http://192.168.1.20:8080/millgrain', 'http://192.168.1.20:8080/?t=1', 'ftp://192.168.1.20', '192.168.1.20:8080', 'https://user:pw@millgrain.example', 'https://millgrain.example/#x']) {
+    for (const bad of [
+      'http://192.168.1.20:8080/millgrain',
+      'http://192.168.1.20:8080/?t=1',
+      'ftp://192.168.1.20',
+      '192.168.1.20:8080',
+      'https://user:pw@millgrain.example',
+      'https://millgrain.example/#x',
+    ]) {
       expectFieldError(await owner.put('/api/workshop', { ...w, publicUrl: bad }), 'publicUrl', /http:\/\/ or https:\/\/ address with no path/)
     }
     expect((await owner.get('/api/workshop')).body.publicUrl).toBe(PUBLIC_URL)
@@ -249,14 +303,22 @@ describe('the public address in the workshop settings', () => {
     expect(r.body.publicUrl).toBe('http://bench-server.example:8443')
     const w = (await owner.get('/api/workshop')).body
     expect(w.publicUrl).toBe('http://bench-server.example:8443')
-    const again = await owner.put('/api/workshop', { name: w.name, timeZone: w.timeZone, weekPattern: w.weekPattern, planningLoad: w.planningLoad, version: w.version })
+    const again = await owner.put('/api/workshop', {
+      name: w.name,
+      timeZone: w.timeZone,
+      weekPattern: w.weekPattern,
+      planningLoad: w.planningLoad,
+      version: w.version,
+    })
     expect(again.body.publicUrl).toBe('http://bench-server.example:8443')
     await setPublicUrl(PUBLIC_URL)
   })
 
   it('when anyone reads the settings, then they carry the suggested address with the server’s port; only the owner may change them', async () => {
     const w = (await manager.get('/api/workshop')).body
-    const ip = Object.values(networkInterfaces()).flat().find((a) => a && a.family === 'IPv4' && !a.internal)?.address
+    const ip = Object.values(networkInterfaces())
+      .flat()
+      .find((a) => a && a.family === 'IPv4' && !a.internal)?.address
     if (ip) expect(w.publicUrlSuggestion.url).toMatch(new RegExp(`^http://${ip.replace(/\./g, '\\.')}:\\d+$`))
     else expect(w.publicUrlSuggestion.url).toBeNull()
     // The test app's configuration keeps the default HOST (127.0.0.1): tablets could not reach the suggestion.

@@ -79,7 +79,10 @@ beforeAll(async () => {
   station.csrf = made.body.csrfToken
   for (const [k, v] of Object.entries(ids)) expect(v, `a demo ${k} to read`).toBeTruthy()
 })
-afterAll(async () => { await t?.close(); await fake?.close() })
+afterAll(async () => {
+  await t?.close()
+  await fake?.close()
+})
 
 /** The path with its parameters filled from the demo, and the query each read needs. */
 function pathOf(path: string): string {
@@ -96,8 +99,11 @@ function pathOf(path: string): string {
     .replace(/^\/refining-lots\/:id/, `/refining-lots/${ids.refiningLot}`)
     .replace(/^\/quotes\/:id/, `/quotes/${ids.quote}`)
   const query: Record<string, string> = {
-    '/board': `from=${from}&to=${to}`, '/load': `from=${from}&to=${to}`, '/insights/comparison': 'groupBy=kind',
-    '/insights/records': `groupBy=kind&key=${ids.kindKey}`, '/bench/next': `benchId=${ids.settingBench}`,
+    '/board': `from=${from}&to=${to}`,
+    '/load': `from=${from}&to=${to}`,
+    '/insights/comparison': 'groupBy=kind',
+    '/insights/records': `groupBy=kind&key=${ids.kindKey}`,
+    '/bench/next': `benchId=${ids.settingBench}`,
   }
   return `/api${filled}${query[path] ? `?${query[path]}` : ''}`
 }
@@ -110,11 +116,23 @@ describe('one time format in every answer', () => {
     const roles = r.roles === 'public' ? ['owner'] : r.roles
     // The bench floor's reads as the setter (linked to a person); the rest as the most senior role allowed.
     // A station's own reads from the tablet made a bench station.
-    const agent = r.path.startsWith('/bench-station/') ? station : r.path.startsWith('/bench/') ? bench : roles.includes('owner') ? owner : roles.includes('manager') ? manager : bench
+    const agent = r.path.startsWith('/bench-station/')
+      ? station
+      : r.path.startsWith('/bench/')
+        ? bench
+        : roles.includes('owner')
+          ? owner
+          : roles.includes('manager')
+            ? manager
+            : bench
     const res = await agent.get(pathOf(r.path))
     expect(res.status, `${r.path} → ${res.status} ${JSON.stringify(res.body).slice(0, 300)}`).toBe(200)
     // JSON: every string in it; CSV: every cell (a spreadsheet reads a moment written another way as text or as local time).
-    const cells = (text: string) => text.split(/\r?\n/).flatMap((line) => line.split(',')).map((c) => c.replace(/^"|"$/g, ''))
+    const cells = (text: string) =>
+      text
+        .split(/\r?\n/)
+        .flatMap((line) => line.split(','))
+        .map((c) => c.replace(/^"|"$/g, ''))
     expect(res.type).toMatch(/json|csv/)
     expect(offenders(res.type.includes('json') ? res.body : cells(res.text))).toEqual([])
   })
@@ -123,7 +141,10 @@ describe('one time format in every answer', () => {
     const res = await owner.get(`/api/insights/records?groupBy=kind&key=${ids.kindKey}&format=csv`)
     expect(res.status, res.text.slice(0, 300)).toBe(200)
     expect(res.type).toMatch(/csv/)
-    const cells = res.text.split(/\r?\n/).flatMap((line) => line.split(',')).map((c) => c.replace(/^"|"$/g, ''))
+    const cells = res.text
+      .split(/\r?\n/)
+      .flatMap((line) => line.split(','))
+      .map((c) => c.replace(/^"|"$/g, ''))
     // Not vacuous: the records carry their start and end moments.
     expect(cells.filter((c) => LOOKS_LIKE_MOMENT.test(c)).length).toBeGreaterThan(0)
     expect(offenders(cells)).toEqual([])
@@ -145,7 +166,14 @@ describe('one time format in every answer', () => {
 
   it('when the checker itself meets PostgreSQL text or a naive time, then it flags them (the check can fail)', () => {
     // Hand-made answers: two bad moments, two good ones, one plain date.
-    expect(offenders({ a: '2026-12-17 09:39:00+00', b: [{ c: '2026-12-17T09:39:00' }], d: '2026-12-17T09:39:00.000Z', e: '2026-12-17T10:39:00+01:00', f: '2026-12-17' }))
-      .toEqual(['$.a = "2026-12-17 09:39:00+00"', '$.b[0].c = "2026-12-17T09:39:00"'])
+    expect(
+      offenders({
+        a: '2026-12-17 09:39:00+00',
+        b: [{ c: '2026-12-17T09:39:00' }],
+        d: '2026-12-17T09:39:00.000Z',
+        e: '2026-12-17T10:39:00+01:00',
+        f: '2026-12-17',
+      }),
+    ).toEqual(['$.a = "2026-12-17 09:39:00+00"', '$.b[0].c = "2026-12-17T09:39:00"'])
   })
 })

@@ -3,7 +3,12 @@ import { randomBytes } from 'node:crypto'
 import pg from 'pg'
 import { createDb, type Db } from '../../server/db/client'
 
-export interface TestDb { url: string; db: Db; pool: pg.Pool; drop(): Promise<void> }
+export interface TestDb {
+  url: string
+  db: Db
+  pool: pg.Pool
+  drop(): Promise<void>
+}
 
 function env() {
   const port = process.env.TEST_PG_PORT
@@ -40,7 +45,9 @@ export async function createTestDb(): Promise<TestDb> {
   const url = `postgres://postgres@127.0.0.1:${port}/${name}`
   const { db, pool } = createDb(url, 20)
   return {
-    url, db, pool,
+    url,
+    db,
+    pool,
     async drop() {
       await pool.end()
       await admin((c) => c.query(`drop database if exists ${name} with (force)`))

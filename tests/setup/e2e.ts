@@ -33,7 +33,16 @@ export function launchChromium(extraArgs: string[] = []): Promise<Browser> {
   return chromium.launch({
     executablePath: '/usr/bin/chromium',
     headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync', ...extraArgs],
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+      ...extraArgs,
+    ],
   })
 }
 
@@ -57,7 +66,8 @@ export async function startE2E(o: { env?: Record<string, string> } = {}): Promis
     url: server.url,
     browser,
     db,
-    newContext: (o = {}) => browser.newContext({ baseURL: server.url, viewport: o.viewport ?? { width: 1440, height: 900 }, locale: 'en-GB', timezoneId: 'Europe/London' }),
+    newContext: (o = {}) =>
+      browser.newContext({ baseURL: server.url, viewport: o.viewport ?? { width: 1440, height: 900 }, locale: 'en-GB', timezoneId: 'Europe/London' }),
     async close() {
       await browser.close().catch(() => undefined)
       await server.close().catch(() => undefined)
@@ -87,9 +97,15 @@ export function useE2E(o: { env?: Record<string, string> | (() => Record<string,
     return started
   }
   return {
-    get url() { return need().url },
-    get browser() { return need().browser },
-    get db() { return need().db },
+    get url() {
+      return need().url
+    },
+    get browser() {
+      return need().browser
+    },
+    get db() {
+      return need().db
+    },
     newContext: (c) => need().newContext(c),
     close: stop,
   }
@@ -106,7 +122,8 @@ export async function barBox(page: Page, id: number) {
   const el = page.locator(`.vis-item.board-bar[data-id="${id}"]`)
   if (!(await el.count())) return null
   const [box, panel] = await Promise.all([el.boundingBox(), page.locator('.vis-panel.vis-center').boundingBox()])
-  if (!box || !panel || box.x < panel.x || box.x + box.width > panel.x + panel.width || box.y < panel.y || box.y + box.height > panel.y + panel.height) return null
+  if (!box || !panel || box.x < panel.x || box.x + box.width > panel.x + panel.width || box.y < panel.y || box.y + box.height > panel.y + panel.height)
+    return null
   return box
 }
 

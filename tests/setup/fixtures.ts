@@ -13,13 +13,23 @@ export async function firstWorkshopId(db: Db): Promise<number> {
 
 /** The first customer (of one workshop, when given). */
 export async function firstCustomerId(db: Db, workshopId?: number): Promise<number> {
-  const [c] = await db.select({ id: s.customers.id }).from(s.customers).where(workshopId == null ? undefined : eq(s.customers.workshopId, workshopId)).orderBy(asc(s.customers.id)).limit(1)
+  const [c] = await db
+    .select({ id: s.customers.id })
+    .from(s.customers)
+    .where(workshopId == null ? undefined : eq(s.customers.workshopId, workshopId))
+    .orderBy(asc(s.customers.id))
+    .limit(1)
   return c!.id
 }
 
 /** A routing template by its code, or the first one. */
 export async function templateId(db: Db, code?: string): Promise<number> {
-  const [r] = await db.select({ id: s.routingTemplates.id }).from(s.routingTemplates).where(code == null ? undefined : eq(s.routingTemplates.code, code)).orderBy(asc(s.routingTemplates.id)).limit(1)
+  const [r] = await db
+    .select({ id: s.routingTemplates.id })
+    .from(s.routingTemplates)
+    .where(code == null ? undefined : eq(s.routingTemplates.code, code))
+    .orderBy(asc(s.routingTemplates.id))
+    .limit(1)
   if (!r) throw new Error(`no routing template ${code ?? ''} in the test database`)
   return r.id
 }
@@ -47,7 +57,10 @@ export async function personIdByEmail(db: Db, email: string): Promise<number> {
 export async function finishPredecessors(db: Db, operationId: number): Promise<number[]> {
   const [me] = await db.select({ jobBagId: s.operations.jobBagId }).from(s.operations).where(eq(s.operations.id, operationId))
   if (!me) throw new Error(`no operation ${operationId}`)
-  const ops = await db.select({ id: s.operations.id, key: s.operations.key, after: s.operations.after }).from(s.operations).where(eq(s.operations.jobBagId, me.jobBagId))
+  const ops = await db
+    .select({ id: s.operations.id, key: s.operations.key, after: s.operations.after })
+    .from(s.operations)
+    .where(eq(s.operations.jobBagId, me.jobBagId))
   const byKey = new Map(ops.map((o) => [o.key, o]))
   const seen = new Set<number>()
   const stack = [...ops.find((o) => o.id === operationId)!.after]
@@ -57,7 +70,11 @@ export async function finishPredecessors(db: Db, operationId: number): Promise<n
     seen.add(p.id)
     stack.push(...p.after)
   }
-  if (seen.size) await db.update(s.operations).set({ status: 'done', finishedAt: sql`now() - interval '1 day'` }).where(inArray(s.operations.id, [...seen]))
+  if (seen.size)
+    await db
+      .update(s.operations)
+      .set({ status: 'done', finishedAt: sql`now() - interval '1 day'` })
+      .where(inArray(s.operations.id, [...seen]))
   return [...seen]
 }
 
@@ -68,68 +85,159 @@ export async function readyStep(db: Db, operationId: number): Promise<void> {
 }
 
 /** Books an operation on the board: bench, person and times (ISO or Date). */
-export async function planStep(db: Db, operationId: number, at: { benchId: number | null; personId: number | null; start: string | Date; end: string | Date }): Promise<void> {
+export async function planStep(
+  db: Db,
+  operationId: number,
+  at: { benchId: number | null; personId: number | null; start: string | Date; end: string | Date },
+): Promise<void> {
   const iso = (d: string | Date) => (typeof d === 'string' ? d : d.toISOString())
-  await db.update(s.operations).set({ plannedBenchId: at.benchId, plannedPersonId: at.personId, plannedStart: iso(at.start), plannedEnd: iso(at.end) }).where(eq(s.operations.id, operationId))
+  await db
+    .update(s.operations)
+    .set({ plannedBenchId: at.benchId, plannedPersonId: at.personId, plannedStart: iso(at.start), plannedEnd: iso(at.end) })
+    .where(eq(s.operations.id, operationId))
 }
 
 const UNPLANNED = { plannedBenchId: null, plannedPersonId: null, plannedStart: null, plannedEnd: null }
 
 /** Takes operations off the board (all of them when no ids are given). */
 export async function unplanSteps(db: Db, ids?: number[]): Promise<void> {
-  await db.update(s.operations).set(UNPLANNED).where(ids ? inArray(s.operations.id, ids) : undefined)
+  await db
+    .update(s.operations)
+    .set(UNPLANNED)
+    .where(ids ? inArray(s.operations.id, ids) : undefined)
 }
 
 /** Takes every open, unpinned step off the board (what a first planner run starts from); running, finished and skipped ones keep their place. */
 export async function unplanOpenSteps(db: Db): Promise<void> {
-  await db.update(s.operations).set(UNPLANNED).where(and(notInArray(s.operations.status, ['running', 'done', 'skipped']), eq(s.operations.pinned, false)))
+  await db
+    .update(s.operations)
+    .set(UNPLANNED)
+    .where(and(notInArray(s.operations.status, ['running', 'done', 'skipped']), eq(s.operations.pinned, false)))
 }
 
 /** An open order's waiting or ready steps with no lead days, earliest first (the ones a promise check may book around). */
 export async function openStepIds(db: Db, o: { limit?: number; unplanned?: boolean } = {}): Promise<number[]> {
-  const q = db.select({ id: s.operations.id }).from(s.operations)
-    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-    .where(and(eq(s.orders.status, 'open'), inArray(s.operations.status, ['ready', 'pending']), eq(s.operations.leadDays, 0), o.unplanned ? isNull(s.operations.plannedStart) : undefined))
+  const q = db
+    .select({ id: s.operations.id })
+    .from(s.operations)
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .where(
+      and(
+        eq(s.orders.status, 'open'),
+        inArray(s.operations.status, ['ready', 'pending']),
+        eq(s.operations.leadDays, 0),
+        o.unplanned ? isNull(s.operations.plannedStart) : undefined,
+      ),
+    )
     .orderBy(asc(s.operations.id))
   return (await (o.limit ? q.limit(o.limit) : q)).map((r) => r.id)
 }
 
 /** An open, ready bench step of the demo (not outside work) with a person skilled for it and a bench that hosts it. */
-export async function readyBenchStep(db: Db, skip: number[] = []): Promise<{ id: number; kindId: number; number: string; estimate: number; personId: number; benchId: number }> {
-  const [op] = await db.select({ id: s.operations.id, kindId: s.operations.kindId, requiredLevel: s.operations.requiredLevel, estimate: s.operations.estimateMinutes, number: s.jobBags.number })
-    .from(s.operations).innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId)).innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId)).innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
-    .where(and(eq(s.operations.status, 'ready'), eq(s.orders.status, 'open'), eq(s.operationKinds.outside, false), eq(s.operations.leadDays, 0), skip.length ? notInArray(s.operations.id, skip) : undefined))
-    .orderBy(asc(s.operations.id)).limit(1)
+export async function readyBenchStep(
+  db: Db,
+  skip: number[] = [],
+): Promise<{ id: number; kindId: number; number: string; estimate: number; personId: number; benchId: number }> {
+  const [op] = await db
+    .select({
+      id: s.operations.id,
+      kindId: s.operations.kindId,
+      requiredLevel: s.operations.requiredLevel,
+      estimate: s.operations.estimateMinutes,
+      number: s.jobBags.number,
+    })
+    .from(s.operations)
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    .where(
+      and(
+        eq(s.operations.status, 'ready'),
+        eq(s.orders.status, 'open'),
+        eq(s.operationKinds.outside, false),
+        eq(s.operations.leadDays, 0),
+        skip.length ? notInArray(s.operations.id, skip) : undefined,
+      ),
+    )
+    .orderBy(asc(s.operations.id))
+    .limit(1)
   if (!op) throw new Error('no ready bench step left in the test database')
-  const [who] = await db.select({ personId: s.personSkills.personId }).from(s.personSkills).innerJoin(s.people, eq(s.people.id, s.personSkills.personId))
-    .where(and(eq(s.personSkills.kindId, op.kindId), gte(s.personSkills.level, op.requiredLevel), eq(s.people.active, true))).orderBy(asc(s.personSkills.personId)).limit(1)
-  const [where] = await db.select({ benchId: s.benchCapabilities.benchId }).from(s.benchCapabilities).innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId))
-    .where(and(eq(s.benchCapabilities.kindId, op.kindId), eq(s.benches.active, true))).orderBy(asc(s.benchCapabilities.benchId)).limit(1)
+  const [who] = await db
+    .select({ personId: s.personSkills.personId })
+    .from(s.personSkills)
+    .innerJoin(s.people, eq(s.people.id, s.personSkills.personId))
+    .where(and(eq(s.personSkills.kindId, op.kindId), gte(s.personSkills.level, op.requiredLevel), eq(s.people.active, true)))
+    .orderBy(asc(s.personSkills.personId))
+    .limit(1)
+  const [where] = await db
+    .select({ benchId: s.benchCapabilities.benchId })
+    .from(s.benchCapabilities)
+    .innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId))
+    .where(and(eq(s.benchCapabilities.kindId, op.kindId), eq(s.benches.active, true)))
+    .orderBy(asc(s.benchCapabilities.benchId))
+    .limit(1)
   return { id: op.id, kindId: op.kindId, number: op.number, estimate: op.estimate, personId: who!.personId, benchId: where!.benchId }
 }
 
 /** A workshop of its own (London time, Monday 09:00–17:00 unless told) with the given users. */
-export async function addWorkshop(db: Db, o: { name: string; weekPattern?: (typeof s.workshops.$inferInsert)['weekPattern']; users?: { email: string; name: string; role: 'owner' | 'manager' | 'bench' | 'sales'; passwordHash: string }[] }): Promise<{ workshopId: number; userIds: number[] }> {
-  const [w] = await db.insert(s.workshops).values({ name: o.name, timeZone: 'Europe/London', weekPattern: o.weekPattern ?? [{ weekday: 1, start: '09:00', end: '17:00' }] }).returning({ id: s.workshops.id })
-  const users = o.users?.length ? await db.insert(s.users).values(o.users.map((u) => ({ ...u, workshopId: w!.id }))).returning({ id: s.users.id }) : []
+export async function addWorkshop(
+  db: Db,
+  o: {
+    name: string
+    weekPattern?: (typeof s.workshops.$inferInsert)['weekPattern']
+    users?: { email: string; name: string; role: 'owner' | 'manager' | 'bench' | 'sales'; passwordHash: string }[]
+  },
+): Promise<{ workshopId: number; userIds: number[] }> {
+  const [w] = await db
+    .insert(s.workshops)
+    .values({ name: o.name, timeZone: 'Europe/London', weekPattern: o.weekPattern ?? [{ weekday: 1, start: '09:00', end: '17:00' }] })
+    .returning({ id: s.workshops.id })
+  const users = o.users?.length
+    ? await db
+        .insert(s.users)
+        .values(o.users.map((u) => ({ ...u, workshopId: w!.id })))
+        .returning({ id: s.users.id })
+    : []
   return { workshopId: w!.id, userIds: users.map((u) => u.id) }
 }
 
 /** A person at a bench (with an account when userId is given) and their skills by operation kind code. */
-export async function addPerson(db: Db, o: { workshopId: number; name: string; userId?: number; skills?: { codes: string[]; level: number; speed?: number } }): Promise<number> {
-  const [p] = await db.insert(s.people).values({ workshopId: o.workshopId, name: o.name, userId: o.userId ?? null }).returning({ id: s.people.id })
+export async function addPerson(
+  db: Db,
+  o: { workshopId: number; name: string; userId?: number; skills?: { codes: string[]; level: number; speed?: number } },
+): Promise<number> {
+  const [p] = await db
+    .insert(s.people)
+    .values({ workshopId: o.workshopId, name: o.name, userId: o.userId ?? null })
+    .returning({ id: s.people.id })
   if (o.skills) {
-    const kinds = await db.select({ id: s.operationKinds.id }).from(s.operationKinds).where(and(eq(s.operationKinds.workshopId, o.workshopId), inArray(s.operationKinds.code, o.skills.codes)))
-    if (kinds.length) await db.insert(s.personSkills).values(kinds.map((k) => ({ personId: p!.id, kindId: k.id, level: o.skills!.level, speed: o.skills!.speed ?? 1 })))
+    const kinds = await db
+      .select({ id: s.operationKinds.id })
+      .from(s.operationKinds)
+      .where(and(eq(s.operationKinds.workshopId, o.workshopId), inArray(s.operationKinds.code, o.skills.codes)))
+    if (kinds.length)
+      await db.insert(s.personSkills).values(kinds.map((k) => ({ personId: p!.id, kindId: k.id, level: o.skills!.level, speed: o.skills!.speed ?? 1 })))
   }
   return p!.id
 }
 
 /** The first open order (skipping `offset`) and its first job bag. */
 export async function openOrder(db: Db, offset = 0): Promise<{ id: number; number: string; version: number; bagId: number; bagNumber: string }> {
-  const [o] = await db.select({ id: s.orders.id, number: s.orders.number, version: s.orders.version }).from(s.orders).where(eq(s.orders.status, 'open')).orderBy(asc(s.orders.id)).offset(offset).limit(1)
+  const [o] = await db
+    .select({ id: s.orders.id, number: s.orders.number, version: s.orders.version })
+    .from(s.orders)
+    .where(eq(s.orders.status, 'open'))
+    .orderBy(asc(s.orders.id))
+    .offset(offset)
+    .limit(1)
   if (!o) throw new Error('no open order left in the test database')
-  const [b] = await db.select({ id: s.jobBags.id, number: s.jobBags.number }).from(s.jobBags).where(eq(s.jobBags.orderId, o.id)).orderBy(asc(s.jobBags.id)).limit(1)
+  const [b] = await db
+    .select({ id: s.jobBags.id, number: s.jobBags.number })
+    .from(s.jobBags)
+    .where(eq(s.jobBags.orderId, o.id))
+    .orderBy(asc(s.jobBags.id))
+    .limit(1)
   return { ...o, bagId: b!.id, bagNumber: b!.number }
 }
 
@@ -137,13 +245,26 @@ export async function openOrder(db: Db, offset = 0): Promise<{ id: number; numbe
  * Books a job bag's last bench step on the live plan past its order's promised date: on the first bench and person, `minutes` of their
  * shared working time from `fromMinute` working-calendar minutes after now, and the order promised on the date `promised(end)` gives.
  */
-export async function bookLastStepLate(db: Db, o: { workshopId: number; orderId: number; bagId: number; fromMinute?: number; minutes?: number; promised: (end: Date) => string }): Promise<{ operationId: number; start: Date; end: Date }> {
+export async function bookLastStepLate(
+  db: Db,
+  o: { workshopId: number; orderId: number; bagId: number; fromMinute?: number; minutes?: number; promised: (end: Date) => string },
+): Promise<{ operationId: number; start: Date; end: Date }> {
   const data = await loadPlanningData(db, o.workshopId, new Date())
-  const b = data.problem.benches[0]!, p = data.problem.people[0]!
+  const b = data.problem.benches[0]!,
+    p = data.problem.people[0]!
   const segs = walkWorkingTime(intersect(b.available, p.available), data.problem.now + (o.fromMinute ?? 0), o.minutes ?? 60)!
-  const start = data.clock.toDate(segs[0]!.start), end = data.clock.toDate(segs.at(-1)!.end)
-  await db.update(s.orders).set({ promisedDate: o.promised(end) }).where(eq(s.orders.id, o.orderId))
-  const [op] = await db.select({ id: s.operations.id }).from(s.operations).where(and(eq(s.operations.jobBagId, o.bagId), eq(s.operations.leadDays, 0))).orderBy(desc(s.operations.seq)).limit(1)
+  const start = data.clock.toDate(segs[0]!.start),
+    end = data.clock.toDate(segs.at(-1)!.end)
+  await db
+    .update(s.orders)
+    .set({ promisedDate: o.promised(end) })
+    .where(eq(s.orders.id, o.orderId))
+  const [op] = await db
+    .select({ id: s.operations.id })
+    .from(s.operations)
+    .where(and(eq(s.operations.jobBagId, o.bagId), eq(s.operations.leadDays, 0)))
+    .orderBy(desc(s.operations.seq))
+    .limit(1)
   await planStep(db, op!.id, { benchId: Number(b.id), personId: Number(p.id), start, end })
   return { operationId: op!.id, start, end }
 }

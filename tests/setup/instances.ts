@@ -63,5 +63,13 @@ export async function startInstances(n: number, o: StartOptions = {}): Promise<I
     await stop()
     throw err
   }
-  return { database, instances, get proxyUrl() { return proxy?.url ?? null }, add, stop }
+  return {
+    database,
+    instances,
+    get proxyUrl() {
+      return proxy?.url ?? null
+    },
+    add,
+    stop,
+  }
 }

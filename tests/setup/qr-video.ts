@@ -17,7 +17,8 @@ export function qrVideo(text: string, o: { width: number; height: number; module
   for (let r = 0; r < n; r++) {
     for (let c = 0; c < n; c++) {
       if (!qr.modules.get(r, c)) continue
-      for (let dy = 0; dy < o.modulePx; dy++) y.fill(0, (y0 + r * o.modulePx + dy) * o.width + x0 + c * o.modulePx, (y0 + r * o.modulePx + dy) * o.width + x0 + (c + 1) * o.modulePx)
+      for (let dy = 0; dy < o.modulePx; dy++)
+        y.fill(0, (y0 + r * o.modulePx + dy) * o.width + x0 + c * o.modulePx, (y0 + r * o.modulePx + dy) * o.width + x0 + (c + 1) * o.modulePx)
     }
   }
   const chroma = Buffer.alloc((o.width / 2) * (o.height / 2), 128)

@@ -1,7 +1,18 @@
 // Job costing arithmetic in minor units against hand-worked examples: metal at the price of the day issued, loss, stones, outside work, labour, margins.
 import { describe, expect, it } from 'vitest'
 import {
-  ALL_COUNTED, addBreakdowns, breakdown, labourMinor, margin, marginCaveat, metalActual, metalMinor, mulDivRound, roundHalfAway, stonesMinor, suggestedPriceMinor,
+  ALL_COUNTED,
+  addBreakdowns,
+  breakdown,
+  labourMinor,
+  margin,
+  marginCaveat,
+  metalActual,
+  metalMinor,
+  mulDivRound,
+  roundHalfAway,
+  stonesMinor,
+  suggestedPriceMinor,
 } from '../../shared/domain/costing'
 
 describe('rounding', () => {
@@ -46,7 +57,12 @@ describe('a job costed by hand', () => {
     // 8 g of the customer's old gold covers the 6.20 g piece and the 0.15 g loss: nothing charged, 150 mg of their metal lost.
     expect(metalActual({ pieceMg: 6200, lossMg: 150, customerMg: 8000, pricePerGramMinor: 5234 })).toMatchObject({ minor: 0, customerLossMg: 150 })
     // 6 g of theirs: the piece takes it and 0.20 g of stock (200 × 5,234 / 1,000 = 1,046.8 → 1,047 p); the loss is stock metal: 785 p.
-    expect(metalActual({ pieceMg: 6200, lossMg: 150, customerMg: 6000, pricePerGramMinor: 5234 })).toMatchObject({ pieceMinor: 1047, lossMinor: 785, minor: 1832, customerLossMg: 0 })
+    expect(metalActual({ pieceMg: 6200, lossMg: 150, customerMg: 6000, pricePerGramMinor: 5234 })).toMatchObject({
+      pieceMinor: 1047,
+      lossMinor: 785,
+      minor: 1832,
+      customerLossMg: 0,
+    })
   })
 
   it('when nothing is missing, then the margin says all four are counted; otherwise it names only what is missing', () => {

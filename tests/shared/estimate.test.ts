@@ -5,8 +5,26 @@ import * as ss from 'simple-statistics'
 import jstatPkg from 'jstat'
 import { describe, expect, it } from 'vitest'
 import {
-  learningExponent, leastSquares, median, medianAbsoluteDeviation, pertMean, pertVariance, quantile, ratioOfMedians, sizeBandFactor, sizeBandOf,
-  routingStepMinutes, stepMinutes, theilSen, threePointEstimate, unitCurveTime, unitCurveTotal, unitMinutes, wrightCumulativeAverage, wrightMarginalUnit, wrightTotal,
+  learningExponent,
+  leastSquares,
+  median,
+  medianAbsoluteDeviation,
+  pertMean,
+  pertVariance,
+  quantile,
+  ratioOfMedians,
+  sizeBandFactor,
+  sizeBandOf,
+  routingStepMinutes,
+  stepMinutes,
+  theilSen,
+  threePointEstimate,
+  unitCurveTime,
+  unitCurveTotal,
+  unitMinutes,
+  wrightCumulativeAverage,
+  wrightMarginalUnit,
+  wrightTotal,
   type Point,
 } from '../../shared/domain/estimate'
 
@@ -35,13 +53,20 @@ describe('PERT three-point estimates', () => {
   it('when the PERT mean is compared with the mean of the PERT beta distribution (jstat), then they agree', () => {
     // jstat beta.mean: the PERT beta has α = 1 + 4(m − a)/(b − a), β = 1 + 4(b − m)/(b − a) on [a, b]; its mean is (a + 4m + b)/6.
     // (The variance ((b − a)/6)² is the 1959 approximation, not the beta's own variance, so only the mean is cross-checked.)
-    fc.assert(fc.property(fc.double({ min: 0, max: 100, noNaN: true }), fc.double({ min: 0.01, max: 1, noNaN: true }), fc.double({ min: 0, max: 1, noNaN: true }), (a, width, pos) => {
-      const b = a + width * 100
-      const m = a + (b - a) * pos
-      const alpha = 1 + (4 * (m - a)) / (b - a)
-      const beta = 1 + (4 * (b - m)) / (b - a)
-      expect(pertMean(a, m, b)).toBeCloseTo(a + (b - a) * jStat.beta.mean(alpha, beta), 8)
-    }))
+    fc.assert(
+      fc.property(
+        fc.double({ min: 0, max: 100, noNaN: true }),
+        fc.double({ min: 0.01, max: 1, noNaN: true }),
+        fc.double({ min: 0, max: 1, noNaN: true }),
+        (a, width, pos) => {
+          const b = a + width * 100
+          const m = a + (b - a) * pos
+          const alpha = 1 + (4 * (m - a)) / (b - a)
+          const beta = 1 + (4 * (b - m)) / (b - a)
+          expect(pertMean(a, m, b)).toBeCloseTo(a + (b - a) * jStat.beta.mean(alpha, beta), 8)
+        },
+      ),
+    )
   })
 
   it('when the figures are out of order, then no estimate is made', () => {
@@ -102,7 +127,9 @@ describe('the step model', () => {
   it('when a run is learned and a faster person does it, then Wright’s total is divided by the speed', () => {
     // 40 pairs at 4 min, 90 % curve: 4 × 40^(1 + log₂0.9) (Wright 1936), then ÷ 1.1 (planned = estimate ÷ speed).
     const expected = (4 * 40 ** (1 + Math.log2(0.9))) / 1.1
-    expect(stepMinutes({ baseMinutes: 4, perStoneMinutes: 0 }, { stoneCount: 0, stoneSizeMm: 0, sizeMm: 0, quantity: 40 }, { learningRate: 0.9, speed: 1.1 })).toBeCloseTo(expected, 1)
+    expect(
+      stepMinutes({ baseMinutes: 4, perStoneMinutes: 0 }, { stoneCount: 0, stoneSizeMm: 0, sizeMm: 0, quantity: 40 }, { learningRate: 0.9, speed: 1.1 }),
+    ).toBeCloseTo(expected, 1)
   })
 })
 
@@ -134,7 +161,7 @@ describe('robust statistics', () => {
   it('when setting jobs include "left on the bench overnight" outliers, then least squares is pulled and Theil–Sen keeps the per-stone rate', () => {
     // Seed-like data: 30 + 7 min per stone, ±15 % noise, 3 of 60 jobs with +300…700 min overnight (server/db/seed.ts).
     const pts: Point[] = Array.from({ length: 60 }, (_, i) => {
-      const x = 1 + (i * 7) % 30
+      const x = 1 + ((i * 7) % 30)
       return { x, y: (30 + 7 * x) * (0.85 + 0.3 * r()) }
     })
     const clean = theilSen(pts).slope
@@ -149,26 +176,32 @@ describe('robust statistics', () => {
 
   it('when up to 5 % huge outliers are added, then the fitted per-stone rate moves by less than 10 % (property)', () => {
     // Property (fast-check): Theil–Sen's breakdown point is about 29 % (Sen 1968), so 5 % wild points barely move the slope.
-    fc.assert(fc.property(
-      fc.integer({ min: 40, max: 160 }), fc.double({ min: 2, max: 12, noNaN: true }), fc.double({ min: 5, max: 60, noNaN: true }),
-      fc.double({ min: 0, max: 0.05, noNaN: true }), fc.integer({ min: 1, max: 2 ** 31 - 1 }),
-      (n, rate, base, share, seed) => {
-        const g = rng(seed)
-        const pts: Point[] = Array.from({ length: n }, () => {
-          const x = 1 + Math.floor(g() * 30)
-          return { x, y: (base + rate * x) * (0.9 + 0.2 * g()) }
-        })
-        const before = theilSen(pts).slope
-        const k = Math.floor(n * share)
-        const dirty = [...pts]
-        for (let i = 0; i < k; i++) {
-          const j = Math.floor(g() * n)
-          dirty[j] = { x: dirty[j]!.x, y: dirty[j]!.y + 300 + 400 * g() }
-        }
-        const after = theilSen(dirty).slope
-        expect(Math.abs(after - before) / before).toBeLessThan(0.1)
-      },
-    ), { numRuns: 200, seed: 20261202 })
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 40, max: 160 }),
+        fc.double({ min: 2, max: 12, noNaN: true }),
+        fc.double({ min: 5, max: 60, noNaN: true }),
+        fc.double({ min: 0, max: 0.05, noNaN: true }),
+        fc.integer({ min: 1, max: 2 ** 31 - 1 }),
+        (n, rate, base, share, seed) => {
+          const g = rng(seed)
+          const pts: Point[] = Array.from({ length: n }, () => {
+            const x = 1 + Math.floor(g() * 30)
+            return { x, y: (base + rate * x) * (0.9 + 0.2 * g()) }
+          })
+          const before = theilSen(pts).slope
+          const k = Math.floor(n * share)
+          const dirty = [...pts]
+          for (let i = 0; i < k; i++) {
+            const j = Math.floor(g() * n)
+            dirty[j] = { x: dirty[j]!.x, y: dirty[j]!.y + 300 + 400 * g() }
+          }
+          const after = theilSen(dirty).slope
+          expect(Math.abs(after - before) / before).toBeLessThan(0.1)
+        },
+      ),
+      { numRuns: 200, seed: 20261202 },
+    )
   })
 
   it('when actual times run 20 % over, then the ratio of medians says 1.2 and outliers do not change it much', () => {

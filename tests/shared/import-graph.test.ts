@@ -54,18 +54,31 @@ function graph(): Map<string, string[]> {
 /** Cycles as strongly connected components of more than one module (Tarjan), or a module importing itself. */
 function cycles(edges: Map<string, string[]>): string[][] {
   let index = 0
-  const idx = new Map<string, number>(), low = new Map<string, number>(), stack: string[] = [], on = new Set<string>(), out: string[][] = []
+  const idx = new Map<string, number>(),
+    low = new Map<string, number>(),
+    stack: string[] = [],
+    on = new Set<string>(),
+    out: string[][] = []
   const visit = (v: string): void => {
-    idx.set(v, index); low.set(v, index); index++
-    stack.push(v); on.add(v)
+    idx.set(v, index)
+    low.set(v, index)
+    index++
+    stack.push(v)
+    on.add(v)
     for (const w of edges.get(v) ?? []) {
-      if (!idx.has(w)) { visit(w); low.set(v, Math.min(low.get(v)!, low.get(w)!)) }
-      else if (on.has(w)) low.set(v, Math.min(low.get(v)!, idx.get(w)!))
+      if (!idx.has(w)) {
+        visit(w)
+        low.set(v, Math.min(low.get(v)!, low.get(w)!))
+      } else if (on.has(w)) low.set(v, Math.min(low.get(v)!, idx.get(w)!))
     }
     if (low.get(v) === idx.get(v)) {
       const scc: string[] = []
       let w: string
-      do { w = stack.pop()!; on.delete(w); scc.push(w) } while (w !== v)
+      do {
+        w = stack.pop()!
+        on.delete(w)
+        scc.push(w)
+      } while (w !== v)
       if (scc.length > 1 || (edges.get(v) ?? []).includes(v)) out.push(scc.map((f) => relative(root, f)).sort())
     }
   }
@@ -83,16 +96,31 @@ describe('import graph', () => {
     expect(cycles(edges)).toEqual([])
   })
 
-  it('when the stores\' imports are resolved, then none is a component or a view (pure helpers live in src/lib)', () => {
+  it("when the stores' imports are resolved, then none is a component or a view (pure helpers live in src/lib)", () => {
     const edges = graph()
     const stores = [...edges.keys()].filter((f) => relative(root, f).startsWith('src/stores/'))
     expect(stores.length).toBeGreaterThan(10)
-    const ui = stores.flatMap((f) => (edges.get(f) ?? []).map((t) => relative(root, t)).filter((t) => t.startsWith('src/components/') || t.startsWith('src/views/')).map((t) => `${relative(root, f)} → ${t}`))
+    const ui = stores.flatMap((f) =>
+      (edges.get(f) ?? [])
+        .map((t) => relative(root, t))
+        .filter((t) => t.startsWith('src/components/') || t.startsWith('src/views/'))
+        .map((t) => `${relative(root, f)} → ${t}`),
+    )
     expect(ui).toEqual([])
   })
 
   it('when two modules import each other, then the check reports them (the checker itself can fail)', () => {
-    const a = '/x/a.ts', b = '/x/b.ts', c = '/x/c.ts'
-    expect(cycles(new Map([[a, [b]], [b, [a, c]], [c, []]])).map((s) => s.length)).toEqual([2])
+    const a = '/x/a.ts',
+      b = '/x/b.ts',
+      c = '/x/c.ts'
+    expect(
+      cycles(
+        new Map([
+          [a, [b]],
+          [b, [a, c]],
+          [c, []],
+        ]),
+      ).map((s) => s.length),
+    ).toEqual([2])
   })
 })

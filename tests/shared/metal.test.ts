@@ -18,13 +18,20 @@ describe('casting and conversion', () => {
 
   it('when 14K is 583 gold, 104 silver and 313 copper by weight, then its density is 13.33 within 2 %', () => {
     // tmtpages, "How to Determine Approximate Specific Gravities of Alloys": 14K example → 13.33; element densities from the CRC Handbook.
-    const rho = alloyDensity([{ weight: 583, density: 19.32 }, { weight: 104, density: 10.49 }, { weight: 313, density: 8.96 }])
+    const rho = alloyDensity([
+      { weight: 583, density: 19.32 },
+      { weight: 104, density: 10.49 },
+      { weight: 313, density: 8.96 },
+    ])
     expect(Math.abs(rho - 13.33) / 13.33).toBeLessThan(0.02)
   })
 
   it('when sterling is 925 silver and 75 copper, then its density is 10.36 within 2 %', () => {
     // TRADE.md (tmtpages method, Rio Grande figure for sterling 10.36).
-    const rho = alloyDensity([{ weight: 925, density: 10.49 }, { weight: 75, density: 8.96 }])
+    const rho = alloyDensity([
+      { weight: 925, density: 10.49 },
+      { weight: 75, density: 8.96 },
+    ])
     expect(Math.abs(rho - 10.36) / 10.36).toBeLessThan(0.02)
   })
 })
@@ -50,8 +57,15 @@ describe('fine weight and loss', () => {
 describe('hallmarking thresholds', () => {
   // Hallmarking Convention, "Country profile – United Kingdom": not compulsory below platinum 0.5 g, gold 1 g, palladium 1 g, silver 7.78 g.
   it.each([
-    ['platinum', 0.49, false], ['platinum', 0.5, true], ['gold', 0.99, false], ['gold', 1, true],
-    ['palladium', 0.99, false], ['palladium', 1, true], ['silver', 7.77, false], ['silver', 7.78, true], ['base', 500, false],
+    ['platinum', 0.49, false],
+    ['platinum', 0.5, true],
+    ['gold', 0.99, false],
+    ['gold', 1, true],
+    ['palladium', 0.99, false],
+    ['palladium', 1, true],
+    ['silver', 7.77, false],
+    ['silver', 7.78, true],
+    ['base', 500, false],
   ] as const)('when a %s piece weighs %s g, then hallmarking is compulsory: %s', (metal, g, expected) => {
     expect(needsHallmark(metal, g)).toBe(expected)
   })
@@ -60,16 +74,28 @@ describe('hallmarking thresholds', () => {
 describe('fineness and weight validation', () => {
   const base = { code: 'x', name: 'X', densityGPerCm3: 15 }
   // UK legal standards (Hallmarking Convention, UK profile): gold 999, 990, 916, 750, 585, 375; silver 999, 958, 925, 800.
-  it.each([['gold', 750], ['gold', 375], ['gold', 585], ['silver', 925], ['silver', 958], ['platinum', 950], ['palladium', 500]] as const)(
-    'when %s is %s ‰, then the alloy is accepted', (metal, fineness) => {
-      expect(alloyInput.safeParse({ ...base, metal, fineness }).success).toBe(true)
-    })
-  it.each([['gold', 583], ['gold', 925], ['silver', 750], ['platinum', 585], ['palladium', 900]] as const)(
-    'when %s is %s ‰, then the fineness field is refused', (metal, fineness) => {
-      const r = alloyInput.safeParse({ ...base, metal, fineness })
-      expect(r.success).toBe(false)
-      expect(r.error!.issues.map((i) => i.path.join('.'))).toContain('fineness')
-    })
+  it.each([
+    ['gold', 750],
+    ['gold', 375],
+    ['gold', 585],
+    ['silver', 925],
+    ['silver', 958],
+    ['platinum', 950],
+    ['palladium', 500],
+  ] as const)('when %s is %s ‰, then the alloy is accepted', (metal, fineness) => {
+    expect(alloyInput.safeParse({ ...base, metal, fineness }).success).toBe(true)
+  })
+  it.each([
+    ['gold', 583],
+    ['gold', 925],
+    ['silver', 750],
+    ['platinum', 585],
+    ['palladium', 900],
+  ] as const)('when %s is %s ‰, then the fineness field is refused', (metal, fineness) => {
+    const r = alloyInput.safeParse({ ...base, metal, fineness })
+    expect(r.success).toBe(false)
+    expect(r.error!.issues.map((i) => i.path.join('.'))).toContain('fineness')
+  })
   it.each([0, -1, 1.234])('when the weight is %s g, then weightG is refused', (weightG) => {
     const r = issueInput.safeParse({ jobBagId: 1, alloyId: 1, personId: 1, weightG })
     expect(r.success).toBe(false)

@@ -1,6 +1,17 @@
 // Ring sizes: ISO 8653 circumference and diameter, the US/Canada formula, and the pinned UK/Australia letter chart.
 import { describe, expect, it } from 'vitest'
-import { UK_LETTER_CHART, isoToDiameterMm, isoToUk, isoToUs, ringSizeAll, ringSizeToIso, ukIndex, ukToIso, usToDiameterMm, usToIso } from '../../shared/domain/ring-size'
+import {
+  UK_LETTER_CHART,
+  isoToDiameterMm,
+  isoToUk,
+  isoToUs,
+  ringSizeAll,
+  ringSizeToIso,
+  ukIndex,
+  ukToIso,
+  usToDiameterMm,
+  usToIso,
+} from '../../shared/domain/ring-size'
 
 describe('ISO 8653 and US sizes', () => {
   it('when the ISO size is 54, then the inner diameter is 17.2 mm', () => {
@@ -31,9 +42,36 @@ describe('ISO 8653 and US sizes', () => {
 // The pinned chart, as published: just-color.com "Ring Size Chart" (2021), US & Canada column against the UK & Aus. column,
 // A to P (the rows of the older Wikipedia "Ring size" conversion chart). Each UK letter with its US size on the same row.
 const PUBLISHED_UK_US: [string, number][] = [
-  ['A', 0.5], ['A½', 0.75], ['B', 1], ['B½', 1.25], ['C', 1.5], ['C½', 1.75], ['D', 2], ['D½', 2.25], ['E', 2.5], ['E½', 2.75], ['F', 3], ['F½', 3.25],
-  ['G', 3.5], ['G½', 3.75], ['H', 4], ['H½', 4.25], ['I', 4.5], ['J', 4.75], ['J½', 5], ['K', 5.25], ['K½', 5.5], ['L', 5.75], ['L½', 6], ['M', 6.25],
-  ['M½', 6.5], ['N', 6.75], ['N½', 7], ['O', 7.25], ['O½', 7.5], ['P', 7.75],
+  ['A', 0.5],
+  ['A½', 0.75],
+  ['B', 1],
+  ['B½', 1.25],
+  ['C', 1.5],
+  ['C½', 1.75],
+  ['D', 2],
+  ['D½', 2.25],
+  ['E', 2.5],
+  ['E½', 2.75],
+  ['F', 3],
+  ['F½', 3.25],
+  ['G', 3.5],
+  ['G½', 3.75],
+  ['H', 4],
+  ['H½', 4.25],
+  ['I', 4.5],
+  ['J', 4.75],
+  ['J½', 5],
+  ['K', 5.25],
+  ['K½', 5.5],
+  ['L', 5.75],
+  ['L½', 6],
+  ['M', 6.25],
+  ['M½', 6.5],
+  ['N', 6.75],
+  ['N½', 7],
+  ['O', 7.25],
+  ['O½', 7.5],
+  ['P', 7.75],
 ]
 
 describe('UK / Australia letters', () => {
@@ -44,10 +82,13 @@ describe('UK / Australia letters', () => {
     expect(Math.abs(ukIndex(got!) - ukIndex(letter))).toBeLessThanOrEqual(1)
   })
 
-  it.each(UK_LETTER_CHART.map(([l, c]) => [l, c] as const))('when UK %s is entered, then its circumference %s mm reads back as the same letter', (letter, circ) => {
-    expect(ukToIso(letter)).toBe(circ)
-    expect(isoToUk(circ)).toBe(letter)
-  })
+  it.each(UK_LETTER_CHART.map(([l, c]) => [l, c] as const))(
+    'when UK %s is entered, then its circumference %s mm reads back as the same letter',
+    (letter, circ) => {
+      expect(ukToIso(letter)).toBe(circ)
+      expect(isoToUk(circ)).toBe(letter)
+    },
+  )
 
   it('when every letter of the chart past P is checked against the US formula, then each lies within ½ letter of a quarter US size', () => {
     // From memory beyond P (one half letter per quarter US size): each circumference should be within half a step (0.32 mm) of π × 25.4 × (0.458 + 0.032 × us) for a quarter size.

@@ -28,7 +28,14 @@ describe('rule book', () => {
   })
 
   it('when times are written by the caller, then the message uses its words (the board writes local time, the engine minutes)', () => {
-    const v = rules.doubleBooking(step, { resource: 'person', name: 'Ada', other: { name: 'Solder bail', bag: 'JB-0007' }, from: 540, to: 600, when: (m) => `${Math.floor(m / 60)}:${String(m % 60).padStart(2, '0')}` })
+    const v = rules.doubleBooking(step, {
+      resource: 'person',
+      name: 'Ada',
+      other: { name: 'Solder bail', bag: 'JB-0007' },
+      from: 540,
+      to: 600,
+      when: (m) => `${Math.floor(m / 60)}:${String(m % 60).padStart(2, '0')}`,
+    })
     expect(v.rule).toBe('person double booking')
     expect(v.message).toBe('Ada is booked for “Solder bail” of JB-0007 9:00–10:00, the same time as “Set centre stone” of JB-0042.')
   })
@@ -46,6 +53,10 @@ describe('rule book', () => {
   })
 
   it('every rule is hard except the due date', () => {
-    expect(Object.entries(rules.RULES).filter(([, s]) => s === 'soft').map(([r]) => r)).toEqual(['due date'])
+    expect(
+      Object.entries(rules.RULES)
+        .filter(([, s]) => s === 'soft')
+        .map(([r]) => r),
+    ).toEqual(['due date'])
   })
 })

@@ -6,41 +6,67 @@ import { operations, routingTemplates } from './work'
 import { users, workshops } from './workshop'
 
 /** What a learned figure rested on when it was accepted: history size, dates, spread, method. */
-export interface EstimateBasis { n: number; from: string | null; to: string | null; method: string; spread: Record<string, number> }
+export interface EstimateBasis {
+  n: number
+  from: string | null
+  to: string | null
+  method: string
+  spread: Record<string, number>
+}
 
 /** Each accepted change of a template step's minutes (from learned actual times), with who accepted it and when. */
-export const templateStepChanges = pgTable('template_step_changes', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  templateId: integer().notNull().references(() => routingTemplates.id, { onDelete: 'cascade' }),
-  stepKey: text().notNull(),
-  kindId: integer().notNull().references(() => operationKinds.id),
-  fromBaseMinutes: real().notNull(),
-  fromPerStoneMinutes: real().notNull(),
-  toBaseMinutes: real().notNull(),
-  toPerStoneMinutes: real().notNull(),
-  /** Template version after the change. */
-  templateVersion: integer().notNull(),
-  basis: jsonb().$type<EstimateBasis>().notNull(),
-  reason: text().notNull().default(''),
-  acceptedBy: integer().notNull().references(() => users.id),
-  createdAt: createdAt(),
-}, (t) => [index().on(t.workshopId, t.templateId)])
+export const templateStepChanges = pgTable(
+  'template_step_changes',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    templateId: integer()
+      .notNull()
+      .references(() => routingTemplates.id, { onDelete: 'cascade' }),
+    stepKey: text().notNull(),
+    kindId: integer()
+      .notNull()
+      .references(() => operationKinds.id),
+    fromBaseMinutes: real().notNull(),
+    fromPerStoneMinutes: real().notNull(),
+    toBaseMinutes: real().notNull(),
+    toPerStoneMinutes: real().notNull(),
+    /** Template version after the change. */
+    templateVersion: integer().notNull(),
+    basis: jsonb().$type<EstimateBasis>().notNull(),
+    reason: text().notNull().default(''),
+    acceptedBy: integer()
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.workshopId, t.templateId)],
+)
 
 /**
  * Expected outside-work cost of a template step (caster, assay office), per unit, keyed by step key:
  * template edits rewrite step rows, the key survives.
  */
-export const templateStepCosts = pgTable('template_step_costs', {
-  templateId: integer().notNull().references(() => routingTemplates.id, { onDelete: 'cascade' }),
-  stepKey: text().notNull(),
-  outsideCostMinor: integer(),
-  updatedAt: updatedAt(),
-}, (t) => [primaryKey({ columns: [t.templateId, t.stepKey] })])
+export const templateStepCosts = pgTable(
+  'template_step_costs',
+  {
+    templateId: integer()
+      .notNull()
+      .references(() => routingTemplates.id, { onDelete: 'cascade' }),
+    stepKey: text().notNull(),
+    outsideCostMinor: integer(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [primaryKey({ columns: [t.templateId, t.stepKey] })],
+)
 
 /** The outside cost actually invoiced for one operation (null = not known yet: the template's figure stands in). */
 export const operationCosts = pgTable('operation_costs', {
-  operationId: integer().primaryKey().references(() => operations.id, { onDelete: 'cascade' }),
+  operationId: integer()
+    .primaryKey()
+    .references(() => operations.id, { onDelete: 'cascade' }),
   outsideCostMinor: integer(),
   updatedAt: updatedAt(),
 })

@@ -4,13 +4,19 @@ import { bigserial, customType, index, integer, jsonb, pgTable, text, timestamp 
 import { workshops } from './workshop'
 
 /** One row per recorded event (never the live-only progress ones); only a bounded recent history is kept. */
-export const realtimeEvents = pgTable('realtime_events', {
-  seq: bigserial({ mode: 'number' }).primaryKey(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  event: text().notNull(),
-  payload: jsonb().$type<Record<string, unknown>>().notNull(),
-  createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-}, (t) => [index().on(t.workshopId, t.seq)])
+export const realtimeEvents = pgTable(
+  'realtime_events',
+  {
+    seq: bigserial({ mode: 'number' }).primaryKey(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    event: text().notNull(),
+    payload: jsonb().$type<Record<string, unknown>>().notNull(),
+    createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index().on(t.workshopId, t.seq)],
+)
 
 const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' })
 

@@ -5,131 +5,188 @@ import { createdAt, pk, updatedAt, version, instant } from './common'
 import { benches, operationKinds, people } from './resources'
 import { users, workshops } from './workshop'
 
-export const customers = pgTable('customers', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  reference: text().notNull(),
-  name: text().notNull(),
-  email: text().notNull().default(''),
-  phone: text().notNull().default(''),
-  notes: text().notNull().default(''),
-  version: version(),
-  createdAt: createdAt(),
-}, (t) => [uniqueIndex().on(t.workshopId, t.reference)])
+export const customers = pgTable(
+  'customers',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    reference: text().notNull(),
+    name: text().notNull(),
+    email: text().notNull().default(''),
+    phone: text().notNull().default(''),
+    notes: text().notNull().default(''),
+    version: version(),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex().on(t.workshopId, t.reference)],
+)
 
-export const routingTemplates = pgTable('routing_templates', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  code: text().notNull(),
-  name: text().notNull(),
-  description: text().notNull().default(''),
-  /** Production runs: the learning rate per doubling of quantity (0.8 = an 80 % curve); null = every unit takes the same time. */
-  learningRate: real(),
-  version: version(),
-}, (t) => [uniqueIndex().on(t.workshopId, t.code)])
+export const routingTemplates = pgTable(
+  'routing_templates',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    code: text().notNull(),
+    name: text().notNull(),
+    description: text().notNull().default(''),
+    /** Production runs: the learning rate per doubling of quantity (0.8 = an 80 % curve); null = every unit takes the same time. */
+    learningRate: real(),
+    version: version(),
+  },
+  (t) => [uniqueIndex().on(t.workshopId, t.code)],
+)
 
-export const templateSteps = pgTable('template_steps', {
-  id: pk(),
-  templateId: integer().notNull().references(() => routingTemplates.id, { onDelete: 'cascade' }),
-  seq: integer().notNull(),
-  key: text().notNull(),
-  kindId: integer().notNull().references(() => operationKinds.id),
-  name: text().notNull(),
-  baseMinutes: real().notNull(),
-  perStoneMinutes: real().notNull().default(0),
-  /** Minutes per millimetre of piece size (0 where size does not matter). */
-  perMmMinutes: real().notNull().default(0),
-  /** Factor on the per-stone minutes by stone size band (melee / small / large); a band not given counts 1. */
-  sizeBandFactors: jsonb().$type<Partial<Record<'melee' | 'small' | 'large', number>>>().notNull().default({}),
-  /** Factor on the per-stone minutes by the stone's role on a stone list (centre / side / halo / pave); a role not given takes the usual factor (shared/domain/stones.ts). */
-  roleFactors: jsonb().$type<Partial<Record<'centre' | 'side' | 'halo' | 'pave', number>>>().notNull().default({}),
-  requiredLevel: integer().notNull().default(1),
-  waitAfterMinutes: integer().notNull().default(0),
-  leadDays: integer().notNull().default(0),
-  after: text().array().notNull().default([]),
-}, (t) => [uniqueIndex().on(t.templateId, t.key)])
+export const templateSteps = pgTable(
+  'template_steps',
+  {
+    id: pk(),
+    templateId: integer()
+      .notNull()
+      .references(() => routingTemplates.id, { onDelete: 'cascade' }),
+    seq: integer().notNull(),
+    key: text().notNull(),
+    kindId: integer()
+      .notNull()
+      .references(() => operationKinds.id),
+    name: text().notNull(),
+    baseMinutes: real().notNull(),
+    perStoneMinutes: real().notNull().default(0),
+    /** Minutes per millimetre of piece size (0 where size does not matter). */
+    perMmMinutes: real().notNull().default(0),
+    /** Factor on the per-stone minutes by stone size band (melee / small / large); a band not given counts 1. */
+    sizeBandFactors: jsonb().$type<Partial<Record<'melee' | 'small' | 'large', number>>>().notNull().default({}),
+    /** Factor on the per-stone minutes by the stone's role on a stone list (centre / side / halo / pave); a role not given takes the usual factor (shared/domain/stones.ts). */
+    roleFactors: jsonb().$type<Partial<Record<'centre' | 'side' | 'halo' | 'pave', number>>>().notNull().default({}),
+    requiredLevel: integer().notNull().default(1),
+    waitAfterMinutes: integer().notNull().default(0),
+    leadDays: integer().notNull().default(0),
+    after: text().array().notNull().default([]),
+  },
+  (t) => [uniqueIndex().on(t.templateId, t.key)],
+)
 
-export const orders = pgTable('orders', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  number: text().notNull(),
-  customerId: integer().notNull().references(() => customers.id),
-  title: text().notNull(),
-  dueDate: date({ mode: 'string' }).notNull(),
-  promisedDate: date({ mode: 'string' }),
-  priority: integer().notNull().default(3),
-  status: text().notNull().default('open'),
-  /** The price quoted, in integer minor units of the workshop's currency. */
-  priceQuotedMinor: integer().notNull().default(0),
-  notes: text().notNull().default(''),
-  version: version(),
-  createdAt: createdAt(),
-  updatedAt: updatedAt(),
-}, (t) => [uniqueIndex().on(t.workshopId, t.number), index().on(t.customerId)])
+export const orders = pgTable(
+  'orders',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    number: text().notNull(),
+    customerId: integer()
+      .notNull()
+      .references(() => customers.id),
+    title: text().notNull(),
+    dueDate: date({ mode: 'string' }).notNull(),
+    promisedDate: date({ mode: 'string' }),
+    priority: integer().notNull().default(3),
+    status: text().notNull().default('open'),
+    /** The price quoted, in integer minor units of the workshop's currency. */
+    priceQuotedMinor: integer().notNull().default(0),
+    notes: text().notNull().default(''),
+    version: version(),
+    createdAt: createdAt(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [uniqueIndex().on(t.workshopId, t.number), index().on(t.customerId)],
+)
 
-export const jobBags = pgTable('job_bags', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  orderId: integer().notNull().references(() => orders.id, { onDelete: 'cascade' }),
-  number: text().notNull(),
-  piece: text().notNull(),
-  templateId: integer().references(() => routingTemplates.id, { onDelete: 'set null' }),
-  params: jsonb().$type<PieceParams>().notNull(),
-  status: text().notNull().default('waiting'),
-  releaseAt: instant(),
-  version: version(),
-  createdAt: createdAt(),
-}, (t) => [uniqueIndex().on(t.workshopId, t.number), index().on(t.orderId)])
+export const jobBags = pgTable(
+  'job_bags',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    orderId: integer()
+      .notNull()
+      .references(() => orders.id, { onDelete: 'cascade' }),
+    number: text().notNull(),
+    piece: text().notNull(),
+    templateId: integer().references(() => routingTemplates.id, { onDelete: 'set null' }),
+    params: jsonb().$type<PieceParams>().notNull(),
+    status: text().notNull().default('waiting'),
+    releaseAt: instant(),
+    version: version(),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex().on(t.workshopId, t.number), index().on(t.orderId)],
+)
 
-export const operations = pgTable('operations', {
-  id: pk(),
-  jobBagId: integer().notNull().references(() => jobBags.id, { onDelete: 'cascade' }),
-  seq: integer().notNull(),
-  key: text().notNull(),
-  kindId: integer().notNull().references(() => operationKinds.id),
-  name: text().notNull(),
-  status: text().notNull().default('pending'),
-  estimateMinutes: real().notNull(),
-  estimateSource: text().notNull().default('template'),
-  requiredLevel: integer().notNull().default(1),
-  waitAfterMinutes: integer().notNull().default(0),
-  leadDays: integer().notNull().default(0),
-  after: text().array().notNull().default([]),
-  plannedBenchId: integer().references(() => benches.id, { onDelete: 'set null' }),
-  plannedPersonId: integer().references(() => people.id, { onDelete: 'set null' }),
-  plannedStart: instant(),
-  plannedEnd: instant(),
-  pinned: boolean().notNull().default(false),
-  claimedBy: integer().references(() => people.id, { onDelete: 'set null' }),
-  finishedAt: instant(),
-  version: version(),
-}, (t) => [uniqueIndex().on(t.jobBagId, t.key), index().on(t.status)])
+export const operations = pgTable(
+  'operations',
+  {
+    id: pk(),
+    jobBagId: integer()
+      .notNull()
+      .references(() => jobBags.id, { onDelete: 'cascade' }),
+    seq: integer().notNull(),
+    key: text().notNull(),
+    kindId: integer()
+      .notNull()
+      .references(() => operationKinds.id),
+    name: text().notNull(),
+    status: text().notNull().default('pending'),
+    estimateMinutes: real().notNull(),
+    estimateSource: text().notNull().default('template'),
+    requiredLevel: integer().notNull().default(1),
+    waitAfterMinutes: integer().notNull().default(0),
+    leadDays: integer().notNull().default(0),
+    after: text().array().notNull().default([]),
+    plannedBenchId: integer().references(() => benches.id, { onDelete: 'set null' }),
+    plannedPersonId: integer().references(() => people.id, { onDelete: 'set null' }),
+    plannedStart: instant(),
+    plannedEnd: instant(),
+    pinned: boolean().notNull().default(false),
+    claimedBy: integer().references(() => people.id, { onDelete: 'set null' }),
+    finishedAt: instant(),
+    version: version(),
+  },
+  (t) => [uniqueIndex().on(t.jobBagId, t.key), index().on(t.status)],
+)
 
-export const timeRecords = pgTable('time_records', {
-  id: pk(),
-  operationId: integer().notNull().references(() => operations.id, { onDelete: 'cascade' }),
-  personId: integer().notNull().references(() => people.id),
-  benchId: integer().references(() => benches.id, { onDelete: 'set null' }),
-  startedAt: instant().notNull(),
-  endedAt: instant(),
-  endReason: text(),
-  note: text().notNull().default(''),
-  /** Client-generated id: a replayed request finds its earlier record instead of writing a second. */
-  clientId: text(),
-  createdAt: createdAt(),
-}, (t) => [index().on(t.operationId), index().on(t.personId), uniqueIndex().on(t.clientId)])
+export const timeRecords = pgTable(
+  'time_records',
+  {
+    id: pk(),
+    operationId: integer()
+      .notNull()
+      .references(() => operations.id, { onDelete: 'cascade' }),
+    personId: integer()
+      .notNull()
+      .references(() => people.id),
+    benchId: integer().references(() => benches.id, { onDelete: 'set null' }),
+    startedAt: instant().notNull(),
+    endedAt: instant(),
+    endReason: text(),
+    note: text().notNull().default(''),
+    /** Client-generated id: a replayed request finds its earlier record instead of writing a second. */
+    clientId: text(),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.operationId), index().on(t.personId), uniqueIndex().on(t.clientId)],
+)
 
-export const planVersions = pgTable('plan_versions', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  number: integer().notNull(),
-  status: text().notNull().default('draft'),
-  createdBy: integer().references(() => users.id),
-  createdAt: createdAt(),
-  publishedBy: integer().references(() => users.id),
-  publishedAt: instant(),
-  score: jsonb().$type<Record<string, unknown>>().notNull().default({}),
-  /** operationId → { benchId, personId, start, end, reason } at the time of the plan. */
-  assignments: jsonb().$type<Record<string, unknown>>().notNull().default({}),
-}, (t) => [uniqueIndex().on(t.workshopId, t.number)])
-
+export const planVersions = pgTable(
+  'plan_versions',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    number: integer().notNull(),
+    status: text().notNull().default('draft'),
+    createdBy: integer().references(() => users.id),
+    createdAt: createdAt(),
+    publishedBy: integer().references(() => users.id),
+    publishedAt: instant(),
+    score: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+    /** operationId → { benchId, personId, start, end, reason } at the time of the plan. */
+    assignments: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+  },
+  (t) => [uniqueIndex().on(t.workshopId, t.number)],
+)

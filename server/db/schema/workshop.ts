@@ -25,34 +25,52 @@ export const workshops = pgTable('workshops', {
   createdAt: createdAt(),
 })
 
-export const closures = pgTable('closures', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  name: text().notNull(),
-  startsOn: date({ mode: 'string' }).notNull(),
-  endsOn: date({ mode: 'string' }).notNull(),
-}, (t) => [index().on(t.workshopId)])
+export const closures = pgTable(
+  'closures',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    name: text().notNull(),
+    startsOn: date({ mode: 'string' }).notNull(),
+    endsOn: date({ mode: 'string' }).notNull(),
+  },
+  (t) => [index().on(t.workshopId)],
+)
 
-export const users = pgTable('users', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  email: text().notNull(),
-  name: text().notNull(),
-  role: text().$type<'owner' | 'manager' | 'bench' | 'sales'>().notNull(),
-  passwordHash: text().notNull(),
-  active: boolean().notNull().default(true),
-  version: version(),
-  createdAt: createdAt(),
-  updatedAt: updatedAt(),
-}, (t) => [uniqueIndex().on(t.email)])
+export const users = pgTable(
+  'users',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    email: text().notNull(),
+    name: text().notNull(),
+    role: text().$type<'owner' | 'manager' | 'bench' | 'sales'>().notNull(),
+    passwordHash: text().notNull(),
+    active: boolean().notNull().default(true),
+    version: version(),
+    createdAt: createdAt(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [uniqueIndex().on(t.email)],
+)
 
-export const auditLog = pgTable('audit_log', {
-  id: pk(),
-  workshopId: integer().notNull().references(() => workshops.id, { onDelete: 'cascade' }),
-  userId: integer().references(() => users.id),
-  at: timestamp({ withTimezone: true }).notNull().defaultNow(),
-  action: text().notNull(),
-  entity: text().notNull(),
-  entityId: integer(),
-  details: jsonb().$type<Record<string, unknown>>().notNull().default({}),
-}, (t) => [index().on(t.workshopId, t.at)])
+export const auditLog = pgTable(
+  'audit_log',
+  {
+    id: pk(),
+    workshopId: integer()
+      .notNull()
+      .references(() => workshops.id, { onDelete: 'cascade' }),
+    userId: integer().references(() => users.id),
+    at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+    action: text().notNull(),
+    entity: text().notNull(),
+    entityId: integer(),
+    details: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+  },
+  (t) => [index().on(t.workshopId, t.at)],
+)

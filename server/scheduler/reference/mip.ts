@@ -23,7 +23,9 @@ export function disjunctiveModel(file: ShopFile): string {
   const rows: string[] = []
   const binaries: string[] = []
   let r = 0
-  const row = (text: string): void => { rows.push(` c${r++}: ${text}`) }
+  const row = (text: string): void => {
+    rows.push(` c${r++}: ${text}`)
+  }
   ops.forEach((op, k) => {
     if (flexible) {
       row(`${op.alts.map((a) => x(k, a.machine)).join(' + ')} = 1`)
@@ -50,7 +52,8 @@ export function disjunctiveModel(file: ShopFile): string {
       for (const u of shared) {
         const v = ops[b]!.alts.find((w) => w.machine === u.machine)!
         if (flexible) {
-          const xa = x(a, u.machine), xb = x(b, u.machine)
+          const xa = x(a, u.machine),
+            xb = x(b, u.machine)
           row(`${s(a)} - ${s(b)} + ${big} ${y} + ${big} ${xa} + ${big} ${xb} <= ${3 * big - u.duration}`)
           row(`${s(b)} - ${s(a)} - ${big} ${y} + ${big} ${xa} + ${big} ${xb} <= ${2 * big - v.duration}`)
         } else {
@@ -60,7 +63,18 @@ export function disjunctiveModel(file: ShopFile): string {
       }
     }
   }
-  return ['Minimize', ' obj: C', 'Subject To', ...rows, 'Bounds', ...ops.map((_, k) => ` ${s(k)} >= 0`), ' C >= 0', 'Binaries', ...binaries.map((b) => ` ${b}`), 'End'].join('\n')
+  return [
+    'Minimize',
+    ' obj: C',
+    'Subject To',
+    ...rows,
+    'Bounds',
+    ...ops.map((_, k) => ` ${s(k)} >= 0`),
+    ' C >= 0',
+    'Binaries',
+    ...binaries.map((b) => ` ${b}`),
+    'End',
+  ].join('\n')
 }
 
 /** Solves the disjunctive MIP with HiGHS within timeLimitSeconds. */

@@ -84,7 +84,8 @@ export function groupsFor(data: Pick<BoardData, 'benches' | 'people' | 'items'>,
       ? data.benches.map((b, i) => ({ id: `b:${b.id}`, content: b.name, sub: b.kind, order: i }))
       : data.people.map((p, i) => ({ id: `p:${p.id}`, content: p.name, order: i }))
   const used = new Set(data.items.map((i) => groupOf(i, rowsBy)))
-  if (used.has(UNASSIGNED_GROUP)) rows.push({ id: UNASSIGNED_GROUP, content: rowsBy === 'bench' ? 'No bench yet' : 'No one yet', className: 'board-row--muted', order: 998 })
+  if (used.has(UNASSIGNED_GROUP))
+    rows.push({ id: UNASSIGNED_GROUP, content: rowsBy === 'bench' ? 'No bench yet' : 'No one yet', className: 'board-row--muted', order: 998 })
   // Outside work (casting, hallmarking) takes days away from the workshop: its own row, always last.
   rows.push({ id: OUTSIDE_GROUP, content: 'Outside work', sub: 'away from the workshop', className: 'board-row--outside', order: 999 })
   return rows
@@ -119,7 +120,7 @@ export function contrast(a: string, b: string): number {
 
 /** Twelve muted tones; every piece of one order shares its order's tone, neighbouring order numbers differ. */
 export const ORDER_TONES = ['#8c5a3c', '#4f6d8a', '#7a8a3e', '#9a4f6b', '#3f7f78', '#a0782c', '#5d5a9a', '#b0613f', '#527a4f', '#7d4f8c', '#3e6f9c', '#8a6b4f']
-export const orderTone = (orderId: number) => ORDER_TONES[((orderId * 7) % ORDER_TONES.length + ORDER_TONES.length) % ORDER_TONES.length]!
+export const orderTone = (orderId: number) => ORDER_TONES[(((orderId * 7) % ORDER_TONES.length) + ORDER_TONES.length) % ORDER_TONES.length]!
 
 /** White or dark ink, whichever reads better on the bar. */
 export function inkOn(bg: string): string {
@@ -176,12 +177,28 @@ export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
 /** Shading: closed hours across all rows, closures named, leave on the person's row, downtime on the bench's row. */
 export function backgroundsFor(data: Pick<BoardData, 'nonWorking' | 'closures' | 'leave' | 'downtime' | 'window'>, rowsBy: RowsBy): TimelineBackground[] {
   const tz = data.window.timeZone
-  const bg = (id: string, start: Date, end: Date, className: string, content = '', group?: string): TimelineBackground => ({ id, start, end, className, content, type: 'background', editable: false, selectable: false, ...(group ? { group } : {}) })
+  const bg = (id: string, start: Date, end: Date, className: string, content = '', group?: string): TimelineBackground => ({
+    id,
+    start,
+    end,
+    className,
+    content,
+    type: 'background',
+    editable: false,
+    selectable: false,
+    ...(group ? { group } : {}),
+  })
   const nextDay = (d: string) => dayjs(d).add(1, 'day').format('YYYY-MM-DD')
   const out: TimelineBackground[] = data.nonWorking.map((x, i) => bg(`off:${i}`, parseInstant(x.start), parseInstant(x.end), 'board-bg-off'))
   data.closures.forEach((c, i) => out.push(bg(`closure:${i}`, dayStart(c.startsOn, tz), dayStart(nextDay(c.endsOn), tz), 'board-bg-closure', c.name)))
-  if (rowsBy === 'person') data.leave.forEach((l, i) => out.push(bg(`leave:${i}`, dayStart(l.startsOn, tz), dayStart(nextDay(l.endsOn), tz), 'board-bg-leave', l.reason || 'Leave', `p:${l.personId}`)))
-  if (rowsBy === 'bench') data.downtime.forEach((d, i) => out.push(bg(`down:${i}`, parseInstant(d.startsAt), parseInstant(d.endsAt), 'board-bg-down', d.reason || 'Downtime', `b:${d.benchId}`)))
+  if (rowsBy === 'person')
+    data.leave.forEach((l, i) =>
+      out.push(bg(`leave:${i}`, dayStart(l.startsOn, tz), dayStart(nextDay(l.endsOn), tz), 'board-bg-leave', l.reason || 'Leave', `p:${l.personId}`)),
+    )
+  if (rowsBy === 'bench')
+    data.downtime.forEach((d, i) =>
+      out.push(bg(`down:${i}`, parseInstant(d.startsAt), parseInstant(d.endsAt), 'board-bg-down', d.reason || 'Downtime', `b:${d.benchId}`)),
+    )
   return out
 }
 
@@ -221,7 +238,11 @@ export function formatMinutes(min: number): string {
 
 /** The engine's completion (minutes from the Monday 00:00 of the current ISO week, workshop time) as an instant. */
 export function completionFromMakespan(makespanMinutes: number, now: Date | string, tz: string): Date {
-  const monday = dayjs(now).tz(tz).startOf('day').subtract(dayjs(now).tz(tz).isoWeekday() - 1, 'day').format('YYYY-MM-DD')
+  const monday = dayjs(now)
+    .tz(tz)
+    .startOf('day')
+    .subtract(dayjs(now).tz(tz).isoWeekday() - 1, 'day')
+    .format('YYYY-MM-DD')
   return new Date(dayStart(monday, tz).getTime() + makespanMinutes * 60_000)
 }
 
@@ -230,14 +251,20 @@ export const lateHours = (weightedTardinessMinutes: number) => Math.round((weigh
 
 /** An instant on the workshop's clock: "Thu 3 Dec 15:48". */
 export function formatWhen(at: string | Date | null | undefined, tz: string): string {
-  return at ? dayjs(typeof at === 'string' ? parseInstant(at) : at).tz(tz).format('ddd D MMM HH:mm') : '—'
+  return at
+    ? dayjs(typeof at === 'string' ? parseInstant(at) : at)
+        .tz(tz)
+        .format('ddd D MMM HH:mm')
+    : '—'
 }
 
 /** A stretch on the workshop's clock: "Thu 3 Dec 15:48–16:02", or with both days when it spans more than one. */
 export function formatSpan(start: string, end: string, tz: string): string {
   const a = dayjs(parseInstant(start)).tz(tz)
   const b = dayjs(parseInstant(end)).tz(tz)
-  return a.format('YYYY-MM-DD') === b.format('YYYY-MM-DD') ? `${a.format('ddd D MMM HH:mm')}–${b.format('HH:mm')}` : `${a.format('ddd D MMM HH:mm')} – ${b.format('ddd D MMM HH:mm')}`
+  return a.format('YYYY-MM-DD') === b.format('YYYY-MM-DD')
+    ? `${a.format('ddd D MMM HH:mm')}–${b.format('HH:mm')}`
+    : `${a.format('ddd D MMM HH:mm')} – ${b.format('ddd D MMM HH:mm')}`
 }
 
 /** Whole minutes as "3 h 10 min" (rounded to the minute). */
@@ -283,16 +310,29 @@ export function searchJobBags(data: Pick<BoardData, 'items' | 'jobs'>, query: st
   if (!words.length) return []
   const bags = new Map<number, JobBagHit>()
   for (const i of data.items) {
-    const b = bags.get(i.jobBagId) ?? { jobBagId: i.jobBagId, number: i.jobBagNumber, piece: i.piece, customerName: i.customerName, orderNumber: i.orderNumber, bars: 0 }
+    const b = bags.get(i.jobBagId) ?? {
+      jobBagId: i.jobBagId,
+      number: i.jobBagNumber,
+      piece: i.piece,
+      customerName: i.customerName,
+      orderNumber: i.orderNumber,
+      bars: 0,
+    }
     b.bars++
     bags.set(i.jobBagId, b)
   }
-  for (const j of data.jobs) if (!bags.has(j.jobBagId)) bags.set(j.jobBagId, { jobBagId: j.jobBagId, number: j.number, piece: j.piece, customerName: j.customerName, orderNumber: j.orderNumber, bars: 0 })
+  for (const j of data.jobs)
+    if (!bags.has(j.jobBagId))
+      bags.set(j.jobBagId, { jobBagId: j.jobBagId, number: j.number, piece: j.piece, customerName: j.customerName, orderNumber: j.orderNumber, bars: 0 })
   const hay = (b: JobBagHit) => `${b.number} ${b.orderNumber} ${b.customerName}`.toLowerCase()
-  return [...bags.values()]
-    .filter((b) => words.every((w) => hay(b).includes(w)))
-    // Number matches first, then by number.
-    .sort((a, b) => Number(!a.number.toLowerCase().includes(words[0]!)) - Number(!b.number.toLowerCase().includes(words[0]!)) || a.number.localeCompare(b.number))
+  return (
+    [...bags.values()]
+      .filter((b) => words.every((w) => hay(b).includes(w)))
+      // Number matches first, then by number.
+      .sort(
+        (a, b) => Number(!a.number.toLowerCase().includes(words[0]!)) - Number(!b.number.toLowerCase().includes(words[0]!)) || a.number.localeCompare(b.number),
+      )
+  )
 }
 
 /** Keyboard steps for a selected bar: arrows move it by this many minutes, with Shift by the larger step. */
@@ -316,9 +356,10 @@ export function keyMove(item: BoardItem, key: string, shift: boolean, data: Pick
   }
   if (item.outside) return { refused: `“${item.name}” is outside work; it has no bench or person row.` }
   const dir = key === 'ArrowUp' ? -1 : 1
-  const rows = rowsBy === 'bench'
-    ? data.benches.map((b) => ({ id: b.id, name: b.name, fits: b.kinds.includes(item.kind) }))
-    : data.people.map((p) => ({ id: p.id, name: p.name, fits: (p.skills[item.kind] ?? 0) >= item.requiredLevel }))
+  const rows =
+    rowsBy === 'bench'
+      ? data.benches.map((b) => ({ id: b.id, name: b.name, fits: b.kinds.includes(item.kind) }))
+      : data.people.map((p) => ({ id: p.id, name: p.name, fits: (p.skills[item.kind] ?? 0) >= item.requiredLevel }))
   const current = rowsBy === 'bench' ? item.benchId : item.personId
   const at = rows.findIndex((r) => r.id === current)
   for (let i = at + dir; i >= 0 && i < rows.length; i += dir) {

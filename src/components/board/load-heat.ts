@@ -33,7 +33,13 @@ const mix = (a: string, b: string, t: number): string => {
   const p = (h: string) => [1, 3, 5].map((i) => parseInt(h.slice(i, i + 2), 16))
   const [x, y] = [p(a), p(b)]
   const k = Math.min(1, Math.max(0, t))
-  return `#${x.map((v, i) => Math.round(v + (y[i]! - v) * k).toString(16).padStart(2, '0')).join('')}`
+  return `#${x
+    .map((v, i) =>
+      Math.round(v + (y[i]! - v) * k)
+        .toString(16)
+        .padStart(2, '0'),
+    )
+    .join('')}`
 }
 
 /** Our ramp: pale linen at rest, warming to brass as the plan fills up to the planning load, then oxide red beyond it. */

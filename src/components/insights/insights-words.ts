@@ -15,5 +15,7 @@ export function mapeInWords(r: Pick<ComparisonRow, 'mapePct'>): string {
   return `on average, an operation's estimate was ${r.mapePct.toFixed(1)} % off the time it actually took, too high or too low`
 }
 
-export const BIAS_HELP = 'Bias: the hours actually taken minus the hours estimated, as a share of the estimate, over all the operations in the row. Plus means the work took longer than estimated, minus that it took less time.'
-export const MAPE_HELP = 'MAPE (mean absolute percentage error): for each operation, how far the estimate was from the time actually taken, either way, as a share of that time; then the average over the operations. Over- and underestimates do not cancel out here.'
+export const BIAS_HELP =
+  'Bias: the hours actually taken minus the hours estimated, as a share of the estimate, over all the operations in the row. Plus means the work took longer than estimated, minus that it took less time.'
+export const MAPE_HELP =
+  'MAPE (mean absolute percentage error): for each operation, how far the estimate was from the time actually taken, either way, as a share of that time; then the average over the operations. Over- and underestimates do not cancel out here.'

@@ -7,20 +7,27 @@ import { currencyExponent } from '@shared/domain/currency'
 const locale = () => (typeof navigator !== 'undefined' && navigator.language ? navigator.language : 'en-GB')
 
 /** 12 → "12.00 g" (always two decimals: the bench scale's step). */
-export const fmtG = (g: number | null | undefined): string => (g === null || g === undefined || !Number.isFinite(g) ? '—' : `${g.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })} g`)
+export const fmtG = (g: number | null | undefined): string =>
+  g === null || g === undefined || !Number.isFinite(g) ? '—' : `${g.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })} g`
 /** Milligrams as grams to 0.01 g. */
 export const fmtMg = (mg: number | null | undefined): string => (mg === null || mg === undefined ? '—' : fmtG(mg / 1000))
 /** Milligrams as grams to the milligram (stock and refining reconcile to 1 mg): 214553 → "214.553 g". */
-export const fmtMg3 = (mg: number | null | undefined): string => (mg === null || mg === undefined ? '—' : `${(mg / 1000).toLocaleString('en-GB', { minimumFractionDigits: 3, maximumFractionDigits: 3 })} g`)
+export const fmtMg3 = (mg: number | null | undefined): string =>
+  mg === null || mg === undefined ? '—' : `${(mg / 1000).toLocaleString('en-GB', { minimumFractionDigits: 3, maximumFractionDigits: 3 })} g`
 /** 2.08 → "2.1 %". */
-export const fmtPct = (p: number | null | undefined): string => (p === null || p === undefined || !Number.isFinite(p) ? '—' : `${p.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 })} %`)
+export const fmtPct = (p: number | null | undefined): string =>
+  p === null || p === undefined || !Number.isFinite(p) ? '—' : `${p.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 })} %`
 
 /** Decimals of a currency as ISO 4217 has them (GBP 2, JPY 0, BHD 3): the table amounts are stored by (shared/domain/currency.ts). */
 export const currencyDigits = (currency: string): number => currencyExponent(currency)
 /** An amount held in integer minor units, written by the browser's locale in the workshop's currency. */
 export function fmtMoney(minor: number | null | undefined, currency: string): string {
   if (minor === null || minor === undefined || !Number.isFinite(minor)) return '—'
-  try { return new Intl.NumberFormat(locale(), { style: 'currency', currency }).format(minor / 10 ** currencyDigits(currency)) } catch { return `${minor} (minor units of ${currency})` }
+  try {
+    return new Intl.NumberFormat(locale(), { style: 'currency', currency }).format(minor / 10 ** currencyDigits(currency))
+  } catch {
+    return `${minor} (minor units of ${currency})`
+  }
 }
 
 /** The first active alloy of the piece's metal code (e.g. gold-14k → a 585 gold), or null. */
@@ -33,10 +40,20 @@ export function alloyForPieceMetal(alloys: readonly Alloy[], pieceMetal: string 
 const TARE_KEY = 'millgrain.metal.containerG'
 /** The container weight this tablet remembers (0 when none). */
 export function loadTare(): number {
-  try { const v = Number(globalThis.localStorage?.getItem(TARE_KEY)); return Number.isFinite(v) && v > 0 ? v : 0 } catch { return 0 }
+  try {
+    const v = Number(globalThis.localStorage?.getItem(TARE_KEY))
+    return Number.isFinite(v) && v > 0 ? v : 0
+  } catch {
+    return 0
+  }
 }
 export function saveTare(g: number) {
-  try { if (g > 0) globalThis.localStorage?.setItem(TARE_KEY, String(g)); else globalThis.localStorage?.removeItem(TARE_KEY) } catch { /* private mode: not remembered */ }
+  try {
+    if (g > 0) globalThis.localStorage?.setItem(TARE_KEY, String(g))
+    else globalThis.localStorage?.removeItem(TARE_KEY)
+  } catch {
+    /* private mode: not remembered */
+  }
 }
 
 /** Scale reading minus the container, rounded to 0.01 g (floating point never leaves a 0.009999). */
@@ -49,7 +66,10 @@ const csvCell = (v: unknown) => {
 /** A loss table as CSV: a name column first, then the figures, and the total last. */
 export function lossCsv(first: string, rows: readonly LossRow[], total: LossRow | null): string {
   const head = [first, 'units', 'issued g', 'returned g', 'loss g', 'loss %', 'loss fine g', 'over tolerance']
-  const line = (r: LossRow) => [r.label, r.n, r.issuedG.toFixed(2), r.returnedG.toFixed(2), r.lossG.toFixed(2), r.lossPct ?? '', r.lossFineG.toFixed(3), r.overTolerance].map(csvCell).join(',')
+  const line = (r: LossRow) =>
+    [r.label, r.n, r.issuedG.toFixed(2), r.returnedG.toFixed(2), r.lossG.toFixed(2), r.lossPct ?? '', r.lossFineG.toFixed(3), r.overTolerance]
+      .map(csvCell)
+      .join(',')
   return [head.join(','), ...rows.map(line), ...(total ? [line(total)] : [])].join('\r\n') + '\r\n'
 }
 /** Hands a text file to the browser's download. */

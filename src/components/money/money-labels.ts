@@ -5,10 +5,18 @@ import type { PaymentLink, PaymentMethod, PaymentPurpose } from '@/api/payments'
 type TagType = 'primary' | 'success' | 'warning' | 'danger' | 'info'
 
 export const QUOTE_STATUS_LABELS: Record<QuoteStatus, string> = {
-  drafted: 'Being written', sent: 'With the customer', accepted: 'Agreed', expired: 'Lapsed', withdrawn: 'Taken back',
+  drafted: 'Being written',
+  sent: 'With the customer',
+  accepted: 'Agreed',
+  expired: 'Lapsed',
+  withdrawn: 'Taken back',
 }
 export const QUOTE_STATUS_TAGS: Record<QuoteStatus, TagType> = {
-  drafted: 'info', sent: 'primary', accepted: 'success', expired: 'warning', withdrawn: 'danger',
+  drafted: 'info',
+  sent: 'primary',
+  accepted: 'success',
+  expired: 'warning',
+  withdrawn: 'danger',
 }
 export const METHOD_LABELS: Record<PaymentMethod, string> = { card: 'Card (online)', cash: 'Cash', 'bank-transfer': 'Bank transfer' }
 export const PURPOSE_LABELS: Record<PaymentPurpose, string> = { deposit: 'Deposit', balance: 'Balance', refund: 'Refund', other: 'Other' }

@@ -5,14 +5,34 @@ import { METAL_NAMES, type METALS } from '@shared/schemas/order'
 type TagType = 'primary' | 'success' | 'warning' | 'danger' | 'info'
 
 export const ORDER_STATUS_LABELS: Record<OrderStatus, string> = {
-  quoted: 'Quoted', open: 'Open', 'in-work': 'In work', ready: 'Ready to collect', collected: 'Collected', cancelled: 'Cancelled',
+  quoted: 'Quoted',
+  open: 'Open',
+  'in-work': 'In work',
+  ready: 'Ready to collect',
+  collected: 'Collected',
+  cancelled: 'Cancelled',
 }
 export const ORDER_STATUS_TAGS: Record<OrderStatus, TagType> = {
-  quoted: 'info', open: 'primary', 'in-work': 'warning', ready: 'success', collected: 'info', cancelled: 'danger',
+  quoted: 'info',
+  open: 'primary',
+  'in-work': 'warning',
+  ready: 'success',
+  collected: 'info',
+  cancelled: 'danger',
 }
 const WORK_TAGS: Record<string, TagType> = {
-  waiting: 'info', pending: 'info', ready: 'primary', claimed: 'primary', running: 'warning', 'in-work': 'warning', paused: 'warning', 'on-hold': 'warning',
-  done: 'success', complete: 'success', skipped: 'info', cancelled: 'danger',
+  waiting: 'info',
+  pending: 'info',
+  ready: 'primary',
+  claimed: 'primary',
+  running: 'warning',
+  'in-work': 'warning',
+  paused: 'warning',
+  'on-hold': 'warning',
+  done: 'success',
+  complete: 'success',
+  skipped: 'info',
+  cancelled: 'danger',
 }
 export const workTag = (status: string): TagType => WORK_TAGS[status] ?? 'info'
 export const workLabel = (status: string) => status.replace('-', ' ')

@@ -1,5 +1,8 @@
 // The order of work in a routing: steps grouped in stages (a step comes one stage after the last step it follows).
-export interface GraphStep { key: string; after: string[] }
+export interface GraphStep {
+  key: string
+  after: string[]
+}
 
 /** Stage number per step key (1 = can start at once); steps in a cycle get no stage. */
 export function stagesOf(steps: GraphStep[]): Map<string, number> {

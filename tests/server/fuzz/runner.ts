@@ -23,13 +23,22 @@ const OPAQUE_BODIES: Record<string, ZodType> = {
   'PATCH /customers/:id': customerUpdate,
 }
 
-export interface Target { key: string; spec: RouteSpec; body?: Record<string, any>; query?: Record<string, any>; notes: string[] }
-export interface Plan { targets: Target[]; excluded: { key: string; reason: string }[] }
+export interface Target {
+  key: string
+  spec: RouteSpec
+  body?: Record<string, any>
+  query?: Record<string, any>
+  notes: string[]
+}
+export interface Plan {
+  targets: Target[]
+  excluded: { key: string; reason: string }[]
+}
 
 /** Routes that end or change the fuzzing agent's own session when they succeed. */
 export const SESSION_CHANGERS: Record<string, string> = {
   'DELETE /session/everywhere': 'ends every session of the fuzzing agent (covered by tests/server/accounts.test.ts)',
-  'POST /bench-station': 'turns the fuzzing agent\'s session into a bench station (covered by tests/server/accounts.test.ts)',
+  'POST /bench-station': "turns the fuzzing agent's session into a bench station (covered by tests/server/accounts.test.ts)",
 }
 
 /** Every route of the list, minus those that cannot be fuzzed with JSON (said with the reason). */
@@ -38,9 +47,18 @@ export function planTargets(routes: RouteSpec[]): Plan {
   const excluded: Plan['excluded'] = []
   for (const spec of routes) {
     const key = keyOf(spec)
-    if (key === 'DELETE /session') { excluded.push({ key, reason: 'ends the session of the fuzzing agent (sign-out is covered by tests/server/session.test.ts)' }); continue }
-    if (SESSION_CHANGERS[key]) { excluded.push({ key, reason: SESSION_CHANGERS[key]! }); continue }
-    if (spec.method === 'post' && /multipart|upload/i.test(spec.summary)) { excluded.push({ key, reason: 'multipart file upload, not a JSON body (covered by tests/server/files.test.ts)' }); continue }
+    if (key === 'DELETE /session') {
+      excluded.push({ key, reason: 'ends the session of the fuzzing agent (sign-out is covered by tests/server/session.test.ts)' })
+      continue
+    }
+    if (SESSION_CHANGERS[key]) {
+      excluded.push({ key, reason: SESSION_CHANGERS[key]! })
+      continue
+    }
+    if (spec.method === 'post' && /multipart|upload/i.test(spec.summary)) {
+      excluded.push({ key, reason: 'multipart file upload, not a JSON body (covered by tests/server/files.test.ts)' })
+      continue
+    }
     const notes: string[] = []
     let body = spec.body ? jsonSchemaOf(spec.body) : undefined
     if (body && isOpaque(body)) {
@@ -64,13 +82,33 @@ export interface Case {
 
 /** Real ids by the path segment before a parameter. */
 const SEGMENT_POOL: Record<string, string> = {
-  benches: 'benches', people: 'people', 'operation-kinds': 'kinds', closures: 'closures', templates: 'templates', customers: 'customers',
-  users: 'users', orders: 'orders', 'job-bags': 'jobBags', operations: 'operations', 'time-records': 'timeRecords', plans: 'plans',
-  outbox: 'outbox', files: 'files', runs: 'runs', leave: 'leave', downtime: 'downtime',
+  benches: 'benches',
+  people: 'people',
+  'operation-kinds': 'kinds',
+  closures: 'closures',
+  templates: 'templates',
+  customers: 'customers',
+  users: 'users',
+  orders: 'orders',
+  'job-bags': 'jobBags',
+  operations: 'operations',
+  'time-records': 'timeRecords',
+  plans: 'plans',
+  outbox: 'outbox',
+  files: 'files',
+  runs: 'runs',
+  leave: 'leave',
+  downtime: 'downtime',
 }
 
 export async function loadIdPools(pool: pg.Pool): Promise<IdPools> {
-  const q = async (sql: string) => { try { return (await pool.query(sql)).rows.map((r) => Number(r.id)) } catch { return [] } }
+  const q = async (sql: string) => {
+    try {
+      return (await pool.query(sql)).rows.map((r) => Number(r.id))
+    } catch {
+      return []
+    }
+  }
   const agentEmails = Object.values(DEMO_EMAIL)
   return {
     customers: await q('select id from customers order by id limit 5'),
@@ -78,7 +116,9 @@ export async function loadIdPools(pool: pg.Pool): Promise<IdPools> {
     kinds: await q('select id from operation_kinds order by id limit 5'),
     benches: await q('select id from benches order by id limit 5'),
     // The people and users the fuzzing agents sign in as are left alone: switching one off would end the walk.
-    people: await q(`select p.id from people p left join users u on u.id = p.user_id where u.email is null or u.email <> all('{${agentEmails.join(',')}}') order by p.id limit 5`),
+    people: await q(
+      `select p.id from people p left join users u on u.id = p.user_id where u.email is null or u.email <> all('{${agentEmails.join(',')}}') order by p.id limit 5`,
+    ),
     users: await q(`select id from users where email <> all('{${agentEmails.join(',')}}') order by id limit 5`),
     orders: await q("select id from orders order by (status = 'open') desc, id limit 5"),
     jobBags: await q('select id from job_bags order by id limit 5'),
@@ -100,7 +140,7 @@ function pathArb(path: string, pools: IdPools): fc.Arbitrary<string> {
     const name = s.slice(1)
     const junk = fc.constantFrom(...PATH_JUNK)
     if (name === 'runId') return fc.oneof({ weight: 2, arbitrary: fc.uuid() }, { weight: 2, arbitrary: junk })
-    const pool = name === 'operationId' ? 'operations' : name === 'childId' ? SEGMENT_POOL[segs[i + 1] ?? ''] ?? 'leave' : SEGMENT_POOL[segs[i - 1] ?? '']
+    const pool = name === 'operationId' ? 'operations' : name === 'childId' ? (SEGMENT_POOL[segs[i + 1] ?? ''] ?? 'leave') : SEGMENT_POOL[segs[i - 1] ?? '']
     const real = pool && pools[pool]?.length ? pools[pool]! : [1, 2, 999999]
     return fc.oneof({ weight: 3, arbitrary: fc.constantFrom(...real).map(String) }, { weight: 2, arbitrary: junk })
   })
@@ -111,8 +151,16 @@ type Json = unknown
 const isObj = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v) && !isRaw(v)
 
 function pathsOf(v: Json, prefix: (string | number)[] = [], out: (string | number)[][] = []): (string | number)[][] {
-  if (Array.isArray(v)) v.forEach((x, i) => { out.push([...prefix, i]); pathsOf(x, [...prefix, i], out) })
-  else if (isObj(v)) for (const [k, x] of Object.entries(v)) { out.push([...prefix, k]); pathsOf(x, [...prefix, k], out) }
+  if (Array.isArray(v))
+    v.forEach((x, i) => {
+      out.push([...prefix, i])
+      pathsOf(x, [...prefix, i], out)
+    })
+  else if (isObj(v))
+    for (const [k, x] of Object.entries(v)) {
+      out.push([...prefix, k])
+      pathsOf(x, [...prefix, k], out)
+    }
   return out
 }
 function setAt(v: Json, path: (string | number)[], value: unknown, remove = false): Json {
@@ -120,7 +168,10 @@ function setAt(v: Json, path: (string | number)[], value: unknown, remove = fals
   let cur = copy
   for (const k of path.slice(0, -1)) cur = cur[k]
   const last = path[path.length - 1]!
-  if (remove) { if (Array.isArray(cur)) cur.splice(Number(last), 1); else delete cur[last] } else cur[last] = value
+  if (remove) {
+    if (Array.isArray(cur)) cur.splice(Number(last), 1)
+    else delete cur[last]
+  } else cur[last] = value
   return copy
 }
 
@@ -131,7 +182,12 @@ function mutated(base: fc.Arbitrary<Json>): fc.Arbitrary<{ value: Json; mutation
     const options: fc.Arbitrary<{ value: Json; mutation: string }>[] = [
       fc.constant({ value: v, mutation: 'valid-looking' }),
       hostileValue.map((h) => ({ value: h, mutation: 'root replaced' })),
-      fc.tuple(hostileString.filter((s) => s.length < 100), hostileValue).map(([k, h]) => ({ value: isObj(v) ? { ...v, [k]: h } : { [k]: h }, mutation: `extra field ${JSON.stringify(k).slice(0, 30)}` })),
+      fc
+        .tuple(
+          hostileString.filter((s) => s.length < 100),
+          hostileValue,
+        )
+        .map(([k, h]) => ({ value: isObj(v) ? { ...v, [k]: h } : { [k]: h }, mutation: `extra field ${JSON.stringify(k).slice(0, 30)}` })),
     ]
     if (paths.length) {
       options.push(fc.tuple(fc.constantFrom(...paths), hostileValue).map(([p, h]) => ({ value: setAt(v, p, h), mutation: `${p.join('.')} replaced` })))
@@ -147,12 +203,12 @@ const RAW_BODIES = ['', '{', '{"a":', '{"a":NaN}', '[1,2', 'null', 'true', '"tex
 function queryArb(t: Target, pools: IdPools): fc.Arbitrary<string> {
   const base: fc.Arbitrary<Json> = t.query ? arbOf(t.query, pools) : fc.constant({})
   const encode = (v: Json) => {
-    if (!isObj(v)) return new URLSearchParams({ v: String(isRaw(v) ? writeJson(v) : JSON.stringify(v) ?? '').slice(0, 200) }).toString()
+    if (!isObj(v)) return new URLSearchParams({ v: String(isRaw(v) ? writeJson(v) : (JSON.stringify(v) ?? '')).slice(0, 200) }).toString()
     const sp = new URLSearchParams()
     for (const [k, x] of Object.entries(v)) {
       if (x === undefined) continue
-      if (Array.isArray(x)) for (const y of x) sp.append(k, typeof y === 'string' ? y : JSON.stringify(y) ?? '')
-      else sp.append(k, (isRaw(x) ? writeJson(x) : typeof x === 'string' ? x : JSON.stringify(x) ?? '').slice(0, 3000))
+      if (Array.isArray(x)) for (const y of x) sp.append(k, typeof y === 'string' ? y : (JSON.stringify(y) ?? ''))
+      else sp.append(k, (isRaw(x) ? writeJson(x) : typeof x === 'string' ? x : (JSON.stringify(x) ?? '')).slice(0, 3000))
     }
     return sp.toString()
   }
@@ -163,7 +219,8 @@ function queryArb(t: Target, pools: IdPools): fc.Arbitrary<string> {
 }
 
 function whoArb(spec: RouteSpec): fc.Arbitrary<Who> {
-  if (spec.roles === 'public') return fc.oneof({ weight: 4, arbitrary: fc.constant<Who>('anonymous') }, { weight: 1, arbitrary: fc.constantFrom<Who>(...ROLES) })
+  if (spec.roles === 'public')
+    return fc.oneof({ weight: 4, arbitrary: fc.constant<Who>('anonymous') }, { weight: 1, arbitrary: fc.constantFrom<Who>(...ROLES) })
   const allowed = spec.roles
   const others: Who[] = ['anonymous', ...ROLES.filter((r) => !allowed.includes(r))]
   return fc.oneof({ weight: 9, arbitrary: fc.constantFrom<Who>(...allowed) }, { weight: 1, arbitrary: fc.constantFrom<Who>(...others) })
@@ -183,16 +240,32 @@ export function caseArb(t: Target, pools: IdPools): fc.Arbitrary<Case> {
   const bodyArb: fc.Arbitrary<{ body?: Case['body']; mutation: string }> = !writes
     ? fc.constant({ mutation: '' })
     : fc.oneof(
-        { weight: 8, arbitrary: mutated(t.body ? arbOf(t.body, pools) : fc.constant({})).map((m) => ({ body: { json: tame(t, m.value) }, mutation: m.mutation })) },
-        { weight: 1, arbitrary: fc.constantFrom(...RAW_BODIES).filter((b) => !(t.key === 'POST /plans/runs' && b === '')).map((raw) => ({ body: { raw }, mutation: `raw body ${JSON.stringify(raw)}` })) },
+        {
+          weight: 8,
+          arbitrary: mutated(t.body ? arbOf(t.body, pools) : fc.constant({})).map((m) => ({ body: { json: tame(t, m.value) }, mutation: m.mutation })),
+        },
+        {
+          weight: 1,
+          arbitrary: fc
+            .constantFrom(...RAW_BODIES)
+            .filter((b) => !(t.key === 'POST /plans/runs' && b === ''))
+            .map((raw) => ({ body: { raw }, mutation: `raw body ${JSON.stringify(raw)}` })),
+        },
       )
   const q = t.spec.query || t.spec.method === 'get' ? queryArb(t, pools) : fc.constant('')
   return fc.record({ who: whoArb(t.spec), path: pathArb(t.spec.path, pools), q, b: bodyArb }).map(({ who, path, q, b }) => ({
-    who, url: `/api${path}${q ? `?${q}` : ''}`, mutation: [q ? `query ${q.slice(0, 80)}` : '', b.mutation].filter(Boolean).join('; '), body: b.body,
+    who,
+    url: `/api${path}${q ? `?${q}` : ''}`,
+    mutation: [q ? `query ${q.slice(0, 80)}` : '', b.mutation].filter(Boolean).join('; '),
+    body: b.body,
   }))
 }
 
-export interface Answer { status: number; body: any; type: string }
+export interface Answer {
+  status: number
+  body: any
+  type: string
+}
 
 export async function send(agent: Agent, method: RouteSpec['method'], c: Case): Promise<Answer> {
   let req = agent.agent[method](c.url)
@@ -208,8 +281,10 @@ export function problemsOf(a: Answer): string[] {
   if (a.status >= 500) out.push(`${a.status} server error: ${JSON.stringify(a.body).slice(0, 300)}`)
   // 431: Node's HTTP parser refuses a request line over 16 KiB before the app sees it; there is no app answer to check.
   if (a.status >= 400 && a.status < 500 && a.status !== 431) {
-    if (!/json/.test(a.type) || typeof a.body?.error !== 'string' || !a.body.error) out.push(`${a.status} without an error message (${a.type}): ${JSON.stringify(a.body).slice(0, 200)}`)
-    if (a.status === 400 && (!isObj(a.body?.fields) || Object.keys(a.body.fields).length === 0)) out.push(`400 without fields: ${JSON.stringify(a.body).slice(0, 200)}`)
+    if (!/json/.test(a.type) || typeof a.body?.error !== 'string' || !a.body.error)
+      out.push(`${a.status} without an error message (${a.type}): ${JSON.stringify(a.body).slice(0, 200)}`)
+    if (a.status === 400 && (!isObj(a.body?.fields) || Object.keys(a.body.fields).length === 0))
+      out.push(`400 without fields: ${JSON.stringify(a.body).slice(0, 200)}`)
   }
   return out
 }
@@ -274,7 +349,14 @@ export interface FuzzStats {
   runsStopped: number
 }
 
-export interface FuzzOptions { routes: RouteSpec[]; sessions: Sessions; pools: IdPools; runsPerRoute: number; seed: number; onlyKeys?: string[] }
+export interface FuzzOptions {
+  routes: RouteSpec[]
+  sessions: Sessions
+  pools: IdPools
+  runsPerRoute: number
+  seed: number
+  onlyKeys?: string[]
+}
 
 /** Walks every target with `runsPerRoute` seeded cases; collects failures instead of stopping at the first. */
 export async function fuzzRoutes(o: FuzzOptions, plan = planTargets(o.routes)): Promise<FuzzStats> {
@@ -294,7 +376,8 @@ export async function fuzzRoutes(o: FuzzOptions, plan = planTargets(o.routes)): 
       stats.byStatus[a.status] = (stats.byStatus[a.status] ?? 0) + 1
       const br = (stats.byRoute[t.key] ??= {})
       br[a.status] = (br[a.status] ?? 0) + 1
-      const fail = (problem: string) => stats.failures.push({ key: t.key, who: c.who, url: c.url.slice(0, 300), mutation: c.mutation.slice(0, 200), status: a.status, problem })
+      const fail = (problem: string) =>
+        stats.failures.push({ key: t.key, who: c.who, url: c.url.slice(0, 300), mutation: c.mutation.slice(0, 200), status: a.status, problem })
       for (const p of problemsOf(a)) fail(p)
       if (a.status >= 200 && a.status < 300 && t.spec.method !== 'get' && c.who !== 'anonymous') {
         for (const p of await readBack(o.routes, t, c, a, agent)) fail(`read back: ${p}`)

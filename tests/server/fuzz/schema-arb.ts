@@ -22,7 +22,7 @@ export function poolOfField(name: string): string | null {
   if (n === 'operationid' || n === 'operationids') return 'operations'
   if (n === 'jobbagid') return 'jobBags'
   if (n === 'userid') return 'users'
-  if (n === 'key' ) return null
+  if (n === 'key') return null
   return null
 }
 
@@ -57,8 +57,9 @@ export function arbOf(js: Js, pools: IdPools, field = '', root: Js = js): fc.Arb
   if (js.anyOf || js.oneOf) return fc.oneof(...(js.anyOf ?? js.oneOf).map((s: Js) => arbOf(s, pools, field, root)))
   if (js.allOf) {
     const parts = js.allOf.map((s: Js) => arbOf(s, pools, field, root))
-    return fc.tuple(...(parts as [fc.Arbitrary<unknown>])).map((vals: unknown[]) =>
-      vals.every((v) => v && typeof v === 'object' && !Array.isArray(v)) ? Object.assign({}, ...vals) : vals[vals.length - 1])
+    return fc
+      .tuple(...(parts as [fc.Arbitrary<unknown>]))
+      .map((vals: unknown[]) => (vals.every((v) => v && typeof v === 'object' && !Array.isArray(v)) ? Object.assign({}, ...vals) : vals[vals.length - 1]))
   }
   const type = Array.isArray(js.type) ? js.type[0] : js.type
   switch (type) {
@@ -76,7 +77,8 @@ export function arbOf(js: Js, pools: IdPools, field = '', root: Js = js): fc.Arb
     case 'integer':
     case 'number': {
       const pool = poolOfField(field)
-      if (pool && pools[pool]?.length) return fc.oneof({ weight: 4, arbitrary: fc.constantFrom(...pools[pool]!) }, { weight: 1, arbitrary: fc.integer({ min: 1, max: 1_000_000 }) })
+      if (pool && pools[pool]?.length)
+        return fc.oneof({ weight: 4, arbitrary: fc.constantFrom(...pools[pool]!) }, { weight: 1, arbitrary: fc.integer({ min: 1, max: 1_000_000 }) })
       if (field === 'version') return fc.integer({ min: 0, max: 3 })
       const lo = js.minimum ?? (js.exclusiveMinimum !== undefined ? js.exclusiveMinimum + (type === 'integer' ? 1 : 1e-6) : -1000)
       const hiRaw = js.maximum ?? (js.exclusiveMaximum !== undefined ? js.exclusiveMaximum - (type === 'integer' ? 1 : 1e-6) : 10_000)
@@ -112,7 +114,9 @@ export function arbOf(js: Js, pools: IdPools, field = '', root: Js = js): fc.Arb
         }
       }
       // Hostile strings that fit the field's length (chosen before, never filtered after: with none fitting, a filter would search forever).
-      const hostile = ["'; drop table orders; --", '<script>alert(1)</script>', '<img src=x onerror=alert(1)>', '💍 Zürich خاتم'].filter((s) => s.length >= min && s.length <= (js.maxLength ?? Infinity))
+      const hostile = ["'; drop table orders; --", '<script>alert(1)</script>', '<img src=x onerror=alert(1)>', '💍 Zürich خاتم'].filter(
+        (s) => s.length >= min && s.length <= (js.maxLength ?? Infinity),
+      )
       const plain = fc.string({ minLength: Math.max(min, 1), maxLength: max })
       return hostile.length ? fc.oneof({ weight: 3, arbitrary: plain }, { weight: 1, arbitrary: fc.constantFrom(...hostile) }) : plain
     }

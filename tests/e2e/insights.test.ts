@@ -54,12 +54,12 @@ describe('insights as the owner', () => {
     expect(Math.abs(t.biasPct - bias)).toBeLessThan(0.06)
     expect(Math.abs(t.mapePct - mape)).toBeLessThan(0.06)
     const pct = (x: number) => `${Math.abs(x).toFixed(1)} %`
-    expect(await words.locator('[data-test=insights-bias-words]').textContent()).toBe(
+    expect((await words.locator('[data-test=insights-bias-words]').textContent())?.trim()).toBe(
       `Bias ${bias > 0 ? '+' : '-'}${pct(t.biasPct)}: taken together, the work took ${pct(t.biasPct)} ${act > est ? 'longer' : 'less time'} than estimated (${t.actualHours.toFixed(2)} h taken against ${t.estimateHours.toFixed(2)} h estimated, ${points.length} operations).`,
     )
     expect(Math.abs(t.actualHours - act / 60)).toBeLessThanOrEqual(0.005)
     expect(Math.abs(t.estimateHours - est / 60)).toBeLessThanOrEqual(0.005)
-    expect(await words.locator('[data-test=insights-mape-words]').textContent()).toBe(
+    expect((await words.locator('[data-test=insights-mape-words]').textContent())?.trim()).toBe(
       `MAPE ${pct(t.mapePct)}: on average, an operation's estimate was ${pct(t.mapePct)} off the time it actually took, too high or too low.`,
     )
     // The short column names explain themselves when pointed at.

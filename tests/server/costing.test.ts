@@ -1,7 +1,10 @@
 // Costing API against real PostgreSQL: the estimate for a piece not yet ordered, the same figure on the order taken from it, and the
 // order's actual cost from the metal ledger, stone counts, invoiced outside work and time records (hand-worked in the comments).
+import { asc, sql } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { addMetalMovement, addStoneLine, alloyIdByCode, finishedStep, firstCustomerId, jobBagOfOrder, stepIdsByKey } from '../setup/fixtures'
 import { expectFieldError } from './helpers'
 
 let t: TestApp
@@ -10,7 +13,7 @@ let sales: Agent
 let templateId: number
 let alloyId: number
 let customerId: number
-const q = (sql: string, args: unknown[] = []) => t.pool.query(sql, args)
+const hourlyRate = (minor: number) => t.db.update(s.people).set({ hourlyRateMinor: minor })
 
 beforeAll(async () => {
   t = await createTestApp()
@@ -19,8 +22,8 @@ beforeAll(async () => {
   const manager = await signedIn(t.app, 'manager')
   const kinds = Object.fromEntries((await owner.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
   // Everyone at 32.00 an hour (3,200 p), so the average rate (used before anyone is planned) is 32.00.
-  await q(`update people set hourly_rate_minor = 3200`)
-  const tpl = await manager.post('/api/templates', {
+  await hourlyRate(3200)
+  const tpl = await manager.post('/api/routings', {
     code: 'costing-fixture',
     name: 'Fixture: fabricate and hallmark',
     description: 'Hand-worked costing fixture.',
@@ -31,11 +34,14 @@ beforeAll(async () => {
   })
   expect(tpl.status).toBe(201)
   templateId = tpl.body.id
-  expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })).status).toBe(200)
-  alloyId = (await q(`select id from alloys where code = 'au750y'`)).rows[0].id
-  customerId = (await q(`select min(id) as id from customers`)).rows[0].id
+  expect((await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })).status).toBe(200)
+  alloyId = await alloyIdByCode(t.db, 'au750y')
+  customerId = await firstCustomerId(t.db)
   // Today's 18 ct price 6,000 p/g; 25 days ago it was 5,234 p/g (the seeded change 12 days ago and today's come later).
-  await q(`insert into alloy_prices (alloy_id, price_per_gram_minor, effective_on) values ($1, 6000, current_date), ($1, 5234, current_date - 25)`, [alloyId])
+  await t.db.insert(s.alloyPrices).values([
+    { alloyId, pricePerGramMinor: 6000, effectiveOn: sql`current_date` },
+    { alloyId, pricePerGramMinor: 5234, effectiveOn: sql`current_date - 25` },
+  ])
 })
 afterAll(async () => {
   await t?.close()
@@ -105,22 +111,18 @@ describe('an order costed', () => {
       pieces: [{ ...piece, templateId }],
     })
     expect(o.status).toBe(201)
-    const bag = (await q(`select id from job_bags where order_id = $1`, [o.body.id])).rows[0].id
-    const ops = Object.fromEntries((await q(`select key, id from operations where job_bag_id = $1`, [bag])).rows.map((r) => [r.key, r.id]))
+    const bag = await jobBagOfOrder(t.db, o.body.id)
+    const ops = await stepIdsByKey(t.db, { jobBagId: bag })
     // The stone list: 3 stones at 120.00 each, counted out 4, 3 set and 1 broken; and one of the customer's own, set.
-    const [line] = (
-      await q(`insert into job_bag_stones (job_bag_id, role, size_mm, count, cost_each_minor) values ($1, 'side', 2, 3, 12000) returning id`, [bag])
-    ).rows
-    const [own] = (
-      await q(`insert into job_bag_stones (job_bag_id, role, size_mm, count, customer_owned, customer_id) values ($1, 'centre', 6, 1, true, $2) returning id`, [
-        bag,
-        customerId,
-      ])
-    ).rows
-    await q(
-      `insert into stone_movements (stone_line_id, kind, count, recorded_at) values ($1, 'issued', 4, now()), ($1, 'set', 3, now()), ($1, 'broken', 1, now()), ($2, 'issued', 1, now()), ($2, 'set', 1, now())`,
-      [line.id, own.id],
-    )
+    await addStoneLine(t.db, { jobBagId: bag, role: 'side', sizeMm: 2, count: 3, costEachMinor: 12000 }, [
+      { kind: 'issued', count: 4 },
+      { kind: 'set', count: 3 },
+      { kind: 'broken', count: 1 },
+    ])
+    await addStoneLine(t.db, { jobBagId: bag, role: 'centre', sizeMm: 6, count: 1, customerOwned: true, customerId }, [
+      { kind: 'issued', count: 1 },
+      { kind: 'set', count: 1 },
+    ])
     const before = await sales.get(`/api/orders/${o.body.id}/costing`)
     expect(before.status).toBe(200)
     // Same as the estimate above: 37,200 + 36,000 + 4,500 + 11,200 = 88,900 p.
@@ -128,23 +130,25 @@ describe('an order costed', () => {
     expect(before.body.actual.caveat).toBe('no metal weighed yet')
 
     // The work: 6.35 g of 18 ct issued 20 days ago (price then 5,234 p/g), the piece back at 6.20 g: 0.15 g lost.
-    const personId = (await q(`select min(id) as id from people`)).rows[0].id
-    await q(
-      `insert into metal_movements (workshop_id, alloy_id, kind, weight_mg, source, job_bag_id, operation_id, person_id, recorded_at)
-      select workshop_id, $1, 'issued', 6350, 'stock', $2, $3, $4, (current_date - 20)::timestamp + interval '10 hours' from job_bags where id = $2`,
-      [alloyId, bag, ops.make, personId],
-    )
-    await q(
-      `insert into metal_movements (workshop_id, alloy_id, kind, weight_mg, form, job_bag_id, operation_id, person_id, recorded_at)
-      select workshop_id, $1, 'returned', 6200, 'piece', $2, $3, $4, (current_date - 20)::timestamp + interval '14 hours' from job_bags where id = $2`,
-      [alloyId, bag, ops.make, personId],
-    )
+    const personId = (await t.db.select({ id: s.people.id }).from(s.people).orderBy(asc(s.people.id)).limit(1))[0]!.id
+    const make = { alloyId, jobBagId: bag, operationId: ops.make, personId }
+    await addMetalMovement(t.db, {
+      ...make,
+      kind: 'issued',
+      weightMg: 6350,
+      source: 'stock',
+      recordedAt: sql`(current_date - 20)::timestamp + interval '10 hours'`,
+    })
+    await addMetalMovement(t.db, {
+      ...make,
+      kind: 'returned',
+      weightMg: 6200,
+      form: 'piece',
+      recordedAt: sql`(current_date - 20)::timestamp + interval '14 hours'`,
+    })
     // 3.5 h at the bench (32.00/h) and the hallmark invoiced at 45.00.
-    await q(`update operations set status = 'done', finished_at = now() where job_bag_id = $1`, [bag])
-    await q(
-      `insert into time_records (operation_id, person_id, started_at, ended_at, end_reason) values ($1, $2, now() - interval '210 minutes', now(), 'finished')`,
-      [ops.make, personId],
-    )
+    await finishedStep(t.db, ops.make!, { finishedAt: sql`now()`, records: [{ personId, start: sql`now() - interval '210 minutes'`, end: sql`now()` }] })
+    await finishedStep(t.db, ops.hallmark!, { finishedAt: sql`now()` })
     expect((await owner.put(`/api/insights/operations/${ops.hallmark}/outside-cost`, { outsideCostMinor: 4500 })).status).toBe(200)
 
     const after = await owner.get(`/api/orders/${o.body.id}/costing`)
@@ -175,19 +179,10 @@ describe('an order costed', () => {
       priceQuotedMinor: 40_000,
       pieces: [{ ...piece, templateId }],
     })
-    const bag = (await q(`select id from job_bags where order_id = $1`, [o.body.id])).rows[0].id
-    await q(
-      `insert into metal_movements (workshop_id, alloy_id, kind, weight_mg, source, job_bag_id, recorded_at) select workshop_id, $1, 'issued', 8000, 'customer', $2, now() - interval '1 day' from job_bags where id = $2`,
-      [alloyId, bag],
-    )
-    await q(
-      `insert into metal_movements (workshop_id, alloy_id, kind, weight_mg, form, job_bag_id, recorded_at) select workshop_id, $1, 'returned', 6200, 'piece', $2, now() from job_bags where id = $2`,
-      [alloyId, bag],
-    )
-    await q(
-      `insert into metal_movements (workshop_id, alloy_id, kind, weight_mg, form, job_bag_id, recorded_at) select workshop_id, $1, 'returned', 1650, 'scrap', $2, now() from job_bags where id = $2`,
-      [alloyId, bag],
-    )
+    const jobBagId = await jobBagOfOrder(t.db, o.body.id)
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'issued', weightMg: 8000, source: 'customer', recordedAt: sql`now() - interval '1 day'` })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'returned', weightMg: 6200, form: 'piece', recordedAt: sql`now()` })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'returned', weightMg: 1650, form: 'scrap', recordedAt: sql`now()` })
     const r = await owner.get(`/api/orders/${o.body.id}/costing`)
     // 8.00 g issued − 6.20 piece − 1.65 scrap = 0.15 g lost, all of it the customer's: metal 0 p.
     expect(r.body.actual.cost.metalMinor).toBe(0)
@@ -196,7 +191,7 @@ describe('an order costed', () => {
 
   it('when the bench asks for an order’s costing, then it is refused', async () => {
     const bench = await signedIn(t.app, 'bench')
-    const id = (await q(`select min(id) as id from orders`)).rows[0].id
+    const id = (await t.db.select({ id: s.orders.id }).from(s.orders).orderBy(asc(s.orders.id)).limit(1))[0]!.id
     expect((await bench.get(`/api/orders/${id}/costing`)).status).toBe(403)
   })
 })
@@ -204,15 +199,15 @@ describe('an order costed', () => {
 describe('a workshop pricing in yen', () => {
   it('when the workshop currency has no decimals, then rates, outside costs and prices are whole yen and the suggested price is a whole yen', async () => {
     // ISO 4217: JPY has no minor unit, so 1 minor unit = ¥1. Everyone at ¥3,000 an hour, the hallmark at ¥4,501, brass (not priced), no stones.
-    await q(`update workshops set currency = 'JPY'`)
-    await q(`update people set hourly_rate_minor = 3000`)
-    expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4501 })).status).toBe(200)
+    await t.db.update(s.workshops).set({ currency: 'JPY' })
+    await hourlyRate(3000)
+    expect((await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4501 })).status).toBe(200)
     const r = await sales.post('/api/costing/estimate', { priceQuotedMinor: 30_000, pieces: [{ templateId, piece: 'Yen ring', params: { metal: 'brass' } }] })
     // Labour ¥10,500 + hallmark ¥4,501 = ¥15,001; at 40 %: 15,001 ÷ 0.6 = 25,001.67 → ¥25,002 (whole yen; rounding to "whole hundreds of minor units" would give ¥25,100).
     expect(r.body).toMatchObject({ currency: 'JPY', priceMinor: 30_000, suggestedPriceMinor: 25_002 })
     expect(r.body.estimate.cost).toMatchObject({ labourMinor: 10_500, outsideMinor: 4_501, totalMinor: 15_001 })
-    await q(`update workshops set currency = 'GBP'`)
-    await q(`update people set hourly_rate_minor = 3200`)
-    await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })
+    await t.db.update(s.workshops).set({ currency: 'GBP' })
+    await hourlyRate(3200)
+    await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })
   })
 })

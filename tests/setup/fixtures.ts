@@ -1,5 +1,5 @@
 // Named builders for database fixtures in the API and browser tests, written with Drizzle on the schema so a renamed column fails the type check.
-import { and, asc, desc, eq, gte, inArray, isNull, notInArray, sql } from 'drizzle-orm'
+import { and, asc, desc, eq, gte, inArray, isNull, notInArray, sql, type SQL } from 'drizzle-orm'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { loadPlanningData } from '../../server/planning/problem'
 import type { Db } from '../../server/db/client'
@@ -267,4 +267,79 @@ export async function bookLastStepLate(
     .limit(1)
   await planStep(db, op!.id, { benchId: Number(b.id), personId: Number(p.id), start, end })
   return { operationId: op!.id, start, end }
+}
+
+/** An alloy of the workshop by its code (e.g. 'au750y'). */
+export async function alloyIdByCode(db: Db, code: string): Promise<number> {
+  const [a] = await db.select({ id: s.alloys.id }).from(s.alloys).where(eq(s.alloys.code, code)).orderBy(asc(s.alloys.id)).limit(1)
+  if (!a) throw new Error(`no alloy ${code}`)
+  return a.id
+}
+
+/** An order's first job bag. */
+export async function jobBagOfOrder(db: Db, orderId: number): Promise<number> {
+  const [b] = await db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId)).orderBy(asc(s.jobBags.id)).limit(1)
+  if (!b) throw new Error(`order ${orderId} has no job bag`)
+  return b.id
+}
+
+/** The steps of an order (or of one job bag), id by step key. */
+export async function stepIdsByKey(db: Db, of: { orderId: number } | { jobBagId: number }): Promise<Record<string, number>> {
+  const rows = await db
+    .select({ key: s.operations.key, id: s.operations.id })
+    .from(s.operations)
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .where('orderId' in of ? eq(s.jobBags.orderId, of.orderId) : eq(s.operations.jobBagId, of.jobBagId))
+  return Object.fromEntries(rows.map((r) => [r.key, r.id]))
+}
+
+/**
+ * A step finished by hand: done at `finishedAt` (ISO, or SQL such as now()), its estimate when given, and one finished time record
+ * per entry; gives the time records' ids.
+ */
+export async function finishedStep(
+  db: Db,
+  operationId: number,
+  o: {
+    finishedAt: string | SQL
+    estimateMinutes?: number
+    records?: { personId: number; start: string | SQL; end: string | SQL }[]
+  },
+): Promise<number[]> {
+  await db
+    .update(s.operations)
+    .set({ status: 'done', finishedAt: o.finishedAt, ...(o.estimateMinutes == null ? {} : { estimateMinutes: o.estimateMinutes }) })
+    .where(eq(s.operations.id, operationId))
+  if (!o.records?.length) return []
+  const rows = await db
+    .insert(s.timeRecords)
+    .values(o.records.map((r) => ({ operationId, personId: r.personId, startedAt: r.start, endedAt: r.end, endReason: 'finished' })))
+    .returning({ id: s.timeRecords.id })
+  return rows.map((r) => r.id)
+}
+
+/** A row of the metal ledger for a job bag, in that job bag's workshop. */
+export async function addMetalMovement(
+  db: Db,
+  m: Omit<typeof s.metalMovements.$inferInsert, 'workshopId' | 'jobBagId' | 'recordedAt'> & { jobBagId: number; recordedAt: string | SQL },
+): Promise<number> {
+  const [bag] = await db.select({ workshopId: s.jobBags.workshopId }).from(s.jobBags).where(eq(s.jobBags.id, m.jobBagId))
+  if (!bag) throw new Error(`no job bag ${m.jobBagId}`)
+  const [row] = await db
+    .insert(s.metalMovements)
+    .values({ ...m, workshopId: bag.workshopId })
+    .returning({ id: s.metalMovements.id })
+  return row!.id
+}
+
+/** A line of a job bag's stone list, with the stones counted on it (issued, set, broken…) recorded at `recordedAt` (default now). */
+export async function addStoneLine(
+  db: Db,
+  line: typeof s.jobBagStones.$inferInsert,
+  movements: { kind: (typeof s.stoneMovements.$inferInsert)['kind']; count: number }[] = [],
+  recordedAt: string | SQL = sql`now()`,
+): Promise<number> {
+  const [row] = await db.insert(s.jobBagStones).values(line).returning({ id: s.jobBagStones.id })
+  if (movements.length) await db.insert(s.stoneMovements).values(movements.map((m) => ({ ...m, stoneLineId: row!.id, recordedAt })))
+  return row!.id
 }

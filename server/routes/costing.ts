@@ -1,6 +1,6 @@
 // Costing routes: what an order costs at estimate and at actual, and the estimated cost of pieces not yet ordered (sales, manager, owner).
 import type { Role } from '../../shared/domain/roles'
-import { costingEstimateInput } from '../../shared/schemas/costing'
+import { costingEstimate, costingEstimateInput, orderCosting } from '../../shared/schemas/costing'
 import { route } from '../lib/route'
 import * as costing from '../services/costing'
 import { idParam } from './params'
@@ -15,6 +15,7 @@ export const costingRoutes = [
     roles: FRONT,
     summary: 'An order’s cost (metal, stones, outside work, labour) and margin at estimate and at actual',
     params: idParam,
+    response: orderCosting,
     handler: ({ deps, actor, params }) => costing.orderCosting(deps.db, actor.workshopId, params.id),
   }),
   route({
@@ -23,6 +24,7 @@ export const costingRoutes = [
     roles: FRONT,
     summary: 'Estimated cost and suggested price of pieces not yet ordered',
     body: costingEstimateInput,
+    response: costingEstimate,
     handler: ({ deps, actor, body }) => costing.estimate(deps.db, actor.workshopId, body),
   }),
 ]

@@ -1,6 +1,7 @@
 // Job costing: the estimate request for pieces not yet ordered, and the answer shared by the order dialog, an order's costing and the owner's table.
 import { z } from 'zod'
-import type { CostBreakdown, Missing } from '../domain/costing'
+import { MISSING_WORDS, type CostBreakdown, type Missing } from '../domain/costing'
+import { wireInt } from './common'
 import { minorAmount, pieceInput } from './order'
 
 export const estimateStoneLine = z.object({
@@ -22,48 +23,64 @@ export const costingEstimateInput = z.object({
 })
 export type CostingEstimateInput = z.infer<typeof costingEstimateInput>
 
+// ---- Answers ----
+
+const missing = z.enum(Object.keys(MISSING_WORDS) as [Missing, ...Missing[]])
+/** Amounts in minor units: metal, stones, outside work, labour and their total. */
+export const costBreakdown = z.object({
+  metalMinor: wireInt,
+  stonesMinor: wireInt,
+  outsideMinor: wireInt,
+  labourMinor: wireInt,
+  totalMinor: wireInt,
+}) satisfies z.ZodType<CostBreakdown>
+
 /** One piece at estimate: how each figure was reached. */
-export interface PieceEstimate {
-  piece: string
-  quantity: number
+export const pieceEstimate = z.object({
+  piece: z.string(),
+  quantity: wireInt,
   /** Metal: weight per piece (g), the alloy and its price per gram on the day. */
-  metalWeightG: number | null
-  alloyName: string | null
-  pricePerGramMinor: number | null
-  priceOn: string | null
-  labourMinutes: number
-  cost: CostBreakdown
-  missing: Missing[]
-}
+  metalWeightG: z.number().nullable(),
+  alloyName: z.string().nullable(),
+  pricePerGramMinor: wireInt.nullable(),
+  priceOn: z.string().nullable(),
+  labourMinutes: z.number(),
+  cost: costBreakdown,
+  missing: z.array(missing),
+})
+export type PieceEstimate = z.infer<typeof pieceEstimate>
 
 /** One side (estimate or actual) of a job's costing. Amounts in minor units. */
-export interface CostingSide {
-  cost: CostBreakdown
-  marginMinor: number
-  marginPct: number | null
-  missing: Missing[]
+export const costingSide = z.object({
+  cost: costBreakdown,
+  marginMinor: wireInt,
+  marginPct: z.number().nullable(),
+  missing: z.array(missing),
   /** What the margin leaves out, in words, or that all four are counted. */
-  caveat: string
-}
+  caveat: z.string(),
+})
+export type CostingSide = z.infer<typeof costingSide>
 
-export interface CostingEstimate {
+export const costingEstimate = z.object({
   /** The price used (minor units). */
-  priceMinor: number
-  estimate: CostingSide
-  pieces: PieceEstimate[]
+  priceMinor: wireInt,
+  estimate: costingSide,
+  pieces: z.array(pieceEstimate),
   /** The workshop's margin and the price that leaves it on the estimated cost. */
-  marginTargetPct: number
-  suggestedPriceMinor: number
-  currency: string
+  marginTargetPct: z.number(),
+  suggestedPriceMinor: wireInt,
+  currency: z.string(),
   /** The day the alloy prices were taken from. */
-  pricedOn: string
-}
+  pricedOn: z.string(),
+})
+export type CostingEstimate = z.infer<typeof costingEstimate>
 
 /** An order's costing: the estimate the order was taken on and, once work is recorded, the actual. */
-export interface OrderCosting extends CostingEstimate {
-  orderId: number
-  orderNumber: string
-  actual: CostingSide
+export const orderCosting = costingEstimate.extend({
+  orderId: wireInt,
+  orderNumber: z.string(),
+  actual: costingSide,
   /** Grams of the customer's own metal lost in the work (costs the workshop nothing but is shown). */
-  customerMetalLossG: number
-}
+  customerMetalLossG: z.number(),
+})
+export type OrderCosting = z.infer<typeof orderCosting>

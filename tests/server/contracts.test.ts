@@ -10,7 +10,7 @@ import { errorHandler } from '../../server/errors/handler'
 import { route, type Deps } from '../../server/lib/route'
 import { waitForRun } from '../../server/planning/runs'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { readyBenchStep } from '../setup/fixtures'
+import { readyBenchStep, templateId } from '../setup/fixtures'
 
 let t: TestApp
 let manager: Agent
@@ -247,6 +247,27 @@ describe('answers on the demo workshop', () => {
     expect(bar, 'an open bar on the live plan').toBeTruthy()
     await call(manager, 'patch', '/board/operations/:id', `/board/operations/${bar.id}`, { pinned: true, version: bar.version })
   }, 120_000)
+
+  it('when an order is costed and pieces not yet ordered are priced, then both costings answer what their schemas allow', async () => {
+    const collected = (await manager.get('/api/orders?status=collected&pageSize=1')).body.items[0]
+    const costed = await call(owner, 'get', '/orders/:id/costing', `/orders/${collected.id}/costing`)
+    expect(costed.pieces.length).toBeGreaterThan(0)
+    const priced = await call(owner, 'post', '/costing/estimate', '/costing/estimate', {
+      priceQuotedMinor: 125_000,
+      pieces: [
+        {
+          templateId: await templateId(t.db),
+          piece: 'Contract ring',
+          params: { metal: 'gold-18ct', metalWeightG: 6.2 },
+          stones: [
+            { count: 3, costEachMinor: 12_000 },
+            { count: 1, customerOwned: true },
+          ],
+        },
+      ],
+    })
+    expect(priced.pieces[0].cost.stonesMinor).toBeGreaterThan(0)
+  })
 
   it('when every call above is done, then each route with a response schema was called at least once', () => {
     expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])

@@ -19,7 +19,7 @@ const from = dayjs().tz('Europe/London').startOf('isoWeek')
 const to = from.add(27, 'day')
 const benches = (await b.call(manager, 'GET', '/benches')).body as { id: number; name: string }[]
 const settingBench = benches.find((x) => /setting/i.test(x.name)) ?? benches[0]!
-const template = ((await b.call(manager, 'GET', '/templates')).body as { id: number; code: string }[])[0]!
+const template = ((await b.call(manager, 'GET', '/routings')).body as { id: number; code: string }[])[0]!
 
 interface Target {
   name: string

@@ -89,7 +89,7 @@ export const insightRoutes = [
   }),
   route({
     method: 'put',
-    path: '/insights/templates/:id/outside-cost',
+    path: '/insights/routings/:id/outside-cost',
     roles: OWNER,
     summary: 'Expected outside cost per unit of a template step (owner)',
     params: idParam,

@@ -212,7 +212,7 @@ export const masterDataRoutes = [
 
   route({
     method: 'get',
-    path: '/templates',
+    path: '/routings',
     roles: EVERYONE,
     summary: 'Routing templates with steps',
     response: z.array(template),
@@ -220,7 +220,7 @@ export const masterDataRoutes = [
   }),
   route({
     method: 'get',
-    path: '/templates/:id',
+    path: '/routings/:id',
     roles: EVERYONE,
     summary: 'One routing template',
     params: idParam,
@@ -229,7 +229,7 @@ export const masterDataRoutes = [
   }),
   route({
     method: 'post',
-    path: '/templates',
+    path: '/routings',
     roles: STAFF,
     status: 201,
     summary: 'Add a routing template',
@@ -239,7 +239,7 @@ export const masterDataRoutes = [
   }),
   route({
     method: 'put',
-    path: '/templates/:id',
+    path: '/routings/:id',
     roles: STAFF,
     summary: 'Replace a routing template',
     params: idParam,

@@ -456,7 +456,7 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
     })
     return { id: row!.id, version: t.version }
   })
-  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing-template', id: input.templateId, version: change.version })
+  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing', id: input.templateId, version: change.version })
   return (await listStepChanges(db, actor.workshopId)).find((c) => c.id === change.id)!
 }
 

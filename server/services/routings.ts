@@ -95,7 +95,7 @@ export async function createTemplate({ db, realtime }: Deps, actor: Actor, input
     .catch((e) => {
       throw codeTaken(e)
     })
-  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing-template', id })
+  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing', id })
   return getTemplate(db, actor.workshopId, id)
 }
 
@@ -110,6 +110,6 @@ export async function updateTemplate({ db, realtime }: Deps, actor: Actor, id: n
     .catch((e) => {
       throw codeTaken(e)
     })
-  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing-template', id })
+  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing', id })
   return getTemplate(db, actor.workshopId, id)
 }

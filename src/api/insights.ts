@@ -49,7 +49,7 @@ export interface StepCost {
 }
 export const getStepCosts = () => api.get<StepCost[]>('/insights/outside-costs')
 export const setStepCost = (templateId: number, stepKey: string, outsideCostMinor: number | null) =>
-  api.put<{ templateId: number; stepKey: string; outsideCostMinor: number | null }>(`/insights/templates/${templateId}/outside-cost`, {
+  api.put<{ templateId: number; stepKey: string; outsideCostMinor: number | null }>(`/insights/routings/${templateId}/outside-cost`, {
     stepKey,
     outsideCostMinor,
   })

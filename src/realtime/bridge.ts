@@ -122,7 +122,7 @@ const masterData: LiveRoute = {
         const s = usePauseReasonsStore()
         if (s.loaded) return s.load(true)
       },
-      'routing-template': () => {
+      routing: () => {
         const s = useRoutingsStore()
         if (s.loaded) return s.load(true)
       },

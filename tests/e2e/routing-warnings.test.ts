@@ -40,7 +40,7 @@ describe('routing warnings in the editor', () => {
     await screenshot(page, 'routing-editor-warning', { fullPage: false })
     await page.locator('[data-test=routing-save]').click()
     await page.locator('.el-drawer').waitFor({ state: 'hidden' })
-    // The count comes from the server's answer (GET /api/templates → warnings), not from the editor.
+    // The count comes from the server's answer (GET /api/routings → warnings), not from the editor.
     await row(page).locator('[data-test=routing-warning-count]').waitFor()
     expect(await row(page).locator('[data-test=routing-warning-count]').textContent()).toMatch(/2 to check/)
     await screenshot(page, 'routings-list-warning', { fullPage: false })

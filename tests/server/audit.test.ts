@@ -148,7 +148,7 @@ describe('estimates', () => {
     expect(JSON.stringify(step!.details)).toContain('heavier casting than usual')
     expect(JSON.stringify(step!.details)).toContain(String(Number(op.estimate_minutes) + 30))
 
-    const tpl = (await owner.get('/api/templates')).body[0]
+    const tpl = (await owner.get('/api/routings')).body[0]
     const s0 = tpl.steps[0]
     const acc = await owner.post('/api/estimates/accept', {
       templateId: tpl.id,

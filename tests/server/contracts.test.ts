@@ -74,18 +74,18 @@ describe('answers on the demo workshop', () => {
     await call(manager, 'delete', '/people/:id/leave/:childId', `/people/${person.id}/leave/${onLeave.leave[0].id}`)
     expect(changedPerson.hourlyRateMinor).toBe(2500)
 
-    const templates = await call(manager, 'get', '/templates', '/templates')
-    const tpl = await call(manager, 'get', '/templates/:id', `/templates/${templates[0].id}`)
+    const templates = await call(manager, 'get', '/routings', '/routings')
+    const tpl = await call(manager, 'get', '/routings/:id', `/routings/${templates[0].id}`)
     const steps = tpl.steps.map(({ id: _id, ...step }: { id: number }) => step)
     const copy = await call(
       manager,
       'post',
-      '/templates',
-      '/templates',
+      '/routings',
+      '/routings',
       { code: 'contract-copy', name: 'Contract copy', description: '', learningRate: null, steps },
       201,
     )
-    await call(manager, 'put', '/templates/:id', `/templates/${copy.id}`, {
+    await call(manager, 'put', '/routings/:id', `/routings/${copy.id}`, {
       code: 'contract-copy',
       name: 'Contract copy, renamed',
       description: '',
@@ -106,7 +106,7 @@ describe('answers on the demo workshop', () => {
     expect(page.items.length).toBeGreaterThan(0)
     await call(manager, 'get', '/orders/:id', `/orders/${page.items[0].id}`)
     const customers = (await manager.get('/api/customers?pageSize=1')).body
-    const templates = (await manager.get('/api/templates')).body
+    const templates = (await manager.get('/api/routings')).body
     const order = await call(
       manager,
       'post',

@@ -12,7 +12,7 @@ beforeAll(async () => {
   t = await createTestApp()
   sales = await signedIn(t.app, 'sales')
   manager = await signedIn(t.app, 'manager')
-  tpl = Object.fromEntries((await manager.get('/api/templates')).body.map((x: { code: string }) => [x.code, x]))
+  tpl = Object.fromEntries((await manager.get('/api/routings')).body.map((x: { code: string }) => [x.code, x]))
 })
 afterAll(async () => {
   await t?.close()

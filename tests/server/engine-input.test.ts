@@ -120,7 +120,7 @@ describe('absurd durations', () => {
 
   it('when a template step would take 10000 base minutes plus 240 per stone on 2000 stones, then checking a promise answers 422 naming the step, not a 500', async () => {
     const [k] = await t.db.select({ id: s.operationKinds.id }).from(s.operationKinds).where(eq(s.operationKinds.code, 'setting'))
-    const tpl = await manager.post('/api/templates', {
+    const tpl = await manager.post('/api/routings', {
       code: 'pave-everything',
       name: 'Pavé everything',
       steps: [{ key: 'set', kindId: k!.id, name: 'Set every stone', baseMinutes: 10000, perStoneMinutes: 240 }],
@@ -143,9 +143,9 @@ describe('routings in a circle', () => {
       { key: 'b', kindId: kid, name: 'Second', baseMinutes: 10, after: ['a'] },
       { key: 'c', kindId: kid, name: 'Third', baseMinutes: 10, after: ['b'] },
     ]
-    const r = await manager.post('/api/templates', { code: 'round-and-round', name: 'Round and round', steps })
+    const r = await manager.post('/api/routings', { code: 'round-and-round', name: 'Round and round', steps })
     expectFieldError(r, 'steps', /circle/)
-    const self = await manager.post('/api/templates', {
+    const self = await manager.post('/api/routings', {
       code: 'own-tail',
       name: 'Own tail',
       steps: [{ key: 'a', kindId: kid, name: 'Only', baseMinutes: 10, after: ['a'] }],
@@ -160,10 +160,10 @@ describe('routings in a circle', () => {
 
   it('when an existing template is replaced by one with a circle, then it is refused with 400 and the saved steps stay as they were', async () => {
     const kid = await kindId()
-    const list = await manager.get('/api/templates')
+    const list = await manager.get('/api/routings')
     const tpl = list.body[0]
-    const before = await manager.get(`/api/templates/${tpl.id}`)
-    const r = await manager.put(`/api/templates/${tpl.id}`, {
+    const before = await manager.get(`/api/routings/${tpl.id}`)
+    const r = await manager.put(`/api/routings/${tpl.id}`, {
       version: tpl.version,
       code: tpl.code,
       name: tpl.name,
@@ -174,7 +174,7 @@ describe('routings in a circle', () => {
       ],
     })
     expectFieldError(r, 'steps', /circle/)
-    expect((await manager.get(`/api/templates/${tpl.id}`)).body).toEqual(before.body)
+    expect((await manager.get(`/api/routings/${tpl.id}`)).body).toEqual(before.body)
   })
 
   it('when a job bag step is made to wait for a step that waits for it, then the change is refused naming "after" and the routing is unchanged', async () => {

@@ -23,7 +23,7 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   kinds = Object.fromEntries((await manager.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
   customerId = await firstCustomerId(t.db)
-  const a = await manager.post('/api/templates', {
+  const a = await manager.post('/api/routings', {
     code: 'run-fixture',
     name: 'Fixture: production run',
     learningRate: 0.85,
@@ -31,7 +31,7 @@ beforeAll(async () => {
   })
   expect(a.status, JSON.stringify(a.body)).toBe(201)
   run = a.body
-  const b = await manager.post('/api/templates', {
+  const b = await manager.post('/api/routings', {
     code: 'model-fixture',
     name: 'Fixture: set and polish by size',
     steps: [
@@ -82,8 +82,8 @@ describe('a production run with a learning curve', () => {
   })
 
   it('when the learning rate is taken off, then 40 pieces take 40 × 12 = 480 min again', async () => {
-    const cur = (await manager.get(`/api/templates/${run.id}`)).body
-    const put = await manager.put(`/api/templates/${run.id}`, { ...cur, learningRate: null })
+    const cur = (await manager.get(`/api/routings/${run.id}`)).body
+    const put = await manager.put(`/api/routings/${run.id}`, { ...cur, learningRate: null })
     expect(put.status, JSON.stringify(put.body)).toBe(200)
     expect(put.body.learningRate).toBeNull()
     expect((await auditRows(t, 'routing-template', run.id))[0]).toMatchObject({ action: 'update', details: { learningRate: null } })
@@ -99,11 +99,11 @@ describe('a production run with a learning curve', () => {
 
 describe('stone size bands and per-mm minutes', () => {
   it('when a routing is read back, then its learning rate, per-mm minutes and band factors are as saved', async () => {
-    const got = (await manager.get(`/api/templates/${oneOff.id}`)).body
+    const got = (await manager.get(`/api/routings/${oneOff.id}`)).body
     expect(got.learningRate).toBeNull()
     expect(got.steps[0]).toMatchObject({ key: 'set', perMmMinutes: 0, sizeBandFactors: { melee: 1.2, large: 1.5 } })
     expect(got.steps[1]).toMatchObject({ key: 'polish', perMmMinutes: 0.25, sizeBandFactors: {} })
-    const runGot = (await manager.get('/api/templates')).body.find((x: { code: string }) => x.code === 'stud-run')
+    const runGot = (await manager.get('/api/routings')).body.find((x: { code: string }) => x.code === 'stud-run')
     // The demo stud run learns at 85 % (seed.ts; common practice, no source).
     expect(runGot.learningRate).toBeCloseTo(0.85, 6)
   })
@@ -152,21 +152,21 @@ describe('refused routing input', () => {
   const step = (extra: Record<string, unknown>) => ({ ...base(), steps: [{ ...base().steps[0], ...extra }] })
 
   it('when the learning rate is 0.5 or less, above 1 or not a number, then 400 naming learningRate', async () => {
-    expectFieldError(await manager.post('/api/templates', { ...base(), learningRate: 0.5 }), 'learningRate', /above 0\.5/)
-    expectFieldError(await manager.post('/api/templates', { ...base(), learningRate: 0.2 }), 'learningRate', /above 0\.5/)
-    expectFieldError(await manager.post('/api/templates', { ...base(), learningRate: 1.2 }), 'learningRate', /at most 1/)
-    expectFieldError(await manager.post('/api/templates', { ...base(), learningRate: 'fast' }), 'learningRate', /number/)
-    const cur = (await manager.get(`/api/templates/${oneOff.id}`)).body
-    expectFieldError(await manager.put(`/api/templates/${oneOff.id}`, { ...cur, learningRate: 1.5 }), 'learningRate', /at most 1/)
+    expectFieldError(await manager.post('/api/routings', { ...base(), learningRate: 0.5 }), 'learningRate', /above 0\.5/)
+    expectFieldError(await manager.post('/api/routings', { ...base(), learningRate: 0.2 }), 'learningRate', /above 0\.5/)
+    expectFieldError(await manager.post('/api/routings', { ...base(), learningRate: 1.2 }), 'learningRate', /at most 1/)
+    expectFieldError(await manager.post('/api/routings', { ...base(), learningRate: 'fast' }), 'learningRate', /number/)
+    const cur = (await manager.get(`/api/routings/${oneOff.id}`)).body
+    expectFieldError(await manager.put(`/api/routings/${oneOff.id}`, { ...cur, learningRate: 1.5 }), 'learningRate', /at most 1/)
     // Exactly 1 (no learning) is allowed.
-    expect((await manager.post('/api/templates', { ...base(), code: 'flat-fixture', learningRate: 1 })).status).toBe(201)
+    expect((await manager.post('/api/routings', { ...base(), code: 'flat-fixture', learningRate: 1 })).status).toBe(201)
   })
 
   it('when a band factor is outside 0.2–5, names an unknown band, or per-mm minutes are negative, then 400 naming the field', async () => {
-    expectFieldError(await manager.post('/api/templates', step({ sizeBandFactors: { large: 6 } })), 'steps.0.sizeBandFactors.large', /at most 5/)
-    expectFieldError(await manager.post('/api/templates', step({ sizeBandFactors: { melee: 0.1 } })), 'steps.0.sizeBandFactors.melee', /at least 0\.2/)
-    expectFieldError(await manager.post('/api/templates', step({ sizeBandFactors: { huge: 2 } })), 'steps.0.sizeBandFactors', /melee, small and large/)
-    expectFieldError(await manager.post('/api/templates', step({ perMmMinutes: -0.5 })), 'steps.0.perMmMinutes', /negative/)
+    expectFieldError(await manager.post('/api/routings', step({ sizeBandFactors: { large: 6 } })), 'steps.0.sizeBandFactors.large', /at most 5/)
+    expectFieldError(await manager.post('/api/routings', step({ sizeBandFactors: { melee: 0.1 } })), 'steps.0.sizeBandFactors.melee', /at least 0\.2/)
+    expectFieldError(await manager.post('/api/routings', step({ sizeBandFactors: { huge: 2 } })), 'steps.0.sizeBandFactors', /melee, small and large/)
+    expectFieldError(await manager.post('/api/routings', step({ perMmMinutes: -0.5 })), 'steps.0.perMmMinutes', /negative/)
     const [n] = await t.db.select({ n: count() }).from(s.routingTemplates).where(eq(s.routingTemplates.code, 'bad-fixture'))
     expect(n!.n).toBe(0)
   })

@@ -49,7 +49,7 @@ const killGroup = (c: ChildProcess, sig: NodeJS.Signals) => {
 async function writeTargets(cookie: string) {
   const get = async (path: string) => (await fetch(`${base}/api${path}`, { headers: { cookie } })).json() as Promise<any>
   const customers = await get('/customers')
-  const templates = await get('/templates')
+  const templates = await get('/routings')
   const people = await get('/people')
   const orders = await get('/orders?status=open')
   const order = await get(`/orders/${orders.items[0].id}`)

@@ -46,7 +46,7 @@ beforeAll(async () => {
   kinds = Object.fromEntries((await owner.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
   person = Object.fromEntries((await q(`select id, name from people`)).rows.map((p) => [p.name.split(' ')[0], p.id]))
   const customerId = (await q(`select min(id) as id from customers`)).rows[0].id
-  const tpl = await manager.post('/api/templates', {
+  const tpl = await manager.post('/api/routings', {
     code: 'insight-fixture',
     name: 'Fixture: set and polish',
     description: 'Hand-computed fixture for the insights tests.',
@@ -93,7 +93,7 @@ beforeAll(async () => {
   )
   await finish(b.hallmark!, 0, at('2030-04-08', '12:00'), [])
   // Expected outside cost: 2.50 per unit at the assay office; order A's was invoiced at 7.00.
-  expect((await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 250 })).status).toBe(200)
+  expect((await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 250 })).status).toBe(200)
   expect((await owner.put(`/api/insights/operations/${a.hallmark}/outside-cost`, { outsideCostMinor: 700 })).status).toBe(200)
 })
 afterAll(async () => {
@@ -385,12 +385,12 @@ describe('job costing', () => {
 
   it('when an outside cost is not a number or negative, then the field is named', async () => {
     expectFieldError(
-      await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: -1 }),
+      await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: -1 }),
       'outsideCostMinor',
       /negative/,
     )
     expectFieldError(
-      await owner.put(`/api/insights/templates/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 2.5 }),
+      await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 2.5 }),
       'outsideCostMinor',
       /whole minor units/,
     )
@@ -429,7 +429,7 @@ describe('learning from actual times', () => {
 
   it('when a step also counts the piece’s size, then no figure is suggested and its history is measured against the whole step model', async () => {
     // A routing step of 10 min + 0.1 min per mm; pieces of 100 mm → 10 + 10 = 20 min each (hand-computed). Priya saws at speed 1.0 (seed).
-    const tpl = await manager.post('/api/templates', {
+    const tpl = await manager.post('/api/routings', {
       code: 'per-mm-fixture',
       name: 'Fixture: sawn by length',
       steps: [{ key: 'saw', kindId: kinds.sawing, name: 'Saw to length', baseMinutes: 10, perMmMinutes: 0.1 }],
@@ -454,7 +454,7 @@ describe('learning from actual times', () => {
 
   it('when setting history has overnight outliers, then the learned per-stone minutes stay on the true rate', async () => {
     // A routing whose template is wrong on purpose (10 + 4 per stone); the true work is 20 + 6 per stone at standard speed.
-    const tpl = await manager.post('/api/templates', {
+    const tpl = await manager.post('/api/routings', {
       code: 'outlier-fixture',
       name: 'Fixture: pavé with outliers',
       steps: [{ key: 'set', kindId: kinds.setting, name: 'Set pavé', baseMinutes: 10, perStoneMinutes: 4 }],
@@ -488,7 +488,7 @@ describe('learning from actual times', () => {
     expect(Math.abs(s.suggested.baseMinutes - 20)).toBeLessThanOrEqual(1)
 
     // The owner accepts: the step's minutes change, the template version goes up, the change is kept with who, when and its basis.
-    const before = (await owner.get(`/api/templates/${tpl.body.id}`)).body
+    const before = (await owner.get(`/api/routings/${tpl.body.id}`)).body
     const acc = await owner.post('/api/estimates/accept', {
       templateId: tpl.body.id,
       stepKey: 'set',
@@ -508,7 +508,7 @@ describe('learning from actual times', () => {
       acceptedBy: 'Margit Saale',
       basis: { n: 20, method: 'theil-sen' },
     })
-    const after = (await owner.get(`/api/templates/${tpl.body.id}`)).body
+    const after = (await owner.get(`/api/routings/${tpl.body.id}`)).body
     expect(after.version).toBe(before.version + 1)
     expect(after.steps[0]).toMatchObject({ baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes })
     expect((await auditRows(t, 'routing-template', tpl.body.id))[0]).toMatchObject({
@@ -572,7 +572,7 @@ describe('outside work costs', () => {
     const hallmark = list.body.find((r: { stepName: string }) => /Hallmark/.test(r.stepName))
     // The demo charges 2.80 (280 p) per piece at the assay office (server/db/seed-costing.ts).
     expect(hallmark).toMatchObject({ leadDays: expect.any(Number), outsideCostMinor: 280, currency: 'GBP' })
-    const put = await owner.put(`/api/insights/templates/${hallmark.templateId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCostMinor: 1250 })
+    const put = await owner.put(`/api/insights/routings/${hallmark.templateId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCostMinor: 1250 })
     expect(put.status).toBe(200)
     const again = (await owner.get('/api/insights/outside-costs')).body.find(
       (r: { templateId: number; stepKey: string }) => r.templateId === hallmark.templateId && r.stepKey === hallmark.stepKey,

@@ -291,7 +291,7 @@ describe('routing templates', () => {
   })
 
   it('when a branching template is added and replaced, then its steps come back in order and it is audited', async () => {
-    const c = await manager.post('/api/templates', {
+    const c = await manager.post('/api/routings', {
       code: 'toggle-bracelet',
       name: 'Toggle bracelet',
       steps: [
@@ -305,10 +305,10 @@ describe('routing templates', () => {
     expect(c.body.steps.map((s: { key: string }) => s.key)).toEqual(['bar', 'ring', 'join', 'polish'])
     expect(c.body.steps[2]).toMatchObject({ after: ['bar', 'ring'], waitAfterMinutes: 15, requiredLevel: 1, leadDays: 0 })
 
-    const got = await manager.get(`/api/templates/${c.body.id}`)
+    const got = await manager.get(`/api/routings/${c.body.id}`)
     expect(got.body).toEqual(c.body)
 
-    const u = await manager.put(`/api/templates/${c.body.id}`, {
+    const u = await manager.put(`/api/routings/${c.body.id}`, {
       code: 'toggle-bracelet',
       name: 'Toggle bracelet, heavy',
       steps: [step('bar'), step('polish', ['bar'])],
@@ -317,14 +317,14 @@ describe('routing templates', () => {
     expect(u.status).toBe(200)
     expect(u.body).toMatchObject({ name: 'Toggle bracelet, heavy', version: 1 })
     expect(u.body.steps.map((s: { key: string }) => s.key)).toEqual(['bar', 'polish'])
-    const stale = await manager.put(`/api/templates/${c.body.id}`, { code: 'toggle-bracelet', name: 'x', steps: [step('bar')], version: 0 })
+    const stale = await manager.put(`/api/routings/${c.body.id}`, { code: 'toggle-bracelet', name: 'x', steps: [step('bar')], version: 0 })
     expectCleanError(stale, 409)
     expect(stale.body.error).toMatch(STALE)
     expect((await auditRows(t, 'routing-template', c.body.id)).map((x) => x.action)).toEqual(['update', 'create'])
   })
 
   it('when a step follows an unknown step, itself, or the steps form a circle, then 400 with the field path', async () => {
-    const post = (steps: unknown[]) => manager.post('/api/templates', { code: 'bad-graph', name: 'Bad graph', steps })
+    const post = (steps: unknown[]) => manager.post('/api/routings', { code: 'bad-graph', name: 'Bad graph', steps })
     expectFieldError(await post([step('a'), step('b', ['nope'])]), 'steps.1.after', /unknown step "nope"/)
     expectFieldError(await post([step('a', ['a'])]), 'steps.0.after', /cannot follow itself/)
     expectFieldError(await post([step('a', ['c']), step('b', ['a']), step('c', ['b'])]), 'steps', /circle/)
@@ -337,11 +337,11 @@ describe('routing templates', () => {
   })
 
   it('when the code is taken or the template does not exist, then 409 or 404', async () => {
-    const dup = await manager.post('/api/templates', { code: 'bezel-ring', name: 'Again', steps: [step('a')] })
+    const dup = await manager.post('/api/routings', { code: 'bezel-ring', name: 'Again', steps: [step('a')] })
     expectCleanError(dup, 409)
     expect(dup.body.fields).toEqual({ code: expect.any(String) })
-    expectCleanError(await manager.get('/api/templates/999999'), 404)
-    expectCleanError(await manager.put('/api/templates/999999', { code: 'nothing-here', name: 'x', steps: [step('a')], version: 0 }), 404)
+    expectCleanError(await manager.get('/api/routings/999999'), 404)
+    expectCleanError(await manager.put('/api/routings/999999', { code: 'nothing-here', name: 'x', steps: [step('a')], version: 0 }), 404)
   })
 })
 
@@ -499,7 +499,7 @@ describe('another workshop', () => {
       bench: (await manager.get('/api/benches')).body[0],
       person: people.find((p: { leave: unknown[] }) => p.leave.length > 0),
       kind: (await manager.get('/api/operation-kinds')).body[0],
-      template: (await manager.get('/api/templates')).body[0],
+      template: (await manager.get('/api/routings')).body[0],
       customer: (await manager.get('/api/customers')).body.items[0],
       closure: (await manager.get('/api/closures')).body[0],
       order: (await manager.get('/api/orders')).body.items[0],
@@ -508,7 +508,7 @@ describe('another workshop', () => {
   })
 
   it("when its owner lists master data, then none of the first workshop's rows show", async () => {
-    for (const path of ['/api/benches', '/api/people', '/api/operation-kinds', '/api/templates', '/api/closures']) {
+    for (const path of ['/api/benches', '/api/people', '/api/operation-kinds', '/api/routings', '/api/closures']) {
       const r = await other.agent.get(path)
       expect(r.status, path).toBe(200)
       expect(r.body, path).toEqual([])
@@ -523,7 +523,7 @@ describe('another workshop', () => {
     const a = other.agent
     const f = first
     const tries = [
-      await a.get(`/api/templates/${f.template.id}`),
+      await a.get(`/api/routings/${f.template.id}`),
       await a.get(`/api/customers/${f.customer.id}`),
       await a.get(`/api/orders/${f.order.id}`),
       await a.patch(`/api/benches/${f.bench.id}`, { notes: 'taken over', version: f.bench.version }),
@@ -532,7 +532,7 @@ describe('another workshop', () => {
       await a.post(`/api/people/${f.person.id}/leave`, { startsOn: '2030-05-06', endsOn: '2030-05-06' }),
       await a.delete(`/api/people/${f.person.id}/leave/${f.person.leave[0]!.id}`),
       await a.patch(`/api/operation-kinds/${f.kind.id}`, { name: 'taken over', version: f.kind.version }),
-      await a.put(`/api/templates/${f.template.id}`, {
+      await a.put(`/api/routings/${f.template.id}`, {
         code: 'x',
         name: 'x',
         steps: [{ key: 'a', kindId: f.kind.id, name: 'a', baseMinutes: 1 }],
@@ -600,13 +600,13 @@ describe('error hygiene', () => {
 
   it('when an id is not a number or absurdly large, then 400 or 404, never 500', async () => {
     expectFieldError(await manager.patch('/api/benches/abc', { notes: 'x', version: 0 }), 'id', /number/)
-    expectFieldError(await manager.get('/api/templates/abc'), 'id', /number/)
-    expectFieldError(await manager.get('/api/templates/-3'), 'id')
-    expectFieldError(await manager.get('/api/templates/1.5'), 'id')
+    expectFieldError(await manager.get('/api/routings/abc'), 'id', /number/)
+    expectFieldError(await manager.get('/api/routings/-3'), 'id')
+    expectFieldError(await manager.get('/api/routings/1.5'), 'id')
     for (const r of [
       await manager.get('/api/benches/abc'),
       await manager.get('/api/benches/99999999999999'),
-      await manager.get('/api/templates/99999999999999'),
+      await manager.get('/api/routings/99999999999999'),
       await manager.patch('/api/benches/99999999999999', { notes: 'x', version: 0 }),
       await manager.get('/api/customers/1e300'),
       await manager.delete('/api/closures/99999999999999999999999'),

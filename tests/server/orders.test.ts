@@ -34,7 +34,7 @@ beforeAll(async () => {
   t = await createTestApp()
   sales = await signedIn(t.app, 'sales')
   manager = await signedIn(t.app, 'manager')
-  tpl = Object.fromEntries((await manager.get('/api/templates')).body.map((x: { code: string }) => [x.code, x]))
+  tpl = Object.fromEntries((await manager.get('/api/routings')).body.map((x: { code: string }) => [x.code, x]))
   customerId = (await sales.get('/api/customers?q=Emrys')).body.items[0].id
 })
 afterAll(async () => {
@@ -189,7 +189,7 @@ describe('taking an order', () => {
     )
     const other = await secondWorkshop(t, 'orders')
     const kind = (await other.agent.post('/api/operation-kinds', { code: 'filing', name: 'Filing' })).body
-    const foreign = (await other.agent.post('/api/templates', { code: 'own', name: 'Own', steps: [{ key: 'a', kindId: kind.id, name: 'A', baseMinutes: 5 }] }))
+    const foreign = (await other.agent.post('/api/routings', { code: 'own', name: 'Own', steps: [{ key: 'a', kindId: kind.id, name: 'A', baseMinutes: 5 }] }))
       .body
     expectFieldError(
       await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: foreign.id, piece: 'x' }] }),

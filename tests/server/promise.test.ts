@@ -367,7 +367,7 @@ describe('accepting a promise', () => {
     const owner = await signedIn(t.app, 'owner')
     const kind = (await owner.post('/api/operation-kinds', { code: 'enamelling', name: 'Enamelling' })).body
     const tpl = (
-      await owner.post('/api/templates', {
+      await owner.post('/api/routings', {
         code: 'enamel-only',
         name: 'Enamel only',
         steps: [{ key: 'enamel', kindId: kind.id, name: 'Enamel', baseMinutes: 30 }],

@@ -314,14 +314,14 @@ describe('a routing step’s own role factors', () => {
   it('when the step sets its own factor for centre stones, then the stone list’s minutes use it and the other roles keep the usual factor; bad factors are refused', async () => {
     const kinds = Object.fromEntries((await manager.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
     const bad = (roleFactors: unknown) =>
-      manager.post('/api/templates', {
+      manager.post('/api/routings', {
         code: 'role-bad',
         name: 'Bad',
         steps: [{ key: 'set', kindId: kinds.setting, name: 'Set', baseMinutes: 30, perStoneMinutes: 6, roleFactors }],
       })
     expectFieldError(await bad({ centre: 6 }), 'steps.0.roleFactors.centre', /at most 5/)
     expectFieldError(await bad({ crown: 2 }), 'steps.0.roleFactors', /centre, side, halo and pave/)
-    const tpl = await manager.post('/api/templates', {
+    const tpl = await manager.post('/api/routings', {
       code: 'role-fixture',
       name: 'Fixture: set by role',
       steps: [

@@ -18,7 +18,7 @@ afterAll(async () => {
 
 describe('routing warnings', () => {
   it('when the demo routings are read, then none has a warning and in each every step is linked to the others', async () => {
-    const all = (await manager.get('/api/templates')).body as Template[]
+    const all = (await manager.get('/api/routings')).body as Template[]
     expect(all.length).toBeGreaterThanOrEqual(10)
     const outside = new Set(
       Object.values(kinds)
@@ -39,7 +39,7 @@ describe('routing warnings', () => {
   })
 
   it('when the stud production run is read, then cleaning comes after the casting', async () => {
-    const studs = ((await manager.get('/api/templates')).body as Template[]).find((r) => r.code === 'stud-run')!
+    const studs = ((await manager.get('/api/routings')).body as Template[]).find((r) => r.code === 'stud-run')!
     expect(studs.steps.find((s) => s.key === 'clean')!.after).toEqual(['cast'])
   })
 
@@ -49,15 +49,15 @@ describe('routing warnings', () => {
       { key: 'clean', kindId: kinds.filing!.id, name: 'Cut off and clean', baseMinutes: 5 },
       { key: 'polish', kindId: kinds.polishing!.id, name: 'Polish', baseMinutes: 4, after: ['clean'] },
     ]
-    const c = await manager.post('/api/templates', { code: 'loose-studs', name: 'Loose studs', steps })
+    const c = await manager.post('/api/routings', { code: 'loose-studs', name: 'Loose studs', steps })
     expect(c.status).toBe(201)
     expect(c.body.warnings.map((w: { code: string }) => w.code)).toEqual(['starts-while-away', 'not-connected'])
     expect(c.body.warnings[0]).toMatchObject({ step: 'clean', outside: ['cast'] })
     expect(c.body.warnings[1]).toMatchObject({ steps: ['cast'] })
-    expect((await manager.get(`/api/templates/${c.body.id}`)).body.warnings).toEqual(c.body.warnings)
+    expect((await manager.get(`/api/routings/${c.body.id}`)).body.warnings).toEqual(c.body.warnings)
 
     const fixed = steps.map((s) => (s.key === 'clean' ? { ...s, after: ['cast'] } : s))
-    const u = await manager.put(`/api/templates/${c.body.id}`, { code: 'loose-studs', name: 'Loose studs', steps: fixed, version: c.body.version })
+    const u = await manager.put(`/api/routings/${c.body.id}`, { code: 'loose-studs', name: 'Loose studs', steps: fixed, version: c.body.version })
     expect(u.status).toBe(200)
     expect(u.body.warnings).toEqual([])
   })

@@ -55,7 +55,7 @@ beforeAll(async () => {
   expect((await manager.post(`/api/plans/${ids.plan}/publish`)).status).toBe(200)
   ids.settingBench = ((await owner.get('/api/benches')).body as { id: number; name: string }[]).find((b) => b.name === 'Setting bench A')!.id
   ids.kindKey = ((await owner.get('/api/insights/comparison?groupBy=kind')).body.rows ?? [])[0]?.key
-  ids.template = firstId((await owner.get('/api/templates')).body)
+  ids.routing = firstId((await owner.get('/api/routings')).body)
   ids.customer = firstId((await owner.get('/api/customers')).body)
   ids.order = firstId((await owner.get('/api/orders')).body)
   ids.jobBag = firstId((await owner.get('/api/job-bags')).body)
@@ -89,7 +89,7 @@ function pathOf(path: string): string {
   const filled = path
     .replace(':runId', String(ids.runId))
     .replace(/^\/account-links\/:token/, `/account-links/${ids.token}`)
-    .replace(/^\/templates\/:id/, `/templates/${ids.template}`)
+    .replace(/^\/routings\/:id/, `/routings/${ids.routing}`)
     .replace(/^\/customers\/:id/, `/customers/${ids.customer}`)
     .replace(/^\/orders\/:id/, `/orders/${ids.order}`)
     .replace(/^\/job-bags\/:id/, `/job-bags/${ids.jobBag}`)

@@ -1,13 +1,15 @@
 // The API fuzzer: which routes it walks (and which it leaves out, and why), request cases built from each route's schemas
 // with hostile mutations, the checks every answer must pass, and read-back of accepted strings.
+import { asc, desc, eq, isNull, notInArray, or } from 'drizzle-orm'
 import fc from 'fast-check'
-import type pg from 'pg'
 import type { ZodType } from 'zod'
 import { ROLES, type Role } from '../../../shared/domain/roles'
 import { benchUpdate } from '../../../shared/schemas/bench'
 import { customerUpdate } from '../../../shared/schemas/customer'
 import { operationKindUpdate } from '../../../shared/schemas/operation-kind'
 import { personUpdate } from '../../../shared/schemas/person'
+import type { Db } from '../../../server/db/client'
+import * as s from '../../../server/db/schema/index'
 import type { RouteSpec } from '../../../server/lib/route'
 import { Agent, DEMO_EMAIL } from '../../setup/app'
 import { arbOf, isOpaque, jsonSchemaOf, type IdPools } from './schema-arb'
@@ -86,7 +88,7 @@ const SEGMENT_POOL: Record<string, string> = {
   people: 'people',
   'operation-kinds': 'kinds',
   closures: 'closures',
-  templates: 'templates',
+  routings: 'routings',
   customers: 'customers',
   users: 'users',
   orders: 'orders',
@@ -101,35 +103,54 @@ const SEGMENT_POOL: Record<string, string> = {
   downtime: 'downtime',
 }
 
-export async function loadIdPools(pool: pg.Pool): Promise<IdPools> {
-  const q = async (sql: string) => {
+export async function loadIdPools(db: Db): Promise<IdPools> {
+  const ids = async (rows: PromiseLike<{ id: number }[]>) => {
     try {
-      return (await pool.query(sql)).rows.map((r) => Number(r.id))
+      return (await rows).map((r) => Number(r.id))
     } catch {
       return []
     }
   }
   const agentEmails = Object.values(DEMO_EMAIL)
+  const { people, users, orders, operations, planVersions } = s
   return {
-    customers: await q('select id from customers order by id limit 5'),
-    templates: await q('select id from routing_templates order by id limit 5'),
-    kinds: await q('select id from operation_kinds order by id limit 5'),
-    benches: await q('select id from benches order by id limit 5'),
+    customers: await ids(db.select({ id: s.customers.id }).from(s.customers).orderBy(asc(s.customers.id)).limit(5)),
+    routings: await ids(db.select({ id: s.routingTemplates.id }).from(s.routingTemplates).orderBy(asc(s.routingTemplates.id)).limit(5)),
+    kinds: await ids(db.select({ id: s.operationKinds.id }).from(s.operationKinds).orderBy(asc(s.operationKinds.id)).limit(5)),
+    benches: await ids(db.select({ id: s.benches.id }).from(s.benches).orderBy(asc(s.benches.id)).limit(5)),
     // The people and users the fuzzing agents sign in as are left alone: switching one off would end the walk.
-    people: await q(
-      `select p.id from people p left join users u on u.id = p.user_id where u.email is null or u.email <> all('{${agentEmails.join(',')}}') order by p.id limit 5`,
+    people: await ids(
+      db
+        .select({ id: people.id })
+        .from(people)
+        .leftJoin(users, eq(users.id, people.userId))
+        .where(or(isNull(users.email), notInArray(users.email, agentEmails)))
+        .orderBy(asc(people.id))
+        .limit(5),
     ),
-    users: await q(`select id from users where email <> all('{${agentEmails.join(',')}}') order by id limit 5`),
-    orders: await q("select id from orders order by (status = 'open') desc, id limit 5"),
-    jobBags: await q('select id from job_bags order by id limit 5'),
-    operations: await q("select id from operations order by (status = 'ready') desc, id limit 6"),
-    timeRecords: await q('select id from time_records order by id limit 5'),
-    plans: await q('select id from plan_versions order by id desc limit 3'),
-    outbox: await q('select id from outbox order by id limit 3'),
-    files: await q('select id from files order by id limit 3'),
-    closures: await q('select id from closures order by id limit 3'),
-    leave: await q('select id from leave order by id limit 3'),
-    downtime: await q('select id from bench_downtime order by id limit 3'),
+    users: await ids(db.select({ id: users.id }).from(users).where(notInArray(users.email, agentEmails)).orderBy(asc(users.id)).limit(5)),
+    orders: await ids(
+      db
+        .select({ id: orders.id })
+        .from(orders)
+        .orderBy(desc(eq(orders.status, 'open')), asc(orders.id))
+        .limit(5),
+    ),
+    jobBags: await ids(db.select({ id: s.jobBags.id }).from(s.jobBags).orderBy(asc(s.jobBags.id)).limit(5)),
+    operations: await ids(
+      db
+        .select({ id: operations.id })
+        .from(operations)
+        .orderBy(desc(eq(operations.status, 'ready')), asc(operations.id))
+        .limit(6),
+    ),
+    timeRecords: await ids(db.select({ id: s.timeRecords.id }).from(s.timeRecords).orderBy(asc(s.timeRecords.id)).limit(5)),
+    plans: await ids(db.select({ id: planVersions.id }).from(planVersions).orderBy(desc(planVersions.id)).limit(3)),
+    outbox: await ids(db.select({ id: s.outbox.id }).from(s.outbox).orderBy(asc(s.outbox.id)).limit(3)),
+    files: await ids(db.select({ id: s.files.id }).from(s.files).orderBy(asc(s.files.id)).limit(3)),
+    closures: await ids(db.select({ id: s.closures.id }).from(s.closures).orderBy(asc(s.closures.id)).limit(3)),
+    leave: await ids(db.select({ id: s.leave.id }).from(s.leave).orderBy(asc(s.leave.id)).limit(3)),
+    downtime: await ids(db.select({ id: s.benchDowntime.id }).from(s.benchDowntime).orderBy(asc(s.benchDowntime.id)).limit(3)),
   }
 }
 

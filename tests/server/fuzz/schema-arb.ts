@@ -5,7 +5,7 @@ import { z, type ZodType } from 'zod'
 type Js = Record<string, any>
 
 export interface IdPools {
-  /** Real ids by table-ish name: customers, templates, kinds, benches, people, orders, plans, operations, jobBags, users, timeRecords. */
+  /** Real ids by table-ish name: customers, routings, kinds, benches, people, orders, plans, operations, jobBags, users, timeRecords. */
   [pool: string]: number[]
 }
 
@@ -13,7 +13,7 @@ export interface IdPools {
 export function poolOfField(name: string): string | null {
   const n = name.toLowerCase()
   if (n === 'customerid') return 'customers'
-  if (n === 'templateid') return 'templates'
+  if (n === 'templateid') return 'routings'
   if (n === 'kindid') return 'kinds'
   if (n === 'benchid') return 'benches'
   if (n === 'personid') return 'people'

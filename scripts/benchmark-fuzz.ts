@@ -23,7 +23,7 @@ const plan = planTargets(allRoutes)
 printPlan(plan)
 const runsPerRoute = Math.ceil(TOTAL / plan.targets.length)
 const sessions = await makeSessions(server)
-const pools = await loadIdPools(pool)
+const pools = await loadIdPools(db)
 // Server-side error logs (each 5xx logs one) stay visible; the fuzzer's own summary follows.
 const t0 = performance.now()
 const stats = await fuzzRoutes({ routes: allRoutes, sessions, pools, runsPerRoute, seed: SEED }, plan)

@@ -50,7 +50,7 @@ describe('fuzzing every route', () => {
     const plan = planTargets(allRoutes)
     printPlan(plan)
     const sessions = await makeSessions(server)
-    const pools = await loadIdPools(t.pool)
+    const pools = await loadIdPools(t.db)
     const stats: FuzzStats = await fuzzRoutes({ routes: allRoutes, sessions, pools, runsPerRoute: RUNS_PER_ROUTE, seed: SEED }, plan)
     console.log(
       `fuzz: ${stats.requests} requests, statuses ${JSON.stringify(stats.byStatus)}, ${stats.readBacks} read-backs, ${stats.runsStopped} planner runs stopped`,

@@ -1,6 +1,9 @@
 // Insights and estimating API against real PostgreSQL: hand-computed estimate-vs-actual tables, CSV, drill-down, job costing, learned suggestions, access.
+import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { finishedStep, firstCustomerId, stepIdsByKey, userIdByEmail } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError } from './helpers'
 
 let t: TestApp
@@ -17,35 +20,23 @@ const at = (day: string, hhmm: string) => new Date(`${day}T${hhmm}:00Z`).toISOSt
 const plus = (iso: string, minutes: number) => new Date(Date.parse(iso) + minutes * 60_000).toISOString()
 
 /** Finishes one operation by hand: estimate, finish time, and time records of known minutes. */
-async function finish(opId: number, estimate: number, finishedAt: string, records: { person: string; start: string; minutes: number }[]) {
-  await q(`update operations set status = 'done', estimate_minutes = $2, finished_at = $3 where id = $1`, [opId, estimate, finishedAt])
-  const ids: number[] = []
-  for (const r of records) {
-    const {
-      rows: [row],
-    } = await q(`insert into time_records (operation_id, person_id, started_at, ended_at, end_reason) values ($1, $2, $3, $4, 'finished') returning id`, [
-      opId,
-      person[r.person],
-      r.start,
-      plus(r.start, r.minutes),
-    ])
-    ids.push(row.id)
-  }
-  return ids
+function finish(opId: number, estimate: number, finishedAt: string, records: { person: string; start: string; minutes: number }[]) {
+  return finishedStep(t.db, opId, {
+    finishedAt,
+    estimateMinutes: estimate,
+    records: records.map((r) => ({ personId: person[r.person]!, start: r.start, end: plus(r.start, r.minutes) })),
+  })
 }
 
-async function opsOf(orderId: number): Promise<Record<string, number>> {
-  const { rows } = await q(`select o.key, o.id from operations o join job_bags b on b.id = o.job_bag_id where b.order_id = $1`, [orderId])
-  return Object.fromEntries(rows.map((r) => [r.key, r.id]))
-}
+const opsOf = (orderId: number) => stepIdsByKey(t.db, { orderId })
 
 beforeAll(async () => {
   t = await createTestApp()
   owner = await signedIn(t.app, 'owner')
   manager = await signedIn(t.app, 'manager')
   kinds = Object.fromEntries((await owner.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
-  person = Object.fromEntries((await q(`select id, name from people`)).rows.map((p) => [p.name.split(' ')[0], p.id]))
-  const customerId = (await q(`select min(id) as id from customers`)).rows[0].id
+  person = Object.fromEntries((await t.db.select({ id: s.people.id, name: s.people.name }).from(s.people)).map((p) => [p.name.split(' ')[0], p.id]))
+  const customerId = await firstCustomerId(t.db)
   const tpl = await manager.post('/api/routings', {
     code: 'insight-fixture',
     name: 'Fixture: set and polish',
@@ -86,11 +77,11 @@ beforeAll(async () => {
     { person: 'Theo', start: at('2030-04-03', '10:00'), minutes: 10 },
     { person: 'Theo', start: at('2030-04-03', '11:00'), minutes: 500 },
   ])
-  const managerUser = (await q(`select id from users where email = 'manager@wrenfield.test'`)).rows[0].id
-  await q(
-    `insert into time_record_corrections (workshop_id, time_record_id, kind, reason, corrected_by) select workshop_id, $1, 'void', 'left running overnight', $2 from users where id = $2`,
-    [forgotten, managerUser],
-  )
+  const managerUser = await userIdByEmail(t.db, 'manager@wrenfield.test')
+  const { workshopId } = (await t.db.select({ workshopId: s.users.workshopId }).from(s.users).where(eq(s.users.id, managerUser)))[0]!
+  await t.db
+    .insert(s.timeRecordCorrections)
+    .values({ workshopId, timeRecordId: forgotten!, kind: 'void', reason: 'left running overnight', correctedBy: managerUser })
   await finish(b.hallmark!, 0, at('2030-04-08', '12:00'), [])
   // Expected outside cost: 2.50 per unit at the assay office; order A's was invoiced at 7.00.
   expect((await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 250 })).status).toBe(200)
@@ -214,11 +205,11 @@ describe('estimated against actual hours', () => {
   })
 
   it('when a label holds a comma, a quote or starts like a formula, then the CSV cell is quoted and defused', async () => {
-    await q(`update orders set title = $2 where id = $1`, [orderIds[1], '=Ring, "pear" cut'])
+    await t.db.update(s.orders).set({ title: '=Ring, "pear" cut' }).where(eq(s.orders.id, orderIds[1]!))
     const r = await owner.get(`/api/insights/comparison?groupBy=order&templateId=${templateId}&format=csv`)
     // RFC 4180 §2: fields with commas or quotes are enclosed in quotes and quotes doubled; the leading ' keeps spreadsheets from running it (OWASP CSV injection).
     expect(r.text).toContain(`\r\n"${orderNumbers[1]} =Ring, ""pear"" cut",2,2.5,2.17,`)
-    await q(`update orders set title = 'Fixture order B' where id = $1`, [orderIds[1]])
+    await t.db.update(s.orders).set({ title: 'Fixture order B' }).where(eq(s.orders.id, orderIds[1]!))
   })
 
   it('when a row is drilled into, then its operations come with their time records, the voided one marked', async () => {
@@ -353,12 +344,13 @@ describe('job costing', () => {
   })
 
   it('when the seeded history is costed, then orders with nothing weighed or uncosted outside work say so beside their actual margin', async () => {
-    // Independent of the costing code: complete orders with no metal weighed in or out, and those with a finished outside step without any cost.
+    // SQL text on purpose, independent of the costing code: complete orders with no metal weighed in or out, and those with a finished outside step without any cost.
     const { rows: unweighed } = await q(`
       select o.number from orders o where exists (select 1 from job_bags b where b.order_id = o.id)
         and not exists (select 1 from operations op join job_bags b on b.id = op.job_bag_id where b.order_id = o.id and op.status not in ('done', 'skipped'))
         and not exists (select 1 from metal_movements m join job_bags b on b.id = m.job_bag_id where b.order_id = o.id)
         and exists (select 1 from job_bags b where b.order_id = o.id and b.params->>'metal' in ('silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950'))`)
+    // SQL text on purpose: the same independent reckoning, for finished outside work with no cost at all.
     const { rows: uncostedOutside } = await q(`
       select distinct o.number from orders o join job_bags b on b.order_id = o.id join operations op on op.job_bag_id = b.id join operation_kinds k on k.id = op.kind_id
       where op.status = 'done' and (k.outside or op.lead_days > 0)
@@ -376,6 +368,7 @@ describe('job costing', () => {
     for (const u of uncostedOutside) if (byNumber.has(u.number)) expect(byNumber.get(u.number)!.caveatAtActual).toMatch(/outside work not costed/)
     // Orders weighed out from the workshop's stock carry a metal cost. Not those made from the customer's own metal: it costs
     // the workshop nothing, and the piece issued again for its next step is still the customer's.
+    // SQL text on purpose: which orders were weighed out from stock, reckoned apart from the costing code.
     const { rows: weighed } = await q(`select distinct o.number from orders o join job_bags b on b.order_id = o.id join metal_movements m on m.job_bag_id = b.id
       where m.kind = 'issued' and not exists (select 1 from metal_movements c where c.job_bag_id = b.id and c.kind = 'issued' and c.source = 'customer')`)
     const weighedRows = weighed.map((w) => byNumber.get(w.number)).filter((x) => x !== undefined)
@@ -435,7 +428,7 @@ describe('learning from actual times', () => {
       steps: [{ key: 'saw', kindId: kinds.sawing, name: 'Saw to length', baseMinutes: 10, perMmMinutes: 0.1 }],
     })
     expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
-    const customerId = (await q(`select min(id) as id from customers`)).rows[0].id
+    const customerId = await firstCustomerId(t.db)
     for (let i = 0; i < 5; i++) {
       const o = await manager.post('/api/orders', {
         customerId,
@@ -459,7 +452,7 @@ describe('learning from actual times', () => {
       name: 'Fixture: pavé with outliers',
       steps: [{ key: 'set', kindId: kinds.setting, name: 'Set pavé', baseMinutes: 10, perStoneMinutes: 4 }],
     })
-    const customerId = (await q(`select min(id) as id from customers`)).rows[0].id
+    const customerId = await firstCustomerId(t.db)
     const speed = 1.15 // Ines's setting speed (seed)
     for (let i = 0; i < 20; i++) {
       const stones = 2 + i

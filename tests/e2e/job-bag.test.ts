@@ -47,7 +47,7 @@ describe('job bag page', () => {
 
   it('when sales changes the ring size to UK P and adds a stone with its depth, then the page shows the new size in every scale and the depth', async () => {
     // An open signet ring with nothing started, given UK N when it was ordered.
-    const [bag] = await q(`select b.id, b.version from job_bags b join routing_templates t on t.id = b.template_id join orders o on o.id = b.order_id
+    const [bag] = await q(`select b.id, b.version from job_bags b join routings t on t.id = b.routing_id join orders o on o.id = b.order_id
       where t.code = 'signet-ring' and o.status = 'open' and b.status = 'waiting' order by b.id limit 1`)
     expect(bag, 'an open signet ring').toBeTruthy()
     await q(`update job_bags set params = params || '{"ringSize": {"scale": "uk", "value": "N"}}'::jsonb where id = $1`, [bag.id])

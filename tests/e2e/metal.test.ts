@@ -15,7 +15,7 @@ describe('metal on the bench and the owner’s metal screen', () => {
   it('when the setter weighs 13.50 g in a 1.50 g container out and 11.20 + 0.35 + 0.20 g back, then the card shows loss 0.25 g and 2.1 % and the ledger holds the milligrams', async () => {
     // A demo pavé pendant whose setting step nobody has started and whose job bag has no metal weighed yet.
     const [op] = await q(
-      `select o.id, o.job_bag_id, jb.params->>'metal' as metal from operations o join job_bags jb on jb.id = o.job_bag_id join routing_templates rt on rt.id = jb.template_id join orders ord on ord.id = jb.order_id
+      `select o.id, o.job_bag_id, jb.params->>'metal' as metal from operations o join job_bags jb on jb.id = o.job_bag_id join routings rt on rt.id = jb.routing_id join orders ord on ord.id = jb.order_id
       where rt.code = 'pave-pendant' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' and jb.params->>'metal' = any($1::text[])
         and not exists (select 1 from metal_movements m where m.job_bag_id = jb.id) order by jb.id limit 1`,
       [Object.keys(PIECE_METAL_ALLOY)],

@@ -12,7 +12,7 @@ describe('stones on the bench and the job bag', () => {
   it('when the setter takes the pavé stones and counts them back on the tablet, then the job bag shows them all counted', async () => {
     // A demo pavé pendant whose setting step nobody has started, with its seeded stone list.
     const [op] =
-      await q(`select o.id, o.job_bag_id from operations o join job_bags jb on jb.id = o.job_bag_id join routing_templates rt on rt.id = jb.template_id join orders ord on ord.id = jb.order_id
+      await q(`select o.id, o.job_bag_id from operations o join job_bags jb on jb.id = o.job_bag_id join routings rt on rt.id = jb.routing_id join orders ord on ord.id = jb.order_id
       where rt.code = 'pave-pendant' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' and exists (select 1 from job_bag_stones s where s.job_bag_id = jb.id) order by jb.id limit 1`)
     const [line] = await q('select id, count from job_bag_stones where job_bag_id = $1', [op.job_bag_id])
     const [bag] = await q(`select (params->>'quantity')::int as quantity from job_bags where id = $1`, [op.job_bag_id])

@@ -217,7 +217,7 @@ const ID_SOURCES: Record<string, string> = {
   leave: 'select min(id) as id from leave',
   'operation-kinds': 'select min(id) as id from operation_kinds',
   closures: 'select min(id) as id from closures',
-  routings: 'select min(id) as id from routing_templates',
+  routings: 'select min(id) as id from routings',
   customers: 'select min(id) as id from customers',
   users: "select max(id) as id from users where role = 'bench'",
   orders: "select min(id) as id from orders where status = 'open'",

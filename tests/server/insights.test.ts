@@ -354,7 +354,7 @@ describe('job costing', () => {
     const { rows: uncostedOutside } = await q(`
       select distinct o.number from orders o join job_bags b on b.order_id = o.id join operations op on op.job_bag_id = b.id join operation_kinds k on k.id = op.kind_id
       where op.status = 'done' and (k.outside or op.lead_days > 0)
-        and not exists (select 1 from template_step_costs c where c.template_id = b.template_id and c.step_key = op.key and c.outside_cost_minor is not null)
+        and not exists (select 1 from routing_step_costs c where c.routing_id = b.routing_id and c.step_key = op.key and c.outside_cost_minor is not null)
         and not exists (select 1 from operation_costs c where c.operation_id = op.id and c.outside_cost_minor is not null)`)
     expect(unweighed.length).toBeGreaterThan(5)
     const rows = (await owner.get('/api/insights/costing')).body.rows as { orderNumber: string; caveatAtActual: string; metalAtActualMinor: number }[]

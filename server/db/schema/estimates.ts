@@ -16,13 +16,13 @@ export interface EstimateBasis {
 
 /** Each accepted change of a template step's minutes (from learned actual times), with who accepted it and when. */
 export const templateStepChanges = pgTable(
-  'template_step_changes',
+  'routing_step_changes',
   {
     id: pk(),
     workshopId: integer()
       .notNull()
       .references(() => workshops.id, { onDelete: 'cascade' }),
-    templateId: integer()
+    templateId: integer('routing_id')
       .notNull()
       .references(() => routingTemplates.id, { onDelete: 'cascade' }),
     stepKey: text().notNull(),
@@ -34,7 +34,7 @@ export const templateStepChanges = pgTable(
     toBaseMinutes: real().notNull(),
     toPerStoneMinutes: real().notNull(),
     /** Template version after the change. */
-    templateVersion: integer().notNull(),
+    templateVersion: integer('routing_version').notNull(),
     basis: jsonb().$type<EstimateBasis>().notNull(),
     reason: text().notNull().default(''),
     acceptedBy: integer()
@@ -50,9 +50,9 @@ export const templateStepChanges = pgTable(
  * template edits rewrite step rows, the key survives.
  */
 export const templateStepCosts = pgTable(
-  'template_step_costs',
+  'routing_step_costs',
   {
-    templateId: integer()
+    templateId: integer('routing_id')
       .notNull()
       .references(() => routingTemplates.id, { onDelete: 'cascade' }),
     stepKey: text().notNull(),

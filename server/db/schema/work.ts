@@ -24,7 +24,7 @@ export const customers = pgTable(
 )
 
 export const routingTemplates = pgTable(
-  'routing_templates',
+  'routings',
   {
     id: pk(),
     workshopId: integer()
@@ -41,10 +41,10 @@ export const routingTemplates = pgTable(
 )
 
 export const templateSteps = pgTable(
-  'template_steps',
+  'routing_steps',
   {
     id: pk(),
-    templateId: integer()
+    templateId: integer('routing_id')
       .notNull()
       .references(() => routingTemplates.id, { onDelete: 'cascade' }),
     seq: integer().notNull(),
@@ -107,7 +107,7 @@ export const jobBags = pgTable(
       .references(() => orders.id, { onDelete: 'cascade' }),
     number: text().notNull(),
     piece: text().notNull(),
-    templateId: integer().references(() => routingTemplates.id, { onDelete: 'set null' }),
+    templateId: integer('routing_id').references(() => routingTemplates.id, { onDelete: 'set null' }),
     params: jsonb().$type<PieceParams>().notNull(),
     status: text().notNull().default('waiting'),
     releaseAt: instant(),

@@ -1,6 +1,6 @@
 // Promise routes: check a date for a prospective piece, turn it into an order, and the forecast of an existing order.
 import type { Role } from '../../shared/domain/roles'
-import { promiseAcceptInput, promiseCheckInput } from '../../shared/schemas/promise'
+import { orderForecast, promiseAcceptInput, promiseAcceptResult, promiseCheckInput, promiseCheckResult } from '../../shared/schemas/promise'
 import { route } from '../lib/route'
 import * as promises from '../services/promise'
 import { idParam } from './params'
@@ -14,6 +14,7 @@ export const promiseRoutes = [
     roles: FRONT,
     summary: 'Earliest completion of a prospective piece (fixed plan / re-planned), optionally with its P50/P80/P95 range',
     body: promiseCheckInput,
+    response: promiseCheckResult,
     handler: ({ deps, actor, body }) => promises.checkPromise(deps, actor, body),
   }),
   route({
@@ -23,6 +24,7 @@ export const promiseRoutes = [
     status: 201,
     summary: 'Turn a checked promise into an order with that promised date, and confirm it to the customer by e-mail',
     body: promiseAcceptInput,
+    response: promiseAcceptResult,
     handler: ({ deps, actor, body }) => promises.acceptPromise(deps, actor, body),
   }),
   route({
@@ -31,6 +33,7 @@ export const promiseRoutes = [
     roles: FRONT,
     summary: 'Expected completion of each job bag of an order on the live plan, at risk or late, and why',
     params: idParam,
+    response: orderForecast,
     handler: ({ deps, actor, params }) => promises.orderForecast(deps, actor, params.id),
   }),
 ]

@@ -1,7 +1,7 @@
 // Promise dates for sales: the check for a prospective piece, turning it into an order, and an order's forecast.
 import { z } from 'zod'
-import { id, isoDate, name, notes } from './common'
-import { minorAmount, pieceParams } from './order'
+import { id, isoDate, name, notes, wireInt } from './common'
+import { minorAmount, orderDetail, pieceParams } from './order'
 
 const priority = z.number({ error: 'must be 1 to 5' }).int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').default(3)
 
@@ -39,59 +39,80 @@ export const promiseAcceptInput = z.object({
 })
 export type PromiseAcceptInput = z.infer<typeof promiseAcceptInput>
 
+// ---- Answers ----
+
 /** An instant and the workshop-local date it falls on. */
-export interface PromiseMoment {
-  at: string
-  date: string
-}
+export const promiseMoment = z.object({ at: z.string(), date: z.string() })
+export type PromiseMoment = z.infer<typeof promiseMoment>
 
-export interface PromiseCheckResult {
-  now: string
-  timeZone: string
+export const promiseCheckResult = z.object({
+  now: z.string(),
+  timeZone: z.string(),
   /** What the fixed case was measured against. */
-  basis: 'live-plan' | 'quick-plan'
-  basisNote: string
-  template: { id: number; name: string }
-  operations: { key: string; name: string; kind: string; minutes: number; outsideDays: number }[]
-  fixedPlan: PromiseMoment & { feasible: boolean }
-  replanned: PromiseMoment & { delayedJobBags: number }
-  wanted: { date: string; fixedPlanMeets: boolean; replannedMeets: boolean } | null
-  range: null | {
-    runs: number
-    seed: number
-    method: string
-    /** The stated default where history is thin (distribution and its σ). */
-    assumption: string
-    p50: PromiseMoment
-    p80: PromiseMoment
-    p95: PromiseMoment
-    /** The quantiles in minutes after now, unrounded. */
-    quantileMinutes: { p50: number; p80: number; p95: number }
-    kinds: { kind: string; source: 'history' | 'log-normal'; samples: number; p10: number; p50: number; p90: number }[]
-    sampleMinutes?: number[]
-  }
-  elapsedMs: number
-}
+  basis: z.enum(['live-plan', 'quick-plan']),
+  basisNote: z.string(),
+  template: z.object({ id: wireInt, name: z.string() }),
+  operations: z.array(z.object({ key: z.string(), name: z.string(), kind: z.string(), minutes: z.number(), outsideDays: z.number() })),
+  fixedPlan: promiseMoment.extend({ feasible: z.boolean() }),
+  replanned: promiseMoment.extend({ delayedJobBags: wireInt }),
+  wanted: z.object({ date: z.string(), fixedPlanMeets: z.boolean(), replannedMeets: z.boolean() }).nullable(),
+  range: z
+    .object({
+      runs: wireInt,
+      seed: wireInt,
+      method: z.string(),
+      /** The stated default where history is thin (distribution and its σ). */
+      assumption: z.string(),
+      p50: promiseMoment,
+      p80: promiseMoment,
+      p95: promiseMoment,
+      /** The quantiles in minutes after now, unrounded. */
+      quantileMinutes: z.object({ p50: z.number(), p80: z.number(), p95: z.number() }),
+      kinds: z.array(
+        z.object({ kind: z.string(), source: z.enum(['history', 'log-normal']), samples: wireInt, p10: z.number(), p50: z.number(), p90: z.number() }),
+      ),
+      sampleMinutes: z.array(z.number()).optional(),
+    })
+    .nullable(),
+  elapsedMs: z.number(),
+})
+export type PromiseCheckResult = z.infer<typeof promiseCheckResult>
 
-export interface JobBagForecast {
-  jobBagId: number
-  number: string
-  piece: string
-  status: string
-  expectedCompletion: string | null
-  expectedDate: string | null
-  state: 'late' | 'at-risk' | 'on-time' | 'unplanned' | 'finished'
-  latenessMinutes: number
-  why: string
-}
-export interface OrderForecast {
-  orderId: number
-  number: string
-  status: string
-  due: string
-  promisedDate: string | null
-  timeZone: string
-  plan: { id: number; number: number; publishedAt: string | null } | null
-  state: JobBagForecast['state']
-  jobBags: JobBagForecast[]
-}
+/** Whether taking the order booked its steps into the live plan (where the promise found room), and if not, why. */
+export const promiseBooking = z.discriminatedUnion('booked', [
+  z.object({ booked: z.literal(true), start: z.string(), end: z.string(), startDate: z.string(), endDate: z.string(), steps: wireInt }),
+  z.object({ booked: z.literal(false), reason: z.string() }),
+])
+export type PromiseBooking = z.infer<typeof promiseBooking>
+export const promiseAcceptResult = z.object({
+  order: orderDetail,
+  booking: promiseBooking,
+  /** The confirmation e-mail in the outbox: queued, sent or failed (with the mail server's words). */
+  confirmation: z.object({ id: wireInt, status: z.string(), error: z.string().nullable() }),
+})
+export type PromiseAcceptResult = z.infer<typeof promiseAcceptResult>
+
+export const jobBagForecast = z.object({
+  jobBagId: wireInt,
+  number: z.string(),
+  piece: z.string(),
+  status: z.string(),
+  expectedCompletion: z.string().nullable(),
+  expectedDate: z.string().nullable(),
+  state: z.enum(['late', 'at-risk', 'on-time', 'unplanned', 'finished']),
+  latenessMinutes: z.number(),
+  why: z.string(),
+})
+export type JobBagForecast = z.infer<typeof jobBagForecast>
+export const orderForecast = z.object({
+  orderId: wireInt,
+  number: z.string(),
+  status: z.string(),
+  due: z.string(),
+  promisedDate: z.string().nullable(),
+  timeZone: z.string(),
+  plan: z.object({ id: wireInt, number: wireInt, publishedAt: z.string().nullable() }).nullable(),
+  state: jobBagForecast.shape.state,
+  jobBags: z.array(jobBagForecast),
+})
+export type OrderForecast = z.infer<typeof orderForecast>

@@ -10,7 +10,7 @@ import { errorHandler } from '../../server/errors/handler'
 import { route, type Deps } from '../../server/lib/route'
 import { waitForRun } from '../../server/planning/runs'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { readyBenchStep, templateId } from '../setup/fixtures'
+import { firstCustomerId, readyBenchStep, templateId } from '../setup/fixtures'
 
 let t: TestApp
 let manager: Agent
@@ -267,6 +267,22 @@ describe('answers on the demo workshop', () => {
       ],
     })
     expect(priced.pieces[0].cost.stonesMinor).toBeGreaterThan(0)
+  })
+
+  it('when a date is promised for a new piece, taken as an order and forecast, then the check, the order taken and the forecast answer what their schemas allow', async () => {
+    const piece = { templateId: await templateId(t.db), params: { metal: 'gold-18ct', stoneCount: 3, stoneSizeMm: 2, sizeMm: 54, quantity: 1 } }
+    const check = await call(manager, 'post', '/promise/check', '/promise/check', { ...piece, wantedDate: '2027-01-15', range: true, runs: 50, sample: true })
+    expect(check.range.kinds.length).toBeGreaterThan(0)
+    const taken = await call(
+      manager,
+      'post',
+      '/promise/accept',
+      '/promise/accept',
+      { ...piece, customerId: await firstCustomerId(t.db), title: 'Contract promise', promisedDate: check.fixedPlan.date, priceQuotedMinor: 64_000 },
+      201,
+    )
+    const forecast = await call(manager, 'get', '/orders/:id/forecast', `/orders/${taken.order.id}/forecast`)
+    expect(forecast.jobBags.length).toBe(1)
   })
 
   it('when every call above is done, then each route with a response schema was called at least once', () => {

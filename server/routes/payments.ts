@@ -1,5 +1,15 @@
 // Payment routes: links and money per order (owner, manager, sales), cash and transfers by hand (owner, sales), refunds and figures (owner).
-import { manualPaymentInput, moneyRangeQuery, paymentLinkInput, refundInput } from '../../shared/schemas/payment'
+import { z } from 'zod'
+import {
+  manualPaymentInput,
+  moneyRangeQuery,
+  moneySummary,
+  orderMoney,
+  payment,
+  paymentLink,
+  paymentLinkInput,
+  refundInput,
+} from '../../shared/schemas/payment'
 import type { Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
 import * as payments from '../services/payments'
@@ -16,6 +26,7 @@ export const paymentRoutes = [
     roles: QUOTERS,
     summary: 'What an order costs, has paid and owes, with its payments and links',
     params: idParam,
+    response: orderMoney,
     handler: ({ deps, actor, params }) => payments.orderMoney(deps.db, actor.workshopId, params.id),
   }),
   route({
@@ -26,6 +37,7 @@ export const paymentRoutes = [
     summary: 'A payment link for the deposit or the balance',
     params: idParam,
     body: paymentLinkInput,
+    response: paymentLink,
     handler: ({ deps, actor, params, body }) => payments.createOrderLink(deps, actor, params.id, body),
   }),
   route({
@@ -36,6 +48,7 @@ export const paymentRoutes = [
     summary: 'Record cash or a bank transfer (who and when kept)',
     params: idParam,
     body: manualPaymentInput,
+    response: payment,
     handler: ({ deps, actor, params, body }) => payments.recordManual(deps, actor, params.id, body),
   }),
   route({
@@ -46,6 +59,7 @@ export const paymentRoutes = [
     summary: 'Refund a payment (card through the provider)',
     params: idParam,
     body: refundInput,
+    response: payment,
     handler: ({ deps, actor, params, body }) => payments.refund(deps, actor, params.id, body),
   }),
   route({
@@ -53,6 +67,7 @@ export const paymentRoutes = [
     path: '/payments/to-refund',
     roles: QUOTERS,
     summary: 'Payments waiting to be refunded (e.g. for a withdrawn quote)',
+    response: z.array(payment),
     handler: ({ deps, actor }) => payments.toRefundList(deps.db, actor.workshopId),
   }),
   route({
@@ -61,6 +76,7 @@ export const paymentRoutes = [
     roles: OWNER,
     summary: 'Owed and received by ISO week, deposits held on work not started',
     query: moneyRangeQuery,
+    response: moneySummary,
     handler: ({ deps, actor, query }) => payments.summary(deps.db, actor.workshopId, query),
   }),
   route({

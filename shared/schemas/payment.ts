@@ -1,7 +1,13 @@
 // Payments against orders: payment links, cash and transfers recorded by hand, refunds; amounts in integer minor units.
 import { z } from 'zod'
-import { isoDate, isoDateTime } from './common'
-import { minorAmount } from './quote'
+import { isoDate, isoDateTime, wireInt } from './common'
+
+/** An amount in minor units (pence, cents): a whole number, never negative. */
+export const minorAmount = z
+  .number({ error: 'must be a whole number of minor units (e.g. pence)' })
+  .int('must be a whole number of minor units (e.g. pence)')
+  .min(0, 'must not be negative')
+  .max(1_000_000_000, 'is too large')
 
 export const paymentLinkInput = z.object({
   purpose: z.enum(['deposit', 'balance'], { error: 'must be deposit or balance' }),
@@ -22,3 +28,79 @@ export const moneyRangeQuery = z.object({ from: isoDate.optional(), to: isoDate.
 export type PaymentLinkInput = z.infer<typeof paymentLinkInput>
 export type ManualPaymentInput = z.infer<typeof manualPaymentInput>
 export type RefundInput = z.infer<typeof refundInput>
+
+// ---- Answers ----
+
+export const PAYMENT_METHODS = ['card', 'cash', 'bank-transfer'] as const
+export type PaymentMethod = (typeof PAYMENT_METHODS)[number]
+export const PAYMENT_PURPOSES = ['deposit', 'balance', 'refund', 'other'] as const
+export type PaymentPurpose = (typeof PAYMENT_PURPOSES)[number]
+
+/** A payment link at the provider, for a quote's deposit or an order's deposit or balance. */
+export const paymentLink = z.object({
+  id: wireInt,
+  quoteId: wireInt.nullable(),
+  orderId: wireInt.nullable(),
+  purpose: z.enum(['deposit', 'balance']),
+  currency: z.string(),
+  amountMinor: wireInt,
+  url: z.string(),
+  status: z.enum(['open', 'paid', 'expired']),
+  createdAt: z.string(),
+})
+export type PaymentLink = z.infer<typeof paymentLink>
+
+/** Money received or handed back (a refund is negative and names the payment it refunds). */
+export const payment = z.object({
+  id: wireInt,
+  orderId: wireInt.nullable(),
+  quoteId: wireInt.nullable(),
+  paymentLinkId: wireInt.nullable(),
+  method: z.enum(PAYMENT_METHODS),
+  purpose: z.enum(PAYMENT_PURPOSES),
+  /** Negative for a refund. */
+  amountMinor: wireInt,
+  currency: z.string(),
+  providerRef: z.string().nullable(),
+  toRefund: z.boolean(),
+  refundOf: wireInt.nullable(),
+  note: z.string(),
+  recordedBy: wireInt.nullable(),
+  recordedByName: z.string().nullable(),
+  receivedAt: z.string(),
+  createdAt: z.string(),
+  /** What has been refunded of it so far (≥ 0). */
+  refundedMinor: wireInt,
+})
+export type Payment = z.infer<typeof payment>
+
+/** What an order costs, has paid and owes, with its payments and links. */
+export const orderMoney = z.object({
+  orderId: wireInt,
+  orderNumber: z.string(),
+  currency: z.string(),
+  priceMinor: wireInt,
+  depositMinor: wireInt,
+  /** Net of refunds; payments waiting to be refunded do not count. */
+  paidMinor: wireInt,
+  owedMinor: wireInt,
+  depositPaid: z.boolean(),
+  quoteId: wireInt.nullable(),
+  payments: z.array(payment),
+  links: z.array(paymentLink),
+})
+export type OrderMoney = z.infer<typeof orderMoney>
+
+export const moneyWeek = z.object({ week: z.string(), receivedMinor: wireInt, refundedMinor: wireInt, owedMinor: wireInt })
+export type MoneyWeek = z.infer<typeof moneyWeek>
+/** The owner's figures: received and refunded by ISO week, owed by the week promised, deposits held on work not started. */
+export const moneySummary = z.object({
+  currency: z.string(),
+  from: z.string(),
+  to: z.string(),
+  weeks: z.array(moneyWeek),
+  owedMinor: wireInt,
+  depositsHeldMinor: wireInt,
+  depositsHeld: z.array(z.object({ orderId: wireInt, orderNumber: z.string(), customerName: z.string(), paidMinor: wireInt })),
+})
+export type MoneySummary = z.infer<typeof moneySummary>

@@ -2,16 +2,13 @@
 import { z } from 'zod'
 import { id, isoDate, name, version } from './common'
 import { pieceParams } from './order'
+import { minorAmount } from './payment'
+
+export { minorAmount }
 
 export const QUOTE_STATUSES = ['drafted', 'sent', 'accepted', 'expired', 'withdrawn'] as const
 export type QuoteStatus = (typeof QUOTE_STATUSES)[number]
 
-/** An amount in minor units (pence, cents): a whole number, never negative. */
-export const minorAmount = z
-  .number({ error: 'must be a whole number of minor units (e.g. pence)' })
-  .int('must be a whole number of minor units (e.g. pence)')
-  .min(0, 'must not be negative')
-  .max(1_000_000_000, 'is too large')
 const currency = z
   .string()
   .trim()

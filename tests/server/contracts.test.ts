@@ -9,10 +9,13 @@ import { register } from '../../server/app'
 import { errorHandler } from '../../server/errors/handler'
 import { route, type Deps } from '../../server/lib/route'
 import { waitForRun } from '../../server/planning/runs'
+import { startPayFake, type PayFake } from '../../server/dev/pay-fake'
+import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { firstCustomerId, readyBenchStep, templateId } from '../setup/fixtures'
+import { firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, templateId } from '../setup/fixtures'
 
 let t: TestApp
+let payFake: PayFake
 let manager: Agent
 let owner: Agent
 
@@ -38,12 +41,15 @@ async function call(agent: Agent, method: 'get' | 'post' | 'put' | 'patch' | 'de
 }
 
 beforeAll(async () => {
-  t = await createTestApp()
+  // The local payment provider, for payment links.
+  payFake = await startPayFake()
+  t = await createTestApp({ PAY_FAKE_URL: payFake.url })
   manager = await signedIn(t.app, 'manager')
   owner = await signedIn(t.app, 'owner')
 }, 60_000)
 afterAll(async () => {
   await t.close()
+  await payFake?.close()
 })
 
 describe('answers on the demo workshop', () => {
@@ -283,6 +289,39 @@ describe('answers on the demo workshop', () => {
     )
     const forecast = await call(manager, 'get', '/orders/:id/forecast', `/orders/${taken.order.id}/forecast`)
     expect(forecast.jobBags.length).toBe(1)
+  })
+
+  it('when an order is paid, refunded and owed, then its money, links, payments, the refund list and the summary answer what their schemas allow', async () => {
+    const order = await openOrder(t.db)
+    const before = await call(owner, 'get', '/orders/:id/money', `/orders/${order.id}/money`)
+    expect(before.owedMinor).toBeGreaterThan(5000)
+    await call(owner, 'post', '/orders/:id/payment-links', `/orders/${order.id}/payment-links`, { purpose: 'balance', amountMinor: 1000 }, 201)
+    const paid = await call(
+      owner,
+      'post',
+      '/orders/:id/payments',
+      `/orders/${order.id}/payments`,
+      { method: 'cash', purpose: 'balance', amountMinor: 2000, note: 'at the counter' },
+      201,
+    )
+    await call(owner, 'post', '/payments/:id/refund', `/payments/${paid.id}/refund`, { amountMinor: 500, note: 'engraving dropped' }, 201)
+    // A deposit waiting to be handed back (as after a withdrawn quote).
+    await t.db.insert(s.payments).values({
+      workshopId: await firstWorkshopId(t.db),
+      orderId: order.id,
+      method: 'bank-transfer',
+      purpose: 'deposit',
+      amountMinor: 3000,
+      currency: before.currency,
+      toRefund: true,
+      receivedAt: new Date().toISOString(),
+    })
+    const waiting = await call(owner, 'get', '/payments/to-refund', '/payments/to-refund')
+    expect(waiting.length).toBeGreaterThan(0)
+    const after = await call(owner, 'get', '/orders/:id/money', `/orders/${order.id}/money`)
+    expect([after.payments.length, after.links.length]).toEqual([before.payments.length + 3, before.links.length + 1])
+    const summary = await call(owner, 'get', '/payments/summary', '/payments/summary')
+    expect(summary.weeks.length).toBeGreaterThan(0)
   })
 
   it('when every call above is done, then each route with a response schema was called at least once', () => {

@@ -1,37 +1,35 @@
 // The job bag page in Chromium: outside work sent out and booked back, a step added to the routing (manager); the ring size
 // changed after ordering and a stone with its measured depth added (sales).
+import { and, asc, count, eq } from 'drizzle-orm'
 import { describe, expect, it } from 'vitest'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
+import { finishSteps, openOrderStep, setPieceParams, setStepStatus } from '../setup/fixtures'
 
 const e2e = useE2E()
-const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
+const step = async (id: number) =>
+  (await e2e.db.db.select({ status: s.operations.status, plannedStart: s.operations.plannedStart }).from(s.operations).where(eq(s.operations.id, id)))[0]!
+const stepCount = async (jobBagId: number) => (await e2e.db.db.select({ n: count() }).from(s.operations).where(eq(s.operations.jobBagId, jobBagId)))[0]!.n
 
 describe('job bag page', () => {
   it('when the manager sends hallmarking out and books it back, then the page shows it away and then done; a new step joins the routing', async () => {
     // A job bag whose hallmarking is next: everything before it done yesterday.
-    const [hm] =
-      await q(`select o.id, o.job_bag_id, o.after from operations o join operation_kinds k on k.id = o.kind_id join job_bags b on b.id = o.job_bag_id join orders r on r.id = b.order_id
-      where k.code = 'hallmarking' and r.status = 'open' order by r.due_date limit 1`)
-    await q(
-      `update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and seq < (select seq from operations where id = $2)`,
-      [hm.job_bag_id, hm.id],
-    )
-    await q(`update operations set status = 'ready' where id = $1`, [hm.id])
+    const hm = (await openOrderStep(e2e.db.db, { kind: 'hallmarking' }))!
+    await finishSteps(e2e.db.db, hm.jobBagId, { before: hm.id })
+    await setStepStatus(e2e.db.db, hm.id, 'ready')
     const page = await signInPage(await e2e.newContext(), 'manager')
-    await page.goto(`/job-bags/${hm.job_bag_id}`)
+    await page.goto(`/job-bags/${hm.jobBagId}`)
     await page.locator(`[data-test=send-out-${hm.id}]`).click()
     await page.locator(`[data-test=book-back-${hm.id}]`).waitFor()
-    expect((await q('select status, planned_start from operations where id = $1', [hm.id]))[0]).toMatchObject({
-      status: 'running',
-      planned_start: expect.any(Date),
-    })
+    // Drizzle reads a moment as ISO text (server/db/schema/common.ts instant): a planned start is set.
+    expect(await step(hm.id)).toMatchObject({ status: 'running', plannedStart: expect.any(String) })
     await screenshot(page, 'job-bag-sent-out', { fullPage: false })
     await page.locator(`[data-test=book-back-${hm.id}]`).click()
     await page.locator(`[data-test=book-back-${hm.id}]`).waitFor({ state: 'detached' })
-    expect((await q('select status from operations where id = $1', [hm.id]))[0].status).toBe('done')
+    expect((await step(hm.id)).status).toBe('done')
 
     // Add a step: the form refuses it without a reason, then it is saved with one.
-    const before = (await q('select count(*)::int n from operations where job_bag_id = $1', [hm.job_bag_id]))[0].n
+    const before = await stepCount(hm.jobBagId)
     await page.locator('[data-test=add-step]').click()
     await page.locator('[data-test=add-kind]').click()
     await page.getByRole('option', { name: 'Inspection & packing' }).click()
@@ -40,19 +38,26 @@ describe('job bag page', () => {
     await expect.poll(async () => page.locator('.el-form-item__error').count()).toBeGreaterThan(0)
     await page.locator('[data-test=add-reason]').fill('customer asked for a second check')
     await page.locator('[data-test=add-save]').click()
-    await expect.poll(async () => (await q('select count(*)::int n from operations where job_bag_id = $1', [hm.job_bag_id]))[0].n).toBe(before + 1)
+    await expect.poll(() => stepCount(hm.jobBagId)).toBe(before + 1)
     await page.getByText('Second stone check').first().waitFor()
     await screenshot(page, 'job-bag-step-added')
   })
 
   it('when sales changes the ring size to UK P and adds a stone with its depth, then the page shows the new size in every scale and the depth', async () => {
     // An open signet ring with nothing started, given UK N when it was ordered.
-    const [bag] = await q(`select b.id, b.version from job_bags b join routings t on t.id = b.routing_id join orders o on o.id = b.order_id
-      where t.code = 'signet-ring' and o.status = 'open' and b.status = 'waiting' order by b.id limit 1`)
+    const b = s.jobBags
+    const [bag] = await e2e.db.db
+      .select({ id: b.id, version: b.version })
+      .from(b)
+      .innerJoin(s.routings, eq(s.routings.id, b.routingId))
+      .innerJoin(s.orders, eq(s.orders.id, b.orderId))
+      .where(and(eq(s.routings.code, 'signet-ring'), eq(s.orders.status, 'open'), eq(b.status, 'waiting')))
+      .orderBy(asc(b.id))
+      .limit(1)
     expect(bag, 'an open signet ring').toBeTruthy()
-    await q(`update job_bags set params = params || '{"ringSize": {"scale": "uk", "value": "N"}}'::jsonb where id = $1`, [bag.id])
+    await setPieceParams(e2e.db.db, bag!.id, { ringSize: { scale: 'uk', value: 'N' } })
     const page = await signInPage(await e2e.newContext(), 'sales')
-    await page.goto(`/job-bags/${bag.id}`)
+    await page.goto(`/job-bags/${bag!.id}`)
     const sizes = page.locator('[data-test=bag-ring-size]')
     // Pinned chart: UK N = 53.8 mm round the inside, Ø 53.8 / π = 17.1 mm, US (17.125 / 25.4 − 0.458) / 0.032 = 6.76 → 6¾.
     await expect.poll(() => sizes.innerText(), { timeout: 15_000 }).toContain('Ring size UK N · ISO 53.8 (Ø 17.1 mm) · US 6¾')
@@ -67,9 +72,9 @@ describe('job bag page', () => {
     await screenshot(page, 'job-bag-ring-size-dialog', { fullPage: false })
     await dialog.locator('[data-test=bag-ring-size-save]').click()
     await expect.poll(() => sizes.innerText(), { timeout: 15_000 }).toContain('Ring size UK P · ISO 56.3 (Ø 17.9 mm) · US 7¾')
-    const [after] = await q('select params, version from job_bags where id = $1', [bag.id])
-    expect(after.params.ringSize).toEqual({ scale: 'uk', value: 'P' })
-    expect(after.version).toBeGreaterThan(bag.version)
+    const [after] = await e2e.db.db.select({ params: b.params, version: b.version }).from(b).where(eq(b.id, bag!.id))
+    expect(after!.params.ringSize).toEqual({ scale: 'uk', value: 'P' })
+    expect(after!.version).toBeGreaterThan(bag!.version)
     await expect
       .poll(() => page.locator('[data-test=history]').innerText(), { timeout: 15_000 })
       .toMatch(/changed the ring size UK N .* → UK P .* — measured again at the counter/)
@@ -83,8 +88,11 @@ describe('job bag page', () => {
     await list.locator('[data-test=stone-add]').click()
     await expect.poll(async () => (await list.locator('[data-test=stone-depth]').first().innerText()).trim(), { timeout: 15_000 }).toBe('· 3.2 mm deep')
     await expect.poll(() => list.locator('[data-test=carat]').first().innerText()).toBe('0.49 ct')
-    const [line] = await q('select depth_mm, carat_each from job_bag_stones where job_bag_id = $1', [bag.id])
-    expect(line).toMatchObject({ depth_mm: 3.2, carat_each: 0.49 })
+    const [line] = await e2e.db.db
+      .select({ depthMm: s.jobBagStones.depthMm, caratEach: s.jobBagStones.caratEach })
+      .from(s.jobBagStones)
+      .where(eq(s.jobBagStones.jobBagId, bag!.id))
+    expect(line).toMatchObject({ depthMm: 3.2, caratEach: 0.49 })
     await list.scrollIntoViewIfNeeded()
     await screenshot(page, 'job-bag-ring-size-and-stone-depth')
   })

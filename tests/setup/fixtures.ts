@@ -1,5 +1,5 @@
 // Named builders for database fixtures in the API and browser tests, written with Drizzle on the schema so a renamed column fails the type check.
-import { and, asc, desc, eq, gte, inArray, isNull, notInArray, sql, type SQL } from 'drizzle-orm'
+import { and, asc, desc, eq, gte, inArray, isNull, lt, notInArray, sql, type SQL } from 'drizzle-orm'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { loadPlanningData } from '../../server/planning/problem'
 import type { Db } from '../../server/db/client'
@@ -25,10 +25,10 @@ export async function firstCustomerId(db: Db, workshopId?: number): Promise<numb
 /** A routing template by its code, or the first one. */
 export async function templateId(db: Db, code?: string): Promise<number> {
   const [r] = await db
-    .select({ id: s.routingTemplates.id })
-    .from(s.routingTemplates)
-    .where(code == null ? undefined : eq(s.routingTemplates.code, code))
-    .orderBy(asc(s.routingTemplates.id))
+    .select({ id: s.routings.id })
+    .from(s.routings)
+    .where(code == null ? undefined : eq(s.routings.code, code))
+    .orderBy(asc(s.routings.id))
     .limit(1)
   if (!r) throw new Error(`no routing template ${code ?? ''} in the test database`)
   return r.id
@@ -342,4 +342,65 @@ export async function addStoneLine(
   const [row] = await db.insert(s.jobBagStones).values(line).returning({ id: s.jobBagStones.id })
   if (movements.length) await db.insert(s.stoneMovements).values(movements.map((m) => ({ ...m, stoneLineId: row!.id, recordedAt })))
   return row!.id
+}
+
+/**
+ * The first step of an open order matching a kind code, a step key, a routing code, a status (any when not given) and any
+ * further condition on the operation, job bag or order, ordered by the order's due date and then the job bag's number
+ * (or by job bag id, `order: 'bag'`).
+ */
+export async function openOrderStep(
+  db: Db,
+  o: { kind?: string; key?: string; routing?: string; status?: string; where?: SQL; order?: 'due' | 'bag' },
+): Promise<{ id: number; jobBagId: number; name: string; after: string[]; params: (typeof s.jobBags.$inferSelect)['params'] } | undefined> {
+  const [op] = await db
+    .select({ id: s.operations.id, jobBagId: s.operations.jobBagId, name: s.operations.name, after: s.operations.after, params: s.jobBags.params })
+    .from(s.operations)
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .leftJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
+    .where(
+      and(
+        eq(s.orders.status, 'open'),
+        o.kind == null ? undefined : eq(s.operationKinds.code, o.kind),
+        o.key == null ? undefined : eq(s.operations.key, o.key),
+        o.routing == null ? undefined : eq(s.routings.code, o.routing),
+        o.status == null ? undefined : eq(s.operations.status, o.status),
+        o.where,
+      ),
+    )
+    .orderBy(...(o.order === 'bag' ? [asc(s.jobBags.id)] : [asc(s.orders.dueDate), asc(s.jobBags.number)]))
+    .limit(1)
+  return op
+}
+
+/** Marks steps of a job bag done, finished yesterday so any wait-after is long over: those before a step in routing order, or all but some keys. */
+export async function finishSteps(db: Db, jobBagId: number, which: { before: number } | { exceptKeys: string[] }): Promise<void> {
+  const before = 'before' in which ? (await db.select({ seq: s.operations.seq }).from(s.operations).where(eq(s.operations.id, which.before)))[0] : undefined
+  if ('before' in which && !before) throw new Error(`no operation ${which.before}`)
+  await db
+    .update(s.operations)
+    .set({ status: 'done', finishedAt: sql`now() - interval '1 day'` })
+    .where(
+      and(
+        eq(s.operations.jobBagId, jobBagId),
+        before ? lt(s.operations.seq, before.seq) : notInArray(s.operations.key, (which as { exceptKeys: string[] }).exceptKeys),
+      ),
+    )
+}
+
+/** Sets a step's status straight in the database (its neighbours untouched). */
+export async function setStepStatus(db: Db, operationId: number, status: string): Promise<void> {
+  await db.update(s.operations).set({ status }).where(eq(s.operations.id, operationId))
+}
+
+/** Changes some of a job bag's piece figures (stone count, ring size…) straight in the database, keeping the others. */
+export async function setPieceParams(db: Db, jobBagId: number, patch: Partial<(typeof s.jobBags.$inferSelect)['params']>): Promise<void> {
+  const [bag] = await db.select({ params: s.jobBags.params }).from(s.jobBags).where(eq(s.jobBags.id, jobBagId))
+  if (!bag) throw new Error(`no job bag ${jobBagId}`)
+  await db
+    .update(s.jobBags)
+    .set({ params: { ...bag.params, ...patch } })
+    .where(eq(s.jobBags.id, jobBagId))
 }

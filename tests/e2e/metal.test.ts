@@ -1,10 +1,14 @@
 // Metal in Chromium: the setter weighs metal out and back on a tablet with a container on the scale, a weight of 0 is refused at
 // its field, the owner's metal screen shows stock and loss by person as the database has them, and the casting calculator.
+import { and, asc, eq, exists, inArray, not, sql } from 'drizzle-orm'
 import { describe, expect, it } from 'vitest'
+import * as s from '../../server/db/schema/index'
 import { PIECE_METAL_ALLOY } from '../../shared/domain/metal'
 import { screenshot, signedInTablet, useE2E } from '../setup/e2e'
+import { benchIdByName, finishSteps, openOrderStep, setStepStatus } from '../setup/fixtures'
 
 const e2e = useE2E()
+// SQL text for the independent sums of the ledger below (the stock rule and loss by person worked out apart from the app).
 const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
 const page = (email: string, viewport?: { width: number; height: number }) => signedInTablet(e2e, email, viewport)
@@ -14,29 +18,36 @@ const g = (mg: number, digits = 2) => `${(mg / 1000).toLocaleString('en-GB', { m
 describe('metal on the bench and the owner’s metal screen', () => {
   it('when the setter weighs 13.50 g in a 1.50 g container out and 11.20 + 0.35 + 0.20 g back, then the card shows loss 0.25 g and 2.1 % and the ledger holds the milligrams', async () => {
     // A demo pavé pendant whose setting step nobody has started and whose job bag has no metal weighed yet.
-    const [op] = await q(
-      `select o.id, o.job_bag_id, jb.params->>'metal' as metal from operations o join job_bags jb on jb.id = o.job_bag_id join routings rt on rt.id = jb.routing_id join orders ord on ord.id = jb.order_id
-      where rt.code = 'pave-pendant' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' and jb.params->>'metal' = any($1::text[])
-        and not exists (select 1 from metal_movements m where m.job_bag_id = jb.id) order by jb.id limit 1`,
-      [Object.keys(PIECE_METAL_ALLOY)],
-    )
+    const db = e2e.db.db
+    const op = (await openOrderStep(db, {
+      routing: 'pave-pendant',
+      key: 'set',
+      status: 'pending',
+      where: and(
+        inArray(sql`${s.jobBags.params}->>'metal'`, Object.keys(PIECE_METAL_ALLOY)),
+        not(exists(db.select({ id: s.metalMovements.id }).from(s.metalMovements).where(eq(s.metalMovements.jobBagId, s.jobBags.id)))),
+      ),
+      order: 'bag',
+    }))!
     expect(op, 'a pavé pendant job bag with a metal and nothing weighed').toBeTruthy()
-    await q(
-      `update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and key <> 'set' and key not in ('polish', 'inspect')`,
-      [op.job_bag_id],
-    )
-    await q(`update operations set status = 'ready' where id = $1`, [op.id])
-    const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
-    const want = PIECE_METAL_ALLOY[op.metal]!
-    const [alloy] = await q('select id, name from alloys where metal = $1 and fineness = $2 and active order by metal, fineness, name limit 1', [
-      want.metal,
-      want.fineness,
-    ])
+    await finishSteps(db, op.jobBagId, { exceptKeys: ['set', 'polish', 'inspect'] })
+    await setStepStatus(db, op.id, 'ready')
+    const benchId = await benchIdByName(db, 'Setting bench A')
+    const want = PIECE_METAL_ALLOY[op.params.metal]!
+    const a = s.alloys
+    const alloy = (
+      await db
+        .select({ id: a.id, name: a.name })
+        .from(a)
+        .where(and(eq(a.metal, want.metal), eq(a.fineness, want.fineness), eq(a.active, true)))
+        .orderBy(asc(a.metal), asc(a.fineness), asc(a.name))
+        .limit(1)
+    )[0]!
 
     const setter = await page('setter@wrenfield.test', { width: 1024, height: 768 })
     await setter.evaluate(() => localStorage.removeItem('millgrain.metal.containerG'))
     await setter.goto('/bench')
-    await setter.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+    await setter.locator(`[data-test="pick-bench-${benchId}"]`).click()
     await setter.locator(`[data-test=next-for-me] [data-op="${op.id}"] [data-test=claim]`).click()
     await setter.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=start]`).click()
     const w = setter.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=metal-weigh]`)
@@ -54,7 +65,8 @@ describe('metal on the bench and the owner’s metal screen', () => {
     await w.locator('[data-test=weigh-submit]').click()
     await expect.poll(() => w.locator('[data-test=weigh-error]').innerText(), { timeout: 10_000 }).toBe('Must be more than 0 g')
     await screenshot(setter, 'metal-01-tablet-zero-refused')
-    expect(await q('select id from metal_movements where job_bag_id = $1', [op.job_bag_id])).toEqual([])
+    const m = s.metalMovements
+    expect(await db.select({ id: m.id }).from(m).where(eq(m.jobBagId, op.jobBagId))).toEqual([])
 
     // The empty container reads 1.50 g and is remembered; 13.50 g on the scale is 12.00 g of metal.
     await w.locator('[data-test=key-clear]').click()
@@ -85,22 +97,30 @@ describe('metal on the bench and the owner’s metal screen', () => {
     await expect(w.locator('[data-test=balance-back]').innerText()).resolves.toBe('11.75 g')
     await expect(w.locator('[data-test=balance-loss-pct]').innerText()).resolves.toBe('2.1 %')
     // The setting tolerance the workshop works to (the usual 1 % when none is set: common practice, no source): 2.1 % is over it.
-    const [tol] = await q(`select t.tolerance_pct from loss_tolerances t join operation_kinds k on k.id = t.kind_id where k.code = 'setting'`)
-    const tolerancePct = tol ? Number(tol.tolerance_pct) : 1
+    const [tol] = await db
+      .select({ tolerancePct: s.lossTolerances.tolerancePct })
+      .from(s.lossTolerances)
+      .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.lossTolerances.kindId))
+      .where(eq(s.operationKinds.code, 'setting'))
+    const tolerancePct = tol ? Number(tol.tolerancePct) : 1
     await expect(w.locator('[data-test=balance-tolerance]').innerText()).resolves.toMatch(2.1 > tolerancePct ? /^Over the/ : /^Allowed/)
     await w.scrollIntoViewIfNeeded()
     await screenshot(setter, 'metal-02-tablet-weighed-back')
 
-    const rows = await q('select kind, form, source, weight_mg, alloy_id from metal_movements where job_bag_id = $1 order by id', [op.job_bag_id])
+    const rows = await db
+      .select({ kind: m.kind, form: m.form, source: m.source, weightMg: m.weightMg, alloyId: m.alloyId })
+      .from(m)
+      .where(eq(m.jobBagId, op.jobBagId))
+      .orderBy(asc(m.id))
     expect(rows).toEqual([
-      { kind: 'issued', form: null, source: 'stock', weight_mg: 12000, alloy_id: alloy.id },
-      { kind: 'returned', form: 'piece', source: null, weight_mg: 11200, alloy_id: alloy.id },
-      { kind: 'returned', form: 'scrap', source: null, weight_mg: 350, alloy_id: alloy.id },
-      { kind: 'returned', form: 'lemel', source: null, weight_mg: 200, alloy_id: alloy.id },
+      { kind: 'issued', form: null, source: 'stock', weightMg: 12000, alloyId: alloy.id },
+      { kind: 'returned', form: 'piece', source: null, weightMg: 11200, alloyId: alloy.id },
+      { kind: 'returned', form: 'scrap', source: null, weightMg: 350, alloyId: alloy.id },
+      { kind: 'returned', form: 'lemel', source: null, weightMg: 200, alloyId: alloy.id },
     ])
 
     // The job bag page shows the same account.
-    await setter.goto(`/job-bags/${op.job_bag_id}`)
+    await setter.goto(`/job-bags/${op.jobBagId}`)
     const acct = setter.locator('[data-test=metal-account]')
     await expect.poll(() => acct.locator('[data-test=total-loss]').innerText(), { timeout: 15_000 }).toBe('0.25 g · 2.1 %')
     await acct.scrollIntoViewIfNeeded()
@@ -110,7 +130,7 @@ describe('metal on the bench and the owner’s metal screen', () => {
   it('when the owner opens Metal, then each alloy’s balance is the sum of its ledger rows, loss by person matches the ledger, and 5 g of wax in 14K needs 71.89 g', async () => {
     const owner = await page('owner@wrenfield.test', { width: 1440, height: 900 })
     await owner.goto('/metal')
-    // Balance by the stock rule, summed here from the rows: bought + customers' own − issued + returned − to refining + from refining + adjusted − left with collected pieces.
+    // SQL text on purpose — balance by the stock rule, summed here from the rows apart from the app: bought + customers' own − issued + returned − to refining + from refining + adjusted − left with collected pieces.
     const sums =
       await q(`select a.code, coalesce(sum(case m.kind when 'bought' then m.weight_mg when 'issued' then -m.weight_mg + case when m.source = 'customer' then m.weight_mg else 0 end
         when 'returned' then m.weight_mg when 'to-refining' then -m.weight_mg when 'from-refining' then m.weight_mg when 'adjusted' then m.weight_mg when 'delivered' then -m.weight_mg else 0 end), 0)::int as balance
@@ -124,7 +144,7 @@ describe('metal on the bench and the owner’s metal screen', () => {
       'the demo holds some stock',
     ).toBe(true)
 
-    // Loss by person: each person's issued and loss, summed here from the job-bag rows (corrections included).
+    // SQL text on purpose — loss by person: each person's issued and loss, summed here from the job-bag rows (corrections included).
     const people =
       await q(`select p.name, sum(case when m.kind = 'issued' then m.weight_mg else 0 end)::int as issued, sum(case when m.kind = 'returned' then m.weight_mg else 0 end)::int as returned
       from metal_movements m join people p on p.id = m.person_id where m.job_bag_id is not null and m.kind in ('issued', 'returned') group by p.name`)

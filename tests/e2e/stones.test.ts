@@ -1,32 +1,36 @@
 // Stones and ring sizes in Chromium: the setter counts stones back on the tablet's running card and the job bag page shows the
 // reconciliation; a ring size typed in one scale shows the others as it is typed.
+import { asc, eq, exists } from 'drizzle-orm'
 import { describe, expect, it } from 'vitest'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signedInTablet, useE2E } from '../setup/e2e'
+import { benchIdByName, finishSteps, openOrderStep, setStepStatus } from '../setup/fixtures'
 
 const e2e = useE2E()
-const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
 const page = (email: string, viewport?: { width: number; height: number }) => signedInTablet(e2e, email, viewport)
 
 describe('stones on the bench and the job bag', () => {
   it('when the setter takes the pavé stones and counts them back on the tablet, then the job bag shows them all counted', async () => {
     // A demo pavé pendant whose setting step nobody has started, with its seeded stone list.
-    const [op] =
-      await q(`select o.id, o.job_bag_id from operations o join job_bags jb on jb.id = o.job_bag_id join routings rt on rt.id = jb.routing_id join orders ord on ord.id = jb.order_id
-      where rt.code = 'pave-pendant' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' and exists (select 1 from job_bag_stones s where s.job_bag_id = jb.id) order by jb.id limit 1`)
-    const [line] = await q('select id, count from job_bag_stones where job_bag_id = $1', [op.job_bag_id])
-    const [bag] = await q(`select (params->>'quantity')::int as quantity from job_bags where id = $1`, [op.job_bag_id])
-    await q(
-      `update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and key <> 'set' and key not in ('polish', 'inspect')`,
-      [op.job_bag_id],
-    )
-    await q(`update operations set status = 'ready' where id = $1`, [op.id])
-    const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
-    const total = line.count * bag.quantity
+    const db = e2e.db.db
+    const st = s.jobBagStones
+    const op = (await openOrderStep(db, {
+      routing: 'pave-pendant',
+      key: 'set',
+      status: 'pending',
+      where: exists(db.select({ id: st.id }).from(st).where(eq(st.jobBagId, s.jobBags.id))),
+      order: 'bag',
+    }))!
+    const line = (await db.select({ id: st.id, count: st.count }).from(st).where(eq(st.jobBagId, op.jobBagId)))[0]!
+    await finishSteps(db, op.jobBagId, { exceptKeys: ['set', 'polish', 'inspect'] })
+    await setStepStatus(db, op.id, 'ready')
+    const benchId = await benchIdByName(db, 'Setting bench A')
+    const total = line.count * op.params.quantity
 
     const setter = await page('setter@wrenfield.test')
     await setter.goto('/bench')
-    await setter.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+    await setter.locator(`[data-test="pick-bench-${benchId}"]`).click()
     await setter.locator(`[data-test=next-for-me] [data-op="${op.id}"] [data-test=claim]`).click()
     await setter.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=start]`).click()
     const counter = setter.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=stone-count-back]`)
@@ -50,14 +54,15 @@ describe('stones on the bench and the job bag', () => {
     await screenshot(setter, 'stones-02-tablet-counted')
 
     const manager = await page('manager@wrenfield.test')
-    await manager.goto(`/job-bags/${op.job_bag_id}`)
+    await manager.goto(`/job-bags/${op.jobBagId}`)
     const row = manager.locator('[data-test=stone-list] .el-table__row').first()
     await expect.poll(() => row.locator('[data-test=counts]').innerText(), { timeout: 10_000 }).toBe(`${total} · ${total - 1} · 1 · 0 · 0`)
     await expect(row.locator('[data-test=state]').innerText()).resolves.toBe('counted')
     await expect(row.locator('[data-test=difference]').innerText()).resolves.toBe('all counted')
     await manager.locator('[data-test=stone-list]').scrollIntoViewIfNeeded()
     await screenshot(manager, 'stones-03-job-bag-reconciled')
-    const rows = await q(`select kind, count from stone_movements where stone_line_id = $1 order by id`, [line.id])
+    const sm = s.stoneMovements
+    const rows = await db.select({ kind: sm.kind, count: sm.count }).from(sm).where(eq(sm.stoneLineId, line.id)).orderBy(asc(sm.id))
     expect(rows).toEqual([
       { kind: 'issued', count: total },
       { kind: 'set', count: total - 1 },

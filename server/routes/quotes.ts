@@ -1,5 +1,6 @@
 // Quote routes: sales, managers and the owner write and send quotes; bench users see none (no prices on the bench).
-import { quoteAction, quoteInput, quoteLinkInput, quoteListQuery, quoteUpdate } from '../../shared/schemas/quote'
+import { paymentLink } from '../../shared/schemas/payment'
+import { quoteAction, quoteDetail, quoteInput, quoteLinkInput, quoteListQuery, quotePage, quoteUpdate } from '../../shared/schemas/quote'
 import type { Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
 import * as quotes from '../services/quotes'
@@ -15,6 +16,7 @@ export const quoteRoutes = [
     roles: QUOTERS,
     summary: 'Quotes, newest first (lapsed ones shown expired)',
     query: quoteListQuery,
+    response: quotePage,
     handler: ({ deps, actor, query }) => quotes.listQuotes(deps, actor.workshopId, query),
   }),
   route({
@@ -23,6 +25,7 @@ export const quoteRoutes = [
     roles: QUOTERS,
     summary: 'A quote with its payment links and payments',
     params: idParam,
+    response: quoteDetail,
     handler: ({ deps, actor, params }) => quotes.getQuote(deps.db, actor.workshopId, params.id),
   }),
   route({
@@ -32,6 +35,7 @@ export const quoteRoutes = [
     status: 201,
     summary: 'Draft a quote (deposit and validity from the workshop rules unless given)',
     body: quoteInput,
+    response: quoteDetail,
     handler: ({ deps, actor, body }) => quotes.createQuote(deps, actor, body),
   }),
   route({
@@ -41,6 +45,7 @@ export const quoteRoutes = [
     summary: 'Change a drafted or sent quote',
     params: idParam,
     body: quoteUpdate,
+    response: quoteDetail,
     handler: ({ deps, actor, params, body }) => quotes.updateQuote(deps, actor, params.id, body),
   }),
   route({
@@ -50,6 +55,7 @@ export const quoteRoutes = [
     summary: 'E-mail the quote to the customer with a deposit link',
     params: idParam,
     body: quoteAction,
+    response: quoteDetail,
     handler: ({ deps, actor, params, body }) => quotes.sendQuote(deps, actor, params.id, body.version),
   }),
   route({
@@ -59,6 +65,7 @@ export const quoteRoutes = [
     summary: 'The customer accepts: the order is made (or the quote’s order linked)',
     params: idParam,
     body: quoteAction,
+    response: quoteDetail,
     handler: ({ deps, actor, params, body }) => quotes.acceptQuote(deps, actor, params.id, body.version),
   }),
   route({
@@ -68,6 +75,7 @@ export const quoteRoutes = [
     summary: 'Take the quote back (its open links close)',
     params: idParam,
     body: quoteAction,
+    response: quoteDetail,
     handler: ({ deps, actor, params, body }) => quotes.withdrawQuote(deps, actor, params.id, body.version),
   }),
   route({
@@ -78,6 +86,7 @@ export const quoteRoutes = [
     summary: 'A deposit link for the quote',
     params: idParam,
     body: quoteLinkInput,
+    response: paymentLink,
     handler: ({ deps, actor, params, body }) => quotes.quoteLink(deps, actor, params.id, body.amountMinor),
   }),
   route({

@@ -1,8 +1,8 @@
 // Quotes for commissions: what is quoted (piece, metal, stones), the promised date, the price and deposit in minor units.
 import { z } from 'zod'
-import { id, isoDate, name, version } from './common'
+import { id, isoDate, name, pageOf, version, wireInt } from './common'
 import { pieceParams } from './order'
-import { minorAmount } from './payment'
+import { minorAmount, payment, paymentLink } from './payment'
 
 export { minorAmount }
 
@@ -81,3 +81,42 @@ export const quoteLinkInput = z.object({ amountMinor: minorAmount.min(1, 'must b
 export type QuoteInput = z.infer<typeof quoteInput>
 export type QuoteUpdate = z.infer<typeof quoteUpdate>
 export type QuoteDetails = z.infer<typeof quoteDetails>
+export type QuoteConfidence = z.infer<typeof quoteConfidence>
+
+// ---- Answers ----
+
+/** What is quoted and the promise's confidence, as stored (checked like the input, without filling in defaults). */
+const storedDetails = z.custom<QuoteDetails>((v) => quoteDetails.safeParse(v).success, 'must be quote details')
+const storedConfidence = z.custom<QuoteConfidence>((v) => quoteConfidence.safeParse(v).success, 'must be a quoted confidence')
+
+/** A quote as listed: its customer, order, state and money (minor units; the balance is price − deposit). */
+export const quote = z.object({
+  id: wireInt,
+  number: z.string(),
+  customerId: wireInt,
+  customerName: z.string(),
+  customerEmail: z.string(),
+  orderId: wireInt.nullable(),
+  orderNumber: z.string().nullable(),
+  status: z.enum(QUOTE_STATUSES),
+  title: z.string(),
+  description: z.string(),
+  details: storedDetails,
+  promisedDate: z.string().nullable(),
+  confidence: storedConfidence.nullable(),
+  currency: z.string(),
+  priceMinor: wireInt,
+  depositMinor: wireInt,
+  balanceMinor: wireInt,
+  validUntil: z.string(),
+  sentAt: z.string().nullable(),
+  acceptedAt: z.string().nullable(),
+  withdrawnAt: z.string().nullable(),
+  createdAt: z.string(),
+  version: wireInt,
+})
+export type Quote = z.infer<typeof quote>
+export const quotePage = pageOf(quote)
+/** One quote, and every write's answer: with its payment links, payments and what is paid (net of refunds, not counting those to refund). */
+export const quoteDetail = quote.extend({ links: z.array(paymentLink), payments: z.array(payment), paidMinor: wireInt })
+export type QuoteDetail = z.infer<typeof quoteDetail>

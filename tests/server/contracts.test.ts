@@ -324,6 +324,29 @@ describe('answers on the demo workshop', () => {
     expect(summary.weeks.length).toBeGreaterThan(0)
   })
 
+  it('when quotes are drafted, changed, sent with a deposit link, agreed and withdrawn, then the list, a quote and each write answer what their schemas allow', async () => {
+    const customerId = await firstCustomerId(t.db)
+    const details = {
+      templateId: await templateId(t.db),
+      piece: 'Three-stone ring',
+      metal: '18 ct yellow gold',
+      stones: [{ description: 'Round brilliant 0.25 ct', count: 3, carats: 0.75 }],
+    }
+    const confidence = { p50: '2027-01-20', p80: '2027-01-27', p95: '2027-02-03', note: 'from the promise check' }
+    const drafted = await call(manager, 'post', '/quotes', '/quotes', { customerId, title: 'Contract quote', priceMinor: 125_000, details, confidence }, 201)
+    const changed = await call(manager, 'patch', '/quotes/:id', `/quotes/${drafted.id}`, { title: 'Contract quote, three stones', version: drafted.version })
+    await call(manager, 'post', '/quotes/:id/payment-links', `/quotes/${drafted.id}/payment-links`, { amountMinor: 10_000 }, 201)
+    const sent = await call(manager, 'post', '/quotes/:id/send', `/quotes/${drafted.id}/send`, { version: changed.version })
+    expect(sent.links.length).toBeGreaterThan(0)
+    const page = await call(manager, 'get', '/quotes', '/quotes?pageSize=5')
+    expect(page.items.length).toBeGreaterThan(0)
+    await call(manager, 'get', '/quotes/:id', `/quotes/${drafted.id}`)
+    const agreed = await call(manager, 'post', '/quotes/:id/accept', `/quotes/${drafted.id}/accept`, { version: sent.version })
+    expect(agreed.orderId).toBeTruthy()
+    const other = await call(manager, 'post', '/quotes', '/quotes', { customerId, title: 'Contract quote taken back', priceMinor: 40_000 }, 201)
+    await call(manager, 'post', '/quotes/:id/withdraw', `/quotes/${other.id}/withdraw`, { version: other.version })
+  })
+
   it('when every call above is done, then each route with a response schema was called at least once', () => {
     expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])
   })

@@ -1,9 +1,12 @@
 // Accounts in Chromium: the owner invites someone by e-mail, the link from the local test mailbox opens the page where
 // they choose their password, and they land signed in; a manager makes a tablet a bench station where a setter acts with her PIN.
+import { and, desc, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
+import * as s from '../../server/db/schema/index'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { DEMO_PASSWORD, screenshot, signInPage, signInWith, useE2E } from '../setup/e2e'
+import { benchIdByName, finishSteps, openOrderStep, personIdByEmail, setStepStatus } from '../setup/fixtures'
 
 let fake: FakeSmtp
 let owner: Page
@@ -77,25 +80,19 @@ describe('invitation by e-mail', () => {
   })
 })
 
-const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
-
 describe('bench station', () => {
   it('when a manager makes a tablet the setting bench station, then the setter taps her name, enters her PIN, takes a job as herself, and the tablet asks the next person', async () => {
-    const [ines] = await q(`select p.id from people p join users u on u.id = p.user_id where u.email = 'setter@wrenfield.test'`)
-    const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
-    // A setting step made ready straight in the database (its predecessors marked done yesterday).
-    const [op] =
-      await q(`select o.id, o.job_bag_id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
-      where k.code = 'setting' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`)
-    await q(
-      `update operations set status = 'done', finished_at = now() - interval '1 day' where job_bag_id = $1 and id <> $2 and seq < (select seq from operations where id = $2)`,
-      [op.job_bag_id, op.id],
-    )
-    await q(`update operations set status = 'ready' where id = $1`, [op.id])
+    const db = e2e.db.db
+    const inesId = await personIdByEmail(db, 'setter@wrenfield.test')
+    const benchId = await benchIdByName(db, 'Setting bench A')
+    // A setting step made ready straight in the database (the steps before it marked done yesterday).
+    const op = (await openOrderStep(db, { kind: 'setting', key: 'set', status: 'pending' }))!
+    await finishSteps(db, op.jobBagId, { before: op.id })
+    await setStepStatus(db, op.id, 'ready')
 
     // The owner sets Ines's PIN on People & skills.
     await owner.goto('/people')
-    await owner.locator(`[data-test=set-pin-${ines.id}]`).click()
+    await owner.locator(`[data-test=set-pin-${inesId}]`).click()
     const box = owner.locator('.el-message-box', { hasText: 'Set bench PIN' })
     await box.locator('input').fill('4821')
     await box.getByRole('button', { name: 'Set PIN' }).click()
@@ -113,7 +110,7 @@ describe('bench station', () => {
       await signInWith(tablet, 'manager@wrenfield.test', DEMO_PASSWORD)
       await tablet.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
       await tablet.goto('/bench')
-      await tablet.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+      await tablet.locator(`[data-test="pick-bench-${benchId}"]`).click()
       await tablet.locator('[data-test=make-station]').click()
       await tablet.locator('.el-message-box').getByRole('button', { name: 'Make it the station' }).click()
       await tablet.locator('[data-test=station-people]').waitFor()
@@ -122,7 +119,7 @@ describe('bench station', () => {
       await screenshot(tablet, 'accounts-station-names')
 
       // A wrong PIN first: refused with the tries left (5 in a row lock it; common practice, no source).
-      await tablet.locator(`[data-test=station-person-${ines.id}]`).click()
+      await tablet.locator(`[data-test=station-person-${inesId}]`).click()
       for (const d of '1111') await tablet.locator(`[data-test=pin-key-${d}]`).click()
       await tablet.locator('[data-test=pin-ok]').click()
       await tablet.locator('[data-test=pin-error]').getByText('That PIN is not right; 4 tries left').waitFor()
@@ -137,10 +134,16 @@ describe('bench station', () => {
       // After her action the tablet asks for the next person's name again.
       await tablet.locator('[data-test=station-people]').waitFor()
       await screenshot(tablet, 'accounts-station-after-claim')
-      const [after] = await q(`select claimed_by, status from operations where id = $1`, [op.id])
-      expect(after).toEqual({ claimed_by: ines.id, status: 'claimed' })
-      const [a] = await q(`select details from audit_log where entity = 'operation' and entity_id = $1 and action = 'claim' order by id desc limit 1`, [op.id])
-      expect(a.details).toMatchObject({ actingPersonName: 'Ines Harrowby', station: 'Setting bench A' })
+      const [after] = await db.select({ claimedBy: s.operations.claimedBy, status: s.operations.status }).from(s.operations).where(eq(s.operations.id, op.id))
+      expect(after).toEqual({ claimedBy: inesId, status: 'claimed' })
+      const l = s.auditLog
+      const [a] = await db
+        .select({ details: l.details })
+        .from(l)
+        .where(and(eq(l.entity, 'operation'), eq(l.entityId, op.id), eq(l.action, 'claim')))
+        .orderBy(desc(l.id))
+        .limit(1)
+      expect(a!.details).toMatchObject({ actingPersonName: 'Ines Harrowby', station: 'Setting bench A' })
     } finally {
       await context.close()
     }

@@ -1,23 +1,19 @@
 // The bench tablet in Chromium at 10-inch sizes: the setter picks a bench, takes, starts, pauses, resumes and finishes a setting job while the manager's job bag page follows live.
+import { asc, eq } from 'drizzle-orm'
 import { describe, expect, it } from 'vitest'
 import type { BrowserContext, Page } from 'playwright-core'
+import * as s from '../../server/db/schema/index'
 import { DEMO_PASSWORD, makeStepReady, screenshot, signInWith, useE2E } from '../setup/e2e'
+import { benchIdByName, openOrderStep, setPieceParams } from '../setup/fixtures'
 
 const e2e = useE2E()
 const TABLET_LANDSCAPE = { width: 1280, height: 800 }
 const TABLET_PORTRAIT = { width: 800, height: 1280 }
 
-const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
-
 const makeReady = (operationId: number) => makeStepReady(e2e, operationId)
 
 async function firstPending(kind: string, key?: string) {
-  const [op] = await q(
-    `select o.id, o.job_bag_id, o.name from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
-    where k.code = $1 and ($2::text is null or o.key = $2) and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`,
-    [kind, key ?? null],
-  )
-  return op as { id: number; job_bag_id: number; name: string }
+  return (await openOrderStep(e2e.db.db, { kind, key, status: 'pending' }))!
 }
 
 async function tablet(email: string, viewport = TABLET_LANDSCAPE): Promise<{ context: BrowserContext; page: Page }> {
@@ -39,11 +35,11 @@ describe('the bench tablet', () => {
   it('when the setter works a setting job through, then each tap moves it and the manager’s job bag page follows live', async () => {
     const op = await firstPending('setting', 'set')
     await makeReady(op.id)
-    await q(`update job_bags set params = params || '{"stoneCount": 12, "stoneSizeMm": 1.3, "quantity": 2}'::jsonb where id = $1`, [op.job_bag_id])
-    const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
+    await setPieceParams(e2e.db.db, op.jobBagId, { stoneCount: 12, stoneSizeMm: 1.3, quantity: 2 })
+    const benchId = await benchIdByName(e2e.db.db, 'Setting bench A')
 
     const manager = await tablet('manager@wrenfield.test')
-    await manager.page.goto(`/job-bags/${op.job_bag_id}`)
+    await manager.page.goto(`/job-bags/${op.jobBagId}`)
     const managerStatus = manager.page.locator(`[data-test="status-${op.id}"]`)
     await expect(managerStatus.textContent()).resolves.toMatch(/Ready/)
 
@@ -51,7 +47,7 @@ describe('the bench tablet', () => {
     await page.goto('/bench')
     await page.locator('[data-test=bench-picker]').waitFor()
     await screenshot(page, 'bench-01-pick-bench-landscape')
-    await page.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+    await page.locator(`[data-test="pick-bench-${benchId}"]`).click()
     await expect(page.locator('[data-test=bench-name]').textContent()).resolves.toBe('Setting bench A')
 
     const next = card(page, 'next-for-me', op.id)
@@ -77,7 +73,7 @@ describe('the bench tablet', () => {
     const facts = page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=work-facts]`)
     await expect(facts.locator('[data-test=stone-count]').innerText()).resolves.toMatch(/Stones\s+24\s+12 a piece × 2 pieces/i)
     await expect(facts.locator('[data-test=stone-size]').innerText()).resolves.toMatch(/Stone size\s+1\.3 mm\s+under 1\.5 mm/i)
-    const [{ estimate_minutes: planned }] = await q('select estimate_minutes from operations where id = $1', [op.id])
+    const planned = (await e2e.db.db.select({ m: s.operations.estimateMinutes }).from(s.operations).where(eq(s.operations.id, op.id)))[0]!.m
     await expect(facts.locator('[data-test=planned-minutes]').innerText()).resolves.toMatch(new RegExp(`Planned\\s+${Math.round(planned)} min`, 'i'))
     await screenshot(page, 'bench-03-running-landscape')
 
@@ -101,10 +97,11 @@ describe('the bench tablet', () => {
     await manager.page.waitForFunction(() => document.querySelector('[data-test=history]')?.textContent?.includes('finished'), null, { timeout: 10_000 })
     await screenshot(manager.page, 'bench-05-manager-job-bag-live')
 
-    const records = await q('select end_reason, note from time_records where operation_id = $1 order by id', [op.id])
+    const tr = s.timeRecords
+    const records = await e2e.db.db.select({ endReason: tr.endReason, note: tr.note }).from(tr).where(eq(tr.operationId, op.id)).orderBy(asc(tr.id))
     expect(records).toEqual([
-      { end_reason: 'end-of-day', note: '' },
-      { end_reason: 'finished', note: 'All stones tight, checked under the scope' },
+      { endReason: 'end-of-day', note: '' },
+      { endReason: 'finished', note: 'All stones tight, checked under the scope' },
     ])
 
     // Portrait: the same screen stacks its two lists.
@@ -121,10 +118,10 @@ describe('the bench tablet', () => {
   it('when a polisher starts a lathe step, then the cautions are shown and must be acknowledged first; a scanned ticket opens the bag with its next step', async () => {
     const op = await firstPending('polishing')
     await makeReady(op.id)
-    const [bench] = await q(`select id from benches where name = 'Polishing station'`)
+    const benchId = await benchIdByName(e2e.db.db, 'Polishing station')
     const { context, page } = await tablet('ruth@wrenfield.test')
     await page.goto('/bench')
-    await page.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+    await page.locator(`[data-test="pick-bench-${benchId}"]`).click()
     await card(page, 'next-for-me', op.id).locator('[data-test=claim]').click()
     const mine = card(page, 'my-work', op.id)
     await mine.waitFor()
@@ -139,7 +136,7 @@ describe('the bench tablet', () => {
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
 
     // What a scan leads to: the job bag page offering the bag's next step.
-    await page.goto(`/job-bags/${op.job_bag_id}?from=scan`)
+    await page.goto(`/job-bags/${op.jobBagId}?from=scan`)
     await page.locator('[data-test=next-step]').waitFor()
     await expect(page.locator('[data-test=next-step]').textContent()).resolves.toContain(op.name)
     await screenshot(page, 'bench-08-scanned-job-bag')

@@ -30,7 +30,7 @@ if (own) {
 const [owner] = await db.select().from(s.users).where(eq(s.users.role, 'sales')).limit(1)
 const actor: Actor = { userId: owner!.id, workshopId: owner!.workshopId, role: 'sales', personId: null, name: owner!.name }
 const deps: Deps = { db, realtime: new Realtime() }
-const templates = await db.select({ id: s.routingTemplates.id }).from(s.routingTemplates).where(eq(s.routingTemplates.workshopId, actor.workshopId))
+const templates = await db.select({ id: s.routings.id }).from(s.routings).where(eq(s.routings.workshopId, actor.workshopId))
 
 async function measure(range: boolean) {
   const ms: number[] = []

@@ -25,19 +25,19 @@ export async function seedCosting(tx: Trx, workshopId: number): Promise<void> {
   let a = 604_12
   // Park–Miller: its own numbers, so the prices are the same on every machine whatever else the demo draws.
   const rand = () => (a = (a * 16_807) % 2_147_483_647) / 2_147_483_647
-  const templates = await tx.select().from(s.routingTemplates).where(eq(s.routingTemplates.workshopId, workshopId))
+  const routings = await tx.select().from(s.routings).where(eq(s.routings.workshopId, workshopId))
   const steps = await tx
-    .select({ st: s.templateSteps, code: s.operationKinds.code })
-    .from(s.templateSteps)
-    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.templateSteps.kindId))
-    .where(inArray(s.templateSteps.templateId, [...templates.map((t) => t.id), -1]))
+    .select({ st: s.routingSteps, code: s.operationKinds.code })
+    .from(s.routingSteps)
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.routingSteps.kindId))
+    .where(inArray(s.routingSteps.routingId, [...routings.map((t) => t.id), -1]))
   const costs = steps
     .filter((x) => OUTSIDE_PER_UNIT_MINOR[x.code] !== undefined)
-    .map((x) => ({ templateId: x.st.templateId, stepKey: x.st.key, outsideCostMinor: OUTSIDE_PER_UNIT_MINOR[x.code]! }))
-  if (costs.length) await tx.insert(s.templateStepCosts).values(costs)
+    .map((x) => ({ routingId: x.st.routingId, stepKey: x.st.key, outsideCostMinor: OUTSIDE_PER_UNIT_MINOR[x.code]! }))
+  if (costs.length) await tx.insert(s.routingStepCosts).values(costs)
   const bags = await tx.select().from(s.jobBags).where(eq(s.jobBags.workshopId, workshopId))
   for (const bag of bags) {
-    const code = templates.find((t) => t.id === bag.templateId)?.code ?? ''
+    const code = routings.find((t) => t.id === bag.routingId)?.code ?? ''
     if (METAL_G[code] !== undefined)
       await tx
         .update(s.jobBags)

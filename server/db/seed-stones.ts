@@ -52,11 +52,11 @@ function linesFor(code: string, piece: string, p: PieceParams, customerId: numbe
 
 export async function seedStones(tx: Trx, workshopId: number): Promise<void> {
   const bags = await tx
-    .select({ bag: s.jobBags, code: s.routingTemplates.code, learningRate: s.routingTemplates.learningRate, order: s.orders })
+    .select({ bag: s.jobBags, code: s.routings.code, learningRate: s.routings.learningRate, order: s.orders })
     .from(s.jobBags)
-    .innerJoin(s.routingTemplates, eq(s.routingTemplates.id, s.jobBags.templateId))
+    .innerJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
     .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-    .where(and(eq(s.jobBags.workshopId, workshopId), inArray(s.routingTemplates.code, ['pave-pendant', 'bezel-ring', 'halo-ring'])))
+    .where(and(eq(s.jobBags.workshopId, workshopId), inArray(s.routings.code, ['pave-pendant', 'bezel-ring', 'halo-ring'])))
   let n = 0
   for (const { bag, code, learningRate, order } of bags) {
     const params = bag.params as PieceParams
@@ -94,8 +94,8 @@ export async function seedStones(tx: Trx, workshopId: number): Promise<void> {
       // Steps nobody has started plan their minutes from the stone list.
       const [step] = await tx
         .select()
-        .from(s.templateSteps)
-        .where(and(eq(s.templateSteps.templateId, bag.templateId!), eq(s.templateSteps.key, 'set')))
+        .from(s.routingSteps)
+        .where(and(eq(s.routingSteps.routingId, bag.routingId!), eq(s.routingSteps.key, 'set')))
       if (step && step.perStoneMinutes > 0)
         await tx
           .update(s.operations)

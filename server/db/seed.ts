@@ -420,17 +420,17 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     await tx.insert(s.leave).values({ personId: people[2]!.id, startsOn: dayStr(l1), endsOn: dayStr(addDays(l1, 2)), reason: 'Holiday' })
     await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: stocktake', startsOn: dayStr(addDays(now, 17)), endsOn: dayStr(addDays(now, 17)) })
 
-    const templates: { row: typeof s.routingTemplates.$inferSelect; steps: (typeof s.templateSteps.$inferSelect)[] }[] = []
+    const templates: { row: typeof s.routings.$inferSelect; steps: (typeof s.routingSteps.$inferSelect)[] }[] = []
     for (const t of TEMPLATES) {
       const [row] = await tx
-        .insert(s.routingTemplates)
+        .insert(s.routings)
         .values({ workshopId, code: t.code, name: t.name, description: t.description, learningRate: t.learningRate ?? null })
         .returning()
       const steps = await tx
-        .insert(s.templateSteps)
+        .insert(s.routingSteps)
         .values(
           t.steps.map((st, seq) => ({
-            templateId: row!.id,
+            routingId: row!.id,
             seq,
             key: st.key,
             kindId: kindId(st.kind),
@@ -490,7 +490,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
           orderId: order!.id,
           number: `${number}-1`,
           piece: choice.piece,
-          templateId: t.row.id,
+          routingId: t.row.id,
           params,
           status: opts.status === 'collected' ? 'complete' : 'waiting',
           createdAt: opts.created,

@@ -1,11 +1,11 @@
-// Master data routes: operation kinds, benches, people, calendar, routing templates, customers, users.
+// Master data routes: operation kinds, benches, people, calendar, routings, customers, users.
 import { bench, benchInput, benchUpdate, downtimeInput } from '../../shared/schemas/bench'
 import { closureInput, workshopSettingsInput } from '../../shared/schemas/calendar'
 import { listQuery } from '../../shared/schemas/common'
 import { customer, customerInput, customerPage, customerUpdate } from '../../shared/schemas/customer'
 import { operationKindInput, operationKindUpdate } from '../../shared/schemas/operation-kind'
 import { leaveInput, person, personInput, personUpdate } from '../../shared/schemas/person'
-import { template, templateInput, templateUpdate } from '../../shared/schemas/routing'
+import { routing, routingInput, routingUpdate } from '../../shared/schemas/routing'
 import { userCreate, userUpdate } from '../../shared/schemas/user'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
@@ -15,7 +15,7 @@ import * as calendar from '../services/calendar'
 import * as customers from '../services/customers'
 import * as kinds from '../services/operation-kinds'
 import * as people from '../services/people'
-import * as templates from '../services/routings'
+import * as routings from '../services/routings'
 import * as users from '../services/users'
 import { childParam, idParam } from './params'
 import { z, type ZodType } from 'zod'
@@ -214,38 +214,38 @@ export const masterDataRoutes = [
     method: 'get',
     path: '/routings',
     roles: EVERYONE,
-    summary: 'Routing templates with steps',
-    response: z.array(template),
-    handler: ({ deps, actor }) => templates.listTemplates(deps.db, actor.workshopId),
+    summary: 'Routings with steps',
+    response: z.array(routing),
+    handler: ({ deps, actor }) => routings.listRoutings(deps.db, actor.workshopId),
   }),
   route({
     method: 'get',
     path: '/routings/:id',
     roles: EVERYONE,
-    summary: 'One routing template',
+    summary: 'One routing',
     params: idParam,
-    response: template,
-    handler: ({ deps, actor, params }) => templates.getTemplate(deps.db, actor.workshopId, params.id),
+    response: routing,
+    handler: ({ deps, actor, params }) => routings.getRouting(deps.db, actor.workshopId, params.id),
   }),
   route({
     method: 'post',
     path: '/routings',
     roles: STAFF,
     status: 201,
-    summary: 'Add a routing template',
-    body: templateInput,
-    response: template,
-    handler: ({ deps, actor, body }) => templates.createTemplate(deps, actor, body),
+    summary: 'Add a routing',
+    body: routingInput,
+    response: routing,
+    handler: ({ deps, actor, body }) => routings.createRouting(deps, actor, body),
   }),
   route({
     method: 'put',
     path: '/routings/:id',
     roles: STAFF,
-    summary: 'Replace a routing template',
+    summary: 'Replace a routing',
     params: idParam,
-    body: templateUpdate,
-    response: template,
-    handler: ({ deps, actor, params, body }) => templates.updateTemplate(deps, actor, params.id, body),
+    body: routingUpdate,
+    response: routing,
+    handler: ({ deps, actor, params, body }) => routings.updateRouting(deps, actor, params.id, body),
   }),
 
   route({

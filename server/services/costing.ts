@@ -33,10 +33,10 @@ import {
   operations,
   orders,
   people,
-  routingTemplates,
+  routings,
   stoneMovements,
-  templateStepCosts,
-  templateSteps,
+  routingStepCosts,
+  routingSteps,
   workshops,
 } from '../db/schema/index'
 import { invalid, notFound } from '../errors/app-error'
@@ -146,21 +146,21 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
   const book = await priceBook(db, workshopId)
   const { average } = await averageRateMinor(db, workshopId)
   const ids = [...new Set(input.pieces.map((p) => p.templateId))]
-  const templates = await db
+  const found = await db
     .select()
-    .from(routingTemplates)
-    .where(and(eq(routingTemplates.workshopId, workshopId), inArray(routingTemplates.id, ids)))
+    .from(routings)
+    .where(and(eq(routings.workshopId, workshopId), inArray(routings.id, ids)))
   const steps = ids.length
     ? await db
-        .select({ s: templateSteps, outside: operationKinds.outside })
-        .from(templateSteps)
-        .innerJoin(operationKinds, eq(operationKinds.id, templateSteps.kindId))
-        .where(inArray(templateSteps.templateId, ids))
-        .orderBy(asc(templateSteps.seq))
+        .select({ s: routingSteps, outside: operationKinds.outside })
+        .from(routingSteps)
+        .innerJoin(operationKinds, eq(operationKinds.id, routingSteps.kindId))
+        .where(inArray(routingSteps.routingId, ids))
+        .orderBy(asc(routingSteps.seq))
     : []
-  const costs = ids.length ? await db.select().from(templateStepCosts).where(inArray(templateStepCosts.templateId, ids)) : []
+  const costs = ids.length ? await db.select().from(routingStepCosts).where(inArray(routingStepCosts.routingId, ids)) : []
   const pieces: PieceEstimate[] = input.pieces.map((p, i) => {
-    const t = templates.find((x) => x.id === p.templateId)
+    const t = found.find((x) => x.id === p.templateId)
     if (!t) throw invalid(`pieces.${i}.templateId`, 'is not a routing of this workshop')
     const missing: Missing[] = []
     let minutes = 0,
@@ -168,7 +168,7 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
       outside = 0,
       outsideSteps = 0,
       uncosted = 0
-    for (const { s, outside: isOutside } of steps.filter((x) => x.s.templateId === t.id)) {
+    for (const { s, outside: isOutside } of steps.filter((x) => x.s.routingId === t.id)) {
       if (isOutside || s.leadDays > 0) {
         outsideSteps++
         const perUnit = costs.find((c) => c.stepKey === s.key)?.outsideCostMinor ?? null
@@ -246,8 +246,8 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
     .innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
     .where(inArray(operations.jobBagId, bagIds))
     .orderBy(asc(operations.seq))
-  const templateIds = [...new Set(bags.map((b) => b.templateId).filter((x): x is number => x !== null)), -1]
-  const stepCosts = await db.select().from(templateStepCosts).where(inArray(templateStepCosts.templateId, templateIds))
+  const routingIds = [...new Set(bags.map((b) => b.routingId).filter((x): x is number => x !== null)), -1]
+  const stepCosts = await db.select().from(routingStepCosts).where(inArray(routingStepCosts.routingId, routingIds))
   const opIds = [...ops.map((o) => o.op.id), -1]
   const opCosts = await db.select().from(operationCosts).where(inArray(operationCosts.operationId, opIds))
   const { byOperation, records } = await actualMinutes(
@@ -314,7 +314,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
           }
           continue
         }
-        const perUnit = stepCosts.find((c) => c.templateId === bag.templateId && c.stepKey === op.key)?.outsideCostMinor ?? null
+        const perUnit = stepCosts.find((c) => c.routingId === bag.routingId && c.stepKey === op.key)?.outsideCostMinor ?? null
         const expected = perUnit === null ? 0 : perUnit * Math.max(1, params.quantity)
         const invoicedRow = opCosts.find((c) => c.operationId === op.id)
         const invoiced = invoicedRow?.outsideCostMinor ?? null

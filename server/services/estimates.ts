@@ -33,9 +33,9 @@ import {
   orders,
   people,
   personSkills,
-  routingTemplates,
-  templateStepChanges,
-  templateSteps,
+  routings,
+  routingStepChanges,
+  routingSteps,
   users,
   workshops,
 } from '../db/schema/index'
@@ -58,8 +58,8 @@ export interface FinishedOperation {
   kindCode: string
   kindName: string
   kindColor: string
-  templateId: number | null
-  templateName: string | null
+  routingId: number | null
+  routingName: string | null
   orderId: number
   orderNumber: string
   orderTitle: string
@@ -109,14 +109,14 @@ export async function finishedOperations(db: Db, workshopId: number, filter: Ins
   ]
   if (filter.from) where.push(gte(operations.finishedAt, dayjs.tz(`${filter.from} 00:00`, tz).toISOString()))
   if (filter.to) where.push(lt(operations.finishedAt, dayjs.tz(`${filter.to} 00:00`, tz).add(1, 'day').toISOString()))
-  if (filter.templateId) where.push(eq(jobBags.templateId, filter.templateId))
+  if (filter.templateId) where.push(eq(jobBags.routingId, filter.templateId))
   const rows = await db
-    .select({ op: operations, bag: jobBags, kind: operationKinds, order: orders, templateName: routingTemplates.name })
+    .select({ op: operations, bag: jobBags, kind: operationKinds, order: orders, routingName: routings.name })
     .from(operations)
     .innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
     .innerJoin(orders, eq(orders.id, jobBags.orderId))
     .innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
-    .leftJoin(routingTemplates, eq(routingTemplates.id, jobBags.templateId))
+    .leftJoin(routings, eq(routings.id, jobBags.routingId))
     .where(and(...where))
     .orderBy(asc(operations.finishedAt), asc(operations.id))
   if (!rows.length) return []
@@ -127,7 +127,7 @@ export async function finishedOperations(db: Db, workshopId: number, filter: Ins
   const personIds = [...new Set(records.map((r) => r.personId))]
   const skills = personIds.length ? await db.select().from(personSkills).where(inArray(personSkills.personId, personIds)) : []
   const out: FinishedOperation[] = []
-  for (const { op, bag, kind, order, templateName } of rows) {
+  for (const { op, bag, kind, order, routingName } of rows) {
     const actual = byOperation.get(op.id) ?? 0
     if (!(actual > 0)) continue
     const mine = records.filter((r) => r.operationId === op.id)
@@ -147,8 +147,8 @@ export async function finishedOperations(db: Db, workshopId: number, filter: Ins
       kindCode: kind.code,
       kindName: kind.name,
       kindColor: kind.color,
-      templateId: bag.templateId,
-      templateName,
+      routingId: bag.routingId,
+      routingName,
       orderId: order.id,
       orderNumber: order.number,
       orderTitle: order.title,
@@ -281,20 +281,20 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
     .from(operationKinds)
     .where(and(eq(operationKinds.workshopId, workshopId), eq(operationKinds.outside, false)))
     .orderBy(asc(operationKinds.name))
-  const templates = await db.select().from(routingTemplates).where(eq(routingTemplates.workshopId, workshopId)).orderBy(asc(routingTemplates.name))
-  const steps = templates.length
+  const ownRoutings = await db.select().from(routings).where(eq(routings.workshopId, workshopId)).orderBy(asc(routings.name))
+  const steps = ownRoutings.length
     ? await db
         .select()
-        .from(templateSteps)
+        .from(routingSteps)
         .where(
           inArray(
-            templateSteps.templateId,
-            templates.map((t) => t.id),
+            routingSteps.routingId,
+            ownRoutings.map((t) => t.id),
           ),
         )
-        .orderBy(asc(templateSteps.seq))
+        .orderBy(asc(routingSteps.seq))
     : []
-  const stepOf = (o: FinishedOperation) => steps.find((s) => s.templateId === o.templateId && s.key === o.key) ?? null
+  const stepOf = (o: FinishedOperation) => steps.find((s) => s.routingId === o.routingId && s.key === o.key) ?? null
 
   const kindFigures = kinds
     .map((k) =>
@@ -344,11 +344,11 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
   })
 
   const suggestions: StepSuggestion[] = []
-  for (const t of templates) {
-    for (const s of steps.filter((x) => x.templateId === t.id && x.leadDays === 0)) {
+  for (const t of ownRoutings) {
+    for (const s of steps.filter((x) => x.routingId === t.id && x.leadDays === 0)) {
       const kind = kinds.find((k) => k.id === s.kindId)
       if (!kind) continue
-      const mine = ops.filter((o) => o.templateId === t.id && o.key === s.key)
+      const mine = ops.filter((o) => o.routingId === t.id && o.key === s.key)
       const points = mine.map((o) => ({ x: o.params.stoneCount, y: standardUnitMinutes(o) }))
       // Actual (at standard speed) against what the routing's whole step model gives for that job bag.
       const ratios = mine.map((o) => (o.actualMinutes * o.speed) / Math.max(0.1, routingStepMinutes(s, t, o.params)))
@@ -400,28 +400,28 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
   const basisOf = learned.steps.find((s) => s.templateId === input.templateId && s.stepKey === input.stepKey)
   const change = await db.transaction(async (tx) => {
     const [step] = await tx
-      .select({ s: templateSteps })
-      .from(templateSteps)
-      .innerJoin(routingTemplates, eq(routingTemplates.id, templateSteps.templateId))
-      .where(and(eq(templateSteps.templateId, input.templateId), eq(templateSteps.key, input.stepKey), eq(routingTemplates.workshopId, actor.workshopId)))
+      .select({ s: routingSteps })
+      .from(routingSteps)
+      .innerJoin(routings, eq(routings.id, routingSteps.routingId))
+      .where(and(eq(routingSteps.routingId, input.templateId), eq(routingSteps.key, input.stepKey), eq(routings.workshopId, actor.workshopId)))
     if (!step) {
       const [t] = await tx
-        .select({ id: routingTemplates.id })
-        .from(routingTemplates)
-        .where(and(eq(routingTemplates.id, input.templateId), eq(routingTemplates.workshopId, actor.workshopId)))
+        .select({ id: routings.id })
+        .from(routings)
+        .where(and(eq(routings.id, input.templateId), eq(routings.workshopId, actor.workshopId)))
       throw t
         ? new AppError({ code: 'validation', message: `stepKey: no such step in this routing`, fields: { stepKey: 'is not a step of this routing' } })
-        : notFound('Routing template')
+        : notFound('Routing')
     }
     if (step.s.leadDays > 0)
       throw new AppError({ code: 'unprocessable', message: 'Outside work has lead days, not bench minutes', fields: { stepKey: 'is outside work' } })
-    const t = await updateVersioned(tx, routingTemplates, 'Routing template', {
+    const t = await updateVersioned(tx, routings, 'Routing', {
       id: input.templateId,
       workshopId: actor.workshopId,
       version: input.templateVersion,
       values: {},
     })
-    await tx.update(templateSteps).set({ baseMinutes: input.baseMinutes, perStoneMinutes: input.perStoneMinutes }).where(eq(templateSteps.id, step.s.id))
+    await tx.update(routingSteps).set({ baseMinutes: input.baseMinutes, perStoneMinutes: input.perStoneMinutes }).where(eq(routingSteps.id, step.s.id))
     const h = basisOf?.history
     const basis = {
       n: h?.n ?? 0,
@@ -431,17 +431,17 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
       spread: h?.spread ? { ...h.spread } : {},
     }
     const [row] = await tx
-      .insert(templateStepChanges)
+      .insert(routingStepChanges)
       .values({
         workshopId: actor.workshopId,
-        templateId: input.templateId,
+        routingId: input.templateId,
         stepKey: input.stepKey,
         kindId: step.s.kindId,
         fromBaseMinutes: step.s.baseMinutes,
         fromPerStoneMinutes: step.s.perStoneMinutes,
         toBaseMinutes: input.baseMinutes,
         toPerStoneMinutes: input.perStoneMinutes,
-        templateVersion: t.version,
+        routingVersion: t.version,
         basis,
         reason: input.reason,
         acceptedBy: actor.userId,
@@ -462,24 +462,24 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
 
 export async function listStepChanges(db: Db, workshopId: number): Promise<StepChange[]> {
   const rows = await db
-    .select({ c: templateStepChanges, templateName: routingTemplates.name, stepName: templateSteps.name, kind: operationKinds.name, by: users.name })
-    .from(templateStepChanges)
-    .innerJoin(routingTemplates, eq(routingTemplates.id, templateStepChanges.templateId))
-    .leftJoin(templateSteps, and(eq(templateSteps.templateId, templateStepChanges.templateId), eq(templateSteps.key, templateStepChanges.stepKey)))
-    .innerJoin(operationKinds, eq(operationKinds.id, templateStepChanges.kindId))
-    .innerJoin(users, eq(users.id, templateStepChanges.acceptedBy))
-    .where(eq(templateStepChanges.workshopId, workshopId))
-    .orderBy(desc(templateStepChanges.id))
-  return rows.map(({ c, templateName, stepName, kind, by }) => ({
+    .select({ c: routingStepChanges, routingName: routings.name, stepName: routingSteps.name, kind: operationKinds.name, by: users.name })
+    .from(routingStepChanges)
+    .innerJoin(routings, eq(routings.id, routingStepChanges.routingId))
+    .leftJoin(routingSteps, and(eq(routingSteps.routingId, routingStepChanges.routingId), eq(routingSteps.key, routingStepChanges.stepKey)))
+    .innerJoin(operationKinds, eq(operationKinds.id, routingStepChanges.kindId))
+    .innerJoin(users, eq(users.id, routingStepChanges.acceptedBy))
+    .where(eq(routingStepChanges.workshopId, workshopId))
+    .orderBy(desc(routingStepChanges.id))
+  return rows.map(({ c, routingName, stepName, kind, by }) => ({
     id: c.id,
-    templateId: c.templateId,
-    templateName,
+    templateId: c.routingId,
+    templateName: routingName,
     stepKey: c.stepKey,
     stepName: stepName ?? c.stepKey,
     kind,
     from: { baseMinutes: c.fromBaseMinutes, perStoneMinutes: c.fromPerStoneMinutes },
     to: { baseMinutes: c.toBaseMinutes, perStoneMinutes: c.toPerStoneMinutes },
-    templateVersion: c.templateVersion,
+    templateVersion: c.routingVersion,
     basis: c.basis,
     reason: c.reason,
     acceptedBy: by,

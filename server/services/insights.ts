@@ -12,18 +12,7 @@ import type {
   ScatterPoint,
 } from '../../shared/schemas/insights'
 import type { Db } from '../db/client'
-import {
-  customers,
-  jobBags,
-  operationCosts,
-  operationKinds,
-  operations,
-  orders,
-  routingTemplates,
-  templateStepCosts,
-  templateSteps,
-  workshops,
-} from '../db/schema/index'
+import { customers, jobBags, operationCosts, operationKinds, operations, orders, routings, routingStepCosts, routingSteps, workshops } from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
@@ -58,7 +47,7 @@ export function comparisonRow(key: string, label: string, ops: readonly Pick<Fin
 const groupKey: Record<Grouping, (o: FinishedOperation) => { key: string; label: string }> = {
   kind: (o) => ({ key: String(o.kindId), label: o.kindName }),
   person: (o) => ({ key: String(o.personId), label: o.personName }),
-  template: (o) => ({ key: String(o.templateId ?? 0), label: o.templateName ?? 'No routing' }),
+  template: (o) => ({ key: String(o.routingId ?? 0), label: o.routingName ?? 'No routing' }),
   order: (o) => ({ key: String(o.orderId), label: `${o.orderNumber} ${o.orderTitle}` }),
   month: (o) => ({ key: o.month, label: o.month }),
 }
@@ -185,7 +174,7 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
     const day = finishedOn(ops)
     if (filter.from && day < filter.from) return false
     if (filter.to && day > filter.to) return false
-    if (filter.templateId && !ops.some((r) => r.bag.templateId === filter.templateId)) return false
+    if (filter.templateId && !ops.some((r) => r.bag.routingId === filter.templateId)) return false
     return true
   })
   const costed = await costOrders(
@@ -286,38 +275,38 @@ function totalCaveat(missing: Missing[], orders: number): string {
 export async function listStepCosts(db: Db, workshopId: number) {
   const rows = await db
     .select({
-      templateId: routingTemplates.id,
-      templateName: routingTemplates.name,
-      stepKey: templateSteps.key,
-      stepName: templateSteps.name,
-      leadDays: templateSteps.leadDays,
-      outsideCostMinor: templateStepCosts.outsideCostMinor,
+      templateId: routings.id,
+      templateName: routings.name,
+      stepKey: routingSteps.key,
+      stepName: routingSteps.name,
+      leadDays: routingSteps.leadDays,
+      outsideCostMinor: routingStepCosts.outsideCostMinor,
       currency: workshops.currency,
     })
-    .from(templateSteps)
-    .innerJoin(routingTemplates, eq(routingTemplates.id, templateSteps.templateId))
-    .innerJoin(workshops, eq(workshops.id, routingTemplates.workshopId))
-    .innerJoin(operationKinds, eq(operationKinds.id, templateSteps.kindId))
-    .leftJoin(templateStepCosts, and(eq(templateStepCosts.templateId, templateSteps.templateId), eq(templateStepCosts.stepKey, templateSteps.key)))
-    .where(and(eq(routingTemplates.workshopId, workshopId), sql`(${templateSteps.leadDays} > 0 or ${operationKinds.outside})`))
-    .orderBy(asc(routingTemplates.name), asc(templateSteps.seq))
+    .from(routingSteps)
+    .innerJoin(routings, eq(routings.id, routingSteps.routingId))
+    .innerJoin(workshops, eq(workshops.id, routings.workshopId))
+    .innerJoin(operationKinds, eq(operationKinds.id, routingSteps.kindId))
+    .leftJoin(routingStepCosts, and(eq(routingStepCosts.routingId, routingSteps.routingId), eq(routingStepCosts.stepKey, routingSteps.key)))
+    .where(and(eq(routings.workshopId, workshopId), sql`(${routingSteps.leadDays} > 0 or ${operationKinds.outside})`))
+    .orderBy(asc(routings.name), asc(routingSteps.seq))
   return rows.map((r) => ({ ...r, outsideCostMinor: r.outsideCostMinor ?? null }))
 }
 
-/** The owner sets the expected outside cost (per unit, integer minor units) of a template step. */
-export async function setStepCost({ db }: Deps, actor: Actor, templateId: number, stepKey: string, outsideCostMinor: number | null) {
+/** The owner sets the expected outside cost (per unit, integer minor units) of a routing step. */
+export async function setStepCost({ db }: Deps, actor: Actor, routingId: number, stepKey: string, outsideCostMinor: number | null) {
   return db.transaction(async (tx) => {
     const [t] = await tx
-      .select({ id: routingTemplates.id })
-      .from(routingTemplates)
-      .where(and(eq(routingTemplates.id, templateId), eq(routingTemplates.workshopId, actor.workshopId)))
-    if (!t) throw notFound('Routing template')
+      .select({ id: routings.id })
+      .from(routings)
+      .where(and(eq(routings.id, routingId), eq(routings.workshopId, actor.workshopId)))
+    if (!t) throw notFound('Routing')
     await tx
-      .insert(templateStepCosts)
-      .values({ templateId, stepKey, outsideCostMinor })
-      .onConflictDoUpdate({ target: [templateStepCosts.templateId, templateStepCosts.stepKey], set: { outsideCostMinor, updatedAt: new Date() } })
-    await audit(tx, actor, 'set-outside-cost', 'routing-template', templateId, { stepKey, outsideCostMinor })
-    return { templateId, stepKey, outsideCostMinor }
+      .insert(routingStepCosts)
+      .values({ routingId, stepKey, outsideCostMinor })
+      .onConflictDoUpdate({ target: [routingStepCosts.routingId, routingStepCosts.stepKey], set: { outsideCostMinor, updatedAt: new Date() } })
+    await audit(tx, actor, 'set-outside-cost', 'routing-template', routingId, { stepKey, outsideCostMinor })
+    return { templateId: routingId, stepKey, outsideCostMinor }
   })
 }
 

@@ -4,7 +4,7 @@ import type { ListQuery, Page } from '../../shared/schemas/common'
 import type { OrderInput, OrderSummary, OrderUpdate } from '../../shared/schemas/order'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { Db, Trx } from '../db/client'
-import { customers, jobBags, operations, orders, templateSteps, routingTemplates, workshops } from '../db/schema/index'
+import { customers, jobBags, operations, orders, routingSteps, routings, workshops } from '../db/schema/index'
 import { invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
@@ -77,7 +77,7 @@ export async function getOrder(db: Db, workshopId: number, id: number) {
     currency: w?.currency ?? 'GBP',
     customerName: c?.name ?? '',
     customerReference: c?.reference ?? '',
-    jobBags: bags.map((b) => ({ ...b, operations: ops.filter((op) => op.jobBagId === b.id) })),
+    jobBags: bags.map(({ routingId, ...b }) => ({ ...b, templateId: routingId, operations: ops.filter((op) => op.jobBagId === b.id) })),
   }
 }
 
@@ -85,13 +85,13 @@ export async function getOrder(db: Db, workshopId: number, id: number) {
 export async function addJobBag(tx: Trx, workshopId: number, orderId: number, orderNumber: string, index: number, piece: OrderInput['pieces'][number]) {
   const [t] = await tx
     .select()
-    .from(routingTemplates)
-    .where(and(eq(routingTemplates.id, piece.templateId), eq(routingTemplates.workshopId, workshopId)))
-  if (!t) throw invalid(`pieces.${index}.templateId`, 'is not a routing template of this workshop')
-  const steps = await tx.select().from(templateSteps).where(eq(templateSteps.templateId, t.id)).orderBy(asc(templateSteps.seq))
+    .from(routings)
+    .where(and(eq(routings.id, piece.templateId), eq(routings.workshopId, workshopId)))
+  if (!t) throw invalid(`pieces.${index}.templateId`, 'is not a routing of this workshop')
+  const steps = await tx.select().from(routingSteps).where(eq(routingSteps.routingId, t.id)).orderBy(asc(routingSteps.seq))
   const [bag] = await tx
     .insert(jobBags)
-    .values({ workshopId, orderId, number: `${orderNumber}-${index + 1}`, piece: piece.piece, templateId: t.id, params: piece.params })
+    .values({ workshopId, orderId, number: `${orderNumber}-${index + 1}`, piece: piece.piece, routingId: t.id, params: piece.params })
     .returning()
   await tx.insert(operations).values(
     steps.map((s) => ({

@@ -121,10 +121,10 @@ async function prospectiveJob(
 ) {
   const [t] = await deps.db
     .select()
-    .from(s.routingTemplates)
-    .where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, workshopId)))
-  if (!t) throw invalid('templateId', 'is not a routing template of this workshop')
-  const steps = await deps.db.select().from(s.templateSteps).where(eq(s.templateSteps.templateId, t.id)).orderBy(asc(s.templateSteps.seq))
+    .from(s.routings)
+    .where(and(eq(s.routings.id, input.templateId), eq(s.routings.workshopId, workshopId)))
+  if (!t) throw invalid('templateId', 'is not a routing of this workshop')
+  const steps = await deps.db.select().from(s.routingSteps).where(eq(s.routingSteps.routingId, t.id)).orderBy(asc(s.routingSteps.seq))
   if (!steps.length) throw invalid('templateId', 'has no steps')
   const idOf = (key: string) => `${PROSPECTIVE_JOB}:${key}`
   const keys = new Set(steps.map((x) => x.key))
@@ -297,10 +297,10 @@ export function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: num
  */
 export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcceptInput, now = new Date()) {
   const [t] = await deps.db
-    .select({ name: s.routingTemplates.name })
-    .from(s.routingTemplates)
-    .where(and(eq(s.routingTemplates.id, input.templateId), eq(s.routingTemplates.workshopId, actor.workshopId)))
-  if (!t) throw invalid('templateId', 'is not a routing template of this workshop')
+    .select({ name: s.routings.name })
+    .from(s.routings)
+    .where(and(eq(s.routings.id, input.templateId), eq(s.routings.workshopId, actor.workshopId)))
+  if (!t) throw invalid('templateId', 'is not a routing of this workshop')
   if (input.dueDate && input.dueDate < input.promisedDate) throw invalid('dueDate', 'must not be before the promised date')
   // Fresh data, not the promise cache: the booking must be against the plan as it is now.
   const data = await loadPlanningData(deps.db, actor.workshopId, now)

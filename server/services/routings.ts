@@ -1,27 +1,27 @@
-// Routing templates and their steps (a small graph: steps may branch and join).
+// Routings and their steps (a small graph: steps may branch and join).
 import { and, asc, eq, inArray } from 'drizzle-orm'
-import type { Template, TemplateInput } from '../../shared/schemas/routing'
-import { templateWarnings } from '../../shared/domain/template-warnings'
+import type { Routing, RoutingInput } from '../../shared/schemas/routing'
+import { routingWarnings } from '../../shared/domain/routing-warnings'
 import type { Db, Trx } from '../db/client'
-import { operationKinds, routingTemplates, templateSteps } from '../db/schema/index'
+import { operationKinds, routings, routingSteps } from '../db/schema/index'
 import { AppError, invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { isUniqueViolation, updateVersioned } from './versioned'
 
-export async function listTemplates(db: Db, workshopId: number): Promise<Template[]> {
-  const rows = await db.select().from(routingTemplates).where(eq(routingTemplates.workshopId, workshopId)).orderBy(asc(routingTemplates.name))
+export async function listRoutings(db: Db, workshopId: number): Promise<Routing[]> {
+  const rows = await db.select().from(routings).where(eq(routings.workshopId, workshopId)).orderBy(asc(routings.name))
   if (!rows.length) return []
   const steps = await db
     .select()
-    .from(templateSteps)
+    .from(routingSteps)
     .where(
       inArray(
-        templateSteps.templateId,
+        routingSteps.routingId,
         rows.map((r) => r.id),
       ),
     )
-    .orderBy(asc(templateSteps.seq))
+    .orderBy(asc(routingSteps.seq))
   const kinds = await db
     .select({ id: operationKinds.id, outside: operationKinds.outside })
     .from(operationKinds)
@@ -29,7 +29,7 @@ export async function listTemplates(db: Db, workshopId: number): Promise<Templat
   const outside = new Set(kinds.filter((k) => k.outside).map((k) => k.id))
   return rows.map((t) => {
     const own = steps
-      .filter((s) => s.templateId === t.id)
+      .filter((s) => s.routingId === t.id)
       .map((s) => ({
         id: s.id,
         key: s.key,
@@ -53,18 +53,18 @@ export async function listTemplates(db: Db, workshopId: number): Promise<Templat
       learningRate: t.learningRate,
       version: t.version,
       steps: own,
-      warnings: templateWarnings(own, (k) => outside.has(k)),
+      warnings: routingWarnings(own, (k) => outside.has(k)),
     }
   })
 }
 
-export async function getTemplate(db: Db, workshopId: number, id: number) {
-  const t = (await listTemplates(db, workshopId)).find((x) => x.id === id)
-  if (!t) throw notFound('Routing template')
+export async function getRouting(db: Db, workshopId: number, id: number) {
+  const t = (await listRoutings(db, workshopId)).find((x) => x.id === id)
+  if (!t) throw notFound('Routing')
   return t
 }
 
-async function writeSteps(tx: Trx, workshopId: number, templateId: number, steps: TemplateInput['steps']) {
+async function writeSteps(tx: Trx, workshopId: number, routingId: number, steps: RoutingInput['steps']) {
   const kindIds = [...new Set(steps.map((s) => s.kindId))]
   const found = await tx
     .select({ id: operationKinds.id })
@@ -74,18 +74,18 @@ async function writeSteps(tx: Trx, workshopId: number, templateId: number, steps
   steps.forEach((s, i) => {
     if (!ok.has(s.kindId)) throw invalid(`steps.${i}.kindId`, 'is not an operation kind of this workshop')
   })
-  await tx.delete(templateSteps).where(eq(templateSteps.templateId, templateId))
-  await tx.insert(templateSteps).values(steps.map((s, seq) => ({ templateId, seq, ...s })))
+  await tx.delete(routingSteps).where(eq(routingSteps.routingId, routingId))
+  await tx.insert(routingSteps).values(steps.map((s, seq) => ({ routingId, seq, ...s })))
 }
 
 const codeTaken = (e: unknown) =>
-  isUniqueViolation(e) ? new AppError({ code: 'conflict', message: 'That code is used already', fields: { code: 'is used by another template' } }) : e
+  isUniqueViolation(e) ? new AppError({ code: 'conflict', message: 'That code is used already', fields: { code: 'is used by another routing' } }) : e
 
-export async function createTemplate({ db, realtime }: Deps, actor: Actor, input: TemplateInput) {
+export async function createRouting({ db, realtime }: Deps, actor: Actor, input: RoutingInput) {
   const id = await db
     .transaction(async (tx) => {
       const [t] = await tx
-        .insert(routingTemplates)
+        .insert(routings)
         .values({ workshopId: actor.workshopId, code: input.code, name: input.name, description: input.description, learningRate: input.learningRate })
         .returning()
       await writeSteps(tx, actor.workshopId, t!.id, input.steps)
@@ -96,14 +96,14 @@ export async function createTemplate({ db, realtime }: Deps, actor: Actor, input
       throw codeTaken(e)
     })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing', id })
-  return getTemplate(db, actor.workshopId, id)
+  return getRouting(db, actor.workshopId, id)
 }
 
-export async function updateTemplate({ db, realtime }: Deps, actor: Actor, id: number, input: TemplateInput & { version: number }) {
+export async function updateRouting({ db, realtime }: Deps, actor: Actor, id: number, input: RoutingInput & { version: number }) {
   const { version, steps, ...values } = input
   await db
     .transaction(async (tx) => {
-      await updateVersioned(tx, routingTemplates, 'Routing template', { id, workshopId: actor.workshopId, version, values })
+      await updateVersioned(tx, routings, 'Routing', { id, workshopId: actor.workshopId, version, values })
       await writeSteps(tx, actor.workshopId, id, steps)
       await audit(tx, actor, 'update', 'routing-template', id, { code: input.code, steps: steps.length, learningRate: input.learningRate })
     })
@@ -111,5 +111,5 @@ export async function updateTemplate({ db, realtime }: Deps, actor: Actor, id: n
       throw codeTaken(e)
     })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing', id })
-  return getTemplate(db, actor.workshopId, id)
+  return getRouting(db, actor.workshopId, id)
 }

@@ -38,9 +38,9 @@ import {
   operations,
   orders,
   people,
-  routingTemplates,
+  routings,
   stoneMovements,
-  templateSteps,
+  routingSteps,
   users,
 } from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
@@ -252,10 +252,10 @@ export async function requireCustomerStonesBack(tx: Tx, workshopId: number, orde
  */
 export async function recomputeStoneSteps(tx: Tx, actor: Actor, jobBagId: number, why: string): Promise<Changed['operations']> {
   const [bag] = await tx.select().from(jobBags).where(eq(jobBags.id, jobBagId))
-  if (!bag?.templateId) return []
-  const [t] = await tx.select().from(routingTemplates).where(eq(routingTemplates.id, bag.templateId))
+  if (!bag?.routingId) return []
+  const [t] = await tx.select().from(routings).where(eq(routings.id, bag.routingId))
   if (!t) return []
-  const steps = (await tx.select().from(templateSteps).where(eq(templateSteps.templateId, t.id))).filter((s) => s.perStoneMinutes > 0 && s.leadDays === 0)
+  const steps = (await tx.select().from(routingSteps).where(eq(routingSteps.routingId, t.id))).filter((s) => s.perStoneMinutes > 0 && s.leadDays === 0)
   if (!steps.length) return []
   const lines = await tx
     .select({ sizeMm: jobBagStones.sizeMm, count: jobBagStones.count, role: jobBagStones.role })

@@ -7,7 +7,7 @@ export interface WarningStep {
   after: string[]
 }
 
-export type TemplateWarning =
+export type RoutingWarning =
   /** A step that follows nothing, listed after outside work it never meets: the planner may start it while that work is still away. */
   | { code: 'starts-while-away'; step: string; outside: string[]; message: string }
   /** Steps that no other step follows or comes after: a separate routing inside this one. */
@@ -21,7 +21,7 @@ const list = (xs: string[]) => (xs.length < 2 ? xs.join('') : `${xs.slice(0, -1)
  * Branches that start side by side on purpose and meet at a later step (a shank forged while its head is cast, then soldered together) are not warned about.
  * Keys in `after` that name no step are left to validation.
  */
-export function templateWarnings(steps: WarningStep[], isOutside: (kindId: number) => boolean): TemplateWarning[] {
+export function routingWarnings(steps: WarningStep[], isOutside: (kindId: number) => boolean): RoutingWarning[] {
   if (steps.length < 2) return []
   const keys = new Set(steps.map((s) => s.key))
   const preds = new Map(steps.map((s) => [s.key, s.after.filter((a) => a !== s.key && keys.has(a))]))
@@ -44,7 +44,7 @@ export function templateWarnings(steps: WarningStep[], isOutside: (kindId: numbe
     return false
   }
 
-  const warnings: TemplateWarning[] = []
+  const warnings: RoutingWarning[] = []
   steps.forEach((s, i) => {
     if (preds.get(s.key)!.length) return
     const away = steps.slice(0, i).filter((o) => isOutside(o.kindId) && !meets(o.key, s.key))

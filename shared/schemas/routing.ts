@@ -1,7 +1,7 @@
-// Routing templates: the usual steps of a kind of piece, with estimate inputs and a step graph.
+// Routings: the usual steps of a kind of piece, with estimate inputs and a step graph.
 import { z } from 'zod'
 import { code, id, name, notes, version, wireInt } from './common'
-import type { TemplateWarning } from '../domain/template-warnings'
+import type { RoutingWarning } from '../domain/routing-warnings'
 
 const bandFactor = z.number({ error: 'must be a number' }).min(0.2, 'must be at least 0.2').max(5, 'must be at most 5')
 
@@ -39,7 +39,7 @@ export const stepInput = z.object({
   leadDays: z.number().int().min(0, 'must not be negative').max(60, 'must be at most 60').default(0),
   after: z.array(z.string()).max(20).default([]),
 })
-export const templateInput = z
+export const routingInput = z
   .object({
     code,
     name,
@@ -83,13 +83,13 @@ export const templateInput = z
     }
     if (seen < t.steps.length) ctx.addIssue({ code: 'custom', path: ['steps'], message: 'the steps follow each other in a circle' })
   })
-export const templateUpdate = z.object({ version }).and(templateInput)
+export const routingUpdate = z.object({ version }).and(routingInput)
 export type StepInput = z.infer<typeof stepInput>
-export type TemplateInput = z.infer<typeof templateInput>
+export type RoutingInput = z.infer<typeof routingInput>
 
 // ---- Answers ----
 
-export const templateStep = z.object({
+export const routingStep = z.object({
   id: wireInt,
   key: z.string(),
   kindId: wireInt,
@@ -104,21 +104,21 @@ export const templateStep = z.object({
   leadDays: z.number(),
   after: z.array(z.string()),
 })
-/** What the step graph allows that is probably not meant (shared/domain/template-warnings.ts); saving is still allowed. */
-export const templateWarning = z.discriminatedUnion('code', [
+/** What the step graph allows that is probably not meant (shared/domain/routing-warnings.ts); saving is still allowed. */
+export const routingWarning = z.discriminatedUnion('code', [
   z.object({ code: z.literal('starts-while-away'), step: z.string(), outside: z.array(z.string()), message: z.string() }),
   z.object({ code: z.literal('not-connected'), steps: z.array(z.string()), message: z.string() }),
-]) satisfies z.ZodType<TemplateWarning>
-export const template = z.object({
+]) satisfies z.ZodType<RoutingWarning>
+export const routing = z.object({
   id: wireInt,
   code: z.string(),
   name: z.string(),
   description: z.string(),
   learningRate: z.number().nullable(),
-  steps: z.array(templateStep),
+  steps: z.array(routingStep),
   version: wireInt,
-  warnings: z.array(templateWarning),
+  warnings: z.array(routingWarning),
 })
-export type TemplateStep = z.infer<typeof templateStep>
-export type Template = z.infer<typeof template>
-export type { TemplateWarning } from '../domain/template-warnings'
+export type RoutingStep = z.infer<typeof routingStep>
+export type Routing = z.infer<typeof routing>
+export type { RoutingWarning } from '../domain/routing-warnings'

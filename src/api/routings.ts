@@ -1,11 +1,11 @@
-// Routing templates API: templates with their step graph.
+// Routings API: routings with their step graph.
 import { z } from 'zod'
-import { template, type TemplateInput } from '@shared/schemas/routing'
+import { routing, type RoutingInput } from '@shared/schemas/routing'
 import { api } from './client'
 
-const templates = z.array(template)
+const routings = z.array(routing)
 
-export const listTemplates = () => api.get('/routings', { schema: templates })
-export const getTemplate = (id: number) => api.get(`/routings/${id}`, { schema: template })
-export const createTemplate = (body: TemplateInput) => api.post('/routings', body, { schema: template })
-export const updateTemplate = (id: number, body: TemplateInput & { version: number }) => api.put(`/routings/${id}`, body, { schema: template })
+export const listRoutings = () => api.get('/routings', { schema: routings })
+export const getRouting = (id: number) => api.get(`/routings/${id}`, { schema: routing })
+export const createRouting = (body: RoutingInput) => api.post('/routings', body, { schema: routing })
+export const updateRouting = (id: number, body: RoutingInput & { version: number }) => api.put(`/routings/${id}`, body, { schema: routing })

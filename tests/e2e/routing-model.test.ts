@@ -10,10 +10,10 @@ const e2e = useE2E()
 /** A routing's step as stored, with the routing's learning rate. */
 const stepOf = (routing: string, key: string) =>
   e2e.db.db
-    .select({ learningRate: s.routingTemplates.learningRate, perMmMinutes: s.templateSteps.perMmMinutes, roleFactors: s.templateSteps.roleFactors })
-    .from(s.routingTemplates)
-    .innerJoin(s.templateSteps, eq(s.templateSteps.templateId, s.routingTemplates.id))
-    .where(and(eq(s.routingTemplates.name, routing), eq(s.templateSteps.key, key)))
+    .select({ learningRate: s.routings.learningRate, perMmMinutes: s.routingSteps.perMmMinutes, roleFactors: s.routingSteps.roleFactors })
+    .from(s.routings)
+    .innerJoin(s.routingSteps, eq(s.routingSteps.routingId, s.routings.id))
+    .where(and(eq(s.routings.name, routing), eq(s.routingSteps.key, key)))
 let page: Page
 beforeAll(async () => {
   page = await signInPage(await e2e.newContext(), 'owner')
@@ -92,7 +92,7 @@ describe('the step model in the routing editor', () => {
     await page.locator('[data-test=routing-save]').click()
     await page.locator('.el-drawer').waitFor({ state: 'hidden' })
     await row(page, CUFF).locator('[data-test=routing-learning]').waitFor({ state: 'detached' })
-    const [stored] = await e2e.db.db.select({ learningRate: s.routingTemplates.learningRate }).from(s.routingTemplates).where(eq(s.routingTemplates.name, CUFF))
+    const [stored] = await e2e.db.db.select({ learningRate: s.routings.learningRate }).from(s.routings).where(eq(s.routings.name, CUFF))
     expect(stored!.learningRate).toBeNull()
   })
 

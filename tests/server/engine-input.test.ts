@@ -153,8 +153,8 @@ describe('routings in a circle', () => {
     expectFieldError(self, 'steps.0.after', /itself/)
     const [n] = await t.db
       .select({ n: count() })
-      .from(s.routingTemplates)
-      .where(inArray(s.routingTemplates.code, ['round-and-round', 'own-tail']))
+      .from(s.routings)
+      .where(inArray(s.routings.code, ['round-and-round', 'own-tail']))
     expect(n!.n).toBe(0)
   })
 

@@ -167,7 +167,7 @@ describe('refused routing input', () => {
     expectFieldError(await manager.post('/api/routings', step({ sizeBandFactors: { melee: 0.1 } })), 'steps.0.sizeBandFactors.melee', /at least 0\.2/)
     expectFieldError(await manager.post('/api/routings', step({ sizeBandFactors: { huge: 2 } })), 'steps.0.sizeBandFactors', /melee, small and large/)
     expectFieldError(await manager.post('/api/routings', step({ perMmMinutes: -0.5 })), 'steps.0.perMmMinutes', /negative/)
-    const [n] = await t.db.select({ n: count() }).from(s.routingTemplates).where(eq(s.routingTemplates.code, 'bad-fixture'))
+    const [n] = await t.db.select({ n: count() }).from(s.routings).where(eq(s.routings.code, 'bad-fixture'))
     expect(n!.n).toBe(0)
   })
 })

@@ -46,9 +46,9 @@ beforeAll(async () => {
   const [bag] = await t.db
     .select({ id: s.jobBags.id })
     .from(s.jobBags)
-    .innerJoin(s.routingTemplates, eq(s.routingTemplates.id, s.jobBags.templateId))
+    .innerJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
     .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
-    .where(and(eq(s.routingTemplates.code, 'ring-resize'), eq(s.orders.status, 'open')))
+    .where(and(eq(s.routings.code, 'ring-resize'), eq(s.orders.status, 'open')))
     .orderBy(asc(s.jobBags.id))
     .limit(1)
   bagId = bag!.id

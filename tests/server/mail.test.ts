@@ -6,7 +6,7 @@ import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { and, asc, desc, eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { bookLastStepLate, firstCustomerId, templateId as firstTemplateId } from '../setup/fixtures'
+import { bookLastStepLate, firstCustomerId, templateId as firstRoutingId } from '../setup/fixtures'
 import { expectFieldError } from './helpers'
 
 let t: TestApp
@@ -50,7 +50,7 @@ describe('mail', () => {
     const r = await sales.post('/api/promise/accept', {
       customerId: c.id,
       title: 'Signet ring',
-      templateId: await firstTemplateId(t.db),
+      templateId: await firstRoutingId(t.db),
       promisedDate: '2031-03-14',
       priority: 3,
       priceQuotedMinor: 30_000,
@@ -85,7 +85,7 @@ describe('mail', () => {
     const r = await sales.post('/api/promise/accept', {
       customerId: await firstCustomerId(t.db, 1),
       title: 'Euro ring',
-      templateId: await firstTemplateId(t.db),
+      templateId: await firstRoutingId(t.db),
       promisedDate: '2031-03-14',
       priority: 3,
       priceQuotedMinor: 199_900,

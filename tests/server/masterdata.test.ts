@@ -333,7 +333,7 @@ describe('routing templates', () => {
     expectFieldError(await post([step('a', [], { kindId: 999999 })]), 'steps.0.kindId', /not an operation kind/)
     expectFieldError(await post([step('a', [], { baseMinutes: -5 })]), 'steps.0.baseMinutes', /negative/)
     expectFieldError(await post([step('A b')]), 'steps.0.key', /lower-case/)
-    expect((await t.db.select({ n: count() }).from(s.routingTemplates).where(eq(s.routingTemplates.code, 'bad-graph')))[0]!.n).toBe(0)
+    expect((await t.db.select({ n: count() }).from(s.routings).where(eq(s.routings.code, 'bad-graph')))[0]!.n).toBe(0)
   })
 
   it('when the code is taken or the template does not exist, then 409 or 404', async () => {

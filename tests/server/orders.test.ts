@@ -180,12 +180,12 @@ describe('taking an order', () => {
     expectFieldError(
       await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: 999999, piece: 'x' }] }),
       'pieces.0.templateId',
-      /not a routing template/,
+      /is not a routing of this workshop/,
     )
     expectFieldError(
       await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [good, { templateId: 999999, piece: 'x' }] }),
       'pieces.1.templateId',
-      /not a routing template/,
+      /is not a routing of this workshop/,
     )
     const other = await secondWorkshop(t, 'orders')
     const kind = (await other.agent.post('/api/operation-kinds', { code: 'filing', name: 'Filing' })).body

@@ -7,7 +7,7 @@ import { loadPlanningData } from '../../server/planning/problem'
 import { and, asc, count, eq, gt, isNotNull } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { bookLastStepLate, firstCustomerId, openOrder, openStepIds, planStep, templateId as firstTemplateId, unplanSteps } from '../setup/fixtures'
+import { bookLastStepLate, firstCustomerId, openOrder, openStepIds, planStep, templateId as firstRoutingId, unplanSteps } from '../setup/fixtures'
 import { auditRows, expectFieldError } from './helpers'
 import { kindSpreads, MIN_HISTORY } from '../../server/services/promise-range'
 import { readLivePlan } from '../../server/planning/live-plan'
@@ -25,7 +25,7 @@ beforeAll(async () => {
   t = await createTestApp({ SMTP_URL: fake.url })
   fake.useDb(t.db)
   sales = await signedIn(t.app, 'sales')
-  templateId = await firstTemplateId(t.db)
+  templateId = await firstRoutingId(t.db)
 })
 afterAll(async () => {
   await t?.close()
@@ -62,10 +62,10 @@ describe('promise check', () => {
     const now = new Date()
     const data = await loadPlanningData(t.db, 1, now)
     const steps = await t.db
-      .select({ kindId: s.templateSteps.kindId, requiredLevel: s.templateSteps.requiredLevel, leadDays: s.templateSteps.leadDays })
-      .from(s.templateSteps)
-      .where(eq(s.templateSteps.templateId, templateId))
-      .orderBy(asc(s.templateSteps.seq))
+      .select({ kindId: s.routingSteps.kindId, requiredLevel: s.routingSteps.requiredLevel, leadDays: s.routingSteps.leadDays })
+      .from(s.routingSteps)
+      .where(eq(s.routingSteps.routingId, templateId))
+      .orderBy(asc(s.routingSteps.seq))
     const first = steps.find((x) => x.leadDays === 0)!
     const able = data.meta.skills.filter((k) => k.kindId === first.kindId && k.level >= first.requiredLevel && data.meta.people.has(String(k.personId)))
     const benchIds = data.meta.capabilities.filter((c) => c.kindId === first.kindId && data.meta.benches.has(String(c.benchId))).map((c) => String(c.benchId))
@@ -330,10 +330,10 @@ describe('accepting a promise', () => {
     const data = await loadPlanningData(t.db, 1, new Date())
     const live = planFromAssignments(data, (await readLivePlan(t.db, 1)).assignments)
     const steps = await t.db
-      .select({ key: s.templateSteps.key, kindId: s.templateSteps.kindId, leadDays: s.templateSteps.leadDays })
-      .from(s.templateSteps)
-      .where(eq(s.templateSteps.templateId, templateId))
-      .orderBy(asc(s.templateSteps.seq))
+      .select({ key: s.routingSteps.key, kindId: s.routingSteps.kindId, leadDays: s.routingSteps.leadDays })
+      .from(s.routingSteps)
+      .where(eq(s.routingSteps.routingId, templateId))
+      .orderBy(asc(s.routingSteps.seq))
     // A one-step prospective job on the first bench step's kind, placed in the gaps.
     const step = steps.find((x) => x.leadDays === 0)!
     const opts = operationOptions(data.meta, step.kindId, 1, () => 60)
@@ -353,7 +353,7 @@ describe('accepting a promise', () => {
       .select({ orderId: s.jobBags.orderId })
       .from(s.jobBags)
       .innerJoin(o, eq(o.jobBagId, s.jobBags.id))
-      .where(and(eq(o.key, step.key), eq(s.jobBags.templateId, templateId)))
+      .where(and(eq(o.key, step.key), eq(s.jobBags.routingId, templateId)))
       .limit(1)
     const actor = { userId: 1, workshopId: 1, role: 'sales' } as never
     const result = await t.db.transaction((tx) => bookSlot(tx, actor, data, order!.orderId, placed))

@@ -1,7 +1,7 @@
 // Routing warnings in the API: every seeded routing passes its own check, and a routing that lets work start while a casting is away comes back with warnings.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { templateWarnings } from '../../shared/domain/template-warnings'
-import type { Template } from '../../shared/schemas/routing'
+import { routingWarnings } from '../../shared/domain/routing-warnings'
+import type { Routing } from '../../shared/schemas/routing'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 
 let t: TestApp
@@ -18,7 +18,7 @@ afterAll(async () => {
 
 describe('routing warnings', () => {
   it('when the demo routings are read, then none has a warning and in each every step is linked to the others', async () => {
-    const all = (await manager.get('/api/routings')).body as Template[]
+    const all = (await manager.get('/api/routings')).body as Routing[]
     expect(all.length).toBeGreaterThanOrEqual(10)
     const outside = new Set(
       Object.values(kinds)
@@ -29,7 +29,7 @@ describe('routing warnings', () => {
     for (const r of all) {
       expect(r.warnings, r.code).toEqual([])
       expect(
-        templateWarnings(r.steps, (k) => outside.has(k)),
+        routingWarnings(r.steps, (k) => outside.has(k)),
         r.code,
       ).toEqual([])
       // Said plainly: in a routing of several steps, each step comes after another or has one coming after it.
@@ -39,7 +39,7 @@ describe('routing warnings', () => {
   })
 
   it('when the stud production run is read, then cleaning comes after the casting', async () => {
-    const studs = ((await manager.get('/api/routings')).body as Template[]).find((r) => r.code === 'stud-run')!
+    const studs = ((await manager.get('/api/routings')).body as Routing[]).find((r) => r.code === 'stud-run')!
     expect(studs.steps.find((s) => s.key === 'clean')!.after).toEqual(['cast'])
   })
 

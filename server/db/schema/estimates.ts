@@ -1,8 +1,8 @@
-// Estimating records: learned step figures the owner accepted into routing templates, and outside-work costs for job costing.
+// Estimating records: learned step figures the owner accepted into routings, and outside-work costs for job costing.
 import { index, integer, jsonb, pgTable, primaryKey, real, text } from 'drizzle-orm/pg-core'
 import { createdAt, pk, updatedAt } from './common'
 import { operationKinds } from './resources'
-import { operations, routingTemplates } from './work'
+import { operations, routings } from './work'
 import { users, workshops } from './workshop'
 
 /** What a learned figure rested on when it was accepted: history size, dates, spread, method. */
@@ -14,17 +14,17 @@ export interface EstimateBasis {
   spread: Record<string, number>
 }
 
-/** Each accepted change of a template step's minutes (from learned actual times), with who accepted it and when. */
-export const templateStepChanges = pgTable(
+/** Each accepted change of a routing step's minutes (from learned actual times), with who accepted it and when. */
+export const routingStepChanges = pgTable(
   'routing_step_changes',
   {
     id: pk(),
     workshopId: integer()
       .notNull()
       .references(() => workshops.id, { onDelete: 'cascade' }),
-    templateId: integer('routing_id')
+    routingId: integer()
       .notNull()
-      .references(() => routingTemplates.id, { onDelete: 'cascade' }),
+      .references(() => routings.id, { onDelete: 'cascade' }),
     stepKey: text().notNull(),
     kindId: integer()
       .notNull()
@@ -33,8 +33,8 @@ export const templateStepChanges = pgTable(
     fromPerStoneMinutes: real().notNull(),
     toBaseMinutes: real().notNull(),
     toPerStoneMinutes: real().notNull(),
-    /** Template version after the change. */
-    templateVersion: integer('routing_version').notNull(),
+    /** Routing version after the change. */
+    routingVersion: integer().notNull(),
     basis: jsonb().$type<EstimateBasis>().notNull(),
     reason: text().notNull().default(''),
     acceptedBy: integer()
@@ -42,27 +42,27 @@ export const templateStepChanges = pgTable(
       .references(() => users.id),
     createdAt: createdAt(),
   },
-  (t) => [index().on(t.workshopId, t.templateId)],
+  (t) => [index().on(t.workshopId, t.routingId)],
 )
 
 /**
- * Expected outside-work cost of a template step (caster, assay office), per unit, keyed by step key:
- * template edits rewrite step rows, the key survives.
+ * Expected outside-work cost of a routing step (caster, assay office), per unit, keyed by step key:
+ * routing edits rewrite step rows, the key survives.
  */
-export const templateStepCosts = pgTable(
+export const routingStepCosts = pgTable(
   'routing_step_costs',
   {
-    templateId: integer('routing_id')
+    routingId: integer()
       .notNull()
-      .references(() => routingTemplates.id, { onDelete: 'cascade' }),
+      .references(() => routings.id, { onDelete: 'cascade' }),
     stepKey: text().notNull(),
     outsideCostMinor: integer(),
     updatedAt: updatedAt(),
   },
-  (t) => [primaryKey({ columns: [t.templateId, t.stepKey] })],
+  (t) => [primaryKey({ columns: [t.routingId, t.stepKey] })],
 )
 
-/** The outside cost actually invoiced for one operation (null = not known yet: the template's figure stands in). */
+/** The outside cost actually invoiced for one operation (null = not known yet: the routing's figure stands in). */
 export const operationCosts = pgTable('operation_costs', {
   operationId: integer()
     .primaryKey()

@@ -1,4 +1,4 @@
-// The work itself: customers, orders, routing templates, job bags, operations, time records, plan versions.
+// The work itself: customers, orders, routings, job bags, operations, time records, plan versions.
 import { boolean, date, index, integer, jsonb, pgTable, real, text, uniqueIndex } from 'drizzle-orm/pg-core'
 import type { PieceParams } from '../../../shared/schemas/order'
 import { createdAt, pk, updatedAt, version, instant } from './common'
@@ -23,7 +23,7 @@ export const customers = pgTable(
   (t) => [uniqueIndex().on(t.workshopId, t.reference)],
 )
 
-export const routingTemplates = pgTable(
+export const routings = pgTable(
   'routings',
   {
     id: pk(),
@@ -40,13 +40,13 @@ export const routingTemplates = pgTable(
   (t) => [uniqueIndex().on(t.workshopId, t.code)],
 )
 
-export const templateSteps = pgTable(
+export const routingSteps = pgTable(
   'routing_steps',
   {
     id: pk(),
-    templateId: integer('routing_id')
+    routingId: integer()
       .notNull()
-      .references(() => routingTemplates.id, { onDelete: 'cascade' }),
+      .references(() => routings.id, { onDelete: 'cascade' }),
     seq: integer().notNull(),
     key: text().notNull(),
     kindId: integer()
@@ -66,7 +66,7 @@ export const templateSteps = pgTable(
     leadDays: integer().notNull().default(0),
     after: text().array().notNull().default([]),
   },
-  (t) => [uniqueIndex().on(t.templateId, t.key)],
+  (t) => [uniqueIndex().on(t.routingId, t.key)],
 )
 
 export const orders = pgTable(
@@ -107,7 +107,7 @@ export const jobBags = pgTable(
       .references(() => orders.id, { onDelete: 'cascade' }),
     number: text().notNull(),
     piece: text().notNull(),
-    templateId: integer('routing_id').references(() => routingTemplates.id, { onDelete: 'set null' }),
+    routingId: integer().references(() => routings.id, { onDelete: 'set null' }),
     params: jsonb().$type<PieceParams>().notNull(),
     status: text().notNull().default('waiting'),
     releaseAt: instant(),

@@ -115,7 +115,7 @@ export async function loadIdPools(db: Db): Promise<IdPools> {
   const { people, users, orders, operations, planVersions } = s
   return {
     customers: await ids(db.select({ id: s.customers.id }).from(s.customers).orderBy(asc(s.customers.id)).limit(5)),
-    routings: await ids(db.select({ id: s.routingTemplates.id }).from(s.routingTemplates).orderBy(asc(s.routingTemplates.id)).limit(5)),
+    routings: await ids(db.select({ id: s.routings.id }).from(s.routings).orderBy(asc(s.routings.id)).limit(5)),
     kinds: await ids(db.select({ id: s.operationKinds.id }).from(s.operationKinds).orderBy(asc(s.operationKinds.id)).limit(5)),
     benches: await ids(db.select({ id: s.benches.id }).from(s.benches).orderBy(asc(s.benches.id)).limit(5)),
     // The people and users the fuzzing agents sign in as are left alone: switching one off would end the walk.

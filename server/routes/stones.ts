@@ -1,5 +1,6 @@
 // Stone routes: a piece's stone list (front office and managers edit, everyone reads), counts to and from the setter, corrections, hand-back.
 import {
+  jobBagStones,
   stoneCheckBackInput,
   stoneCorrectionInput,
   stoneLineInput,
@@ -25,6 +26,7 @@ export const stoneRoutes = [
     roles: EVERYONE,
     summary: 'A job bag’s stone list with the counts to and from the setter',
     params: idParam,
+    response: jobBagStones,
     handler: ({ deps, actor, params }) => stones.getStones(deps.db, actor.workshopId, params.id),
   }),
   route({
@@ -35,6 +37,7 @@ export const stoneRoutes = [
     summary: 'Add a line to the stone list (carats estimated for round stones when not entered)',
     params: idParam,
     body: stoneLineInput,
+    response: jobBagStones,
     handler: ({ deps, actor, params, body }) => stones.addLine(deps, actor, params.id, body),
   }),
   route({
@@ -44,6 +47,7 @@ export const stoneRoutes = [
     summary: 'Change a line of the stone list',
     params: idParam,
     body: stoneLineUpdate,
+    response: jobBagStones,
     handler: ({ deps, actor, params, body }) => stones.updateLine(deps, actor, params.id, body),
   }),
   route({
@@ -53,6 +57,7 @@ export const stoneRoutes = [
     summary: 'Remove a line nobody has counted out',
     params: idParam,
     query: stoneLineRemoveQuery,
+    response: jobBagStones,
     handler: ({ deps, actor, params, query }) => stones.removeLine(deps, actor, params.id, query.version),
   }),
   route({
@@ -63,6 +68,7 @@ export const stoneRoutes = [
     summary: 'Count stones out to the setter or back (set, returned, broken, lost)',
     params: idParam,
     body: stoneMovementInput,
+    response: jobBagStones,
     handler: ({ deps, actor, params, body }) => stones.recordCounts(deps, actor, params.id, body),
   }),
   route({
@@ -73,6 +79,7 @@ export const stoneRoutes = [
     summary: 'Correct a count (kept with who and why)',
     params: idParam,
     body: stoneCorrectionInput,
+    response: jobBagStones,
     handler: ({ deps, actor, params, body }) => stones.correctMovement(deps, actor, params.id, body),
   }),
   route({
@@ -83,6 +90,7 @@ export const stoneRoutes = [
     summary: 'Hand the customer’s own stones back at collection',
     params: idParam,
     body: stoneCheckBackInput,
+    response: jobBagStones,
     handler: ({ deps, actor, params, body }) => stones.checkBack(deps, actor, params.id, body),
   }),
 ]

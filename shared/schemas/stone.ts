@@ -1,7 +1,7 @@
 // A piece's stone list, stones counted out to the setter and back, corrections, and a customer's own stones handed back.
 import { z } from 'zod'
-import { STONE_COUNT_KINDS, STONE_ROLES, type Reconciliation, type StoneMovementKind, type StoneRole } from '../domain/stones'
-import { id, version } from './common'
+import { STONE_COUNT_KINDS, STONE_MOVEMENT_KINDS, STONE_ROLES, type Reconciliation } from '../domain/stones'
+import { id, version, wireInt } from './common'
 
 const text = (max: number) => z.string().trim().max(max, `must be at most ${max} characters`)
 const reason = z.string({ error: 'is required (say why)' }).trim().min(3, 'say why (at least 3 characters)').max(500, 'must be at most 500 characters')
@@ -81,48 +81,67 @@ export type StoneMovementInput = z.infer<typeof stoneMovementInput>
 export type StoneCorrectionInput = z.infer<typeof stoneCorrectionInput>
 export type StoneCheckBackInput = z.infer<typeof stoneCheckBackInput>
 
-export interface StoneMovementOut {
-  id: number
-  kind: StoneMovementKind
-  count: number
-  personName: string | null
-  operationId: number | null
-  correctsId: number | null
-  reason: string
-  recordedBy: string | null
-  recordedAt: string
-  corrected: boolean
-}
+// ---- Answers ----
+
+export const stoneMovementOut = z.object({
+  id: wireInt,
+  kind: z.enum(STONE_MOVEMENT_KINDS),
+  count: wireInt,
+  personName: z.string().nullable(),
+  operationId: wireInt.nullable(),
+  correctsId: wireInt.nullable(),
+  reason: z.string(),
+  recordedBy: z.string().nullable(),
+  recordedAt: z.string(),
+  corrected: z.boolean(),
+})
+export type StoneMovementOut = z.infer<typeof stoneMovementOut>
 /** with-setter: stones out while setting is under way; mismatch: the counts do not add up and nobody is setting. */
-export type StoneLineState = 'none-issued' | 'with-setter' | 'balanced' | 'mismatch'
-export interface StoneLineOut {
-  id: number
-  jobBagId: number
-  role: StoneRole
-  stone: string
-  shape: string
-  sizeMm: number
-  depthMm: number | null
-  count: number
-  caratEach: number | null
-  caratEstimated: boolean
-  quality: string
-  customerOwned: boolean
-  customerId: number | null
-  costEachMinor: number | null
-  version: number
-  reconciliation: Reconciliation
-  state: StoneLineState
+export const STONE_LINE_STATES = ['none-issued', 'with-setter', 'balanced', 'mismatch'] as const
+export type StoneLineState = (typeof STONE_LINE_STATES)[number]
+/** Counts by kind (corrections included), what is accounted for and the difference (see shared/domain/stones.ts). */
+export const reconciliation = z.object({
+  issued: wireInt,
+  set: wireInt,
+  returned: wireInt,
+  broken: wireInt,
+  lost: wireInt,
+  checkedBack: wireInt,
+  accounted: wireInt,
+  difference: wireInt,
+  balanced: z.boolean(),
+}) satisfies z.ZodType<Reconciliation>
+export const stoneLineOut = z.object({
+  id: wireInt,
+  jobBagId: wireInt,
+  role: z.enum(STONE_ROLES),
+  stone: z.string(),
+  shape: z.string(),
+  sizeMm: z.number(),
+  depthMm: z.number().nullable(),
+  count: wireInt,
+  caratEach: z.number().nullable(),
+  caratEstimated: z.boolean(),
+  quality: z.string(),
+  customerOwned: z.boolean(),
+  customerId: wireInt.nullable(),
+  costEachMinor: wireInt.nullable(),
+  version: wireInt,
+  reconciliation,
+  state: z.enum(STONE_LINE_STATES),
   /** The customer's own stones still to hand back at collection (count less broken and lost, less those checked back). */
-  handBackOutstanding: number
-  movements: StoneMovementOut[]
-}
-export interface JobBagStones {
-  jobBagId: number
-  quantity: number
-  settingRunning: boolean
-  lines: StoneLineOut[]
-  totals: Reconciliation & { lines: number; stonesPerPiece: number; caratsPerPiece: number }
+  handBackOutstanding: wireInt,
+  movements: z.array(stoneMovementOut),
+})
+export type StoneLineOut = z.infer<typeof stoneLineOut>
+/** A job bag's stone list with the counts to and from the setter: every stone route's answer. */
+export const jobBagStones = z.object({
+  jobBagId: wireInt,
+  quantity: wireInt,
+  settingRunning: z.boolean(),
+  lines: z.array(stoneLineOut),
+  totals: reconciliation.extend({ lines: wireInt, stonesPerPiece: wireInt, caratsPerPiece: z.number() }),
   /** A customer's own stones: all counted back from the setter (needed before the order is ready) and handed back (before collected). */
-  customerStones: { lines: number; reconciled: boolean; handedBack: boolean; problems: string[] }
-}
+  customerStones: z.object({ lines: wireInt, reconciled: z.boolean(), handedBack: z.boolean(), problems: z.array(z.string()) }),
+})
+export type JobBagStones = z.infer<typeof jobBagStones>

@@ -347,6 +347,68 @@ describe('answers on the demo workshop', () => {
     await call(manager, 'post', '/quotes/:id/withdraw', `/quotes/${other.id}/withdraw`, { version: other.version })
   })
 
+  it('when a stone list is written, counted out and back, corrected and handed back, then every stone answer is what its schema allows', async () => {
+    const order = await call(
+      manager,
+      'post',
+      '/orders',
+      '/orders',
+      {
+        customerId: await firstCustomerId(t.db),
+        title: 'Contract halo ring',
+        dueDate: '2031-09-01',
+        pieces: [{ templateId: await templateId(t.db, 'halo-ring'), piece: 'Halo ring', params: { metal: 'platinum-950' } }],
+      },
+      201,
+    )
+    const bagId = order.jobBags[0].id
+    const rid = () => crypto.randomUUID()
+    await call(
+      manager,
+      'post',
+      '/job-bags/:id/stones',
+      `/job-bags/${bagId}/stones`,
+      { role: 'centre', sizeMm: 6.5, count: 1, customerOwned: true, quality: 'G VS1' },
+      201,
+    )
+    let list = await call(
+      manager,
+      'post',
+      '/job-bags/:id/stones',
+      `/job-bags/${bagId}/stones`,
+      { role: 'halo', sizeMm: 1.3, count: 14, costEachMinor: 1200 },
+      201,
+    )
+    const centre = list.lines.find((l: { role: string }) => l.role === 'centre')
+    const halo = list.lines.find((l: { role: string }) => l.role === 'halo')
+    await call(manager, 'patch', '/stones/:id', `/stones/${halo.id}`, { quality: 'F VS', version: halo.version })
+    list = await call(manager, 'post', '/job-bags/:id/stones', `/job-bags/${bagId}/stones`, { role: 'side', sizeMm: 2, count: 2 }, 201)
+    const side = list.lines.find((l: { role: string }) => l.role === 'side')
+    await call(manager, 'delete', '/stones/:id', `/stones/${side.id}?version=${side.version}`)
+    list = await call(
+      manager,
+      'post',
+      '/stones/:id/movements',
+      `/stones/${halo.id}/movements`,
+      { entries: [{ kind: 'issued', count: 14 }], clientId: rid() },
+      201,
+    )
+    const issued = list.lines.find((l: { id: number }) => l.id === halo.id).movements[0]
+    await call(
+      manager,
+      'post',
+      '/stone-movements/:id/corrections',
+      `/stone-movements/${issued.id}/corrections`,
+      { count: 13, reason: 'miscounted at the safe', clientId: rid() },
+      201,
+    )
+    await call(manager, 'post', '/stones/:id/movements', `/stones/${centre.id}/movements`, { entries: [{ kind: 'issued', count: 1 }], clientId: rid() }, 201)
+    await call(manager, 'post', '/stones/:id/movements', `/stones/${centre.id}/movements`, { entries: [{ kind: 'returned', count: 1 }], clientId: rid() }, 201)
+    await call(manager, 'post', '/stones/:id/check-back', `/stones/${centre.id}/check-back`, { count: 1, clientId: rid() }, 201)
+    list = await call(manager, 'get', '/job-bags/:id/stones', `/job-bags/${bagId}/stones`)
+    expect(list.lines.map((l: { movements: unknown[] }) => l.movements.length)).toEqual([3, 2])
+  })
+
   it('when every call above is done, then each route with a response schema was called at least once', () => {
     expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])
   })

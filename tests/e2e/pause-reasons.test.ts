@@ -1,18 +1,17 @@
 // Pause reasons in Chromium: the owner adds one and switches one off in the workshop settings; the bench's pause dialog follows.
+import { asc, eq } from 'drizzle-orm'
 import { describe, expect, it } from 'vitest'
+import * as s from '../../server/db/schema/index'
 import { DEMO_PASSWORD, makeStepReady, screenshot, signInPage, signInWith, useE2E } from '../setup/e2e'
+import { benchIdByName, openOrderStep } from '../setup/fixtures'
 
 const e2e = useE2E()
 
-const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
-
 /** A setting step made ready straight in the test database (its predecessors marked done yesterday). */
 async function readySettingStep() {
-  const [op] =
-    await q(`select o.id, o.job_bag_id from operations o join operation_kinds k on k.id = o.kind_id join job_bags jb on jb.id = o.job_bag_id join orders ord on ord.id = jb.order_id
-    where k.code = 'setting' and o.key = 'set' and o.status = 'pending' and ord.status = 'open' order by ord.due_date, jb.number limit 1`)
+  const op = (await openOrderStep(e2e.db.db, { kind: 'setting', key: 'set', status: 'pending' }))!
   await makeStepReady(e2e, op.id)
-  return op as { id: number; job_bag_id: number }
+  return op
 }
 
 describe('pause reasons', () => {
@@ -36,11 +35,11 @@ describe('pause reasons', () => {
     await panel.locator('[data-test=new-reason-add]').click()
     await panel.locator('.el-form-item__error', { hasText: /already/ }).waitFor()
     await screenshot(owner, 'pause-reasons-01-settings')
-    const [saved] = await q(`select active from pause_reasons where code = 'question-for-manager'`)
-    expect(saved.active).toBe(false)
+    const [saved] = await e2e.db.db.select({ active: s.pauseReasons.active }).from(s.pauseReasons).where(eq(s.pauseReasons.code, 'question-for-manager'))
+    expect(saved!.active).toBe(false)
 
     const op = await readySettingStep()
-    const [bench] = await q(`select id from benches where name = 'Setting bench A'`)
+    const benchId = await benchIdByName(e2e.db.db, 'Setting bench A')
     const ctx = await e2e.browser.newContext({
       baseURL: e2e.url,
       viewport: { width: 1280, height: 800 },
@@ -52,7 +51,7 @@ describe('pause reasons', () => {
     await signInWith(page, 'setter@wrenfield.test', DEMO_PASSWORD)
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'), { timeout: 30_000 })
     await page.goto('/bench')
-    await page.locator(`[data-test="pick-bench-${bench.id}"]`).click()
+    await page.locator(`[data-test="pick-bench-${benchId}"]`).click()
     await page.locator(`[data-test=next-for-me] [data-op="${op.id}"] [data-test=claim]`).click()
     await page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=start]`).click()
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running] [data-test=pause]`).click()
@@ -78,11 +77,12 @@ describe('pause reasons', () => {
     await screenshot(page, 'pause-reasons-02-bench-dialog', { fullPage: false })
     await page.locator('[data-test=confirm-pause]').click()
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=paused]`).waitFor()
-    const records = await q('select end_reason, note from time_records where operation_id = $1 order by id', [op.id])
-    expect(records).toEqual([{ end_reason: 'waiting-for-a-casting', note: 'Caster sends it Thursday' }])
+    const tr = s.timeRecords
+    const records = await e2e.db.db.select({ endReason: tr.endReason, note: tr.note }).from(tr).where(eq(tr.operationId, op.id)).orderBy(asc(tr.id))
+    expect(records).toEqual([{ endReason: 'waiting-for-a-casting', note: 'Caster sends it Thursday' }])
 
     // The job bag's history names the reason, not its code.
-    await page.goto(`/job-bags/${op.job_bag_id}`)
+    await page.goto(`/job-bags/${op.jobBagId}`)
     // Both the pause and the time record it closed: "… paused “Set pavé” (Waiting for a casting: …)" and "… worked N min on “Set pavé” — Waiting for a casting".
     await page.waitForFunction(
       () => /worked \d+ min on “.+” — Waiting for a casting/.test(document.querySelector('[data-test=history]')?.textContent ?? ''),

@@ -2,8 +2,10 @@
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
+import { and, asc, eq, notInArray } from 'drizzle-orm'
 import { afterAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
+import * as s from '../../server/db/schema/index'
 import { jobBagLink } from '../../server/services/tickets'
 import { DEMO_PASSWORD, launchChromium, screenshot, signInWith, useE2E } from '../setup/e2e'
 import { qrVideo } from '../setup/qr-video'
@@ -17,8 +19,6 @@ afterAll(async () => {
   await cameraBrowser?.close().catch(() => undefined)
   rmSync(dir, { recursive: true, force: true })
 })
-
-const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 
 async function benchTablet(browser: Browser): Promise<Page> {
   const context = await browser.newContext({
@@ -40,13 +40,19 @@ async function benchTablet(browser: Browser): Promise<Page> {
 /** A job bag whose next step is ready, so its page offers that step to the bench. */
 async function bagWithReadyStep(offset: number) {
   // The job bag page offers its first ready step in routing order (server/services/job-bags.ts: next = first 'ready').
-  const [op] = await q(
-    `select * from (select distinct on (jb.number) o.id, o.job_bag_id, o.name, jb.number, k.outside from operations o join job_bags jb on jb.id = o.job_bag_id
-    join orders ord on ord.id = jb.order_id join operation_kinds k on k.id = o.kind_id where o.status = 'ready' and ord.status = 'open' and jb.status not in ('on-hold', 'cancelled') order by jb.number, o.seq) x
-    where not x.outside order by number offset $1 limit 1`,
-    [offset],
-  )
-  return op as { id: number; job_bag_id: number; name: string; number: string }
+  const o = s.operations,
+    jb = s.jobBags
+  const ready = await e2e.db.db
+    .select({ id: o.id, jobBagId: o.jobBagId, name: o.name, number: jb.number, outside: s.operationKinds.outside })
+    .from(o)
+    .innerJoin(jb, eq(jb.id, o.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, jb.orderId))
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, o.kindId))
+    .where(and(eq(o.status, 'ready'), eq(s.orders.status, 'open'), notInArray(jb.status, ['on-hold', 'cancelled'])))
+    .orderBy(asc(jb.number), asc(o.seq))
+  // Each job bag's first ready step in routing order, kept when it is bench work (not outside work).
+  const first = ready.filter((r, i) => i === 0 || ready[i - 1]!.number !== r.number)
+  return first.filter((r) => !r.outside)[offset]!
 }
 
 describe('scanning a job ticket at the bench', () => {
@@ -54,7 +60,7 @@ describe('scanning a job ticket at the bench', () => {
     const op = await bagWithReadyStep(0)
     expect(op, 'the seeded demo has a ready bench step').toBeTruthy()
     // The QR holds what the printed ticket holds: the job bag's link (server/services/tickets.ts jobBagLink).
-    const link = jobBagLink(e2e.url, op.job_bag_id)
+    const link = jobBagLink(e2e.url, op.jobBagId)
     const video = join(dir, 'ticket.y4m')
     writeFileSync(video, qrVideo(link, { width: 640, height: 480, modulePx: 8, frames: 10 }))
     cameraBrowser = await launchChromium(['--use-fake-ui-for-media-stream', '--use-fake-device-for-media-stream', `--use-file-for-fake-video-capture=${video}`])
@@ -68,7 +74,7 @@ describe('scanning a job ticket at the bench', () => {
     await page.locator('[data-test=scan]').click()
     await page.locator('[data-test=scan-dialog] video').waitFor()
     await page
-      .waitForURL((u) => u.pathname === `/job-bags/${op.job_bag_id}` && u.searchParams.get('from') === 'scan', { timeout: 20_000 })
+      .waitForURL((u) => u.pathname === `/job-bags/${op.jobBagId}` && u.searchParams.get('from') === 'scan', { timeout: 20_000 })
       .catch(async (err) => {
         await screenshot(page, 'bench-scan-failed', { fullPage: false })
         throw new Error(
@@ -93,7 +99,7 @@ describe('scanning a job ticket at the bench', () => {
     await page.locator('[data-test=bag-number]').fill(op.number)
     await screenshot(page, 'bench-scan-02-typed-number', { fullPage: false })
     await page.locator('[data-test=bag-number-go]').click()
-    await page.waitForURL((u) => u.pathname === `/job-bags/${op.job_bag_id}`, { timeout: 15_000 })
+    await page.waitForURL((u) => u.pathname === `/job-bags/${op.jobBagId}`, { timeout: 15_000 })
     await page.locator('[data-test=next-step]').waitFor()
     await expect(page.locator('[data-test=next-step]').textContent()).resolves.toContain(op.name)
     await page.context().close()

@@ -1,11 +1,12 @@
 // Money typed on screen in Chromium: the order dialog reads a typed price digit by digit into whole pence and shows the server's
 // estimated cost, margin and suggested price in the workshop's currency; a person's hourly cost is stored in whole pence.
+import { eq } from 'drizzle-orm'
 import { describe, expect, it } from 'vitest'
 import type { Locator, Page } from 'playwright-core'
+import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
 
 const e2e = useE2E()
-const q = async (sql: string, args: unknown[] = []) => (await e2e.db.pool.query(sql, args)).rows
 const input = (scope: Page | Locator, name: string) => scope.locator(`input[data-test=${name}], [data-test=${name}] input`).first()
 
 describe('money typed on screen', () => {
@@ -58,7 +59,9 @@ describe('money typed on screen', () => {
     await screenshot(page, 'costing-person-rate', { fullPage: false })
     await dialog.locator('[data-test=person-save]').click()
     await expect
-      .poll(async () => (await q(`select hourly_rate_minor from people where name = 'Ada Penhallow'`))[0]?.hourly_rate_minor, { timeout: 15_000 })
+      .poll(async () => (await e2e.db.db.select({ rate: s.people.hourlyRateMinor }).from(s.people).where(eq(s.people.name, 'Ada Penhallow')))[0]?.rate, {
+        timeout: 15_000,
+      })
       .toBe(2750)
   })
 })

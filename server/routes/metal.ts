@@ -1,5 +1,6 @@
 // Metal routes: alloys and prices, issues and returns at the bench, corrections, purchases and stock, the job bag's metal account,
 // loss figures, tolerances per kind of work, and refining lots.
+import { z } from 'zod'
 import type { Role } from '../../shared/domain/roles'
 import {
   adjustmentInput,
@@ -17,6 +18,17 @@ import {
   refiningSettleInput,
   returnInput,
   toleranceInput,
+  alloy,
+  alloyPrice,
+  jobBagMetal,
+  lossTable,
+  lotItemAdded,
+  metalMovement,
+  recordedCorrection,
+  recordedMovement,
+  refiningLot,
+  stockRow,
+  tolerance,
 } from '../../shared/schemas/metal'
 import { route } from '../lib/route'
 import * as metal from '../services/metal'
@@ -35,6 +47,7 @@ export const metalRoutes = [
     path: '/alloys',
     roles: ALL,
     summary: 'The workshop’s alloys (price per gram in force today for owner and manager)',
+    response: z.array(alloy),
     handler: ({ deps, actor }) => metal.listAlloys(deps.db, actor),
   }),
   route({
@@ -44,6 +57,7 @@ export const metalRoutes = [
     status: 201,
     summary: 'Add an alloy (owner)',
     body: alloyInput,
+    response: alloy,
     handler: ({ deps, actor, body }) => metal.createAlloy(deps, actor, body),
   }),
   route({
@@ -53,6 +67,7 @@ export const metalRoutes = [
     summary: 'Change an alloy (owner; names the version edited)',
     params: idParam,
     body: alloyUpdate,
+    response: alloy,
     handler: ({ deps, actor, params, body }) => metal.updateAlloy(deps, actor, params.id, body),
   }),
   route({
@@ -61,6 +76,7 @@ export const metalRoutes = [
     roles: STAFF,
     summary: 'Price history of an alloy, newest first (owner, manager)',
     params: idParam,
+    response: z.array(alloyPrice),
     handler: ({ deps, actor, params }) => metal.listPrices(deps.db, actor, params.id),
   }),
   route({
@@ -71,6 +87,7 @@ export const metalRoutes = [
     summary: 'Set an alloy’s price per gram from a date (owner)',
     params: idParam,
     body: alloyPriceInput,
+    response: alloyPrice,
     handler: ({ deps, actor, params, body }) => metal.setPrice(deps, actor, params.id, body),
   }),
   // the ledger
@@ -80,6 +97,7 @@ export const metalRoutes = [
     roles: WORKERS,
     summary: 'Metal entries (by job bag, alloy, lot or person) with their corrections',
     query: movementQuery,
+    response: z.array(metalMovement),
     handler: ({ deps, actor, query }) => metal.listMovements(deps.db, actor, query),
   }),
   route({
@@ -89,6 +107,7 @@ export const metalRoutes = [
     status: 201,
     summary: 'Issue metal to a person for a job bag (and step), from stock or the customer’s own',
     body: issueInput,
+    response: recordedMovement,
     handler: ({ deps, actor, body }) => metal.issueMetal(deps, actor, body),
   }),
   route({
@@ -98,6 +117,7 @@ export const metalRoutes = [
     status: 201,
     summary: 'Weigh metal back from a job bag: the piece, scrap or lemel',
     body: returnInput,
+    response: recordedMovement,
     handler: ({ deps, actor, body }) => metal.returnMetal(deps, actor, body),
   }),
   route({
@@ -108,6 +128,7 @@ export const metalRoutes = [
     summary: 'Correct a metal entry to the right weight, saying why (kept with who and when)',
     params: idParam,
     body: correctionInput,
+    response: recordedCorrection,
     handler: ({ deps, actor, params, body }) => metal.correctMovement(deps, actor, params.id, body),
   }),
   route({
@@ -117,6 +138,7 @@ export const metalRoutes = [
     status: 201,
     summary: 'Metal bought into stock (owner, manager)',
     body: purchaseInput,
+    response: recordedMovement,
     handler: ({ deps, actor, body }) => metal.purchaseMetal(deps, actor, body),
   }),
   route({
@@ -126,6 +148,7 @@ export const metalRoutes = [
     status: 201,
     summary: 'Stock count difference, with a reason (owner)',
     body: adjustmentInput,
+    response: recordedMovement,
     handler: ({ deps, actor, body }) => metal.adjustStock(deps, actor, body),
   }),
   route({
@@ -133,6 +156,7 @@ export const metalRoutes = [
     path: '/metal/stock',
     roles: STAFF,
     summary: 'Stock per alloy: bought, issued, returned, refining, adjustments, balance, fine weight and value (owner, manager)',
+    response: z.array(stockRow),
     handler: ({ deps, actor }) => metal.stock(deps.db, actor.workshopId),
   }),
   route({
@@ -141,6 +165,7 @@ export const metalRoutes = [
     roles: OWNER,
     summary: 'Metal loss by person, kind of work, month or alloy (owner)',
     query: lossQuery,
+    response: lossTable,
     handler: ({ deps, actor, query }) => metal.lossReport(deps.db, actor.workshopId, query),
   }),
   route({
@@ -149,6 +174,7 @@ export const metalRoutes = [
     roles: ALL,
     summary: 'A job bag’s metal: issued, returned by form, loss per step and person against tolerance, hallmarking',
     params: idParam,
+    response: jobBagMetal,
     handler: ({ deps, actor, params }) => metal.jobBagMetal(deps.db, actor, params.id),
   }),
   // tolerances
@@ -157,6 +183,7 @@ export const metalRoutes = [
     path: '/metal/tolerances',
     roles: ALL,
     summary: 'Loss tolerance of each kind of work',
+    response: z.array(tolerance),
     handler: ({ deps, actor }) => metal.listTolerances(deps.db, actor.workshopId),
   }),
   route({
@@ -166,6 +193,7 @@ export const metalRoutes = [
     summary: 'Set the loss tolerance of a kind of work (owner; id = kind)',
     params: idParam,
     body: toleranceInput,
+    response: tolerance,
     handler: ({ deps, actor, params, body }) => metal.setTolerance(deps, actor, params.id, body),
   }),
   // refining lots
@@ -174,6 +202,7 @@ export const metalRoutes = [
     path: '/refining-lots',
     roles: STAFF,
     summary: 'Refining lots, newest first (owner, manager)',
+    response: z.array(refiningLot),
     handler: ({ deps, actor }) => metal.listLots(deps.db, actor.workshopId),
   }),
   route({
@@ -182,6 +211,7 @@ export const metalRoutes = [
     roles: STAFF,
     summary: 'One refining lot with its contents and recovery (owner, manager)',
     params: idParam,
+    response: refiningLot,
     handler: ({ deps, actor, params }) => metal.getLot(deps.db, actor.workshopId, params.id),
   }),
   route({
@@ -191,6 +221,7 @@ export const metalRoutes = [
     status: 201,
     summary: 'Open a refining lot (owner, manager)',
     body: refiningLotInput,
+    response: refiningLot,
     handler: ({ deps, actor, body }) => metal.createLot(deps, actor, body),
   }),
   route({
@@ -201,6 +232,7 @@ export const metalRoutes = [
     summary: 'Put scrap or lemel from stock into an open lot (owner, manager)',
     params: idParam,
     body: refiningItemInput,
+    response: lotItemAdded,
     handler: ({ deps, actor, params, body }) => metal.addToLot(deps, actor, params.id, body),
   }),
   route({
@@ -210,6 +242,7 @@ export const metalRoutes = [
     summary: 'Mark a lot sent to the refiner (owner, manager; names the version)',
     params: idParam,
     body: refiningSendInput,
+    response: refiningLot,
     handler: ({ deps, actor, params, body }) => metal.sendLot(deps, actor, params.id, body),
   }),
   route({
@@ -219,6 +252,7 @@ export const metalRoutes = [
     summary: 'Record what the refiner credited: fine metal, money, metal returned (owner, manager; names the version)',
     params: idParam,
     body: refiningSettleInput,
+    response: refiningLot,
     handler: ({ deps, actor, params, body }) => metal.settleLot(deps, actor, params.id, body),
   }),
 ]

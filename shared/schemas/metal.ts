@@ -2,7 +2,7 @@
 // Weights travel in grams with up to two decimals and are kept as whole milligrams; money travels and is kept in minor units.
 import { z } from 'zod'
 import { ALLOY_METALS, LEGAL_FINENESS, isLegalFineness, type AlloyMetal } from '../domain/metal'
-import { code, id, isoDate, name, version } from './common'
+import { code, id, isoDate, name, version, wireInt } from './common'
 
 const twoDecimals = (g: number) => Math.abs(g * 100 - Math.round(g * 100)) < 1e-6
 /** A weight in grams: more than 0, at most 2 decimals (0.01 g, the bench scale's step), at most 100 kg. */
@@ -193,169 +193,182 @@ export type RefiningSettleInput = z.infer<typeof refiningSettleInput>
 // ---------------------------------------------------------------------------------------------------------------
 // Answers (weights in mg and, for display, g; money in minor units)
 
-export interface AlloyPrice {
-  id: number
-  pricePerGramMinor: number
-  effectiveOn: string
-  setBy: string | null
-  createdAt: string
-}
-export interface Alloy {
-  id: number
-  code: string
-  name: string
-  metal: AlloyMetal
-  fineness: number
-  densityGPerCm3: number
-  active: boolean
-  version: number
+export const alloyPrice = z.object({
+  id: wireInt,
+  pricePerGramMinor: wireInt,
+  effectiveOn: z.string(),
+  setBy: z.string().nullable(),
+  createdAt: z.string(),
+})
+export type AlloyPrice = z.infer<typeof alloyPrice>
+export const alloy = z.object({
+  id: wireInt,
+  code: z.string(),
+  name: z.string(),
+  metal: z.enum(ALLOY_METALS),
+  fineness: z.number(),
+  densityGPerCm3: z.number(),
+  active: z.boolean(),
+  version: wireInt,
   /** The price in force today (owner and manager only; null for others or when none is set). */
-  pricePerGramMinor: number | null
-  priceOn: string | null
-}
-export type MovementKind = 'bought' | 'issued' | 'returned' | 'to-refining' | 'from-refining' | 'adjusted' | 'delivered'
-export interface MetalMovement {
-  id: number
-  kind: MovementKind
-  alloyId: number
-  alloyName: string
-  weightMg: number
-  weightG: number
-  source: 'stock' | 'customer' | null
-  form: 'piece' | 'scrap' | 'lemel' | null
-  jobBagId: number | null
-  operationId: number | null
-  operationName: string | null
-  personId: number | null
-  personName: string | null
-  refiningLotId: number | null
-  costMinor: number | null
-  correctsId: number | null
-  reason: string
-  recordedBy: string | null
-  recordedAt: string
-  clientId: string | null
+  pricePerGramMinor: wireInt.nullable(),
+  priceOn: z.string().nullable(),
+})
+export type Alloy = z.infer<typeof alloy>
+export const MOVEMENT_KINDS = ['bought', 'issued', 'returned', 'to-refining', 'from-refining', 'adjusted', 'delivered'] as const
+export type MovementKind = (typeof MOVEMENT_KINDS)[number]
+export const metalMovement = z.object({
+  id: wireInt,
+  kind: z.enum(MOVEMENT_KINDS),
+  alloyId: wireInt,
+  alloyName: z.string(),
+  weightMg: wireInt,
+  weightG: z.number(),
+  source: z.enum(['stock', 'customer']).nullable(),
+  form: z.enum(['piece', 'scrap', 'lemel']).nullable(),
+  jobBagId: wireInt.nullable(),
+  operationId: wireInt.nullable(),
+  operationName: z.string().nullable(),
+  personId: wireInt.nullable(),
+  personName: z.string().nullable(),
+  refiningLotId: wireInt.nullable(),
+  costMinor: wireInt.nullable(),
+  correctsId: wireInt.nullable(),
+  reason: z.string(),
+  recordedBy: z.string().nullable(),
+  recordedAt: z.string(),
+  clientId: z.string().nullable(),
   /** For an original row: its weight after every correction; corrections listed with who and why. */
-  effectiveMg: number
-  corrections: { id: number; weightMg: number; reason: string; recordedBy: string | null; recordedAt: string }[]
-}
-export interface LossFigures {
-  issuedMg: number
-  fromCustomerMg: number
-  pieceMg: number
-  scrapMg: number
-  lemelMg: number
-  returnedMg: number
-  lossMg: number
-  lossG: number
-  lossPct: number | null
-  lossFineMg: number
-  lossFineG: number
-}
-export interface StepAccount extends LossFigures {
-  operationId: number | null
-  name: string
-  kindId: number | null
-  kind: string | null
-  tolerancePct: number | null
-  overTolerance: boolean
-}
-export interface PersonAccount extends LossFigures {
-  personId: number | null
-  name: string
-}
-export interface AlloyAccount extends LossFigures {
-  alloyId: number
-  name: string
-  fineness: number
-}
-export interface JobBagMetal {
-  jobBagId: number
-  number: string
-  piece: string
-  total: LossFigures
-  overTolerance: boolean
-  byAlloy: AlloyAccount[]
-  bySteps: StepAccount[]
-  byPerson: PersonAccount[]
+  effectiveMg: wireInt,
+  corrections: z.array(z.object({ id: wireInt, weightMg: wireInt, reason: z.string(), recordedBy: z.string().nullable(), recordedAt: z.string() })),
+})
+export type MetalMovement = z.infer<typeof metalMovement>
+/** A weighing written (or the first answer again, for a replayed request). */
+export const recordedMovement = z.object({ replayed: z.boolean(), movement: metalMovement })
+export type RecordedMovement = z.infer<typeof recordedMovement>
+export const recordedCorrection = recordedMovement.extend({ correctionId: wireInt })
+export const lossFigures = z.object({
+  issuedMg: wireInt,
+  fromCustomerMg: wireInt,
+  pieceMg: wireInt,
+  scrapMg: wireInt,
+  lemelMg: wireInt,
+  returnedMg: wireInt,
+  lossMg: wireInt,
+  lossG: z.number(),
+  lossPct: z.number().nullable(),
+  lossFineMg: z.number(),
+  lossFineG: z.number(),
+})
+export type LossFigures = z.infer<typeof lossFigures>
+export const stepAccount = lossFigures.extend({
+  operationId: wireInt.nullable(),
+  name: z.string(),
+  kindId: wireInt.nullable(),
+  kind: z.string().nullable(),
+  tolerancePct: z.number().nullable(),
+  overTolerance: z.boolean(),
+})
+export type StepAccount = z.infer<typeof stepAccount>
+export const personAccount = lossFigures.extend({ personId: wireInt.nullable(), name: z.string() })
+export type PersonAccount = z.infer<typeof personAccount>
+export const alloyAccount = lossFigures.extend({ alloyId: wireInt, name: z.string(), fineness: z.number() })
+export type AlloyAccount = z.infer<typeof alloyAccount>
+export const jobBagMetal = z.object({
+  jobBagId: wireInt,
+  number: z.string(),
+  piece: z.string(),
+  total: lossFigures,
+  overTolerance: z.boolean(),
+  byAlloy: z.array(alloyAccount),
+  bySteps: z.array(stepAccount),
+  byPerson: z.array(personAccount),
   /** The piece's weight (last weighed) and whether hallmarking is compulsory for it; a warning when the routing has no hallmarking step. */
-  hallmark: {
-    metal: AlloyMetal | null
-    pieceG: number | null
-    thresholdG: number | null
-    needed: boolean
-    routingHasHallmarking: boolean
-    warning: string | null
-  }
-  movements: MetalMovement[]
-  toleranceNote: string
-}
-export interface LossRow {
-  key: string
-  label: string
-  n: number
-  issuedG: number
-  returnedG: number
-  lossG: number
-  lossPct: number | null
-  lossFineG: number
-  overTolerance: number
-}
-export interface LossTable {
-  groupBy: LossGrouping
-  filter: { from?: string; to?: string }
-  rows: LossRow[]
-  total: LossRow
-  toleranceNote: string
-}
-export interface StockRow {
-  alloyId: number
-  code: string
-  name: string
-  metal: AlloyMetal
-  fineness: number
-  boughtMg: number
-  fromCustomerMg: number
-  issuedMg: number
-  returnedMg: number
-  toRefiningMg: number
-  fromRefiningMg: number
-  adjustedMg: number
+  hallmark: z.object({
+    metal: z.enum(ALLOY_METALS).nullable(),
+    pieceG: z.number().nullable(),
+    thresholdG: z.number().nullable(),
+    needed: z.boolean(),
+    routingHasHallmarking: z.boolean(),
+    warning: z.string().nullable(),
+  }),
+  movements: z.array(metalMovement),
+  toleranceNote: z.string(),
+})
+export type JobBagMetal = z.infer<typeof jobBagMetal>
+export const lossRow = z.object({
+  key: z.string(),
+  label: z.string(),
+  n: wireInt,
+  issuedG: z.number(),
+  returnedG: z.number(),
+  lossG: z.number(),
+  lossPct: z.number().nullable(),
+  lossFineG: z.number(),
+  overTolerance: wireInt,
+})
+export type LossRow = z.infer<typeof lossRow>
+export const lossTable = z.object({
+  groupBy: z.enum(LOSS_GROUPINGS),
+  filter: z.object({ from: z.string().optional(), to: z.string().optional() }),
+  rows: z.array(lossRow),
+  total: lossRow,
+  toleranceNote: z.string(),
+})
+export type LossTable = z.infer<typeof lossTable>
+export const stockRow = z.object({
+  alloyId: wireInt,
+  code: z.string(),
+  name: z.string(),
+  metal: z.enum(ALLOY_METALS),
+  fineness: z.number(),
+  boughtMg: wireInt,
+  fromCustomerMg: wireInt,
+  issuedMg: wireInt,
+  returnedMg: wireInt,
+  toRefiningMg: wireInt,
+  fromRefiningMg: wireInt,
+  adjustedMg: wireInt,
   /** Finished pieces that left with their collected orders (their last weighing back). */
-  deliveredMg: number
+  deliveredMg: wireInt,
   /** bought + from customers − issued + returned − to refining + from refining + adjustments. */
-  balanceMg: number
-  balanceG: number
-  fineMg: number
-  fineG: number
-  pricePerGramMinor: number | null
-  priceOn: string | null
-  valueMinor: number | null
-}
-export interface Tolerance {
-  kindId: number
-  code: string
-  name: string
-  tolerancePct: number
-  isDefault: boolean
-  version: number
-}
-export interface RefiningLot {
-  id: number
-  number: string
-  status: 'open' | 'sent' | 'settled'
-  refiner: string
-  sentAt: string | null
-  settledAt: string | null
-  creditedFineMg: number | null
-  creditedMinor: number | null
-  notes: string
-  version: number
-  createdAt: string
-  sentMg: number
-  sentFineMg: number
+  balanceMg: wireInt,
+  balanceG: z.number(),
+  fineMg: z.number(),
+  fineG: z.number(),
+  pricePerGramMinor: wireInt.nullable(),
+  priceOn: z.string().nullable(),
+  valueMinor: wireInt.nullable(),
+})
+export type StockRow = z.infer<typeof stockRow>
+export const tolerance = z.object({
+  kindId: wireInt,
+  code: z.string(),
+  name: z.string(),
+  tolerancePct: z.number(),
+  isDefault: z.boolean(),
+  version: wireInt,
+})
+export type Tolerance = z.infer<typeof tolerance>
+export const refiningLot = z.object({
+  id: wireInt,
+  number: z.string(),
+  status: z.enum(['open', 'sent', 'settled']),
+  refiner: z.string(),
+  sentAt: z.string().nullable(),
+  settledAt: z.string().nullable(),
+  creditedFineMg: wireInt.nullable(),
+  creditedMinor: wireInt.nullable(),
+  notes: z.string(),
+  version: wireInt,
+  createdAt: z.string(),
+  sentMg: wireInt,
+  sentFineMg: z.number(),
   /** Credited fine ÷ fine sent, in % (null before settling or with nothing sent). */
-  recoveryPct: number | null
-  byAlloy: { alloyId: number; name: string; fineness: number; weightMg: number; fineMg: number }[]
-  items: MetalMovement[]
-}
+  recoveryPct: z.number().nullable(),
+  byAlloy: z.array(z.object({ alloyId: wireInt, name: z.string(), fineness: z.number(), weightMg: wireInt, fineMg: z.number() })),
+  items: z.array(metalMovement),
+})
+export type RefiningLot = z.infer<typeof refiningLot>
+/** Scrap or lemel put into a lot (or the first answer again, for a replayed request). */
+export const lotItemAdded = z.object({ replayed: z.boolean(), lot: refiningLot })

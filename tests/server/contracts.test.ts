@@ -12,7 +12,7 @@ import { waitForRun } from '../../server/planning/runs'
 import { startPayFake, type PayFake } from '../../server/dev/pay-fake'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, templateId } from '../setup/fixtures'
+import { alloyIdByCode, firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, templateId } from '../setup/fixtures'
 
 let t: TestApp
 let payFake: PayFake
@@ -407,6 +407,68 @@ describe('answers on the demo workshop', () => {
     await call(manager, 'post', '/stones/:id/check-back', `/stones/${centre.id}/check-back`, { count: 1, clientId: rid() }, 201)
     list = await call(manager, 'get', '/job-bags/:id/stones', `/job-bags/${bagId}/stones`)
     expect(list.lines.map((l: { movements: unknown[] }) => l.movements.length)).toEqual([3, 2])
+  })
+
+  it('when metal is priced, bought, weighed out and back, corrected, counted, toleranced and refined, then every metal answer is what its schema allows', async () => {
+    const rid = () => crypto.randomUUID()
+    const alloys = await call(owner, 'get', '/alloys', '/alloys')
+    expect(alloys.length).toBeGreaterThan(0)
+    const made = await call(
+      owner,
+      'post',
+      '/alloys',
+      '/alloys',
+      { code: 'contract-925', name: 'Contract silver', metal: 'silver', fineness: 925, densityGPerCm3: 10.36 },
+      201,
+    )
+    await call(owner, 'patch', '/alloys/:id', `/alloys/${made.id}`, { name: 'Contract sterling', version: made.version })
+    await call(owner, 'post', '/alloys/:id/prices', `/alloys/${made.id}/prices`, { pricePerGramMinor: 95, effectiveOn: '2026-12-01' }, 201)
+    const gold = await alloyIdByCode(t.db, 'au750y')
+    const prices = await call(owner, 'get', '/alloys/:id/prices', `/alloys/${gold}/prices`)
+    expect(prices.length).toBeGreaterThan(0)
+
+    await call(owner, 'post', '/metal/purchases', '/metal/purchases', { clientId: rid(), alloyId: gold, weightG: 100, costMinor: 600_000 }, 201)
+    await call(owner, 'post', '/metal/adjustments', '/metal/adjustments', { clientId: rid(), alloyId: gold, weightG: -0.5, reason: 'stock count' }, 201)
+    const { bagId } = await openOrder(t.db)
+    const personId = ((await manager.get('/api/people')).body as { id: number }[])[0]!.id
+    const out = { jobBagId: bagId, alloyId: gold, personId }
+    const issued = await call(owner, 'post', '/metal/issues', '/metal/issues', { ...out, clientId: rid(), weightG: 10 }, 201)
+    await call(owner, 'post', '/metal/returns', '/metal/returns', { ...out, clientId: rid(), weightG: 8, form: 'piece' }, 201)
+    await call(owner, 'post', '/metal/returns', '/metal/returns', { ...out, clientId: rid(), weightG: 1.5, form: 'scrap' }, 201)
+    await call(
+      owner,
+      'post',
+      '/metal/movements/:id/corrections',
+      `/metal/movements/${issued.movement.id}/corrections`,
+      { clientId: rid(), weightG: 10.2, reason: 'read the scale again' },
+      201,
+    )
+    const moves = await call(owner, 'get', '/metal/movements', `/metal/movements?jobBagId=${bagId}`)
+    expect(moves.length).toBeGreaterThanOrEqual(3)
+    const account = await call(owner, 'get', '/job-bags/:id/metal', `/job-bags/${bagId}/metal`)
+    expect(account.bySteps.length + account.byPerson.length).toBeGreaterThan(0)
+    await call(owner, 'get', '/metal/stock', '/metal/stock')
+    const losses = await call(owner, 'get', '/metal/losses', '/metal/losses?groupBy=person')
+    expect(losses.rows.length).toBeGreaterThan(0)
+
+    const tolerances = await call(owner, 'get', '/metal/tolerances', '/metal/tolerances')
+    await call(owner, 'put', '/metal/tolerances/:id', `/metal/tolerances/${tolerances[0].kindId}`, { tolerancePct: 2.5, version: tolerances[0].version })
+
+    const lot = await call(owner, 'post', '/refining-lots', '/refining-lots', { refiner: 'Contract refiners' }, 201)
+    const added = await call(
+      owner,
+      'post',
+      '/refining-lots/:id/items',
+      `/refining-lots/${lot.id}/items`,
+      { clientId: rid(), alloyId: gold, weightG: 1, form: 'scrap' },
+      201,
+    )
+    expect(added.lot.items.length).toBe(1)
+    await call(owner, 'get', '/refining-lots', '/refining-lots')
+    const sent = await call(owner, 'post', '/refining-lots/:id/send', `/refining-lots/${lot.id}/send`, { version: added.lot.version })
+    await call(owner, 'post', '/refining-lots/:id/settle', `/refining-lots/${lot.id}/settle`, { version: sent.version, creditedFineG: 0.74 })
+    const settled = await call(owner, 'get', '/refining-lots/:id', `/refining-lots/${lot.id}`)
+    expect(settled.byAlloy.length).toBe(1)
   })
 
   it('when every call above is done, then each route with a response schema was called at least once', () => {

@@ -89,8 +89,8 @@ export async function addPlannedLoad(url: string, target: number, from: Dayjs) {
   const [w] = await db.select().from(schema.workshops)
   const benches = await db.select().from(schema.benches)
   const people = await db.select().from(schema.people)
-  const [tpl] = await db.select().from(schema.routings).where(eq(schema.routings.code, 'pave-pendant'))
-  const steps = await db.select().from(schema.routingSteps).where(eq(schema.routingSteps.routingId, tpl!.id))
+  const [routing] = await db.select().from(schema.routings).where(eq(schema.routings.code, 'pave-pendant'))
+  const steps = await db.select().from(schema.routingSteps).where(eq(schema.routingSteps.routingId, routing!.id))
   const [cust] = await db.select().from(schema.customers)
   let have = (await db.execute(sql`select count(*)::int n from operations where status not in ('done','skipped')`)).rows[0]!.n as number
   let i = 0
@@ -109,7 +109,7 @@ export async function addPlannedLoad(url: string, target: number, from: Dayjs) {
         orderId: o!.id,
         number: `BB-${i}-1`,
         piece: 'Load piece',
-        routingId: tpl!.id,
+        routingId: routing!.id,
         params: { metal: 'silver-925', stoneCount: 10, stoneSizeMm: 1.5, sizeMm: 20, finish: 'polished', quantity: 1 },
       })
       .returning()

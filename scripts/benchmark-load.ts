@@ -19,7 +19,7 @@ const from = dayjs().tz('Europe/London').startOf('isoWeek')
 const to = from.add(27, 'day')
 const benches = (await b.call(manager, 'GET', '/benches')).body as { id: number; name: string }[]
 const settingBench = benches.find((x) => /setting/i.test(x.name)) ?? benches[0]!
-const template = ((await b.call(manager, 'GET', '/routings')).body as { id: number; code: string }[])[0]!
+const routing = ((await b.call(manager, 'GET', '/routings')).body as { id: number; code: string }[])[0]!
 
 interface Target {
   name: string
@@ -41,7 +41,7 @@ if (has('post', '/promise/check'))
     method: 'POST',
     path: '/api/promise/check',
     who: sales,
-    body: { templateId: template.id, params: { metal: 'gold-18ct', stoneCount: 12, stoneSizeMm: 1.5 } },
+    body: { templateId: routing.id, params: { metal: 'gold-18ct', stoneCount: 12, stoneSizeMm: 1.5 } },
   })
 else notes.push('promise check skipped: no POST /promise/check route yet')
 

@@ -30,14 +30,14 @@ if (own) {
 const [owner] = await db.select().from(s.users).where(eq(s.users.role, 'sales')).limit(1)
 const actor: Actor = { userId: owner!.id, workshopId: owner!.workshopId, role: 'sales', personId: null, name: owner!.name }
 const deps: Deps = { db, realtime: new Realtime() }
-const templates = await db.select({ id: s.routings.id }).from(s.routings).where(eq(s.routings.workshopId, actor.workshopId))
+const routings = await db.select({ id: s.routings.id }).from(s.routings).where(eq(s.routings.workshopId, actor.workshopId))
 
 async function measure(range: boolean) {
   const ms: number[] = []
   let cold = 0
   for (let i = 0; i < CALLS + 1; i++) {
     const input = promiseCheckInput.parse({
-      templateId: templates[i % templates.length]!.id,
+      templateId: routings[i % routings.length]!.id,
       params: { stoneCount: i % 7, quantity: 1 + (i % 3) },
       range,
       seed: i + 1,

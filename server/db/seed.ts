@@ -159,7 +159,7 @@ type Step = {
 // Setting: melee is fiddly to pick up and seat, larger stones need more metal moved for their seat (demo figures; minutes per
 // stone and their bands have no published source and should be learned from actual times).
 const SETTING_BANDS = { melee: 1.2, large: 1.5 }
-const TEMPLATES: { code: string; name: string; description: string; learningRate?: number; steps: Step[] }[] = [
+const ROUTINGS: { code: string; name: string; description: string; learningRate?: number; steps: Step[] }[] = [
   {
     code: 'pave-pendant',
     name: 'Pavé pendant in laminated metal',
@@ -420,8 +420,8 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     await tx.insert(s.leave).values({ personId: people[2]!.id, startsOn: dayStr(l1), endsOn: dayStr(addDays(l1, 2)), reason: 'Holiday' })
     await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: stocktake', startsOn: dayStr(addDays(now, 17)), endsOn: dayStr(addDays(now, 17)) })
 
-    const templates: { row: typeof s.routings.$inferSelect; steps: (typeof s.routingSteps.$inferSelect)[] }[] = []
-    for (const t of TEMPLATES) {
+    const routings: { row: typeof s.routings.$inferSelect; steps: (typeof s.routingSteps.$inferSelect)[] }[] = []
+    for (const t of ROUTINGS) {
       const [row] = await tx
         .insert(s.routings)
         .values({ workshopId, code: t.code, name: t.name, description: t.description, learningRate: t.learningRate ?? null })
@@ -446,7 +446,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
           })),
         )
         .returning()
-      templates.push({ row: row!, steps })
+      routings.push({ row: row!, steps })
     }
     const customers = await tx
       .insert(s.customers)
@@ -464,7 +464,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     let orderNo = 0
     const makeOrder = async (opts: { due: Date; status: string; created: Date; tIndex: number }) => {
       orderNo++
-      const t = templates[opts.tIndex % templates.length]!
+      const t = routings[opts.tIndex % routings.length]!
       const choices = PIECES[t.row.code]!
       const choice = choices[Math.floor(rand() * choices.length)]!
       const params = { ...DEFAULT_PARAMS, ...choice.params }
@@ -515,7 +515,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
           })),
         )
         .returning()
-      return { order: order!, bag: bag!, ops, template: t }
+      return { order: order!, bag: bag!, ops, routing: t }
     }
 
     // History: finished orders over the past fourteen weeks, with time records for estimating. It keeps to the calendar the

@@ -192,7 +192,7 @@ export function historyOf(ops: readonly Pick<FinishedOperation, 'finishedAt'>[],
   }
 }
 
-/** Actual minutes of one unit at standard speed: what the template's per-unit estimate should have been. */
+/** Actual minutes of one unit at standard speed: what the routing's per-unit estimate should have been. */
 const standardUnitMinutes = (o: FinishedOperation) => (o.actualMinutes * o.speed) / Math.max(1, o.params.quantity)
 
 export interface StepFit {
@@ -203,15 +203,15 @@ export interface StepFit {
 }
 
 /**
- * Fits one template step from its history (points: stones → standard minutes per unit). Theil–Sen when the step counts
+ * Fits one routing step from its history (points: stones → standard minutes per unit). Theil–Sen when the step counts
  * stones and the history has at least two stone counts, kept only if it fits clearly better (10 %) than scaling the
- * template by the ratio of medians; otherwise the ratio of medians.
+ * routing by the ratio of medians; otherwise the ratio of medians.
  */
 export function fitStep(current: { baseMinutes: number; perStoneMinutes: number }, points: readonly Point[]): StepFit {
-  const templateAt = (x: number) => current.baseMinutes + current.perStoneMinutes * x
+  const routingAt = (x: number) => current.baseMinutes + current.perStoneMinutes * x
   const k = ratioOfMedians(
     points.map((p) => p.y),
-    points.map((p) => templateAt(p.x)),
+    points.map((p) => routingAt(p.x)),
   )
   const scale = Number.isFinite(k) ? k : 1
   const ratioFit = { baseMinutes: current.baseMinutes * scale, perStoneMinutes: current.perStoneMinutes * scale }
@@ -273,7 +273,7 @@ function kindFigure(
   }
 }
 
-/** Everything learned from finished work: per kind, per person, and per template step with suggestions. */
+/** Everything learned from finished work: per kind, per person, and per routing step with suggestions. */
 export async function learnEstimates(db: Db, workshopId: number, filter: InsightFilter = {}): Promise<LearnedEstimates> {
   const ops = await finishedOperations(db, workshopId, filter)
   const kinds = await db
@@ -365,7 +365,7 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
         const before = s.baseMinutes + s.perStoneMinutes * x
         const after = next.baseMinutes + next.perStoneMinutes * x
         const changePct = before > 0 ? r2(((after - before) / before) * 100) : 0
-        // Offered only when the middle half of the history sits on one side of the template (not just noise) and the change is worth it.
+        // Offered only when the middle half of the history sits on one side of the routing (not just noise) and the change is worth it.
         const q1 = quantile(ratios, 0.25)
         const q3 = quantile(ratios, 0.75)
         const oneSided = q1 > 1 || q3 < 1
@@ -393,7 +393,7 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
 }
 
 // ---------------------------------------------------------------------------------------------------------------
-// The owner accepts a suggestion into the template
+// The owner accepts a suggestion into the routing
 
 export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, input: AcceptSuggestionInput) {
   const learned = await learnEstimates(db, actor.workshopId)

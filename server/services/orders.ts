@@ -1,4 +1,4 @@
-// Orders and their job bags: numbering, routings copied from templates into operations, and the order list.
+// Orders and their job bags: numbering, routing steps copied into operations, and the order list.
 import { and, asc, count, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { ListQuery, Page } from '../../shared/schemas/common'
 import type { OrderInput, OrderSummary, OrderUpdate } from '../../shared/schemas/order'
@@ -81,7 +81,7 @@ export async function getOrder(db: Db, workshopId: number, id: number) {
   }
 }
 
-/** Adds one job bag with the template's routing as operations (inside the caller's transaction). */
+/** Adds one job bag with its routing's steps as operations (inside the caller's transaction). */
 export async function addJobBag(tx: Trx, workshopId: number, orderId: number, orderNumber: string, index: number, piece: OrderInput['pieces'][number]) {
   const [t] = await tx
     .select()

@@ -112,7 +112,7 @@ async function basePlan(deps: Deps, workshopId: number, data: PlanningData) {
   return { plan: kept, basis: 'quick-plan' as const, basisNote: 'No plan is published yet: measured against a quick plan of the open work.' }
 }
 
-/** The prospective job bag from a routing template: operations with estimates and the bench × person options. */
+/** The prospective job bag from a routing: operations with estimates and the bench × person options. */
 async function prospectiveJob(
   deps: Deps,
   workshopId: number,
@@ -150,7 +150,7 @@ async function prospectiveJob(
   // Without a wanted date the re-plan still treats it as wanted now, weighed by its priority against the other work.
   const due = input.wantedDate ? c.at(dayjs(input.wantedDate).add(1, 'day').format('YYYY-MM-DD')) : data.problem.now
   const job: Job = { id: PROSPECTIVE_JOB, name: `Enquiry: ${t.name}`, release: data.problem.now, due, weight: weightOfPriority(input.priority) }
-  return { template: t, job, operations, summary }
+  return { routing: t, job, operations, summary }
 }
 
 /**
@@ -208,7 +208,7 @@ async function computePromise(deps: Deps, actor: Actor, input: PromiseCheckInput
     timeZone: data.clock.timeZone,
     basis: base.basis,
     basisNote: base.basisNote,
-    template: { id: pj.template.id, name: pj.template.name },
+    template: { id: pj.routing.id, name: pj.routing.name },
     operations: pj.summary,
     fixedPlan,
     replanned,
@@ -291,7 +291,7 @@ export function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: num
 }
 
 /**
- * Creates the order with the promised date (one job bag from the template), books its steps into the live plan where the
+ * Creates the order with the promised date (one job bag from the routing), books its steps into the live plan where the
  * promise finds room (nothing else moves; checked again inside the order's transaction), then sends the confirmation,
  * which says the piece is booked only when it is.
  */

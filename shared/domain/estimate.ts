@@ -109,7 +109,7 @@ export function stepMinutes(
   return Math.round((all / speed) * 10) / 10
 }
 
-/** What a routing step carries for estimating (a template step as stored or as edited). */
+/** What a routing step carries for estimating (a routing step as stored or as edited). */
 export interface RoutingStepModel extends StepModel {
   perMmMinutes: number
   sizeBandFactors: Partial<Record<SizeBand, number>>

@@ -10,7 +10,7 @@ const optionalId = z.preprocess((v) => (v === '' ? undefined : v), id.optional()
 const optionalDate = z.preprocess((v) => (v === '' ? undefined : v), isoDate.optional())
 const format = z.enum(['json', 'csv'], { error: 'must be json or csv' }).default('json')
 
-/** Filters every insight shares: finished between two local dates (inclusive), one routing template. */
+/** Filters every insight shares: finished between two local dates (inclusive), one routing. */
 export const insightFilter = z
   .object({ from: optionalDate, to: optionalDate, templateId: optionalId })
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
@@ -56,7 +56,7 @@ export const acceptSuggestionInput = z.object({
   stepKey: z.string({ error: 'is required' }).trim().min(1, 'is required').max(40),
   baseMinutes: minutesField,
   perStoneMinutes: z.number({ error: 'must be a number of minutes' }).min(0, 'must not be negative').max(1000, 'must be at most 1000 minutes'),
-  /** The template version the owner looked at. */
+  /** The routing version the owner looked at. */
   templateVersion: version,
   reason: z.string().trim().max(500, 'must be at most 500 characters').default(''),
 })
@@ -197,7 +197,7 @@ export interface KindFigure {
   method: 'theil-sen' | 'ratio-of-medians'
   /** median(actual at standard speed) ÷ median(estimate): above 1 = runs over. */
   ratio: number | null
-  /** Setting-like kinds: learned minutes per stone (Theil–Sen slope) and extra minutes on top of the template base. */
+  /** Setting-like kinds: learned minutes per stone (Theil–Sen slope) and extra minutes on top of the routing base. */
   perStoneMinutes: number | null
   extraBaseMinutes: number | null
   sizeBands: { band: SizeBand; factor: number; n: number }[]
@@ -220,7 +220,7 @@ export interface StepSuggestion {
   kindId: number
   kind: string
   current: { baseMinutes: number; perStoneMinutes: number }
-  /** null when history is thin (n < 5: use a three-point estimate) or the template already fits. */
+  /** null when history is thin (n < 5: use a three-point estimate) or the routing already fits. */
   suggested: { baseMinutes: number; perStoneMinutes: number; method: 'theil-sen' | 'ratio-of-medians'; changePct: number } | null
   thin: boolean
   /** Enough history, but the step's minutes also count the piece's size, stone size bands or the routing's learning curve, which the fit leaves out: no figure offered. */

@@ -73,7 +73,7 @@ export const useInsightsStore = defineStore('insights', () => {
   async function openDrill(g: Grouping, key: string) {
     drill.value = await insightsApi.getDrillDown(g, key, current())
   }
-  /** Accepts a learned suggestion into its template step; learned figures and history reload. */
+  /** Accepts a learned suggestion into its routing step; learned figures and history reload. */
   async function accept(s: StepSuggestion, values: { baseMinutes: number; perStoneMinutes: number }, reason = '') {
     const change = await insightsApi.acceptSuggestion({ templateId: s.templateId, stepKey: s.stepKey, templateVersion: s.templateVersion, reason, ...values })
     const [l, ch] = await Promise.all([insightsApi.getLearned(), insightsApi.getStepChanges()])

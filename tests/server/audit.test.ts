@@ -125,7 +125,7 @@ describe('time records', () => {
 })
 
 describe('estimates', () => {
-  it('when a step estimate is changed on a job bag and the owner accepts new template minutes, then both are audited with from, to and why', async () => {
+  it('when a step estimate is changed on a job bag and the owner accepts new routing minutes, then both are audited with from, to and why', async () => {
     const o = s.operations
     const op = (
       await t.db
@@ -148,18 +148,18 @@ describe('estimates', () => {
     expect(JSON.stringify(step!.details)).toContain('heavier casting than usual')
     expect(JSON.stringify(step!.details)).toContain(String(Number(op.estimate_minutes) + 30))
 
-    const tpl = (await owner.get('/api/routings')).body[0]
-    const s0 = tpl.steps[0]
+    const routing = (await owner.get('/api/routings')).body[0]
+    const s0 = routing.steps[0]
     const acc = await owner.post('/api/estimates/accept', {
-      templateId: tpl.id,
+      templateId: routing.id,
       stepKey: s0.key,
       baseMinutes: s0.baseMinutes + 5,
       perStoneMinutes: s0.perStoneMinutes,
-      templateVersion: tpl.version,
+      templateVersion: routing.version,
       reason: 'our own times say so',
     })
     expect(acc.status, JSON.stringify(acc.body)).toBe(200)
-    const a = (await rows('routing-template', tpl.id, 'accept-estimate'))[0]
+    const a = (await rows('routing-template', routing.id, 'accept-estimate'))[0]
     expect(a).toMatchObject({ user_id: who.owner })
     expect(JSON.stringify(a!.details)).toContain(s0.key)
   })

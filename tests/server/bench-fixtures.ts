@@ -16,7 +16,7 @@ export async function personIdOf(t: TestApp, email: string): Promise<number> {
   return personIdByEmail(t.db, email)
 }
 
-/** Open-order operations of one kind (optionally of one template step key), earliest due first. */
+/** Open-order operations of one kind (optionally of one routing step key), earliest due first. */
 export async function openOps(
   t: TestApp,
   kind: string,

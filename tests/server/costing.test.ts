@@ -23,7 +23,7 @@ beforeAll(async () => {
   const kinds = Object.fromEntries((await owner.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
   // Everyone at 32.00 an hour (3,200 p), so the average rate (used before anyone is planned) is 32.00.
   await hourlyRate(3200)
-  const tpl = await manager.post('/api/routings', {
+  const routing = await manager.post('/api/routings', {
     code: 'costing-fixture',
     name: 'Fixture: fabricate and hallmark',
     description: 'Hand-worked costing fixture.',
@@ -32,8 +32,8 @@ beforeAll(async () => {
       { key: 'hallmark', kindId: kinds.hallmarking, name: 'Hallmark', baseMinutes: 0, leadDays: 3, after: ['make'] },
     ],
   })
-  expect(tpl.status).toBe(201)
-  templateId = tpl.body.id
+  expect(routing.status).toBe(201)
+  templateId = routing.body.id
   expect((await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })).status).toBe(200)
   alloyId = await alloyIdByCode(t.db, 'au750y')
   customerId = await firstCustomerId(t.db)

@@ -7,12 +7,12 @@ import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 let t: TestApp
 let sales: Agent
 let manager: Agent
-let tpl: Record<string, { id: number; steps: unknown[] }>
+let routing: Record<string, { id: number; steps: unknown[] }>
 beforeAll(async () => {
   t = await createTestApp()
   sales = await signedIn(t.app, 'sales')
   manager = await signedIn(t.app, 'manager')
-  tpl = Object.fromEntries((await manager.get('/api/routings')).body.map((x: { code: string }) => [x.code, x]))
+  routing = Object.fromEntries((await manager.get('/api/routings')).body.map((x: { code: string }) => [x.code, x]))
 })
 afterAll(async () => {
   await t?.close()
@@ -28,7 +28,7 @@ const takeOrder = async (customerId: number, pieces = 1) => {
     customerId,
     title: 'Count check',
     dueDate: '2031-03-14',
-    pieces: Array.from({ length: pieces }, (_, i) => ({ templateId: tpl['ring-resize']!.id, piece: `Resize ${i + 1}` })),
+    pieces: Array.from({ length: pieces }, (_, i) => ({ templateId: routing['ring-resize']!.id, piece: `Resize ${i + 1}` })),
   })
   expect(r.status, JSON.stringify(r.body)).toBe(201)
   return r.body as { id: number; version: number; jobBags: { id: number; operations: { id: number; version: number }[] }[] }

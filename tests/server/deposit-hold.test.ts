@@ -11,7 +11,7 @@ import { WAITING_FOR_DEPOSIT } from '../../shared/domain/deposit-hold'
 import { and, eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, Agent, type TestApp } from '../setup/app'
-import { firstCustomerId, firstWorkshopId, templateId as templateOf } from '../setup/fixtures'
+import { firstCustomerId, firstWorkshopId, routingId as routingOf } from '../setup/fixtures'
 import { benchId, makeReady, rid } from './bench-fixtures'
 
 let t: TestApp, fake: PayFake, http: Server
@@ -32,7 +32,7 @@ beforeAll(async () => {
   expect((await priya.signIn('priya@wrenfield.test')).status).toBe(200)
   customerId = await firstCustomerId(t.db)
   // The bezel ring's routing starts with "Forge band" (forging).
-  templateId = await templateOf(t.db, 'bezel-ring')
+  templateId = await routingOf(t.db, 'bezel-ring')
   forge = await benchId(t, 'Forge & soldering station')
   workshopId = await firstWorkshopId(t.db)
 }, 60_000)

@@ -118,15 +118,15 @@ describe('absurd durations', () => {
     expectNamed(await planRun(), { number: step.number, id: step.bag_id }, step, 'bad-duration')
   })
 
-  it('when a template step would take 10000 base minutes plus 240 per stone on 2000 stones, then checking a promise answers 422 naming the step, not a 500', async () => {
+  it('when a routing step would take 10000 base minutes plus 240 per stone on 2000 stones, then checking a promise answers 422 naming the step, not a 500', async () => {
     const [k] = await t.db.select({ id: s.operationKinds.id }).from(s.operationKinds).where(eq(s.operationKinds.code, 'setting'))
-    const tpl = await manager.post('/api/routings', {
+    const routing = await manager.post('/api/routings', {
       code: 'pave-everything',
       name: 'Pavé everything',
       steps: [{ key: 'set', kindId: k!.id, name: 'Set every stone', baseMinutes: 10000, perStoneMinutes: 240 }],
     })
-    expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
-    const r = await manager.post('/api/promise/check', { templateId: tpl.body.id, params: { stoneCount: 2000, stoneSizeMm: 1 } })
+    expect(routing.status, JSON.stringify(routing.body)).toBe(201)
+    const r = await manager.post('/api/promise/check', { templateId: routing.body.id, params: { stoneCount: 2000, stoneSizeMm: 1 } })
     expect(r.status, JSON.stringify(r.body)).toBe(422)
     expectCleanError(r, 422)
     expect(r.body.error).toContain('Set every stone')
@@ -136,7 +136,7 @@ describe('absurd durations', () => {
 describe('routings in a circle', () => {
   const kindId = async () => (await t.db.select({ id: s.operationKinds.id }).from(s.operationKinds).where(eq(s.operationKinds.code, 'polishing')))[0]!.id
 
-  it('when a template whose steps follow each other in a circle is sent, then it is refused with 400 on steps and nothing is saved', async () => {
+  it('when a routing whose steps follow each other in a circle is sent, then it is refused with 400 on steps and nothing is saved', async () => {
     const kid = await kindId()
     const steps = [
       { key: 'a', kindId: kid, name: 'First', baseMinutes: 10, after: ['c'] },
@@ -158,15 +158,15 @@ describe('routings in a circle', () => {
     expect(n!.n).toBe(0)
   })
 
-  it('when an existing template is replaced by one with a circle, then it is refused with 400 and the saved steps stay as they were', async () => {
+  it('when an existing routing is replaced by one with a circle, then it is refused with 400 and the saved steps stay as they were', async () => {
     const kid = await kindId()
     const list = await manager.get('/api/routings')
-    const tpl = list.body[0]
-    const before = await manager.get(`/api/routings/${tpl.id}`)
-    const r = await manager.put(`/api/routings/${tpl.id}`, {
-      version: tpl.version,
-      code: tpl.code,
-      name: tpl.name,
+    const routing = list.body[0]
+    const before = await manager.get(`/api/routings/${routing.id}`)
+    const r = await manager.put(`/api/routings/${routing.id}`, {
+      version: routing.version,
+      code: routing.code,
+      name: routing.name,
       description: '',
       steps: [
         { key: 'x', kindId: kid, name: 'X', baseMinutes: 5, after: ['y'] },
@@ -174,7 +174,7 @@ describe('routings in a circle', () => {
       ],
     })
     expectFieldError(r, 'steps', /circle/)
-    expect((await manager.get(`/api/routings/${tpl.id}`)).body).toEqual(before.body)
+    expect((await manager.get(`/api/routings/${routing.id}`)).body).toEqual(before.body)
   })
 
   it('when a job bag step is made to wait for a step that waits for it, then the change is refused naming "after" and the routing is unchanged', async () => {

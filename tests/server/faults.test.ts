@@ -49,13 +49,13 @@ const killGroup = (c: ChildProcess, sig: NodeJS.Signals) => {
 async function writeTargets(cookie: string) {
   const get = async (path: string) => (await fetch(`${base}/api${path}`, { headers: { cookie } })).json() as Promise<any>
   const customers = await get('/customers')
-  const templates = await get('/routings')
+  const routings = await get('/routings')
   const people = await get('/people')
   const orders = await get('/orders?status=open')
   const order = await get(`/orders/${orders.items[0].id}`)
   return {
     customerId: customers.items[0].id as number,
-    template: templates[0] as { id: number; steps: unknown[] },
+    routing: routings[0] as { id: number; steps: unknown[] },
     personId: people[0].id as number,
     operationId: order.jobBags[0].operations[0].id as number,
   }
@@ -76,7 +76,7 @@ function writers(sessions: { cookie: string; csrf: string }[], t: Awaited<Return
             method: 'POST',
             headers,
             signal: AbortSignal.timeout(15_000),
-            body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ templateId: t.template.id, piece: title }] }),
+            body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ templateId: t.routing.id, piece: title }] }),
           })
           if (r.status === 201) acked.push(title)
           else await r.text()
@@ -136,7 +136,7 @@ describe('faults', { timeout: 180_000 }, () => {
     app = await startApp()
     const sessions = await Promise.all(Array.from({ length: 20 }, () => httpSignIn(base, 'manager')))
     const targets = await writeTargets(sessions[0]!.cookie)
-    const tpl = targets.template
+    const routing = targets.routing
     const w = writers(sessions, targets, 'kill-app')
     await new Promise((r) => setTimeout(r, 2500))
     killGroup(app, 'SIGKILL')
@@ -147,7 +147,7 @@ describe('faults', { timeout: 180_000 }, () => {
     const titles = rows.map((r) => r.title)
     for (const t of w.acked) expect(titles.filter((x) => x === t)).toHaveLength(1)
     // No half-written order: each has its job bag and all its operations (one transaction).
-    for (const r of rows) expect(r).toMatchObject({ bags: 1, ops: tpl.steps.length })
+    for (const r of rows) expect(r).toMatchObject({ bags: 1, ops: routing.steps.length })
     expect(w.ackedRecords.length).toBeGreaterThan(5)
     const reasons = rows.records.map((r) => r.reason)
     for (const t of w.ackedRecords) expect(reasons.filter((x) => x === t)).toHaveLength(1)

@@ -6,7 +6,7 @@ import { allRoutes } from '../../server/routes/index'
 import { count } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type TestApp } from '../setup/app'
-import { templateId } from '../setup/fixtures'
+import { routingId } from '../setup/fixtures'
 import { startPayFake, type PayFake } from '../../server/dev/pay-fake'
 import { fuzzRoutes, loadIdPools, makeSessions, planTargets, printPlan, type FuzzStats } from './fuzz/runner'
 import { INJECTIONS, UNICODE } from './fuzz/values'
@@ -72,14 +72,19 @@ describe('injection strings are data', () => {
 
   it('when customers and orders are named with SQL, HTML and Unicode tricks, then they are stored and returned literally, and searching for them finds them', async () => {
     const sales = await signedIn(t.app, 'sales')
-    const tpl = { id: await templateId(t.db) }
+    const routing = { id: await routingId(t.db) }
     for (const text of hostile) {
       const c = await sales.post('/api/customers', { name: text, notes: text })
       expect(c.status, `${JSON.stringify(text)} → ${c.status} ${JSON.stringify(c.body)}`).toBe(201)
       const back = await sales.get(`/api/customers/${c.body.id}`)
       expect(back.body.name).toBe(text.trim())
       expect(back.body.notes).toBe(text)
-      const o = await sales.post('/api/orders', { customerId: c.body.id, title: text, dueDate: '2030-05-01', pieces: [{ templateId: tpl.id, piece: text }] })
+      const o = await sales.post('/api/orders', {
+        customerId: c.body.id,
+        title: text,
+        dueDate: '2030-05-01',
+        pieces: [{ templateId: routing.id, piece: text }],
+      })
       expect(o.status, JSON.stringify(o.body)).toBe(201)
       const ob = await sales.get(`/api/orders/${o.body.id}`)
       expect(ob.body.title).toBe(text.trim())

@@ -37,7 +37,7 @@ beforeAll(async () => {
   kinds = Object.fromEntries((await owner.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
   person = Object.fromEntries((await t.db.select({ id: s.people.id, name: s.people.name }).from(s.people)).map((p) => [p.name.split(' ')[0], p.id]))
   const customerId = await firstCustomerId(t.db)
-  const tpl = await manager.post('/api/routings', {
+  const routing = await manager.post('/api/routings', {
     code: 'insight-fixture',
     name: 'Fixture: set and polish',
     description: 'Hand-computed fixture for the insights tests.',
@@ -47,8 +47,8 @@ beforeAll(async () => {
       { key: 'hallmark', kindId: kinds.hallmarking, name: 'Hallmark', baseMinutes: 0, leadDays: 3, after: ['polish'] },
     ],
   })
-  expect(tpl.status).toBe(201)
-  templateId = tpl.body.id
+  expect(routing.status).toBe(201)
+  templateId = routing.body.id
   for (const [title, price, quantity] of [
     ['Fixture order A', 50_000, 2],
     ['Fixture order B', 30_000, 1],
@@ -159,8 +159,8 @@ describe('estimated against actual hours', () => {
       ['2030-03', 2],
       ['2030-04', 2],
     ])
-    const tpl = (await owner.get(`/api/insights/comparison?groupBy=template&templateId=${templateId}`)).body.rows
-    expect(tpl).toEqual([expect.objectContaining({ key: String(templateId), label: 'Fixture: set and polish', n: 4 })])
+    const routing = (await owner.get(`/api/insights/comparison?groupBy=template&templateId=${templateId}`)).body.rows
+    expect(routing).toEqual([expect.objectContaining({ key: String(templateId), label: 'Fixture: set and polish', n: 4 })])
   })
 
   it('when a date range is given, then only work finished inside it (workshop days, inclusive) counts', async () => {
@@ -422,32 +422,32 @@ describe('learning from actual times', () => {
 
   it('when a step also counts the piece’s size, then no figure is suggested and its history is measured against the whole step model', async () => {
     // A routing step of 10 min + 0.1 min per mm; pieces of 100 mm → 10 + 10 = 20 min each (hand-computed). Priya saws at speed 1.0 (seed).
-    const tpl = await manager.post('/api/routings', {
+    const routing = await manager.post('/api/routings', {
       code: 'per-mm-fixture',
       name: 'Fixture: sawn by length',
       steps: [{ key: 'saw', kindId: kinds.sawing, name: 'Saw to length', baseMinutes: 10, perMmMinutes: 0.1 }],
     })
-    expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
+    expect(routing.status, JSON.stringify(routing.body)).toBe(201)
     const customerId = await firstCustomerId(t.db)
     for (let i = 0; i < 5; i++) {
       const o = await manager.post('/api/orders', {
         customerId,
         title: `Per-mm fixture ${i}`,
         dueDate: '2030-06-30',
-        pieces: [{ templateId: tpl.body.id, piece: 'Bar', params: { sizeMm: 100 } }],
+        pieces: [{ templateId: routing.body.id, piece: 'Bar', params: { sizeMm: 100 } }],
       })
       const ops = await opsOf(o.body.id)
       const day = `2030-06-${String(3 + i).padStart(2, '0')}`
       await finish(ops.saw!, 20, at(day, '10:00'), [{ person: 'Priya', start: at(day, '09:36'), minutes: 24 }])
     }
-    const s = (await owner.get('/api/estimates/learned')).body.steps.find((x: { templateId: number }) => x.templateId === tpl.body.id)
+    const s = (await owner.get('/api/estimates/learned')).body.steps.find((x: { templateId: number }) => x.templateId === routing.body.id)
     // Every job took 24 min against the model's 20: actual ÷ routing = 1.2 (against the base alone it would read 2.4 and suggest +140 %).
     expect(s).toMatchObject({ thin: false, unfitted: true, suggested: null, history: { n: 5, spread: { q1: 1.2, median: 1.2, q3: 1.2 } } })
   })
 
   it('when setting history has overnight outliers, then the learned per-stone minutes stay on the true rate', async () => {
-    // A routing whose template is wrong on purpose (10 + 4 per stone); the true work is 20 + 6 per stone at standard speed.
-    const tpl = await manager.post('/api/routings', {
+    // A routing whose figures are wrong on purpose (10 + 4 per stone); the true work is 20 + 6 per stone at standard speed.
+    const routing = await manager.post('/api/routings', {
       code: 'outlier-fixture',
       name: 'Fixture: pavé with outliers',
       steps: [{ key: 'set', kindId: kinds.setting, name: 'Set pavé', baseMinutes: 10, perStoneMinutes: 4 }],
@@ -460,7 +460,7 @@ describe('learning from actual times', () => {
         customerId,
         title: `Outlier fixture ${i}`,
         dueDate: '2030-06-30',
-        pieces: [{ templateId: tpl.body.id, piece: 'Pavé', params: { stoneCount: stones } }],
+        pieces: [{ templateId: routing.body.id, piece: 'Pavé', params: { stoneCount: stones } }],
       })
       const ops = await opsOf(o.body.id)
       let minutes = Math.round(((20 + 6 * stones) / speed) * 60) / 60
@@ -472,7 +472,7 @@ describe('learning from actual times', () => {
       ])
     }
     const r = await owner.get('/api/estimates/learned')
-    const s = r.body.steps.find((x: { templateId: number }) => x.templateId === tpl.body.id)
+    const s = r.body.steps.find((x: { templateId: number }) => x.templateId === routing.body.id)
     expect(s.thin).toBe(false)
     expect(s.history.n).toBe(20)
     // Theil–Sen (Sen 1968) ignores the two wild points; least squares would have put the rate near 8 (see tests/shared/estimate.test.ts).
@@ -480,10 +480,10 @@ describe('learning from actual times', () => {
     expect(Math.abs(s.suggested.perStoneMinutes - 6)).toBeLessThanOrEqual(0.25)
     expect(Math.abs(s.suggested.baseMinutes - 20)).toBeLessThanOrEqual(1)
 
-    // The owner accepts: the step's minutes change, the template version goes up, the change is kept with who, when and its basis.
-    const before = (await owner.get(`/api/routings/${tpl.body.id}`)).body
+    // The owner accepts: the step's minutes change, the routing version goes up, the change is kept with who, when and its basis.
+    const before = (await owner.get(`/api/routings/${routing.body.id}`)).body
     const acc = await owner.post('/api/estimates/accept', {
-      templateId: tpl.body.id,
+      templateId: routing.body.id,
       stepKey: 'set',
       baseMinutes: s.suggested.baseMinutes,
       perStoneMinutes: s.suggested.perStoneMinutes,
@@ -492,7 +492,7 @@ describe('learning from actual times', () => {
     })
     expect(acc.status).toBe(200)
     expect(acc.body).toMatchObject({
-      templateId: tpl.body.id,
+      templateId: routing.body.id,
       stepKey: 'set',
       stepName: 'Set pavé',
       from: { baseMinutes: 10, perStoneMinutes: 4 },
@@ -501,18 +501,18 @@ describe('learning from actual times', () => {
       acceptedBy: 'Margit Saale',
       basis: { n: 20, method: 'theil-sen' },
     })
-    const after = (await owner.get(`/api/routings/${tpl.body.id}`)).body
+    const after = (await owner.get(`/api/routings/${routing.body.id}`)).body
     expect(after.version).toBe(before.version + 1)
     expect(after.steps[0]).toMatchObject({ baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes })
-    expect((await auditRows(t, 'routing-template', tpl.body.id))[0]).toMatchObject({
+    expect((await auditRows(t, 'routing-template', routing.body.id))[0]).toMatchObject({
       action: 'accept-estimate',
       details: { stepKey: 'set', reason: 'learned from 20 jobs' },
     })
     expect((await owner.get('/api/estimates/changes')).body[0]).toMatchObject({ id: acc.body.id })
-    // Accepting against the old version again: someone changed the template since → 409.
+    // Accepting against the old version again: someone changed the routing since → 409.
     expectCleanError(
       await owner.post('/api/estimates/accept', {
-        templateId: tpl.body.id,
+        templateId: routing.body.id,
         stepKey: 'set',
         baseMinutes: 20,
         perStoneMinutes: 6,
@@ -522,7 +522,7 @@ describe('learning from actual times', () => {
     )
     expectFieldError(
       await owner.post('/api/estimates/accept', {
-        templateId: tpl.body.id,
+        templateId: routing.body.id,
         stepKey: 'nope',
         baseMinutes: 20,
         perStoneMinutes: 6,

@@ -6,7 +6,7 @@ import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { and, asc, desc, eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { bookLastStepLate, firstCustomerId, templateId as firstRoutingId } from '../setup/fixtures'
+import { bookLastStepLate, firstCustomerId, routingId as firstRoutingId } from '../setup/fixtures'
 import { expectFieldError } from './helpers'
 
 let t: TestApp

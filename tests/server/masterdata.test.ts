@@ -1,4 +1,4 @@
-// Master data API against real PostgreSQL: benches, people, operation kinds, calendar, routing templates, customers, users,
+// Master data API against real PostgreSQL: benches, people, operation kinds, calendar, routings, customers, users,
 // their validation, optimistic locking, workshop isolation, audit trail and error hygiene.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, count, eq } from 'drizzle-orm'
@@ -280,7 +280,7 @@ describe('calendar', () => {
   })
 })
 
-describe('routing templates', () => {
+describe('routings', () => {
   const step = (key: string, after: string[] = [], extra: Record<string, unknown> = {}) => ({
     key,
     kindId: kinds.filing,
@@ -290,7 +290,7 @@ describe('routing templates', () => {
     ...extra,
   })
 
-  it('when a branching template is added and replaced, then its steps come back in order and it is audited', async () => {
+  it('when a branching routing is added and replaced, then its steps come back in order and it is audited', async () => {
     const c = await manager.post('/api/routings', {
       code: 'toggle-bracelet',
       name: 'Toggle bracelet',
@@ -336,7 +336,7 @@ describe('routing templates', () => {
     expect((await t.db.select({ n: count() }).from(s.routings).where(eq(s.routings.code, 'bad-graph')))[0]!.n).toBe(0)
   })
 
-  it('when the code is taken or the template does not exist, then 409 or 404', async () => {
+  it('when the code is taken or the routing does not exist, then 409 or 404', async () => {
     const dup = await manager.post('/api/routings', { code: 'bezel-ring', name: 'Again', steps: [step('a')] })
     expectCleanError(dup, 409)
     expect(dup.body.fields).toEqual({ code: expect.any(String) })
@@ -485,7 +485,7 @@ describe('another workshop', () => {
     bench: { id: number; version: number }
     person: { id: number; version: number; leave: { id: number }[] }
     kind: { id: number; version: number }
-    template: { id: number; version: number }
+    routing: { id: number; version: number }
     customer: { id: number; version: number }
     closure: { id: number }
     order: { id: number; version: number }
@@ -499,7 +499,7 @@ describe('another workshop', () => {
       bench: (await manager.get('/api/benches')).body[0],
       person: people.find((p: { leave: unknown[] }) => p.leave.length > 0),
       kind: (await manager.get('/api/operation-kinds')).body[0],
-      template: (await manager.get('/api/routings')).body[0],
+      routing: (await manager.get('/api/routings')).body[0],
       customer: (await manager.get('/api/customers')).body.items[0],
       closure: (await manager.get('/api/closures')).body[0],
       order: (await manager.get('/api/orders')).body.items[0],
@@ -523,7 +523,7 @@ describe('another workshop', () => {
     const a = other.agent
     const f = first
     const tries = [
-      await a.get(`/api/routings/${f.template.id}`),
+      await a.get(`/api/routings/${f.routing.id}`),
       await a.get(`/api/customers/${f.customer.id}`),
       await a.get(`/api/orders/${f.order.id}`),
       await a.patch(`/api/benches/${f.bench.id}`, { notes: 'taken over', version: f.bench.version }),
@@ -532,11 +532,11 @@ describe('another workshop', () => {
       await a.post(`/api/people/${f.person.id}/leave`, { startsOn: '2030-05-06', endsOn: '2030-05-06' }),
       await a.delete(`/api/people/${f.person.id}/leave/${f.person.leave[0]!.id}`),
       await a.patch(`/api/operation-kinds/${f.kind.id}`, { name: 'taken over', version: f.kind.version }),
-      await a.put(`/api/routings/${f.template.id}`, {
+      await a.put(`/api/routings/${f.routing.id}`, {
         code: 'x',
         name: 'x',
         steps: [{ key: 'a', kindId: f.kind.id, name: 'a', baseMinutes: 1 }],
-        version: f.template.version,
+        version: f.routing.version,
       }),
       await a.patch(`/api/customers/${f.customer.id}`, { notes: 'taken over', version: f.customer.version }),
       await a.delete(`/api/closures/${f.closure.id}`),

@@ -6,7 +6,7 @@ import type { Role } from '../../shared/domain/roles'
 import { and, asc, count, eq, gte, isNotNull, isNull, lte, max, ne, notExists, notLike, sql } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { Agent, signedIn, createTestApp, type TestApp } from '../setup/app'
-import { firstCustomerId, templateId as firstRoutingId } from '../setup/fixtures'
+import { firstCustomerId, routingId as firstRoutingId } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop, userIdOf } from './helpers'
 
 let t: TestApp
@@ -392,14 +392,14 @@ describe('finished pieces leave stock', () => {
     const alloy = await newAlloy()
     // A fresh order with two bags of the seeded routing, made through the API as sales would.
     const c = { id: await firstCustomerId(t.db) }
-    const tpl = { id: await firstRoutingId(t.db) }
+    const routing = { id: await firstRoutingId(t.db) }
     const made = await as.sales.post('/api/orders', {
       customerId: c.id,
       title: 'Two pieces to collect',
       dueDate: '2031-09-01',
       pieces: [
-        { templateId: tpl.id, piece: 'One' },
-        { templateId: tpl.id, piece: 'Two' },
+        { templateId: routing.id, piece: 'One' },
+        { templateId: routing.id, piece: 'Two' },
       ],
     })
     expect(made.status, JSON.stringify(made.body)).toBe(201)

@@ -8,7 +8,7 @@ import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from '.
 let t: TestApp
 let sales: Agent
 let manager: Agent
-let tpl: Record<
+let routing: Record<
   string,
   { id: number; steps: { key: string; kindId: number; requiredLevel: number; waitAfterMinutes: number; leadDays: number; after: string[] }[] }
 >
@@ -34,7 +34,7 @@ beforeAll(async () => {
   t = await createTestApp()
   sales = await signedIn(t.app, 'sales')
   manager = await signedIn(t.app, 'manager')
-  tpl = Object.fromEntries((await manager.get('/api/routings')).body.map((x: { code: string }) => [x.code, x]))
+  routing = Object.fromEntries((await manager.get('/api/routings')).body.map((x: { code: string }) => [x.code, x]))
   customerId = (await sales.get('/api/customers?q=Emrys')).body.items[0].id
 })
 afterAll(async () => {
@@ -54,8 +54,8 @@ describe('taking an order', () => {
       priority: 2,
       priceQuotedMinor: 185_000,
       pieces: [
-        { templateId: tpl['pave-pendant']!.id, piece: 'Pavé wave pendant', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, quantity: 2 } },
-        { templateId: tpl['bezel-ring']!.id, piece: 'Garnet bezel ring', params: { stoneCount: 1, stoneSizeMm: 7 } },
+        { templateId: routing['pave-pendant']!.id, piece: 'Pavé wave pendant', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, quantity: 2 } },
+        { templateId: routing['bezel-ring']!.id, piece: 'Garnet bezel ring', params: { stoneCount: 1, stoneSizeMm: 7 } },
       ],
     })
     expect(r.status).toBe(201)
@@ -79,7 +79,7 @@ describe('taking an order', () => {
       [`${number}-2`, 'Garnet bezel ring'],
     ])
     expect(r.body.jobBags[0]).toMatchObject({
-      templateId: tpl['pave-pendant']!.id,
+      templateId: routing['pave-pendant']!.id,
       status: 'waiting',
       params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, sizeMm: 0, finish: 'polished', quantity: 2 },
     })
@@ -98,7 +98,7 @@ describe('taking an order', () => {
       customerId,
       title: 'Two pendants',
       dueDate: '2031-07-01',
-      pieces: [{ templateId: tpl['pave-pendant']!.id, piece: 'Pavé pendant', params: { stoneCount: 18, quantity: 2 } }],
+      pieces: [{ templateId: routing['pave-pendant']!.id, piece: 'Pavé pendant', params: { stoneCount: 18, quantity: 2 } }],
     })
     const ops: Op[] = r.body.jobBags[0].operations
     // Hand-computed from the seeded pavé-pendant routing (server/db/seed.ts); estimate rule: common practice, no source.
@@ -130,15 +130,15 @@ describe('taking an order', () => {
     expect(ops.every((o) => o.estimateSource === 'template')).toBe(true)
   })
 
-  it('when operations are copied, then kind, level, wait, lead days and predecessors are those of the template steps', async () => {
+  it('when operations are copied, then kind, level, wait, lead days and predecessors are those of the routing steps', async () => {
     const r = await sales.post('/api/orders', {
       customerId,
       title: 'Halo ring',
       dueDate: '2031-07-02',
-      pieces: [{ templateId: tpl['halo-ring']!.id, piece: 'Halo ring', params: { metal: 'platinum-950', stoneCount: 15 } }],
+      pieces: [{ templateId: routing['halo-ring']!.id, piece: 'Halo ring', params: { metal: 'platinum-950', stoneCount: 15 } }],
     })
     const ops = byKey(r.body.jobBags[0].operations)
-    for (const s of tpl['halo-ring']!.steps) {
+    for (const s of routing['halo-ring']!.steps) {
       expect(ops[s.key], s.key).toMatchObject({
         kindId: s.kindId,
         requiredLevel: s.requiredLevel,
@@ -159,7 +159,7 @@ describe('taking an order', () => {
       customerId,
       title: 'Studs',
       dueDate: '2031-07-03',
-      pieces: [{ templateId: tpl['stud-run']!.id, piece: 'Seed studs, 40 pairs', params: { quantity: 40 } }],
+      pieces: [{ templateId: routing['stud-run']!.id, piece: 'Seed studs, 40 pairs', params: { quantity: 40 } }],
     })
     // Stud run (seed.ts): clean 5, post 4, polish 4, pack 1.5 minutes for the first pair, learning rate 0.85; casting and
     // hallmarking are outside. Wright 1936: T(N) = a·N^(1+log₂ r); 40^(1 + log₂ 0.85) = 40^0.765535 = 16.8435 (calculator),
@@ -173,9 +173,9 @@ describe('taking an order', () => {
     expect(byKey(r.body.jobBags[0].operations).clean!.after).toEqual(['cast'])
   })
 
-  it("when the customer or a template is not the workshop's, then 400 naming the field and nothing is saved", async () => {
+  it("when the customer or a routing is not the workshop's, then 400 naming the field and nothing is saved", async () => {
     const n = await orderCount()
-    const good = { templateId: tpl['ring-resize']!.id, piece: 'Resize' }
+    const good = { templateId: routing['ring-resize']!.id, piece: 'Resize' }
     expectFieldError(await sales.post('/api/orders', { customerId: 999999, title: 'x', dueDate: '2031-01-01', pieces: [good] }), 'customerId', /not a customer/)
     expectFieldError(
       await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: 999999, piece: 'x' }] }),
@@ -203,7 +203,7 @@ describe('taking an order', () => {
       customerId,
       title: 'x',
       dueDate: '2031-01-01',
-      pieces: [{ templateId: tpl['ring-resize']!.id, piece: 'x', params }],
+      pieces: [{ templateId: routing['ring-resize']!.id, piece: 'x', params }],
     })
     expectFieldError(await sales.post('/api/orders', { customerId, dueDate: '2031-01-01' }), 'title', /required/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-02-30' }), 'dueDate', /real date/)
@@ -219,7 +219,7 @@ describe('taking an order', () => {
     expectFieldError(await sales.post('/api/orders', piece({ quantity: 0 })), 'pieces.0.params.quantity', /at least 1/)
     expectFieldError(await sales.post('/api/orders', piece({ metal: 'tin' })), 'pieces.0.params.metal', /listed metals/)
     expectFieldError(
-      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: tpl['ring-resize']!.id }] }),
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: routing['ring-resize']!.id }] }),
       'pieces.0.piece',
       /required/,
     )
@@ -290,7 +290,7 @@ describe('changing an order', () => {
         customerId,
         title: 'Resize',
         dueDate: '2031-08-01',
-        pieces: [{ templateId: tpl['ring-resize']!.id, piece: 'Resize M to O' }],
+        pieces: [{ templateId: routing['ring-resize']!.id, piece: 'Resize M to O' }],
       })
     ).body
     const u = await sales.patch(`/api/orders/${o.id}`, { promisedDate: '2031-07-30', priority: 1, version: 0 })

@@ -7,7 +7,7 @@ import { loadPlanningData } from '../../server/planning/problem'
 import { and, asc, count, eq, gt, isNotNull } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { bookLastStepLate, firstCustomerId, openOrder, openStepIds, planStep, templateId as firstRoutingId, unplanSteps } from '../setup/fixtures'
+import { bookLastStepLate, firstCustomerId, openOrder, openStepIds, planStep, routingId as firstRoutingId, unplanSteps } from '../setup/fixtures'
 import { auditRows, expectFieldError } from './helpers'
 import { kindSpreads, MIN_HISTORY } from '../../server/services/promise-range'
 import { readLivePlan } from '../../server/planning/live-plan'
@@ -48,7 +48,7 @@ describe('promise check', () => {
     expect(r.body.range).toBeNull()
   })
 
-  it('when a template is not the workshop’s or the params are bad, then it is refused naming the field', async () => {
+  it('when a routing is not the workshop’s or the params are bad, then it is refused naming the field', async () => {
     expectFieldError(await sales.post('/api/promise/check', { templateId: 999999, params }), 'templateId')
     expectFieldError(await sales.post('/api/promise/check', { templateId, params: { ...params, quantity: 0 } }), 'params.quantity')
   })
@@ -366,19 +366,19 @@ describe('accepting a promise', () => {
     await seedLivePlan(3)
     const owner = await signedIn(t.app, 'owner')
     const kind = (await owner.post('/api/operation-kinds', { code: 'enamelling', name: 'Enamelling' })).body
-    const tpl = (
+    const routing = (
       await owner.post('/api/routings', {
         code: 'enamel-only',
         name: 'Enamel only',
         steps: [{ key: 'enamel', kindId: kind.id, name: 'Enamel', baseMinutes: 30 }],
       })
     ).body
-    expect(tpl.id, JSON.stringify(tpl)).toBeTruthy()
+    expect(routing.id, JSON.stringify(routing)).toBeTruthy()
     const c = { id: await firstCustomerId(t.db, 1) }
     const r = await sales.post('/api/promise/accept', {
       customerId: c.id,
       title: 'Enamel pendant',
-      templateId: tpl.id,
+      templateId: routing.id,
       promisedDate: '2031-05-10',
       priority: 3,
       priceQuotedMinor: 9000,

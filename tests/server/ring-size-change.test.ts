@@ -2,7 +2,7 @@
 // checked (409 when stale), audited with from, to and why; a bad size refused naming the field; a resize keeps both its sizes.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { firstCustomerId, templateId } from '../setup/fixtures'
+import { firstCustomerId, routingId } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from './helpers'
 
 let t: TestApp
@@ -23,8 +23,8 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   manager = await signedIn(t.app, 'manager')
   const c = { id: await firstCustomerId(t.db) }
-  const signet = { id: await templateId(t.db, 'signet-ring') }
-  const resize = { id: await templateId(t.db, 'ring-resize') }
+  const signet = { id: await routingId(t.db, 'signet-ring') }
+  const resize = { id: await routingId(t.db, 'ring-resize') }
   const r = await sales.post('/api/orders', {
     customerId: c.id,
     title: 'Signet ring and a resize',

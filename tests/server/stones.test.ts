@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, count, eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { firstCustomerId, templateId } from '../setup/fixtures'
+import { firstCustomerId, routingId } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from './helpers'
 import { rid } from './bench-fixtures'
 
@@ -56,14 +56,14 @@ beforeAll(async () => {
   sales = await signedIn(t.app, 'sales')
   setter = await signedIn(t.app, 'bench')
   owner = await signedIn(t.app, 'owner')
-  const tpl = { id: await templateId(t.db, 'halo-ring') }
+  const routing = { id: await routingId(t.db, 'halo-ring') }
   const c = { id: await firstCustomerId(t.db) }
   // A halo ring taken with no stone figures: its setting step starts at the routing's base of 40 min.
   const r = await sales.post('/api/orders', {
     customerId: c.id,
     title: 'Halo ring, customer’s diamond',
     dueDate: '2031-09-01',
-    pieces: [{ templateId: tpl.id, piece: 'Halo ring', params: { metal: 'platinum-950', ringSize: { scale: 'uk', value: 'N' } } }],
+    pieces: [{ templateId: routing.id, piece: 'Halo ring', params: { metal: 'platinum-950', ringSize: { scale: 'uk', value: 'N' } } }],
   })
   expect(r.status).toBe(201)
   orderId = r.body.id
@@ -321,7 +321,7 @@ describe('a routing step’s own role factors', () => {
       })
     expectFieldError(await bad({ centre: 6 }), 'steps.0.roleFactors.centre', /at most 5/)
     expectFieldError(await bad({ crown: 2 }), 'steps.0.roleFactors', /centre, side, halo and pave/)
-    const tpl = await manager.post('/api/routings', {
+    const routing = await manager.post('/api/routings', {
       code: 'role-fixture',
       name: 'Fixture: set by role',
       steps: [
@@ -336,13 +336,13 @@ describe('a routing step’s own role factors', () => {
         },
       ],
     })
-    expect(tpl.status, JSON.stringify(tpl.body)).toBe(201)
-    expect(tpl.body.steps[0].roleFactors).toEqual({ centre: 4 })
+    expect(routing.status, JSON.stringify(routing.body)).toBe(201)
+    expect(routing.body.steps[0].roleFactors).toEqual({ centre: 4 })
     const o = await sales.post('/api/orders', {
       customerId: await firstCustomerId(t.db),
       title: 'Two halo rings',
       dueDate: '2031-09-01',
-      pieces: [{ templateId: tpl.body.id, piece: 'Halo ring', params: { quantity: 2 } }],
+      pieces: [{ templateId: routing.body.id, piece: 'Halo ring', params: { quantity: 2 } }],
     })
     const bag = o.body.jobBags[0].id
     await sales.post(`/api/job-bags/${bag}/stones`, { role: 'centre', sizeMm: 6.5, count: 1 })

@@ -22,17 +22,19 @@ export async function firstCustomerId(db: Db, workshopId?: number): Promise<numb
   return c!.id
 }
 
-/** A routing template by its code, or the first one. */
-export async function templateId(db: Db, code?: string): Promise<number> {
+/** A routing by its code, or the first one. */
+export async function routingId(db: Db, code?: string): Promise<number> {
   const [r] = await db
     .select({ id: s.routings.id })
     .from(s.routings)
     .where(code == null ? undefined : eq(s.routings.code, code))
     .orderBy(asc(s.routings.id))
     .limit(1)
-  if (!r) throw new Error(`no routing template ${code ?? ''} in the test database`)
+  if (!r) throw new Error(`no routing ${code ?? ''} in the test database`)
   return r.id
 }
+/** `routingId` under its former name, for test files that still import that. */
+export const templateId = routingId
 
 export async function benchIdByName(db: Db, name: string): Promise<number> {
   const [b] = await db.select({ id: s.benches.id }).from(s.benches).where(eq(s.benches.name, name))

@@ -1,7 +1,24 @@
 // Account routes: invitations (owner), one-time links (public), reset requests (public), sign out everywhere, bench stations and PINs.
 import type { Request } from 'express'
-import { invitationInput, linkPassword, linkToken, pinCheck, pinInput, resetRequest, stationInput } from '../../shared/schemas/account'
-import type { SessionUser } from '../../shared/schemas/session'
+import { z } from 'zod'
+import {
+  invitation,
+  invitationInput,
+  linkInfo,
+  linkPassword,
+  linkToken,
+  pinCheck,
+  pinInput,
+  pinSession,
+  pinSet,
+  resetRequest,
+  resetRequested,
+  sentInvitation,
+  signedOutEverywhere,
+  stationInput,
+  stationPerson,
+} from '../../shared/schemas/account'
+import { sessionInfo, type SessionUser } from '../../shared/schemas/session'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
 import { AppError } from '../errors/app-error'
 import { route, type Deps } from '../lib/route'
@@ -37,6 +54,7 @@ export const accountRoutes = [
     path: '/invitations',
     roles: OWNER,
     summary: 'Invitations not yet accepted (owner)',
+    response: z.array(invitation),
     handler: ({ deps, actor }) => accounts.listInvitations(deps.db, actor.workshopId),
   }),
   route({
@@ -46,6 +64,7 @@ export const accountRoutes = [
     status: 201,
     summary: 'Invite someone by e-mail with a one-time link (owner)',
     body: invitationInput,
+    response: sentInvitation,
     handler: ({ deps, actor, body, req }) => accounts.invite(deps, actor, body, arrivedAt(req), lifetimes(deps)),
   }),
   route({
@@ -54,6 +73,7 @@ export const accountRoutes = [
     roles: OWNER,
     summary: 'Send an invitation again with a new link; the old link stops working (owner)',
     params: idParam,
+    response: sentInvitation,
     handler: ({ deps, actor, params, req }) => accounts.resendInvitation(deps, actor, params.id, arrivedAt(req), lifetimes(deps)),
   }),
   route({
@@ -73,6 +93,7 @@ export const accountRoutes = [
     roles: 'public',
     summary: 'What a one-time link is for (invitation or new password), if it still works',
     params: linkToken,
+    response: linkInfo,
     handler: ({ deps, params }) => accounts.linkInfo(deps.db, params.token),
   }),
   route({
@@ -82,6 +103,7 @@ export const accountRoutes = [
     summary: 'Use a one-time link: choose the password, then be signed in (a reset signs out every other session)',
     params: linkToken,
     body: linkPassword,
+    response: sessionInfo,
     handler: async ({ deps, params, body, req }) => {
       const used = await accounts.useLink(deps, params.token, body.password)
       if (used.kind === 'reset') await accounts.endUserSessions(deps, used.userId)
@@ -95,6 +117,7 @@ export const accountRoutes = [
     status: 202,
     summary: 'Ask for a new-password link by e-mail (the answer is the same whether or not the address has an account)',
     body: resetRequest,
+    response: resetRequested,
     handler: async ({ deps, body, req }) => {
       // Not awaited: the answer must not wait longer (or differ) when the address has an account.
       void accounts
@@ -111,6 +134,7 @@ export const accountRoutes = [
     path: '/session/everywhere',
     roles: EVERYONE,
     summary: 'Sign out everywhere: every session of this user ends, this one too',
+    response: signedOutEverywhere,
     handler: async ({ deps, actor, req, res }) => {
       if (actor.station)
         throw new AppError({ code: 'unprocessable', message: 'A bench station is signed out with “Sign out”; sign out everywhere from your own account' })
@@ -128,6 +152,7 @@ export const accountRoutes = [
     roles: EVERYONE,
     summary: 'Set my own bench PIN (4–6 digits)',
     body: pinInput,
+    response: pinSet,
     handler: ({ deps, actor, body }) => {
       if (actor.station) throw new AppError({ code: 'unprocessable', message: 'Set your PIN from your own account, not at the station' })
       if (actor.personId === null)
@@ -142,6 +167,7 @@ export const accountRoutes = [
     summary: 'Set a person’s bench PIN (owner)',
     params: idParam,
     body: pinInput,
+    response: pinSet,
     handler: ({ deps, actor, params, body }) => station.setPin(deps, actor, params.id, body.pin),
   }),
 
@@ -151,6 +177,7 @@ export const accountRoutes = [
     roles: STAFF,
     summary: 'Sign this tablet in as a bench station for one bench (people act there with their PIN)',
     body: stationInput,
+    response: sessionInfo,
     handler: async ({ deps, actor, body, req }) => {
       const s = await station.stationBench(deps.db, actor.workshopId, body.benchId)
       await deps.db.transaction((tx) => audit(tx, actor, 'start-station', 'bench', s.benchId, { benchName: s.benchName }))
@@ -167,6 +194,7 @@ export const accountRoutes = [
     path: '/bench-station/people',
     roles: BENCH,
     summary: 'The people who can act at this station, and whether each has a PIN',
+    response: z.array(stationPerson),
     handler: ({ deps, actor }) => {
       if (!actor.station) throw notStation()
       return station.stationPeople(deps.db, actor.workshopId)
@@ -178,6 +206,7 @@ export const accountRoutes = [
     roles: BENCH,
     summary: 'A person enters their PIN at the station; the answer’s token lets them act until their action or the time runs out',
     body: pinCheck,
+    response: pinSession,
     handler: async ({ deps, actor, body, req }) => {
       if (!actor.station) throw notStation()
       const r = await station.checkPin(deps, actor, actor.station, body.personId, body.pin, lifetimes(deps).pinSeconds)

@@ -1,7 +1,7 @@
 // Accounts that look after themselves: invitations, one-time links (set a password), reset requests and bench PINs.
 import { z } from 'zod'
 import { ROLES } from '../domain/roles'
-import { id, name } from './common'
+import { id, name, wireInt } from './common'
 import { userCreate } from './user'
 
 const email = z.string({ error: 'is required' }).trim().toLowerCase().email('must be an e-mail address').max(200)
@@ -26,32 +26,39 @@ export const pinInput = z.object({ pin })
 export const pinCheck = z.object({ personId: id, pin })
 export const stationInput = z.object({ benchId: id })
 
-export interface Invitation {
-  id: number
-  email: string
-  name: string
-  role: (typeof ROLES)[number]
-  personId: number | null
-  personName: string | null
-  createdAt: string
-  expiresAt: string
-  expired: boolean
-  invitedBy: string | null
-}
-export interface LinkInfo {
-  kind: 'invite' | 'reset'
-  email: string
-  name: string
-  workshopName: string
-  expiresAt: string
-}
-export interface StationPerson {
-  id: number
-  name: string
-  hasPin: boolean
-}
-export interface PinSession {
-  token: string
-  person: { id: number; name: string }
-  expiresAt: string
-}
+// ---- Answers ----
+
+export const invitation = z.object({
+  id: wireInt,
+  email: z.string(),
+  name: z.string(),
+  role: z.enum(ROLES),
+  personId: wireInt.nullable(),
+  personName: z.string().nullable(),
+  createdAt: z.string(),
+  expiresAt: z.string(),
+  expired: z.boolean(),
+  invitedBy: z.string().nullable(),
+})
+export type Invitation = z.infer<typeof invitation>
+/** An invitation just written or sent again, with how its e-mail went (queued, sent or failed, with the mail server's words). */
+export const sentInvitation = invitation.extend({ mail: z.object({ status: z.string(), error: z.string().nullable() }) })
+export type SentInvitation = z.infer<typeof sentInvitation>
+export const linkInfo = z.object({
+  kind: z.enum(['invite', 'reset']),
+  email: z.string(),
+  name: z.string(),
+  workshopName: z.string(),
+  expiresAt: z.string(),
+})
+export type LinkInfo = z.infer<typeof linkInfo>
+/** The answer to a reset request: the same words whether or not the address has an account. */
+export const resetRequested = z.object({ ok: z.literal(true), message: z.string() })
+/** Signed out everywhere: how many sessions ended. */
+export const signedOutEverywhere = z.object({ ok: z.literal(true), ended: wireInt })
+export const pinSet = z.object({ personId: wireInt, hasPin: z.boolean() })
+export type PinSet = z.infer<typeof pinSet>
+export const stationPerson = z.object({ id: wireInt, name: z.string(), hasPin: z.boolean() })
+export type StationPerson = z.infer<typeof stationPerson>
+export const pinSession = z.object({ token: z.string(), person: z.object({ id: wireInt, name: z.string() }), expiresAt: z.string() })
+export type PinSession = z.infer<typeof pinSession>

@@ -1,38 +1,50 @@
 // Accounts API: invitations (owner), one-time links, reset requests, sign out everywhere, bench stations and PINs.
-import type { Invitation, InvitationInput, LinkInfo, PinSession, StationPerson } from '@shared/schemas/account'
+import { z } from 'zod'
+import {
+  invitation,
+  linkInfo as linkInfoSchema,
+  pinSession,
+  pinSet,
+  resetRequested,
+  sentInvitation,
+  signedOutEverywhere,
+  stationPerson,
+  type InvitationInput,
+  type PinSession,
+} from '@shared/schemas/account'
 import { sessionInfo, type SessionInfo } from '@shared/schemas/session'
 import { api, setBenchPersonToken, setCsrfToken } from './client'
 
-export type SentInvitation = Invitation & { mail: { status: string; error: string | null } }
+export type { SentInvitation } from '@shared/schemas/account'
 
-export const listInvitations = () => api.get<Invitation[]>('/invitations')
-export const invite = (body: InvitationInput) => api.post<SentInvitation>('/invitations', body)
-export const resendInvitation = (id: number) => api.post<SentInvitation>(`/invitations/${id}/resend`)
+export const listInvitations = () => api.get('/invitations', { schema: z.array(invitation) })
+export const invite = (body: InvitationInput) => api.post('/invitations', body, { schema: sentInvitation })
+export const resendInvitation = (id: number) => api.post(`/invitations/${id}/resend`, undefined, { schema: sentInvitation })
 export const withdrawInvitation = (id: number) => api.delete<void>(`/invitations/${id}`)
 
-export const linkInfo = (token: string) => api.get<LinkInfo>(`/account-links/${encodeURIComponent(token)}`)
+export const linkInfo = (token: string) => api.get(`/account-links/${encodeURIComponent(token)}`, { schema: linkInfoSchema })
 export async function useLink(token: string, password: string): Promise<SessionInfo> {
   const info = await api.post(`/account-links/${encodeURIComponent(token)}`, { password }, { parse: (d) => sessionInfo.parse(d) })
   setCsrfToken(info.csrfToken)
   return info
 }
-export const requestReset = (email: string) => api.post<{ ok: true; message: string }>('/password-reset', { email })
+export const requestReset = (email: string) => api.post('/password-reset', { email }, { schema: resetRequested })
 export async function signOutEverywhere(): Promise<void> {
-  await api.delete('/session/everywhere')
+  await api.delete('/session/everywhere', { schema: signedOutEverywhere })
   setCsrfToken(null)
 }
 
-export const setMyPin = (pin: string) => api.put<{ personId: number; hasPin: boolean }>('/me/pin', { pin })
-export const setPersonPin = (personId: number, pin: string) => api.put<{ personId: number; hasPin: boolean }>(`/people/${personId}/pin`, { pin })
+export const setMyPin = (pin: string) => api.put('/me/pin', { pin }, { schema: pinSet })
+export const setPersonPin = (personId: number, pin: string) => api.put(`/people/${personId}/pin`, { pin }, { schema: pinSet })
 
 export async function startStation(benchId: number): Promise<SessionInfo> {
   const info = await api.post('/bench-station', { benchId }, { parse: (d) => sessionInfo.parse(d) })
   setCsrfToken(info.csrfToken)
   return info
 }
-export const stationPeople = () => api.get<StationPerson[]>('/bench-station/people')
+export const stationPeople = () => api.get('/bench-station/people', { schema: z.array(stationPerson) })
 export async function enterPin(personId: number, pin: string): Promise<PinSession> {
-  const s = await api.post<PinSession>('/bench-station/pin', { personId, pin })
+  const s = await api.post('/bench-station/pin', { personId, pin }, { schema: pinSession })
   setBenchPersonToken(s.token)
   return s
 }

@@ -11,7 +11,8 @@ import { route, type Deps } from '../../server/lib/route'
 import { waitForRun } from '../../server/planning/runs'
 import { startPayFake, type PayFake } from '../../server/dev/pay-fake'
 import * as s from '../../server/db/schema/index'
-import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { newLinkToken } from '../../server/services/accounts'
+import { Agent, createTestApp, signedIn, type TestApp } from '../setup/app'
 import { alloyIdByCode, firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, templateId } from '../setup/fixtures'
 
 let t: TestApp
@@ -469,6 +470,44 @@ describe('answers on the demo workshop', () => {
     await call(owner, 'post', '/refining-lots/:id/settle', `/refining-lots/${lot.id}/settle`, { version: sent.version, creditedFineG: 0.74 })
     const settled = await call(owner, 'get', '/refining-lots/:id', `/refining-lots/${lot.id}`)
     expect(settled.byAlloy.length).toBe(1)
+  })
+
+  it('when people are invited, use a one-time link, ask for a reset, set PINs and act at a bench station, then every account answer is what its schema allows', async () => {
+    const invited = await call(owner, 'post', '/invitations', '/invitations', { email: 'contract@invite.test', name: 'Contract Newcomer', role: 'sales' }, 201)
+    await call(owner, 'post', '/invitations/:id/resend', `/invitations/${invited.id}/resend`)
+    const pending = await call(owner, 'get', '/invitations', '/invitations')
+    expect(pending.map((i: { id: number }) => i.id)).toContain(invited.id)
+
+    // A link of our own making (the e-mail that carries the real one is not read here): only its SHA-256 is stored.
+    const { token, hash } = newLinkToken()
+    await t.db.insert(s.accountTokens).values({
+      workshopId: await firstWorkshopId(t.db),
+      kind: 'invite',
+      tokenHash: hash,
+      email: 'contract@link.test',
+      name: 'Contract Linked',
+      role: 'sales',
+      expiresAt: new Date(Date.now() + 3_600_000),
+    })
+    const newcomer = new Agent(t.app)
+    await newcomer.refreshCsrf()
+    await call(newcomer, 'get', '/account-links/:token', `/account-links/${token}`)
+    const signedInByLink = await call(newcomer, 'post', '/account-links/:token', `/account-links/${token}`, { password: 'a good long password' })
+    newcomer.csrf = signedInByLink.csrfToken
+    await call(newcomer, 'post', '/password-reset', '/password-reset', { email: 'contract@link.test' }, 202)
+    const out = await call(newcomer, 'delete', '/session/everywhere', '/session/everywhere')
+    expect(out.ended).toBeGreaterThan(0)
+
+    const bench = await signedIn(t.app, 'bench')
+    const mine = await call(bench, 'put', '/me/pin', '/me/pin', { pin: '4821' })
+    await call(owner, 'put', '/people/:id/pin', `/people/${mine.personId}/pin`, { pin: '4822' })
+    const station = await signedIn(t.app, 'manager')
+    const benches = (await manager.get('/api/benches')).body as { id: number }[]
+    const started = await call(station, 'post', '/bench-station', '/bench-station', { benchId: benches[0]!.id })
+    station.csrf = started.csrfToken
+    const people = await call(station, 'get', '/bench-station/people', '/bench-station/people')
+    expect(people.length).toBeGreaterThan(0)
+    await call(station, 'post', '/bench-station/pin', '/bench-station/pin', { personId: mine.personId, pin: '4822' })
   })
 
   it('when every call above is done, then each route with a response schema was called at least once', () => {

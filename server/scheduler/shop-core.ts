@@ -27,6 +27,8 @@ export interface ShopSearchSettings {
   clock: () => number
   maxIterations?: number
   shouldStop?: () => boolean
+  /** Tests only: after each move, recompute heads and tails in full and throw if the partial update differs. */
+  verifyIncremental?: boolean
   /** Called whenever the best makespan improves. */
   onImprove?: (makespan: number, iteration: number) => void
 }
@@ -159,6 +161,11 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     }
   }
 
+  // Position of each operation in the current topological order, the part of it a move re-orders, and the last step of each job.
+  const pos = new Int32Array(n),
+    suffix = new Int32Array(n)
+  const lastOps: number[] = []
+  for (let i = 0; i < n; i++) if (jobSucc[i]! < 0) lastOps.push(i)
   /** Heads by Kahn's order; false when the graph has a cycle. */
   const computeHeads = (): boolean => {
     let qh = 0,
@@ -195,7 +202,82 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
         if (d === 0) topo[qt++] = ms
       }
     }
-    return qt === n
+    if (qt !== n) return false
+    for (let k = 0; k < n; k++) pos[topo[k]!] = k
+    return true
+  }
+  /**
+   * Heads after a move that changed the in-arcs of operations from position `from` of the current order on: the operations
+   * before it keep their heads and places; the rest are re-ordered by Kahn's rule among themselves. False on a cycle (the order
+   * is then spoilt: call computeHeads after undoing the move).
+   */
+  const computeHeadsFrom = (from: number): boolean => {
+    let cnt = 0
+    for (let k = from; k < n; k++) suffix[cnt++] = topo[k]!
+    let qt = from
+    for (let c = 0; c < cnt; c++) {
+      const i = suffix[c]!
+      const jp = jobPred[i]!,
+        mp = mPred[i]!
+      const d = (jp >= 0 && pos[jp]! >= from ? 1 : 0) + (mp >= 0 && pos[mp]! >= from ? 1 : 0)
+      indeg[i] = d
+      if (d === 0) topo[qt++] = i
+    }
+    let qh = from
+    while (qh < qt) {
+      const x = topo[qh++]!
+      let rx = rel[x]!
+      const jp = jobPred[x]!,
+        mp = mPred[x]!
+      if (jp >= 0) {
+        const e = r[jp]! + p[jp]!
+        if (e > rx) rx = e
+      }
+      if (mp >= 0) {
+        const e = r[mp]! + p[mp]!
+        if (e > rx) rx = e
+      }
+      r[x] = rx
+      const js = jobSucc[x]!,
+        ms = mSucc[x]!
+      if (js >= 0) {
+        const d = indeg[js]! - 1
+        indeg[js] = d
+        if (d === 0) topo[qt++] = js
+      }
+      if (ms >= 0) {
+        const d = indeg[ms]! - 1
+        indeg[ms] = d
+        if (d === 0) topo[qt++] = ms
+      }
+    }
+    if (qt !== n) return false
+    for (let k = from; k < n; k++) pos[topo[k]!] = k
+    return true
+  }
+  /** Tails of the operations up to position `upTo` of the order (those after it cannot reach a changed arc); returns the makespan. */
+  const computeTailsUpTo = (upTo: number): number => {
+    for (let k = upTo; k >= 0; k--) {
+      const x = topo[k]!
+      let qx = 0
+      const js = jobSucc[x]!,
+        ms = mSucc[x]!
+      if (js >= 0) {
+        const e = q[js]! + p[js]!
+        if (e > qx) qx = e
+      }
+      if (ms >= 0) {
+        const e = q[ms]! + p[ms]!
+        if (e > qx) qx = e
+      }
+      q[x] = qx
+    }
+    let c = 0
+    for (const x of lastOps) {
+      const e = r[x]! + p[x]!
+      if (e > c) c = e
+    }
+    return c
   }
   const computeTails = (): number => {
     let cmax = 0
@@ -336,7 +418,7 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     // One critical path, ties broken at random so that different paths get explored.
     let end = -1,
       cnt = 0
-    for (let i = 0; i < n; i++) {
+    for (const i of lastOps) {
       if (q[i] === 0 && r[i]! + p[i]! === cmax) {
         cnt++
         if (rng.int(cnt) === 0) end = i
@@ -537,10 +619,17 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     const oldMach = mach[mvOp]!,
       oldAfter = mPred[mvOp]!,
       oldDur = p[mvOp]!
+    // Arcs change into the moved operation, its old machine successor and its new one; out of it, its old machine predecessor
+    // and its new one. Heads are redone from the first of the former, tails up to the last of the latter.
+    const oldSucc = mSucc[mvOp]!
+    const newSucc = mvAfter >= 0 ? mSucc[mvAfter]! : mHead[mvMach]!
+    let from = pos[mvOp]!
+    if (oldSucc >= 0 && pos[oldSucc]! < from) from = pos[oldSucc]!
+    if (newSucc >= 0 && newSucc !== mvOp && pos[newSucc]! < from) from = pos[newSucc]!
     unlink(mvOp)
     p[mvOp] = mvDur
     linkAfter(mvOp, mvMach, mvAfter)
-    if (!computeHeads()) {
+    if (!computeHeadsFrom(from)) {
       unlink(mvOp)
       p[mvOp] = oldDur
       linkAfter(mvOp, oldMach, oldAfter)
@@ -549,7 +638,21 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
       if (mvKind === 2) machTabu[mvOp * m + mvMach] = iter + tenure()
       continue
     }
-    cmax = computeTails()
+    let upTo = pos[mvOp]!
+    if (oldAfter >= 0 && pos[oldAfter]! > upTo) upTo = pos[oldAfter]!
+    if (mvAfter >= 0 && pos[mvAfter]! > upTo) upTo = pos[mvAfter]!
+    cmax = computeTailsUpTo(upTo)
+    if (settings.verifyIncremental) {
+      // Tests: the partial update must give the heads, tails and makespan a full recomputation gives.
+      const r0 = r.slice(),
+        q0 = q.slice(),
+        c0 = cmax
+      computeHeads()
+      cmax = computeTails()
+      for (let i = 0; i < n; i++)
+        if (r[i] !== r0[i] || q[i] !== q0[i]) throw new Error(`shop core: incremental update differs at operation ${i} (iteration ${iter})`)
+      if (cmax !== c0) throw new Error(`shop core: incremental makespan ${c0} against ${cmax} (iteration ${iter})`)
+    }
     const ten = tenure()
     if (mvKind === 0) {
       const u = mvOp

@@ -1,5 +1,5 @@
 // Work at the bench: what is next for me, my work, and claim / start / pause / resume / finish — each replay-safe and pushed live.
-import { and, asc, desc, eq, inArray, isNull, ne, sql } from 'drizzle-orm'
+import { and, asc, desc, eq, gt, inArray, isNull, ne, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/pg-core'
 import { STAFF } from '../../shared/domain/roles'
 import { HELD_OPERATION, canMoveOperation, cautionsFor, type OperationStatus } from '../../shared/domain/status'
@@ -17,9 +17,22 @@ import type {
   StartInput,
   TransitionResult,
 } from '../../shared/schemas/bench-floor'
-import type { PieceParams } from '../../shared/schemas/order'
+import { stonesToSet } from '../../shared/domain/stones'
 import type { Db, Trx, Tx } from '../db/client'
-import { benchCapabilities, benchRequests, benches, jobBags, operationKinds, operations, orders, people, personSkills, timeRecords } from '../db/schema/index'
+import {
+  benchCapabilities,
+  benchRequests,
+  benches,
+  jobBags,
+  jobBagStones,
+  operationKinds,
+  operations,
+  orders,
+  people,
+  personSkills,
+  routingSteps,
+  timeRecords,
+} from '../db/schema/index'
 import { AppError, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
@@ -45,6 +58,7 @@ const opFields = {
   outside: operationKinds.outside,
   requiredLevel: operations.requiredLevel,
   estimateMinutes: operations.estimateMinutes,
+  estimateSource: operations.estimateSource,
   plannedStart: operations.plannedStart,
   claimedBy: operations.claimedBy,
   claimedByName: claimer.name,
@@ -57,6 +71,7 @@ const opFields = {
   priority: orders.priority,
   after: operations.after,
   params: jobBags.params,
+  routingId: jobBags.routingId,
 }
 const baseQuery = (tx: Tx) =>
   tx
@@ -75,6 +90,8 @@ export async function toBenchOperations(tx: Tx, rows: OpRow[]): Promise<BenchOpe
     rows.map((r) => r.id),
   )
   const actual = actualMinutesByOperation(records)
+  const stones = await stonesByBag(tx, rows)
+  const counting = await countingStones(tx, rows)
   return rows.map((r) => ({
     id: r.id,
     version: r.version,
@@ -89,6 +106,8 @@ export async function toBenchOperations(tx: Tx, rows: OpRow[]): Promise<BenchOpe
     cautions: cautionsFor(r.hazards),
     requiredLevel: r.requiredLevel,
     estimateMinutes: r.estimateMinutes,
+    estimateSource: r.estimateSource,
+    estimateCountsStones: counting.has(r.id),
     actualMinutes: actual.get(r.id) ?? 0,
     runningSince: records.find((x) => x.operationId === r.id && !x.endedAt && !x.voided)?.startedAt ?? null,
     plannedStart: r.plannedStart ? new Date(r.plannedStart).toISOString() : null,
@@ -100,17 +119,40 @@ export async function toBenchOperations(tx: Tx, rows: OpRow[]): Promise<BenchOpe
     orderNumber: r.orderNumber,
     dueDate: r.dueDate,
     priority: r.priority,
-    stones: stonesOf(r.params),
+    stones: stones.get(r.jobBagId)!,
     metal: r.params?.metal ?? null,
   }))
 }
 
-/** The stones the job bag's piece parameters describe: per piece, their size, and over all pieces of the bag. */
-export function stonesOf(params: Partial<PieceParams> | null | undefined): BenchStones {
-  const perPiece = Math.max(0, Math.round(params?.stoneCount ?? 0))
-  const pieces = Math.max(1, Math.round(params?.quantity ?? 1))
-  const sizeMm = params?.stoneSizeMm && params.stoneSizeMm > 0 ? params.stoneSizeMm : null
-  return { perPiece, pieces, total: perPiece * pieces, sizeMm }
+/** The stones to set for each job bag, counted by the setting estimate's rule (its stone list, else its piece figures). */
+async function stonesByBag(tx: Tx, rows: Pick<OpRow, 'jobBagId' | 'params'>[]): Promise<Map<number, BenchStones>> {
+  const ids = [...new Set(rows.map((r) => r.jobBagId))]
+  const lines = ids.length
+    ? await tx
+        .select({ jobBagId: jobBagStones.jobBagId, sizeMm: jobBagStones.sizeMm, count: jobBagStones.count })
+        .from(jobBagStones)
+        .where(inArray(jobBagStones.jobBagId, ids))
+    : []
+  return new Map(
+    rows.map((r) => [
+      r.jobBagId,
+      stonesToSet(
+        r.params,
+        lines.filter((l) => l.jobBagId === r.jobBagId),
+      ),
+    ]),
+  )
+}
+
+/** Operations whose planned minutes count stones: their routing step has minutes per stone and no lead days (as recomputeStoneSteps). */
+async function countingStones(tx: Tx, rows: Pick<OpRow, 'id' | 'key' | 'routingId'>[]): Promise<Set<number>> {
+  const routingIds = [...new Set(rows.map((r) => r.routingId).filter((x): x is number => x !== null))]
+  if (!routingIds.length) return new Set()
+  const steps = await tx
+    .select({ routingId: routingSteps.routingId, key: routingSteps.key })
+    .from(routingSteps)
+    .where(and(inArray(routingSteps.routingId, routingIds), gt(routingSteps.perStoneMinutes, 0), eq(routingSteps.leadDays, 0)))
+  return new Set(rows.filter((r) => steps.some((st) => st.routingId === r.routingId && st.key === r.key)).map((r) => r.id))
 }
 
 /** The bench-facing rows of some operations. */

@@ -145,6 +145,56 @@ export function stoneListStepMinutes(
   return Math.round(all * 10) / 10
 }
 
+// ---------------------------------------------------------------------------------------------------------------
+// The stones a setter sets: one count for the bench, the stone list and the setting estimate
+
+/** What the count was taken from: the job bag's own stone list, or the order's piece figures when the bag has no list. */
+export type StoneSource = 'stone-list' | 'piece-figures'
+
+export interface StonesToSet {
+  source: StoneSource
+  perPiece: number
+  pieces: number
+  /** perPiece × pieces */
+  total: number
+  /** The one stone size (mm); null when not given or when the list has several sizes. */
+  sizeMm: number | null
+  /** Smallest and largest size when the list has several; null otherwise. */
+  sizeRangeMm: { min: number; max: number } | null
+  /** The piece figures, when the list is counted and they say otherwise (another count, or a size not on the list); else null. */
+  pieceFigures: { perPiece: number; sizeMm: number | null } | null
+}
+
+/**
+ * The stones to set for a job bag, by the same rule as the setting estimate (recomputeStoneSteps): a bag with its own stone
+ * list is counted from the list (each line's count is per piece); a bag without one from the piece figures. Pieces always
+ * come from the piece figures' quantity.
+ */
+export function stonesToSet(
+  params: Partial<Pick<PieceParams, 'stoneCount' | 'stoneSizeMm' | 'quantity'>> | null | undefined,
+  lines: readonly Pick<StoneLineForMinutes, 'sizeMm' | 'count'>[],
+): StonesToSet {
+  const pieces = Math.max(1, Math.round(params?.quantity ?? 1))
+  const figCount = Math.max(0, Math.round(params?.stoneCount ?? 0))
+  const figSize = params?.stoneSizeMm && params.stoneSizeMm > 0 ? params.stoneSizeMm : null
+  if (!lines.length)
+    return { source: 'piece-figures', perPiece: figCount, pieces, total: figCount * pieces, sizeMm: figSize, sizeRangeMm: null, pieceFigures: null }
+  const perPiece = lines.reduce((n, l) => n + l.count, 0)
+  const sizes = [...new Set(lines.map((l) => l.sizeMm))].sort((a, b) => a - b)
+  const one = sizes.length === 1 ? sizes[0]! : null
+  // Figures that give no count say nothing against the list; a size is checked only when the figures give one.
+  const differs = figCount > 0 && (figCount !== perPiece || (figSize !== null && !sizes.includes(figSize)))
+  return {
+    source: 'stone-list',
+    perPiece,
+    pieces,
+    total: perPiece * pieces,
+    sizeMm: one,
+    sizeRangeMm: one === null ? { min: sizes[0]!, max: sizes[sizes.length - 1]! } : null,
+    pieceFigures: differs ? { perPiece: figCount, sizeMm: figSize } : null,
+  }
+}
+
 /** "1 × 6.5 mm round diamond, 1.00 ct est."; with a measured depth "1 × 6.5 mm round diamond, 3.9 mm deep, 0.98 ct est." */
 export function stoneLineWords(l: {
   count: number

@@ -5,6 +5,7 @@ import type { BrowserContext, Page } from 'playwright-core'
 import * as s from '../../server/db/schema/index'
 import { DEMO_PASSWORD, makeStepReady, screenshot, signInWith, useE2E } from '../setup/e2e'
 import { benchIdByName, openOrderStep, setPieceParams } from '../setup/fixtures'
+import { recomputeStoneSteps } from '../../server/services/stones'
 
 const e2e = useE2E()
 const TABLET_LANDSCAPE = { width: 1280, height: 800 }
@@ -35,7 +36,27 @@ describe('the bench tablet', () => {
   it('when the setter works a setting job through, then each tap moves it and the manager’s job bag page follows live', async () => {
     const op = await firstPending('setting', 'set')
     await makeReady(op.id)
-    await setPieceParams(e2e.db.db, op.jobBagId, { stoneCount: 12, stoneSizeMm: 1.3, quantity: 2 })
+    // This bag has its own stone list (the demo's pavé pendant: 18 pavé stones of 1.5 mm a piece); its piece figures now say
+    // otherwise (12 of 1.3 mm) and 2 pieces. The setting estimate is kept in step as an edit in the app keeps it.
+    const [bag] = await e2e.db.db
+      .select({ routing: s.routings.code })
+      .from(s.jobBags)
+      .innerJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
+      .where(eq(s.jobBags.id, op.jobBagId))
+    expect(bag!.routing).toBe('pave-pendant')
+    const lines = await e2e.db.db
+      .select({ role: s.jobBagStones.role, count: s.jobBagStones.count, sizeMm: s.jobBagStones.sizeMm })
+      .from(s.jobBagStones)
+      .where(eq(s.jobBagStones.jobBagId, op.jobBagId))
+    expect(lines).toEqual([{ role: 'pave', count: 18, sizeMm: 1.5 }])
+    await setPieceParams(e2e.db.db, op.jobBagId, { stoneCount: 12, stoneSizeMm: 1.3, sizeMm: 22, quantity: 2 })
+    const [mgr] = await e2e.db.db
+      .select({ userId: s.users.id, workshopId: s.users.workshopId, name: s.users.name })
+      .from(s.users)
+      .where(eq(s.users.email, 'manager@wrenfield.test'))
+    await e2e.db.db.transaction((tx) =>
+      recomputeStoneSteps(tx, { ...mgr!, role: 'manager', personId: null }, op.jobBagId, 'Piece figures: 12 of 1.3 mm a piece, 2 pieces'),
+    )
     const benchId = await benchIdByName(e2e.db.db, 'Setting bench A')
 
     const manager = await tablet('manager@wrenfield.test')
@@ -69,12 +90,26 @@ describe('the bench tablet', () => {
     await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Working'), op.id, {
       timeout: 10_000,
     })
-    // What to set, on the running card: hand-worked from the bag's parameters set above (12 stones a piece × 2 pieces = 24, 1.3 mm, under 1.5 mm).
-    const facts = page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=work-facts]`)
-    await expect(facts.locator('[data-test=stone-count]').innerText()).resolves.toMatch(/Stones\s+24\s+12 a piece × 2 pieces/i)
-    await expect(facts.locator('[data-test=stone-size]').innerText()).resolves.toMatch(/Stone size\s+1\.3 mm\s+under 1\.5 mm/i)
+    // What to set, on the running card: the bag has its own stone list, so it is counted, hand-worked:
+    // 18 a piece (the list) × 2 pieces = 36 of 1.5 mm (band 1.5–3 mm), not the figures' 12 × 2 = 24 of 1.3 mm.
+    const running = page.locator(`[data-test=my-work] [data-op="${op.id}"]`)
+    const facts = running.locator('[data-test=work-facts]')
+    await expect(facts.locator('[data-test=stone-count]').innerText()).resolves.toMatch(/Stones\s+36\s+18 a piece × 2 pieces/i)
+    await expect(facts.locator('[data-test=stone-size]').innerText()).resolves.toMatch(/Stone size\s+1\.5 mm\s+1\.5–3 mm/i)
+    // The figures that say otherwise are named, with what the planned time follows.
+    await expect(running.locator('[data-test=stone-source]').innerText()).resolves.toBe(
+      "Counted from the stone list. The order's figures say 12 × 1.3 mm a piece; the planned time follows the stone list.",
+    )
+    // The stone list beside it gives the same count: one line of 18 a piece × 2 pieces = 36 of 1.5 mm.
+    const listLine = running.locator('[data-test=stone-count-back] .scb__what')
+    await listLine.waitFor()
+    await expect(listLine.allInnerTexts()).resolves.toEqual([expect.stringMatching(/^Pavé · 36 × 1\.5 mm round diamond/)])
+    // Planned minutes, hand-worked from the seeded pavé pendant routing (set: base 30 + 7 min a stone, no band factor for
+    // 1.5–3 mm, no learning curve, pavé role factor 1 — shared/domain/stones.ts, common practice, no source):
+    // (30 + 7 × 18) × 2 = 156 × 2 = 312 min; counting the figures instead would give (30 + 7 × 12 × 1.2) × 2 = 261.6.
     const planned = (await e2e.db.db.select({ m: s.operations.estimateMinutes }).from(s.operations).where(eq(s.operations.id, op.id)))[0]!.m
-    await expect(facts.locator('[data-test=planned-minutes]').innerText()).resolves.toMatch(new RegExp(`Planned\\s+${Math.round(planned)} min`, 'i'))
+    expect(planned).toBe(312)
+    await expect(facts.locator('[data-test=planned-minutes]').innerText()).resolves.toMatch(/Planned\s+312 min/i)
     await screenshot(page, 'bench-03-running-landscape')
 
     await mine.locator('[data-test=pause]').click()
@@ -95,6 +130,13 @@ describe('the bench tablet', () => {
     await card(page, 'my-work', op.id).waitFor({ state: 'detached' })
     await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Done'), op.id, { timeout: 10_000 })
     await manager.page.waitForFunction(() => document.querySelector('[data-test=history]')?.textContent?.includes('finished'), null, { timeout: 10_000 })
+    // The bag's next step (polishing) names the same count; its planned time does not count stones, so the note says no more.
+    const nextStep = manager.page.locator('[data-test=next-step]')
+    await nextStep.locator('[data-test=stones-short]').waitFor()
+    await expect(nextStep.locator('[data-test=stones-short]').innerText()).resolves.toBe('36 stones of 1.5 mm (18 a piece × 2 pieces)')
+    await expect(nextStep.locator('[data-test=stone-source]').innerText()).resolves.toBe(
+      "Counted from the stone list. The order's figures say 12 × 1.3 mm a piece.",
+    )
     await screenshot(manager.page, 'bench-05-manager-job-bag-live')
 
     const tr = s.timeRecords

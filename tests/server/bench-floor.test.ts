@@ -1,7 +1,7 @@
 // Bench floor API against real PostgreSQL: next for me, claim / start / pause / resume / finish, refusals, replays, 50 claims at once, time corrections.
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { HAZARD_CAUTIONS, HAZARD_FOOTER } from '../../shared/domain/status'
-import { and, arrayContains, asc, count, eq, inArray } from 'drizzle-orm'
+import { and, arrayContains, asc, count, eq, inArray, isNull } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { auditRows, expectCleanError, expectFieldError } from './helpers'
@@ -535,6 +535,8 @@ describe('acting on behalf and outside work', () => {
 describe('what a running card shows', () => {
   it('when a setter starts setting a bag of 3 pieces with 14 stones of 1.25 mm each, then the operation carries 14 a piece × 3 = 42 stones, their size and the step’s planned minutes', async () => {
     const op = await freshReady(t, 'setting', 'set')
+    // A bag without a stone list of its own: the piece figures are what is counted.
+    await t.db.delete(s.jobBagStones).where(eq(s.jobBagStones.jobBagId, op.job_bag_id))
     await mergeParams(op.job_bag_id, { stoneCount: 14, stoneSizeMm: 1.25, quantity: 3 })
     const row = (
       await t.db
@@ -548,18 +550,79 @@ describe('what a running card shows', () => {
     const r = await card!.agent.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     // Hand-worked: 14 stones per piece × 3 pieces = 42; the size is the bag's stoneSizeMm as recorded.
-    expect(r.body.operation.stones).toEqual({ perPiece: 14, pieces: 3, total: 42, sizeMm: 1.25 })
+    const counted = { source: 'piece-figures', perPiece: 14, pieces: 3, total: 42, sizeMm: 1.25, sizeRangeMm: null, pieceFigures: null }
+    expect(r.body.operation.stones).toEqual(counted)
     // Planned minutes are the operation's own estimate, as stored (not recomputed for the card).
     expect(r.body.operation.estimateMinutes).toBe(row.estimateMinutes)
     expect(r.body.operation.metal).toBe(row.params.metal)
     const mine = await card!.agent.get('/api/bench/mine')
-    expect(mine.body.items.find((x: { id: number }) => x.id === op.id).stones).toEqual({ perPiece: 14, pieces: 3, total: 42, sizeMm: 1.25 })
+    expect(mine.body.items.find((x: { id: number }) => x.id === op.id).stones).toEqual(counted)
   })
 
   it('when a bag records no stone size, then the size is null rather than 0 mm', async () => {
     const op = await freshReady(t, 'setting', 'set')
+    await t.db.delete(s.jobBagStones).where(eq(s.jobBagStones.jobBagId, op.job_bag_id))
     await mergeParams(op.job_bag_id, { stoneCount: 6, stoneSizeMm: 0, quantity: 1 })
     const r = await setter.get(`/api/bench/next?benchId=${setA}`)
-    expect(r.body.items.find((x: { id: number }) => x.id === op.id).stones).toEqual({ perPiece: 6, pieces: 1, total: 6, sizeMm: null })
+    expect(r.body.items.find((x: { id: number }) => x.id === op.id).stones).toMatchObject({
+      source: 'piece-figures',
+      perPiece: 6,
+      pieces: 1,
+      total: 6,
+      sizeMm: null,
+    })
+  })
+
+  it('when a pavé pendant’s stone list says 18 of 1.5 mm and its piece figures 12 of 1.3 mm × 2 pieces, then the card, the stone list and the setting estimate all count the list', async () => {
+    const [found] = await t.db
+      .select({ id: s.operations.id, jobBagId: s.operations.jobBagId })
+      .from(s.operations)
+      .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+      .innerJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
+      .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .where(
+        and(
+          eq(s.routings.code, 'pave-pendant'),
+          eq(s.operations.key, 'set'),
+          inArray(s.operations.status, ['pending', 'ready']),
+          isNull(s.operations.claimedBy),
+          eq(s.orders.status, 'open'),
+        ),
+      )
+      .orderBy(asc(s.jobBags.id))
+      .limit(1)
+    expect(found, 'an open pavé pendant whose setting is not started').toBeDefined()
+    const op = found!
+    await makeReady(t, op.id)
+    // The order was taken with 12 stones of 1.3 mm a piece, 2 pieces; the bag's own stone list then says 18 pavé of 1.5 mm.
+    await t.db.delete(s.jobBagStones).where(eq(s.jobBagStones.jobBagId, op.jobBagId))
+    await mergeParams(op.jobBagId, { stoneCount: 12, stoneSizeMm: 1.3, sizeMm: 22, quantity: 2 })
+    const added = await manager.post(`/api/job-bags/${op.jobBagId}/stones`, { role: 'pave', sizeMm: 1.5, count: 18 })
+    expect(added.status, JSON.stringify(added.body)).toBe(201)
+    // The stone list as the bench's count-back panel shows it: 18 a piece × 2 pieces = 36 of 1.5 mm.
+    expect(added.body.lines.map((l: { count: number; sizeMm: number }) => [l.count * added.body.quantity, l.sizeMm])).toEqual([[36, 1.5]])
+
+    // Setting estimate, hand-worked from the seeded pavé pendant routing (set: base 30 + 7 min a stone, band factors melee 1.2,
+    // large 1.5, none for 1.5–3 mm; no learning curve; pavé role factor 1, shared/domain/stones.ts, common practice, no source):
+    //   from the list:    (30 + 7 × 18 × 1 × 1) × 2 = 156 × 2 = 312 min
+    //   (from the figures it would be (30 + 7 × 12 × 1.2) × 2 = 130.8 × 2 = 261.6 min)
+    expect((await opRow(op.id)).estimateMinutes).toBe(312)
+
+    const [card] = await extraSetters(t, 1, 'list')
+    expect((await card!.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })).status).toBe(200)
+    const r = await card!.agent.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: setA })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    // Hand-worked: 18 a piece (the list) × 2 pieces (the figures' quantity) = 36 of 1.5 mm, not 12 × 2 = 24 of 1.3 mm;
+    // the figures are named because they say otherwise.
+    expect(r.body.operation.stones).toEqual({
+      source: 'stone-list',
+      perPiece: 18,
+      pieces: 2,
+      total: 36,
+      sizeMm: 1.5,
+      sizeRangeMm: null,
+      pieceFigures: { perPiece: 12, sizeMm: 1.3 },
+    })
+    expect(r.body.operation).toMatchObject({ estimateMinutes: 312, estimateSource: 'template', estimateCountsStones: true })
   })
 })

@@ -9,6 +9,7 @@ import {
   roleFactor,
   stoneListStepMinutes,
   stoneLineWords,
+  stonesToSet,
 } from '../../shared/domain/stones'
 
 describe('carat estimate of a round brilliant', () => {
@@ -137,5 +138,43 @@ describe('the count in words', () => {
     expect(differenceWords({ issued: 14, difference: 2 })).toBe('2 not counted back')
     expect(differenceWords({ issued: 14, difference: 0 })).toBe('all counted')
     expect(differenceWords({ issued: 3, difference: -1 })).toBe('1 more counted back than given out')
+  })
+})
+
+describe('the stones to set', () => {
+  it('when a bag with a stone list has piece figures that say otherwise, then the list is counted and the figures are named beside it', () => {
+    // Hand-worked: list 18 × 1.5 mm a piece, figures 12 × 1.3 mm × 2 pieces → 18 a piece × 2 pieces = 36 of 1.5 mm (not 12 × 2 = 24).
+    expect(stonesToSet({ stoneCount: 12, stoneSizeMm: 1.3, quantity: 2 }, [{ sizeMm: 1.5, count: 18 }])).toEqual({
+      source: 'stone-list',
+      perPiece: 18,
+      pieces: 2,
+      total: 36,
+      sizeMm: 1.5,
+      sizeRangeMm: null,
+      pieceFigures: { perPiece: 12, sizeMm: 1.3 },
+    })
+  })
+
+  it('when a halo ring’s list has a centre and 14 halo stones and its figures say 15 of 1.5 mm, then 15 a piece are counted over two sizes and nothing differs', () => {
+    // Hand-worked: 1 centre of 7 mm + 14 halo of 1.5 mm = 15 a piece; 15 × 1 piece = 15; sizes 1.5–7 mm; the figures' 1.5 mm is on the list.
+    expect(
+      stonesToSet({ stoneCount: 15, stoneSizeMm: 1.5, quantity: 1 }, [
+        { sizeMm: 7, count: 1 },
+        { sizeMm: 1.5, count: 14 },
+      ]),
+    ).toEqual({ source: 'stone-list', perPiece: 15, pieces: 1, total: 15, sizeMm: null, sizeRangeMm: { min: 1.5, max: 7 }, pieceFigures: null })
+  })
+
+  it('when a bag has no stone list, then the piece figures are counted', () => {
+    // Hand-worked: 14 a piece × 3 pieces = 42 of 1.25 mm; no size given reads as null, not 0 mm.
+    expect(stonesToSet({ stoneCount: 14, stoneSizeMm: 1.25, quantity: 3 }, [])).toMatchObject({
+      source: 'piece-figures',
+      perPiece: 14,
+      pieces: 3,
+      total: 42,
+      sizeMm: 1.25,
+      pieceFigures: null,
+    })
+    expect(stonesToSet({ stoneCount: 6, stoneSizeMm: 0, quantity: 1 }, [])).toMatchObject({ total: 6, sizeMm: null })
   })
 })

@@ -1,7 +1,19 @@
 // Insights and estimating routes: the owner's estimate-vs-actual tables, job costing, learned estimates and their acceptance.
 import type { Role } from '../../shared/domain/roles'
+import { z } from 'zod'
 import {
   acceptSuggestionInput,
+  biasTrend,
+  comparisonTable,
+  costingTable,
+  drillDown,
+  learnedEstimates,
+  operationCostSet,
+  scatterPoint,
+  stepChange,
+  stepCost,
+  stepCostSet,
+  threePointEstimate,
   comparisonQuery,
   costingQuery,
   insightFilter,
@@ -26,6 +38,7 @@ export const insightRoutes = [
     roles: OWNER,
     summary: 'Estimated against actual hours by kind, person, routing, order or month (owner; ?format=csv)',
     query: comparisonQuery,
+    response: comparisonTable,
     handler: async ({ deps, actor, query, res }) => {
       const t = await insights.comparison(deps.db, actor.workshopId, query.groupBy, query)
       return query.format === 'csv' ? insights.sendCsv(res, `estimates-by-${query.groupBy}`, insights.comparisonCsv(t)) : t
@@ -37,6 +50,7 @@ export const insightRoutes = [
     roles: STAFF,
     summary: 'Estimate accuracy by operation kind (owner, manager; ?format=csv)',
     query: costingQuery,
+    response: comparisonTable,
     handler: async ({ deps, actor, query, res }) => {
       const t = await insights.comparison(deps.db, actor.workshopId, 'kind', query)
       return query.format === 'csv' ? insights.sendCsv(res, 'estimate-accuracy-by-kind', insights.comparisonCsv(t)) : t
@@ -48,6 +62,7 @@ export const insightRoutes = [
     roles: OWNER,
     summary: 'The operations and time records behind one row (owner; ?format=csv)',
     query: recordsQuery,
+    response: drillDown,
     handler: async ({ deps, actor, query, res }) => {
       const d = await insights.drillDown(deps.db, actor.workshopId, query.groupBy, query.key, query)
       return query.format === 'csv' ? insights.sendCsv(res, `time-records-${query.groupBy}-${query.key}`, insights.drillCsv(d)) : d
@@ -59,6 +74,7 @@ export const insightRoutes = [
     roles: OWNER,
     summary: 'Estimate and actual minutes of each finished operation (owner)',
     query: insightFilter,
+    response: z.array(scatterPoint),
     handler: ({ deps, actor, query }) => insights.scatter(deps.db, actor.workshopId, query),
   }),
   route({
@@ -67,6 +83,7 @@ export const insightRoutes = [
     roles: OWNER,
     summary: 'Bias by kind per month (owner)',
     query: insightFilter,
+    response: biasTrend,
     handler: ({ deps, actor, query }) => insights.biasTrend(deps.db, actor.workshopId, query),
   }),
   route({
@@ -75,6 +92,7 @@ export const insightRoutes = [
     roles: OWNER,
     summary: 'Job costing: labour and outside work against the price quoted, margins at estimate and actual (owner; ?format=csv)',
     query: costingQuery,
+    response: costingTable,
     handler: async ({ deps, actor, query, res }) => {
       const t = await insights.costing(deps.db, actor.workshopId, query)
       return query.format === 'csv' ? insights.sendCsv(res, 'job-costing', insights.costingCsv(t)) : t
@@ -85,6 +103,7 @@ export const insightRoutes = [
     path: '/insights/outside-costs',
     roles: OWNER,
     summary: 'Outside-work steps of the routings with their expected cost per unit (owner)',
+    response: z.array(stepCost),
     handler: ({ deps, actor }) => insights.listStepCosts(deps.db, actor.workshopId),
   }),
   route({
@@ -94,6 +113,7 @@ export const insightRoutes = [
     summary: 'Expected outside cost per unit of a routing step (owner)',
     params: idParam,
     body: stepCostInput,
+    response: stepCostSet,
     handler: ({ deps, actor, params, body }) => insights.setStepCost(deps, actor, params.id, body.stepKey, body.outsideCostMinor),
   }),
   route({
@@ -103,6 +123,7 @@ export const insightRoutes = [
     summary: 'Invoiced outside cost of an operation (owner)',
     params: idParam,
     body: operationCostInput,
+    response: operationCostSet,
     handler: ({ deps, actor, params, body }) => insights.setOperationCost(deps, actor, params.id, body.outsideCostMinor),
   }),
 
@@ -112,6 +133,7 @@ export const insightRoutes = [
     roles: OWNER,
     summary: 'Figures learned from actual times: kinds, people, routing steps with suggestions (owner)',
     query: insightFilter,
+    response: learnedEstimates,
     handler: ({ deps, actor, query }) => estimates.learnEstimates(deps.db, actor.workshopId, query),
   }),
   route({
@@ -120,6 +142,7 @@ export const insightRoutes = [
     roles: OWNER,
     summary: 'Accept learned minutes into a routing step (owner; bumps the routing version)',
     body: acceptSuggestionInput,
+    response: stepChange,
     handler: ({ deps, actor, body }) => estimates.acceptSuggestion(deps, actor, body),
   }),
   route({
@@ -127,6 +150,7 @@ export const insightRoutes = [
     path: '/estimates/changes',
     roles: OWNER,
     summary: 'Accepted changes of routing minutes, newest first (owner)',
+    response: z.array(stepChange),
     handler: ({ deps, actor }) => estimates.listStepChanges(deps.db, actor.workshopId),
   }),
   route({
@@ -135,6 +159,7 @@ export const insightRoutes = [
     roles: STAFF,
     summary: 'PERT mean and variance from optimistic / most likely / pessimistic minutes',
     body: threePointInput,
+    response: threePointEstimate,
     handler: async ({ body }) => estimates.threePoint(body),
   }),
 ]

@@ -1,7 +1,7 @@
 // Estimates against actual hours, learned figures, three-point estimates and job costing: query/body schemas and answer shapes.
 import { z } from 'zod'
-import type { SizeBand } from '../domain/estimate'
-import { id, isoDate, version } from './common'
+import { SIZE_BANDS } from '../domain/estimate'
+import { id, isoDate, version, wireInt } from './common'
 
 export const GROUPINGS = ['kind', 'person', 'template', 'order', 'month'] as const
 export type Grouping = (typeof GROUPINGS)[number]
@@ -75,178 +75,208 @@ export const operationCostInput = z.object({ outsideCostMinor: money })
 // ---------------------------------------------------------------------------------------------------------------
 // Answers
 
-export interface ComparisonRow {
-  key: string
-  label: string
-  n: number
-  estimateHours: number
-  actualHours: number
+/** The filter as the answer names it back (plain values, no defaults). */
+const filterOut = z.object({ from: z.string().optional(), to: z.string().optional(), templateId: wireInt.optional() })
+
+export const comparisonRow = z.object({
+  key: z.string(),
+  label: z.string(),
+  n: wireInt,
+  estimateHours: z.number(),
+  actualHours: z.number(),
   /** actual − estimate (hours): positive = took longer than estimated. */
-  biasHours: number
-  biasPct: number | null
-  direction: 'over' | 'under' | 'even'
+  biasHours: z.number(),
+  biasPct: z.number().nullable(),
+  direction: z.enum(['over', 'under', 'even']),
   /** Mean over operations of |actual − estimate| ÷ actual, in %. */
-  mapePct: number | null
-}
-export interface ComparisonTable {
-  groupBy: Grouping
-  filter: InsightFilter
-  rows: ComparisonRow[]
-  total: ComparisonRow
-}
+  mapePct: z.number().nullable(),
+})
+export type ComparisonRow = z.infer<typeof comparisonRow>
+export const comparisonTable = z.object({ groupBy: z.enum(GROUPINGS), filter: filterOut, rows: z.array(comparisonRow), total: comparisonRow })
+export type ComparisonTable = z.infer<typeof comparisonTable>
 
-export interface ScatterPoint {
-  operationId: number
-  kindId: number
-  kind: string
-  estimateMinutes: number
-  actualMinutes: number
-  finishedAt: string
-}
-export interface BiasTrend {
-  months: string[]
-  series: { kindId: number; kind: string; color: string; biasPct: (number | null)[]; n: number[] }[]
-}
+export const scatterPoint = z.object({
+  operationId: wireInt,
+  kindId: wireInt,
+  kind: z.string(),
+  estimateMinutes: z.number(),
+  actualMinutes: z.number(),
+  finishedAt: z.string(),
+})
+export type ScatterPoint = z.infer<typeof scatterPoint>
+export const biasTrend = z.object({
+  months: z.array(z.string()),
+  series: z.array(z.object({ kindId: wireInt, kind: z.string(), color: z.string(), biasPct: z.array(z.number().nullable()), n: z.array(wireInt) })),
+})
+export type BiasTrend = z.infer<typeof biasTrend>
 
-export interface DrillRecord {
-  timeRecordId: number
-  personName: string
-  startedAt: string
-  endedAt: string | null
-  minutes: number
-  voided: boolean
-  corrected: boolean
-  endReason: string | null
-}
-export interface DrillOperation {
-  operationId: number
-  orderNumber: string
-  jobBagNumber: string
-  piece: string
-  step: string
-  kind: string
-  personName: string
-  finishedAt: string
-  estimateMinutes: number
-  estimateSource: string
-  actualMinutes: number
-  records: DrillRecord[]
-}
-export interface DrillDown {
-  groupBy: Grouping
-  key: string
-  label: string
-  operations: DrillOperation[]
-}
+export const drillRecord = z.object({
+  timeRecordId: wireInt,
+  personName: z.string(),
+  startedAt: z.string(),
+  endedAt: z.string().nullable(),
+  minutes: z.number(),
+  voided: z.boolean(),
+  corrected: z.boolean(),
+  endReason: z.string().nullable(),
+})
+export type DrillRecord = z.infer<typeof drillRecord>
+export const drillOperation = z.object({
+  operationId: wireInt,
+  orderNumber: z.string(),
+  jobBagNumber: z.string(),
+  piece: z.string(),
+  step: z.string(),
+  kind: z.string(),
+  personName: z.string(),
+  finishedAt: z.string(),
+  estimateMinutes: z.number(),
+  estimateSource: z.string(),
+  actualMinutes: z.number(),
+  records: z.array(drillRecord),
+})
+export type DrillOperation = z.infer<typeof drillOperation>
+export const drillDown = z.object({ groupBy: z.enum(GROUPINGS), key: z.string(), label: z.string(), operations: z.array(drillOperation) })
+export type DrillDown = z.infer<typeof drillDown>
 
-/** One complete order costed: amounts (`…Minor`) in integer minor units of the table's currency. */
-export interface CostingRow {
-  orderId: number
-  orderNumber: string
-  title: string
-  customerName: string
-  finishedOn: string
-  priceQuotedMinor: number
-  estimateHours: number
-  actualHours: number
-  metalAtEstimateMinor: number
-  metalAtActualMinor: number
-  stonesAtEstimateMinor: number
-  stonesAtActualMinor: number
-  labourAtEstimateMinor: number
-  labourAtActualMinor: number
-  outsideAtEstimateMinor: number
-  outsideAtActualMinor: number
-  costAtEstimateMinor: number
-  costAtActualMinor: number
-  marginAtEstimateMinor: number
-  marginAtActualMinor: number
-  marginPctAtEstimate: number | null
-  marginPctAtActual: number | null
+const costingFigures = {
+  priceQuotedMinor: wireInt,
+  estimateHours: z.number(),
+  actualHours: z.number(),
+  metalAtEstimateMinor: wireInt,
+  metalAtActualMinor: wireInt,
+  stonesAtEstimateMinor: wireInt,
+  stonesAtActualMinor: wireInt,
+  labourAtEstimateMinor: wireInt,
+  labourAtActualMinor: wireInt,
+  outsideAtEstimateMinor: wireInt,
+  outsideAtActualMinor: wireInt,
+  costAtEstimateMinor: wireInt,
+  costAtActualMinor: wireInt,
+  marginAtEstimateMinor: wireInt,
+  marginAtActualMinor: wireInt,
+  marginPctAtEstimate: z.number().nullable(),
+  marginPctAtActual: z.number().nullable(),
   /** Grams of the customer's own metal lost in the work: no cost to the workshop, shown all the same. */
-  customerMetalLossG: number
+  customerMetalLossG: z.number(),
   /** Finished outside-work steps, and those of them with no cost entered (expected or invoiced). */
-  outsideSteps: number
-  outsideUncosted: number
+  outsideSteps: wireInt,
+  outsideUncosted: wireInt,
   /** What each margin could not count, in words (shared/domain/costing.ts), or that all four parts are counted: shown beside the figure. */
-  caveatAtEstimate: string
-  caveatAtActual: string
+  caveatAtEstimate: z.string(),
+  caveatAtActual: z.string(),
 }
-export interface CostingTable {
-  filter: InsightFilter
+/** One complete order costed: amounts (`…Minor`) in integer minor units of the table's currency. */
+export const costingRow = z.object({
+  orderId: wireInt,
+  orderNumber: z.string(),
+  title: z.string(),
+  customerName: z.string(),
+  finishedOn: z.string(),
+  ...costingFigures,
+})
+export type CostingRow = z.infer<typeof costingRow>
+export const costingTable = z.object({
+  filter: filterOut,
   /** The workshop's currency (ISO 4217) the figures are in. */
-  currency: string
-  rows: CostingRow[]
-  total: Omit<CostingRow, 'orderId' | 'orderNumber' | 'title' | 'customerName' | 'finishedOn'> & { orders: number }
+  currency: z.string(),
+  rows: z.array(costingRow),
+  total: z.object({ ...costingFigures, orders: wireInt }),
   /** How every figure is reached, as one paragraph. */
-  note: string
-}
+  note: z.string(),
+})
+export type CostingTable = z.infer<typeof costingTable>
 
 /** How much history a learned figure rests on. */
-export interface History {
-  n: number
-  from: string | null
-  to: string | null
-  spread: { q1: number; median: number; q3: number; mad: number } | null
-}
-
-export interface KindFigure {
-  kindId: number
-  code: string
-  name: string
-  method: 'theil-sen' | 'ratio-of-medians'
+export const history = z.object({
+  n: wireInt,
+  from: z.string().nullable(),
+  to: z.string().nullable(),
+  spread: z.object({ q1: z.number(), median: z.number(), q3: z.number(), mad: z.number() }).nullable(),
+})
+export type History = z.infer<typeof history>
+const fitMethod = z.enum(['theil-sen', 'ratio-of-medians'])
+export const kindFigure = z.object({
+  kindId: wireInt,
+  code: z.string(),
+  name: z.string(),
+  method: fitMethod,
   /** median(actual at standard speed) ÷ median(estimate): above 1 = runs over. */
-  ratio: number | null
+  ratio: z.number().nullable(),
   /** Setting-like kinds: learned minutes per stone (Theil–Sen slope) and extra minutes on top of the routing base. */
-  perStoneMinutes: number | null
-  extraBaseMinutes: number | null
-  sizeBands: { band: SizeBand; factor: number; n: number }[]
-  history: History
-}
-export interface PersonFigure {
-  personId: number
-  name: string
+  perStoneMinutes: z.number().nullable(),
+  extraBaseMinutes: z.number().nullable(),
+  sizeBands: z.array(z.object({ band: z.enum(SIZE_BANDS), factor: z.number(), n: wireInt })),
+  history,
+})
+export type KindFigure = z.infer<typeof kindFigure>
+export const personFigure = z.object({
+  personId: wireInt,
+  name: z.string(),
   /** median(estimate ÷ actual) over their finished work. */
-  speed: number | null
-  history: History
-  kinds: { kindId: number; kind: string; learned: number | null; configured: number | null; n: number }[]
-}
-export interface StepSuggestion {
-  templateId: number
-  templateName: string
-  templateVersion: number
-  stepKey: string
-  stepName: string
-  kindId: number
-  kind: string
-  current: { baseMinutes: number; perStoneMinutes: number }
+  speed: z.number().nullable(),
+  history,
+  kinds: z.array(z.object({ kindId: wireInt, kind: z.string(), learned: z.number().nullable(), configured: z.number().nullable(), n: wireInt })),
+})
+export type PersonFigure = z.infer<typeof personFigure>
+const stepMinutes = z.object({ baseMinutes: z.number(), perStoneMinutes: z.number() })
+export const stepSuggestion = z.object({
+  templateId: wireInt,
+  templateName: z.string(),
+  templateVersion: wireInt,
+  stepKey: z.string(),
+  stepName: z.string(),
+  kindId: wireInt,
+  kind: z.string(),
+  current: stepMinutes,
   /** null when history is thin (n < 5: use a three-point estimate) or the routing already fits. */
-  suggested: { baseMinutes: number; perStoneMinutes: number; method: 'theil-sen' | 'ratio-of-medians'; changePct: number } | null
-  thin: boolean
+  suggested: stepMinutes.extend({ method: fitMethod, changePct: z.number() }).nullable(),
+  thin: z.boolean(),
   /** Enough history, but the step's minutes also count the piece's size, stone size bands or the routing's learning curve, which the fit leaves out: no figure offered. */
-  unfitted: boolean
-  history: History
-}
-export interface LearnedEstimates {
-  asOf: string
-  kinds: KindFigure[]
-  people: PersonFigure[]
-  steps: StepSuggestion[]
-}
+  unfitted: z.boolean(),
+  history,
+})
+export type StepSuggestion = z.infer<typeof stepSuggestion>
+export const learnedEstimates = z.object({
+  asOf: z.string(),
+  kinds: z.array(kindFigure),
+  people: z.array(personFigure),
+  steps: z.array(stepSuggestion),
+})
+export type LearnedEstimates = z.infer<typeof learnedEstimates>
 
-export interface StepChange {
-  id: number
-  templateId: number
-  templateName: string
-  stepKey: string
+export const stepChange = z.object({
+  id: wireInt,
+  templateId: wireInt,
+  templateName: z.string(),
+  stepKey: z.string(),
   /** The step's name in the routing (its key when the step has gone since). */
-  stepName: string
-  kind: string
-  from: { baseMinutes: number; perStoneMinutes: number }
-  to: { baseMinutes: number; perStoneMinutes: number }
-  templateVersion: number
-  basis: { n: number; from: string | null; to: string | null; method: string; spread: Record<string, number> }
-  reason: string
-  acceptedBy: string
-  at: string
-}
+  stepName: z.string(),
+  kind: z.string(),
+  from: stepMinutes,
+  to: stepMinutes,
+  templateVersion: wireInt,
+  basis: z.object({ n: wireInt, from: z.string().nullable(), to: z.string().nullable(), method: z.string(), spread: z.record(z.string(), z.number()) }),
+  reason: z.string(),
+  acceptedBy: z.string(),
+  at: z.string(),
+})
+export type StepChange = z.infer<typeof stepChange>
+
+/** PERT from three points: mean minutes, variance and standard deviation (see shared/domain/estimate.ts). */
+export const threePointEstimate = z.object({ minutes: z.number(), source: z.literal('three-point'), variance: z.number(), stdDev: z.number() })
+export type ThreePointEstimate = z.infer<typeof threePointEstimate>
+
+/** An outside step's expected cost per unit in integer minor units of `currency` (null: not set). */
+export const stepCost = z.object({
+  templateId: wireInt,
+  templateName: z.string(),
+  stepKey: z.string(),
+  stepName: z.string(),
+  leadDays: z.number(),
+  outsideCostMinor: wireInt.nullable(),
+  currency: z.string(),
+})
+export type StepCost = z.infer<typeof stepCost>
+export const stepCostSet = z.object({ templateId: wireInt, stepKey: z.string(), outsideCostMinor: wireInt.nullable() })
+export const operationCostSet = z.object({ operationId: wireInt, outsideCostMinor: wireInt.nullable() })

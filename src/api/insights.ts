@@ -1,31 +1,35 @@
 // Insights API: estimate-vs-actual tables, chart data, drill-down, job costing, learned estimates and accepting them.
-import type {
-  AcceptSuggestionInput,
-  BiasTrend,
-  ComparisonTable,
-  CostingTable,
-  DrillDown,
-  Grouping,
-  InsightFilter,
-  LearnedEstimates,
-  ScatterPoint,
-  StepChange,
-  ThreePointInput,
+import { z } from 'zod'
+import {
+  biasTrend,
+  comparisonTable,
+  costingTable,
+  drillDown,
+  learnedEstimates,
+  scatterPoint,
+  stepChange,
+  stepCost,
+  stepCostSet,
+  threePointEstimate,
+  type AcceptSuggestionInput,
+  type Grouping,
+  type InsightFilter,
+  type ThreePointInput,
 } from '@shared/schemas/insights'
-import type { Estimate } from '@shared/domain/estimate'
 import { api, type Query } from './client'
 
 const q = (f: InsightFilter): Query => ({ from: f.from, to: f.to, templateId: f.templateId })
 
-export const getComparison = (groupBy: Grouping, f: InsightFilter) => api.get<ComparisonTable>('/insights/comparison', { query: { groupBy, ...q(f) } })
-export const getScatter = (f: InsightFilter) => api.get<ScatterPoint[]>('/insights/scatter', { query: q(f) })
-export const getBiasTrend = (f: InsightFilter) => api.get<BiasTrend>('/insights/bias-trend', { query: q(f) })
-export const getDrillDown = (groupBy: Grouping, key: string, f: InsightFilter) => api.get<DrillDown>('/insights/records', { query: { groupBy, key, ...q(f) } })
-export const getCosting = (f: InsightFilter) => api.get<CostingTable>('/insights/costing', { query: q(f) })
-export const getLearned = (f: InsightFilter = {}) => api.get<LearnedEstimates>('/estimates/learned', { query: q(f) })
-export const getStepChanges = () => api.get<StepChange[]>('/estimates/changes')
-export const acceptSuggestion = (body: AcceptSuggestionInput) => api.post<StepChange>('/estimates/accept', body)
-export const threePoint = (body: ThreePointInput) => api.post<Extract<Estimate, { source: 'three-point' }>>('/estimates/three-point', body)
+export const getComparison = (groupBy: Grouping, f: InsightFilter) => api.get('/insights/comparison', { query: { groupBy, ...q(f) }, schema: comparisonTable })
+export const getScatter = (f: InsightFilter) => api.get('/insights/scatter', { query: q(f), schema: z.array(scatterPoint) })
+export const getBiasTrend = (f: InsightFilter) => api.get('/insights/bias-trend', { query: q(f), schema: biasTrend })
+export const getDrillDown = (groupBy: Grouping, key: string, f: InsightFilter) =>
+  api.get('/insights/records', { query: { groupBy, key, ...q(f) }, schema: drillDown })
+export const getCosting = (f: InsightFilter) => api.get('/insights/costing', { query: q(f), schema: costingTable })
+export const getLearned = (f: InsightFilter = {}) => api.get('/estimates/learned', { query: q(f), schema: learnedEstimates })
+export const getStepChanges = () => api.get('/estimates/changes', { schema: z.array(stepChange) })
+export const acceptSuggestion = (body: AcceptSuggestionInput) => api.post('/estimates/accept', body, { schema: stepChange })
+export const threePoint = (body: ThreePointInput) => api.post('/estimates/three-point', body, { schema: threePointEstimate })
 
 /** Address of a table as a CSV file (same-origin GET: the session cookie goes along, no token needed). */
 export function csvUrl(path: '/insights/comparison' | '/insights/costing' | '/insights/records', query: Query): string {
@@ -37,19 +41,7 @@ export const comparisonCsvUrl = (groupBy: Grouping, f: InsightFilter) => csvUrl(
 export const costingCsvUrl = (f: InsightFilter) => csvUrl('/insights/costing', q(f))
 export const drillCsvUrl = (groupBy: Grouping, key: string, f: InsightFilter) => csvUrl('/insights/records', { groupBy, key, ...q(f) })
 
-/** An outside step's expected cost per unit in integer minor units of `currency` (null: not set). */
-export interface StepCost {
-  templateId: number
-  templateName: string
-  stepKey: string
-  stepName: string
-  leadDays: number
-  outsideCostMinor: number | null
-  currency: string
-}
-export const getStepCosts = () => api.get<StepCost[]>('/insights/outside-costs')
+export type { StepCost } from '@shared/schemas/insights'
+export const getStepCosts = () => api.get('/insights/outside-costs', { schema: z.array(stepCost) })
 export const setStepCost = (templateId: number, stepKey: string, outsideCostMinor: number | null) =>
-  api.put<{ templateId: number; stepKey: string; outsideCostMinor: number | null }>(`/insights/routings/${templateId}/outside-cost`, {
-    stepKey,
-    outsideCostMinor,
-  })
+  api.put(`/insights/routings/${templateId}/outside-cost`, { stepKey, outsideCostMinor }, { schema: stepCostSet })

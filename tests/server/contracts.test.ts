@@ -510,6 +510,40 @@ describe('answers on the demo workshop', () => {
     await call(station, 'post', '/bench-station/pin', '/bench-station/pin', { personId: mine.personId, pin: '4822' })
   })
 
+  it('when the owner reads estimates against actual hours, costs jobs, sets outside costs and accepts a learned figure, then every insight answer is what its schema allows', async () => {
+    const byKind = await call(owner, 'get', '/insights/comparison', '/insights/comparison?groupBy=kind')
+    expect(byKind.rows.length).toBeGreaterThan(0)
+    await call(manager, 'get', '/insights/kind-accuracy', '/insights/kind-accuracy')
+    const drill = await call(owner, 'get', '/insights/records', `/insights/records?groupBy=kind&key=${encodeURIComponent(byKind.rows[0].key)}`)
+    expect(drill.operations[0].records.length).toBeGreaterThan(0)
+    const points = await call(owner, 'get', '/insights/scatter', '/insights/scatter')
+    const trend = await call(owner, 'get', '/insights/bias-trend', '/insights/bias-trend')
+    expect(trend.series.length).toBeGreaterThan(0)
+    const jobs = await call(owner, 'get', '/insights/costing', '/insights/costing')
+    expect(jobs.rows.length).toBeGreaterThan(0)
+    const outside = await call(owner, 'get', '/insights/outside-costs', '/insights/outside-costs')
+    await call(owner, 'put', '/insights/routings/:id/outside-cost', `/insights/routings/${outside[0].templateId}/outside-cost`, {
+      stepKey: outside[0].stepKey,
+      outsideCostMinor: 4500,
+    })
+    await call(owner, 'put', '/insights/operations/:id/outside-cost', `/insights/operations/${points[0].operationId}/outside-cost`, { outsideCostMinor: 3800 })
+
+    const learned = await call(owner, 'get', '/estimates/learned', '/estimates/learned')
+    expect([learned.kinds.length, learned.people.length, learned.steps.length].every((n) => n > 0)).toBe(true)
+    const step = learned.steps[0]
+    await call(owner, 'post', '/estimates/accept', '/estimates/accept', {
+      templateId: step.templateId,
+      stepKey: step.stepKey,
+      baseMinutes: step.current.baseMinutes + 5,
+      perStoneMinutes: step.current.perStoneMinutes,
+      templateVersion: step.templateVersion,
+      reason: 'runs over in the workshop',
+    })
+    const changes = await call(owner, 'get', '/estimates/changes', '/estimates/changes')
+    expect(changes.length).toBeGreaterThan(0)
+    await call(manager, 'post', '/estimates/three-point', '/estimates/three-point', { optimistic: 30, mostLikely: 45, pessimistic: 90 })
+  })
+
   it('when every call above is done, then each route with a response schema was called at least once', () => {
     expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])
   })

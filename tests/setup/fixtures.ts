@@ -33,8 +33,6 @@ export async function routingId(db: Db, code?: string): Promise<number> {
   if (!r) throw new Error(`no routing ${code ?? ''} in the test database`)
   return r.id
 }
-/** `routingId` under its former name, for test files that still import that. */
-export const templateId = routingId
 
 export async function benchIdByName(db: Db, name: string): Promise<number> {
   const [b] = await db.select({ id: s.benches.id }).from(s.benches).where(eq(s.benches.name, name))

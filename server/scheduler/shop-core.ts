@@ -166,46 +166,6 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     suffix = new Int32Array(n)
   const lastOps: number[] = []
   for (let i = 0; i < n; i++) if (jobSucc[i]! < 0) lastOps.push(i)
-  /** Heads by Kahn's order; false when the graph has a cycle. */
-  const computeHeads = (): boolean => {
-    let qh = 0,
-      qt = 0
-    for (let i = 0; i < n; i++) {
-      const d = (jobPred[i]! >= 0 ? 1 : 0) + (mPred[i]! >= 0 ? 1 : 0)
-      indeg[i] = d
-      if (d === 0) topo[qt++] = i
-    }
-    while (qh < qt) {
-      const x = topo[qh++]!
-      let rx = rel[x]!
-      const jp = jobPred[x]!,
-        mp = mPred[x]!
-      if (jp >= 0) {
-        const e = r[jp]! + p[jp]!
-        if (e > rx) rx = e
-      }
-      if (mp >= 0) {
-        const e = r[mp]! + p[mp]!
-        if (e > rx) rx = e
-      }
-      r[x] = rx
-      const js = jobSucc[x]!,
-        ms = mSucc[x]!
-      if (js >= 0) {
-        const d = indeg[js]! - 1
-        indeg[js] = d
-        if (d === 0) topo[qt++] = js
-      }
-      if (ms >= 0) {
-        const d = indeg[ms]! - 1
-        indeg[ms] = d
-        if (d === 0) topo[qt++] = ms
-      }
-    }
-    if (qt !== n) return false
-    for (let k = 0; k < n; k++) pos[topo[k]!] = k
-    return true
-  }
   /**
    * Heads after a move that changed the in-arcs of operations from position `from` of the current order on: the operations
    * before it keep their heads and places; the rest are re-ordered by Kahn's rule among themselves. False on a cycle (the order
@@ -213,7 +173,8 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
    */
   const computeHeadsFrom = (from: number): boolean => {
     let cnt = 0
-    for (let k = from; k < n; k++) suffix[cnt++] = topo[k]!
+    if (from === 0) for (let i = 0; i < n; i++) suffix[cnt++] = i
+    else for (let k = from; k < n; k++) suffix[cnt++] = topo[k]!
     let qt = from
     for (let c = 0; c < cnt; c++) {
       const i = suffix[c]!
@@ -279,27 +240,9 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     }
     return c
   }
-  const computeTails = (): number => {
-    let cmax = 0
-    for (let k = n - 1; k >= 0; k--) {
-      const x = topo[k]!
-      let qx = 0
-      const js = jobSucc[x]!,
-        ms = mSucc[x]!
-      if (js >= 0) {
-        const e = q[js]! + p[js]!
-        if (e > qx) qx = e
-      }
-      if (ms >= 0) {
-        const e = q[ms]! + p[ms]!
-        if (e > qx) qx = e
-      }
-      q[x] = qx
-      const c = r[x]! + p[x]! + qx
-      if (c > cmax) cmax = c
-    }
-    return cmax
-  }
+  /** Heads by Kahn's order over the whole graph; false when it has a cycle. */
+  const computeHeads = (): boolean => computeHeadsFrom(0)
+  const computeTails = (): number => computeTailsUpTo(n - 1)
 
   if (!computeHeads()) throw new Error('shop core: initial schedule has a cycle')
   let cmax = computeTails()
@@ -642,17 +585,7 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     if (oldAfter >= 0 && pos[oldAfter]! > upTo) upTo = pos[oldAfter]!
     if (mvAfter >= 0 && pos[mvAfter]! > upTo) upTo = pos[mvAfter]!
     cmax = computeTailsUpTo(upTo)
-    if (settings.verifyIncremental) {
-      // Tests: the partial update must give the heads, tails and makespan a full recomputation gives.
-      const r0 = r.slice(),
-        q0 = q.slice(),
-        c0 = cmax
-      computeHeads()
-      cmax = computeTails()
-      for (let i = 0; i < n; i++)
-        if (r[i] !== r0[i] || q[i] !== q0[i]) throw new Error(`shop core: incremental update differs at operation ${i} (iteration ${iter})`)
-      if (cmax !== c0) throw new Error(`shop core: incremental makespan ${c0} against ${cmax} (iteration ${iter})`)
-    }
+    if (settings.verifyIncremental) verifyHeadsAndTails()
     const ten = tenure()
     if (mvKind === 0) {
       const u = mvOp
@@ -672,6 +605,40 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     } else if (iter - lastImprove > maxStall) {
       kick()
     }
+  }
+
+  /**
+   * Tests only: heads, tails and makespan by another method — relaxing every arc until nothing changes (Bellman–Ford on the
+   * acyclic graph), in index order, with no topological order — must equal what the partial updates left.
+   */
+  function verifyHeadsAndTails(): void {
+    const h = new Float64Array(n),
+      t = new Float64Array(n)
+    for (let changed = true; changed;) {
+      changed = false
+      for (let i = 0; i < n; i++) {
+        const jp = jobPred[i]!,
+          mp = mPred[i]!
+        const v = Math.max(rel[i]!, jp >= 0 ? h[jp]! + p[jp]! : 0, mp >= 0 ? h[mp]! + p[mp]! : 0)
+        if (v !== h[i]) {
+          h[i] = v
+          changed = true
+        }
+        const js = jobSucc[i]!,
+          ms = mSucc[i]!
+        const w = Math.max(0, js >= 0 ? t[js]! + p[js]! : 0, ms >= 0 ? t[ms]! + p[ms]! : 0)
+        if (w !== t[i]) {
+          t[i] = w
+          changed = true
+        }
+      }
+    }
+    let c = 0
+    for (let i = 0; i < n; i++) {
+      if (h[i] !== r[i] || t[i] !== q[i]) throw new Error(`shop core: partial update differs at operation ${i} (iteration ${iter})`)
+      c = Math.max(c, h[i]! + p[i]!)
+    }
+    if (c !== cmax) throw new Error(`shop core: partial makespan ${cmax} against ${c} (iteration ${iter})`)
   }
 
   /** Stagnation: go back to the best schedule and shake it with a few random critical swaps and machine changes. */

@@ -3,7 +3,7 @@ import { createHash, randomBytes } from 'node:crypto'
 import { and, desc, eq, gt, isNull, sql } from 'drizzle-orm'
 import { alias } from 'drizzle-orm/pg-core'
 import { ROLE_LABELS } from '../../shared/domain/roles'
-import type { Invitation, InvitationInput, LinkInfo } from '../../shared/schemas/account'
+import type { Invitation, InvitationInput, LinkInfo, SentInvitation } from '../../shared/schemas/account'
 import type { Db, Trx } from '../db/client'
 import { accountTokens, people, users, workshops } from '../db/schema/index'
 import { AppError, invalid, notFound } from '../errors/app-error'
@@ -108,7 +108,7 @@ async function sendInvitation(
   })
 }
 
-export async function invite(deps: Deps, actor: Actor, input: InvitationInput, at: ArrivedAt, life = DEFAULT_LIFETIMES) {
+export async function invite(deps: Deps, actor: Actor, input: InvitationInput, at: ArrivedAt, life = DEFAULT_LIFETIMES): Promise<SentInvitation> {
   const { token, hash } = newLinkToken()
   const row = await deps.db.transaction(async (tx) => {
     const [taken] = await tx.select({ id: users.id }).from(users).where(eq(users.email, input.email))
@@ -175,7 +175,7 @@ async function pendingInvitation(tx: Trx, workshopId: number, id: number) {
 }
 
 /** A new link with a full lifetime; the old link stops working at once. */
-export async function resendInvitation(deps: Deps, actor: Actor, id: number, at: ArrivedAt, life = DEFAULT_LIFETIMES) {
+export async function resendInvitation(deps: Deps, actor: Actor, id: number, at: ArrivedAt, life = DEFAULT_LIFETIMES): Promise<SentInvitation> {
   const { token, hash } = newLinkToken()
   const row = await deps.db.transaction(async (tx) => {
     const r = await pendingInvitation(tx, actor.workshopId, id)

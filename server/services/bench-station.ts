@@ -2,7 +2,7 @@
 import { createHash, randomBytes, timingSafeEqual } from 'node:crypto'
 import { hash, verify } from '@node-rs/argon2'
 import { and, asc, eq, sql } from 'drizzle-orm'
-import type { PinSession, StationPerson } from '../../shared/schemas/account'
+import type { PinSession, PinSet, StationPerson } from '../../shared/schemas/account'
 import type { Db } from '../db/client'
 import { benches, people, personPins, users } from '../db/schema/index'
 import { AppError, invalid, notFound } from '../errors/app-error'
@@ -129,7 +129,7 @@ export async function checkPin(
 }
 
 /** Sets a person's PIN (themselves, or the owner for anyone); earlier wrong tries and locks are cleared. */
-export async function setPin(deps: Pick<Deps, 'db'>, actor: Actor, personId: number, pin: string) {
+export async function setPin(deps: Pick<Deps, 'db'>, actor: Actor, personId: number, pin: string): Promise<PinSet> {
   const [p] = await deps.db
     .select({ id: people.id, name: people.name })
     .from(people)

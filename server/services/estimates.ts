@@ -22,6 +22,7 @@ import type {
   PersonFigure,
   StepChange,
   StepSuggestion,
+  ThreePointEstimate,
   ThreePointInput,
 } from '../../shared/schemas/insights'
 import type { EffectiveTimeRecord } from '../../shared/schemas/job-bag'
@@ -488,6 +489,6 @@ export async function listStepChanges(db: Db, workshopId: number): Promise<StepC
 }
 
 /** PERT figure for a step with thin history (the caller enters optimistic / most likely / pessimistic minutes). */
-export function threePoint(input: ThreePointInput) {
+export function threePoint(input: ThreePointInput): ThreePointEstimate {
   return threePointEstimate(input)
 }

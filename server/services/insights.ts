@@ -10,6 +10,7 @@ import type {
   Grouping,
   InsightFilter,
   ScatterPoint,
+  StepCost,
 } from '../../shared/schemas/insights'
 import type { Db } from '../db/client'
 import { customers, jobBags, operationCosts, operationKinds, operations, orders, routings, routingStepCosts, routingSteps, workshops } from '../db/schema/index'
@@ -272,7 +273,7 @@ function totalCaveat(missing: Missing[], orders: number): string {
 }
 
 /** Every outside-work step of the workshop's routings with its expected cost per unit (null: not set). */
-export async function listStepCosts(db: Db, workshopId: number) {
+export async function listStepCosts(db: Db, workshopId: number): Promise<StepCost[]> {
   const rows = await db
     .select({
       templateId: routings.id,

@@ -32,8 +32,11 @@ import {
   type LossRow,
   type LossTable,
   type MetalMovement,
+  type LotItemAdded,
   type MovementQuery,
   type PurchaseInput,
+  type RecordedCorrection,
+  type RecordedMovement,
   type RefiningItemInput,
   type RefiningLot,
   type RefiningLotInput,
@@ -315,7 +318,7 @@ async function bagTotals(tx: Tx, jobBagId: number, alloyId: number) {
   return t!
 }
 
-export async function issueMetal(deps: Deps, actor: Actor, input: IssueInput) {
+export async function issueMetal(deps: Deps, actor: Actor, input: IssueInput): Promise<RecordedMovement> {
   const r = await record(
     deps,
     actor,
@@ -341,7 +344,7 @@ export async function issueMetal(deps: Deps, actor: Actor, input: IssueInput) {
   return { replayed: r.replayed, movement: await movementById(deps.db, actor.workshopId, r.row.id) }
 }
 
-export async function returnMetal(deps: Deps, actor: Actor, input: ReturnInput) {
+export async function returnMetal(deps: Deps, actor: Actor, input: ReturnInput): Promise<RecordedMovement> {
   const weightMg = gToMg(input.weightG)
   const r = await record(
     deps,
@@ -375,7 +378,7 @@ export async function returnMetal(deps: Deps, actor: Actor, input: ReturnInput) 
   return { replayed: r.replayed, movement: await movementById(deps.db, actor.workshopId, r.row.id) }
 }
 
-export async function purchaseMetal(deps: Deps, actor: Actor, input: PurchaseInput) {
+export async function purchaseMetal(deps: Deps, actor: Actor, input: PurchaseInput): Promise<RecordedMovement> {
   const r = await record(
     deps,
     actor,
@@ -395,7 +398,7 @@ export async function purchaseMetal(deps: Deps, actor: Actor, input: PurchaseInp
   return { replayed: r.replayed, movement: await movementById(deps.db, actor.workshopId, r.row.id) }
 }
 
-export async function adjustStock(deps: Deps, actor: Actor, input: AdjustmentInput) {
+export async function adjustStock(deps: Deps, actor: Actor, input: AdjustmentInput): Promise<RecordedMovement> {
   const r = await record(
     deps,
     actor,
@@ -415,7 +418,7 @@ export async function adjustStock(deps: Deps, actor: Actor, input: AdjustmentInp
 }
 
 /** A correction: a new row of the same kind carrying the difference to the right weight, naming the row, who and why. */
-export async function correctMovement(deps: Deps, actor: Actor, id: number, input: CorrectionInput) {
+export async function correctMovement(deps: Deps, actor: Actor, id: number, input: CorrectionInput): Promise<RecordedCorrection> {
   const [orig] = await deps.db
     .select()
     .from(metalMovements)
@@ -927,7 +930,7 @@ export async function createLot({ db, realtime }: Deps, actor: Actor, input: Ref
 }
 
 /** Scrap or lemel from stock into an open lot (a to-refining row). */
-export async function addToLot(deps: Deps, actor: Actor, lotId: number, input: RefiningItemInput) {
+export async function addToLot(deps: Deps, actor: Actor, lotId: number, input: RefiningItemInput): Promise<LotItemAdded> {
   const lot = await requireOwned(deps.db, refiningLots, 'Refining lot', lotId, actor.workshopId)
   const r = await record(
     deps,

@@ -247,6 +247,7 @@ export type MetalMovement = z.infer<typeof metalMovement>
 export const recordedMovement = z.object({ replayed: z.boolean(), movement: metalMovement })
 export type RecordedMovement = z.infer<typeof recordedMovement>
 export const recordedCorrection = recordedMovement.extend({ correctionId: wireInt })
+export type RecordedCorrection = z.infer<typeof recordedCorrection>
 export const lossFigures = z.object({
   issuedMg: wireInt,
   fromCustomerMg: wireInt,
@@ -372,3 +373,4 @@ export const refiningLot = z.object({
 export type RefiningLot = z.infer<typeof refiningLot>
 /** Scrap or lemel put into a lot (or the first answer again, for a replayed request). */
 export const lotItemAdded = z.object({ replayed: z.boolean(), lot: refiningLot })
+export type LotItemAdded = z.infer<typeof lotItemAdded>

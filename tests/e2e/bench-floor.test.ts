@@ -95,7 +95,7 @@ describe('the bench tablet', () => {
     const running = page.locator(`[data-test=my-work] [data-op="${op.id}"]`)
     const facts = running.locator('[data-test=work-facts]')
     await expect(facts.locator('[data-test=stone-count]').innerText()).resolves.toMatch(/Stones\s+36\s+18 a piece × 2 pieces/i)
-    await expect(facts.locator('[data-test=stone-size]').innerText()).resolves.toMatch(/Stone size\s+1\.5 mm\s+1\.5–3 mm/i)
+    await expect(facts.locator('[data-test=stone-size]').innerText()).resolves.toMatch(/Stone size\s+1\.5 mm\s+size band 1\.5–3 mm/i)
     // The figures that say otherwise are named, with what the planned time follows.
     await expect(running.locator('[data-test=stone-source]').innerText()).resolves.toBe(
       "Counted from the stone list. The order's figures say 12 × 1.3 mm a piece; the planned time follows the stone list.",

@@ -41,7 +41,7 @@ if (has('post', '/promise/check'))
     method: 'POST',
     path: '/api/promise/check',
     who: sales,
-    body: { templateId: routing.id, params: { metal: 'gold-18ct', stoneCount: 12, stoneSizeMm: 1.5 } },
+    body: { routingId: routing.id, params: { metal: 'gold-18ct', stoneCount: 12, stoneSizeMm: 1.5 } },
   })
 else notes.push('promise check skipped: no POST /promise/check route yet')
 

@@ -37,7 +37,7 @@ async function measure(range: boolean) {
   let cold = 0
   for (let i = 0; i < CALLS + 1; i++) {
     const input = promiseCheckInput.parse({
-      templateId: routings[i % routings.length]!.id,
+      routingId: routings[i % routings.length]!.id,
       params: { stoneCount: i % 7, quantity: 1 + (i % 3) },
       range,
       seed: i + 1,

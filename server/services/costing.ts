@@ -145,7 +145,7 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
   const day = dayjs().tz(tz).format('YYYY-MM-DD')
   const book = await priceBook(db, workshopId)
   const { average } = await averageRateMinor(db, workshopId)
-  const ids = [...new Set(input.pieces.map((p) => p.templateId))]
+  const ids = [...new Set(input.pieces.map((p) => p.routingId))]
   const found = await db
     .select()
     .from(routings)
@@ -160,8 +160,8 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
     : []
   const costs = ids.length ? await db.select().from(routingStepCosts).where(inArray(routingStepCosts.routingId, ids)) : []
   const pieces: PieceEstimate[] = input.pieces.map((p, i) => {
-    const t = found.find((x) => x.id === p.templateId)
-    if (!t) throw invalid(`pieces.${i}.templateId`, 'is not a routing of this workshop')
+    const t = found.find((x) => x.id === p.routingId)
+    if (!t) throw invalid(`pieces.${i}.routingId`, 'is not a routing of this workshop')
     const missing: Missing[] = []
     let minutes = 0,
       labour = 0,

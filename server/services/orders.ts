@@ -77,7 +77,7 @@ export async function getOrder(db: Db, workshopId: number, id: number) {
     currency: w?.currency ?? 'GBP',
     customerName: c?.name ?? '',
     customerReference: c?.reference ?? '',
-    jobBags: bags.map(({ routingId, ...b }) => ({ ...b, templateId: routingId, operations: ops.filter((op) => op.jobBagId === b.id) })),
+    jobBags: bags.map((b) => ({ ...b, operations: ops.filter((op) => op.jobBagId === b.id) })),
   }
 }
 
@@ -86,8 +86,8 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
   const [t] = await tx
     .select()
     .from(routings)
-    .where(and(eq(routings.id, piece.templateId), eq(routings.workshopId, workshopId)))
-  if (!t) throw invalid(`pieces.${index}.templateId`, 'is not a routing of this workshop')
+    .where(and(eq(routings.id, piece.routingId), eq(routings.workshopId, workshopId)))
+  if (!t) throw invalid(`pieces.${index}.routingId`, 'is not a routing of this workshop')
   const steps = await tx.select().from(routingSteps).where(eq(routingSteps.routingId, t.id)).orderBy(asc(routingSteps.seq))
   const [bag] = await tx
     .insert(jobBags)

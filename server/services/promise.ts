@@ -117,15 +117,15 @@ async function prospectiveJob(
   deps: Deps,
   workshopId: number,
   data: PlanningData,
-  input: Pick<PromiseCheckInput, 'templateId' | 'params' | 'priority' | 'wantedDate'>,
+  input: Pick<PromiseCheckInput, 'routingId' | 'params' | 'priority' | 'wantedDate'>,
 ) {
   const [t] = await deps.db
     .select()
     .from(s.routings)
-    .where(and(eq(s.routings.id, input.templateId), eq(s.routings.workshopId, workshopId)))
-  if (!t) throw invalid('templateId', 'is not a routing of this workshop')
+    .where(and(eq(s.routings.id, input.routingId), eq(s.routings.workshopId, workshopId)))
+  if (!t) throw invalid('routingId', 'is not a routing of this workshop')
   const steps = await deps.db.select().from(s.routingSteps).where(eq(s.routingSteps.routingId, t.id)).orderBy(asc(s.routingSteps.seq))
-  if (!steps.length) throw invalid('templateId', 'has no steps')
+  if (!steps.length) throw invalid('routingId', 'has no steps')
   const idOf = (key: string) => `${PROSPECTIVE_JOB}:${key}`
   const keys = new Set(steps.map((x) => x.key))
   const summary: PromiseCheckResult['operations'] = []
@@ -208,7 +208,7 @@ async function computePromise(deps: Deps, actor: Actor, input: PromiseCheckInput
     timeZone: data.clock.timeZone,
     basis: base.basis,
     basisNote: base.basisNote,
-    template: { id: pj.routing.id, name: pj.routing.name },
+    routing: { id: pj.routing.id, name: pj.routing.name },
     operations: pj.summary,
     fixedPlan,
     replanned,
@@ -299,8 +299,8 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
   const [t] = await deps.db
     .select({ name: s.routings.name })
     .from(s.routings)
-    .where(and(eq(s.routings.id, input.templateId), eq(s.routings.workshopId, actor.workshopId)))
-  if (!t) throw invalid('templateId', 'is not a routing of this workshop')
+    .where(and(eq(s.routings.id, input.routingId), eq(s.routings.workshopId, actor.workshopId)))
+  if (!t) throw invalid('routingId', 'is not a routing of this workshop')
   if (input.dueDate && input.dueDate < input.promisedDate) throw invalid('dueDate', 'must not be before the promised date')
   // Fresh data, not the promise cache: the booking must be against the plan as it is now.
   const data = await loadPlanningData(deps.db, actor.workshopId, now)
@@ -339,7 +339,7 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
       priority: input.priority,
       priceQuotedMinor: input.priceQuotedMinor,
       notes: input.notes,
-      pieces: [{ templateId: input.templateId, piece: input.piece ?? input.title, params: input.params }],
+      pieces: [{ routingId: input.routingId, piece: input.piece ?? input.title, params: input.params }],
     },
     async (tx, orderId) => {
       const booking: Booking = placed ? await bookSlot(tx, actor, data, orderId, placed) : { booked: false, reason: notBooked! }

@@ -16,6 +16,6 @@ export function quoteOrderInput(q: typeof s.quotes.$inferSelect): OrderInput {
     priceQuotedMinor: q.priceMinor,
     notes: `From quote ${q.number}`,
     // The quoted parameters with the order form's defaults filled in (metal, quantity, …), as the order form would send them.
-    pieces: d.templateId ? [{ templateId: d.templateId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}) }] : [],
+    pieces: d.templateId ? [{ routingId: d.templateId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}) }] : [],
   }
 }

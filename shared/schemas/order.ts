@@ -55,7 +55,7 @@ export const pieceParams = z.object({
     .max(100_000_000, 'is too large')
     .optional(),
 })
-export const pieceInput = z.object({ templateId: id, piece: name, params: pieceParams.default(pieceParams.parse({})) })
+export const pieceInput = z.object({ routingId: id, piece: name, params: pieceParams.default(pieceParams.parse({})) })
 export const orderInput = z.object({
   customerId: id,
   title: name,
@@ -125,7 +125,7 @@ export const orderJobBag = z.object({
   id: wireInt,
   number: z.string(),
   piece: z.string(),
-  templateId: wireInt.nullable(),
+  routingId: wireInt.nullable(),
   params: storedPieceParams,
   status: z.string(),
   operations: z.array(orderOperation),

@@ -6,7 +6,7 @@ import { minorAmount, orderDetail, pieceParams } from './order'
 const priority = z.number({ error: 'must be 1 to 5' }).int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').default(3)
 
 export const promiseCheckInput = z.object({
-  templateId: id,
+  routingId: id,
   params: pieceParams.default(pieceParams.parse({})),
   priority,
   wantedDate: isoDate.optional(),
@@ -27,7 +27,7 @@ export type PromiseCheckInput = z.infer<typeof promiseCheckInput>
 export const promiseAcceptInput = z.object({
   customerId: id,
   title: name,
-  templateId: id,
+  routingId: id,
   params: pieceParams.default(pieceParams.parse({})),
   piece: name.optional(),
   promisedDate: isoDate,
@@ -51,7 +51,7 @@ export const promiseCheckResult = z.object({
   /** What the fixed case was measured against. */
   basis: z.enum(['live-plan', 'quick-plan']),
   basisNote: z.string(),
-  template: z.object({ id: wireInt, name: z.string() }),
+  routing: z.object({ id: wireInt, name: z.string() }),
   operations: z.array(z.object({ key: z.string(), name: z.string(), kind: z.string(), minutes: z.number(), outsideDays: z.number() })),
   fixedPlan: promiseMoment.extend({ feasible: z.boolean() }),
   replanned: promiseMoment.extend({ delayedJobBags: wireInt }),

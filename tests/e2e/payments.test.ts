@@ -40,12 +40,12 @@ describe('quotes and deposits', () => {
 
   it('when sales writes a quote from a promise check and keeps it as a draft, then it keeps the routing, the promised date and how sure it is', async () => {
     await page.goto('/promise')
-    await page.locator('[data-test=promise-template]').click()
+    await page.locator('[data-test=promise-routing]').click()
     await page.locator('.el-select-dropdown__item:visible').first().click()
     const answer = page.waitForResponse((r) => r.url().endsWith('/api/promise/check') && r.request().method() === 'POST', { timeout: 30_000 })
     await page.locator('[data-test=promise-check]').click()
     const check = (await (await answer).json()) as {
-      template: { id: number }
+      routing: { id: number }
       fixedPlan: { date: string }
       range: { p50: { date: string }; p80: { date: string }; p95: { date: string } } | null
     }
@@ -79,7 +79,7 @@ describe('quotes and deposits', () => {
         .where(eq(s.quotes.number, number!))
     )[0]!
     expect(q).toMatchObject({ status: 'drafted', priceMinor: 64000, depositMinor: 19200 })
-    expect(q.details.templateId).toBe(check.template.id)
+    expect(q.details.templateId).toBe(check.routing.id)
     // The suggested date: P80 when the range is later than the fixed plan, else the fixed-plan date (as the promise page keeps it).
     const suggested = check.range && check.range.p80.date > check.fixedPlan.date ? check.range.p80.date : check.fixedPlan.date
     expect(q.promised).toBe(suggested)

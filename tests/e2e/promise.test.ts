@@ -98,7 +98,7 @@ describe('promise check as sales', () => {
   it('when sales checks a ring with stones, then the fixed-plan and re-planned dates and the P50/P80/P95 band show', async () => {
     await page.goto('/promise')
     expect(await page.locator('.mg-page-head h1').textContent()).toBe('Promise check')
-    await page.locator('[data-test=promise-template]').click()
+    await page.locator('[data-test=promise-routing]').click()
     await page.locator('.el-select-dropdown__item:visible').first().click()
     await field(page, 'promise-stones').fill('5')
     const answer = await check()
@@ -110,7 +110,7 @@ describe('promise check as sales', () => {
   })
 
   it('when the piece is cast and hallmarked outside, then the band is a range: P50 comes before P95 and the assumption is stated', async () => {
-    await page.locator('[data-test=promise-template]').click()
+    await page.locator('[data-test=promise-routing]').click()
     await page.locator('.el-select-dropdown__item:visible', { hasText: 'Signet ring' }).click()
     const answer = await check()
     await page
@@ -127,7 +127,7 @@ describe('promise check as sales', () => {
     expect(note).toMatch(/log-normal factor with median 1 and σ = 0\.35|Every kind of work has enough finished history/)
     await screenshot(page, 'promise-check-outside-work')
     // Back to the first routing for the order below.
-    await page.locator('[data-test=promise-template]').click()
+    await page.locator('[data-test=promise-routing]').click()
     const first = page.locator('.el-select-dropdown__item:visible').first()
     const name = ((await first.textContent()) ?? '').trim()
     await first.click()

@@ -119,7 +119,7 @@ describe('answers on the demo workshop', () => {
       'post',
       '/orders',
       '/orders',
-      { customerId: customers.items[0].id, title: 'Contract ring', dueDate: '2027-02-01', pieces: [{ templateId: templates[0].id, piece: 'Ring' }] },
+      { customerId: customers.items[0].id, title: 'Contract ring', dueDate: '2027-02-01', pieces: [{ routingId: templates[0].id, piece: 'Ring' }] },
       201,
     )
     await call(manager, 'patch', '/orders/:id', `/orders/${order.id}`, { priority: 4, version: order.version })
@@ -263,7 +263,7 @@ describe('answers on the demo workshop', () => {
       priceQuotedMinor: 125_000,
       pieces: [
         {
-          templateId: await routingId(t.db),
+          routingId: await routingId(t.db),
           piece: 'Contract ring',
           params: { metal: 'gold-18ct', metalWeightG: 6.2 },
           stones: [
@@ -277,7 +277,7 @@ describe('answers on the demo workshop', () => {
   })
 
   it('when a date is promised for a new piece, taken as an order and forecast, then the check, the order taken and the forecast answer what their schemas allow', async () => {
-    const piece = { templateId: await routingId(t.db), params: { metal: 'gold-18ct', stoneCount: 3, stoneSizeMm: 2, sizeMm: 54, quantity: 1 } }
+    const piece = { routingId: await routingId(t.db), params: { metal: 'gold-18ct', stoneCount: 3, stoneSizeMm: 2, sizeMm: 54, quantity: 1 } }
     const check = await call(manager, 'post', '/promise/check', '/promise/check', { ...piece, wantedDate: '2027-01-15', range: true, runs: 50, sample: true })
     expect(check.range.kinds.length).toBeGreaterThan(0)
     const taken = await call(
@@ -328,7 +328,7 @@ describe('answers on the demo workshop', () => {
   it('when quotes are drafted, changed, sent with a deposit link, agreed and withdrawn, then the list, a quote and each write answer what their schemas allow', async () => {
     const customerId = await firstCustomerId(t.db)
     const details = {
-      templateId: await routingId(t.db),
+      routingId: await routingId(t.db),
       piece: 'Three-stone ring',
       metal: '18 ct yellow gold',
       stones: [{ description: 'Round brilliant 0.25 ct', count: 3, carats: 0.75 }],
@@ -358,7 +358,7 @@ describe('answers on the demo workshop', () => {
         customerId: await firstCustomerId(t.db),
         title: 'Contract halo ring',
         dueDate: '2031-09-01',
-        pieces: [{ templateId: await routingId(t.db, 'halo-ring'), piece: 'Halo ring', params: { metal: 'platinum-950' } }],
+        pieces: [{ routingId: await routingId(t.db, 'halo-ring'), piece: 'Halo ring', params: { metal: 'platinum-950' } }],
       },
       201,
     )

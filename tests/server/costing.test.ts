@@ -10,7 +10,7 @@ import { expectFieldError } from './helpers'
 let t: TestApp
 let owner: Agent
 let sales: Agent
-let templateId: number
+let routingId: number
 let alloyId: number
 let customerId: number
 const hourlyRate = (minor: number) => t.db.update(s.people).set({ hourlyRateMinor: minor })
@@ -33,8 +33,8 @@ beforeAll(async () => {
     ],
   })
   expect(routing.status).toBe(201)
-  templateId = routing.body.id
-  expect((await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })).status).toBe(200)
+  routingId = routing.body.id
+  expect((await owner.put(`/api/insights/routings/${routingId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })).status).toBe(200)
   alloyId = await alloyIdByCode(t.db, 'au750y')
   customerId = await firstCustomerId(t.db)
   // Today's 18 ct price 6,000 p/g; 25 days ago it was 5,234 p/g (the seeded change 12 days ago and today's come later).
@@ -47,7 +47,7 @@ afterAll(async () => {
   await t?.close()
 })
 
-const piece = { templateId: 0, piece: 'Fixture ring', params: { metal: 'gold-18ct', metalWeightG: 6.2 } }
+const piece = { routingId: 0, piece: 'Fixture ring', params: { metal: 'gold-18ct', metalWeightG: 6.2 } }
 
 describe('estimated cost', () => {
   it('when sales price a piece not yet ordered, then metal, stones, outside work and labour are the hand-worked figures', async () => {
@@ -56,7 +56,7 @@ describe('estimated cost', () => {
       pieces: [
         {
           ...piece,
-          templateId,
+          routingId,
           stones: [
             { count: 3, costEachMinor: 12_000 },
             { count: 1, customerOwned: true },
@@ -75,12 +75,12 @@ describe('estimated cost', () => {
   })
 
   it('when the piece has no weight or stone costs, then the estimate says what is missing', async () => {
-    const r = await sales.post('/api/costing/estimate', { pieces: [{ templateId, piece: 'Fixture ring', params: { metal: 'gold-18ct', stoneCount: 4 } }] })
+    const r = await sales.post('/api/costing/estimate', { pieces: [{ routingId, piece: 'Fixture ring', params: { metal: 'gold-18ct', stoneCount: 4 } }] })
     expect(r.body.estimate.cost).toMatchObject({ metalMinor: 0, stonesMinor: 0 })
     expect(r.body.estimate.caveat).toBe('no metal weight estimated; stone costs not entered')
     // Count × typical cost: 4 × 2,500 p = 10,000 p.
     const typed = await sales.post('/api/costing/estimate', {
-      pieces: [{ templateId, piece: 'Fixture ring', params: { metal: 'gold-18ct', stoneCount: 4, stoneCostEachMinor: 2500, metalWeightG: 6.2 } }],
+      pieces: [{ routingId, piece: 'Fixture ring', params: { metal: 'gold-18ct', stoneCount: 4, stoneCostEachMinor: 2500, metalWeightG: 6.2 } }],
     })
     expect(typed.body.estimate.cost.stonesMinor).toBe(10_000)
   })
@@ -88,13 +88,13 @@ describe('estimated cost', () => {
   it('when the input is wrong, then the field is named', async () => {
     expectFieldError(await sales.post('/api/costing/estimate', { pieces: [] }), 'pieces')
     expectFieldError(
-      await sales.post('/api/costing/estimate', { pieces: [{ ...piece, templateId, params: { metalWeightG: -1 } }] }),
+      await sales.post('/api/costing/estimate', { pieces: [{ ...piece, routingId, params: { metalWeightG: -1 } }] }),
       'pieces.0.params.metalWeightG',
     )
-    expectFieldError(await sales.post('/api/costing/estimate', { pieces: [{ ...piece, templateId: 999999 }] }), 'pieces.0.templateId')
+    expectFieldError(await sales.post('/api/costing/estimate', { pieces: [{ ...piece, routingId: 999999 }] }), 'pieces.0.routingId')
     // A price in minor units is a whole number: 1250.5 pence is not an amount.
     expectFieldError(
-      await sales.post('/api/costing/estimate', { priceQuotedMinor: 1250.5, pieces: [{ ...piece, templateId }] }),
+      await sales.post('/api/costing/estimate', { priceQuotedMinor: 1250.5, pieces: [{ ...piece, routingId }] }),
       'priceQuotedMinor',
       /whole minor units/,
     )
@@ -108,7 +108,7 @@ describe('an order costed', () => {
       title: 'Fixture ring',
       dueDate: '2031-01-31',
       priceQuotedMinor: 125_000,
-      pieces: [{ ...piece, templateId }],
+      pieces: [{ ...piece, routingId }],
     })
     expect(o.status).toBe(201)
     const bag = await jobBagOfOrder(t.db, o.body.id)
@@ -157,7 +157,7 @@ describe('an order costed', () => {
     expect(after.body.actual.cost).toEqual({ metalMinor: 33_236, stonesMinor: 48_000, outsideMinor: 4_500, labourMinor: 11_200, totalMinor: 96_936 })
     expect(after.body.actual).toMatchObject({ marginMinor: 28_064, marginPct: 22.5, caveat: 'metal, stones, outside work and labour counted' })
     // The owner's table shows the same figures, in minor units of the workshop's currency.
-    const table = await owner.get(`/api/insights/costing?templateId=${templateId}`)
+    const table = await owner.get(`/api/insights/costing?templateId=${routingId}`)
     expect(table.body.currency).toBe('GBP')
     expect(table.body.rows).toEqual([
       expect.objectContaining({
@@ -177,7 +177,7 @@ describe('an order costed', () => {
       title: 'Remade from old gold',
       dueDate: '2031-01-31',
       priceQuotedMinor: 40_000,
-      pieces: [{ ...piece, templateId }],
+      pieces: [{ ...piece, routingId }],
     })
     const jobBagId = await jobBagOfOrder(t.db, o.body.id)
     await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'issued', weightMg: 8000, source: 'customer', recordedAt: sql`now() - interval '1 day'` })
@@ -201,13 +201,13 @@ describe('a workshop pricing in yen', () => {
     // ISO 4217: JPY has no minor unit, so 1 minor unit = ¥1. Everyone at ¥3,000 an hour, the hallmark at ¥4,501, brass (not priced), no stones.
     await t.db.update(s.workshops).set({ currency: 'JPY' })
     await hourlyRate(3000)
-    expect((await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4501 })).status).toBe(200)
-    const r = await sales.post('/api/costing/estimate', { priceQuotedMinor: 30_000, pieces: [{ templateId, piece: 'Yen ring', params: { metal: 'brass' } }] })
+    expect((await owner.put(`/api/insights/routings/${routingId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4501 })).status).toBe(200)
+    const r = await sales.post('/api/costing/estimate', { priceQuotedMinor: 30_000, pieces: [{ routingId, piece: 'Yen ring', params: { metal: 'brass' } }] })
     // Labour ¥10,500 + hallmark ¥4,501 = ¥15,001; at 40 %: 15,001 ÷ 0.6 = 25,001.67 → ¥25,002 (whole yen; rounding to "whole hundreds of minor units" would give ¥25,100).
     expect(r.body).toMatchObject({ currency: 'JPY', priceMinor: 30_000, suggestedPriceMinor: 25_002 })
     expect(r.body.estimate.cost).toMatchObject({ labourMinor: 10_500, outsideMinor: 4_501, totalMinor: 15_001 })
     await t.db.update(s.workshops).set({ currency: 'GBP' })
     await hourlyRate(3200)
-    await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })
+    await owner.put(`/api/insights/routings/${routingId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 4500 })
   })
 })

@@ -28,7 +28,7 @@ const takeOrder = async (customerId: number, pieces = 1) => {
     customerId,
     title: 'Count check',
     dueDate: '2031-03-14',
-    pieces: Array.from({ length: pieces }, (_, i) => ({ templateId: routing['ring-resize']!.id, piece: `Resize ${i + 1}` })),
+    pieces: Array.from({ length: pieces }, (_, i) => ({ routingId: routing['ring-resize']!.id, piece: `Resize ${i + 1}` })),
   })
   expect(r.status, JSON.stringify(r.body)).toBe(201)
   return r.body as { id: number; version: number; jobBags: { id: number; operations: { id: number; version: number }[] }[] }

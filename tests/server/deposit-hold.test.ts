@@ -16,7 +16,7 @@ import { benchId, makeReady, rid } from './bench-fixtures'
 
 let t: TestApp, fake: PayFake, http: Server
 let sales: Agent, owner: Agent, manager: Agent, priya: Agent
-let customerId: number, templateId: number, forge: number, workshopId: number
+let customerId: number, routingId: number, forge: number, workshopId: number
 const from = dayjs().tz('Europe/London').startOf('isoWeek').format('YYYY-MM-DD')
 const to = dayjs(from).add(27, 'day').format('YYYY-MM-DD')
 
@@ -32,7 +32,7 @@ beforeAll(async () => {
   expect((await priya.signIn('priya@wrenfield.test')).status).toBe(200)
   customerId = await firstCustomerId(t.db)
   // The bezel ring's routing starts with "Forge band" (forging).
-  templateId = await routingOf(t.db, 'bezel-ring')
+  routingId = await routingOf(t.db, 'bezel-ring')
   forge = await benchId(t, 'Forge & soldering station')
   workshopId = await firstWorkshopId(t.db)
 }, 60_000)
@@ -63,7 +63,7 @@ async function acceptedUnpaid() {
     title: 'Bezel ring',
     priceMinor: 80000,
     currency: 'GBP',
-    details: { templateId, piece: 'Bezel ring' },
+    details: { templateId: routingId, piece: 'Bezel ring' },
   })
   expect(q.status, JSON.stringify(q.body)).toBe(201)
   const sent = await sales.post(`/api/quotes/${q.body.id}/send`, { version: q.body.version })

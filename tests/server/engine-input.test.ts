@@ -126,7 +126,7 @@ describe('absurd durations', () => {
       steps: [{ key: 'set', kindId: k!.id, name: 'Set every stone', baseMinutes: 10000, perStoneMinutes: 240 }],
     })
     expect(routing.status, JSON.stringify(routing.body)).toBe(201)
-    const r = await manager.post('/api/promise/check', { templateId: routing.body.id, params: { stoneCount: 2000, stoneSizeMm: 1 } })
+    const r = await manager.post('/api/promise/check', { routingId: routing.body.id, params: { stoneCount: 2000, stoneSizeMm: 1 } })
     expect(r.status, JSON.stringify(r.body)).toBe(422)
     expectCleanError(r, 422)
     expect(r.body.error).toContain('Set every stone')

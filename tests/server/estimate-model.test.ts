@@ -56,7 +56,7 @@ describe('a production run with a learning curve', () => {
       customerId,
       title: 'Run of 40',
       dueDate: '2031-08-01',
-      pieces: [{ templateId: run.id, piece: '40 pieces', params: { quantity: 40 } }],
+      pieces: [{ routingId: run.id, piece: '40 pieces', params: { quantity: 40 } }],
     })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     const [op] = r.body.jobBags[0].operations
@@ -69,13 +69,13 @@ describe('a production run with a learning curve', () => {
       customerId,
       title: 'One piece',
       dueDate: '2031-08-01',
-      pieces: [{ templateId: run.id, piece: 'one', params: { quantity: 1 } }],
+      pieces: [{ routingId: run.id, piece: 'one', params: { quantity: 1 } }],
     })
     expect(estimates(r.body.jobBags[0].operations)).toEqual({ finish: 12 })
   })
 
   it('when the promise is checked for the same 40 pieces, then its step minutes are the same Wright total', async () => {
-    const r = await sales.post('/api/promise/check', { templateId: run.id, params: { quantity: 40 } })
+    const r = await sales.post('/api/promise/check', { routingId: run.id, params: { quantity: 40 } })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     // Same hand-worked T(40) = 202.12 min as above.
     expect(Math.abs(r.body.operations[0].minutes - 202.12)).toBeLessThanOrEqual(0.1)
@@ -91,7 +91,7 @@ describe('a production run with a learning curve', () => {
       customerId,
       title: 'Run of 40, flat',
       dueDate: '2031-08-01',
-      pieces: [{ templateId: run.id, piece: '40 pieces', params: { quantity: 40 } }],
+      pieces: [{ routingId: run.id, piece: '40 pieces', params: { quantity: 40 } }],
     })
     expect(estimates(r.body.jobBags[0].operations)).toEqual({ finish: 480 })
   })
@@ -113,7 +113,7 @@ describe('stone size bands and per-mm minutes', () => {
       customerId,
       title: 'Two large-stone pieces',
       dueDate: '2031-08-02',
-      pieces: [{ templateId: oneOff.id, piece: 'pair', params: { stoneCount: 3, stoneSizeMm: 4, sizeMm: 62, quantity: 2 } }],
+      pieces: [{ routingId: oneOff.id, piece: 'pair', params: { stoneCount: 3, stoneSizeMm: 4, sizeMm: 62, quantity: 2 } }],
     })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     // Hand-worked: 4 mm is over 3 mm, the large band (×1.5): set = (30 + 7 × 3 × 1.5) × 2 = (30 + 31.5) × 2 = 123;
@@ -127,20 +127,20 @@ describe('stone size bands and per-mm minutes', () => {
       customerId,
       title: 'Melee',
       dueDate: '2031-08-02',
-      pieces: [{ templateId: oneOff.id, piece: 'melee', params: { stoneCount: 10, stoneSizeMm: 1.3 } }],
+      pieces: [{ routingId: oneOff.id, piece: 'melee', params: { stoneCount: 10, stoneSizeMm: 1.3 } }],
     })
     expect(estimates(melee.body.jobBags[0].operations)).toEqual({ set: 114, polish: 20 })
     const small = await sales.post('/api/orders', {
       customerId,
       title: 'Small',
       dueDate: '2031-08-02',
-      pieces: [{ templateId: oneOff.id, piece: 'small', params: { stoneCount: 10, stoneSizeMm: 2 } }],
+      pieces: [{ routingId: oneOff.id, piece: 'small', params: { stoneCount: 10, stoneSizeMm: 2 } }],
     })
     expect(estimates(small.body.jobBags[0].operations)).toEqual({ set: 100, polish: 20 })
   })
 
   it('when the promise is checked for the large-stone pair, then it shows the same 123 and 71 minutes', async () => {
-    const r = await sales.post('/api/promise/check', { templateId: oneOff.id, params: { stoneCount: 3, stoneSizeMm: 4, sizeMm: 62, quantity: 2 } })
+    const r = await sales.post('/api/promise/check', { routingId: oneOff.id, params: { stoneCount: 3, stoneSizeMm: 4, sizeMm: 62, quantity: 2 } })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     // Same hand-worked figures as the order above.
     expect(Object.fromEntries(r.body.operations.map((o: { key: string; minutes: number }) => [o.key, o.minutes]))).toEqual({ set: 123, polish: 71 })

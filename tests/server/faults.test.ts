@@ -76,7 +76,7 @@ function writers(sessions: { cookie: string; csrf: string }[], t: Awaited<Return
             method: 'POST',
             headers,
             signal: AbortSignal.timeout(15_000),
-            body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ templateId: t.routing.id, piece: title }] }),
+            body: JSON.stringify({ customerId: t.customerId, title, dueDate: '2030-06-01', pieces: [{ routingId: t.routing.id, piece: title }] }),
           })
           if (r.status === 201) acked.push(title)
           else await r.text()

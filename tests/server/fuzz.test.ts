@@ -83,7 +83,7 @@ describe('injection strings are data', () => {
         customerId: c.body.id,
         title: text,
         dueDate: '2030-05-01',
-        pieces: [{ templateId: routing.id, piece: text }],
+        pieces: [{ routingId: routing.id, piece: text }],
       })
       expect(o.status, JSON.stringify(o.body)).toBe(201)
       const ob = await sales.get(`/api/orders/${o.body.id}`)

@@ -58,7 +58,7 @@ beforeAll(async () => {
       title,
       dueDate: '2030-04-30',
       priceQuotedMinor: price,
-      pieces: [{ templateId, piece: title, params: { stoneCount: 6, stoneSizeMm: 1.5, quantity } }],
+      pieces: [{ routingId: templateId, piece: title, params: { stoneCount: 6, stoneSizeMm: 1.5, quantity } }],
     })
     expect(o.status).toBe(201)
     orderIds.push(o.body.id)
@@ -434,7 +434,7 @@ describe('learning from actual times', () => {
         customerId,
         title: `Per-mm fixture ${i}`,
         dueDate: '2030-06-30',
-        pieces: [{ templateId: routing.body.id, piece: 'Bar', params: { sizeMm: 100 } }],
+        pieces: [{ routingId: routing.body.id, piece: 'Bar', params: { sizeMm: 100 } }],
       })
       const ops = await opsOf(o.body.id)
       const day = `2030-06-${String(3 + i).padStart(2, '0')}`
@@ -460,7 +460,7 @@ describe('learning from actual times', () => {
         customerId,
         title: `Outlier fixture ${i}`,
         dueDate: '2030-06-30',
-        pieces: [{ templateId: routing.body.id, piece: 'Pavé', params: { stoneCount: stones } }],
+        pieces: [{ routingId: routing.body.id, piece: 'Pavé', params: { stoneCount: stones } }],
       })
       const ops = await opsOf(o.body.id)
       let minutes = Math.round(((20 + 6 * stones) / speed) * 60) / 60

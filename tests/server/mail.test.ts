@@ -50,7 +50,7 @@ describe('mail', () => {
     const r = await sales.post('/api/promise/accept', {
       customerId: c.id,
       title: 'Signet ring',
-      templateId: await firstRoutingId(t.db),
+      routingId: await firstRoutingId(t.db),
       promisedDate: '2031-03-14',
       priority: 3,
       priceQuotedMinor: 30_000,
@@ -85,7 +85,7 @@ describe('mail', () => {
     const r = await sales.post('/api/promise/accept', {
       customerId: await firstCustomerId(t.db, 1),
       title: 'Euro ring',
-      templateId: await firstRoutingId(t.db),
+      routingId: await firstRoutingId(t.db),
       promisedDate: '2031-03-14',
       priority: 3,
       priceQuotedMinor: 199_900,

@@ -398,8 +398,8 @@ describe('finished pieces leave stock', () => {
       title: 'Two pieces to collect',
       dueDate: '2031-09-01',
       pieces: [
-        { templateId: routing.id, piece: 'One' },
-        { templateId: routing.id, piece: 'Two' },
+        { routingId: routing.id, piece: 'One' },
+        { routingId: routing.id, piece: 'Two' },
       ],
     })
     expect(made.status, JSON.stringify(made.body)).toBe(201)

@@ -54,8 +54,8 @@ describe('taking an order', () => {
       priority: 2,
       priceQuotedMinor: 185_000,
       pieces: [
-        { templateId: routing['pave-pendant']!.id, piece: 'Pavé wave pendant', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, quantity: 2 } },
-        { templateId: routing['bezel-ring']!.id, piece: 'Garnet bezel ring', params: { stoneCount: 1, stoneSizeMm: 7 } },
+        { routingId: routing['pave-pendant']!.id, piece: 'Pavé wave pendant', params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, quantity: 2 } },
+        { routingId: routing['bezel-ring']!.id, piece: 'Garnet bezel ring', params: { stoneCount: 1, stoneSizeMm: 7 } },
       ],
     })
     expect(r.status).toBe(201)
@@ -79,7 +79,7 @@ describe('taking an order', () => {
       [`${number}-2`, 'Garnet bezel ring'],
     ])
     expect(r.body.jobBags[0]).toMatchObject({
-      templateId: routing['pave-pendant']!.id,
+      routingId: routing['pave-pendant']!.id,
       status: 'waiting',
       params: { metal: 'gold-18ct', stoneCount: 18, stoneSizeMm: 1.3, sizeMm: 0, finish: 'polished', quantity: 2 },
     })
@@ -98,7 +98,7 @@ describe('taking an order', () => {
       customerId,
       title: 'Two pendants',
       dueDate: '2031-07-01',
-      pieces: [{ templateId: routing['pave-pendant']!.id, piece: 'Pavé pendant', params: { stoneCount: 18, quantity: 2 } }],
+      pieces: [{ routingId: routing['pave-pendant']!.id, piece: 'Pavé pendant', params: { stoneCount: 18, quantity: 2 } }],
     })
     const ops: Op[] = r.body.jobBags[0].operations
     // Hand-computed from the seeded pavé-pendant routing (server/db/seed.ts); estimate rule: common practice, no source.
@@ -135,7 +135,7 @@ describe('taking an order', () => {
       customerId,
       title: 'Halo ring',
       dueDate: '2031-07-02',
-      pieces: [{ templateId: routing['halo-ring']!.id, piece: 'Halo ring', params: { metal: 'platinum-950', stoneCount: 15 } }],
+      pieces: [{ routingId: routing['halo-ring']!.id, piece: 'Halo ring', params: { metal: 'platinum-950', stoneCount: 15 } }],
     })
     const ops = byKey(r.body.jobBags[0].operations)
     for (const s of routing['halo-ring']!.steps) {
@@ -159,7 +159,7 @@ describe('taking an order', () => {
       customerId,
       title: 'Studs',
       dueDate: '2031-07-03',
-      pieces: [{ templateId: routing['stud-run']!.id, piece: 'Seed studs, 40 pairs', params: { quantity: 40 } }],
+      pieces: [{ routingId: routing['stud-run']!.id, piece: 'Seed studs, 40 pairs', params: { quantity: 40 } }],
     })
     // Stud run (seed.ts): clean 5, post 4, polish 4, pack 1.5 minutes for the first pair, learning rate 0.85; casting and
     // hallmarking are outside. Wright 1936: T(N) = a·N^(1+log₂ r); 40^(1 + log₂ 0.85) = 40^0.765535 = 16.8435 (calculator),
@@ -175,16 +175,16 @@ describe('taking an order', () => {
 
   it("when the customer or a routing is not the workshop's, then 400 naming the field and nothing is saved", async () => {
     const n = await orderCount()
-    const good = { templateId: routing['ring-resize']!.id, piece: 'Resize' }
+    const good = { routingId: routing['ring-resize']!.id, piece: 'Resize' }
     expectFieldError(await sales.post('/api/orders', { customerId: 999999, title: 'x', dueDate: '2031-01-01', pieces: [good] }), 'customerId', /not a customer/)
     expectFieldError(
-      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: 999999, piece: 'x' }] }),
-      'pieces.0.templateId',
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ routingId: 999999, piece: 'x' }] }),
+      'pieces.0.routingId',
       /is not a routing of this workshop/,
     )
     expectFieldError(
-      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [good, { templateId: 999999, piece: 'x' }] }),
-      'pieces.1.templateId',
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [good, { routingId: 999999, piece: 'x' }] }),
+      'pieces.1.routingId',
       /is not a routing of this workshop/,
     )
     const other = await secondWorkshop(t, 'orders')
@@ -192,8 +192,8 @@ describe('taking an order', () => {
     const foreign = (await other.agent.post('/api/routings', { code: 'own', name: 'Own', steps: [{ key: 'a', kindId: kind.id, name: 'A', baseMinutes: 5 }] }))
       .body
     expectFieldError(
-      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: foreign.id, piece: 'x' }] }),
-      'pieces.0.templateId',
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ routingId: foreign.id, piece: 'x' }] }),
+      'pieces.0.routingId',
     )
     expect(await orderCount()).toBe(n)
   })
@@ -203,7 +203,7 @@ describe('taking an order', () => {
       customerId,
       title: 'x',
       dueDate: '2031-01-01',
-      pieces: [{ templateId: routing['ring-resize']!.id, piece: 'x', params }],
+      pieces: [{ routingId: routing['ring-resize']!.id, piece: 'x', params }],
     })
     expectFieldError(await sales.post('/api/orders', { customerId, dueDate: '2031-01-01' }), 'title', /required/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-02-30' }), 'dueDate', /real date/)
@@ -219,7 +219,7 @@ describe('taking an order', () => {
     expectFieldError(await sales.post('/api/orders', piece({ quantity: 0 })), 'pieces.0.params.quantity', /at least 1/)
     expectFieldError(await sales.post('/api/orders', piece({ metal: 'tin' })), 'pieces.0.params.metal', /listed metals/)
     expectFieldError(
-      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ templateId: routing['ring-resize']!.id }] }),
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', pieces: [{ routingId: routing['ring-resize']!.id }] }),
       'pieces.0.piece',
       /required/,
     )
@@ -290,7 +290,7 @@ describe('changing an order', () => {
         customerId,
         title: 'Resize',
         dueDate: '2031-08-01',
-        pieces: [{ templateId: routing['ring-resize']!.id, piece: 'Resize M to O' }],
+        pieces: [{ routingId: routing['ring-resize']!.id, piece: 'Resize M to O' }],
       })
     ).body
     const u = await sales.patch(`/api/orders/${o.id}`, { promisedDate: '2031-07-30', priority: 1, version: 0 })

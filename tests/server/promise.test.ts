@@ -17,7 +17,7 @@ import { bookSlot, placeInGaps, planFromAssignments, PROSPECTIVE_JOB } from '../
 let t: TestApp
 let fake: FakeSmtp
 let sales: Agent
-let templateId: number
+let routingId: number
 const params = { metal: 'gold-18ct', stoneCount: 3, stoneSizeMm: 2, sizeMm: 54, finish: 'polished', quantity: 1 }
 
 beforeAll(async () => {
@@ -25,7 +25,7 @@ beforeAll(async () => {
   t = await createTestApp({ SMTP_URL: fake.url })
   fake.useDb(t.db)
   sales = await signedIn(t.app, 'sales')
-  templateId = await firstRoutingId(t.db)
+  routingId = await firstRoutingId(t.db)
 })
 afterAll(async () => {
   await t?.close()
@@ -34,7 +34,7 @@ afterAll(async () => {
 
 describe('promise check', () => {
   it('when nothing is published yet, then it answers from a quick plan with a completion after now and a re-planned answer', async () => {
-    const r = await sales.post('/api/promise/check', { templateId, params })
+    const r = await sales.post('/api/promise/check', { routingId, params })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect(r.body.basis).toBe('quick-plan')
     expect(Date.parse(r.body.fixedPlan.at)).toBeGreaterThan(Date.parse(r.body.now))
@@ -46,16 +46,19 @@ describe('promise check', () => {
     expect(r.body.replanned.date).toBe(londonDay(r.body.replanned.at))
     expect(r.body.operations.length).toBeGreaterThan(0)
     expect(r.body.range).toBeNull()
+    // The answer names the routing it was asked about, as the database holds it.
+    const [stored] = await t.db.select({ id: s.routings.id, name: s.routings.name }).from(s.routings).where(eq(s.routings.id, routingId))
+    expect(r.body.routing).toEqual(stored)
   })
 
   it('when a routing is not the workshop’s or the params are bad, then it is refused naming the field', async () => {
-    expectFieldError(await sales.post('/api/promise/check', { templateId: 999999, params }), 'templateId')
-    expectFieldError(await sales.post('/api/promise/check', { templateId, params: { ...params, quantity: 0 } }), 'params.quantity')
+    expectFieldError(await sales.post('/api/promise/check', { routingId: 999999, params }), 'routingId')
+    expectFieldError(await sales.post('/api/promise/check', { routingId, params: { ...params, quantity: 0 } }), 'params.quantity')
   })
 
   it('when bench users ask, then they are refused (sales, managers and owners only)', async () => {
     const bench = await signedIn(t.app, 'bench')
-    expect((await bench.post('/api/promise/check', { templateId, params })).status).toBe(403)
+    expect((await bench.post('/api/promise/check', { routingId, params })).status).toBe(403)
   })
 
   it('when every person with the first step’s skill is booked on the live plan, then the promise does not finish before they are free', async () => {
@@ -64,7 +67,7 @@ describe('promise check', () => {
     const steps = await t.db
       .select({ kindId: s.routingSteps.kindId, requiredLevel: s.routingSteps.requiredLevel, leadDays: s.routingSteps.leadDays })
       .from(s.routingSteps)
-      .where(eq(s.routingSteps.routingId, templateId))
+      .where(eq(s.routingSteps.routingId, routingId))
       .orderBy(asc(s.routingSteps.seq))
     const first = steps.find((x) => x.leadDays === 0)!
     const able = data.meta.skills.filter((k) => k.kindId === first.kindId && k.level >= first.requiredLevel && data.meta.people.has(String(k.personId)))
@@ -88,7 +91,7 @@ describe('promise check', () => {
     expect(benchIds.length).toBeGreaterThan(0)
     // Written straight into the database: announce the change as the services do, so cached answers are dropped.
     t.realtime.emit(1, 'plan:changed', { id: 0, operationId: 0 })
-    const r = await sales.post('/api/promise/check', { templateId, params })
+    const r = await sales.post('/api/promise/check', { routingId, params })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect(r.body.basis).toBe('live-plan')
     expect(r.body.fixedPlan.feasible).toBe(true)
@@ -99,7 +102,7 @@ describe('promise check', () => {
   })
 
   it('when the range is asked for, then P50 ≤ P80 ≤ P95, P50 is before P95, and the stated assumption comes with it', async () => {
-    const r = await sales.post('/api/promise/check', { templateId, params, range: true, runs: 500, seed: 7, sample: true })
+    const r = await sales.post('/api/promise/check', { routingId, params, range: true, runs: 500, seed: 7, sample: true })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     const g = r.body.range
     expect(g.runs).toBe(500)
@@ -114,7 +117,7 @@ describe('promise check', () => {
     expect(g.kinds.length).toBeGreaterThan(0)
     expect(g.kinds.some((k: { source: string }) => k.source === 'history')).toBe(true)
     // Seeded: the same seed gives the same range.
-    const again = await sales.post('/api/promise/check', { templateId, params, range: true, runs: 500, seed: 7 })
+    const again = await sales.post('/api/promise/check', { routingId, params, range: true, runs: 500, seed: 7 })
     expect(again.body.range.quantileMinutes).toEqual(g.quantileMinutes)
   })
 })
@@ -171,7 +174,7 @@ describe('outside work history', () => {
 describe('accepting a promise', () => {
   it('when no plan is published, then the order is taken but not booked, and the e-mail says the dates will be confirmed rather than that it is planned', async () => {
     await clearPlan()
-    const check = await sales.post('/api/promise/check', { templateId, params })
+    const check = await sales.post('/api/promise/check', { routingId, params })
     const promisedDate: string = check.body.fixedPlan.date
     const c = (
       await t.db
@@ -184,7 +187,7 @@ describe('accepting a promise', () => {
     const r = await sales.post('/api/promise/accept', {
       customerId: c.id,
       title: 'Bezel ring with three stones',
-      templateId,
+      routingId,
       params,
       promisedDate,
       priority: 2,
@@ -224,7 +227,7 @@ describe('accepting a promise', () => {
     await clearPlan()
     await seedLivePlan(6)
     const before = await planned()
-    const check = await sales.post('/api/promise/check', { templateId, params })
+    const check = await sales.post('/api/promise/check', { routingId, params })
     expect(check.body.basis).toBe('live-plan')
     const promisedDate: string = check.body.fixedPlan.date
     const c = (
@@ -238,7 +241,7 @@ describe('accepting a promise', () => {
     const r = await sales.post('/api/promise/accept', {
       customerId: c.id,
       title: 'Booked bezel ring',
-      templateId,
+      routingId,
       params,
       promisedDate,
       priority: 3,
@@ -303,13 +306,13 @@ describe('accepting a promise', () => {
   it('when the room found now ends after the promised date, then the order is not booked and the e-mail does not claim it is', async () => {
     await clearPlan()
     await seedLivePlan(6)
-    const check = await sales.post('/api/promise/check', { templateId, params })
+    const check = await sales.post('/api/promise/check', { routingId, params })
     const earlier = format(new Date(Date.parse(check.body.now) - 86_400_000), 'yyyy-MM-dd')
     const c = { id: await firstCustomerId(t.db, 1) }
     const r = await sales.post('/api/promise/accept', {
       customerId: c.id,
       title: 'Too soon',
-      templateId,
+      routingId,
       params,
       promisedDate: earlier,
       priority: 3,
@@ -332,7 +335,7 @@ describe('accepting a promise', () => {
     const steps = await t.db
       .select({ key: s.routingSteps.key, kindId: s.routingSteps.kindId, leadDays: s.routingSteps.leadDays })
       .from(s.routingSteps)
-      .where(eq(s.routingSteps.routingId, templateId))
+      .where(eq(s.routingSteps.routingId, routingId))
       .orderBy(asc(s.routingSteps.seq))
     // A one-step prospective job on the first bench step's kind, placed in the gaps.
     const step = steps.find((x) => x.leadDays === 0)!
@@ -353,7 +356,7 @@ describe('accepting a promise', () => {
       .select({ orderId: s.jobBags.orderId })
       .from(s.jobBags)
       .innerJoin(o, eq(o.jobBagId, s.jobBags.id))
-      .where(and(eq(o.key, step.key), eq(s.jobBags.routingId, templateId)))
+      .where(and(eq(o.key, step.key), eq(s.jobBags.routingId, routingId)))
       .limit(1)
     const actor = { userId: 1, workshopId: 1, role: 'sales' } as never
     const result = await t.db.transaction((tx) => bookSlot(tx, actor, data, order!.orderId, placed))
@@ -378,7 +381,7 @@ describe('accepting a promise', () => {
     const r = await sales.post('/api/promise/accept', {
       customerId: c.id,
       title: 'Enamel pendant',
-      templateId: routing.id,
+      routingId: routing.id,
       promisedDate: '2031-05-10',
       priority: 3,
       priceQuotedMinor: 9000,
@@ -396,7 +399,7 @@ describe('accepting a promise', () => {
       await sales.post('/api/promise/accept', {
         customerId: c.id,
         title: 'x',
-        templateId,
+        routingId,
         params,
         promisedDate: '2031-05-10',
         dueDate: '2031-05-01',

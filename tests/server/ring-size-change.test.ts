@@ -30,9 +30,9 @@ beforeAll(async () => {
     title: 'Signet ring and a resize',
     dueDate: '2031-09-01',
     pieces: [
-      { templateId: signet.id, piece: 'Signet ring', params: { metal: 'gold-9ct', ringSize: { scale: 'uk', value: 'N' } } },
+      { routingId: signet.id, piece: 'Signet ring', params: { metal: 'gold-9ct', ringSize: { scale: 'uk', value: 'N' } } },
       {
-        templateId: resize.id,
+        routingId: resize.id,
         piece: 'Resize L to N',
         params: { metal: 'silver-925', resizeFrom: { scale: 'uk', value: 'L' }, resizeTo: { scale: 'uk', value: 'N' } },
       },

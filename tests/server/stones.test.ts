@@ -63,7 +63,7 @@ beforeAll(async () => {
     customerId: c.id,
     title: 'Halo ring, customer’s diamond',
     dueDate: '2031-09-01',
-    pieces: [{ templateId: routing.id, piece: 'Halo ring', params: { metal: 'platinum-950', ringSize: { scale: 'uk', value: 'N' } } }],
+    pieces: [{ routingId: routing.id, piece: 'Halo ring', params: { metal: 'platinum-950', ringSize: { scale: 'uk', value: 'N' } } }],
   })
   expect(r.status).toBe(201)
   orderId = r.body.id
@@ -342,7 +342,7 @@ describe('a routing step’s own role factors', () => {
       customerId: await firstCustomerId(t.db),
       title: 'Two halo rings',
       dueDate: '2031-09-01',
-      pieces: [{ templateId: routing.body.id, piece: 'Halo ring', params: { quantity: 2 } }],
+      pieces: [{ routingId: routing.body.id, piece: 'Halo ring', params: { quantity: 2 } }],
     })
     const bag = o.body.jobBags[0].id
     await sales.post(`/api/job-bags/${bag}/stones`, { role: 'centre', sizeMm: 6.5, count: 1 })

@@ -13,7 +13,7 @@ export interface IdPools {
 export function poolOfField(name: string): string | null {
   const n = name.toLowerCase()
   if (n === 'customerid') return 'customers'
-  if (n === 'templateid') return 'routings'
+  if (n === 'routingid') return 'routings'
   if (n === 'kindid') return 'kinds'
   if (n === 'benchid') return 'benches'
   if (n === 'personid') return 'people'

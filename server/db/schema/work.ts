@@ -132,7 +132,7 @@ export const operations = pgTable(
     name: text().notNull(),
     status: text().notNull().default('pending'),
     estimateMinutes: real().notNull(),
-    estimateSource: text().notNull().default('template'),
+    estimateSource: text().notNull().default('routing'),
     requiredLevel: integer().notNull().default(1),
     waitAfterMinutes: integer().notNull().default(0),
     leadDays: integer().notNull().default(0),

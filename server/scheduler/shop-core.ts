@@ -216,6 +216,44 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     for (let k = from; k < n; k++) pos[topo[k]!] = k
     return true
   }
+  /** Moves the operation at order position `a` to position `b`, shifting those between; returns the first position changed. */
+  const moveInOrder = (a: number, b: number): number => {
+    const x = topo[a]!
+    if (a < b) {
+      for (let k = a; k < b; k++) {
+        const y = topo[k + 1]!
+        topo[k] = y
+        pos[y] = k
+      }
+    } else {
+      for (let k = a; k > b; k--) {
+        const y = topo[k - 1]!
+        topo[k] = y
+        pos[y] = k
+      }
+    }
+    topo[b] = x
+    pos[x] = b
+    return a < b ? a : b
+  }
+  /** Heads from position `from` on, in the current order (valid for the graph as it is). */
+  const retimeFrom = (from: number): void => {
+    for (let k = from; k < n; k++) {
+      const x = topo[k]!
+      let rx = rel[x]!
+      const jp = jobPred[x]!,
+        mp = mPred[x]!
+      if (jp >= 0) {
+        const e = r[jp]! + p[jp]!
+        if (e > rx) rx = e
+      }
+      if (mp >= 0) {
+        const e = r[mp]! + p[mp]!
+        if (e > rx) rx = e
+      }
+      r[x] = rx
+    }
+  }
   /** Tails of the operations up to position `upTo` of the order (those after it cannot reach a changed arc); returns the makespan. */
   const computeTailsUpTo = (upTo: number): number => {
     for (let k = upTo; k >= 0; k--) {
@@ -569,10 +607,23 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     let from = pos[mvOp]!
     if (oldSucc >= 0 && pos[oldSucc]! < from) from = pos[oldSucc]!
     if (newSucc >= 0 && newSucc !== mvOp && pos[newSucc]! < from) from = pos[newSucc]!
+    // A move along the machine usually leaves the order valid once the moved operation takes its new place in it (no job arc
+    // is crossed): then the heads are re-timed in that order, in one pass; otherwise Kahn's rule re-orders the part after `from`.
+    let kept = -1
+    if (mvKind === 0 && mvAfter >= 0) {
+      const to = pos[mvAfter]!,
+        js = jobSucc[mvOp]!
+      if (js < 0 || pos[js]! > to) kept = moveInOrder(pos[mvOp]!, to)
+    } else if (mvKind === 1 && newSucc >= 0) {
+      const to = pos[newSucc]!,
+        jp = jobPred[mvOp]!
+      if (jp < 0 || pos[jp]! < to) kept = moveInOrder(pos[mvOp]!, to)
+    }
     unlink(mvOp)
     p[mvOp] = mvDur
     linkAfter(mvOp, mvMach, mvAfter)
-    if (!computeHeadsFrom(from)) {
+    if (kept >= 0) retimeFrom(kept)
+    else if (!computeHeadsFrom(from)) {
       unlink(mvOp)
       p[mvOp] = oldDur
       linkAfter(mvOp, oldMach, oldAfter)

@@ -1,8 +1,7 @@
 // Sign-in, sign-out and who is signed in.
 import { sql } from 'drizzle-orm'
 import type { Request } from 'express'
-import { signIn } from '../../shared/schemas/session'
-import type { SessionUser } from '../../shared/schemas/session'
+import { health, sessionInfo, signedOut, signIn, type SessionUser } from '../../shared/schemas/session'
 import { AppError } from '../errors/app-error'
 import { route } from '../lib/route'
 import { csrfToken } from '../middleware/csrf'
@@ -24,6 +23,7 @@ export const sessionRoutes = [
     path: '/health',
     roles: 'public',
     summary: 'Liveness with a database check',
+    response: health,
     handler: async ({ deps }) => {
       try {
         await deps.db.execute(sql`select 1`)
@@ -38,6 +38,7 @@ export const sessionRoutes = [
     path: '/session',
     roles: 'public',
     summary: 'The signed-in user (or null) and the CSRF token',
+    response: sessionInfo,
     handler: async ({ req }) => {
       // A session that already has its token is left as it is (no write); a new token is saved before it is handed out.
       const isNew = !req.session.csrfToken
@@ -52,6 +53,7 @@ export const sessionRoutes = [
     roles: 'public',
     summary: 'Sign in',
     body: signIn,
+    response: sessionInfo,
     handler: async ({ req, deps }) => {
       const user = await authenticate(req, deps.passport!)
       // req.login regenerates the session id (no fixation); the CSRF token is renewed with it.
@@ -67,6 +69,7 @@ export const sessionRoutes = [
     path: '/session',
     roles: EVERYONE,
     summary: 'Sign out (the session is destroyed on the server)',
+    response: signedOut,
     handler: async ({ req, res, deps }) => {
       const sessionId = req.sessionID
       await new Promise<void>((r, j) => req.logout((e) => (e ? j(e) : r())))

@@ -22,3 +22,7 @@ export const sessionUser = z.object({
 export type SessionUser = z.infer<typeof sessionUser>
 export const sessionInfo = z.object({ user: sessionUser.nullable(), csrfToken: z.string() })
 export type SessionInfo = z.infer<typeof sessionInfo>
+/** The liveness answer: the server runs and its database answered. */
+export const health = z.object({ ok: z.literal(true) })
+/** Signed out: the session is gone on the server. */
+export const signedOut = z.object({ ok: z.literal(true) })

@@ -1,5 +1,5 @@
 // Session API: who is signed in, sign-in and sign-out (keeps the client's CSRF token in step).
-import { sessionInfo, type SessionInfo, type SignIn } from '@shared/schemas/session'
+import { sessionInfo, signedOut, type SessionInfo, type SignIn } from '@shared/schemas/session'
 import { api, setCsrfToken } from './client'
 
 const parseInfo = (d: unknown): SessionInfo => sessionInfo.parse(d)
@@ -17,6 +17,6 @@ export async function signIn(body: SignIn): Promise<SessionInfo> {
 }
 
 export async function signOut(): Promise<void> {
-  await api.delete('/session')
+  await api.delete('/session', { schema: signedOut })
   setCsrfToken(null)
 }

@@ -12,7 +12,8 @@ import { waitForRun } from '../../server/planning/runs'
 import { startPayFake, type PayFake } from '../../server/dev/pay-fake'
 import * as s from '../../server/db/schema/index'
 import { newLinkToken } from '../../server/services/accounts'
-import { Agent, createTestApp, signedIn, type TestApp } from '../setup/app'
+import { Agent, createTestApp, DEMO_EMAIL, signedIn, type TestApp } from '../setup/app'
+import { DEMO_PASSWORD } from '../../server/db/seed'
 import { alloyIdByCode, firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, routingId } from '../setup/fixtures'
 
 let t: TestApp
@@ -542,6 +543,21 @@ describe('answers on the demo workshop', () => {
     const changes = await call(owner, 'get', '/estimates/changes', '/estimates/changes')
     expect(changes.length).toBeGreaterThan(0)
     await call(manager, 'post', '/estimates/three-point', '/estimates/three-point', { optimistic: 30, mostLikely: 45, pessimistic: 90 })
+  })
+
+  it('when the server is checked, a visitor reads the session, signs in and signs out, then the health check and every session answer are what their schemas allow', async () => {
+    await call(new Agent(t.app), 'get', '/health', '/health')
+    const visitor = new Agent(t.app)
+    const before = await call(visitor, 'get', '/session', '/session')
+    expect(before.user).toBeNull()
+    visitor.csrf = before.csrfToken
+    const after = await call(visitor, 'post', '/session', '/session', { email: DEMO_EMAIL.sales, password: DEMO_PASSWORD })
+    expect(after.user.role).toBe('sales')
+    visitor.csrf = after.csrfToken
+    expect((await call(visitor, 'get', '/session', '/session')).user.role).toBe('sales')
+    await call(visitor, 'delete', '/session', '/session')
+    const out = await call(visitor, 'get', '/session', '/session')
+    expect(out.user).toBeNull()
   })
 
   it('when every call above is done, then each route with a response schema was called at least once', () => {

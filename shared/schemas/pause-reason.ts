@@ -1,6 +1,6 @@
 // The workshop's pause reasons: what the owner may add and change, and what every screen reads.
 import { z } from 'zod'
-import { version } from './common'
+import { version, wireInt } from './common'
 
 const label = z.string({ error: 'is required' }).trim().min(2, 'must be at least 2 characters').max(60, 'must be at most 60 characters')
 
@@ -22,12 +22,16 @@ export const pauseReasonCode = z.string({ error: 'is required' }).trim().min(1, 
 
 export type PauseReasonInput = z.infer<typeof pauseReasonInput>
 export type PauseReasonUpdate = z.infer<typeof pauseReasonUpdate>
-export interface PauseReason {
-  id: number
-  code: string
-  label: string
-  needsNote: boolean
-  active: boolean
-  sort: number
-  version: number
-}
+
+// ---- Answers ----
+
+export const pauseReason = z.object({
+  id: wireInt,
+  code: z.string(),
+  label: z.string(),
+  needsNote: z.boolean(),
+  active: z.boolean(),
+  sort: wireInt,
+  version: wireInt,
+})
+export type PauseReason = z.infer<typeof pauseReason>

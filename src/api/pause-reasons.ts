@@ -1,7 +1,8 @@
 // Pause reasons API: the workshop's list (everyone), additions and changes (owner).
-import type { PauseReason, PauseReasonInput, PauseReasonUpdate } from '@shared/schemas/pause-reason'
+import { z } from 'zod'
+import { pauseReason, type PauseReasonInput, type PauseReasonUpdate } from '@shared/schemas/pause-reason'
 import { api } from './client'
 
-export const listPauseReasons = () => api.get<PauseReason[]>('/pause-reasons')
-export const createPauseReason = (body: PauseReasonInput) => api.post<PauseReason>('/pause-reasons', body)
-export const updatePauseReason = (id: number, body: PauseReasonUpdate) => api.patch<PauseReason>(`/pause-reasons/${id}`, body)
+export const listPauseReasons = () => api.get('/pause-reasons', { schema: z.array(pauseReason) })
+export const createPauseReason = (body: PauseReasonInput) => api.post('/pause-reasons', body, { schema: pauseReason })
+export const updatePauseReason = (id: number, body: PauseReasonUpdate) => api.patch(`/pause-reasons/${id}`, body, { schema: pauseReason })

@@ -560,6 +560,16 @@ describe('answers on the demo workshop', () => {
     expect(out.user).toBeNull()
   })
 
+  it('when the owner reads the pause reasons, adds one and switches it off, then the list and each write answer what their schemas allow', async () => {
+    const before = await call(manager, 'get', '/pause-reasons', '/pause-reasons')
+    expect(before.length).toBeGreaterThan(0)
+    const added = await call(owner, 'post', '/pause-reasons', '/pause-reasons', { label: 'Waiting for the polisher', needsNote: true }, 201)
+    const off = await call(owner, 'patch', '/pause-reasons/:id', `/pause-reasons/${added.id}`, { active: false, version: added.version })
+    expect(off.active).toBe(false)
+    const after = await call(manager, 'get', '/pause-reasons', '/pause-reasons')
+    expect(after.length).toBe(before.length + 1)
+  })
+
   it('when every call above is done, then each route with a response schema was called at least once', () => {
     expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])
   })

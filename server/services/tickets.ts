@@ -1,11 +1,12 @@
-// The printable job ticket: a PDF (A6 or A5) with the bag's number, piece, customer reference, due date, routing checklist, cautions and a QR link.
+// The printable job ticket: a PDF (A6 or A5) with the bag's number, piece, customer reference, due date, the stones to set (counted as the setting estimate counts them), routing checklist, cautions and a QR link.
 import { eq, inArray } from 'drizzle-orm'
 import PDFDocument from 'pdfkit'
 import QRCode from 'qrcode'
 import { HAZARD_FOOTER, cautionsFor } from '../../shared/domain/status'
-import { metalName } from '../../shared/schemas/order'
+import { stonesToSet, type StonesToSet } from '../../shared/domain/stones'
+import { metalName, type PieceParams } from '../../shared/schemas/order'
 import type { Db } from '../db/client'
-import { benches, workshops } from '../db/schema/index'
+import { benches, jobBagStones, workshops } from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import { getJobBag } from './job-bags'
 import { customerStoneWords, stoneListWords } from './stones'
@@ -36,6 +37,23 @@ export function workshopTime(at: Date, timeZone: string): string {
   }).formatToParts(at)
   const part = (type: Intl.DateTimeFormatPartTypes) => parts.find((x) => x.type === type)?.value ?? ''
   return `${part('year')}-${part('month')}-${part('day')} ${part('hour')}:${part('minute')} ${part('timeZoneName')} (${timeZone})`
+}
+
+/** Joined with no-break spaces, so a number stays on the line of its word when the ticket's narrow column wraps. */
+const keep = (...words: (string | number)[]) => words.join('\u00a0')
+
+/** The stones on the qty line: "36 stones (18 a piece)" over several pieces, "12 stones" / "1 stone" for one; '' when none. */
+export function ticketStoneWords(st: Pick<StonesToSet, 'total' | 'perPiece' | 'pieces'>): string {
+  if (!st.total) return ''
+  const all = keep(st.total, st.total === 1 ? 'stone' : 'stones')
+  return st.pieces > 1 ? `${all} ${keep(`(${st.perPiece}`, 'a', 'piece)')}` : all
+}
+
+/** When the stone list is counted and the piece figures say otherwise, which one the ticket counts: "Counted from this list; the order's figures say 12 × 1.3 mm a piece." */
+export function ticketStoneSourceWords(st: Pick<StonesToSet, 'source' | 'pieceFigures'>): string {
+  const f = st.pieceFigures
+  if (st.source !== 'stone-list' || !f) return ''
+  return `Counted from this list; the order's figures say ${f.perPiece}${f.sizeMm !== null ? ` × ${f.sizeMm} mm` : ''} a piece.`
 }
 
 const SIZES = { A6: [297.64, 419.53], A5: [419.53, 595.28] } as const
@@ -94,8 +112,15 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
     ['Customer ref.', bag.order.customerReference],
     ['Due', fmtDate(bag.order.promisedDate ?? bag.order.dueDate)],
   ]
-  const p = bag.params as { metal?: string; quantity?: number; stoneCount?: number }
-  facts.push(['Metal / qty', `${p.metal ? metalName(p.metal) : '—'} · ${p.quantity ?? 1}${p.stoneCount ? ` · ${p.stoneCount} stones` : ''}`])
+  // Stones by the setting estimate's rule (as the bench cards): the bag's own stone list when it has one, else the piece figures; pieces from the figures.
+  const p = bag.params as Partial<PieceParams>
+  const lines = await db.select({ sizeMm: jobBagStones.sizeMm, count: jobBagStones.count }).from(jobBagStones).where(eq(jobBagStones.jobBagId, bag.id))
+  const stones = stonesToSet(p, lines)
+  const stoneWords = ticketStoneWords(stones)
+  facts.push([
+    'Metal / qty',
+    `${p.metal ? metalName(p.metal) : '—'} · ${keep(stones.pieces, stones.pieces === 1 ? 'piece' : 'pieces')}${stoneWords ? ` · ${stoneWords}` : ''}`,
+  ])
   const rs = bag.params as { ringSize?: RingSizeInput; resizeFrom?: RingSizeInput; resizeTo?: RingSizeInput }
   if (rs.ringSize) facts.push(['Ring size', ringSizeWords(rs.ringSize)])
   if (rs.resizeFrom || rs.resizeTo)
@@ -109,13 +134,14 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
       .fillColor('#000')
       .text(v, m + fs(56), y, { width: textW - fs(56) })
   }
-  doc.y = Math.max(doc.y, m + qrSize + 2)
+  // Below the facts (a wrapped one may reach past the QR code) and below the QR code's caption.
+  const factsEnd = doc.y
   doc
     .font('Helvetica')
     .fontSize(fs(6))
     .fillColor('#555')
     .text('Scan to open this job bag', w - m - qrSize, m + qrSize - 6, { width: qrSize, align: 'center' })
-  doc.y = Math.max(doc.y, m + qrSize + 8)
+  doc.y = Math.max(factsEnd + 2, doc.y, m + qrSize + 8)
 
   // The stone list for the setter: role, count, size, measured depth, carats.
   const stoneList = await stoneListWords(db, jobBagId)
@@ -125,6 +151,12 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
       .fontSize(fs(7))
       .fillColor('#000')
       .text(`Stones — ${stoneList.join('; ')}`, m, doc.y, { width: w - 2 * m })
+    const source = ticketStoneSourceWords(stones)
+    if (source)
+      doc
+        .font('Helvetica-Oblique')
+        .fontSize(fs(7))
+        .text(source, m, doc.y, { width: w - 2 * m })
     doc.moveDown(0.3)
   }
   // The customer's own stones, to be checked back with them at collection.

@@ -1,5 +1,5 @@
 // The printable job ticket: a real PDF (read back with pdf-parse) with number, routing, cautions, no customer contact data,
-// names instead of codes, the print time in the workshop's zone, and a QR that decodes to the bag's link at the workshop's public address.
+// names instead of codes, the stones counted as the setting estimate counts them, the print time in the workshop's zone, and a QR that decodes to the bag's link at the workshop's public address.
 import { networkInterfaces } from 'node:os'
 import { PDFParse } from 'pdf-parse'
 import jsQR from 'jsqr'
@@ -14,6 +14,7 @@ import { suggestPublicUrl } from '../../server/lib/public-url'
 import { and, asc, eq, exists, ne } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { routingId } from '../setup/fixtures'
 import { expectCleanError, expectFieldError } from './helpers'
 
 dayjs.extend(utc)
@@ -25,7 +26,15 @@ const PUBLIC_URL = 'https://millgrain.wrenfield.example'
 let t: TestApp
 let manager: Agent
 let owner: Agent
-let bag: { id: number; number: string; customer_name: string; email: string; phone: string; reference: string }
+let bag: {
+  id: number
+  number: string
+  customer_name: string
+  email: string
+  phone: string
+  reference: string
+  params: (typeof s.jobBags.$inferSelect)['params']
+}
 let benchName: string
 
 /** Sets the workshop's public address through the owner's settings API (version read first). */
@@ -206,6 +215,86 @@ describe('job ticket PDF', () => {
     expect((await binary(bench.get(`/api/job-bags/${bag.id}/ticket.pdf`))).status).toBe(200)
     expectCleanError(await manager.get('/api/job-bags/999999/ticket.pdf'), 404)
     expectCleanError(await manager.get(`/api/job-bags/${bag.id}/ticket.pdf?size=A3`), 400)
+  })
+})
+
+describe('the stones a ticket counts', () => {
+  /** Takes an order for one pavé pendant with these piece figures (through the API, so every step's planned minutes are the app's own). */
+  async function orderPavePendant(params: { stoneCount: number; stoneSizeMm: number; quantity: number }): Promise<number> {
+    const [customer] = await t.db.select({ id: s.customers.id }).from(s.customers).where(eq(s.customers.workshopId, 1)).orderBy(asc(s.customers.id)).limit(1)
+    const routing = await routingId(t.db, 'pave-pendant')
+    const r = await manager.post('/api/orders', {
+      customerId: customer!.id,
+      title: 'Pavé pendants',
+      dueDate: '2031-03-14',
+      // The piece's routing by both its wire names (routingId, formerly templateId); the schema drops the one it does not know.
+      pieces: [{ routingId: routing, templateId: routing, piece: 'Pavé disc pendant', params: { metal: 'silver-925', sizeMm: 22, ...params } }],
+    })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    return (r.body as { jobBags: { id: number }[] }).jobBags[0]!.id
+  }
+  const ticketText = async (jobBagId: number) => pdfText((await jobTicketPdf(t.db, 1, jobBagId, { size: 'A6', requestOrigin: 'http://127.0.0.1:9' })).pdf)
+  /** The planned minutes printed beside these steps, in the order given: "8. Set pavé … 312 min" → '312 min'. */
+  const printedMinutes = (flat: string, names: string[]) =>
+    names.map((n) => flat.match(new RegExp(`\\d+\\. ${n} (?:\\(!\\) )?.*?(\\d+ min|\\d+ working days?)`))?.[1])
+
+  it('when the piece figures say 12 × 1.3 mm a piece × 2 pieces and the bag’s stone list 18 × 1.5 mm, then the ticket counts the list (36 stones), names the figures and never says 24', async () => {
+    // The order is taken with 12 stones of 1.3 mm a piece and 2 pieces; the bag's own stone list then says 18 pavé of 1.5 mm.
+    const id = await orderPavePendant({ stoneCount: 12, stoneSizeMm: 1.3, quantity: 2 })
+    const added = await manager.post(`/api/job-bags/${id}/stones`, { role: 'pave', sizeMm: 1.5, count: 18 })
+    expect(added.status, JSON.stringify(added.body)).toBe(201)
+    const flat = await ticketText(id)
+    // Hand-worked: the list counts, a line's count is per piece and the pieces come from the figures:
+    // 18 a piece × 2 pieces = 36 stones (the figures would give 12 × 2 = 24).
+    expect(flat).toContain('Sterling silver 925 · 2 pieces · 36 stones (18 a piece)')
+    // From the metal and quantity to the routing: every stone figure the ticket prints (the due date and print time lie outside).
+    const stoneFacts = flat.match(/Metal \/ qty (.*?) Routing /)?.[1] ?? ''
+    expect(stoneFacts, flat).toContain('36 stones')
+    expect(stoneFacts).not.toMatch(/\b24\b/)
+    expect(stoneFacts).not.toMatch(/\b12 stones\b/)
+    expect(stoneFacts).toContain('Stones — Pavé: 18 × 1.5 mm round diamond')
+    expect(stoneFacts).toContain("Counted from this list; the order's figures say 12 × 1.3 mm a piece.")
+    // The planned minutes printed beside the steps, hand-worked from the seeded pavé pendant routing (server/db/seed.ts; demo
+    // figures, no learning curve): per piece × 2 pieces; drilling (base 10 + 1.5 a stone, no size bands) and setting (base 30 +
+    // 7 a stone; melee below 1.5 mm × 1.2, none for 1.5–3 mm; pavé role factor 1, common practice, no source) follow the list:
+    //   drill (10 + 1.5 × 18) × 2 = 37 × 2 = 74;  set (30 + 7 × 18) × 2 = 156 × 2 = 312
+    //   (from the figures they would be (10 + 1.5 × 12) × 2 = 56 and (30 + 7 × 12 × 1.2) × 2 = 261.6)
+    //   laminate 90 × 2 = 180, bail 25 × 2 = 50, outline 40 × 2 = 80, solder 30 × 2 = 60, file 40 × 2 = 80, polish 35 × 2 = 70, inspect 10 × 2 = 20
+    const steps = ['Laminate and roll sheet', 'Saw and form bail', 'Saw outline', 'Solder bail', 'File and emery', 'Hallmark at assay office']
+    steps.push('Drill and cut seats', 'Set pavé', 'Final polish', 'Inspect and bag')
+    expect(printedMinutes(flat, steps), flat).toEqual([
+      '180 min',
+      '50 min',
+      '80 min',
+      '60 min',
+      '80 min',
+      '4 working days',
+      '74 min',
+      '312 min',
+      '70 min',
+      '20 min',
+    ])
+  })
+
+  it('when a bag has no stone list, then the ticket counts the piece figures (14 a piece × 3 pieces = 42) and names no other count', async () => {
+    const id = await orderPavePendant({ stoneCount: 14, stoneSizeMm: 1.25, quantity: 3 })
+    expect(await t.db.select({ id: s.jobBagStones.id }).from(s.jobBagStones).where(eq(s.jobBagStones.jobBagId, id))).toEqual([])
+    const flat = await ticketText(id)
+    // Hand-worked: 14 stones a piece × 3 pieces = 42.
+    expect(flat).toContain('Sterling silver 925 · 3 pieces · 42 stones (14 a piece)')
+    expect(flat).not.toContain('Stones —')
+    expect(flat).not.toContain('Counted from this list')
+    // Drilling and setting from the figures: (10 + 1.5 × 14) × 3 = 31 × 3 = 93; (30 + 7 × 14 × 1.2) × 3 = 147.6 × 3 = 442.8 → 443 as printed.
+    expect(printedMinutes(flat, ['Drill and cut seats', 'Set pavé']), flat).toEqual(['93 min', '443 min'])
+  })
+
+  it('when the demo’s claw retip (no stone list, 6 stones in its piece figures, one piece) is printed, then the ticket counts the figures: 1 piece · 6 stones', async () => {
+    // The ticket bag of the first describe: the seeded "Six-claw solitaire: retip" (server/db/seed.ts: stoneCount 6, quantity left at 1; no list).
+    expect(await t.db.select({ id: s.jobBagStones.id }).from(s.jobBagStones).where(eq(s.jobBagStones.jobBagId, bag.id))).toEqual([])
+    expect(bag.params).toMatchObject({ stoneCount: 6 })
+    const flat = await ticketText(bag.id)
+    expect(flat).toMatch(/1 piece · 6 stones(?! \()/)
+    expect(flat).not.toContain('Counted from this list')
   })
 })
 

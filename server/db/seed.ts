@@ -510,7 +510,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
             leadDays: st.leadDays,
             after: st.after,
             estimateMinutes: st.leadDays > 0 ? 0 : routingStepMinutes(st, t.row, params),
-            estimateSource: 'template',
+            estimateSource: 'routing',
             status: opts.status === 'collected' ? 'done' : st.after.length ? 'pending' : 'ready',
           })),
         )

@@ -448,7 +448,7 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
         acceptedBy: actor.userId,
       })
       .returning()
-    await audit(tx, actor, 'accept-estimate', 'routing-template', input.templateId, {
+    await audit(tx, actor, 'accept-estimate', 'routing', input.templateId, {
       stepKey: input.stepKey,
       from: { baseMinutes: step.s.baseMinutes, perStoneMinutes: step.s.perStoneMinutes },
       to: { baseMinutes: input.baseMinutes, perStoneMinutes: input.perStoneMinutes },

@@ -306,7 +306,7 @@ export async function setStepCost({ db }: Deps, actor: Actor, routingId: number,
       .insert(routingStepCosts)
       .values({ routingId, stepKey, outsideCostMinor })
       .onConflictDoUpdate({ target: [routingStepCosts.routingId, routingStepCosts.stepKey], set: { outsideCostMinor, updatedAt: new Date() } })
-    await audit(tx, actor, 'set-outside-cost', 'routing-template', routingId, { stepKey, outsideCostMinor })
+    await audit(tx, actor, 'set-outside-cost', 'routing', routingId, { stepKey, outsideCostMinor })
     return { templateId: routingId, stepKey, outsideCostMinor }
   })
 }

@@ -102,7 +102,7 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
       name: s.name,
       requiredLevel: s.requiredLevel,
       estimateMinutes: s.leadDays > 0 ? 0 : routingStepMinutes(s, t, piece.params),
-      estimateSource: 'template',
+      estimateSource: 'routing',
       waitAfterMinutes: s.waitAfterMinutes,
       leadDays: s.leadDays,
       after: s.after,

@@ -5,7 +5,7 @@ import type * as s from '../db/schema/index'
 
 /** What an accepted quote becomes: one piece from the quoted routing (none when the quote names no routing). */
 export function quoteOrderInput(q: typeof s.quotes.$inferSelect): OrderInput {
-  const d = q.details as { templateId?: number; piece?: string; params?: OrderInput['pieces'][number]['params']; priority?: number }
+  const d = q.details as { routingId?: number; piece?: string; params?: OrderInput['pieces'][number]['params']; priority?: number }
   const due = q.promisedDate ?? q.validUntil
   return {
     customerId: q.customerId,
@@ -16,6 +16,6 @@ export function quoteOrderInput(q: typeof s.quotes.$inferSelect): OrderInput {
     priceQuotedMinor: q.priceMinor,
     notes: `From quote ${q.number}`,
     // The quoted parameters with the order form's defaults filled in (metal, quantity, …), as the order form would send them.
-    pieces: d.templateId ? [{ routingId: d.templateId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}) }] : [],
+    pieces: d.routingId ? [{ routingId: d.routingId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}) }] : [],
   }
 }

@@ -89,7 +89,7 @@ export async function createRouting({ db, realtime }: Deps, actor: Actor, input:
         .values({ workshopId: actor.workshopId, code: input.code, name: input.name, description: input.description, learningRate: input.learningRate })
         .returning()
       await writeSteps(tx, actor.workshopId, t!.id, input.steps)
-      await audit(tx, actor, 'create', 'routing-template', t!.id, { code: input.code, learningRate: input.learningRate })
+      await audit(tx, actor, 'create', 'routing', t!.id, { code: input.code, learningRate: input.learningRate })
       return t!.id
     })
     .catch((e) => {
@@ -105,7 +105,7 @@ export async function updateRouting({ db, realtime }: Deps, actor: Actor, id: nu
     .transaction(async (tx) => {
       await updateVersioned(tx, routings, 'Routing', { id, workshopId: actor.workshopId, version, values })
       await writeSteps(tx, actor.workshopId, id, steps)
-      await audit(tx, actor, 'update', 'routing-template', id, { code: input.code, steps: steps.length, learningRate: input.learningRate })
+      await audit(tx, actor, 'update', 'routing', id, { code: input.code, steps: steps.length, learningRate: input.learningRate })
     })
     .catch((e) => {
       throw codeTaken(e)

@@ -283,7 +283,7 @@ export async function recomputeStoneSteps(tx: Tx, actor: Actor, jobBagId: number
     if (minutes === op.estimateMinutes) continue
     const [u] = await tx
       .update(operations)
-      .set({ estimateMinutes: minutes, estimateSource: 'template', version: sql`${operations.version} + 1` })
+      .set({ estimateMinutes: minutes, estimateSource: 'routing', version: sql`${operations.version} + 1` })
       .where(eq(operations.id, op.id))
       .returning()
     await tx.insert(estimateChanges).values({

@@ -4,12 +4,12 @@ import type { PieceParams } from '../schemas/order'
 // ---------------------------------------------------------------------------------------------------------------
 // Where an estimate comes from
 
-export const ESTIMATE_SOURCES = ['template', 'learned', 'override', 'three-point'] as const
+export const ESTIMATE_SOURCES = ['routing', 'learned', 'override', 'three-point'] as const
 export type EstimateSource = (typeof ESTIMATE_SOURCES)[number]
 
 /** An estimate always says where it came from; an override also says why. */
 export type Estimate =
-  | { minutes: number; source: 'template' | 'learned'; perUnitMinutes: number }
+  | { minutes: number; source: 'routing' | 'learned'; perUnitMinutes: number }
   | { minutes: number; source: 'override'; reason: string }
   | { minutes: number; source: 'three-point'; variance: number; stdDev: number }
 

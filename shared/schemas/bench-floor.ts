@@ -81,7 +81,7 @@ export const benchOperation = z.object({
   cautions: z.array(z.string()),
   requiredLevel: wireInt,
   estimateMinutes: z.number(),
-  /** Where the planned minutes come from (see ESTIMATE_SOURCES): 'template' is the routing counted from the stones; 'override' and 'three-point' a manager's own figure. */
+  /** Where the planned minutes come from (see ESTIMATE_SOURCES): 'routing' is the routing's step figure, counted from the stones; 'override' and 'three-point' a manager's own figure. */
   estimateSource: z.string(),
   /** Whether the planned minutes count the stones (the routing step has minutes per stone). */
   estimateCountsStones: z.boolean(),

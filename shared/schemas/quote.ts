@@ -16,7 +16,7 @@ const currency = z
   .regex(/^[A-Z]{3}$/, 'must be a three-letter currency code such as GBP')
 
 export const quoteDetails = z.object({
-  templateId: id.optional(),
+  routingId: id.optional(),
   piece: z.string().trim().max(120).optional(),
   params: pieceParams.optional(),
   priority: z.number().int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').optional(),

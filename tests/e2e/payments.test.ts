@@ -79,7 +79,7 @@ describe('quotes and deposits', () => {
         .where(eq(s.quotes.number, number!))
     )[0]!
     expect(q).toMatchObject({ status: 'drafted', priceMinor: 64000, depositMinor: 19200 })
-    expect(q.details.templateId).toBe(check.routing.id)
+    expect(q.details.routingId).toBe(check.routing.id)
     // The suggested date: P80 when the range is later than the fixed plan, else the fixed-plan date (as the promise page keeps it).
     const suggested = check.range && check.range.p80.date > check.fixedPlan.date ? check.range.p80.date : check.fixedPlan.date
     expect(q.promised).toBe(suggested)

@@ -159,7 +159,7 @@ describe('estimates', () => {
       reason: 'our own times say so',
     })
     expect(acc.status, JSON.stringify(acc.body)).toBe(200)
-    const a = (await rows('routing-template', routing.id, 'accept-estimate'))[0]
+    const a = (await rows('routing', routing.id, 'accept-estimate'))[0]
     expect(a).toMatchObject({ user_id: who.owner })
     expect(JSON.stringify(a!.details)).toContain(s0.key)
   })

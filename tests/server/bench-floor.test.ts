@@ -623,6 +623,6 @@ describe('what a running card shows', () => {
       sizeRangeMm: null,
       pieceFigures: { perPiece: 12, sizeMm: 1.3 },
     })
-    expect(r.body.operation).toMatchObject({ estimateMinutes: 312, estimateSource: 'template', estimateCountsStones: true })
+    expect(r.body.operation).toMatchObject({ estimateMinutes: 312, estimateSource: 'routing', estimateCountsStones: true })
   })
 })

@@ -63,7 +63,7 @@ async function acceptedUnpaid() {
     title: 'Bezel ring',
     priceMinor: 80000,
     currency: 'GBP',
-    details: { templateId: routingId, piece: 'Bezel ring' },
+    details: { routingId, piece: 'Bezel ring' },
   })
   expect(q.status, JSON.stringify(q.body)).toBe(201)
   const sent = await sales.post(`/api/quotes/${q.body.id}/send`, { version: q.body.version })

@@ -60,7 +60,7 @@ describe('a production run with a learning curve', () => {
     })
     expect(r.status, JSON.stringify(r.body)).toBe(201)
     const [op] = r.body.jobBags[0].operations
-    expect(op.estimateSource).toBe('template')
+    expect(op.estimateSource).toBe('routing')
     expect(Math.abs(op.estimateMinutes - 202.12)).toBeLessThanOrEqual(0.1)
   })
 
@@ -86,7 +86,7 @@ describe('a production run with a learning curve', () => {
     const put = await manager.put(`/api/routings/${run.id}`, { ...cur, learningRate: null })
     expect(put.status, JSON.stringify(put.body)).toBe(200)
     expect(put.body.learningRate).toBeNull()
-    expect((await auditRows(t, 'routing-template', run.id))[0]).toMatchObject({ action: 'update', details: { learningRate: null } })
+    expect((await auditRows(t, 'routing', run.id))[0]).toMatchObject({ action: 'update', details: { learningRate: null } })
     const r = await sales.post('/api/orders', {
       customerId,
       title: 'Run of 40, flat',

@@ -504,7 +504,7 @@ describe('learning from actual times', () => {
     const after = (await owner.get(`/api/routings/${routing.body.id}`)).body
     expect(after.version).toBe(before.version + 1)
     expect(after.steps[0]).toMatchObject({ baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes })
-    expect((await auditRows(t, 'routing-template', routing.body.id))[0]).toMatchObject({
+    expect((await auditRows(t, 'routing', routing.body.id))[0]).toMatchObject({
       action: 'accept-estimate',
       details: { stepKey: 'set', reason: 'learned from 20 jobs' },
     })

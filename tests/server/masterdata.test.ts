@@ -320,7 +320,7 @@ describe('routings', () => {
     const stale = await manager.put(`/api/routings/${c.body.id}`, { code: 'toggle-bracelet', name: 'x', steps: [step('bar')], version: 0 })
     expectCleanError(stale, 409)
     expect(stale.body.error).toMatch(STALE)
-    expect((await auditRows(t, 'routing-template', c.body.id)).map((x) => x.action)).toEqual(['update', 'create'])
+    expect((await auditRows(t, 'routing', c.body.id)).map((x) => x.action)).toEqual(['update', 'create'])
   })
 
   it('when a step follows an unknown step, itself, or the steps form a circle, then 400 with the field path', async () => {

@@ -127,7 +127,7 @@ describe('taking an order', () => {
       inspect: 'pending',
     })
     expect(ops.map((o) => o.seq)).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8, 9])
-    expect(ops.every((o) => o.estimateSource === 'template')).toBe(true)
+    expect(ops.every((o) => o.estimateSource === 'routing')).toBe(true)
   })
 
   it('when operations are copied, then kind, level, wait, lead days and predecessors are those of the routing steps', async () => {

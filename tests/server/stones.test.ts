@@ -91,7 +91,7 @@ describe('the stone list', () => {
     // Hand-worked from the seeded halo routing (set: base 40 + 8 min a stone, band factor 1.5 over 3 mm) and the usual role factor
     // of a centre stone (×3, shared/domain/stones.ts; common practice, no source): 40 + 8 × 1 × 1.5 × 3 = 76.
     const s = await setStep()
-    expect(s).toMatchObject({ estimateMinutes: 76, estimateSource: 'template' })
+    expect(s).toMatchObject({ estimateMinutes: 76, estimateSource: 'routing' })
     expect(s.estimateChanges.at(-1)).toMatchObject({ fromMinutes: 40, toMinutes: 76 })
     expect(s.estimateChanges.at(-1)!.reason).toMatch(/Stone list: added 1 × 6.5 mm round diamond/)
   })

@@ -1,0 +1,129 @@
+// The migration that renames stored values from "template" to "routing" (estimate sources, the routings' audit entity, the routing
+// key in quote details), run on a database holding rows written with the old values: they read back with the new ones.
+import { readFileSync } from 'node:fs'
+import { join } from 'node:path'
+import { randomBytes } from 'node:crypto'
+import { eq } from 'drizzle-orm'
+import { drizzle } from 'drizzle-orm/node-postgres'
+import pg from 'pg'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { migrationsFolder } from '../../server/db/migrate'
+import * as s from '../../server/db/schema/index'
+import { quoteOrderInput } from '../../server/services/quote-order'
+
+// Raw SQL for the writes on purpose: the rows hold the values as they were stored before the migration under test, which the
+// schema's types no longer allow.
+const port = process.env.TEST_PG_PORT
+const name = `m_${randomBytes(6).toString('hex')}`
+const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/postgres` })
+let db: pg.Client
+const journal = JSON.parse(readFileSync(join(migrationsFolder, 'meta/_journal.json'), 'utf8')) as { entries: { idx: number; tag: string }[] }
+const TARGET = '0015_routing-stored-values'
+const target = journal.entries.find((e) => e.tag === TARGET)!
+async function apply(tag: string) {
+  for (const stmt of readFileSync(join(migrationsFolder, `${tag}.sql`), 'utf8').split('--> statement-breakpoint')) if (stmt.trim()) await db.query(stmt)
+}
+const rows = async (sql: string) => (await db.query(sql)).rows
+
+beforeAll(async () => {
+  const a = admin()
+  await a.connect()
+  await a.query(`create database ${name}`)
+  await a.end()
+  db = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/${name}` })
+  await db.connect()
+  // The schema as it stood before: every migration up to the one under test.
+  for (const e of journal.entries.filter((x) => x.idx < target.idx)) await apply(e.tag)
+  await db.query(`insert into workshops (id, name, week_pattern) overriding system value values (1, 'W', '[]'::jsonb)`)
+  await db.query(
+    `insert into users (id, workshop_id, email, name, role, password_hash) overriding system value values (1, 1, 'o@example.test', 'O', 'owner', 'x')`,
+  )
+  await db.query(`insert into operation_kinds (id, workshop_id, code, name) overriding system value values (1, 1, 'setting', 'Setting')`)
+  await db.query(`insert into customers (id, workshop_id, reference, name) overriding system value values (1, 1, 'C-1', 'Customer')`)
+  await db.query(
+    `insert into orders (id, workshop_id, number, customer_id, title, due_date) overriding system value values (1, 1, 'O-1', 1, 'x', '2030-01-01')`,
+  )
+  await db.query(`insert into routings (id, workshop_id, code, name) overriding system value values (7, 1, 'signet', 'Signet ring')`)
+  await db.query(`insert into job_bags (id, workshop_id, order_id, number, piece, routing_id, params) overriding system value values
+    (1, 1, 1, 'B-1', 'Ring', 7, '{}'::jsonb)`)
+  // Three steps: two planned from the routing (one of them changed by hand since, which recorded its old source), one a manager's figure.
+  await db.query(`insert into operations (id, job_bag_id, seq, key, kind_id, name, estimate_minutes, estimate_source) overriding system value values
+    (1, 1, 0, 'set', 1, 'Set', 40, 'template'), (2, 1, 1, 'polish', 1, 'Polish', 25, 'override'), (3, 1, 2, 'check', 1, 'Check', 10, 'learned')`)
+  await db.query(`insert into estimate_changes (workshop_id, operation_id, from_minutes, to_minutes, from_source, reason, changed_by) values
+    (1, 2, 30, 25, 'template', 'Lighter piece', 1), (1, 2, 25, 25, 'override', 'Checked again', 1)`)
+  // The routing's history under its old audit entity, beside a job bag's row that must stay as it is.
+  await db.query(`insert into audit_log (id, workshop_id, user_id, at, action, entity, entity_id, details) overriding system value values
+    (1, 1, 1, '2030-01-01T09:00Z', 'create', 'routing-template', 7, '{"code": "signet"}'::jsonb),
+    (2, 1, 1, '2030-01-02T09:00Z', 'update', 'routing-template', 7, '{"code": "signet", "steps": 3}'::jsonb),
+    (3, 1, 1, '2030-01-03T09:00Z', 'create', 'job-bag', 1, '{}'::jsonb),
+    (4, 1, 1, '2030-01-04T09:00Z', 'update', 'quote', 1, '{"details": {"templateId": 7, "piece": "Signet"}, "title": "Signet"}'::jsonb),
+    (5, 1, 1, '2030-01-05T09:00Z', 'update', 'quote', 2, '{"title": "Chain"}'::jsonb)`)
+  // One quote naming its routing under the old key, one naming none.
+  await db.query(`insert into quotes (id, workshop_id, number, customer_id, title, details, currency, price_minor, deposit_minor, valid_until)
+    overriding system value values
+    (1, 1, 'Q-1', 1, 'Signet', '{"templateId": 7, "piece": "Signet", "params": {"quantity": 2}, "priority": 2}'::jsonb, 'GBP', 50000, 10000, '2030-02-01'),
+    (2, 1, 'Q-2', 1, 'Chain', '{"piece": "Chain"}'::jsonb, 'GBP', 8000, 0, '2030-02-01')`)
+  await apply(TARGET)
+})
+afterAll(async () => {
+  await db?.end()
+  const a = admin()
+  await a.connect()
+  await a.query(`drop database if exists ${name} with (force)`)
+  await a.end()
+})
+
+describe('stored values say routing', () => {
+  it('when steps were planned from a routing, then their estimate source reads routing and the other sources are left alone', async () => {
+    expect(await rows(`select id, estimate_source from operations order by id`)).toEqual([
+      { id: 1, estimate_source: 'routing' },
+      { id: 2, estimate_source: 'override' },
+      { id: 3, estimate_source: 'learned' },
+    ])
+    expect(await rows(`select from_source, reason from estimate_changes order by id`)).toEqual([
+      { from_source: 'routing', reason: 'Lighter piece' },
+      { from_source: 'override', reason: 'Checked again' },
+    ])
+  })
+
+  it('when a step is added without naming its source, then it is a routing figure', async () => {
+    await db.query(
+      `insert into operations (id, job_bag_id, seq, key, kind_id, name, estimate_minutes) overriding system value values (4, 1, 3, 'pack', 1, 'Pack', 5)`,
+    )
+    expect(await rows(`select estimate_source from operations where key = 'pack'`)).toEqual([{ estimate_source: 'routing' }])
+  })
+
+  it('when a routing’s history is looked up under the entity routing, then its old rows are found and other entities keep theirs', async () => {
+    // Read as the app reads audit rows (Drizzle on the schema), by entity and id.
+    const orm = drizzle(db, { schema: s, casing: 'snake_case' })
+    const history = await orm.select().from(s.auditLog).where(eq(s.auditLog.entity, 'routing')).orderBy(s.auditLog.at)
+    expect(history.map((r) => [r.id, r.action, r.entityId, r.details])).toEqual([
+      [1, 'create', 7, { code: 'signet' }],
+      [2, 'update', 7, { code: 'signet', steps: 3 }],
+    ])
+    expect(await rows(`select count(*)::int as n from audit_log where entity = 'routing-template'`)).toEqual([{ n: 0 }])
+    expect(await rows(`select id, entity from audit_log where id >= 3 order by id`)).toEqual([
+      { id: 3, entity: 'job-bag' },
+      { id: 4, entity: 'quote' },
+      { id: 5, entity: 'quote' },
+    ])
+  })
+
+  it('when a quote’s details named its routing templateId, then they name it routingId with the rest unchanged, and accepting it orders that routing', async () => {
+    expect(await rows(`select id, details from quotes order by id`)).toEqual([
+      { id: 1, details: { routingId: 7, piece: 'Signet', params: { quantity: 2 }, priority: 2 } },
+      { id: 2, details: { piece: 'Chain' } },
+    ])
+    // An audited quote edit that carried the details says the same; one without details is left as it was.
+    expect(await rows(`select id, details from audit_log where entity = 'quote' order by id`)).toEqual([
+      { id: 4, details: { details: { routingId: 7, piece: 'Signet' }, title: 'Signet' } },
+      { id: 5, details: { title: 'Chain' } },
+    ])
+    // The order an accepted quote becomes: one piece from routing 7 with the quoted quantity, none from the quote without a routing.
+    const orm = drizzle(db, { schema: s, casing: 'snake_case' })
+    const [q1] = await orm.select().from(s.quotes).where(eq(s.quotes.id, 1))
+    const [q2] = await orm.select().from(s.quotes).where(eq(s.quotes.id, 2))
+    expect(quoteOrderInput(q1!).pieces).toEqual([expect.objectContaining({ routingId: 7, piece: 'Signet', params: expect.objectContaining({ quantity: 2 }) })])
+    expect(quoteOrderInput(q2!).pieces).toEqual([])
+  })
+})

@@ -73,6 +73,8 @@ export interface PairSettings {
   onBest?: (option: Int32Array, start: Int32Array) => void
   /** Schedules to start from as well (each step's option and a start order): sequences are the steps in that order. */
   initial?: { option: Int32Array; start: Float64Array }[]
+  /** Tests only: time every candidate also by Kahn's order and throw if the in-order timing differs. */
+  verifyOrder?: boolean
   /** Skip the dispatching rules when an initial schedule is given (they are slow on calendars). */
   initialOnly?: boolean
 }
@@ -288,47 +290,50 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     lastTwt = 0
   /** Operations the last propagate() placed (fewer than its part of the order means a cycle). */
   let passed = 0
+  /** Times step x from its predecessors' ends in `en`: ready moment into y, start into r, end into en; returns the end. */
+  const place = (x: number, r: Int32Array, en: Int32Array, y: Int32Array): number => {
+    let rx = release[x]!
+    const a = jobPred[x]!,
+      b = pred[M]![x]!,
+      c = pred[W]![x]!
+    if (a >= 0) {
+      const e = en[a]! + lag[a]!
+      if (e > rx) rx = e
+    }
+    if (b >= 0) {
+      const e = en[b]!
+      if (e > rx) rx = e
+    }
+    if (c >= 0) {
+      const e = en[c]!
+      if (e > rx) rx = e
+    }
+    for (let q = xps[x]!; q < xps[x + 1]!; q++) {
+      const z = xp[q]!
+      const e = en[z]! + lag[z]!
+      if (e > rx) rx = e
+    }
+    y[x] = rx
+    let ex: number
+    if (cal) {
+      const o = opt[x]!
+      rx = startAt(o, rx)
+      ex = endAt(o, rx)
+    } else ex = rx + p[x]!
+    r[x] = rx
+    en[x] = ex
+    return ex
+  }
   /** Kahn's order from the qt ready operations in topo (indegrees set): heads into r; returns the latest end, from `cmax` up. */
   const propagate = (r: Int32Array, qt: number, cmax: number): number => {
-    const pm = pred[M]!,
-      pw = pred[W]!,
-      sm = succ[M]!,
+    const sm = succ[M]!,
       sw = succ[W]!
     const en = endsOf(r),
       y = readyOf(r)
     let qh = 0
     while (qh < qt) {
       const x = topo[qh++]!
-      let rx = release[x]!
-      const a = jobPred[x]!,
-        b = pm[x]!,
-        c = pw[x]!
-      if (a >= 0) {
-        const e = en[a]! + lag[a]!
-        if (e > rx) rx = e
-      }
-      if (b >= 0) {
-        const e = en[b]!
-        if (e > rx) rx = e
-      }
-      if (c >= 0) {
-        const e = en[c]!
-        if (e > rx) rx = e
-      }
-      for (let q = xps[x]!; q < xps[x + 1]!; q++) {
-        const z = xp[q]!
-        const e = en[z]! + lag[z]!
-        if (e > rx) rx = e
-      }
-      y[x] = rx
-      let ex: number
-      if (cal) {
-        const o = opt[x]!
-        rx = startAt(o, rx)
-        ex = endAt(o, rx)
-      } else ex = rx + p[x]!
-      r[x] = rx
-      en[x] = ex
+      const ex = place(x, r, en, y)
       if (ex > cmax) cmax = ex
       const js = jobSucc[x]!,
         ms = sm[x]!,
@@ -386,7 +391,59 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     return cmax + sum * 1e-9
   }
 
-  /** Heads after a move, into rTmp: positions before the first touched one keep the current heads; the rest by Kahn's order. */
+  // A sequence move that crosses no other arc of the steps it moves keeps the current order valid once the moved step takes its
+  // new place in it: the candidate is then timed in that order in one pass (no Kahn queue). orderA/orderB: old and new place.
+  let orderA = -1,
+    orderB = -1
+  /** Before a sequence move is applied: can it be timed in the current order? Sets orderA/orderB when so. */
+  const keepsOrder = (kind: number, t: number, u: number, v: number): void => {
+    orderA = -1
+    if (kind === 3) return
+    const o = 1 - t
+    if (kind === 0 && res[o]![u]! >= 0 && res[o]![u] === res[o]![v]) return // the other shared resource is reordered too
+    if (kind === 0 || kind === 1) {
+      // u goes right after v: its successors other than on t must come after v.
+      const pv = pos[v]!
+      const js = jobSucc[u]!,
+        os = succ[o]![u]!
+      if ((js >= 0 && pos[js]! <= pv) || (os >= 0 && pos[os]! <= pv)) return
+      for (let q = xss[u]!; q < xss[u + 1]!; q++) if (pos[xs[q]!]! <= pv) return
+      orderA = pos[u]!
+      orderB = pv
+    } else {
+      // v goes right before u: its predecessors other than on t must come before u.
+      const pu = pos[u]!
+      const jp = jobPred[v]!,
+        op = pred[o]![v]!
+      if ((jp >= 0 && pos[jp]! >= pu) || (op >= 0 && pos[op]! >= pu)) return
+      for (let q = xps[v]!; q < xps[v + 1]!; q++) if (pos[xp[q]!]! >= pu) return
+      orderA = pos[v]!
+      orderB = pu
+    }
+  }
+  /** Moves the step at order position a to position b, shifting those between. */
+  const shiftOrder = (a: number, b: number): void => {
+    const x = topoCur[a]!
+    if (a < b)
+      for (let k = a; k < b; k++) {
+        const y = topoCur[k + 1]!
+        topoCur[k] = y
+        pos[y] = k
+      }
+    else
+      for (let k = a; k > b; k--) {
+        const y = topoCur[k - 1]!
+        topoCur[k] = y
+        pos[y] = k
+      }
+    topoCur[b] = x
+    pos[x] = b
+  }
+
+  /**
+   * Heads after a move, into rTmp: positions before the first touched one keep the current heads; the rest in the current order
+   * with the moved step in its new place where that order still holds (see keepsOrder), else by Kahn's order.
+   */
   const evaluateMove = (): number => {
     const from = touched
     if (from >= n) {
@@ -394,6 +451,33 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       eTmp.set(eCur)
       yTmp.set(yCur)
       return finish(rTmp, prefMax[n]!)
+    }
+    if (orderA >= 0) {
+      evaluations++
+      rTmp.set(rCur)
+      eTmp.set(eCur)
+      yTmp.set(yCur)
+      const a = orderA,
+        b = orderB
+      const start = a < b ? a : b
+      shiftOrder(a, b)
+      let cmax = prefMax[start]!
+      for (let k = start; k < n; k++) {
+        const ex = place(topoCur[k]!, rTmp, eTmp, yTmp)
+        if (ex > cmax) cmax = ex
+      }
+      shiftOrder(b, a)
+      const v = finish(rTmp, cmax)
+      if (settings.verifyOrder) {
+        // Tests: the same candidate by Kahn's order must give the same ends and value.
+        const ends = eTmp.slice()
+        orderA = -1
+        evaluations--
+        const w = evaluateMove()
+        for (let i = 0; i < n; i++) if (eTmp[i] !== ends[i]) throw new Error(`pair core: in-order timing differs at step ${i}`)
+        if (w !== v) throw new Error(`pair core: in-order value ${v} against ${w}`)
+      }
+      return v
     }
     evaluations++
     rTmp.set(rCur)
@@ -974,8 +1058,10 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       const mark = undo.length
       const tabu = isTabu(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
       touched = n
+      keepsOrder(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
       apply(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
       const v = evaluateMove()
+      orderA = -1
       rollback(mark)
       if (!Number.isFinite(v)) continue
       if (!tabu || v < bestVal) {

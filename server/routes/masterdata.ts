@@ -3,7 +3,7 @@ import { bench, benchInput, benchUpdate, downtimeInput } from '../../shared/sche
 import { closureInput, workshopSettingsInput } from '../../shared/schemas/calendar'
 import { listQuery } from '../../shared/schemas/common'
 import { customer, customerInput, customerPage, customerUpdate } from '../../shared/schemas/customer'
-import { operationKindInput, operationKindUpdate } from '../../shared/schemas/operation-kind'
+import { operationKind, operationKindInput, operationKindUpdate } from '../../shared/schemas/operation-kind'
 import { leaveInput, person, personInput, personUpdate } from '../../shared/schemas/person'
 import { routing, routingInput, routingUpdate } from '../../shared/schemas/routing'
 import { userCreate, userUpdate } from '../../shared/schemas/user'
@@ -45,6 +45,7 @@ export const masterDataRoutes = [
     path: '/operation-kinds',
     roles: EVERYONE,
     summary: 'Operation kinds',
+    response: z.array(operationKind),
     handler: ({ deps, actor }) => kinds.listKinds(deps.db, actor.workshopId),
   }),
   route({
@@ -54,6 +55,7 @@ export const masterDataRoutes = [
     status: 201,
     summary: 'Add an operation kind',
     body: operationKindInput,
+    response: operationKind,
     handler: ({ deps, actor, body }) => kinds.createKind(deps, actor, body),
   }),
   route({
@@ -63,6 +65,7 @@ export const masterDataRoutes = [
     summary: 'Change an operation kind',
     params: idParam,
     body: sentOnly(operationKindUpdate),
+    response: operationKind,
     handler: ({ deps, actor, params, body }) => kinds.updateKind(deps, actor, params.id, body),
   }),
 

@@ -1,7 +1,7 @@
 // Operation kinds (sawing, setting, casting…) are workshop data, not code.
 import { z } from 'zod'
 import { HAZARDS } from '../domain/status'
-import { code, name, version } from './common'
+import { code, name, version, wireInt } from './common'
 
 export const operationKindInput = z.object({
   code,
@@ -15,7 +15,17 @@ export const operationKindInput = z.object({
 })
 export const operationKindUpdate = operationKindInput.partial().extend({ version })
 export type OperationKindInput = z.infer<typeof operationKindInput>
-export interface OperationKind extends OperationKindInput {
-  id: number
-  version: number
-}
+
+// ---- Answers ----
+
+export const operationKind = z.object({
+  id: wireInt,
+  workshopId: wireInt,
+  code: z.string(),
+  name: z.string(),
+  outside: z.boolean(),
+  hazards: z.array(z.enum(HAZARDS)),
+  color: z.string(),
+  version: wireInt,
+})
+export type OperationKind = z.infer<typeof operationKind>

@@ -1,7 +1,9 @@
 // Operation kinds API (sawing, setting, casting… with their hazards).
-import type { OperationKind, OperationKindInput } from '@shared/schemas/operation-kind'
+import { z } from 'zod'
+import { operationKind, type OperationKindInput } from '@shared/schemas/operation-kind'
 import { api } from './client'
 
-export const listKinds = () => api.get<OperationKind[]>('/operation-kinds')
-export const createKind = (body: OperationKindInput) => api.post<OperationKind>('/operation-kinds', body)
-export const updateKind = (id: number, body: Partial<OperationKindInput> & { version: number }) => api.patch<OperationKind>(`/operation-kinds/${id}`, body)
+export const listKinds = () => api.get('/operation-kinds', { schema: z.array(operationKind) })
+export const createKind = (body: OperationKindInput) => api.post('/operation-kinds', body, { schema: operationKind })
+export const updateKind = (id: number, body: Partial<OperationKindInput> & { version: number }) =>
+  api.patch(`/operation-kinds/${id}`, body, { schema: operationKind })

@@ -8,6 +8,7 @@ import PeopleSkillsEditor from '@/components/people/PeopleSkillsEditor.vue'
 
 const kind = (id: number, name: string, outside = false): OperationKind => ({
   id,
+  workshopId: 1,
   code: name.toLowerCase(),
   name,
   outside,

@@ -570,6 +570,24 @@ describe('answers on the demo workshop', () => {
     expect(after.length).toBe(before.length + 1)
   })
 
+  it('when operation kinds are read, added and changed, then the list and each write answer what their schemas allow', async () => {
+    const kinds = await call(manager, 'get', '/operation-kinds', '/operation-kinds')
+    expect(kinds.length).toBeGreaterThan(0)
+    const kind = await call(
+      manager,
+      'post',
+      '/operation-kinds',
+      '/operation-kinds',
+      { code: 'contract-etch', name: 'Contract etching', hazards: ['acid'] },
+      201,
+    )
+    const renamed = await call(manager, 'patch', '/operation-kinds/:id', `/operation-kinds/${kind.id}`, {
+      name: 'Contract acid etching',
+      version: kind.version,
+    })
+    expect(renamed.hazards).toEqual(['acid'])
+  })
+
   it('when every call above is done, then each route with a response schema was called at least once', () => {
     expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])
   })

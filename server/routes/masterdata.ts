@@ -1,6 +1,6 @@
 // Master data routes: operation kinds, benches, people, calendar, routings, customers, users.
 import { bench, benchInput, benchUpdate, downtimeInput } from '../../shared/schemas/bench'
-import { closureInput, workshopSettingsInput } from '../../shared/schemas/calendar'
+import { closure, closureInput, closureRemoved, workshopSettings, workshopSettingsInput } from '../../shared/schemas/calendar'
 import { listQuery } from '../../shared/schemas/common'
 import { customer, customerInput, customerPage, customerUpdate } from '../../shared/schemas/customer'
 import { operationKind, operationKindInput, operationKindUpdate } from '../../shared/schemas/operation-kind'
@@ -172,6 +172,7 @@ export const masterDataRoutes = [
     path: '/workshop',
     roles: EVERYONE,
     summary: 'Workshop settings and calendar',
+    response: workshopSettings,
     handler: async ({ deps, actor, req }) => ({
       ...(await calendar.getSettings(deps.db, actor.workshopId)),
       publicUrlSuggestion: suggestionForRequest(req, deps.listenHost),
@@ -183,6 +184,7 @@ export const masterDataRoutes = [
     roles: OWNER,
     summary: 'Change workshop settings (owner)',
     body: workshopSettingsInput,
+    response: workshopSettings,
     handler: async ({ deps, actor, body, req }) => ({
       ...(await calendar.updateSettings(deps, actor, body)),
       publicUrlSuggestion: suggestionForRequest(req, deps.listenHost),
@@ -193,6 +195,7 @@ export const masterDataRoutes = [
     path: '/closures',
     roles: EVERYONE,
     summary: 'Workshop closures',
+    response: z.array(closure),
     handler: ({ deps, actor }) => calendar.listClosures(deps.db, actor.workshopId),
   }),
   route({
@@ -202,6 +205,7 @@ export const masterDataRoutes = [
     status: 201,
     summary: 'Add a closure',
     body: closureInput,
+    response: closure,
     handler: ({ deps, actor, body }) => calendar.addClosure(deps, actor, body),
   }),
   route({
@@ -210,6 +214,7 @@ export const masterDataRoutes = [
     roles: STAFF,
     summary: 'Remove a closure',
     params: idParam,
+    response: closureRemoved,
     handler: ({ deps, actor, params }) => calendar.removeClosure(deps, actor, params.id),
   }),
 

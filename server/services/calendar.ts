@@ -1,6 +1,6 @@
 // The workshop's calendar: settings (time zone, weekly hours) and closures.
 import { and, asc, eq } from 'drizzle-orm'
-import type { ClosureInput, WorkshopSettingsInput } from '../../shared/schemas/calendar'
+import type { Closure, ClosureInput, WorkshopSettingsInput, WorkshopSettingsRecord, ClosureRemoved } from '../../shared/schemas/calendar'
 import type { Db } from '../db/client'
 import { closures, workshops } from '../db/schema/index'
 import { notFound, staleVersion } from '../errors/app-error'
@@ -8,7 +8,7 @@ import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { sql } from 'drizzle-orm'
 
-export async function getSettings(db: Db, workshopId: number) {
+export async function getSettings(db: Db, workshopId: number): Promise<WorkshopSettingsRecord> {
   const [w] = await db.select().from(workshops).where(eq(workshops.id, workshopId))
   if (!w) throw notFound('Workshop')
   return {
@@ -29,7 +29,7 @@ export async function getSettings(db: Db, workshopId: number) {
   }
 }
 
-export async function updateSettings({ db, realtime }: Deps, actor: Actor, input: WorkshopSettingsInput) {
+export async function updateSettings({ db, realtime }: Deps, actor: Actor, input: WorkshopSettingsInput): Promise<WorkshopSettingsRecord> {
   const { version, ...values } = input
   await db.transaction(async (tx) => {
     const r = await tx
@@ -44,10 +44,10 @@ export async function updateSettings({ db, realtime }: Deps, actor: Actor, input
   return getSettings(db, actor.workshopId)
 }
 
-export const listClosures = (db: Db, workshopId: number) =>
+export const listClosures = (db: Db, workshopId: number): Promise<Closure[]> =>
   db.select().from(closures).where(eq(closures.workshopId, workshopId)).orderBy(asc(closures.startsOn))
 
-export async function addClosure({ db, realtime }: Deps, actor: Actor, input: ClosureInput) {
+export async function addClosure({ db, realtime }: Deps, actor: Actor, input: ClosureInput): Promise<Closure> {
   const c = await db.transaction(async (tx) => {
     const [c] = await tx
       .insert(closures)
@@ -60,7 +60,7 @@ export async function addClosure({ db, realtime }: Deps, actor: Actor, input: Cl
   return c
 }
 
-export async function removeClosure({ db, realtime }: Deps, actor: Actor, id: number) {
+export async function removeClosure({ db, realtime }: Deps, actor: Actor, id: number): Promise<ClosureRemoved> {
   await db.transaction(async (tx) => {
     const r = await tx
       .delete(closures)

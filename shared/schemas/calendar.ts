@@ -1,6 +1,6 @@
 // The workshop's calendar: time zone, weekly working hours with breaks, and closures.
 import { z } from 'zod'
-import { isoDate, name, version, weekPattern } from './common'
+import { isoDate, name, version, weekPattern, wireInt } from './common'
 
 const timeZone = z
   .string()
@@ -69,11 +69,32 @@ export const closureInput = z
   .refine((c) => c.endsOn >= c.startsOn, { message: 'must not be before the first day', path: ['endsOn'] })
 export type WorkshopSettingsInput = z.infer<typeof workshopSettingsInput>
 export type ClosureInput = z.infer<typeof closureInput>
-export interface Closure extends ClosureInput {
-  id: number
-}
-export interface WorkshopSettings extends WorkshopSettingsInput {
-  id: number
-  /** When publicUrl is empty, the address tickets use instead (this machine's network address and the server's port); reachable is false when the server listens on this machine only. */
-  publicUrlSuggestion?: { url: string | null; reachable: boolean }
-}
+
+// ---- Answers ----
+
+export const closure = z.object({ id: wireInt, workshopId: wireInt, name: z.string(), startsOn: z.string(), endsOn: z.string() })
+export type Closure = z.infer<typeof closure>
+/** A closure taken out of the calendar. */
+export const closureRemoved = z.object({ ok: z.literal(true) })
+export type ClosureRemoved = z.infer<typeof closureRemoved>
+/** The settings as stored. */
+export const workshopSettingsRecord = z.object({
+  id: wireInt,
+  name: z.string(),
+  timeZone: z.string(),
+  weekPattern: z.array(z.object({ weekday: wireInt, start: z.string(), end: z.string() })),
+  planningLoad: z.number(),
+  address: z.string(),
+  phone: z.string(),
+  contactEmail: z.string(),
+  currency: z.string(),
+  publicUrl: z.string(),
+  depositPct: wireInt,
+  quoteValidDays: wireInt,
+  noMetalBeforeDeposit: z.boolean(),
+  version: wireInt,
+})
+export type WorkshopSettingsRecord = z.infer<typeof workshopSettingsRecord>
+/** The settings as the API answers them: when publicUrl is empty, the address tickets use instead (this machine's network address and the server's port); reachable is false when the server listens on this machine only. */
+export const workshopSettings = workshopSettingsRecord.extend({ publicUrlSuggestion: z.object({ url: z.string().nullable(), reachable: z.boolean() }) })
+export type WorkshopSettings = z.infer<typeof workshopSettings>

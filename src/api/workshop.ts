@@ -1,9 +1,10 @@
 // Workshop API: settings with the weekly calendar (owner writes) and closures.
-import type { Closure, ClosureInput, WorkshopSettings, WorkshopSettingsInput } from '@shared/schemas/calendar'
+import { z } from 'zod'
+import { closure, closureRemoved, workshopSettings, type ClosureInput, type WorkshopSettingsInput } from '@shared/schemas/calendar'
 import { api } from './client'
 
-export const getWorkshop = () => api.get<WorkshopSettings>('/workshop')
-export const updateWorkshop = (body: WorkshopSettingsInput) => api.put<WorkshopSettings>('/workshop', body)
-export const listClosures = () => api.get<Closure[]>('/closures')
-export const addClosure = (body: ClosureInput) => api.post<Closure>('/closures', body)
-export const removeClosure = (id: number) => api.delete<{ ok: true }>(`/closures/${id}`)
+export const getWorkshop = () => api.get('/workshop', { schema: workshopSettings })
+export const updateWorkshop = (body: WorkshopSettingsInput) => api.put('/workshop', body, { schema: workshopSettings })
+export const listClosures = () => api.get('/closures', { schema: z.array(closure) })
+export const addClosure = (body: ClosureInput) => api.post('/closures', body, { schema: closure })
+export const removeClosure = (id: number) => api.delete(`/closures/${id}`, { schema: closureRemoved })

@@ -588,6 +588,18 @@ describe('answers on the demo workshop', () => {
     expect(renamed.hazards).toEqual(['acid'])
   })
 
+  it('when the workshop settings are read and saved and a closure is added, listed and removed, then every calendar answer is what its schema allows', async () => {
+    const settings = await call(manager, 'get', '/workshop', '/workshop')
+    const { name, timeZone, weekPattern, planningLoad, version } = settings
+    const saved = await call(owner, 'put', '/workshop', '/workshop', { name, timeZone, weekPattern, planningLoad, phone: '01632 960001', version })
+    expect(saved.version).toBe(version + 1)
+
+    const closure = await call(manager, 'post', '/closures', '/closures', { startsOn: '2031-12-24', endsOn: '2031-12-26', name: 'Contract Christmas' }, 201)
+    const closures = await call(manager, 'get', '/closures', '/closures')
+    expect(closures.map((c: { id: number }) => c.id)).toContain(closure.id)
+    await call(manager, 'delete', '/closures/:id', `/closures/${closure.id}`)
+  })
+
   it('when every call above is done, then each route with a response schema was called at least once', () => {
     expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])
   })

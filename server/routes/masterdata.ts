@@ -6,7 +6,7 @@ import { customer, customerInput, customerPage, customerUpdate } from '../../sha
 import { operationKind, operationKindInput, operationKindUpdate } from '../../shared/schemas/operation-kind'
 import { leaveInput, person, personInput, personUpdate } from '../../shared/schemas/person'
 import { routing, routingInput, routingUpdate } from '../../shared/schemas/routing'
-import { userCreate, userUpdate } from '../../shared/schemas/user'
+import { user, userCreate, userUpdate } from '../../shared/schemas/user'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
 import { suggestionForRequest } from '../lib/public-url'
@@ -295,7 +295,14 @@ export const masterDataRoutes = [
     handler: ({ deps, actor, params, body }) => customers.updateCustomer(deps, actor, params.id, body),
   }),
 
-  route({ method: 'get', path: '/users', roles: OWNER, summary: 'Users (owner)', handler: ({ deps, actor }) => users.listUsers(deps.db, actor.workshopId) }),
+  route({
+    method: 'get',
+    path: '/users',
+    roles: OWNER,
+    summary: 'Users (owner)',
+    response: z.array(user),
+    handler: ({ deps, actor }) => users.listUsers(deps.db, actor.workshopId),
+  }),
   route({
     method: 'post',
     path: '/users',
@@ -303,6 +310,7 @@ export const masterDataRoutes = [
     status: 201,
     summary: 'Create a user (owner)',
     body: userCreate,
+    response: user,
     handler: ({ deps, actor, body }) => users.createUser(deps, actor, body),
   }),
   route({
@@ -312,6 +320,7 @@ export const masterDataRoutes = [
     summary: 'Change role, switch off, reset password (owner)',
     params: idParam,
     body: userUpdate,
+    response: user,
     handler: ({ deps, actor, params, body }) => users.updateUser(deps, actor, params.id, body),
   }),
 ]

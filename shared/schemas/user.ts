@@ -1,7 +1,7 @@
 // Users who sign in (managed by the owner).
 import { z } from 'zod'
 import { ROLES } from '../domain/roles'
-import { name, version } from './common'
+import { name, version, wireInt } from './common'
 
 const email = z.string({ error: 'is required' }).trim().toLowerCase().email('must be an e-mail address').max(200)
 const password = z.string().min(10, 'must be at least 10 characters').max(200, 'must be at most 200 characters')
@@ -16,13 +16,17 @@ export const userUpdate = z.object({
 })
 export type UserCreate = z.infer<typeof userCreate>
 export type UserUpdate = z.infer<typeof userUpdate>
-export interface User {
-  id: number
-  email: string
-  name: string
-  role: (typeof ROLES)[number]
-  active: boolean
-  personId: number | null
-  version: number
-  createdAt: string
-}
+
+// ---- Answers ----
+
+export const user = z.object({
+  id: wireInt,
+  email: z.string(),
+  name: z.string(),
+  role: z.enum(ROLES),
+  active: z.boolean(),
+  personId: wireInt.nullable(),
+  version: wireInt,
+  createdAt: z.string(),
+})
+export type User = z.infer<typeof user>

@@ -1,7 +1,8 @@
 // Users API (owner only): team access.
-import type { User, UserCreate, UserUpdate } from '@shared/schemas/user'
+import { z } from 'zod'
+import { user, type UserCreate, type UserUpdate } from '@shared/schemas/user'
 import { api } from './client'
 
-export const listUsers = () => api.get<User[]>('/users')
-export const createUser = (body: UserCreate) => api.post<User>('/users', body)
-export const updateUser = (id: number, body: UserUpdate) => api.patch<User>(`/users/${id}`, body)
+export const listUsers = () => api.get('/users', { schema: z.array(user) })
+export const createUser = (body: UserCreate) => api.post('/users', body, { schema: user })
+export const updateUser = (id: number, body: UserUpdate) => api.patch(`/users/${id}`, body, { schema: user })

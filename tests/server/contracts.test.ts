@@ -600,6 +600,20 @@ describe('answers on the demo workshop', () => {
     await call(manager, 'delete', '/closures/:id', `/closures/${closure.id}`)
   })
 
+  it('when the owner adds a user, changes their role and lists the users, then every user answer is what its schema allows', async () => {
+    const user = await call(
+      owner,
+      'post',
+      '/users',
+      '/users',
+      { email: 'contract@users.test', name: 'Contract User', role: 'sales', password: 'a good long password' },
+      201,
+    )
+    await call(owner, 'patch', '/users/:id', `/users/${user.id}`, { role: 'manager', version: user.version })
+    const users = await call(owner, 'get', '/users', '/users')
+    expect(users.length).toBeGreaterThan(1)
+  })
+
   it('when every call above is done, then each route with a response schema was called at least once', () => {
     expect([...specs.keys()].filter((label) => !called.has(label)).sort()).toEqual([])
   })

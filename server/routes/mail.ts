@@ -3,6 +3,7 @@ import * as digest from '../services/digest'
 import { z } from 'zod'
 import type { Role } from '../../shared/domain/roles'
 import { id } from '../../shared/schemas/common'
+import { atRiskDigestSent, outboxMessage, outboxPage } from '../../shared/schemas/mail'
 import { route } from '../lib/route'
 import * as mail from '../services/mail'
 import { idParam } from './params'
@@ -22,6 +23,7 @@ export const mailRoutes = [
     roles: FRONT,
     summary: 'Messages sent by the workshop, newest first',
     query: outboxQuery,
+    response: outboxPage,
     handler: ({ deps, actor, query }) => mail.listOutbox(deps.db, actor.workshopId, query),
   }),
   route({
@@ -30,6 +32,7 @@ export const mailRoutes = [
     roles: FRONT,
     summary: 'One message with its text and HTML',
     params: idParam,
+    response: outboxMessage,
     handler: ({ deps, actor, params }) => mail.getOutboxMessage(deps.db, actor.workshopId, params.id),
   }),
   route({
@@ -37,6 +40,7 @@ export const mailRoutes = [
     path: '/mail/at-risk-digest',
     roles: ['owner', 'manager'],
     summary: 'Send the managers the digest of job bags at risk now',
+    response: atRiskDigestSent,
     handler: ({ deps, actor }) => digest.sendAtRiskDigest(deps, actor.workshopId),
   }),
 ]

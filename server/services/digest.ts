@@ -1,5 +1,6 @@
 // The managers' daily digest of job bags at risk or late on the live plan, read from the board and sent through the outbox.
 import { and, desc, eq } from 'drizzle-orm'
+import type { AtRiskDigestSent } from '../../shared/schemas/mail'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
 import { notFound } from '../errors/app-error'
@@ -13,7 +14,7 @@ import { sendRecorded } from './mail'
  * The managers' digest of job bags at risk or late on the live plan; those not in the previous digest are marked new.
  * Sends nothing when no job bag is at risk. Managers receive it; owners when the workshop has no manager.
  */
-export async function sendAtRiskDigest(deps: Pick<Deps, 'db' | 'mailer' | 'jobs'>, workshopId: number, now = new Date()) {
+export async function sendAtRiskDigest(deps: Pick<Deps, 'db' | 'mailer' | 'jobs'>, workshopId: number, now = new Date()): Promise<AtRiskDigestSent> {
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   if (!w) throw notFound('Workshop')
   const day = dayjs(now).tz(w.timeZone).format('YYYY-MM-DD')

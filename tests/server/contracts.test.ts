@@ -14,7 +14,7 @@ import * as s from '../../server/db/schema/index'
 import { newLinkToken } from '../../server/services/accounts'
 import { Agent, createTestApp, DEMO_EMAIL, signedIn, type TestApp } from '../setup/app'
 import { DEMO_PASSWORD } from '../../server/db/seed'
-import { alloyIdByCode, firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, routingId } from '../setup/fixtures'
+import { alloyIdByCode, bookLastStepLate, firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, routingId } from '../setup/fixtures'
 
 let t: TestApp
 let payFake: PayFake
@@ -612,6 +612,25 @@ describe('answers on the demo workshop', () => {
     await call(owner, 'patch', '/users/:id', `/users/${user.id}`, { role: 'manager', version: user.version })
     const users = await call(owner, 'get', '/users', '/users')
     expect(users.length).toBeGreaterThan(1)
+  })
+
+  it('when a job bag is booked past its promised date and the digest is sent, then the digest, the outbox and one message answer what their schemas allow', async () => {
+    const o = await openOrder(t.db, 1)
+    // Its last bench step booked three working days from now, the order promised two days before that step ends.
+    await bookLastStepLate(t.db, {
+      workshopId: await firstWorkshopId(t.db),
+      orderId: o.id,
+      bagId: o.bagId,
+      fromMinute: 3 * 1440,
+      promised: (end) => new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10),
+    })
+    const digest = await call(manager, 'post', '/mail/at-risk-digest', '/mail/at-risk-digest')
+    expect(digest.jobs.map((j: { number: string }) => j.number)).toContain(o.bagNumber)
+    expect(digest.messages.length).toBeGreaterThan(0)
+    const page = await call(manager, 'get', '/outbox', '/outbox?pageSize=200')
+    expect(page.items.some((m: { orderNumber: string | null }) => m.orderNumber)).toBe(true)
+    const message = await call(manager, 'get', '/outbox/:id', `/outbox/${digest.messages[0].id}`)
+    expect(message.meta.jobBagIds).toContain(o.bagId)
   })
 
   it('when every call above is done, then each route with a response schema was called at least once', () => {

@@ -1,6 +1,7 @@
 // File routes: upload to an order or a job bag (multipart, field "file" plus "kind"), list, download, thumbnail, delete.
 import type { Response } from 'express'
 import { EVERYONE, STAFF, type Role } from '../../shared/domain/roles'
+import { fileList, fileRemoved, storedFile } from '../../shared/schemas/file'
 import { route, type Deps } from '../lib/route'
 import { contentDisposition, receiveOne } from '../lib/upload'
 import * as files from '../services/files'
@@ -29,6 +30,7 @@ export const fileRoutes = [
     status: 201,
     summary: 'Upload a sketch, reference or photo to an order (multipart: file, kind)',
     params: idParam,
+    response: storedFile,
     handler: async ({ deps, actor, params, req, res }) => files.addFile(deps, actor, { type: 'order', id: params.id }, await receiveOne(req, res, maxOf(deps))),
   }),
   route({
@@ -38,6 +40,7 @@ export const fileRoutes = [
     status: 201,
     summary: 'Upload a file to a job bag (bench: progress photos only)',
     params: idParam,
+    response: storedFile,
     handler: async ({ deps, actor, params, req, res }) =>
       files.addFile(deps, actor, { type: 'jobBag', id: params.id }, await receiveOne(req, res, maxOf(deps))),
   }),
@@ -47,6 +50,7 @@ export const fileRoutes = [
     roles: FRONT,
     summary: 'Files of an order',
     params: idParam,
+    response: fileList,
     handler: ({ deps, actor, params }) => files.listFiles(deps.db, actor, { type: 'order', id: params.id }),
   }),
   route({
@@ -55,6 +59,7 @@ export const fileRoutes = [
     roles: EVERYONE,
     summary: 'Files of a job bag',
     params: idParam,
+    response: fileList,
     handler: ({ deps, actor, params }) => files.listFiles(deps.db, actor, { type: 'jobBag', id: params.id }),
   }),
   route({
@@ -82,6 +87,7 @@ export const fileRoutes = [
     roles: STAFF,
     summary: 'Remove a file',
     params: idParam,
+    response: fileRemoved,
     handler: ({ deps, actor, params }) => files.deleteFile(deps, actor, params.id),
   }),
 ]

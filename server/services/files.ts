@@ -5,6 +5,7 @@ import { resolve, sep } from 'node:path'
 import { and, desc, eq } from 'drizzle-orm'
 import sharp from 'sharp'
 import type { Role } from '../../shared/domain/roles'
+import type { FileRemoved } from '../../shared/schemas/file'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
 import { FILE_KINDS, type FileKind } from '../db/schema/index'
@@ -152,7 +153,7 @@ export async function readFileContent(deps: Deps, actor: Actor, id: number, whic
   }
 }
 
-export async function deleteFile(deps: Deps, actor: Actor, id: number) {
+export async function deleteFile(deps: Deps, actor: Actor, id: number): Promise<FileRemoved> {
   const f = await visibleFile(deps.db, actor, id)
   await deps.db.transaction(async (tx) => {
     await tx.delete(s.files).where(eq(s.files.id, f.id))

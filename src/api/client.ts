@@ -121,7 +121,7 @@ export interface GetOptions<T> extends AnswerOptions<T> {
 const CHECK_ANSWERS = import.meta.env.DEV || import.meta.env.MODE === 'test'
 
 /** The answer itself, after its schema passed it (a mismatch is an ApiError naming the call and the fields). */
-function checked<T>(method: Method, path: string, schema: ZodType<T>, data: unknown): T {
+export function checked<T>(method: Method, path: string, schema: ZodType<T>, data: unknown): T {
   if (!CHECK_ANSWERS) return data as T
   const r = schema.safeParse(data)
   if (r.success) return data as T

@@ -2,6 +2,8 @@
 // that may call it; and the app refuses (500) an answer its route's schema does not allow.
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import express from 'express'
+import PDFDocument from 'pdfkit'
+import { PNG } from 'pngjs'
 import request from 'supertest'
 import { z } from 'zod'
 import { allRoutes } from '../../server/routes/index'
@@ -631,6 +633,39 @@ describe('answers on the demo workshop', () => {
     expect(page.items.some((m: { orderNumber: string | null }) => m.orderNumber)).toBe(true)
     const message = await call(manager, 'get', '/outbox/:id', `/outbox/${digest.messages[0].id}`)
     expect(message.meta.jobBagIds).toContain(o.bagId)
+  })
+
+  it('when a sketch is uploaded to an order and a PDF to a job bag, listed and removed, then every file answer is what its schema allows', async () => {
+    const { id: orderId, bagId } = await openOrder(t.db)
+    /** An upload is multipart, which `call` does not send: the same checks, by hand. */
+    const upload = async (path: string, url: string, kind: string, content: Buffer, filename: string, contentType: string) => {
+      const label = labelOf('post', path)
+      const r = await manager.agent.post(`/api${url}`).set('x-csrf-token', manager.csrf).field('kind', kind).attach('file', content, { filename, contentType })
+      expect(r.status, `${label}: ${JSON.stringify(r.body).slice(0, 400)}`).toBe(201)
+      const checked = specs.get(label)!.response!.safeParse(r.body)
+      expect(checked.success ? [] : checked.error.issues.slice(0, 5), label).toEqual([])
+      called.add(label)
+      return r.body
+    }
+    const img = new PNG({ width: 4, height: 3 })
+    img.data.fill(200)
+    const sketch = await upload('/orders/:id/files', `/orders/${orderId}/files`, 'sketch', PNG.sync.write(img), 'contract sketch.png', 'image/png')
+    expect([sketch.width, sketch.height]).toEqual([4, 3])
+    const doc = new PDFDocument({ size: 'A6' })
+    const parts: Buffer[] = []
+    doc.on('data', (c: Buffer) => parts.push(c))
+    const written = new Promise<Buffer>((r) => doc.on('end', () => r(Buffer.concat(parts))))
+    doc.text('Contract drawing')
+    doc.end()
+    const drawing = await upload('/job-bags/:id/files', `/job-bags/${bagId}/files`, 'reference', await written, 'contract drawing.pdf', 'application/pdf')
+    expect(drawing.thumbnailUrl).toBeNull()
+
+    const ofOrder = await call(manager, 'get', '/orders/:id/files', `/orders/${orderId}/files`)
+    expect(ofOrder.items.map((f: { id: number }) => f.id)).toContain(sketch.id)
+    const ofBag = await call(manager, 'get', '/job-bags/:id/files', `/job-bags/${bagId}/files`)
+    expect(ofBag.items.map((f: { id: number }) => f.id)).toContain(drawing.id)
+    // Removed again: the stored files leave the upload folder too.
+    for (const f of [sketch, drawing]) await call(manager, 'delete', '/files/:id', `/files/${f.id}`)
   })
 
   it('when every call above is done, then each route with a response schema was called at least once', () => {

@@ -110,7 +110,7 @@ export async function finishedOperations(db: Db, workshopId: number, filter: Ins
   ]
   if (filter.from) where.push(gte(operations.finishedAt, dayjs.tz(`${filter.from} 00:00`, tz).toISOString()))
   if (filter.to) where.push(lt(operations.finishedAt, dayjs.tz(`${filter.to} 00:00`, tz).add(1, 'day').toISOString()))
-  if (filter.templateId) where.push(eq(jobBags.routingId, filter.templateId))
+  if (filter.routingId) where.push(eq(jobBags.routingId, filter.routingId))
   const rows = await db
     .select({ op: operations, bag: jobBags, kind: operationKinds, order: orders, routingName: routings.name })
     .from(operations)
@@ -375,9 +375,9 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
         }
       }
       suggestions.push({
-        templateId: t.id,
-        templateName: t.name,
-        templateVersion: t.version,
+        routingId: t.id,
+        routingName: t.name,
+        routingVersion: t.version,
         stepKey: s.key,
         stepName: s.name,
         kindId: kind.id,
@@ -398,18 +398,18 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
 
 export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, input: AcceptSuggestionInput) {
   const learned = await learnEstimates(db, actor.workshopId)
-  const basisOf = learned.steps.find((s) => s.templateId === input.templateId && s.stepKey === input.stepKey)
+  const basisOf = learned.steps.find((s) => s.routingId === input.routingId && s.stepKey === input.stepKey)
   const change = await db.transaction(async (tx) => {
     const [step] = await tx
       .select({ s: routingSteps })
       .from(routingSteps)
       .innerJoin(routings, eq(routings.id, routingSteps.routingId))
-      .where(and(eq(routingSteps.routingId, input.templateId), eq(routingSteps.key, input.stepKey), eq(routings.workshopId, actor.workshopId)))
+      .where(and(eq(routingSteps.routingId, input.routingId), eq(routingSteps.key, input.stepKey), eq(routings.workshopId, actor.workshopId)))
     if (!step) {
       const [t] = await tx
         .select({ id: routings.id })
         .from(routings)
-        .where(and(eq(routings.id, input.templateId), eq(routings.workshopId, actor.workshopId)))
+        .where(and(eq(routings.id, input.routingId), eq(routings.workshopId, actor.workshopId)))
       throw t
         ? new AppError({ code: 'validation', message: `stepKey: no such step in this routing`, fields: { stepKey: 'is not a step of this routing' } })
         : notFound('Routing')
@@ -417,9 +417,9 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
     if (step.s.leadDays > 0)
       throw new AppError({ code: 'unprocessable', message: 'Outside work has lead days, not bench minutes', fields: { stepKey: 'is outside work' } })
     const t = await updateVersioned(tx, routings, 'Routing', {
-      id: input.templateId,
+      id: input.routingId,
       workshopId: actor.workshopId,
-      version: input.templateVersion,
+      version: input.routingVersion,
       values: {},
     })
     await tx.update(routingSteps).set({ baseMinutes: input.baseMinutes, perStoneMinutes: input.perStoneMinutes }).where(eq(routingSteps.id, step.s.id))
@@ -435,7 +435,7 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
       .insert(routingStepChanges)
       .values({
         workshopId: actor.workshopId,
-        routingId: input.templateId,
+        routingId: input.routingId,
         stepKey: input.stepKey,
         kindId: step.s.kindId,
         fromBaseMinutes: step.s.baseMinutes,
@@ -448,7 +448,7 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
         acceptedBy: actor.userId,
       })
       .returning()
-    await audit(tx, actor, 'accept-estimate', 'routing', input.templateId, {
+    await audit(tx, actor, 'accept-estimate', 'routing', input.routingId, {
       stepKey: input.stepKey,
       from: { baseMinutes: step.s.baseMinutes, perStoneMinutes: step.s.perStoneMinutes },
       to: { baseMinutes: input.baseMinutes, perStoneMinutes: input.perStoneMinutes },
@@ -457,7 +457,7 @@ export async function acceptSuggestion({ db, realtime }: Deps, actor: Actor, inp
     })
     return { id: row!.id, version: t.version }
   })
-  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing', id: input.templateId, version: change.version })
+  realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'routing', id: input.routingId, version: change.version })
   return (await listStepChanges(db, actor.workshopId)).find((c) => c.id === change.id)!
 }
 
@@ -473,14 +473,14 @@ export async function listStepChanges(db: Db, workshopId: number): Promise<StepC
     .orderBy(desc(routingStepChanges.id))
   return rows.map(({ c, routingName, stepName, kind, by }) => ({
     id: c.id,
-    templateId: c.routingId,
-    templateName: routingName,
+    routingId: c.routingId,
+    routingName,
     stepKey: c.stepKey,
     stepName: stepName ?? c.stepKey,
     kind,
     from: { baseMinutes: c.fromBaseMinutes, perStoneMinutes: c.fromPerStoneMinutes },
     to: { baseMinutes: c.toBaseMinutes, perStoneMinutes: c.toPerStoneMinutes },
-    templateVersion: c.routingVersion,
+    routingVersion: c.routingVersion,
     basis: c.basis,
     reason: c.reason,
     acceptedBy: by,

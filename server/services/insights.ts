@@ -48,7 +48,7 @@ export function comparisonRow(key: string, label: string, ops: readonly Pick<Fin
 const groupKey: Record<Grouping, (o: FinishedOperation) => { key: string; label: string }> = {
   kind: (o) => ({ key: String(o.kindId), label: o.kindName }),
   person: (o) => ({ key: String(o.personId), label: o.personName }),
-  template: (o) => ({ key: String(o.routingId ?? 0), label: o.routingName ?? 'No routing' }),
+  routing: (o) => ({ key: String(o.routingId ?? 0), label: o.routingName ?? 'No routing' }),
   order: (o) => ({ key: String(o.orderId), label: `${o.orderNumber} ${o.orderTitle}` }),
   month: (o) => ({ key: o.month, label: o.month }),
 }
@@ -68,7 +68,7 @@ export async function comparison(db: Db, workshopId: number, groupBy: Grouping, 
 }
 
 const cleanFilter = (f: InsightFilter): InsightFilter =>
-  Object.fromEntries(Object.entries({ from: f.from, to: f.to, templateId: f.templateId }).filter(([, v]) => v !== undefined))
+  Object.fromEntries(Object.entries({ from: f.from, to: f.to, routingId: f.routingId }).filter(([, v]) => v !== undefined))
 
 export async function scatter(db: Db, workshopId: number, filter: InsightFilter): Promise<ScatterPoint[]> {
   const ops = await finishedOperations(db, workshopId, filter)
@@ -175,7 +175,7 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
     const day = finishedOn(ops)
     if (filter.from && day < filter.from) return false
     if (filter.to && day > filter.to) return false
-    if (filter.templateId && !ops.some((r) => r.bag.routingId === filter.templateId)) return false
+    if (filter.routingId && !ops.some((r) => r.bag.routingId === filter.routingId)) return false
     return true
   })
   const costed = await costOrders(
@@ -276,8 +276,8 @@ function totalCaveat(missing: Missing[], orders: number): string {
 export async function listStepCosts(db: Db, workshopId: number): Promise<StepCost[]> {
   const rows = await db
     .select({
-      templateId: routings.id,
-      templateName: routings.name,
+      routingId: routings.id,
+      routingName: routings.name,
       stepKey: routingSteps.key,
       stepName: routingSteps.name,
       leadDays: routingSteps.leadDays,
@@ -307,7 +307,7 @@ export async function setStepCost({ db }: Deps, actor: Actor, routingId: number,
       .values({ routingId, stepKey, outsideCostMinor })
       .onConflictDoUpdate({ target: [routingStepCosts.routingId, routingStepCosts.stepKey], set: { outsideCostMinor, updatedAt: new Date() } })
     await audit(tx, actor, 'set-outside-cost', 'routing', routingId, { stepKey, outsideCostMinor })
-    return { templateId: routingId, stepKey, outsideCostMinor }
+    return { routingId, stepKey, outsideCostMinor }
   })
 }
 
@@ -345,7 +345,7 @@ export function toCsv(header: string[], rows: unknown[][]): string {
 }
 
 /** The first column of a comparison CSV names the row (what a person reads first); ids come last, for joining. */
-const CSV_NAME: Record<Grouping, string> = { kind: 'kind', person: 'person', template: 'routing', order: 'order', month: 'month' }
+const CSV_NAME: Record<Grouping, string> = { kind: 'kind', person: 'person', routing: 'routing', order: 'order', month: 'month' }
 
 export function comparisonCsv(t: ComparisonTable): string {
   const name = CSV_NAME[t.groupBy]

@@ -3,7 +3,7 @@ import { z } from 'zod'
 import { SIZE_BANDS } from '../domain/estimate'
 import { id, isoDate, version, wireInt } from './common'
 
-export const GROUPINGS = ['kind', 'person', 'template', 'order', 'month'] as const
+export const GROUPINGS = ['kind', 'person', 'routing', 'order', 'month'] as const
 export type Grouping = (typeof GROUPINGS)[number]
 
 const optionalId = z.preprocess((v) => (v === '' ? undefined : v), id.optional())
@@ -12,16 +12,16 @@ const format = z.enum(['json', 'csv'], { error: 'must be json or csv' }).default
 
 /** Filters every insight shares: finished between two local dates (inclusive), one routing. */
 export const insightFilter = z
-  .object({ from: optionalDate, to: optionalDate, templateId: optionalId })
+  .object({ from: optionalDate, to: optionalDate, routingId: optionalId })
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
 export type InsightFilter = z.infer<typeof insightFilter>
 
 export const comparisonQuery = z
   .object({
-    groupBy: z.enum(GROUPINGS, { error: 'must be kind, person, template, order or month' }).default('kind'),
+    groupBy: z.enum(GROUPINGS, { error: 'must be kind, person, routing, order or month' }).default('kind'),
     from: optionalDate,
     to: optionalDate,
-    templateId: optionalId,
+    routingId: optionalId,
     format,
   })
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
@@ -29,18 +29,18 @@ export type ComparisonQuery = z.infer<typeof comparisonQuery>
 
 export const recordsQuery = z
   .object({
-    groupBy: z.enum(GROUPINGS, { error: 'must be kind, person, template, order or month' }),
+    groupBy: z.enum(GROUPINGS, { error: 'must be kind, person, routing, order or month' }),
     key: z.string({ error: 'is required' }).trim().min(1, 'is required').max(40),
     from: optionalDate,
     to: optionalDate,
-    templateId: optionalId,
+    routingId: optionalId,
     format,
   })
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
 export type RecordsQuery = z.infer<typeof recordsQuery>
 
 export const costingQuery = z
-  .object({ from: optionalDate, to: optionalDate, templateId: optionalId, format })
+  .object({ from: optionalDate, to: optionalDate, routingId: optionalId, format })
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: 'must not be before the start date', path: ['to'] })
 export type CostingQuery = z.infer<typeof costingQuery>
 
@@ -52,12 +52,12 @@ export const threePointInput = z
 export type ThreePointInput = z.infer<typeof threePointInput>
 
 export const acceptSuggestionInput = z.object({
-  templateId: id,
+  routingId: id,
   stepKey: z.string({ error: 'is required' }).trim().min(1, 'is required').max(40),
   baseMinutes: minutesField,
   perStoneMinutes: z.number({ error: 'must be a number of minutes' }).min(0, 'must not be negative').max(1000, 'must be at most 1000 minutes'),
   /** The routing version the owner looked at. */
-  templateVersion: version,
+  routingVersion: version,
   reason: z.string().trim().max(500, 'must be at most 500 characters').default(''),
 })
 export type AcceptSuggestionInput = z.infer<typeof acceptSuggestionInput>
@@ -76,7 +76,7 @@ export const operationCostInput = z.object({ outsideCostMinor: money })
 // Answers
 
 /** The filter as the answer names it back (plain values, no defaults). */
-const filterOut = z.object({ from: z.string().optional(), to: z.string().optional(), templateId: wireInt.optional() })
+const filterOut = z.object({ from: z.string().optional(), to: z.string().optional(), routingId: wireInt.optional() })
 
 export const comparisonRow = z.object({
   key: z.string(),
@@ -221,9 +221,9 @@ export const personFigure = z.object({
 export type PersonFigure = z.infer<typeof personFigure>
 const stepMinutes = z.object({ baseMinutes: z.number(), perStoneMinutes: z.number() })
 export const stepSuggestion = z.object({
-  templateId: wireInt,
-  templateName: z.string(),
-  templateVersion: wireInt,
+  routingId: wireInt,
+  routingName: z.string(),
+  routingVersion: wireInt,
   stepKey: z.string(),
   stepName: z.string(),
   kindId: wireInt,
@@ -247,15 +247,15 @@ export type LearnedEstimates = z.infer<typeof learnedEstimates>
 
 export const stepChange = z.object({
   id: wireInt,
-  templateId: wireInt,
-  templateName: z.string(),
+  routingId: wireInt,
+  routingName: z.string(),
   stepKey: z.string(),
   /** The step's name in the routing (its key when the step has gone since). */
   stepName: z.string(),
   kind: z.string(),
   from: stepMinutes,
   to: stepMinutes,
-  templateVersion: wireInt,
+  routingVersion: wireInt,
   basis: z.object({ n: wireInt, from: z.string().nullable(), to: z.string().nullable(), method: z.string(), spread: z.record(z.string(), z.number()) }),
   reason: z.string(),
   acceptedBy: z.string(),
@@ -269,8 +269,8 @@ export type ThreePointEstimate = z.infer<typeof threePointEstimate>
 
 /** An outside step's expected cost per unit in integer minor units of `currency` (null: not set). */
 export const stepCost = z.object({
-  templateId: wireInt,
-  templateName: z.string(),
+  routingId: wireInt,
+  routingName: z.string(),
   stepKey: z.string(),
   stepName: z.string(),
   leadDays: z.number(),
@@ -278,5 +278,5 @@ export const stepCost = z.object({
   currency: z.string(),
 })
 export type StepCost = z.infer<typeof stepCost>
-export const stepCostSet = z.object({ templateId: wireInt, stepKey: z.string(), outsideCostMinor: wireInt.nullable() })
+export const stepCostSet = z.object({ routingId: wireInt, stepKey: z.string(), outsideCostMinor: wireInt.nullable() })
 export const operationCostSet = z.object({ operationId: wireInt, outsideCostMinor: wireInt.nullable() })

@@ -18,7 +18,7 @@ import {
 } from '@shared/schemas/insights'
 import { api, type Query } from './client'
 
-const q = (f: InsightFilter): Query => ({ from: f.from, to: f.to, templateId: f.templateId })
+const q = (f: InsightFilter): Query => ({ from: f.from, to: f.to, routingId: f.routingId })
 
 export const getComparison = (groupBy: Grouping, f: InsightFilter) => api.get('/insights/comparison', { query: { groupBy, ...q(f) }, schema: comparisonTable })
 export const getScatter = (f: InsightFilter) => api.get('/insights/scatter', { query: q(f), schema: z.array(scatterPoint) })
@@ -43,5 +43,5 @@ export const drillCsvUrl = (groupBy: Grouping, key: string, f: InsightFilter) =>
 
 export type { StepCost } from '@shared/schemas/insights'
 export const getStepCosts = () => api.get('/insights/outside-costs', { schema: z.array(stepCost) })
-export const setStepCost = (templateId: number, stepKey: string, outsideCostMinor: number | null) =>
-  api.put(`/insights/routings/${templateId}/outside-cost`, { stepKey, outsideCostMinor }, { schema: stepCostSet })
+export const setStepCost = (routingId: number, stepKey: string, outsideCostMinor: number | null) =>
+  api.put(`/insights/routings/${routingId}/outside-cost`, { stepKey, outsideCostMinor }, { schema: stepCostSet })

@@ -75,7 +75,7 @@ export const useInsightsStore = defineStore('insights', () => {
   }
   /** Accepts a learned suggestion into its routing step; learned figures and history reload. */
   async function accept(s: StepSuggestion, values: { baseMinutes: number; perStoneMinutes: number }, reason = '') {
-    const change = await insightsApi.acceptSuggestion({ templateId: s.templateId, stepKey: s.stepKey, templateVersion: s.templateVersion, reason, ...values })
+    const change = await insightsApi.acceptSuggestion({ routingId: s.routingId, stepKey: s.stepKey, routingVersion: s.routingVersion, reason, ...values })
     const [l, ch] = await Promise.all([insightsApi.getLearned(), insightsApi.getStepChanges()])
     learned.value = l
     changes.value = ch

@@ -148,8 +148,8 @@ describe('insights as the owner', () => {
 
   it('when the owner accepts a suggested estimate, then the question and the confirmation name the step, not its key', async () => {
     type S = {
-      templateName: string
-      templateVersion: number
+      routingName: string
+      routingVersion: number
       stepKey: string
       stepName: string
       suggested: { baseMinutes: number; perStoneMinutes: number; changePct: number } | null
@@ -172,15 +172,15 @@ describe('insights as the owner', () => {
     const question = page.locator('.el-popconfirm', { hasText: 'New orders will use them' })
     await question.waitFor()
     expect(await question.locator('.el-popconfirm__main').textContent()).toContain(
-      `Write ${minutes} for “${s.stepName}” into “${s.templateName}”? New orders will use them.`,
+      `Write ${minutes} for “${s.stepName}” into “${s.routingName}”? New orders will use them.`,
     )
     await screenshot(page, 'insights-accept-question')
     await question.getByRole('button', { name: 'Accept' }).click()
     const message = page.locator('.el-message', { hasText: s.stepName })
     await message.waitFor()
-    expect((await message.textContent())?.trim()).toBe(`“${s.stepName}” in ${s.templateName} now takes ${minutes} (routing version ${s.templateVersion + 1})`)
+    expect((await message.textContent())?.trim()).toBe(`“${s.stepName}” in ${s.routingName} now takes ${minutes} (routing version ${s.routingVersion + 1})`)
     // The list of changes accepted lately names the step too.
-    await page.getByText(`${s.templateName} · ${s.stepName}: `).first().waitFor()
+    await page.getByText(`${s.routingName} · ${s.stepName}: `).first().waitFor()
     await screenshot(page, 'insights-accepted')
   })
 

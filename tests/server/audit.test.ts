@@ -151,11 +151,11 @@ describe('estimates', () => {
     const routing = (await owner.get('/api/routings')).body[0]
     const s0 = routing.steps[0]
     const acc = await owner.post('/api/estimates/accept', {
-      templateId: routing.id,
+      routingId: routing.id,
       stepKey: s0.key,
       baseMinutes: s0.baseMinutes + 5,
       perStoneMinutes: s0.perStoneMinutes,
-      templateVersion: routing.version,
+      routingVersion: routing.version,
       reason: 'our own times say so',
     })
     expect(acc.status, JSON.stringify(acc.body)).toBe(200)

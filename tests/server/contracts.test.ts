@@ -525,7 +525,7 @@ describe('answers on the demo workshop', () => {
     const jobs = await call(owner, 'get', '/insights/costing', '/insights/costing')
     expect(jobs.rows.length).toBeGreaterThan(0)
     const outside = await call(owner, 'get', '/insights/outside-costs', '/insights/outside-costs')
-    await call(owner, 'put', '/insights/routings/:id/outside-cost', `/insights/routings/${outside[0].templateId}/outside-cost`, {
+    await call(owner, 'put', '/insights/routings/:id/outside-cost', `/insights/routings/${outside[0].routingId}/outside-cost`, {
       stepKey: outside[0].stepKey,
       outsideCostMinor: 4500,
     })
@@ -535,11 +535,11 @@ describe('answers on the demo workshop', () => {
     expect([learned.kinds.length, learned.people.length, learned.steps.length].every((n) => n > 0)).toBe(true)
     const step = learned.steps[0]
     await call(owner, 'post', '/estimates/accept', '/estimates/accept', {
-      templateId: step.templateId,
+      routingId: step.routingId,
       stepKey: step.stepKey,
       baseMinutes: step.current.baseMinutes + 5,
       perStoneMinutes: step.current.perStoneMinutes,
-      templateVersion: step.templateVersion,
+      routingVersion: step.routingVersion,
       reason: 'runs over in the workshop',
     })
     const changes = await call(owner, 'get', '/estimates/changes', '/estimates/changes')

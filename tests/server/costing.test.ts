@@ -74,6 +74,32 @@ describe('estimated cost', () => {
     expect(r.body.pieces[0]).toMatchObject({ pricePerGramMinor: 6000, alloyName: '18 ct yellow gold', labourMinutes: 210 })
   })
 
+  it('when two pieces on different routings share a step key, then each piece takes its own routing’s outside cost', async () => {
+    const manager = await signedIn(t.app, 'manager')
+    const kinds = Object.fromEntries((await owner.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
+    const other = await manager.post('/api/routings', {
+      code: 'costing-fixture-platinum',
+      name: 'Fixture: platinum band, hallmarked',
+      description: 'A second routing with a hallmark step of the same key.',
+      steps: [
+        { key: 'make', kindId: kinds.sawing, name: 'Make', baseMinutes: 60 },
+        { key: 'hallmark', kindId: kinds.hallmarking, name: 'Hallmark', baseMinutes: 0, leadDays: 3, after: ['make'] },
+      ],
+    })
+    expect(other.status).toBe(201)
+    expect((await owner.put(`/api/insights/routings/${other.body.id}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 7000 })).status).toBe(200)
+    const r = await sales.post('/api/costing/estimate', {
+      pieces: [
+        { ...piece, routingId },
+        { ...piece, piece: 'Platinum band', routingId: other.body.id, params: { ...piece.params, quantity: 2 } },
+      ],
+    })
+    expect(r.status).toBe(200)
+    // The first routing's hallmark costs 45.00 a piece (set above); the second's 70.00 a piece × 2 pieces = 140.00. Both steps are
+    // keyed 'hallmark', so a look-up by key alone would give the band 2 × 45.00 = 90.00.
+    expect(r.body.pieces.map((x: { cost: { outsideMinor: number } }) => x.cost.outsideMinor)).toEqual([4_500, 14_000])
+    expect(r.body.estimate.cost.outsideMinor).toBe(18_500)
+  })
   it('when the piece has no weight or stone costs, then the estimate says what is missing', async () => {
     const r = await sales.post('/api/costing/estimate', { pieces: [{ routingId, piece: 'Fixture ring', params: { metal: 'gold-18ct', stoneCount: 4 } }] })
     expect(r.body.estimate.cost).toMatchObject({ metalMinor: 0, stonesMinor: 0 })
@@ -157,7 +183,7 @@ describe('an order costed', () => {
     expect(after.body.actual.cost).toEqual({ metalMinor: 33_236, stonesMinor: 48_000, outsideMinor: 4_500, labourMinor: 11_200, totalMinor: 96_936 })
     expect(after.body.actual).toMatchObject({ marginMinor: 28_064, marginPct: 22.5, caveat: 'metal, stones, outside work and labour counted' })
     // The owner's table shows the same figures, in minor units of the workshop's currency.
-    const table = await owner.get(`/api/insights/costing?templateId=${routingId}`)
+    const table = await owner.get(`/api/insights/costing?routingId=${routingId}`)
     expect(table.body.currency).toBe('GBP')
     expect(table.body.rows).toEqual([
       expect.objectContaining({

@@ -11,7 +11,7 @@ let owner: Agent
 let manager: Agent
 let kinds: Record<string, number>
 let person: Record<string, number>
-let templateId: number
+let routingId: number
 const orderIds: number[] = []
 const orderNumbers: string[] = []
 
@@ -48,7 +48,7 @@ beforeAll(async () => {
     ],
   })
   expect(routing.status).toBe(201)
-  templateId = routing.body.id
+  routingId = routing.body.id
   for (const [title, price, quantity] of [
     ['Fixture order A', 50_000, 2],
     ['Fixture order B', 30_000, 1],
@@ -58,7 +58,7 @@ beforeAll(async () => {
       title,
       dueDate: '2030-04-30',
       priceQuotedMinor: price,
-      pieces: [{ routingId: templateId, piece: title, params: { stoneCount: 6, stoneSizeMm: 1.5, quantity } }],
+      pieces: [{ routingId, piece: title, params: { stoneCount: 6, stoneSizeMm: 1.5, quantity } }],
     })
     expect(o.status).toBe(201)
     orderIds.push(o.body.id)
@@ -84,7 +84,7 @@ beforeAll(async () => {
     .values({ workshopId, timeRecordId: forgotten!, kind: 'void', reason: 'left running overnight', correctedBy: managerUser })
   await finish(b.hallmark!, 0, at('2030-04-08', '12:00'), [])
   // Expected outside cost: 2.50 per unit at the assay office; order A's was invoiced at 7.00.
-  expect((await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 250 })).status).toBe(200)
+  expect((await owner.put(`/api/insights/routings/${routingId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 250 })).status).toBe(200)
   expect((await owner.put(`/api/insights/operations/${a.hallmark}/outside-cost`, { outsideCostMinor: 700 })).status).toBe(200)
 })
 afterAll(async () => {
@@ -95,7 +95,7 @@ const byLabel = (rows: { label: string }[]) => Object.fromEntries(rows.map((r) =
 
 describe('estimated against actual hours', () => {
   it('when grouped by kind for the fixture routing, then totals, bias and MAPE are the hand-computed ones (voided record left out)', async () => {
-    const r = await owner.get(`/api/insights/comparison?groupBy=kind&templateId=${templateId}`)
+    const r = await owner.get(`/api/insights/comparison?groupBy=kind&routingId=${routingId}`)
     expect(r.status).toBe(200)
     const rows = byLabel(r.body.rows)
     // Hand-computed (MAPE = mean |A − F| / A, Hyndman & Koehler 2006 definition; hours = minutes / 60, 2 decimals):
@@ -138,11 +138,11 @@ describe('estimated against actual hours', () => {
   })
 
   it('when grouped by person, order and month, then each row sums its own operations', async () => {
-    const person = byLabel((await owner.get(`/api/insights/comparison?groupBy=person&templateId=${templateId}`)).body.rows)
+    const person = byLabel((await owner.get(`/api/insights/comparison?groupBy=person&routingId=${routingId}`)).body.rows)
     expect(person['Ines Harrowby']).toMatchObject({ n: 2, estimateHours: 3, actualHours: 3.17 })
     expect(person['Ruth Calder']).toMatchObject({ n: 1, estimateHours: 0.5, actualHours: 0.4, biasPct: -20, mapePct: 25 })
     expect(person['Theo Brae']).toMatchObject({ n: 1, estimateHours: 0.5, actualHours: 0.5, biasHours: 0, direction: 'even', mapePct: 0 })
-    const order = (await owner.get(`/api/insights/comparison?groupBy=order&templateId=${templateId}`)).body.rows
+    const order = (await owner.get(`/api/insights/comparison?groupBy=order&routingId=${routingId}`)).body.rows
     // Order A: 90 → 114 min (+26.7 %); order B: 150 → 130 min (−13.3 %).
     expect(
       order
@@ -154,25 +154,27 @@ describe('estimated against actual hours', () => {
         [orderIds[1], 2.5, 2.17, -13.3],
       ].sort(),
     )
-    const month = (await owner.get(`/api/insights/comparison?groupBy=month&templateId=${templateId}`)).body.rows
+    const month = (await owner.get(`/api/insights/comparison?groupBy=month&routingId=${routingId}`)).body.rows
     expect(month.map((x: { key: string; n: number }) => [x.key, x.n])).toEqual([
       ['2030-03', 2],
       ['2030-04', 2],
     ])
-    const routing = (await owner.get(`/api/insights/comparison?groupBy=template&templateId=${templateId}`)).body.rows
-    expect(routing).toEqual([expect.objectContaining({ key: String(templateId), label: 'Fixture: set and polish', n: 4 })])
+    const routing = (await owner.get(`/api/insights/comparison?groupBy=routing&routingId=${routingId}`)).body.rows
+    expect(routing).toEqual([expect.objectContaining({ key: String(routingId), label: 'Fixture: set and polish', n: 4 })])
   })
 
   it('when a date range is given, then only work finished inside it (workshop days, inclusive) counts', async () => {
-    const r = await owner.get(`/api/insights/comparison?groupBy=kind&templateId=${templateId}&from=2030-04-01&to=2030-04-03`)
+    const r = await owner.get(`/api/insights/comparison?groupBy=kind&routingId=${routingId}&from=2030-04-01&to=2030-04-03`)
     expect(r.body.total).toMatchObject({ n: 2, estimateHours: 2.5, actualHours: 2.17 })
     expectFieldError(await owner.get(`/api/insights/comparison?from=2030-05-01&to=2030-04-01`), 'to')
     expectFieldError(await owner.get(`/api/insights/comparison?groupBy=colour`), 'groupBy')
+    // The routing grouping is asked for as routing; the reason lists the groupings there are.
+    expectFieldError(await owner.get(`/api/insights/comparison?groupBy=template`), 'groupBy', /^must be kind, person, routing, order or month$/)
     expectFieldError(await owner.get(`/api/insights/comparison?from=2030-02-30`), 'from')
   })
 
   it('when a table is asked for as CSV, then it comes as an attachment with RFC 4180 quoting and the same figures', async () => {
-    const r = await owner.get(`/api/insights/comparison?groupBy=order&templateId=${templateId}&format=csv`)
+    const r = await owner.get(`/api/insights/comparison?groupBy=order&routingId=${routingId}&format=csv`)
     expect(r.status).toBe(200)
     expect(r.headers['content-type']).toMatch(/^text\/csv/)
     expect(r.headers['content-disposition']).toBe('attachment; filename="estimates-by-order.csv"')
@@ -191,29 +193,29 @@ describe('estimated against actual hours', () => {
       ['person', 'person', `Ines Harrowby,2,3,3.17,0.17,5.6,over,26.7,${person.Ines}`],
       // Setting over both orders is Ines's work: the same figures under the kind's name.
       ['kind', 'kind', `Stone setting,2,3,3.17,0.17,5.6,over,26.7,${kinds.setting}`],
-      ['template', 'routing', `Fixture: set and polish,4,4,4.07,0.07,1.7,over,19.6,${templateId}`],
+      ['routing', 'routing', `Fixture: set and polish,4,4,4.07,0.07,1.7,over,19.6,${routingId}`],
     ]
     for (const [groupBy, first, line] of cases) {
-      const lines = (await owner.get(`/api/insights/comparison?groupBy=${groupBy}&templateId=${templateId}&format=csv`)).text.split('\r\n')
+      const lines = (await owner.get(`/api/insights/comparison?groupBy=${groupBy}&routingId=${routingId}&format=csv`)).text.split('\r\n')
       expect(lines[0], groupBy).toBe(`${first},operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,${first}_id`)
       expect(lines, groupBy).toContain(line)
     }
     // A month is its own name: no id column.
-    const months = (await owner.get(`/api/insights/comparison?groupBy=month&templateId=${templateId}&format=csv`)).text.split('\r\n')
+    const months = (await owner.get(`/api/insights/comparison?groupBy=month&routingId=${routingId}&format=csv`)).text.split('\r\n')
     expect(months[0]).toBe('month,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct')
     expect(months[1]!.startsWith('2030-03,2,')).toBe(true)
   })
 
   it('when a label holds a comma, a quote or starts like a formula, then the CSV cell is quoted and defused', async () => {
     await t.db.update(s.orders).set({ title: '=Ring, "pear" cut' }).where(eq(s.orders.id, orderIds[1]!))
-    const r = await owner.get(`/api/insights/comparison?groupBy=order&templateId=${templateId}&format=csv`)
+    const r = await owner.get(`/api/insights/comparison?groupBy=order&routingId=${routingId}&format=csv`)
     // RFC 4180 §2: fields with commas or quotes are enclosed in quotes and quotes doubled; the leading ' keeps spreadsheets from running it (OWASP CSV injection).
     expect(r.text).toContain(`\r\n"${orderNumbers[1]} =Ring, ""pear"" cut",2,2.5,2.17,`)
     await t.db.update(s.orders).set({ title: 'Fixture order B' }).where(eq(s.orders.id, orderIds[1]!))
   })
 
   it('when a row is drilled into, then its operations come with their time records, the voided one marked', async () => {
-    const r = await owner.get(`/api/insights/records?groupBy=kind&key=${kinds.polishing}&templateId=${templateId}`)
+    const r = await owner.get(`/api/insights/records?groupBy=kind&key=${kinds.polishing}&routingId=${routingId}`)
     expect(r.status).toBe(200)
     expect(r.body.label).toBe('Polishing')
     const b = r.body.operations.find((o: { orderNumber: string }) => o.orderNumber === orderNumbers[1])
@@ -223,7 +225,7 @@ describe('estimated against actual hours', () => {
       [10, false],
       [0, true],
     ])
-    const csv = await owner.get(`/api/insights/records?groupBy=kind&key=${kinds.polishing}&templateId=${templateId}&format=csv`)
+    const csv = await owner.get(`/api/insights/records?groupBy=kind&key=${kinds.polishing}&routingId=${routingId}&format=csv`)
     expect(csv.headers['content-disposition']).toMatch(/^attachment; filename="time-records-kind-\d+\.csv"$/)
     expect(csv.text.split('\r\n').filter(Boolean)).toHaveLength(1 + 4)
     // Names first, ids last: the order's number, then job bag, piece and step; the operation's and record's ids at the end.
@@ -231,11 +233,11 @@ describe('estimated against actual hours', () => {
     expect(head!.startsWith('order,job_bag,piece,step,kind,person,')).toBe(true)
     expect(head!.endsWith(',operation_id,time_record_id')).toBe(true)
     expect(orderNumbers).toContain(first!.split(',')[0])
-    expectCleanError(await owner.get(`/api/insights/records?groupBy=kind&key=999999&templateId=${templateId}`), 404)
+    expectCleanError(await owner.get(`/api/insights/records?groupBy=kind&key=999999&routingId=${routingId}`), 404)
   })
 
   it('when the chart data is asked for, then the scatter has one point per operation and the trend one cell per kind and month', async () => {
-    const s = await owner.get(`/api/insights/scatter?templateId=${templateId}`)
+    const s = await owner.get(`/api/insights/scatter?routingId=${routingId}`)
     expect(s.body.map((p: { estimateMinutes: number; actualMinutes: number }) => [p.estimateMinutes, p.actualMinutes]).sort()).toEqual(
       [
         [120, 100],
@@ -244,7 +246,7 @@ describe('estimated against actual hours', () => {
         [60, 90],
       ].sort(),
     )
-    const trend = await owner.get(`/api/insights/bias-trend?templateId=${templateId}`)
+    const trend = await owner.get(`/api/insights/bias-trend?routingId=${routingId}`)
     expect(trend.body.months).toEqual(['2030-03', '2030-04'])
     const setting = trend.body.series.find((x: { kindId: number }) => x.kindId === kinds.setting)
     // March: 60 → 90 = +50 %; April: 120 → 100 = −16.7 %.
@@ -254,7 +256,7 @@ describe('estimated against actual hours', () => {
 
 describe('job costing', () => {
   it('when orders are complete, then labour and outside work give the margins at estimate and at actual', async () => {
-    const r = await owner.get(`/api/insights/costing?templateId=${templateId}`)
+    const r = await owner.get(`/api/insights/costing?routingId=${routingId}`)
     expect(r.status).toBe(200)
     const rows = Object.fromEntries(r.body.rows.map((x: { orderId: number }) => [x.orderId, x]))
     // Hand-computed in pence with the seeded rates (Ines 3,800, Ruth 2,600, Theo 1,800 p an hour), each line rounded once:
@@ -299,13 +301,13 @@ describe('job costing', () => {
       marginAtEstimateMinor: 65_650,
       marginAtActualMinor: 65_077,
     })
-    const csv = await owner.get(`/api/insights/costing?templateId=${templateId}&format=csv`)
+    const csv = await owner.get(`/api/insights/costing?routingId=${routingId}&format=csv`)
     expect(csv.headers['content-disposition']).toBe('attachment; filename="job-costing.csv"')
     expect(csv.text).toContain(`${orderNumbers[0]},Fixture order A,`)
   })
 
   it('when a margin is shown, then it says beside it only what it could not count, in the answer and in the CSV', async () => {
-    const r = await owner.get(`/api/insights/costing?templateId=${templateId}`)
+    const r = await owner.get(`/api/insights/costing?routingId=${routingId}`)
     // Both fixture pieces are silver with no metal weight given and nothing weighed, six stones with no stone list and no cost each;
     // their hallmark is costed (2.50 per unit on the routing step, set above), so outside work is not missing.
     for (const row of r.body.rows) {
@@ -322,7 +324,7 @@ describe('job costing', () => {
     }
     expect(r.body.total).toMatchObject({ outsideSteps: 2, outsideUncosted: 0, caveatAtActual: 'on some orders: no metal weighed yet; stone costs not entered' })
     expect(r.body.note).toMatch(/^Cost = metal \(net weight in the piece plus loss/)
-    const lines = (await owner.get(`/api/insights/costing?templateId=${templateId}&format=csv`)).text.split('\r\n')
+    const lines = (await owner.get(`/api/insights/costing?routingId=${routingId}&format=csv`)).text.split('\r\n')
     expect(lines[0]).toBe(
       'order,title,customer,finished_on,price_quoted,estimate_hours,actual_hours,' +
         'metal_at_estimate,stones_at_estimate,outside_at_estimate,labour_at_estimate,cost_at_estimate,margin_at_estimate,margin_pct_at_estimate,not_counted_at_estimate,' +
@@ -378,12 +380,12 @@ describe('job costing', () => {
 
   it('when an outside cost is not a number or negative, then the field is named', async () => {
     expectFieldError(
-      await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: -1 }),
+      await owner.put(`/api/insights/routings/${routingId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: -1 }),
       'outsideCostMinor',
       /negative/,
     )
     expectFieldError(
-      await owner.put(`/api/insights/routings/${templateId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 2.5 }),
+      await owner.put(`/api/insights/routings/${routingId}/outside-cost`, { stepKey: 'hallmark', outsideCostMinor: 2.5 }),
       'outsideCostMinor',
       /whole minor units/,
     )
@@ -395,7 +397,7 @@ describe('learning from actual times', () => {
   it('when history is thin (n < 5), then no figure is suggested and a three-point estimate gives the PERT mean and variance', async () => {
     const r = await owner.get('/api/estimates/learned')
     expect(r.status).toBe(200)
-    const set = r.body.steps.find((s: { templateId: number; stepKey: string }) => s.templateId === templateId && s.stepKey === 'set')
+    const set = r.body.steps.find((s: { routingId: number; stepKey: string }) => s.routingId === routingId && s.stepKey === 'set')
     expect(set).toMatchObject({ thin: true, suggested: null, history: { n: 2, from: '2030-03-10', to: '2030-04-02' } })
     // PERT (Malcolm et al. 1959, restated EJOR 2011): a=2, m=4, b=12 → 5 and 2.778.
     const p = await manager.post('/api/estimates/three-point', { optimistic: 2, mostLikely: 4, pessimistic: 12 })
@@ -440,7 +442,7 @@ describe('learning from actual times', () => {
       const day = `2030-06-${String(3 + i).padStart(2, '0')}`
       await finish(ops.saw!, 20, at(day, '10:00'), [{ person: 'Priya', start: at(day, '09:36'), minutes: 24 }])
     }
-    const s = (await owner.get('/api/estimates/learned')).body.steps.find((x: { templateId: number }) => x.templateId === routing.body.id)
+    const s = (await owner.get('/api/estimates/learned')).body.steps.find((x: { routingId: number }) => x.routingId === routing.body.id)
     // Every job took 24 min against the model's 20: actual ÷ routing = 1.2 (against the base alone it would read 2.4 and suggest +140 %).
     expect(s).toMatchObject({ thin: false, unfitted: true, suggested: null, history: { n: 5, spread: { q1: 1.2, median: 1.2, q3: 1.2 } } })
   })
@@ -472,7 +474,7 @@ describe('learning from actual times', () => {
       ])
     }
     const r = await owner.get('/api/estimates/learned')
-    const s = r.body.steps.find((x: { templateId: number }) => x.templateId === routing.body.id)
+    const s = r.body.steps.find((x: { routingId: number }) => x.routingId === routing.body.id)
     expect(s.thin).toBe(false)
     expect(s.history.n).toBe(20)
     // Theil–Sen (Sen 1968) ignores the two wild points; least squares would have put the rate near 8 (see tests/shared/estimate.test.ts).
@@ -483,21 +485,21 @@ describe('learning from actual times', () => {
     // The owner accepts: the step's minutes change, the routing version goes up, the change is kept with who, when and its basis.
     const before = (await owner.get(`/api/routings/${routing.body.id}`)).body
     const acc = await owner.post('/api/estimates/accept', {
-      templateId: routing.body.id,
+      routingId: routing.body.id,
       stepKey: 'set',
       baseMinutes: s.suggested.baseMinutes,
       perStoneMinutes: s.suggested.perStoneMinutes,
-      templateVersion: before.version,
+      routingVersion: before.version,
       reason: 'learned from 20 jobs',
     })
     expect(acc.status).toBe(200)
     expect(acc.body).toMatchObject({
-      templateId: routing.body.id,
+      routingId: routing.body.id,
       stepKey: 'set',
       stepName: 'Set pavé',
       from: { baseMinutes: 10, perStoneMinutes: 4 },
       to: { baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes },
-      templateVersion: before.version + 1,
+      routingVersion: before.version + 1,
       acceptedBy: 'Margit Saale',
       basis: { n: 20, method: 'theil-sen' },
     })
@@ -512,21 +514,21 @@ describe('learning from actual times', () => {
     // Accepting against the old version again: someone changed the routing since → 409.
     expectCleanError(
       await owner.post('/api/estimates/accept', {
-        templateId: routing.body.id,
+        routingId: routing.body.id,
         stepKey: 'set',
         baseMinutes: 20,
         perStoneMinutes: 6,
-        templateVersion: before.version,
+        routingVersion: before.version,
       }),
       409,
     )
     expectFieldError(
       await owner.post('/api/estimates/accept', {
-        templateId: routing.body.id,
+        routingId: routing.body.id,
         stepKey: 'nope',
         baseMinutes: 20,
         perStoneMinutes: 6,
-        templateVersion: after.version,
+        routingVersion: after.version,
       }),
       'stepKey',
     )
@@ -548,10 +550,10 @@ describe('access', () => {
         const r = await a.get(path)
         expectCleanError(r, 403)
       }
-      expectCleanError(await a.post('/api/estimates/accept', { templateId, stepKey: 'set', baseMinutes: 1, perStoneMinutes: 1, templateVersion: 0 }), 403)
+      expectCleanError(await a.post('/api/estimates/accept', { routingId, stepKey: 'set', baseMinutes: 1, perStoneMinutes: 1, routingVersion: 0 }), 403)
     }
     for (const a of [bench, sales]) expectCleanError(await a.get('/api/insights/kind-accuracy'), 403)
-    const m = await manager.get(`/api/insights/kind-accuracy?templateId=${templateId}`)
+    const m = await manager.get(`/api/insights/kind-accuracy?routingId=${routingId}`)
     expect(m.status).toBe(200)
     expect(m.body.total).toMatchObject({ n: 4, estimateHours: 4, actualHours: 4.07 })
   })
@@ -565,10 +567,10 @@ describe('outside work costs', () => {
     const hallmark = list.body.find((r: { stepName: string }) => /Hallmark/.test(r.stepName))
     // The demo charges 2.80 (280 p) per piece at the assay office (server/db/seed-costing.ts).
     expect(hallmark).toMatchObject({ leadDays: expect.any(Number), outsideCostMinor: 280, currency: 'GBP' })
-    const put = await owner.put(`/api/insights/routings/${hallmark.templateId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCostMinor: 1250 })
+    const put = await owner.put(`/api/insights/routings/${hallmark.routingId}/outside-cost`, { stepKey: hallmark.stepKey, outsideCostMinor: 1250 })
     expect(put.status).toBe(200)
     const again = (await owner.get('/api/insights/outside-costs')).body.find(
-      (r: { templateId: number; stepKey: string }) => r.templateId === hallmark.templateId && r.stepKey === hallmark.stepKey,
+      (r: { routingId: number; stepKey: string }) => r.routingId === hallmark.routingId && r.stepKey === hallmark.stepKey,
     )
     expect(again.outsideCostMinor).toBe(1250)
     const manager = await signedIn(t.app, 'manager')

@@ -171,7 +171,7 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
     for (const { s, outside: isOutside } of steps.filter((x) => x.s.routingId === t.id)) {
       if (isOutside || s.leadDays > 0) {
         outsideSteps++
-        const perUnit = costs.find((c) => c.stepKey === s.key)?.outsideCostMinor ?? null
+        const perUnit = costs.find((c) => c.routingId === t.id && c.stepKey === s.key)?.outsideCostMinor ?? null
         if (perUnit === null) uncosted++
         else outside += perUnit * p.params.quantity
         continue

@@ -199,10 +199,15 @@ describe('mail failures', () => {
       expect(mail!.status).toBe('queued')
       expect(mail!.error).toMatch(/ECONNREFUSED|connect/i)
       expect(mail!.sentAt).toBeNull()
-      // Raw SQL on purpose: pg-boss's own table, not part of our schema.
-      const {
-        rows: [job],
-      } = await broken.pool.query(`select state, retry_count from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1`, [String(mail!.id)])
+      // Raw SQL on purpose: pg-boss's own table, not part of our schema. The error is written while the job is still running, and
+      // the queue marks it for retry just after the handler fails: wait for that, as a user would wait for the next try.
+      const jobOf = async () =>
+        (await broken.pool.query(`select state, retry_count from pgboss.job where name = 'mail-send' and data->>'outboxId' = $1`, [String(mail!.id)])).rows[0]
+      let job = await jobOf()
+      for (const t0 = Date.now(); job?.state === 'active' && Date.now() - t0 < 20_000;) {
+        await new Promise((r) => setTimeout(r, 100))
+        job = await jobOf()
+      }
       expect(job).toMatchObject({ state: 'retry' })
     } finally {
       await broken.close()

@@ -1,10 +1,11 @@
 // Uploaded files (sketches, references, progress photos) of orders and job bags.
 import { index, integer, pgTable, text } from 'drizzle-orm/pg-core'
+import { FILE_KINDS } from '../../../shared/schemas/file'
 import { createdAt, pk } from './common'
 import { jobBags, orders } from './work'
 import { users, workshops } from './workshop'
 
-export const FILE_KINDS = ['sketch', 'reference', 'progress'] as const
+export { FILE_KINDS }
 export type FileKind = (typeof FILE_KINDS)[number]
 
 /** An uploaded image or PDF, stored under a generated name; exactly one of orderId / jobBagId is set. */

@@ -1,10 +1,11 @@
 // E-mail outbox: every message the workshop sends, with its delivery state.
 import { index, integer, jsonb, pgTable, text } from 'drizzle-orm/pg-core'
+import { OUTBOX_STATUSES } from '../../../shared/schemas/mail'
 import { createdAt, pk, instant } from './common'
 import { orders } from './work'
 import { workshops } from './workshop'
 
-export const OUTBOX_STATUSES = ['queued', 'sent', 'delivered', 'failed'] as const
+export { OUTBOX_STATUSES }
 export type OutboxStatus = (typeof OUTBOX_STATUSES)[number]
 
 /** One row per message: written before sending (queued), then sent / delivered (local test mailbox) / failed with the error. */

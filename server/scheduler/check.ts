@@ -204,10 +204,18 @@ export function checkProblem(problem: Problem): void {
       }
     }
   }
+  // The joint working time of a bench and a person, worked out once per pair (many steps share a pair).
+  const jointTime = new Map<string, Interval[]>()
   const windowsOf = (benchId: string | null, personId: string | null): Interval[] => {
-    const b = benchId !== null ? benches.get(benchId)!.available : null
-    const p = personId !== null ? people.get(personId)!.available : null
-    return b && p ? intersect(b, p) : (b ?? p ?? [{ start: -1e15, end: 1e15 }])
+    const key = `${benchId ?? ''}\u0000${personId ?? ''}`
+    let w = jointTime.get(key)
+    if (!w) {
+      const b = benchId !== null ? benches.get(benchId)!.available : null
+      const p = personId !== null ? people.get(personId)!.available : null
+      w = b && p ? intersect(b, p) : (b ?? p ?? [{ start: -1e15, end: 1e15 }])
+      jointTime.set(key, w)
+    }
+    return w
   }
   for (const op of order) {
     if (op.done) {

@@ -166,6 +166,21 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     suffix = new Int32Array(n)
   const lastOps: number[] = []
   for (let i = 0; i < n; i++) if (jobSucc[i]! < 0) lastOps.push(i)
+  /** The head of x from its job and machine predecessors' heads (and its release). */
+  const headOf = (x: number): number => {
+    let rx = rel[x]!
+    const jp = jobPred[x]!,
+      mp = mPred[x]!
+    if (jp >= 0) {
+      const e = r[jp]! + p[jp]!
+      if (e > rx) rx = e
+    }
+    if (mp >= 0) {
+      const e = r[mp]! + p[mp]!
+      if (e > rx) rx = e
+    }
+    return rx
+  }
   /**
    * Heads after a move that changed the in-arcs of operations from position `from` of the current order on: the operations
    * before it keep their heads and places; the rest are re-ordered by Kahn's rule among themselves. False on a cycle (the order
@@ -187,18 +202,7 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
     let qh = from
     while (qh < qt) {
       const x = topo[qh++]!
-      let rx = rel[x]!
-      const jp = jobPred[x]!,
-        mp = mPred[x]!
-      if (jp >= 0) {
-        const e = r[jp]! + p[jp]!
-        if (e > rx) rx = e
-      }
-      if (mp >= 0) {
-        const e = r[mp]! + p[mp]!
-        if (e > rx) rx = e
-      }
-      r[x] = rx
+      r[x] = headOf(x)
       const js = jobSucc[x]!,
         ms = mSucc[x]!
       if (js >= 0) {
@@ -240,18 +244,7 @@ export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): Sho
   const retimeFrom = (from: number): void => {
     for (let k = from; k < n; k++) {
       const x = topo[k]!
-      let rx = rel[x]!
-      const jp = jobPred[x]!,
-        mp = mPred[x]!
-      if (jp >= 0) {
-        const e = r[jp]! + p[jp]!
-        if (e > rx) rx = e
-      }
-      if (mp >= 0) {
-        const e = r[mp]! + p[mp]!
-        if (e > rx) rx = e
-      }
-      r[x] = rx
+      r[x] = headOf(x)
     }
   }
   /** Tails of the operations up to position `upTo` of the order (those after it cannot reach a changed arc); returns the makespan. */

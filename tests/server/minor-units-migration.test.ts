@@ -1,33 +1,18 @@
 // The migration that moved stored amounts from reals in major units to integer minor units, run on a database holding the old
 // columns: each amount converted by its workshop currency's ISO 4217 minor unit, read exactly from the stored float, the reals dropped.
-import { readFileSync } from 'node:fs'
-import { join } from 'node:path'
-import { randomBytes } from 'node:crypto'
 import pg from 'pg'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { migrationsFolder } from '../../server/db/migrate'
+import { databaseBefore, type BeforeMigration } from '../setup/migrations'
 
 // Raw SQL throughout on purpose: the rows are written in the columns as they stood before the migration under test, which the schema no longer has.
-const port = process.env.TEST_PG_PORT
-const name = `m_${randomBytes(6).toString('hex')}`
-const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/postgres` })
-let db: pg.Client
-const journal = JSON.parse(readFileSync(join(migrationsFolder, 'meta/_journal.json'), 'utf8')) as { entries: { idx: number; tag: string }[] }
 const TARGET = '0012_materials-in-minor-units'
-async function apply(tag: string) {
-  for (const stmt of readFileSync(join(migrationsFolder, `${tag}.sql`), 'utf8').split('--> statement-breakpoint')) if (stmt.trim()) await db.query(stmt)
-}
+let m: BeforeMigration
+let db: pg.Client
 
 beforeAll(async () => {
-  const a = admin()
-  await a.connect()
-  await a.query(`create database ${name}`)
-  await a.end()
-  db = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/${name}` })
-  await db.connect()
   // The schema as it stood before: every migration up to the one under test.
-  const upTo = journal.entries.find((e) => e.tag === TARGET)!.idx
-  for (const e of journal.entries.filter((x) => x.idx < upTo)) await apply(e.tag)
+  m = await databaseBefore(TARGET)
+  db = m.db
   const week = JSON.stringify([{ weekday: 1, start: '09:00', end: '17:00' }])
   // Three workshops: pounds (2 decimals), yen (0) and Bahraini dinars (3), ISO 4217.
   for (const [i, currency] of [
@@ -76,14 +61,10 @@ beforeAll(async () => {
     )
   }
   await db.query(`insert into operation_costs (operation_id, outside_cost) values (1, 0.1), (2, 500), (3, 2.5)`)
-  await apply(TARGET)
+  await m.runTarget()
 })
 afterAll(async () => {
-  await db?.end()
-  const a = admin()
-  await a.connect()
-  await a.query(`drop database if exists ${name} with (force)`)
-  await a.end()
+  await m?.close()
 })
 
 describe('amounts to minor units', () => {

@@ -1,39 +1,24 @@
 // The migration that renames stored values from "template" to "routing" (estimate sources, the routings' audit entity, the routing
 // key in quote details), run on a database holding rows written with the old values: they read back with the new ones.
-import { readFileSync } from 'node:fs'
-import { join } from 'node:path'
-import { randomBytes } from 'node:crypto'
 import { eq } from 'drizzle-orm'
 import { drizzle } from 'drizzle-orm/node-postgres'
 import pg from 'pg'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { migrationsFolder } from '../../server/db/migrate'
+import { databaseBefore, type BeforeMigration } from '../setup/migrations'
 import * as s from '../../server/db/schema/index'
 import { quoteOrderInput } from '../../server/services/quote-order'
 
 // Raw SQL for the writes on purpose: the rows hold the values as they were stored before the migration under test, which the
 // schema's types no longer allow.
-const port = process.env.TEST_PG_PORT
-const name = `m_${randomBytes(6).toString('hex')}`
-const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/postgres` })
-let db: pg.Client
-const journal = JSON.parse(readFileSync(join(migrationsFolder, 'meta/_journal.json'), 'utf8')) as { entries: { idx: number; tag: string }[] }
 const TARGET = '0015_routing-stored-values'
-const target = journal.entries.find((e) => e.tag === TARGET)!
-async function apply(tag: string) {
-  for (const stmt of readFileSync(join(migrationsFolder, `${tag}.sql`), 'utf8').split('--> statement-breakpoint')) if (stmt.trim()) await db.query(stmt)
-}
+let m: BeforeMigration
+let db: pg.Client
 const rows = async (sql: string) => (await db.query(sql)).rows
 
 beforeAll(async () => {
-  const a = admin()
-  await a.connect()
-  await a.query(`create database ${name}`)
-  await a.end()
-  db = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/${name}` })
-  await db.connect()
   // The schema as it stood before: every migration up to the one under test.
-  for (const e of journal.entries.filter((x) => x.idx < target.idx)) await apply(e.tag)
+  m = await databaseBefore(TARGET)
+  db = m.db
   await db.query(`insert into workshops (id, name, week_pattern) overriding system value values (1, 'W', '[]'::jsonb)`)
   await db.query(
     `insert into users (id, workshop_id, email, name, role, password_hash) overriding system value values (1, 1, 'o@example.test', 'O', 'owner', 'x')`,
@@ -63,14 +48,10 @@ beforeAll(async () => {
     overriding system value values
     (1, 1, 'Q-1', 1, 'Signet', '{"templateId": 7, "piece": "Signet", "params": {"quantity": 2}, "priority": 2}'::jsonb, 'GBP', 50000, 10000, '2030-02-01'),
     (2, 1, 'Q-2', 1, 'Chain', '{"piece": "Chain"}'::jsonb, 'GBP', 8000, 0, '2030-02-01')`)
-  await apply(TARGET)
+  await m.runTarget()
 })
 afterAll(async () => {
-  await db?.end()
-  const a = admin()
-  await a.connect()
-  await a.query(`drop database if exists ${name} with (force)`)
-  await a.end()
+  await m?.close()
 })
 
 describe('stored values say routing', () => {

@@ -2,34 +2,22 @@
 // holding routings, steps, accepted changes, outside costs and job bags under the old names: every row is still there afterwards.
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
-import { randomBytes } from 'node:crypto'
 import pg from 'pg'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { migrationsFolder } from '../../server/db/migrate'
+import { databaseBefore, type BeforeMigration } from '../setup/migrations'
 
 // Raw SQL throughout on purpose: the rows are written under the table and column names as they stood before the migration under test,
 // and the database's own catalogue is read after it.
-const port = process.env.TEST_PG_PORT
-const name = `m_${randomBytes(6).toString('hex')}`
-const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/postgres` })
-let db: pg.Client
-const journal = JSON.parse(readFileSync(join(migrationsFolder, 'meta/_journal.json'), 'utf8')) as { entries: { idx: number; tag: string }[] }
 const TARGET = '0014_routings-named-routings'
-const target = journal.entries.find((e) => e.tag === TARGET)!
-async function apply(tag: string) {
-  for (const stmt of readFileSync(join(migrationsFolder, `${tag}.sql`), 'utf8').split('--> statement-breakpoint')) if (stmt.trim()) await db.query(stmt)
-}
+let m: BeforeMigration
+let db: pg.Client
 const rows = async (sql: string) => (await db.query(sql)).rows
 
 beforeAll(async () => {
-  const a = admin()
-  await a.connect()
-  await a.query(`create database ${name}`)
-  await a.end()
-  db = new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${port}/${name}` })
-  await db.connect()
   // The schema as it stood before: every migration up to the one under test.
-  for (const e of journal.entries.filter((x) => x.idx < target.idx)) await apply(e.tag)
+  m = await databaseBefore(TARGET)
+  db = m.db
   await db.query(`insert into workshops (id, name, week_pattern) overriding system value values (1, 'W', '[]'::jsonb)`)
   await db.query(
     `insert into users (id, workshop_id, email, name, role, password_hash) overriding system value values (1, 1, 'o@example.test', 'O', 'owner', 'x')`,
@@ -51,14 +39,10 @@ beforeAll(async () => {
   await db.query(`insert into template_step_costs (template_id, step_key, outside_cost_minor) values (1, 'cast', 1800), (7, 'polish', null)`)
   await db.query(`insert into job_bags (id, workshop_id, order_id, number, piece, template_id, params) overriding system value values
     (1, 1, 1, 'B-1', 'Ring', 1, '{}'::jsonb), (2, 1, 1, 'B-2', 'Chain', 7, '{}'::jsonb)`)
-  await apply(TARGET)
+  await m.runTarget()
 })
 afterAll(async () => {
-  await db?.end()
-  const a = admin()
-  await a.connect()
-  await a.query(`drop database if exists ${name} with (force)`)
-  await a.end()
+  await m?.close()
 })
 
 describe('routings under their own name', () => {

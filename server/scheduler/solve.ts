@@ -138,6 +138,44 @@ function asShop(c: Compiled): ShopInstance | null {
   return { n, m: p.benches.length, jobs: p.jobs.length, jobPred, jobSucc, optStart, optMachine: Int32Array.from(machines), optDur: Int32Array.from(durs) }
 }
 
+/** A core's timed schedule as a decode: each job's completion, the makespan and the weighted tardiness from the ends. */
+function decodedOf(
+  c: Compiled,
+  start: Float64Array,
+  end: Float64Array,
+  option: Int32Array,
+  segments: Decoded['segments'],
+  why: Uint8Array,
+  blocker: Int32Array,
+): Decoded {
+  let makespan = 0
+  const completion = new Float64Array(c.jobs.length).fill(-Infinity)
+  for (let i = 0; i < c.n; i++) {
+    makespan = Math.max(makespan, end[i]!)
+    const j = c.jobOf[i]!
+    completion[j] = Math.max(completion[j]!, end[i]!)
+  }
+  let weightedTardiness = 0
+  c.jobs.forEach((job, j) => {
+    if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
+  })
+  return {
+    start,
+    end,
+    option,
+    segments,
+    why,
+    blocker,
+    overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1,
+    brokenPins: 0,
+    completion,
+    weightedTardiness,
+    makespan,
+    moves: 0,
+    shifted: 0,
+  }
+}
+
 /** Turns the core's machine and start arrays into a decode (times shifted to start at now), with start reasons. */
 function fromShop(c: Compiled, machine: Int32Array, start0: Int32Array, duration: Int32Array): Decoded {
   const n = c.n,
@@ -161,8 +199,6 @@ function fromShop(c: Compiled, machine: Int32Array, start0: Int32Array, duration
     list.sort((a, b) => start[a]! - start[b]!)
     for (let k = 1; k < list.length; k++) machinePred[list[k]!] = list[k - 1]!
   }
-  let makespan = 0
-  const completion = new Float64Array(c.jobs.length).fill(-Infinity)
   for (let i = 0; i < n; i++) {
     const jp = c.preds[i]![0]
     const mp = machinePred[i]!
@@ -174,25 +210,8 @@ function fromShop(c: Compiled, machine: Int32Array, start0: Int32Array, duration
       why[i] = Why.Bench
       blocker[i] = mp
     } else why[i] = Why.WorkingTime
-    makespan = Math.max(makespan, end[i]!)
-    const j = c.jobOf[i]!
-    completion[j] = Math.max(completion[j]!, end[i]!)
   }
-  return {
-    start,
-    end,
-    option,
-    segments,
-    why,
-    blocker,
-    overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1,
-    brokenPins: 0,
-    completion,
-    weightedTardiness: 0,
-    makespan,
-    moves: 0,
-    shifted: 0,
-  }
+  return decodedOf(c, start, end, option, segments, why, blocker)
 }
 
 /**
@@ -291,8 +310,6 @@ function fromPair(c: Compiled, opt: Int32Array, start0: Int32Array, end0: Int32A
       ops.sort((a, b) => start[a]! - start[b]!)
       for (let q = 1; q < ops.length; q++) into[ops[q]!] = ops[q - 1]!
     }
-  let makespan = 0
-  const completion = new Float64Array(c.jobs.length).fill(-Infinity)
   for (let i = 0; i < n; i++) {
     const jp = c.preds[i]![0]
     if (jp !== undefined && end[jp] === start[i]) {
@@ -306,27 +323,6 @@ function fromPair(c: Compiled, opt: Int32Array, start0: Int32Array, end0: Int32A
       blocker[i] = personPred[i]!
     } else if (start[i] === now) why[i] = Why.Now
     else why[i] = Why.Release
-    makespan = Math.max(makespan, end[i]!)
-    const j = c.jobOf[i]!
-    completion[j] = Math.max(completion[j]!, end[i]!)
   }
-  let weightedTardiness = 0
-  c.jobs.forEach((job, j) => {
-    if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
-  })
-  return {
-    start,
-    end,
-    option,
-    segments,
-    why,
-    blocker,
-    overflow: end.some((e) => e > c.problem.horizon) ? 0 : -1,
-    brokenPins: 0,
-    completion,
-    weightedTardiness,
-    makespan,
-    moves: 0,
-    shifted: 0,
-  }
+  return decodedOf(c, start, end, option, segments, why, blocker)
 }

@@ -77,6 +77,11 @@ export interface PairSettings {
   verifyOrder?: boolean
   /** Skip the dispatching rules when an initial schedule is given (they are slow on calendars). */
   initialOnly?: boolean
+  /**
+   * The dispatching rules that build starting schedules (default: all; for weighted tardiness 0 weighted slack, 1 modified due
+   * date, 2 apparent tardiness cost, 3 due date with noise).
+   */
+  startRules?: number[]
 }
 
 export interface PairSolution {
@@ -222,9 +227,28 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const pos = new Int32Array(n),
     topoCur = new Int32Array(n),
     prefMax = new Int32Array(n + 1)
-  let touched = n
+  let touched = n,
+    touchedHi = -1
+  // Steps whose in-arcs or option the move under evaluation changed carry the current stamp; a candidate re-times a step only
+  // when it carries it (its own arcs changed, or a predecessor's end did), and keeps the current times of the others.
+  const dirty = new Uint32Array(n),
+    touchedList = new Int32Array(n)
+  let stamp = 1,
+    nTouched = 0
   const touch = (x: number): void => {
-    if (x >= 0 && pos[x]! < touched) touched = pos[x]!
+    if (x < 0) return
+    if (dirty[x] !== stamp) touchedList[nTouched++] = x
+    dirty[x] = stamp
+    const k = pos[x]!
+    if (k < touched) touched = k
+    if (k > touchedHi) touchedHi = k
+  }
+  /** Starts a candidate: nothing touched yet. */
+  const beginMove = (): void => {
+    touched = n
+    touchedHi = -1
+    nTouched = 0
+    stamp++
   }
   const unlink = (t: number, x: number): void => {
     const k = res[t]![x]!
@@ -245,6 +269,8 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     const b = a >= 0 ? succ[t]![a]! : head[t]![k]!
     touch(x)
     touch(b)
+    // Its new predecessor keeps its times but must be in the stretch of the order a candidate puts in Kahn's order.
+    if (a >= 0 && pos[a]! > touchedHi) touchedHi = pos[a]!
     pred[t]![x] = a
     succ[t]![x] = b
     if (a >= 0) succ[t]![a] = x
@@ -324,8 +350,104 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     en[x] = ex
     return ex
   }
+  // A candidate writes its times into the Tmp arrays, which otherwise equal the current ones: the steps it wrote are listed and
+  // put back before the next candidate (all of them after the current schedule itself was re-timed).
+  const written = new Int32Array(n)
+  let nWritten = 0,
+    tmpAll = true
+  const restoreTmp = (): void => {
+    if (tmpAll) {
+      rTmp.set(rCur)
+      eTmp.set(eCur)
+      yTmp.set(yCur)
+      tmpAll = false
+    } else
+      for (let k = 0; k < nWritten; k++) {
+        const x = written[k]!
+        rTmp[x] = rCur[x]!
+        eTmp[x] = eCur[x]!
+        yTmp[x] = yCur[x]!
+      }
+    nWritten = 0
+  }
+  // Steps past the part of the order a candidate re-times in full wait in a heap by order position once a predecessor's end moved.
+  const queued = new Uint32Array(n),
+    heap = new Int32Array(n)
+  let heapN = 0,
+    segHi = n
+  const push = (x: number): void => {
+    if (queued[x] === stamp) return
+    queued[x] = stamp
+    const px = pos[x]!
+    let i = heapN++
+    while (i > 0) {
+      const up = (i - 1) >> 1
+      const y = heap[up]!
+      if (pos[y]! <= px) break
+      heap[i] = y
+      i = up
+    }
+    heap[i] = x
+  }
+  const pop = (): number => {
+    const top = heap[0]!
+    const x = heap[--heapN]!
+    const px = pos[x]!
+    let i = 0
+    for (;;) {
+      let c = 2 * i + 1
+      if (c >= heapN) break
+      if (c + 1 < heapN && pos[heap[c + 1]!]! < pos[heap[c]!]!) c++
+      if (pos[heap[c]!]! >= px) break
+      heap[i] = heap[c]!
+      i = c
+    }
+    heap[i] = x
+    return top
+  }
+  const mark = (z: number): void => {
+    dirty[z] = stamp
+    if (pos[z]! > segHi) push(z)
+  }
+  /** Re-times step x for a candidate when it carries the stamp, and passes the stamp on to its successors when its end moved. */
+  const retime = (x: number, r: Int32Array, en: Int32Array, y: Int32Array): number => {
+    if (skipClean && dirty[x] !== stamp) return en[x]!
+    const old = en[x]!
+    const ex = place(x, r, en, y)
+    written[nWritten++] = x
+    if (ex !== old) {
+      const js = jobSucc[x]!,
+        ms = succ[M]![x]!,
+        ws = succ[W]![x]!
+      if (js >= 0) mark(js)
+      if (ms >= 0) mark(ms)
+      if (ws >= 0) mark(ws)
+      for (let q = xss[x]!; q < xss[x + 1]!; q++) mark(xs[q]!)
+    }
+    return ex
+  }
+  /** The steps after the fully re-timed part whose predecessors' ends moved, in order. */
+  const drain = (): void => {
+    while (heapN > 0) {
+      if (heapN > heapLimit) {
+        // A wide ripple: a pass over the rest of the order is cheaper than the heap.
+        const k0 = pos[heap[0]!]!
+        heapN = 0
+        segHi = n
+        for (let k = k0; k < n; k++) {
+          const x = topoCur[k]!
+          if (dirty[x] === stamp) retime(x, rTmp, eTmp, yTmp)
+        }
+        return
+      }
+      retime(pop(), rTmp, eTmp, yTmp)
+    }
+  }
+  const heapLimit = Math.max(8, n >> 6)
+  /** Off only to check: every step from the first touched one is re-timed. */
+  let skipClean = true
   /** Kahn's order from the qt ready operations in topo (indegrees set): heads into r; returns the latest end, from `cmax` up. */
-  const propagate = (r: Int32Array, qt: number, cmax: number): number => {
+  const propagate = (r: Int32Array, qt: number, cmax: number, candidate = false): number => {
     const sm = succ[M]!,
       sw = succ[W]!
     const en = endsOf(r),
@@ -333,7 +455,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     let qh = 0
     while (qh < qt) {
       const x = topo[qh++]!
-      const ex = place(x, r, en, y)
+      const ex = candidate ? retime(x, r, en, y) : place(x, r, en, y)
       if (ex > cmax) cmax = ex
       const js = jobSucc[x]!,
         ms = sm[x]!,
@@ -358,6 +480,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       if (d === 0) topo[qt++] = i
     }
     const cmax = propagate(r, qt, 0)
+    if (r === rCur) tmpAll = true
     if (passed !== n) return Infinity
     if (r === rCur) {
       topoCur.set(topo)
@@ -372,6 +495,43 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     }
     return finish(r, cmax)
   }
+  /** The current schedule's totals (set when it is timed), from which a candidate's are updated. */
+  let curTwt = 0,
+    curSum = 0,
+    curCmax = 0
+  const lastJob = new Int32Array(n).fill(-1)
+  for (let j = 0; j < jobs; j++) if (lastOf[j]! >= 0) lastJob[lastOf[j]!] = j
+  /** A candidate's value from the current totals and the jobs' last steps it re-timed. */
+  const finishMove = (): number => {
+    let twt = curTwt,
+      sum = curSum,
+      cmax = curCmax,
+      scan = false
+    for (let k = 0; k < nWritten; k++) {
+      const x = written[k]!
+      const j = lastJob[x]!
+      if (j < 0) continue
+      const was = eCur[x]!,
+        now = eTmp[x]!
+      if (was === now) continue
+      sum += now - was
+      const d = due[j]!
+      if (now > d || was > d) twt += weight[j]! * ((now > d ? now - d : 0) - (was > d ? was - d : 0))
+      if (now > cmax) cmax = now
+      else if (was === curCmax) scan = true
+    }
+    if (scan) {
+      cmax = 0
+      for (let j = 0; j < jobs; j++) {
+        const l = lastOf[j]!
+        if (l >= 0 && eTmp[l]! > cmax) cmax = eTmp[l]!
+      }
+    }
+    lastMakespan = cmax
+    lastTwt = twt
+    if (twtMode) return twt + cmax * 1e-7
+    return cmax + sum * 1e-9
+  }
   const finish = (r: Int32Array, cmax: number): number => {
     let twt = 0,
       sum = 0
@@ -385,6 +545,11 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     }
     lastMakespan = cmax
     lastTwt = twt
+    if (r === rCur) {
+      curTwt = twt
+      curSum = sum
+      curCmax = cmax
+    }
     // Makespan breaks ties between equal weighted tardiness, so plateaus still lead somewhere.
     if (twtMode) return twt + cmax * 1e-7
     // The jobs' total completion time breaks ties between equal makespans, so the walk across a plateau still goes somewhere.
@@ -447,42 +612,76 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const evaluateMove = (): number => {
     const from = touched
     if (from >= n) {
-      rTmp.set(rCur)
-      eTmp.set(eCur)
-      yTmp.set(yCur)
+      restoreTmp()
       return finish(rTmp, prefMax[n]!)
     }
-    if (orderA >= 0) {
+    if (skipClean) {
       evaluations++
-      rTmp.set(rCur)
-      eTmp.set(eCur)
-      yTmp.set(yCur)
-      const a = orderA,
-        b = orderB
-      const start = a < b ? a : b
-      shiftOrder(a, b)
-      let cmax = prefMax[start]!
-      for (let k = start; k < n; k++) {
-        const ex = place(topoCur[k]!, rTmp, eTmp, yTmp)
-        if (ex > cmax) cmax = ex
+      restoreTmp()
+      heapN = 0
+      if (orderA >= 0) {
+        // The moved step in its new place keeps the order valid: its stretch of the order in one pass, then what follows.
+        const a = orderA,
+          b = orderB
+        const lo = a < b ? a : b
+        segHi = a < b ? b : a
+        shiftOrder(a, b)
+        for (let k = lo; k <= segHi; k++) retime(topoCur[k]!, rTmp, eTmp, yTmp)
+        for (let k = 0; k < nTouched; k++) if (pos[touchedList[k]!]! > segHi) push(touchedList[k]!)
+        drain()
+        shiftOrder(b, a)
+      } else {
+        // Only arcs between touched steps changed, so the current order still holds outside positions from..to of the touched
+        // steps: Kahn's order within them (a cycle shows there), then what follows in the current order.
+        const to = touchedHi
+        segHi = to
+        const pm = pred[M]!,
+          pw = pred[W]!
+        let qt = 0
+        for (let k = from; k <= to; k++) {
+          const x = topoCur[k]!
+          const a = jobPred[x]!,
+            b = pm[x]!,
+            c = pw[x]!
+          let d = (a >= 0 && pos[a]! >= from ? 1 : 0) + (b >= 0 && pos[b]! >= from ? 1 : 0) + (c >= 0 && pos[c]! >= from ? 1 : 0)
+          for (let q = xps[x]!; q < xps[x + 1]!; q++) if (pos[xp[q]!]! >= from) d++
+          indeg[x] = d
+          if (d === 0) topo[qt++] = x
+        }
+        const sm = succ[M]!,
+          sw = succ[W]!
+        let qh = 0
+        while (qh < qt) {
+          const x = topo[qh++]!
+          retime(x, rTmp, eTmp, yTmp)
+          const js = jobSucc[x]!,
+            ms = sm[x]!,
+            ws = sw[x]!
+          if (js >= 0 && pos[js]! <= to && --indeg[js]! === 0) topo[qt++] = js
+          if (ms >= 0 && pos[ms]! <= to && --indeg[ms]! === 0) topo[qt++] = ms
+          if (ws >= 0 && pos[ws]! <= to && --indeg[ws]! === 0) topo[qt++] = ws
+          for (let q = xss[x]!; q < xss[x + 1]!; q++) {
+            const z = xs[q]!
+            if (pos[z]! <= to && --indeg[z]! === 0) topo[qt++] = z
+          }
+        }
+        if (qt !== to - from + 1) {
+          if (settings.verifyOrder) verifyCandidate(Infinity, 'Kahn')
+          return Infinity
+        }
+        drain()
       }
-      shiftOrder(b, a)
-      const v = finish(rTmp, cmax)
-      if (settings.verifyOrder) {
-        // Tests: the same candidate by Kahn's order must give the same ends and value.
-        const ends = eTmp.slice()
-        orderA = -1
-        evaluations--
-        const w = evaluateMove()
-        for (let i = 0; i < n; i++) if (eTmp[i] !== ends[i]) throw new Error(`pair core: in-order timing differs at step ${i}`)
-        if (w !== v) throw new Error(`pair core: in-order value ${v} against ${w}`)
-      }
+      segHi = n
+      const v = finishMove()
+      if (settings.verifyOrder) verifyCandidate(v, orderA >= 0 ? 'in-order' : 'Kahn')
       return v
     }
+    // Reference (tests): every step from the first touched one re-timed by Kahn's order.
     evaluations++
     rTmp.set(rCur)
     eTmp.set(eCur)
     yTmp.set(yCur)
+    tmpAll = true
     const pm = pred[M]!,
       pw = pred[W]!
     let qt = 0
@@ -496,9 +695,24 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       indeg[x] = d
       if (d === 0) topo[qt++] = x
     }
-    const cmax = propagate(rTmp, qt, prefMax[from]!)
+    const cmax = propagate(rTmp, qt, prefMax[from]!, true)
     if (passed !== n - from) return Infinity
     return finish(rTmp, cmax)
+  }
+  /** Tests: the candidate just timed, timed again by Kahn's order re-timing every step from the first touched one. */
+  const verifyCandidate = (v: number, how: string): void => {
+    const ends = eTmp.slice()
+    orderA = -1
+    evaluations--
+    skipClean = false
+    const w = evaluateMove()
+    skipClean = true
+    if (v === Infinity || w === Infinity) {
+      if (v !== w) throw new Error(`pair core: ${how} value ${v} against ${w}`)
+      return
+    }
+    for (let i = 0; i < n; i++) if (eTmp[i] !== ends[i]) throw new Error(`pair core: ${how} timing differs at step ${i}`)
+    if (Math.abs(w - v) > 1e-9 * Math.max(1, Math.abs(w))) throw new Error(`pair core: ${how} value ${v} against ${w}`)
   }
 
   // ---------- first schedule: the best of a few dispatching rules ----------
@@ -534,10 +748,17 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     const bestOpt = new Int32Array(n),
       bestEst = new Float64Array(n),
       bestFin = new Float64Array(n)
+    // A head's best option changes only when its machine's or worker's ready time does: kept until then.
+    const known = new Uint8Array(n)
     for (let left = n; left > 0; left--) {
       let fStar = Infinity
       for (const x of heads) {
         if (x < 0) continue
+        if (known[x]) {
+          if (bestFin[x]! < fStar) fStar = bestFin[x]!
+          continue
+        }
+        known[x] = 1
         const e0 = Math.max(ready[x]!, release[x]!)
         let bf = Infinity,
           bo = -1,
@@ -601,6 +822,14 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       const js = jobSucc[x]!
       if (js >= 0) ready[js] = bestFin[x]! + lag[x]!
       heads[pick] = js
+      for (const z of heads) {
+        if (z < 0 || !known[z]) continue
+        for (let q = optStart[z]!; q < optStart[z + 1]!; q++)
+          if (optMachine[q] === k || (w >= 0 && optWorker[q] === w)) {
+            known[z] = 0
+            break
+          }
+      }
     }
   }
   type Saved = { opt: Int32Array; order: number[][][] }
@@ -668,7 +897,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     }
   }
   if (!init || !(settings.initialOnly || hasExtra))
-    for (let rule = 0; rule < (twtMode ? 4 : 3); rule++) {
+    for (const rule of settings.startRules ?? (twtMode ? [0, 1, 2, 3] : [0, 1, 2])) {
       build(rule)
       const v = evaluate(rCur)
       if (v < bestVal) {
@@ -902,46 +1131,83 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   }
   const skip: number[] = []
   const estimateOf: number[] = []
+  // Each resource's sequence as an array (positions by start), rebuilt once per iteration when a reassignment is estimated.
+  const seqAt = [new Int32Array(n), new Int32Array(n)]
+  const seqOff = [new Int32Array(s.machines + 1), new Int32Array(Math.max(1, s.workers) + 1)]
+  let seqIter = -1
+  const buildSequences = (): void => {
+    seqIter = iter
+    for (const tt of [M, W]) {
+      const at = seqAt[tt]!,
+        off = seqOff[tt]!
+      let q = 0
+      for (let kk = 0; kk < head[tt]!.length; kk++) {
+        off[kk] = q
+        for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) at[q++] = x
+      }
+      off[head[tt]!.length] = q
+    }
+  }
+  let estHead = 0,
+    estTail = 0
+  /** Where u would go on resource kk of type tt (after the steps that start before it): raises estHead and estTail by its neighbours. */
+  const around = (tt: number, kk: number, u: number): void => {
+    const at = seqAt[tt]!
+    const ru = rCur[u]!
+    // Starts never fall along a sequence: the first place starting at or after u's is found by bisection.
+    let lo = seqOff[tt]![kk]!,
+      hi = seqOff[tt]![kk + 1]!
+    const end = hi
+    const first = lo
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (rCur[at[mid]!]! < ru) lo = mid + 1
+      else hi = mid
+    }
+    let a = lo > first ? at[lo - 1]! : -1,
+      b = lo < end ? at[lo]! : -1
+    for (let q = lo; q < end; q++) {
+      const x = at[q]!
+      if (x === u) {
+        b = succ[tt]![x]!
+        continue
+      }
+      if (rCur[x]! === ru && x < u) {
+        a = x
+        b = succ[tt]![x]!
+      } else break
+    }
+    if (b === u) b = succ[tt]![u]!
+    if (a >= 0 && eCur[a]! > estHead) estHead = eCur[a]!
+    if (b >= 0) {
+      const e = eCur[b]! - rCur[b]! + qCur[b]!
+      if (e > estTail) estTail = e
+    }
+  }
   /** Longest path through step u once it takes option o at the place the move would give it. */
   const reassignEstimate = (u: number, o: number): number => {
+    if (seqIter !== iter) buildSequences()
     const k = optMachine[o]!,
       w = optWorker[o]!
     const jp = jobPred[u]!,
       js = jobSucc[u]!
-    let h = Math.max(release[u]!, jp >= 0 ? eCur[jp]! + lag[jp]! : 0)
-    let t = js >= 0 ? lag[u]! + eCur[js]! - rCur[js]! + qCur[js]! : 0
+    estHead = Math.max(release[u]!, jp >= 0 ? eCur[jp]! + lag[jp]! : 0)
+    estTail = js >= 0 ? lag[u]! + eCur[js]! - rCur[js]! + qCur[js]! : 0
     for (let q = xps[u]!; q < xps[u + 1]!; q++) {
       const z = xp[q]!
-      h = Math.max(h, eCur[z]! + lag[z]!)
+      estHead = Math.max(estHead, eCur[z]! + lag[z]!)
     }
     for (let q = xss[u]!; q < xss[u + 1]!; q++) {
       const z = xs[q]!
-      t = Math.max(t, lag[u]! + eCur[z]! - rCur[z]! + qCur[z]!)
+      estTail = Math.max(estTail, lag[u]! + eCur[z]! - rCur[z]! + qCur[z]!)
     }
-    const around = (tt: number, kk: number): void => {
-      let a = -1,
-        b = head[tt]![kk]!
-      for (let x = head[tt]![kk]!; x >= 0; x = succ[tt]![x]!) {
-        if (x === u) {
-          b = succ[tt]![x]!
-          continue
-        }
-        if (rCur[x]! < rCur[u]! || (rCur[x]! === rCur[u]! && x < u)) {
-          a = x
-          b = succ[tt]![x]!
-        } else break
-      }
-      if (b === u) b = succ[tt]![u]!
-      if (a >= 0) h = Math.max(h, eCur[a]!)
-      if (b >= 0) t = Math.max(t, eCur[b]! - rCur[b]! + qCur[b]!)
-    }
-    around(M, k)
-    if (w >= 0) around(W, w)
+    around(M, k, u)
+    if (w >= 0) around(W, w, u)
     if (cal) {
-      const st = startAt(o, h)
-      return endAt(o, st) + t
+      const st = startAt(o, estHead)
+      return endAt(o, st) + estTail
     }
-    return h + optDur[o]! + t
+    return estHead + optDur[o]! + estTail
   }
 
   /** Before a move is made: forbid undoing it for a while (the orders it reverses, or the option it leaves). */
@@ -1057,7 +1323,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       if (skip[c]) continue
       const mark = undo.length
       const tabu = isTabu(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
-      touched = n
+      beginMove()
       keepsOrder(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
       apply(cKind[c]!, cT[c]!, cU[c]!, cV[c]!)
       const v = evaluateMove()

@@ -9,6 +9,11 @@ import { solvePairShop, type PairShop } from './pair-core.ts'
 const GRAPH_SHARE = 0.6
 /** Share of the remaining budget given first to the calendar-free sketch. */
 const SKETCH_SHARE = 0.3
+/**
+ * The sketch starts from the apparent-tardiness rule alone: on generated workshops it built the best start every time (1.7–2.7 M
+ * min·weight against 3–6 M for weighted slack, modified due date and noisy due date), and each further rule costs 20–90 ms.
+ */
+const SKETCH_RULES = [2]
 
 /**
  * The workshop without calendars: durations stretched by the calendar factor (calendar minutes per working minute), outside work
@@ -480,6 +485,7 @@ export function solveGeneral(
     const r = solvePairShop(sketch.shop, {
       seed: opts.seed,
       objective: 'weightedTardiness',
+      startRules: SKETCH_RULES,
       deadline: now + sketchMs,
       clock,
       maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,

@@ -423,7 +423,6 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
         if (waiting[s] === 0) heap.push(s)
       }
   }
-  for (let i = 0; i < n; i++) if (placed[i]) release(i)
 
   while (heap.size > 0) {
     const i = heap.pop()

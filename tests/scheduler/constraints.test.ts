@@ -1,6 +1,7 @@
 // One focused test per scheduling rule, each plan also checked by the independent validator.
 import { describe, it, expect } from 'vitest'
 import { solve, validatePlan, type Plan, type Problem } from '../../server/scheduler/index.ts'
+import { compile, decode } from '../../server/scheduler/decode.ts'
 import { at, makeBench, makeJob, makeOperation, makePerson, makeProblem, weekdays } from './builders.ts'
 
 const plan = (problem: Problem, timeLimitMs = 200): Plan => {
@@ -87,6 +88,28 @@ describe('engine constraints', () => {
     expect(b!.start).toBe(c!.start) // the branches run side by side
     expect(d!.start).toBe(Math.max(b!.end, c!.end))
     expect(d!.reason).toMatchObject({ kind: 'predecessor', blockerId: 'c' })
+  })
+
+  it('when one branch of a join is running and the other is not planned yet, then the join waits for the other, in whatever priority order', () => {
+    // Hand-worked: Monday, 08:00–16:00 for both benches and people. "cast" runs on b1 with p1 from 08:00 for 60 min; "engrave"
+    // (no predecessor) takes 300 min on b2 with p2 from 08:00 to 13:00; "join" (10 min on b1 with p1) needs both, so it starts
+    // at 13:00 even when its priority puts it before "engrave".
+    const problem = makeProblem({
+      benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
+      people: [makePerson({ id: 'p1' }), makePerson({ id: 'p2' })],
+      operations: [
+        makeOperation({ id: 'cast', jobId: 'j', on: ['b1', 'p1', 60], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 8) } }),
+        makeOperation({ id: 'engrave', jobId: 'j', on: ['b2', 'p2', 300] }),
+        makeOperation({ id: 'join', jobId: 'j', predecessors: ['cast', 'engrave'], on: ['b1', 'p1', 10] }),
+      ],
+    })
+    const c = compile(problem)
+    for (const key of [Float64Array.from([0, 5, 1]), Float64Array.from([0, 1, 5])]) {
+      const d = decode(c, key, new Int32Array(3).fill(-1))
+      expect([d.start[1], d.end[1]]).toEqual([at(0, 8), at(0, 13)])
+      expect([d.start[2], d.end[2]]).toEqual([at(0, 13), at(0, 13, 10)])
+    }
+    expect(placed(plan(problem), 'join').start).toBe(at(0, 13))
   })
 
   it('when an operation has a pickle wait after it, then its successor starts only after the wait', () => {

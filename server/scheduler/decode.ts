@@ -244,6 +244,9 @@ export interface Decoded {
   makespan: number
   moves: number
   shifted: number
+  /** The decoder's picks in order (steps it placed, not pinned ones), and for each step the pick at which it became ready. */
+  order?: Int32Array
+  readyAt?: Int32Array
 }
 
 /** Earliest start at or after t on option `o` that avoids busy bench and person time; null past the horizon. */
@@ -312,29 +315,31 @@ function fit(
   }
 }
 
-/** Min-heap of operation indices ordered by key. */
+/** Min-heap of operation indices ordered by key, ties by index (so the order taken never depends on the heap's history). */
 class KeyHeap {
   private items: number[] = []
   constructor(private key: Float64Array) {}
   get size(): number {
     return this.items.length
   }
+  private less(x: number, y: number): boolean {
+    const k = this.key
+    return k[x]! < k[y]! || (k[x] === k[y] && x < y)
+  }
   push(x: number): void {
-    const a = this.items,
-      k = this.key
+    const a = this.items
     a.push(x)
     let i = a.length - 1
     while (i > 0) {
       const p = (i - 1) >> 1
-      if (k[a[p]!]! <= k[x]!) break
+      if (!this.less(x, a[p]!)) break
       a[i] = a[p]!
       i = p
     }
     a[i] = x
   }
   pop(): number {
-    const a = this.items,
-      k = this.key
+    const a = this.items
     const top = a[0]!,
       last = a.pop()!
     if (a.length > 0) {
@@ -343,14 +348,12 @@ class KeyHeap {
         const l = 2 * i + 1,
           r = l + 1
         let m = i,
-          mv = k[last]!
-        if (l < a.length && k[a[l]!]! < mv) {
+          mv = last
+        if (l < a.length && this.less(a[l]!, mv)) {
           m = l
-          mv = k[a[l]!]!
+          mv = a[l]!
         }
-        if (r < a.length && k[a[r]!]! < mv) {
-          m = r
-        }
+        if (r < a.length && this.less(a[r]!, mv)) m = r
         if (m === i) break
         a[i] = a[m]!
         i = m
@@ -364,9 +367,14 @@ class KeyHeap {
 /**
  * Serial schedule generation: repeatedly takes the eligible operation with the lowest key and places it at its earliest
  * feasible time; choice[i] >= 0 forces that option, -1 picks the option that finishes first (ties: previous plan's).
+ * With `base` (a decode of the same problem) and `from`: no step whose key or choice differs from base's became ready before
+ * pick `from` of base, so base's first `from` picks are taken as they are and the decoding goes on from there (same result).
  */
-export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Decoded {
+export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?: Decoded, from = 0): Decoded {
   const n = c.n
+  const order = new Int32Array(n),
+    readyAt = new Int32Array(n).fill(n)
+  let taken = 0
   const start = new Float64Array(n),
     end = new Float64Array(n)
   const option = new Int32Array(n).fill(-1)
@@ -409,23 +417,52 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
     why[i] = Why.Fixed
     placed[i] = 1
   }
+  // Resuming from a decode whose first `from` picks are known to be the same (no step whose key or choice differs was ready
+  // before then): those steps keep their places and only the rest is decoded.
+  const resume = base?.order && base.readyAt && base.overflow < 0 ? Math.min(from, base.order.length) : 0
+  for (let q = 0; q < resume; q++) {
+    const i = base!.order![q]!
+    start[i] = base!.start[i]!
+    end[i] = base!.end[i]!
+    option[i] = base!.option[i]!
+    segments[i] = base!.segments[i]!
+    why[i] = base!.why[i]!
+    blocker[i] = base!.blocker[i]!
+    const o = option[i]! >= 0 && !(c.outsideDays[i]! > 0) ? c.options[i]![option[i]!] : undefined
+    if (o)
+      for (const g of segments[i]!) {
+        if (g.end <= g.start) continue
+        if (o.bench >= 0) benches[o.bench]!.add(g.start, g.end, i)
+        if (o.person >= 0) people[o.person]!.add(g.start, g.end, i)
+      }
+    placed[i] = 1
+    readyAt[i] = base!.readyAt![i]!
+    order[taken++] = i
+  }
   for (let i = 0; i < n; i++) {
     if (placed[i]) continue
     let w = 0
     for (const p of c.preds[i]!) if (!placed[p]) w++
     waiting[i] = w
-    if (w === 0) heap.push(i)
+    if (w === 0) {
+      readyAt[i] = resume > 0 ? base!.readyAt![i]! : 0
+      heap.push(i)
+    }
   }
   const release = (i: number): void => {
     for (const s of c.succs[i]!)
       if (!placed[s]) {
         waiting[s] = waiting[s]! - 1
-        if (waiting[s] === 0) heap.push(s)
+        if (waiting[s] === 0) {
+          readyAt[s] = taken
+          heap.push(s)
+        }
       }
   }
 
   while (heap.size > 0) {
     const i = heap.pop()
+    order[taken++] = i
     // Earliest start from now, release and predecessors (with their wait-after).
     let est = c.problem.now,
       w: Why = Why.Now,
@@ -546,7 +583,23 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array): Deco
   c.jobs.forEach((job, j) => {
     if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
   })
-  return { start, end, option, segments, why, blocker, overflow, brokenPins, completion, weightedTardiness, makespan, moves, shifted }
+  return {
+    start,
+    end,
+    option,
+    segments,
+    why,
+    blocker,
+    overflow,
+    brokenPins,
+    completion,
+    weightedTardiness,
+    makespan,
+    moves,
+    shifted,
+    order: order.subarray(0, taken),
+    readyAt,
+  }
 }
 
 /** Lexicographic comparison of two decodes: negative when a is better; overflowing decodes are always worse. */

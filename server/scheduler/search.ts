@@ -626,7 +626,11 @@ export function solveGeneral(
       key[a] = key[b]!
       key[b] = t
     }
-    const cand = decode(c, key, choice)
+    // Only what comes after the first pick where a changed step was ready is decoded again.
+    let from = n
+    const ready = cur.readyAt
+    for (let i = 0; i < n; i++) if (key[i] !== curKey[i] || choice[i] !== curChoice[i]) from = Math.min(from, ready ? ready[i]! : 0)
+    const cand = decode(c, key, choice, cur, from)
     const slot = iterations % historyLen
     if (compareDecoded(cand, cur, obj) <= 0 || compareDecoded(cand, history[slot]!, obj) <= 0) {
       cur = cand

@@ -1,5 +1,6 @@
 // Benchmark at workshop scale on generated workshops: time to a first valid plan, tardiness after 2 s, memory, and the EDD baseline.
-// usage: npm run benchmark:workshop [-- --long SECONDS] [--cpu-clock]   (the long run on 200 job bags, default 60 s; 0 skips it)
+// usage: npm run benchmark:workshop [-- --long SECONDS] [--seeds 1,2,3] [--cpu-clock]   (the long run on 200 job bags, default 60 s;
+// 0 skips it; with each seed of --seeds, default 1)
 import { mkdirSync, writeFileSync } from 'node:fs'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
@@ -81,22 +82,30 @@ const results: Record<string, unknown> = {}
   )
   console.log(`  EDD baseline            ${base.plan.score.weightedTardiness} min·weight (${base.ms.toFixed(0)} ms, ${base.violations} violations)`)
   console.log(`  ours / baseline         ${ratio.toFixed(3)}`)
-  // The same engine given a long budget (--long S, default 60; 0 skips): how far the 2 s result is from it.
+  // The same engine given a long budget (--long S, default 60; 0 skips): how far the 2 s result is from it, for each seed of
+  // --seeds (default 1) and on average over them (one seed's search can end in a better or worse basin than another's).
   const at = process.argv.indexOf('--long')
   const long = at >= 0 ? Number(process.argv[at + 1]) : 60
+  const seedsAt = process.argv.indexOf('--seeds')
+  const seeds = seedsAt >= 0 ? process.argv[seedsAt + 1]!.split(',').map(Number) : [1]
   if (long > 0) {
-    const lp = solve(problem, { seed: 1, timeLimitMs: long * 1000 }, { clock })
-    const gap = lp.score.weightedTardiness > 0 ? (plan.score.weightedTardiness / lp.score.weightedTardiness - 1) * 100 : 0
-    console.log(
-      `  ${long} s budget            ${lp.score.weightedTardiness} min·weight after ${lp.stats.evaluations ?? lp.stats.iterations} evaluated moves; 2 s result is ${gap.toFixed(1)} % above it (target ≤ 3 %)`,
-    )
-    results.workshop200long = {
-      budgetMs: long * 1000,
-      weightedTardiness: lp.score.weightedTardiness,
-      iterations: lp.stats.iterations,
-      evaluations: lp.stats.evaluations,
-      twoSecondsAbovePercent: gap,
+    const rows: { seed: number; short: number; long: number; evaluations: number; gap: number }[] = []
+    for (const seed of seeds) {
+      const sp = seed === 1 ? plan : solve(problem, { seed, timeLimitMs: 2000 }, { clock })
+      const lp = solve(problem, { seed, timeLimitMs: long * 1000 }, { clock })
+      const gap = lp.score.weightedTardiness > 0 ? (sp.score.weightedTardiness / lp.score.weightedTardiness - 1) * 100 : 0
+      rows.push({ seed, short: sp.score.weightedTardiness, long: lp.score.weightedTardiness, evaluations: sp.stats.evaluations ?? 0, gap })
+      console.log(
+        `  seed ${seed}: 2 s ${sp.score.weightedTardiness} (${sp.stats.evaluations ?? sp.stats.iterations} evaluated moves), ${long} s ${lp.score.weightedTardiness} min·weight after ${lp.stats.evaluations ?? lp.stats.iterations} evaluated moves; 2 s result is ${gap.toFixed(1)} % above it (target ≤ 3 %)`,
+      )
     }
+    const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length
+    const meanGap = (mean(rows.map((r) => r.short)) / mean(rows.map((r) => r.long)) - 1) * 100
+    if (rows.length > 1)
+      console.log(
+        `  mean over seeds ${seeds.join(', ')}: 2 s ${Math.round(mean(rows.map((r) => r.short)))}, ${long} s ${Math.round(mean(rows.map((r) => r.long)))} min·weight, ${meanGap.toFixed(1)} % (target ≤ 3 %)`,
+      )
+    results.workshop200long = { budgetMs: long * 1000, seeds: rows, meanTwoSecondsAbovePercent: meanGap }
   }
 }
 

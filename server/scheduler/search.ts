@@ -448,40 +448,62 @@ export function solveGeneral(
   const done = (): GeneralResult => ({ decoded: best!, iterations, firstPlanMs, evaluations: evaluations + iterations, ...(previous ? { previous } : {}) })
   if (n === 0) return done()
 
+  // A pair-core schedule (sketch or graph) through the decoder: its steps in order of their starts (what must go first for pins
+  // in front) with its bench and person choices, and with the decoder's own choices; kept when better. The better schedules of a
+  // search are decoded as they come while that takes at most a quarter of its time, and its last one in any case.
+  let pending: { option: Int32Array; start: Int32Array } | null = null,
+    decodeMs = 0,
+    decodes = 0
+  const tryDecode = (part: { shop: PairShop; real: Uint8Array }, option: Int32Array, start: Int32Array): void => {
+    const a = clock()
+    const key = new Float64Array(n),
+      choice = new Int32Array(n).fill(-1)
+    for (let i = 0; i < n; i++) {
+      key[i] = start[i]! + i * 1e-9
+      const k = option[i]! - part.shop.optStart[i]!
+      if (part.real[i] && k >= 0 && k < c.options[i]!.length) choice[i] = k
+    }
+    let low = Infinity
+    for (let i = 0; i < n; i++) if (key[i]! < low) low = key[i]!
+    for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
+    for (const ch of [choice, new Int32Array(n).fill(-1)]) {
+      const d = decode(c, key, ch)
+      decodes++
+      if (compareDecoded(d, best!, obj) < 0) {
+        best = d
+        bestKey = key
+        bestChoice = ch.slice()
+      }
+    }
+    decodeMs += clock() - a
+  }
+  const decodeAsTheyCome = {
+    begin: (): void => {
+      pending = null
+      decodeMs = 0
+      decodes = 0
+    },
+    onBest: (part: { shop: PairShop; real: Uint8Array }, since: number) => {
+      return (option: Int32Array, start: Int32Array): void => {
+        if (decodeMs * 4 < clock() - since) {
+          pending = null
+          tryDecode(part, option, start)
+        } else pending = { option: option.slice(), start: start.slice() }
+      }
+    },
+    finish: (part: { shop: PairShop; real: Uint8Array }, r: { option: Int32Array; start: Int32Array }): void => {
+      if (pending || decodes === 0) tryDecode(part, r.option, r.start)
+      pending = null
+    },
+  }
+
   // A calendar-free sketch of the workshop, searched on the disjunctive graph for part of the budget; its order and its bench and
   // person choices seed the calendar search when they decode to a better plan.
   const sketchMs = Math.max(0, (opts.deadline - clock()) * SKETCH_SHARE)
   if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && sketchMs >= 50 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
     const now = clock()
     const sketch = sketchShop(c)
-    // The sketch's weighted tardiness only estimates the plan's: its better schedules are decoded on the calendars as they come
-    // (while that takes at most a quarter of the time), and the last one in any case.
-    let pending: { option: Int32Array; start: Int32Array } | null = null,
-      decodeMs = 0,
-      decodes = 0
-    const tryDecode = (option: Int32Array, start: Int32Array): void => {
-      const a = clock()
-      const key = new Float64Array(n),
-        choice = new Int32Array(n).fill(-1)
-      for (let i = 0; i < n; i++) {
-        key[i] = start[i]! + i * 1e-9
-        const k = option[i]! - sketch.shop.optStart[i]!
-        if (sketch.real[i] && k >= 0 && k < c.options[i]!.length) choice[i] = k
-      }
-      let low = Infinity
-      for (let i = 0; i < n; i++) if (key[i]! < low) low = key[i]!
-      for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
-      for (const ch of [choice, new Int32Array(n).fill(-1)]) {
-        const d = decode(c, key, ch)
-        decodes++
-        if (compareDecoded(d, best!, obj) < 0) {
-          best = d
-          bestKey = key
-          bestChoice = ch.slice()
-        }
-      }
-      decodeMs += clock() - a
-    }
+    decodeAsTheyCome.begin()
     const r = solvePairShop(sketch.shop, {
       seed: opts.seed,
       objective: 'weightedTardiness',
@@ -490,25 +512,22 @@ export function solveGeneral(
       clock,
       maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
       ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
-      onBest: (option, start) => {
-        if (decodeMs * 4 < clock() - now) {
-          pending = null
-          tryDecode(option, start)
-        } else pending = { option: option.slice(), start: start.slice() }
-      },
+      onBest: decodeAsTheyCome.onBest(sketch, now),
     })
     evaluations += r.evaluations
-    if (pending || decodes === 0) tryDecode(r.option, r.start)
+    decodeAsTheyCome.finish(sketch, r)
     hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: clock() - t0 })
   }
 
   // The workshop on the disjunctive graph with its calendars, searched for most of the budget: each candidate move is timed
-  // exactly on the calendars, re-timing only the steps after the first one it touches. Its order and bench and person choices
-  // go through the decoder (which lets branches overlap again and fills gaps, so it is never later) and are kept when better.
+  // exactly on the calendars, re-timing only the steps it touches and those whose predecessors it moves. Its better schedules'
+  // order and bench and person choices go through the decoder as they come (which lets branches overlap again and fills gaps,
+  // so it is never later) and are kept when better.
   const graphMs = Math.max(0, (opts.deadline - clock()) * GRAPH_SHARE)
   if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && graphMs >= 20 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
     const now = clock()
     const graph = calendarShop(c, best)
+    decodeAsTheyCome.begin()
     const r = solvePairShop(graph.shop, {
       seed: opts.seed,
       objective: 'weightedTardiness',
@@ -518,27 +537,10 @@ export function solveGeneral(
       initialOnly: true,
       maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
       ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
+      onBest: decodeAsTheyCome.onBest(graph, now),
     })
     evaluations += r.evaluations
-    const key = new Float64Array(n),
-      choice = new Int32Array(n).fill(-1)
-    for (let i = 0; i < n; i++) {
-      key[i] = r.start[i]! + i * 1e-9
-      const k = r.option[i]! - graph.shop.optStart[i]!
-      if (graph.real[i] && k >= 0 && k < c.options[i]!.length) choice[i] = k
-    }
-    // Keep what must go first for pins in front.
-    let low = Infinity
-    for (let i = 0; i < n; i++) if (key[i]! < low) low = key[i]!
-    for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
-    for (const ch of [choice, new Int32Array(n).fill(-1)]) {
-      const d = decode(c, key, ch)
-      if (compareDecoded(d, best, obj) < 0) {
-        best = d
-        bestKey = key
-        bestChoice = ch.slice()
-      }
-    }
+    decodeAsTheyCome.finish(graph, r)
     hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: clock() - t0 })
   }
 

@@ -220,8 +220,22 @@ describe("the manager's board tools", () => {
     }
     const soon = Date.now() + 2 * 3_600_000
     const movable = open.filter((b) => !b.outside && b.status !== 'running' && Date.parse(b.start) > soon && inSpan(b.start))
-    // Last steps first: nothing after them to run into.
-    movable.sort((a, b) => Number(!!successorOf(a)) - Number(!!successorOf(b)))
+    // Room after a bar: until the next work on its bench or with its person, or its successor's start less the wait between.
+    const roomAfter = (b: Bar) => {
+      const end = Date.parse(b.end),
+        next = successorOf(b)
+      let until = Infinity
+      for (const x of open) {
+        if (x.id === b.id || x.outside) continue
+        const shares = (b.benchId !== null && x.benchId === b.benchId) || (b.personId !== null && x.personId === b.personId)
+        const wait = next?.id === x.id ? (byId.get(b.id)?.wait_after_minutes ?? 0) * 60_000 : 0
+        if ((shares || next?.id === x.id) && Date.parse(x.start) >= end) until = Math.min(until, Date.parse(x.start) - wait)
+      }
+      return until - end
+    }
+    // Bars with 15 minutes of room after them first (a tight plan leaves few), then last steps: nothing after them to run into.
+    const tightAfter = (b: Bar) => Number(roomAfter(b) < 15 * 60_000)
+    movable.sort((a, b) => tightAfter(a) - tightAfter(b) || Number(!!successorOf(a)) - Number(!!successorOf(b)))
     const refusal = manager.locator('[data-test=board-refusal]')
     let moved: { bar: Bar; before: Date } | null = null
     const tried: string[] = []

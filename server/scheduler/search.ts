@@ -454,6 +454,7 @@ export function solveGeneral(
   let pending: { option: Int32Array; start: Int32Array } | null = null,
     decodeMs = 0,
     decodes = 0
+  let lastDecoded: ({ d: Decoded; key: Float64Array; choice: Int32Array } | undefined)[] = []
   const tryDecode = (part: { shop: PairShop; real: Uint8Array }, option: Int32Array, start: Int32Array): void => {
     const a = clock()
     const key = new Float64Array(n),
@@ -466,15 +467,25 @@ export function solveGeneral(
     let low = Infinity
     for (let i = 0; i < n; i++) if (key[i]! < low) low = key[i]!
     for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
-    for (const ch of [choice, new Int32Array(n).fill(-1)]) {
-      const d = decode(c, key, ch)
+    ;[choice, new Int32Array(n).fill(-1)].forEach((ch, variant) => {
+      // Successive schedules of one search differ after the steps a move touched: decoded from the first pick that can differ.
+      const prev = lastDecoded[variant]
+      let from = 0
+      if (prev) {
+        from = n
+        const ready = prev.d.readyAt!
+        for (let i = 0; i < n; i++) if (key[i] !== prev.key[i] || ch[i] !== prev.choice[i]) from = Math.min(from, ready[i]!)
+      }
+      const d = prev ? decode(c, key, ch, prev.d, from) : decode(c, key, ch)
+      lastDecoded[variant] = { d, key, choice: ch }
       decodes++
+      evaluations++
       if (compareDecoded(d, best!, obj) < 0) {
         best = d
         bestKey = key
         bestChoice = ch.slice()
       }
-    }
+    })
     decodeMs += clock() - a
   }
   const decodeAsTheyCome = {
@@ -482,6 +493,7 @@ export function solveGeneral(
       pending = null
       decodeMs = 0
       decodes = 0
+      lastDecoded = []
     },
     onBest: (part: { shop: PairShop; real: Uint8Array }, since: number) => {
       return (option: Int32Array, start: Int32Array): void => {

@@ -262,12 +262,13 @@ function fit(
   const bt = o.bench >= 0 ? benches[o.bench]! : null
   const pt = o.person >= 0 ? people[o.person]! : null
   const win = o.windows
+  let w: Interval | undefined
   for (;;) {
     // Skip to a moment when the pair works and neither is busy, then check the whole stretch of work.
     for (;;) {
       // Cannot finish by `limit` any more: another option is already at least as good.
       if (t + o.minutes > limit) return undefined
-      const w = win[firstEndingAfter(win, t)]
+      w = win[firstEndingAfter(win, t)]
       if (!w) return null
       if (w.start > t) t = w.start
       const kb = bt ? bt.containing(t) : -1
@@ -285,6 +286,25 @@ function fit(
         continue
       }
       break
+    }
+    if (o.minutes > 0) {
+      // The work's first stretch runs at least to the end of this window or of the work: busy time starting before that is in
+      // the way, found without walking the calendar (the same block the walk's first segment would meet).
+      const fe = Math.min(w.end, t + o.minutes)
+      const kb = bt ? bt.overlap(t, fe) : -1
+      if (kb >= 0) {
+        t = bt!.ends[kb]!
+        blockedBy = bt!.owners[kb]!
+        blockedOn = Why.Bench
+        continue
+      }
+      const kp = pt ? pt.overlap(t, fe) : -1
+      if (kp >= 0) {
+        t = pt!.ends[kp]!
+        blockedBy = pt!.owners[kp]!
+        blockedOn = Why.Person
+        continue
+      }
     }
     const segs = walkWorkingTime(win, t, o.minutes)
     if (!segs) return null

@@ -161,8 +161,8 @@ class Timeline {
     const w = this.available[firstEndingAfter(this.available, a)]
     return w !== undefined && w.start < b
   }
-  /** Index of the busy block containing t, or -1. */
-  containing(t: number): number {
+  /** Index of the first busy block ending after t (the number of blocks when none does). */
+  firstEndingAfter(t: number): number {
     const ends = this.ends
     let lo = 0,
       hi = ends.length
@@ -171,7 +171,7 @@ class Timeline {
       if (ends[mid]! > t) hi = mid
       else lo = mid + 1
     }
-    return lo < ends.length && this.starts[lo]! <= t ? lo : -1
+    return lo
   }
   /** First busy segment overlapping [s, e), or -1. */
   overlap(s: number, e: number): number {
@@ -263,45 +263,57 @@ function fit(
   const pt = o.person >= 0 ? people[o.person]! : null
   const win = o.windows
   let w: Interval | undefined
+  // t only grows here: the window and the bench's and person's busy blocks are followed from where they were, not searched again.
+  let wi = firstEndingAfter(win, t)
+  const bEnds = bt?.ends,
+    bStarts = bt?.starts,
+    pEnds = pt?.ends,
+    pStarts = pt?.starts
+  let bi = bt ? bt.firstEndingAfter(t) : 0,
+    pi = pt ? pt.firstEndingAfter(t) : 0
   for (;;) {
     // Skip to a moment when the pair works and neither is busy, then check the whole stretch of work.
     for (;;) {
       // Cannot finish by `limit` any more: another option is already at least as good.
       if (t + o.minutes > limit) return undefined
-      w = win[firstEndingAfter(win, t)]
+      while (wi < win.length && win[wi]!.end <= t) wi++
+      w = win[wi]
       if (!w) return null
       if (w.start > t) t = w.start
-      const kb = bt ? bt.containing(t) : -1
-      if (kb >= 0) {
-        t = bt!.ends[kb]!
-        blockedBy = bt!.owners[kb]!
-        blockedOn = Why.Bench
-        continue
+      if (bEnds) {
+        while (bi < bEnds.length && bEnds[bi]! <= t) bi++
+        if (bi < bEnds.length && bStarts![bi]! <= t) {
+          t = bEnds[bi]!
+          blockedBy = bt!.owners[bi]!
+          blockedOn = Why.Bench
+          continue
+        }
       }
-      const kp = pt ? pt.containing(t) : -1
-      if (kp >= 0) {
-        t = pt!.ends[kp]!
-        blockedBy = pt!.owners[kp]!
-        blockedOn = Why.Person
-        continue
+      if (pEnds) {
+        while (pi < pEnds.length && pEnds[pi]! <= t) pi++
+        if (pi < pEnds.length && pStarts![pi]! <= t) {
+          t = pEnds[pi]!
+          blockedBy = pt!.owners[pi]!
+          blockedOn = Why.Person
+          continue
+        }
       }
       break
     }
     if (o.minutes > 0) {
       // The work's first stretch runs at least to the end of this window or of the work: busy time starting before that is in
-      // the way, found without walking the calendar (the same block the walk's first segment would meet).
+      // the way, found without walking the calendar (the same block the walk's first segment would meet: the first one ending
+      // after t, which starts after t).
       const fe = Math.min(w.end, t + o.minutes)
-      const kb = bt ? bt.overlap(t, fe) : -1
-      if (kb >= 0) {
-        t = bt!.ends[kb]!
-        blockedBy = bt!.owners[kb]!
+      if (bEnds && bi < bEnds.length && bStarts![bi]! < fe) {
+        t = bEnds[bi]!
+        blockedBy = bt!.owners[bi]!
         blockedOn = Why.Bench
         continue
       }
-      const kp = pt ? pt.overlap(t, fe) : -1
-      if (kp >= 0) {
-        t = pt!.ends[kp]!
-        blockedBy = pt!.owners[kp]!
+      if (pEnds && pi < pEnds.length && pStarts![pi]! < fe) {
+        t = pEnds[pi]!
+        blockedBy = pt!.owners[pi]!
         blockedOn = Why.Person
         continue
       }

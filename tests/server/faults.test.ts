@@ -10,8 +10,9 @@ import { startCluster, stopCluster } from '../../scripts/pg'
 
 const root = resolve(import.meta.dirname, '../..')
 const dataDir = join(root, '.data', `fault-${randomBytes(4).toString('hex')}`)
-const pgPort = 55900 + Math.floor(Math.random() * 90)
-const appPort = 56900 + Math.floor(Math.random() * 90)
+// Below the kernel's ephemeral range (32768–60999 here), where an outgoing connection's own port could already hold it.
+const pgPort = 29900 + Math.floor(Math.random() * 90)
+const appPort = 30900 + Math.floor(Math.random() * 90)
 const base = `http://127.0.0.1:${appPort}`
 const env = { ...process.env, MILLGRAIN_DATA_DIR: dataDir, PG_PORT: String(pgPort), PORT: String(appPort), SKIP_BUILD: '1', NODE_ENV: 'production' }
 

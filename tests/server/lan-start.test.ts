@@ -9,8 +9,9 @@ import { afterAll, describe, expect, it } from 'vitest'
 
 const root = resolve(import.meta.dirname, '../..')
 const dataDir = join(root, '.data', `lan-start-${randomBytes(4).toString('hex')}`)
-const pgPort = 55700 + Math.floor(Math.random() * 90)
-const appPort = 56700 + Math.floor(Math.random() * 90)
+// Below the kernel's ephemeral range (32768–60999 here), where an outgoing connection's own port could already hold it.
+const pgPort = 29700 + Math.floor(Math.random() * 90)
+const appPort = 30700 + Math.floor(Math.random() * 90)
 const env = {
   ...process.env,
   MILLGRAIN_DATA_DIR: dataDir,

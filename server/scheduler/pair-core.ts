@@ -609,6 +609,26 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
    * Heads after a move, into rTmp: positions before the first touched one keep the current heads; the rest in the current order
    * with the moved step in its new place where that order still holds (see keepsOrder), else by Kahn's order.
    */
+  /**
+   * In-degrees of the steps at order positions from..to counted over predecessors at position from or later, and those with none
+   * queued in topo; returns how many are queued.
+   */
+  const readyIn = (from: number, to: number): number => {
+    const pm = pred[M]!,
+      pw = pred[W]!
+    let qt = 0
+    for (let k = from; k <= to; k++) {
+      const x = topoCur[k]!
+      const a = jobPred[x]!,
+        b = pm[x]!,
+        c = pw[x]!
+      let d = (a >= 0 && pos[a]! >= from ? 1 : 0) + (b >= 0 && pos[b]! >= from ? 1 : 0) + (c >= 0 && pos[c]! >= from ? 1 : 0)
+      for (let q = xps[x]!; q < xps[x + 1]!; q++) if (pos[xp[q]!]! >= from) d++
+      indeg[x] = d
+      if (d === 0) topo[qt++] = x
+    }
+    return qt
+  }
   const evaluateMove = (): number => {
     const from = touched
     if (from >= n) {
@@ -635,19 +655,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
         // steps: Kahn's order within them (a cycle shows there), then what follows in the current order.
         const to = touchedHi
         segHi = to
-        const pm = pred[M]!,
-          pw = pred[W]!
-        let qt = 0
-        for (let k = from; k <= to; k++) {
-          const x = topoCur[k]!
-          const a = jobPred[x]!,
-            b = pm[x]!,
-            c = pw[x]!
-          let d = (a >= 0 && pos[a]! >= from ? 1 : 0) + (b >= 0 && pos[b]! >= from ? 1 : 0) + (c >= 0 && pos[c]! >= from ? 1 : 0)
-          for (let q = xps[x]!; q < xps[x + 1]!; q++) if (pos[xp[q]!]! >= from) d++
-          indeg[x] = d
-          if (d === 0) topo[qt++] = x
-        }
+        let qt = readyIn(from, to)
         const sm = succ[M]!,
           sw = succ[W]!
         let qh = 0
@@ -682,20 +690,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     eTmp.set(eCur)
     yTmp.set(yCur)
     tmpAll = true
-    const pm = pred[M]!,
-      pw = pred[W]!
-    let qt = 0
-    for (let k = from; k < n; k++) {
-      const x = topoCur[k]!
-      const a = jobPred[x]!,
-        b = pm[x]!,
-        c = pw[x]!
-      let d = (a >= 0 && pos[a]! >= from ? 1 : 0) + (b >= 0 && pos[b]! >= from ? 1 : 0) + (c >= 0 && pos[c]! >= from ? 1 : 0)
-      for (let q = xps[x]!; q < xps[x + 1]!; q++) if (pos[xp[q]!]! >= from) d++
-      indeg[x] = d
-      if (d === 0) topo[qt++] = x
-    }
-    const cmax = propagate(rTmp, qt, prefMax[from]!, true)
+    const cmax = propagate(rTmp, readyIn(from, n - 1), prefMax[from]!, true)
     if (passed !== n - from) return Infinity
     return finish(rTmp, cmax)
   }

@@ -597,24 +597,16 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?
         break
       }
   }
-  const completion = new Float64Array(c.jobs.length).fill(-Infinity)
-  let makespan = 0,
-    moves = 0,
+  const { completion, makespan, weightedTardiness } = scoreOfEnds(c, end)
+  let moves = 0,
     shifted = 0
   for (let i = 0; i < n; i++) {
-    const j = c.jobOf[i]!
-    if (end[i]! > completion[j]!) completion[j] = end[i]!
-    if (end[i]! > makespan) makespan = end[i]!
     const prev = c.problem.previous?.[c.ops[i]!.id]
     if (prev && !c.fixedAt[i]) {
       if (option[i] !== c.previousOption[i]) moves++
       else if (Math.abs(start[i]! - prev.start) >= 1) shifted++
     }
   }
-  let weightedTardiness = 0
-  c.jobs.forEach((job, j) => {
-    if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
-  })
   return {
     start,
     end,
@@ -632,6 +624,22 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?
     order: order.subarray(0, taken),
     readyAt,
   }
+}
+
+/** Each job's completion (its latest end), the makespan and the weighted tardiness of a plan's ends. */
+export function scoreOfEnds(c: Compiled, end: Float64Array): { completion: Float64Array; makespan: number; weightedTardiness: number } {
+  const completion = new Float64Array(c.jobs.length).fill(-Infinity)
+  let makespan = 0
+  for (let i = 0; i < c.n; i++) {
+    const j = c.jobOf[i]!
+    if (end[i]! > completion[j]!) completion[j] = end[i]!
+    if (end[i]! > makespan) makespan = end[i]!
+  }
+  let weightedTardiness = 0
+  c.jobs.forEach((job, j) => {
+    if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
+  })
+  return { completion, makespan, weightedTardiness }
 }
 
 /** Lexicographic comparison of two decodes: negative when a is better; overflowing decodes are always worse. */

@@ -1,7 +1,7 @@
 // solve(): routes a problem to the fast shop core or the general calendar search, then validates the plan.
 import type { Objective, Plan, Problem, SolveHooks, SolveOptions } from './model.ts'
 import { checkProblem } from './check.ts'
-import { compile, toPlan, assertWithinHorizon, type Compiled, type Decoded, Why } from './decode.ts'
+import { compile, toPlan, assertWithinHorizon, scoreOfEnds, type Compiled, type Decoded, Why } from './decode.ts'
 import { solveGeneral } from './search.ts'
 import { solveShop, type ShopInstance } from './shop-core.ts'
 import { solvePairShop, type PairShop } from './pair-core.ts'
@@ -148,17 +148,7 @@ function decodedOf(
   why: Uint8Array,
   blocker: Int32Array,
 ): Decoded {
-  let makespan = 0
-  const completion = new Float64Array(c.jobs.length).fill(-Infinity)
-  for (let i = 0; i < c.n; i++) {
-    makespan = Math.max(makespan, end[i]!)
-    const j = c.jobOf[i]!
-    completion[j] = Math.max(completion[j]!, end[i]!)
-  }
-  let weightedTardiness = 0
-  c.jobs.forEach((job, j) => {
-    if (job.due !== null && completion[j]! > job.due) weightedTardiness += job.weight * (completion[j]! - job.due)
-  })
+  const { completion, makespan, weightedTardiness } = scoreOfEnds(c, end)
   return {
     start,
     end,

@@ -60,6 +60,25 @@ function handCase(): Problem {
   }
 }
 
+/** A generated workshop's calendar graph searched by the pair core from the apparent-tardiness rule's plan. */
+function searchGraph(o: { workshop: number; jobs: number; seed: number; iterations: number; verifyOrder?: boolean }) {
+  const problem = generateWorkshop({ seed: o.workshop, jobs: o.jobs })
+  const c = compile(problem)
+  const first = decode(c, dispatchKeys(c)[2]!, new Int32Array(c.n).fill(-1))
+  const graph = calendarShop(c, first)
+  const r = solvePairShop(graph.shop, {
+    seed: o.seed,
+    objective: 'weightedTardiness',
+    deadline: Infinity,
+    clock,
+    maxIterations: o.iterations,
+    initial: graph.initial,
+    initialOnly: true,
+    verifyOrder: o.verifyOrder ?? false,
+  })
+  return { problem, c, graph, r }
+}
+
 describe('the workshop as a disjunctive graph with calendars', () => {
   it('when the hand-worked order is timed on the graph, then every step ends at the minute worked out by hand', () => {
     const problem = handCase()
@@ -88,19 +107,7 @@ describe('the workshop as a disjunctive graph with calendars', () => {
   })
 
   it('when a generated workshop is searched on the graph, then decoding its order and choices is never later for any step', () => {
-    const problem = generateWorkshop({ seed: 21, jobs: 40 })
-    const c = compile(problem)
-    const first = decode(c, dispatchKeys(c)[2]!, new Int32Array(c.n).fill(-1))
-    const graph = calendarShop(c, first)
-    const r = solvePairShop(graph.shop, {
-      seed: 3,
-      objective: 'weightedTardiness',
-      deadline: Infinity,
-      clock,
-      maxIterations: 300,
-      initial: graph.initial,
-      initialOnly: true,
-    })
+    const { problem, c, graph, r } = searchGraph({ workshop: 21, jobs: 40, seed: 3, iterations: 300 })
     const key = new Float64Array(c.n),
       choice = new Int32Array(c.n).fill(-1)
     for (let i = 0; i < c.n; i++) {
@@ -118,20 +125,7 @@ describe('the workshop as a disjunctive graph with calendars', () => {
     // The reference is Kahn's order over every step from the first one a move touches, re-timed on the calendars one by one; the
     // test hook throws on the first candidate whose ends, value or cycle verdict differ.
     for (const seed of [21, 22]) {
-      const problem = generateWorkshop({ seed, jobs: 70 })
-      const c = compile(problem)
-      const first = decode(c, dispatchKeys(c)[2]!, new Int32Array(c.n).fill(-1))
-      const graph = calendarShop(c, first)
-      const r = solvePairShop(graph.shop, {
-        seed: 5,
-        objective: 'weightedTardiness',
-        deadline: Infinity,
-        clock,
-        maxIterations: 120,
-        initial: graph.initial,
-        initialOnly: true,
-        verifyOrder: true,
-      })
+      const { r } = searchGraph({ workshop: seed, jobs: 70, seed: 5, iterations: 120, verifyOrder: true })
       expect(r.evaluations).toBeGreaterThan(1000)
     }
   })

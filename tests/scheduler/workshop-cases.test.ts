@@ -80,6 +80,31 @@ describe.skipIf(!haveKit)('kit workshop problems through both validators (skippe
     expect(plan.score.feasible).toBe(true)
   })
 
+  it('when a long budget alternates graph and decoder rounds, then the plan still passes both validators', () => {
+    // A clock that runs 150 ms per reading gives a 60 s budget in a few hundred readings: long enough for three rounds of the
+    // calendar graph and the decoder's search, each starting from the best decoded plan of the round before.
+    // ws-c (200 job bags) stays late after its first plan, so every round has lateness to work on (ws-a and ws-b reach none).
+    const problem = load(join(wsDir, 'ws-c.json'))
+    let now = 0
+    const graphRounds: number[] = []
+    const plan = solve(
+      problem,
+      { seed: 3, timeLimitMs: 60_000 },
+      {
+        clock: () => (now += 150),
+        onProgress: (p) => {
+          if (p.iteration === 0) graphRounds.push(p.elapsedMs)
+        },
+      },
+    )
+    // Iteration-0 reports: the first plan, the sketch, and one per graph round.
+    expect(graphRounds.length).toBeGreaterThanOrEqual(5)
+    expect(validatePlan(problem, plan)).toEqual([])
+    const r = independent(problem, plan, 'ws-c-rounds')
+    expect(r.out).toContain('valid')
+    expect(r.status, r.out).toBe(0)
+  })
+
   it('when a finished soldering still has its pickle wait, then the polish waits for it', () => {
     // Kit case: soldering finished 10580 with a 30-min wait → polish not before 10610 although now is 10590.
     const problem = load(join(wsDir, 'cases/done-wait.json'))

@@ -149,10 +149,15 @@ export interface SolveOptions {
 }
 
 /** Progress report during a solve. */
+/** Which part of the workshop search reported: the first plan, the calendar-free sketch, the calendar graph, the decoder's search. */
+export type SolveStage = 'start' | 'sketch' | 'graph' | 'decoder'
+
 export interface SolveProgress {
+  /** Plans tried so far: in the workshop search every candidate evaluated (moves on the sketch and the graph, and decodes). */
   iteration: number
   best: Score
   elapsedMs: number
+  stage?: SolveStage
 }
 
 /** Caller-supplied hooks: progress, cancellation and the clock (milliseconds). */

@@ -1,5 +1,5 @@
 // Workshop planning search: due-date-aware dispatching rules for a first plan, then late-acceptance local search along the chains that make jobs late.
-import type { Interval, Objective, SolveHooks, Violation } from './model.ts'
+import type { Interval, Objective, SolveHooks, SolveStage, Violation } from './model.ts'
 import { compareDecoded, decode, type Compiled, type CompiledOption, type Decoded, Why } from './decode.ts'
 import { createRng } from './random.ts'
 import { clipToWindows } from './calendar.ts'
@@ -451,7 +451,10 @@ export function solveGeneral(
   let iterations = 0,
     evaluations = 0
   if (!best) throw new Error('no dispatching rule produced a plan')
-  hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: firstPlanMs })
+  /** Progress: the best plan so far and how many plans were tried to find it (moves on the sketch and the graph, decodes). */
+  const report = (stage: SolveStage, elapsedMs = clock() - t0): void =>
+    hooks.onProgress?.({ iteration: evaluations + iterations, best: scoreOf(best!), elapsedMs, stage })
+  report('start', firstPlanMs)
   const done = (): GeneralResult => ({ decoded: best!, iterations, firstPlanMs, evaluations: evaluations + iterations, ...(previous ? { previous } : {}) })
   if (n === 0) return done()
 
@@ -459,6 +462,7 @@ export function solveGeneral(
   // in front) with its bench and person choices, and with the decoder's own choices; kept when better. The better schedules of a
   // search are decoded as they come while that takes at most an eighth of its time (a quarter gave the same 60 s results and 2 s
   // results within the spread, with a quarter fewer moves evaluated), and its last one in any case.
+  let stage: SolveStage = 'sketch'
   let pending: { option: Int32Array; start: Int32Array } | null = null,
     decodeMs = 0,
     decodes = 0
@@ -475,6 +479,7 @@ export function solveGeneral(
     let low = Infinity
     for (let i = 0; i < n; i++) if (key[i]! < low) low = key[i]!
     for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
+    let improved = false
     ;[choice, new Int32Array(n).fill(-1)].forEach((ch, variant) => {
       // Successive schedules of one search differ after the steps a move touched: decoded from the first pick that can differ.
       const prev = lastDecoded[variant]
@@ -492,12 +497,15 @@ export function solveGeneral(
         best = d
         bestKey = key
         bestChoice = ch.slice()
+        improved = true
       }
     })
     decodeMs += clock() - a
+    if (improved) report(stage)
   }
   const decodeAsTheyCome = {
-    begin: (): void => {
+    begin: (now: SolveStage): void => {
+      stage = now
       pending = null
       decodeMs = 0
       decodes = 0
@@ -523,7 +531,7 @@ export function solveGeneral(
   if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && sketchMs >= 50 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
     const now = clock()
     const sketch = sketchShop(c)
-    decodeAsTheyCome.begin()
+    decodeAsTheyCome.begin('sketch')
     const r = solvePairShop(sketch.shop, {
       seed: opts.seed,
       objective: 'weightedTardiness',
@@ -536,7 +544,7 @@ export function solveGeneral(
     })
     evaluations += r.evaluations
     decodeAsTheyCome.finish(sketch, r)
-    hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: clock() - t0 })
+    report('sketch')
   }
 
   // The workshop on the disjunctive graph with its calendars, searched for most of the budget: each candidate move is timed
@@ -550,7 +558,7 @@ export function solveGeneral(
     if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && graphMs >= 20 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
       const now = clock()
       const graph = calendarShop(c, best)
-      decodeAsTheyCome.begin()
+      decodeAsTheyCome.begin('graph')
       const r = solvePairShop(graph.shop, {
         seed: opts.seed + cycle * 7919,
         objective: 'weightedTardiness',
@@ -564,7 +572,7 @@ export function solveGeneral(
       })
       evaluations += r.evaluations
       decodeAsTheyCome.finish(graph, r)
-      hooks.onProgress?.({ iteration: 0, best: scoreOf(best), elapsedMs: clock() - t0 })
+      report('graph')
     }
 
     let curKey: Float64Array = bestKey.slice(),
@@ -665,14 +673,14 @@ export function solveGeneral(
           best = cand
           bestKey = key
           bestChoice = choice
-          hooks.onProgress?.({ iteration: iterations, best: scoreOf(best), elapsedMs: clock() - t0 })
+          report('decoder')
           lastReport = clock()
         }
       }
       if (compareDecoded(cur, history[slot]!, obj) < 0) history[slot] = cur
       if (clock() - lastReport > 500) {
         lastReport = clock()
-        hooks.onProgress?.({ iteration: iterations, best: scoreOf(best), elapsedMs: lastReport - t0 })
+        report('decoder', lastReport - t0)
       }
     }
   }

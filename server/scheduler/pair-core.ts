@@ -69,8 +69,8 @@ export interface PairSettings {
   maxIterations?: number
   shouldStop?: () => boolean
   onImprove?: (value: number, iteration: number) => void
-  /** Each new best schedule: options and starts (read them before returning; the arrays are reused). */
-  onBest?: (option: Int32Array, start: Int32Array) => void
+  /** Each new best schedule: options and starts (read them before returning; the arrays are reused), and the candidates evaluated so far. */
+  onBest?: (option: Int32Array, start: Int32Array, evaluations: number) => void
   /** Schedules to start from as well (each step's option and a start order): sequences are the steps in that order. */
   initial?: { option: Int32Array; start: Float64Array }[]
   /** Tests only: time every candidate also by Kahn's order and throw if the in-order timing differs. */
@@ -1360,7 +1360,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       bestCmax = lastMakespan
       snapshot(best)
       report()
-      settings.onBest?.(opt, rCur)
+      settings.onBest?.(opt, rCur, evaluations)
     } else if (iter - lastImprove > maxStall) perturb()
   }
 
@@ -1420,7 +1420,7 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
       bestCmax = lastMakespan
       snapshot(best)
       report()
-      settings.onBest?.(opt, rCur)
+      settings.onBest?.(opt, rCur, evaluations)
     }
   }
 

@@ -449,11 +449,12 @@ export function solveGeneral(
     }
   }
   let iterations = 0,
-    evaluations = 0
+    evaluations = 0,
+    phaseEvaluations = 0 // moves evaluated so far by the sketch or graph under way (added to evaluations when it ends)
   if (!best) throw new Error('no dispatching rule produced a plan')
   /** Progress: the best plan so far and how many plans were tried to find it (moves on the sketch and the graph, decodes). */
   const report = (stage: SolveStage, elapsedMs = clock() - t0): void =>
-    hooks.onProgress?.({ iteration: evaluations + iterations, best: scoreOf(best!), elapsedMs, stage })
+    hooks.onProgress?.({ iteration: evaluations + phaseEvaluations + iterations, best: scoreOf(best!), elapsedMs, stage })
   report('start', firstPlanMs)
   const done = (): GeneralResult => ({ decoded: best!, iterations, firstPlanMs, evaluations: evaluations + iterations, ...(previous ? { previous } : {}) })
   if (n === 0) return done()
@@ -512,7 +513,8 @@ export function solveGeneral(
       lastDecoded = []
     },
     onBest: (part: { shop: PairShop; real: Uint8Array }, since: number) => {
-      return (option: Int32Array, start: Int32Array): void => {
+      return (option: Int32Array, start: Int32Array, evaluated: number): void => {
+        phaseEvaluations = evaluated
         if (decodeMs * 8 < clock() - since) {
           pending = null
           tryDecode(part, option, start)
@@ -543,6 +545,7 @@ export function solveGeneral(
       onBest: decodeAsTheyCome.onBest(sketch, now),
     })
     evaluations += r.evaluations
+    phaseEvaluations = 0
     decodeAsTheyCome.finish(sketch, r)
     report('sketch')
   }
@@ -571,6 +574,7 @@ export function solveGeneral(
         onBest: decodeAsTheyCome.onBest(graph, now),
       })
       evaluations += r.evaluations
+      phaseEvaluations = 0
       decodeAsTheyCome.finish(graph, r)
       report('graph')
     }

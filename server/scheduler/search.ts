@@ -3,7 +3,7 @@ import type { Interval, Objective, SolveHooks, SolveStage, Violation } from './m
 import { compareDecoded, decode, type Compiled, type CompiledOption, type Decoded, Why } from './decode.ts'
 import { createRng } from './random.ts'
 import { clipToWindows } from './calendar.ts'
-import { solvePairShop, type PairShop } from './pair-core.ts'
+import { solvePairShop, type PairSettings, type PairShop } from './pair-core.ts'
 
 /** Share of the remaining budget given to the search on the disjunctive graph with calendars before the decoder's own search. */
 const GRAPH_SHARE = 0.6
@@ -527,27 +527,36 @@ export function solveGeneral(
     },
   }
 
+  /** One pair-core search of the sketch or the graph from `since` to `deadline`, its better schedules decoded as they come. */
+  const pairStage = (
+    stage: SolveStage,
+    part: { shop: PairShop; real: Uint8Array },
+    since: number,
+    deadline: number,
+    settings: Pick<PairSettings, 'seed' | 'startRules' | 'initial' | 'initialOnly'>,
+  ): void => {
+    decodeAsTheyCome.begin(stage)
+    const r = solvePairShop(part.shop, {
+      ...settings,
+      objective: 'weightedTardiness',
+      deadline,
+      clock,
+      maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
+      ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
+      onBest: decodeAsTheyCome.onBest(part, since),
+    })
+    evaluations += r.evaluations
+    phaseEvaluations = 0
+    decodeAsTheyCome.finish(part, r)
+    report(stage)
+  }
+
   // A calendar-free sketch of the workshop, searched on the disjunctive graph for part of the budget; its order and its bench and
   // person choices seed the calendar search when they decode to a better plan.
   const sketchMs = Math.max(0, (opts.deadline - clock()) * SKETCH_SHARE)
   if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && sketchMs >= 50 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
     const now = clock()
-    const sketch = sketchShop(c)
-    decodeAsTheyCome.begin('sketch')
-    const r = solvePairShop(sketch.shop, {
-      seed: opts.seed,
-      objective: 'weightedTardiness',
-      startRules: SKETCH_RULES,
-      deadline: now + sketchMs,
-      clock,
-      maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
-      ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
-      onBest: decodeAsTheyCome.onBest(sketch, now),
-    })
-    evaluations += r.evaluations
-    phaseEvaluations = 0
-    decodeAsTheyCome.finish(sketch, r)
-    report('sketch')
+    pairStage('sketch', sketchShop(c), now, now + sketchMs, { seed: opts.seed, startRules: SKETCH_RULES })
   }
 
   // The workshop on the disjunctive graph with its calendars, searched for most of the budget: each candidate move is timed
@@ -561,22 +570,7 @@ export function solveGeneral(
     if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && graphMs >= 20 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
       const now = clock()
       const graph = calendarShop(c, best)
-      decodeAsTheyCome.begin('graph')
-      const r = solvePairShop(graph.shop, {
-        seed: opts.seed + cycle * 7919,
-        objective: 'weightedTardiness',
-        deadline: now + graphMs,
-        clock,
-        initial: graph.initial,
-        initialOnly: true,
-        maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
-        ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
-        onBest: decodeAsTheyCome.onBest(graph, now),
-      })
-      evaluations += r.evaluations
-      phaseEvaluations = 0
-      decodeAsTheyCome.finish(graph, r)
-      report('graph')
+      pairStage('graph', graph, now, now + graphMs, { seed: opts.seed + cycle * 7919, initial: graph.initial, initialOnly: true })
     }
 
     let curKey: Float64Array = bestKey.slice(),

@@ -14,8 +14,12 @@ const GRAPH_SHARE = 0.6
  */
 const CYCLE_MS = 12_000,
   MAX_CYCLES = 3
-/** Share of the remaining budget given first to the calendar-free sketch. */
-const SKETCH_SHARE = 0.3
+/**
+ * Share of the remaining budget given first to the calendar-free sketch. 0.15 rather than 0.3 (with the rounds above): lower
+ * weighted lateness in total on twelve runs of three generated workshops at 2 s (0.9 %, eight runs better) and at 10 s (0.7 %,
+ * nine better), and on eight runs at 60 s (1.6 %, six better); 0.08 was 0.3 % worse at 10 s.
+ */
+const SKETCH_SHARE = 0.15
 /**
  * The sketch starts from the apparent-tardiness rule alone: on generated workshops it built the best start every time (1.7–2.7 M
  * min·weight against 3–6 M for weighted slack, modified due date and noisy due date), and each further rule costs 20–90 ms.

@@ -148,10 +148,10 @@ export interface SolveOptions {
   maxIterations?: number
 }
 
-/** Progress report during a solve. */
 /** Which part of the workshop search reported: the first plan, the calendar-free sketch, the calendar graph, the decoder's search. */
 export type SolveStage = 'start' | 'sketch' | 'graph' | 'decoder'
 
+/** Progress report during a solve. */
 export interface SolveProgress {
   /** Plans tried so far: in the workshop search every candidate evaluated (moves on the sketch and the graph, and decodes). */
   iteration: number

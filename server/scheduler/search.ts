@@ -533,13 +533,13 @@ export function solveGeneral(
 
   /** One pair-core search of the sketch or the graph from `since` to `deadline`, its better schedules decoded as they come. */
   const pairStage = (
-    stage: SolveStage,
+    which: SolveStage,
     part: { shop: PairShop; real: Uint8Array },
     since: number,
     deadline: number,
     settings: Pick<PairSettings, 'seed' | 'startRules' | 'initial' | 'initialOnly'>,
   ): void => {
-    decodeAsTheyCome.begin(stage)
+    decodeAsTheyCome.begin(which)
     const r = solvePairShop(part.shop, {
       ...settings,
       objective: 'weightedTardiness',
@@ -552,7 +552,7 @@ export function solveGeneral(
     evaluations += r.evaluations
     phaseEvaluations = 0
     decodeAsTheyCome.finish(part, r)
-    report(stage)
+    report(which)
   }
 
   // A calendar-free sketch of the workshop, searched on the disjunctive graph for part of the budget; its order and its bench and
@@ -567,6 +567,12 @@ export function solveGeneral(
   // exactly on the calendars, re-timing only the steps it touches and those whose predecessors it moves. Its better schedules'
   // order and bench and person choices go through the decoder as they come (which lets branches overlap again and fills gaps,
   // so it is never later) and are kept when better.
+  // The decoder's search: what it may move, and its state kept across the rounds.
+  const historyLen = 40
+  const maxIt = opts.maxIterations ?? Infinity
+  const movable: number[] = []
+  for (let i = 0; i < n; i++) if (!c.fixedAt[i] && c.outsideDays[i]! < 0) movable.push(i)
+  const lastOf = new Int32Array(c.jobs.length)
   const cycles = opts.maxIterations !== undefined ? 1 : Math.max(1, Math.min(MAX_CYCLES, Math.floor((opts.deadline - clock()) / CYCLE_MS)))
   for (let cycle = 0; cycle < cycles; cycle++) {
     const cycleEnd = clock() + (opts.deadline - clock()) / (cycles - cycle)
@@ -577,16 +583,11 @@ export function solveGeneral(
       pairStage('graph', graph, now, now + graphMs, { seed: opts.seed + cycle * 7919, initial: graph.initial, initialOnly: true })
     }
 
+    if (movable.length === 0) break
     let curKey: Float64Array = bestKey.slice(),
       curChoice: Int32Array = bestChoice.slice(),
       cur = best
-    const historyLen = 40
     const history: Decoded[] = new Array(historyLen).fill(cur)
-    const maxIt = opts.maxIterations ?? Infinity
-    const movable: number[] = []
-    for (let i = 0; i < n; i++) if (!c.fixedAt[i] && c.outsideDays[i]! < 0) movable.push(i)
-    if (movable.length === 0) break
-    const lastOf = new Int32Array(c.jobs.length)
     let lastReport = clock()
 
     while (iterations < maxIt) {

@@ -14,7 +14,15 @@ export interface ServerToClientEvents {
   'plan:discarded': (p: ChangePayload) => void
   /** A bar moved or pinned by hand on the live plan. */
   'plan:changed': (p: ChangePayload & { operationId: number }) => void
-  'plan:progress': (p: { runId: string; iteration: number; weightedTardiness: number; makespan: number; elapsedMs: number }) => void
+  /** A planner run's newest best (stage: the search's stage, as in the run's progress). */
+  'plan:progress': (p: {
+    runId: string
+    iteration: number
+    weightedTardiness: number
+    makespan: number
+    elapsedMs: number
+    stage?: 'start' | 'sketch' | 'graph' | 'decoder'
+  }) => void
   /** A planner run ended with an error (or its instance went away for good): nothing was drafted. */
   'plan:failed': (p: { runId: string; error: string; seq?: number; origin?: string }) => void
   'masterdata:changed': (p: ChangePayload & { entity: string }) => void

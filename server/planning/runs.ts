@@ -178,8 +178,16 @@ export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?:
       {
         signal: controller.signal,
         onProgress: (p) => {
-          progress = { iteration: p.iteration, weightedTardiness: p.best.weightedTardiness, makespan: p.best.makespan, elapsedMs: p.elapsedMs }
-          if (p.elapsedMs - lastEmit > 250) {
+          const stageChanged = p.stage !== progress?.stage
+          progress = {
+            iteration: p.iteration,
+            weightedTardiness: p.best.weightedTardiness,
+            makespan: p.best.makespan,
+            elapsedMs: p.elapsedMs,
+            ...(p.stage ? { stage: p.stage } : {}),
+          }
+          // At most four reports a second, but a new stage is always sent.
+          if (p.elapsedMs - lastEmit > 250 || stageChanged) {
             lastEmit = p.elapsedMs
             deps.realtime.emitTransient(row.workshopId, 'plan:progress', { runId, ...progress })
           }

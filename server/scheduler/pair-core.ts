@@ -71,6 +71,8 @@ export interface PairSettings {
   onImprove?: (value: number, iteration: number) => void
   /** Each new best schedule: options and starts (read them before returning; the arrays are reused), and the candidates evaluated so far. */
   onBest?: (option: Int32Array, start: Int32Array, evaluations: number) => void
+  /** Every few iterations of the search: the candidates evaluated so far and the clock reading it just took (no extra reading). */
+  onTick?: (evaluations: number, now: number) => void
   /** Schedules to start from as well (each step's option and a start order): sequences are the steps in that order. */
   initial?: { option: Int32Array; start: Float64Array }[]
   /** Tests only: time every candidate also by Kahn's order and throw if the in-order timing differs. */
@@ -1225,8 +1227,10 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
   const stopNow = (): boolean => {
     if (iter >= maxIter) return true
     if ((iter & 7) === 0) {
-      if (settings.clock() >= settings.deadline) return true
+      const now = settings.clock()
+      if (now >= settings.deadline) return true
       if (settings.shouldStop?.()) return true
+      settings.onTick?.(evaluations, now)
     }
     return false
   }

@@ -61,7 +61,7 @@ export function runInWorker(
     }
     opts.signal?.addEventListener('abort', onAbort, { once: true })
     worker.on('message', (m: WorkerReply) => {
-      if (m.type === 'progress') opts.onProgress?.({ iteration: m.iteration, best: m.best, elapsedMs: m.elapsedMs })
+      if (m.type === 'progress') opts.onProgress?.({ iteration: m.iteration, best: m.best, elapsedMs: m.elapsedMs, ...(m.stage ? { stage: m.stage } : {}) })
       else if (m.type === 'done') finish(() => resolvePlan(m.plan))
       else
         finish(() =>

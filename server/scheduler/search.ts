@@ -540,6 +540,9 @@ export function solveGeneral(
     settings: Pick<PairSettings, 'seed' | 'startRules' | 'initial' | 'initialOnly'>,
   ): void => {
     decodeAsTheyCome.begin(which)
+    // Said when the stage begins and every half second while it runs, even when nothing better comes (as the decoder's search does).
+    report(which)
+    let lastBeat = clock()
     const r = solvePairShop(part.shop, {
       ...settings,
       objective: 'weightedTardiness',
@@ -548,6 +551,12 @@ export function solveGeneral(
       maxIterations: opts.maxIterations !== undefined ? opts.maxIterations * 20 : Infinity,
       ...(hooks.shouldStop ? { shouldStop: hooks.shouldStop } : {}),
       onBest: decodeAsTheyCome.onBest(part, since),
+      onTick: (evaluated, now) => {
+        if (now - lastBeat < 500) return
+        lastBeat = now
+        phaseEvaluations = evaluated
+        report(which, now - t0)
+      },
     })
     evaluations += r.evaluations
     phaseEvaluations = 0

@@ -5,7 +5,7 @@ import type { Problem, SolveOptions } from './model.ts'
 
 /** Message from the worker to its owner. */
 export type WorkerReply =
-  | { type: 'progress'; iteration: number; best: import('./model.ts').Score; elapsedMs: number }
+  | { type: 'progress'; iteration: number; best: import('./model.ts').Score; elapsedMs: number; stage?: import('./model.ts').SolveStage }
   | { type: 'done'; plan: import('./model.ts').Plan }
   | { type: 'error'; name: string; message: string; code?: string; jobId?: string; operationId?: string }
 
@@ -16,7 +16,7 @@ try {
   const plan = solve(problem, options, {
     clock: () => performance.now(),
     shouldStop: () => Atomics.load(flag, 0) !== 0,
-    onProgress: (p) => post({ type: 'progress', iteration: p.iteration, best: p.best, elapsedMs: p.elapsedMs }),
+    onProgress: (p) => post({ type: 'progress', iteration: p.iteration, best: p.best, elapsedMs: p.elapsedMs, ...(p.stage ? { stage: p.stage } : {}) }),
   })
   post({ type: 'done', plan })
 } catch (e) {

@@ -67,7 +67,15 @@ export type PlanAssignment = z.infer<typeof planAssignment>
 // ---- Answers ----
 
 /** A planner run's progress (the newest the instance running it wrote). */
-export const runProgress = z.object({ iteration: z.number(), weightedTardiness: z.number(), makespan: z.number(), elapsedMs: z.number() })
+/** The search's stage at the report: the first plan, the rough order without calendars, the order on the calendars, step by step. */
+export const runStage = z.enum(['start', 'sketch', 'graph', 'decoder'])
+export const runProgress = z.object({
+  iteration: z.number(),
+  weightedTardiness: z.number(),
+  makespan: z.number(),
+  elapsedMs: z.number(),
+  stage: runStage.optional(),
+})
 export const planRun = z.object({
   id: z.string(),
   /** queued: waiting for an app instance to take it; running: solving (on whichever instance took it). */

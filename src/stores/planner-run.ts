@@ -62,7 +62,13 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
     if (run.value?.id !== p.runId || !active.value) return
     if (run.value.status === 'queued') run.value = { ...run.value, status: 'running' }
     if (!progress.value || p.elapsedMs >= progress.value.elapsedMs)
-      progress.value = { iteration: p.iteration, weightedTardiness: p.weightedTardiness, makespan: p.makespan, elapsedMs: p.elapsedMs }
+      progress.value = {
+        iteration: p.iteration,
+        weightedTardiness: p.weightedTardiness,
+        makespan: p.makespan,
+        elapsedMs: p.elapsedMs,
+        ...(p.stage ? { stage: p.stage } : {}),
+      }
   }
 
   /** plan:drafted: returns whether the draft is our run's (a draft without a run id while ours runs counts as ours). */

@@ -156,6 +156,10 @@ describe('the planning board', () => {
       .locator('[data-test=plan-progress-lateness]')
       .filter({ hasText: /^[\d,.]+$/ })
       .waitFor({ timeout: 10_000 })
+    // The dialog says what the search is doing in the workshop's words.
+    await expect(manager.locator('[data-test=plan-stage]').textContent()).resolves.toMatch(
+      /first plan from due dates|rough order, working hours set aside|reordering benches and people|laying the plan out/,
+    )
     await screenshot(manager, 'board-02-planning')
     const banner = manager.locator('[data-test=draft-banner]')
     await banner.locator('[data-test=draft-moves]').waitFor({ timeout: 20_000 })

@@ -6,20 +6,23 @@ import { SchedulingInputError, validatePlan } from '../../server/scheduler/index
 import { makeOperation, makeProblem } from './builders.ts'
 
 describe('runInWorker', () => {
-  it('when a workshop is planned in a worker, then a valid plan comes back with progress on the way', async () => {
+  it('when a workshop is planned in a worker, then a valid plan comes back with progress on the way, each report naming its stage', async () => {
     const problem = generateWorkshop({ seed: 5, jobs: 15 })
-    let reports = 0
+    const stages: (string | undefined)[] = []
     const plan = await runInWorker(
       problem,
       { seed: 1, timeLimitMs: 300 },
       {
-        onProgress: () => {
-          reports++
+        onProgress: (p) => {
+          stages.push(p.stage)
         },
       },
     )
     expect(validatePlan(problem, plan)).toEqual([])
-    expect(reports).toBeGreaterThan(0)
+    expect(stages.length).toBeGreaterThan(0)
+    // The first report is the first plan; every report names one of the search's stages (see SolveProgress in model.ts).
+    expect(stages[0]).toBe('start')
+    for (const s of stages) expect(['start', 'sketch', 'graph', 'decoder']).toContain(s)
   })
 
   it('when the run is aborted, then it stops early and resolves with the best plan so far', async () => {

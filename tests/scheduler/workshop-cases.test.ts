@@ -86,13 +86,13 @@ describe.skipIf(!haveKit)('kit workshop problems through both validators (skippe
     // ws-c (200 job bags) stays late after its first plan, so every round has lateness to work on (ws-a and ws-b reach none).
     const problem = load(join(wsDir, 'ws-c.json'))
     let now = 0
-    const reports: { stage?: string; tried: number }[] = []
+    const reports: { stage?: string; tried: number; ms: number }[] = []
     const plan = solve(
       problem,
       { seed: 3, timeLimitMs: 60_000 },
       {
         clock: () => (now += 150),
-        onProgress: (p) => reports.push({ tried: p.iteration, ...(p.stage ? { stage: p.stage } : {}) }),
+        onProgress: (p) => reports.push({ tried: p.iteration, ms: p.elapsedMs, ...(p.stage ? { stage: p.stage } : {}) }),
       },
     )
     // Three rounds of 12 s fit in what the sketch leaves of 60 s: each round's graph reports (at least at its end) after the
@@ -101,6 +101,10 @@ describe.skipIf(!haveKit)('kit workshop problems through both validators (skippe
     expect(rounds).toBe(3)
     // The count of plans tried never goes back, across the rounds.
     for (let k = 1; k < reports.length; k++) expect(reports[k]!.tried).toBeGreaterThanOrEqual(reports[k - 1]!.tried)
+    // The planner's dialog never goes quiet for long: every stage reports when it begins and every half second while it runs,
+    // better plan or not. On this clock that leaves at most 2 s between reports (a stage without those reports went 11 s).
+    for (let k = 1; k < reports.length; k++) expect(reports[k]!.ms - reports[k - 1]!.ms).toBeLessThanOrEqual(2000)
+    expect(plan.stats.elapsedMs - reports[reports.length - 1]!.ms).toBeLessThanOrEqual(2000)
     expect(validatePlan(problem, plan)).toEqual([])
     const r = independent(problem, plan, 'ws-c-rounds')
     expect(r.out).toContain('valid')

@@ -349,6 +349,8 @@ describe('live updates', () => {
       })
       const salesGot: string[] = []
       salesSock.onAny((event) => salesGot.push(event))
+      const progressSeen: any[] = []
+      sock.on('plan:progress', (p) => progressSeen.push(p))
       const got = new Promise<any>((res) => sock.on('plan:drafted', res))
       const r = await fetch(`${srv.url}/api/plans/runs`, {
         method: 'POST',
@@ -358,6 +360,10 @@ describe('live updates', () => {
       expect(r.status).toBe(202)
       const ev = await got
       expect(ev).toMatchObject({ id: expect.any(Number), seq: expect.any(Number) })
+      // Progress came first, each naming the search's stage; the first is the first plan (a new stage is always sent).
+      expect(progressSeen.length).toBeGreaterThan(0)
+      expect(progressSeen[0].stage).toBe('start')
+      for (const p of progressSeen) expect(['start', 'sketch', 'graph', 'decoder']).toContain(p.stage)
       // Catch-up after a dropped connection: everything since a sequence number.
       const missed = await new Promise<any[]>((res) => sock.emit('changes:since', 0, res))
       expect(missed.some((e) => e.event === 'plan:drafted')).toBe(true)

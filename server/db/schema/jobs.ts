@@ -19,6 +19,8 @@ export interface PlanRunProgress {
   weightedTardiness: number
   makespan: number
   elapsedMs: number
+  /** The search's stage at the report (SolveStage). */
+  stage?: 'start' | 'sketch' | 'graph' | 'decoder'
 }
 
 /**

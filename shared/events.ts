@@ -1,5 +1,7 @@
 // Typed Socket.IO events (domain:pastTense), sent to the room of one workshop. Payloads stay small: ids and versions.
 // A type alias (not an interface), so a payload also reads as a plain Record<string, unknown>.
+import type { RunProgress } from './schemas/plan'
+
 /** `origin`: the browser tab whose request caused the change (its x-client-id), absent for jobs and scripts. */
 export type ChangePayload = { id: number; version?: number; seq: number; origin?: string }
 
@@ -14,15 +16,8 @@ export interface ServerToClientEvents {
   'plan:discarded': (p: ChangePayload) => void
   /** A bar moved or pinned by hand on the live plan. */
   'plan:changed': (p: ChangePayload & { operationId: number }) => void
-  /** A planner run's newest best (stage: the search's stage, as in the run's progress). */
-  'plan:progress': (p: {
-    runId: string
-    iteration: number
-    weightedTardiness: number
-    makespan: number
-    elapsedMs: number
-    stage?: 'start' | 'sketch' | 'graph' | 'decoder'
-  }) => void
+  /** A planner run's newest progress (as the run stores it). */
+  'plan:progress': (p: { runId: string } & RunProgress) => void
   /** A planner run ended with an error (or its instance went away for good): nothing was drafted. */
   'plan:failed': (p: { runId: string; error: string; seq?: number; origin?: string }) => void
   'masterdata:changed': (p: ChangePayload & { entity: string }) => void

@@ -66,9 +66,10 @@ export type PlanAssignment = z.infer<typeof planAssignment>
 
 // ---- Answers ----
 
-/** A planner run's progress (the newest the instance running it wrote). */
 /** The search's stage at the report: the first plan, the rough order without calendars, the order on the calendars, step by step. */
 export const runStage = z.enum(['start', 'sketch', 'graph', 'decoder'])
+export type RunStage = z.infer<typeof runStage>
+/** A planner run's progress (the newest the instance running it wrote). */
 export const runProgress = z.object({
   iteration: z.number(),
   weightedTardiness: z.number(),

@@ -1,6 +1,7 @@
 // Work done through the job queue (server/jobs): planner runs any instance can follow, and the daily mail done once per workshop and day.
 import { sql } from 'drizzle-orm'
 import { boolean, date, index, integer, jsonb, pgTable, primaryKey, text, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
+import type { RunProgress } from '../../../shared/schemas/plan'
 import { createdAt, instant } from './common'
 import { planVersions } from './work'
 import { users, workshops } from './workshop'
@@ -14,14 +15,7 @@ export interface PlanRunOptions {
   stability: 'small-changes' | 'best-dates'
   now?: string
 }
-export interface PlanRunProgress {
-  iteration: number
-  weightedTardiness: number
-  makespan: number
-  elapsedMs: number
-  /** The search's stage at the report (SolveStage). */
-  stage?: 'start' | 'sketch' | 'graph' | 'decoder'
-}
+export type PlanRunProgress = RunProgress
 
 /**
  * One planner run: submitted on any instance, run by the one that takes its job. `attempt` counts the takes; only the

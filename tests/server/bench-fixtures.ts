@@ -1,6 +1,6 @@
 // Fixtures for the bench-floor API tests: ready operations made in the test database, extra skilled people, ids by name.
 import { randomUUID } from 'node:crypto'
-import { and, asc, eq } from 'drizzle-orm'
+import { and, asc, eq, notInArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { hashPassword } from '../../server/services/users'
 import { Agent, type TestApp } from '../setup/app'
@@ -16,7 +16,13 @@ export async function personIdOf(t: TestApp, email: string): Promise<number> {
   return personIdByEmail(t.db, email)
 }
 
-/** Open-order operations of one kind (optionally of one routing step key), earliest due first. */
+/** Operations a test keeps for itself: openOps (and so freshReady) never hands them to another test. */
+const reserved = new Set<number>()
+export function reserveOp(id: number): void {
+  reserved.add(id)
+}
+
+/** Open-order operations of one kind (optionally of one routing step key), earliest due first, none of them reserved. */
 export async function openOps(
   t: TestApp,
   kind: string,
@@ -35,6 +41,7 @@ export async function openOps(
         eq(s.orders.status, 'open'),
         o.key == null ? undefined : eq(o2.key, o.key),
         o.status == null ? undefined : eq(o2.status, o.status),
+        reserved.size === 0 ? undefined : notInArray(o2.id, [...reserved]),
       ),
     )
     .orderBy(asc(s.orders.dueDate), asc(s.jobBags.number), asc(o2.seq))

@@ -269,6 +269,8 @@ export const stepAccount = lossFigures.extend({
   kind: z.string().nullable(),
   tolerancePct: z.number().nullable(),
   overTolerance: z.boolean(),
+  /** Metal went out to the step, nothing has come back and the step is not finished: the metal is at the bench, not lost. */
+  atBench: z.boolean(),
 })
 export type StepAccount = z.infer<typeof stepAccount>
 export const personAccount = lossFigures.extend({ personId: wireInt.nullable(), name: z.string() })

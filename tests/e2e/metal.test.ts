@@ -78,6 +78,9 @@ describe('metal on the bench and the owner’s metal screen', () => {
     await expect.poll(() => w.locator('[data-test=weigh-net]').innerText()).toBe('12.00 g')
     await w.locator('[data-test=weigh-submit]').click()
     await expect.poll(() => w.locator('[data-test=balance-out]').innerText(), { timeout: 15_000 }).toBe('12.00 g')
+    // Nothing back yet: the 12 g are at the bench, not a loss, and no alarm.
+    await expect(w.locator('[data-test=balance-at-bench]').innerText()).resolves.toBe('At the bench 12.00 g')
+    await expect(w.locator('[data-test=balance-tolerance]').innerText()).resolves.not.toMatch(/^Over/)
 
     // Back in the same container: 12.70 → the piece 11.20 g, 1.85 → scrap 0.35 g, 1.70 → lemel 0.20 g.
     await w.locator('[data-test=weigh-mode-back]').click()

@@ -58,6 +58,15 @@ describe('a hand-worked job bag', () => {
     expect(tol.body.version).toBe(v0 + 1)
     const base = { jobBagId: bag.id, alloyId: alloy.id, personId, operationId: opId }
     expect((await as.bench.post('/api/metal/issues', { ...base, weightG: 12 })).status).toBe(201)
+    // Out and nothing back yet, the step still open: the 12 g are at the bench, not a 100 % loss over the 2 % allowed.
+    const early = (await as.sales.get(`/api/job-bags/${bag.id}/metal`)).body
+    expect(early.bySteps.find((s: { operationId: number }) => s.operationId === opId)).toMatchObject({
+      issuedMg: 12000,
+      returnedMg: 0,
+      atBench: true,
+      overTolerance: false,
+    })
+    expect(early.overTolerance).toBe(false)
     for (const [form, weightG] of [
       ['piece', 11.2],
       ['scrap', 0.35],
@@ -84,6 +93,7 @@ describe('a hand-worked job bag', () => {
     })
     const step = acc.body.bySteps.find((s: { operationId: number }) => s.operationId === opId)
     expect(step.tolerancePct).toBe(2)
+    expect(step.atBench).toBe(false)
     expect(step.overTolerance).toBe(true)
     expect(acc.body.overTolerance).toBe(true)
     expect(acc.body.toleranceNote).toMatch(/common practice, no published source/)

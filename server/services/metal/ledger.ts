@@ -262,13 +262,16 @@ export async function jobBagMetal(db: Db, actor: Actor, jobBagId: number): Promi
       const op = ops.find((o) => o.id === opId)
       const tol = op ? (tolerances.get(op.kindId)?.tolerancePct ?? FALLBACK_LOSS_TOLERANCE_PCT) : null
       const f = lossFigures(rs)
+      // Weighed out and nothing back yet while the step is still open: the metal is at the bench, not lost.
+      const atBench = f.issuedMg > 0 && f.returnedMg === 0 && !!op && op.status !== 'done' && op.status !== 'skipped'
       return {
         operationId: opId,
         name: op?.name ?? 'Not tied to a step',
         kindId: op?.kindId ?? null,
         kind: op?.kindName ?? null,
         tolerancePct: tol,
-        overTolerance: over(f, tol),
+        overTolerance: !atBench && over(f, tol),
+        atBench,
         ...f,
         seq: op?.seq ?? 1e9,
       }

@@ -316,6 +316,8 @@ export const lossTable = z.object({
   filter: z.object({ from: z.string().optional(), to: z.string().optional() }),
   rows: z.array(lossRow),
   total: lossRow,
+  /** Units left out because their metal is still at the bench (out to a step still open, nothing back yet). */
+  atBench: wireInt,
   toleranceNote: z.string(),
 })
 export type LossTable = z.infer<typeof lossTable>

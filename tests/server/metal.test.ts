@@ -57,7 +57,12 @@ describe('a hand-worked job bag', () => {
     expect(tol.status, JSON.stringify(tol.body)).toBe(200)
     expect(tol.body.version).toBe(v0 + 1)
     const base = { jobBagId: bag.id, alloyId: alloy.id, personId, operationId: opId }
+    const before = (await as.owner.get('/api/metal/losses?groupBy=kind')).body
     expect((await as.bench.post('/api/metal/issues', { ...base, weightG: 12 })).status).toBe(201)
+    // The owner's loss figures leave that unit out until metal comes back: one more at the bench, the loss unchanged.
+    const during = (await as.owner.get('/api/metal/losses?groupBy=kind')).body
+    expect(during.atBench).toBe(before.atBench + 1)
+    expect(during.total.lossG).toBeCloseTo(before.total.lossG, 3)
     // Out and nothing back yet, the step still open: the 12 g are at the bench, not a 100 % loss over the 2 % allowed.
     const early = (await as.sales.get(`/api/job-bags/${bag.id}/metal`)).body
     expect(early.bySteps.find((s: { operationId: number }) => s.operationId === opId)).toMatchObject({

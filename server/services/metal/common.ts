@@ -129,6 +129,8 @@ export interface Joined {
   fineness: number
   opName: string | null
   kindId: number | null
+  /** The step's status (null when not tied to a step). */
+  opStatus: string | null
   personName: string | null
   recordedBy: string | null
 }
@@ -141,6 +143,7 @@ export async function joinedRows(db: Tx, where: ReturnType<typeof and>): Promise
       fineness: alloys.fineness,
       opName: operations.name,
       kindId: operations.kindId,
+      opStatus: operations.status,
       personName: people.name,
       recordedBy: users.name,
     })

@@ -1,4 +1,5 @@
-// The workshop's e-mail texts: promise confirmation, ready for collection, and the managers' daily at-risk digest.
+// The workshop's e-mail texts: promise confirmation, a quote, ready for collection, and the managers' daily at-risk digest.
+import { minorToMajor } from '../../shared/domain/currency'
 import { dayjs } from '../lib/time'
 
 export interface MailContent {
@@ -63,6 +64,43 @@ export function promiseConfirmation(o: {
       'We will write again when it is ready to collect.',
     ]),
   }
+}
+
+/** A quote e-mailed to the customer: the piece named in quotation marks (any name reads), the money, the dates and the deposit link. */
+export function quoteOffer(o: {
+  workshopName: string
+  customerName: string
+  quoteNumber: string
+  title: string
+  description: string
+  currency: string
+  priceMinor: number
+  depositMinor: number
+  promisedDate: string | null
+  validUntil: string
+  depositUrl: string | null
+}): MailContent {
+  const m = (minor: number) => money(minorToMajor(minor, o.currency), o.currency)
+  const text = [
+    `Dear ${o.customerName},`,
+    '',
+    `Thank you for your enquiry about "${o.title}". Here is our quote ${o.quoteNumber}:`,
+    '',
+    ...(o.description ? [o.description, ''] : []),
+    `Price: ${m(o.priceMinor)}`,
+    `Deposit to start the work: ${m(o.depositMinor)}`,
+    `Balance at collection: ${m(o.priceMinor - o.depositMinor)}`,
+    ...(o.promisedDate ? [`Ready by: ${longDate(o.promisedDate)}`] : []),
+    `This quote stands until ${longDate(o.validUntil)}.`,
+    '',
+    ...(o.depositUrl ? [`Pay the deposit securely here: ${o.depositUrl}`, 'Paying the deposit accepts the quote.', ''] : []),
+    `— ${o.workshopName}`,
+  ].join('\n')
+  const html = `<div style="font-family:sans-serif;line-height:1.5">${text
+    .split('\n')
+    .map((l) => (l.startsWith('Pay the deposit') && o.depositUrl ? `<p><a href="${esc(o.depositUrl)}">Pay the deposit</a></p>` : l ? `<p>${esc(l)}</p>` : ''))
+    .join('')}</div>`
+  return { subject: `${o.workshopName}: quote ${o.quoteNumber} for "${o.title}"`, text, html }
 }
 
 export function readyForCollection(o: { workshop: WorkshopContact; customerName: string; orderNumber: string; title: string }): MailContent {

@@ -7,7 +7,7 @@ import * as s from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
-import { money } from '../mail/messages'
+import { money, quoteOffer } from '../mail/messages'
 import { minorToMajor } from '../../shared/domain/currency'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
@@ -218,6 +218,8 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
   const before = await getQuote(deps.db, actor.workshopId, id)
   if (!['drafted', 'sent'].includes(before.status)) throw wrongState(before.status, 'sent')
   if (before.version !== version) throw staleVersion('The quote')
+  // A draft kept before prices above zero were required is not sent for nothing.
+  if (before.priceMinor < 1) throw invalid('priceMinor', 'must be more than zero')
   let link = before.links.find((l) => l.status === 'open' && l.purpose === 'deposit')
   if (!link && before.depositMinor > 0)
     link = await createLink(deps, actor, {
@@ -231,34 +233,26 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
     })
   await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'sent', sentAt: new Date().toISOString() }, 'sent')
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
-  const m = (minor: number) => money(minorToMajor(minor, before.currency), before.currency)
-  const text = [
-    `Dear ${before.customerName},`,
-    '',
-    `Thank you for asking us to make ${before.title}. Our quote ${before.number}:`,
-    '',
-    ...(before.description ? [before.description, ''] : []),
-    `Price: ${m(before.priceMinor)}`,
-    `Deposit to start the work: ${m(before.depositMinor)}`,
-    `Balance at collection: ${m(before.priceMinor - before.depositMinor)}`,
-    ...(before.promisedDate ? [`Ready by: ${dayjs(before.promisedDate).format('dddd D MMMM YYYY')}`] : []),
-    `This quote stands until ${dayjs(before.validUntil).format('dddd D MMMM YYYY')}.`,
-    '',
-    ...(link ? [`Pay the deposit securely here: ${link.url}`, 'Paying the deposit accepts the quote.', ''] : []),
-    `— ${w!.name}`,
-  ].join('\n')
-  const html = `<div style="font-family:sans-serif;line-height:1.5">${text
-    .split('\n')
-    .map((l) => l.replace(/[&<>]/g, (x) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[x]!))
-    .map((l) => (l.startsWith('Pay the deposit') && link ? `<p><a href="${link.url}">Pay the deposit</a></p>` : l ? `<p>${l}</p>` : ''))
-    .join('')}</div>`
+  const content = quoteOffer({
+    workshopName: w!.name,
+    customerName: before.customerName,
+    quoteNumber: before.number,
+    title: before.title,
+    description: before.description,
+    currency: before.currency,
+    priceMinor: before.priceMinor,
+    depositMinor: before.depositMinor,
+    promisedDate: before.promisedDate,
+    validUntil: before.validUntil,
+    depositUrl: link?.url ?? null,
+  })
   await sendRecorded(deps, {
     workshopId: actor.workshopId,
     to: before.customerEmail,
     kind: 'quote',
     orderId: before.orderId,
     meta: { quoteId: id, linkId: link?.id ?? null },
-    content: { subject: `${w!.name}: quote ${before.number} for ${before.title}`, text, html },
+    content,
   })
   return getQuote(deps.db, actor.workshopId, id)
 }
@@ -367,7 +361,7 @@ export async function sendMoneyReminders(deps: Pick<Deps, 'db' | 'realtime' | 'm
     .leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId))
     .where(and(eq(s.quotes.workshopId, workshopId), eq(s.quotes.status, 'sent'), sql`${s.quotes.validUntil} <= ${soon}`))) {
     if (sent.some((x) => x.kind === 'quote-reminder' && x.meta?.quoteId === q.id)) continue
-    const text = `Dear ${q.customerName},\n\nOur quote ${q.number} for ${q.title} stands until ${dayjs(q.validUntil).format('dddd D MMMM YYYY')}. Paying the deposit accepts it.\n\n— ${w!.name}`
+    const text = `Dear ${q.customerName},\n\nOur quote ${q.number} for "${q.title}" stands until ${dayjs(q.validUntil).format('dddd D MMMM YYYY')}. Paying the deposit accepts it.\n\n— ${w!.name}`
     await sendRecorded(deps, {
       workshopId,
       to: q.customerEmail,

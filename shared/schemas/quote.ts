@@ -32,6 +32,8 @@ export const quoteDetails = z.object({
     .max(100)
     .optional(),
 })
+/** A quote's price: a quote asks the customer for money, so nothing or less is refused. */
+export const quotePrice = minorAmount.min(1, 'must be more than zero')
 export const quoteConfidence = z.object({ p50: isoDate.optional(), p80: isoDate.optional(), p95: isoDate.optional(), note: z.string().max(300).optional() })
 
 const quoteFields = {
@@ -40,7 +42,7 @@ const quoteFields = {
   details: quoteDetails,
   promisedDate: isoDate.nullable(),
   confidence: quoteConfidence.nullable(),
-  priceMinor: minorAmount,
+  priceMinor: quotePrice,
   depositMinor: minorAmount,
   validUntil: isoDate,
 }
@@ -64,7 +66,7 @@ export const quoteUpdate = z.object({
   details: quoteDetails.optional(),
   promisedDate: isoDate.nullable().optional(),
   confidence: quoteConfidence.nullable().optional(),
-  priceMinor: minorAmount.optional(),
+  priceMinor: quotePrice.optional(),
   depositMinor: minorAmount.optional(),
   validUntil: isoDate.optional(),
   version,

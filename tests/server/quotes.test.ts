@@ -1,4 +1,4 @@
-// Quotes: the state rules (drafted → sent → accepted, withdrawn or expired) and the daily money reminders sent by the timer.
+// Quotes: the price above zero, the state rules (drafted → sent → accepted, withdrawn or expired), the e-mail's wording and the daily money reminders sent by the timer.
 import { createServer, type Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -11,6 +11,7 @@ import { count as countRows, eq, inArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { firstCustomerId } from '../setup/fixtures'
+import { expectFieldError } from './helpers'
 
 let t: TestApp, fake: PayFake, http: Server
 let sales: Agent, manager: Agent
@@ -42,6 +43,68 @@ const send = async (q: { id: number; version: number }) => {
   expect(r.status, JSON.stringify(r.body)).toBe(200)
   return r.body
 }
+
+/** How many quotes and quote e-mails the database holds: a refused request must leave both as they were. */
+const stored = async () => ({
+  quotes: (await t.db.select({ n: countRows() }).from(s.quotes))[0]!.n,
+  mails: (await t.db.select({ n: countRows() }).from(s.outbox).where(eq(s.outbox.kind, 'quote')))[0]!.n,
+})
+
+describe('the price', () => {
+  it('when a quote is written with a price of 0, then it is refused with 400 naming priceMinor, and nothing is stored or e-mailed', async () => {
+    const before = await stored()
+    const r = await sales.post('/api/quotes', { customerId, title: 'Signet ring', priceMinor: 0, currency: 'GBP' })
+    expectFieldError(r, 'priceMinor', /^must be more than zero$/)
+    expect(await stored()).toEqual(before)
+  })
+
+  it('when a draft’s price is changed to 0, then the change is refused with 400 naming priceMinor and the draft keeps its price', async () => {
+    const q = await drafted()
+    const r = await sales.patch(`/api/quotes/${q.id}`, { priceMinor: 0, version: q.version })
+    expectFieldError(r, 'priceMinor', /more than zero/)
+    expect((await sales.get(`/api/quotes/${q.id}`)).body).toMatchObject({ priceMinor: 125000, version: q.version })
+  })
+
+  it('when a draft kept with a price of 0 is sent, then sending is refused with 400 naming priceMinor and no e-mail goes out', async () => {
+    const q = await drafted()
+    // A draft from before the price had to be above zero: written straight to the table, as the old rule allowed.
+    await t.db.update(s.quotes).set({ priceMinor: 0, depositMinor: 0 }).where(eq(s.quotes.id, q.id))
+    const before = await stored()
+    const r = await sales.post(`/api/quotes/${q.id}/send`, { version: q.version })
+    expectFieldError(r, 'priceMinor', /more than zero/)
+    expect(await stored()).toEqual(before)
+    expect((await sales.get(`/api/quotes/${q.id}`)).body.status).toBe('drafted')
+  })
+})
+
+describe('the quote e-mail', () => {
+  it('when a quote is sent, then the e-mail names the piece in quotation marks and says the amounts and the dates in words', async () => {
+    const q = await drafted({
+      title: 'Bezel-set solitaire ring',
+      description: 'Made to your sketch.',
+      priceMinor: 64000,
+      promisedDate: '2031-03-07',
+      validUntil: '2031-03-14',
+    })
+    const sent = await send(q)
+    const mails = (await manager.get('/api/outbox?kind=quote&pageSize=100')).body.items as { id: number; subject: string }[]
+    const mine = mails.filter((m) => m.subject.includes(sent.number))
+    expect(mine).toHaveLength(1)
+    expect(mine[0]!.subject).toMatch(new RegExp(`: quote ${sent.number} for "Bezel-set solitaire ring"$`))
+    const text = (await manager.get(`/api/outbox/${mine[0]!.id}`)).body.text as string
+    const lines = text.split('\n')
+    expect(lines).toContain(`Thank you for your enquiry about "Bezel-set solitaire ring". Here is our quote ${sent.number}:`)
+    expect(lines).toContain('Made to your sketch.')
+    // £640.00 with the demo workshop's 30 % deposit: £192.00 now and £448.00 at collection (hand-worked).
+    expect(lines).toContain('Price: £640.00')
+    expect(lines).toContain('Deposit to start the work: £192.00')
+    expect(lines).toContain('Balance at collection: £448.00')
+    // 1 January 2031 is a Wednesday, so 1 March is a Saturday, 7 March and 14 March are Fridays (hand-worked).
+    expect(lines).toContain('Ready by: Friday 7 March 2031')
+    expect(lines).toContain('This quote stands until Friday 14 March 2031.')
+    expect(text).not.toMatch(/asking us to make/)
+  })
+})
 
 describe('quote states', () => {
   it('when a draft is changed, sent and accepted, then each step moves it on, and a sent quote can no longer be changed', async () => {

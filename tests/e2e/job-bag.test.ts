@@ -19,8 +19,14 @@ describe('job bag page', () => {
     await setStepStatus(e2e.db.db, hm.id, 'ready')
     const page = await signInPage(await e2e.newContext(), 'manager')
     await page.goto(`/job-bags/${hm.jobBagId}`)
+    // The next step is outside work: the page says so and offers nothing to take at a bench.
+    await expect
+      .poll(() => page.locator('[data-test=next-step-outside]').innerText(), { timeout: 15_000 })
+      .toMatch(/is outside work .*nothing to take at a bench/s)
+    await expect(page.locator('[data-test=claim]').count()).resolves.toBe(0)
     await page.locator(`[data-test=send-out-${hm.id}]`).click()
     await page.locator(`[data-test=book-back-${hm.id}]`).waitFor()
+    await expect.poll(() => page.locator('[data-test=next-step-outside]').innerText(), { timeout: 15_000 }).toMatch(/the bag is away/)
     // Drizzle reads a moment as ISO text (server/db/schema/common.ts instant): a planned start is set.
     expect(await step(hm.id)).toMatchObject({ status: 'running', plannedStart: expect.any(String) })
     await screenshot(page, 'job-bag-sent-out', { fullPage: false })

@@ -118,6 +118,8 @@ describe('the bench tablet', () => {
     await screenshot(page, 'bench-04-pause-dialog-landscape')
     await page.locator('[data-test=confirm-pause]').click()
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=paused]`).waitFor()
+    // Paused for the night, the metal can still be weighed back before the bag goes to the safe.
+    await page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=metal-weigh] [data-test=weigh-mode-back]`).waitFor()
     await manager.page.waitForFunction((id) => document.querySelector(`[data-test="status-${id}"]`)?.textContent?.includes('Paused'), op.id, {
       timeout: 10_000,
     })

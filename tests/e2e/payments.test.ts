@@ -38,7 +38,7 @@ describe('quotes and deposits', () => {
   let linkUrl = ''
   let draftNumber = ''
 
-  it('when sales writes a quote from a promise check and keeps it as a draft, then it keeps the routing, the promised date and how sure it is', async () => {
+  it('when sales writes a quote from a promise check, then a price of 0 is refused by the Price field and nothing is kept or sent; kept as a draft with a price, it keeps the routing, the promised date and how sure it is', async () => {
     await page.goto('/promise')
     await page.locator('[data-test=promise-routing]').click()
     await page.locator('.el-select-dropdown__item:visible').first().click()
@@ -54,7 +54,38 @@ describe('quotes and deposits', () => {
     await dialog.waitFor()
     await dialog.locator('[data-test=quote-customer]').click()
     await page.locator('.el-select-dropdown__item:visible').first().click()
+    // A stone line's Remove button stands clear of the number fields beside it, so its whole word shows and takes the click.
+    await dialog.getByRole('button', { name: 'Add stones' }).click()
+    const remove = dialog.locator('[data-test=quote-stone-remove]').last()
+    await remove.waitFor()
+    const carats = dialog.locator('.stone-row').last().locator('.el-input-number').last()
+    const [caratsBox, removeBox] = [await carats.boundingBox(), await remove.boundingBox()]
+    expect(caratsBox!.x + caratsBox!.width).toBeLessThanOrEqual(removeBox!.x)
+    // What the browser finds at the button's first letter is the button itself, not a field drawn over it.
+    const atFirstLetter = await remove.evaluate((b) => {
+      const r = b.getBoundingClientRect()
+      return b.contains(document.elementFromPoint(r.left + 2, r.top + r.height / 2))
+    })
+    expect(atFirstLetter).toBe(true)
+    expect(((await remove.textContent()) ?? '').trim()).toBe('Remove')
+    await screenshot(page, 'payments-quote-stone-line', { fullPage: false })
+    await remove.click()
+    // A price of 0: the dialog says so by the Price field, and neither a quote nor an e-mail is made.
+    const kept = async () => ({
+      quotes: (await e2e.db.db.select({ n: count() }).from(s.quotes))[0]!.n,
+      mails: (await e2e.db.db.select({ n: count() }).from(s.outbox).where(eq(s.outbox.kind, 'quote')))[0]!.n,
+    })
+    const before = await kept()
+    await field(dialog, 'quote-price').fill('0')
+    await dialog.locator('[data-test=quote-save-send]').click()
+    const priceItem = dialog.locator('.el-form-item', { has: page.locator('[data-test=quote-price]') })
+    await priceItem.locator('.el-form-item__error', { hasText: 'The price must be more than zero' }).waitFor()
+    await screenshot(page, 'payments-quote-price-zero', { fullPage: false })
+    expect(await dialog.isVisible()).toBe(true)
+    expect(await kept()).toEqual(before)
     await field(dialog, 'quote-price').fill('640')
+    // Typing a price clears the reason.
+    await priceItem.locator('.el-form-item__error').waitFor({ state: 'detached' })
     await field(dialog, 'quote-title').click()
     // 30 % of £640.00 is £192.00, leaving £448.00 (hand-worked).
     await dialog.locator('[data-test=quote-deposit-amount]', { hasText: '£192.00 now, £448.00 at collection' }).waitFor()
@@ -256,6 +287,8 @@ describe('quotes and deposits', () => {
     await row.first().click()
     await page.locator('.el-drawer').getByText('Plain text').click()
     const mail = (await page.locator('[data-test=outbox-text]').textContent()) ?? ''
+    // The piece is named in quotation marks, whatever its name.
+    expect(mail).toMatch(new RegExp(`Thank you for your enquiry about ".+"\\. Here is our quote ${quoteNumber}:`))
     expect(mail).toContain('£1,250.00')
     expect(mail).toContain('£375.00')
     expect(mail).toContain('£875.00')
@@ -291,7 +324,7 @@ describe('quotes and deposits', () => {
     }
   })
 
-  it('when sales opens Quotes, then the paid quote reads agreed with what is paid and owed, and the draft can be taken back', async () => {
+  it('when sales opens Quotes, then the paid quote reads agreed with what is paid and owed, a search finding it alone counts "1 quote", and the draft can be taken back', async () => {
     await page.goto('/quotes')
     await page.locator('.el-segmented').getByText('All', { exact: true }).click()
     const row = page.locator('[data-test=quotes-table] .el-table__row', { hasText: quoteNumber })
@@ -303,6 +336,11 @@ describe('quotes and deposits', () => {
     await row.locator('[data-test=quote-row-paid]', { hasText: '£375.00' }).waitFor()
     expect(((await row.locator('[data-test=quote-row-owed]').textContent()) ?? '').trim()).toBe('£875.00')
     await screenshot(page, 'payments-quotes-list', { fullPage: false })
+    // Its number finds that quote alone: one quote, said in the singular.
+    await field(page, 'quote-search').fill(quoteNumber)
+    await page.locator('[data-test=quotes-count]', { hasText: /^\s*1 quote\s*$/ }).waitFor()
+    await field(page, 'quote-search').fill('')
+    await page.locator('[data-test=quotes-table] .el-table__row', { hasText: draftNumber }).waitFor()
     await page.locator('[data-test=quotes-table] .el-table__row', { hasText: draftNumber }).click()
     const drawer = page.locator('[data-test=quote-drawer]')
     await drawer.locator('[data-test=quote-price]', { hasText: '£640.00' }).waitFor()

@@ -10,6 +10,7 @@ import { seedMetal } from './seed-metal'
 import { seedStones } from './seed-stones'
 import { seedCosting } from './seed-costing'
 import { dayRange, dayjs, expandPattern, MinuteClock, subtract, type Interval } from '../lib/time'
+import { englandWalesBankHolidaysBetween } from '../../shared/domain/bank-holidays'
 
 export const DEMO_PASSWORD = 'millgrain-demo'
 export const DEMO_USERS = [
@@ -419,6 +420,10 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     const l1 = addDays(now, 12)
     await tx.insert(s.leave).values({ personId: people[2]!.id, startsOn: dayStr(l1), endsOn: dayStr(addDays(l1, 2)), reason: 'Holiday' })
     await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: stocktake', startsOn: dayStr(addDays(now, 17)), endsOn: dayStr(addDays(now, 17)) })
+    // The demo workshop is in England: its bank holidays over the seeded history and the months ahead are closures too.
+    const holidays = englandWalesBankHolidaysBetween(dayStr(addDays(now, -120)), dayStr(addDays(now, 180))).filter((h) => h.date !== dayStr(addDays(now, 17)))
+    if (holidays.length)
+      await tx.insert(s.closures).values(holidays.map((h) => ({ workshopId, name: `Bank holiday: ${h.name}`, startsOn: h.date, endsOn: h.date })))
 
     const routings: { row: typeof s.routings.$inferSelect; steps: (typeof s.routingSteps.$inferSelect)[] }[] = []
     for (const t of ROUTINGS) {
@@ -525,7 +530,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     const zone = w!.timeZone
     const weekdayNear = (days: number) => {
       let d = dayjs(now).tz(zone).add(days, 'day')
-      while (d.isoWeekday() > 5) d = d.add(1, 'day')
+      while (d.isoWeekday() > 5 || holidays.some((h) => h.date === d.format('YYYY-MM-DD'))) d = d.add(1, 'day')
       return d.format('YYYY-MM-DD')
     }
     // Days off in the past too, so the history has some to keep to.

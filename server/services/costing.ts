@@ -217,6 +217,8 @@ export interface CostedOrder extends OrderCosting {
   actualMinutes: number
   outsideSteps: number
   outsideUncosted: number
+  /** The estimate's metal of the pieces in precious metal with nothing weighed (minor units): what the owner's table counts for them at actual. */
+  metalNotWeighedMinor: number
 }
 
 /**
@@ -285,7 +287,8 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       outsideUncosted = 0,
       estOutsideSteps = 0,
       estUncosted = 0,
-      customerLossMg = 0
+      customerLossMg = 0,
+      metalNotWeighedMinor = 0
     const myBags = bags.filter((b) => b.orderId === order.id)
     let weighedBags = 0,
       preciousBags = 0
@@ -354,6 +357,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       const bagMoves = moves.filter((m) => m.jobBagId === bag.id && (m.kind === 'issued' || m.kind === 'returned'))
       if (PIECE_METAL_ALLOY[params.metal] || bagMoves.length) preciousBags++
       if (bagMoves.length) weighedBags++
+      else if (PIECE_METAL_ALLOY[params.metal]) metalNotWeighedMinor += mEst.minor
       for (const alloyId of new Set(bagMoves.map((m) => m.alloyId))) {
         const mine = bagMoves.filter((m) => m.alloyId === alloyId)
         const issued = mine.filter((m) => m.kind === 'issued')
@@ -412,6 +416,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       actualMinutes: actMin,
       outsideSteps,
       outsideUncosted,
+      metalNotWeighedMinor,
     })
   }
   return out
@@ -421,6 +426,6 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
 export async function orderCosting(db: Tx, workshopId: number, orderId: number): Promise<OrderCosting> {
   const c = (await costOrders(db, workshopId, [orderId])).get(orderId)
   if (!c) throw notFound('Order')
-  const { estimateMinutes: _e, actualMinutes: _a, outsideSteps: _o, outsideUncosted: _u, ...rest } = c
+  const { estimateMinutes: _e, actualMinutes: _a, outsideSteps: _o, outsideUncosted: _u, metalNotWeighedMinor: _m, ...rest } = c
   return rest
 }

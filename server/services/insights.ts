@@ -17,17 +17,26 @@ import { customers, jobBags, operationCosts, operationKinds, operations, orders,
 import { notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
-import { COSTING_NOTE, margin, marginCaveat, type Missing } from '../../shared/domain/costing'
+import { COSTING_NOTE, METAL_AS_ESTIMATED_WORDS, margin, marginCaveat, type Missing } from '../../shared/domain/costing'
 import { minorToDecimal } from '../../shared/domain/currency'
-import { costOrders } from './costing'
+import { ratioBelieved } from '../../shared/domain/estimate'
+import { costOrders, type CostedOrder } from './costing'
 import { audit } from './audit'
 import { finishedOperations, workshopZone, type FinishedOperation } from './estimates'
 
 const r2 = (n: number) => Math.round(n * 100) / 100
 const r1 = (n: number) => Math.round(n * 10) / 10
 
-/** One row of figures from a group of finished operations (minutes summed first, hours rounded last). */
-export function comparisonRow(key: string, label: string, ops: readonly Pick<FinishedOperation, 'estimateMinutes' | 'actualMinutes'>[]): ComparisonRow {
+type Timed = Pick<FinishedOperation, 'estimateMinutes' | 'actualMinutes'>
+/** Whether an operation's actual ÷ estimate is believed (shared/domain/estimate.ts); the others are left out of every error figure. */
+export const believed = (o: Timed): boolean => ratioBelieved(o.actualMinutes / o.estimateMinutes)
+
+/**
+ * One row of figures from a group of finished operations (minutes summed first, hours rounded last). Operations whose actual ÷ estimate
+ * lies outside the believed band are left out of every figure — count, hours, bias and MAPE alike — and counted in `leftOut`.
+ */
+export function comparisonRow(key: string, label: string, all: readonly Timed[]): ComparisonRow {
+  const ops = all.filter(believed)
   const est = ops.reduce((s, o) => s + o.estimateMinutes, 0)
   const act = ops.reduce((s, o) => s + o.actualMinutes, 0)
   const bias = act - est
@@ -42,6 +51,7 @@ export function comparisonRow(key: string, label: string, ops: readonly Pick<Fin
     biasPct: est > 0 ? r1((bias / est) * 100) : null,
     direction: Math.abs(bias) < 0.05 ? 'even' : bias > 0 ? 'over' : 'under',
     mapePct: ape.length ? r1((ape.reduce((s, x) => s + x, 0) / ape.length) * 100) : null,
+    leftOut: all.length - ops.length,
   }
 }
 
@@ -82,9 +92,10 @@ export async function scatter(db: Db, workshopId: number, filter: InsightFilter)
   }))
 }
 
-/** Bias % by kind for each month that has finished work. */
+/** Bias % by kind for each month that has finished work (operations outside the believed band left out, and counted). */
 export async function biasTrend(db: Db, workshopId: number, filter: InsightFilter): Promise<BiasTrend> {
-  const ops = await finishedOperations(db, workshopId, filter)
+  const all = await finishedOperations(db, workshopId, filter)
+  const ops = all.filter(believed)
   const months = [...new Set(ops.map((o) => o.month))].sort()
   const kinds = [...new Map(ops.map((o) => [o.kindId, { kindId: o.kindId, kind: o.kindName, color: o.kindColor }])).values()].sort((a, b) =>
     a.kind.localeCompare(b.kind),
@@ -101,6 +112,7 @@ export async function biasTrend(db: Db, workshopId: number, filter: InsightFilte
       )
       return { ...k, biasPct: cells.map((c) => (c.n ? c.biasPct : null)), n: cells.map((c) => c.n) }
     }),
+    leftOut: all.length - ops.length,
   }
 }
 
@@ -124,6 +136,7 @@ export async function drillDown(db: Db, workshopId: number, groupBy: Grouping, k
       estimateMinutes: o.estimateMinutes,
       estimateSource: o.estimateSource,
       actualMinutes: o.actualMinutes,
+      leftOut: !believed(o),
       records: o.records.map((r) => ({
         timeRecordId: r.id,
         personName: r.personName,
@@ -189,8 +202,8 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
     .map((ops) => {
       const order = ops[0]!.order
       const c = costed.get(order.id)!
-      const e = c.estimate,
-        a = c.actual
+      const e = c.estimate
+      const a = atActual(c)
       return {
         orderId: order.id,
         orderNumber: order.number,
@@ -201,7 +214,8 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
         estimateHours: r2(c.estimateMinutes / 60),
         actualHours: r2(c.actualMinutes / 60),
         metalAtEstimateMinor: M(e.cost.metalMinor),
-        metalAtActualMinor: M(a.cost.metalMinor),
+        metalAtActualMinor: a.notWeighed ? null : M(a.cost.metalMinor),
+        metalAsEstimatedMinor: M(a.metalAsEstimatedMinor),
         stonesAtEstimateMinor: M(e.cost.stonesMinor),
         stonesAtActualMinor: M(a.cost.stonesMinor),
         labourAtEstimateMinor: M(e.cost.labourMinor),
@@ -209,7 +223,7 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
         outsideAtEstimateMinor: M(e.cost.outsideMinor),
         outsideAtActualMinor: M(a.cost.outsideMinor),
         costAtEstimateMinor: M(e.cost.totalMinor),
-        costAtActualMinor: M(a.cost.totalMinor),
+        costAtActualMinor: M(a.totalMinor),
         marginAtEstimateMinor: M(e.marginMinor),
         marginAtActualMinor: M(a.marginMinor),
         marginPctAtEstimate: e.marginPct,
@@ -228,11 +242,11 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
   const sumMinor = (f: (c: (typeof all)[number]) => number) => all.reduce((s, c) => s + f(c), 0)
   const price = sumMinor((c) => c.priceMinor)
   const est = sumMinor((c) => c.estimate.cost.totalMinor)
-  const act = sumMinor((c) => c.actual.cost.totalMinor)
+  const act = sumMinor((c) => atActual(c).totalMinor)
   const mEst = margin(price, est),
     mAct = margin(price, act)
   const missingEst = all.flatMap((c) => c.estimate.missing),
-    missingAct = all.flatMap((c) => c.actual.missing)
+    missingAct = all.flatMap((c) => atActual(c).missing)
   return {
     filter: cleanFilter(filter),
     currency,
@@ -244,6 +258,8 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
       actualHours: r2(sumMinor((c) => c.actualMinutes) / 60),
       metalAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.metalMinor)),
       metalAtActualMinor: M(sumMinor((c) => c.actual.cost.metalMinor)),
+      metalAsEstimatedMinor: M(sumMinor((c) => atActual(c).metalAsEstimatedMinor)),
+      metalAsEstimatedOrders: all.filter((c) => atActual(c).asEstimated).length,
       stonesAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.stonesMinor)),
       stonesAtActualMinor: M(sumMinor((c) => c.actual.cost.stonesMinor)),
       labourAtEstimateMinor: M(sumMinor((c) => c.estimate.cost.labourMinor)),
@@ -260,16 +276,40 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
       outsideSteps: all.reduce((s, c) => s + c.outsideSteps, 0),
       outsideUncosted: all.reduce((s, c) => s + c.outsideUncosted, 0),
       caveatAtEstimate: totalCaveat(missingEst, out.length),
-      caveatAtActual: totalCaveat(missingAct, out.length),
+      caveatAtActual: totalCaveat(missingAct, out.length, METAL_AS_ESTIMATED_WORDS),
     },
     note: COSTING_NOTE,
   }
 }
 
 /** Over several orders: what is missing from some of them ("on some orders: …"), else that all four are counted. */
-function totalCaveat(missing: Missing[], orders: number): string {
+function totalCaveat(missing: Missing[], orders: number, words: Partial<Record<Missing, string>> = {}): string {
   if (!missing.length || orders === 0) return marginCaveat([])
-  return `on some orders: ${marginCaveat(missing)}`
+  return `on some orders: ${marginCaveat(missing, words)}`
+}
+
+const ESTIMATE_METAL_GAPS: readonly Missing[] = ['no-metal-weight', 'no-metal-price', 'metal-not-priced']
+/**
+ * An order at actual as the owner's table counts it: unweighed metal is never free — a piece in precious metal with nothing weighed
+ * counts the estimate's metal (and whatever the estimate could not price is then missing here too), and the words say so.
+ */
+function atActual(c: CostedOrder) {
+  const a = c.actual
+  const asEstimated = a.missing.includes('no-metal-weighed') || a.missing.includes('some-metal-weighed')
+  const missing: Missing[] = asEstimated ? [...a.missing, ...c.estimate.missing.filter((m) => ESTIMATE_METAL_GAPS.includes(m))] : a.missing
+  const totalMinor = a.cost.totalMinor + c.metalNotWeighedMinor
+  const m = margin(c.priceMinor, totalMinor)
+  return {
+    cost: a.cost,
+    notWeighed: a.missing.includes('no-metal-weighed'),
+    asEstimated,
+    metalAsEstimatedMinor: c.metalNotWeighedMinor,
+    totalMinor,
+    marginMinor: m.marginMinor,
+    marginPct: m.marginPct,
+    missing,
+    caveat: marginCaveat(missing, METAL_AS_ESTIMATED_WORDS),
+  }
 }
 
 /** Every outside-work step of the workshop's routings with its expected cost per unit (null: not set). */
@@ -351,7 +391,19 @@ export function comparisonCsv(t: ComparisonTable): string {
   const name = CSV_NAME[t.groupBy]
   // A month's key is the month itself: no id column for it. Work without a routing has key 0, no id.
   const withId = t.groupBy !== 'month'
-  const header = [name, 'operations', 'estimate_hours', 'actual_hours', 'bias_hours', 'bias_pct', 'direction', 'mape_pct', ...(withId ? [`${name}_id`] : [])]
+  // left_out: finished operations of the row left out of its figures (actual ÷ estimate outside the believed band).
+  const header = [
+    name,
+    'operations',
+    'estimate_hours',
+    'actual_hours',
+    'bias_hours',
+    'bias_pct',
+    'direction',
+    'mape_pct',
+    'left_out',
+    ...(withId ? [`${name}_id`] : []),
+  ]
   const line = (r: ComparisonRow, id: string) => [
     r.label,
     r.n,
@@ -361,13 +413,15 @@ export function comparisonCsv(t: ComparisonTable): string {
     r.biasPct,
     r.direction,
     r.mapePct,
+    r.leftOut,
     ...(withId ? [id] : []),
   ]
   return toCsv(header, [...t.rows.map((r) => line(r, r.key === '0' ? '' : r.key)), line(t.total, '')])
 }
 
 /**
- * Job costing as CSV: price, hours, each part of the cost at estimate and at actual, cost, margins, and beside each margin what it
+ * Job costing as CSV: price, hours, each part of the cost at estimate and at actual (metal weighed, and metal counted as estimated
+ * where nothing was weighed), cost, margins, and beside each margin what it
  * could not count; a last line carries the note (blank cells before it keep the column count). Amounts in major units of the table's currency.
  */
 export function costingCsv(t: CostingTable): string {
@@ -388,6 +442,7 @@ export function costingCsv(t: CostingTable): string {
     'margin_pct_at_estimate',
     'not_counted_at_estimate',
     'metal_at_actual',
+    'metal_as_estimated_at_actual',
     'stones_at_actual',
     'outside_at_actual',
     'labour_at_actual',
@@ -411,7 +466,9 @@ export function costingCsv(t: CostingTable): string {
     $(r.marginAtEstimateMinor),
     r.marginPctAtEstimate,
     r.caveatAtEstimate,
-    $(r.metalAtActualMinor),
+    // Blank: nothing weighed on the order (its metal counted as estimated in the next column).
+    r.metalAtActualMinor === null ? '' : $(r.metalAtActualMinor),
+    $(r.metalAsEstimatedMinor),
     $(r.stonesAtActualMinor),
     $(r.outsideAtActualMinor),
     $(r.labourAtActualMinor),
@@ -440,6 +497,7 @@ export function drillCsv(d: DrillDown): string {
     'estimate_minutes',
     'estimate_source',
     'actual_minutes',
+    'left_out',
     'record_person',
     'started_at',
     'ended_at',
@@ -461,6 +519,7 @@ export function drillCsv(d: DrillDown): string {
       o.estimateMinutes,
       o.estimateSource,
       o.actualMinutes,
+      o.leftOut ? 'yes' : 'no',
       r.personName,
       r.startedAt,
       r.endedAt,

@@ -20,6 +20,7 @@ import { intersect, outsideWorkEnd, walkWorkingTime } from '../scheduler/calenda
 import type { Interval, Operation, Plan, Problem } from '../scheduler/model.ts'
 import { createRng, type Rng } from '../scheduler/random.ts'
 import { dayjs } from '../lib/time'
+import { ratioBelieved } from '../../shared/domain/estimate'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
 
 export const MIN_HISTORY = 8
@@ -72,7 +73,7 @@ export async function kindSpreads(db: Db, workshopId: number): Promise<Map<strin
     const speed = skills.find((k) => k.personId === worker.get(d.id) && k.kindId === d.kindId)?.speed ?? 1
     const ratio = a / (d.estimate / speed)
     // A record left open for days or a mistyped estimate tells nothing about the work; keep a wide but sane band.
-    if (ratio >= 0.1 && ratio <= 10) (ratios.get(d.kindId) ?? ratios.set(d.kindId, []).get(d.kindId)!).push(ratio)
+    if (ratioBelieved(ratio)) (ratios.get(d.kindId) ?? ratios.set(d.kindId, []).get(d.kindId)!).push(ratio)
   }
   // Outside work: working days from its predecessors' finish (when it was sent) to its return, against its lead days.
   {
@@ -107,7 +108,7 @@ export async function kindSpreads(db: Db, workshopId: number): Promise<Map<strin
       if (sent.length !== Math.max(1, o.after.length) || sent.some((x) => !x)) continue
       const from = sent.reduce((m, x) => (Date.parse(x!) > Date.parse(m!) ? x : m))!
       const ratio = workingDaysBetween(from, o.finishedAt) / o.leadDays
-      if (ratio >= 0.1 && ratio <= 10) (ratios.get(o.kindId) ?? ratios.set(o.kindId, []).get(o.kindId)!).push(ratio)
+      if (ratioBelieved(ratio)) (ratios.get(o.kindId) ?? ratios.set(o.kindId, []).get(o.kindId)!).push(ratio)
     }
   }
   const out = new Map<string, KindSpread>()

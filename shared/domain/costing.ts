@@ -116,14 +116,23 @@ export const MISSING_WORDS: Record<Missing, string> = {
 }
 export const ALL_COUNTED = 'metal, stones, outside work and labour counted'
 
-/** The words beside a margin: only what is really missing, else that all four are counted. */
-export function marginCaveat(missing: readonly Missing[]): string {
+/**
+ * The owner's table never counts unweighed metal as free: at actual, a piece in precious metal with nothing weighed counts its
+ * metal as estimated, and the words beside its margin say so.
+ */
+export const METAL_AS_ESTIMATED_WORDS: Partial<Record<Missing, string>> = {
+  'no-metal-weighed': 'no metal weighed: metal counted as estimated',
+  'some-metal-weighed': 'metal weighed on some pieces only: the others counted as estimated',
+}
+
+/** The words beside a margin: only what is really missing, else that all four are counted (`words` overrides some wordings). */
+export function marginCaveat(missing: readonly Missing[], words: Partial<Record<Missing, string>> = {}): string {
   const order = Object.keys(MISSING_WORDS)
   const seen = [...new Set(missing)].sort((a, b) => order.indexOf(a) - order.indexOf(b))
   if (!seen.length) return ALL_COUNTED
-  return seen.map((m) => MISSING_WORDS[m]).join('; ')
+  return seen.map((m) => words[m] ?? MISSING_WORDS[m]).join('; ')
 }
 
 /** The note above the costing table and at the end of its CSV. */
 export const COSTING_NOTE =
-  'Cost = metal (net weight in the piece plus loss, at the alloy’s price on the day it was issued; the customer’s own metal free) + stones (cost each × set, broken and lost; the customer’s own free) + outside work + labour (hours × each person’s rate). At estimate: the routing’s minutes, the piece’s metal weight at the price on the order’s day, the stone list. Beside each margin: what could not be counted.'
+  'Cost = metal (net weight in the piece plus loss, at the alloy’s price on the day it was issued; the customer’s own metal free) + stones (cost each × set, broken and lost; the customer’s own free) + outside work + labour (hours × each person’s rate). At estimate: the routing’s minutes, the piece’s metal weight at the price on the order’s day, the stone list. At actual, a piece with no metal weighed counts its metal as estimated, never as free. Beside each margin: what could not be counted.'

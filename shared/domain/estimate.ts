@@ -14,6 +14,23 @@ export type Estimate =
   | { minutes: number; source: 'three-point'; variance: number; stdDev: number }
 
 // ---------------------------------------------------------------------------------------------------------------
+// Which finished work tells something about its estimate
+
+/**
+ * Actual ÷ estimate ratios believed: a record left running for days, a step started and finished within seconds or a mistyped
+ * estimate tells nothing about the work. The promise check learns only from ratios inside this band and Insights leaves the
+ * others out of its error figures (our own band, wide but sane; no source).
+ */
+export const BELIEVED_RATIO = { min: 0.1, max: 10 } as const
+/** Why a finished operation is left out of the error figures, in words for the screen. */
+export const OUTSIDE_RATIO_WORDS = 'actual under a tenth or over ten times the estimate'
+
+/** Whether an actual ÷ estimate ratio is inside the believed band (a ratio with no estimate — infinite or not a number — is not). */
+export function ratioBelieved(ratio: number): boolean {
+  return ratio >= BELIEVED_RATIO.min && ratio <= BELIEVED_RATIO.max
+}
+
+// ---------------------------------------------------------------------------------------------------------------
 // Stone size bands (our own bands: melee below 1.5 mm, small 1.5–3 mm, larger stones above 3 mm)
 
 export const SIZE_BANDS = ['unknown', 'melee', 'small', 'large'] as const

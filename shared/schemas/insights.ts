@@ -90,6 +90,8 @@ export const comparisonRow = z.object({
   direction: z.enum(['over', 'under', 'even']),
   /** Mean over operations of |actual − estimate| ÷ actual, in %. */
   mapePct: z.number().nullable(),
+  /** Finished operations of the row left out of every figure above (n, hours, bias, MAPE): actual ÷ estimate outside BELIEVED_RATIO. */
+  leftOut: wireInt,
 })
 export type ComparisonRow = z.infer<typeof comparisonRow>
 export const comparisonTable = z.object({ groupBy: z.enum(GROUPINGS), filter: filterOut, rows: z.array(comparisonRow), total: comparisonRow })
@@ -107,6 +109,8 @@ export type ScatterPoint = z.infer<typeof scatterPoint>
 export const biasTrend = z.object({
   months: z.array(z.string()),
   series: z.array(z.object({ kindId: wireInt, kind: z.string(), color: z.string(), biasPct: z.array(z.number().nullable()), n: z.array(wireInt) })),
+  /** Finished operations left out of every cell: actual ÷ estimate outside BELIEVED_RATIO. */
+  leftOut: wireInt,
 })
 export type BiasTrend = z.infer<typeof biasTrend>
 
@@ -133,6 +137,8 @@ export const drillOperation = z.object({
   estimateMinutes: z.number(),
   estimateSource: z.string(),
   actualMinutes: z.number(),
+  /** Left out of the row's figures: actual ÷ estimate outside BELIEVED_RATIO (shown, marked, so the owner can see why). */
+  leftOut: z.boolean(),
   records: z.array(drillRecord),
 })
 export type DrillOperation = z.infer<typeof drillOperation>
@@ -144,7 +150,10 @@ const costingFigures = {
   estimateHours: z.number(),
   actualHours: z.number(),
   metalAtEstimateMinor: wireInt,
-  metalAtActualMinor: wireInt,
+  /** Metal weighed (ledger); null on an order with metal to weigh and nothing weighed ("not weighed"). */
+  metalAtActualMinor: wireInt.nullable(),
+  /** The estimate's metal counted at actual for pieces with nothing weighed (never free); part of the cost at actual. */
+  metalAsEstimatedMinor: wireInt,
   stonesAtEstimateMinor: wireInt,
   stonesAtActualMinor: wireInt,
   labourAtEstimateMinor: wireInt,
@@ -181,7 +190,8 @@ export const costingTable = z.object({
   /** The workshop's currency (ISO 4217) the figures are in. */
   currency: z.string(),
   rows: z.array(costingRow),
-  total: z.object({ ...costingFigures, orders: wireInt }),
+  /** `metalAsEstimatedOrders`: orders whose cost at actual counts some metal as estimated because nothing was weighed. */
+  total: z.object({ ...costingFigures, orders: wireInt, metalAsEstimatedOrders: wireInt }),
   /** How every figure is reached, as one paragraph. */
   note: z.string(),
 })

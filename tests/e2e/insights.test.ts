@@ -1,7 +1,11 @@
 // The owner's insights screen in Chromium: comparison tables with totals, charts drawn on canvas, drill-down to time records, suggestions, job costing.
 import { beforeAll, describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
+import { asc, sql } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
+import { OUTSIDE_RATIO_WORDS, ratioBelieved } from '../../shared/domain/estimate'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
+import { finishedStep, openOrderStep } from '../setup/fixtures'
 
 const e2e = useE2E()
 let page: Page
@@ -45,8 +49,11 @@ describe('insights as the owner', () => {
     await words.waitFor()
     const t = (await (await page.request.get('/api/insights/comparison?groupBy=kind')).json()).total
     // The figures recomputed here from every finished operation's estimate and actual minutes (the chart data), independently of the table:
-    // bias = (Σ actual − Σ estimate) ÷ Σ estimate; MAPE = mean over operations of |actual − estimate| ÷ actual.
-    const points: { estimateMinutes: number; actualMinutes: number }[] = await (await page.request.get('/api/insights/scatter')).json()
+    // bias = (Σ actual − Σ estimate) ÷ Σ estimate; MAPE = mean over operations of |actual − estimate| ÷ actual; both over the operations
+    // whose actual ÷ estimate is believed (the band the promise check learns from), the others left out.
+    const all: { estimateMinutes: number; actualMinutes: number }[] = await (await page.request.get('/api/insights/scatter')).json()
+    const points = all.filter((p) => ratioBelieved(p.actualMinutes / p.estimateMinutes))
+    expect(t.leftOut).toBe(all.length - points.length)
     const est = points.reduce((x, p) => x + p.estimateMinutes, 0),
       act = points.reduce((x, p) => x + p.actualMinutes, 0)
     const bias = ((act - est) / est) * 100
@@ -92,11 +99,48 @@ describe('insights as the owner', () => {
     expect(r.status()).toBe(200)
     const lines = (await r.text()).split('\r\n')
     // The first column names the person; their id comes last.
-    expect(lines[0]).toBe('person,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,person_id')
+    expect(lines[0]).toBe('person,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,left_out,person_id')
     const shown = await page.locator('[data-test=insights-comparison] .el-table__body .el-table__row td:first-child').allTextContents()
     expect(shown.map((x) => x.trim())).toContain(lines[1]!.split(',')[0])
     expect(lines[1]!.split(',').at(-1)).toMatch(/^\d+$/)
     await screenshot(page, 'insights-by-person')
+  })
+
+  it('when a setter started and finished a step within seconds, then the table leaves it out, says so and the drill-down marks it', async () => {
+    const db = e2e.db.db
+    // A demo setting step not yet started, finished in 12 seconds against a 100-minute estimate: 0.2 ÷ 100 = 0.002, under a tenth.
+    const op = (await openOrderStep(db, { kind: 'setting', status: 'pending' }))!
+    const [who] = await db.select({ id: s.people.id }).from(s.people).orderBy(asc(s.people.id)).limit(1)
+    await finishedStep(db, op.id, {
+      finishedAt: sql`now()`,
+      estimateMinutes: 100,
+      records: [{ personId: who!.id, start: sql`now() - interval '12 seconds'`, end: sql`now()` }],
+    })
+    await page.goto('/insights')
+    const note = page.locator('[data-test=insights-left-out]')
+    await note.waitFor()
+    const table = (await (await page.request.get('/api/insights/comparison?groupBy=kind')).json()) as {
+      rows: { key: string; label: string }[]
+      total: { leftOut: number }
+    }
+    const t = table.total
+    const settingKey = table.rows.find((r) => r.label === 'Stone setting')!.key
+    expect(t.leftOut).toBeGreaterThanOrEqual(1)
+    const words = (await note.textContent())!.replace(/\s+/g, ' ').trim()
+    expect(words).toContain(`${t.leftOut} operation${t.leftOut === 1 ? '' : 's'} left out of every figure in this table`)
+    expect(words).toContain(OUTSIDE_RATIO_WORDS)
+    expect(await note.isVisible()).toBe(true)
+    await page.locator('[data-test=insights-comparison] .el-table__body .el-table__row', { hasText: 'Stone setting' }).click()
+    const drawer = page.locator('[data-test=insights-drill]')
+    await drawer.getByText('Time behind: Stone setting').waitFor()
+    await drawer.locator('[data-test=insights-drill-left-out]').waitFor()
+    const d = (await (await page.request.get(`/api/insights/records?groupBy=kind&key=${settingKey}`)).json()) as {
+      operations: { operationId: number; leftOut: boolean }[]
+    }
+    expect(d.operations.find((o) => o.operationId === op.id)?.leftOut).toBe(true)
+    expect(await drawer.locator('[data-test=insights-drill-left-out-tag]').count()).toBe(d.operations.filter((o) => o.leftOut).length)
+    await screenshot(page, 'insights-left-out')
+    await page.keyboard.press('Escape')
   })
 
   it('when job costing is shown, then every margin figure has beside it what it could not count, and the figures are the server’s', async () => {
@@ -119,7 +163,7 @@ describe('insights as the owner', () => {
     expect(cells.length).toBe(2 * rows + 2)
     // The words come from a fixed list (shared/domain/costing.ts): all four counted, or only what is missing.
     const words =
-      /^(on some orders: )?((no metal weight estimated|no metal weighed yet|metal weighed on some pieces only|no alloy price for the day|base or mixed metal not priced|stone costs not entered|stones not counted back|outside work not costed|some outside work not costed)(; |$))+$/
+      /^(on some orders: )?((no metal weight estimated|no metal weighed yet|no metal weighed: metal counted as estimated|metal weighed on some pieces only|metal weighed on some pieces only: the others counted as estimated|no alloy price for the day|base or mixed metal not priced|stone costs not entered|stones not counted back|outside work not costed|some outside work not costed)(; |$))+$/
     for (const c of cells) {
       expect(c.hasFigure).toBe(true)
       if (c.caveat !== 'metal, stones, outside work and labour counted') expect(c.caveat).toMatch(words)
@@ -127,7 +171,15 @@ describe('insights as the owner', () => {
     // The first row on screen carries the server's figures for that order (its own API answer, formatted as the table does).
     const api = (await page.evaluate(async () => (await fetch('/api/insights/costing', { credentials: 'same-origin' })).json())) as {
       currency: string
-      rows: { orderNumber: string; costAtEstimateMinor: number; metalAtActualMinor: number; caveatAtEstimate: string; caveatAtActual: string }[]
+      rows: {
+        orderNumber: string
+        costAtEstimateMinor: number
+        metalAtActualMinor: number | null
+        metalAsEstimatedMinor: number
+        caveatAtEstimate: string
+        caveatAtActual: string
+      }[]
+      total: { orders: number; metalAsEstimatedOrders: number; caveatAtActual: string }
     }
     const first = page.locator('[data-test=insights-costing] .el-table__body .el-table__row').first()
     const number = (await first.locator('.mg-mono').textContent())!.trim()
@@ -137,10 +189,37 @@ describe('insights as the owner', () => {
     const locale = await page.evaluate(() => navigator.language)
     const money = (minor: number) => new Intl.NumberFormat(locale, { style: 'currency', currency: 'GBP' }).format(minor / 100)
     expect(await first.textContent()).toContain(money(row.costAtEstimateMinor))
-    expect(await first.locator('[data-test=cost-parts-actual]').textContent()).toContain(`metal ${money(row.metalAtActualMinor)}`)
+    // Metal with nothing weighed is "not weighed", its estimate counted in its place — never £0.
+    expect(await first.locator('[data-test=cost-parts-actual]').textContent()).toContain(
+      row.metalAtActualMinor === null ? `metal not weighed (${money(row.metalAsEstimatedMinor)} as estimated)` : `metal ${money(row.metalAtActualMinor)}`,
+    )
     expect((await first.locator('[data-test=margin-caveat]').allTextContents()).map((x) => x.trim())).toEqual([row.caveatAtEstimate, row.caveatAtActual])
     // Some demo orders were weighed in and out: their metal is counted.
-    expect(api.rows.some((r) => r.metalAtActualMinor > 0)).toBe(true)
+    expect(api.rows.some((r) => (r.metalAtActualMinor ?? 0) > 0)).toBe(true)
+    // Below the table, in full: how many orders count their metal as estimated, and what the total's margins could not count.
+    const metalNote = page.locator('[data-test=insights-costing-metal-note]')
+    expect(api.total.metalAsEstimatedOrders).toBeGreaterThan(0)
+    expect((await metalNote.textContent())!.replace(/\s+/g, ' ')).toContain(
+      `${api.total.metalAsEstimatedOrders} of ${api.total.orders} orders had pieces with no metal weighed`,
+    )
+    const totalCaveat = page.locator('[data-test=insights-costing-total-caveat-actual]')
+    expect((await totalCaveat.textContent())!.replace(/\s+/g, ' ').trim()).toBe(`Total at actual: ${api.total.caveatAtActual}.`)
+    // Nothing of those words is cut off: each line fits inside the panel and its box holds all its text.
+    const fits = await page.locator('[data-test=insights-costing-total-notes] > div').evaluateAll((els) =>
+      els.map((el) => {
+        const panel = el.closest('.mg-panel')!.getBoundingClientRect()
+        const box = el.getBoundingClientRect()
+        return box.right <= panel.right + 0.5 && el.scrollWidth <= el.clientWidth + 1
+      }),
+    )
+    expect(fits.length).toBeGreaterThanOrEqual(2)
+    expect(fits.every(Boolean)).toBe(true)
+    // At the browser's width the table's columns fit its panel: the margin at actual is not cut off at the right edge.
+    const overflow = await costing
+      .locator('.el-table__body-wrapper .el-scrollbar__wrap')
+      .evaluate((el) => ({ scroll: el.scrollWidth, client: el.clientWidth, viewport: innerWidth }))
+    expect(overflow.viewport).toBeGreaterThanOrEqual(1440)
+    expect(overflow.scroll, JSON.stringify(overflow)).toBeLessThanOrEqual(overflow.client)
     expect(await page.locator('[data-test=insights-costing-note]').textContent()).toContain('Cost = metal')
     await page.locator('[data-test=insights-costing]').scrollIntoViewIfNeeded()
     await screenshot(page, 'insights-costing')

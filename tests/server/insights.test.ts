@@ -1,9 +1,9 @@
 // Insights and estimating API against real PostgreSQL: hand-computed estimate-vs-actual tables, CSV, drill-down, job costing, learned suggestions, access.
-import { eq } from 'drizzle-orm'
+import { eq, sql } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { finishedStep, firstCustomerId, stepIdsByKey, userIdByEmail } from '../setup/fixtures'
+import { addMetalMovement, alloyIdByCode, finishedStep, firstCustomerId, jobBagOfOrder, stepIdsByKey, userIdByEmail } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError } from './helpers'
 
 let t: TestApp
@@ -110,6 +110,7 @@ describe('estimated against actual hours', () => {
       biasPct: 5.6,
       direction: 'over',
       mapePct: 26.7,
+      leftOut: 0,
     })
     // polishing 30 + 30 = 60 estimated, 24 + 30 = 54 actual (the voided 500 min record counts 0) → −6 min = −0.1 h, −10 %; MAPE (6/24 + 0)/2 = 12.5 %.
     expect(rows.Polishing).toEqual({
@@ -122,6 +123,7 @@ describe('estimated against actual hours', () => {
       biasPct: -10,
       direction: 'under',
       mapePct: 12.5,
+      leftOut: 0,
     })
     // Total 240 → 244 min: +4 min = 0.07 h, +1.7 %; MAPE (1/3 + 0.2 + 0.25 + 0)/4 = 19.6 %. Outside work (hallmark) has no bench time: not counted.
     expect(r.body.total).toEqual({
@@ -134,6 +136,7 @@ describe('estimated against actual hours', () => {
       biasPct: 1.7,
       direction: 'over',
       mapePct: 19.6,
+      leftOut: 0,
     })
   })
 
@@ -179,10 +182,10 @@ describe('estimated against actual hours', () => {
     expect(r.headers['content-type']).toMatch(/^text\/csv/)
     expect(r.headers['content-disposition']).toBe('attachment; filename="estimates-by-order.csv"')
     const lines = r.text.split('\r\n')
-    expect(lines[0]).toBe('order,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,order_id')
-    // Order A: 90 → 114 min, bias 0.4 h (+26.7 %), MAPE (30/90 + 6/24)/2 = 29.2 % (hand-computed).
-    expect(lines).toContain(`${orderNumbers[0]} Fixture order A,2,1.5,1.9,0.4,26.7,over,29.2,${orderIds[0]}`)
-    expect(lines.at(-2)).toBe('Total,4,4,4.07,0.07,1.7,over,19.6,')
+    expect(lines[0]).toBe('order,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,left_out,order_id')
+    // Order A: 90 → 114 min, bias 0.4 h (+26.7 %), MAPE (30/90 + 6/24)/2 = 29.2 % (hand-computed); nothing left out.
+    expect(lines).toContain(`${orderNumbers[0]} Fixture order A,2,1.5,1.9,0.4,26.7,over,29.2,0,${orderIds[0]}`)
+    expect(lines.at(-2)).toBe('Total,4,4,4.07,0.07,1.7,over,19.6,0,')
     expect(lines.at(-1)).toBe('')
   })
 
@@ -190,19 +193,19 @@ describe('estimated against actual hours', () => {
     // Hand-computed from the fixture: Ines set A (60 → 90 min) and B (120 → 100 min): 3 h estimated, 190 min = 3.17 h taken,
     // bias +10 min = 0.17 h = +5.6 %, MAPE (30/90 + 20/100)/2 = 26.7 %.
     const cases: [string, string, string][] = [
-      ['person', 'person', `Ines Harrowby,2,3,3.17,0.17,5.6,over,26.7,${person.Ines}`],
+      ['person', 'person', `Ines Harrowby,2,3,3.17,0.17,5.6,over,26.7,0,${person.Ines}`],
       // Setting over both orders is Ines's work: the same figures under the kind's name.
-      ['kind', 'kind', `Stone setting,2,3,3.17,0.17,5.6,over,26.7,${kinds.setting}`],
-      ['routing', 'routing', `Fixture: set and polish,4,4,4.07,0.07,1.7,over,19.6,${routingId}`],
+      ['kind', 'kind', `Stone setting,2,3,3.17,0.17,5.6,over,26.7,0,${kinds.setting}`],
+      ['routing', 'routing', `Fixture: set and polish,4,4,4.07,0.07,1.7,over,19.6,0,${routingId}`],
     ]
     for (const [groupBy, first, line] of cases) {
       const lines = (await owner.get(`/api/insights/comparison?groupBy=${groupBy}&routingId=${routingId}&format=csv`)).text.split('\r\n')
-      expect(lines[0], groupBy).toBe(`${first},operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,${first}_id`)
+      expect(lines[0], groupBy).toBe(`${first},operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,left_out,${first}_id`)
       expect(lines, groupBy).toContain(line)
     }
     // A month is its own name: no id column.
     const months = (await owner.get(`/api/insights/comparison?groupBy=month&routingId=${routingId}&format=csv`)).text.split('\r\n')
-    expect(months[0]).toBe('month,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct')
+    expect(months[0]).toBe('month,operations,estimate_hours,actual_hours,bias_hours,bias_pct,direction,mape_pct,left_out')
     expect(months[1]!.startsWith('2030-03,2,')).toBe(true)
   })
 
@@ -251,6 +254,95 @@ describe('estimated against actual hours', () => {
     const setting = trend.body.series.find((x: { kindId: number }) => x.kindId === kinds.setting)
     // March: 60 → 90 = +50 %; April: 120 → 100 = −16.7 %.
     expect(setting).toMatchObject({ biasPct: [50, -16.7], n: [1, 1] })
+  })
+})
+
+describe('operations whose actual time cannot be believed', () => {
+  let outlierRouting: number
+  let ops: Record<string, number>
+  beforeAll(async () => {
+    const manager = await signedIn(t.app, 'manager')
+    const routing = await manager.post('/api/routings', {
+      code: 'insight-outliers',
+      name: 'Fixture: pavé with a slip',
+      description: 'Hand-computed fixture: one step finished within seconds, one left running.',
+      steps: [
+        { key: 'set1', kindId: kinds.setting, name: 'Set centre', baseMinutes: 100 },
+        { key: 'set2', kindId: kinds.setting, name: 'Set shoulders', baseMinutes: 100, after: ['set1'] },
+        { key: 'pave', kindId: kinds.setting, name: 'Set pavé', baseMinutes: 100, after: ['set2'] },
+        { key: 'polish', kindId: kinds.polishing, name: 'Polish', baseMinutes: 5, after: ['pave'] },
+        { key: 'hallmark', kindId: kinds.hallmarking, name: 'Hallmark', baseMinutes: 0, leadDays: 3, after: ['polish'] },
+      ],
+    })
+    expect(routing.status).toBe(201)
+    outlierRouting = routing.body.id
+    const o = await manager.post('/api/orders', {
+      customerId: await firstCustomerId(t.db),
+      title: 'Fixture pavé ring',
+      dueDate: '2031-06-30',
+      priceQuotedMinor: 90_000,
+      pieces: [{ routingId: outlierRouting, piece: 'Pavé ring', params: { stoneCount: 0, quantity: 1 } }],
+    })
+    expect(o.status).toBe(201)
+    ops = (await opsOf(o.body.id)) as Record<string, number>
+    // Actual ÷ estimate: 120/100 = 1.2 and 80/100 = 0.8 (kept); 12 seconds = 0.2/100 = 0.002 and 60/5 = 12 (left out). Hallmark stays open.
+    await finish(ops.set1!, 100, at('2031-05-05', '12:00'), [{ person: 'Ines', start: at('2031-05-05', '09:00'), minutes: 120 }])
+    await finish(ops.set2!, 100, at('2031-05-06', '12:00'), [{ person: 'Ines', start: at('2031-05-06', '09:00'), minutes: 80 }])
+    await finish(ops.pave!, 100, at('2031-05-07', '12:00'), [{ person: 'Theo', start: at('2031-05-07', '09:00'), minutes: 0.2 }])
+    await finish(ops.polish!, 5, at('2031-05-08', '12:00'), [{ person: 'Ruth', start: at('2031-05-08', '09:00'), minutes: 60 }])
+  })
+
+  it('when one step was finished within seconds and one ran twelve times its estimate, then both are left out of every figure and counted', async () => {
+    const r = await owner.get(`/api/insights/comparison?groupBy=kind&routingId=${outlierRouting}`)
+    expect(r.status).toBe(200)
+    const rows = byLabel(r.body.rows)
+    // Hand-computed with the table's MAPE (mean |A − F| ÷ A, Hyndman & Koehler 2006) over the two kept setting steps:
+    // 100 → 120 and 100 → 80: 200 min estimated, 200 taken = 3.33 h each, bias 0; MAPE (20/120 + 20/80)/2 = (16.67 + 25)/2 = 20.8 %.
+    // Had the 12-second step counted: (16.67 + 25 + 99.8/0.2 = 49,900 %)/3 ≈ 16,647 % and bias (200.2 − 300)/300 = −33.3 %.
+    expect(rows['Stone setting']).toEqual({
+      key: String(kinds.setting),
+      label: 'Stone setting',
+      n: 2,
+      estimateHours: 3.33,
+      actualHours: 3.33,
+      biasHours: 0,
+      biasPct: 0,
+      direction: 'even',
+      mapePct: 20.8,
+      leftOut: 1,
+    })
+    // Polishing's only step (5 → 60 min, 12 times) is left out: the row stays, to be clicked, with no figure.
+    expect(rows.Polishing).toMatchObject({ n: 0, estimateHours: 0, actualHours: 0, biasPct: null, mapePct: null, leftOut: 1 })
+    expect(r.body.total).toMatchObject({ n: 2, estimateHours: 3.33, actualHours: 3.33, biasPct: 0, mapePct: 20.8, leftOut: 2 })
+    const people = byLabel((await owner.get(`/api/insights/comparison?groupBy=person&routingId=${outlierRouting}`)).body.rows)
+    expect(people['Theo Brae']).toMatchObject({ n: 0, leftOut: 1 })
+    expect(people['Ines Harrowby']).toMatchObject({ n: 2, mapePct: 20.8, leftOut: 0 })
+    const month = (await owner.get(`/api/insights/comparison?groupBy=month&routingId=${outlierRouting}&format=csv`)).text.split('\r\n')
+    expect(month[1]).toBe('2031-05,2,3.33,3.33,0,0,even,20.8,2')
+  })
+
+  it('when the bias chart is drawn, then the month’s setting bias comes from the kept steps only and says how many were left out', async () => {
+    const trend = (await owner.get(`/api/insights/bias-trend?routingId=${outlierRouting}`)).body
+    // May 2031, setting: 200 min estimated, 200 taken → 0 % (with the 12-second step it would be −33.3 %); polishing has no kept step.
+    expect(trend.months).toEqual(['2031-05'])
+    expect(trend.series.map((x: { kindId: number; biasPct: number[]; n: number[] }) => [x.kindId, x.biasPct, x.n])).toEqual([[kinds.setting, [0], [2]]])
+    expect(trend.leftOut).toBe(2)
+  })
+
+  it('when the row is drilled into, then the left-out step is listed, marked, in the answer and the CSV', async () => {
+    const d = (await owner.get(`/api/insights/records?groupBy=kind&key=${kinds.setting}&routingId=${outlierRouting}`)).body
+    expect(d.operations.map((o: { operationId: number; actualMinutes: number; leftOut: boolean }) => [o.operationId, o.actualMinutes, o.leftOut])).toEqual([
+      [ops.set1, 120, false],
+      [ops.set2, 80, false],
+      [ops.pave, 0.2, true],
+    ])
+    const csv = (await owner.get(`/api/insights/records?groupBy=kind&key=${kinds.setting}&routingId=${outlierRouting}&format=csv`)).text.split('\r\n')
+    const head = csv[0]!.split(',')
+    const [leftOut, opId] = [head.indexOf('left_out'), head.indexOf('operation_id')]
+    expect(leftOut).toBeGreaterThan(0)
+    const byOp = (id: number) => csv.filter((l) => l.split(',')[opId] === String(id)).map((l) => l.split(',')[leftOut])
+    expect(byOp(ops.pave!)).toEqual(['yes'])
+    expect(byOp(ops.set1!)).toEqual(['no'])
   })
 })
 
@@ -309,40 +401,47 @@ describe('job costing', () => {
   it('when a margin is shown, then it says beside it only what it could not count, in the answer and in the CSV', async () => {
     const r = await owner.get(`/api/insights/costing?routingId=${routingId}`)
     // Both fixture pieces are silver with no metal weight given and nothing weighed, six stones with no stone list and no cost each;
-    // their hallmark is costed (2.50 per unit on the routing step, set above), so outside work is not missing.
+    // their hallmark is costed (2.50 per unit on the routing step, set above), so outside work is not missing. At actual their metal
+    // counts as estimated (here nothing, as no weight was estimated), and the words say both.
     for (const row of r.body.rows) {
       expect(row).toMatchObject({
         outsideSteps: 1,
         outsideUncosted: 0,
         metalAtEstimateMinor: 0,
-        metalAtActualMinor: 0,
+        metalAtActualMinor: null,
+        metalAsEstimatedMinor: 0,
         stonesAtEstimateMinor: 0,
         stonesAtActualMinor: 0,
         caveatAtEstimate: 'no metal weight estimated; stone costs not entered',
-        caveatAtActual: 'no metal weighed yet; stone costs not entered',
+        caveatAtActual: 'no metal weight estimated; no metal weighed: metal counted as estimated; stone costs not entered',
       })
     }
-    expect(r.body.total).toMatchObject({ outsideSteps: 2, outsideUncosted: 0, caveatAtActual: 'on some orders: no metal weighed yet; stone costs not entered' })
+    expect(r.body.total).toMatchObject({
+      outsideSteps: 2,
+      outsideUncosted: 0,
+      metalAsEstimatedOrders: 2,
+      caveatAtActual: 'on some orders: no metal weight estimated; no metal weighed: metal counted as estimated; stone costs not entered',
+    })
     expect(r.body.note).toMatch(/^Cost = metal \(net weight in the piece plus loss/)
     const lines = (await owner.get(`/api/insights/costing?routingId=${routingId}&format=csv`)).text.split('\r\n')
     expect(lines[0]).toBe(
       'order,title,customer,finished_on,price_quoted,estimate_hours,actual_hours,' +
         'metal_at_estimate,stones_at_estimate,outside_at_estimate,labour_at_estimate,cost_at_estimate,margin_at_estimate,margin_pct_at_estimate,not_counted_at_estimate,' +
-        'metal_at_actual,stones_at_actual,outside_at_actual,labour_at_actual,cost_at_actual,margin_at_actual,margin_pct_at_actual,not_counted_at_actual,customer_metal_lost_g',
+        'metal_at_actual,metal_as_estimated_at_actual,stones_at_actual,outside_at_actual,labour_at_actual,cost_at_actual,margin_at_actual,margin_pct_at_actual,not_counted_at_actual,customer_metal_lost_g',
     )
     const a = lines.find((l) => l.startsWith(`${orderNumbers[0]},`))!
     // Order A (hand-computed above), in pounds with GBP's two decimals: estimate 0 + 0 + 5.00 + 51.00 = 56.00, margin 444.00 = 88.8 %;
-    // actual 0 + 0 + 7.00 + 67.40 = 74.40, margin 425.60 = 85.1 %.
+    // actual: metal not weighed (blank) and 0.00 as estimated, 0 + 7.00 + 67.40 = 74.40, margin 425.60 = 85.1 %.
     expect(
       a.endsWith(
-        ',500.00,1.5,1.9,0.00,0.00,5.00,51.00,56.00,444.00,88.8,no metal weight estimated; stone costs not entered,0.00,0.00,7.00,67.40,74.40,425.60,85.1,no metal weighed yet; stone costs not entered,0',
+        ',500.00,1.5,1.9,0.00,0.00,5.00,51.00,56.00,444.00,88.8,no metal weight estimated; stone costs not entered,,0.00,0.00,7.00,67.40,74.40,425.60,85.1,no metal weight estimated; no metal weighed: metal counted as estimated; stone costs not entered,0',
       ),
       a,
     ).toBe(true)
-    // Last line before the final CRLF: the note, padded to the header's 24 columns (RFC 4180 §2: each line the same number of fields).
+    // Last line before the final CRLF: the note, padded to the header's 25 columns (RFC 4180 §2: each line the same number of fields).
     const note = lines.at(-2)!
     expect(note.startsWith('Note,"Cost = metal')).toBe(true)
-    expect(note.split(',').length).toBe(24 + (r.body.note.match(/,/g)?.length ?? 0))
+    expect(note.split(',').length).toBe(25 + (r.body.note.match(/,/g)?.length ?? 0))
   })
 
   it('when the seeded history is costed, then orders with nothing weighed or uncosted outside work say so beside their actual margin', async () => {
@@ -359,13 +458,22 @@ describe('job costing', () => {
         and not exists (select 1 from routing_step_costs c where c.routing_id = b.routing_id and c.step_key = op.key and c.outside_cost_minor is not null)
         and not exists (select 1 from operation_costs c where c.operation_id = op.id and c.outside_cost_minor is not null)`)
     expect(unweighed.length).toBeGreaterThan(5)
-    const rows = (await owner.get('/api/insights/costing')).body.rows as { orderNumber: string; caveatAtActual: string; metalAtActualMinor: number }[]
+    type Row = {
+      orderNumber: string
+      caveatAtActual: string
+      metalAtActualMinor: number | null
+      metalAsEstimatedMinor: number
+      metalAtEstimateMinor: number
+    }
+    const rows = (await owner.get('/api/insights/costing')).body.rows as Row[]
     const byNumber = new Map(rows.map((x) => [x.orderNumber, x]))
     for (const u of unweighed) {
       const row = byNumber.get(u.number)
       if (!row) continue
-      expect(row.caveatAtActual).toContain('no metal weighed yet')
-      expect(row.metalAtActualMinor).toBe(0)
+      // Nothing weighed: shown as not weighed, and the estimate's metal counted in its place, never nothing.
+      expect(row.caveatAtActual).toContain('no metal weighed: metal counted as estimated')
+      expect(row.metalAtActualMinor).toBeNull()
+      expect(row.metalAsEstimatedMinor).toBe(row.metalAtEstimateMinor)
     }
     for (const u of uncostedOutside) if (byNumber.has(u.number)) expect(byNumber.get(u.number)!.caveatAtActual).toMatch(/outside work not costed/)
     // Orders weighed out from the workshop's stock carry a metal cost. Not those made from the customer's own metal: it costs
@@ -376,6 +484,100 @@ describe('job costing', () => {
     const weighedRows = weighed.map((w) => byNumber.get(w.number)).filter((x) => x !== undefined)
     expect(weighedRows.length).toBeGreaterThan(3)
     for (const row of weighedRows) expect(row!.metalAtActualMinor, JSON.stringify(row)).toBeGreaterThan(0)
+    // Most demo orders have nothing weighed: every row's cost at actual is its parts with their metal as estimated, and the total their sum.
+    const costing = (await owner.get('/api/insights/costing')).body
+    type Parts = Row & { stonesAtActualMinor: number; outsideAtActualMinor: number; labourAtActualMinor: number; costAtActualMinor: number }
+    for (const x of costing.rows as Parts[])
+      expect(x.costAtActualMinor, x.orderNumber).toBe(
+        (x.metalAtActualMinor ?? 0) + x.metalAsEstimatedMinor + x.stonesAtActualMinor + x.outsideAtActualMinor + x.labourAtActualMinor,
+      )
+    expect(costing.total.costAtActualMinor).toBe((costing.rows as Parts[]).reduce((sum, x) => sum + x.costAtActualMinor, 0))
+    expect(costing.total.metalAsEstimatedOrders).toBeGreaterThanOrEqual(unweighed.filter((u) => byNumber.has(u.number)).length)
+  })
+
+  it('when one complete order was weighed and another not, then the unweighed one counts its metal as estimated, never as free', async () => {
+    const manager = await signedIn(t.app, 'manager')
+    const routing = await manager.post('/api/routings', {
+      code: 'insight-metal',
+      name: 'Fixture: one bench step in gold',
+      description: 'Hand-worked costing fixture: one order weighed, one not.',
+      steps: [{ key: 'make', kindId: kinds.polishing, name: 'Make', baseMinutes: 60 }],
+    })
+    expect(routing.status).toBe(201)
+    const alloyId = await alloyIdByCode(t.db, 'au750y')
+    // 18 ct at 6,000 p/g from today (the day both orders are taken and the metal issued).
+    await t.db.insert(s.alloyPrices).values({ alloyId, pricePerGramMinor: 6000, effectiveOn: sql`current_date` })
+    const ids: number[] = []
+    for (const [title, grams, minutes] of [
+      ['Fixture weighed ring', 5, 60],
+      ['Fixture unweighed ring', 4, 90],
+    ] as const) {
+      const o = await manager.post('/api/orders', {
+        customerId: await firstCustomerId(t.db),
+        title,
+        dueDate: '2031-06-30',
+        priceQuotedMinor: 100_000,
+        pieces: [{ routingId: routing.body.id, piece: title, params: { metal: 'gold-18ct', metalWeightG: grams, stoneCount: 0, quantity: 1 } }],
+      })
+      expect(o.status).toBe(201)
+      ids.push(o.body.id)
+      const { make } = await opsOf(o.body.id)
+      await finish(make!, 60, at('2031-06-10', '16:00'), [{ person: 'Ines', start: at('2031-06-10', '09:00'), minutes }])
+    }
+    // Weighed: 6.000 g issued from stock, the piece back at 5.000 g and 0.800 g of scrap: 0.200 g lost.
+    const bag = await jobBagOfOrder(t.db, ids[0]!)
+    await addMetalMovement(t.db, { alloyId, jobBagId: bag, kind: 'issued', weightMg: 6000, source: 'stock', recordedAt: sql`now()` })
+    await addMetalMovement(t.db, { alloyId, jobBagId: bag, kind: 'returned', weightMg: 5000, form: 'piece', recordedAt: sql`now()` })
+    await addMetalMovement(t.db, { alloyId, jobBagId: bag, kind: 'returned', weightMg: 800, form: 'scrap', recordedAt: sql`now()` })
+
+    const r = await owner.get(`/api/insights/costing?routingId=${routing.body.id}`)
+    expect(r.status).toBe(200)
+    const rows = Object.fromEntries(r.body.rows.map((x: { orderId: number }) => [x.orderId, x]))
+    // Hand-worked in pence (Ines 3,800 p an hour; 18 ct 6,000 p/g):
+    // Weighed: estimate metal 5,000 mg × 6,000 / 1,000 = 30,000 + labour 60/60 × 3,800 = 3,800 → 33,800, margin 66,200 = 66.2 %;
+    //   actual metal (5,000 + 200) × 6 = 31,200 + labour 3,800 → 35,000, margin 65,000 = 65.0 %.
+    expect(rows[ids[0]!]).toMatchObject({
+      metalAtEstimateMinor: 30_000,
+      metalAtActualMinor: 31_200,
+      metalAsEstimatedMinor: 0,
+      costAtEstimateMinor: 33_800,
+      costAtActualMinor: 35_000,
+      marginPctAtEstimate: 66.2,
+      marginPctAtActual: 65,
+      caveatAtActual: 'metal, stones, outside work and labour counted',
+    })
+    // Unweighed: estimate metal 4,000 mg × 6 = 24,000 + labour 3,800 → 27,800, margin 72,200 = 72.2 %; at actual the metal is not weighed, so
+    //   its estimate (24,000) counts + labour 90/60 × 3,800 = 5,700 → 29,700, margin 70,300 = 70.3 % (counting the metal as free said 94.3 %).
+    expect(rows[ids[1]!]).toMatchObject({
+      metalAtEstimateMinor: 24_000,
+      metalAtActualMinor: null,
+      metalAsEstimatedMinor: 24_000,
+      labourAtActualMinor: 5_700,
+      costAtEstimateMinor: 27_800,
+      costAtActualMinor: 29_700,
+      marginAtActualMinor: 70_300,
+      marginPctAtActual: 70.3,
+      caveatAtActual: 'no metal weighed: metal counted as estimated',
+    })
+    // Total: price 200,000; at estimate 33,800 + 27,800 = 61,600, margin 138,400 = 69.2 %; at actual 35,000 + 29,700 = 64,700,
+    // margin 135,300 = 67.65 % → 67.7 % (half away from zero). Weighed metal 31,200, metal as estimated 24,000 on one order.
+    expect(r.body.total).toMatchObject({
+      orders: 2,
+      priceQuotedMinor: 200_000,
+      costAtEstimateMinor: 61_600,
+      costAtActualMinor: 64_700,
+      marginPctAtEstimate: 69.2,
+      marginPctAtActual: 67.7,
+      metalAtActualMinor: 31_200,
+      metalAsEstimatedMinor: 24_000,
+      metalAsEstimatedOrders: 1,
+      caveatAtActual: 'on some orders: no metal weighed: metal counted as estimated',
+    })
+    // The CSV: metal at actual blank for the unweighed order, its metal as estimated beside it (pounds, GBP's two decimals).
+    const lines = (await owner.get(`/api/insights/costing?routingId=${routing.body.id}&format=csv`)).text.split('\r\n')
+    // metal_at_actual (blank), metal_as_estimated_at_actual, stones, outside, labour, cost, margin, margin %, not counted, customer metal lost.
+    const unweighed = lines.find((l) => l.includes('Fixture unweighed ring'))!
+    expect(unweighed.endsWith(',,240.00,0.00,0.00,57.00,297.00,703.00,70.3,no metal weighed: metal counted as estimated,0'), unweighed).toBe(true)
   })
 
   it('when an outside cost is not a number or negative, then the field is named', async () => {

@@ -1,5 +1,11 @@
 // Bias and MAPE said in plain words beside the figures, so the owner need not know the statistics to read them.
 import type { ComparisonRow } from '@shared/schemas/insights'
+import { OUTSIDE_RATIO_WORDS } from '@shared/domain/estimate'
+
+/** The operations a table or chart leaves out, how many and why. */
+export function leftOutInWords(n: number, of: string): string {
+  return `${n} ${n === 1 ? 'operation' : 'operations'} left out of ${of}: ${OUTSIDE_RATIO_WORDS} (a step started and finished within seconds, or left running)`
+}
 
 /** What the bias figure means: taken together, how much longer (or less) the work took than its estimates. */
 export function biasInWords(r: Pick<ComparisonRow, 'biasPct' | 'direction'>): string {

@@ -1,6 +1,14 @@
 // Master data routes: operation kinds, benches, people, calendar, routings, customers, users.
 import { bench, benchInput, benchUpdate, downtimeInput } from '../../shared/schemas/bench'
-import { closure, closureInput, closureRemoved, workshopSettings, workshopSettingsInput } from '../../shared/schemas/calendar'
+import {
+  bankHolidaysAdded,
+  bankHolidaysInput,
+  closure,
+  closureInput,
+  closureRemoved,
+  workshopSettings,
+  workshopSettingsInput,
+} from '../../shared/schemas/calendar'
 import { listQuery } from '../../shared/schemas/common'
 import { customer, customerInput, customerPage, customerUpdate } from '../../shared/schemas/customer'
 import { operationKind, operationKindInput, operationKindUpdate } from '../../shared/schemas/operation-kind'
@@ -207,6 +215,16 @@ export const masterDataRoutes = [
     body: closureInput,
     response: closure,
     handler: ({ deps, actor, body }) => calendar.addClosure(deps, actor, body),
+  }),
+  route({
+    method: 'post',
+    path: '/closures/bank-holidays',
+    roles: STAFF,
+    status: 201,
+    summary: "Add a year's England and Wales bank holidays as closures",
+    body: bankHolidaysInput,
+    response: bankHolidaysAdded,
+    handler: ({ deps, actor, body }) => calendar.addBankHolidays(deps, actor, body),
   }),
   route({
     method: 'delete',

@@ -1,6 +1,15 @@
 // The workshop's calendar: settings (time zone, weekly hours) and closures.
 import { and, asc, eq } from 'drizzle-orm'
-import type { Closure, ClosureInput, WorkshopSettingsInput, WorkshopSettingsRecord, ClosureRemoved } from '../../shared/schemas/calendar'
+import type {
+  BankHolidaysAdded,
+  BankHolidaysInput,
+  Closure,
+  ClosureInput,
+  WorkshopSettingsInput,
+  WorkshopSettingsRecord,
+  ClosureRemoved,
+} from '../../shared/schemas/calendar'
+import { englandWalesBankHolidays } from '../../shared/domain/bank-holidays'
 import type { Db } from '../db/client'
 import { closures, workshops } from '../db/schema/index'
 import { notFound, staleVersion } from '../errors/app-error'
@@ -58,6 +67,30 @@ export async function addClosure({ db, realtime }: Deps, actor: Actor, input: Cl
   })
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'closure', id: c.id })
   return c
+}
+
+/** A year's England and Wales bank holidays as one-day closures, except days a closure already covers; in one transaction. */
+export async function addBankHolidays({ db, realtime }: Deps, actor: Actor, input: BankHolidaysInput): Promise<BankHolidaysAdded> {
+  const out = await db.transaction(async (tx) => {
+    // One at a time per workshop, so two clicks at once cannot add a day twice.
+    await tx.execute(sql`select id from workshops where id = ${actor.workshopId} for update`)
+    const existing = await tx.select().from(closures).where(eq(closures.workshopId, actor.workshopId))
+    const added: Closure[] = []
+    const skipped: { date: string; name: string }[] = []
+    for (const h of englandWalesBankHolidays(input.year)) {
+      if (existing.some((c) => c.startsOn <= h.date && h.date <= c.endsOn)) {
+        skipped.push(h)
+        continue
+      }
+      const values = { workshopId: actor.workshopId, name: `Bank holiday: ${h.name}`, startsOn: h.date, endsOn: h.date }
+      const [c] = await tx.insert(closures).values(values).returning()
+      await audit(tx, actor, 'create', 'closure', c!.id, values)
+      added.push(c!)
+    }
+    return { added, skipped }
+  })
+  for (const c of out.added) realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'closure', id: c.id })
+  return out
 }
 
 export async function removeClosure({ db, realtime }: Deps, actor: Actor, id: number): Promise<ClosureRemoved> {

@@ -69,6 +69,11 @@ export const closureInput = z
   .refine((c) => c.endsOn >= c.startsOn, { message: 'must not be before the first day', path: ['endsOn'] })
 export type WorkshopSettingsInput = z.infer<typeof workshopSettingsInput>
 export type ClosureInput = z.infer<typeof closureInput>
+/** Adds a year's England and Wales bank holidays as closures (those already closed are left as they are). */
+export const bankHolidaysInput = z.object({
+  year: z.coerce.number().int('must be a whole year').min(2000, 'must be 2000 or later').max(2100, 'must be 2100 or earlier'),
+})
+export type BankHolidaysInput = z.infer<typeof bankHolidaysInput>
 
 // ---- Answers ----
 
@@ -77,6 +82,9 @@ export type Closure = z.infer<typeof closure>
 /** A closure taken out of the calendar. */
 export const closureRemoved = z.object({ ok: z.literal(true) })
 export type ClosureRemoved = z.infer<typeof closureRemoved>
+/** The closures added for the bank holidays, and the holidays skipped because the workshop was already closed that day. */
+export const bankHolidaysAdded = z.object({ added: z.array(closure), skipped: z.array(z.object({ date: z.string(), name: z.string() })) })
+export type BankHolidaysAdded = z.infer<typeof bankHolidaysAdded>
 /** The settings as stored. */
 export const workshopSettingsRecord = z.object({
   id: wireInt,

@@ -28,10 +28,15 @@ export const useCalendarStore = defineStore('calendar', () => {
     closures.value = [...closures.value, c].sort((a, b) => a.startsOn.localeCompare(b.startsOn))
     return c
   }
+  async function addBankHolidays(year: number) {
+    const r = await workshopApi.addBankHolidays({ year })
+    closures.value = [...closures.value, ...r.added].sort((a, b) => a.startsOn.localeCompare(b.startsOn))
+    return r
+  }
   async function removeClosure(id: number) {
     await workshopApi.removeClosure(id)
     closures.value = closures.value.filter((c) => c.id !== id)
   }
 
-  return { settings, closures, loading, error, load, save, addClosure, removeClosure }
+  return { settings, closures, loading, error, load, save, addClosure, addBankHolidays, removeClosure }
 })

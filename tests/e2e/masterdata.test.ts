@@ -65,6 +65,20 @@ describe('master-data screens as the owner', () => {
     await screenshot(page, 'calendar')
   })
 
+  it("when the manager adds the bank holidays of the year after next, then the eight days of England and Wales' standing rules are listed as closures", async () => {
+    // Beyond the demo's own closures (which reach about six months ahead), so none is skipped; the rules give eight days a year
+    // (New Year's Day, Good Friday, Easter Monday, two May Mondays, August's last Monday, Christmas Day, Boxing Day).
+    const year = new Date().getFullYear() + 2
+    await page.goto('/calendar')
+    const box = page.locator('[data-test=bank-holidays]')
+    await box.locator('[data-test=bank-holidays-year]').click()
+    await page.getByRole('option', { name: String(year), exact: true }).click()
+    await box.locator('[data-test=bank-holidays-add]').click()
+    await page.locator('.el-message', { hasText: `8 bank holidays of ${year} added` }).waitFor()
+    await page.getByText('Bank holiday: Summer bank holiday').first().waitFor()
+    await screenshot(page, 'calendar-bank-holidays')
+  })
+
   it('when a routing opens, then each step says what it follows and hazardous steps carry their cautions', async () => {
     await page.goto('/routings')
     await page.getByText('Pavé pendant in laminated metal').click()

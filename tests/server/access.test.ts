@@ -60,6 +60,7 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   'PUT /workshop': OWNER,
   'GET /closures': ALL,
   'POST /closures': STAFF,
+  'POST /closures/bank-holidays': STAFF,
   'DELETE /closures/:id': STAFF,
   // routings
   'GET /routings': ALL,

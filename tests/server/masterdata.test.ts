@@ -278,6 +278,35 @@ describe('calendar', () => {
     expectFieldError(await manager.post('/api/closures', { startsOn: '24/12/2030', endsOn: '2030-12-24', name: 'x' }), 'startsOn', /YYYY-MM-DD/)
     expectFieldError(await manager.post('/api/closures', { startsOn: '2030-12-24', endsOn: '2030-12-24' }), 'name', /required/)
   })
+
+  it("when a year's bank holidays are added over a winter break, then the days it covers are skipped, the rest become closures once", async () => {
+    const brk = await manager.post('/api/closures', { startsOn: '2029-12-24', endsOn: '2029-12-28', name: 'Winter break 2029' })
+    expect(brk.status).toBe(201)
+    const r = await manager.post('/api/closures/bank-holidays', { year: 2029 })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    // Hand-worked for 2029 from a calendar: 1 Jan is a Monday; Easter Sunday is 1 April (published Easter tables, from memory),
+    // so Good Friday 30 March and Easter Monday 2 April; May's first Monday the 7th and last the 28th; August's last Monday the
+    // 27th; Christmas Day (Tuesday) and Boxing Day (Wednesday) fall in the winter break and are skipped.
+    expect(r.body.added.map((c: { startsOn: string }) => c.startsOn)).toEqual([
+      '2029-01-01',
+      '2029-03-30',
+      '2029-04-02',
+      '2029-05-07',
+      '2029-05-28',
+      '2029-08-27',
+    ])
+    expect(r.body.added[0]).toMatchObject({ name: "Bank holiday: New Year's Day", endsOn: '2029-01-01' })
+    expect(r.body.skipped.map((h: { date: string }) => h.date)).toEqual(['2029-12-25', '2029-12-26'])
+    expect((await auditRows(t, 'closure', r.body.added[0].id)).map((x) => x.action)).toEqual(['create'])
+    // Again: nothing new, every day already closed.
+    const again = await manager.post('/api/closures/bank-holidays', { year: 2029 })
+    expect(again.status).toBe(201)
+    expect(again.body.added).toEqual([])
+    expect(again.body.skipped).toHaveLength(8)
+    expectFieldError(await manager.post('/api/closures/bank-holidays', { year: 'next' }), 'year')
+    expectFieldError(await manager.post('/api/closures/bank-holidays', { year: 1850 }), 'year', /2000 or later/)
+    for (const c of [brk.body, ...r.body.added]) expect((await manager.delete(`/api/closures/${c.id}`)).status).toBe(200)
+  })
 })
 
 describe('routings', () => {

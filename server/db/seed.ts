@@ -351,6 +351,8 @@ const PIECES: Record<string, { piece: string; params: Partial<PieceParams> }[]> 
 const DEFAULT_PARAMS: PieceParams = { metal: 'silver-925', stoneCount: 0, stoneSizeMm: 0, sizeMm: 0, finish: 'polished', quantity: 1 }
 const dayStr = (d: Date) => d.toISOString().slice(0, 10)
 const addDays = (d: Date, n: number) => new Date(d.getTime() + n * 86_400_000)
+/** The same day, or the Monday after when it falls on a weekend. */
+const weekday = (d: Date) => (d.getUTCDay() === 6 ? addDays(d, 2) : d.getUTCDay() === 0 ? addDays(d, 1) : d)
 
 export async function isSeeded(db: Db) {
   const [r] = await db.select({ n: count() }).from(s.workshops)
@@ -394,7 +396,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       .returning()
     await tx.insert(s.benchCapabilities).values(BENCHES.flatMap((b, i) => b.kinds.map((k) => ({ benchId: benches[i]!.id, kindId: kindId(k) }))))
     const polishing = benches.find((b) => b.kind === 'polishing')!
-    const downStart = addDays(now, 9)
+    const downStart = weekday(addDays(now, 9))
     downStart.setUTCHours(8, 30, 0, 0)
     await tx.insert(s.benchDowntime).values({
       benchId: polishing.id,
@@ -419,9 +421,10 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       .values(PEOPLE.flatMap((p, i) => p.skills.map(([k, level, speed]) => ({ personId: people[i]!.id, kindId: kindId(k), level, speed }))))
     const l1 = addDays(now, 12)
     await tx.insert(s.leave).values({ personId: people[2]!.id, startsOn: dayStr(l1), endsOn: dayStr(addDays(l1, 2)), reason: 'Holiday' })
-    await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: stocktake', startsOn: dayStr(addDays(now, 17)), endsOn: dayStr(addDays(now, 17)) })
+    const stocktake = dayStr(weekday(addDays(now, 17)))
+    await tx.insert(s.closures).values({ workshopId, name: 'Workshop closed: stocktake', startsOn: stocktake, endsOn: stocktake })
     // The demo workshop is in England: its bank holidays over the seeded history and the months ahead are closures too.
-    const holidays = englandWalesBankHolidaysBetween(dayStr(addDays(now, -120)), dayStr(addDays(now, 180))).filter((h) => h.date !== dayStr(addDays(now, 17)))
+    const holidays = englandWalesBankHolidaysBetween(dayStr(addDays(now, -120)), dayStr(addDays(now, 180))).filter((h) => h.date !== stocktake)
     if (holidays.length)
       await tx.insert(s.closures).values(holidays.map((h) => ({ workshopId, name: `Bank holiday: ${h.name}`, startsOn: h.date, endsOn: h.date })))
 

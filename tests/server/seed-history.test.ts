@@ -280,3 +280,52 @@ describe('the demo seeded with a clock it is given', () => {
     expect(last <= new Date('2026-04-10T16:00:00Z')).toBe(true)
   })
 })
+
+describe('the demo seeded on a Friday night in December', () => {
+  // Friday 4 December 2026, 01:45 in London: nine days on is Sunday 13 December, so the lathe's service moves to Monday 14;
+  // seventeen days on, the stocktake, is Monday 21 December.
+  const now = new Date('2026-12-04T01:45:00Z')
+  const name = `h_${randomBytes(6).toString('hex')}`
+  const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/postgres` })
+  let pool: pg.Pool
+  let db: Db
+  beforeAll(async () => {
+    const c = admin()
+    await c.connect()
+    await c.query(`create database ${name}`) // Raw SQL on purpose: making a database is not a table write
+    await c.end()
+    const made = createDb(`postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/${name}`, 2)
+    pool = made.pool
+    db = made.db
+    await runMigrations(made.db)
+    expect(await seedDemo(made.db, { now })).toBe(true)
+  }, 180_000)
+  afterAll(async () => {
+    await pool?.end()
+    const c = admin()
+    await c.connect()
+    await c.query(`drop database if exists ${name} with (force)`)
+    await c.end()
+  })
+
+  it('when its calendar is read back, then the downtime and the stocktake fall on weekdays and the bank holidays are closures', async () => {
+    const down = await db.select({ startsAt: s.benchDowntime.startsAt }).from(s.benchDowntime)
+    expect(down.map((d) => new Date(d.startsAt).toISOString().slice(0, 10))).toEqual(['2026-12-14'])
+    const closed = (await db.select({ name: s.closures.name, startsOn: s.closures.startsOn }).from(s.closures)).map((c) => `${c.startsOn} ${c.name}`).sort()
+    // England and Wales bank holidays from four months back to six months ahead (the UK government's published list, from
+    // memory): 31 Aug 2026; 25 and 28 (Boxing Day's substitute) Dec 2026; 1 Jan, 26 and 29 Mar, 3 and 31 May 2027.
+    expect(closed.filter((c) => c.includes('Bank holiday')).map((c) => c.slice(0, 10))).toEqual([
+      '2026-08-31',
+      '2026-12-25',
+      '2026-12-28',
+      '2027-01-01',
+      '2027-03-26',
+      '2027-03-29',
+      '2027-05-03',
+      '2027-05-31',
+    ])
+    expect(closed).toContain('2026-12-21 Workshop closed: stocktake')
+    const { problems } = await contradictions(db, now)
+    expect(problems).toEqual([])
+  })
+})

@@ -1,7 +1,9 @@
 // Week load: planned against available hours, the overload mark at the planning load, our colour ramp, week totals and the tightest rows.
 import { describe, expect, it } from 'vitest'
-import type { LoadRow } from '@shared/schemas/plan'
-import { bottlenecks, cellLabel, heatColour, hours, loadLevel, loadRatio, percent, weekTotal } from '@/components/board/load-heat'
+import { mount } from '@vue/test-utils'
+import type { LoadRow, WeekLoad } from '@shared/schemas/plan'
+import BoardLoadTable from '@/components/board/BoardLoadTable.vue'
+import { bottlenecks, cellLabel, heatColour, hours, loadLegend, loadLevel, loadRatio, percent, weekTotal } from '@/components/board/load-heat'
 
 const row = (type: 'bench' | 'skill', id: number, name: string, cells: [string, string, number, number, number[]][]): LoadRow => ({
   type,
@@ -11,10 +13,16 @@ const row = (type: 'bench' | 'skill', id: number, name: string, cells: [string, 
 })
 
 describe('load cells', () => {
-  it('when a cell is labelled, then it reads planned against available hours', () => {
-    expect(cellLabel({ plannedMinutes: 390, availableMinutes: 450 })).toBe('6.5 / 7.5 h')
-    expect(cellLabel({ plannedMinutes: 0, availableMinutes: 480 })).toBe('0 / 8 h')
-    expect(hours(465)).toBe('7.8')
+  it('when a cell is labelled, then it reads planned against available hours and minutes', () => {
+    expect(cellLabel({ plannedMinutes: 390, availableMinutes: 450 })).toBe('6:30 / 7:30 h')
+    expect(cellLabel({ plannedMinutes: 0, availableMinutes: 480 })).toBe('0:00 / 8:00 h')
+    expect(hours(465)).toBe('7:45')
+    expect(hours(5)).toBe('0:05')
+  })
+  it('when five days of 7:45 are summed, then the week reads 38:45, the sum of the parts as shown', () => {
+    // Hand-worked: 5 × 465 min = 2325 min = 38 h 45 min; in decimal hours each day would round to 7.8 and the week to 38.8.
+    expect(hours(5 * 465)).toBe('38:45')
+    expect(hours(443)).toBe('7:23')
   })
   it('when nothing is available, then the ratio is empty, or infinite when work is planned on no time', () => {
     expect(loadRatio(0, 0)).toBeNull()
@@ -32,14 +40,40 @@ describe('load cells', () => {
     expect(loadLevel(0.86, 0.85)).toBe('over')
     expect(loadLevel(1.01, 0.85)).toBe('beyond')
   })
-  it('when the load rises, then the ramp darkens, and overload turns red with white ink once deep', () => {
+  it('when the load rises to the planning load, then the ramp darkens', () => {
     const lum = (hex: string) => [1, 3, 5].reduce((t, i) => t + parseInt(hex.slice(i, i + 2), 16), 0)
     const steps = [0, 0.3, 0.6, 0.85].map((r) => heatColour(r, 0.85).bg)
     for (let i = 1; i < steps.length; i++) expect(lum(steps[i]!)).toBeLessThan(lum(steps[i - 1]!))
-    const over = heatColour(1.25, 0.85)
-    expect(over.bg).toBe('#a8473a')
-    expect(over.ink).toBe('#ffffff')
     expect(heatColour(null, 0.85).bg).toBe('#f1efeb')
+  })
+  it('when a cell is above the planning load but within the hours, then it is amber with dark ink, not the over-capacity red', () => {
+    // 443 of 465 min = 95.3 %: above 85 %, below 100 %.
+    expect(loadLevel(443 / 465, 0.85)).toBe('over')
+    expect(heatColour(443 / 465, 0.85)).toEqual({ bg: '#e6ad7c', ink: '#3a1f17' })
+    expect(heatColour(0.86, 0.85)).toEqual(heatColour(1, 0.85))
+  })
+  it('when more is planned than there are hours, then it is red with white ink, deepening to 125 %', () => {
+    expect(loadLevel(466 / 465, 0.85)).toBe('beyond')
+    // Hand-worked: halfway (112.5 %) between #b4513f and #a8473a: (180+168)/2 = 174 = ae, (81+71)/2 = 76 = 4c, (63+58)/2 = 60.5 → 61 = 3d.
+    expect(heatColour(1.125, 0.85)).toEqual({ bg: '#ae4c3d', ink: '#ffffff' })
+    expect(heatColour(1.25, 0.85).bg).toBe('#a8473a')
+    expect(heatColour(3, 0.85).bg).toBe('#a8473a')
+    expect(heatColour(Infinity, 0.85).ink).toBe('#ffffff')
+  })
+  it("when the legend is read, then each band says what it means, its colour is the cells' colour, and only over 100 % carries the flag", () => {
+    const legend = loadLegend(0.85)
+    expect(legend.map((l) => l.label)).toEqual([
+      'light',
+      'filling up',
+      'at the planning load (85 %)',
+      'above the planning load (85–100 %)',
+      'more than the hours available (over 100 %)',
+    ])
+    expect(legend.map((l) => l.flag)).toEqual([false, false, false, false, true])
+    expect(legend[3]!.bg).toBe(heatColour(443 / 465, 0.85).bg)
+    expect(legend[4]!.bg).not.toBe(legend[3]!.bg)
+    // A planning load of 100 % leaves no band between it and the hours available.
+    expect(loadLegend(1).map((l) => l.label)).not.toContain('above the planning load (100–100 %)')
   })
 })
 
@@ -56,6 +90,9 @@ describe('weeks and bottlenecks', () => {
   it('when a week is summed, then hours add up and operations are listed once', () => {
     expect(weekTotal(setting, '2026-W50')).toEqual({ plannedMinutes: 915, availableMinutes: 930, operationIds: [1, 2, 3] })
   })
+  it('when a week is summed from a day on, then the days before it are left out', () => {
+    expect(weekTotal(setting, '2026-W50', '2026-12-08')).toEqual({ plannedMinutes: 465, availableMinutes: 465, operationIds: [2, 3] })
+  })
   it('when rows pass the planning load in some week, then the fullest comes first with that week', () => {
     const b = bottlenecks({
       rows: [polish, setting],
@@ -69,5 +106,45 @@ describe('weeks and bottlenecks', () => {
     expect(b[0]).toMatchObject({ week: '2026-W50' })
     expect(b[0]!.row.name).toBe('Stone setting')
     expect(b[0]!.ratio).toBeCloseTo(915 / 930, 6)
+  })
+})
+
+describe('the load table on Friday of the current week', () => {
+  // Friday 4 Dec 2026 in W49: 7:45 available each weekday, 3:30 planned on Friday only; Thursday's cell was 443 of 465 min.
+  const days = ['2026-11-30', '2026-12-01', '2026-12-02', '2026-12-03', '2026-12-04', '2026-12-05', '2026-12-06']
+  const avail = [465, 465, 465, 465, 465, 0, 0]
+  const planned = [0, 0, 0, 443, 210, 0, 0]
+  const load: WeekLoad = {
+    from: days[0]!,
+    to: days[6]!,
+    days,
+    weeks: [{ week: '2026-W49', days }],
+    rows: [
+      {
+        type: 'bench',
+        id: 3,
+        name: 'Setting bench',
+        cells: days.map((day, i) => ({ day, week: '2026-W49', plannedMinutes: planned[i]!, availableMinutes: avail[i]!, operationIds: planned[i] ? [i] : [] })),
+      },
+    ],
+    planningLoad: 0.85,
+  }
+  const table = () =>
+    mount(BoardLoadTable, { props: { load, items: new Map(), benchName: new Map(), personName: new Map(), timeZone: 'Europe/London', today: '2026-12-04' } })
+
+  it('when only Friday is left, then the week total counts Friday alone and says it is the rest of the week', () => {
+    const w = table()
+    const total = w.get('[data-test=load-cell-bench-3-2026-W49-total]')
+    // Hand-worked: Friday alone, 210 of 465 min = 3:30 / 7:45 h (not 3:30 against Monday–Friday's 38:45).
+    expect(total.text()).toBe('3:30 / 7:45 h')
+    expect(w.text()).toContain('rest of week, from Fri')
+    expect(w.text()).toContain('3 Dec · past')
+  })
+  it('when a day is at 95 %, then it is above the planning load without the over-capacity flag', () => {
+    const thu = table().get('[data-test=load-cell-bench-3-2026-12-03]')
+    expect(thu.text()).toBe('7:23 / 7:45 h')
+    expect(thu.classes()).toContain('load__cell--over')
+    expect(thu.classes()).not.toContain('load__cell--beyond')
+    expect(thu.attributes('title')).toContain('above the planning load')
   })
 })

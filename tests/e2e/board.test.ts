@@ -343,7 +343,7 @@ describe('the planning board', () => {
     await expect(table.textContent()).resolves.toMatch(/Stone setting/)
     const busy = table
       .locator('td.load__cell')
-      .filter({ hasText: /^[1-9][\d.]* \/ / })
+      .filter({ hasText: /^[1-9]\d*:\d\d \/ / })
       .first()
     await busy.click()
     await manager.locator('[data-test=load-picked] li').first().waitFor()

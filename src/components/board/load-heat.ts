@@ -42,33 +42,47 @@ const mix = (a: string, b: string, t: number): string => {
     .join('')}`
 }
 
-/** Our ramp: pale linen at rest, warming to brass as the plan fills up to the planning load, then oxide red beyond it. */
+const OVER_BG = '#e6ad7c'
+
+/**
+ * Our ramp, in the same bands as `loadLevel`: pale linen at rest, warming to brass up to the planning load;
+ * one flat amber above the planning load while the hours still suffice; oxide red once more is planned than is available
+ * (deeper up to 125 %), the only band with white ink.
+ */
 export function heatColour(ratio: number | null, threshold: number): { bg: string; ink: string } {
   if (ratio === null) return { bg: '#f1efeb', ink: '#a29d96' }
-  if (ratio <= threshold) {
-    const t = threshold > 0 ? ratio / threshold : 1
-    return { bg: t < 0.5 ? mix('#fbfaf7', '#efe3c4', t * 2) : mix('#efe3c4', '#d6b46e', (t - 0.5) * 2), ink: '#3f3a35' }
-  }
-  // Overload: the further past the threshold, the deeper the red (full depth at 125 %).
-  const t = Math.min(1, (ratio - threshold) / Math.max(0.05, 1.25 - threshold))
-  const bg = mix('#dc9a72', '#a8473a', t)
-  return { bg, ink: t > 0.35 ? '#ffffff' : '#3a1f17' }
+  if (ratio > 1) return { bg: mix('#b4513f', '#a8473a', (ratio - 1) / 0.25), ink: '#ffffff' }
+  if (ratio > threshold) return { bg: OVER_BG, ink: '#3a1f17' }
+  const t = threshold > 0 ? ratio / threshold : 1
+  return { bg: t < 0.5 ? mix('#fbfaf7', '#efe3c4', t * 2) : mix('#efe3c4', '#d6b46e', (t - 0.5) * 2), ink: '#3f3a35' }
+}
+/** The colour key, one entry per band of `heatColour`, worded for the planning load `threshold`; `flag` marks the band with the corner flag. */
+export function loadLegend(threshold: number): { label: string; bg: string; flag: boolean }[] {
+  const pl = Math.round(threshold * 100)
+  const steps = [
+    { r: threshold * 0.25, label: 'light' },
+    { r: threshold * 0.75, label: 'filling up' },
+    { r: threshold, label: `at the planning load (${pl} %)` },
+    ...(threshold < 1 ? [{ r: (threshold + 1) / 2, label: `above the planning load (${pl}–100 %)` }] : []),
+    { r: 1.1, label: 'more than the hours available (over 100 %)', flag: true },
+  ]
+  return steps.map((s) => ({ label: s.label, bg: heatColour(s.r, threshold).bg, flag: !!s.flag }))
 }
 
-/** Hours with one decimal, trailing ".0" dropped: 390 → "6.5", 480 → "8". */
+/** Hours and minutes, so the days of a week visibly add up to its total: 465 → "7:45", 480 → "8:00", 2325 → "38:45". */
 export function hours(minutes: number): string {
-  const h = Math.round((minutes / 60) * 10) / 10
-  return Number.isInteger(h) ? String(h) : h.toFixed(1)
+  const m = Math.round(minutes)
+  return `${Math.floor(m / 60)}:${String(m % 60).padStart(2, '0')}`
 }
 
-/** "6.5 / 7.5 h" — planned against available. */
+/** "6:30 / 7:30 h" — planned against available. */
 export function cellLabel(c: Pick<LoadCell, 'plannedMinutes' | 'availableMinutes'>): string {
   return `${hours(c.plannedMinutes)} / ${hours(c.availableMinutes)} h`
 }
 
-/** One ISO week of a row summed up. */
-export function weekTotal(row: LoadRow, week: string): LoadTotal {
-  const cells = row.cells.filter((c) => c.week === week)
+/** One ISO week of a row summed up; with `fromDay`, only its days from then on (the rest of the current week). */
+export function weekTotal(row: LoadRow, week: string, fromDay?: string): LoadTotal {
+  const cells = row.cells.filter((c) => c.week === week && (!fromDay || c.day >= fromDay))
   return {
     plannedMinutes: cells.reduce((t, c) => t + c.plannedMinutes, 0),
     availableMinutes: cells.reduce((t, c) => t + c.availableMinutes, 0),
@@ -82,13 +96,18 @@ export interface Bottleneck {
   ratio: number
 }
 
-/** Rows whose fullest ISO week goes past the planning load, fullest first: where the plan is tight. */
-export function bottlenecks(load: Pick<WeekLoad, 'rows' | 'weeks' | 'planningLoad'>): Bottleneck[] {
+/** The day a week's total starts from: `today` in the week that holds it (days already past leave it), else the whole week. */
+export function weekFrom(week: Pick<WeekLoad['weeks'][number], 'days'>, today: string): string | undefined {
+  return week.days.includes(today) ? today : undefined
+}
+
+/** Rows whose fullest ISO week goes past the planning load, fullest first: where the plan is tight. The current week counts from `today`. */
+export function bottlenecks(load: Pick<WeekLoad, 'rows' | 'weeks' | 'planningLoad'>, today = ''): Bottleneck[] {
   const out: Bottleneck[] = []
   for (const row of load.rows) {
     let best: Bottleneck | null = null
     for (const w of load.weeks) {
-      const t = weekTotal(row, w.week)
+      const t = weekTotal(row, w.week, weekFrom(w, today))
       const r = loadRatio(t.plannedMinutes, t.availableMinutes)
       if (r === null || r <= load.planningLoad) continue
       if (!best || r > best.ratio) best = { row, week: w.week, ratio: r }

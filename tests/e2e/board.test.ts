@@ -173,6 +173,11 @@ describe('the planning board', () => {
       .locator('[data-test=plan-progress-lateness]')
       .filter({ hasText: /^[\d,.]+$/ })
       .waitFor({ timeout: 10_000 })
+    // The figure says what it is: hours late times priority, explained in words beside it.
+    const progressText = (await manager.locator('[data-test=plan-progress]').textContent()) ?? ''
+    expect(progressText).toMatch(/Hours late × priority\s*[\d,.]+ h/)
+    expect(progressText).toMatch(/hours \(on the clock, nights and weekends included\) it is late times its order's priority \(1–5\), added up/)
+    expect(progressText).not.toMatch(/Lateness score/i)
     // The dialog says what the search is doing in the workshop's words.
     await expect(manager.locator('[data-test=plan-stage]').textContent()).resolves.toMatch(
       /first plan from due dates|rough order, working hours set aside|reordering benches and people|laying the plan out/,
@@ -196,7 +201,7 @@ describe('the planning board', () => {
     await screenshot(manager, 'board-03b-publish-confirm')
     await confirm.locator('button', { hasText: 'Publish' }).click()
     await banner.waitFor({ state: 'detached', timeout: 10_000 })
-    await expect(manager.locator('[data-test=board-plan-line]').textContent()).resolves.toMatch(/Live plan 1, published by Sam Ottery .* of \d+ jobs late/)
+    await expect(manager.locator('[data-test=board-plan-line]').textContent()).resolves.toMatch(/Live plan 1, published by Sam Ottery .* of \d+ pieces late/)
 
     // Time to first render of the board with the demo plan: navigation until the bars are drawn.
     const t0 = Date.now()

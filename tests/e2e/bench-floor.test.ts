@@ -127,6 +127,10 @@ describe('the bench tablet', () => {
     await page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=resume]`).click()
     await page.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
     await page.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=finish]`).click()
+    // None of the list's 18 × 2 = 36 stones was taken from the safe in this run: the dialog says so before the step is finished.
+    await expect
+      .poll(() => page.locator('[data-test=finish-stones]').innerText(), { timeout: 10_000 })
+      .toBe('Stones: 36 of the 36 stones on the list were never given out. Count them on the card first, or say in the note what happened.')
     await page.locator('[data-test=finish-note]').fill('All stones tight, checked under the scope')
     await page.locator('[data-test=confirm-finish]').click()
     await card(page, 'my-work', op.id).waitFor({ state: 'detached' })

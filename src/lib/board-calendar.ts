@@ -50,3 +50,25 @@ export function shiftAnchor(anchorDay: string, zoom: Zoom, direction: -1 | 1): s
   if (zoom === 'day') while (d.isoWeekday() > 5) d = d.add(direction, 'day')
   return d.format('YYYY-MM-DD')
 }
+
+const weekNo = (d: dayjs.Dayjs) => `W${String(dayjs(d.format('YYYY-MM-DD')).isoWeek()).padStart(2, '0')}`
+
+/** The toolbar's name for a zoom's range: "Friday 4 December 2026", "W49 · 30 Nov – 4 Dec 2026", "W49–W52 · 30 Nov – 27 Dec 2026". */
+export function zoomRangeLabel(zoom: Zoom, anchorDay: string): string {
+  const a = dayjs(anchorDay)
+  if (zoom === 'day') return a.format('dddd D MMMM YYYY')
+  const mon = dayjs(dataWindowFor(anchorDay).from)
+  if (zoom === 'week') return `${weekNo(mon)} · ${mon.format('D MMM')} – ${mon.add(4, 'day').format('D MMM YYYY')}`
+  return `${weekNo(mon)}–${weekNo(mon.add(21, 'day'))} · ${mon.format('D MMM')} – ${mon.add(27, 'day').format('D MMM YYYY')}`
+}
+
+/** The toolbar's name for what the timeline shows once it left the zoom's range (a job focused, a pan): "W49–W51 · Thu 3 – Fri 18 Dec 2026". */
+export function shownRangeLabel(start: Date, end: Date, tz: string): string {
+  const s = dayjs(start).tz(tz)
+  // The end is exclusive: a range ending at midnight shows the day before.
+  const e = dayjs(Math.max(start.getTime(), end.getTime() - 1)).tz(tz)
+  if (s.format('YYYY-MM-DD') === e.format('YYYY-MM-DD')) return `${weekNo(s)} · ${s.format('dddd D MMMM YYYY')}`
+  const weeks = weekNo(s) === weekNo(e) ? weekNo(s) : `${weekNo(s)}–${weekNo(e)}`
+  const first = s.year() !== e.year() ? s.format('ddd D MMM YYYY') : s.month() !== e.month() ? s.format('ddd D MMM') : s.format('ddd D')
+  return `${weeks} · ${first} – ${e.format('ddd D MMM YYYY')}`
+}

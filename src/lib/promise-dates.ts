@@ -31,7 +31,7 @@ export function estimateGapSentence(r: PromiseCheckResult, formatDay: (date: str
   const plan = formatDay(r.fixedPlan.date)
   const even = formatDay(r.range.p50.date)
   if (over !== null && over >= 0.005)
-    return `The estimates are usually short here: work of these kinds has really taken about ${Math.round(over * 100)} % longer than estimated, so the plan's date (${plan}) is earlier than an even chance (${even}).`
+    return `The estimates are usually short here: work of these kinds has really taken about ${Math.round(over * 100)} % longer than estimated, and a step that runs over can miss its gap in the plan and wait for the next, so the plan's date (${plan}) is earlier than an even chance (${even}).`
   return `The plan's ${plan} assumes every step takes exactly its estimate; walked through the plan with how long work has really taken, an even chance is ${even}.`
 }
 

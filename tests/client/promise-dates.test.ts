@@ -66,7 +66,7 @@ describe('promise dates in words', () => {
 
   it('when the plan date is earlier than the even chance, then one sentence says the estimates are usually short and by how much', () => {
     expect(estimateGapSentence(answer(), day)).toBe(
-      "The estimates are usually short here: work of these kinds has really taken about 16 % longer than estimated, so the plan's date (2026-12-10) is earlier than an even chance (2026-12-15).",
+      "The estimates are usually short here: work of these kinds has really taken about 16 % longer than estimated, and a step that runs over can miss its gap in the plan and wait for the next, so the plan's date (2026-12-10) is earlier than an even chance (2026-12-15).",
     )
   })
 
@@ -86,7 +86,9 @@ describe('promise dates in words', () => {
     expect(text).toContain('Fits into the current plan, on the estimates')
     expect(text).toContain('If everything were re-planned, on the estimates')
     expect(text).toContain('With how long work has really taken')
-    expect(text).toContain("about 16 % longer than estimated, so the plan's date (Thu 10 Dec 2026) is earlier than an even chance (Tue 15 Dec 2026).")
+    expect(text).toContain(
+      "about 16 % longer than estimated, and a step that runs over can miss its gap in the plan and wait for the next, so the plan's date (Thu 10 Dec 2026) is earlier than an even chance (Tue 15 Dec 2026).",
+    )
     expect(text).toMatch(/Quoted to the customer by default: Tue 15 Dec 2026 \(safe to promise \(P80\)/)
   })
 })

@@ -87,6 +87,17 @@ async function expectScreenShows(a: CheckAnswer) {
   expect(a.range, 'the check asks for the range').not.toBeNull()
   const shown = (await page.locator('[data-test=promise-quantiles] strong').allTextContents()).map(screenDay)
   expect(shown).toEqual([a.range!.p50.date, a.range!.p80.date, a.range!.p95.date])
+  // The plan's dates are on the estimates, the range with how long work has really taken; when the plan's day is before the
+  // even chance, one sentence says why, else none.
+  await expect(page.locator('[data-test=promise-fixed]').textContent()).resolves.toContain('on the estimates')
+  await expect(page.locator('[data-test=promise-result]').textContent()).resolves.toContain('With how long work has really taken')
+  const gap = page.locator('[data-test=promise-estimate-gap]')
+  if (a.fixedPlan.date < a.range!.p50.date)
+    await expect(gap.textContent()).resolves.toMatch(/is earlier than an even chance|assumes every step takes exactly its estimate/)
+  else expect(await gap.count()).toBe(0)
+  // The date quoted by default: P80 when it is later than the plan's day, else the plan's day (worked out here from the answer).
+  const quoted = a.range!.p80.date > a.fixedPlan.date ? a.range!.p80.date : a.fixedPlan.date
+  expect(screenDay((await page.locator('[data-test=promise-quoted-date] strong').textContent()) ?? '')).toBe(quoted)
   return shown
 }
 

@@ -1,5 +1,6 @@
 // The manager's board tools in Chromium: finished work at its actual times, finding a job bag, moving a bar by keyboard
-// (accepted by exactly the step, or refused with the reason), and the icon rail that gives the board the width on a tablet.
+// (accepted by exactly the step, or refused with the reason), the range label after a job at risk is focused, and the icon rail
+// that gives the board the width on a tablet.
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import dayjs from 'dayjs'
@@ -9,7 +10,7 @@ import isoWeek from 'dayjs/plugin/isoWeek'
 import { eq, inArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { barBox, screenshot, signInPage, useE2E } from '../setup/e2e'
-import { readyBenchStep } from '../setup/fixtures'
+import { bookLastStepLate, firstWorkshopId, openOrder, readyBenchStep } from '../setup/fixtures'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
@@ -55,6 +56,46 @@ const hm = (min: number) => (min < 60 ? `${min} min` : min % 60 ? `${Math.floor(
 const clock = (at: Date | string) => dayjs(at).tz(TZ).format('ddd D MMM HH:mm')
 
 describe("the manager's board tools", () => {
+  it('when a job at risk is focused, then the toolbar names the days the timeline shows and marks no zoom; picking Week brings the week back', async () => {
+    // A late job bag of our own, so the list is never empty: its last bench step booked two weeks ahead, promised two days before it ends.
+    // Done before anything reads the board, so no cached board hides it.
+    const db = e2e.db.db
+    const o = await openOrder(db, 1)
+    const booked = await bookLastStepLate(db, {
+      workshopId: await firstWorkshopId(db),
+      orderId: o.id,
+      bagId: o.bagId,
+      fromMinute: 14 * 1440,
+      promised: (end) => new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10),
+    })
+    const ctx = await e2e.newContext()
+    const manager = await signInPage(ctx, 'manager')
+    await manager.waitForURL((u) => u.pathname === '/plan')
+    const late = manager.locator(`[data-test=job-risk-${o.bagNumber}]`)
+    await late.waitFor()
+    const range = manager.locator('[data-test=board-range]')
+    const zoom = manager.locator('[data-test=board-zoom]')
+    await zoom.getByText('Week', { exact: true }).click()
+    // The zoom's label names weeks and dates, no weekday ("W49 · 30 Nov – 4 Dec 2026").
+    await manager.waitForFunction(() => /^W\d\d · \d/.test(document.querySelector('[data-test=board-range]')?.textContent?.trim() ?? ''))
+    const weekLabel = (await range.textContent())!.trim()
+
+    await late.click()
+    // Its one bar (an hour of working time, so inside one day) is all the timeline shows: that day, worked out here from the booking,
+    // named by weekday as no zoom's label is; and no zoom is marked.
+    const day = dayjs(booked.start).tz(TZ)
+    const expected = `W${String(day.isoWeek()).padStart(2, '0')} · ${day.format('dddd D MMMM YYYY')}`
+    await manager.waitForFunction((x) => document.querySelector('[data-test=board-range]')?.textContent?.trim() === x, expected)
+    expect(expected).not.toBe(weekLabel)
+    await expect(zoom.locator('.is-selected').count()).resolves.toBe(0)
+    await screenshot(manager, 'board-tools-00-focused-range')
+
+    await zoom.getByText('Week', { exact: true }).click()
+    await manager.waitForFunction((w) => document.querySelector('[data-test=board-range]')?.textContent?.trim() === w, weekLabel)
+    await expect(zoom.locator('.is-selected').count()).resolves.toBe(1)
+    await ctx.close()
+  })
+
   it('when a step was finished, then it shows at its actual times; a job bag is found by number or customer; keys move a bar or are refused with the reason', async () => {
     const pool = e2e.db.pool
     const ctx = await e2e.newContext()

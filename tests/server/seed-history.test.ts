@@ -244,14 +244,12 @@ describe('the seeded demo in the template database', () => {
   })
 })
 
-describe('the demo seeded with a clock it is given', () => {
-  // Monday 13 April 2026, 07:45 in London, before opening: the history runs over the clocks going forward (29 March) and
-  // the last open minute before now was Friday 10 April at 17:00 BST (16:00 UTC).
-  const now = new Date('2026-04-13T06:45:00Z')
+/** A database of its own with the demo seeded at `now`, for the describe block it is called in. */
+function seededOn(now: Date): { db: Db } {
   const name = `h_${randomBytes(6).toString('hex')}`
   const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/postgres` })
-  let pool: pg.Pool
-  let db: Db
+  const out = {} as { db: Db }
+  let pool: pg.Pool | undefined
   beforeAll(async () => {
     const c = admin()
     await c.connect()
@@ -259,7 +257,7 @@ describe('the demo seeded with a clock it is given', () => {
     await c.end()
     const made = createDb(`postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/${name}`, 2)
     pool = made.pool
-    db = made.db
+    out.db = made.db
     await runMigrations(made.db)
     expect(await seedDemo(made.db, { now })).toBe(true)
   }, 180_000)
@@ -270,13 +268,21 @@ describe('the demo seeded with a clock it is given', () => {
     await c.query(`drop database if exists ${name} with (force)`)
     await c.end()
   })
+  return out
+}
+
+describe('the demo seeded with a clock it is given', () => {
+  // Monday 13 April 2026, 07:45 in London, before opening: the history runs over the clocks going forward (29 March) and
+  // the last open minute before now was Friday 10 April at 17:00 BST (16:00 UTC).
+  const now = new Date('2026-04-13T06:45:00Z')
+  const seeded = seededOn(now)
 
   it('when its history is read back, then it keeps to the calendar across the clock change and ends before the given now', async () => {
-    const { problems, records, recordDays } = await contradictions(db, now)
+    const { problems, records, recordDays } = await contradictions(seeded.db, now)
     expect(problems).toEqual([])
     expect(records).toBeGreaterThanOrEqual(300)
     expect(recordDays[0]! < '2026-03-29' && recordDays.at(-1)! > '2026-03-29').toBe(true)
-    const last = new Date((await db.select({ m: max(s.timeRecords.endedAt) }).from(s.timeRecords))[0]!.m!)
+    const last = new Date((await seeded.db.select({ m: max(s.timeRecords.endedAt) }).from(s.timeRecords))[0]!.m!)
     expect(last <= new Date('2026-04-10T16:00:00Z')).toBe(true)
   })
 })
@@ -285,33 +291,14 @@ describe('the demo seeded on a Friday night in December', () => {
   // Friday 4 December 2026, 01:45 in London: nine days on is Sunday 13 December, so the lathe's service moves to Monday 14;
   // seventeen days on, the stocktake, is Monday 21 December.
   const now = new Date('2026-12-04T01:45:00Z')
-  const name = `h_${randomBytes(6).toString('hex')}`
-  const admin = () => new pg.Client({ connectionString: `postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/postgres` })
-  let pool: pg.Pool
-  let db: Db
-  beforeAll(async () => {
-    const c = admin()
-    await c.connect()
-    await c.query(`create database ${name}`) // Raw SQL on purpose: making a database is not a table write
-    await c.end()
-    const made = createDb(`postgres://postgres@127.0.0.1:${process.env.TEST_PG_PORT}/${name}`, 2)
-    pool = made.pool
-    db = made.db
-    await runMigrations(made.db)
-    expect(await seedDemo(made.db, { now })).toBe(true)
-  }, 180_000)
-  afterAll(async () => {
-    await pool?.end()
-    const c = admin()
-    await c.connect()
-    await c.query(`drop database if exists ${name} with (force)`)
-    await c.end()
-  })
+  const seeded = seededOn(now)
 
   it('when its calendar is read back, then the downtime and the stocktake fall on weekdays and the bank holidays are closures', async () => {
-    const down = await db.select({ startsAt: s.benchDowntime.startsAt }).from(s.benchDowntime)
+    const down = await seeded.db.select({ startsAt: s.benchDowntime.startsAt }).from(s.benchDowntime)
     expect(down.map((d) => new Date(d.startsAt).toISOString().slice(0, 10))).toEqual(['2026-12-14'])
-    const closed = (await db.select({ name: s.closures.name, startsOn: s.closures.startsOn }).from(s.closures)).map((c) => `${c.startsOn} ${c.name}`).sort()
+    const closed = (await seeded.db.select({ name: s.closures.name, startsOn: s.closures.startsOn }).from(s.closures))
+      .map((c) => `${c.startsOn} ${c.name}`)
+      .sort()
     // England and Wales bank holidays from four months back to six months ahead (the UK government's published list, from
     // memory): 31 Aug 2026; 25 and 28 (Boxing Day's substitute) Dec 2026; 1 Jan, 26 and 29 Mar, 3 and 31 May 2027.
     expect(closed.filter((c) => c.includes('Bank holiday')).map((c) => c.slice(0, 10))).toEqual([
@@ -325,7 +312,7 @@ describe('the demo seeded on a Friday night in December', () => {
       '2027-05-31',
     ])
     expect(closed).toContain('2026-12-21 Workshop closed: stocktake')
-    const { problems } = await contradictions(db, now)
+    const { problems } = await contradictions(seeded.db, now)
     expect(problems).toEqual([])
   })
 })

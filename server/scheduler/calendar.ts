@@ -90,6 +90,18 @@ export function outsideWorkEnd(workshopDays: Interval[], t: number, days: number
   return last ? last.end : null
 }
 
+/**
+ * When outside work ready at minute t leaves the workshop: at t when a workshop day is open then, else when the next one opens
+ * (t when none is left). The days opening at or after that minute are those opening at or after t, so its return is unchanged.
+ */
+export function leaveTime(workshopDays: Interval[], t: number): number {
+  for (const d of workshopDays) {
+    if (d.end <= t) continue
+    return d.start > t ? d.start : t
+  }
+  return t
+}
+
 const WEEKDAYS = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat']
 
 /** Weekday (0 = Sunday) of an ISO date string such as '2025-03-03'; Monday when it cannot be read. */

@@ -1,7 +1,7 @@
 // Index a Problem once, then turn (priority keys, resource choices) into a timed plan by serial schedule generation on calendars.
 import type { Interval, Job, Objective, Operation, Plan, PlannedOperation, Problem, Score, StartReason } from './model.ts'
 import { SchedulingInputError } from './model.ts'
-import { clipToWindows, firstEndingAfter, formatMinute, intersect, outsideWorkEnd, walkWorkingTime, weekdayOf } from './calendar.ts'
+import { clipToWindows, firstEndingAfter, formatMinute, intersect, leaveTime, outsideWorkEnd, walkWorkingTime, weekdayOf } from './calendar.ts'
 
 /** One resource option of an operation, with indices and its joint working windows. */
 export interface CompiledOption {
@@ -522,11 +522,14 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?
         if (overflow < 0) overflow = i
       }
       const fin = e ?? est + c.outsideDays[i]! * 1440
-      start[i] = est
+      // It is sent out while the workshop is open: ready at night or on a closed day, it leaves when the workshop next opens
+      // (no workshop day opens in between, so it is back at the same close).
+      const leave = leaveTime(c.problem.workshopDays, est)
+      start[i] = leave
       end[i] = fin
-      segments[i] = [{ start: est, end: fin }]
-      why[i] = w
-      blocker[i] = blk
+      segments[i] = [{ start: leave, end: fin }]
+      why[i] = leave > est ? Why.WorkingTime : w
+      blocker[i] = leave > est ? -1 : blk
     } else {
       const opts = c.options[i]!
       const forced = choice[i]!

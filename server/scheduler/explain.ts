@@ -70,7 +70,8 @@ export function explainStarts(problem: Problem, steps: TimedStep[]): Map<string,
       continue
     }
     const outside = (op.outsideWorkingDays ?? 0) > 0
-    const joint = outside ? ALWAYS : jointOf(s.benchId, s.personId)
+    // Outside work leaves while the workshop is open.
+    const joint = outside ? problem.workshopDays : jointOf(s.benchId, s.personId)
     const binds = (t: number): boolean => t <= s.start && workIn(joint, t, s.start) === 0
     // A predecessor (the one ready last).
     let ready = -Infinity,

@@ -138,6 +138,22 @@ describe('engine constraints', () => {
     expect(placed(p, 'clean').start).toBe(at(4, 8))
   })
 
+  it('when casting is ready at 02:00 on Monday night, then it is sent out when the workshop opens and is back at the same close', () => {
+    // Hand-worked: the workshop opens 08:00–16:00 on weekdays. Ready at Monday 02:00, the casting leaves at Monday 08:00 (not in
+    // the night); Monday and Tuesday are its two workshop days either way, so it is back at Tuesday 16:00 and cleaning follows
+    // on Wednesday at 08:00.
+    const problem = makeProblem({
+      now: at(0, 2),
+      operations: [
+        makeOperation({ id: 'cast', jobId: 'j', outsideWorkingDays: 2 }),
+        makeOperation({ id: 'clean', jobId: 'j', predecessors: ['cast'], on: ['b1', 'p1', 30] }),
+      ],
+    })
+    const p = plan(problem)
+    expect(placed(p, 'cast')).toMatchObject({ start: at(0, 8), end: at(1, 16), segments: [{ start: at(0, 8), end: at(1, 16) }] })
+    expect(placed(p, 'clean').start).toBe(at(2, 8))
+  })
+
   it('when a job is released on Tuesday morning, then none of its work starts earlier', () => {
     const problem = makeProblem({
       jobs: [makeJob({ id: 'j', release: at(1, 9) })],

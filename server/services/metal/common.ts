@@ -3,6 +3,7 @@
 // reading ledger rows with their corrections folded in, and the over-tolerance test.
 import { and, asc, eq, inArray, lte, sql } from 'drizzle-orm'
 import { mgToG } from '../../../shared/domain/metal'
+import { FINISHED_OPERATION } from '../../../shared/domain/status'
 import { type LossFigures, type MetalMovement } from '../../../shared/schemas/metal'
 import type { Tx } from '../../db/client'
 import { alloyPrices, alloys, metalMovements, operations, people, users } from '../../db/schema/index'
@@ -193,4 +194,7 @@ export function toMovements(rows: Joined[]): MetalMovement[] {
     })
 }
 
+/** Out to a step still open (status given, not done or skipped) with nothing back yet: the metal is at the bench, not lost. */
+export const atBench = (f: LossFigures, stepStatus: string | null | undefined) =>
+  f.issuedMg > 0 && f.returnedMg === 0 && !!stepStatus && !(FINISHED_OPERATION as readonly string[]).includes(stepStatus)
 export const over = (f: LossFigures, tol: number | null) => tol !== null && f.issuedMg > 0 && f.lossPct !== null && f.lossPct > tol

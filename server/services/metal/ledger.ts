@@ -28,7 +28,7 @@ import type { Db, Tx } from '../../db/client'
 import { alloys, jobBags, metalMovements, operationKinds, operations, people, refiningLots } from '../../db/schema/index'
 import { AppError, invalid, notFound } from '../../errors/app-error'
 import type { Actor, Deps } from '../../lib/route'
-import { requireAlloy, record, joinedRows, toMovements, over } from './common'
+import { requireAlloy, record, joinedRows, toMovements, over, atBench } from './common'
 import type { Joined } from './common'
 import { lossFigures, listTolerances } from './losses'
 
@@ -262,16 +262,15 @@ export async function jobBagMetal(db: Db, actor: Actor, jobBagId: number): Promi
       const op = ops.find((o) => o.id === opId)
       const tol = op ? (tolerances.get(op.kindId)?.tolerancePct ?? FALLBACK_LOSS_TOLERANCE_PCT) : null
       const f = lossFigures(rs)
-      // Weighed out and nothing back yet while the step is still open: the metal is at the bench, not lost.
-      const atBench = f.issuedMg > 0 && f.returnedMg === 0 && !!op && op.status !== 'done' && op.status !== 'skipped'
+      const stillAtBench = atBench(f, op?.status)
       return {
         operationId: opId,
         name: op?.name ?? 'Not tied to a step',
         kindId: op?.kindId ?? null,
         kind: op?.kindName ?? null,
         tolerancePct: tol,
-        overTolerance: !atBench && over(f, tol),
-        atBench,
+        overTolerance: !stillAtBench && over(f, tol),
+        atBench: stillAtBench,
         ...f,
         seq: op?.seq ?? 1e9,
       }

@@ -10,7 +10,7 @@ import type { Actor, Deps } from '../../lib/route'
 import { dayjs } from '../../lib/time'
 import { audit } from '../audit'
 import { workshopZone } from '../estimates'
-import { joinedRows, iso, over } from './common'
+import { joinedRows, iso, over, atBench } from './common'
 import type { Joined } from './common'
 
 /** Figures from ledger rows (corrections included as their signed differences). */
@@ -126,7 +126,7 @@ export async function lossReport(db: Db, workshopId: number, q: LossQuery): Prom
     units.set(k, [...(units.get(k) ?? []), r])
   }
   const groups = new Map<string, { label: string; units: { rows: Joined[]; over: boolean }[] }>()
-  let atBench = 0
+  let leftAtBench = 0
   for (const rs of units.values()) {
     const last = rs.at(-1)!
     const month = dayjs(iso(last.m.recordedAt)).tz(tz).format('YYYY-MM')
@@ -134,9 +134,9 @@ export async function lossReport(db: Db, workshopId: number, q: LossQuery): Prom
     if ((q.from && day < q.from) || (q.to && day > q.to)) continue
     const kind = last.kindId !== null ? tolerances.get(last.kindId) : undefined
     const f = lossFigures(rs)
-    // Out to a step still open and nothing back yet: the metal is at the bench, not lost; left out until it comes back.
-    if (f.issuedMg > 0 && f.returnedMg === 0 && last.opStatus !== null && last.opStatus !== 'done' && last.opStatus !== 'skipped') {
-      atBench++
+    // The metal is at the bench, not lost: left out until it comes back.
+    if (atBench(f, last.opStatus)) {
+      leftAtBench++
       continue
     }
     const unit = { rows: rs, over: over(f, kind ? kind.tolerancePct : null) }
@@ -178,7 +178,7 @@ export async function lossReport(db: Db, workshopId: number, q: LossQuery): Prom
       'Total',
       [...groups.values()].flatMap((g) => g.units),
     ),
-    atBench,
+    atBench: leftAtBench,
     toleranceNote: TOLERANCE_NOTE,
   }
 }

@@ -13,6 +13,8 @@ declare module 'vue-router' {
     guestOnly?: boolean
     /** Page title shown in the browser tab. */
     title?: string
+    /** Where toasts appear on this screen: at the bottom where the screen's top holds controls people must reach while one shows. */
+    toasts?: 'top' | 'bottom'
   }
 }
 

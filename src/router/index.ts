@@ -20,7 +20,13 @@ export const routes: RouteRecordRaw[] = [
     children: [
       { path: '', name: 'home', component: comingSoon },
       { path: 'plan', name: 'plan', component: () => import('@/views/PlanBoardView.vue'), meta: { roles: ['owner', 'manager', 'sales'], title: 'Plan board' } },
-      { path: 'bench', name: 'bench', component: laterOr('BenchFloorView'), meta: { roles: ['owner', 'manager', 'bench'], title: 'My bench queue' } },
+      {
+        path: 'bench',
+        name: 'bench',
+        component: laterOr('BenchFloorView'),
+        // The big Scan ticket button sits at the top: a toast there after each tap would cover it.
+        meta: { roles: ['owner', 'manager', 'bench'], title: 'My bench queue', toasts: 'bottom' },
+      },
       {
         path: 'job-bags/:id(\\d+)',
         name: 'job-bag',

@@ -1,10 +1,10 @@
 // The job bag page in Chromium: outside work sent out and booked back, a step added to the routing (manager); the ring size
 // changed after ordering and a stone with its measured depth added (sales).
-import { and, asc, count, eq } from 'drizzle-orm'
+import { and, asc, count, eq, sql } from 'drizzle-orm'
 import { describe, expect, it } from 'vitest'
 import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
-import { finishSteps, openOrderStep, setPieceParams, setStepStatus } from '../setup/fixtures'
+import { finishedStep, finishSteps, openOrderStep, readyBenchStep, setPieceParams, setStepStatus } from '../setup/fixtures'
 
 const e2e = useE2E()
 const step = async (id: number) =>
@@ -101,5 +101,71 @@ describe('job bag page', () => {
     expect(line).toMatchObject({ depthMm: 3.2, caratEach: 0.49 })
     await list.scrollIntoViewIfNeeded()
     await screenshot(page, 'job-bag-ring-size-and-stone-depth')
+  })
+  it('when the manager opens a job bag on a tablet held upright (800 × 1280), then every column of the routing fits the table, who holds a step and its actual minutes show under its status and plan, and each step can be changed', async () => {
+    // A bag whose first open step was just done in 42 minutes (a time record 102 to 60 minutes ago) and whose next step is taken.
+    const done = await readyBenchStep(e2e.db.db)
+    await finishedStep(e2e.db.db, done.id, {
+      finishedAt: sql`now() - interval '60 minutes'`,
+      records: [{ personId: done.personId, start: sql`now() - interval '102 minutes'`, end: sql`now() - interval '60 minutes'` }],
+    })
+    const [{ jobBagId }] = (await e2e.db.db.select({ jobBagId: s.operations.jobBagId }).from(s.operations).where(eq(s.operations.id, done.id))) as [
+      { jobBagId: number },
+    ]
+    const [taken] = await e2e.db.db
+      .select({ id: s.operations.id })
+      .from(s.operations)
+      .where(and(eq(s.operations.jobBagId, jobBagId), eq(s.operations.status, 'pending')))
+      .orderBy(asc(s.operations.seq))
+      .limit(1)
+    await e2e.db.db.update(s.operations).set({ status: 'claimed', claimedBy: done.personId }).where(eq(s.operations.id, taken!.id))
+    const [holder] = await e2e.db.db.select({ name: s.people.name }).from(s.people).where(eq(s.people.id, done.personId))
+    const page = await signInPage(await e2e.newContext({ viewport: { width: 800, height: 1280 } }), 'manager')
+    await page.goto(`/job-bags/${jobBagId}`)
+    const table = page.locator('[data-test=routing]')
+    await table.locator(`[data-test=estimate-${taken!.id}]`).waitFor()
+    await expect(table.getAttribute('data-layout')).resolves.toBe('narrow')
+    // What the table shows and what the table itself can show without scrolling: its body's visible box.
+    const layout = await table.evaluate((el) => {
+      const seen = el.querySelector('.el-table__body-wrapper .el-scrollbar__wrap')!.getBoundingClientRect()
+      const heads = [...el.querySelectorAll('.el-table__header th')].map((th) => th.getBoundingClientRect())
+      return { seen: { left: seen.left, right: seen.right }, heads: heads.map((r) => ({ left: r.left, right: r.right })), viewport: innerWidth }
+    })
+    const last = layout.heads[layout.heads.length - 1]!
+    // Every header, the last (the changes) included, lies within the table's visible part and the window: nothing to scroll to.
+    for (const h of layout.heads) {
+      expect(h.left).toBeGreaterThanOrEqual(layout.seen.left - 1)
+      expect(h.right).toBeLessThanOrEqual(layout.seen.right + 1)
+    }
+    expect(last.right).toBeLessThanOrEqual(layout.viewport)
+    // Each open step's "Estimate" and "Remove" are inside the visible part too, and a tap reaches them.
+    const { operations } = (await (await page.request.get(`/api/job-bags/${jobBagId}`)).json()) as {
+      operations: { id: number; status: string; claimedByName: string | null; actualMinutes: number }[]
+    }
+    for (const op of operations.filter((o) => o.status !== 'done' && o.status !== 'skipped')) {
+      const box = (await table.locator(`[data-test=estimate-${op.id}]`).boundingBox())!
+      expect(box.x).toBeGreaterThanOrEqual(layout.seen.left)
+      expect(box.x + box.width).toBeLessThanOrEqual(layout.seen.right)
+    }
+    // Who holds a step and its actual minutes are still on the page, under its status and its planned minutes, as the server gave them.
+    for (const op of operations) {
+      await expect(table.locator(`[data-test=actual-${op.id}]`).innerText()).resolves.toBe(
+        `${op.actualMinutes ? `${Math.round(op.actualMinutes)} min` : '—'} actual`,
+      )
+      if (op.claimedByName) await expect(table.locator(`[data-test=who-${op.id}]`).innerText()).resolves.toBe(op.claimedByName)
+      else await expect(table.locator(`[data-test=who-${op.id}]`).count()).resolves.toBe(0)
+    }
+    // The two figures set up above, hand-worked: 102 − 60 = 42 min done; the next step held by the person who took it.
+    await expect(table.locator(`[data-test=actual-${done.id}]`).innerText()).resolves.toBe('42 min actual')
+    await expect(table.locator(`[data-test=who-${taken!.id}]`).innerText()).resolves.toBe(holder!.name)
+    await table.scrollIntoViewIfNeeded()
+    await screenshot(page, 'job-bag-routing-upright')
+    await table.locator(`[data-test=estimate-${taken!.id}]`).click()
+    await page
+      .locator('.el-dialog')
+      .filter({ hasText: /estimate/i })
+      .first()
+      .waitFor()
+    await screenshot(page, 'job-bag-routing-upright-estimate', { fullPage: false })
   })
 })

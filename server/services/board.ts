@@ -391,12 +391,19 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
   const assignments = shown(o.planId ? await readDraft(db, workshopId, o.planId) : (await readLivePlan(db, workshopId)).assignments)
   const days: string[] = []
   for (let d = dayjs(o.from); !d.isAfter(dayjs(o.to)); d = d.add(1, 'day')) days.push(d.format('YYYY-MM-DD'))
-  const dayIv = days.map((d) => ({
-    day: d,
-    week: `${dayjs(d).isoWeekYear()}-W${String(dayjs(d).isoWeek()).padStart(2, '0')}`,
-    start: c.at(d),
-    end: c.at(dayjs(d).add(1, 'day').format('YYYY-MM-DD')),
-  }))
+  // Today counts from now: the working time already past today is neither available nor still planned (days before today keep
+  // their whole figures; the week's total leaves them out).
+  const nowMin = data.problem.now
+  const dayIv = days.map((d) => {
+    const start = c.at(d)
+    const end = c.at(dayjs(d).add(1, 'day').format('YYYY-MM-DD'))
+    return {
+      day: d,
+      week: `${dayjs(d).isoWeekYear()}-W${String(dayjs(d).isoWeek()).padStart(2, '0')}`,
+      start: start <= nowMin && nowMin < end ? nowMin : start,
+      end,
+    }
+  })
   const minutesIn = (list: Interval[], iv: { start: number; end: number }) => clipToWindows(list, iv.start, iv.end).reduce((t, x) => t + x.end - x.start, 0)
 
   type Row = {
@@ -461,6 +468,7 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
     days,
     weeks,
     rows,
+    countedFrom: c.toDate(nowMin).toISOString(),
     planningLoad: (await db.select({ l: s.workshops.planningLoad }).from(s.workshops).where(eq(s.workshops.id, workshopId)))[0]?.l ?? 0.85,
   }
 }

@@ -119,6 +119,8 @@ describe('the load table on Friday of the current week', () => {
     to: days[6]!,
     days,
     weeks: [{ week: '2026-W49', days }],
+    // The server counts today from 14:00 (London is on GMT in December).
+    countedFrom: '2026-12-04T14:00:00.000Z',
     rows: [
       {
         type: 'bench',
@@ -137,8 +139,15 @@ describe('the load table on Friday of the current week', () => {
     const total = w.get('[data-test=load-cell-bench-3-2026-W49-total]')
     // Hand-worked: Friday alone, 210 of 465 min = 3:30 / 7:45 h (not 3:30 against Monday–Friday's 38:45).
     expect(total.text()).toBe('3:30 / 7:45 h')
-    expect(w.text()).toContain('rest of week, from Fri')
+    expect(w.text()).toContain('rest of week, from Fri 14:00')
     expect(w.text()).toContain('3 Dec · past')
+  })
+  it('when the server counts today from 14:00, then the day and the week total say so and the others do not', () => {
+    const w = table()
+    expect(w.text()).toContain('4 Dec · from 14:00')
+    expect(w.text()).not.toContain('3 Dec · from')
+    expect(w.get('[data-test=load-cell-bench-3-2026-12-04]').attributes('title')).toContain('Fri 4 Dec from 14:00 (the hours already past left out)')
+    expect(w.get('[data-test=load-cell-bench-3-2026-W49-total]').attributes('title')).toContain('W49 from Fri 4 Dec 14:00')
   })
   it('when a day is at 95 %, then it is above the planning load without the over-capacity flag', () => {
     const thu = table().get('[data-test=load-cell-bench-3-2026-12-03]')

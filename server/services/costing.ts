@@ -2,6 +2,7 @@
 // ledger, stone counts, outside costs and time records — one function per side, all in integer minor units (shared/domain/costing.ts).
 import { and, asc, eq, inArray } from 'drizzle-orm'
 import {
+  METAL_AS_ESTIMATED_WORDS,
   WORKSHOP_MARGIN_PCT,
   addBreakdowns,
   mulDivRound,
@@ -212,7 +213,8 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
   }
 }
 
-export interface CostedOrder extends OrderCosting {
+/** The raw figures of an order: its actual side counts only what was recorded (`atActual` adds unweighed metal as estimated). */
+export interface CostedOrder extends Omit<OrderCosting, 'metalAsEstimatedMinor'> {
   estimateMinutes: number
   actualMinutes: number
   outsideSteps: number
@@ -422,10 +424,49 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
   return out
 }
 
-/** One order's costing (GET /orders/:id/costing). */
+const ESTIMATE_METAL_GAPS: readonly Missing[] = ['no-metal-weight', 'no-metal-price', 'metal-not-priced']
+/**
+ * An order at actual as the owner's job costing and the order's own costing count it: unweighed metal is never free — a piece in
+ * precious metal with nothing weighed counts the estimate's metal (and whatever the estimate could not price is then missing here
+ * too), and the words say so.
+ */
+export function atActual(c: CostedOrder) {
+  const a = c.actual
+  const asEstimated = a.missing.includes('no-metal-weighed') || a.missing.includes('some-metal-weighed')
+  const missing: Missing[] = asEstimated ? [...new Set([...a.missing, ...c.estimate.missing.filter((m) => ESTIMATE_METAL_GAPS.includes(m))])] : a.missing
+  const totalMinor = a.cost.totalMinor + c.metalNotWeighedMinor
+  const m = margin(c.priceMinor, totalMinor)
+  return {
+    cost: a.cost,
+    notWeighed: a.missing.includes('no-metal-weighed'),
+    asEstimated,
+    metalAsEstimatedMinor: c.metalNotWeighedMinor,
+    totalMinor,
+    marginMinor: m.marginMinor,
+    marginPct: m.marginPct,
+    missing,
+    caveat: marginCaveat(missing, METAL_AS_ESTIMATED_WORDS),
+  }
+}
+
+/**
+ * One order's costing (GET /orders/:id/costing). At actual it follows the owner's job costing (`atActual`): the metal of pieces with
+ * nothing weighed counts as estimated — inside the metal figure, and named on its own — never as free.
+ */
 export async function orderCosting(db: Tx, workshopId: number, orderId: number): Promise<OrderCosting> {
   const c = (await costOrders(db, workshopId, [orderId])).get(orderId)
   if (!c) throw notFound('Order')
   const { estimateMinutes: _e, actualMinutes: _a, outsideSteps: _o, outsideUncosted: _u, metalNotWeighedMinor: _m, ...rest } = c
-  return rest
+  const a = atActual(c)
+  return {
+    ...rest,
+    actual: {
+      cost: { ...a.cost, metalMinor: a.cost.metalMinor + a.metalAsEstimatedMinor, totalMinor: a.totalMinor },
+      marginMinor: a.marginMinor,
+      marginPct: a.marginPct,
+      missing: a.missing,
+      caveat: a.caveat,
+    },
+    metalAsEstimatedMinor: a.metalAsEstimatedMinor,
+  }
 }

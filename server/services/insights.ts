@@ -20,7 +20,7 @@ import { dayjs } from '../lib/time'
 import { COSTING_NOTE, METAL_AS_ESTIMATED_WORDS, margin, marginCaveat, type Missing } from '../../shared/domain/costing'
 import { minorToDecimal } from '../../shared/domain/currency'
 import { ratioBelieved } from '../../shared/domain/estimate'
-import { costOrders, type CostedOrder } from './costing'
+import { atActual, costOrders } from './costing'
 import { audit } from './audit'
 import { finishedOperations, workshopZone, type FinishedOperation } from './estimates'
 
@@ -286,30 +286,6 @@ export async function costing(db: Db, workshopId: number, filter: InsightFilter)
 function totalCaveat(missing: Missing[], orders: number, words: Partial<Record<Missing, string>> = {}): string {
   if (!missing.length || orders === 0) return marginCaveat([])
   return `on some orders: ${marginCaveat(missing, words)}`
-}
-
-const ESTIMATE_METAL_GAPS: readonly Missing[] = ['no-metal-weight', 'no-metal-price', 'metal-not-priced']
-/**
- * An order at actual as the owner's table counts it: unweighed metal is never free — a piece in precious metal with nothing weighed
- * counts the estimate's metal (and whatever the estimate could not price is then missing here too), and the words say so.
- */
-function atActual(c: CostedOrder) {
-  const a = c.actual
-  const asEstimated = a.missing.includes('no-metal-weighed') || a.missing.includes('some-metal-weighed')
-  const missing: Missing[] = asEstimated ? [...a.missing, ...c.estimate.missing.filter((m) => ESTIMATE_METAL_GAPS.includes(m))] : a.missing
-  const totalMinor = a.cost.totalMinor + c.metalNotWeighedMinor
-  const m = margin(c.priceMinor, totalMinor)
-  return {
-    cost: a.cost,
-    notWeighed: a.missing.includes('no-metal-weighed'),
-    asEstimated,
-    metalAsEstimatedMinor: c.metalNotWeighedMinor,
-    totalMinor,
-    marginMinor: m.marginMinor,
-    marginPct: m.marginPct,
-    missing,
-    caveat: marginCaveat(missing, METAL_AS_ESTIMATED_WORDS),
-  }
 }
 
 /** Every outside-work step of the workshop's routings with its expected cost per unit (null: not set). */

@@ -80,6 +80,11 @@ export const orderCosting = costingEstimate.extend({
   orderId: wireInt,
   orderNumber: z.string(),
   actual: costingSide,
+  /**
+   * Of the actual metal, the part counted as estimated (minor units): pieces in precious metal with nothing weighed count their
+   * estimated metal, never nothing; 0 when every such piece was weighed.
+   */
+  metalAsEstimatedMinor: wireInt,
   /** Grams of the customer's own metal lost in the work (costs the workshop nothing but is shown). */
   customerMetalLossG: z.number(),
 })

@@ -1,6 +1,6 @@
 // Costing API against real PostgreSQL: the estimate for a piece not yet ordered, the same figure on the order taken from it, and the
 // order's actual cost from the metal ledger, stone counts, invoiced outside work and time records (hand-worked in the comments).
-import { asc, sql } from 'drizzle-orm'
+import { asc, eq, sql } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
@@ -153,7 +153,11 @@ describe('an order costed', () => {
     expect(before.status).toBe(200)
     // Same as the estimate above: 37,200 + 36,000 + 4,500 + 11,200 = 88,900 p.
     expect(before.body.estimate.cost.totalMinor).toBe(88_900)
-    expect(before.body.actual.caveat).toBe('no metal weighed yet')
+    // Nothing weighed yet: the metal counts as estimated (6.2 g × 6,000 p/g = 37,200 p), never as free, and the words say so, as in
+    // the owner's job costing. With the stones counted so far (4 × 12,000 = 48,000 p): 85,200 p.
+    expect(before.body.actual.cost).toEqual({ metalMinor: 37_200, stonesMinor: 48_000, outsideMinor: 0, labourMinor: 0, totalMinor: 85_200 })
+    expect(before.body.metalAsEstimatedMinor).toBe(37_200)
+    expect(before.body.actual.caveat).toBe('no metal weighed: metal counted as estimated')
 
     // The work: 6.35 g of 18 ct issued 20 days ago (price then 5,234 p/g), the piece back at 6.20 g: 0.15 g lost.
     const personId = (await t.db.select({ id: s.people.id }).from(s.people).orderBy(asc(s.people.id)).limit(1))[0]!.id
@@ -182,6 +186,7 @@ describe('an order costed', () => {
     // outside 4,500 p; labour 210 × 3,200 / 60 = 11,200 p. Total 96,936 p; margin 125,000 − 96,936 = 28,064 p = 22.45 % → 22.5 %.
     expect(after.body.actual.cost).toEqual({ metalMinor: 33_236, stonesMinor: 48_000, outsideMinor: 4_500, labourMinor: 11_200, totalMinor: 96_936 })
     expect(after.body.actual).toMatchObject({ marginMinor: 28_064, marginPct: 22.5, caveat: 'metal, stones, outside work and labour counted' })
+    expect(after.body.metalAsEstimatedMinor).toBe(0)
     // The owner's table shows the same figures, in minor units of the workshop's currency.
     const table = await owner.get(`/api/insights/costing?routingId=${routingId}`)
     expect(table.body.currency).toBe('GBP')
@@ -195,6 +200,70 @@ describe('an order costed', () => {
         metalAtActualMinor: 33_236,
       }),
     ])
+  })
+
+  it('when one of two pieces was never weighed, then the order counts its metal as estimated with the same figure and words as the owner’s job costing', async () => {
+    const o = await sales.post('/api/orders', {
+      customerId,
+      title: 'Two fixture rings',
+      dueDate: '2031-01-31',
+      priceQuotedMinor: 200_000,
+      pieces: [
+        { ...piece, routingId, piece: 'Fixture ring A' },
+        { routingId, piece: 'Fixture ring B', params: { metal: 'gold-18ct', metalWeightG: 4 } },
+      ],
+    })
+    expect(o.status).toBe(201)
+    const bags = (await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, o.body.id)).orderBy(asc(s.jobBags.id))).map((b) => b.id)
+    expect(bags).toHaveLength(2)
+    // Ring A weighed: 6.35 g of 18 ct issued 20 days ago (5,234 p/g then), the piece back at 6.20 g. Ring B: nothing ever weighed.
+    await addMetalMovement(t.db, {
+      alloyId,
+      jobBagId: bags[0]!,
+      kind: 'issued',
+      weightMg: 6350,
+      source: 'stock',
+      recordedAt: sql`(current_date - 20)::timestamp + interval '10 hours'`,
+    })
+    await addMetalMovement(t.db, {
+      alloyId,
+      jobBagId: bags[0]!,
+      kind: 'returned',
+      weightMg: 6200,
+      form: 'piece',
+      recordedAt: sql`(current_date - 20)::timestamp + interval '14 hours'`,
+    })
+    // Every step finished (no time recorded, so no labour at actual); each hallmark at its expected 45.00.
+    for (const jobBagId of bags) {
+      const ops = await stepIdsByKey(t.db, { jobBagId })
+      await finishedStep(t.db, ops.make!, { finishedAt: sql`now()` })
+      await finishedStep(t.db, ops.hallmark!, { finishedAt: sql`now()` })
+    }
+
+    const r = await owner.get(`/api/orders/${o.body.id}/costing`)
+    expect(r.status).toBe(200)
+    // Hand-worked: ring A's metal 6,200 × 5,234 / 1,000 = 32,450.8 → 32,451 p + loss 150 × 5,234 / 1,000 = 785.1 → 785 p = 33,236 p;
+    // ring B never weighed counts its estimate at today's price, 4.0 g × 6,000 p/g = 24,000 p (not 0). Metal 33,236 + 24,000 = 57,236 p;
+    // outside 2 × 4,500 = 9,000 p; no stones, no labour recorded. Total 66,236 p; margin 200,000 − 66,236 = 133,764 p
+    // = 66.882 % → 66.9 %.
+    expect(r.body.actual.cost).toEqual({ metalMinor: 57_236, stonesMinor: 0, outsideMinor: 9_000, labourMinor: 0, totalMinor: 66_236 })
+    expect(r.body.metalAsEstimatedMinor).toBe(24_000)
+    expect(r.body.actual).toMatchObject({
+      marginMinor: 133_764,
+      marginPct: 66.9,
+      missing: ['some-metal-weighed'],
+      caveat: 'metal weighed on some pieces only: the others counted as estimated',
+    })
+    // The owner's job costing: the same cost, margin and words for this order (its weighed metal and the part as estimated apart).
+    const table = await owner.get(`/api/insights/costing?routingId=${routingId}`)
+    expect(table.body.rows.find((x: { orderId: number }) => x.orderId === o.body.id)).toMatchObject({
+      metalAtActualMinor: 33_236,
+      metalAsEstimatedMinor: 24_000,
+      costAtActualMinor: 66_236,
+      marginAtActualMinor: 133_764,
+      marginPctAtActual: 66.9,
+      caveatAtActual: 'metal weighed on some pieces only: the others counted as estimated',
+    })
   })
 
   it('when the metal was the customer’s own, then it costs nothing and its loss is shown', async () => {

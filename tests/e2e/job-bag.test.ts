@@ -1,9 +1,9 @@
 // The job bag page in Chromium: outside work sent out and booked back, a step added to the routing (manager); the ring size
-// changed after ordering and a stone with its measured depth added (sales).
+// changed after ordering and a stone with its measured depth added (sales); the next step's card saying who holds it.
 import { and, asc, count, eq, sql } from 'drizzle-orm'
 import { describe, expect, it } from 'vitest'
 import * as s from '../../server/db/schema/index'
-import { screenshot, signInPage, useE2E } from '../setup/e2e'
+import { DEMO_EMAIL, screenshot, signInPage, useE2E } from '../setup/e2e'
 import { finishedStep, finishSteps, openOrderStep, readyBenchStep, setPieceParams, setStepStatus } from '../setup/fixtures'
 
 const e2e = useE2E()
@@ -167,5 +167,41 @@ describe('job bag page', () => {
       .first()
       .waitFor()
     await screenshot(page, 'job-bag-routing-upright-estimate', { fullPage: false })
+  })
+
+  it('when the bench account’s person holds the next step, then the manager’s card names that person and theirs says it is taken by them', async () => {
+    // The demo bench account's own person.
+    const [holder] = await e2e.db.db
+      .select({ id: s.people.id, name: s.people.name })
+      .from(s.people)
+      .innerJoin(s.users, eq(s.users.id, s.people.userId))
+      .where(eq(s.users.email, DEMO_EMAIL.bench))
+    expect(holder, 'the bench account has a person').toBeTruthy()
+    // A ready bench step taken by them; any other ready step of its bag waits, so the taken one is the bag's next step.
+    const op = await readyBenchStep(e2e.db.db)
+    const [{ jobBagId }] = (await e2e.db.db.select({ jobBagId: s.operations.jobBagId }).from(s.operations).where(eq(s.operations.id, op.id))) as [
+      { jobBagId: number },
+    ]
+    await e2e.db.db
+      .update(s.operations)
+      .set({ status: 'pending' })
+      .where(and(eq(s.operations.jobBagId, jobBagId), eq(s.operations.status, 'ready')))
+    await e2e.db.db.update(s.operations).set({ status: 'claimed', claimedBy: holder!.id }).where(eq(s.operations.id, op.id))
+
+    const statusOf = async (role: 'manager' | 'bench') => {
+      const page = await signInPage(await e2e.newContext(), role)
+      await page.goto(`/job-bags/${jobBagId}`)
+      const card = page.locator(`[data-test=next-step] [data-op="${op.id}"]`)
+      await card.waitFor({ timeout: 15_000 })
+      return { page, status: card.locator('[data-test=op-status]') }
+    }
+    // The label is shown in capitals by its style: the words themselves are read from textContent.
+    const manager = await statusOf('manager')
+    await expect.poll(() => manager.status.textContent(), { timeout: 15_000 }).toBe(`Taken by ${holder!.name}`)
+    await expect(manager.page.locator('[data-test=next-step]').innerText()).resolves.not.toMatch(/taken by you/i)
+    await screenshot(manager.page, 'job-bag-next-step-held-by-other', { fullPage: false })
+    const bench = await statusOf('bench')
+    await expect.poll(() => bench.status.textContent(), { timeout: 15_000 }).toBe('Taken by you')
+    await screenshot(bench.page, 'job-bag-next-step-held-by-me', { fullPage: false })
   })
 })

@@ -451,4 +451,34 @@ describe('finished pieces leave stock', () => {
       .where(and(eq(s.metalMovements.kind, 'delivered'), eq(s.metalMovements.alloyId, alloy.id)))
     expect(delivered).toEqual([{ jobBagId: b1!.id, weightMg: 11_200 }])
   })
+
+  it('when the piece comes back and the lemel and scrap of the same step are weighed in after it, then on collection the piece still leaves stock', async () => {
+    const alloy = await newAlloy()
+    const made = await as.sales.post('/api/orders', {
+      customerId: await firstCustomerId(t.db),
+      title: 'Piece handed in before its lemel',
+      dueDate: '2031-09-01',
+      pieces: [{ routingId: await firstRoutingId(t.db), piece: 'Ring' }],
+    })
+    expect(made.status, JSON.stringify(made.body)).toBe(201)
+    const [bag] = await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.orderId, made.body.id))
+    const post = async (path: string, body: Record<string, unknown>) => {
+      const r = await as.bench.post(path, { alloyId: alloy.id, personId, clientId: cid(), jobBagId: bag!.id, ...body })
+      expect(r.status, JSON.stringify(r.body)).toBe(201)
+    }
+    await as.owner.post('/api/metal/purchases', { alloyId: alloy.id, weightG: 20, clientId: cid() })
+    // The bench's usual order: 8.00 g out, the piece back at 7.60 g, then the lemel tray (0.15 g) and the offcuts (0.10 g).
+    await post('/api/metal/issues', { weightG: 8 })
+    await post('/api/metal/returns', { weightG: 7.6, form: 'piece' })
+    await post('/api/metal/returns', { weightG: 0.15, form: 'lemel' })
+    await post('/api/metal/returns', { weightG: 0.1, form: 'scrap' })
+    const stockOf = async () => (await as.owner.get('/api/metal/stock')).body.find((x: { alloyId: number }) => x.alloyId === alloy.id)
+    // Hand-worked: 20 − 8 + 7.60 + 0.15 + 0.10 = 19.85 g in stock before collection.
+    expect((await stockOf()).balanceMg).toBe(19_850)
+    await t.db.update(s.orders).set({ status: 'ready' }).where(eq(s.orders.id, made.body.id))
+    const o = (await as.manager.get(`/api/orders/${made.body.id}`)).body
+    expect((await as.manager.patch(`/api/orders/${made.body.id}`, { status: 'collected', version: o.version })).status).toBe(200)
+    // 19.85 − 7.60 (the ring the customer took home) = 12.25 g; the lemel and scrap stay in the workshop.
+    expect(await stockOf()).toMatchObject({ deliveredMg: 7_600, balanceMg: 12_250 })
+  })
 })

@@ -69,9 +69,10 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
 // Finished pieces leave stock
 
 /**
- * When an order is collected its pieces leave the workshop: for each job bag and alloy whose last weighing (issue or
- * return, corrections applied) was the piece coming back, that weight leaves stock as a 'delivered' row. A piece last
- * seen going out to the bench, or a bag already delivered, writes nothing. Runs inside the order's own transaction.
+ * When an order is collected its pieces leave the workshop: for each job bag and alloy whose last weighing of the piece (an
+ * issue or the piece coming back, corrections applied; scrap and lemel handed in after it do not count) was the piece coming
+ * back, that weight leaves stock as a 'delivered' row. A piece last seen going out to the bench, or a bag already delivered,
+ * writes nothing. Runs inside the order's own transaction.
  */
 export async function deliverOrderMetal(tx: Tx, actor: Actor, orderId: number): Promise<number> {
   const rows = await tx
@@ -93,6 +94,8 @@ export async function deliverOrderMetal(tx: Tx, actor: Actor, orderId: number): 
       continue
     }
     if (m.correctsId !== null || (effective.get(m.id) ?? 0) === 0) continue
+    // Scrap and lemel handed in say nothing of where the piece is: only an issue or the piece coming back does.
+    if (m.kind === 'returned' && m.form !== 'piece') continue
     last.set(key, m)
   }
   let written = 0

@@ -290,7 +290,8 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       estOutsideSteps = 0,
       estUncosted = 0,
       customerLossMg = 0,
-      metalNotWeighedMinor = 0
+      metalNotWeighedMinor = 0,
+      workRecorded = false
     const myBags = bags.filter((b) => b.orderId === order.id)
     let weighedBags = 0,
       preciousBags = 0
@@ -303,6 +304,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
         bagMinutes = 0
       for (const { op, outside } of ops.filter((o) => o.op.jobBagId === bag.id)) {
         if (op.status === 'skipped') continue
+        if (op.status === 'done') workRecorded = true
         const mine = records.filter((r) => r.operationId === op.id)
         const byPerson = new Map<number, number>()
         for (const r of mine) byPerson.set(r.personId, (byPerson.get(r.personId) ?? 0) + r.minutes)
@@ -358,8 +360,10 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       let metalAct = 0
       const bagMoves = moves.filter((m) => m.jobBagId === bag.id && (m.kind === 'issued' || m.kind === 'returned'))
       if (PIECE_METAL_ALLOY[params.metal] || bagMoves.length) preciousBags++
-      if (bagMoves.length) weighedBags++
-      else if (PIECE_METAL_ALLOY[params.metal]) metalNotWeighedMinor += mEst.minor
+      if (bagMoves.length) {
+        weighedBags++
+        workRecorded = true
+      } else if (PIECE_METAL_ALLOY[params.metal]) metalNotWeighedMinor += mEst.minor
       for (const alloyId of new Set(bagMoves.map((m) => m.alloyId))) {
         const mine = bagMoves.filter((m) => m.alloyId === alloyId)
         const issued = mine.filter((m) => m.kind === 'issued')
@@ -385,6 +389,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
         for (const l of sLines) {
           const c = countsOf(stoneMoves.filter((m) => m.stoneLineId === l.id))
           if (c.issued === 0) missAct.push('stones-not-counted')
+          else workRecorded = true
           if (l.customerOwned) continue
           if (l.costEachMinor === null) missAct.push('stone-costs')
           else stonesAct += stonesMinor(l.costEachMinor, c.set + c.broken + c.lost)
@@ -414,6 +419,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       currency,
       pricedOn: orderDay,
       customerMetalLossG: mgToG(customerLossMg),
+      workRecorded,
       estimateMinutes: estMin,
       actualMinutes: actMin,
       outsideSteps,

@@ -87,5 +87,10 @@ export const orderCosting = costingEstimate.extend({
   metalAsEstimatedMinor: wireInt,
   /** Grams of the customer's own metal lost in the work (costs the workshop nothing but is shown). */
   customerMetalLossG: z.number(),
+  /**
+   * Whether anything the actual side counts has been recorded: a step finished, metal issued or returned, stones counted. Until then
+   * the actual side is only the estimate's metal and stones standing in.
+   */
+  workRecorded: z.boolean(),
 })
 export type OrderCosting = z.infer<typeof orderCosting>

@@ -284,6 +284,25 @@ describe('an order costed', () => {
     expect(r.body.customerMetalLossG).toBe(0.15)
   })
 
+  it('when nothing of an order has been worked yet, then its costing says no work is recorded, and once a step is finished it says there is', async () => {
+    const o = await sales.post('/api/orders', {
+      customerId,
+      title: 'Untouched ring',
+      dueDate: '2031-01-31',
+      priceQuotedMinor: 90_000,
+      pieces: [{ ...piece, routingId }],
+    })
+    expect(o.status).toBe(201)
+    const fresh = await owner.get(`/api/orders/${o.body.id}/costing`)
+    expect(fresh.status).toBe(200)
+    // No step finished, no metal weighed, no stones counted: the actual side holds only the estimate's metal standing in.
+    expect(fresh.body.workRecorded).toBe(false)
+    expect(fresh.body.actual.cost).toMatchObject({ labourMinor: 0, outsideMinor: 0 })
+    const ops = await stepIdsByKey(t.db, { jobBagId: await jobBagOfOrder(t.db, o.body.id) })
+    await finishedStep(t.db, ops.make!, { finishedAt: sql`now()` })
+    expect((await owner.get(`/api/orders/${o.body.id}/costing`)).body.workRecorded).toBe(true)
+  })
+
   it('when the bench asks for an order’s costing, then it is refused', async () => {
     const bench = await signedIn(t.app, 'bench')
     const id = (await t.db.select({ id: s.orders.id }).from(s.orders).orderBy(asc(s.orders.id)).limit(1))[0]!.id

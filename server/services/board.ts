@@ -462,13 +462,17 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
     rows.push(row)
   }
   const weeks = [...new Set(dayIv.map((d) => d.week))].map((week) => ({ week, days: dayIv.filter((d) => d.week === week).map((d) => d.day) }))
+  // Said only when some of today's working time (any bench or person) is already past: before opening, today counts in full.
+  const today = dayIv.find((d) => d.start === nowMin)
+  const dayStart = today ? c.at(today.day) : nowMin
+  const pastToday = !!today && [...data.problem.benches, ...data.problem.people].some((r) => minutesIn(r.available, { start: dayStart, end: nowMin }) > 0)
   return {
     from: o.from,
     to: o.to,
     days,
     weeks,
     rows,
-    countedFrom: c.toDate(nowMin).toISOString(),
+    countedFrom: pastToday ? c.toDate(nowMin).toISOString() : null,
     planningLoad: (await db.select({ l: s.workshops.planningLoad }).from(s.workshops).where(eq(s.workshops.id, workshopId)))[0]?.l ?? 0.85,
   }
 }

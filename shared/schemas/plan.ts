@@ -165,8 +165,11 @@ export const weekLoad = z.object({
   days: z.array(isoDate),
   weeks: z.array(z.object({ week: z.string(), days: z.array(isoDate) })),
   rows: z.array(loadRow),
-  /** The moment today's cells count from: the working time before it today is left out of both available and planned. */
-  countedFrom: isoDateTime,
+  /**
+   * The moment today's cells count from: the working time before it today is left out of both available and planned. Null when
+   * none of today's working time has passed yet (before opening, or today is not in the range): every day counts in full.
+   */
+  countedFrom: isoDateTime.nullable(),
   /** Share of the available hours the workshop means to fill (0..1); above it a cell counts as overloaded. */
   planningLoad: z.number(),
 })

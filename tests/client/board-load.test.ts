@@ -149,6 +149,23 @@ describe('the load table on Friday of the current week', () => {
     expect(w.get('[data-test=load-cell-bench-3-2026-12-04]').attributes('title')).toContain('Fri 4 Dec from 14:00 (the hours already past left out)')
     expect(w.get('[data-test=load-cell-bench-3-2026-W49-total]').attributes('title')).toContain('W49 from Fri 4 Dec 14:00')
   })
+  it('when none of today has passed yet (before opening), then no day or total says from what time it counts', () => {
+    const w = mount(BoardLoadTable, {
+      props: {
+        load: { ...load, countedFrom: null },
+        items: new Map(),
+        benchName: new Map(),
+        personName: new Map(),
+        timeZone: 'Europe/London',
+        today: '2026-12-04',
+      },
+    })
+    expect(w.text()).toContain('4 Dec')
+    expect(w.text()).not.toContain('· from')
+    expect(w.text()).toContain('rest of week, from Fri')
+    expect(w.text()).not.toContain('from Fri 0')
+    expect(w.get('[data-test=load-cell-bench-3-2026-12-04]').attributes('title')).not.toContain('already past')
+  })
   it('when a day is at 95 %, then it is above the planning load without the over-capacity flag', () => {
     const thu = table().get('[data-test=load-cell-bench-3-2026-12-03]')
     expect(thu.text()).toBe('7:23 / 7:45 h')

@@ -93,11 +93,15 @@ describe('the week load on the current week', () => {
     const load = await weekLoad(tdb.db, workshopId, { from: MON, to: SUN, now: new Date(at('2026-12-09', '08:00')) })
     // Hand-worked: nothing has passed yet, so 3.5 h + 4.5 h = 8 h = 480 min available and the booked 150 + 180 = 330 min planned.
     expect(cell(load, '2026-12-09')).toMatchObject({ availableMinutes: 480, plannedMinutes: 330 })
+    // Nothing of today's working time is past, so the board is given no "from" time to show.
+    expect(load.countedFrom).toBeNull()
   })
 
   it('when it is Wednesday 12:45, in the lunch break, then today counts from 13:00: 4.5 h left and 3 h of the booking', async () => {
     const load = await weekLoad(tdb.db, workshopId, { from: MON, to: SUN, now: new Date(at('2026-12-09', '12:45')) })
     // Hand-worked: 13:00–17:30 = 270 min left; the booking's 13:00–16:00 = 180 min.
     expect(cell(load, '2026-12-09')).toMatchObject({ availableMinutes: 270, plannedMinutes: 180 })
+    // The morning is past, so the board says from when today counts.
+    expect(load.countedFrom).toBe(at('2026-12-09', '12:45'))
   })
 })

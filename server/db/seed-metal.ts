@@ -153,6 +153,7 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
     let pieceMg = Math.round((lo + rand() * (hi - lo)) * 1000)
     const fromCustomer = alloy.metal === 'gold' && rand() < 0.15
     const ordered = [...steps.values()].sort((a, b) => a.op.seq - b.op.seq)
+    const lastBack = { at: '', weightMg: 0 }
     ordered.forEach((st, i) => {
       const code = kindCode.get(st.op.kindId)!
       // The first step takes the sheet or wire with some to spare; later steps take the piece as it came back.
@@ -178,7 +179,20 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
       if (scrap > 0) rows.push({ ...common, kind: 'returned', form: 'scrap', weightMg: scrap, recordedAt: st.end })
       if (lemel > 0) rows.push({ ...common, kind: 'returned', form: 'lemel', weightMg: lemel, recordedAt: st.end })
       pieceMg = piece
+      Object.assign(lastBack, { at: st.end, weightMg: piece })
     })
+    // Every bag here is of a collected order: its piece, as last weighed back, left the workshop with the customer.
+    if (lastBack.weightMg > 0)
+      rows.push({
+        workshopId,
+        alloyId: alloy.id,
+        kind: 'delivered',
+        weightMg: lastBack.weightMg,
+        jobBagId: bag.id,
+        recordedBy: manager!.id,
+        recordedAt: lastBack.at,
+        reason: 'collected with its order',
+      })
   }
   const inserted = await tx.insert(s.metalMovements).values(rows).returning()
 

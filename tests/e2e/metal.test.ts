@@ -146,6 +146,8 @@ describe('metal on the bench and the owner’s metal screen', () => {
       sums.some((s) => s.balance !== 0),
       'the demo holds some stock',
     ).toBe(true)
+    // The rule written under the table names every column the balance is made of, the pieces that left with their orders too.
+    await expect(owner.locator('[data-test=stock-rule]').innerText()).resolves.toMatch(/± count adjustments − left with pieces\./)
 
     // SQL text on purpose — loss by person: each person's issued and loss, summed here from the job-bag rows (corrections included).
     const people =

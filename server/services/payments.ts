@@ -453,18 +453,24 @@ export async function toRefundList(db: Db, workshopId: number) {
 
 const isoWeek = (d: dayjs.Dayjs) => `${d.isoWeekYear()}-W${String(d.isoWeek()).padStart(2, '0')}`
 
-/** The owner's figures: received and refunded by ISO week, owed by the ISO week the order is promised, deposits held on work not started. */
+/** The owner's figures: received and refunded by ISO week (in the range asked for, and this week's always), owed by the ISO week the order is promised, deposits held on work not started. */
 export async function summary(db: Db, workshopId: number, q: { from?: string; to?: string }) {
   const w = await workshopOf(db, workshopId)
   const to = q.to ?? dayjs().tz(w.timeZone).format('YYYY-MM-DD')
   const from = q.from ?? dayjs(to).subtract(12, 'week').format('YYYY-MM-DD')
   const weeks = new Map<string, { week: string; receivedMinor: number; refundedMinor: number; owedMinor: number }>()
   const at = (k: string) => weeks.get(k) ?? weeks.set(k, { week: k, receivedMinor: 0, refundedMinor: 0, owedMinor: 0 }).get(k)!
+  // This week's figures whatever range is asked for: the owner's card says what came in this week.
+  const thisWeek = { week: isoWeek(dayjs().tz(w.timeZone)), receivedMinor: 0, refundedMinor: 0, owedMinor: 0 }
   for (const p of await db
     .select()
     .from(s.payments)
     .where(and(eq(s.payments.workshopId, workshopId), eq(s.payments.toRefund, false)))) {
     const d = dayjs(p.receivedAt).tz(w.timeZone)
+    if (isoWeek(d) === thisWeek.week) {
+      if (p.amountMinor >= 0) thisWeek.receivedMinor += p.amountMinor
+      else thisWeek.refundedMinor -= p.amountMinor
+    }
     const day = d.format('YYYY-MM-DD')
     if (day < from || day > to) continue
     if (p.amountMinor >= 0) at(isoWeek(d)).receivedMinor += p.amountMinor
@@ -481,7 +487,9 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
     const m = await orderMoney(db, workshopId, o.id)
     if (m.owedMinor > 0) {
       owedMinor += m.owedMinor
-      at(isoWeek(dayjs(o.promisedDate ?? o.dueDate))).owedMinor += m.owedMinor
+      const week = isoWeek(dayjs(o.promisedDate ?? o.dueDate))
+      at(week).owedMinor += m.owedMinor
+      if (week === thisWeek.week) thisWeek.owedMinor += m.owedMinor
     }
     if (m.paidMinor > 0) {
       const started = await db
@@ -497,7 +505,16 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
       }
     }
   }
-  return { currency: w.currency, from, to, weeks: [...weeks.values()].sort((a, b) => a.week.localeCompare(b.week)), owedMinor, depositsHeldMinor, depositsHeld }
+  return {
+    currency: w.currency,
+    from,
+    to,
+    weeks: [...weeks.values()].sort((a, b) => a.week.localeCompare(b.week)),
+    thisWeek,
+    owedMinor,
+    depositsHeldMinor,
+    depositsHeld,
+  }
 }
 
 const csvCell = (v: unknown) => {

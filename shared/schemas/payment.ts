@@ -99,6 +99,8 @@ export const moneySummary = z.object({
   from: z.string(),
   to: z.string(),
   weeks: z.array(moneyWeek),
+  /** The current ISO week in the workshop's zone, whatever the range. */
+  thisWeek: moneyWeek,
   owedMinor: wireInt,
   depositsHeldMinor: wireInt,
   depositsHeld: z.array(z.object({ orderId: wireInt, orderNumber: z.string(), customerName: z.string(), paidMinor: wireInt })),

@@ -500,5 +500,10 @@ describe('finished pieces leave stock', () => {
     expect((await as.manager.patch(`/api/orders/${made.body.id}`, { status: 'collected', version: o.version })).status).toBe(200)
     // 19.85 − 7.60 (the ring the customer took home) = 12.25 g; the lemel and scrap stay in the workshop.
     expect(await stockOf()).toMatchObject({ deliveredMg: 7_600, balanceMg: 12_250 })
+    // The job bag's account lists the piece leaving, but as no one's step and no one's weighing: one person, their 8.00 g out.
+    const account = (await as.manager.get(`/api/job-bags/${bag!.id}/metal`)).body
+    expect(account.movements.map((m: { kind: string }) => m.kind)).toContain('delivered')
+    expect(account.byPerson).toEqual([expect.objectContaining({ personId, issuedMg: 8_000, returnedMg: 7_850 })])
+    expect(account.bySteps).toHaveLength(1)
   })
 })

@@ -252,9 +252,11 @@ export async function jobBagMetal(db: Db, actor: Actor, jobBagId: number): Promi
     .innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
     .where(eq(operations.jobBagId, jobBagId))
     .orderBy(asc(operations.seq))
+  // Steps, people and alloys are made of what was weighed out and back; the piece leaving with its order is no one's step.
+  const weighed = rows.filter((r) => r.m.kind === 'issued' || r.m.kind === 'returned')
   const group = <K>(key: (r: Joined) => K) => {
     const m = new Map<K, Joined[]>()
-    for (const r of rows) m.set(key(r), [...(m.get(key(r)) ?? []), r])
+    for (const r of weighed) m.set(key(r), [...(m.get(key(r)) ?? []), r])
     return m
   }
   const bySteps = [...group((r) => r.m.operationId)]

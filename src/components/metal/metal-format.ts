@@ -1,6 +1,6 @@
 // Metal on screen: grams to 0.01, percentages, money from integer minor units in the workshop's currency, the alloy a piece's metal
 // code means, the tablet's remembered container weight, and CSV made in the browser.
-import type { Alloy, LossRow } from '@shared/schemas/metal'
+import type { Alloy, LossRow, MetalMovement } from '@shared/schemas/metal'
 import { PIECE_METAL_ALLOY } from '@shared/domain/metal'
 import { currencyExponent } from '@shared/domain/currency'
 
@@ -14,6 +14,17 @@ export const fmtMg = (mg: number | null | undefined): string => (mg === null || 
 /** Milligrams as grams to the milligram (stock and refining reconcile to 1 mg): 214553 → "214.553 g". */
 export const fmtMg3 = (mg: number | null | undefined): string =>
   mg === null || mg === undefined ? '—' : `${(mg / 1000).toLocaleString('en-GB', { minimumFractionDigits: 3, maximumFractionDigits: 3 })} g`
+/** What a weighing of a job bag was, in the bench's words; the piece leaving with its collected order too. */
+export const movementWords = (m: Pick<MetalMovement, 'kind' | 'source' | 'form'>): string =>
+  m.kind === 'issued'
+    ? m.source === 'customer'
+      ? 'out (customer’s own)'
+      : 'out from stock'
+    : m.kind === 'returned'
+      ? `back as ${m.form}`
+      : m.kind === 'delivered'
+        ? 'left with its order'
+        : m.kind
 /** 2.08 → "2.1 %". */
 export const fmtPct = (p: number | null | undefined): string =>
   p === null || p === undefined || !Number.isFinite(p) ? '—' : `${p.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 })} %`

@@ -51,6 +51,10 @@ describe('master-data screens as the owner', () => {
   it('when people & skills open, then skills are listed and a person’s skills editor shows levels and speed', async () => {
     await page.goto('/people')
     expect(await heading(page)).toBe('People & skills')
+    // Planned minutes = routing minutes ÷ speed (shared/domain/estimate.ts): a speed of 0.50 doubles the time, so the page must not say the speed multiplies the minutes.
+    expect(await page.locator('[data-test=people-intro]').innerText()).toMatch(
+      /Speed divides the routing’s minutes: above 1\.00 is quicker, below 1\.00 takes longer \(0\.50 takes twice as long\)/,
+    )
     await page.getByText('Ines Harrowby').first().click()
     await page.locator('.el-dialog .el-tabs__item', { hasText: 'Skills' }).click()
     await page.locator('[data-test=skill-row]').first().waitFor()

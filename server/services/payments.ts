@@ -543,7 +543,8 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
     const amount = minorToDecimal(r.p.amountMinor, r.p.currency)
     lines.push(
       [
-        new Date(r.p.receivedAt).toISOString(),
+        // The workshop's own wall clock with its offset (ISO 8601), so the date written is the day the summary counts it on.
+        dayjs(r.p.receivedAt).tz(w.timeZone).format(),
         r.orderNumber,
         r.quoteNumber,
         r.customer,

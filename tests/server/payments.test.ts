@@ -244,6 +244,25 @@ describe('quotes and deposits', () => {
     expect(after.body.weeks.every((w: { receivedMinor: number }) => w.receivedMinor === 0)).toBe(true)
   })
 
+  it('when cash is recorded at 00:30 on a Monday in summer time, then the CSV writes that Monday on the workshop’s clock and the summary counts it in that ISO week', async () => {
+    const [order] = await t.db.select({ id: s.orders.id }).from(s.orders).where(eq(s.orders.status, 'open')).limit(1)
+    // 2026-07-05T23:30Z is Monday 6 July 2026, 00:30 in London (BST, UTC+1). ISO week by hand: 1 Jan 2026 is a Thursday, so
+    // week 1 starts Monday 29 Dec 2025; 6 July is 189 days = 27 weeks later, the first day of week 28.
+    const cash = await sales.post(`/api/orders/${order!.id}/payments`, {
+      method: 'cash',
+      amountMinor: 4321,
+      receivedAt: '2026-07-05T23:30:00Z',
+      note: 'just after midnight',
+    })
+    expect(cash.status, JSON.stringify(cash.body)).toBe(201)
+    const line = (await owner.get('/api/payments/export.csv')).text.split(/\r?\n/).find((l) => l.includes('just after midnight'))!
+    expect(line.startsWith('2026-07-06T00:30:00+01:00,'), line).toBe(true)
+    const week = (await owner.get('/api/payments/summary').query({ from: '2026-07-06', to: '2026-07-06' })).body.weeks.find(
+      (w: { week: string }) => w.week === '2026-W28',
+    )
+    expect(week?.receivedMinor).toBe(4321)
+  })
+
   it('when the owner asks for the CSV and the summary, then the hand-worked amounts appear in major units and by ISO week', async () => {
     const csv = await owner.get('/api/payments/export.csv')
     expect(csv.status).toBe(200)

@@ -55,6 +55,10 @@ describe('master-data screens as the owner', () => {
     expect(await page.locator('[data-test=people-intro]').innerText()).toMatch(
       /Speed divides the routing’s minutes: above 1\.00 is quicker, below 1\.00 takes longer \(0\.50 takes twice as long\)/,
     )
+    // Hand-worked from the demo's week: Ruth works Monday to Thursday, 08:30–17:00 less a 45-minute lunch = 7 h 45 min a day,
+    // so 4 × 7 h 45 min = 31 h; Sam works mornings, 08:30–12:30 five days = 20 h. Written as the calendar writes hours.
+    expect(await page.locator('.el-table__row', { hasText: 'Ruth Calder' }).innerText()).toContain('Own · 31 h a week')
+    expect(await page.locator('.el-table__row', { hasText: 'Sam Ottery' }).innerText()).toContain('Own · 20 h a week')
     await page.getByText('Ines Harrowby').first().click()
     await page.locator('.el-dialog .el-tabs__item', { hasText: 'Skills' }).click()
     await page.locator('[data-test=skill-row]').first().waitFor()

@@ -453,11 +453,17 @@ export async function toRefundList(db: Db, workshopId: number) {
 
 const isoWeek = (d: dayjs.Dayjs) => `${d.isoWeekYear()}-W${String(d.isoWeek()).padStart(2, '0')}`
 
-/** The owner's figures: received and refunded by ISO week (in the range asked for, and this week's always), owed by the ISO week the order is promised, deposits held on work not started. */
+/**
+ * The owner's figures: received and refunded by ISO week (in the range asked for, and this week's always), owed by the ISO week the
+ * order is promised, deposits held on work not started. With a range asked for, the weeks hold only what falls in it: money that moved
+ * on a day of the range and what is owed on pieces promised (or due) on a day of the range; `owedInWeeksMinor` adds up those owed rows.
+ * Without one, the last 12 weeks' money and every week something is owed.
+ */
 export async function summary(db: Db, workshopId: number, q: { from?: string; to?: string }) {
   const w = await workshopOf(db, workshopId)
   const to = q.to ?? dayjs().tz(w.timeZone).format('YYYY-MM-DD')
   const from = q.from ?? dayjs(to).subtract(12, 'week').format('YYYY-MM-DD')
+  const ranged = q.from !== undefined || q.to !== undefined
   const weeks = new Map<string, { week: string; receivedMinor: number; refundedMinor: number; owedMinor: number }>()
   const at = (k: string) => weeks.get(k) ?? weeks.set(k, { week: k, receivedMinor: 0, refundedMinor: 0, owedMinor: 0 }).get(k)!
   // This week's figures whatever range is asked for: the owner's card says what came in this week.
@@ -481,15 +487,20 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
     .from(s.orders)
     .where(and(eq(s.orders.workshopId, workshopId), sql`${s.orders.status} not in ('collected', 'cancelled')`))
   let owedMinor = 0,
+    owedInWeeksMinor = 0,
     depositsHeldMinor = 0
   const depositsHeld: { orderId: number; orderNumber: string; customerName: string; paidMinor: number }[] = []
   for (const o of open) {
     const m = await orderMoney(db, workshopId, o.id)
     if (m.owedMinor > 0) {
       owedMinor += m.owedMinor
-      const week = isoWeek(dayjs(o.promisedDate ?? o.dueDate))
-      at(week).owedMinor += m.owedMinor
+      const promised = o.promisedDate ?? o.dueDate
+      const week = isoWeek(dayjs(promised))
       if (week === thisWeek.week) thisWeek.owedMinor += m.owedMinor
+      if (!ranged || (promised >= from && promised <= to)) {
+        at(week).owedMinor += m.owedMinor
+        owedInWeeksMinor += m.owedMinor
+      }
     }
     if (m.paidMinor > 0) {
       const started = await db
@@ -512,6 +523,7 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
     weeks: [...weeks.values()].sort((a, b) => a.week.localeCompare(b.week)),
     thisWeek,
     owedMinor,
+    owedInWeeksMinor,
     depositsHeldMinor,
     depositsHeld,
   }

@@ -101,7 +101,10 @@ export const moneySummary = z.object({
   weeks: z.array(moneyWeek),
   /** The current ISO week in the workshop's zone, whatever the range. */
   thisWeek: moneyWeek,
+  /** Owed on every open order, whatever the range. */
   owedMinor: wireInt,
+  /** Owed in the weeks listed: the sum of their owed figures. */
+  owedInWeeksMinor: wireInt,
   depositsHeldMinor: wireInt,
   depositsHeld: z.array(z.object({ orderId: wireInt, orderNumber: z.string(), customerName: z.string(), paidMinor: wireInt })),
 })

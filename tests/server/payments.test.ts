@@ -263,6 +263,32 @@ describe('quotes and deposits', () => {
     expect(week?.receivedMinor).toBe(4321)
   })
 
+  it('when the owner picks one week, then the weeks list only that week and its owed figure leaves out pieces promised the week after', async () => {
+    // Two quotes of 1,250.00 with their 375.00 deposits paid: each order owes 875.00 (87500). One is promised Wednesday 5 March 2031,
+    // the other Wednesday 12 March 2031. ISO weeks by hand: 1 Jan 2031 is a Wednesday, so week 1 starts Monday 30 Dec 2030;
+    // Monday 3 March 2031 is 63 days (9 weeks) later, so 3–9 March is 2031-W10 and 12 March falls in 2031-W11.
+    const orderIds: number[] = []
+    for (const title of ['Promised in W10', 'Promised in W11']) {
+      const q = await sentQuote(title)
+      await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
+      orderIds.push((await sales.get(`/api/quotes/${q.id}`)).body.orderId)
+    }
+    await t.db.update(s.orders).set({ promisedDate: '2031-03-05' }).where(eq(s.orders.id, orderIds[0]!))
+    await t.db.update(s.orders).set({ promisedDate: '2031-03-12' }).where(eq(s.orders.id, orderIds[1]!))
+    const r = await owner.get('/api/payments/summary').query({ from: '2031-03-03', to: '2031-03-09' })
+    expect(r.status).toBe(200)
+    expect(r.body.weeks).toEqual([{ week: '2031-W10', receivedMinor: 0, refundedMinor: 0, owedMinor: 87500 }])
+    expect(r.body.owedInWeeksMinor).toBe(87500)
+    // The card's total still counts every open order: both 875.00 are in it.
+    expect(r.body.owedMinor - r.body.owedInWeeksMinor).toBeGreaterThanOrEqual(87500)
+    const both = await owner.get('/api/payments/summary').query({ from: '2031-03-03', to: '2031-03-15' })
+    expect(both.body.weeks.map((w: { week: string; owedMinor: number }) => [w.week, w.owedMinor])).toEqual([
+      ['2031-W10', 87500],
+      ['2031-W11', 87500],
+    ])
+    expect(both.body.owedInWeeksMinor).toBe(175000)
+  })
+
   it('when the owner asks for the CSV and the summary, then the hand-worked amounts appear in major units and by ISO week', async () => {
     const csv = await owner.get('/api/payments/export.csv')
     expect(csv.status).toBe(200)

@@ -175,4 +175,57 @@ describe('metal on the bench and the owner’s metal screen', () => {
     await expect.poll(() => calc.locator('[data-test=calc-metal]').innerText(), { timeout: 10_000 }).toBe('71.89 g')
     await screenshot(owner, 'metal-05-casting-calculator')
   })
+
+  it('when the owner opens Metal at 1366 × 768, then Fine and Value sit inside the stock table and the window, and an opened row shows the movements its balance is made of', async () => {
+    const owner = await page('owner@wrenfield.test', { width: 1366, height: 768 })
+    await owner.goto('/metal')
+    // SQL text on purpose — each alloy's movements summed by kind apart from the app, with its millesimal fineness.
+    const rows = await q(`select a.code, a.fineness::float as fineness,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'bought'), 0)::int as bought,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'issued' and m.source = 'customer'), 0)::int as customer,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'issued'), 0)::int as issued,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'returned'), 0)::int as returned,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'to-refining'), 0)::int as to_refining,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'from-refining'), 0)::int as from_refining,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'adjusted'), 0)::int as adjusted,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'delivered'), 0)::int as delivered
+      from alloys a left join metal_movements m on m.alloy_id = a.id group by a.code, a.fineness order by issued desc limit 1`)
+    const a = rows[0]!
+    expect(a.issued, 'the demo has issued metal of some alloy').toBeGreaterThan(0)
+    const balance = a.bought + a.customer - a.issued + a.returned - a.to_refining + a.from_refining + a.adjusted - a.delivered
+    await expect.poll(() => owner.locator(`[data-test="stock-balance-${a.code}"]`).innerText(), { timeout: 15_000 }).toBe(g(balance, 3))
+    // Fine metal = weight × millesimal fineness / 1000 (e.g. 585 for 14 ct, as hallmarked), to the milligram.
+    await expect(owner.locator(`[data-test="stock-fine-${a.code}"]`).innerText()).resolves.toBe(g(Math.round((balance * a.fineness) / 1000), 3))
+
+    const table = owner.locator('[data-test=stock-table]')
+    const box = (await table.boundingBox())!
+    for (const label of ['Alloy', 'Balance', 'Fine', 'Price per g', 'Value']) {
+      const th = table.locator('.el-table__header th', { hasText: new RegExp(`^${label}$`) }).first()
+      const b = (await th.boundingBox())!
+      expect(b, `${label} header`).toBeTruthy()
+      expect(b.x, `${label} starts inside the table`).toBeGreaterThanOrEqual(box.x - 0.5)
+      expect(b.x + b.width, `${label} ends inside the table`).toBeLessThanOrEqual(box.x + box.width + 0.5)
+      expect(b.x + b.width, `${label} ends inside the window`).toBeLessThanOrEqual(1366)
+    }
+    // No sideways scroll: the table's body is no wider than what it shows.
+    const wide = await table.locator('.el-table__body-wrapper .el-scrollbar__wrap').evaluate((e) => e.scrollWidth - e.clientWidth)
+    expect(wide).toBeLessThanOrEqual(0)
+
+    const row = table.locator('.el-table__row', { has: owner.locator(`[data-test="stock-balance-${a.code}"]`) })
+    await row.locator('.el-table__expand-icon').click()
+    const moves = owner.locator(`[data-test="stock-moves-${a.code}"]`)
+    await moves.waitFor()
+    const want: [string, number][] = [
+      ['boughtMg', a.bought],
+      ['fromCustomerMg', a.customer],
+      ['issuedMg', a.issued],
+      ['returnedMg', a.returned],
+      ['toRefiningMg', a.to_refining],
+      ['fromRefiningMg', a.from_refining],
+      ['adjustedMg', a.adjusted],
+      ['deliveredMg', a.delivered],
+    ]
+    for (const [key, mg] of want) await expect(moves.locator(`[data-test="stock-${key}-${a.code}"]`).innerText(), key).resolves.toBe(g(mg, 3))
+    await screenshot(owner, 'metal-06-stock-at-1366', { fullPage: false })
+  })
 })

@@ -68,4 +68,10 @@ function benchmarkSchedule(plan: Plan, name: string) {
   return { makespan: plan.score.makespan, operations }
 }
 
-main()
+try {
+  main()
+} catch (e) {
+  // Bad input (an unreadable file, a step of 0 minutes, a weight below 0): one line on stderr, nothing on stdout, exit 1.
+  process.stderr.write(`solve: ${e instanceof Error ? e.message : String(e)}\n`)
+  process.exit(1)
+}

@@ -795,17 +795,18 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
         if (x < 0 || bestEst[x]! >= fStar) continue
         const j = jobOf[x]!
         const slack = (Number.isFinite(due[j]!) ? due[j]! : 1e12) - bestEst[x]! - remaining[x]!
+        const wj = Math.max(1e-6, weight[j]!) // a weight of 0 is allowed: its job still needs a finite key
         let key: number
         if (!twtMode) key = rule === 0 ? -remaining[x]! : rule === 1 ? bestFin[x]! - remaining[x]! * 1e-3 : bestEst[x]! + rng.next()
         else if (rule === 0)
-          key = slack > 0 ? slack / weight[j]! : slack * weight[j]! // weighted slack
+          key = slack > 0 ? slack / wj : slack * wj // weighted slack
         else if (rule === 1)
           key = Math.max(due[j]!, bestEst[x]! + remaining[x]!) // modified due date
         else if (rule === 2)
-          key = (-weight[j]! / minDur[x]!) * Math.exp(-Math.max(0, slack) / (2 * Math.max(1, minDur[x]!))) // apparent tardiness cost
+          key = (-wj / Math.max(1e-6, minDur[x]!)) * Math.exp(-Math.max(0, slack) / (2 * Math.max(1, minDur[x]!))) // apparent tardiness cost
         else if (rule === 3) key = due[j]! + rng.next() * 20
-        else key = (slack > 0 ? slack / weight[j]! : slack * weight[j]!) + (rng.next() - 0.5) * 2 * Math.max(10, Math.abs(slack)) // weighted slack, shaken
-        if (key < pickKey) {
+        else key = (slack > 0 ? slack / wj : slack * wj) + (rng.next() - 0.5) * 2 * Math.max(10, Math.abs(slack)) // weighted slack, shaken
+        if (pick < 0 || key < pickKey) {
           pickKey = key
           pick = h
         }

@@ -160,6 +160,26 @@ describe('due dates and workers on tiny shops (against exhaustive enumeration)',
   }
 })
 
+describe('jobs that weigh nothing (weight 0, which the .twt format allows)', () => {
+  for (let seed = 7; seed <= 9; seed++)
+    it(`when tiny due-date job shop #${seed} has a job of weight 0, then its weighted tardiness is still the enumerated optimum`, () => {
+      const t = randomTwt(seed)
+      t.jobs[seed % 3]!.weight = 0
+      const problem = toProblem(t)
+      const plan = solve(problem, { seed: 1, timeLimitMs: 20_000, maxIterations: 3000, objective: ['weightedTardiness', 'makespan'] }, { clock })
+      expect(validatePlan(problem, plan)).toEqual([])
+      expect(plan.score.weightedTardiness).toBe(bruteForce(t, 'twt'))
+    })
+  it('when one machine has a weightless job, a light one and a heavy one released late, then the plan is the hand-worked optimum', () => {
+    // Worked by hand: job 2 (7 min, weight 4, due 6) cannot start before its release at 27, so it ends at 34 at the earliest
+    // and costs 4 × (34 − 6) = 112; jobs 0 (16 min, due 75) and 1 (7 min, due 66) both fit before 27 on time, in either order.
+    const problem = parseTwt('3 1\n0 16\n0 7\n0 7\n0 75 0\n0 66 2\n27 6 4\n')
+    const plan = solve(problem, { seed: 1, timeLimitMs: 5_000, maxIterations: 500, objective: ['weightedTardiness', 'makespan'] }, { clock })
+    expect(validatePlan(problem, plan)).toEqual([])
+    expect(plan.score.weightedTardiness).toBe(112)
+  })
+})
+
 describe.skipIf(!haveKit)('kit due-date and worker shops (skipped with a message when the kit is absent outside CI)', () => {
   it('when la01 (f = 1.3) is solved with a generous limit, then its TWT is within 3 % of the published best known', () => {
     const problem = parseTwt(readFileSync(join(benchDir, 'twt/la01-f13.twt'), 'utf8'))

@@ -606,7 +606,9 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?
   for (let i = 0; i < n; i++) {
     const prev = c.problem.previous?.[c.ops[i]!.id]
     if (prev && !c.fixedAt[i]) {
-      if (option[i] !== c.previousOption[i]) moves++
+      // Outside work takes no bench and no person: it moved when the previous plan gave it one (its options do not count).
+      const moved = c.outsideDays[i]! > 0 ? prev.benchId !== null || prev.personId !== null : option[i] !== c.previousOption[i]
+      if (moved) moves++
       else if (Math.abs(start[i]! - prev.start) >= 1) shifted++
     }
   }

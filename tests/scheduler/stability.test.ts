@@ -3,6 +3,7 @@
 import { describe, it, expect } from 'vitest'
 import { solve, validatePlan, type Plan, type Problem } from '../../server/scheduler/index.ts'
 import { generateWorkshop } from '../../server/scheduler/generate.ts'
+import { at, makeOperation, makeProblem } from './builders.ts'
 
 const clock = () => performance.now()
 const asPrevious = (plan: Plan): Problem['previous'] =>
@@ -48,5 +49,31 @@ describe('stability against the published plan', () => {
     expect(plan.score.weightedTardiness).toBeLessThanOrEqual(first.score.weightedTardiness)
     expect({ changed: changes(first, plan) > 0 }).toEqual({ changed: plan.score.weightedTardiness < first.score.weightedTardiness })
     expect(plan.operations.some((o) => o.operationId === 'new-1')).toBe(true)
+  })
+
+  // Expected moves worked out by hand: outside work is planned with no bench and no person, so it counts as moved exactly when
+  // the previous plan gave it a bench or a person, whatever its options list.
+  it('when a step that was planned on a bench now goes outside, then it counts as one move and the plan stays valid', () => {
+    const problem = makeProblem({
+      operations: [
+        makeOperation({ id: 'cast', jobId: 'j1', outsideWorkingDays: 1 }),
+        makeOperation({ id: 'clean', jobId: 'j1', predecessors: ['cast'], on: ['b1', 'p1', 30] }),
+      ],
+      previous: { cast: { benchId: 'b1', personId: 'p1', start: at(0, 8) }, clean: { benchId: 'b1', personId: 'p1', start: at(1, 16) } },
+    })
+    const plan = solve(problem, { seed: 1, timeLimitMs: 200 }, { clock })
+    expect(plan.operations.find((o) => o.operationId === 'cast')).toMatchObject({ benchId: null, personId: null })
+    expect(plan.score.moves).toBe(1)
+    expect(validatePlan(problem, plan)).toEqual([])
+  })
+
+  it('when outside work was planned outside before and lists an option without bench or person, then it has not moved', () => {
+    const problem = makeProblem({
+      operations: [makeOperation({ id: 'hallmark', jobId: 'j1', outsideWorkingDays: 2, options: [{ benchId: null, personId: null, minutes: 30 }] })],
+      previous: { hallmark: { benchId: null, personId: null, start: at(0, 8) } },
+    })
+    const plan = solve(problem, { seed: 1, timeLimitMs: 200 }, { clock })
+    expect(plan.score.moves).toBe(0)
+    expect(validatePlan(problem, plan)).toEqual([])
   })
 })

@@ -41,7 +41,7 @@ function main(): void {
     objective = ['makespan']
   }
   const plan = solve(problem, { seed, timeLimitMs: timeLimit * 1000, ...(objective ? { objective } : {}) }, { clock: () => performance.now() })
-  if (!plan.score.feasible) process.stderr.write(`warning: ${plan.score.violations.join('; ')}\n`)
+  if (!plan.score.feasible) process.stderr.write(`warning: ${plan.score.violations.map((v) => v.message).join('; ')}\n`)
   if (name.endsWith('.json')) {
     process.stdout.write(JSON.stringify(plan) + '\n')
     return

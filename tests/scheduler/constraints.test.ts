@@ -1,5 +1,10 @@
 // One focused test per scheduling rule, each plan also checked by the independent validator.
 import { describe, it, expect } from 'vitest'
+import { spawnSync } from 'node:child_process'
+import { mkdtempSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { dirname, join, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
 import { solve, validatePlan, type Plan, type Problem } from '../../server/scheduler/index.ts'
 import { compile, decode } from '../../server/scheduler/decode.ts'
 import { at, makeBench, makeJob, makeOperation, makePerson, makeProblem, weekdays } from './builders.ts'
@@ -274,5 +279,24 @@ describe('engine constraints', () => {
     })
     const run = () => solve(problem, { seed: 42, timeLimitMs: 60_000, maxIterations: 200 }, { clock: () => performance.now() })
     expect(run().operations).toEqual(run().operations)
+  })
+
+  it('when a pin cannot hold, then the solve CLI prints the plan on stdout and the broken rule in words on stderr', () => {
+    // Unavoidable by hand: 'make' takes 4 h from 08:00, the step after it is pinned at 09:00 the same morning.
+    const problem = makeProblem({
+      operations: [
+        makeOperation({ id: 'make', jobId: 'j1', on: ['b1', 'p1', 240] }),
+        makeOperation({ id: 'polish', jobId: 'j1', predecessors: ['make'], on: ['b1', 'p1', 30], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 9) } }),
+      ],
+    })
+    const file = join(mkdtempSync(join(tmpdir(), 'millgrain-pin-')), 'broken-pin.json')
+    writeFileSync(file, JSON.stringify(problem))
+    const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
+    const out = spawnSync(join(root, 'node_modules/.bin/tsx'), [join(root, 'scripts/solve.ts'), '--time-limit', '0.2', file], { encoding: 'utf8' })
+    expect(out.status, out.stderr).toBe(0)
+    expect(out.stdout.trim().split('\n')).toHaveLength(1)
+    expect(JSON.parse(out.stdout).score.feasible).toBe(false)
+    expect(out.stderr).toMatch(/^warning: .*must wait for .*make/)
+    expect(out.stderr).not.toContain('[object Object]')
   })
 })

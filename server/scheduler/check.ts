@@ -123,10 +123,13 @@ export function checkProblem(problem: Problem): void {
     }
     if (op.fixed) {
       const f = op.fixed
-      if (!Number.isFinite(f.start) || (f.end !== undefined && !(f.end >= f.start))) {
+      // Work at the bench that is pinned to an end must take some time: an end at its start leaves nothing to plan.
+      if (!Number.isFinite(f.start) || (f.end !== undefined && !(outside ? f.end >= f.start : f.end > f.start))) {
         throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: pinned ${label(op)} has start ${f.start} and end ${f.end}` })
       }
-      const inside = (list: Interval[]): boolean => list.some((w) => w.start <= f.start && f.start < w.end)
+      // Its end, when given, closes a stretch of working time (the last worked minute is before it), as its start opens one.
+      const inside = (list: Interval[]): boolean =>
+        list.some((w) => w.start <= f.start && f.start < w.end) && (f.end === undefined || list.some((w) => w.start < f.end! && f.end! <= w.end))
       if (f.benchId !== null) {
         const b = benches.get(f.benchId)
         if (!b)
@@ -135,7 +138,7 @@ export function checkProblem(problem: Problem): void {
           throw new SchedulingInputError({
             code: 'fixed-outside-working-time',
             ...where,
-            message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}, outside the working time of bench ${b.name}`,
+            message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}${f.end !== undefined ? ` to ${f.end}` : ''}, outside the working time of bench ${b.name}`,
           })
       }
       if (f.personId !== null) {
@@ -146,7 +149,7 @@ export function checkProblem(problem: Problem): void {
           throw new SchedulingInputError({
             code: 'fixed-outside-working-time',
             ...where,
-            message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}, outside the working time of ${p.name}`,
+            message: `Job ${jn}: ${label(op)} is pinned at minute ${f.start}${f.end !== undefined ? ` to ${f.end}` : ''}, outside the working time of ${p.name}`,
           })
       }
     }

@@ -60,6 +60,26 @@ describe('checkProblem', () => {
     )
     expect(e).toMatchObject({ code: 'fixed-outside-working-time', operationId: 'a' })
   })
+  it('when running work is pinned to end after the day has closed, then "fixed-outside-working-time" is raised', () => {
+    // The bench and the person stop at 16:00; a plan cannot both keep the end at 18:00 and work only in working time.
+    const fixed = { benchId: 'b1', personId: 'p1', start: at(0, 15), end: at(0, 18) }
+    const e = refusal(makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30], fixed })] }))
+    expect(e).toMatchObject({ code: 'fixed-outside-working-time', operationId: 'a' })
+  })
+  it('when running work is pinned to end at the close of the day or inside it, then it passes and the plan keeps the end', () => {
+    for (const end of [at(0, 16), at(0, 15, 20)]) {
+      const fixed = { benchId: 'b1', personId: 'p1', start: at(0, 15), end }
+      const p = makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30], fixed })] })
+      const plan = solve(p, { seed: 1, timeLimitMs: 50 })
+      expect(plan.score.violations).toEqual([])
+      expect(plan.operations[0]).toMatchObject({ start: at(0, 15), end, segments: [{ start: at(0, 15), end }] })
+    }
+  })
+  it('when work at the bench is pinned to end where it starts, then "bad-duration" is raised', () => {
+    const fixed = { benchId: 'b1', personId: 'p1', start: at(0, 9), end: at(0, 9) }
+    const e = refusal(makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30], fixed })] }))
+    expect(e).toMatchObject({ code: 'bad-duration', operationId: 'a' })
+  })
   it.each([0, -5, Number.NaN, 1e9])('when a duration is %s minutes, then "bad-duration" is raised', (minutes) => {
     expect(refusal(makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', minutes] })] })).code).toBe('bad-duration')
   })

@@ -231,8 +231,12 @@ export function checkProblem(problem: Problem): void {
     let end: number | null
     const away = op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0
     if (op.fixed && away) end = outsideWorkEnd(problem.workshopDays, op.fixed.start, op.outsideWorkingDays!)
-    else if (op.fixed) end = op.fixed.end ?? op.fixed.start + (op.options[0]?.minutes ?? 0)
-    else if (away) end = outsideWorkEnd(problem.workshopDays, est, op.outsideWorkingDays!)
+    else if (op.fixed) {
+      // Pinned work without an end runs its minutes through the working time of its bench and person from its start.
+      const f = op.fixed
+      const minutes = (op.options.find((o) => o.benchId === f.benchId && o.personId === f.personId) ?? op.options[0])?.minutes ?? 0
+      end = f.end ?? walkWorkingTime(windowsOf(f.benchId, f.personId), f.start, minutes)?.at(-1)?.end ?? null
+    } else if (away) end = outsideWorkEnd(problem.workshopDays, est, op.outsideWorkingDays!)
     else {
       end = null
       for (const o of op.options) {

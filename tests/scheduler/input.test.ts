@@ -1,7 +1,7 @@
 // Bad input is refused with a SchedulingInputError that names the job and operation.
 import { describe, it, expect } from 'vitest'
 import { checkProblem, solve, SchedulingInputError, type Problem } from '../../server/scheduler/index.ts'
-import { at, makeJob, makeOperation, makeProblem } from './builders.ts'
+import { at, makeBench, makeJob, makeOperation, makePerson, makeProblem } from './builders.ts'
 
 const refusal = (p: Problem): SchedulingInputError => {
   try {
@@ -74,6 +74,21 @@ describe('checkProblem', () => {
       expect(plan.score.violations).toEqual([])
       expect(plan.operations[0]).toMatchObject({ start: at(0, 15), end, segments: [{ start: at(0, 15), end }] })
     }
+  })
+  it('when pinned work runs past the horizon once its lunch break is counted, then "beyond-horizon" is raised', () => {
+    // By hand: from 11:00, 60 min before lunch and 240 min after it leave 30 of its 330 min past the horizon at 17:00.
+    const day = [
+      { start: at(0, 8), end: at(0, 12) },
+      { start: at(0, 13), end: at(0, 17) },
+    ]
+    const p = makeProblem({
+      horizon: at(0, 17),
+      workshopDays: [{ start: at(0, 8), end: at(0, 17) }],
+      benches: [makeBench({ id: 'b1', available: day })],
+      people: [makePerson({ id: 'p1', available: day })],
+      operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 330], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 11) } })],
+    })
+    expect(refusal(p)).toMatchObject({ code: 'beyond-horizon', operationId: 'a' })
   })
   it('when work at the bench is pinned to end where it starts, then "bad-duration" is raised', () => {
     const fixed = { benchId: 'b1', personId: 'p1', start: at(0, 9), end: at(0, 9) }

@@ -96,7 +96,9 @@ export function compile(problem: Problem): Compiled {
     const opts = op.options.map((o) => {
       const b = o.benchId === null ? -1 : (benchIdx.get(o.benchId) ?? -1)
       const p = o.personId === null ? -1 : (personIdx.get(o.personId) ?? -1)
-      return { bench: b, person: p, minutes: o.minutes, windows: windowsFor(b, p) }
+      // A plan names only the bench and the person, so a pair listed twice takes the minutes of its first listing (as the rule book reads it).
+      const first = op.options.find((x) => x.benchId === o.benchId && x.personId === o.personId)!
+      return { bench: b, person: p, minutes: first.minutes, windows: windowsFor(b, p) }
     })
     options.push(opts)
     if (op.fixed) {

@@ -299,4 +299,21 @@ describe('engine constraints', () => {
     expect(out.stderr).toMatch(/^warning: .*must wait for .*make/)
     expect(out.stderr).not.toContain('[object Object]')
   })
+
+  it('when an operation lists the same bench and person twice, then the plan works the minutes of the first listing', () => {
+    // By hand: the pair's minutes are those the plan is checked against, the first listing's 60 (the 30 below is not used).
+    const problem = makeProblem({
+      operations: [
+        makeOperation({
+          id: 'a',
+          jobId: 'j',
+          options: [
+            { benchId: 'b1', personId: 'p1', minutes: 60 },
+            { benchId: 'b1', personId: 'p1', minutes: 30 },
+          ],
+        }),
+      ],
+    })
+    expect(placed(plan(problem), 'a')).toMatchObject({ start: at(0, 8), end: at(0, 9) })
+  })
 })

@@ -127,6 +127,14 @@ export function checkProblem(problem: Problem): void {
       if (!Number.isFinite(f.start) || (f.end !== undefined && !(outside ? f.end >= f.start : f.end > f.start))) {
         throw new SchedulingInputError({ code: 'bad-duration', ...where, message: `Job ${jn}: pinned ${label(op)} has start ${f.start} and end ${f.end}` })
       }
+      // Outside work holds no bench and no person, so its pin cannot keep one.
+      if (outside && (f.benchId !== null || f.personId !== null)) {
+        throw new SchedulingInputError({
+          code: 'unknown-resource',
+          ...where,
+          message: `Job ${jn}: ${label(op)} is outside work, which takes no bench and no person, but is pinned to ${[f.benchId && `bench ${benches.get(f.benchId)?.name ?? f.benchId}`, f.personId && (people.get(f.personId)?.name ?? f.personId)].filter(Boolean).join(' and ')}`,
+        })
+      }
       // Its end, when given, closes a stretch of working time (the last worked minute is before it), as its start opens one.
       const inside = (list: Interval[]): boolean =>
         list.some((w) => w.start <= f.start && f.start < w.end) && (f.end === undefined || list.some((w) => w.start < f.end! && f.end! <= w.end))

@@ -90,6 +90,13 @@ describe('checkProblem', () => {
     })
     expect(refusal(p)).toMatchObject({ code: 'beyond-horizon', operationId: 'a' })
   })
+  it('when outside work is pinned to a bench, then "unknown-resource" is raised', () => {
+    // Outside work is planned with no bench and no person, so no plan can keep this pin.
+    const fixed = { benchId: 'b1', personId: null, start: at(0, 9) }
+    const e = refusal(makeProblem({ operations: [makeOperation({ id: 'cast', jobId: 'j', outsideWorkingDays: 1, fixed })] }))
+    expect(e).toMatchObject({ code: 'unknown-resource', operationId: 'cast' })
+    expect(e.message).toContain('Bench b1')
+  })
   it('when work at the bench is pinned to end where it starts, then "bad-duration" is raised', () => {
     const fixed = { benchId: 'b1', personId: 'p1', start: at(0, 9), end: at(0, 9) }
     const e = refusal(makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30], fixed })] }))

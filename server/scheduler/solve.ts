@@ -262,6 +262,40 @@ function asPairShop(c: Compiled): PairShop | null {
   }
 }
 
+/** Starts (from now) of the pair core's plan with every step as early as its bench, person and predecessors allow, in start order. */
+function leftJustify(c: Compiled, option: Int32Array, start0: Int32Array, end0: Int32Array): Float64Array {
+  const n = c.n,
+    now = c.problem.now
+  const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => start0[a]! - start0[b]! || a - b)
+  const busy = new Map<string, [number, number][]>() // 'b3' / 'p1' → booked intervals, sorted by start
+  const out = new Float64Array(n),
+    done = new Uint8Array(n)
+  for (const i of order) {
+    const o = c.options[i]![option[i]!]!
+    const dur = end0[i]! - start0[i]!
+    let t = Math.max(0, c.jobs[c.jobOf[i]!]!.release - now)
+    for (const q of c.preds[i]!) t = Math.max(t, done[q] ? out[q]! + (end0[q]! - start0[q]!) : end0[q]!)
+    const lists = [busy.get(`b${o.bench}`) ?? [], ...(o.person >= 0 ? [busy.get(`p${o.person}`) ?? []] : [])]
+    for (let moved = true; moved;) {
+      moved = false
+      for (const list of lists)
+        for (const [a, b] of list)
+          if (a < t + dur && t < b) {
+            t = b
+            moved = true
+          }
+    }
+    if (t > start0[i]!) t = start0[i]! // cannot happen (see fromPair); the core's own start is feasible
+    out[i] = t
+    done[i] = 1
+    for (const key of [`b${o.bench}`, ...(o.person >= 0 ? [`p${o.person}`] : [])]) {
+      const list = busy.get(key) ?? busy.set(key, []).get(key)!
+      list.push([t, t + dur])
+    }
+  }
+  return out
+}
+
 /** Turns the pair core's options and times (from now) into a decode with start reasons and the workshop score. */
 function fromPair(c: Compiled, opt: Int32Array, start0: Int32Array, end0: Int32Array): Decoded {
   const n = c.n,
@@ -274,10 +308,17 @@ function fromPair(c: Compiled, opt: Int32Array, start0: Int32Array, end0: Int32A
   const segments = new Array(n)
   let k = 0
   for (let i = 0; i < n; i++) {
-    start[i] = start0[i]! + now
-    end[i] = end0[i]! + now
     option[i] = opt[i]! - k
     k += c.options[i]!.length
+  }
+  // The core times each step right after what comes before it in its sequences, which can leave a gap on a bench and person
+  // that a later step fits into; the decoder would fill it, so a re-plan of the unchanged workshop would shift steps at the same
+  // lateness. Steps in order of start, each at the first time its bench and person are both free after its predecessors: no
+  // step starts later than the core had it (every step before it on its bench or person ended by then and only moves earlier).
+  const left = leftJustify(c, option, start0, end0)
+  for (let i = 0; i < n; i++) {
+    start[i] = left[i]! + now
+    end[i] = left[i]! + (end0[i]! - start0[i]!) + now
     segments[i] = [{ start: start[i]!, end: end[i]! }]
   }
   const lastOn = (list: Map<number, number[]>, key: number, i: number) => {

@@ -4,6 +4,7 @@ import { describe, it, expect } from 'vitest'
 import { solve, validatePlan, type Plan, type Problem } from '../../server/scheduler/index.ts'
 import { generateWorkshop } from '../../server/scheduler/generate.ts'
 import { at, makeOperation, makeProblem } from './builders.ts'
+import { createRng } from '../../server/scheduler/random.ts'
 
 const clock = () => performance.now()
 const asPrevious = (plan: Plan): Problem['previous'] =>
@@ -75,5 +76,47 @@ describe('stability against the published plan', () => {
     const plan = solve(problem, { seed: 1, timeLimitMs: 200 }, { clock })
     expect(plan.score.moves).toBe(0)
     expect(validatePlan(problem, plan)).toEqual([])
+  })
+})
+
+describe('stability on shops without calendars (planned by the machine-and-worker core)', () => {
+  /** Six job bags of three steps, three benches and two people open all the time, each step on a few random pairs. */
+  function openShop(seed: number): Problem {
+    const rng = createRng(seed)
+    const always = [{ start: 0, end: 100_000 }]
+    return {
+      origin: '2025-01-06',
+      now: 0,
+      horizon: 100_000,
+      workshopDays: always,
+      benches: [0, 1, 2].map((k) => ({ id: `m${k}`, name: `m${k}`, available: always })),
+      people: [0, 1].map((k) => ({ id: `w${k}`, name: `w${k}`, available: always })),
+      jobs: Array.from({ length: 6 }, (_, j) => ({ id: `j${j}`, name: `j${j}`, release: 0, due: 20 + rng.int(40), weight: 1 + rng.int(3) })),
+      operations: Array.from({ length: 6 }, (_, j) =>
+        [0, 1, 2].map((k) => {
+          const options: { benchId: string; personId: string; minutes: number }[] = []
+          for (let m = 0; m < 3; m++)
+            for (let w = 0; w < 2; w++)
+              if (rng.next() < 0.4 || (options.length === 0 && m === 2 && w === 1))
+                options.push({ benchId: `m${m}`, personId: `w${w}`, minutes: 2 + rng.int(9) })
+          return { id: `j${j}o${k}`, jobId: `j${j}`, name: `j${j}o${k}`, kind: 'x', predecessors: k ? [`j${j}o${k - 1}`] : [], options }
+        }),
+      ).flat(),
+    }
+  }
+  it('when such a shop is planned again unchanged, then no step moves or shifts unless the lateness drops (50 shops)', () => {
+    // The core times a step right after what precedes it in its sequences; a gap it leaves that a later step fits into would be
+    // filled by the re-plan, shifting steps at the same lateness (found on 5 of 200 such shops before the plan was left-justified).
+    const shifted: number[] = []
+    for (let seed = 1; seed <= 50; seed++) {
+      const problem = openShop(seed)
+      const first = solve(problem, { seed: 1, timeLimitMs: 20_000, maxIterations: 200 }, { clock })
+      const again: Problem = { ...problem, previous: asPrevious(first) }
+      const plan = solve(again, { seed: 2, timeLimitMs: 20_000, maxIterations: 200, stability: 'small-changes' }, { clock })
+      expect(validatePlan(again, plan)).toEqual([])
+      expect(plan.score.weightedTardiness).toBeLessThanOrEqual(first.score.weightedTardiness)
+      if (plan.score.weightedTardiness === first.score.weightedTardiness && changes(first, plan) > 0) shifted.push(seed)
+    }
+    expect(shifted).toEqual([])
   })
 })

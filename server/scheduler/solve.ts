@@ -268,7 +268,7 @@ function leftJustify(c: Compiled, option: Int32Array, start0: Int32Array, end0: 
   const n = c.n,
     now = c.problem.now
   const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => start0[a]! - start0[b]! || a - b)
-  const busy = new Map<string, [number, number][]>() // 'b3' / 'p1' → booked intervals, sorted by start
+  const busy = new Map<string, [number, number][]>() // 'b3' / 'p1' → intervals booked so far (in no particular order)
   const out = new Float64Array(n),
     done = new Uint8Array(n)
   for (const i of order) {
@@ -276,7 +276,7 @@ function leftJustify(c: Compiled, option: Int32Array, start0: Int32Array, end0: 
     const dur = end0[i]! - start0[i]!
     let t = Math.max(0, c.jobs[c.jobOf[i]!]!.release - now)
     for (const q of c.preds[i]!) t = Math.max(t, done[q] ? out[q]! + (end0[q]! - start0[q]!) : end0[q]!)
-    const lists = [busy.get(`b${o.bench}`) ?? [], ...(o.person >= 0 ? [busy.get(`p${o.person}`) ?? []] : [])]
+    const lists = [`b${o.bench}`, ...(o.person >= 0 ? [`p${o.person}`] : [])].map((key) => busy.get(key) ?? busy.set(key, []).get(key)!)
     for (let moved = true; moved;) {
       moved = false
       for (const list of lists)
@@ -289,10 +289,7 @@ function leftJustify(c: Compiled, option: Int32Array, start0: Int32Array, end0: 
     if (t > start0[i]!) t = start0[i]! // cannot happen (see fromPair); the core's own start is feasible
     out[i] = t
     done[i] = 1
-    for (const key of [`b${o.bench}`, ...(o.person >= 0 ? [`p${o.person}`] : [])]) {
-      const list = busy.get(key) ?? busy.set(key, []).get(key)!
-      list.push([t, t + dur])
-    }
+    for (const list of lists) list.push([t, t + dur])
   }
   return out
 }

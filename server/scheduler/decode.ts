@@ -251,19 +251,65 @@ export interface Decoded {
   readyAt?: Int32Array
 }
 
-/** Earliest start at or after t on option `o` that avoids busy bench and person time; null past the horizon. */
-function fit(
-  o: CompiledOption,
-  t: number,
-  benches: Timeline[],
-  people: Timeline[],
-  limit = Infinity,
-): { segs: Interval[]; blockedBy: number; blockedOn: Why } | null | undefined {
+/** Index of the first window at or after i ending after t (windows sorted): a few steps, or a long jump by doubling and halving. */
+function windowAfter(win: Interval[], i: number, t: number): number {
+  const n = win.length
+  if (i >= n || win[i]!.end > t) return i
+  let lo = i + 1,
+    hi = lo,
+    step = 1
+  while (hi < n && win[hi]!.end <= t) {
+    lo = hi + 1
+    step <<= 1
+    hi = lo + step
+  }
+  if (hi > n) hi = n
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1
+    if (win[mid]!.end > t) hi = mid
+    else lo = mid + 1
+  }
+  return lo
+}
+
+/** The same for a busy list's sorted ends. */
+function blockAfter(ends: number[], i: number, t: number): number {
+  const n = ends.length
+  if (i >= n || ends[i]! > t) return i
+  let lo = i + 1,
+    hi = lo,
+    step = 1
+  while (hi < n && ends[hi]! <= t) {
+    lo = hi + 1
+    step <<= 1
+    hi = lo + step
+  }
+  if (hi > n) hi = n
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1
+    if (ends[mid]! > t) hi = mid
+    else lo = mid + 1
+  }
+  return lo
+}
+
+/** Where the last successful `fit` starts, and what held it back (set by `fit`, so trying an option allocates nothing). */
+let fitStart = 0,
+  fitBlockedBy = -1,
+  fitBlockedOn: Why = Why.WorkingTime
+
+/**
+ * Earliest start at or after t on option `o` that avoids busy bench and person time: returns the end (the start and what held it
+ * back in fitStart, fitBlockedBy, fitBlockedOn), or Infinity past the horizon or when it cannot end by `limit` (another option
+ * already ends by then). The work's segments are those of walkWorkingTime(o.windows, fitStart, o.minutes).
+ */
+function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline[], limit = Infinity): number {
   let blockedBy = -1
   let blockedOn: Why = Why.WorkingTime
   const bt = o.bench >= 0 ? benches[o.bench]! : null
   const pt = o.person >= 0 ? people[o.person]! : null
   const win = o.windows
+  const minutes = o.minutes
   let w: Interval | undefined
   // t only grows here: the window and the bench's and person's busy blocks are followed from where they were, not searched again.
   let wi = firstEndingAfter(win, t)
@@ -277,13 +323,13 @@ function fit(
     // Skip to a moment when the pair works and neither is busy, then check the whole stretch of work.
     for (;;) {
       // Cannot finish by `limit` any more: another option is already at least as good.
-      if (t + o.minutes > limit) return undefined
-      while (wi < win.length && win[wi]!.end <= t) wi++
+      if (t + minutes > limit) return Infinity
+      wi = windowAfter(win, wi, t)
       w = win[wi]
-      if (!w) return null
+      if (!w) return Infinity
       if (w.start > t) t = w.start
       if (bEnds) {
-        while (bi < bEnds.length && bEnds[bi]! <= t) bi++
+        bi = blockAfter(bEnds, bi, t)
         if (bi < bEnds.length && bStarts![bi]! <= t) {
           t = bEnds[bi]!
           blockedBy = bt!.owners[bi]!
@@ -292,7 +338,7 @@ function fit(
         }
       }
       if (pEnds) {
-        while (pi < pEnds.length && pEnds[pi]! <= t) pi++
+        pi = blockAfter(pEnds, pi, t)
         if (pi < pEnds.length && pStarts![pi]! <= t) {
           t = pEnds[pi]!
           blockedBy = pt!.owners[pi]!
@@ -302,11 +348,11 @@ function fit(
       }
       break
     }
-    if (o.minutes > 0) {
+    if (minutes > 0) {
       // The work's first stretch runs at least to the end of this window or of the work: busy time starting before that is in
       // the way, found without walking the calendar (the same block the walk's first segment would meet: the first one ending
       // after t, which starts after t).
-      const fe = Math.min(w.end, t + o.minutes)
+      const fe = Math.min(w.end, t + minutes)
       if (bEnds && bi < bEnds.length && bStarts![bi]! < fe) {
         t = bEnds[bi]!
         blockedBy = bt!.owners[bi]!
@@ -320,31 +366,72 @@ function fit(
         continue
       }
     }
-    const segs = walkWorkingTime(win, t, o.minutes)
-    if (!segs) return null
-    let pushTo = -Infinity
-    for (const s of segs) {
-      if (s.end <= s.start) continue
-      if (bt) {
-        const k = bt.overlap(s.start, s.end)
-        if (k >= 0) {
-          pushTo = bt.ends[k]!
-          blockedBy = bt.owners[k]!
-          blockedOn = Why.Bench
-          break
+    // Walk the work through the windows from t; each stretch (touching windows make one) must meet no busy time of the bench,
+    // then of the person — the first stretch that does pushes t to the end of that busy block.
+    let left = minutes,
+      k = wi,
+      at = t,
+      s0 = 0,
+      e0 = t,
+      open = false,
+      pushTo = -Infinity,
+      bj = bi,
+      pj = pi
+    for (;;) {
+      // The next window's share of the work joins the open stretch when it touches it; otherwise the open stretch is checked.
+      let ns = 0,
+        ne = 0
+      const last = left <= 0
+      if (!last) {
+        const ww = win[k]
+        if (!ww) return Infinity // the windows run out before the work is done
+        ns = at > ww.start ? at : ww.start
+        ne = Math.min(ww.end, ns + left)
+        left -= ne - ns
+        at = ne
+        k++
+        if (open && e0 === ns) {
+          e0 = ne
+          continue
+        }
+        if (!open) {
+          s0 = ns
+          e0 = ne
+          open = true
+          continue
         }
       }
-      if (pt) {
-        const k = pt.overlap(s.start, s.end)
-        if (k >= 0) {
-          pushTo = pt.ends[k]!
-          blockedBy = pt.owners[k]!
-          blockedOn = Why.Person
-          break
+      if (!open) break // no work to do (0 minutes)
+      if (e0 > s0) {
+        if (bEnds) {
+          bj = blockAfter(bEnds, bj, s0)
+          if (bj < bEnds.length && bStarts![bj]! < e0) {
+            pushTo = bEnds[bj]!
+            blockedBy = bt!.owners[bj]!
+            blockedOn = Why.Bench
+            break
+          }
+        }
+        if (pEnds) {
+          pj = blockAfter(pEnds, pj, s0)
+          if (pj < pEnds.length && pStarts![pj]! < e0) {
+            pushTo = pEnds[pj]!
+            blockedBy = pt!.owners[pj]!
+            blockedOn = Why.Person
+            break
+          }
         }
       }
+      if (last) break
+      s0 = ns
+      e0 = ne
     }
-    if (pushTo === -Infinity) return { segs, blockedBy, blockedOn }
+    if (pushTo === -Infinity) {
+      fitStart = t
+      fitBlockedBy = blockedBy
+      fitBlockedOn = blockedOn
+      return open ? e0 : t
+    }
     t = pushTo
   }
 }
@@ -535,23 +622,26 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?
     } else {
       const opts = c.options[i]!
       const forced = choice[i]!
-      let best: ReturnType<typeof fit> = null,
-        bestK = -1,
-        bestEnd = Infinity
+      let bestK = -1,
+        bestEnd = Infinity,
+        bestStart = 0,
+        bestBlockedBy = -1,
+        bestBlockedOn: Why = Why.WorkingTime
       for (let k = 0; k < opts.length; k++) {
         if (forced >= 0 && k !== forced) continue
-        const r = fit(opts[k]!, est, benches, people, bestEnd)
-        if (!r) continue
-        const e = r.segs[r.segs.length - 1]!.end
+        const e = fit(opts[k]!, est, benches, people, bestEnd)
+        if (e === Infinity) continue
         const better =
           e < bestEnd || (e === bestEnd && (k === c.previousOption[i] || (bestK !== c.previousOption[i] && opts[k]!.minutes < opts[bestK]!.minutes)))
         if (better) {
-          best = r
           bestK = k
           bestEnd = e
+          bestStart = fitStart
+          bestBlockedBy = fitBlockedBy
+          bestBlockedOn = fitBlockedOn
         }
       }
-      if (!best) {
+      if (bestK < 0) {
         if (overflow < 0) overflow = i
         const d = opts[0]?.minutes ?? 0
         start[i] = est
@@ -562,7 +652,8 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?
         blocker[i] = blk
       } else {
         const o = opts[bestK]!
-        const segs = best.segs
+        // Only the chosen option's segments are built (fit checked them without keeping them).
+        const segs = walkWorkingTime(o.windows, bestStart, o.minutes)!
         const s0 = segs[0]!.start
         start[i] = s0
         end[i] = bestEnd
@@ -574,8 +665,8 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?
           if (o.person >= 0) people[o.person]!.add(g.start, g.end, i)
         }
         if (s0 > est) {
-          why[i] = best.blockedBy >= 0 ? best.blockedOn : Why.WorkingTime
-          blocker[i] = best.blockedBy
+          why[i] = bestBlockedBy >= 0 ? bestBlockedOn : Why.WorkingTime
+          blocker[i] = bestBlockedBy
         } else {
           why[i] = w
           blocker[i] = blk

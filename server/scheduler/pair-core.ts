@@ -1245,9 +1245,13 @@ export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution
     } else tabuOpt[opt[u]!] = ten
   }
 
+  // The clock is read every eighth iteration, or sooner when iterations are dear (a workshop's weigh hundreds of candidates
+  // each, and eight of them overran a stage's share of a 2 s budget by up to half a second).
+  let evaluationsAtCheck = 0
   const stopNow = (): boolean => {
     if (iter >= maxIter) return true
-    if ((iter & 7) === 0) {
+    if ((iter & 7) === 0 || evaluations - evaluationsAtCheck >= 200) {
+      evaluationsAtCheck = evaluations
       const now = settings.clock()
       if (now >= settings.deadline) return true
       if (settings.shouldStop?.()) return true

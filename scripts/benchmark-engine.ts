@@ -199,7 +199,7 @@ function tenByTen(): { name: string; file: string; best_known_twt: number }[] {
       const tail = work.map((w, j) => `0 ${Math.floor((f * w) / 10)} ${j < 0.2 * n ? 4 : j < 0.8 * n ? 2 : 1}`)
       const file = `${base}-f${f}.twt`
       writeFileSync(join(outDir, file), [lines[0]!.trim(), ...lines.slice(1, 1 + n).map((l) => l.trim()), ...tail].join('\n') + '\n')
-      out.push({ name: `${base}-f${f}`, file, best_known_twt: bests[k] })
+      out.push({ name: `${base}-f${f}`, file, best_known_twt: bests[k]! })
     })
   }
   return out

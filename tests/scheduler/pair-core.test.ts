@@ -1,5 +1,5 @@
-// Due-date job shops and shops with a machine and a worker per step: tiny cases against exhaustive enumeration, kit cases
-// through the kit's independent checkers, and the solve CLI for every format.
+// Due-date job shops and shops with a machine and a worker per step: tiny cases against exhaustive enumeration and the HiGHS
+// MIP, small ones against the MIP, kit cases through the kit's independent checkers, and the solve CLI for every format.
 import { describe, it, expect } from 'vitest'
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs'
 import { spawnSync } from 'node:child_process'
@@ -9,6 +9,7 @@ import { fileURLToPath } from 'node:url'
 import { solve, validatePlan, type Problem } from '../../server/scheduler/index.ts'
 import { parseFjw, parseTwt } from '../../server/scheduler/formats.ts'
 import { createRng } from '../../server/scheduler/random.ts'
+import { solveChainShopMip } from '../../server/scheduler/reference/mip.ts'
 import { benchDir, requireKit, toolsDir as tools } from '../setup/kit.ts'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
@@ -156,6 +157,66 @@ describe('due dates and workers on tiny shops (against exhaustive enumeration)',
       const plan = solve(problem, { seed: 1, timeLimitMs: 20_000, maxIterations: 3000, objective: ['makespan'] }, { clock })
       expect(validatePlan(problem, plan)).toEqual([])
       expect(plan.score.makespan).toBe(bruteForce(t, 'makespan'))
+    })
+  }
+})
+
+describe('due dates and workers on small shops (against the HiGHS MIP)', () => {
+  // The disjunctive big-M MIP (reference/mip.ts, solved by HiGHS, proved optimal) as a second reference written apart from the
+  // engine: on the tiny shops it must agree with the enumeration, and on shops too big to enumerate the engine must reach it.
+  for (let seed = 1; seed <= 3; seed++) {
+    it(`when tiny shop pair #${seed} is modelled as a MIP, then HiGHS proves the enumerated optima`, async () => {
+      const twt = randomTwt(seed),
+        fjw = randomFjw(seed)
+      const a = await solveChainShopMip(twt, 'twt', 30)
+      const b = await solveChainShopMip(fjw, 'makespan', 30)
+      expect([a.optimal, b.optimal]).toEqual([true, true])
+      expect([a.value, b.value]).toEqual([bruteForce(twt, 'twt'), bruteForce(fjw, 'makespan')])
+    })
+  }
+  for (let seed = 11; seed <= 13; seed++) {
+    it(`when due-date job shop #${seed} (5 jobs × 4 machines) is solved, then its weighted tardiness is the MIP optimum`, async () => {
+      const rng = createRng(seed)
+      const t = {
+        machines: 4,
+        workers: 0,
+        jobs: Array.from({ length: 5 }, (_, jj) => {
+          const order = [0, 1, 2, 3].sort(() => rng.next() - 0.5)
+          const steps = order.map((m) => [[m, -1, 1 + rng.int(9)]] as [number, number, number][])
+          const total = steps.reduce((a, st) => a + st[0]![2], 0)
+          return { due: Math.floor(total * 1.3), weight: [4, 2, 2, 2, 1][jj]!, steps }
+        }),
+      }
+      const problem = toProblem(t)
+      const plan = solve(problem, { seed: 1, timeLimitMs: 20_000, maxIterations: 5000, objective: ['weightedTardiness', 'makespan'] }, { clock })
+      expect(validatePlan(problem, plan)).toEqual([])
+      const mip = await solveChainShopMip(t, 'twt', 60)
+      expect(mip.optimal).toBe(true)
+      expect(mip.value).toBeGreaterThan(0) // a shop where some job must be late, so the optimum is not trivially 0
+      expect(plan.score.weightedTardiness).toBe(mip.value)
+    })
+    it(`when machine-and-worker shop #${seed} (4 jobs × 2 steps, 3 machines, 2 workers) is solved, then its makespan is the MIP optimum`, async () => {
+      const rng = createRng(seed)
+      const t = {
+        machines: 3,
+        workers: 2,
+        jobs: Array.from({ length: 4 }, () => ({
+          due: 0,
+          weight: 1,
+          steps: Array.from({ length: 2 }, () => {
+            const opts: [number, number, number][] = []
+            for (let m = 0; m < 3; m++) for (let w = 0; w < 2; w++) if (rng.next() < 0.35) opts.push([m, w, 2 + rng.int(8)])
+            if (opts.length === 0) opts.push([rng.int(3), rng.int(2), 2 + rng.int(8)])
+            return opts
+          }),
+        })),
+      }
+      const problem = toProblem(t)
+      const plan = solve(problem, { seed: 1, timeLimitMs: 20_000, maxIterations: 5000, objective: ['makespan'] }, { clock })
+      expect(validatePlan(problem, plan)).toEqual([])
+      const mip = await solveChainShopMip(t, 'makespan', 60)
+      expect(mip.optimal).toBe(true)
+      expect(plan.score.makespan).toBe(mip.value)
     })
   }
 })

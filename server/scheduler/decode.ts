@@ -9,6 +9,8 @@ export interface CompiledOption {
   person: number
   minutes: number
   windows: Interval[]
+  /** The windows' ends, in order (for the decoder's forward search over them). */
+  windowEnds: number[]
 }
 
 /** The problem indexed for fast decoding: only operations that are not done. */
@@ -51,15 +53,15 @@ export function compile(problem: Problem): Compiled {
   const opIndex = new Map(ops.map((o, i) => [o.id, i]))
   const horizonCap = (list: Interval[]): Interval[] =>
     list.filter((w) => w.start < problem.horizon).map((w) => ({ start: w.start, end: Math.min(w.end, problem.horizon) }))
-  const windowCache = new Map<string, Interval[]>()
-  const windowsFor = (bench: number, person: number): Interval[] => {
+  const windowCache = new Map<string, { windows: Interval[]; windowEnds: number[] }>()
+  const windowsFor = (bench: number, person: number): { windows: Interval[]; windowEnds: number[] } => {
     const key = `${bench}/${person}`
     let w = windowCache.get(key)
     if (!w) {
       const bw = bench >= 0 ? problem.benches[bench]!.available : null
       const pw = person >= 0 ? problem.people[person]!.available : null
-      w = bw && pw ? intersect(bw, pw) : (bw ?? pw ?? ALWAYS)
-      w = horizonCap(w)
+      const windows = horizonCap(bw && pw ? intersect(bw, pw) : (bw ?? pw ?? ALWAYS))
+      w = { windows, windowEnds: windows.map((x) => x.end) }
       windowCache.set(key, w)
     }
     return w
@@ -98,7 +100,7 @@ export function compile(problem: Problem): Compiled {
       const p = o.personId === null ? -1 : (personIdx.get(o.personId) ?? -1)
       // A plan names only the bench and the person, so a pair listed twice takes the minutes of its first listing (as the rule book reads it).
       const first = op.options.find((x) => x.benchId === o.benchId && x.personId === o.personId)!
-      return { bench: b, person: p, minutes: first.minutes, windows: windowsFor(b, p) }
+      return { bench: b, person: p, minutes: first.minutes, ...windowsFor(b, p) }
     })
     options.push(opts)
     if (op.fixed) {
@@ -106,7 +108,7 @@ export function compile(problem: Problem): Compiled {
       const b = f.benchId === null ? -1 : (benchIdx.get(f.benchId) ?? -1)
       const p = f.personId === null ? -1 : (personIdx.get(f.personId) ?? -1)
       const match = opts.find((o) => o.bench === b && o.person === p)
-      const option = match ?? { bench: b, person: p, minutes: opts[0]?.minutes ?? 0, windows: windowsFor(b, p) }
+      const option = match ?? { bench: b, person: p, minutes: opts[0]?.minutes ?? 0, ...windowsFor(b, p) }
       fixedAt.push({ option, start: f.start, ...(f.end !== undefined ? { end: f.end } : {}), benchId: f.benchId, personId: f.personId })
     } else fixedAt.push(null)
     const prev = problem.previous?.[op.id]
@@ -251,29 +253,11 @@ export interface Decoded {
   readyAt?: Int32Array
 }
 
-/** Index of the first window at or after i ending after t (windows sorted): a few steps, or a long jump by doubling and halving. */
-function windowAfter(win: Interval[], i: number, t: number): number {
-  const n = win.length
-  if (i >= n || win[i]!.end > t) return i
-  let lo = i + 1,
-    hi = lo,
-    step = 1
-  while (hi < n && win[hi]!.end <= t) {
-    lo = hi + 1
-    step <<= 1
-    hi = lo + step
-  }
-  if (hi > n) hi = n
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1
-    if (win[mid]!.end > t) hi = mid
-    else lo = mid + 1
-  }
-  return lo
-}
-
-/** The same for a busy list's sorted ends. */
-function blockAfter(ends: number[], i: number, t: number): number {
+/**
+ * Index of the first entry at or after i of a sorted list of ends (busy blocks', windows') that ends after t: a few steps, or a
+ * long jump by doubling and halving.
+ */
+function nextEndingAfter(ends: number[], i: number, t: number): number {
   const n = ends.length
   if (i >= n || ends[i]! > t) return i
   let lo = i + 1,
@@ -324,12 +308,12 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
     for (;;) {
       // Cannot finish by `limit` any more: another option is already at least as good.
       if (t + minutes > limit) return Infinity
-      wi = windowAfter(win, wi, t)
+      wi = nextEndingAfter(o.windowEnds, wi, t)
       w = win[wi]
       if (!w) return Infinity
       if (w.start > t) t = w.start
       if (bEnds) {
-        bi = blockAfter(bEnds, bi, t)
+        bi = nextEndingAfter(bEnds, bi, t)
         if (bi < bEnds.length && bStarts![bi]! <= t) {
           t = bEnds[bi]!
           blockedBy = bt!.owners[bi]!
@@ -338,7 +322,7 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
         }
       }
       if (pEnds) {
-        pi = blockAfter(pEnds, pi, t)
+        pi = nextEndingAfter(pEnds, pi, t)
         if (pi < pEnds.length && pStarts![pi]! <= t) {
           t = pEnds[pi]!
           blockedBy = pt!.owners[pi]!
@@ -404,7 +388,7 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
       if (!open) break // no work to do (0 minutes)
       if (e0 > s0) {
         if (bEnds) {
-          bj = blockAfter(bEnds, bj, s0)
+          bj = nextEndingAfter(bEnds, bj, s0)
           if (bj < bEnds.length && bStarts![bj]! < e0) {
             pushTo = bEnds[bj]!
             blockedBy = bt!.owners[bj]!
@@ -413,7 +397,7 @@ function fit(o: CompiledOption, t: number, benches: Timeline[], people: Timeline
           }
         }
         if (pEnds) {
-          pj = blockAfter(pEnds, pj, s0)
+          pj = nextEndingAfter(pEnds, pj, s0)
           if (pj < pEnds.length && pStarts![pj]! < e0) {
             pushTo = pEnds[pj]!
             blockedBy = pt!.owners[pj]!

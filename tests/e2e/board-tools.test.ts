@@ -58,14 +58,16 @@ const clock = (at: Date | string) => dayjs(at).tz(TZ).format('ddd D MMM HH:mm')
 describe("the manager's board tools", () => {
   it('when a job at risk is focused, then the toolbar names the days the timeline shows and marks no zoom; picking Week brings the week back', async () => {
     // A late job bag of our own, so the list is never empty: its last bench step booked two weeks ahead, promised two days before it ends.
-    // Done before anything reads the board, so no cached board hides it.
+    // Done before anything reads the board, so no cached board hides it. The booking walks from midnight (London) fourteen days on, so
+    // its hour starts a working day and cannot straddle an evening, whatever the hour the test runs (late on a Friday it did).
     const db = e2e.db.db
     const o = await openOrder(db, 1)
+    const midnight = dayjs().tz(TZ).startOf('day').add(14, 'day')
     const booked = await bookLastStepLate(db, {
       workshopId: await firstWorkshopId(db),
       orderId: o.id,
       bagId: o.bagId,
-      fromMinute: 14 * 1440,
+      fromMinute: Math.ceil((midnight.valueOf() - Date.now()) / 60_000),
       promised: (end) => new Date(end.getTime() - 2 * 86_400_000).toISOString().slice(0, 10),
     })
     const ctx = await e2e.newContext()
@@ -84,6 +86,7 @@ describe("the manager's board tools", () => {
     // Its one bar (an hour of working time, so inside one day) is all the timeline shows: that day, worked out here from the booking,
     // named by weekday as no zoom's label is; and no zoom is marked.
     const day = dayjs(booked.start).tz(TZ)
+    expect(dayjs(booked.end).tz(TZ).format('YYYY-MM-DD'), 'the booked hour lies inside one day').toBe(day.format('YYYY-MM-DD'))
     const expected = `W${String(day.isoWeek()).padStart(2, '0')} · ${day.format('dddd D MMMM YYYY')}`
     await manager.waitForFunction((x) => document.querySelector('[data-test=board-range]')?.textContent?.trim() === x, expected)
     expect(expected).not.toBe(weekLabel)

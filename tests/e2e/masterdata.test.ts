@@ -76,7 +76,8 @@ describe('master-data screens as the owner', () => {
   it("when the manager adds the bank holidays of the year after next, then the eight days of England and Wales' standing rules are listed as closures", async () => {
     // Beyond the demo's own closures (which reach about six months ahead), so none is skipped; the rules give eight days a year
     // (New Year's Day, Good Friday, Easter Monday, two May Mondays, August's last Monday, Christmas Day, Boxing Day).
-    const year = new Date().getFullYear() + 2
+    // The year as the browser's London clock has it (the picker's years are counted from it), not this machine's zone's.
+    const year = Number(new Intl.DateTimeFormat('en-GB', { timeZone: 'Europe/London', year: 'numeric' }).format(new Date())) + 2
     await page.goto('/calendar')
     const box = page.locator('[data-test=bank-holidays]')
     await box.locator('[data-test=bank-holidays-year]').click()

@@ -9,6 +9,7 @@ import { Realtime } from './realtime/hub'
 import { startDigestTimer } from './mail/digest-timer'
 import { createAppJobs } from './jobs/index'
 import { createHttpServer } from './lib/tls'
+import { closePlanner, prewarmPlanner } from './scheduler/run-in-worker'
 
 export async function startServer(config: Config) {
   const { db, pool } = createDb(config.DATABASE_URL)
@@ -28,6 +29,8 @@ export async function startServer(config: Config) {
     http.once('error', reject)
     http.listen(config.PORT, config.HOST, () => resolve())
   })
+  // A planning worker loaded and warmed up now, so the manager's first run starts at once (see run-in-worker.ts).
+  prewarmPlanner()
   const address = http.address()
   const port = typeof address === 'object' && address ? address.port : config.PORT
   return {
@@ -41,6 +44,7 @@ export async function startServer(config: Config) {
       await jobs.stop()
       deps.mailer?.close()
       await realtime.close()
+      await closePlanner()
       io.close()
       // Requests in flight get a few seconds to finish; then remaining connections are cut so shutdown never hangs.
       const cut = setTimeout(() => http.closeAllConnections(), 3000)

@@ -1,11 +1,14 @@
-// The engine in a worker thread: a valid plan comes back, abort returns the best so far, bad input rejects.
-import { describe, it, expect } from 'vitest'
-import { runInWorker } from '../../server/scheduler/run-in-worker.ts'
+// The engine in a worker thread: a valid plan comes back, abort returns the best so far, bad input rejects; a worker that
+// answered is kept for the next run, and a warmed-up one is taken first.
+import { afterAll, describe, it, expect } from 'vitest'
+import { closePlanner, plannerWorkers, prewarmPlanner, runInWorker } from '../../server/scheduler/run-in-worker.ts'
 import { generateWorkshop } from '../../server/scheduler/generate.ts'
-import { SchedulingInputError, validatePlan } from '../../server/scheduler/index.ts'
+import { SchedulingInputError, solve, validatePlan } from '../../server/scheduler/index.ts'
 import { makeOperation, makeProblem } from './builders.ts'
 
 describe('runInWorker', () => {
+  afterAll(closePlanner)
+
   it('when a workshop is planned in a worker, then a valid plan comes back with progress on the way, each report naming its stage', async () => {
     const problem = generateWorkshop({ seed: 5, jobs: 15 })
     const stages: (string | undefined)[] = []
@@ -55,5 +58,47 @@ describe('runInWorker', () => {
     // A problem that cannot be cloned into the worker's shape breaks the solve inside the worker.
     const broken = { ...problem, operations: null } as unknown as typeof problem
     await expect(runInWorker(broken, { seed: 1, timeLimitMs: 100 })).rejects.toBeInstanceOf(Error)
+  })
+
+  it('when runs follow each other, then the worker the first left idle answers the next (no new thread), with the same plan as a fresh one', async () => {
+    await closePlanner()
+    const problem = generateWorkshop({ seed: 8, jobs: 12 })
+    // No search (the first plan only), so the plan depends on the problem and seed alone: the engine run here in this thread is
+    // the reference the workers' answers must equal.
+    const options = { seed: 3, timeLimitMs: 10_000, maxIterations: 0 }
+    const here = solve(problem, options)
+    const before = plannerWorkers()
+    const first = await runInWorker(problem, options)
+    const afterFirst = plannerWorkers()
+    expect(afterFirst.spawned - before.spawned).toBe(1)
+    expect(afterFirst.idle).toBe(1)
+    const second = await runInWorker(problem, options)
+    const afterSecond = plannerWorkers()
+    expect(afterSecond.spawned).toBe(afterFirst.spawned)
+    expect(afterSecond.reused - afterFirst.reused).toBe(1)
+    expect(first.operations).toEqual(here.operations)
+    expect(second.operations).toEqual(here.operations)
+    // A run refused for bad input is an answer too: the worker stays for the next run.
+    const bad = makeProblem({ operations: [makeOperation({ id: 'a', jobId: 'j', options: [] })] })
+    await expect(runInWorker(bad, options)).rejects.toBeInstanceOf(SchedulingInputError)
+    expect(plannerWorkers()).toMatchObject({ spawned: afterFirst.spawned, idle: 1 })
+  })
+
+  it('when the planner is warmed up, then one worker waits idle and the next run takes it instead of starting a thread', async () => {
+    await closePlanner()
+    prewarmPlanner()
+    prewarmPlanner() // a second call while one is warming starts no other
+    const before = plannerWorkers()
+    await expect.poll(() => plannerWorkers().idle, { timeout: 30_000, interval: 50 }).toBe(1)
+    expect(plannerWorkers().spawned).toBe(before.spawned)
+    const problem = generateWorkshop({ seed: 9, jobs: 10 })
+    const plan = await runInWorker(problem, { seed: 1, timeLimitMs: 200 })
+    expect(validatePlan(problem, plan)).toEqual([])
+    expect(plannerWorkers()).toMatchObject({ spawned: before.spawned, reused: before.reused + 1, idle: 1 })
+    // Closed (as the server does on shutdown), nothing waits; the next run starts a thread of its own.
+    await closePlanner()
+    expect(plannerWorkers().idle).toBe(0)
+    await runInWorker(problem, { seed: 1, timeLimitMs: 100 })
+    expect(plannerWorkers().spawned).toBe(before.spawned + 1)
   })
 })

@@ -5,6 +5,7 @@ import { createRequire } from 'node:module'
 import { pathToFileURL } from 'node:url'
 import { SchedulingInputError, type Plan, type Problem, type SolveOptions, type SolveProgress, type SchedulingInputErrorCode } from './model.ts'
 import type { WorkerReply, WorkerRequest } from './worker.ts'
+import { WARM_UP_MS } from './warm.ts'
 
 /** tsx's loader API as an absolute URL, so the worker finds it whatever the working directory. */
 const tsxApi = (): string =>
@@ -18,8 +19,6 @@ const tsxApi = (): string =>
 const ABORT_GRACE_MS = 2000
 /** Workers kept between runs (one: runs are minutes apart, and each holds its heap). */
 const MAX_IDLE = 1
-/** The warm-up solve's budget: enough for every stage of the search to run. */
-const WARM_MS = 400
 
 const idle: Worker[] = []
 let warming: Worker | null = null
@@ -79,7 +78,7 @@ export function prewarmPlanner(): void {
     release(w)
   }
   w.on('message', onMessage)
-  w.postMessage({ type: 'warm', ms: WARM_MS } satisfies WorkerRequest)
+  w.postMessage({ type: 'warm', ms: WARM_UP_MS } satisfies WorkerRequest)
 }
 
 /** Ends the idle and warming workers (server shutdown, tests). */

@@ -3,7 +3,7 @@
 // the engine already loaded and compiled by V8 (see run-in-worker.ts).
 import { parentPort } from 'node:worker_threads'
 import { solve } from './solve.ts'
-import { generateWorkshop } from './generate.ts'
+import { warmUpEngine } from './warm.ts'
 import type { Plan, Problem, Score, SolveOptions, SolveStage } from './model.ts'
 
 /** Message to the worker: a run to solve, or a short solve of a small generated workshop that only warms the engine up. */
@@ -43,8 +43,7 @@ function run(problem: Problem, options: SolveOptions, stop: SharedArrayBuffer): 
 parentPort!.on('message', (m: WorkerRequest) => {
   if (m.type === 'solve') run(m.problem, m.options, m.stop)
   else {
-    // Every stage of the search runs at least once, so V8 has compiled what a real run needs.
-    solve(generateWorkshop({ seed: 1, jobs: 40 }), { seed: 1, timeLimitMs: m.ms }, { clock: () => performance.now() })
+    warmUpEngine(m.ms)
     post({ type: 'warmed' })
   }
 })

@@ -22,6 +22,8 @@ const MAX_IDLE = 1
 
 const idle: Worker[] = []
 let warming: Worker | null = null
+/** Counts closePlanner calls: a worker acquired before the last one is ended when its run answers, not kept. */
+let epoch = 0
 const counts = { spawned: 0, reused: 0 }
 
 /** A new worker thread (under tsx or vitest the entry is TypeScript), dropped from the idle list whenever it ends. */
@@ -74,15 +76,17 @@ export function prewarmPlanner(): void {
   const onMessage = (m: WorkerReply): void => {
     if (m.type !== 'warmed') return
     w.off('message', onMessage)
-    if (warming === w) warming = null
+    if (warming !== w) return // closed while warming
+    warming = null
     release(w)
   }
   w.on('message', onMessage)
   w.postMessage({ type: 'warm', ms: WARM_UP_MS } satisfies WorkerRequest)
 }
 
-/** Ends the idle and warming workers (server shutdown, tests). */
+/** Ends the idle and warming workers (server shutdown, tests); a worker in a run is ended when the run answers. */
 export async function closePlanner(): Promise<void> {
+  epoch++
   const all = [...idle, ...(warming ? [warming] : [])]
   idle.length = 0
   warming = null
@@ -99,7 +103,7 @@ export function plannerWorkers(): { spawned: number; reused: number; idle: numbe
  * the promise resolves with the best plan found so far; if the worker does not answer within 2 s it is terminated and the
  * promise rejects with an AbortError (DOMException). An abort before the first plan exists also ends that way. Input errors
  * reject with SchedulingInputError; a crash of the worker rejects with its error. A worker that answered (a plan or an error
- * report) is kept for the next run; one that was terminated or crashed is not.
+ * report, an exception in the engine included) is kept for the next run; a thread that died or was terminated is not.
  */
 export function runInWorker(
   problem: Problem,
@@ -115,6 +119,7 @@ export function runInWorker(
     const stop = new SharedArrayBuffer(4)
     const flag = new Int32Array(stop)
     const worker = acquire()
+    const since = epoch
     let settled = false
     let grace: ReturnType<typeof setTimeout> | undefined
     /** Ends the run: the worker is kept when it answered, else terminated. */
@@ -126,7 +131,7 @@ export function runInWorker(
       worker.off('message', onMessage)
       worker.off('error', onError)
       worker.off('exit', onExit)
-      if (answered) release(worker)
+      if (answered && since === epoch) release(worker)
       else void worker.terminate()
       fn()
     }

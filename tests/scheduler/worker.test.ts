@@ -64,7 +64,7 @@ describe('runInWorker', () => {
     await closePlanner()
     const problem = generateWorkshop({ seed: 8, jobs: 12 })
     // No search (the first plan only), so the plan depends on the problem and seed alone: the engine run here in this thread is
-    // the reference the workers' answers must equal.
+    // the reference the workers' answers must equal. (With a search, which plans get decoded depends on the clock.)
     const options = { seed: 3, timeLimitMs: 10_000, maxIterations: 0 }
     const here = solve(problem, options)
     const before = plannerWorkers()
@@ -100,5 +100,15 @@ describe('runInWorker', () => {
     expect(plannerWorkers().idle).toBe(0)
     await runInWorker(problem, { seed: 1, timeLimitMs: 100 })
     expect(plannerWorkers().spawned).toBe(before.spawned + 1)
+  })
+
+  it('when the planner is closed while a run is under way, then the run still answers and its worker is ended, not kept idle', async () => {
+    await closePlanner()
+    const problem = generateWorkshop({ seed: 10, jobs: 10 })
+    const running = runInWorker(problem, { seed: 1, timeLimitMs: 400 })
+    await closePlanner()
+    const plan = await running
+    expect(validatePlan(problem, plan)).toEqual([])
+    expect(plannerWorkers().idle).toBe(0)
   })
 })

@@ -180,6 +180,7 @@ export type SchedulingInputErrorCode =
   | 'unknown-resource'
   | 'duplicate-id'
   | 'fixed-outside-working-time'
+  | 'fixed-not-an-option'
   | 'bad-duration'
   | 'beyond-horizon'
   | 'bad-calendar'

@@ -135,16 +135,6 @@ export function checkProblem(problem: Problem): void {
           message: `Job ${jn}: ${label(op)} is outside work, which takes no bench and no person, but is pinned to ${[f.benchId && `bench ${benches.get(f.benchId)?.name ?? f.benchId}`, f.personId && (people.get(f.personId)?.name ?? f.personId)].filter(Boolean).join(' and ')}`,
         })
       }
-      // Work at a bench is pinned to one of the bench and person pairs that can do it: a pair not among them has no minutes to
-      // plan it by (and no checker of the plan would accept it).
-      if (!outside && !op.options.some((o) => o.benchId === f.benchId && o.personId === f.personId)) {
-        const pair = [f.benchId && (benches.get(f.benchId)?.name ?? `bench ${f.benchId}`), f.personId && (people.get(f.personId)?.name ?? f.personId)]
-        throw new SchedulingInputError({
-          code: 'fixed-not-an-option',
-          ...where,
-          message: `Job ${jn}: ${label(op)} is pinned to ${pair.filter(Boolean).join(' and ') || 'no bench and no person'}, which is not one of the bench and person pairs that can do it; pin it to one of those or give the skill`,
-        })
-      }
       // Its end, when given, closes a stretch of working time (the last worked minute is before it), as its start opens one.
       const inside = (list: Interval[]): boolean =>
         list.some((w) => w.start <= f.start && f.start < w.end) && (f.end === undefined || list.some((w) => w.start < f.end! && f.end! <= w.end))

@@ -180,7 +180,6 @@ export type SchedulingInputErrorCode =
   | 'unknown-resource'
   | 'duplicate-id'
   | 'fixed-outside-working-time'
-  | 'fixed-not-an-option'
   | 'bad-duration'
   | 'beyond-horizon'
   | 'bad-calendar'

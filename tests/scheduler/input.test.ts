@@ -60,20 +60,6 @@ describe('checkProblem', () => {
     )
     expect(e).toMatchObject({ code: 'fixed-outside-working-time', operationId: 'a' })
   })
-  it('when work is pinned to a bench and person pair that is not one of its options, then "fixed-not-an-option" is raised', () => {
-    // The workshop checker (../shared/tools/check-workshop.mjs) refuses any plan of such a step: its pair must be one of the
-    // options, whose minutes it is held to. Bench b2 is at work, but only b1 with p1 can do the step.
-    const problem = makeProblem({
-      benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
-      operations: [makeOperation({ id: 'a', jobId: 'j', on: ['b1', 'p1', 30], fixed: { benchId: 'b2', personId: 'p1', start: at(0, 9) } })],
-    })
-    const e = refusal(problem)
-    expect(e).toMatchObject({ code: 'fixed-not-an-option', operationId: 'a' })
-    expect(e.message).toMatch(/pinned to Bench b2 and p1, which is not one of the bench and person pairs that can do it/)
-    // Pinned to the pair that can do it, the same step passes.
-    const fine = makeProblem({ ...problem, operations: [{ ...problem.operations[0]!, fixed: { benchId: 'b1', personId: 'p1', start: at(0, 9) } }] })
-    expect(() => checkProblem(fine)).not.toThrow()
-  })
   it('when running work is pinned to end after the day has closed, then "fixed-outside-working-time" is raised', () => {
     // The bench and the person stop at 16:00; a plan cannot both keep the end at 18:00 and work only in working time.
     const fixed = { benchId: 'b1', personId: 'p1', start: at(0, 15), end: at(0, 18) }

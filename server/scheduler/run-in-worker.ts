@@ -5,7 +5,6 @@ import { createRequire } from 'node:module'
 import { pathToFileURL } from 'node:url'
 import { SchedulingInputError, type Plan, type Problem, type SolveOptions, type SolveProgress, type SchedulingInputErrorCode } from './model.ts'
 import type { WorkerReply, WorkerRequest } from './worker.ts'
-import { WARM_UP_MS } from './warm.ts'
 
 /** tsx's loader API as an absolute URL, so the worker finds it whatever the working directory. */
 const tsxApi = (): string =>
@@ -57,7 +56,7 @@ function acquire(): Worker {
 
 /** A worker that answered its run goes back to the idle list (not keeping the process alive), or is ended when that is full. */
 function release(w: Worker): void {
-  if (idle.length < MAX_IDLE && !idle.includes(w)) {
+  if (idle.length < MAX_IDLE) {
     w.unref()
     idle.push(w)
   } else void w.terminate()
@@ -81,7 +80,7 @@ export function prewarmPlanner(): void {
     release(w)
   }
   w.on('message', onMessage)
-  w.postMessage({ type: 'warm', ms: WARM_UP_MS } satisfies WorkerRequest)
+  w.postMessage({ type: 'warm' } satisfies WorkerRequest)
 }
 
 /** Ends the idle and warming workers (server shutdown, tests); a worker in a run is ended when the run answers. */

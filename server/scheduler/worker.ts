@@ -7,7 +7,7 @@ import { warmUpEngine } from './warm.ts'
 import type { Plan, Problem, Score, SolveOptions, SolveStage } from './model.ts'
 
 /** Message to the worker: a run to solve, or a short solve of a small generated workshop that only warms the engine up. */
-export type WorkerRequest = { type: 'solve'; problem: Problem; options: SolveOptions; stop: SharedArrayBuffer } | { type: 'warm'; ms: number }
+export type WorkerRequest = { type: 'solve'; problem: Problem; options: SolveOptions; stop: SharedArrayBuffer } | { type: 'warm' }
 
 /** Message from the worker to its owner. */
 export type WorkerReply =
@@ -43,7 +43,7 @@ function run(problem: Problem, options: SolveOptions, stop: SharedArrayBuffer): 
 parentPort!.on('message', (m: WorkerRequest) => {
   if (m.type === 'solve') run(m.problem, m.options, m.stop)
   else {
-    warmUpEngine(m.ms)
+    warmUpEngine()
     post({ type: 'warmed' })
   }
 })

@@ -229,13 +229,30 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
     const workedMin = records.reduce((t, r) => t + ((r.endedAt ? new Date(r.endedAt).getTime() : now.getTime()) - new Date(r.startedAt).getTime()) / 60_000, 0)
     const remaining = (speed: number) => Math.max(5, Math.ceil(op.estimateMinutes / speed - workedMin))
     let options = operationOptions(meta, op.kindId, op.requiredLevel, remaining)
-    // Claimed, running or paused work stays with its person (and, when running, its bench).
-    if (op.claimedBy && ['claimed', 'running', 'paused'].includes(op.status)) options = options.filter((o) => o.personId === String(op.claimedBy))
     const running = op.status === 'running' ? records.find((r) => !r.endedAt) : undefined
-    if (running?.benchId) options = options.filter((o) => o.benchId === String(running.benchId))
+    // Claimed, running or paused work stays with its person (and, when running, its bench) — even when their skill record no
+    // longer covers it (a skill taken away or a level raised while the piece was in their hands): the work is theirs until they
+    // finish or hand it back, at their recorded speed for the kind (1 when none is left). A holder no longer on the staff list
+    // leaves it to anyone able.
+    const holder = op.claimedBy && ['claimed', 'running', 'paused'].includes(op.status) ? String(op.claimedBy) : null
+    const kept = holder !== null && meta.people.has(holder)
+    if (kept) {
+      const speed = skills.find((k) => k.personId === op.claimedBy && k.kindId === op.kindId)?.speed ?? 1
+      const own = (benchIds: string[]) => benchIds.map((benchId) => ({ benchId, personId: holder, minutes: remaining(speed) }))
+      const atBench = running?.benchId && meta.benches.has(String(running.benchId)) ? String(running.benchId) : null
+      const mine = options.filter((o) => o.personId === holder)
+      const there = mine.filter((o) => atBench === null || o.benchId === atBench)
+      if (there.length) options = there
+      else if (atBench !== null) options = own([atBench])
+      else {
+        // Any bench equipped for the kind of work (none left: the step has no option, and the planner says so).
+        const equipped = caps.filter((c) => c.kindId === op.kindId && meta.benches.has(String(c.benchId))).map((c) => String(c.benchId))
+        options = own([...new Set(equipped)])
+      }
+    }
     let fixed: EngineOperation['fixed']
     const pinAt = op.pinned && op.plannedStart && op.plannedBenchId && op.plannedPersonId ? clock.toMinute(op.plannedStart) : null
-    if (running && options[0]) {
+    if (running && kept && options[0]) {
       const o = options[0]
       const windows = intersect(benchModels.find((b) => b.id === o.benchId)!.available, personModels.find((p) => p.id === o.personId)!.available)
       const next = windows.find((x) => x.end > nowMin)

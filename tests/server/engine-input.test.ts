@@ -6,6 +6,9 @@ import { and, asc, count, eq, inArray, notInArray, sql } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
 import { expectCleanError, expectFieldError } from './helpers'
+import { benchId, extraSetters, freshReady, personIdOf, rid } from './bench-fixtures'
+import { loadPlanningData } from '../../server/planning/problem'
+import { waitForRun } from '../../server/planning/runs'
 
 let t: TestApp
 let manager: Agent
@@ -88,6 +91,98 @@ describe('impossible skills', () => {
     const patch = await manager.patch(`/api/job-bags/${step.bag_id}/operations/${step.id}`, { requiredLevel: 3, version: step.version })
     expect(patch.status, JSON.stringify(patch.body)).toBe(200)
     expectNamed(await planRun(), { number: step.number, id: step.bag_id }, step, 'no-option')
+  })
+})
+
+describe('work in someone’s hands when their skills change', () => {
+  /** A ready setting step the setter claims (and starts, when asked) at Setting bench A; her person, the bench and the step row. */
+  async function setterTakes(start: boolean) {
+    const setter = await signedIn(t.app, 'bench')
+    const op = await freshReady(t, 'setting', 'set')
+    const bench = await benchId(t, 'Setting bench A')
+    const person = await personIdOf(t, 'setter@wrenfield.test')
+    const claim = await setter.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: bench })
+    expect(claim.status, JSON.stringify(claim.body)).toBe(200)
+    if (start) {
+      const r = await setter.post(`/api/bench/operations/${op.id}/start`, { requestId: rid(), benchId: bench })
+      expect(r.status, JSON.stringify(r.body)).toBe(200)
+    }
+    const [row] = await t.db
+      .select({ kindId: s.operations.kindId, estimate: s.operations.estimateMinutes, level: s.operations.requiredLevel })
+      .from(s.operations)
+      .where(eq(s.operations.id, op.id))
+    return { op, bench, person, row: row! }
+  }
+  /**
+   * Replaces one person's skills through the API, as the manager's people screen does. A second setter (level 3) joins first:
+   * the demo has one setter, and other setting steps must still have someone.
+   */
+  async function changeSkills(
+    personId: number,
+    change: (skills: { kindId: number; level: number; speed: number }[]) => { kindId: number; level: number; speed: number }[],
+  ) {
+    await extraSetters(t, 1, 'cover')
+    const me = (await manager.get('/api/people')).body.find((p: { id: number }) => p.id === personId)
+    const r = await manager.patch(`/api/people/${personId}`, { skills: change(me.skills), version: me.version })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+  }
+  async function plansThrough() {
+    const r = await planRun()
+    expect(r.status, JSON.stringify(r.body)).toBe(202)
+    const done = await waitForRun(t.db, r.body.id)
+    expect(done?.status, JSON.stringify(done)).toBe('done')
+  }
+
+  it('when the setter has started a step and her setting skill is then taken away, then the planner still plans and keeps the step with her at her bench', async () => {
+    const { op, bench, person, row } = await setterTakes(true)
+    await changeSkills(person, (skills) => skills.filter((k) => k.kindId !== row.kindId))
+    await plansThrough()
+    const data = await loadPlanningData(t.db, 1, new Date())
+    const step = data.problem.operations.find((o) => o.id === String(op.id))!
+    // Worked by hand: no skill record is left, so her speed counts as 1; she started seconds ago, so the minutes left are the
+    // estimate itself (ceil(estimate − a fraction of a minute)), and only her bench and she can carry on.
+    expect(step.options).toEqual([{ benchId: String(bench), personId: String(person), minutes: row.estimate }])
+    expect(step.fixed).toMatchObject({ benchId: String(bench), personId: String(person) })
+  })
+
+  it('when the setter has claimed a step and her level is then lowered below the step’s, then the claim holds: her on every bench equipped for setting', async () => {
+    const { op, person, row } = await setterTakes(false)
+    expect(row.level, 'the demo’s stone-setting step asks for more than level 1').toBeGreaterThan(1)
+    let speed = 0
+    await changeSkills(person, (skills) =>
+      skills.map((k) => {
+        if (k.kindId !== row.kindId) return k
+        speed = k.speed
+        return { ...k, level: row.level - 1 }
+      }),
+    )
+    expect(speed).toBeGreaterThan(0)
+    await plansThrough()
+    const equipped = await t.db
+      .select({ id: s.benchCapabilities.benchId })
+      .from(s.benchCapabilities)
+      .innerJoin(s.benches, eq(s.benches.id, s.benchCapabilities.benchId))
+      .where(and(eq(s.benchCapabilities.kindId, row.kindId), eq(s.benches.active, true)))
+    const step = (await loadPlanningData(t.db, 1, new Date())).problem.operations.find((o) => o.id === String(op.id))!
+    // Not started, so nothing worked yet: her minutes are ceil(estimate / her recorded speed).
+    expect(step.options.map((o) => [o.benchId, o.personId, o.minutes]).sort()).toEqual(
+      equipped.map((b) => [String(b.id), String(person), Math.max(5, Math.ceil(row.estimate / speed))]).sort(),
+    )
+    expect(step.fixed).toBeUndefined()
+  })
+
+  it('when someone holding a claimed step is taken off the staff list, then the step goes back to everyone able and the planner plans', async () => {
+    const [gone] = await extraSetters(t, 1, 'leaving')
+    const op = await freshReady(t, 'setting', 'set')
+    const claim = await gone!.agent.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: await benchId(t, 'Setting bench A') })
+    expect(claim.status, JSON.stringify(claim.body)).toBe(200)
+    const me = (await manager.get('/api/people')).body.find((p: { id: number }) => p.id === gone!.personId)
+    expect((await manager.patch(`/api/people/${gone!.personId}`, { active: false, version: me.version })).status).toBe(200)
+    await plansThrough()
+    const step = (await loadPlanningData(t.db, 1, new Date())).problem.operations.find((o) => o.id === String(op.id))!
+    const people = new Set(step.options.map((o) => o.personId))
+    expect(people.has(String(gone!.personId))).toBe(false)
+    expect(people.size).toBeGreaterThan(0)
   })
 })
 

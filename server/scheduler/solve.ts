@@ -4,7 +4,7 @@ import { checkProblem } from './check.ts'
 import { compile, toPlan, assertWithinHorizon, scoreOfEnds, type Compiled, type Decoded, Why } from './decode.ts'
 import { solveGeneral } from './search.ts'
 import { solveShop, type ShopInstance } from './shop-core.ts'
-import { solvePairShop, TWT_TENURE_SCALE, type PairShop } from './pair-core.ts'
+import { EVEN_TARGETS, solvePairShop, TWT_TENURE_SCALE, type PairShop } from './pair-core.ts'
 import { validatePlan } from './validate.ts'
 
 const DEFAULT_OBJECTIVE: Objective[] = ['weightedTardiness', 'makespan', 'moves']
@@ -59,7 +59,7 @@ export function solve(problem: Problem, options: SolveOptions, hooks: SolveHooks
     const r = solvePairShop(pair, {
       seed: options.seed,
       objective: twt ? 'weightedTardiness' : 'makespan',
-      ...(twt ? { tenureScale: TWT_TENURE_SCALE } : {}),
+      ...(twt ? { tenureScale: TWT_TENURE_SCALE, evenTargets: EVEN_TARGETS } : {}),
       deadline,
       clock,
       ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}),

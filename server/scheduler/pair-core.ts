@@ -1,6 +1,7 @@
 // Tabu search on the disjunctive graph for calendar-free shops where each operation takes a machine and (optionally) a worker,
 // with a duration per (machine, worker) pair: minimises total weighted tardiness or makespan. Moves are evaluated exactly.
 import { createRng, type Rng } from './random.ts'
+import { freshCopies } from './fresh-copy.ts'
 
 /** A flattened shop: job chains of operations, each with (machine, worker, duration) options; worker -1 = none needed. */
 export interface PairShop {
@@ -162,10 +163,42 @@ export function pairLowerBound(s: PairShop): number {
   return lb
 }
 
-export function solvePairShop(s: PairShop, settings: PairSettings): PairSolution {
+const rngOf = createRng
+/** The search (see `fresh-copy.ts`: each call runs on a fresh copy of its code, which V8 then specialises on this call's shop). */
+export const solvePairShop = freshCopies(
+  searchOnce,
+  // What the search's code names outside itself. The random generator goes under a name of this module's own, which no module
+  // transform rewrites (an import's name may be).
+  { rngOf, FAR, M, W, REASSIGN_EVALUATED, TARGETS, RESTART_FRESH, RESTART_BEST, REASSIGN_KICKS, HOME_SLACK, pairLowerBound },
+  (copy) => {
+    // The copy must give exactly what the search itself gives on a small due-date shop (three jobs on two machines).
+    const shop: PairShop = {
+      n: 6,
+      machines: 2,
+      workers: 0,
+      jobs: 3,
+      jobOf: Int32Array.from([0, 0, 1, 1, 2, 2]),
+      jobPred: Int32Array.from([-1, 0, -1, 2, -1, 4]),
+      jobSucc: Int32Array.from([1, -1, 3, -1, 5, -1]),
+      optStart: Int32Array.from([0, 1, 2, 3, 4, 5, 6]),
+      optMachine: Int32Array.from([0, 1, 1, 0, 0, 1]),
+      optWorker: Int32Array.from([-1, -1, -1, -1, -1, -1]),
+      optDur: Int32Array.from([3, 2, 4, 1, 2, 3]),
+      release: new Int32Array(6),
+      due: Float64Array.from([4, 5, 6]),
+      weight: Float64Array.from([1, 2, 3]),
+    }
+    const settings: PairSettings = { seed: 7, objective: 'weightedTardiness', deadline: Infinity, clock: () => 0, maxIterations: 50 }
+    const a = copy(shop, settings),
+      b = searchOnce(shop, settings)
+    return a.weightedTardiness === b.weightedTardiness && a.iterations === b.iterations && a.start.join() === b.start.join()
+  },
+)
+
+function searchOnce(s: PairShop, settings: PairSettings): PairSolution {
   const t0 = settings.clock()
   const { n, jobs, jobOf, jobPred, jobSucc, optStart, optMachine, optWorker, optDur, release, due, weight } = s
-  const rng: Rng = createRng(settings.seed)
+  const rng: Rng = rngOf(settings.seed)
   const twtMode = settings.objective === 'weightedTardiness'
   const lastOf = new Int32Array(jobs).fill(-1)
   const lag = s.lag ?? new Int32Array(n)

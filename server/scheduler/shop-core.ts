@@ -1,5 +1,6 @@
 // Fast makespan core for calendar-free, person-free shops: tabu search on the disjunctive graph with critical-block and machine-reassignment moves.
 import { createRng, type Rng } from './random.ts'
+import { freshCopies } from './fresh-copy.ts'
 
 /** A flattened shop: operations in job chains, each with one or more (machine, duration) options. */
 export interface ShopInstance {
@@ -69,11 +70,36 @@ export function shopLowerBound(inst: ShopInstance): number {
 }
 
 /** Tabu search for minimum makespan; anytime, deterministic for a given seed and iteration count. */
-export function solveShop(inst: ShopInstance, settings: ShopSearchSettings): ShopSolution {
+const rngOf = createRng
+/** The search (see `fresh-copy.ts`: each call runs on a fresh copy of its code, which V8 then specialises on this call's shop). */
+export const solveShop = freshCopies(
+  searchOnce,
+  // What the search's code names outside itself; the random generator under a name of this module's own (see pair-core.ts).
+  { rngOf, shopLowerBound },
+  (copy) => {
+    // The copy must give exactly what the search itself gives on a small job shop (three jobs on two machines).
+    const inst: ShopInstance = {
+      n: 6,
+      m: 2,
+      jobs: 3,
+      jobPred: Int32Array.from([-1, 0, -1, 2, -1, 4]),
+      jobSucc: Int32Array.from([1, -1, 3, -1, 5, -1]),
+      optStart: Int32Array.from([0, 1, 2, 3, 4, 5, 6]),
+      optMachine: Int32Array.from([0, 1, 1, 0, 0, 1]),
+      optDur: Int32Array.from([3, 2, 4, 1, 2, 3]),
+    }
+    const settings: ShopSearchSettings = { seed: 7, deadline: Infinity, clock: () => 0, maxIterations: 50 }
+    const a = copy(inst, settings),
+      b = searchOnce(inst, settings)
+    return a.makespan === b.makespan && a.iterations === b.iterations && a.start.join() === b.start.join()
+  },
+)
+
+function searchOnce(inst: ShopInstance, settings: ShopSearchSettings): ShopSolution {
   const t0 = settings.clock()
   const { n, m, jobPred, jobSucc, optStart, optMachine, optDur } = inst
   const rel = inst.earliest ?? new Int32Array(n)
-  const rng: Rng = createRng(settings.seed)
+  const rng: Rng = rngOf(settings.seed)
   const lowerBound = shopLowerBound(inst)
 
   const mach = new Int32Array(n)

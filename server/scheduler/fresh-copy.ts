@@ -11,8 +11,8 @@
 /**
  * Returns a function that calls a fresh copy of `fn`. `outside` holds every name the function's text uses from its module (a copy
  * made from its text sees no module scope). Before the first copy is used, `check` runs with one copy and must return true; when
- * it throws or returns false (a module transform that renamed something, a missing name), every call uses `fn` itself; `copying()`
- * tells which.
+ * it throws or returns false (a module transform that renamed something, a missing name), every call uses `fn` itself; so does a
+ * call whose copy meets a name that is not there (a ReferenceError), and every call after it. `copying()` tells which.
  */
 export function freshCopies<F extends (...args: never[]) => unknown>(
   fn: F,
@@ -37,7 +37,16 @@ export function freshCopies<F extends (...args: never[]) => unknown>(
         usable = false
       }
     }
-    return (usable ? copy() : fn)(...args)
+    if (!usable) return fn(...args)
+    try {
+      return copy()(...args)
+    } catch (e) {
+      // A name the self-check did not reach (a branch it does not take) is missing from `outside`: the call is made again with
+      // the function itself (a search's deadline is absolute, so it gets what is left), and so is every call after it.
+      if (!(e instanceof ReferenceError)) throw e
+      usable = false
+      return fn(...args)
+    }
   }
   /** Whether calls run on copies (null until the first call). */
   return Object.assign(run, { copying: () => usable }) as unknown as F & { copying: () => boolean | null }

@@ -33,6 +33,18 @@ describe('fresh copies of a function', () => {
     expect(f.copying()).toBe(false)
   })
 
+  it('when a name is missing only on a branch the self-check does not take, then that call is made with the function itself (−2 + 40 = 38), and so are later ones', () => {
+    const onlyBelowZero = 40
+    function branchy(x: number): number {
+      return x < 0 ? x + onlyBelowZero : x
+    }
+    const f = freshCopies(branchy, {}, (copy) => copy(1) === 1)
+    expect(f(5)).toBe(5)
+    expect(f.copying()).toBe(true)
+    expect(f(-2)).toBe(38)
+    expect(f.copying()).toBe(false)
+  })
+
   it('when the self-check answers false, then the copies are not used', () => {
     const f = freshCopies(addOutside, { outsideName: 1000 }, (copy) => copy(1) === 41)
     expect(f(2)).toBe(42)

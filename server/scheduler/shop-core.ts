@@ -69,9 +69,11 @@ export function shopLowerBound(inst: ShopInstance): number {
   return lb
 }
 
-/** Tabu search for minimum makespan; anytime, deterministic for a given seed and iteration count. */
 const rngOf = createRng
-/** The search (see `fresh-copy.ts`: each call runs on a fresh copy of its code, which V8 then specialises on this call's shop). */
+/**
+ * Tabu search for minimum makespan; anytime, deterministic for a given seed and iteration count. Each call runs on a fresh copy
+ * of its code, which V8 then specialises on this call's shop (see `fresh-copy.ts`).
+ */
 export const solveShop = freshCopies(
   searchOnce,
   // What the search's code names outside itself; the random generator under a name of this module's own (see pair-core.ts).

@@ -20,6 +20,20 @@ export interface ServerToClientEvents {
   'plan:progress': (p: { runId: string } & RunProgress) => void
   /** A planner run ended with an error (or its instance went away for good): nothing was drafted. */
   'plan:failed': (p: { runId: string; error: string; seq?: number; origin?: string }) => void
+  /**
+   * A planner run ended without a draft and without an error: 'no-better' — nothing beat the live plan, which stays as it is
+   * (`note` words it; `best` and `live` are the two plans' weighted lateness and finish, in the engine's minutes); 'stopped' —
+   * the manager stopped it.
+   */
+  'plan:ended': (p: {
+    runId: string
+    outcome: 'no-better' | 'stopped'
+    note?: string
+    best?: { weightedTardiness: number; makespan: number }
+    live?: { weightedTardiness: number; makespan: number }
+    seq?: number
+    origin?: string
+  }) => void
   'masterdata:changed': (p: ChangePayload & { entity: string }) => void
   /** A file uploaded to (or removed from) an order or a job bag. */
   'file:added': (p: ChangePayload & { orderId: number | null; jobBagId: number | null }) => void

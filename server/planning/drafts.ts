@@ -1,7 +1,8 @@
-// Plan versions as records: drafts saved by a planner run, listed, read (typed assignments), compared, published (the
-// draft becomes the live plan, one transaction under the live plan's lock) and discarded.
+// Plan versions as records: drafts saved by a planner run, listed, read (typed assignments), compared (each change named by
+// job bag and step), published (the draft becomes the live plan, one transaction under the live plan's lock, its figures
+// stored from the plan as written) and discarded.
 import { describe, type RuleViolation } from '../../shared/domain/rules'
-import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
+import { workingMinutesBetween } from '../../shared/domain/working-time'
 import { and, desc, eq, inArray } from 'drizzle-orm'
 import type { Db, Trx, Tx } from '../db/client'
 import * as s from '../db/schema/index'
@@ -11,8 +12,8 @@ import { audit } from '../services/audit'
 import { dayjs } from '../lib/time'
 import type { Plan } from '../scheduler/model.ts'
 import { fromEnginePlan, fromStored, toStored, type Assignment, type Assignments } from './assignments'
-import { lockLivePlan, readLivePlan, writeAssignment } from './live-plan'
-import type { PlanningData } from './problem'
+import { latenessFigures, lockLivePlan, readLivePlan, storeLiveFigures, writeAssignment } from './live-plan'
+import { loadPlanningData, type PlanningData } from './problem'
 
 export async function listPlans(db: Db, workshopId: number) {
   const rows = await db
@@ -76,10 +77,10 @@ export function diffAssignments(from: Assignments, to: Assignments) {
 
 /**
  * What the changes buy, per job bag planned in both: pieces that finish earlier or later, and those among them whose lateness
- * (after the promised day) shrinks or grows.
+ * (after the promised day) shrinks or grows — lateness in working time, as the plans' figures count it (latenessFigures).
  */
-async function whatItBuys(db: Db, workshopId: number, base: Assignments, draft: Assignments) {
-  const [w] = await db.select({ tz: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, workshopId))
+async function whatItBuys(db: Db, workshopId: number, data: PlanningData, base: Assignments, draft: Assignments) {
+  const c = data.clock
   const ids = [...new Set([...base.keys(), ...draft.keys()])]
   const rows = ids.length
     ? await db
@@ -103,11 +104,13 @@ async function whatItBuys(db: Db, workshopId: number, base: Assignments, draft: 
     rows.map((r) => [
       r.bag,
       dayjs
-        .tz(`${r.promised ?? r.due} 00:00`, w?.tz ?? 'UTC')
+        .tz(`${r.promised ?? r.due} 00:00`, c.timeZone)
         .add(1, 'day')
         .valueOf(),
     ]),
   )
+  /** Working minutes from the promised moment to the finish (0 when not late). */
+  const lateBy = (finish: number, due: number) => (finish > due ? workingMinutesBetween(data.meta.open, c.toMinute(due), c.toMinute(finish)) : 0)
   let earlier = 0,
     later = 0,
     lessLate = 0,
@@ -118,24 +121,42 @@ async function whatItBuys(db: Db, workshopId: number, base: Assignments, draft: 
     if (a < b) earlier++
     else later++
     const due = dueOf.get(bag)!
-    const lb = Math.max(0, b - due),
-      la = Math.max(0, a - due)
+    const lb = lateBy(b, due),
+      la = lateBy(a, due)
     if (la < lb) lessLate++
     else if (la > lb) moreLate++
   }
   return { earlier, later, lessLate, moreLate }
 }
 
-/** A draft against the live plan (or any two versions). */
-export async function comparePlan(db: Db, workshopId: number, id: number, againstId?: number) {
+/** The job bag and name of some operations of the workshop, for listing changes as people know the work. */
+async function stepNames(db: Db, workshopId: number, ids: number[]) {
+  const rows = ids.length
+    ? await db
+        .select({ id: s.operations.id, name: s.operations.name, jobBagId: s.jobBags.id, jobBagNumber: s.jobBags.number })
+        .from(s.operations)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+        .where(and(inArray(s.operations.id, ids), eq(s.jobBags.workshopId, workshopId)))
+    : []
+  return new Map(rows.map(({ id, ...named }) => [id, named]))
+}
+
+/** A draft against the live plan as it stands now (or any two versions); each change names its job bag and step. */
+export async function comparePlan(db: Db, workshopId: number, id: number, againstId?: number, now = new Date()) {
   const draft = await readDraft(db, workshopId, id)
   const base = againstId ? await readDraft(db, workshopId, againstId) : (await readLivePlan(db, workshopId)).assignments
-  const moves = diffAssignments(base, draft)
+  const diff = diffAssignments(base, draft)
+  const named = await stepNames(
+    db,
+    workshopId,
+    diff.map((m) => m.operationId),
+  )
+  const moves = diff.map((m) => ({ ...m, ...named.get(m.operationId) }))
   return {
     planId: id,
     against: againstId ?? 'live',
     moves,
-    gains: await whatItBuys(db, workshopId, base, draft),
+    gains: await whatItBuys(db, workshopId, await loadPlanningData(db, workshopId, now), base, draft),
     counts: {
       bench: moves.filter((m) => m.change.includes('bench')).length,
       person: moves.filter((m) => m.change.includes('person')).length,
@@ -180,6 +201,8 @@ export async function publishDraft({ db, realtime }: Deps, actor: Actor, id: num
       const { pinned: _pinned, ...a } = assignments.get(op.id)!
       await writeAssignment(tx, a)
     }
+    // Its figures from the plan as written (open work only, read now), not as the planner run saw it.
+    await storeLiveFigures(tx, actor.workshopId)
     await audit(tx, actor, 'publish', 'plan', id, { number: p.number, replaced: live.number })
     return { id, number: p.number }
   })
@@ -233,10 +256,9 @@ export async function saveDraft(tx: Trx, actor: Actor, data: PlanningData, plan:
 
 function summarise(data: PlanningData, plan: Plan) {
   const c = data.clock
-  const late = plan.jobs.filter((j) => j.tardiness > 0).length
-  // Lateness as the workshop counts it: working time between the promised moment and the expected finish.
-  const dues = new Map(data.problem.jobs.map((j) => [j.id, j.due]))
-  const lateWorking = plan.jobs.filter((j) => j.tardiness > 0).map((j) => workingMinutesBetween(data.meta.open, dues.get(j.jobId)!, j.completion))
+  // Lateness as the workshop counts it (the live plan's figures are counted the same way): working time between the promised
+  // moment and the expected finish.
+  const late = latenessFigures(data, new Map(plan.jobs.map((j) => [j.jobId, j.completion])))
   return {
     weightedTardiness: plan.score.weightedTardiness,
     weightedTardinessHours: Math.round((plan.score.weightedTardiness / 60) * 10) / 10,
@@ -244,10 +266,10 @@ function summarise(data: PlanningData, plan: Plan) {
     moves: plan.score.moves,
     feasible: plan.score.feasible,
     violations: plan.score.violations.slice(0, 20),
-    lateJobs: late,
-    lateWorkingMinutes: lateWorking.reduce((a, m) => a + m, 0),
-    worstLateWorkingMinutes: lateWorking.reduce((a, m) => Math.max(a, m), 0),
-    dayMinutes: typicalDayMinutes(data.meta.open),
+    lateJobs: late.lateJobs,
+    lateWorkingMinutes: late.lateWorkingMinutes,
+    worstLateWorkingMinutes: late.worstLateWorkingMinutes,
+    dayMinutes: late.dayMinutes,
     jobs: plan.jobs.length,
     operations: plan.operations.length,
     iterations: plan.stats.iterations,

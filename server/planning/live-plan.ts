@@ -1,10 +1,12 @@
 // The live plan as one record: what the operations' planned fields hold now (the published plan plus moves by hand, promises
 // booked and claims at the bench), read and changed only under its per-workshop advisory lock. Each change to it has one entry
 // point, one transaction: publishing a draft (drafts.ts), a move or pin by hand (move.ts), a promise booking its slot and a
-// claim putting the step on the claimer's bench (here). The checks are the rule book's (shared/domain/rules.ts).
+// claim putting the step on the claimer's bench (here). The checks are the rule book's (shared/domain/rules.ts). Its figures
+// (lateness, pieces late, finish) are worked out from its bars and stored on the published version by each change (here).
 import { and, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm'
 import * as rules from '../../shared/domain/rules'
 import type { RuleViolation, StepRef } from '../../shared/domain/rules'
+import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
 import type { Tx } from '../db/client'
 import * as s from '../db/schema/index'
 import { LOCK } from '../lib/locks'
@@ -14,7 +16,7 @@ import { clipToWindows, intersect } from '../scheduler/calendar.ts'
 import type { Interval } from '../scheduler/model.ts'
 import { audit } from '../services/audit'
 import { engineId, type Assignment, type Assignments } from './assignments'
-import { localTime, type PlanningData } from './problem'
+import { loadPlanningData, localTime, type PlanningData } from './problem'
 
 /** Operations still to do or under way: the live plan holds these; finished and removed work keeps its plan as history. */
 export const OPEN_OPERATION = ['pending', 'ready', 'claimed', 'paused', 'running'] as const
@@ -86,6 +88,100 @@ export async function writeAssignment(tx: Tx, a: Assignment, o: { bumpVersion?: 
     .where(eq(s.operations.id, a.operationId))
     .returning({ id: s.operations.id, version: s.operations.version })
   return row
+}
+
+/**
+ * Lateness as the workshop counts it, from each job bag's finish (engine minutes, by the engine's job id): each minute after
+ * the promised moment weighted by the order's priority, the pieces late, and the working time late (added up, and the latest
+ * piece's). Drafts (drafts.ts) and the live plan are scored by this one reckoning.
+ */
+export function latenessFigures(data: PlanningData, finish: ReadonlyMap<string, number>) {
+  let weightedTardiness = 0,
+    lateJobs = 0,
+    lateWorkingMinutes = 0,
+    worstLateWorkingMinutes = 0
+  for (const job of data.problem.jobs) {
+    const end = finish.get(job.id)
+    if (end === undefined || job.due === null || end <= job.due) continue
+    weightedTardiness += job.weight * (end - job.due)
+    lateJobs++
+    const working = workingMinutesBetween(data.meta.open, job.due, end)
+    lateWorkingMinutes += working
+    worstLateWorkingMinutes = Math.max(worstLateWorkingMinutes, working)
+  }
+  return {
+    weightedTardiness,
+    weightedTardinessHours: Math.round((weightedTardiness / 60) * 10) / 10,
+    lateJobs,
+    lateWorkingMinutes,
+    worstLateWorkingMinutes,
+    dayMinutes: typicalDayMinutes(data.meta.open),
+  }
+}
+
+/**
+ * The live plan's figures as its bars stand: per job bag of the open work, the end of its last planned step (finished steps
+ * have left the plan); `makespan` is the last bar's end in engine minutes (-Infinity with nothing planned).
+ */
+export function liveFigures(data: PlanningData, assignments: Assignments) {
+  const finish = new Map<string, number>()
+  let makespan = -Infinity,
+    operations = 0
+  for (const a of assignments.values()) {
+    const m = data.meta.operations.get(String(a.operationId))
+    if (!m || m.op.status === 'done' || m.op.status === 'skipped') continue
+    const end = data.clock.toMinute(a.end)
+    const job = String(m.bag.id)
+    finish.set(job, Math.max(finish.get(job) ?? -Infinity, end))
+    makespan = Math.max(makespan, end)
+    operations++
+  }
+  return {
+    ...latenessFigures(data, finish),
+    makespan,
+    completion: makespan === -Infinity ? null : data.clock.toDate(makespan).toISOString(),
+    jobs: finish.size,
+    operations,
+  }
+}
+
+/** A plan's score as the planner weighs it (engine minutes): weighted lateness, then the last finish. */
+type Weighed = { weightedTardiness: number; makespan: number }
+
+/**
+ * What a planner run's plan must beat to be offered as a draft: the live plan as its bars stand now (moves by hand and
+ * bookings included, as its stored figures count it) and the live plan kept as it is but re-timed from now (`retimed`, the
+ * engine's: bars left in the past brought up to now, new work after it) — the worse of the two, so that a plan better than
+ * either is offered. Undefined when the engine had no live plan to keep.
+ */
+export async function liveToBeat(db: Tx, workshopId: number, data: PlanningData, retimed: Weighed | undefined): Promise<Weighed | undefined> {
+  if (!retimed) return undefined
+  const { weightedTardiness, makespan } = liveFigures(data, (await readLivePlan(db, workshopId)).assignments)
+  const current = { weightedTardiness, makespan }
+  const worse =
+    current.weightedTardiness !== retimed.weightedTardiness ? current.weightedTardiness > retimed.weightedTardiness : current.makespan > retimed.makespan
+  return worse ? current : retimed
+}
+
+/**
+ * Stores the live plan's figures, worked out again from its bars as they stand in this transaction, on the published version
+ * (what the planner run recorded beside them, such as its findings, stays). Every change to the live plan calls it in its own
+ * transaction, after the change, under the live plan's lock; `data` is the planning data when the caller has it loaded and it
+ * knows every job bag on the plan (a promise's new job bag is not in the data it was placed with).
+ */
+export async function storeLiveFigures(tx: Tx, workshopId: number, o: { data?: PlanningData; now?: Date } = {}) {
+  const [p] = await tx
+    .select({ id: s.planVersions.id, score: s.planVersions.score })
+    .from(s.planVersions)
+    .where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
+  if (!p) return null
+  const data = o.data ?? (await loadPlanningData(tx, workshopId, o.now ?? new Date()))
+  const { makespan: _makespan, ...figures } = liveFigures(data, (await readLivePlan(tx, workshopId)).assignments)
+  await tx
+    .update(s.planVersions)
+    .set({ score: { ...p.score, ...figures } })
+    .where(eq(s.planVersions.id, p.id))
+  return figures
 }
 
 /** Same bench or same person, at the same time: the double bookings an assignment would make with the rest of the plan. */
@@ -186,6 +282,8 @@ export async function bookPromise(
     }
   }
   for (const { a } of wanted) await writeAssignment(tx, a)
+  // The new job bag is not in the data the promise was placed with: the figures read the workshop again.
+  await storeLiveFigures(tx, actor.workshopId, { now: c.toDate(data.problem.now) })
   const first = steps.reduce((m, x) => Math.min(m, x.start), Infinity)
   await audit(tx, actor, 'book', 'order', orderId, { steps: steps.length, start: c.toDate(first).toISOString(), end: c.toDate(o.completion).toISOString() })
   const a = localTime(data, first),
@@ -234,7 +332,8 @@ export async function claimOnPlan(
       when,
     }),
   )
-  // The claim has moved the row's version on already: one change, one version.
+  // The claim has moved the row's version on already: one change, one version. Its time stays, and with it every finish:
+  // the live plan's stored figures hold.
   await writeAssignment(tx, a, { bumpVersion: false })
   return { from: { benchId: mine.benchId, personId: mine.personId }, to: { benchId: o.bench.id, personId: o.person.id }, findings }
 }

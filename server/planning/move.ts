@@ -1,5 +1,6 @@
 // Moving or pinning one bar by hand on the live plan: one transaction under the live plan's lock, checked with the rule book
-// against the live plan it changes, refused with the rule's message the board can show.
+// against the live plan it changes, refused with the rule's message the board can show; the live plan's figures are stored
+// again from its bars in the same transaction.
 import { and, eq, sql } from 'drizzle-orm'
 import type { MoveInput } from '../../shared/schemas/plan'
 import * as s from '../db/schema/index'
@@ -12,7 +13,7 @@ import { audit } from '../services/audit'
 import * as rules from '../../shared/domain/rules'
 import { violation, type RuleViolation, type StepRef } from '../../shared/domain/rules'
 import { engineId } from './assignments'
-import { lockLivePlan, readLivePlan } from './live-plan'
+import { lockLivePlan, readLivePlan, storeLiveFigures } from './live-plan'
 import { loadPlanningData } from './problem'
 
 const refuse = (message: string, rule: string) => new AppError({ code: 'unprocessable', message, details: { rule } })
@@ -180,6 +181,8 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
       start: moving ? c.toDate(start!).toISOString() : undefined,
       pinned: input.pinned,
     })
+    // The plan as it now stands: the published version's lateness and finish follow the bar.
+    await storeLiveFigures(tx, actor.workshopId, { data })
     return r[0]
   })
   realtime.emit(actor.workshopId, 'plan:changed', { id: opId, operationId: opId, version: updated.version })

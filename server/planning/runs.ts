@@ -7,13 +7,14 @@ import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
 import { AppError } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
+import type { EventPayload } from '../realtime/hub'
 import { SchedulingInputError } from '../scheduler/model.ts'
 import { checkProblem } from '../scheduler/check.ts'
 import { runInWorker } from '../scheduler/run-in-worker.ts'
 import { loadPlanningData, type PlanningData } from './problem'
 import { engineId } from './assignments'
 import { saveDraft } from './drafts'
-import { readLivePlan } from './live-plan'
+import { liveToBeat, readLivePlan } from './live-plan'
 import { PLAN_RUN_TRIES, QUEUES } from '../jobs/queue'
 import { isUniqueViolation } from '../services/versioned'
 
@@ -147,7 +148,15 @@ export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?:
         .where(held)
         .returning({ id: s.planRuns.id })
     ).length > 0
-  if (row.cancelRequested) return finish({ status: 'cancelled' })
+  /** Tells the planners the run ended without a draft or an error (after its row says so). */
+  const ended = (outcome: 'no-better' | 'stopped', extra: Omit<EventPayload<'plan:ended'>, 'runId' | 'outcome'> = {}) =>
+    deps.realtime.emit(row.workshopId, 'plan:ended', { runId, outcome, ...extra })
+  /** Ends the run as stopped if this attempt still holds it, and says so live. */
+  const stopped = async () => {
+    if (await finish({ status: 'cancelled' })) ended('stopped')
+    return { cancelled: true }
+  }
+  if (row.cancelRequested) return stopped()
   local.set(runId, { attempt: row.attempt, controller })
   const beatMs = Math.min(2000, ((deps.jobs?.timing.staleRunSeconds ?? 30) * 1000) / 4)
   const beat = setInterval(() => {
@@ -194,24 +203,26 @@ export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?:
         },
       },
     )
-    if (controller.signal.aborted) {
-      if (!lost) await finish({ status: 'cancelled' })
-      return { cancelled: true }
-    }
+    if (controller.signal.aborted) return lost ? { cancelled: true } : stopped()
     // A plan that breaks a rule (say, a pin its earlier steps cannot reach) is never offered as a draft.
     if (!plan.score.feasible)
       throw new AppError({
         code: 'unprocessable',
         message: `The planner found no plan that keeps every rule: ${describe(plan.score.violations)}. Unpin or move the step concerned and run again.`,
       })
-    // A draft is offered only when it beats the live plan kept as it is (re-timed from now).
-    const live = plan.stats.previous
+    // A draft is offered only when it beats the live plan: as its bars stand now, or kept as it is and re-timed from now.
+    const live = await liveToBeat(deps.db, row.workshopId, loaded, plan.stats.previous)
     if (live && !betterThanLive(plan.score, live, o.stability)) {
-      await finish({ status: 'done', note: `No better plan found in ${o.timeLimitSeconds} s: the live plan stays as it is.` })
+      const best = { weightedTardiness: plan.score.weightedTardiness, makespan: plan.score.makespan }
+      // The stored figures are the plan the run ends with, not the last report on the way.
+      progress = { ...(progress ?? { iteration: 0, elapsedMs: o.timeLimitSeconds * 1000 }), ...best }
+      const note = noBetterNote(o.timeLimitSeconds, best, live, o.stability)
+      if (await finish({ status: 'done', note }))
+        ended('no-better', { note, best, live: { weightedTardiness: live.weightedTardiness, makespan: live.makespan } })
       return { planId: null }
     }
     const actor = await actorOf(deps.db, row)
-    const planId = await deps.db.transaction(async (tx) => {
+    const saved = await deps.db.transaction(async (tx) => {
       const [cur] = await tx.select().from(s.planRuns).where(eq(s.planRuns.id, runId)).for('update')
       if (!cur || cur.status !== 'running' || cur.attempt !== row.attempt) return null
       if (cur.cancelRequested) {
@@ -219,23 +230,25 @@ export async function runPlanJob(deps: Deps, { runId }: { runId: string }, job?:
           .update(s.planRuns)
           .set({ status: 'cancelled', progress, finishedAt: sql`now()` })
           .where(eq(s.planRuns.id, runId))
-        return null
+        return { cancelled: true as const }
       }
       const id = await saveDraft(tx, actor, loaded, plan)
       await tx
         .update(s.planRuns)
         .set({ status: 'done', planId: id, progress, finishedAt: sql`now()` })
         .where(eq(s.planRuns.id, runId))
-      return id
+      return { planId: id }
     })
+    if (saved && 'cancelled' in saved) {
+      ended('stopped')
+      return saved
+    }
+    const planId = saved?.planId ?? null
     if (planId) deps.realtime.emit(row.workshopId, 'plan:drafted', { id: planId, runId })
     return { planId }
   } catch (err) {
     if (lost) return { lost: true }
-    if (controller.signal.aborted) {
-      await finish({ status: 'cancelled' })
-      return { cancelled: true }
-    }
+    if (controller.signal.aborted) return stopped()
     const error = String((planningError(err, data) as Error).message ?? err)
     if (await finish({ status: 'failed', error })) {
       console.error('[planner] run failed:', err)
@@ -336,6 +349,24 @@ export async function releaseLocalRuns(deps: Deps) {
   }
 }
 
+/**
+ * The words for a run that found nothing better: the live plan stays, and what the best plan found came to against it
+ * (hours late × priority, as the planning dialog counts them).
+ */
+export function noBetterNote(
+  seconds: number,
+  best: { weightedTardiness: number; makespan: number },
+  live: { weightedTardiness: number; makespan: number },
+  stability: 'small-changes' | 'best-dates',
+) {
+  const hours = (weightedMinutes: number) => (Math.round((weightedMinutes / 60) * 10) / 10).toLocaleString('en-GB')
+  const figures =
+    hours(best.weightedTardiness) === hours(live.weightedTardiness)
+      ? `The best plan found is ${hours(best.weightedTardiness)} h late × priority, the same as the live plan${stability === 'best-dates' ? ', and finishes no earlier' : ''}.`
+      : `The best plan found is ${hours(best.weightedTardiness)} h late × priority, the live plan ${hours(live.weightedTardiness)} h.`
+  return `No better plan found in ${seconds} s: the live plan stays as it is. ${figures}`
+}
+
 /** Less weighted lateness always counts; an earlier finish at equal lateness only when the manager asked for best dates. */
 export function betterThanLive(
   score: { weightedTardiness: number; makespan: number },
@@ -355,15 +386,21 @@ export async function getRun(db: Db, actor: Actor, id: string) {
   return publicRun(r)
 }
 
-/** A queued run ends at once; a running one is asked to stop (its instance sees it at the next heartbeat, this one at once). */
-export async function cancelRun(db: Db, actor: Actor, id: string) {
+/**
+ * A queued run ends at once (and says so live); a running one is asked to stop (its instance sees it at the next heartbeat,
+ * this one at once, and says so when it has stopped). A run already over is answered as it ended.
+ */
+export async function cancelRun(deps: Pick<Deps, 'db' | 'realtime'>, actor: Actor, id: string) {
+  const db = deps.db
   const mine = and(eq(s.planRuns.id, id), eq(s.planRuns.workshopId, actor.workshopId))
   const [r] = await db.select().from(s.planRuns).where(mine)
   if (!r) throw new AppError({ code: 'not-found', message: 'Planner run not found' })
-  await db
+  const ended = await db
     .update(s.planRuns)
     .set({ status: 'cancelled', finishedAt: sql`now()` })
     .where(and(mine, eq(s.planRuns.status, 'queued')))
+    .returning({ id: s.planRuns.id })
+  if (ended.length) deps.realtime.emit(actor.workshopId, 'plan:ended', { runId: id, outcome: 'stopped' })
   await db
     .update(s.planRuns)
     .set({ cancelRequested: true })

@@ -21,8 +21,8 @@ export interface SessionEnd {
   sessionId?: string
 }
 
-/** Events only the planners (owner, manager) receive: drafts and planner progress are theirs until published. */
-export const PLANNER_EVENTS = new Set<EventName>(['plan:progress', 'plan:drafted', 'plan:discarded', 'plan:failed'])
+/** Events only the planners (owner, manager) receive: drafts, planner progress and how runs end are theirs until published. */
+export const PLANNER_EVENTS = new Set<EventName>(['plan:progress', 'plan:drafted', 'plan:discarded', 'plan:failed', 'plan:ended'])
 export const roomOf = (workshopId: number, event: EventName) => (PLANNER_EVENTS.has(event) ? `workshop:${workshopId}:planners` : `workshop:${workshopId}`)
 /** Rooms every socket joins so a session or user can be ended on every instance (names never carry the session id itself). */
 export const userRoom = (userId: number) => `user:${userId}`

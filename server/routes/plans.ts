@@ -76,7 +76,7 @@ export const planRoutes = [
     summary: 'Stop a planner run (the live plan is untouched)',
     params: runParam,
     response: planRun,
-    handler: ({ deps, actor, params }) => cancelRun(deps.db, actor, params.runId),
+    handler: ({ deps, actor, params }) => cancelRun(deps, actor, params.runId),
   }),
   route({
     method: 'get',

@@ -134,6 +134,10 @@ export const planVersion = planVersionRow.extend({ createdByName: z.string().nul
 export const assignment = planAssignment
 export const planMove = z.object({
   operationId: wireInt,
+  /** The step's job bag and name, as people know the work (absent only for a step no longer in the workshop). */
+  jobBagId: wireInt.optional(),
+  jobBagNumber: z.string().optional(),
+  name: z.string().optional(),
   from: planAssignment.nullable(),
   to: planAssignment.nullable(),
   change: z.array(z.enum(['new', 'dropped', 'bench', 'person', 'time'])),

@@ -70,6 +70,14 @@ const boardBars = (flashOf?: (p: Payload) => number | null): LiveRoute => ({
     )
   },
 })
+/** The plan list alone: a move by hand changes the live plan's figures (lateness, finish) that the banner and dialog show. */
+const boardVersions: LiveRoute = {
+  store: 'board',
+  ownWritesReload: true,
+  apply: (_p, c) => {
+    if (c.live.isShown('board')) c.soon('board:versions', () => c.board.loadVersions(), 150, 1000)
+  },
+}
 const boardPlans: LiveRoute = {
   store: 'board',
   ownWritesReload: true,
@@ -156,7 +164,7 @@ const masterData: LiveRoute = {
 export const LIVE_TABLE: Record<EventName, LiveRoute[]> = {
   'operation:changed': [boardBars((p) => num(p.id)), benchQueue(true, true), keys((p) => [`operation:${p.id}`])],
   'jobBag:changed': [boardBars(), benchQueue(true), keys((p) => [`jobBag:${p.id}`])],
-  'plan:changed': [{ ...boardBars((p) => num(p.operationId) ?? num(p.id)), ownWritesReload: true }, benchQueue(false, true)],
+  'plan:changed': [{ ...boardBars((p) => num(p.operationId) ?? num(p.id)), ownWritesReload: true }, boardVersions, benchQueue(false, true)],
   'plan:published': [boardPlans, benchQueue(false)],
   'plan:discarded': [boardPlans],
   'plan:drafted': [
@@ -170,6 +178,17 @@ export const LIVE_TABLE: Record<EventName, LiveRoute[]> = {
   ],
   'plan:progress': [{ store: 'plannerRun', apply: (p, c) => c.runs.onProgress(p as unknown as RunProgress & { runId: string }) }],
   'plan:failed': [{ store: 'plannerRun', apply: (p, c) => c.runs.onFailed({ runId: String(p.runId), error: String(p.error ?? '') }) }],
+  'plan:ended': [
+    {
+      store: 'plannerRun',
+      apply: (p, c) =>
+        c.runs.onEnded({
+          runId: String(p.runId),
+          outcome: p.outcome === 'stopped' ? 'stopped' : 'no-better',
+          note: typeof p.note === 'string' ? p.note : null,
+        }),
+    },
+  ],
   'order:created': [boardBars(), keys(() => ['orders'])],
   'order:updated': [boardBars(), keys((p) => ['orders', `order:${p.id}`])],
   'masterdata:changed': [boardBars(), masterData, keys((p) => [`masterdata:${p.entity}`])],

@@ -16,6 +16,7 @@ export const RECORDED_EVENTS = [
   'plan:discarded',
   'plan:changed',
   'plan:failed',
+  'plan:ended',
   'masterdata:changed',
   'file:added',
   'file:removed',

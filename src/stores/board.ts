@@ -219,7 +219,8 @@ export const useBoardStore = defineStore('board', () => {
       } else outcome = { ok: false, kind: 'error', message: messageOf(err) }
     }
     settle?.(outcome.ok)
-    if (outcome.ok || (!outcome.ok && outcome.kind === 'stale')) await loadBoard()
+    // The live plan's figures (in the version list) change with a move as well as its bars.
+    if (outcome.ok || (!outcome.ok && outcome.kind === 'stale')) await Promise.all([loadBoard(), loadVersions().catch(() => undefined)])
     return outcome
   }
 

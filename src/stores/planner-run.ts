@@ -1,5 +1,6 @@
-// The planner run started from this tab, as one state machine: queued → running → drafted / failed / stopped, driven by the
-// socket's plan:progress, plan:drafted and plan:failed, and by polling the run only while the socket is disconnected.
+// The planner run started from this tab, as one state machine: queued → running → drafted / no-better / failed / stopped, driven
+// by the socket's plan:progress, plan:drafted, plan:ended and plan:failed, by polling the run while the socket is disconnected,
+// and by reading it back once its time limit has passed without word of its end (an event lost on the way).
 import { defineStore } from 'pinia'
 import { computed, ref, watch } from 'vue'
 import * as plansApi from '@/api/plans'
@@ -8,28 +9,43 @@ import type { PlanRun, RunProgress } from '@/api/plans'
 import type { PlanRunInput } from '@shared/schemas/plan'
 import { useLiveStore } from '@/stores/live'
 
-export type RunPhase = 'idle' | 'queued' | 'running' | 'drafted' | 'failed' | 'stopped'
+/** no-better: the run ended without a draft because nothing beat the live plan, which stays as it is. */
+export type RunPhase = 'idle' | 'queued' | 'running' | 'drafted' | 'no-better' | 'failed' | 'stopped'
 
 /** How often the run is asked for while the socket is down. */
 export const RUN_POLL_MS = 700
+/** After the run's time limit, how long its end may take to be heard (saving a draft) before the run is read back. */
+export const RUN_LATE_GRACE_MS = 2000
+/** How often a run that is past its time limit, and not heard of, is read back (say it waited in the queue). */
+export const RUN_LATE_POLL_MS = 3000
 
 const PHASE: Record<PlanRun['status'], RunPhase> = { queued: 'queued', running: 'running', done: 'drafted', failed: 'failed', cancelled: 'stopped' }
+const phaseOf = (r: PlanRun): RunPhase => (r.status === 'done' && !r.planId ? 'no-better' : PHASE[r.status])
+
+/** What was heard of a run before it was known as ours. */
+interface Heard {
+  planId?: number
+  error?: string
+  ended?: { outcome: 'no-better' | 'stopped'; note: string | null }
+}
 
 export const usePlannerRunStore = defineStore('plannerRun', () => {
   const live = useLiveStore()
   const run = ref<PlanRun | null>(null)
   const progress = ref<RunProgress | null>(null)
-  const phase = computed<RunPhase>(() => (run.value ? PHASE[run.value.status] : 'idle'))
+  const phase = computed<RunPhase>(() => (run.value ? phaseOf(run.value) : 'idle'))
   const active = computed(() => runActive(run.value))
   /** True while the fallback poll is scheduled (the socket is down and the run is not over). */
   const polling = ref(false)
   /** Told when our run's draft is known from the poll (the board lists and shows it, as for the socket event). */
   let afterDrafted: ((planId: number, runId: string) => unknown) | null = null
   let timer: ReturnType<typeof setTimeout> | null = null
+  /** Reads the run back once its time limit has passed, while no word of its end has come. */
+  let lateTimer: ReturnType<typeof setTimeout> | null = null
   /** Outcomes heard for runs not (yet) ours: a run that ends before its start request has answered is still caught. */
-  const early = new Map<string, { planId?: number; error?: string }>()
+  const early = new Map<string, Heard>()
 
-  function remember(runId: string, outcome: { planId?: number; error?: string }) {
+  function remember(runId: string, outcome: Heard) {
     early.set(runId, outcome)
     if (early.size > 20) early.delete(early.keys().next().value!)
   }
@@ -42,8 +58,10 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
       onDrafted(heard.planId, run.value.id)
       void afterDrafted?.(heard.planId, run.value.id)
     } else if (heard?.error !== undefined) onFailed({ runId: run.value.id, error: heard.error })
+    else if (heard?.ended) onEnded({ runId: run.value.id, ...heard.ended })
     early.clear()
     schedule()
+    scheduleLate(run.value.timeLimitSeconds * 1000 + RUN_LATE_GRACE_MS)
     return run.value
   }
 
@@ -53,6 +71,7 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
 
   function clear() {
     cancelPoll()
+    cancelLate()
     run.value = null
     progress.value = null
   }
@@ -83,6 +102,14 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
   function onFailed(p: { runId: string; error: string }) {
     if (run.value?.id === p.runId && active.value) run.value = { ...run.value, status: 'failed', error: p.error }
     else if (run.value?.id !== p.runId) remember(p.runId, { error: p.error })
+  }
+
+  /** plan:ended: ours ended without a draft — nothing beat the live plan (its note says so), or it was stopped. */
+  function onEnded(p: { runId: string; outcome: 'no-better' | 'stopped'; note: string | null }) {
+    if (run.value?.id === p.runId && active.value)
+      run.value =
+        p.outcome === 'stopped' ? { ...run.value, status: 'cancelled' } : { ...run.value, status: 'done', planId: null, note: p.note ?? run.value.note }
+    else if (run.value?.id !== p.runId) remember(p.runId, { ended: { outcome: p.outcome, note: p.note } })
   }
 
   /** An answer of GET /plans/runs/:id (poll, stop, catch-up after a reconnect). */
@@ -121,6 +148,25 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
     polling.value = false
   }
 
+  /** Once the run should be over, asks for it (again every few seconds while it still reads as going). */
+  function scheduleLate(ms: number) {
+    cancelLate()
+    if (!active.value) return
+    const id = run.value!.id
+    lateTimer = setTimeout(async () => {
+      lateTimer = null
+      if (!active.value || run.value?.id !== id) return
+      // While the socket is down the poll above asks already.
+      if (live.connected) await fetchRun()
+      if (run.value?.id === id) scheduleLate(RUN_LATE_POLL_MS)
+    }, ms)
+  }
+
+  function cancelLate() {
+    if (lateTimer) clearTimeout(lateTimer)
+    lateTimer = null
+  }
+
   // The socket going down starts the poll; coming back stops it and asks once for what progress was missed.
   watch(
     () => live.connected,
@@ -136,5 +182,5 @@ export const usePlannerRunStore = defineStore('plannerRun', () => {
     afterDrafted = fn
   }
 
-  return { run, progress, phase, active, polling, start, stop, clear, onProgress, onDrafted, onFailed, apply, fetchRun, setAfterDrafted }
+  return { run, progress, phase, active, polling, start, stop, clear, onProgress, onDrafted, onFailed, onEnded, apply, fetchRun, setAfterDrafted }
 })

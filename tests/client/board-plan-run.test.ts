@@ -41,4 +41,27 @@ describe('BoardPlanRun', () => {
     expect(text).toContain('Live plan: 2,000.5 h late × priority, 4 pieces late')
     expect(text).not.toMatch(/Lateness score|jobs late/i)
   })
+
+  it('when a run ended with no better plan, then the dialog says the live plan stays, with the figures it was given, and offers no Stop', async () => {
+    const note = 'No better plan found in 10 s: the live plan stays as it is. The best plan found is 3.5 h late × priority, the live plan 2 h.'
+    const props = {
+      open: true,
+      run: { ...run, status: 'done' as const, note },
+      progress: { iteration: 1200, weightedTardiness: 210, makespan: 6000, elapsedMs: 10_000 },
+      timeZone: 'Europe/London',
+      now: '2026-12-03T10:00:00.000Z',
+      baseline: null,
+      starting: false,
+    }
+    const w = mount(BoardPlanRun, { props, global: { plugins: [ElementPlus] }, attachTo: document.body })
+    await flushPromises()
+    // This test's dialog: the newest on the page.
+    const dialog = () => [...document.querySelectorAll('[data-test=plan-run-dialog]')].at(-1)!
+    expect(dialog().querySelector('[data-test=plan-no-better]')?.textContent).toContain(note)
+    expect(dialog().querySelector('[data-test=plan-stop]')).toBeNull()
+    // A run stored without words still says what happened.
+    await w.setProps({ run: { ...props.run, note: null } })
+    expect(dialog().querySelector('[data-test=plan-no-better]')?.textContent).toContain('No better plan found: the live plan stays as it is.')
+    w.unmount()
+  })
 })

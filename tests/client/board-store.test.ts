@@ -5,7 +5,7 @@ import { ApiError } from '@/api/client'
 import type { BoardItem } from '@shared/schemas/board'
 import type { PlanRun } from '@shared/schemas/plan'
 
-const api = vi.hoisted(() => ({ moveOperation: vi.fn(), getBoard: vi.fn() }))
+const api = vi.hoisted(() => ({ moveOperation: vi.fn(), getBoard: vi.fn(), listPlans: vi.fn() }))
 vi.mock('@/api/plans', async () => ({ ...(await vi.importActual<object>('@/api/plans')), ...api }))
 const { useBoardStore } = await import('@/stores/board')
 
@@ -16,6 +16,7 @@ beforeEach(() => {
   setActivePinia(createPinia())
   api.moveOperation.mockReset()
   api.getBoard.mockReset().mockResolvedValue(emptyBoard)
+  api.listPlans.mockReset().mockResolvedValue([])
 })
 
 describe('moving a bar', () => {
@@ -30,6 +31,16 @@ describe('moving a bar', () => {
     expect(r).toEqual({ ok: true })
     expect(order).toEqual(['settle:true', 'reload'])
     expect(api.moveOperation).toHaveBeenCalledWith(9, { benchId: 7, version: 2 })
+  })
+
+  it('when the server accepts, then the plan list is read again too (the live plan figures shown in the banner changed)', async () => {
+    api.moveOperation.mockResolvedValue({ id: 9, version: 3 })
+    const live = { id: 4, status: 'published', score: { weightedTardiness: 1200 } }
+    api.listPlans.mockResolvedValue([live])
+    const store = useBoardStore()
+    await store.move(item, { benchId: 7, version: 2 })
+    expect(api.listPlans).toHaveBeenCalledTimes(1)
+    expect(store.livePlan).toEqual(live)
   })
 
   it('when the server refuses (422), then the bar goes back and the reason and rule are kept for the board', async () => {

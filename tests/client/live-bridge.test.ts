@@ -24,7 +24,7 @@ const { startLiveBridge } = await import('@/realtime/bridge')
 const { useLiveStore } = await import('@/stores/live')
 const { useBoardStore } = await import('@/stores/board')
 const { useBenchFloorStore } = await import('@/stores/bench-floor')
-const { usePlannerRunStore, RUN_POLL_MS } = await import('@/stores/planner-run')
+const { usePlannerRunStore, RUN_POLL_MS, RUN_LATE_GRACE_MS, RUN_LATE_POLL_MS } = await import('@/stores/planner-run')
 const { useBenchesStore } = await import('@/stores/benches')
 
 const SELF = 'tab-self-0001'
@@ -99,6 +99,14 @@ describe('routing by event', () => {
     expect(plans.listPlans).not.toHaveBeenCalled()
     expect(plans.getLoad).not.toHaveBeenCalled()
     expect(useBoardStore().flashIds.has(40)).toBe(true)
+  })
+
+  it('when a bar is moved by hand in another tab, then the board window and the plan list (whose live plan figures changed) reload once each', async () => {
+    socket.fire('plan:changed', { id: 40, operationId: 40, version: 3, seq: 1, origin: OTHER })
+    await settle()
+    expect(plans.getBoard).toHaveBeenCalledTimes(1)
+    expect(plans.listPlans).toHaveBeenCalledTimes(1)
+    expect(plans.getLoad).not.toHaveBeenCalled()
   })
 
   it('when master data changes, then the store listing it and the board window reload, not the plan list or the bench queue', async () => {
@@ -224,6 +232,72 @@ describe('planner run', () => {
     expect(useBoardStore().viewPlanId).toBe(81)
     await vi.advanceTimersByTimeAsync(RUN_POLL_MS * 3)
     expect(plans.getRun).toHaveBeenCalledTimes(1)
+  })
+})
+
+describe('planner run that ends without a draft', () => {
+  const NOTE = 'No better plan found in 10 s: the live plan stays as it is. The best plan found is 0 h late × priority, the same as the live plan.'
+
+  it('when the socket says the run found no better plan, then it reads no-better with the note, no draft, and the button is free', async () => {
+    plans.startRun.mockResolvedValue(run('running'))
+    const runs = usePlannerRunStore()
+    await runs.start({ timeLimitSeconds: 10, seed: 1, stability: 'small-changes' })
+    socket.fire('plan:ended', { runId: 'run-1', outcome: 'no-better', note: NOTE, seq: 1 })
+    expect(runs.phase).toBe('no-better')
+    expect(runs.active).toBe(false)
+    expect(runs.run).toMatchObject({ status: 'done', planId: null, note: NOTE })
+    expect(useBoardStore().viewPlanId).toBeNull()
+  })
+
+  it('when the socket says the run was stopped, then it reads stopped', async () => {
+    plans.startRun.mockResolvedValue(run('running'))
+    const runs = usePlannerRunStore()
+    await runs.start({ timeLimitSeconds: 10, seed: 1, stability: 'small-changes' })
+    socket.fire('plan:ended', { runId: 'run-1', outcome: 'stopped', seq: 1 })
+    expect(runs.phase).toBe('stopped')
+    expect(runs.active).toBe(false)
+  })
+
+  it('when the run ends with no better plan before its start request has answered, then the outcome heard meanwhile still ends it', async () => {
+    plans.startRun.mockImplementation(async () => {
+      socket.fire('plan:ended', { runId: 'run-1', outcome: 'no-better', note: NOTE, seq: 1 })
+      return run('queued')
+    })
+    const runs = usePlannerRunStore()
+    await runs.start({ timeLimitSeconds: 10, seed: 1, stability: 'small-changes' })
+    expect(runs.phase).toBe('no-better')
+    expect(runs.run?.note).toBe(NOTE)
+  })
+
+  it('when no word of the end comes while connected, then the run is read back once its time limit has passed, and again until it reads as over', async () => {
+    plans.startRun.mockResolvedValue(run('running'))
+    plans.getRun.mockResolvedValue(run('running'))
+    const runs = usePlannerRunStore()
+    await runs.start({ timeLimitSeconds: 10, seed: 1, stability: 'small-changes' })
+    // Nothing asked within the time limit and its grace: the socket is up.
+    await vi.advanceTimersByTimeAsync(10_000 + RUN_LATE_GRACE_MS - 10)
+    expect(plans.getRun).not.toHaveBeenCalled()
+    await vi.advanceTimersByTimeAsync(20)
+    expect(plans.getRun).toHaveBeenCalledTimes(1)
+    expect(runs.phase).toBe('running')
+    plans.getRun.mockResolvedValue(run('done', { note: NOTE }))
+    await vi.advanceTimersByTimeAsync(RUN_LATE_POLL_MS)
+    expect(plans.getRun).toHaveBeenCalledTimes(2)
+    expect(runs.phase).toBe('no-better')
+    expect(runs.run?.note).toBe(NOTE)
+    await vi.advanceTimersByTimeAsync(RUN_LATE_POLL_MS * 3)
+    expect(plans.getRun).toHaveBeenCalledTimes(2)
+  })
+
+  it('when Stop is pressed on a run that has already ended with no better plan, then it reads no-better, not drafted', async () => {
+    plans.startRun.mockResolvedValue(run('running'))
+    plans.stopRun.mockResolvedValue(run('done', { note: NOTE }))
+    const runs = usePlannerRunStore()
+    await runs.start({ timeLimitSeconds: 10, seed: 1, stability: 'small-changes' })
+    await runs.stop()
+    expect(runs.phase).toBe('no-better')
+    expect(runs.run).toMatchObject({ status: 'done', planId: null, note: NOTE })
+    expect(useBoardStore().viewPlanId).toBeNull()
   })
 })
 

@@ -2,6 +2,7 @@
 import type { Interval, Job, Objective, Operation, Plan, PlannedOperation, Problem, Score, StartReason } from './model.ts'
 import { SchedulingInputError } from './model.ts'
 import { clipToWindows, firstEndingAfter, formatMinute, intersect, leaveTime, outsideWorkEnd, walkWorkingTime, weekdayOf } from './calendar.ts'
+import { busyWith, outsideLength, toBeDone } from './explain.ts'
 
 /** One resource option of an operation, with indices and its joint working windows. */
 export interface CompiledOption {
@@ -759,25 +760,37 @@ export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
         detail = `pinned at ${at(d.start[i]!)}`
         break
       case 'now':
-        detail = `starts as soon as planning allows (${at(d.start[i]!)})`
+        detail = `${c.outsideDays[i]! > 0 ? 'goes out' : 'starts'} as soon as planning allows (${at(d.start[i]!)})`
         break
       case 'release':
         detail = `job ${c.jobs[c.jobOf[i]!]!.name} is released at ${at(c.jobs[c.jobOf[i]!]!.release)}`
         break
       case 'predecessor':
         detail = bop
-          ? `waiting for ${bop.name} to finish${c.waitAfter[b]! > 0 ? ` and ${c.waitAfter[b]} min wait` : ''} until ${at(d.start[i]!)}`
+          ? `waiting for ${bop.name} ${toBeDone(bop)}${c.waitAfter[b]! > 0 ? ` and ${c.waitAfter[b]} min wait` : ''} until ${at(d.start[i]!)}`
           : `waiting for a predecessor until ${at(d.start[i]!)}`
         break
       case 'bench':
-        detail = `waiting for ${benchId ? (p.benches.find((x) => x.id === benchId)?.name ?? benchId) : 'the bench'} (${bop?.name ?? 'busy'}) until ${at(d.start[i]!)}`
+      case 'person': {
+        const name =
+          kind === 'bench'
+            ? benchId
+              ? (p.benches.find((x) => x.id === benchId)?.name ?? benchId)
+              : 'the bench'
+            : personId
+              ? (p.people.find((x) => x.id === personId)?.name ?? personId)
+              : 'the person'
+        detail = `waiting for ${bop ? busyWith(name, bop, c.jobs[c.jobOf[b]!]?.name) : `${name} (busy)`} until ${at(d.start[i]!)}`
         break
-      case 'person':
-        detail = `waiting for ${personId ? (p.people.find((x) => x.id === personId)?.name ?? personId) : 'the person'} (${bop?.kind ?? 'busy'}) until ${at(d.start[i]!)}`
-        break
+      }
       default:
-        detail = `outside working time of ${[benchId && p.benches.find((x) => x.id === benchId)?.name, personId && p.people.find((x) => x.id === personId)?.name].filter(Boolean).join(' and ') || 'the workshop'} until ${at(d.start[i]!)}`
+        detail =
+          c.outsideDays[i]! > 0
+            ? `goes out when the workshop next opens (${at(d.start[i]!)})`
+            : `outside working time of ${[benchId && p.benches.find((x) => x.id === benchId)?.name, personId && p.people.find((x) => x.id === personId)?.name].filter(Boolean).join(' and ') || 'the workshop'} until ${at(d.start[i]!)}`
     }
+    // Outside work is counted in the workshop's working days.
+    if (c.outsideDays[i]! > 0) detail += `; ${outsideLength(c.outsideDays[i]!, d.end[i]!, at)}`
     const reason: StartReason = { kind, detail, ...(bop ? { blockerId: bop.id } : {}) }
     operations.push({ operationId: op.id, jobId: op.jobId, benchId, personId, start: d.start[i]!, end: d.end[i]!, segments: d.segments[i]!, reason })
   }

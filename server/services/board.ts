@@ -4,11 +4,12 @@ import { gzipSync } from 'node:zlib'
 import { and, eq, inArray, isNotNull, sql } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
-import { dayjs, type Interval } from '../lib/time'
-import { intersect, clipToWindows } from '../scheduler/calendar.ts'
+import { dayjs, dayRange, type Interval } from '../lib/time'
+import { intersect, clipToWindows, formatMinute, weekdayOf } from '../scheduler/calendar.ts'
 import type { StartReason } from '../scheduler/model.ts'
-import { explainStarts } from '../scheduler/explain.ts'
+import { explainStarts, outsideLength, type ExplainCalendar } from '../scheduler/explain.ts'
 import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
+import { jobRisk } from '../../shared/domain/job-risk'
 import { cachedOr, type Cache } from '../lib/cache'
 import { engineId, fromStored, type Assignments } from '../planning/assignments'
 import { loadPlanningData, type PlanningData } from '../planning/problem'
@@ -39,6 +40,7 @@ export interface BoardItem {
   pinned: boolean
   version: number
   estimateMinutes: number
+  outsideDays?: number
   requiredLevel: number
   reason: StartReason | null
   late: boolean
@@ -60,8 +62,6 @@ export interface BoardJob {
   state: 'late' | 'at-risk' | 'on-time' | 'unplanned'
   reason: string | null
 }
-
-const AT_RISK_MINUTES = 8 * 60
 
 export interface SerialisedAnswer {
   json: string
@@ -99,6 +99,27 @@ const shown = (a: Assignments): Record<string, Shown> =>
     ]),
   )
 
+/** The workshop's calendar in the engine's minutes, so a start reason can name the closure, leave or downtime that held it. */
+function reasonCalendar(data: PlanningData): ExplainCalendar {
+  const c = data.clock
+  return {
+    open: data.meta.open,
+    closures: data.meta.closures.map((x) => ({ ...dayRange(c, x.startsOn, x.endsOn), name: x.name })),
+    leave: data.meta.leave.map((l) => ({ personId: String(l.personId), ...dayRange(c, l.startsOn, l.endsOn), reason: l.reason })),
+    downtime: data.meta.downtime.map((d) => ({ benchId: String(d.benchId), start: c.toMinute(d.startsAt), end: c.toMinute(d.endsAt), reason: d.reason })),
+  }
+}
+
+/** Why running work is where it is: bench work is under way at the bench; outside work has been sent out, for its working days. */
+function runningReason(data: PlanningData, id: string, planned: { start: string; end: string } | null): StartReason {
+  const m = data.meta.operations.get(id)
+  if (!m || !(m.kind.outside || m.op.leadDays > 0)) return { kind: 'fixed', detail: 'being worked on at the bench now' }
+  if (!planned) return { kind: 'fixed', detail: 'sent out' }
+  const at = (t: number) => formatMinute(t, weekdayOf(data.problem.origin), data.problem.origin)
+  const c = data.clock
+  return { kind: 'fixed', detail: `sent out ${at(c.toMinute(planned.start))}; ${outsideLength(Math.max(1, m.op.leadDays), c.toMinute(planned.end), at)}` }
+}
+
 function windowsFor(data: PlanningData, benchId: string | null, personId: string | null): Interval[] | null {
   const b = benchId ? data.problem.benches.find((x) => x.id === benchId)?.available : null
   const p = personId ? data.problem.people.find((x) => x.id === personId)?.available : null
@@ -126,10 +147,10 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const steps = Object.entries(assignments)
     .filter(([id]) => data.meta.operations.has(id))
     .map(([id, a]) => ({ operationId: id, benchId: a.benchId, personId: a.personId, start: c.toMinute(a.start), end: c.toMinute(a.end) }))
-  const why = explainStarts(data.problem, steps)
+  const why = explainStarts(data.problem, steps, reasonCalendar(data))
   for (const [id, a] of Object.entries(assignments)) {
     const m = data.meta.operations.get(id)
-    a.reason = m?.op.status === 'running' ? { kind: 'fixed', detail: 'being worked on at the bench now' } : (why.get(id) ?? null)
+    a.reason = m?.op.status === 'running' ? runningReason(data, id, a) : (why.get(id) ?? null)
   }
   const winStart = new Date(dayjs.tz(`${o.from} 00:00`, c.timeZone).valueOf())
   const winEnd = new Date(dayjs.tz(`${o.to} 00:00`, c.timeZone).add(1, 'day').valueOf())
@@ -158,14 +179,14 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const runningIds = [...data.meta.operations.values()].filter((m) => m.op.status === 'running').map((m) => m.op.id)
   const runningRecords = await effectiveRecords(db, runningIds, now)
   const items: BoardItem[] = []
+  const dayMinutes = typicalDayMinutes(data.meta.open)
   for (const [id, m] of data.meta.operations) {
-    const due = dayjs
-      .tz(`${m.order.promisedDate ?? m.order.dueDate} 00:00`, c.timeZone)
-      .add(1, 'day')
-      .valueOf()
+    const dueDayStart = dayjs.tz(`${m.order.promisedDate ?? m.order.dueDate} 00:00`, c.timeZone)
+    const due = dueDayStart.add(1, 'day').valueOf()
     if (!jobs.has(m.bag.id)) {
       const comp = completion.get(m.bag.id)
       const lateness = comp ? Math.round((comp.end - due) / 60_000) : 0
+      const lateWorking = comp ? workingMinutesBetween(data.meta.open, c.toMinute(new Date(due)), c.toMinute(new Date(comp.end))) : 0
       jobs.set(m.bag.id, {
         jobBagId: m.bag.id,
         number: m.bag.number,
@@ -175,8 +196,10 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
         due: m.order.promisedDate ?? m.order.dueDate,
         expectedCompletion: comp ? new Date(comp.end).toISOString() : null,
         latenessMinutes: lateness,
-        lateWorkingMinutes: comp ? workingMinutesBetween(data.meta.open, c.toMinute(new Date(due)), c.toMinute(new Date(comp.end))) : 0,
-        state: !comp ? 'unplanned' : lateness > 0 ? 'late' : lateness > -AT_RISK_MINUTES ? 'at-risk' : 'on-time',
+        lateWorkingMinutes: lateWorking,
+        state: !comp
+          ? 'unplanned'
+          : jobRisk({ finish: comp.end, dueDayStart: dueDayStart.valueOf(), dueDayEnd: due, spareWorkingMinutes: -lateWorking, dayMinutes }),
         reason: comp?.reason ?? null,
       })
     }
@@ -230,8 +253,9 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       pinned: m.op.pinned,
       version: m.op.version,
       estimateMinutes: m.op.estimateMinutes,
+      ...(m.op.leadDays > 0 ? { outsideDays: m.op.leadDays } : {}),
       requiredLevel: m.op.requiredLevel,
-      reason: a?.reason ?? (running ? { kind: 'fixed', detail: 'being worked on at the bench now' } : null),
+      reason: a?.reason ?? (running ? runningReason(data, id, null) : null),
       late: new Date(a?.end ?? end).getTime() > due,
       planned: a ? { start: iso(a.start), end: iso(a.end) } : null,
       actual,
@@ -277,7 +301,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     items,
     jobs: [...jobs.values()].sort((a, b) => a.due.localeCompare(b.due)),
     nonWorking: data.meta.nonWorking.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
-    dayMinutes: typicalDayMinutes(data.meta.open),
+    dayMinutes,
     closures: data.meta.closures.map((x) => ({ name: x.name, startsOn: x.startsOn, endsOn: x.endsOn })),
     leave: data.meta.leave.map((l) => ({ personId: l.personId, startsOn: l.startsOn, endsOn: l.endsOn, reason: l.reason })),
     downtime: data.meta.downtime.map((d) => ({ benchId: d.benchId, startsAt: d.startsAt, endsAt: d.endsAt, reason: d.reason })),
@@ -374,6 +398,7 @@ async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd:
       pinned: op.pinned,
       version: op.version,
       estimateMinutes: op.estimateMinutes,
+      ...(op.leadDays > 0 ? { outsideDays: op.leadDays } : {}),
       requiredLevel: op.requiredLevel,
       reason: null,
       late: false,

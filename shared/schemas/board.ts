@@ -50,6 +50,8 @@ export const boardItem = z.object({
   pinned: z.boolean(),
   version: z.number().int(),
   estimateMinutes: z.number(),
+  /** Outside work (casting, hallmarking): the working days it is away, when the step counts its time that way. */
+  outsideDays: z.number().int().optional(),
   requiredLevel: z.number().int(),
   reason: boardReason.nullable(),
   late: z.boolean(),

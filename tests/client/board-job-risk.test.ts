@@ -37,7 +37,17 @@ describe('BoardJobRisk', () => {
     expect(text).toContain('1 job not planned yet')
   })
 
-  it('when every planned job has a day to spare, then it says so', () => {
-    expect(risk([job({ state: 'on-time' })])).toContain('Every planned job meets its due date with a day to spare.')
+  it('when no planned job is tight, then the line states the rule the count uses, with the working day in hours', () => {
+    // The rule: tight = finishing on the due day, or with less than one working day (here 465 min = 7 h 45 min) to spare.
+    expect(risk([job({ state: 'on-time' })])).toContain('Every planned job finishes before its due day with at least one working day (7 h 45 min) to spare.')
+  })
+
+  it('when the count of tight jobs is shown, then it says what tight means', () => {
+    const w = mount(BoardJobRisk, { props: { jobs: [job({ state: 'on-time' })], timeZone: 'Europe/London', dayMinutes: 465 } })
+    const count = w.get('[data-test=job-risk-counts]')
+    expect(count.text()).toBe('0 late · 0 tight')
+    expect(count.attributes('title')).toBe(
+      'Tight: finishing on its due day, or with less than one working day (7 h 45 min) to spare. Late: finishing after its due day.',
+    )
   })
 })

@@ -166,8 +166,60 @@ describe('the load table on Friday of the current week', () => {
     expect(w.text()).not.toContain('from Fri 0')
     expect(w.get('[data-test=load-cell-bench-3-2026-12-04]').attributes('title')).not.toContain('already past')
   })
+  it('when Monday to Thursday are past, then their cells show no hours, as the week total leaves them out', () => {
+    const w = table()
+    for (const day of ['2026-11-30', '2026-12-01', '2026-12-02', '2026-12-03']) {
+      const cell = w.get(`[data-test=load-cell-bench-3-${day}]`)
+      // Past: neither the 7:45 h once available nor Thursday's 7:23 h planned count any more; the total is Friday's 3:30 / 7:45 h alone.
+      expect(cell.text(), day).toBe('—')
+      expect(cell.classes(), day).toContain('load__cell--past')
+      expect(cell.attributes('title'), day).toContain('past, not counted')
+    }
+    expect(w.get('[data-test=load-cell-bench-3-2026-12-04]').text()).toBe('3:30 / 7:45 h')
+  })
+  it('when a whole week is past, then its total shows no hours, says it is past, and it is not named among the tightest', async () => {
+    // W48 (23–29 Nov 2026) is over before Friday 4 Dec: 430 of 465 min on each weekday would be 2150 of 2325 min = 92.5 %,
+    // above the 85 % planning load.
+    const w48 = ['2026-11-23', '2026-11-24', '2026-11-25', '2026-11-26', '2026-11-27', '2026-11-28', '2026-11-29']
+    const past = w48.map((day, i) => ({
+      day,
+      week: '2026-W48',
+      plannedMinutes: i < 5 ? 430 : 0,
+      availableMinutes: i < 5 ? 465 : 0,
+      operationIds: i < 5 ? [9] : [],
+    }))
+    const two: WeekLoad = {
+      ...load,
+      from: w48[0]!,
+      days: [...w48, ...days],
+      weeks: [{ week: '2026-W48', days: w48 }, ...load.weeks],
+      rows: [{ ...load.rows[0]!, cells: [...past, ...load.rows[0]!.cells] }],
+    }
+    expect(bottlenecks(two, '2026-12-04')).toEqual([])
+    const w = mount(BoardLoadTable, {
+      props: { load: two, items: new Map(), benchName: new Map(), personName: new Map(), timeZone: 'Europe/London', today: '2026-12-04' },
+    })
+    expect(w.find('[data-test=load-bottleneck]').exists()).toBe(false)
+    await w.get('[data-test=load-mode]').findAll('input').at(1)!.setValue(true)
+    const total = w.get('[data-test=load-cell-bench-3-2026-W48]')
+    expect(total.text()).toBe('—')
+    expect(total.classes()).toContain('load__cell--past')
+    expect(w.text()).toContain('23 Nov–29 Nov · past')
+    // W49 still counts Friday alone: 3:30 / 7:45 h.
+    expect(w.get('[data-test=load-cell-bench-3-2026-W49]').text()).toBe('3:30 / 7:45 h')
+  })
   it('when a day is at 95 %, then it is above the planning load without the over-capacity flag', () => {
-    const thu = table().get('[data-test=load-cell-bench-3-2026-12-03]')
+    // Seen on Wednesday 2 Dec, before anything of Thursday has passed.
+    const thu = mount(BoardLoadTable, {
+      props: {
+        load: { ...load, countedFrom: null },
+        items: new Map(),
+        benchName: new Map(),
+        personName: new Map(),
+        timeZone: 'Europe/London',
+        today: '2026-12-02',
+      },
+    }).get('[data-test=load-cell-bench-3-2026-12-03]')
     expect(thu.text()).toBe('7:23 / 7:45 h')
     expect(thu.classes()).toContain('load__cell--over')
     expect(thu.classes()).not.toContain('load__cell--beyond')

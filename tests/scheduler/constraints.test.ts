@@ -159,6 +159,22 @@ describe('engine constraints', () => {
     expect(placed(p, 'clean').start).toBe(at(2, 8))
   })
 
+  it('when casting waits for the workshop to open, then its reason says when it goes out and its length in working days', () => {
+    // Hand-worked as above: ready at Monday 02:00, it goes out at Monday 08:00 when the workshop opens, for two working days
+    // (Monday and Tuesday), back at Tuesday's close. The builders' origin, 2025-03-03, is a Monday.
+    const problem = makeProblem({
+      now: at(0, 2),
+      operations: [
+        makeOperation({ id: 'cast', jobId: 'j', outsideWorkingDays: 2 }),
+        makeOperation({ id: 'clean', jobId: 'j', predecessors: ['cast'], on: ['b1', 'p1', 30] }),
+      ],
+    })
+    expect(placed(plan(problem), 'cast').reason).toEqual({
+      kind: 'working-time',
+      detail: 'goes out when the workshop next opens (Mon 3 Mar 08:00); out for 2 working days, back by the end of Tue 4 Mar',
+    })
+  })
+
   it('when a job is released on Tuesday morning, then none of its work starts earlier', () => {
     const problem = makeProblem({
       jobs: [makeJob({ id: 'j', release: at(1, 9) })],
@@ -233,13 +249,13 @@ describe('engine constraints', () => {
     expect(stable.score.moves).toBe(0)
   })
 
-  it('when a person is busy with other work, then the reason names the person, the blocking work and the time', () => {
+  it('when a person is busy with other work, then the reason names the person, the blocking step and its job bag (not its kind code) and the time', () => {
     const problem = makeProblem({
       benches: [makeBench({ id: 'b1' }), makeBench({ id: 'b2' })],
       people: [makePerson({ id: 'p1', name: 'Ada' })],
-      jobs: [makeJob({ id: 'j1', due: at(0, 9) }), makeJob({ id: 'j2', due: at(5, 9) })],
+      jobs: [makeJob({ id: 'j1', name: 'MG-1 Halo ring', due: at(0, 9) }), makeJob({ id: 'j2', due: at(5, 9) })],
       operations: [
-        makeOperation({ id: 'first', jobId: 'j1', kind: 'setting', on: ['b1', 'p1', 360] }),
+        makeOperation({ id: 'first', jobId: 'j1', name: 'Set halo', kind: 'setting', on: ['b1', 'p1', 360] }),
         makeOperation({ id: 'second', jobId: 'j2', on: ['b2', 'p1', 60] }),
       ],
     })
@@ -247,7 +263,7 @@ describe('engine constraints', () => {
     expect(second.start).toBe(at(0, 14))
     expect(second.reason).toMatchObject({ kind: 'person', blockerId: 'first' })
     // 2025-03-03, the builders' origin, is a Monday (Gregorian calendar; ISO 8601 weekday 1).
-    expect(second.reason.detail).toBe('waiting for Ada (setting) until Mon 3 Mar 14:00')
+    expect(second.reason.detail).toBe('waiting for Ada (busy with Set halo for MG-1 Halo ring) until Mon 3 Mar 14:00')
   })
 
   it('when a bench is taken by another job, then the reason is the bench with the blocking operation', () => {

@@ -202,11 +202,40 @@ export function backgroundsFor(data: Pick<BoardData, 'nonWorking' | 'closures' |
   return out
 }
 
-/** Long closed stretches (nights, weekends, closures) that "working hours only" folds away; short breaks stay shaded. */
-export function foldedStretches(data: Pick<BoardData, 'nonWorking'>, minHours = 4): { start: Date; end: Date }[] {
-  return data.nonWorking
-    .map((x) => ({ start: parseInstant(x.start), end: parseInstant(x.end) }))
-    .filter((x) => x.end.getTime() - x.start.getTime() >= minHours * 3_600_000)
+/** The part of a closed day that "working hours only" keeps on the board, narrow, so the day shows as closed instead of vanishing. */
+export const CLOSED_DAY_SHOWN = { from: '09:00', to: '12:00' }
+
+/**
+ * Long closed stretches (nights, weekends, closures) that "working hours only" folds away; short breaks stay shaded. A closed day
+ * (a closure) keeps CLOSED_DAY_SHOWN unfolded, where its shading and heading say it is closed.
+ */
+export function foldedStretches(
+  data: Pick<BoardData, 'nonWorking'> & Partial<Pick<BoardData, 'closures' | 'window'>>,
+  minHours = 4,
+): { start: Date; end: Date }[] {
+  const tz = data.window?.timeZone
+  const kept: { start: number; end: number }[] = []
+  for (const c of tz ? (data.closures ?? []) : [])
+    for (let d = dayjs(c.startsOn); !d.isAfter(dayjs(c.endsOn)); d = d.add(1, 'day')) {
+      const day = d.format('YYYY-MM-DD')
+      kept.push({ start: dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.from}`, tz).valueOf(), end: dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.to}`, tz).valueOf() })
+    }
+  const out: { start: Date; end: Date }[] = []
+  for (const x of data.nonWorking) {
+    // Cut the kept parts of closed days out of the stretch; what is left folds when it is long enough.
+    let pieces = [{ start: parseInstant(x.start).getTime(), end: parseInstant(x.end).getTime() }]
+    for (const k of kept)
+      pieces = pieces.flatMap((p) =>
+        k.end <= p.start || k.start >= p.end
+          ? [p]
+          : [
+              { start: p.start, end: k.start },
+              { start: k.end, end: p.end },
+            ].filter((q) => q.end > q.start),
+      )
+    for (const p of pieces) if (p.end - p.start >= minHours * 3_600_000) out.push({ start: new Date(p.start), end: new Date(p.end) })
+  }
+  return out
 }
 
 export interface DropTarget {

@@ -96,9 +96,22 @@ export interface Bottleneck {
   ratio: number
 }
 
-/** The day a week's total starts from: `today` in the week that holds it (days already past leave it), else the whole week. */
+/**
+ * The day a week's total starts from: `today` in the week that holds it and in weeks already over (days already past leave the
+ * total, so a past week counts nothing), else undefined: the whole week.
+ */
 export function weekFrom(week: Pick<WeekLoad['weeks'][number], 'days'>, today: string): string | undefined {
-  return week.days.includes(today) ? today : undefined
+  return today && week.days.length && week.days[0]! <= today ? today : undefined
+}
+
+/** A week already over: every one of its days is before `today`. */
+export const weekPast = (week: Pick<WeekLoad['weeks'][number], 'days'>, today: string) => !!today && week.days.every((d) => d < today)
+
+/** A day's figures as the table shows them: a day before `today` is past and counts nothing, as the week's total leaves it out. */
+export function dayTotal(row: LoadRow, day: string, today: string): LoadTotal & { past: boolean } {
+  if (today && day < today) return { plannedMinutes: 0, availableMinutes: 0, operationIds: [], past: true }
+  const cell = row.cells.find((x) => x.day === day)
+  return { plannedMinutes: cell?.plannedMinutes ?? 0, availableMinutes: cell?.availableMinutes ?? 0, operationIds: cell?.operationIds ?? [], past: false }
 }
 
 /** Rows whose fullest ISO week goes past the planning load, fullest first: where the plan is tight. The current week counts from `today`. */

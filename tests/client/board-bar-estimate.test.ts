@@ -1,0 +1,58 @@
+// The details panel's estimate: bench work in hours and minutes, outside work (casting, hallmarking) in the working days it is away.
+import { describe, expect, it } from 'vitest'
+import { mount } from '@vue/test-utils'
+import ElementPlus from 'element-plus'
+import type { BoardItem } from '@shared/schemas/board'
+import BoardBarDetails from '@/components/board/BoardBarDetails.vue'
+
+const base: BoardItem = {
+  id: 7,
+  jobBagId: 3,
+  jobBagNumber: 'WF-1042-1',
+  piece: 'Signet ring',
+  orderId: 2,
+  orderNumber: 'WF-1042',
+  customerName: 'A. Customer',
+  name: 'Set stone',
+  kind: 'setting',
+  kindName: 'Stone setting',
+  color: '#3f7f8c',
+  hazards: [],
+  outside: false,
+  status: 'ready',
+  benchId: 1,
+  personId: 4,
+  start: '2026-03-02T09:00:00Z',
+  end: '2026-03-02T10:30:00Z',
+  pinned: false,
+  version: 1,
+  estimateMinutes: 90,
+  requiredLevel: 1,
+  reason: null,
+  late: false,
+  planned: null,
+  actual: null,
+}
+const estimateOf = (item: BoardItem) =>
+  mount(BoardBarDetails, {
+    props: { item, benchName: new Map([[1, 'Setting bench']]), personName: new Map([[4, 'Ines']]), timeZone: 'Europe/London', canEdit: false, pinning: false },
+    global: { plugins: [ElementPlus] },
+  })
+    .find('[data-test="bar-estimate"]')
+    .text()
+
+describe('estimate in the bar details', () => {
+  it('when the step is bench work of 90 minutes, then it reads in hours and minutes and says nothing of outside work', () => {
+    // 90 minutes = 1 hour 30 minutes, worked out by hand.
+    expect(estimateOf(base)).toBe('1 h 30 min')
+  })
+
+  it('when the step is a casting sent out for 5 working days (no bench minutes), then it reads 5 working days away, never 0 min', () => {
+    const text = estimateOf({ ...base, name: 'Cast', kind: 'casting', outside: true, benchId: null, personId: null, estimateMinutes: 0, outsideDays: 5 })
+    expect(text).toBe('5 working days away (outside work)')
+  })
+
+  it('when outside work is away for one working day, then the day is singular', () => {
+    expect(estimateOf({ ...base, outside: true, estimateMinutes: 0, outsideDays: 1 })).toBe('1 working day away (outside work)')
+  })
+})

@@ -1,0 +1,183 @@
+// The board's days in Chromium: every day shown has its heading and its hour ticks alike (a closed day stays as a narrow marked
+// column when working hours are folded), and a bar dragged across a folded weekend lands where it is dropped.
+import { describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import dayjs from 'dayjs'
+import utc from 'dayjs/plugin/utc'
+import timezone from 'dayjs/plugin/timezone'
+import isoWeek from 'dayjs/plugin/isoWeek'
+import { eq } from 'drizzle-orm'
+import * as s from '../../server/db/schema/index'
+import { barBox, screenshot, signInPage, useE2E } from '../setup/e2e'
+
+dayjs.extend(utc)
+dayjs.extend(timezone)
+dayjs.extend(isoWeek)
+
+const TZ = 'Europe/London'
+const e2e = useE2E()
+
+/** A call through the page's own session (CSRF token from GET /api/session on writes). */
+async function call(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: any }> {
+  return page.evaluate(
+    async ({ method, path, body }) => {
+      const headers: Record<string, string> = { 'content-type': 'application/json' }
+      if (method !== 'GET') headers['x-csrf-token'] = (await (await fetch('/api/session', { credentials: 'same-origin' })).json()).csrfToken
+      const r = await fetch(path, { method, credentials: 'same-origin', headers, body: body === undefined ? undefined : JSON.stringify(body) })
+      return { status: r.status, body: await r.json().catch(() => null) }
+    },
+    { method, path, body },
+  )
+}
+
+/** The board once its data is in and drawn: no "Updating…" and no request in flight. */
+async function settled(page: Page) {
+  await page.locator('[data-test=board-timeline] .vis-panel.vis-center').waitFor()
+  await page.waitForLoadState('networkidle').catch(() => undefined)
+  await page.getByText('Updating…').waitFor({ state: 'hidden', timeout: 20_000 })
+}
+
+interface Heading {
+  day: string
+  x: number
+  width: number
+  closed: boolean
+  ticks: string[]
+}
+/** The day headings on screen, left to right, with their hour ticks. */
+async function headings(page: Page): Promise<Heading[]> {
+  return page.evaluate(() => {
+    const ticks = [...document.querySelectorAll<HTMLElement>('[data-test=board-tick]')]
+    return [...document.querySelectorAll<HTMLElement>('[data-test=board-day]')].map((el) => {
+      const r = el.getBoundingClientRect()
+      return {
+        day: el.dataset.day!,
+        x: r.x,
+        width: r.width,
+        closed: !!el.querySelector('[data-test=board-day-closed]') || el.classList.contains('board-axis__day--closed'),
+        ticks: ticks.filter((t) => t.dataset.day === el.dataset.day).map((t) => t.textContent!.trim()),
+      }
+    })
+  })
+}
+
+describe('days on the board', () => {
+  it('when the week of the stocktake is shown folded, then each weekday has its heading, the closed one marked, and open days tick alike', async () => {
+    const [stocktake] = await e2e.db.db.select().from(s.closures).where(eq(s.closures.name, 'Workshop closed: stocktake'))
+    expect(stocktake, 'the demo has a stocktake day').toBeTruthy()
+    const ctx = await e2e.newContext()
+    const manager = await signInPage(ctx, 'manager')
+    await manager.waitForURL((u) => u.pathname === '/plan')
+    await settled(manager)
+    // Step on from this week to the stocktake's week.
+    const weeks = dayjs(stocktake!.startsOn).startOf('isoWeek').diff(dayjs().tz(TZ).startOf('isoWeek').format('YYYY-MM-DD'), 'week')
+    for (let i = 0; i < weeks; i++) await manager.locator('[data-test=board-next]').click()
+    const monday = dayjs(stocktake!.startsOn).startOf('isoWeek')
+    const weekdays = [0, 1, 2, 3, 4].map((d) => monday.add(d, 'day').format('YYYY-MM-DD'))
+    await expect.poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(weekdays)
+    const shown = await headings(manager)
+    const closures = await e2e.db.db.select().from(s.closures)
+    const isClosed = (day: string) => closures.some((c) => c.startsOn <= day && day <= c.endsOn)
+    for (const h of shown) expect(h.closed, h.day).toBe(isClosed(h.day))
+    expect(shown.find((h) => h.day === stocktake!.startsOn)!.closed).toBe(true)
+    // Open days: the same ticks, from the 08:30 opening.
+    const open = shown.filter((h) => !h.closed)
+    expect(open.length).toBeGreaterThan(1)
+    for (const h of open) {
+      expect(h.ticks[0], h.day).toBe('08:30')
+      expect(h.ticks, h.day).toEqual(open[0]!.ticks)
+    }
+    // The heading sits over the closed day's shading on the rows (both placed on the folded scale).
+    const stocktakeBox = await manager.locator('.vis-item.vis-background.board-bg-closure', { hasText: 'Workshop closed: stocktake' }).boundingBox()
+    expect(Math.abs(stocktakeBox!.x - shown.find((h) => h.day === stocktake!.startsOn)!.x)).toBeLessThan(1.5)
+    await screenshot(manager, 'board-days-01-stocktake-week', { fullPage: false })
+
+    // The whole clock, this week: Monday is named from the left edge, and every weekday has its heading.
+    await manager.locator('[data-test=board-fold]').click()
+    await manager.locator('[data-test=board-today]').click()
+    const thisMonday = dayjs().tz(TZ).startOf('isoWeek')
+    await expect
+      .poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 })
+      .toEqual([0, 1, 2, 3, 4].map((d) => thisMonday.add(d, 'day').format('YYYY-MM-DD')))
+    const panel = (await manager.locator('.vis-panel.vis-center').boundingBox())!
+    const mon = (await headings(manager))[0]!
+    expect(Math.abs(mon.x - panel.x)).toBeLessThan(1.5)
+    await expect(manager.locator(`[data-test=board-day][data-day="${mon.day}"]`).textContent()).resolves.toContain(String(thisMonday.date()))
+    await screenshot(manager, 'board-days-02-whole-clock', { fullPage: false })
+    await ctx.close()
+  })
+
+  it('when a bar is dragged from before a folded weekend to 10:30 on the Monday after it, then the move asks for 10:30 that Monday', async () => {
+    const ctx = await e2e.newContext()
+    const manager = await signInPage(ctx, 'manager')
+    await manager.waitForURL((u) => u.pathname === '/plan')
+    const run = await call(manager, 'POST', '/api/plans/runs', { timeLimitSeconds: 2 })
+    expect(run.status, JSON.stringify(run.body)).toBe(202)
+    await expect.poll(async () => (await call(manager, 'GET', `/api/plans/runs/${run.body.id}`)).body.status, { timeout: 30_000, interval: 300 }).toBe('done')
+    const planId = (await call(manager, 'GET', `/api/plans/runs/${run.body.id}`)).body.planId
+    expect((await call(manager, 'POST', `/api/plans/${planId}/publish`)).status).toBe(200)
+    await manager.goto('/plan')
+    await settled(manager)
+    await manager.locator('[data-test=board-zoom]').getByText('Four weeks', { exact: true }).click()
+    await settled(manager)
+    await manager.waitForFunction(() => /^W\d\d–W\d\d/.test(document.querySelector('[data-test=board-range]')?.textContent?.trim() ?? ''))
+    await settled(manager)
+
+    // The board's own data (the window the board loads: four weeks from this Monday), to read the bars and the closed hours.
+    const from = dayjs().tz(TZ).startOf('isoWeek').format('YYYY-MM-DD')
+    const board = (await call(manager, 'GET', `/api/board?from=${from}&to=${dayjs(from).add(27, 'day').format('YYYY-MM-DD')}`)).body
+    // Shown time between two instants, reckoned here: clock time less the closed stretches of 4 h or more (nights, weekends), which
+    // "working hours only" folds away.
+    const folds = (board.nonWorking as { start: string; end: string }[])
+      .map((x) => ({ start: Date.parse(x.start), end: Date.parse(x.end) }))
+      .filter((x) => x.end - x.start >= 4 * 3_600_000)
+    const shownMs = (a: number, b: number) => b - a - folds.reduce((t, f) => t + Math.max(0, Math.min(b, f.end) - Math.max(a, f.start)), 0)
+    // Bars on screen, with where they start on the board and on screen.
+    const onScreen: { id: number; start: number; x: number; y: number; movable: boolean }[] = []
+    for (const el of await manager.locator('.vis-item.board-bar:not(.board-bar--outside)').all()) {
+      const id = Number(await el.getAttribute('data-id'))
+      const item = board.items.find((i: { id: number }) => i.id === id)
+      const box = await barBox(manager, id)
+      if (!item || !box || box.width < 4) continue
+      const movable = !(await el.getAttribute('class'))!.includes('board-bar--fixed')
+      onScreen.push({ id, start: Date.parse(item.start), x: box.x, y: box.y + box.height / 2, movable })
+    }
+    const closedDays = (board.closures as { startsOn: string; endsOn: string }[]).flatMap((c) => {
+      const out: string[] = []
+      for (let d = dayjs(c.startsOn); !d.isAfter(dayjs(c.endsOn)); d = d.add(1, 'day')) out.push(d.format('YYYY-MM-DD'))
+      return out
+    })
+    // A movable bar on a weekday, and a bar on the Monday after its weekend as a landmark, with no closed day between them.
+    let pick: { bar: (typeof onScreen)[number]; mark: (typeof onScreen)[number]; monday: string } | null = null
+    for (const bar of onScreen.filter((b) => b.movable)) {
+      const day = dayjs(bar.start).tz(TZ)
+      const monday = day.startOf('isoWeek').add(7, 'day').format('YYYY-MM-DD')
+      if (closedDays.some((d) => d > day.format('YYYY-MM-DD') && d <= monday)) continue
+      const mark = onScreen.find((b) => dayjs(b.start).tz(TZ).format('YYYY-MM-DD') === monday)
+      if (mark) {
+        pick = { bar, mark, monday }
+        break
+      }
+    }
+    expect(pick, 'a movable bar before a weekend, and a bar on the Monday after it').toBeTruthy()
+    const { bar, mark, monday } = pick!
+    const id = bar.id
+    // Pixels per shown hour from the two bars; then Monday 10:30 is placed from the Monday bar's start.
+    const pxPerMs = (mark.x - bar.x) / shownMs(bar.start, mark.start)
+    const target = dayjs.tz(`${monday} 10:30`, TZ).valueOf()
+    const grabX = bar.x + 2
+    const y = bar.y
+    const dropX = mark.x + (target < mark.start ? -shownMs(target, mark.start) : shownMs(mark.start, target)) * pxPerMs + 2
+    const asked = manager.waitForRequest((r) => r.method() === 'PATCH' && r.url().endsWith(`/api/board/operations/${id}`), { timeout: 15_000 })
+    await manager.mouse.move(grabX, y)
+    await manager.mouse.down()
+    await manager.mouse.move(grabX + 20, y, { steps: 4 })
+    await manager.mouse.move(dropX, y, { steps: 20 })
+    await manager.mouse.up()
+    const start = (await asked).postDataJSON().start as string
+    // 08:30 + 2 h = 10:30 on that Monday; a pixel is about a quarter of an hour at this width, so within 20 minutes.
+    expect(Math.abs(Date.parse(start) - target), `asked for ${dayjs(start).tz(TZ).format('ddd D MMM HH:mm')}`).toBeLessThanOrEqual(20 * 60_000)
+    await screenshot(manager, 'board-days-03-four-weeks', { fullPage: false })
+    await ctx.close()
+  })
+})

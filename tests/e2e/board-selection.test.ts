@@ -1,0 +1,126 @@
+// A bar picked on the board in Chromium: the arrow keys then move the bar, not the toolbar switch that had the focus; on a
+// tablet the bar's details come on screen.
+import { describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { barBox, DEMO_EMAIL, DEMO_PASSWORD, screenshot, signInPage, signInWith, useE2E } from '../setup/e2e'
+
+const e2e = useE2E()
+
+const rendered = (page: Page) => page.locator('[data-test=board-timeline][data-rendered=true]').waitFor({ timeout: 20_000 })
+
+/** A call through the page's own session (CSRF token from GET /api/session on writes). */
+async function call(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: any }> {
+  return page.evaluate(
+    async ({ method, path, body }) => {
+      const headers: Record<string, string> = { 'content-type': 'application/json' }
+      if (method !== 'GET') headers['x-csrf-token'] = (await (await fetch('/api/session', { credentials: 'same-origin' })).json()).csrfToken
+      const r = await fetch(path, { method, credentials: 'same-origin', headers, body: body === undefined ? undefined : JSON.stringify(body) })
+      return { status: r.status, body: await r.json().catch(() => null) }
+    },
+    { method, path, body },
+  )
+}
+
+/** Runs the planner briefly and publishes its draft, through the API (once for the file). */
+let published: Promise<void> | null = null
+const publishOnce = (page: Page) => (published ??= publishPlan(page))
+async function publishPlan(page: Page) {
+  const run = await call(page, 'POST', '/api/plans/runs', { timeLimitSeconds: 2 })
+  expect(run.status, JSON.stringify(run.body)).toBe(202)
+  await expect.poll(async () => (await call(page, 'GET', `/api/plans/runs/${run.body.id}`)).body.status, { timeout: 30_000, interval: 300 }).toBe('done')
+  const planId = (await call(page, 'GET', `/api/plans/runs/${run.body.id}`)).body.planId
+  expect((await call(page, 'POST', `/api/plans/${planId}/publish`)).status).toBe(200)
+}
+
+/** The board once its data is in: no "Updating…" and no request in flight. */
+async function settled(page: Page) {
+  await rendered(page)
+  await page.waitForLoadState('networkidle').catch(() => undefined)
+  await page.getByText('Updating…').waitFor({ state: 'hidden', timeout: 20_000 })
+}
+
+/** A bar the manager may move, wholly on screen and clear of the edges; the board steps on a week (at most three times) until one is. */
+async function movableBar(page: Page): Promise<{ id: number; start: string }> {
+  for (let i = 0; i < 4; i++) {
+    await settled(page)
+    const panel = (await page.locator('.vis-panel.vis-center').boundingBox())!
+    const ids = await page
+      .locator('.vis-item.board-bar:not(.board-bar--fixed):not(.board-bar--outside)')
+      .evaluateAll((els) => els.map((e) => Number((e as HTMLElement).dataset.id)))
+    for (const id of ids) {
+      const box = await barBox(page, id)
+      if (!box || box.width < 6 || box.x < panel.x + 4) continue
+      const found = await page.evaluate(async (id) => {
+        const from = new Date(Date.now() - 7 * 86_400_000).toISOString().slice(0, 10)
+        const to = new Date(Date.now() + 35 * 86_400_000).toISOString().slice(0, 10)
+        const b = await (await fetch(`/api/board?from=${from}&to=${to}`, { credentials: 'same-origin' })).json()
+        return (b.items as { id: number; start: string }[]).find((x) => x.id === id) ?? null
+      }, id)
+      if (found) return found
+    }
+    await page.locator('[data-test=board-next]').click()
+  }
+  throw new Error('no movable bar on screen in four weeks')
+}
+
+const selectedRows = (page: Page) => page.locator('[data-test=board-rows] .el-segmented__item.is-selected').textContent()
+
+describe('picking a bar on the board', () => {
+  it('when a toolbar switch had the focus and a bar is clicked, then → moves the bar 15 minutes and the rows stay by bench', async () => {
+    const ctx = await e2e.newContext()
+    const manager = await signInPage(ctx, 'manager')
+    await manager.waitForURL((u) => u.pathname === '/plan')
+    await publishOnce(manager)
+    await manager.goto('/plan')
+    await rendered(manager)
+    const bar = await movableBar(manager)
+
+    // The rows switch is used first, so it holds the keyboard focus.
+    await manager.locator('[data-test=board-rows]').getByText('Benches', { exact: true }).click()
+    expect(await manager.evaluate(() => !!document.activeElement?.closest('[data-test=board-rows]'))).toBe(true)
+    await expect(selectedRows(manager)).resolves.toBe('Benches')
+
+    await manager.locator(`.vis-item.board-bar[data-id="${bar.id}"]`).click()
+    await manager.locator('[data-test=bar-details]').waitFor()
+    const asked = manager.waitForRequest((r) => r.method() === 'PATCH' && r.url().endsWith(`/api/board/operations/${bar.id}`), { timeout: 10_000 })
+    await manager.keyboard.press('ArrowRight')
+    // The move asked for: the bar's start plus 15 minutes, worked out here.
+    const request = await asked
+    expect(request.postDataJSON().start).toBe(new Date(Date.parse(bar.start) + 15 * 60_000).toISOString())
+    await expect(selectedRows(manager)).resolves.toBe('Benches')
+    await screenshot(manager, 'board-selection-01-key-on-bar')
+    await ctx.close()
+  })
+
+  it('when a bar is tapped on a 1024 × 768 tablet, then its details come on screen', async () => {
+    const ctx = await e2e.browser.newContext({
+      baseURL: e2e.url,
+      viewport: { width: 1024, height: 768 },
+      locale: 'en-GB',
+      timezoneId: 'Europe/London',
+      hasTouch: true,
+    })
+    const tablet = await ctx.newPage()
+    await signInWith(tablet, DEMO_EMAIL.manager, DEMO_PASSWORD)
+    await tablet.waitForURL((u) => u.pathname === '/plan', { timeout: 30_000 })
+    await publishOnce(tablet)
+    await tablet.goto('/plan')
+    await rendered(tablet)
+    const bar = await movableBar(tablet)
+    await tablet.locator(`.vis-item.board-bar[data-id="${bar.id}"]`).tap()
+    const details = tablet.locator('[data-test=bar-details]')
+    await details.waitFor()
+    // Wholly inside the 768 px of the screen once it has scrolled there (to the pixel: the layout has fractions).
+    await expect
+      .poll(
+        async () => {
+          const box = await details.boundingBox()
+          return !!box && box.y >= -1 && box.y + box.height <= 769
+        },
+        { timeout: 5_000, interval: 100 },
+      )
+      .toBe(true)
+    await screenshot(tablet, 'board-selection-02-tablet-details', { fullPage: false })
+    await ctx.close()
+  })
+})

@@ -1,9 +1,11 @@
-// The details panel's estimate: bench work in hours and minutes, outside work (casting, hallmarking) in the working days it is away.
+// A bar's estimate in its details panel and its hover card: bench work in hours and minutes, outside work (casting,
+// hallmarking) in the working days it is away.
 import { describe, expect, it } from 'vitest'
 import { mount } from '@vue/test-utils'
 import ElementPlus from 'element-plus'
 import type { BoardItem } from '@shared/schemas/board'
 import BoardBarDetails from '@/components/board/BoardBarDetails.vue'
+import BoardBarTooltip from '@/components/board/BoardBarTooltip.vue'
 
 const base: BoardItem = {
   id: 7,
@@ -54,5 +56,31 @@ describe('estimate in the bar details', () => {
 
   it('when outside work is away for one working day, then the day is singular', () => {
     expect(estimateOf({ ...base, outside: true, estimateMinutes: 0, outsideDays: 1 })).toBe('1 working day away (outside work)')
+  })
+})
+
+describe('estimate in the hover card', () => {
+  const tipOf = (item: BoardItem) =>
+    mount(BoardBarTooltip, {
+      props: {
+        item,
+        rect: new DOMRect(10, 10, 100, 20),
+        benchName: new Map([[1, 'Setting bench']]),
+        personName: new Map([[4, 'Ines']]),
+        timeZone: 'Europe/London',
+      },
+      global: { plugins: [ElementPlus] },
+    })
+      .find('[data-test="tip-estimate"]')
+      .text()
+
+  it('when hallmarking is away for 4 working days, then the card says so, not 0 min', () => {
+    expect(tipOf({ ...base, name: 'Hallmarking', outside: true, benchId: null, personId: null, estimateMinutes: 0, outsideDays: 4 })).toBe(
+      '4 working days away (outside work)',
+    )
+  })
+
+  it('when the step is bench work of 90 minutes, then the card shows 1 h 30 min', () => {
+    expect(tipOf(base)).toBe('1 h 30 min')
   })
 })

@@ -257,6 +257,13 @@ export function moveRequest(item: BoardItem, to: DropTarget, rowsBy: RowsBy): Mo
   return Object.keys(body).length > 1 ? body : null
 }
 
+/** A step's estimate as people say it: bench work in hours and minutes, outside work in the working days it is away. */
+export function estimateLabel(item: Pick<BoardItem, 'outside' | 'outsideDays' | 'estimateMinutes'>): string {
+  const days = item.outsideDays
+  if (item.outside && days) return `${days} working day${days === 1 ? '' : 's'} away (outside work)`
+  return `${formatMinutes(item.estimateMinutes)}${item.outside ? ' (outside work)' : ''}`
+}
+
 /** Minutes as "1 h 35 min" / "20 min" / "3 d" (working minutes of an estimate). */
 export function formatMinutes(min: number): string {
   if (min < 60) return `${Math.round(min)} min`

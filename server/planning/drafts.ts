@@ -56,8 +56,12 @@ export async function readDraft(db: Tx, workshopId: number, id: number): Promise
   return fromStored((await getPlan(db, workshopId, id)).assignments)
 }
 
-/** What would move between two sets of assignments: bench, person or start changed. */
-export function diffAssignments(from: Assignments, to: Assignments) {
+/**
+ * What would move between two sets of assignments: bench, person or start changed. With `asOf`, a step that both plans start
+ * at or before that moment (each sent it as soon as it was made) on the same bench and person, ending the same minute, has not
+ * moved — outside work stamped to each planner run's moment comes back the same day either way.
+ */
+export function diffAssignments(from: Assignments, to: Assignments, asOf?: Date) {
   const moved: { operationId: number; from: Assignment | null; to: Assignment | null; change: string[] }[] = []
   for (const id of new Set([...from.keys(), ...to.keys()])) {
     const a = from.get(id) ?? null
@@ -68,7 +72,9 @@ export function diffAssignments(from: Assignments, to: Assignments) {
     else {
       if (a.benchId !== b.benchId) change.push('bench')
       if (a.personId !== b.personId) change.push('person')
-      if (Math.abs(new Date(a.start).getTime() - new Date(b.start).getTime()) >= 60_000) change.push('time')
+      const ms = (t: string) => new Date(t).getTime()
+      const restamped = asOf !== undefined && ms(a.start) <= asOf.getTime() && ms(b.start) <= asOf.getTime() && Math.abs(ms(a.end) - ms(b.end)) < 60_000
+      if (Math.abs(ms(a.start) - ms(b.start)) >= 60_000 && !(restamped && !change.length)) change.push('time')
     }
     if (change.length) moved.push({ operationId: id, from: a, to: b, change })
   }
@@ -145,7 +151,7 @@ async function stepNames(db: Db, workshopId: number, ids: number[]) {
 export async function comparePlan(db: Db, workshopId: number, id: number, againstId?: number, now = new Date()) {
   const draft = await readDraft(db, workshopId, id)
   const base = againstId ? await readDraft(db, workshopId, againstId) : (await readLivePlan(db, workshopId)).assignments
-  const diff = diffAssignments(base, draft)
+  const diff = diffAssignments(base, draft, now)
   const named = await stepNames(
     db,
     workshopId,

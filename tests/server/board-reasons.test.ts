@@ -93,8 +93,9 @@ describe('start reasons on the demo board', () => {
       // The details panel's estimate reads the working days away from the bar (the step's own record, not 0 minutes).
       if (leadDays.get(i.id)! > 0) expect(i.outsideDays, `${i.jobBagNumber} ${i.name}`).toBe(leadDays.get(i.id))
     }
+    // Casting goes out at once only when the plan is made in working hours (at night or at the weekend it leaves at the next
+    // opening, after the board is read); whatever went out before the reading says it went as soon as planning allowed.
     const atOnce = outside.filter((i) => ms(i.start) < readAt)
-    expect(atOnce.length, 'the demo sends some casting out at once').toBeGreaterThan(0)
     for (const i of atOnce)
       expect(i.reason, `${i.jobBagNumber} ${i.name}`).toMatchObject({ kind: 'now', detail: expect.stringMatching(/^goes out as soon as planning allows/) })
   })

@@ -27,6 +27,18 @@ export function weekMonday(day: string): string {
   return dayjs(day).startOf('isoWeek').format('YYYY-MM-DD')
 }
 
+/**
+ * The day the board opens on: today, or, while the workshop is shut (a night, a weekend, a closure), the day it next opens —
+ * on a Saturday the coming week is the one to plan. `nonWorking` is the board's list of the workshop's shut stretches; a
+ * stretch running past `until` (the end of what was loaded) says nothing about when work resumes, so today stays.
+ */
+export function openingDay(now: Date, tz: string, nonWorking: readonly { start: string; end: string }[], until?: Date): string {
+  const t = now.getTime()
+  const shut = nonWorking.find((x) => Date.parse(x.start) <= t && t < Date.parse(x.end))
+  if (!shut || (until && Date.parse(shut.end) >= until.getTime())) return localDay(now, tz)
+  return localDay(shut.end, tz)
+}
+
 /** The data window loaded around an anchor day: four ISO weeks from the anchor's Monday. */
 export function dataWindowFor(anchorDay: string): { from: string; to: string } {
   const from = weekMonday(anchorDay)

@@ -7,7 +7,7 @@ import { usePlannerRunStore } from '@/stores/planner-run'
 import type { MoveInput } from '@shared/schemas/plan'
 import { ApiError } from '@/api/client'
 import { messageOf } from '@/composables/use-api-error'
-import { dataWindowFor, localDay, shiftAnchor, type ColourBy, type RowsBy, type Zoom } from '@/lib/board-calendar'
+import { dataWindowFor, dayStart, localDay, openingDay, shiftAnchor, type ColourBy, type RowsBy, type Zoom } from '@/lib/board-calendar'
 
 export type BoardTab = 'timeline' | 'load'
 
@@ -19,6 +19,10 @@ export const useBoardStore = defineStore('board', () => {
   const timeZone = ref('Europe/London')
   /** The day the view is centred on (workshop calendar day). */
   const anchorDay = ref(localDay(new Date(), timeZone.value))
+  /** Set when the board opens and on "Today": once the workshop's hours are loaded, the anchor goes to the day it next works. */
+  let seekOpening = true
+  /** Counts the anchor moves made that way, for the view to show the new range. */
+  const openingMoves = ref(0)
   const zoom = ref<Zoom>('week')
   const rowsBy = ref<RowsBy>('bench')
   const colourBy = ref<ColourBy>('kind')
@@ -72,6 +76,20 @@ export const useBoardStore = defineStore('board', () => {
     try {
       const d = await plansApi.getBoard({ ...dataWindow.value, planId: viewPlanId.value ?? undefined })
       if (gen !== boardGen) return
+      if (seekOpening) {
+        // Opened (or "Today" pressed) while the workshop is shut: settle on the day it next works before anything is drawn.
+        seekOpening = false
+        const day = openingDay(new Date(), d.window.timeZone, d.nonWorking, dayStart(d.window.to, d.window.timeZone))
+        if (day !== anchorDay.value) {
+          const before = dataWindow.value.from
+          anchorDay.value = day
+          openingMoves.value++
+          if (dataWindow.value.from !== before) {
+            if (tab.value === 'load') void loadWeekLoad().catch(() => undefined)
+            return loadBoard()
+          }
+        }
+      }
       data.value = d
       timeZone.value = d.window.timeZone
       error.value = null
@@ -144,7 +162,18 @@ export const useBoardStore = defineStore('board', () => {
     if (dataWindow.value.from !== before) void refreshWindow()
   }
   const step = (direction: -1 | 1) => setAnchor(shiftAnchor(anchorDay.value, zoom.value, direction))
-  const today = () => setAnchor(localDay(new Date(), timeZone.value))
+  /** Today, or the day the workshop next works when it is shut now (read from the loaded weeks when they hold now, else once loaded). */
+  const today = () => {
+    const now = new Date()
+    const d = data.value
+    const day = localDay(now, timeZone.value)
+    if (d && d.window.from <= day && day <= d.window.to) {
+      setAnchor(openingDay(now, timeZone.value, d.nonWorking, dayStart(d.window.to, timeZone.value)))
+      return
+    }
+    seekOpening = true
+    setAnchor(day)
+  }
   async function refreshWindow() {
     await Promise.all([loadBoard(), tab.value === 'load' ? loadWeekLoad().catch(() => undefined) : Promise.resolve()])
   }
@@ -229,6 +258,7 @@ export const useBoardStore = defineStore('board', () => {
   return {
     timeZone,
     anchorDay,
+    openingMoves,
     zoom,
     rowsBy,
     colourBy,

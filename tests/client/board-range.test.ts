@@ -1,6 +1,6 @@
 // The board toolbar's range label: the zoom's range, or the days the timeline really shows once it left it.
 import { describe, expect, it } from 'vitest'
-import { shownRangeLabel, zoomRangeLabel } from '@/lib/board-calendar'
+import { openingDay, shownRangeLabel, zoomRangeLabel } from '@/lib/board-calendar'
 
 const TZ = 'Europe/London'
 // December in London is GMT (UTC+0), so these instants are the workshop's local times.
@@ -30,5 +30,28 @@ describe('board range label', () => {
 
   it('when the range stays inside one day, then the label is that day', () => {
     expect(shownRangeLabel(at('2026-12-03T09:00:00'), at('2026-12-03T12:00:00'), TZ)).toBe('W49 · Thursday 3 December 2026')
+  })
+})
+
+describe('the day the board opens on (pure rule)', () => {
+  // Hand-worked from a Monday–Friday week of 08:30–12:30 and 13:15–17:00 (common practice, no source); London is GMT in December.
+  const shut = [
+    { start: '2026-12-03T17:00:00.000Z', end: '2026-12-04T08:30:00.000Z' },
+    { start: '2026-12-04T17:00:00.000Z', end: '2026-12-07T08:30:00.000Z' },
+    { start: '2026-12-22T17:00:00.000Z', end: '2027-01-04T08:30:00.000Z' },
+  ]
+  it('when the workshop is open, then today', () => {
+    expect(openingDay(at('2026-12-04T10:00:00'), TZ, shut)).toBe('2026-12-04')
+  })
+  it('when it is Thursday night after midnight, then Friday (the same day, the stretch ends that morning)', () => {
+    expect(openingDay(at('2026-12-04T02:00:00'), TZ, shut)).toBe('2026-12-04')
+  })
+  it('when it is Friday evening or the weekend, then the Monday after', () => {
+    expect(openingDay(at('2026-12-04T17:00:00'), TZ, shut)).toBe('2026-12-07')
+    expect(openingDay(at('2026-12-06T23:59:00'), TZ, shut)).toBe('2026-12-07')
+  })
+  it('when the shut stretch runs past what was loaded, then today stays (when it opens again is not known)', () => {
+    expect(openingDay(at('2026-12-24T09:00:00'), TZ, shut, at('2026-12-27T00:00:00'))).toBe('2026-12-24')
+    expect(openingDay(at('2026-12-24T09:00:00'), TZ, shut, at('2027-01-10T00:00:00'))).toBe('2027-01-04')
   })
 })

@@ -10,7 +10,7 @@ vi.mock('@/api/plans', async () => ({ ...(await vi.importActual<object>('@/api/p
 const { useBoardStore } = await import('@/stores/board')
 
 const item = { id: 9, name: 'Barrel and polish', jobBagNumber: 'MG26-0066-1', version: 2 } as BoardItem
-const emptyBoard = { window: { from: '2026-11-30', to: '2026-12-27', timeZone: 'Europe/London' }, items: [], jobs: [], benches: [], people: [] }
+const emptyBoard = { window: { from: '2026-11-30', to: '2026-12-27', timeZone: 'Europe/London' }, items: [], jobs: [], benches: [], people: [], nonWorking: [] }
 
 beforeEach(() => {
   setActivePinia(createPinia())
@@ -105,5 +105,66 @@ describe('planner runs', () => {
     store.run = { ...run('done'), planId: 12 }
     store.onFailed({ runId: 'run-1', error: 'late news' })
     expect(store.run).toMatchObject({ status: 'done', planId: 12, error: null })
+  })
+})
+
+describe('the day the board opens on', () => {
+  // The demo workshop's week (common practice for a small workshop, no source): Monday to Friday 08:30–12:30 and 13:15–17:00.
+  // December in London is GMT, so these UTC instants are the workshop's own clock. Sat 5 Dec 2026 is in ISO week 49 (Mon 30 Nov).
+  const shut = [
+    { start: '2026-12-04T17:00:00.000Z', end: '2026-12-07T08:30:00.000Z' },
+    { start: '2026-12-07T12:30:00.000Z', end: '2026-12-07T13:15:00.000Z' },
+    { start: '2026-12-07T17:00:00.000Z', end: '2026-12-08T08:30:00.000Z' },
+  ]
+  const week49 = { ...emptyBoard, nonWorking: shut }
+  const week50 = { ...emptyBoard, window: { from: '2026-12-07', to: '2027-01-03', timeZone: 'Europe/London' }, nonWorking: shut }
+
+  it('when it is opened on a Saturday, then it moves on to Monday 7 December and loads the weeks from there', async () => {
+    vi.useFakeTimers({ toFake: ['Date'] })
+    vi.setSystemTime(new Date('2026-12-05T10:00:00.000Z'))
+    try {
+      api.getBoard.mockImplementation(async (q: { from: string }) => (q.from === '2026-12-07' ? week50 : week49))
+      const store = useBoardStore()
+      expect(store.anchorDay).toBe('2026-12-05')
+      await store.loadBoard()
+      expect(store.anchorDay).toBe('2026-12-07')
+      expect(store.openingMoves).toBe(1)
+      await vi.waitFor(() => expect(api.getBoard).toHaveBeenCalledWith(expect.objectContaining({ from: '2026-12-07', to: '2027-01-03' })))
+    } finally {
+      vi.useRealTimers()
+    }
+  })
+
+  it('when it is opened on Monday at lunch, then it stays on Monday; moved away, "Today" brings it back', async () => {
+    vi.useFakeTimers({ toFake: ['Date'] })
+    vi.setSystemTime(new Date('2026-12-07T12:45:00.000Z'))
+    try {
+      api.getBoard.mockResolvedValue(week50)
+      const store = useBoardStore()
+      await store.loadBoard()
+      expect(store.anchorDay).toBe('2026-12-07')
+      expect(store.openingMoves).toBe(0)
+      store.setAnchor('2026-12-09')
+      store.today()
+      expect(store.anchorDay).toBe('2026-12-07')
+    } finally {
+      vi.useRealTimers()
+    }
+  })
+
+  it('when "Today" is pressed on a Friday evening, then the board goes to the Monday after', async () => {
+    vi.useFakeTimers({ toFake: ['Date'] })
+    vi.setSystemTime(new Date('2026-12-04T18:30:00.000Z'))
+    try {
+      api.getBoard.mockResolvedValue(week49)
+      const store = useBoardStore()
+      await store.loadBoard()
+      expect(store.anchorDay).toBe('2026-12-07')
+      store.setAnchor('2026-11-30')
+      store.today()
+      await vi.waitFor(() => expect(store.anchorDay).toBe('2026-12-07'))
+    } finally {
+      vi.useRealTimers()
+    }
   })
 })

@@ -36,6 +36,7 @@ const board = (items: BoardItem[]) => ({
   jobs: [],
   benches: [],
   people: [],
+  nonWorking: [],
 })
 const run = (status: PlanRun['status'], extra: Partial<PlanRun> = {}): PlanRun => ({
   id: 'run-1',

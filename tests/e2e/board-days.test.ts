@@ -8,7 +8,7 @@ import timezone from 'dayjs/plugin/timezone'
 import isoWeek from 'dayjs/plugin/isoWeek'
 import { eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
-import { barBox, screenshot, signInPage, useE2E } from '../setup/e2e'
+import { barBox, screenshot, signInPage, useE2E, call } from '../setup/e2e'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
@@ -16,19 +16,6 @@ dayjs.extend(isoWeek)
 
 const TZ = 'Europe/London'
 const e2e = useE2E()
-
-/** A call through the page's own session (CSRF token from GET /api/session on writes). */
-async function call(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: any }> {
-  return page.evaluate(
-    async ({ method, path, body }) => {
-      const headers: Record<string, string> = { 'content-type': 'application/json' }
-      if (method !== 'GET') headers['x-csrf-token'] = (await (await fetch('/api/session', { credentials: 'same-origin' })).json()).csrfToken
-      const r = await fetch(path, { method, credentials: 'same-origin', headers, body: body === undefined ? undefined : JSON.stringify(body) })
-      return { status: r.status, body: await r.json().catch(() => null) }
-    },
-    { method, path, body },
-  )
-}
 
 /** The board once its data is in and drawn: no "Updating…" and no request in flight. */
 async function settled(page: Page) {
@@ -69,8 +56,13 @@ describe('days on the board', () => {
     const manager = await signInPage(ctx, 'manager')
     await manager.waitForURL((u) => u.pathname === '/plan')
     await settled(manager)
-    // Step on from this week to the stocktake's week.
-    const weeks = dayjs(stocktake!.startsOn).startOf('isoWeek').diff(dayjs().tz(TZ).startOf('isoWeek').format('YYYY-MM-DD'), 'week')
+    // The board opens on this week, or on the next one while the workshop is shut for the weekend: its first heading says which.
+    await expect.poll(async () => (await headings(manager)).length, { timeout: 10_000 }).toBe(5)
+    const openMonday = (await headings(manager))[0]!.day
+    expect(dayjs(openMonday).isoWeekday(), 'the week view starts on a Monday').toBe(1)
+    // Step on from there to the stocktake's week.
+    const weeks = dayjs(stocktake!.startsOn).startOf('isoWeek').diff(openMonday, 'week')
+    expect(weeks, 'the stocktake is not before the week the board opens on').toBeGreaterThanOrEqual(0)
     for (let i = 0; i < weeks; i++) await manager.locator('[data-test=board-next]').click()
     const monday = dayjs(stocktake!.startsOn).startOf('isoWeek')
     const weekdays = [0, 1, 2, 3, 4].map((d) => monday.add(d, 'day').format('YYYY-MM-DD'))
@@ -92,10 +84,10 @@ describe('days on the board', () => {
     expect(Math.abs(stocktakeBox!.x - shown.find((h) => h.day === stocktake!.startsOn)!.x)).toBeLessThan(1.5)
     await screenshot(manager, 'board-days-01-stocktake-week', { fullPage: false })
 
-    // The whole clock, this week: Monday is named from the left edge, and every weekday has its heading.
+    // The whole clock, back on the week the board opened on: Monday is named from the left edge, and every weekday has its heading.
     await manager.locator('[data-test=board-fold]').click()
     await manager.locator('[data-test=board-today]').click()
-    const thisMonday = dayjs().tz(TZ).startOf('isoWeek')
+    const thisMonday = dayjs(openMonday)
     await expect
       .poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 })
       .toEqual([0, 1, 2, 3, 4].map((d) => thisMonday.add(d, 'day').format('YYYY-MM-DD')))
@@ -133,14 +125,14 @@ describe('days on the board', () => {
       .filter((x) => x.end - x.start >= 4 * 3_600_000)
     const shownMs = (a: number, b: number) => b - a - folds.reduce((t, f) => t + Math.max(0, Math.min(b, f.end) - Math.max(a, f.start)), 0)
     // Bars on screen, with where they start on the board and on screen.
-    const onScreen: { id: number; start: number; x: number; y: number; movable: boolean }[] = []
+    const onScreen: { id: number; start: number; x: number; y: number; width: number; movable: boolean }[] = []
     for (const el of await manager.locator('.vis-item.board-bar:not(.board-bar--outside)').all()) {
       const id = Number(await el.getAttribute('data-id'))
       const item = board.items.find((i: { id: number }) => i.id === id)
       const box = await barBox(manager, id)
       if (!item || !box || box.width < 4) continue
       const movable = !(await el.getAttribute('class'))!.includes('board-bar--fixed')
-      onScreen.push({ id, start: Date.parse(item.start), x: box.x, y: box.y + box.height / 2, movable })
+      onScreen.push({ id, start: Date.parse(item.start), x: box.x, y: box.y + box.height / 2, width: box.width, movable })
     }
     const closedDays = (board.closures as { startsOn: string; endsOn: string }[]).flatMap((c) => {
       const out: string[] = []
@@ -149,7 +141,9 @@ describe('days on the board', () => {
     })
     // A movable bar on a weekday, and a bar on the Monday after its weekend as a landmark, with no closed day between them.
     let pick: { bar: (typeof onScreen)[number]; mark: (typeof onScreen)[number]; monday: string } | null = null
-    for (const bar of onScreen.filter((b) => b.movable)) {
+    // The bar dragged is at least 10 px wide and grabbed 5 px in: a narrower one is mostly its edges, where a drag would stretch
+    // it rather than move it.
+    for (const bar of onScreen.filter((b) => b.movable && b.width >= 10)) {
       const day = dayjs(bar.start).tz(TZ)
       const monday = day.startOf('isoWeek').add(7, 'day').format('YYYY-MM-DD')
       if (closedDays.some((d) => d > day.format('YYYY-MM-DD') && d <= monday)) continue
@@ -165,16 +159,26 @@ describe('days on the board', () => {
     // Pixels per shown hour from the two bars; then Monday 10:30 is placed from the Monday bar's start.
     const pxPerMs = (mark.x - bar.x) / shownMs(bar.start, mark.start)
     const target = dayjs.tz(`${monday} 10:30`, TZ).valueOf()
-    const grabX = bar.x + 2
+    const grabX = bar.x + 5
     const y = bar.y
-    const dropX = mark.x + (target < mark.start ? -shownMs(target, mark.start) : shownMs(mark.start, target)) * pxPerMs + 2
+    const dropX = mark.x + (target < mark.start ? -shownMs(target, mark.start) : shownMs(mark.start, target)) * pxPerMs + 5
     const asked = manager.waitForRequest((r) => r.method() === 'PATCH' && r.url().endsWith(`/api/board/operations/${id}`), { timeout: 15_000 })
     await manager.mouse.move(grabX, y)
     await manager.mouse.down()
     await manager.mouse.move(grabX + 20, y, { steps: 4 })
     await manager.mouse.move(dropX, y, { steps: 20 })
     await manager.mouse.up()
-    const start = (await asked).postDataJSON().start as string
+    const start = (
+      await asked.catch(async (e: Error) => {
+        // No move asked for: keep what the board showed, and where the drag went, for whoever reads the failure.
+        await screenshot(manager, 'board-days-03-drag-without-move', { fullPage: false })
+        const refusal = await manager
+          .locator('[data-test=board-refusal]')
+          .textContent({ timeout: 1000 })
+          .catch(() => null)
+        throw new Error(`${e.message} — bar ${id} dragged from x ${grabX} to ${dropX} at y ${y}; refusal: ${refusal ?? 'none'}`)
+      })
+    ).postDataJSON().start as string
     // 08:30 + 2 h = 10:30 on that Monday; a pixel is about a quarter of an hour at this width, so within 20 minutes.
     expect(Math.abs(Date.parse(start) - target), `asked for ${dayjs(start).tz(TZ).format('ddd D MMM HH:mm')}`).toBeLessThanOrEqual(20 * 60_000)
     await screenshot(manager, 'board-days-03-four-weeks', { fullPage: false })

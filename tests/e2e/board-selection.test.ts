@@ -2,24 +2,11 @@
 // tablet the bar's details come on screen.
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import { barBox, DEMO_EMAIL, DEMO_PASSWORD, screenshot, signInPage, signInWith, useE2E } from '../setup/e2e'
+import { barBox, DEMO_EMAIL, DEMO_PASSWORD, screenshot, signInPage, signInWith, useE2E, call } from '../setup/e2e'
 
 const e2e = useE2E()
 
 const rendered = (page: Page) => page.locator('[data-test=board-timeline][data-rendered=true]').waitFor({ timeout: 20_000 })
-
-/** A call through the page's own session (CSRF token from GET /api/session on writes). */
-async function call(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: any }> {
-  return page.evaluate(
-    async ({ method, path, body }) => {
-      const headers: Record<string, string> = { 'content-type': 'application/json' }
-      if (method !== 'GET') headers['x-csrf-token'] = (await (await fetch('/api/session', { credentials: 'same-origin' })).json()).csrfToken
-      const r = await fetch(path, { method, credentials: 'same-origin', headers, body: body === undefined ? undefined : JSON.stringify(body) })
-      return { status: r.status, body: await r.json().catch(() => null) }
-    },
-    { method, path, body },
-  )
-}
 
 /** Runs the planner briefly and publishes its draft, through the API (once for the file). */
 let published: Promise<void> | null = null

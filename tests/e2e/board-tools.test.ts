@@ -9,7 +9,7 @@ import timezone from 'dayjs/plugin/timezone'
 import isoWeek from 'dayjs/plugin/isoWeek'
 import { eq, inArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
-import { barBox, screenshot, signInPage, useE2E } from '../setup/e2e'
+import { barBox, screenshot, signInPage, useE2E, call } from '../setup/e2e'
 import { bookLastStepLate, firstWorkshopId, openOrder, readyBenchStep } from '../setup/fixtures'
 
 dayjs.extend(utc)
@@ -35,19 +35,6 @@ interface Bar {
 }
 
 const rendered = (page: Page) => page.locator('[data-test=board-timeline][data-rendered=true]').waitFor({ timeout: 20_000 })
-
-/** A call through the page's own session (CSRF token from GET /api/session on writes). */
-async function call(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: any }> {
-  return page.evaluate(
-    async ({ method, path, body }) => {
-      const headers: Record<string, string> = { 'content-type': 'application/json' }
-      if (method !== 'GET') headers['x-csrf-token'] = (await (await fetch('/api/session', { credentials: 'same-origin' })).json()).csrfToken
-      const r = await fetch(path, { method, credentials: 'same-origin', headers, body: body === undefined ? undefined : JSON.stringify(body) })
-      return { status: r.status, body: await r.json().catch(() => null) }
-    },
-    { method, path, body },
-  )
-}
 
 const boxOf = barBox
 
@@ -109,7 +96,6 @@ describe("the manager's board tools", () => {
     // two time records 09:10–10:45 and 11:05–12:20 London time, written straight into the database as the bench would have.
     let day = dayjs().tz(TZ).startOf('day').subtract(1, 'day')
     while (day.isoWeekday() > 5) day = day.subtract(1, 'day')
-    const weeksBack = dayjs().tz(TZ).startOf('isoWeek').isAfter(day) ? 1 : 0
     const at = (hhmm: string) => dayjs.tz(`${day.format('YYYY-MM-DD')} ${hhmm}`, TZ).toISOString()
     const db = e2e.db.db
     const stepNow = async (id: number) =>
@@ -132,9 +118,14 @@ describe("the manager's board tools", () => {
     expect((await call(manager, 'POST', `/api/plans/${planId}/publish`)).status).toBe(200)
     await manager.goto('/plan')
     await rendered(manager)
-    for (let i = 0; i < weeksBack; i++) {
+    // The board opens on today, or on the day the workshop next works while it is shut (a night, a weekend): that day's week
+    // may come after the finished step's, so the board steps back a week (at most twice) until the step is on it.
+    const finishedBar = manager.locator(`.vis-item.board-bar[data-id="${op.id}"]`)
+    let weeksBack = 0
+    while (!(await finishedBar.count()) && weeksBack < 2) {
       await manager.locator('[data-test=board-prev]').click()
-      await rendered(manager)
+      weeksBack++
+      await finishedBar.waitFor({ state: 'attached', timeout: 10_000 }).catch(() => undefined)
     }
 
     // The finished bar: hatched, not draggable, at the times the database holds.
@@ -151,6 +142,8 @@ describe("the manager's board tools", () => {
     )
     // 95 + 75 = 170 min worked (hand-worked from the two records above); the database must agree.
     expect(rec.minutes).toBe(170)
+    // The timeline itself is shown, not only its bars in the page (it once stayed hidden when opened right on its window).
+    await expect(manager.locator('.vis-timeline').evaluate((el) => getComputedStyle(el).visibility)).resolves.toBe('visible')
     await done.hover()
     const tip = manager.locator('[data-test=bar-tooltip]')
     await tip.waitFor()

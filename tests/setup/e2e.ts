@@ -178,3 +178,16 @@ export async function screenshot(page: Page, name: string, o: { fullPage?: boole
 export async function navTargets(page: Page): Promise<string[]> {
   return page.locator('nav[aria-label=Main] [data-nav]').evaluateAll((els) => els.map((e) => e.getAttribute('data-nav') ?? ''))
 }
+
+/** A call through the page's own session (CSRF token from GET /api/session on writes). */
+export async function call(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: any }> {
+  return page.evaluate(
+    async ({ method, path, body }) => {
+      const headers: Record<string, string> = { 'content-type': 'application/json' }
+      if (method !== 'GET') headers['x-csrf-token'] = (await (await fetch('/api/session', { credentials: 'same-origin' })).json()).csrfToken
+      const r = await fetch(path, { method, credentials: 'same-origin', headers, body: body === undefined ? undefined : JSON.stringify(body) })
+      return { status: r.status, body: await r.json().catch(() => null) }
+    },
+    { method, path, body },
+  )
+}

@@ -108,6 +108,41 @@ describe('picking a bar on the board', () => {
       )
       .toBe(true)
     await screenshot(tablet, 'board-selection-02-tablet-details', { fullPage: false })
+    // A tap is not a hover: no hover card stays on screen over the details.
+    await tablet.waitForTimeout(400)
+    await expect(tablet.locator('[data-test=bar-tooltip]').count()).resolves.toBe(0)
+
+    // A key move refused on the tablet: its reason comes on screen below the header, wherever the page was scrolled.
+    const outside = tablet.locator('.vis-item.board-bar.board-bar--outside').first()
+    await outside.scrollIntoViewIfNeeded()
+    const outsideId = Number(await outside.getAttribute('data-id'))
+    // Brought into view, the bar stays level with its row's name (the names' panel scrolls with the bars).
+    const outsideRow = tablet.locator('.vis-label', { hasText: 'Outside work' })
+    await expect
+      .poll(
+        async () => {
+          const [bar, row] = [await outside.boundingBox(), await outsideRow.boundingBox()]
+          return !!bar && !!row && bar.y >= row.y - 1 && bar.y + bar.height <= row.y + row.height + 1
+        },
+        { timeout: 5_000, interval: 100 },
+      )
+      .toBe(true)
+    await outside.tap()
+    await expect.poll(async () => Number(await tablet.locator('[data-test=bar-details]').getAttribute('data-operation')), { timeout: 5_000 }).toBe(outsideId)
+    await tablet.keyboard.press('ArrowUp')
+    const refusal = tablet.locator('[data-test=board-refusal]')
+    await expect(refusal.textContent()).resolves.toMatch(/is outside work; it has no bench or person row/)
+    const header = (await tablet.locator('header.shell__top').boundingBox())!
+    await expect
+      .poll(
+        async () => {
+          const box = await refusal.boundingBox()
+          return !!box && box.y >= header.y + header.height - 1 && box.y + box.height <= 769
+        },
+        { timeout: 5_000, interval: 100 },
+      )
+      .toBe(true)
+    await screenshot(tablet, 'board-selection-03-tablet-refusal', { fullPage: false })
     await ctx.close()
   })
 })

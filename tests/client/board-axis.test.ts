@@ -137,6 +137,23 @@ describe('day headings', () => {
     )
     expect(dayHeadings(scale, TZ, []).map((d) => d.label)).toEqual(['Mon 7', 'Tue 8'])
   })
+  it('when a closed day is too narrow for even its date, then it shows no figure (a clipped "25" would read "2"), and its title names it', () => {
+    // Christmas Day closed, four weeks at 3.5 px an hour: its kept 09:00–12:00 is 10.5 px; "25" needs 2 × 7 + 8 = 22 px.
+    const nonWorking = [
+      { start: iso('2026-12-24', '17:00'), end: iso('2026-12-29', '08:30') },
+      { start: iso('2026-12-29', '17:00'), end: iso('2026-12-30', '08:30') },
+    ]
+    const closures = [{ name: 'Bank holiday: Christmas Day', startsOn: '2026-12-25', endsOn: '2026-12-25' }]
+    const folded = foldedStretches({ nonWorking, closures, window: w52.window })
+    const scale = axisScale({ start: at('2026-12-24', '08:30'), end: at('2026-12-29', '17:00') }, 3.5 * (8.5 + 3 + 8.5), folded)
+    const h = dayHeadings(scale, TZ, closures)
+    const xmas = h.find((d) => d.day === '2026-12-25')!
+    expect(xmas.width).toBeCloseTo(10.5, 6)
+    expect(xmas.label).toBe('')
+    expect(xmas.title).toBe('Friday 25 December 2026 — Bank holiday: Christmas Day')
+    // The open days beside it, 29.75 px each, still carry their date.
+    expect(h.find((d) => d.day === '2026-12-24')!.label).toBe('24')
+  })
 })
 
 describe('hour ticks', () => {

@@ -111,7 +111,8 @@ const fits = (text: string, width: number) => text.length * 7 + 8 <= width
 /**
  * A heading for every day with shown time, from where it starts on screen to where it ends (a day cut by the range's edge is
  * named from the edge); a closed day carries its closure's name. Labels take one form for all the days of ordinary width (the
- * longest every one of them holds), and a shorter one where a day is narrower (a closed day, a day cut by the edge).
+ * longest every one of them holds), and a shorter one where a day is narrower (a closed day, a day cut by the edge); none
+ * where not even the date fits.
  */
 export function dayHeadings(s: AxisScale, tz: string, closures: Closure[]): DayHeading[] {
   const days = daysOf(s, tz)
@@ -130,11 +131,13 @@ export function dayHeadings(s: AxisScale, tz: string, closures: Closure[]): DayH
   const common = Math.max(0, ...days.filter((d) => d.width >= widest * 0.6).map(longest))
   return days.map((d) => {
     const closure = closureOn(closures, d.day)
+    const label = d.labels[Math.max(common, longest(d))]!
     return {
       day: d.day,
       x: d.x,
       width: d.width,
-      label: d.labels[Math.max(common, longest(d))]!,
+      // Where not even the date fits (a closed day's narrow column in four weeks), none: a clipped "25" reads "2". Its title names it.
+      label: fits(label, d.width) ? label : '',
       closed: closure?.name ?? null,
       note: closure && fits('closed', d.width) ? 'closed' : null,
       title: `${d.date.format('dddd D MMMM YYYY')}${closure ? ` — ${closure.name}` : ''}`,

@@ -300,11 +300,15 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
       const joint = outside ? problem.workshopDays : jointOf(s.benchId, s.personId)
       const free = workIn(joint, allowed, s.start)
       const length = free >= 60 ? `${Math.round(free / 6) / 10} h` : `${free} min`
+      // The first working minute from which it could start: now, or when its bench, person or predecessor allow, whichever last.
+      const w = joint.find((x) => x.end > allowed)
+      const earliest = w ? Math.max(allowed, w.start) : allowed
+      const from = allowed <= now ? 'now' : at(earliest)
       out.set(s.operationId, {
         kind: 'by-hand',
         detail: outside
           ? `placed at ${at(s.start)}; it could go out from ${at(allowed)}${away}`
-          : `placed at ${at(s.start)}; its bench and person are free ${length} of working time before it`,
+          : `placed at ${at(s.start)}; it could start ${length} of working time earlier, from ${from} (its bench and person free, its earlier steps done)`,
       })
       continue
     }

@@ -52,6 +52,25 @@ describe('start reasons from the plan as it stands', () => {
     // 08:00–09:00 free on bench A with Ada: 60 working minutes (hand-worked).
     expect(why.get('b')?.detail).toContain('1 h')
   })
+  it('when a bar is moved by hand later than now, with its bench free since earlier in the day, then it says how much earlier it could start, counted from now (not from when the bench fell free)', () => {
+    // Now 10:00; bench A and Ada were free from 08:00 (nothing on them); B is put at 11:00. It could start at 10:00, not 08:00:
+    // 60 working minutes earlier (hand-worked), the time before now being past.
+    const why = explainStarts({ ...problem, now: at(0, 10) }, [{ operationId: 'b', benchId: 'b1', personId: 'p1', start: at(0, 11), end: at(0, 12) }])
+    expect(why.get('b')?.kind).toBe('by-hand')
+    expect(why.get('b')?.detail).toContain('could start 1 h of working time earlier')
+    expect(why.get('b')?.detail).toContain('from now')
+    expect(why.get('b')?.detail).not.toMatch(/free 1 h/)
+  })
+  it('when the bench falls free after now, then the earlier start is named by its time, and lunch is not counted', () => {
+    // Now 08:00; A on bench A until 11:30, B put at 13:30: free 11:30–12:00 and 13:00–13:30, 60 working minutes (hand-worked).
+    const why = explainStarts(problem, [
+      { operationId: 'a', benchId: 'b1', personId: 'p1', start: at(0, 10, 30), end: at(0, 11, 30) },
+      { operationId: 'b', benchId: 'b1', personId: 'p1', start: at(0, 13, 30), end: at(0, 14, 30) },
+    ])
+    expect(why.get('b')?.kind).toBe('by-hand')
+    expect(why.get('b')?.detail).toContain('could start 1 h of working time earlier')
+    expect(why.get('b')?.detail).toMatch(/from Mon \d+ \w+ 11:30 /)
+  })
   it('when a step starts at 13:00 after lunch with nothing else in the way, then it starts as soon as planning allows (nothing but the lunch break before it)', () => {
     const why = explainStarts({ ...problem, now: at(0, 12, 10) }, [{ operationId: 'b', benchId: 'b1', personId: 'p1', start: at(0, 13), end: at(0, 14) }])
     expect(why.get('b')?.kind).toBe('now')

@@ -8,7 +8,7 @@ import timezone from 'dayjs/plugin/timezone'
 import isoWeek from 'dayjs/plugin/isoWeek'
 import { eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
-import { barBox, screenshot, signInPage, useE2E, call } from '../setup/e2e'
+import { barBox, screenshot, signInPage, useE2E, call, publishPlan } from '../setup/e2e'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
@@ -103,11 +103,7 @@ describe('days on the board', () => {
     const ctx = await e2e.newContext()
     const manager = await signInPage(ctx, 'manager')
     await manager.waitForURL((u) => u.pathname === '/plan')
-    const run = await call(manager, 'POST', '/api/plans/runs', { timeLimitSeconds: 2 })
-    expect(run.status, JSON.stringify(run.body)).toBe(202)
-    await expect.poll(async () => (await call(manager, 'GET', `/api/plans/runs/${run.body.id}`)).body.status, { timeout: 30_000, interval: 300 }).toBe('done')
-    const planId = (await call(manager, 'GET', `/api/plans/runs/${run.body.id}`)).body.planId
-    expect((await call(manager, 'POST', `/api/plans/${planId}/publish`)).status).toBe(200)
+    await publishPlan(manager)
     await manager.goto('/plan')
     await settled(manager)
     await manager.locator('[data-test=board-zoom]').getByText('Four weeks', { exact: true }).click()

@@ -2,7 +2,7 @@
 // tablet the bar's details come on screen.
 import { describe, expect, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import { barBox, DEMO_EMAIL, DEMO_PASSWORD, screenshot, signInPage, signInWith, useE2E, call } from '../setup/e2e'
+import { barBox, DEMO_EMAIL, DEMO_PASSWORD, screenshot, signInPage, signInWith, useE2E, publishPlan } from '../setup/e2e'
 
 const e2e = useE2E()
 
@@ -11,13 +11,6 @@ const rendered = (page: Page) => page.locator('[data-test=board-timeline][data-r
 /** Runs the planner briefly and publishes its draft, through the API (once for the file). */
 let published: Promise<void> | null = null
 const publishOnce = (page: Page) => (published ??= publishPlan(page))
-async function publishPlan(page: Page) {
-  const run = await call(page, 'POST', '/api/plans/runs', { timeLimitSeconds: 2 })
-  expect(run.status, JSON.stringify(run.body)).toBe(202)
-  await expect.poll(async () => (await call(page, 'GET', `/api/plans/runs/${run.body.id}`)).body.status, { timeout: 30_000, interval: 300 }).toBe('done')
-  const planId = (await call(page, 'GET', `/api/plans/runs/${run.body.id}`)).body.planId
-  expect((await call(page, 'POST', `/api/plans/${planId}/publish`)).status).toBe(200)
-}
 
 /** The board once its data is in: no "Updating…" and no request in flight. */
 async function settled(page: Page) {

@@ -9,7 +9,7 @@ import timezone from 'dayjs/plugin/timezone'
 import isoWeek from 'dayjs/plugin/isoWeek'
 import { eq, inArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
-import { barBox, screenshot, signInPage, useE2E, call } from '../setup/e2e'
+import { barBox, screenshot, signInPage, useE2E, call, publishPlan } from '../setup/e2e'
 import { bookLastStepLate, firstWorkshopId, openOrder, readyBenchStep } from '../setup/fixtures'
 
 dayjs.extend(utc)
@@ -111,11 +111,7 @@ describe("the manager's board tools", () => {
       .where(eq(s.operations.id, op.id))
 
     // Plan and publish through the API, then open the board.
-    const run = await call(manager, 'POST', '/api/plans/runs', { timeLimitSeconds: 2 })
-    expect(run.status, JSON.stringify(run.body)).toBe(202)
-    await expect.poll(async () => (await call(manager, 'GET', `/api/plans/runs/${run.body.id}`)).body.status, { timeout: 30_000, interval: 300 }).toBe('done')
-    const planId = (await call(manager, 'GET', `/api/plans/runs/${run.body.id}`)).body.planId
-    expect((await call(manager, 'POST', `/api/plans/${planId}/publish`)).status).toBe(200)
+    await publishPlan(manager)
     await manager.goto('/plan')
     await rendered(manager)
     // The board opens on today, or on the day the workshop next works while it is shut (a night, a weekend): that day's week

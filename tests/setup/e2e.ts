@@ -2,7 +2,7 @@
 import { mkdirSync } from 'node:fs'
 import { join } from 'node:path'
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
-import { afterAll, beforeAll } from 'vitest'
+import { afterAll, beforeAll, expect } from 'vitest'
 import type { Role } from '../../shared/domain/roles'
 import { loadConfig } from '../../server/config'
 import { startServer } from '../../server/index'
@@ -190,4 +190,13 @@ export async function call(page: Page, method: string, path: string, body?: unkn
     },
     { method, path, body },
   )
+}
+
+/** Runs the planner for 2 s and publishes its draft, through the API in the page's session. */
+export async function publishPlan(page: Page) {
+  const run = await call(page, 'POST', '/api/plans/runs', { timeLimitSeconds: 2 })
+  expect(run.status, JSON.stringify(run.body)).toBe(202)
+  await expect.poll(async () => (await call(page, 'GET', `/api/plans/runs/${run.body.id}`)).body.status, { timeout: 30_000, interval: 300 }).toBe('done')
+  const planId = (await call(page, 'GET', `/api/plans/runs/${run.body.id}`)).body.planId
+  expect((await call(page, 'POST', `/api/plans/${planId}/publish`)).status).toBe(200)
 }

@@ -1,7 +1,7 @@
 // Input checks run before planning: each bad input throws a SchedulingInputError naming the job and operation.
 import type { Interval, Operation, Problem } from './model.ts'
 import { SchedulingInputError } from './model.ts'
-import { intersect, outsideWorkEnd, walkWorkingTime } from './calendar.ts'
+import { clipToWindows, intersect, outsideWorkEnd, walkWorkingTime } from './calendar.ts'
 
 /** Longest single operation we accept: 60 working days of 8 hours. Anything longer is a data-entry mistake. */
 export const MAX_OPERATION_MINUTES = 60 * 8 * 60
@@ -228,6 +228,40 @@ export function checkProblem(problem: Problem): void {
     }
     return w
   }
+  // Pinned and running work keeps its place, so two such steps may not hold one bench or one person at the same minute: no plan
+  // could keep both. Their worked stretches are compared (a pin over lunch leaves the lunch hour free).
+  const held = new Map<string, { op: Operation; start: number; end: number }[]>()
+  for (const op of problem.operations) {
+    const f = op.fixed
+    if (!f || op.done || (op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0)) continue
+    const w = windowsOf(f.benchId, f.personId)
+    const minutes = (op.options.find((o) => o.benchId === f.benchId && o.personId === f.personId) ?? op.options[0])?.minutes ?? 0
+    const segs = f.end !== undefined ? clipToWindows(w, f.start, f.end) : (walkWorkingTime(w, f.start, minutes) ?? [])
+    for (const key of [f.benchId !== null ? `bench ${benches.get(f.benchId)!.name}` : null, f.personId !== null ? people.get(f.personId)!.name : null]) {
+      if (key === null) continue
+      const list = held.get(key) ?? held.set(key, []).get(key)!
+      for (const g of segs) if (g.end > g.start) list.push({ op, start: g.start, end: g.end })
+    }
+  }
+  for (const [who, list] of held) {
+    list.sort((a, b) => a.start - b.start || a.end - b.end)
+    // The stretch reaching furthest so far: any earlier one that b overlaps ends no later (one step's stretches are disjoint).
+    let a = list[0]!
+    for (let k = 1; k < list.length; k++) {
+      const b = list[k]!
+      if (b.start >= a.end || a.op === b.op) {
+        if (b.end > a.end) a = b
+        continue
+      }
+      throw new SchedulingInputError({
+        code: 'fixed-overlap',
+        jobId: b.op.jobId,
+        operationId: b.op.id,
+        message: `Job ${jobName(b.op.jobId)}: ${label(b.op)} and job ${jobName(a.op.jobId)}: ${label(a.op)} are both pinned or running on ${who} from minute ${b.start} to ${Math.min(a.end, b.end)}; no plan can keep both, so unpin or move one of them`,
+      })
+    }
+  }
+
   for (const op of order) {
     if (op.done) {
       finish.set(op.id, op.finishedAt ?? op.fixed?.end ?? -Infinity)

@@ -180,6 +180,7 @@ export type SchedulingInputErrorCode =
   | 'unknown-resource'
   | 'duplicate-id'
   | 'fixed-outside-working-time'
+  | 'fixed-overlap'
   | 'bad-duration'
   | 'beyond-horizon'
   | 'bad-calendar'

@@ -1,7 +1,7 @@
 // Bad input is refused with a SchedulingInputError that names the job and operation.
 import { describe, it, expect } from 'vitest'
 import { checkProblem, solve, SchedulingInputError, type Problem } from '../../server/scheduler/index.ts'
-import { at, makeBench, makeJob, makeOperation, makePerson, makeProblem } from './builders.ts'
+import { at, makeBench, makeJob, makeOperation, makePerson, makeProblem, weekdays } from './builders.ts'
 
 const refusal = (p: Problem): SchedulingInputError => {
   try {
@@ -114,5 +114,77 @@ describe('checkProblem', () => {
   it('when the load as a whole does not fit before the horizon, then solve reports "beyond-horizon"', () => {
     const ops = Array.from({ length: 12 }, (_, k) => makeOperation({ id: `o${k}`, jobId: `j${k}`, on: ['b1', 'p1', 8 * 60] }))
     expect(() => solve(makeProblem({ operations: ops }), { seed: 1, timeLimitMs: 50 })).toThrow(expect.objectContaining({ code: 'beyond-horizon' }))
+  })
+
+  describe('pinned and running work holding one bench or person at once', () => {
+    // Hand-worked on the builders' calendar (weekdays 08:00–16:00): no plan can keep two fixed steps on one bench or person in
+    // the same minutes, so the input is refused with both named, instead of planning a double booking.
+    const people = [makePerson({ id: 'p1', name: 'Ines' }), makePerson({ id: 'p2', name: 'Odo' })]
+    const benches = [makeBench({ id: 'b1', name: 'Setting' }), makeBench({ id: 'b2', name: 'Polishing' })]
+    it('when two pins share a bench for half an hour, then "fixed-overlap" names both and the clash', () => {
+      // a: 09:00 + 120 min = 11:00; b: 10:00 + 30 min. They clash 10:00–10:30 on the bench (their people differ).
+      const e = refusal(
+        makeProblem({
+          benches,
+          people,
+          operations: [
+            makeOperation({ id: 'a', jobId: 'ring', on: ['b1', 'p1', 120], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 9) } }),
+            makeOperation({ id: 'b', jobId: 'brooch', on: ['b1', 'p2', 30], fixed: { benchId: 'b1', personId: 'p2', start: at(0, 10) } }),
+          ],
+        }),
+      )
+      expect(e).toMatchObject({ code: 'fixed-overlap', jobId: 'brooch', operationId: 'b' })
+      expect(e.message).toContain('bench Setting')
+      expect(e.message).toContain('"a"')
+      expect(e.message).toContain(`from minute ${at(0, 10)} to ${at(0, 10, 30)}`)
+    })
+    it('when running work and a pin share a person on two benches, then "fixed-overlap" names the person', () => {
+      // Running 14:00–15:00 on b1; pinned from 14:30 on b2 with the same person: 14:30–15:00 clash.
+      const e = refusal(
+        makeProblem({
+          benches,
+          people,
+          operations: [
+            makeOperation({ id: 'run', jobId: 'j1', on: ['b1', 'p1', 60], fixed: { benchId: 'b1', personId: 'p1', start: at(1, 14), end: at(1, 15) } }),
+            makeOperation({ id: 'pin', jobId: 'j2', on: ['b2', 'p1', 60], fixed: { benchId: 'b2', personId: 'p1', start: at(1, 14, 30) } }),
+          ],
+        }),
+      )
+      expect(e).toMatchObject({ code: 'fixed-overlap', operationId: 'pin' })
+      expect(e.message).toContain('Ines')
+      expect(e.message).toContain(`from minute ${at(1, 14, 30)} to ${at(1, 15)}`)
+    })
+    it('when a third pin overlaps the first past a short second one, then it is still found', () => {
+      // a 08:00–12:00; b 09:00–09:30 on the bench with p2 clashes first; without b, c (11:00) clashes with a.
+      const ops = [
+        makeOperation({ id: 'a', jobId: 'j1', on: ['b1', 'p1', 240], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 8) } }),
+        makeOperation({ id: 'c', jobId: 'j3', on: ['b1', 'p2', 60], fixed: { benchId: 'b1', personId: 'p2', start: at(0, 11) } }),
+      ]
+      expect(refusal(makeProblem({ benches, people, operations: ops }))).toMatchObject({ code: 'fixed-overlap', operationId: 'c' })
+      const b = makeOperation({ id: 'b', jobId: 'j2', on: ['b2', 'p2', 30], fixed: { benchId: 'b2', personId: 'p2', start: at(0, 9) } })
+      expect(refusal(makeProblem({ benches, people, operations: [...ops, b] }))).toMatchObject({ code: 'fixed-overlap', operationId: 'c' })
+    })
+    it("when pins touch, or one works through the other's lunch, then the input passes and the plan keeps both", () => {
+      // Touching: a 09:00–11:00, b from 11:00. Lunch: p1 stops 12:00–12:30, so a pin from 11:30 for 60 min works 11:30–12:00 and
+      // 12:30–13:00; b2 (no lunch) may be used 12:00–12:30 by p2 meanwhile.
+      const lunch = [{ start: at(0, 8), end: at(0, 12) }, { start: at(0, 12, 30), end: at(0, 16) }, ...weekdays().slice(1)]
+      const p = makeProblem({
+        benches,
+        people: [makePerson({ id: 'p1', name: 'Ines', available: lunch }), people[1]!],
+        operations: [
+          makeOperation({ id: 'a', jobId: 'j1', on: ['b1', 'p1', 120], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 9) } }),
+          makeOperation({ id: 'b', jobId: 'j2', on: ['b1', 'p2', 60], fixed: { benchId: 'b1', personId: 'p2', start: at(0, 11) } }),
+          makeOperation({ id: 'c', jobId: 'j3', on: ['b2', 'p1', 60], fixed: { benchId: 'b2', personId: 'p1', start: at(0, 11, 30) } }),
+          makeOperation({ id: 'd', jobId: 'j4', on: ['b2', 'p2', 30], fixed: { benchId: 'b2', personId: 'p2', start: at(0, 12) } }),
+        ],
+      })
+      expect(() => checkProblem(p)).not.toThrow()
+      const plan = solve(p, { seed: 1, timeLimitMs: 50 })
+      expect(plan.score.violations).toEqual([])
+      expect(plan.operations.find((o) => o.operationId === 'c')!.segments).toEqual([
+        { start: at(0, 11, 30), end: at(0, 12) },
+        { start: at(0, 12, 30), end: at(0, 13) },
+      ])
+    })
   })
 })

@@ -31,6 +31,14 @@ export interface PairShop {
   extra?: { predStart: Int32Array; pred: Int32Array; succStart: Int32Array; succ: Int32Array }
   /** Working calendars: when present, an option's start and end follow its calendar instead of start + duration. */
   calendar?: PairCalendar
+  /**
+   * Weighted tardiness with outside work last (hallmarking): per step, NaN where it does not apply, and for a job's last step
+   * that is outside work the latest moment it can be ready and still be back by the due date. Such a job's lateness moves by
+   * whole workshop days, so most moves leave it unchanged; the search values the job instead by how far that step is ready
+   * after this moment (weighted minutes), which falls with every minute gained and is zero exactly when the job is on time.
+   * The weighted tardiness reported stays the real one.
+   */
+  leaveBy?: Float64Array
 }
 
 /**
@@ -202,6 +210,7 @@ function searchOnce(s: PairShop, settings: PairSettings): PairSolution {
   const twtMode = settings.objective === 'weightedTardiness'
   const lastOf = new Int32Array(jobs).fill(-1)
   const lag = s.lag ?? new Int32Array(n)
+  const leaveBy = twtMode ? s.leaveBy : undefined
   let flexible = false
   for (let i = 0; i < n && !flexible; i++) if (optStart[i + 1]! - optStart[i]! > 1) flexible = true
   const xps = s.extra?.predStart ?? new Int32Array(n + 1),
@@ -567,7 +576,9 @@ function searchOnce(s: PairShop, settings: PairSettings): PairSolution {
     return finish(r, cmax)
   }
   /** The current schedule's totals (set when it is timed), from which a candidate's are updated. */
-  let curTwt = 0,
+  let curLean = 0,
+    curLeaveTwt = 0,
+    curTwt = 0,
     curSum = 0,
     curCmax = 0
   const lastJob = new Int32Array(n).fill(-1)
@@ -577,17 +588,33 @@ function searchOnce(s: PairShop, settings: PairSettings): PairSolution {
     let twt = curTwt,
       sum = curSum,
       cmax = curCmax,
+      lean = curLean,
+      leaveTwt = curLeaveTwt,
       scan = false
     for (let k = 0; k < nWritten; k++) {
       const x = written[k]!
       const j = lastJob[x]!
       if (j < 0) continue
+      let leave = false
+      if (leaveBy) {
+        const l = leaveBy[x]!
+        if (l === l) {
+          leave = true
+          const yw = yCur[x]!,
+            yn = yTmp[x]!
+          if (yw > l || yn > l) lean += weight[j]! * ((yn > l ? yn - l : 0) - (yw > l ? yw - l : 0))
+        }
+      }
       const was = eCur[x]!,
         now = eTmp[x]!
       if (was === now) continue
       sum += now - was
       const d = due[j]!
-      if (now > d || was > d) twt += weight[j]! * ((now > d ? now - d : 0) - (was > d ? was - d : 0))
+      if (now > d || was > d) {
+        const change = weight[j]! * ((now > d ? now - d : 0) - (was > d ? was - d : 0))
+        twt += change
+        if (leave) leaveTwt += change
+      }
       if (now > cmax) cmax = now
       else if (was === curCmax) scan = true
     }
@@ -600,27 +627,40 @@ function searchOnce(s: PairShop, settings: PairSettings): PairSolution {
     }
     lastMakespan = cmax
     lastTwt = twt
+    if (leaveBy) return twt - leaveTwt + lean + cmax * 1e-7
     if (twtMode) return twt + cmax * 1e-7
     return cmax + sum * 1e-9
   }
   const finish = (r: Int32Array, cmax: number): number => {
     let twt = 0,
-      sum = 0
+      sum = 0,
+      lean = 0,
+      leaveTwt = 0
     const en = endsOf(r)
+    const y = readyOf(r)
     for (let j = 0; j < jobs; j++) {
       const l = lastOf[j]!
       const c = l >= 0 ? en[l]! : 0
       comp[j] = c
       sum += c
-      if (c > due[j]!) twt += weight[j]! * (c - due[j]!)
+      const late = c > due[j]! ? weight[j]! * (c - due[j]!) : 0
+      twt += late
+      const b = leaveBy && l >= 0 ? leaveBy[l]! : NaN
+      if (b === b) {
+        leaveTwt += late
+        if (y[l]! > b) lean += weight[j]! * (y[l]! - b)
+      }
     }
     lastMakespan = cmax
     lastTwt = twt
     if (r === rCur) {
       curTwt = twt
+      curLean = lean
+      curLeaveTwt = leaveTwt
       curSum = sum
       curCmax = cmax
     }
+    if (leaveBy) return twt - leaveTwt + lean + cmax * 1e-7
     // Makespan breaks ties between equal weighted tardiness, so plateaus still lead somewhere.
     if (twtMode) return twt + cmax * 1e-7
     // The jobs' total completion time breaks ties between equal makespans, so the walk across a plateau still goes somewhere.

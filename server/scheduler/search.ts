@@ -298,6 +298,7 @@ export function calendarShop(
       release,
       due: Float64Array.from(c.jobs, (j) => (j.due === null ? Infinity : j.due - now)),
       weight: Float64Array.from(c.jobs, (j) => j.weight),
+      leaveBy: leaveByOf(c, now),
       lag,
       extra: { predStart, pred: Int32Array.from(xPred), succStart, succ: Int32Array.from(xSucc) },
       calendar: {
@@ -312,6 +313,24 @@ export function calendarShop(
       },
     },
   }
+}
+
+/**
+ * For each job bag's last step that is outside work (hallmarking), the latest minute (from `now`) it can be ready and still be
+ * back by the due date: the opening of the last workshop day from which its days end by then. NaN for every other step.
+ */
+function leaveByOf(c: Compiled, now: number): Float64Array {
+  const out = new Float64Array(c.n).fill(NaN)
+  const days = c.problem.workshopDays
+  for (let i = 0; i < c.n; i++) {
+    const due = c.jobs[c.jobOf[i]!]!.due
+    const k = c.outsideDays[i]!
+    if (k <= 0 || c.succs[i]!.length > 0 || due === null) continue
+    let last = -1
+    for (let d = 0; d + k - 1 < days.length && days[d + k - 1]!.end <= due; d++) last = d
+    out[i] = (last >= 0 ? days[last]!.start : (days[0]?.start ?? now) - 1440) - now
+  }
+  return out
 }
 
 export interface GeneralResult {

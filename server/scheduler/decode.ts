@@ -471,6 +471,48 @@ class KeyHeap {
 }
 
 /**
+ * The first pick of `base` (decoded with baseKey and baseChoice) at which decoding with key and choice can take another step or
+ * place it otherwise: the picks before it are the same, so `decode(c, key, choice, base, from)` may resume there. A step whose
+ * choice changed or whose key rose is taken the same way until its own pick. A step whose key fell can be taken earlier, but only
+ * at the first pick (from when it became ready) whose step it now goes before in the heap's order (key, then index): until then
+ * each pick's step is still the lowest of the steps ready; if there is none before its own pick, it is taken there as before.
+ * Comparing with the steps' old keys is exact for unchanged ones and errs early (never late) where the step taken also changed.
+ */
+export function firstChangedPick(base: Decoded, baseKey: Float64Array, baseChoice: Int32Array, key: Float64Array, choice: Int32Array): number {
+  const order = base.order,
+    ready = base.readyAt
+  const n = key.length
+  if (!order || !ready) return 0
+  let first = n
+  let pickOf: Int32Array | null = null
+  for (let i = 0; i < n; i++) {
+    const keyChanged = key[i] !== baseKey[i]
+    if (!keyChanged && choice[i] === baseChoice[i]) continue
+    if (!pickOf) {
+      pickOf = new Int32Array(n).fill(order.length)
+      for (let k = 0; k < order.length; k++) pickOf[order[k]!] = k
+    }
+    const own = pickOf[i]!
+    if (!keyChanged || key[i]! > baseKey[i]!) {
+      if (own < first) first = own
+      continue
+    }
+    // Taken at its own pick after all (no step it now goes before came first), it is placed as before: nothing changes.
+    const ki = key[i]!
+    const stop = own < first ? own : first
+    for (let k = ready[i]!; k < stop; k++) {
+      const o = order[k]!
+      const ko = baseKey[o]!
+      if (ki < ko || (ki === ko && i < o)) {
+        first = k
+        break
+      }
+    }
+  }
+  return first
+}
+
+/**
  * Serial schedule generation: repeatedly takes the eligible operation with the lowest key and places it at its earliest
  * feasible time; choice[i] >= 0 forces that option, -1 picks the option that finishes first (ties: previous plan's).
  * With `base` (a decode of the same problem) and `from`: no step whose key or choice differs from base's became ready before

@@ -1,6 +1,6 @@
 // Workshop planning search: due-date-aware dispatching rules for a first plan, then late-acceptance local search along the chains that make jobs late.
 import type { Interval, Objective, SolveHooks, SolveStage, Violation } from './model.ts'
-import { compareDecoded, decode, type Compiled, type CompiledOption, type Decoded, Why } from './decode.ts'
+import { compareDecoded, decode, firstChangedPick, type Compiled, type CompiledOption, type Decoded, Why } from './decode.ts'
 import { createRng } from './random.ts'
 import { clipToWindows } from './calendar.ts'
 import { solvePairShop, type PairSettings, type PairShop } from './pair-core.ts'
@@ -507,13 +507,7 @@ export function solveGeneral(
     ;[choice, new Int32Array(n).fill(-1)].forEach((ch, variant) => {
       // Successive schedules of one search differ after the steps a move touched: decoded from the first pick that can differ.
       const prev = lastDecoded[variant]
-      let from = 0
-      if (prev) {
-        from = n
-        const ready = prev.d.readyAt!
-        for (let i = 0; i < n; i++) if (key[i] !== prev.key[i] || ch[i] !== prev.choice[i]) from = Math.min(from, ready[i]!)
-      }
-      const d = prev ? decode(c, key, ch, prev.d, from) : decode(c, key, ch)
+      const d = prev ? decode(c, key, ch, prev.d, firstChangedPick(prev.d, prev.key, prev.choice, key, ch)) : decode(c, key, ch)
       lastDecoded[variant] = { d, key, choice: ch }
       decodes++
       evaluations++
@@ -690,11 +684,8 @@ export function solveGeneral(
         key[a] = key[b]!
         key[b] = t
       }
-      // Only what comes after the first pick where a changed step was ready is decoded again.
-      let from = n
-      const ready = cur.readyAt
-      for (let i = 0; i < n; i++) if (key[i] !== curKey[i] || choice[i] !== curChoice[i]) from = Math.min(from, ready ? ready[i]! : 0)
-      const cand = decode(c, key, choice, cur, from)
+      // Only what comes after the first pick that can differ is decoded again.
+      const cand = decode(c, key, choice, cur, firstChangedPick(cur, curKey, curChoice, key, choice))
       const slot = iterations % historyLen
       if (compareDecoded(cand, cur, obj) <= 0 || compareDecoded(cand, history[slot]!, obj) <= 0) {
         cur = cand

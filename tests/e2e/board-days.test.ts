@@ -83,6 +83,19 @@ describe('days on the board', () => {
     const stocktakeBox = await manager.locator('.vis-item.vis-background.board-bg-closure', { hasText: 'Workshop closed: stocktake' }).boundingBox()
     expect(Math.abs(stocktakeBox!.x - shown.find((h) => h.day === stocktake!.startsOn)!.x)).toBeLessThan(1.5)
     await screenshot(manager, 'board-days-01-stocktake-week', { fullPage: false })
+    // The closure's name shows on its rows where the day is wide enough to read it…
+    const label = manager.locator('.vis-item.board-bg-closure .board-bg-label', { hasText: 'Workshop closed: stocktake' }).first()
+    await expect.poll(() => label.isVisible(), { timeout: 10_000 }).toBe(true)
+    // …and not in four weeks, where a closed day is a narrow strip (a clipped "W…" told nothing; the heading's tooltip names it).
+    await manager.locator('[data-test=board-zoom]').getByText('Four weeks', { exact: true }).click()
+    await settled(manager)
+    const strip = manager.locator('.vis-item.vis-background.board-bg-closure', { hasText: 'Workshop closed: stocktake' }).first()
+    await expect.poll(async () => (await strip.boundingBox())?.width ?? Infinity, { timeout: 10_000 }).toBeLessThan(40)
+    await expect.poll(() => label.isVisible(), { timeout: 10_000 }).toBe(false)
+    expect(await label.count(), 'the label is still there, only not shown').toBe(1)
+    await screenshot(manager, 'board-days-01b-stocktake-four-weeks', { fullPage: false })
+    await manager.locator('[data-test=board-zoom]').getByText('Week', { exact: true }).click()
+    await settled(manager)
 
     // The whole clock, back on the week the board opened on: Monday is named from the left edge, and every weekday has its heading.
     await manager.locator('[data-test=board-fold]').click()

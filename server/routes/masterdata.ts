@@ -130,9 +130,14 @@ export const masterDataRoutes = [
     method: 'get',
     path: '/people',
     roles: EVERYONE,
-    summary: 'People with skills and leave',
+    summary: 'People with skills and leave (hourly costs only for the owner and the manager)',
     response: z.array(person),
-    handler: ({ deps, actor }) => people.listPeople(deps.db, actor.workshopId),
+    handler: async ({ deps, actor }) => {
+      const list = await people.listPeople(deps.db, actor.workshopId)
+      if (actor.role === 'owner' || actor.role === 'manager') return list
+      // What a colleague's hour costs is not for the bench or the sales desk.
+      return list.map(({ hourlyRateMinor: _rate, ...rest }) => rest)
+    },
   }),
   route({
     method: 'post',

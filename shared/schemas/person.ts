@@ -47,7 +47,8 @@ export const person = z.object({
   userEmail: z.string().nullable(),
   /** null: follows the workshop's hours. */
   weekPattern: z.array(z.object({ weekday: wireInt, start: z.string(), end: z.string() })).nullable(),
-  hourlyRateMinor: wireInt,
+  /** What an hour of this person costs; only the owner and the manager are told (bench and sales lists leave it out). */
+  hourlyRateMinor: wireInt.optional(),
   active: z.boolean(),
   skills: z.array(z.object({ kindId: wireInt, level: wireInt, speed: z.number() })),
   leave: z.array(leave),

@@ -145,6 +145,27 @@ describe('people', () => {
     expect((await auditRows(t, 'person', c.body.id)).map((x) => x.action)).toEqual(['remove-leave', 'add-leave', 'update', 'create'])
   })
 
+  it("when the bench or the sales desk lists the people, then nobody's hourly cost is in it; the owner and the manager see it", async () => {
+    // The demo gives every person an hourly cost above zero (set by the owner on People & skills).
+    const bench = await signedIn(t.app, 'bench')
+    const sales = await signedIn(t.app, 'sales')
+    for (const [who, agent] of [['owner', owner], ['manager', manager]] as const) {
+      const r = await agent.get('/api/people')
+      expect(r.status, who).toBe(200)
+      expect(r.body.length, who).toBeGreaterThan(3)
+      for (const p of r.body as { name: string; hourlyRateMinor?: number }[]) expect(p.hourlyRateMinor, `${who}: ${p.name}`).toBeGreaterThan(0)
+    }
+    for (const [who, agent] of [['bench', bench], ['sales', sales]] as const) {
+      const r = await agent.get('/api/people')
+      expect(r.status, who).toBe(200)
+      expect(r.body.length, who).toBeGreaterThan(3)
+      for (const p of r.body as Record<string, unknown>[]) {
+        expect(p, `${who}: ${String(p.name)}`).not.toHaveProperty('hourlyRateMinor')
+        expect(p.skills, `${who} still sees the skills`).toBeDefined()
+      }
+      expect(JSON.stringify(r.body)).not.toMatch(/hourlyRate/)
+    }
+  })
   it('when person input is wrong, then the answer is 400 naming the field', async () => {
     expectFieldError(await manager.post('/api/people', { name: '' }), 'name', /required/)
     expectFieldError(await manager.post('/api/people', { name: 'A', skills: [{ kindId: kinds.setting, level: 4 }] }), 'skills.0.level', /1, 2 or 3/)

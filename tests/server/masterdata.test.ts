@@ -149,13 +149,19 @@ describe('people', () => {
     // The demo gives every person an hourly cost above zero (set by the owner on People & skills).
     const bench = await signedIn(t.app, 'bench')
     const sales = await signedIn(t.app, 'sales')
-    for (const [who, agent] of [['owner', owner], ['manager', manager]] as const) {
+    for (const [who, agent] of [
+      ['owner', owner],
+      ['manager', manager],
+    ] as const) {
       const r = await agent.get('/api/people')
       expect(r.status, who).toBe(200)
       expect(r.body.length, who).toBeGreaterThan(3)
       for (const p of r.body as { name: string; hourlyRateMinor?: number }[]) expect(p.hourlyRateMinor, `${who}: ${p.name}`).toBeGreaterThan(0)
     }
-    for (const [who, agent] of [['bench', bench], ['sales', sales]] as const) {
+    for (const [who, agent] of [
+      ['bench', bench],
+      ['sales', sales],
+    ] as const) {
       const r = await agent.get('/api/people')
       expect(r.status, who).toBe(200)
       expect(r.body.length, who).toBeGreaterThan(3)

@@ -106,6 +106,62 @@ describe('a hand-worked job bag', () => {
     expect(acc.body.hallmark).toMatchObject({ metal: 'gold', pieceG: 11.2, thresholdG: 1, needed: true })
   })
 
+  it('when the piece is weighed back after one step and out again for the next, then the bag counts it once: 12 g brought in, 0.3 g (2.5 %) lost', async () => {
+    // Hand-worked: step 1 — 12.00 g out, back 11.50 g piece + 0.30 g scrap (0.20 g lost); step 2 — the 11.50 g piece out, back
+    // 11.30 g piece + 0.10 g lemel (0.10 g lost). The bag brought in 12.00 g and ends as an 11.30 g piece: 0.30 g lost, 0.30 / 12
+    // = 2.5 % (not 0.30 / 23.50 = 1.3 %, which summing both steps' weighings out gives).
+    const other = (
+      await t.db
+        .select({ id: s.jobBags.id })
+        .from(s.jobBags)
+        .where(and(eq(s.jobBags.status, 'waiting'), ne(s.jobBags.id, bag.id)))
+        .orderBy(asc(s.jobBags.id))
+    )[0]!
+    const steps = await t.db
+      .select({ id: s.operations.id })
+      .from(s.operations)
+      .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+      .where(and(eq(s.operations.jobBagId, other.id), eq(s.operationKinds.outside, false)))
+      .orderBy(asc(s.operations.seq))
+    expect(steps.length, 'a bag with two steps at the bench').toBeGreaterThanOrEqual(2)
+    const alloy = await newAlloy()
+    const at = (k: number) => ({ jobBagId: other.id, alloyId: alloy.id, personId, operationId: steps[k]!.id })
+    const post = async (path: string, body: object) => {
+      const r = await as.bench.post(path, body)
+      expect(r.status, JSON.stringify(r.body)).toBe(201)
+    }
+    await post('/api/metal/issues', { ...at(0), weightG: 12 })
+    await post('/api/metal/returns', { ...at(0), weightG: 11.5, form: 'piece' })
+    await post('/api/metal/returns', { ...at(0), weightG: 0.3, form: 'scrap' })
+    await post('/api/metal/issues', { ...at(1), weightG: 11.5 })
+    await post('/api/metal/returns', { ...at(1), weightG: 11.3, form: 'piece' })
+    await post('/api/metal/returns', { ...at(1), weightG: 0.1, form: 'lemel' })
+    const acc = (await as.manager.get(`/api/job-bags/${other.id}/metal`)).body
+    const bagFigures = { issuedMg: 12000, pieceMg: 11300, scrapMg: 300, lemelMg: 100, returnedMg: 11700, lossMg: 300, lossG: 0.3, lossPct: 2.5 }
+    expect(acc.total).toMatchObject(bagFigures)
+    expect(acc.byAlloy.find((a: { alloyId: number }) => a.alloyId === alloy.id)).toMatchObject(bagFigures)
+    // Each step keeps its own weighings: 0.20 / 12.00 = 1.7 %, 0.10 / 11.50 = 0.9 %.
+    const byStep = (k: number) => acc.bySteps.find((x: { operationId: number }) => x.operationId === steps[k]!.id)
+    expect(byStep(0)).toMatchObject({ issuedMg: 12000, lossMg: 200, lossPct: 1.7 })
+    expect(byStep(1)).toMatchObject({ issuedMg: 11500, lossMg: 100, lossPct: 0.9 })
+    // The customer's own 5.00 g ring through the same two steps (5.00 out, 4.98 back; 4.98 out, 4.97 back): 5.00 g of theirs came
+    // in, not 9.98 g; 0.03 g lost, 0.6 %.
+    const own = await newAlloy()
+    const ring = (k: number) => ({ ...at(k), alloyId: own.id })
+    await post('/api/metal/issues', { ...ring(0), weightG: 5, source: 'customer' })
+    await post('/api/metal/returns', { ...ring(0), weightG: 4.98, form: 'piece' })
+    await post('/api/metal/issues', { ...ring(1), weightG: 4.98, source: 'customer' })
+    await post('/api/metal/returns', { ...ring(1), weightG: 4.97, form: 'piece' })
+    const again = (await as.manager.get(`/api/job-bags/${other.id}/metal`)).body
+    expect(again.byAlloy.find((a: { alloyId: number }) => a.alloyId === own.id)).toMatchObject({
+      issuedMg: 5000,
+      fromCustomerMg: 5000,
+      pieceMg: 4970,
+      lossMg: 30,
+      lossPct: 0.6,
+    })
+  })
+
   it('when the tolerance is 3 %, then the same 2.1 % loss is not flagged; an edit from a stale read is refused', async () => {
     const v = (await as.owner.get('/api/metal/tolerances')).body.find((k: { kindId: number }) => k.kindId === kindId).version
     expect((await as.owner.put(`/api/metal/tolerances/${kindId}`, { tolerancePct: 3, version: v })).status).toBe(200)

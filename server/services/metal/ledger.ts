@@ -30,7 +30,7 @@ import { AppError, invalid, notFound } from '../../errors/app-error'
 import type { Actor, Deps } from '../../lib/route'
 import { requireAlloy, record, joinedRows, toMovements, over, atBench } from './common'
 import type { Joined } from './common'
-import { lossFigures, listTolerances } from './losses'
+import { bagLossFigures, lossFigures, listTolerances } from './losses'
 
 async function requireBag(tx: Tx, workshopId: number, jobBagId: number) {
   const [b] = await tx
@@ -282,8 +282,17 @@ export async function jobBagMetal(db: Db, actor: Actor, jobBagId: number): Promi
   const byPerson = [...group((r) => r.m.personId)]
     .map(([personId, rs]) => ({ personId, name: rs[0]!.personName ?? 'No one named', ...lossFigures(rs) }))
     .sort((a, b) => a.name.localeCompare(b.name))
-  const byAlloy = [...group((r) => r.m.alloyId)].map(([alloyId, rs]) => ({ alloyId, name: rs[0]!.alloyName, fineness: rs[0]!.fineness, ...lossFigures(rs) }))
   const movements = toMovements(rows)
+  // The bag and each alloy count the piece once, however many steps weighed it out and back (see bagLossFigures).
+  const byAlloy = [...group((r) => r.m.alloyId)].map(([alloyId, rs]) => ({
+    alloyId,
+    name: rs[0]!.alloyName,
+    fineness: rs[0]!.fineness,
+    ...bagLossFigures(
+      rs,
+      movements.filter((m) => m.alloyId === alloyId),
+    ),
+  }))
   // The piece's weight is the last weighing of it as a piece (after corrections).
   const lastPiece = movements.filter((m) => m.kind === 'returned' && m.form === 'piece').at(-1)
   const alloyOfPiece = lastPiece ? (await db.select().from(alloys).where(eq(alloys.id, lastPiece.alloyId)))[0] : undefined
@@ -296,7 +305,7 @@ export async function jobBagMetal(db: Db, actor: Actor, jobBagId: number): Promi
     jobBagId,
     number: bag.number,
     piece: bag.piece,
-    total: lossFigures(rows),
+    total: bagLossFigures(weighed, movements),
     overTolerance: bySteps.some((s) => s.overTolerance),
     byAlloy,
     bySteps,

@@ -2,7 +2,15 @@
 // default), and the owner's loss report by person, kind of work, month or alloy.
 import { and, asc, eq, inArray, sql } from 'drizzle-orm'
 import { DEFAULT_LOSS_TOLERANCE_PCT, FALLBACK_LOSS_TOLERANCE_PCT, TOLERANCE_NOTE, metalLoss, mgToG } from '../../../shared/domain/metal'
-import { type LossFigures, type LossQuery, type LossRow, type LossTable, type Tolerance, type ToleranceInput } from '../../../shared/schemas/metal'
+import {
+  type LossFigures,
+  type LossQuery,
+  type MetalMovement,
+  type LossRow,
+  type LossTable,
+  type Tolerance,
+  type ToleranceInput,
+} from '../../../shared/schemas/metal'
 import type { Db, Tx } from '../../db/client'
 import { lossTolerances, metalMovements, operationKinds } from '../../db/schema/index'
 import { notFound, staleVersion } from '../../errors/app-error'
@@ -47,6 +55,49 @@ export function lossFigures(rows: readonly Pick<Joined, 'm' | 'fineness'>[]): Lo
     lossPct: l.lossPct,
     lossFineMg,
     lossFineG: mgToG(lossFineMg),
+  }
+}
+
+/**
+ * A job bag's (or one alloy's within it) figures: the piece is weighed back after a step and out again for the next, so summing
+ * each step's weighings counts the piece once per step (a 9 g ring through five steps read 42 g weighed out, and its loss a fifth
+ * of what it is). Here a piece weighed back and then weighed out again (the same alloy, later) is the bag's own metal moving
+ * between steps: what it brought in is what was weighed out less those pieces, and what came back as the piece is the piece
+ * not weighed out since. The loss in grams is the same as the steps' together; its share is of the metal brought in.
+ * `movements`: originals with their corrections folded in, oldest first.
+ */
+export function bagLossFigures(
+  rows: readonly Pick<Joined, 'm' | 'fineness'>[],
+  movements: readonly Pick<MetalMovement, 'kind' | 'form' | 'alloyId' | 'effectiveMg' | 'source'>[],
+): LossFigures {
+  const steps = lossFigures(rows)
+  const waiting = new Map<number, number>()
+  let carried = 0,
+    carriedOwn = 0
+  for (const m of movements) {
+    if (m.kind === 'issued') {
+      const back = waiting.get(m.alloyId) ?? 0
+      if (back > 0) {
+        const again = Math.min(back, Math.max(0, m.effectiveMg))
+        carried += again
+        // The customer's own piece weighed out again is still the same metal of theirs.
+        if (m.source === 'customer') carriedOwn += again
+        waiting.delete(m.alloyId)
+      }
+    } else if (m.kind === 'returned' && m.form === 'piece') waiting.set(m.alloyId, (waiting.get(m.alloyId) ?? 0) + m.effectiveMg)
+  }
+  const issued = steps.issuedMg - carried
+  const piece = steps.pieceMg - carried
+  const l = metalLoss(issued, { pieceMg: piece, scrapMg: steps.scrapMg, lemelMg: steps.lemelMg })
+  return {
+    ...steps,
+    issuedMg: issued,
+    fromCustomerMg: steps.fromCustomerMg - carriedOwn,
+    pieceMg: piece,
+    returnedMg: l.returnedMg,
+    lossMg: l.lossMg,
+    lossG: mgToG(l.lossMg),
+    lossPct: l.lossPct,
   }
 }
 

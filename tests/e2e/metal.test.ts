@@ -35,14 +35,14 @@ describe('metal on the bench and the owner’s metal screen', () => {
     const benchId = await benchIdByName(db, 'Setting bench A')
     const want = PIECE_METAL_ALLOY[op.params.metal]!
     const a = s.alloys
-    const alloy = (
-      await db
-        .select({ id: a.id, name: a.name })
-        .from(a)
-        .where(and(eq(a.metal, want.metal), eq(a.fineness, want.fineness), eq(a.active, true)))
-        .orderBy(asc(a.metal), asc(a.fineness), asc(a.name))
-        .limit(1)
-    )[0]!
+    // Nothing weighed in this bag yet: an alloy of the piece's metal and fineness, the yellow one for gold where there are several
+    // colours (the usual colour when none is named: common practice, no source).
+    const fits = await db
+      .select({ id: a.id, name: a.name })
+      .from(a)
+      .where(and(eq(a.metal, want.metal), eq(a.fineness, want.fineness), eq(a.active, true)))
+      .orderBy(asc(a.name))
+    const alloy = (want.metal === 'gold' ? fits.find((x) => /yellow/i.test(x.name)) : undefined) ?? fits[0]!
 
     const setter = await page('setter@wrenfield.test', { width: 1024, height: 768 })
     await setter.evaluate(() => localStorage.removeItem('millgrain.metal.containerG'))
@@ -81,6 +81,15 @@ describe('metal on the bench and the owner’s metal screen', () => {
     // Nothing back yet: the 12 g are at the bench, not a loss, and no alarm.
     await expect(w.locator('[data-test=balance-at-bench]').innerText()).resolves.toBe('At the bench 12.00 g')
     await expect(w.locator('[data-test=balance-tolerance]').innerText()).resolves.not.toMatch(/^Over/)
+    // Finished now, the 12 g would all count as lost: the finish dialog says so, and "Not yet" keeps the step running.
+    await setter.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=finish]`).click()
+    await expect
+      .poll(() => setter.locator('[data-test=finish-metal]').innerText(), { timeout: 10_000 })
+      .toMatch(/^Metal: 12\.00 g weighed out for this step has not been weighed back/)
+    await screenshot(setter, 'metal-01b-finish-with-metal-out')
+    await setter.locator('[data-test=cancel-finish]').click()
+    await setter.locator('[data-test=finish-dialog]').waitFor({ state: 'hidden' })
+    await setter.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
 
     // Back in the same container: 12.70 → the piece 11.20 g, 1.85 → scrap 0.35 g, 1.70 → lemel 0.20 g.
     await w.locator('[data-test=weigh-mode-back]').click()

@@ -41,11 +41,18 @@ export function fmtMoney(minor: number | null | undefined, currency: string): st
   }
 }
 
-/** The first active alloy of the piece's metal code (e.g. gold-14k → a 585 gold), or null. */
-export function alloyForPieceMetal(alloys: readonly Alloy[], pieceMetal: string | null | undefined): Alloy | null {
+/**
+ * The alloy to preselect for a piece: the one its job bag was last weighed in (the piece's colour is known from then on), else an
+ * active alloy of its metal code (e.g. gold-14k → a 585 gold) — for gold, the yellow one where the workshop keeps several colours
+ * (the usual colour when none is named: common practice, no source) — or null.
+ */
+export function alloyForPieceMetal(alloys: readonly Alloy[], pieceMetal: string | null | undefined, lastWeighedAlloyId?: number | null): Alloy | null {
+  const last = lastWeighedAlloyId != null ? alloys.find((a) => a.id === lastWeighedAlloyId && a.active) : undefined
+  if (last) return last
   const want = pieceMetal ? PIECE_METAL_ALLOY[pieceMetal] : undefined
   if (!want) return null
-  return alloys.find((a) => a.active && a.metal === want.metal && a.fineness === want.fineness) ?? null
+  const fits = alloys.filter((a) => a.active && a.metal === want.metal && a.fineness === want.fineness)
+  return (want.metal === 'gold' ? fits.find((a) => /yellow/i.test(a.name)) : undefined) ?? fits[0] ?? null
 }
 
 const TARE_KEY = 'millgrain.metal.containerG'

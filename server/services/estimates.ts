@@ -130,8 +130,10 @@ export async function finishedOperations(db: Db, workshopId: number, filter: Ins
   const out: FinishedOperation[] = []
   for (const { op, bag, kind, order, routingName } of rows) {
     const actual = byOperation.get(op.id) ?? 0
-    if (!(actual > 0)) continue
     const mine = records.filter((r) => r.operationId === op.id)
+    // Finished with time recorded, even none of it (started and finished in the same minute): its figures leave it out as
+    // unbelievable and count it. Finished with no record at all, it has no one to name and no time: not listed.
+    if (!mine.length || !(actual >= 0)) continue
     const byPerson = new Map<number, { minutes: number; name: string }>()
     for (const r of mine) {
       const p = byPerson.get(r.personId) ?? { minutes: 0, name: r.personName }

@@ -321,6 +321,32 @@ describe('operations whose actual time cannot be believed', () => {
     expect(month[1]).toBe('2031-05,2,3.33,3.33,0,0,even,20.8,2')
   })
 
+  it('when a step was started and finished within the same minute (0 min recorded), then it is left out and counted, not dropped unseen', async () => {
+    // Its own routing and order: one engraving step of 45 min estimated, finished with a record from 10:00 to 10:00.
+    const routing = await manager.post('/api/routings', {
+      code: 'insight-zero',
+      name: 'Fixture: zero-minute step',
+      description: 'One step finished with nothing recorded.',
+      steps: [{ key: 'engrave', kindId: kinds.setting, name: 'Engrave', baseMinutes: 45 }],
+    })
+    expect(routing.status).toBe(201)
+    const o = await manager.post('/api/orders', {
+      customerId: await firstCustomerId(t.db),
+      title: 'Fixture engraved band',
+      dueDate: '2031-08-29',
+      priceQuotedMinor: 20_000,
+      pieces: [{ routingId: routing.body.id, piece: 'Engraved band', params: { stoneCount: 0, quantity: 1 } }],
+    })
+    expect(o.status).toBe(201)
+    const steps = (await opsOf(o.body.id)) as Record<string, number>
+    await finish(steps.engrave!, 45, at('2031-08-04', '10:01'), [{ person: 'Ines', start: at('2031-08-04', '10:00'), minutes: 0 }])
+    const r = await owner.get(`/api/insights/comparison?groupBy=kind&routingId=${routing.body.id}`)
+    expect(r.status).toBe(200)
+    // 0 ÷ 45 is under a tenth of the estimate: no figure from it, one left out.
+    expect(r.body.total).toMatchObject({ n: 0, estimateHours: 0, actualHours: 0, biasPct: null, mapePct: null, leftOut: 1 })
+    expect(byLabel(r.body.rows)['Stone setting']).toMatchObject({ n: 0, leftOut: 1 })
+  })
+
   it('when the bias chart is drawn, then the month’s setting bias comes from the kept steps only and says how many were left out', async () => {
     const trend = (await owner.get(`/api/insights/bias-trend?routingId=${outlierRouting}`)).body
     // May 2031, setting: 200 min estimated, 200 taken → 0 % (with the 12-second step it would be −33.3 %); polishing has no kept step.

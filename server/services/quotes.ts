@@ -9,6 +9,7 @@ import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { money, quoteOffer } from '../mail/messages'
 import { minorToMajor } from '../../shared/domain/currency'
+import { metalName } from '../../shared/schemas/order'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
@@ -326,8 +327,9 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
   doc.fontSize(13).text(q.title).fontSize(11)
   if (q.description) doc.text(q.description)
   const d = q.details as { metal?: string; stones?: { description: string; count?: number; carats?: number }[] }
-  if (d.metal) doc.text(`Metal: ${d.metal}`)
-  for (const st of d.stones ?? []) doc.text(`Stone: ${st.description}${st.count ? ` × ${st.count}` : ''}${st.carats ? `, ${st.carats} ct` : ''}`)
+  // The metal by its name, not the code it is stored as; stones as "count × what".
+  if (d.metal) doc.text(`Metal: ${metalName(d.metal)}`)
+  for (const st of d.stones ?? []) doc.text(`Stones: ${st.count ? `${st.count} × ` : ''}${st.description}${st.carats ? `, ${st.carats} ct` : ''}`)
   if (q.promisedDate) doc.moveDown().text(`Ready by ${dayjs(q.promisedDate).format('D MMMM YYYY')}`)
   const c = q.confidence as { p80?: string } | null
   if (c?.p80) doc.text(`(Our planning gives 4 in 5 chances of finishing by ${dayjs(c.p80).format('D MMMM YYYY')})`)

@@ -1,6 +1,7 @@
 // Quotes: the price above zero, the state rules (drafted → sent → accepted, withdrawn or expired), the e-mail's wording and the daily money reminders sent by the timer.
 import { createServer, type Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
+import { PDFParse } from 'pdf-parse'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startPayFake, TEST_CARDS, type PayFake } from '../../server/dev/pay-fake'
 import { startDigestTimer } from '../../server/mail/digest-timer'
@@ -107,6 +108,28 @@ describe('the quote e-mail', () => {
 })
 
 describe('quote states', () => {
+  it('when the quote is printed, then its metal is named as the customer reads it and its stones as count × what', async () => {
+    const q = await drafted({
+      title: 'Pavé band',
+      details: { metal: 'gold-18ct', stones: [{ description: 'round diamonds of 1.5 mm', count: 18, carats: 0.25 }] },
+    })
+    const r = await sales
+      .get(`/api/quotes/${q.id}/pdf`)
+      .buffer(true)
+      .parse((res, cb) => {
+        const chunks: Buffer[] = []
+        res.on('data', (c: Buffer) => chunks.push(c))
+        res.on('end', () => cb(null, Buffer.concat(chunks)))
+      })
+    expect(r.status).toBe(200)
+    const parser = new PDFParse({ data: new Uint8Array(r.body as Buffer) })
+    const text = (await parser.getText()).text.replace(/\s+/g, ' ')
+    await parser.destroy()
+    expect(text).toContain('Metal: 18 ct gold')
+    expect(text).not.toContain('gold-18ct')
+    expect(text).toContain('Stones: 18 × round diamonds of 1.5 mm, 0.25 ct')
+  })
+
   it('when a draft is changed, sent and accepted, then each step moves it on, and a sent quote can no longer be changed', async () => {
     const q = await drafted()
     expect(q.status).toBe('drafted')

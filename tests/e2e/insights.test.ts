@@ -84,6 +84,11 @@ describe('insights as the owner', () => {
     await drawer.locator('.el-table__expand-icon').first().click()
     await drawer.locator('.el-table__expanded-cell .el-table__row').first().waitFor()
     await screenshot(page, 'insights-drill')
+    // Every column fits the drawer: the last one ("Source") ends inside the table's visible box, not cut to "routi…".
+    const table = drawer.locator('.el-table').first()
+    const source = table.locator('.el-table__header th', { hasText: 'Source' }).first()
+    const [tb, sb] = [(await table.boundingBox())!, (await source.boundingBox())!]
+    expect(sb.x + sb.width, `Source ends at ${sb.x + sb.width}, the table at ${tb.x + tb.width}`).toBeLessThanOrEqual(tb.x + tb.width + 1)
     const href = await drawer.locator('[data-test=insights-drill-csv]').getAttribute('href')
     expect(href).toMatch(/^\/api\/insights\/records\?groupBy=kind&key=\d+&format=csv$/)
     const r = await page.request.get(href!)

@@ -81,6 +81,10 @@ describe('metal on the bench and the owner’s metal screen', () => {
     // Nothing back yet: the 12 g are at the bench, not a loss, and no alarm.
     await expect(w.locator('[data-test=balance-at-bench]').innerText()).resolves.toBe('At the bench 12.00 g')
     await expect(w.locator('[data-test=balance-tolerance]').innerText()).resolves.not.toMatch(/^Over/)
+    // On the tablet the weighing's "Correct" and the card's photo button are a finger's height (44 px) to tap.
+    const card = setter.locator(`[data-test=my-work] [data-op="${op.id}"]`)
+    for (const button of [w.locator('[data-test^=correct-]').first(), card.locator('[data-test=file-upload]')])
+      await expect.poll(async () => (await button.boundingBox())?.height ?? 0, { timeout: 10_000 }).toBeGreaterThanOrEqual(44)
     // Finished now, the 12 g would all count as lost: the finish dialog says so, and "Not yet" keeps the step running.
     await setter.locator(`[data-test=my-work] [data-op="${op.id}"] [data-test=finish]`).click()
     await expect

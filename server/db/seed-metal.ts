@@ -75,6 +75,11 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
     .values(kinds.map((k) => ({ kindId: k.id, tolerancePct: DEFAULT_LOSS_TOLERANCE_PCT[k.code] ?? FALLBACK_LOSS_TOLERANCE_PCT })))
   const tolOf = new Map(kinds.map((k) => [k.id, DEFAULT_LOSS_TOLERANCE_PCT[k.code] ?? FALLBACK_LOSS_TOLERANCE_PCT]))
   const kindCode = new Map(kinds.map((k) => [k.id, k.code]))
+  // Repairs work on the customer's own piece: it comes out of their hands, not out of stock, and with nothing to spare.
+  const REPAIRS = new Set(['chain-repair', 'ring-resize', 'retip-claws'])
+  const routingCode = new Map(
+    (await tx.select({ id: s.routings.id, code: s.routings.code }).from(s.routings).where(eq(s.routings.workshopId, workshopId))).map((r) => [r.id, r.code]),
+  )
   const alloyFor = (metalCode: string) => {
     const m = PIECE_METAL_ALLOY[metalCode]
     return m ? alloys.find((a) => a.metal === m.metal && a.fineness === m.fineness) : undefined
@@ -151,18 +156,20 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
     if (!alloy) continue
     const [lo, hi] = START_G[alloy.metal]!
     let pieceMg = Math.round((lo + rand() * (hi - lo)) * 1000)
-    const fromCustomer = alloy.metal === 'gold' && rand() < 0.15
+    const oldGold = alloy.metal === 'gold' && rand() < 0.15
+    const repair = REPAIRS.has(routingCode.get(bag.routingId ?? -1) ?? '')
+    const fromCustomer = oldGold || repair
     const ordered = [...steps.values()].sort((a, b) => a.op.seq - b.op.seq)
     const lastBack = { at: '', weightMg: 0 }
     ordered.forEach((st, i) => {
       const code = kindCode.get(st.op.kindId)!
       // The first step takes the sheet or wire with some to spare; later steps take the piece as it came back.
-      const issued = i === 0 ? Math.round(pieceMg * 1.12) : pieceMg
+      const issued = i === 0 && !repair ? Math.round(pieceMg * 1.12) : pieceMg
       const tol = tolOf.get(st.op.kindId)!
       // Most steps lose a fraction of their tolerance; now and then one goes well over it (a lost offcut, a bad sweep).
       const over = rand() < 0.06
       const lossMg = Math.round((issued * tol * (over ? 1.4 + rand() * 1.4 : 0.15 + rand() * 0.8)) / 100)
-      const scrap = Math.round(issued * (i === 0 ? Math.max(0.1, scrapOf[code] ?? 0) : (scrapOf[code] ?? 0)) * (0.6 + rand() * 0.8))
+      const scrap = Math.round(issued * (i === 0 && !repair ? Math.max(0.1, scrapOf[code] ?? 0) : (scrapOf[code] ?? 0)) * (0.6 + rand() * 0.8))
       const lemel = Math.round(issued * (lemelOf[code] ?? 0) * (0.6 + rand() * 0.8))
       const piece = issued - lossMg - scrap - lemel
       if (piece <= 0) return
@@ -173,7 +180,7 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
         weightMg: issued,
         source: i === 0 && fromCustomer ? 'customer' : 'stock',
         recordedAt: st.start,
-        reason: i === 0 && fromCustomer ? 'Customer’s old gold, melted and rolled' : '',
+        reason: i === 0 && repair ? 'The customer’s piece, for repair' : i === 0 && fromCustomer ? 'Customer’s old gold, melted and rolled' : '',
       })
       rows.push({ ...common, kind: 'returned', form: 'piece', weightMg: piece, recordedAt: st.end })
       if (scrap > 0) rows.push({ ...common, kind: 'returned', form: 'scrap', weightMg: scrap, recordedAt: st.end })

@@ -162,6 +162,23 @@ describe('a hand-worked job bag', () => {
     })
   })
 
+  it('when the demo’s repairs were weighed, then the piece came from the customer, so all the metal in the bag is theirs', async () => {
+    const repairs = await t.db
+      .selectDistinct({ id: s.jobBags.id, code: s.routings.code })
+      .from(s.jobBags)
+      .innerJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
+      .innerJoin(s.metalMovements, eq(s.metalMovements.jobBagId, s.jobBags.id))
+      // The demo's weighed history: bags of collected orders (the tests here weigh on waiting bags).
+      .where(and(sql`${s.routings.code} in ('chain-repair', 'ring-resize', 'retip-claws')`, eq(s.jobBags.status, 'complete')))
+    expect(repairs.length, 'the demo has weighed repairs').toBeGreaterThan(0)
+    for (const r of repairs) {
+      const acc = (await as.owner.get(`/api/job-bags/${r.id}/metal`)).body
+      const first = (acc.movements as { kind: string; source: string | null }[]).find((m) => m.kind === 'issued')!
+      expect(first.source, `${r.code} bag ${r.id}`).toBe('customer')
+      expect(acc.total.fromCustomerMg, `${r.code} bag ${r.id}`).toBe(acc.total.issuedMg)
+    }
+  })
+
   it('when the tolerance is 3 %, then the same 2.1 % loss is not flagged; an edit from a stale read is refused', async () => {
     const v = (await as.owner.get('/api/metal/tolerances')).body.find((k: { kindId: number }) => k.kindId === kindId).version
     expect((await as.owner.put(`/api/metal/tolerances/${kindId}`, { tolerancePct: 3, version: v })).status).toBe(200)

@@ -23,20 +23,22 @@ const at = (day: number, h: number, m = 0) => day * DAY + h * 60 + m
  *   2 × 1440 + 1020 = 3900; polish Thursday 08:00–09:00 → 3 × 1440 + 540 = 4860.
  * Weighted tardiness: B (835 − 600) × 3 = 705, A (4860 − 3900) × 1 = 960, total 1665.
  */
+/** A step on bench b with person p for `minutes` (none when 0: outside work), after `predecessors`. */
+const step = (id: string, jobId: string, minutes: number, predecessors: string[], extra: object = {}) => ({
+  id,
+  jobId,
+  name: id,
+  kind: 'x',
+  predecessors,
+  options: minutes > 0 ? [{ benchId: 'b', personId: 'p', minutes }] : [],
+  ...extra,
+})
+
 function handCase(): Problem {
   const work = [0, 1, 2, 3].flatMap((d) => [
     { start: at(d, 8), end: at(d, 12) },
     { start: at(d, 13), end: at(d, 17) },
   ])
-  const step = (id: string, jobId: string, minutes: number, predecessors: string[], extra: object = {}) => ({
-    id,
-    jobId,
-    name: id,
-    kind: 'x',
-    predecessors,
-    options: minutes > 0 ? [{ benchId: 'b', personId: 'p', minutes }] : [],
-    ...extra,
-  })
   return {
     origin: '2025-03-03',
     now: at(0, 8),
@@ -130,15 +132,6 @@ describe('the workshop as a disjunctive graph with calendars', () => {
     //   K: hallmarking 2 days, due Monday 10:00 — no day can do it: a day before the first opening, −1440 from now.
     //   C: casting (outside) in the middle of the routing, then polish — not a last step: none.
     const work = [0, 1, 2, 3, 4].map((d) => ({ start: at(d, 8), end: at(d, 17) }))
-    const step = (id: string, jobId: string, minutes: number, predecessors: string[], extra: object = {}) => ({
-      id,
-      jobId,
-      name: id,
-      kind: 'x',
-      predecessors,
-      options: minutes > 0 ? [{ benchId: 'b', personId: 'p', minutes }] : [],
-      ...extra,
-    })
     const problem: Problem = {
       origin: '2025-03-03',
       now: at(0, 8),

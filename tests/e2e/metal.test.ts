@@ -96,7 +96,14 @@ describe('metal on the bench and the owner’s metal screen', () => {
     await setter.locator(`[data-test=my-work] [data-op="${op.id}"][data-status=running]`).waitFor()
 
     // Back in the same container: 12.70 → the piece 11.20 g, 1.85 → scrap 0.35 g, 1.70 → lemel 0.20 g.
+    const notePlaceholder = () =>
+      w
+        .locator('input[data-test=weigh-reason], textarea[data-test=weigh-reason], [data-test=weigh-reason] input, [data-test=weigh-reason] textarea')
+        .first()
+        .getAttribute('placeholder')
+    await expect(notePlaceholder()).resolves.toBe('A note (optional)')
     await w.locator('[data-test=weigh-mode-back]').click()
+    await expect.poll(notePlaceholder).toBe('Note if more came back than went out')
     for (const [form, reading, net] of [
       ['piece', '12.70', '11.20'],
       ['scrap', '1.85', '0.35'],

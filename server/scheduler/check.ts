@@ -1,5 +1,5 @@
 // Input checks run before planning: each bad input throws a SchedulingInputError naming the job and operation.
-import type { Interval, Operation, Problem } from './model.ts'
+import type { FixedPlacement, Interval, Operation, Problem } from './model.ts'
 import { SchedulingInputError } from './model.ts'
 import { clipToWindows, intersect, outsideWorkEnd, walkWorkingTime } from './calendar.ts'
 
@@ -228,15 +228,23 @@ export function checkProblem(problem: Problem): void {
     }
     return w
   }
+  /**
+   * The worked stretches of pinned or running work: up to its end where one is given, else its minutes (those of its pinned
+   * pair, else of its first option) run through the working time of its bench and person from its start; null past the calendars.
+   */
+  const pinnedStretches = (op: Operation, f: FixedPlacement): Interval[] | null => {
+    const w = windowsOf(f.benchId, f.personId)
+    if (f.end !== undefined) return clipToWindows(w, f.start, f.end)
+    const minutes = (op.options.find((o) => o.benchId === f.benchId && o.personId === f.personId) ?? op.options[0])?.minutes ?? 0
+    return walkWorkingTime(w, f.start, minutes)
+  }
   // Pinned and running work keeps its place, so two such steps may not hold one bench or one person at the same minute: no plan
   // could keep both. Their worked stretches are compared (a pin over lunch leaves the lunch hour free).
   const held = new Map<string, { op: Operation; start: number; end: number }[]>()
   for (const op of problem.operations) {
     const f = op.fixed
     if (!f || op.done || (op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0)) continue
-    const w = windowsOf(f.benchId, f.personId)
-    const minutes = (op.options.find((o) => o.benchId === f.benchId && o.personId === f.personId) ?? op.options[0])?.minutes ?? 0
-    const segs = f.end !== undefined ? clipToWindows(w, f.start, f.end) : (walkWorkingTime(w, f.start, minutes) ?? [])
+    const segs = pinnedStretches(op, f) ?? []
     for (const key of [f.benchId !== null ? `bench ${benches.get(f.benchId)!.name}` : null, f.personId !== null ? people.get(f.personId)!.name : null]) {
       if (key === null) continue
       const list = held.get(key) ?? held.set(key, []).get(key)!
@@ -274,10 +282,8 @@ export function checkProblem(problem: Problem): void {
     const away = op.outsideWorkingDays !== undefined && op.outsideWorkingDays > 0
     if (op.fixed && away) end = outsideWorkEnd(problem.workshopDays, op.fixed.start, op.outsideWorkingDays!)
     else if (op.fixed) {
-      // Pinned work without an end runs its minutes through the working time of its bench and person from its start.
       const f = op.fixed
-      const minutes = (op.options.find((o) => o.benchId === f.benchId && o.personId === f.personId) ?? op.options[0])?.minutes ?? 0
-      end = f.end ?? walkWorkingTime(windowsOf(f.benchId, f.personId), f.start, minutes)?.at(-1)?.end ?? null
+      end = f.end ?? pinnedStretches(op, f)?.at(-1)?.end ?? null
     } else if (away) end = outsideWorkEnd(problem.workshopDays, est, op.outsideWorkingDays!)
     else {
       end = null

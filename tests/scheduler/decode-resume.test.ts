@@ -21,15 +21,20 @@ const plain = (d: Decoded) => ({
   readyAt: Array.from(d.readyAt ?? []),
 })
 
+/** A generated workshop (40 job bags, work under way) decoded by its first dispatching rule, and a random stream for changes. */
+function startOf(seed: number) {
+  const c = compile(generateWorkshop({ seed, jobs: 40, withProgress: true }))
+  const key = dispatchKeys(c)[0]!,
+    choice = new Int32Array(c.n).fill(-1)
+  return { c, rng: createRng(seed), key, choice, cur: decode(c, key, choice) }
+}
+
 describe('decoder resumed after the picks a change cannot reach', () => {
   it('when keys and choices of a few steps change, then resuming from the first pick where one was ready equals a full decode', () => {
     for (const seed of [3, 4]) {
-      const problem = generateWorkshop({ seed, jobs: 40, withProgress: true })
-      const c = compile(problem)
-      const rng = createRng(seed)
-      let key = dispatchKeys(c)[0]!,
-        choice = new Int32Array(c.n).fill(-1)
-      let cur = decode(c, key, choice)
+      const start = startOf(seed)
+      const { c, rng } = start
+      let { key, choice, cur } = start
       let resumedSomewhere = 0
       for (let round = 0; round < 60; round++) {
         const k2 = key.slice(),
@@ -61,12 +66,9 @@ describe('decoder resumed after the picks a change cannot reach', () => {
     // The changes the planner's search makes: a step put just before another (its key just under the other's), a job bag's keys
     // all lowered, two keys swapped, a key raised, a choice changed. The reference is a full decode of the same keys and choices.
     for (const seed of [5, 6]) {
-      const problem = generateWorkshop({ seed, jobs: 40, withProgress: true })
-      const c = compile(problem)
-      const rng = createRng(seed)
-      let key = dispatchKeys(c)[0]!,
-        choice = new Int32Array(c.n).fill(-1)
-      let cur = decode(c, key, choice)
+      const start = startOf(seed)
+      const { c, rng } = start
+      let { key, choice, cur } = start
       let lateResumes = 0
       for (let round = 0; round < 80; round++) {
         const k2 = key.slice(),

@@ -1,6 +1,6 @@
 // Quote routes: sales, managers and the owner write and send quotes; bench users see none (no prices on the bench).
 import { paymentLink } from '../../shared/schemas/payment'
-import { quoteAction, quoteDetail, quoteInput, quoteLinkInput, quoteListQuery, quotePage, quoteUpdate } from '../../shared/schemas/quote'
+import { quoteAccepted, quoteAction, quoteDetail, quoteInput, quoteLinkInput, quoteListQuery, quotePage, quoteUpdate } from '../../shared/schemas/quote'
 import type { Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
 import * as quotes from '../services/quotes'
@@ -62,10 +62,10 @@ export const quoteRoutes = [
     method: 'post',
     path: '/quotes/:id/accept',
     roles: QUOTERS,
-    summary: 'The customer accepts: the order is made (or the quote’s order linked)',
+    summary: 'The customer accepts: the order is made and booked into the live plan where there is room (or the quote’s order linked)',
     params: idParam,
     body: quoteAction,
-    response: quoteDetail,
+    response: quoteAccepted,
     handler: ({ deps, actor, params, body }) => quotes.acceptQuote(deps, actor, params.id, body.version),
   }),
   route({

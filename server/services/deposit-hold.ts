@@ -4,7 +4,7 @@ import { and, eq, inArray, notInArray } from 'drizzle-orm'
 import { METAL_HEAVY_KINDS, WAITING_FOR_DEPOSIT } from '../../shared/domain/deposit-hold'
 import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
-import { ordersAwaitingDeposit } from './payments'
+import { ordersAwaitingDeposit } from './order-terms'
 
 /** Once a metal-heavy step of a bag has been taken (or finished), the metal is committed and later ones are not held. */
 const TAKEN = ['claimed', 'running', 'paused', 'done']

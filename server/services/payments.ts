@@ -1,6 +1,6 @@
 // Money for orders and quotes: payment links through the provider, card payments booked only from its signed webhook (once per
 // event id and once per payment id), cash and transfers by hand, refunds, what each order has paid and owes, the owner's summary.
-import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm'
+import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm'
 import type Stripe from 'stripe'
 import type { ManualPaymentInput, PaymentLinkInput, RefundInput } from '../../shared/schemas/payment'
 import type { Db, Trx } from '../db/client'
@@ -13,39 +13,15 @@ import { minorToDecimal, minorToMajor } from '../../shared/domain/currency'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
-import { quoteOrderInput } from './quote-order'
+import { orderTerms, paidOf, workshopOf } from './order-terms'
+import { bookQuoteOrder, quoteOrderInput, quoteRoom } from './quote-order'
+import { lockLivePlan } from '../planning/live-plan'
 
 type Tx = Db | Trx
 const STARTED = ['claimed', 'running', 'paused', 'done']
 
 const noProvider = () =>
   new AppError({ code: 'unavailable', message: 'No payment provider is set up (STRIPE_SECRET_KEY and STRIPE_WEBHOOK_SECRET, or the local test provider)' })
-
-async function workshopOf(db: Tx, workshopId: number) {
-  const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
-  if (!w) throw notFound('Workshop')
-  return w
-}
-
-/** An order's price and deposit in minor units: its accepted quote's, else the order's quoted price and the workshop's deposit %. */
-export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
-  const [o] = await db
-    .select()
-    .from(s.orders)
-    .where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
-  if (!o) throw notFound('Order')
-  const w = await workshopOf(db, workshopId)
-  const [q] = await db
-    .select()
-    .from(s.quotes)
-    .where(and(eq(s.quotes.orderId, orderId), inArray(s.quotes.status, ['accepted', 'sent', 'drafted'])))
-    .orderBy(sql`${s.quotes.status} = 'accepted' desc`, desc(s.quotes.id))
-    .limit(1)
-  // The order's own price is stored in minor units of the workshop's currency already: no conversion.
-  const priceMinor = q ? q.priceMinor : o.priceQuotedMinor
-  const depositMinor = q ? q.depositMinor : Math.round((priceMinor * w.depositPct) / 100)
-  return { order: o, quote: q ?? null, currency: q?.currency ?? w.currency, priceMinor, depositMinor }
-}
 
 const paymentCols = {
   id: s.payments.id,
@@ -89,9 +65,6 @@ const linkCols = {
   createdAt: s.paymentLinks.createdAt,
 }
 
-/** Paid counts every payment that is not waiting to be refunded (refunds are negative and lower it). */
-const paidOf = (rows: { amountMinor: number; toRefund: boolean }[]) => rows.filter((p) => !p.toRefund).reduce((t, p) => t + p.amountMinor, 0)
-
 export async function orderMoney(db: Tx, workshopId: number, orderId: number) {
   const t = await orderTerms(db, workshopId, orderId)
   const payments = await listPayments(db, and(eq(s.payments.workshopId, workshopId), eq(s.payments.orderId, orderId)))
@@ -114,18 +87,6 @@ export async function orderMoney(db: Tx, workshopId: number, orderId: number) {
     payments,
     links,
   }
-}
-
-/** Orders (of those given) whose deposit is not yet in: the planner holds their metal work when the workshop says so. */
-export async function ordersAwaitingDeposit(db: Tx, workshopId: number, orderIds: number[]): Promise<Set<number>> {
-  const out = new Set<number>()
-  for (const id of orderIds) {
-    const m = await orderTerms(db, workshopId, id)
-    if (m.depositMinor <= 0) continue
-    const rows = await db.select({ amountMinor: s.payments.amountMinor, toRefund: s.payments.toRefund }).from(s.payments).where(eq(s.payments.orderId, id))
-    if (paidOf(rows) < m.depositMinor) out.add(id)
-  }
-  return out
 }
 
 /** Where the customer lands after the hosted page (it books nothing: only the webhook does). */
@@ -340,10 +301,21 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
   }
 
   let booked: Awaited<ReturnType<typeof book>>
+  let planned: number | null = null
   try {
     const needsOrder = quote && quote.status !== 'withdrawn' && quote.status !== 'accepted' && !quote.orderId && !link.orderId
     if (needsOrder) {
-      booked = (await takeOrder(deps, actor, quoteOrderInput(quote), (tx, orderId) => book(tx, orderId))).extra
+      const input = quoteOrderInput(quote)
+      const room = await quoteRoom(deps, actor, input)
+      const { order, extra } = await takeOrder(deps, actor, input, async (tx, orderId) => {
+        // The live plan's lock before the quote's row lock, as every change to the live plan takes them.
+        await lockLivePlan(tx, link.workshopId)
+        const b = await book(tx, orderId)
+        // The payment is on the order now: its deposit is in when it covers it. A clash only leaves it unbooked; the money stands.
+        return { ...b, booking: await bookQuoteOrder(tx, actor, orderId, room) }
+      })
+      booked = extra
+      if (extra.booking.booked) planned = order.jobBags[0]?.operations[0]?.id ?? null
     } else booked = await deps.db.transaction((tx) => book(tx, null))
   } catch (err) {
     if (err instanceof AlreadyBooked) return { received: true, booked: false }
@@ -353,6 +325,7 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
   const p = booked.payment
   deps.realtime.emit(link.workshopId, 'payment:received', { id: p.id, orderId: p.orderId, quoteId: p.quoteId })
   if (booked.quoteChanged) deps.realtime.emit(link.workshopId, 'quote:changed', booked.quoteChanged)
+  if (planned) deps.realtime.emit(link.workshopId, 'plan:changed', { id: planned, operationId: planned })
   await sendReceipt(deps, link.workshopId, p.id)
   return { received: true, booked: true }
 }

@@ -4,6 +4,7 @@ import { cachedOr } from '../lib/cache'
 import { and, asc, eq } from 'drizzle-orm'
 import { quantileSorted } from 'simple-statistics'
 import type { JobBagForecast, OrderForecast, PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
+import type { OrderInput } from '../../shared/schemas/order'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import * as s from '../db/schema/index'
 import { AppError, invalid } from '../errors/app-error'
@@ -290,6 +291,39 @@ export function bookSlot(tx: Trx, actor: Actor, data: PlanningData, orderId: num
   return bookPromise(tx, actor, { data, orderId, steps, completion: placed.completion })
 }
 
+/** Where an order's piece finds room in the live plan now, for `bookSlot` in the order's transaction; or why it is not booked. */
+export type Room = { data: PlanningData; placed: ReturnType<typeof placeInGaps> } | { reason: string }
+
+/**
+ * Where the piece of an order about to be taken finds room in the live plan now (the promise's fixed answer: the gaps, nothing
+ * else moving), ending by the order's promised date (by its due date when nothing was promised). Fresh data, not the promise
+ * cache: the booking must be against the plan as it is now. A routing the plan cannot place still makes an order; it is only
+ * not booked.
+ */
+export async function roomFor(deps: Deps, actor: Actor, order: OrderInput, now: Date): Promise<Room> {
+  const piece = order.pieces[0]
+  if (!piece) return { reason: 'it has no piece made from a routing' }
+  const data = await loadPlanningData(deps.db, actor.workshopId, now)
+  const live = planFromAssignments(data, (await readLivePlan(deps.db, actor.workshopId)).assignments)
+  if (!live.operations.length) return { reason: 'no plan is published yet; the manager plans it with the first plan' }
+  const pj = await prospectiveJob(deps, actor.workshopId, data, { routingId: piece.routingId, params: piece.params, priority: order.priority })
+  let placed: ReturnType<typeof placeInGaps>
+  try {
+    placed = placeInGaps(data.problem, live, pj.job, pj.operations)
+  } catch (err) {
+    const e = planningError(err, data)
+    if (!(e instanceof AppError)) throw e
+    return { reason: `the plan cannot place it (${e.message})` }
+  }
+  if (!placed.feasible) return { reason: 'there is no room for it before the end of the calendar' }
+  const ends = local(data, placed.completion).date
+  if (ends > (order.promisedDate ?? order.dueDate))
+    return {
+      reason: `the room found now ends ${ends}, after the ${order.promisedDate ? 'promised' : 'due'} date; the manager plans it at the next re-plan`,
+    }
+  return { data, placed }
+}
+
 /**
  * Creates the order with the promised date (one job bag from the routing), books its steps into the live plan where the
  * promise finds room (nothing else moves; checked again inside the order's transaction), then sends the confirmation,
@@ -302,51 +336,22 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
     .where(and(eq(s.routings.id, input.routingId), eq(s.routings.workshopId, actor.workshopId)))
   if (!t) throw invalid('routingId', 'is not a routing of this workshop')
   if (input.dueDate && input.dueDate < input.promisedDate) throw invalid('dueDate', 'must not be before the promised date')
-  // Fresh data, not the promise cache: the booking must be against the plan as it is now.
-  const data = await loadPlanningData(deps.db, actor.workshopId, now)
-  const live = planFromAssignments(data, (await readLivePlan(deps.db, actor.workshopId)).assignments)
-  let placed: ReturnType<typeof placeInGaps> | null = null
-  let notBooked: string | null = null
-  if (!live.operations.length) notBooked = 'no plan is published yet; the manager plans it with the first plan'
-  else {
-    const pj = await prospectiveJob(deps, actor.workshopId, data, input)
-    // A routing the plan cannot place (no bench or person for a step) still makes an order; it is only not booked.
-    try {
-      placed = placeInGaps(data.problem, live, pj.job, pj.operations)
-    } catch (err) {
-      const e = planningError(err, data)
-      if (!(e instanceof AppError)) throw e
-      notBooked = `the plan cannot place it (${e.message})`
-    }
-    if (!placed) {
-      /* reason set above */
-    } else if (!placed.feasible) {
-      notBooked = 'there is no room for it before the end of the calendar'
-      placed = null
-    } else if (local(data, placed.completion).date > input.promisedDate) {
-      notBooked = `the room found now ends ${local(data, placed.completion).date}, after the promised date; the manager plans it at the next re-plan`
-      placed = null
-    }
+  const orderInput: OrderInput = {
+    customerId: input.customerId,
+    title: input.title,
+    dueDate: input.dueDate ?? input.promisedDate,
+    promisedDate: input.promisedDate,
+    priority: input.priority,
+    priceQuotedMinor: input.priceQuotedMinor,
+    notes: input.notes,
+    pieces: [{ routingId: input.routingId, piece: input.piece ?? input.title, params: input.params }],
   }
-  const { order, extra: taken } = await takeOrder(
-    deps,
-    actor,
-    {
-      customerId: input.customerId,
-      title: input.title,
-      dueDate: input.dueDate ?? input.promisedDate,
-      promisedDate: input.promisedDate,
-      priority: input.priority,
-      priceQuotedMinor: input.priceQuotedMinor,
-      notes: input.notes,
-      pieces: [{ routingId: input.routingId, piece: input.piece ?? input.title, params: input.params }],
-    },
-    async (tx, orderId) => {
-      const booking: Booking = placed ? await bookSlot(tx, actor, data, orderId, placed) : { booked: false, reason: notBooked! }
-      // With the job queue the confirmation is queued in the order's transaction: no order without its e-mail, nor the reverse.
-      return { booking, queued: deps.jobs ? await sendPromiseConfirmation({ ...deps, db: tx as unknown as Db }, actor.workshopId, orderId, booking) : null }
-    },
-  )
+  const room = await roomFor(deps, actor, orderInput, now)
+  const { order, extra: taken } = await takeOrder(deps, actor, orderInput, async (tx, orderId) => {
+    const booking: Booking = 'reason' in room ? { booked: false, reason: room.reason } : await bookSlot(tx, actor, room.data, orderId, room.placed)
+    // With the job queue the confirmation is queued in the order's transaction: no order without its e-mail, nor the reverse.
+    return { booking, queued: deps.jobs ? await sendPromiseConfirmation({ ...deps, db: tx as unknown as Db }, actor.workshopId, orderId, booking) : null }
+  })
   const { booking } = taken
   const firstOp = order.jobBags[0]?.operations[0]
   if (booking.booked && firstOp) deps.realtime.emit(actor.workshopId, 'plan:changed', { id: firstOp.id, operationId: firstOp.id })

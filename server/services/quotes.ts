@@ -14,7 +14,9 @@ import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
 import { createLink, listPayments } from './payments'
-import { quoteOrderInput } from './quote-order'
+import { bookQuoteOrder, quoteOrderInput, quoteRoom } from './quote-order'
+import type { Booking } from './promise'
+import { lockLivePlan } from '../planning/live-plan'
 import { LOCK } from '../lib/locks'
 
 const cols = {
@@ -266,17 +268,26 @@ export async function acceptQuote(deps: Deps, actor: Actor, id: number, version:
     .where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId)))
   if (!q) throw notFound('Quote')
   if (!['drafted', 'sent'].includes(q.status)) throw wrongState(q.status, 'accepted')
+  let booking: Booking | null = null
   if (q.orderId) await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString() }, 'accepted')
   else {
-    await takeOrder(deps, actor, quoteOrderInput(q), async (tx, orderId) => {
+    const input = quoteOrderInput(q)
+    const room = await quoteRoom(deps, actor, input)
+    const { order, extra } = await takeOrder(deps, actor, input, async (tx, orderId) => {
+      // The live plan's lock before the quote's row lock, as every change to the live plan takes them.
+      await lockLivePlan(tx, actor.workshopId)
       await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString(), orderId }, 'accepted', tx)
       await tx.update(s.payments).set({ orderId }).where(eq(s.payments.quoteId, id))
       await tx.update(s.paymentLinks).set({ orderId }).where(eq(s.paymentLinks.quoteId, id))
+      return bookQuoteOrder(tx, actor, orderId, room)
     })
+    booking = extra
+    const firstOp = order.jobBags[0]?.operations[0]
+    if (booking.booked && firstOp) deps.realtime.emit(actor.workshopId, 'plan:changed', { id: firstOp.id, operationId: firstOp.id })
   }
   const after = await getQuote(deps.db, actor.workshopId, id)
   deps.realtime.emit(actor.workshopId, 'quote:changed', { id, version: after.version, status: after.status })
-  return after
+  return { ...after, booking }
 }
 
 export async function withdrawQuote(deps: Deps, actor: Actor, id: number, version: number) {

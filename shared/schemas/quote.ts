@@ -3,6 +3,7 @@ import { z } from 'zod'
 import { id, isoDate, name, pageOf, version, wireInt } from './common'
 import { pieceParams } from './order'
 import { minorAmount, payment, paymentLink } from './payment'
+import { promiseBooking } from './promise'
 
 export { minorAmount }
 
@@ -122,3 +123,9 @@ export const quotePage = pageOf(quote)
 /** One quote, and every write's answer: with its payment links, payments and what is paid (net of refunds, not counting those to refund). */
 export const quoteDetail = quote.extend({ links: z.array(paymentLink), payments: z.array(payment), paidMinor: wireInt })
 export type QuoteDetail = z.infer<typeof quoteDetail>
+/**
+ * Accepting's answer: the quote, and whether the order made from it was booked into the live plan where its piece finds room
+ * now (as a promise's order is), and if not, why; null when no order was made (the quote was for an order already).
+ */
+export const quoteAccepted = quoteDetail.extend({ booking: promiseBooking.nullable() })
+export type QuoteAccepted = z.infer<typeof quoteAccepted>

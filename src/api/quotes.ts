@@ -1,11 +1,20 @@
 // Quotes API: the list, one quote with its payment links and payments, drafting, sending, accepting, withdrawing, its PDF and a deposit link.
 import type { z } from 'zod'
 import { paymentLink } from '@shared/schemas/payment'
-import { quoteDetail, quotePage, type Quote as QuoteRow, type QuoteDetail, type QuoteDetails, type quoteInput, type quoteUpdate } from '@shared/schemas/quote'
+import {
+  quoteAccepted,
+  quoteDetail,
+  quotePage,
+  type Quote as QuoteRow,
+  type QuoteDetail,
+  type QuoteDetails,
+  type quoteInput,
+  type quoteUpdate,
+} from '@shared/schemas/quote'
 import { api } from './client'
 
 export { QUOTE_STATUSES } from '@shared/schemas/quote'
-export type { QuoteConfidence, QuoteDetails, QuoteStatus } from '@shared/schemas/quote'
+export type { QuoteAccepted, QuoteConfidence, QuoteDetails, QuoteStatus } from '@shared/schemas/quote'
 export type QuoteStone = NonNullable<QuoteDetails['stones']>[number]
 /** A quote as a screen holds it: a list row, with its links, payments and what is paid once it was read on its own. */
 export type Quote = QuoteRow & Partial<Pick<QuoteDetail, 'links' | 'payments' | 'paidMinor'>>
@@ -37,7 +46,8 @@ export const createQuote = (body: QuoteInput) => api.post('/quotes', body, { sch
 export type QuoteUpdate = z.input<typeof quoteUpdate>
 export const updateQuote = (id: number, body: QuoteUpdate) => api.patch(`/quotes/${id}`, body, { schema: quoteDetail })
 export const sendQuote = (id: number, version: number) => api.post(`/quotes/${id}/send`, { version }, { schema: quoteDetail })
-export const acceptQuote = (id: number, version: number) => api.post(`/quotes/${id}/accept`, { version }, { schema: quoteDetail })
+/** Accepting answers whether the order made from the quote was booked into the live plan (`booking`). */
+export const acceptQuote = (id: number, version: number) => api.post(`/quotes/${id}/accept`, { version }, { schema: quoteAccepted })
 export const withdrawQuote = (id: number, version: number) => api.post(`/quotes/${id}/withdraw`, { version }, { schema: quoteDetail })
 export const quotePdfUrl = (id: number) => `/api/quotes/${id}/pdf`
 export const createQuoteLink = (id: number, amountMinor?: number) =>

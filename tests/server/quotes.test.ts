@@ -1,4 +1,5 @@
-// Quotes: the price above zero, the state rules (drafted → sent → accepted, withdrawn or expired), the e-mail's wording and the daily money reminders sent by the timer.
+// Quotes: the price above zero, the state rules (drafted → sent → accepted, withdrawn or expired), the e-mail's wording, the
+// order made from an accepted or paid quote booked into the live plan, and the daily money reminders sent by the timer.
 import { createServer, type Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { PDFParse } from 'pdf-parse'
@@ -8,11 +9,13 @@ import { startDigestTimer } from '../../server/mail/digest-timer'
 import { createMailer } from '../../server/mail/transport'
 import { loadConfig } from '../../server/config'
 import { dayjs } from '../../server/lib/time'
-import { count as countRows, eq, inArray } from 'drizzle-orm'
+import { and, asc, count as countRows, eq, inArray, isNotNull, notInArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { firstCustomerId } from '../setup/fixtures'
-import { expectFieldError } from './helpers'
+import { addPerson, firstCustomerId, firstWorkshopId, planStep, stepIdsByKey } from '../setup/fixtures'
+import { auditRows, expectFieldError } from './helpers'
+import { takeOrder } from '../../server/services/orders'
+import { bookQuoteOrder, quoteOrderInput, quoteRoom } from '../../server/services/quote-order'
 
 let t: TestApp, fake: PayFake, http: Server
 let sales: Agent, manager: Agent
@@ -161,6 +164,169 @@ describe('quote states', () => {
     const q = await drafted()
     expect((await sales.patch(`/api/quotes/${q.id}`, { title: 'A', version: q.version })).status).toBe(200)
     expect((await sales.patch(`/api/quotes/${q.id}`, { title: 'B', version: q.version })).status).toBe(409)
+  })
+})
+
+/**
+ * A corner of the workshop of its own, so the room a quoted piece finds can be worked out by hand: a new kind of work
+ * ("engraving", tagged), one bench equipped for it and one engraver who alone does it, working Wednesdays 09:00–12:00 (inside
+ * the workshop's 08:30–12:30) and on leave from today until the day before Wednesday `day`, the first Wednesday at least ten
+ * days ahead that is not a closure. Its routing: engrave, 60 minutes, then polish the engraving, 15 minutes. Another order of
+ * that routing is on the live plan there first: its engrave 09:00–10:00 and its polish 10:00–10:15.
+ */
+async function engravingCorner(tag: string, o: { forging?: boolean } = {}) {
+  const workshopId = await firstWorkshopId(t.db)
+  const kind = await manager.post('/api/operation-kinds', { code: `engraving-${tag}`, name: `Engraving ${tag}` })
+  expect(kind.status, JSON.stringify(kind.body)).toBe(201)
+  const [forging] = await t.db
+    .select({ id: s.operationKinds.id })
+    .from(s.operationKinds)
+    .where(and(eq(s.operationKinds.workshopId, workshopId), eq(s.operationKinds.code, 'forging')))
+  const steps = [
+    ...(o.forging ? [{ key: 'forge', kindId: forging!.id, name: 'Forge the blank', baseMinutes: 30 }] : []),
+    { key: 'engrave', kindId: kind.body.id, name: 'Engrave', baseMinutes: 60, ...(o.forging ? { after: ['forge'] } : {}) },
+    { key: 'polish', kindId: kind.body.id, name: 'Polish the engraving', baseMinutes: 15, after: ['engrave'] },
+  ]
+  const routing = await manager.post('/api/routings', { code: `engraved-${tag}`, name: `Engraved plate ${tag}`, steps })
+  expect(routing.status, JSON.stringify(routing.body)).toBe(201)
+  const [bench] = await t.db
+    .insert(s.benches)
+    .values({ workshopId, name: `Engraving bench ${tag}`, kind: 'engraving' })
+    .returning({ id: s.benches.id })
+  await t.db.insert(s.benchCapabilities).values({ benchId: bench!.id, kindId: kind.body.id })
+  const personId = await addPerson(t.db, { workshopId, name: `Engraver ${tag}`, skills: { codes: [`engraving-${tag}`], level: 3 } })
+  await t.db
+    .update(s.people)
+    .set({ weekPattern: [{ weekday: 3, start: '09:00', end: '12:00' }] })
+    .where(eq(s.people.id, personId))
+  const today = dayjs().tz(tz).format('YYYY-MM-DD')
+  const closed = await t.db.select().from(s.closures).where(eq(s.closures.workshopId, workshopId))
+  // Wednesday of the week after next: the Monday of this ISO week + 16 days (10 to 16 days from today).
+  let day = dayjs.tz(today, tz).startOf('isoWeek').add(16, 'day').format('YYYY-MM-DD')
+  while (closed.some((c) => c.startsOn <= day && day <= c.endsOn)) day = dayjs(day).add(7, 'day').format('YYYY-MM-DD')
+  await t.db.insert(s.leave).values({ personId, startsOn: today, endsOn: dayjs(day).subtract(1, 'day').format('YYYY-MM-DD') })
+  const at = (hhmm: string) => dayjs.tz(`${day} ${hhmm}`, tz).toISOString()
+  const other = await sales.post('/api/orders', {
+    customerId,
+    title: `Engraved plate already planned ${tag}`,
+    dueDate: dayjs(day).add(7, 'day').format('YYYY-MM-DD'),
+    pieces: [{ routingId: routing.body.id, piece: 'Plate' }],
+  })
+  expect(other.status, JSON.stringify(other.body)).toBe(201)
+  const otherSteps = await stepIdsByKey(t.db, { orderId: other.body.id })
+  const where = { benchId: bench!.id, personId }
+  await planStep(t.db, otherSteps.engrave!, { ...where, start: at('09:00'), end: at('10:00') })
+  await planStep(t.db, otherSteps.polish!, { ...where, start: at('10:00'), end: at('10:15') })
+  return { day, at, routingId: routing.body.id as number, ...where }
+}
+
+const o = s.operations
+/** Every planned step of the workshop (to see that nobody else moved). */
+const planned = async (except: number[] = []) =>
+  t.db
+    .select({ id: o.id, benchId: o.plannedBenchId, personId: o.plannedPersonId, start: o.plannedStart, end: o.plannedEnd })
+    .from(o)
+    .where(and(isNotNull(o.plannedStart), except.length ? notInArray(o.id, except) : undefined))
+    .orderBy(asc(o.id))
+/** The steps of an order as the plan holds them, by step key. */
+const orderSteps = async (orderId: number) =>
+  Object.fromEntries(
+    (
+      await t.db
+        .select({ key: o.key, benchId: o.plannedBenchId, personId: o.plannedPersonId, start: o.plannedStart, end: o.plannedEnd })
+        .from(o)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId))
+        .where(eq(s.jobBags.orderId, orderId))
+    ).map(({ key, ...x }) => [key, { ...x, start: x.start && new Date(x.start).toISOString(), end: x.end && new Date(x.end).toISOString() }]),
+  )
+const quoted = (c: { routingId: number }, promisedDate: string, title: string) =>
+  drafted({ title, promisedDate, details: { routingId: c.routingId, piece: 'Engraved plate', priority: 3 } })
+
+describe('an order from a quote on the live plan', () => {
+  it('when the office accepts a quote with a promised date, then its order is booked where the promise finds room now, nobody else moves, and the answer says so', async () => {
+    const c = await engravingCorner('office')
+    const before = await planned()
+    const q = await send(await quoted(c, dayjs(c.day).add(2, 'day').format('YYYY-MM-DD'), 'Engraved plate for the office'))
+    const r = await sales.post(`/api/quotes/${q.id}/accept`, { version: q.version })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect(r.body).toMatchObject({ status: 'accepted', orderId: expect.any(Number) })
+    // Hand-worked: the engraver is free on that Wednesday from 10:15 (the other plate's polish ends then): engrave 60 minutes,
+    // 10:15–11:15, then the polish 15 minutes, 11:15–11:30, on the engraving bench.
+    expect(await orderSteps(r.body.orderId)).toEqual({
+      engrave: { benchId: c.benchId, personId: c.personId, start: c.at('10:15'), end: c.at('11:15') },
+      polish: { benchId: c.benchId, personId: c.personId, start: c.at('11:15'), end: c.at('11:30') },
+    })
+    expect(r.body.booking).toEqual({ booked: true, start: c.at('10:15'), end: c.at('11:30'), startDate: c.day, endDate: c.day, steps: 2 })
+    const mine = Object.values(await stepIdsByKey(t.db, { orderId: r.body.orderId }))
+    expect(await planned(mine)).toEqual(before)
+    expect((await auditRows(t, 'order', r.body.orderId)).map((x) => x.action)).toContain('book')
+  })
+
+  it('when the deposit of a quote with a promised date is paid by card, then its order is booked where the promise finds room now', async () => {
+    const c = await engravingCorner('card')
+    const q = await send(await quoted(c, dayjs(c.day).add(2, 'day').format('YYYY-MM-DD'), 'Engraved plate paid by card'))
+    const paid = await fake.pay(q.links[0].url.split('/pay/')[1]!, TEST_CARDS.paid)
+    expect(paid.delivery?.status, paid.delivery?.body).toBe(200)
+    const after = (await sales.get(`/api/quotes/${q.id}`)).body
+    expect(after).toMatchObject({ status: 'accepted', orderId: expect.any(Number), paidMinor: 37500 })
+    // Hand-worked as above: 10:15–11:15 and 11:15–11:30 that Wednesday.
+    expect(await orderSteps(after.orderId)).toEqual({
+      engrave: { benchId: c.benchId, personId: c.personId, start: c.at('10:15'), end: c.at('11:15') },
+      polish: { benchId: c.benchId, personId: c.personId, start: c.at('11:15'), end: c.at('11:30') },
+    })
+  })
+
+  it('when the room found now ends after the quote’s promised date, then the order is made but not booked, and the answer and the audit say why', async () => {
+    const c = await engravingCorner('late')
+    // Promised for the Tuesday before the only room (that Wednesday).
+    const q = await send(await quoted(c, dayjs(c.day).subtract(1, 'day').format('YYYY-MM-DD'), 'Engraved plate promised too soon'))
+    const r = await sales.post(`/api/quotes/${q.id}/accept`, { version: q.version })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect(r.body.status).toBe('accepted')
+    const why = `the room found now ends ${c.day}, after the promised date; the manager plans it at the next re-plan`
+    expect(r.body.booking).toEqual({ booked: false, reason: why })
+    expect(await orderSteps(r.body.orderId)).toEqual({
+      engrave: { benchId: null, personId: null, start: null, end: null },
+      polish: { benchId: null, personId: null, start: null, end: null },
+    })
+    expect((await auditRows(t, 'order', r.body.orderId)).find((x) => x.action === 'not-booked')?.details).toEqual({ reason: why })
+  })
+
+  it('when its room is taken between placing it and the order’s transaction, then the order is still made, nothing is booked, and the audit names the booking that took it', async () => {
+    const c = await engravingCorner('clash')
+    const q = await quoted(c, dayjs(c.day).add(2, 'day').format('YYYY-MM-DD'), 'Engraved plate that loses its room')
+    const [row] = await t.db.select().from(s.quotes).where(eq(s.quotes.id, q.id))
+    const actor = { userId: row!.createdBy!, workshopId: row!.workshopId, role: 'sales' as const, personId: null, name: 'sales' }
+    const input = quoteOrderInput(row!)
+    const room = await quoteRoom(t.deps, actor, input)
+    // Meanwhile a third plate takes 10:15–11:15 with the engraver.
+    const third = await sales.post('/api/orders', {
+      customerId,
+      title: 'Engraved plate booked meanwhile',
+      dueDate: c.day,
+      pieces: [{ routingId: c.routingId, piece: 'Plate' }],
+    })
+    const thirdEngrave = (await stepIdsByKey(t.db, { orderId: third.body.id })).engrave!
+    await planStep(t.db, thirdEngrave, { benchId: c.benchId, personId: c.personId, start: c.at('10:15'), end: c.at('11:15') })
+    const { order, extra } = await takeOrder(t.deps, actor, input, (tx, orderId) => bookQuoteOrder(tx, actor, orderId, room))
+    expect(extra).toMatchObject({ booked: false, reason: expect.stringMatching(new RegExp(`taken meanwhile \\(${third.body.number}-1 "Engrave"`)) })
+    expect(Object.values(await orderSteps(order.id)).every((x) => x.start === null)).toBe(true)
+    expect((await auditRows(t, 'order', order.id)).find((x) => x.action === 'not-booked')?.details).toEqual({ reason: extra.booked ? null : extra.reason })
+  })
+
+  it('when metal work waits for the deposit and the office accepts the quote unpaid, then the order is made but not booked, saying it waits for the deposit', async () => {
+    const workshopId = await firstWorkshopId(t.db)
+    await t.db.update(s.workshops).set({ noMetalBeforeDeposit: true }).where(eq(s.workshops.id, workshopId))
+    try {
+      const c = await engravingCorner('held', { forging: true })
+      const q = await send(await quoted(c, dayjs(c.day).add(30, 'day').format('YYYY-MM-DD'), 'Forged and engraved plate'))
+      const r = await sales.post(`/api/quotes/${q.id}/accept`, { version: q.version })
+      expect(r.status, JSON.stringify(r.body)).toBe(200)
+      expect(r.body.booking).toEqual({ booked: false, reason: 'waiting for the deposit: the planner leaves it out until the deposit is in' })
+      expect(Object.values(await orderSteps(r.body.orderId)).every((x) => x.start === null)).toBe(true)
+    } finally {
+      await t.db.update(s.workshops).set({ noMetalBeforeDeposit: false }).where(eq(s.workshops.id, workshopId))
+    }
   })
 })
 

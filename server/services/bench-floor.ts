@@ -18,6 +18,7 @@ import type {
   TransitionResult,
 } from '../../shared/schemas/bench-floor'
 import { stonesToSet } from '../../shared/domain/stones'
+import { worksOnCustomersPiece } from '../../shared/domain/metal'
 import type { Db, Trx, Tx } from '../db/client'
 import {
   benchCapabilities,
@@ -30,6 +31,7 @@ import {
   orders,
   people,
   personSkills,
+  routings,
   routingSteps,
   timeRecords,
 } from '../db/schema/index'
@@ -72,6 +74,8 @@ const opFields = {
   after: operations.after,
   params: jobBags.params,
   routingId: jobBags.routingId,
+  routingCode: routings.code,
+  routingName: routings.name,
 }
 const baseQuery = (tx: Tx) =>
   tx
@@ -80,6 +84,7 @@ const baseQuery = (tx: Tx) =>
     .innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
     .innerJoin(orders, eq(orders.id, jobBags.orderId))
     .innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
+    .leftJoin(routings, eq(routings.id, jobBags.routingId))
     .leftJoin(claimer, eq(claimer.id, operations.claimedBy))
 type OpRow = Awaited<ReturnType<ReturnType<typeof baseQuery>['where']>>[number]
 
@@ -121,6 +126,7 @@ export async function toBenchOperations(tx: Tx, rows: OpRow[]): Promise<BenchOpe
     priority: r.priority,
     stones: stones.get(r.jobBagId)!,
     metal: r.params?.metal ?? null,
+    customerPiece: worksOnCustomersPiece(r.routingCode !== null && r.routingName !== null ? { code: r.routingCode, name: r.routingName } : null, r.params),
   }))
 }
 

@@ -105,3 +105,16 @@ export const PIECE_METAL_ALLOY: Record<string, { metal: AlloyMetal; fineness: nu
   'platinum-950': { metal: 'platinum', fineness: 950 },
   'palladium-950': { metal: 'palladium', fineness: 950 },
 }
+
+/**
+ * Whether a job bag's work is on the customer's own piece — a repair: the piece comes in from the customer, so its first weighing
+ * out is theirs, not metal from stock. Routings carry no kind of their own, so this reads the routing's code or name (repair, resize,
+ * retip, as the demo's repair routings are named) and a resize recorded on the piece (the ring being resized is the customer's).
+ */
+export function worksOnCustomersPiece(
+  routing: { code: string; name: string } | null | undefined,
+  params: { resizeFrom?: unknown; resizeTo?: unknown } | null | undefined,
+): boolean {
+  if (params?.resizeFrom || params?.resizeTo) return true
+  return !!routing && /\b(repair|resiz|retip)/i.test(`${routing.code} ${routing.name}`)
+}

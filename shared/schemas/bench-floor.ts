@@ -101,6 +101,8 @@ export const benchOperation = z.object({
   stones: benchStones,
   /** The piece's metal code (see METALS), or null when the bag has none recorded. */
   metal: z.string().nullable(),
+  /** The work is on the customer's own piece (a repair; shared/domain/metal.ts worksOnCustomersPiece): its metal comes from them, not from stock. */
+  customerPiece: z.boolean(),
 })
 
 /** The answer to every transition. */

@@ -630,4 +630,29 @@ describe('what a running card shows', () => {
     })
     expect(r.body.operation).toMatchObject({ estimateMinutes: 312, estimateSource: 'routing', estimateCountsStones: true })
   })
+
+  it('when the steps of the demo’s repairs are read, then each is work on the customer’s own piece; a new bezel ring is not, until a resize is recorded on it', async () => {
+    const bagOf = async (routing: string) =>
+      (
+        await t.db
+          .select({ id: s.jobBags.id })
+          .from(s.jobBags)
+          .innerJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
+          .where(eq(s.routings.code, routing))
+          .orderBy(asc(s.jobBags.id))
+          .limit(1)
+      )[0]!.id
+    const pieceOf = async (bagId: number) => {
+      const r = await setter.get(`/api/job-bags/${bagId}`)
+      expect(r.status, JSON.stringify(r.body)).toBe(200)
+      return [...new Set(r.body.operations.map((o: { customerPiece: boolean }) => o.customerPiece))]
+    }
+    // The demo's repair routings: "Repair: chain link", "Repair: ring resize", "Repair: retip claws".
+    for (const routing of ['chain-repair', 'ring-resize', 'retip-claws']) expect(await pieceOf(await bagOf(routing)), routing).toEqual([true])
+    const ring = await bagOf('bezel-ring')
+    expect(await pieceOf(ring)).toEqual([false])
+    // A resize of the ring from UK N to UK P: the ring being resized is the customer's.
+    await mergeParams(ring, { resizeFrom: { scale: 'uk', value: 'N' }, resizeTo: { scale: 'uk', value: 'P' } })
+    expect(await pieceOf(ring)).toEqual([true])
+  })
 })

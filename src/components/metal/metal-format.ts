@@ -55,6 +55,16 @@ export function alloyForPieceMetal(alloys: readonly Alloy[], pieceMetal: string 
   return (want.metal === 'gold' ? fits.find((a) => /yellow/i.test(a.name)) : undefined) ?? fits[0] ?? null
 }
 
+/**
+ * Where a weighing out of a job bag's metal comes from unless the bench says otherwise: what the bag was first weighed out as — the
+ * piece weighed out again for a later step is still that metal; a weighing corrected to 0 does not count — else, before any
+ * weighing, the customer's own piece for a repair (it comes in from them), else stock.
+ */
+export function sourceForWeighOut(movements: readonly Pick<MetalMovement, 'kind' | 'source' | 'effectiveMg'>[], customerPiece: boolean): 'stock' | 'customer' {
+  const first = movements.find((m) => m.kind === 'issued' && m.effectiveMg > 0 && m.source !== null)
+  return first?.source ?? (customerPiece ? 'customer' : 'stock')
+}
+
 const TARE_KEY = 'millgrain.metal.containerG'
 /** The container weight this tablet remembers (0 when none). */
 export function loadTare(): number {

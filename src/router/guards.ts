@@ -13,8 +13,11 @@ declare module 'vue-router' {
     guestOnly?: boolean
     /** Page title shown in the browser tab. */
     title?: string
-    /** Where toasts appear on this screen: at the bottom where the screen's top holds controls people must reach while one shows. */
-    toasts?: 'top' | 'bottom'
+    /**
+     * Where toasts appear on this screen: 'title-bar' keeps them in the sticky title bar, one at a time, where a screen's own
+     * controls — at its top and down the page as it scrolls — must stay free to tap while one shows.
+     */
+    toasts?: 'top' | 'title-bar'
   }
 }
 

@@ -24,8 +24,9 @@ export const routes: RouteRecordRaw[] = [
         path: 'bench',
         name: 'bench',
         component: laterOr('BenchFloorView'),
-        // The big Scan ticket button sits at the top: a toast there after each tap would cover it.
-        meta: { roles: ['owner', 'manager', 'bench'], title: 'My bench queue', toasts: 'bottom' },
+        // The Scan ticket button sits at the top and the cards' buttons (weighing keypad, Weigh out, Pause, Finish) anywhere down the
+        // page as it scrolls: a toast under the title bar or at the bottom would cover one of them.
+        meta: { roles: ['owner', 'manager', 'bench'], title: 'My bench queue', toasts: 'title-bar' },
       },
       {
         path: 'job-bags/:id(\\d+)',

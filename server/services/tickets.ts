@@ -57,6 +57,30 @@ export function ticketStoneSourceWords(st: Pick<StonesToSet, 'source' | 'pieceFi
 }
 
 const SIZES = { A6: [297.64, 419.53], A5: [419.53, 595.28] } as const
+
+/**
+ * How a routing's steps are printed (points on A6, × 1.3 on A5): the step's name in bold with its kind of work, level and bench
+ * under it (or, `inline`, run on after the name; `noKind`, without the kind of work, which the step's name and its (!) already
+ * tell), the planned time to the right in a column `estW` wide (else as wide as the widest), a tick box and a gap. The roomiest
+ * that keeps the ticket on one page is used: a long routing gets smaller type, never under 6.5 pt.
+ */
+interface StepStyle {
+  name: number
+  detail: number
+  est: number
+  estW?: number
+  box: number
+  gap: number
+  inline: boolean
+  noKind?: boolean
+}
+const STEP_STYLES: readonly StepStyle[] = [
+  { name: 8.5, detail: 6.5, est: 8, estW: 62, box: 8, gap: 3, inline: false },
+  { name: 7.5, detail: 6.5, est: 7, box: 7, gap: 2, inline: false },
+  { name: 7, detail: 6.5, est: 7, box: 7, gap: 1.5, inline: true },
+  { name: 6.5, detail: 6.5, est: 6.5, box: 6.5, gap: 1, inline: true },
+  { name: 6.5, detail: 6.5, est: 6.5, box: 6.5, gap: 1, inline: true, noKind: true },
+]
 const fmtDate = (d: string) =>
   new Date(`${d}T00:00:00Z`).toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' })
 
@@ -180,79 +204,92 @@ export async function jobTicketPdf(db: Db, workshopId: number, jobBagId: number,
   doc.moveDown(0.3)
   doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text('Routing', m, doc.y)
   doc.moveDown(0.2)
-  const box = fs(8)
-  const estW = fs(62)
-  const hazardous: { name: string; cautions: string[] }[] = []
-  for (const [i, op] of bag.operations.entries()) {
-    if (op.status === 'skipped') continue
-    const cautions = cautionsFor(op.hazards).filter((c) => c !== HAZARD_FOOTER)
-    if (cautions.length) hazardous.push({ name: op.name, cautions })
-    const lineH = fs(9) * 1.25 + fs(6.5) * 1.2 + 4
-    if (doc.y + lineH > h - m - 10) doc.addPage()
+  const steps = bag.operations
+    .map((op, i) => ({ op, i }))
+    .filter(({ op }) => op.status !== 'skipped')
+    .map(({ op, i }) => {
+      const cautions = cautionsFor(op.hazards).filter((c) => c !== HAZARD_FOOTER)
+      const bench = op.plannedBenchId !== null ? benchName.get(op.plannedBenchId) : undefined
+      return {
+        op,
+        cautions,
+        name: `${i + 1}. ${op.name}${cautions.length ? '  (!)' : ''}`,
+        kind: op.kindName,
+        more: [...(op.requiredLevel > 1 ? [`level ${op.requiredLevel}`] : []), ...(bench ? [`at ${bench}`] : [])],
+        est: op.outside || op.leadDays > 0 ? `${op.leadDays} working day${op.leadDays === 1 ? '' : 's'}` : `${Math.round(op.estimateMinutes)} min`,
+      }
+    })
+  const detailOf = (st: StepStyle, x: (typeof steps)[number]) => (st.noKind ? x.more : [x.kind, ...x.more]).join(' · ')
+  const cautionLines = [...new Set(steps.flatMap((st) => st.cautions))]
+  const full = w - 2 * m
+  /** Height of a text in a font and size over a width, as it will be printed (pdfkit's own line breaking). */
+  const heightOf = (text: string, font: string, size: number, width: number) => doc.font(font).fontSize(size).heightOfString(text, { width })
+  const cautionsH = cautionLines.length
+    ? fs(4) +
+      heightOf('Safety cautions', 'Helvetica-Bold', fs(8), full) +
+      cautionLines.reduce((sum, c) => sum + heightOf(`• ${c}`, 'Helvetica', fs(6.5), full), 0) +
+      heightOf(HAZARD_FOOTER, 'Helvetica-Oblique', fs(6.5), full)
+    : 0
+  const printedH = 6 + heightOf(`Printed ${workshopTime(o.now ?? new Date(), ws.timeZone)} · ${link}`, 'Helvetica', fs(5.5), full)
+  // The roomiest style whose steps, with the cautions and the printed line, fit what is left of the page; a routing too long even
+  // for the tightest goes on over a second page, a step never split.
+  const room = h - m - doc.y - cautionsH - printedH - 2
+  const estW = (st: StepStyle) =>
+    st.estW !== undefined ? fs(st.estW) : Math.max(0, ...steps.map((x) => doc.font('Helvetica').fontSize(fs(st.est)).widthOfString(x.est))) + fs(4)
+  const nameW = (st: StepStyle) => full - fs(st.box) - 6 - estW(st)
+  const stepH = (st: StepStyle, x: (typeof steps)[number]) => {
+    const detail = detailOf(st, x)
+    // Inline, measured all in the name's bold (wider than the detail's regular), so the estimate never falls short.
+    const text = st.inline
+      ? heightOf(detail ? `${x.name}  ${detail}` : x.name, 'Helvetica-Bold', fs(st.name), nameW(st))
+      : heightOf(x.name, 'Helvetica-Bold', fs(st.name), nameW(st)) + Math.max(heightOf(detail, 'Helvetica', fs(st.detail), nameW(st)), fs(st.detail) * 1.2)
+    return Math.max(text, fs(st.box) + 2) + st.gap
+  }
+  const style = STEP_STYLES.find((st) => steps.reduce((sum, x) => sum + stepH(st, x), 0) <= room) ?? STEP_STYLES.at(-1)!
+  const box = fs(style.box)
+  const nw = nameW(style)
+  const ew = estW(style)
+  for (const x of steps) {
+    if (doc.y + stepH(style, x) > h - m) doc.addPage()
     const y = doc.y
     doc
       .rect(m, y + 1, box, box)
       .lineWidth(0.8)
       .strokeColor('#000')
       .stroke()
-    if (op.status === 'done')
+    if (x.op.status === 'done')
       doc
         .moveTo(m + 1.5, y + box / 2 + 1)
         .lineTo(m + box / 2.5, y + box - 0.5)
         .lineTo(m + box - 1, y + 2.5)
         .stroke()
-    const x = m + box + 6
-    const nameW = w - m - x - estW
-    doc
-      .font('Helvetica-Bold')
-      .fontSize(fs(8.5))
-      .fillColor('#000')
-      .text(`${i + 1}. ${op.name}${cautions.length ? '  (!)' : ''}`, x, y, { width: nameW })
-    const yAfter = doc.y
-    doc
-      .font('Helvetica')
-      .fontSize(fs(6.5))
-      .fillColor('#444')
-      .text(
-        `${op.kindName}${op.requiredLevel > 1 ? ` · level ${op.requiredLevel}` : ''}${op.plannedBenchId !== null && benchName.has(op.plannedBenchId) ? ` · at ${benchName.get(op.plannedBenchId)}` : ''}`,
-        x,
-        yAfter,
-        { width: nameW },
-      )
-    const est = op.outside || op.leadDays > 0 ? `${op.leadDays} working day${op.leadDays === 1 ? '' : 's'}` : `${Math.round(op.estimateMinutes)} min`
+    const tx = m + box + 6
+    const detail = detailOf(style, x)
+    if (style.inline) {
+      doc.font('Helvetica-Bold').fontSize(fs(style.name)).fillColor('#000').text(x.name, tx, y, { width: nw, continued: !!detail })
+      if (detail) doc.font('Helvetica').fontSize(fs(style.detail)).fillColor('#444').text(`  ${detail}`)
+    } else {
+      doc.font('Helvetica-Bold').fontSize(fs(style.name)).fillColor('#000').text(x.name, tx, y, { width: nw })
+      const yAfter = doc.y
+      doc.font('Helvetica').fontSize(fs(style.detail)).fillColor('#444').text(detail, tx, yAfter, { width: nw })
+      doc.y = Math.max(doc.y, yAfter + fs(style.detail) * 1.2)
+    }
+    const yEnd = doc.y
     doc
       .font('Helvetica')
-      .fontSize(fs(8))
+      .fontSize(fs(style.est))
       .fillColor('#000')
-      .text(est, w - m - estW, y, { width: estW, align: 'right' })
-    doc.y = Math.max(doc.y, yAfter + fs(6.5) * 1.2) + 3
+      .text(x.est, w - m - ew, y, { width: ew, align: 'right' })
+    doc.y = Math.max(yEnd, y + box + 2) + style.gap
     doc.x = m
   }
 
-  if (hazardous.length) {
-    doc.moveDown(0.4)
-    if (doc.y > h - m - 60) doc.addPage()
-    doc
-      .font('Helvetica-Bold')
-      .fontSize(fs(8))
-      .fillColor('#000')
-      .text('Safety cautions', m, doc.y, { width: w - 2 * m })
-    const seen = new Set<string>()
-    for (const hz of hazardous) {
-      for (const c of hz.cautions) {
-        if (seen.has(c)) continue
-        seen.add(c)
-        doc
-          .font('Helvetica')
-          .fontSize(fs(6.5))
-          .fillColor('#000')
-          .text(`• ${c}`, m, doc.y, { width: w - 2 * m })
-      }
-    }
-    doc
-      .font('Helvetica-Oblique')
-      .fontSize(fs(6.5))
-      .text(HAZARD_FOOTER, m, doc.y, { width: w - 2 * m })
+  if (cautionLines.length) {
+    if (doc.y + cautionsH > h - m) doc.addPage()
+    else doc.y += fs(4)
+    doc.font('Helvetica-Bold').fontSize(fs(8)).fillColor('#000').text('Safety cautions', m, doc.y, { width: full })
+    for (const c of cautionLines) doc.font('Helvetica').fontSize(fs(6.5)).fillColor('#000').text(`• ${c}`, m, doc.y, { width: full })
+    doc.font('Helvetica-Oblique').fontSize(fs(6.5)).text(HAZARD_FOOTER, m, doc.y, { width: full })
   }
   doc
     .font('Helvetica')

@@ -1,6 +1,7 @@
 // The printable job ticket: a real PDF (read back with pdf-parse) with number, routing, cautions, no customer contact data,
 // names instead of codes, the stones counted as the setting estimate counts them, the print time in the workshop's zone, and a QR that decodes to the bag's link at the workshop's public address.
 import { networkInterfaces } from 'node:os'
+import { inflateSync } from 'node:zlib'
 import { PDFParse } from 'pdf-parse'
 import jsQR from 'jsqr'
 import { PNG } from 'pngjs'
@@ -11,10 +12,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { HAZARD_CAUTIONS, HAZARD_FOOTER } from '../../shared/domain/status'
 import { jobBagLink, jobTicketPdf, ticketQrPng } from '../../server/services/tickets'
 import { suggestPublicUrl } from '../../server/lib/public-url'
-import { and, asc, eq, exists, ne } from 'drizzle-orm'
+import { and, asc, eq, exists, inArray, ne } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { routingId } from '../setup/fixtures'
+import { benchIdByName, routingId } from '../setup/fixtures'
 import { expectCleanError, expectFieldError } from './helpers'
 
 dayjs.extend(utc)
@@ -118,6 +119,39 @@ async function pdfText(pdf: Buffer): Promise<string> {
   return text.replace(/\s+/g, ' ')
 }
 
+/**
+ * Every run of text a PDF prints, with its font size, in the order drawn: each Flate-compressed stream inflated with node's zlib,
+ * and in it each text object (BT … ET) read by the PDF operators for the font and size (Tf) and the strings shown (TJ, Tj) —
+ * ISO 32000-1 §7.4.4 and §9.4. pdfkit writes the standard fonts' strings as hex in WinAnsi, which is Latin-1 for these letters.
+ */
+function pdfTextRuns(pdf: Buffer): { size: number; text: string }[] {
+  const raw = pdf.toString('latin1')
+  const runs: { size: number; text: string }[] = []
+  for (const m of raw.matchAll(/stream\r?\n/g)) {
+    const from = m.index + m[0].length
+    let content: string
+    try {
+      content = inflateSync(pdf.subarray(from, raw.indexOf('endstream', from))).toString('latin1')
+    } catch {
+      continue // not Flate-compressed
+    }
+    if (!/ Tf\b/.test(content)) continue // no text in it (the QR code's pixels)
+    for (const [, block] of content.matchAll(/\bBT\b([\s\S]*?)\bET\b/g)) {
+      const size = Number(block!.match(/\/\w+ ([\d.]+) Tf/)?.[1])
+      const text = [...block!.matchAll(/<([0-9a-fA-F]*)>/g)].map(([, hex]) => Buffer.from(hex!, 'hex').toString('latin1')).join('')
+      if (text) runs.push({ size, text })
+    }
+  }
+  return runs
+}
+/** The runs from the routing's heading to the safety cautions (or the end): the steps as printed. */
+const routingRuns = (pdf: Buffer) => {
+  const runs = pdfTextRuns(pdf)
+  const from = runs.findIndex((r) => r.text === 'Routing')
+  const to = runs.findIndex((r) => r.text === 'Safety cautions')
+  return runs.slice(from + 1, to === -1 ? undefined : to)
+}
+
 /** The QR code printed on a ticket: the first image of page 1, read by jsqr. */
 async function pdfQr(pdf: Buffer): Promise<string | null> {
   const parser = new PDFParse({ data: new Uint8Array(pdf) })
@@ -147,6 +181,21 @@ describe('job ticket PDF', () => {
     expect(text).toContain(bag.reference)
     const steps = await t.db.select({ name: s.operations.name }).from(s.operations).where(eq(s.operations.jobBagId, bag.id))
     for (const step of steps) expect(text.replace(/\s+/g, ' ')).toContain(step.name)
+  })
+
+  it('when the routing has room on the page, then its steps print at the usual 8.5 pt, their kind of work on the line under', async () => {
+    const runs = routingRuns(pdf)
+    const ops = await t.db
+      .select({ name: s.operations.name, kind: s.operationKinds.name })
+      .from(s.operations)
+      .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+      .where(and(eq(s.operations.jobBagId, bag.id), ne(s.operations.status, 'skipped')))
+      .orderBy(asc(s.operations.seq), asc(s.operations.id))
+    ops.forEach((op, i) => {
+      const at = runs.findIndex((r) => r.text.startsWith(`${i + 1}. `))
+      expect(runs[at], op.name).toMatchObject({ size: 8.5 })
+      expect(runs[at + 1]!.text, op.name).toMatch(new RegExp(`^${op.kind.replace(/[()]/g, '\\$&')}`))
+    })
   })
 
   it('when a step is hazardous, then its cautions and the footer are printed', () => {
@@ -413,5 +462,91 @@ describe('the public address in the workshop settings', () => {
     // The test app's configuration keeps the default HOST (127.0.0.1): tablets could not reach the suggestion.
     expect(w.publicUrlSuggestion.reachable).toBe(false)
     expectCleanError(await manager.put('/api/workshop', { ...w, publicUrl: 'http://192.0.2.1' }), 403)
+  })
+})
+
+describe('a long routing on an A6 ticket', () => {
+  // Fourteen steps with the long names a workshop writes for a halo ring made by hand (the demo's run 15–25 characters; these
+  // 41–51), torch, pickle and lathe work among them so their safety cautions print too, the customer's own centre stone and a
+  // halo on the stone list, and a ring size.
+  const STEPS: [key: string, kind: string, name: string][] = [
+    ['anneal', 'forging', 'Anneal and draw down the square wire for the shank'],
+    ['saw', 'sawing', 'Saw and pierce the gallery from the sheet'],
+    ['form', 'filing', 'Form the shank on the triblet and true it'],
+    ['close', 'soldering', 'Solder the shank closed, pickle and rinse'],
+    ['file', 'filing', 'File the joins flush and emery the inside'],
+    ['gallery', 'soldering', 'Solder the gallery to the shank with medium solder'],
+    ['drill', 'drilling', 'Drill and cut the seats for the halo stones'],
+    ['prepolish', 'polishing', 'Pre-polish the inside before the stones go in'],
+    ['centre', 'setting', 'Set the centre stone and tighten the claws'],
+    ['halo', 'setting', 'Set the halo and bright-cut the grain edges'],
+    ['check', 'inspection', 'Check the stones for chips and the claws for snags'],
+    ['hallmark', 'hallmarking', 'Hallmark at the assay office with the declaration'],
+    ['polish', 'polishing', 'Final polish on the lathe, ultrasonic and steam'],
+    ['inspect', 'inspection', 'Inspect, photograph, bag and label for collection'],
+  ]
+  let id: number
+
+  beforeAll(async () => {
+    const kinds = Object.fromEntries((await manager.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
+    const routing = await manager.post('/api/routings', {
+      code: 'halo-ring-long',
+      name: 'Halo ring, made by hand',
+      steps: STEPS.map(([key, kind, name], i) => ({
+        key,
+        kindId: kinds[kind],
+        name,
+        baseMinutes: kind === 'hallmarking' ? 0 : 30 + 5 * i,
+        leadDays: kind === 'hallmarking' ? 4 : 0,
+        after: i ? [STEPS[i - 1]![0]] : [],
+      })),
+    })
+    expect(routing.status, JSON.stringify(routing.body)).toBe(201)
+    const [customer] = await t.db.select({ id: s.customers.id }).from(s.customers).where(eq(s.customers.workshopId, 1)).orderBy(asc(s.customers.id)).limit(1)
+    const order = await manager.post('/api/orders', {
+      customerId: customer!.id,
+      title: 'Halo ring',
+      dueDate: '2031-03-14',
+      pieces: [
+        {
+          routingId: routing.body.id,
+          piece: 'Halo engagement ring in 18 ct white gold',
+          params: { metal: 'gold-18ct', sizeMm: 18, ringSize: { scale: 'uk', value: 'M' }, stoneCount: 15, stoneSizeMm: 1.3 },
+        },
+      ],
+    })
+    expect(order.status, JSON.stringify(order.body)).toBe(201)
+    id = (order.body as { jobBags: { id: number }[] }).jobBags[0]!.id
+    for (const line of [
+      { role: 'centre', sizeMm: 6.5, count: 1, customerOwned: true, quality: 'G VS1' },
+      { role: 'halo', sizeMm: 1.3, count: 14 },
+    ]) {
+      const r = await manager.post(`/api/job-bags/${id}/stones`, line)
+      expect(r.status, JSON.stringify(r.body)).toBe(201)
+    }
+    // The setting steps planned at the setter's bench, so their lines name it.
+    await t.db
+      .update(s.operations)
+      .set({ plannedBenchId: await benchIdByName(t.db, 'Setting bench A') })
+      .where(and(eq(s.operations.jobBagId, id), inArray(s.operations.key, ['centre', 'halo'])))
+  })
+
+  it('when a bag of 14 long-named steps is printed on A6, then it is one page with every step, the safety cautions, the QR code and no step under 6.5 pt', async () => {
+    const { pdf } = await jobTicketPdf(t.db, 1, id, { size: 'A6', requestOrigin: 'http://127.0.0.1:9' })
+    const parser = new PDFParse({ data: new Uint8Array(pdf) })
+    const read = await parser.getText()
+    await parser.destroy()
+    expect(read.total, 'pages').toBe(1)
+    const flat = read.text.replace(/\s+/g, ' ')
+    STEPS.forEach(([, , name], i) => expect(flat).toContain(`${i + 1}. ${name}`))
+    expect(flat).toContain('at Setting bench A')
+    expect(flat).toContain(HAZARD_CAUTIONS.lathe.slice(0, 40))
+    expect(flat).toContain(HAZARD_FOOTER.slice(0, 30))
+    expect(await pdfQr(pdf)).toBe(`${PUBLIC_URL}/job-bags/${id}`)
+    // Every step, its bench and its planned time in type of 6.5 pt or more, and smaller than the usual 8.5 pt.
+    const runs = routingRuns(pdf)
+    STEPS.forEach((_, i) => expect(runs.find((r) => r.text.startsWith(`${i + 1}. `))?.size).toBeLessThan(8.5))
+    expect(runs.length).toBeGreaterThanOrEqual(STEPS.length * 2)
+    for (const r of runs) expect(r.size, r.text).toBeGreaterThanOrEqual(6.5)
   })
 })

@@ -12,7 +12,7 @@ import { audit } from '../services/audit'
 import { dayjs } from '../lib/time'
 import type { Plan } from '../scheduler/model.ts'
 import { fromEnginePlan, fromStored, toStored, type Assignment, type Assignments } from './assignments'
-import { latenessFigures, lockLivePlan, readLivePlan, storeLiveFigures, writeAssignment } from './live-plan'
+import { checkLivePlan, latenessFigures, lockLivePlan, readLivePlan, storeLiveFigures, writeAssignment } from './live-plan'
 import { loadPlanningData, type PlanningData } from './problem'
 
 export async function listPlans(db: Db, workshopId: number) {
@@ -82,8 +82,9 @@ export function diffAssignments(from: Assignments, to: Assignments, asOf?: Date)
 }
 
 /**
- * What the changes buy, per job bag planned in both: pieces that finish earlier or later, and those among them whose lateness
- * (after the promised day) shrinks or grows — lateness in working time, as the plans' figures count it (latenessFigures).
+ * What the changes buy, per job bag planned in both: pieces that finish earlier or later, those among them whose lateness
+ * (after the promised day) shrinks or grows — lateness in working time, as the plans' figures count it (latenessFigures) —
+ * and those that are late in one plan and not in the other (newly late, no longer late).
  */
 async function whatItBuys(db: Db, workshopId: number, data: PlanningData, base: Assignments, draft: Assignments) {
   const c = data.clock
@@ -120,7 +121,9 @@ async function whatItBuys(db: Db, workshopId: number, data: PlanningData, base: 
   let earlier = 0,
     later = 0,
     lessLate = 0,
-    moreLate = 0
+    moreLate = 0,
+    newlyLate = 0,
+    noLongerLate = 0
   for (const [bag, b] of before) {
     const a = after.get(bag)
     if (a === undefined || a === b) continue
@@ -131,8 +134,10 @@ async function whatItBuys(db: Db, workshopId: number, data: PlanningData, base: 
       la = lateBy(a, due)
     if (la < lb) lessLate++
     else if (la > lb) moreLate++
+    if (lb === 0 && la > 0) newlyLate++
+    if (lb > 0 && la === 0) noLongerLate++
   }
-  return { earlier, later, lessLate, moreLate }
+  return { earlier, later, lessLate, moreLate, newlyLate, noLongerLate }
 }
 
 /** The job bag and name of some operations of the workshop, for listing changes as people know the work. */
@@ -152,6 +157,10 @@ export async function comparePlan(db: Db, workshopId: number, id: number, agains
   const draft = await readDraft(db, workshopId, id)
   const base = againstId ? await readDraft(db, workshopId, againstId) : (await readLivePlan(db, workshopId)).assignments
   const diff = diffAssignments(base, draft, now)
+  const data = await loadPlanningData(db, workshopId, now)
+  // What the draft buys is weighed against what the live plan can really give: re-timed from now where its bars no longer fit
+  // the calendar (its stored figures count the same way); the bars that would change are those on the board.
+  const buysFrom = againstId ? base : checkLivePlan(data, base).carriedOut
   const named = await stepNames(
     db,
     workshopId,
@@ -162,7 +171,7 @@ export async function comparePlan(db: Db, workshopId: number, id: number, agains
     planId: id,
     against: againstId ?? 'live',
     moves,
-    gains: await whatItBuys(db, workshopId, await loadPlanningData(db, workshopId, now), base, draft),
+    gains: await whatItBuys(db, workshopId, data, buysFrom, draft),
     counts: {
       bench: moves.filter((m) => m.change.includes('bench')).length,
       person: moves.filter((m) => m.change.includes('person')).length,

@@ -2,7 +2,8 @@
 // booked and claims at the bench), read and changed only under its per-workshop advisory lock. Each change to it has one entry
 // point, one transaction: publishing a draft (drafts.ts), a move or pin by hand (move.ts), a promise booking its slot and a
 // claim putting the step on the claimer's bench (here). The checks are the rule book's (shared/domain/rules.ts). Its figures
-// (lateness, pieces late, finish) are worked out from its bars and stored on the published version by each change (here).
+// (lateness, pieces late, finish) and its findings against the calendar (steps lying in time no longer worked) are worked out
+// from its bars and stored on the published version by each change (here), a change to the calendar included.
 import { and, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm'
 import * as rules from '../../shared/domain/rules'
 import type { RuleViolation, StepRef } from '../../shared/domain/rules'
@@ -12,8 +13,9 @@ import * as s from '../db/schema/index'
 import { LOCK } from '../lib/locks'
 import type { Actor } from '../lib/route'
 import { dayjs } from '../lib/time'
-import { clipToWindows, intersect } from '../scheduler/calendar.ts'
+import { clipToWindows, intersect, leaveTime, outsideWorkEnd, walkWorkingTime } from '../scheduler/calendar.ts'
 import type { Interval } from '../scheduler/model.ts'
+import { dayRange } from '../lib/time'
 import { audit } from '../services/audit'
 import { engineId, type Assignment, type Assignments } from './assignments'
 import { loadPlanningData, localTime, type PlanningData } from './problem'
@@ -145,6 +147,161 @@ export function liveFigures(data: PlanningData, assignments: Assignments) {
   }
 }
 
+/** How the workshop's local time is written in findings ("Wed 9 Dec 08:43"). */
+const localWhen = (data: PlanningData) => (m: number) => dayjs(data.clock.toDate(m)).tz(data.clock.timeZone).format('ddd D MMM HH:mm')
+
+/**
+ * The live plan against the calendar as it is now: each step still to come (not under way, not sent out) whose bar no longer
+ * fits the time its bench and person work — bench work with less joint working time inside its bar than it needs, outside work
+ * that cannot go out or come back when planned — worded by the rule book, naming the closure, leave or downtime that took the
+ * time (or the working hours, when none did). A plan made on that calendar has none.
+ */
+export function calendarFindings(data: PlanningData, assignments: Assignments): RuleViolation[] {
+  const c = data.clock
+  const when = localWhen(data)
+  const closures = data.meta.closures.map((x) => ({ ...dayRange(c, x.startsOn, x.endsOn), why: `closed: ${x.name}` }))
+  const cut = (list: { start: number; end: number; why: string }[], from: number, to: number) =>
+    list.filter((x) => x.start < to && from < x.end).map((x) => ({ from: Math.max(from, x.start), to: Math.min(to, x.end), why: x.why }))
+  const benches = new Map(data.problem.benches.map((b) => [b.id, b]))
+  const people = new Map(data.problem.people.map((p) => [p.id, p]))
+  const found: RuleViolation[] = []
+  for (const a of assignments.values()) {
+    const m = data.meta.operations.get(String(a.operationId))
+    if (!m || !['pending', 'ready', 'claimed', 'paused'].includes(m.op.status)) continue
+    const start = c.toMinute(a.start),
+      end = c.toMinute(a.end)
+    if (end <= data.problem.now) continue
+    const self: StepRef = { operationId: m.op.id, jobId: m.bag.id, name: m.op.name, bag: m.bag.number }
+    if (m.kind.outside || m.op.leadDays > 0) {
+      const days = data.problem.workshopDays
+      if (leaveTime(days, start) === start && outsideWorkEnd(days, start, Math.max(1, m.op.leadDays)) === end) continue
+      const dayStart = c.at(dayjs(c.toDate(start)).tz(c.timeZone).format('YYYY-MM-DD'))
+      const causes = cut(closures, dayStart, end)
+      const why = causes.length ? causes.map((x) => x.why).join('; ') : 'the workshop does not work then'
+      found.push(
+        rules.outsideWork(self, { why: `it was to go out ${when(start)} and be back by ${when(end)}, which no longer fits the workshop's days (${why})` }),
+      )
+      continue
+    }
+    const bench = benches.get(engineId(a.benchId) ?? ''),
+      person = people.get(engineId(a.personId) ?? '')
+    const needs = minutesNeeded(data, a)
+    if (!bench || !person || needs === null) continue
+    const worked = clipToWindows(intersect(bench.available, person.available), start, end)
+    if (worked.reduce((t, x) => t + x.end - x.start, 0) >= needs) continue
+    const causes = [
+      ...cut(closures, start, end).map((x) => ({ ...x, resource: 'bench' as const, name: bench.name })),
+      ...cut(
+        data.meta.downtime
+          .filter((d) => d.benchId === a.benchId)
+          .map((d) => ({ start: c.toMinute(d.startsAt), end: c.toMinute(d.endsAt), why: `bench out of use${d.reason ? `: ${d.reason}` : ''}` })),
+        start,
+        end,
+      ).map((x) => ({ ...x, resource: 'bench' as const, name: bench.name })),
+      ...cut(
+        data.meta.leave
+          .filter((l) => l.personId === a.personId)
+          .map((l) => ({ ...dayRange(c, l.startsOn, l.endsOn), why: `on leave${l.reason ? `: ${l.reason}` : ''}` })),
+        start,
+        end,
+      ).map((x) => ({ ...x, resource: 'person' as const, name: person.name })),
+    ]
+    for (const x of causes) found.push(rules.workingTime(self, { resource: x.resource, name: x.name, from: x.from, to: x.to, when, why: x.why }))
+    // Shorter working hours (no closure, leave or downtime): said when the bar begins or ends outside them.
+    const inside = (t: number) => worked.some((w) => w.start <= t && t < w.end)
+    if (!causes.length && (!inside(start) || !inside(end - 1))) {
+      const benchShort = clipToWindows(bench.available, start, end).reduce((t, x) => t + x.end - x.start, 0) < end - start
+      found.push(
+        rules.workingTime(self, {
+          resource: benchShort ? 'bench' : 'person',
+          name: benchShort ? bench.name : person.name,
+          from: start,
+          to: end,
+          when,
+          why: 'outside the working hours',
+        }),
+      )
+    }
+  }
+  return found
+}
+
+/** The working minutes a bar of bench work needs with its bench and person (the engine's option, else estimate ÷ speed). */
+function minutesNeeded(data: PlanningData, a: Assignment): number | null {
+  const m = data.meta.operations.get(String(a.operationId))
+  if (!m) return null
+  const option = data.problem.operations
+    .find((o) => o.id === String(a.operationId))
+    ?.options.find((o) => o.benchId === engineId(a.benchId) && o.personId === engineId(a.personId))
+  const speed = data.meta.skills.find((k) => k.personId === a.personId && k.kindId === m.op.kindId)?.speed
+  return option?.minutes ?? (speed ? Math.max(1, Math.ceil(m.op.estimateMinutes / speed)) : null)
+}
+
+/**
+ * The live plan kept as it is — each step on its bench and person, in the order of its bars, never earlier than its bar — and
+ * re-timed on the calendar as it is now: a step whose time is no longer worked goes to the next working time of its bench and
+ * person (outside work to the next workshop day), and what comes after it on its bench, its person or its routing (with the
+ * wait) moves on behind it. Bars that still fit and are not pushed stay exactly as they are.
+ */
+export function retimeLivePlan(data: PlanningData, assignments: Assignments): Assignments {
+  const c = data.clock
+  const benches = new Map(data.problem.benches.map((b) => [b.id, b.available]))
+  const people = new Map(data.problem.people.map((p) => [p.id, p.available]))
+  const preds = new Map(data.problem.operations.map((o) => [o.id, o.predecessors]))
+  const free = new Map<string, number>()
+  const ends = new Map<string, number>()
+  const out: Assignments = new Map(assignments)
+  const bars = [...assignments.values()].sort((x, y) => Date.parse(x.start) - Date.parse(y.start) || x.operationId - y.operationId)
+  for (const a of bars) {
+    const id = String(a.operationId)
+    const m = data.meta.operations.get(id)
+    if (!m) continue
+    const start = c.toMinute(a.start),
+      end = c.toMinute(a.end)
+    const keys = [a.benchId !== null ? `b${a.benchId}` : null, a.personId !== null ? `p${a.personId}` : null].filter((k) => k !== null)
+    let at = start
+    for (const k of keys) at = Math.max(at, free.get(k) ?? -Infinity)
+    for (const p of preds.get(id) ?? []) {
+      const e = ends.get(p)
+      if (e !== undefined) at = Math.max(at, e + (data.meta.operations.get(p)?.op.waitAfterMinutes ?? 0))
+    }
+    let placed: Interval = { start, end }
+    if (m.op.status !== 'running') {
+      if (m.kind.outside || m.op.leadDays > 0) {
+        const days = data.problem.workshopDays
+        const leaves = leaveTime(days, at)
+        const back = outsideWorkEnd(days, leaves, Math.max(1, m.op.leadDays))
+        if (back !== null && (leaves !== start || back !== end)) placed = { start: leaves, end: back }
+      } else {
+        const b = benches.get(engineId(a.benchId) ?? ''),
+          p = people.get(engineId(a.personId) ?? '')
+        const needs = minutesNeeded(data, a)
+        if (b && p && needs !== null) {
+          const windows = intersect(b, p)
+          const fits = at === start && clipToWindows(windows, start, end).reduce((t, x) => t + x.end - x.start, 0) >= needs
+          const walked = fits ? null : walkWorkingTime(windows, at, needs)
+          if (walked?.length) placed = { start: walked[0]!.start, end: walked[walked.length - 1]!.end }
+        }
+      }
+    }
+    if (placed.start !== start || placed.end !== end)
+      out.set(a.operationId, { ...a, start: c.toDate(placed.start).toISOString(), end: c.toDate(placed.end).toISOString() })
+    ends.set(id, placed.end)
+    for (const k of keys) free.set(k, Math.max(free.get(k) ?? -Infinity, placed.end))
+  }
+  return out
+}
+
+/**
+ * The live plan checked against the calendar (`calendarFindings`), and the bars it can really be carried out with: its own when
+ * it fits, else the live plan re-timed (`retimeLivePlan`). The bars on the board stay as planned; the re-timed ones only give
+ * the figures and finishes that can be believed until the manager re-plans.
+ */
+export function checkLivePlan(data: PlanningData, assignments: Assignments): { findings: RuleViolation[]; carriedOut: Assignments } {
+  const findings = calendarFindings(data, assignments)
+  return { findings, carriedOut: findings.length ? retimeLivePlan(data, assignments) : assignments }
+}
+
 /** A plan's score as the planner weighs it (engine minutes): weighted lateness, then the last finish. */
 type Weighed = { weightedTardiness: number; makespan: number }
 
@@ -156,7 +313,7 @@ type Weighed = { weightedTardiness: number; makespan: number }
  */
 export async function liveToBeat(db: Tx, workshopId: number, data: PlanningData, retimed: Weighed | undefined): Promise<Weighed | undefined> {
   if (!retimed) return undefined
-  const { weightedTardiness, makespan } = liveFigures(data, (await readLivePlan(db, workshopId)).assignments)
+  const { weightedTardiness, makespan } = liveFigures(data, checkLivePlan(data, (await readLivePlan(db, workshopId)).assignments).carriedOut)
   const current = { weightedTardiness, makespan }
   const worse =
     current.weightedTardiness !== retimed.weightedTardiness ? current.weightedTardiness > retimed.weightedTardiness : current.makespan > retimed.makespan
@@ -164,10 +321,12 @@ export async function liveToBeat(db: Tx, workshopId: number, data: PlanningData,
 }
 
 /**
- * Stores the live plan's figures, worked out again from its bars as they stand in this transaction, on the published version
- * (what the planner run recorded beside them, such as its findings, stays). Every change to the live plan calls it in its own
- * transaction, after the change, under the live plan's lock; `data` is the planning data when the caller has it loaded and it
- * knows every job bag on the plan (a promise's new job bag is not in the data it was placed with).
+ * Stores the live plan's figures and findings, worked out again from its bars as they stand in this transaction, on the
+ * published version (what else the planner run recorded beside them stays). Where bars no longer fit the calendar
+ * (`checkLivePlan`), the findings are stored (`feasible` false, `violations`) and the figures are those of the live plan re-timed
+ * from now, never of work that cannot happen when planned. Every change to the live plan, and every change to the calendar,
+ * calls it in its own transaction, after the change, under the live plan's lock; `data` is the planning data when the caller
+ * has it loaded and it knows every job bag on the plan (a promise's new job bag is not in the data it was placed with).
  */
 export async function storeLiveFigures(tx: Tx, workshopId: number, o: { data?: PlanningData; now?: Date } = {}) {
   const [p] = await tx
@@ -176,12 +335,26 @@ export async function storeLiveFigures(tx: Tx, workshopId: number, o: { data?: P
     .where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
   if (!p) return null
   const data = o.data ?? (await loadPlanningData(tx, workshopId, o.now ?? new Date()))
-  const { makespan: _makespan, ...figures } = liveFigures(data, (await readLivePlan(tx, workshopId)).assignments)
+  const { findings, carriedOut } = checkLivePlan(data, (await readLivePlan(tx, workshopId)).assignments)
+  const { makespan: _makespan, ...figures } = liveFigures(data, carriedOut)
+  const checked = { ...figures, feasible: findings.length === 0, violations: findings.slice(0, 20) }
   await tx
     .update(s.planVersions)
-    .set({ score: { ...p.score, ...figures } })
+    .set({ score: { ...p.score, ...checked } })
     .where(eq(s.planVersions.id, p.id))
-  return figures
+  return checked
+}
+
+/**
+ * A change to the calendar (closure, leave, bench downtime, working hours) inside its transaction: the live plan's lock first,
+ * then the change, then the live plan's findings and figures stored again against the new calendar (`storeLiveFigures`). Its
+ * bars stay where they are: a step the change leaves in time no one works is shown as broken until the manager re-plans.
+ */
+export async function calendarChange<T>(tx: Tx, workshopId: number, change: () => Promise<T>): Promise<T> {
+  await lockLivePlan(tx, workshopId)
+  const out = await change()
+  await storeLiveFigures(tx, workshopId)
+  return out
 }
 
 /** Same bench or same person, at the same time: the double bookings an assignment would make with the rest of the plan. */

@@ -1,4 +1,6 @@
-// The planning board: bars for a window (live plan or a draft), job risk with its reason, calendars, and the week load.
+// The planning board: bars for a window (live plan or a draft), job risk with its reason, calendars, and the week load. The live
+// plan's bars that no longer fit the calendar carry the rule book's finding; its job bags' finishes are then those it can
+// really reach (the live plan re-timed from now), never those of work that cannot happen when planned.
 import { createHash } from 'node:crypto'
 import { gzipSync } from 'node:zlib'
 import { and, eq, inArray, isNotNull, sql } from 'drizzle-orm'
@@ -14,7 +16,8 @@ import { cachedOr, type Cache } from '../lib/cache'
 import { engineId, fromStored, type Assignments } from '../planning/assignments'
 import { loadPlanningData, type PlanningData } from '../planning/problem'
 import { getPlan, readDraft } from '../planning/drafts'
-import { readLivePlan } from '../planning/live-plan'
+import { checkLivePlan, readLivePlan } from '../planning/live-plan'
+import type { RuleViolation } from '../../shared/domain/rules'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
 import type { BoardActual, BoardPlanned } from '../../shared/schemas/board'
 
@@ -43,6 +46,8 @@ export interface BoardItem {
   outsideDays?: number
   requiredLevel: number
   reason: StartReason | null
+  /** The live plan's step no longer fits the calendar: the rule book's finding(s), naming the closure, leave or downtime. */
+  broken?: string
   late: boolean
   /** The plan's times for the step (a finished step keeps the plan it had). */
   planned: BoardPlanned | null
@@ -131,6 +136,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const c = data.clock
   let assignments: Record<string, Shown>
   let plan: { id: number; number: number; status: string; publishedAt: string | null } | null = null
+  let checked: { findings: RuleViolation[]; carriedOut: Assignments } | null = null
   const [live] = await db
     .select()
     .from(s.planVersions)
@@ -140,9 +146,16 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     assignments = shown(fromStored(p.assignments))
     plan = { id: p.id, number: p.number, status: p.status, publishedAt: p.publishedAt }
   } else {
-    assignments = shown((await readLivePlan(db, workshopId)).assignments)
+    const bars = (await readLivePlan(db, workshopId)).assignments
+    assignments = shown(bars)
+    checked = checkLivePlan(data, bars)
     if (live) plan = { id: live.id, number: live.number, status: live.status, publishedAt: live.publishedAt }
   }
+  // Findings of the live plan against the calendar, by step (a draft was checked when it was made).
+  const broken = new Map<string, string>()
+  for (const f of checked?.findings ?? []) if (f.operationId) broken.set(f.operationId, [broken.get(f.operationId), f.message].filter(Boolean).join(' '))
+  // Finishes: where the plan can really take each step (the live plan re-timed, when bars no longer fit the calendar).
+  const finishes = checked?.findings.length ? shown(checked.carriedOut) : assignments
   // Reasons come from the plan shown, as it is now (after moves by hand), never from when it was made.
   const steps = Object.entries(assignments)
     .filter(([id]) => data.meta.operations.has(id))
@@ -160,10 +173,17 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const completion = new Map<number, { end: number; reason: string | null }>()
   for (const [id, m] of data.meta.operations) {
     const a = assignments[id]
-    if (!a || m.op.status === 'done') continue
-    const end = new Date(a.end).getTime()
+    const f = finishes[id] ?? a
+    if (!a || !f || m.op.status === 'done') continue
+    const end = new Date(f.end).getTime()
     const cur = completion.get(m.bag.id)
-    if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: a.reason?.detail ?? null })
+    if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: broken.get(id) ?? a.reason?.detail ?? null })
+  }
+  // A job bag with a step that no longer fits the calendar names it as the reason for its finish.
+  for (const [id, why] of broken) {
+    const m = data.meta.operations.get(id)
+    const cur = m && completion.get(m.bag.id)
+    if (cur) cur.reason = why
   }
   const customers = new Map(
     (await db.select({ id: s.customers.id, name: s.customers.name }).from(s.customers).where(eq(s.customers.workshopId, workshopId))).map((x) => [
@@ -256,7 +276,8 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       ...(m.op.leadDays > 0 ? { outsideDays: m.op.leadDays } : {}),
       requiredLevel: m.op.requiredLevel,
       reason: a?.reason ?? (running ? runningReason(data, id, null) : null),
-      late: new Date(a?.end ?? end).getTime() > due,
+      ...(broken.has(id) ? { broken: broken.get(id) } : {}),
+      late: new Date(finishes[id]?.end ?? a?.end ?? end).getTime() > due,
       planned: a ? { start: iso(a.start), end: iso(a.end) } : null,
       actual,
     })
@@ -299,6 +320,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       skills: Object.fromEntries(data.meta.skills.filter((x) => x.personId === p.id).map((x) => [kindCode(x.kindId), x.level])),
     })),
     items,
+    findings: checked?.findings ?? [],
     jobs: [...jobs.values()].sort((a, b) => a.due.localeCompare(b.due)),
     nonWorking: data.meta.nonWorking.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
     dayMinutes,

@@ -1,4 +1,5 @@
-// The workshop's calendar: settings (time zone, weekly hours) and closures.
+// The workshop's calendar: settings (time zone, weekly hours) and closures. Each change checks the live plan against the new
+// calendar in its own transaction (`calendarChange`), so its findings and figures never speak of time no longer worked.
 import { and, asc, eq } from 'drizzle-orm'
 import type {
   BankHolidaysAdded,
@@ -14,6 +15,7 @@ import type { Db } from '../db/client'
 import { closures, workshops } from '../db/schema/index'
 import { notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
+import { calendarChange } from '../planning/live-plan'
 import { audit } from './audit'
 import { sql } from 'drizzle-orm'
 
@@ -40,15 +42,17 @@ export async function getSettings(db: Db, workshopId: number): Promise<WorkshopS
 
 export async function updateSettings({ db, realtime }: Deps, actor: Actor, input: WorkshopSettingsInput): Promise<WorkshopSettingsRecord> {
   const { version, ...values } = input
-  await db.transaction(async (tx) => {
-    const r = await tx
-      .update(workshops)
-      .set({ ...values, version: sql`${workshops.version} + 1` })
-      .where(and(eq(workshops.id, actor.workshopId), eq(workshops.version, version)))
-      .returning()
-    if (!r.length) throw staleVersion('The workshop settings')
-    await audit(tx, actor, 'update', 'workshop', actor.workshopId, values)
-  })
+  await db.transaction((tx) =>
+    calendarChange(tx, actor.workshopId, async () => {
+      const r = await tx
+        .update(workshops)
+        .set({ ...values, version: sql`${workshops.version} + 1` })
+        .where(and(eq(workshops.id, actor.workshopId), eq(workshops.version, version)))
+        .returning()
+      if (!r.length) throw staleVersion('The workshop settings')
+      await audit(tx, actor, 'update', 'workshop', actor.workshopId, values)
+    }),
+  )
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'workshop', id: actor.workshopId })
   return getSettings(db, actor.workshopId)
 }
@@ -57,14 +61,16 @@ export const listClosures = (db: Db, workshopId: number): Promise<Closure[]> =>
   db.select().from(closures).where(eq(closures.workshopId, workshopId)).orderBy(asc(closures.startsOn))
 
 export async function addClosure({ db, realtime }: Deps, actor: Actor, input: ClosureInput): Promise<Closure> {
-  const c = await db.transaction(async (tx) => {
-    const [c] = await tx
-      .insert(closures)
-      .values({ workshopId: actor.workshopId, ...input })
-      .returning()
-    await audit(tx, actor, 'create', 'closure', c!.id, input)
-    return c!
-  })
+  const c = await db.transaction((tx) =>
+    calendarChange(tx, actor.workshopId, async () => {
+      const [c] = await tx
+        .insert(closures)
+        .values({ workshopId: actor.workshopId, ...input })
+        .returning()
+      await audit(tx, actor, 'create', 'closure', c!.id, input)
+      return c!
+    }),
+  )
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'closure', id: c.id })
   return c
 }
@@ -72,36 +78,41 @@ export async function addClosure({ db, realtime }: Deps, actor: Actor, input: Cl
 /** A year's England and Wales bank holidays as one-day closures, except days a closure already covers; in one transaction. */
 export async function addBankHolidays({ db, realtime }: Deps, actor: Actor, input: BankHolidaysInput): Promise<BankHolidaysAdded> {
   const out = await db.transaction(async (tx) => {
-    // One at a time per workshop, so two clicks at once cannot add a day twice.
-    await tx.execute(sql`select id from workshops where id = ${actor.workshopId} for update`)
-    const existing = await tx.select().from(closures).where(eq(closures.workshopId, actor.workshopId))
-    const added: Closure[] = []
-    const skipped: { date: string; name: string }[] = []
-    for (const h of englandWalesBankHolidays(input.year)) {
-      if (existing.some((c) => c.startsOn <= h.date && h.date <= c.endsOn)) {
-        skipped.push(h)
-        continue
+    // The live plan's lock first (before any row lock), and with it the check of the live plan once the days are added.
+    return calendarChange(tx, actor.workshopId, async () => {
+      // One at a time per workshop, so two clicks at once cannot add a day twice.
+      await tx.execute(sql`select id from workshops where id = ${actor.workshopId} for update`)
+      const existing = await tx.select().from(closures).where(eq(closures.workshopId, actor.workshopId))
+      const added: Closure[] = []
+      const skipped: { date: string; name: string }[] = []
+      for (const h of englandWalesBankHolidays(input.year)) {
+        if (existing.some((c) => c.startsOn <= h.date && h.date <= c.endsOn)) {
+          skipped.push(h)
+          continue
+        }
+        const values = { workshopId: actor.workshopId, name: `Bank holiday: ${h.name}`, startsOn: h.date, endsOn: h.date }
+        const [c] = await tx.insert(closures).values(values).returning()
+        await audit(tx, actor, 'create', 'closure', c!.id, values)
+        added.push(c!)
       }
-      const values = { workshopId: actor.workshopId, name: `Bank holiday: ${h.name}`, startsOn: h.date, endsOn: h.date }
-      const [c] = await tx.insert(closures).values(values).returning()
-      await audit(tx, actor, 'create', 'closure', c!.id, values)
-      added.push(c!)
-    }
-    return { added, skipped }
+      return { added, skipped }
+    })
   })
   for (const c of out.added) realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'closure', id: c.id })
   return out
 }
 
 export async function removeClosure({ db, realtime }: Deps, actor: Actor, id: number): Promise<ClosureRemoved> {
-  await db.transaction(async (tx) => {
-    const r = await tx
-      .delete(closures)
-      .where(and(eq(closures.id, id), eq(closures.workshopId, actor.workshopId)))
-      .returning()
-    if (!r.length) throw notFound('Closure')
-    await audit(tx, actor, 'delete', 'closure', id, {})
-  })
+  await db.transaction((tx) =>
+    calendarChange(tx, actor.workshopId, async () => {
+      const r = await tx
+        .delete(closures)
+        .where(and(eq(closures.id, id), eq(closures.workshopId, actor.workshopId)))
+        .returning()
+      if (!r.length) throw notFound('Closure')
+      await audit(tx, actor, 'delete', 'closure', id, {})
+    }),
+  )
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'closure', id })
   return { ok: true }
 }

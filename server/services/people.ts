@@ -8,6 +8,7 @@ import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { dropSessionUsers } from '../lib/session-users'
 import { changeOwnedParts } from './owned-parts'
+import { lockLivePlan, storeLiveFigures } from '../planning/live-plan'
 import { isUniqueViolation, updateVersioned } from './versioned'
 
 export async function listPeople(db: Db, workshopId: number): Promise<Person[]> {
@@ -96,6 +97,8 @@ export async function updatePerson({ db, realtime, cache }: Deps, actor: Actor, 
   const { version, skills, ...values } = input
   await db
     .transaction(async (tx) => {
+      // Their working hours are the calendar: the live plan is checked against them (its lock first).
+      if (values.weekPattern !== undefined) await lockLivePlan(tx, actor.workshopId)
       await checkRefs(tx, actor.workshopId, input)
       await updateVersioned(tx, people, 'Person', { id, workshopId: actor.workshopId, version, values })
       if (skills) {
@@ -103,6 +106,7 @@ export async function updatePerson({ db, realtime, cache }: Deps, actor: Actor, 
         if (skills.length) await tx.insert(personSkills).values(skills.map((s) => ({ personId: id, ...s })))
       }
       await audit(tx, actor, 'update', 'person', id, input as Record<string, unknown>)
+      if (values.weekPattern !== undefined) await storeLiveFigures(tx, actor.workshopId)
     })
     .catch((e) => {
       throw userTaken(e)

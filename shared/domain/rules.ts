@@ -158,12 +158,24 @@ export function doubleBooking(
   )
 }
 
-/** Work happens inside the bench's and the person's working time. */
-export function workingTime(s: StepRef, o: { resource: 'bench' | 'person'; name: string; from: number; to: number; when?: When }): RuleViolation {
+/** Work happens inside the bench's and the person's working time; `why` names what takes the time (a closure, leave, downtime). */
+export function workingTime(s: StepRef, o: { resource: 'bench' | 'person'; name: string; from: number; to: number; when?: When; why?: string }): RuleViolation {
   const when = o.when ?? minutesAsIs
+  const why = o.why ? ` (${o.why})` : ''
+  const details = o.why ? { from: o.from, to: o.to, why: o.why } : undefined
   return o.resource === 'bench'
-    ? violation('within bench working time', s, `${step(s)} works on ${o.name} during ${when(o.from)}–${when(o.to)}, when the bench is not available.`)
-    : violation('within personal working time', s, `${step(s)} needs ${o.name} during ${when(o.from)}–${when(o.to)}, outside their working time.`)
+    ? violation(
+        'within bench working time',
+        s,
+        `${step(s)} works on ${o.name} during ${when(o.from)}–${when(o.to)}, when the bench is not available${why}.`,
+        details,
+      )
+    : violation(
+        'within personal working time',
+        s,
+        `${step(s)} needs ${o.name} during ${when(o.from)}–${when(o.to)}, outside their working time${why}.`,
+        details,
+      )
 }
 
 /** Nothing new is planned in the past. */

@@ -1,6 +1,7 @@
 // The board's answer: bars (planned, running and finished work), jobs at risk, rows and calendars for a window.
 import { z } from 'zod'
 import { isoDate, isoDateTime } from './common'
+import { ruleViolation } from './plan'
 
 /** What the plan says for a step: its planned start and end (a finished step keeps the plan it had). */
 export const boardPlanned = z.object({ start: isoDateTime, end: isoDateTime })
@@ -54,6 +55,8 @@ export const boardItem = z.object({
   outsideDays: z.number().int().optional(),
   requiredLevel: z.number().int(),
   reason: boardReason.nullable(),
+  /** The live plan's step no longer fits the calendar (a closure, leave or downtime added since): the rule book's finding. */
+  broken: z.string().optional(),
   late: z.boolean(),
   planned: boardPlanned.nullable(),
   actual: boardActual.nullable(),
@@ -84,6 +87,11 @@ export const boardAnswer = z.object({
   /** `skills`: operation kind code → level. */
   people: z.array(z.object({ id: z.number().int(), name: z.string(), skills: z.record(z.string(), z.number()) })),
   items: z.array(boardItem),
+  /**
+   * The live plan's findings against the calendar as it is now (steps lying in time no longer worked); empty for a draft and
+   * for a live plan that fits. Job bags' finishes are then those of the live plan re-timed from now.
+   */
+  findings: z.array(ruleViolation).optional(),
   jobs: z.array(boardJob),
   nonWorking: z.array(z.object({ start: isoDateTime, end: isoDateTime })),
   dayMinutes: z.number(),

@@ -93,7 +93,7 @@ export const planRun = z.object({
 })
 
 /** A rule book finding as stored with a draft (see shared/domain/rules.ts). */
-const ruleViolation = z.custom<RuleViolation>(
+export const ruleViolation = z.custom<RuleViolation>(
   (v) => typeof v === 'object' && v !== null && typeof (v as { rule?: unknown }).rule === 'string' && typeof (v as { message?: unknown }).message === 'string',
   'must be a rule finding',
 )
@@ -147,8 +147,18 @@ export const planComparison = z.object({
   against: z.union([wireInt, z.literal('live')]),
   moves: z.array(planMove),
   counts: z.object({ bench: wireInt, person: wireInt, time: wireInt, new: wireInt }),
-  /** Job bags planned in both: finishing earlier / later, and less / more late than promised. */
-  gains: z.object({ earlier: wireInt, later: wireInt, lessLate: wireInt, moreLate: wireInt }),
+  /**
+   * Job bags planned in both: finishing earlier / later; less / more late than promised (lateness shrinks or grows, whether
+   * or not they were late before); and late in the draft only (newly late) or in the base only (no longer late).
+   */
+  gains: z.object({
+    earlier: wireInt,
+    later: wireInt,
+    lessLate: wireInt,
+    moreLate: wireInt,
+    newlyLate: wireInt.optional(),
+    noLongerLate: wireInt.optional(),
+  }),
 })
 /** The answer to a move by hand: the operation's new planned place. */
 export const moveResult = z.object({

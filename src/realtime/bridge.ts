@@ -191,7 +191,8 @@ export const LIVE_TABLE: Record<EventName, LiveRoute[]> = {
   ],
   'order:created': [boardBars(), keys(() => ['orders'])],
   'order:updated': [boardBars(), keys((p) => ['orders', `order:${p.id}`])],
-  'masterdata:changed': [boardBars(), masterData, keys((p) => [`masterdata:${p.entity}`])],
+  // A calendar change stores the live plan's findings and figures again: the board's plan versions reload too.
+  'masterdata:changed': [boardBars(), boardVersions, masterData, keys((p) => [`masterdata:${p.entity}`])],
   'file:added': [keys((p) => keysOf(num(p.orderId) !== null && `order:${p.orderId}:files`, num(p.jobBagId) !== null && `jobBag:${p.jobBagId}:files`))],
   'file:removed': [keys((p) => keysOf(num(p.orderId) !== null && `order:${p.orderId}:files`, num(p.jobBagId) !== null && `jobBag:${p.jobBagId}:files`))],
   'metal:recorded': [metalStore, keys((p) => keysOf('metal', num(p.jobBagId) !== null && `metal:jobBag:${p.jobBagId}`))],

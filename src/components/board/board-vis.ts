@@ -151,6 +151,7 @@ export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
   const classes = ['board-bar', `board-bar--${state}`]
   if (item.late) classes.push('board-bar--late-job')
   else if (o.jobStates?.get(item.jobBagId) === 'at-risk') classes.push('board-bar--at-risk')
+  if (item.broken) classes.push('board-bar--broken')
   if (item.pinned) classes.push('board-bar--pinned')
   if (item.outside) classes.push('board-bar--outside')
   if (item.hazards.length) classes.push('board-bar--hazard')

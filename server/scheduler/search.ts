@@ -25,6 +25,11 @@ const SKETCH_SHARE = 0.15
  * min·weight against 3–6 M for weighted slack, modified due date and noisy due date), and each further rule costs 20–90 ms.
  */
 const SKETCH_RULES = [2]
+/**
+ * With a previous plan, the last part of the budget walks the best plan back towards it (`settle` in solveGeneral): the search
+ * reaches a lateness by whatever changes come its way, and the same lateness is often to be had with far fewer of them.
+ */
+const SETTLE_SHARE = 0.1
 
 /**
  * The workshop without calendars: durations stretched by the calendar factor (calendar minutes per working minute), outside work
@@ -577,9 +582,11 @@ export function solveGeneral(
     report(which)
   }
 
+  // With a previous plan, the search leaves the last part of the budget to walking its best plan back towards that plan.
+  const searchEnd = previous ? opts.deadline - (opts.deadline - clock()) * SETTLE_SHARE : opts.deadline
   // A calendar-free sketch of the workshop, searched on the disjunctive graph for part of the budget; its order and its bench and
   // person choices seed the calendar search when they decode to a better plan.
-  const sketchMs = Math.max(0, (opts.deadline - clock()) * SKETCH_SHARE)
+  const sketchMs = Math.max(0, (searchEnd - clock()) * SKETCH_SHARE)
   if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && sketchMs >= 50 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
     const now = clock()
     pairStage('sketch', sketchShop(c), now, now + sketchMs, { seed: opts.seed, startRules: SKETCH_RULES })
@@ -595,9 +602,9 @@ export function solveGeneral(
   const movable: number[] = []
   for (let i = 0; i < n; i++) if (!c.fixedAt[i] && c.outsideDays[i]! < 0) movable.push(i)
   const lastOf = new Int32Array(c.jobs.length)
-  const cycles = opts.maxIterations !== undefined ? 1 : Math.max(1, Math.min(MAX_CYCLES, Math.floor((opts.deadline - clock()) / CYCLE_MS)))
+  const cycles = opts.maxIterations !== undefined ? 1 : Math.max(1, Math.min(MAX_CYCLES, Math.floor((searchEnd - clock()) / CYCLE_MS)))
   for (let cycle = 0; cycle < cycles; cycle++) {
-    const cycleEnd = clock() + (opts.deadline - clock()) / (cycles - cycle)
+    const cycleEnd = clock() + (searchEnd - clock()) / (cycles - cycle)
     const graphMs = Math.max(0, (cycleEnd - clock()) * GRAPH_SHARE)
     if (obj[0] === 'weightedTardiness' && best.weightedTardiness > 0 && graphMs >= 20 && opts.maxIterations !== 0 && !hooks.shouldStop?.()) {
       const now = clock()
@@ -706,9 +713,168 @@ export function solveGeneral(
       }
     }
   }
-  void bestKey
-  void bestChoice
+  if (previous) settle()
   return done()
+
+  /**
+   * Walks the best plan back towards the previous one, for what is left of the budget: each job bag with a step on another bench
+   * or person or at another time than before, then each such step, is given its previous bench and person and its previous start
+   * as its priority (the others keep their places in the best plan, by start), and kept when the plan is no worse by the
+   * objective — so the same lateness with fewer changes wins. Passes repeat while one of them keeps something.
+   */
+  function settle(): void {
+    const prevOf = c.problem.previous!
+    const prevStart = new Float64Array(n).fill(NaN)
+    for (let i = 0; i < n; i++) {
+      const at = prevOf[c.ops[i]!.id]
+      if (at && !c.fixedAt[i]) prevStart[i] = at.start
+    }
+    const differs = (d: Decoded, i: number): boolean =>
+      !Number.isNaN(prevStart[i]!) && c.outsideDays[i]! < 0 && (d.option[i] !== c.previousOption[i] || d.start[i] !== prevStart[i])
+    // The best plan's own order (by start) and choices, so a candidate changes only what it reverts.
+    const startKey = (d: Decoded): Float64Array => {
+      const key = new Float64Array(n)
+      let low = Infinity
+      for (let i = 0; i < n; i++) {
+        key[i] = d.start[i]! + i * 1e-9
+        if (key[i]! < low) low = key[i]!
+      }
+      for (let i = 0; i < n; i++) if (Number.isFinite(c.pinDeadline[i]!)) key[i] = low - 1e6 + c.pinDeadline[i]! * 1e-3
+      return key
+    }
+    const startChoice = (d: Decoded): Int32Array => {
+      const choice = new Int32Array(n).fill(-1)
+      for (let i = 0; i < n; i++) if (!c.fixedAt[i] && c.outsideDays[i]! < 0 && d.option[i]! >= 0) choice[i] = d.option[i]!
+      return choice
+    }
+    let curKey = startKey(best!),
+      curChoice = startChoice(best!)
+    let cur = decode(c, curKey, curChoice)
+    if (compareDecoded(cur, best!, obj) > 0) {
+      curKey = bestKey
+      curChoice = bestChoice
+      cur = best!
+    }
+    // Said every half second like the other stages, better plan or not, so the planner's dialog never goes quiet.
+    let lastBeat = clock()
+    const stopped = (): boolean => {
+      const now = clock()
+      if (now - lastBeat >= 500) {
+        lastBeat = now
+        report('decoder', now - t0)
+      }
+      return now >= opts.deadline || !!hooks.shouldStop?.()
+    }
+    // From the previous plan's side first: its priorities and choices, with the best plan's taken over one job bag at a time
+    // where that lowers the objective, until it is no worse than the best — the bags that must change, and only those.
+    {
+      const bKey = curKey,
+        bChoice = curChoice
+      const key = bKey.slice(),
+        choice = bChoice.slice()
+      const bags: number[] = []
+      const seen = new Uint8Array(c.jobs.length)
+      for (let i = 0; i < n; i++)
+        if (differs(cur, i)) {
+          key[i] = prevStart[i]! + i * 1e-9
+          if (c.previousOption[i]! >= 0) choice[i] = c.previousOption[i]!
+          if (!seen[c.jobOf[i]!]) bags.push(c.jobOf[i]!)
+          seen[c.jobOf[i]!] = 1
+        }
+      let here = decode(c, key, choice)
+      iterations++
+      let open = bags.slice()
+      while (compareDecoded(here, cur, obj) > 0 && open.length > 0 && !stopped()) {
+        // The bag whose own changes help most.
+        let pick = -1,
+          pickD: Decoded | null = null
+        for (const j of open) {
+          if (stopped()) break
+          const k2 = key.slice(),
+            ch2 = choice.slice()
+          for (let i = 0; i < n; i++)
+            if (c.jobOf[i] === j) {
+              k2[i] = bKey[i]!
+              ch2[i] = bChoice[i]!
+            }
+          const d = decode(c, k2, ch2, here, firstChangedPick(here, key, choice, k2, ch2))
+          iterations++
+          if (compareDecoded(d, here, obj) < 0 && (!pickD || compareDecoded(d, pickD, obj) < 0)) {
+            pick = j
+            pickD = d
+          }
+        }
+        if (pick < 0 || !pickD) break
+        for (let i = 0; i < n; i++)
+          if (c.jobOf[i] === pick) {
+            key[i] = bKey[i]!
+            choice[i] = bChoice[i]!
+          }
+        here = pickD
+        open = open.filter((j) => j !== pick)
+      }
+      if (compareDecoded(here, cur, obj) <= 0) {
+        cur = here
+        curKey = key
+        curChoice = choice
+        if (compareDecoded(here, best!, obj) < 0) {
+          best = here
+          bestKey = key
+          bestChoice = choice
+          report('decoder')
+        }
+      }
+    }
+    for (let pass = 0; pass < 4 && !stopped(); pass++) {
+      let kept = 0
+      // First whole job bags (a bag's steps usually moved together), then single steps.
+      const groups: number[][] = []
+      const byJob = new Map<number, number[]>()
+      for (let i = 0; i < n; i++)
+        if (differs(cur, i)) {
+          const j = c.jobOf[i]!
+          if (!byJob.has(j)) byJob.set(j, [])
+          byJob.get(j)!.push(i)
+        }
+      for (const steps of byJob.values()) groups.push(steps)
+      for (const steps of byJob.values()) if (steps.length > 1) for (const i of steps) groups.push([i])
+      for (let g = groups.length - 1; g > 0; g--) {
+        const h = rng.int(g + 1)
+        const t = groups[g]!
+        groups[g] = groups[h]!
+        groups[h] = t
+      }
+      for (const steps of groups) {
+        if (stopped()) break
+        if (!steps.some((i) => differs(cur, i))) continue
+        // Already given back (a step's start also follows the others): nothing new to try.
+        if (steps.every((i) => curKey[i] === prevStart[i]! + i * 1e-9 && (c.previousOption[i]! < 0 || curChoice[i] === c.previousOption[i]))) continue
+        const key = curKey.slice(),
+          choice = curChoice.slice()
+        for (const i of steps) {
+          key[i] = prevStart[i]! + i * 1e-9
+          if (c.previousOption[i]! >= 0) choice[i] = c.previousOption[i]!
+        }
+        const cand = decode(c, key, choice, cur, firstChangedPick(cur, curKey, curChoice, key, choice))
+        iterations++
+        // No worse is kept too: the priorities come closer to the previous plan's, which lets later steps back in.
+        const cmp = compareDecoded(cand, cur, obj)
+        if (cmp <= 0) {
+          cur = cand
+          curKey = key
+          curChoice = choice
+          if (cmp < 0) kept++
+          if (compareDecoded(cand, best!, obj) < 0) {
+            best = cand
+            bestKey = key
+            bestChoice = choice
+            report('decoder')
+          }
+        }
+      }
+      if (kept === 0) break
+    }
+  }
 }
 
 const scoreOf = (d: Decoded) => ({

@@ -61,6 +61,37 @@ function union(lists: Interval[][]): Interval[] {
   return out
 }
 
+/** The bars of other steps on a bench and with a person, as a sorted, disjoint list of busy time. */
+function otherBars(benchList: TimedStep[] | undefined, personList: TimedStep[] | undefined, self: string): Interval[] {
+  const mine = (list: TimedStep[] | undefined) => (list ?? []).filter((x) => x.operationId !== self && x.end > x.start)
+  return union([mine(benchList), mine(personList)])
+}
+
+/**
+ * The earliest moment, not before `ready` and not after `latest`, from which `minutes` of working time in `windows` can be
+ * worked without touching a busy stretch. It is `ready` or the end of a busy stretch, moved on to the next working minute.
+ */
+function earliestFit(windows: Interval[], busy: Interval[], ready: number, minutes: number, latest: number): number {
+  const candidates = [ready, ...busy.map((b) => b.end).filter((e) => e > ready && e < latest)].sort((a, b) => a - b)
+  for (const c of candidates) {
+    const i = firstEndingAfter(windows, c)
+    if (i >= windows.length) break
+    const e = Math.max(c, windows[i]!.start)
+    if (e >= latest) break
+    let left = minutes,
+      f = e
+    for (let k = i; k < windows.length && left > 0; k++) {
+      const a = Math.max(e, windows[k]!.start)
+      const take = Math.min(left, windows[k]!.end - a)
+      left -= take
+      f = a + take
+    }
+    if (left > 0) continue
+    if (!busy.some((b) => b.start < f && b.end > e)) return e
+  }
+  return latest
+}
+
 /** "Ada (busy with Saw outline for MG26-0071-1 Pendant)": the bench or person and the step (and its job bag) that holds it. */
 export function busyWith(resource: string, step: Pick<Operation, 'name'>, job: string | undefined): string {
   return `${resource} (busy with ${step.name}${job ? ` for ${job}` : ''})`
@@ -165,12 +196,6 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
       else hi = mid
     }
     return lo > 0 ? list[lo - 1]!.end : -Infinity
-  }
-  /** The other step on the same resource that ends last at or before t. */
-  const lastBefore = (list: TimedStep[] | undefined, self: string, t: number): TimedStep | null => {
-    let best: TimedStep | null = null
-    for (const x of list ?? []) if (x.operationId !== self && x.end <= t && (!best || x.end > best.end)) best = x
-    return best
   }
   const windowCache = new Map<string, Interval[]>()
   const jointOf = (b: string | null, p: string | null): Interval[] => {
@@ -292,23 +317,20 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
     }
 
     if (stop.by === 'free') {
-      const allowed = Math.max(
-        ready,
-        lastBefore(benchList, s.operationId, s.start)?.end ?? -Infinity,
-        lastBefore(personList, s.operationId, s.start)?.end ?? -Infinity,
-      )
       const joint = outside ? problem.workshopDays : jointOf(s.benchId, s.personId)
-      const free = workIn(joint, allowed, s.start)
+      if (outside) {
+        out.set(s.operationId, { kind: 'by-hand', detail: `placed at ${at(s.start)}; it could go out from ${at(ready)}${away}` })
+        continue
+      }
+      // The earliest moment from which its bench and person are both at work and free of other bars for as much working time
+      // as the step takes where it stands (its earlier steps done, and not before now).
+      const earliest = earliestFit(joint, otherBars(benchList, personList, s.operationId), ready, workIn(joint, s.start, s.end), s.start)
+      const free = workIn(joint, earliest, s.start)
       const length = free >= 60 ? `${Math.round(free / 6) / 10} h` : `${free} min`
-      // The first working minute from which it could start: now, or when its bench, person or predecessor allow, whichever last.
-      const w = joint.find((x) => x.end > allowed)
-      const earliest = w ? Math.max(allowed, w.start) : allowed
-      const from = allowed <= now ? 'now' : at(earliest)
+      const from = earliest <= now ? 'now' : at(earliest)
       out.set(s.operationId, {
         kind: 'by-hand',
-        detail: outside
-          ? `placed at ${at(s.start)}; it could go out from ${at(allowed)}${away}`
-          : `placed at ${at(s.start)}; it could start ${length} of working time earlier, from ${from} (its bench and person free, its earlier steps done)`,
+        detail: `placed at ${at(s.start)}; it could start ${length} of working time earlier, from ${from} (its bench and person free for the whole step from then, its earlier steps done)`,
       })
       continue
     }

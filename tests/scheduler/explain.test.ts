@@ -62,14 +62,50 @@ describe('start reasons from the plan as it stands', () => {
     expect(why.get('b')?.detail).not.toMatch(/free 1 h/)
   })
   it('when the bench falls free after now, then the earlier start is named by its time, and lunch is not counted', () => {
-    // Now 08:00; A on bench A until 11:30, B put at 13:30: free 11:30–12:00 and 13:00–13:30, 60 working minutes (hand-worked).
+    // Now 08:00; A on bench A 08:30–11:30, B (60 min) put at 13:30. 08:00–08:30 is too short for B; from 11:30 it has
+    // 11:30–12:00 and 13:00–13:30 before its own place: 60 working minutes earlier (hand-worked).
     const why = explainStarts(problem, [
-      { operationId: 'a', benchId: 'b1', personId: 'p1', start: at(0, 10, 30), end: at(0, 11, 30) },
+      { operationId: 'a', benchId: 'b1', personId: 'p1', start: at(0, 8, 30), end: at(0, 11, 30) },
       { operationId: 'b', benchId: 'b1', personId: 'p1', start: at(0, 13, 30), end: at(0, 14, 30) },
     ])
     expect(why.get('b')?.kind).toBe('by-hand')
     expect(why.get('b')?.detail).toContain('could start 1 h of working time earlier')
     expect(why.get('b')?.detail).toMatch(/from Mon \d+ \w+ 11:30 /)
+  })
+  it('when the bench and person were free long enough before the last bar ahead of it, then the earlier start is that free stretch, not the end of the last bar', () => {
+    // Demo hours Mon–Fri 08:30–12:30, 13:15–17:00 (builders' origin Mon 3 Mar 2025). Prepare ends Mon 16:35; the polishing
+    // station is busy Tue 11:42–17:00 (Sam) and Ruth Wed 08:30–09:41 (at the bench); Polish with Ruth is put at Thu 14:00.
+    const hours = [0, 1, 2, 3, 4].flatMap((d) => [
+      { start: at(d, 8, 30), end: at(d, 12, 30) },
+      { start: at(d, 13, 15), end: at(d, 17) },
+    ])
+    const p = makeProblem({
+      now: at(0, 8, 30),
+      workshopDays: hours,
+      benches: [makeBench({ id: 'pol', name: 'Polishing station', available: hours }), makeBench({ id: 'bench', name: 'Bench', available: hours })],
+      people: [makePerson({ id: 'ruth', name: 'Ruth', available: hours }), makePerson({ id: 'sam', name: 'Sam', available: hours })],
+      jobs: [makeJob({ id: 'j69', name: 'MG-69 Ring' }), makeJob({ id: 'j70', name: 'MG-70 Bangle' })],
+      operations: [
+        makeOperation({ id: 'prep', jobId: 'j69', name: 'Prepare', on: ['bench', 'sam', 60] }),
+        makeOperation({ id: 'polish', jobId: 'j69', name: 'Polish', predecessors: ['prep'], on: ['pol', 'ruth', 60] }),
+        makeOperation({ id: 'x', jobId: 'j70', name: 'Buff', on: ['pol', 'sam', 60] }),
+        makeOperation({ id: 'y', jobId: 'j70', name: 'Fit', on: ['bench', 'ruth', 60] }),
+      ],
+    })
+    const others = [
+      { operationId: 'prep', benchId: 'bench', personId: 'sam', start: at(0, 15, 35), end: at(0, 16, 35) },
+      { operationId: 'x', benchId: 'pol', personId: 'sam', start: at(1, 11, 42), end: at(1, 17) },
+      { operationId: 'y', benchId: 'bench', personId: 'ruth', start: at(2, 8, 30), end: at(2, 9, 41) },
+    ]
+    // A 60-min Polish (Thu 14:00–15:00): Mon 16:35–17:00 and Tue 08:30–11:42 are free on both (25 + 192 = 217 min), so it
+    // could start Mon 16:35. Working time from then to Thu 14:00: 25 + 465 (Tue) + 465 (Wed) + 240 + 45 (Thu) = 1,240 min = 20.7 h.
+    const short = explainStarts(p, [...others, { operationId: 'polish', benchId: 'pol', personId: 'ruth', start: at(3, 14), end: at(3, 15) }]).get('polish')!
+    expect(short.kind).toBe('by-hand')
+    expect(short.detail).toContain('could start 20.7 h of working time earlier, from Mon 3 Mar 16:35 ')
+    // A 4-h Polish (Thu 14:00–Fri 09:30, 240 working min) does not fit in those 217 min; the next free stretch on both starts
+    // Wed 09:41: 169 + 225 (Wed) + 285 (Thu) = 679 min = 11.3 h.
+    const long = explainStarts(p, [...others, { operationId: 'polish', benchId: 'pol', personId: 'ruth', start: at(3, 14), end: at(4, 9, 30) }]).get('polish')!
+    expect(long.detail).toContain('could start 11.3 h of working time earlier, from Wed 5 Mar 09:41 ')
   })
   it('when a step starts at 13:00 after lunch with nothing else in the way, then it starts as soon as planning allows (nothing but the lunch break before it)', () => {
     const why = explainStarts({ ...problem, now: at(0, 12, 10) }, [{ operationId: 'b', benchId: 'b1', personId: 'p1', start: at(0, 13), end: at(0, 14) }])

@@ -36,16 +36,28 @@ export function typicalDayMinutes(open: Span[]): number {
   return best
 }
 
-/** Working minutes as "2 working days 3 h", "5 h 20 min", "40 min" (a working day = dayMinutes). */
+/**
+ * Working minutes as "2 working days 3 h", "5 h 20 min", "40 min" (a working day = dayMinutes), rounded to the nearest unit
+ * shown: whole minutes under a working day; from a working day on, whole hours, or the next whole working day when that is
+ * nearer (2 days 7 h 45 min with an 8-h day reads "3 working days"). Anything but zero reads at least "under 1 min".
+ */
 export function formatWorkingTime(minutes: number, dayMinutes: number): string {
-  const m = Math.round(Math.abs(minutes))
-  const days = dayMinutes > 0 ? Math.floor(m / dayMinutes) : 0
+  const exact = Math.abs(minutes)
+  if (exact === 0) return '0 min'
+  const m = Math.round(exact)
+  if (m === 0) return 'under 1 min'
+  if (dayMinutes <= 0 || m < dayMinutes) {
+    const h = Math.floor(m / 60),
+      min = m % 60
+    return [h > 0 ? `${h} h` : '', min > 0 ? `${min} min` : ''].filter(Boolean).join(' ')
+  }
+  let days = Math.floor(m / dayMinutes)
   const rest = m - days * dayMinutes
-  const h = Math.floor(rest / 60),
-    min = rest % 60
-  const parts: string[] = []
-  if (days > 0) parts.push(`${days} working day${days === 1 ? '' : 's'}`)
-  if (h > 0) parts.push(`${h} h`)
-  if (min > 0 && days === 0) parts.push(`${min} min`)
-  return parts.length ? parts.join(' ') : '0 min'
+  let h = Math.round(rest / 60)
+  // The next whole day when it is at least as near as the nearest whole hour (never "8 h" in a day of 7 h 45 min).
+  if (dayMinutes - rest <= Math.abs(rest - h * 60)) {
+    days++
+    h = 0
+  }
+  return `${days} working day${days === 1 ? '' : 's'}${h > 0 ? ` ${h} h` : ''}`
 }

@@ -75,3 +75,9 @@ export function subtract(list: Interval[], cut: Interval[]): Interval[] {
 export function dayRange(clock: MinuteClock, from: string, to: string): Interval {
   return { start: clock.at(from), end: clock.at(dayjs(to).add(1, 'day').format('YYYY-MM-DD')) }
 }
+
+/** A local calendar day (YYYY-MM-DD) as people read it: "Fri 11 Dec", with the year when it is not `now`'s in the zone ("Fri 1 Jan 1999"). */
+export function formatDay(isoDate: string, timeZone: string, now: Date | number = Date.now()): string {
+  const d = dayjs(isoDate.slice(0, 10))
+  return d.format(d.year() === dayjs(now).tz(timeZone).year() ? 'ddd D MMM' : 'ddd D MMM YYYY')
+}

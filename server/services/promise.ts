@@ -9,7 +9,9 @@ import { routingStepMinutes } from '../../shared/domain/estimate'
 import * as s from '../db/schema/index'
 import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import { dayjs } from '../lib/time'
+import { dayjs, formatDay } from '../lib/time'
+import { formatWorkingTime } from '../../shared/domain/working-time'
+import type { BoardJob } from '../../shared/schemas/board'
 import { clipToWindows, intersect } from '../scheduler/calendar.ts'
 import { checkProblem, promise, solve, type Job, type Operation, type Plan, type PlannedOperation, type Problem } from '../scheduler/index.ts'
 import { compile, decode, toPlan } from '../scheduler/decode.ts'
@@ -359,7 +361,23 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
   return { order: booking.booked ? await getOrder(deps.db, actor.workshopId, order.id) : order, booking, confirmation }
 }
 
-const hoursText = (min: number) => (Math.abs(min) >= 1440 ? `${Math.round(Math.abs(min) / 144) / 10} days` : `${Math.round(Math.abs(min) / 6) / 10} h`)
+/**
+ * The forecast's sentence for a planned job bag, in the board's measure: working time late or to spare (open hours, rounded as
+ * the board rounds them), against the end of its due day written as a day ("Fri 11 Dec"). `when` writes the expected finish.
+ */
+export function forecastWhy(
+  j: Pick<BoardJob, 'state' | 'expectedCompletion' | 'lateWorkingMinutes' | 'reason'>,
+  o: { due: string; dayMinutes: number; timeZone: string; now: Date; when: (iso: string) => string },
+): string {
+  if (j.state === 'unplanned')
+    return j.reason ? `Not planned: ${j.reason} (casting and forging wait until it is paid).` : 'Not on the live plan yet: publish a plan to get a date.'
+  const expected = `Expected ${o.when(j.expectedCompletion!)}`
+  const dueDay = `due by the end of ${formatDay(o.due, o.timeZone, o.now)}`
+  const because = j.reason ? ` Last step: ${j.reason}.` : ''
+  if (j.state === 'late') return `${expected}, ${formatWorkingTime(j.lateWorkingMinutes, o.dayMinutes)} late (${dueDay}).${because}`
+  if (j.state === 'at-risk') return `${expected}, only ${formatWorkingTime(-j.lateWorkingMinutes, o.dayMinutes)} to spare (${dueDay}).${because}`
+  return `${expected}, ${formatWorkingTime(-j.lateWorkingMinutes, o.dayMinutes)} to spare (${dueDay}).`
+}
 
 /** Expected completion of each job bag of an order on the live plan, whether it is at risk or late, and why. */
 export async function orderForecast(deps: Deps, actor: Actor, orderId: number, now = new Date()): Promise<OrderForecast> {
@@ -386,17 +404,7 @@ export async function orderForecast(deps: Deps, actor: Actor, orderId: number, n
       }
     }
     const expectedDate = j.expectedCompletion ? dayjs(j.expectedCompletion).tz(tz).format('YYYY-MM-DD') : null
-    const because = j.reason ? ` Last step: ${j.reason}.` : ''
-    const why =
-      j.state === 'unplanned' && j.reason
-        ? `Not planned: ${j.reason} (casting and forging wait until it is paid).`
-        : j.state === 'unplanned'
-          ? 'Not on the live plan yet: publish a plan to get a date.'
-          : j.state === 'late'
-            ? `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} after the end of ${due}.${because}`
-            : j.state === 'at-risk'
-              ? `Expected ${when(j.expectedCompletion!)}, only ${hoursText(j.latenessMinutes)} before the end of ${due}.${because}`
-              : `Expected ${when(j.expectedCompletion!)}, ${hoursText(j.latenessMinutes)} to spare.`
+    const why = forecastWhy(j, { due, dayMinutes: board.dayMinutes, timeZone: tz, now, when })
     return { ...base, expectedCompletion: j.expectedCompletion, expectedDate, state: j.state, latenessMinutes: j.latenessMinutes, why }
   })
   const rank: JobBagForecast['state'][] = ['late', 'at-risk', 'unplanned', 'on-time', 'finished']

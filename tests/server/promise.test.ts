@@ -13,6 +13,7 @@ import { kindSpreads, MIN_HISTORY } from '../../server/services/promise-range'
 import { readLivePlan } from '../../server/planning/live-plan'
 import { operationOptions } from '../../server/planning/problem'
 import { bookSlot, placeInGaps, planFromAssignments, PROSPECTIVE_JOB } from '../../server/services/promise'
+import { formatWorkingTime } from '../../shared/domain/working-time'
 
 let t: TestApp
 let fake: FakeSmtp
@@ -434,7 +435,13 @@ describe('order forecast', () => {
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect(r.body.state).toBe('late')
     expect(r.body.jobBags[0].state).toBe('late')
-    expect(r.body.jobBags[0].why).toMatch(/after the end of/)
+    // In the board's measure and words: working time late, the due day written as a day (not clock hours against an ISO date).
+    const today = new Date().toISOString().slice(0, 10)
+    const board = (await sales.get(`/api/board?from=${today}&to=${today}`)).body
+    const onBoard = board.jobs.find((j: { jobBagId: number }) => j.jobBagId === order.bagId)
+    expect(onBoard.lateWorkingMinutes).toBeGreaterThan(0)
+    expect(r.body.jobBags[0].why).toContain(`${formatWorkingTime(onBoard.lateWorkingMinutes, board.dayMinutes)} late (due by the end of `)
+    expect(r.body.jobBags[0].why).not.toMatch(/\d{4}-\d{2}-\d{2}/)
     expect((await sales.get('/api/orders/999999/forecast')).status).toBe(404)
   })
 })

@@ -251,6 +251,9 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       end = iso(new Date(Math.max(now.getTime(), new Date(a.end).getTime())))
     }
     if (!overlaps(start, end)) continue
+    // The planned person's speed for this kind of work: why the bar is shorter or longer than the estimate.
+    const outsideWork = m.kind.outside || m.op.leadDays > 0
+    const speed = personId !== null && !outsideWork ? data.meta.skills.find((k) => k.personId === personId && k.kindId === m.op.kindId)?.speed : undefined
     items.push({
       id: m.op.id,
       jobBagId: m.bag.id,
@@ -273,6 +276,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       pinned: m.op.pinned,
       version: m.op.version,
       estimateMinutes: m.op.estimateMinutes,
+      ...(speed !== undefined ? { speed } : {}),
       ...(m.op.leadDays > 0 ? { outsideDays: m.op.leadDays } : {}),
       requiredLevel: m.op.requiredLevel,
       reason: a?.reason ?? (running ? runningReason(data, id, null) : null),

@@ -51,6 +51,8 @@ export const boardItem = z.object({
   pinned: z.boolean(),
   version: z.number().int(),
   estimateMinutes: z.number(),
+  /** The planned person's speed factor for this kind of work (their minutes = estimate ÷ speed, rounded up); absent without one. */
+  speed: z.number().positive().optional(),
   /** Outside work (casting, hallmarking): the working days it is away, when the step counts its time that way. */
   outsideDays: z.number().int().optional(),
   requiredLevel: z.number().int(),

@@ -1,11 +1,12 @@
 // A bar's estimate in its details panel and its hover card: bench work in hours and minutes, outside work (casting,
 // hallmarking) in the working days it is away.
 import { describe, expect, it } from 'vitest'
-import { mount } from '@vue/test-utils'
+import { flushPromises, mount } from '@vue/test-utils'
 import ElementPlus from 'element-plus'
 import type { BoardItem } from '@shared/schemas/board'
 import BoardBarDetails from '@/components/board/BoardBarDetails.vue'
 import BoardBarTooltip from '@/components/board/BoardBarTooltip.vue'
+import JobBagRouting from '@/components/jobbag/JobBagRouting.vue'
 
 const base: BoardItem = {
   id: 7,
@@ -82,5 +83,64 @@ describe('estimate in the hover card', () => {
 
   it('when the step is bench work of 90 minutes, then the card shows 1 h 30 min', () => {
     expect(tipOf(base)).toBe('1 h 30 min')
+  })
+})
+
+describe('the person’s speed beside the estimate', () => {
+  const details = (item: BoardItem) =>
+    mount(BoardBarDetails, {
+      props: {
+        item,
+        benchName: new Map([[1, 'Setting bench']]),
+        personName: new Map([[4, 'Priya']]),
+        timeZone: 'Europe/London',
+        canEdit: false,
+        pinning: false,
+      },
+      global: { plugins: [ElementPlus] },
+    })
+
+  it('when Priya works at speed 1.1, then the estimate says she works it in 1 h 22 min, the length of the planned bar', () => {
+    // 90 ÷ 1.1 = 81.8, rounded up to 82 min = 1 h 22 min (hand-worked), as 09:16–10:38 on the board.
+    const item = { ...base, speed: 1.1, start: '2026-03-02T09:16:00Z', end: '2026-03-02T10:38:00Z' }
+    expect(details(item).find('[data-test="bar-estimate"]').text()).toBe('1 h 30 min; Priya works it in 1 h 22 min (speed 1.1)')
+    const tip = mount(BoardBarTooltip, {
+      props: {
+        item,
+        rect: new DOMRect(10, 10, 100, 20),
+        benchName: new Map([[1, 'Setting bench']]),
+        personName: new Map([[4, 'Priya']]),
+        timeZone: 'Europe/London',
+      },
+      global: { plugins: [ElementPlus] },
+    })
+    expect(tip.find('[data-test="tip-speed"]').text()).toBe('Estimate at standard speed; Priya works it in 1 h 22 min (speed 1.1)')
+  })
+
+  it('when a trainee works at speed 0.75, then the longer time is named', () => {
+    // 90 ÷ 0.75 = 120 min = 2 h (hand-worked).
+    expect(
+      details({ ...base, speed: 0.75 })
+        .find('[data-test="bar-estimate"]')
+        .text(),
+    ).toBe('1 h 30 min; Priya works it in 2 h (speed 0.75)')
+  })
+
+  it('when the person works at the standard speed, then nothing is added', () => {
+    expect(
+      details({ ...base, speed: 1 })
+        .find('[data-test="bar-estimate"]')
+        .text(),
+    ).toBe('1 h 30 min')
+  })
+})
+
+describe('the job bag’s routing', () => {
+  it('when the routing lists each step’s minutes, then the column says they are the estimate, not the plan', async () => {
+    const w = mount(JobBagRouting, { props: { operations: [], editable: false }, global: { plugins: [ElementPlus] } })
+    await flushPromises()
+    const headers = w.findAll('th').map((h) => h.text())
+    expect(headers.some((h) => /^Estimate/.test(h))).toBe(true)
+    expect(headers.some((h) => /Planned/.test(h))).toBe(false)
   })
 })

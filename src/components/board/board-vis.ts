@@ -265,6 +265,17 @@ export function estimateLabel(item: Pick<BoardItem, 'outside' | 'outsideDays' | 
   return `${formatMinutes(item.estimateMinutes)}${item.outside ? ' (outside work)' : ''}`
 }
 
+/**
+ * Why a bar is shorter or longer than its estimate: "Priya works it in 1 h 22 min (speed 1.1)" — the planner gives a person
+ * estimate ÷ speed, rounded up to the minute (server/planning/problem.ts). Empty at the standard speed, for outside work, or
+ * without a planned person.
+ */
+export function speedNote(item: Pick<BoardItem, 'outside' | 'estimateMinutes' | 'speed'>, person: string | null): string {
+  if (item.outside || !person || item.speed === undefined || item.speed === 1) return ''
+  const speed = Math.round(item.speed * 100) / 100
+  return `${person} works it in ${formatMinutes(Math.ceil(item.estimateMinutes / item.speed))} (speed ${speed})`
+}
+
 /** Minutes as "1 h 35 min" / "20 min" / "3 d" (working minutes of an estimate). */
 export function formatMinutes(min: number): string {
   if (min < 60) return `${Math.round(min)} min`

@@ -5,6 +5,7 @@ import timezone from 'dayjs/plugin/timezone.js'
 import utc from 'dayjs/plugin/utc.js'
 import type { WorkSpan } from '../../shared/schemas/common'
 import { minutesOfDay } from '../../shared/schemas/common'
+import type { When } from '../../shared/domain/rules'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
@@ -80,4 +81,22 @@ export function dayRange(clock: MinuteClock, from: string, to: string): Interval
 export function formatDay(isoDate: string, timeZone: string, now: Date | number = Date.now()): string {
   const d = dayjs(isoDate.slice(0, 10))
   return d.format(d.year() === dayjs(now).tz(timeZone).year() ? 'ddd D MMM' : 'ddd D MMM YYYY')
+}
+
+/** An instant on the workshop's clock as people read it: "Mon 7 Dec 10:38", with the year when it is not `now`'s ("Fri 1 Jan 1999 10:00"). */
+export function formatInstant(at: Date | string | number, timeZone: string, now: Date | number = Date.now()): string {
+  const d = dayjs(at).tz(timeZone)
+  return d.format(d.year() === dayjs(now).tz(timeZone).year() ? 'ddd D MMM HH:mm' : 'ddd D MMM YYYY HH:mm')
+}
+
+/**
+ * The rule book's writer of times (`When`) on the workshop's clock: each minute as `formatInstant` writes it, and its local
+ * day and time of day, so a stretch within one day names the day once ("Mon 7 Dec 10:38–11:18").
+ */
+export function workshopWhen(timeZone: string, toDate: (minute: number) => Date, now: Date | number = Date.now()): When {
+  const local = (m: number) => dayjs(toDate(m)).tz(timeZone)
+  return Object.assign((m: number) => formatInstant(toDate(m), timeZone, now), {
+    dayOf: (m: number) => local(m).format('YYYY-MM-DD'),
+    timeOf: (m: number) => local(m).format('HH:mm'),
+  })
 }

@@ -12,7 +12,7 @@ import type { Tx } from '../db/client'
 import * as s from '../db/schema/index'
 import { LOCK } from '../lib/locks'
 import type { Actor } from '../lib/route'
-import { dayjs } from '../lib/time'
+import { dayjs, workshopWhen } from '../lib/time'
 import { clipToWindows, intersect, leaveTime, outsideWorkEnd, walkWorkingTime } from '../scheduler/calendar.ts'
 import type { Interval } from '../scheduler/model.ts'
 import { dayRange } from '../lib/time'
@@ -147,9 +147,6 @@ export function liveFigures(data: PlanningData, assignments: Assignments) {
   }
 }
 
-/** How the workshop's local time is written in findings ("Wed 9 Dec 08:43"). */
-const localWhen = (data: PlanningData) => (m: number) => dayjs(data.clock.toDate(m)).tz(data.clock.timeZone).format('ddd D MMM HH:mm')
-
 /**
  * The live plan against the calendar as it is now: each step still to come (not under way, not sent out) whose bar no longer
  * fits the time its bench and person work — bench work with less joint working time inside its bar than it needs, outside work
@@ -158,7 +155,8 @@ const localWhen = (data: PlanningData) => (m: number) => dayjs(data.clock.toDate
  */
 export function calendarFindings(data: PlanningData, assignments: Assignments): RuleViolation[] {
   const c = data.clock
-  const when = localWhen(data)
+  // The workshop's local time as findings write it ("Wed 9 Dec 08:43"; the year when it is not this year's).
+  const when = workshopWhen(c.timeZone, (m) => c.toDate(m), c.toDate(data.problem.now))
   const closures = data.meta.closures.map((x) => ({ ...dayRange(c, x.startsOn, x.endsOn), why: `closed: ${x.name}` }))
   const cut = (list: { start: number; end: number; why: string }[], from: number, to: number) =>
     list.filter((x) => x.start < to && from < x.end).map((x) => ({ from: Math.max(from, x.start), to: Math.min(to, x.end), why: x.why }))
@@ -407,7 +405,7 @@ export async function bookPromise(
   await lockLivePlan(tx, actor.workshopId)
   const { data, orderId, steps } = o
   const c = data.clock
-  const when = (m: number) => dayjs(c.toDate(m)).tz(c.timeZone).format('ddd D MMM HH:mm')
+  const when = workshopWhen(c.timeZone, (m) => c.toDate(m), c.toDate(data.problem.now))
   const [bag] = await tx.select({ id: s.jobBags.id, number: s.jobBags.number }).from(s.jobBags).where(eq(s.jobBags.orderId, orderId))
   const ops = await tx
     .select({ id: s.operations.id, key: s.operations.key, name: s.operations.name })
@@ -491,10 +489,7 @@ export async function claimOnPlan(
   const found = clashes(live.assignments, a, span(a), span)
   const named = await stepsById(tx, [o.operationId, ...found.map((f) => f.other.operationId)])
   const [w] = await tx.select({ tz: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
-  const when = (m: number) =>
-    dayjs(m * 60_000)
-      .tz(w?.tz ?? 'UTC')
-      .format('ddd D MMM HH:mm')
+  const when = workshopWhen(w?.tz ?? 'UTC', (m) => new Date(m * 60_000))
   const findings = found.map((f) =>
     rules.doubleBooking(named.get(o.operationId)!, {
       resource: f.resource,

@@ -6,7 +6,7 @@ import type { MoveInput } from '../../shared/schemas/plan'
 import * as s from '../db/schema/index'
 import { AppError, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import { dayjs } from '../lib/time'
+import { workshopWhen } from '../lib/time'
 import { intersect, walkWorkingTime, clipToWindows, outsideWorkEnd } from '../scheduler/calendar.ts'
 import type { Interval } from '../scheduler/model.ts'
 import { audit } from '../services/audit'
@@ -30,7 +30,7 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
     await lockLivePlan(tx, actor.workshopId)
     const data = await loadPlanningData(tx, actor.workshopId, now)
     const c = data.clock
-    const when = (m: number) => dayjs(c.toDate(m)).tz(c.timeZone).format('ddd D MMM HH:mm')
+    const when = workshopWhen(c.timeZone, (m) => c.toDate(m), now)
     const m = data.meta.operations.get(String(opId))
     if (!m) {
       const [row] = await tx

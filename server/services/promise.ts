@@ -9,7 +9,7 @@ import { routingStepMinutes } from '../../shared/domain/estimate'
 import * as s from '../db/schema/index'
 import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import { dayjs, formatDay } from '../lib/time'
+import { dayjs, formatDay, formatInstant } from '../lib/time'
 import { formatWorkingTime } from '../../shared/domain/working-time'
 import type { BoardJob } from '../../shared/schemas/board'
 import { clipToWindows, intersect } from '../scheduler/calendar.ts'
@@ -388,7 +388,7 @@ export async function orderForecast(deps: Deps, actor: Actor, orderId: number, n
   const board = await boardData(deps.db, actor.workshopId, { from: day, to: day, now })
   const bags = await deps.db.select().from(s.jobBags).where(eq(s.jobBags.orderId, orderId)).orderBy(asc(s.jobBags.number))
   const due = order.promisedDate ?? order.dueDate
-  const when = (iso: string) => dayjs(iso).tz(tz).format('ddd D MMM HH:mm')
+  const when = (iso: string) => formatInstant(iso, tz, now)
   const jobBags: JobBagForecast[] = bags.map((b) => {
     const j = board.jobs.find((x) => x.jobBagId === b.id)
     const base = { jobBagId: b.id, number: b.number, piece: b.piece, status: b.status }

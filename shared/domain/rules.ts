@@ -46,9 +46,17 @@ export interface StepRef {
   bag?: string
 }
 
-/** How a point in time is written: the engine writes minutes, the server the workshop's local time. */
-export type When = (minute: number) => string
+/**
+ * How a point in time is written: the engine writes minutes, the server the workshop's local time. A writer that also says
+ * which day a minute falls on (`dayOf`) and writes a time of day alone (`timeOf`) lets a stretch within one day name it once.
+ */
+export type When = ((minute: number) => string) & { dayOf?: (minute: number) => string; timeOf?: (minute: number) => string }
 export const minutesAsIs: When = (m) => String(m)
+
+/** A stretch of time: "Mon 7 Dec 10:38–11:18" within one day, "Mon 7 Dec 16:00–Tue 8 Dec 09:00" across days. */
+export function span(when: When, from: number, to: number): string {
+  return when.dayOf && when.timeOf && when.dayOf(from) === when.dayOf(to) ? `${when(from)}–${when.timeOf(to)}` : `${when(from)}–${when(to)}`
+}
 
 const q = (name: string) => `“${name}”`
 const step = (s: StepRef) => (s.bag ? `${q(s.name)} of ${s.bag}` : q(s.name))
@@ -153,7 +161,7 @@ export function doubleBooking(
   return violation(
     o.resource === 'bench' ? 'bench double booking' : 'person double booking',
     s,
-    `${o.name} is booked for ${step(o.other)} ${when(o.from)}–${when(o.to)}, the same time as ${step(s)}.`,
+    `${o.name} is booked for ${step(o.other)} ${span(when, o.from, o.to)}, the same time as ${step(s)}.`,
     { with: o.other.operationId !== undefined ? String(o.other.operationId) : undefined, from: o.from, to: o.to },
   )
 }
@@ -167,15 +175,10 @@ export function workingTime(s: StepRef, o: { resource: 'bench' | 'person'; name:
     ? violation(
         'within bench working time',
         s,
-        `${step(s)} works on ${o.name} during ${when(o.from)}–${when(o.to)}, when the bench is not available${why}.`,
+        `${step(s)} works on ${o.name} during ${span(when, o.from, o.to)}, when the bench is not available${why}.`,
         details,
       )
-    : violation(
-        'within personal working time',
-        s,
-        `${step(s)} needs ${o.name} during ${when(o.from)}–${when(o.to)}, outside their working time${why}.`,
-        details,
-      )
+    : violation('within personal working time', s, `${step(s)} needs ${o.name} during ${span(when, o.from, o.to)}, outside their working time${why}.`, details)
 }
 
 /** Nothing new is planned in the past. */

@@ -40,6 +40,24 @@ describe('rule book', () => {
     expect(v.message).toBe('Ada is booked for “Solder bail” of JB-0007 9:00–10:00, the same time as “Set centre stone” of JB-0042.')
   })
 
+  it('when a stretch lies within one day and the writer names days, then the day is written once; across days, both ends in full', () => {
+    // A writer on a clock whose minute 0 is Mon 7 Dec 00:00 (hand-made): "Mon 7 Dec 10:38" for minute 638.
+    const at = (m: number) => `${m < 1440 ? 'Mon 7 Dec' : 'Tue 8 Dec'} ${String(Math.floor(m / 60) % 24).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`
+    const when: rules.When = Object.assign(at, { dayOf: (m: number) => String(Math.floor(m / 1440)), timeOf: (m: number) => at(m).slice(-5) })
+    const other = { name: 'Solder bail', bag: 'JB-0007' }
+    // 10:38 = 638, 11:18 = 678.
+    expect(rules.doubleBooking(step, { resource: 'bench', name: 'Bench 2', other, from: 638, to: 678, when }).message).toBe(
+      'Bench 2 is booked for “Solder bail” of JB-0007 Mon 7 Dec 10:38–11:18, the same time as “Set centre stone” of JB-0042.',
+    )
+    // 16:00 = 960; Tue 09:00 = 1440 + 540 = 1980.
+    expect(rules.workingTime(step, { resource: 'person', name: 'Ada', from: 960, to: 1980, when }).message).toBe(
+      '“Set centre stone” of JB-0042 needs Ada during Mon 7 Dec 16:00–Tue 8 Dec 09:00, outside their working time.',
+    )
+    expect(rules.workingTime(step, { resource: 'bench', name: 'Bench 2', from: 638, to: 678, when }).message).toBe(
+      '“Set centre stone” of JB-0042 works on Bench 2 during Mon 7 Dec 10:38–11:18, when the bench is not available.',
+    )
+  })
+
   it('when a piece finishes after its due date, then it is a soft finding with the minutes late', () => {
     const v = rules.dueDate({ jobId: 'j1', name: 'JB-0042' }, { completion: 1300, due: 1200 })!
     expect(v).toMatchObject({ rule: 'due date', severity: 'soft', details: { lateBy: 100 } })

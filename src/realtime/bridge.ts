@@ -78,6 +78,14 @@ const boardVersions: LiveRoute = {
     if (c.live.isShown('board')) c.soon('board:versions', () => c.board.loadVersions(), 150, 1000)
   },
 }
+/** Master data that carries the calendar the live plan is checked against. */
+const CALENDAR_ENTITIES = new Set(['closure', 'workshop', 'bench', 'person'])
+const calendarVersions: LiveRoute = {
+  ...boardVersions,
+  apply: (p, c) => {
+    if (CALENDAR_ENTITIES.has(String(p.entity))) boardVersions.apply(p, c)
+  },
+}
 const boardPlans: LiveRoute = {
   store: 'board',
   ownWritesReload: true,
@@ -191,8 +199,9 @@ export const LIVE_TABLE: Record<EventName, LiveRoute[]> = {
   ],
   'order:created': [boardBars(), keys(() => ['orders'])],
   'order:updated': [boardBars(), keys((p) => ['orders', `order:${p.id}`])],
-  // A calendar change stores the live plan's findings and figures again: the board's plan versions reload too.
-  'masterdata:changed': [boardBars(), boardVersions, masterData, keys((p) => [`masterdata:${p.entity}`])],
+  // A calendar change (closures, opening hours, a bench's downtime, someone's leave or hours) stores the live plan's findings and
+  // figures again: the board's plan versions reload too; other master data (customers, routings, …) leaves them as they are.
+  'masterdata:changed': [boardBars(), calendarVersions, masterData, keys((p) => [`masterdata:${p.entity}`])],
   'file:added': [keys((p) => keysOf(num(p.orderId) !== null && `order:${p.orderId}:files`, num(p.jobBagId) !== null && `jobBag:${p.jobBagId}:files`))],
   'file:removed': [keys((p) => keysOf(num(p.orderId) !== null && `order:${p.orderId}:files`, num(p.jobBagId) !== null && `jobBag:${p.jobBagId}:files`))],
   'metal:recorded': [metalStore, keys((p) => keysOf('metal', num(p.jobBagId) !== null && `metal:jobBag:${p.jobBagId}`))],

@@ -110,12 +110,21 @@ describe('routing by event', () => {
     expect(plans.getLoad).not.toHaveBeenCalled()
   })
 
-  it('when master data changes, then the store listing it and the board window reload, not the plan list or the bench queue', async () => {
+  it('when a bench changes (its downtime is part of the calendar), then its store, the board window and the plan list reload, not the bench queue', async () => {
     await useBenchesStore().load()
     benchesApi.listBenches.mockClear()
     socket.fire('masterdata:changed', { entity: 'bench', id: 3, seq: 1 })
     await settle()
     expect(benchesApi.listBenches).toHaveBeenCalled()
+    expect(plans.getBoard).toHaveBeenCalledTimes(1)
+    // The live plan's findings and figures are stored again on a calendar change: the plan list shows them.
+    expect(plans.listPlans).toHaveBeenCalledTimes(1)
+    expect(bench.myWork).not.toHaveBeenCalled()
+  })
+
+  it('when master data outside the calendar changes (a customer), then the plan list and the bench queue are left alone', async () => {
+    socket.fire('masterdata:changed', { entity: 'customer', id: 4, seq: 1 })
+    await settle()
     expect(plans.getBoard).toHaveBeenCalledTimes(1)
     expect(plans.listPlans).not.toHaveBeenCalled()
     expect(bench.myWork).not.toHaveBeenCalled()

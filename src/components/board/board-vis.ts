@@ -258,6 +258,46 @@ export function moveRequest(item: BoardItem, to: DropTarget, rowsBy: RowsBy): Mo
   return Object.keys(body).length > 1 ? body : null
 }
 
+/**
+ * What a draft moves, in parts that never overlap, so they add up to the number of bars that change: those going to another
+ * bench or person (whether or not their time changes too; split into bench only, person only and both when more than one of
+ * these happens), those changing only in time, those newly planned and those no longer planned. "none" when nothing changes.
+ */
+export function movesBreakdown(moves: Pick<PlanMove, 'change'>[]): string {
+  let bench = 0,
+    person = 0,
+    both = 0,
+    time = 0,
+    added = 0,
+    dropped = 0
+  for (const { change } of moves) {
+    if (change.includes('new')) added++
+    else if (change.includes('dropped')) dropped++
+    else if (change.includes('bench') && change.includes('person')) both++
+    else if (change.includes('bench')) bench++
+    else if (change.includes('person')) person++
+    else if (change.includes('time')) time++
+  }
+  const kinds = [bench && `${bench} another bench`, person && `${person} another person`, both && `${both} both`].filter(Boolean)
+  const elsewhere = bench + person + both
+  const parts = [
+    kinds.length > 1
+      ? `${elsewhere} to another bench or person (${kinds.join(', ')})`
+      : bench
+        ? `${bench} to another bench`
+        : person
+          ? `${person} to another person`
+          : both && `${both} to another bench and person`,
+    time && `${time} only in time`,
+    added && `${added} newly planned`,
+    dropped && `${dropped} no longer planned`,
+  ].filter(Boolean)
+  return parts.length ? parts.join(', ') : 'none'
+}
+
+/** "1 bar changes" / "3 bars change". */
+export const barsChange = (n: number) => (n === 1 ? '1 bar changes' : `${n} bars change`)
+
 /** A step's estimate as people say it: bench work in hours and minutes, outside work in the working days it is away. */
 export function estimateLabel(item: Pick<BoardItem, 'outside' | 'outsideDays' | 'estimateMinutes'>): string {
   const days = item.outsideDays

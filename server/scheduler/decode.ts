@@ -2,7 +2,7 @@
 import type { Interval, Job, Objective, Operation, Plan, PlannedOperation, Problem, Score, StartReason } from './model.ts'
 import { SchedulingInputError } from './model.ts'
 import { clipToWindows, firstEndingAfter, formatMinute, intersect, leaveTime, outsideWorkEnd, walkWorkingTime, weekdayOf } from './calendar.ts'
-import { busyWith, outsideLength, toBeDone } from './explain.ts'
+import { busyWith, dayWords, outsideLength, outsideStartWords, toBeDone } from './explain.ts'
 
 /** One resource option of an operation, with indices and its joint working windows. */
 export interface CompiledOption {
@@ -796,21 +796,23 @@ export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
     const kind = WHY_KIND[d.why[i]!]!
     const b = d.blocker[i]!
     const bop = b >= 0 ? c.ops[b]! : null
+    // Outside work that waited for the workshop to open goes out at opening time, never at midnight (whole workshop days).
+    const startAt = c.outsideDays[i]! > 0 ? outsideStartWords(d.start[i]!, at) : at(d.start[i]!)
     let detail: string
     switch (kind) {
       case 'fixed':
-        detail = `pinned at ${at(d.start[i]!)}`
+        detail = `pinned at ${startAt}`
         break
       case 'now':
-        detail = `${c.outsideDays[i]! > 0 ? 'goes out' : 'starts'} as soon as planning allows (${at(d.start[i]!)})`
+        detail = `${c.outsideDays[i]! > 0 ? 'goes out' : 'starts'} as soon as planning allows (${startAt})`
         break
       case 'release':
         detail = `job ${c.jobs[c.jobOf[i]!]!.name} is released at ${at(c.jobs[c.jobOf[i]!]!.release)}`
         break
       case 'predecessor':
         detail = bop
-          ? `waiting for ${bop.name} ${toBeDone(bop)}${c.waitAfter[b]! > 0 ? ` and ${c.waitAfter[b]} min wait` : ''} until ${at(d.start[i]!)}`
-          : `waiting for a predecessor until ${at(d.start[i]!)}`
+          ? `waiting for ${bop.name} ${toBeDone(bop)}${c.waitAfter[b]! > 0 ? ` and ${c.waitAfter[b]} min wait` : ''} until ${startAt}`
+          : `waiting for a predecessor until ${startAt}`
         break
       case 'bench':
       case 'person': {
@@ -822,14 +824,16 @@ export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
             : personId
               ? (p.people.find((x) => x.id === personId)?.name ?? personId)
               : 'the person'
-        detail = `waiting for ${bop ? busyWith(name, bop, c.jobs[c.jobOf[b]!]?.name) : `${name} (busy)`} until ${at(d.start[i]!)}`
+        detail = `waiting for ${bop ? busyWith(name, bop, c.jobs[c.jobOf[b]!]?.name) : `${name} (busy)`} until ${startAt}`
         break
       }
       default:
         detail =
           c.outsideDays[i]! > 0
-            ? `goes out when the workshop next opens (${at(d.start[i]!)})`
-            : `outside working time of ${[benchId && p.benches.find((x) => x.id === benchId)?.name, personId && p.people.find((x) => x.id === personId)?.name].filter(Boolean).join(' and ') || 'the workshop'} until ${at(d.start[i]!)}`
+            ? d.start[i]! % 1440 === 0
+              ? `goes out when the workshop next opens, on ${dayWords(d.start[i]!, at)}`
+              : `goes out when the workshop next opens (${startAt})`
+            : `outside working time of ${[benchId && p.benches.find((x) => x.id === benchId)?.name, personId && p.people.find((x) => x.id === personId)?.name].filter(Boolean).join(' and ') || 'the workshop'} until ${startAt}`
     }
     // Outside work is counted in the workshop's working days.
     if (c.outsideDays[i]! > 0) detail += `; ${outsideLength(c.outsideDays[i]!, d.end[i]!, at)}`

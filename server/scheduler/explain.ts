@@ -101,7 +101,16 @@ export function busyWith(resource: string, step: Pick<Operation, 'name'>, job: s
 export const toBeDone = (op: Pick<Operation, 'outsideWorkingDays'>): string => ((op.outsideWorkingDays ?? 0) > 0 ? 'to come back' : 'to finish')
 
 /** The day of minute t as `at` words it, without the time ("Fri 11 Dec"). */
-const dayWords = (t: number, at: (t: number) => string): string => at(Math.floor(t / 1440) * 1440).replace(/ 00:00/, '')
+export const dayWords = (t: number, at: (t: number) => string): string => at(Math.floor(t / 1440) * 1440).replace(/ 00:00/, '')
+
+/**
+ * When outside work goes out, as `at` words it: the server counts the workshop's days whole for outside work (from 00:00), so
+ * work that waited for the workshop to open leaves at a day's first minute — it goes out when the workshop opens that day,
+ * never at midnight: "opening time on Mon 7 Dec". Any other minute is the moment it is ready to go ("Mon 7 Dec 14:35").
+ */
+export function outsideStartWords(t: number, at: (t: number) => string): string {
+  return t % 1440 === 0 ? `opening time on ${dayWords(t, at)}` : at(t)
+}
 
 /** "out for 5 working days, back by the end of Fri 11 Dec": outside work's length in the workshop's working days. */
 export function outsideLength(days: number, end: number, at: (t: number) => string): string {
@@ -223,8 +232,10 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
     const outsideDays = op.outsideWorkingDays ?? 0
     const outside = outsideDays > 0
     const away = outside ? `; ${outsideLength(outsideDays, s.end, at)}` : ''
+    /** The step's start: outside work that waited for the workshop to open goes out at opening time, never at midnight. */
+    const startAt = outside ? outsideStartWords(s.start, at) : at(s.start)
     if (op.fixed) {
-      out.set(s.operationId, { kind: 'fixed', detail: `${outside ? 'pinned to go out' : 'pinned'} at ${at(s.start)}${away}` })
+      out.set(s.operationId, { kind: 'fixed', detail: `${outside ? 'pinned to go out' : 'pinned'} at ${startAt}${away}` })
       continue
     }
     const now = s.start < problem.now ? Math.min(problem.now, planFrom) : problem.now
@@ -261,7 +272,7 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
     if (lateBy) {
       out.set(s.operationId, {
         kind: 'by-hand',
-        detail: `placed at ${at(s.start)}, before ${ops.get(lateBy.pred)!.name} is done (${at(lateBy.at)})`,
+        detail: `placed at ${startAt}, before ${ops.get(lateBy.pred)!.name} is done (${at(lateBy.at)})`,
         blockerId: lateBy.pred,
       })
       continue
@@ -319,7 +330,7 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
     if (stop.by === 'free') {
       const joint = outside ? problem.workshopDays : jointOf(s.benchId, s.personId)
       if (outside) {
-        out.set(s.operationId, { kind: 'by-hand', detail: `placed at ${at(s.start)}; it could go out from ${at(ready)}${away}` })
+        out.set(s.operationId, { kind: 'by-hand', detail: `placed at ${startAt}; it could go out from ${at(ready)}${away}` })
         continue
       }
       // The earliest moment from which its bench and person are both at work and free of other bars for as much working time
@@ -330,7 +341,7 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
       const from = earliest <= now ? 'now' : at(earliest)
       out.set(s.operationId, {
         kind: 'by-hand',
-        detail: `placed at ${at(s.start)}; it could start ${length} of working time earlier, from ${from} (its bench and person free for the whole step from then, its earlier steps done)`,
+        detail: `placed at ${startAt}; it could start ${length} of working time earlier, from ${from} (its bench and person free for the whole step from then, its earlier steps done)`,
       })
       continue
     }
@@ -360,18 +371,18 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
     if (held < 0) {
       // Nothing but the workshop's closed hours between what allowed the start and the start.
       if (stop.by === 'bench' || stop.by === 'person') {
-        out.set(s.operationId, { kind: stop.by, blockerId: stop.step.operationId, detail: `waiting for ${busyNote()} until ${at(s.start)}${away}` })
+        out.set(s.operationId, { kind: stop.by, blockerId: stop.step.operationId, detail: `waiting for ${busyNote()} until ${startAt}${away}` })
       } else if (readyBy === 'predecessor') {
         const pred = ops.get(readyPred!)!
         out.set(s.operationId, {
           kind: 'predecessor',
           blockerId: readyPred!,
-          detail: `waiting for ${pred.name} ${toBeDone(pred)}${readyWait > 0 ? ` and ${readyWait} min wait` : ''} until ${at(s.start)}${away}`,
+          detail: `waiting for ${pred.name} ${toBeDone(pred)}${readyWait > 0 ? ` and ${readyWait} min wait` : ''} until ${startAt}${away}`,
         })
       } else if (readyBy === 'release') {
         out.set(s.operationId, { kind: 'release', detail: `job ${job!.name} is released at ${at(job!.release)}${away}` })
       } else {
-        out.set(s.operationId, { kind: 'now', detail: `${outside ? 'goes out' : 'starts'} as soon as planning allows (${at(s.start)})${sinceNote()}${away}` })
+        out.set(s.operationId, { kind: 'now', detail: `${outside ? 'goes out' : 'starts'} as soon as planning allows (${startAt})${sinceNote()}${away}` })
       }
       continue
     }
@@ -405,7 +416,7 @@ export function explainStarts(problem: Problem, steps: TimedStep[], calendar: Ex
       return parts.join(' and ')
     }
     let detail = whatHeld(x, true)
-    if (x.to < s.start) detail += `, then outside workshop hours until ${at(s.start)}`
+    if (x.to < s.start) detail += `, then outside workshop hours until ${startAt}`
     // What held it before, in the order it came: other causes, and whole weekends closed.
     const before: string[] = []
     const named = new Set([whatHeld(x, false)])

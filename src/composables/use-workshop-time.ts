@@ -24,6 +24,17 @@ export function formatDay(date: string | null | undefined): string {
   return date ? dayjs(date).format('ddd D MMM YYYY') : '—'
 }
 
+/**
+ * When a step is planned to start, on the workshop's wall clock: "Mon 7 Dec 2026, 14:35". Outside work planned from a day's
+ * first minute waited for the workshop to open (the planner counts the workshop's days whole for outside work), so it reads
+ * "Mon 7 Dec 2026, at opening", never 00:00.
+ */
+export function formatPlannedStart(iso: string | null | undefined, tz: string, outside: boolean): string {
+  if (!iso) return '—'
+  const t = dayjs(iso).tz(tz)
+  return outside && t.format('HH:mm') === '00:00' ? `${t.format('ddd D MMM YYYY')}, at opening` : t.format('ddd D MMM YYYY, HH:mm')
+}
+
 export function useWorkshopTime() {
   const calendar = useCalendarStore()
   const tz = computed(() => calendar.settings?.timeZone ?? 'Europe/London')
@@ -37,5 +48,8 @@ export function useWorkshopTime() {
   /** Whole days from the workshop's today to a date (negative when past). */
   const daysFromToday = (date: string) => dayjs(date).diff(dayjs(today()), 'day')
 
-  return { tz, formatDateTime, formatDay, isoWeekLabel, wallClockToIso, today, daysFromToday }
+  /** A step's planned start; outside work waiting for the workshop to open reads "…, at opening" (formatPlannedStart). */
+  const plannedStart = (iso: string | null | undefined, outside: boolean) => formatPlannedStart(iso, tz.value, outside)
+
+  return { tz, formatDateTime, plannedStart, formatDay, isoWeekLabel, wallClockToIso, today, daysFromToday }
 }

@@ -175,6 +175,32 @@ describe('engine constraints', () => {
     })
   })
 
+  it('when casting ready on Saturday waits for the workshop days counted whole, then its reason says the day it goes out, not 00:00', () => {
+    // Hand-worked: the server counts the workshop's days whole for outside work (00:00–24:00, Mon–Fri). Ready at Saturday
+    // 10:00 (the builders' origin Mon 3 Mar 2025, so Sat 8 Mar), the casting leaves on Monday 10 Mar, at that day's first minute —
+    // which is when the workshop opens, not midnight — and Monday and Tuesday are its two days away, back by Tuesday's end.
+    const wholeDays = [0, 1, 2, 3, 4, 7, 8, 9, 10, 11].map((d) => ({ start: at(d, 0), end: at(d + 1, 0) }))
+    const open = weekdays({ days: 12 })
+    const problem = makeProblem({
+      now: at(5, 10),
+      horizon: at(13, 0),
+      workshopDays: wholeDays,
+      benches: [makeBench({ id: 'b1', available: open })],
+      people: [makePerson({ id: 'p1', available: open })],
+      jobs: [makeJob({ id: 'j', release: at(5, 10) })],
+      operations: [
+        makeOperation({ id: 'cast', jobId: 'j', outsideWorkingDays: 2 }),
+        makeOperation({ id: 'clean', jobId: 'j', predecessors: ['cast'], on: ['b1', 'p1', 30] }),
+      ],
+    })
+    const cast = placed(plan(problem), 'cast')
+    expect(cast).toMatchObject({ start: at(7, 0), end: at(9, 0) })
+    expect(cast.reason).toEqual({
+      kind: 'working-time',
+      detail: 'goes out when the workshop next opens, on Mon 10 Mar; out for 2 working days, back by the end of Tue 11 Mar',
+    })
+  })
+
   it('when a job is released on Tuesday morning, then none of its work starts earlier', () => {
     const problem = makeProblem({
       jobs: [makeJob({ id: 'j', release: at(1, 9) })],

@@ -317,6 +317,26 @@ describe('start reasons of outside work', () => {
     )
   })
 
+  it('when the casting is planned on a Saturday, then it goes out at opening time on Monday, never at midnight', () => {
+    // By hand: planned Sat 8 Mar 10:00, the casting waits for the workshop's next day, Mon 10 Mar; whole days for outside work
+    // put its start at that day's first minute, 00:00, which is when the workshop opens that day, not a time anyone sends it.
+    // Five working days Mon 10 – Fri 14 Mar, back by the end of Friday (Sat 15 Mar 00:00).
+    const monday = [{ operationId: 'cast', benchId: null, personId: null, start: at(7, 0), end: at(12, 0) }]
+    const why = explainStarts(casting(at(5, 10)), monday).get('cast')!
+    expect(why.kind).toBe('now')
+    expect(why.detail).toBe(
+      'goes out as soon as planning allows (opening time on Mon 10 Mar); ready since Fri 7 Mar 15:00, when Carve wax finished; out for 5 working days, back by the end of Fri 14 Mar',
+    )
+    expect(why.detail).not.toContain('00:00')
+  })
+
+  it('when the casting is pinned to go out on Monday, then its reason names the day and opening time, not 00:00', () => {
+    const pinned = casting(at(5, 10))
+    pinned.operations[1]!.fixed = { benchId: null, personId: null, start: at(7, 0) }
+    const why = explainStarts(pinned, [{ operationId: 'cast', benchId: null, personId: null, start: at(7, 0), end: at(12, 0) }]).get('cast')!
+    expect(why.detail).toBe('pinned to go out at opening time on Mon 10 Mar; out for 5 working days, back by the end of Fri 14 Mar')
+  })
+
   it('when the plan is read at the moment it was made, then the casting also says how many working days it is out', () => {
     const why = explainStarts(casting(at(4, 22, 21)), plan).get('cast')!
     expect(why.kind).toBe('now')

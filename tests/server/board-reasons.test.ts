@@ -89,6 +89,8 @@ describe('start reasons on the demo board', () => {
     expect(outside.length).toBeGreaterThan(0)
     for (const i of outside) {
       expect(i.reason!.detail, `${i.jobBagNumber} ${i.name}`).not.toContain('outside working time')
+      // Outside work that waits for the workshop to open goes out at opening time: no reason says it leaves at midnight.
+      expect(i.reason!.detail, `${i.jobBagNumber} ${i.name}`).not.toMatch(/\b00:00\b/)
       expect(i.reason!.detail, `${i.jobBagNumber} ${i.name}`).toMatch(new RegExp(`out for ${Math.max(1, leadDays.get(i.id)!)} working days?`))
       // The details panel's estimate reads the working days away from the bar (the step's own record, not 0 minutes).
       if (leadDays.get(i.id)! > 0) expect(i.outsideDays, `${i.jobBagNumber} ${i.name}`).toBe(leadDays.get(i.id))

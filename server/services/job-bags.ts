@@ -59,7 +59,7 @@ export async function listJobBags(db: Db, workshopId: number, q: { orderId?: num
 
 export async function getJobBag(db: Tx, workshopId: number, id: number): Promise<JobBagDetail> {
   const [row] = await db
-    .select({ b: jobBags, o: orders, customerReference: customers.reference })
+    .select({ b: jobBags, o: orders, customerReference: customers.reference, customerName: customers.name })
     .from(jobBags)
     .innerJoin(orders, eq(orders.id, jobBags.orderId))
     .innerJoin(customers, eq(customers.id, orders.customerId))
@@ -159,6 +159,7 @@ export async function getJobBag(db: Tx, workshopId: number, id: number): Promise
       priority: o.priority,
       status: o.status,
       customerReference: row.customerReference,
+      customerName: row.customerName,
     },
     operations: operationsOut,
     timeRecords: records,

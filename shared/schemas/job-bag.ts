@@ -142,6 +142,8 @@ export const jobBagDetail = z.object({
     priority: wireInt,
     status: z.string(),
     customerReference: z.string(),
+    /** The customer's name, as the office knows them (no contact data). */
+    customerName: z.string(),
   }),
   operations: z.array(jobBagOperation),
   timeRecords: z.array(effectiveTimeRecord),

@@ -24,6 +24,15 @@ describe('job bag page', () => {
       .poll(() => page.locator('[data-test=next-step-outside]').innerText(), { timeout: 15_000 })
       .toMatch(/is outside work .*nothing to take at a bench/s)
     await expect(page.locator('[data-test=claim]').count()).resolves.toBe(0)
+    // The header names the order's customer as the office knows them, the code beside it.
+    const [customer] = await e2e.db.db
+      .select({ name: s.customers.name, reference: s.customers.reference })
+      .from(s.jobBags)
+      .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
+      .where(eq(s.jobBags.id, hm.jobBagId))
+    await expect(page.locator('[data-test=bag-customer]').innerText()).resolves.toBe(customer!.name)
+    await expect(page.locator('.mg-page-head p').first().innerText()).resolves.toContain(`customer ${customer!.name} (${customer!.reference})`)
     await page.locator(`[data-test=send-out-${hm.id}]`).click()
     await page.locator(`[data-test=book-back-${hm.id}]`).waitFor()
     await expect.poll(() => page.locator('[data-test=next-step-outside]').innerText(), { timeout: 15_000 }).toMatch(/the bag is away/)

@@ -81,13 +81,22 @@ describe('the transition table', () => {
 })
 
 describe('reading a job bag', () => {
-  it('when the manager, sales or a bench user opens it, then the routing comes with planned and actual minutes, the order’s customer reference and no contact data', async () => {
+  it('when the manager, sales or a bench user opens it, then the routing comes with planned and actual minutes, the customer’s name and reference and no contact data', async () => {
     const r = await manager.get(`/api/job-bags/${bagId}`)
     expect(r.status).toBe(200)
     expect(r.body.operations.map((o: Op) => o.key)).toEqual(['cut', 'solder', 'file', 'polish'])
     expect(op(r.body, 'cut')).toMatchObject({ status: 'ready', actualMinutes: 0, waitingFor: [] })
     expect(op(r.body, 'solder')).toMatchObject({ status: 'pending', waitingFor: ['cut'], cautions: expect.arrayContaining([expect.stringMatching(/^Torch/)]) })
     expect(r.body.order.customerReference).toMatch(/^C-\d{4}$/)
+    // The customer as the office knows them: the name on the customer's row, the code beside it.
+    const [customer] = await t.db
+      .select({ name: s.customers.name, reference: s.customers.reference })
+      .from(s.jobBags)
+      .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+      .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
+      .where(eq(s.jobBags.id, bagId))
+    expect(r.body.order).toMatchObject({ customerName: customer!.name, customerReference: customer!.reference })
+    expect(r.body.order.customerName).not.toMatch(/^C-\d{4}$/)
     expect(JSON.stringify(r.body)).not.toMatch(/@example\.com|01632/)
     expect(r.body.nextOperationId).toBe(op(r.body, 'cut').id)
     expect((await sales.get(`/api/job-bags/${bagId}`)).status).toBe(200)

@@ -41,3 +41,14 @@ export const workLabel = (status: string) => status.replace('-', ' ')
 export const METAL_LABELS: Record<(typeof METALS)[number], string> = METAL_NAMES
 
 export const PRIORITY_LABELS: Record<number, string> = { 1: '1 · when there is time', 2: '2 · low', 3: '3 · usual', 4: '4 · high', 5: '5 · urgent' }
+
+/**
+ * Where a step stands in its piece's routing, by the names people know the steps by: "after Clean up and size", "after Saw
+ * and Solder", or "first". `after` (the step's) holds routing keys; each is named by the step of the same job bag with that key (a key
+ * with no such step is shown as it is).
+ */
+export function stepOrderLabel(after: string[], steps: { key: string; name: string }[]): string {
+  if (!after.length) return 'first'
+  const names = after.map((k) => steps.find((s) => s.key === k)?.name ?? k)
+  return `after ${names.length > 1 ? `${names.slice(0, -1).join(', ')} and ${names[names.length - 1]}` : names[0]}`
+}

@@ -52,6 +52,11 @@ export const useBoardStore = defineStore('board', () => {
   const livePlan = computed(() => versions.value.find((v) => v.status === 'published') ?? null)
   /** The newest draft still waiting for a decision. */
   const pendingDraft = computed(() => versions.value.find((v) => v.status === 'draft') ?? null)
+  /**
+   * The plan compared with the live plan: the draft shown on the board, else the draft waiting for a decision — its banner says
+   * what it would move and buy whether or not it is shown (after a reload too).
+   */
+  const comparedPlanId = computed(() => viewPlanId.value ?? pendingDraft.value?.id ?? null)
   const viewedPlan = computed(() => (viewPlanId.value ? (versions.value.find((v) => v.id === viewPlanId.value) ?? null) : null))
   const itemsById = computed(() => new Map((data.value?.items ?? []).map((i) => [i.id, i])))
   const jobStates = computed(() => new Map<number, JobState>((data.value?.jobs ?? []).map((j) => [j.jobBagId, j.state])))
@@ -106,13 +111,16 @@ export const useBoardStore = defineStore('board', () => {
     }
   }
 
-  async function loadVersions() {
+  /** The plan list; with `compare` (the default), the comparison of a draft newly waiting for a decision too. */
+  async function loadVersions(compare = true) {
     versions.value = await plansApi.listPlans()
     // Stop showing a draft that is no longer one.
     if (viewPlanId.value && !versions.value.some((v) => v.id === viewPlanId.value && v.status === 'draft')) {
       viewPlanId.value = null
       comparison.value = null
     }
+    const id = comparedPlanId.value
+    if (compare && id && comparison.value?.planId !== id) await loadComparison(id).catch(() => undefined)
   }
 
   async function loadWeekLoad() {
@@ -128,13 +136,13 @@ export const useBoardStore = defineStore('board', () => {
 
   /** Everything the board shows, e.g. after a change event. */
   async function refresh() {
-    const tasks: Promise<unknown>[] = [
-      loadVersions()
-        .catch(() => undefined)
-        .then(() => loadBoard()),
-    ]
+    const versionsRead = loadVersions(false).catch(() => undefined)
+    const tasks: Promise<unknown>[] = [versionsRead.then(() => loadBoard())]
     if (tab.value === 'load') tasks.push(loadWeekLoad().catch(() => undefined))
+    // The draft shown, else the draft waiting for a decision (known once the list is read): compared again, the live plan may
+    // have changed.
     if (viewPlanId.value) tasks.push(loadComparison(viewPlanId.value).catch(() => undefined))
+    else tasks.push(versionsRead.then(() => (comparedPlanId.value ? loadComparison(comparedPlanId.value) : undefined)).catch(() => undefined))
     await Promise.all(tasks)
   }
 
@@ -150,9 +158,10 @@ export const useBoardStore = defineStore('board', () => {
   /** The version of a bar (operation) the board holds, if it shows it: an event at or below it is already here. */
   const knownVersion = (operationId: number): number | undefined => itemsById.value.get(operationId)?.version
 
+  /** A plan against the live plan (or `against`); kept for the board only when it is the plan compared there (comparedPlanId). */
   async function loadComparison(planId: number, against?: number) {
     const c = await plansApi.comparePlan(planId, against)
-    if (!against) comparison.value = c
+    if (!against && planId === comparedPlanId.value) comparison.value = c
     return c
   }
 
@@ -181,10 +190,12 @@ export const useBoardStore = defineStore('board', () => {
   /** Shows a draft on the board (read-only) with what it would move highlighted; null goes back to the live plan. */
   async function showPlan(planId: number | null) {
     viewPlanId.value = planId
-    comparison.value = null
+    // Back to the live plan, the waiting draft's comparison stays for its banner.
+    const compared = comparedPlanId.value
+    if (comparison.value?.planId !== compared) comparison.value = null
     await Promise.all([
       loadBoard(),
-      planId ? loadComparison(planId).catch(() => undefined) : Promise.resolve(),
+      compared ? loadComparison(compared).catch(() => undefined) : Promise.resolve(),
       tab.value === 'load' ? loadWeekLoad().catch(() => undefined) : Promise.resolve(),
     ])
   }
@@ -219,8 +230,10 @@ export const useBoardStore = defineStore('board', () => {
   /** A draft was saved (ours or another manager's): list it; our own run's draft is shown with its moves. */
   async function onDrafted(planId: number, runId?: string) {
     const ours = runs.onDrafted(planId, runId)
-    await loadVersions().catch(() => undefined)
-    if (ours && viewPlanId.value !== planId) await showPlan(planId)
+    const willShow = ours && viewPlanId.value !== planId
+    // Another manager's draft (or ours already shown) is compared with the list; ours is compared when shown.
+    await loadVersions(!willShow).catch(() => undefined)
+    if (willShow) await showPlan(planId)
   }
   runs.setAfterDrafted(onDrafted)
 

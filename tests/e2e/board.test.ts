@@ -192,6 +192,11 @@ describe('the planning board', () => {
     await rendered(manager)
     await expect(manager.locator('.vis-item.board-bar--moved').count()).resolves.toBeGreaterThan(0)
     await screenshot(manager, 'board-03-draft')
+    // Reloaded, the board shows the live plan again and the banner still says what the draft moves, without "Show on the board".
+    await manager.reload()
+    await banner.locator('[data-test=draft-moves]').waitFor({ timeout: 20_000 })
+    await expect(banner.locator('[data-test=draft-moves]').textContent()).resolves.toMatch(/\d+ bars? changes?: \d+ newly planned/)
+    await expect(banner.locator('[data-test=draft-show]').isVisible()).resolves.toBe(true)
 
     await banner.locator('[data-test=draft-publish]').click()
     // Publishing asks first and says what moves.

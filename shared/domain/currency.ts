@@ -54,7 +54,7 @@ export function parseAmount(text: string, currency: string): ParsedAmount {
   const digits = currencyExponent(currency)
   let s = text.trim().replace(/[\s\u00a0\u202f']/g, '')
   if (s === '') return { ok: false, reason: 'is required' }
-  if (s.startsWith('-')) return { ok: false, reason: 'must not be negative' }
+  if (s.startsWith('-')) return { ok: false, reason: 'must be 0 or more' }
   if (s.startsWith('+')) s = s.slice(1)
   // Thousands separated by commas with a point for decimals: drop the commas. A lone comma followed by 1–3 digits at the end: a decimal comma.
   if (/^\d{1,3}(,\d{3})+(\.\d*)?$/.test(s)) s = s.replace(/,/g, '')

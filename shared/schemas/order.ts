@@ -29,9 +29,9 @@ export const ringSizeInput = z
 export type RingSizeValue = z.infer<typeof ringSizeInput>
 /** An amount in integer minor units of the workshop's currency (pence, cents, yen, fils). */
 export const minorAmount = z
-  .number({ error: 'must be an amount in minor units' })
+  .number({ error: 'must be an amount' })
   .int('must be whole minor units')
-  .min(0, 'must not be negative')
+  .min(0, 'must be 0 or more')
   .max(10_000_000_000, 'is too large')
 export const pieceParams = z.object({
   metal: z.enum(METALS, { error: 'must be one of the listed metals' }).default('silver-925'),

@@ -4,9 +4,9 @@ import { isoDate, isoDateTime, wireInt } from './common'
 
 /** An amount in minor units (pence, cents): a whole number, never negative. */
 export const minorAmount = z
-  .number({ error: 'must be a whole number of minor units (e.g. pence)' })
+  .number({ error: 'must be an amount' })
   .int('must be a whole number of minor units (e.g. pence)')
-  .min(0, 'must not be negative')
+  .min(0, 'must be 0 or more')
   .max(1_000_000_000, 'is too large')
 
 export const paymentLinkInput = z.object({

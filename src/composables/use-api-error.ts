@@ -22,6 +22,16 @@ export function messageOf(err: unknown): string {
   return 'Something went wrong.'
 }
 
+/** The value at a zod issue's path inside the checked input (undefined when the path leads nowhere). */
+function valueAt(value: unknown, path: readonly PropertyKey[]): unknown {
+  let v = value
+  for (const k of path) {
+    if (v === null || typeof v !== 'object') return undefined
+    v = (v as Record<PropertyKey, unknown>)[k]
+  }
+  return v
+}
+
 /** Leaf values by path ("pieces.0.params.metal" → "gold-9ct"), to see which fields an edit touched. */
 export function flatten(value: unknown, prefix = '', out: Record<string, unknown> = {}): Record<string, unknown> {
   if (value !== null && typeof value === 'object') {
@@ -70,14 +80,20 @@ export function useApiError(o: { model?: () => unknown } = {}) {
     ElMessage({ type: 'error', message: messageOf(err), grouping: true, showClose: true, duration: 6000 })
   }
 
-  /** Client-side check with the shared schema before sending: the parsed value, or null with reasons shown. */
+  /**
+   * Client-side check with the shared schema before sending: the parsed value, or null with reasons shown. A field that hands
+   * on NaN could not read its text and already says why under itself (MoneyMinorField: "Must be 0 or more"), so the schema's
+   * reason for it is not shown a second time.
+   */
   function check<S extends ZodType>(schema: S, value: unknown): z.output<S> | null {
     const r = schema.safeParse(value)
     if (r.success) {
       clear()
       return r.data as z.output<S>
     }
-    setFields(zodFieldErrors(r.error))
+    const reasons = zodFieldErrors(r.error)
+    for (const issue of r.error.issues) if (Number.isNaN(valueAt(value, issue.path))) delete reasons[issue.path.map(String).join('.')]
+    setFields(reasons)
     ElMessage({ type: 'warning', message: 'Please correct the marked fields.', grouping: true })
     return null
   }

@@ -29,7 +29,7 @@ describe('MoneyMinorField', () => {
     const w = field({})
     await w.find('input').setValue('12.345')
     expect(Number.isNaN(last(w))).toBe(true)
-    expect(w.find('.mmf__problem').text()).toBe('has at most 2 decimals in GBP')
+    expect(w.find('.mmf__problem').text()).toBe('Has at most 2 decimals in GBP')
   })
 
   it('when a stored amount is shown, then it is written with the currency decimals', () => {

@@ -19,7 +19,10 @@ describe('money typed on screen', () => {
     await page.locator('.el-select-dropdown__item:visible', { hasText: 'Signet ring' }).first().click()
     // A price with more decimals than pounds have is refused at the field.
     await input(dialog, 'order-price').fill('12.345')
-    await expect.poll(() => dialog.locator('[data-test=order-price-problem]').innerText()).toBe('has at most 2 decimals in GBP')
+    await expect.poll(() => dialog.locator('[data-test=order-price-problem]').innerText()).toBe('Has at most 2 decimals in GBP')
+    // A negative price: one plain reason.
+    await input(dialog, 'order-price').fill('-50')
+    await expect.poll(() => dialog.locator('[data-test=order-price-problem]').innerText()).toBe('Must be 0 or more')
     // 1250.50 read as digits: 1250 × 100 + 50 = 125,050 pence (1250.5 × 100 in floating point happens to be exact, 19.99 × 100 is not).
     const answered = page.waitForResponse(
       (r) => r.url().endsWith('/api/costing/estimate') && (r.request().postDataJSON() as { priceQuotedMinor: number }).priceQuotedMinor === 125_050,

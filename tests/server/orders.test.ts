@@ -208,7 +208,11 @@ describe('taking an order', () => {
     expectFieldError(await sales.post('/api/orders', { customerId, dueDate: '2031-01-01' }), 'title', /required/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-02-30' }), 'dueDate', /real date/)
     expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priority: 9 }), 'priority', /1 to 5/)
-    expectFieldError(await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuotedMinor: -1 }), 'priceQuotedMinor', /negative/)
+    expectFieldError(
+      await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuotedMinor: -1 }),
+      'priceQuotedMinor',
+      /must be 0 or more/,
+    )
     // Minor units are whole: 18.5 pence is refused rather than rounded.
     expectFieldError(
       await sales.post('/api/orders', { customerId, title: 'x', dueDate: '2031-01-01', priceQuotedMinor: 18.5 }),

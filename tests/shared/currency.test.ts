@@ -27,7 +27,7 @@ describe('reading a typed amount', () => {
   })
   it('when the text is not an amount or has more decimals than the currency, then it is refused with the reason', () => {
     expect(parseAmount('', 'GBP')).toEqual({ ok: false, reason: 'is required' })
-    expect(parseAmount('-5', 'GBP')).toEqual({ ok: false, reason: 'must not be negative' })
+    expect(parseAmount('-5', 'GBP')).toEqual({ ok: false, reason: 'must be 0 or more' })
     expect(parseAmount('12.345', 'GBP')).toEqual({ ok: false, reason: 'has at most 2 decimals in GBP' })
     expect(parseAmount('1500.5', 'JPY')).toEqual({ ok: false, reason: 'has no decimals in JPY' })
     expect(parseAmount('12a', 'GBP').ok).toBe(false)

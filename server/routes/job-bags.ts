@@ -47,7 +47,7 @@ export const jobBagRoutes = [
     summary: 'One job bag: routing with planned vs actual minutes, time records, history',
     params: idParam,
     response: jobBagDetail,
-    handler: ({ deps, actor, params }) => jobBags.getJobBag(deps.db, actor.workshopId, params.id),
+    handler: ({ deps, actor, params }) => jobBags.getJobBag(deps.db, actor.workshopId, params.id, { customerName: actor.role !== 'bench' }),
   }),
   route({
     method: 'get',

@@ -57,7 +57,8 @@ export async function listJobBags(db: Db, workshopId: number, q: { orderId?: num
   return rows
 }
 
-export async function getJobBag(db: Tx, workshopId: number, id: number): Promise<JobBagDetail> {
+/** One job bag; the customer's name only when asked for (the bench knows a piece by the customer's code, as its ticket does). */
+export async function getJobBag(db: Tx, workshopId: number, id: number, opts: { customerName?: boolean } = {}): Promise<JobBagDetail> {
   const [row] = await db
     .select({ b: jobBags, o: orders, customerReference: customers.reference, customerName: customers.name })
     .from(jobBags)
@@ -159,7 +160,7 @@ export async function getJobBag(db: Tx, workshopId: number, id: number): Promise
       priority: o.priority,
       status: o.status,
       customerReference: row.customerReference,
-      customerName: row.customerName,
+      customerName: opts.customerName ? row.customerName : null,
     },
     operations: operationsOut,
     timeRecords: records,

@@ -142,8 +142,8 @@ export const jobBagDetail = z.object({
     priority: wireInt,
     status: z.string(),
     customerReference: z.string(),
-    /** The customer's name, as the office knows them (no contact data). */
-    customerName: z.string(),
+    /** The customer's name, as the office knows them (no contact data); null for bench users, who know a piece by the code, as its ticket does. */
+    customerName: z.string().nullable(),
   }),
   operations: z.array(jobBagOperation),
   timeRecords: z.array(effectiveTimeRecord),

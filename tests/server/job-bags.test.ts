@@ -100,7 +100,10 @@ describe('reading a job bag', () => {
     expect(JSON.stringify(r.body)).not.toMatch(/@example\.com|01632/)
     expect(r.body.nextOperationId).toBe(op(r.body, 'cut').id)
     expect((await sales.get(`/api/job-bags/${bagId}`)).status).toBe(200)
-    expect((await setter.get(`/api/job-bags/${bagId}`)).status).toBe(200)
+    // The bench knows a piece by the customer's code, as its ticket prints it: no name for a bench user.
+    const atBench = await setter.get(`/api/job-bags/${bagId}`)
+    expect(atBench.status).toBe(200)
+    expect(atBench.body.order).toMatchObject({ customerName: null, customerReference: customer!.reference })
     expectCleanError(await manager.get('/api/job-bags/999999'), 404)
     const list = await sales.get(`/api/job-bags?orderId=${r.body.order.id}`)
     expect(list.body.map((b: { id: number }) => b.id)).toContain(bagId)

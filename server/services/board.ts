@@ -48,7 +48,15 @@ export interface BoardItem {
   reason: StartReason | null
   /** The live plan's step no longer fits the calendar: the rule book's finding(s), naming the closure, leave or downtime. */
   broken?: string
+  /** The bar ends after its job bag's due date. */
   late: boolean
+  /** Its job bag finishes after the due date (every bar of the bag, not only those past it). */
+  lateJob: boolean
+  /**
+   * Where planned bench work is really worked when it pauses: its span clipped to its bench's and person's joint working time
+   * (two or more pieces; absent for work done in one stretch, running, finished or outside work).
+   */
+  segments?: { start: string; end: string }[]
   /** The plan's times for the step (a finished step keeps the plan it had). */
   planned: BoardPlanned | null
   /** What happened, from the time records; null for work not started. */
@@ -129,6 +137,18 @@ function windowsFor(data: PlanningData, benchId: string | null, personId: string
   const b = benchId ? data.problem.benches.find((x) => x.id === benchId)?.available : null
   const p = personId ? data.problem.people.find((x) => x.id === personId)?.available : null
   return b && p ? intersect(b, p) : (b ?? p ?? null)
+}
+
+/**
+ * The worked pieces of planned bench work: its span clipped to its bench's and person's joint working time (as the engine walks
+ * it and the rule book checks double booking); undefined when the work runs in one stretch or its calendar is unknown.
+ */
+function workedPieces(data: PlanningData, a: Shown): { start: string; end: string }[] | undefined {
+  const w = windowsFor(data, a.benchId, a.personId)
+  if (!w) return undefined
+  const c = data.clock
+  const pieces = clipToWindows(w, c.toMinute(a.start), c.toMinute(a.end))
+  return pieces.length > 1 ? pieces.map((p) => ({ start: c.toDate(p.start).toISOString(), end: c.toDate(p.end).toISOString() })) : undefined
 }
 
 export async function boardData(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
@@ -254,6 +274,8 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     // The planned person's speed for this kind of work: why the bar is shorter or longer than the estimate.
     const outsideWork = m.kind.outside || m.op.leadDays > 0
     const speed = personId !== null && !outsideWork ? data.meta.skills.find((k) => k.personId === personId && k.kindId === m.op.kindId)?.speed : undefined
+    // Planned bench work that pauses (a part-timer's afternoon, a night): the stretches it is really worked.
+    const segments = a && !running && !outsideWork ? workedPieces(data, a) : undefined
     items.push({
       id: m.op.id,
       jobBagId: m.bag.id,
@@ -282,6 +304,8 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       reason: a?.reason ?? (running ? runningReason(data, id, null) : null),
       ...(broken.has(id) ? { broken: broken.get(id) } : {}),
       late: new Date(finishes[id]?.end ?? a?.end ?? end).getTime() > due,
+      lateJob: false,
+      ...(segments ? { segments } : {}),
       planned: a ? { start: iso(a.start), end: iso(a.end) } : null,
       actual,
     })
@@ -303,6 +327,8 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     })
   }
   items.push(...(await finishedItems(db, workshopId, winStart, winEnd, now, customers)))
+  // Every bar of a job bag that finishes late says so, not only the bars that end after its due date.
+  for (const i of items) i.lateJob = jobs.get(i.jobBagId)?.state === 'late'
   // Bench rows know what they can host and people rows what they are skilled for (moving a bar up or down a row by keyboard).
   const kindCode = (kindId: number) => data.meta.kinds.get(kindId)?.code ?? ''
   const toIso = (m: number) => c.toDate(m).toISOString()
@@ -428,6 +454,7 @@ async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd:
       requiredLevel: op.requiredLevel,
       reason: null,
       late: false,
+      lateJob: false,
       planned: op.plannedStart && op.plannedEnd ? { start: new Date(op.plannedStart).toISOString(), end: new Date(op.plannedEnd).toISOString() } : null,
       actual,
     })

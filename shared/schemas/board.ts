@@ -59,7 +59,18 @@ export const boardItem = z.object({
   reason: boardReason.nullable(),
   /** The live plan's step no longer fits the calendar (a closure, leave or downtime added since): the rule book's finding. */
   broken: z.string().optional(),
+  /** The bar ends after its job bag's due date (or promised date). */
   late: z.boolean(),
+  /** Its job bag finishes after the due date: true on every bar of that bag, finished ones included. */
+  lateJob: z.boolean(),
+  /**
+   * Planned bench work that pauses (the bench's or person's working time ends before it is done): the stretches it is really
+   * worked, in order, from its bench's and person's joint working time. Absent when it is worked in one stretch.
+   */
+  segments: z
+    .array(z.object({ start: isoDateTime, end: isoDateTime }))
+    .min(2)
+    .optional(),
   planned: boardPlanned.nullable(),
   actual: boardActual.nullable(),
 })

@@ -33,6 +33,7 @@ const base: BoardItem = {
   requiredLevel: 1,
   reason: null,
   late: false,
+  lateJob: false,
   planned: null,
   actual: null,
 }

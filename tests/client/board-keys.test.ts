@@ -28,6 +28,7 @@ const item = (o: Partial<BoardItem> = {}): BoardItem => ({
   requiredLevel: 2,
   reason: null,
   late: false,
+  lateJob: false,
   planned: null,
   actual: null,
   ...o,

@@ -50,6 +50,7 @@ const makeItem = (o: Partial<BoardItem> = {}): BoardItem => ({
   requiredLevel: 1,
   reason: null,
   late: false,
+  lateJob: false,
   planned: null,
   actual: null,
   ...o,

@@ -35,6 +35,7 @@ const item: BoardItem = {
   requiredLevel: 1,
   reason: { kind: 'person', detail: `waiting for ${IMG}` },
   late: false,
+  lateJob: false,
   planned: null,
   actual: null,
 }

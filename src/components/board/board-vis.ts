@@ -19,7 +19,7 @@ export const STATE_COLOURS: Record<BarState, { bg: string; label: string }> = {
   claimed: { bg: '#3f7f8c', label: 'Claimed' },
   running: { bg: '#4d7a5a', label: 'Running' },
   paused: { bg: '#b58a2f', label: 'Paused' },
-  late: { bg: '#a8473a', label: 'Late' },
+  late: { bg: '#a8473a', label: 'Ends after the due date' },
   done: { bg: '#a39a8f', label: 'Finished' },
 }
 
@@ -30,6 +30,8 @@ export interface TimelineGroup {
   sub?: string
   className?: string
   order: number
+  /** Bars sit in lanes of their own (see `assignLanes`), one above the other in lane order. */
+  subgroupOrder?: 'lane'
 }
 
 export interface TimelineBar {
@@ -43,6 +45,20 @@ export interface TimelineBar {
   type: 'range'
   editable: { updateTime: boolean; updateGroup: boolean; remove: false }
   bar: BoardItem
+  /** The bar's lane within its row (vis-timeline's subgroup `lane-N`), from the stretches it is worked (`assignLanes`). */
+  subgroup?: string
+  lane?: number
+  /** Bench work that pauses: where its worked pieces lie across the bar, in per cent of the bar's drawn width. */
+  pieces?: BarPiece[]
+  /** A bar drawn as pieces keeps its label where it starts and its full width (the pieces are placed across that width). */
+  align?: 'left'
+  limitSize?: false
+}
+
+/** One worked piece of a bar, in per cent of the bar's drawn width from its left end. */
+export interface BarPiece {
+  left: number
+  width: number
 }
 
 export interface TimelineBackground {
@@ -83,11 +99,25 @@ export function groupsFor(data: Pick<BoardData, 'benches' | 'people' | 'items'>,
     rowsBy === 'bench'
       ? data.benches.map((b, i) => ({ id: `b:${b.id}`, content: b.name, sub: b.kind, order: i }))
       : data.people.map((p, i) => ({ id: `p:${p.id}`, content: p.name, order: i }))
+  for (const r of rows) r.subgroupOrder = 'lane'
   const used = new Set(data.items.map((i) => groupOf(i, rowsBy)))
   if (used.has(UNASSIGNED_GROUP))
-    rows.push({ id: UNASSIGNED_GROUP, content: rowsBy === 'bench' ? 'No bench yet' : 'No one yet', className: 'board-row--muted', order: 998 })
+    rows.push({
+      id: UNASSIGNED_GROUP,
+      content: rowsBy === 'bench' ? 'No bench yet' : 'No one yet',
+      className: 'board-row--muted',
+      order: 998,
+      subgroupOrder: 'lane',
+    })
   // Outside work (casting, hallmarking) takes days away from the workshop: its own row, always last.
-  rows.push({ id: OUTSIDE_GROUP, content: 'Outside work', sub: 'away from the workshop', className: 'board-row--outside', order: 999 })
+  rows.push({
+    id: OUTSIDE_GROUP,
+    content: 'Outside work',
+    sub: 'away from the workshop',
+    className: 'board-row--outside',
+    order: 999,
+    subgroupOrder: 'lane',
+  })
   return rows
 }
 
@@ -138,6 +168,8 @@ export interface BarOptions {
   jobStates?: Map<number, JobState>
   /** A job bag found by the search: its bars stand out, the rest dim. */
   foundJobBagId?: number | null
+  /** Stretches folded away ("working hours only"): a bar drawn as pieces places them on the folded scale. */
+  folded?: { start: Date; end: Date }[] | null
 }
 
 /** A bar may be dragged by the manager on the live plan unless it is being worked on or finished. */
@@ -149,8 +181,11 @@ export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
   const state = barState(item)
   const bg = o.colourBy === 'kind' ? item.color : o.colourBy === 'order' ? orderTone(item.orderId) : STATE_COLOURS[state].bg
   const classes = ['board-bar', `board-bar--${state}`]
-  if (item.late) classes.push('board-bar--late-job')
-  else if (o.jobStates?.get(item.jobBagId) === 'at-risk') classes.push('board-bar--at-risk')
+  // Every bar of a piece that finishes late; the bar(s) that end after the due date are marked as well.
+  if (item.lateJob || item.late) {
+    classes.push('board-bar--late-job')
+    if (item.late) classes.push('board-bar--past-due')
+  } else if (o.jobStates?.get(item.jobBagId) === 'at-risk') classes.push('board-bar--at-risk')
   if (item.broken) classes.push('board-bar--broken')
   if (item.pinned) classes.push('board-bar--pinned')
   if (item.outside) classes.push('board-bar--outside')
@@ -161,6 +196,8 @@ export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
   if (!drag) classes.push('board-bar--fixed')
   if (item.actual) classes.push('board-bar--actual')
   if (o.foundJobBagId != null) classes.push(item.jobBagId === o.foundJobBagId ? 'board-bar--found' : 'board-bar--dimmed')
+  const pieces = barPieces(item, o.folded ?? null)
+  if (pieces) classes.push('board-bar--split')
   return {
     id: item.id,
     group: groupOf(item, o.rowsBy),
@@ -168,11 +205,86 @@ export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
     end: parseInstant(item.end),
     content: `${item.jobBagNumber} ${item.name}`,
     className: classes.join(' '),
-    style: `background-color: ${bg}; color: ${inkOn(bg)};`,
+    // A bar drawn as pieces paints only its pieces (in --bar-bg); the time between them stays hollow.
+    style: pieces ? `--bar-bg: ${bg}; color: ${inkOn(bg)};` : `background-color: ${bg}; color: ${inkOn(bg)};`,
     type: 'range',
     editable: { updateTime: drag, updateGroup: drag && !item.outside, remove: false },
     bar: item,
+    ...(pieces ? { pieces, align: 'left' as const, limitSize: false as const } : {}),
   }
+}
+
+type Span = { start: number; end: number }
+
+/** Milliseconds of [a, b) the timeline shows: the folded stretches within it taken out. */
+function shownMs(a: number, b: number, folded: Span[]): number {
+  let t = b - a
+  for (const f of folded) t -= Math.max(0, Math.min(b, f.end) - Math.max(a, f.start))
+  return t
+}
+
+/**
+ * Where a bar's worked pieces lie across it, in per cent of its drawn width (folded stretches take no width); null for a bar
+ * worked in one stretch.
+ */
+export function barPieces(item: Pick<BoardItem, 'start' | 'end' | 'segments'>, folded: { start: Date; end: Date }[] | null): BarPiece[] | null {
+  if (!item.segments || item.segments.length < 2) return null
+  const s = parseInstant(item.start).getTime(),
+    e = parseInstant(item.end).getTime()
+  const folds = (folded ?? []).map((f) => ({ start: f.start.getTime(), end: f.end.getTime() }))
+  const total = shownMs(s, e, folds)
+  if (total <= 0) return null
+  const pct = (ms: number) => Math.round((ms / total) * 100_000) / 1000
+  const out: BarPiece[] = []
+  for (const p of item.segments) {
+    const a = Math.max(s, parseInstant(p.start).getTime()),
+      b = Math.min(e, parseInstant(p.end).getTime())
+    if (b > a) out.push({ left: pct(shownMs(s, a, folds)), width: pct(shownMs(a, b, folds)) })
+  }
+  return out.length > 1 ? out : null
+}
+
+/** The stretches a bar really takes its row: its worked pieces when it pauses, else start to end (milliseconds). */
+export function workedSpans(item: Pick<BoardItem, 'start' | 'end' | 'segments'>): Span[] {
+  const s = parseInstant(item.start).getTime(),
+    e = parseInstant(item.end).getTime()
+  if (!item.segments || item.segments.length < 2) return [{ start: s, end: e }]
+  return item.segments.map((p) => ({ start: Math.max(s, parseInstant(p.start).getTime()), end: Math.min(e, parseInstant(p.end).getTime()) }))
+}
+
+/**
+ * Lanes within each row, from the stretches bars are really worked (not start to end): taken in order of start, a bar goes in
+ * the first lane where none of its worked pieces meets another bar's. So a step that pauses overnight leaves its lane free
+ * for the work done in its pause, and bars that only touch share a lane. Sets each bar's `lane` and `subgroup`.
+ */
+export function assignLanes<T extends Pick<TimelineBar, 'id' | 'group' | 'bar'> & { lane?: number; subgroup?: string }>(bars: T[]): T[] {
+  const rows = new Map<string, { bar: T; spans: Span[]; start: number }[]>()
+  for (const bar of bars) {
+    const spans = workedSpans(bar.bar)
+    const list = rows.get(bar.group) ?? []
+    list.push({ bar, spans, start: spans.reduce((m, x) => Math.min(m, x.start), Infinity) })
+    rows.set(bar.group, list)
+  }
+  for (const list of rows.values()) {
+    list.sort((a, b) => a.start - b.start || a.bar.id - b.bar.id)
+    // Each lane's pieces still to be met (those ending at or before a bar's start can no longer meet a later bar).
+    const lanes: Span[][] = []
+    for (const { bar, spans, start } of list) {
+      let lane = -1
+      for (let i = 0; i < lanes.length; i++) {
+        const taken = (lanes[i] = lanes[i]!.filter((p) => p.end > start))
+        if (!taken.some((p) => spans.some((q) => q.start < p.end && p.start < q.end))) {
+          lane = i
+          break
+        }
+      }
+      if (lane < 0) lane = lanes.push([]) - 1
+      lanes[lane]!.push(...spans)
+      bar.lane = lane
+      bar.subgroup = `lane-${lane}`
+    }
+  }
+  return bars
 }
 
 /** Shading: closed hours across all rows, closures named, leave on the person's row, downtime on the bench's row. */
@@ -353,6 +465,11 @@ export function formatSpan(start: string, end: string, tz: string): string {
   return a.format('YYYY-MM-DD') === b.format('YYYY-MM-DD')
     ? `${a.format('ddd D MMM HH:mm')}–${b.format('HH:mm')}`
     : `${a.format('ddd D MMM HH:mm')} – ${b.format('ddd D MMM HH:mm')}`
+}
+
+/** A paused step's worked stretches: "Mon 7 Dec 12:08–12:30, Tue 8 Dec 08:30–09:42"; null for work in one stretch. */
+export function workedStretches(item: Pick<BoardItem, 'segments'>, tz: string): string | null {
+  return item.segments && item.segments.length > 1 ? item.segments.map((p) => formatSpan(p.start, p.end, tz)).join(', ') : null
 }
 
 /** Whole minutes as "3 h 10 min" (rounded to the minute). */

@@ -163,7 +163,9 @@ export function calendarFindings(data: PlanningData, assignments: Assignments): 
   const benches = new Map(data.problem.benches.map((b) => [b.id, b]))
   const people = new Map(data.problem.people.map((p) => [p.id, p]))
   const found: RuleViolation[] = []
-  for (const a of assignments.values()) {
+  // In the order of the bars (start, then step), so the findings read the same however the plan's rows came back.
+  const bars = [...assignments.values()].sort((x, y) => Date.parse(x.start) - Date.parse(y.start) || x.operationId - y.operationId)
+  for (const a of bars) {
     const m = data.meta.operations.get(String(a.operationId))
     if (!m || !['pending', 'ready', 'claimed', 'paused'].includes(m.op.status)) continue
     const start = c.toMinute(a.start),

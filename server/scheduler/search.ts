@@ -750,10 +750,17 @@ export function solveGeneral(
     let curKey = startKey(best!),
       curChoice = startChoice(best!)
     let cur = decode(c, curKey, curChoice)
-    if (compareDecoded(cur, best!, obj) > 0) {
+    const vsBest = compareDecoded(cur, best!, obj)
+    if (vsBest > 0) {
       curKey = bestKey
       curChoice = bestChoice
       cur = best!
+    } else if (vsBest < 0) {
+      // Decoded again in order of its starts, the best plan can pack tighter (a step meets fewer steps placed before it).
+      best = cur
+      bestKey = curKey
+      bestChoice = curChoice
+      report('decoder')
     }
     // Said every half second like the other stages, better plan or not, so the planner's dialog never goes quiet.
     let lastBeat = clock()

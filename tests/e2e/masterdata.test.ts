@@ -163,6 +163,8 @@ describe('master-data screens as the owner', () => {
     await dialog.locator('.el-form-item__error').first().waitFor()
     expect(await dialog.locator('.el-form-item__error').allTextContents()).toEqual(expect.arrayContaining([expect.stringMatching(/is required|must be/i)]))
     await dialog.locator('[data-test=order-customer]').click()
+    // The picker asks for its list as it opens: on a busy machine the first item shown can be replaced as the answer comes in.
+    await page.waitForLoadState('networkidle')
     await page.locator('.el-select-dropdown__item:visible').first().click()
     await dialog.locator('input[data-test=order-title]').fill('Bezel ring for an anniversary')
     const due = dialog.locator('.el-form-item', { hasText: 'Due (the customer' }).locator('input')

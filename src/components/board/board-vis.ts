@@ -467,6 +467,38 @@ export function formatSpan(start: string, end: string, tz: string): string {
     : `${a.format('ddd D MMM HH:mm')} – ${b.format('ddd D MMM HH:mm')}`
 }
 
+/*
+ * Outside work (casting, hallmarking) is counted in whole workshop days, 00:00 to 00:00 (outsideWorkEnd in
+ * server/scheduler/calendar.ts): it leaves when ready, or at a day's first minute when it waited for the workshop to open, and
+ * comes back at the close of its last day, which is the next midnight. Neither midnight is a time anyone works, so they are
+ * worded as the day's opening and the day's end, never 00:00 (as formatPlannedStart and the server's reasons word them).
+ */
+const isMidnight = (at: string, tz: string) => dayjs(parseInstant(at)).tz(tz).format('HH:mm') === '00:00'
+const dayOf = (at: string | number | Date, tz: string) =>
+  dayjs(typeof at === 'string' ? parseInstant(at) : at)
+    .tz(tz)
+    .format('ddd D MMM')
+
+/** When outside work goes out: "Tue 3 Mar 14:35" (the moment it was ready), or "at opening on Tue 3 Mar"; with `since`, "since …". */
+function outWhen(at: string, tz: string, since = false): string {
+  if (isMidnight(at, tz)) return `${since ? 'since' : 'at'} opening on ${dayOf(at, tz)}`
+  return `${since ? 'since ' : ''}${formatWhen(at, tz)}`
+}
+
+/** When outside work is back: midnight is the end of the day before ("by the end of Thu 5 Mar" planned, "at the end of …" as booked). */
+function backWhen(at: string, tz: string, planned: boolean): string {
+  if (isMidnight(at, tz)) return `${planned ? 'by' : 'at'} the end of ${dayOf(parseInstant(at).getTime() - 60_000, tz)}`
+  return `${planned ? 'by ' : ''}${formatWhen(at, tz)}`
+}
+
+/**
+ * A bar's planned stretch: bench work as formatSpan ("Thu 3 Dec 15:48–16:02"); outside work as the day it goes out and the day
+ * it is back: "out Tue 3 Mar 14:35, back by the end of Thu 5 Mar", "out at opening on Tue 3 Mar, back by the end of Tue 3 Mar".
+ */
+export function plannedSpan(item: Pick<BoardItem, 'outside'>, start: string, end: string, tz: string): string {
+  return item.outside ? `out ${outWhen(start, tz)}, back ${backWhen(end, tz, true)}` : formatSpan(start, end, tz)
+}
+
 /** A paused step's worked stretches: "Mon 7 Dec 12:08–12:30, Tue 8 Dec 08:30–09:42"; null for work in one stretch. */
 export function workedStretches(item: Pick<BoardItem, 'segments'>, tz: string): string | null {
   return item.segments && item.segments.length > 1 ? item.segments.map((p) => formatSpan(p.start, p.end, tz)).join(', ') : null
@@ -483,16 +515,20 @@ const wholeMinutes = (min: number) => formatMinutes(Math.round(min))
 export function actualSummary(item: Pick<BoardItem, 'status' | 'actual' | 'estimateMinutes' | 'outside'>, tz: string): string | null {
   const a = item.actual
   if (!a) return null
-  if (!a.fromRecords) return a.end ? `Back ${formatWhen(a.end, tz)} · sent out ${formatWhen(a.start, tz)}` : `Sent out ${formatWhen(a.start, tz)}`
+  if (!a.fromRecords) return a.end ? `Back ${backWhen(a.end, tz, false)} · sent out ${outWhen(a.start, tz)}` : `Sent out ${outWhen(a.start, tz)}`
   const against = item.estimateMinutes > 0 ? ` against ${wholeMinutes(item.estimateMinutes)} estimated` : ''
   if (a.end) return `Finished ${formatWhen(a.end, tz)} · worked ${wholeMinutes(a.workedMinutes)}${against}`
   return `Running since ${formatWhen(a.start, tz)} · worked ${wholeMinutes(a.workedMinutes)} so far${item.estimateMinutes > 0 ? ` of ${wholeMinutes(item.estimateMinutes)} estimated` : ''}`
 }
 
-/** The actual stretch as "Wed 2 Dec 09:10–12:20", or "since Wed 2 Dec 09:10" while running. */
-export function actualSpan(item: Pick<BoardItem, 'actual'>, tz: string): string | null {
+/**
+ * The actual stretch as "Wed 2 Dec 09:10–12:20", or "since Wed 2 Dec 09:10" while running; outside work as "out Tue 3 Mar
+ * 10:12, back Thu 5 Mar 15:20", or "out since Tue 3 Mar 10:12" while it is away.
+ */
+export function actualSpan(item: Pick<BoardItem, 'actual' | 'outside'>, tz: string): string | null {
   const a = item.actual
   if (!a) return null
+  if (item.outside) return a.end ? `out ${outWhen(a.start, tz)}, back ${backWhen(a.end, tz, false)}` : `out ${outWhen(a.start, tz, true)}`
   return a.end ? formatSpan(a.start, a.end, tz) : `since ${formatWhen(a.start, tz)}`
 }
 

@@ -1,6 +1,6 @@
 // The plan versions drawer: a comparison with the live plan lists each change by job bag number and step.
-import { describe, expect, it } from 'vitest'
-import { flushPromises, mount } from '@vue/test-utils'
+import { afterEach, describe, expect, it } from 'vitest'
+import { enableAutoUnmount, flushPromises, mount } from '@vue/test-utils'
 import ElementPlus from 'element-plus'
 import BoardVersionsDrawer from '@/components/board/BoardVersionsDrawer.vue'
 import type { PlanComparison, PlanMove, PlanVersion } from '@shared/schemas/plan'
@@ -36,6 +36,9 @@ const comparison: PlanComparison = {
   gains: { earlier: 0, later: 1, lessLate: 0, moreLate: 0 },
 }
 
+// Each test's drawer is teleported to the page's body: unmounted after the test, so the next one sees only its own.
+enableAutoUnmount(afterEach)
+
 describe('BoardVersionsDrawer', () => {
   it('when a compared change is outside the board window, then it is still listed by job bag number and step, not by its id', async () => {
     mount(BoardVersionsDrawer, {
@@ -56,5 +59,46 @@ describe('BoardVersionsDrawer', () => {
     const text = document.querySelector('[data-test=plan-comparison]')?.textContent ?? ''
     expect(text).toContain('MG26-0064-1 Polish')
     expect(text).not.toMatch(/Operation 373/)
+  })
+
+  it('when a draft moves 15 bars, then 12 are listed with "and 3 more", and the toggle shows all 15 and back', async () => {
+    // Fifteen steps, each put two hours later: operations 401–415, named Step 1–15.
+    const moves = Array.from({ length: 15 }, (_, i) => ({ ...move, operationId: 401 + i, name: `Step ${i + 1}` }))
+    mount(BoardVersionsDrawer, {
+      props: {
+        open: true,
+        versions: [draft],
+        comparison: { ...comparison, moves, counts: { bench: 0, person: 0, time: 15, new: 0 } },
+        comparing: null,
+        items: new Map(),
+        benchName: new Map([[1, 'Bench 1']]),
+        personName: new Map([[2, 'Ada']]),
+        timeZone: 'Europe/London',
+      },
+      global: { plugins: [ElementPlus] },
+      attachTo: document.body,
+    })
+    await flushPromises()
+    const listed = () => [...document.querySelectorAll('[data-test=plan-comparison] li')].map((li) => li.querySelector('.version__op')?.textContent)
+    const box = () => document.querySelector('[data-test=plan-comparison]')?.textContent ?? ''
+    expect(listed()).toHaveLength(12)
+    expect(listed()[11]).toBe('MG26-0064-1 Step 12')
+    expect(box()).toContain('15 bars differ')
+    expect(box()).toContain('and 3 more')
+    const toggle = document.querySelector<HTMLButtonElement>('button[data-test=plan-compare-all]')!
+    expect(toggle, 'a button that shows the rest').not.toBeNull()
+    expect(toggle.textContent?.trim()).toBe('Show all 15')
+    expect(toggle.getAttribute('aria-expanded')).toBe('false')
+    toggle.click()
+    await flushPromises()
+    expect(listed()).toHaveLength(15)
+    expect(listed()[14]).toBe('MG26-0064-1 Step 15')
+    expect(box()).toContain('15 bars differ')
+    expect(box()).not.toContain('more')
+    expect(toggle.getAttribute('aria-expanded')).toBe('true')
+    expect(toggle.textContent?.trim()).toBe('Show the first 12 only')
+    toggle.click()
+    await flushPromises()
+    expect(listed()).toHaveLength(12)
   })
 })

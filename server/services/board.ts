@@ -6,7 +6,7 @@ import { gzipSync } from 'node:zlib'
 import { and, eq, inArray, isNotNull, sql } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
-import { dayjs, dayRange, type Interval } from '../lib/time'
+import { dayjs, dayRange, subtract, type Interval } from '../lib/time'
 import { intersect, clipToWindows, formatMinute, weekdayOf } from '../scheduler/calendar.ts'
 import type { StartReason } from '../scheduler/model.ts'
 import { explainStarts, outsideLength, type ExplainCalendar } from '../scheduler/explain.ts'
@@ -462,7 +462,10 @@ async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd:
   return out
 }
 
-/** Hours planned against hours available, per bench and per skill, per day and ISO week. */
+/**
+ * Hours planned against hours available, per bench, per skill and per person, per day and ISO week. A skill's available hours are
+ * what its holders have left once their work of other kinds is planned, so a person's day is never offered to several skills at once.
+ */
 export async function weekLoad(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
   const data = await loadPlanningData(db, workshopId, o.now ?? new Date())
   const c = data.clock
@@ -484,61 +487,81 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
   })
   const minutesIn = (list: Interval[], iv: { start: number; end: number }) => clipToWindows(list, iv.start, iv.end).reduce((t, x) => t + x.end - x.start, 0)
 
-  type Row = {
-    type: 'bench' | 'skill'
-    id: number
-    name: string
-    cells: { day: string; week: string; plannedMinutes: number; availableMinutes: number; operationIds: number[] }[]
-  }
+  type Cell = { day: string; week: string; plannedMinutes: number; availableMinutes: number; operationIds: number[] }
+  type Row = { type: 'bench' | 'skill' | 'person'; id: number; name: string; cells: Cell[] }
   const rows: Row[] = []
-  const worked = new Map<string, Interval[]>()
+  // Each planned bench step's worked pieces: its span clipped to its bench's and person's joint working time.
+  const worked = new Map<string, { pieces: Interval[]; kindId: number; benchId: string | null; personId: string | null }>()
   for (const [id, a] of Object.entries(assignments)) {
     const m = data.meta.operations.get(id)
     if (!m || m.op.status === 'done' || m.kind.outside || m.op.leadDays > 0) continue
     const w = windowsFor(data, a.benchId, a.personId)
     const s0 = c.toMinute(a.start),
       e0 = c.toMinute(a.end)
-    worked.set(id, w ? clipToWindows(w, s0, e0) : [{ start: s0, end: e0 }])
+    worked.set(id, { pieces: w ? clipToWindows(w, s0, e0) : [{ start: s0, end: e0 }], kindId: m.op.kindId, benchId: a.benchId, personId: a.personId })
   }
-  for (const b of data.problem.benches) {
-    const row: Row = { type: 'bench', id: Number(b.id), name: b.name, cells: [] }
-    for (const iv of dayIv) {
+  /** A row's cells: the planned minutes of the steps `counts` picks, against `available` minutes in each day. */
+  const cellsOf = (
+    counts: (w: { kindId: number; benchId: string | null; personId: string | null }) => boolean,
+    available: (iv: (typeof dayIv)[number]) => number,
+  ) =>
+    dayIv.map((iv): Cell => {
       let planned = 0
       const ids: number[] = []
-      for (const [id, a] of Object.entries(assignments)) {
-        if (a.benchId !== b.id || !worked.has(id)) continue
-        const m = minutesIn(worked.get(id)!, iv)
+      for (const [id, w] of worked) {
+        if (!counts(w)) continue
+        const m = minutesIn(w.pieces, iv)
         if (m > 0) {
           planned += m
           ids.push(Number(id))
         }
       }
-      row.cells.push({ day: iv.day, week: iv.week, plannedMinutes: planned, availableMinutes: minutesIn(b.available, iv), operationIds: ids })
-    }
-    rows.push(row)
-  }
+      return { day: iv.day, week: iv.week, plannedMinutes: planned, availableMinutes: available(iv), operationIds: ids }
+    })
+  for (const b of data.problem.benches)
+    rows.push({
+      type: 'bench',
+      id: Number(b.id),
+      name: b.name,
+      cells: cellsOf(
+        (w) => w.benchId === b.id,
+        (iv) => minutesIn(b.available, iv),
+      ),
+    })
+  const span = { start: dayIv[0]?.start ?? 0, end: dayIv[dayIv.length - 1]?.end ?? 0 }
   for (const k of data.meta.kinds.values()) {
     if (k.outside) continue
-    const holders = data.meta.skills.filter((x) => x.kindId === k.id).map((x) => String(x.personId))
-    const row: Row = { type: 'skill', id: k.id, name: k.name, cells: [] }
-    for (const iv of dayIv) {
-      let planned = 0
-      const ids: number[] = []
-      for (const id of Object.keys(assignments)) {
-        const m = data.meta.operations.get(id)
-        if (!m || m.op.kindId !== k.id || !worked.has(id)) continue
-        const mins = minutesIn(worked.get(id)!, iv)
-        if (mins > 0) {
-          planned += mins
-          ids.push(Number(id))
-        }
-      }
-      // Available: the working time of everyone holding the skill (a person with several skills counts in each row).
-      const available = data.problem.people.filter((p) => holders.includes(p.id)).reduce((t, p) => t + minutesIn(p.available, iv), 0)
-      row.cells.push({ day: iv.day, week: iv.week, plannedMinutes: planned, availableMinutes: available, operationIds: ids })
-    }
-    rows.push(row)
+    const holders = new Set(data.meta.skills.filter((x) => x.kindId === k.id).map((x) => String(x.personId)))
+    // Available: each holder's working time less the time they are planned on work of other kinds (what they could still give
+    // this skill), summed over the holders.
+    const free = data.problem.people
+      .filter((p) => holders.has(p.id))
+      .map((p) =>
+        subtract(
+          clipToWindows(p.available, span.start, span.end),
+          [...worked.values()].filter((w) => w.personId === p.id && w.kindId !== k.id).flatMap((w) => clipToWindows(w.pieces, span.start, span.end)),
+        ),
+      )
+    rows.push({
+      type: 'skill',
+      id: k.id,
+      name: k.name,
+      cells: cellsOf(
+        (w) => w.kindId === k.id,
+        (iv) => free.reduce((t, f) => t + minutesIn(f, iv), 0),
+      ),
+    })
   }
+  for (const p of data.problem.people)
+    rows.push({
+      type: 'person',
+      id: Number(p.id),
+      name: p.name,
+      cells: cellsOf(
+        (w) => w.personId === p.id,
+        (iv) => minutesIn(p.available, iv),
+      ),
+    })
   const weeks = [...new Set(dayIv.map((d) => d.week))].map((week) => ({ week, days: dayIv.filter((d) => d.week === week).map((d) => d.day) }))
   // Said only when some of today's working time (any bench or person) is already past: before opening, today counts in full.
   const today = dayIv.find((d) => d.start === nowMin)

@@ -172,7 +172,12 @@ export const moveResult = z.object({
 })
 
 export const loadCell = z.object({ day: isoDate, week: z.string(), plannedMinutes: z.number(), availableMinutes: z.number(), operationIds: z.array(wireInt) })
-export const loadRow = z.object({ type: z.enum(['bench', 'skill']), id: wireInt, name: z.string(), cells: z.array(loadCell) })
+/**
+ * One row of the week load. A bench's or a person's cell is their planned work against their own working time; a skill's is its
+ * planned work against what its holders have left once their work of other kinds is planned (so one person's day is not offered
+ * to each of their skills at once).
+ */
+export const loadRow = z.object({ type: z.enum(['bench', 'skill', 'person']), id: wireInt, name: z.string(), cells: z.array(loadCell) })
 export const weekLoad = z.object({
   from: isoDate,
   to: isoDate,

@@ -5,7 +5,7 @@ import type { LoadRow, WeekLoad } from '@shared/schemas/plan'
 import BoardLoadTable from '@/components/board/BoardLoadTable.vue'
 import { bottlenecks, cellLabel, heatColour, hours, loadLegend, loadLevel, loadRatio, percent, weekTotal } from '@/components/board/load-heat'
 
-const row = (type: 'bench' | 'skill', id: number, name: string, cells: [string, string, number, number, number[]][]): LoadRow => ({
+const row = (type: LoadRow['type'], id: number, name: string, cells: [string, string, number, number, number[]][]): LoadRow => ({
   type,
   id,
   name,
@@ -224,5 +224,78 @@ describe('the load table on Friday of the current week', () => {
     expect(thu.classes()).toContain('load__cell--over')
     expect(thu.classes()).not.toContain('load__cell--beyond')
     expect(thu.attributes('title')).toContain('above the planning load')
+  })
+})
+
+describe('the load table with people and skills', () => {
+  // Friday 11 Dec 2026 (W50), seen on Wednesday 9 Dec. Wren holds chasing and enamelling and is planned 9 h on an 8 h day
+  // (two chasing steps, 41 and 42); Odile holds enamelling and has her 8 h free. The server's figures for that day: chasing 540 of
+  // Wren's 480; enamelling 0 of Wren's 0 left plus Odile's 480.
+  const days = ['2026-12-07', '2026-12-08', '2026-12-09', '2026-12-10', '2026-12-11', '2026-12-12', '2026-12-13']
+  const only = (type: LoadRow['type'], id: number, name: string, planned: number, available: number, ids: number[]) =>
+    row(
+      type,
+      id,
+      name,
+      days.map((d) => [d, '2026-W50', d === '2026-12-11' ? planned : 0, d === '2026-12-11' ? available : 0, d === '2026-12-11' ? ids : []]),
+    )
+  const load: WeekLoad = {
+    from: days[0]!,
+    to: days[6]!,
+    days,
+    weeks: [{ week: '2026-W50', days }],
+    countedFrom: null,
+    rows: [
+      only('bench', 3, 'Setting bench B', 540, 480, [41, 42]),
+      only('skill', 20, 'Chasing & repoussé', 540, 480, [41, 42]),
+      only('skill', 21, 'Enamelling', 0, 480, []),
+      only('person', 7, 'Wren Ashdown', 540, 480, [41, 42]),
+      only('person', 8, 'Odile Penhale', 0, 480, []),
+    ],
+    planningLoad: 0.85,
+  }
+  const table = () =>
+    mount(BoardLoadTable, { props: { load, items: new Map(), benchName: new Map(), personName: new Map(), timeZone: 'Europe/London', today: '2026-12-09' } })
+
+  it('when people are in the load, then they have a group of their own between benches and skills, each with their own row', () => {
+    const w = table()
+    expect(w.findAll('.load__section-title').map((t) => t.text())).toEqual(['Benches', 'People', 'Skills'])
+    expect(w.get('[data-test=load-row-person-7]').text()).toContain('Wren Ashdown')
+    expect(w.get('[data-test=load-row-person-8]').text()).toContain('Odile Penhale')
+    expect(w.get('thead .load__name-col').text()).toBe('Bench, person or skill')
+  })
+
+  it('when someone is planned 9 h of their 8 h, then their cell is red with the flag, says so, and they are named among the tightest', () => {
+    const w = table()
+    const cell = w.get('[data-test=load-cell-person-7-2026-12-11]')
+    expect(cell.text()).toBe('9:00 / 8:00 h')
+    // 540 / 480 = 112.5 %: beyond the hours; halfway to 125 % on the red ramp, #ae4c3d = rgb(174, 76, 61) (worked out above).
+    expect(cell.classes()).toContain('load__cell--beyond')
+    expect((cell.element as HTMLElement).style.background).toBe('rgb(174, 76, 61)')
+    expect(cell.attributes('title')).toBe(
+      'Wren Ashdown, Fri 11 Dec: 9:00 h planned of 8:00 h working time (113 %, more than the hours available), 2 operations',
+    )
+    expect(w.get('[data-test=load-cell-person-8-2026-12-11]').text()).toBe('0:00 / 8:00 h')
+    // The week: the same 540 of 480, Friday being the only working day with figures.
+    expect(w.get('[data-test=load-cell-person-7-2026-W50-total]').text()).toBe('9:00 / 8:00 h')
+    expect(w.get('[data-test=load-bottleneck]').text()).toContain('Wren Ashdown 113 % in W50')
+  })
+
+  it("when a person's cell is picked, then it lists the operations planned for them that day", async () => {
+    const w = table()
+    await w.get('[data-test=load-cell-person-7-2026-12-11]').trigger('click')
+    const picked = w.get('[data-test=load-picked]')
+    expect(picked.get('h3').text()).toBe('Wren Ashdown · Friday 11 Dec · 9:00 / 8:00 h')
+    expect(picked.findAll('li').map((l) => l.text())).toEqual(['Operation 41', 'Operation 42'])
+  })
+
+  it("when a skill's hours are shown, then the group and the cell say they are what its holders have left after other work", () => {
+    const w = table()
+    const help = w.get('[data-test=load-section-skill]').text()
+    expect(help).toContain('the people who hold the skill have left once their other work is planned')
+    expect(help).not.toContain('everyone who holds it')
+    expect(w.get('[data-test=load-cell-skill-21-2026-12-11]').attributes('title')).toBe(
+      'Enamelling, Fri 11 Dec: 0:00 h planned of 8:00 h its holders have free of other work (0 %), 0 operations',
+    )
   })
 })

@@ -1,17 +1,20 @@
 // The week load counts today from now: the working time already past today is neither available nor still planned, and the
-// rest of the week adds up from there.
+// rest of the week adds up from there. A skill's available hours are what its holders have left after their other kinds of work;
+// each person has a row of their own.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { and, asc, eq, inArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { weekLoad } from '../../server/services/board'
 import { depositHolds } from '../../server/services/deposit-hold'
 import { createTestDb, type TestDb } from '../setup/db'
-import { benchIdByName, firstWorkshopId, planStep, unplanSteps } from '../setup/fixtures'
+import { addPerson, benchIdByName, firstWorkshopId, planStep, unplanSteps } from '../setup/fixtures'
 
 let tdb: TestDb
 let workshopId: number
 let benchId: number
 let ops: { id: number; kindId: number }[]
+let chasing: number, enamelling: number, wren: number, odile: number
+let step: { fri: number; wed: number; thu: number }
 
 // Week of Monday 7 to Sunday 13 December 2026; London is on GMT then, so local times are UTC times.
 const MON = '2026-12-07'
@@ -50,13 +53,39 @@ beforeAll(async () => {
     )
     .orderBy(asc(s.operations.id))
   const held = await depositHolds(db, workshopId, [...new Set(open.map((o) => o.jobBagId))])
-  ops = open.filter((o) => !held.has(o.jobBagId)).slice(0, 3)
-  expect(ops).toHaveLength(3)
+  const free = open.filter((o) => !held.has(o.jobBagId)).slice(0, 6)
+  expect(free).toHaveLength(6)
+  ops = free.slice(0, 3)
   const [a, b, c] = ops as [(typeof ops)[0], (typeof ops)[0], (typeof ops)[0]]
   // No person on these bookings, so the bench's hours alone bound them.
   await planStep(db, a.id, { benchId, personId: null, start: at('2026-12-09', '10:00'), end: at('2026-12-09', '16:00') })
   await planStep(db, b.id, { benchId, personId: null, start: at('2026-12-10', '09:00'), end: at('2026-12-10', '11:00') })
   await planStep(db, c.id, { benchId, personId: null, start: at('2026-12-08', '09:00'), end: at('2026-12-08', '10:00') })
+
+  // Two kinds of work no one else holds, on a second bench open the workshop's hours: Wren holds both, Odile enamelling only;
+  // both work the workshop's week (8 h a day). Three more steps become work of these kinds, planned for them.
+  const kinds = await db
+    .insert(s.operationKinds)
+    .values([
+      { workshopId, code: 'chasing', name: 'Chasing & repoussé' },
+      { workshopId, code: 'enamelling', name: 'Enamelling' },
+    ])
+    .returning({ id: s.operationKinds.id })
+  ;[chasing, enamelling] = [kinds[0]!.id, kinds[1]!.id]
+  wren = await addPerson(db, { workshopId, name: 'Wren Ashdown', skills: { codes: ['chasing', 'enamelling'], level: 3 } })
+  odile = await addPerson(db, { workshopId, name: 'Odile Penhale', skills: { codes: ['enamelling'], level: 3 } })
+  const benchB = await benchIdByName(db, 'Setting bench B')
+  await db.delete(s.benchDowntime).where(eq(s.benchDowntime.benchId, benchB))
+  const [d, e, f] = free.slice(3) as [(typeof free)[0], (typeof free)[0], (typeof free)[0]]
+  step = { fri: d.id, wed: e.id, thu: f.id }
+  await db
+    .update(s.operations)
+    .set({ kindId: chasing })
+    .where(inArray(s.operations.id, [d.id, e.id]))
+  await db.update(s.operations).set({ kindId: enamelling }).where(eq(s.operations.id, f.id))
+  await planStep(db, d.id, { benchId: benchB, personId: wren, start: at('2026-12-11', '09:00'), end: at('2026-12-11', '14:30') })
+  await planStep(db, e.id, { benchId: benchB, personId: wren, start: at('2026-12-09', '13:00'), end: at('2026-12-09', '16:00') })
+  await planStep(db, f.id, { benchId: benchB, personId: odile, start: at('2026-12-10', '09:00'), end: at('2026-12-10', '11:00') })
 })
 afterAll(async () => {
   await tdb?.drop()
@@ -103,5 +132,63 @@ describe('the week load on the current week', () => {
     expect(cell(load, '2026-12-09')).toMatchObject({ availableMinutes: 270, plannedMinutes: 180 })
     // The morning is past, so the board says from when today counts.
     expect(load.countedFrom).toBe(at('2026-12-09', '12:45'))
+  })
+})
+
+describe('skills and people in the week load', () => {
+  type Load = Awaited<ReturnType<typeof weekLoad>>
+  const row = (load: Load, type: string, id: number) => load.rows.find((r) => r.type === type && r.id === id)!
+  const day = (load: Load, type: string, id: number, d: string) => {
+    const c = row(load, type, id).cells.find((x) => x.day === d)!
+    return { planned: c.plannedMinutes, available: c.availableMinutes, ids: c.operationIds }
+  }
+  const rest = (load: Load, type: string, id: number) =>
+    row(load, type, id)
+      .cells.filter((c) => c.day >= '2026-12-09')
+      .reduce((t, c) => ({ planned: t.planned + c.plannedMinutes, available: t.available + c.availableMinutes }), { planned: 0, available: 0 })
+  let load: Load
+  beforeAll(async () => {
+    load = await weekLoad(tdb.db, workshopId, { from: MON, to: SUN, now: new Date(at('2026-12-09', '14:00')) })
+  })
+
+  it('when someone holding two skills is planned 5 h on one, then the other skill offers only her 3 h left, plus what its other holder has', () => {
+    // Hand-worked, Friday 11 Dec (8 h = 480 min each): Wren's chasing 09:00–14:30 works 09:00–12:30 and 13:00–14:30 = 300 min.
+    // Chasing: 300 planned; available Wren's 480 (she has no other kind of work that day) → 5:00 of 8:00.
+    expect(day(load, 'skill', chasing, '2026-12-11')).toEqual({ planned: 300, available: 480, ids: [step.fri] })
+    // Enamelling: nothing planned; available Wren's 480 − 300 = 180 plus Odile's 480 = 660 min (11 h), not 16 h.
+    expect(day(load, 'skill', enamelling, '2026-12-11')).toEqual({ planned: 0, available: 660, ids: [] })
+    // Her own row: 300 planned of her 480.
+    expect(day(load, 'person', wren, '2026-12-11')).toEqual({ planned: 300, available: 480, ids: [step.fri] })
+    expect(day(load, 'person', odile, '2026-12-11')).toEqual({ planned: 0, available: 480, ids: [] })
+  })
+
+  it("when a holder is planned on the skill's own kind of work, then it is planned there and not taken off its available hours", () => {
+    // Thursday 10 Dec: Odile's enamelling 09:00–11:00 = 120 min. Enamelling: 120 planned of Wren's 480 + Odile's 480 = 960.
+    expect(day(load, 'skill', enamelling, '2026-12-10')).toEqual({ planned: 120, available: 960, ids: [step.thu] })
+    // Chasing is Wren's alone: Odile's enamelling takes none of it, 0 of 480.
+    expect(day(load, 'skill', chasing, '2026-12-10')).toEqual({ planned: 0, available: 480, ids: [] })
+    expect(day(load, 'person', odile, '2026-12-10')).toEqual({ planned: 120, available: 480, ids: [step.thu] })
+  })
+
+  it('when it is Wednesday 14:00, then skills and people count today from then too, and the rest of the week is the sum of its days', () => {
+    // Wednesday from 14:00: 14:00–17:30 = 210 min of working time each. Wren's chasing 13:00–16:00 leaves 14:00–16:00 = 120 min.
+    expect(day(load, 'skill', chasing, '2026-12-09')).toEqual({ planned: 120, available: 210, ids: [step.wed] })
+    // Enamelling: Wren 210 − 120 = 90, Odile 210 → 300.
+    expect(day(load, 'skill', enamelling, '2026-12-09')).toEqual({ planned: 0, available: 300, ids: [] })
+    expect(day(load, 'person', wren, '2026-12-09')).toEqual({ planned: 120, available: 210, ids: [step.wed] })
+    // The rest of the week, Wednesday 14:00 to Sunday: enamelling 0 + 120 + 0 planned of 300 + 960 + 660 = 1920 min;
+    // chasing 120 + 0 + 300 = 420 of 210 + 480 + 480 = 1170; Wren 420 of 1170; Odile 120 of 210 + 480 + 480 = 1170.
+    expect(rest(load, 'skill', enamelling)).toEqual({ planned: 120, available: 1920 })
+    expect(rest(load, 'skill', chasing)).toEqual({ planned: 420, available: 1170 })
+    expect(rest(load, 'person', wren)).toEqual({ planned: 420, available: 1170 })
+    expect(rest(load, 'person', odile)).toEqual({ planned: 120, available: 1170 })
+    // Saturday and Sunday: no working time, nothing planned.
+    expect(day(load, 'person', wren, '2026-12-12')).toEqual({ planned: 0, available: 0, ids: [] })
+  })
+
+  it('when the load is read, then there is one row per person on the staff list, named as they are', () => {
+    expect(row(load, 'person', wren).name).toBe('Wren Ashdown')
+    expect(row(load, 'person', odile).name).toBe('Odile Penhale')
+    expect(load.rows.filter((r) => r.type === 'person').map((r) => r.id)).toEqual(expect.arrayContaining([wren, odile]))
   })
 })

@@ -12,7 +12,7 @@ import type { Tx } from '../db/client'
 import * as s from '../db/schema/index'
 import { LOCK } from '../lib/locks'
 import type { Actor } from '../lib/route'
-import { dayjs, workshopWhen } from '../lib/time'
+import { dayjs, formatDay, workshopWhen } from '../lib/time'
 import { clipToWindows, intersect, leaveTime, outsideWorkEnd, walkWorkingTime } from '../scheduler/calendar.ts'
 import type { Interval } from '../scheduler/model.ts'
 import { dayRange } from '../lib/time'
@@ -157,6 +157,8 @@ export function calendarFindings(data: PlanningData, assignments: Assignments): 
   const c = data.clock
   // The workshop's local time as findings write it ("Wed 9 Dec 08:43"; the year when it is not this year's).
   const when = workshopWhen(c.timeZone, (m) => c.toDate(m), c.toDate(data.problem.now))
+  // Outside work back at midnight is back by the end of the day before (it is counted in whole workshop days), never "00:00".
+  const backBy = (m: number) => (when.timeOf(m) === '00:00' ? `the end of ${formatDay(when.dayOf(m - 1), c.timeZone, c.toDate(data.problem.now))}` : when(m))
   const closures = data.meta.closures.map((x) => ({ ...dayRange(c, x.startsOn, x.endsOn), why: `closed: ${x.name}` }))
   const cut = (list: { start: number; end: number; why: string }[], from: number, to: number) =>
     list.filter((x) => x.start < to && from < x.end).map((x) => ({ from: Math.max(from, x.start), to: Math.min(to, x.end), why: x.why }))
@@ -179,7 +181,7 @@ export function calendarFindings(data: PlanningData, assignments: Assignments): 
       const causes = cut(closures, dayStart, end)
       const why = causes.length ? causes.map((x) => x.why).join('; ') : 'the workshop does not work then'
       found.push(
-        rules.outsideWork(self, { why: `it was to go out ${when(start)} and be back by ${when(end)}, which no longer fits the workshop's days (${why})` }),
+        rules.outsideWork(self, { why: `it was to go out ${when(start)} and be back by ${backBy(end)}, which no longer fits the workshop's days (${why})` }),
       )
       continue
     }

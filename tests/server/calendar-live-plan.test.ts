@@ -173,7 +173,7 @@ describe('a calendar change against the live plan', () => {
     })
     const solder = `“Solder” of A-1 works on Bench 1 during ${when(2, '09:00')}–10:00, when the bench is not available (closed: Boiler repair).`
     const polish = `“Polish” of B-1 works on Bench 1 during ${when(2, '10:00')}–12:00, when the bench is not available (closed: Boiler repair).`
-    const hallmark = `“Hallmark” of B-1 is outside work: it was to go out ${when(2, '12:00')} and be back by ${when(4, '00:00')}, which no longer fits the workshop's days (closed: Boiler repair).`
+    const hallmark = `“Hallmark” of B-1 is outside work: it was to go out ${when(2, '12:00')} and be back by the end of ${when(3, '00:00').slice(0, -6)}, which no longer fits the workshop's days (closed: Boiler repair).`
     expect(score.violations.map((v: any) => [v.rule, v.operationId, v.message])).toEqual([
       ['within bench working time', String(ids.solder), solder],
       ['within bench working time', String(ids.polish), polish],

@@ -76,9 +76,13 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
   const tolOf = new Map(kinds.map((k) => [k.id, DEFAULT_LOSS_TOLERANCE_PCT[k.code] ?? FALLBACK_LOSS_TOLERANCE_PCT]))
   const kindCode = new Map(kinds.map((k) => [k.id, k.code]))
   // Repairs work on the customer's own piece: it comes out of their hands, not out of stock, and with nothing to spare.
-  const REPAIRS = new Set(['chain-repair', 'ring-resize', 'retip-claws'])
-  const routingCode = new Map(
-    (await tx.select({ id: s.routings.id, code: s.routings.code }).from(s.routings).where(eq(s.routings.workshopId, workshopId))).map((r) => [r.id, r.code]),
+  const repairRoutings = new Set(
+    (
+      await tx
+        .select({ id: s.routings.id })
+        .from(s.routings)
+        .where(and(eq(s.routings.workshopId, workshopId), eq(s.routings.kind, 'repair')))
+    ).map((r) => r.id),
   )
   const alloyFor = (metalCode: string) => {
     const m = PIECE_METAL_ALLOY[metalCode]
@@ -157,7 +161,7 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
     const [lo, hi] = START_G[alloy.metal]!
     let pieceMg = Math.round((lo + rand() * (hi - lo)) * 1000)
     const oldGold = alloy.metal === 'gold' && rand() < 0.15
-    const repair = REPAIRS.has(routingCode.get(bag.routingId ?? -1) ?? '')
+    const repair = bag.routingId !== null && repairRoutings.has(bag.routingId)
     const fromCustomer = oldGold || repair
     const ordered = [...steps.values()].sort((a, b) => a.op.seq - b.op.seq)
     const lastBack = { at: '', weightMg: 0 }

@@ -2,6 +2,7 @@
 import { count, eq, sql } from 'drizzle-orm'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { PieceParams } from '../../shared/schemas/order'
+import type { RoutingKind } from '../../shared/domain/routing-kinds'
 import type { WorkSpan } from '../../shared/schemas/common'
 import type { Db } from './client'
 import * as s from './schema/index'
@@ -160,7 +161,7 @@ type Step = {
 // Setting: melee is fiddly to pick up and seat, larger stones need more metal moved for their seat (demo figures; minutes per
 // stone and their bands have no published source and should be learned from actual times).
 const SETTING_BANDS = { melee: 1.2, large: 1.5 }
-const ROUTINGS: { code: string; name: string; description: string; learningRate?: number; steps: Step[] }[] = [
+const ROUTINGS: { code: string; name: string; description: string; kind?: RoutingKind; learningRate?: number; steps: Step[] }[] = [
   {
     code: 'pave-pendant',
     name: 'Pavé pendant in laminated metal',
@@ -208,6 +209,7 @@ const ROUTINGS: { code: string; name: string; description: string; learningRate?
     code: 'retip-claws',
     name: 'Repair: retip claws',
     description: 'Rebuild worn claws on a customer ring; check stones first.',
+    kind: 'repair',
     steps: [
       { key: 'assess', kind: 'inspection', name: 'Assess and record stones', base: 15, level: 2 },
       { key: 'retip', kind: 'soldering', name: 'Retip claws', base: 15, perStone: 0, level: 3, wait: 15, after: ['assess'] },
@@ -221,6 +223,7 @@ const ROUTINGS: { code: string; name: string; description: string; learningRate?
     code: 'stud-run',
     name: 'Production run: stud earrings',
     description: 'Cast studs with soldered posts, per pair minutes.',
+    kind: 'run',
     learningRate: 0.85,
     steps: [
       { key: 'cast', kind: 'casting', name: 'Cast tree (caster)', base: 0, lead: 5 },
@@ -235,6 +238,7 @@ const ROUTINGS: { code: string; name: string; description: string; learningRate?
     code: 'ring-resize',
     name: 'Repair: ring resize',
     description: 'Cut, add or remove metal, solder, clean up.',
+    kind: 'repair',
     steps: [
       { key: 'cut', kind: 'sawing', name: 'Cut shank', base: 10 },
       { key: 'solder', kind: 'soldering', name: 'Solder shank', base: 20, wait: 15, level: 2, after: ['cut'] },
@@ -288,6 +292,7 @@ const ROUTINGS: { code: string; name: string; description: string; learningRate?
     code: 'chain-repair',
     name: 'Repair: chain link',
     description: 'Solder a broken link, clean up.',
+    kind: 'repair',
     steps: [
       { key: 'solder', kind: 'soldering', name: 'Solder link', base: 20, wait: 15 },
       { key: 'polish', kind: 'polishing', name: 'Clean and polish', base: 15, after: ['solder'] },
@@ -432,7 +437,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     for (const t of ROUTINGS) {
       const [row] = await tx
         .insert(s.routings)
-        .values({ workshopId, code: t.code, name: t.name, description: t.description, learningRate: t.learningRate ?? null })
+        .values({ workshopId, code: t.code, name: t.name, description: t.description, kind: t.kind ?? 'piece', learningRate: t.learningRate ?? null })
         .returning()
       const steps = await tx
         .insert(s.routingSteps)

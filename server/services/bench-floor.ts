@@ -74,8 +74,7 @@ const opFields = {
   after: operations.after,
   params: jobBags.params,
   routingId: jobBags.routingId,
-  routingCode: routings.code,
-  routingName: routings.name,
+  routingKind: routings.kind,
 }
 const baseQuery = (tx: Tx) =>
   tx
@@ -126,7 +125,7 @@ export async function toBenchOperations(tx: Tx, rows: OpRow[]): Promise<BenchOpe
     priority: r.priority,
     stones: stones.get(r.jobBagId)!,
     metal: r.params?.metal ?? null,
-    customerPiece: worksOnCustomersPiece(r.routingCode !== null && r.routingName !== null ? { code: r.routingCode, name: r.routingName } : null, r.params),
+    customerPiece: worksOnCustomersPiece(r.routingKind !== null ? { kind: r.routingKind } : null, r.params),
   }))
 }
 

@@ -50,6 +50,7 @@ export async function listRoutings(db: Db, workshopId: number): Promise<Routing[
       code: t.code,
       name: t.name,
       description: t.description,
+      kind: t.kind,
       learningRate: t.learningRate,
       version: t.version,
       steps: own,
@@ -86,10 +87,17 @@ export async function createRouting({ db, realtime }: Deps, actor: Actor, input:
     .transaction(async (tx) => {
       const [t] = await tx
         .insert(routings)
-        .values({ workshopId: actor.workshopId, code: input.code, name: input.name, description: input.description, learningRate: input.learningRate })
+        .values({
+          workshopId: actor.workshopId,
+          code: input.code,
+          name: input.name,
+          description: input.description,
+          kind: input.kind,
+          learningRate: input.learningRate,
+        })
         .returning()
       await writeSteps(tx, actor.workshopId, t!.id, input.steps)
-      await audit(tx, actor, 'create', 'routing', t!.id, { code: input.code, learningRate: input.learningRate })
+      await audit(tx, actor, 'create', 'routing', t!.id, { code: input.code, kind: input.kind, learningRate: input.learningRate })
       return t!.id
     })
     .catch((e) => {
@@ -105,7 +113,7 @@ export async function updateRouting({ db, realtime }: Deps, actor: Actor, id: nu
     .transaction(async (tx) => {
       await updateVersioned(tx, routings, 'Routing', { id, workshopId: actor.workshopId, version, values })
       await writeSteps(tx, actor.workshopId, id, steps)
-      await audit(tx, actor, 'update', 'routing', id, { code: input.code, steps: steps.length, learningRate: input.learningRate })
+      await audit(tx, actor, 'update', 'routing', id, { code: input.code, kind: input.kind, steps: steps.length, learningRate: input.learningRate })
     })
     .catch((e) => {
       throw codeTaken(e)

@@ -1,5 +1,6 @@
 // Metal rules of the trade: legal fineness standards, hallmarking thresholds, fine weight, casting and conversion weights, alloy density, loss.
 // Figures come from the UK Hallmarking Convention country profile and the trade's published examples; tests name each source.
+import type { RoutingKind } from './routing-kinds'
 
 export const ALLOY_METALS = ['gold', 'silver', 'platinum', 'palladium', 'base'] as const
 export type AlloyMetal = (typeof ALLOY_METALS)[number]
@@ -108,13 +109,13 @@ export const PIECE_METAL_ALLOY: Record<string, { metal: AlloyMetal; fineness: nu
 
 /**
  * Whether a job bag's work is on the customer's own piece — a repair: the piece comes in from the customer, so its first weighing
- * out is theirs, not metal from stock. Routings carry no kind of their own, so this reads the routing's code or name (repair, resize,
- * retip, as the demo's repair routings are named) and a resize recorded on the piece (the ring being resized is the customer's).
+ * out is theirs, not metal from stock. A routing of the repair kind says so, and so does a resize recorded on the piece (the ring
+ * being resized is the customer's), whatever its routing.
  */
 export function worksOnCustomersPiece(
-  routing: { code: string; name: string } | null | undefined,
+  routing: { kind: RoutingKind } | null | undefined,
   params: { resizeFrom?: unknown; resizeTo?: unknown } | null | undefined,
 ): boolean {
   if (params?.resizeFrom || params?.resizeTo) return true
-  return !!routing && /\b(repair|resiz|retip)/i.test(`${routing.code} ${routing.name}`)
+  return routing?.kind === 'repair'
 }

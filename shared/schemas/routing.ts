@@ -2,6 +2,7 @@
 import { z } from 'zod'
 import { code, id, name, notes, version, wireInt } from './common'
 import type { RoutingWarning } from '../domain/routing-warnings'
+import { ROUTING_KINDS } from '../domain/routing-kinds'
 
 const bandFactor = z.number({ error: 'must be a number' }).min(0.2, 'must be at least 0.2').max(5, 'must be at most 5')
 
@@ -44,6 +45,8 @@ export const routingInput = z
     code,
     name,
     description: notes,
+    /** What the routing makes; a repair's weighing out starts from the customer's own piece (shared/domain/metal.ts worksOnCustomersPiece). */
+    kind: z.enum(ROUTING_KINDS, { error: 'must be piece (a new piece), repair or run (a production run)' }).default('piece'),
     /**
      * Production runs: the share of the time per piece left after each doubling of the quantity (0.85: 40 pieces take
      * 12 × 40^(1 + log₂ 0.85) minutes where one takes 12); null = every piece takes the same time.
@@ -114,6 +117,7 @@ export const routing = z.object({
   code: z.string(),
   name: z.string(),
   description: z.string(),
+  kind: z.enum(ROUTING_KINDS),
   learningRate: z.number().nullable(),
   steps: z.array(routingStep),
   version: wireInt,

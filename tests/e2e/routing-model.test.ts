@@ -1,5 +1,5 @@
-// The routing editor in Chromium: a routing's learning curve for production runs, per-mm minutes, stone size band factors and
-// stone role factors are shown, saved and read back.
+// The routing editor in Chromium: a routing's kind (new piece, repair, production run), its learning curve for production runs,
+// per-mm minutes, stone size band factors and stone role factors are shown, saved and read back.
 import { beforeAll, describe, expect, it } from 'vitest'
 import type { Locator, Page } from 'playwright-core'
 import { and, eq } from 'drizzle-orm'
@@ -115,5 +115,45 @@ describe('the step model in the routing editor', () => {
     await page.locator('.el-drawer').waitFor({ state: 'hidden' })
     const [stored] = await stepOf('Halo engagement ring', 'set')
     expect(stored!.roleFactors).toEqual({ centre: 4 })
+  })
+})
+
+describe('the kind of a routing', () => {
+  const SIGNET = 'Signet ring'
+  const kindLabel = (name: string) => row(page, name).locator('[data-test=routing-kind-label]')
+  const kindOf = (name: string) => e2e.db.db.select({ kind: s.routings.kind, version: s.routings.version }).from(s.routings).where(eq(s.routings.name, name))
+
+  it('when the list is read, then the demo’s repairs, its stud run and its new pieces each say their kind', async () => {
+    await page.goto('/routings')
+    await row(page, SIGNET).waitFor()
+    // The demo (seed.ts): three repairs, one production run, the rest new pieces.
+    expect(await kindLabel('Repair: chain link').textContent()).toBe('Repair')
+    expect(await kindLabel('Repair: ring resize').textContent()).toBe('Repair')
+    expect(await kindLabel('Production run: stud earrings').textContent()).toBe('Production run')
+    expect(await kindLabel(SIGNET).textContent()).toBe('New piece')
+    await screenshot(page, 'routing-kinds', { fullPage: false })
+  })
+
+  it('when the owner makes the signet ring a repair, then it is saved, the list says so and the editor reads it back', async () => {
+    const [before] = await kindOf(SIGNET)
+    await openRouting(SIGNET)
+    expect(await page.locator('[data-test=routing-kind-piece] input').isChecked()).toBe(true)
+    await page.locator('[data-test=routing-kind-repair]').click()
+    await page.locator('[data-test=routing-kind-note]', { hasText: 'customer’s own piece' }).waitFor()
+    await page.locator('[data-test=routing-save]').click()
+    await page.locator('.el-drawer').waitFor({ state: 'hidden' })
+    await kindLabel(SIGNET)
+      .filter({ hasText: /^Repair$/ })
+      .waitFor()
+    const [stored] = await kindOf(SIGNET)
+    expect(stored).toEqual({ kind: 'repair', version: before!.version + 1 })
+
+    // Read back in a fresh page: the editor shows what was stored.
+    await page.reload()
+    await openRouting(SIGNET)
+    expect(await page.locator('[data-test=routing-kind-repair] input').isChecked()).toBe(true)
+    expect(await page.locator('[data-test=routing-kind-piece] input').isChecked()).toBe(false)
+    await page.locator('.el-drawer').getByRole('button', { name: 'Cancel' }).click()
+    await page.locator('.el-drawer').waitFor({ state: 'hidden' })
   })
 })

@@ -66,6 +66,34 @@ const mergeParams = async (id: number, extra: Partial<(typeof s.jobBags.$inferSe
   await setBag(id, { params: { ...b!.params, ...extra } })
 }
 
+/** Whether the steps of a job bag, as the bench reads them, work on the customer's own piece (one answer per different value). */
+const pieceOf = async (bagId: number) => {
+  const r = await setter.get(`/api/job-bags/${bagId}`)
+  expect(r.status, JSON.stringify(r.body)).toBe(200)
+  return [...new Set(r.body.operations.map((o: { customerPiece: boolean }) => o.customerPiece))]
+}
+/** A routing of the given kind with two bench steps, and the job bag of a new order on it. */
+const bagOnRouting = async (routing: { code: string; name: string; kind: string }) => {
+  const kinds = Object.fromEntries(((await manager.get('/api/operation-kinds')).body as { code: string; id: number }[]).map((k) => [k.code, k.id]))
+  const made = await manager.post('/api/routings', {
+    ...routing,
+    steps: [
+      { key: 'solder', kindId: kinds.soldering, name: 'Solder', baseMinutes: 20 },
+      { key: 'polish', kindId: kinds.polishing, name: 'Polish', baseMinutes: 15, after: ['solder'] },
+    ],
+  })
+  expect(made.status, JSON.stringify(made.body)).toBe(201)
+  const customerId = (await t.db.select({ id: s.customers.id }).from(s.customers).orderBy(asc(s.customers.id)).limit(1))[0]!.id
+  const order = await sales.post('/api/orders', {
+    customerId,
+    title: routing.name,
+    dueDate: '2031-10-01',
+    pieces: [{ routingId: made.body.id, piece: routing.name, params: { metal: 'gold-9ct' } }],
+  })
+  expect(order.status, JSON.stringify(order.body)).toBe(201)
+  return order.body.jobBags[0].id as number
+}
+
 describe('next for me', () => {
   it('when a predecessor has just finished and its wait-after is still running, then the step is not offered and cannot be taken yet', async () => {
     // Pavé pendant: "File and emery" follows "Solder bail", which has a 20 min pickle wait after it (seeded routing).
@@ -642,17 +670,23 @@ describe('what a running card shows', () => {
           .orderBy(asc(s.jobBags.id))
           .limit(1)
       )[0]!.id
-    const pieceOf = async (bagId: number) => {
-      const r = await setter.get(`/api/job-bags/${bagId}`)
-      expect(r.status, JSON.stringify(r.body)).toBe(200)
-      return [...new Set(r.body.operations.map((o: { customerPiece: boolean }) => o.customerPiece))]
-    }
-    // The demo's repair routings: "Repair: chain link", "Repair: ring resize", "Repair: retip claws".
+    // The demo's routings of the repair kind (seed.ts): "Repair: chain link", "Repair: ring resize", "Repair: retip claws".
     for (const routing of ['chain-repair', 'ring-resize', 'retip-claws']) expect(await pieceOf(await bagOf(routing)), routing).toEqual([true])
     const ring = await bagOf('bezel-ring')
     expect(await pieceOf(ring)).toEqual([false])
     // A resize of the ring from UK N to UK P: the ring being resized is the customer's.
     await mergeParams(ring, { resizeFrom: { scale: 'uk', value: 'N' }, resizeTo: { scale: 'uk', value: 'P' } })
     expect(await pieceOf(ring)).toEqual([true])
+  })
+
+  it('when a routing of the repair kind has a name that says nothing of repair, then its steps work on the customer’s own piece', async () => {
+    // The bench's weighing card starts such a bag's first weighing out from "Customer’s own" (tests/client/bench-metal-weigh.test.ts).
+    const bag = await bagOnRouting({ code: 'link-mend', name: 'Curb chain: close a link', kind: 'repair' })
+    expect(await pieceOf(bag)).toEqual([true])
+  })
+
+  it('when a routing of the new-piece kind is named like a repair, then its steps work on metal from stock: the name no longer decides', async () => {
+    const bag = await bagOnRouting({ code: 'repair-style-signet', name: 'Repair-style signet', kind: 'piece' })
+    expect(await pieceOf(bag)).toEqual([false])
   })
 })

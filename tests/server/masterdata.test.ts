@@ -392,6 +392,81 @@ describe('routings', () => {
     expect((await t.db.select({ n: count() }).from(s.routings).where(eq(s.routings.code, 'bad-graph')))[0]!.n).toBe(0)
   })
 
+  it('when the demo’s routings are listed, then its three repairs are repairs, the stud run is a production run and the rest are new pieces', async () => {
+    const r = await manager.get('/api/routings')
+    expect(r.status).toBe(200)
+    // The demo (seed.ts): chain link, ring resize and claw retip repairs; earrings in a production run; six new pieces.
+    const demo = [
+      'pave-pendant',
+      'bezel-ring',
+      'wedding-pair',
+      'retip-claws',
+      'stud-run',
+      'ring-resize',
+      'etched-cuff',
+      'signet-ring',
+      'halo-ring',
+      'chain-repair',
+    ]
+    const seeded = (r.body as { code: string; kind: string }[]).filter((x) => demo.includes(x.code))
+    expect(Object.fromEntries(seeded.map((x) => [x.code, x.kind]))).toEqual({
+      'pave-pendant': 'piece',
+      'bezel-ring': 'piece',
+      'wedding-pair': 'piece',
+      'retip-claws': 'repair',
+      'stud-run': 'run',
+      'ring-resize': 'repair',
+      'etched-cuff': 'piece',
+      'signet-ring': 'piece',
+      'halo-ring': 'piece',
+      'chain-repair': 'repair',
+    })
+  })
+
+  it('when a routing is added as a new piece, a repair or a production run and changed to each other kind, then its kind comes back each time', async () => {
+    const kindOf = async (id: number) => (await t.db.select({ kind: s.routings.kind }).from(s.routings).where(eq(s.routings.id, id)))[0]!.kind
+    for (const [kind, then] of [
+      ['piece', 'repair'],
+      ['repair', 'run'],
+      ['run', 'piece'],
+    ] as const) {
+      const c = await manager.post('/api/routings', { code: `kind-${kind}`, name: `Kind ${kind}`, kind, steps: [step('a')] })
+      expect(c.status, JSON.stringify(c.body)).toBe(201)
+      expect(c.body).toMatchObject({ kind, version: 0 })
+      expect((await manager.get(`/api/routings/${c.body.id}`)).body.kind).toBe(kind)
+      expect(await kindOf(c.body.id)).toBe(kind)
+
+      // The kind is one of the routing's fields: changing it moves the version on, and an edit of the old version is refused.
+      const u = await manager.put(`/api/routings/${c.body.id}`, { code: `kind-${kind}`, name: `Kind ${kind}`, kind: then, steps: [step('a')], version: 0 })
+      expect(u.status, JSON.stringify(u.body)).toBe(200)
+      expect(u.body).toMatchObject({ kind: then, version: 1 })
+      expect((await manager.get('/api/routings')).body.find((r: { id: number }) => r.id === c.body.id).kind).toBe(then)
+      expect(await kindOf(c.body.id)).toBe(then)
+      expectCleanError(await manager.put(`/api/routings/${c.body.id}`, { code: `kind-${kind}`, name: 'x', kind, steps: [step('a')], version: 0 }), 409)
+      expect(await kindOf(c.body.id)).toBe(then)
+      expect((await auditRows(t, 'routing', c.body.id)).map((x) => [x.action, x.details.kind])).toEqual([
+        ['update', then],
+        ['create', kind],
+      ])
+    }
+  })
+
+  it('when a routing is added without a kind, then it is a new piece', async () => {
+    const c = await manager.post('/api/routings', { code: 'kind-unsaid', name: 'Kind unsaid', steps: [step('a')] })
+    expect(c.status, JSON.stringify(c.body)).toBe(201)
+    expect(c.body.kind).toBe('piece')
+  })
+
+  it('when the kind is not one of new piece, repair or production run, then 400 naming the kind and nothing is saved or changed', async () => {
+    for (const kind of ['mend', 'Repair', '', 3, null])
+      expectFieldError(await manager.post('/api/routings', { code: 'kind-bad', name: 'Kind bad', kind, steps: [step('a')] }), 'kind', /piece.*repair.*run/)
+    expect((await t.db.select({ n: count() }).from(s.routings).where(eq(s.routings.code, 'kind-bad')))[0]!.n).toBe(0)
+    const c = await manager.post('/api/routings', { code: 'kind-kept', name: 'Kind kept', kind: 'repair', steps: [step('a')] })
+    const bad = await manager.put(`/api/routings/${c.body.id}`, { code: 'kind-kept', name: 'Kind kept', kind: 'resize', steps: [step('a')], version: 0 })
+    expectFieldError(bad, 'kind', /piece.*repair.*run/)
+    expect((await manager.get(`/api/routings/${c.body.id}`)).body).toMatchObject({ kind: 'repair', version: 0 })
+  })
+
   it('when the code is taken or the routing does not exist, then 409 or 404', async () => {
     const dup = await manager.post('/api/routings', { code: 'bezel-ring', name: 'Again', steps: [step('a')] })
     expectCleanError(dup, 409)

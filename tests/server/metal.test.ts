@@ -169,7 +169,7 @@ describe('a hand-worked job bag', () => {
       .innerJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
       .innerJoin(s.metalMovements, eq(s.metalMovements.jobBagId, s.jobBags.id))
       // The demo's weighed history: bags of collected orders (the tests here weigh on waiting bags).
-      .where(and(sql`${s.routings.code} in ('chain-repair', 'ring-resize', 'retip-claws')`, eq(s.jobBags.status, 'complete')))
+      .where(and(eq(s.routings.kind, 'repair'), eq(s.jobBags.status, 'complete')))
     expect(repairs.length, 'the demo has weighed repairs').toBeGreaterThan(0)
     for (const r of repairs) {
       const acc = (await as.owner.get(`/api/job-bags/${r.id}/metal`)).body

@@ -1,6 +1,7 @@
-// Metal rules against published figures: casting weight, conversion between metals, alloy density, hallmark thresholds, fineness.
+// Metal rules against published figures: casting weight, conversion between metals, alloy density, hallmark thresholds, fineness;
+// and which work is on the customer's own piece.
 import { describe, expect, it } from 'vitest'
-import { alloyDensity, castingMetalG, convertWeight, fineWeight, gToMg, metalLoss, needsHallmark } from '../../shared/domain/metal'
+import { alloyDensity, castingMetalG, convertWeight, fineWeight, gToMg, metalLoss, needsHallmark, worksOnCustomersPiece } from '../../shared/domain/metal'
 import { alloyInput, issueInput, returnInput } from '../../shared/schemas/metal'
 
 describe('casting and conversion', () => {
@@ -104,5 +105,22 @@ describe('fineness and weight validation', () => {
   it('when a return has no form, then the form field is refused', () => {
     const r = returnInput.safeParse({ jobBagId: 1, alloyId: 1, personId: 1, weightG: 1 })
     expect(r.error!.issues.map((i) => i.path.join('.'))).toContain('form')
+  })
+})
+
+describe('work on the customer’s own piece', () => {
+  const resize = { resizeFrom: { scale: 'uk', value: 'N' }, resizeTo: { scale: 'uk', value: 'P' } }
+
+  it('when the routing is a repair, then the work is on the customer’s piece; a new piece or a production run is not', () => {
+    expect(worksOnCustomersPiece({ kind: 'repair' }, {})).toBe(true)
+    expect(worksOnCustomersPiece({ kind: 'piece' }, {})).toBe(false)
+    expect(worksOnCustomersPiece({ kind: 'run' }, null)).toBe(false)
+  })
+
+  it('when a resize is recorded on the piece, then it is the customer’s ring whatever the routing, even with none', () => {
+    expect(worksOnCustomersPiece({ kind: 'piece' }, resize)).toBe(true)
+    expect(worksOnCustomersPiece({ kind: 'run' }, { resizeTo: resize.resizeTo })).toBe(true)
+    expect(worksOnCustomersPiece(null, { resizeFrom: resize.resizeFrom })).toBe(true)
+    expect(worksOnCustomersPiece(undefined, {})).toBe(false)
   })
 })

@@ -1,6 +1,7 @@
 // The work itself: customers, orders, routings, job bags, operations, time records, plan versions.
 import { boolean, date, index, integer, jsonb, pgTable, real, text, uniqueIndex } from 'drizzle-orm/pg-core'
 import type { PieceParams } from '../../../shared/schemas/order'
+import type { RoutingKind } from '../../../shared/domain/routing-kinds'
 import { createdAt, pk, updatedAt, version, instant } from './common'
 import { benches, operationKinds, people } from './resources'
 import { users, workshops } from './workshop'
@@ -33,6 +34,8 @@ export const routings = pgTable(
     code: text().notNull(),
     name: text().notNull(),
     description: text().notNull().default(''),
+    /** What the routing makes: a new piece, a repair of the customer's own piece, or a production run (shared/domain/routing-kinds.ts). */
+    kind: text().$type<RoutingKind>().notNull().default('piece'),
     /** Production runs: the learning rate per doubling of quantity (0.8 = an 80 % curve); null = every unit takes the same time. */
     learningRate: real(),
     version: version(),

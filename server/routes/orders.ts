@@ -28,7 +28,7 @@ export const orderRoutes = [
     summary: 'Orders (search, sort, pages)',
     query: orderListQuery,
     response: orderSummaryPage,
-    handler: ({ deps, actor, query }) => orders.listOrders(deps.db, actor.workshopId, query),
+    handler: ({ deps, actor, query }) => orders.listOrders(deps, actor.workshopId, query),
   }),
   route({
     method: 'get',

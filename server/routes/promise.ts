@@ -3,6 +3,7 @@ import type { Role } from '../../shared/domain/roles'
 import { orderForecast, promiseAcceptInput, promiseAcceptResult, promiseCheckInput, promiseCheckResult } from '../../shared/schemas/promise'
 import { route } from '../lib/route'
 import * as promises from '../services/promise'
+import * as forecasts from '../services/order-forecast'
 import { idParam } from './params'
 
 const FRONT: Role[] = ['owner', 'manager', 'sales']
@@ -34,6 +35,6 @@ export const promiseRoutes = [
     summary: 'Expected completion of each job bag of an order on the live plan, at risk or late, and why',
     params: idParam,
     response: orderForecast,
-    handler: ({ deps, actor, params }) => promises.orderForecast(deps, actor, params.id),
+    handler: ({ deps, actor, params }) => forecasts.orderForecast(deps, actor, params.id),
   }),
 ]

@@ -62,18 +62,24 @@ export interface BoardItem {
   /** What happened, from the time records; null for work not started. */
   actual: BoardActual | null
 }
-export interface BoardJob {
+/** A job bag's finish on a plan: the end of its last planned step, against the end of its due day, and why it is there. */
+export interface JobFinish {
   jobBagId: number
-  number: string
-  piece: string
-  orderNumber: string
-  customerName: string
+  /** The promised day when there is one, else the due day. */
   due: string
   expectedCompletion: string | null
   latenessMinutes: number
   lateWorkingMinutes: number
   state: 'late' | 'at-risk' | 'on-time' | 'unplanned'
   reason: string | null
+  /** Its steps still to come (not under way) that the plan has no bar for. */
+  stepsOffPlan: number
+}
+export interface BoardJob extends JobFinish {
+  number: string
+  piece: string
+  orderNumber: string
+  customerName: string
 }
 
 export interface SerialisedAnswer {
@@ -151,6 +157,109 @@ function workedPieces(data: PlanningData, a: Shown): { start: string; end: strin
   return pieces.length > 1 ? pieces.map((p) => ({ start: c.toDate(p.start).toISOString(), end: c.toDate(p.end).toISOString() })) : undefined
 }
 
+/** Steps still to come that a plan can hold: not under way, not finished or skipped. */
+const TO_COME = new Set(['pending', 'ready', 'claimed', 'paused'])
+
+/**
+ * The live plan checked against the calendar, as the board and the forecasts read it: each step whose bar no longer fits, with
+ * its findings in one text, and where the plan can really take each step (the live plan re-timed, when bars no longer fit).
+ */
+function liveFinishes(checked: { findings: RuleViolation[]; carriedOut: Assignments }, bars: Record<string, Shown>) {
+  const broken = new Map<string, string>()
+  for (const f of checked.findings) if (f.operationId) broken.set(f.operationId, [broken.get(f.operationId), f.message].filter(Boolean).join(' '))
+  return { broken, finishes: checked.findings.length ? shown(checked.carriedOut) : bars }
+}
+
+/**
+ * Each open job bag's finish (of all of them, or of those in `only`): the end of its last planned step where the plan can really
+ * take it (`finishes`), its lateness against the end of its due day (the promised day when there is one) in clock and in working
+ * minutes, late, tight or on time by the one rule (`jobRisk`), and why (a step that no longer fits the calendar names it, else the
+ * last step's start reason when the bars carry one). Job bags the planner leaves out (held for the deposit) are unplanned, with why.
+ * The board and an order's forecast (drawer and order list) all read job bags' finishes from here.
+ */
+export function jobFinishes(
+  data: PlanningData,
+  o: { bars: Record<string, Shown>; finishes: Record<string, Shown>; broken: ReadonlyMap<string, string>; only?: ReadonlySet<number> },
+): Map<number, JobFinish> {
+  const c = data.clock
+  const dayMinutes = typicalDayMinutes(data.meta.open)
+  const completion = new Map<number, { end: number; reason: string | null }>()
+  const offPlan = new Map<number, number>()
+  for (const [id, m] of data.meta.operations) {
+    if (o.only && !o.only.has(m.bag.id)) continue
+    const a = o.bars[id]
+    if (!a && TO_COME.has(m.op.status)) offPlan.set(m.bag.id, (offPlan.get(m.bag.id) ?? 0) + 1)
+    const f = o.finishes[id] ?? a
+    if (!a || !f || m.op.status === 'done') continue
+    const end = new Date(f.end).getTime()
+    const cur = completion.get(m.bag.id)
+    if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: o.broken.get(id) ?? a.reason?.detail ?? null })
+  }
+  // A job bag with a step that no longer fits the calendar names it as the reason for its finish.
+  for (const [id, why] of o.broken) {
+    const m = data.meta.operations.get(id)
+    const cur = m && completion.get(m.bag.id)
+    if (cur) cur.reason = why
+  }
+  const out = new Map<number, JobFinish>()
+  for (const { bag, order } of data.meta.operations.values()) {
+    if (out.has(bag.id) || (o.only && !o.only.has(bag.id))) continue
+    const dueDayStart = dayjs.tz(`${order.promisedDate ?? order.dueDate} 00:00`, c.timeZone)
+    const due = dueDayStart.add(1, 'day').valueOf()
+    const comp = completion.get(bag.id)
+    const lateWorking = comp ? workingMinutesBetween(data.meta.open, c.toMinute(new Date(due)), c.toMinute(new Date(comp.end))) : 0
+    out.set(bag.id, {
+      jobBagId: bag.id,
+      due: order.promisedDate ?? order.dueDate,
+      expectedCompletion: comp ? new Date(comp.end).toISOString() : null,
+      latenessMinutes: comp ? Math.round((comp.end - due) / 60_000) : 0,
+      lateWorkingMinutes: lateWorking,
+      state: !comp
+        ? 'unplanned'
+        : jobRisk({ finish: comp.end, dueDayStart: dueDayStart.valueOf(), dueDayEnd: due, spareWorkingMinutes: -lateWorking, dayMinutes }),
+      reason: comp?.reason ?? null,
+      stepsOffPlan: offPlan.get(bag.id) ?? 0,
+    })
+  }
+  for (const h of data.meta.held) {
+    if (o.only && !o.only.has(h.bag.id)) continue
+    out.set(h.bag.id, {
+      jobBagId: h.bag.id,
+      due: h.order.promisedDate ?? h.order.dueDate,
+      expectedCompletion: null,
+      latenessMinutes: 0,
+      lateWorkingMinutes: 0,
+      state: 'unplanned',
+      reason: h.reason,
+      stepsOffPlan: 0,
+    })
+  }
+  return out
+}
+
+/**
+ * The finishes of some job bags on the live plan, as the board reckons them (`jobFinishes`), without the board: the planning data
+ * and the live plan read once, checked against the calendar (re-timed where it no longer fits; the engine's search never runs),
+ * no start reasons, and kept in the app's cache like the board (until the workshop changes, a minute at most), so paging and
+ * searching a list read neither again. With the workshop's typical working day, for lateness in its words.
+ */
+export async function liveJobFinishes(db: Db, workshopId: number, jobBagIds: readonly number[], o: { cache?: Cache; now?: Date } = {}) {
+  const live = await cachedOr(
+    o.cache,
+    workshopId,
+    'live-finishes',
+    async () => {
+      const data = await loadPlanningData(db, workshopId, o.now ?? new Date())
+      const bars = (await readLivePlan(db, workshopId)).assignments
+      const shownBars = shown(bars)
+      return { data, bars: shownBars, ...liveFinishes(checkLivePlan(data, bars), shownBars) }
+    },
+    { ttlMs: 60_000, verify: true },
+  )
+  const jobs = jobFinishes(live.data, { bars: live.bars, finishes: live.finishes, broken: live.broken, only: new Set(jobBagIds) })
+  return { jobs, dayMinutes: typicalDayMinutes(live.data.meta.open), timeZone: live.data.clock.timeZone }
+}
+
 export async function boardData(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
   const data = await loadPlanningData(db, workshopId, o.now ?? new Date())
   const c = data.clock
@@ -171,11 +280,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     checked = checkLivePlan(data, bars)
     if (live) plan = { id: live.id, number: live.number, status: live.status, publishedAt: live.publishedAt }
   }
-  // Findings of the live plan against the calendar, by step (a draft was checked when it was made).
-  const broken = new Map<string, string>()
-  for (const f of checked?.findings ?? []) if (f.operationId) broken.set(f.operationId, [broken.get(f.operationId), f.message].filter(Boolean).join(' '))
-  // Finishes: where the plan can really take each step (the live plan re-timed, when bars no longer fit the calendar).
-  const finishes = checked?.findings.length ? shown(checked.carriedOut) : assignments
+  const { broken, finishes } = checked ? liveFinishes(checked, assignments) : { broken: new Map<string, string>(), finishes: assignments }
   // Reasons come from the plan shown, as it is now (after moves by hand), never from when it was made.
   const steps = Object.entries(assignments)
     .filter(([id]) => data.meta.operations.has(id))
@@ -189,22 +294,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const winEnd = new Date(dayjs.tz(`${o.to} 00:00`, c.timeZone).add(1, 'day').valueOf())
 
   // Per job bag: expected completion = the end of its last planned operation.
-  const jobs = new Map<number, BoardJob>()
-  const completion = new Map<number, { end: number; reason: string | null }>()
-  for (const [id, m] of data.meta.operations) {
-    const a = assignments[id]
-    const f = finishes[id] ?? a
-    if (!a || !f || m.op.status === 'done') continue
-    const end = new Date(f.end).getTime()
-    const cur = completion.get(m.bag.id)
-    if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: broken.get(id) ?? a.reason?.detail ?? null })
-  }
-  // A job bag with a step that no longer fits the calendar names it as the reason for its finish.
-  for (const [id, why] of broken) {
-    const m = data.meta.operations.get(id)
-    const cur = m && completion.get(m.bag.id)
-    if (cur) cur.reason = why
-  }
+  const finished = jobFinishes(data, { bars: assignments, finishes, broken })
   const customers = new Map(
     (await db.select({ id: s.customers.id, name: s.customers.name }).from(s.customers).where(eq(s.customers.workshopId, workshopId))).map((x) => [
       x.id,
@@ -218,31 +308,21 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   // Running bench work: its time records say where it really started.
   const runningIds = [...data.meta.operations.values()].filter((m) => m.op.status === 'running').map((m) => m.op.id)
   const runningRecords = await effectiveRecords(db, runningIds, now)
+  // Per job bag, with its names (the job bags the planner leaves out, held for the deposit, are listed as unplanned with why).
+  const jobs = new Map<number, BoardJob>()
+  const named = [...data.meta.operations.values(), ...data.meta.held]
+  for (const { bag, order } of named) {
+    const f = finished.get(bag.id)
+    if (f && !jobs.has(bag.id))
+      jobs.set(bag.id, { ...f, number: bag.number, piece: bag.piece, orderNumber: order.number, customerName: customers.get(order.customerId) ?? '' })
+  }
   const items: BoardItem[] = []
   const dayMinutes = typicalDayMinutes(data.meta.open)
   for (const [id, m] of data.meta.operations) {
-    const dueDayStart = dayjs.tz(`${m.order.promisedDate ?? m.order.dueDate} 00:00`, c.timeZone)
-    const due = dueDayStart.add(1, 'day').valueOf()
-    if (!jobs.has(m.bag.id)) {
-      const comp = completion.get(m.bag.id)
-      const lateness = comp ? Math.round((comp.end - due) / 60_000) : 0
-      const lateWorking = comp ? workingMinutesBetween(data.meta.open, c.toMinute(new Date(due)), c.toMinute(new Date(comp.end))) : 0
-      jobs.set(m.bag.id, {
-        jobBagId: m.bag.id,
-        number: m.bag.number,
-        piece: m.bag.piece,
-        orderNumber: m.order.number,
-        customerName: customers.get(m.order.customerId) ?? '',
-        due: m.order.promisedDate ?? m.order.dueDate,
-        expectedCompletion: comp ? new Date(comp.end).toISOString() : null,
-        latenessMinutes: lateness,
-        lateWorkingMinutes: lateWorking,
-        state: !comp
-          ? 'unplanned'
-          : jobRisk({ finish: comp.end, dueDayStart: dueDayStart.valueOf(), dueDayEnd: due, spareWorkingMinutes: -lateWorking, dayMinutes }),
-        reason: comp?.reason ?? null,
-      })
-    }
+    const due = dayjs
+      .tz(`${m.order.promisedDate ?? m.order.dueDate} 00:00`, c.timeZone)
+      .add(1, 'day')
+      .valueOf()
     // Finished work is drawn where it really happened (below).
     if (m.op.status === 'done' || m.op.status === 'skipped') continue
     const mine = runningRecords.filter((r) => r.operationId === m.op.id && !r.voided)
@@ -308,22 +388,6 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
       ...(segments ? { segments } : {}),
       planned: a ? { start: iso(a.start), end: iso(a.end) } : null,
       actual,
-    })
-  }
-  // Job bags the planner leaves out (metal waiting for the deposit): listed as unplanned, with why.
-  for (const h of data.meta.held) {
-    jobs.set(h.bag.id, {
-      jobBagId: h.bag.id,
-      number: h.bag.number,
-      piece: h.bag.piece,
-      orderNumber: h.order.number,
-      customerName: customers.get(h.order.customerId) ?? '',
-      due: h.order.promisedDate ?? h.order.dueDate,
-      expectedCompletion: null,
-      latenessMinutes: 0,
-      lateWorkingMinutes: 0,
-      state: 'unplanned',
-      reason: h.reason,
     })
   }
   items.push(...(await finishedItems(db, workshopId, winStart, winEnd, now, customers)))

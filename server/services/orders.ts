@@ -1,4 +1,4 @@
-// Orders and their job bags: numbering, routing steps copied into operations, and the order list.
+// Orders and their job bags: numbering, routing steps copied into operations, and the order list (with each order's forecast).
 import { and, asc, count, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { ListQuery, Page } from '../../shared/schemas/common'
 import type { OrderInput, OrderSummary, OrderUpdate } from '../../shared/schemas/order'
@@ -11,6 +11,7 @@ import { audit } from './audit'
 import { sendReadyNotice } from './mail'
 import { requireCustomerStonesBack } from './stones'
 import { deliverOrderMetal } from './metal'
+import { listForecasts } from './order-forecast'
 import { requireOwned, updateVersioned } from './versioned'
 import { LOCK } from '../lib/locks'
 
@@ -19,7 +20,11 @@ const containing = (text: string) => `%${text.replace(/[\\%_]/g, '\\$&')}%`
 
 const bagCount = sql<number>`(select count(*)::int from ${jobBags} where ${jobBags.orderId} = ${orders.id})`
 
-export async function listOrders(db: Db, workshopId: number, q: ListQuery & { status?: string | string[] }): Promise<Page<OrderSummary>> {
+export async function listOrders(
+  { db, cache }: Pick<Deps, 'db' | 'cache'>,
+  workshopId: number,
+  q: ListQuery & { status?: string | string[] },
+): Promise<Page<OrderSummary>> {
   const statuses = q.status === undefined ? [] : Array.isArray(q.status) ? q.status : [q.status]
   const like = q.q ? containing(q.q) : null
   const where = and(
@@ -52,7 +57,8 @@ export async function listOrders(db: Db, workshopId: number, q: ListQuery & { st
     .orderBy(q.order === 'desc' ? desc(sortCol) : asc(sortCol), asc(orders.id))
     .limit(q.pageSize)
     .offset((q.page - 1) * q.pageSize)
-  return { items, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
+  const expected = await listForecasts({ db, cache }, workshopId, items)
+  return { items: items.map((o) => ({ ...o, expected: expected.get(o.id) ?? null })), total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
 }
 
 export async function getOrder(db: Db, workshopId: number, id: number) {

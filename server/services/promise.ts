@@ -1,23 +1,21 @@
 // Promise dates for sales: the earliest completion of a prospective piece on the live plan (and re-planned), its
-// confidence range, turning it into an order with the promised date, and the forecast of an existing order.
+// confidence range, and turning it into an order with the promised date (an existing order's forecast: order-forecast.ts).
 import { cachedOr } from '../lib/cache'
 import { and, asc, eq } from 'drizzle-orm'
 import { quantileSorted } from 'simple-statistics'
-import type { JobBagForecast, OrderForecast, PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
+import type { PromiseAcceptInput, PromiseCheckInput, PromiseCheckResult } from '../../shared/schemas/promise'
 import type { OrderInput } from '../../shared/schemas/order'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import * as s from '../db/schema/index'
 import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import { dayjs, formatDay, formatInstant } from '../lib/time'
-import { formatWorkingTime } from '../../shared/domain/working-time'
-import type { BoardJob } from '../../shared/schemas/board'
+import { dayjs } from '../lib/time'
 import { clipToWindows, intersect } from '../scheduler/calendar.ts'
 import { checkProblem, promise, solve, type Job, type Operation, type Plan, type PlannedOperation, type Problem } from '../scheduler/index.ts'
 import { compile, decode, toPlan } from '../scheduler/decode.ts'
 import { topologicalOrder } from '../scheduler/search.ts'
 import type { Db, Trx } from '../db/client'
-import { boardData } from './board'
+import { audit } from './audit'
 import { sendPromiseConfirmation } from './mail'
 import { getOrder, takeOrder } from './orders'
 import { engineId, type Assignments } from '../planning/assignments'
@@ -25,7 +23,6 @@ import { bookPromise, readLivePlan, type Booking } from '../planning/live-plan'
 import { loadPlanningData, localTime, operationOptions, weightOfPriority, type PlanningData } from '../planning/problem'
 import { planningError } from '../planning/runs'
 import { ASSUMPTION, DEFAULT_RUNS, kindSpreads, simulateCompletions, type KindSpread } from './promise-range'
-import { requireOwned } from './versioned'
 
 /** Search budget of the "everything re-planned" answer; the fixed answer is one decode. */
 export const REPLAN_MS = 80
@@ -329,7 +326,7 @@ export async function roomFor(deps: Deps, actor: Actor, order: OrderInput, now: 
 /**
  * Creates the order with the promised date (one job bag from the routing), books its steps into the live plan where the
  * promise finds room (nothing else moves; checked again inside the order's transaction), then sends the confirmation,
- * which says the piece is booked only when it is.
+ * which says the piece is booked only when it is. Why it is not booked is kept in the audit, where the order's forecast reads it.
  */
 export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcceptInput, now = new Date()) {
   const [t] = await deps.db
@@ -351,6 +348,7 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
   const room = await roomFor(deps, actor, orderInput, now)
   const { order, extra: taken } = await takeOrder(deps, actor, orderInput, async (tx, orderId) => {
     const booking: Booking = 'reason' in room ? { booked: false, reason: room.reason } : await bookSlot(tx, actor, room.data, orderId, room.placed)
+    if (!booking.booked) await audit(tx, actor, 'not-booked', 'order', orderId, { reason: booking.reason })
     // With the job queue the confirmation is queued in the order's transaction: no order without its e-mail, nor the reverse.
     return { booking, queued: deps.jobs ? await sendPromiseConfirmation({ ...deps, db: tx as unknown as Db }, actor.workshopId, orderId, booking) : null }
   })
@@ -359,65 +357,4 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
   if (booking.booked && firstOp) deps.realtime.emit(actor.workshopId, 'plan:changed', { id: firstOp.id, operationId: firstOp.id })
   const confirmation = taken.queued ?? (await sendPromiseConfirmation(deps, actor.workshopId, order.id, booking))
   return { order: booking.booked ? await getOrder(deps.db, actor.workshopId, order.id) : order, booking, confirmation }
-}
-
-/**
- * The forecast's sentence for a planned job bag, in the board's measure: working time late or to spare (open hours, rounded as
- * the board rounds them), against the end of its due day written as a day ("Fri 11 Dec"). `when` writes the expected finish.
- */
-export function forecastWhy(
-  j: Pick<BoardJob, 'state' | 'expectedCompletion' | 'lateWorkingMinutes' | 'reason'>,
-  o: { due: string; dayMinutes: number; timeZone: string; now: Date; when: (iso: string) => string },
-): string {
-  if (j.state === 'unplanned')
-    return j.reason ? `Not planned: ${j.reason} (casting and forging wait until it is paid).` : 'Not on the live plan yet: publish a plan to get a date.'
-  const expected = `Expected ${o.when(j.expectedCompletion!)}`
-  const dueDay = `due by the end of ${formatDay(o.due, o.timeZone, o.now)}`
-  const because = j.reason ? ` Last step: ${j.reason}.` : ''
-  if (j.state === 'late') return `${expected}, ${formatWorkingTime(j.lateWorkingMinutes, o.dayMinutes)} late (${dueDay}).${because}`
-  if (j.state === 'at-risk') return `${expected}, only ${formatWorkingTime(-j.lateWorkingMinutes, o.dayMinutes)} to spare (${dueDay}).${because}`
-  return `${expected}, ${formatWorkingTime(-j.lateWorkingMinutes, o.dayMinutes)} to spare (${dueDay}).`
-}
-
-/** Expected completion of each job bag of an order on the live plan, whether it is at risk or late, and why. */
-export async function orderForecast(deps: Deps, actor: Actor, orderId: number, now = new Date()): Promise<OrderForecast> {
-  const order = await requireOwned(deps.db, s.orders, 'Order', orderId, actor.workshopId)
-  const [w] = await deps.db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
-  const tz = w!.timeZone
-  const day = dayjs(now).tz(tz).format('YYYY-MM-DD')
-  const board = await boardData(deps.db, actor.workshopId, { from: day, to: day, now })
-  const bags = await deps.db.select().from(s.jobBags).where(eq(s.jobBags.orderId, orderId)).orderBy(asc(s.jobBags.number))
-  const due = order.promisedDate ?? order.dueDate
-  const when = (iso: string) => formatInstant(iso, tz, now)
-  const jobBags: JobBagForecast[] = bags.map((b) => {
-    const j = board.jobs.find((x) => x.jobBagId === b.id)
-    const base = { jobBagId: b.id, number: b.number, piece: b.piece, status: b.status }
-    if (!j) {
-      const finished = b.status === 'complete' || ['ready', 'collected'].includes(order.status)
-      return {
-        ...base,
-        expectedCompletion: null,
-        expectedDate: null,
-        state: finished ? 'finished' : 'unplanned',
-        latenessMinutes: 0,
-        why: finished ? 'Finished.' : `Not on the plan (order ${order.status}, job bag ${b.status}).`,
-      }
-    }
-    const expectedDate = j.expectedCompletion ? dayjs(j.expectedCompletion).tz(tz).format('YYYY-MM-DD') : null
-    const why = forecastWhy(j, { due, dayMinutes: board.dayMinutes, timeZone: tz, now, when })
-    return { ...base, expectedCompletion: j.expectedCompletion, expectedDate, state: j.state, latenessMinutes: j.latenessMinutes, why }
-  })
-  const rank: JobBagForecast['state'][] = ['late', 'at-risk', 'unplanned', 'on-time', 'finished']
-  const state = jobBags.map((x) => x.state).sort((a, b) => rank.indexOf(a) - rank.indexOf(b))[0] ?? 'unplanned'
-  return {
-    orderId: order.id,
-    number: order.number,
-    status: order.status,
-    due: order.dueDate,
-    promisedDate: order.promisedDate,
-    timeZone: tz,
-    plan: board.plan ? { id: board.plan.id, number: board.plan.number, publishedAt: board.plan.publishedAt } : null,
-    state,
-    jobBags,
-  }
 }

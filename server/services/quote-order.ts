@@ -45,7 +45,7 @@ export async function quoteRoom(deps: Deps, actor: Actor, input: OrderInput, now
  * Books the order made from a quote where `quoteRoom` found room, in the order's transaction (which took the live plan's lock
  * first) once the quote and its payments are on the order: not while its metal work waits for the deposit, and a clash books
  * nothing (the planning module's booking says which booking took the room). The order stands either way; the audit says why
- * it was not booked.
+ * it was not booked, and the order's forecast (its drawer) reads it from there while its work is off the plan.
  */
 export async function bookQuoteOrder(tx: Trx, actor: Actor, orderId: number, room: Room): Promise<Booking> {
   let booking: Booking

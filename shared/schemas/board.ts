@@ -87,6 +87,8 @@ export const boardJob = z.object({
   lateWorkingMinutes: z.number(),
   state: z.enum(['late', 'at-risk', 'on-time', 'unplanned']),
   reason: z.string().nullable(),
+  /** Its steps still to come (not under way) that the plan shown has no bar for. */
+  stepsOffPlan: z.number().int(),
 })
 
 export const boardPlanRef = z.object({ id: z.number().int(), number: z.number().int(), status: z.string(), publishedAt: isoDateTime.nullable() })

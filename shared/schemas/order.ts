@@ -84,6 +84,24 @@ export type OrderUpdate = z.infer<typeof orderUpdate>
 
 // ---- Answers ----
 
+/**
+ * When the live plan expects an order still in the workshop to be done, as its forecast reckons it: the live plan re-timed
+ * against the calendar, against the end of its due day (the promised day when there is one).
+ */
+export const orderExpected = z.object({
+  /** The workshop's day its last planned step ends; null when none of it is planned. */
+  date: isoDate.nullable(),
+  /** That finish: after the due day, tight (on it, or less than a working day to spare) or on time; null when none is planned. */
+  risk: z.enum(['late', 'at-risk', 'on-time']).nullable(),
+  /** Working time late or to spare in the forecast's words ("1 working day 2 h late", "only 3 h to spare"); null when none is planned. */
+  margin: z.string().nullable(),
+  /** Its steps still to do that the live plan has no bar for: none, some, or all of them (an order without pieces: all). */
+  offPlan: z.enum(['none', 'some', 'all']),
+  /** Every job bag is finished (the order is not marked ready yet). */
+  done: z.boolean(),
+})
+export type OrderExpected = z.infer<typeof orderExpected>
+
 export const orderSummary = z.object({
   id: wireInt,
   number: z.string(),
@@ -98,6 +116,8 @@ export const orderSummary = z.object({
   currency: z.string(),
   jobBags: wireInt,
   version: wireInt,
+  /** On the live plan; null for an order ready, collected or cancelled. */
+  expected: orderExpected.nullable(),
 })
 export const orderSummaryPage = pageOf(orderSummary)
 export const orderOperation = z.object({

@@ -1,6 +1,6 @@
 // Promise dates for sales: the check for a prospective piece, turning it into an order, and an order's forecast.
 import { z } from 'zod'
-import { id, isoDate, name, notes, wireInt } from './common'
+import { id, isoDate, isoDateTime, name, notes, wireInt } from './common'
 import { minorAmount, orderDetail, pieceParams } from './order'
 
 const priority = z.number({ error: 'must be 1 to 5' }).int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').default(3)
@@ -102,6 +102,8 @@ export const jobBagForecast = z.object({
   state: z.enum(['late', 'at-risk', 'on-time', 'unplanned', 'finished']),
   latenessMinutes: z.number(),
   why: z.string(),
+  /** Its steps still to come (not under way) that the live plan has no bar for. */
+  stepsOffPlan: wireInt,
 })
 export type JobBagForecast = z.infer<typeof jobBagForecast>
 export const orderForecast = z.object({
@@ -114,5 +116,7 @@ export const orderForecast = z.object({
   plan: z.object({ id: wireInt, number: wireInt, publishedAt: z.string().nullable() }).nullable(),
   state: jobBagForecast.shape.state,
   jobBags: z.array(jobBagForecast),
+  /** Why the order was not booked into the live plan when it was made (from a quote or a promise), while work of it is still off the plan. */
+  notBooked: z.object({ reason: z.string(), at: isoDateTime }).nullable(),
 })
 export type OrderForecast = z.infer<typeof orderForecast>

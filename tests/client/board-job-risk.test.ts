@@ -17,6 +17,7 @@ const job = (over: Partial<BoardJob>): BoardJob => ({
   lateWorkingMinutes: 0,
   state: 'on-time',
   reason: null,
+  stepsOffPlan: 0,
   ...over,
 })
 const risk = (jobs: BoardJob[]) => mount(BoardJobRisk, { props: { jobs, timeZone: 'Europe/London', dayMinutes: 465 } }).text()

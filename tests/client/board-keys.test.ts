@@ -90,6 +90,7 @@ describe('finding a job bag', () => {
         lateWorkingMinutes: 0,
         state: 'unplanned' as const,
         reason: null,
+        stepsOffPlan: 0,
       },
     ],
   }

@@ -1,7 +1,7 @@
 // An order's forecast words a planned job bag as the board does: working time late or to spare (open hours, rounded like the
 // board), against its due day written as a day, not clock hours against an ISO date (hand-worked on the demo's 465-min day).
 import { describe, expect, it } from 'vitest'
-import { forecastWhy } from '../../server/services/promise'
+import { forecastWhy } from '../../server/services/order-forecast'
 
 // The demo's working day: 08:30–12:30 and 13:15–17:00 = 240 + 225 = 465 min. 2026-12-11 is a Friday.
 const o = { due: '2026-12-11', dayMinutes: 465, timeZone: 'Europe/London', now: new Date('2026-12-07T09:00:00Z'), when: () => 'Thu 17 Dec 10:00' }

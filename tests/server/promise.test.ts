@@ -334,6 +334,9 @@ describe('accepting a promise', () => {
     expect(r.body.order.jobBags[0].operations.every((o: { plannedStart: string | null }) => o.plannedStart === null)).toBe(true)
     const msg = await fake.waitFor((m) => m.subject.includes(r.body.order.number))
     expect(msg.text).toMatch(/not in our workshop plan yet/)
+    // The order's drawer says why, in the booking's words.
+    const f = await sales.get(`/api/orders/${r.body.order.id}/forecast`)
+    expect(f.body.notBooked).toEqual({ reason: r.body.booking.reason, at: expect.any(String) })
     await clearPlan()
   })
 

@@ -239,6 +239,16 @@ const orderSteps = async (orderId: number) =>
         .where(eq(s.jobBags.orderId, orderId))
     ).map(({ key, ...x }) => [key, { ...x, start: x.start && new Date(x.start).toISOString(), end: x.end && new Date(x.end).toISOString() }]),
   )
+/** The order list says the order is not in the plan, and its forecast (the order's drawer) says why it was not booked. */
+async function expectOffPlanSaying(orderId: number, why: string) {
+  const { number } = (await sales.get(`/api/orders/${orderId}`)).body
+  const list = await sales.get(`/api/orders?q=${number}`)
+  expect(list.status, JSON.stringify(list.body)).toBe(200)
+  expect(list.body.items.find((x: { id: number }) => x.id === orderId)?.expected).toEqual({ date: null, risk: null, margin: null, offPlan: 'all', done: false })
+  const f = await sales.get(`/api/orders/${orderId}/forecast`)
+  expect(f.status, JSON.stringify(f.body)).toBe(200)
+  expect(f.body.notBooked).toEqual({ reason: why, at: expect.any(String) })
+}
 const quoted = (c: { routingId: number }, promisedDate: string, title: string) =>
   drafted({ title, promisedDate, details: { routingId: c.routingId, piece: 'Engraved plate', priority: 3 } })
 
@@ -290,6 +300,18 @@ describe('an order from a quote on the live plan', () => {
       polish: { benchId: null, personId: null, start: null, end: null },
     })
     expect((await auditRows(t, 'order', r.body.orderId)).find((x) => x.action === 'not-booked')?.details).toEqual({ reason: why })
+    await expectOffPlanSaying(r.body.orderId, why)
+  })
+
+  it('when its deposit is paid by card but the room found now ends after the promised date, then the office sees the order off the plan and why', async () => {
+    const c = await engravingCorner('card-late')
+    const q = await send(await quoted(c, dayjs(c.day).subtract(1, 'day').format('YYYY-MM-DD'), 'Engraved plate paid too late'))
+    const paid = await fake.pay(q.links[0].url.split('/pay/')[1]!, TEST_CARDS.paid)
+    expect(paid.delivery?.status, paid.delivery?.body).toBe(200)
+    const after = (await sales.get(`/api/quotes/${q.id}`)).body
+    expect(after).toMatchObject({ status: 'accepted', orderId: expect.any(Number) })
+    expect(Object.values(await orderSteps(after.orderId)).every((x) => x.start === null)).toBe(true)
+    await expectOffPlanSaying(after.orderId, `the room found now ends ${c.day}, after the promised date; the manager plans it at the next re-plan`)
   })
 
   it('when its room is taken between placing it and the order’s transaction, then the order is still made, nothing is booked, and the audit names the booking that took it', async () => {

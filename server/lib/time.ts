@@ -93,7 +93,11 @@ export function formatInstant(at: Date | string | number, timeZone: string, now:
  * The rule book's writer of times (`When`) on the workshop's clock: each minute as `formatInstant` writes it, and its local
  * day and time of day, so a stretch within one day names the day once ("Mon 7 Dec 10:38–11:18").
  */
-export function workshopWhen(timeZone: string, toDate: (minute: number) => Date, now: Date | number = Date.now()): When & { dayOf: (minute: number) => string; timeOf: (minute: number) => string } {
+export function workshopWhen(
+  timeZone: string,
+  toDate: (minute: number) => Date,
+  now: Date | number = Date.now(),
+): When & { dayOf: (minute: number) => string; timeOf: (minute: number) => string } {
   const local = (m: number) => dayjs(toDate(m)).tz(timeZone)
   return Object.assign((m: number) => formatInstant(toDate(m), timeZone, now), {
     dayOf: (m: number) => local(m).format('YYYY-MM-DD'),

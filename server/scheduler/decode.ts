@@ -230,6 +230,8 @@ export enum Why {
   Person = 4,
   WorkingTime = 5,
   Fixed = 6,
+  /** Held at the start the previous plan gave it (`hold`), though it could start earlier. */
+  Kept = 7,
 }
 
 /** The timed result of one decode. */
@@ -517,8 +519,10 @@ export function firstChangedPick(base: Decoded, baseKey: Float64Array, baseChoic
  * feasible time; choice[i] >= 0 forces that option, -1 picks the option that finishes first (ties: previous plan's).
  * With `base` (a decode of the same problem) and `from`: no step whose key or choice differs from base's became ready before
  * pick `from` of base, so base's first `from` picks are taken as they are and the decoding goes on from there (same result).
+ * `hold[i]` (NaN for none), bench work only: the step starts no earlier than that (the previous plan's start, when a re-plan keeps
+ * it there); a step whose hold differs from base's counts as changed, like one whose choice differs.
  */
-export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?: Decoded, from = 0): Decoded {
+export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?: Decoded, from = 0, hold?: Float64Array): Decoded {
   const n = c.n
   const order = new Int32Array(n),
     readyAt = new Int32Array(n).fill(n)
@@ -647,6 +651,13 @@ export function decode(c: Compiled, key: Float64Array, choice: Int32Array, base?
       why[i] = leave > est ? Why.WorkingTime : w
       blocker[i] = leave > est ? -1 : blk
     } else {
+      // Held where the previous plan had it (its start, unless something now makes it later): it does not move up into time
+      // freed by others.
+      if (hold && hold[i]! > est) {
+        est = hold[i]!
+        w = Why.Kept
+        blk = -1
+      }
       const opts = c.options[i]!
       const forced = choice[i]!
       let bestK = -1,
@@ -780,7 +791,7 @@ export function compareDecoded(a: Decoded, b: Decoded, objective: Objective[]): 
   return 0
 }
 
-const WHY_KIND: StartReason['kind'][] = ['now', 'release', 'predecessor', 'bench', 'person', 'working-time', 'fixed']
+const WHY_KIND: StartReason['kind'][] = ['now', 'release', 'predecessor', 'bench', 'person', 'working-time', 'fixed', 'kept']
 
 /** Builds the public Plan, with human-readable reasons, from a decode. */
 export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
@@ -827,6 +838,9 @@ export function toPlan(c: Compiled, d: Decoded, stats: Plan['stats']): Plan {
         detail = `waiting for ${bop ? busyWith(name, bop, c.jobs[c.jobOf[b]!]?.name) : `${name} (busy)`} until ${startAt}`
         break
       }
+      case 'kept':
+        detail = `kept at ${startAt}, where the plan it replaces had it`
+        break
       default:
         detail =
           c.outsideDays[i]! > 0

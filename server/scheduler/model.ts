@@ -85,7 +85,7 @@ export interface Problem {
 
 /** Why an operation starts when it does. */
 export type StartReason = {
-  kind: 'release' | 'predecessor' | 'bench' | 'person' | 'working-time' | 'fixed' | 'now' | 'by-hand'
+  kind: 'release' | 'predecessor' | 'bench' | 'person' | 'working-time' | 'fixed' | 'now' | 'by-hand' | 'kept'
   /** Human-readable, e.g. "waiting for Ada (setting) until Thu 14:00". */
   detail: string
   /** The operation (or resource) that holds this one back, if any. */

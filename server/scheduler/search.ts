@@ -729,6 +729,34 @@ export function solveGeneral(
       const at = prevOf[c.ops[i]!.id]
       if (at && !c.fixedAt[i]) prevStart[i] = at.start
     }
+    // Bench work kept where the previous plan had it starts no earlier than there (a hole left by work moved later stays a hole
+    // rather than being filled by work that would move up for nothing).
+    const prevHold = new Float64Array(n).fill(NaN)
+    for (let i = 0; i < n; i++) if (c.outsideDays[i]! < 0) prevHold[i] = prevStart[i]!
+    const noHold = new Float64Array(n).fill(NaN)
+    const sameHold = (a: number, b: number): boolean => a === b || (Number.isNaN(a) && Number.isNaN(b))
+    /** The first pick of base that can differ: firstChangedPick, and the own pick of a step whose hold changed. */
+    const firstPick = (
+      base: Decoded,
+      bKey: Float64Array,
+      bCh: Int32Array,
+      bHold: Float64Array,
+      key: Float64Array,
+      ch: Int32Array,
+      hold: Float64Array,
+    ): number => {
+      let from = firstChangedPick(base, bKey, bCh, key, ch)
+      const order = base.order
+      if (!order) return 0
+      for (let k = 0; k < from && k < order.length; k++) {
+        const i = order[k]!
+        if (!sameHold(bHold[i]!, hold[i]!)) {
+          from = k
+          break
+        }
+      }
+      return from
+    }
     const differs = (d: Decoded, i: number): boolean =>
       !Number.isNaN(prevStart[i]!) && c.outsideDays[i]! < 0 && (d.option[i] !== c.previousOption[i] || d.start[i] !== prevStart[i])
     // The best plan's own order (by start) and choices, so a candidate changes only what it reverts.
@@ -748,12 +776,14 @@ export function solveGeneral(
       return choice
     }
     let curKey = startKey(best!),
-      curChoice = startChoice(best!)
+      curChoice = startChoice(best!),
+      curHold = noHold
     let cur = decode(c, curKey, curChoice)
     const vsBest = compareDecoded(cur, best!, obj)
     if (vsBest > 0) {
       curKey = bestKey
       curChoice = bestChoice
+      curHold = noHold
       cur = best!
     } else if (vsBest < 0) {
       // Decoded again in order of its starts, the best plan can pack tighter (a step meets fewer steps placed before it).
@@ -832,55 +862,69 @@ export function solveGeneral(
         }
       }
     }
-    for (let pass = 0; pass < 4 && !stopped(); pass++) {
-      let kept = 0
-      // First whole job bags (a bag's steps usually moved together), then single steps.
-      const groups: number[][] = []
-      const byJob = new Map<number, number[]>()
-      for (let i = 0; i < n; i++)
-        if (differs(cur, i)) {
-          const j = c.jobOf[i]!
-          if (!byJob.has(j)) byJob.set(j, [])
-          byJob.get(j)!.push(i)
+    // Then each differing job bag and step given back its previous bench, person and priority; once that settles, the same again
+    // with the step held at its previous start (work that moved up into time freed by others goes back).
+    for (const held of [false, true])
+      for (let pass = 0; pass < 4 && !stopped(); pass++) {
+        let kept = 0
+        // First whole job bags (a bag's steps usually moved together), then single steps.
+        const groups: number[][] = []
+        const byJob = new Map<number, number[]>()
+        for (let i = 0; i < n; i++)
+          if (differs(cur, i)) {
+            const j = c.jobOf[i]!
+            if (!byJob.has(j)) byJob.set(j, [])
+            byJob.get(j)!.push(i)
+          }
+        for (const steps of byJob.values()) groups.push(steps)
+        for (const steps of byJob.values()) if (steps.length > 1) for (const i of steps) groups.push([i])
+        for (let g = groups.length - 1; g > 0; g--) {
+          const h = rng.int(g + 1)
+          const t = groups[g]!
+          groups[g] = groups[h]!
+          groups[h] = t
         }
-      for (const steps of byJob.values()) groups.push(steps)
-      for (const steps of byJob.values()) if (steps.length > 1) for (const i of steps) groups.push([i])
-      for (let g = groups.length - 1; g > 0; g--) {
-        const h = rng.int(g + 1)
-        const t = groups[g]!
-        groups[g] = groups[h]!
-        groups[h] = t
-      }
-      for (const steps of groups) {
-        if (stopped()) break
-        if (!steps.some((i) => differs(cur, i))) continue
-        // Already given back (a step's start also follows the others): nothing new to try.
-        if (steps.every((i) => curKey[i] === prevStart[i]! + i * 1e-9 && (c.previousOption[i]! < 0 || curChoice[i] === c.previousOption[i]))) continue
-        const key = curKey.slice(),
-          choice = curChoice.slice()
-        for (const i of steps) {
-          key[i] = prevStart[i]! + i * 1e-9
-          if (c.previousOption[i]! >= 0) choice[i] = c.previousOption[i]!
-        }
-        const cand = decode(c, key, choice, cur, firstChangedPick(cur, curKey, curChoice, key, choice))
-        iterations++
-        // No worse is kept too: the priorities come closer to the previous plan's, which lets later steps back in.
-        const cmp = compareDecoded(cand, cur, obj)
-        if (cmp <= 0) {
-          cur = cand
-          curKey = key
-          curChoice = choice
-          if (cmp < 0) kept++
-          if (compareDecoded(cand, best!, obj) < 0) {
-            best = cand
-            bestKey = key
-            bestChoice = choice
-            report('decoder')
+        for (const steps of groups) {
+          if (stopped()) break
+          if (!steps.some((i) => differs(cur, i))) continue
+          // Already given back (a step's start also follows the others): nothing new to try.
+          if (
+            steps.every(
+              (i) =>
+                curKey[i] === prevStart[i]! + i * 1e-9 &&
+                (c.previousOption[i]! < 0 || curChoice[i] === c.previousOption[i]) &&
+                (!held || sameHold(curHold[i]!, prevHold[i]!)),
+            )
+          )
+            continue
+          const key = curKey.slice(),
+            choice = curChoice.slice(),
+            hold = curHold.slice()
+          for (const i of steps) {
+            key[i] = prevStart[i]! + i * 1e-9
+            if (c.previousOption[i]! >= 0) choice[i] = c.previousOption[i]!
+            hold[i] = held ? prevHold[i]! : NaN
+          }
+          const cand = decode(c, key, choice, cur, firstPick(cur, curKey, curChoice, curHold, key, choice, hold), hold)
+          iterations++
+          // No worse is kept too: the priorities come closer to the previous plan's, which lets later steps back in.
+          const cmp = compareDecoded(cand, cur, obj)
+          if (cmp <= 0) {
+            cur = cand
+            curKey = key
+            curChoice = choice
+            curHold = hold
+            if (cmp < 0) kept++
+            if (compareDecoded(cand, best!, obj) < 0) {
+              best = cand
+              bestKey = key
+              bestChoice = choice
+              report('decoder')
+            }
           }
         }
+        if (kept === 0) break
       }
-      if (kept === 0) break
-    }
   }
 }
 

@@ -21,7 +21,7 @@ export const boardActual = z.object({
 
 /** Why the engine started an operation when it did, e.g. "waiting for Ines Harrowby (setting) until Thu 14:00". */
 export const startReason = z.object({
-  kind: z.enum(['release', 'predecessor', 'bench', 'person', 'working-time', 'fixed', 'now', 'by-hand']),
+  kind: z.enum(['release', 'predecessor', 'bench', 'person', 'working-time', 'fixed', 'now', 'by-hand', 'kept']),
   detail: z.string(),
   /** The operation (or resource) that holds this one back, if any. */
   blockerId: z.string().optional(),

@@ -103,6 +103,32 @@ describe('stability against the published plan', () => {
     expect(validatePlan(problem, plan)).toEqual([])
   })
 
+  it('when a step was moved later by hand and pinned there, then the work after it on the bench keeps its times instead of moving up into the hole', () => {
+    // Hand-worked: one bench and one person, 08:00–16:00. Published: X 08–09, Y 09–10, Z 10–11. The manager pins X at 13:00.
+    // Y and Z could now start at 08:00 and 09:00, but that buys nothing (nothing is late either way, and the last step still
+    // ends at 14:00 with X), so "keep changes small" leaves them at 09:00 and 10:00: no step moved, none shifted. (Packed as early
+    // as they fit, as the walk back did before it could hold a step at its previous start, both shifted.)
+    const problem = makeProblem({
+      jobs: ['X', 'Y', 'Z'].map((id) => makeJob({ id, due: at(0, 16) })),
+      operations: [
+        makeOperation({ id: 'X', jobId: 'X', on: ['b1', 'p1', 60], fixed: { benchId: 'b1', personId: 'p1', start: at(0, 13) } }),
+        makeOperation({ id: 'Y', jobId: 'Y', on: ['b1', 'p1', 60] }),
+        makeOperation({ id: 'Z', jobId: 'Z', on: ['b1', 'p1', 60] }),
+      ],
+      previous: {
+        X: { benchId: 'b1', personId: 'p1', start: at(0, 13) },
+        Y: { benchId: 'b1', personId: 'p1', start: at(0, 9) },
+        Z: { benchId: 'b1', personId: 'p1', start: at(0, 10) },
+      },
+    })
+    const plan = solve(problem, { seed: 1, timeLimitMs: 10_000, maxIterations: 0, stability: 'small-changes' }, { clock })
+    const placed = Object.fromEntries(plan.operations.map((o) => [o.operationId, [o.start, o.end]]))
+    expect(placed).toEqual({ X: [at(0, 13), at(0, 14)], Y: [at(0, 9), at(0, 10)], Z: [at(0, 10), at(0, 11)] })
+    expect(plan.score).toMatchObject({ weightedTardiness: 0, moves: 0, shifted: 0, makespan: at(0, 14) })
+    expect(plan.operations.find((o) => o.operationId === 'Y')?.reason.kind).toBe('kept')
+    expect(validatePlan(problem, plan)).toEqual([])
+  })
+
   it('when outside work was planned outside before and lists an option without bench or person, then it has not moved', () => {
     const problem = makeProblem({
       operations: [makeOperation({ id: 'hallmark', jobId: 'j1', outsideWorkingDays: 2, options: [{ benchId: null, personId: null, minutes: 30 }] })],

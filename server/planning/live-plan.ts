@@ -13,7 +13,7 @@ import * as s from '../db/schema/index'
 import { LOCK } from '../lib/locks'
 import type { Actor } from '../lib/route'
 import { dayjs, formatDay, workshopWhen } from '../lib/time'
-import { clipToWindows, intersect, leaveTime, outsideWorkEnd, walkWorkingTime } from '../scheduler/calendar.ts'
+import { clipToWindows, jointWindows, leaveTime, outsideWorkEnd, walkWorkingTime } from '../scheduler/calendar.ts'
 import type { Interval } from '../scheduler/model.ts'
 import { dayRange } from '../lib/time'
 import { audit } from '../services/audit'
@@ -189,7 +189,7 @@ export function calendarFindings(data: PlanningData, assignments: Assignments): 
       person = people.get(engineId(a.personId) ?? '')
     const needs = minutesNeeded(data, a)
     if (!bench || !person || needs === null) continue
-    const worked = clipToWindows(intersect(bench.available, person.available), start, end)
+    const worked = clipToWindows(jointWindows(data.problem).both(bench.id, person.id)!, start, end)
     if (worked.reduce((t, x) => t + x.end - x.start, 0) >= needs) continue
     const causes = [
       ...cut(closures, start, end).map((x) => ({ ...x, resource: 'bench' as const, name: bench.name })),
@@ -247,8 +247,7 @@ function minutesNeeded(data: PlanningData, a: Assignment): number | null {
  */
 export function retimeLivePlan(data: PlanningData, assignments: Assignments): Assignments {
   const c = data.clock
-  const benches = new Map(data.problem.benches.map((b) => [b.id, b.available]))
-  const people = new Map(data.problem.people.map((p) => [p.id, p.available]))
+  const joint = jointWindows(data.problem)
   const preds = new Map(data.problem.operations.map((o) => [o.id, o.predecessors]))
   const free = new Map<string, number>()
   const ends = new Map<string, number>()
@@ -275,11 +274,9 @@ export function retimeLivePlan(data: PlanningData, assignments: Assignments): As
         const back = outsideWorkEnd(days, leaves, Math.max(1, m.op.leadDays))
         if (back !== null && (leaves !== start || back !== end)) placed = { start: leaves, end: back }
       } else {
-        const b = benches.get(engineId(a.benchId) ?? ''),
-          p = people.get(engineId(a.personId) ?? '')
+        const windows = joint.both(engineId(a.benchId), engineId(a.personId))
         const needs = minutesNeeded(data, a)
-        if (b && p && needs !== null) {
-          const windows = intersect(b, p)
+        if (windows && needs !== null) {
           const fits = at === start && clipToWindows(windows, start, end).reduce((t, x) => t + x.end - x.start, 0) >= needs
           const walked = fits ? null : walkWorkingTime(windows, at, needs)
           if (walked?.length) placed = { start: walked[0]!.start, end: walked[walked.length - 1]!.end }
@@ -416,15 +413,13 @@ export async function bookPromise(
     .from(s.operations)
     .where(eq(s.operations.jobBagId, bag!.id))
   const byKey = new Map(ops.map((x) => [x.key, x]))
-  const benches = new Map(data.problem.benches.map((b) => [b.id, b.available]))
-  const people = new Map(data.problem.people.map((p) => [p.id, p.available]))
+  const joint = jointWindows(data.problem)
   /** Where another booking really takes time: its span clipped to its bench's and person's shared working time. */
   const spans = (x: Assignment): Interval[] => {
-    const b = benches.get(engineId(x.benchId) ?? ''),
-      p = people.get(engineId(x.personId) ?? '')
+    const w = joint.both(engineId(x.benchId), engineId(x.personId))
     const from = c.toMinute(x.start),
       to = c.toMinute(x.end)
-    return b && p ? clipToWindows(intersect(b, p), from, to) : [{ start: from, end: to }]
+    return w ? clipToWindows(w, from, to) : [{ start: from, end: to }]
   }
   const live = await readLivePlan(tx, actor.workshopId)
   const wanted = steps.map((st) => {

@@ -7,7 +7,7 @@ import * as s from '../db/schema/index'
 import { AppError, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { workshopWhen } from '../lib/time'
-import { intersect, walkWorkingTime, clipToWindows, outsideWorkEnd } from '../scheduler/calendar.ts'
+import { jointWindows, walkWorkingTime, clipToWindows, outsideWorkEnd } from '../scheduler/calendar.ts'
 import type { Interval } from '../scheduler/model.ts'
 import { audit } from '../services/audit'
 import * as rules from '../../shared/domain/rules'
@@ -87,10 +87,8 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
               why: `it is claimed by ${data.meta.people.get(String(op.claimedBy))?.name ?? 'someone else'}`,
             }),
           )
-        const windows = intersect(
-          data.problem.benches.find((b) => b.id === String(bench.id))!.available,
-          data.problem.people.find((p) => p.id === String(person.id))!.available,
-        )
+        const joint = jointWindows(data.problem)
+        const windows = joint.both(String(bench.id), String(person.id))!
         const minutes = Math.max(1, Math.ceil(op.estimateMinutes / skill!.speed))
         const walked = walkWorkingTime(windows, start, minutes)
         if (!walked)
@@ -106,13 +104,7 @@ export async function moveAssignment({ db, realtime }: Deps, actor: Actor, opId:
           if (!sameBench && !samePerson) continue
           const other = data.meta.operations.get(String(a.operationId))
           if (!other || other.op.status === 'done') continue
-          const w =
-            a.benchId && a.personId
-              ? intersect(
-                  data.problem.benches.find((b) => b.id === engineId(a.benchId))?.available ?? [],
-                  data.problem.people.find((p) => p.id === engineId(a.personId))?.available ?? [],
-                )
-              : null
+          const w = a.benchId && a.personId ? (joint.both(engineId(a.benchId), engineId(a.personId)) ?? []) : null
           const theirs = w ? clipToWindows(w, c.toMinute(a.start), c.toMinute(a.end)) : [{ start: c.toMinute(a.start), end: c.toMinute(a.end) }]
           const clash = theirs.find((t) => segments.some((x) => x.start < t.end && t.start < x.end))
           if (clash) {

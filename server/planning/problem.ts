@@ -4,7 +4,7 @@ import type { Tx } from '../db/client'
 import * as s from '../db/schema/index'
 import { dayjs, expandPattern, MinuteClock, subtract, dayRange, type Interval } from '../lib/time'
 import type { Operation as EngineOperation, Problem } from '../scheduler/model.ts'
-import { intersect } from '../scheduler/calendar.ts'
+import { jointWindows } from '../scheduler/calendar.ts'
 import { depositHolds } from '../services/deposit-hold'
 
 export const HORIZON_DAYS = 84
@@ -127,6 +127,7 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
       leave.filter((l) => l.personId === p.id).map((l) => dayRange(clock, l.startsOn, l.endsOn)),
     ),
   }))
+  const joint = jointWindows({ benches: benchModels, people: personModels })
 
   // Open work: job bags of orders still to make.
   const orders = await db
@@ -254,7 +255,7 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
     const pinAt = op.pinned && op.plannedStart && op.plannedBenchId && op.plannedPersonId ? clock.toMinute(op.plannedStart) : null
     if (running && kept && options[0]) {
       const o = options[0]
-      const windows = intersect(benchModels.find((b) => b.id === o.benchId)!.available, personModels.find((p) => p.id === o.personId)!.available)
+      const windows = joint.both(o.benchId, o.personId)!
       const next = windows.find((x) => x.end > nowMin)
       if (next) fixed = { benchId: o.benchId, personId: o.personId, start: Math.max(next.start, nowMin) }
     } else if (pinAt !== null && pinAt >= nowMin) {

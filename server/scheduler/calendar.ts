@@ -18,6 +18,41 @@ export function intersect(a: Interval[], b: Interval[]): Interval[] {
   return out
 }
 
+/** A bench's and a person's working time looked up by id (`Problem.benches` / `Problem.people`), and the time they share. */
+export interface JointWindows {
+  /** Both known: the minutes both work (their windows intersected, worked out once per pair); otherwise undefined. */
+  both(benchId: string | null | undefined, personId: string | null | undefined): Interval[] | undefined
+  bench(id: string | null | undefined): Interval[] | undefined
+  person(id: string | null | undefined): Interval[] | undefined
+}
+
+type WithCalendars = { benches: readonly { id: string; available: Interval[] }[]; people: readonly { id: string; available: Interval[] }[] }
+const jointCache = new WeakMap<WithCalendars, JointWindows>()
+
+/** The joint working time of a problem's benches and people, one lookup per problem (kept while the problem is). */
+export function jointWindows(problem: WithCalendars): JointWindows {
+  let j = jointCache.get(problem)
+  if (j) return j
+  const benches = new Map(problem.benches.map((b) => [b.id, b.available]))
+  const people = new Map(problem.people.map((p) => [p.id, p.available]))
+  const pairs = new Map<string, Interval[]>()
+  j = {
+    bench: (id) => (id ? benches.get(id) : undefined),
+    person: (id) => (id ? people.get(id) : undefined),
+    both(benchId, personId) {
+      const b = benchId ? benches.get(benchId) : undefined,
+        p = personId ? people.get(personId) : undefined
+      if (!b || !p) return undefined
+      const key = `${benchId}\u0000${personId}`
+      let w = pairs.get(key)
+      if (!w) pairs.set(key, (w = intersect(b, p)))
+      return w
+    },
+  }
+  jointCache.set(problem, j)
+  return j
+}
+
 /** Index of the first interval whose end is after t (or list length). */
 export function firstEndingAfter(list: Interval[], t: number): number {
   let lo = 0,

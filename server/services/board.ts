@@ -7,7 +7,7 @@ import { and, eq, inArray, isNotNull, sql } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
 import { dayjs, dayRange, subtract, type Interval } from '../lib/time'
-import { intersect, clipToWindows, formatMinute, weekdayOf } from '../scheduler/calendar.ts'
+import { clipToWindows, formatMinute, jointWindows, weekdayOf } from '../scheduler/calendar.ts'
 import type { StartReason } from '../scheduler/model.ts'
 import { explainStarts, outsideLength, type ExplainCalendar } from '../scheduler/explain.ts'
 import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
@@ -140,9 +140,8 @@ function runningReason(data: PlanningData, id: string, planned: { start: string;
 }
 
 function windowsFor(data: PlanningData, benchId: string | null, personId: string | null): Interval[] | null {
-  const b = benchId ? data.problem.benches.find((x) => x.id === benchId)?.available : null
-  const p = personId ? data.problem.people.find((x) => x.id === personId)?.available : null
-  return b && p ? intersect(b, p) : (b ?? p ?? null)
+  const j = jointWindows(data.problem)
+  return j.both(benchId, personId) ?? j.bench(benchId) ?? j.person(personId) ?? null
 }
 
 /**

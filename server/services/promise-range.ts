@@ -16,7 +16,7 @@ import { quantileSorted } from 'simple-statistics'
 import { and, eq, gt, inArray } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
-import { intersect, outsideWorkEnd, walkWorkingTime } from '../scheduler/calendar.ts'
+import { jointWindows, outsideWorkEnd, walkWorkingTime } from '../scheduler/calendar.ts'
 import type { Interval, Operation, Plan, Problem } from '../scheduler/model.ts'
 import { createRng, type Rng } from '../scheduler/random.ts'
 import { dayjs } from '../lib/time'
@@ -231,18 +231,9 @@ export function simulateCompletions(o: SimulationInput): number[] {
   const { problem } = o
   const rng = createRng(o.seed)
   const base = bookings(o.plan, problem.now)
-  const benches = new Map(problem.benches.map((b) => [b.id, b.available]))
-  const people = new Map(problem.people.map((p) => [p.id, p.available]))
-  const windows = new Map<string, Interval[]>()
-  const pairWindows = (b: string | null, p: string | null) => {
-    const key = `${b}|${p}`
-    let w = windows.get(key)
-    if (!w) {
-      w = b && p ? intersect(benches.get(b) ?? [], people.get(p) ?? []) : ((b ? benches.get(b) : p ? people.get(p) : undefined) ?? [])
-      windows.set(key, w)
-    }
-    return w
-  }
+  const joint = jointWindows(problem)
+  // Both given: the time they share (none when either is unknown); one given: its own.
+  const pairWindows = (b: string | null, p: string | null): Interval[] => (b && p ? joint.both(b, p) : b ? joint.bench(b) : joint.person(p)) ?? []
   const order = topo(o.operations)
   const out: number[] = []
   for (let run = 0; run < o.runs; run++) {

@@ -10,7 +10,7 @@ import * as s from '../db/schema/index'
 import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
-import { clipToWindows, intersect } from '../scheduler/calendar.ts'
+import { clipToWindows, jointWindows } from '../scheduler/calendar.ts'
 import { checkProblem, promise, solve, type Job, type Operation, type Plan, type PlannedOperation, type Problem } from '../scheduler/index.ts'
 import { compile, decode, toPlan } from '../scheduler/decode.ts'
 import { topologicalOrder } from '../scheduler/search.ts'
@@ -43,8 +43,7 @@ export function planFromAssignments(data: PlanningData, live: Assignments): Plan
   const c = data.clock
   const p = data.problem
   const engineOps = new Map(p.operations.map((o) => [o.id, o]))
-  const benches = new Map(p.benches.map((b) => [b.id, b.available]))
-  const people = new Map(p.people.map((x) => [x.id, x.available]))
+  const joint = jointWindows(p)
   const operations: PlannedOperation[] = []
   for (const a of live.values()) {
     const id = String(a.operationId)
@@ -55,10 +54,8 @@ export function planFromAssignments(data: PlanningData, live: Assignments): Plan
     const outside = !!op.outsideWorkingDays
     let segments = [{ start, end }]
     if (!outside) {
-      const b = a.benchId ? benches.get(String(a.benchId)) : undefined,
-        pe = a.personId ? people.get(String(a.personId)) : undefined
-      if (!b || !pe) continue
-      const w = intersect(b, pe)
+      const w = joint.both(a.benchId ? String(a.benchId) : null, a.personId ? String(a.personId) : null)
+      if (!w) continue
       if (!w.some((x) => x.start <= start && start < x.end)) continue
       segments = clipToWindows(w, start, end)
     }

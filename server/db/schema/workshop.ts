@@ -72,5 +72,6 @@ export const auditLog = pgTable(
     entityId: integer(),
     details: jsonb().$type<Record<string, unknown>>().notNull().default({}),
   },
-  (t) => [index().on(t.workshopId, t.at)],
+  // By time for the workshop's log; by the row it concerns for one order's, job bag's or operation's history (newest first by id).
+  (t) => [index().on(t.workshopId, t.at), index().on(t.entity, t.entityId, t.id)],
 )

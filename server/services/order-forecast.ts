@@ -1,6 +1,6 @@
 // An order's forecast on the live plan: each job bag's expected finish, late, tight or on time and why (the order's drawer), the
 // same reckoning for a page of the order list in one read of the live plan, and why an order could not be booked when it was made.
-import { and, asc, desc, eq, inArray } from 'drizzle-orm'
+import { and, asc, desc, eq, inArray, ne } from 'drizzle-orm'
 import type { JobBagForecast, OrderForecast } from '../../shared/schemas/promise'
 import type { OrderExpected } from '../../shared/schemas/order'
 import { formatWorkingTime } from '../../shared/domain/working-time'
@@ -25,13 +25,18 @@ export function forecastMargin(j: Pick<JobFinish, 'state' | 'lateWorkingMinutes'
 /**
  * The forecast's sentence for a planned job bag, in the board's measure: working time late or to spare (open hours, rounded as
  * the board rounds them), against the end of its due day written as a day ("Fri 11 Dec"). `when` writes the expected finish.
+ * A job bag with no bar says what would give it one: a plan published, or — when one is live — the planner's next run.
  */
 export function forecastWhy(
   j: Pick<JobFinish, 'state' | 'expectedCompletion' | 'lateWorkingMinutes' | 'reason'>,
-  o: { due: string; dayMinutes: number; timeZone: string; now: Date; when: (iso: string) => string },
+  o: { due: string; dayMinutes: number; timeZone: string; now: Date; when: (iso: string) => string; livePlan: boolean },
 ): string {
-  if (j.state === 'unplanned')
-    return j.reason ? `Not planned: ${j.reason} (casting and forging wait until it is paid).` : 'Not on the live plan yet: publish a plan to get a date.'
+  if (j.state === 'unplanned') {
+    if (j.reason) return `Not planned: ${j.reason} (casting and forging wait until it is paid).`
+    return o.livePlan
+      ? 'Not in the live plan yet: run the planner to place it, then publish its plan to get a date.'
+      : 'Not on the live plan yet: publish a plan to get a date.'
+  }
   const expected = `Expected ${o.when(j.expectedCompletion!)}`
   const dueDay = `due by the end of ${formatDay(o.due, o.timeZone, o.now)}`
   const because = j.reason && j.state !== 'on-time' ? ` Last step: ${j.reason}.` : ''
@@ -69,14 +74,19 @@ async function notBooked(db: Db, workshopId: number, orderId: number) {
   return { reason: last.details.reason, at: new Date(last.at).toISOString() }
 }
 
-/** Expected completion of each job bag of an order on the live plan, whether it is at risk or late, and why. */
+/** Expected completion of each job bag of an order on the live plan (cancelled ones left out), whether it is at risk or late, and why. */
 export async function orderForecast(deps: Deps, actor: Actor, orderId: number, now = new Date()): Promise<OrderForecast> {
   const order = await requireOwned(deps.db, s.orders, 'Order', orderId, actor.workshopId)
   const [w] = await deps.db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
   const tz = w!.timeZone
   const day = dayjs(now).tz(tz).format('YYYY-MM-DD')
   const board = await boardData(deps.db, actor.workshopId, { from: day, to: day, now })
-  const bags = await deps.db.select().from(s.jobBags).where(eq(s.jobBags.orderId, orderId)).orderBy(asc(s.jobBags.number))
+  // A cancelled job bag will not be made: it has no finish to forecast and does not hold the order's back (as in the list).
+  const bags = await deps.db
+    .select()
+    .from(s.jobBags)
+    .where(and(eq(s.jobBags.orderId, orderId), ne(s.jobBags.status, 'cancelled')))
+    .orderBy(asc(s.jobBags.number))
   const due = order.promisedDate ?? order.dueDate
   const when = (iso: string) => formatInstant(iso, tz, now)
   const jobBags: JobBagForecast[] = bags.map((b) => {
@@ -94,7 +104,7 @@ export async function orderForecast(deps: Deps, actor: Actor, orderId: number, n
       }
     }
     const expectedDate = j.expectedCompletion ? dayjs(j.expectedCompletion).tz(tz).format('YYYY-MM-DD') : null
-    const why = forecastWhy(j, { due, dayMinutes: board.dayMinutes, timeZone: tz, now, when })
+    const why = forecastWhy(j, { due, dayMinutes: board.dayMinutes, timeZone: tz, now, when, livePlan: board.plan !== null })
     return { ...base, expectedCompletion: j.expectedCompletion, expectedDate, state: j.state, latenessMinutes: j.latenessMinutes, why }
   })
   const rank: JobBagForecast['state'][] = ['late', 'at-risk', 'unplanned', 'on-time', 'finished']

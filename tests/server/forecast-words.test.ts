@@ -4,7 +4,14 @@ import { describe, expect, it } from 'vitest'
 import { forecastWhy } from '../../server/services/order-forecast'
 
 // The demo's working day: 08:30–12:30 and 13:15–17:00 = 240 + 225 = 465 min. 2026-12-11 is a Friday.
-const o = { due: '2026-12-11', dayMinutes: 465, timeZone: 'Europe/London', now: new Date('2026-12-07T09:00:00Z'), when: () => 'Thu 17 Dec 10:00' }
+const o = {
+  due: '2026-12-11',
+  dayMinutes: 465,
+  timeZone: 'Europe/London',
+  now: new Date('2026-12-07T09:00:00Z'),
+  when: () => 'Thu 17 Dec 10:00',
+  livePlan: true,
+}
 const job = (state: 'late' | 'at-risk' | 'on-time', lateWorkingMinutes: number) => ({
   state,
   expectedCompletion: '2026-12-17T10:00:00Z',
@@ -30,5 +37,10 @@ describe('order forecast words', () => {
   it('when the due day is in another year than now, then the year is written', () => {
     // 2027-01-08 is a Friday.
     expect(forecastWhy(job('late', 60), { ...o, due: '2027-01-08' })).toBe('Expected Thu 17 Dec 10:00, 1 h late (due by the end of Fri 8 Jan 2027).')
+  })
+  it('when a piece has no bar, then it says to publish a plan only while none is live, and else that a planner run would place it', () => {
+    const none = { state: 'unplanned' as const, expectedCompletion: null, lateWorkingMinutes: 0, reason: null }
+    expect(forecastWhy(none, { ...o, livePlan: false })).toBe('Not on the live plan yet: publish a plan to get a date.')
+    expect(forecastWhy(none, o)).toBe('Not in the live plan yet: run the planner to place it, then publish its plan to get a date.')
   })
 })

@@ -14,6 +14,7 @@ const PASSWORD = 'orders-expected-pass'
 let t: TestApp
 let sales: Agent
 const ids: Record<string, number> = {}
+let workshop = 0
 
 // Next week's Monday and the days after it.
 const monday = dayjs().tz(TZ).startOf('isoWeek').add(7, 'day')
@@ -29,6 +30,7 @@ beforeAll(async () => {
     weekPattern: week,
     users: [{ email: 'sales@expected.test', name: 'Sal Es', role: 'sales', passwordHash: await hashPassword(PASSWORD) }],
   })
+  workshop = workshopId
   sales = new Agent(t.app)
   expect((await sales.signIn('sales@expected.test', PASSWORD)).status).toBe(200)
   const [sol] = await t.db.insert(s.operationKinds).values({ workshopId, code: 'SOL', name: 'Soldering' }).returning()
@@ -76,6 +78,20 @@ beforeAll(async () => {
   await order('retimed', day(3), { shape: on(bo, 2, '14:00', '16:00'), polish: on(bo, 3, '09:00', '10:00') })
   // Ready to collect: no forecast.
   await order('ready', day(4), {}, 'ready')
+  // Due Friday; its piece shaped and polished on Monday, 13:00–16:00, and a second piece cancelled before any of it was planned.
+  await order('with-cancelled', day(4), { shape: on(ada, 0, '13:00', '15:00'), polish: on(ada, 0, '15:00', '16:00') })
+  const [gone] = await t.db
+    .insert(s.jobBags)
+    .values({
+      workshopId,
+      orderId: ids['with-cancelled']!,
+      number: 'EX-with-cancelled-2',
+      piece: 'Pendant',
+      params: { metal: 'silver-925', quantity: 1 } as never,
+      status: 'cancelled',
+    })
+    .returning()
+  await t.db.insert(s.operations).values({ jobBagId: gone!.id, seq: 0, key: 'shape', kindId: sol!.id, name: 'Shape', estimateMinutes: 120, status: 'ready' })
 })
 afterAll(async () => {
   await t?.close()
@@ -126,5 +142,44 @@ describe('the order list’s expected finish', () => {
 
   it('when an order is ready to collect, then the list gives no forecast for it', async () => {
     expect((await listed())[ids.ready!]).toBeNull()
+  })
+
+  it('when one of an open order’s job bags is cancelled, then the drawer leaves it out as the list does, and the order reads on time', async () => {
+    // The piece still made ends Monday 16:00; due by the end of Friday: Monday 16–17 (60) + Tuesday to Friday 4 × 480 = 1,980 min
+    // = 4 working days 1 h to spare. The cancelled pendant never counts as work not in the plan.
+    expect((await listed())[ids['with-cancelled']!]).toEqual({
+      date: day(0),
+      risk: 'on-time',
+      margin: '4 working days 1 h to spare',
+      offPlan: 'none',
+      done: false,
+    })
+    const f = await sales.get(`/api/orders/${ids['with-cancelled']}/forecast`)
+    expect(f.status, JSON.stringify(f.body)).toBe(200)
+    expect(f.body.state).toBe('on-time')
+    expect(f.body.jobBags.map((b: { number: string }) => b.number)).toEqual(['EX-with-cancelled-1'])
+    expect(f.body.jobBags[0]).toMatchObject({ expectedDate: day(0), state: 'on-time' })
+  })
+})
+
+describe('what the drawer says of a piece with no bar', () => {
+  const whyOf = async (title: string) => {
+    const f = await sales.get(`/api/orders/${ids[title]}/forecast`)
+    expect(f.status, JSON.stringify(f.body)).toBe(200)
+    return { plan: f.body.plan, state: f.body.jobBags[0].state, why: f.body.jobBags[0].why as string }
+  }
+
+  it('when no plan has been published, then it says to publish one', async () => {
+    expect(await whyOf('unplanned')).toEqual({ plan: null, state: 'unplanned', why: 'Not on the live plan yet: publish a plan to get a date.' })
+  })
+
+  it('when a plan is live, then it says the piece is not in it yet and that a planner run would place it, not to publish a plan', async () => {
+    // The bars above stand as the live plan; now a version of it is published too.
+    await t.db.insert(s.planVersions).values({ workshopId: workshop, number: 1, status: 'published', publishedAt: at(-7, '09:00') })
+    const { plan, state, why } = await whyOf('unplanned')
+    expect(plan).toMatchObject({ number: 1 })
+    expect(state).toBe('unplanned')
+    expect(why).toBe('Not in the live plan yet: run the planner to place it, then publish its plan to get a date.')
+    expect(why).not.toContain('publish a plan')
   })
 })

@@ -114,6 +114,18 @@ const metalStore: LiveRoute = {
   },
 }
 const keys = (of: (p: Payload) => string[]): LiveRoute => ({ store: 'keys', apply: (p, c) => c.live.invalidate(of(p)) })
+/**
+ * 'live-plan': what the live plan expects of the orders (the order list's Expected column, an order's forecast) may have changed —
+ * a plan published, a bar moved or booked, a step or job bag changed (a claim, a start, a finish, a cancelled piece), or the
+ * calendar it is checked against. Drafts, money, metal, files and other master data leave it as it is.
+ */
+const livePlan = keys(() => ['live-plan'])
+const calendarLivePlan: LiveRoute = {
+  ...livePlan,
+  apply: (p, c) => {
+    if (CALENDAR_ENTITIES.has(String(p.entity))) livePlan.apply(p, c)
+  },
+}
 const moneyKeys = keys((p) => keysOf('money', num(p.orderId) !== null && `order:${p.orderId}:money`, num(p.quoteId) !== null && `quote:${p.quoteId}:money`))
 
 /** Master data by entity: the store that lists it reloads when it was loaded (a screen showing it). */
@@ -170,10 +182,10 @@ const masterData: LiveRoute = {
 
 /** Every event and the stores it concerns. */
 export const LIVE_TABLE: Record<EventName, LiveRoute[]> = {
-  'operation:changed': [boardBars((p) => num(p.id)), benchQueue(true, true), keys((p) => [`operation:${p.id}`])],
-  'jobBag:changed': [boardBars(), benchQueue(true), keys((p) => [`jobBag:${p.id}`])],
-  'plan:changed': [{ ...boardBars((p) => num(p.operationId) ?? num(p.id)), ownWritesReload: true }, boardVersions, benchQueue(false, true)],
-  'plan:published': [boardPlans, benchQueue(false)],
+  'operation:changed': [boardBars((p) => num(p.id)), benchQueue(true, true), keys((p) => [`operation:${p.id}`, 'live-plan'])],
+  'jobBag:changed': [boardBars(), benchQueue(true), keys((p) => [`jobBag:${p.id}`, 'live-plan'])],
+  'plan:changed': [{ ...boardBars((p) => num(p.operationId) ?? num(p.id)), ownWritesReload: true }, boardVersions, benchQueue(false, true), livePlan],
+  'plan:published': [boardPlans, benchQueue(false), livePlan],
   'plan:discarded': [boardPlans],
   'plan:drafted': [
     {
@@ -201,7 +213,7 @@ export const LIVE_TABLE: Record<EventName, LiveRoute[]> = {
   'order:updated': [boardBars(), keys((p) => ['orders', `order:${p.id}`])],
   // A calendar change (closures, opening hours, a bench's downtime, someone's leave or hours) stores the live plan's findings and
   // figures again: the board's plan versions reload too; other master data (customers, routings, …) leaves them as they are.
-  'masterdata:changed': [boardBars(), calendarVersions, masterData, keys((p) => [`masterdata:${p.entity}`])],
+  'masterdata:changed': [boardBars(), calendarVersions, masterData, keys((p) => [`masterdata:${p.entity}`]), calendarLivePlan],
   'file:added': [keys((p) => keysOf(num(p.orderId) !== null && `order:${p.orderId}:files`, num(p.jobBagId) !== null && `jobBag:${p.jobBagId}:files`))],
   'file:removed': [keys((p) => keysOf(num(p.orderId) !== null && `order:${p.orderId}:files`, num(p.jobBagId) !== null && `jobBag:${p.jobBagId}:files`))],
   'metal:recorded': [metalStore, keys((p) => keysOf('metal', num(p.jobBagId) !== null && `metal:jobBag:${p.jobBagId}`))],

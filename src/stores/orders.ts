@@ -23,6 +23,8 @@ export const useOrdersStore = defineStore('orders', () => {
     order: 'asc',
   })
   const { loading, error, track } = useLoading()
+  /** Live reloads under way: the page is being brought up to date in place (no loading mask over rows already shown). */
+  const refreshing = ref(0)
 
   /** Asks for the page of the current query; an answer to an older query that arrives late is not shown. */
   async function load() {
@@ -34,6 +36,15 @@ export const useOrdersStore = defineStore('orders', () => {
         total.value = page.total
       },
     })
+  }
+  /** Reloads the page shown after a live change (the plan, an order), keeping the rows on screen while it asks. */
+  async function refresh() {
+    refreshing.value++
+    try {
+      await load()
+    } finally {
+      refreshing.value--
+    }
   }
   async function create(input: OrderInput) {
     const o = await ordersApi.createOrder(input)
@@ -58,5 +69,5 @@ export const useOrdersStore = defineStore('orders', () => {
     return o
   }
 
-  return { items, total, query, loading, error, load, create, update, get: ordersApi.getOrder }
+  return { items, total, query, loading, refreshing, error, load, refresh, create, update, get: ordersApi.getOrder }
 })

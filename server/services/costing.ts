@@ -2,11 +2,13 @@
 // ledger, stone counts, outside costs and time records — one function per side, all in integer minor units (shared/domain/costing.ts).
 import { and, asc, eq, inArray } from 'drizzle-orm'
 import {
+  CUSTOMERS_METAL_CAVEAT,
   METAL_AS_ESTIMATED_WORDS,
   WORKSHOP_MARGIN_PCT,
   addBreakdowns,
   mulDivRound,
   breakdown,
+  customersPieceNote,
   labourMinor,
   margin,
   marginCaveat,
@@ -18,7 +20,7 @@ import {
   type Missing,
 } from '../../shared/domain/costing'
 import { routingStepMinutes } from '../../shared/domain/estimate'
-import { PIECE_METAL_ALLOY, gToMg, mgToG } from '../../shared/domain/metal'
+import { PIECE_METAL_ALLOY, gToMg, mgToG, worksOnCustomersPiece } from '../../shared/domain/metal'
 import { countsOf } from '../../shared/domain/stones'
 import type { CostingEstimate, CostingEstimateInput, CostingSide, OrderCosting, PieceEstimate } from '../../shared/schemas/costing'
 import type { PieceParams } from '../../shared/schemas/order'
@@ -96,8 +98,11 @@ const side = (cost: CostBreakdown, priceMinor: number, missing: Missing[]): Cost
   return { cost, marginMinor: m.marginMinor, marginPct: m.marginPct, missing: seen, caveat: marginCaveat(seen) }
 }
 
-/** Metal at estimate: the piece's typical weight × quantity at its alloy's price on the day. */
-function metalEstimate(book: PriceBook, params: PieceParams, day: string) {
+/**
+ * Metal at estimate: the piece's typical weight × quantity at its alloy's price on the day. When the work is on the customer's own
+ * piece (`customersPiece`), that weight is the metal added from stock — charged the same way — and the piece says so (`note`).
+ */
+function metalEstimate(book: PriceBook, params: PieceParams, day: string, customersPiece: boolean) {
   const alloy = book.forPiece(params.metal)
   const price = alloy ? book.on(alloy.id, day) : null
   const missing: Missing[] = []
@@ -106,7 +111,15 @@ function metalEstimate(book: PriceBook, params: PieceParams, day: string) {
   else if (params.metalWeightG === undefined) missing.push('no-metal-weight')
   else if (!price) missing.push('no-metal-price')
   else minor = metalMinor(gToMg(params.metalWeightG) * params.quantity, price.pricePerGramMinor)
-  return { minor, missing, alloyName: alloy?.name ?? null, pricePerGramMinor: price?.pricePerGramMinor ?? null, priceOn: price?.effectiveOn ?? null }
+  return {
+    minor,
+    missing,
+    alloyName: alloy?.name ?? null,
+    pricePerGramMinor: price?.pricePerGramMinor ?? null,
+    priceOn: price?.effectiveOn ?? null,
+    customersPiece,
+    note: customersPiece ? customersPieceNote(params.metalWeightG, params.quantity) : null,
+  }
 }
 
 /** Stones at estimate: the stone list (cost each × count per piece × quantity), else the piece's count × its typical cost. */
@@ -182,7 +195,7 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
       labour += labourMinor(m, average)
     }
     if (uncosted) missing.push(uncosted === outsideSteps ? 'outside-uncosted' : 'some-outside-uncosted')
-    const metal = metalEstimate(book, p.params, day)
+    const metal = metalEstimate(book, p.params, day, worksOnCustomersPiece(t, p.params))
     const stones = stonesEstimate(p.params, p.stones)
     return {
       piece: p.piece,
@@ -192,6 +205,8 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
       pricePerGramMinor: metal.pricePerGramMinor,
       priceOn: metal.priceOn,
       labourMinutes: Math.round(minutes),
+      customersPiece: metal.customersPiece,
+      metalNote: metal.note,
       cost: breakdown({ metalMinor: metal.minor, stonesMinor: stones.minor, outsideMinor: outside, labourMinor: labour }),
       missing: [...metal.missing, ...stones.missing, ...missing],
     }
@@ -210,6 +225,7 @@ export async function estimate(db: Tx, workshopId: number, input: CostingEstimat
     suggestedPriceMinor: suggestedPriceMinor(cost.totalMinor, WORKSHOP_MARGIN_PCT, currency),
     currency,
     pricedOn: day,
+    customersMetalCaveat: pieces.some((p) => p.customersPiece) ? CUSTOMERS_METAL_CAVEAT : null,
   }
 }
 
@@ -251,6 +267,9 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
     .where(inArray(operations.jobBagId, bagIds))
     .orderBy(asc(operations.seq))
   const routingIds = [...new Set(bags.map((b) => b.routingId).filter((x): x is number => x !== null)), -1]
+  const kindOf = new Map(
+    (await db.select({ id: routings.id, kind: routings.kind }).from(routings).where(inArray(routings.id, routingIds))).map((r) => [r.id, r]),
+  )
   const stepCosts = await db.select().from(routingStepCosts).where(inArray(routingStepCosts.routingId, routingIds))
   const opIds = [...ops.map((o) => o.op.id), -1]
   const opCosts = await db.select().from(operationCosts).where(inArray(operationCosts.operationId, opIds))
@@ -334,8 +353,8 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
           outsideAct += invoiced !== null ? invoiced : expected
         }
       }
-      // Metal at estimate, on the day the order was taken.
-      const mEst = metalEstimate(book, params, orderDay)
+      // Metal at estimate, on the day the order was taken (on the customer's own piece: the metal added, as the dialog counted it).
+      const mEst = metalEstimate(book, params, orderDay, worksOnCustomersPiece(bag.routingId === null ? null : kindOf.get(bag.routingId), params))
       const sLines = lines.filter((l) => l.jobBagId === bag.id)
       const sEst = stonesEstimate(
         params,
@@ -352,6 +371,8 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
         pricePerGramMinor: mEst.pricePerGramMinor,
         priceOn: mEst.priceOn,
         labourMinutes: Math.round(bagMinutes),
+        customersPiece: mEst.customersPiece,
+        metalNote: mEst.note,
         cost: bagEst,
         missing: [...mEst.missing, ...sEst.missing],
       })
@@ -418,6 +439,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       suggestedPriceMinor: suggestedPriceMinor(estCost.totalMinor, WORKSHOP_MARGIN_PCT, currency),
       currency,
       pricedOn: orderDay,
+      customersMetalCaveat: pieces.some((p) => p.customersPiece) ? CUSTOMERS_METAL_CAVEAT : null,
       customerMetalLossG: mgToG(customerLossMg),
       workRecorded,
       estimateMinutes: estMin,

@@ -133,6 +133,17 @@ export function marginCaveat(missing: readonly Missing[], words: Partial<Record<
   return seen.map((m) => words[m] ?? MISSING_WORDS[m]).join('; ')
 }
 
+/**
+ * A piece whose work is on the customer's own piece (a repair, `worksOnCustomersPiece`): its metal weight on the order form is the
+ * metal the workshop adds from its stock, charged at the price per gram; the customer's piece itself is never entered nor charged.
+ */
+export function customersPieceNote(metalAddedG: number | undefined, quantity: number): string {
+  const added = metalAddedG === undefined ? 'no metal added entered' : `metal added ${metalAddedG} g${quantity > 1 ? ` a piece × ${quantity}` : ''}`
+  return `customer’s own piece: not charged; ${added}`
+}
+/** Beside an estimate with such a piece: what the estimate leaves out of the customer's metal, and where it shows instead. */
+export const CUSTOMERS_METAL_CAVEAT = 'the loss of the customer’s own metal is not in the estimate: it shows at actual once their piece is weighed'
+
 /** The note above the costing table and at the end of its CSV. */
 export const COSTING_NOTE =
-  'Cost = metal (net weight in the piece plus loss, at the alloy’s price on the day it was issued; the customer’s own metal free) + stones (cost each × set, broken and lost; the customer’s own free) + outside work + labour (hours × each person’s rate). At estimate: the routing’s minutes, the piece’s metal weight at the price on the order’s day, the stone list. At actual, a piece with no metal weighed counts its metal as estimated, never as free. Beside each margin: what could not be counted.'
+  'Cost = metal (net weight in the piece plus loss, at the alloy’s price on the day it was issued; the customer’s own metal free) + stones (cost each × set, broken and lost; the customer’s own free) + outside work + labour (hours × each person’s rate). At estimate: the routing’s minutes, the piece’s metal weight (on a repair, only the metal added to the customer’s piece) at the price on the order’s day, the stone list. At actual, a piece with no metal weighed counts its metal as estimated, never as free. Beside each margin: what could not be counted.'

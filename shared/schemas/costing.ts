@@ -45,6 +45,13 @@ export const pieceEstimate = z.object({
   pricePerGramMinor: wireInt.nullable(),
   priceOn: z.string().nullable(),
   labourMinutes: z.number(),
+  /**
+   * The work is on the customer's own piece (a repair: shared/domain/metal.ts worksOnCustomersPiece): `metalWeightG` is then the metal
+   * the workshop adds, charged; their piece is not charged.
+   */
+  customersPiece: z.boolean(),
+  /** For such a piece, how its metal was counted, in words ("customer’s own piece: not charged; metal added 0.4 g"); else null. */
+  metalNote: z.string().nullable(),
   cost: costBreakdown,
   missing: z.array(missing),
 })
@@ -72,6 +79,8 @@ export const costingEstimate = z.object({
   currency: z.string(),
   /** The day the alloy prices were taken from. */
   pricedOn: z.string(),
+  /** With a piece on the customer's own piece: that the loss of their metal is not in the estimate (shared/domain/costing.ts); else null. */
+  customersMetalCaveat: z.string().nullable(),
 })
 export type CostingEstimate = z.infer<typeof costingEstimate>
 

@@ -310,6 +310,77 @@ describe('an order costed', () => {
   })
 })
 
+describe('a repair on the customer’s own piece', () => {
+  let repairId: number
+  let newPieceId: number
+  beforeAll(async () => {
+    const manager = await signedIn(t.app, 'manager')
+    const kinds = Object.fromEntries((await owner.get('/api/operation-kinds')).body.map((k: { code: string; id: number }) => [k.code, k.id]))
+    // One bench step of 30 min on both routings; only the routing's kind differs.
+    const steps = [{ key: 'retip', kindId: kinds.soldering, name: 'Retip a claw', baseMinutes: 30 }]
+    const repair = await manager.post('/api/routings', { code: 'costing-retip', name: 'Fixture: retip', description: 'Repair fixture.', kind: 'repair', steps })
+    const fresh = await manager.post('/api/routings', {
+      code: 'costing-new',
+      name: 'Fixture: new piece',
+      description: 'New piece fixture.',
+      kind: 'piece',
+      steps,
+    })
+    expect([repair.status, fresh.status]).toEqual([201, 201])
+    repairId = repair.body.id
+    newPieceId = fresh.body.id
+  })
+  const added = { piece: 'Customer’s ring, one claw retipped', params: { metal: 'gold-18ct', metalWeightG: 0.4 } }
+  const NOTE = 'customer’s own piece: not charged; metal added 0.4 g'
+  const LOSS_CAVEAT = 'the loss of the customer’s own metal is not in the estimate: it shows at actual once their piece is weighed'
+
+  it('when 0.4 g of 18 ct is entered on a repair, then only that metal added is charged and the piece and the estimate say so', async () => {
+    const r = await sales.post('/api/costing/estimate', { pieces: [{ ...added, routingId: repairId }] })
+    expect(r.status).toBe(200)
+    // Metal added 400 mg × 6,000 p/g (today's 18 ct price, set above) ÷ 1,000 = 2,400 p; labour 30 min × 3,200 p/h ÷ 60 = 1,600 p. Total 4,000 p.
+    expect(r.body.estimate.cost).toEqual({ metalMinor: 2_400, stonesMinor: 0, outsideMinor: 0, labourMinor: 1_600, totalMinor: 4_000 })
+    expect(r.body.pieces[0]).toMatchObject({ customersPiece: true, metalNote: NOTE, metalWeightG: 0.4, pricePerGramMinor: 6000 })
+    // The loss of their metal is no cost the margin leaves out: the caveat beside it is unchanged, and the loss is said apart.
+    expect(r.body.estimate.caveat).toBe('metal, stones, outside work and labour counted')
+    expect(r.body.customersMetalCaveat).toBe(LOSS_CAVEAT)
+  })
+
+  it('when the same weight is entered on a new-piece routing, then it is charged as before with no note', async () => {
+    const r = await sales.post('/api/costing/estimate', { pieces: [{ ...added, piece: 'New claw setting', routingId: newPieceId }] })
+    // 400 mg × 6,000 p/g ÷ 1,000 = 2,400 p, as on the repair: the weight is charged either way, only its meaning differs.
+    expect(r.body.estimate.cost.metalMinor).toBe(2_400)
+    expect(r.body.pieces[0]).toMatchObject({ customersPiece: false, metalNote: null })
+    expect(r.body.customersMetalCaveat).toBeNull()
+  })
+
+  it('when a resize is recorded on a new-piece routing, then the piece is the customer’s and the added metal is counted per piece', async () => {
+    const resize = { resizeFrom: { scale: 'uk', value: 'L' }, resizeTo: { scale: 'uk', value: 'N' } }
+    const r = await sales.post('/api/costing/estimate', {
+      pieces: [{ ...added, piece: 'Two rings sized up', routingId: newPieceId, params: { ...added.params, ...resize, quantity: 2 } }],
+    })
+    // 2 pieces × 400 mg = 800 mg × 6,000 p/g ÷ 1,000 = 4,800 p.
+    expect(r.body.estimate.cost.metalMinor).toBe(4_800)
+    expect(r.body.pieces[0]).toMatchObject({ customersPiece: true, metalNote: 'customer’s own piece: not charged; metal added 0.4 g a piece × 2' })
+  })
+
+  it('when an order is taken for the repair, then its costing counts the same metal added with the same note as the dialog did', async () => {
+    const o = await sales.post('/api/orders', {
+      customerId,
+      title: 'Claw retip',
+      dueDate: '2031-01-31',
+      priceQuotedMinor: 9_000,
+      pieces: [{ ...added, routingId: repairId }],
+    })
+    expect(o.status).toBe(201)
+    const r = await owner.get(`/api/orders/${o.body.id}/costing`)
+    expect(r.status).toBe(200)
+    // As the estimate above: 2,400 p metal added + 1,600 p labour = 4,000 p.
+    expect(r.body.estimate.cost).toEqual({ metalMinor: 2_400, stonesMinor: 0, outsideMinor: 0, labourMinor: 1_600, totalMinor: 4_000 })
+    expect(r.body.pieces[0]).toMatchObject({ customersPiece: true, metalNote: NOTE })
+    expect(r.body.customersMetalCaveat).toBe(LOSS_CAVEAT)
+  })
+})
+
 describe('a workshop pricing in yen', () => {
   it('when the workshop currency has no decimals, then rates, outside costs and prices are whole yen and the suggested price is a whole yen', async () => {
     // ISO 4217: JPY has no minor unit, so 1 minor unit = ¥1. Everyone at ¥3,000 an hour, the hallmark at ¥4,501, brass (not priced), no stones.

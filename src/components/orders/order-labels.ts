@@ -1,5 +1,6 @@
 // Words and tag colours for order, job bag and operation states, and for metals.
 import type { OrderStatus } from '@shared/domain/status'
+import type { CostingEstimate } from '@shared/schemas/costing'
 import { METAL_NAMES, type METALS } from '@shared/schemas/order'
 
 type TagType = 'primary' | 'success' | 'warning' | 'danger' | 'info'
@@ -52,3 +53,16 @@ export function stepOrderLabel(after: string[], steps: { key: string; name: stri
   const names = after.map((k) => steps.find((s) => s.key === k)?.name ?? k)
   return `after ${names.length > 1 ? `${names.slice(0, -1).join(', ')} and ${names[names.length - 1]}` : names[0]}`
 }
+
+/**
+ * The order form's metal weight: the metal in a new piece, or — on the customer's own piece (a repair) — only the metal the workshop
+ * adds from its stock, since their piece is never charged.
+ */
+export const metalWeightLabel = (onCustomersPiece: boolean) =>
+  onCustomersPiece ? 'Metal added to their piece (g, typical)' : 'Metal in one piece (g, typical)'
+export const METAL_ADDED_HELP = 'The customer’s own piece is not charged; enter only the metal you add.'
+
+/** Each piece's word on how its metal was counted ("Ring — customer’s own piece: not charged; metal added 0.4 g"), for pieces that have one. */
+export const metalNotes = (c: Pick<CostingEstimate, 'pieces'>) => c.pieces.filter((p) => p.metalNote).map((p) => `${p.piece} — ${p.metalNote}`)
+/** A note of the costing's as a sentence of its own: capital first, full stop after. */
+export const asSentence = (words: string) => `${words.charAt(0).toUpperCase()}${words.slice(1)}.`

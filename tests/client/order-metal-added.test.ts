@@ -18,7 +18,7 @@ const routing = (id: number, name: string, kind: Routing['kind']): Routing => ({
   version: 1,
   warnings: [],
 })
-const ROUTINGS = [routing(1, 'Signet ring', 'piece'), routing(2, 'Claw retip', 'repair')]
+const ROUTINGS = [routing(1, 'Signet ring', 'piece'), routing(2, 'Claw retip', 'repair'), routing(3, 'Ring resize', 'repair')]
 const zero = { metalMinor: 0, stonesMinor: 0, outsideMinor: 0, labourMinor: 0, totalMinor: 0 }
 /** An answer as the server gives it for one repair piece: the note and the caveat come from the server, the dialog only shows them. */
 const ESTIMATE: CostingEstimate = {
@@ -115,6 +115,32 @@ describe('the metal weight on a repair', () => {
     expect(q('[data-test=order-customers-metal]')?.textContent?.trim()).toBe(
       'the loss of the customer’s own metal is not in the estimate: it shows at actual once their piece is weighed',
     )
+  })
+})
+
+describe('ring sizes typed for a resize', () => {
+  it('when another routing is picked after sizes were typed for a resize, then the sizes are not sent with the piece', async () => {
+    const { estimateCost } = await import('@/api/costing')
+    await openDialog()
+    await pickRouting('Ring resize')
+    for (const [id, size] of [
+      ['resize-from-0', 'M'],
+      ['resize-to-0', 'P'],
+    ] as const) {
+      const input = q(`input[data-test=${id}-value], [data-test=${id}-value] input`) as HTMLInputElement
+      input.value = size
+      input.dispatchEvent(new Event('input'))
+    }
+    await flushPromises()
+    await pickRouting('Signet ring')
+    // The estimate is asked for 400 ms after the form stops changing; the last request is for the signet ring.
+    await new Promise((r) => setTimeout(r, 500))
+    await flushPromises()
+    const calls = vi.mocked(estimateCost).mock.calls
+    const last = calls[calls.length - 1]![0] as { pieces: { routingId: number; params: Record<string, unknown> }[] }
+    expect(last.pieces[0]!.routingId).toBe(1)
+    expect(last.pieces[0]!.params).not.toHaveProperty('resizeFrom')
+    expect(last.pieces[0]!.params).not.toHaveProperty('resizeTo')
   })
 })
 

@@ -16,7 +16,7 @@ import { cachedOr, type Cache } from '../lib/cache'
 import { engineId, fromStored, type Assignments } from '../planning/assignments'
 import { loadPlanningData, type PlanningData } from '../planning/problem'
 import { getPlan, readDraft } from '../planning/drafts'
-import { checkLivePlan, readLivePlan } from '../planning/live-plan'
+import { checkLivePlan, readLivePlan, retimeLivePlan } from '../planning/live-plan'
 import type { RuleViolation } from '../../shared/domain/rules'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
 import type { BoardActual, BoardPlanned } from '../../shared/schemas/board'
@@ -532,7 +532,9 @@ async function finishedItems(db: Db, workshopId: number, winStart: Date, winEnd:
 export async function weekLoad(db: Db, workshopId: number, o: { from: string; to: string; planId?: number; now?: Date }) {
   const data = await loadPlanningData(db, workshopId, o.now ?? new Date())
   const c = data.clock
-  const assignments = shown(o.planId ? await readDraft(db, workshopId, o.planId) : (await readLivePlan(db, workshopId)).assignments)
+  // Re-timed against the calendar as it is now (bars that still fit stay as they are): work planned in time that leave, a closure
+  // or downtime has since taken counts where it would now be done, as the plan's figures count it, rather than vanishing.
+  const assignments = shown(retimeLivePlan(data, o.planId ? await readDraft(db, workshopId, o.planId) : (await readLivePlan(db, workshopId)).assignments))
   const days: string[] = []
   for (let d = dayjs(o.from); !d.isAfter(dayjs(o.to)); d = d.add(1, 'day')) days.push(d.format('YYYY-MM-DD'))
   // Today counts from now: the working time already past today is neither available nor still planned (days before today keep

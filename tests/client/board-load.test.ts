@@ -292,7 +292,7 @@ describe('the load table with people and skills', () => {
   it("when a skill's hours are shown, then the group and the cell say they are what its holders have left after other work", () => {
     const w = table()
     const help = w.get('[data-test=load-section-skill]').text()
-    expect(help).toContain('the people who hold the skill have left once their other work is planned')
+    expect(help).toContain('the hours its holders have left once their work of other kinds is planned; a free hour counts under every skill its holder has')
     expect(help).not.toContain('everyone who holds it')
     expect(w.get('[data-test=load-cell-skill-21-2026-12-11]').attributes('title')).toBe(
       'Enamelling, Fri 11 Dec: 0:00 h planned of 8:00 h its holders have free of other work (0 %), 0 operations',

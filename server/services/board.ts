@@ -6,7 +6,7 @@ import { gzipSync } from 'node:zlib'
 import { and, eq, inArray, isNotNull, sql } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as s from '../db/schema/index'
-import { dayjs, dayRange, subtract, type Interval } from '../lib/time'
+import { dayjs, dayRange, formatInstant, subtract, type Interval } from '../lib/time'
 import { clipToWindows, formatMinute, jointWindows, weekdayOf } from '../scheduler/calendar.ts'
 import type { StartReason } from '../scheduler/model.ts'
 import { explainStarts, outsideLength, type ExplainCalendar } from '../scheduler/explain.ts'
@@ -192,7 +192,13 @@ export function jobFinishes(
     if (!a || !f || m.op.status === 'done') continue
     const end = new Date(f.end).getTime()
     const cur = completion.get(m.bag.id)
-    if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: o.broken.get(id) ?? a.reason?.detail ?? null })
+    // A step the re-timing moved (behind work the calendar no longer allows where it was planned) no longer starts for its bar's
+    // reason: say that it moved, not why its bar started when it did.
+    const moved = f !== a && (f.start !== a.start || f.end !== a.end)
+    const why = moved
+      ? `moved later, behind work the calendar no longer allows where it was planned (its bar ends ${formatInstant(a.end, c.timeZone, c.toDate(data.problem.now))})`
+      : a.reason?.detail
+    if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: o.broken.get(id) ?? why ?? null })
   }
   // A job bag with a step that no longer fits the calendar names it as the reason for its finish.
   for (const [id, why] of o.broken) {

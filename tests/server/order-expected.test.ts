@@ -76,6 +76,8 @@ beforeAll(async () => {
   await order('partly', day(4), { shape: on(ada, 3, '09:00', '11:00') })
   // Due Thursday; Bo's shaping Wednesday 14:00–16:00 falls on his leave and his polish Thursday 09:00–10:00 waits behind it.
   await order('retimed', day(3), { shape: on(bo, 2, '14:00', '16:00'), polish: on(bo, 3, '09:00', '10:00') })
+  // Due Thursday; shaped by Bo on Monday, polished by him Thursday 10:00–11:00 — behind his re-timed work of the order above.
+  await order('pushed', day(3), { shape: on(bo, 0, '09:00', '11:00'), polish: on(bo, 3, '10:00', '11:00') })
   // Ready to collect: no forecast.
   await order('ready', day(4), {}, 'ready')
   // Due Friday; its piece shaped and polished on Monday, 13:00–16:00, and a second piece cancelled before any of it was planned.
@@ -138,6 +140,17 @@ describe('the order list’s expected finish', () => {
     expect((await listed())[ids.retimed!]).toEqual({ date: day(3), risk: 'at-risk', margin: 'only 5 h to spare', offPlan: 'none', done: false })
     const f = await sales.get(`/api/orders/${ids.retimed}/forecast`)
     expect(f.body.jobBags[0]).toMatchObject({ expectedCompletion: at(3, '12:00'), state: 'at-risk' })
+  })
+
+  it('when a step is pushed later by another piece’s re-timed work, then its forecast says it moved, not why its bar started', async () => {
+    // Bo's Thursday after the re-timing: the order above's shaping 09:00–11:00 and polish 11:00–12:00 (their bars start before
+    // this one's), so this polish goes to 12:00–13:00. Due by the end of Thursday: 4 h to spare, tight.
+    const f = await sales.get(`/api/orders/${ids.pushed}/forecast`)
+    expect(f.status, JSON.stringify(f.body)).toBe(200)
+    expect(f.body.jobBags[0]).toMatchObject({ expectedCompletion: at(3, '13:00'), state: 'at-risk' })
+    const barEnds = dayjs.tz(`${day(3)} 11:00`, TZ)
+    const when = barEnds.format(barEnds.year() === dayjs().tz(TZ).year() ? 'ddd D MMM HH:mm' : 'ddd D MMM YYYY HH:mm')
+    expect(f.body.jobBags[0].why).toContain(`Last step: moved later, behind work the calendar no longer allows where it was planned (its bar ends ${when}).`)
   })
 
   it('when an order is ready to collect, then the list gives no forecast for it', async () => {

@@ -144,6 +144,8 @@ describe('outside work in the bar details', () => {
     expect(w.find('[data-test="bar-details-planned"]').text()).toBe('out Tue 3 Mar 10:12, back by the end of Thu 5 Mar')
     expect(w.find('[data-test="bar-details-actual"]').text()).toBe('out since Tue 3 Mar 10:12')
     expect(w.text()).not.toContain('00:00')
+    // Away at the outside firm, not at a bench.
+    expect(w.find('[data-test="bar-details-fixed"]').text()).toBe('Sent out and away: it cannot be moved.')
   })
 
   it('when the bar is bench work, then Planned still shows its clock times, and finished work its hours on the clock', () => {

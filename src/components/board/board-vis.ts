@@ -589,7 +589,10 @@ export type KeyMove = { body: MoveInput; what: string } | { refused: string } | 
 export function keyMove(item: BoardItem, key: string, shift: boolean, data: Pick<BoardData, 'benches' | 'people'>, rowsBy: RowsBy): KeyMove {
   if (!['ArrowLeft', 'ArrowRight', 'ArrowUp', 'ArrowDown'].includes(key)) return null
   if (item.status === 'done') return { refused: `“${item.name}” is finished; finished work stays where it happened.` }
-  if (!isDraggable(item, true)) return { refused: `“${item.name}” is being worked on at the bench; it cannot be moved.` }
+  if (!isDraggable(item, true))
+    return {
+      refused: item.outside ? `“${item.name}” has been sent out; it cannot be moved.` : `“${item.name}” is being worked on at the bench; it cannot be moved.`,
+    }
   if (key === 'ArrowLeft' || key === 'ArrowRight') {
     const step = (shift ? KEY_SHIFT_STEP_MINUTES : KEY_STEP_MINUTES) * (key === 'ArrowLeft' ? -1 : 1)
     const start = new Date(parseInstant(item.start).getTime() + step * 60_000)

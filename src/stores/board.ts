@@ -58,6 +58,11 @@ export const useBoardStore = defineStore('board', () => {
    */
   const comparedPlanId = computed(() => viewPlanId.value ?? pendingDraft.value?.id ?? null)
   const viewedPlan = computed(() => (viewPlanId.value ? (versions.value.find((v) => v.id === viewPlanId.value) ?? null) : null))
+  /**
+   * The draft the banner speaks for, and that its Publish and Throw away act on: the draft shown on the board (with two or more
+   * waiting, the manager may show an older one), else the newest draft waiting.
+   */
+  const bannerDraft = computed(() => (viewedPlan.value?.status === 'draft' ? viewedPlan.value : pendingDraft.value))
   const itemsById = computed(() => new Map((data.value?.items ?? []).map((i) => [i.id, i])))
   const jobStates = computed(() => new Map<number, JobState>((data.value?.jobs ?? []).map((j) => [j.jobBagId, j.state])))
   const moved = computed(
@@ -292,6 +297,7 @@ export const useBoardStore = defineStore('board', () => {
     livePlan,
     pendingDraft,
     viewedPlan,
+    bannerDraft,
     itemsById,
     jobStates,
     moved,

@@ -101,4 +101,71 @@ describe('BoardVersionsDrawer', () => {
     await flushPromises()
     expect(listed()).toHaveLength(12)
   })
+
+  it('when three bars differ (one to another person, one to another bench and person, one only in time), then the drawer counts each once, as the banner does', async () => {
+    const change = (operationId: number, c: PlanMove['change']) => ({ ...move, operationId, change: c })
+    mountWith({
+      ...comparison,
+      moves: [change(1, ['person']), change(2, ['bench', 'person', 'time']), change(3, ['time'])],
+      counts: { bench: 1, person: 2, time: 2, new: 0 },
+    })
+    await flushPromises()
+    // 1 + 1 elsewhere and 1 only in time: 2 + 1 = 3 bars.
+    expect(summary()).toBe('3 bars differ: 2 to another bench or person (1 another person, 1 both), 1 only in time')
+  })
+
+  it('when one bar differs, then it reads in the singular', async () => {
+    mountWith(comparison)
+    await flushPromises()
+    expect(summary()).toBe('1 bar differs: 1 only in time')
+  })
+
+  it('when the changes come with newly planned steps last, then the whole list, shown in full, runs by job bag number and then by time', async () => {
+    const m = (operationId: number, jobBagNumber: string, hour: number, c: PlanMove['change'] = ['time']) => ({
+      ...move,
+      operationId,
+      jobBagNumber,
+      name: `Op ${operationId}`,
+      from: c.includes('new') ? null : { ...move.from, operationId, start: at(hour) },
+      to: { ...move.to, operationId, start: at(hour + 1) },
+      change: c,
+    })
+    // Twelve changes to bags 0003 and 0010 in the live plan's order, then three newly planned steps of bags 0002, 0010 and 0003.
+    const moves = [
+      ...Array.from({ length: 6 }, (_, i) => m(500 + i, 'MG26-0003-1', 8 + i)),
+      ...Array.from({ length: 6 }, (_, i) => m(520 + i, 'MG26-0010-1', 8 + i)),
+      m(540, 'MG26-0002-1', 9, ['new']),
+      m(541, 'MG26-0010-1', 7, ['new']),
+      m(542, 'MG26-0003-1', 20, ['new']),
+    ]
+    mountWith({ ...comparison, moves, counts: { bench: 0, person: 0, time: 12, new: 3 } })
+    await flushPromises()
+    document.querySelector<HTMLButtonElement>('button[data-test=plan-compare-all]')!.click()
+    await flushPromises()
+    const listed = [...document.querySelectorAll('[data-test=plan-comparison] li .version__op')].map((e) => e.textContent)
+    expect(listed).toEqual([
+      'MG26-0002-1 Op 540',
+      ...[500, 501, 502, 503, 504, 505, 542].map((id) => `MG26-0003-1 Op ${id}`),
+      ...[541, 520, 521, 522, 523, 524, 525].map((id) => `MG26-0010-1 Op ${id}`),
+    ])
+  })
 })
+
+function mountWith(c: PlanComparison) {
+  return mount(BoardVersionsDrawer, {
+    props: {
+      open: true,
+      versions: [draft],
+      comparison: c,
+      comparing: null,
+      items: new Map(),
+      benchName: new Map([[1, 'Bench 1']]),
+      personName: new Map([[2, 'Ada']]),
+      timeZone: 'Europe/London',
+    },
+    global: { plugins: [ElementPlus] },
+    attachTo: document.body,
+  })
+}
+/** The comparison's line above its list: the total and its parts. */
+const summary = () => document.querySelector('[data-test=plan-comparison] > .mg-small')?.textContent?.replace(/\s+/g, ' ').trim()

@@ -12,7 +12,7 @@ import { audit } from '../services/audit'
 import { dayjs } from '../lib/time'
 import type { Plan } from '../scheduler/model.ts'
 import { fromEnginePlan, fromStored, toStored, type Assignment, type Assignments } from './assignments'
-import { checkLivePlan, latenessFigures, lockLivePlan, readLivePlan, storeLiveFigures, writeAssignment } from './live-plan'
+import { checkLivePlan, latenessFigures, lockLivePlan, readLivePlan, storeLiveFigures, underWayPlacement, UNDER_WAY, writeAssignment } from './live-plan'
 import { loadPlanningData, type PlanningData } from './problem'
 
 export async function listPlans(db: Db, workshopId: number) {
@@ -152,6 +152,38 @@ async function stepNames(db: Db, workshopId: number, ids: number[]) {
   return new Map(rows.map(({ id, ...named }) => [id, named]))
 }
 
+/**
+ * How many of a draft's steps were started at the bench, sent out or finished after the draft was made: publishing it leaves
+ * them where they really are (`publishDraft`).
+ */
+async function startedSince(db: Db, workshopId: number, id: number, ids: number[]) {
+  if (!ids.length) return 0
+  const { createdAt } = await getPlan(db, workshopId, id)
+  const made = new Date(createdAt).getTime()
+  const ops = await db
+    .select({ id: s.operations.id, status: s.operations.status, sentAt: s.operations.plannedStart, finishedAt: s.operations.finishedAt })
+    .from(s.operations)
+    .where(and(inArray(s.operations.id, ids), inArray(s.operations.status, ['running', 'paused', 'done'])))
+  const records = ops.length
+    ? await db
+        .select({ operationId: s.timeRecords.operationId, startedAt: s.timeRecords.startedAt })
+        .from(s.timeRecords)
+        .where(
+          inArray(
+            s.timeRecords.operationId,
+            ops.map((o) => o.id),
+          ),
+        )
+    : []
+  const after = (t: string | null | undefined) => !!t && new Date(t).getTime() > made
+  return ops.filter(
+    (o) =>
+      after(o.finishedAt) ||
+      records.some((r) => r.operationId === o.id && after(r.startedAt)) ||
+      (o.status === 'running' && !records.some((r) => r.operationId === o.id) && after(o.sentAt)),
+  ).length
+}
+
 /** A draft against the live plan as it stands now (or any two versions); each change names its job bag and step. */
 export async function comparePlan(db: Db, workshopId: number, id: number, againstId?: number, now = new Date()) {
   const draft = await readDraft(db, workshopId, id)
@@ -171,6 +203,7 @@ export async function comparePlan(db: Db, workshopId: number, id: number, agains
     planId: id,
     against: againstId ?? 'live',
     moves,
+    underWay: againstId ? 0 : await startedSince(db, workshopId, id, [...draft.keys()]),
     gains: await whatItBuys(db, workshopId, data, buysFrom, draft),
     counts: {
       bench: moves.filter((m) => m.change.includes('bench')).length,
@@ -207,17 +240,27 @@ export async function publishDraft({ db, realtime }: Deps, actor: Actor, id: num
     if (live.planId) await tx.update(s.planVersions).set({ status: 'superseded' }).where(eq(s.planVersions.id, live.planId))
     const now = new Date().toISOString()
     await tx.update(s.planVersions).set({ status: 'published', publishedAt: now, publishedBy: actor.userId }).where(eq(s.planVersions.id, id))
-    // Written onto the operations that are still open; running and finished work keeps what it has. Pins stay as the manager left them.
+    // Written onto the operations still to do. Work under way (running or paused at the bench, sent out) keeps where it
+    // really is, whatever the draft says — it may have started after the draft was made — and finished work keeps what it
+    // has. Pins stay as the manager left them.
     const assignments = fromStored(p.assignments)
     const ids = [...assignments.keys()]
+    const data = await loadPlanningData(tx, actor.workshopId, new Date(now))
+    const underWay = await underWayPlacement(tx, data, live.assignments, ids)
     const open = ids.length ? await tx.select({ id: s.operations.id, status: s.operations.status }).from(s.operations).where(inArray(s.operations.id, ids)) : []
     for (const op of open) {
       if (op.status === 'done' || op.status === 'skipped') continue
+      if ((UNDER_WAY as readonly string[]).includes(op.status)) {
+        const kept = underWay.get(op.id)
+        if (kept) await writeAssignment(tx, kept)
+        continue
+      }
       const { pinned: _pinned, ...a } = assignments.get(op.id)!
       await writeAssignment(tx, a)
     }
-    // Its figures from the plan as written (open work only, read now), not as the planner run saw it.
-    await storeLiveFigures(tx, actor.workshopId)
+    // Its figures and findings from the plan as written (open work only, read now), not as the planner run saw it: a bar
+    // of the draft that work under way now holds up is a finding, and the figures are those of the plan re-timed behind it.
+    await storeLiveFigures(tx, actor.workshopId, { data })
     await audit(tx, actor, 'publish', 'plan', id, { number: p.number, replaced: live.number })
     return { id, number: p.number }
   })

@@ -297,8 +297,103 @@ export function retimeLivePlan(data: PlanningData, assignments: Assignments): As
  * the figures and finishes that can be believed until the manager re-plans.
  */
 export function checkLivePlan(data: PlanningData, assignments: Assignments): { findings: RuleViolation[]; carriedOut: Assignments } {
-  const findings = calendarFindings(data, assignments)
+  const findings = [...underWayFindings(data, assignments), ...calendarFindings(data, assignments)]
   return { findings, carriedOut: findings.length ? retimeLivePlan(data, assignments) : assignments }
+}
+
+/** Work that is under way: bench work running or paused at the bench, outside work sent out (running). */
+export const UNDER_WAY = ['running', 'paused'] as const
+
+/**
+ * Where work under way really is, for a publication that must not move it: bench work from its first start at the bench, on
+ * the bench it is (or was last) worked at and with the one who holds it, ending when its working time, walked on that bench's
+ * and person's time from its first start, is used up; outside work from the moment it was sent out (its planned start, set
+ * when it goes), back at the end of its working days counted from there. `live` is the bar it has on the live plan now.
+ */
+export async function underWayPlacement(tx: Tx, data: PlanningData, live: Assignments, ids: number[]): Promise<Assignments> {
+  const c = data.clock
+  const out: Assignments = new Map()
+  const mine = ids.filter((id) => (UNDER_WAY as readonly string[]).includes(data.meta.operations.get(String(id))?.op.status ?? ''))
+  if (!mine.length) return out
+  const records = await tx
+    .select({ operationId: s.timeRecords.operationId, personId: s.timeRecords.personId, benchId: s.timeRecords.benchId, startedAt: s.timeRecords.startedAt })
+    .from(s.timeRecords)
+    .where(inArray(s.timeRecords.operationId, mine))
+  const joint = jointWindows(data.problem)
+  for (const id of mine) {
+    const m = data.meta.operations.get(String(id))!
+    const bar = live.get(id)
+    if (m.kind.outside || m.op.leadDays > 0) {
+      if (!bar) continue
+      const start = c.toMinute(bar.start)
+      const back = outsideWorkEnd(data.problem.workshopDays, start, Math.max(1, m.op.leadDays))
+      out.set(id, { operationId: id, benchId: null, personId: null, start: bar.start, end: back === null ? bar.end : c.toDate(back).toISOString() })
+      continue
+    }
+    const own = records.filter((r) => r.operationId === id).sort((x, y) => Date.parse(x.startedAt) - Date.parse(y.startedAt))
+    if (!own.length) continue
+    const last = own[own.length - 1]!
+    const a: Assignment = {
+      operationId: id,
+      benchId: last.benchId ?? bar?.benchId ?? null,
+      personId: m.op.claimedBy ?? last.personId,
+      start: new Date(own[0]!.startedAt).toISOString(),
+      end: new Date(own[0]!.startedAt).toISOString(),
+    }
+    const needs = minutesNeeded(data, a) ?? m.op.estimateMinutes
+    const from = c.toMinute(a.start)
+    const walked = walkWorkingTime(joint.both(engineId(a.benchId), engineId(a.personId)) ?? [], from, needs)
+    a.end = c.toDate(walked?.length ? walked[walked.length - 1]!.end : from + needs).toISOString()
+    out.set(id, a)
+  }
+  return out
+}
+
+/**
+ * Bars still to come that the work under way holds up: a step on the same bench or person whose bar overlaps it, or a next
+ * step of its routing planned to start before it ends (with its wait) — worded by the rule book (double booking, routing
+ * order). A plan published after that work started (its bars kept where the work really is) can have some; re-timing
+ * (`retimeLivePlan`) puts them behind it.
+ */
+export function underWayFindings(data: PlanningData, assignments: Assignments): RuleViolation[] {
+  const c = data.clock
+  const when = workshopWhen(c.timeZone, (m) => c.toDate(m), c.toDate(data.problem.now))
+  const preds = new Map(data.problem.operations.map((o) => [o.id, o.predecessors]))
+  const ref = (id: number): StepRef | null => {
+    const m = data.meta.operations.get(String(id))
+    return m ? { operationId: m.op.id, jobId: m.bag.id, name: m.op.name, bag: m.bag.number } : null
+  }
+  const status = (id: number) => data.meta.operations.get(String(id))?.op.status ?? ''
+  const kept = [...assignments.values()].filter((a) => (UNDER_WAY as readonly string[]).includes(status(a.operationId)))
+  const found: RuleViolation[] = []
+  const bars = [...assignments.values()].sort((x, y) => Date.parse(x.start) - Date.parse(y.start) || x.operationId - y.operationId)
+  for (const b of bars) {
+    if (!['pending', 'ready', 'claimed'].includes(status(b.operationId))) continue
+    const self = ref(b.operationId)
+    if (!self) continue
+    const bs = c.toMinute(b.start),
+      be = c.toMinute(b.end)
+    for (const k of kept) {
+      const other = ref(k.operationId)
+      if (!other) continue
+      const ks = c.toMinute(k.start),
+        ke = c.toMinute(k.end)
+      const m = data.meta.operations.get(String(k.operationId))!
+      if ((preds.get(String(b.operationId)) ?? []).includes(String(k.operationId))) {
+        const v = rules.routingOrder(self, { start: bs, predecessor: m.op.name, readyAt: ke + m.op.waitAfterMinutes, waitAfter: m.op.waitAfterMinutes, when })
+        if (v) found.push(v)
+        continue
+      }
+      const resource = b.benchId !== null && b.benchId === k.benchId ? 'bench' : b.personId !== null && b.personId === k.personId ? 'person' : null
+      if (!resource || !(bs < ke && ks < be)) continue
+      const name =
+        resource === 'bench'
+          ? (data.meta.benches.get(String(b.benchId))?.name ?? 'the bench')
+          : (data.meta.people.get(String(b.personId))?.name ?? 'the person')
+      found.push(rules.doubleBooking(self, { resource, name, other, from: Math.max(bs, ks), to: Math.min(be, ke), when }))
+    }
+  }
+  return found
 }
 
 /** A plan's score as the planner weighs it (engine minutes): weighted lateness, then the last finish. */

@@ -148,6 +148,11 @@ export const planComparison = z.object({
   moves: z.array(planMove),
   counts: z.object({ bench: wireInt, person: wireInt, time: wireInt, new: wireInt }),
   /**
+   * Steps of the draft started at the bench, sent out or finished after the draft was made: publishing leaves them where they
+   * really are (0 when compared with another version).
+   */
+  underWay: wireInt.optional(),
+  /**
    * Job bags planned in both: finishing earlier / later; less / more late than promised (lateness shrinks or grows, whether
    * or not they were late before); and late in the draft only (newly late) or in the base only (no longer late).
    */

@@ -12,7 +12,7 @@ import { audit } from '../services/audit'
 import { dayjs } from '../lib/time'
 import type { Plan } from '../scheduler/model.ts'
 import { fromEnginePlan, fromStored, toStored, type Assignment, type Assignments } from './assignments'
-import { checkLivePlan, latenessFigures, lockLivePlan, readLivePlan, storeLiveFigures, underWayPlacement, UNDER_WAY, writeAssignment } from './live-plan'
+import { checkLivePlan, latenessFigures, lockLivePlan, readLivePlan, storeLiveFigures, underWayPlacement, isUnderWay, writeAssignment } from './live-plan'
 import { loadPlanningData, type PlanningData } from './problem'
 
 export async function listPlans(db: Db, workshopId: number) {
@@ -250,7 +250,7 @@ export async function publishDraft({ db, realtime }: Deps, actor: Actor, id: num
     const open = ids.length ? await tx.select({ id: s.operations.id, status: s.operations.status }).from(s.operations).where(inArray(s.operations.id, ids)) : []
     for (const op of open) {
       if (op.status === 'done' || op.status === 'skipped') continue
-      if ((UNDER_WAY as readonly string[]).includes(op.status)) {
+      if (isUnderWay(op.status)) {
         const kept = underWay.get(op.id)
         if (kept) await writeAssignment(tx, kept)
         continue

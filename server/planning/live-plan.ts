@@ -302,7 +302,8 @@ export function checkLivePlan(data: PlanningData, assignments: Assignments): { f
 }
 
 /** Work that is under way: bench work running or paused at the bench, outside work sent out (running). */
-export const UNDER_WAY = ['running', 'paused'] as const
+const UNDER_WAY: readonly string[] = ['running', 'paused']
+export const isUnderWay = (status: string | undefined): boolean => UNDER_WAY.includes(status ?? '')
 
 /**
  * Where work under way really is, for a publication that must not move it: bench work from its first start at the bench, on
@@ -313,7 +314,7 @@ export const UNDER_WAY = ['running', 'paused'] as const
 export async function underWayPlacement(tx: Tx, data: PlanningData, live: Assignments, ids: number[]): Promise<Assignments> {
   const c = data.clock
   const out: Assignments = new Map()
-  const mine = ids.filter((id) => (UNDER_WAY as readonly string[]).includes(data.meta.operations.get(String(id))?.op.status ?? ''))
+  const mine = ids.filter((id) => isUnderWay(data.meta.operations.get(String(id))?.op.status))
   if (!mine.length) return out
   const records = await tx
     .select({ operationId: s.timeRecords.operationId, personId: s.timeRecords.personId, benchId: s.timeRecords.benchId, startedAt: s.timeRecords.startedAt })
@@ -364,7 +365,7 @@ export function underWayFindings(data: PlanningData, assignments: Assignments): 
     return m ? { operationId: m.op.id, jobId: m.bag.id, name: m.op.name, bag: m.bag.number } : null
   }
   const status = (id: number) => data.meta.operations.get(String(id))?.op.status ?? ''
-  const kept = [...assignments.values()].filter((a) => (UNDER_WAY as readonly string[]).includes(status(a.operationId)))
+  const kept = [...assignments.values()].filter((a) => isUnderWay(status(a.operationId)))
   const found: RuleViolation[] = []
   const bars = [...assignments.values()].sort((x, y) => Date.parse(x.start) - Date.parse(y.start) || x.operationId - y.operationId)
   for (const b of bars) {

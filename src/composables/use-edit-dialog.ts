@@ -3,6 +3,7 @@ import { ref, watch } from 'vue'
 import type { ZodType, z } from 'zod'
 import { ApiError } from '@/api/client'
 import { useApiError } from './use-api-error'
+import { useDiscardGuard } from './use-discard-guard'
 
 export interface EditDialogOptions<Row extends { id: number; version: number }, Saved, C extends ZodType, U extends ZodType> {
   /** Whether the dialog is open, and the row it edits (null: a new one). */
@@ -34,6 +35,8 @@ export function useEditDialog<Row extends { id: number; version: number }, Saved
   const errors = useApiError({ model: o.form })
   /** True after the server said someone else changed the row since it was opened. */
   const stale = ref(false)
+  /** Closing with changes not saved asks first (`beforeClose` goes on the dialog). */
+  const guard = useDiscardGuard({ open: o.open, form: o.form, noun: o.noun })
 
   watch(
     () => [o.open(), o.row()?.id] as const,
@@ -41,6 +44,7 @@ export function useEditDialog<Row extends { id: number; version: number }, Saved
       errors.clear()
       stale.value = false
       o.fill(o.row(), open && !old?.[0])
+      guard.markClean()
     },
     { immediate: true },
   )
@@ -57,6 +61,7 @@ export function useEditDialog<Row extends { id: number; version: number }, Saved
     try {
       const saved = row ? await o.update.save(row.id, body as z.output<U>) : await o.create.save(body as z.output<C>)
       ElMessage.success(row ? o.messages.saved : o.messages.added)
+      guard.markClean()
       o.saved(saved)
       return saved
     } catch (err) {
@@ -77,5 +82,5 @@ export function useEditDialog<Row extends { id: number; version: number }, Saved
     }
   }
 
-  return { ...errors, stale, save }
+  return { ...errors, stale, save, dirty: guard.dirty, beforeClose: guard.beforeClose }
 }

@@ -156,4 +156,53 @@ describe('the kind of a routing', () => {
     await page.locator('.el-drawer').getByRole('button', { name: 'Cancel' }).click()
     await page.locator('.el-drawer').waitFor({ state: 'hidden' })
   })
+  it('when a production run is made a repair, then its learning curve is no longer offered and not saved', async () => {
+    const STUDS = 'Production run: stud earrings'
+    await openRouting(STUDS)
+    await page.locator('[data-test=routing-run]').waitFor()
+    await page.locator('[data-test=routing-kind-repair]').click()
+    await page.locator('[data-test=routing-run]').waitFor({ state: 'detached' })
+    await page.locator('[data-test=routing-save]').click()
+    await page.locator('.el-drawer').waitFor({ state: 'hidden' })
+    const [stored] = await e2e.db.db.select({ kind: s.routings.kind, learningRate: s.routings.learningRate }).from(s.routings).where(eq(s.routings.name, STUDS))
+    expect(stored).toEqual({ kind: 'repair', learningRate: null })
+  })
+})
+
+describe('closing the routing editor with changes not saved', () => {
+  const drawer = () => page.locator('.el-drawer')
+  const question = () => page.locator('.el-message-box', { hasText: 'Your changes to this routing are not saved' })
+
+  it('when Esc is pressed after a change, then it asks; keeping on editing keeps the change, closing loses it and nothing is saved', async () => {
+    const name = 'Etched cuff'
+    await openRouting(name)
+    // Unchanged: Esc closes at once.
+    await page.keyboard.press('Escape')
+    await drawer().waitFor({ state: 'hidden' })
+    await openRouting(name)
+    await numberBox(page, 'routing-name').fill('Etched cuff, wide')
+    await page.keyboard.press('Escape')
+    await question().waitFor()
+    await screenshot(page, 'routing-unsaved-question', { fullPage: false })
+    // Esc on the question answers it "keep editing": the editor stays, with the change.
+    await page.keyboard.press('Escape')
+    await question().waitFor({ state: 'hidden' })
+    expect(await drawer().isVisible()).toBe(true)
+    expect(await numberBox(page, 'routing-name').inputValue()).toBe('Etched cuff, wide')
+    // A click beside the editor asks too; "Close and lose them" closes it.
+    await page
+      .locator('.el-overlay')
+      .first()
+      .click({ position: { x: 10, y: 300 } })
+    await question().waitFor()
+    await question().getByRole('button', { name: 'Close and lose them' }).click()
+    await drawer().waitFor({ state: 'hidden' })
+    const stored = await e2e.db.db.select({ name: s.routings.name }).from(s.routings).where(eq(s.routings.name, 'Etched cuff, wide'))
+    expect(stored).toEqual([])
+    // Opened again, it shows what is stored.
+    await openRouting(name)
+    expect(await numberBox(page, 'routing-name').inputValue()).toBe(name)
+    await page.keyboard.press('Escape')
+    await drawer().waitFor({ state: 'hidden' })
+  })
 })

@@ -504,6 +504,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
           number: `${number}-1`,
           piece: choice.piece,
           routingId: t.row.id,
+          routingKind: t.row.kind,
           params,
           status: opts.status === 'collected' ? 'complete' : 'waiting',
           createdAt: opts.created,

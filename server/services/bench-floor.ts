@@ -31,7 +31,6 @@ import {
   orders,
   people,
   personSkills,
-  routings,
   routingSteps,
   timeRecords,
 } from '../db/schema/index'
@@ -74,7 +73,7 @@ const opFields = {
   after: operations.after,
   params: jobBags.params,
   routingId: jobBags.routingId,
-  routingKind: routings.kind,
+  routingKind: jobBags.routingKind,
 }
 const baseQuery = (tx: Tx) =>
   tx
@@ -83,7 +82,6 @@ const baseQuery = (tx: Tx) =>
     .innerJoin(jobBags, eq(jobBags.id, operations.jobBagId))
     .innerJoin(orders, eq(orders.id, jobBags.orderId))
     .innerJoin(operationKinds, eq(operationKinds.id, operations.kindId))
-    .leftJoin(routings, eq(routings.id, jobBags.routingId))
     .leftJoin(claimer, eq(claimer.id, operations.claimedBy))
 type OpRow = Awaited<ReturnType<ReturnType<typeof baseQuery>['where']>>[number]
 
@@ -125,7 +123,7 @@ export async function toBenchOperations(tx: Tx, rows: OpRow[]): Promise<BenchOpe
     priority: r.priority,
     stones: stones.get(r.jobBagId)!,
     metal: r.params?.metal ?? null,
-    customerPiece: worksOnCustomersPiece(r.routingKind !== null ? { kind: r.routingKind } : null, r.params),
+    customerPiece: worksOnCustomersPiece({ kind: r.routingKind }, r.params),
   }))
 }
 

@@ -267,9 +267,6 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
     .where(inArray(operations.jobBagId, bagIds))
     .orderBy(asc(operations.seq))
   const routingIds = [...new Set(bags.map((b) => b.routingId).filter((x): x is number => x !== null)), -1]
-  const kindOf = new Map(
-    (await db.select({ id: routings.id, kind: routings.kind }).from(routings).where(inArray(routings.id, routingIds))).map((r) => [r.id, r]),
-  )
   const stepCosts = await db.select().from(routingStepCosts).where(inArray(routingStepCosts.routingId, routingIds))
   const opIds = [...ops.map((o) => o.op.id), -1]
   const opCosts = await db.select().from(operationCosts).where(inArray(operationCosts.operationId, opIds))
@@ -354,7 +351,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
         }
       }
       // Metal at estimate, on the day the order was taken (on the customer's own piece: the metal added, as the dialog counted it).
-      const mEst = metalEstimate(book, params, orderDay, worksOnCustomersPiece(bag.routingId === null ? null : kindOf.get(bag.routingId), params))
+      const mEst = metalEstimate(book, params, orderDay, worksOnCustomersPiece({ kind: bag.routingKind }, params))
       const sLines = lines.filter((l) => l.jobBagId === bag.id)
       const sEst = stonesEstimate(
         params,

@@ -97,7 +97,7 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
   const steps = await tx.select().from(routingSteps).where(eq(routingSteps.routingId, t.id)).orderBy(asc(routingSteps.seq))
   const [bag] = await tx
     .insert(jobBags)
-    .values({ workshopId, orderId, number: `${orderNumber}-${index + 1}`, piece: piece.piece, routingId: t.id, params: piece.params })
+    .values({ workshopId, orderId, number: `${orderNumber}-${index + 1}`, piece: piece.piece, routingId: t.id, routingKind: t.kind, params: piece.params })
     .returning()
   await tx.insert(operations).values(
     steps.map((s) => ({

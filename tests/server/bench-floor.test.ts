@@ -689,4 +689,35 @@ describe('what a running card shows', () => {
     const bag = await bagOnRouting({ code: 'repair-style-signet', name: 'Repair-style signet', kind: 'piece' })
     expect(await pieceOf(bag)).toEqual([false])
   })
+
+  it('when a repair routing is later made a new piece, then bags already taken in stay work on the customer’s piece; bags made after are from stock', async () => {
+    const before = await bagOnRouting({ code: 'clasp-swap', name: 'Replace a bolt ring', kind: 'repair' })
+    const [r] = await t.db
+      .select({ id: s.routings.id, version: s.routings.version })
+      .from(s.routings)
+      .innerJoin(s.jobBags, eq(s.jobBags.routingId, s.routings.id))
+      .where(eq(s.jobBags.id, before))
+    const full = (await manager.get(`/api/routings/${r!.id}`)).body
+    const changed = await manager.put(`/api/routings/${r!.id}`, {
+      code: full.code,
+      name: full.name,
+      description: full.description,
+      kind: 'piece',
+      learningRate: null,
+      steps: full.steps.map(({ id: _id, ...st }: { id: number }) => st),
+      version: full.version,
+    })
+    expect(changed.status, JSON.stringify(changed.body)).toBe(200)
+    // The customer's bracelet came in for the repair: its weighing out still starts from their piece.
+    expect(await pieceOf(before)).toEqual([true])
+    const customerId = (await t.db.select({ id: s.customers.id }).from(s.customers).orderBy(asc(s.customers.id)).limit(1))[0]!.id
+    const order = await sales.post('/api/orders', {
+      customerId,
+      title: 'Bolt ring, new',
+      dueDate: '2031-10-01',
+      pieces: [{ routingId: r!.id, piece: 'Bolt ring', params: { metal: 'gold-9ct' } }],
+    })
+    expect(order.status, JSON.stringify(order.body)).toBe(201)
+    expect(await pieceOf(order.body.jobBags[0].id)).toEqual([false])
+  })
 })

@@ -111,6 +111,9 @@ export const jobBags = pgTable(
     number: text().notNull(),
     piece: text().notNull(),
     routingId: integer().references(() => routings.id, { onDelete: 'set null' }),
+    /** The routing's kind when the bag was made: what the work is (a repair works on the customer's own piece) stays as it was
+     *  taken in, whatever later happens to the routing (its kind changed, or the routing removed). */
+    routingKind: text().$type<RoutingKind>().notNull().default('piece'),
     params: jsonb().$type<PieceParams>().notNull(),
     status: text().notNull().default('waiting'),
     releaseAt: instant(),

@@ -129,7 +129,7 @@ export async function orderForecast(deps: Deps, actor: Actor, orderId: number, n
  * planned step ends on the live plan re-timed against the calendar, how that stands against its due day (the promised day when
  * there is one) in the forecast's words, and whether steps of it are off the plan — the job bags' finishes as the drawer reads
  * them (`jobFinishes`), for the page's job bags only, from one read of the live plan (kept in the app's cache). Cancelled job
- * bags leave no mark.
+ * bags leave no mark; an order whose bags are all cancelled says so (`cancelled`) rather than "not in the plan".
  */
 export async function listForecasts(
   { db, cache }: { db: Db; cache?: Cache },
@@ -156,7 +156,9 @@ export async function listForecasts(
     { cache, now },
   )
   for (const order of open) {
-    const mine = bags.filter((b) => b.orderId === order.id && b.status !== 'cancelled').map((b) => bagOutlook(order, b, jobs.get(b.id)))
+    const all = bags.filter((b) => b.orderId === order.id)
+    const cancelled = all.length > 0 && all.every((b) => b.status === 'cancelled')
+    const mine = all.filter((b) => b.status !== 'cancelled').map((b) => bagOutlook(order, b, jobs.get(b.id)))
     const done = mine.length > 0 && mine.every((x) => x.finished)
     const planned = mine.filter((x) => x.expectedCompletion !== null)
     const last = planned.reduce<(typeof planned)[number] | null>(
@@ -169,8 +171,9 @@ export async function listForecasts(
       date: last ? dayjs(last.expectedCompletion).tz(timeZone).format('YYYY-MM-DD') : null,
       risk,
       margin: last && risk ? forecastMargin({ state: risk, lateWorkingMinutes: last.lateWorkingMinutes }, dayMinutes) : null,
-      offPlan: done ? 'none' : !last ? 'all' : someOff ? 'some' : 'none',
+      offPlan: done || cancelled ? 'none' : !last ? 'all' : someOff ? 'some' : 'none',
       done,
+      cancelled,
     })
   }
   return out

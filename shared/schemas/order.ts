@@ -99,6 +99,8 @@ export const orderExpected = z.object({
   offPlan: z.enum(['none', 'some', 'all']),
   /** Every job bag is finished (the order is not marked ready yet). */
   done: z.boolean(),
+  /** Every job bag is cancelled (the order itself is still open): nothing of it is left to plan. */
+  cancelled: z.boolean(),
 })
 export type OrderExpected = z.infer<typeof orderExpected>
 

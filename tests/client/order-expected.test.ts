@@ -11,6 +11,7 @@ const planned = (over: Partial<Expected> = {}): Expected => ({
   margin: '2 working days to spare',
   offPlan: 'none',
   done: false,
+  cancelled: false,
   ...over,
 })
 const cell = (expected: Expected | null, pieces = 1) => mount(OrderExpected, { props: { expected, pieces, dueDay: '2026-12-14' } })
@@ -42,6 +43,10 @@ describe('OrderExpected', () => {
     const w = cell(planned({ offPlan: 'some' }))
     expect(w.text()).toContain('Wed 16 Dec 2026')
     expect(w.text()).toContain('some steps not in the plan')
+  })
+
+  it('when every piece of an open order is cancelled, then the cell says so rather than that it is not in the plan', () => {
+    expect(cell(planned({ date: null, risk: null, margin: null, cancelled: true })).text()).toBe('every piece cancelled')
   })
 
   it('when every job bag is finished, then it reads done; when the order is ready, collected or cancelled, then only a dash', () => {

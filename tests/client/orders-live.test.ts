@@ -36,7 +36,7 @@ const row = (expectedDay: string): OrderSummary => ({
   currency: 'GBP',
   jobBags: 1,
   version: 1,
-  expected: { date: expectedDay, risk: 'on-time', margin: '2 working days to spare', offPlan: 'none', done: false },
+  expected: { date: expectedDay, risk: 'on-time', margin: '2 working days to spare', offPlan: 'none', done: false, cancelled: false },
 })
 const detail: OrderDetail = {
   id: 7,

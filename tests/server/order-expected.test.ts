@@ -2,6 +2,7 @@
 // against the calendar, as the order's drawer reckons it), late or tight in working time in the drawer's words, and work that is
 // not in the plan. A small workshop of its own (Monday to Friday, 09:00–17:00, no break: a working day is 480 min), so every
 // figure below is worked out by hand.
+import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import * as s from '../../server/db/schema/index'
 import { dayjs } from '../../server/lib/time'
@@ -94,6 +95,9 @@ beforeAll(async () => {
     })
     .returning()
   await t.db.insert(s.operations).values({ jobBagId: gone!.id, seq: 0, key: 'shape', kindId: sol!.id, name: 'Shape', estimateMinutes: 120, status: 'ready' })
+  // Due Friday; its one piece cancelled, the order itself still open.
+  await order('all-cancelled', day(4), {})
+  await t.db.update(s.jobBags).set({ status: 'cancelled' }).where(eq(s.jobBags.orderId, ids['all-cancelled']!))
 })
 afterAll(async () => {
   await t?.close()
@@ -109,7 +113,14 @@ describe('the order list’s expected finish', () => {
   it('when an order’s last step ends on the live plan after its due day, then the list gives that day and says how late in working time', async () => {
     // Due by the end of Monday (Tuesday 00:00); the polish ends Wednesday 11:00: Tuesday 09–17 (480) + Wednesday 09–11 (120) =
     // 600 working minutes = 1 working day of 480 + 2 h.
-    expect((await listed())[ids.late!]).toEqual({ date: day(2), risk: 'late', margin: '1 working day 2 h late', offPlan: 'none', done: false })
+    expect((await listed())[ids.late!]).toEqual({
+      date: day(2),
+      risk: 'late',
+      margin: '1 working day 2 h late',
+      offPlan: 'none',
+      done: false,
+      cancelled: false,
+    })
     // The drawer words the same job bag in the same words.
     const f = await sales.get(`/api/orders/${ids.late}/forecast`)
     expect(f.status, JSON.stringify(f.body)).toBe(200)
@@ -119,16 +130,30 @@ describe('the order list’s expected finish', () => {
 
   it('when an order finishes well before its due day, then the list gives the day and the working time to spare', async () => {
     // Done Monday 12:00, due by the end of Friday: Monday 12–17 (300) + Tuesday to Friday 4 × 480 = 2,220 min = 4 working days 5 h.
-    expect((await listed())[ids['on-time']!]).toEqual({ date: day(0), risk: 'on-time', margin: '4 working days 5 h to spare', offPlan: 'none', done: false })
+    expect((await listed())[ids['on-time']!]).toEqual({
+      date: day(0),
+      risk: 'on-time',
+      margin: '4 working days 5 h to spare',
+      offPlan: 'none',
+      done: false,
+      cancelled: false,
+    })
   })
 
   it('when none of an order’s steps is on the live plan, then the list has no day and says it is not in the plan', async () => {
-    expect((await listed())[ids.unplanned!]).toEqual({ date: null, risk: null, margin: null, offPlan: 'all', done: false })
+    expect((await listed())[ids.unplanned!]).toEqual({ date: null, risk: null, margin: null, offPlan: 'all', done: false, cancelled: false })
   })
 
   it('when only some of its steps are on the live plan, then the list gives the day of those and says some are not in the plan', async () => {
     // Shaped by Thursday 11:00, due by the end of Friday: Thursday 11–17 (360) + Friday 480 = 840 min = 1 working day 6 h.
-    expect((await listed())[ids.partly!]).toEqual({ date: day(3), risk: 'on-time', margin: '1 working day 6 h to spare', offPlan: 'some', done: false })
+    expect((await listed())[ids.partly!]).toEqual({
+      date: day(3),
+      risk: 'on-time',
+      margin: '1 working day 6 h to spare',
+      offPlan: 'some',
+      done: false,
+      cancelled: false,
+    })
     const f = await sales.get(`/api/orders/${ids.partly}/forecast`)
     expect(f.body.jobBags[0]).toMatchObject({ expectedDate: day(3), stepsOffPlan: 1 })
   })
@@ -137,7 +162,14 @@ describe('the order list’s expected finish', () => {
     // Bo is on leave Wednesday: his shaping goes to his next working time, Thursday 09:00–11:00, and the polish behind it to
     // 11:00–12:00. Due by the end of Thursday: finishing on the due day is tight, with Thursday 12–17 = 5 h to spare.
     // (As its bars stand it would end Thursday 10:00, with 7 h to spare.)
-    expect((await listed())[ids.retimed!]).toEqual({ date: day(3), risk: 'at-risk', margin: 'only 5 h to spare', offPlan: 'none', done: false })
+    expect((await listed())[ids.retimed!]).toEqual({
+      date: day(3),
+      risk: 'at-risk',
+      margin: 'only 5 h to spare',
+      offPlan: 'none',
+      done: false,
+      cancelled: false,
+    })
     const f = await sales.get(`/api/orders/${ids.retimed}/forecast`)
     expect(f.body.jobBags[0]).toMatchObject({ expectedCompletion: at(3, '12:00'), state: 'at-risk' })
   })
@@ -166,12 +198,19 @@ describe('the order list’s expected finish', () => {
       margin: '4 working days 1 h to spare',
       offPlan: 'none',
       done: false,
+      cancelled: false,
     })
     const f = await sales.get(`/api/orders/${ids['with-cancelled']}/forecast`)
     expect(f.status, JSON.stringify(f.body)).toBe(200)
     expect(f.body.state).toBe('on-time')
     expect(f.body.jobBags.map((b: { number: string }) => b.number)).toEqual(['EX-with-cancelled-1'])
     expect(f.body.jobBags[0]).toMatchObject({ expectedDate: day(0), state: 'on-time' })
+  })
+})
+
+describe('an open order whose pieces are all cancelled', () => {
+  it('when every job bag is cancelled, then the list says so: no day, nothing counted as not in the plan', async () => {
+    expect((await listed())[ids['all-cancelled']!]).toEqual({ date: null, risk: null, margin: null, offPlan: 'none', done: false, cancelled: true })
   })
 })
 

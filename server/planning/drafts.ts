@@ -153,11 +153,17 @@ async function stepNames(db: Db, workshopId: number, ids: number[]) {
 }
 
 /**
- * How many of a draft's steps were started at the bench, sent out or finished after the draft was made: publishing it leaves
- * them where they really are (`publishDraft`).
+ * How many of a draft's steps were started at the bench, sent out or finished after the draft was made, or are claimed by
+ * someone the draft does not give them to: publishing it leaves them where they really are (`publishDraft`).
  */
-async function startedSince(db: Db, workshopId: number, id: number, ids: number[]) {
+async function startedSince(db: Db, workshopId: number, id: number, draft: Assignments, live: Assignments) {
+  const ids = [...draft.keys()]
   if (!ids.length) return 0
+  const claimed = await db
+    .select({ id: s.operations.id, claimedBy: s.operations.claimedBy })
+    .from(s.operations)
+    .where(and(inArray(s.operations.id, ids), eq(s.operations.status, 'claimed')))
+  const keptClaims = claimed.filter((o) => live.get(o.id)?.personId === o.claimedBy && draft.get(o.id)?.personId !== o.claimedBy).length
   const { createdAt } = await getPlan(db, workshopId, id)
   const made = new Date(createdAt).getTime()
   const ops = await db
@@ -176,18 +182,22 @@ async function startedSince(db: Db, workshopId: number, id: number, ids: number[
         )
     : []
   const after = (t: string | null | undefined) => !!t && new Date(t).getTime() > made
-  return ops.filter(
-    (o) =>
-      after(o.finishedAt) ||
-      records.some((r) => r.operationId === o.id && after(r.startedAt)) ||
-      (o.status === 'running' && !records.some((r) => r.operationId === o.id) && after(o.sentAt)),
-  ).length
+  return (
+    keptClaims +
+    ops.filter(
+      (o) =>
+        after(o.finishedAt) ||
+        records.some((r) => r.operationId === o.id && after(r.startedAt)) ||
+        (o.status === 'running' && !records.some((r) => r.operationId === o.id) && after(o.sentAt)),
+    ).length
+  )
 }
 
 /** A draft against the live plan as it stands now (or any two versions); each change names its job bag and step. */
 export async function comparePlan(db: Db, workshopId: number, id: number, againstId?: number, now = new Date()) {
   const draft = await readDraft(db, workshopId, id)
-  const base = againstId ? await readDraft(db, workshopId, againstId) : (await readLivePlan(db, workshopId)).assignments
+  const live = againstId ? null : (await readLivePlan(db, workshopId)).assignments
+  const base = live ?? (await readDraft(db, workshopId, againstId!))
   const diff = diffAssignments(base, draft, now)
   const data = await loadPlanningData(db, workshopId, now)
   // What the draft buys is weighed against what the live plan can really give: re-timed from now where its bars no longer fit
@@ -203,7 +213,7 @@ export async function comparePlan(db: Db, workshopId: number, id: number, agains
     planId: id,
     against: againstId ?? 'live',
     moves,
-    underWay: againstId ? 0 : await startedSince(db, workshopId, id, [...draft.keys()]),
+    underWay: live ? await startedSince(db, workshopId, id, draft, live) : 0,
     gains: await whatItBuys(db, workshopId, data, buysFrom, draft),
     counts: {
       bench: moves.filter((m) => m.change.includes('bench')).length,
@@ -241,13 +251,18 @@ export async function publishDraft({ db, realtime }: Deps, actor: Actor, id: num
     const now = new Date().toISOString()
     await tx.update(s.planVersions).set({ status: 'published', publishedAt: now, publishedBy: actor.userId }).where(eq(s.planVersions.id, id))
     // Written onto the operations still to do. Work under way (running or paused at the bench, sent out) keeps where it
-    // really is, whatever the draft says — it may have started after the draft was made — and finished work keeps what it
-    // has. Pins stay as the manager left them.
+    // really is, whatever the draft says — it may have started after the draft was made — work claimed by someone the draft
+    // does not give it to keeps the claimer's bar, and finished work keeps what it has. Pins stay as the manager left them.
     const assignments = fromStored(p.assignments)
     const ids = [...assignments.keys()]
     const data = await loadPlanningData(tx, actor.workshopId, new Date(now))
     const underWay = await underWayPlacement(tx, data, live.assignments, ids)
-    const open = ids.length ? await tx.select({ id: s.operations.id, status: s.operations.status }).from(s.operations).where(inArray(s.operations.id, ids)) : []
+    const open = ids.length
+      ? await tx
+          .select({ id: s.operations.id, status: s.operations.status, claimedBy: s.operations.claimedBy })
+          .from(s.operations)
+          .where(inArray(s.operations.id, ids))
+      : []
     for (const op of open) {
       if (op.status === 'done' || op.status === 'skipped') continue
       if (isUnderWay(op.status)) {
@@ -255,6 +270,10 @@ export async function publishDraft({ db, realtime }: Deps, actor: Actor, id: num
         if (kept) await writeAssignment(tx, kept)
         continue
       }
+      // Claimed at the bench (by someone the draft does not give it to): it stays with the one who took it, where the claim
+      // put it on the live plan, until they start it or hand it back.
+      const taken = op.status === 'claimed' ? live.assignments.get(op.id) : undefined
+      if (taken && taken.personId === op.claimedBy && assignments.get(op.id)!.personId !== op.claimedBy) continue
       const { pinned: _pinned, ...a } = assignments.get(op.id)!
       await writeAssignment(tx, a)
     }

@@ -39,6 +39,8 @@ async function draft(bars: { operationId: number; benchId: number | null; person
 }
 
 const opRow = async (id: number) => (await t.db.select().from(s.operations).where(eq(s.operations.id, id)))[0]!
+/** Steps a test here has claimed or started already (not ready any more, but listed so none is picked twice). */
+const taken = async () => (await t.db.select({ id: s.operations.id }).from(s.operations).where(ne(s.operations.status, 'ready'))).map((o) => o.id)
 
 beforeAll(async () => {
   t = await createTestApp()
@@ -98,6 +100,54 @@ describe('publishing a draft made before work started', () => {
     const score = pv!.score as { feasible: boolean; violations: { rule: string; operationId?: string | number }[] }
     expect(score.feasible).toBe(false)
     expect(score.violations).toContainEqual(expect.objectContaining({ rule: 'bench double booking', operationId: String(next.id) }))
+  })
+
+  it('when a step is claimed at the bench after the draft gave it to someone else, then publishing leaves it with the claimer where the claim put it', async () => {
+    const step = await readyBenchStep(t.db, await taken())
+    const [other] = await t.db.select({ id: s.people.id }).from(s.people).where(ne(s.people.id, step.personId)).limit(1)
+    // On the live plan: with the other person at the step's bench, two days on, 09:00–10:00 (the test sets it; what a claim does
+    // to a live bar is then known by hand).
+    const liveStart = dayjs().tz('Europe/London').add(2, 'day').hour(9).minute(0).second(0).millisecond(0)
+    await t.db
+      .update(s.operations)
+      .set({
+        plannedBenchId: step.benchId,
+        plannedPersonId: other!.id,
+        plannedStart: liveStart.toISOString(),
+        plannedEnd: liveStart.add(1, 'hour').toISOString(),
+      })
+      .where(eq(s.operations.id, step.id))
+    // The draft gives it to the other person ten days on.
+    const planId = await draft([{ operationId: step.id, benchId: step.benchId, personId: other!.id, start: later(0), end: later(1) }])
+    const claim = await manager.post(`/api/bench/operations/${step.id}/claim`, { requestId: rid(), benchId: step.benchId, personId: step.personId })
+    expect(claim.status, JSON.stringify(claim.body)).toBe(200)
+    const cmp = await manager.get(`/api/plans/${planId}/compare`)
+    expect(cmp.status).toBe(200)
+    expect(cmp.body.underWay).toBe(1)
+    const pub = await manager.post(`/api/plans/${planId}/publish`)
+    expect(pub.status, JSON.stringify(pub.body)).toBe(200)
+    const op = await opRow(step.id)
+    // The claim moved the live bar to the claimer at its time; publishing kept that, not the draft's bar ten days on.
+    expect(op.status).toBe('claimed')
+    expect(op.plannedPersonId).toBe(step.personId)
+    expect(op.plannedBenchId).toBe(step.benchId)
+    expect(new Date(op.plannedStart!).toISOString()).toBe(liveStart.toISOString())
+    expect(new Date(op.plannedEnd!).toISOString()).toBe(liveStart.add(1, 'hour').toISOString())
+  })
+
+  it('when a step claimed before the draft is given by the draft to the claimer, then publishing takes the draft’s bar', async () => {
+    const step = await readyBenchStep(t.db, await taken())
+    const claim = await manager.post(`/api/bench/operations/${step.id}/claim`, { requestId: rid(), benchId: step.benchId, personId: step.personId })
+    expect(claim.status, JSON.stringify(claim.body)).toBe(200)
+    const bar = { start: later(2), end: later(3) }
+    const planId = await draft([{ operationId: step.id, benchId: step.benchId, personId: step.personId, ...bar }])
+    const cmp = await manager.get(`/api/plans/${planId}/compare`)
+    expect(cmp.body.underWay).toBe(0)
+    const pub = await manager.post(`/api/plans/${planId}/publish`)
+    expect(pub.status, JSON.stringify(pub.body)).toBe(200)
+    const op = await opRow(step.id)
+    expect(new Date(op.plannedStart!).toISOString()).toBe(bar.start)
+    expect(op.plannedPersonId).toBe(step.personId)
   })
 
   it('when outside work is sent out after the draft was made, then publishing keeps the moment it went and the board says so', async () => {

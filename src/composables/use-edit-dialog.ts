@@ -36,7 +36,8 @@ export function useEditDialog<Row extends { id: number; version: number }, Saved
   /** True after the server said someone else changed the row since it was opened. */
   const stale = ref(false)
   /** Closing with changes not saved asks first (`beforeClose` goes on the dialog). */
-  const guard = useDiscardGuard({ open: o.open, form: o.form, noun: o.noun })
+  // What would be sent (the values, when given) is what counts as a change: a switch outside the form that changes it counts too.
+  const guard = useDiscardGuard({ open: o.open, form: () => (o.values ? o.values(o.row()) : o.form()), noun: o.noun })
 
   watch(
     () => [o.open(), o.row()?.id] as const,

@@ -113,6 +113,35 @@ describe('closing a form with changes not saved', () => {
     expect(t.d.dirty.value).toBe(false)
   })
 
+  it('when a switch beside the form changes what would be sent, then that counts as a change too', async () => {
+    // As "works its own hours" beside a person's week: not a field of the form, but it decides what is saved.
+    const open = ref(false)
+    const own = ref(false)
+    const form = reactive({ name: 'Ada' })
+    const d = effectScope().run(() =>
+      useEditDialog({
+        open: () => open.value,
+        row: () => ({ id: 1, version: 1, name: 'Ada' }),
+        form: () => form,
+        fill: () => {
+          own.value = false
+        },
+        values: () => ({ name: form.name, ownHours: own.value }),
+        create: { schema: z.object({ name: z.string() }), save: async () => ({ id: 1, version: 2, name: 'Ada' }) },
+        update: { schema: z.object({ name: z.string(), version: z.number() }), save: async () => ({ id: 1, version: 2, name: 'Ada' }) },
+        messages: { added: 'Added', saved: 'Saved' },
+        noun: 'person',
+        saved: () => undefined,
+      }),
+    )!
+    open.value = true
+    await settle()
+    expect(d.dirty.value).toBe(false)
+    own.value = true
+    await nextTick()
+    expect(d.dirty.value).toBe(true)
+  })
+
   it('when the change was saved and the form stays open, then closing no longer asks', async () => {
     const t = await opened({ id: 3, version: 1, name: 'Bench 2', tags: [] })
     t.form.name = 'Bench 3'

@@ -161,7 +161,7 @@ type Step = {
 // Setting: melee is fiddly to pick up and seat, larger stones need more metal moved for their seat (demo figures; minutes per
 // stone and their bands have no published source and should be learned from actual times).
 const SETTING_BANDS = { melee: 1.2, large: 1.5 }
-const ROUTINGS: { code: string; name: string; description: string; kind?: RoutingKind; learningRate?: number; steps: Step[] }[] = [
+const ROUTINGS: { code: string; name: string; description: string; kind?: RoutingKind; learningRate?: number; resizesRing?: boolean; steps: Step[] }[] = [
   {
     code: 'pave-pendant',
     name: 'Pavé pendant in laminated metal',
@@ -239,6 +239,7 @@ const ROUTINGS: { code: string; name: string; description: string; kind?: Routin
     name: 'Repair: ring resize',
     description: 'Cut, add or remove metal, solder, clean up.',
     kind: 'repair',
+    resizesRing: true,
     steps: [
       { key: 'cut', kind: 'sawing', name: 'Cut shank', base: 10 },
       { key: 'solder', kind: 'soldering', name: 'Solder shank', base: 20, wait: 15, level: 2, after: ['cut'] },
@@ -437,7 +438,15 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     for (const t of ROUTINGS) {
       const [row] = await tx
         .insert(s.routings)
-        .values({ workshopId, code: t.code, name: t.name, description: t.description, kind: t.kind ?? 'piece', learningRate: t.learningRate ?? null })
+        .values({
+          workshopId,
+          code: t.code,
+          name: t.name,
+          description: t.description,
+          kind: t.kind ?? 'piece',
+          learningRate: t.learningRate ?? null,
+          resizesRing: t.resizesRing ?? false,
+        })
         .returning()
       const steps = await tx
         .insert(s.routingSteps)

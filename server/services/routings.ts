@@ -52,6 +52,7 @@ export async function listRoutings(db: Db, workshopId: number): Promise<Routing[
       description: t.description,
       kind: t.kind,
       learningRate: t.learningRate,
+      resizesRing: t.resizesRing,
       version: t.version,
       steps: own,
       warnings: routingWarnings(own, (k) => outside.has(k)),
@@ -94,6 +95,7 @@ export async function createRouting({ db, realtime }: Deps, actor: Actor, input:
           description: input.description,
           kind: input.kind,
           learningRate: input.learningRate,
+          resizesRing: input.resizesRing,
         })
         .returning()
       await writeSteps(tx, actor.workshopId, t!.id, input.steps)

@@ -57,9 +57,12 @@ export const routingInput = z
       .max(1, 'must be at most 1 (100 %)')
       .nullable()
       .default(null),
+    /** A ring resize: an order on it asks for the size the ring is and the size it is to be. */
+    resizesRing: z.boolean({ error: 'must be true or false' }).default(false),
     steps: z.array(stepInput).min(1, 'needs at least one step').max(40, 'has too many steps'),
   })
   .superRefine((t, ctx) => {
+    if (t.resizesRing && t.kind !== 'repair') ctx.addIssue({ code: 'custom', path: ['resizesRing'], message: 'only a repair resizes the customer’s ring' })
     const keys = new Set<string>()
     t.steps.forEach((s, i) => {
       if (keys.has(s.key)) ctx.addIssue({ code: 'custom', path: ['steps', i, 'key'], message: `step key "${s.key}" is used twice` })
@@ -119,6 +122,7 @@ export const routing = z.object({
   description: z.string(),
   kind: z.enum(ROUTING_KINDS),
   learningRate: z.number().nullable(),
+  resizesRing: z.boolean(),
   steps: z.array(routingStep),
   version: wireInt,
   warnings: z.array(routingWarning),

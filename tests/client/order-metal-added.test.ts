@@ -7,18 +7,26 @@ import ElementPlus from 'element-plus'
 import type { Routing } from '@shared/schemas/routing'
 import type { CostingEstimate, OrderCosting } from '@shared/schemas/costing'
 
-const routing = (id: number, name: string, kind: Routing['kind']): Routing => ({
+const routing = (id: number, name: string, kind: Routing['kind'], resizesRing = false): Routing => ({
   id,
   code: name.toLowerCase().replace(/ /g, '-'),
   name,
   description: '',
   kind,
   learningRate: null,
+  resizesRing,
   steps: [],
   version: 1,
   warnings: [],
 })
-const ROUTINGS = [routing(1, 'Signet ring', 'piece'), routing(2, 'Claw retip', 'repair'), routing(3, 'Ring resize', 'repair')]
+const ROUTINGS = [
+  routing(1, 'Signet ring', 'piece'),
+  routing(2, 'Claw retip', 'repair'),
+  routing(3, 'Ring resize', 'repair', true),
+  // The workshop's own names: a resize whose code never says so, and a chain repair whose code does.
+  routing(4, 'Shank sizing', 'repair', true),
+  routing(5, 'Chain resize links', 'repair'),
+]
 const zero = { metalMinor: 0, stonesMinor: 0, outsideMinor: 0, labourMinor: 0, totalMinor: 0 }
 /** An answer as the server gives it for one repair piece: the note and the caveat come from the server, the dialog only shows them. */
 const ESTIMATE: CostingEstimate = {
@@ -119,6 +127,18 @@ describe('the metal weight on a repair', () => {
 })
 
 describe('ring sizes typed for a resize', () => {
+  it('when the routing picked says it resizes a ring, then the order asks for both sizes, whatever its code says', async () => {
+    await openDialog()
+    const asks = () =>
+      !!q('[data-test=resize-from-0-value], input[data-test=resize-from-0-value]') && !!q('[data-test=resize-to-0-value], input[data-test=resize-to-0-value]')
+    await pickRouting('Shank sizing')
+    expect(asks()).toBe(true)
+    await pickRouting('Chain resize links')
+    expect(asks()).toBe(false)
+    await pickRouting('Ring resize')
+    expect(asks()).toBe(true)
+  })
+
   it('when another routing is picked after sizes were typed for a resize, then the sizes are not sent with the piece', async () => {
     const { estimateCost } = await import('@/api/costing')
     await openDialog()

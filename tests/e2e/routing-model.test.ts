@@ -156,6 +156,23 @@ describe('the kind of a routing', () => {
     await page.locator('.el-drawer').getByRole('button', { name: 'Cancel' }).click()
     await page.locator('.el-drawer').waitFor({ state: 'hidden' })
   })
+  it('when the ring resize opens, then it says it resizes a ring; a chain repair does not, and a new piece is not asked', async () => {
+    // The demo (seed.ts): "Repair: ring resize" resizes a ring, "Repair: chain link" does not.
+    await openRouting('Repair: ring resize')
+    expect(await page.locator('[data-test=routing-resizes-ring] input').isChecked()).toBe(true)
+    await screenshot(page, 'routing-resizes-ring', { fullPage: false })
+    await page.keyboard.press('Escape')
+    await page.locator('.el-drawer').waitFor({ state: 'hidden' })
+    await openRouting('Repair: chain link')
+    expect(await page.locator('[data-test=routing-resizes-ring] input').isChecked()).toBe(false)
+    await page.keyboard.press('Escape')
+    await page.locator('.el-drawer').waitFor({ state: 'hidden' })
+    await openRouting('Bezel-set solitaire ring')
+    expect(await page.locator('[data-test=routing-resizes-ring]').count()).toBe(0)
+    await page.keyboard.press('Escape')
+    await page.locator('.el-drawer').waitFor({ state: 'hidden' })
+  })
+
   it('when a production run is made a repair, then its learning curve is no longer offered and not saved', async () => {
     const STUDS = 'Production run: stud earrings'
     await openRouting(STUDS)

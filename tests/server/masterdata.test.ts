@@ -467,6 +467,29 @@ describe('routings', () => {
     expect((await manager.get(`/api/routings/${c.body.id}`)).body).toMatchObject({ kind: 'repair', version: 0 })
   })
 
+  it('when a repair routing says it resizes a ring, then that is kept and read back; the demo’s ring resize does, its chain repair does not', async () => {
+    const all = (await manager.get('/api/routings')).body as { code: string; resizesRing: boolean }[]
+    // The demo (seed.ts): only "Repair: ring resize" resizes a ring.
+    expect(all.filter((x) => x.resizesRing).map((x) => x.code)).toEqual(['ring-resize'])
+    const c = await manager.post('/api/routings', { code: 'shank-sizing', name: 'Shank sizing', kind: 'repair', resizesRing: true, steps: [step('a')] })
+    expect(c.status, JSON.stringify(c.body)).toBe(201)
+    expect((await manager.get(`/api/routings/${c.body.id}`)).body.resizesRing).toBe(true)
+    const u = await manager.put(`/api/routings/${c.body.id}`, { code: 'shank-sizing', name: 'Shank sizing', kind: 'repair', steps: [step('a')], version: 0 })
+    expect(u.status, JSON.stringify(u.body)).toBe(200)
+    // Left out of a change, it is not kept: the editor always sends it.
+    expect(u.body.resizesRing).toBe(false)
+  })
+
+  it('when a new piece or a production run says it resizes a ring, then 400 names the field and nothing is saved', async () => {
+    for (const kind of ['piece', 'run'])
+      expectFieldError(
+        await manager.post('/api/routings', { code: `resize-${kind}`, name: 'Resize?', kind, resizesRing: true, steps: [step('a')] }),
+        'resizesRing',
+        /only a repair/,
+      )
+    expect((await t.db.select({ n: count() }).from(s.routings).where(eq(s.routings.name, 'Resize?')))[0]!.n).toBe(0)
+  })
+
   it('when the code is taken or the routing does not exist, then 409 or 404', async () => {
     const dup = await manager.post('/api/routings', { code: 'bezel-ring', name: 'Again', steps: [step('a')] })
     expectCleanError(dup, 409)

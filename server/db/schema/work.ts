@@ -38,6 +38,8 @@ export const routings = pgTable(
     kind: text().$type<RoutingKind>().notNull().default('piece'),
     /** Production runs: the learning rate per doubling of quantity (0.8 = an 80 % curve); null = every unit takes the same time. */
     learningRate: real(),
+    /** A ring resize: an order on it records the size the ring is and the size it is to be. */
+    resizesRing: boolean().notNull().default(false),
     version: version(),
   },
   (t) => [uniqueIndex().on(t.workshopId, t.code)],

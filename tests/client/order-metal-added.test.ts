@@ -126,6 +126,30 @@ describe('the metal weight on a repair', () => {
   })
 })
 
+describe('a metal weight out of range', () => {
+  it('when a negative weight is typed, then it stays as typed and saving says why under the field; nothing is sent', async () => {
+    const { createOrder } = await import('@/api/orders')
+    await openDialog()
+    await pickRouting('Claw retip')
+    const box = q('[data-test=order-metal-g-0]')!
+    const input = (box.tagName === 'INPUT' ? box : box.querySelector('input')) as HTMLInputElement
+    input.value = '-0.4'
+    input.dispatchEvent(new Event('input'))
+    input.dispatchEvent(new Event('change'))
+    input.dispatchEvent(new Event('blur'))
+    await flushPromises()
+    // Not turned into the smallest weight allowed without a word (it was 0.01 g before).
+    expect(input.value).toBe('-0.40')
+    q('[data-test=order-save]')!.click()
+    await flushPromises()
+    // The reason comes in with the field's transition.
+    await new Promise((r) => setTimeout(r, 100))
+    await flushPromises()
+    expect(q('[data-test=order-metal-0] .el-form-item__error')?.textContent?.trim()).toMatch(/more than 0 g/i)
+    expect(vi.mocked(createOrder)).not.toHaveBeenCalled()
+  })
+})
+
 describe('ring sizes typed for a resize', () => {
   it('when the routing picked says it resizes a ring, then the order asks for both sizes, whatever its code says', async () => {
     await openDialog()

@@ -176,6 +176,9 @@ describe('master-data screens as the owner', () => {
     await piece.locator('.el-select').first().click()
     await page.locator('.el-select-dropdown__item:visible', { hasText: 'Bezel-set solitaire ring' }).click()
     await piece.getByText(/Estimate from the routing/).waitFor()
+    // The ring size box has room for a size as typed (e.g. "N½"): it was squeezed to nothing beside its scale.
+    const sizeBox = await dialog.locator('input[data-test=ring-size-0-value]').boundingBox()
+    expect(sizeBox!.width).toBeGreaterThanOrEqual(60)
     await screenshot(page, 'order-take', { fullPage: false })
     // Esc with the order typed in asks before anything is lost; Esc on the question keeps the dialog as it was.
     await dialog.locator('.el-dialog__title').click()

@@ -137,7 +137,15 @@ async function whatItBuys(db: Db, workshopId: number, data: PlanningData, base: 
     if (lb === 0 && la > 0) newlyLate++
     if (lb > 0 && la === 0) noLongerLate++
   }
-  return { earlier, later, lessLate, moreLate, newlyLate, noLongerLate }
+  // Pieces the draft plans that the base does not hold at all (a new order): not earlier or later, but new — and late or not.
+  let newPieces = 0,
+    newPiecesLate = 0
+  for (const [bag, a] of after) {
+    if (before.has(bag)) continue
+    newPieces++
+    if (lateBy(a, dueOf.get(bag)!) > 0) newPiecesLate++
+  }
+  return { earlier, later, lessLate, moreLate, newlyLate, noLongerLate, newPieces, newPiecesLate }
 }
 
 /** The job bag and name of some operations of the workshop, for listing changes as people know the work. */

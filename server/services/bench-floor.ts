@@ -408,6 +408,7 @@ async function transition(
   realtime.emit(actor.workshopId, 'operation:changed', { id: body.operation.id, version: body.operation.version, status: body.operation.status })
   for (const r of bag.readied) realtime.emit(actor.workshopId, 'operation:changed', { id: r.id, version: r.version, status: 'ready' })
   if (bag.statusChanged) realtime.emit(actor.workshopId, 'jobBag:changed', { id: bag.jobBag.id, version: bag.jobBag.version, status: bag.jobBag.status })
+  if (bag.order) realtime.emit(actor.workshopId, 'order:updated', { id: bag.order.id, version: bag.order.version })
   return body
 }
 

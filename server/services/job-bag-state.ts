@@ -1,9 +1,9 @@
 // A job bag's own state as its steps move: the row lock, which steps are ready, and the bag's status derived from its steps.
 // Used by the office's routing edits (job-bags.ts) and by the bench floor (bench.ts); it imports neither.
-import { eq, sql } from 'drizzle-orm'
+import { and, eq, sql } from 'drizzle-orm'
 import { FINISHED_OPERATION, canMoveJobBag, deriveJobBagStatus, type OperationStatus } from '../../shared/domain/status'
 import type { Tx } from '../db/client'
-import { jobBags, operations } from '../db/schema/index'
+import { jobBags, operations, orders } from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Actor } from '../lib/route'
 import { audit } from './audit'
@@ -17,6 +17,8 @@ export interface BagChange {
   jobBag: { id: number; status: string; version: number }
   statusChanged: boolean
   readied: OperationChange[]
+  /** The bag's order, when its status followed (open → in work, or back): the caller emits `order:updated` after commit. */
+  order?: { id: number; version: number; status: string }
 }
 
 /** Row lock on the job bag: transitions and routing edits of one bag run one at a time. */
@@ -51,7 +53,7 @@ export async function refreshReadiness(tx: Tx, actor: Actor, jobBagId: number): 
   return changes
 }
 
-/** Brings the job bag's status in line with its operations (audited when it moves). */
+/** Brings the job bag's status in line with its operations (audited when it moves), and its order's open / in work with its bags. */
 export async function syncJobBagStatus(tx: Tx, actor: Actor, jobBagId: number, readied: OperationChange[] = []): Promise<BagChange> {
   const [bag] = await tx.select({ id: jobBags.id, status: jobBags.status, version: jobBags.version }).from(jobBags).where(eq(jobBags.id, jobBagId))
   const ops = await tx.select({ status: operations.status }).from(operations).where(eq(operations.jobBagId, jobBagId))
@@ -59,12 +61,42 @@ export async function syncJobBagStatus(tx: Tx, actor: Actor, jobBagId: number, r
     bag!.status,
     ops.map((o) => o.status),
   )
-  if (to === bag!.status || !canMoveJobBag(bag!.status, to)) return { jobBag: bag!, statusChanged: false, readied }
+  if (to === bag!.status || !canMoveJobBag(bag!.status, to)) {
+    // The bag may have been moved by hand (held, lifted, cancelled) just before: its order follows all the same.
+    const order = await syncOrderStatus(tx, actor, jobBagId)
+    return { jobBag: bag!, statusChanged: false, readied, ...(order ? { order } : {}) }
+  }
   const [u] = await tx
     .update(jobBags)
     .set({ status: to, version: sql`${jobBags.version} + 1` })
     .where(eq(jobBags.id, jobBagId))
     .returning({ id: jobBags.id, status: jobBags.status, version: jobBags.version })
   await audit(tx, actor, 'status', 'job-bag', jobBagId, { from: bag!.status, to })
-  return { jobBag: u!, statusChanged: true, readied }
+  const order = await syncOrderStatus(tx, actor, jobBagId)
+  return { jobBag: u!, statusChanged: true, readied, ...(order ? { order } : {}) }
+}
+
+/**
+ * An open order goes in work once any of its job bags is (a step taken up at a bench, sent out or finished), and back to open
+ * when every bag still to make is waiting again (a step handed back before anything was done). Ready, collected and cancelled
+ * are the office's to set; a bag on hold or cancelled leaves the order as it is.
+ */
+async function syncOrderStatus(tx: Tx, actor: Actor, jobBagId: number) {
+  const [bag] = await tx.select({ orderId: jobBags.orderId }).from(jobBags).where(eq(jobBags.id, jobBagId))
+  const [o] = await tx.select({ id: orders.id, status: orders.status }).from(orders).where(eq(orders.id, bag!.orderId))
+  if (!o || (o.status !== 'open' && o.status !== 'in-work')) return null
+  const bags = await tx.select({ status: jobBags.status }).from(jobBags).where(eq(jobBags.orderId, o.id))
+  const working = bags.some((b) => b.status === 'in-work' || b.status === 'complete')
+  const allWaiting = bags.every((b) => b.status === 'waiting' || b.status === 'cancelled')
+  const to = o.status === 'open' && working ? 'in-work' : o.status === 'in-work' && allWaiting ? 'open' : null
+  if (!to) return null
+  const [u] = await tx
+    .update(orders)
+    .set({ status: to, version: sql`${orders.version} + 1`, updatedAt: new Date() })
+    // Only from the status read (no lock taken on the order to read it: the office may be changing it at this moment).
+    .where(and(eq(orders.id, o.id), eq(orders.status, o.status)))
+    .returning({ id: orders.id, version: orders.version, status: orders.status })
+  if (!u) return null
+  await audit(tx, actor, 'status', 'order', o.id, { from: o.status, to, jobBagId })
+  return u
 }

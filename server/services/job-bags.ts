@@ -234,10 +234,11 @@ async function editRouting(
             ),
           )
       : []
-    return { jobBag, changed: [...latest, ...readied.filter((r) => !latest.some((l) => l.id === r.id))] }
+    return { jobBag, order: synced.order, changed: [...latest, ...readied.filter((r) => !latest.some((l) => l.id === r.id))] }
   })
   for (const c of out.changed) realtime.emit(actor.workshopId, 'operation:changed', { id: c.id, version: c.version, status: c.status })
   realtime.emit(actor.workshopId, 'jobBag:changed', { id: jobBagId, version: out.jobBag.version, status: out.jobBag.status })
+  if (out.order) realtime.emit(actor.workshopId, 'order:updated', { id: out.order.id, version: out.order.version })
   return getJobBag(db, actor.workshopId, jobBagId)
 }
 

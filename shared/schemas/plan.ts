@@ -163,6 +163,9 @@ export const planComparison = z.object({
     moreLate: wireInt,
     newlyLate: wireInt.optional(),
     noLongerLate: wireInt.optional(),
+    /** Job bags the draft plans that the base holds none of (new work), and how many of those are late in the draft. */
+    newPieces: wireInt.optional(),
+    newPiecesLate: wireInt.optional(),
   }),
 })
 /** The answer to a move by hand: the operation's new planned place. */

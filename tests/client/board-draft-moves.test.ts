@@ -84,3 +84,36 @@ describe('the moves of a draft', () => {
     expect(movesBreakdown(many(6, ['bench', 'person']))).toBe('6 to another bench and person')
   })
 })
+
+describe('what a draft buys when it plans new work', () => {
+  const buys = (gains: PlanComparison['gains']) => {
+    const w = mount(BoardDraftBanner, {
+      props: {
+        draft,
+        live: null,
+        comparison: { ...comparison([move(['new'])]), gains },
+        viewing: false,
+        canPlan: true,
+        busy: false,
+        timeZone: 'Europe/London',
+      },
+      global: { plugins: [ElementPlus] },
+    })
+    const el = w.find('[data-test=draft-buys]')
+    const text = el.exists() ? el.text() : null
+    w.unmount()
+    return text
+  }
+
+  it('when the draft plans a new piece that will be late and pushes others later, then it says the new piece first, then the rest', () => {
+    // The order just taken is the one new piece; the nine pushed later are others (one of them now late).
+    expect(buys({ earlier: 0, later: 9, lessLate: 0, moreLate: 1, newlyLate: 1, noLongerLate: 0, newPieces: 1, newPiecesLate: 1 })).toBe(
+      'what it buys: 1 piece newly planned (late), 9 pieces later (1 newly late)',
+    )
+  })
+
+  it('when the draft only plans new pieces, then it still says what it buys', () => {
+    expect(buys({ earlier: 0, later: 0, lessLate: 0, moreLate: 0, newPieces: 2, newPiecesLate: 0 })).toBe('what it buys: 2 pieces newly planned')
+    expect(buys({ earlier: 0, later: 0, lessLate: 0, moreLate: 0, newPieces: 3, newPiecesLate: 1 })).toBe('what it buys: 3 pieces newly planned (1 late)')
+  })
+})

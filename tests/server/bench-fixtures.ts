@@ -1,6 +1,6 @@
 // Fixtures for the bench-floor API tests: ready operations made in the test database, extra skilled people, ids by name.
 import { randomUUID } from 'node:crypto'
-import { and, asc, eq, notInArray } from 'drizzle-orm'
+import { and, asc, eq, inArray, notInArray } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { hashPassword } from '../../server/services/users'
 import { Agent, type TestApp } from '../setup/app'
@@ -38,7 +38,7 @@ export async function openOps(
     .where(
       and(
         eq(s.operationKinds.code, kind),
-        eq(s.orders.status, 'open'),
+        inArray(s.orders.status, ['open', 'in-work']),
         o.key == null ? undefined : eq(o2.key, o.key),
         o.status == null ? undefined : eq(o2.status, o.status),
         reserved.size === 0 ? undefined : notInArray(o2.id, [...reserved]),

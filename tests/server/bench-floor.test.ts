@@ -721,3 +721,62 @@ describe('what a running card shows', () => {
     expect(await pieceOf(order.body.jobBags[0].id)).toEqual([false])
   })
 })
+
+describe('the order follows its job bags', () => {
+  it('when a step of an open order is taken up at a bench, then the order is in work, audited and pushed live; handed back, it is open again', async () => {
+    const bagId = await bagOnRouting({ code: 'follow-bags', name: 'Toggle clasp', kind: 'piece' })
+    const [bag] = await t.db.select({ orderId: s.jobBags.orderId }).from(s.jobBags).where(eq(s.jobBags.id, bagId))
+    const orderOf = async () =>
+      (await t.db.select({ status: s.orders.status, version: s.orders.version }).from(s.orders).where(eq(s.orders.id, bag!.orderId)))[0]!
+    const before = await orderOf()
+    expect(before.status).toBe('open')
+    // Its first step (Solder) is ready; someone with soldering at a bench equipped for it takes it up.
+    const [solder] = await t.db
+      .select({ id: s.operations.id, kindId: s.operations.kindId })
+      .from(s.operations)
+      .where(and(eq(s.operations.jobBagId, bagId), eq(s.operations.key, 'solder')))
+    const [who] = await t.db.select({ personId: s.personSkills.personId }).from(s.personSkills).where(eq(s.personSkills.kindId, solder!.kindId)).limit(1)
+    const [where] = await t.db
+      .select({ benchId: s.benchCapabilities.benchId })
+      .from(s.benchCapabilities)
+      .where(eq(s.benchCapabilities.kindId, solder!.kindId))
+      .limit(1)
+    const emit = vi.spyOn(t.realtime, 'emit')
+    const c = await manager.post(`/api/bench/operations/${solder!.id}/claim`, { requestId: rid(), benchId: where!.benchId, personId: who!.personId })
+    expect(c.status, JSON.stringify(c.body)).toBe(200)
+    const working = await orderOf()
+    expect(working).toEqual({ status: 'in-work', version: before.version + 1 })
+    expect(emit).toHaveBeenCalledWith(expect.any(Number), 'order:updated', { id: bag!.orderId, version: working.version })
+    emit.mockRestore()
+    expect((await auditRows(t, 'order', bag!.orderId))[0]).toMatchObject({
+      action: 'status',
+      details: expect.objectContaining({ from: 'open', to: 'in-work' }),
+    })
+    // The sales list finds it under "In work".
+    const listed = await sales.get('/api/orders?status=in-work&pageSize=100')
+    expect(listed.body.items.map((o: { id: number }) => o.id)).toContain(bag!.orderId)
+    // Handed back before anything was done: nothing of the order is in work any more.
+    const r = await manager.post(`/api/bench/operations/${solder!.id}/release`, { requestId: rid(), personId: who!.personId })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    expect((await orderOf()).status).toBe('open')
+  })
+
+  it('when the office has marked an order ready, then work at the bench leaves its status as the office set it', async () => {
+    const bagId = await bagOnRouting({ code: 'follow-ready', name: 'Bolt ring', kind: 'piece' })
+    const [bag] = await t.db.select({ orderId: s.jobBags.orderId }).from(s.jobBags).where(eq(s.jobBags.id, bagId))
+    await t.db.update(s.orders).set({ status: 'ready' }).where(eq(s.orders.id, bag!.orderId))
+    const [solder] = await t.db
+      .select({ id: s.operations.id, kindId: s.operations.kindId })
+      .from(s.operations)
+      .where(and(eq(s.operations.jobBagId, bagId), eq(s.operations.key, 'solder')))
+    const [who] = await t.db.select({ personId: s.personSkills.personId }).from(s.personSkills).where(eq(s.personSkills.kindId, solder!.kindId)).limit(1)
+    const [where] = await t.db
+      .select({ benchId: s.benchCapabilities.benchId })
+      .from(s.benchCapabilities)
+      .where(eq(s.benchCapabilities.kindId, solder!.kindId))
+      .limit(1)
+    const c = await manager.post(`/api/bench/operations/${solder!.id}/claim`, { requestId: rid(), benchId: where!.benchId, personId: who!.personId })
+    expect(c.status, JSON.stringify(c.body)).toBe(200)
+    expect((await t.db.select({ status: s.orders.status }).from(s.orders).where(eq(s.orders.id, bag!.orderId)))[0]!.status).toBe('ready')
+  })
+})

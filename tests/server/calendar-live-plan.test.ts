@@ -253,7 +253,7 @@ describe('a calendar change against the live plan', () => {
     // Its bars move against the board's (all three change time)…
     expect(cmp.body.counts.time).toBe(3)
     // …but against the re-timed live plan no piece finishes earlier or later.
-    expect(cmp.body.gains).toEqual({ earlier: 0, later: 0, lessLate: 0, moreLate: 0, newlyLate: 0, noLongerLate: 0 })
+    expect(cmp.body.gains).toEqual({ earlier: 0, later: 0, lessLate: 0, moreLate: 0, newlyLate: 0, noLongerLate: 0, newPieces: 0, newPiecesLate: 0 })
     await t.db.update(s.planVersions).set({ status: 'discarded' }).where(eq(s.planVersions.id, draft!.id))
   })
 })

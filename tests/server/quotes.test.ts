@@ -244,7 +244,14 @@ async function expectOffPlanSaying(orderId: number, why: string) {
   const { number } = (await sales.get(`/api/orders/${orderId}`)).body
   const list = await sales.get(`/api/orders?q=${number}`)
   expect(list.status, JSON.stringify(list.body)).toBe(200)
-  expect(list.body.items.find((x: { id: number }) => x.id === orderId)?.expected).toEqual({ date: null, risk: null, margin: null, offPlan: 'all', done: false })
+  expect(list.body.items.find((x: { id: number }) => x.id === orderId)?.expected).toEqual({
+    date: null,
+    risk: null,
+    margin: null,
+    offPlan: 'all',
+    done: false,
+    cancelled: false,
+  })
   const f = await sales.get(`/api/orders/${orderId}/forecast`)
   expect(f.status, JSON.stringify(f.body)).toBe(200)
   expect(f.body.notBooked).toEqual({ reason: why, at: expect.any(String) })

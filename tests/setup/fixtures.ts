@@ -124,7 +124,7 @@ export async function openStepIds(db: Db, o: { limit?: number; unplanned?: boole
     .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
     .where(
       and(
-        eq(s.orders.status, 'open'),
+        inArray(s.orders.status, ['open', 'in-work']),
         inArray(s.operations.status, ['ready', 'pending']),
         eq(s.operations.leadDays, 0),
         o.unplanned ? isNull(s.operations.plannedStart) : undefined,
@@ -154,7 +154,7 @@ export async function readyBenchStep(
     .where(
       and(
         eq(s.operations.status, 'ready'),
-        eq(s.orders.status, 'open'),
+        inArray(s.orders.status, ['open', 'in-work']),
         eq(s.operationKinds.outside, false),
         eq(s.operations.leadDays, 0),
         skip.length ? notInArray(s.operations.id, skip) : undefined,
@@ -362,7 +362,7 @@ export async function openOrderStep(
     .leftJoin(s.routings, eq(s.routings.id, s.jobBags.routingId))
     .where(
       and(
-        eq(s.orders.status, 'open'),
+        inArray(s.orders.status, ['open', 'in-work']),
         o.kind == null ? undefined : eq(s.operationKinds.code, o.kind),
         o.key == null ? undefined : eq(s.operations.key, o.key),
         o.routing == null ? undefined : eq(s.routings.code, o.routing),

@@ -54,7 +54,7 @@ export function promiseConfirmation(o: {
     subject: `${o.workshop.name}: your order ${o.orderNumber} will be ready by ${longDate(o.promisedDate)}`,
     ...wrap(o.workshop, [
       `Dear ${o.customerName},`,
-      `Thank you for your order "${o.title}" (${o.orderNumber}). We promise it ready by ${when}.`,
+      `Thank you for your order "${o.title}" (${o.orderNumber}). We promise to have it ready by ${when}.`,
       b.booked
         ? b.startDate === b.endDate
           ? `It is booked into our workshop plan for ${longDate(b.startDate)}.`

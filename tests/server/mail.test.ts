@@ -63,6 +63,9 @@ describe('mail', () => {
     expect(format(parseISO('2031-03-14'), 'EEEE d MMMM yyyy')).toBe('Friday 14 March 2031')
     expect(m.text).toContain('Friday 14 March 2031')
     expect(m.html).toContain('Friday 14 March 2031')
+    expect(m.text).toContain(
+      `Thank you for your order "Signet ring" (${r.body.order.number}). We promise to have it ready by Friday 14 March 2031 (2031-03-14).`,
+    )
   })
 
   it('when the owner changes the workshop’s address, contact and currency, then the next confirmation carries them; bad values are refused on the field', async () => {

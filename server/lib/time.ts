@@ -83,6 +83,9 @@ export function formatDay(isoDate: string, timeZone: string, now: Date | number 
   return d.format(d.year() === dayjs(now).tz(timeZone).year() ? 'ddd D MMM' : 'ddd D MMM YYYY')
 }
 
+/** A local calendar day (YYYY-MM-DD) with its year, for a text kept beyond this year (an audit reason): "Mon 21 Dec 2026". */
+export const formatDayWithYear = (isoDate: string): string => dayjs(isoDate.slice(0, 10)).format('ddd D MMM YYYY')
+
 /** An instant on the workshop's clock as people read it: "Mon 7 Dec 10:38", with the year when it is not `now`'s ("Fri 1 Jan 1999 10:00"). */
 export function formatInstant(at: Date | string | number, timeZone: string, now: Date | number = Date.now()): string {
   const d = dayjs(at).tz(timeZone)

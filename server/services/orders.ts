@@ -1,12 +1,13 @@
 // Orders and their job bags: numbering, routing steps copied into operations, and the order list (with each order's forecast).
 import { and, asc, count, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { ListQuery, Page } from '../../shared/schemas/common'
-import type { OrderInput, OrderSummary, OrderUpdate } from '../../shared/schemas/order'
+import { orderDateProblems, type OrderInput, type OrderSummary, type OrderUpdate } from '../../shared/schemas/order'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { Db, Trx } from '../db/client'
 import { customers, jobBags, operations, orders, routingSteps, routings, workshops } from '../db/schema/index'
-import { invalid } from '../errors/app-error'
+import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
+import { dayjs } from '../lib/time'
 import { audit } from './audit'
 import { sendReadyNotice } from './mail'
 import { requireCustomerStonesBack } from './stones'
@@ -87,6 +88,35 @@ export async function getOrder(db: Db, workshopId: number, id: number) {
   }
 }
 
+/** The workshop's day now (YYYY-MM-DD), in its time zone. */
+export async function workshopDay(db: Db | Trx, workshopId: number, now = new Date()): Promise<string> {
+  const [w] = await db.select({ timeZone: workshops.timeZone }).from(workshops).where(eq(workshops.id, workshopId))
+  return dayjs(now)
+    .tz(w?.timeZone ?? 'Europe/London')
+    .format('YYYY-MM-DD')
+}
+
+/**
+ * 400 naming each date an order may not be given today (the rule the order dialog checks too): a new order's due and
+ * promised dates are today or later; a change checks only the dates it changes, so an order gone past its due day still edits.
+ */
+export async function refusePastDates(
+  db: Db | Trx,
+  workshopId: number,
+  dates: { dueDate?: string; promisedDate?: string | null },
+  before?: { dueDate: string; promisedDate: string | null },
+) {
+  const fields = orderDateProblems(dates, await workshopDay(db, workshopId), before) as Record<string, string>
+  if (Object.keys(fields).length)
+    throw new AppError({
+      code: 'validation',
+      message: Object.entries(fields)
+        .map(([f, why]) => `${f}: ${why}`)
+        .join('; '),
+      fields,
+    })
+}
+
 /** Adds one job bag with its routing's steps as operations (inside the caller's transaction). */
 export async function addJobBag(tx: Trx, workshopId: number, orderId: number, orderNumber: string, index: number, piece: OrderInput['pieces'][number]) {
   const [t] = await tx
@@ -130,7 +160,8 @@ export async function takeOrder<T>({ db, realtime }: Deps, actor: Actor, input: 
       .where(and(eq(customers.id, input.customerId), eq(customers.workshopId, actor.workshopId)))
     if (!c) throw invalid('customerId', 'is not a customer of this workshop')
     await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.orderNumbers}, ${actor.workshopId})`)
-    const year = input.dueDate.slice(2, 4)
+    // The year the order is taken in, on the workshop's clock (not its due date's).
+    const year = (await workshopDay(tx, actor.workshopId)).slice(2, 4)
     const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(orders).where(eq(orders.workshopId, actor.workshopId))
     const number = `MG${year}-${String(n + 1).padStart(4, '0')}`
     const { pieces, ...values } = input
@@ -147,6 +178,7 @@ export async function takeOrder<T>({ db, realtime }: Deps, actor: Actor, input: 
 }
 
 export async function createOrder(deps: Deps, actor: Actor, input: OrderInput) {
+  await refusePastDates(deps.db, actor.workshopId, input)
   return (await takeOrder(deps, actor, input, async () => null)).order
 }
 
@@ -163,6 +195,13 @@ export async function updateOrder(deps: Deps, actor: Actor, id: number, input: O
             .from(orders)
             .where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId)))
         : []
+    if (values.dueDate !== undefined || values.promisedDate !== undefined) {
+      const [stored] = await tx
+        .select({ dueDate: orders.dueDate, promisedDate: orders.promisedDate })
+        .from(orders)
+        .where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId)))
+      if (stored) await refusePastDates(tx, actor.workshopId, values, stored)
+    }
     const o = await updateVersioned(tx, orders, 'Order', { id, workshopId: actor.workshopId, version, values: { ...values, updatedAt: new Date() } })
     await audit(tx, actor, 'update', 'order', id, values)
     // Collected: the finished pieces' metal leaves stock with them.

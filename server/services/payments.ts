@@ -249,6 +249,13 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
   }
   const [quote] = link.quoteId ? await deps.db.select().from(s.quotes).where(eq(s.quotes.id, link.quoteId)) : []
   const actor: Actor = { userId: link.createdBy ?? quote?.createdBy ?? 0, workshopId: link.workshopId, role: 'sales', personId: null, name: 'payment provider' }
+  // A quote past its valid-until day has lapsed, whether or not the daily run has marked it yet: its money is kept to refund.
+  const [zone] = await deps.db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, link.workshopId))
+  const day = dayjs()
+    .tz(zone?.timeZone ?? 'Europe/London')
+    .format('YYYY-MM-DD')
+  const lapsedQuote = (q: typeof s.quotes.$inferSelect | undefined) =>
+    !!q && (q.status === 'expired' || ((q.status === 'drafted' || q.status === 'sent') && q.validUntil < day))
   const providerRef = typeof session.payment_intent === 'string' ? session.payment_intent : (session.payment_intent?.id ?? session.id)
 
   const book = async (tx: Trx, newOrderId: number | null) => {
@@ -260,6 +267,7 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
     if (!ins.length) throw new AlreadyBooked()
     const [q] = link.quoteId ? await tx.select().from(s.quotes).where(eq(s.quotes.id, link.quoteId)).for('update') : []
     const withdrawn = q?.status === 'withdrawn'
+    const lapsed = lapsedQuote(q)
     const orderId = newOrderId ?? link.orderId ?? q?.orderId ?? null
     const [p] = await tx
       .insert(s.payments)
@@ -273,8 +281,8 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
         amountMinor: session.amount_total ?? link.amountMinor,
         currency: (session.currency ?? link.currency).toUpperCase(),
         providerRef,
-        toRefund: withdrawn,
-        note: withdrawn ? 'paid after the quote was withdrawn' : '',
+        toRefund: withdrawn || lapsed,
+        note: withdrawn ? 'paid after the quote was withdrawn' : lapsed ? 'paid after the quote lapsed' : '',
         recordedBy: null,
         receivedAt: new Date(event.created * 1000).toISOString(),
       })
@@ -283,7 +291,7 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
     if (!p) throw new AlreadyBooked()
     await tx.update(s.paymentLinks).set({ status: 'paid' }).where(eq(s.paymentLinks.id, link.id))
     let quoteChanged: { id: number; version: number; status: string } | null = null
-    if (q && !withdrawn && q.status !== 'accepted') {
+    if (q && !withdrawn && !lapsed && q.status !== 'accepted') {
       const [u] = await tx
         .update(s.quotes)
         .set({ status: 'accepted', acceptedAt: new Date().toISOString(), orderId, version: sql`${s.quotes.version} + 1` })
@@ -296,14 +304,20 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
         .update(s.payments)
         .set({ orderId })
         .where(and(eq(s.payments.quoteId, q.id), isNull(s.payments.orderId)))
-    await audit(tx, actor, 'book', 'payment', p.id, { eventId: event.id, providerRef, amountMinor: p.amountMinor, currency: p.currency, toRefund: withdrawn })
+    await audit(tx, actor, 'book', 'payment', p.id, {
+      eventId: event.id,
+      providerRef,
+      amountMinor: p.amountMinor,
+      currency: p.currency,
+      toRefund: withdrawn || lapsed,
+    })
     return { payment: p, quoteChanged }
   }
 
   let booked: Awaited<ReturnType<typeof book>>
   let planned: number | null = null
   try {
-    const needsOrder = quote && quote.status !== 'withdrawn' && quote.status !== 'accepted' && !quote.orderId && !link.orderId
+    const needsOrder = quote && quote.status !== 'withdrawn' && quote.status !== 'accepted' && !lapsedQuote(quote) && !quote.orderId && !link.orderId
     if (needsOrder) {
       const input = quoteOrderInput(quote)
       const room = await quoteRoom(deps, actor, input)

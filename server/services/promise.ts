@@ -9,7 +9,7 @@ import { routingStepMinutes } from '../../shared/domain/estimate'
 import * as s from '../db/schema/index'
 import { AppError, invalid } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import { dayjs } from '../lib/time'
+import { dayjs, formatDayWithYear } from '../lib/time'
 import { clipToWindows, jointWindows } from '../scheduler/calendar.ts'
 import { checkProblem, promise, solve, type Job, type Operation, type Plan, type PlannedOperation, type Problem } from '../scheduler/index.ts'
 import { compile, decode, toPlan } from '../scheduler/decode.ts'
@@ -17,7 +17,7 @@ import { topologicalOrder } from '../scheduler/search.ts'
 import type { Db, Trx } from '../db/client'
 import { audit } from './audit'
 import { sendPromiseConfirmation } from './mail'
-import { getOrder, takeOrder } from './orders'
+import { getOrder, refusePastDates, takeOrder } from './orders'
 import { engineId, type Assignments } from '../planning/assignments'
 import { bookPromise, readLivePlan, type Booking } from '../planning/live-plan'
 import { loadPlanningData, localTime, operationOptions, weightOfPriority, type PlanningData } from '../planning/problem'
@@ -315,7 +315,7 @@ export async function roomFor(deps: Deps, actor: Actor, order: OrderInput, now: 
   const ends = local(data, placed.completion).date
   if (ends > (order.promisedDate ?? order.dueDate))
     return {
-      reason: `the room found now ends ${ends}, after the ${order.promisedDate ? 'promised' : 'due'} date; the manager plans it at the next re-plan`,
+      reason: `the room found now ends ${formatDayWithYear(ends)}, after the ${order.promisedDate ? 'promised' : 'due'} date; the manager plans it at the next re-plan`,
     }
   return { data, placed }
 }
@@ -332,6 +332,7 @@ export async function acceptPromise(deps: Deps, actor: Actor, input: PromiseAcce
     .where(and(eq(s.routings.id, input.routingId), eq(s.routings.workshopId, actor.workshopId)))
   if (!t) throw invalid('routingId', 'is not a routing of this workshop')
   if (input.dueDate && input.dueDate < input.promisedDate) throw invalid('dueDate', 'must not be before the promised date')
+  await refusePastDates(deps.db, actor.workshopId, { dueDate: input.dueDate, promisedDate: input.promisedDate })
   const orderInput: OrderInput = {
     customerId: input.customerId,
     title: input.title,

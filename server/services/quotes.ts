@@ -1,12 +1,12 @@
 // Quotes: drafted → sent (e-mailed with a deposit link) → accepted (the order is made or linked), or expired / withdrawn; the PDF.
 import { and, count, desc, eq, ilike, inArray, lt, or, sql } from 'drizzle-orm'
 import PDFDocument from 'pdfkit'
-import type { QuoteInput, QuoteUpdate, QuoteStatus } from '../../shared/schemas/quote'
+import { defaultValidUntil, quoteDateProblems, type QuoteInput, type QuoteUpdate, type QuoteStatus } from '../../shared/schemas/quote'
 import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
-import { dayjs } from '../lib/time'
+import { dayjs, formatDayWithYear } from '../lib/time'
 import { money, quoteOffer } from '../mail/messages'
 import { minorToMajor } from '../../shared/domain/currency'
 import { metalName } from '../../shared/schemas/order'
@@ -50,8 +50,24 @@ const today = async (db: Db | Trx, workshopId: number, now = new Date()) => {
     .format('YYYY-MM-DD')
 }
 
-/** Sent quotes past their validity lapse (run before reading and by the daily timer). */
-export async function expireQuotes(deps: Pick<Deps, 'db' | 'realtime'>, workshopId: number, now = new Date()) {
+/** 400 naming each date the quote may not carry today, with its reason (the rule the quote dialog checks too). */
+function checkDates(q: { promisedDate: string | null; validUntil: string }, day: string) {
+  const fields = quoteDateProblems(q, day) as Record<string, string>
+  if (Object.keys(fields).length)
+    throw new AppError({
+      code: 'validation',
+      message: Object.entries(fields)
+        .map(([f, why]) => `${f}: ${why}`)
+        .join('; '),
+      fields,
+    })
+}
+
+/**
+ * Quotes (drafted or sent) past their validity lapse (run before reading and by the daily timer); their open deposit links
+ * close with them, here and at the provider, so a lapsed quote cannot be paid.
+ */
+export async function expireQuotes(deps: Pick<Deps, 'db' | 'realtime'> & Partial<Pick<Deps, 'pay'>>, workshopId: number, now = new Date()) {
   const rows = await deps.db
     .update(s.quotes)
     .set({ status: 'expired', version: sql`${s.quotes.version} + 1` })
@@ -59,6 +75,22 @@ export async function expireQuotes(deps: Pick<Deps, 'db' | 'realtime'>, workshop
       and(eq(s.quotes.workshopId, workshopId), inArray(s.quotes.status, ['drafted', 'sent']), lt(s.quotes.validUntil, await today(deps.db, workshopId, now))),
     )
     .returning()
+  const links = rows.length
+    ? await deps.db
+        .update(s.paymentLinks)
+        .set({ status: 'expired' })
+        .where(
+          and(
+            inArray(
+              s.paymentLinks.quoteId,
+              rows.map((q) => q.id),
+            ),
+            eq(s.paymentLinks.status, 'open'),
+          ),
+        )
+        .returning()
+    : []
+  for (const l of links) await deps.pay?.stripe.checkout.sessions.expire(l.providerId).catch(() => {})
   for (const q of rows) deps.realtime.emit(workshopId, 'quote:changed', { id: q.id, version: q.version, status: q.status })
   return rows.length
 }
@@ -140,7 +172,8 @@ export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
     const day = await today(tx, actor.workshopId)
     const number = `Q${day.slice(2, 4)}-${String(n + 1).padStart(4, '0')}`
     const depositMinor = input.depositMinor ?? Math.round((input.priceMinor * w!.depositPct) / 100)
-    const validUntil = input.validUntil ?? dayjs(day).add(w!.quoteValidDays, 'day').format('YYYY-MM-DD')
+    const validUntil = input.validUntil ?? defaultValidUntil(day, w!.quoteValidDays, input.promisedDate)
+    checkDates({ promisedDate: input.promisedDate, validUntil }, day)
     const [q] = await tx
       .insert(s.quotes)
       .values({
@@ -172,7 +205,13 @@ const wrongState = (status: QuoteStatus, action: string) =>
   new AppError({
     code: 'conflict',
     details: { status },
-    message: `A ${status} quote cannot be ${action}${status === 'sent' && action === 'edited' ? ': the customer has it already; take it back and make a new one' : ''}`,
+    message: `A${/^[aeiou]/.test(status) ? 'n' : ''} ${status} quote cannot be ${action}${
+      status === 'sent' && action === 'edited'
+        ? ': the customer has it already; take it back and make a new one'
+        : status === 'expired'
+          ? ': it lapsed at the end of its valid-until day; write a new quote'
+          : ''
+    }`,
   })
 
 async function change(
@@ -196,6 +235,8 @@ async function change(
     if (!allowed.includes(cur.status)) throw wrongState(cur.status, action)
     const next = { ...cur, ...values }
     if (next.depositMinor > next.priceMinor) throw invalid('depositMinor', 'must not be more than the price')
+    // A change to a draft's dates is checked as a new quote's are.
+    if (action === 'edited' && ('promisedDate' in values || 'validUntil' in values)) checkDates(next, await today(tx, actor.workshopId))
     const [u] = await tx
       .update(s.quotes)
       .set({ ...values, version: sql`${s.quotes.version} + 1` })
@@ -221,8 +262,9 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
   const before = await getQuote(deps.db, actor.workshopId, id)
   if (!['drafted', 'sent'].includes(before.status)) throw wrongState(before.status, 'sent')
   if (before.version !== version) throw staleVersion('The quote')
-  // A draft kept before prices above zero were required is not sent for nothing.
+  // A draft kept before prices above zero were required is not sent for nothing, nor one kept with dates no longer allowed.
   if (before.priceMinor < 1) throw invalid('priceMinor', 'must be more than zero')
+  if (before.status === 'drafted') checkDates(before, await today(deps.db, actor.workshopId))
   let link = before.links.find((l) => l.status === 'open' && l.purpose === 'deposit')
   if (!link && before.depositMinor > 0)
     link = await createLink(deps, actor, {
@@ -268,6 +310,13 @@ export async function acceptQuote(deps: Deps, actor: Actor, id: number, version:
     .where(and(eq(s.quotes.id, id), eq(s.quotes.workshopId, actor.workshopId)))
   if (!q) throw notFound('Quote')
   if (!['drafted', 'sent'].includes(q.status)) throw wrongState(q.status, 'accepted')
+  // A quote kept from before its dates were checked may still promise a day gone: its order would be late at birth.
+  if (q.promisedDate && q.promisedDate < (await today(deps.db, actor.workshopId)))
+    throw new AppError({
+      code: 'conflict',
+      details: { promisedDate: q.promisedDate },
+      message: `Quote ${q.number} promised ${formatDayWithYear(q.promisedDate)}, a day gone: withdraw it and write a new quote with a date you can keep`,
+    })
   let booking: Booking | null = null
   if (q.orderId) await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString() }, 'accepted')
   else {
@@ -303,6 +352,7 @@ export async function withdrawQuote(deps: Deps, actor: Actor, id: number, versio
 }
 
 export async function quoteLink(deps: Deps, actor: Actor, id: number, amountMinor?: number) {
+  await expireQuotes(deps, actor.workshopId)
   const q = await getQuote(deps.db, actor.workshopId, id)
   if (!['drafted', 'sent'].includes(q.status)) throw wrongState(q.status, 'paid')
   const amount = amountMinor ?? q.depositMinor

@@ -12,11 +12,15 @@ export const code = z
 export const notes = z.string().max(2000, 'must be at most 2000 characters').optional().default('')
 export const isoDate = z
   .string({ error: 'is required' })
+  // An empty field says so, not how a date is written (the date pickers show another format).
+  .min(1, { error: 'is required', abort: true })
   .regex(/^\d{4}-\d{2}-\d{2}$/, 'must be a date YYYY-MM-DD')
   .refine((s) => {
     const d = new Date(`${s}T00:00:00Z`)
     return !Number.isNaN(d.getTime()) && d.toISOString().startsWith(s) && d.getUTCFullYear() >= 2000 && d.getUTCFullYear() <= 2100
   }, 'must be a real date between 2000 and 2100')
+/** Reason for a date chosen before the workshop's `today` (both YYYY-MM-DD, so they compare as text); empty when it will do. */
+export const pastDateProblem = (date: string | null | undefined, today: string): string => (date && date < today ? 'must be today or later' : '')
 export const isoDateTime = z.iso.datetime({ offset: true, error: 'must be a date and time (ISO 8601)' })
 export const timeOfDay = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'must be a time HH:mm')
 export const version = z.number({ error: 'is required (the version you edited)' }).int().nonnegative()

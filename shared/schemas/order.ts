@@ -1,7 +1,7 @@
 // Orders and the pieces (job bags) they are made of.
 import { z } from 'zod'
 import { ORDER_STATUSES } from '../domain/status'
-import { id, isoDate, isoDateTime, name, notes, pageOf, version, wireInt } from './common'
+import { id, isoDate, isoDateTime, name, notes, pageOf, pastDateProblem, version, wireInt } from './common'
 import { RING_SCALES, ringSizeToIso } from '../domain/ring-size'
 
 export const METALS = ['silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950', 'brass', 'copper', 'mixed'] as const
@@ -78,6 +78,25 @@ export const orderUpdate = z.object({
   notes: z.string().max(2000).optional(),
   version,
 })
+/**
+ * What is wrong with an order's dates on the workshop's `today` (YYYY-MM-DD), by field; empty when they will do. A new
+ * order is due and promised today or later. A change keeps the dates it does not change (an order may have gone past its
+ * due day), so only the dates given in `changed` are checked; pass `before` to say which ones differ from what is stored.
+ */
+export function orderDateProblems(
+  changed: { dueDate?: string; promisedDate?: string | null },
+  today: string,
+  before?: { dueDate: string; promisedDate: string | null },
+): Partial<Record<'dueDate' | 'promisedDate', string>> {
+  const out: Partial<Record<'dueDate' | 'promisedDate', string>> = {}
+  for (const field of ['dueDate', 'promisedDate'] as const) {
+    const value = changed[field]
+    if (before && value === before[field]) continue
+    const problem = pastDateProblem(value, today)
+    if (problem) out[field] = problem
+  }
+  return out
+}
 export type PieceParams = z.infer<typeof pieceParams>
 export type OrderInput = z.infer<typeof orderInput>
 export type OrderUpdate = z.infer<typeof orderUpdate>

@@ -1,6 +1,6 @@
 // Quotes for commissions: what is quoted (piece, metal, stones), the promised date, the price and deposit in minor units.
 import { z } from 'zod'
-import { id, isoDate, name, pageOf, version, wireInt } from './common'
+import { id, isoDate, name, pageOf, pastDateProblem, version, wireInt } from './common'
 import { pieceParams } from './order'
 import { minorAmount, payment, paymentLink } from './payment'
 import { promiseBooking } from './promise'
@@ -81,6 +81,30 @@ export const quoteListQuery = z.object({
   pageSize: z.coerce.number().int().min(1).max(200).default(50),
 })
 export const quoteLinkInput = z.object({ amountMinor: minorAmount.min(1, 'must be at least 1').optional() })
+/**
+ * What is wrong with a quote's dates on the workshop's `today` (YYYY-MM-DD), by field; empty when they will do. A promise is
+ * for today or later; a quote stands from today (else it lapses at once) and no later than its promised date, since a
+ * customer accepting after that day would get an order promised for a day gone. The server and the quote dialog both ask it.
+ */
+export function quoteDateProblems(
+  q: { promisedDate: string | null; validUntil: string | undefined },
+  today: string,
+): Partial<Record<'promisedDate' | 'validUntil', string>> {
+  const out: Partial<Record<'promisedDate' | 'validUntil', string>> = {}
+  const promised = pastDateProblem(q.promisedDate, today)
+  if (promised) out.promisedDate = promised
+  if (pastDateProblem(q.validUntil, today)) out.validUntil = 'must be today or later (the quote would lapse at once)'
+  else if (q.validUntil && q.promisedDate && q.validUntil > q.promisedDate)
+    out.validUntil = 'must not be after the promised date (a customer accepting later would get an order promised for a day gone)'
+  return out
+}
+/** How long a new quote stands: the workshop's validity days from today, but never past its promised date (one still to come). */
+export const defaultValidUntil = (today: string, validDays: number, promisedDate: string | null): string => {
+  const d = new Date(`${today}T00:00:00Z`)
+  d.setUTCDate(d.getUTCDate() + validDays)
+  const byDays = d.toISOString().slice(0, 10)
+  return promisedDate && promisedDate >= today && promisedDate < byDays ? promisedDate : byDays
+}
 export type QuoteInput = z.infer<typeof quoteInput>
 export type QuoteUpdate = z.infer<typeof quoteUpdate>
 export type QuoteDetails = z.infer<typeof quoteDetails>

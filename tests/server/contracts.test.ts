@@ -122,7 +122,7 @@ describe('answers on the demo workshop', () => {
       'post',
       '/orders',
       '/orders',
-      { customerId: customers.items[0].id, title: 'Contract ring', dueDate: '2027-02-01', pieces: [{ routingId: templates[0].id, piece: 'Ring' }] },
+      { customerId: customers.items[0].id, title: 'Contract ring', dueDate: '2031-02-01', pieces: [{ routingId: templates[0].id, piece: 'Ring' }] },
       201,
     )
     await call(manager, 'patch', '/orders/:id', `/orders/${order.id}`, { priority: 4, version: order.version })

@@ -1,8 +1,10 @@
 // Orders API against real PostgreSQL: taking an order with pieces (job bags, routings copied as operations), the list, changes.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { count } from 'drizzle-orm'
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
+import { count, eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
+import { createOrder } from '../../server/services/orders'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
+import { addWorkshop, firstWorkshopId } from '../setup/fixtures'
 import { auditRows, expectCleanError, expectFieldError, secondWorkshop } from './helpers'
 
 let t: TestApp
@@ -59,8 +61,10 @@ describe('taking an order', () => {
       ],
     })
     expect(r.status).toBe(201)
-    // Order number: MG + two-digit year of the due date + running count in the workshop (our own scheme).
-    const number = `MG31-${String(n + 1).padStart(4, '0')}`
+    // Order number: MG + two-digit year the order is taken in (the workshop's clock, Europe/London in the seed; read here
+    // with Intl, not the server's dayjs) + running count in the workshop (our own scheme). Due in 2031, taken this year.
+    const year = new Intl.DateTimeFormat('en-GB', { timeZone: 'Europe/London', year: '2-digit' }).format(new Date())
+    const number = `MG${year}-${String(n + 1).padStart(4, '0')}`
     expect(r.body).toMatchObject({
       number,
       customerId,
@@ -89,7 +93,7 @@ describe('taking an order', () => {
     expect(got.body).toEqual(r.body)
     expect((await auditRows(t, 'order', r.body.id))[0]).toMatchObject({ action: 'create', details: { number, pieces: 2 } })
     const next = await sales.post('/api/orders', { customerId, title: 'Next one', dueDate: '2032-01-05' })
-    expect(next.body.number).toBe(`MG32-${String(n + 2).padStart(4, '0')}`)
+    expect(next.body.number).toBe(`MG${year}-${String(n + 2).padStart(4, '0')}`)
     expect(next.body.jobBags).toEqual([])
   })
 
@@ -284,6 +288,89 @@ describe('order list', () => {
     expectFieldError(await sales.get('/api/orders?pageSize=501'), 'pageSize')
     expectFieldError(await sales.get('/api/orders?page=0'), 'page')
     expectFieldError(await sales.get('/api/orders?order=up'), 'order')
+  })
+})
+
+/** A workshop day `days` from today on the seeded workshop's clock (Europe/London), written by Intl rather than the server's code. */
+const dayFromToday = (days: number) => new Intl.DateTimeFormat('en-CA', { timeZone: 'Europe/London' }).format(new Date(Date.now() + days * 86_400_000))
+
+describe('order numbers', () => {
+  it('when an order is taken at 23:30 UTC on 31 Dec 2026, then London numbers it MG26 and Auckland (already 1 Jan 2027, 12:30) MG27, whatever the due year', async () => {
+    // Hand-worked: 2026-12-31T23:30Z is 23:30 on 31 Dec in London (GMT, UTC+0) and 12:30 on 1 Jan 2027 in Auckland (NZDT, UTC+13).
+    const london = await firstWorkshopId(t.db)
+    const { workshopId: auckland, userIds } = await addWorkshop(t.db, {
+      name: 'Harbour bench',
+      users: [{ email: 'owner@harbour-bench.test', name: 'Harbour owner', role: 'owner', passwordHash: 'x' }],
+    })
+    await t.db.update(s.workshops).set({ timeZone: 'Pacific/Auckland' }).where(eq(s.workshops.id, auckland))
+    const [aucklandCustomer] = await t.db.insert(s.customers).values({ workshopId: auckland, name: 'Tama Rewiti', reference: 'C-0001' }).returning()
+    const londonOrders = (await t.db.select({ n: count() }).from(s.orders).where(eq(s.orders.workshopId, london)))[0]!.n
+    const actor = (workshopId: number, userId: number) => ({ userId, workshopId, role: 'sales' as const, personId: null, name: 'sales' })
+    const [londonUser] = await t.db.select({ id: s.users.id }).from(s.users).where(eq(s.users.workshopId, london))
+    vi.useFakeTimers({ toFake: ['Date'], now: new Date('2026-12-31T23:30:00Z') })
+    try {
+      const a = await createOrder(t.deps, actor(london, londonUser!.id), {
+        customerId,
+        title: 'New year ring',
+        dueDate: '2031-01-01',
+        promisedDate: null,
+        priority: 3,
+        priceQuotedMinor: 0,
+        notes: '',
+        pieces: [],
+      })
+      const b = await createOrder(t.deps, actor(auckland, userIds[0]!), {
+        customerId: aucklandCustomer!.id,
+        title: 'New year pendant',
+        dueDate: '2031-01-01',
+        promisedDate: null,
+        priority: 3,
+        priceQuotedMinor: 0,
+        notes: '',
+        pieces: [],
+      })
+      expect(a.number).toBe(`MG26-${String(londonOrders + 1).padStart(4, '0')}`)
+      expect(b.number).toBe('MG27-0001')
+    } finally {
+      vi.useRealTimers()
+    }
+  })
+})
+
+describe('dates in the past', () => {
+  it('when an order is taken due or promised before today, then 400 naming the field; today itself will do', async () => {
+    const yesterday = dayFromToday(-1)
+    const base = { customerId, title: 'Chain repair', pieces: [{ routingId: routing['ring-resize']!.id, piece: 'Chain' }] }
+    const before = await orderCount()
+    expectFieldError(await sales.post('/api/orders', { ...base, dueDate: yesterday }), 'dueDate', /today or later/)
+    expectFieldError(await sales.post('/api/orders', { ...base, dueDate: dayFromToday(10), promisedDate: yesterday }), 'promisedDate', /today or later/)
+    const both = await sales.post('/api/orders', { ...base, dueDate: yesterday, promisedDate: yesterday })
+    expect(Object.keys(both.body.fields ?? {}).sort()).toEqual(['dueDate', 'promisedDate'])
+    expect(await orderCount()).toBe(before)
+    const today = await sales.post('/api/orders', { ...base, dueDate: dayFromToday(0), promisedDate: dayFromToday(0) })
+    expect(today.status, JSON.stringify(today.body)).toBe(201)
+  })
+
+  it('when an order gone past its due day is changed, then its old dates stay, but a date changed into the past is refused', async () => {
+    const o = (await sales.post('/api/orders', { customerId, title: 'Late signet', dueDate: dayFromToday(5) })).body
+    // The order was taken weeks ago and its due day has gone.
+    await t.db
+      .update(s.orders)
+      .set({ dueDate: dayFromToday(-20), promisedDate: dayFromToday(-21) })
+      .where(eq(s.orders.id, o.id))
+    const kept = await sales.patch(`/api/orders/${o.id}`, {
+      title: 'Late signet, engraved',
+      dueDate: dayFromToday(-20),
+      promisedDate: dayFromToday(-21),
+      version: 0,
+    })
+    expect(kept.status, JSON.stringify(kept.body)).toBe(200)
+    expect(kept.body).toMatchObject({ title: 'Late signet, engraved', dueDate: dayFromToday(-20), promisedDate: dayFromToday(-21) })
+    expectFieldError(await sales.patch(`/api/orders/${o.id}`, { dueDate: dayFromToday(-2), version: 1 }), 'dueDate', /today or later/)
+    expectFieldError(await sales.patch(`/api/orders/${o.id}`, { promisedDate: dayFromToday(-1), version: 1 }), 'promisedDate', /today or later/)
+    const moved = await sales.patch(`/api/orders/${o.id}`, { dueDate: dayFromToday(3), promisedDate: null, version: 1 })
+    expect(moved.status, JSON.stringify(moved.body)).toBe(200)
+    expect(moved.body).toMatchObject({ dueDate: dayFromToday(3), promisedDate: null })
   })
 })
 

@@ -317,7 +317,10 @@ describe('accepting a promise', () => {
     await clearPlan()
     await seedLivePlan(6)
     const check = await sales.post('/api/promise/check', { routingId, params })
-    const earlier = format(new Date(Date.parse(check.body.now) - 86_400_000), 'yyyy-MM-dd')
+    // The day before the plan's earliest day, but not a day gone (a promise for a day gone is refused).
+    const earlier = format(new Date(Date.parse(`${check.body.fixedPlan.date}T12:00:00Z`) - 86_400_000), 'yyyy-MM-dd')
+    const today = new Intl.DateTimeFormat('en-CA', { timeZone: 'Europe/London' }).format(new Date(check.body.now))
+    expect(earlier >= today, `${check.body.fixedPlan.date} should be after today ${today}`).toBe(true)
     const c = { id: await firstCustomerId(t.db, 1) }
     const r = await sales.post('/api/promise/accept', {
       customerId: c.id,
@@ -404,6 +407,15 @@ describe('accepting a promise', () => {
     const msg = await fake.waitFor((m) => m.subject.includes(r.body.order.number))
     expect(msg.text).toMatch(/we will confirm the dates/)
     await clearPlan()
+  })
+
+  it('when the promised or due date is a day gone, then it is refused on the field and no order is made', async () => {
+    const c = { id: await firstCustomerId(t.db, 1) }
+    const yesterday = new Intl.DateTimeFormat('en-CA', { timeZone: 'Europe/London' }).format(new Date(Date.now() - 86_400_000))
+    const body = { customerId: c.id, title: 'Too late', routingId, params, priority: 3, priceQuotedMinor: 100 }
+    const before = (await t.db.select({ n: count() }).from(s.orders))[0]!.n
+    expectFieldError(await sales.post('/api/promise/accept', { ...body, promisedDate: yesterday }), 'promisedDate', /today or later/)
+    expect((await t.db.select({ n: count() }).from(s.orders))[0]!.n).toBe(before)
   })
 
   it('when the due date is before the promised date, then it is refused on the field', async () => {

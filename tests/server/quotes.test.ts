@@ -87,8 +87,8 @@ describe('the quote e-mail', () => {
       title: 'Bezel-set solitaire ring',
       description: 'Made to your sketch.',
       priceMinor: 64000,
-      promisedDate: '2031-03-07',
-      validUntil: '2031-03-14',
+      promisedDate: '2031-03-14',
+      validUntil: '2031-03-07',
     })
     const sent = await send(q)
     const mails = (await manager.get('/api/outbox?kind=quote&pageSize=100')).body.items as { id: number; subject: string }[]
@@ -104,9 +104,102 @@ describe('the quote e-mail', () => {
     expect(lines).toContain('Deposit to start the work: £192.00')
     expect(lines).toContain('Balance at collection: £448.00')
     // 1 January 2031 is a Wednesday, so 1 March is a Saturday, 7 March and 14 March are Fridays (hand-worked).
-    expect(lines).toContain('Ready by: Friday 7 March 2031')
-    expect(lines).toContain('This quote stands until Friday 14 March 2031.')
+    expect(lines).toContain('Ready by: Friday 14 March 2031')
+    expect(lines).toContain('This quote stands until Friday 7 March 2031.')
     expect(text).not.toMatch(/asking us to make/)
+  })
+})
+
+/** A workshop day `days` from today on the seeded workshop's clock, written by Intl rather than the server's code. */
+const dayFromToday = (days: number) => new Intl.DateTimeFormat('en-CA', { timeZone: tz }).format(new Date(Date.now() + days * 86_400_000))
+
+describe('quote dates', () => {
+  it('when a quote promises a day gone, stands until a day gone or stands past its promised date, then 400 naming the field and nothing is kept', async () => {
+    const before = await stored()
+    const r1 = await sales.post('/api/quotes', { customerId, title: 'Signet ring', priceMinor: 125000, promisedDate: dayFromToday(-1) })
+    expectFieldError(r1, 'promisedDate', /today or later/)
+    const r2 = await sales.post('/api/quotes', { customerId, title: 'Signet ring', priceMinor: 125000, validUntil: dayFromToday(-1) })
+    expectFieldError(r2, 'validUntil', /today or later \(the quote would lapse at once\)/)
+    const r3 = await sales.post('/api/quotes', {
+      customerId,
+      title: 'Signet ring',
+      priceMinor: 125000,
+      promisedDate: dayFromToday(10),
+      validUntil: dayFromToday(11),
+    })
+    expectFieldError(r3, 'validUntil', /must not be after the promised date/)
+    expect(await stored()).toEqual(before)
+    // Promised and standing until today, or standing until the promised day itself, will do.
+    expect((await drafted({ promisedDate: dayFromToday(0), validUntil: dayFromToday(0) })).validUntil).toBe(dayFromToday(0))
+    expect((await drafted({ promisedDate: dayFromToday(10), validUntil: dayFromToday(10) })).validUntil).toBe(dayFromToday(10))
+  })
+
+  it('when a quote names no valid-until day, then it stands the workshop’s 30 days, or until its promised date when that comes first', async () => {
+    // The seeded workshop keeps quotes 30 days (the column's default).
+    expect((await drafted({ promisedDate: dayFromToday(12) })).validUntil).toBe(dayFromToday(12))
+    expect((await drafted({ promisedDate: dayFromToday(90) })).validUntil).toBe(dayFromToday(30))
+    expect((await drafted()).validUntil).toBe(dayFromToday(30))
+  })
+
+  it('when a draft’s dates are changed into the past or past its promise, then 400 naming the field; a draft kept with a day gone is not sent', async () => {
+    const q = await drafted({ promisedDate: dayFromToday(20), validUntil: dayFromToday(15) })
+    expectFieldError(await sales.patch(`/api/quotes/${q.id}`, { promisedDate: dayFromToday(-3), version: q.version }), 'promisedDate', /today or later/)
+    expectFieldError(await sales.patch(`/api/quotes/${q.id}`, { promisedDate: dayFromToday(10), version: q.version }), 'validUntil', /after the promised date/)
+    const ok = await sales.patch(`/api/quotes/${q.id}`, { promisedDate: dayFromToday(10), validUntil: dayFromToday(8), version: q.version })
+    expect(ok.status, JSON.stringify(ok.body)).toBe(200)
+    // A draft kept before the dates were checked, promising a day gone.
+    await t.db
+      .update(s.quotes)
+      .set({ promisedDate: dayFromToday(-1) })
+      .where(eq(s.quotes.id, q.id))
+    const before = await stored()
+    expectFieldError(await sales.post(`/api/quotes/${q.id}/send`, { version: ok.body.version }), 'promisedDate', /today or later/)
+    expect(await stored()).toEqual(before)
+  })
+
+  it('when a sent quote kept from before still promises a day gone, then the office cannot accept it and is told why', async () => {
+    const q = await send(await drafted({ promisedDate: dayFromToday(5) }))
+    await t.db
+      .update(s.quotes)
+      .set({ promisedDate: dayFromToday(-2) })
+      .where(eq(s.quotes.id, q.id))
+    const r = await sales.post(`/api/quotes/${q.id}/accept`, { version: q.version })
+    expect(r.status).toBe(409)
+    expect(r.body.error).toMatch(new RegExp(`^Quote ${q.number} promised .+, a day gone: withdraw it and write a new quote`))
+    expect((await sales.get(`/api/quotes/${q.id}`)).body).toMatchObject({ status: 'sent', orderId: null })
+  })
+
+  it('when a quote has lapsed, then the office cannot accept it, a new payment link is refused and its open link is closed', async () => {
+    const q = await send(await drafted({ title: 'Bangle that lapsed' }))
+    await t.db
+      .update(s.quotes)
+      .set({ validUntil: dayFromToday(-1) })
+      .where(eq(s.quotes.id, q.id))
+    const link = await sales.post(`/api/quotes/${q.id}/payment-links`, {})
+    expect(link.status).toBe(409)
+    expect(link.body.error).toBe('An expired quote cannot be paid: it lapsed at the end of its valid-until day; write a new quote')
+    const r = await sales.post(`/api/quotes/${q.id}/accept`, { version: q.version })
+    expect(r.status).toBe(409)
+    expect(r.body.error).toBe('An expired quote cannot be accepted: it lapsed at the end of its valid-until day; write a new quote')
+    const after = (await sales.get(`/api/quotes/${q.id}`)).body
+    expect(after).toMatchObject({ status: 'expired', orderId: null })
+    expect(after.links.map((l: { status: string }) => l.status)).toEqual(['expired'])
+  })
+
+  it('when a lapsed quote’s deposit is paid by card before the day’s run has marked it, then no order is made and the money is kept to refund', async () => {
+    const q = await send(await drafted({ title: 'Brooch paid too late' }))
+    await t.db
+      .update(s.quotes)
+      .set({ validUntil: dayFromToday(-1) })
+      .where(eq(s.quotes.id, q.id))
+    const orders = (await t.db.select({ n: countRows() }).from(s.orders))[0]!.n
+    const paid = await fake.pay(q.links[0].url.split('/pay/')[1]!, TEST_CARDS.paid)
+    expect(paid.delivery?.status, paid.delivery?.body).toBe(200)
+    const after = (await sales.get(`/api/quotes/${q.id}`)).body
+    expect(after.status).not.toBe('accepted')
+    expect(after.orderId).toBeNull()
+    expect(after.payments).toMatchObject([{ toRefund: true, note: 'paid after the quote lapsed', orderId: null }])
+    expect((await t.db.select({ n: countRows() }).from(s.orders))[0]!.n).toBe(orders)
   })
 })
 
@@ -300,7 +393,7 @@ describe('an order from a quote on the live plan', () => {
     const r = await sales.post(`/api/quotes/${q.id}/accept`, { version: q.version })
     expect(r.status, JSON.stringify(r.body)).toBe(200)
     expect(r.body.status).toBe('accepted')
-    const why = `the room found now ends ${c.day}, after the promised date; the manager plans it at the next re-plan`
+    const why = `the room found now ends ${dayjs(c.day).format('ddd D MMM YYYY')}, after the promised date; the manager plans it at the next re-plan`
     expect(r.body.booking).toEqual({ booked: false, reason: why })
     expect(await orderSteps(r.body.orderId)).toEqual({
       engrave: { benchId: null, personId: null, start: null, end: null },
@@ -318,7 +411,10 @@ describe('an order from a quote on the live plan', () => {
     const after = (await sales.get(`/api/quotes/${q.id}`)).body
     expect(after).toMatchObject({ status: 'accepted', orderId: expect.any(Number) })
     expect(Object.values(await orderSteps(after.orderId)).every((x) => x.start === null)).toBe(true)
-    await expectOffPlanSaying(after.orderId, `the room found now ends ${c.day}, after the promised date; the manager plans it at the next re-plan`)
+    await expectOffPlanSaying(
+      after.orderId,
+      `the room found now ends ${dayjs(c.day).format('ddd D MMM YYYY')}, after the promised date; the manager plans it at the next re-plan`,
+    )
   })
 
   it('when its room is taken between placing it and the order’s transaction, then the order is still made, nothing is booked, and the audit names the booking that took it', async () => {

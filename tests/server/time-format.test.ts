@@ -65,7 +65,12 @@ beforeAll(async () => {
   // Materials and money: a seeded alloy and refining lot, and a quote drafted here (the demo has none).
   ids.alloy = firstId((await owner.get('/api/alloys')).body)
   ids.refiningLot = firstId((await owner.get('/api/refining-lots')).body)
-  const quote = await owner.post('/api/quotes', { customerId: ids.customer, title: 'Time format check', priceMinor: 125_000, promisedDate: from })
+  const quote = await owner.post('/api/quotes', {
+    customerId: ids.customer,
+    title: 'Time format check',
+    priceMinor: 125_000,
+    promisedDate: dayjs(from).add(14, 'day').format('YYYY-MM-DD'),
+  })
   expect(quote.status, JSON.stringify(quote.body)).toBe(201)
   ids.quote = quote.body.id
   // A one-time link (an invitation, read from the mailbox as the invited person would) and a tablet made a bench station.

@@ -292,6 +292,8 @@ export const jobBagMetal = z.object({
     pieceG: z.number().nullable(),
     thresholdG: z.number().nullable(),
     needed: z.boolean(),
+    /** The work is on the customer's own piece (a repair or a resize): hallmarked when it was made, so never needed again here. */
+    customersPiece: z.boolean(),
     routingHasHallmarking: z.boolean(),
     warning: z.string().nullable(),
   }),

@@ -31,7 +31,14 @@ const cid = () => `t-${Math.random().toString(36).slice(2)}-${Date.now()}`
 beforeAll(async () => {
   t = await createTestApp()
   for (const role of ['owner', 'manager', 'bench', 'sales'] as Role[]) as[role] = await signedIn(t.app, role)
-  bag = (await t.db.select({ id: s.jobBags.id }).from(s.jobBags).where(eq(s.jobBags.status, 'waiting')).orderBy(asc(s.jobBags.id)).limit(1))[0]!
+  // A new piece (not a repair or resize of the customer's own), so its weight asks for a hallmark.
+  bag = (
+    await t.db
+      .select({ id: s.jobBags.id, params: s.jobBags.params })
+      .from(s.jobBags)
+      .where(and(eq(s.jobBags.status, 'waiting'), eq(s.jobBags.routingKind, 'piece')))
+      .orderBy(asc(s.jobBags.id))
+  ).find((b) => !b.params.resizeFrom && !b.params.resizeTo)!
   const o = (
     await t.db
       .select({ id: s.operations.id, kindId: s.operations.kindId })
@@ -177,6 +184,47 @@ describe('a hand-worked job bag', () => {
       expect(first.source, `${r.code} bag ${r.id}`).toBe('customer')
       expect(acc.total.fromCustomerMg, `${r.code} bag ${r.id}`).toBe(acc.total.issuedMg)
     }
+  })
+
+  it('when a repair and a new piece each come back at 5.91 g of gold, then only the new piece must be hallmarked', async () => {
+    // Hand-worked: 5.91 g is at or above gold's 1 g threshold (Hallmarking Convention, UK profile), so a new piece whose routing has
+    // no hallmarking step gets the warning; a repair works on the customer's piece, hallmarked when it was made, and gets none.
+    const [mine, theirs] = await t.db
+      .select({ id: s.jobBags.id })
+      .from(s.jobBags)
+      .where(and(eq(s.jobBags.status, 'waiting'), notExists(t.db.select().from(s.metalMovements).where(eq(s.metalMovements.jobBagId, s.jobBags.id)))))
+      .orderBy(sql`${s.jobBags.id} desc`)
+      .limit(2)
+    const alloy = await newAlloy()
+    const results: Record<string, { needed: boolean; customersPiece: boolean; warning: string | null }> = {}
+    for (const [kind, b] of [
+      ['piece', mine!],
+      ['repair', theirs!],
+    ] as const) {
+      const [row] = await t.db.select({ params: s.jobBags.params }).from(s.jobBags).where(eq(s.jobBags.id, b.id))
+      const { resizeFrom: _f, resizeTo: _t, ...params } = row!.params
+      await t.db.update(s.jobBags).set({ routingKind: kind, params }).where(eq(s.jobBags.id, b.id))
+      const steps = await t.db
+        .select({ id: s.operations.id, code: s.operationKinds.code, outside: s.operationKinds.outside })
+        .from(s.operations)
+        .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+        .where(eq(s.operations.jobBagId, b.id))
+        .orderBy(asc(s.operations.seq))
+      for (const st of steps.filter((x) => x.code === 'hallmarking'))
+        await t.db.update(s.operations).set({ status: 'skipped' }).where(eq(s.operations.id, st.id))
+      const base = { jobBagId: b.id, alloyId: alloy.id, personId, operationId: steps.find((x) => !x.outside)!.id }
+      expect((await as.bench.post('/api/metal/issues', { ...base, weightG: 6 })).status).toBe(201)
+      expect((await as.bench.post('/api/metal/returns', { ...base, weightG: 5.91, form: 'piece' })).status).toBe(201)
+      results[kind] = (await as.owner.get(`/api/job-bags/${b.id}/metal`)).body.hallmark
+    }
+    expect(results.piece).toMatchObject({
+      pieceG: 5.91,
+      needed: true,
+      customersPiece: false,
+      warning:
+        'The piece weighs 5.91 g, at or above the 1 g below which gold need not be hallmarked: it must be hallmarked, and its routing has no hallmarking step.',
+    })
+    expect(results.repair).toMatchObject({ pieceG: 5.91, needed: false, customersPiece: true, warning: null })
   })
 
   it('when the tolerance is 3 %, then the same 2.1 % loss is not flagged; an edit from a stale read is refused', async () => {

@@ -10,6 +10,7 @@ import {
   gToMg,
   mgToG,
   needsHallmark,
+  worksOnCustomersPiece,
   type AlloyMetal,
 } from '../../../shared/domain/metal'
 import {
@@ -298,7 +299,10 @@ export async function jobBagMetal(db: Db, actor: Actor, jobBagId: number): Promi
   const alloyOfPiece = lastPiece ? (await db.select().from(alloys).where(eq(alloys.id, lastPiece.alloyId)))[0] : undefined
   const metal: AlloyMetal | null = alloyOfPiece?.metal ?? PIECE_METAL_ALLOY[(bag.params as { metal?: string } | null)?.metal ?? '']?.metal ?? null
   const pieceG = lastPiece ? mgToG(lastPiece.effectiveMg) : null
-  const needed = metal !== null && pieceG !== null && needsHallmark(metal, pieceG)
+  // Work on the customer's own piece (a repair, a resize) is on a piece hallmarked when it was made: the trade does not mark it
+  // again for a repair (common practice, no published source), so its weight asks for no hallmark.
+  const customersPiece = worksOnCustomersPiece({ kind: bag.routingKind }, bag.params as { resizeFrom?: unknown; resizeTo?: unknown } | null)
+  const needed = !customersPiece && metal !== null && pieceG !== null && needsHallmark(metal, pieceG)
   const routingHasHallmarking = ops.some((o) => o.kindCode === 'hallmarking' && o.status !== 'skipped')
   const thresholdG = metal ? HALLMARK_THRESHOLD_G[metal] : null
   return {
@@ -315,6 +319,7 @@ export async function jobBagMetal(db: Db, actor: Actor, jobBagId: number): Promi
       pieceG,
       thresholdG,
       needed,
+      customersPiece,
       routingHasHallmarking,
       warning:
         needed && !routingHasHallmarking

@@ -5,6 +5,7 @@ import {
   effectiveTimeRecord,
   jobBagDetail,
   jobBagListQuery,
+  jobBagQuery,
   jobBagSummary,
   jobBagStatusInput,
   ringSizeChange,
@@ -46,8 +47,13 @@ export const jobBagRoutes = [
     roles: READERS,
     summary: 'One job bag: routing with planned vs actual minutes, time records, history',
     params: idParam,
+    query: jobBagQuery,
     response: jobBagDetail,
-    handler: ({ deps, actor, params }) => jobBags.getJobBag(deps.db, actor.workshopId, params.id, { customerName: actor.role !== 'bench' }),
+    handler: ({ deps, actor, params, query }) =>
+      jobBags.getJobBag(deps.db, actor.workshopId, params.id, {
+        customerName: actor.role !== 'bench',
+        viewer: actor.role === 'sales' ? undefined : { actor, benchId: query.benchId ?? actor.station?.benchId ?? null },
+      }),
   }),
   route({
     method: 'get',

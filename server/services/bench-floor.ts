@@ -439,22 +439,51 @@ async function requireDepositIn(tx: Tx, workshopId: number, op: OpRow) {
     })
 }
 
+/**
+ * Everything that refuses a claim before the claim itself, in the order the tablet hears it: a step still waiting (its
+ * predecessors or their wait-after), one taken or finished already, a bag on hold, outside work, a deposit not in, a skill
+ * level too low, a bench not equipped. Without a bench (none chosen yet) the bench is not checked.
+ */
+async function claimChecks(tx: Tx, actor: Actor, op: OpRow, o: { personId?: number; benchId: number | null; now: Date }) {
+  const person = await requirePerson(tx, actor, o.personId)
+  if (op.status === 'pending') throw await pendingReason(tx, op)
+  await requireRested(tx, op, o.now)
+  if (!canMoveOperation(op.status, 'claimed')) refuseMove(op, 'claimed', person)
+  requireWorkable(op)
+  if (op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is outside work; the manager sends it out and books it back` })
+  await requireDepositIn(tx, actor.workshopId, op)
+  const [skill] = await tx
+    .select({ level: personSkills.level })
+    .from(personSkills)
+    .where(and(eq(personSkills.personId, person.id), eq(personSkills.kindId, op.kindId)))
+  const unskilled = rules.skill(stepOf(op), { personName: person.name, kindName: op.kindName, level: skill?.level ?? null, required: op.requiredLevel })
+  if (unskilled) throw ruleError(unskilled, { requiredLevel: op.requiredLevel, level: skill?.level ?? 0 })
+  const bench = o.benchId === null ? null : await requireBench(tx, actor.workshopId, o.benchId, op.kindId, op.kindName, stepOf(op))
+  return { person, bench }
+}
+
+/**
+ * Why the one asking could not take this ready step now — the words a claim would be refused with — or null when they could
+ * (or when no one is named yet: a station tablet before a PIN). The job bag page shows it instead of offering the step.
+ */
+export async function claimRefusal(tx: Tx, actor: Actor, operationId: number, benchId: number | null): Promise<string | null> {
+  if (actor.personId === null && actor.station) return null
+  const [op] = await baseQuery(tx).where(and(eq(operations.id, operationId), eq(jobBags.workshopId, actor.workshopId)))
+  if (!op || op.status !== 'ready') return null
+  try {
+    await claimChecks(tx, actor, op, { benchId, now: new Date() })
+    return null
+  } catch (err) {
+    if (err instanceof AppError && err.status < 500) return err.message
+    throw err
+  }
+}
+
 export function claim(deps: Deps, actor: Actor, operationId: number, input: ClaimInput) {
   return transition(deps, actor, { requestId: input.requestId, action: 'claim', operationId, livePlan: true }, async ({ tx, op, now }) => {
-    const person = await requirePerson(tx, actor, input.personId)
-    if (op.status === 'pending') throw await pendingReason(tx, op)
-    await requireRested(tx, op, now)
-    if (!canMoveOperation(op.status, 'claimed')) refuseMove(op, 'claimed', person)
-    requireWorkable(op)
-    if (op.outside) throw new AppError({ code: 'unprocessable', message: `${label(op)} is outside work; the manager sends it out and books it back` })
-    await requireDepositIn(tx, actor.workshopId, op)
-    const [skill] = await tx
-      .select({ level: personSkills.level })
-      .from(personSkills)
-      .where(and(eq(personSkills.personId, person.id), eq(personSkills.kindId, op.kindId)))
-    const unskilled = rules.skill(stepOf(op), { personName: person.name, kindName: op.kindName, level: skill?.level ?? null, required: op.requiredLevel })
-    if (unskilled) throw ruleError(unskilled, { requiredLevel: op.requiredLevel, level: skill?.level ?? 0 })
-    const bench = await requireBench(tx, actor.workshopId, input.benchId, op.kindId, op.kindName, stepOf(op))
+    const checked = await claimChecks(tx, actor, op, { personId: input.personId, benchId: input.benchId, now })
+    const person = checked.person
+    const bench = checked.bench!
     // The conditional update is the last guard: only a still unclaimed, ready operation is taken.
     const [won] = await tx
       .update(operations)

@@ -22,7 +22,7 @@ import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { finished, lockJobBag, refreshReadiness, syncJobBagStatus, type OperationChange } from './job-bag-state'
-import { benchRowsById, toBenchOperations } from './bench-floor'
+import { benchRowsById, claimRefusal, toBenchOperations } from './bench-floor'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
 
 export type { BagChange, OperationChange } from './job-bag-state'
@@ -58,7 +58,12 @@ export async function listJobBags(db: Db, workshopId: number, q: { orderId?: num
 }
 
 /** One job bag; the customer's name only when asked for (the bench knows a piece by the customer's code, as its ticket does). */
-export async function getJobBag(db: Tx, workshopId: number, id: number, opts: { customerName?: boolean } = {}): Promise<JobBagDetail> {
+export async function getJobBag(
+  db: Tx,
+  workshopId: number,
+  id: number,
+  opts: { customerName?: boolean; viewer?: { actor: Actor; benchId: number | null } } = {},
+): Promise<JobBagDetail> {
   const [row] = await db
     .select({ b: jobBags, o: orders, customerReference: customers.reference, customerName: customers.name })
     .from(jobBags)
@@ -144,6 +149,8 @@ export async function getJobBag(db: Tx, workshopId: number, id: number, opts: { 
     })),
   ].sort((x, y) => y.at.localeCompare(x.at))
   const next = operationsOut.find((x) => x.status === 'ready') ?? operationsOut.find((x) => ['claimed', 'paused', 'running'].includes(x.status))
+  // The page offers the next step only to someone who could take it; otherwise it says why, as the claim would.
+  const nextStepRefusal = next && next.status === 'ready' && opts.viewer ? await claimRefusal(db, opts.viewer.actor, next.id, opts.viewer.benchId) : null
   return {
     id: b.id,
     number: b.number,
@@ -168,6 +175,7 @@ export async function getJobBag(db: Tx, workshopId: number, id: number, opts: { 
     plannedMinutes: Math.round(operationsOut.filter((x) => x.status !== 'skipped').reduce((s, x) => s + x.estimateMinutes, 0) * 10) / 10,
     actualMinutes: Math.round([...actual.values()].reduce((s, x) => s + x, 0) * 10) / 10,
     nextOperationId: next?.id ?? null,
+    nextStepRefusal,
   }
 }
 
@@ -239,7 +247,7 @@ async function editRouting(
   for (const c of out.changed) realtime.emit(actor.workshopId, 'operation:changed', { id: c.id, version: c.version, status: c.status })
   realtime.emit(actor.workshopId, 'jobBag:changed', { id: jobBagId, version: out.jobBag.version, status: out.jobBag.status })
   if (out.order) realtime.emit(actor.workshopId, 'order:updated', { id: out.order.id, version: out.order.version })
-  return getJobBag(db, actor.workshopId, jobBagId)
+  return getJobBag(db, actor.workshopId, jobBagId, { viewer: { actor, benchId: actor.station?.benchId ?? null } })
 }
 
 const slug = (s: string) =>
@@ -523,5 +531,5 @@ export async function changeRingSize(deps: Deps, actor: Actor, jobBagId: number,
     return u!
   })
   realtime.emit(actor.workshopId, 'jobBag:changed', { id: jobBagId, version: out.version, status: out.status })
-  return getJobBag(db, actor.workshopId, jobBagId)
+  return getJobBag(db, actor.workshopId, jobBagId, { viewer: { actor, benchId: actor.station?.benchId ?? null } })
 }

@@ -126,6 +126,9 @@ export const historyEntry = z.object({
   details: z.record(z.string(), z.unknown()),
 })
 
+/** Reading one job bag: the bench the one looking works at (chosen on the bench screen), to say whether they could take its next step there. */
+export const jobBagQuery = z.object({ benchId: id.optional() })
+
 export const jobBagDetail = z.object({
   id: wireInt,
   number: z.string(),
@@ -152,6 +155,11 @@ export const jobBagDetail = z.object({
   actualMinutes: z.number(),
   /** The operation a person would take up next (first ready, else first held). */
   nextOperationId: wireInt.nullable(),
+  /**
+   * Why the one looking cannot take up the next step (a ready one) — skill level, a bench not equipped for it, a wait still
+   * running, a deposit not in… — in the words a claim would be refused with; null when they can, or when no one is named yet.
+   */
+  nextStepRefusal: z.string().nullable(),
 })
 
 /** One row of the job bag list. */

@@ -19,7 +19,8 @@ const jobBagList = z.array(jobBagSummary)
 const detail = { schema: jobBagDetail }
 
 export const listJobBags = (q: { orderId?: number; status?: string; q?: string } = {}) => api.get('/job-bags', { query: q, schema: jobBagList })
-export const getJobBag = (id: number) => api.get(`/job-bags/${id}`, detail)
+/** One job bag; with the bench the one looking works at, its answer says whether they could take its next step there. */
+export const getJobBag = (id: number, benchId?: number | null) => api.get(`/job-bags/${id}`, { query: benchId ? { benchId } : {}, ...detail })
 export const addStep = (id: number, body: StepAdd) => api.post(`/job-bags/${id}/operations`, body, detail)
 export const updateStep = (id: number, operationId: number, body: StepUpdate) => api.patch(`/job-bags/${id}/operations/${operationId}`, body, detail)
 export const skipStep = (id: number, operationId: number, body: StepSkip) => api.post(`/job-bags/${id}/operations/${operationId}/skip`, body, detail)

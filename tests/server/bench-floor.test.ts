@@ -340,6 +340,43 @@ describe('refusals', () => {
     expect(r.body.details.rule).toBe('bench capability')
   })
 
+  it('when the trainee opens a bag whose next step needs setting at level 2 or more, then the page says why in the claim’s words instead of offering it', async () => {
+    const bagOf = async (who: Agent, bagId: number, bench: number) => {
+      const r = await who.get(`/api/job-bags/${bagId}?benchId=${bench}`)
+      expect(r.status, JSON.stringify(r.body)).toBe(200)
+      return r.body as { number: string; nextOperationId: number | null; nextStepRefusal: string | null; operations: { id: number; name: string }[] }
+    }
+    let found: { op: { id: number; job_bag_id: number; required_level: number }; bag: Awaited<ReturnType<typeof bagOf>> } | undefined
+    for (const op of await openOps(t, 'setting', { key: 'set', status: 'ready' })) {
+      const bag = await bagOf(setter, op.job_bag_id, setA)
+      if (op.required_level > 1 && bag.nextOperationId === op.id && bag.nextStepRefusal === null) {
+        found = { op, bag }
+        break
+      }
+    }
+    expect(found, 'a bag whose next step is a ready setting step at level 2 or more, which the setter may take').toBeDefined()
+    const { op, bag } = found!
+    const name = bag.operations.find((o) => o.id === op.id)!.name
+    const trainee1 = (
+      await t.db
+        .select({ name: s.people.name })
+        .from(s.people)
+        .where(eq(s.people.id, await personIdOf(t, 'trainee@wrenfield.test')))
+    )[0]!.name
+    // Hand-worked from the seeded trainee (stone setting at level 1) and the step's required level.
+    const expected = `${trainee1} is not skilled for “${name}” of job bag ${bag.number}: it needs stone setting at level ${op.required_level}; their level is 1.`
+    expect((await bagOf(trainee, op.job_bag_id, setA)).nextStepRefusal).toBe(expected)
+    // The setter is skilled, but not at a fabrication bench: the bench is named as the claim would name it.
+    expect((await bagOf(setter, op.job_bag_id, fab1)).nextStepRefusal).toBe(
+      `Fabrication bench 1 is not equipped for stone setting (“${name}” of job bag ${bag.number}). Take it at a bench that is.`,
+    )
+    // Same words as the claim's refusal, and nothing was taken by asking.
+    const r = await trainee.post(`/api/bench/operations/${op.id}/claim`, { requestId: rid(), benchId: setA })
+    expectCleanError(r, 422)
+    expect(r.body.error).toBe(expected)
+    expect((await opRow(op.id)).status).toBe('ready')
+  })
+
   it('when a bench user tries to act for someone else, then 403', async () => {
     const op = (await openOps(t, 'setting', { key: 'set', status: 'ready' }))[0]!
     const other = await personIdOf(t, 'trainee@wrenfield.test')

@@ -178,9 +178,9 @@ describe('metal on the bench and the owner’s metal screen', () => {
     for (const p of people) {
       const row = table.locator('.el-table__row', { has: owner.locator('td:first-child', { hasText: new RegExp(`^${p.name}$`) }) })
       const cells = await row.locator('td').allInnerTexts()
-      expect(cells[2], `${p.name} issued`).toBe(g(p.issued))
-      expect(cells[3], `${p.name} returned`).toBe(g(p.returned))
-      expect(cells[4], `${p.name} loss`).toBe(g(p.issued - p.returned))
+      expect(cells[2], `${p.name} issued`).toBe(g(p.issued, 3))
+      expect(cells[3], `${p.name} returned`).toBe(g(p.returned, 3))
+      expect(cells[4], `${p.name} loss`).toBe(g(p.issued - p.returned, 3))
     }
     await owner.locator('[data-test=metal-losses]').scrollIntoViewIfNeeded()
     await screenshot(owner, 'metal-04-owner-stock-and-loss')

@@ -1,4 +1,4 @@
-// Metal on screen: grams to 0.01, percentages, money from integer minor units in the workshop's currency, the alloy a piece's metal
+// Metal on screen: grams to 0.01 (to 0.001 in loss tables), percentages, money from integer minor units in the workshop's currency, the alloy a piece's metal
 // code means, the tablet's remembered container weight, and CSV made in the browser.
 import type { Alloy, LossRow, MetalMovement } from '@shared/schemas/metal'
 import { PIECE_METAL_ALLOY } from '@shared/domain/metal'
@@ -14,6 +14,9 @@ export const fmtMg = (mg: number | null | undefined): string => (mg === null || 
 /** Milligrams as grams to the milligram (stock and refining reconcile to 1 mg): 214553 → "214.553 g". */
 export const fmtMg3 = (mg: number | null | undefined): string =>
   mg === null || mg === undefined ? '—' : `${(mg / 1000).toLocaleString('en-GB', { minimumFractionDigits: 3, maximumFractionDigits: 3 })} g`
+/** Grams to the milligram: 125.874 → "125.874 g" (loss tables, so issued − returned = loss as printed). */
+export const fmtG3 = (g: number | null | undefined): string =>
+  g === null || g === undefined || !Number.isFinite(g) ? '—' : `${g.toLocaleString('en-GB', { minimumFractionDigits: 3, maximumFractionDigits: 3 })} g`
 /** What a weighing of a job bag was, in the bench's words; the piece leaving with its collected order too. */
 export const movementWords = (m: Pick<MetalMovement, 'kind' | 'source' | 'form'>): string =>
   m.kind === 'issued'
@@ -95,7 +98,7 @@ const csvCell = (v: unknown) => {
 export function lossCsv(first: string, rows: readonly LossRow[], total: LossRow | null): string {
   const head = [first, 'units', 'issued g', 'returned g', 'loss g', 'loss %', 'loss fine g', 'over tolerance']
   const line = (r: LossRow) =>
-    [r.label, r.n, r.issuedG.toFixed(2), r.returnedG.toFixed(2), r.lossG.toFixed(2), r.lossPct ?? '', r.lossFineG.toFixed(3), r.overTolerance]
+    [r.label, r.n, r.issuedG.toFixed(3), r.returnedG.toFixed(3), r.lossG.toFixed(3), r.lossPct ?? '', r.lossFineG.toFixed(3), r.overTolerance]
       .map(csvCell)
       .join(',')
   return [head.join(','), ...rows.map(line), ...(total ? [line(total)] : [])].join('\r\n') + '\r\n'

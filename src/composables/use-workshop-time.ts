@@ -24,6 +24,11 @@ export function formatDay(date: string | null | undefined): string {
   return date ? dayjs(date).format('ddd D MMM YYYY') : '—'
 }
 
+/** A calendar month (YYYY-MM) as the app writes months: "2026-12" → "Dec 2026"; anything else is shown as it is. */
+export function formatMonth(month: string): string {
+  return /^\d{4}-(0[1-9]|1[0-2])$/.test(month) ? dayjs(`${month}-01`).format('MMM YYYY') : month
+}
+
 /**
  * When a step is planned to start, on the workshop's wall clock: "Mon 7 Dec 2026, 14:35". Outside work planned from a day's
  * first minute waited for the workshop to open (the planner counts the workshop's days whole for outside work), so it reads

@@ -74,6 +74,18 @@ describe('metal on the bench and the owner’s metal screen', () => {
     await w.locator('[data-test=weigh-set-tare]').click()
     await expect.poll(() => w.locator('[data-test=weigh-tare]').innerText()).toContain('1.50 g')
     expect(await setter.evaluate(() => localStorage.getItem('millgrain.metal.containerG'))).toBe('1.5')
+    // The panel's other touch targets are a finger's height too (44 px, WCAG 2.5.5): the container row — all of it, not just the
+    // box (a tap at its far end unticks it, a second ticks it again) — the alloy and the note.
+    const tareRow = w.locator('[data-test=weigh-use-tare-row]')
+    const rowBox = (await tareRow.boundingBox())!
+    expect(rowBox.height).toBeGreaterThanOrEqual(44)
+    await tareRow.click({ position: { x: rowBox.width - 4, y: rowBox.height / 2 } })
+    await expect(w.locator('[data-test=weigh-use-tare]').isChecked()).resolves.toBe(false)
+    await tareRow.click({ position: { x: rowBox.width - 4, y: rowBox.height / 2 } })
+    await expect(w.locator('[data-test=weigh-use-tare]').isChecked()).resolves.toBe(true)
+    expect((await w.locator('[data-test=weigh-alloy]').boundingBox())!.height).toBeGreaterThanOrEqual(44)
+    const noteField = w.locator('input[data-test=weigh-reason], [data-test=weigh-reason] input').first()
+    expect((await noteField.boundingBox())!.height).toBeGreaterThanOrEqual(44)
     await keys('13.50')
     await expect.poll(() => w.locator('[data-test=weigh-net]').innerText()).toBe('12.00 g')
     await w.locator('[data-test=weigh-submit]').click()

@@ -148,8 +148,23 @@ describe('job bag page', () => {
     }
     expect(last.right).toBeLessThanOrEqual(layout.viewport)
     // Each open step's "Estimate" and "Remove" are inside the visible part too, and a tap reaches them.
-    const { operations } = (await (await page.request.get(`/api/job-bags/${jobBagId}`)).json()) as {
+    const { operations, timeRecords } = (await (await page.request.get(`/api/job-bags/${jobBagId}`)).json()) as {
       operations: { id: number; status: string; claimedByName: string | null; actualMinutes: number }[]
+      timeRecords: { operationId: number; startedAt: string; endedAt: string | null; minutes: number; voided: boolean }[]
+    }
+    // A step's actual time: its records' seconds (each to the second) added up; under ten minutes "M min S s", else whole minutes.
+    const actualOf = (opId: number, actualMinutes: number) => {
+      const mine = timeRecords.filter((r) => r.operationId === opId)
+      const sec = mine.length
+        ? mine.reduce(
+            (n, r) => n + (r.voided ? 0 : r.endedAt ? Math.round((Date.parse(r.endedAt) - Date.parse(r.startedAt)) / 1000) : Math.round(r.minutes * 60)),
+            0,
+          )
+        : Math.round(actualMinutes * 60)
+      if (!sec) return '—'
+      if (sec >= 600) return `${Math.round(sec / 60)} min`
+      if (sec < 60) return `${sec} s`
+      return sec % 60 ? `${Math.floor(sec / 60)} min ${sec % 60} s` : `${sec / 60} min`
     }
     for (const op of operations.filter((o) => o.status !== 'done' && o.status !== 'skipped')) {
       const box = (await table.locator(`[data-test=estimate-${op.id}]`).boundingBox())!
@@ -158,9 +173,7 @@ describe('job bag page', () => {
     }
     // Who holds a step and its actual minutes are still on the page, under its status and its planned minutes, as the server gave them.
     for (const op of operations) {
-      await expect(table.locator(`[data-test=actual-${op.id}]`).innerText()).resolves.toBe(
-        `${op.actualMinutes ? `${Math.round(op.actualMinutes)} min` : '—'} actual`,
-      )
+      await expect(table.locator(`[data-test=actual-${op.id}]`).innerText()).resolves.toBe(`${actualOf(op.id, op.actualMinutes)} actual`)
       if (op.claimedByName) await expect(table.locator(`[data-test=who-${op.id}]`).innerText()).resolves.toBe(op.claimedByName)
       else await expect(table.locator(`[data-test=who-${op.id}]`).count()).resolves.toBe(0)
     }

@@ -83,9 +83,9 @@ describe('pause reasons', () => {
 
     // The job bag's history names the reason, not its code.
     await page.goto(`/job-bags/${op.jobBagId}`)
-    // Both the pause and the time record it closed: "… paused “Set pavé” (Waiting for a casting: …)" and "… worked N min on “Set pavé” — Waiting for a casting".
+    // Both the pause and the time record it closed: "… paused “Set pavé” (Waiting for a casting: …)" and "… worked N min (S s) on “Set pavé” — Waiting for a casting".
     await page.waitForFunction(
-      () => /worked \d+ min on “.+” — Waiting for a casting/.test(document.querySelector('[data-test=history]')?.textContent ?? ''),
+      () => /worked (\d+ min( \d+ s)?|\d+ s) on “.+” — Waiting for a casting/.test(document.querySelector('[data-test=history]')?.textContent ?? ''),
       null,
       { timeout: 10_000 },
     )

@@ -68,7 +68,8 @@ export function promiseConfirmation(o: {
 
 /** A quote e-mailed to the customer: the piece named in quotation marks (any name reads), the money, the dates and the deposit link. */
 export function quoteOffer(o: {
-  workshopName: string
+  /** Who sends it: the e-mail ends with the workshop's name, address and contact, as the quote's PDF does. */
+  workshop: WorkshopContact
   customerName: string
   quoteNumber: string
   title: string
@@ -94,13 +95,13 @@ export function quoteOffer(o: {
     `This quote stands until ${longDate(o.validUntil)}.`,
     '',
     ...(o.depositUrl ? [`Pay the deposit securely here: ${o.depositUrl}`, 'Paying the deposit accepts the quote.', ''] : []),
-    `— ${o.workshopName}`,
+    ...signature(o.workshop).map((l, i) => (i === 0 ? `— ${l}` : l)),
   ].join('\n')
   const html = `<div style="font-family:sans-serif;line-height:1.5">${text
     .split('\n')
     .map((l) => (l.startsWith('Pay the deposit') && o.depositUrl ? `<p><a href="${esc(o.depositUrl)}">Pay the deposit</a></p>` : l ? `<p>${esc(l)}</p>` : ''))
     .join('')}</div>`
-  return { subject: `${o.workshopName}: quote ${o.quoteNumber} for "${o.title}"`, text, html }
+  return { subject: `${o.workshop.name}: quote ${o.quoteNumber} for "${o.title}"`, text, html }
 }
 
 export function readyForCollection(o: { workshop: WorkshopContact; customerName: string; orderNumber: string; title: string }): MailContent {

@@ -279,7 +279,7 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
   await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'sent', sentAt: new Date().toISOString() }, 'sent')
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
   const content = quoteOffer({
-    workshopName: w!.name,
+    workshop: { name: w!.name, address: w!.address, phone: w!.phone, email: w!.contactEmail },
     customerName: before.customerName,
     quoteNumber: before.number,
     title: before.title,

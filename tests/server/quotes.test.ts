@@ -107,6 +107,13 @@ describe('the quote e-mail', () => {
     expect(lines).toContain('Ready by: Friday 14 March 2031')
     expect(lines).toContain('This quote stands until Friday 7 March 2031.')
     expect(text).not.toMatch(/asking us to make/)
+    // It ends with who to write back to, as the quote's PDF does: the demo workshop's settings (seed.ts).
+    expect(lines.slice(-4)).toEqual([
+      '— Wrenfield Street Workshop',
+      '14 Wrenfield Street, Bristol BS1 4QX',
+      'Telephone 0117 496 0321',
+      'E-mail orders@wrenfield.test',
+    ])
   })
 })
 

@@ -1,11 +1,11 @@
 // What a draft buys when it plans a piece the live plan does not hold (a new order): counted as newly planned, late or not,
 // not as earlier or later.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { and, eq, max } from 'drizzle-orm'
+import { eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { dayjs } from '../../server/lib/time'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { firstWorkshopId, readyBenchStep } from '../setup/fixtures'
+import { addDraft, readyBenchStep } from '../setup/fixtures'
 
 let t: TestApp
 let manager: Agent
@@ -19,7 +19,6 @@ afterAll(async () => {
 
 describe('a draft that plans new work', () => {
   it('when the draft holds the steps of a piece the live plan has no bar for, then it counts one newly planned piece, and late when it ends after its day', async () => {
-    const workshopId = await firstWorkshopId(t.db)
     const step = await readyBenchStep(t.db)
     const [op] = await t.db.select({ jobBagId: s.operations.jobBagId }).from(s.operations).where(eq(s.operations.id, step.id))
     const [bag] = await t.db.select({ orderId: s.jobBags.orderId }).from(s.jobBags).where(eq(s.jobBags.id, op!.jobBagId))
@@ -34,25 +33,8 @@ describe('a draft that plans new work', () => {
       .where(eq(s.orders.id, bag!.orderId))
     const start = new Date(Date.now() + 10 * 86_400_000).toISOString()
     const end = new Date(Date.now() + 10 * 86_400_000 + 3_600_000).toISOString()
-    const [live] = await t.db
-      .select({ id: s.planVersions.id })
-      .from(s.planVersions)
-      .where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
-    const [last] = await t.db
-      .select({ n: max(s.planVersions.number) })
-      .from(s.planVersions)
-      .where(eq(s.planVersions.workshopId, workshopId))
-    const [row] = await t.db
-      .insert(s.planVersions)
-      .values({
-        workshopId,
-        number: (last?.n ?? 0) + 1,
-        status: 'draft',
-        score: { feasible: true, violations: [], basedOnPlanId: live?.id ?? null },
-        assignments: { [String(step.id)]: { operationId: step.id, benchId: step.benchId, personId: step.personId, start, end } },
-      })
-      .returning({ id: s.planVersions.id })
-    const cmp = await manager.get(`/api/plans/${row!.id}/compare`)
+    const planId = await addDraft(t.db, [{ operationId: step.id, benchId: step.benchId, personId: step.personId, start, end }])
+    const cmp = await manager.get(`/api/plans/${planId}/compare`)
     expect(cmp.status, JSON.stringify(cmp.body)).toBe(200)
     // The draft holds only this piece: nothing planned in both, so nothing earlier or later.
     expect(cmp.body.gains).toEqual({ earlier: 0, later: 0, lessLate: 0, moreLate: 0, newlyLate: 0, noLongerLate: 0, newPieces: 1, newPiecesLate: 1 })

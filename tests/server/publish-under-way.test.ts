@@ -1,10 +1,10 @@
 // Publishing a draft made before work started: work under way keeps where it really is.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { and, eq, max, ne } from 'drizzle-orm'
+import { and, eq, ne } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { dayjs } from '../../server/lib/time'
 import { createTestApp, signedIn, type Agent, type TestApp } from '../setup/app'
-import { firstWorkshopId, readyBenchStep } from '../setup/fixtures'
+import { addDraft, readyBenchStep } from '../setup/fixtures'
 import { freshReady, rid } from './bench-fixtures'
 
 let t: TestApp
@@ -14,29 +14,7 @@ const to = dayjs(from).add(27, 'day').format('YYYY-MM-DD')
 // The draft's bars: ten days from now, a time no work started today can be planned at.
 const later = (h: number) => new Date(Date.now() + 10 * 86_400_000 + h * 3_600_000).toISOString()
 
-/** A draft (as a planner run saves it) made from the live plan as it is now, holding the given bars. */
-async function draft(bars: { operationId: number; benchId: number | null; personId: number | null; start: string; end: string }[]) {
-  const workshopId = await firstWorkshopId(t.db)
-  const [live] = await t.db
-    .select({ id: s.planVersions.id })
-    .from(s.planVersions)
-    .where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
-  const [last] = await t.db
-    .select({ n: max(s.planVersions.number) })
-    .from(s.planVersions)
-    .where(eq(s.planVersions.workshopId, workshopId))
-  const [row] = await t.db
-    .insert(s.planVersions)
-    .values({
-      workshopId,
-      number: (last?.n ?? 0) + 1,
-      status: 'draft',
-      score: { feasible: true, violations: [], basedOnPlanId: live?.id ?? null },
-      assignments: Object.fromEntries(bars.map((b) => [String(b.operationId), b])),
-    })
-    .returning({ id: s.planVersions.id })
-  return row!.id
-}
+const draft = (bars: Parameters<typeof addDraft>[1]) => addDraft(t.db, bars)
 
 const opRow = async (id: number) => (await t.db.select().from(s.operations).where(eq(s.operations.id, id)))[0]!
 /** Steps a test here has claimed or started already (not ready any more, but listed so none is picked twice). */

@@ -1,5 +1,5 @@
 // Named builders for database fixtures in the API and browser tests, written with Drizzle on the schema so a renamed column fails the type check.
-import { and, asc, desc, eq, gte, inArray, isNull, lt, notInArray, sql, type SQL } from 'drizzle-orm'
+import { and, asc, desc, eq, gte, inArray, isNull, lt, max, notInArray, sql, type SQL } from 'drizzle-orm'
 import { intersect, walkWorkingTime } from '../../server/scheduler/calendar.ts'
 import { loadPlanningData } from '../../server/planning/problem'
 import type { Db } from '../../server/db/client'
@@ -403,4 +403,28 @@ export async function setPieceParams(db: Db, jobBagId: number, patch: Partial<(t
     .update(s.jobBags)
     .set({ params: { ...bag.params, ...patch } })
     .where(eq(s.jobBags.id, jobBagId))
+}
+
+/** A draft (as a planner run saves it) of the first workshop, made from its live plan as it is now, holding the given bars. */
+export async function addDraft(db: Db, bars: { operationId: number; benchId: number | null; personId: number | null; start: string; end: string }[]) {
+  const workshopId = await firstWorkshopId(db)
+  const [live] = await db
+    .select({ id: s.planVersions.id })
+    .from(s.planVersions)
+    .where(and(eq(s.planVersions.workshopId, workshopId), eq(s.planVersions.status, 'published')))
+  const [last] = await db
+    .select({ n: max(s.planVersions.number) })
+    .from(s.planVersions)
+    .where(eq(s.planVersions.workshopId, workshopId))
+  const [row] = await db
+    .insert(s.planVersions)
+    .values({
+      workshopId,
+      number: (last?.n ?? 0) + 1,
+      status: 'draft',
+      score: { feasible: true, violations: [], basedOnPlanId: live?.id ?? null },
+      assignments: Object.fromEntries(bars.map((b) => [String(b.operationId), b])),
+    })
+    .returning({ id: s.planVersions.id })
+  return row!.id
 }

@@ -134,14 +134,25 @@ describe('days on the board', () => {
       .filter((x) => x.end - x.start >= 4 * 3_600_000)
     const shownMs = (a: number, b: number) => b - a - folds.reduce((t, f) => t + Math.max(0, Math.min(b, f.end) - Math.max(a, f.start)), 0)
     // Bars on screen, with where they start on the board and on screen.
-    const onScreen: { id: number; start: number; x: number; y: number; width: number; movable: boolean }[] = []
+    // `grab`: how far in from its start the bar is taken hold of — 5 px, or 5 px into a piece of a bar split by a pause, whose
+    // hollow stretch between pieces lets the pointer through to what lies below.
+    const onScreen: { id: number; start: number; x: number; y: number; width: number; grab: number; movable: boolean }[] = []
     for (const el of await manager.locator('.vis-item.board-bar:not(.board-bar--outside)').all()) {
       const id = Number(await el.getAttribute('data-id'))
       const item = board.items.find((i: { id: number }) => i.id === id)
       const box = await barBox(manager, id)
       if (!item || !box || box.width < 4) continue
-      const movable = !(await el.getAttribute('class'))!.includes('board-bar--fixed')
-      onScreen.push({ id, start: Date.parse(item.start), x: box.x, y: box.y + box.height / 2, width: box.width, movable })
+      const cls = (await el.getAttribute('class'))!
+      // The bar (or the piece) dragged is at least 10 px wide and grabbed 5 px in: a narrower one is mostly its edges, where a
+      // drag would stretch it rather than move it.
+      let grab = box.width >= 10 ? 5 : null
+      if (cls.includes('board-bar--split')) {
+        const pieces = await Promise.all((await el.locator('[data-test=board-bar-piece]').all()).map((p) => p.boundingBox()))
+        const wide = pieces.find((p) => p && p.width >= 10)
+        grab = wide ? wide.x - box.x + 5 : null
+      }
+      const movable = !cls.includes('board-bar--fixed') && grab !== null
+      onScreen.push({ id, start: Date.parse(item.start), x: box.x, y: box.y + box.height / 2, width: box.width, grab: grab ?? 0, movable })
     }
     const closedDays = (board.closures as { startsOn: string; endsOn: string }[]).flatMap((c) => {
       const out: string[] = []
@@ -150,9 +161,7 @@ describe('days on the board', () => {
     })
     // A movable bar on a weekday, and a bar on the Monday after its weekend as a landmark, with no closed day between them.
     let pick: { bar: (typeof onScreen)[number]; mark: (typeof onScreen)[number]; monday: string } | null = null
-    // The bar dragged is at least 10 px wide and grabbed 5 px in: a narrower one is mostly its edges, where a drag would stretch
-    // it rather than move it.
-    for (const bar of onScreen.filter((b) => b.movable && b.width >= 10)) {
+    for (const bar of onScreen.filter((b) => b.movable)) {
       const day = dayjs(bar.start).tz(TZ)
       const monday = day.startOf('isoWeek').add(7, 'day').format('YYYY-MM-DD')
       if (closedDays.some((d) => d > day.format('YYYY-MM-DD') && d <= monday)) continue
@@ -178,9 +187,18 @@ describe('days on the board', () => {
     // Pixels per shown hour from the two bars; then Monday 10:30 is placed from the Monday bar's start.
     const pxPerMs = (mark.x - bar.x) / shownMs(bar.start, mark.start)
     const target = dayjs.tz(`${monday} 10:30`, TZ).valueOf()
-    const grabX = bar.x + 5
+    const grabX = bar.x + bar.grab
     const y = bar.y
-    const dropX = mark.x + (target < mark.start ? -shownMs(target, mark.start) : shownMs(mark.start, target)) * pxPerMs + 5
+    const dropX = mark.x + (target < mark.start ? -shownMs(target, mark.start) : shownMs(mark.start, target)) * pxPerMs + bar.grab
+    // What takes the pointer where the bar is grabbed must be the bar itself, or the drag pans the board instead.
+    const under = await manager.evaluate(
+      ([x, yy]) => {
+        const el = document.elementFromPoint(x, yy) as HTMLElement | null
+        return el?.closest<HTMLElement>('.vis-item')?.dataset.id ?? el?.className ?? null
+      },
+      [grabX, y] as const,
+    )
+    expect(under, `what lies under the grab point of bar ${id} at x ${grabX}, y ${y}`).toBe(String(id))
     const asked = manager.waitForRequest((r) => r.method() === 'PATCH' && r.url().endsWith(`/api/board/operations/${id}`), { timeout: 15_000 })
     // (The shading of someone's hours off or a closure can lie over the bar where it is grabbed: it must not take the pointer.)
     await manager.mouse.move(grabX, y)

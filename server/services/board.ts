@@ -422,11 +422,74 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     findings: checked?.findings ?? [],
     jobs: [...jobs.values()].sort((a, b) => a.due.localeCompare(b.due)),
     nonWorking: data.meta.nonWorking.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
+    shutWork: (await shutWork(db, data, workshopId, winStart, winEnd, now)).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
     dayMinutes,
     closures: data.meta.closures.map((x) => ({ name: x.name, startsOn: x.startsOn, endsOn: x.endsOn })),
     leave: data.meta.leave.map((l) => ({ personId: l.personId, startsOn: l.startsOn, endsOn: l.endsOn, reason: l.reason })),
     downtime: data.meta.downtime.map((d) => ({ benchId: d.benchId, startsAt: d.startsAt, endsAt: d.endsAt, reason: d.reason })),
   }
+}
+
+/**
+ * Work in time the workshop is shut, within the window (engine minutes): someone's own hours and time recorded at a bench (running
+ * work up to now) that begin while the workshop is shut, each up to the workshop's next opening or the end of the day it begins
+ * on. A clock left running from an open day through the night does not count: it began in open time.
+ */
+async function shutWork(db: Db, data: PlanningData, workshopId: number, winStart: Date, winEnd: Date, now: Date): Promise<Interval[]> {
+  const c = data.clock
+  const open = data.meta.open
+  const ws = Math.max(0, c.toMinute(winStart)),
+    we = c.toMinute(winEnd)
+  if (we <= ws) return []
+  // Someone's own hours outside the workshop's (a Saturday morning): every shut part of them.
+  const stretches: Interval[] = subtract(
+    data.problem.people.flatMap((p) => p.available),
+    open,
+  )
+  // Time records reaching into the window (a day's slack either side for corrections that moved them), corrections applied.
+  const slack = 86_400_000
+  const recorded = await db
+    .selectDistinct({ id: s.timeRecords.operationId })
+    .from(s.timeRecords)
+    .innerJoin(s.operations, eq(s.operations.id, s.timeRecords.operationId))
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .where(
+      and(
+        eq(s.jobBags.workshopId, workshopId),
+        sql`${s.timeRecords.startedAt} < ${new Date(winEnd.getTime() + slack).toISOString()}`,
+        sql`coalesce(${s.timeRecords.endedAt}, ${now.toISOString()}) > ${new Date(winStart.getTime() - slack).toISOString()}`,
+      ),
+    )
+  for (const r of await effectiveRecords(
+    db,
+    recorded.map((x) => x.id),
+    now,
+  ))
+    if (!r.voided) stretches.push({ start: c.toMinute(r.startedAt), end: c.toMinute(r.endedAt ?? now) })
+  const isOpen = (m: number) => open.some((o) => o.start <= m && m < o.end)
+  const out: Interval[] = []
+  for (const x of stretches) {
+    if (x.end <= x.start || isOpen(x.start)) continue
+    // Up to the workshop's next opening or the end of that day, whichever comes first.
+    const dayEnd = c.at(
+      dayjs(dayjs(c.toDate(x.start)).tz(c.timeZone).format('YYYY-MM-DD'))
+        .add(1, 'day')
+        .format('YYYY-MM-DD'),
+    )
+    const opens = open.find((o) => o.start > x.start)?.start ?? Infinity
+    const start = Math.max(x.start, ws),
+      end = Math.min(x.end, dayEnd, opens, we)
+    if (end > start) out.push({ start, end })
+  }
+  // One list, in order, overlaps joined.
+  out.sort((a, b) => a.start - b.start)
+  const merged: Interval[] = []
+  for (const p of out) {
+    const last = merged[merged.length - 1]
+    if (last && p.start <= last.end) last.end = Math.max(last.end, p.end)
+    else merged.push({ ...p })
+  }
+  return merged
 }
 
 /**

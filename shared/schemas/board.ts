@@ -109,6 +109,12 @@ export const boardAnswer = z.object({
   findings: z.array(ruleViolation).optional(),
   jobs: z.array(boardJob),
   nonWorking: z.array(z.object({ start: isoDateTime, end: isoDateTime })),
+  /**
+   * Work in time the workshop is shut, within the window: someone's own hours (a person whose week has Saturday hours) and time
+   * recorded at a bench (running work up to now) that begin while the workshop is shut, each up to its next opening or the end of
+   * the day it begins on (the workshop's zone). "Working hours only" keeps these hours on the board.
+   */
+  shutWork: z.array(z.object({ start: isoDateTime, end: isoDateTime })).optional(),
   dayMinutes: z.number(),
   closures: z.array(z.object({ name: z.string(), startsOn: isoDate, endsOn: isoDate })),
   leave: z.array(z.object({ personId: z.number().int(), startsOn: isoDate, endsOn: isoDate, reason: z.string().nullable() })),

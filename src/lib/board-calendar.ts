@@ -45,32 +45,52 @@ export function dataWindowFor(anchorDay: string): { from: string; to: string } {
   return { from, to: dayjs(from).add(27, 'day').format('YYYY-MM-DD') }
 }
 
-/** What the board shows at each zoom: one working day, Monday to Friday, or four weeks. */
+/**
+ * What the board shows at each zoom: one working day, a whole ISO week (Monday 00:00 to the next Monday 00:00, so Saturday and
+ * Sunday are there with the whole clock shown; with working hours only, the timeline steps its edges off the folded hours, so
+ * a weekend nobody works in is not shown), or four weeks.
+ */
 export function visibleWindow(zoom: Zoom, anchorDay: string, tz: string): { start: Date; end: Date } {
   if (zoom === 'day') return { start: dayjs.tz(`${anchorDay} 07:30`, tz).toDate(), end: dayjs.tz(`${anchorDay} 17:30`, tz).toDate() }
   const monday = weekMonday(anchorDay)
-  if (zoom === 'week')
-    return { start: dayjs.tz(`${monday} 06:00`, tz).toDate(), end: dayjs.tz(`${dayjs(monday).add(4, 'day').format('YYYY-MM-DD')} 19:00`, tz).toDate() }
-  return { start: dayStart(monday, tz), end: dayStart(dayjs(monday).add(28, 'day').format('YYYY-MM-DD'), tz) }
+  return {
+    start: dayStart(monday, tz),
+    end: dayStart(
+      dayjs(monday)
+        .add(zoom === 'week' ? 7 : 28, 'day')
+        .format('YYYY-MM-DD'),
+      tz,
+    ),
+  }
 }
 
-/** The anchor one step back or forward at the zoom. */
-export function shiftAnchor(anchorDay: string, zoom: Zoom, direction: -1 | 1): string {
+/** Monday to Friday: the days shown day by day when nothing more is known. */
+export const isWeekday = (day: string) => dayjs(day).isoWeekday() <= 5
+
+/**
+ * The anchor one step back or forward at the zoom. Day by day, days not shown are stepped over: `shown` says which (the board
+ * passes the days with unfolded time); by default the weekend.
+ */
+export function shiftAnchor(anchorDay: string, zoom: Zoom, direction: -1 | 1, shown: (day: string) => boolean = isWeekday): string {
   const step = zoom === 'day' ? 1 : zoom === 'week' ? 7 : 28
   let d = dayjs(anchorDay).add(direction * step, 'day')
-  // Day by day, skip the weekend.
-  if (zoom === 'day') while (d.isoWeekday() > 5) d = d.add(direction, 'day')
+  // At most a fortnight on, whatever `shown` says.
+  if (zoom === 'day') for (let i = 0; i < 14 && !shown(d.format('YYYY-MM-DD')); i++) d = d.add(direction, 'day')
   return d.format('YYYY-MM-DD')
 }
 
 const weekNo = (d: dayjs.Dayjs) => `W${String(dayjs(d.format('YYYY-MM-DD')).isoWeek()).padStart(2, '0')}`
 
-/** The toolbar's name for a zoom's range: "Friday 4 December 2026", "W49 · 30 Nov – 4 Dec 2026", "W49–W52 · 30 Nov – 27 Dec 2026". */
-export function zoomRangeLabel(zoom: Zoom, anchorDay: string): string {
+/**
+ * The toolbar's name for a zoom's range: "Friday 4 December 2026", "W49 · 30 Nov – 4 Dec 2026", "W49–W52 · 30 Nov – 27 Dec
+ * 2026". A week runs to its last day shown: `weekDays` days from Monday (5, Friday, when the weekend is folded away; 7 with the
+ * whole clock).
+ */
+export function zoomRangeLabel(zoom: Zoom, anchorDay: string, weekDays = 5): string {
   const a = dayjs(anchorDay)
   if (zoom === 'day') return a.format('dddd D MMMM YYYY')
   const mon = dayjs(dataWindowFor(anchorDay).from)
-  if (zoom === 'week') return `${weekNo(mon)} · ${mon.format('D MMM')} – ${mon.add(4, 'day').format('D MMM YYYY')}`
+  if (zoom === 'week') return `${weekNo(mon)} · ${mon.format('D MMM')} – ${mon.add(weekDays - 1, 'day').format('D MMM YYYY')}`
   return `${weekNo(mon)}–${weekNo(mon.add(21, 'day'))} · ${mon.format('D MMM')} – ${mon.add(27, 'day').format('D MMM YYYY')}`
 }
 

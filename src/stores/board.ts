@@ -175,7 +175,8 @@ export const useBoardStore = defineStore('board', () => {
     anchorDay.value = day
     if (dataWindow.value.from !== before) void refreshWindow()
   }
-  const step = (direction: -1 | 1) => setAnchor(shiftAnchor(anchorDay.value, zoom.value, direction))
+  /** One step back or forward at the zoom; day by day, over the days `shown` leaves out (by default the weekend). */
+  const step = (direction: -1 | 1, shown?: (day: string) => boolean) => setAnchor(shiftAnchor(anchorDay.value, zoom.value, direction, shown))
   /** Today, or the day the workshop next works when it is shut now (read from the loaded weeks when they hold now, else once loaded). */
   const today = () => {
     const now = new Date()

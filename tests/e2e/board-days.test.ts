@@ -97,13 +97,14 @@ describe('days on the board', () => {
     await manager.locator('[data-test=board-zoom]').getByText('Week', { exact: true }).click()
     await settled(manager)
 
-    // The whole clock, back on the week the board opened on: Monday is named from the left edge, and every weekday has its heading.
+    // The whole clock, back on the week the board opened on: Monday is named from the left edge, and every day of the week, the
+    // weekend too, has its heading.
     await manager.locator('[data-test=board-fold]').click()
     await manager.locator('[data-test=board-today]').click()
     const thisMonday = dayjs(openMonday)
     await expect
       .poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 })
-      .toEqual([0, 1, 2, 3, 4].map((d) => thisMonday.add(d, 'day').format('YYYY-MM-DD')))
+      .toEqual([0, 1, 2, 3, 4, 5, 6].map((d) => thisMonday.add(d, 'day').format('YYYY-MM-DD')))
     const panel = (await manager.locator('.vis-panel.vis-center').boundingBox())!
     const mon = (await headings(manager))[0]!
     expect(Math.abs(mon.x - panel.x)).toBeLessThan(1.5)

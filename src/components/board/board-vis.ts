@@ -318,25 +318,56 @@ export function backgroundsFor(data: Pick<BoardData, 'nonWorking' | 'closures' |
 /** The part of a closed day that "working hours only" keeps on the board, narrow, so the day shows as closed instead of vanishing. */
 export const CLOSED_DAY_SHOWN = { from: '09:00', to: '12:00' }
 
+const HOUR = 3_600_000
+
+/** A stretch widened to whole hours of the workshop's clock (09:10–12:40 → 09:00–13:00), so work kept on the board has room. */
+function toWholeHours(p: Span, tz: string): Span {
+  const s = dayjs(p.start).tz(tz).startOf('hour').valueOf()
+  const e = dayjs(p.end).tz(tz)
+  return { start: s, end: e.startOf('hour').valueOf() === p.end ? p.end : e.startOf('hour').add(1, 'hour').valueOf() }
+}
+
+/**
+ * Work in time the workshop is shut, by the day it begins on: the board's `shutWork` (someone's own hours, time recorded at a
+ * bench, running work up to now) and planned bench work that starts while the workshop is shut (a step planned on a Saturday
+ * the workshop has since stopped opening), each to the end of the day it starts on.
+ */
+function workWhileShut(data: Partial<Pick<BoardData, 'shutWork' | 'items'>>, shut: Span[], tz: string): Span[] {
+  const out: Span[] = (data.shutWork ?? []).map((x) => ({ start: parseInstant(x.start).getTime(), end: parseInstant(x.end).getTime() }))
+  for (const i of data.items ?? []) {
+    if (i.outside || i.actual) continue
+    for (const p of workedSpans(i)) {
+      if (!shut.some((x) => x.start <= p.start && p.start < x.end)) continue
+      const dayEnd = dayStart(dayjs(p.start).tz(tz).add(1, 'day').format('YYYY-MM-DD'), tz).getTime()
+      out.push({ start: p.start, end: Math.min(p.end, dayEnd) })
+    }
+  }
+  return out.filter((p) => p.end > p.start)
+}
+
 /**
  * Long closed stretches (nights, weekends, closures) that "working hours only" folds away; short breaks stay shaded. A closed day
- * (a closure) keeps CLOSED_DAY_SHOWN unfolded, where its shading and heading say it is closed.
+ * (a closure) keeps CLOSED_DAY_SHOWN unfolded, where its shading and heading say it is closed; work while the workshop is shut
+ * (a Saturday someone works, by their own hours, a time record or a bar planned there) keeps its hours, widened to whole hours,
+ * so that day shows with its heading like an open one.
  */
 export function foldedStretches(
-  data: Pick<BoardData, 'nonWorking'> & Partial<Pick<BoardData, 'closures' | 'window'>>,
+  data: Pick<BoardData, 'nonWorking'> & Partial<Pick<BoardData, 'closures' | 'window' | 'shutWork' | 'items'>>,
   minHours = 4,
 ): { start: Date; end: Date }[] {
   const tz = data.window?.timeZone
-  const kept: { start: number; end: number }[] = []
+  const shut = data.nonWorking.map((x) => ({ start: parseInstant(x.start).getTime(), end: parseInstant(x.end).getTime() }))
+  const kept: Span[] = []
   for (const c of tz ? (data.closures ?? []) : [])
     for (let d = dayjs(c.startsOn); !d.isAfter(dayjs(c.endsOn)); d = d.add(1, 'day')) {
       const day = d.format('YYYY-MM-DD')
       kept.push({ start: dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.from}`, tz).valueOf(), end: dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.to}`, tz).valueOf() })
     }
+  if (tz) kept.push(...workWhileShut(data, shut, tz).map((p) => toWholeHours(p, tz)))
   const out: { start: Date; end: Date }[] = []
-  for (const x of data.nonWorking) {
-    // Cut the kept parts of closed days out of the stretch; what is left folds when it is long enough.
-    let pieces = [{ start: parseInstant(x.start).getTime(), end: parseInstant(x.end).getTime() }]
+  for (const x of shut) {
+    // Cut the kept parts out of the stretch; what is left folds when it is long enough.
+    let pieces = [x]
     for (const k of kept)
       pieces = pieces.flatMap((p) =>
         k.end <= p.start || k.start >= p.end
@@ -346,9 +377,16 @@ export function foldedStretches(
               { start: k.end, end: p.end },
             ].filter((q) => q.end > q.start),
       )
-    for (const p of pieces) if (p.end - p.start >= minHours * 3_600_000) out.push({ start: new Date(p.start), end: new Date(p.end) })
+    for (const p of pieces) if (p.end - p.start >= minHours * HOUR) out.push({ start: new Date(p.start), end: new Date(p.end) })
   }
   return out
+}
+
+/** Whether any of a day is shown: not wholly inside one folded stretch (or no stretches folded: the whole clock). */
+export function dayShown(day: string, tz: string, folded: { start: Date; end: Date }[] | null): boolean {
+  const from = dayStart(day, tz).getTime()
+  const to = dayStart(dayjs(day).add(1, 'day').format('YYYY-MM-DD'), tz).getTime()
+  return !(folded ?? []).some((f) => f.start.getTime() <= from && f.end.getTime() >= to)
 }
 
 export interface DropTarget {

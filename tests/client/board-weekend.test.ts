@@ -1,0 +1,156 @@
+// Weekends on the board: with the whole clock every day of the week has its heading and ticks, Saturday and Sunday included;
+// with working hours only a weekend nobody works in folds away, and one someone works in (the workshop's or a person's Saturday
+// hours, a time record, a bar planned there) shows like an open day, as wide as the hours kept.
+import { describe, expect, it } from 'vitest'
+import dayjs from 'dayjs'
+import utc from 'dayjs/plugin/utc'
+import timezone from 'dayjs/plugin/timezone'
+import { axisScale, dayHeadings, hourTicks } from '@/components/board/board-axis'
+import { dayShown, foldedStretches } from '@/components/board/board-vis'
+import { shiftAnchor, visibleWindow, zoomRangeLabel } from '@/lib/board-calendar'
+import type { BoardItem } from '@shared/schemas/board'
+
+dayjs.extend(utc)
+dayjs.extend(timezone)
+
+// December 2026 in London is on GMT, so local times are UTC times. Week 50: Monday 7 to Sunday 13 December.
+const TZ = 'Europe/London'
+const at = (day: string, time: string) => new Date(`${day}T${time}:00.000Z`)
+const iso = (day: string, time: string) => at(day, time).toISOString()
+const window = { from: '2026-12-07', to: '2027-01-03', timeZone: TZ }
+const WEEK = ['2026-12-07', '2026-12-08', '2026-12-09', '2026-12-10', '2026-12-11', '2026-12-12', '2026-12-13']
+
+/** Closed hours of a workshop open Monday to Friday 08:30–17:00, from the Friday before week 50 to the Monday after it. */
+const weekdaysOnly = [
+  { start: iso('2026-12-04', '17:00'), end: iso('2026-12-07', '08:30') },
+  { start: iso('2026-12-07', '17:00'), end: iso('2026-12-08', '08:30') },
+  { start: iso('2026-12-08', '17:00'), end: iso('2026-12-09', '08:30') },
+  { start: iso('2026-12-09', '17:00'), end: iso('2026-12-10', '08:30') },
+  { start: iso('2026-12-10', '17:00'), end: iso('2026-12-11', '08:30') },
+  { start: iso('2026-12-11', '17:00'), end: iso('2026-12-14', '08:30') },
+]
+/** The same workshop opening on Saturday 09:00–13:00 as well. */
+const withSaturday = [
+  ...weekdaysOnly.slice(0, 5),
+  { start: iso('2026-12-11', '17:00'), end: iso('2026-12-12', '09:00') },
+  { start: iso('2026-12-12', '13:00'), end: iso('2026-12-14', '08:30') },
+]
+
+/**
+ * The range the timeline opens on a window: an edge lying in a folded stretch steps off it, the start to the stretch's end and
+ * the end to its start (vis-timeline's rule for hidden dates, give or take its millisecond).
+ */
+function opened(w: { start: Date; end: Date }, folded: { start: Date; end: Date }[] | null) {
+  const inFold = (t: Date) => (folded ?? []).find((f) => f.start <= t && t < f.end)
+  return { start: inFold(w.start)?.end ?? w.start, end: inFold(w.end)?.start ?? w.end }
+}
+
+/** A planned bench step (no time records) from `start` to `end`. */
+const planned = (id: number, start: string, end: string) => ({ id, start, end, outside: false, actual: null }) as unknown as BoardItem
+
+describe('the week with the whole clock shown', () => {
+  it('when the week is shown unfolded, then it runs Monday 00:00 to the next Monday 00:00 and Saturday and Sunday have headings and ticks like the other days', () => {
+    const w = visibleWindow('week', '2026-12-09', TZ)
+    expect(w).toEqual({ start: at('2026-12-07', '00:00'), end: at('2026-12-14', '00:00') })
+    // 7 days of 24 h over 1680 px: 10 px an hour, 240 px a day; a tick every 6 h (60 px, the first step leaving 44 px a label).
+    const scale = axisScale(opened(w, null), 1680, null)
+    const h = dayHeadings(scale, TZ, [])
+    expect(h.map((d) => [d.day, d.x, d.width])).toEqual(WEEK.map((day, i) => [day, i * 240, 240]))
+    expect(h[5]!.label).toBe('Saturday 12 December')
+    expect(h[6]!.label).toBe('Sunday 13 December')
+    const ticks = hourTicks(scale, TZ, [])
+    for (const day of ['2026-12-09', '2026-12-12', '2026-12-13'])
+      expect(
+        ticks.filter((t) => t.day === day).map((t) => t.label),
+        day,
+      ).toEqual(['00:00', '06:00', '12:00', '18:00'])
+  })
+  it('when the whole clock is shown, then the week is named Monday to Sunday and day by day steps onto the weekend', () => {
+    expect(zoomRangeLabel('week', '2026-12-09', 7)).toBe('W50 · 7 Dec – 13 Dec 2026')
+    expect(shiftAnchor('2026-12-11', 'day', 1, () => true)).toBe('2026-12-12')
+    expect(shiftAnchor('2026-12-14', 'day', -1, () => true)).toBe('2026-12-13')
+  })
+})
+
+describe('working hours only, a weekend nobody works in', () => {
+  it('when no one works on the weekend, then it folds away: Monday to Friday have headings, as wide as their 8 h 30 min, and no weekend day', () => {
+    const folded = foldedStretches({ nonWorking: weekdaysOnly, closures: [], window })
+    // The timeline opens the week on Monday 08:30 and closes it on Friday 17:00: 42 h 30 min over 850 px, 20 px an hour.
+    const range = opened(visibleWindow('week', '2026-12-09', TZ), folded)
+    expect(range).toEqual({ start: at('2026-12-07', '08:30'), end: at('2026-12-11', '17:00') })
+    const h = dayHeadings(axisScale(range, 850, folded), TZ, [])
+    expect(h.map((d) => [d.day, d.x, d.width])).toEqual(WEEK.slice(0, 5).map((day, i) => [day, i * 170, 170]))
+    expect(dayShown('2026-12-12', TZ, folded)).toBe(false)
+    expect(dayShown('2026-12-11', TZ, folded)).toBe(true)
+    expect(shiftAnchor('2026-12-11', 'day', 1, (d) => dayShown(d, TZ, folded))).toBe('2026-12-14')
+  })
+})
+
+describe('working hours only, a Saturday someone works 09:00–13:00', () => {
+  // Shown, by hand: Monday to Friday 08:30–17:00 (8 h 30 min each, 42 h 30 min) and Saturday 09:00–13:00 (4 h): 46 h 30 min over
+  // 930 px, 20 px an hour. Each weekday is 170 px, Saturday 80 px from x = 850; Sunday has no shown time and no heading.
+  const expected = [...WEEK.slice(0, 5).map((day, i) => [day, i * 170, 170]), ['2026-12-12', 850, 80]]
+  const weekOf = (folded: { start: Date; end: Date }[]) => {
+    const range = opened(visibleWindow('week', '2026-12-09', TZ), folded)
+    return { range, scale: axisScale(range, 930, folded) }
+  }
+  const saturdayFolds = [
+    { start: at('2026-12-11', '17:00'), end: at('2026-12-12', '09:00') },
+    { start: at('2026-12-12', '13:00'), end: at('2026-12-14', '08:30') },
+  ]
+
+  it('when the workshop opens on Saturday morning, then the week runs to Saturday 13:00 and Saturday has its heading, 4 h wide, and its ticks from 09:00', () => {
+    const folded = foldedStretches({ nonWorking: withSaturday, closures: [], window })
+    expect(folded.slice(-2)).toEqual(saturdayFolds)
+    const { range, scale } = weekOf(folded)
+    expect(range).toEqual({ start: at('2026-12-07', '08:30'), end: at('2026-12-12', '13:00') })
+    const h = dayHeadings(scale, TZ, [])
+    expect(h.map((d) => [d.day, d.x, d.width])).toEqual(expected)
+    // 80 px: "Saturday 12 December" needs 20 × 7 + 8 = 148 px, "Sat 12 Dec" 10 × 7 + 8 = 78 px.
+    expect(h[5]!.label).toBe('Sat 12 Dec')
+    // A tick every 3 h (60 px). Weekdays: 08:30, 11:30, 14:30 (17:30 is past the close). Saturday: 09:00; 12:00 would sit 20 px
+    // before the end of the week, too close for its label.
+    const ticks = hourTicks(scale, TZ, [])
+    expect(ticks.filter((t) => t.day === '2026-12-09').map((t) => t.label)).toEqual(['08:30', '11:30', '14:30'])
+    expect(ticks.filter((t) => t.day === '2026-12-12').map((t) => [t.label, t.x])).toEqual([['09:00', 850]])
+    expect(zoomRangeLabel('week', '2026-12-09', 6)).toBe('W50 · 7 Dec – 12 Dec 2026')
+  })
+  it('when a person’s own week has Saturday 09:00–13:00 in a workshop shut on Saturdays, then Saturday is shown as if the workshop opened then', () => {
+    const folded = foldedStretches({
+      nonWorking: weekdaysOnly,
+      shutWork: [{ start: iso('2026-12-12', '09:00'), end: iso('2026-12-12', '13:00') }],
+      closures: [],
+      window,
+    })
+    expect(folded.slice(-2)).toEqual(saturdayFolds)
+    expect(dayHeadings(weekOf(folded).scale, TZ, []).map((d) => [d.day, d.x, d.width])).toEqual(expected)
+    expect(dayShown('2026-12-12', TZ, folded)).toBe(true)
+    expect(dayShown('2026-12-13', TZ, folded)).toBe(false)
+    expect(shiftAnchor('2026-12-11', 'day', 1, (d) => dayShown(d, TZ, folded))).toBe('2026-12-12')
+    expect(shiftAnchor('2026-12-12', 'day', 1, (d) => dayShown(d, TZ, folded))).toBe('2026-12-14')
+  })
+  it('when time was recorded on Saturday 09:10–12:40, then the hours kept are widened to whole hours, 09:00–13:00', () => {
+    const folded = foldedStretches({
+      nonWorking: weekdaysOnly,
+      shutWork: [{ start: iso('2026-12-12', '09:10'), end: iso('2026-12-12', '12:40') }],
+      closures: [],
+      window,
+    })
+    expect(folded.slice(-2)).toEqual(saturdayFolds)
+    expect(dayHeadings(weekOf(folded).scale, TZ, []).map((d) => [d.day, d.x, d.width])).toEqual(expected)
+  })
+  it('when a bench step is planned on Saturday 10:00–12:00 in a workshop shut on Saturdays, then those hours stay on the board', () => {
+    const items = [planned(1, iso('2026-12-12', '10:00'), iso('2026-12-12', '12:00')), planned(2, iso('2026-12-09', '09:00'), iso('2026-12-09', '11:00'))]
+    const folded = foldedStretches({ nonWorking: weekdaysOnly, items, closures: [], window })
+    expect(folded.slice(-2)).toEqual([
+      { start: at('2026-12-11', '17:00'), end: at('2026-12-12', '10:00') },
+      { start: at('2026-12-12', '12:00'), end: at('2026-12-14', '08:30') },
+    ])
+    // Outside work away over the weekend, and a step under way (its hours come from its time records), keep nothing.
+    const away = { ...planned(3, iso('2026-12-11', '00:00'), iso('2026-12-15', '00:00')), outside: true } as BoardItem
+    const running = { ...planned(4, iso('2026-12-11', '15:00'), iso('2026-12-12', '15:00')), actual: { start: iso('2026-12-11', '15:00') } } as BoardItem
+    expect(foldedStretches({ nonWorking: weekdaysOnly, items: [away, running], closures: [], window }).slice(-1)).toEqual([
+      { start: at('2026-12-11', '17:00'), end: at('2026-12-14', '08:30') },
+    ])
+  })
+})

@@ -97,6 +97,7 @@ async function syncOrderStatus(tx: Tx, actor: Actor, jobBagId: number) {
     .where(and(eq(orders.id, o.id), eq(orders.status, o.status)))
     .returning({ id: orders.id, version: orders.version, status: orders.status })
   if (!u) return null
-  await audit(tx, actor, 'status', 'order', o.id, { from: o.status, to, jobBagId })
+  // The version it made is kept with it: the office's edit opened before it still saves over it (`updateOrder`).
+  await audit(tx, actor, 'status', 'order', o.id, { from: o.status, to, jobBagId, version: u.version })
   return u
 }

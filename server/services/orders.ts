@@ -4,8 +4,8 @@ import type { ListQuery, Page } from '../../shared/schemas/common'
 import { orderDateProblems, type OrderInput, type OrderSummary, type OrderUpdate } from '../../shared/schemas/order'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { Db, Trx } from '../db/client'
-import { customers, jobBags, operations, orders, routingSteps, routings, workshops } from '../db/schema/index'
-import { AppError, invalid } from '../errors/app-error'
+import { auditLog, customers, jobBags, operations, orders, routingSteps, routings, workshops } from '../db/schema/index'
+import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { audit } from './audit'
@@ -182,31 +182,66 @@ export async function createOrder(deps: Deps, actor: Actor, input: OrderInput) {
   return (await takeOrder(deps, actor, input, async () => null)).order
 }
 
+/**
+ * The office's change of an order, made on the version it read, as it stands on the order now. Work at a bench moves an open
+ * order in work and back by itself (`syncOrderStatus`), each move a new version audited with its number; when such moves are
+ * all that happened since, nobody else touched what the office edits, so its change goes onto the order as it is now: a
+ * status it left as it read it stays as the bench made it, and a status it changed stands unless the bench moved it too
+ * (then both changed the one field, a real clash). Any other change since (another edit) is refused as a stale version.
+ */
+async function onCurrentVersion(
+  tx: Trx,
+  orderId: number,
+  stored: { status: string; version: number },
+  read: number,
+  values: Omit<OrderUpdate, 'version'>,
+): Promise<{ version: number; values: Omit<OrderUpdate, 'version'> }> {
+  if (read === stored.version) return { version: read, values }
+  const moves =
+    read < stored.version
+      ? await tx
+          .select({ details: auditLog.details })
+          .from(auditLog)
+          .where(
+            and(
+              eq(auditLog.entity, 'order'),
+              eq(auditLog.entityId, orderId),
+              eq(auditLog.action, 'status'),
+              sql`(${auditLog.details}->>'version')::int > ${read}`,
+              sql`(${auditLog.details}->>'version')::int <= ${stored.version}`,
+            ),
+          )
+          .orderBy(asc(auditLog.id))
+      : []
+  const versions = new Set(moves.map((m) => Number(m.details.version)))
+  if (versions.size !== stored.version - read || moves.length !== versions.size) throw staleVersion('Order')
+  const statusRead = String(moves[0]!.details.from)
+  const { status, ...rest } = values
+  if (status === undefined || status === statusRead) return { version: stored.version, values: rest }
+  if (stored.status !== statusRead) throw staleVersion('Order')
+  return { version: stored.version, values: { ...rest, status } }
+}
+
 export async function updateOrder(deps: Deps, actor: Actor, id: number, input: OrderUpdate) {
   const { db, realtime } = deps
-  const { version, ...values } = input
+  const { version: read, ...asSent } = input
   let becameReady = false
   const o = await db.transaction(async (tx) => {
+    // Locked first, so a bench moving the order's status waits for this change rather than slipping in under it.
+    const [stored] = await tx
+      .select({ status: orders.status, dueDate: orders.dueDate, promisedDate: orders.promisedDate, version: orders.version })
+      .from(orders)
+      .where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId)))
+      .for('update')
+    if (!stored) throw notFound('Order')
+    const { version, values } = await onCurrentVersion(tx, id, stored, read, asSent)
     if (values.status) await requireCustomerStonesBack(tx, actor.workshopId, id, values.status)
-    const [before] =
-      values.status === 'ready'
-        ? await tx
-            .select({ status: orders.status })
-            .from(orders)
-            .where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId)))
-        : []
-    if (values.dueDate !== undefined || values.promisedDate !== undefined) {
-      const [stored] = await tx
-        .select({ dueDate: orders.dueDate, promisedDate: orders.promisedDate })
-        .from(orders)
-        .where(and(eq(orders.id, id), eq(orders.workshopId, actor.workshopId)))
-      if (stored) await refusePastDates(tx, actor.workshopId, values, stored)
-    }
+    if (values.dueDate !== undefined || values.promisedDate !== undefined) await refusePastDates(tx, actor.workshopId, values, stored)
     const o = await updateVersioned(tx, orders, 'Order', { id, workshopId: actor.workshopId, version, values: { ...values, updatedAt: new Date() } })
     await audit(tx, actor, 'update', 'order', id, values)
     // Collected: the finished pieces' metal leaves stock with them.
     if (values.status === 'collected') await deliverOrderMetal(tx, actor, id)
-    becameReady = !!before && before.status !== 'ready'
+    becameReady = values.status === 'ready' && stored.status !== 'ready'
     // With the job queue the notice is queued in this transaction: it goes out if and only if the change commits.
     if (becameReady && deps.jobs) await sendReadyNotice({ ...deps, db: tx as unknown as Db }, actor.workshopId, id)
     return o

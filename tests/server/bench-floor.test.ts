@@ -798,6 +798,48 @@ describe('the order follows its job bags', () => {
     expect((await orderOf()).status).toBe('open')
   })
 
+  it('when a step is taken up while the office has the order open, then its change saves and the order stays in work; an edit by someone else since is still refused', async () => {
+    const bagId = await bagOnRouting({ code: 'follow-office', name: 'Curb bracelet', kind: 'piece' })
+    const [bag] = await t.db.select({ orderId: s.jobBags.orderId }).from(s.jobBags).where(eq(s.jobBags.id, bagId))
+    const orderId = bag!.orderId
+    const [solder] = await t.db
+      .select({ id: s.operations.id, kindId: s.operations.kindId })
+      .from(s.operations)
+      .where(and(eq(s.operations.jobBagId, bagId), eq(s.operations.key, 'solder')))
+    const [who] = await t.db.select({ personId: s.personSkills.personId }).from(s.personSkills).where(eq(s.personSkills.kindId, solder!.kindId)).limit(1)
+    const [where] = await t.db
+      .select({ benchId: s.benchCapabilities.benchId })
+      .from(s.benchCapabilities)
+      .where(eq(s.benchCapabilities.kindId, solder!.kindId))
+      .limit(1)
+    // The office opens the order: open, at the version it reads.
+    const opened = (await sales.get(`/api/orders/${orderId}`)).body
+    expect(opened.status).toBe('open')
+    const c = await manager.post(`/api/bench/operations/${solder!.id}/claim`, { requestId: rid(), benchId: where!.benchId, personId: who!.personId })
+    expect(c.status, JSON.stringify(c.body)).toBe(200)
+    // The office saves its terms as its form holds them (the status it read among them), on the version it read.
+    const emit = vi.spyOn(t.realtime, 'emit')
+    const saved = await sales.patch(`/api/orders/${orderId}`, { status: 'open', dueDate: '2031-11-14', priority: 2, version: opened.version })
+    expect(saved.status, JSON.stringify(saved.body)).toBe(200)
+    // Two versions on: the bench's move and the office's change.
+    expect(saved.body).toMatchObject({ status: 'in-work', dueDate: '2031-11-14', priority: 2, version: opened.version + 2 })
+    expect(emit).toHaveBeenCalledWith(expect.any(Number), 'order:updated', { id: orderId, version: opened.version + 2 })
+    emit.mockRestore()
+    // Someone else saves over a version the office has since changed: refused, as before.
+    const other = await manager.patch(`/api/orders/${orderId}`, { priority: 5, version: opened.version + 1 })
+    expect(other.status, JSON.stringify(other.body)).toBe(409)
+    const twice = await manager.patch(`/api/orders/${orderId}`, { priority: 5, version: opened.version })
+    expect(twice.status, JSON.stringify(twice.body)).toBe(409)
+    // Read in work, then the step is handed back (open again), and the office cancels it: both moved the status, refused.
+    const inWork = (await sales.get(`/api/orders/${orderId}`)).body
+    const r = await manager.post(`/api/bench/operations/${solder!.id}/release`, { requestId: rid(), personId: who!.personId })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    const clash = await sales.patch(`/api/orders/${orderId}`, { status: 'cancelled', version: inWork.version })
+    expect(clash.status, JSON.stringify(clash.body)).toBe(409)
+    const [now] = await t.db.select({ status: s.orders.status, priority: s.orders.priority }).from(s.orders).where(eq(s.orders.id, orderId))
+    expect(now).toEqual({ status: 'open', priority: 2 })
+  })
+
   it('when the office has marked an order ready, then work at the bench leaves its status as the office set it', async () => {
     const bagId = await bagOnRouting({ code: 'follow-ready', name: 'Bolt ring', kind: 'piece' })
     const [bag] = await t.db.select({ orderId: s.jobBags.orderId }).from(s.jobBags).where(eq(s.jobBags.id, bagId))

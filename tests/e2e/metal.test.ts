@@ -157,7 +157,7 @@ describe('metal on the bench and the owner’s metal screen', () => {
     // The job bag page shows the same account.
     await setter.goto(`/job-bags/${op.jobBagId}`)
     const acct = setter.locator('[data-test=metal-account]')
-    await expect.poll(() => acct.locator('[data-test=total-loss]').innerText(), { timeout: 15_000 }).toBe('0.25 g · 2.1 %')
+    await expect.poll(() => acct.locator('[data-test=total-loss]').innerText(), { timeout: 15_000 }).toBe('0.250 g · 2.1 %')
     await acct.scrollIntoViewIfNeeded()
     await screenshot(setter, 'metal-03-job-bag-account')
   })

@@ -338,14 +338,22 @@ export const stockRow = z.object({
   adjustedMg: wireInt,
   /** Finished pieces that left with their collected orders (their last weighing back). */
   deliveredMg: wireInt,
-  /** bought + from customers − issued + returned − to refining + from refining + adjustments. */
+  /** bought + from customers − issued + returned − to refining + from refining + adjustments − delivered: all the metal in the workshop. */
   balanceMg: wireInt,
   balanceG: z.number(),
+  /** Of the balance, the customers' own: the pieces of job bags whose metal came from the customer, back from the bench and not yet collected. */
+  customersMg: wireInt,
+  /** Of the balance, the workshop's own: balance − customers'. */
+  ownMg: wireInt,
+  /** Fine weight of the balance. */
   fineMg: z.number(),
   fineG: z.number(),
   pricePerGramMinor: wireInt.nullable(),
   priceOn: z.string().nullable(),
+  /** The workshop's own metal at today's price (the customers' is not the workshop's to value as stock). */
   valueMinor: wireInt.nullable(),
+  /** The customers' own metal at today's price, shown apart. */
+  customersValueMinor: wireInt.nullable(),
 })
 export type StockRow = z.infer<typeof stockRow>
 export const tolerance = z.object({

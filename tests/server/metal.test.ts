@@ -628,3 +628,53 @@ describe('finished pieces leave stock', () => {
     expect(account.bySteps).toHaveLength(1)
   })
 })
+
+describe('the customers’ own metal', () => {
+  it('when a customer’s ring comes in at 6.250 g and is back at 6.180 g beside a new ring of stock metal, then 6.180 g of the 36.120 g is theirs, valued apart, until they collect it', async () => {
+    const alloy = await newAlloy()
+    expect((await as.owner.post(`/api/alloys/${alloy.id}/prices`, { pricePerGramMinor: 5000, effectiveOn: '2025-01-01' })).status).toBe(201)
+    const order = async (title: string) => {
+      const r = await as.sales.post('/api/orders', {
+        customerId: await firstCustomerId(t.db),
+        title,
+        dueDate: '2031-09-01',
+        pieces: [{ routingId: await firstRoutingId(t.db), piece: title }],
+      })
+      expect(r.status, JSON.stringify(r.body)).toBe(201)
+      return { orderId: r.body.id as number, bagId: r.body.jobBags[0].id as number }
+    }
+    const repair = await order('Ring to repair')
+    const made = await order('New ring')
+    const post = async (path: string, jobBagId: number, body: Record<string, unknown>) => {
+      const r = await as.bench.post(path, { alloyId: alloy.id, personId, clientId: cid(), jobBagId, ...body })
+      expect(r.status, JSON.stringify(r.body)).toBe(201)
+    }
+    const stockOf = async () => (await as.owner.get('/api/metal/stock')).body.find((x: { alloyId: number }) => x.alloyId === alloy.id)
+    await as.owner.post('/api/metal/purchases', { alloyId: alloy.id, weightG: 30, clientId: cid() })
+    // The customer's ring goes to the bench as it came in: 30 + 6.25 − 6.25 = 30.000 g in the workshop, none of it theirs.
+    await post('/api/metal/issues', repair.bagId, { weightG: 6.25, source: 'customer' })
+    expect(await stockOf()).toMatchObject({ balanceMg: 30_000, customersMg: 0, ownMg: 30_000 })
+    await post('/api/metal/returns', repair.bagId, { weightG: 6.18, form: 'piece' })
+    await post('/api/metal/returns', repair.bagId, { weightG: 0.04, form: 'lemel' })
+    // The new ring: 10.00 g of stock out, 9.50 g back as the ring and 0.40 g scrap.
+    await post('/api/metal/issues', made.bagId, { weightG: 10 })
+    await post('/api/metal/returns', made.bagId, { weightG: 9.5, form: 'piece' })
+    await post('/api/metal/returns', made.bagId, { weightG: 0.4, form: 'scrap' })
+    // Hand-worked: 30 + 6.25 − (6.25 + 10) + (6.18 + 0.04 + 9.50 + 0.40) = 36.120 g in the workshop; the customer's ring,
+    // 6.180 g, is theirs; the workshop's own 36.120 − 6.180 = 29.940 g, worth 29.940 × 50.00 = 1,497.00; the ring
+    // 6.180 × 50.00 = 309.00, apart. Fine metal is of all 36.120 g held: × 750 / 1000 = 27.090 g.
+    expect(await stockOf()).toMatchObject({
+      balanceMg: 36_120,
+      customersMg: 6_180,
+      ownMg: 29_940,
+      fineMg: 27_090,
+      valueMinor: 149_700,
+      customersValueMinor: 30_900,
+    })
+    // The customer collects the ring: it leaves, and the workshop's own metal and its value are as they were.
+    await t.db.update(s.orders).set({ status: 'ready' }).where(eq(s.orders.id, repair.orderId))
+    const o = (await as.manager.get(`/api/orders/${repair.orderId}`)).body
+    expect((await as.manager.patch(`/api/orders/${repair.orderId}`, { status: 'collected', version: o.version })).status).toBe(200)
+    expect(await stockOf()).toMatchObject({ balanceMg: 29_940, customersMg: 0, ownMg: 29_940, valueMinor: 149_700, customersValueMinor: 0 })
+  })
+})

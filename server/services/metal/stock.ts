@@ -1,5 +1,6 @@
-// Metal, stock: the balance of each alloy (bought, issued and returned, refining, adjustments, delivered) with its fine weight and
-// value at today's price, and finished pieces leaving stock when their order is collected.
+// Metal, stock: the balance of each alloy (bought, issued and returned, refining, adjustments, delivered) with its fine weight, of it
+// the customers' own pieces waiting to be collected, the value of the workshop's own at today's price, and finished pieces leaving
+// stock when their order is collected.
 import { and, asc, eq, inArray, sql } from 'drizzle-orm'
 import { fineMg, mgToG } from '../../../shared/domain/metal'
 import { type StockRow } from '../../../shared/schemas/metal'
@@ -8,6 +9,63 @@ import { alloys, jobBags, metalMovements } from '../../db/schema/index'
 import type { Actor } from '../../lib/route'
 import { audit } from '../audit'
 import { today, currentPrices } from './common'
+
+type Movement = typeof metalMovements.$inferSelect
+/**
+ * Where each job bag's piece is, per bag and alloy, from the bag's issues, returns and deliveries in the order they were
+ * recorded: each row's weight after its corrections (`effective`, by original row id), the last issue or return as the piece
+ * (`last`; scrap and lemel handed in say nothing of where the piece is, and a weighing corrected to 0 does not count), the
+ * bags already delivered, and where the bag's metal first came from (its first issue that counts: stock or the customer's own).
+ */
+function whereThePiecesAre(rows: readonly Movement[]) {
+  const effective = new Map<number, number>()
+  for (const m of rows) effective.set(m.correctsId ?? m.id, (effective.get(m.correctsId ?? m.id) ?? 0) + m.weightMg)
+  const last = new Map<string, Movement>()
+  const delivered = new Set<string>()
+  const firstSource = new Map<string, string | null>()
+  for (const m of rows) {
+    const key = `${m.jobBagId}:${m.alloyId}`
+    if (m.kind === 'delivered') {
+      delivered.add(key)
+      continue
+    }
+    if (m.correctsId !== null || (effective.get(m.id) ?? 0) === 0) continue
+    if (m.kind === 'issued' && !firstSource.has(key)) firstSource.set(key, m.source)
+    if (m.kind === 'returned' && m.form !== 'piece') continue
+    last.set(key, m)
+  }
+  return { effective, last, delivered, firstSource }
+}
+
+/**
+ * The customers' own metal in the workshop, in mg by alloy: the piece of each job bag whose metal came in from the customer
+ * (a repair, or their own gold to remake), as last weighed back from the bench and not yet collected. It is in the stock
+ * balance, since it came in and went back, but it is theirs; at the bench it is in no balance, and once collected it has left.
+ */
+async function customersPiecesInStock(db: Db, workshopId: number): Promise<Map<number, number>> {
+  const customersBags = db
+    .select({ id: metalMovements.jobBagId })
+    .from(metalMovements)
+    .where(and(eq(metalMovements.workshopId, workshopId), eq(metalMovements.kind, 'issued'), eq(metalMovements.source, 'customer')))
+  const rows = await db
+    .select()
+    .from(metalMovements)
+    .where(
+      and(
+        eq(metalMovements.workshopId, workshopId),
+        inArray(metalMovements.kind, ['issued', 'returned', 'delivered']),
+        inArray(metalMovements.jobBagId, customersBags),
+      ),
+    )
+    .orderBy(asc(metalMovements.recordedAt), asc(metalMovements.id))
+  const { effective, last, delivered, firstSource } = whereThePiecesAre(rows)
+  const held = new Map<number, number>()
+  for (const [key, m] of last) {
+    if (delivered.has(key) || firstSource.get(key) !== 'customer' || m.kind !== 'returned') continue
+    held.set(m.alloyId, (held.get(m.alloyId) ?? 0) + (effective.get(m.id) ?? 0))
+  }
+  return held
+}
 
 export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
   const list = await db.select().from(alloys).where(eq(alloys.workshopId, workshopId)).orderBy(asc(alloys.metal), asc(alloys.fineness), asc(alloys.name))
@@ -21,6 +79,7 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
     .from(metalMovements)
     .where(eq(metalMovements.workshopId, workshopId))
     .groupBy(metalMovements.alloyId, metalMovements.kind, metalMovements.source)
+  const customers = await customersPiecesInStock(db, workshopId)
   const prices = await currentPrices(
     db,
     list.map((a) => a.id),
@@ -38,6 +97,8 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
       adjustedMg = s('adjusted'),
       deliveredMg = s('delivered')
     const balanceMg = boughtMg + fromCustomerMg - issuedMg + returnedMg - toRefiningMg + fromRefiningMg + adjustedMg - deliveredMg
+    const customersMg = customers.get(a.id) ?? 0
+    const ownMg = balanceMg - customersMg
     const p = prices.get(a.id)
     const fine = fineMg(balanceMg, a.fineness)
     return {
@@ -56,11 +117,14 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
       deliveredMg,
       balanceMg,
       balanceG: mgToG(balanceMg),
+      customersMg,
+      ownMg,
       fineMg: fine,
       fineG: mgToG(fine),
       pricePerGramMinor: p?.pricePerGramMinor ?? null,
       priceOn: p?.effectiveOn ?? null,
-      valueMinor: p ? Math.round((balanceMg * p.pricePerGramMinor) / 1000) : null,
+      valueMinor: p ? Math.round((ownMg * p.pricePerGramMinor) / 1000) : null,
+      customersValueMinor: p ? Math.round((customersMg * p.pricePerGramMinor) / 1000) : null,
     }
   })
 }
@@ -83,21 +147,7 @@ export async function deliverOrderMetal(tx: Tx, actor: Actor, orderId: number): 
       and(eq(jobBags.orderId, orderId), eq(metalMovements.workshopId, actor.workshopId), inArray(metalMovements.kind, ['issued', 'returned', 'delivered'])),
     )
     .orderBy(asc(metalMovements.recordedAt), asc(metalMovements.id))
-  const effective = new Map<number, number>()
-  for (const { m } of rows) effective.set(m.correctsId ?? m.id, (effective.get(m.correctsId ?? m.id) ?? 0) + m.weightMg)
-  const last = new Map<string, typeof metalMovements.$inferSelect>()
-  const delivered = new Set<string>()
-  for (const { m } of rows) {
-    const key = `${m.jobBagId}:${m.alloyId}`
-    if (m.kind === 'delivered') {
-      delivered.add(key)
-      continue
-    }
-    if (m.correctsId !== null || (effective.get(m.id) ?? 0) === 0) continue
-    // Scrap and lemel handed in say nothing of where the piece is: only an issue or the piece coming back does.
-    if (m.kind === 'returned' && m.form !== 'piece') continue
-    last.set(key, m)
-  }
+  const { effective, last, delivered } = whereThePiecesAre(rows.map((r) => r.m))
   let written = 0
   const at = new Date().toISOString()
   for (const [key, m] of last) {

@@ -1,5 +1,6 @@
 // The workshop's e-mail texts: promise confirmation, a quote, ready for collection, and the managers' daily at-risk digest.
 import { minorToMajor } from '../../shared/domain/currency'
+import { vatLine, vatNumberLine, type VatTerms } from '../../shared/domain/vat'
 import { dayjs } from '../lib/time'
 
 export interface MailContent {
@@ -20,6 +21,8 @@ export interface WorkshopContact {
   phone?: string
   email?: string
   currency?: string
+  /** When registered for VAT, prices carry their VAT line and the e-mail ends with the VAT number. */
+  vat?: VatTerms
 }
 
 /** Whether the new piece's steps are in the live plan, with the workshop-local dates they span. */
@@ -29,7 +32,17 @@ export type BookingFacts = { booked: true; startDate: string; endDate: string } 
 export const money = (amount: number, currency = 'GBP') => new Intl.NumberFormat('en-GB', { style: 'currency', currency }).format(amount)
 
 function signature(w: WorkshopContact): string[] {
-  return [w.name, ...(w.address ? [w.address] : []), ...[w.phone && `Telephone ${w.phone}`, w.email && `E-mail ${w.email}`].filter((x): x is string => !!x)]
+  return [
+    w.name,
+    ...(w.address ? [w.address] : []),
+    ...[w.phone && `Telephone ${w.phone}`, w.email && `E-mail ${w.email}`, w.vat && vatNumberLine(w.vat)].filter((x): x is string => !!x),
+  ]
+}
+
+/** The VAT in a VAT-inclusive amount as the line under it, when the workshop is registered; none otherwise. */
+export function vatLines(w: WorkshopContact, grossMinor: number, currency: string): string[] {
+  const line = w.vat ? vatLine(grossMinor, w.vat, (minor) => money(minorToMajor(minor, currency), currency)) : null
+  return line ? [line] : []
 }
 
 function wrap(w: WorkshopContact, paragraphs: string[], lines: string[] = []): { text: string; html: string } {
@@ -45,9 +58,10 @@ export function promiseConfirmation(o: {
   orderNumber: string
   title: string
   promisedDate: string
-  priceQuoted: number
+  priceQuotedMinor: number
   booking: BookingFacts
 }): MailContent {
+  const currency = o.workshop.currency ?? 'GBP'
   const when = `${longDate(o.promisedDate)} (${o.promisedDate})`
   const b = o.booking
   return {
@@ -60,7 +74,12 @@ export function promiseConfirmation(o: {
           ? `It is booked into our workshop plan for ${longDate(b.startDate)}.`
           : `It is booked into our workshop plan: work starts on ${longDate(b.startDate)} and is planned to be finished on ${longDate(b.endDate)}.`
         : 'It is not in our workshop plan yet; we will confirm the dates when it is.',
-      ...(o.priceQuoted > 0 ? [`Price as quoted: ${money(o.priceQuoted, o.workshop.currency)}.`] : []),
+      ...(o.priceQuotedMinor > 0
+        ? [
+            `Price as quoted: ${money(minorToMajor(o.priceQuotedMinor, currency), currency)}.`,
+            ...vatLines(o.workshop, o.priceQuotedMinor, currency).map((l) => `${l[0]!.toUpperCase()}${l.slice(1)}.`),
+          ]
+        : []),
       'We will write again when it is ready to collect.',
     ]),
   }
@@ -89,6 +108,7 @@ export function quoteOffer(o: {
     '',
     ...(o.description ? [o.description, ''] : []),
     `Price: ${m(o.priceMinor)}`,
+    ...vatLines(o.workshop, o.priceMinor, o.currency),
     `Deposit to start the work: ${m(o.depositMinor)}`,
     `Balance at collection: ${m(o.priceMinor - o.depositMinor)}`,
     ...(o.promisedDate ? [`Ready by: ${longDate(o.promisedDate)}`] : []),

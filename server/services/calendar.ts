@@ -13,7 +13,8 @@ import type {
 import { englandWalesBankHolidays } from '../../shared/domain/bank-holidays'
 import type { Db } from '../db/client'
 import { closures, workshops } from '../db/schema/index'
-import { notFound, staleVersion } from '../errors/app-error'
+import { invalid, notFound, staleVersion } from '../errors/app-error'
+import { rateBasisPoints, vatTermsOf } from '../../shared/domain/vat'
 import type { Actor, Deps } from '../lib/route'
 import { calendarChange } from '../planning/live-plan'
 import { audit } from './audit'
@@ -36,21 +37,25 @@ export async function getSettings(db: Db, workshopId: number): Promise<WorkshopS
     depositPct: w.depositPct,
     quoteValidDays: w.quoteValidDays,
     noMetalBeforeDeposit: w.noMetalBeforeDeposit,
+    ...vatTermsOf(w),
     version: w.version,
   }
 }
 
 export async function updateSettings({ db, realtime }: Deps, actor: Actor, input: WorkshopSettingsInput): Promise<WorkshopSettingsRecord> {
-  const { version, ...values } = input
+  const { version, vatRatePct, ...values } = input
+  const stored = vatRatePct === undefined ? {} : { vatRateBasisPoints: rateBasisPoints(vatRatePct) }
   await db.transaction((tx) =>
     calendarChange(tx, actor.workshopId, async () => {
       const r = await tx
         .update(workshops)
-        .set({ ...values, version: sql`${workshops.version} + 1` })
+        .set({ ...values, ...stored, version: sql`${workshops.version} + 1` })
         .where(and(eq(workshops.id, actor.workshopId), eq(workshops.version, version)))
         .returning()
       if (!r.length) throw staleVersion('The workshop settings')
-      await audit(tx, actor, 'update', 'workshop', actor.workshopId, values)
+      // The customer's documents must carry the number of a registered workshop (the change rolls back otherwise).
+      if (r[0]!.vatRegistered && !r[0]!.vatNumber) throw invalid('vatNumber', 'is required when the workshop is registered for VAT')
+      await audit(tx, actor, 'update', 'workshop', actor.workshopId, { ...values, ...(vatRatePct === undefined ? {} : { vatRatePct }) })
     }),
   )
   realtime.emit(actor.workshopId, 'masterdata:changed', { entity: 'workshop', id: actor.workshopId })

@@ -5,7 +5,7 @@ import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
 import { notFound } from '../errors/app-error'
 import type { Deps } from '../lib/route'
-import { minorToMajor } from '../../shared/domain/currency'
+import { vatTermsOf } from '../../shared/domain/vat'
 import * as t from '../mail/messages'
 import { OUTBOX_HEADER } from '../mail/transport'
 import { QUEUES } from '../jobs/queue'
@@ -144,13 +144,14 @@ async function orderFacts(db: Db, workshopId: number, orderId: number) {
         email: s.workshops.contactEmail,
         currency: s.workshops.currency,
       },
+      vat: { vatRegistered: s.workshops.vatRegistered, vatNumber: s.workshops.vatNumber, vatRateBasisPoints: s.workshops.vatRateBasisPoints },
     })
     .from(s.orders)
     .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
     .innerJoin(s.workshops, eq(s.workshops.id, s.orders.workshopId))
     .where(and(eq(s.orders.id, orderId), eq(s.orders.workshopId, workshopId)))
   if (!r) throw notFound('Order')
-  return r
+  return { ...r, workshop: { ...r.workshop, vat: vatTermsOf(r.vat) } }
 }
 
 /** The customer's confirmation; `booking` says whether the steps are in the live plan (with their dates) or not yet. */
@@ -174,7 +175,7 @@ export async function sendPromiseConfirmation(
       orderNumber: f.order.number,
       title: f.order.title,
       promisedDate: promised,
-      priceQuoted: minorToMajor(f.order.priceQuotedMinor, f.workshop.currency),
+      priceQuotedMinor: f.order.priceQuotedMinor,
       booking,
     }),
   })

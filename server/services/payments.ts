@@ -10,6 +10,7 @@ import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { money } from '../mail/messages'
 import { minorToDecimal, minorToMajor } from '../../shared/domain/currency'
+import { vatFiguresOf, vatInAmount, vatLine, vatNumberLine, vatTermsOf } from '../../shared/domain/vat'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
@@ -83,6 +84,7 @@ export async function orderMoney(db: Tx, workshopId: number, orderId: number) {
     paidMinor,
     owedMinor: Math.max(0, t.priceMinor - paidMinor),
     depositPaid: paidMinor >= t.depositMinor,
+    vat: vatFiguresOf(t.priceMinor, t.vat),
     quoteId: t.quote?.id ?? null,
     payments,
     links,
@@ -197,8 +199,10 @@ async function sendReceipt(deps: Deps, workshopId: number, paymentId: number) {
   const amount = money(minorToMajor(Math.abs(p.amountMinor), p.currency), p.currency)
   const refund = p.amountMinor < 0
   const left = o ? (await orderMoney(deps.db, workshopId, o.id)).owedMinor : null
+  const vat = vatTermsOf(w)
   const lines = [
     `${refund ? 'Refunded' : 'Received'}: ${amount} (${p.method === 'card' ? 'card' : p.method === 'cash' ? 'cash' : 'bank transfer'}) on ${dayjs(p.receivedAt).tz(w.timeZone).format('D MMMM YYYY')}`,
+    ...[vatLine(Math.abs(p.amountMinor), vat, (minor) => money(minorToMajor(minor, p.currency), p.currency))].filter((l): l is string => !!l),
     ...(left !== null ? [`Still to pay on ${what}: ${money(minorToMajor(left, p.currency), p.currency)}`] : []),
   ]
   const text = [
@@ -209,6 +213,7 @@ async function sendReceipt(deps: Deps, workshopId: number, paymentId: number) {
     ...lines,
     '',
     `— ${w.name}`,
+    ...[vatNumberLine(vat)].filter((l): l is string => !!l),
   ].join('\n')
   const html = `<div style="font-family:sans-serif;line-height:1.5">${text
     .split('\n')
@@ -455,17 +460,24 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
   const at = (k: string) => weeks.get(k) ?? weeks.set(k, { week: k, receivedMinor: 0, refundedMinor: 0, owedMinor: 0 }).get(k)!
   // This week's figures whatever range is asked for: the owner's card says what came in this week.
   const thisWeek = { week: isoWeek(dayjs().tz(w.timeZone)), receivedMinor: 0, refundedMinor: 0, owedMinor: 0 }
+  // VAT in what came in, payment by payment (as each receipt states it), refunds taking theirs back.
+  const vat = vatTermsOf(w)
+  const vatByWeek = new Map<string, number>()
+  let vatThisWeek = 0
   for (const p of await db
     .select()
     .from(s.payments)
     .where(and(eq(s.payments.workshopId, workshopId), eq(s.payments.toRefund, false)))) {
     const d = dayjs(p.receivedAt).tz(w.timeZone)
+    const pVat = vatInAmount(p.amountMinor, vat.vatRatePct)
     if (isoWeek(d) === thisWeek.week) {
       if (p.amountMinor >= 0) thisWeek.receivedMinor += p.amountMinor
       else thisWeek.refundedMinor -= p.amountMinor
+      vatThisWeek += pVat
     }
     const day = d.format('YYYY-MM-DD')
     if (day < from || day > to) continue
+    vatByWeek.set(isoWeek(d), (vatByWeek.get(isoWeek(d)) ?? 0) + pVat)
     if (p.amountMinor >= 0) at(isoWeek(d)).receivedMinor += p.amountMinor
     else at(isoWeek(d)).refundedMinor -= p.amountMinor
   }
@@ -512,6 +524,14 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
     owedMinor,
     owedInWeeksMinor,
     depositsHeldMinor,
+    vat: vat.vatRegistered
+      ? {
+          ratePct: vat.vatRatePct,
+          vatNumber: vat.vatNumber,
+          thisWeekMinor: vatThisWeek,
+          weeks: [...weeks.keys()].sort().map((week) => ({ week, vatMinor: vatByWeek.get(week) ?? 0 })),
+        }
+      : null,
     depositsHeld,
   }
 }
@@ -532,8 +552,24 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
     .leftJoin(s.users, eq(s.users.id, s.payments.recordedBy))
     .where(eq(s.payments.workshopId, workshopId))
     .orderBy(asc(s.payments.receivedAt), asc(s.payments.id))
+  // A VAT-registered workshop's accountant gets the VAT in each amount as a last column; otherwise the file is as it was.
+  const vat = vatTermsOf(w)
   const lines = [
-    ['received_at', 'order', 'quote', 'customer', 'method', 'purpose', 'amount', 'currency', 'to_refund', 'provider_ref', 'recorded_by', 'note'].join(','),
+    [
+      'received_at',
+      'order',
+      'quote',
+      'customer',
+      'method',
+      'purpose',
+      'amount',
+      'currency',
+      'to_refund',
+      'provider_ref',
+      'recorded_by',
+      'note',
+      ...(vat.vatRegistered ? ['vat'] : []),
+    ].join(','),
   ]
   for (const r of rows) {
     const day = dayjs(r.p.receivedAt).tz(w.timeZone).format('YYYY-MM-DD')
@@ -555,6 +591,7 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
         r.p.providerRef,
         r.by,
         r.p.note,
+        ...(vat.vatRegistered ? [minorToDecimal(vatInAmount(r.p.amountMinor, vat.vatRatePct), r.p.currency)] : []),
       ]
         .map(csvCell)
         .join(','),

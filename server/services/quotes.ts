@@ -9,6 +9,7 @@ import type { Actor, Deps } from '../lib/route'
 import { dayjs, formatDayWithYear } from '../lib/time'
 import { money, quoteOffer } from '../mail/messages'
 import { minorToMajor } from '../../shared/domain/currency'
+import { vatFiguresOf, vatLine, vatNumberLine, vatTermsOf } from '../../shared/domain/vat'
 import { metalName } from '../../shared/schemas/order'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
@@ -148,7 +149,17 @@ export async function getQuote(db: Db, workshopId: number, id: number) {
     .where(eq(s.paymentLinks.quoteId, id))
     .orderBy(s.paymentLinks.id)
   const payments = await listPayments(db, eq(s.payments.quoteId, id))
-  return { ...withBalance(q), links, payments, paidMinor: payments.filter((p) => !p.toRefund).reduce((t, p) => t + p.amountMinor, 0) }
+  const [w] = await db
+    .select({ vatRegistered: s.workshops.vatRegistered, vatNumber: s.workshops.vatNumber, vatRateBasisPoints: s.workshops.vatRateBasisPoints })
+    .from(s.workshops)
+    .where(eq(s.workshops.id, workshopId))
+  return {
+    ...withBalance(q),
+    links,
+    payments,
+    paidMinor: payments.filter((p) => !p.toRefund).reduce((t, p) => t + p.amountMinor, 0),
+    vat: vatFiguresOf(q.priceMinor, vatTermsOf(w!)),
+  }
 }
 
 export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
@@ -279,7 +290,7 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
   await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'sent', sentAt: new Date().toISOString() }, 'sent')
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
   const content = quoteOffer({
-    workshop: { name: w!.name, address: w!.address, phone: w!.phone, email: w!.contactEmail },
+    workshop: { name: w!.name, address: w!.address, phone: w!.phone, email: w!.contactEmail, vat: vatTermsOf(w!) },
     customerName: before.customerName,
     quoteNumber: before.number,
     title: before.title,
@@ -373,11 +384,17 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
   const q = await getQuote(db, workshopId, id)
   const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   const m = (minor: number) => money(minorToMajor(minor, q.currency), q.currency)
+  const vat = vatTermsOf(w!)
   const doc = new PDFDocument({ size: 'A4', margin: 56, info: { Title: `Quote ${q.number}` } })
   const chunks: Buffer[] = []
   doc.on('data', (c: Buffer) => chunks.push(c))
   const done = new Promise<Buffer>((r) => doc.on('end', () => r(Buffer.concat(chunks))))
-  doc.fontSize(18).text(w!.name).fontSize(9).text([w!.address, w!.phone, w!.contactEmail].filter(Boolean).join('  ·  ')).moveDown()
+  doc
+    .fontSize(18)
+    .text(w!.name)
+    .fontSize(9)
+    .text([w!.address, w!.phone, w!.contactEmail, vatNumberLine(vat)].filter(Boolean).join('  ·  '))
+    .moveDown()
   doc
     .fontSize(16)
     .text(`Quote ${q.number}`)
@@ -398,8 +415,9 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
     .moveDown()
     .fontSize(12)
     .text(`Price: ${m(q.priceMinor)}`)
-    .text(`Deposit to start the work: ${m(q.depositMinor)}`)
-    .text(`Balance at collection: ${m(q.priceMinor - q.depositMinor)}`)
+  const vatText = vatLine(q.priceMinor, vat, m)
+  if (vatText) doc.fontSize(10).text(vatText).fontSize(12)
+  doc.text(`Deposit to start the work: ${m(q.depositMinor)}`).text(`Balance at collection: ${m(q.priceMinor - q.depositMinor)}`)
   const link = q.links.find((l) => l.status === 'open')
   if (link) doc.moveDown().fontSize(10).text(`Pay the deposit: ${link.url}`)
   doc.end()

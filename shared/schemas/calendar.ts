@@ -62,6 +62,25 @@ export const workshopSettingsInput = z.object({
   depositPct: z.number().int('must be a whole percentage').min(0, 'must be 0 to 100').max(100, 'must be 0 to 100').optional(),
   quoteValidDays: z.number().int('must be whole days').min(1, 'must be 1 to 365 days').max(365, 'must be 1 to 365 days').optional(),
   noMetalBeforeDeposit: z.boolean().optional(),
+  /**
+   * VAT: registered or not, the VAT number printed on the customer's documents (letters, digits and spaces, e.g. GB 123 4567 89),
+   * and the rate in per cent with at most two decimals (UK standard rate 20). Prices are VAT-inclusive; a registered workshop
+   * needs its number (checked against the stored value when only one of them changes).
+   */
+  vatRegistered: z.boolean().optional(),
+  vatNumber: z
+    .string()
+    .trim()
+    .toUpperCase()
+    .max(20, 'must be at most 20 characters')
+    .regex(/^[A-Z0-9 ]*$/, 'must be letters, digits and spaces only, such as GB 123 4567 89')
+    .optional(),
+  vatRatePct: z
+    .number()
+    .min(0, 'must be 0 to 100')
+    .max(100, 'must be 0 to 100')
+    .refine((v) => Math.abs(v * 100 - Math.round(v * 100)) < 1e-6, 'must have at most two decimals, such as 20 or 17.5')
+    .optional(),
   version,
 })
 export const closureInput = z
@@ -100,6 +119,9 @@ export const workshopSettingsRecord = z.object({
   depositPct: wireInt,
   quoteValidDays: wireInt,
   noMetalBeforeDeposit: z.boolean(),
+  vatRegistered: z.boolean(),
+  vatNumber: z.string(),
+  vatRatePct: z.number(),
   version: wireInt,
 })
 export type WorkshopSettingsRecord = z.infer<typeof workshopSettingsRecord>

@@ -74,6 +74,13 @@ export const payment = z.object({
 })
 export type Payment = z.infer<typeof payment>
 
+/**
+ * The VAT in a VAT-inclusive amount when the workshop is registered (null when it is not): the rate in per cent, the workshop's
+ * VAT number, the VAT and what is left before VAT, in minor units.
+ */
+export const vatFigures = z.object({ ratePct: z.number(), vatNumber: z.string(), vatMinor: wireInt, netMinor: wireInt }).nullable()
+export type VatFigures = z.infer<typeof vatFigures>
+
 /** What an order costs, has paid and owes, with its payments and links. */
 export const orderMoney = z.object({
   orderId: wireInt,
@@ -85,6 +92,8 @@ export const orderMoney = z.object({
   paidMinor: wireInt,
   owedMinor: wireInt,
   depositPaid: z.boolean(),
+  /** The VAT in the price. */
+  vat: vatFigures,
   quoteId: wireInt.nullable(),
   payments: z.array(payment),
   links: z.array(paymentLink),
@@ -106,6 +115,10 @@ export const moneySummary = z.object({
   /** Owed in the weeks listed: the sum of their owed figures. */
   owedInWeeksMinor: wireInt,
   depositsHeldMinor: wireInt,
+  /** When registered for VAT: the VAT in what came in (received less refunded), this week's and each listed week's, payment by payment. */
+  vat: z
+    .object({ ratePct: z.number(), vatNumber: z.string(), thisWeekMinor: wireInt, weeks: z.array(z.object({ week: z.string(), vatMinor: wireInt })) })
+    .nullable(),
   depositsHeld: z.array(z.object({ orderId: wireInt, orderNumber: z.string(), customerName: z.string(), paidMinor: wireInt })),
 })
 export type MoneySummary = z.infer<typeof moneySummary>

@@ -2,7 +2,7 @@
 import { z } from 'zod'
 import { id, isoDate, name, pageOf, pastDateProblem, version, wireInt } from './common'
 import { pieceParams } from './order'
-import { minorAmount, payment, paymentLink } from './payment'
+import { minorAmount, payment, paymentLink, vatFigures } from './payment'
 import { promiseBooking } from './promise'
 
 export { minorAmount }
@@ -144,8 +144,11 @@ export const quote = z.object({
 })
 export type Quote = z.infer<typeof quote>
 export const quotePage = pageOf(quote)
-/** One quote, and every write's answer: with its payment links, payments and what is paid (net of refunds, not counting those to refund). */
-export const quoteDetail = quote.extend({ links: z.array(paymentLink), payments: z.array(payment), paidMinor: wireInt })
+/**
+ * One quote, and every write's answer: with its payment links, payments, what is paid (net of refunds, not counting those to
+ * refund) and the VAT in its price when the workshop is registered.
+ */
+export const quoteDetail = quote.extend({ links: z.array(paymentLink), payments: z.array(payment), paidMinor: wireInt, vat: vatFigures })
 export type QuoteDetail = z.infer<typeof quoteDetail>
 /**
  * Accepting's answer: the quote, and whether the order made from it was booked into the live plan where its piece finds room

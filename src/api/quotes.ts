@@ -17,7 +17,7 @@ export { QUOTE_STATUSES } from '@shared/schemas/quote'
 export type { QuoteAccepted, QuoteConfidence, QuoteDetails, QuoteStatus } from '@shared/schemas/quote'
 export type QuoteStone = NonNullable<QuoteDetails['stones']>[number]
 /** A quote as a screen holds it: a list row, with its links, payments and what is paid once it was read on its own. */
-export type Quote = QuoteRow & Partial<Pick<QuoteDetail, 'links' | 'payments' | 'paidMinor'>>
+export type Quote = QuoteRow & Partial<Pick<QuoteDetail, 'links' | 'payments' | 'paidMinor' | 'vat'>>
 export type QuoteInput = z.input<typeof quoteInput>
 
 export interface QuoteListParams {

@@ -396,4 +396,27 @@ describe('quotes and deposits', () => {
     expect(await text(page, '[data-test=money-payments]')).toContain(rows[1]!.name!)
     await screenshot(page, 'payments-order-paid-in-full', { fullPage: false })
   })
+
+  it('when the workshop is registered for VAT, then the order’s money and the quote dialog say the VAT in the price with the VAT number', async () => {
+    // 20 % is the UK standard rate as HMRC publishes it. Hand-worked: £1,250.00 × 20/120 = £208.33, leaving £1,041.67;
+    // £1,850.00 × 20/120 = £308.33, leaving £1,541.67.
+    await e2e.db.db.update(s.workshops).set({ vatRegistered: true, vatNumber: 'GB 123 4567 89', vatRateBasisPoints: 2000 })
+    try {
+      await page.goto(`/orders/${orderId}`)
+      const number = 'VAT registration no. GB 123 4567 89'
+      await page.locator('[data-test=money-vat]', { hasText: `of which VAT at 20%: £208.33 (£1,041.67 before VAT) · ${number}` }).waitFor({ timeout: 15_000 })
+      await page.locator('[data-test=money-make-quote]').click()
+      const dialog = page.locator('.el-dialog', { hasText: 'Quote for order' })
+      await dialog.waitFor()
+      await field(dialog, 'quote-price').fill('1850')
+      await dialog.locator('[data-test=quote-vat]', { hasText: `of which VAT at 20%: £308.33 (£1,541.67 before VAT) · ${number}` }).waitFor()
+      // The deposit stays 30 % of what the customer pays: £555.00 now, £1,295.00 at collection.
+      await dialog.locator('[data-test=quote-deposit-amount]', { hasText: '£555.00 now, £1,295.00 at collection' }).waitFor()
+      await screenshot(page, 'payments-quote-vat', { fullPage: false })
+      await dialog.getByRole('button', { name: 'Cancel' }).click()
+      await dialog.waitFor({ state: 'hidden' })
+    } finally {
+      await e2e.db.db.update(s.workshops).set({ vatRegistered: false, vatNumber: '' })
+    }
+  })
 })

@@ -21,6 +21,13 @@ export const workshops = pgTable('workshops', {
   depositPct: integer().notNull().default(30),
   quoteValidDays: integer().notNull().default(30),
   noMetalBeforeDeposit: boolean().notNull().default(false),
+  /**
+   * VAT: whether the workshop is registered, its VAT number as printed on its documents, and the rate in hundredths of a per
+   * cent (2000 = 20 %). Prices are what the customer pays, VAT included; documents show the VAT in them.
+   */
+  vatRegistered: boolean().notNull().default(false),
+  vatNumber: text().notNull().default(''),
+  vatRateBasisPoints: integer().notNull().default(2000),
   version: version(),
   createdAt: createdAt(),
 })

@@ -410,8 +410,9 @@ describe('quotes and deposits', () => {
       await dialog.waitFor()
       await field(dialog, 'quote-price').fill('1850')
       await dialog.locator('[data-test=quote-vat]', { hasText: `of which VAT at 20%: £308.33 (£1,541.67 before VAT) · ${number}` }).waitFor()
-      // The deposit stays 30 % of what the customer pays: £555.00 now, £1,295.00 at collection.
-      await dialog.locator('[data-test=quote-deposit-amount]', { hasText: '£555.00 now, £1,295.00 at collection' }).waitFor()
+      // The deposit stays a share of what the customer pays, VAT included: the owner set 40 % above, so £740.00 now and
+      // £1,110.00 at collection.
+      await dialog.locator('[data-test=quote-deposit-amount]', { hasText: '£740.00 now, £1,110.00 at collection' }).waitFor()
       await screenshot(page, 'payments-quote-vat', { fullPage: false })
       await dialog.getByRole('button', { name: 'Cancel' }).click()
       await dialog.waitFor({ state: 'hidden' })

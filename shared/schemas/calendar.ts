@@ -28,61 +28,68 @@ export function publicOrigin(text: string): string | null {
   return `${u.protocol}//${u.host}`
 }
 
-export const workshopSettingsInput = z.object({
-  name,
-  timeZone,
-  weekPattern: weekPattern.refine((w) => w.length > 0, 'needs at least one working span'),
-  /** Share of available hours the planner fills (headroom for the unexpected). */
-  planningLoad: z.number().min(0.5, 'must be between 0.5 and 1').max(1, 'must be between 0.5 and 1').default(0.85),
-  /** What customers' e-mails carry; left out of a change, each keeps its value. */
-  address: z.string().trim().max(300, 'must be at most 300 characters').optional(),
-  phone: z.string().trim().max(40, 'must be at most 40 characters').optional(),
-  contactEmail: z.union([z.literal(''), z.string().trim().email('must be an e-mail address such as orders@example.com').max(200)]).optional(),
-  currency: z
-    .string()
-    .trim()
-    .toUpperCase()
-    .refine((c) => {
-      try {
-        return /^[A-Z]{3}$/.test(c) && !!new Intl.NumberFormat('en', { style: 'currency', currency: c })
-      } catch {
-        return false
-      }
-    }, 'must be a three-letter currency code such as GBP or EUR')
-    .optional(),
-  /** Where tablets on the workshop network open the app (a ticket's QR code): scheme, host and port only; '' = the address the server suggests. */
-  publicUrl: z
-    .string()
-    .trim()
-    .max(200, 'must be at most 200 characters')
-    .refine((v) => v === '' || publicOrigin(v) !== null, 'must be an http:// or https:// address with no path, such as http://192.168.1.20:8080')
-    .transform((v) => (v === '' ? '' : publicOrigin(v)!))
-    .optional(),
-  /** Money rules: the deposit asked on a quote (% of the price), how long a quote stands, and whether metal waits for the deposit. */
-  depositPct: z.number().int('must be a whole percentage').min(0, 'must be 0 to 100').max(100, 'must be 0 to 100').optional(),
-  quoteValidDays: z.number().int('must be whole days').min(1, 'must be 1 to 365 days').max(365, 'must be 1 to 365 days').optional(),
-  noMetalBeforeDeposit: z.boolean().optional(),
-  /**
-   * VAT: registered or not, the VAT number printed on the customer's documents (letters, digits and spaces, e.g. GB 123 4567 89),
-   * and the rate in per cent with at most two decimals (UK standard rate 20). Prices are VAT-inclusive; a registered workshop
-   * needs its number (checked against the stored value when only one of them changes).
-   */
-  vatRegistered: z.boolean().optional(),
-  vatNumber: z
-    .string()
-    .trim()
-    .toUpperCase()
-    .max(20, 'must be at most 20 characters')
-    .regex(/^[A-Z0-9 ]*$/, 'must be letters, digits and spaces only, such as GB 123 4567 89')
-    .optional(),
-  vatRatePct: z
-    .number()
-    .min(0, 'must be 0 to 100')
-    .max(100, 'must be 0 to 100')
-    .refine((v) => Math.abs(v * 100 - Math.round(v * 100)) < 1e-6, 'must have at most two decimals, such as 20 or 17.5')
-    .optional(),
-  version,
-})
+export const workshopSettingsInput = z
+  .object({
+    name,
+    timeZone,
+    weekPattern: weekPattern.refine((w) => w.length > 0, 'needs at least one working span'),
+    /** Share of available hours the planner fills (headroom for the unexpected). */
+    planningLoad: z.number().min(0.5, 'must be between 0.5 and 1').max(1, 'must be between 0.5 and 1').default(0.85),
+    /** What customers' e-mails carry; left out of a change, each keeps its value. */
+    address: z.string().trim().max(300, 'must be at most 300 characters').optional(),
+    phone: z.string().trim().max(40, 'must be at most 40 characters').optional(),
+    contactEmail: z.union([z.literal(''), z.string().trim().email('must be an e-mail address such as orders@example.com').max(200)]).optional(),
+    currency: z
+      .string()
+      .trim()
+      .toUpperCase()
+      .refine((c) => {
+        try {
+          return /^[A-Z]{3}$/.test(c) && !!new Intl.NumberFormat('en', { style: 'currency', currency: c })
+        } catch {
+          return false
+        }
+      }, 'must be a three-letter currency code such as GBP or EUR')
+      .optional(),
+    /** Where tablets on the workshop network open the app (a ticket's QR code): scheme, host and port only; '' = the address the server suggests. */
+    publicUrl: z
+      .string()
+      .trim()
+      .max(200, 'must be at most 200 characters')
+      .refine((v) => v === '' || publicOrigin(v) !== null, 'must be an http:// or https:// address with no path, such as http://192.168.1.20:8080')
+      .transform((v) => (v === '' ? '' : publicOrigin(v)!))
+      .optional(),
+    /** Money rules: the deposit asked on a quote (% of the price), how long a quote stands, and whether metal waits for the deposit. */
+    depositPct: z.number().int('must be a whole percentage').min(0, 'must be 0 to 100').max(100, 'must be 0 to 100').optional(),
+    quoteValidDays: z.number().int('must be whole days').min(1, 'must be 1 to 365 days').max(365, 'must be 1 to 365 days').optional(),
+    noMetalBeforeDeposit: z.boolean().optional(),
+    /**
+     * VAT: registered or not, the VAT number printed on the customer's documents (letters, digits and spaces, e.g. GB 123 4567 89),
+     * and the rate in per cent with at most two decimals (UK standard rate 20). Prices are VAT-inclusive; a registered workshop
+     * needs its number (checked against the stored value when only one of them changes).
+     */
+    vatRegistered: z.boolean().optional(),
+    vatNumber: z
+      .string()
+      .trim()
+      .toUpperCase()
+      .max(20, 'must be at most 20 characters')
+      .regex(/^[A-Z0-9 ]*$/, 'must be letters, digits and spaces only, such as GB 123 4567 89')
+      .optional(),
+    vatRatePct: z
+      .number()
+      .min(0, 'must be 0 to 100')
+      .max(100, 'must be 0 to 100')
+      .refine((v) => Math.abs(v * 100 - Math.round(v * 100)) < 1e-6, 'must have at most two decimals, such as 20 or 17.5')
+      .optional(),
+    version,
+  })
+  // A registered workshop's documents carry its number: said under the field before anything is sent when the form empties it
+  // (when the number is left out of a change, the server checks the stored one).
+  .superRefine((w, ctx) => {
+    if (w.vatRegistered === true && w.vatNumber === '')
+      ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['vatNumber'], message: 'is required when the workshop is registered for VAT' })
+  })
 export const closureInput = z
   .object({ startsOn: isoDate, endsOn: isoDate, name: z.string().trim().min(1, 'is required').max(120) })
   .refine((c) => c.endsOn >= c.startsOn, { message: 'must not be before the first day', path: ['endsOn'] })

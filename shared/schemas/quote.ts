@@ -1,7 +1,7 @@
 // Quotes for commissions: what is quoted (piece, metal, stones), the promised date, the price and deposit in minor units.
 import { z } from 'zod'
 import { id, isoDate, name, pageOf, pastDateProblem, version, wireInt } from './common'
-import { pieceParams } from './order'
+import { METALS, pieceParams, type PieceParams } from './order'
 import { minorAmount, payment, paymentLink, vatFigures } from './payment'
 import { promiseBooking } from './promise'
 
@@ -16,10 +16,16 @@ const currency = z
   .toUpperCase()
   .regex(/^[A-Z]{3}$/, 'must be a three-letter currency code such as GBP')
 
-export const quoteDetails = z.object({
+const isMetalCode = (v: unknown): v is PieceParams['metal'] => typeof v === 'string' && (METALS as readonly string[]).includes(v)
+const quoteDetailsShape = z.object({
   routingId: id.optional(),
   piece: z.string().trim().max(120).optional(),
-  params: pieceParams.optional(),
+  /**
+   * The piece as an order's piece holds it: its alloy (`metal`) and estimated weight (`metalWeightG`, grams in one piece) among
+   * them, so the order made from the quote carries both. Sent without a metal, it takes the quote's own metal when that is one
+   * of the listed metals (else the order form's default).
+   */
+  params: pieceParams.extend({ metal: pieceParams.shape.metal.removeDefault().optional() }).optional(),
   priority: z.number().int().min(1, 'must be 1 to 5').max(5, 'must be 1 to 5').optional(),
   metal: z.string().trim().max(120).optional(),
   stones: z
@@ -33,6 +39,17 @@ export const quoteDetails = z.object({
     .max(100)
     .optional(),
 })
+type QuoteDetailsShape = z.infer<typeof quoteDetailsShape>
+const withPieceMetal = ({ params, ...d }: QuoteDetailsShape): Omit<QuoteDetailsShape, 'params'> & { params?: PieceParams } =>
+  params ? { ...d, params: { ...params, metal: params.metal ?? (isMetalCode(d.metal) ? d.metal : pieceParams.shape.metal.parse(undefined)) } } : d
+export const quoteDetails = quoteDetailsShape.transform(withPieceMetal)
+/** What is quoted, as written or changed: a listed metal named on the quote and another in the piece's parameters is refused. */
+const quoteDetailsInput = quoteDetailsShape
+  .superRefine((d, ctx) => {
+    if (d.params?.metal && isMetalCode(d.metal) && d.params.metal !== d.metal)
+      ctx.addIssue({ code: 'custom', path: ['params', 'metal'], message: 'must be the metal the quote names' })
+  })
+  .transform(withPieceMetal)
 /** A quote's price: a quote asks the customer for money, so nothing or less is refused. */
 export const quotePrice = minorAmount.min(1, 'must be more than zero')
 export const quoteConfidence = z.object({ p50: isoDate.optional(), p80: isoDate.optional(), p95: isoDate.optional(), note: z.string().max(300).optional() })
@@ -40,7 +57,7 @@ export const quoteConfidence = z.object({ p50: isoDate.optional(), p80: isoDate.
 const quoteFields = {
   title: name,
   description: z.string().max(4000, 'must be at most 4000 characters'),
-  details: quoteDetails,
+  details: quoteDetailsInput,
   promisedDate: isoDate.nullable(),
   confidence: quoteConfidence.nullable(),
   priceMinor: quotePrice,
@@ -54,7 +71,7 @@ export const quoteInput = z
     currency: currency.optional(),
     ...quoteFields,
     description: quoteFields.description.default(''),
-    details: quoteDetails.default({}),
+    details: quoteDetailsInput.default({}),
     promisedDate: quoteFields.promisedDate.default(null),
     confidence: quoteFields.confidence.default(null),
     depositMinor: minorAmount.optional(),
@@ -64,7 +81,7 @@ export const quoteInput = z
 export const quoteUpdate = z.object({
   title: quoteFields.title.optional(),
   description: quoteFields.description.optional(),
-  details: quoteDetails.optional(),
+  details: quoteDetailsInput.optional(),
   promisedDate: isoDate.nullable().optional(),
   confidence: quoteConfidence.nullable().optional(),
   priceMinor: quotePrice.optional(),

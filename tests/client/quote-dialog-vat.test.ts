@@ -30,6 +30,7 @@ const settings = vi.hoisted(() => ({
 vi.mock('@/api/workshop', () => ({ getWorkshop: vi.fn(async () => settings.value), listClosures: vi.fn(async () => []) }))
 vi.mock('@/api/routings', () => ({ listRoutings: vi.fn(async () => []) }))
 vi.mock('@/api/customers', () => ({ listCustomers: vi.fn(async () => ({ items: [], total: 0, page: 1, pageSize: 20 })), createCustomer: vi.fn() }))
+vi.mock('@/api/costing', () => ({ estimateCost: vi.fn(async () => null) }))
 vi.mock('@/api/quotes', () => ({ createQuote: vi.fn(), sendQuote: vi.fn(), updateQuote: vi.fn() }))
 vi.stubGlobal('ElMessage', Object.assign(vi.fn(), { success: vi.fn(), error: vi.fn() }))
 const { default: QuoteDialog } = await import('@/components/money/QuoteDialog.vue')

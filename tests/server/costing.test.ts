@@ -381,6 +381,51 @@ describe('a repair on the customer’s own piece', () => {
   })
 })
 
+describe('a quote’s piece', () => {
+  const quote = (details: Record<string, unknown>) =>
+    sales.post('/api/quotes', {
+      customerId,
+      title: 'Fixture pendant',
+      priceMinor: 125_000,
+      currency: 'GBP',
+      details: { routingId, piece: 'Fixture pendant', ...details },
+    })
+
+  it('when a quote names 18 ct gold and 5.00 g a piece, then the order made from it carries both and its estimated cost counts the metal', async () => {
+    // The metal chosen on the quote; the piece's parameters give only the weight.
+    const q = await quote({ metal: 'gold-18ct', params: { metalWeightG: 5 } })
+    expect(q.status, JSON.stringify(q.body)).toBe(201)
+    expect(q.body.details.params).toMatchObject({ metal: 'gold-18ct', metalWeightG: 5 })
+    const a = await sales.post(`/api/quotes/${q.body.id}/accept`, { version: q.body.version })
+    expect(a.status, JSON.stringify(a.body)).toBe(200)
+    const [bag] = await t.db.select({ params: s.jobBags.params }).from(s.jobBags).where(eq(s.jobBags.orderId, a.body.orderId))
+    expect(bag!.params).toMatchObject({ metal: 'gold-18ct', metalWeightG: 5 })
+    const c = await sales.get(`/api/orders/${a.body.orderId}/costing`)
+    expect(c.status).toBe(200)
+    // Metal 5,000 mg × 6,000 p/g (today's 18 ct) ÷ 1,000 = 30,000 p; labour 210 min × 3,200 p/h ÷ 60 = 11,200 p; hallmark 4,500 p;
+    // no stones. Total 45,700 p. At 40 %: 45,700 ÷ 0.6 = 76,166.7 p, up to the whole pound: 762.00. On 1,250.00: 79,300 p = 63.44 % → 63.4 %.
+    expect(c.body.estimate.cost).toEqual({ metalMinor: 30_000, stonesMinor: 0, outsideMinor: 4_500, labourMinor: 11_200, totalMinor: 45_700 })
+    expect(c.body.estimate).toMatchObject({ marginMinor: 79_300, marginPct: 63.4, missing: [] })
+    expect(c.body.suggestedPriceMinor).toBe(76_200)
+    // The quote dialog's estimate of the same piece gives the same figures.
+    const e = await sales.post('/api/costing/estimate', {
+      priceQuotedMinor: 125_000,
+      pieces: [{ routingId, piece: 'Fixture pendant', params: { metal: 'gold-18ct', metalWeightG: 5 } }],
+    })
+    expect(e.body.estimate.cost.totalMinor).toBe(45_700)
+    expect(e.body).toMatchObject({ suggestedPriceMinor: 76_200, estimate: { marginMinor: 79_300, marginPct: 63.4 } })
+  })
+
+  it('when a quote’s metal weight is negative, absurd or its alloy unknown, or it names two metals, then 400 naming the field and nothing is kept', async () => {
+    const before = (await t.db.select({ id: s.quotes.id }).from(s.quotes)).length
+    expectFieldError(await quote({ params: { metal: 'gold-18ct', metalWeightG: -2 } }), 'details.params.metalWeightG', /more than 0 g/)
+    expectFieldError(await quote({ params: { metal: 'gold-18ct', metalWeightG: 25_000 } }), 'details.params.metalWeightG', /at most 5000 g/)
+    expectFieldError(await quote({ params: { metal: 'gold-24ct', metalWeightG: 5 } }), 'details.params.metal', /listed metals/)
+    expectFieldError(await quote({ metal: 'gold-18ct', params: { metal: 'silver-925', metalWeightG: 5 } }), 'details.params.metal', /the metal the quote names/)
+    expect((await t.db.select({ id: s.quotes.id }).from(s.quotes)).length).toBe(before)
+  })
+})
+
 describe('a workshop pricing in yen', () => {
   it('when the workshop currency has no decimals, then rates, outside costs and prices are whole yen and the suggested price is a whole yen', async () => {
     // ISO 4217: JPY has no minor unit, so 1 minor unit = ¥1. Everyone at ¥3,000 an hour, the hallmark at ¥4,501, brass (not priced), no stones.

@@ -490,7 +490,8 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       const choices = PIECES[t.row.code]!
       const choice = choices[Math.floor(rand() * choices.length)]!
       const params = { ...DEFAULT_PARAMS, ...choice.params }
-      const number = `MG${String(opts.due.getUTCFullYear()).slice(2)}-${String(orderNo).padStart(4, '0')}`
+      // Numbered by the year the order was taken in the workshop's time zone, as the app numbers a new one (not the year it is due).
+      const number = `MG${dayjs(opts.created).tz('Europe/London').format('YY')}-${String(orderNo).padStart(4, '0')}`
       const [order] = await tx
         .insert(s.orders)
         .values({

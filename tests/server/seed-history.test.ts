@@ -177,6 +177,9 @@ async function contradictions(db: Db, now: Date): Promise<{ problems: string[]; 
   })
   for (const o of orders) {
     if (o.created_at > now) problems.push(`order ${o.number} was taken after now`)
+    // An order is numbered by the two-digit year it was taken in, in the workshop's zone (as the app numbers a new one).
+    const taken = new Intl.DateTimeFormat('en-GB', { timeZone: cal.zone, year: '2-digit' }).format(o.created_at)
+    if (!o.number.startsWith(`MG${taken}-`)) problems.push(`order ${o.number} was taken in 20${taken}`)
     if (o.updated_at > now) problems.push(`order ${o.number} was last changed after now`)
     if (o.status === 'collected') {
       if (!o.all_done) problems.push(`order ${o.number} is collected with work not done`)

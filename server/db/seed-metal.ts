@@ -182,7 +182,8 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
         ...common,
         kind: 'issued',
         weightMg: issued,
-        source: i === 0 && fromCustomer ? 'customer' : 'stock',
+        // The piece weighed out again for its next step is still what the bag was first weighed out as (the customer's, or stock).
+        source: fromCustomer ? 'customer' : 'stock',
         recordedAt: st.start,
         reason: i === 0 && repair ? 'The customer’s piece, for repair' : i === 0 && fromCustomer ? 'Customer’s old gold, melted and rolled' : '',
       })

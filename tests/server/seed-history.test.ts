@@ -296,6 +296,24 @@ describe('the demo seeded on a Friday night in December', () => {
   const now = new Date('2026-12-04T01:45:00Z')
   const seeded = seededOn(now)
 
+  it('when its metal is read back, then a job bag’s piece weighed out again is still what the bag was first weighed out as', async () => {
+    // The bench's own rule (README, Metal): a customer's piece stays the customer's metal at every step, stock stays stock.
+    const issued = await seeded.db
+      .select({ jobBagId: s.metalMovements.jobBagId, source: s.metalMovements.source, at: s.metalMovements.recordedAt, id: s.metalMovements.id })
+      .from(s.metalMovements)
+      .where(eq(s.metalMovements.kind, 'issued'))
+    const first = new Map<number, string>()
+    const wrong: string[] = []
+    for (const m of [...issued].sort((a, b) => new Date(a.at as unknown as string).getTime() - new Date(b.at as unknown as string).getTime() || a.id - b.id)) {
+      if (m.jobBagId === null) continue
+      const was = first.get(m.jobBagId)
+      if (was === undefined) first.set(m.jobBagId, String(m.source))
+      else if (was !== String(m.source)) wrong.push(`job bag ${m.jobBagId}: first out as ${was}, later as ${m.source}`)
+    }
+    expect([...first.values()].filter((v) => v === 'customer').length, 'the demo has customers’ pieces').toBeGreaterThan(0)
+    expect(wrong).toEqual([])
+  })
+
   it('when its calendar is read back, then the downtime and the stocktake fall on weekdays and the bank holidays are closures', async () => {
     const down = await seeded.db.select({ startsAt: s.benchDowntime.startsAt }).from(s.benchDowntime)
     expect(down.map((d) => new Date(d.startsAt).toISOString().slice(0, 10))).toEqual(['2026-12-14'])

@@ -42,7 +42,7 @@ function whereThePiecesAre(rows: readonly Movement[]) {
  * (a repair, or their own gold to remake), as last weighed back from the bench and not yet collected. It is in the stock
  * balance, since it came in and went back, but it is theirs; at the bench it is in no balance, and once collected it has left.
  */
-async function customersPiecesInStock(db: Db, workshopId: number): Promise<Map<number, number>> {
+async function customersPiecesInStock(db: Db, workshopId: number): Promise<{ held: Map<number, number>; reissued: Map<number, number> }> {
   const customersBags = db
     .select({ id: metalMovements.jobBagId })
     .from(metalMovements)
@@ -64,7 +64,22 @@ async function customersPiecesInStock(db: Db, workshopId: number): Promise<Map<n
     if (delivered.has(key) || firstSource.get(key) !== 'customer' || m.kind !== 'returned') continue
     held.set(m.alloyId, (held.get(m.alloyId) ?? 0) + (effective.get(m.id) ?? 0))
   }
-  return held
+  // The customer's piece weighed back and then out again for the next step (still marked as theirs) came from the balance it
+  // went back into, not from the customer a second time: by alloy, what such issues took of the piece waiting.
+  const reissued = new Map<number, number>()
+  const waiting = new Map<string, number>()
+  for (const m of rows) {
+    if (m.correctsId !== null) continue
+    const key = `${m.jobBagId}:${m.alloyId}`
+    const mg = effective.get(m.id) ?? 0
+    if (m.kind === 'returned' && m.form === 'piece') waiting.set(key, (waiting.get(key) ?? 0) + mg)
+    else if (m.kind === 'issued') {
+      const back = waiting.get(key) ?? 0
+      if (back > 0 && m.source === 'customer') reissued.set(m.alloyId, (reissued.get(m.alloyId) ?? 0) + Math.min(back, Math.max(0, mg)))
+      waiting.delete(key)
+    }
+  }
+  return { held, reissued }
 }
 
 export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
@@ -79,7 +94,7 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
     .from(metalMovements)
     .where(eq(metalMovements.workshopId, workshopId))
     .groupBy(metalMovements.alloyId, metalMovements.kind, metalMovements.source)
-  const customers = await customersPiecesInStock(db, workshopId)
+  const { held: customers, reissued } = await customersPiecesInStock(db, workshopId)
   const prices = await currentPrices(
     db,
     list.map((a) => a.id),
@@ -89,7 +104,8 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
     const s = (kind: string, source?: string) =>
       sums.filter((x) => x.alloyId === a.id && x.kind === kind && (source === undefined || x.source === source)).reduce((t, x) => t + Number(x.mg), 0)
     const boughtMg = s('bought'),
-      fromCustomerMg = s('issued', 'customer'),
+      // Metal that came in from customers: their pieces' first weighing out, not the same piece weighed out again.
+      fromCustomerMg = s('issued', 'customer') - (reissued.get(a.id) ?? 0),
       issuedMg = s('issued'),
       returnedMg = s('returned')
     const toRefiningMg = s('to-refining'),

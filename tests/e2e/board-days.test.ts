@@ -1,14 +1,13 @@
 // The board's days in Chromium: every day shown has its heading and its hour ticks alike (a closed day stays as a narrow marked
 // column when working hours are folded), and a bar dragged across a folded weekend lands where it is dropped.
 import { describe, expect, it } from 'vitest'
-import type { Page } from 'playwright-core'
 import dayjs from 'dayjs'
 import utc from 'dayjs/plugin/utc'
 import timezone from 'dayjs/plugin/timezone'
 import isoWeek from 'dayjs/plugin/isoWeek'
 import { eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
-import { barBox, screenshot, signInPage, useE2E, call, publishPlan } from '../setup/e2e'
+import { barBox, screenshot, signInPage, useE2E, call, publishPlan, boardSettled, boardHeadings } from '../setup/e2e'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
@@ -17,37 +16,6 @@ dayjs.extend(isoWeek)
 const TZ = 'Europe/London'
 const e2e = useE2E()
 
-/** The board once its data is in and drawn: no "Updating…" and no request in flight. */
-async function settled(page: Page) {
-  await page.locator('[data-test=board-timeline] .vis-panel.vis-center').waitFor()
-  await page.waitForLoadState('networkidle').catch(() => undefined)
-  await page.getByText('Updating…').waitFor({ state: 'hidden', timeout: 20_000 })
-}
-
-interface Heading {
-  day: string
-  x: number
-  width: number
-  closed: boolean
-  ticks: string[]
-}
-/** The day headings on screen, left to right, with their hour ticks. */
-async function headings(page: Page): Promise<Heading[]> {
-  return page.evaluate(() => {
-    const ticks = [...document.querySelectorAll<HTMLElement>('[data-test=board-tick]')]
-    return [...document.querySelectorAll<HTMLElement>('[data-test=board-day]')].map((el) => {
-      const r = el.getBoundingClientRect()
-      return {
-        day: el.dataset.day!,
-        x: r.x,
-        width: r.width,
-        closed: !!el.querySelector('[data-test=board-day-closed]') || el.classList.contains('board-axis__day--closed'),
-        ticks: ticks.filter((t) => t.dataset.day === el.dataset.day).map((t) => t.textContent!.trim()),
-      }
-    })
-  })
-}
-
 describe('days on the board', () => {
   it('when the week of the stocktake is shown folded, then each weekday has its heading, the closed one marked, and open days tick alike', async () => {
     const [stocktake] = await e2e.db.db.select().from(s.closures).where(eq(s.closures.name, 'Workshop closed: stocktake'))
@@ -55,10 +23,10 @@ describe('days on the board', () => {
     const ctx = await e2e.newContext()
     const manager = await signInPage(ctx, 'manager')
     await manager.waitForURL((u) => u.pathname === '/plan')
-    await settled(manager)
+    await boardSettled(manager)
     // The board opens on this week, or on the next one while the workshop is shut for the weekend: its first heading says which.
-    await expect.poll(async () => (await headings(manager)).length, { timeout: 10_000 }).toBe(5)
-    const openMonday = (await headings(manager))[0]!.day
+    await expect.poll(async () => (await boardHeadings(manager)).length, { timeout: 10_000 }).toBe(5)
+    const openMonday = (await boardHeadings(manager))[0]!.day
     expect(dayjs(openMonday).isoWeekday(), 'the week view starts on a Monday').toBe(1)
     // Step on from there to the stocktake's week.
     const weeks = dayjs(stocktake!.startsOn).startOf('isoWeek').diff(openMonday, 'week')
@@ -66,8 +34,8 @@ describe('days on the board', () => {
     for (let i = 0; i < weeks; i++) await manager.locator('[data-test=board-next]').click()
     const monday = dayjs(stocktake!.startsOn).startOf('isoWeek')
     const weekdays = [0, 1, 2, 3, 4].map((d) => monday.add(d, 'day').format('YYYY-MM-DD'))
-    await expect.poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(weekdays)
-    const shown = await headings(manager)
+    await expect.poll(async () => (await boardHeadings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(weekdays)
+    const shown = await boardHeadings(manager)
     const closures = await e2e.db.db.select().from(s.closures)
     const isClosed = (day: string) => closures.some((c) => c.startsOn <= day && day <= c.endsOn)
     for (const h of shown) expect(h.closed, h.day).toBe(isClosed(h.day))
@@ -88,14 +56,14 @@ describe('days on the board', () => {
     await expect.poll(() => label.isVisible(), { timeout: 10_000 }).toBe(true)
     // …and not in four weeks, where a closed day is a narrow strip (a clipped "W…" told nothing; the heading's tooltip names it).
     await manager.locator('[data-test=board-zoom]').getByText('Four weeks', { exact: true }).click()
-    await settled(manager)
+    await boardSettled(manager)
     const strip = manager.locator('.vis-item.vis-background.board-bg-closure', { hasText: 'Workshop closed: stocktake' }).first()
     await expect.poll(async () => (await strip.boundingBox())?.width ?? Infinity, { timeout: 10_000 }).toBeLessThan(40)
     await expect.poll(() => label.isVisible(), { timeout: 10_000 }).toBe(false)
     expect(await label.count(), 'the label is still there, only not shown').toBe(1)
     await screenshot(manager, 'board-days-01b-stocktake-four-weeks', { fullPage: false })
     await manager.locator('[data-test=board-zoom]').getByText('Week', { exact: true }).click()
-    await settled(manager)
+    await boardSettled(manager)
 
     // The whole clock, back on the week the board opened on: Monday is named from the left edge, and every day of the week, the
     // weekend too, has its heading.
@@ -103,10 +71,10 @@ describe('days on the board', () => {
     await manager.locator('[data-test=board-today]').click()
     const thisMonday = dayjs(openMonday)
     await expect
-      .poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 })
+      .poll(async () => (await boardHeadings(manager)).map((h) => h.day), { timeout: 10_000 })
       .toEqual([0, 1, 2, 3, 4, 5, 6].map((d) => thisMonday.add(d, 'day').format('YYYY-MM-DD')))
     const panel = (await manager.locator('.vis-panel.vis-center').boundingBox())!
-    const mon = (await headings(manager))[0]!
+    const mon = (await boardHeadings(manager))[0]!
     expect(Math.abs(mon.x - panel.x)).toBeLessThan(1.5)
     await expect(manager.locator(`[data-test=board-day][data-day="${mon.day}"]`).textContent()).resolves.toContain(String(thisMonday.date()))
     await screenshot(manager, 'board-days-02-whole-clock', { fullPage: false })
@@ -119,11 +87,11 @@ describe('days on the board', () => {
     await manager.waitForURL((u) => u.pathname === '/plan')
     await publishPlan(manager)
     await manager.goto('/plan')
-    await settled(manager)
+    await boardSettled(manager)
     await manager.locator('[data-test=board-zoom]').getByText('Four weeks', { exact: true }).click()
-    await settled(manager)
+    await boardSettled(manager)
     await manager.waitForFunction(() => /^W\d\d–W\d\d/.test(document.querySelector('[data-test=board-range]')?.textContent?.trim() ?? ''))
-    await settled(manager)
+    await boardSettled(manager)
 
     // The board's own data (the window the board loads: four weeks from this Monday), to read the bars and the closed hours.
     const from = dayjs().tz(TZ).startOf('isoWeek').format('YYYY-MM-DD')

@@ -10,7 +10,7 @@ import isoWeek from 'dayjs/plugin/isoWeek'
 import { eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { planStep, readyBenchStep } from '../setup/fixtures'
-import { call, screenshot, signInPage, useE2E } from '../setup/e2e'
+import { call, screenshot, signInPage, useE2E, boardSettled, boardHeadings } from '../setup/e2e'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
@@ -19,39 +19,11 @@ dayjs.extend(isoWeek)
 const TZ = 'Europe/London'
 const e2e = useE2E()
 
-/** The board once its data is in and drawn: no "Updating…" and no request in flight. */
-async function settled(page: Page) {
-  await page.locator('[data-test=board-timeline] .vis-panel.vis-center').waitFor()
-  await page.waitForLoadState('networkidle').catch(() => undefined)
-  await page.getByText('Updating…').waitFor({ state: 'hidden', timeout: 20_000 })
-}
-
-interface Heading {
-  day: string
-  x: number
-  width: number
-  ticks: string[]
-}
-/** The day headings on screen, left to right, with their hour ticks. */
-async function headings(page: Page): Promise<Heading[]> {
-  return page.evaluate(() => {
-    const ticks = [...document.querySelectorAll<HTMLElement>('[data-test=board-tick]')]
-    return [...document.querySelectorAll<HTMLElement>('[data-test=board-day]')].map((el) => {
-      const r = el.getBoundingClientRect()
-      return {
-        day: el.dataset.day!,
-        x: r.x,
-        width: r.width,
-        ticks: ticks.filter((t) => t.dataset.day === el.dataset.day).map((t) => t.textContent!.trim()),
-      }
-    })
-  })
-}
 const days = (monday: string, n: number) => Array.from({ length: n }, (_, i) => dayjs(monday).add(i, 'day').format('YYYY-MM-DD'))
 
 async function openBoard(page: Page) {
   await page.goto('/plan')
-  await settled(page)
+  await boardSettled(page)
 }
 
 describe('weekends on the board', () => {
@@ -59,12 +31,12 @@ describe('weekends on the board', () => {
     const ctx = await e2e.newContext()
     const manager = await signInPage(ctx, 'manager')
     await manager.waitForURL((u) => u.pathname === '/plan')
-    await settled(manager)
+    await boardSettled(manager)
     // The demo workshop works Monday to Friday: the week the board opens on (read from its first heading) shows five days.
-    await expect.poll(async () => (await headings(manager)).length, { timeout: 10_000 }).toBe(5)
-    const monday = (await headings(manager))[0]!.day
+    await expect.poll(async () => (await boardHeadings(manager)).length, { timeout: 10_000 }).toBe(5)
+    const monday = (await boardHeadings(manager))[0]!.day
     expect(dayjs(monday).isoWeekday()).toBe(1)
-    expect((await headings(manager)).map((h) => h.day)).toEqual(days(monday, 5))
+    expect((await boardHeadings(manager)).map((h) => h.day)).toEqual(days(monday, 5))
     const saturday = dayjs(monday).add(5, 'day').format('YYYY-MM-DD')
     await expect(manager.locator('[data-test=board-range]').textContent()).resolves.toContain(dayjs(monday).add(4, 'day').format('D MMM'))
     await screenshot(manager, 'board-weekend-01-folded-empty-weekend', { fullPage: false })
@@ -87,11 +59,11 @@ describe('weekends on the board', () => {
     })
     expect(own.status, JSON.stringify(own.body)).toBe(200)
     await openBoard(manager)
-    await expect.poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(days(monday, 6))
-    const withHours = (await headings(manager)).find((h) => h.day === saturday)!
+    await expect.poll(async () => (await boardHeadings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(days(monday, 6))
+    const withHours = (await boardHeadings(manager)).find((h) => h.day === saturday)!
     // Her four hours are shown from 09:00, and half a weekday's 8 h 30 min (4 / 8.5 = 0.47) about as wide.
     expect(withHours.ticks[0]).toBe('09:00')
-    const wednesday = (await headings(manager))[2]!
+    const wednesday = (await boardHeadings(manager))[2]!
     expect(withHours.width / wednesday.width).toBeGreaterThan(0.4)
     expect(withHours.width / wednesday.width).toBeLessThan(0.55)
     await expect(manager.locator('[data-test=board-range]').textContent()).resolves.toContain(dayjs(saturday).format('D MMM'))
@@ -109,7 +81,7 @@ describe('weekends on the board', () => {
     const back = await call(manager, 'PATCH', `/api/people/${who.id}`, { version: own.body.version, weekPattern: null })
     expect(back.status, JSON.stringify(back.body)).toBe(200)
     await openBoard(manager)
-    await expect.poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(days(monday, 6))
+    await expect.poll(async () => (await boardHeadings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(days(monday, 6))
     const [row] = await e2e.db.db.select({ start: s.operations.plannedStart }).from(s.operations).where(eq(s.operations.id, op.id))
     expect(new Date(row!.start!).toISOString()).toBe(dayjs.tz(`${saturday} 10:00`, TZ).toISOString())
     // On screen: drawn, and inside the timeline's panel (it ends where the week shown ends, Saturday 12:00, so within a pixel).
@@ -121,7 +93,7 @@ describe('weekends on the board', () => {
     expect(bar.x + bar.width).toBeLessThanOrEqual(panel.x + panel.width + 1)
     expect(bar.y).toBeGreaterThanOrEqual(panel.y)
     expect(bar.y + bar.height).toBeLessThanOrEqual(panel.y + panel.height)
-    const sat = (await headings(manager)).find((h) => h.day === saturday)!
+    const sat = (await boardHeadings(manager)).find((h) => h.day === saturday)!
     // The bar fills the two hours kept for it: it lies under Saturday's heading (within its border's pixel or two).
     expect(bar.x).toBeGreaterThanOrEqual(sat.x - 2)
     expect(bar.x + bar.width).toBeLessThanOrEqual(sat.x + sat.width + 2)
@@ -135,13 +107,13 @@ describe('weekends on the board', () => {
     const ctx = await e2e.newContext()
     const manager = await signInPage(ctx, 'manager')
     await manager.waitForURL((u) => u.pathname === '/plan')
-    await settled(manager)
+    await boardSettled(manager)
     await manager.locator('[data-test=board-fold]').click()
-    await settled(manager)
+    await boardSettled(manager)
     const monday = await manager.evaluate(() => document.querySelector<HTMLElement>('[data-test=board-day]')?.dataset.day ?? '')
     expect(dayjs(monday).isoWeekday()).toBe(1)
-    await expect.poll(async () => (await headings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(days(monday, 7))
-    const h = await headings(manager)
+    await expect.poll(async () => (await boardHeadings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(days(monday, 7))
+    const h = await boardHeadings(manager)
     const [wednesday, saturday, sunday] = [h[2]!, h[5]!, h[6]!]
     expect(saturday.ticks.length).toBeGreaterThan(1)
     expect(saturday.ticks).toEqual(wednesday.ticks)

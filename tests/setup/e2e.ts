@@ -127,6 +127,38 @@ export async function barBox(page: Page, id: number) {
   return box
 }
 
+/** The plan board once its data is in and drawn: no "Updating…" and no request in flight. */
+export async function boardSettled(page: Page) {
+  await page.locator('[data-test=board-timeline] .vis-panel.vis-center').waitFor()
+  await page.waitForLoadState('networkidle').catch(() => undefined)
+  await page.getByText('Updating…').waitFor({ state: 'hidden', timeout: 20_000 })
+}
+
+export interface BoardHeading {
+  day: string
+  x: number
+  width: number
+  /** A closed day, kept as a narrow marked column. */
+  closed: boolean
+  ticks: string[]
+}
+/** The plan board's day headings on screen, left to right, with their hour ticks. */
+export async function boardHeadings(page: Page): Promise<BoardHeading[]> {
+  return page.evaluate(() => {
+    const ticks = [...document.querySelectorAll<HTMLElement>('[data-test=board-tick]')]
+    return [...document.querySelectorAll<HTMLElement>('[data-test=board-day]')].map((el) => {
+      const r = el.getBoundingClientRect()
+      return {
+        day: el.dataset.day!,
+        x: r.x,
+        width: r.width,
+        closed: !!el.querySelector('[data-test=board-day-closed]') || el.classList.contains('board-axis__day--closed'),
+        ticks: ticks.filter((t) => t.dataset.day === el.dataset.day).map((t) => t.textContent!.trim()),
+      }
+    })
+  })
+}
+
 /** Fills the sign-in form and waits until the app has left the sign-in page. */
 export async function signInWith(page: Page, email: string, password: string) {
   await page.goto('/sign-in')

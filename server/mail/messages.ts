@@ -31,7 +31,8 @@ export type BookingFacts = { booked: true; startDate: string; endDate: string } 
 /** A price with its currency, e.g. "£640.00" (Intl, British English). */
 export const money = (amount: number, currency = 'GBP') => new Intl.NumberFormat('en-GB', { style: 'currency', currency }).format(amount)
 
-function signature(w: WorkshopContact): string[] {
+/** How every e-mail to a customer ends: the workshop's name, address, telephone, e-mail and, when registered, VAT number. */
+export function signature(w: WorkshopContact): string[] {
   return [
     w.name,
     ...(w.address ? [w.address] : []),

@@ -8,9 +8,9 @@ import * as s from '../db/schema/index'
 import { AppError, invalid, notFound } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
-import { money } from '../mail/messages'
+import { money, signature } from '../mail/messages'
 import { minorToDecimal, minorToMajor } from '../../shared/domain/currency'
-import { vatFiguresOf, vatInAmount, vatLine, vatNumberLine, vatTermsOf } from '../../shared/domain/vat'
+import { vatFiguresOf, vatInAmount, vatLine, vatTermsOf } from '../../shared/domain/vat'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
@@ -212,8 +212,8 @@ async function sendReceipt(deps: Deps, workshopId: number, paymentId: number) {
     '',
     ...lines,
     '',
-    `— ${w.name}`,
-    ...[vatNumberLine(vat)].filter((l): l is string => !!l),
+    // Signed as the quote e-mail is: name, address, telephone, e-mail, and the VAT number when registered.
+    ...signature({ name: w.name, address: w.address, phone: w.phone, email: w.contactEmail, vat }).map((l, i) => (i === 0 ? `— ${l}` : l)),
   ].join('\n')
   const html = `<div style="font-family:sans-serif;line-height:1.5">${text
     .split('\n')

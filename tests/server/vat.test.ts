@@ -139,6 +139,8 @@ describe('VAT on what the customer gets', () => {
 
   it('when £99.99 in cash pays a quoted order, then its receipt, the order’s money and this week’s VAT on the Money page each show £16.67', async () => {
     await registerForVat()
+    const contact = await putSettings({ address: '14 Wrenfield Street, Bath BA1 1AA', phone: '01632 960 000', contactEmail: 'orders@wrenfield.example' })
+    expect(contact.status, JSON.stringify(contact.body)).toBe(200)
     const q = await sentQuote('Signet re-engraving', 9999)
     const accepted = await sales.post(`/api/quotes/${q.id}/accept`, { version: q.version })
     expect(accepted.status, JSON.stringify(accepted.body)).toBe(200)
@@ -149,7 +151,16 @@ describe('VAT on what the customer gets', () => {
     expect(cash.status, JSON.stringify(cash.body)).toBe(201)
     const receipt = await mailLines('payment-receipt', (m) => m.orderId === orderId)
     expect(receipt).toContain('of which VAT at 20%: £16.67 (£83.32 before VAT)')
-    expect(receipt.at(-1)).toBe('VAT registration no. GB 123 4567 89')
+    // Signed as the quote e-mail is: the workshop's name, address, telephone, e-mail, then its VAT number (it ended with the
+    // name and the number only).
+    const w = await settings()
+    expect(receipt.slice(-5)).toEqual([
+      `— ${w.name}`,
+      '14 Wrenfield Street, Bath BA1 1AA',
+      'Telephone 01632 960 000',
+      'E-mail orders@wrenfield.example',
+      'VAT registration no. GB 123 4567 89',
+    ])
     const money = (await sales.get(`/api/orders/${orderId}/money`)).body
     expect(money).toMatchObject({ priceMinor: 9999, owedMinor: 0, vat: { ratePct: 20, vatNumber: 'GB 123 4567 89', vatMinor: 1667, netMinor: 8332 } })
     const weekAfter = (await owner.get('/api/payments/summary')).body

@@ -35,4 +35,10 @@ describe('MetalLossTable: loss by person', () => {
     const lines = lossCsv('person', [priya], null).split('\r\n')
     expect(lines[1]).toBe('Priya Nair,4,125.874,124.529,1.345,1.1,1.009,0')
   })
+
+  it('when a loss is a whole per cent, then the CSV writes it with its decimal like every other row (1.0, not 1)', () => {
+    // Hand-worked: 50.000 g out, 49.500 g back → 0.500 g lost, 1.0 %; fine 18 ct: 0.375 g.
+    const even: LossRow = { ...priya, label: 'Total', n: 2, issuedG: 50, returnedG: 49.5, lossG: 0.5, lossPct: 1, lossFineG: 0.375 }
+    expect(lossCsv('person', [], even).split('\r\n')[1]).toBe('Total,2,50.000,49.500,0.500,1.0,0.375,0')
+  })
 })

@@ -98,7 +98,16 @@ const csvCell = (v: unknown) => {
 export function lossCsv(first: string, rows: readonly LossRow[], total: LossRow | null): string {
   const head = [first, 'units', 'issued g', 'returned g', 'loss g', 'loss %', 'loss fine g', 'over tolerance']
   const line = (r: LossRow) =>
-    [r.label, r.n, r.issuedG.toFixed(3), r.returnedG.toFixed(3), r.lossG.toFixed(3), r.lossPct ?? '', r.lossFineG.toFixed(3), r.overTolerance]
+    [
+      r.label,
+      r.n,
+      r.issuedG.toFixed(3),
+      r.returnedG.toFixed(3),
+      r.lossG.toFixed(3),
+      r.lossPct === null || r.lossPct === undefined ? '' : r.lossPct.toFixed(1),
+      r.lossFineG.toFixed(3),
+      r.overTolerance,
+    ]
       .map(csvCell)
       .join(',')
   return [head.join(','), ...rows.map(line), ...(total ? [line(total)] : [])].join('\r\n') + '\r\n'

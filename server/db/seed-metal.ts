@@ -29,6 +29,22 @@ const START_G: Record<string, [number, number]> = { silver: [8, 32], gold: [3, 1
 /** Work that takes metal off the piece; the rest (inspection, outside work) does not weigh it out. */
 const METAL_KINDS = new Set(['forging', 'sawing', 'filing', 'soldering', 'drilling', 'setting', 'polishing', 'etching'])
 const HISTORY_DAYS = 31
+/**
+ * What a step usually loses for good, in % of the metal weighed out for it: the dust, fire scale and filings that neither the bench
+ * skin nor the sweeps catch (what they catch comes back as lemel). From memory of bench practice (common practice, no published
+ * source): filing and polishing lose the most, setting and soldering (whose solder adds a little back) the least — all well inside
+ * the usual tolerances of shared/domain/metal.ts.
+ */
+const TYPICAL_LOSS_PCT: Record<string, number> = {
+  forging: 0.3,
+  sawing: 0.4,
+  filing: 0.8,
+  soldering: 0.1,
+  drilling: 0.3,
+  setting: 0.1,
+  polishing: 0.9,
+  etching: 0.6,
+}
 
 /** Its own seeded generator, so the metal is the same on every machine whatever else the demo draws. */
 function rng(seed: number) {
@@ -92,10 +108,11 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
   // Time records of finished work in the last month: each step's metal is weighed out at its first start and back at its last end.
   const since = new Date(now.getTime() - HISTORY_DAYS * 86_400_000).toISOString()
   const records = await tx
-    .select({ r: s.timeRecords, op: s.operations, bag: s.jobBags, userId: s.people.userId })
+    .select({ r: s.timeRecords, op: s.operations, bag: s.jobBags, order: s.orders, userId: s.people.userId })
     .from(s.timeRecords)
     .innerJoin(s.operations, eq(s.operations.id, s.timeRecords.operationId))
     .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
     .innerJoin(s.people, eq(s.people.id, s.timeRecords.personId))
     .where(and(eq(s.jobBags.workshopId, workshopId), isNotNull(s.timeRecords.endedAt), gte(s.timeRecords.startedAt, since)))
     .orderBy(asc(s.timeRecords.startedAt))
@@ -126,12 +143,13 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
     number,
     {
       bag: typeof s.jobBags.$inferSelect
+      order: typeof s.orders.$inferSelect
       steps: Map<number, { op: typeof s.operations.$inferSelect; personId: number; userId: number | null; start: string; end: string }>
     }
   >()
   for (const x of records) {
     if (!METAL_KINDS.has(kindCode.get(x.op.kindId) ?? '') || x.bag.status !== 'complete') continue
-    const b = bags.get(x.bag.id) ?? bags.set(x.bag.id, { bag: x.bag, steps: new Map() }).get(x.bag.id)!
+    const b = bags.get(x.bag.id) ?? bags.set(x.bag.id, { bag: x.bag, order: x.order, steps: new Map() }).get(x.bag.id)!
     const st = b.steps.get(x.op.id)
     if (!st) b.steps.set(x.op.id, { op: x.op, personId: x.r.personId, userId: x.userId, start: iso(x.r.startedAt), end: iso(x.r.endedAt!) })
     else if (iso(x.r.endedAt!) > st.end) st.end = iso(x.r.endedAt!)
@@ -154,7 +172,7 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
     polishing: 0.006,
     etching: 0,
   }
-  for (const { bag, steps } of bags.values()) {
+  for (const { bag, order, steps } of bags.values()) {
     if (startedBefore.has(bag.id)) continue
     const alloy = alloyFor((bag.params as { metal?: string }).metal ?? '')
     if (!alloy) continue
@@ -170,9 +188,9 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
       // The first step takes the sheet or wire with some to spare; later steps take the piece as it came back.
       const issued = i === 0 && !repair ? Math.round(pieceMg * 1.12) : pieceMg
       const tol = tolOf.get(st.op.kindId)!
-      // Most steps lose a fraction of their tolerance; now and then one goes well over it (a lost offcut, a bad sweep).
+      // Most steps lose about what their kind of work usually loses; now and then one goes well over its tolerance (a lost offcut, a bad sweep).
       const over = rand() < 0.06
-      const lossMg = Math.round((issued * tol * (over ? 1.4 + rand() * 1.4 : 0.15 + rand() * 0.8)) / 100)
+      const lossMg = Math.round((issued * (over ? tol * (1.4 + rand() * 1.4) : (TYPICAL_LOSS_PCT[code] ?? 0) * (0.7 + rand() * 0.6))) / 100)
       const scrap = Math.round(issued * (i === 0 && !repair ? Math.max(0.1, scrapOf[code] ?? 0) : (scrapOf[code] ?? 0)) * (0.6 + rand() * 0.8))
       const lemel = Math.round(issued * (lemelOf[code] ?? 0) * (0.6 + rand() * 0.8))
       const piece = issued - lossMg - scrap - lemel
@@ -193,8 +211,9 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
       pieceMg = piece
       Object.assign(lastBack, { at: st.end, weightMg: piece })
     })
-    // Every bag here is of a collected order: its piece, as last weighed back, left the workshop with the customer.
-    if (lastBack.weightMg > 0)
+    // A collected order's piece, as last weighed back, left the workshop with the customer when it was collected; a finished
+    // piece not collected yet is still in the workshop.
+    if (lastBack.weightMg > 0 && order.status === 'collected')
       rows.push({
         workshopId,
         alloyId: alloy.id,
@@ -202,7 +221,7 @@ export async function seedMetal(tx: Trx, o: { workshopId: number; now: Date }) {
         weightMg: lastBack.weightMg,
         jobBagId: bag.id,
         recordedBy: manager!.id,
-        recordedAt: lastBack.at,
+        recordedAt: iso(order.updatedAt),
         reason: 'collected with its order',
       })
   }

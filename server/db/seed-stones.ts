@@ -1,6 +1,6 @@
 // Demo stones: stone lists on the demo's set pieces (some the customer's own) and the stones counted out and back for
 // setting steps already finished; open setting steps plan their minutes from the list.
-import { and, eq, inArray } from 'drizzle-orm'
+import { and, eq, inArray, min } from 'drizzle-orm'
 import type { Trx } from './client'
 import * as s from './schema/index'
 import { caratFromDiameter, roundCarat, stoneListStepMinutes } from '../../shared/domain/stones'
@@ -74,13 +74,18 @@ export async function seedStones(tx: Trx, workshopId: number): Promise<void> {
     if (set.status === 'done' && set.finishedAt) {
       // Counted out when the setting began and back when it finished; a pavé setter takes one spare and brings it back.
       const at = new Date(set.finishedAt).toISOString()
+      const [first] = await tx
+        .select({ at: min(s.timeRecords.startedAt) })
+        .from(s.timeRecords)
+        .where(eq(s.timeRecords.operationId, set.id))
+      const began = first?.at ? new Date(first.at).toISOString() : at
       for (const l of lines) {
         const total = l.count * params.quantity
         const spare = l.role === 'pave' ? 1 : 0
         await tx
           .insert(s.stoneMovements)
           .values([
-            { stoneLineId: l.id, kind: 'issued', count: total + spare, personId: set.plannedPersonId, operationId: set.id, recordedAt: at },
+            { stoneLineId: l.id, kind: 'issued', count: total + spare, personId: set.plannedPersonId, operationId: set.id, recordedAt: began },
             { stoneLineId: l.id, kind: 'set', count: total, personId: set.plannedPersonId, operationId: set.id, recordedAt: at },
             ...(spare
               ? [{ stoneLineId: l.id, kind: 'returned' as const, count: spare, personId: set.plannedPersonId, operationId: set.id, recordedAt: at }]

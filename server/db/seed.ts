@@ -1,4 +1,5 @@
-// The demo workshop (an invented scenario): benches, people, routings, open orders and a history of actual times.
+// The demo workshop (an invented scenario): benches, people, routings, open orders, a history of actual times and, written step by
+// step, its last two working weeks (seed-recent.ts).
 import { count, eq, sql } from 'drizzle-orm'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import type { PieceParams } from '../../shared/schemas/order'
@@ -10,6 +11,7 @@ import { hashPassword } from '../services/users'
 import { seedMetal } from './seed-metal'
 import { seedStones } from './seed-stones'
 import { seedCosting } from './seed-costing'
+import { seedRecentPayments, seedRecentWork, type OrderPick } from './seed-recent'
 import { dayRange, dayjs, expandPattern, MinuteClock, subtract, type Interval } from '../lib/time'
 import { englandWalesBankHolidaysBetween } from '../../shared/domain/bank-holidays'
 
@@ -484,12 +486,15 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       .returning()
 
     let orderNo = 0
-    const makeOrder = async (opts: { due: Date; status: string; created: Date; tIndex: number }) => {
+    /** An order with one job bag: its routing by `tIndex` and the rest drawn, or all of it as picked (drawing nothing). */
+    const makeOrder = async (opts: { due: Date; status: string; created: Date; tIndex?: number; pick?: OrderPick; finished?: boolean }) => {
       orderNo++
-      const t = routings[opts.tIndex % routings.length]!
+      const pick = opts.pick
+      const t = pick ? routings.find((r) => r.row.code === pick.routing)! : routings[opts.tIndex! % routings.length]!
       const choices = PIECES[t.row.code]!
-      const choice = choices[Math.floor(rand() * choices.length)]!
+      const choice = pick ?? choices[Math.floor(rand() * choices.length)]!
       const params = { ...DEFAULT_PARAMS, ...choice.params }
+      const finished = opts.finished ?? opts.status === 'collected'
       // Numbered by the year the order was taken in the workshop's time zone, as the app numbers a new one (not the year it is due).
       const number = `MG${dayjs(opts.created).tz('Europe/London').format('YY')}-${String(orderNo).padStart(4, '0')}`
       const [order] = await tx
@@ -497,12 +502,13 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
         .values({
           workshopId,
           number,
-          customerId: customers[Math.floor(rand() * customers.length)]!.id,
+          customerId: pick ? pick.customerId : customers[Math.floor(rand() * customers.length)]!.id,
           title: choice.piece,
           dueDate: dayStr(opts.due),
-          priority: 1 + Math.floor(rand() * 5),
+          priority: pick ? pick.priority : 1 + Math.floor(rand() * 5),
           status: opts.status,
-          priceQuotedMinor: Math.round(150 + rand() * 2400) * 100,
+          // A picked order is priced from its cost with the rest (seed-costing.ts).
+          priceQuotedMinor: pick ? 0 : Math.round(150 + rand() * 2400) * 100,
           createdAt: opts.created,
         })
         .returning()
@@ -516,7 +522,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
           routingId: t.row.id,
           routingKind: t.row.kind,
           params,
-          status: opts.status === 'collected' ? 'complete' : 'waiting',
+          status: finished ? 'complete' : 'waiting',
           createdAt: opts.created,
         })
         .returning()
@@ -535,7 +541,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
             after: st.after,
             estimateMinutes: st.leadDays > 0 ? 0 : routingStepMinutes(st, t.row, params),
             estimateSource: 'routing',
-            status: opts.status === 'collected' ? 'done' : st.after.length ? 'pending' : 'ready',
+            status: finished ? 'done' : st.after.length ? 'pending' : 'ready',
           })),
         )
         .returning()
@@ -719,6 +725,19 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
         .set({ updatedAt: clock.toDate(Math.max(...done.map((d) => d.finishedAt))) })
         .where(eq(s.orders.id, order.id))
     }
+    // The last two working weeks: job bags finished step by step up to now, booked around the history above.
+    const recentPayments = await seedRecentWork({
+      tx,
+      workshopId,
+      clock,
+      nowMinute,
+      workshopOpen,
+      defaultParams: DEFAULT_PARAMS,
+      busyOf,
+      book,
+      pauseReason,
+      makeOrder,
+    })
     // Open work: 30 orders due over the next four weeks.
     for (let i = 0; i < 30; i++) {
       let due = addDays(now, 5 + Math.floor((i * 23) / 30) + Math.floor(rand() * 4))
@@ -734,6 +753,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
     await seedMetal(tx, { workshopId, now })
     await seedStones(tx, workshopId)
     await seedCosting(tx, workshopId)
+    await seedRecentPayments(tx, { workshopId, recordedBy: users.find((u) => u.role === 'sales')!.id, payments: recentPayments })
   })
   return true
 }

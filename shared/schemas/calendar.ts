@@ -28,6 +28,17 @@ export function publicOrigin(text: string): string | null {
   return `${u.protocol}//${u.host}`
 }
 
+/**
+ * Money rules: the deposit asked on a quote (% of the price), how long a quote stands, and whether metal waits for the deposit.
+ * The settings' Quotes and deposits form checks them on their own, so a stored setting elsewhere never holds its save back.
+ */
+export const workshopMoneyRulesInput = z.object({
+  depositPct: z.number({ error: 'is required' }).int('must be a whole percentage').min(0, 'must be 0 to 100').max(100, 'must be 0 to 100'),
+  quoteValidDays: z.number({ error: 'is required' }).int('must be whole days').min(1, 'must be 1 to 365 days').max(365, 'must be 1 to 365 days'),
+  noMetalBeforeDeposit: z.boolean(),
+})
+export type WorkshopMoneyRulesInput = z.infer<typeof workshopMoneyRulesInput>
+
 export const workshopSettingsInput = z
   .object({
     name,
@@ -59,10 +70,9 @@ export const workshopSettingsInput = z
       .refine((v) => v === '' || publicOrigin(v) !== null, 'must be an http:// or https:// address with no path, such as http://192.168.1.20:8080')
       .transform((v) => (v === '' ? '' : publicOrigin(v)!))
       .optional(),
-    /** Money rules: the deposit asked on a quote (% of the price), how long a quote stands, and whether metal waits for the deposit. */
-    depositPct: z.number().int('must be a whole percentage').min(0, 'must be 0 to 100').max(100, 'must be 0 to 100').optional(),
-    quoteValidDays: z.number().int('must be whole days').min(1, 'must be 1 to 365 days').max(365, 'must be 1 to 365 days').optional(),
-    noMetalBeforeDeposit: z.boolean().optional(),
+    depositPct: workshopMoneyRulesInput.shape.depositPct.optional(),
+    quoteValidDays: workshopMoneyRulesInput.shape.quoteValidDays.optional(),
+    noMetalBeforeDeposit: workshopMoneyRulesInput.shape.noMetalBeforeDeposit.optional(),
     /**
      * VAT: registered or not, the VAT number printed on the customer's documents (letters, digits and spaces, e.g. GB 123 4567 89),
      * and the rate in per cent with at most two decimals (UK standard rate 20). Prices are VAT-inclusive; a registered workshop

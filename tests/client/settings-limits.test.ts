@@ -1,6 +1,8 @@
 // Workshop settings: a figure typed beyond its limits stays as typed and the form says why, nothing is saved — a VAT rate of
 // 120 % used to become 100 % on leaving the field and was saved without a word (every document would have charged VAT at 100 %).
 // The limits are the shared schema's (a rate of 0 to 100 %, a deposit of 0 to 100 %, a quote valid 1 to 365 days).
+// A figure within them is sent when Save is pressed: the browser's own check of a number field, whose steps count from the
+// field's hidden floor, once stopped the form without a word (a deposit of 40 % in steps of 5, a VAT rate of 17.25 %).
 import { afterEach, describe, expect, it, vi } from 'vitest'
 import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
@@ -70,6 +72,15 @@ async function save(test: string) {
   await new Promise((r) => setTimeout(r, 100))
   await flushPromises()
 }
+/** Presses the button, as a user does: a browser checks the form's fields itself before it sends it (unless told not to). */
+async function press(test: string) {
+  const button = document.body.querySelector<HTMLButtonElement>(`[data-test=${test}]`)!
+  expect(button.disabled, `${test} is enabled`).toBe(false)
+  button.click()
+  await flushPromises()
+  await new Promise((r) => setTimeout(r, 100))
+  await flushPromises()
+}
 const errorUnder = (test: string) =>
   document.body.querySelector(`[data-test=${test}]`)?.closest('.el-form-item')?.querySelector('.el-form-item__error')?.textContent?.trim() ?? null
 
@@ -92,5 +103,53 @@ describe('limits in the workshop settings', { timeout: 30_000 }, () => {
     await save('settings-save')
     expect(errorUnder('settings-vat-number')).toBe('Is required when the workshop is registered for VAT')
     expect(api.updateWorkshop).not.toHaveBeenCalled()
+  })
+
+  it('when a VAT rate of 17.25 % is typed and Save is pressed, then it is sent as typed (the browser’s own step check does not stop the form)', async () => {
+    api.updateWorkshop.mockImplementation(async (body: object) => ({ ...api.settings, ...body, version: 2 }))
+    await open()
+    expect((await typeInto('settings-vat-rate', '17.25')).value).toBe('17.25')
+    await press('settings-save')
+    expect(api.updateWorkshop).toHaveBeenCalledTimes(1)
+    expect(api.updateWorkshop.mock.calls[0]![0]).toMatchObject({ vatRatePct: 17.25 })
+  })
+
+  it('when a deposit of 120 % and a quote valid 400 days are typed and Save is pressed, then both stay as typed, each is refused under its field, and nothing is sent', async () => {
+    await open()
+    expect((await typeInto('settings-deposit-pct', '120')).value).toBe('120')
+    expect((await typeInto('settings-quote-days', '400')).value).toBe('400')
+    await press('settings-money-save')
+    expect(errorUnder('settings-deposit-pct')).toBe('Must be 0 to 100')
+    expect(errorUnder('settings-quote-days')).toBe('Must be 1 to 365 days')
+    expect(api.updateWorkshop).not.toHaveBeenCalled()
+  })
+
+  it('when the deposit is emptied and Save is pressed, then the field says it is required and nothing is sent', async () => {
+    await open()
+    await typeInto('settings-deposit-pct', '')
+    await press('settings-money-save')
+    expect(errorUnder('settings-deposit-pct')).toBe('Is required')
+    expect(api.updateWorkshop).not.toHaveBeenCalled()
+  })
+
+  it('when a deposit of 40 % and a quote valid 21 days are typed and Save is pressed, then the rules are sent with what every change carries and nothing else', async () => {
+    api.updateWorkshop.mockImplementation(async (body: object) => ({ ...api.settings, ...body, version: 2 }))
+    await open()
+    await typeInto('settings-deposit-pct', '40')
+    await typeInto('settings-quote-days', '21')
+    document.body.querySelector<HTMLInputElement>('[data-test=settings-no-metal] input')!.click()
+    await flushPromises()
+    await press('settings-money-save')
+    expect(api.updateWorkshop).toHaveBeenCalledTimes(1)
+    expect(api.updateWorkshop.mock.calls[0]![0]).toEqual({
+      name: 'Wrenfield Street Workshop',
+      timeZone: 'Europe/London',
+      weekPattern: [{ weekday: 1, start: '08:30', end: '17:00' }],
+      planningLoad: 0.85,
+      version: 1,
+      depositPct: 40,
+      quoteValidDays: 21,
+      noMetalBeforeDeposit: true,
+    })
   })
 })

@@ -174,6 +174,29 @@ describe('quotes and deposits', () => {
     expect(bad.body.fields).toHaveProperty('amountMinor')
   })
 
+  it('when cash is recorded as taken at 10:15 after a card payment at 10:15:40, then the order, the quote and the CSV list the card first; cash taken at 10:14 comes before both', async () => {
+    const q = await sentQuote('Signet ring')
+    await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)
+    const orderId = (await sales.get(`/api/quotes/${q.id}`)).body.orderId
+    // The provider times a payment to the second; the record dialog offers the minute the money is taken (its seconds are 00).
+    await t.db.update(s.payments).set({ receivedAt: '2026-03-02T10:15:40Z' }).where(eq(s.payments.quoteId, q.id))
+    const notes = ['after the card, same minute', 'the minute before the card']
+    for (const [note, receivedAt] of [
+      [notes[0]!, '2026-03-02T10:15:00Z'],
+      [notes[1]!, '2026-03-02T10:14:00Z'],
+    ])
+      expect((await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', amountMinor: 1000, receivedAt, note })).status).toBe(201)
+    const listed = (rows: { method: string; note: string }[]) => rows.map((p) => (p.method === 'card' ? 'card' : p.note))
+    const expected = [notes[1], 'card', notes[0]]
+    expect(listed((await sales.get(`/api/orders/${orderId}/money`)).body.payments)).toEqual(expected)
+    expect(listed((await sales.get(`/api/quotes/${q.id}`)).body.payments)).toEqual(expected)
+    const csv = (await owner.get('/api/payments/export.csv')).text.split(/\r?\n/)
+    const at = (needle: string) => csv.findIndex((l) => l.includes(needle))
+    const card = csv.findIndex((l) => l.startsWith('2026-03-02T10:15:40Z,') || l.startsWith('2026-03-02T10:15:40+00:00,'))
+    expect(card).toBeGreaterThan(0)
+    expect([at(notes[1]!), card, at(notes[0]!)]).toEqual([card - 1, card, card + 1])
+  })
+
   it('when the owner refunds part of one of two payments, then the refunds add up per payment and a refund beyond what is left is refused naming the amount', async () => {
     const q = await sentQuote('Chain')
     await fake.pay(sessionOf(q.links[0].url), TEST_CARDS.paid)

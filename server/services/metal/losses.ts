@@ -21,28 +21,33 @@ import { workshopZone } from '../estimates'
 import { joinedRows, iso, over, atBench } from './common'
 import type { Joined } from './common'
 
-/** Figures from ledger rows (corrections included as their signed differences). */
+/**
+ * Figures from ledger rows (corrections included as their signed differences). The fine metal is summed exactly, in thousandths
+ * of a milligram (mg × parts per thousand, whole numbers), and rounded to the milligram once: a total of the same rows is the
+ * same whatever order they come in (summed as fractions of a milligram, 103.5 mg read 103 or 104 mg by the order of the rows).
+ */
 export function lossFigures(rows: readonly Pick<Joined, 'm' | 'fineness'>[]): LossFigures {
   let issued = 0,
     fromCustomer = 0,
     piece = 0,
     scrap = 0,
     lemel = 0,
-    fine = 0
+    fineMilliMg = 0
   for (const { m, fineness } of rows) {
     if (m.kind === 'issued') {
       issued += m.weightMg
       if (m.source === 'customer') fromCustomer += m.weightMg
-      fine += (m.weightMg * fineness) / 1000
+      fineMilliMg += m.weightMg * fineness
     } else if (m.kind === 'returned') {
       if (m.form === 'piece') piece += m.weightMg
       else if (m.form === 'scrap') scrap += m.weightMg
       else lemel += m.weightMg
-      fine -= (m.weightMg * fineness) / 1000
+      fineMilliMg -= m.weightMg * fineness
     }
   }
   const l = metalLoss(issued, { pieceMg: piece, scrapMg: scrap, lemelMg: lemel })
-  const lossFineMg = Math.round(fine)
+  // Halves up, as before; a whole number over 1000 is exact at the half (103500 / 1000 = 103.5).
+  const lossFineMg = Math.round(fineMilliMg / 1000)
   return {
     issuedMg: issued,
     fromCustomerMg: fromCustomer,

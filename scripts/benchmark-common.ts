@@ -7,6 +7,7 @@ import type { Dayjs } from '../server/lib/time'
 import { DEMO_PASSWORD } from '../server/db/seed'
 import { startServer } from '../server/index'
 import { scratchDatabase } from './scratch-db'
+import { storedVatTerms } from '../shared/domain/vat'
 
 export interface HttpSession {
   cookie: string
@@ -100,7 +101,15 @@ export async function addPlannedLoad(url: string, target: number, from: Dayjs) {
     i++
     const [o] = await db
       .insert(schema.orders)
-      .values({ workshopId: w!.id, number: `BB-${i}`, customerId: cust!.id, title: `Bench load ${i}`, dueDate: to.format('YYYY-MM-DD'), priority: 3 })
+      .values({
+        workshopId: w!.id,
+        number: `BB-${i}`,
+        customerId: cust!.id,
+        title: `Bench load ${i}`,
+        dueDate: to.format('YYYY-MM-DD'),
+        priority: 3,
+        ...storedVatTerms(w!),
+      })
       .returning()
     const [b] = await db
       .insert(schema.jobBags)

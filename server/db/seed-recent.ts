@@ -5,6 +5,7 @@
 // lands on their other work; a job that does not fit before now is tried a working day earlier.
 import { and, eq, inArray } from 'drizzle-orm'
 import { routingStepMinutes } from '../../shared/domain/estimate'
+import { paymentVat, storedVatTerms, type PaidWithVat } from '../../shared/domain/vat'
 import type { PieceParams } from '../../shared/schemas/order'
 import { dayjs, type Interval, type MinuteClock } from '../lib/time'
 import type { Trx } from './client'
@@ -471,17 +472,27 @@ export async function seedRecentPayments(tx: Trx, o: { workshopId: number; recor
         o.payments.map((p) => p.orderId),
       ),
     )
+  // Each payment under the workshop's VAT terms when it was taken, the balance carrying the rest of the price's VAT, as
+  // recording it in the app does (`paymentVat`).
+  const earlier = new Map<number, PaidWithVat[]>()
   await tx.insert(s.payments).values(
     o.payments.map((p) => {
       const price = orders.find((x) => x.id === p.orderId)!.priceQuotedMinor
       const deposit = Math.round((price * w!.depositPct) / 100)
+      const amountMinor = p.purpose === 'deposit' ? deposit : price - deposit
+      const terms = storedVatTerms(w!)
+      const before = earlier.get(p.orderId) ?? []
+      const vatMinor = paymentVat(amountMinor, terms, { priceMinor: price, earlier: before })
+      earlier.set(p.orderId, [...before, { amountMinor, vatMinor, ...terms }])
       return {
         workshopId: o.workshopId,
         orderId: p.orderId,
         method: p.method,
         purpose: p.purpose,
-        amountMinor: p.purpose === 'deposit' ? deposit : price - deposit,
+        amountMinor,
         currency: w!.currency,
+        ...terms,
+        vatMinor,
         note: p.note,
         recordedBy: o.recordedBy,
         receivedAt: p.at.toISOString(),

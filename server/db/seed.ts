@@ -14,6 +14,7 @@ import { seedCosting } from './seed-costing'
 import { seedRecentPayments, seedRecentWork, type OrderPick } from './seed-recent'
 import { dayRange, dayjs, expandPattern, MinuteClock, subtract, type Interval } from '../lib/time'
 import { englandWalesBankHolidaysBetween } from '../../shared/domain/bank-holidays'
+import { storedVatTerms } from '../../shared/domain/vat'
 
 export const DEMO_PASSWORD = 'millgrain-demo'
 export const DEMO_USERS = [
@@ -509,6 +510,8 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
           status: opts.status,
           // A picked order is priced from its cost with the rest (seed-costing.ts).
           priceQuotedMinor: pick ? 0 : Math.round(150 + rand() * 2400) * 100,
+          // Under the workshop's VAT terms, as an order taken through the app is.
+          ...storedVatTerms(w!),
           createdAt: opts.created,
         })
         .returning()

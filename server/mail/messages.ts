@@ -1,4 +1,4 @@
-// The workshop's e-mail texts: promise confirmation, a quote, ready for collection, and the managers' daily at-risk digest.
+// The workshop's e-mail texts: promise confirmation, a quote, a balance to pay, ready for collection, and the managers' daily at-risk digest.
 import { minorToMajor } from '../../shared/domain/currency'
 import { vatLine, vatNumberLine, type VatTerms } from '../../shared/domain/vat'
 import { dayjs } from '../lib/time'
@@ -123,6 +123,37 @@ export function quoteOffer(o: {
     .map((l) => (l.startsWith('Pay the deposit') && o.depositUrl ? `<p><a href="${esc(o.depositUrl)}">Pay the deposit</a></p>` : l ? `<p>${esc(l)}</p>` : ''))
     .join('')}</div>`
   return { subject: `${o.workshop.name}: quote ${o.quoteNumber} for "${o.title}"`, text, html }
+}
+
+/**
+ * The daily reminder of a balance owed on a piece ready to collect: the balance with the VAT in it as the payment that settles
+ * the order will carry it (`balanceVatMinor`, under the terms the order was made under), signed as every customer e-mail is.
+ */
+export function balanceReminder(o: {
+  workshop: WorkshopContact
+  customerName: string
+  orderNumber: string
+  currency: string
+  balanceMinor: number
+  balanceVatMinor: number
+}): MailContent {
+  const m = (minor: number) => money(minorToMajor(minor, o.currency), o.currency)
+  const vat = o.workshop.vat ? vatLine(o.balanceMinor, o.workshop.vat, m, o.balanceVatMinor) : null
+  const text = [
+    `Dear ${o.customerName},`,
+    '',
+    `Your order ${o.orderNumber} is ready for collection.`,
+    '',
+    `Balance to pay: ${m(o.balanceMinor)}`,
+    ...(vat ? [vat] : []),
+    '',
+    ...signature(o.workshop).map((l, i) => (i === 0 ? `— ${l}` : l)),
+  ].join('\n')
+  const html = `<div style="font-family:sans-serif;line-height:1.5">${text
+    .split('\n')
+    .map((l) => (l ? `<p>${esc(l)}</p>` : ''))
+    .join('')}</div>`
+  return { subject: `${o.workshop.name}: order ${o.orderNumber} is ready — balance to pay`, text, html }
 }
 
 export function readyForCollection(o: { workshop: WorkshopContact; customerName: string; orderNumber: string; title: string }): MailContent {

@@ -10,6 +10,7 @@ import type {
   WorkshopSettingsRecord,
   ClosureRemoved,
 } from '../../shared/schemas/calendar'
+import { vatNumberProblem } from '../../shared/schemas/calendar'
 import { englandWalesBankHolidays } from '../../shared/domain/bank-holidays'
 import type { Db } from '../db/client'
 import { closures, workshops } from '../db/schema/index'
@@ -53,8 +54,10 @@ export async function updateSettings({ db, realtime }: Deps, actor: Actor, input
         .where(and(eq(workshops.id, actor.workshopId), eq(workshops.version, version)))
         .returning()
       if (!r.length) throw staleVersion('The workshop settings')
-      // The customer's documents must carry the number of a registered workshop (the change rolls back otherwise).
-      if (r[0]!.vatRegistered && !r[0]!.vatNumber) throw invalid('vatNumber', 'is required when the workshop is registered for VAT')
+      // The customer's documents must carry a registered workshop's number, in a UK VAT number's shape — checked on the row as
+      // saved, so a change leaving out the number or the registration is checked too (the change rolls back otherwise).
+      const vatProblem = r[0]!.vatRegistered ? vatNumberProblem(r[0]!.vatNumber) : null
+      if (vatProblem) throw invalid('vatNumber', vatProblem)
       await audit(tx, actor, 'update', 'workshop', actor.workshopId, { ...values, ...(vatRatePct === undefined ? {} : { vatRatePct }) })
     }),
   )

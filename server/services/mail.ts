@@ -144,7 +144,8 @@ async function orderFacts(db: Db, workshopId: number, orderId: number) {
         email: s.workshops.contactEmail,
         currency: s.workshops.currency,
       },
-      vat: { vatRegistered: s.workshops.vatRegistered, vatNumber: s.workshops.vatNumber, vatRateBasisPoints: s.workshops.vatRateBasisPoints },
+      // The VAT terms the order was made under, not the workshop's as they are now: its e-mails say what it was sold under.
+      vat: { vatRegistered: s.orders.vatRegistered, vatNumber: s.orders.vatNumber, vatRateBasisPoints: s.orders.vatRateBasisPoints },
     })
     .from(s.orders)
     .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))

@@ -1,6 +1,6 @@
 // An order's money terms (price and deposit, from its accepted quote or its own price) and what is paid against them: read by
 // the payments and by the deposit hold, which the planning problem uses (so this module stays clear of payments' imports).
-import { vatTermsOf } from '../../shared/domain/vat'
+import { storedVatTerms, vatTermsOf } from '../../shared/domain/vat'
 import { and, desc, eq, inArray, sql } from 'drizzle-orm'
 import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
@@ -14,7 +14,10 @@ export async function workshopOf(db: Tx, workshopId: number) {
   return w
 }
 
-/** An order's price and deposit in minor units: its accepted quote's, else the order's quoted price and the workshop's deposit %. */
+/**
+ * An order's price and deposit in minor units: its accepted quote's, else the order's quoted price and the workshop's deposit %;
+ * with the VAT terms frozen with that price (the quote's, else the order's), never the workshop's as they are now.
+ */
 export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
   const [o] = await db
     .select()
@@ -31,7 +34,8 @@ export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
   // The order's own price is stored in minor units of the workshop's currency already: no conversion.
   const priceMinor = q ? q.priceMinor : o.priceQuotedMinor
   const depositMinor = q ? q.depositMinor : Math.round((priceMinor * w.depositPct) / 100)
-  return { order: o, quote: q ?? null, currency: q?.currency ?? w.currency, priceMinor, depositMinor, vat: vatTermsOf(w) }
+  const vatStored = storedVatTerms(q ?? o)
+  return { order: o, quote: q ?? null, currency: q?.currency ?? w.currency, priceMinor, depositMinor, vatStored, vat: vatTermsOf(vatStored) }
 }
 
 /** Paid counts every payment that is not waiting to be refunded (refunds are negative and lower it). */

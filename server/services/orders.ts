@@ -3,6 +3,7 @@ import { and, asc, count, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { ListQuery, Page } from '../../shared/schemas/common'
 import { orderDateProblems, type OrderInput, type OrderSummary, type OrderUpdate } from '../../shared/schemas/order'
 import { routingStepMinutes } from '../../shared/domain/estimate'
+import { storedVatTerms, type StoredVatTerms } from '../../shared/domain/vat'
 import type { Db, Trx } from '../db/client'
 import { auditLog, customers, jobBags, operations, orders, routingSteps, routings, workshops } from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
@@ -150,9 +151,16 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
 
 /**
  * Takes an order. `within`, when given, runs inside the same transaction after the job bags are written (taking an order
- * from a promise books its steps there), and its answer is returned beside the order.
+ * from a promise books its steps there), and its answer is returned beside the order. The order keeps the VAT terms it is made
+ * under: `vat` when given (an order made from a quote takes the quote's), else the workshop's as they are now.
  */
-export async function takeOrder<T>({ db, realtime }: Deps, actor: Actor, input: OrderInput, within: (tx: Trx, orderId: number) => Promise<T>) {
+export async function takeOrder<T>(
+  { db, realtime }: Deps,
+  actor: Actor,
+  input: OrderInput,
+  within: (tx: Trx, orderId: number) => Promise<T>,
+  vat?: StoredVatTerms,
+) {
   const id = await db.transaction(async (tx) => {
     const [c] = await tx
       .select({ id: customers.id })
@@ -165,9 +173,10 @@ export async function takeOrder<T>({ db, realtime }: Deps, actor: Actor, input: 
     const [{ n } = { n: 0 }] = await tx.select({ n: count() }).from(orders).where(eq(orders.workshopId, actor.workshopId))
     const number = `MG${year}-${String(n + 1).padStart(4, '0')}`
     const { pieces, ...values } = input
+    const [w] = await tx.select().from(workshops).where(eq(workshops.id, actor.workshopId))
     const [o] = await tx
       .insert(orders)
-      .values({ workshopId: actor.workshopId, number, ...values })
+      .values({ workshopId: actor.workshopId, number, ...values, ...storedVatTerms(vat ?? w!) })
       .returning()
     for (const [i, p] of pieces.entries()) await addJobBag(tx, actor.workshopId, o!.id, number, i, p)
     await audit(tx, actor, 'create', 'order', o!.id, { number, pieces: pieces.length })

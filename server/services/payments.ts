@@ -1,6 +1,6 @@
 // Money for orders and quotes: payment links through the provider, card payments booked only from its signed webhook (once per
 // event id and once per payment id), cash and transfers by hand, refunds, what each order has paid and owes, the owner's summary.
-import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm'
+import { and, asc, eq, inArray, isNull, or, sql } from 'drizzle-orm'
 import type Stripe from 'stripe'
 import type { ManualPaymentInput, PaymentLinkInput, RefundInput } from '../../shared/schemas/payment'
 import type { Db, Trx } from '../db/client'
@@ -10,12 +10,12 @@ import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { money, signature } from '../mail/messages'
 import { minorToDecimal, minorToMajor } from '../../shared/domain/currency'
-import { vatFiguresOf, vatInAmount, vatLine, vatTermsOf } from '../../shared/domain/vat'
+import { paymentVat, refundVat, storedVatTerms, vatFiguresOf, vatLine, vatTermsOf, type StoredVatTerms } from '../../shared/domain/vat'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
 import { orderTerms, paidOf, workshopOf } from './order-terms'
-import { bookQuoteOrder, quoteOrderInput, quoteRoom } from './quote-order'
+import { bookQuoteOrder, quoteOrderInput, quoteRoom, quoteVatAtAcceptance } from './quote-order'
 import { lockLivePlan } from '../planning/live-plan'
 
 type Tx = Db | Trx
@@ -41,6 +41,10 @@ const paymentCols = {
   recordedByName: s.users.name,
   receivedAt: s.payments.receivedAt,
   createdAt: s.payments.createdAt,
+  vatRegistered: s.payments.vatRegistered,
+  vatNumber: s.payments.vatNumber,
+  vatRateBasisPoints: s.payments.vatRateBasisPoints,
+  vatMinor: s.payments.vatMinor,
 }
 /** What has been refunded against each payment (refunds name their payment in refund_of; they are negative). */
 const refundedCol = sql<number>`(select coalesce(-sum(r.amount_minor), 0) from payments r where r.refund_of = ${s.payments.id})::int`.as('refunded_minor')
@@ -51,15 +55,78 @@ const refundedCol = sql<number>`(select coalesce(-sum(r.amount_minor), 0) from p
  * after it, not before (10:15:00 is only the minute the hand gave).
  */
 const inOrderPaid = [asc(sql`date_trunc('minute', ${s.payments.receivedAt})`), asc(s.payments.id)]
+/** The VAT a payment's receipt states, from the terms and VAT stored with it: null when it was taken without VAT. */
+const paymentVatFigures = (p: StoredVatTerms & { vatMinor: number }) =>
+  p.vatRegistered ? { ratePct: p.vatRateBasisPoints / 100, vatNumber: p.vatNumber, vatMinor: p.vatMinor } : null
 
 export async function listPayments(db: Tx, where: ReturnType<typeof and>) {
-  return db
+  const rows = await db
     .select({ ...paymentCols, refundedMinor: refundedCol })
     .from(s.payments)
     .leftJoin(s.users, eq(s.users.id, s.payments.recordedBy))
     .where(where)
     .orderBy(...inOrderPaid)
+  return rows.map(({ vatRegistered, vatNumber, vatRateBasisPoints, vatMinor, ...p }) => ({
+    ...p,
+    vat: paymentVatFigures({ vatRegistered, vatNumber, vatRateBasisPoints, vatMinor }),
+  }))
 }
+
+/**
+ * What a new payment's VAT is reckoned against: the order's price (before there is an order, the quote's) and the payments and
+ * refunds already on it — on the order, or on its quote before the order took them over — less those kept to be refunded.
+ */
+async function paidSoFar(tx: Tx, workshopId: number, at: { orderId: number | null; quoteId: number | null }) {
+  let priceMinor = 0
+  const quoteIds = at.quoteId === null ? [] : [at.quoteId]
+  if (at.orderId !== null) {
+    const t = await orderTerms(tx, workshopId, at.orderId)
+    priceMinor = t.priceMinor
+    if (t.quote) quoteIds.push(t.quote.id)
+  } else if (at.quoteId !== null) {
+    const [q] = await tx.select({ priceMinor: s.quotes.priceMinor }).from(s.quotes).where(eq(s.quotes.id, at.quoteId))
+    priceMinor = q?.priceMinor ?? 0
+  }
+  const mine = or(at.orderId === null ? undefined : eq(s.payments.orderId, at.orderId), quoteIds.length ? inArray(s.payments.quoteId, quoteIds) : undefined)
+  const earlier = await tx
+    .select({
+      amountMinor: s.payments.amountMinor,
+      vatMinor: s.payments.vatMinor,
+      vatRegistered: s.payments.vatRegistered,
+      vatNumber: s.payments.vatNumber,
+      vatRateBasisPoints: s.payments.vatRateBasisPoints,
+    })
+    .from(s.payments)
+    .where(and(eq(s.payments.workshopId, workshopId), eq(s.payments.toRefund, false), mine))
+    .orderBy(asc(s.payments.id))
+  return { priceMinor, earlier }
+}
+
+/**
+ * The VAT terms and VAT a new payment is stored with: the workshop's terms as they are now (the day it is recorded is its tax
+ * point), and its VAT by `paymentVat` against what is paid so far, so the one that settles the order carries the rest. A payment
+ * kept to be refunded counts towards nothing: the VAT of its own amount. The caller holds the order's (or the quote's) row lock,
+ * so two payments at once cannot both take the rest.
+ */
+async function vatOfNewPayment(tx: Trx, workshopId: number, at: { orderId: number | null; quoteId: number | null }, amountMinor: number, toRefund: boolean) {
+  const terms = storedVatTerms(await workshopOf(tx, workshopId))
+  if (toRefund || (at.orderId === null && at.quoteId === null)) return { ...terms, vatMinor: paymentVat(amountMinor, terms, { priceMinor: 0, earlier: [] }) }
+  return { ...terms, vatMinor: paymentVat(amountMinor, terms, await paidSoFar(tx, workshopId, at)) }
+}
+
+/**
+ * The balance still owed on an order and the VAT in it, under the terms frozen with its price (the quote's, or the order's): as
+ * the payment that settles it will carry it when those terms are still in force — the rest of the price's VAT.
+ */
+export async function balanceWithVat(db: Tx, workshopId: number, orderId: number) {
+  const t = await orderTerms(db, workshopId, orderId)
+  const so = await paidSoFar(db, workshopId, { orderId, quoteId: t.quote?.id ?? null })
+  const balanceMinor = Math.max(0, t.priceMinor - so.earlier.reduce((n, p) => n + p.amountMinor, 0))
+  return { currency: t.currency, balanceMinor, vatMinor: paymentVat(balanceMinor, t.vatStored, so), terms: t.vatStored }
+}
+
+/** Holds an order's row until the transaction ends: payments on one order are recorded one at a time. */
+const lockOrder = (tx: Trx, orderId: number) => tx.execute(sql`select id from orders where id = ${orderId} for update`)
 
 const linkCols = {
   id: s.paymentLinks.id,
@@ -206,10 +273,13 @@ async function sendReceipt(deps: Deps, workshopId: number, paymentId: number) {
   const amount = money(minorToMajor(Math.abs(p.amountMinor), p.currency), p.currency)
   const refund = p.amountMinor < 0
   const left = o ? (await orderMoney(deps.db, workshopId, o.id)).owedMinor : null
-  const vat = vatTermsOf(w)
+  // The terms and VAT stored with the payment when it was recorded, whatever the workshop's settings are now.
+  const vat = vatTermsOf(p)
   const lines = [
     `${refund ? 'Refunded' : 'Received'}: ${amount} (${p.method === 'card' ? 'card' : p.method === 'cash' ? 'cash' : 'bank transfer'}) on ${dayjs(p.receivedAt).tz(w.timeZone).format('D MMMM YYYY')}`,
-    ...[vatLine(Math.abs(p.amountMinor), vat, (minor) => money(minorToMajor(minor, p.currency), p.currency))].filter((l): l is string => !!l),
+    ...[vatLine(Math.abs(p.amountMinor), vat, (minor) => money(minorToMajor(minor, p.currency), p.currency), Math.abs(p.vatMinor))].filter(
+      (l): l is string => !!l,
+    ),
     ...(left !== null ? [`Still to pay on ${what}: ${money(minorToMajor(left, p.currency), p.currency)}`] : []),
   ]
   const text = [
@@ -281,6 +351,9 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
     const withdrawn = q?.status === 'withdrawn'
     const lapsed = lapsedQuote(q)
     const orderId = newOrderId ?? link.orderId ?? q?.orderId ?? null
+    if (orderId !== null && newOrderId === null) await lockOrder(tx, orderId)
+    const amountMinor = session.amount_total ?? link.amountMinor
+    const vat = await vatOfNewPayment(tx, link.workshopId, { orderId, quoteId: link.quoteId }, amountMinor, withdrawn || lapsed)
     const [p] = await tx
       .insert(s.payments)
       .values({
@@ -290,8 +363,9 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
         paymentLinkId: link.id,
         method: 'card',
         purpose: link.purpose,
-        amountMinor: session.amount_total ?? link.amountMinor,
+        amountMinor,
         currency: (session.currency ?? link.currency).toUpperCase(),
+        ...vat,
         providerRef,
         toRefund: withdrawn || lapsed,
         note: withdrawn ? 'paid after the quote was withdrawn' : lapsed ? 'paid after the quote lapsed' : '',
@@ -306,7 +380,13 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
     if (q && !withdrawn && !lapsed && q.status !== 'accepted') {
       const [u] = await tx
         .update(s.quotes)
-        .set({ status: 'accepted', acceptedAt: new Date().toISOString(), orderId, version: sql`${s.quotes.version} + 1` })
+        .set({
+          status: 'accepted',
+          acceptedAt: new Date().toISOString(),
+          orderId,
+          ...quoteVatAtAcceptance(q, await workshopOf(tx, link.workshopId)),
+          version: sql`${s.quotes.version} + 1`,
+        })
         .where(eq(s.quotes.id, q.id))
         .returning()
       quoteChanged = { id: u!.id, version: u!.version, status: u!.status }
@@ -333,13 +413,19 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
     if (needsOrder) {
       const input = quoteOrderInput(quote)
       const room = await quoteRoom(deps, actor, input)
-      const { order, extra } = await takeOrder(deps, actor, input, async (tx, orderId) => {
-        // The live plan's lock before the quote's row lock, as every change to the live plan takes them.
-        await lockLivePlan(tx, link.workshopId)
-        const b = await book(tx, orderId)
-        // The payment is on the order now: its deposit is in when it covers it. A clash only leaves it unbooked; the money stands.
-        return { ...b, booking: await bookQuoteOrder(tx, actor, orderId, room) }
-      })
+      const { order, extra } = await takeOrder(
+        deps,
+        actor,
+        input,
+        async (tx, orderId) => {
+          // The live plan's lock before the quote's row lock, as every change to the live plan takes them.
+          await lockLivePlan(tx, link.workshopId)
+          const b = await book(tx, orderId)
+          // The payment is on the order now: its deposit is in when it covers it. A clash only leaves it unbooked; the money stands.
+          return { ...b, booking: await bookQuoteOrder(tx, actor, orderId, room) }
+        },
+        quoteVatAtAcceptance(quote, await workshopOf(deps.db, link.workshopId)),
+      )
       booked = extra
       if (extra.booking.booked) planned = order.jobBags[0]?.operations[0]?.id ?? null
     } else booked = await deps.db.transaction((tx) => book(tx, null))
@@ -359,6 +445,8 @@ export async function handleWebhook(deps: Deps, raw: Buffer, signature: string |
 export async function recordManual(deps: Deps, actor: Actor, orderId: number, input: ManualPaymentInput) {
   const m = await orderTerms(deps.db, actor.workshopId, orderId)
   const p = await deps.db.transaction(async (tx) => {
+    await lockOrder(tx, orderId)
+    const vat = await vatOfNewPayment(tx, actor.workshopId, { orderId, quoteId: m.quote?.id ?? null }, input.amountMinor, false)
     const [p] = await tx
       .insert(s.payments)
       .values({
@@ -369,6 +457,7 @@ export async function recordManual(deps: Deps, actor: Actor, orderId: number, in
         purpose: input.purpose,
         amountMinor: input.amountMinor,
         currency: m.currency,
+        ...vat,
         note: input.note,
         recordedBy: actor.userId,
         receivedAt: input.receivedAt ? new Date(input.receivedAt).toISOString() : new Date().toISOString(),
@@ -395,10 +484,12 @@ export async function refund(deps: Deps, actor: Actor, paymentId: number, input:
       .for('update')
     if (!orig) throw notFound('Payment')
     if (orig.amountMinor <= 0) throw invalid('paymentId', 'is a refund itself')
-    const [{ done } = { done: 0 }] = await tx
-      .select({ done: sql<number>`coalesce(-sum(${s.payments.amountMinor}), 0)::int` })
+    if (orig.orderId !== null) await lockOrder(tx, orig.orderId)
+    const earlierRefunds = await tx
+      .select({ amountMinor: s.payments.amountMinor, vatMinor: s.payments.vatMinor })
       .from(s.payments)
       .where(eq(s.payments.refundOf, orig.id))
+    const done = -earlierRefunds.reduce((t, r) => t + r.amountMinor, 0)
     const left = orig.amountMinor - done
     const amount = input.amountMinor ?? left
     if (left <= 0) throw invalid('amountMinor', 'this payment is already refunded in full')
@@ -424,6 +515,9 @@ export async function refund(deps: Deps, actor: Actor, paymentId: number, input:
         purpose: 'refund',
         amountMinor: -amount,
         currency: orig.currency,
+        // It gives back VAT under its payment's terms, whatever the workshop's are now.
+        ...storedVatTerms(orig),
+        vatMinor: refundVat(-amount, orig, earlierRefunds),
         providerRef,
         toRefund: orig.toRefund,
         refundOf: orig.id,
@@ -467,23 +561,32 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
   const at = (k: string) => weeks.get(k) ?? weeks.set(k, { week: k, receivedMinor: 0, refundedMinor: 0, owedMinor: 0 }).get(k)!
   // This week's figures whatever range is asked for: the owner's card says what came in this week.
   const thisWeek = { week: isoWeek(dayjs().tz(w.timeZone)), receivedMinor: 0, refundedMinor: 0, owedMinor: 0 }
-  // VAT in what came in, payment by payment (as each receipt states it), refunds taking theirs back.
-  const vat = vatTermsOf(w)
+  // VAT in what came in, payment by payment as each receipt states it (the VAT stored with it, under the terms it was taken
+  // under), refunds taking theirs back; with the rates and VAT numbers those payments were taken under.
   const vatByWeek = new Map<string, number>()
+  const rates = new Set<number>()
+  const numbers = new Set<string>()
   let vatThisWeek = 0
   for (const p of await db
     .select()
     .from(s.payments)
-    .where(and(eq(s.payments.workshopId, workshopId), eq(s.payments.toRefund, false)))) {
+    .where(and(eq(s.payments.workshopId, workshopId), eq(s.payments.toRefund, false)))
+    .orderBy(asc(s.payments.receivedAt), asc(s.payments.id))) {
     const d = dayjs(p.receivedAt).tz(w.timeZone)
-    const pVat = vatInAmount(p.amountMinor, vat.vatRatePct)
-    if (isoWeek(d) === thisWeek.week) {
+    const pVat = p.vatRegistered ? p.vatMinor : 0
+    const thisWeekToo = isoWeek(d) === thisWeek.week
+    if (thisWeekToo) {
       if (p.amountMinor >= 0) thisWeek.receivedMinor += p.amountMinor
       else thisWeek.refundedMinor -= p.amountMinor
       vatThisWeek += pVat
     }
     const day = d.format('YYYY-MM-DD')
-    if (day < from || day > to) continue
+    const inRange = day >= from && day <= to
+    if (p.vatRegistered && (thisWeekToo || inRange)) {
+      rates.add(p.vatRateBasisPoints)
+      if (p.vatNumber) numbers.add(p.vatNumber)
+    }
+    if (!inRange) continue
     vatByWeek.set(isoWeek(d), (vatByWeek.get(isoWeek(d)) ?? 0) + pVat)
     if (p.amountMinor >= 0) at(isoWeek(d)).receivedMinor += p.amountMinor
     else at(isoWeek(d)).refundedMinor -= p.amountMinor
@@ -531,14 +634,17 @@ export async function summary(db: Db, workshopId: number, q: { from?: string; to
     owedMinor,
     owedInWeeksMinor,
     depositsHeldMinor,
-    vat: vat.vatRegistered
-      ? {
-          ratePct: vat.vatRatePct,
-          vatNumber: vat.vatNumber,
-          thisWeekMinor: vatThisWeek,
-          weeks: [...weeks.keys()].sort().map((week) => ({ week, vatMinor: vatByWeek.get(week) ?? 0 })),
-        }
-      : null,
+    // Shown while the workshop is registered (its rate and number when nothing shown was taken with VAT yet), and while money
+    // shown was taken with VAT, whatever the settings are now.
+    vat:
+      w.vatRegistered || rates.size
+        ? {
+            ratesPct: (rates.size ? [...rates] : [w.vatRateBasisPoints]).sort((a, b) => a - b).map((bp) => bp / 100),
+            vatNumbers: numbers.size ? [...numbers] : w.vatNumber ? [w.vatNumber] : [],
+            thisWeekMinor: vatThisWeek,
+            weeks: [...weeks.keys()].sort().map((week) => ({ week, vatMinor: vatByWeek.get(week) ?? 0 })),
+          }
+        : null,
     depositsHeld,
   }
 }
@@ -559,8 +665,9 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
     .leftJoin(s.users, eq(s.users.id, s.payments.recordedBy))
     .where(eq(s.payments.workshopId, workshopId))
     .orderBy(...inOrderPaid)
-  // A VAT-registered workshop's accountant gets the VAT in each amount as a last column; otherwise the file is as it was.
-  const vat = vatTermsOf(w)
+  // A VAT-registered workshop's accountant gets the VAT in each amount as a last column (as its receipt stated it, under the
+  // terms it was taken under), as do the files holding any payment taken with VAT; otherwise the file is as it was.
+  const withVat = w.vatRegistered || rows.some((r) => r.p.vatRegistered)
   const lines = [
     [
       'received_at',
@@ -575,7 +682,7 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
       'provider_ref',
       'recorded_by',
       'note',
-      ...(vat.vatRegistered ? ['vat'] : []),
+      ...(withVat ? ['vat'] : []),
     ].join(','),
   ]
   for (const r of rows) {
@@ -598,7 +705,7 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
         r.p.providerRef,
         r.by,
         r.p.note,
-        ...(vat.vatRegistered ? [minorToDecimal(vatInAmount(r.p.amountMinor, vat.vatRatePct), r.p.currency)] : []),
+        ...(withVat ? [minorToDecimal(r.p.vatRegistered ? r.p.vatMinor : 0, r.p.currency)] : []),
       ]
         .map(csvCell)
         .join(','),

@@ -2,6 +2,7 @@
 // card (payments.ts), so both make the same order and book it into the live plan the same way.
 import { eq } from 'drizzle-orm'
 import { pieceParams, type OrderInput } from '../../shared/schemas/order'
+import { storedVatTerms, type StoredVatTerms } from '../../shared/domain/vat'
 import type { Trx } from '../db/client'
 import * as s from '../db/schema/index'
 import { AppError } from '../errors/app-error'
@@ -9,6 +10,13 @@ import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { depositHolds } from './deposit-hold'
 import { bookSlot, roomFor, type Booking, type Room } from './promise'
+
+/**
+ * The VAT terms a quote is accepted under, which the order made from it keeps: those frozen on it when it was written or sent;
+ * a draft accepted without being sent is issued there and then, so it takes the workshop's as they are now (as sending it would).
+ */
+export const quoteVatAtAcceptance = (q: typeof s.quotes.$inferSelect, workshop: StoredVatTerms): StoredVatTerms =>
+  storedVatTerms(q.status === 'drafted' ? workshop : q)
 
 /** What an accepted quote becomes: one piece from the quoted routing (none when the quote names no routing). */
 export function quoteOrderInput(q: typeof s.quotes.$inferSelect): OrderInput {

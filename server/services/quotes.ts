@@ -7,15 +7,15 @@ import * as s from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs, formatDayWithYear } from '../lib/time'
-import { money, quoteOffer } from '../mail/messages'
+import { balanceReminder, money, quoteOffer } from '../mail/messages'
 import { minorToMajor } from '../../shared/domain/currency'
-import { vatFiguresOf, vatLine, vatNumberLine, vatTermsOf } from '../../shared/domain/vat'
+import { storedVatTerms, vatFiguresOf, vatLine, vatNumberLine, vatTermsOf, type StoredVatTerms } from '../../shared/domain/vat'
 import { metalName } from '../../shared/schemas/order'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
-import { createLink, listPayments } from './payments'
-import { bookQuoteOrder, quoteOrderInput, quoteRoom } from './quote-order'
+import { balanceWithVat, createLink, listPayments } from './payments'
+import { bookQuoteOrder, quoteOrderInput, quoteRoom, quoteVatAtAcceptance } from './quote-order'
 import type { Booking } from './promise'
 import { lockLivePlan } from '../planning/live-plan'
 import { LOCK } from '../lib/locks'
@@ -149,17 +149,23 @@ export async function getQuote(db: Db, workshopId: number, id: number) {
     .where(eq(s.paymentLinks.quoteId, id))
     .orderBy(s.paymentLinks.id)
   const payments = await listPayments(db, eq(s.payments.quoteId, id))
-  const [w] = await db
-    .select({ vatRegistered: s.workshops.vatRegistered, vatNumber: s.workshops.vatNumber, vatRateBasisPoints: s.workshops.vatRateBasisPoints })
-    .from(s.workshops)
-    .where(eq(s.workshops.id, workshopId))
   return {
     ...withBalance(q),
     links,
     payments,
     paidMinor: payments.filter((p) => !p.toRefund).reduce((t, p) => t + p.amountMinor, 0),
-    vat: vatFiguresOf(q.priceMinor, vatTermsOf(w!)),
+    vat: vatFiguresOf(q.priceMinor, vatTermsOf(await quoteVatTerms(db, id))),
   }
+}
+
+/** The VAT terms frozen on a quote when it was written, or sent from a draft: what its PDF and e-mails say, whatever the settings are now. */
+async function quoteVatTerms(db: Db | Trx, id: number): Promise<StoredVatTerms> {
+  const [t] = await db
+    .select({ vatRegistered: s.quotes.vatRegistered, vatNumber: s.quotes.vatNumber, vatRateBasisPoints: s.quotes.vatRateBasisPoints })
+    .from(s.quotes)
+    .where(eq(s.quotes.id, id))
+  if (!t) throw notFound('Quote')
+  return t
 }
 
 export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
@@ -200,6 +206,7 @@ export async function createQuote(deps: Deps, actor: Actor, input: QuoteInput) {
         currency: input.currency ?? w!.currency,
         priceMinor: input.priceMinor,
         depositMinor,
+        ...storedVatTerms(w!),
         validUntil,
         createdBy: actor.userId,
       })
@@ -287,10 +294,20 @@ export async function sendQuote(deps: Deps, actor: Actor, id: number, version: n
       description: `Deposit for quote ${before.number}: ${before.title}`,
       customerEmail: before.customerEmail || undefined,
     })
-  await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'sent', sentAt: new Date().toISOString() }, 'sent')
   const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
+  // A draft is issued as it is sent: it takes the VAT terms in force now, and keeps them once the customer holds it (sent again,
+  // it says what it said).
+  const issued = await change(
+    deps,
+    actor,
+    id,
+    version,
+    ['drafted', 'sent'],
+    { status: 'sent', sentAt: new Date().toISOString(), ...(before.status === 'drafted' ? storedVatTerms(w!) : {}) },
+    'sent',
+  )
   const content = quoteOffer({
-    workshop: { name: w!.name, address: w!.address, phone: w!.phone, email: w!.contactEmail, vat: vatTermsOf(w!) },
+    workshop: { name: w!.name, address: w!.address, phone: w!.phone, email: w!.contactEmail, vat: vatTermsOf(issued) },
     customerName: before.customerName,
     quoteNumber: before.number,
     title: before.title,
@@ -329,18 +346,35 @@ export async function acceptQuote(deps: Deps, actor: Actor, id: number, version:
       message: `Quote ${q.number} promised ${formatDayWithYear(q.promisedDate)}, a day gone: withdraw it and write a new quote with a date you can keep`,
     })
   let booking: Booking | null = null
-  if (q.orderId) await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString() }, 'accepted')
+  const [w] = await deps.db.select().from(s.workshops).where(eq(s.workshops.id, actor.workshopId))
+  const vat = quoteVatAtAcceptance(q, w!)
+  if (q.orderId) await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString(), ...vat }, 'accepted')
   else {
     const input = quoteOrderInput(q)
     const room = await quoteRoom(deps, actor, input)
-    const { order, extra } = await takeOrder(deps, actor, input, async (tx, orderId) => {
-      // The live plan's lock before the quote's row lock, as every change to the live plan takes them.
-      await lockLivePlan(tx, actor.workshopId)
-      await change(deps, actor, id, version, ['drafted', 'sent'], { status: 'accepted', acceptedAt: new Date().toISOString(), orderId }, 'accepted', tx)
-      await tx.update(s.payments).set({ orderId }).where(eq(s.payments.quoteId, id))
-      await tx.update(s.paymentLinks).set({ orderId }).where(eq(s.paymentLinks.quoteId, id))
-      return bookQuoteOrder(tx, actor, orderId, room)
-    })
+    const { order, extra } = await takeOrder(
+      deps,
+      actor,
+      input,
+      async (tx, orderId) => {
+        // The live plan's lock before the quote's row lock, as every change to the live plan takes them.
+        await lockLivePlan(tx, actor.workshopId)
+        await change(
+          deps,
+          actor,
+          id,
+          version,
+          ['drafted', 'sent'],
+          { status: 'accepted', acceptedAt: new Date().toISOString(), orderId, ...vat },
+          'accepted',
+          tx,
+        )
+        await tx.update(s.payments).set({ orderId }).where(eq(s.payments.quoteId, id))
+        await tx.update(s.paymentLinks).set({ orderId }).where(eq(s.paymentLinks.quoteId, id))
+        return bookQuoteOrder(tx, actor, orderId, room)
+      },
+      vat,
+    )
     booking = extra
     const firstOp = order.jobBags[0]?.operations[0]
     if (booking.booked && firstOp) deps.realtime.emit(actor.workshopId, 'plan:changed', { id: firstOp.id, operationId: firstOp.id })
@@ -384,7 +418,8 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
   const q = await getQuote(db, workshopId, id)
   const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   const m = (minor: number) => money(minorToMajor(minor, q.currency), q.currency)
-  const vat = vatTermsOf(w!)
+  // The terms frozen on the quote, so a PDF made again says what the customer was given.
+  const vat = vatTermsOf(await quoteVatTerms(db, id))
   const doc = new PDFDocument({ size: 'A4', margin: 56, info: { Title: `Quote ${q.number}` } })
   const chunks: Buffer[] = []
   doc.on('data', (c: Buffer) => chunks.push(c))
@@ -453,23 +488,29 @@ export async function sendMoneyReminders(deps: Pick<Deps, 'db' | 'realtime' | 'm
     })
     n++
   }
-  const { orderMoney } = await import('./payments')
   for (const o of await deps.db
     .select({ id: s.orders.id, number: s.orders.number, email: s.customers.email, name: s.customers.name })
     .from(s.orders)
     .innerJoin(s.customers, eq(s.customers.id, s.orders.customerId))
     .where(and(eq(s.orders.workshopId, workshopId), eq(s.orders.status, 'ready')))) {
     if (sent.some((x) => x.kind === 'balance-reminder' && x.orderId === o.id && x.meta?.day === day)) continue
-    const money2 = await orderMoney(deps.db, workshopId, o.id)
-    if (money2.owedMinor <= 0) continue
-    const text = `Dear ${o.name},\n\nYour order ${o.number} is ready for collection. The balance to pay is ${money(minorToMajor(money2.owedMinor, money2.currency), money2.currency)}.\n\n— ${w!.name}`
+    const b = await balanceWithVat(deps.db, workshopId, o.id)
+    if (b.balanceMinor <= 0) continue
     await sendRecorded(deps, {
       workshopId,
       to: o.email,
       kind: 'balance-reminder',
       orderId: o.id,
       meta: { day },
-      content: { subject: `${w!.name}: order ${o.number} is ready — balance to pay`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` },
+      content: balanceReminder({
+        // The VAT terms the order's price was agreed under, not the workshop's as they are now.
+        workshop: { name: w!.name, address: w!.address, phone: w!.phone, email: w!.contactEmail, vat: vatTermsOf(b.terms) },
+        customerName: o.name,
+        orderNumber: o.number,
+        currency: b.currency,
+        balanceMinor: b.balanceMinor,
+        balanceVatMinor: b.vatMinor,
+      }),
     })
     n++
   }

@@ -1,6 +1,7 @@
 // The workshop's calendar: time zone, weekly working hours with breaks, and closures.
 import { z } from 'zod'
 import { isoDate, name, version, weekPattern, wireInt } from './common'
+import { isUkVatNumber } from '../domain/vat'
 
 const timeZone = z
   .string()
@@ -38,6 +39,16 @@ export const workshopMoneyRulesInput = z.object({
   noMetalBeforeDeposit: z.boolean(),
 })
 export type WorkshopMoneyRulesInput = z.infer<typeof workshopMoneyRulesInput>
+
+/**
+ * Why a registered workshop's VAT number cannot go on its documents, or null when it can: it is required, and it has the shape
+ * of a UK VAT number (`isUkVatNumber`). The number is kept as the owner typed it, spaces and all.
+ */
+export function vatNumberProblem(vatNumber: string): string | null {
+  if (vatNumber.trim() === '') return 'is required when the workshop is registered for VAT'
+  if (!isUkVatNumber(vatNumber)) return 'must be a UK VAT number: GB and 9 digits, or 12 digits with a branch number, such as GB 123 4567 89'
+  return null
+}
 
 export const workshopSettingsInput = z
   .object({
@@ -95,10 +106,12 @@ export const workshopSettingsInput = z
     version,
   })
   // A registered workshop's documents carry its number: said under the field before anything is sent when the form empties it
-  // (when the number is left out of a change, the server checks the stored one).
+  // or gives it another shape than a UK VAT number's (when the number or the registration is left out of a change, the server
+  // checks the stored one). Not registered, whatever is typed stays unchecked.
   .superRefine((w, ctx) => {
-    if (w.vatRegistered === true && w.vatNumber === '')
-      ctx.addIssue({ code: z.ZodIssueCode.custom, path: ['vatNumber'], message: 'is required when the workshop is registered for VAT' })
+    if (w.vatRegistered !== true || w.vatNumber === undefined) return
+    const problem = vatNumberProblem(w.vatNumber)
+    if (problem) ctx.addIssue({ code: 'custom', path: ['vatNumber'], message: problem })
   })
 export const closureInput = z
   .object({ startsOn: isoDate, endsOn: isoDate, name: z.string().trim().min(1, 'is required').max(120) })

@@ -71,12 +71,18 @@ export const payment = z.object({
   createdAt: z.string(),
   /** What has been refunded of it so far (≥ 0). */
   refundedMinor: wireInt,
+  /**
+   * The VAT in it as its receipt states it, under the terms in force when it was recorded (a refund: its payment's, negative):
+   * the rate in per cent, the VAT number, the VAT in minor units; null when it was taken without VAT. The payment that settled
+   * its order carries the rest of the price's VAT, so it can be a penny off the VAT of its own amount.
+   */
+  vat: z.object({ ratePct: z.number(), vatNumber: z.string(), vatMinor: wireInt }).nullable(),
 })
 export type Payment = z.infer<typeof payment>
 
 /**
- * The VAT in a VAT-inclusive amount when the workshop is registered (null when it is not): the rate in per cent, the workshop's
- * VAT number, the VAT and what is left before VAT, in minor units.
+ * The VAT in a VAT-inclusive price under the terms frozen with it (the quote's, or the order's), null when those were not
+ * registered: the rate in per cent, the VAT number, the VAT and what is left before VAT, in minor units.
  */
 export const vatFigures = z.object({ ratePct: z.number(), vatNumber: z.string(), vatMinor: wireInt, netMinor: wireInt }).nullable()
 export type VatFigures = z.infer<typeof vatFigures>
@@ -115,9 +121,18 @@ export const moneySummary = z.object({
   /** Owed in the weeks listed: the sum of their owed figures. */
   owedInWeeksMinor: wireInt,
   depositsHeldMinor: wireInt,
-  /** When registered for VAT: the VAT in what came in (received less refunded), this week's and each listed week's, payment by payment. */
+  /**
+   * When registered for VAT, or money shown was taken with VAT: the VAT in what came in (received less refunded), this week's and
+   * each listed week's, payment by payment as stored with each; the rates (per cent, lowest first) and VAT numbers that money was
+   * taken under (the workshop's own when none was yet).
+   */
   vat: z
-    .object({ ratePct: z.number(), vatNumber: z.string(), thisWeekMinor: wireInt, weeks: z.array(z.object({ week: z.string(), vatMinor: wireInt })) })
+    .object({
+      ratesPct: z.array(z.number()),
+      vatNumbers: z.array(z.string()),
+      thisWeekMinor: wireInt,
+      weeks: z.array(z.object({ week: z.string(), vatMinor: wireInt })),
+    })
     .nullable(),
   depositsHeld: z.array(z.object({ orderId: wireInt, orderNumber: z.string(), customerName: z.string(), paidMinor: wireInt })),
 })

@@ -10,6 +10,7 @@ import isoWeek from 'dayjs/plugin/isoWeek'
 import { eq } from 'drizzle-orm'
 import * as s from '../../server/db/schema/index'
 import { screenshot, signInPage, useE2E } from '../setup/e2e'
+import { WITHOUT_VAT } from '../setup/fixtures'
 
 dayjs.extend(utc)
 dayjs.extend(timezone)
@@ -49,7 +50,10 @@ async function handMadePlan(): Promise<{ rough: number; cut: number; fit: number
   const ada = await person('Ada Full', WEEK)
   const [customer] = await db.select().from(s.customers).where(eq(s.customers.workshopId, workshopId)).limit(1)
   const bag = async (number: string, due: string) => {
-    const [o] = await db.insert(s.orders).values({ workshopId, number, customerId: customer!.id, title: number, dueDate: due, priority: 1 }).returning()
+    const [o] = await db
+      .insert(s.orders)
+      .values({ workshopId, number, customerId: customer!.id, title: number, dueDate: due, priority: 1, ...WITHOUT_VAT })
+      .returning()
     const [b] = await db
       .insert(s.jobBags)
       .values({

@@ -400,11 +400,23 @@ describe('quotes and deposits', () => {
   it('when the workshop is registered for VAT, then the order’s money and the quote dialog say the VAT in the price with the VAT number', async () => {
     // 20 % is the UK standard rate as HMRC publishes it. Hand-worked: £1,250.00 × 20/120 = £208.33, leaving £1,041.67;
     // £1,850.00 × 20/120 = £308.33, leaving £1,541.67.
-    await e2e.db.db.update(s.workshops).set({ vatRegistered: true, vatNumber: 'GB 123 4567 89', vatRateBasisPoints: 2000 })
+    const registered = { vatRegistered: true, vatNumber: 'GB 123 4567 89', vatRateBasisPoints: 2000 }
+    const not = { vatRegistered: false, vatNumber: '' }
+    // An order keeps the VAT terms it was agreed under: this one's quote and order are put as if agreed while registered; its
+    // payments keep theirs, taken without VAT.
+    const agreedUnder = async (terms: typeof registered | typeof not) => {
+      await e2e.db.db.update(s.orders).set(terms).where(eq(s.orders.id, orderId))
+      await e2e.db.db.update(s.quotes).set(terms).where(eq(s.quotes.orderId, orderId))
+    }
+    await e2e.db.db.update(s.workshops).set(registered)
+    await agreedUnder(registered)
     try {
       await page.goto(`/orders/${orderId}`)
       const number = 'VAT registration no. GB 123 4567 89'
       await page.locator('[data-test=money-vat]', { hasText: `of which VAT at 20%: £208.33 (£1,041.67 before VAT) · ${number}` }).waitFor({ timeout: 15_000 })
+      // The payments table's VAT column: both payments were taken before the workshop registered, so they carry none.
+      expect(await page.locator('[data-test=money-payment-vat]').allTextContents()).toEqual(['—', '—'])
+      await page.locator('[data-test=money-payments-vat]', { hasText: 'VAT in what is paid: £0.00 of the £208.33 in the price.' }).waitFor()
       await page.locator('[data-test=money-make-quote]').click()
       const dialog = page.locator('.el-dialog', { hasText: 'Quote for order' })
       await dialog.waitFor()
@@ -417,7 +429,8 @@ describe('quotes and deposits', () => {
       await dialog.getByRole('button', { name: 'Cancel' }).click()
       await dialog.waitFor({ state: 'hidden' })
     } finally {
-      await e2e.db.db.update(s.workshops).set({ vatRegistered: false, vatNumber: '' })
+      await e2e.db.db.update(s.workshops).set(not)
+      await agreedUnder(not)
     }
   })
 })

@@ -8,7 +8,7 @@ import { dayjs } from '../../server/lib/time'
 import { storeLiveFigures } from '../../server/planning/live-plan'
 import { hashPassword } from '../../server/services/users'
 import { Agent, createTestApp, type TestApp } from '../setup/app'
-import { addPerson, addWorkshop } from '../setup/fixtures'
+import { addPerson, addWorkshop, WITHOUT_VAT } from '../setup/fixtures'
 
 const TZ = 'Europe/London'
 const PASSWORD = 'board-segments-pass'
@@ -60,7 +60,10 @@ beforeAll(async () => {
     .where(eq(s.people.id, mo))
   const [cust] = await t.db.insert(s.customers).values({ workshopId, reference: 'C1', name: 'Cora' }).returning()
   const bag = async (number: string, due: string) => {
-    const [o] = await t.db.insert(s.orders).values({ workshopId, number, customerId: cust!.id, title: number, dueDate: due, priority: 1 }).returning()
+    const [o] = await t.db
+      .insert(s.orders)
+      .values({ workshopId, number, customerId: cust!.id, title: number, dueDate: due, priority: 1, ...WITHOUT_VAT })
+      .returning()
     const [b] = await t.db
       .insert(s.jobBags)
       .values({

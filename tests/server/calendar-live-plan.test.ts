@@ -9,7 +9,7 @@ import { dayjs } from '../../server/lib/time'
 import { storeLiveFigures } from '../../server/planning/live-plan'
 import { hashPassword } from '../../server/services/users'
 import { Agent, createTestApp, type TestApp } from '../setup/app'
-import { addPerson, addWorkshop } from '../setup/fixtures'
+import { addPerson, addWorkshop, WITHOUT_VAT } from '../setup/fixtures'
 
 const TZ = 'Europe/London'
 const PASSWORD = 'calendar-check-pass'
@@ -84,7 +84,10 @@ beforeAll(async () => {
   personId = await addPerson(t.db, { workshopId, name: 'Ada', skills: { codes: ['SOL'], level: 3 } })
   const [cust] = await t.db.insert(s.customers).values({ workshopId, reference: 'C1', name: 'Cora' }).returning()
   const order = async (number: string, due: string, priority: number) => {
-    const [o] = await t.db.insert(s.orders).values({ workshopId, number, customerId: cust!.id, title: number, dueDate: due, priority }).returning()
+    const [o] = await t.db
+      .insert(s.orders)
+      .values({ workshopId, number, customerId: cust!.id, title: number, dueDate: due, priority, ...WITHOUT_VAT })
+      .returning()
     const [b] = await t.db
       .insert(s.jobBags)
       .values({

@@ -16,7 +16,7 @@ import * as s from '../../server/db/schema/index'
 import { newLinkToken } from '../../server/services/accounts'
 import { Agent, createTestApp, DEMO_EMAIL, signedIn, type TestApp } from '../setup/app'
 import { DEMO_PASSWORD } from '../../server/db/seed'
-import { alloyIdByCode, bookLastStepLate, firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, routingId } from '../setup/fixtures'
+import { alloyIdByCode, bookLastStepLate, firstCustomerId, firstWorkshopId, openOrder, readyBenchStep, routingId, WITHOUT_VAT } from '../setup/fixtures'
 
 let t: TestApp
 let payFake: PayFake
@@ -319,6 +319,8 @@ describe('answers on the demo workshop', () => {
       currency: before.currency,
       toRefund: true,
       receivedAt: new Date().toISOString(),
+      ...WITHOUT_VAT,
+      vatMinor: 0,
     })
     const waiting = await call(owner, 'get', '/payments/to-refund', '/payments/to-refund')
     expect(waiting.length).toBeGreaterThan(0)

@@ -8,7 +8,7 @@ import * as s from '../../server/db/schema/index'
 import { dayjs } from '../../server/lib/time'
 import { hashPassword } from '../../server/services/users'
 import { Agent, createTestApp, type TestApp } from '../setup/app'
-import { addPerson, addWorkshop } from '../setup/fixtures'
+import { addPerson, addWorkshop, WITHOUT_VAT } from '../setup/fixtures'
 
 const TZ = 'Europe/London'
 const PASSWORD = 'orders-expected-pass'
@@ -54,7 +54,7 @@ beforeAll(async () => {
   const order = async (title: string, due: string, bars: { shape?: Bar; polish?: Bar }, status: 'open' | 'ready' = 'open') => {
     const [o] = await t.db
       .insert(s.orders)
-      .values({ workshopId, number: `EX-${title}`, customerId: cust!.id, title, dueDate: due, status })
+      .values({ workshopId, number: `EX-${title}`, customerId: cust!.id, title, dueDate: due, status, ...WITHOUT_VAT })
       .returning()
     const [b] = await t.db
       .insert(s.jobBags)

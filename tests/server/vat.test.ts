@@ -146,7 +146,7 @@ describe('VAT on what the customer gets', () => {
     expect(accepted.status, JSON.stringify(accepted.body)).toBe(200)
     const orderId = accepted.body.orderId as number
     const weekBefore = (await owner.get('/api/payments/summary')).body
-    expect(weekBefore.vat).toMatchObject({ ratePct: 20, vatNumber: 'GB 123 4567 89' })
+    expect(weekBefore.vat).toMatchObject({ ratesPct: [20], vatNumbers: ['GB 123 4567 89'] })
     const cash = await sales.post(`/api/orders/${orderId}/payments`, { method: 'cash', purpose: 'balance', amountMinor: 9999 })
     expect(cash.status, JSON.stringify(cash.body)).toBe(201)
     const receipt = await mailLines('payment-receipt', (m) => m.orderId === orderId)

@@ -5,6 +5,9 @@ import { loadPlanningData } from '../../server/planning/problem'
 import type { Db } from '../../server/db/client'
 import * as s from '../../server/db/schema/index'
 
+/** The VAT terms of an order or payment written by a fixture where VAT plays no part: the demo workshop's, not registered. */
+export const WITHOUT_VAT = { vatRegistered: false, vatNumber: '', vatRateBasisPoints: 2000 } as const
+
 /** The demo workshop (the first one). */
 export async function firstWorkshopId(db: Db): Promise<number> {
   const [w] = await db.select({ id: s.workshops.id }).from(s.workshops).orderBy(asc(s.workshops.id)).limit(1)

@@ -1,5 +1,5 @@
-// Column helpers every table shares: identity keys, timestamps, optimistic-lock versions.
-import { customType, integer, timestamp } from 'drizzle-orm/pg-core'
+// Column helpers every table shares: identity keys, timestamps, optimistic-lock versions, the VAT terms a document keeps.
+import { boolean, customType, integer, text, timestamp } from 'drizzle-orm/pg-core'
 
 export const pk = () => integer().primaryKey().generatedAlwaysAsIdentity()
 export const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow()
@@ -14,4 +14,15 @@ export const version = () => integer().notNull().default(0)
 export const instant = customType<{ data: string; driverData: string }>({
   dataType: () => 'timestamp with time zone',
   fromDriver: (value) => new Date(value).toISOString(),
+})
+
+/**
+ * The VAT terms in force when a quote was issued, an order made or a payment recorded (as the workshop's three VAT columns), so
+ * its documents say the same whatever the settings become. No defaults: whoever writes the row says which terms it was under.
+ */
+export const frozenVatTerms = () => ({
+  vatRegistered: boolean().notNull(),
+  vatNumber: text().notNull(),
+  /** Hundredths of a per cent (2000 = 20 %). */
+  vatRateBasisPoints: integer().notNull(),
 })

@@ -1,7 +1,7 @@
 // Money for commissions: quotes sent to customers, the payments taken against orders (deposit, balance, refunds), and the
 // payment provider's events as received, so each is booked once. Amounts are integer minor units with their currency.
 import { type AnyPgColumn, boolean, date, index, integer, jsonb, pgTable, text, uniqueIndex } from 'drizzle-orm/pg-core'
-import { createdAt, instant, pk, version } from './common'
+import { createdAt, frozenVatTerms, instant, pk, version } from './common'
 import { customers, orders } from './work'
 import { users, workshops } from './workshop'
 
@@ -30,6 +30,8 @@ export const quotes = pgTable(
     currency: text().notNull(),
     priceMinor: integer().notNull(),
     depositMinor: integer().notNull(),
+    /** The VAT terms it was written under, taken again when a draft is sent: its PDF and e-mail say them whatever the settings become. */
+    ...frozenVatTerms(),
     validUntil: date({ mode: 'string' }).notNull(),
     sentAt: instant(),
     acceptedAt: instant(),
@@ -86,6 +88,12 @@ export const payments = pgTable(
     /** Signed: a refund is negative. */
     amountMinor: integer().notNull(),
     currency: text().notNull(),
+    /**
+     * The VAT terms in force when it was recorded (a refund: its payment's) and the VAT in the amount as its receipt states it,
+     * signed as the amount (0 when not registered): worked out once, when recorded (`paymentVat`, `refundVat` in shared/domain/vat.ts).
+     */
+    ...frozenVatTerms(),
+    vatMinor: integer().notNull(),
     /** The provider's payment (or refund) id; null for cash and transfers. */
     providerRef: text(),
     /** A payment that arrived for a withdrawn quote or an order that owes nothing: listed to be refunded. */

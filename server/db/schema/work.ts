@@ -2,7 +2,7 @@
 import { boolean, date, index, integer, jsonb, pgTable, real, text, uniqueIndex } from 'drizzle-orm/pg-core'
 import type { PieceParams } from '../../../shared/schemas/order'
 import type { RoutingKind } from '../../../shared/domain/routing-kinds'
-import { createdAt, pk, updatedAt, version, instant } from './common'
+import { createdAt, frozenVatTerms, pk, updatedAt, version, instant } from './common'
 import { benches, operationKinds, people } from './resources'
 import { users, workshops } from './workshop'
 
@@ -92,6 +92,8 @@ export const orders = pgTable(
     status: text().notNull().default('open'),
     /** The price quoted, in integer minor units of the workshop's currency. */
     priceQuotedMinor: integer().notNull().default(0),
+    /** The VAT terms it was made under (from a quote: the quote's), which its money and the customer's e-mails say. */
+    ...frozenVatTerms(),
     notes: text().notNull().default(''),
     version: version(),
     createdAt: createdAt(),

@@ -3,6 +3,7 @@ import { and, eq, inArray, notInArray } from 'drizzle-orm'
 import type { Tx } from '../db/client'
 import * as s from '../db/schema/index'
 import { dayjs, expandPattern, MinuteClock, subtract, dayRange, type Interval } from '../lib/time'
+import type { WorkSpan } from '../../shared/schemas/common'
 import type { Operation as EngineOperation, Problem } from '../scheduler/model.ts'
 import { jointWindows } from '../scheduler/calendar.ts'
 import { depositHolds } from '../services/deposit-hold'
@@ -29,6 +30,8 @@ export interface PlanningData {
     nonWorking: Interval[]
     /** The workshop's open hours (minutes), for lateness in working time. */
     open: Interval[]
+    /** The workshop's week (a person without a week of their own works it), to reckon working time over other days. */
+    weekPattern: WorkSpan[]
     closures: (typeof s.closures.$inferSelect)[]
     leave: (typeof s.leave.$inferSelect)[]
     downtime: (typeof s.benchDowntime.$inferSelect)[]
@@ -58,6 +61,29 @@ export function operationOptions(
     .filter((id) => meta.benches.has(String(id)))
   const able = meta.skills.filter((k) => k.kindId === kindId && k.level >= requiredLevel && meta.people.has(String(k.personId)))
   return benchIds.flatMap((b) => able.map((k) => ({ benchId: String(b), personId: String(k.personId), minutes: minutes(k.speed) })))
+}
+
+/**
+ * Working time over some local days: the workshop's open hours less its closures, and each person's own (their week, else the
+ * workshop's, less closures and their leave), in the clock's minutes (before its origin too). The planning horizon and the board's
+ * weeks, past ones included, are reckoned alike.
+ */
+export function workingTimeOver(
+  clock: MinuteClock,
+  cal: Pick<PlanningData['meta'], 'weekPattern' | 'closures' | 'leave'> & { people: Iterable<Pick<typeof s.people.$inferSelect, 'id' | 'weekPattern'>> },
+  days: string[],
+): { open: Interval[]; people: Map<string, Interval[]> } {
+  const closed = cal.closures.map((c) => dayRange(clock, c.startsOn, c.endsOn))
+  const people = new Map<string, Interval[]>()
+  for (const p of cal.people)
+    people.set(
+      String(p.id),
+      subtract(
+        subtract(expandPattern(clock, p.weekPattern ?? cal.weekPattern, days), closed),
+        cal.leave.filter((l) => l.personId === p.id).map((l) => dayRange(clock, l.startsOn, l.endsOn)),
+      ),
+    )
+  return { open: subtract(expandPattern(clock, cal.weekPattern, days), closed), people }
 }
 
 export async function loadPlanningData(db: Tx, workshopId: number, now: Date): Promise<PlanningData> {
@@ -104,7 +130,8 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
     .then((r) => r.map((x) => x.l))
   const kinds = await db.select().from(s.operationKinds).where(eq(s.operationKinds.workshopId, workshopId))
   const closed = closures.map((c) => dayRange(clock, c.startsOn, c.endsOn))
-  const workshopHours = subtract(expandPattern(clock, w.weekPattern, days), closed)
+  const working = workingTimeOver(clock, { weekPattern: w.weekPattern, closures, leave, people }, days)
+  const workshopHours = working.open
   const nonWorking = subtract([{ start: 0, end: clock.at(lastDay, '23:59') }], workshopHours)
   const workshopDays = subtract(
     days.filter((d) => w.weekPattern.some((p) => p.weekday === dayjs(d).isoWeekday())).map((d) => dayRange(clock, d, d)),
@@ -119,14 +146,7 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
       downtime.filter((d) => d.benchId === b.id).map((d) => ({ start: clock.toMinute(d.startsAt), end: clock.toMinute(d.endsAt) })),
     ),
   }))
-  const personModels = people.map((p) => ({
-    id: String(p.id),
-    name: p.name,
-    available: subtract(
-      subtract(expandPattern(clock, p.weekPattern ?? w.weekPattern, days), closed),
-      leave.filter((l) => l.personId === p.id).map((l) => dayRange(clock, l.startsOn, l.endsOn)),
-    ),
-  }))
+  const personModels = people.map((p) => ({ id: String(p.id), name: p.name, available: working.people.get(String(p.id))! }))
   const joint = jointWindows({ benches: benchModels, people: personModels })
 
   // Open work: job bags of orders still to make.
@@ -188,6 +208,7 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
     kinds: kindMap,
     nonWorking,
     open: workshopHours,
+    weekPattern: w.weekPattern,
     closures,
     leave,
     downtime,

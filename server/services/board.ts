@@ -14,7 +14,7 @@ import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/wo
 import { jobRisk } from '../../shared/domain/job-risk'
 import { cachedOr, type Cache } from '../lib/cache'
 import { engineId, fromStored, type Assignments } from '../planning/assignments'
-import { loadPlanningData, type PlanningData } from '../planning/problem'
+import { loadPlanningData, workingTimeOver, type PlanningData } from '../planning/problem'
 import { getPlan, readDraft } from '../planning/drafts'
 import { checkLivePlan, readLivePlan, retimeLivePlan } from '../planning/live-plan'
 import type { RuleViolation } from '../../shared/domain/rules'
@@ -403,6 +403,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const toIso = (m: number) => c.toDate(m).toISOString()
   const ws = c.toMinute(winStart),
     we = c.toMinute(winEnd)
+  const cal = windowCalendar(data, o.from, o.to)
   return {
     window: { from: o.from, to: o.to, timeZone: c.timeZone },
     now: (o.now ?? new Date()).toISOString(),
@@ -421,8 +422,8 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
     items,
     findings: checked?.findings ?? [],
     jobs: [...jobs.values()].sort((a, b) => a.due.localeCompare(b.due)),
-    nonWorking: data.meta.nonWorking.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
-    shutWork: (await shutWork(db, data, workshopId, winStart, winEnd, now)).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
+    nonWorking: cal.shut.filter((x) => x.end > ws && x.start < we).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
+    shutWork: (await shutWork(db, data, cal, workshopId, winStart, winEnd, now)).map((x) => ({ start: toIso(x.start), end: toIso(x.end) })),
     dayMinutes,
     closures: data.meta.closures.map((x) => ({ name: x.name, startsOn: x.startsOn, endsOn: x.endsOn })),
     leave: data.meta.leave.map((l) => ({ personId: l.personId, startsOn: l.startsOn, endsOn: l.endsOn, reason: l.reason })),
@@ -430,22 +431,52 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   }
 }
 
+/** Days the board's calendar reaches past its window either side, so a shut stretch across an edge (a weekend) is whole. */
+const CALENDAR_MARGIN_DAYS = 7
+
+/**
+ * The workshop's calendar over the board's window, whatever weeks it shows (the planning data's starts this Monday, so a week
+ * before it had no shut time and never folded): its open hours, the stretches it is shut, and each person's working hours, in
+ * the clock's minutes, from a week before the window to a week after it.
+ */
+function windowCalendar(data: PlanningData, from: string, to: string): { open: Interval[]; shut: Interval[]; people: Interval[][] } {
+  const c = data.clock
+  const first = dayjs(from).subtract(CALENDAR_MARGIN_DAYS, 'day')
+  const count = dayjs(to).diff(first, 'day') + 1 + CALENDAR_MARGIN_DAYS
+  const days = Array.from({ length: count }, (_, i) => first.add(i, 'day').format('YYYY-MM-DD'))
+  const span = {
+    start: c.at(days[0]!),
+    end: c.at(
+      dayjs(days[days.length - 1]!)
+        .add(1, 'day')
+        .format('YYYY-MM-DD'),
+    ),
+  }
+  const w = workingTimeOver(c, { ...data.meta, people: data.meta.people.values() }, days)
+  return { open: w.open, shut: subtract([span], w.open), people: [...w.people.values()] }
+}
+
 /**
  * Work in time the workshop is shut, within the window (engine minutes): someone's own hours and time recorded at a bench (running
  * work up to now) that begin while the workshop is shut, each up to the workshop's next opening or the end of the day it begins
  * on. A clock left running from an open day through the night does not count: it began in open time.
  */
-async function shutWork(db: Db, data: PlanningData, workshopId: number, winStart: Date, winEnd: Date, now: Date): Promise<Interval[]> {
+async function shutWork(
+  db: Db,
+  data: PlanningData,
+  cal: { open: Interval[]; people: Interval[][] },
+  workshopId: number,
+  winStart: Date,
+  winEnd: Date,
+  now: Date,
+): Promise<Interval[]> {
   const c = data.clock
-  const open = data.meta.open
-  const ws = Math.max(0, c.toMinute(winStart)),
+  const open = cal.open
+  const ws = c.toMinute(winStart),
     we = c.toMinute(winEnd)
   if (we <= ws) return []
   // Someone's own hours outside the workshop's (a Saturday morning): every shut part of them.
-  const stretches: Interval[] = subtract(
-    data.problem.people.flatMap((p) => p.available),
-    open,
-  )
+  const stretches: Interval[] = subtract(cal.people.flat(), open)
   // Time records reaching into the window (a day's slack either side for corrections that moved them), corrections applied.
   const slack = 86_400_000
   const recorded = await db

@@ -108,6 +108,10 @@ export const boardAnswer = z.object({
    */
   findings: z.array(ruleViolation).optional(),
   jobs: z.array(boardJob),
+  /**
+   * The stretches the workshop is shut (nights, breaks, weekends, closures) that reach into the window, whole: reckoned from its
+   * calendar over the window and a week either side, whichever weeks are asked for, past ones included.
+   */
   nonWorking: z.array(z.object({ start: isoDateTime, end: isoDateTime })),
   /**
    * Work in time the workshop is shut, within the window: someone's own hours (a person whose week has Saturday hours) and time

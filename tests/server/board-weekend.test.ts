@@ -1,5 +1,6 @@
 // The board's work while the workshop is shut: someone's own weekend hours and time recorded on a shut day, which "working hours
-// only" keeps on the board; a clock left running from an open day through the night is no such work.
+// only" keeps on the board; a clock left running from an open day through the night is no such work. The shut stretches and that
+// work are reckoned for the weeks asked for, weeks gone by included.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { eq } from 'drizzle-orm'
 import dayjs from 'dayjs'
@@ -77,6 +78,53 @@ describe('work while the workshop is shut', () => {
       { start: at(2, '12:40'), end: at(2, '13:15') },
       { start: at(5, '09:00'), end: at(5, '13:00') },
       { start: at(5, '13:30'), end: at(5, '15:00') },
+    ])
+  })
+
+  it('when a week long past is asked for, then its nights, lunches and weekend are shut time, and someone’s Saturday hours and a Sunday record there are work while shut', async () => {
+    const workshopId = await firstWorkshopId(t.db)
+    const [w] = await t.db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
+    // "Now" on this week's Wednesday; the week shown thirty weeks before it, before the demo's history and bank holidays.
+    const thisMonday = dayjs(dayjs().tz(TZ).format('YYYY-MM-DD')).startOf('isoWeek')
+    const now = dayjs.tz(`${thisMonday.add(2, 'day').format('YYYY-MM-DD')} 10:00`, TZ).toDate()
+    const monday = thisMonday.subtract(30, 'week')
+    const day = (n: number) => monday.add(n, 'day').format('YYYY-MM-DD')
+    const at = (n: number, hhmm: string) => dayjs.tz(`${day(n)} ${hhmm}`, TZ).toISOString()
+    const closures = await t.db.select().from(s.closures).where(eq(s.closures.workshopId, workshopId))
+    expect(closures.filter((c) => c.endsOn >= day(-7) && c.startsOn <= day(13))).toEqual([])
+
+    const op = await readyBenchStep(t.db)
+    // Her own week: the workshop's, and Saturday 09:00–13:00; no leave in the way.
+    await t.db
+      .update(s.people)
+      .set({ weekPattern: [...w!.weekPattern, { weekday: 6, start: '09:00', end: '13:00' }] })
+      .where(eq(s.people.id, op.personId))
+    await t.db.delete(s.leave).where(eq(s.leave.personId, op.personId))
+    await t.db.insert(s.timeRecords).values({
+      operationId: op.id,
+      personId: op.personId,
+      benchId: op.benchId,
+      startedAt: at(6, '10:00'),
+      endedAt: at(6, '11:30'),
+      endReason: 'end-of-day',
+    })
+
+    const board = await boardData(t.db, workshopId, { from: day(0), to: day(6), now })
+    expect(boardAnswer.safeParse(JSON.parse(JSON.stringify(board))).error?.issues ?? []).toEqual([])
+    // By hand, from the demo workshop's week (Monday to Friday 08:30–12:30 and 13:15–17:00): the weekend before, each day's lunch
+    // and night, and the weekend after, whole.
+    const weekdays = [0, 1, 2, 3, 4]
+    expect(board.nonWorking).toEqual([
+      { start: at(-3, '17:00'), end: at(0, '08:30') },
+      ...weekdays.flatMap((n) => [
+        { start: at(n, '12:30'), end: at(n, '13:15') },
+        { start: at(n, '17:00'), end: at(n === 4 ? 7 : n + 1, '08:30') },
+      ]),
+    ])
+    // Her Saturday hours, and the Sunday record.
+    expect(board.shutWork).toEqual([
+      { start: at(5, '09:00'), end: at(5, '13:00') },
+      { start: at(6, '10:00'), end: at(6, '11:30') },
     ])
   })
 })

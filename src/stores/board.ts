@@ -7,7 +7,7 @@ import { usePlannerRunStore } from '@/stores/planner-run'
 import type { MoveInput } from '@shared/schemas/plan'
 import { ApiError } from '@/api/client'
 import { messageOf } from '@/composables/use-api-error'
-import { dataWindowFor, dayStart, localDay, openingDay, shiftAnchor, type ColourBy, type RowsBy, type Zoom } from '@/lib/board-calendar'
+import { dataWindowFor, dayStart, localDay, openingDay, shiftAnchor, workWhileShut, type ColourBy, type RowsBy, type Zoom } from '@/lib/board-calendar'
 
 export type BoardTab = 'timeline' | 'load'
 
@@ -75,6 +75,15 @@ export const useBoardStore = defineStore('board', () => {
   const personName = computed(() => new Map((data.value?.people ?? []).map((p) => [p.id, p.name])))
   const running = computed(() => runs.active)
 
+  /**
+   * The day the board opens on with these weeks loaded: today, or, while the workshop is shut, the day it next works — unless
+   * someone works today while it is shut (their own hours, a time record, a step planned then), which the board shows.
+   */
+  const openingFor = (now: Date, d: BoardData) => {
+    const tz = d.window.timeZone
+    return openingDay(now, tz, d.nonWorking, { until: dayStart(d.window.to, tz), worked: workWhileShut(d, tz) })
+  }
+
   // Reloads may overlap (events, window changes): only the newest answer is kept.
   let boardGen = 0
   let loadGen = 0
@@ -89,7 +98,7 @@ export const useBoardStore = defineStore('board', () => {
       if (seekOpening) {
         // Opened (or "Today" pressed) while the workshop is shut: settle on the day it next works before anything is drawn.
         seekOpening = false
-        const day = openingDay(new Date(), d.window.timeZone, d.nonWorking, dayStart(d.window.to, d.window.timeZone))
+        const day = openingFor(new Date(), d)
         if (day !== anchorDay.value) {
           const before = dataWindow.value.from
           anchorDay.value = day
@@ -183,7 +192,7 @@ export const useBoardStore = defineStore('board', () => {
     const d = data.value
     const day = localDay(now, timeZone.value)
     if (d && d.window.from <= day && day <= d.window.to) {
-      setAnchor(openingDay(now, timeZone.value, d.nonWorking, dayStart(d.window.to, timeZone.value)))
+      setAnchor(openingFor(now, d))
       return
     }
     seekOpening = true

@@ -1,11 +1,12 @@
 // Weekends on the board: with the whole clock every day of the week has its heading and ticks, Saturday and Sunday included;
 // with working hours only a weekend nobody works in folds away, and one someone works in (the workshop's or a person's Saturday
-// hours, a time record, a bar planned there) shows like an open day, as wide as the hours kept.
+// hours, a time record, a bar planned there) shows like an open day, as wide as the hours kept. "Now" on a folded weekend is a
+// marker that says so; four weeks name every day shown, the narrow closed ones too, and run to their last day shown.
 import { describe, expect, it } from 'vitest'
 import dayjs from 'dayjs'
 import utc from 'dayjs/plugin/utc'
 import timezone from 'dayjs/plugin/timezone'
-import { axisScale, dayHeadings, hourTicks } from '@/components/board/board-axis'
+import { axisScale, dayHeadings, foldedNow, hourTicks } from '@/components/board/board-axis'
 import { dayShown, foldedStretches } from '@/components/board/board-vis'
 import { shiftAnchor, visibleWindow, zoomRangeLabel } from '@/lib/board-calendar'
 import type { BoardItem } from '@shared/schemas/board'
@@ -66,7 +67,7 @@ describe('the week with the whole clock shown', () => {
       ).toEqual(['00:00', '06:00', '12:00', '18:00'])
   })
   it('when the whole clock is shown, then the week is named Monday to Sunday and day by day steps onto the weekend', () => {
-    expect(zoomRangeLabel('week', '2026-12-09', 7)).toBe('W50 · 7 Dec – 13 Dec 2026')
+    expect(zoomRangeLabel('week', '2026-12-09', () => true)).toBe('W50 · 7 Dec – 13 Dec 2026')
     expect(shiftAnchor('2026-12-11', 'day', 1, () => true)).toBe('2026-12-12')
     expect(shiftAnchor('2026-12-14', 'day', -1, () => true)).toBe('2026-12-13')
   })
@@ -113,7 +114,7 @@ describe('working hours only, a Saturday someone works 09:00–13:00', () => {
     const ticks = hourTicks(scale, TZ, [])
     expect(ticks.filter((t) => t.day === '2026-12-09').map((t) => t.label)).toEqual(['08:30', '11:30', '14:30'])
     expect(ticks.filter((t) => t.day === '2026-12-12').map((t) => [t.label, t.x])).toEqual([['09:00', 850]])
-    expect(zoomRangeLabel('week', '2026-12-09', 6)).toBe('W50 · 7 Dec – 12 Dec 2026')
+    expect(zoomRangeLabel('week', '2026-12-09', (d) => dayShown(d, TZ, folded))).toBe('W50 · 7 Dec – 12 Dec 2026')
   })
   it('when a person’s own week has Saturday 09:00–13:00 in a workshop shut on Saturdays, then Saturday is shown as if the workshop opened then', () => {
     const folded = foldedStretches({
@@ -152,5 +153,119 @@ describe('working hours only, a Saturday someone works 09:00–13:00', () => {
     expect(foldedStretches({ nonWorking: weekdaysOnly, items: [away, running], closures: [], window }).slice(-1)).toEqual([
       { start: at('2026-12-11', '17:00'), end: at('2026-12-14', '08:30') },
     ])
+  })
+})
+
+describe('now, while the weekend is folded away', () => {
+  // Week 51 (14–18 December) as week 50: open Monday to Friday 08:30–17:00.
+  const twoWeeks = [
+    ...weekdaysOnly,
+    ...['2026-12-14', '2026-12-15', '2026-12-16', '2026-12-17'].map((d) => ({
+      start: iso(d, '17:00'),
+      end: `${dayjs(d).add(1, 'day').format('YYYY-MM-DD')}T08:30:00.000Z`,
+    })),
+    { start: iso('2026-12-18', '17:00'), end: iso('2026-12-21', '08:30') },
+  ]
+  const folded = foldedStretches({ nonWorking: twoWeeks, closures: [], window })
+  const scaleOf = (day: string, width: number, f = folded) => axisScale(opened(visibleWindow('week', day, TZ), f), width, f)
+  const saturday = at('2026-12-12', '14:20').getTime()
+
+  it('when it is Saturday 14:20 and the week shown is that one, then "now" is a marker at the end of Friday that names the time and the fold', () => {
+    // Week 50 over 850 px: Friday ends at 850 px, where the week shown ends.
+    expect(foldedNow(scaleOf('2026-12-09', 850), saturday, TZ)).toEqual({
+      x: 850,
+      title:
+        'Now: Saturday 12 December 14:20 — the workshop is shut, and Fri 11 Dec 17:00 to Mon 14 Dec 08:30 is folded away (untick Working hours only to see it).',
+    })
+  })
+  it('when it is Saturday 14:20 and the coming week is shown, then the marker is at its left edge, still naming Saturday (not Monday 08:30)', () => {
+    const m = foldedNow(scaleOf('2026-12-16', 850), saturday, TZ)
+    expect(m?.x).toBe(0)
+    expect(m?.title).toMatch(/^Now: Saturday 12 December 14:20 — the workshop is shut/)
+  })
+  it('when someone worked Saturday 09:00–13:00 and it is 14:20, then the marker is at the end of those hours', () => {
+    const f = foldedStretches({
+      nonWorking: twoWeeks,
+      shutWork: [{ start: iso('2026-12-12', '09:00'), end: iso('2026-12-12', '13:00') }],
+      closures: [],
+      window,
+    })
+    // Five days of 8 h 30 min and Saturday's 4 h over 930 px: 20 px an hour, Saturday's hours end at 930 px.
+    const m = foldedNow(scaleOf('2026-12-09', 930, f), saturday, TZ)
+    expect(m?.x).toBe(930)
+    expect(m?.title).toContain('Sat 12 Dec 13:00 to Mon 14 Dec 08:30 is folded away')
+  })
+  it('when it is Tuesday 20:00, then the marker is where Tuesday meets Wednesday; in working hours or in another week, none', () => {
+    const scale = scaleOf('2026-12-09', 850)
+    expect(foldedNow(scale, at('2026-12-08', '20:00').getTime(), TZ)).toMatchObject({
+      x: 340,
+      title: expect.stringContaining('Now: Tuesday 8 December 20:00 — the workshop is shut, and Tue 8 Dec 17:00 to Wed 9 Dec 08:30 is folded away'),
+    })
+    // Open time: the timeline's own line is right.
+    expect(foldedNow(scale, at('2026-12-09', '10:00').getTime(), TZ)).toBeNull()
+    // The Saturday after week 51 is not at week 50.
+    expect(foldedNow(scale, at('2026-12-19', '14:20').getTime(), TZ)).toBeNull()
+  })
+})
+
+describe('four weeks with working hours only', () => {
+  // Weeks 50–53 (7 December to 3 January) open Monday to Friday 08:30–17:00, closed Tuesday 22 (stocktake), Friday 25 (Christmas
+  // Day), Monday 28 (Boxing Day, moved from the Saturday) and Friday 1 January (New Year's Day).
+  const closures = [
+    { name: 'Workshop closed: stocktake', startsOn: '2026-12-22', endsOn: '2026-12-22' },
+    { name: 'Bank holiday: Christmas Day', startsOn: '2026-12-25', endsOn: '2026-12-25' },
+    { name: 'Bank holiday: Boxing Day', startsOn: '2026-12-28', endsOn: '2026-12-28' },
+    { name: "Bank holiday: New Year's Day", startsOn: '2027-01-01', endsOn: '2027-01-01' },
+  ]
+  /** The closed stretches between openings, from Friday 4 December's close to Monday 4 January's opening. */
+  const nonWorking: { start: string; end: string }[] = []
+  let close = iso('2026-12-04', '17:00')
+  for (let d = dayjs('2026-12-07'); !d.isAfter(dayjs('2027-01-04')); d = d.add(1, 'day')) {
+    const day = d.format('YYYY-MM-DD')
+    if (d.day() === 0 || d.day() === 6 || closures.some((c) => c.startsOn === day)) continue
+    nonWorking.push({ start: close, end: iso(day, '08:30') })
+    close = iso(day, '17:00')
+  }
+  const folded = foldedStretches({ nonWorking, closures, window })
+
+  it('when the closed days are narrow columns, then each still has its date, in small type, and the open days theirs', () => {
+    // Shown, by hand: 16 open days of 8 h 30 min and 4 closed days of 3 h (09:00–12:00): 148 h over 666 px, 4.5 px an hour, so
+    // an open day is 38.25 px ("Mon 7" needs 5 × 7 + 8 = 43 px: the day's number alone) and a closed one 13.5 px, where "22"
+    // needs 2 × 7 + 8 = 22 px in ordinary type and 2 × 5.5 + 2 = 13 px in small type.
+    const range = opened(visibleWindow('month', '2026-12-09', TZ), folded)
+    expect(range).toEqual({ start: at('2026-12-07', '08:30'), end: at('2027-01-01', '12:00') })
+    const h = dayHeadings(axisScale(range, 666, folded), TZ, closures)
+    const r = (n: number) => Math.round(n * 100) / 100
+    expect(h.map((d) => [d.day, r(d.x), r(d.width), d.label, d.compact])).toEqual([
+      ['2026-12-07', 0, 38.25, '7', false],
+      ['2026-12-08', 38.25, 38.25, '8', false],
+      ['2026-12-09', 76.5, 38.25, '9', false],
+      ['2026-12-10', 114.75, 38.25, '10', false],
+      ['2026-12-11', 153, 38.25, '11', false],
+      ['2026-12-14', 191.25, 38.25, '14', false],
+      ['2026-12-15', 229.5, 38.25, '15', false],
+      ['2026-12-16', 267.75, 38.25, '16', false],
+      ['2026-12-17', 306, 38.25, '17', false],
+      ['2026-12-18', 344.25, 38.25, '18', false],
+      ['2026-12-21', 382.5, 38.25, '21', false],
+      ['2026-12-22', 420.75, 13.5, '22', true],
+      ['2026-12-23', 434.25, 38.25, '23', false],
+      ['2026-12-24', 472.5, 38.25, '24', false],
+      ['2026-12-25', 510.75, 13.5, '25', true],
+      ['2026-12-28', 524.25, 13.5, '28', true],
+      ['2026-12-29', 537.75, 38.25, '29', false],
+      ['2026-12-30', 576, 38.25, '30', false],
+      ['2026-12-31', 614.25, 38.25, '31', false],
+      ['2027-01-01', 652.5, 13.5, '1', true],
+    ])
+    expect(h.find((d) => d.day === '2026-12-25')!.title).toBe('Friday 25 December 2026 — Bank holiday: Christmas Day')
+    // Narrower still (600 px: 12.16 px a closed day, under the 13 px "22" needs in small type), no label: its title names the day.
+    const narrow = dayHeadings(axisScale(range, 600, folded), TZ, closures).find((d) => d.day === '2026-12-22')!
+    expect([narrow.label, narrow.title]).toEqual(['', 'Tuesday 22 December 2026 — Workshop closed: stocktake'])
+  })
+  it('when four weeks end on a closed Friday and a folded weekend, then they are named to that Friday, 1 January', () => {
+    expect(zoomRangeLabel('month', '2026-12-09', (d) => dayShown(d, TZ, folded))).toBe('W50–W53 · 7 Dec – 1 Jan 2027')
+    // With the whole clock, to the Sunday.
+    expect(zoomRangeLabel('month', '2026-12-09', () => true)).toBe('W50–W53 · 7 Dec – 3 Jan 2027')
   })
 })

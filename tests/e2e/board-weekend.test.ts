@@ -21,9 +21,15 @@ const e2e = useE2E()
 
 const days = (monday: string, n: number) => Array.from({ length: n }, (_, i) => dayjs(monday).add(i, 'day').format('YYYY-MM-DD'))
 
-async function openBoard(page: Page) {
+/** The board opened afresh, stepped on to the week of `monday` (on a Saturday someone works, it opens on that Saturday's week). */
+async function openBoard(page: Page, monday: string) {
   await page.goto('/plan')
   await boardSettled(page)
+  await expect.poll(async () => (await boardHeadings(page)).length, { timeout: 10_000 }).toBeGreaterThan(0)
+  for (let i = 0; i < 2 && (await boardHeadings(page))[0]!.day < monday; i++) {
+    await page.locator('[data-test=board-next]').click()
+    await boardSettled(page)
+  }
 }
 
 describe('weekends on the board', () => {
@@ -58,7 +64,7 @@ describe('weekends on the board', () => {
       weekPattern: [...workshops[0]!.weekPattern, { weekday: 6, start: '09:00', end: '13:00' }],
     })
     expect(own.status, JSON.stringify(own.body)).toBe(200)
-    await openBoard(manager)
+    await openBoard(manager, monday)
     await expect.poll(async () => (await boardHeadings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(days(monday, 6))
     const withHours = (await boardHeadings(manager)).find((h) => h.day === saturday)!
     // Her four hours are shown from 09:00, and half a weekday's 8 h 30 min (4 / 8.5 = 0.47) about as wide.
@@ -80,7 +86,7 @@ describe('weekends on the board', () => {
     })
     const back = await call(manager, 'PATCH', `/api/people/${who.id}`, { version: own.body.version, weekPattern: null })
     expect(back.status, JSON.stringify(back.body)).toBe(200)
-    await openBoard(manager)
+    await openBoard(manager, monday)
     await expect.poll(async () => (await boardHeadings(manager)).map((h) => h.day), { timeout: 10_000 }).toEqual(days(monday, 6))
     const [row] = await e2e.db.db.select({ start: s.operations.plannedStart }).from(s.operations).where(eq(s.operations.id, op.id))
     expect(new Date(row!.start!).toISOString()).toBe(dayjs.tz(`${saturday} 10:00`, TZ).toISOString())

@@ -1,5 +1,6 @@
 // The board's own time axis (pure): where an instant falls across the timeline when stretches are folded away (as vis-timeline
-// draws it), a heading for every day shown with closed days marked, hour ticks counted from each day's opening, and a drag's start.
+// draws it), a heading for every day shown with closed days marked, hour ticks counted from each day's opening, "now" when it
+// lies in folded time, and a drag's start.
 import dayjs from 'dayjs'
 import { dayStart, localDay } from '@/lib/board-calendar'
 
@@ -82,6 +83,8 @@ export interface DayHeading {
   x: number
   width: number
   label: string
+  /** The label is the date alone in the axis's small type: a day too narrow for it in ordinary type (a closed day in four weeks). */
+  compact: boolean
   /** The closure's name on a closed day, else null. */
   closed: string | null
   /** "closed" under the date of a closed day wide enough to say it (a narrower one shows only its shading). */
@@ -107,12 +110,15 @@ function daysOf(s: AxisScale, tz: string): { day: string; from: number; to: numb
 
 /** Characters of a label a width holds (our axis font: about 7 px a character, 8 px of padding). */
 const fits = (text: string, width: number) => text.length * 7 + 8 <= width
+/** The same in the axis's small type for the narrowest days (10 px figures drawn closer, under 5.5 px each; 2 px for the day's rule). */
+const fitsCompact = (text: string, width: number) => text.length * 5.5 + 2 <= width
 
 /**
  * A heading for every day with shown time, from where it starts on screen to where it ends (a day cut by the range's edge is
  * named from the edge); a closed day carries its closure's name. Labels take one form for all the days of ordinary width (the
- * longest every one of them holds), and a shorter one where a day is narrower (a closed day, a day cut by the edge); none
- * where not even the date fits.
+ * longest every one of them holds), and a shorter one where a day is narrower (a closed day, a day cut by the edge); where not
+ * even the date fits in ordinary type (a closed day's narrow column in four weeks), the date in small type; none where not even
+ * that fits (its title still names the day).
  */
 export function dayHeadings(s: AxisScale, tz: string, closures: Closure[]): DayHeading[] {
   const days = daysOf(s, tz)
@@ -132,17 +138,44 @@ export function dayHeadings(s: AxisScale, tz: string, closures: Closure[]): DayH
   return days.map((d) => {
     const closure = closureOn(closures, d.day)
     const label = d.labels[Math.max(common, longest(d))]!
+    // A clipped "25" reads "2": a label is whole or not there.
+    const compact = !fits(label, d.width) && fitsCompact(label, d.width)
     return {
       day: d.day,
       x: d.x,
       width: d.width,
-      // Where not even the date fits (a closed day's narrow column in four weeks), none: a clipped "25" reads "2". Its title names it.
-      label: fits(label, d.width) ? label : '',
+      label: fits(label, d.width) || compact ? label : '',
+      compact,
       closed: closure?.name ?? null,
       note: closure && fits('closed', d.width) ? 'closed' : null,
       title: `${d.date.format('dddd D MMMM YYYY')}${closure ? ` — ${closure.name}` : ''}`,
     }
   })
+}
+
+/** "Now" drawn where it lies in folded time: a marker at the fold's place, and what it says. */
+export interface FoldedNow {
+  x: number
+  title: string
+}
+
+/**
+ * "Now" while it lies in a folded stretch (a night, a weekend, a closure folded away), where that stretch meets the range shown:
+ * at the end of the last shown minute before it (the range's edge when the stretch lies at an edge). vis-timeline's own line
+ * would be drawn at the same place with nothing to say it is not that minute — on a Saturday, at Monday 08:30 of the week
+ * shown — so the marker names the time and the folded stretch. Null when now is shown time, or its stretch is not at the range.
+ */
+export function foldedNow(s: AxisScale, now: number, tz: string): FoldedNow | null {
+  const f = foldAt(s, now)
+  // The timeline steps its edges off a fold by a millisecond or so: a minute's slack.
+  if (!f || f.end < s.start - 60_000 || f.start > s.end + 60_000) return null
+  const x = Math.min(s.width, Math.max(0, xAt(s, f.start)))
+  const clock = (t: number) => dayjs(t).tz(tz)
+  const when = (t: number) => clock(t).format('ddd D MMM HH:mm')
+  return {
+    x,
+    title: `Now: ${clock(now).format('dddd D MMMM HH:mm')} — the workshop is shut, and ${when(f.start)} to ${when(f.end)} is folded away (untick Working hours only to see it).`,
+  }
 }
 
 export interface HourTick {

@@ -3,10 +3,22 @@ import dayjs from 'dayjs'
 import type { MoveInput } from '@shared/schemas/plan'
 import type { BoardData, BoardItem, JobState } from '@shared/schemas/board'
 import type { PlanMove } from '@shared/schemas/plan'
-import { dayStart, type ColourBy, type RowsBy } from '@/lib/board-calendar'
+import { dayStart, parseInstant, workedSpans, workWhileShut, type ColourBy, type RowsBy, type Span } from '@/lib/board-calendar'
 
 // The calendar arithmetic lives in src/lib so stores can use it without importing a component module.
-export { dataWindowFor, dayStart, localDay, shiftAnchor, visibleWindow, weekMonday, type ColourBy, type RowsBy, type Zoom } from '@/lib/board-calendar'
+export {
+  dataWindowFor,
+  dayStart,
+  localDay,
+  parseInstant,
+  shiftAnchor,
+  visibleWindow,
+  weekMonday,
+  workedSpans,
+  type ColourBy,
+  type RowsBy,
+  type Zoom,
+} from '@/lib/board-calendar'
 
 export type BarState = 'planned' | 'claimed' | 'running' | 'paused' | 'late' | 'done'
 
@@ -71,13 +83,6 @@ export interface TimelineBackground {
   type: 'background'
   editable: false
   selectable: false
-}
-
-/** Timestamps from the API: ISO 8601, or PostgreSQL's "2026-12-11 08:30:00+00". */
-export function parseInstant(s: string): Date {
-  let t = s.trim().replace(' ', 'T')
-  if (/[+-]\d{2}$/.test(t)) t += ':00'
-  return new Date(t)
 }
 
 /** Whether a visible range reaches beyond the loaded data window. */
@@ -214,8 +219,6 @@ export function barFor(item: BoardItem, o: BarOptions): TimelineBar {
   }
 }
 
-type Span = { start: number; end: number }
-
 /** Milliseconds of [a, b) the timeline shows: the folded stretches within it taken out. */
 function shownMs(a: number, b: number, folded: Span[]): number {
   let t = b - a
@@ -242,14 +245,6 @@ export function barPieces(item: Pick<BoardItem, 'start' | 'end' | 'segments'>, f
     if (b > a) out.push({ left: pct(shownMs(s, a, folds)), width: pct(shownMs(a, b, folds)) })
   }
   return out.length > 1 ? out : null
-}
-
-/** The stretches a bar really takes its row: its worked pieces when it pauses, else start to end (milliseconds). */
-export function workedSpans(item: Pick<BoardItem, 'start' | 'end' | 'segments'>): Span[] {
-  const s = parseInstant(item.start).getTime(),
-    e = parseInstant(item.end).getTime()
-  if (!item.segments || item.segments.length < 2) return [{ start: s, end: e }]
-  return item.segments.map((p) => ({ start: Math.max(s, parseInstant(p.start).getTime()), end: Math.min(e, parseInstant(p.end).getTime()) }))
 }
 
 /**
@@ -328,24 +323,6 @@ function toWholeHours(p: Span, tz: string): Span {
 }
 
 /**
- * Work in time the workshop is shut, by the day it begins on: the board's `shutWork` (someone's own hours, time recorded at a
- * bench, running work up to now) and planned bench work that starts while the workshop is shut (a step planned on a Saturday
- * the workshop has since stopped opening), each to the end of the day it starts on.
- */
-function workWhileShut(data: Partial<Pick<BoardData, 'shutWork' | 'items'>>, shut: Span[], tz: string): Span[] {
-  const out: Span[] = (data.shutWork ?? []).map((x) => ({ start: parseInstant(x.start).getTime(), end: parseInstant(x.end).getTime() }))
-  for (const i of data.items ?? []) {
-    if (i.outside || i.actual) continue
-    for (const p of workedSpans(i)) {
-      if (!shut.some((x) => x.start <= p.start && p.start < x.end)) continue
-      const dayEnd = dayStart(dayjs(p.start).tz(tz).add(1, 'day').format('YYYY-MM-DD'), tz).getTime()
-      out.push({ start: p.start, end: Math.min(p.end, dayEnd) })
-    }
-  }
-  return out.filter((p) => p.end > p.start)
-}
-
-/**
  * Long closed stretches (nights, weekends, closures) that "working hours only" folds away; short breaks stay shaded. A closed day
  * (a closure) keeps CLOSED_DAY_SHOWN unfolded, where its shading and heading say it is closed; work while the workshop is shut
  * (a Saturday someone works, by their own hours, a time record or a bar planned there) keeps its hours, widened to whole hours,
@@ -363,7 +340,7 @@ export function foldedStretches(
       const day = d.format('YYYY-MM-DD')
       kept.push({ start: dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.from}`, tz).valueOf(), end: dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.to}`, tz).valueOf() })
     }
-  if (tz) kept.push(...workWhileShut(data, shut, tz).map((p) => toWholeHours(p, tz)))
+  if (tz) kept.push(...workWhileShut(data, tz).map((p) => toWholeHours(p, tz)))
   const out: { start: Date; end: Date }[] = []
   for (const x of shut) {
     // Cut the kept parts out of the stretch; what is left folds when it is long enough.

@@ -65,13 +65,17 @@ export const wireInt = z.number().int()
 export const pageOf = <T extends z.ZodType>(item: T) =>
   z.object({ items: z.array(item), total: wireInt.nonnegative(), page: wireInt.positive(), pageSize: wireInt.positive() })
 
-// Plain-language messages for type errors everywhere ("is required", "must be a number").
+// Plain-language messages everywhere a schema gives none: type errors ("is required" for a value missing or emptied,
+// "must be a number", "must be a whole number") and a figure's limits ("must be at most 500"), which a form shows under the
+// field as the reason it is refused.
 z.config({
   customError: (issue) => {
     if (issue.code === 'invalid_type')
-      return issue.input === undefined
+      return issue.input === undefined || issue.input === null
         ? 'is required'
-        : `must be ${issue.expected === 'array' ? 'a list' : issue.expected === 'object' ? 'an object' : `a ${issue.expected}`}`
+        : `must be ${issue.expected === 'array' ? 'a list' : issue.expected === 'object' ? 'an object' : issue.expected === 'int' ? 'a whole number' : `a ${issue.expected}`}`
+    if (issue.code === 'too_big' && issue.origin === 'number') return `must be ${issue.inclusive ? 'at most' : 'less than'} ${String(issue.maximum)}`
+    if (issue.code === 'too_small' && issue.origin === 'number') return `must be ${issue.inclusive ? 'at least' : 'more than'} ${String(issue.minimum)}`
     if (issue.code === 'unrecognized_keys') return `has unknown field(s): ${issue.keys.join(', ')}`
     if (issue.code === 'invalid_value') return `must be one of: ${issue.values.map(String).join(', ')}`
     return undefined

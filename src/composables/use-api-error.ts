@@ -4,7 +4,7 @@ import type { ZodType, z } from 'zod'
 import { ApiError } from '@/api/client'
 
 /** "is required" → "Is required": field reasons read as short sentences under the field. */
-const sentence = (s: string) => (s ? s.charAt(0).toUpperCase() + s.slice(1) : s)
+export const sentence = (s: string) => (s ? s.charAt(0).toUpperCase() + s.slice(1) : s)
 
 /** Field path → reason, from zod issues (same keys the server uses: `steps.0.key`). */
 export function zodFieldErrors(error: z.ZodError): Record<string, string> {

@@ -1,10 +1,26 @@
-// The skills editor: adding, changing and removing skills emits the whole new list.
-import { describe, expect, it } from 'vitest'
-import { mount } from '@vue/test-utils'
+// The skills editor: adding, changing and removing skills emits the whole new list; a speed typed beyond the shared schema's
+// 0.3 to 3 stays as typed and the person's form refuses it under the row (it used to become 3 and be saved without a word).
+import { afterEach, describe, expect, it, vi } from 'vitest'
+import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
+import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { OperationKind } from '@shared/schemas/operation-kind'
-import type { SkillInput } from '@shared/schemas/person'
+import type { Person, SkillInput } from '@shared/schemas/person'
 import PeopleSkillsEditor from '@/components/people/PeopleSkillsEditor.vue'
+
+const api = vi.hoisted(() => ({ updatePerson: vi.fn() }))
+vi.mock('@/api/people', () => ({
+  listPeople: vi.fn(async () => []),
+  createPerson: vi.fn(),
+  updatePerson: api.updatePerson,
+  addLeave: vi.fn(),
+  removeLeave: vi.fn(),
+}))
+vi.mock('@/api/users', () => ({ listUsers: vi.fn(async () => []) }))
+vi.mock('@/api/workshop', () => ({ getWorkshop: vi.fn(async () => Promise.reject(new Error('not here'))), listClosures: vi.fn(async () => []) }))
+vi.stubGlobal('ElMessage', Object.assign(vi.fn(), { success: vi.fn(), error: vi.fn() }))
+const { default: PeopleEditDialog } = await import('@/components/people/PeopleEditDialog.vue')
+const { useKindsStore } = await import('@/stores/operation-kinds')
 
 const kind = (id: number, name: string, outside = false): OperationKind => ({
   id,
@@ -63,5 +79,47 @@ describe('PeopleSkillsEditor', () => {
     // Element Plus shows a form item's error after a short debounce.
     await new Promise((r) => setTimeout(r, 200))
     expect(w.find('[data-test=skill-row]').text()).toContain('Must be between 0.3 and 3')
+  })
+})
+
+describe('a skill’s speed in the person’s form', { timeout: 30_000 }, () => {
+  let d: VueWrapper | undefined
+  afterEach(() => {
+    d?.unmount()
+    d = undefined
+    document.body.innerHTML = ''
+    api.updatePerson.mockReset()
+  })
+  const PERSON: Person = {
+    id: 6,
+    version: 4,
+    name: 'Ines Farrow',
+    userId: null,
+    userEmail: null,
+    weekPattern: null,
+    active: true,
+    skills: [{ kindId: 2, level: 2, speed: 1 }],
+    leave: [],
+  }
+  const q = (sel: string) => document.body.querySelector<HTMLElement>(sel)
+
+  it('when a speed of 5 is typed and the person saved, then 5 stays, the row says it must be between 0.3 and 3, and nothing is sent', async () => {
+    const pinia = createPinia()
+    useKindsStore(pinia).items = KINDS
+    d = mount(PeopleEditDialog, { props: { open: true, person: PERSON }, attachTo: document.body, global: { plugins: [ElementPlus, pinia] } })
+    await flushPromises()
+    const input = q('[data-test=skill-speed] input') as HTMLInputElement
+    input.value = '5'
+    input.dispatchEvent(new Event('input'))
+    input.dispatchEvent(new Event('change'))
+    input.dispatchEvent(new FocusEvent('blur'))
+    await flushPromises()
+    expect(input.value).toBe('5.00')
+    ;(q('[data-test=person-save]') as HTMLButtonElement).click()
+    await flushPromises()
+    // Element Plus shows a form item's error after a short debounce.
+    await new Promise((r) => setTimeout(r, 200))
+    expect(q('[data-test=skill-row]')?.textContent).toContain('Must be between 0.3 and 3')
+    expect(api.updatePerson).not.toHaveBeenCalled()
   })
 })

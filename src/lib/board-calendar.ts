@@ -70,14 +70,14 @@ export function workWhileShut(data: Pick<BoardData, 'nonWorking'> & Partial<Pick
  * The day the board opens on: today, or, while the workshop is shut (a night, a weekend, a closure), the day it next opens —
  * on a Saturday nobody works the coming week is the one to plan. A day someone works while the workshop is shut (`worked`:
  * `workWhileShut`, their own hours, a time record, a step planned then) is shown on the board, so the board stays on it.
- * `nonWorking` is the board's list of the workshop's shut stretches; a stretch running past `until` (the end of what was
+ * `worked` may be given as a function, called only when now is in a shut stretch. `nonWorking` is the board's list of the workshop's shut stretches; a stretch running past `until` (the end of what was
  * loaded) says nothing about when work resumes, so today stays.
  */
 export function openingDay(
   now: Date,
   tz: string,
   nonWorking: readonly { start: string; end: string }[],
-  o: { until?: Date; worked?: readonly Span[] } = {},
+  o: { until?: Date; worked?: readonly Span[] | (() => readonly Span[]) } = {},
 ): string {
   const t = now.getTime()
   const today = localDay(now, tz)
@@ -87,7 +87,9 @@ export function openingDay(
   if (o.until && end >= o.until.getTime()) return today
   const from = dayStart(today, tz).getTime(),
     to = dayStart(dayjs(today).add(1, 'day').format('YYYY-MM-DD'), tz).getTime()
-  if ((o.worked ?? []).some((w) => w.start < to && w.end > from)) return today
+  // Asked only while shut: working out the work in shut time walks every bar.
+  const worked = typeof o.worked === 'function' ? o.worked() : (o.worked ?? [])
+  if (worked.some((w) => w.start < to && w.end > from)) return today
   return localDay(end, tz)
 }
 

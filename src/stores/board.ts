@@ -81,7 +81,7 @@ export const useBoardStore = defineStore('board', () => {
    */
   const openingFor = (now: Date, d: BoardData) => {
     const tz = d.window.timeZone
-    return openingDay(now, tz, d.nonWorking, { until: dayStart(d.window.to, tz), worked: workWhileShut(d, tz) })
+    return openingDay(now, tz, d.nonWorking, { until: dayStart(d.window.to, tz), worked: () => workWhileShut(d, tz) })
   }
 
   // Reloads may overlap (events, window changes): only the newest answer is kept.

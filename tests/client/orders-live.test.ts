@@ -246,6 +246,122 @@ describe("an open order's forecast", () => {
   })
 })
 
+describe("an open order's job bag steps", () => {
+  const op = (id: number, seq: number, name: string, status: string): OrderDetail['jobBags'][number]['operations'][number] => ({
+    id,
+    jobBagId: 12,
+    seq,
+    key: `s${seq}`,
+    kindId: 1,
+    name,
+    status,
+    estimateMinutes: 60,
+    requiredLevel: 1,
+    waitAfterMinutes: 0,
+    leadDays: 0,
+    after: [],
+    plannedBenchId: null,
+    plannedPersonId: null,
+    plannedStart: null,
+    plannedEnd: null,
+    finishedAt: null,
+  })
+  const withSteps = (saw: string, file: string): OrderDetail => ({
+    ...detail,
+    jobBags: [
+      {
+        id: 12,
+        number: 'MG26-0007-1',
+        piece: 'Signet ring',
+        routingId: null,
+        params: { metal: 'gold-18ct', stoneCount: 0, stoneSizeMm: 0, sizeMm: 0, finish: 'polished', quantity: 1 },
+        status: 'in-work',
+        operations: [op(41, 0, 'Saw the shank', saw), op(42, 1, 'File the shank', file)],
+      },
+    ],
+  })
+  const states = (drawer: VueWrapper) =>
+    drawer.findAll('.ops .el-table__body tr').map((tr) =>
+      tr
+        .findAll('td')
+        .map((td) => td.text().trim())
+        .filter((_, i) => i === 1 || i === 5),
+    )
+  const mountDrawer = async () => {
+    ordersApi.getOrder.mockResolvedValue(withSteps('ready', 'pending'))
+    promiseApi.orderForecast.mockResolvedValue(forecast('on-time'))
+    w = mount(OrderDetailDrawer, {
+      props: { orderId: 7 },
+      global: {
+        plugins: [ElementPlus],
+        stubs: {
+          ElDrawer: { template: '<div><slot name="header" /><slot /></div>' },
+          OrderMoneyPanel: true,
+          OrderCostingPanel: true,
+          QuoteDialog: true,
+          FileGallery: true,
+          RouterLink: true,
+        },
+      },
+    })
+    await settle()
+    ordersApi.getOrder.mockClear()
+    return w
+  }
+
+  it('when a bench worker starts a step and then finishes it, then the drawer shows each state without being opened again', async () => {
+    const drawer = await mountDrawer()
+    expect(states(drawer)).toEqual([
+      [expect.stringContaining('Saw the shank'), 'ready'],
+      [expect.stringContaining('File the shank'), 'pending'],
+    ])
+    ordersApi.getOrder.mockResolvedValue(withSteps('running', 'pending'))
+    fire('operation:changed', { id: 41, version: 9, status: 'running' })
+    await settle()
+    expect(ordersApi.getOrder).toHaveBeenCalledWith(7)
+    expect(states(drawer).map((r) => r[1])).toEqual(['running', 'pending'])
+    ordersApi.getOrder.mockResolvedValue(withSteps('done', 'ready'))
+    fire('operation:changed', { id: 41, version: 10, status: 'done' })
+    fire('jobBag:changed', { id: 12, version: 5, status: 'in-work' })
+    await settle()
+    expect(states(drawer).map((r) => r[1])).toEqual(['done', 'ready'])
+  })
+
+  it('when a step is started while the office is changing the order’s terms, then the steps change and the terms typed stay', async () => {
+    const drawer = await mountDrawer()
+    const priority = drawer.findAllComponents({ name: 'ElSelect' })[1]!.vm as unknown as { $emit: (e: string, v: number) => void }
+    priority.$emit('update:modelValue', 5)
+    await flushPromises()
+    ordersApi.getOrder.mockResolvedValue({ ...withSteps('running', 'pending'), priority: 1, version: 2 })
+    fire('operation:changed', { id: 41, version: 9, status: 'running' })
+    await settle()
+    expect(states(drawer).map((r) => r[1])).toEqual(['running', 'pending'])
+    expect(drawer.findAllComponents({ name: 'ElSelect' })[1]!.props('modelValue')).toBe(5)
+  })
+
+  it('when a step of another order changes, then the drawer asks nothing', async () => {
+    await mountDrawer()
+    fire('operation:changed', { id: 99, version: 3, status: 'running' })
+    fire('jobBag:changed', { id: 30, version: 2, status: 'in-work' })
+    await settle()
+    expect(ordersApi.getOrder).not.toHaveBeenCalled()
+  })
+
+  it('when an answer for the steps comes after a newer one, then the newer states stay', async () => {
+    const drawer = await mountDrawer()
+    let answerOld: (d: OrderDetail) => void = () => undefined
+    ordersApi.getOrder.mockReturnValueOnce(new Promise<OrderDetail>((r) => (answerOld = r)))
+    fire('operation:changed', { id: 41, version: 9, status: 'running' })
+    await settle()
+    ordersApi.getOrder.mockResolvedValueOnce(withSteps('done', 'ready'))
+    fire('operation:changed', { id: 41, version: 10, status: 'done' })
+    await settle()
+    answerOld(withSteps('running', 'pending'))
+    await settle()
+    expect(states(drawer).map((r) => r[1])).toEqual(['done', 'ready'])
+  })
+})
+
 // The table the screens rely on: 'live-plan' comes from these events and no others (a new event must choose).
 describe('live-plan key', () => {
   it('when any event arrives, then only the events that change the live plan invalidate it', async () => {

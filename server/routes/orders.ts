@@ -1,7 +1,8 @@
-// Order routes: list, read, create with pieces, change.
+// Order routes: list, read, create with pieces, change, and the customer's own pieces an order holds.
 import { z } from 'zod'
 import { listQuery } from '../../shared/schemas/common'
 import { orderDetail, orderInput, orderSummaryPage, orderUpdate } from '../../shared/schemas/order'
+import { heldPiece } from '../../shared/schemas/metal'
 import { ORDER_STATUSES, type OrderStatus } from '../../shared/domain/status'
 import type { Role } from '../../shared/domain/roles'
 import { route } from '../lib/route'
@@ -38,6 +39,15 @@ export const orderRoutes = [
     params: idParam,
     response: orderDetail,
     handler: ({ deps, actor, params }) => orders.getOrder(deps.db, actor.workshopId, params.id),
+  }),
+  route({
+    method: 'get',
+    path: '/orders/:id/customers-metal',
+    roles: FRONT,
+    summary: "The customer's own pieces an order holds (what cancelling it hands back)",
+    params: idParam,
+    response: z.array(heldPiece),
+    handler: ({ deps, actor, params }) => orders.orderCustomersPieces(deps.db, actor.workshopId, params.id),
   }),
   route({
     method: 'post',

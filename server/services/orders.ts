@@ -12,7 +12,7 @@ import { dayjs } from '../lib/time'
 import { audit } from './audit'
 import { sendReadyNotice } from './mail'
 import { requireCustomerStonesBack } from './stones'
-import { deliverOrderMetal } from './metal'
+import { deliverOrderMetal, handBackCustomersPieces, heldCustomersPieces } from './metal'
 import { listForecasts } from './order-forecast'
 import { requireOwned, updateVersioned } from './versioned'
 import { LOCK } from '../lib/locks'
@@ -61,6 +61,12 @@ export async function listOrders(
     .offset((q.page - 1) * q.pageSize)
   const expected = await listForecasts({ db, cache }, workshopId, items)
   return { items: items.map((o) => ({ ...o, expected: expected.get(o.id) ?? null })), total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
+}
+
+/** The customer's own pieces an order holds in the workshop (what cancelling it hands back). */
+export async function orderCustomersPieces(db: Db, workshopId: number, id: number) {
+  await requireOwned(db, orders, 'Order', id, workshopId)
+  return heldCustomersPieces(db, workshopId, id)
 }
 
 export async function getOrder(db: Db, workshopId: number, id: number) {
@@ -233,8 +239,9 @@ async function onCurrentVersion(
 
 export async function updateOrder(deps: Deps, actor: Actor, id: number, input: OrderUpdate) {
   const { db, realtime } = deps
-  const { version: read, ...asSent } = input
+  const { version: read, handBack, ...asSent } = input
   let becameReady = false
+  let handedBack: Awaited<ReturnType<typeof handBackCustomersPieces>> = []
   const o = await db.transaction(async (tx) => {
     // Locked first, so a bench moving the order's status waits for this change rather than slipping in under it.
     const [stored] = await tx
@@ -244,18 +251,25 @@ export async function updateOrder(deps: Deps, actor: Actor, id: number, input: O
       .for('update')
     if (!stored) throw notFound('Order')
     const { version, values } = await onCurrentVersion(tx, id, stored, read, asSent)
+    const cancelled = (values.status ?? stored.status) === 'cancelled'
+    if (handBack && !cancelled) throw invalid('handBack', 'is recorded only with the order cancelled')
     if (values.status) await requireCustomerStonesBack(tx, actor.workshopId, id, values.status)
     if (values.dueDate !== undefined || values.promisedDate !== undefined) await refusePastDates(tx, actor.workshopId, values, stored)
     const o = await updateVersioned(tx, orders, 'Order', { id, workshopId: actor.workshopId, version, values: { ...values, updatedAt: new Date() } })
     await audit(tx, actor, 'update', 'order', id, values)
     // Collected: the finished pieces' metal leaves stock with them.
     if (values.status === 'collected') await deliverOrderMetal(tx, actor, id)
+    // Cancelled: the customer's own pieces go back to them, at the weights handed over (else as held). A cancelled order can
+    // hand back later too, a piece that was still at the bench when it was cancelled.
+    if (cancelled && (stored.status !== 'cancelled' || handBack)) handedBack = await handBackCustomersPieces(tx, actor, id, handBack)
     becameReady = values.status === 'ready' && stored.status !== 'ready'
     // With the job queue the notice is queued in this transaction: it goes out if and only if the change commits.
     if (becameReady && deps.jobs) await sendReadyNotice({ ...deps, db: tx as unknown as Db }, actor.workshopId, id)
     return o
   })
   realtime.emit(actor.workshopId, 'order:updated', { id, version: o.version })
+  for (const m of handedBack)
+    realtime.emit(actor.workshopId, 'metal:recorded', { id: m.id, kind: 'delivered', alloyId: m.alloyId, jobBagId: m.jobBagId, refiningLotId: null })
   // Without a queue (scripts): sent after commit; the outcome is kept in the outbox and never undoes the change.
   if (becameReady && !deps.jobs) await sendReadyNotice(deps, actor.workshopId, id).catch((err) => console.error('[mail] ready notice:', (err as Error).message))
   return getOrder(db, actor.workshopId, id)

@@ -11,6 +11,15 @@ export const grams = z
   .positive('must be more than 0 g')
   .max(100_000, 'must be at most 100000 g')
   .refine(twoDecimals, 'must have at most 2 decimals (0.01 g)')
+/**
+ * A weight in grams to the milligram: more than 0, at most 3 decimals, at most 100 kg. For a customer's piece handed back, whose
+ * weight is offered as the stock holds it (to the mg) and may be typed as weighed at the counter.
+ */
+export const gramsToMg = z
+  .number({ error: 'must be a weight in grams' })
+  .positive('must be more than 0 g')
+  .max(100_000, 'must be at most 100000 g')
+  .refine((g) => Math.abs(g * 1000 - Math.round(g * 1000)) < 1e-6, 'must have at most 3 decimals (1 mg)')
 /** A signed weight (stock count differences): not 0, at most 2 decimals. */
 export const signedGrams = z
   .number({ error: 'must be a weight in grams' })
@@ -356,6 +365,20 @@ export const stockRow = z.object({
   customersValueMinor: wireInt.nullable(),
 })
 export type StockRow = z.infer<typeof stockRow>
+/**
+ * A customer's own piece an order holds in the workshop: the piece of one of its job bags whose metal came from the customer, as
+ * last weighed back from the bench, not yet handed back or collected (the Metal screen's "Customers' own").
+ */
+export const heldPiece = z.object({
+  jobBagId: wireInt,
+  number: z.string(),
+  piece: z.string(),
+  alloyId: wireInt,
+  alloyName: z.string(),
+  weightMg: wireInt,
+  weightG: z.number(),
+})
+export type HeldPiece = z.infer<typeof heldPiece>
 export const tolerance = z.object({
   kindId: wireInt,
   code: z.string(),

@@ -3,6 +3,7 @@ import { z } from 'zod'
 import { ORDER_STATUSES } from '../domain/status'
 import { id, isoDate, isoDateTime, name, notes, pageOf, pastDateProblem, version, wireInt } from './common'
 import { RING_SCALES, ringSizeToIso } from '../domain/ring-size'
+import { gramsToMg } from './metal'
 
 export const METALS = ['silver-925', 'gold-9ct', 'gold-14k', 'gold-18ct', 'platinum-950', 'palladium-950', 'brass', 'copper', 'mixed'] as const
 /** What each metal is called on screen and on paper (the code above is only stored). */
@@ -76,6 +77,14 @@ export const orderUpdate = z.object({
   status: z.enum(ORDER_STATUSES).optional(),
   priceQuotedMinor: minorAmount.optional(),
   notes: z.string().max(2000).optional(),
+  /**
+   * With the order cancelled: the customer's own pieces handed back to them, each by job bag and alloy with its weight as handed
+   * over; a piece the order holds and not listed goes back at the weight held (services/metal/stock.ts handBackCustomersPieces).
+   */
+  handBack: z
+    .array(z.object({ jobBagId: id, alloyId: id, weightG: gramsToMg }))
+    .max(50, 'has too many pieces')
+    .optional(),
   version,
 })
 /**

@@ -69,5 +69,8 @@ export const useOrdersStore = defineStore('orders', () => {
     return o
   }
 
-  return { items, total, query, loading, refreshing, error, load, refresh, create, update, get: ordersApi.getOrder }
+  /** The customer's own pieces an order holds (what cancelling it hands back). */
+  const customersMetal = (id: number) => ordersApi.orderCustomersMetal(id)
+
+  return { items, total, query, loading, refreshing, error, load, refresh, create, update, get: ordersApi.getOrder, customersMetal }
 })

@@ -81,6 +81,7 @@ export const EXPECTED_ACCESS: Record<string, Access> = {
   'GET /orders/:id': FRONT,
   'POST /orders': FRONT,
   'PATCH /orders/:id': FRONT,
+  'GET /orders/:id/customers-metal': FRONT,
   // planning: the manager plans; the owner and sales look on (read-only board and load)
   'POST /plans/runs': ['manager'],
   'GET /plans/runs/:runId': ['manager'],

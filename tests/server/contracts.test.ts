@@ -126,6 +126,7 @@ describe('answers on the demo workshop', () => {
       201,
     )
     await call(manager, 'patch', '/orders/:id', `/orders/${order.id}`, { priority: 4, version: order.version })
+    await call(manager, 'get', '/orders/:id/customers-metal', `/orders/${order.id}/customers-metal`)
 
     const bags = await call(manager, 'get', '/job-bags', '/job-bags')
     expect(bags.length).toBeGreaterThan(0)

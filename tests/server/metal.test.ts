@@ -739,3 +739,131 @@ describe('the customers’ own metal', () => {
     expect(await stockOf()).toMatchObject({ balanceMg: 29_940, customersMg: 0, ownMg: 29_940, valueMinor: 149_700, customersValueMinor: 0 })
   })
 })
+
+describe('a cancelled order’s customer’s piece', () => {
+  /** An order of one piece, its bag, and the stock row of a fresh alloy with 30.00 g bought. */
+  async function repairWithStock(title: string) {
+    const alloy = await newAlloy()
+    const r = await as.sales.post('/api/orders', {
+      customerId: await firstCustomerId(t.db),
+      title,
+      dueDate: '2031-09-01',
+      pieces: [{ routingId: await firstRoutingId(t.db), piece: title }],
+    })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    const orderId = r.body.id as number
+    const bagId = r.body.jobBags[0].id as number
+    const post = async (path: string, body: Record<string, unknown>) => {
+      const x = await as.bench.post(path, { alloyId: alloy.id, personId, clientId: cid(), jobBagId: bagId, ...body })
+      expect(x.status, JSON.stringify(x.body)).toBe(201)
+    }
+    await as.owner.post('/api/metal/purchases', { alloyId: alloy.id, weightG: 30, clientId: cid() })
+    const stockOf = async () => (await as.owner.get('/api/metal/stock')).body.find((x: { alloyId: number }) => x.alloyId === alloy.id)
+    const cancel = async (body: Record<string, unknown> = {}) => {
+      const o = (await as.sales.get(`/api/orders/${orderId}`)).body
+      return as.sales.patch(`/api/orders/${orderId}`, { status: 'cancelled', version: o.version, ...body })
+    }
+    const handedBack = () =>
+      t.db
+        .select({ jobBagId: s.metalMovements.jobBagId, weightMg: s.metalMovements.weightMg, reason: s.metalMovements.reason })
+        .from(s.metalMovements)
+        .where(and(eq(s.metalMovements.kind, 'delivered'), eq(s.metalMovements.alloyId, alloy.id)))
+    return { alloy, orderId, bagId, post, stockOf, cancel, handedBack }
+  }
+
+  it('when a repair holding the customer’s 6.180 g ring is cancelled, then the ring is handed back at the weight held and leaves the customers’ own', async () => {
+    const r = await repairWithStock('Ring to repair, then not wanted')
+    // The ring comes in at 6.25 g, goes to the bench and is back at 6.18 g with 0.04 g of lemel.
+    await r.post('/api/metal/issues', { weightG: 6.25, source: 'customer' })
+    await r.post('/api/metal/returns', { weightG: 6.18, form: 'piece' })
+    await r.post('/api/metal/returns', { weightG: 0.04, form: 'lemel' })
+    // Hand-worked: 30 + 6.25 − 6.25 + 6.18 + 0.04 = 36.220 g in the workshop, 6.180 g of it the customer's ring.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 36_220, customersMg: 6_180, ownMg: 30_040 })
+    const held = await as.sales.get(`/api/orders/${r.orderId}/customers-metal`)
+    expect(held.status, JSON.stringify(held.body)).toBe(200)
+    expect(held.body).toEqual([expect.objectContaining({ jobBagId: r.bagId, alloyId: r.alloy.id, weightMg: 6_180, weightG: 6.18 })])
+    const cancelled = await r.cancel()
+    expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200)
+    // 36.220 − 6.180 = 30.040 g, all the workshop's own (the 30.00 g bought and the 0.04 g of lemel swept from the ring).
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 30_040, deliveredMg: 6_180, customersMg: 0, ownMg: 30_040 })
+    expect(await r.handedBack()).toEqual([{ jobBagId: r.bagId, weightMg: 6_180, reason: 'handed back to the customer, order cancelled' }])
+    expect((await as.sales.get(`/api/orders/${r.orderId}/customers-metal`)).body).toEqual([])
+    const moved = await t.db
+      .select({ id: s.metalMovements.id })
+      .from(s.metalMovements)
+      .where(and(eq(s.metalMovements.kind, 'delivered'), eq(s.metalMovements.alloyId, r.alloy.id)))
+    expect((await auditRows(t, 'metal-movement', moved[0]!.id))[0]).toMatchObject({
+      action: 'hand-back',
+      details: { orderId: r.orderId, jobBagId: r.bagId, weightMg: 6_180, heldMg: 6_180 },
+    })
+    // Saving the cancelled order again hands nothing back a second time.
+    const again = (await as.sales.get(`/api/orders/${r.orderId}`)).body
+    expect((await as.sales.patch(`/api/orders/${r.orderId}`, { notes: 'customer took it home', version: again.version })).status).toBe(200)
+    expect(await r.handedBack()).toHaveLength(1)
+  })
+
+  it('when the office weighs the ring at the counter at 6.175 g as it hands it back, then 6.175 g leaves stock', async () => {
+    const r = await repairWithStock('Ring weighed at the counter')
+    await r.post('/api/metal/issues', { weightG: 6.25, source: 'customer' })
+    await r.post('/api/metal/returns', { weightG: 6.18, form: 'piece' })
+    const cancelled = await r.cancel({ handBack: [{ jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 6.175 }] })
+    expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200)
+    // Hand-worked: 30 + 6.25 − 6.25 + 6.18 − 6.175 = 30.005 g left, none of it the customer's.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 30_005, deliveredMg: 6_175, customersMg: 0 })
+  })
+
+  it('when the hand-back names a piece the order does not hold, or comes without cancelling, then 400 says which and nothing leaves', async () => {
+    const r = await repairWithStock('Ring with a wrong hand-back')
+    await r.post('/api/metal/issues', { weightG: 6.25, source: 'customer' })
+    await r.post('/api/metal/returns', { weightG: 6.18, form: 'piece' })
+    const other = await newAlloy()
+    expectFieldError(
+      await r.cancel({ handBack: [{ jobBagId: r.bagId, alloyId: other.id, weightG: 6.18 }] }),
+      'handBack.0',
+      /not a customer’s piece this order holds/,
+    )
+    expectFieldError(
+      await r.cancel({
+        handBack: [
+          { jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 6.18 },
+          { jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 6.1 },
+        ],
+      }),
+      'handBack.1',
+      /twice/,
+    )
+    expectFieldError(await r.cancel({ handBack: [{ jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 6.1234 }] }), 'handBack.0.weightG', /3 decimals/)
+    const o = (await as.sales.get(`/api/orders/${r.orderId}`)).body
+    expectFieldError(
+      await as.sales.patch(`/api/orders/${r.orderId}`, { handBack: [{ jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 6.18 }], version: o.version }),
+      'handBack',
+      /only with the order cancelled/,
+    )
+    expect(await r.stockOf()).toMatchObject({ customersMg: 6_180, deliveredMg: 0 })
+    expect((await as.sales.get(`/api/orders/${r.orderId}`)).body.status).toBe('open')
+  })
+
+  it('when a new piece of the workshop’s own metal is cancelled, then its metal stays in stock', async () => {
+    const r = await repairWithStock('New ring not wanted')
+    await r.post('/api/metal/issues', { weightG: 8 })
+    await r.post('/api/metal/returns', { weightG: 7.6, form: 'piece' })
+    expect((await r.cancel()).status).toBe(200)
+    // 30 − 8 + 7.60 = 29.600 g, the workshop's to use again.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 29_600, deliveredMg: 0, ownMg: 29_600 })
+    expect(await r.handedBack()).toEqual([])
+  })
+
+  it('when the ring is still at the bench as the order is cancelled, then it is handed back once it comes back', async () => {
+    const r = await repairWithStock('Ring at the bench when cancelled')
+    await r.post('/api/metal/issues', { weightG: 6.25, source: 'customer' })
+    expect((await r.cancel()).status).toBe(200)
+    expect(await r.handedBack()).toEqual([])
+    await r.post('/api/metal/returns', { weightG: 6.2, form: 'piece' })
+    expect(await r.stockOf()).toMatchObject({ customersMg: 6_200 })
+    const o = (await as.sales.get(`/api/orders/${r.orderId}`)).body
+    const later = await as.sales.patch(`/api/orders/${r.orderId}`, { handBack: [{ jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 6.2 }], version: o.version })
+    expect(later.status, JSON.stringify(later.body)).toBe(200)
+    // 30 + 6.25 − 6.25 + 6.20 − 6.20 = 30.000 g.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 30_000, customersMg: 0, ownMg: 30_000 })
+  })
+})

@@ -1,14 +1,16 @@
 // Metal, stock: the balance of each alloy (bought, issued and returned, refining, adjustments, delivered) with its fine weight, of it
-// the customers' own pieces waiting to be collected, the value of the workshop's own at today's price, and finished pieces leaving
-// stock when their order is collected.
+// the customers' own pieces waiting to be collected, the value of the workshop's own at today's price, finished pieces leaving
+// stock when their order is collected, and a cancelled order's customer's pieces handed back.
 import { and, asc, eq, inArray, sql } from 'drizzle-orm'
-import { fineMg, mgToG } from '../../../shared/domain/metal'
-import { type StockRow } from '../../../shared/schemas/metal'
+import { fineMg, gToMg, mgToG } from '../../../shared/domain/metal'
+import { type HeldPiece, type StockRow } from '../../../shared/schemas/metal'
+import type { OrderUpdate } from '../../../shared/schemas/order'
 import type { Db, Tx } from '../../db/client'
 import { alloys, jobBags, metalMovements } from '../../db/schema/index'
+import { invalid } from '../../errors/app-error'
 import type { Actor } from '../../lib/route'
 import { audit } from '../audit'
-import { today, currentPrices } from './common'
+import { today, currentPrices, lockMetal } from './common'
 
 type Movement = typeof metalMovements.$inferSelect
 /**
@@ -187,6 +189,80 @@ export async function deliverOrderMetal(tx: Tx, actor: Actor, orderId: number): 
       .returning({ id: metalMovements.id })
     await audit(tx, actor, 'deliver', 'metal-movement', row!.id, { orderId, jobBagId: m.jobBagId, alloyId: m.alloyId, weightMg })
     written++
+  }
+  return written
+}
+
+// ---------------------------------------------------------------------------------------------------------------
+// A cancelled order's customer's pieces go back to them
+
+/**
+ * The customer's own pieces an order holds: for each of its job bags and alloys whose metal first came from the customer, the
+ * piece as last weighed back from the bench (corrections applied), not yet delivered — what the stock counts as the customers'
+ * own for that order. A piece last seen going out to the bench is at the bench, not held.
+ */
+export async function heldCustomersPieces(db: Tx, workshopId: number, orderId: number): Promise<HeldPiece[]> {
+  const rows = await db
+    .select({ m: metalMovements, number: jobBags.number, piece: jobBags.piece, alloyName: alloys.name })
+    .from(metalMovements)
+    .innerJoin(jobBags, eq(jobBags.id, metalMovements.jobBagId))
+    .innerJoin(alloys, eq(alloys.id, metalMovements.alloyId))
+    .where(and(eq(jobBags.orderId, orderId), eq(metalMovements.workshopId, workshopId), inArray(metalMovements.kind, ['issued', 'returned', 'delivered'])))
+    .orderBy(asc(metalMovements.recordedAt), asc(metalMovements.id))
+  const { effective, last, delivered, firstSource } = whereThePiecesAre(rows.map((r) => r.m))
+  const out: HeldPiece[] = []
+  for (const [key, m] of last) {
+    if (delivered.has(key) || firstSource.get(key) !== 'customer' || m.kind !== 'returned') continue
+    const weightMg = effective.get(m.id) ?? 0
+    if (weightMg <= 0) continue
+    const r = rows.find((x) => x.m.id === m.id)!
+    out.push({ jobBagId: m.jobBagId!, number: r.number, piece: r.piece, alloyId: m.alloyId, alloyName: r.alloyName, weightMg, weightG: mgToG(weightMg) })
+  }
+  return out.sort((a, b) => a.number.localeCompare(b.number) || a.alloyId - b.alloyId)
+}
+
+/**
+ * When an order is cancelled its customer's pieces go back to them: each piece it holds leaves stock as a 'delivered' row (the
+ * kind a collected piece leaves by), at the weight the office handed over (`given`, by job bag and alloy) or else at the weight
+ * held. A piece named that the order does not hold is refused (400 on `handBack.<i>`). Runs inside the order's transaction,
+ * after its row lock; returns the rows written, for their events after commit.
+ */
+export async function handBackCustomersPieces(
+  tx: Tx,
+  actor: Actor,
+  orderId: number,
+  given: NonNullable<OrderUpdate['handBack']> = [],
+): Promise<{ id: number; alloyId: number; jobBagId: number }[]> {
+  await lockMetal(tx, actor.workshopId)
+  const held = await heldCustomersPieces(tx, actor.workshopId, orderId)
+  const weighed = new Map<string, number>()
+  for (const [i, g] of given.entries()) {
+    const key = `${g.jobBagId}:${g.alloyId}`
+    if (!held.some((h) => `${h.jobBagId}:${h.alloyId}` === key)) throw invalid(`handBack.${i}`, 'is not a customer’s piece this order holds')
+    if (weighed.has(key)) throw invalid(`handBack.${i}`, 'names the same piece twice')
+    weighed.set(key, gToMg(g.weightG))
+  }
+  const at = new Date().toISOString()
+  const written: { id: number; alloyId: number; jobBagId: number }[] = []
+  for (const h of held) {
+    const weightMg = weighed.get(`${h.jobBagId}:${h.alloyId}`) ?? h.weightMg
+    const [row] = await tx
+      .insert(metalMovements)
+      .values({
+        workshopId: actor.workshopId,
+        alloyId: h.alloyId,
+        kind: 'delivered',
+        weightMg,
+        jobBagId: h.jobBagId,
+        personId: null,
+        operationId: null,
+        reason: 'handed back to the customer, order cancelled',
+        recordedBy: actor.userId,
+        recordedAt: at,
+      })
+      .returning({ id: metalMovements.id })
+    await audit(tx, actor, 'hand-back', 'metal-movement', row!.id, { orderId, jobBagId: h.jobBagId, alloyId: h.alloyId, weightMg, heldMg: h.weightMg })
+    written.push({ id: row!.id, alloyId: h.alloyId, jobBagId: h.jobBagId })
   }
   return written
 }

@@ -10,7 +10,8 @@ import { dayjs, formatDayWithYear } from '../lib/time'
 import { balanceReminder, money, quoteOffer } from '../mail/messages'
 import { minorToMajor } from '../../shared/domain/currency'
 import { storedVatTerms, vatFiguresOf, vatLine, vatNumberLine, vatTermsOf, type StoredVatTerms } from '../../shared/domain/vat'
-import { metalName } from '../../shared/schemas/order'
+import { metalName, type PieceParams } from '../../shared/schemas/order'
+import { worksOnCustomersPiece } from '../../shared/domain/metal'
 import { audit } from './audit'
 import { sendRecorded } from './mail'
 import { takeOrder } from './orders'
@@ -414,6 +415,24 @@ export async function quoteLink(deps: Deps, actor: Actor, id: number, amountMino
   })
 }
 
+/** Grams as the customer reads them: 6.2, 6.25, 12 (up to two decimals, no trailing zeros). */
+const gramsWords = (g: number) => g.toLocaleString('en-GB', { maximumFractionDigits: 2 })
+
+/**
+ * The quote's metal line on paper: the metal by its name and, when the piece's weight was estimated, about how much of it — in
+ * each piece of a run, or, on the customer's own piece (a repair, a resize), the metal added to it. Null when no metal is named.
+ */
+export function quoteMetalLine(d: { metal?: string; params?: Partial<PieceParams> }, customersPiece: boolean): string | null {
+  const code = d.metal || (d.params?.metalWeightG !== undefined ? d.params.metal : undefined)
+  if (!code) return null
+  const g = d.params?.metalWeightG
+  if (g === undefined) return `Metal: ${metalName(code)}`
+  const each = (d.params?.quantity ?? 1) > 1 ? ' each' : ''
+  return customersPiece
+    ? `Metal: ${metalName(code)}, about ${gramsWords(g)} g added to your piece${each}`
+    : `Metal: ${metalName(code)}, about ${gramsWords(g)} g${each}`
+}
+
 export async function quotePdf(db: Db, workshopId: number, id: number): Promise<Buffer> {
   const q = await getQuote(db, workshopId, id)
   const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
@@ -439,9 +458,21 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
     .moveDown()
   doc.fontSize(13).text(q.title).fontSize(11)
   if (q.description) doc.text(q.description)
-  const d = q.details as { metal?: string; stones?: { description: string; count?: number; carats?: number }[] }
-  // The metal by its name, not the code it is stored as; stones as "count × what".
-  if (d.metal) doc.text(`Metal: ${metalName(d.metal)}`)
+  const d = q.details as {
+    routingId?: number
+    metal?: string
+    params?: Partial<PieceParams>
+    stones?: { description: string; count?: number; carats?: number }[]
+  }
+  // The metal by its name, not the code it is stored as, with the piece's estimated weight; stones as "count × what".
+  const [routing] = d.routingId
+    ? await db
+        .select({ kind: s.routings.kind })
+        .from(s.routings)
+        .where(and(eq(s.routings.id, d.routingId), eq(s.routings.workshopId, workshopId)))
+    : []
+  const metal = quoteMetalLine(d, worksOnCustomersPiece(routing, d.params))
+  if (metal) doc.text(metal)
   for (const st of d.stones ?? []) doc.text(`Stones: ${st.count ? `${st.count} × ` : ''}${st.description}${st.carats ? `, ${st.carats} ct` : ''}`)
   if (q.promisedDate) doc.moveDown().text(`Ready by ${dayjs(q.promisedDate).format('D MMMM YYYY')}`)
   const c = q.confidence as { p80?: string } | null

@@ -34,6 +34,13 @@ const quoteDetailsShape = z.object({
         description: z.string().trim().min(1, 'is required').max(200),
         count: z.number().int().min(0).optional(),
         carats: z.number().min(0).optional(),
+        /** What one stone costs the workshop (minor units), for the estimated cost; never printed for the customer. */
+        costEachMinor: z
+          .number({ error: 'must be an amount' })
+          .int('must be whole minor units')
+          .min(0, 'must not be negative')
+          .max(100_000_000, 'is too large')
+          .optional(),
       }),
     )
     .max(100)

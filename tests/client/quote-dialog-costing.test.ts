@@ -136,6 +136,90 @@ describe('the estimated cost in the quote dialog', { timeout: 30_000 }, () => {
     )
   })
 
+  it('when a cost of one stone is typed on the stone row, then the estimate counts those stones at that cost and the quote keeps it', async () => {
+    api.estimateCost.mockResolvedValue(ESTIMATE)
+    api.updateQuote.mockResolvedValue(QUOTE)
+    // A quote written from the promise check for a piece set with 18 stones of 1.5 mm: one row of 18, no cost yet.
+    const pave = { ...params, stoneCount: 18, stoneSizeMm: 1.5 }
+    await open({ kind: 'edit', quote: { ...QUOTE, details: { ...QUOTE.details, params: pave, stones: [{ description: 'stones of 1.5 mm', count: 18 }] } } })
+    await settle()
+    // No cost: the row is sent as 18 stones whose cost is not known (the costing then says stone costs are missing).
+    expect(api.estimateCost).toHaveBeenLastCalledWith(
+      expect.objectContaining({ pieces: [expect.objectContaining({ stones: [{ count: 18, costEachMinor: null, customerOwned: false }] })] }),
+    )
+    const cost = el('quote-stone-cost-0')!.querySelector('input') ?? (el('quote-stone-cost-0') as HTMLInputElement)
+    ;(cost as HTMLInputElement).value = '12.50'
+    cost.dispatchEvent(new Event('input'))
+    await settle()
+    expect(api.estimateCost).toHaveBeenLastCalledWith({
+      pieces: [{ routingId: 11, piece: 'Fixture pendant', params: pave, stones: [{ count: 18, costEachMinor: 1250, customerOwned: false }] }],
+      priceQuotedMinor: 125_000,
+    })
+    el('quote-save')!.click()
+    await flushPromises()
+    expect(api.updateQuote).toHaveBeenCalledWith(
+      4,
+      expect.objectContaining({ details: expect.objectContaining({ stones: [{ description: 'stones of 1.5 mm', count: 18, costEachMinor: 1250 }] }) }),
+    )
+  })
+
+  it('when a quote kept with a stone’s cost is opened again, then the row shows it and the estimate counts it', async () => {
+    api.estimateCost.mockResolvedValue(ESTIMATE)
+    await open({
+      kind: 'edit',
+      quote: { ...QUOTE, details: { ...QUOTE.details, stones: [{ description: 'sapphire, 6 mm', count: 1, costEachMinor: 32_000 }] } },
+    })
+    await settle()
+    const cost = el('quote-stone-cost-0')!.querySelector('input') ?? (el('quote-stone-cost-0') as HTMLInputElement)
+    expect((cost as HTMLInputElement).value).toBe('320.00')
+    expect(api.estimateCost).toHaveBeenLastCalledWith(
+      expect.objectContaining({ pieces: [expect.objectContaining({ stones: [{ count: 1, costEachMinor: 32_000, customerOwned: false }] })] }),
+    )
+  })
+
+  it('when a quote is written on an order, then its stone row starts at the first piece’s cost of one stone and is that piece’s stones', async () => {
+    api.estimateCost.mockResolvedValue(ESTIMATE)
+    const bag = (id: number, piece: string, p: typeof params & { stoneCostEachMinor?: number }) => ({
+      id,
+      number: `MG26-0009-${id}`,
+      piece,
+      routingId: 11,
+      params: p,
+      status: 'waiting',
+      operations: [],
+    })
+    const ring = { ...params, stoneCount: 3, stoneSizeMm: 2, stoneCostEachMinor: 12_000 }
+    const order = {
+      id: 9,
+      number: 'MG26-0009',
+      customerId: 1,
+      customerName: 'Aldous Fenwright',
+      customerReference: 'C-001',
+      title: 'Ring and band',
+      dueDate: future,
+      promisedDate: null,
+      priority: 3,
+      status: 'open' as const,
+      priceQuotedMinor: 0,
+      currency: 'GBP',
+      notes: '',
+      version: 1,
+      jobBags: [bag(21, 'Trilogy ring', ring), bag(22, 'Plain band', params)],
+    }
+    await open({ kind: 'order', order })
+    await settle()
+    const cost = el('quote-stone-cost-0')!.querySelector('input') ?? (el('quote-stone-cost-0') as HTMLInputElement)
+    expect((cost as HTMLInputElement).value).toBe('120.00')
+    expect(api.estimateCost).toHaveBeenLastCalledWith(
+      expect.objectContaining({
+        pieces: [
+          { routingId: 11, piece: 'Trilogy ring', params: ring, stones: [{ count: 3, costEachMinor: 12_000, customerOwned: false }] },
+          { routingId: 11, piece: 'Plain band', params },
+        ],
+      }),
+    )
+  })
+
   it('when the quote names no routing, then no cost is estimated and the dialog says why', async () => {
     await open({ kind: 'edit', quote: { ...QUOTE, details: { metal: 'gold-18ct' } } })
     await settle()

@@ -210,27 +210,58 @@ describe('quote dates', () => {
   })
 })
 
+/** The quote's PDF as text, white space run together. */
+async function pdfText(quoteId: number): Promise<string> {
+  const r = await sales
+    .get(`/api/quotes/${quoteId}/pdf`)
+    .buffer(true)
+    .parse((res, cb) => {
+      const chunks: Buffer[] = []
+      res.on('data', (c: Buffer) => chunks.push(c))
+      res.on('end', () => cb(null, Buffer.concat(chunks)))
+    })
+  expect(r.status).toBe(200)
+  const parser = new PDFParse({ data: new Uint8Array(r.body as Buffer) })
+  const text = (await parser.getText()).text.replace(/\s+/g, ' ')
+  await parser.destroy()
+  return text
+}
+/** The first routing of a kind in the demo workshop. */
+const routingOfKind = async (kind: 'piece' | 'repair') =>
+  (await t.db.select({ id: s.routings.id }).from(s.routings).where(eq(s.routings.kind, kind)).orderBy(asc(s.routings.id)).limit(1))[0]!.id
+
 describe('quote states', () => {
   it('when the quote is printed, then its metal is named as the customer reads it and its stones as count × what', async () => {
     const q = await drafted({
       title: 'Pavé band',
-      details: { metal: 'gold-18ct', stones: [{ description: 'round diamonds of 1.5 mm', count: 18, carats: 0.25 }] },
+      details: { metal: 'gold-18ct', stones: [{ description: 'round diamonds of 1.5 mm', count: 18, carats: 0.25, costEachMinor: 4_567 }] },
     })
-    const r = await sales
-      .get(`/api/quotes/${q.id}/pdf`)
-      .buffer(true)
-      .parse((res, cb) => {
-        const chunks: Buffer[] = []
-        res.on('data', (c: Buffer) => chunks.push(c))
-        res.on('end', () => cb(null, Buffer.concat(chunks)))
-      })
-    expect(r.status).toBe(200)
-    const parser = new PDFParse({ data: new Uint8Array(r.body as Buffer) })
-    const text = (await parser.getText()).text.replace(/\s+/g, ' ')
-    await parser.destroy()
+    // The stones' cost is kept with the quote for its estimate, and never printed for the customer.
+    expect(q.details.stones).toEqual([{ description: 'round diamonds of 1.5 mm', count: 18, carats: 0.25, costEachMinor: 4_567 }])
+    const text = await pdfText(q.id)
     expect(text).toContain('Metal: 18 ct gold')
     expect(text).not.toContain('gold-18ct')
     expect(text).toContain('Stones: 18 × round diamonds of 1.5 mm, 0.25 ct')
+    expect(text).not.toContain('45.67')
+  })
+
+  it('when the quoted piece’s metal weight was estimated, then the PDF says about how much metal is in it', async () => {
+    const routingId = await routingOfKind('piece')
+    const one = await drafted({ title: 'Signet ring', details: { routingId, metal: 'gold-18ct', params: { metalWeightG: 6.2 } } })
+    expect(await pdfText(one.id)).toContain('Metal: 18 ct gold, about 6.2 g')
+    // A run of four cufflinks: the weight is of one piece.
+    const run = await drafted({ title: 'Cufflinks', details: { routingId, metal: 'silver-925', params: { metalWeightG: 12.25, quantity: 4 } } })
+    expect(await pdfText(run.id)).toContain('Metal: Sterling silver 925, about 12.25 g each')
+    // No weight estimated: the metal alone, as before.
+    const bare = await drafted({ title: 'Brooch', details: { routingId, metal: 'gold-9ct', params: {} } })
+    const text = await pdfText(bare.id)
+    expect(text).toContain('Metal: 9 ct gold')
+    expect(text).not.toMatch(/about [\d.]+ g/)
+  })
+
+  it('when a repair is quoted with the metal it adds, then the PDF says that metal is added to the customer’s piece', async () => {
+    const q = await drafted({ title: 'Claw retip', details: { routingId: await routingOfKind('repair'), metal: 'gold-18ct', params: { metalWeightG: 0.4 } } })
+    expect(await pdfText(q.id)).toContain('Metal: 18 ct gold, about 0.4 g added to your piece')
   })
 
   it('when a draft is changed, sent and accepted, then each step moves it on, and a sent quote can no longer be changed', async () => {

@@ -5,6 +5,7 @@ import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { Bench } from '@shared/schemas/bench'
+import { errorUnder, press, typeInto } from '../setup/form-fields'
 
 const BENCH: Bench = { id: 3, version: 2, name: 'Setting bench 1', kind: 'setting', capacity: 1, kindIds: [], active: true, notes: '', downtime: [] }
 const api = vi.hoisted(() => ({ updateBench: vi.fn() }))
@@ -28,49 +29,30 @@ afterEach(() => {
   api.updateBench.mockReset()
 })
 
-const q = (sel: string) => document.body.querySelector<HTMLElement>(sel)
 async function open() {
   w = mount(BenchEditDialog, { props: { open: true, bench: BENCH }, attachTo: document.body, global: { plugins: [ElementPlus, createPinia()] } })
   await flushPromises()
 }
-/** Types into the capacity and leaves it, as a user does. */
-async function typeCapacity(text: string) {
-  const input = q('[data-test=bench-capacity] input') as HTMLInputElement
-  input.value = text
-  input.dispatchEvent(new Event('input'))
-  input.dispatchEvent(new Event('change'))
-  input.dispatchEvent(new FocusEvent('blur'))
-  await flushPromises()
-  return input
-}
-async function pressSave() {
-  ;(q('[data-test=bench-save]') as HTMLButtonElement).click()
-  await flushPromises()
-  // The reason comes in with the field's transition.
-  await new Promise((r) => setTimeout(r, 100))
-  await flushPromises()
-}
-const errorUnder = (test: string) => q(`[data-test=${test}]`)?.closest('.el-form-item')?.querySelector('.el-form-item__error')?.textContent?.trim() ?? null
 
 describe('a bench’s capacity', { timeout: 30_000 }, () => {
   it('when 6 pieces at once are typed and the bench is saved, then 6 stays, the field says it must be at most 4, and nothing is sent until it is put right', async () => {
     await open()
-    expect((await typeCapacity('6')).value).toBe('6')
-    await pressSave()
+    expect((await typeInto('bench-capacity', '6')).value).toBe('6')
+    await press('bench-save')
     expect(errorUnder('bench-capacity')).toBe('Must be at most 4')
     expect(api.updateBench).not.toHaveBeenCalled()
     // Put right, it is saved as typed.
     api.updateBench.mockImplementation(async (_id: number, body: object) => ({ ...BENCH, ...body, version: 3 }))
-    await typeCapacity('3')
-    await pressSave()
+    await typeInto('bench-capacity', '3')
+    await press('bench-save')
     expect(api.updateBench).toHaveBeenCalledTimes(1)
     expect(api.updateBench.mock.calls[0]![1]).toMatchObject({ capacity: 3, version: 2 })
   })
 
   it('when 0 is typed, then 0 stays and the field says it must be at least 1, and nothing is sent', async () => {
     await open()
-    expect((await typeCapacity('0')).value).toBe('0')
-    await pressSave()
+    expect((await typeInto('bench-capacity', '0')).value).toBe('0')
+    await press('bench-save')
     expect(errorUnder('bench-capacity')).toBe('Must be at least 1')
     expect(api.updateBench).not.toHaveBeenCalled()
   })

@@ -6,6 +6,7 @@ import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { JobBagDetail, JobBagOperation } from '@shared/schemas/job-bag'
+import { errorUnder, press, typeIntoInput as typeInto } from '../setup/form-fields'
 
 const BAG: JobBagDetail = {
   id: 5,
@@ -88,23 +89,6 @@ async function open() {
   })
   await flushPromises()
 }
-/** Types into a field and leaves it, as a user does. */
-async function typeInto(sel: string, text: string) {
-  const input = q(sel) as HTMLInputElement
-  input.value = text
-  input.dispatchEvent(new Event('input'))
-  input.dispatchEvent(new Event('change'))
-  input.dispatchEvent(new FocusEvent('blur'))
-  await flushPromises()
-  return input
-}
-async function press(test: string) {
-  ;(q(`[data-test=${test}]`) as HTMLButtonElement).click()
-  await flushPromises()
-  // The reasons come in with the fields' transition.
-  await new Promise((r) => setTimeout(r, 100))
-  await flushPromises()
-}
 /** Opens "Add a step" and fills it in as a person does: the kind picked from the list, a name and why. */
 async function openAdd() {
   await press('add-step')
@@ -115,7 +99,6 @@ async function openAdd() {
   await typeInto('[data-test=add-name] input, input[data-test=add-name]', 'Second polish')
   await typeInto('[data-test=add-reason] input, input[data-test=add-reason]', 'scratch found at inspection')
 }
-const errorUnder = (test: string) => q(`[data-test=${test}]`)?.closest('.el-form-item')?.querySelector('.el-form-item__error')?.textContent?.trim() ?? null
 
 describe('the figures of a job bag’s steps', { timeout: 30_000 }, () => {
   it('when a step of 15000 minutes is added, then it is sent with 15000 minutes', async () => {

@@ -6,6 +6,7 @@ import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { RefiningLot, Tolerance } from '@shared/schemas/metal'
+import { typeInto } from '../setup/form-fields'
 
 const TOLERANCES: Tolerance[] = [{ kindId: 4, code: 'setting', name: 'Setting', tolerancePct: 1, isDefault: false, version: 2 }]
 const LOT: RefiningLot = {
@@ -53,16 +54,6 @@ afterEach(() => {
 })
 
 const q = (sel: string) => document.body.querySelector<HTMLElement>(sel)
-/** Types into a number field and leaves it, as a user does. */
-async function typeInto(test: string, text: string) {
-  const input = q(`[data-test=${test}] input`) as HTMLInputElement
-  input.value = text
-  input.dispatchEvent(new Event('input'))
-  input.dispatchEvent(new Event('change'))
-  input.dispatchEvent(new FocusEvent('blur'))
-  await flushPromises()
-  return input
-}
 
 describe('figures on the metal screen', { timeout: 30_000 }, () => {
   it('when the owner types a setting tolerance of 60 %, then 60 stays, it is said to be at most 50 %, and nothing is saved until it is put right', async () => {

@@ -7,6 +7,7 @@ import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { Routing } from '@shared/schemas/routing'
+import { errorUnder, press as pressButton, typeInto } from '../setup/form-fields'
 
 const ROUTING: Routing = {
   id: 1,
@@ -46,27 +47,6 @@ async function open() {
   item!.click()
   await flushPromises()
 }
-/** Types into a number field and leaves it, as a user does. */
-async function typeInto(test: string, text: string) {
-  const input = q(`[data-test=${test}] input`) as HTMLInputElement
-  input.value = text
-  input.dispatchEvent(new Event('input'))
-  input.dispatchEvent(new Event('change'))
-  input.dispatchEvent(new FocusEvent('blur'))
-  await flushPromises()
-  return input
-}
-/** Presses "Check the date", as a user does: the browser checks the form's fields itself before it sends it (unless told not to). */
-async function press() {
-  const button = q('[data-test=promise-check]') as HTMLButtonElement
-  expect(button.disabled).toBe(false)
-  button.click()
-  await flushPromises()
-  // The reasons come in with the fields' transition.
-  await new Promise((r) => setTimeout(r, 100))
-  await flushPromises()
-}
-const errorUnder = (test: string) => q(`[data-test=${test}]`)?.closest('.el-form-item')?.querySelector('.el-form-item__error')?.textContent?.trim() ?? null
 
 describe('the figures of a piece in the promise check', { timeout: 30_000 }, () => {
   it('when a size of 12.3 mm and a stone size of 1.3 mm are typed and the date is checked, then they are asked as typed', async () => {
@@ -75,7 +55,7 @@ describe('the figures of a piece in the promise check', { timeout: 30_000 }, () 
     expect((await typeInto('promise-size', '12.3')).value).toBe('12.3')
     await typeInto('promise-stone-size', '1.3')
     await typeInto('promise-stones', '7')
-    await press()
+    await pressButton('promise-check')
     expect(api.checkPromise).toHaveBeenCalledTimes(1)
     expect(api.checkPromise.mock.calls[0]![0]).toMatchObject({ routingId: 1, params: { sizeMm: 12.3, stoneSizeMm: 1.3, stoneCount: 7 } })
   })
@@ -84,7 +64,7 @@ describe('the figures of a piece in the promise check', { timeout: 30_000 }, () 
     await open()
     expect((await typeInto('promise-quantity', '600')).value).toBe('600')
     expect((await typeInto('promise-size', '400')).value).toBe('400.0')
-    await press()
+    await pressButton('promise-check')
     expect(errorUnder('promise-quantity')).toBe('Must be at most 500')
     expect(errorUnder('promise-size')).toBe('Must be at most 300 mm')
     expect(api.checkPromise).not.toHaveBeenCalled()
@@ -94,7 +74,7 @@ describe('the figures of a piece in the promise check', { timeout: 30_000 }, () 
     await open()
     expect((await typeInto('promise-quantity', '2.5')).value).toBe('2.5')
     await typeInto('promise-stones', '')
-    await press()
+    await pressButton('promise-check')
     expect(errorUnder('promise-quantity')).toBe('Must be a whole number')
     expect(errorUnder('promise-stones')).toBe('Is required')
     expect(api.checkPromise).not.toHaveBeenCalled()

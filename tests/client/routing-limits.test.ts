@@ -7,6 +7,7 @@ import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { Routing } from '@shared/schemas/routing'
+import { errorUnder, press, typeInto } from '../setup/form-fields'
 
 const ROUTING: Routing = {
   id: 4,
@@ -52,36 +53,17 @@ afterEach(() => {
   api.updateRouting.mockReset()
 })
 
-const q = (sel: string) => document.body.querySelector<HTMLElement>(sel)
 async function open() {
   w = mount(RoutingEditor, { props: { open: true, routing: ROUTING }, attachTo: document.body, global: { plugins: [ElementPlus, createPinia()] } })
   await flushPromises()
 }
-/** Types into a number field and leaves it, as a user does. */
-async function typeInto(test: string, text: string) {
-  const input = q(`[data-test=${test}] input`) as HTMLInputElement
-  input.value = text
-  input.dispatchEvent(new Event('input'))
-  input.dispatchEvent(new Event('change'))
-  input.dispatchEvent(new FocusEvent('blur'))
-  await flushPromises()
-  return input
-}
-async function pressSave() {
-  ;(q('[data-test=routing-save]') as HTMLButtonElement).click()
-  await flushPromises()
-  // The reasons come in with the fields' transition.
-  await new Promise((r) => setTimeout(r, 100))
-  await flushPromises()
-}
-const errorUnder = (test: string) => q(`[data-test=${test}]`)?.closest('.el-form-item')?.querySelector('.el-form-item__error')?.textContent?.trim() ?? null
 
 describe('the figures of a routing', { timeout: 30_000 }, () => {
   it('when a step of 12000 minutes with a wait of 20000 is typed and saved, then both stay as typed, each says why, and nothing is sent', async () => {
     await open()
     expect((await typeInto('step-base', '12000')).value).toBe('12000')
     expect((await typeInto('step-wait', '20000')).value).toBe('20000')
-    await pressSave()
+    await press('routing-save')
     expect(errorUnder('step-base')).toBe('Must be at most 10000')
     expect(errorUnder('step-wait')).toBe('Must be at most a week')
     expect(api.updateRouting).not.toHaveBeenCalled()
@@ -90,7 +72,7 @@ describe('the figures of a routing', { timeout: 30_000 }, () => {
   it('when a run’s rate of 40 % is typed and saved, then 40 stays, the field says it must be above 50 %, and nothing is sent', async () => {
     await open()
     expect((await typeInto('routing-learning-rate', '40')).value).toBe('40.0')
-    await pressSave()
+    await press('routing-save')
     expect(errorUnder('routing-learning-rate')).toBe('Must be above 0.5 (50 %)')
     expect(api.updateRouting).not.toHaveBeenCalled()
   })
@@ -98,7 +80,7 @@ describe('the figures of a routing', { timeout: 30_000 }, () => {
   it('when the run’s rate is emptied and saved, then the field says it is required and nothing is sent', async () => {
     await open()
     await typeInto('routing-learning-rate', '')
-    await pressSave()
+    await press('routing-save')
     expect(errorUnder('routing-learning-rate')).toBe('Is required')
     expect(api.updateRouting).not.toHaveBeenCalled()
   })

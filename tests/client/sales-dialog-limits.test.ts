@@ -6,6 +6,7 @@ import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { Routing } from '@shared/schemas/routing'
+import { typeInto } from '../setup/form-fields'
 
 const ROUTINGS: Routing[] = [
   { id: 1, code: 'signet', name: 'Signet ring', description: '', kind: 'piece', learningRate: null, resizesRing: false, steps: [], version: 1, warnings: [] },
@@ -70,21 +71,10 @@ async function openQuote(promisedDate: string) {
   await flushPromises()
 }
 
-/** Types into a number field and leaves it, as a user does. */
-async function typeInto(sel: string, text: string) {
-  const input = document.body.querySelector<HTMLInputElement>(`${sel} input`)!
-  input.value = text
-  input.dispatchEvent(new Event('input'))
-  input.dispatchEvent(new Event('change'))
-  input.dispatchEvent(new Event('blur'))
-  await flushPromises()
-  return input
-}
-
 describe('the quote dialog', () => {
   it('when a deposit of 120 % is typed and the quote saved, then 120 stays, the field says 0 to 100 %, and nothing is sent', async () => {
     await openQuote(dayFromToday(12))
-    const deposit = await typeInto('[data-test=quote-deposit-pct]', '120')
+    const deposit = await typeInto('quote-deposit-pct', '120')
     expect(deposit.value).toBe('120')
     q('[data-test=quote-save]')!.click()
     await shown()
@@ -97,7 +87,7 @@ describe('the quote dialog', () => {
     await openQuote(dayFromToday(12))
     q('[data-test=quote-stone-add]')!.click()
     await flushPromises()
-    const count = await typeInto('[data-test=quote-stone-count-0]', '2400')
+    const count = await typeInto('quote-stone-count-0', '2400')
     expect(count.value).toBe('2400')
   })
 })
@@ -110,7 +100,7 @@ describe('the take-an-order dialog', () => {
 
   it('when 600 pieces are typed and the order saved, then 600 stays, the field says at most 500, and no order is taken', async () => {
     await openOrder()
-    const qty = await typeInto('[data-test=order-quantity]', '600')
+    const qty = await typeInto('order-quantity', '600')
     expect(qty.value).toBe('600')
     q('[data-test=order-save]')!.click()
     await shown()
@@ -121,7 +111,7 @@ describe('the take-an-order dialog', () => {
 
   it('when a size of 320 mm is typed, then it stays and is refused under its field', async () => {
     await openOrder()
-    const size = await typeInto('[data-test=order-size]', '320')
+    const size = await typeInto('order-size', '320')
     expect(size.value).toBe('320.0')
     q('[data-test=order-save]')!.click()
     await shown()

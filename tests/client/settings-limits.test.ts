@@ -7,6 +7,7 @@ import { afterEach, describe, expect, it, vi } from 'vitest'
 import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
+import { errorUnder, press, typeInto } from '../setup/form-fields'
 
 const api = vi.hoisted(() => ({
   settings: {
@@ -52,16 +53,6 @@ async function open() {
   w = mount(SettingsView, { attachTo: document.body, global: { plugins: [ElementPlus, createPinia()], stubs: { RouterLink: true } } })
   await flushPromises()
 }
-/** Types into a number field and leaves it, as a user does. */
-async function typeInto(test: string, text: string) {
-  const input = document.body.querySelector<HTMLInputElement>(`[data-test=${test}] input`)!
-  input.value = text
-  input.dispatchEvent(new Event('input'))
-  input.dispatchEvent(new Event('change'))
-  input.dispatchEvent(new Event('blur'))
-  await flushPromises()
-  return input
-}
 /** Sends the form the button belongs to, as pressing it does. */
 async function save(test: string) {
   const button = document.body.querySelector<HTMLButtonElement>(`[data-test=${test}]`)!
@@ -72,17 +63,6 @@ async function save(test: string) {
   await new Promise((r) => setTimeout(r, 100))
   await flushPromises()
 }
-/** Presses the button, as a user does: a browser checks the form's fields itself before it sends it (unless told not to). */
-async function press(test: string) {
-  const button = document.body.querySelector<HTMLButtonElement>(`[data-test=${test}]`)!
-  expect(button.disabled, `${test} is enabled`).toBe(false)
-  button.click()
-  await flushPromises()
-  await new Promise((r) => setTimeout(r, 100))
-  await flushPromises()
-}
-const errorUnder = (test: string) =>
-  document.body.querySelector(`[data-test=${test}]`)?.closest('.el-form-item')?.querySelector('.el-form-item__error')?.textContent?.trim() ?? null
 
 describe('limits in the workshop settings', { timeout: 30_000 }, () => {
   it('when a VAT rate of 120 is typed and saved, then it stays 120, the field says it must be 0 to 100, and nothing is sent', async () => {

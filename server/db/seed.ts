@@ -512,6 +512,7 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
           priceQuotedMinor: pick ? 0 : Math.round(150 + rand() * 2400) * 100,
           // Under the workshop's VAT terms, as an order taken through the app is.
           ...storedVatTerms(w!),
+          depositPct: w!.depositPct,
           createdAt: opts.created,
         })
         .returning()

@@ -15,7 +15,7 @@ export async function workshopOf(db: Tx, workshopId: number) {
 }
 
 /**
- * An order's price and deposit in minor units: its accepted quote's, else the order's quoted price and the workshop's deposit %;
+ * An order's price and deposit in minor units: its accepted quote's, else the order's quoted price and the deposit % it was taken with;
  * with the VAT terms frozen with that price (the quote's, else the order's), never the workshop's as they are now.
  */
 export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
@@ -33,7 +33,8 @@ export async function orderTerms(db: Tx, workshopId: number, orderId: number) {
     .limit(1)
   // The order's own price is stored in minor units of the workshop's currency already: no conversion.
   const priceMinor = q ? q.priceMinor : o.priceQuotedMinor
-  const depositMinor = q ? q.depositMinor : Math.round((priceMinor * w.depositPct) / 100)
+  // Without a quote, the deposit % kept with the order when it was taken (the workshop's default only for a row without one).
+  const depositMinor = q ? q.depositMinor : Math.round((priceMinor * (o.depositPct ?? w.depositPct)) / 100)
   const vatStored = storedVatTerms(q ?? o)
   return { order: o, quote: q ?? null, currency: q?.currency ?? w.currency, priceMinor, depositMinor, vatStored, vat: vatTermsOf(vatStored) }
 }

@@ -182,7 +182,7 @@ export async function takeOrder<T>(
     const [w] = await tx.select().from(workshops).where(eq(workshops.id, actor.workshopId))
     const [o] = await tx
       .insert(orders)
-      .values({ workshopId: actor.workshopId, number, ...values, ...storedVatTerms(vat ?? w!) })
+      .values({ workshopId: actor.workshopId, number, ...values, ...storedVatTerms(vat ?? w!), depositPct: w!.depositPct })
       .returning()
     for (const [i, p] of pieces.entries()) await addJobBag(tx, actor.workshopId, o!.id, number, i, p)
     await audit(tx, actor, 'create', 'order', o!.id, { number, pieces: pieces.length })

@@ -149,6 +149,8 @@ export async function orderMoney(db: Tx, workshopId: number, orderId: number) {
     .where(and(eq(s.paymentLinks.workshopId, workshopId), eq(s.paymentLinks.orderId, orderId)))
     .orderBy(asc(s.paymentLinks.id))
   const paidMinor = paidOf(payments)
+  // A cancelled order asks for nothing more (the Money page's "owed by customers" leaves it out too).
+  const cancelled = t.order.status === 'cancelled'
   return {
     orderId,
     orderNumber: t.order.number,
@@ -156,8 +158,9 @@ export async function orderMoney(db: Tx, workshopId: number, orderId: number) {
     priceMinor: t.priceMinor,
     depositMinor: t.depositMinor,
     paidMinor,
-    owedMinor: Math.max(0, t.priceMinor - paidMinor),
+    owedMinor: cancelled ? 0 : Math.max(0, t.priceMinor - paidMinor),
     depositPaid: paidMinor >= t.depositMinor,
+    cancelled,
     vat: vatFiguresOf(t.priceMinor, t.vat),
     quoteId: t.quote?.id ?? null,
     payments,

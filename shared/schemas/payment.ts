@@ -96,8 +96,11 @@ export const orderMoney = z.object({
   depositMinor: wireInt,
   /** Net of refunds; payments waiting to be refunded do not count. */
   paidMinor: wireInt,
+  /** Nothing is owed on a cancelled order: what was paid on it is for the office to refund or keep, never to collect more. */
   owedMinor: wireInt,
   depositPaid: z.boolean(),
+  /** The order was cancelled: nothing more is asked of the customer. */
+  cancelled: z.boolean().optional(),
   /** The VAT in the price. */
   vat: vatFigures,
   quoteId: wireInt.nullable(),

@@ -94,6 +94,11 @@ export const orders = pgTable(
     priceQuotedMinor: integer().notNull().default(0),
     /** The VAT terms it was made under (from a quote: the quote's), which its money and the customer's e-mails say. */
     ...frozenVatTerms(),
+    /**
+     * The deposit asked, in % of the price, as the workshop's default stood when the order was taken (an order priced by a quote
+     * asks the quote's deposit instead), so changing the default later never changes what an order already taken asks.
+     */
+    depositPct: integer(),
     notes: text().notNull().default(''),
     version: version(),
     createdAt: createdAt(),

@@ -1,10 +1,14 @@
 // The quote and order dialogs before sending: every missing field said at once, one reason per field, an empty date said as
-// such, days gone refused under their field, and a quote's valid-until day proposed no later than its promised date.
+// such, days gone refused under their field, and a quote's valid-until day proposed no later than its promised date. Their
+// number fields: a figure typed beyond its limits stays as typed and is refused under its field (never cut to the limit on
+// leaving the field and sent so), and nothing is sent. The limits are the shared schemas' (a deposit is a share of the price,
+// 0 to 100 %; an order's piece: at most 500 pieces, 2000 stones, stones of 30 mm, a size of 300 mm).
 import { afterEach, describe, expect, it, vi } from 'vitest'
 import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { Routing } from '@shared/schemas/routing'
+import { typeInto } from '../setup/form-fields'
 
 const ROUTINGS: Routing[] = [
   { id: 1, code: 'signet', name: 'Signet ring', description: '', kind: 'piece', learningRate: null, resizesRing: false, steps: [], version: 1, warnings: [] },
@@ -145,6 +149,55 @@ describe('the take-an-order dialog', () => {
     const r = reasons()
     expect(r['Due (the customer needs it by)']).toEqual(['Must be today or later'])
     expect(r['Promised date (optional)']).toEqual(['Must be today or later'])
+    expect(ordersApi.createOrder).not.toHaveBeenCalled()
+  })
+})
+
+describe('the quote dialog’s number fields', () => {
+  it('when a deposit of 120 % is typed and the quote saved, then 120 stays, the field says 0 to 100 %, and nothing is sent', async () => {
+    await openQuote(dayFromToday(12))
+    const deposit = await typeInto('quote-deposit-pct', '120')
+    expect(deposit.value).toBe('120')
+    q('[data-test=quote-save]')!.click()
+    await shown()
+    expect(deposit.value).toBe('120')
+    expect(reasons()['Deposit asked (% of the price)']).toEqual(['Must be 0 to 100 % of the price'])
+    expect(quotesApi.createQuote).not.toHaveBeenCalled()
+  })
+
+  it('when 2400 stones are typed on a stone row, then 2400 stays (a quote sets no upper limit on stones)', async () => {
+    await openQuote(dayFromToday(12))
+    q('[data-test=quote-stone-add]')!.click()
+    await flushPromises()
+    const count = await typeInto('quote-stone-count-0', '2400')
+    expect(count.value).toBe('2400')
+  })
+})
+
+describe('the take-an-order dialog’s number fields', () => {
+  async function openOrder() {
+    w = mount(OrderTakeDialog, { props: { open: true }, attachTo: document.body, global: { plugins: [ElementPlus, createPinia()] } })
+    await flushPromises()
+  }
+
+  it('when 600 pieces are typed and the order saved, then 600 stays, the field says at most 500, and no order is taken', async () => {
+    await openOrder()
+    const qty = await typeInto('order-quantity', '600')
+    expect(qty.value).toBe('600')
+    q('[data-test=order-save]')!.click()
+    await shown()
+    expect(qty.value).toBe('600')
+    expect(reasons().Quantity).toEqual(['Must be at most 500'])
+    expect(ordersApi.createOrder).not.toHaveBeenCalled()
+  })
+
+  it('when a size of 320 mm is typed, then it stays and is refused under its field', async () => {
+    await openOrder()
+    const size = await typeInto('order-size', '320')
+    expect(size.value).toBe('320.0')
+    q('[data-test=order-save]')!.click()
+    await shown()
+    expect(reasons()['Size (mm)']).toEqual(['Must be at most 300 mm'])
     expect(ordersApi.createOrder).not.toHaveBeenCalled()
   })
 })

@@ -5,6 +5,7 @@ import {
   medianAbsoluteDeviation,
   quantile,
   ratioOfMedians,
+  ratioBelieved,
   routingStepMinutes,
   sizeBandOf,
   SIZE_BANDS,
@@ -45,6 +46,9 @@ import type { Actor, Deps } from '../lib/route'
 import { dayjs } from '../lib/time'
 import { audit } from './audit'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
+
+/** Whether a finished operation's actual ÷ estimate is inside the believed band (shared/domain/estimate.ts). */
+const believed = (o: Pick<FinishedOperation, 'estimateMinutes' | 'actualMinutes'>): boolean => ratioBelieved(o.actualMinutes / o.estimateMinutes)
 import { updateVersioned } from './versioned'
 
 /** Fewer finished operations than this: no learned figure, a three-point estimate instead. */
@@ -182,11 +186,15 @@ const r2 = (n: number) => Math.round(n * 100) / 100
 const r3 = (n: number) => Math.round(n * 1000) / 1000
 const halfMinute = (n: number) => Math.round(n * 2) / 2
 
-/** n, date range and spread (quartiles and MAD of the given ratios) of the history behind a figure. */
-export function historyOf(ops: readonly Pick<FinishedOperation, 'finishedAt'>[], ratios: readonly number[]): History {
+/**
+ * n, date range and spread (quartiles and MAD of the given ratios) of the history behind a figure, and how many finished operations
+ * of the same group were left out of it (actual ÷ estimate outside the believed band, as in every Insights table).
+ */
+export function historyOf(ops: readonly Pick<FinishedOperation, 'finishedAt'>[], ratios: readonly number[], leftOut = 0): History {
   const dates = ops.map((o) => o.finishedAt).sort()
   return {
     n: ops.length,
+    leftOut,
     from: dates[0]?.slice(0, 10) ?? null,
     to: dates[dates.length - 1]?.slice(0, 10) ?? null,
     spread: ratios.length
@@ -234,6 +242,7 @@ function kindFigure(
   kind: { id: number; code: string; name: string },
   ops: FinishedOperation[],
   stepsOf: (o: FinishedOperation) => { baseMinutes: number; perStoneMinutes: number } | null,
+  leftOut = 0,
 ): KindFigure {
   const ratios = ops.map((o) => (o.actualMinutes * o.speed) / o.estimateMinutes).filter((x) => Number.isFinite(x) && x > 0)
   const est = ops.filter((o) => o.estimateMinutes > 0)
@@ -272,13 +281,17 @@ function kindFigure(
     perStoneMinutes: perStone,
     extraBaseMinutes: extra,
     sizeBands,
-    history: historyOf(ops, ratios),
+    history: historyOf(ops, ratios, leftOut),
   }
 }
 
 /** Everything learned from finished work: per kind, per person, and per routing step with suggestions. */
 export async function learnEstimates(db: Db, workshopId: number, filter: InsightFilter = {}): Promise<LearnedEstimates> {
-  const ops = await finishedOperations(db, workshopId, filter)
+  // A record left running for days or started and finished within seconds teaches nothing about the work: learned figures rest
+  // only on operations whose actual ÷ estimate is believed (as the promise check's and Insights' tables), and say how many were not.
+  const all = await finishedOperations(db, workshopId, filter)
+  const ops = all.filter(believed)
+  const outOf = (keep: (o: FinishedOperation) => boolean) => all.filter((o) => keep(o) && !believed(o)).length
   const kinds = await db
     .select()
     .from(operationKinds)
@@ -305,9 +318,10 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
         k,
         ops.filter((o) => o.kindId === k.id),
         stepOf,
+        outOf((o) => o.kindId === k.id),
       ),
     )
-    .filter((k) => k.history.n > 0)
+    .filter((k) => k.history.n + k.history.leftOut > 0)
 
   const staff = await db.select({ id: people.id, name: people.name }).from(people).where(eq(people.workshopId, workshopId)).orderBy(asc(people.name))
   const skills = staff.length
@@ -329,7 +343,11 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
       personId: p.id,
       name: p.name,
       speed: ratios.length ? r3(median(ratios)) : null,
-      history: historyOf(mine, ratios),
+      history: historyOf(
+        mine,
+        ratios,
+        outOf((o) => o.personId === p.id && o.estimateMinutes > 0),
+      ),
       kinds: kindIds
         .map((kindId) => {
           const k = mine.filter((o) => o.kindId === kindId)
@@ -388,7 +406,11 @@ export async function learnEstimates(db: Db, workshopId: number, filter: Insight
         suggested,
         thin,
         unfitted: unfitted && !thin,
-        history: historyOf(mine, ratios),
+        history: historyOf(
+          mine,
+          ratios,
+          outOf((o) => o.routingId === t.id && o.key === s.key),
+        ),
       })
     }
   }

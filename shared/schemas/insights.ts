@@ -200,6 +200,8 @@ export type CostingTable = z.infer<typeof costingTable>
 /** How much history a learned figure rests on. */
 export const history = z.object({
   n: wireInt,
+  /** Finished operations of the same group left out of the figure: actual ÷ estimate outside BELIEVED_RATIO. */
+  leftOut: wireInt,
   from: z.string().nullable(),
   to: z.string().nullable(),
   spread: z.object({ q1: z.number(), median: z.number(), q3: z.number(), mad: z.number() }).nullable(),

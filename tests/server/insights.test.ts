@@ -704,7 +704,10 @@ describe('learning from actual times', () => {
     const r = await owner.get('/api/estimates/learned')
     const s = r.body.steps.find((x: { routingId: number }) => x.routingId === routing.body.id)
     expect(s.thin).toBe(false)
-    expect(s.history.n).toBe(20)
+    // Job 4 (6 stones): estimate 10 + 4 × 6 = 34 min, actual (20 + 6 × 6) ÷ 1.15 + 480 ≈ 528.7 min — 15.5 times the estimate, outside
+    // the believed band (a tenth to ten times), so it is left out as the Insights tables leave it out; job 15 (17 stones): estimate
+    // 78 min, actual 122 ÷ 1.15 + 620 ≈ 726.1 min — 9.3 times, kept (hand-computed). n = 19, one left out.
+    expect(s.history).toMatchObject({ n: 19, leftOut: 1 })
     // Theil–Sen (Sen 1968) ignores the two wild points; least squares would have put the rate near 8 (see tests/shared/estimate.test.ts).
     expect(s.suggested).toMatchObject({ method: 'theil-sen' })
     expect(Math.abs(s.suggested.perStoneMinutes - 6)).toBeLessThanOrEqual(0.25)
@@ -729,7 +732,7 @@ describe('learning from actual times', () => {
       to: { baseMinutes: s.suggested.baseMinutes, perStoneMinutes: s.suggested.perStoneMinutes },
       routingVersion: before.version + 1,
       acceptedBy: 'Margit Saale',
-      basis: { n: 20, method: 'theil-sen' },
+      basis: { n: 19, method: 'theil-sen' }, // the figure's own n: the left-out job is not part of what it rests on
     })
     const after = (await owner.get(`/api/routings/${routing.body.id}`)).body
     expect(after.version).toBe(before.version + 1)

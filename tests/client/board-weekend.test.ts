@@ -1,13 +1,14 @@
 // Weekends on the board: with the whole clock every day of the week has its heading and ticks, Saturday and Sunday included;
 // with working hours only a weekend nobody works in folds away, and one someone works in (the workshop's or a person's Saturday
 // hours, a time record, a bar planned there) shows like an open day, as wide as the hours kept. "Now" on a folded weekend is a
-// marker that says so; four weeks name every day shown, the narrow closed ones too, and run to their last day shown.
+// marker that says so; four weeks name every day shown, the narrow closed ones too (kept wide enough for their date however many
+// hours are open), and run to their last day shown.
 import { describe, expect, it } from 'vitest'
 import dayjs from 'dayjs'
 import utc from 'dayjs/plugin/utc'
 import timezone from 'dayjs/plugin/timezone'
 import { axisScale, dayHeadings, foldedNow, hourTicks } from '@/components/board/board-axis'
-import { dayShown, foldedStretches } from '@/components/board/board-vis'
+import { closedDayHours, dayShown, foldedStretches } from '@/components/board/board-vis'
 import { shiftAnchor, visibleWindow, zoomRangeLabel } from '@/lib/board-calendar'
 import type { BoardItem } from '@shared/schemas/board'
 
@@ -267,5 +268,69 @@ describe('four weeks with working hours only', () => {
     expect(zoomRangeLabel('month', '2026-12-09', (d) => dayShown(d, TZ, folded))).toBe('W50–W53 · 7 Dec – 1 Jan 2027')
     // With the whole clock, to the Sunday.
     expect(zoomRangeLabel('month', '2026-12-09', () => true)).toBe('W50–W53 · 7 Dec – 3 Jan 2027')
+  })
+})
+
+describe('four weeks of a workshop that works Saturdays, with working hours only', () => {
+  // Weeks 50–53 open Monday to Saturday 08:30–17:00, closed on the same four days as above: Tuesday 22 (stocktake), Friday 25,
+  // Monday 28 December and Friday 1 January. Saturday 26 December is open (Boxing Day's holiday is the Monday).
+  const closures = [
+    { name: 'Workshop closed: stocktake', startsOn: '2026-12-22', endsOn: '2026-12-22' },
+    { name: 'Bank holiday: Christmas Day', startsOn: '2026-12-25', endsOn: '2026-12-25' },
+    { name: 'Bank holiday: Boxing Day', startsOn: '2026-12-28', endsOn: '2026-12-28' },
+    { name: "Bank holiday: New Year's Day", startsOn: '2027-01-01', endsOn: '2027-01-01' },
+  ]
+  const nonWorking: { start: string; end: string }[] = []
+  let close = iso('2026-12-05', '17:00')
+  for (let d = dayjs('2026-12-07'); !d.isAfter(dayjs('2027-01-04')); d = d.add(1, 'day')) {
+    const day = d.format('YYYY-MM-DD')
+    if (d.day() === 0 || closures.some((c) => c.startsOn === day)) continue
+    nonWorking.push({ start: close, end: iso(day, '08:30') })
+    close = iso(day, '17:00')
+  }
+  const data = { nonWorking, closures, window }
+  const fourWeeks = visibleWindow('month', '2026-12-09', TZ)
+  const closedOf = (folded: { start: Date; end: Date }[], width: number) =>
+    dayHeadings(axisScale(opened(fourWeeks, folded), width, folded), TZ, closures)
+      .filter((d) => d.closed)
+      .map((d) => ({ day: d.day, width: Math.round(d.width * 100) / 100, label: d.label, compact: d.compact }))
+
+  it('when the closed days would keep three hours, then 666 px wide they are 11 px, too narrow for a date of two figures', () => {
+    // By hand: 20 open days (16 weekdays and 4 Saturdays) of 8 h 30 min = 170 h, and 4 closed days of 3 h = 12 h: 182 h over
+    // 666 px is 3.66 px an hour, so a closed day is 10.98 px, under the 13 px "22" needs in small type (only New Year's Day's
+    // one figure, 1 × 5.5 + 2 = 7.5 px, fits).
+    expect(closedOf(foldedStretches(data), 666).map((d) => [d.width, d.label])).toEqual([
+      [10.98, ''],
+      [10.98, ''],
+      [10.98, ''],
+      [10.98, '1'],
+    ])
+  })
+  it('when the board is 666 px wide, then a closed day keeps 5 h 15 min, is 18.3 px wide and carries its date', () => {
+    // By hand: a closed day of k hours is k × 666 ÷ (170 + 4k) px; 18 px needs k ≥ 18 × 170 ÷ (666 − 4 × 18) = 3060 ÷ 594 =
+    // 5.15 h, to the quarter hour 5 h 15 min: 5.25 × 666 ÷ 191 = 18.31 px (5 h would give 5 × 666 ÷ 190 = 17.53 px).
+    const hours = closedDayHours(data, fourWeeks, 666)
+    expect(hours).toBe(5.25)
+    const folded = foldedStretches(data, 4, hours)
+    // Kept from 09:00: Tuesday 22 December 09:00–14:15 lies between the folds either side.
+    expect(folded.find((f) => f.end.getTime() === at('2026-12-22', '09:00').getTime())).toBeTruthy()
+    expect(folded.find((f) => f.start.getTime() === at('2026-12-22', '14:15').getTime())).toBeTruthy()
+    // "22" in ordinary type needs 2 × 7 + 8 = 22 px: the small type; "1" needs 15 px: ordinary type.
+    expect(closedOf(folded, 666)).toEqual([
+      { day: '2026-12-22', width: 18.31, label: '22', compact: true },
+      { day: '2026-12-25', width: 18.31, label: '25', compact: true },
+      { day: '2026-12-28', width: 18.31, label: '28', compact: true },
+      { day: '2027-01-01', width: 18.31, label: '1', compact: false },
+    ])
+  })
+  it('when three hours already make a closed day wide enough (1400 px), or no day is closed, then it keeps its three hours', () => {
+    // 3 × 1400 ÷ 182 = 23.08 px.
+    expect(closedDayHours(data, fourWeeks, 1400)).toBe(3)
+    expect(closedDayHours({ ...data, closures: [] }, fourWeeks, 666)).toBe(3)
+  })
+  it('when the closed days could not all be 18 px wide (a closure over four weeks on a narrow board), then they keep the whole day', () => {
+    const closedAll = [{ name: 'Workshop closed: refit', startsOn: '2026-12-07', endsOn: '2027-01-03' }]
+    // 28 closed days × 18 px = 504 px, more than the 500 px there are: each keeps the whole day, and they share the width.
+    expect(closedDayHours({ ...data, closures: [...closures, ...closedAll] }, fourWeeks, 500)).toBe(24)
   })
 })

@@ -310,10 +310,17 @@ export function backgroundsFor(data: Pick<BoardData, 'nonWorking' | 'closures' |
   return out
 }
 
-/** The part of a closed day that "working hours only" keeps on the board, narrow, so the day shows as closed instead of vanishing. */
-export const CLOSED_DAY_SHOWN = { from: '09:00', to: '12:00' }
+/**
+ * The part of a closed day that "working hours only" keeps on the board, narrow, so the day shows as closed instead of vanishing:
+ * from 09:00, three hours unless the board needs more for the day's date to fit (`closedDayHours`).
+ */
+export const CLOSED_DAY_SHOWN = { from: '09:00', hours: 3 }
+
+/** The narrowest a closed day is drawn: room for its date (two figures) in the axis's small type, with the hatching either side. */
+export const CLOSED_DAY_MIN_PX = 18
 
 const HOUR = 3_600_000
+const QUARTER_HOUR = HOUR / 4
 
 /** A stretch widened to whole hours of the workshop's clock (09:10–12:40 → 09:00–13:00), so work kept on the board has room. */
 function toWholeHours(p: Span, tz: string): Span {
@@ -322,24 +329,38 @@ function toWholeHours(p: Span, tz: string): Span {
   return { start: s, end: e.startOf('hour').valueOf() === p.end ? p.end : e.startOf('hour').add(1, 'hour').valueOf() }
 }
 
+/** What "working hours only" works from: the board's shut stretches, its closures and the work done or planned while shut. */
+type FoldData = Pick<BoardData, 'nonWorking'> & Partial<Pick<BoardData, 'closures' | 'window' | 'shutWork' | 'items'>>
+
+/**
+ * The stretch of a closed day kept on the board: `hours` from CLOSED_DAY_SHOWN's 09:00, or, when that would run past midnight,
+ * the day's last `hours` (at most the whole day).
+ */
+function closedDayKept(day: string, tz: string, hours: number): Span {
+  const from = dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.from}`, tz).valueOf()
+  const midnight = dayStart(dayjs(day).add(1, 'day').format('YYYY-MM-DD'), tz).getTime()
+  const end = Math.min(midnight, from + hours * HOUR)
+  return { start: Math.max(dayStart(day, tz).getTime(), end - hours * HOUR), end }
+}
+
+/** The days of the closures, each once. */
+function closedDays(closures: readonly { startsOn: string; endsOn: string }[]): string[] {
+  const out = new Set<string>()
+  for (const c of closures) for (let d = dayjs(c.startsOn); !d.isAfter(dayjs(c.endsOn)); d = d.add(1, 'day')) out.add(d.format('YYYY-MM-DD'))
+  return [...out]
+}
+
 /**
  * Long closed stretches (nights, weekends, closures) that "working hours only" folds away; short breaks stay shaded. A closed day
- * (a closure) keeps CLOSED_DAY_SHOWN unfolded, where its shading and heading say it is closed; work while the workshop is shut
- * (a Saturday someone works, by their own hours, a time record or a bar planned there) keeps its hours, widened to whole hours,
- * so that day shows with its heading like an open one.
+ * (a closure) keeps `closedHours` (CLOSED_DAY_SHOWN's three by default) unfolded, where its shading and heading say it is closed;
+ * work while the workshop is shut (a Saturday someone works, by their own hours, a time record or a bar planned there) keeps its
+ * hours, widened to whole hours, so that day shows with its heading like an open one.
  */
-export function foldedStretches(
-  data: Pick<BoardData, 'nonWorking'> & Partial<Pick<BoardData, 'closures' | 'window' | 'shutWork' | 'items'>>,
-  minHours = 4,
-): { start: Date; end: Date }[] {
+export function foldedStretches(data: FoldData, minHours = 4, closedHours: number = CLOSED_DAY_SHOWN.hours): { start: Date; end: Date }[] {
   const tz = data.window?.timeZone
   const shut = data.nonWorking.map((x) => ({ start: parseInstant(x.start).getTime(), end: parseInstant(x.end).getTime() }))
   const kept: Span[] = []
-  for (const c of tz ? (data.closures ?? []) : [])
-    for (let d = dayjs(c.startsOn); !d.isAfter(dayjs(c.endsOn)); d = d.add(1, 'day')) {
-      const day = d.format('YYYY-MM-DD')
-      kept.push({ start: dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.from}`, tz).valueOf(), end: dayjs.tz(`${day} ${CLOSED_DAY_SHOWN.to}`, tz).valueOf() })
-    }
+  if (tz && closedHours > 0) for (const day of closedDays(data.closures ?? [])) kept.push(closedDayKept(day, tz, closedHours))
   if (tz) kept.push(...workWhileShut(data, tz).map((p) => toWholeHours(p, tz)))
   const out: { start: Date; end: Date }[] = []
   for (const x of shut) {
@@ -357,6 +378,38 @@ export function foldedStretches(
     for (const p of pieces) if (p.end - p.start >= minHours * HOUR) out.push({ start: new Date(p.start), end: new Date(p.end) })
   }
   return out
+}
+
+/**
+ * How many hours a closed day keeps on the board so that, across `range` drawn `width` pixels wide, each closed day in it is at
+ * least `minPx` wide (CLOSED_DAY_MIN_PX: room for its date): CLOSED_DAY_SHOWN's three hours when they are enough, else more, to
+ * the quarter hour. In four weeks the open hours share the width with the closed days, so the more hours are open (a workshop
+ * that works Saturdays) or the narrower the screen, the more a closed day keeps. With n closed days of k hours each and S of
+ * other shown time, a closed day is k × width ÷ (S + n × k) pixels, so k ≥ minPx × S ÷ (width − n × minPx); closed days
+ * that leave no room for the rest (n × minPx ≥ width) keep the whole day.
+ */
+export function closedDayHours(data: FoldData, range: { start: Date; end: Date }, width: number, minPx = CLOSED_DAY_MIN_PX): number {
+  const tz = data.window?.timeZone
+  const base = CLOSED_DAY_SHOWN.hours
+  if (!tz || width <= 0) return base
+  const a = range.start.getTime(),
+    b = range.end.getTime()
+  // The closed days whose kept hours lie in the range.
+  const n = closedDays(data.closures ?? []).filter((day) => {
+    const k = closedDayKept(day, tz, base)
+    return k.start < b && k.end > a
+  }).length
+  if (!n) return base
+  // The time shown besides them: the range less what folds when closed days keep nothing.
+  const others = shownMs(
+    a,
+    b,
+    foldedStretches(data, 4, 0).map((f) => ({ start: f.start.getTime(), end: f.end.getTime() })),
+  )
+  if (others <= 0) return base
+  if (n * minPx >= width) return 24
+  const need = (minPx * others) / (width - n * minPx)
+  return Math.min(24, Math.max(base, Math.ceil(need / QUARTER_HOUR) / 4))
 }
 
 /** Whether any of a day is shown: not wholly inside one folded stretch (or no stretches folded: the whole clock). */

@@ -86,6 +86,19 @@ export function workingTimeOver(
   return { open: subtract(expandPattern(clock, cal.weekPattern, days), closed), people }
 }
 
+/** A bench's working time: the workshop's open hours (from `workingTimeOver`) less the bench's downtime. */
+export function benchTimeOver(
+  clock: MinuteClock,
+  open: Interval[],
+  downtime: readonly Pick<typeof s.benchDowntime.$inferSelect, 'benchId' | 'startsAt' | 'endsAt'>[],
+  benchId: number,
+): Interval[] {
+  return subtract(
+    open,
+    downtime.filter((d) => d.benchId === benchId).map((d) => ({ start: clock.toMinute(d.startsAt), end: clock.toMinute(d.endsAt) })),
+  )
+}
+
 export async function loadPlanningData(db: Tx, workshopId: number, now: Date): Promise<PlanningData> {
   const [w] = await db.select().from(s.workshops).where(eq(s.workshops.id, workshopId))
   if (!w) throw new Error('workshop missing')
@@ -141,10 +154,7 @@ export async function loadPlanningData(db: Tx, workshopId: number, now: Date): P
   const benchModels = benches.map((b) => ({
     id: String(b.id),
     name: b.name,
-    available: subtract(
-      workshopHours,
-      downtime.filter((d) => d.benchId === b.id).map((d) => ({ start: clock.toMinute(d.startsAt), end: clock.toMinute(d.endsAt) })),
-    ),
+    available: benchTimeOver(clock, workshopHours, downtime, b.id),
   }))
   const personModels = people.map((p) => ({ id: String(p.id), name: p.name, available: working.people.get(String(p.id))! }))
   const joint = jointWindows({ benches: benchModels, people: personModels })

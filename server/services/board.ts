@@ -14,7 +14,7 @@ import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/wo
 import { jobRisk } from '../../shared/domain/job-risk'
 import { cachedOr, type Cache } from '../lib/cache'
 import { engineId, fromStored, type Assignments } from '../planning/assignments'
-import { loadPlanningData, workingTimeOver, type PlanningData } from '../planning/problem'
+import { benchTimeOver, loadPlanningData, workingTimeOver, type PlanningData } from '../planning/problem'
 import { getPlan, readDraft } from '../planning/drafts'
 import { checkLivePlan, readLivePlan, retimeLivePlan } from '../planning/live-plan'
 import type { RuleViolation } from '../../shared/domain/rules'
@@ -651,6 +651,11 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
     }
   })
   const minutesIn = (list: Interval[], iv: { start: number; end: number }) => clipToWindows(list, iv.start, iv.end).reduce((t, x) => t + x.end - x.start, 0)
+  // Available time comes from the workshop's calendar over the days asked, as the board's folds do (`windowCalendar`), not from
+  // the planning data's, which runs from this Monday to its horizon: weeks gone by and weeks past the horizon have their hours too.
+  const cal = workingTimeOver(c, { ...data.meta, people: data.meta.people.values() }, days)
+  const benchTime = new Map(data.problem.benches.map((b) => [b.id, benchTimeOver(c, cal.open, data.meta.downtime, Number(b.id))]))
+  const personTime = (id: string) => cal.people.get(id) ?? []
 
   type Cell = { day: string; week: string; plannedMinutes: number; availableMinutes: number; operationIds: number[] }
   type Row = { type: 'bench' | 'skill' | 'person'; id: number; name: string; cells: Cell[] }
@@ -690,7 +695,7 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
       name: b.name,
       cells: cellsOf(
         (w) => w.benchId === b.id,
-        (iv) => minutesIn(b.available, iv),
+        (iv) => minutesIn(benchTime.get(b.id)!, iv),
       ),
     })
   const span = { start: dayIv[0]?.start ?? 0, end: dayIv[dayIv.length - 1]?.end ?? 0 }
@@ -703,7 +708,7 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
       .filter((p) => holders.has(p.id))
       .map((p) =>
         subtract(
-          clipToWindows(p.available, span.start, span.end),
+          clipToWindows(personTime(p.id), span.start, span.end),
           [...worked.values()].filter((w) => w.personId === p.id && w.kindId !== k.id).flatMap((w) => clipToWindows(w.pieces, span.start, span.end)),
         ),
       )
@@ -724,14 +729,16 @@ export async function weekLoad(db: Db, workshopId: number, o: { from: string; to
       name: p.name,
       cells: cellsOf(
         (w) => w.personId === p.id,
-        (iv) => minutesIn(p.available, iv),
+        (iv) => minutesIn(personTime(p.id), iv),
       ),
     })
   const weeks = [...new Set(dayIv.map((d) => d.week))].map((week) => ({ week, days: dayIv.filter((d) => d.week === week).map((d) => d.day) }))
   // Said only when some of today's working time (any bench or person) is already past: before opening, today counts in full.
   const today = dayIv.find((d) => d.start === nowMin)
   const dayStart = today ? c.at(today.day) : nowMin
-  const pastToday = !!today && [...data.problem.benches, ...data.problem.people].some((r) => minutesIn(r.available, { start: dayStart, end: nowMin }) > 0)
+  const pastToday =
+    !!today &&
+    [...benchTime.values(), ...data.problem.people.map((p) => personTime(p.id))].some((list) => minutesIn(list, { start: dayStart, end: nowMin }) > 0)
   return {
     from: o.from,
     to: o.to,

@@ -214,3 +214,60 @@ describe('the week load when leave takes time that work was planned in', () => {
     }
   })
 })
+
+describe('the week load on weeks gone by and weeks past the planning horizon', () => {
+  // Someone working 08:30–17:00 with half an hour for lunch (12:30–13:00), Monday to Friday: 8 h a day, 40 h a full week.
+  let maren: number
+  let closureId: number
+  let leaveId: number
+  const now = new Date(at('2026-12-09', '14:00'))
+  beforeAll(async () => {
+    maren = await addPerson(tdb.db, { workshopId, name: 'Maren Tollervey' })
+    const weekPattern = [1, 2, 3, 4, 5].flatMap((weekday) => [
+      { weekday, start: '08:30', end: '12:30' },
+      { weekday, start: '13:00', end: '17:00' },
+    ])
+    await tdb.db.update(s.people).set({ weekPattern }).where(eq(s.people.id, maren))
+    // Two weeks back: the workshop closed on Thursday 26 November and Maren on leave on Monday 23 November.
+    const [c] = await tdb.db
+      .insert(s.closures)
+      .values({ workshopId, name: 'Workshop closed: stocktake', startsOn: '2026-11-26', endsOn: '2026-11-26' })
+      .returning({ id: s.closures.id })
+    const [l] = await tdb.db.insert(s.leave).values({ personId: maren, startsOn: '2026-11-23', endsOn: '2026-11-23' }).returning({ id: s.leave.id })
+    closureId = c!.id
+    leaveId = l!.id
+  })
+  afterAll(async () => {
+    await tdb.db.delete(s.closures).where(eq(s.closures.id, closureId))
+    await tdb.db.delete(s.leave).where(eq(s.leave.id, leaveId))
+  })
+  const total = (load: Load, type: string, id: number) => row(load, type, id).cells.reduce((t, c) => t + c.availableMinutes, 0)
+  const byDay = (load: Load, type: string, id: number) => row(load, type, id).cells.map((c) => c.availableMinutes)
+
+  it('when it is Wednesday 9 December and last week is read, then its hours come from the calendar: 40 h for someone working 08:30–17:00 with half an hour for lunch, Monday to Friday', async () => {
+    const load = await weekLoad(tdb.db, workshopId, { from: '2026-11-30', to: '2026-12-06', now })
+    // Hand-worked: 08:30–12:30 (4 h) and 13:00–17:00 (4 h) = 480 min a weekday, none at the weekend; 5 × 480 = 2400 min = 40 h.
+    expect(byDay(load, 'person', maren)).toEqual([480, 480, 480, 480, 480, 0, 0])
+    expect(total(load, 'person', maren)).toBe(2400)
+    // The bench keeps the workshop's hours, 09:00–12:30 and 13:00–17:30: 8 h a weekday, 40 h the week.
+    expect(byDay(load, 'bench', benchId)).toEqual([480, 480, 480, 480, 480, 0, 0])
+    // Enamelling is held by Wren and Odile, on the workshop's hours and with nothing else planned then: 2 × 40 h = 4800 min.
+    expect(total(load, 'skill', enamelling)).toBe(4800)
+    // Nothing of that week is today, so no "from" time.
+    expect(load.countedFrom).toBeNull()
+  })
+
+  it('when the week before it had a closed day and Maren a day off, then those days have no hours', async () => {
+    const load = await weekLoad(tdb.db, workshopId, { from: '2026-11-23', to: '2026-11-29', now })
+    // Maren: Monday on leave, Thursday closed: Tuesday, Wednesday and Friday, 3 × 480 = 1440 min (24 h).
+    expect(byDay(load, 'person', maren)).toEqual([0, 480, 480, 0, 480, 0, 0])
+    // The bench: every weekday but the closed Thursday, 4 × 480 = 1920 min (32 h).
+    expect(byDay(load, 'bench', benchId)).toEqual([480, 480, 480, 0, 480, 0, 0])
+  })
+
+  it('when a week past the planning horizon is read (twelve weeks from this Monday end on Sunday 28 February), then it has its hours as well', async () => {
+    const load = await weekLoad(tdb.db, workshopId, { from: '2027-03-08', to: '2027-03-14', now })
+    expect(total(load, 'person', maren)).toBe(2400)
+    expect(total(load, 'bench', benchId)).toBe(2400)
+  })
+})

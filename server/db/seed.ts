@@ -651,20 +651,22 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       const created = clock.toDate(createdAt)
       const { order, ops } = await makeOrder({ due: addDays(created, 21), status: 'collected', created, tIndex: i })
       const mark = new Map([...busy].map(([k, v]) => [k, v.length]))
-      const done: { id: number; finishedAt: number; who?: { personId: number; benchId: number; pieces: Interval[] } }[] = []
+      const done: { id: number; finishedAt: number; sent?: number; who?: { personId: number; benchId: number; pieces: Interval[] } }[] = []
       const skipped: number[] = []
       let ready = createdAt
       let fits = true
       for (const op of ops) {
         if (op.leadDays > 0) {
-          // Outside work comes back after its lead days in working days, now and then a day or two late.
+          // Outside work goes out once the piece is ready, while the workshop is open, and comes back after its lead days in
+          // working days from then, now and then a day or two late.
           const r = rand()
-          const back = returnAfter(ready, op.leadDays + (r < 0.55 ? 0 : r < 0.85 ? 1 : 2))
+          const sent = openFrom(ready)
+          const back = sent === null ? null : returnAfter(sent, op.leadDays + (r < 0.55 ? 0 : r < 0.85 ? 1 : 2))
           if (back === null) {
             fits = false
             break
           }
-          done.push({ id: op.id, finishedAt: back })
+          done.push({ id: op.id, finishedAt: back, sent: sent! })
           ready = back
           continue
         }
@@ -718,7 +720,12 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       for (const d of done) {
         await tx
           .update(s.operations)
-          .set({ finishedAt: iso(d.finishedAt), ...(d.who ? { plannedBenchId: d.who.benchId, plannedPersonId: d.who.personId } : {}) })
+          .set({
+            finishedAt: iso(d.finishedAt),
+            ...(d.who ? { plannedBenchId: d.who.benchId, plannedPersonId: d.who.personId } : {}),
+            // Outside work keeps the moment it left, as sending it out does (`sendOut`): its working days away ran from there.
+            ...(d.sent !== undefined ? { plannedStart: iso(d.sent), plannedBenchId: null, plannedPersonId: null } : {}),
+          })
           .where(eqId(d.id))
         if (d.who) historyOps++
       }
@@ -742,12 +749,23 @@ export async function seedDemo(db: Db, o: { now?: Date } = {}): Promise<boolean>
       pauseReason,
       makeOrder,
     })
-    // Open work: 30 orders due over the next four weeks.
+    // Open work: 30 orders due over the next four weeks, taken over the last ten days while the workshop was open.
+    const takenIn = intersect(workshopOpen, [{ start: nowMinute - 10 * 1440, end: nowMinute }])
+    const lastOpen = workshopOpen.filter((iv) => iv.start < nowMinute).at(-1)
+    /** The moment a share `r` (0 to 1) of the way through the open time of the last ten days (the last open minute when there is none). */
+    const takenAt = (r: number) => {
+      let left = Math.floor(r * takenIn.reduce((t, iv) => t + iv.end - iv.start, 0))
+      for (const iv of takenIn) {
+        if (left < iv.end - iv.start) return iv.start + left
+        left -= iv.end - iv.start
+      }
+      return lastOpen ? Math.min(lastOpen.end, nowMinute) - 1 : nowMinute
+    }
     for (let i = 0; i < 30; i++) {
       let due = addDays(now, 5 + Math.floor((i * 23) / 30) + Math.floor(rand() * 4))
       // Customers collect on working days: a due date on a weekend moves to the Friday before.
       while (due.getUTCDay() === 0 || due.getUTCDay() === 6) due = addDays(due, -1)
-      await makeOrder({ due, status: 'open', created: addDays(now, -Math.floor(rand() * 10)), tIndex: i * 7 + 3 })
+      await makeOrder({ due, status: 'open', created: clock.toDate(takenAt(rand())), tIndex: i * 7 + 3 })
     }
     // Open orders were last changed when they were taken (not when the demo was written, which may be after the clock it was given).
     await tx

@@ -194,6 +194,88 @@ async function contradictions(db: Db, now: Date): Promise<{ problems: string[]; 
 }
 
 const DAY_MS = 86_400_000
+
+/** Whether a moment lies in the workshop's open hours (a span of its week, not on a closure), to the minute. */
+const openAt = (cal: Calendar, at: Date) => outsideWorkingTime(cal, null, at, new Date(at.getTime() + 60_000)) === null
+
+/** Every order taken outside the workshop's opening hours or after now, in words (empty when there is none), and how many were read. */
+async function ordersTakenProblems(db: Db, now: Date): Promise<{ problems: string[]; orders: number; open: number }> {
+  const cal = await calendarOf(db)
+  const orders = await db.select({ number: s.orders.number, status: s.orders.status, createdAt: s.orders.createdAt }).from(s.orders)
+  const problems: string[] = []
+  for (const o of orders) {
+    const why = outsideWorkingTime(cal, null, o.createdAt, new Date(o.createdAt.getTime() + 60_000))
+    if (why) problems.push(`${o.number} (${o.status}) was taken at ${o.createdAt.toISOString()}: ${why}`)
+    if (o.createdAt > now) problems.push(`${o.number} was taken after now`)
+  }
+  return { problems, orders: orders.length, open: orders.filter((o) => o.status === 'open').length }
+}
+
+/** Working days (the workshop's usual days, less closures) after `from`'s day up to and including `to`'s. */
+function workingDaysBetween(cal: Calendar, from: Date, to: Date): number {
+  const last = local(to, cal.zone).day
+  let n = 0
+  // Noon of each day, stepping a day at a time (the clocks change by an hour at night, so noon stays on its day).
+  for (let t = Date.parse(`${local(from, cal.zone).day}T12:00:00Z`) + DAY_MS; ; t += DAY_MS) {
+    const d = local(new Date(t), cal.zone)
+    if (d.day > last) return n
+    if (cal.workshop.some((w) => w.weekday === d.weekday) && !cal.closures.some((c) => c.startsOn <= d.day && d.day <= c.endsOn)) n++
+  }
+}
+
+/**
+ * Every piece of outside work finished (casting, hallmarking) that does not say when it went out as sending it out records it
+ * (the moment it left as its planned start, with no bench or person), in words; and how many were read, and how many of them
+ * came back before the last fortnight (the older history).
+ */
+async function outsideWorkProblems(db: Db, now: Date): Promise<{ problems: string[]; outside: number; older: number }> {
+  const cal = await calendarOf(db)
+  const ops = await db
+    .select({
+      id: s.operations.id,
+      jobBagId: s.operations.jobBagId,
+      key: s.operations.key,
+      after: s.operations.after,
+      leadDays: s.operations.leadDays,
+      waitAfter: s.operations.waitAfterMinutes,
+      status: s.operations.status,
+      outside: s.operationKinds.outside,
+      sentAt: s.operations.plannedStart,
+      benchId: s.operations.plannedBenchId,
+      personId: s.operations.plannedPersonId,
+      finishedAt: s.operations.finishedAt,
+      taken: s.orders.createdAt,
+    })
+    .from(s.operations)
+    .innerJoin(s.operationKinds, eq(s.operationKinds.id, s.operations.kindId))
+    .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+  const problems: string[] = []
+  const outside = ops.filter((o) => (o.outside || o.leadDays > 0) && o.status === 'done')
+  for (const o of outside) {
+    const back = new Date(o.finishedAt!)
+    if (!o.sentAt) {
+      problems.push(`outside work ${o.id} came back ${back.toISOString()} with no moment it went out`)
+      continue
+    }
+    const sent = new Date(o.sentAt)
+    if (o.benchId !== null || o.personId !== null) problems.push(`outside work ${o.id} went out with a bench or person on it`)
+    if (!openAt(cal, sent)) problems.push(`outside work ${o.id} went out ${sent.toISOString()}, when the workshop was not open`)
+    if (!(sent < back)) problems.push(`outside work ${o.id} went out ${sent.toISOString()}, not before it came back ${back.toISOString()}`)
+    // The piece goes once it is ready: its earlier steps finished and their waits over, and the order taken.
+    const ready = Math.max(
+      o.taken.getTime(),
+      ...ops
+        .filter((x) => x.jobBagId === o.jobBagId && o.after.includes(x.key))
+        .map((x) => (x.finishedAt ? Date.parse(x.finishedAt) + x.waitAfter * 60_000 : Infinity)),
+    )
+    if (sent.getTime() < ready) problems.push(`outside work ${o.id} went out ${sent.toISOString()}, before the piece was ready`)
+    const away = workingDaysBetween(cal, sent, back)
+    if (away < o.leadDays) problems.push(`outside work ${o.id} was away ${away} working days, under its ${o.leadDays}`)
+  }
+  const fortnight = tenWorkingDaysBack(cal, now)
+  return { problems, outside: outside.length, older: outside.filter((o) => new Date(o.finishedAt!) < fortnight).length }
+}
 /** Kinds of work that take metal off the piece, so the bench weighs it out and back (inspection and outside work do not). */
 const METAL_WORK = ['forging', 'sawing', 'filing', 'soldering', 'drilling', 'setting', 'polishing', 'etching']
 /** How a time record may end: the work finished, or paused for one of the reasons every workshop starts with. */
@@ -398,6 +480,25 @@ async function lastWeekMetal(db: Db, now: Date) {
   return (await metalAccounts(db, bags)).filter((a) => a.weighed)
 }
 
+/** The moments the demo says orders were taken and outside work went out, on a seeded database, as one test each. */
+function takenAndSentTests(seeded: () => { db: Db; now: Date }) {
+  it('when its orders are read back, then every one, the open ones too, was taken on a day the workshop was open, within its opening hours, and not after now', async () => {
+    const { db, now } = seeded()
+    const { problems, orders, open } = await ordersTakenProblems(db, now)
+    expect(problems).toEqual([])
+    expect(open, 'open orders read').toBeGreaterThanOrEqual(30)
+    expect(orders).toBeGreaterThan(open)
+  })
+
+  it('when its outside work is read back, then each piece that went out, in the older history too, has the moment it left: in opening hours, once it was ready, its lead days before it came back', async () => {
+    const { db, now } = seeded()
+    const { problems, outside, older } = await outsideWorkProblems(db, now)
+    expect(problems).toEqual([])
+    expect(older, 'outside work of the older history').toBeGreaterThan(10)
+    expect(outside).toBeGreaterThan(older)
+  })
+}
+
 /** The three checks of the last week on a seeded database, as one test each. */
 function lastWeekTests(seeded: () => { db: Db; now: Date }) {
   it('when its last week is read back, then several people finished steps at their own benches inside their working time, some over and some under the estimate, with pauses and their reasons', async () => {
@@ -445,6 +546,28 @@ describe('the check itself', () => {
   })
 })
 
+describe('the working days the check counts', () => {
+  it('when outside work goes out on a Friday and comes back the Wednesday after, then it was away three working days, two with the Tuesday closed', () => {
+    // Open Monday to Friday in Europe/London; Friday 4 December 2026 to Wednesday 9 December: Monday 7, Tuesday 8, Wednesday 9.
+    const cal: Calendar = {
+      zone: 'Europe/London',
+      workshop: [1, 2, 3, 4, 5].map((weekday) => ({ weekday, start: '08:30', end: '17:00' })),
+      closures: [],
+      people: new Map(),
+    }
+    expect(workingDaysBetween(cal, new Date('2026-12-04T16:00:00Z'), new Date('2026-12-09T10:00:00Z'))).toBe(3)
+    expect(
+      workingDaysBetween(
+        { ...cal, closures: [{ startsOn: '2026-12-08', endsOn: '2026-12-08' }] },
+        new Date('2026-12-04T16:00:00Z'),
+        new Date('2026-12-09T10:00:00Z'),
+      ),
+    ).toBe(2)
+    // Across the clocks going back (Sunday 25 October 2026): Friday 23 to Monday 26 October is one working day.
+    expect(workingDaysBetween(cal, new Date('2026-10-23T15:00:00Z'), new Date('2026-10-26T09:00:00Z'))).toBe(1)
+  })
+})
+
 describe('the seeded demo in the template database', () => {
   let t: TestDb
   let seededAt: Date
@@ -477,6 +600,7 @@ describe('the seeded demo in the template database', () => {
   })
 
   lastWeekTests(() => ({ db: t.db, now: seededAt }))
+  takenAndSentTests(() => ({ db: t.db, now: seededAt }))
 })
 
 describe('the seeded demo through the owner’s Insights', () => {
@@ -545,6 +669,7 @@ describe('the demo seeded with a clock it is given', () => {
   const seeded = seededOn(now)
   // Its last week: Tuesday 7 to Friday 10 April (Easter Monday, 6 April, is a bank holiday).
   lastWeekTests(() => ({ db: seeded.db, now }))
+  takenAndSentTests(() => ({ db: seeded.db, now }))
 
   it('when its history is read back, then it keeps to the calendar across the clock change and ends before the given now', async () => {
     const { problems, records, recordDays } = await contradictions(seeded.db, now)
@@ -562,6 +687,7 @@ describe('the demo seeded on a Friday night in December', () => {
   const now = new Date('2026-12-04T01:45:00Z')
   const seeded = seededOn(now)
   lastWeekTests(() => ({ db: seeded.db, now }))
+  takenAndSentTests(() => ({ db: seeded.db, now }))
 
   it('when its metal is read back, then a job bag’s piece weighed out again is still what the bag was first weighed out as', async () => {
     // The bench's own rule (README, Metal): a customer's piece stays the customer's metal at every step, stock stays stock.
@@ -603,4 +729,12 @@ describe('the demo seeded on a Friday night in December', () => {
     const { problems } = await contradictions(seeded.db, now)
     expect(problems).toEqual([])
   })
+})
+
+describe('the demo seeded on a Saturday evening in June', () => {
+  // Saturday 20 June 2026, 19:30 in London (18:30 UTC, summer time): the workshop has been shut since Friday 17:00, and orders
+  // the demo takes over the last days must still fall in its opening hours, not at this hour of a Saturday or a Sunday.
+  const now = new Date('2026-06-20T18:30:00Z')
+  const seeded = seededOn(now)
+  takenAndSentTests(() => ({ db: seeded.db, now }))
 })

@@ -668,8 +668,9 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
     .leftJoin(s.users, eq(s.users.id, s.payments.recordedBy))
     .where(eq(s.payments.workshopId, workshopId))
     .orderBy(...inOrderPaid)
-  // A VAT-registered workshop's accountant gets the VAT in each amount as a last column (as its receipt stated it, under the
-  // terms it was taken under), as do the files holding any payment taken with VAT; otherwise the file is as it was.
+  // A VAT-registered workshop's accountant gets two last columns, as do the files holding any payment taken with VAT: the rate
+  // each amount was taken at (its frozen terms, in per cent; empty when taken without VAT) and the VAT in it, as its receipt
+  // stated it. Otherwise the file is as it was.
   const withVat = w.vatRegistered || rows.some((r) => r.p.vatRegistered)
   const lines = [
     [
@@ -685,7 +686,7 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
       'provider_ref',
       'recorded_by',
       'note',
-      ...(withVat ? ['vat'] : []),
+      ...(withVat ? ['vat_rate', 'vat'] : []),
     ].join(','),
   ]
   for (const r of rows) {
@@ -708,7 +709,7 @@ export async function exportCsv(db: Db, workshopId: number, q: { from?: string; 
         r.p.providerRef,
         r.by,
         r.p.note,
-        ...(withVat ? [minorToDecimal(r.p.vatRegistered ? r.p.vatMinor : 0, r.p.currency)] : []),
+        ...(withVat ? [r.p.vatRegistered ? String(r.p.vatRateBasisPoints / 100) : '', minorToDecimal(r.p.vatRegistered ? r.p.vatMinor : 0, r.p.currency)] : []),
       ]
         .map(csvCell)
         .join(','),

@@ -192,6 +192,35 @@ describe('deposit and balance add up to the VAT of the price', () => {
   })
 })
 
+describe('the accountant’s file', () => {
+  it('when an order is paid at 20 %, at 17.5 % and without VAT, then each row gives the rate it was taken at and the VAT in it', async () => {
+    await registeredAt20()
+    // £287.75 = £120.00 + £117.50 + £50.25; the order's deposit asked is £120.00.
+    const orderId = await accept(await send(await quote('Garnet cluster ring', 28775, 12000)))
+    const { number } = (await sales.get(`/api/orders/${orderId}`)).body
+    // £120.00 at 20 %: 120 × 20 / 120 = £20.00.
+    await cash(orderId, 'deposit', 12000)
+    await changeSettings({ vatRatePct: 17.5 })
+    // £117.50 at 17.5 %: 117.50 × 17.5 / 117.5 = £17.50 (it leaves £50.25 owed, so it carries its own amount's VAT).
+    await cash(orderId, 'balance', 11750)
+    await changeSettings({ vatRegistered: false })
+    // £50.25 taken without VAT: no rate, no VAT.
+    await cash(orderId, 'balance', 5025)
+    const lines = (await owner.get('/api/payments/export.csv')).text.trim().split('\r\n')
+    const header = lines[0]!.split(',')
+    expect(header.slice(-2)).toEqual(['vat_rate', 'vat'])
+    const rows = lines
+      .slice(1)
+      .map((l) => Object.fromEntries(l.split(',').map((c, i) => [header[i], c])))
+      .filter((r) => r.order === number)
+    expect(rows.map((r) => [r.amount, r.vat_rate, r.vat])).toEqual([
+      ['120.00', '20', '20.00'],
+      ['117.50', '17.5', '17.50'],
+      ['50.25', '', '0.00'],
+    ])
+  })
+})
+
 describe('the balance reminder', () => {
   it(
     'when a piece is ready with £50.00 of £100.00 owed, then the reminder says £8.34 VAT in it at 20 %, though the settings changed since',

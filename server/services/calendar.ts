@@ -10,7 +10,7 @@ import type {
   WorkshopSettingsRecord,
   ClosureRemoved,
 } from '../../shared/schemas/calendar'
-import { vatNumberProblem } from '../../shared/schemas/calendar'
+import { vatChangeProblem } from '../../shared/schemas/calendar'
 import { englandWalesBankHolidays } from '../../shared/domain/bank-holidays'
 import type { Db } from '../db/client'
 import { closures, workshops } from '../db/schema/index'
@@ -48,6 +48,9 @@ export async function updateSettings({ db, realtime }: Deps, actor: Actor, input
   const stored = vatRatePct === undefined ? {} : { vatRateBasisPoints: rateBasisPoints(vatRatePct) }
   await db.transaction((tx) =>
     calendarChange(tx, actor.workshopId, async () => {
+      // The VAT terms as they stand, read under the row's lock, so the check below compares the row as saved with them.
+      const [before] = await tx.select().from(workshops).where(eq(workshops.id, actor.workshopId)).for('update')
+      if (!before) throw notFound('Workshop')
       const r = await tx
         .update(workshops)
         .set({ ...values, ...stored, version: sql`${workshops.version} + 1` })
@@ -55,8 +58,9 @@ export async function updateSettings({ db, realtime }: Deps, actor: Actor, input
         .returning()
       if (!r.length) throw staleVersion('The workshop settings')
       // The customer's documents must carry a registered workshop's number, in a UK VAT number's shape — checked on the row as
-      // saved, so a change leaving out the number or the registration is checked too (the change rolls back otherwise).
-      const vatProblem = r[0]!.vatRegistered ? vatNumberProblem(r[0]!.vatNumber) : null
+      // saved when the change touches the VAT details (a change leaving out the number or the registration too), so a number
+      // stored before the check never holds back another setting (the change rolls back otherwise).
+      const vatProblem = vatChangeProblem(vatTermsOf(before), vatTermsOf(r[0]!))
       if (vatProblem) throw invalid('vatNumber', vatProblem)
       await audit(tx, actor, 'update', 'workshop', actor.workshopId, { ...values, ...(vatRatePct === undefined ? {} : { vatRatePct }) })
     }),

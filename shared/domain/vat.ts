@@ -111,11 +111,14 @@ export function vatLine(grossMinor: number, terms: VatTerms, fmt: (minor: number
 }
 
 /**
- * Whether a VAT number has the shape of a UK one: "GB" or nothing, then 9 digits, or 12 (the 9 and a 3-digit branch number);
- * spaces anywhere. Written from memory of HMRC's format, not from its published specification: the check digits are not worked,
- * and the government departments' and health authorities' forms (GD, HA and three digits) are not taken.
+ * Whether a VAT number has the shape of a UK one, spaces anywhere, letters in either case. Written from memory of HMRC's formats,
+ * not from its published specification (the check digits are not worked):
+ * - "GB" or nothing, then 9 digits, or 12 (the 9 and a 3-digit branch number): GB 123 4567 89, GB 123 4567 89 001;
+ * - "XI" for a business in Northern Ireland, then the same 9 or 12 digits: XI 123 4567 89;
+ * - a government department, "GBGD" and 3 digits from 000 to 499: GBGD 001;
+ * - a health authority, "GBHA" and 3 digits from 500 to 999: GBHA 599.
  */
-export const isUkVatNumber = (n: string): boolean => /^(GB)?(\d{9}|\d{12})$/i.test(n.replace(/\s+/g, ''))
+export const isUkVatNumber = (n: string): boolean => /^(?:(?:GB|XI)?(?:\d{9}|\d{12})|GBGD[0-4]\d{2}|GBHA[5-9]\d{2})$/.test(n.replace(/\s+/g, '').toUpperCase())
 
 /** "VAT registration no. GB 123 4567 89" when registered; null otherwise. */
 export const vatNumberLine = (terms: VatTerms): string | null => (terms.vatRegistered && terms.vatNumber ? `VAT registration no. ${terms.vatNumber}` : null)

@@ -1,7 +1,7 @@
 // The workshop's calendar: time zone, weekly working hours with breaks, and closures.
 import { z } from 'zod'
 import { isoDate, name, version, weekPattern, wireInt } from './common'
-import { isUkVatNumber } from '../domain/vat'
+import { isUkVatNumber, rateBasisPoints, type VatTerms } from '../domain/vat'
 
 const timeZone = z
   .string()
@@ -46,71 +46,99 @@ export type WorkshopMoneyRulesInput = z.infer<typeof workshopMoneyRulesInput>
  */
 export function vatNumberProblem(vatNumber: string): string | null {
   if (vatNumber.trim() === '') return 'is required when the workshop is registered for VAT'
-  if (!isUkVatNumber(vatNumber)) return 'must be a UK VAT number: GB and 9 digits, or 12 digits with a branch number, such as GB 123 4567 89'
+  if (!isUkVatNumber(vatNumber))
+    return 'must be a UK VAT number: GB or XI and 9 digits (12 with a branch number), GBGD and 000–499, or GBHA and 500–999, such as GB 123 4567 89'
   return null
 }
 
-export const workshopSettingsInput = z
-  .object({
-    name,
-    timeZone,
-    weekPattern: weekPattern.refine((w) => w.length > 0, 'needs at least one working span'),
-    /** Share of available hours the planner fills (headroom for the unexpected). */
-    planningLoad: z.number().min(0.5, 'must be between 0.5 and 1').max(1, 'must be between 0.5 and 1').default(0.85),
-    /** What customers' e-mails carry; left out of a change, each keeps its value. */
-    address: z.string().trim().max(300, 'must be at most 300 characters').optional(),
-    phone: z.string().trim().max(40, 'must be at most 40 characters').optional(),
-    contactEmail: z.union([z.literal(''), z.string().trim().email('must be an e-mail address such as orders@example.com').max(200)]).optional(),
-    currency: z
-      .string()
-      .trim()
-      .toUpperCase()
-      .refine((c) => {
-        try {
-          return /^[A-Z]{3}$/.test(c) && !!new Intl.NumberFormat('en', { style: 'currency', currency: c })
-        } catch {
-          return false
-        }
-      }, 'must be a three-letter currency code such as GBP or EUR')
-      .optional(),
-    /** Where tablets on the workshop network open the app (a ticket's QR code): scheme, host and port only; '' = the address the server suggests. */
-    publicUrl: z
-      .string()
-      .trim()
-      .max(200, 'must be at most 200 characters')
-      .refine((v) => v === '' || publicOrigin(v) !== null, 'must be an http:// or https:// address with no path, such as http://192.168.1.20:8080')
-      .transform((v) => (v === '' ? '' : publicOrigin(v)!))
-      .optional(),
-    depositPct: workshopMoneyRulesInput.shape.depositPct.optional(),
-    quoteValidDays: workshopMoneyRulesInput.shape.quoteValidDays.optional(),
-    noMetalBeforeDeposit: workshopMoneyRulesInput.shape.noMetalBeforeDeposit.optional(),
-    /**
-     * VAT: registered or not, the VAT number printed on the customer's documents (letters, digits and spaces, e.g. GB 123 4567 89),
-     * and the rate in per cent with at most two decimals (UK standard rate 20). Prices are VAT-inclusive; a registered workshop
-     * needs its number (checked against the stored value when only one of them changes).
-     */
-    vatRegistered: z.boolean().optional(),
-    vatNumber: z
-      .string()
-      .trim()
-      .toUpperCase()
-      .max(20, 'must be at most 20 characters')
-      .regex(/^[A-Z0-9 ]*$/, 'must be letters, digits and spaces only, such as GB 123 4567 89')
-      .optional(),
-    vatRatePct: z
-      .number()
-      .min(0, 'must be 0 to 100')
-      .max(100, 'must be 0 to 100')
-      .refine((v) => Math.abs(v * 100 - Math.round(v * 100)) < 1e-6, 'must have at most two decimals, such as 20 or 17.5')
-      .optional(),
-    version,
-  })
-  // A registered workshop's documents carry its number: said under the field before anything is sent when the form empties it
-  // or gives it another shape than a UK VAT number's (when the number or the registration is left out of a change, the server
-  // checks the stored one). Not registered, whatever is typed stays unchecked.
-  .superRefine((w, ctx) => {
-    if (w.vatRegistered !== true || w.vatNumber === undefined) return
-    const problem = vatNumberProblem(w.vatNumber)
+/** A VAT number as compared between two saves: without its spaces, in capitals ("gb 123 4567 89" is "GB123456789"). */
+const vatNumberKey = (n: string) => n.replace(/\s+/g, '').toUpperCase()
+
+/** Whether a change of the settings touches their VAT details: the registration, the number or the rate is not what it was. */
+const vatDetailsChanged = (before: VatTerms, after: VatTerms): boolean =>
+  before.vatRegistered !== after.vatRegistered ||
+  vatNumberKey(before.vatNumber) !== vatNumberKey(after.vatNumber) ||
+  rateBasisPoints(before.vatRatePct) !== rateBasisPoints(after.vatRatePct)
+
+/**
+ * Why the VAT number cannot be saved with a change of the settings from `before` to `after` (the settings as stored, and as
+ * they would be saved), or null. The number is checked when the workshop is registered after the change and the change touches
+ * the VAT details (registers, or gives another number or rate): a number stored before its shape was checked holds back no
+ * other setting, and is checked once the VAT details are changed.
+ */
+export function vatChangeProblem(before: VatTerms, after: VatTerms): string | null {
+  if (!after.vatRegistered || !vatDetailsChanged(before, after)) return null
+  return vatNumberProblem(after.vatNumber)
+}
+
+export const workshopSettingsInput = z.object({
+  name,
+  timeZone,
+  weekPattern: weekPattern.refine((w) => w.length > 0, 'needs at least one working span'),
+  /** Share of available hours the planner fills (headroom for the unexpected). */
+  planningLoad: z.number().min(0.5, 'must be between 0.5 and 1').max(1, 'must be between 0.5 and 1').default(0.85),
+  /** What customers' e-mails carry; left out of a change, each keeps its value. */
+  address: z.string().trim().max(300, 'must be at most 300 characters').optional(),
+  phone: z.string().trim().max(40, 'must be at most 40 characters').optional(),
+  contactEmail: z.union([z.literal(''), z.string().trim().email('must be an e-mail address such as orders@example.com').max(200)]).optional(),
+  currency: z
+    .string()
+    .trim()
+    .toUpperCase()
+    .refine((c) => {
+      try {
+        return /^[A-Z]{3}$/.test(c) && !!new Intl.NumberFormat('en', { style: 'currency', currency: c })
+      } catch {
+        return false
+      }
+    }, 'must be a three-letter currency code such as GBP or EUR')
+    .optional(),
+  /** Where tablets on the workshop network open the app (a ticket's QR code): scheme, host and port only; '' = the address the server suggests. */
+  publicUrl: z
+    .string()
+    .trim()
+    .max(200, 'must be at most 200 characters')
+    .refine((v) => v === '' || publicOrigin(v) !== null, 'must be an http:// or https:// address with no path, such as http://192.168.1.20:8080')
+    .transform((v) => (v === '' ? '' : publicOrigin(v)!))
+    .optional(),
+  depositPct: workshopMoneyRulesInput.shape.depositPct.optional(),
+  quoteValidDays: workshopMoneyRulesInput.shape.quoteValidDays.optional(),
+  noMetalBeforeDeposit: workshopMoneyRulesInput.shape.noMetalBeforeDeposit.optional(),
+  /**
+   * VAT: registered or not, the VAT number printed on the customer's documents (letters, digits and spaces, e.g. GB 123 4567 89),
+   * and the rate in per cent with at most two decimals (UK standard rate 20). Prices are VAT-inclusive; a registered workshop
+   * needs its number in a UK number's shape, checked against the stored settings when the VAT details change (`vatChangeProblem`).
+   */
+  vatRegistered: z.boolean().optional(),
+  vatNumber: z
+    .string()
+    .trim()
+    .toUpperCase()
+    .max(20, 'must be at most 20 characters')
+    .regex(/^[A-Z0-9 ]*$/, 'must be letters, digits and spaces only, such as GB 123 4567 89')
+    .optional(),
+  vatRatePct: z
+    .number()
+    .min(0, 'must be 0 to 100')
+    .max(100, 'must be 0 to 100')
+    .refine((v) => Math.abs(v * 100 - Math.round(v * 100)) < 1e-6, 'must have at most two decimals, such as 20 or 17.5')
+    .optional(),
+  version,
+})
+
+/**
+ * The settings form's check before sending: the input's own rules, and the VAT number's (`vatChangeProblem`) against the
+ * settings as they stand — the server checks the same against the stored row, which also covers a change that leaves the
+ * number or the registration out.
+ */
+export const workshopSettingsChange = (stored: VatTerms) =>
+  workshopSettingsInput.superRefine((w, ctx) => {
+    const after = {
+      vatRegistered: w.vatRegistered ?? stored.vatRegistered,
+      vatNumber: w.vatNumber ?? stored.vatNumber,
+      vatRatePct: w.vatRatePct ?? stored.vatRatePct,
+    }
+    const problem = vatChangeProblem(stored, after)
     if (problem) ctx.addIssue({ code: 'custom', path: ['vatNumber'], message: problem })
   })
 export const closureInput = z

@@ -134,7 +134,7 @@ describe('limits in the workshop settings', { timeout: 30_000 }, () => {
   })
 
   it('when a registered workshop’s VAT number lacks a digit, then it stays as typed and the field says what a UK number looks like', async () => {
-    // A UK VAT number as we remember HMRC's format: GB, then 9 digits (or 12 with a branch); "GB 123 4567 8" has 8.
+    // A UK VAT number as we remember HMRC's formats: GB or XI, then 9 digits (or 12 with a branch); "GB 123 4567 8" has 8.
     await open()
     const number = document.body.querySelector<HTMLInputElement>('[data-test=settings-vat-number] input, input[data-test=settings-vat-number]')!
     number.value = 'GB 123 4567 8'
@@ -142,7 +142,9 @@ describe('limits in the workshop settings', { timeout: 30_000 }, () => {
     await flushPromises()
     await press('settings-save')
     expect(number.value).toBe('GB 123 4567 8')
-    expect(errorUnder('settings-vat-number')).toBe('Must be a UK VAT number: GB and 9 digits, or 12 digits with a branch number, such as GB 123 4567 89')
+    expect(errorUnder('settings-vat-number')).toBe(
+      'Must be a UK VAT number: GB or XI and 9 digits (12 with a branch number), GBGD and 000–499, or GBHA and 500–999, such as GB 123 4567 89',
+    )
     expect(api.updateWorkshop).not.toHaveBeenCalled()
   })
 })

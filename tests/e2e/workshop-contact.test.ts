@@ -64,4 +64,32 @@ describe('workshop contact in the settings', () => {
     await expect.poll(() => field('settings-public-url').inputValue(), { timeout: 10_000 }).toBe('http://192.0.2.44:8080')
     await screenshot(page, 'settings-workshop-public-url', { fullPage: false })
   })
+
+  it('when the owner registers for VAT with a number short of a digit, then its reason shows and the rate beside it stays in line; with a Northern Ireland number the toast says the VAT details were saved', async () => {
+    await page.goto('/settings')
+    await expect.poll(() => field('settings-address').inputValue(), { timeout: 10_000 }).not.toBe('')
+    await page.locator('[data-test=settings-vat-registered]').click()
+    const number = field('settings-vat-number')
+    const rate = field('settings-vat-rate')
+    await number.fill('GB 123 4567 8')
+    await page.locator('[data-test=settings-save]').click()
+    const reason = page.locator('[data-test=settings-workshop] .el-form-item__error', { hasText: /UK VAT number/ })
+    await reason.waitFor()
+    await screenshot(page, 'settings-vat-number-refused', { fullPage: false })
+    // The reason runs to two lines or more under the number: the field beside it and its label keep their place.
+    const [numberBox, rateBox, reasonBox] = [await number.boundingBox(), await rate.boundingBox(), await reason.boundingBox()]
+    expect(reasonBox!.height).toBeGreaterThan(20)
+    expect(rateBox!.x).toBeGreaterThan(numberBox!.x + numberBox!.width)
+    expect(Math.abs(rateBox!.y - numberBox!.y)).toBeLessThan(1)
+    // XI and 9 digits: a business in Northern Ireland (as we remember HMRC's format).
+    await number.fill('XI 123 4567 89')
+    await page.locator('[data-test=settings-save]').click()
+    await page.locator('.el-message', { hasText: 'VAT details saved' }).waitFor()
+    expect(await page.locator('.el-message', { hasText: 'sign-in' }).count()).toBe(0)
+    const [w] = await e2e.db.db
+      .select({ vatRegistered: s.workshops.vatRegistered, vatNumber: s.workshops.vatNumber })
+      .from(s.workshops)
+      .where(eq(s.workshops.id, 1))
+    expect(w).toEqual({ vatRegistered: true, vatNumber: 'XI 123 4567 89' })
+  })
 })

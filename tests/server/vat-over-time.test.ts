@@ -1,8 +1,10 @@
 // VAT on the customer's documents stays true over time: the terms in force are kept on each quote, order and payment, so a
 // document made again after the rate or the registration changed says what it said; the payment that settles an order carries
-// the rest of the price's VAT, so deposit and balance add up to it; the balance reminder says the VAT in the balance; a VAT
-// number is refused unless it has a UK number's shape (as we remember HMRC's format: GB, then 9 digits, or 12 with a branch).
-// 20 % is the UK standard rate, 5 % the reduced rate, as HMRC publishes them. Every figure is worked by hand beside its check.
+// the rest of the price's VAT, so deposit and balance add up to it; the balance reminder says the VAT in the balance; the
+// accountant's file gives each payment's rate and VAT as taken; a VAT number is refused unless it has a UK number's shape (as we
+// remember HMRC's formats: GB or XI, then 9 digits or 12 with a branch; GBGD and 000–499, GBHA and 500–999) — checked when the
+// VAT details change, so a number stored before the check holds back no other setting. 20 % is the UK standard rate, 5 % the
+// reduced rate, 17.5 % the standard rate before 2011, as HMRC publishes them. Every figure is worked by hand beside its check.
 import { createServer, type Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { eq } from 'drizzle-orm'
@@ -39,6 +41,7 @@ afterAll(async () => {
 })
 
 const NUMBER = 'GB 123 4567 89'
+const SHAPE = /^must be a UK VAT number: GB or XI and 9 digits \(12 with a branch number\), GBGD and 000–499, or GBHA and 500–999, such as GB 123 4567 89$/
 const settings = async () => (await owner.get('/api/workshop')).body
 /** The settings as they are, with `change` on top: what the settings page sends. */
 const putSettings = async (change: Record<string, unknown>) => {
@@ -251,7 +254,7 @@ describe('the VAT number', () => {
     await registeredAt20()
     const before = await settings()
     for (const n of ['GB 123 4567', 'GB 123 4567 89 0', 'FR 123 4567 89', '1234567890'])
-      expectFieldError(await putSettings({ vatNumber: n }), 'vatNumber', /must be a UK VAT number: GB and 9 digits, or 12 digits with a branch number/)
+      expectFieldError(await putSettings({ vatNumber: n }), 'vatNumber', SHAPE)
     expect(await settings()).toMatchObject({ vatNumber: NUMBER, version: before.version })
     // 12 digits (with a branch) are taken, kept as typed.
     await changeSettings({ vatNumber: '123 4567 89 001' })
@@ -262,7 +265,34 @@ describe('the VAT number', () => {
     await changeSettings({ vatRegistered: false, vatNumber: 'PENDING' })
     expect((await settings()).vatNumber).toBe('PENDING')
     const { id: _id, publicUrlSuggestion: _s, vatNumber: _n, ...rest } = await settings()
-    expectFieldError(await owner.put('/api/workshop', { ...rest, vatRegistered: true }), 'vatNumber', /UK VAT number/)
+    expectFieldError(await owner.put('/api/workshop', { ...rest, vatRegistered: true }), 'vatNumber', SHAPE)
     await registeredAt20()
+  })
+
+  it('when a registered workshop’s stored number has a bad shape, then its other settings still save, and another bad number or a new rate is refused under the field', async () => {
+    await registeredAt20()
+    // Kept before numbers were checked: 8 digits.
+    await t.db
+      .update(s.workshops)
+      .set({ vatNumber: 'GB 123 4567 8' })
+      .where(eq(s.workshops.id, await firstWorkshopId(t.db)))
+    // The settings page sends every detail, the number as stored among them.
+    const address = await putSettings({ address: '22 Wrenfield Street, Bath BA1 1AA' })
+    expect(address.status, JSON.stringify(address.body)).toBe(200)
+    expect(address.body).toMatchObject({ address: '22 Wrenfield Street, Bath BA1 1AA', vatRegistered: true, vatNumber: 'GB 123 4567 8', vatRatePct: 20 })
+    // The quote and deposit rules (and the calendar's hours) leave the VAT details out.
+    const { name, timeZone, weekPattern, planningLoad, version } = await settings()
+    const rules = await owner.put('/api/workshop', { name, timeZone, weekPattern, planningLoad, version, depositPct: 40 })
+    expect(rules.status, JSON.stringify(rules.body)).toBe(200)
+    expect(rules.body).toMatchObject({ depositPct: 40, vatNumber: 'GB 123 4567 8' })
+
+    const before = await settings()
+    // A health authority's number runs from 500, a government department's to 499.
+    expectFieldError(await putSettings({ vatNumber: 'GBGD 500' }), 'vatNumber', SHAPE)
+    expectFieldError(await putSettings({ vatRatePct: 5 }), 'vatNumber', SHAPE)
+    expect(await settings()).toMatchObject({ vatNumber: 'GB 123 4567 8', vatRatePct: 20, version: before.version })
+    await changeSettings({ vatNumber: 'GBHA 599', vatRatePct: 5 })
+    expect(await settings()).toMatchObject({ vatNumber: 'GBHA 599', vatRatePct: 5 })
+    await changeSettings({ depositPct: 30 })
   })
 })

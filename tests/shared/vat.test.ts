@@ -1,6 +1,7 @@
 // VAT in a VAT-inclusive price: amount × rate / (100 + rate), to the penny, halves rounded up; checked against hand-worked sums.
 // 20 % is the UK standard rate, 5 % the reduced rate, as HMRC publishes them (17.5 % the standard rate before 2011). The VAT
-// number's shape is checked as we remember HMRC's format (GB, then 9 digits or 12 with a branch), not against its specification.
+// number's shape is checked as we remember HMRC's formats (GB or XI, then 9 digits or 12 with a branch; GBGD and 000–499 for a
+// government department, GBHA and 500–999 for a health authority), not against its specification.
 import { describe, expect, it } from 'vitest'
 import {
   isUkVatNumber,
@@ -16,7 +17,7 @@ import {
   type StoredVatTerms,
   type VatTerms,
 } from '../../shared/domain/vat'
-import { workshopSettingsInput } from '../../shared/schemas/calendar'
+import { vatChangeProblem, workshopSettingsChange, workshopSettingsInput } from '../../shared/schemas/calendar'
 
 const registered: VatTerms = { vatRegistered: true, vatNumber: 'GB 123 4567 89', vatRatePct: 20 }
 /** Pence as "£1,234.56", written here by hand rather than by the app's formatter. */
@@ -141,10 +142,20 @@ describe('the VAT on a refund', () => {
   })
 })
 
-describe('the shape of a UK VAT number (as we remember HMRC’s format: GB, then 9 digits, or 12 with a 3-digit branch)', () => {
+const SHAPE = 'must be a UK VAT number: GB or XI and 9 digits (12 with a branch number), GBGD and 000–499, or GBHA and 500–999, such as GB 123 4567 89'
+
+describe('the shape of a UK VAT number (as we remember HMRC’s formats)', () => {
   it('when it is GB and 9 digits, 9 digits alone, or 12 digits, with or without spaces, then it is taken', () => {
     for (const n of ['GB 123 4567 89', 'GB123456789', '123456789', '123 4567 89', 'gb 123 4567 89', 'GB 123 4567 89 001', '123456789001'])
       expect(isUkVatNumber(n), n).toBe(true)
+  })
+
+  it('when it is a Northern Ireland number, XI and 9 or 12 digits, with or without spaces, then it is taken', () => {
+    for (const n of ['XI 123 4567 89', 'XI123456789', 'xi 123 4567 89', 'XI 123 4567 89 001', 'XI123456789001']) expect(isUkVatNumber(n), n).toBe(true)
+  })
+
+  it('when it is a government department’s, GBGD and 000 to 499, or a health authority’s, GBHA and 500 to 999, then it is taken', () => {
+    for (const n of ['GBGD000', 'GBGD001', 'GB GD 499', 'gbgd 250', 'GBHA500', 'GBHA599', 'GB HA 999', 'gbha 750']) expect(isUkVatNumber(n), n).toBe(true)
   })
 
   it('when it has another number of digits, another prefix or letters among the digits, then it is refused', () => {
@@ -158,6 +169,24 @@ describe('the shape of a UK VAT number (as we remember HMRC’s format: GB, then
       'GB 123 45A7 89',
       'GB',
       '',
+      // Northern Ireland: 8, 10 or 13 digits, or XI and a GB number.
+      'XI12345678',
+      'XI 123 4567 890',
+      'XI 123 4567 89 0012',
+      'XIGB123456789',
+      'XI',
+      // A government department's number runs 000 to 499, a health authority's 500 to 999, each exactly 3 digits after GBGD or GBHA.
+      'GBGD500',
+      'GBGD999',
+      'GBHA499',
+      'GBHA000',
+      'GBGD01',
+      'GBGD0001',
+      'GBHA5000',
+      'GBGD',
+      'GD001',
+      'HA599',
+      'XIGB001',
     ])
       expect(isUkVatNumber(n), n).toBe(false)
   })
@@ -165,25 +194,52 @@ describe('the shape of a UK VAT number (as we remember HMRC’s format: GB, then
 
 describe('the VAT number in the workshop settings', () => {
   const base = { name: 'Wrenfield Street Workshop', timeZone: 'Europe/London', weekPattern: [{ weekday: 1, start: '09:00', end: '17:00' }], version: 1 }
-  const reasons = (input: Record<string, unknown>) => {
-    const r = workshopSettingsInput.safeParse({ ...base, ...input })
+  const notRegistered: VatTerms = { vatRegistered: false, vatNumber: '', vatRatePct: 20 }
+  /** The VAT number's reasons for the form's values over the settings as they stand (`stored`), or null when the form may be sent. */
+  const reasons = (input: Record<string, unknown>, stored: VatTerms = notRegistered) => {
+    const r = workshopSettingsChange(stored).safeParse({ ...base, ...input })
     return r.success ? null : r.error.issues.filter((i) => i.path.join('.') === 'vatNumber').map((i) => i.message)
   }
 
   it('when a registered workshop gives a number of another shape, then it is refused under the field; one of the right shape is kept as typed', () => {
-    expect(reasons({ vatRegistered: true, vatNumber: 'GB 123 4567' })).toEqual([
-      'must be a UK VAT number: GB and 9 digits, or 12 digits with a branch number, such as GB 123 4567 89',
-    ])
-    expect(reasons({ vatRegistered: true, vatNumber: 'FR 123 4567 89' })?.[0]).toMatch(/UK VAT number/)
+    expect(reasons({ vatRegistered: true, vatNumber: 'GB 123 4567' })).toEqual([SHAPE])
+    expect(reasons({ vatRegistered: true, vatNumber: 'FR 123 4567 89' })).toEqual([SHAPE])
+    expect(reasons({ vatRegistered: true, vatNumber: 'GBGD 500' })).toEqual([SHAPE])
+    expect(reasons({ vatRegistered: true, vatNumber: 'XI 1234 5678' })).toEqual([SHAPE])
     // Spaces and all, as the owner typed it.
-    expect(workshopSettingsInput.parse({ ...base, vatRegistered: true, vatNumber: 'GB 123 4567 89 001' }).vatNumber).toBe('GB 123 4567 89 001')
-    expect(workshopSettingsInput.parse({ ...base, vatRegistered: true, vatNumber: '123456789' }).vatNumber).toBe('123456789')
+    for (const n of ['GB 123 4567 89 001', '123456789', 'XI 123 4567 89', 'GBGD 001', 'GBHA 599'])
+      expect(workshopSettingsChange(notRegistered).parse({ ...base, vatRegistered: true, vatNumber: n }).vatNumber).toBe(n)
     // Registered with none: still required.
     expect(reasons({ vatRegistered: true, vatNumber: '' })).toEqual(['is required when the workshop is registered for VAT'])
   })
 
   it('when the workshop is not registered, then whatever number is typed is not checked; registered, the same number is refused', () => {
     expect(reasons({ vatRegistered: false, vatNumber: 'GB 123' })).toBeNull()
-    expect(reasons({ vatRegistered: true, vatNumber: 'GB 123' })?.[0]).toMatch(/UK VAT number/)
+    expect(reasons({ vatRegistered: true, vatNumber: 'GB 123' })).toEqual([SHAPE])
+  })
+
+  it('when a registered workshop’s stored number has a bad shape, then a change of anything but the VAT details is taken, and a change of them checks the number', () => {
+    // Stored before its shape was checked: 8 digits.
+    const stored: VatTerms = { vatRegistered: true, vatNumber: 'GB 123 4567 8', vatRatePct: 20 }
+    const same = { vatRegistered: true, vatNumber: 'GB 123 4567 8', vatRatePct: 20 }
+    expect(reasons({ ...same, address: '14 Wrenfield Street, Bath BA1 1AA' }, stored)).toBeNull()
+    // The same number in other spacing and letters is the same number.
+    expect(reasons({ ...same, vatNumber: 'gb 1234 5678', name: 'Wrenfield Works' }, stored)).toBeNull()
+    // Left out of the change, as the money rules are saved.
+    expect(reasons({ depositPct: 40 }, stored)).toBeNull()
+    expect(reasons({ ...same, vatNumber: 'GB 123 4567 0' }, stored)).toEqual([SHAPE])
+    expect(reasons({ ...same, vatRatePct: 5 }, stored)).toEqual([SHAPE])
+    expect(reasons({ vatRatePct: 5 }, stored)).toEqual([SHAPE])
+    expect(reasons({ ...same, vatNumber: 'GB 123 4567 89' }, stored)).toBeNull()
+    // Leaving VAT: nothing to check.
+    expect(reasons({ ...same, vatRegistered: false }, stored)).toBeNull()
+    // The input's own schema no longer knows the stored number, so it leaves the check to the change.
+    expect(workshopSettingsInput.safeParse({ ...base, ...same }).success).toBe(true)
+  })
+
+  it('when registering a workshop whose number was kept while it was not registered, then the kept number is checked', () => {
+    const kept: VatTerms = { vatRegistered: false, vatNumber: 'PENDING', vatRatePct: 20 }
+    expect(vatChangeProblem(kept, { ...kept, vatRegistered: true })).toBe(SHAPE)
+    expect(vatChangeProblem(kept, { ...kept, vatNumber: 'STILL PENDING' })).toBeNull()
   })
 })

@@ -1,9 +1,9 @@
-// Workshop settings: the toast after a save says what was saved (the VAT details, the workshop's details, or both; the note about
-// the name only when the name changed), and a VAT number stored before its shape was checked holds back no other detail — it is
+// Workshop settings: the toast after a save says what was saved (the VAT details, the workshop's details, or both; a new name
+// shows in the sidebar at once), and a VAT number stored before its shape was checked holds back no other detail — it is
 // checked once the VAT details change (as we remember HMRC's formats, "GB 123 4567 8" has 8 digits where 9 belong).
 import { afterEach, describe, expect, it, vi } from 'vitest'
 import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
-import { createPinia } from 'pinia'
+import { createPinia, setActivePinia, type Pinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import { errorUnder, press, typeInto, typeIntoInput } from '../setup/form-fields'
 
@@ -39,6 +39,8 @@ vi.mock('@/api/workshop', () => ({
 vi.mock('@/api/operation-kinds', () => ({ listKinds: vi.fn(async () => []), createKind: vi.fn(), updateKind: vi.fn() }))
 vi.mock('@/api/pause-reasons', () => ({ listPauseReasons: vi.fn(async () => []) }))
 const { default: SettingsView } = await import('@/views/SettingsView.vue')
+const { useSessionStore } = await import('@/stores/session')
+let pinia: Pinia
 
 let w: VueWrapper | undefined
 afterEach(() => {
@@ -52,7 +54,18 @@ afterEach(() => {
 async function open(stored: Record<string, unknown> = {}) {
   api.stored = stored
   api.updateWorkshop.mockImplementation(async (body: object) => ({ ...api.settings, ...api.stored, ...body, version: 2 }))
-  w = mount(SettingsView, { attachTo: document.body, global: { plugins: [ElementPlus, createPinia()], stubs: { RouterLink: true } } })
+  pinia = createPinia()
+  setActivePinia(pinia)
+  useSessionStore().user = {
+    id: 1,
+    email: 'owner@wrenfield.test',
+    name: 'Owner',
+    role: 'owner',
+    workshopId: 1,
+    workshopName: 'Wrenfield Street Workshop',
+    personId: null,
+  }
+  w = mount(SettingsView, { attachTo: document.body, global: { plugins: [ElementPlus, pinia], stubs: { RouterLink: true } } })
   await flushPromises()
 }
 /** What the success toasts on screen say, oldest first (Element Plus puts them in the page body). */
@@ -77,7 +90,7 @@ describe('what the settings say they saved', { timeout: 30_000 }, () => {
     expect(saidSaved()).toEqual(['VAT details saved'])
   })
 
-  it('when the telephone changes, then the workshop details were saved; with the name, the name shows after the next sign-in; with the rate too, both', async () => {
+  it('when the telephone changes, then the workshop details were saved; with the name and the rate too, both, and the sidebar shows the new name at once', async () => {
     await open()
     await typeIntoInput('input[data-test=settings-phone], [data-test=settings-phone] input', '01632 960 000')
     await press('settings-save')
@@ -85,7 +98,8 @@ describe('what the settings say they saved', { timeout: 30_000 }, () => {
     await typeIntoInput('input[data-test=settings-name], [data-test=settings-name] input', 'Wrenfield Works')
     await typeInto('settings-vat-rate', '5')
     await press('settings-save')
-    expect(saidSaved()).toEqual(['Workshop details saved', 'Workshop and VAT details saved; the name shows after the next sign-in'])
+    expect(saidSaved()).toEqual(['Workshop details saved', 'Workshop and VAT details saved'])
+    expect(useSessionStore(pinia).user?.workshopName).toBe('Wrenfield Works')
   })
 })
 

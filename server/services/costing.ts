@@ -8,6 +8,7 @@ import {
   addBreakdowns,
   mulDivRound,
   breakdown,
+  customersMetalNote,
   customersPieceNote,
   labourMinor,
   margin,
@@ -101,16 +102,23 @@ const side = (cost: CostBreakdown, priceMinor: number, missing: Missing[]): Cost
 /**
  * Metal at estimate: the piece's typical weight × quantity at its alloy's price on the day. When the work is on the customer's own
  * piece (`customersPiece`), that weight is the metal added from stock — charged the same way — and the piece says so (`note`).
+ * On a piece made from the customer's own metal (`customersMetalMg`: what they brought in, as its ledger shows once it is weighed
+ * out as theirs), that metal covers the weight first and is not charged, as at actual; the piece says how much it covered.
  */
-function metalEstimate(book: PriceBook, params: PieceParams, day: string, customersPiece: boolean) {
+function metalEstimate(book: PriceBook, params: PieceParams, day: string, customersPiece: boolean, customersMetalMg = 0) {
   const alloy = book.forPiece(params.metal)
   const price = alloy ? book.on(alloy.id, day) : null
   const missing: Missing[] = []
-  let minor = 0
+  let minor = 0,
+    coveredMg = 0
   if (!PIECE_METAL_ALLOY[params.metal]) missing.push('metal-not-priced')
   else if (params.metalWeightG === undefined) missing.push('no-metal-weight')
   else if (!price) missing.push('no-metal-price')
-  else minor = metalMinor(gToMg(params.metalWeightG) * params.quantity, price.pricePerGramMinor)
+  else {
+    const estimatedMg = gToMg(params.metalWeightG) * params.quantity
+    coveredMg = customersPiece ? 0 : Math.min(estimatedMg, Math.max(0, customersMetalMg))
+    minor = metalMinor(estimatedMg - coveredMg, price.pricePerGramMinor)
+  }
   return {
     minor,
     missing,
@@ -118,8 +126,37 @@ function metalEstimate(book: PriceBook, params: PieceParams, day: string, custom
     pricePerGramMinor: price?.pricePerGramMinor ?? null,
     priceOn: price?.effectiveOn ?? null,
     customersPiece,
-    note: customersPiece ? customersPieceNote(params.metalWeightG, params.quantity) : null,
+    customersMetal: !customersPiece && customersMetalMg > 0,
+    note: customersPiece
+      ? customersPieceNote(params.metalWeightG, params.quantity)
+      : customersMetalMg > 0
+        ? customersMetalNote(coveredMg, customersMetalMg)
+        : null,
   }
+}
+
+type Movement = typeof metalMovements.$inferSelect
+/**
+ * The customer's own metal a job bag brought in, in mg by alloy: its weighings out as the customer's (corrections applied), less
+ * what such a weighing only took of the piece weighed back before it (the same metal out again for its next step) — as the stock
+ * counts metal come in from customers. `rows`: the bag's ledger rows, oldest first.
+ */
+function customersMetalIn(rows: readonly Movement[]): Map<number, number> {
+  const effective = new Map<number, number>()
+  for (const m of rows) effective.set(m.correctsId ?? m.id, (effective.get(m.correctsId ?? m.id) ?? 0) + m.weightMg)
+  const waiting = new Map<number, number>()
+  const brought = new Map<number, number>()
+  for (const m of rows) {
+    if (m.correctsId !== null) continue
+    const mg = Math.max(0, effective.get(m.id) ?? 0)
+    if (m.kind === 'returned' && m.form === 'piece') waiting.set(m.alloyId, (waiting.get(m.alloyId) ?? 0) + mg)
+    else if (m.kind === 'issued') {
+      const again = Math.min(waiting.get(m.alloyId) ?? 0, mg)
+      if (m.source === 'customer') brought.set(m.alloyId, (brought.get(m.alloyId) ?? 0) + mg - again)
+      waiting.delete(m.alloyId)
+    }
+  }
+  return brought
 }
 
 /** Stones at estimate: the stone list (cost each × count per piece × quantity), else the piece's count × its typical cost. */
@@ -307,7 +344,8 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       estUncosted = 0,
       customerLossMg = 0,
       metalNotWeighedMinor = 0,
-      workRecorded = false
+      workRecorded = false,
+      customersMetal = false
     const myBags = bags.filter((b) => b.orderId === order.id)
     let weighedBags = 0,
       preciousBags = 0
@@ -350,8 +388,15 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
           outsideAct += invoiced !== null ? invoiced : expected
         }
       }
-      // Metal at estimate, on the day the order was taken (on the customer's own piece: the metal added, as the dialog counted it).
-      const mEst = metalEstimate(book, params, orderDay, worksOnCustomersPiece({ kind: bag.routingKind }, params))
+      // The customer's own metal the bag brought in (none until it is weighed out as theirs), by alloy: at estimate and at actual
+      // alike it is theirs, never charged.
+      const bagLedger = moves.filter((m) => m.jobBagId === bag.id)
+      const customersIn = customersMetalIn(bagLedger)
+      const customersInMg = [...customersIn.values()].reduce((a, b) => a + b, 0)
+      // Metal at estimate, on the day the order was taken (on the customer's own piece: the metal added, as the dialog counted it;
+      // on a piece made from their metal: what it does not cover).
+      const mEst = metalEstimate(book, params, orderDay, worksOnCustomersPiece({ kind: bag.routingKind }, params), customersInMg)
+      if (mEst.customersMetal) customersMetal = true
       const sLines = lines.filter((l) => l.jobBagId === bag.id)
       const sEst = stonesEstimate(
         params,
@@ -376,7 +421,9 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
 
       // Metal at actual: per alloy of the bag, the last piece weighing and the loss at the price on the day of its first issue.
       let metalAct = 0
-      const bagMoves = moves.filter((m) => m.jobBagId === bag.id && (m.kind === 'issued' || m.kind === 'returned'))
+      const bagMoves = bagLedger.filter((m) => m.kind === 'issued' || m.kind === 'returned')
+      // The customer's piece handed back lighter (or heavier) than held: their metal lost (or gained), on this order.
+      customerLossMg += bagLedger.filter((m) => m.kind === 'customer-loss').reduce((t, m) => t + m.weightMg, 0)
       if (PIECE_METAL_ALLOY[params.metal] || bagMoves.length) preciousBags++
       if (bagMoves.length) {
         weighedBags++
@@ -386,7 +433,6 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
         const mine = bagMoves.filter((m) => m.alloyId === alloyId)
         const issued = mine.filter((m) => m.kind === 'issued')
         const issuedMg = issued.reduce((s, m) => s + m.weightMg, 0)
-        const customerMg = issued.filter((m) => m.source === 'customer').reduce((s, m) => s + m.weightMg, 0)
         const returnedMg = mine.filter((m) => m.kind === 'returned').reduce((s, m) => s + m.weightMg, 0)
         const lastPiece = mine.filter((m) => m.kind === 'returned' && m.form === 'piece' && m.correctsId === null).at(-1)
         const pieceMg = lastPiece ? lastPiece.weightMg + mine.filter((m) => m.correctsId === lastPiece.id).reduce((s, m) => s + m.weightMg, 0) : 0
@@ -396,7 +442,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
           missAct.push('no-metal-price')
           continue
         }
-        const r = metalActual({ pieceMg, lossMg: issuedMg - returnedMg, customerMg, pricePerGramMinor: price.pricePerGramMinor })
+        const r = metalActual({ pieceMg, lossMg: issuedMg - returnedMg, customerMg: customersIn.get(alloyId) ?? 0, pricePerGramMinor: price.pricePerGramMinor })
         metalAct += r.minor
         customerLossMg += r.customerLossMg
       }
@@ -436,7 +482,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       suggestedPriceMinor: suggestedPriceMinor(estCost.totalMinor, WORKSHOP_MARGIN_PCT, currency),
       currency,
       pricedOn: orderDay,
-      customersMetalCaveat: pieces.some((p) => p.customersPiece) ? CUSTOMERS_METAL_CAVEAT : null,
+      customersMetalCaveat: customersMetal || pieces.some((p) => p.customersPiece) ? CUSTOMERS_METAL_CAVEAT : null,
       customerMetalLossG: mgToG(customerLossMg),
       workRecorded,
       estimateMinutes: estMin,

@@ -24,6 +24,7 @@ import { audit } from './audit'
 import { finished, lockJobBag, refreshReadiness, syncJobBagStatus, type OperationChange } from './job-bag-state'
 import { benchRowsById, claimRefusal, toBenchOperations } from './bench-floor'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
+import { handBackCustomersPieces, type HandBackRow } from './metal'
 
 export type { BagChange, OperationChange } from './job-bag-state'
 
@@ -454,10 +455,29 @@ export function setSequence(deps: Deps, actor: Actor, jobBagId: number, input: S
   })
 }
 
-/** A manager holds, cancels or lifts the hold on a job bag. */
-export function setJobBagStatus(deps: Deps, actor: Actor, jobBagId: number, input: JobBagStatusInput) {
-  return editRouting(deps, actor, jobBagId, input.version, async (tx, bag) => {
+/**
+ * A manager holds, cancels or lifts the hold on a job bag. Cancelling a bag that holds the customer's own piece hands it back in
+ * the same transaction, at the weights handed over (`handBack`, by alloy) or else as held; a bag cancelled while the piece was at
+ * the bench is sent as cancelled again, with or without weights, once the piece is back, and only then hands it back.
+ */
+export async function setJobBagStatus(deps: Deps, actor: Actor, jobBagId: number, input: JobBagStatusInput) {
+  let handedBack: HandBackRow[] = []
+  const detail = await editRouting(deps, actor, jobBagId, input.version, async (tx, bag) => {
+    if (input.handBack && input.status !== 'cancelled') throw invalid('handBack', 'is recorded only with the job bag cancelled')
     const ops = await tx.select({ status: operations.status, name: operations.name }).from(operations).where(eq(operations.jobBagId, jobBagId))
+    // The order's row before the metal lock, as cancelling the whole order takes them, so the two never wait on each other.
+    const handBack = async () => {
+      await tx.select({ id: orders.id }).from(orders).where(eq(orders.id, bag.orderId)).for('update')
+      const given = (input.handBack ?? []).map((p) => ({ jobBagId, alloyId: p.alloyId, weightG: p.weightG }))
+      return handBackCustomersPieces(tx, actor, bag.orderId, given, { jobBagId })
+    }
+    if (input.status === 'cancelled' && bag.status === 'cancelled') {
+      handedBack = await handBack()
+      if (!handedBack.length)
+        throw new AppError({ code: 'unprocessable', message: `Job bag ${bag.number} is cancelled and holds nothing of the customer’s to hand back` })
+      await audit(tx, actor, 'hand-back', 'job-bag', jobBagId, { reason: input.reason })
+      return []
+    }
     let to: string
     if (input.status === 'resume') {
       if (bag.status !== 'on-hold') throw new AppError({ code: 'unprocessable', message: `Job bag ${bag.number} is ${bag.status}, not on hold` })
@@ -475,8 +495,12 @@ export function setJobBagStatus(deps: Deps, actor: Actor, jobBagId: number, inpu
     }
     await tx.update(jobBags).set({ status: to }).where(eq(jobBags.id, jobBagId))
     await audit(tx, actor, 'status', 'job-bag', jobBagId, { from: bag.status, to, reason: input.reason })
+    if (to === 'cancelled') handedBack = await handBack()
     return []
   })
+  for (const m of handedBack)
+    deps.realtime.emit(actor.workshopId, 'metal:recorded', { id: m.id, kind: m.kind, alloyId: m.alloyId, jobBagId: m.jobBagId, refiningLotId: null })
+  return detail
 }
 
 const RING_FIELDS = ['ringSize', 'resizeFrom', 'resizeTo'] as const

@@ -269,7 +269,7 @@ export async function updateOrder(deps: Deps, actor: Actor, id: number, input: O
   })
   realtime.emit(actor.workshopId, 'order:updated', { id, version: o.version })
   for (const m of handedBack)
-    realtime.emit(actor.workshopId, 'metal:recorded', { id: m.id, kind: 'delivered', alloyId: m.alloyId, jobBagId: m.jobBagId, refiningLotId: null })
+    realtime.emit(actor.workshopId, 'metal:recorded', { id: m.id, kind: m.kind, alloyId: m.alloyId, jobBagId: m.jobBagId, refiningLotId: null })
   // Without a queue (scripts): sent after commit; the outcome is kept in the outbox and never undoes the change.
   if (becameReady && !deps.jobs) await sendReadyNotice(deps, actor.workshopId, id).catch((err) => console.error('[mail] ready notice:', (err as Error).message))
   return getOrder(db, actor.workshopId, id)

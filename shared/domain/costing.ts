@@ -2,6 +2,7 @@
 // outside work and labour; each line rounded once (half away from zero); margins; the words beside a margin saying what is missing.
 
 import { currencyExponent, minorToMajor } from './currency'
+import { mgToG } from './metal'
 
 /** Minor units back to a major-unit number for a figure only shown or exported (never summed again), by the currency's decimals. */
 export const fromMinor = (minor: number, currency: string): number => minorToMajor(minor, currency)
@@ -141,9 +142,16 @@ export function customersPieceNote(metalAddedG: number | undefined, quantity: nu
   const added = metalAddedG === undefined ? 'no metal added entered' : `metal added ${metalAddedG} g${quantity > 1 ? ` a piece × ${quantity}` : ''}`
   return `customer’s own piece: not charged; ${added}`
 }
+/**
+ * A piece made from the customer's own metal (their gold weighed out as theirs, not a repair): what they brought in covers the
+ * estimate's weight first and is not charged, at estimate as at actual (the customer's own metal is not the workshop's material).
+ */
+export function customersMetalNote(coveredMg: number, broughtMg: number): string {
+  return `made from the customer’s own metal (${mgToG(broughtMg)} g brought in): ${mgToG(coveredMg)} g of the estimate not charged`
+}
 /** Beside an estimate with such a piece: what the estimate leaves out of the customer's metal, and where it shows instead. */
 export const CUSTOMERS_METAL_CAVEAT = 'the loss of the customer’s own metal is not in the estimate: it shows at actual once their piece is weighed'
 
 /** The note above the costing table and at the end of its CSV. */
 export const COSTING_NOTE =
-  'Cost = metal (net weight in the piece plus loss, at the alloy’s price on the day it was issued; the customer’s own metal free) + stones (cost each × set, broken and lost; the customer’s own free) + outside work + labour (hours × each person’s rate). At estimate: the routing’s minutes, the piece’s metal weight (on a repair, only the metal added to the customer’s piece) at the price on the order’s day, the stone list. At actual, a piece with no metal weighed counts its metal as estimated, never as free. Beside each margin: what could not be counted.'
+  'Cost = metal (net weight in the piece plus loss, at the alloy’s price on the day it was issued; the customer’s own metal free) + stones (cost each × set, broken and lost; the customer’s own free) + outside work + labour (hours × each person’s rate). At estimate: the routing’s minutes, the piece’s metal weight (on a repair, only the metal added to the customer’s piece; on a piece made from the customer’s own metal, only what their metal does not cover) at the price on the order’s day, the stone list. At actual, a piece with no metal weighed counts its metal as estimated, never as free. Beside each margin: what could not be counted.'

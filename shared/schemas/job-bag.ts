@@ -2,6 +2,7 @@
 import { z } from 'zod'
 import { id, isoDate, isoDateTime, name, version, wireInt } from './common'
 import { ringSizeInput } from './order'
+import { gramsToMg } from './metal'
 import { benchOperation } from './bench-floor'
 
 const reason = z.string({ error: 'is required' }).trim().min(3, 'say why (at least 3 characters)').max(500, 'must be at most 500 characters')
@@ -45,6 +46,15 @@ export const jobBagStatusInput = z.object({
   /** on-hold or cancelled by a manager; 'resume' lifts a hold (the status then follows the operations). */
   status: z.enum(['on-hold', 'cancelled', 'resume']),
   reason,
+  /**
+   * With the bag cancelled: the customer's own piece(s) it holds handed back to them, each by alloy with its weight as handed over;
+   * a piece the bag holds and not listed goes back at the weight held (services/metal/stock.ts handBackCustomersPieces). A bag
+   * cancelled while the piece was at the bench takes it later, sent again as cancelled.
+   */
+  handBack: z
+    .array(z.object({ alloyId: id, weightG: gramsToMg }))
+    .max(20, 'has too many pieces')
+    .optional(),
   version,
 })
 /**

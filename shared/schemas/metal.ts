@@ -224,7 +224,7 @@ export const alloy = z.object({
   priceOn: z.string().nullable(),
 })
 export type Alloy = z.infer<typeof alloy>
-export const MOVEMENT_KINDS = ['bought', 'issued', 'returned', 'to-refining', 'from-refining', 'adjusted', 'delivered'] as const
+export const MOVEMENT_KINDS = ['bought', 'issued', 'returned', 'to-refining', 'from-refining', 'adjusted', 'delivered', 'customer-loss'] as const
 export type MovementKind = (typeof MOVEMENT_KINDS)[number]
 export const metalMovement = z.object({
   id: wireInt,
@@ -345,9 +345,14 @@ export const stockRow = z.object({
   toRefiningMg: wireInt,
   fromRefiningMg: wireInt,
   adjustedMg: wireInt,
-  /** Finished pieces that left with their collected orders (their last weighing back). */
+  /** Finished pieces that left with their collected orders (their last weighing back), and customers' pieces handed back as weighed. */
   deliveredMg: wireInt,
-  /** bought + from customers − issued + returned − to refining + from refining + adjustments − delivered: all the metal in the workshop. */
+  /**
+   * The customers' metal lost (+) or gained (−) when their piece was handed back lighter or heavier than held: it was theirs, so it
+   * leaves the balance with the piece and the workshop's own metal is unchanged.
+   */
+  customersLossMg: wireInt,
+  /** bought + from customers − issued + returned − to refining + from refining + adjustments − delivered − customers' loss: all the metal in the workshop. */
   balanceMg: wireInt,
   balanceG: z.number(),
   /** Of the balance, the customers' own: the pieces of job bags whose metal came from the customer, back from the bench and not yet collected. */

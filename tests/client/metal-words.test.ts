@@ -12,6 +12,10 @@ describe('a job bag’s weighings in words', () => {
     expect(movementWords({ kind: 'issued', source: 'customer', form: null })).toBe('out (customer’s own)')
     expect(movementWords({ kind: 'returned', source: null, form: 'lemel' })).toBe('back as lemel')
   })
+  it('when the customer’s piece was handed back 0.052 g lighter or 0.008 g heavier than held, then the row says their metal lost or gained', () => {
+    expect(movementWords({ kind: 'customer-loss', source: null, form: null, effectiveMg: 52 })).toBe('lost from the customer’s metal as handed back')
+    expect(movementWords({ kind: 'customer-loss', source: null, form: null, effectiveMg: -8 })).toBe('gained by the customer’s metal as handed back')
+  })
 })
 
 describe('the alloy preselected for weighing a piece', () => {

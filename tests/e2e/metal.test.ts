@@ -190,11 +190,11 @@ describe('metal on the bench and the owner’s metal screen', () => {
   it('when the owner opens Metal, then each alloy’s balance is the sum of its ledger rows, loss by person matches the ledger, and 5 g of wax in 14K needs 71.89 g', async () => {
     const owner = await page('owner@wrenfield.test', { width: 1440, height: 900 })
     await owner.goto('/metal')
-    // SQL text on purpose — balance by the stock rule, summed here from the rows apart from the app: bought + came in from customers − issued + returned − to refining + from refining + adjusted − left with collected pieces.
+    // SQL text on purpose — balance by the stock rule, summed here from the rows apart from the app: bought + came in from customers − issued + returned − to refining + from refining + adjusted − left with collected pieces − the customers' metal lost at hand-back.
     const came = await cameInFromCustomers()
     const sums = (
       await q(`select a.code, coalesce(sum(case m.kind when 'bought' then m.weight_mg when 'issued' then -m.weight_mg
-        when 'returned' then m.weight_mg when 'to-refining' then -m.weight_mg when 'from-refining' then m.weight_mg when 'adjusted' then m.weight_mg when 'delivered' then -m.weight_mg else 0 end), 0)::int as balance
+        when 'returned' then m.weight_mg when 'to-refining' then -m.weight_mg when 'from-refining' then m.weight_mg when 'adjusted' then m.weight_mg when 'delivered' then -m.weight_mg when 'customer-loss' then -m.weight_mg else 0 end), 0)::int as balance
       from alloys a left join metal_movements m on m.alloy_id = a.id group by a.code`)
     ).map((s) => ({ ...s, balance: s.balance + (came.get(s.code) ?? 0) }))
     expect(sums.length).toBeGreaterThan(0)
@@ -206,7 +206,9 @@ describe('metal on the bench and the owner’s metal screen', () => {
       'the demo holds some stock',
     ).toBe(true)
     // The rule written under the table names every column the balance is made of, the pieces that left with their orders too.
-    await expect(owner.locator('[data-test=stock-rule]').innerText()).resolves.toMatch(/± count adjustments − left with pieces\./)
+    await expect(owner.locator('[data-test=stock-rule]').innerText()).resolves.toMatch(
+      /± count adjustments − left with pieces − customers’ metal\s+lost at hand-back\./,
+    )
 
     // SQL text on purpose — loss by person: each person's issued and loss, summed here from the job-bag rows (corrections included).
     const people =
@@ -246,11 +248,12 @@ describe('metal on the bench and the owner’s metal screen', () => {
         coalesce(sum(m.weight_mg) filter (where m.kind = 'to-refining'), 0)::int as to_refining,
         coalesce(sum(m.weight_mg) filter (where m.kind = 'from-refining'), 0)::int as from_refining,
         coalesce(sum(m.weight_mg) filter (where m.kind = 'adjusted'), 0)::int as adjusted,
-        coalesce(sum(m.weight_mg) filter (where m.kind = 'delivered'), 0)::int as delivered
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'delivered'), 0)::int as delivered,
+        coalesce(sum(m.weight_mg) filter (where m.kind = 'customer-loss'), 0)::int as customers_loss
       from alloys a left join metal_movements m on m.alloy_id = a.id group by a.code, a.fineness order by issued desc limit 1`)
     const a = { ...rows[0]!, customer: (await cameInFromCustomers()).get(rows[0]!.code) ?? 0 }
     expect(a.issued, 'the demo has issued metal of some alloy').toBeGreaterThan(0)
-    const balance = a.bought + a.customer - a.issued + a.returned - a.to_refining + a.from_refining + a.adjusted - a.delivered
+    const balance = a.bought + a.customer - a.issued + a.returned - a.to_refining + a.from_refining + a.adjusted - a.delivered - a.customers_loss
     await expect.poll(() => owner.locator(`[data-test="stock-balance-${a.code}"]`).innerText(), { timeout: 15_000 }).toBe(g(balance, 3))
     // Fine metal = weight × millesimal fineness / 1000 (e.g. 585 for 14 ct, as hallmarked), to the milligram.
     await expect(owner.locator(`[data-test="stock-fine-${a.code}"]`).innerText()).resolves.toBe(g(Math.round((balance * a.fineness) / 1000), 3))
@@ -282,6 +285,7 @@ describe('metal on the bench and the owner’s metal screen', () => {
       ['fromRefiningMg', a.from_refining],
       ['adjustedMg', a.adjusted],
       ['deliveredMg', a.delivered],
+      ['customersLossMg', a.customers_loss],
     ]
     for (const [key, mg] of want) await expect(moves.locator(`[data-test="stock-${key}-${a.code}"]`).innerText(), key).resolves.toBe(g(mg, 3))
     await screenshot(owner, 'metal-06-stock-at-1366', { fullPage: false })

@@ -284,6 +284,73 @@ describe('an order costed', () => {
     expect(r.body.customerMetalLossG).toBe(0.15)
   })
 
+  it('when a new ring is made from the customer’s own old gold, then neither the estimate nor the actual charges their metal, and the owner’s table agrees', async () => {
+    const o = await sales.post('/api/orders', {
+      customerId,
+      title: 'New ring from the customer’s old gold',
+      dueDate: '2031-01-31',
+      priceQuotedMinor: 60_000,
+      pieces: [{ ...piece, routingId }],
+    })
+    expect(o.status).toBe(201)
+    const jobBagId = await jobBagOfOrder(t.db, o.body.id)
+    // Before anything is weighed nobody knows whose metal it will be: 6.2 g × 6,000 p/g = 37,200 p at estimate, and at actual as estimated.
+    const before = await owner.get(`/api/orders/${o.body.id}/costing`)
+    expect([before.body.estimate.cost.metalMinor, before.body.actual.cost.metalMinor]).toEqual([37_200, 37_200])
+    // The customer's 8.000 g of old gold weighed out as theirs; the ring back at 6.200 g with 1.650 g of scrap: 0.150 g lost.
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'issued', weightMg: 8000, source: 'customer', recordedAt: sql`now()` })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'returned', weightMg: 6200, form: 'piece', recordedAt: sql`now()` })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'returned', weightMg: 1650, form: 'scrap', recordedAt: sql`now()` })
+    const r = await owner.get(`/api/orders/${o.body.id}/costing`)
+    // The 6.2 g estimated is all covered by the 8.000 g they brought in: 0 p at estimate; at actual 6.200 g in the ring and 0.150 g
+    // lost, all of it theirs: 0 p. Labour 210 min × 3,200 p/h ÷ 60 = 11,200 p and the hallmark's 4,500 p at estimate.
+    expect(r.body.estimate.cost).toEqual({ metalMinor: 0, stonesMinor: 0, outsideMinor: 4_500, labourMinor: 11_200, totalMinor: 15_700 })
+    expect(r.body.actual.cost.metalMinor).toBe(0)
+    expect(r.body.pieces[0]).toMatchObject({
+      customersPiece: false,
+      metalNote: 'made from the customer’s own metal (8 g brought in): 6.2 g of the estimate not charged',
+    })
+    expect(r.body.customersMetalCaveat).toBe('the loss of the customer’s own metal is not in the estimate: it shows at actual once their piece is weighed')
+    expect(r.body.customerMetalLossG).toBe(0.15)
+    // Every step finished: the owner's job costing has the same metal on both sides.
+    const ops = await stepIdsByKey(t.db, { jobBagId })
+    await finishedStep(t.db, ops.make!, { finishedAt: sql`now()` })
+    await finishedStep(t.db, ops.hallmark!, { finishedAt: sql`now()` })
+    const table = await owner.get(`/api/insights/costing?routingId=${routingId}`)
+    expect(table.body.rows.find((x: { orderId: number }) => x.orderId === o.body.id)).toMatchObject({ metalAtEstimateMinor: 0, metalAtActualMinor: 0 })
+  })
+
+  it('when the customer’s 3.000 g of gold and 3.000 g of stock make a ring weighed out again as theirs for polishing, then both sides charge only what stock gave', async () => {
+    const o = await sales.post('/api/orders', {
+      customerId,
+      title: 'Ring of their gold and ours',
+      dueDate: '2031-01-31',
+      priceQuotedMinor: 60_000,
+      pieces: [{ routingId, piece: 'Fixture ring', params: { metal: 'gold-18ct', metalWeightG: 5.8 } }],
+    })
+    expect(o.status).toBe(201)
+    const jobBagId = await jobBagOfOrder(t.db, o.body.id)
+    const at = (seconds: number) => sql`now() + make_interval(secs => ${seconds})`
+    // Making: 3.000 g of the customer's and 3.000 g of stock out; the ring back at 5.800 g and 0.120 g of scrap (0.080 g lost).
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'issued', weightMg: 3000, source: 'customer', recordedAt: at(0) })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'issued', weightMg: 3000, source: 'stock', recordedAt: at(1) })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'returned', weightMg: 5800, form: 'piece', recordedAt: at(2) })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'returned', weightMg: 120, form: 'scrap', recordedAt: at(3) })
+    // Polishing: the ring out again, marked as the customer's as the bench is offered it, back at 5.760 g and 0.010 g of lemel.
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'issued', weightMg: 5800, source: 'customer', recordedAt: at(4) })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'returned', weightMg: 5760, form: 'piece', recordedAt: at(5) })
+    await addMetalMovement(t.db, { alloyId, jobBagId, kind: 'returned', weightMg: 10, form: 'lemel', recordedAt: at(6) })
+    const r = await owner.get(`/api/orders/${o.body.id}/costing`)
+    // The customer brought in 3.000 g (the ring out again is the same metal, not 5.800 g more of theirs). At estimate: 5.800 − 3.000
+    // = 2.800 g × 6,000 p/g = 16,800 p. At actual: issued 11.800 g, returned 11.690 g, 0.110 g lost; the ring 5.760 g. Their 3.000 g
+    // covers the ring first: 2.760 g of it and the 0.110 g lost are stock's, 2,760 × 6,000 / 1,000 = 16,560 p + 110 × 6 = 660 p
+    // = 17,220 p.
+    expect(r.body.estimate.cost.metalMinor).toBe(16_800)
+    expect(r.body.actual.cost.metalMinor).toBe(17_220)
+    expect(r.body.pieces[0].metalNote).toBe('made from the customer’s own metal (3 g brought in): 3 g of the estimate not charged')
+    expect(r.body.customerMetalLossG).toBe(0)
+  })
+
   it('when nothing of an order has been worked yet, then its costing says no work is recorded, and once a step is finished it says there is', async () => {
     const o = await sales.post('/api/orders', {
       customerId,

@@ -768,7 +768,10 @@ describe('a cancelled order’s customer’s piece', () => {
         .select({ jobBagId: s.metalMovements.jobBagId, weightMg: s.metalMovements.weightMg, reason: s.metalMovements.reason })
         .from(s.metalMovements)
         .where(and(eq(s.metalMovements.kind, 'delivered'), eq(s.metalMovements.alloyId, alloy.id)))
-    return { alloy, orderId, bagId, post, stockOf, cancel, handedBack }
+    /** The piece back from the bench to the milligram (as a correction can leave it; the bench's scale reads to 0.01 g). */
+    const pieceBack = (weightMg: number) =>
+      addMetalMovement(t.db, { alloyId: alloy.id, jobBagId: bagId, personId, kind: 'returned', form: 'piece', weightMg, recordedAt: sql`now()` })
+    return { alloy, orderId, bagId, post, stockOf, cancel, handedBack, pieceBack }
   }
 
   it('when a repair holding the customer’s 6.180 g ring is cancelled, then the ring is handed back at the weight held and leaves the customers’ own', async () => {
@@ -802,14 +805,57 @@ describe('a cancelled order’s customer’s piece', () => {
     expect(await r.handedBack()).toHaveLength(1)
   })
 
-  it('when the office weighs the ring at the counter at 6.175 g as it hands it back, then 6.175 g leaves stock', async () => {
+  it('when the office weighs the ring at the counter at 6.175 g as it hands it back, then 6.175 g leaves stock and the 5 mg short is the customer’s, not the workshop’s', async () => {
     const r = await repairWithStock('Ring weighed at the counter')
     await r.post('/api/metal/issues', { weightG: 6.25, source: 'customer' })
     await r.post('/api/metal/returns', { weightG: 6.18, form: 'piece' })
     const cancelled = await r.cancel({ handBack: [{ jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 6.175 }] })
     expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200)
-    // Hand-worked: 30 + 6.25 − 6.25 + 6.18 − 6.175 = 30.005 g left, none of it the customer's.
-    expect(await r.stockOf()).toMatchObject({ balanceMg: 30_005, deliveredMg: 6_175, customersMg: 0 })
+    // Hand-worked: 30 + 6.25 − 6.25 + 6.18 − 6.175 handed over − 0.005 the customer's loss = 30.000 g left, the 30.00 g bought.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 30_000, deliveredMg: 6_175, customersLossMg: 5, customersMg: 0, ownMg: 30_000 })
+  })
+
+  it('when a ring held at 5.652 g is handed back at 5.600 g, then 0.052 g is lost from the customer’s metal on that order and the workshop’s stock is unchanged', async () => {
+    const r = await repairWithStock('Ring lighter at the counter')
+    expect((await as.owner.post(`/api/alloys/${r.alloy.id}/prices`, { pricePerGramMinor: 5000, effectiveOn: '2025-01-01' })).status).toBe(201)
+    await r.post('/api/metal/issues', { weightG: 5.7, source: 'customer' })
+    await r.pieceBack(5_652)
+    await r.post('/api/metal/returns', { weightG: 0.03, form: 'lemel' })
+    // Hand-worked: 30 + 5.700 − 5.700 + 5.652 + 0.030 = 35.682 g, of it the ring's 5.652 g the customer's: own 30.030 g.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 35_682, customersMg: 5_652, ownMg: 30_030 })
+    const cancelled = await r.cancel({ handBack: [{ jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 5.6 }] })
+    expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200)
+    // 5.600 g handed over and 5.652 − 5.600 = 0.052 g lost from the customer's metal: 35.682 − 5.600 − 0.052 = 30.030 g, all
+    // the workshop's own as before (30.00 g bought and the 0.030 g of lemel), worth 30.030 × 50.00 = 1,501.50.
+    expect(await r.stockOf()).toMatchObject({
+      balanceMg: 30_030,
+      deliveredMg: 5_600,
+      customersLossMg: 52,
+      customersMg: 0,
+      ownMg: 30_030,
+      valueMinor: 150_150,
+    })
+    const rows = await t.db
+      .select({ kind: s.metalMovements.kind, weightMg: s.metalMovements.weightMg, jobBagId: s.metalMovements.jobBagId, reason: s.metalMovements.reason })
+      .from(s.metalMovements)
+      .where(and(eq(s.metalMovements.alloyId, r.alloy.id), sql`${s.metalMovements.kind} in ('delivered', 'customer-loss')`))
+      .orderBy(asc(s.metalMovements.id))
+    expect(rows).toEqual([
+      { kind: 'delivered', weightMg: 5_600, jobBagId: r.bagId, reason: 'handed back to the customer, order cancelled' },
+      { kind: 'customer-loss', weightMg: 52, jobBagId: r.bagId, reason: 'lost from the customer’s metal: handed back at 5.600 g, held at 5.652 g' },
+    ])
+    // On the order: 5.700 − (5.652 + 0.030) = 0.018 g lost in the work and 0.052 g at the counter, 0.070 g of the customer's metal.
+    expect((await as.owner.get(`/api/orders/${r.orderId}/costing`)).body.customerMetalLossG).toBe(0.07)
+  })
+
+  it('when a ring held at 5.652 g is handed back heavier, at 5.660 g, then the 0.008 g is the customer’s gain and the workshop’s stock is unchanged', async () => {
+    const r = await repairWithStock('Ring heavier at the counter')
+    await r.post('/api/metal/issues', { weightG: 5.7, source: 'customer' })
+    await r.pieceBack(5_652)
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 35_652, customersMg: 5_652, ownMg: 30_000 })
+    expect((await r.cancel({ handBack: [{ jobBagId: r.bagId, alloyId: r.alloy.id, weightG: 5.66 }] })).status).toBe(200)
+    // 35.652 − 5.660 handed over + 0.008 gained by the customer = 30.000 g, the workshop's own as before.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 30_000, deliveredMg: 5_660, customersLossMg: -8, customersMg: 0, ownMg: 30_000 })
   })
 
   it('when the hand-back names a piece the order does not hold, or comes without cancelling, then 400 says which and nothing leaves', async () => {
@@ -865,5 +911,126 @@ describe('a cancelled order’s customer’s piece', () => {
     expect(later.status, JSON.stringify(later.body)).toBe(200)
     // 30 + 6.25 − 6.25 + 6.20 − 6.20 = 30.000 g.
     expect(await r.stockOf()).toMatchObject({ balanceMg: 30_000, customersMg: 0, ownMg: 30_000 })
+  })
+})
+
+describe('a cancelled job bag’s customer’s piece', () => {
+  /** An order of two of the customer's rings to repair (two job bags) and a fresh alloy with 30.00 g bought. */
+  async function twoRings(title: string) {
+    const alloy = await newAlloy()
+    const routingId = await firstRoutingId(t.db)
+    const r = await as.sales.post('/api/orders', {
+      customerId: await firstCustomerId(t.db),
+      title,
+      dueDate: '2031-09-01',
+      pieces: [
+        { routingId, piece: 'Ring A' },
+        { routingId, piece: 'Ring B' },
+      ],
+    })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    const [a, b] = (r.body.jobBags as { id: number; piece: string }[]).sort((x, y) => x.piece.localeCompare(y.piece))
+    const post = async (path: string, jobBagId: number, body: Record<string, unknown>) => {
+      const x = await as.bench.post(path, { alloyId: alloy.id, personId, clientId: cid(), jobBagId, ...body })
+      expect(x.status, JSON.stringify(x.body)).toBe(201)
+    }
+    await as.owner.post('/api/metal/purchases', { alloyId: alloy.id, weightG: 30, clientId: cid() })
+    const stockOf = async () => (await as.owner.get('/api/metal/stock')).body.find((x: { alloyId: number }) => x.alloyId === alloy.id)
+    /** The manager cancels one job bag (not the order), as on its page. */
+    const cancelBag = async (jobBagId: number, body: Record<string, unknown> = {}) => {
+      const bag = (await as.manager.get(`/api/job-bags/${jobBagId}`)).body
+      return as.manager.post(`/api/job-bags/${jobBagId}/status`, {
+        status: 'cancelled',
+        reason: 'The customer no longer wants it',
+        version: bag.version,
+        ...body,
+      })
+    }
+    const pieceBack = (jobBagId: number, weightMg: number) =>
+      addMetalMovement(t.db, { alloyId: alloy.id, jobBagId, personId, kind: 'returned', form: 'piece', weightMg, recordedAt: sql`now()` })
+    const ledger = () =>
+      t.db
+        .select({ kind: s.metalMovements.kind, weightMg: s.metalMovements.weightMg, jobBagId: s.metalMovements.jobBagId, reason: s.metalMovements.reason })
+        .from(s.metalMovements)
+        .where(and(eq(s.metalMovements.alloyId, alloy.id), sql`${s.metalMovements.kind} in ('delivered', 'customer-loss')`))
+        .orderBy(asc(s.metalMovements.id))
+    const bagStatus = async (jobBagId: number) => (await as.manager.get(`/api/job-bags/${jobBagId}`)).body.status as string
+    return { alloy, orderId: r.body.id as number, a: a!.id, b: b!.id, post, pieceBack, stockOf, cancelBag, ledger, bagStatus }
+  }
+
+  it('when one of two rings (held at 5.652 g) is cancelled and handed back at 5.600 g, then it leaves stock in the cancel, its 0.052 g short is the customer’s, and the other ring stays', async () => {
+    const r = await twoRings('Two rings, one withdrawn')
+    await r.post('/api/metal/issues', r.a, { weightG: 5.7, source: 'customer' })
+    await r.pieceBack(r.a, 5_652)
+    await r.post('/api/metal/issues', r.b, { weightG: 4.1, source: 'customer' })
+    await r.post('/api/metal/returns', r.b, { weightG: 4.08, form: 'piece' })
+    // Hand-worked: 30 + 5.700 + 4.100 − 5.700 − 4.100 + 5.652 + 4.080 = 39.732 g, of it the customer's 5.652 + 4.080 = 9.732 g.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 39_732, customersMg: 9_732, ownMg: 30_000 })
+    const cancelled = await r.cancelBag(r.a, { handBack: [{ alloyId: r.alloy.id, weightG: 5.6 }] })
+    expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200)
+    expect(cancelled.body.status).toBe('cancelled')
+    // Ring A leaves: 39.732 − 5.600 − 0.052 = 34.080 g, of it ring B's 4.080 g the customer's; the workshop's own still 30.000 g.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 34_080, deliveredMg: 5_600, customersLossMg: 52, customersMg: 4_080, ownMg: 30_000 })
+    expect(await r.ledger()).toEqual([
+      { kind: 'delivered', weightMg: 5_600, jobBagId: r.a, reason: 'handed back to the customer, job bag cancelled' },
+      { kind: 'customer-loss', weightMg: 52, jobBagId: r.a, reason: 'lost from the customer’s metal: handed back at 5.600 g, held at 5.652 g' },
+    ])
+    // The order goes on with ring B, which it still holds.
+    expect((await as.sales.get(`/api/orders/${r.orderId}`)).body.status).not.toBe('cancelled')
+    expect((await as.sales.get(`/api/orders/${r.orderId}/customers-metal`)).body).toEqual([expect.objectContaining({ jobBagId: r.b, weightMg: 4_080 })])
+    expect(await r.bagStatus(r.b)).not.toBe('cancelled')
+  })
+
+  it('when the job bag is cancelled with no weight given, then the piece goes back at the weight held', async () => {
+    const r = await twoRings('Two rings, one withdrawn unweighed')
+    await r.post('/api/metal/issues', r.a, { weightG: 5.7, source: 'customer' })
+    await r.pieceBack(r.a, 5_652)
+    expect((await r.cancelBag(r.a)).status).toBe(200)
+    // 30 + 5.700 − 5.700 + 5.652 − 5.652 = 30.000 g.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 30_000, deliveredMg: 5_652, customersLossMg: 0, customersMg: 0, ownMg: 30_000 })
+    expect(await r.ledger()).toEqual([{ kind: 'delivered', weightMg: 5_652, jobBagId: r.a, reason: 'handed back to the customer, job bag cancelled' }])
+  })
+
+  it('when the weight handed back is wrong, names a piece the bag does not hold, or comes without cancelling, then 400 says which and the bag stays as it was', async () => {
+    const r = await twoRings('Two rings, a wrong hand-back')
+    await r.post('/api/metal/issues', r.a, { weightG: 5.7, source: 'customer' })
+    await r.pieceBack(r.a, 5_652)
+    const other = await newAlloy()
+    expectFieldError(await r.cancelBag(r.a, { handBack: [{ alloyId: r.alloy.id, weightG: 5.6004 }] }), 'handBack.0.weightG', /3 decimals/)
+    expectFieldError(await r.cancelBag(r.a, { handBack: [{ alloyId: r.alloy.id, weightG: 0 }] }), 'handBack.0.weightG', /more than 0/)
+    expectFieldError(await r.cancelBag(r.a, { handBack: [{ alloyId: r.alloy.id, weightG: -5.6 }] }), 'handBack.0.weightG', /more than 0/)
+    expectFieldError(await r.cancelBag(r.a, { handBack: [{ alloyId: other.id, weightG: 5.6 }] }), 'handBack.0', /not a customer’s piece this job bag holds/)
+    // Ring B's piece is not this bag's to hand back.
+    await r.post('/api/metal/issues', r.b, { weightG: 4.1, source: 'customer' })
+    await r.post('/api/metal/returns', r.b, { weightG: 4.08, form: 'piece' })
+    const b = (await as.manager.get(`/api/job-bags/${r.b}`)).body
+    const onHold = await as.manager.post(`/api/job-bags/${r.a}/status`, {
+      status: 'on-hold',
+      reason: 'Waiting for the customer',
+      version: (await as.manager.get(`/api/job-bags/${r.a}`)).body.version,
+      handBack: [{ alloyId: r.alloy.id, weightG: 5.6 }],
+    })
+    expectFieldError(onHold, 'handBack', /only with the job bag cancelled/)
+    expect(await r.bagStatus(r.a)).toBe('waiting')
+    expect(b.status).toBe('waiting')
+    expect(await r.ledger()).toEqual([])
+    expect(await r.stockOf()).toMatchObject({ customersMg: 5_652 + 4_080, deliveredMg: 0, customersLossMg: 0 })
+  })
+
+  it('when the ring is at the bench as its bag is cancelled, then nothing leaves until it is back, and then it is handed back once', async () => {
+    const r = await twoRings('Two rings, one at the bench')
+    await r.post('/api/metal/issues', r.a, { weightG: 5.7, source: 'customer' })
+    expect((await r.cancelBag(r.a)).status).toBe(200)
+    expect(await r.ledger()).toEqual([])
+    await r.pieceBack(r.a, 5_652)
+    expect(await r.stockOf()).toMatchObject({ customersMg: 5_652 })
+    const later = await r.cancelBag(r.a, { handBack: [{ alloyId: r.alloy.id, weightG: 5.65 }] })
+    expect(later.status, JSON.stringify(later.body)).toBe(200)
+    // 30 + 5.700 − 5.700 + 5.652 − 5.650 − 0.002 = 30.000 g.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 30_000, deliveredMg: 5_650, customersLossMg: 2, customersMg: 0, ownMg: 30_000 })
+    const again = await r.cancelBag(r.a)
+    expectCleanError(again, 422)
+    expect(again.body.error).toMatch(/holds nothing of the customer’s to hand back/)
+    expect(await r.ledger()).toHaveLength(2)
   })
 })

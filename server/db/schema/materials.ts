@@ -71,7 +71,7 @@ export const refiningLots = pgTable(
 
 /**
  * The metal ledger: every movement of an alloy, by weight in mg. Stock of an alloy = bought + returned + back from refining
- * − issued − sent to refining − delivered (customer's own metal is issued and returned but never bought). Rows are never edited:
+ * − issued − sent to refining − delivered − customers' loss at hand-back (customer's own metal is issued and returned but never bought). Rows are never edited:
  * a correction is a new row that names the row it corrects, who made it and why.
  */
 export const metalMovements = pgTable(
@@ -84,9 +84,13 @@ export const metalMovements = pgTable(
     alloyId: integer()
       .notNull()
       .references(() => alloys.id),
-    /** bought | issued | returned | to-refining | from-refining | adjusted (stock count difference) | delivered (the finished piece left with its order). */
-    kind: text().$type<'bought' | 'issued' | 'returned' | 'to-refining' | 'from-refining' | 'adjusted' | 'delivered'>().notNull(),
-    /** Signed milligrams as entered for the kind (always > 0 except for corrections and adjustments, which may be negative). */
+    /**
+     * bought | issued | returned | to-refining | from-refining | adjusted (stock count difference) | delivered (the finished piece left
+     * with its order, or the customer's piece handed back) | customer-loss (the customer's piece handed back lighter or heavier than
+     * held: their metal lost, or gained when negative; it leaves the balance with the piece, never touching the workshop's own).
+     */
+    kind: text().$type<'bought' | 'issued' | 'returned' | 'to-refining' | 'from-refining' | 'adjusted' | 'delivered' | 'customer-loss'>().notNull(),
+    /** Signed milligrams as entered for the kind (always > 0 except for corrections, adjustments and a customer's gain, which may be negative). */
     weightMg: integer().notNull(),
     /** Issued metal: from the workshop's stock or the customer's own (old gold to be remade). */
     source: text().$type<'stock' | 'customer'>(),

@@ -5,5 +5,5 @@
 export { createAlloy, listAlloys, listPrices, setPrice, updateAlloy } from './prices'
 export { adjustStock, correctMovement, issueMetal, jobBagMetal, listMovements, purchaseMetal, returnMetal } from './ledger'
 export { listTolerances, lossFigures, lossReport, setTolerance } from './losses'
-export { deliverOrderMetal, handBackCustomersPieces, heldCustomersPieces, stock } from './stock'
+export { deliverOrderMetal, handBackCustomersPieces, heldCustomersPieces, stock, type HandBackRow, type PieceHandedBack } from './stock'
 export { addToLot, createLot, getLot, listLots, sendLot, settleLot } from './refining'

@@ -1,10 +1,10 @@
 // Metal, stock: the balance of each alloy (bought, issued and returned, refining, adjustments, delivered) with its fine weight, of it
 // the customers' own pieces waiting to be collected, the value of the workshop's own at today's price, finished pieces leaving
-// stock when their order is collected, and a cancelled order's customer's pieces handed back.
+// stock when their order is collected, and the customer's pieces of a cancelled order or job bag handed back (what the counter
+// weighs against what was held is the customer's metal lost or gained, never the workshop's).
 import { and, asc, eq, inArray, sql } from 'drizzle-orm'
 import { fineMg, gToMg, mgToG } from '../../../shared/domain/metal'
 import { type HeldPiece, type StockRow } from '../../../shared/schemas/metal'
-import type { OrderUpdate } from '../../../shared/schemas/order'
 import type { Db, Tx } from '../../db/client'
 import { alloys, jobBags, metalMovements } from '../../db/schema/index'
 import { invalid } from '../../errors/app-error'
@@ -31,6 +31,7 @@ function whereThePiecesAre(rows: readonly Movement[]) {
       delivered.add(key)
       continue
     }
+    if (m.kind !== 'issued' && m.kind !== 'returned') continue
     if (m.correctsId !== null || (effective.get(m.id) ?? 0) === 0) continue
     if (m.kind === 'issued' && !firstSource.has(key)) firstSource.set(key, m.source)
     if (m.kind === 'returned' && m.form !== 'piece') continue
@@ -113,8 +114,10 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
     const toRefiningMg = s('to-refining'),
       fromRefiningMg = s('from-refining'),
       adjustedMg = s('adjusted'),
-      deliveredMg = s('delivered')
-    const balanceMg = boughtMg + fromCustomerMg - issuedMg + returnedMg - toRefiningMg + fromRefiningMg + adjustedMg - deliveredMg
+      deliveredMg = s('delivered'),
+      // The customer's piece weighed lighter (or heavier) at the counter than held: theirs, so it leaves the balance with the piece.
+      customersLossMg = s('customer-loss')
+    const balanceMg = boughtMg + fromCustomerMg - issuedMg + returnedMg - toRefiningMg + fromRefiningMg + adjustedMg - deliveredMg - customersLossMg
     const customersMg = customers.get(a.id) ?? 0
     const ownMg = balanceMg - customersMg
     const p = prices.get(a.id)
@@ -133,6 +136,7 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
       fromRefiningMg,
       adjustedMg,
       deliveredMg,
+      customersLossMg,
       balanceMg,
       balanceG: mgToG(balanceMg),
       customersMg,
@@ -221,48 +225,80 @@ export async function heldCustomersPieces(db: Tx, workshopId: number, orderId: n
   return out.sort((a, b) => a.number.localeCompare(b.number) || a.alloyId - b.alloyId)
 }
 
+/** A piece given back to the customer as the office weighed it at the counter: by job bag and alloy, in grams. */
+export interface PieceHandedBack {
+  jobBagId: number
+  alloyId: number
+  weightG: number
+}
+/** A ledger row a hand-back wrote, for its event after commit. */
+export interface HandBackRow {
+  id: number
+  kind: 'delivered' | 'customer-loss'
+  alloyId: number
+  jobBagId: number
+}
+
 /**
- * When an order is cancelled its customer's pieces go back to them: each piece it holds leaves stock as a 'delivered' row (the
- * kind a collected piece leaves by), at the weight the office handed over (`given`, by job bag and alloy) or else at the weight
- * held. A piece named that the order does not hold is refused (400 on `handBack.<i>`). Runs inside the order's transaction,
- * after its row lock; returns the rows written, for their events after commit.
+ * When an order (or one of its job bags) is cancelled its customer's pieces go back to them: each piece it holds (of that bag
+ * only, with `jobBagId`) leaves stock as a 'delivered' row (the kind a collected piece leaves by), at the weight the office handed
+ * over (`given`, by job bag and alloy) or else at the weight held. The piece is the customer's metal, all of it: a weight handed
+ * over lighter or heavier than held is their metal lost or gained, not the workshop's stock, so the difference (held − handed
+ * over; negative when heavier) is written beside it as a 'customer-loss' row of that bag, and the workshop's own metal is what it
+ * was. A piece named that the bag or order does not hold is refused (400 on `handBack.<i>`). Runs inside the order's or bag's
+ * transaction, after its row lock; returns the rows written, for their events after commit.
  */
 export async function handBackCustomersPieces(
   tx: Tx,
   actor: Actor,
   orderId: number,
-  given: NonNullable<OrderUpdate['handBack']> = [],
-): Promise<{ id: number; alloyId: number; jobBagId: number }[]> {
+  given: readonly PieceHandedBack[] = [],
+  scope: { jobBagId?: number } = {},
+): Promise<HandBackRow[]> {
   await lockMetal(tx, actor.workshopId)
-  const held = await heldCustomersPieces(tx, actor.workshopId, orderId)
+  const held = (await heldCustomersPieces(tx, actor.workshopId, orderId)).filter((h) => scope.jobBagId === undefined || h.jobBagId === scope.jobBagId)
+  const holds = scope.jobBagId === undefined ? 'this order holds' : 'this job bag holds'
   const weighed = new Map<string, number>()
   for (const [i, g] of given.entries()) {
     const key = `${g.jobBagId}:${g.alloyId}`
-    if (!held.some((h) => `${h.jobBagId}:${h.alloyId}` === key)) throw invalid(`handBack.${i}`, 'is not a customer’s piece this order holds')
+    if (!held.some((h) => `${h.jobBagId}:${h.alloyId}` === key)) throw invalid(`handBack.${i}`, `is not a customer’s piece ${holds}`)
     if (weighed.has(key)) throw invalid(`handBack.${i}`, 'names the same piece twice')
     weighed.set(key, gToMg(g.weightG))
   }
+  const why = scope.jobBagId === undefined ? 'order cancelled' : 'job bag cancelled'
   const at = new Date().toISOString()
-  const written: { id: number; alloyId: number; jobBagId: number }[] = []
-  for (const h of held) {
-    const weightMg = weighed.get(`${h.jobBagId}:${h.alloyId}`) ?? h.weightMg
+  const written: HandBackRow[] = []
+  const write = async (h: HeldPiece, kind: HandBackRow['kind'], weightMg: number, reason: string) => {
     const [row] = await tx
       .insert(metalMovements)
       .values({
         workshopId: actor.workshopId,
         alloyId: h.alloyId,
-        kind: 'delivered',
+        kind,
         weightMg,
         jobBagId: h.jobBagId,
         personId: null,
         operationId: null,
-        reason: 'handed back to the customer, order cancelled',
+        reason,
         recordedBy: actor.userId,
         recordedAt: at,
       })
       .returning({ id: metalMovements.id })
-    await audit(tx, actor, 'hand-back', 'metal-movement', row!.id, { orderId, jobBagId: h.jobBagId, alloyId: h.alloyId, weightMg, heldMg: h.weightMg })
-    written.push({ id: row!.id, alloyId: h.alloyId, jobBagId: h.jobBagId })
+    written.push({ id: row!.id, kind, alloyId: h.alloyId, jobBagId: h.jobBagId })
+    return row!.id
+  }
+  for (const h of held) {
+    const weightMg = weighed.get(`${h.jobBagId}:${h.alloyId}`) ?? h.weightMg
+    const differenceMg = h.weightMg - weightMg
+    const id = await write(h, 'delivered', weightMg, `handed back to the customer, ${why}`)
+    await audit(tx, actor, 'hand-back', 'metal-movement', id, { orderId, jobBagId: h.jobBagId, alloyId: h.alloyId, weightMg, heldMg: h.weightMg, differenceMg })
+    if (differenceMg === 0) continue
+    const reason = `${differenceMg > 0 ? 'lost from' : 'gained by'} the customer’s metal: handed back at ${fmt3(weightMg)} g, held at ${fmt3(h.weightMg)} g`
+    const lossId = await write(h, 'customer-loss', differenceMg, reason)
+    await audit(tx, actor, 'customer-loss', 'metal-movement', lossId, { orderId, jobBagId: h.jobBagId, alloyId: h.alloyId, weightMg: differenceMg })
   }
   return written
 }
+
+/** Milligrams as grams to the milligram, as the hand-back dialog and the stock show them (6180 → "6.180"). */
+const fmt3 = (mg: number) => (mg / 1000).toFixed(3)

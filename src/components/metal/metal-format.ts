@@ -17,8 +17,11 @@ export const fmtMg3 = (mg: number | null | undefined): string =>
 /** Grams to the milligram: 125.874 → "125.874 g" (loss tables, so issued − returned = loss as printed). */
 export const fmtG3 = (g: number | null | undefined): string =>
   g === null || g === undefined || !Number.isFinite(g) ? '—' : `${g.toLocaleString('en-GB', { minimumFractionDigits: 3, maximumFractionDigits: 3 })} g`
-/** What a weighing of a job bag was, in the bench's words; the piece leaving with its collected order too. */
-export const movementWords = (m: Pick<MetalMovement, 'kind' | 'source' | 'form'>): string =>
+/**
+ * What a weighing of a job bag was, in the bench's words; the piece leaving with its collected order (or handed back), and the
+ * customer's metal lost or gained when their piece was handed back lighter or heavier than held (by the sign of its weight).
+ */
+export const movementWords = (m: Pick<MetalMovement, 'kind' | 'source' | 'form'> & { effectiveMg?: number }): string =>
   m.kind === 'issued'
     ? m.source === 'customer'
       ? 'out (customer’s own)'
@@ -27,7 +30,11 @@ export const movementWords = (m: Pick<MetalMovement, 'kind' | 'source' | 'form'>
       ? `back as ${m.form}`
       : m.kind === 'delivered'
         ? 'left with its order'
-        : m.kind
+        : m.kind === 'customer-loss'
+          ? (m.effectiveMg ?? 0) < 0
+            ? 'gained by the customer’s metal as handed back'
+            : 'lost from the customer’s metal as handed back'
+          : m.kind
 /** 2.08 → "2.1 %". */
 export const fmtPct = (p: number | null | undefined): string =>
   p === null || p === undefined || !Number.isFinite(p) ? '—' : `${p.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 })} %`

@@ -1,4 +1,4 @@
-// The workshop's e-mail texts: promise confirmation, a quote, a balance to pay, ready for collection, and the managers' daily at-risk digest.
+// The workshop's e-mail texts: promise confirmation, a quote and its reminder, a balance to pay, ready for collection, and the managers' daily at-risk digest.
 import { minorToMajor } from '../../shared/domain/currency'
 import { vatLine, vatNumberLine, type VatTerms } from '../../shared/domain/vat'
 import { dayjs } from '../lib/time'
@@ -123,6 +123,37 @@ export function quoteOffer(o: {
     .map((l) => (l.startsWith('Pay the deposit') && o.depositUrl ? `<p><a href="${esc(o.depositUrl)}">Pay the deposit</a></p>` : l ? `<p>${esc(l)}</p>` : ''))
     .join('')}</div>`
   return { subject: `${o.workshop.name}: quote ${o.quoteNumber} for "${o.title}"`, text, html }
+}
+
+/**
+ * The reminder of a quote about to lapse: until when it stands, its price with the VAT in it under the terms the quote was issued
+ * with (a quote issued when the workshop was not registered says none), signed as every customer e-mail is.
+ */
+export function quoteReminder(o: {
+  workshop: WorkshopContact
+  customerName: string
+  quoteNumber: string
+  title: string
+  currency: string
+  priceMinor: number
+  validUntil: string
+}): MailContent {
+  const m = (minor: number) => money(minorToMajor(minor, o.currency), o.currency)
+  const text = [
+    `Dear ${o.customerName},`,
+    '',
+    `Our quote ${o.quoteNumber} for "${o.title}" stands until ${longDate(o.validUntil)}. Paying the deposit accepts it.`,
+    '',
+    `Price: ${m(o.priceMinor)}`,
+    ...vatLines(o.workshop, o.priceMinor, o.currency),
+    '',
+    ...signature(o.workshop).map((l, i) => (i === 0 ? `— ${l}` : l)),
+  ].join('\n')
+  const html = `<div style="font-family:sans-serif;line-height:1.5">${text
+    .split('\n')
+    .map((l) => (l ? `<p>${esc(l)}</p>` : ''))
+    .join('')}</div>`
+  return { subject: `${o.workshop.name}: quote ${o.quoteNumber} ends soon`, text, html }
 }
 
 /**

@@ -159,7 +159,10 @@ function customersMetalIn(rows: readonly Movement[]): Map<number, number> {
   return brought
 }
 
-/** Stones at estimate: the stone list (cost each × count per piece × quantity), else the piece's count × its typical cost. */
+/**
+ * Stones at estimate: the stone list (cost each × count per piece × quantity) — an order's piece's own, else the stones its quote
+ * was written with — else the piece's count × its typical cost.
+ */
 function stonesEstimate(params: PieceParams, lines: readonly StoneLine[] | undefined) {
   const missing: Missing[] = []
   let minor = 0
@@ -278,7 +281,8 @@ export interface CostedOrder extends Omit<OrderCosting, 'metalAsEstimatedMinor'>
 
 /**
  * Orders at estimate and at actual. Estimate: each step's estimate minutes at the rate of whoever did it (else the person planned, else
- * the average), the routing's outside costs, the piece's typical metal at the price on the day the order was taken, the stone list.
+ * the average), the routing's outside costs, the piece's typical metal at the price on the day the order was taken, the stone list
+ * (before the piece has one, the stones as quoted).
  * Actual: time records at each person's rate, outside work as invoiced (else expected), metal from the ledger, stones as counted.
  */
 export async function costOrders(db: Tx, workshopId: number, orderIds: number[]): Promise<Map<number, CostedOrder>> {
@@ -398,9 +402,12 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
       const mEst = metalEstimate(book, params, orderDay, worksOnCustomersPiece({ kind: bag.routingKind }, params), customersInMg)
       if (mEst.customersMetal) customersMetal = true
       const sLines = lines.filter((l) => l.jobBagId === bag.id)
+      // The piece's own stone list; until it has one, the stones its quote was written with, at the quote's costs.
       const sEst = stonesEstimate(
         params,
-        sLines.map((l) => ({ count: l.count, costEachMinor: l.costEachMinor, customerOwned: l.customerOwned })),
+        sLines.length
+          ? sLines.map((l) => ({ count: l.count, costEachMinor: l.costEachMinor, customerOwned: l.customerOwned }))
+          : bag.quotedStones?.map((l) => ({ count: l.count, costEachMinor: l.costEachMinor, customerOwned: false })),
       )
       missEst.push(...mEst.missing, ...sEst.missing)
       const bagEst = breakdown({ metalMinor: mEst.minor, stonesMinor: sEst.minor, outsideMinor: outsideEst, labourMinor: labourEst })
@@ -459,7 +466,7 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
           else stonesAct += stonesMinor(l.costEachMinor, c.set + c.broken + c.lost)
         }
       } else {
-        // No stone list: the piece's count at its typical cost, as at estimate.
+        // No stone list: as at estimate (the stones as quoted, else the piece's count at its typical cost).
         stonesAct = sEst.minor
         missAct.push(...sEst.missing)
       }

@@ -2,6 +2,7 @@
 import { and, asc, count, desc, eq, ilike, inArray, or, sql } from 'drizzle-orm'
 import type { ListQuery, Page } from '../../shared/schemas/common'
 import { orderDateProblems, type OrderInput, type OrderSummary, type OrderUpdate } from '../../shared/schemas/order'
+import type { QuotedStone } from '../../shared/schemas/quote'
 import { routingStepMinutes } from '../../shared/domain/estimate'
 import { storedVatTerms, type StoredVatTerms } from '../../shared/domain/vat'
 import type { Db, Trx } from '../db/client'
@@ -124,8 +125,13 @@ export async function refusePastDates(
     })
 }
 
+/** A piece as an order is taken with it: as the order form sends it, or made from a quote with the quote's stone rows. */
+export type TakenPiece = OrderInput['pieces'][number] & { quotedStones?: QuotedStone[] }
+/** An order as it is taken: the order form's, the promise check's, or one made from a quote (its piece keeps the quoted stones). */
+export type TakenOrder = Omit<OrderInput, 'pieces'> & { pieces: TakenPiece[] }
+
 /** Adds one job bag with its routing's steps as operations (inside the caller's transaction). */
-export async function addJobBag(tx: Trx, workshopId: number, orderId: number, orderNumber: string, index: number, piece: OrderInput['pieces'][number]) {
+export async function addJobBag(tx: Trx, workshopId: number, orderId: number, orderNumber: string, index: number, piece: TakenPiece) {
   const [t] = await tx
     .select()
     .from(routings)
@@ -134,7 +140,16 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
   const steps = await tx.select().from(routingSteps).where(eq(routingSteps.routingId, t.id)).orderBy(asc(routingSteps.seq))
   const [bag] = await tx
     .insert(jobBags)
-    .values({ workshopId, orderId, number: `${orderNumber}-${index + 1}`, piece: piece.piece, routingId: t.id, routingKind: t.kind, params: piece.params })
+    .values({
+      workshopId,
+      orderId,
+      number: `${orderNumber}-${index + 1}`,
+      piece: piece.piece,
+      routingId: t.id,
+      routingKind: t.kind,
+      params: piece.params,
+      quotedStones: piece.quotedStones?.length ? piece.quotedStones : null,
+    })
     .returning()
   await tx.insert(operations).values(
     steps.map((s) => ({
@@ -163,7 +178,7 @@ export async function addJobBag(tx: Trx, workshopId: number, orderId: number, or
 export async function takeOrder<T>(
   { db, realtime }: Deps,
   actor: Actor,
-  input: OrderInput,
+  input: TakenOrder,
   within: (tx: Trx, orderId: number) => Promise<T>,
   vat?: StoredVatTerms,
 ) {

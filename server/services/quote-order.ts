@@ -2,6 +2,7 @@
 // card (payments.ts), so both make the same order and book it into the live plan the same way.
 import { eq } from 'drizzle-orm'
 import { pieceParams, type OrderInput } from '../../shared/schemas/order'
+import { quotedStones, type QuoteStone } from '../../shared/schemas/quote'
 import { storedVatTerms, type StoredVatTerms } from '../../shared/domain/vat'
 import type { Trx } from '../db/client'
 import * as s from '../db/schema/index'
@@ -9,6 +10,7 @@ import { AppError } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { audit } from './audit'
 import { depositHolds } from './deposit-hold'
+import type { TakenOrder } from './orders'
 import { bookSlot, roomFor, type Booking, type Room } from './promise'
 
 /**
@@ -18,9 +20,12 @@ import { bookSlot, roomFor, type Booking, type Room } from './promise'
 export const quoteVatAtAcceptance = (q: typeof s.quotes.$inferSelect, workshop: StoredVatTerms): StoredVatTerms =>
   storedVatTerms(q.status === 'drafted' ? workshop : q)
 
-/** What an accepted quote becomes: one piece from the quoted routing (none when the quote names no routing). */
-export function quoteOrderInput(q: typeof s.quotes.$inferSelect): OrderInput {
-  const d = q.details as { routingId?: number; piece?: string; params?: OrderInput['pieces'][number]['params']; priority?: number }
+/**
+ * What an accepted quote becomes: one piece from the quoted routing (none when the quote names no routing), keeping the quote's
+ * stone rows with their costs, which the quote's estimate counted as that piece's stones.
+ */
+export function quoteOrderInput(q: typeof s.quotes.$inferSelect): TakenOrder {
+  const d = q.details as { routingId?: number; piece?: string; params?: OrderInput['pieces'][number]['params']; priority?: number; stones?: QuoteStone[] }
   const due = q.promisedDate ?? q.validUntil
   return {
     customerId: q.customerId,
@@ -31,7 +36,9 @@ export function quoteOrderInput(q: typeof s.quotes.$inferSelect): OrderInput {
     priceQuotedMinor: q.priceMinor,
     notes: `From quote ${q.number}`,
     // The quoted parameters with the order form's defaults filled in (metal, quantity, …), as the order form would send them.
-    pieces: d.routingId ? [{ routingId: d.routingId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}) }] : [],
+    pieces: d.routingId
+      ? [{ routingId: d.routingId, piece: d.piece ?? q.title, params: pieceParams.parse(d.params ?? {}), quotedStones: quotedStones(d.stones) }]
+      : [],
   }
 }
 

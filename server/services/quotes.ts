@@ -1,13 +1,21 @@
 // Quotes: drafted → sent (e-mailed with a deposit link) → accepted (the order is made or linked), or expired / withdrawn; the PDF.
 import { and, count, desc, eq, ilike, inArray, lt, or, sql } from 'drizzle-orm'
 import PDFDocument from 'pdfkit'
-import { defaultValidUntil, quoteDateProblems, type QuoteInput, type QuoteUpdate, type QuoteStatus } from '../../shared/schemas/quote'
+import {
+  defaultValidUntil,
+  quoteDateProblems,
+  quoteStoneWords,
+  type QuoteInput,
+  type QuoteStatus,
+  type QuoteStone,
+  type QuoteUpdate,
+} from '../../shared/schemas/quote'
 import type { Db, Trx } from '../db/client'
 import * as s from '../db/schema/index'
 import { AppError, invalid, notFound, staleVersion } from '../errors/app-error'
 import type { Actor, Deps } from '../lib/route'
 import { dayjs, formatDayWithYear } from '../lib/time'
-import { balanceReminder, money, quoteOffer } from '../mail/messages'
+import { balanceReminder, money, quoteOffer, quoteReminder } from '../mail/messages'
 import { minorToMajor } from '../../shared/domain/currency'
 import { storedVatTerms, vatFiguresOf, vatLine, vatNumberLine, vatTermsOf, type StoredVatTerms } from '../../shared/domain/vat'
 import { metalName, type PieceParams } from '../../shared/schemas/order'
@@ -462,9 +470,10 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
     routingId?: number
     metal?: string
     params?: Partial<PieceParams>
-    stones?: { description: string; count?: number; carats?: number }[]
+    stones?: QuoteStone[]
   }
-  // The metal by its name, not the code it is stored as, with the piece's estimated weight; stones as "count × what".
+  // The metal by its name, not the code it is stored as, with the piece's estimated weight; stones as "count × what", their
+  // weight in the words it was given (each or in all).
   const [routing] = d.routingId
     ? await db
         .select({ kind: s.routings.kind })
@@ -473,7 +482,7 @@ export async function quotePdf(db: Db, workshopId: number, id: number): Promise<
     : []
   const metal = quoteMetalLine(d, worksOnCustomersPiece(routing, d.params))
   if (metal) doc.text(metal)
-  for (const st of d.stones ?? []) doc.text(`Stones: ${st.count ? `${st.count} × ` : ''}${st.description}${st.carats ? `, ${st.carats} ct` : ''}`)
+  for (const st of d.stones ?? []) doc.text(`Stones: ${quoteStoneWords(st)}`)
   if (q.promisedDate) doc.moveDown().text(`Ready by ${dayjs(q.promisedDate).format('D MMMM YYYY')}`)
   const c = q.confidence as { p80?: string } | null
   if (c?.p80) doc.text(`(Our planning gives 4 in 5 chances of finishing by ${dayjs(c.p80).format('D MMMM YYYY')})`)
@@ -502,20 +511,28 @@ export async function sendMoneyReminders(deps: Pick<Deps, 'db' | 'realtime' | 'm
     .where(and(eq(s.outbox.workshopId, workshopId), inArray(s.outbox.kind, ['quote-reminder', 'balance-reminder'])))
   let n = 0
   for (const q of await deps.db
-    .select(cols)
+    .select({ ...cols, vatRegistered: s.quotes.vatRegistered, vatNumber: s.quotes.vatNumber, vatRateBasisPoints: s.quotes.vatRateBasisPoints })
     .from(s.quotes)
     .innerJoin(s.customers, eq(s.customers.id, s.quotes.customerId))
     .leftJoin(s.orders, eq(s.orders.id, s.quotes.orderId))
     .where(and(eq(s.quotes.workshopId, workshopId), eq(s.quotes.status, 'sent'), sql`${s.quotes.validUntil} <= ${soon}`))) {
     if (sent.some((x) => x.kind === 'quote-reminder' && x.meta?.quoteId === q.id)) continue
-    const text = `Dear ${q.customerName},\n\nOur quote ${q.number} for "${q.title}" stands until ${dayjs(q.validUntil).format('dddd D MMMM YYYY')}. Paying the deposit accepts it.\n\n— ${w!.name}`
     await sendRecorded(deps, {
       workshopId,
       to: q.customerEmail,
       kind: 'quote-reminder',
       orderId: q.orderId,
       meta: { quoteId: q.id },
-      content: { subject: `${w!.name}: quote ${q.number} ends soon`, text, html: `<p>${text.replace(/\n/g, '<br>')}</p>` },
+      content: quoteReminder({
+        // The VAT terms the quote was issued with, not the workshop's as they are now.
+        workshop: { name: w!.name, address: w!.address, phone: w!.phone, email: w!.contactEmail, vat: vatTermsOf(q) },
+        customerName: q.customerName,
+        quoteNumber: q.number,
+        title: q.title,
+        currency: q.currency,
+        priceMinor: q.priceMinor,
+        validUntil: q.validUntil,
+      }),
     })
     n++
   }

@@ -30,11 +30,17 @@ export function publicOrigin(text: string): string | null {
 }
 
 /**
+ * A deposit as a share of the price, 0 to 100 %: the one rule for the workshop's default and the deposit a quote asks (which may
+ * have decimals, a quote's deposit read back as a share of its price: 33.3 %). The quote dialog checks the typed figure with it.
+ */
+export const depositPct = z.number({ error: 'is required' }).min(0, 'must be 0 to 100').max(100, 'must be 0 to 100')
+
+/**
  * Money rules: the deposit asked on a quote (% of the price), how long a quote stands, and whether metal waits for the deposit.
  * The settings' Quotes and deposits form checks them on their own, so a stored setting elsewhere never holds its save back.
  */
 export const workshopMoneyRulesInput = z.object({
-  depositPct: z.number({ error: 'is required' }).int('must be a whole percentage').min(0, 'must be 0 to 100').max(100, 'must be 0 to 100'),
+  depositPct: depositPct.int('must be a whole percentage'),
   quoteValidDays: z.number({ error: 'is required' }).int('must be whole days').min(1, 'must be 1 to 365 days').max(365, 'must be 1 to 365 days'),
   noMetalBeforeDeposit: z.boolean(),
 })

@@ -30,18 +30,34 @@ const quoteDetailsShape = z.object({
   metal: z.string().trim().max(120).optional(),
   stones: z
     .array(
-      z.object({
-        description: z.string().trim().min(1, 'is required').max(200),
-        count: z.number().int().min(0).optional(),
-        carats: z.number().min(0).optional(),
-        /** What one stone costs the workshop (minor units), for the estimated cost; never printed for the customer. */
-        costEachMinor: z
-          .number({ error: 'must be an amount' })
-          .int('must be whole minor units')
-          .min(0, 'must not be negative')
-          .max(100_000_000, 'is too large')
-          .optional(),
-      }),
+      z
+        .object({
+          description: z.string().trim().min(1, 'is required').max(200),
+          /** How many in one piece. */
+          count: z.number().int().min(0).optional(),
+          /** The carats of all the row's stones together ("ct in all"). */
+          carats: z.number().min(0).optional(),
+          /**
+           * The carats of one stone ("ct each"), to the thousandth: a row gives its weight one way or the other, and the row's
+           * total (count × this) is then exact in the words printed.
+           */
+          caratEach: z
+            .number()
+            .min(0)
+            .refine((ct) => Math.abs(ct * 1000 - Math.round(ct * 1000)) < 1e-6, 'must have at most three decimals, such as 0.015')
+            .optional(),
+          /** What one stone costs the workshop (minor units), for the estimated cost; never printed for the customer. */
+          costEachMinor: z
+            .number({ error: 'must be an amount' })
+            .int('must be whole minor units')
+            .min(0, 'must not be negative')
+            .max(100_000_000, 'is too large')
+            .optional(),
+        })
+        .refine((st) => st.carats === undefined || st.caratEach === undefined, {
+          path: ['caratEach'],
+          message: 'give the carats of one stone or of them all, not both',
+        }),
     )
     .max(100)
     .optional(),
@@ -129,6 +145,38 @@ export const defaultValidUntil = (today: string, validDays: number, promisedDate
   const byDays = d.toISOString().slice(0, 10)
   return promisedDate && promisedDate >= today && promisedDate < byDays ? promisedDate : byDays
 }
+/** One quoted stone row, as stored in the quote's details. */
+export type QuoteStone = NonNullable<QuoteDetails['stones']>[number]
+/** Carats as the customer reads them: up to three decimals, no trailing zeros (0.25, 0.015, 1.2). */
+const caratWords = (ct: number) => ct.toLocaleString('en-GB', { maximumFractionDigits: 3 })
+/**
+ * A quoted stone row as the customer reads it (the quote's PDF, the quote drawer), its weight said the way it was given: "18 ×
+ * round diamonds of 1.5 mm, 0.25 ct in all", or, given stone by stone, "18 × round diamonds of 1.5 mm, 0.02 ct each (0.36 ct in
+ * all)" — the count × one stone's carats, worked in thousandths of a carat so no float adds a digit. One stone's weight is the
+ * row's either way ("1 × sapphire, 1.2 ct"); a row with no count says only what was given.
+ */
+export function quoteStoneWords(st: Pick<QuoteStone, 'description' | 'count' | 'carats' | 'caratEach'>): string {
+  const many = st.count ? `${st.count} × ` : ''
+  let weight = ''
+  if (st.caratEach) {
+    if (st.count === 1) weight = `, ${caratWords(st.caratEach)} ct`
+    else if (st.count) weight = `, ${caratWords(st.caratEach)} ct each (${caratWords((Math.round(st.caratEach * 1000) * st.count) / 1000)} ct in all)`
+    else weight = `, ${caratWords(st.caratEach)} ct each`
+  } else if (st.carats) weight = st.count === 1 ? `, ${caratWords(st.carats)} ct` : `, ${caratWords(st.carats)} ct in all`
+  return `${many}${st.description}${weight}`
+}
+/**
+ * The quoted stones an order made from the quote keeps on its piece for the estimated cost: each stone row with a count, at what
+ * one stone costs (null when not known) — the rows the quote dialog's estimate counted. Empty when no row has a count.
+ */
+export interface QuotedStone {
+  description: string
+  /** How many in one piece. */
+  count: number
+  costEachMinor: number | null
+}
+export const quotedStones = (stones: readonly QuoteStone[] | undefined): QuotedStone[] =>
+  (stones ?? []).filter((st) => st.count).map((st) => ({ description: st.description, count: st.count!, costEachMinor: st.costEachMinor ?? null }))
 export type QuoteInput = z.infer<typeof quoteInput>
 export type QuoteUpdate = z.infer<typeof quoteUpdate>
 export type QuoteDetails = z.infer<typeof quoteDetails>

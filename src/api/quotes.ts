@@ -1,21 +1,11 @@
 // Quotes API: the list, one quote with its payment links and payments, drafting, sending, accepting, withdrawing, its PDF and a deposit link.
 import type { z } from 'zod'
 import { paymentLink } from '@shared/schemas/payment'
-import {
-  quoteAccepted,
-  quoteDetail,
-  quotePage,
-  type Quote as QuoteRow,
-  type QuoteDetail,
-  type QuoteDetails,
-  type quoteInput,
-  type quoteUpdate,
-} from '@shared/schemas/quote'
+import { quoteAccepted, quoteDetail, quotePage, type Quote as QuoteRow, type QuoteDetail, type quoteInput, type quoteUpdate } from '@shared/schemas/quote'
 import { api } from './client'
 
 export { QUOTE_STATUSES } from '@shared/schemas/quote'
-export type { QuoteAccepted, QuoteConfidence, QuoteDetails, QuoteStatus } from '@shared/schemas/quote'
-export type QuoteStone = NonNullable<QuoteDetails['stones']>[number]
+export type { QuoteAccepted, QuoteConfidence, QuoteDetails, QuoteStatus, QuoteStone } from '@shared/schemas/quote'
 /** A quote as a screen holds it: a list row, with its links, payments and what is paid once it was read on its own. */
 export type Quote = QuoteRow & Partial<Pick<QuoteDetail, 'links' | 'payments' | 'paidMinor' | 'vat'>>
 export type QuoteInput = z.input<typeof quoteInput>

@@ -228,3 +228,43 @@ describe('the estimated cost in the quote dialog', { timeout: 30_000 }, () => {
     expect(text('quote-no-estimate')).toMatch(/No routing for this piece/)
   })
 })
+
+describe('the carats of a quote’s stone row', { timeout: 30_000 }, () => {
+  const stones = (details: Quote['details']) => ({ kind: 'edit' as const, quote: { ...QUOTE, details: { ...QUOTE.details, ...details } } })
+  const basisSelect = (i: number) =>
+    w!.findAllComponents({ name: 'ElSelect' }).find((c) => c.attributes('data-test') === `quote-stone-basis-${i}`)!.vm as unknown as {
+      $emit: (e: string, v: string) => void
+    }
+  const caratsShown = (i: number) => (el(`quote-stone-carats-${i}`)!.querySelector('input') as HTMLInputElement).value
+  const basisShown = (i: number) => el(`quote-stone-basis-${i}`)?.textContent?.replace(/\s+/g, ' ').trim()
+
+  it('when a row kept with carats in all is opened, then it says ct in all; switched to ct each and kept, then the quote keeps the carats of one stone', async () => {
+    api.estimateCost.mockResolvedValue(ESTIMATE)
+    api.updateQuote.mockResolvedValue(QUOTE)
+    await open(stones({ stones: [{ description: 'round diamonds of 1.5 mm', count: 18, carats: 0.25 }] }))
+    await settle()
+    expect(caratsShown(0)).toBe('0.25')
+    expect(basisShown(0)).toBe('ct in all')
+    basisSelect(0).$emit('update:modelValue', 'each')
+    await flushPromises()
+    const carats = el('quote-stone-carats-0')!.querySelector('input') as HTMLInputElement
+    carats.value = '0.015'
+    carats.dispatchEvent(new Event('input'))
+    carats.dispatchEvent(new Event('change'))
+    await flushPromises()
+    el('quote-save')!.click()
+    await flushPromises()
+    expect(api.updateQuote).toHaveBeenCalledWith(
+      4,
+      expect.objectContaining({ details: expect.objectContaining({ stones: [{ description: 'round diamonds of 1.5 mm', count: 18, caratEach: 0.015 }] }) }),
+    )
+  })
+
+  it('when a row kept with the carats of one stone is opened, then it says ct each with the figure to the thousandth', async () => {
+    api.estimateCost.mockResolvedValue(ESTIMATE)
+    await open(stones({ stones: [{ description: 'round diamonds of 1.5 mm', count: 18, caratEach: 0.015 }] }))
+    await settle()
+    expect(caratsShown(0)).toBe('0.015')
+    expect(basisShown(0)).toBe('ct each')
+  })
+})

@@ -2,13 +2,16 @@
 // such, days gone refused under their field, and a quote's valid-until day proposed no later than its promised date. Their
 // number fields: a figure typed beyond its limits stays as typed and is refused under its field (never cut to the limit on
 // leaving the field and sent so), and nothing is sent. The limits are the shared schemas' (a deposit is a share of the price,
-// 0 to 100 %; an order's piece: at most 500 pieces, 2000 stones, stones of 30 mm, a size of 300 mm).
+// 0 to 100 %, the rule the workshop's default deposit keeps; an order's piece: at most 500 pieces, 2000 stones, stones of 30 mm,
+// a size of 300 mm). While a quote's deposit % will not do, the line under it gives the reason, never a deposit above the price
+// or a balance below zero.
 import { afterEach, describe, expect, it, vi } from 'vitest'
 import { flushPromises, mount, type VueWrapper } from '@vue/test-utils'
 import { createPinia } from 'pinia'
 import ElementPlus from 'element-plus'
 import type { Routing } from '@shared/schemas/routing'
-import { typeInto } from '../setup/form-fields'
+import { workshopMoneyRulesInput } from '@shared/schemas/calendar'
+import { typeInto, typeIntoInput } from '../setup/form-fields'
 
 const ROUTINGS: Routing[] = [
   { id: 1, code: 'signet', name: 'Signet ring', description: '', kind: 'piece', learningRate: null, resizesRing: false, steps: [], version: 1, warnings: [] },
@@ -153,16 +156,45 @@ describe('the take-an-order dialog', () => {
   })
 })
 
+/** What the workshop settings say of a default deposit of 120 %: the shared rule's reason, as a sentence. */
+const settingsReasonFor120 = () => {
+  const r = workshopMoneyRulesInput.shape.depositPct.safeParse(120)
+  const why = r.success ? '' : r.error.issues[0]!.message
+  return why.charAt(0).toUpperCase() + why.slice(1)
+}
+const depositLine = () => q('[data-test=quote-deposit-amount]')?.textContent?.trim() ?? null
+
 describe('the quote dialog’s number fields', () => {
-  it('when a deposit of 120 % is typed and the quote saved, then 120 stays, the field says 0 to 100 %, and nothing is sent', async () => {
+  it('when a deposit of 120 % is typed and the quote saved, then 120 stays, the field gives the settings’ own reason for it, and nothing is sent', async () => {
     await openQuote(dayFromToday(12))
     const deposit = await typeInto('quote-deposit-pct', '120')
     expect(deposit.value).toBe('120')
     q('[data-test=quote-save]')!.click()
     await shown()
     expect(deposit.value).toBe('120')
-    expect(reasons()['Deposit asked (% of the price)']).toEqual(['Must be 0 to 100 % of the price'])
+    expect(settingsReasonFor120()).toBe('Must be 0 to 100')
+    expect(reasons()['Deposit asked (% of the price)']).toEqual([settingsReasonFor120()])
     expect(quotesApi.createQuote).not.toHaveBeenCalled()
+  })
+
+  it('when £1,500.00 is quoted and a deposit of 120 % is typed, then the line under it gives the reason, not £1,800.00 now and −£300.00 at collection', async () => {
+    await openQuote(dayFromToday(12))
+    await typeIntoInput('input[data-test=quote-price]', '1500')
+    await typeInto('quote-deposit-pct', '120')
+    expect(depositLine()).toBe('Must be 0 to 100')
+    expect(depositLine()).not.toMatch(/£|−/)
+    // Emptied, it is required; no figures either (not £0.00 now and the whole price at collection).
+    await typeInto('quote-deposit-pct', '')
+    expect(depositLine()).toBe('Is required')
+    // Back within 0–100 %, the figures return: 40 % of £1,500.00 is £600.00, leaving £900.00 (hand-worked); a quote's deposit
+    // may be a share with decimals, 12.5 % is £187.50, leaving £1,312.50.
+    await typeInto('quote-deposit-pct', '40')
+    expect(depositLine()).toBe('£600.00 now, £900.00 at collection')
+    await typeInto('quote-deposit-pct', '12.5')
+    expect(depositLine()).toBe('£187.50 now, £1,312.50 at collection')
+    q('[data-test=quote-save]')!.click()
+    await shown()
+    expect(reasons()['Deposit asked (% of the price)']).toBeUndefined()
   })
 
   it('when 2400 stones are typed on a stone row, then 2400 stays (a quote sets no upper limit on stones)', async () => {

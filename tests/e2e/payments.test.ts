@@ -59,9 +59,16 @@ describe('quotes and deposits', () => {
     const remove = dialog.locator('[data-test=quote-stone-remove]').last()
     await remove.waitFor()
     const carats = dialog.locator('.stone-row').last().locator('.el-input-number').last()
+    const caratBasis = dialog.locator('.stone-row').last().locator('.el-select')
     const stoneCost = dialog.locator('.stone-row').last().locator('.mmf')
-    const [caratsBox, costBox, removeBox] = [await carats.boundingBox(), await stoneCost.boundingBox(), await remove.boundingBox()]
-    expect(caratsBox!.x + caratsBox!.width).toBeLessThanOrEqual(costBox!.x)
+    const [caratsBox, basisBox, costBox, removeBox] = [
+      await carats.boundingBox(),
+      await caratBasis.boundingBox(),
+      await stoneCost.boundingBox(),
+      await remove.boundingBox(),
+    ]
+    expect(caratsBox!.x + caratsBox!.width).toBeLessThanOrEqual(basisBox!.x)
+    expect(basisBox!.x + basisBox!.width).toBeLessThanOrEqual(costBox!.x)
     expect(costBox!.x + costBox!.width).toBeLessThanOrEqual(removeBox!.x)
     // What the browser finds at the button's first letter is the button itself, not a field drawn over it.
     const atFirstLetter = await remove.evaluate((b) => {

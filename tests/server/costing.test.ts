@@ -483,6 +483,65 @@ describe('a quote’s piece', () => {
     expect(e.body).toMatchObject({ suggestedPriceMinor: 76_200, estimate: { marginMinor: 79_300, marginPct: 63.4 } })
   })
 
+  it('when a quote’s stone rows carry what one stone costs, then the order made from it counts those stones at those costs, as the quote’s estimate did, until its piece has a stone list', async () => {
+    const q = await quote({
+      metal: 'gold-18ct',
+      params: { metalWeightG: 5 },
+      stones: [
+        { description: 'round diamonds of 1.5 mm', count: 18, carats: 0.25, costEachMinor: 4_567 },
+        { description: 'oval sapphire, 7 × 5 mm', count: 1, caratEach: 0.9, costEachMinor: 32_000 },
+        // A row with no count is words for the customer only: neither estimate counts it.
+        { description: 'engraved inside: initials', costEachMinor: 1_000 },
+      ],
+    })
+    expect(q.status, JSON.stringify(q.body)).toBe(201)
+    const a = await sales.post(`/api/quotes/${q.body.id}/accept`, { version: q.body.version })
+    expect(a.status, JSON.stringify(a.body)).toBe(200)
+    // Stones 18 × 4,567 p = 82,206 p and 1 × 32,000 p: 114,206 p. With the metal 30,000 p, hallmark 4,500 p and labour 11,200 p
+    // (as above): 159,906 p in all, leaving 125,000 − 159,906 = −34,906 p on the price.
+    const c = await sales.get(`/api/orders/${a.body.orderId}/costing`)
+    expect(c.status).toBe(200)
+    expect(c.body.estimate.cost).toEqual({ metalMinor: 30_000, stonesMinor: 114_206, outsideMinor: 4_500, labourMinor: 11_200, totalMinor: 159_906 })
+    expect(c.body.estimate).toMatchObject({ marginMinor: -34_906, missing: [] })
+    // Nothing counted yet: the actual side's stones stand in at the same figure.
+    expect(c.body.actual.cost.stonesMinor).toBe(114_206)
+    // The quote dialog's estimate of the same piece (its stone rows with a count as the piece's stones) gives the same figures.
+    const e = await sales.post('/api/costing/estimate', {
+      priceQuotedMinor: 125_000,
+      pieces: [
+        {
+          routingId,
+          piece: 'Fixture pendant',
+          params: { metal: 'gold-18ct', metalWeightG: 5 },
+          stones: [
+            { count: 18, costEachMinor: 4_567 },
+            { count: 1, costEachMinor: 32_000 },
+          ],
+        },
+      ],
+    })
+    expect(e.body.estimate.cost).toEqual(c.body.estimate.cost)
+
+    // The piece's own stone list, once there is one, is what the estimate counts: 18 × 5,000 p = 90,000 p.
+    const bagId = await jobBagOfOrder(t.db, a.body.orderId)
+    await addStoneLine(t.db, { jobBagId: bagId, role: 'pave', sizeMm: 1.5, count: 18, costEachMinor: 5_000 })
+    expect((await sales.get(`/api/orders/${a.body.orderId}/costing`)).body.estimate.cost.stonesMinor).toBe(90_000)
+  })
+
+  it('when a quote’s stone row has a count but no cost, then the order made from it says stone costs are missing, as the quote’s estimate does', async () => {
+    const q = await quote({ metal: 'gold-18ct', params: { metalWeightG: 5 }, stones: [{ description: 'round diamonds of 2 mm', count: 4 }] })
+    expect(q.status, JSON.stringify(q.body)).toBe(201)
+    const a = await sales.post(`/api/quotes/${q.body.id}/accept`, { version: q.body.version })
+    expect(a.status, JSON.stringify(a.body)).toBe(200)
+    const c = await sales.get(`/api/orders/${a.body.orderId}/costing`)
+    expect(c.body.estimate.cost.stonesMinor).toBe(0)
+    expect(c.body.estimate.missing).toEqual(['stone-costs'])
+    const e = await sales.post('/api/costing/estimate', {
+      pieces: [{ routingId, piece: 'Fixture pendant', params: { metal: 'gold-18ct', metalWeightG: 5 }, stones: [{ count: 4 }] }],
+    })
+    expect(e.body.estimate.missing).toEqual(['stone-costs'])
+  })
+
   it('when a quote’s metal weight is negative, absurd or its alloy unknown, or it names two metals, then 400 naming the field and nothing is kept', async () => {
     const before = (await t.db.select({ id: s.quotes.id }).from(s.quotes)).length
     expectFieldError(await quote({ params: { metal: 'gold-18ct', metalWeightG: -2 } }), 'details.params.metalWeightG', /more than 0 g/)

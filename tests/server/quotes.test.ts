@@ -245,6 +245,41 @@ describe('quote states', () => {
     expect(text).not.toContain('45.67')
   })
 
+  it('when stone rows give their carats in all or stone by stone, then the PDF says which, and one stone’s carats are added up for the row', async () => {
+    const q = await drafted({
+      title: 'Sapphire cluster ring',
+      details: {
+        metal: 'platinum-950',
+        stones: [
+          { description: 'round diamonds of 1.5 mm', count: 18, carats: 0.25 },
+          { description: 'round diamonds of 2.5 mm', count: 3, caratEach: 0.06 },
+          { description: 'round diamonds of 1 mm', count: 30, caratEach: 0.005 },
+          { description: 'oval sapphire', count: 1, caratEach: 1.2 },
+        ],
+      },
+    })
+    const text = await pdfText(q.id)
+    // 18 stones weighing 0.25 ct together: said in all, never as if each weighed 0.25 ct.
+    expect(text).toContain('Stones: 18 × round diamonds of 1.5 mm, 0.25 ct in all Stones:')
+    // Hand-worked: 3 × 0.06 ct = 0.18 ct; 30 × 0.005 ct = 0.150 ct; one stone weighs what the row weighs.
+    expect(text).toContain('Stones: 3 × round diamonds of 2.5 mm, 0.06 ct each (0.18 ct in all)')
+    expect(text).toContain('Stones: 30 × round diamonds of 1 mm, 0.005 ct each (0.15 ct in all)')
+    expect(text).toContain('Stones: 1 × oval sapphire, 1.2 ct')
+    expect(text).not.toMatch(/1\.2 ct (each|in all)/)
+    // A row gives its weight one way: both at once is refused under the field.
+    expectFieldError(
+      await sales.post('/api/quotes', {
+        customerId,
+        title: 'Cluster ring',
+        priceMinor: 90_000,
+        currency: 'GBP',
+        details: { stones: [{ description: 'round diamonds', count: 2, carats: 0.5, caratEach: 0.25 }] },
+      }),
+      'details.stones.0.caratEach',
+      /not both/,
+    )
+  })
+
   it('when the quoted piece’s metal weight was estimated, then the PDF says about how much metal is in it', async () => {
     const routingId = await routingOfKind('piece')
     const one = await drafted({ title: 'Signet ring', details: { routingId, metal: 'gold-18ct', params: { metalWeightG: 6.2 } } })

@@ -249,6 +249,42 @@ describe('the balance reminder', () => {
   )
 })
 
+describe('the quote reminder', () => {
+  it(
+    'when a quote of £1,200.00 issued at 20 % is about to lapse, then its reminder says £200.00 of it is VAT, though the settings changed since; one issued unregistered says none',
+    { timeout: 60_000 },
+    async () => {
+      const workshopId = await firstWorkshopId(t.db)
+      const [w] = await t.db.select({ timeZone: s.workshops.timeZone }).from(s.workshops).where(eq(s.workshops.id, workshopId))
+      // Two days on, on the workshop's clock (Intl, not the server's date code): within the three days a reminder looks ahead.
+      const validUntil = new Intl.DateTimeFormat('en-CA', { timeZone: w!.timeZone }).format(new Date(Date.now() + 2 * 86_400_000))
+      const lapsingQuote = async (title: string, priceMinor: number) => {
+        const q = await sales.post('/api/quotes', { customerId, title, priceMinor, currency: 'GBP', validUntil })
+        expect(q.status, JSON.stringify(q.body)).toBe(201)
+        return send(q.body)
+      }
+      await registeredAt20()
+      const registered = await lapsingQuote('Diamond solitaire', 120_000)
+      await settingsChangeLater()
+      const unregistered = await lapsingQuote('Silver bangle', 60_000)
+      // Registered again now: the unregistered quote's reminder still says no VAT.
+      await registeredAt20()
+
+      await sendMoneyReminders(t.deps, workshopId)
+      const reminder = async (number: string) => (await smtp.waitFor((x) => x.subject.endsWith(`quote ${number} ends soon`), 30_000)).text.trim().split(/\r?\n/)
+      // £1,200.00 × 20 ÷ 120 = £200.00 of VAT, £1,000.00 before VAT (hand-worked), at the rate and number it was issued with.
+      const lines = await reminder(registered.number)
+      const at = lines.indexOf('Price: £1,200.00')
+      expect(at, lines.join('\n')).toBeGreaterThan(0)
+      expect(lines[at + 1]).toBe('of which VAT at 20%: £200.00 (£1,000.00 before VAT)')
+      expect(lines.at(-1)).toBe(`VAT registration no. ${NUMBER}`)
+      const plain = await reminder(unregistered.number)
+      expect(plain).toContain('Price: £600.00')
+      expect(plain.filter((l) => /VAT/.test(l))).toEqual([])
+    },
+  )
+})
+
 describe('the VAT number', () => {
   it('when a registered workshop gives a number without a UK number’s shape, then 400 under the field and nothing changes', async () => {
     await registeredAt20()

@@ -1,6 +1,7 @@
 // The work itself: customers, orders, routings, job bags, operations, time records, plan versions.
 import { boolean, date, index, integer, jsonb, pgTable, real, text, uniqueIndex } from 'drizzle-orm/pg-core'
 import type { PieceParams } from '../../../shared/schemas/order'
+import type { QuotedStone } from '../../../shared/schemas/quote'
 import type { RoutingKind } from '../../../shared/domain/routing-kinds'
 import { createdAt, frozenVatTerms, pk, updatedAt, version, instant } from './common'
 import { benches, operationKinds, people } from './resources'
@@ -124,6 +125,9 @@ export const jobBags = pgTable(
      *  taken in, whatever later happens to the routing (its kind changed, or the routing removed). */
     routingKind: text().$type<RoutingKind>().notNull().default('piece'),
     params: jsonb().$type<PieceParams>().notNull(),
+    /** A piece made from a quote: the quote's stone rows with their counts and what one stone costs, which its estimate counts
+     *  until the piece has a stone list of its own; null for a piece taken without a quote (or quoted without counted stones). */
+    quotedStones: jsonb().$type<QuotedStone[]>(),
     status: text().notNull().default('waiting'),
     releaseAt: instant(),
     version: version(),

@@ -189,35 +189,41 @@ export function calendarFindings(data: PlanningData, assignments: Assignments): 
       person = people.get(engineId(a.personId) ?? '')
     const needs = minutesNeeded(data, a)
     if (!bench || !person || needs === null) continue
-    const worked = clipToWindows(jointWindows(data.problem).both(bench.id, person.id)!, start, end)
+    // Paused work goes on from now at the earliest: only its bar's time from then counts for what is left of it (its start,
+    // the first start at the bench, is history).
+    const paused = m.op.status === 'paused'
+    const from = goesOnFrom(data, m.op.status, start)
+    const worked = clipToWindows(jointWindows(data.problem).both(bench.id, person.id)!, from, end)
     if (worked.reduce((t, x) => t + x.end - x.start, 0) >= needs) continue
     const causes = [
-      ...cut(closures, start, end).map((x) => ({ ...x, resource: 'bench' as const, name: bench.name })),
+      ...cut(closures, from, end).map((x) => ({ ...x, resource: 'bench' as const, name: bench.name })),
       ...cut(
         data.meta.downtime
           .filter((d) => d.benchId === a.benchId)
           .map((d) => ({ start: c.toMinute(d.startsAt), end: c.toMinute(d.endsAt), why: `bench out of use${d.reason ? `: ${d.reason}` : ''}` })),
-        start,
+        from,
         end,
       ).map((x) => ({ ...x, resource: 'bench' as const, name: bench.name })),
       ...cut(
         data.meta.leave
           .filter((l) => l.personId === a.personId)
           .map((l) => ({ ...dayRange(c, l.startsOn, l.endsOn), why: `on leave${l.reason ? `: ${l.reason}` : ''}` })),
-        start,
+        from,
         end,
       ).map((x) => ({ ...x, resource: 'person' as const, name: person.name })),
     ]
     for (const x of causes) found.push(rules.workingTime(self, { resource: x.resource, name: x.name, from: x.from, to: x.to, when, why: x.why }))
-    // Shorter working hours (no closure, leave or downtime): said when the bar begins or ends outside them.
+    // Shorter working hours (no closure, leave or downtime): said when the bar begins or ends outside them. Paused work whose
+    // bar, from now, is merely too short for what is left (it was paused for longer than planned) breaks no calendar: the
+    // re-timing (`retimeLivePlan`) carries it on from now.
     const inside = (t: number) => worked.some((w) => w.start <= t && t < w.end)
-    if (!causes.length && (!inside(start) || !inside(end - 1))) {
-      const benchShort = clipToWindows(bench.available, start, end).reduce((t, x) => t + x.end - x.start, 0) < end - start
+    if (!causes.length && ((!paused && !inside(start)) || !inside(end - 1))) {
+      const benchShort = clipToWindows(bench.available, from, end).reduce((t, x) => t + x.end - x.start, 0) < end - from
       found.push(
         rules.workingTime(self, {
           resource: benchShort ? 'bench' : 'person',
           name: benchShort ? bench.name : person.name,
-          from: start,
+          from,
           to: end,
           when,
           why: 'outside the working hours',
@@ -228,22 +234,56 @@ export function calendarFindings(data: PlanningData, assignments: Assignments): 
   return found
 }
 
-/** The working minutes a bar of bench work needs with its bench and person (the engine's option, else estimate ÷ speed). */
+/**
+ * The working minutes a bar of bench work still needs with its bench and person: the engine's option (for work under way, what
+ * is left of it — `remaining` in problem.ts), or the person's option at another bench (the minutes depend on the person's speed
+ * only), else estimate ÷ speed.
+ */
 function minutesNeeded(data: PlanningData, a: Assignment): number | null {
   const m = data.meta.operations.get(String(a.operationId))
   if (!m) return null
-  const option = data.problem.operations
-    .find((o) => o.id === String(a.operationId))
-    ?.options.find((o) => o.benchId === engineId(a.benchId) && o.personId === engineId(a.personId))
+  const options = data.problem.operations.find((o) => o.id === String(a.operationId))?.options ?? []
+  const personId = engineId(a.personId)
+  const option = options.find((o) => o.benchId === engineId(a.benchId) && o.personId === personId) ?? options.find((o) => o.personId === personId)
   const speed = data.meta.skills.find((k) => k.personId === a.personId && k.kindId === m.op.kindId)?.speed
   return option?.minutes ?? (speed ? Math.max(1, Math.ceil(m.op.estimateMinutes / speed)) : null)
+}
+
+/**
+ * The earliest minute bench work can go on from, for a bar starting at `start`: work paused at the bench only from now (its bar's
+ * start is its first start, in the past), any other from its bar's start.
+ */
+function goesOnFrom(data: PlanningData, status: string, start: number): number {
+  return status === 'paused' ? Math.max(start, data.problem.now) : start
+}
+
+/**
+ * Whether some paused bench work has more left to do than its bar holds from now (it was paused for longer than its bar
+ * allowed): the calendar is kept, but its bar can no longer be carried out as it stands, so the live plan is re-timed.
+ */
+function pausedPastItsBar(data: PlanningData, assignments: Assignments): boolean {
+  const c = data.clock
+  const joint = jointWindows(data.problem)
+  for (const a of assignments.values()) {
+    const m = data.meta.operations.get(String(a.operationId))
+    if (!m || m.op.status !== 'paused' || m.kind.outside || m.op.leadDays > 0) continue
+    const windows = joint.both(engineId(a.benchId), engineId(a.personId))
+    const needs = minutesNeeded(data, a)
+    if (!windows || needs === null) continue
+    const start = c.toMinute(a.start)
+    const room = clipToWindows(windows, goesOnFrom(data, 'paused', start), c.toMinute(a.end)).reduce((t, x) => t + x.end - x.start, 0)
+    if (room < needs) return true
+  }
+  return false
 }
 
 /**
  * The live plan kept as it is — each step on its bench and person, in the order of its bars, never earlier than its bar — and
  * re-timed on the calendar as it is now: a step whose time is no longer worked goes to the next working time of its bench and
  * person (outside work to the next workshop day), and what comes after it on its bench, its person or its routing (with the
- * wait) moves on behind it. Bars that still fit and are not pushed stay exactly as they are.
+ * wait) moves on behind it. Running work stays where it is. Paused work goes on from now at the earliest: what is left of it
+ * is walked from then (its bar keeps its start, the first start at the bench; its end moves). Bars that still fit and are not
+ * pushed stay exactly as they are.
  */
 export function retimeLivePlan(data: PlanningData, assignments: Assignments): Assignments {
   const c = data.clock
@@ -277,9 +317,14 @@ export function retimeLivePlan(data: PlanningData, assignments: Assignments): As
         const windows = joint.both(engineId(a.benchId), engineId(a.personId))
         const needs = minutesNeeded(data, a)
         if (windows && needs !== null) {
-          const fits = at === start && clipToWindows(windows, start, end).reduce((t, x) => t + x.end - x.start, 0) >= needs
-          const walked = fits ? null : walkWorkingTime(windows, at, needs)
-          if (walked?.length) placed = { start: walked[0]!.start, end: walked[walked.length - 1]!.end }
+          // Only the bar's time from where the work can go on counts (for paused work, from now: `needs` is what is left).
+          const counted = goesOnFrom(data, m.op.status, start)
+          const from = goesOnFrom(data, m.op.status, at)
+          const fits = from === counted && clipToWindows(windows, counted, end).reduce((t, x) => t + x.end - x.start, 0) >= needs
+          const walked = fits ? null : walkWorkingTime(windows, from, needs)
+          // Paused work begun before now keeps its start (the first start at the bench); what is left ends where the walk ends.
+          const begun = m.op.status === 'paused' && start < data.problem.now
+          if (walked?.length) placed = { start: begun ? start : walked[0]!.start, end: walked[walked.length - 1]!.end }
         }
       }
     }
@@ -293,12 +338,21 @@ export function retimeLivePlan(data: PlanningData, assignments: Assignments): As
 
 /**
  * The live plan checked against the calendar (`calendarFindings`), and the bars it can really be carried out with: its own when
- * it fits, else the live plan re-timed (`retimeLivePlan`). The bars on the board stay as planned; the re-timed ones only give
- * the figures and finishes that can be believed until the manager re-plans.
+ * it fits, else the live plan re-timed (`retimeLivePlan`) — also when paused work has more left than its bar holds from now,
+ * which breaks no rule but cannot happen as planned. The bars on the board stay as planned; the re-timed ones only give the
+ * figures and finishes that can be believed until the manager re-plans.
  */
-export function checkLivePlan(data: PlanningData, assignments: Assignments): { findings: RuleViolation[]; carriedOut: Assignments } {
+export function checkLivePlan(data: PlanningData, assignments: Assignments): LiveCheck {
   const findings = [...underWayFindings(data, assignments), ...calendarFindings(data, assignments)]
-  return { findings, carriedOut: findings.length ? retimeLivePlan(data, assignments) : assignments }
+  const retimed = findings.length > 0 || pausedPastItsBar(data, assignments)
+  return { findings, retimed, carriedOut: retimed ? retimeLivePlan(data, assignments) : assignments }
+}
+
+/** The live plan checked: its findings, and the bars it can be carried out with (`retimed`: not its own bars but re-timed ones). */
+export interface LiveCheck {
+  findings: RuleViolation[]
+  retimed: boolean
+  carriedOut: Assignments
 }
 
 /** Work that is under way: bench work running or paused at the bench, outside work sent out (running). */
@@ -307,9 +361,11 @@ export const isUnderWay = (status: string | undefined): boolean => UNDER_WAY.inc
 
 /**
  * Where work under way really is, for a publication that must not move it: bench work from its first start at the bench, on
- * the bench it is (or was last) worked at and with the one who holds it, ending when its working time, walked on that bench's
- * and person's time from its first start, is used up; outside work from the moment it was sent out (its planned start, set
- * when it goes), back at the end of its working days counted from there. `live` is the bar it has on the live plan now.
+ * the bench it is (or was last) worked at and with the one who holds it, ending when what is left of it (the engine's
+ * remaining minutes: its working time less the time already worked), walked on that bench's and person's time from now, is
+ * used up — what is left of running or paused work can only be done from now on; outside work from the moment it was sent out
+ * (its planned start, set when it goes), back at the end of its working days counted from there. `live` is the bar it has on
+ * the live plan now.
  */
 export async function underWayPlacement(tx: Tx, data: PlanningData, live: Assignments, ids: number[]): Promise<Assignments> {
   const c = data.clock
@@ -342,7 +398,7 @@ export async function underWayPlacement(tx: Tx, data: PlanningData, live: Assign
       end: new Date(own[0]!.startedAt).toISOString(),
     }
     const needs = minutesNeeded(data, a) ?? m.op.estimateMinutes
-    const from = c.toMinute(a.start)
+    const from = Math.max(c.toMinute(a.start), data.problem.now)
     const walked = walkWorkingTime(joint.both(engineId(a.benchId), engineId(a.personId)) ?? [], from, needs)
     a.end = c.toDate(walked?.length ? walked[walked.length - 1]!.end : from + needs).toISOString()
     out.set(id, a)

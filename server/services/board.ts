@@ -16,8 +16,7 @@ import { cachedOr, type Cache } from '../lib/cache'
 import { engineId, fromStored, type Assignments } from '../planning/assignments'
 import { benchTimeOver, loadPlanningData, workingTimeOver, type PlanningData } from '../planning/problem'
 import { getPlan, readDraft } from '../planning/drafts'
-import { checkLivePlan, readLivePlan, retimeLivePlan } from '../planning/live-plan'
-import type { RuleViolation } from '../../shared/domain/rules'
+import { checkLivePlan, readLivePlan, retimeLivePlan, type LiveCheck } from '../planning/live-plan'
 import { actualMinutesByOperation, effectiveRecords } from './time-records'
 import type { BoardActual, BoardPlanned } from '../../shared/schemas/board'
 
@@ -161,12 +160,13 @@ const TO_COME = new Set(['pending', 'ready', 'claimed', 'paused'])
 
 /**
  * The live plan checked against the calendar, as the board and the forecasts read it: each step whose bar no longer fits, with
- * its findings in one text, and where the plan can really take each step (the live plan re-timed, when bars no longer fit).
+ * its findings in one text, and where the plan can really take each step (the live plan re-timed, when bars no longer fit or
+ * paused work has more left than its bar holds from now; else the bars themselves).
  */
-function liveFinishes(checked: { findings: RuleViolation[]; carriedOut: Assignments }, bars: Record<string, Shown>) {
+function liveFinishes(checked: LiveCheck, bars: Record<string, Shown>) {
   const broken = new Map<string, string>()
   for (const f of checked.findings) if (f.operationId) broken.set(f.operationId, [broken.get(f.operationId), f.message].filter(Boolean).join(' '))
-  return { broken, finishes: checked.findings.length ? shown(checked.carriedOut) : bars }
+  return { broken, finishes: checked.retimed ? shown(checked.carriedOut) : bars }
 }
 
 /**
@@ -192,12 +192,16 @@ export function jobFinishes(
     if (!a || !f || m.op.status === 'done') continue
     const end = new Date(f.end).getTime()
     const cur = completion.get(m.bag.id)
-    // A step the re-timing moved (behind work the calendar no longer allows where it was planned) no longer starts for its bar's
-    // reason: say that it moved, not why its bar started when it did.
+    // A step the re-timing moved (behind work the calendar no longer allows where it was planned, or paused work going on from
+    // now) no longer starts for its bar's reason: say that it moved, not why its bar started when it did. Paused work itself
+    // moves because it can only go on from now.
     const moved = f !== a && (f.start !== a.start || f.end !== a.end)
-    const why = moved
-      ? `moved later, behind work the calendar no longer allows where it was planned (its bar ends ${formatInstant(a.end, c.timeZone, c.toDate(data.problem.now))})`
-      : a.reason?.detail
+    const barEnds = `its bar ends ${formatInstant(a.end, c.timeZone, c.toDate(data.problem.now))}`
+    const why = !moved
+      ? a.reason?.detail
+      : m.op.status === 'paused'
+        ? `paused, and what is left of it can only go on from now (${barEnds})`
+        : `moved later, behind work that can no longer be done where it was planned (${barEnds})`
     if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: o.broken.get(id) ?? why ?? null })
   }
   // A job bag with a step that no longer fits the calendar names it as the reason for its finish.
@@ -270,7 +274,7 @@ export async function boardData(db: Db, workshopId: number, o: { from: string; t
   const c = data.clock
   let assignments: Record<string, Shown>
   let plan: { id: number; number: number; status: string; publishedAt: string | null } | null = null
-  let checked: { findings: RuleViolation[]; carriedOut: Assignments } | null = null
+  let checked: LiveCheck | null = null
   const [live] = await db
     .select()
     .from(s.planVersions)

@@ -182,7 +182,7 @@ describe('the order list’s expected finish', () => {
     expect(f.body.jobBags[0]).toMatchObject({ expectedCompletion: at(3, '13:00'), state: 'at-risk' })
     const barEnds = dayjs.tz(`${day(3)} 11:00`, TZ)
     const when = barEnds.format(barEnds.year() === dayjs().tz(TZ).year() ? 'ddd D MMM HH:mm' : 'ddd D MMM YYYY HH:mm')
-    expect(f.body.jobBags[0].why).toContain(`Last step: moved later, behind work the calendar no longer allows where it was planned (its bar ends ${when}).`)
+    expect(f.body.jobBags[0].why).toContain(`Last step: moved later, behind work that can no longer be done where it was planned (its bar ends ${when}).`)
   })
 
   it('when an order is ready to collect, then the list gives no forecast for it', async () => {

@@ -4,7 +4,7 @@
 // claim putting the step on the claimer's bench (here). The checks are the rule book's (shared/domain/rules.ts). Its figures
 // (lateness, pieces late, finish) and its findings against the calendar (steps lying in time no longer worked) are worked out
 // from its bars and stored on the published version by each change (here), a change to the calendar included.
-import { and, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm'
+import { and, desc, eq, inArray, isNotNull, ne, sql } from 'drizzle-orm'
 import * as rules from '../../shared/domain/rules'
 import type { RuleViolation, StepRef } from '../../shared/domain/rules'
 import { typicalDayMinutes, workingMinutesBetween } from '../../shared/domain/working-time'
@@ -37,7 +37,11 @@ export async function lockLivePlan(tx: Tx, workshopId: number) {
   await tx.execute(sql`select pg_advisory_xact_lock(${LOCK.livePlan}, ${workshopId})`)
 }
 
-/** The live plan as it is in this transaction (a change reads it after taking the lock). */
+/**
+ * The live plan as it is in this transaction (a change reads it after taking the lock). Steps of a cancelled job bag or of a
+ * cancelled order may keep their planned fields, but they are off the plan: they hold no bench and no person, so neither a
+ * promise's booking, a claim, a move by hand, a draft's comparison nor the figures see them.
+ */
 export async function readLivePlan(tx: Tx, workshopId: number): Promise<LivePlan> {
   const rows = await tx
     .select({
@@ -50,7 +54,16 @@ export async function readLivePlan(tx: Tx, workshopId: number): Promise<LivePlan
     })
     .from(s.operations)
     .innerJoin(s.jobBags, eq(s.jobBags.id, s.operations.jobBagId))
-    .where(and(eq(s.jobBags.workshopId, workshopId), isNotNull(s.operations.plannedStart), inArray(s.operations.status, [...OPEN_OPERATION])))
+    .innerJoin(s.orders, eq(s.orders.id, s.jobBags.orderId))
+    .where(
+      and(
+        eq(s.jobBags.workshopId, workshopId),
+        isNotNull(s.operations.plannedStart),
+        inArray(s.operations.status, [...OPEN_OPERATION]),
+        ne(s.jobBags.status, 'cancelled'),
+        ne(s.orders.status, 'cancelled'),
+      ),
+    )
   const [published] = await tx
     .select({ id: s.planVersions.id, number: s.planVersions.number })
     .from(s.planVersions)

@@ -1033,4 +1033,23 @@ describe('a cancelled job bag’s customer’s piece', () => {
     expect(again.body.error).toMatch(/holds nothing of the customer’s to hand back/)
     expect(await r.ledger()).toHaveLength(2)
   })
+
+  it('when one of two new pieces of the workshop’s metal is cancelled and the order is then collected, then only the piece delivered leaves stock; the cancelled one’s metal stays', async () => {
+    const r = await twoRings('Two new pieces, one withdrawn')
+    // Piece A: 12.000 g out of stock, back as the piece at 11.200 g. Piece B: 6.000 g out, back at 5.850 g, then its bag cancelled.
+    await r.post('/api/metal/issues', r.a, { weightG: 12 })
+    await r.post('/api/metal/returns', r.a, { weightG: 11.2, form: 'piece' })
+    await r.post('/api/metal/issues', r.b, { weightG: 6 })
+    await r.post('/api/metal/returns', r.b, { weightG: 5.85, form: 'piece' })
+    expect((await r.cancelBag(r.b)).status).toBe(200)
+    // Hand-worked: 30 − 12 + 11.200 − 6 + 5.850 = 29.050 g, all the workshop's own.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 29_050, deliveredMg: 0, customersMg: 0, ownMg: 29_050 })
+    await t.db.update(s.orders).set({ status: 'ready' }).where(eq(s.orders.id, r.orderId))
+    const o = (await as.manager.get(`/api/orders/${r.orderId}`)).body
+    const collected = await as.manager.patch(`/api/orders/${r.orderId}`, { status: 'collected', version: o.version })
+    expect(collected.status, JSON.stringify(collected.body)).toBe(200)
+    // 29.050 − 11.200 (piece A, collected) = 17.850 g; piece B's 5.850 g is still the workshop's.
+    expect(await r.stockOf()).toMatchObject({ balanceMg: 17_850, deliveredMg: 11_200, ownMg: 17_850 })
+    expect(await r.ledger()).toEqual([{ kind: 'delivered', weightMg: 11_200, jobBagId: r.a, reason: 'collected with its order' }])
+  })
 })

@@ -380,6 +380,56 @@ describe('accepting a promise', () => {
     await clearPlan()
   })
 
+  for (const cancelled of ['job bag', 'order'] as const)
+    it(`when a cancelled ${cancelled}'s step kept its bar on that very bench and person at that time, then it holds nothing and the promise is booked there`, async () => {
+      await clearPlan()
+      await seedLivePlan(3)
+      const data = await loadPlanningData(t.db, 1, new Date())
+      const live = planFromAssignments(data, (await readLivePlan(t.db, 1)).assignments)
+      const steps = await t.db
+        .select({ key: s.routingSteps.key, kindId: s.routingSteps.kindId, leadDays: s.routingSteps.leadDays })
+        .from(s.routingSteps)
+        .where(eq(s.routingSteps.routingId, routingId))
+        .orderBy(asc(s.routingSteps.seq))
+      const step = steps.find((x) => x.leadDays === 0)!
+      const opts = operationOptions(data.meta, step.kindId, 1, () => 60)
+      const placed = placeInGaps(data.problem, live, { id: PROSPECTIVE_JOB, name: 'x', release: data.problem.now, due: null, weight: 1 }, [
+        { id: `${PROSPECTIVE_JOB}:${step.key}`, jobId: PROSPECTIVE_JOB, name: 'x', kind: 'x', options: opts, predecessors: [] },
+      ])
+      const st = placed.steps[0]!
+      const [order] = await t.db
+        .select({ orderId: s.jobBags.orderId })
+        .from(s.jobBags)
+        .innerJoin(o, eq(o.jobBagId, s.jobBags.id))
+        .where(and(eq(o.key, step.key), eq(s.jobBags.routingId, routingId)))
+        .limit(1)
+      // An open step of another order keeps its bar on that bench and person at that very time, and then its bag or order is cancelled.
+      const candidates = await openStepIds(t.db, { unplanned: true })
+      const rows = await t.db
+        .select({ id: o.id, jobBagId: o.jobBagId, orderId: s.jobBags.orderId, bagStatus: s.jobBags.status })
+        .from(o)
+        .innerJoin(s.jobBags, eq(s.jobBags.id, o.jobBagId))
+      const other = rows.find((r) => candidates.includes(r.id) && r.orderId !== order!.orderId)!
+      const [ord] = await t.db.select({ status: s.orders.status }).from(s.orders).where(eq(s.orders.id, other.orderId))
+      await planStep(t.db, other.id, {
+        benchId: Number(st.benchId),
+        personId: Number(st.personId),
+        start: data.clock.toDate(st.start),
+        end: data.clock.toDate(st.end),
+      })
+      if (cancelled === 'job bag') await t.db.update(s.jobBags).set({ status: 'cancelled' }).where(eq(s.jobBags.id, other.jobBagId))
+      else await t.db.update(s.orders).set({ status: 'cancelled' }).where(eq(s.orders.id, other.orderId))
+      try {
+        const actor = { userId: 1, workshopId: 1, role: 'sales' } as never
+        const result = await t.db.transaction((tx) => bookSlot(tx, actor, data, order!.orderId, placed))
+        expect(result, JSON.stringify(result)).toMatchObject({ booked: true })
+      } finally {
+        await t.db.update(s.jobBags).set({ status: other.bagStatus }).where(eq(s.jobBags.id, other.jobBagId))
+        await t.db.update(s.orders).set({ status: ord!.status }).where(eq(s.orders.id, other.orderId))
+        await clearPlan()
+      }
+    })
+
   it('when no bench can do a step of the routing, then the order is still taken, not booked, and the answer says why', async () => {
     await clearPlan()
     await seedLivePlan(3)

@@ -2,7 +2,7 @@
 // the customers' own pieces waiting to be collected, the value of the workshop's own at today's price, finished pieces leaving
 // stock when their order is collected, and the customer's pieces of a cancelled order or job bag handed back (what the counter
 // weighs against what was held is the customer's metal lost or gained, never the workshop's).
-import { and, asc, eq, inArray, sql } from 'drizzle-orm'
+import { and, asc, eq, inArray, ne, sql } from 'drizzle-orm'
 import { fineMg, gToMg, mgToG } from '../../../shared/domain/metal'
 import { type HeldPiece, type StockRow } from '../../../shared/schemas/metal'
 import type { Db, Tx } from '../../db/client'
@@ -155,10 +155,11 @@ export async function stock(db: Db, workshopId: number): Promise<StockRow[]> {
 // Finished pieces leave stock
 
 /**
- * When an order is collected its pieces leave the workshop: for each job bag and alloy whose last weighing of the piece (an
- * issue or the piece coming back, corrections applied; scrap and lemel handed in after it do not count) was the piece coming
- * back, that weight leaves stock as a 'delivered' row. A piece last seen going out to the bench, or a bag already delivered,
- * writes nothing. Runs inside the order's own transaction.
+ * When an order is collected its pieces leave the workshop: for each job bag still in the order (not cancelled) and alloy whose
+ * last weighing of the piece (an issue or the piece coming back, corrections applied; scrap and lemel handed in after it do not
+ * count) was the piece coming back, that weight leaves stock as a 'delivered' row. A piece last seen going out to the bench, a
+ * bag already delivered, or a cancelled bag writes nothing: a cancelled bag's metal stays in stock (the workshop's own), or was
+ * handed back when it was the customer's. Runs inside the order's own transaction.
  */
 export async function deliverOrderMetal(tx: Tx, actor: Actor, orderId: number): Promise<number> {
   const rows = await tx
@@ -166,7 +167,12 @@ export async function deliverOrderMetal(tx: Tx, actor: Actor, orderId: number): 
     .from(metalMovements)
     .innerJoin(jobBags, eq(jobBags.id, metalMovements.jobBagId))
     .where(
-      and(eq(jobBags.orderId, orderId), eq(metalMovements.workshopId, actor.workshopId), inArray(metalMovements.kind, ['issued', 'returned', 'delivered'])),
+      and(
+        eq(jobBags.orderId, orderId),
+        ne(jobBags.status, 'cancelled'),
+        eq(metalMovements.workshopId, actor.workshopId),
+        inArray(metalMovements.kind, ['issued', 'returned', 'delivered']),
+      ),
     )
     .orderBy(asc(metalMovements.recordedAt), asc(metalMovements.id))
   const { effective, last, delivered } = whereThePiecesAre(rows.map((r) => r.m))

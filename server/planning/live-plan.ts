@@ -263,28 +263,37 @@ function minutesNeeded(data: PlanningData, a: Assignment): number | null {
 }
 
 /**
- * The earliest minute bench work can go on from, for a bar starting at `start`: work paused at the bench only from now (its bar's
- * start is its first start, in the past), any other from its bar's start.
+ * The earliest minute bench work can go on from, for a bar starting at `start`: work under way at the bench (running or
+ * paused) only from now (its bar's start is its first start, in the past), any other from its bar's start.
  */
 function goesOnFrom(data: PlanningData, status: string, start: number): number {
-  return status === 'paused' ? Math.max(start, data.problem.now) : start
+  return isUnderWay(status) ? Math.max(start, data.problem.now) : start
+}
+
+/** Work still to start (pending, ready, claimed) whose bar lies wholly in the past: nobody started it, so it can only start from now. */
+function leftBehind(data: PlanningData, status: string, end: number): boolean {
+  return ['pending', 'ready', 'claimed'].includes(status) && end <= data.problem.now
 }
 
 /**
- * Whether some paused bench work has more left to do than its bar holds from now (it was paused for longer than its bar
- * allowed): the calendar is kept, but its bar can no longer be carried out as it stands, so the live plan is re-timed.
+ * Whether some work can no longer be carried out as its bar stands though it breaks no calendar: bench work under way (running
+ * or paused) with more left to do than its bar holds from now (worked or paused for longer than its bar allowed), or work still
+ * to start whose bar lies wholly in the past. The live plan is then re-timed for its figures.
  */
-function pausedPastItsBar(data: PlanningData, assignments: Assignments): boolean {
+function pastItsBar(data: PlanningData, assignments: Assignments): boolean {
   const c = data.clock
   const joint = jointWindows(data.problem)
   for (const a of assignments.values()) {
     const m = data.meta.operations.get(String(a.operationId))
-    if (!m || m.op.status !== 'paused' || m.kind.outside || m.op.leadDays > 0) continue
+    if (!m) continue
+    const start = c.toMinute(a.start),
+      end = c.toMinute(a.end)
+    if (leftBehind(data, m.op.status, end)) return true
+    if (!isUnderWay(m.op.status) || m.kind.outside || m.op.leadDays > 0) continue
     const windows = joint.both(engineId(a.benchId), engineId(a.personId))
     const needs = minutesNeeded(data, a)
     if (!windows || needs === null) continue
-    const start = c.toMinute(a.start)
-    const room = clipToWindows(windows, goesOnFrom(data, 'paused', start), c.toMinute(a.end)).reduce((t, x) => t + x.end - x.start, 0)
+    const room = clipToWindows(windows, goesOnFrom(data, m.op.status, start), end).reduce((t, x) => t + x.end - x.start, 0)
     if (room < needs) return true
   }
   return false
@@ -294,18 +303,22 @@ function pausedPastItsBar(data: PlanningData, assignments: Assignments): boolean
  * The live plan kept as it is — each step on its bench and person, in the order of its bars, never earlier than its bar — and
  * re-timed on the calendar as it is now: a step whose time is no longer worked goes to the next working time of its bench and
  * person (outside work to the next workshop day), and what comes after it on its bench, its person or its routing (with the
- * wait) moves on behind it. Running work stays where it is. Paused work goes on from now at the earliest: what is left of it
- * is walked from then (its bar keeps its start, the first start at the bench; its end moves). Bars that still fit and are not
- * pushed stay exactly as they are.
+ * wait) moves on behind it. Work under way at the bench goes on from now at the earliest: what is left of it is walked from
+ * then (its bar keeps its start, the first start at the bench; its end moves) — running work first, as it holds its bench and
+ * person now, and never behind another bar. Outside work sent out stays where it is. Work still to start whose bar lies wholly
+ * in the past starts from now at the earliest. Bars that still fit and are not pushed stay exactly as they are.
  */
 export function retimeLivePlan(data: PlanningData, assignments: Assignments): Assignments {
   const c = data.clock
+  const now = data.problem.now
   const joint = jointWindows(data.problem)
   const preds = new Map(data.problem.operations.map((o) => [o.id, o.predecessors]))
   const free = new Map<string, number>()
   const ends = new Map<string, number>()
   const out: Assignments = new Map(assignments)
-  const bars = [...assignments.values()].sort((x, y) => Date.parse(x.start) - Date.parse(y.start) || x.operationId - y.operationId)
+  const status = (a: Assignment) => data.meta.operations.get(String(a.operationId))?.op.status
+  const first = (a: Assignment) => (status(a) === 'running' ? 0 : 1)
+  const bars = [...assignments.values()].sort((x, y) => first(x) - first(y) || Date.parse(x.start) - Date.parse(y.start) || x.operationId - y.operationId)
   for (const a of bars) {
     const id = String(a.operationId)
     const m = data.meta.operations.get(id)
@@ -313,32 +326,36 @@ export function retimeLivePlan(data: PlanningData, assignments: Assignments): As
     const start = c.toMinute(a.start),
       end = c.toMinute(a.end)
     const keys = [a.benchId !== null ? `b${a.benchId}` : null, a.personId !== null ? `p${a.personId}` : null].filter((k) => k !== null)
-    let at = start
-    for (const k of keys) at = Math.max(at, free.get(k) ?? -Infinity)
-    for (const p of preds.get(id) ?? []) {
-      const e = ends.get(p)
-      if (e !== undefined) at = Math.max(at, e + (data.meta.operations.get(p)?.op.waitAfterMinutes ?? 0))
+    const running = m.op.status === 'running'
+    // Work nobody started while its bar lasted can start from now at the earliest.
+    let at = leftBehind(data, m.op.status, end) ? Math.max(start, now) : start
+    if (!running) {
+      for (const k of keys) at = Math.max(at, free.get(k) ?? -Infinity)
+      for (const p of preds.get(id) ?? []) {
+        const e = ends.get(p)
+        if (e !== undefined) at = Math.max(at, e + (data.meta.operations.get(p)?.op.waitAfterMinutes ?? 0))
+      }
     }
     let placed: Interval = { start, end }
-    if (m.op.status !== 'running') {
-      if (m.kind.outside || m.op.leadDays > 0) {
+    if (m.kind.outside || m.op.leadDays > 0) {
+      if (!running) {
         const days = data.problem.workshopDays
         const leaves = leaveTime(days, at)
         const back = outsideWorkEnd(days, leaves, Math.max(1, m.op.leadDays))
         if (back !== null && (leaves !== start || back !== end)) placed = { start: leaves, end: back }
-      } else {
-        const windows = joint.both(engineId(a.benchId), engineId(a.personId))
-        const needs = minutesNeeded(data, a)
-        if (windows && needs !== null) {
-          // Only the bar's time from where the work can go on counts (for paused work, from now: `needs` is what is left).
-          const counted = goesOnFrom(data, m.op.status, start)
-          const from = goesOnFrom(data, m.op.status, at)
-          const fits = from === counted && clipToWindows(windows, counted, end).reduce((t, x) => t + x.end - x.start, 0) >= needs
-          const walked = fits ? null : walkWorkingTime(windows, from, needs)
-          // Paused work begun before now keeps its start (the first start at the bench); what is left ends where the walk ends.
-          const begun = m.op.status === 'paused' && start < data.problem.now
-          if (walked?.length) placed = { start: begun ? start : walked[0]!.start, end: walked[walked.length - 1]!.end }
-        }
+      }
+    } else {
+      const windows = joint.both(engineId(a.benchId), engineId(a.personId))
+      const needs = minutesNeeded(data, a)
+      if (windows && needs !== null) {
+        // Only the bar's time from where the work can go on counts (for work under way, from now: `needs` is what is left).
+        const counted = goesOnFrom(data, m.op.status, start)
+        const from = goesOnFrom(data, m.op.status, at)
+        const fits = from === counted && clipToWindows(windows, counted, end).reduce((t, x) => t + x.end - x.start, 0) >= needs
+        const walked = fits ? null : walkWorkingTime(windows, from, needs)
+        // Work under way begun before now keeps its start (the first start at the bench); what is left ends where the walk ends.
+        const begun = isUnderWay(m.op.status) && start < now
+        if (walked?.length) placed = { start: begun ? start : walked[0]!.start, end: walked[walked.length - 1]!.end }
       }
     }
     if (placed.start !== start || placed.end !== end)
@@ -357,7 +374,7 @@ export function retimeLivePlan(data: PlanningData, assignments: Assignments): As
  */
 export function checkLivePlan(data: PlanningData, assignments: Assignments): LiveCheck {
   const findings = [...underWayFindings(data, assignments), ...calendarFindings(data, assignments)]
-  const retimed = findings.length > 0 || pausedPastItsBar(data, assignments)
+  const retimed = findings.length > 0 || pastItsBar(data, assignments)
   return { findings, retimed, carriedOut: retimed ? retimeLivePlan(data, assignments) : assignments }
 }
 

@@ -160,8 +160,9 @@ const TO_COME = new Set(['pending', 'ready', 'claimed', 'paused'])
 
 /**
  * The live plan checked against the calendar, as the board and the forecasts read it: each step whose bar no longer fits, with
- * its findings in one text, and where the plan can really take each step (the live plan re-timed, when bars no longer fit or
- * paused work has more left than its bar holds from now; else the bars themselves).
+ * its findings in one text, and where the plan can really take each step (the live plan re-timed, when bars no longer fit, work
+ * under way has more left than its bar holds from now or work still to start has its bar wholly in the past; else the bars
+ * themselves).
  */
 function liveFinishes(checked: LiveCheck, bars: Record<string, Shown>) {
   const broken = new Map<string, string>()
@@ -192,16 +193,26 @@ export function jobFinishes(
     if (!a || !f || m.op.status === 'done') continue
     const end = new Date(f.end).getTime()
     const cur = completion.get(m.bag.id)
-    // A step the re-timing moved (behind work the calendar no longer allows where it was planned, or paused work going on from
-    // now) no longer starts for its bar's reason: say that it moved, not why its bar started when it did. Paused work itself
-    // moves because it can only go on from now.
+    // A step the re-timing moved (behind work the calendar no longer allows where it was planned, or work going on or starting
+    // from now) no longer starts for its bar's reason: say that it moved, not why its bar started when it did. Work under way
+    // moves because what is left of it can only go on from now; work nobody started while its bar lasted, because it starts
+    // from now at the earliest.
     const moved = f !== a && (f.start !== a.start || f.end !== a.end)
     const barEnds = `its bar ends ${formatInstant(a.end, c.timeZone, c.toDate(data.problem.now))}`
+    // Work nobody started while its bar lasted, re-timed to the first working time from now (not held behind other work).
+    const now = data.problem.now
+    const next = windowsFor(data, a.benchId, a.personId)?.find((x) => x.end > now)
+    const overdue =
+      ['pending', 'ready', 'claimed'].includes(m.op.status) && c.toMinute(a.end) <= now && (!next || c.toMinute(f.start) === Math.max(next.start, now))
     const why = !moved
       ? a.reason?.detail
       : m.op.status === 'paused'
         ? `paused, and what is left of it can only go on from now (${barEnds})`
-        : `moved later, behind work that can no longer be done where it was planned (${barEnds})`
+        : m.op.status === 'running'
+          ? `still running past its bar, and what is left of it can only be done from now (${barEnds})`
+          : overdue
+            ? `not started while its bar lasted, so it starts from now at the earliest (${barEnds})`
+            : `moved later, behind work that can no longer be done where it was planned (${barEnds})`
     if (!cur || end > cur.end) completion.set(m.bag.id, { end, reason: o.broken.get(id) ?? why ?? null })
   }
   // A job bag with a step that no longer fits the calendar names it as the reason for its finish.

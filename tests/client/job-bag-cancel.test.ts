@@ -107,6 +107,9 @@ describe('cancelling one job bag from its page', { timeout: 30_000 }, () => {
     const pieces = [...document.body.querySelectorAll('[data-test=bag-hand-back-piece]')].map((e) => e.textContent?.replace(/\s+/g, ' ').trim())
     expect(pieces).toEqual([expect.stringContaining('MG26-0031-1 · Ring A 18 ct yellow gold · held 5.652 g')])
     expect(weight()?.value).toBe('5.652')
+    expect(q('[data-test=bag-cancel-dialog] .lead')?.textContent?.replace(/\s+/g, ' ')).toContain(
+      'nothing more is made of it; any other job bag of order MG26-0031 goes on. It holds the customer’s own metal',
+    )
     expect(q('[data-test=bag-cancel-confirm]')?.textContent?.trim()).toBe('Cancel the job bag and hand back')
     await say('the customer withdrew this ring')
     await press('bag-cancel-confirm')
@@ -124,7 +127,7 @@ describe('cancelling one job bag from its page', { timeout: 30_000 }, () => {
     await open()
     await press('bag-cancel')
     await say('the customer withdrew this ring')
-    await typeIntoInput('[data-test=bag-hand-back-g-0] input', '5.600')
+    await typeIntoInput('[data-test=bag-hand-back-g-0] input, input[data-test=bag-hand-back-g-0]', '5.600')
     await press('bag-cancel-confirm')
     expect(api.setJobBagStatus).toHaveBeenCalledWith(5, expect.objectContaining({ status: 'cancelled', handBack: [{ alloyId: 3, weightG: 5.6 }] }))
   })
@@ -133,10 +136,22 @@ describe('cancelling one job bag from its page', { timeout: 30_000 }, () => {
     api.orderCustomersMetal.mockResolvedValue([RING])
     await open()
     await press('bag-cancel')
-    await typeIntoInput('[data-test=bag-hand-back-g-0] input', '')
+    await typeIntoInput('[data-test=bag-hand-back-g-0] input, input[data-test=bag-hand-back-g-0]', '')
     await press('bag-cancel-confirm')
     expect(errorUnder('bag-hand-back-g-0')).toMatch(/weight in grams/i)
     expect(errorUnder('bag-cancel-reason-input')).toMatch(/say why/i)
+    expect(api.setJobBagStatus).not.toHaveBeenCalled()
+  })
+
+  it('when the counter weight is typed to a tenth of a milligram (6.1234 g), then it is refused under the field, not rounded and sent', async () => {
+    api.orderCustomersMetal.mockResolvedValue([RING])
+    await open()
+    await press('bag-cancel')
+    await say('the customer withdrew this ring')
+    await typeIntoInput('[data-test=bag-hand-back-g-0] input, input[data-test=bag-hand-back-g-0]', '6.1234')
+    await press('bag-cancel-confirm')
+    expect(weight()?.value).toBe('6.1234')
+    expect(errorUnder('bag-hand-back-g-0')).toMatch(/at most 3 decimals/i)
     expect(api.setJobBagStatus).not.toHaveBeenCalled()
   })
 

@@ -5,7 +5,7 @@ import type { Alloy } from '@shared/schemas/metal'
 
 describe('a job bag’s weighings in words', () => {
   it('when the piece has left with its collected order, then its row says so instead of the stored kind', () => {
-    expect(movementWords({ kind: 'delivered', source: null, form: null })).toBe('left with its order')
+    expect(movementWords({ kind: 'delivered', source: null, form: null })).toBe('went to the customer') // collected with its order, or handed back
   })
   it('when metal goes out and comes back, then the rows say where from and in what form', () => {
     expect(movementWords({ kind: 'issued', source: 'stock', form: null })).toBe('out from stock')

@@ -18,7 +18,7 @@ export const fmtMg3 = (mg: number | null | undefined): string =>
 export const fmtG3 = (g: number | null | undefined): string =>
   g === null || g === undefined || !Number.isFinite(g) ? '—' : `${g.toLocaleString('en-GB', { minimumFractionDigits: 3, maximumFractionDigits: 3 })} g`
 /**
- * What a weighing of a job bag was, in the bench's words; the piece leaving with its collected order (or handed back), and the
+ * What a weighing of a job bag was, in the bench’s words; the piece going to the customer (collected or handed back), and the
  * customer's metal lost or gained when their piece was handed back lighter or heavier than held (by the sign of its weight).
  */
 export const movementWords = (m: Pick<MetalMovement, 'kind' | 'source' | 'form'> & { effectiveMg?: number }): string =>
@@ -29,7 +29,7 @@ export const movementWords = (m: Pick<MetalMovement, 'kind' | 'source' | 'form'>
     : m.kind === 'returned'
       ? `back as ${m.form}`
       : m.kind === 'delivered'
-        ? 'left with its order'
+        ? 'went to the customer'
         : m.kind === 'customer-loss'
           ? (m.effectiveMg ?? 0) < 0
             ? 'gained by the customer’s metal as handed back'
@@ -129,4 +129,14 @@ export function downloadText(name: string, text: string, type = 'text/csv;charse
   a.click()
   a.remove()
   setTimeout(() => URL.revokeObjectURL(url), 1000)
+}
+
+/**
+ * Grams as typed in a weight field kept as text: a plain decimal number (a comma taken as the point), undefined when empty, NaN
+ * otherwise — never rounded, so the shared schema can refuse a fourth decimal under the field instead of a weight being changed.
+ */
+export function gramsFromText(text: string): number | undefined {
+  const t = text.trim().replace(',', '.')
+  if (t === '') return undefined
+  return /^(\d+(\.\d*)?|\.\d+)$/.test(t) ? Number(t) : NaN
 }

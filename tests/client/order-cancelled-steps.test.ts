@@ -8,7 +8,8 @@ import type { OrderDetail, OrderJobBag } from '@shared/schemas/order'
 
 const ordersApi = vi.hoisted(() => ({ listOrders: vi.fn(), getOrder: vi.fn(), createOrder: vi.fn(), updateOrder: vi.fn(), orderCustomersMetal: vi.fn() }))
 vi.mock('@/api/orders', () => ordersApi)
-vi.mock('@/api/promise', () => ({ orderForecast: vi.fn(async () => Promise.reject(new Error('not here'))) }))
+const promiseApi = vi.hoisted(() => ({ orderForecast: vi.fn(async (): Promise<unknown> => Promise.reject(new Error('not here'))) }))
+vi.mock('@/api/promise', () => promiseApi)
 vi.mock('@/api/operation-kinds', () => ({ listKinds: vi.fn(async () => []) }))
 vi.mock('@/api/routings', () => ({ listRoutings: vi.fn(async () => []) }))
 vi.stubGlobal('ElMessage', Object.assign(vi.fn(), { success: vi.fn(), error: vi.fn() }))
@@ -118,6 +119,21 @@ describe('a cancelled order’s steps in its drawer', () => {
     await openDrawer(ORDER)
     expect(planned('MG26-0007-1')).toEqual(['done Mon 8 Dec 2031, 14:05', 'off the plan (order cancelled)', 'skipped'])
     expect(document.body.textContent).not.toContain('Mon 15 Dec 2031')
+  })
+
+  it('when the order is cancelled and the forecast still answers for it, then the drawer says it is cancelled, not that it is not planned yet', async () => {
+    promiseApi.orderForecast.mockResolvedValueOnce({
+      state: 'unplanned',
+      plan: null,
+      jobBags: [{ jobBagId: 1, number: 'MG26-0007-1', expectedDate: null, state: 'unplanned', why: null, stepsOffPlan: 0 }],
+      notBooked: null,
+    })
+    await openDrawer(ORDER)
+    expect(document.body.querySelector('[data-test=order-forecast]')).toBeNull()
+    expect(document.body.querySelector('[data-test=order-all-cancelled]')?.textContent?.trim()).toBe(
+      'This order is cancelled: nothing of it is planned or expected any more.',
+    )
+    expect(document.body.textContent).not.toContain('Not planned yet')
   })
 
   it('when one job bag of an order still in work is cancelled, then only its steps are off the plan; the other bag keeps its planned times', async () => {

@@ -280,8 +280,8 @@ export interface CostedOrder extends Omit<OrderCosting, 'metalAsEstimatedMinor'>
 }
 
 /**
- * Orders at estimate and at actual. Estimate: each step's estimate minutes at the rate of whoever did it (else the person planned, else
- * the average), the routing's outside costs, the piece's typical metal at the price on the day the order was taken, the stone list
+ * Orders at estimate and at actual. Estimate: each step's estimate minutes at the rate of whoever did it, else the average (as the
+ * quote and the order dialog priced it; never the person the plan happens to hold it for), the routing's outside costs, the piece's typical metal at the price on the day the order was taken, the stone list
  * (before the piece has one, the stones as quoted).
  * Actual: time records at each person's rate, outside work as invoiced (else expected), metal from the ledger, stones as counted.
  */
@@ -367,8 +367,10 @@ export async function costOrders(db: Tx, workshopId: number, orderIds: number[])
         const byPerson = new Map<number, number>()
         for (const r of mine) byPerson.set(r.personId, (byPerson.get(r.personId) ?? 0) + r.minutes)
         if (!outside && op.leadDays === 0) {
-          const main = [...byPerson.entries()].sort((a, b) => b[1] - a[1] || a[0] - b[0])[0]?.[0] ?? op.plannedPersonId
-          const rate = main != null ? (rateOf.get(main) ?? average) : average
+          // Not the person the live plan has put on it: that changes with every plan and bar moved, and the quote and the order
+          // dialog, which priced the piece, could not know it — so a step nobody has worked is at the average rate, as they counted it.
+          const main = [...byPerson.entries()].sort((a, b) => b[1] - a[1] || a[0] - b[0])[0]?.[0]
+          const rate = main !== undefined ? (rateOf.get(main) ?? average) : average
           estMin += op.estimateMinutes
           bagMinutes += op.estimateMinutes
           labourEst += labourMinor(op.estimateMinutes, rate)

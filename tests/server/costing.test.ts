@@ -542,6 +542,30 @@ describe('a quote’s piece', () => {
     expect(e.body.estimate.missing).toEqual(['stone-costs'])
   })
 
+  it('when the live plan books the order made from a quote onto a dearer setter, then its labour at estimate is still the quote’s: minutes × the average rate', async () => {
+    // Six people: five at 32.00 an hour and one at 50.00, so the average rate is (5 × 3,200 + 5,000) ÷ 6 = 3,500 p an hour.
+    const ppl = await t.db.select({ id: s.people.id }).from(s.people).where(eq(s.people.active, true)).orderBy(asc(s.people.id))
+    expect(ppl.length).toBe(6)
+    const dear = ppl[0]!.id
+    await t.db.update(s.people).set({ hourlyRateMinor: 5000 }).where(eq(s.people.id, dear))
+    const q = await quote({ metal: 'gold-18ct', params: { metalWeightG: 5 } })
+    expect(q.status, JSON.stringify(q.body)).toBe(201)
+    const a = await sales.post(`/api/quotes/${q.body.id}/accept`, { version: q.body.version })
+    expect(a.status, JSON.stringify(a.body)).toBe(200)
+    // The plan puts the 210-minute step on the person at 50.00 (as booking the quote into the live plan, or a later plan, may).
+    const ops = await stepIdsByKey(t.db, { jobBagId: await jobBagOfOrder(t.db, a.body.orderId) })
+    await t.db.update(s.operations).set({ plannedPersonId: dear }).where(eq(s.operations.id, ops.make!))
+    // Labour 210 min × 3,500 p ÷ 60 = 12,250 p (not 210 × 5,000 ÷ 60 = 17,500 p): with the metal 30,000 p and the hallmark 4,500 p, 46,750 p.
+    const e = await sales.post('/api/costing/estimate', {
+      priceQuotedMinor: 125_000,
+      pieces: [{ routingId, piece: 'Fixture pendant', params: { metal: 'gold-18ct', metalWeightG: 5 } }],
+    })
+    expect(e.body.estimate.cost).toEqual({ metalMinor: 30_000, stonesMinor: 0, outsideMinor: 4_500, labourMinor: 12_250, totalMinor: 46_750 })
+    const c = await sales.get(`/api/orders/${a.body.orderId}/costing`)
+    expect(c.body.estimate.cost).toEqual({ metalMinor: 30_000, stonesMinor: 0, outsideMinor: 4_500, labourMinor: 12_250, totalMinor: 46_750 })
+    await hourlyRate(3200)
+  })
+
   it('when a quote’s metal weight is negative, absurd or its alloy unknown, or it names two metals, then 400 naming the field and nothing is kept', async () => {
     const before = (await t.db.select({ id: s.quotes.id }).from(s.quotes)).length
     expectFieldError(await quote({ params: { metal: 'gold-18ct', metalWeightG: -2 } }), 'details.params.metalWeightG', /more than 0 g/)

@@ -368,8 +368,9 @@ export function retimeLivePlan(data: PlanningData, assignments: Assignments): As
 
 /**
  * The live plan checked against the calendar (`calendarFindings`), and the bars it can really be carried out with: its own when
- * it fits, else the live plan re-timed (`retimeLivePlan`) — also when paused work has more left than its bar holds from now,
- * which breaks no rule but cannot happen as planned. The bars on the board stay as planned; the re-timed ones only give the
+ * it fits, else the live plan re-timed (`retimeLivePlan`) — also when some work is past its bar (`pastItsBar`: work under way
+ * with more left than its bar holds from now, or work still to start whose bar lies wholly in the past), which breaks no rule
+ * but cannot happen as planned. The bars on the board stay as planned; the re-timed ones only give the
  * figures and finishes that can be believed until the manager re-plans.
  */
 export function checkLivePlan(data: PlanningData, assignments: Assignments): LiveCheck {

@@ -3,6 +3,7 @@
 import { describe, expect, it } from 'vitest'
 import { flushPromises, mount } from '@vue/test-utils'
 import ElementPlus from 'element-plus'
+import { createPinia } from 'pinia'
 import type { BoardItem } from '@shared/schemas/board'
 import BoardBarDetails from '@/components/board/BoardBarDetails.vue'
 import BoardBarTooltip from '@/components/board/BoardBarTooltip.vue'
@@ -138,7 +139,7 @@ describe('the person’s speed beside the estimate', () => {
 
 describe('the job bag’s routing', () => {
   it('when the routing lists each step’s minutes, then the column says they are the estimate, not the plan', async () => {
-    const w = mount(JobBagRouting, { props: { operations: [], editable: false }, global: { plugins: [ElementPlus] } })
+    const w = mount(JobBagRouting, { props: { operations: [], editable: false }, global: { plugins: [ElementPlus, createPinia()] } })
     await flushPromises()
     const headers = w.findAll('th').map((h) => h.text())
     expect(headers.some((h) => /^Estimate/.test(h))).toBe(true)
